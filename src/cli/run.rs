@@ -1,0 +1,81 @@
+//! `hurdle run CASE.toml [--out DIR] [--template FILE] [--set KEY=VALUE]...`
+//!
+//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv` and `returns.csv` to
+//! DIR (default: `output/` beside the case file), each atomically; prints a short summary.
+
+use std::path::PathBuf;
+
+use hurdle::format::{fixed, percent};
+use hurdle::output::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
+use hurdle::valuation::Valuation;
+
+use super::CaseArgs;
+
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    #[command(flatten)]
+    pub case: CaseArgs,
+    /// Output folder (default: `output/` beside the case file).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Memo template to use instead of the shipped one (minijinja syntax).
+    #[arg(long, value_name = "FILE")]
+    pub template: Option<PathBuf>,
+}
+
+pub fn run(args: &Args) -> hurdle::Result<()> {
+    // Read the template first: a bad path should fail before any work is done.
+    let memo = match &args.template {
+        Some(path) => Memo::from_file(path)?,
+        None => Memo::shipped(),
+    };
+    let valuation = args.case.valuation()?;
+    let out = args.out.clone().unwrap_or_else(|| {
+        args.case
+            .case
+            .parent()
+            .map(|p| p.join("output"))
+            .unwrap_or_else(|| PathBuf::from("output"))
+    });
+    let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
+    let written = output::write_all(&out, &valuation, &outputs)?;
+    print!("{}", summary(&valuation));
+    for path in written {
+        println!("  wrote {}", path.display());
+    }
+    Ok(())
+}
+
+fn summary(v: &Valuation) -> String {
+    let mut lines = vec![
+        format!(
+            "{} — valuation date {}",
+            v.case.title, v.case.valuation_date
+        ),
+        format!(
+            "  peers {} | unlevered beta ({:?}) {} | relevered {} at D/E {}",
+            v.peers.len(),
+            v.beta.aggregation,
+            fixed(v.beta.unlevered, 3),
+            fixed(v.beta.relevered, 3),
+            fixed(v.target.debt_to_equity, 3)
+        ),
+        format!(
+            "  cost of equity {} | cost of debt {} pre-tax, {} after tax",
+            percent(v.cost_of_equity, 2),
+            percent(v.cost_of_debt_pre_tax, 2),
+            percent(v.cost_of_debt_after_tax, 2)
+        ),
+        format!(
+            "  weights E {} / D {} | WACC {}",
+            percent(v.weights.equity, 1),
+            percent(v.weights.debt, 1),
+            percent(v.wacc, 2)
+        ),
+    ];
+    for note in &v.notes {
+        lines.push(format!("  note: {note}"));
+    }
+    lines.push(String::new());
+    lines.join("\n")
+}

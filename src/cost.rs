@@ -1,0 +1,60 @@
+//! Cost of equity, cost of debt, capital weights and the WACC.
+//!
+//! Plain formulas over decimals. They are kept apart from the pipeline so that the memo's
+//! build-up, the sensitivity checks and the tests all use exactly the same arithmetic.
+
+/// CAPM cost of equity plus additive premiums: rf + β·ERP + premiums.
+/// Sharpe (1964), J. Finance 19(3); Lintner (1965), Rev. Econ. Statistics 47(1).
+pub fn capm_cost_of_equity(
+    risk_free: f64,
+    beta: f64,
+    equity_risk_premium: f64,
+    premiums: f64,
+) -> f64 {
+    risk_free + beta * equity_risk_premium + premiums
+}
+
+/// After-tax cost of debt, Kd·(1 − t): interest is deductible at the marginal rate t.
+pub fn after_tax_cost_of_debt(pre_tax: f64, tax_rate: f64) -> f64 {
+    pre_tax * (1.0 - tax_rate)
+}
+
+/// Capital weights (equity, debt) from a debt-to-equity ratio: E/V = 1/(1 + D/E), D/V = D/E·E/V.
+pub fn weights_from_debt_to_equity(debt_to_equity: f64) -> (f64, f64) {
+    let equity = 1.0 / (1.0 + debt_to_equity);
+    (equity, debt_to_equity * equity)
+}
+
+/// Weighted average cost of capital: wE·Ke + wD·Kd·(1 − t) (Modigliani and Miller 1963,
+/// Am. Econ. Review 53(3), for the tax shield; the textbook WACC).
+pub fn wacc(equity_weight: f64, cost_of_equity: f64, debt_weight: f64, after_tax_debt: f64) -> f64 {
+    equity_weight * cost_of_equity + debt_weight * after_tax_debt
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Hand-worked textbook example: rf 4%, β 1.2, ERP 5%, size premium 1%:
+    // Ke = 0.04 + 1.2·0.05 + 0.01 = 0.11. Kd 6%, t 25%: 0.045 after tax.
+    // D/E = 0.25 → E/V = 0.8, D/V = 0.2; WACC = 0.8·0.11 + 0.2·0.045 = 0.088 + 0.009 = 0.097.
+    #[test]
+    fn wacc_hand_example() {
+        let ke = capm_cost_of_equity(0.04, 1.2, 0.05, 0.01);
+        let kd = after_tax_cost_of_debt(0.06, 0.25);
+        let (we, wd) = weights_from_debt_to_equity(0.25);
+        // 1e-15: decimal inputs carry representation error of a few ulps.
+        assert!((ke - 0.11).abs() < 1e-15);
+        assert!((kd - 0.045).abs() < 1e-15);
+        assert!((we - 0.8).abs() < 1e-15 && (wd - 0.2).abs() < 1e-15);
+        assert!((wacc(we, ke, wd, kd) - 0.097).abs() < 1e-15);
+    }
+
+    // Identity: with no debt the WACC is the cost of equity.
+    #[test]
+    fn no_debt_wacc_is_cost_of_equity() {
+        let (we, wd) = weights_from_debt_to_equity(0.0);
+        assert_eq!((we, wd), (1.0, 0.0));
+        assert_eq!(wacc(we, 0.093, wd, 0.04), 0.093);
+    }
+}

@@ -1,0 +1,211 @@
+//! Data loading: price and yield files into typed, validated date series.
+//!
+//! Files are CSV with a header row; polars reads them with every column as text, and each cell
+//! is then parsed here so that a bad value is reported with its file, line and content. A series
+//! must be strictly ascending in date: a duplicate or an out-of-order date is an error naming
+//! both lines, never silently sorted or de-duplicated. The bytes that are parsed are the bytes
+//! that are hashed, so the receipt's SHA-256 describes exactly what was used.
+//!
+//! Sampling works on [`SeriesView`], a borrowed pair of date and value slices, so a long-format
+//! panel of many securities can feed the same code by slicing, without copying.
+
+use std::io::Cursor;
+use std::path::Path;
+
+use chrono::NaiveDate;
+use polars::prelude::*;
+use serde::Serialize;
+use sha2::{Digest, Sha256};
+
+use crate::error::{Error, Result};
+
+/// What the numbers in a file are, which decides the range they must lie in.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ValueKind {
+    /// An adjusted (total-return) closing price: finite and positive.
+    Price,
+    /// An annualised yield in decimals: finite and above −100%.
+    Yield,
+}
+
+/// A date-ordered series of one security's prices or one rate's yields.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Series {
+    pub dates: Vec<NaiveDate>,
+    pub values: Vec<f64>,
+}
+
+/// A borrowed view of a series (or of one security's rows in a panel).
+#[derive(Debug, Clone, Copy)]
+pub struct SeriesView<'a> {
+    pub dates: &'a [NaiveDate],
+    pub values: &'a [f64],
+}
+
+impl Series {
+    pub fn view(&self) -> SeriesView<'_> {
+        SeriesView {
+            dates: &self.dates,
+            values: &self.values,
+        }
+    }
+}
+
+/// A data file as loaded: its series plus the facts the receipt records about it.
+#[derive(Debug, Clone, Serialize)]
+pub struct DataFile {
+    /// What the file is in the case: `index`, `risk_free`, or `peer:<name>`.
+    pub role: String,
+    /// The path as written in the case file (relative to the case file's folder).
+    pub path: String,
+    pub sha256: String,
+    pub rows: usize,
+    #[serde(serialize_with = "iso_date")]
+    pub first_date: NaiveDate,
+    #[serde(serialize_with = "iso_date")]
+    pub last_date: NaiveDate,
+    #[serde(skip)]
+    pub series: Series,
+}
+
+/// Serialises a date as ISO 8601 text (`2026-09-30`), for `#[serde(serialize_with)]`.
+pub fn iso_date<S: serde::Serializer>(
+    date: &NaiveDate,
+    serializer: S,
+) -> std::result::Result<S::Ok, S::Error> {
+    serializer.collect_str(&date.format("%Y-%m-%d"))
+}
+
+/// Lower-case hexadecimal SHA-256 of some bytes.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+/// Reads one series file. `written` is the path as the case names it; `resolved` is where it is.
+pub fn read_series_file(
+    role: &str,
+    written: &str,
+    resolved: &Path,
+    date_column: &str,
+    value_column: &str,
+    kind: ValueKind,
+) -> Result<DataFile> {
+    let bytes = std::fs::read(resolved).map_err(|source| Error::Io {
+        path: resolved.to_path_buf(),
+        action: "cannot read the data file",
+        source,
+    })?;
+    let sha256 = sha256_hex(&bytes);
+    let series = parse_series(resolved, &bytes, date_column, value_column, kind)?;
+    Ok(DataFile {
+        role: role.to_string(),
+        path: written.to_string(),
+        sha256,
+        rows: series.dates.len(),
+        first_date: series.dates[0],
+        last_date: *series
+            .dates
+            .last()
+            .expect("parse_series rejects empty files"),
+        series,
+    })
+}
+
+/// Parses CSV bytes into a validated series; `file` is only used in messages.
+pub fn parse_series(
+    file: &Path,
+    bytes: &[u8],
+    date_column: &str,
+    value_column: &str,
+    kind: ValueKind,
+) -> Result<Series> {
+    let file_error = |message: String| Error::DataFile {
+        file: file.to_path_buf(),
+        message,
+    };
+    let frame = CsvReadOptions::default()
+        .with_has_header(true)
+        // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.
+        .with_infer_schema_length(Some(0))
+        .into_reader_with_file_handle(Cursor::new(bytes))
+        .finish()
+        .map_err(|e| file_error(format!("not a readable CSV file: {e}")))?;
+    let column = |name: &str| -> Result<Vec<Option<String>>> {
+        let found = frame.column(name).map_err(|_| {
+            let names: Vec<String> = frame
+                .get_column_names()
+                .iter()
+                .map(|n| n.to_string())
+                .collect();
+            file_error(format!(
+                "no column named `{name}`; the header has: {}",
+                names.join(", ")
+            ))
+        })?;
+        let text = found
+            .str()
+            .map_err(|e| file_error(format!("column `{name}`: {e}")))?;
+        Ok(text.iter().map(|v| v.map(str::to_string)).collect())
+    };
+    let date_text = column(date_column)?;
+    let value_text = column(value_column)?;
+    if date_text.is_empty() {
+        return Err(file_error("has a header but no data rows".into()));
+    }
+    let mut dates = Vec::with_capacity(date_text.len());
+    let mut values = Vec::with_capacity(date_text.len());
+    for (row, (date, value)) in date_text.iter().zip(&value_text).enumerate() {
+        let line = row + 2;
+        let row_error = |message: String| Error::DataRow {
+            file: file.to_path_buf(),
+            line,
+            message,
+        };
+        let date_cell = date.as_deref().unwrap_or("").trim();
+        let date = NaiveDate::parse_from_str(date_cell, "%Y-%m-%d").map_err(|_| {
+            row_error(format!(
+                "`{date_column}` = \"{date_cell}\" is not an ISO 8601 date (YYYY-MM-DD)"
+            ))
+        })?;
+        let value_cell = value.as_deref().unwrap_or("").trim();
+        let value: f64 = value_cell.parse().map_err(|_| {
+            row_error(format!(
+                "`{value_column}` = \"{value_cell}\" is not a number"
+            ))
+        })?;
+        match kind {
+            ValueKind::Price if !(value.is_finite() && value > 0.0) => {
+                return Err(row_error(format!(
+                    "`{value_column}` = {value_cell} on {date}: a price must be positive"
+                )))
+            }
+            ValueKind::Yield if !(value.is_finite() && value > -1.0) => {
+                return Err(row_error(format!(
+                    "`{value_column}` = {value_cell} on {date}: a yield must be above -1 (−100%)"
+                )))
+            }
+            _ => {}
+        }
+        if let Some(&previous) = dates.last() {
+            if date == previous {
+                return Err(row_error(format!(
+                    "duplicate date {date} (also on line {}); each date may appear once",
+                    line - 1
+                )));
+            }
+            if date < previous {
+                return Err(row_error(format!(
+                    "date {date} comes after {previous} on line {}; rows must be sorted by \
+                     ascending date (sort the file; it is never reordered silently)",
+                    line - 1
+                )));
+            }
+        }
+        dates.push(date);
+        values.push(value);
+    }
+    Ok(Series { dates, values })
+}

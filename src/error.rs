@@ -1,0 +1,53 @@
+//! The one error type of the library.
+//!
+//! Every variant names the place the problem was found (a file and row, a case key, a peer, a
+//! template line) and the offending value, because the person reading the message is usually an
+//! analyst fixing an input file, not a programmer reading a stack trace.
+
+use std::path::PathBuf;
+
+/// Everything that can go wrong between a case file and a finished valuation.
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    /// A file could not be opened, read or written.
+    #[error("{}: {action}: {source}", path.display())]
+    Io {
+        path: PathBuf,
+        action: &'static str,
+        #[source]
+        source: std::io::Error,
+    },
+    /// The case file (or a `--set` override) is malformed or holds a value out of range.
+    #[error("{}: {message}", file.display())]
+    Case { file: PathBuf, message: String },
+    /// A `--set` assignment could not be applied.
+    #[error("--set {assignment}: {message}")]
+    Override { assignment: String, message: String },
+    /// A data file is malformed as a whole (missing column, not CSV, no rows).
+    #[error("{}: {message}", file.display())]
+    DataFile { file: PathBuf, message: String },
+    /// One row of a data file holds a bad value. `line` is the 1-based line number in the file,
+    /// counting the header as line 1, so it matches what an editor shows.
+    #[error("{}, line {line}: {message}", file.display())]
+    DataRow {
+        file: PathBuf,
+        line: usize,
+        message: String,
+    },
+    /// A peer's (or the index's) data cannot support an estimate.
+    #[error("peer \"{peer}\": {message}")]
+    Estimation { peer: String, message: String },
+    /// A regression could not be solved (rank-deficient design, too few observations).
+    #[error("regression: {0}")]
+    Regression(String),
+    /// The memo template failed to parse or render.
+    #[error("template {name}, line {line}: {message}")]
+    Template {
+        name: String,
+        line: usize,
+        message: String,
+    },
+}
+
+/// Shorthand used throughout the library.
+pub type Result<T, E = Error> = std::result::Result<T, E>;

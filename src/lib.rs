@@ -1,0 +1,25 @@
+//! hurdle: from market data and capital-structure facts to a cost of capital that can be
+//! defended and reproduced.
+//!
+//! The modules follow the pipeline: [`case`] (the inputs) → [`data`] (reading price files) →
+//! [`sampling`] (period returns) → [`regression`] (least squares) → [`beta`] (estimators) →
+//! [`leverage`] (unlever, aggregate, relever) → [`cost`] (cost of equity, cost of debt, WACC) →
+//! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV). [`stats`], [`format`]
+//! and [`random`] are shared helpers; [`demo`] generates the invented demo case.
+
+pub mod beta;
+pub mod case;
+pub mod cost;
+pub mod data;
+pub mod demo;
+pub mod error;
+pub mod format;
+pub mod leverage;
+pub mod output;
+pub mod random;
+pub mod regression;
+pub mod sampling;
+pub mod stats;
+pub mod valuation;
+
+pub use error::{Error, Result};

@@ -1,0 +1,122 @@
+//! `peers.csv` and `returns.csv`: the peer table and every aligned return, so a reviewer can
+//! redo each regression in another tool. Numbers are written in full (shortest round-trip form).
+
+use std::fmt::Write as _;
+
+use super::Render;
+use crate::error::Result;
+use crate::valuation::Valuation;
+
+/// One row per peer: the estimate, its statistics and the unlevering inputs.
+pub struct PeersCsv;
+
+/// Long form: one row per peer and return period.
+pub struct ReturnsCsv;
+
+const PEER_COLUMNS: [&str; 18] = [
+    "name",
+    "prices_file",
+    "observations",
+    "periods_dropped",
+    "alpha",
+    "beta",
+    "beta_std_error",
+    "beta_t_stat",
+    "beta_p_value",
+    "beta_ci_low",
+    "beta_ci_high",
+    "r_squared",
+    "adjusted_beta",
+    "beta_used",
+    "debt_to_equity",
+    "tax_rate",
+    "unlevered_beta",
+    "residual_std_error",
+];
+
+impl Render for PeersCsv {
+    fn file_name(&self) -> &str {
+        "peers.csv"
+    }
+
+    fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
+        let mut out = PEER_COLUMNS.join(",");
+        out.push('\n');
+        for p in &valuation.peers {
+            let e = &p.estimate;
+            let cells = [
+                field(&p.name),
+                field(&p.prices_file),
+                e.observations.to_string(),
+                p.periods_dropped.total.to_string(),
+                e.alpha.to_string(),
+                e.beta.to_string(),
+                e.beta_std_error.to_string(),
+                e.beta_t_stat.to_string(),
+                e.beta_p_value.to_string(),
+                e.beta_ci_low.to_string(),
+                e.beta_ci_high.to_string(),
+                e.r_squared.to_string(),
+                p.adjusted_beta.map(|b| b.to_string()).unwrap_or_default(),
+                p.beta_used.to_string(),
+                p.debt_to_equity.to_string(),
+                p.tax_rate.to_string(),
+                p.unlevered_beta.to_string(),
+                e.residual_std_error.to_string(),
+            ];
+            out.push_str(&cells.join(","));
+            out.push('\n');
+        }
+        Ok(out.into_bytes())
+    }
+}
+
+impl Render for ReturnsCsv {
+    fn file_name(&self) -> &str {
+        "returns.csv"
+    }
+
+    fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
+        let with_rf = valuation.sampling.excess_returns;
+        let mut out = String::from("peer,period_end,asset_return,market_return");
+        out.push_str(if with_rf { ",risk_free\n" } else { "\n" });
+        for (peer, returns) in valuation.peers.iter().zip(&valuation.returns) {
+            let name = field(&peer.name);
+            for j in 0..returns.period_ends.len() {
+                write!(
+                    out,
+                    "{name},{},{},{}",
+                    returns.period_ends[j], returns.asset[j], returns.market[j]
+                )
+                .expect("writing to a String cannot fail");
+                if let Some(rf) = &returns.risk_free {
+                    write!(out, ",{}", rf[j]).expect("writing to a String cannot fail");
+                }
+                out.push('\n');
+            }
+        }
+        Ok(out.into_bytes())
+    }
+}
+
+/// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).
+fn field(text: &str) -> String {
+    if text.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", text.replace('"', "\"\""))
+    } else {
+        text.to_string()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::field;
+
+    // RFC 4180, section 2: fields with commas or quotes are quoted, quotes doubled.
+    #[test]
+    fn fields_are_quoted_per_rfc_4180() {
+        assert_eq!(field("Plain"), "Plain");
+        assert_eq!(field("A, B"), "\"A, B\"");
+        assert_eq!(field("say \"x\""), "\"say \"\"x\"\"\"");
+    }
+}

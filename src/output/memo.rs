@@ -1,0 +1,99 @@
+//! `memo.md`: the reviewer's memo, rendered by minijinja from a template.
+//!
+//! The template sees the [`Valuation`] as `v` and may only format it: the filters `pct`, `bp`
+//! and `num` call [`crate::format`], and undefined names are errors (strict mode), so a typo in a
+//! user's template fails loudly instead of printing an empty cell.
+
+use std::path::Path;
+
+use minijinja::value::Serde;
+use minijinja::{Environment, UndefinedBehavior, Value};
+
+use super::Render;
+use crate::error::{Error, Result};
+use crate::format;
+use crate::valuation::Valuation;
+
+/// The memo template shipped with the tool (`templates/memo.md.j2`).
+pub const DEFAULT_TEMPLATE: &str = include_str!("../../templates/memo.md.j2");
+
+/// A memo renderer holding its template's name and text.
+pub struct Memo {
+    name: String,
+    source: String,
+}
+
+impl Memo {
+    /// The shipped template.
+    pub fn shipped() -> Memo {
+        Memo {
+            name: "templates/memo.md.j2".to_string(),
+            source: DEFAULT_TEMPLATE.to_string(),
+        }
+    }
+
+    /// A user's template file.
+    pub fn from_file(path: &Path) -> Result<Memo> {
+        let source = std::fs::read_to_string(path).map_err(|source| Error::Io {
+            path: path.to_path_buf(),
+            action: "cannot read the memo template",
+            source,
+        })?;
+        Ok(Memo {
+            name: path.display().to_string(),
+            source,
+        })
+    }
+
+    fn template_error(&self, e: &minijinja::Error) -> Error {
+        let mut message = e.kind().to_string();
+        if let Some(detail) = e.detail() {
+            message.push_str(": ");
+            message.push_str(detail);
+        }
+        Error::Template {
+            name: self.name.clone(),
+            line: e.line().unwrap_or(0),
+            message,
+        }
+    }
+}
+
+fn pct(value: f64, decimals: Option<usize>) -> String {
+    format::percent(value, decimals.unwrap_or(2))
+}
+
+fn bp(value: f64) -> String {
+    format::basis_points(value)
+}
+
+fn num(value: f64, decimals: Option<usize>) -> String {
+    format::fixed(value, decimals.unwrap_or(3))
+}
+
+impl Render for Memo {
+    fn file_name(&self) -> &str {
+        "memo.md"
+    }
+
+    fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
+        let mut env = Environment::new();
+        env.set_undefined_behavior(UndefinedBehavior::Strict);
+        env.add_filter("pct", pct);
+        env.add_filter("bp", bp);
+        env.add_filter("num", num);
+        env.add_template_owned(self.name.clone(), self.source.clone())
+            .map_err(|e| self.template_error(&e))?;
+        let template = env
+            .get_template(&self.name)
+            .map_err(|e| self.template_error(&e))?;
+        let context = minijinja::context! { v => Value::from(Serde(valuation)) };
+        let mut text = template
+            .render(context)
+            .map_err(|e| self.template_error(&e))?;
+        if !text.ends_with('\n') {
+            text.push('\n');
+        }
+        Ok(text.into_bytes())
+    }
+}

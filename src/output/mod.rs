@@ -1,0 +1,74 @@
+//! Outputs: each file format is one [`Render`] implementation that turns a [`Valuation`] into
+//! bytes; [`write_all`] renders every file first and only then writes them, each atomically
+//! (a temporary file in the same folder, then a rename), so a failure leaves no output at all
+//! and a crash never leaves half a file. Inputs are never opened for writing.
+
+pub mod csv;
+pub mod json;
+pub mod memo;
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use crate::error::{Error, Result};
+use crate::valuation::Valuation;
+
+/// One output file format.
+pub trait Render {
+    /// The file name written in the output folder.
+    fn file_name(&self) -> &str;
+    /// The file's complete contents.
+    fn render(&self, valuation: &Valuation) -> Result<Vec<u8>>;
+}
+
+/// Renders every output, then writes them all into `dir` (created when missing).
+pub fn write_all(
+    dir: &Path,
+    valuation: &Valuation,
+    outputs: &[&dyn Render],
+) -> Result<Vec<PathBuf>> {
+    let rendered = outputs
+        .iter()
+        .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
+        .collect::<Result<Vec<_>>>()?;
+    std::fs::create_dir_all(dir).map_err(|source| Error::Io {
+        path: dir.to_path_buf(),
+        action: "cannot create the output folder",
+        source,
+    })?;
+    let mut written = Vec::with_capacity(rendered.len());
+    for (name, bytes) in rendered {
+        let path = dir.join(name);
+        write_atomic(&path, &bytes)?;
+        written.push(path);
+    }
+    Ok(written)
+}
+
+/// Writes `bytes` to `path` through a temporary file in the same folder and a rename.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let io_error = |action: &'static str| {
+        move |source| Error::Io {
+            path: path.to_path_buf(),
+            action,
+            source,
+        }
+    };
+    let mut temporary = tempfile::NamedTempFile::new_in(dir)
+        .map_err(io_error("cannot create a temporary file beside"))?;
+    temporary
+        .write_all(bytes)
+        .map_err(io_error("cannot write"))?;
+    temporary
+        .as_file()
+        .sync_all()
+        .map_err(io_error("cannot flush"))?;
+    temporary
+        .persist(path)
+        .map_err(|e| io_error("cannot rename the temporary file onto")(e.error))?;
+    Ok(())
+}

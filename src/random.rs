@@ -1,0 +1,100 @@
+//! A small seeded random number generator for simulations and the demo data.
+//!
+//! xoshiro256** (Blackman and Vigna 2018, "Scrambled linear pseudorandom number generators"),
+//! seeded through SplitMix64 as its authors recommend, with normal variates by the Marsaglia
+//! polar method (Marsaglia and Bray 1964, SIAM Review 6(3)). Written out here, not taken from a
+//! crate, so that a seed gives the same numbers on every machine and every future build.
+
+/// xoshiro256** state.
+#[derive(Debug, Clone)]
+pub struct Rng {
+    state: [u64; 4],
+    spare_normal: Option<f64>,
+}
+
+fn splitmix64(x: &mut u64) -> u64 {
+    *x = x.wrapping_add(0x9E37_79B9_7F4A_7C15);
+    let mut z = *x;
+    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+    z ^ (z >> 31)
+}
+
+impl Rng {
+    pub fn seeded(seed: u64) -> Rng {
+        let mut x = seed;
+        Rng {
+            state: [
+                splitmix64(&mut x),
+                splitmix64(&mut x),
+                splitmix64(&mut x),
+                splitmix64(&mut x),
+            ],
+            spare_normal: None,
+        }
+    }
+
+    pub fn next_u64(&mut self) -> u64 {
+        let s = &mut self.state;
+        let result = s[1].wrapping_mul(5).rotate_left(7).wrapping_mul(9);
+        let t = s[1] << 17;
+        s[2] ^= s[0];
+        s[3] ^= s[1];
+        s[1] ^= s[2];
+        s[0] ^= s[3];
+        s[2] ^= t;
+        s[3] = s[3].rotate_left(45);
+        result
+    }
+
+    /// Uniform on [0, 1) with 53 random bits.
+    pub fn uniform(&mut self) -> f64 {
+        (self.next_u64() >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+    }
+
+    /// Standard normal.
+    pub fn normal(&mut self) -> f64 {
+        if let Some(z) = self.spare_normal.take() {
+            return z;
+        }
+        loop {
+            let u = 2.0 * self.uniform() - 1.0;
+            let v = 2.0 * self.uniform() - 1.0;
+            let s = u * u + v * v;
+            if s > 0.0 && s < 1.0 {
+                let factor = (-2.0 * s.ln() / s).sqrt();
+                self.spare_normal = Some(v * factor);
+                return u * factor;
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Reference outputs of the authors' C code (xoshiro256starstar.c) are not at hand, so check
+    // the published SplitMix64 value instead: from state 0 its first output is
+    // 0xE220A8397B1DCDAF (value recalled from memory of the reference implementation).
+    #[test]
+    fn splitmix_matches_reference_first_output() {
+        let mut x = 0;
+        assert_eq!(splitmix64(&mut x), 0xE220_A839_7B1D_CDAF);
+    }
+
+    // Moments of the normal variates: mean 0, variance 1; with 200 000 draws the standard error
+    // of the mean is 1/√200000 ≈ 0.0022, so 0.01 is a 4.5σ bound (cannot flake with a fixed
+    // seed, and would fail for a broken transform).
+    #[test]
+    fn normal_moments() {
+        let mut rng = Rng::seeded(7);
+        let n = 200_000;
+        let draws: Vec<f64> = (0..n).map(|_| rng.normal()).collect();
+        let mean = draws.iter().sum::<f64>() / n as f64;
+        let var = draws.iter().map(|z| (z - mean) * (z - mean)).sum::<f64>() / (n - 1) as f64;
+        assert!(mean.abs() < 0.01, "mean {mean}");
+        // SE of the variance ≈ √(2/n) ≈ 0.0032; 0.015 is a 4.7σ bound.
+        assert!((var - 1.0).abs() < 0.015, "variance {var}");
+    }
+}

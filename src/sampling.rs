@@ -1,0 +1,337 @@
+//! Period sampling and returns: from dated prices to aligned per-period returns.
+//!
+//! The rule (README, "Sampling"): a frequency defines a grid of period ends; each sample point
+//! takes the last observation dated inside its period, that is after the previous period end and
+//! on or before its own. A period with no observation is missing, never filled from an earlier
+//! period (a carried-forward price would invent a zero return). A return needs the samples at
+//! both of its ends. The asset, the index and the risk-free series are aligned on the periods
+//! where all of them have a value, and each dropped period is counted by reason.
+
+use chrono::{Datelike, NaiveDate};
+use serde::{Deserialize, Serialize};
+
+use crate::data::SeriesView;
+
+/// Sampling frequency of returns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Frequency {
+    /// Calendar month-ends.
+    Monthly,
+}
+
+impl Frequency {
+    pub fn periods_per_year(self) -> f64 {
+        match self {
+            Frequency::Monthly => 12.0,
+        }
+    }
+}
+
+/// Ascending period boundaries. Sample point `j` (for `j ≥ 1`) is `boundaries[j]`, and its
+/// period is `(boundaries[j - 1], boundaries[j]]`; `boundaries[0]` only opens the first period.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PeriodGrid {
+    pub frequency: Frequency,
+    pub boundaries: Vec<NaiveDate>,
+}
+
+/// The last calendar day of the month that contains `date`.
+pub fn month_end(date: NaiveDate) -> NaiveDate {
+    let (year, month) = if date.month() == 12 {
+        (date.year() + 1, 1)
+    } else {
+        (date.year(), date.month() + 1)
+    };
+    NaiveDate::from_ymd_opt(year, month, 1)
+        .and_then(|first| first.pred_opt())
+        .expect("month arithmetic stays inside chrono's range")
+}
+
+/// The last month-end on or before `date`.
+pub fn last_month_end_on_or_before(date: NaiveDate) -> NaiveDate {
+    let end = month_end(date);
+    if end == date {
+        end
+    } else {
+        date.with_day(1)
+            .and_then(|first| first.pred_opt())
+            .expect("a date after year 1 has a previous day")
+    }
+}
+
+impl PeriodGrid {
+    /// The grid for `lookback` returns ending at the last period end on or before `as_of`:
+    /// `lookback + 1` sample points, plus one earlier boundary that opens the first period.
+    pub fn ending_at(frequency: Frequency, as_of: NaiveDate, lookback: u32) -> PeriodGrid {
+        match frequency {
+            Frequency::Monthly => {
+                let mut boundaries = Vec::with_capacity(lookback as usize + 2);
+                let mut end = last_month_end_on_or_before(as_of);
+                boundaries.push(end);
+                for _ in 0..=lookback {
+                    end = last_month_end_on_or_before(end.with_day(1).expect("day 1 exists"));
+                    boundaries.push(end);
+                }
+                boundaries.reverse();
+                PeriodGrid {
+                    frequency,
+                    boundaries,
+                }
+            }
+        }
+    }
+
+    /// The dates on which samples are taken (all boundaries but the first).
+    pub fn sample_points(&self) -> &[NaiveDate] {
+        &self.boundaries[1..]
+    }
+
+    /// The end date of each return period (all sample points but the first).
+    pub fn return_period_ends(&self) -> &[NaiveDate] {
+        &self.boundaries[2..]
+    }
+}
+
+/// For each sample point, the last value dated inside its period, or `None`.
+/// One pass over the series: O(rows + periods).
+pub fn sample(grid: &PeriodGrid, series: SeriesView<'_>) -> Vec<Option<f64>> {
+    let mut samples = Vec::with_capacity(grid.boundaries.len() - 1);
+    let mut i = 0;
+    let dates = series.dates;
+    // Skip everything on or before the first boundary: it belongs to no period of the grid.
+    while i < dates.len() && dates[i] <= grid.boundaries[0] {
+        i += 1;
+    }
+    for &end in grid.sample_points() {
+        let mut last = None;
+        while i < dates.len() && dates[i] <= end {
+            last = Some(series.values[i]);
+            i += 1;
+        }
+        samples.push(last);
+    }
+    samples
+}
+
+/// Simple returns p_t / p_{t−1} − 1 between consecutive samples; `None` where either is missing.
+pub fn simple_returns(samples: &[Option<f64>]) -> Vec<Option<f64>> {
+    samples
+        .windows(2)
+        .map(|pair| match (pair[0], pair[1]) {
+            (Some(previous), Some(current)) => Some(current / previous - 1.0),
+            _ => None,
+        })
+        .collect()
+}
+
+/// Converts an annualised yield to the rate of one period by compounding:
+/// (1 + y)^(1 / periods_per_year) − 1.
+pub fn period_rate(annual_yield: f64, periods_per_year: f64) -> f64 {
+    (1.0 + annual_yield).powf(1.0 / periods_per_year) - 1.0
+}
+
+/// The risk-free rate of each return period: the yield sampled at the period's start (the
+/// previous sample point, the rate known when the period begins), converted by [`period_rate`].
+pub fn risk_free_per_period(samples: &[Option<f64>], frequency: Frequency) -> Vec<Option<f64>> {
+    let per_year = frequency.periods_per_year();
+    samples[..samples.len().saturating_sub(1)]
+        .iter()
+        .map(|y| y.map(|y| period_rate(y, per_year)))
+        .collect()
+}
+
+/// Counts of periods left out of a regression, by reason. A period missing several series
+/// counts under each of them, so the reasons can sum to more than `total`.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize)]
+pub struct DroppedPeriods {
+    pub total: usize,
+    pub asset_missing: usize,
+    pub market_missing: usize,
+    pub risk_free_missing: usize,
+}
+
+/// Returns of one asset and the market on the periods where every series has a value.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AlignedReturns {
+    pub period_ends: Vec<NaiveDate>,
+    pub asset: Vec<f64>,
+    pub market: Vec<f64>,
+    /// Per-period risk-free rate when excess returns are used.
+    pub risk_free: Option<Vec<f64>>,
+    pub dropped: DroppedPeriods,
+}
+
+impl AlignedReturns {
+    /// Asset returns less the risk-free rate (or the raw returns when there is none).
+    pub fn asset_excess(&self) -> Vec<f64> {
+        subtract(&self.asset, self.risk_free.as_deref())
+    }
+
+    /// Market returns less the risk-free rate (or the raw returns when there is none).
+    pub fn market_excess(&self) -> Vec<f64> {
+        subtract(&self.market, self.risk_free.as_deref())
+    }
+}
+
+fn subtract(returns: &[f64], risk_free: Option<&[f64]>) -> Vec<f64> {
+    match risk_free {
+        Some(rf) => returns.iter().zip(rf).map(|(r, f)| r - f).collect(),
+        None => returns.to_vec(),
+    }
+}
+
+/// Keeps the periods where the asset, the market and (when given) the risk-free rate all have
+/// a value. All slices are per return period, in the order of `period_ends`.
+pub fn align(
+    period_ends: &[NaiveDate],
+    asset: &[Option<f64>],
+    market: &[Option<f64>],
+    risk_free: Option<&[Option<f64>]>,
+) -> AlignedReturns {
+    let mut aligned = AlignedReturns {
+        period_ends: Vec::with_capacity(period_ends.len()),
+        asset: Vec::with_capacity(period_ends.len()),
+        market: Vec::with_capacity(period_ends.len()),
+        risk_free: risk_free.map(|_| Vec::with_capacity(period_ends.len())),
+        dropped: DroppedPeriods::default(),
+    };
+    for (j, &end) in period_ends.iter().enumerate() {
+        let rf = risk_free.map(|rf| rf[j]);
+        let dropped = &mut aligned.dropped;
+        dropped.asset_missing += usize::from(asset[j].is_none());
+        dropped.market_missing += usize::from(market[j].is_none());
+        dropped.risk_free_missing += usize::from(matches!(rf, Some(None)));
+        match (asset[j], market[j], rf) {
+            (Some(a), Some(m), None) => aligned.push(end, a, m, None),
+            (Some(a), Some(m), Some(Some(f))) => aligned.push(end, a, m, Some(f)),
+            _ => aligned.dropped.total += 1,
+        }
+    }
+    aligned
+}
+
+impl AlignedReturns {
+    fn push(&mut self, end: NaiveDate, asset: f64, market: f64, risk_free: Option<f64>) {
+        self.period_ends.push(end);
+        self.asset.push(asset);
+        self.market.push(market);
+        if let (Some(list), Some(rf)) = (self.risk_free.as_mut(), risk_free) {
+            list.push(rf);
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn date(text: &str) -> NaiveDate {
+        NaiveDate::parse_from_str(text, "%Y-%m-%d").unwrap()
+    }
+
+    // The month-end rule, checked against the Gregorian calendar (leap years: divisible by 4,
+    // except centuries not divisible by 400 — common knowledge of the calendar).
+    #[test]
+    fn month_ends_follow_the_calendar() {
+        assert_eq!(month_end(date("2024-02-10")), date("2024-02-29"));
+        assert_eq!(month_end(date("2023-02-10")), date("2023-02-28"));
+        assert_eq!(month_end(date("2100-02-01")), date("2100-02-28"));
+        assert_eq!(month_end(date("2000-02-01")), date("2000-02-29"));
+        assert_eq!(month_end(date("2026-12-31")), date("2026-12-31"));
+        assert_eq!(
+            last_month_end_on_or_before(date("2026-09-30")),
+            date("2026-09-30")
+        );
+        assert_eq!(
+            last_month_end_on_or_before(date("2026-10-15")),
+            date("2026-09-30")
+        );
+        assert_eq!(
+            last_month_end_on_or_before(date("2026-01-01")),
+            date("2025-12-31")
+        );
+    }
+
+    #[test]
+    fn grid_holds_lookback_plus_two_boundaries() {
+        let grid = PeriodGrid::ending_at(Frequency::Monthly, date("2026-10-15"), 3);
+        let expected: Vec<NaiveDate> = [
+            "2026-05-31",
+            "2026-06-30",
+            "2026-07-31",
+            "2026-08-31",
+            "2026-09-30",
+        ]
+        .iter()
+        .map(|d| date(d))
+        .collect();
+        assert_eq!(grid.boundaries, expected);
+        assert_eq!(grid.return_period_ends().len(), 3);
+    }
+
+    // A hand-built calendar: trading stops on the 27th in one month (a month-end holiday and a
+    // weekend), a whole month has no trade, and a price after the as-of date must be ignored.
+    // Expected samples written out by hand from the rule in the module comment.
+    #[test]
+    fn samples_take_the_last_price_inside_each_month() {
+        let dates: Vec<NaiveDate> = [
+            "2026-05-29", // on or before May 31, the boundary that opens the first period
+            "2026-06-15",
+            "2026-06-27", // last June trade: June 28-30 closed
+            "2026-08-03", // July has no trade at all
+            "2026-08-31",
+            "2026-09-30",
+            "2026-10-01", // after the last period end: ignored
+        ]
+        .iter()
+        .map(|d| date(d))
+        .collect();
+        let values = vec![10.0, 11.0, 12.0, 13.0, 14.0, 15.0, 99.0];
+        let grid = PeriodGrid::ending_at(Frequency::Monthly, date("2026-09-30"), 3);
+        // Sample points: Jun 30, Jul 31, Aug 31, Sep 30; May 29 lies before the first period.
+        let samples = sample(
+            &grid,
+            SeriesView {
+                dates: &dates,
+                values: &values,
+            },
+        );
+        assert_eq!(samples, vec![Some(12.0), None, Some(14.0), Some(15.0)]);
+        let returns = simple_returns(&samples);
+        assert_eq!(returns, vec![None, None, Some(15.0 / 14.0 - 1.0)]);
+    }
+
+    // (1 + y)^(1/12) − 1 for y = 12.6825030131970%: (1.01)^12 = 1.12682503013197 (textbook
+    // compounding, computed by hand), so the monthly rate must be 1% to rounding.
+    #[test]
+    fn annual_yield_compounds_down_to_the_period() {
+        let annual = 1.01_f64.powi(12) - 1.0;
+        // 1e-15: two roundings of numbers near 0.01 (powi, then powf) cost a few ulps.
+        assert!((period_rate(annual, 12.0) - 0.01).abs() < 1e-15);
+        assert_eq!(period_rate(0.0, 12.0), 0.0);
+    }
+
+    #[test]
+    fn alignment_counts_each_reason() {
+        let ends: Vec<NaiveDate> = ["2026-07-31", "2026-08-31", "2026-09-30"]
+            .iter()
+            .map(|d| date(d))
+            .collect();
+        let asset = [Some(0.01), None, Some(0.03)];
+        let market = [Some(0.02), None, Some(0.01)];
+        let rf = [Some(0.001), Some(0.001), None];
+        let aligned = align(&ends, &asset, &market, Some(&rf));
+        assert_eq!(aligned.period_ends, vec![ends[0]]);
+        assert_eq!(
+            aligned.dropped,
+            DroppedPeriods {
+                total: 2,
+                asset_missing: 1,
+                market_missing: 1,
+                risk_free_missing: 1
+            }
+        );
+        assert_eq!(aligned.asset_excess(), vec![0.01 - 0.001]);
+    }
+}
