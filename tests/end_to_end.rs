@@ -1,0 +1,188 @@
+//! The binary end to end on the demo case: every output is written, the figures in them agree
+//! with each other and with the textbook formulas, reruns are byte-identical apart from the
+//! timestamp, and an independent numpy/scipy recomputation (tests/reference) agrees.
+
+use std::path::Path;
+use std::process::Command;
+
+const DEMO_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh/case.toml");
+
+fn hurdle(args: &[&str]) -> std::process::Output {
+    Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(args)
+        .output()
+        .expect("hurdle runs")
+}
+
+fn run_demo(out: &Path, extra: &[&str]) -> serde_json::Value {
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    args.extend_from_slice(extra);
+    let output = hurdle(&args);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
+}
+
+fn number(v: &serde_json::Value, path: &str) -> f64 {
+    path.split('.')
+        .fold(v, |v, key| &v[key])
+        .as_f64()
+        .unwrap_or_else(|| panic!("{path} is not a number"))
+}
+
+#[test]
+fn demo_run_writes_every_output_with_consistent_figures() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &[]);
+    for name in ["memo.md", "result.json", "peers.csv", "returns.csv"] {
+        assert!(dir.path().join(name).is_file(), "{name} missing");
+    }
+    for field in [
+        "wacc",
+        "cost_of_equity",
+        "cost_of_debt_pre_tax",
+        "cost_of_debt_after_tax",
+        "risk_free_rate",
+        "equity_risk_premium",
+        "beta.unlevered",
+        "beta.relevered",
+        "weights.equity",
+        "weights.debt",
+        "target.tax_rate",
+    ] {
+        number(&result, field);
+    }
+    let peers = result["peers"].as_array().unwrap();
+    assert_eq!(peers.len(), 8);
+    for peer in peers {
+        for field in [
+            "observations",
+            "alpha",
+            "beta",
+            "beta_std_error",
+            "beta_ci_low",
+            "beta_ci_high",
+            "r_squared",
+            "beta_used",
+            "debt_to_equity",
+            "tax_rate",
+            "unlevered_beta",
+        ] {
+            number(peer, field);
+        }
+        assert!(peer["name"].is_string() && peer["prices_file"].is_string());
+        assert!(peer.get("adjusted_beta").is_some());
+    }
+    // Textbook WACC identity on the file's own components: wE·Ke + wD·Kd·(1 − t).
+    // 1e-12: the same three products, summed in the same order, differ by rounding only.
+    let recomputed = number(&result, "weights.equity") * number(&result, "cost_of_equity")
+        + number(&result, "weights.debt")
+            * number(&result, "cost_of_debt_pre_tax")
+            * (1.0 - number(&result, "target.tax_rate"));
+    assert!((recomputed - number(&result, "wacc")).abs() < 1e-12);
+    // The weights of a two-part capital structure sum to one (1e-15: one rounding each).
+    assert!(
+        (number(&result, "weights.equity") + number(&result, "weights.debt") - 1.0).abs() < 1e-15
+    );
+
+    // peers.csv has one row per peer; returns.csv one row per peer and period used.
+    let peers_csv = std::fs::read_to_string(dir.path().join("peers.csv")).unwrap();
+    assert_eq!(peers_csv.lines().count(), 1 + peers.len());
+    let returns_csv = std::fs::read_to_string(dir.path().join("returns.csv")).unwrap();
+    let used: u64 = peers
+        .iter()
+        .map(|p| p["observations"].as_u64().unwrap())
+        .sum();
+    assert_eq!(returns_csv.lines().count() as u64, 1 + used);
+    assert!(returns_csv.starts_with("peer,period_end,asset_return,market_return,risk_free\n"));
+
+    // The memo carries the WACC as formatted from result.json, and the cautions.
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let wacc_text = hurdle::format::percent(number(&result, "wacc"), 2);
+    assert!(memo.contains(&wacc_text), "memo lacks {wacc_text}");
+    for caution in [
+        "Statistical error",
+        "Not advice",
+        "Inputs to verify",
+        "licensed professionals",
+    ] {
+        assert!(memo.contains(caution), "memo lacks the caution '{caution}'");
+    }
+}
+
+#[test]
+fn reruns_are_byte_identical_apart_from_the_timestamp() {
+    let first = tempfile::tempdir().unwrap();
+    let second = tempfile::tempdir().unwrap();
+    let mut a = run_demo(first.path(), &[]);
+    let mut b = run_demo(second.path(), &[]);
+    a["generated_at"] = serde_json::Value::Null;
+    b["generated_at"] = serde_json::Value::Null;
+    assert_eq!(a, b);
+    for name in ["peers.csv", "returns.csv"] {
+        assert_eq!(
+            std::fs::read(first.path().join(name)).unwrap(),
+            std::fs::read(second.path().join(name)).unwrap()
+        );
+    }
+}
+
+#[test]
+fn overrides_change_the_result_and_are_recorded() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = run_demo(dir.path(), &[]);
+    let what_if = run_demo(dir.path(), &["--set", "market.equity_risk_premium=0.065"]);
+    assert_eq!(
+        what_if["case"]["overrides"][0],
+        "market.equity_risk_premium=0.065"
+    );
+    assert_eq!(number(&what_if, "equity_risk_premium"), 0.065);
+    // CAPM: one more percentage point of ERP raises Ke by βL × 1% (1e-12: rounding only).
+    let delta = number(&what_if, "cost_of_equity") - number(&base, "cost_of_equity");
+    assert!((delta - 0.01 * number(&base, "beta.relevered")).abs() < 1e-12);
+    // By peer name inside [[peer]]:
+    let renamed = run_demo(
+        dir.path(),
+        &["--set", "peer.Dunmere Hydraulics.tax_rate=0.2"],
+    );
+    assert_eq!(renamed["peers"][2]["tax_rate"], 0.2);
+}
+
+#[test]
+fn betas_command_prints_the_same_estimates_as_run() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &[]);
+    let output = hurdle(&["betas", DEMO_CASE, "--format", "json"]);
+    assert!(output.status.success());
+    let peers: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(peers, result["peers"]);
+    let table = hurdle(&["betas", DEMO_CASE]);
+    assert!(String::from_utf8_lossy(&table.stdout).contains("Glimmerby Pumpworks"));
+}
+
+/// numpy and scipy recompute every regression and every later step from returns.csv
+/// (tests/reference/check_regressions.py). `.ci/run` installs both; without them this fails.
+#[test]
+fn numpy_and_scipy_agree_with_every_figure() {
+    let dir = tempfile::tempdir().unwrap();
+    run_demo(dir.path(), &[]);
+    let script = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/check_regressions.py"
+    );
+    let output = Command::new("python3")
+        .arg(script)
+        .arg(dir.path())
+        .output()
+        .expect("python3 must be installed for the reference check");
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(
+        output.status.success(),
+        "reference check failed (install numpy and scipy: python3 -m pip install numpy scipy)\n{stdout}\n{stderr}"
+    );
+    assert!(stdout.contains(" 0 failed"), "{stdout}");
+}
