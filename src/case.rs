@@ -268,11 +268,12 @@ impl Case {
         let dir = self.path.parent().unwrap_or_else(|| Path::new("."));
         dir.join(written)
     }
+}
 
+impl CaseFile {
     /// The target debt-to-equity ratio, whichever of the two ratios the case gives.
     pub fn target_debt_to_equity(&self) -> f64 {
-        let target = &self.settings.target;
-        match (target.debt_to_equity, target.debt_to_capital) {
+        match (self.target.debt_to_equity, self.target.debt_to_capital) {
             (Some(de), _) => de,
             (None, Some(dc)) => dc / (1.0 - dc),
             (None, None) => unreachable!("validate() requires one target ratio"),

@@ -186,6 +186,19 @@ pub struct Valuation {
     pub files: Vec<DataFile>,
     pub sampling: SamplingRecord,
     pub peers: Vec<PeerResult>,
+    /// Aggregation, relevering and the cost of capital (written at the top level of the JSON).
+    #[serde(flatten)]
+    pub cost: CostOfCapital,
+    /// Plain-language remarks about the data that a reviewer should see.
+    pub notes: Vec<String>,
+    /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
+    #[serde(skip)]
+    pub returns: Vec<AlignedReturns>,
+}
+
+/// Everything after the peer regressions: aggregation, relevering, CAPM, cost of debt, WACC.
+#[derive(Debug, Clone, Serialize)]
+pub struct CostOfCapital {
     pub beta: BetaSummary,
     pub target: TargetRecord,
     pub weights: Weights,
@@ -200,11 +213,80 @@ pub struct Valuation {
     pub wacc: f64,
     /// Each capital component's share of the WACC (weight × cost); they sum to `wacc`.
     pub wacc_contributions: Weights,
-    /// Plain-language remarks about the data that a reviewer should see.
-    pub notes: Vec<String>,
-    /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
-    #[serde(skip)]
-    pub returns: Vec<AlignedReturns>,
+}
+
+/// The cost of capital from the peers' unlevered betas and the case's settings. The one place
+/// these steps are computed: [`value`], the sensitivity grid and the Monte Carlo all call it.
+pub fn cost_of_capital(settings: &CaseFile, unlevered: &[f64]) -> CostOfCapital {
+    let unlevered_dispersion = stats::dispersion(unlevered);
+    let aggregate = settings.leverage.aggregation.pick(&unlevered_dispersion);
+    let target_de = settings.target_debt_to_equity();
+    let tax_rate = settings.target.tax_rate;
+    let relevered = settings.leverage.formula.relever(
+        aggregate,
+        CapitalStructure {
+            debt_to_equity: target_de,
+            tax_rate,
+        },
+    );
+    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(target_de);
+    let market = &settings.market;
+    let premiums = &settings.premiums;
+    let cost_of_equity = cost::capm_cost_of_equity(
+        market.risk_free_rate,
+        relevered,
+        market.equity_risk_premium,
+        premiums.total(),
+    );
+    let cost_of_debt_pre_tax = settings.debt.cost_pre_tax;
+    let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
+    let wacc = cost::wacc(
+        equity_weight,
+        cost_of_equity,
+        debt_weight,
+        cost_of_debt_after_tax,
+    );
+    CostOfCapital {
+        beta: BetaSummary {
+            formula: settings.leverage.formula,
+            formula_source: settings.leverage.formula.citation(),
+            aggregation: settings.leverage.aggregation,
+            unlevered: aggregate,
+            unlevered_dispersion,
+            relevered,
+        },
+        target: TargetRecord {
+            given: if settings.target.debt_to_equity.is_some() {
+                "debt_to_equity"
+            } else {
+                "debt_to_capital"
+            },
+            debt_to_equity: target_de,
+            debt_to_capital: debt_weight,
+            tax_rate,
+        },
+        weights: Weights {
+            equity: equity_weight,
+            debt: debt_weight,
+        },
+        risk_free_rate: market.risk_free_rate,
+        equity_risk_premium: market.equity_risk_premium,
+        premiums: PremiumRecord {
+            size: premiums.size,
+            country: premiums.country,
+            company_specific: premiums.company_specific,
+            total: premiums.total(),
+        },
+        beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
+        cost_of_equity,
+        cost_of_debt_pre_tax,
+        cost_of_debt_after_tax,
+        wacc,
+        wacc_contributions: Weights {
+            equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
+            debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
+        },
+    }
 }
 
 /// Computes the valuation. `generated_at` is stamped into the result as given.
@@ -323,38 +405,7 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     }
 
     let unlevered: Vec<f64> = peers.iter().map(|p| p.unlevered_beta).collect();
-    let unlevered_dispersion = stats::dispersion(&unlevered);
-    let aggregate = settings.leverage.aggregation.pick(&unlevered_dispersion);
-    let target_de = case.target_debt_to_equity();
-    let tax_rate = settings.target.tax_rate;
-    let relevered = settings.leverage.formula.relever(
-        aggregate,
-        CapitalStructure {
-            debt_to_equity: target_de,
-            tax_rate,
-        },
-    );
-    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(target_de);
-    let market = &settings.market;
-    let premiums = &settings.premiums;
-    let cost_of_equity = cost::capm_cost_of_equity(
-        market.risk_free_rate,
-        relevered,
-        market.equity_risk_premium,
-        premiums.total(),
-    );
-    let cost_of_debt_pre_tax = settings.debt.cost_pre_tax;
-    let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
-    let wacc = cost::wacc(
-        equity_weight,
-        cost_of_equity,
-        debt_weight,
-        cost_of_debt_after_tax,
-    );
-    let wacc_contributions = Weights {
-        equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
-        debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
-    };
+    let cost = cost_of_capital(settings, &unlevered);
 
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());
@@ -391,42 +442,7 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                                    compounded to the period: (1 + y)^(1/periods_per_year) - 1",
         },
         peers,
-        beta: BetaSummary {
-            formula: settings.leverage.formula,
-            formula_source: settings.leverage.formula.citation(),
-            aggregation: settings.leverage.aggregation,
-            unlevered: aggregate,
-            unlevered_dispersion,
-            relevered,
-        },
-        target: TargetRecord {
-            given: if settings.target.debt_to_equity.is_some() {
-                "debt_to_equity"
-            } else {
-                "debt_to_capital"
-            },
-            debt_to_equity: target_de,
-            debt_to_capital: debt_weight,
-            tax_rate,
-        },
-        weights: Weights {
-            equity: equity_weight,
-            debt: debt_weight,
-        },
-        risk_free_rate: market.risk_free_rate,
-        equity_risk_premium: market.equity_risk_premium,
-        premiums: PremiumRecord {
-            size: premiums.size,
-            country: premiums.country,
-            company_specific: premiums.company_specific,
-            total: premiums.total(),
-        },
-        beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
-        cost_of_equity,
-        cost_of_debt_pre_tax,
-        cost_of_debt_after_tax,
-        wacc,
-        wacc_contributions,
+        cost,
         notes,
         returns,
     })

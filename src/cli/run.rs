@@ -55,22 +55,22 @@ fn summary(v: &Valuation) -> String {
         format!(
             "  peers {} | unlevered beta ({:?}) {} | relevered {} at D/E {}",
             v.peers.len(),
-            v.beta.aggregation,
-            fixed(v.beta.unlevered, 3),
-            fixed(v.beta.relevered, 3),
-            fixed(v.target.debt_to_equity, 3)
+            v.cost.beta.aggregation,
+            fixed(v.cost.beta.unlevered, 3),
+            fixed(v.cost.beta.relevered, 3),
+            fixed(v.cost.target.debt_to_equity, 3)
         ),
         format!(
             "  cost of equity {} | cost of debt {} pre-tax, {} after tax",
-            percent(v.cost_of_equity, 2),
-            percent(v.cost_of_debt_pre_tax, 2),
-            percent(v.cost_of_debt_after_tax, 2)
+            percent(v.cost.cost_of_equity, 2),
+            percent(v.cost.cost_of_debt_pre_tax, 2),
+            percent(v.cost.cost_of_debt_after_tax, 2)
         ),
         format!(
             "  weights E {} / D {} | WACC {}",
-            percent(v.weights.equity, 1),
-            percent(v.weights.debt, 1),
-            percent(v.wacc, 2)
+            percent(v.cost.weights.equity, 1),
+            percent(v.cost.weights.debt, 1),
+            percent(v.cost.wacc, 2)
         ),
     ];
     for note in &v.notes {
