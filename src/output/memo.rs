@@ -51,9 +51,14 @@ impl Memo {
             message.push_str(": ");
             message.push_str(detail);
         }
+        let line = e.line().unwrap_or(0);
+        // Quote the template's own line, so an undefined name is shown, not only "undefined".
+        if let Some(text) = line.checked_sub(1).and_then(|i| self.source.lines().nth(i)) {
+            message.push_str(&format!(" in `{}`", text.trim()));
+        }
         Error::Template {
             name: self.name.clone(),
-            line: e.line().unwrap_or(0),
+            line,
             message,
         }
     }

@@ -1,0 +1,393 @@
+//! Broken inputs must fail loudly: non-zero exit, a message naming the file, line or key and the
+//! offending value, and no output files. Each test copies `cases/quillmarsh/` into a temporary
+//! folder, breaks one thing and runs the built `hurdle` binary on it.
+
+use std::collections::BTreeMap;
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use tempfile::TempDir;
+
+const SOURCE_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh");
+const OUTPUT_FILES: [&str; 4] = ["memo.md", "result.json", "peers.csv", "returns.csv"];
+const PEER_FILE: &str = "data/peers/corrowick.csv";
+
+/// A copy of the demo case (every file but a previous run's `output/`) in `<tmp>/case/`;
+/// `--out` is `<tmp>/out`.
+struct CaseCopy {
+    root: TempDir,
+}
+
+impl CaseCopy {
+    fn new() -> CaseCopy {
+        let root = tempfile::tempdir().expect("create temp dir");
+        let case_dir = root.path().join("case");
+        fs::create_dir(&case_dir).unwrap();
+        let source = Path::new(SOURCE_CASE);
+        for entry in fs::read_dir(source).unwrap() {
+            let entry = entry.unwrap();
+            let target = case_dir.join(entry.file_name());
+            if entry.file_name() == "output" {
+                continue;
+            } else if entry.file_type().unwrap().is_dir() {
+                copy_dir(&entry.path(), &target);
+            } else {
+                fs::copy(entry.path(), &target).unwrap();
+            }
+        }
+        CaseCopy { root }
+    }
+
+    fn case_dir(&self) -> PathBuf {
+        self.root.path().join("case")
+    }
+
+    fn case_file(&self) -> PathBuf {
+        self.case_dir().join("case.toml")
+    }
+
+    fn out_dir(&self) -> PathBuf {
+        self.root.path().join("out")
+    }
+
+    fn case_text(&self) -> String {
+        fs::read_to_string(self.case_file()).unwrap()
+    }
+
+    /// Replaces the single occurrence of `from` in case.toml.
+    fn edit_case(&self, from: &str, to: &str) {
+        let text = self.case_text();
+        assert_eq!(
+            text.matches(from).count(),
+            1,
+            "`{from}` must occur once in case.toml"
+        );
+        fs::write(self.case_file(), text.replacen(from, to, 1)).unwrap();
+    }
+
+    /// Rewrites a data file's lines (index 0 is the header, line 1).
+    fn edit_lines(&self, relative: &str, edit: impl FnOnce(&mut Vec<String>)) {
+        let path = self.case_dir().join(relative);
+        let text = fs::read_to_string(&path).unwrap();
+        let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+        edit(&mut lines);
+        fs::write(&path, lines.join("\n") + "\n").unwrap();
+    }
+
+    /// Replaces the `date,value` row on 1-based `line` of a data file.
+    fn set_row(&self, relative: &str, line: usize, row: &str) {
+        self.edit_lines(relative, |lines| lines[line - 1] = row.to_string());
+    }
+
+    /// The `date,value` row on 1-based `line` of a data file, split in two.
+    fn row(&self, relative: &str, line: usize) -> (String, String) {
+        let text = fs::read_to_string(self.case_dir().join(relative)).unwrap();
+        let row = text.lines().nth(line - 1).unwrap();
+        let (date, value) = row.split_once(',').unwrap();
+        (date.to_string(), value.to_string())
+    }
+
+    fn write(&self, name: &str, contents: &str) -> PathBuf {
+        let path = self.root.path().join(name);
+        fs::write(&path, contents).unwrap();
+        path
+    }
+
+    /// `hurdle run <case.toml> --out <out> <extra...>`.
+    fn run(&self, extra: &[&str]) -> Output {
+        Command::new(env!("CARGO_BIN_EXE_hurdle"))
+            .arg("run")
+            .arg(self.case_file())
+            .arg("--out")
+            .arg(self.out_dir())
+            .args(extra)
+            .current_dir(self.root.path())
+            .output()
+            .expect("run hurdle")
+    }
+
+    /// Runs, asserts a clean failure with no outputs, and returns stderr.
+    fn fail(&self, extra: &[&str]) -> String {
+        let output = self.run(extra);
+        let stderr = String::from_utf8_lossy(&output.stderr).into_owned();
+        assert!(
+            !output.status.success(),
+            "expected failure, got success; stdout:\n{}",
+            String::from_utf8_lossy(&output.stdout)
+        );
+        assert_ne!(output.status.code(), Some(101), "panicked:\n{stderr}");
+        assert!(!stderr.contains("panicked"), "panicked:\n{stderr}");
+        for name in OUTPUT_FILES {
+            let path = self.out_dir().join(name);
+            assert!(
+                !path.exists(),
+                "{} was written; stderr:\n{stderr}",
+                path.display()
+            );
+        }
+        stderr
+    }
+}
+
+fn copy_dir(from: &Path, to: &Path) {
+    fs::create_dir_all(to).unwrap();
+    for entry in fs::read_dir(from).unwrap() {
+        let entry = entry.unwrap();
+        let target = to.join(entry.file_name());
+        if entry.file_type().unwrap().is_dir() {
+            copy_dir(&entry.path(), &target);
+        } else {
+            fs::copy(entry.path(), &target).unwrap();
+        }
+    }
+}
+
+/// Every file under `dir`, by relative path, with its bytes.
+fn snapshot(dir: &Path) -> BTreeMap<PathBuf, Vec<u8>> {
+    fn walk(base: &Path, dir: &Path, files: &mut BTreeMap<PathBuf, Vec<u8>>) {
+        for entry in fs::read_dir(dir).unwrap() {
+            let path = entry.unwrap().path();
+            if path.is_dir() {
+                walk(base, &path, files);
+            } else {
+                let relative = path.strip_prefix(base).unwrap().to_path_buf();
+                files.insert(relative, fs::read(&path).unwrap());
+            }
+        }
+    }
+    let mut files = BTreeMap::new();
+    walk(dir, dir, &mut files);
+    files
+}
+
+fn assert_mentions(stderr: &str, needles: &[&str]) {
+    for needle in needles {
+        assert!(
+            stderr.contains(needle),
+            "stderr does not mention `{needle}`:\n{stderr}"
+        );
+    }
+}
+
+/// Asserts `number` appears as a whole number token (not inside a longer number).
+fn assert_number(stderr: &str, number: &str) {
+    let part_of_number = |c: char| c.is_ascii_digit() || c == '.' || c == '-';
+    let found = stderr.match_indices(number).any(|(at, _)| {
+        let before = stderr[..at].chars().next_back();
+        let after = stderr[at + number.len()..].chars().next();
+        !before.is_some_and(part_of_number)
+            && !after.is_some_and(|c| c.is_ascii_digit() || c == '.')
+    });
+    assert!(
+        found,
+        "stderr does not mention the value {number}:\n{stderr}"
+    );
+}
+
+#[test]
+fn unmodified_case_runs_and_leaves_inputs_untouched() {
+    let case = CaseCopy::new();
+    let before = snapshot(&case.case_dir());
+    let output = case.run(&[]);
+    assert!(
+        output.status.success(),
+        "stderr:\n{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    for name in OUTPUT_FILES {
+        let path = case.out_dir().join(name);
+        let size = fs::metadata(&path)
+            .unwrap_or_else(|_| panic!("{} missing", path.display()))
+            .len();
+        assert!(size > 0, "{} is empty", path.display());
+    }
+    assert!(
+        before.len() > 2,
+        "snapshot should hold case.toml and data files"
+    );
+    assert_eq!(
+        snapshot(&case.case_dir()),
+        before,
+        "input files changed or files were added beside the case"
+    );
+}
+
+#[test]
+fn missing_price_file() {
+    let case = CaseCopy::new();
+    case.edit_case("data/peers/dunmere.csv", "data/peers/dunmere_missing.csv");
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &["data/peers/dunmere_missing.csv"]);
+}
+
+#[test]
+fn unparseable_date() {
+    let case = CaseCopy::new();
+    let (_, price) = case.row(PEER_FILE, 100);
+    case.set_row(PEER_FILE, 100, &format!("2024-13-45,{price}"));
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &[PEER_FILE, "line 100", "2024-13-45"]);
+}
+
+#[test]
+fn unparseable_price() {
+    let case = CaseCopy::new();
+    let (date, _) = case.row(PEER_FILE, 100);
+    case.set_row(PEER_FILE, 100, &format!("{date},abc"));
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &[PEER_FILE, "line 100", "abc"]);
+}
+
+#[test]
+fn non_positive_price() {
+    for bad in ["0", "-5"] {
+        let case = CaseCopy::new();
+        let (date, _) = case.row(PEER_FILE, 100);
+        case.set_row(PEER_FILE, 100, &format!("{date},{bad}"));
+        let stderr = case.fail(&[]);
+        assert_mentions(&stderr, &[PEER_FILE, "line 100"]);
+        assert_number(&stderr, bad);
+    }
+}
+
+#[test]
+fn duplicate_date() {
+    let case = CaseCopy::new();
+    let (date, _) = case.row(PEER_FILE, 100);
+    let (_, price) = case.row(PEER_FILE, 101);
+    case.set_row(PEER_FILE, 101, &format!("{date},{price}"));
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &[PEER_FILE, "line 100", "line 101", &date]);
+}
+
+#[test]
+fn unsorted_dates() {
+    let case = CaseCopy::new();
+    // Lines 100 and 101 are indices 99 and 100.
+    case.edit_lines(PEER_FILE, |lines| lines.swap(99, 100));
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &[PEER_FILE, "line 101", "sorted"]);
+}
+
+#[test]
+fn too_few_overlapping_periods() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "beta.min_observations=58"]);
+    assert_mentions(&stderr, &["Estwold Flow Controls", "58"]);
+    assert_number(&stderr, "54");
+}
+
+#[test]
+fn zero_variance_market_returns() {
+    let case = CaseCopy::new();
+    case.edit_lines("data/index.csv", |lines| {
+        for line in lines.iter_mut().skip(1) {
+            let date = line.split(',').next().unwrap().to_string();
+            *line = format!("{date},1000.00");
+        }
+    });
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &["zero variance", "data/index.csv"]);
+}
+
+#[test]
+fn tax_rate_outside_unit_interval() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "peer.0.tax_rate=1.2"]);
+    assert_mentions(&stderr, &["peer.0.tax_rate"]);
+    assert_number(&stderr, "1.2");
+
+    let case = CaseCopy::new();
+    case.edit_case(
+        "debt_to_equity = 0.40\ntax_rate = 0.25",
+        "debt_to_equity = 0.40\ntax_rate = 1.5",
+    );
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &["case.toml", "target.tax_rate"]);
+    assert_number(&stderr, "1.5");
+}
+
+#[test]
+fn negative_debt_and_non_positive_equity() {
+    for (assignment, key, value) in [
+        ("peer.1.debt=-5", "peer.1.debt", "-5"),
+        ("peer.1.equity_value=0", "peer.1.equity_value", "0"),
+        ("peer.1.equity_value=-100", "peer.1.equity_value", "-100"),
+    ] {
+        let case = CaseCopy::new();
+        let stderr = case.fail(&["--set", assignment]);
+        assert_mentions(&stderr, &[key]);
+        assert_number(&stderr, value);
+    }
+}
+
+#[test]
+fn negative_target_debt_to_equity() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "target.debt_to_equity=-0.1"]);
+    assert_mentions(&stderr, &["target.debt_to_equity"]);
+    assert_number(&stderr, "-0.1");
+}
+
+#[test]
+fn unknown_key_in_case_file() {
+    let case = CaseCopy::new();
+    case.edit_case("lookback = 60\n", "lookback = 60\nlookbak = 60\n");
+    let line = case
+        .case_text()
+        .lines()
+        .position(|l| l.trim() == "lookbak = 60")
+        .unwrap()
+        + 1;
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &["case.toml", "lookbak", &format!("line {line}")]);
+}
+
+#[test]
+fn unknown_key_via_set() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "beta.lookbak=3"]);
+    assert_mentions(&stderr, &["beta.lookbak"]);
+}
+
+#[test]
+fn template_syntax_error() {
+    let case = CaseCopy::new();
+    let template = case.write(
+        "bad_syntax.md.j2",
+        "# Memo\n\nWACC: {{ v.wacc | pct ) }}\n\nEnd of memo.\n",
+    );
+    let stderr = case.fail(&["--template", template.to_str().unwrap()]);
+    assert_mentions(&stderr, &["bad_syntax.md.j2", "line 3"]);
+}
+
+#[test]
+fn template_undefined_field() {
+    let case = CaseCopy::new();
+    let template = case.write(
+        "undefined_field.md.j2",
+        "# Memo\n\nValue: {{ v.no_such_field }}\n\nEnd of memo.\n",
+    );
+    let stderr = case.fail(&["--template", template.to_str().unwrap()]);
+    assert_mentions(
+        &stderr,
+        &["undefined_field.md.j2", "line 3", "no_such_field"],
+    );
+}
+
+#[test]
+fn malformed_set_without_equals() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "beta.lookback"]);
+    assert_mentions(&stderr, &["beta.lookback", "KEY=VALUE"]);
+}
+
+#[test]
+fn lookback_shorter_than_min_observations() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "beta.lookback=30"]);
+    assert_mentions(&stderr, &["beta.lookback", "beta.min_observations"]);
+    assert_number(&stderr, "30");
+    assert_number(&stderr, "36");
+}
