@@ -32,8 +32,61 @@ pub struct CaseFile {
     pub debt: DebtSettings,
     #[serde(default)]
     pub premiums: Premiums,
+    #[serde(default)]
+    pub sensitivity: SensitivitySettings,
+    #[serde(default)]
+    pub uncertainty: UncertaintySettings,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reconcile: Option<ReconcileSettings>,
     #[serde(rename = "peer", default)]
     pub peers: Vec<PeerSpec>,
+}
+
+/// `[sensitivity]`: the grid printed in the memo. Each axis is `key=low..high:step` over any
+/// `--set` key path; when absent, the equity risk premium ±1 point (rows) against the target
+/// debt-to-equity from 0 to twice the target (columns).
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct SensitivitySettings {
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rows: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub columns: Option<String>,
+    /// `"wacc"` or `"cost_of_equity"`.
+    pub metric: crate::audit::grid::Metric,
+}
+
+/// `[uncertainty]`: the Monte Carlo of the WACC.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct UncertaintySettings {
+    pub draws: u32,
+    pub seed: u64,
+    /// Draw the equity risk premium uniformly from `[low, high]` as well.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub equity_risk_premium: Option<[f64; 2]>,
+    /// Draw the risk-free rate uniformly from `[low, high]` as well.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub risk_free_rate: Option<[f64; 2]>,
+}
+
+impl Default for UncertaintySettings {
+    fn default() -> Self {
+        UncertaintySettings {
+            draws: 10_000,
+            seed: 1,
+            equity_risk_premium: None,
+            risk_free_rate: None,
+        }
+    }
+}
+
+/// `[reconcile]`: a claimed build-up (see `hurdle compare`) the memo bridges to.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ReconcileSettings {
+    /// Path of a TOML file with a `[claimed]` table.
+    pub claimed: String,
 }
 
 /// `[case]`: what the estimate is for.
@@ -281,6 +334,40 @@ impl CaseFile {
     }
 }
 
+/// A copy of `case` with more `dotted.key=value` overrides applied to its settings, validated
+/// like a case read from disk. The sensitivity grid builds each cell this way, so a cell is the
+/// same computation as a run with the same `--set` values.
+pub fn with_overrides(case: &Case, extra: &[String]) -> Result<Case> {
+    let case_error = |message: String| Error::Case {
+        file: case.path.clone(),
+        message,
+    };
+    let toml::Value::Table(mut table) = toml::Value::try_from(&case.settings)
+        .map_err(|e| case_error(format!("cannot re-serialise the case: {e}")))?
+    else {
+        unreachable!("a struct serialises to a table");
+    };
+    for assignment in extra {
+        apply_override(&mut table, assignment)?;
+    }
+    let settings = CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
+        case_error(format!(
+            "after applying --set {}: {}",
+            extra.join(", --set "),
+            e.message()
+        ))
+    })?;
+    validate(&settings).map_err(case_error)?;
+    let mut overrides = case.overrides.clone();
+    overrides.extend(extra.iter().cloned());
+    Ok(Case {
+        settings,
+        path: case.path.clone(),
+        sha256: case.sha256.clone(),
+        overrides,
+    })
+}
+
 /// Reads, overrides and validates a case file. `overrides` are `dotted.key=value` strings.
 pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
     let bytes = std::fs::read(path).map_err(|source| Error::Io {
@@ -489,6 +576,25 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         ("premiums.company_specific", case.premiums.company_specific),
     ] {
         rate(key, value, -0.5, 1.0)?;
+    }
+    let u = &case.uncertainty;
+    if u.draws < 100 {
+        return Err(format!(
+            "uncertainty.draws = {} is too few for percentiles; use at least 100",
+            u.draws
+        ));
+    }
+    for (key, range) in [
+        ("uncertainty.equity_risk_premium", u.equity_risk_premium),
+        ("uncertainty.risk_free_rate", u.risk_free_rate),
+    ] {
+        if let Some([low, high]) = range {
+            if !(low.is_finite() && high.is_finite() && low <= high) {
+                return Err(format!(
+                    "{key} = [{low}, {high}] is not a range [low, high] with low <= high"
+                ));
+            }
+        }
     }
     if case.peers.is_empty() {
         return Err("the case has no [[peer]] tables".into());

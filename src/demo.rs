@@ -237,8 +237,25 @@ pub fn generate(seed: u64) -> Vec<(String, String)> {
         files.push((format!("data/peers/{}.csv", peer.file_stem), text));
     }
     files.push(("case.toml".to_string(), case_toml()));
+    files.push(("claimed.toml".to_string(), CLAIMED.to_string()));
     files
 }
+
+/// An invented adviser's build-up for the reconciliation example; not market data.
+const CLAIMED: &str = r#"# An invented build-up, as an adviser might hand it over, for the demo's reconciliation.
+# Fictional figures, not market data. `hurdle compare case.toml claimed.toml` bridges to it.
+
+[claimed]
+label = "Adviser's build-up (fictional)"
+wacc = 0.0935
+risk_free_rate = 0.040
+equity_risk_premium = 0.060
+beta = 1.10
+premiums = 0.010
+cost_of_debt_pre_tax = 0.062
+tax_rate = 0.25
+debt_to_equity = 0.50
+"#;
 
 fn case_toml() -> String {
     let mut text = String::from(
@@ -284,6 +301,13 @@ cost_pre_tax = 0.058          # illustrative
 size = 0.010                  # illustrative
 country = 0.0
 company_specific = 0.0
+
+[uncertainty]
+draws = 10000
+seed = 1
+
+[reconcile]
+claimed = "claimed.toml"      # the memo bridges this case's WACC to the claimed build-up
 "#,
     );
     for peer in &PEERS {

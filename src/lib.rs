@@ -7,6 +7,7 @@
 //! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV). [`stats`], [`format`]
 //! and [`random`] are shared helpers; [`demo`] generates the invented demo case.
 
+pub mod audit;
 pub mod beta;
 pub mod case;
 pub mod cost;

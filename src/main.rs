@@ -9,7 +9,7 @@ use clap::Parser;
 fn main() -> ExitCode {
     let parsed = cli::Cli::parse();
     match cli::run(parsed) {
-        Ok(()) => ExitCode::SUCCESS,
+        Ok(code) => code,
         Err(error) => {
             eprintln!("error: {error}");
             ExitCode::from(2)

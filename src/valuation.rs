@@ -9,7 +9,7 @@ use chrono::NaiveDate;
 use serde::Serialize;
 
 use crate::beta::{self, BetaEstimate};
-use crate::case::{Case, CaseFile};
+use crate::case::{Case, CaseFile, PeerSpec};
 use crate::cost;
 use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
 use crate::error::{Error, Result};
@@ -189,6 +189,12 @@ pub struct Valuation {
     /// Aggregation, relevering and the cost of capital (written at the top level of the JSON).
     #[serde(flatten)]
     pub cost: CostOfCapital,
+    /// The memo's sensitivity grid (`null` from `value` alone; filled by `audit::evaluate`).
+    pub sensitivity: Option<crate::audit::grid::Grid>,
+    /// Monte Carlo percentiles of the WACC (filled by `audit::evaluate`).
+    pub uncertainty: Option<crate::audit::uncertainty::Uncertainty>,
+    /// The bridge to a claimed build-up, when the case has `[reconcile]`.
+    pub reconciliation: Option<crate::audit::bridge::Bridge>,
     /// Plain-language remarks about the data that a reviewer should see.
     pub notes: Vec<String>,
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
@@ -289,9 +295,40 @@ pub fn cost_of_capital(settings: &CaseFile, unlevered: &[f64]) -> CostOfCapital 
     }
 }
 
+/// The adjusted, used and unlevered beta of one peer from its raw estimate.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct UnleveredPeer {
+    pub adjusted_beta: Option<f64>,
+    pub beta_used: f64,
+    pub debt_to_equity: f64,
+    pub unlevered_beta: f64,
+}
+
+/// Applies the case's adjustment and unlevering formula to one peer's raw beta; the one place
+/// this is done, for the estimates and for each Monte Carlo draw alike.
+pub fn unlever_peer(settings: &CaseFile, peer: &PeerSpec, raw_beta: f64) -> UnleveredPeer {
+    let adjusted_beta = beta::adjust(settings.beta.adjustment, raw_beta);
+    let beta_used = adjusted_beta.unwrap_or(raw_beta);
+    let structure = CapitalStructure {
+        debt_to_equity: peer.debt / peer.equity_value,
+        tax_rate: peer.tax_rate,
+    };
+    UnleveredPeer {
+        adjusted_beta,
+        beta_used,
+        debt_to_equity: structure.debt_to_equity,
+        unlevered_beta: settings.leverage.formula.unlever(beta_used, structure),
+    }
+}
+
 /// Computes the valuation. `generated_at` is stamped into the result as given.
 pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
-    let case = &inputs.case;
+    value_case(&inputs.case, inputs, generated_at)
+}
+
+/// Computes the valuation of `case` (the inputs' case, or a copy with overrides) on the data
+/// files of `inputs`.
+pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let settings = &case.settings;
     let beta_settings = &settings.beta;
     let valuation_date = settings.case.valuation_date.0;
@@ -354,8 +391,10 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             )));
         }
         let market_excess = aligned.market_excess();
-        let first = market_excess[0];
-        if market_excess.iter().all(|&m| m == first) {
+        // Raw returns too: with a risk-free series, a flat index would leave only the rate's
+        // own variation in the excess returns and the regression would measure nothing.
+        let constant = |values: &[f64]| values.iter().all(|&m| m == values[0]);
+        if constant(&aligned.market) || constant(&market_excess) {
             return Err(estimation_error(format!(
                 "the market index returns ({}) have zero variance over the {n} periods aligned \
                  with this peer, so no beta can be estimated",
@@ -380,25 +419,20 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                 aligned.dropped.risk_free_missing
             ));
         }
-        let adjusted_beta = beta::adjust(beta_settings.adjustment, estimate.beta);
-        let beta_used = adjusted_beta.unwrap_or(estimate.beta);
-        let structure = CapitalStructure {
-            debt_to_equity: spec.debt / spec.equity_value,
-            tax_rate: spec.tax_rate,
-        };
+        let unlevered = unlever_peer(settings, spec, estimate.beta);
         peers.push(PeerResult {
             name: spec.name.clone(),
             prices_file: file.path.clone(),
             periods_in_window: period_ends.len(),
             periods_dropped: aligned.dropped,
-            adjusted_beta,
-            beta_used,
+            adjusted_beta: unlevered.adjusted_beta,
+            beta_used: unlevered.beta_used,
             equity_value: spec.equity_value,
             debt: spec.debt,
             cash: spec.cash,
-            debt_to_equity: structure.debt_to_equity,
+            debt_to_equity: unlevered.debt_to_equity,
             tax_rate: spec.tax_rate,
-            unlevered_beta: settings.leverage.formula.unlever(beta_used, structure),
+            unlevered_beta: unlevered.unlevered_beta,
             estimate,
         });
         returns.push(aligned);
@@ -443,6 +477,9 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         },
         peers,
         cost,
+        sensitivity: None,
+        uncertainty: None,
+        reconciliation: None,
         notes,
         returns,
     })

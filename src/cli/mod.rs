@@ -4,9 +4,14 @@
 //! arm in [`Command`] and [`run`].
 
 pub mod betas;
+pub mod compare;
+pub mod grid;
+pub mod implied;
 pub mod run;
+pub mod verify;
 
 use std::path::PathBuf;
+use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
@@ -25,6 +30,14 @@ pub enum Command {
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),
+    /// Rerun the case a result.json names and compare every figure and input hash.
+    Verify(verify::Args),
+    /// Solve for the input value that reproduces a claimed WACC.
+    Implied(implied::Args),
+    /// Bridge the WACC of one case or claimed build-up to another's.
+    Compare(compare::Args),
+    /// Tabulate the WACC (or cost of equity) over two case keys.
+    Grid(grid::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -39,19 +52,32 @@ pub struct CaseArgs {
 }
 
 impl CaseArgs {
-    /// Reads the case, applies overrides, reads its data and computes the valuation.
-    pub fn valuation(&self) -> hurdle::Result<hurdle::valuation::Valuation> {
+    /// Reads the case, applies overrides and reads its data files.
+    pub fn inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
         let case = hurdle::case::read_case(&self.case, &self.overrides)?;
-        let inputs = hurdle::valuation::load_inputs(case)?;
-        let stamp = chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true);
-        hurdle::valuation::value(&inputs, &stamp)
+        hurdle::valuation::load_inputs(case)
+    }
+
+    /// The valuation alone (peers through WACC), without the memo's analyses.
+    pub fn valuation(&self) -> hurdle::Result<hurdle::valuation::Valuation> {
+        hurdle::valuation::value(&self.inputs()?, &timestamp())
     }
 }
 
-/// Runs the parsed command.
-pub fn run(cli: Cli) -> hurdle::Result<()> {
+/// The run's UTC time, to the second.
+pub fn timestamp() -> String {
+    chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
+}
+
+/// Runs the parsed command. `Ok` carries the exit status: a verification that fails or a
+/// claim that cannot be reached exits 1; errors exit 2.
+pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
     match cli.command {
-        Command::Run(args) => run::run(&args),
-        Command::Betas(args) => betas::run(&args),
+        Command::Run(args) => run::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Betas(args) => betas::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Verify(args) => verify::run(&args),
+        Command::Implied(args) => implied::run(&args),
+        Command::Compare(args) => compare::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }

@@ -29,7 +29,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         Some(path) => Memo::from_file(path)?,
         None => Memo::shipped(),
     };
-    let valuation = args.case.valuation()?;
+    let valuation = hurdle::audit::evaluate(&args.case.inputs()?, &super::timestamp())?;
     let out = args.out.clone().unwrap_or_else(|| {
         args.case
             .case

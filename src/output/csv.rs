@@ -120,3 +120,40 @@ mod tests {
         assert_eq!(field("say \"x\""), "\"say \"\"x\"\"\"");
     }
 }
+
+/// A sensitivity grid as CSV: the row key's values down the first column, the column key's
+/// values across the header.
+pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
+    let mut out = field(&format!("{} \\ {}", grid.rows.key, grid.columns.key));
+    for value in &grid.columns.values {
+        write!(out, ",{value}").expect("writing to a String cannot fail");
+    }
+    out.push('\n');
+    for (value, cells) in grid.rows.values.iter().zip(&grid.cells) {
+        out.push_str(&value.to_string());
+        for cell in cells {
+            write!(out, ",{cell}").expect("writing to a String cannot fail");
+        }
+        out.push('\n');
+    }
+    out.into_bytes()
+}
+
+/// A bridge as CSV: one row per input group.
+pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
+    let mut out = String::from("group,wacc_before,wacc_after,contribution,shapley\n");
+    for s in &bridge.steps {
+        let group = serde_json::to_value(s.group).expect("a group serialises");
+        writeln!(
+            out,
+            "{},{},{},{},{}",
+            group.as_str().unwrap_or_default(),
+            s.wacc_before,
+            s.wacc_after,
+            s.contribution,
+            s.shapley
+        )
+        .expect("writing to a String cannot fail");
+    }
+    out.into_bytes()
+}

@@ -1,0 +1,211 @@
+//! Sensitivity grid: a figure of the valuation over two `--set` key paths.
+//!
+//! Each cell is the full valuation rerun on a copy of the case with the two values applied as
+//! overrides ([`crate::case::with_overrides`]), so a cell is exactly what `hurdle run --set
+//! ROW=… --set COLUMN=…` computes. An axis is written `key=low..high:step`.
+
+use serde::{Deserialize, Serialize};
+
+use super::case_error;
+use crate::case::with_overrides;
+use crate::error::{Error, Result};
+use crate::valuation::{value_case, Inputs, Valuation};
+
+/// The figure a grid shows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Metric {
+    #[default]
+    Wacc,
+    CostOfEquity,
+}
+
+impl std::str::FromStr for Metric {
+    type Err = String;
+
+    fn from_str(text: &str) -> std::result::Result<Self, Self::Err> {
+        match text {
+            "wacc" => Ok(Metric::Wacc),
+            "cost_of_equity" => Ok(Metric::CostOfEquity),
+            other => Err(format!(
+                "`{other}` is not a metric; use wacc or cost_of_equity"
+            )),
+        }
+    }
+}
+
+impl Metric {
+    fn read(self, valuation: &Valuation) -> f64 {
+        match self {
+            Metric::Wacc => valuation.cost.wacc,
+            Metric::CostOfEquity => valuation.cost.cost_of_equity,
+        }
+    }
+}
+
+/// One axis: a case key path and its values.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Axis {
+    pub key: String,
+    pub values: Vec<f64>,
+}
+
+impl Axis {
+    /// The `--set` assignment of value `i`.
+    pub fn assignment(&self, i: usize) -> String {
+        format!("{}={}", self.key, self.values[i])
+    }
+}
+
+/// A computed grid; `cells[r][c]` is the metric at row value `r` and column value `c`.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Grid {
+    pub metric: Metric,
+    pub rows: Axis,
+    pub columns: Axis,
+    pub cells: Vec<Vec<f64>>,
+}
+
+/// The most cells one axis may have; a larger grid is a typo more often than a wish.
+const MAX_POINTS: usize = 101;
+
+/// Parses `key=low..high:step` (inclusive of `high` when the steps land on it).
+pub fn parse_axis(spec: &str) -> Result<Axis> {
+    let fail = |message: String| {
+        Error::Override {
+        assignment: spec.to_string(),
+        message: format!("{message}; an axis is written KEY=LOW..HIGH:STEP, e.g. market.equity_risk_premium=0.04..0.07:0.005"),
+    }
+    };
+    let (key, range) = spec
+        .split_once('=')
+        .ok_or_else(|| fail("no `=` between the key and the range".into()))?;
+    let (bounds, step) = range
+        .split_once(':')
+        .ok_or_else(|| fail("no `:STEP` after the range".into()))?;
+    let (low, high) = bounds
+        .split_once("..")
+        .ok_or_else(|| fail(format!("`{bounds}` is not LOW..HIGH")))?;
+    let number = |text: &str, what: &str| {
+        text.trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| fail(format!("{what} `{text}` is not a number")))
+    };
+    let (low, high, step) = (
+        number(low, "low")?,
+        number(high, "high")?,
+        number(step, "step")?,
+    );
+    if high < low {
+        return Err(fail(format!("high {high} is below low {low}")));
+    }
+    if step <= 0.0 {
+        return Err(fail(format!("step {step} must be positive")));
+    }
+    // The tolerance lets 0.04..0.07:0.005 end at 0.07 despite decimal rounding in the step.
+    let count = ((high - low) / step + 1e-9).floor() as usize + 1;
+    if count > MAX_POINTS {
+        return Err(fail(format!(
+            "{count} points; at most {MAX_POINTS} per axis"
+        )));
+    }
+    // Rounded to 12 decimals so that 0.04 + 3 × 0.005 is written 0.055, as a user would type it.
+    let values = (0..count)
+        .map(|i| ((low + i as f64 * step) * 1e12).round() / 1e12)
+        .collect();
+    Ok(Axis {
+        key: key.trim().to_string(),
+        values,
+    })
+}
+
+/// The memo's default axes: the equity risk premium ±1 point in half points, against the target
+/// debt-to-equity from 0 to twice the target in quarters (0 to 1 when the target is 0).
+pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
+    let erp = valuation.cost.equity_risk_premium;
+    let rows = Axis {
+        key: "market.equity_risk_premium".into(),
+        values: (-2..=2)
+            .map(|i| ((erp + 0.005 * f64::from(i)) * 1e12).round() / 1e12)
+            .collect(),
+    };
+    let target = valuation.cost.target.debt_to_equity;
+    let span = if target > 0.0 { 2.0 * target } else { 1.0 };
+    let columns = Axis {
+        key: "target.debt_to_equity".into(),
+        values: (0..=4)
+            .map(|i| ((span * f64::from(i) / 4.0) * 1e12).round() / 1e12)
+            .collect(),
+    };
+    (rows, columns)
+}
+
+/// Computes the grid over `rows × columns`.
+pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Result<Grid> {
+    let mut cells = Vec::with_capacity(rows.values.len());
+    for r in 0..rows.values.len() {
+        let mut line = Vec::with_capacity(columns.values.len());
+        for c in 0..columns.values.len() {
+            let case = with_overrides(&inputs.case, &[rows.assignment(r), columns.assignment(c)])?;
+            if case.settings.market.index.prices != inputs.case.settings.market.index.prices
+                || case.settings.peers.iter().map(|p| &p.prices).ne(inputs
+                    .case
+                    .settings
+                    .peers
+                    .iter()
+                    .map(|p| &p.prices))
+            {
+                return Err(case_error(
+                    inputs,
+                    format!(
+                        "grid axes `{}` and `{}` may not change which data files are read",
+                        rows.key, columns.key
+                    ),
+                ));
+            }
+            line.push(metric.read(&value_case(&case, inputs, "")?));
+        }
+        cells.push(line);
+    }
+    Ok(Grid {
+        metric,
+        rows: rows.clone(),
+        columns: columns.clone(),
+        cells,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn axes_parse_inclusively() {
+        let axis = parse_axis("market.equity_risk_premium=0.04..0.07:0.005").unwrap();
+        assert_eq!(
+            axis.values,
+            vec![0.04, 0.045, 0.05, 0.055, 0.06, 0.065, 0.07]
+        );
+        assert_eq!(axis.assignment(3), "market.equity_risk_premium=0.055");
+        let single = parse_axis("target.debt_to_equity=0.5..0.5:0.1").unwrap();
+        assert_eq!(single.values, vec![0.5]);
+    }
+
+    #[test]
+    fn malformed_axes_say_what_is_wrong() {
+        for (spec, expected) in [
+            ("market.equity_risk_premium", "no `=`"),
+            ("k=0.04..0.07", "no `:STEP`"),
+            ("k=0.04-0.07:0.01", "not LOW..HIGH"),
+            ("k=0.07..0.04:0.01", "below low"),
+            ("k=0.04..0.07:0", "must be positive"),
+            ("k=a..0.07:0.01", "`a` is not a number"),
+            ("k=0..10:0.01", "at most"),
+        ] {
+            let message = parse_axis(spec).unwrap_err().to_string();
+            assert!(message.contains(expected), "{spec}: {message}");
+        }
+    }
+}

@@ -1,0 +1,51 @@
+//! Reproduction and reconciliation: the work of a reviewer rather than of the analyst.
+//!
+//! [`evaluate`] is the full run behind `hurdle run` and `hurdle verify`: the valuation plus its
+//! sensitivity grid, its Monte Carlo interval and, when the case names one, the bridge to a
+//! claimed build-up, all stored in the one [`Valuation`]. The other modules answer a reviewer's
+//! questions: does the receipt reproduce ([`verify`]), which input value gives a claimed WACC
+//! ([`implied`]), what explains the gap between two WACCs ([`bridge`]).
+
+pub mod bridge;
+pub mod grid;
+pub mod implied;
+pub mod uncertainty;
+pub mod verify;
+
+use crate::error::{Error, Result};
+use crate::valuation::{value, Inputs, Valuation};
+
+/// The valuation with every analysis the memo shows.
+pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
+    let mut valuation = value(inputs, generated_at)?;
+    let sensitivity = &inputs.case.settings.sensitivity;
+    let (rows, columns) = grid::default_axes(&valuation);
+    let rows = match &sensitivity.rows {
+        Some(spec) => grid::parse_axis(spec)?,
+        None => rows,
+    };
+    let columns = match &sensitivity.columns {
+        Some(spec) => grid::parse_axis(spec)?,
+        None => columns,
+    };
+    valuation.sensitivity = Some(grid::grid(inputs, &rows, &columns, sensitivity.metric)?);
+    valuation.uncertainty = Some(uncertainty::simulate(
+        &inputs.case.settings,
+        &valuation.peers,
+        &valuation.cost,
+    ));
+    if let Some(reconcile) = &inputs.case.settings.reconcile {
+        let path = inputs.case.resolve(&reconcile.claimed);
+        let claimed = bridge::read_side(&path, &reconcile.claimed)?;
+        let ours = bridge::Side::from_valuation("this case", &valuation);
+        valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
+    }
+    Ok(valuation)
+}
+
+fn case_error(inputs: &Inputs, message: String) -> Error {
+    Error::Case {
+        file: inputs.case.path.clone(),
+        message,
+    }
+}

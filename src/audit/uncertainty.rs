@@ -1,0 +1,72 @@
+//! Monte Carlo interval of the WACC from the peers' beta sampling error.
+//!
+//! Each draw replaces every peer's raw beta by β + SE·z (z standard normal: the large-sample
+//! sampling distribution of the OLS estimate), optionally draws the equity risk premium and the
+//! risk-free rate uniformly from user-given ranges, and reruns adjustment, unlevering,
+//! aggregation, relevering, CAPM and WACC through the same functions as the point estimate
+//! ([`unlever_peer`], [`cost_of_capital`]). The draws are seeded, so the same case gives the
+//! same percentiles everywhere. It measures the estimation error of the betas (and of the given
+//! ranges) only, not the error in choosing peers, index, window or method.
+
+use serde::Serialize;
+
+use crate::case::CaseFile;
+use crate::random::Rng;
+use crate::stats::quantile_sorted;
+use crate::valuation::{cost_of_capital, unlever_peer, CostOfCapital, PeerResult};
+
+/// Percentiles of the simulated WACC.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Uncertainty {
+    pub draws: u32,
+    pub seed: u64,
+    pub beta_distribution: &'static str,
+    pub equity_risk_premium_range: Option<[f64; 2]>,
+    pub risk_free_rate_range: Option<[f64; 2]>,
+    pub point_estimate: f64,
+    pub mean: f64,
+    pub p05: f64,
+    pub p25: f64,
+    pub p50: f64,
+    pub p75: f64,
+    pub p95: f64,
+}
+
+/// Simulates the WACC. `peers` are the point estimates, in the order of `settings.peers`.
+pub fn simulate(settings: &CaseFile, peers: &[PeerResult], point: &CostOfCapital) -> Uncertainty {
+    let u = &settings.uncertainty;
+    let mut rng = Rng::seeded(u.seed);
+    let mut drawn = settings.clone();
+    let mut unlevered = vec![0.0; peers.len()];
+    let mut waccs = Vec::with_capacity(u.draws as usize);
+    let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
+    for _ in 0..u.draws {
+        for (i, (peer, spec)) in peers.iter().zip(&settings.peers).enumerate() {
+            let raw = peer.estimate.beta + peer.estimate.beta_std_error * rng.normal();
+            unlevered[i] = unlever_peer(settings, spec, raw).unlevered_beta;
+        }
+        if let Some(range) = u.equity_risk_premium {
+            drawn.market.equity_risk_premium = uniform(&mut rng, range);
+        }
+        if let Some(range) = u.risk_free_rate {
+            drawn.market.risk_free_rate = uniform(&mut rng, range);
+        }
+        waccs.push(cost_of_capital(&drawn, &unlevered).wacc);
+    }
+    waccs.sort_by(f64::total_cmp);
+    let q = |p: f64| quantile_sorted(&waccs, p);
+    Uncertainty {
+        draws: u.draws,
+        seed: u.seed,
+        beta_distribution: "normal(beta, beta_std_error) for each peer, independent",
+        equity_risk_premium_range: u.equity_risk_premium,
+        risk_free_rate_range: u.risk_free_rate,
+        point_estimate: point.wacc,
+        mean: waccs.iter().sum::<f64>() / waccs.len() as f64,
+        p05: q(0.05),
+        p25: q(0.25),
+        p50: q(0.50),
+        p75: q(0.75),
+        p95: q(0.95),
+    }
+}

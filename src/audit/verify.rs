@@ -1,0 +1,250 @@
+//! Verification of a receipt: rerun the case a `result.json` names and compare every figure.
+//!
+//! The case file is read from the path the receipt records (or one the reviewer gives), with
+//! the receipt's overrides; every input file's SHA-256 is compared with the recorded one; the
+//! full run is repeated and every leaf of the recorded JSON is compared with the rerun's, numbers
+//! within a relative tolerance and everything else exactly. Only `generated_at` is skipped.
+
+use std::path::{Path, PathBuf};
+
+use serde::Serialize;
+use serde_json::Value;
+
+use crate::case::read_case;
+use crate::error::{Error, Result};
+use crate::valuation::{load_inputs, SCHEMA_VERSION};
+
+/// Relative tolerance for numbers. Reruns on one build are bit-identical; 1e-12 leaves room for
+/// another platform's `powf` and `ln` (used in the risk-free conversion), which may differ in
+/// the last bit, while any change of input moves figures by far more.
+pub const DEFAULT_TOLERANCE: f64 = 1e-12;
+
+/// The state of one input file.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FileCheck {
+    pub role: String,
+    pub path: String,
+    pub recorded_sha256: String,
+    pub current_sha256: String,
+    pub unchanged: bool,
+}
+
+/// One figure that differs.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Mismatch {
+    /// JSON path, e.g. `peers[2].beta`.
+    pub path: String,
+    pub recorded: Value,
+    pub recomputed: Value,
+}
+
+/// The verdict on a receipt.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Verification {
+    pub receipt: String,
+    pub case_file: String,
+    pub case_unchanged: bool,
+    pub files: Vec<FileCheck>,
+    pub tolerance: f64,
+    /// How many leaves were compared.
+    pub compared: usize,
+    pub mismatches: Vec<Mismatch>,
+    pub recorded_tool_version: String,
+    pub current_tool_version: String,
+    /// True only when every file is unchanged and every figure matches.
+    pub reproduced: bool,
+}
+
+/// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
+/// where the case file is looked for.
+pub fn verify(
+    receipt_path: &Path,
+    receipt: &str,
+    case_path: Option<&Path>,
+    tolerance: f64,
+) -> Result<Verification> {
+    let fail = |message: String| Error::DataFile {
+        file: receipt_path.to_path_buf(),
+        message,
+    };
+    let recorded: Value =
+        serde_json::from_str(receipt).map_err(|e| fail(format!("not JSON: {e}")))?;
+    let version = recorded["schema_version"]
+        .as_u64()
+        .ok_or_else(|| fail("has no schema_version; is it a hurdle result.json?".into()))?;
+    if version > u64::from(SCHEMA_VERSION) {
+        return Err(fail(format!(
+            "schema_version {version} is newer than this hurdle reads ({SCHEMA_VERSION}); verify with the version that wrote it ({})",
+            recorded["tool"]["version"].as_str().unwrap_or("unknown")
+        )));
+    }
+    let text = |pointer: &str| {
+        recorded
+            .pointer(pointer)
+            .and_then(Value::as_str)
+            .map(str::to_string)
+    };
+    let case_file = match case_path {
+        Some(path) => path.to_path_buf(),
+        None => PathBuf::from(text("/case/file").ok_or_else(|| fail("has no case.file".into()))?),
+    };
+    let overrides: Vec<String> = recorded["case"]["overrides"]
+        .as_array()
+        .map(|list| {
+            list.iter()
+                .filter_map(|v| v.as_str().map(str::to_string))
+                .collect()
+        })
+        .unwrap_or_default();
+    let case = read_case(&case_file, &overrides)?;
+    let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
+    let inputs = load_inputs(case)?;
+    let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
+    let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
+
+    let current: Vec<(String, String)> = rerun
+        .files
+        .iter()
+        .map(|f| (f.role.clone(), f.sha256.clone()))
+        .collect();
+    let files = recorded["files"]
+        .as_array()
+        .map(|list| {
+            list.iter()
+                .map(|f| {
+                    let role = f["role"].as_str().unwrap_or("").to_string();
+                    let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
+                    let current_sha256 = current
+                        .iter()
+                        .find(|(r, _)| *r == role)
+                        .map(|(_, s)| s.clone())
+                        .unwrap_or_else(|| "(no longer in the case)".into());
+                    FileCheck {
+                        path: f["path"].as_str().unwrap_or("").to_string(),
+                        unchanged: recorded_sha256 == current_sha256,
+                        role,
+                        recorded_sha256,
+                        current_sha256,
+                    }
+                })
+                .collect::<Vec<_>>()
+        })
+        .unwrap_or_default();
+
+    let mut mismatches = Vec::new();
+    let mut compared = 0;
+    compare(
+        &recorded,
+        &recomputed,
+        String::new(),
+        tolerance,
+        &mut compared,
+        &mut mismatches,
+    );
+    let reproduced = case_unchanged && files.iter().all(|f| f.unchanged) && mismatches.is_empty();
+    Ok(Verification {
+        receipt: receipt_path.display().to_string(),
+        case_file: case_file.display().to_string(),
+        case_unchanged,
+        files,
+        tolerance,
+        compared,
+        mismatches,
+        recorded_tool_version: text("/tool/version").unwrap_or_default(),
+        current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
+        reproduced,
+    })
+}
+
+/// Numbers agree when |a − b| ≤ tolerance·max(|a|, |b|) (or both are zero).
+pub fn numbers_agree(a: f64, b: f64, tolerance: f64) -> bool {
+    a == b || (a - b).abs() <= tolerance * a.abs().max(b.abs())
+}
+
+fn compare(
+    recorded: &Value,
+    recomputed: &Value,
+    path: String,
+    tolerance: f64,
+    compared: &mut usize,
+    out: &mut Vec<Mismatch>,
+) {
+    if path == "generated_at" {
+        return;
+    }
+    let mut differ = || {
+        out.push(Mismatch {
+            path: path.clone(),
+            recorded: recorded.clone(),
+            recomputed: recomputed.clone(),
+        })
+    };
+    match (recorded, recomputed) {
+        (Value::Object(a), Value::Object(b)) => {
+            for (key, value) in a {
+                let child = if path.is_empty() {
+                    key.clone()
+                } else {
+                    format!("{path}.{key}")
+                };
+                compare(
+                    value,
+                    b.get(key).unwrap_or(&Value::Null),
+                    child,
+                    tolerance,
+                    compared,
+                    out,
+                );
+            }
+            for key in b.keys().filter(|k| !a.contains_key(*k)) {
+                let child = if path.is_empty() {
+                    key.clone()
+                } else {
+                    format!("{path}.{key}")
+                };
+                compare(&Value::Null, &b[key], child, tolerance, compared, out);
+            }
+        }
+        (Value::Array(a), Value::Array(b)) if a.len() == b.len() => {
+            for (i, (x, y)) in a.iter().zip(b).enumerate() {
+                compare(x, y, format!("{path}[{i}]"), tolerance, compared, out);
+            }
+        }
+        (Value::Number(a), Value::Number(b)) => {
+            *compared += 1;
+            let (a, b) = (
+                a.as_f64().unwrap_or(f64::NAN),
+                b.as_f64().unwrap_or(f64::NAN),
+            );
+            if !numbers_agree(a, b, tolerance) {
+                differ();
+            }
+        }
+        (a, b) => {
+            *compared += 1;
+            if a != b {
+                differ();
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_agree_relatively() {
+        assert!(numbers_agree(0.0, 0.0, 1e-12));
+        assert!(numbers_agree(
+            0.0867704171664703,
+            0.0867704171664703 * (1.0 + 1e-13),
+            1e-12
+        ));
+        assert!(!numbers_agree(
+            0.0867704171664703,
+            0.0867704171664703 * (1.0 + 1e-11),
+            1e-12
+        ));
+    }
+}

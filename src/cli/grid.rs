@@ -1,0 +1,71 @@
+//! `hurdle grid CASE.toml --rows KEY=LOW..HIGH:STEP --cols KEY=LOW..HIGH:STEP
+//!  [--metric wacc|cost_of_equity] [--csv FILE] [--set KEY=VALUE]...`
+//!
+//! Prints the WACC (or cost of equity) over two case keys and writes the table as CSV (default:
+//! `output/grid.csv` beside the case). Each cell equals a run with the two values as `--set`.
+
+use std::path::PathBuf;
+
+use hurdle::audit::grid::{grid, parse_axis, Metric};
+use hurdle::format::percent;
+
+use super::CaseArgs;
+
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    #[command(flatten)]
+    pub case: CaseArgs,
+    /// Row axis, e.g. market.equity_risk_premium=0.04..0.07:0.005
+    #[arg(long, value_name = "KEY=LOW..HIGH:STEP")]
+    pub rows: String,
+    /// Column axis, e.g. target.debt_to_equity=0..1:0.25
+    #[arg(long, value_name = "KEY=LOW..HIGH:STEP")]
+    pub cols: String,
+    /// The figure in the cells: wacc or cost_of_equity.
+    #[arg(long, default_value = "wacc")]
+    pub metric: Metric,
+    /// Where to write the CSV.
+    #[arg(long, value_name = "FILE")]
+    pub csv: Option<PathBuf>,
+}
+
+pub fn run(args: &Args) -> hurdle::Result<()> {
+    let rows = parse_axis(&args.rows)?;
+    let columns = parse_axis(&args.cols)?;
+    let table = grid(&args.case.inputs()?, &rows, &columns, args.metric)?;
+    let mut out = format!("{:>14}", "");
+    for c in &table.columns.values {
+        out.push_str(&format!(" {c:>9}"));
+    }
+    out.push_str(&format!("   ← {}\n", table.columns.key));
+    for (r, cells) in table.rows.values.iter().zip(&table.cells) {
+        out.push_str(&format!("{r:>14}"));
+        for cell in cells {
+            out.push_str(&format!(" {:>9}", percent(*cell, 2)));
+        }
+        out.push('\n');
+    }
+    out.push_str(&format!(
+        "rows: {}; cells: {:?}\n",
+        table.rows.key, table.metric
+    ));
+    print!("{out}");
+    let path = args.csv.clone().unwrap_or_else(|| {
+        args.case
+            .case
+            .parent()
+            .map(|p| p.join("output"))
+            .unwrap_or_default()
+            .join("grid.csv")
+    });
+    if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
+        std::fs::create_dir_all(dir).map_err(|source| hurdle::Error::Io {
+            path: dir.to_path_buf(),
+            action: "cannot create the output folder",
+            source,
+        })?;
+    }
+    hurdle::output::write_atomic(&path, &hurdle::output::csv::grid_csv(&table))?;
+    println!("  wrote {}", path.display());
+    Ok(())
+}

@@ -1,0 +1,87 @@
+//! `hurdle implied CASE.toml --wacc X --solve TARGET [--range LOW..HIGH] [--set KEY=VALUE]...`
+//!
+//! Solves for the value of one input (erp, beta, cost_of_debt, debt_to_equity, risk_free,
+//! size_premium) that reproduces a claimed WACC. Exit 1 when no value in the range does.
+
+use std::process::ExitCode;
+
+use hurdle::audit::implied::{implied, Target};
+use hurdle::format::{fixed, percent};
+
+use super::CaseArgs;
+
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    #[command(flatten)]
+    pub case: CaseArgs,
+    /// The claimed WACC, as a decimal (0.091 for 9.1%).
+    #[arg(long)]
+    pub wacc: f64,
+    /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium.
+    #[arg(long)]
+    pub solve: Target,
+    /// The range to search, LOW..HIGH (default: a wide plausible range for the input).
+    #[arg(long, value_name = "LOW..HIGH", value_parser = parse_range)]
+    pub range: Option<(f64, f64)>,
+}
+
+fn parse_range(text: &str) -> Result<(f64, f64), String> {
+    let (low, high) = text
+        .split_once("..")
+        .ok_or_else(|| format!("`{text}` is not LOW..HIGH"))?;
+    let number = |t: &str| {
+        t.trim()
+            .parse::<f64>()
+            .map_err(|_| format!("`{t}` is not a number"))
+    };
+    Ok((number(low)?, number(high)?))
+}
+
+pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
+    let inputs = args.case.inputs()?;
+    let base = hurdle::valuation::value(&inputs, "")?;
+    let r = implied(&inputs, &base, args.solve, args.wacc, args.range)?;
+    let show = |x: f64| {
+        if r.key.contains("beta") || r.key.contains("debt_to_") {
+            fixed(x, 4)
+        } else {
+            percent(x, 3)
+        }
+    };
+    println!(
+        "claimed WACC {} | case WACC {} with {} = {}",
+        percent(r.claimed_wacc, 3),
+        percent(r.base_wacc, 3),
+        r.key,
+        show(r.base_value)
+    );
+    match (r.value, r.achieved_wacc) {
+        (Some(value), Some(achieved)) => {
+            println!(
+                "{} = {} reproduces it (WACC {})",
+                r.key,
+                show(value),
+                percent(achieved, 6)
+            );
+            println!("  exact: {}={value}", r.key);
+            if r.crossings > 1 {
+                println!(
+                    "  note: {} intervals of the range cross the claim; this is the lowest value",
+                    r.crossings
+                );
+            }
+            Ok(ExitCode::SUCCESS)
+        }
+        _ => {
+            println!(
+                "no value of {} in [{}, {}] reproduces it: the WACC there runs from {} to {}",
+                r.key,
+                show(r.range.0),
+                show(r.range.1),
+                percent(r.wacc_min, 3),
+                percent(r.wacc_max, 3)
+            );
+            Ok(ExitCode::from(1))
+        }
+    }
+}

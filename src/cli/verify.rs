@@ -1,0 +1,96 @@
+//! `hurdle verify RECEIPT.json [--case CASE.toml] [--tolerance X] [--out DIR]`
+//!
+//! Reruns the case the receipt names and reports, figure by figure, what matches; with `--out`
+//! also writes `verification.json`. Exit 0 only when every input file is unchanged and every
+//! figure matches; 1 otherwise.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE};
+
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// The result.json to verify.
+    pub receipt: PathBuf,
+    /// Where the case file is, when not at the path the receipt records.
+    #[arg(long, value_name = "CASE.toml")]
+    pub case: Option<PathBuf>,
+    /// Relative tolerance for numbers.
+    #[arg(long, default_value_t = DEFAULT_TOLERANCE)]
+    pub tolerance: f64,
+    /// Also write verification.json into this folder.
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+}
+
+pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
+    let text = std::fs::read_to_string(&args.receipt).map_err(|source| hurdle::Error::Io {
+        path: args.receipt.clone(),
+        action: "cannot read the receipt",
+        source,
+    })?;
+    let report = verify(&args.receipt, &text, args.case.as_deref(), args.tolerance)?;
+    print!("{}", render(&report));
+    if let Some(dir) = &args.out {
+        let mut bytes = serde_json::to_vec_pretty(&report).expect("a report always serialises");
+        bytes.push(b'\n');
+        std::fs::create_dir_all(dir).map_err(|source| hurdle::Error::Io {
+            path: dir.clone(),
+            action: "cannot create the output folder",
+            source,
+        })?;
+        hurdle::output::write_atomic(&dir.join("verification.json"), &bytes)?;
+    }
+    Ok(if report.reproduced {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(1)
+    })
+}
+
+fn render(r: &Verification) -> String {
+    let mut out = format!("verifying {} (case {})\n", r.receipt, r.case_file);
+    out.push_str(&format!(
+        "  case file: {}\n",
+        if r.case_unchanged {
+            "unchanged"
+        } else {
+            "CHANGED since the receipt"
+        }
+    ));
+    for f in &r.files {
+        if f.unchanged {
+            out.push_str(&format!("  {} {}: unchanged\n", f.role, f.path));
+        } else {
+            out.push_str(&format!(
+                "  {} {}: CHANGED (recorded {}, now {})\n",
+                f.role, f.path, f.recorded_sha256, f.current_sha256
+            ));
+        }
+    }
+    if r.recorded_tool_version != r.current_tool_version {
+        out.push_str(&format!(
+            "  note: written by hurdle {}, verified with {}\n",
+            r.recorded_tool_version, r.current_tool_version
+        ));
+    }
+    for m in &r.mismatches {
+        out.push_str(&format!(
+            "  MISMATCH {}: recorded {} recomputed {}\n",
+            m.path, m.recorded, m.recomputed
+        ));
+    }
+    out.push_str(&format!(
+        "{}: {} figures compared, {} mismatched (relative tolerance {:e})\n",
+        if r.reproduced {
+            "REPRODUCED"
+        } else {
+            "NOT REPRODUCED"
+        },
+        r.compared,
+        r.mismatches.len(),
+        r.tolerance
+    ));
+    out
+}
