@@ -1,0 +1,277 @@
+//! The reviewer's commands on the demo case: verify, implied, compare, grid, and the Monte
+//! Carlo interval. Checks are identities and textbook properties (named beside each), never
+//! figures copied from hurdle's own output.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use hurdle::audit::bridge::{bridge, read_side};
+use hurdle::audit::uncertainty::simulate;
+use hurdle::case::read_case;
+use hurdle::valuation::{load_inputs, value};
+
+const DEMO_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh");
+
+fn hurdle(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(args)
+        .output()
+        .expect("hurdle runs")
+}
+
+fn text(output: &Output) -> String {
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&output.stdout),
+        String::from_utf8_lossy(&output.stderr)
+    )
+}
+
+/// A copy of the demo case folder (without any previous output) in a temporary folder.
+fn demo_copy() -> (tempfile::TempDir, PathBuf) {
+    fn copy(from: &Path, to: &Path) {
+        std::fs::create_dir_all(to).unwrap();
+        for entry in std::fs::read_dir(from).unwrap() {
+            let entry = entry.unwrap();
+            if entry.file_name() == "output" {
+                continue;
+            }
+            let target = to.join(entry.file_name());
+            if entry.file_type().unwrap().is_dir() {
+                copy(&entry.path(), &target);
+            } else {
+                std::fs::copy(entry.path(), &target).unwrap();
+            }
+        }
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    copy(Path::new(DEMO_DIR), &case_dir);
+    (dir, case_dir)
+}
+
+fn run_case(case: &Path, out: &Path, extra: &[&str]) -> serde_json::Value {
+    let mut args = vec!["run", case.to_str().unwrap(), "--out", out.to_str().unwrap()];
+    args.extend_from_slice(extra);
+    let output = hurdle(&args);
+    assert!(output.status.success(), "{}", text(&output));
+    serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
+}
+
+#[test]
+fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let out = dir.path().join("out");
+    run_case(&case, &out, &[]);
+    let receipt = out.join("result.json");
+
+    let ok = hurdle(&["verify", receipt.to_str().unwrap()]);
+    assert_eq!(ok.status.code(), Some(0), "{}", text(&ok));
+    assert!(text(&ok).contains("REPRODUCED"));
+
+    // Edit one price of one peer by 1%.
+    let peer_file = case_dir.join("data/peers/fenhallow.csv");
+    let mut lines: Vec<String> = std::fs::read_to_string(&peer_file)
+        .unwrap()
+        .lines()
+        .map(String::from)
+        .collect();
+    let last = lines.len() - 1;
+    let (date, price) = lines[last].split_once(',').unwrap();
+    let edited: f64 = price.parse::<f64>().unwrap() * 1.01;
+    lines[last] = format!("{date},{edited:.4}");
+    std::fs::write(&peer_file, lines.join("\n") + "\n").unwrap();
+
+    let moved = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&moved);
+    assert_eq!(moved.status.code(), Some(1), "{report}");
+    assert!(report.contains("NOT REPRODUCED"), "{report}");
+    assert!(report.contains("peer:Fenhallow Seals data/peers/fenhallow.csv: CHANGED"), "{report}");
+    // Fenhallow Seals is the fifth peer: its beta and the files' hash moved; the unchanged
+    // peers did not.
+    assert!(report.contains("MISMATCH peers[4].beta:"), "{report}");
+    assert!(!report.contains("MISMATCH peers[0].beta:"), "{report}");
+    assert!(report.contains("MISMATCH files[6].sha256"), "{report}");
+}
+
+#[test]
+fn verify_refuses_a_receipt_from_a_newer_schema() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let mut result = run_case(&case_dir.join("case.toml"), &out, &[]);
+    result["schema_version"] = serde_json::json!(99);
+    let receipt = out.join("newer.json");
+    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
+    let output = hurdle(&["verify", receipt.to_str().unwrap()]);
+    assert_eq!(output.status.code(), Some(2));
+    assert!(text(&output).contains("schema_version 99 is newer"), "{}", text(&output));
+}
+
+fn number(v: &serde_json::Value, path: &str) -> f64 {
+    path.split('.').fold(v, |v, k| &v[k]).as_f64().unwrap()
+}
+
+// Plugging the implied value back in reproduces the claim: 1e-10 is the bar; bisection
+// narrows the bracket to adjacent doubles, so the WACC error is a few ulps of its slope.
+#[test]
+fn implied_values_reproduce_the_claimed_wacc() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let claimed = 0.091;
+    for solve in ["erp", "cost_of_debt", "debt_to_equity", "risk_free", "size_premium"] {
+        let output = hurdle(&["implied", case, "--wacc", &claimed.to_string(), "--solve", solve]);
+        let report = text(&output);
+        assert_eq!(output.status.code(), Some(0), "{solve}: {report}");
+        let exact = report
+            .lines()
+            .find_map(|l| l.trim().strip_prefix("exact: "))
+            .unwrap_or_else(|| panic!("{solve}: {report}"))
+            .to_string();
+        let out = dir.path().join(solve);
+        let rerun = run_case(Path::new(case), &out, &["--set", &exact]);
+        let wacc = number(&rerun, "wacc");
+        assert!((wacc - claimed).abs() < 1e-10, "{solve}: {exact} gives {wacc}");
+    }
+    // The relevered beta is not a case key: check it with the textbook WACC formula on the
+    // base run's other components, wE·(rf + β·ERP + premiums) + wD·Kd·(1 − t).
+    let base = run_case(Path::new(case), &dir.path().join("base"), &[]);
+    let output = hurdle(&["implied", case, "--wacc", "0.091", "--solve", "beta"]);
+    let report = text(&output);
+    let beta: f64 = report
+        .lines()
+        .find_map(|l| l.trim().strip_prefix("exact: relevered beta="))
+        .unwrap_or_else(|| panic!("{report}"))
+        .parse()
+        .unwrap();
+    let wacc = number(&base, "weights.equity")
+        * (number(&base, "risk_free_rate")
+            + beta * number(&base, "equity_risk_premium")
+            + number(&base, "premiums.total"))
+        + number(&base, "weights.debt")
+            * number(&base, "cost_of_debt_pre_tax")
+            * (1.0 - number(&base, "target.tax_rate"));
+    assert!((wacc - 0.091).abs() < 1e-10, "beta {beta} gives {wacc}");
+}
+
+#[test]
+fn an_unreachable_claim_is_reported_not_forced() {
+    let case = format!("{DEMO_DIR}/case.toml");
+    let output = hurdle(&["implied", &case, "--wacc", "0.60", "--solve", "erp"]);
+    assert_eq!(output.status.code(), Some(1));
+    let report = text(&output);
+    assert!(report.contains("no value of market.equity_risk_premium in [0.000%, 20.000%]"), "{report}");
+    let unknown = hurdle(&["implied", &case, "--wacc", "0.09", "--solve", "inflation"]);
+    assert_eq!(unknown.status.code(), Some(2));
+    assert!(text(&unknown).contains("`inflation` cannot be solved for"), "{}", text(&unknown));
+}
+
+// Telescoping and Shapley efficiency (Shapley 1953): both sum to the total difference.
+// 1e-15: seven additions of numbers below 0.01.
+#[test]
+fn bridge_steps_and_shapley_values_sum_to_the_gap() {
+    let case = format!("{DEMO_DIR}/case.toml");
+    let claimed = format!("{DEMO_DIR}/claimed.toml");
+    let from = read_side(Path::new(&case), &case).unwrap();
+    let to = read_side(Path::new(&claimed), &claimed).unwrap();
+    let result = bridge(&from, &to);
+    let steps: f64 = result.steps.iter().map(|s| s.contribution).sum();
+    let shapley: f64 = result.steps.iter().map(|s| s.shapley).sum();
+    assert!((steps - result.difference).abs() < 1e-15);
+    assert!((shapley - result.difference).abs() < 1e-15);
+    // The same pair through the command line, whose bridge.csv must say the same.
+    let dir = tempfile::tempdir().unwrap();
+    let output = hurdle(&["compare", &case, &claimed, "--out", dir.path().to_str().unwrap()]);
+    assert!(output.status.success(), "{}", text(&output));
+    let csv = std::fs::read_to_string(dir.path().join("bridge.csv")).unwrap();
+    let sum: f64 = csv
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').nth(3).unwrap().parse::<f64>().unwrap())
+        .sum();
+    assert!((sum - result.difference).abs() < 1e-15);
+}
+
+// A grid cell is exactly the run with the same two --set values: same computation, so the
+// same bits.
+#[test]
+fn grid_cells_equal_single_runs() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let csv = dir.path().join("grid.csv");
+    let output = hurdle(&[
+        "grid",
+        case.to_str().unwrap(),
+        "--rows",
+        "market.equity_risk_premium=0.04..0.07:0.015",
+        "--cols",
+        "target.debt_to_equity=0..1:0.5",
+        "--csv",
+        csv.to_str().unwrap(),
+    ]);
+    assert!(output.status.success(), "{}", text(&output));
+    let table = std::fs::read_to_string(&csv).unwrap();
+    let rows: Vec<Vec<&str>> = table.lines().map(|l| l.split(',').collect()).collect();
+    assert_eq!(rows[0][1..], ["0", "0.5", "1"]);
+    assert_eq!(rows.len(), 4); // header + 0.04, 0.055, 0.07
+    let (r, c) = (2, 2);
+    let rerun = run_case(
+        &case,
+        &dir.path().join("cell"),
+        &[
+            "--set",
+            &format!("market.equity_risk_premium={}", rows[r][0]),
+            "--set",
+            &format!("target.debt_to_equity={}", rows[0][c]),
+        ],
+    );
+    assert_eq!(rows[r][c].parse::<f64>().unwrap(), number(&rerun, "wacc"));
+    let bad = hurdle(&["grid", case.to_str().unwrap(), "--rows", "market.equity_risk_premium=0.04-0.07", "--cols", "target.debt_to_equity=0..1:0.5"]);
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(text(&bad).contains("KEY=LOW..HIGH:STEP"), "{}", text(&bad));
+}
+
+fn demo_valuation(overrides: &[&str]) -> (hurdle::case::Case, hurdle::valuation::Valuation) {
+    let overrides: Vec<String> = overrides.iter().map(|s| s.to_string()).collect();
+    let case = read_case(Path::new(&format!("{DEMO_DIR}/case.toml")), &overrides).unwrap();
+    let inputs = load_inputs(case.clone()).unwrap();
+    (case, value(&inputs, "").unwrap())
+}
+
+#[test]
+fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
+    let (case, valuation) = demo_valuation(&[]);
+    let mut peers = valuation.peers.clone();
+    for p in &mut peers {
+        p.estimate.beta_std_error = 0.0;
+    }
+    // No sampling error: every draw is the point estimate, so every percentile is too.
+    let flat = simulate(&case.settings, &peers, &valuation.cost);
+    for p in [flat.p05, flat.p25, flat.p50, flat.p75, flat.p95] {
+        assert_eq!(p, valuation.cost.wacc);
+    }
+    let once = simulate(&case.settings, &valuation.peers, &valuation.cost);
+    assert_eq!(once, simulate(&case.settings, &valuation.peers, &valuation.cost));
+    let mut other_seed = case.settings.clone();
+    other_seed.uncertainty.seed = 2;
+    assert_ne!(once.p50, simulate(&other_seed, &valuation.peers, &valuation.cost).p50);
+    assert!(once.p05 < once.p25 && once.p25 < once.p50 && once.p50 < once.p75 && once.p75 < once.p95);
+}
+
+// With mean aggregation and no adjustment the WACC is linear in the drawn betas, so its
+// distribution is normal and centred on the point estimate. The sample median of n normal
+// draws has standard error √(π/2)·σ/√n (textbook asymptotics of the median), σ estimated by
+// IQR/1.349; the bound is 4 of those, and it shrinks as the draws grow.
+#[test]
+fn monte_carlo_median_converges_to_the_point_estimate() {
+    let (case, valuation) = demo_valuation(&["leverage.aggregation=mean", "beta.adjustment=none"]);
+    for draws in [2_000, 50_000] {
+        let mut settings = case.settings.clone();
+        settings.uncertainty.draws = draws;
+        let u = simulate(&settings, &valuation.peers, &valuation.cost);
+        let sigma = (u.p75 - u.p25) / 1.349;
+        let bound = 4.0 * (std::f64::consts::PI / 2.0).sqrt() * sigma / f64::from(draws).sqrt();
+        assert!((u.p50 - valuation.cost.wacc).abs() < bound, "{draws}: {} vs {}", u.p50, valuation.cost.wacc);
+    }
+}
