@@ -51,7 +51,12 @@ fn demo_copy() -> (tempfile::TempDir, PathBuf) {
 }
 
 fn run_case(case: &Path, out: &Path, extra: &[&str]) -> serde_json::Value {
-    let mut args = vec!["run", case.to_str().unwrap(), "--out", out.to_str().unwrap()];
+    let mut args = vec![
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
     args.extend_from_slice(extra);
     let output = hurdle(&args);
     assert!(output.status.success(), "{}", text(&output));
@@ -87,7 +92,10 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
     let report = text(&moved);
     assert_eq!(moved.status.code(), Some(1), "{report}");
     assert!(report.contains("NOT REPRODUCED"), "{report}");
-    assert!(report.contains("peer:Fenhallow Seals data/peers/fenhallow.csv: CHANGED"), "{report}");
+    assert!(
+        report.contains("peer:Fenhallow Seals data/peers/fenhallow.csv: CHANGED"),
+        "{report}"
+    );
     // Fenhallow Seals is the fifth peer: its beta and the files' hash moved; the unchanged
     // peers did not.
     assert!(report.contains("MISMATCH peers[4].beta:"), "{report}");
@@ -105,7 +113,11 @@ fn verify_refuses_a_receipt_from_a_newer_schema() {
     std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let output = hurdle(&["verify", receipt.to_str().unwrap()]);
     assert_eq!(output.status.code(), Some(2));
-    assert!(text(&output).contains("schema_version 99 is newer"), "{}", text(&output));
+    assert!(
+        text(&output).contains("schema_version 99 is newer"),
+        "{}",
+        text(&output)
+    );
 }
 
 fn number(v: &serde_json::Value, path: &str) -> f64 {
@@ -120,8 +132,21 @@ fn implied_values_reproduce_the_claimed_wacc() {
     let case = case_dir.join("case.toml");
     let case = case.to_str().unwrap();
     let claimed = 0.091;
-    for solve in ["erp", "cost_of_debt", "debt_to_equity", "risk_free", "size_premium"] {
-        let output = hurdle(&["implied", case, "--wacc", &claimed.to_string(), "--solve", solve]);
+    for solve in [
+        "erp",
+        "cost_of_debt",
+        "debt_to_equity",
+        "risk_free",
+        "size_premium",
+    ] {
+        let output = hurdle(&[
+            "implied",
+            case,
+            "--wacc",
+            &claimed.to_string(),
+            "--solve",
+            solve,
+        ]);
         let report = text(&output);
         assert_eq!(output.status.code(), Some(0), "{solve}: {report}");
         let exact = report
@@ -132,7 +157,10 @@ fn implied_values_reproduce_the_claimed_wacc() {
         let out = dir.path().join(solve);
         let rerun = run_case(Path::new(case), &out, &["--set", &exact]);
         let wacc = number(&rerun, "wacc");
-        assert!((wacc - claimed).abs() < 1e-10, "{solve}: {exact} gives {wacc}");
+        assert!(
+            (wacc - claimed).abs() < 1e-10,
+            "{solve}: {exact} gives {wacc}"
+        );
     }
     // The relevered beta is not a case key: check it with the textbook WACC formula on the
     // base run's other components, wE·(rf + β·ERP + premiums) + wD·Kd·(1 − t).
@@ -161,10 +189,17 @@ fn an_unreachable_claim_is_reported_not_forced() {
     let output = hurdle(&["implied", &case, "--wacc", "0.60", "--solve", "erp"]);
     assert_eq!(output.status.code(), Some(1));
     let report = text(&output);
-    assert!(report.contains("no value of market.equity_risk_premium in [0.000%, 20.000%]"), "{report}");
+    assert!(
+        report.contains("no value of market.equity_risk_premium in [0.000%, 20.000%]"),
+        "{report}"
+    );
     let unknown = hurdle(&["implied", &case, "--wacc", "0.09", "--solve", "inflation"]);
     assert_eq!(unknown.status.code(), Some(2));
-    assert!(text(&unknown).contains("`inflation` cannot be solved for"), "{}", text(&unknown));
+    assert!(
+        text(&unknown).contains("`inflation` cannot be solved for"),
+        "{}",
+        text(&unknown)
+    );
 }
 
 // Telescoping and Shapley efficiency (Shapley 1953): both sum to the total difference.
@@ -182,7 +217,13 @@ fn bridge_steps_and_shapley_values_sum_to_the_gap() {
     assert!((shapley - result.difference).abs() < 1e-15);
     // The same pair through the command line, whose bridge.csv must say the same.
     let dir = tempfile::tempdir().unwrap();
-    let output = hurdle(&["compare", &case, &claimed, "--out", dir.path().to_str().unwrap()]);
+    let output = hurdle(&[
+        "compare",
+        &case,
+        &claimed,
+        "--out",
+        dir.path().to_str().unwrap(),
+    ]);
     assert!(output.status.success(), "{}", text(&output));
     let csv = std::fs::read_to_string(dir.path().join("bridge.csv")).unwrap();
     let sum: f64 = csv
@@ -227,7 +268,14 @@ fn grid_cells_equal_single_runs() {
         ],
     );
     assert_eq!(rows[r][c].parse::<f64>().unwrap(), number(&rerun, "wacc"));
-    let bad = hurdle(&["grid", case.to_str().unwrap(), "--rows", "market.equity_risk_premium=0.04-0.07", "--cols", "target.debt_to_equity=0..1:0.5"]);
+    let bad = hurdle(&[
+        "grid",
+        case.to_str().unwrap(),
+        "--rows",
+        "market.equity_risk_premium=0.04-0.07",
+        "--cols",
+        "target.debt_to_equity=0..1:0.5",
+    ]);
     assert_eq!(bad.status.code(), Some(2));
     assert!(text(&bad).contains("KEY=LOW..HIGH:STEP"), "{}", text(&bad));
 }
@@ -252,11 +300,19 @@ fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
         assert_eq!(p, valuation.cost.wacc);
     }
     let once = simulate(&case.settings, &valuation.peers, &valuation.cost);
-    assert_eq!(once, simulate(&case.settings, &valuation.peers, &valuation.cost));
+    assert_eq!(
+        once,
+        simulate(&case.settings, &valuation.peers, &valuation.cost)
+    );
     let mut other_seed = case.settings.clone();
     other_seed.uncertainty.seed = 2;
-    assert_ne!(once.p50, simulate(&other_seed, &valuation.peers, &valuation.cost).p50);
-    assert!(once.p05 < once.p25 && once.p25 < once.p50 && once.p50 < once.p75 && once.p75 < once.p95);
+    assert_ne!(
+        once.p50,
+        simulate(&other_seed, &valuation.peers, &valuation.cost).p50
+    );
+    assert!(
+        once.p05 < once.p25 && once.p25 < once.p50 && once.p50 < once.p75 && once.p75 < once.p95
+    );
 }
 
 // With mean aggregation and no adjustment the WACC is linear in the drawn betas, so its
@@ -272,6 +328,11 @@ fn monte_carlo_median_converges_to_the_point_estimate() {
         let u = simulate(&settings, &valuation.peers, &valuation.cost);
         let sigma = (u.p75 - u.p25) / 1.349;
         let bound = 4.0 * (std::f64::consts::PI / 2.0).sqrt() * sigma / f64::from(draws).sqrt();
-        assert!((u.p50 - valuation.cost.wacc).abs() < bound, "{draws}: {} vs {}", u.p50, valuation.cost.wacc);
+        assert!(
+            (u.p50 - valuation.cost.wacc).abs() < bound,
+            "{draws}: {} vs {}",
+            u.p50,
+            valuation.cost.wacc
+        );
     }
 }

@@ -108,19 +108,6 @@ fn field(text: &str) -> String {
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::field;
-
-    // RFC 4180, section 2: fields with commas or quotes are quoted, quotes doubled.
-    #[test]
-    fn fields_are_quoted_per_rfc_4180() {
-        assert_eq!(field("Plain"), "Plain");
-        assert_eq!(field("A, B"), "\"A, B\"");
-        assert_eq!(field("say \"x\""), "\"say \"\"x\"\"\"");
-    }
-}
-
 /// A sensitivity grid as CSV: the row key's values down the first column, the column key's
 /// values across the header.
 pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
@@ -156,4 +143,17 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
         .expect("writing to a String cannot fail");
     }
     out.into_bytes()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::field;
+
+    // RFC 4180, section 2: fields with commas or quotes are quoted, quotes doubled.
+    #[test]
+    fn fields_are_quoted_per_rfc_4180() {
+        assert_eq!(field("Plain"), "Plain");
+        assert_eq!(field("A, B"), "\"A, B\"");
+        assert_eq!(field("say \"x\""), "\"say \"\"x\"\"\"");
+    }
 }
