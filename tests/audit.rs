@@ -10,7 +10,9 @@ use hurdle::audit::uncertainty::simulate;
 use hurdle::case::read_case;
 use hurdle::valuation::{load_inputs, value};
 
-const DEMO_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh");
+mod common;
+
+use common::{copy_demo_case, DEMO_DIR};
 
 fn hurdle(args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_hurdle"))
@@ -27,26 +29,11 @@ fn text(output: &Output) -> String {
     )
 }
 
-/// A copy of the demo case folder (without any previous output) in a temporary folder.
+/// A copy of the demo case folder in a temporary folder.
 fn demo_copy() -> (tempfile::TempDir, PathBuf) {
-    fn copy(from: &Path, to: &Path) {
-        std::fs::create_dir_all(to).unwrap();
-        for entry in std::fs::read_dir(from).unwrap() {
-            let entry = entry.unwrap();
-            if entry.file_name() == "output" {
-                continue;
-            }
-            let target = to.join(entry.file_name());
-            if entry.file_type().unwrap().is_dir() {
-                copy(&entry.path(), &target);
-            } else {
-                std::fs::copy(entry.path(), &target).unwrap();
-            }
-        }
-    }
     let dir = tempfile::tempdir().unwrap();
     let case_dir = dir.path().join("case");
-    copy(Path::new(DEMO_DIR), &case_dir);
+    copy_demo_case(&case_dir);
     (dir, case_dir)
 }
 

@@ -9,7 +9,8 @@ use std::process::{Command, Output};
 
 use tempfile::TempDir;
 
-const SOURCE_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh");
+mod common;
+
 const OUTPUT_FILES: [&str; 4] = ["memo.md", "result.json", "peers.csv", "returns.csv"];
 const PEER_FILE: &str = "data/peers/corrowick.csv";
 
@@ -24,18 +25,7 @@ impl CaseCopy {
         let root = tempfile::tempdir().expect("create temp dir");
         let case_dir = root.path().join("case");
         fs::create_dir(&case_dir).unwrap();
-        let source = Path::new(SOURCE_CASE);
-        for entry in fs::read_dir(source).unwrap() {
-            let entry = entry.unwrap();
-            let target = case_dir.join(entry.file_name());
-            if entry.file_name() == "output" {
-                continue;
-            } else if entry.file_type().unwrap().is_dir() {
-                copy_dir(&entry.path(), &target);
-            } else {
-                fs::copy(entry.path(), &target).unwrap();
-            }
-        }
+        common::copy_demo_case(&case_dir);
         CaseCopy { root }
     }
 
@@ -127,19 +117,6 @@ impl CaseCopy {
             );
         }
         stderr
-    }
-}
-
-fn copy_dir(from: &Path, to: &Path) {
-    fs::create_dir_all(to).unwrap();
-    for entry in fs::read_dir(from).unwrap() {
-        let entry = entry.unwrap();
-        let target = to.join(entry.file_name());
-        if entry.file_type().unwrap().is_dir() {
-            copy_dir(&entry.path(), &target);
-        } else {
-            fs::copy(entry.path(), &target).unwrap();
-        }
     }
 }
 
