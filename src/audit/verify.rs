@@ -86,7 +86,11 @@ pub fn verify(
     };
     let case_file = match case_path {
         Some(path) => path.to_path_buf(),
-        None => PathBuf::from(text("/case/file").ok_or_else(|| fail("has no case.file".into()))?),
+        None => locate_case(
+            receipt_path,
+            &text("/case/file").ok_or_else(|| fail("has no case.file".into()))?,
+        )
+        .map_err(fail)?,
     };
     let overrides: Vec<String> = recorded["case"]["overrides"]
         .as_array()
@@ -154,6 +158,28 @@ pub fn verify(
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
     })
+}
+
+/// Finds the case file a receipt names: as recorded (relative to the working folder), else
+/// beside the receipt's folder, where `hurdle run` puts `output/` by default.
+fn locate_case(receipt_path: &Path, recorded: &str) -> std::result::Result<PathBuf, String> {
+    let recorded = PathBuf::from(recorded);
+    let mut candidates = vec![recorded.clone()];
+    if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
+        let case_dir = output_dir.parent().unwrap_or(Path::new(""));
+        candidates.push(case_dir.join(name));
+    }
+    candidates
+        .iter()
+        .find(|p| p.is_file())
+        .cloned()
+        .ok_or_else(|| {
+            let tried: Vec<String> = candidates.iter().map(|p| p.display().to_string()).collect();
+            format!(
+                "the case file it names is not at {}; give its place with --case",
+                tried.join(" nor at ")
+            )
+        })
 }
 
 /// Numbers agree when |a − b| ≤ tolerance·max(|a|, |b|) (or both are zero).
