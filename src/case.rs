@@ -136,6 +136,11 @@ pub struct LeverageSettings {
     pub formula: Formula,
     /// Which statistic of the peers' unlevered betas is relevered.
     pub aggregation: Aggregation,
+    /// Where the debt betas come from: none (riskless debt), given, or the credit spread.
+    pub debt_beta_source: DebtBetaSource,
+    /// The debt beta of the subject and of every peer without its own, when the source is
+    /// `given`.
+    pub debt_beta: f64,
 }
 
 impl Default for LeverageSettings {
@@ -143,8 +148,23 @@ impl Default for LeverageSettings {
         LeverageSettings {
             formula: Formula::Hamada,
             aggregation: Aggregation::Median,
+            debt_beta_source: DebtBetaSource::None,
+            debt_beta: 0.0,
         }
     }
+}
+
+/// `leverage.debt_beta_source`: how the beta of debt is set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtBetaSource {
+    /// Riskless debt: every debt beta is 0.
+    None,
+    /// `leverage.debt_beta`, or a peer's own `debt_beta`.
+    Given,
+    /// (Kd − rf) / ERP, an approximation (see `leverage::debt_beta_from_spread`); a peer's own
+    /// `cost_of_debt` when it has one, else the subject's.
+    CreditSpread,
 }
 
 /// `[target]`: the capital structure the beta is relevered to and the WACC is weighted by.
@@ -164,8 +184,42 @@ pub struct TargetSettings {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct DebtSettings {
-    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity.
-    pub cost_pre_tax: f64,
+    /// Where the pre-tax cost of debt comes from (default: given).
+    #[serde(default)]
+    pub source: DebtSource,
+    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity; required when the
+    /// source is `given`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cost_pre_tax: Option<f64>,
+    /// The subject's credit rating, looked up in `rating_table` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating: Option<String>,
+    /// CSV or TOML table of `rating, spread` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating_table: Option<String>,
+    /// Earnings before interest and taxes (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ebit: Option<f64>,
+    /// Interest expense, same unit as `ebit` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub interest_expense: Option<f64>,
+    /// CSV or TOML table of `min_coverage, rating, spread` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub coverage_table: Option<String>,
+}
+
+/// `debt.source`: where the pre-tax cost of debt comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtSource {
+    /// `debt.cost_pre_tax`, e.g. a yield to maturity.
+    #[default]
+    Given,
+    /// rf + the spread of `debt.rating` in `debt.rating_table`.
+    Rating,
+    /// rf + the spread of the synthetic rating from EBIT / interest expense in
+    /// `debt.coverage_table`.
+    Coverage,
 }
 
 /// `[premiums]`: additions to the CAPM cost of equity (annual, decimal).
@@ -201,6 +255,13 @@ pub struct PeerSpec {
     pub cash: f64,
     /// Marginal tax rate (decimal).
     pub tax_rate: f64,
+    /// The peer's own debt beta (with `leverage.debt_beta_source` `given` or `credit-spread`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub debt_beta: Option<f64>,
+    /// The peer's own pre-tax cost of debt, for Miles–Ezzell and the credit-spread debt beta;
+    /// the subject's is used when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cost_of_debt: Option<f64>,
 }
 
 fn default_index_name() -> String {
@@ -423,15 +484,17 @@ fn parse_override_value(raw: &str) -> toml::Value {
         .unwrap_or_else(|| toml::Value::String(raw.to_string()))
 }
 
+/// `key = value` must be finite and in [low, high).
+fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
+    if value.is_finite() && value >= low && value < high {
+        Ok(())
+    } else {
+        Err(format!("{key} = {value} is outside [{low}, {high})"))
+    }
+}
+
 /// Range checks a type cannot express. The message names the key and the offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
-    fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
-        if value.is_finite() && value >= low && value < high {
-            Ok(())
-        } else {
-            Err(format!("{key} = {value} is outside [{low}, {high})"))
-        }
-    }
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
@@ -481,7 +544,7 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         (None, Some(dc)) => rate("target.debt_to_capital", dc, 0.0, 1.0)?,
     }
     rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
-    rate("debt.cost_pre_tax", case.debt.cost_pre_tax, 0.0, 1.0)?;
+    validate_debt(case)?;
     for (key, value) in [
         ("premiums.size", case.premiums.size),
         ("premiums.country", case.premiums.country),
@@ -516,6 +579,76 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
         }
         rate(&key("tax_rate"), peer.tax_rate, 0.0, 1.0)?;
+        if let Some(kd) = peer.cost_of_debt {
+            rate(&key("cost_of_debt"), kd, 0.0, 1.0)?;
+        }
+        if let Some(debt_beta) = peer.debt_beta {
+            if case.leverage.debt_beta_source == DebtBetaSource::None {
+                return Err(format!(
+                    "{} = {debt_beta} is given but leverage.debt_beta_source = \"none\" \
+                     (riskless debt); set it to \"given\" or drop the peer's debt_beta",
+                    key("debt_beta")
+                ));
+            }
+            rate(&key("debt_beta"), debt_beta, -1.0, 3.0)?;
+        }
+    }
+    Ok(())
+}
+
+/// The `[debt]` keys each cost-of-debt source needs, and the leverage keys that go with them.
+fn validate_debt(case: &CaseFile) -> std::result::Result<(), String> {
+    let debt = &case.debt;
+    let need = |key: &str, present: bool| {
+        if present {
+            Ok(())
+        } else {
+            Err(format!(
+                "debt.{key} is required when debt.source = \"{}\"",
+                match debt.source {
+                    DebtSource::Given => "given",
+                    DebtSource::Rating => "rating",
+                    DebtSource::Coverage => "coverage",
+                }
+            ))
+        }
+    };
+    if let Some(kd) = debt.cost_pre_tax {
+        rate("debt.cost_pre_tax", kd, 0.0, 1.0)?;
+    }
+    match debt.source {
+        DebtSource::Given => need("cost_pre_tax", debt.cost_pre_tax.is_some())?,
+        DebtSource::Rating => {
+            need("rating", debt.rating.is_some())?;
+            need("rating_table", debt.rating_table.is_some())?;
+        }
+        DebtSource::Coverage => {
+            need("ebit", debt.ebit.is_some())?;
+            need("interest_expense", debt.interest_expense.is_some())?;
+            need("coverage_table", debt.coverage_table.is_some())?;
+            let (ebit, interest) = (
+                debt.ebit.unwrap_or(0.0),
+                debt.interest_expense.unwrap_or(0.0),
+            );
+            if !(interest.is_finite() && interest > 0.0) {
+                return Err(format!(
+                    "debt.interest_expense = {interest} must be positive to compute interest \
+                     coverage (EBIT / interest expense)"
+                ));
+            }
+            if !ebit.is_finite() || ebit < 0.0 {
+                return Err(format!(
+                    "debt.ebit = {ebit} gives a negative interest coverage {} (EBIT / interest \
+                     expense); a synthetic rating from coverage is not meaningful for a loss, so \
+                     give the cost of debt (debt.source = \"given\") or a rating",
+                    ebit / interest
+                ));
+            }
+        }
+    }
+    let leverage = &case.leverage;
+    if leverage.debt_beta_source == DebtBetaSource::Given {
+        rate("leverage.debt_beta", leverage.debt_beta, -1.0, 3.0)?;
     }
     Ok(())
 }

@@ -11,6 +11,7 @@ pub mod beta;
 pub mod case;
 pub mod cost;
 pub mod data;
+pub mod debt;
 pub mod demo;
 pub mod error;
 pub mod format;

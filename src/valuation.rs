@@ -9,11 +9,12 @@ use chrono::NaiveDate;
 use serde::Serialize;
 
 use crate::beta::{self, BetaEstimate};
-use crate::case::{Case, CaseFile};
+use crate::case::{Case, CaseFile, DebtBetaSource, DebtSource};
 use crate::cost;
 use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
+use crate::debt::{self, CostOfDebtRecord, SpreadTable};
 use crate::error::{Error, Result};
-use crate::leverage::CapitalStructure;
+use crate::leverage::{self, CapitalStructure, DebtTerms, Formula};
 use crate::sampling::{self, AlignedReturns, DroppedPeriods, PeriodGrid};
 use crate::stats::{self, Dispersion};
 
@@ -28,6 +29,8 @@ pub struct Inputs {
     pub risk_free: Option<DataFile>,
     /// In the order of the case's `[[peer]]` tables.
     pub peers: Vec<DataFile>,
+    /// The rating or coverage spread table `[debt]` names, when its source needs one.
+    pub debt_table: Option<SpreadTable>,
 }
 
 /// Reads every data file a case names, resolving paths against the case file's folder.
@@ -67,11 +70,28 @@ pub fn load_inputs(case: Case) -> Result<Inputs> {
             )
         })
         .collect::<Result<Vec<_>>>()?;
+    let debt_settings = &settings.debt;
+    let debt_table = match debt_settings.source {
+        DebtSource::Given => None,
+        DebtSource::Rating | DebtSource::Coverage => {
+            let (written, coverage) = match debt_settings.source {
+                DebtSource::Rating => (&debt_settings.rating_table, false),
+                _ => (&debt_settings.coverage_table, true),
+            };
+            let written = written.as_deref().expect("validate() requires the table");
+            Some(debt::read_spread_table(
+                written,
+                &case.resolve(written),
+                coverage,
+            )?)
+        }
+    };
     Ok(Inputs {
         case,
         index,
         risk_free,
         peers,
+        debt_table,
     })
 }
 
@@ -133,6 +153,11 @@ pub struct PeerResult {
     pub debt_to_equity: f64,
     pub tax_rate: f64,
     pub unlevered_beta: f64,
+    /// The debt beta used in unlevering (0 when none; Hamada never uses one).
+    pub debt_beta: f64,
+    /// The peer's pre-tax cost of debt used by Miles–Ezzell and the credit-spread debt beta:
+    /// its own `cost_of_debt`, else the subject's.
+    pub cost_of_debt: f64,
 }
 
 /// Aggregation and relevering.
@@ -140,6 +165,8 @@ pub struct PeerResult {
 pub struct BetaSummary {
     pub formula: crate::leverage::Formula,
     pub formula_source: &'static str,
+    /// The relevering relation, as printed in the memo.
+    pub formula_expression: &'static str,
     pub aggregation: stats::Aggregation,
     /// The aggregate unlevered beta that is relevered.
     pub unlevered: f64,
@@ -200,6 +227,12 @@ pub struct Valuation {
     pub wacc: f64,
     /// Each capital component's share of the WACC (weight × cost); they sum to `wacc`.
     pub wacc_contributions: Weights,
+    /// The debt beta used in relevering at the target (0 when none).
+    pub subject_debt_beta: f64,
+    /// How the pre-tax cost of debt was arrived at: source, table and row used.
+    pub cost_of_debt: CostOfDebtRecord,
+    /// The relevered beta, cost of equity and WACC under every leverage formula, same inputs.
+    pub leverage_comparison: Vec<FormulaOutcome>,
     /// Plain-language remarks about the data that a reviewer should see.
     pub notes: Vec<String>,
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
@@ -316,45 +349,79 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             cash: spec.cash,
             debt_to_equity: structure.debt_to_equity,
             tax_rate: spec.tax_rate,
-            unlevered_beta: settings.leverage.formula.unlever(beta_used, structure),
+            // Set after the loop by `capital_chain`, once the cost of debt is known.
+            unlevered_beta: f64::NAN,
+            debt_beta: 0.0,
+            cost_of_debt: f64::NAN,
             estimate,
         });
         returns.push(aligned);
     }
 
-    let unlevered: Vec<f64> = peers.iter().map(|p| p.unlevered_beta).collect();
-    let unlevered_dispersion = stats::dispersion(&unlevered);
-    let aggregate = settings.leverage.aggregation.pick(&unlevered_dispersion);
+    let market = &settings.market;
+    let premiums = &settings.premiums;
+    let cost_of_debt = debt::cost_of_debt(
+        &settings.debt,
+        inputs.debt_table.as_ref(),
+        market.risk_free_rate,
+    )
+    .map_err(|message| Error::Case {
+        file: case.path.clone(),
+        message,
+    })?;
+    let cost_of_debt_pre_tax = cost_of_debt.pre_tax;
+    assign_debt_terms(&mut peers, settings, cost_of_debt_pre_tax);
     let target_de = case.target_debt_to_equity();
     let tax_rate = settings.target.tax_rate;
-    let relevered = settings.leverage.formula.relever(
-        aggregate,
-        CapitalStructure {
+    let subject_debt = DebtTerms {
+        debt_beta: subject_debt_beta(settings, cost_of_debt_pre_tax),
+        cost_of_debt: cost_of_debt_pre_tax,
+    };
+    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(target_de);
+    let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
+    let chain_inputs = ChainInputs {
+        target: CapitalStructure {
             debt_to_equity: target_de,
             tax_rate,
         },
-    );
-    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(target_de);
-    let market = &settings.market;
-    let premiums = &settings.premiums;
-    let cost_of_equity = cost::capm_cost_of_equity(
-        market.risk_free_rate,
-        relevered,
-        market.equity_risk_premium,
-        premiums.total(),
-    );
-    let cost_of_debt_pre_tax = settings.debt.cost_pre_tax;
-    let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
-    let wacc = cost::wacc(
-        equity_weight,
-        cost_of_equity,
-        debt_weight,
+        subject_debt,
+        weights: Weights {
+            equity: equity_weight,
+            debt: debt_weight,
+        },
         cost_of_debt_after_tax,
-    );
+    };
+    let leverage_comparison: Vec<FormulaOutcome> = Formula::ALL
+        .iter()
+        .map(|&formula| capital_chain(formula, &peers, settings, &chain_inputs))
+        .collect();
+    let chosen = leverage_comparison
+        .iter()
+        .find(|outcome| outcome.formula == settings.leverage.formula)
+        .expect("Formula::ALL holds every formula")
+        .clone();
+    for (peer, &unlevered) in peers.iter_mut().zip(&chosen.peer_unlevered_betas) {
+        peer.unlevered_beta = unlevered;
+    }
+    check_debt_betas(case, &peers, &chosen, subject_debt.debt_beta)?;
+    let unlevered_dispersion = chosen.unlevered_dispersion;
+    let aggregate = chosen.unlevered;
+    let relevered = chosen.relevered;
+    let cost_of_equity = chosen.cost_of_equity;
+    let wacc = chosen.wacc;
     let wacc_contributions = Weights {
         equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
         debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
     };
+    if settings.leverage.formula == Formula::Hamada
+        && settings.leverage.debt_beta_source != DebtBetaSource::None
+    {
+        notes.push(
+            "Hamada (1972) assumes riskless debt, so the debt betas are not used in the \
+             figures; Conine (1980) is Hamada with a debt beta (see the formula comparison)."
+                .to_string(),
+        );
+    }
 
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());
@@ -394,6 +461,7 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         beta: BetaSummary {
             formula: settings.leverage.formula,
             formula_source: settings.leverage.formula.citation(),
+            formula_expression: settings.leverage.formula.expression(),
             aggregation: settings.leverage.aggregation,
             unlevered: aggregate,
             unlevered_dispersion,
@@ -422,6 +490,9 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             total: premiums.total(),
         },
         beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
+        subject_debt_beta: subject_debt.debt_beta,
+        cost_of_debt,
+        leverage_comparison,
         cost_of_equity,
         cost_of_debt_pre_tax,
         cost_of_debt_after_tax,
@@ -430,4 +501,169 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         notes,
         returns,
     })
+}
+
+/// The figures of one leverage formula, from the peers' betas to the WACC.
+#[derive(Debug, Clone, Serialize)]
+pub struct FormulaOutcome {
+    pub formula: Formula,
+    pub formula_source: &'static str,
+    pub expression: &'static str,
+    /// Whether this is the formula the case uses.
+    pub in_use: bool,
+    /// Each peer's unlevered beta under this formula, in peer order.
+    pub peer_unlevered_betas: Vec<f64>,
+    #[serde(skip)]
+    pub unlevered_dispersion: Dispersion,
+    pub unlevered: f64,
+    pub relevered: f64,
+    pub cost_of_equity: f64,
+    pub wacc: f64,
+}
+
+/// What every formula's chain shares: the target, the subject's debt and the WACC weights.
+struct ChainInputs {
+    target: CapitalStructure,
+    subject_debt: DebtTerms,
+    weights: Weights,
+    cost_of_debt_after_tax: f64,
+}
+
+/// Unlevers every peer with `formula`, aggregates, relevers at the target and builds the cost
+/// of equity and the WACC: the one path from peer betas to the WACC, for the case's formula and
+/// for the comparison alike.
+fn capital_chain(
+    formula: Formula,
+    peers: &[PeerResult],
+    settings: &CaseFile,
+    inputs: &ChainInputs,
+) -> FormulaOutcome {
+    let peer_unlevered_betas: Vec<f64> = peers
+        .iter()
+        .map(|peer| {
+            formula.unlever_with(
+                peer.beta_used,
+                CapitalStructure {
+                    debt_to_equity: peer.debt_to_equity,
+                    tax_rate: peer.tax_rate,
+                },
+                DebtTerms {
+                    debt_beta: peer.debt_beta,
+                    cost_of_debt: peer.cost_of_debt,
+                },
+            )
+        })
+        .collect();
+    let (unlevered_dispersion, unlevered) =
+        aggregate_unlevered(peers, &peer_unlevered_betas, settings);
+    let relevered = formula.relever_with(unlevered, inputs.target, inputs.subject_debt);
+    let market = &settings.market;
+    let cost_of_equity = cost::capm_cost_of_equity(
+        market.risk_free_rate,
+        relevered,
+        market.equity_risk_premium,
+        settings.premiums.total(),
+    );
+    let wacc = cost::wacc(
+        inputs.weights.equity,
+        cost_of_equity,
+        inputs.weights.debt,
+        inputs.cost_of_debt_after_tax,
+    );
+    FormulaOutcome {
+        formula,
+        formula_source: formula.citation(),
+        expression: formula.expression(),
+        in_use: formula == settings.leverage.formula,
+        peer_unlevered_betas,
+        unlevered_dispersion,
+        unlevered,
+        relevered,
+        cost_of_equity,
+        wacc,
+    }
+}
+
+/// The aggregate of the peers' unlevered betas and their dispersion. The one place the peers
+/// are aggregated (a filter on the peers belongs here).
+fn aggregate_unlevered(
+    _peers: &[PeerResult],
+    unlevered: &[f64],
+    settings: &CaseFile,
+) -> (Dispersion, f64) {
+    let dispersion = stats::dispersion(unlevered);
+    (dispersion, settings.leverage.aggregation.pick(&dispersion))
+}
+
+/// Sets each peer's debt beta and cost of debt from `[leverage]` and the peer's own keys.
+fn assign_debt_terms(peers: &mut [PeerResult], settings: &CaseFile, subject_cost_of_debt: f64) {
+    let leverage = &settings.leverage;
+    let market = &settings.market;
+    for (peer, spec) in peers.iter_mut().zip(&settings.peers) {
+        peer.cost_of_debt = spec.cost_of_debt.unwrap_or(subject_cost_of_debt);
+        peer.debt_beta = match leverage.debt_beta_source {
+            DebtBetaSource::None => 0.0,
+            DebtBetaSource::Given => spec.debt_beta.unwrap_or(leverage.debt_beta),
+            DebtBetaSource::CreditSpread => spec.debt_beta.unwrap_or_else(|| {
+                leverage::debt_beta_from_spread(
+                    peer.cost_of_debt,
+                    market.risk_free_rate,
+                    market.equity_risk_premium,
+                )
+            }),
+        };
+    }
+}
+
+/// The subject's debt beta at the target structure.
+fn subject_debt_beta(settings: &CaseFile, cost_of_debt: f64) -> f64 {
+    let leverage = &settings.leverage;
+    let market = &settings.market;
+    match leverage.debt_beta_source {
+        DebtBetaSource::None => 0.0,
+        DebtBetaSource::Given => leverage.debt_beta,
+        DebtBetaSource::CreditSpread => leverage::debt_beta_from_spread(
+            cost_of_debt,
+            market.risk_free_rate,
+            market.equity_risk_premium,
+        ),
+    }
+}
+
+/// Debt cannot be riskier than the equity it ranks ahead of: a debt beta above a peer's equity
+/// beta (or above the aggregate asset beta the subject is relevered from) is an input error.
+fn check_debt_betas(
+    case: &Case,
+    peers: &[PeerResult],
+    chosen: &FormulaOutcome,
+    subject_debt_beta: f64,
+) -> Result<()> {
+    if chosen.formula == Formula::Hamada {
+        return Ok(());
+    }
+    for peer in peers {
+        if peer.debt_beta > peer.beta_used {
+            return Err(Error::Estimation {
+                peer: peer.name.clone(),
+                message: format!(
+                    "debt beta {} is above the equity beta used {}; debt ranks ahead of equity \
+                     and cannot carry more systematic risk (check leverage.debt_beta, the peer's \
+                     debt_beta or cost_of_debt)",
+                    peer.debt_beta, peer.beta_used
+                ),
+            });
+        }
+    }
+    if subject_debt_beta > chosen.unlevered {
+        return Err(Error::Case {
+            file: case.path.clone(),
+            message: format!(
+                "the subject's debt beta {subject_debt_beta} (leverage.debt_beta_source = {:?}) \
+                 is above the aggregate unlevered beta {}, so relevering would lower the equity \
+                 beta below the asset beta",
+                case.settings.leverage.debt_beta_source, chosen.unlevered
+            ),
+        });
+    }
+    Ok(())
 }

@@ -32,6 +32,11 @@ def check(label, ours, reference, tolerance=TOLERANCE):
         failures.append(f"{label}: hurdle {ours!r} vs reference {reference!r}")
 
 
+def tax_factor(formula, t, kd):
+    """The factor s in beta_L = beta_U + (beta_U - beta_D) * s * D/E."""
+    return {"hamada": 1 - t, "conine": 1 - t, "harris-pringle": 1.0, "miles-ezzell": 1 - t * kd / (1 + kd)}[formula]
+
+
 def main(out_dir):
     with open(f"{out_dir}/result.json") as f:
         result = json.load(f)
@@ -95,6 +100,15 @@ def main(out_dir):
         check(f"{name} D/E", peer["debt_to_equity"], de)
         if result["beta"]["formula"] == "hamada":
             check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
+        else:
+            # Harris-Pringle (1985), Miles-Ezzell (1980), Conine (1980), solved for the asset beta.
+            bd = peer["debt_beta"]
+            if result["settings"]["leverage"]["debt_beta_source"] == "credit-spread" and "debt_beta" not in spec:
+                # The CAPM solved for the beta of debt priced at Kd: (Kd - rf) / ERP.
+                kd = spec.get("cost_of_debt", result["cost_of_debt_pre_tax"])
+                check(f"{name} debt beta from spread", bd, (kd - result["risk_free_rate"]) / result["equity_risk_premium"])
+            s = tax_factor(result["beta"]["formula"], spec["tax_rate"], peer["cost_of_debt"])
+            check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
     unlevered = np.array([p["unlevered_beta"] for p in result["peers"]])
     aggregate = {"median": np.median(unlevered), "mean": np.mean(unlevered)}[result["beta"]["aggregation"]]
@@ -106,7 +120,10 @@ def main(out_dir):
 
     target = result["target"]
     de, t = target["debt_to_equity"], target["tax_rate"]
-    relevered = aggregate * (1 + (1 - t) * de)
+    formula = result["beta"]["formula"]
+    bd = 0.0 if formula == "hamada" else result["subject_debt_beta"]
+    s = tax_factor(formula, t, result["cost_of_debt_pre_tax"])
+    relevered = aggregate + (aggregate - bd) * s * de
     check("relevered beta", result["beta"]["relevered"], relevered)
     p = result["premiums"]
     ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + p["size"] + p["country"] + p["company_specific"]
