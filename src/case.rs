@@ -141,6 +141,31 @@ pub struct LeverageSettings {
     /// The debt beta of the subject and of every peer without its own, when the source is
     /// `given`.
     pub debt_beta: f64,
+    /// Fraction of the unlevered betas cut from each end by `aggregation = "trimmed-mean"`.
+    pub trim_fraction: f64,
+    /// Aggregate the cash-corrected unlevered betas βU / (1 − cash / (equity + debt)).
+    pub cash_correction: bool,
+    /// Gross debt, or debt net of cash, in every D/E (peers and the subject's own structure).
+    pub debt_measure: DebtMeasure,
+}
+
+/// `leverage.debt_measure`: the debt in D/E.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtMeasure {
+    Gross,
+    /// Debt minus cash; may be negative for a firm holding more cash than debt.
+    Net,
+}
+
+impl DebtMeasure {
+    /// The debt counted in D/E.
+    pub fn debt(self, debt: f64, cash: f64) -> f64 {
+        match self {
+            DebtMeasure::Gross => debt,
+            DebtMeasure::Net => debt - cash,
+        }
+    }
 }
 
 impl Default for LeverageSettings {
@@ -150,6 +175,9 @@ impl Default for LeverageSettings {
             aggregation: Aggregation::Median,
             debt_beta_source: DebtBetaSource::None,
             debt_beta: 0.0,
+            trim_fraction: 0.1,
+            cash_correction: false,
+            debt_measure: DebtMeasure::Gross,
         }
     }
 }
@@ -178,6 +206,31 @@ pub struct TargetSettings {
     pub debt_to_capital: Option<f64>,
     /// Marginal tax rate of the subject, used for relevering and the debt tax shield.
     pub tax_rate: f64,
+    /// Where the target structure comes from (default: the explicit ratio).
+    #[serde(default)]
+    pub source: TargetSource,
+    /// The subject's current market value of equity (source `subject`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subject_equity_value: Option<f64>,
+    /// The subject's current debt, same unit (source `subject`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subject_debt: Option<f64>,
+    /// The subject's cash, same unit (source `subject` with net debt).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subject_cash: Option<f64>,
+}
+
+/// `target.source`: where the target D/E comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TargetSource {
+    /// `target.debt_to_equity` or `target.debt_to_capital`.
+    #[default]
+    Explicit,
+    /// The median of the peers' D/E (with `leverage.debt_measure`).
+    PeerMedian,
+    /// The subject's own current structure, `subject_debt / subject_equity_value`.
+    Subject,
 }
 
 /// `[debt]`: the subject's cost of debt.
@@ -333,6 +386,26 @@ impl Case {
     /// The target debt-to-equity ratio, whichever of the two ratios the case gives.
     pub fn target_debt_to_equity(&self) -> f64 {
         let target = &self.settings.target;
+        let measure = self.settings.leverage.debt_measure;
+        match target.source {
+            TargetSource::Explicit => {}
+            TargetSource::PeerMedian => {
+                let ratios: Vec<f64> = self
+                    .settings
+                    .peers
+                    .iter()
+                    .map(|p| measure.debt(p.debt, p.cash) / p.equity_value)
+                    .collect();
+                return crate::stats::dispersion(&ratios).median;
+            }
+            TargetSource::Subject => {
+                let debt = measure.debt(
+                    target.subject_debt.unwrap_or(0.0),
+                    target.subject_cash.unwrap_or(0.0),
+                );
+                return debt / target.subject_equity_value.expect("validated");
+            }
+        }
         match (target.debt_to_equity, target.debt_to_capital) {
             (Some(de), _) => de,
             (None, Some(dc)) => dc / (1.0 - dc),
@@ -525,7 +598,9 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         ));
     }
     let target = &case.target;
+    validate_structure(case)?;
     match (target.debt_to_equity, target.debt_to_capital) {
+        (None, None) if target.source != TargetSource::Explicit => {}
         (Some(_), Some(_)) => {
             return Err(
                 "target.debt_to_equity and target.debt_to_capital are both given; keep one".into(),
@@ -591,6 +666,65 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
                 ));
             }
             rate(&key("debt_beta"), debt_beta, -1.0, 3.0)?;
+        }
+    }
+    Ok(())
+}
+
+/// `[leverage]` aggregation and cash keys, and the keys of the target sources.
+fn validate_structure(case: &CaseFile) -> std::result::Result<(), String> {
+    let leverage = &case.leverage;
+    rate("leverage.trim_fraction", leverage.trim_fraction, 0.0, 0.5)?;
+    if leverage.cash_correction && leverage.debt_measure == DebtMeasure::Net {
+        return Err(
+            "leverage.cash_correction = true with leverage.debt_measure = \"net\" would \
+                    count cash twice; use one of them"
+                .into(),
+        );
+    }
+    let target = &case.target;
+    if target.source == TargetSource::Subject {
+        match target.subject_equity_value {
+            Some(e) if e.is_finite() && e > 0.0 => {}
+            other => {
+                return Err(format!(
+                    "target.subject_equity_value = {} must be given and positive when \
+                     target.source = \"subject\"",
+                    other.map_or("(missing)".to_string(), |e| e.to_string())
+                ))
+            }
+        }
+        for (key, value) in [
+            ("target.subject_debt", target.subject_debt),
+            ("target.subject_cash", target.subject_cash),
+        ] {
+            if let Some(v) = value {
+                if !(v.is_finite() && v >= 0.0) {
+                    return Err(format!("{key} = {v} is negative"));
+                }
+            }
+        }
+        if target.subject_debt.is_none() {
+            return Err("target.subject_debt is required when target.source = \"subject\"".into());
+        }
+    }
+    for (i, peer) in case.peers.iter().enumerate() {
+        let net = DebtMeasure::Net.debt(peer.debt, peer.cash);
+        if leverage.debt_measure == DebtMeasure::Net && net <= -peer.equity_value {
+            return Err(format!(
+                "peer.{i} (peer \"{}\"): net debt {net} (debt − cash) is at or below minus its \
+                 equity_value {}, a net D/E at or below −1 that no leverage formula can unlever",
+                peer.name, peer.equity_value
+            ));
+        }
+        if leverage.cash_correction && peer.cash >= peer.equity_value + peer.debt {
+            return Err(format!(
+                "peer.{i}.cash = {} (peer \"{}\") is not below equity_value + debt = {}, so the \
+                 cash correction 1 / (1 − cash / (equity + debt)) is undefined",
+                peer.cash,
+                peer.name,
+                peer.equity_value + peer.debt
+            ));
         }
     }
     Ok(())

@@ -311,6 +311,10 @@ aggregation = "median"
 [target]
 debt_to_equity = 0.40
 tax_rate = 0.25
+# For target.source = "subject" (the subject's own current structure); illustrative.
+subject_equity_value = 1500.0
+subject_debt = 450.0
+subject_cash = 80.0
 
 [debt]
 source = "given"              # or "rating" or "coverage", e.g. --set debt.source=coverage

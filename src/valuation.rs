@@ -9,7 +9,7 @@ use chrono::NaiveDate;
 use serde::Serialize;
 
 use crate::beta::{self, BetaEstimate};
-use crate::case::{Case, CaseFile, DebtBetaSource, DebtSource};
+use crate::case::{Case, CaseFile, DebtBetaSource, DebtSource, TargetSource};
 use crate::cost;
 use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
 use crate::debt::{self, CostOfDebtRecord, SpreadTable};
@@ -158,6 +158,11 @@ pub struct PeerResult {
     /// The peer's pre-tax cost of debt used by Miles–Ezzell and the credit-spread debt beta:
     /// its own `cost_of_debt`, else the subject's.
     pub cost_of_debt: f64,
+    /// βU / (1 − cash / (equity + debt)), the unlevered beta of the operating assets alone
+    /// (gross debt); aggregated instead of `unlevered_beta` when `leverage.cash_correction`.
+    pub cash_corrected_unlevered_beta: f64,
+    /// cash / (equity + debt), gross debt: the share of capital the cash correction removes.
+    pub cash_share_of_capital: f64,
 }
 
 /// Aggregation and relevering.
@@ -174,6 +179,16 @@ pub struct BetaSummary {
     pub unlevered_dispersion: Dispersion,
     /// The aggregate relevered at the target structure.
     pub relevered: f64,
+    /// Whether the cash-corrected unlevered betas are the ones aggregated.
+    pub cash_corrected: bool,
+    /// The aggregate of the plain unlevered betas and of the cash-corrected ones (same statistic);
+    /// `unlevered` is one of the two.
+    pub unlevered_plain: f64,
+    pub unlevered_cash_corrected: f64,
+    /// Median, mean, market-cap-weighted mean and trimmed mean of the betas aggregated.
+    pub unlevered_statistics: stats::Locations,
+    /// Gross debt or net of cash in every D/E.
+    pub debt_measure: crate::case::DebtMeasure,
 }
 
 /// The target capital structure, both ratios, whichever was given.
@@ -353,6 +368,8 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             unlevered_beta: f64::NAN,
             debt_beta: 0.0,
             cost_of_debt: f64::NAN,
+            cash_corrected_unlevered_beta: f64::NAN,
+            cash_share_of_capital: spec.cash / (spec.equity_value + spec.debt),
             estimate,
         });
         returns.push(aligned);
@@ -400,8 +417,9 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         .find(|outcome| outcome.formula == settings.leverage.formula)
         .expect("Formula::ALL holds every formula")
         .clone();
-    for (peer, &unlevered) in peers.iter_mut().zip(&chosen.peer_unlevered_betas) {
-        peer.unlevered_beta = unlevered;
+    for (i, peer) in peers.iter_mut().enumerate() {
+        peer.unlevered_beta = chosen.peer_unlevered_betas[i];
+        peer.cash_corrected_unlevered_beta = chosen.peer_cash_corrected_unlevered_betas[i];
     }
     check_debt_betas(case, &peers, &chosen, subject_debt.debt_beta)?;
     let unlevered_dispersion = chosen.unlevered_dispersion;
@@ -413,6 +431,17 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
         debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
     };
+    if settings.target.source != TargetSource::Explicit
+        && (settings.target.debt_to_equity.is_some() || settings.target.debt_to_capital.is_some())
+    {
+        notes.push(format!(
+            "target.source = {}: the target ratio written in [target] is not used.",
+            match settings.target.source {
+                TargetSource::PeerMedian => "peer-median",
+                _ => "subject",
+            }
+        ));
+    }
     if settings.leverage.formula == Formula::Hamada
         && settings.leverage.debt_beta_source != DebtBetaSource::None
     {
@@ -466,12 +495,20 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             unlevered: aggregate,
             unlevered_dispersion,
             relevered,
+            cash_corrected: settings.leverage.cash_correction,
+            unlevered_plain: chosen.unlevered_plain,
+            unlevered_cash_corrected: chosen.unlevered_cash_corrected,
+            unlevered_statistics: chosen.unlevered_statistics,
+            debt_measure: settings.leverage.debt_measure,
         },
         target: TargetRecord {
-            given: if settings.target.debt_to_equity.is_some() {
-                "debt_to_equity"
-            } else {
-                "debt_to_capital"
+            given: match settings.target.source {
+                TargetSource::PeerMedian => "peer_median",
+                TargetSource::Subject => "subject_current",
+                TargetSource::Explicit if settings.target.debt_to_equity.is_some() => {
+                    "debt_to_equity"
+                }
+                TargetSource::Explicit => "debt_to_capital",
             },
             debt_to_equity: target_de,
             debt_to_capital: debt_weight,
@@ -513,8 +550,18 @@ pub struct FormulaOutcome {
     pub in_use: bool,
     /// Each peer's unlevered beta under this formula, in peer order.
     pub peer_unlevered_betas: Vec<f64>,
+    /// The same corrected for cash, βU / (1 − cash / (equity + debt)).
+    pub peer_cash_corrected_unlevered_betas: Vec<f64>,
     #[serde(skip)]
     pub unlevered_dispersion: Dispersion,
+    /// Every location statistic of the betas aggregated (cash-corrected or not, as the case says).
+    #[serde(skip)]
+    pub unlevered_statistics: stats::Locations,
+    /// The aggregate of the plain and of the cash-corrected unlevered betas.
+    #[serde(skip)]
+    pub unlevered_plain: f64,
+    #[serde(skip)]
+    pub unlevered_cash_corrected: f64,
     pub unlevered: f64,
     pub relevered: f64,
     pub cost_of_equity: f64,
@@ -554,8 +601,28 @@ fn capital_chain(
             )
         })
         .collect();
-    let (unlevered_dispersion, unlevered) =
+    let peer_cash_corrected_unlevered_betas: Vec<f64> = peers
+        .iter()
+        .zip(&peer_unlevered_betas)
+        .map(|(peer, &unlevered)| cash_corrected(unlevered, peer))
+        .collect();
+    let (plain_dispersion, plain_statistics) =
         aggregate_unlevered(peers, &peer_unlevered_betas, settings);
+    let (corrected_dispersion, corrected_statistics) =
+        aggregate_unlevered(peers, &peer_cash_corrected_unlevered_betas, settings);
+    let aggregation = settings.leverage.aggregation;
+    let unlevered_plain = aggregation.select(&plain_statistics);
+    let unlevered_cash_corrected = aggregation.select(&corrected_statistics);
+    let (unlevered_dispersion, unlevered_statistics, unlevered) =
+        if settings.leverage.cash_correction {
+            (
+                corrected_dispersion,
+                corrected_statistics,
+                unlevered_cash_corrected,
+            )
+        } else {
+            (plain_dispersion, plain_statistics, unlevered_plain)
+        };
     let relevered = formula.relever_with(unlevered, inputs.target, inputs.subject_debt);
     let market = &settings.market;
     let cost_of_equity = cost::capm_cost_of_equity(
@@ -576,7 +643,11 @@ fn capital_chain(
         expression: formula.expression(),
         in_use: formula == settings.leverage.formula,
         peer_unlevered_betas,
+        peer_cash_corrected_unlevered_betas,
         unlevered_dispersion,
+        unlevered_statistics,
+        unlevered_plain,
+        unlevered_cash_corrected,
         unlevered,
         relevered,
         cost_of_equity,
@@ -584,22 +655,35 @@ fn capital_chain(
     }
 }
 
-/// The aggregate of the peers' unlevered betas and their dispersion. The one place the peers
-/// are aggregated (a filter on the peers belongs here).
+/// The dispersion and every location statistic of the peers' unlevered betas (`unlevered`, in
+/// peer order). The one place the peers are aggregated (a filter on the peers belongs here).
 fn aggregate_unlevered(
-    _peers: &[PeerResult],
+    peers: &[PeerResult],
     unlevered: &[f64],
     settings: &CaseFile,
-) -> (Dispersion, f64) {
-    let dispersion = stats::dispersion(unlevered);
-    (dispersion, settings.leverage.aggregation.pick(&dispersion))
+) -> (Dispersion, stats::Locations) {
+    let market_caps: Vec<f64> = peers.iter().map(|p| p.equity_value).collect();
+    (
+        stats::dispersion(unlevered),
+        stats::locations(unlevered, &market_caps, settings.leverage.trim_fraction),
+    )
 }
 
-/// Sets each peer's debt beta and cost of debt from `[leverage]` and the peer's own keys.
+/// Cash-corrected unlevered beta, βU / (1 − cash / (equity + debt)): the unlevered beta is a
+/// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
+/// non-cash share leaves the operating assets' beta (common practice; e.g. Damodaran,
+/// Investment Valuation, Wiley, from memory). Uses gross debt.
+fn cash_corrected(unlevered: f64, peer: &PeerResult) -> f64 {
+    unlevered / (1.0 - peer.cash_share_of_capital)
+}
+
+/// Sets each peer's D/E (gross or net debt), debt beta and cost of debt from `[leverage]` and
+/// the peer's own keys.
 fn assign_debt_terms(peers: &mut [PeerResult], settings: &CaseFile, subject_cost_of_debt: f64) {
     let leverage = &settings.leverage;
     let market = &settings.market;
     for (peer, spec) in peers.iter_mut().zip(&settings.peers) {
+        peer.debt_to_equity = leverage.debt_measure.debt(spec.debt, spec.cash) / spec.equity_value;
         peer.cost_of_debt = spec.cost_of_debt.unwrap_or(subject_cost_of_debt);
         peer.debt_beta = match leverage.debt_beta_source {
             DebtBetaSource::None => 0.0,

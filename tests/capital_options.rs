@@ -45,6 +45,22 @@ fn fails(sets: &[&str]) -> String {
     String::from_utf8_lossy(&output.stderr).into_owned()
 }
 
+/// Runs tests/reference/check_regressions.py (numpy, scipy, textbook formulas) on a run's output.
+fn reference_check(out: &Path, label: &str) {
+    let script = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/check_regressions.py"
+    );
+    let output = Command::new("python3")
+        .arg(script)
+        .arg(out)
+        .output()
+        .expect("python3 must be installed for the reference check");
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    assert!(output.status.success(), "{label}: {stdout}");
+    assert!(stdout.contains(" 0 failed"), "{label}: {stdout}");
+}
+
 fn number(v: &serde_json::Value, path: &str) -> f64 {
     path.split('.')
         .fold(v, |v, key| &v[key])
@@ -125,10 +141,6 @@ fn conine_equals_hamada_only_without_a_debt_beta() {
 /// formula with the credit-spread debt beta.
 #[test]
 fn the_reference_check_agrees_under_every_formula() {
-    let script = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/reference/check_regressions.py"
-    );
     for formula in FORMULAS {
         let dir = tempfile::tempdir().unwrap();
         run_demo(
@@ -138,15 +150,59 @@ fn the_reference_check_agrees_under_every_formula() {
                 "leverage.debt_beta_source=credit-spread",
             ],
         );
-        let output = Command::new("python3")
-            .arg(script)
-            .arg(dir.path())
-            .output()
-            .expect("python3 must be installed for the reference check");
-        let stdout = String::from_utf8_lossy(&output.stdout);
-        assert!(output.status.success(), "{formula}: {stdout}");
-        assert!(stdout.contains(" 0 failed"), "{formula}: {stdout}");
+        reference_check(dir.path(), formula);
     }
+}
+
+/// The reference check (numpy average, scipy trim_mean, the cash correction, net debt and the
+/// target sources written out in Python) under the aggregation and structure options.
+#[test]
+fn the_reference_check_agrees_under_the_aggregation_and_structure_options() {
+    for sets in [
+        &["leverage.aggregation=mean", "leverage.cash_correction=true"][..],
+        &[
+            "leverage.aggregation=market-cap-weighted",
+            "leverage.debt_measure=net",
+        ][..],
+        &[
+            "leverage.aggregation=trimmed-mean",
+            "leverage.trim_fraction=0.2",
+            "target.source=peer-median",
+        ][..],
+        &[
+            "target.source=subject",
+            "leverage.debt_measure=net",
+            "leverage.formula=miles-ezzell",
+        ][..],
+    ] {
+        let dir = tempfile::tempdir().unwrap();
+        run_demo(dir.path(), sets);
+        reference_check(dir.path(), &format!("{sets:?}"));
+    }
+}
+
+// The subject's own structure in the demo case: debt 450, cash 80, equity 1500.
+// Gross: 450 / 1500 = 0.3; net: (450 − 80) / 1500 = 370 / 1500 = 0.24666….
+#[test]
+fn the_target_can_be_the_subjects_own_structure() {
+    let dir = tempfile::tempdir().unwrap();
+    let gross = run_demo(dir.path(), &["target.source=subject"]);
+    // 1e-15: one division.
+    assert!((number(&gross, "target.debt_to_equity") - 0.3).abs() < 1e-15);
+    assert_eq!(gross["target"]["given"], "subject_current");
+    let net = run_demo(
+        dir.path(),
+        &["target.source=subject", "leverage.debt_measure=net"],
+    );
+    assert!((number(&net, "target.debt_to_equity") - 370.0 / 1500.0).abs() < 1e-15);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("the subject's own current structure"));
+}
+
+#[test]
+fn cash_counted_twice_is_refused() {
+    let message = fails(&["leverage.cash_correction=true", "leverage.debt_measure=net"]);
+    assert!(message.contains("count cash twice"), "{message}");
 }
 
 #[test]

@@ -97,6 +97,8 @@ def main(out_dir):
         check(f"{name} beta used", peer["beta_used"], used)
         spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
         de = spec["debt"] / spec["equity_value"]
+        if result["settings"]["leverage"]["debt_measure"] == "net":
+            de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
         check(f"{name} D/E", peer["debt_to_equity"], de)
         if result["beta"]["formula"] == "hamada":
             check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
@@ -111,7 +113,29 @@ def main(out_dir):
             check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
     unlevered = np.array([p["unlevered_beta"] for p in result["peers"]])
-    aggregate = {"median": np.median(unlevered), "mean": np.mean(unlevered)}[result["beta"]["aggregation"]]
+    leverage = result["settings"]["leverage"]
+    specs = {p["name"]: p for p in result["settings"]["peer"]}
+    # Cash-corrected unlevered beta: beta_U / (1 - cash / (equity + debt)), gross debt.
+    corrected = np.array([
+        p["unlevered_beta"] / (1 - specs[p["name"]]["cash"] / (specs[p["name"]]["equity_value"] + specs[p["name"]]["debt"]))
+        for p in result["peers"]
+    ])
+    for p, c in zip(result["peers"], corrected):
+        check(f"{p['name']} cash-corrected unlevered", p["cash_corrected_unlevered_beta"], c)
+    if leverage["cash_correction"]:
+        unlevered = corrected
+    caps = np.array([specs[p["name"]]["equity_value"] for p in result["peers"]])
+    statistics = {
+        "median": np.median(unlevered),
+        "mean": np.mean(unlevered),
+        "market-cap-weighted": np.average(unlevered, weights=caps),
+        "trimmed-mean": stats.trim_mean(unlevered, leverage["trim_fraction"]),
+    }
+    locations = result["beta"]["unlevered_statistics"]
+    check("mean (numpy)", locations["mean"], statistics["mean"])
+    check("market-cap-weighted mean (numpy average)", locations["market_cap_weighted_mean"], statistics["market-cap-weighted"])
+    check("trimmed mean (scipy trim_mean)", locations["trimmed_mean"], statistics["trimmed-mean"])
+    aggregate = statistics[result["beta"]["aggregation"]]
     check("aggregate unlevered beta", result["beta"]["unlevered"], aggregate)
     d = result["beta"]["unlevered_dispersion"]
     check("lower quartile (numpy)", d["lower_quartile"], np.percentile(unlevered, 25))
@@ -120,6 +144,14 @@ def main(out_dir):
 
     target = result["target"]
     de, t = target["debt_to_equity"], target["tax_rate"]
+    tset = result["settings"]["target"]
+    net = leverage["debt_measure"] == "net"
+    if tset["source"] == "peer-median":
+        ratios = [(p["debt"] - (p["cash"] if net else 0)) / p["equity_value"] for p in result["settings"]["peer"]]
+        check("target D/E (peer median)", de, np.median(ratios))
+    elif tset["source"] == "subject":
+        debt = tset["subject_debt"] - (tset.get("subject_cash", 0) if net else 0)
+        check("target D/E (subject)", de, debt / tset["subject_equity_value"])
     formula = result["beta"]["formula"]
     bd = 0.0 if formula == "hamada" else result["subject_debt_beta"]
     s = tax_factor(formula, t, result["cost_of_debt_pre_tax"])
