@@ -32,6 +32,10 @@ pub struct CaseFile {
     pub debt: DebtSettings,
     #[serde(default)]
     pub premiums: Premiums,
+    #[serde(default)]
+    pub preferred: PreferredSettings,
+    #[serde(default)]
+    pub leases: LeaseSettings,
     #[serde(rename = "peer", default)]
     pub peers: Vec<PeerSpec>,
 }
@@ -206,6 +210,9 @@ pub struct TargetSettings {
     pub debt_to_capital: Option<f64>,
     /// Marginal tax rate of the subject, used for relevering and the debt tax shield.
     pub tax_rate: f64,
+    /// Whether `tax_rate` is the marginal or the effective rate; printed in the memo.
+    #[serde(default)]
+    pub tax_rate_basis: TaxRateBasis,
     /// Where the target structure comes from (default: the explicit ratio).
     #[serde(default)]
     pub source: TargetSource,
@@ -218,6 +225,17 @@ pub struct TargetSettings {
     /// The subject's cash, same unit (source `subject` with net debt).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub subject_cash: Option<f64>,
+}
+
+/// `target.tax_rate_basis`: which tax rate the shield is computed with.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TaxRateBasis {
+    /// The statutory rate on the next unit of taxable income (common practice for the shield).
+    #[default]
+    Marginal,
+    /// Taxes paid over pre-tax income.
+    Effective,
 }
 
 /// `target.source`: where the target D/E comes from.
@@ -276,18 +294,94 @@ pub enum DebtSource {
 }
 
 /// `[premiums]`: additions to the CAPM cost of equity (annual, decimal).
-#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields, default)]
 pub struct Premiums {
     pub size: f64,
     pub country: f64,
     pub company_specific: f64,
+    /// How the country risk premium enters the cost of equity.
+    pub country_method: CountryMethod,
+    /// The subject's exposure λ to country risk, for `country_method = "lambda"`.
+    pub country_lambda: f64,
+    /// Free-text reasons for each premium, printed in the memo.
+    pub size_justification: String,
+    pub country_justification: String,
+    pub company_specific_justification: String,
+}
+
+/// `premiums.country_method`: how the country risk premium (CRP) enters the cost of equity.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CountryMethod {
+    /// + CRP.
+    #[default]
+    Added,
+    /// + λ·CRP, λ the subject's exposure (`country_lambda`).
+    Lambda,
+    /// + βL·CRP, scaled by the relevered beta.
+    Beta,
+}
+
+impl Default for Premiums {
+    fn default() -> Self {
+        Premiums {
+            size: 0.0,
+            country: 0.0,
+            company_specific: 0.0,
+            country_method: CountryMethod::Added,
+            country_lambda: 1.0,
+            size_justification: String::new(),
+            country_justification: String::new(),
+            company_specific_justification: String::new(),
+        }
+    }
 }
 
 impl Premiums {
+    /// The premiums as written, summed (the country premium unscaled).
     pub fn total(&self) -> f64 {
         self.size + self.country + self.company_specific
     }
+
+    /// The country premium as it enters the cost of equity with relevered beta `beta`: CRP,
+    /// λ·CRP, or βL·CRP.
+    pub fn country_applied(&self, beta: f64) -> f64 {
+        match self.country_method {
+            CountryMethod::Added => self.country,
+            CountryMethod::Lambda => self.country_lambda * self.country,
+            CountryMethod::Beta => beta * self.country,
+        }
+    }
+
+    /// The premiums added to the CAPM cost of equity: size + country as applied +
+    /// company-specific.
+    pub fn total_applied(&self, beta: f64) -> f64 {
+        self.size + self.country_applied(beta) + self.company_specific
+    }
+}
+
+/// `[preferred]`: preferred equity as a capital component with its own cost and weight.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct PreferredSettings {
+    /// Share of total capital (preferred / (equity + debt + preferred + leases)).
+    pub weight: f64,
+    /// Cost of preferred equity (annual, decimal), e.g. dividend / price; not tax-deductible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cost: Option<f64>,
+}
+
+/// `[leases]`: lease liabilities as a debt-like capital component.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct LeaseSettings {
+    /// Share of total capital.
+    pub weight: f64,
+    /// Pre-tax cost of the lease liabilities (the incremental borrowing rate); the subject's
+    /// pre-tax cost of debt when absent. Deductible at the target tax rate.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cost_pre_tax: Option<f64>,
 }
 
 /// One `[[peer]]` table: a comparable listed firm.
@@ -620,6 +714,7 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     }
     rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
     validate_debt(case)?;
+    validate_components(case)?;
     for (key, value) in [
         ("premiums.size", case.premiums.size),
         ("premiums.country", case.premiums.country),
@@ -627,6 +722,12 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     ] {
         rate(key, value, -0.5, 1.0)?;
     }
+    rate(
+        "premiums.country_lambda",
+        case.premiums.country_lambda,
+        0.0,
+        5.0,
+    )?;
     if case.peers.is_empty() {
         return Err("the case has no [[peer]] tables".into());
     }
@@ -667,6 +768,36 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
             rate(&key("debt_beta"), debt_beta, -1.0, 3.0)?;
         }
+    }
+    Ok(())
+}
+
+/// `[preferred]` and `[leases]`: weights in [0, 1) that leave room for equity and debt, and a cost
+/// for preferred equity that has a weight.
+fn validate_components(case: &CaseFile) -> std::result::Result<(), String> {
+    let (preferred, leases) = (&case.preferred, &case.leases);
+    rate("preferred.weight", preferred.weight, 0.0, 1.0)?;
+    rate("leases.weight", leases.weight, 0.0, 1.0)?;
+    let other = preferred.weight + leases.weight;
+    if other >= 1.0 {
+        return Err(format!(
+            "preferred.weight + leases.weight = {other} leaves no room for equity and debt; the \
+             two must sum to less than 1"
+        ));
+    }
+    match preferred.cost {
+        Some(cost) => rate("preferred.cost", cost, 0.0, 1.0)?,
+        None if preferred.weight > 0.0 => {
+            return Err(format!(
+                "preferred.cost is missing: preferred equity with preferred.weight = {} needs its \
+                 own cost (e.g. its dividend / price)",
+                preferred.weight
+            ))
+        }
+        None => {}
+    }
+    if let Some(cost) = leases.cost_pre_tax {
+        rate("leases.cost_pre_tax", cost, 0.0, 1.0)?;
     }
     Ok(())
 }

@@ -329,6 +329,8 @@ coverage_table = "data/coverage_ratings.csv"  # illustrative, invented table
 size = 0.010                  # illustrative
 country = 0.0
 company_specific = 0.0
+country_method = "added"      # or "lambda" (with country_lambda) or "beta"
+size_justification = "Illustrative: the subject is smaller than every peer (invented demo figure)."
 "#,
     );
     for peer in &PEERS {

@@ -9,7 +9,7 @@ use chrono::NaiveDate;
 use serde::Serialize;
 
 use crate::beta::{self, BetaEstimate};
-use crate::case::{Case, CaseFile, DebtBetaSource, DebtSource, TargetSource};
+use crate::case::{Case, CaseFile, CountryMethod, DebtBetaSource, DebtSource, TargetSource};
 use crate::cost;
 use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
 use crate::debt::{self, CostOfDebtRecord, SpreadTable};
@@ -198,6 +198,8 @@ pub struct TargetRecord {
     pub debt_to_equity: f64,
     pub debt_to_capital: f64,
     pub tax_rate: f64,
+    /// Marginal or effective: the basis of `tax_rate`, used for relevering and the shield.
+    pub tax_rate_basis: crate::case::TaxRateBasis,
 }
 
 /// A pair of figures for the equity and the debt of the capital structure.
@@ -205,6 +207,10 @@ pub struct TargetRecord {
 pub struct Weights {
     pub equity: f64,
     pub debt: f64,
+    /// Preferred equity (`[preferred]`); 0 when the case has none.
+    pub preferred: f64,
+    /// Lease liabilities (`[leases]`); 0 when the case has none.
+    pub leases: f64,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -212,7 +218,16 @@ pub struct PremiumRecord {
     pub size: f64,
     pub country: f64,
     pub company_specific: f64,
+    /// The premiums added to the cost of equity: size + country as applied + company-specific.
     pub total: f64,
+    pub country_method: crate::case::CountryMethod,
+    /// λ for `country_method = "lambda"`, βL for `"beta"`, 1 for `"added"`.
+    pub country_scale: f64,
+    /// The country premium as it enters the cost of equity.
+    pub country_applied: f64,
+    pub size_justification: String,
+    pub country_justification: String,
+    pub company_specific_justification: String,
 }
 
 /// Every figure of one cost-of-capital estimate, and every input that produced it.
@@ -244,6 +259,8 @@ pub struct Valuation {
     pub wacc_contributions: Weights,
     /// The debt beta used in relevering at the target (0 when none).
     pub subject_debt_beta: f64,
+    /// Costs of the optional capital components (0 weight when absent).
+    pub other_capital_costs: OtherComponents,
     /// How the pre-tax cost of debt was arrived at: source, table and row used.
     pub cost_of_debt: CostOfDebtRecord,
     /// The relevered beta, cost of equity and WACC under every leverage formula, same inputs.
@@ -394,19 +411,33 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         debt_beta: subject_debt_beta(settings, cost_of_debt_pre_tax),
         cost_of_debt: cost_of_debt_pre_tax,
     };
-    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(target_de);
+    let (preferred, leases) = (&settings.preferred, &settings.leases);
+    let (equity_weight, debt_weight) =
+        cost::weights_with_other_components(target_de, preferred.weight + leases.weight);
     let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
+    let other_components = OtherComponents {
+        preferred_cost: preferred.cost.unwrap_or(0.0),
+        lease_cost_pre_tax: leases.cost_pre_tax.unwrap_or(cost_of_debt_pre_tax),
+        lease_cost_after_tax: cost::after_tax_cost_of_debt(
+            leases.cost_pre_tax.unwrap_or(cost_of_debt_pre_tax),
+            tax_rate,
+        ),
+    };
+    let all_weights = Weights {
+        equity: equity_weight,
+        debt: debt_weight,
+        preferred: preferred.weight,
+        leases: leases.weight,
+    };
     let chain_inputs = ChainInputs {
         target: CapitalStructure {
             debt_to_equity: target_de,
             tax_rate,
         },
         subject_debt,
-        weights: Weights {
-            equity: equity_weight,
-            debt: debt_weight,
-        },
+        weights: all_weights.clone(),
         cost_of_debt_after_tax,
+        other: other_components.clone(),
     };
     let leverage_comparison: Vec<FormulaOutcome> = Formula::ALL
         .iter()
@@ -430,6 +461,8 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let wacc_contributions = Weights {
         equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
         debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
+        preferred: preferred.weight * other_components.preferred_cost,
+        leases: leases.weight * other_components.lease_cost_after_tax,
     };
     if settings.target.source != TargetSource::Explicit
         && (settings.target.debt_to_equity.is_some() || settings.target.debt_to_capital.is_some())
@@ -511,20 +544,29 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                 TargetSource::Explicit => "debt_to_capital",
             },
             debt_to_equity: target_de,
-            debt_to_capital: debt_weight,
+            debt_to_capital: cost::weights_from_debt_to_equity(target_de).1,
             tax_rate,
+            tax_rate_basis: settings.target.tax_rate_basis,
         },
-        weights: Weights {
-            equity: equity_weight,
-            debt: debt_weight,
-        },
+        weights: all_weights,
+        other_capital_costs: other_components,
         risk_free_rate: market.risk_free_rate,
         equity_risk_premium: market.equity_risk_premium,
         premiums: PremiumRecord {
             size: premiums.size,
             country: premiums.country,
             company_specific: premiums.company_specific,
-            total: premiums.total(),
+            total: premiums.total_applied(relevered),
+            country_method: premiums.country_method,
+            country_scale: match premiums.country_method {
+                CountryMethod::Added => 1.0,
+                CountryMethod::Lambda => premiums.country_lambda,
+                CountryMethod::Beta => relevered,
+            },
+            country_applied: premiums.country_applied(relevered),
+            size_justification: premiums.size_justification.clone(),
+            country_justification: premiums.country_justification.clone(),
+            company_specific_justification: premiums.company_specific_justification.clone(),
         },
         beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
         subject_debt_beta: subject_debt.debt_beta,
@@ -568,12 +610,24 @@ pub struct FormulaOutcome {
     pub wacc: f64,
 }
 
+/// The costs of preferred equity and lease liabilities.
+#[derive(Debug, Clone, Serialize)]
+pub struct OtherComponents {
+    /// `preferred.cost` (0 when there is no preferred equity); not tax-deductible.
+    pub preferred_cost: f64,
+    /// `leases.cost_pre_tax`, else the pre-tax cost of debt.
+    pub lease_cost_pre_tax: f64,
+    /// The same after tax at the target tax rate.
+    pub lease_cost_after_tax: f64,
+}
+
 /// What every formula's chain shares: the target, the subject's debt and the WACC weights.
 struct ChainInputs {
     target: CapitalStructure,
     subject_debt: DebtTerms,
     weights: Weights,
     cost_of_debt_after_tax: f64,
+    other: OtherComponents,
 }
 
 /// Unlevers every peer with `formula`, aggregates, relevers at the target and builds the cost
@@ -629,14 +683,16 @@ fn capital_chain(
         market.risk_free_rate,
         relevered,
         market.equity_risk_premium,
-        settings.premiums.total(),
+        settings.premiums.total_applied(relevered),
     );
+    // Preferred and leases add wP·Kp + wL·KL·(1 − t); both terms are 0 without them.
     let wacc = cost::wacc(
         inputs.weights.equity,
         cost_of_equity,
         inputs.weights.debt,
         inputs.cost_of_debt_after_tax,
-    );
+    ) + inputs.weights.preferred * inputs.other.preferred_cost
+        + inputs.weights.leases * inputs.other.lease_cost_after_tax;
     FormulaOutcome {
         formula,
         formula_source: formula.citation(),

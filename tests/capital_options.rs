@@ -68,12 +68,15 @@ fn number(v: &serde_json::Value, path: &str) -> f64 {
         .unwrap_or_else(|| panic!("{path} is not a number"))
 }
 
-/// Textbook WACC on result.json's own components: wE·Ke + wD·Kd·(1 − t*).
+/// Textbook WACC on result.json's own components: wE·Ke + wD·Kd·(1 − t*) + wP·Kp + wL·KL·(1 − t*).
 fn wacc_from_components(result: &serde_json::Value) -> f64 {
+    let t = number(result, "target.tax_rate");
     number(result, "weights.equity") * number(result, "cost_of_equity")
-        + number(result, "weights.debt")
-            * number(result, "cost_of_debt_pre_tax")
-            * (1.0 - number(result, "target.tax_rate"))
+        + number(result, "weights.debt") * number(result, "cost_of_debt_pre_tax") * (1.0 - t)
+        + number(result, "weights.preferred") * number(result, "other_capital_costs.preferred_cost")
+        + number(result, "weights.leases")
+            * number(result, "other_capital_costs.lease_cost_pre_tax")
+            * (1.0 - t)
 }
 
 #[test]
@@ -278,4 +281,74 @@ fn a_peer_debt_beta_with_riskless_debt_is_refused() {
         message.contains("peer.1.debt_beta") && message.contains("Corrowick"),
         "{message}"
     );
+}
+
+// Preferred 10% at 7% and leases 5% at 6% pre-tax: the rest, 85%, splits by the demo's
+// D/E 0.4 into wE = 0.85/1.4 and wD = 0.85·0.4/1.4; the weights sum to 1 and the WACC equals
+// its components.
+#[test]
+fn preferred_equity_and_leases_get_their_own_weight_and_cost() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "preferred.weight=0.1",
+            "preferred.cost=0.07",
+            "leases.weight=0.05",
+            "leases.cost_pre_tax=0.06",
+        ],
+    );
+    // 1e-15: a product and a quotient of decimals.
+    assert!((number(&result, "weights.equity") - 0.85 / 1.4).abs() < 1e-15);
+    assert!((number(&result, "weights.debt") - 0.85 * 0.4 / 1.4).abs() < 1e-15);
+    let sum: f64 = ["equity", "debt", "preferred", "leases"]
+        .iter()
+        .map(|k| number(&result["weights"], k))
+        .sum();
+    assert!((sum - 1.0).abs() < 1e-15);
+    // 1e-12: the same products summed in a different grouping.
+    assert!((wacc_from_components(&result) - number(&result, "wacc")).abs() < 1e-12);
+    reference_check(dir.path(), "preferred and leases");
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains("| Preferred equity | 10.0% | 7.00% |"),
+        "memo lacks preferred"
+    );
+}
+
+#[test]
+fn preferred_equity_without_a_cost_is_refused() {
+    let message = fails(&["preferred.weight=0.1"]);
+    assert!(message.contains("preferred.cost is missing"), "{message}");
+    assert!(message.contains("0.1"), "{message}");
+}
+
+// Country risk premium 2%: added → +2%; λ = 0.5 → +1%; scaled by βL → +βL·2%. The difference
+// in Ke against CRP = 0 is exactly that term (the rest of the build-up is unchanged).
+#[test]
+fn the_country_premium_is_added_scaled_by_lambda_or_by_beta() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = run_demo(dir.path(), &[]);
+    let ke0 = number(&base, "cost_of_equity");
+    let beta = number(&base, "beta.relevered");
+    for (method, expected) in [("added", 0.02), ("lambda", 0.01), ("beta", beta * 0.02)] {
+        let result = run_demo(
+            dir.path(),
+            &[
+                "premiums.country=0.02",
+                &format!("premiums.country_method={method}"),
+                "premiums.country_lambda=0.5",
+                "premiums.country_justification=Illustrative reason",
+            ],
+        );
+        // 1e-15: one addition on top of the same sum.
+        let delta = number(&result, "cost_of_equity") - ke0;
+        assert!((delta - expected).abs() < 1e-15, "{method}: {delta}");
+        let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+        assert!(
+            memo.contains("Illustrative reason"),
+            "{method}: justification missing"
+        );
+        reference_check(dir.path(), method);
+    }
 }

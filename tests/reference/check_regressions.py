@@ -158,13 +158,21 @@ def main(out_dir):
     relevered = aggregate + (aggregate - bd) * s * de
     check("relevered beta", result["beta"]["relevered"], relevered)
     p = result["premiums"]
-    ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + p["size"] + p["country"] + p["company_specific"]
+    ps = result["settings"]["premiums"]
+    # Country risk premium added directly, times the exposure lambda, or times the relevered beta.
+    country = {"added": ps["country"], "lambda": ps["country_lambda"] * ps["country"], "beta": relevered * ps["country"]}[ps["country_method"]]
+    check("country premium applied", p["country_applied"], country)
+    ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + ps["size"] + country + ps["company_specific"]
     check("cost of equity (CAPM)", result["cost_of_equity"], ke)
     kd = result["cost_of_debt_pre_tax"] * (1 - t)
     check("after-tax cost of debt", result["cost_of_debt_after_tax"], kd)
-    we, wd = 1 / (1 + de), de / (1 + de)
+    pref, leases = result["settings"]["preferred"], result["settings"]["leases"]
+    other = pref["weight"] + leases["weight"]
+    we, wd = (1 - other) / (1 + de), (1 - other) * de / (1 + de)
     check("equity weight", result["weights"]["equity"], we)
-    check("WACC", result["wacc"], we * ke + wd * kd)
+    # Preferred equity at its own cost (not deductible); leases after tax at the target rate.
+    kl = leases.get("cost_pre_tax", result["cost_of_debt_pre_tax"]) * (1 - t)
+    check("WACC", result["wacc"], we * ke + wd * kd + pref["weight"] * pref.get("cost", 0.0) + leases["weight"] * kl)
 
     for line in failures:
         print("MISMATCH", line)
