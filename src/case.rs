@@ -36,6 +36,9 @@ pub struct CaseFile {
     pub preferred: PreferredSettings,
     #[serde(default)]
     pub leases: LeaseSettings,
+    /// Converts the results to another currency's nominal rates when present.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub conversion: Option<ConversionSettings>,
     #[serde(rename = "peer", default)]
     pub peers: Vec<PeerSpec>,
 }
@@ -384,6 +387,18 @@ pub struct LeaseSettings {
     pub cost_pre_tax: Option<f64>,
 }
 
+/// `[conversion]`: the output currency and the expected inflation of both currencies.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ConversionSettings {
+    /// Label of the output currency.
+    pub currency: String,
+    /// Expected annual inflation of the case currency (`case.currency`).
+    pub inflation_case: f64,
+    /// Expected annual inflation of the output currency.
+    pub inflation_output: f64,
+}
+
 /// One `[[peer]]` table: a comparable listed firm.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -715,6 +730,23 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
     validate_debt(case)?;
     validate_components(case)?;
+    if let Some(conversion) = &case.conversion {
+        for (key, value) in [
+            ("conversion.inflation_case", conversion.inflation_case),
+            ("conversion.inflation_output", conversion.inflation_output),
+        ] {
+            if !(value.is_finite() && value > -1.0) {
+                return Err(format!(
+                    "{key} = {value} is at or below -100% (or not a number); the Fisher relation \
+                     divides by 1 + inflation, which must be positive"
+                ));
+            }
+            rate(key, value, -1.0, 10.0)?;
+        }
+        if conversion.currency.trim().is_empty() {
+            return Err("conversion.currency is empty".into());
+        }
+    }
     for (key, value) in [
         ("premiums.size", case.premiums.size),
         ("premiums.country", case.premiums.country),

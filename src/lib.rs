@@ -10,6 +10,7 @@
 pub mod beta;
 pub mod case;
 pub mod cost;
+pub mod currency;
 pub mod data;
 pub mod debt;
 pub mod demo;

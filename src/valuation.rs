@@ -11,6 +11,7 @@ use serde::Serialize;
 use crate::beta::{self, BetaEstimate};
 use crate::case::{Case, CaseFile, CountryMethod, DebtBetaSource, DebtSource, TargetSource};
 use crate::cost;
+use crate::currency;
 use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
 use crate::debt::{self, CostOfDebtRecord, SpreadTable};
 use crate::error::{Error, Result};
@@ -265,6 +266,8 @@ pub struct Valuation {
     pub cost_of_debt: CostOfDebtRecord,
     /// The relevered beta, cost of equity and WACC under every leverage formula, same inputs.
     pub leverage_comparison: Vec<FormulaOutcome>,
+    /// The results in the output currency by the Fisher relation, when `[conversion]` asks.
+    pub currency_conversion: Option<CurrencyConversion>,
     /// Plain-language remarks about the data that a reviewer should see.
     pub notes: Vec<String>,
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
@@ -577,6 +580,10 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         cost_of_debt_after_tax,
         wacc,
         wacc_contributions,
+        currency_conversion: settings
+            .conversion
+            .as_ref()
+            .map(|c| convert_results(c, &settings.case.currency, cost_of_equity, wacc)),
         notes,
         returns,
     })
@@ -806,4 +813,38 @@ fn check_debt_betas(
         });
     }
     Ok(())
+}
+
+/// The cost of equity and WACC carried into the output currency, and both in real terms.
+#[derive(Debug, Clone, Serialize)]
+pub struct CurrencyConversion {
+    pub from: String,
+    pub to: String,
+    pub inflation_from: f64,
+    pub inflation_to: f64,
+    /// Nominal, in the output currency: (1 + r)·(1 + π_to)/(1 + π_from) − 1.
+    pub cost_of_equity: f64,
+    pub wacc: f64,
+    /// Real (the same in both currencies): (1 + r)/(1 + π_from) − 1.
+    pub cost_of_equity_real: f64,
+    pub wacc_real: f64,
+}
+
+fn convert_results(
+    conversion: &crate::case::ConversionSettings,
+    case_currency: &str,
+    cost_of_equity: f64,
+    wacc: f64,
+) -> CurrencyConversion {
+    let (from, to) = (conversion.inflation_case, conversion.inflation_output);
+    CurrencyConversion {
+        from: case_currency.to_string(),
+        to: conversion.currency.clone(),
+        inflation_from: from,
+        inflation_to: to,
+        cost_of_equity: currency::convert_nominal(cost_of_equity, from, to),
+        wacc: currency::convert_nominal(wacc, from, to),
+        cost_of_equity_real: currency::nominal_to_real(cost_of_equity, from),
+        wacc_real: currency::nominal_to_real(wacc, from),
+    }
 }

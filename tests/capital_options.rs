@@ -352,3 +352,43 @@ fn the_country_premium_is_added_scaled_by_lambda_or_by_beta() {
         reference_check(dir.path(), method);
     }
 }
+
+// Fisher (1930) on the run's own WACC: converting to the output currency and back with the
+// inverse relation returns it, and the real rate is the same from either side.
+#[test]
+fn the_memo_shows_the_fisher_conversion_to_an_output_currency() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "conversion.currency=USD",
+            "conversion.inflation_case=0.02",
+            "conversion.inflation_output=0.035",
+        ],
+    );
+    let c = &result["currency_conversion"];
+    let (wacc, converted) = (number(&result, "wacc"), number(c, "wacc"));
+    // Inverse relation written out: (1 + r_A) = (1 + r_B)·(1 + π_A)/(1 + π_B).
+    let back = (1.0 + converted) * 1.02 / 1.035 - 1.0;
+    // 1e-15: a multiply and a divide by the same factors, twice.
+    assert!((back - wacc).abs() < 1e-15);
+    let real_from_output = (1.0 + converted) / 1.035 - 1.0;
+    assert!((real_from_output - number(c, "wacc_real")).abs() < 1e-15);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("### Conversion to USD"));
+    assert!(memo.contains(&hurdle::format::percent(converted, 2)));
+}
+
+#[test]
+fn inflation_at_or_below_minus_100_percent_is_refused() {
+    let message = fails(&[
+        "conversion.currency=USD",
+        "conversion.inflation_case=-1.0",
+        "conversion.inflation_output=0.02",
+    ]);
+    assert!(
+        message.contains("conversion.inflation_case = -1"),
+        "{message}"
+    );
+    assert!(message.contains("-100%"), "{message}");
+}
