@@ -360,4 +360,27 @@ mod tests {
             .to_string();
         assert!(err.contains("line 3") && err.contains("ascending"), "{err}");
     }
+
+    #[test]
+    fn toml_tables_are_read_in_order() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("ratings.toml");
+        std::fs::write(
+            &path,
+            "[[row]]\nrating = \"A\"\nspread = 0.011\n\n[[row]]\nrating = \"BBB\"\nspread = 0.016\n",
+        )
+        .unwrap();
+        let table = read_spread_table("ratings.toml", &path, false).unwrap();
+        let row = rating_row(&table, "BBB").unwrap();
+        assert_eq!((row.spread, row.line), (0.016, 2));
+        std::fs::write(
+            &path,
+            "[[row]]\nrating = \"A\"\nspread = 0.011\n[[row]]\nrating = \"A\"\nspread = 0.02\n",
+        )
+        .unwrap();
+        let err = read_spread_table("ratings.toml", &path, false)
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("repeats line 1"), "{err}");
+    }
 }

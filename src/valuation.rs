@@ -805,10 +805,11 @@ fn check_debt_betas(
         return Err(Error::Case {
             file: case.path.clone(),
             message: format!(
-                "the subject's debt beta {subject_debt_beta} (leverage.debt_beta_source = {:?}) \
+                "the subject's debt beta {subject_debt_beta} (leverage.debt_beta_source = {}) \
                  is above the aggregate unlevered beta {}, so relevering would lower the equity \
                  beta below the asset beta",
-                case.settings.leverage.debt_beta_source, chosen.unlevered
+                serde_json::to_string(&case.settings.leverage.debt_beta_source).unwrap_or_default(),
+                chosen.unlevered
             ),
         });
     }

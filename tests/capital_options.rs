@@ -177,6 +177,12 @@ fn the_reference_check_agrees_under_the_aggregation_and_structure_options() {
             "leverage.debt_measure=net",
             "leverage.formula=miles-ezzell",
         ][..],
+        &[
+            "leverage.formula=conine",
+            "leverage.debt_beta_source=given",
+            "leverage.debt_beta=0.15",
+            "debt.source=coverage",
+        ][..],
     ] {
         let dir = tempfile::tempdir().unwrap();
         run_demo(dir.path(), sets);
@@ -391,4 +397,25 @@ fn inflation_at_or_below_minus_100_percent_is_refused() {
         "{message}"
     );
     assert!(message.contains("-100%"), "{message}");
+}
+
+// A case whose [debt] gives no cost for the default source `given`: the demo case with its
+// `cost_pre_tax` line removed, read from a temporary folder (validation runs before any data
+// file is read).
+#[test]
+fn a_given_cost_of_debt_that_is_missing_is_refused() {
+    let text = std::fs::read_to_string(DEMO_CASE).unwrap();
+    let without: String = text
+        .lines()
+        .filter(|line| !line.starts_with("cost_pre_tax"))
+        .map(|line| format!("{line}\n"))
+        .collect();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("case.toml");
+    std::fs::write(&path, without).unwrap();
+    let message = hurdle::case::read_case(&path, &[]).unwrap_err().to_string();
+    assert!(
+        message.contains("debt.cost_pre_tax is required when debt.source = \"given\""),
+        "{message}"
+    );
 }

@@ -153,7 +153,15 @@ def main(out_dir):
         debt = tset["subject_debt"] - (tset.get("subject_cash", 0) if net else 0)
         check("target D/E (subject)", de, debt / tset["subject_equity_value"])
     formula = result["beta"]["formula"]
-    bd = 0.0 if formula == "hamada" else result["subject_debt_beta"]
+    # The subject's debt beta: none, given, or (Kd - rf) / ERP from its own cost of debt.
+    bd = {
+        "none": 0.0,
+        "given": leverage["debt_beta"],
+        "credit-spread": (result["cost_of_debt_pre_tax"] - result["risk_free_rate"]) / result["equity_risk_premium"],
+    }[leverage["debt_beta_source"]]
+    check("subject debt beta", result["subject_debt_beta"], bd)
+    if formula == "hamada":
+        bd = 0.0
     s = tax_factor(formula, t, result["cost_of_debt_pre_tax"])
     relevered = aggregate + (aggregate - bd) * s * de
     check("relevered beta", result["beta"]["relevered"], relevered)
