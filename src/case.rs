@@ -492,7 +492,9 @@ impl Case {
         dir.join(written)
     }
 
-    /// The target debt-to-equity ratio, whichever of the two ratios the case gives.
+    /// The target debt-to-equity ratio, whichever of the two ratios the case gives, or from
+    /// `target.source`. For `peer-median` this is the median over every peer in the case file;
+    /// the valuation takes it over the peers it aggregates (`valuation::aggregate_over_peers`).
     pub fn target_debt_to_equity(&self) -> f64 {
         let target = &self.settings.target;
         let measure = self.settings.leverage.debt_measure;

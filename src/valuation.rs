@@ -408,7 +408,14 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     })?;
     let cost_of_debt_pre_tax = cost_of_debt.pre_tax;
     assign_debt_terms(&mut peers, settings, cost_of_debt_pre_tax);
-    let target_de = case.target_debt_to_equity();
+    let target_de = match settings.target.source {
+        // Through the one aggregation point, so the peers it counts are the peers aggregated.
+        TargetSource::PeerMedian => {
+            let ratios: Vec<f64> = peers.iter().map(|p| p.debt_to_equity).collect();
+            aggregate_over_peers(&peers, &ratios, settings).0.median
+        }
+        _ => case.target_debt_to_equity(),
+    };
     let tax_rate = settings.target.tax_rate;
     let subject_debt = DebtTerms {
         debt_beta: subject_debt_beta(settings, cost_of_debt_pre_tax),
@@ -668,9 +675,9 @@ fn capital_chain(
         .map(|(peer, &unlevered)| cash_corrected(unlevered, peer))
         .collect();
     let (plain_dispersion, plain_statistics) =
-        aggregate_unlevered(peers, &peer_unlevered_betas, settings);
+        aggregate_over_peers(peers, &peer_unlevered_betas, settings);
     let (corrected_dispersion, corrected_statistics) =
-        aggregate_unlevered(peers, &peer_cash_corrected_unlevered_betas, settings);
+        aggregate_over_peers(peers, &peer_cash_corrected_unlevered_betas, settings);
     let aggregation = settings.leverage.aggregation;
     let unlevered_plain = aggregation.select(&plain_statistics);
     let unlevered_cash_corrected = aggregation.select(&corrected_statistics);
@@ -718,9 +725,10 @@ fn capital_chain(
     }
 }
 
-/// The dispersion and every location statistic of the peers' unlevered betas (`unlevered`, in
-/// peer order). The one place the peers are aggregated (a filter on the peers belongs here).
-fn aggregate_unlevered(
+/// The dispersion and every location statistic of one figure per peer (`unlevered`, in peer
+/// order): the unlevered betas, or the D/E for a peer-median target. The one place the peers
+/// are aggregated (a filter on the peers belongs here).
+fn aggregate_over_peers(
     peers: &[PeerResult],
     unlevered: &[f64],
     settings: &CaseFile,
