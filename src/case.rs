@@ -948,6 +948,17 @@ fn validate_debt(case: &CaseFile) -> std::result::Result<(), String> {
     let leverage = &case.leverage;
     if leverage.debt_beta_source == DebtBetaSource::Given {
         rate("leverage.debt_beta", leverage.debt_beta, -1.0, 3.0)?;
+    } else if leverage.debt_beta != 0.0 {
+        return Err(format!(
+            "leverage.debt_beta = {} is given but leverage.debt_beta_source = {}; set \
+             leverage.debt_beta_source = \"given\" for it to be used",
+            leverage.debt_beta,
+            if leverage.debt_beta_source == DebtBetaSource::None {
+                "\"none\" (riskless debt)"
+            } else {
+                "\"credit-spread\""
+            }
+        ));
     }
     Ok(())
 }

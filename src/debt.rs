@@ -25,8 +25,9 @@ pub struct SpreadRow {
     pub rating: String,
     /// Spread over the risk-free rate (annual, decimal).
     pub spread: f64,
-    /// 1-based line of the row in its file (CSV: counting the header as line 1).
-    #[serde(default)]
+    /// 1-based line of the row in its file (CSV: counting the header as line 1; TOML: the
+    /// row's position).
+    #[serde(skip_deserializing)]
     pub line: usize,
 }
 
@@ -36,6 +37,8 @@ pub struct SpreadTable {
     /// The path as written in the case file.
     pub path: String,
     pub sha256: String,
+    /// Number of rows read.
+    pub row_count: usize,
     #[serde(skip)]
     pub rows: Vec<SpreadRow>,
 }
@@ -115,6 +118,7 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
     Ok(SpreadTable {
         path: written.to_string(),
         sha256,
+        row_count: rows.len(),
         rows,
     })
 }
@@ -283,6 +287,7 @@ mod tests {
         SpreadTable {
             path: "coverage.csv".into(),
             sha256: String::new(),
+            row_count: 4,
             rows: vec![
                 row(0.0, "C", 0.10, 2),
                 row(1.5, "B", 0.05, 3),

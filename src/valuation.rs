@@ -474,6 +474,16 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         preferred: preferred.weight * other_components.preferred_cost,
         leases: leases.weight * other_components.lease_cost_after_tax,
     };
+    if settings.debt.source != DebtSource::Given && settings.debt.cost_pre_tax.is_some() {
+        notes.push(format!(
+            "debt.cost_pre_tax is not used: the cost of debt comes from the {} table.",
+            if settings.debt.source == DebtSource::Rating {
+                "rating"
+            } else {
+                "coverage"
+            }
+        ));
+    }
     if settings.target.source != TargetSource::Explicit
         && (settings.target.debt_to_equity.is_some() || settings.target.debt_to_capital.is_some())
     {
@@ -793,7 +803,9 @@ fn check_debt_betas(
     chosen: &FormulaOutcome,
     subject_debt_beta: f64,
 ) -> Result<()> {
-    if chosen.formula == Formula::Hamada {
+    if chosen.formula == Formula::Hamada
+        || case.settings.leverage.debt_beta_source == DebtBetaSource::None
+    {
         return Ok(());
     }
     for peer in peers {

@@ -419,3 +419,10 @@ fn a_given_cost_of_debt_that_is_missing_is_refused() {
         "{message}"
     );
 }
+
+#[test]
+fn a_debt_beta_without_its_source_is_refused() {
+    let message = fails(&["leverage.debt_beta=0.2"]);
+    assert!(message.contains("leverage.debt_beta = 0.2"), "{message}");
+    assert!(message.contains("debt_beta_source"), "{message}");
+}
