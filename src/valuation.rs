@@ -425,13 +425,11 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let (equity_weight, debt_weight) =
         cost::weights_with_other_components(target_de, preferred.weight + leases.weight);
     let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
+    let lease_cost_pre_tax = leases.cost_pre_tax.unwrap_or(cost_of_debt_pre_tax);
     let other_components = OtherComponents {
         preferred_cost: preferred.cost.unwrap_or(0.0),
-        lease_cost_pre_tax: leases.cost_pre_tax.unwrap_or(cost_of_debt_pre_tax),
-        lease_cost_after_tax: cost::after_tax_cost_of_debt(
-            leases.cost_pre_tax.unwrap_or(cost_of_debt_pre_tax),
-            tax_rate,
-        ),
+        lease_cost_pre_tax,
+        lease_cost_after_tax: cost::after_tax_cost_of_debt(lease_cost_pre_tax, tax_rate),
     };
     let all_weights = Weights {
         equity: equity_weight,
