@@ -38,6 +38,13 @@ pub struct CaseFile {
     pub uncertainty: UncertaintySettings,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub reconcile: Option<ReconcileSettings>,
+    #[serde(default)]
+    pub preferred: PreferredSettings,
+    #[serde(default)]
+    pub leases: LeaseSettings,
+    /// Converts the results to another currency's nominal rates when present.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub conversion: Option<ConversionSettings>,
     #[serde(rename = "peer", default)]
     pub peers: Vec<PeerSpec>,
 }
@@ -189,6 +196,36 @@ pub struct LeverageSettings {
     pub formula: Formula,
     /// Which statistic of the peers' unlevered betas is relevered.
     pub aggregation: Aggregation,
+    /// Where the debt betas come from: none (riskless debt), given, or the credit spread.
+    pub debt_beta_source: DebtBetaSource,
+    /// The debt beta of the subject and of every peer without its own, when the source is
+    /// `given`.
+    pub debt_beta: f64,
+    /// Fraction of the unlevered betas cut from each end by `aggregation = "trimmed-mean"`.
+    pub trim_fraction: f64,
+    /// Aggregate the cash-corrected unlevered betas βU / (1 − cash / (equity + debt)).
+    pub cash_correction: bool,
+    /// Gross debt, or debt net of cash, in every D/E (peers and the subject's own structure).
+    pub debt_measure: DebtMeasure,
+}
+
+/// `leverage.debt_measure`: the debt in D/E.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtMeasure {
+    Gross,
+    /// Debt minus cash; may be negative for a firm holding more cash than debt.
+    Net,
+}
+
+impl DebtMeasure {
+    /// The debt counted in D/E.
+    pub fn debt(self, debt: f64, cash: f64) -> f64 {
+        match self {
+            DebtMeasure::Gross => debt,
+            DebtMeasure::Net => debt - cash,
+        }
+    }
 }
 
 impl Default for LeverageSettings {
@@ -196,8 +233,26 @@ impl Default for LeverageSettings {
         LeverageSettings {
             formula: Formula::Hamada,
             aggregation: Aggregation::Median,
+            debt_beta_source: DebtBetaSource::None,
+            debt_beta: 0.0,
+            trim_fraction: 0.1,
+            cash_correction: false,
+            debt_measure: DebtMeasure::Gross,
         }
     }
+}
+
+/// `leverage.debt_beta_source`: how the beta of debt is set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtBetaSource {
+    /// Riskless debt: every debt beta is 0.
+    None,
+    /// `leverage.debt_beta`, or a peer's own `debt_beta`.
+    Given,
+    /// (Kd − rf) / ERP, an approximation (see `leverage::debt_beta_from_spread`); a peer's own
+    /// `cost_of_debt` when it has one, else the subject's.
+    CreditSpread,
 }
 
 /// `[target]`: the capital structure the beta is relevered to and the WACC is weighted by.
@@ -211,29 +266,190 @@ pub struct TargetSettings {
     pub debt_to_capital: Option<f64>,
     /// Marginal tax rate of the subject, used for relevering and the debt tax shield.
     pub tax_rate: f64,
+    /// Whether `tax_rate` is the marginal or the effective rate; printed in the memo.
+    #[serde(default)]
+    pub tax_rate_basis: TaxRateBasis,
+    /// Where the target structure comes from (default: the explicit ratio).
+    #[serde(default)]
+    pub source: TargetSource,
+    /// The subject's current market value of equity (source `subject`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subject_equity_value: Option<f64>,
+    /// The subject's current debt, same unit (source `subject`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subject_debt: Option<f64>,
+    /// The subject's cash, same unit (source `subject` with net debt).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subject_cash: Option<f64>,
+}
+
+/// `target.tax_rate_basis`: which tax rate the shield is computed with.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TaxRateBasis {
+    /// The statutory rate on the next unit of taxable income (common practice for the shield).
+    #[default]
+    Marginal,
+    /// Taxes paid over pre-tax income.
+    Effective,
+}
+
+/// `target.source`: where the target D/E comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TargetSource {
+    /// `target.debt_to_equity` or `target.debt_to_capital`.
+    #[default]
+    Explicit,
+    /// The median of the peers' D/E (with `leverage.debt_measure`).
+    PeerMedian,
+    /// The subject's own current structure, `subject_debt / subject_equity_value`.
+    Subject,
 }
 
 /// `[debt]`: the subject's cost of debt.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct DebtSettings {
-    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity.
-    pub cost_pre_tax: f64,
+    /// Where the pre-tax cost of debt comes from (default: given).
+    #[serde(default)]
+    pub source: DebtSource,
+    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity; required when the
+    /// source is `given`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cost_pre_tax: Option<f64>,
+    /// The subject's credit rating, looked up in `rating_table` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating: Option<String>,
+    /// CSV or TOML table of `rating, spread` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating_table: Option<String>,
+    /// Earnings before interest and taxes (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ebit: Option<f64>,
+    /// Interest expense, same unit as `ebit` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub interest_expense: Option<f64>,
+    /// CSV or TOML table of `min_coverage, rating, spread` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub coverage_table: Option<String>,
+}
+
+/// `debt.source`: where the pre-tax cost of debt comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtSource {
+    /// `debt.cost_pre_tax`, e.g. a yield to maturity.
+    #[default]
+    Given,
+    /// rf + the spread of `debt.rating` in `debt.rating_table`.
+    Rating,
+    /// rf + the spread of the synthetic rating from EBIT / interest expense in
+    /// `debt.coverage_table`.
+    Coverage,
 }
 
 /// `[premiums]`: additions to the CAPM cost of equity (annual, decimal).
-#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields, default)]
 pub struct Premiums {
     pub size: f64,
     pub country: f64,
     pub company_specific: f64,
+    /// How the country risk premium enters the cost of equity.
+    pub country_method: CountryMethod,
+    /// The subject's exposure λ to country risk, for `country_method = "lambda"`.
+    pub country_lambda: f64,
+    /// Free-text reasons for each premium, printed in the memo.
+    pub size_justification: String,
+    pub country_justification: String,
+    pub company_specific_justification: String,
+}
+
+/// `premiums.country_method`: how the country risk premium (CRP) enters the cost of equity.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CountryMethod {
+    /// + CRP.
+    #[default]
+    Added,
+    /// + λ·CRP, λ the subject's exposure (`country_lambda`).
+    Lambda,
+    /// + βL·CRP, scaled by the relevered beta.
+    Beta,
+}
+
+impl Default for Premiums {
+    fn default() -> Self {
+        Premiums {
+            size: 0.0,
+            country: 0.0,
+            company_specific: 0.0,
+            country_method: CountryMethod::Added,
+            country_lambda: 1.0,
+            size_justification: String::new(),
+            country_justification: String::new(),
+            company_specific_justification: String::new(),
+        }
+    }
 }
 
 impl Premiums {
+    /// The premiums as written, summed (the country premium unscaled).
     pub fn total(&self) -> f64 {
         self.size + self.country + self.company_specific
     }
+
+    /// The country premium as it enters the cost of equity with relevered beta `beta`: CRP,
+    /// λ·CRP, or βL·CRP.
+    pub fn country_applied(&self, beta: f64) -> f64 {
+        match self.country_method {
+            CountryMethod::Added => self.country,
+            CountryMethod::Lambda => self.country_lambda * self.country,
+            CountryMethod::Beta => beta * self.country,
+        }
+    }
+
+    /// The premiums added to the CAPM cost of equity: size + country as applied +
+    /// company-specific.
+    pub fn total_applied(&self, beta: f64) -> f64 {
+        self.size + self.country_applied(beta) + self.company_specific
+    }
+}
+
+/// `[preferred]`: preferred equity as a capital component with its own cost and weight.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct PreferredSettings {
+    /// Share of total capital (preferred / (equity + debt + preferred + leases)).
+    pub weight: f64,
+    /// Cost of preferred equity (annual, decimal), e.g. dividend / price; not tax-deductible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cost: Option<f64>,
+}
+
+/// `[leases]`: lease liabilities as a debt-like capital component.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct LeaseSettings {
+    /// Share of total capital.
+    pub weight: f64,
+    /// Pre-tax cost of the lease liabilities (the incremental borrowing rate); the subject's
+    /// pre-tax cost of debt when absent. Deductible at the target tax rate.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cost_pre_tax: Option<f64>,
+}
+
+/// `[conversion]`: the output currency and the expected inflation of both currencies.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ConversionSettings {
+    /// Label of the output currency.
+    pub currency: String,
+    /// Expected annual inflation of the case currency (`case.currency`).
+    pub inflation_case: f64,
+    /// Expected annual inflation of the output currency.
+    pub inflation_output: f64,
 }
 
 /// One `[[peer]]` table: a comparable listed firm.
@@ -254,6 +470,13 @@ pub struct PeerSpec {
     pub cash: f64,
     /// Marginal tax rate (decimal).
     pub tax_rate: f64,
+    /// The peer's own debt beta (with `leverage.debt_beta_source` `given` or `credit-spread`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub debt_beta: Option<f64>,
+    /// The peer's own pre-tax cost of debt, for Miles–Ezzell and the credit-spread debt beta;
+    /// the subject's is used when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cost_of_debt: Option<f64>,
 }
 
 fn default_index_name() -> String {
@@ -324,9 +547,31 @@ impl Case {
 }
 
 impl CaseFile {
-    /// The target debt-to-equity ratio, whichever of the two ratios the case gives.
+    /// The target debt-to-equity ratio, whichever of the two ratios the case gives, or from
+    /// `target.source`. For `peer-median` this is the median over every peer in the case file;
+    /// the valuation takes it over the peers it aggregates (`valuation::aggregate_over_peers`).
     pub fn target_debt_to_equity(&self) -> f64 {
-        match (self.target.debt_to_equity, self.target.debt_to_capital) {
+        let target = &self.target;
+        let measure = self.leverage.debt_measure;
+        match target.source {
+            TargetSource::Explicit => {}
+            TargetSource::PeerMedian => {
+                let ratios: Vec<f64> = self
+                    .peers
+                    .iter()
+                    .map(|p| measure.debt(p.debt, p.cash) / p.equity_value)
+                    .collect();
+                return crate::stats::dispersion(&ratios).median;
+            }
+            TargetSource::Subject => {
+                let debt = measure.debt(
+                    target.subject_debt.unwrap_or(0.0),
+                    target.subject_cash.unwrap_or(0.0),
+                );
+                return debt / target.subject_equity_value.expect("validated");
+            }
+        }
+        match (target.debt_to_equity, target.debt_to_capital) {
             (Some(de), _) => de,
             (None, Some(dc)) => dc / (1.0 - dc),
             (None, None) => unreachable!("validate() requires one target ratio"),
@@ -511,15 +756,17 @@ fn parse_override_value(raw: &str) -> toml::Value {
         .unwrap_or_else(|| toml::Value::String(raw.to_string()))
 }
 
+/// `key = value` must be finite and in [low, high).
+fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
+    if value.is_finite() && value >= low && value < high {
+        Ok(())
+    } else {
+        Err(format!("{key} = {value} is outside [{low}, {high})"))
+    }
+}
+
 /// Range checks a type cannot express. The message names the key and the offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
-    fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
-        if value.is_finite() && value >= low && value < high {
-            Ok(())
-        } else {
-            Err(format!("{key} = {value} is outside [{low}, {high})"))
-        }
-    }
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
@@ -550,7 +797,9 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         ));
     }
     let target = &case.target;
+    validate_structure(case)?;
     match (target.debt_to_equity, target.debt_to_capital) {
+        (None, None) if target.source != TargetSource::Explicit => {}
         (Some(_), Some(_)) => {
             return Err(
                 "target.debt_to_equity and target.debt_to_capital are both given; keep one".into(),
@@ -569,7 +818,25 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         (None, Some(dc)) => rate("target.debt_to_capital", dc, 0.0, 1.0)?,
     }
     rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
-    rate("debt.cost_pre_tax", case.debt.cost_pre_tax, 0.0, 1.0)?;
+    validate_debt(case)?;
+    validate_components(case)?;
+    if let Some(conversion) = &case.conversion {
+        for (key, value) in [
+            ("conversion.inflation_case", conversion.inflation_case),
+            ("conversion.inflation_output", conversion.inflation_output),
+        ] {
+            if !(value.is_finite() && value > -1.0) {
+                return Err(format!(
+                    "{key} = {value} is at or below -100% (or not a number); the Fisher relation \
+                     divides by 1 + inflation, which must be positive"
+                ));
+            }
+            rate(key, value, -1.0, 10.0)?;
+        }
+        if conversion.currency.trim().is_empty() {
+            return Err("conversion.currency is empty".into());
+        }
+    }
     for (key, value) in [
         ("premiums.size", case.premiums.size),
         ("premiums.country", case.premiums.country),
@@ -596,6 +863,12 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
         }
     }
+    rate(
+        "premiums.country_lambda",
+        case.premiums.country_lambda,
+        0.0,
+        5.0,
+    )?;
     if case.peers.is_empty() {
         return Err("the case has no [[peer]] tables".into());
     }
@@ -623,6 +896,176 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
         }
         rate(&key("tax_rate"), peer.tax_rate, 0.0, 1.0)?;
+        if let Some(kd) = peer.cost_of_debt {
+            rate(&key("cost_of_debt"), kd, 0.0, 1.0)?;
+        }
+        if let Some(debt_beta) = peer.debt_beta {
+            if case.leverage.debt_beta_source == DebtBetaSource::None {
+                return Err(format!(
+                    "{} = {debt_beta} is given but leverage.debt_beta_source = \"none\" \
+                     (riskless debt); set it to \"given\" or drop the peer's debt_beta",
+                    key("debt_beta")
+                ));
+            }
+            rate(&key("debt_beta"), debt_beta, -1.0, 3.0)?;
+        }
+    }
+    Ok(())
+}
+
+/// `[preferred]` and `[leases]`: weights in [0, 1) that leave room for equity and debt, and a cost
+/// for preferred equity that has a weight.
+fn validate_components(case: &CaseFile) -> std::result::Result<(), String> {
+    let (preferred, leases) = (&case.preferred, &case.leases);
+    rate("preferred.weight", preferred.weight, 0.0, 1.0)?;
+    rate("leases.weight", leases.weight, 0.0, 1.0)?;
+    let other = preferred.weight + leases.weight;
+    if other >= 1.0 {
+        return Err(format!(
+            "preferred.weight + leases.weight = {other} leaves no room for equity and debt; the \
+             two must sum to less than 1"
+        ));
+    }
+    match preferred.cost {
+        Some(cost) => rate("preferred.cost", cost, 0.0, 1.0)?,
+        None if preferred.weight > 0.0 => {
+            return Err(format!(
+                "preferred.cost is missing: preferred equity with preferred.weight = {} needs its \
+                 own cost (e.g. its dividend / price)",
+                preferred.weight
+            ))
+        }
+        None => {}
+    }
+    if let Some(cost) = leases.cost_pre_tax {
+        rate("leases.cost_pre_tax", cost, 0.0, 1.0)?;
+    }
+    Ok(())
+}
+
+/// `[leverage]` aggregation and cash keys, and the keys of the target sources.
+fn validate_structure(case: &CaseFile) -> std::result::Result<(), String> {
+    let leverage = &case.leverage;
+    rate("leverage.trim_fraction", leverage.trim_fraction, 0.0, 0.5)?;
+    if leverage.cash_correction && leverage.debt_measure == DebtMeasure::Net {
+        return Err(
+            "leverage.cash_correction = true with leverage.debt_measure = \"net\" would \
+                    count cash twice; use one of them"
+                .into(),
+        );
+    }
+    let target = &case.target;
+    if target.source == TargetSource::Subject {
+        match target.subject_equity_value {
+            Some(e) if e.is_finite() && e > 0.0 => {}
+            other => {
+                return Err(format!(
+                    "target.subject_equity_value = {} must be given and positive when \
+                     target.source = \"subject\"",
+                    other.map_or("(missing)".to_string(), |e| e.to_string())
+                ))
+            }
+        }
+        for (key, value) in [
+            ("target.subject_debt", target.subject_debt),
+            ("target.subject_cash", target.subject_cash),
+        ] {
+            if let Some(v) = value {
+                if !(v.is_finite() && v >= 0.0) {
+                    return Err(format!("{key} = {v} is negative"));
+                }
+            }
+        }
+        if target.subject_debt.is_none() {
+            return Err("target.subject_debt is required when target.source = \"subject\"".into());
+        }
+    }
+    for (i, peer) in case.peers.iter().enumerate() {
+        let net = DebtMeasure::Net.debt(peer.debt, peer.cash);
+        if leverage.debt_measure == DebtMeasure::Net && net <= -peer.equity_value {
+            return Err(format!(
+                "peer.{i} (peer \"{}\"): net debt {net} (debt − cash) is at or below minus its \
+                 equity_value {}, a net D/E at or below −1 that no leverage formula can unlever",
+                peer.name, peer.equity_value
+            ));
+        }
+        if leverage.cash_correction && peer.cash >= peer.equity_value + peer.debt {
+            return Err(format!(
+                "peer.{i}.cash = {} (peer \"{}\") is not below equity_value + debt = {}, so the \
+                 cash correction 1 / (1 − cash / (equity + debt)) is undefined",
+                peer.cash,
+                peer.name,
+                peer.equity_value + peer.debt
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// The `[debt]` keys each cost-of-debt source needs, and the leverage keys that go with them.
+fn validate_debt(case: &CaseFile) -> std::result::Result<(), String> {
+    let debt = &case.debt;
+    let need = |key: &str, present: bool| {
+        if present {
+            Ok(())
+        } else {
+            Err(format!(
+                "debt.{key} is required when debt.source = \"{}\"",
+                match debt.source {
+                    DebtSource::Given => "given",
+                    DebtSource::Rating => "rating",
+                    DebtSource::Coverage => "coverage",
+                }
+            ))
+        }
+    };
+    if let Some(kd) = debt.cost_pre_tax {
+        rate("debt.cost_pre_tax", kd, 0.0, 1.0)?;
+    }
+    match debt.source {
+        DebtSource::Given => need("cost_pre_tax", debt.cost_pre_tax.is_some())?,
+        DebtSource::Rating => {
+            need("rating", debt.rating.is_some())?;
+            need("rating_table", debt.rating_table.is_some())?;
+        }
+        DebtSource::Coverage => {
+            need("ebit", debt.ebit.is_some())?;
+            need("interest_expense", debt.interest_expense.is_some())?;
+            need("coverage_table", debt.coverage_table.is_some())?;
+            let (ebit, interest) = (
+                debt.ebit.unwrap_or(0.0),
+                debt.interest_expense.unwrap_or(0.0),
+            );
+            if !(interest.is_finite() && interest > 0.0) {
+                return Err(format!(
+                    "debt.interest_expense = {interest} must be positive to compute interest \
+                     coverage (EBIT / interest expense)"
+                ));
+            }
+            if !ebit.is_finite() || ebit < 0.0 {
+                return Err(format!(
+                    "debt.ebit = {ebit} gives a negative interest coverage {} (EBIT / interest \
+                     expense); a synthetic rating from coverage is not meaningful for a loss, so \
+                     give the cost of debt (debt.source = \"given\") or a rating",
+                    ebit / interest
+                ));
+            }
+        }
+    }
+    let leverage = &case.leverage;
+    if leverage.debt_beta_source == DebtBetaSource::Given {
+        rate("leverage.debt_beta", leverage.debt_beta, -1.0, 3.0)?;
+    } else if leverage.debt_beta != 0.0 {
+        return Err(format!(
+            "leverage.debt_beta = {} is given but leverage.debt_beta_source = {}; set \
+             leverage.debt_beta_source = \"given\" for it to be used",
+            leverage.debt_beta,
+            if leverage.debt_beta_source == DebtBetaSource::None {
+                "\"none\" (riskless debt)"
+            } else {
+                "\"credit-spread\""
+            }
+        ));
     }
     Ok(())
 }

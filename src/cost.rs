@@ -31,6 +31,13 @@ pub fn wacc(equity_weight: f64, cost_of_equity: f64, debt_weight: f64, after_tax
     equity_weight * cost_of_equity + debt_weight * after_tax_debt
 }
 
+/// Scales two-part weights (equity, debt) to leave `other` (preferred + leases) of total capital:
+/// wE = (1 − other)/(1 + D/E), wD = (1 − other)·(D/E)/(1 + D/E).
+pub fn weights_with_other_components(debt_to_equity: f64, other: f64) -> (f64, f64) {
+    let (equity, debt) = weights_from_debt_to_equity(debt_to_equity);
+    (equity * (1.0 - other), debt * (1.0 - other))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -56,5 +63,19 @@ mod tests {
         let (we, wd) = weights_from_debt_to_equity(0.0);
         assert_eq!((we, wd), (1.0, 0.0));
         assert_eq!(wacc(we, 0.093, wd, 0.04), 0.093);
+    }
+
+    // Hand-worked: preferred 10% and leases 5% of capital, D/E = 0.25: the rest 85% splits
+    // 0.8/0.2, so wE = 0.68, wD = 0.17. Ke 11%, Kd after tax 4.5%, Kp 7%, leases 6% pre-tax at
+    // t = 25% → 4.5%: WACC = 0.68·0.11 + 0.17·0.045 + 0.10·0.07 + 0.05·0.045
+    // = 0.0748 + 0.00765 + 0.007 + 0.00225 = 0.0917.
+    #[test]
+    fn wacc_with_preferred_and_leases_hand_example() {
+        let (we, wd) = weights_with_other_components(0.25, 0.15);
+        // 1e-15: one or two roundings of decimals.
+        assert!((we - 0.68).abs() < 1e-15 && (wd - 0.17).abs() < 1e-15);
+        let lease_after_tax = after_tax_cost_of_debt(0.06, 0.25);
+        let total = wacc(we, 0.11, wd, 0.045) + 0.10 * 0.07 + 0.05 * lease_after_tax;
+        assert!((total - 0.0917).abs() < 1e-15);
     }
 }

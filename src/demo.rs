@@ -236,6 +236,7 @@ pub fn generate(seed: u64) -> Vec<(String, String)> {
         }
         files.push((format!("data/peers/{}.csv", peer.file_stem), text));
     }
+    files.extend(spread_tables());
     files.push(("case.toml".to_string(), case_toml()));
     files.push(("claimed.toml".to_string(), CLAIMED.to_string()));
     files
@@ -256,6 +257,40 @@ cost_of_debt_pre_tax = 0.062
 tax_rate = 0.25
 debt_to_equity = 0.50
 "#;
+
+/// Invented credit-spread tables for the `rating` and `coverage` cost-of-debt sources: rating,
+/// lowest interest coverage and spread per row. Illustrative only, not market data; the
+/// spreads merely widen as ratings fall, as real ones do.
+pub const DEMO_SPREADS: [(&str, f64, f64); 8] = [
+    ("C", 0.0, 0.1200),
+    ("CCC", 0.8, 0.0800),
+    ("B", 1.5, 0.0420),
+    ("BB", 2.5, 0.0260),
+    ("BBB", 3.5, 0.0160),
+    ("A", 5.0, 0.0110),
+    ("AA", 8.0, 0.0080),
+    ("AAA", 12.5, 0.0060),
+];
+
+fn spread_tables() -> Vec<(String, String)> {
+    let warning = "# ILLUSTRATIVE ONLY: invented for the demo case by hurdle-demo-data \
+                   (src/demo.rs); not market data.\n";
+    let mut rating = format!("{warning}rating,spread\n");
+    let mut coverage = format!(
+        "{warning}# A row applies from its min_coverage (EBIT / interest expense, inclusive) up to \
+         the next row's.\nmin_coverage,rating,spread\n"
+    );
+    for (name, _, spread) in DEMO_SPREADS.iter().rev() {
+        writeln!(rating, "{name},{spread:.4}").expect("String write");
+    }
+    for (name, low, spread) in DEMO_SPREADS {
+        writeln!(coverage, "{low:.1},{name},{spread:.4}").expect("String write");
+    }
+    vec![
+        ("data/rating_spreads.csv".to_string(), rating),
+        ("data/coverage_ratings.csv".to_string(), coverage),
+    ]
+}
 
 fn case_toml() -> String {
     let mut text = String::from(
@@ -293,14 +328,26 @@ aggregation = "median"
 [target]
 debt_to_equity = 0.40
 tax_rate = 0.25
+# For target.source = "subject" (the subject's own current structure); illustrative.
+subject_equity_value = 1500.0
+subject_debt = 450.0
+subject_cash = 80.0
 
 [debt]
+source = "given"              # or "rating" or "coverage", e.g. --set debt.source=coverage
 cost_pre_tax = 0.058          # illustrative
+rating = "BBB"                # illustrative; for source = "rating"
+rating_table = "data/rating_spreads.csv"      # illustrative, invented table
+ebit = 210.0                  # illustrative; for source = "coverage" (coverage 4.375)
+interest_expense = 48.0       # illustrative
+coverage_table = "data/coverage_ratings.csv"  # illustrative, invented table
 
 [premiums]
 size = 0.010                  # illustrative
 country = 0.0
 company_specific = 0.0
+country_method = "added"      # or "lambda" (with country_lambda) or "beta"
+size_justification = "Illustrative: the subject is smaller than every peer (invented demo figure)."
 
 [uncertainty]
 draws = 10000

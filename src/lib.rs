@@ -3,7 +3,8 @@
 //!
 //! The modules follow the pipeline: [`case`] (the inputs) → [`data`] (reading price files) →
 //! [`sampling`] (period returns) → [`regression`] (least squares) → [`beta`] (estimators) →
-//! [`leverage`] (unlever, aggregate, relever) → [`cost`] (cost of equity, cost of debt, WACC) →
+//! [`leverage`] (unlever, aggregate, relever) → [`debt`] (where the cost of debt comes from) →
+//! [`cost`] (cost of equity, cost of debt, WACC) → [`currency`] (Fisher conversion) →
 //! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV). [`stats`], [`format`]
 //! and [`random`] are shared helpers; [`demo`] generates the invented demo case.
 
@@ -11,7 +12,9 @@ pub mod audit;
 pub mod beta;
 pub mod case;
 pub mod cost;
+pub mod currency;
 pub mod data;
+pub mod debt;
 pub mod demo;
 pub mod error;
 pub mod format;

@@ -38,15 +38,83 @@ pub fn student_t_two_sided_p(t: f64, df: f64) -> f64 {
 pub enum Aggregation {
     Median,
     Mean,
+    /// Mean weighted by each peer's market value of equity.
+    MarketCapWeighted,
+    /// Mean after cutting `leverage.trim_fraction` of the values from each end.
+    TrimmedMean,
 }
 
 impl Aggregation {
+    /// The median or mean of a [`Dispersion`].
+    ///
+    /// # Panics
+    /// For the market-cap-weighted and trimmed means, which need more than a dispersion; use
+    /// [`Aggregation::select`].
     pub fn pick(self, summary: &Dispersion) -> f64 {
         match self {
             Aggregation::Median => summary.median,
             Aggregation::Mean => summary.mean,
+            Aggregation::MarketCapWeighted | Aggregation::TrimmedMean => {
+                panic!("{self:?} needs weights or a trim fraction; use Aggregation::select")
+            }
         }
     }
+
+    /// This statistic out of all of them.
+    pub fn select(self, statistics: &Locations) -> f64 {
+        match self {
+            Aggregation::Median => statistics.median,
+            Aggregation::Mean => statistics.mean,
+            Aggregation::MarketCapWeighted => statistics.market_cap_weighted_mean,
+            Aggregation::TrimmedMean => statistics.trimmed_mean,
+        }
+    }
+}
+
+/// Every location statistic an aggregation can pick, computed together so each is reported.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Locations {
+    pub median: f64,
+    pub mean: f64,
+    pub market_cap_weighted_mean: f64,
+    pub trimmed_mean: f64,
+    /// Fraction cut from each end for `trimmed_mean`.
+    pub trim_fraction: f64,
+    /// How many values the trimmed mean cut from each end.
+    pub trimmed_each_end: usize,
+}
+
+/// The median, mean, weighted mean (weights: market value of equity) and trimmed mean of
+/// `values`.
+pub fn locations(values: &[f64], market_caps: &[f64], trim_fraction: f64) -> Locations {
+    let summary = dispersion(values);
+    let (trimmed_mean, trimmed_each_end) = trimmed_mean(values, trim_fraction);
+    Locations {
+        median: summary.median,
+        mean: summary.mean,
+        market_cap_weighted_mean: weighted_mean(values, market_caps),
+        trimmed_mean,
+        trim_fraction,
+        trimmed_each_end,
+    }
+}
+
+/// Σ wᵢxᵢ / Σ wᵢ (the textbook weighted arithmetic mean).
+pub fn weighted_mean(values: &[f64], weights: &[f64]) -> f64 {
+    assert_eq!(values.len(), weights.len(), "one weight per value");
+    let total: f64 = weights.iter().sum();
+    values.iter().zip(weights).map(|(v, w)| v * w).sum::<f64>() / total
+}
+
+/// Mean after removing ⌊n·α⌋ of the sorted values from each end, and that count: the trimmed
+/// mean of Tukey (1962, Ann. Math. Statistics 33(1)), with the cut rounded down as in
+/// `scipy.stats.trim_mean`. α in [0, 0.5).
+pub fn trimmed_mean(values: &[f64], fraction: f64) -> (f64, usize) {
+    let mut sorted = values.to_vec();
+    sorted.sort_by(f64::total_cmp);
+    let cut = (sorted.len() as f64 * fraction).floor() as usize;
+    let kept = &sorted[cut..sorted.len() - cut];
+    (kept.iter().sum::<f64>() / kept.len() as f64, cut)
 }
 
 /// Location and spread of a set of values.
@@ -139,5 +207,21 @@ mod tests {
         assert_eq!((d.min, d.max, d.mean), (1.0, 4.0, 2.5));
         // Sample SD of 1..4: √(5/3) (sum of squared deviations 5, n − 1 = 3).
         assert!((d.std_dev - (5.0_f64 / 3.0).sqrt()).abs() < 1e-15);
+    }
+
+    // Weighted mean by hand: values 1, 2, 4 with weights 1, 1, 2: (1 + 2 + 8) / 4 = 2.75.
+    #[test]
+    fn weighted_mean_by_hand() {
+        assert_eq!(weighted_mean(&[1.0, 2.0, 4.0], &[1.0, 1.0, 2.0]), 2.75);
+    }
+
+    // Trimmed mean by hand, 10 values 1..=9 and 100, α = 0.1: cut ⌊1.0⌋ = 1 from each end,
+    // mean of 2..=9 = 44 / 8 = 5.5; α = 0.15 still cuts ⌊1.5⌋ = 1; α = 0 is the mean 145/10.
+    #[test]
+    fn trimmed_mean_by_hand() {
+        let values = [100.0, 1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0];
+        assert_eq!(trimmed_mean(&values, 0.1), (5.5, 1));
+        assert_eq!(trimmed_mean(&values, 0.15), (5.5, 1));
+        assert_eq!(trimmed_mean(&values, 0.0), (14.5, 0));
     }
 }

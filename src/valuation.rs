@@ -9,11 +9,13 @@ use chrono::NaiveDate;
 use serde::Serialize;
 
 use crate::beta::{self, BetaEstimate};
-use crate::case::{Case, CaseFile, PeerSpec};
+use crate::case::{Case, CaseFile, CountryMethod, DebtBetaSource, DebtSource, TargetSource};
 use crate::cost;
+use crate::currency;
 use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
+use crate::debt::{self, CostOfDebtRecord, SpreadTable};
 use crate::error::{Error, Result};
-use crate::leverage::CapitalStructure;
+use crate::leverage::{self, CapitalStructure, DebtTerms, Formula};
 use crate::sampling::{self, AlignedReturns, DroppedPeriods, PeriodGrid};
 use crate::stats::{self, Dispersion};
 
@@ -28,6 +30,8 @@ pub struct Inputs {
     pub risk_free: Option<DataFile>,
     /// In the order of the case's `[[peer]]` tables.
     pub peers: Vec<DataFile>,
+    /// The rating or coverage spread table `[debt]` names, when its source needs one.
+    pub debt_table: Option<SpreadTable>,
 }
 
 /// Reads every data file a case names, resolving paths against the case file's folder.
@@ -67,11 +71,28 @@ pub fn load_inputs(case: Case) -> Result<Inputs> {
             )
         })
         .collect::<Result<Vec<_>>>()?;
+    let debt_settings = &settings.debt;
+    let debt_table = match debt_settings.source {
+        DebtSource::Given => None,
+        DebtSource::Rating | DebtSource::Coverage => {
+            let (written, coverage) = match debt_settings.source {
+                DebtSource::Rating => (&debt_settings.rating_table, false),
+                _ => (&debt_settings.coverage_table, true),
+            };
+            let written = written.as_deref().expect("validate() requires the table");
+            Some(debt::read_spread_table(
+                written,
+                &case.resolve(written),
+                coverage,
+            )?)
+        }
+    };
     Ok(Inputs {
         case,
         index,
         risk_free,
         peers,
+        debt_table,
     })
 }
 
@@ -133,6 +154,16 @@ pub struct PeerResult {
     pub debt_to_equity: f64,
     pub tax_rate: f64,
     pub unlevered_beta: f64,
+    /// The debt beta used in unlevering (0 when none; Hamada never uses one).
+    pub debt_beta: f64,
+    /// The peer's pre-tax cost of debt used by Miles–Ezzell and the credit-spread debt beta:
+    /// its own `cost_of_debt`, else the subject's.
+    pub cost_of_debt: f64,
+    /// βU / (1 − cash / (equity + debt)), the unlevered beta of the operating assets alone
+    /// (gross debt); aggregated instead of `unlevered_beta` when `leverage.cash_correction`.
+    pub cash_corrected_unlevered_beta: f64,
+    /// cash / (equity + debt), gross debt: the share of capital the cash correction removes.
+    pub cash_share_of_capital: f64,
 }
 
 /// Aggregation and relevering.
@@ -140,6 +171,8 @@ pub struct PeerResult {
 pub struct BetaSummary {
     pub formula: crate::leverage::Formula,
     pub formula_source: &'static str,
+    /// The relevering relation, as printed in the memo.
+    pub formula_expression: &'static str,
     pub aggregation: stats::Aggregation,
     /// The aggregate unlevered beta that is relevered.
     pub unlevered: f64,
@@ -147,6 +180,16 @@ pub struct BetaSummary {
     pub unlevered_dispersion: Dispersion,
     /// The aggregate relevered at the target structure.
     pub relevered: f64,
+    /// Whether the cash-corrected unlevered betas are the ones aggregated.
+    pub cash_corrected: bool,
+    /// The aggregate of the plain unlevered betas and of the cash-corrected ones (same statistic);
+    /// `unlevered` is one of the two.
+    pub unlevered_plain: f64,
+    pub unlevered_cash_corrected: f64,
+    /// Median, mean, market-cap-weighted mean and trimmed mean of the betas aggregated.
+    pub unlevered_statistics: stats::Locations,
+    /// Gross debt or net of cash in every D/E.
+    pub debt_measure: crate::case::DebtMeasure,
 }
 
 /// The target capital structure, both ratios, whichever was given.
@@ -156,6 +199,8 @@ pub struct TargetRecord {
     pub debt_to_equity: f64,
     pub debt_to_capital: f64,
     pub tax_rate: f64,
+    /// Marginal or effective: the basis of `tax_rate`, used for relevering and the shield.
+    pub tax_rate_basis: crate::case::TaxRateBasis,
 }
 
 /// A pair of figures for the equity and the debt of the capital structure.
@@ -163,6 +208,10 @@ pub struct TargetRecord {
 pub struct Weights {
     pub equity: f64,
     pub debt: f64,
+    /// Preferred equity (`[preferred]`); 0 when the case has none.
+    pub preferred: f64,
+    /// Lease liabilities (`[leases]`); 0 when the case has none.
+    pub leases: f64,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -170,7 +219,16 @@ pub struct PremiumRecord {
     pub size: f64,
     pub country: f64,
     pub company_specific: f64,
+    /// The premiums added to the cost of equity: size + country as applied + company-specific.
     pub total: f64,
+    pub country_method: crate::case::CountryMethod,
+    /// λ for `country_method = "lambda"`, βL for `"beta"`, 1 for `"added"`.
+    pub country_scale: f64,
+    /// The country premium as it enters the cost of equity.
+    pub country_applied: f64,
+    pub size_justification: String,
+    pub country_justification: String,
+    pub company_specific_justification: String,
 }
 
 /// Every figure of one cost-of-capital estimate, and every input that produced it.
@@ -219,106 +277,23 @@ pub struct CostOfCapital {
     pub wacc: f64,
     /// Each capital component's share of the WACC (weight × cost); they sum to `wacc`.
     pub wacc_contributions: Weights,
+    /// The debt beta used in relevering at the target (0 when none).
+    pub subject_debt_beta: f64,
+    /// Costs of the optional capital components (0 weight when absent).
+    pub other_capital_costs: OtherComponents,
+    /// How the pre-tax cost of debt was arrived at: source, table and row used.
+    pub cost_of_debt: CostOfDebtRecord,
+    /// The relevered beta, cost of equity and WACC under every leverage formula, same inputs.
+    pub leverage_comparison: Vec<FormulaOutcome>,
+    /// The results in the output currency by the Fisher relation, when `[conversion]` asks.
+    pub currency_conversion: Option<CurrencyConversion>,
 }
 
-/// The cost of capital from the peers' unlevered betas and the case's settings. The one place
-/// these steps are computed: [`value`], the sensitivity grid and the Monte Carlo all call it.
-pub fn cost_of_capital(settings: &CaseFile, unlevered: &[f64]) -> CostOfCapital {
-    let unlevered_dispersion = stats::dispersion(unlevered);
-    let aggregate = settings.leverage.aggregation.pick(&unlevered_dispersion);
-    let target_de = settings.target_debt_to_equity();
-    let tax_rate = settings.target.tax_rate;
-    let relevered = settings.leverage.formula.relever(
-        aggregate,
-        CapitalStructure {
-            debt_to_equity: target_de,
-            tax_rate,
-        },
-    );
-    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(target_de);
-    let market = &settings.market;
-    let premiums = &settings.premiums;
-    let cost_of_equity = cost::capm_cost_of_equity(
-        market.risk_free_rate,
-        relevered,
-        market.equity_risk_premium,
-        premiums.total(),
-    );
-    let cost_of_debt_pre_tax = settings.debt.cost_pre_tax;
-    let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
-    let wacc = cost::wacc(
-        equity_weight,
-        cost_of_equity,
-        debt_weight,
-        cost_of_debt_after_tax,
-    );
-    CostOfCapital {
-        beta: BetaSummary {
-            formula: settings.leverage.formula,
-            formula_source: settings.leverage.formula.citation(),
-            aggregation: settings.leverage.aggregation,
-            unlevered: aggregate,
-            unlevered_dispersion,
-            relevered,
-        },
-        target: TargetRecord {
-            given: if settings.target.debt_to_equity.is_some() {
-                "debt_to_equity"
-            } else {
-                "debt_to_capital"
-            },
-            debt_to_equity: target_de,
-            debt_to_capital: debt_weight,
-            tax_rate,
-        },
-        weights: Weights {
-            equity: equity_weight,
-            debt: debt_weight,
-        },
-        risk_free_rate: market.risk_free_rate,
-        equity_risk_premium: market.equity_risk_premium,
-        premiums: PremiumRecord {
-            size: premiums.size,
-            country: premiums.country,
-            company_specific: premiums.company_specific,
-            total: premiums.total(),
-        },
-        beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
-        cost_of_equity,
-        cost_of_debt_pre_tax,
-        cost_of_debt_after_tax,
-        wacc,
-        wacc_contributions: Weights {
-            equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
-            debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
-        },
-    }
-}
-
-/// The adjusted, used and unlevered beta of one peer from its raw estimate.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct UnleveredPeer {
-    pub adjusted_beta: Option<f64>,
-    pub beta_used: f64,
-    pub debt_to_equity: f64,
-    pub unlevered_beta: f64,
-}
-
-/// Applies the case's adjustment and unlevering formula to one peer's raw beta; the one place
-/// this is done, for the estimates and for each Monte Carlo draw alike.
-pub fn unlever_peer(settings: &CaseFile, peer: &PeerSpec, raw_beta: f64) -> UnleveredPeer {
-    let adjusted_beta = beta::adjust(settings.beta.adjustment, raw_beta);
-    let beta_used = adjusted_beta.unwrap_or(raw_beta);
-    let structure = CapitalStructure {
-        debt_to_equity: peer.debt / peer.equity_value,
-        tax_rate: peer.tax_rate,
-    };
-    UnleveredPeer {
-        adjusted_beta,
-        beta_used,
-        debt_to_equity: structure.debt_to_equity,
-        unlevered_beta: settings.leverage.formula.unlever(beta_used, structure),
-    }
+/// The adjusted beta (`None` without an adjustment) and the beta used for a raw estimate: the
+/// one place the adjustment is applied, for the estimates and each Monte Carlo draw alike.
+pub fn betas_used(settings: &CaseFile, raw_beta: f64) -> (Option<f64>, f64) {
+    let adjusted = beta::adjust(settings.beta.adjustment, raw_beta);
+    (adjusted, adjusted.unwrap_or(raw_beta))
 }
 
 /// Computes the valuation. `generated_at` is stamped into the result as given.
@@ -419,27 +394,37 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
                 aligned.dropped.risk_free_missing
             ));
         }
-        let unlevered = unlever_peer(settings, spec, estimate.beta);
+        let (adjusted_beta, beta_used) = betas_used(settings, estimate.beta);
         peers.push(PeerResult {
             name: spec.name.clone(),
             prices_file: file.path.clone(),
             periods_in_window: period_ends.len(),
             periods_dropped: aligned.dropped,
-            adjusted_beta: unlevered.adjusted_beta,
-            beta_used: unlevered.beta_used,
+            adjusted_beta,
+            beta_used,
             equity_value: spec.equity_value,
             debt: spec.debt,
             cash: spec.cash,
-            debt_to_equity: unlevered.debt_to_equity,
+            debt_to_equity: spec.debt / spec.equity_value,
             tax_rate: spec.tax_rate,
-            unlevered_beta: unlevered.unlevered_beta,
+            // Set after the loop by `capital_chain`, once the cost of debt is known.
+            unlevered_beta: f64::NAN,
+            debt_beta: 0.0,
+            cost_of_debt: f64::NAN,
+            cash_corrected_unlevered_beta: f64::NAN,
+            cash_share_of_capital: spec.cash / (spec.equity_value + spec.debt),
             estimate,
         });
         returns.push(aligned);
     }
 
-    let unlevered: Vec<f64> = peers.iter().map(|p| p.unlevered_beta).collect();
-    let cost = cost_of_capital(settings, &unlevered);
+    let cost = cost_of_capital(
+        case,
+        inputs.debt_table.as_ref(),
+        &mut peers,
+        &mut notes,
+        Checks::Enforce,
+    )?;
 
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());
@@ -483,4 +468,459 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
         notes,
         returns,
     })
+}
+
+/// Whether [`cost_of_capital`] rejects inconsistent debt betas (the point estimate does; a
+/// Monte Carlo draw, whose betas are random, is not an input error).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Checks {
+    Enforce,
+    Skip,
+}
+
+/// Everything after the peer regressions: cost of debt, debt betas, unlevering, aggregation,
+/// relevering, cost of equity and WACC, under every formula. Fills each peer's unlevered
+/// figures and adds notes. The one place these steps are computed: [`value_case`], the
+/// sensitivity grid and the Monte Carlo all come through here.
+pub fn cost_of_capital(
+    case: &Case,
+    debt_table: Option<&SpreadTable>,
+    peers: &mut [PeerResult],
+    notes: &mut Vec<String>,
+    checks: Checks,
+) -> Result<CostOfCapital> {
+    let settings = &case.settings;
+    let market = &settings.market;
+    let premiums = &settings.premiums;
+    let cost_of_debt = debt::cost_of_debt(&settings.debt, debt_table, market.risk_free_rate)
+        .map_err(|message| Error::Case {
+            file: case.path.clone(),
+            message,
+        })?;
+    let cost_of_debt_pre_tax = cost_of_debt.pre_tax;
+    assign_debt_terms(peers, settings, cost_of_debt_pre_tax);
+    let target_de = match settings.target.source {
+        // Through the one aggregation point, so the peers it counts are the peers aggregated.
+        TargetSource::PeerMedian => {
+            let ratios: Vec<f64> = peers.iter().map(|p| p.debt_to_equity).collect();
+            aggregate_over_peers(peers, &ratios, settings).0.median
+        }
+        _ => settings.target_debt_to_equity(),
+    };
+    let tax_rate = settings.target.tax_rate;
+    let subject_debt = DebtTerms {
+        debt_beta: subject_debt_beta(settings, cost_of_debt_pre_tax),
+        cost_of_debt: cost_of_debt_pre_tax,
+    };
+    let (preferred, leases) = (&settings.preferred, &settings.leases);
+    let (equity_weight, debt_weight) =
+        cost::weights_with_other_components(target_de, preferred.weight + leases.weight);
+    let cost_of_debt_after_tax = cost::after_tax_cost_of_debt(cost_of_debt_pre_tax, tax_rate);
+    let lease_cost_pre_tax = leases.cost_pre_tax.unwrap_or(cost_of_debt_pre_tax);
+    let other_components = OtherComponents {
+        preferred_cost: preferred.cost.unwrap_or(0.0),
+        lease_cost_pre_tax,
+        lease_cost_after_tax: cost::after_tax_cost_of_debt(lease_cost_pre_tax, tax_rate),
+    };
+    let all_weights = Weights {
+        equity: equity_weight,
+        debt: debt_weight,
+        preferred: preferred.weight,
+        leases: leases.weight,
+    };
+    let chain_inputs = ChainInputs {
+        target: CapitalStructure {
+            debt_to_equity: target_de,
+            tax_rate,
+        },
+        subject_debt,
+        weights: all_weights.clone(),
+        cost_of_debt_after_tax,
+        other: other_components.clone(),
+    };
+    let leverage_comparison: Vec<FormulaOutcome> = Formula::ALL
+        .iter()
+        .map(|&formula| capital_chain(formula, peers, settings, &chain_inputs))
+        .collect();
+    let chosen = leverage_comparison
+        .iter()
+        .find(|outcome| outcome.formula == settings.leverage.formula)
+        .expect("Formula::ALL holds every formula")
+        .clone();
+    for (i, peer) in peers.iter_mut().enumerate() {
+        peer.unlevered_beta = chosen.peer_unlevered_betas[i];
+        peer.cash_corrected_unlevered_beta = chosen.peer_cash_corrected_unlevered_betas[i];
+    }
+    if checks == Checks::Enforce {
+        check_debt_betas(case, peers, &chosen, subject_debt.debt_beta)?;
+    }
+    let unlevered_dispersion = chosen.unlevered_dispersion;
+    let aggregate = chosen.unlevered;
+    let relevered = chosen.relevered;
+    let cost_of_equity = chosen.cost_of_equity;
+    let wacc = chosen.wacc;
+    let wacc_contributions = Weights {
+        equity: cost::wacc(equity_weight, cost_of_equity, 0.0, 0.0),
+        debt: cost::wacc(0.0, 0.0, debt_weight, cost_of_debt_after_tax),
+        preferred: preferred.weight * other_components.preferred_cost,
+        leases: leases.weight * other_components.lease_cost_after_tax,
+    };
+    if settings.debt.source != DebtSource::Given && settings.debt.cost_pre_tax.is_some() {
+        notes.push(format!(
+            "debt.cost_pre_tax is not used: the cost of debt comes from the {} table.",
+            if settings.debt.source == DebtSource::Rating {
+                "rating"
+            } else {
+                "coverage"
+            }
+        ));
+    }
+    if settings.target.source != TargetSource::Explicit
+        && (settings.target.debt_to_equity.is_some() || settings.target.debt_to_capital.is_some())
+    {
+        notes.push(format!(
+            "target.source = {}: the target ratio written in [target] is not used.",
+            match settings.target.source {
+                TargetSource::PeerMedian => "peer-median",
+                _ => "subject",
+            }
+        ));
+    }
+    if settings.leverage.formula == Formula::Hamada
+        && settings.leverage.debt_beta_source != DebtBetaSource::None
+    {
+        notes.push(
+            "Hamada (1972) assumes riskless debt, so the debt betas are not used in the \
+             figures; Conine (1980) is Hamada with a debt beta (see the formula comparison)."
+                .to_string(),
+        );
+    }
+
+    Ok(CostOfCapital {
+        beta: BetaSummary {
+            formula: settings.leverage.formula,
+            formula_source: settings.leverage.formula.citation(),
+            formula_expression: settings.leverage.formula.expression(),
+            aggregation: settings.leverage.aggregation,
+            unlevered: aggregate,
+            unlevered_dispersion,
+            relevered,
+            cash_corrected: settings.leverage.cash_correction,
+            unlevered_plain: chosen.unlevered_plain,
+            unlevered_cash_corrected: chosen.unlevered_cash_corrected,
+            unlevered_statistics: chosen.unlevered_statistics,
+            debt_measure: settings.leverage.debt_measure,
+        },
+        target: TargetRecord {
+            given: match settings.target.source {
+                TargetSource::PeerMedian => "peer_median",
+                TargetSource::Subject => "subject_current",
+                TargetSource::Explicit if settings.target.debt_to_equity.is_some() => {
+                    "debt_to_equity"
+                }
+                TargetSource::Explicit => "debt_to_capital",
+            },
+            debt_to_equity: target_de,
+            debt_to_capital: cost::weights_from_debt_to_equity(target_de).1,
+            tax_rate,
+            tax_rate_basis: settings.target.tax_rate_basis,
+        },
+        weights: all_weights,
+        other_capital_costs: other_components,
+        risk_free_rate: market.risk_free_rate,
+        equity_risk_premium: market.equity_risk_premium,
+        premiums: PremiumRecord {
+            size: premiums.size,
+            country: premiums.country,
+            company_specific: premiums.company_specific,
+            total: premiums.total_applied(relevered),
+            country_method: premiums.country_method,
+            country_scale: match premiums.country_method {
+                CountryMethod::Added => 1.0,
+                CountryMethod::Lambda => premiums.country_lambda,
+                CountryMethod::Beta => relevered,
+            },
+            country_applied: premiums.country_applied(relevered),
+            size_justification: premiums.size_justification.clone(),
+            country_justification: premiums.country_justification.clone(),
+            company_specific_justification: premiums.company_specific_justification.clone(),
+        },
+        beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
+        subject_debt_beta: subject_debt.debt_beta,
+        cost_of_debt,
+        leverage_comparison,
+        cost_of_equity,
+        cost_of_debt_pre_tax,
+        cost_of_debt_after_tax,
+        wacc,
+        wacc_contributions,
+        currency_conversion: settings
+            .conversion
+            .as_ref()
+            .map(|c| convert_results(c, &settings.case.currency, cost_of_equity, wacc)),
+    })
+}
+
+/// The figures of one leverage formula, from the peers' betas to the WACC.
+#[derive(Debug, Clone, Serialize)]
+pub struct FormulaOutcome {
+    pub formula: Formula,
+    pub formula_source: &'static str,
+    pub expression: &'static str,
+    /// Whether this is the formula the case uses.
+    pub in_use: bool,
+    /// Each peer's unlevered beta under this formula, in peer order.
+    pub peer_unlevered_betas: Vec<f64>,
+    /// The same corrected for cash, βU / (1 − cash / (equity + debt)).
+    pub peer_cash_corrected_unlevered_betas: Vec<f64>,
+    #[serde(skip)]
+    pub unlevered_dispersion: Dispersion,
+    /// Every location statistic of the betas aggregated (cash-corrected or not, as the case says).
+    #[serde(skip)]
+    pub unlevered_statistics: stats::Locations,
+    /// The aggregate of the plain and of the cash-corrected unlevered betas.
+    #[serde(skip)]
+    pub unlevered_plain: f64,
+    #[serde(skip)]
+    pub unlevered_cash_corrected: f64,
+    pub unlevered: f64,
+    pub relevered: f64,
+    pub cost_of_equity: f64,
+    pub wacc: f64,
+}
+
+/// The costs of preferred equity and lease liabilities.
+#[derive(Debug, Clone, Serialize)]
+pub struct OtherComponents {
+    /// `preferred.cost` (0 when there is no preferred equity); not tax-deductible.
+    pub preferred_cost: f64,
+    /// `leases.cost_pre_tax`, else the pre-tax cost of debt.
+    pub lease_cost_pre_tax: f64,
+    /// The same after tax at the target tax rate.
+    pub lease_cost_after_tax: f64,
+}
+
+/// What every formula's chain shares: the target, the subject's debt and the WACC weights.
+struct ChainInputs {
+    target: CapitalStructure,
+    subject_debt: DebtTerms,
+    weights: Weights,
+    cost_of_debt_after_tax: f64,
+    other: OtherComponents,
+}
+
+/// Unlevers every peer with `formula`, aggregates, relevers at the target and builds the cost
+/// of equity and the WACC: the one path from peer betas to the WACC, for the case's formula and
+/// for the comparison alike.
+fn capital_chain(
+    formula: Formula,
+    peers: &[PeerResult],
+    settings: &CaseFile,
+    inputs: &ChainInputs,
+) -> FormulaOutcome {
+    let peer_unlevered_betas: Vec<f64> = peers
+        .iter()
+        .map(|peer| {
+            formula.unlever_with(
+                peer.beta_used,
+                CapitalStructure {
+                    debt_to_equity: peer.debt_to_equity,
+                    tax_rate: peer.tax_rate,
+                },
+                DebtTerms {
+                    debt_beta: peer.debt_beta,
+                    cost_of_debt: peer.cost_of_debt,
+                },
+            )
+        })
+        .collect();
+    let peer_cash_corrected_unlevered_betas: Vec<f64> = peers
+        .iter()
+        .zip(&peer_unlevered_betas)
+        .map(|(peer, &unlevered)| cash_corrected(unlevered, peer))
+        .collect();
+    let (plain_dispersion, plain_statistics) =
+        aggregate_over_peers(peers, &peer_unlevered_betas, settings);
+    let (corrected_dispersion, corrected_statistics) =
+        aggregate_over_peers(peers, &peer_cash_corrected_unlevered_betas, settings);
+    let aggregation = settings.leverage.aggregation;
+    let unlevered_plain = aggregation.select(&plain_statistics);
+    let unlevered_cash_corrected = aggregation.select(&corrected_statistics);
+    let (unlevered_dispersion, unlevered_statistics, unlevered) =
+        if settings.leverage.cash_correction {
+            (
+                corrected_dispersion,
+                corrected_statistics,
+                unlevered_cash_corrected,
+            )
+        } else {
+            (plain_dispersion, plain_statistics, unlevered_plain)
+        };
+    let relevered = formula.relever_with(unlevered, inputs.target, inputs.subject_debt);
+    let market = &settings.market;
+    let cost_of_equity = cost::capm_cost_of_equity(
+        market.risk_free_rate,
+        relevered,
+        market.equity_risk_premium,
+        settings.premiums.total_applied(relevered),
+    );
+    // Preferred and leases add wP·Kp + wL·KL·(1 − t); both terms are 0 without them.
+    let wacc = cost::wacc(
+        inputs.weights.equity,
+        cost_of_equity,
+        inputs.weights.debt,
+        inputs.cost_of_debt_after_tax,
+    ) + inputs.weights.preferred * inputs.other.preferred_cost
+        + inputs.weights.leases * inputs.other.lease_cost_after_tax;
+    FormulaOutcome {
+        formula,
+        formula_source: formula.citation(),
+        expression: formula.expression(),
+        in_use: formula == settings.leverage.formula,
+        peer_unlevered_betas,
+        peer_cash_corrected_unlevered_betas,
+        unlevered_dispersion,
+        unlevered_statistics,
+        unlevered_plain,
+        unlevered_cash_corrected,
+        unlevered,
+        relevered,
+        cost_of_equity,
+        wacc,
+    }
+}
+
+/// The dispersion and every location statistic of one figure per peer (`unlevered`, in peer
+/// order): the unlevered betas, or the D/E for a peer-median target. The one place the peers
+/// are aggregated (a filter on the peers belongs here).
+fn aggregate_over_peers(
+    peers: &[PeerResult],
+    unlevered: &[f64],
+    settings: &CaseFile,
+) -> (Dispersion, stats::Locations) {
+    let market_caps: Vec<f64> = peers.iter().map(|p| p.equity_value).collect();
+    (
+        stats::dispersion(unlevered),
+        stats::locations(unlevered, &market_caps, settings.leverage.trim_fraction),
+    )
+}
+
+/// Cash-corrected unlevered beta, βU / (1 − cash / (equity + debt)): the unlevered beta is a
+/// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
+/// non-cash share leaves the operating assets' beta (common practice; e.g. Damodaran,
+/// Investment Valuation, Wiley, from memory). Uses gross debt.
+fn cash_corrected(unlevered: f64, peer: &PeerResult) -> f64 {
+    unlevered / (1.0 - peer.cash_share_of_capital)
+}
+
+/// Sets each peer's D/E (gross or net debt), debt beta and cost of debt from `[leverage]` and
+/// the peer's own keys.
+fn assign_debt_terms(peers: &mut [PeerResult], settings: &CaseFile, subject_cost_of_debt: f64) {
+    let leverage = &settings.leverage;
+    let market = &settings.market;
+    for (peer, spec) in peers.iter_mut().zip(&settings.peers) {
+        peer.debt_to_equity = leverage.debt_measure.debt(spec.debt, spec.cash) / spec.equity_value;
+        peer.cost_of_debt = spec.cost_of_debt.unwrap_or(subject_cost_of_debt);
+        peer.debt_beta = match leverage.debt_beta_source {
+            DebtBetaSource::None => 0.0,
+            DebtBetaSource::Given => spec.debt_beta.unwrap_or(leverage.debt_beta),
+            DebtBetaSource::CreditSpread => spec.debt_beta.unwrap_or_else(|| {
+                leverage::debt_beta_from_spread(
+                    peer.cost_of_debt,
+                    market.risk_free_rate,
+                    market.equity_risk_premium,
+                )
+            }),
+        };
+    }
+}
+
+/// The subject's debt beta at the target structure.
+fn subject_debt_beta(settings: &CaseFile, cost_of_debt: f64) -> f64 {
+    let leverage = &settings.leverage;
+    let market = &settings.market;
+    match leverage.debt_beta_source {
+        DebtBetaSource::None => 0.0,
+        DebtBetaSource::Given => leverage.debt_beta,
+        DebtBetaSource::CreditSpread => leverage::debt_beta_from_spread(
+            cost_of_debt,
+            market.risk_free_rate,
+            market.equity_risk_premium,
+        ),
+    }
+}
+
+/// Debt cannot be riskier than the equity it ranks ahead of: a debt beta above a peer's equity
+/// beta (or above the aggregate asset beta the subject is relevered from) is an input error.
+fn check_debt_betas(
+    case: &Case,
+    peers: &[PeerResult],
+    chosen: &FormulaOutcome,
+    subject_debt_beta: f64,
+) -> Result<()> {
+    if chosen.formula == Formula::Hamada
+        || case.settings.leverage.debt_beta_source == DebtBetaSource::None
+    {
+        return Ok(());
+    }
+    for peer in peers {
+        if peer.debt_beta > peer.beta_used {
+            return Err(Error::Estimation {
+                peer: peer.name.clone(),
+                message: format!(
+                    "debt beta {} is above the equity beta used {}; debt ranks ahead of equity \
+                     and cannot carry more systematic risk (check leverage.debt_beta, the peer's \
+                     debt_beta or cost_of_debt)",
+                    peer.debt_beta, peer.beta_used
+                ),
+            });
+        }
+    }
+    if subject_debt_beta > chosen.unlevered {
+        return Err(Error::Case {
+            file: case.path.clone(),
+            message: format!(
+                "the subject's debt beta {subject_debt_beta} (leverage.debt_beta_source = {}) \
+                 is above the aggregate unlevered beta {}, so relevering would lower the equity \
+                 beta below the asset beta",
+                serde_json::to_string(&case.settings.leverage.debt_beta_source).unwrap_or_default(),
+                chosen.unlevered
+            ),
+        });
+    }
+    Ok(())
+}
+
+/// The cost of equity and WACC carried into the output currency, and both in real terms.
+#[derive(Debug, Clone, Serialize)]
+pub struct CurrencyConversion {
+    pub from: String,
+    pub to: String,
+    pub inflation_from: f64,
+    pub inflation_to: f64,
+    /// Nominal, in the output currency: (1 + r)·(1 + π_to)/(1 + π_from) − 1.
+    pub cost_of_equity: f64,
+    pub wacc: f64,
+    /// Real (the same in both currencies): (1 + r)/(1 + π_from) − 1.
+    pub cost_of_equity_real: f64,
+    pub wacc_real: f64,
+}
+
+fn convert_results(
+    conversion: &crate::case::ConversionSettings,
+    case_currency: &str,
+    cost_of_equity: f64,
+    wacc: f64,
+) -> CurrencyConversion {
+    let (from, to) = (conversion.inflation_case, conversion.inflation_output);
+    CurrencyConversion {
+        from: case_currency.to_string(),
+        to: conversion.currency.clone(),
+        inflation_from: from,
+        inflation_to: to,
+        cost_of_equity: currency::convert_nominal(cost_of_equity, from, to),
+        wacc: currency::convert_nominal(wacc, from, to),
+        cost_of_equity_real: currency::nominal_to_real(cost_of_equity, from),
+        wacc_real: currency::nominal_to_real(wacc, from),
+    }
 }

@@ -267,36 +267,34 @@ fn grid_cells_equal_single_runs() {
     assert!(text(&bad).contains("KEY=LOW..HIGH:STEP"), "{}", text(&bad));
 }
 
-fn demo_valuation(overrides: &[&str]) -> (hurdle::case::Case, hurdle::valuation::Valuation) {
+fn demo_valuation(overrides: &[&str]) -> (hurdle::valuation::Inputs, hurdle::valuation::Valuation) {
     let overrides: Vec<String> = overrides.iter().map(|s| s.to_string()).collect();
     let case = read_case(Path::new(&format!("{DEMO_DIR}/case.toml")), &overrides).unwrap();
-    let inputs = load_inputs(case.clone()).unwrap();
-    (case, value(&inputs, "").unwrap())
+    let inputs = load_inputs(case).unwrap();
+    let valuation = value(&inputs, "").unwrap();
+    (inputs, valuation)
 }
 
 #[test]
 fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
-    let (case, valuation) = demo_valuation(&[]);
+    let (inputs, valuation) = demo_valuation(&[]);
     let mut peers = valuation.peers.clone();
     for p in &mut peers {
         p.estimate.beta_std_error = 0.0;
     }
+    let run = |case: &hurdle::case::Case, peers: &[hurdle::valuation::PeerResult]| {
+        simulate(case, &inputs, peers, &valuation.cost).unwrap()
+    };
     // No sampling error: every draw is the point estimate, so every percentile is too.
-    let flat = simulate(&case.settings, &peers, &valuation.cost);
+    let flat = run(&inputs.case, &peers);
     for p in [flat.p05, flat.p25, flat.p50, flat.p75, flat.p95] {
         assert_eq!(p, valuation.cost.wacc);
     }
-    let once = simulate(&case.settings, &valuation.peers, &valuation.cost);
-    assert_eq!(
-        once,
-        simulate(&case.settings, &valuation.peers, &valuation.cost)
-    );
-    let mut other_seed = case.settings.clone();
-    other_seed.uncertainty.seed = 2;
-    assert_ne!(
-        once.p50,
-        simulate(&other_seed, &valuation.peers, &valuation.cost).p50
-    );
+    let once = run(&inputs.case, &valuation.peers);
+    assert_eq!(once, run(&inputs.case, &valuation.peers));
+    let mut other_seed = inputs.case.clone();
+    other_seed.settings.uncertainty.seed = 2;
+    assert_ne!(once.p50, run(&other_seed, &valuation.peers).p50);
     assert!(
         once.p05 < once.p25 && once.p25 < once.p50 && once.p50 < once.p75 && once.p75 < once.p95
     );
@@ -308,11 +306,12 @@ fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
 // IQR/1.349; the bound is 4 of those, and it shrinks as the draws grow.
 #[test]
 fn monte_carlo_median_converges_to_the_point_estimate() {
-    let (case, valuation) = demo_valuation(&["leverage.aggregation=mean", "beta.adjustment=none"]);
+    let (inputs, valuation) =
+        demo_valuation(&["leverage.aggregation=mean", "beta.adjustment=none"]);
     for draws in [2_000, 50_000] {
-        let mut settings = case.settings.clone();
-        settings.uncertainty.draws = draws;
-        let u = simulate(&settings, &valuation.peers, &valuation.cost);
+        let mut case = inputs.case.clone();
+        case.settings.uncertainty.draws = draws;
+        let u = simulate(&case, &inputs, &valuation.peers, &valuation.cost).unwrap();
         let sigma = (u.p75 - u.p25) / 1.349;
         let bound = 4.0 * (std::f64::consts::PI / 2.0).sqrt() * sigma / f64::from(draws).sqrt();
         assert!(

@@ -100,6 +100,14 @@ pub fn implied(
         });
     }
     let settings = &inputs.case.settings;
+    if target == Target::CostOfDebt && settings.debt.source != crate::case::DebtSource::Given {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: "the cost of debt comes from a spread table (debt.source); solve for it \
+                      with --set debt.source=given"
+                .into(),
+        });
+    }
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = match target {
         Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),

@@ -30,10 +30,11 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     };
     valuation.sensitivity = Some(grid::grid(inputs, &rows, &columns, sensitivity.metric)?);
     valuation.uncertainty = Some(uncertainty::simulate(
-        &inputs.case.settings,
+        &inputs.case,
+        inputs,
         &valuation.peers,
         &valuation.cost,
-    ));
+    )?);
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);
         let claimed = bridge::read_side(&path, &reconcile.claimed)?;

@@ -1,19 +1,20 @@
 //! Monte Carlo interval of the WACC from the peers' beta sampling error.
 //!
 //! Each draw replaces every peer's raw beta by β + SE·z (z standard normal: the large-sample
-//! sampling distribution of the OLS estimate), optionally draws the equity risk premium and the
+//! sampling distribution of the estimate), optionally draws the equity risk premium and the
 //! risk-free rate uniformly from user-given ranges, and reruns adjustment, unlevering,
-//! aggregation, relevering, CAPM and WACC through the same functions as the point estimate
-//! ([`unlever_peer`], [`cost_of_capital`]). The draws are seeded, so the same case gives the
-//! same percentiles everywhere. It measures the estimation error of the betas (and of the given
-//! ranges) only, not the error in choosing peers, index, window or method.
+//! aggregation, relevering, cost of debt, CAPM and WACC through the same functions as the point
+//! estimate ([`betas_used`], [`cost_of_capital`]). The draws are seeded, so the same case gives
+//! the same percentiles everywhere. It measures the estimation error of the betas (and of the
+//! given ranges) only, not the error in choosing peers, index, window or method.
 
 use serde::Serialize;
 
-use crate::case::CaseFile;
+use crate::case::Case;
+use crate::error::Result;
 use crate::random::Rng;
 use crate::stats::quantile_sorted;
-use crate::valuation::{cost_of_capital, unlever_peer, CostOfCapital, PeerResult};
+use crate::valuation::{betas_used, cost_of_capital, Checks, CostOfCapital, Inputs, PeerResult};
 
 /// Percentiles of the simulated WACC.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -32,30 +33,46 @@ pub struct Uncertainty {
     pub p95: f64,
 }
 
-/// Simulates the WACC. `peers` are the point estimates, in the order of `settings.peers`.
-pub fn simulate(settings: &CaseFile, peers: &[PeerResult], point: &CostOfCapital) -> Uncertainty {
-    let u = &settings.uncertainty;
+/// Simulates the WACC of `case` around the point estimates `peers` and `point`.
+pub fn simulate(
+    case: &Case,
+    inputs: &Inputs,
+    peers: &[PeerResult],
+    point: &CostOfCapital,
+) -> Result<Uncertainty> {
+    let u = &case.settings.uncertainty;
     let mut rng = Rng::seeded(u.seed);
-    let mut drawn = settings.clone();
-    let mut unlevered = vec![0.0; peers.len()];
+    let mut drawn_case = case.clone();
+    let mut drawn_peers = peers.to_vec();
     let mut waccs = Vec::with_capacity(u.draws as usize);
+    let mut notes = Vec::new();
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
     for _ in 0..u.draws {
-        for (i, (peer, spec)) in peers.iter().zip(&settings.peers).enumerate() {
+        for (drawn, peer) in drawn_peers.iter_mut().zip(peers) {
             let raw = peer.estimate.beta + peer.estimate.beta_std_error * rng.normal();
-            unlevered[i] = unlever_peer(settings, spec, raw).unlevered_beta;
+            drawn.estimate.beta = raw;
+            (drawn.adjusted_beta, drawn.beta_used) = betas_used(&case.settings, raw);
         }
+        let market = &mut drawn_case.settings.market;
         if let Some(range) = u.equity_risk_premium {
-            drawn.market.equity_risk_premium = uniform(&mut rng, range);
+            market.equity_risk_premium = uniform(&mut rng, range);
         }
         if let Some(range) = u.risk_free_rate {
-            drawn.market.risk_free_rate = uniform(&mut rng, range);
+            market.risk_free_rate = uniform(&mut rng, range);
         }
-        waccs.push(cost_of_capital(&drawn, &unlevered).wacc);
+        notes.clear();
+        let cost = cost_of_capital(
+            &drawn_case,
+            inputs.debt_table.as_ref(),
+            &mut drawn_peers,
+            &mut notes,
+            Checks::Skip,
+        )?;
+        waccs.push(cost.wacc);
     }
     waccs.sort_by(f64::total_cmp);
     let q = |p: f64| quantile_sorted(&waccs, p);
-    Uncertainty {
+    Ok(Uncertainty {
         draws: u.draws,
         seed: u.seed,
         beta_distribution: "normal(beta, beta_std_error) for each peer, independent",
@@ -68,5 +85,5 @@ pub fn simulate(settings: &CaseFile, peers: &[PeerResult], point: &CostOfCapital
         p50: q(0.50),
         p75: q(0.75),
         p95: q(0.95),
-    }
+    })
 }

@@ -32,6 +32,11 @@ def check(label, ours, reference, tolerance=TOLERANCE):
         failures.append(f"{label}: hurdle {ours!r} vs reference {reference!r}")
 
 
+def tax_factor(formula, t, kd):
+    """The factor s in beta_L = beta_U + (beta_U - beta_D) * s * D/E."""
+    return {"hamada": 1 - t, "conine": 1 - t, "harris-pringle": 1.0, "miles-ezzell": 1 - t * kd / (1 + kd)}[formula]
+
+
 def main(out_dir):
     with open(f"{out_dir}/result.json") as f:
         result = json.load(f)
@@ -92,12 +97,45 @@ def main(out_dir):
         check(f"{name} beta used", peer["beta_used"], used)
         spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
         de = spec["debt"] / spec["equity_value"]
+        if result["settings"]["leverage"]["debt_measure"] == "net":
+            de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
         check(f"{name} D/E", peer["debt_to_equity"], de)
         if result["beta"]["formula"] == "hamada":
             check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
+        else:
+            # Harris-Pringle (1985), Miles-Ezzell (1980), Conine (1980), solved for the asset beta.
+            bd = peer["debt_beta"]
+            if result["settings"]["leverage"]["debt_beta_source"] == "credit-spread" and "debt_beta" not in spec:
+                # The CAPM solved for the beta of debt priced at Kd: (Kd - rf) / ERP.
+                kd = spec.get("cost_of_debt", result["cost_of_debt_pre_tax"])
+                check(f"{name} debt beta from spread", bd, (kd - result["risk_free_rate"]) / result["equity_risk_premium"])
+            s = tax_factor(result["beta"]["formula"], spec["tax_rate"], peer["cost_of_debt"])
+            check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
     unlevered = np.array([p["unlevered_beta"] for p in result["peers"]])
-    aggregate = {"median": np.median(unlevered), "mean": np.mean(unlevered)}[result["beta"]["aggregation"]]
+    leverage = result["settings"]["leverage"]
+    specs = {p["name"]: p for p in result["settings"]["peer"]}
+    # Cash-corrected unlevered beta: beta_U / (1 - cash / (equity + debt)), gross debt.
+    corrected = np.array([
+        p["unlevered_beta"] / (1 - specs[p["name"]]["cash"] / (specs[p["name"]]["equity_value"] + specs[p["name"]]["debt"]))
+        for p in result["peers"]
+    ])
+    for p, c in zip(result["peers"], corrected):
+        check(f"{p['name']} cash-corrected unlevered", p["cash_corrected_unlevered_beta"], c)
+    if leverage["cash_correction"]:
+        unlevered = corrected
+    caps = np.array([specs[p["name"]]["equity_value"] for p in result["peers"]])
+    statistics = {
+        "median": np.median(unlevered),
+        "mean": np.mean(unlevered),
+        "market-cap-weighted": np.average(unlevered, weights=caps),
+        "trimmed-mean": stats.trim_mean(unlevered, leverage["trim_fraction"]),
+    }
+    locations = result["beta"]["unlevered_statistics"]
+    check("mean (numpy)", locations["mean"], statistics["mean"])
+    check("market-cap-weighted mean (numpy average)", locations["market_cap_weighted_mean"], statistics["market-cap-weighted"])
+    check("trimmed mean (scipy trim_mean)", locations["trimmed_mean"], statistics["trimmed-mean"])
+    aggregate = statistics[result["beta"]["aggregation"]]
     check("aggregate unlevered beta", result["beta"]["unlevered"], aggregate)
     d = result["beta"]["unlevered_dispersion"]
     check("lower quartile (numpy)", d["lower_quartile"], np.percentile(unlevered, 25))
@@ -106,16 +144,43 @@ def main(out_dir):
 
     target = result["target"]
     de, t = target["debt_to_equity"], target["tax_rate"]
-    relevered = aggregate * (1 + (1 - t) * de)
+    tset = result["settings"]["target"]
+    net = leverage["debt_measure"] == "net"
+    if tset["source"] == "peer-median":
+        ratios = [(p["debt"] - (p["cash"] if net else 0)) / p["equity_value"] for p in result["settings"]["peer"]]
+        check("target D/E (peer median)", de, np.median(ratios))
+    elif tset["source"] == "subject":
+        debt = tset["subject_debt"] - (tset.get("subject_cash", 0) if net else 0)
+        check("target D/E (subject)", de, debt / tset["subject_equity_value"])
+    formula = result["beta"]["formula"]
+    # The subject's debt beta: none, given, or (Kd - rf) / ERP from its own cost of debt.
+    bd = {
+        "none": 0.0,
+        "given": leverage["debt_beta"],
+        "credit-spread": (result["cost_of_debt_pre_tax"] - result["risk_free_rate"]) / result["equity_risk_premium"],
+    }[leverage["debt_beta_source"]]
+    check("subject debt beta", result["subject_debt_beta"], bd)
+    if formula == "hamada":
+        bd = 0.0
+    s = tax_factor(formula, t, result["cost_of_debt_pre_tax"])
+    relevered = aggregate + (aggregate - bd) * s * de
     check("relevered beta", result["beta"]["relevered"], relevered)
     p = result["premiums"]
-    ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + p["size"] + p["country"] + p["company_specific"]
+    ps = result["settings"]["premiums"]
+    # Country risk premium added directly, times the exposure lambda, or times the relevered beta.
+    country = {"added": ps["country"], "lambda": ps["country_lambda"] * ps["country"], "beta": relevered * ps["country"]}[ps["country_method"]]
+    check("country premium applied", p["country_applied"], country)
+    ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + ps["size"] + country + ps["company_specific"]
     check("cost of equity (CAPM)", result["cost_of_equity"], ke)
     kd = result["cost_of_debt_pre_tax"] * (1 - t)
     check("after-tax cost of debt", result["cost_of_debt_after_tax"], kd)
-    we, wd = 1 / (1 + de), de / (1 + de)
+    pref, leases = result["settings"]["preferred"], result["settings"]["leases"]
+    other = pref["weight"] + leases["weight"]
+    we, wd = (1 - other) / (1 + de), (1 - other) * de / (1 + de)
     check("equity weight", result["weights"]["equity"], we)
-    check("WACC", result["wacc"], we * ke + wd * kd)
+    # Preferred equity at its own cost (not deductible); leases after tax at the target rate.
+    kl = leases.get("cost_pre_tax", result["cost_of_debt_pre_tax"]) * (1 - t)
+    check("WACC", result["wacc"], we * ke + wd * kd + pref["weight"] * pref.get("cost", 0.0) + leases["weight"] * kl)
 
     for line in failures:
         print("MISMATCH", line)

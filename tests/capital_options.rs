@@ -1,0 +1,428 @@
+//! The capital-structure options end to end on the demo case: every leverage formula and
+//! cost-of-debt source by `--set`, the formula comparison, the WACC identity on result.json's
+//! components, the independent numpy/scipy recomputation under each formula, and the bad
+//! inputs of these options with their messages.
+
+use std::path::Path;
+use std::process::Command;
+
+const DEMO_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh/case.toml");
+const FORMULAS: [&str; 4] = ["hamada", "harris-pringle", "miles-ezzell", "conine"];
+
+fn hurdle(args: &[&str]) -> std::process::Output {
+    Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(args)
+        .output()
+        .expect("hurdle runs")
+}
+
+fn run_demo(out: &Path, sets: &[&str]) -> serde_json::Value {
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for set in sets {
+        args.extend_from_slice(&["--set", set]);
+    }
+    let output = hurdle(&args);
+    assert!(
+        output.status.success(),
+        "{sets:?}: {}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
+}
+
+/// Runs the demo with `sets` and returns the error message; checks the exit status and that no
+/// output was written.
+fn fails(sets: &[&str]) -> String {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for set in sets {
+        args.extend_from_slice(&["--set", set]);
+    }
+    let output = hurdle(&args);
+    assert_eq!(output.status.code(), Some(2), "{sets:?} should fail");
+    assert!(!out.exists(), "{sets:?}: output written on failure");
+    String::from_utf8_lossy(&output.stderr).into_owned()
+}
+
+/// Runs tests/reference/check_regressions.py (numpy, scipy, textbook formulas) on a run's output.
+fn reference_check(out: &Path, label: &str) {
+    let script = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/check_regressions.py"
+    );
+    let output = Command::new("python3")
+        .arg(script)
+        .arg(out)
+        .output()
+        .expect("python3 must be installed for the reference check");
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    assert!(output.status.success(), "{label}: {stdout}");
+    assert!(stdout.contains(" 0 failed"), "{label}: {stdout}");
+}
+
+fn number(v: &serde_json::Value, path: &str) -> f64 {
+    path.split('.')
+        .fold(v, |v, key| &v[key])
+        .as_f64()
+        .unwrap_or_else(|| panic!("{path} is not a number"))
+}
+
+/// Textbook WACC on result.json's own components: wE·Ke + wD·Kd·(1 − t*) + wP·Kp + wL·KL·(1 − t*).
+fn wacc_from_components(result: &serde_json::Value) -> f64 {
+    let t = number(result, "target.tax_rate");
+    number(result, "weights.equity") * number(result, "cost_of_equity")
+        + number(result, "weights.debt") * number(result, "cost_of_debt_pre_tax") * (1.0 - t)
+        + number(result, "weights.preferred") * number(result, "other_capital_costs.preferred_cost")
+        + number(result, "weights.leases")
+            * number(result, "other_capital_costs.lease_cost_pre_tax")
+            * (1.0 - t)
+}
+
+#[test]
+fn every_formula_runs_and_the_memo_compares_them_all() {
+    for formula in FORMULAS {
+        for source in ["none", "credit-spread"] {
+            let dir = tempfile::tempdir().unwrap();
+            let result = run_demo(
+                dir.path(),
+                &[
+                    &format!("leverage.formula={formula}"),
+                    &format!("leverage.debt_beta_source={source}"),
+                ],
+            );
+            assert_eq!(result["beta"]["formula"], formula);
+            // 1e-12: the same products summed in the same order differ by rounding only.
+            let gap = (wacc_from_components(&result) - number(&result, "wacc")).abs();
+            assert!(gap < 1e-12, "{formula} {source}: {gap}");
+            for peer in result["peers"].as_array().unwrap() {
+                let debt_beta = number(peer, "debt_beta");
+                if source == "none" {
+                    assert_eq!(debt_beta, 0.0);
+                } else {
+                    // (Kd − rf)/ERP with the demo's 5.8%, 3.8%, 5.5%: 0.02/0.055 = 0.3636….
+                    // 1e-15: one subtraction and one division.
+                    assert!((debt_beta - 0.02 / 0.055).abs() < 1e-15, "{debt_beta}");
+                }
+            }
+            let rows = result["leverage_comparison"].as_array().unwrap();
+            assert_eq!(rows.len(), 4);
+            let used: Vec<_> = rows.iter().filter(|r| r["in_use"] == true).collect();
+            assert_eq!(used.len(), 1);
+            assert_eq!(used[0]["formula"], formula);
+            assert_eq!(used[0]["wacc"], result["wacc"]);
+            assert_eq!(used[0]["relevered"], result["beta"]["relevered"]);
+            let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+            for row in rows {
+                let line = format!("| {}", row["formula"].as_str().unwrap());
+                assert!(memo.contains(&line), "memo lacks the comparison row {line}");
+                let wacc = hurdle::format::percent(number(row, "wacc"), 2);
+                assert!(memo.contains(&wacc), "memo lacks {wacc}");
+            }
+        }
+    }
+}
+
+// Published identity checked on real output: with riskless debt Conine (1980) is Hamada (1972),
+// so their comparison rows agree; with the credit-spread debt beta they differ.
+#[test]
+fn conine_equals_hamada_only_without_a_debt_beta() {
+    let dir = tempfile::tempdir().unwrap();
+    let riskless = run_demo(dir.path(), &[]);
+    let rows = riskless["leverage_comparison"].as_array().unwrap();
+    let wacc = |rows: &[serde_json::Value], name: &str| {
+        number(rows.iter().find(|r| r["formula"] == name).unwrap(), "wacc")
+    };
+    // 1e-15: βU + βU·x against βU·(1 + x) differ by one rounding, scaled by ERP and wE.
+    assert!((wacc(rows, "conine") - wacc(rows, "hamada")).abs() < 1e-15);
+    let risky = run_demo(dir.path(), &["leverage.debt_beta_source=credit-spread"]);
+    let rows = risky["leverage_comparison"].as_array().unwrap();
+    assert!((wacc(rows, "conine") - wacc(rows, "hamada")).abs() > 1e-6);
+}
+
+/// numpy/scipy and the textbook formulas (tests/reference) recompute every figure under each
+/// formula with the credit-spread debt beta.
+#[test]
+fn the_reference_check_agrees_under_every_formula() {
+    for formula in FORMULAS {
+        let dir = tempfile::tempdir().unwrap();
+        run_demo(
+            dir.path(),
+            &[
+                &format!("leverage.formula={formula}"),
+                "leverage.debt_beta_source=credit-spread",
+            ],
+        );
+        reference_check(dir.path(), formula);
+    }
+}
+
+/// The reference check (numpy average, scipy trim_mean, the cash correction, net debt and the
+/// target sources written out in Python) under the aggregation and structure options.
+#[test]
+fn the_reference_check_agrees_under_the_aggregation_and_structure_options() {
+    for sets in [
+        &["leverage.aggregation=mean", "leverage.cash_correction=true"][..],
+        &[
+            "leverage.aggregation=market-cap-weighted",
+            "leverage.debt_measure=net",
+        ][..],
+        &[
+            "leverage.aggregation=trimmed-mean",
+            "leverage.trim_fraction=0.2",
+            "target.source=peer-median",
+        ][..],
+        &[
+            "target.source=subject",
+            "leverage.debt_measure=net",
+            "leverage.formula=miles-ezzell",
+        ][..],
+        &[
+            "leverage.formula=conine",
+            "leverage.debt_beta_source=given",
+            "leverage.debt_beta=0.15",
+            "debt.source=coverage",
+        ][..],
+    ] {
+        let dir = tempfile::tempdir().unwrap();
+        run_demo(dir.path(), sets);
+        reference_check(dir.path(), &format!("{sets:?}"));
+    }
+}
+
+// The subject's own structure in the demo case: debt 450, cash 80, equity 1500.
+// Gross: 450 / 1500 = 0.3; net: (450 − 80) / 1500 = 370 / 1500 = 0.24666….
+#[test]
+fn the_target_can_be_the_subjects_own_structure() {
+    let dir = tempfile::tempdir().unwrap();
+    let gross = run_demo(dir.path(), &["target.source=subject"]);
+    // 1e-15: one division.
+    assert!((number(&gross, "target.debt_to_equity") - 0.3).abs() < 1e-15);
+    assert_eq!(gross["target"]["given"], "subject_current");
+    let net = run_demo(
+        dir.path(),
+        &["target.source=subject", "leverage.debt_measure=net"],
+    );
+    assert!((number(&net, "target.debt_to_equity") - 370.0 / 1500.0).abs() < 1e-15);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("the subject's own current structure"));
+}
+
+#[test]
+fn cash_counted_twice_is_refused() {
+    let message = fails(&["leverage.cash_correction=true", "leverage.debt_measure=net"]);
+    assert!(message.contains("count cash twice"), "{message}");
+}
+
+#[test]
+fn debt_beta_above_the_equity_beta_is_refused() {
+    let message = fails(&[
+        "leverage.formula=harris-pringle",
+        "leverage.debt_beta_source=given",
+        "leverage.debt_beta=0.3",
+        "peer.Dunmere Hydraulics.debt_beta=0.95",
+    ]);
+    assert!(
+        message.contains("Dunmere Hydraulics") && message.contains("0.95"),
+        "{message}"
+    );
+    assert!(message.contains("above the equity beta"), "{message}");
+}
+
+// Cost-of-debt sources on the demo's illustrative tables (cases/quillmarsh/data, inputs, not
+// output): rating BBB → spread 0.0160, so Kd = 3.8% + 1.6% = 5.4%; coverage 210 / 48 = 4.375
+// lies in [3.5, 5.0), the BBB row, so the same 5.4%.
+#[test]
+fn every_cost_of_debt_source_runs_and_the_memo_shows_the_row() {
+    for (source, expected_line) in [
+        ("rating", "| BBB | 160 bp |"),
+        ("coverage", "| 3.50 | BBB | 160 bp |"),
+    ] {
+        let dir = tempfile::tempdir().unwrap();
+        let result = run_demo(dir.path(), &[&format!("debt.source={source}")]);
+        // 1e-15: one addition of decimals.
+        assert!((number(&result, "cost_of_debt_pre_tax") - 0.054).abs() < 1e-15);
+        assert_eq!(result["cost_of_debt"]["row"]["rating"], "BBB");
+        // 1e-12: as in the WACC identity above.
+        assert!((wacc_from_components(&result) - number(&result, "wacc")).abs() < 1e-12);
+        let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+        assert!(
+            memo.contains(expected_line),
+            "{source}: memo lacks {expected_line}"
+        );
+        if source == "coverage" {
+            assert_eq!(number(&result["cost_of_debt"], "interest_coverage"), 4.375);
+        }
+    }
+    // Exactly on the 5.0 threshold: EBIT 240 / interest 48 = 5 → row A, spread 0.0110.
+    let dir = tempfile::tempdir().unwrap();
+    let on = run_demo(dir.path(), &["debt.source=coverage", "debt.ebit=240"]);
+    assert_eq!(on["cost_of_debt"]["row"]["rating"], "A");
+    // Above the highest threshold (12.5): 960 / 48 = 20 → AAA.
+    let top = run_demo(dir.path(), &["debt.source=coverage", "debt.ebit=960"]);
+    assert_eq!(top["cost_of_debt"]["row"]["rating"], "AAA");
+}
+
+#[test]
+fn negative_coverage_is_refused() {
+    let message = fails(&["debt.source=coverage", "debt.ebit=-12"]);
+    assert!(message.contains("debt.ebit = -12"), "{message}");
+    assert!(
+        message.contains("negative interest coverage -0.25"),
+        "{message}"
+    );
+}
+
+#[test]
+fn a_rating_missing_from_the_table_is_refused() {
+    let message = fails(&["debt.source=rating", "debt.rating=BB+"]);
+    assert!(message.contains("\"BB+\""), "{message}");
+    assert!(message.contains("data/rating_spreads.csv"), "{message}");
+}
+
+#[test]
+fn a_peer_debt_beta_with_riskless_debt_is_refused() {
+    let message = fails(&["peer.Corrowick Valves.debt_beta=0.2"]);
+    assert!(
+        message.contains("peer.1.debt_beta") && message.contains("Corrowick"),
+        "{message}"
+    );
+}
+
+// Preferred 10% at 7% and leases 5% at 6% pre-tax: the rest, 85%, splits by the demo's
+// D/E 0.4 into wE = 0.85/1.4 and wD = 0.85·0.4/1.4; the weights sum to 1 and the WACC equals
+// its components.
+#[test]
+fn preferred_equity_and_leases_get_their_own_weight_and_cost() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "preferred.weight=0.1",
+            "preferred.cost=0.07",
+            "leases.weight=0.05",
+            "leases.cost_pre_tax=0.06",
+        ],
+    );
+    // 1e-15: a product and a quotient of decimals.
+    assert!((number(&result, "weights.equity") - 0.85 / 1.4).abs() < 1e-15);
+    assert!((number(&result, "weights.debt") - 0.85 * 0.4 / 1.4).abs() < 1e-15);
+    let sum: f64 = ["equity", "debt", "preferred", "leases"]
+        .iter()
+        .map(|k| number(&result["weights"], k))
+        .sum();
+    assert!((sum - 1.0).abs() < 1e-15);
+    // 1e-12: the same products summed in a different grouping.
+    assert!((wacc_from_components(&result) - number(&result, "wacc")).abs() < 1e-12);
+    reference_check(dir.path(), "preferred and leases");
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains("| Preferred equity | 10.0% | 7.00% |"),
+        "memo lacks preferred"
+    );
+}
+
+#[test]
+fn preferred_equity_without_a_cost_is_refused() {
+    let message = fails(&["preferred.weight=0.1"]);
+    assert!(message.contains("preferred.cost is missing"), "{message}");
+    assert!(message.contains("0.1"), "{message}");
+}
+
+// Country risk premium 2%: added → +2%; λ = 0.5 → +1%; scaled by βL → +βL·2%. The difference
+// in Ke against CRP = 0 is exactly that term (the rest of the build-up is unchanged).
+#[test]
+fn the_country_premium_is_added_scaled_by_lambda_or_by_beta() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = run_demo(dir.path(), &[]);
+    let ke0 = number(&base, "cost_of_equity");
+    let beta = number(&base, "beta.relevered");
+    for (method, expected) in [("added", 0.02), ("lambda", 0.01), ("beta", beta * 0.02)] {
+        let result = run_demo(
+            dir.path(),
+            &[
+                "premiums.country=0.02",
+                &format!("premiums.country_method={method}"),
+                "premiums.country_lambda=0.5",
+                "premiums.country_justification=Illustrative reason",
+            ],
+        );
+        // 1e-15: one addition on top of the same sum.
+        let delta = number(&result, "cost_of_equity") - ke0;
+        assert!((delta - expected).abs() < 1e-15, "{method}: {delta}");
+        let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+        assert!(
+            memo.contains("Illustrative reason"),
+            "{method}: justification missing"
+        );
+        reference_check(dir.path(), method);
+    }
+}
+
+// Fisher (1930) on the run's own WACC: converting to the output currency and back with the
+// inverse relation returns it, and the real rate is the same from either side.
+#[test]
+fn the_memo_shows_the_fisher_conversion_to_an_output_currency() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "conversion.currency=USD",
+            "conversion.inflation_case=0.02",
+            "conversion.inflation_output=0.035",
+        ],
+    );
+    let c = &result["currency_conversion"];
+    let (wacc, converted) = (number(&result, "wacc"), number(c, "wacc"));
+    // Inverse relation written out: (1 + r_A) = (1 + r_B)·(1 + π_A)/(1 + π_B).
+    let back = (1.0 + converted) * 1.02 / 1.035 - 1.0;
+    // 1e-15: a multiply and a divide by the same factors, twice.
+    assert!((back - wacc).abs() < 1e-15);
+    let real_from_output = (1.0 + converted) / 1.035 - 1.0;
+    assert!((real_from_output - number(c, "wacc_real")).abs() < 1e-15);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("### Conversion to USD"));
+    assert!(memo.contains(&hurdle::format::percent(converted, 2)));
+}
+
+#[test]
+fn inflation_at_or_below_minus_100_percent_is_refused() {
+    let message = fails(&[
+        "conversion.currency=USD",
+        "conversion.inflation_case=-1.0",
+        "conversion.inflation_output=0.02",
+    ]);
+    assert!(
+        message.contains("conversion.inflation_case = -1"),
+        "{message}"
+    );
+    assert!(message.contains("-100%"), "{message}");
+}
+
+// A case whose [debt] gives no cost for the default source `given`: the demo case with its
+// `cost_pre_tax` line removed, read from a temporary folder (validation runs before any data
+// file is read).
+#[test]
+fn a_given_cost_of_debt_that_is_missing_is_refused() {
+    let text = std::fs::read_to_string(DEMO_CASE).unwrap();
+    let without: String = text
+        .lines()
+        .filter(|line| !line.starts_with("cost_pre_tax"))
+        .map(|line| format!("{line}\n"))
+        .collect();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("case.toml");
+    std::fs::write(&path, without).unwrap();
+    let message = hurdle::case::read_case(&path, &[]).unwrap_err().to_string();
+    assert!(
+        message.contains("debt.cost_pre_tax is required when debt.source = \"given\""),
+        "{message}"
+    );
+}
+
+#[test]
+fn a_debt_beta_without_its_source_is_refused() {
+    let message = fails(&["leverage.debt_beta=0.2"]);
+    assert!(message.contains("leverage.debt_beta = 0.2"), "{message}");
+    assert!(message.contains("debt_beta_source"), "{message}");
+}
