@@ -108,6 +108,15 @@ pub fn implied(
                 .into(),
         });
     }
+    if target == Target::Beta && settings.preferred.weight + settings.leases.weight > 0.0 {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: "solving for the beta uses the plain equity-and-debt build-up, and this case \
+                      also has preferred equity or leases ([preferred], [leases]); solve for \
+                      another input"
+                .into(),
+        });
+    }
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = match target {
         Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),

@@ -66,12 +66,12 @@ fn table(v: &Valuation) -> String {
         ));
     }
     out.push_str(&format!(
-        "beta* = beta used ({} adjustment); frequency {:?}, window {} to {}\n",
+        "beta* = beta used ({} adjustment); frequency {}, window {} to {}\n",
         match v.peers.first().and_then(|p| p.adjusted_beta) {
             Some(_) => "Blume",
             None => "no",
         },
-        v.sampling.frequency,
+        hurdle::format::label(&v.sampling.frequency),
         v.sampling.window_start,
         v.sampling.window_end
     ));

@@ -54,10 +54,9 @@ fn render(b: &Bridge) -> String {
         "input group", "WACC after", "step", "Shapley"
     ));
     for s in &b.steps {
-        let group = serde_json::to_value(s.group).expect("a group serialises");
         out.push_str(&format!(
             "{:<22} {:>12} {:>12} {:>10}\n",
-            group.as_str().unwrap_or_default(),
+            hurdle::format::label(&s.group),
             percent(s.wacc_after, 3),
             basis_points(s.contribution),
             basis_points(s.shapley)

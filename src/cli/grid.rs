@@ -46,8 +46,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         out.push('\n');
     }
     out.push_str(&format!(
-        "rows: {}; cells: {:?}\n",
-        table.rows.key, table.metric
+        "rows: {}; cells: {}\n",
+        table.rows.key,
+        hurdle::format::label(&table.metric)
     ));
     print!("{out}");
     let path = args.csv.clone().unwrap_or_else(|| {

@@ -53,9 +53,9 @@ fn summary(v: &Valuation) -> String {
             v.case.title, v.case.valuation_date
         ),
         format!(
-            "  peers {} | unlevered beta ({:?}) {} | relevered {} at D/E {}",
+            "  peers {} | unlevered beta ({}) {} | relevered {} at D/E {}",
             v.peers.len(),
-            v.cost.beta.aggregation,
+            hurdle::format::label(&v.cost.beta.aggregation),
             fixed(v.cost.beta.unlevered, 3),
             fixed(v.cost.beta.relevered, 3),
             fixed(v.cost.target.debt_to_equity, 3)

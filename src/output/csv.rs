@@ -130,11 +130,10 @@ pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
 pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
     let mut out = String::from("group,wacc_before,wacc_after,contribution,shapley\n");
     for s in &bridge.steps {
-        let group = serde_json::to_value(s.group).expect("a group serialises");
         writeln!(
             out,
             "{},{},{},{},{}",
-            group.as_str().unwrap_or_default(),
+            crate::format::label(&s.group),
             s.wacc_before,
             s.wacc_after,
             s.contribution,
