@@ -234,8 +234,8 @@ pub struct CostOfDebtRecord {
 
 /// The pre-tax cost of debt of the subject: a given yield, or rf + a table spread.
 /// The table is the one `debt.rating_table` or `debt.coverage_table` names, already read.
-/// Adding a rating spread to the risk-free rate is common practice (e.g. Damodaran 2012,
-/// Investment Valuation, 3rd ed., Wiley, ch. 8, from memory, for the synthetic rating).
+/// Adding a rating spread to the risk-free rate, and rating a firm synthetically from its
+/// interest coverage, are common practice in valuation textbooks.
 pub fn cost_of_debt(
     debt: &DebtSettings,
     table: Option<&SpreadTable>,

@@ -807,8 +807,8 @@ fn aggregate_over_peers(
 
 /// Cash-corrected unlevered beta, βU / (1 − cash / (equity + debt)): the unlevered beta is a
 /// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
-/// non-cash share leaves the operating assets' beta (common practice; e.g. Damodaran,
-/// Investment Valuation, Wiley, from memory). Uses gross debt.
+/// non-cash share leaves the operating assets' beta (common practice in valuation textbooks).
+/// Uses gross debt.
 fn cash_corrected(unlevered: f64, peer: &PeerResult) -> f64 {
     unlevered / (1.0 - peer.cash_share_of_capital)
 }
