@@ -15,6 +15,7 @@ use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 use crate::error::{Error, Result};
 use crate::leverage::Formula;
+use crate::regression::StdErrors;
 use crate::sampling::Frequency;
 use crate::stats::Aggregation;
 
@@ -98,6 +99,32 @@ pub struct BetaSettings {
     pub min_observations: u32,
     pub method: BetaMethod,
     pub adjustment: Adjustment,
+    /// Standard errors behind every SE, t, p-value and confidence interval of beta.
+    pub std_errors: StdErrors,
+    /// Newey–West lags; absent means the rule floor(4·(N/100)^(2/9)).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub newey_west_lags: Option<u32>,
+    /// Lags of the market return in the Dimson regression.
+    pub dimson_lags: u32,
+    /// Leads of the market return in the Dimson regression.
+    pub dimson_leads: u32,
+    /// Vasicek prior mean; absent means the cross-sectional mean of the included peers' betas.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub vasicek_prior_mean: Option<f64>,
+    /// Vasicek prior variance; absent means the cross-sectional variance of those betas.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub vasicek_prior_variance: Option<f64>,
+}
+
+impl BetaSettings {
+    /// How many lags and leads of the market return the method needs.
+    pub fn market_lags_and_leads(&self) -> (u32, u32) {
+        match self.method {
+            BetaMethod::Ols => (0, 0),
+            BetaMethod::Dimson => (self.dimson_lags, self.dimson_leads),
+            BetaMethod::ScholesWilliams => (1, 1),
+        }
+    }
 }
 
 impl Default for BetaSettings {
@@ -108,6 +135,12 @@ impl Default for BetaSettings {
             min_observations: 36,
             method: BetaMethod::Ols,
             adjustment: Adjustment::None,
+            std_errors: StdErrors::Classical,
+            newey_west_lags: None,
+            dimson_lags: 1,
+            dimson_leads: 0,
+            vasicek_prior_mean: None,
+            vasicek_prior_variance: None,
         }
     }
 }
@@ -118,6 +151,11 @@ impl Default for BetaSettings {
 pub enum BetaMethod {
     /// Ordinary least squares of the asset's on the market's (excess) returns, with intercept.
     Ols,
+    /// Dimson (1979) aggregated coefficients: the sum of the slopes on lagged, current and led
+    /// market returns.
+    Dimson,
+    /// Scholes and Williams (1977): lag, current and lead slopes over 1 + 2ρ(market).
+    ScholesWilliams,
 }
 
 /// An adjustment applied to the raw beta before unlevering.
@@ -127,6 +165,8 @@ pub enum Adjustment {
     None,
     /// Blume (1971, 1975): 0.67 · raw + 0.33.
     Blume,
+    /// Vasicek (1973): Bayesian shrinkage toward a prior by each peer's sampling variance.
+    Vasicek,
 }
 
 /// `[leverage]`: unlevering, aggregating and relevering.
@@ -201,6 +241,10 @@ pub struct PeerSpec {
     pub cash: f64,
     /// Marginal tax rate (decimal).
     pub tax_rate: f64,
+    /// Leaves the peer out of the aggregation (it is still estimated and shown), for the reason
+    /// given here.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub exclude: Option<String>,
 }
 
 fn default_index_name() -> String {
@@ -423,6 +467,59 @@ fn parse_override_value(raw: &str) -> toml::Value {
         .unwrap_or_else(|| toml::Value::String(raw.to_string()))
 }
 
+/// Range checks of the estimator options in `[beta]`, against the window length `lookback`
+/// (the most observations a peer can have).
+fn validate_beta_options(beta: &BetaSettings) -> std::result::Result<(), String> {
+    let (lags, leads) = beta.market_lags_and_leads();
+    // Each shifted market column costs a coefficient and an end period; beyond N/4 of them the
+    // regression has too little left to estimate anything (a common practice bound).
+    if 4 * (lags + leads) >= beta.lookback {
+        return Err(format!(
+            "beta.dimson_lags + beta.dimson_leads = {} is at least beta.lookback / 4 = {}: too \
+             many shifted market columns for {} periods",
+            lags + leads,
+            f64::from(beta.lookback) / 4.0,
+            beta.lookback
+        ));
+    }
+    if beta.method == BetaMethod::Dimson && lags + leads == 0 {
+        return Err(
+            "beta.method = \"dimson\" with beta.dimson_lags = 0 and beta.dimson_leads = 0 is \
+             plain OLS; use beta.method = \"ols\" or give at least one lag"
+                .into(),
+        );
+    }
+    if let Some(l) = beta.newey_west_lags {
+        if 4 * l >= beta.lookback {
+            return Err(format!(
+                "beta.newey_west_lags = {l} is at least beta.lookback / 4 = {}",
+                f64::from(beta.lookback) / 4.0
+            ));
+        }
+    }
+    match (beta.vasicek_prior_mean, beta.vasicek_prior_variance) {
+        (Some(m), Some(v)) => {
+            if !m.is_finite() {
+                return Err(format!("beta.vasicek_prior_mean = {m} is not a number"));
+            }
+            if !(v.is_finite() && v > 0.0) {
+                return Err(format!(
+                    "beta.vasicek_prior_variance = {v} must be a positive number"
+                ));
+            }
+        }
+        (None, None) => {}
+        _ => {
+            return Err(
+                "give both beta.vasicek_prior_mean and beta.vasicek_prior_variance, or neither \
+                 (then the cross-section of the peers is the prior)"
+                    .into(),
+            )
+        }
+    }
+    Ok(())
+}
+
 /// Range checks a type cannot express. The message names the key and the offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
@@ -461,6 +558,7 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             beta.lookback, beta.min_observations
         ));
     }
+    validate_beta_options(beta)?;
     let target = &case.target;
     match (target.debt_to_equity, target.debt_to_capital) {
         (Some(_), Some(_)) => {
@@ -516,6 +614,15 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
         }
         rate(&key("tax_rate"), peer.tax_rate, 0.0, 1.0)?;
+        if peer.exclude.as_deref().is_some_and(|r| r.trim().is_empty()) {
+            return Err(format!(
+                "{} is empty: state the reason the peer is excluded",
+                key("exclude")
+            ));
+        }
+    }
+    if case.peers.iter().all(|p| p.exclude.is_some()) {
+        return Err("every [[peer]] has `exclude` set: no peer is left to aggregate".into());
     }
     Ok(())
 }

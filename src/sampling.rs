@@ -149,6 +149,18 @@ pub struct DroppedPeriods {
     pub asset_missing: usize,
     pub market_missing: usize,
     pub risk_free_missing: usize,
+    /// A lagged or led market return that a Dimson or Scholes–Williams regression needs is
+    /// missing (its period has no index or risk-free value, or a lead would fall after the
+    /// window end: later data are never used).
+    pub shifted_market_missing: usize,
+}
+
+/// The market's (excess) return `offset` periods from each aligned period: −1 is the previous
+/// period (a lag), +1 the next (a lead).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ShiftedMarket {
+    pub offset: i32,
+    pub returns: Vec<f64>,
 }
 
 /// Returns of one asset and the market on the periods where every series has a value.
@@ -160,6 +172,8 @@ pub struct AlignedReturns {
     /// Per-period risk-free rate when excess returns are used.
     pub risk_free: Option<Vec<f64>>,
     pub dropped: DroppedPeriods,
+    /// Lagged and led market excess returns, one entry per requested offset (empty for OLS).
+    pub market_shifted: Vec<ShiftedMarket>,
 }
 
 impl AlignedReturns {
@@ -189,23 +203,75 @@ pub fn align(
     market: &[Option<f64>],
     risk_free: Option<&[Option<f64>]>,
 ) -> AlignedReturns {
+    align_with_shifts(period_ends, asset, market, risk_free, &[], 0)
+}
+
+/// As [`align`], over the periods from index `first` on, additionally requiring the market's
+/// excess return at each of `offsets` (−l a lag, +l a lead) relative to the period. The slices
+/// may start before `first` so that the first window periods have their lags; a shift outside
+/// the slices (a lead after the window end) counts as missing.
+pub fn align_with_shifts(
+    period_ends: &[NaiveDate],
+    asset: &[Option<f64>],
+    market: &[Option<f64>],
+    risk_free: Option<&[Option<f64>]>,
+    offsets: &[i32],
+    first: usize,
+) -> AlignedReturns {
+    let capacity = period_ends.len().saturating_sub(first);
     let mut aligned = AlignedReturns {
-        period_ends: Vec::with_capacity(period_ends.len()),
-        asset: Vec::with_capacity(period_ends.len()),
-        market: Vec::with_capacity(period_ends.len()),
-        risk_free: risk_free.map(|_| Vec::with_capacity(period_ends.len())),
+        period_ends: Vec::with_capacity(capacity),
+        asset: Vec::with_capacity(capacity),
+        market: Vec::with_capacity(capacity),
+        risk_free: risk_free.map(|_| Vec::with_capacity(capacity)),
         dropped: DroppedPeriods::default(),
+        market_shifted: offsets
+            .iter()
+            .map(|&offset| ShiftedMarket {
+                offset,
+                returns: Vec::with_capacity(capacity),
+            })
+            .collect(),
     };
-    for (j, &end) in period_ends.iter().enumerate() {
+    let market_excess_at = |j: usize| -> Option<f64> {
+        let m = market[j]?;
+        match risk_free {
+            Some(rf) => rf[j].map(|f| m - f),
+            None => Some(m),
+        }
+    };
+    for (j, &end) in period_ends.iter().enumerate().skip(first) {
         let rf = risk_free.map(|rf| rf[j]);
+        let shifted: Option<Vec<f64>> = offsets
+            .iter()
+            .map(|&o| {
+                let at = j as i64 + i64::from(o);
+                if at < 0 || at >= period_ends.len() as i64 {
+                    None
+                } else {
+                    market_excess_at(at as usize)
+                }
+            })
+            .collect();
         let dropped = &mut aligned.dropped;
         dropped.asset_missing += usize::from(asset[j].is_none());
         dropped.market_missing += usize::from(market[j].is_none());
         dropped.risk_free_missing += usize::from(matches!(rf, Some(None)));
+        dropped.shifted_market_missing += usize::from(shifted.is_none());
+        let Some(shifted) = shifted else {
+            aligned.dropped.total += 1;
+            continue;
+        };
         match (asset[j], market[j], rf) {
             (Some(a), Some(m), None) => aligned.push(end, a, m, None),
             (Some(a), Some(m), Some(Some(f))) => aligned.push(end, a, m, Some(f)),
-            _ => aligned.dropped.total += 1,
+            _ => {
+                aligned.dropped.total += 1;
+                continue;
+            }
+        }
+        for (series, value) in aligned.market_shifted.iter_mut().zip(shifted) {
+            series.returns.push(value);
         }
     }
     aligned
@@ -329,9 +395,37 @@ mod tests {
                 total: 2,
                 asset_missing: 1,
                 market_missing: 1,
-                risk_free_missing: 1
+                risk_free_missing: 1,
+                shifted_market_missing: 0,
             }
         );
         assert_eq!(aligned.asset_excess(), vec![0.01 - 0.001]);
+    }
+
+    // Shifts by hand: four periods, the window starts at period 1 (one lag before it), the
+    // market has no value in period 2, and a lead of the last period would lie after the
+    // window, so it is never available. Lag column of period 1 is market[0] = 0.01.
+    #[test]
+    fn shifted_market_columns_come_from_neighbouring_periods() {
+        let ends: Vec<NaiveDate> = ["2026-06-30", "2026-07-31", "2026-08-31", "2026-09-30"]
+            .iter()
+            .map(|d| date(d))
+            .collect();
+        let asset = [Some(0.5), Some(0.1), Some(0.2), Some(0.3)];
+        let market = [Some(0.01), Some(0.02), None, Some(0.04)];
+        let lagged = align_with_shifts(&ends, &asset, &market, None, &[-1], 1);
+        // Period 1: lag = 0.01. Period 2: market missing. Period 3: its lag (period 2) missing.
+        assert_eq!(lagged.period_ends, vec![ends[1]]);
+        assert_eq!(lagged.market_shifted[0].returns, vec![0.01]);
+        assert_eq!(lagged.dropped.total, 2);
+        assert_eq!(lagged.dropped.market_missing, 1);
+        assert_eq!(lagged.dropped.shifted_market_missing, 1);
+        let led = align_with_shifts(&ends, &asset, &market, None, &[1], 0);
+        // Period 0 leads to 0.02; period 1's lead (period 2) is missing; period 2's lead exists
+        // but its own market value does not; period 3 has no later period.
+        assert_eq!(led.period_ends, vec![ends[0]]);
+        assert_eq!(led.market_shifted[0].returns, vec![0.02]);
+        assert_eq!(led.dropped.shifted_market_missing, 2);
+        assert_eq!(led.dropped.total, 3);
     }
 }

@@ -133,6 +133,10 @@ pub struct PeerResult {
     pub debt_to_equity: f64,
     pub tax_rate: f64,
     pub unlevered_beta: f64,
+    /// Why the peer is left out of the aggregation, or `null` when it is included.
+    pub excluded_reason: Option<String>,
+    /// The Vasicek-shrunk beta beside the raw one (`null` unless `beta.adjustment = "vasicek"`).
+    pub vasicek: Option<beta::vasicek::Shrunk>,
 }
 
 /// Aggregation and relevering.
@@ -147,6 +151,10 @@ pub struct BetaSummary {
     pub unlevered_dispersion: Dispersion,
     /// The aggregate relevered at the target structure.
     pub relevered: f64,
+    /// The prior of the Vasicek adjustment (`null` unless it is used).
+    pub vasicek_prior: Option<beta::vasicek::Prior>,
+    /// How many peers enter the aggregation (those without an exclusion reason).
+    pub peers_included: usize,
 }
 
 /// The target capital structure, both ratios, whichever was given.
@@ -185,6 +193,8 @@ pub struct Valuation {
     pub settings: CaseFile,
     pub files: Vec<DataFile>,
     pub sampling: SamplingRecord,
+    /// The beta estimator and standard errors, in words with their sources.
+    pub estimator: beta::EstimatorRecord,
     pub peers: Vec<PeerResult>,
     pub beta: BetaSummary,
     pub target: TargetRecord,
@@ -207,18 +217,57 @@ pub struct Valuation {
     pub returns: Vec<AlignedReturns>,
 }
 
+/// The Vasicek prior: the case's stated mean and variance, else the cross-section of the raw
+/// betas of the peers that enter the aggregation.
+fn vasicek_prior(
+    settings: &crate::case::BetaSettings,
+    peers: &[PeerResult],
+) -> std::result::Result<beta::vasicek::Prior, String> {
+    if let (Some(mean), Some(variance)) =
+        (settings.vasicek_prior_mean, settings.vasicek_prior_variance)
+    {
+        return Ok(beta::vasicek::Prior {
+            mean,
+            variance,
+            source: "stated",
+        });
+    }
+    let raw: Vec<f64> = peers
+        .iter()
+        .filter(|p| p.excluded_reason.is_none())
+        .map(|p| p.estimate.beta)
+        .collect();
+    beta::vasicek::cross_sectional_prior(&raw).ok_or_else(|| {
+        format!(
+            "beta.adjustment = \"vasicek\" needs at least two included peers with different \
+             betas for a cross-sectional prior ({} included); state beta.vasicek_prior_mean \
+             and beta.vasicek_prior_variance instead",
+            raw.len()
+        )
+    })
+}
+
 /// Computes the valuation. `generated_at` is stamped into the result as given.
 pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let case = &inputs.case;
     let settings = &case.settings;
     let beta_settings = &settings.beta;
     let valuation_date = settings.case.valuation_date.0;
+    // Lagged market returns need periods before the window: the grid starts `lags` earlier.
+    let (lags, leads) = beta_settings.market_lags_and_leads();
+    let offsets: Vec<i32> = (1..=lags as i32)
+        .map(|l| -l)
+        .chain(1..=leads as i32)
+        .collect();
     let grid = PeriodGrid::ending_at(
         beta_settings.frequency,
         valuation_date,
-        beta_settings.lookback,
+        beta_settings.lookback + lags,
     );
-    let period_ends = grid.return_period_ends();
+    let first = lags as usize;
+    let all_period_ends = grid.return_period_ends();
+    let period_ends = &all_period_ends[first..];
+    let window_start = grid.sample_points()[first];
     let market_returns =
         sampling::simple_returns(&sampling::sample(&grid, inputs.index.series.view()));
     let risk_free = inputs.risk_free.as_ref().map(|file| {
@@ -241,11 +290,13 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let mut returns = Vec::with_capacity(settings.peers.len());
     for (spec, file) in settings.peers.iter().zip(&inputs.peers) {
         let asset_returns = sampling::simple_returns(&sampling::sample(&grid, file.series.view()));
-        let aligned = sampling::align(
-            period_ends,
+        let aligned = sampling::align_with_shifts(
+            all_period_ends,
             &asset_returns,
             &market_returns,
             risk_free.as_deref(),
+            &offsets,
+            first,
         );
         let estimation_error = |message: String| Error::Estimation {
             peer: spec.name.clone(),
@@ -259,7 +310,7 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                  peer price missing {}, index price missing {}, risk-free missing {}); \
                  beta.min_observations = {}. Prices in {} run from {} to {}.",
                 period_ends.len(),
-                grid.sample_points()[0],
+                window_start,
                 window_end,
                 d.total,
                 d.asset_missing,
@@ -280,10 +331,11 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                 inputs.index.path
             )));
         }
-        let estimate = beta::estimate(
-            beta_settings.method,
+        let estimate = beta::estimate_with(
+            beta_settings,
             &aligned.asset_excess(),
             &market_excess,
+            &aligned.market_shifted,
         )
         .map_err(|e| estimation_error(e.to_string()))?;
         if aligned.dropped.total > 0 {
@@ -318,11 +370,52 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             tax_rate: spec.tax_rate,
             unlevered_beta: settings.leverage.formula.unlever(beta_used, structure),
             estimate,
+            excluded_reason: spec.exclude.clone(),
+            vasicek: None,
         });
         returns.push(aligned);
     }
 
-    let unlevered: Vec<f64> = peers.iter().map(|p| p.unlevered_beta).collect();
+    let vasicek_prior = match beta_settings.adjustment {
+        crate::case::Adjustment::Vasicek => Some(vasicek_prior(beta_settings, &peers).map_err(
+            |message| Error::Estimation {
+                peer: "(all peers)".into(),
+                message,
+            },
+        )?),
+        _ => None,
+    };
+    if let Some(prior) = &vasicek_prior {
+        for (peer, spec) in peers.iter_mut().zip(&settings.peers) {
+            let shrunk =
+                beta::vasicek::shrink(peer.estimate.beta, peer.estimate.beta_std_error, prior);
+            peer.adjusted_beta = Some(shrunk.beta);
+            peer.beta_used = shrunk.beta;
+            peer.unlevered_beta = settings.leverage.formula.unlever(
+                shrunk.beta,
+                CapitalStructure {
+                    debt_to_equity: peer.debt_to_equity,
+                    tax_rate: spec.tax_rate,
+                },
+            );
+            peer.vasicek = Some(shrunk);
+        }
+    }
+    for peer in &peers {
+        if let Some(reason) = &peer.excluded_reason {
+            notes.push(format!(
+                "{} is estimated and shown but left out of the aggregation: {reason}",
+                peer.name
+            ));
+        }
+    }
+
+    let unlevered: Vec<f64> = peers
+        .iter()
+        .filter(|p| p.excluded_reason.is_none())
+        .map(|p| p.unlevered_beta)
+        .collect();
+    let peers_included = unlevered.len();
     let unlevered_dispersion = stats::dispersion(&unlevered);
     let aggregate = settings.leverage.aggregation.pick(&unlevered_dispersion);
     let target_de = case.target_debt_to_equity();
@@ -383,13 +476,14 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             periods_per_year: beta_settings.frequency.periods_per_year(),
             lookback: beta_settings.lookback,
             min_observations: beta_settings.min_observations,
-            window_start: grid.sample_points()[0],
+            window_start,
             window_end,
             return_type: "simple",
             excess_returns: risk_free.is_some(),
             risk_free_convention: "annual yield sampled at the start of each period, \
                                    compounded to the period: (1 + y)^(1/periods_per_year) - 1",
         },
+        estimator: beta::describe(beta_settings),
         peers,
         beta: BetaSummary {
             formula: settings.leverage.formula,
@@ -398,6 +492,8 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             unlevered: aggregate,
             unlevered_dispersion,
             relevered,
+            vasicek_prior,
+            peers_included,
         },
         target: TargetRecord {
             given: if settings.target.debt_to_equity.is_some() {

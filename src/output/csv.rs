@@ -79,7 +79,19 @@ impl Render for ReturnsCsv {
     fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
         let with_rf = valuation.sampling.excess_returns;
         let mut out = String::from("peer,period_end,asset_return,market_return");
-        out.push_str(if with_rf { ",risk_free\n" } else { "\n" });
+        out.push_str(if with_rf { ",risk_free" } else { "" });
+        // Dimson and Scholes–Williams: the lagged and led market (excess) returns used.
+        if let Some(first) = valuation.returns.first() {
+            for shifted in &first.market_shifted {
+                if shifted.offset < 0 {
+                    write!(out, ",market_lag_{}", -shifted.offset)
+                } else {
+                    write!(out, ",market_lead_{}", shifted.offset)
+                }
+                .expect("writing to a String cannot fail");
+            }
+        }
+        out.push('\n');
         for (peer, returns) in valuation.peers.iter().zip(&valuation.returns) {
             let name = field(&peer.name);
             for j in 0..returns.period_ends.len() {
@@ -91,6 +103,10 @@ impl Render for ReturnsCsv {
                 .expect("writing to a String cannot fail");
                 if let Some(rf) = &returns.risk_free {
                     write!(out, ",{}", rf[j]).expect("writing to a String cannot fail");
+                }
+                for shifted in &returns.market_shifted {
+                    write!(out, ",{}", shifted.returns[j])
+                        .expect("writing to a String cannot fail");
                 }
                 out.push('\n');
             }

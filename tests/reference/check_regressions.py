@@ -32,6 +32,146 @@ def check(label, ours, reference, tolerance=TOLERANCE):
         failures.append(f"{label}: hurdle {ours!r} vs reference {reference!r}")
 
 
+def sandwich(weights, residuals, parameters, kind, lags):
+    """Covariance of the linear estimator weights @ y from residuals e, written out from the
+    published formulas: classical s^2 A A' with s^2 = e'e/(n-k); HC1 (White 1980, Econometrica
+    48(4); MacKinnon and White 1985) n/(n-k) A diag(e^2) A'; Newey-West (1987, Econometrica
+    55(3)) A S A' with S_ts = e_t e_s (1 - |t-s|/(L+1)) for |t-s| <= L, no small-sample factor.
+    For OLS, A = (X'X)^-1 X' (numpy's inv here: this is the reference, not the solver)."""
+    n = len(residuals)
+    if kind == "classical":
+        return weights @ weights.T * (residuals @ residuals / (n - parameters))
+    if kind == "hc1":
+        return n / (n - parameters) * (weights * residuals**2) @ weights.T
+    assert kind == "newey-west"
+    omega = np.outer(residuals, residuals)
+    distance = np.abs(np.subtract.outer(np.arange(n), np.arange(n)))
+    kernel = np.where(distance <= lags, 1 - distance / (lags + 1), 0.0)
+    return weights @ (omega * kernel) @ weights.T
+
+
+def check_inference(name, peer, beta, se, alpha, alpha_se, df):
+    t975 = stats.t.ppf(0.975, df)
+    check(f"{name} beta", peer["beta"], beta)
+    check(f"{name} beta SE", peer["beta_std_error"], se)
+    check(f"{name} beta t", peer["beta_t_stat"], beta / se)
+    check(f"{name} beta p-value (scipy t)", peer["beta_p_value"], 2 * stats.t.sf(abs(beta / se), df))
+    check(f"{name} CI low (scipy t)", peer["beta_ci_low"], beta - t975 * se)
+    check(f"{name} CI high (scipy t)", peer["beta_ci_high"], beta + t975 * se)
+    check(f"{name} alpha", peer["alpha"], alpha)
+    check(f"{name} alpha SE", peer["alpha_std_error"], alpha_se)
+    check(f"{name} degrees of freedom", peer["degrees_of_freedom"], df)
+
+
+def check_estimator(name, peer, data, asset, market, result):
+    """Dimson, Scholes-Williams, robust errors and Vasicek, each from its formula."""
+    n = len(asset)
+    settings = result["settings"]["beta"]
+    kind = peer["std_errors"]
+    lags = peer["newey_west_lags"]
+    if kind == "newey-west":
+        # Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9)).
+        expected = settings.get("newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
+        check(f"{name} Newey-West lags", lags, expected)
+    shifted = {}
+    for key in data[0]:
+        if key.startswith("market_lag_"):
+            shifted[-int(key[len("market_lag_"):])] = np.array([float(r[key]) for r in data])
+        elif key.startswith("market_lead_"):
+            shifted[int(key[len("market_lead_"):])] = np.array([float(r[key]) for r in data])
+    check_shifts_are_the_market_series(name, data, shifted, result)
+    method = peer["method"]
+    if method in ("ols", "dimson"):
+        # Dimson (1979), J. Financial Economics 7(2): OLS on lagged/current/led market columns;
+        # beta = sum of the market slopes, Var = 1' V 1 from their covariance block.
+        offsets = sorted(list(shifted) + [0])
+        columns = [market if o == 0 else shifted[o] for o in offsets]
+        design = np.column_stack([np.ones(n)] + columns)
+        coef, _, rank, _ = np.linalg.lstsq(design, asset, rcond=None)
+        assert rank == design.shape[1]
+        residuals = asset - design @ coef
+        k = design.shape[1]
+        weights = np.linalg.inv(design.T @ design) @ design.T
+        cov = sandwich(weights, residuals, k, kind, lags)
+        ones = np.r_[0.0, np.ones(k - 1)]
+        beta, se = coef[1:].sum(), np.sqrt(ones @ cov @ ones)
+        check_inference(name, peer, beta, se, coef[0], np.sqrt(cov[0, 0]), n - k)
+        for i, c in enumerate(peer["market_coefficients"]):
+            check(f"{name} offset {c['offset']} slope", c["estimate"], coef[1 + offsets.index(c["offset"])])
+            check(f"{name} offset {c['offset']} SE", c["std_error"], np.sqrt(cov[1 + i, 1 + i]))
+        ss_total = ((asset - asset.mean()) ** 2).sum()
+        check(f"{name} R2", peer["r_squared"], 1 - residuals @ residuals / ss_total)
+    else:
+        # Scholes and Williams (1977), J. Financial Economics 5(3):
+        # beta = (b_-1 + b_0 + b_+1) / (1 + 2 rho), each b a simple regression slope (scipy).
+        assert method == "scholes-williams"
+        lag, lead = shifted[-1], shifted[1]
+        slopes = [stats.linregress(x, asset).slope for x in (lag, market, lead)]
+        rho = np.corrcoef(market, lag)[0, 1]
+        check(f"{name} market autocorrelation (numpy)", peer["market_autocorrelation"], rho)
+        beta = sum(slopes) / (1 + 2 * rho)
+        for c, b in zip(peer["market_coefficients"], slopes):
+            check(f"{name} SW slope {c['offset']}", c["estimate"], b)
+        # SE as README states: Var(a'r) with a = sum of slope weights / (1 + 2 rho), from the
+        # residuals of r on [1, m_-1, m_0, m_+1].
+        design = np.column_stack([np.ones(n), lag, market, lead])
+        coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
+        residuals = asset - design @ coef
+        w = sum((x - x.mean()) / ((x - x.mean()) ** 2).sum() for x in (lag, market, lead)) / (1 + 2 * rho)
+        a = np.vstack([1 / n - market.mean() * w, w])
+        cov = sandwich(a, residuals, 4, kind, lags)
+        alpha = asset.mean() - beta * market.mean()
+        check_inference(name, peer, beta, np.sqrt(cov[1, 1]), alpha, np.sqrt(cov[0, 0]), n - 4)
+
+    used = peer["beta"]
+    adjustment = settings["adjustment"]
+    if adjustment == "blume":
+        used = 0.67 * peer["beta"] + 0.33
+    elif adjustment == "vasicek":
+        # Vasicek (1973), J. Finance 28(5): w = var_prior / (var_prior + SE^2).
+        if settings.get("vasicek_prior_mean") is not None:
+            mean, var = settings["vasicek_prior_mean"], settings["vasicek_prior_variance"]
+        else:
+            raw = np.array([p["beta"] for p in result["peers"] if p.get("excluded_reason") is None])
+            mean, var = raw.mean(), raw.var(ddof=1)
+        check(f"{name} Vasicek prior mean", result["beta"]["vasicek_prior"]["mean"], mean)
+        check(f"{name} Vasicek prior variance", result["beta"]["vasicek_prior"]["variance"], var)
+        w = var / (var + peer["beta_std_error"] ** 2)
+        used = w * peer["beta"] + (1 - w) * mean
+        check(f"{name} Vasicek weight", peer["vasicek"]["weight_on_estimate"], w)
+        check(f"{name} Vasicek SE", peer["vasicek"]["std_error"], np.sqrt(1 / (1 / var + 1 / peer["beta_std_error"] ** 2)))
+    check(f"{name} beta used", peer["beta_used"], used)
+    spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
+    de = spec["debt"] / spec["equity_value"]
+    if result["beta"]["formula"] == "hamada":
+        check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
+
+
+def check_shifts_are_the_market_series(name, data, shifted, result):
+    """Each lag/lead column must be the market's excess return of the period that many steps
+    away on the window's grid (built here from every peer's rows of returns.csv)."""
+    if not shifted:
+        return
+    market_by_period = {}
+    for rows in ROWS.values():
+        for r in rows:
+            m = float(r["market_return"]) - float(r.get("risk_free") or 0.0)
+            market_by_period[r["period_end"]] = m
+    periods = sorted(market_by_period)
+    position = {p: i for i, p in enumerate(periods)}
+    compared = 0
+    for j, r in enumerate(data):
+        for offset, values in shifted.items():
+            i = position[r["period_end"]] + offset
+            if 0 <= i < len(periods):
+                check(f"{name} {r['period_end']} market at offset {offset}", values[j], market_by_period[periods[i]])
+                compared += 1
+    assert compared > 0, "no shifted market value could be compared"
+
+
+ROWS = {}
+
+
 def main(out_dir):
     with open(f"{out_dir}/result.json") as f:
         result = json.load(f)
@@ -41,6 +181,7 @@ def main(out_dir):
         excess = "risk_free" in reader.fieldnames
         for row in reader:
             rows[row["peer"]].append(row)
+    ROWS.update(rows)
 
     for peer in result["peers"]:
         name = peer["name"]
@@ -52,6 +193,9 @@ def main(out_dir):
             asset, market = asset - rf, market - rf
         n = len(asset)
         check(f"{name} observations", peer["observations"], n)
+        if peer["method"] != "ols" or peer["std_errors"] != "classical" or peer.get("vasicek"):
+            check_estimator(name, peer, data, asset, market, result)
+            continue
 
         # numpy: least squares on [1, x].
         design = np.column_stack([np.ones(n), market])
@@ -96,7 +240,7 @@ def main(out_dir):
         if result["beta"]["formula"] == "hamada":
             check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
 
-    unlevered = np.array([p["unlevered_beta"] for p in result["peers"]])
+    unlevered = np.array([p["unlevered_beta"] for p in result["peers"] if p.get("excluded_reason") is None])
     aggregate = {"median": np.median(unlevered), "mean": np.mean(unlevered)}[result["beta"]["aggregation"]]
     check("aggregate unlevered beta", result["beta"]["unlevered"], aggregate)
     d = result["beta"]["unlevered_dispersion"]
