@@ -16,7 +16,7 @@ use serde::{Deserialize, Deserializer, Serialize, Serializer};
 use crate::error::{Error, Result};
 use crate::leverage::Formula;
 use crate::regression::StdErrors;
-use crate::sampling::Frequency;
+use crate::sampling::{Frequency, ReturnType, SampleWeekday};
 use crate::stats::Aggregation;
 
 /// The whole case file, as written (after overrides), with every default made explicit.
@@ -93,8 +93,9 @@ pub struct YieldSpec {
 #[serde(deny_unknown_fields, default)]
 pub struct BetaSettings {
     pub frequency: Frequency,
-    /// Number of return periods in the window (60 monthly returns span 61 month-ends).
-    pub lookback: u32,
+    /// Number of return periods in the window (60 monthly returns span 61 month-ends), or a
+    /// calendar span such as `"5y"`, `"104w"`, `"250d"`.
+    pub lookback: Lookback,
     /// A peer with fewer usable periods than this is an error, not a silent drop.
     pub min_observations: u32,
     pub method: BetaMethod,
@@ -114,9 +115,146 @@ pub struct BetaSettings {
     /// Vasicek prior variance; absent means the cross-sectional variance of those betas.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub vasicek_prior_variance: Option<f64>,
+    /// The weekday of weekly sampling.
+    pub weekday: SampleWeekday,
+    /// Simple or log returns.
+    pub returns: ReturnType,
+    /// A sample whose last price is more than this many calendar days older than its sample
+    /// point is dropped and counted as stale; absent means no limit beyond the period rule.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub max_stale_days: Option<u32>,
+    /// Explicit first date of the window; replaces `lookback` when given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub window_start: Option<CaseDate>,
+    /// Explicit last date of the window (on or before the valuation date); default the
+    /// valuation date.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub window_end: Option<CaseDate>,
+}
+
+/// `beta.lookback`: a count of return periods or a calendar span (`5y`, `18m`, `104w`, `250d`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Lookback {
+    Periods(u32),
+    Span { count: u32, unit: SpanUnit },
+}
+
+/// The unit of a lookback span.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SpanUnit {
+    Years,
+    Months,
+    Weeks,
+    Days,
+}
+
+impl fmt::Display for Lookback {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Lookback::Periods(n) => write!(f, "{n}"),
+            Lookback::Span { count, unit } => {
+                let u = match unit {
+                    SpanUnit::Years => 'y',
+                    SpanUnit::Months => 'm',
+                    SpanUnit::Weeks => 'w',
+                    SpanUnit::Days => 'd',
+                };
+                write!(f, "\"{count}{u}\"")
+            }
+        }
+    }
+}
+
+impl Lookback {
+    /// Parses a span such as `5y`, `104w`, `250d`, `18m`.
+    pub fn parse_span(text: &str) -> std::result::Result<Lookback, String> {
+        let text = text.trim();
+        let bad = || {
+            format!(
+                "beta.lookback = \"{text}\" is not a count of periods or a span such as \"5y\", \
+                 \"18m\", \"104w\" or \"250d\""
+            )
+        };
+        let unit = match text.chars().last().ok_or_else(bad)? {
+            'y' => SpanUnit::Years,
+            'm' => SpanUnit::Months,
+            'w' => SpanUnit::Weeks,
+            'd' => SpanUnit::Days,
+            _ => return Err(bad()),
+        };
+        let count: u32 = text[..text.len() - 1].parse().map_err(|_| bad())?;
+        if count == 0 {
+            return Err(bad());
+        }
+        Ok(Lookback::Span { count, unit })
+    }
+
+    /// The calendar date `self` before `end` (a span), or `None` for a count of periods.
+    /// Years and months keep the day of the month, clamped to the month's last day.
+    pub fn span_start(&self, end: NaiveDate) -> Option<NaiveDate> {
+        let Lookback::Span { count, unit } = *self else {
+            return None;
+        };
+        Some(match unit {
+            SpanUnit::Years => end
+                .checked_sub_months(chrono::Months::new(12 * count))
+                .expect("inside chrono's range"),
+            SpanUnit::Months => end
+                .checked_sub_months(chrono::Months::new(count))
+                .expect("inside chrono's range"),
+            SpanUnit::Weeks => end - chrono::Days::new(7 * u64::from(count)),
+            SpanUnit::Days => end - chrono::Days::new(u64::from(count)),
+        })
+    }
+}
+
+impl Serialize for Lookback {
+    fn serialize<S: Serializer>(&self, serializer: S) -> std::result::Result<S::Ok, S::Error> {
+        match self {
+            Lookback::Periods(n) => serializer.serialize_u32(*n),
+            span => serializer.collect_str(&span.to_string().trim_matches('"')),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for Lookback {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> std::result::Result<Self, D::Error> {
+        use serde::de::Error as _;
+        match toml::Value::deserialize(deserializer)? {
+            toml::Value::Integer(n) => u32::try_from(n).map(Lookback::Periods).map_err(|_| {
+                D::Error::custom(format!("beta.lookback = {n} is not a positive count"))
+            }),
+            toml::Value::String(s) => Lookback::parse_span(&s).map_err(D::Error::custom),
+            other => Err(D::Error::custom(format!(
+                "beta.lookback: expected a count such as 60 or a span such as \"5y\", found {other}"
+            ))),
+        }
+    }
 }
 
 impl BetaSettings {
+    /// The last date of the window: `window_end` or the valuation date.
+    pub fn window_end_date(&self, valuation_date: NaiveDate) -> NaiveDate {
+        self.window_end.map_or(valuation_date, |d| d.0)
+    }
+
+    /// The number of return periods in the window: the count given, or the periods inside the
+    /// span or between `window_start` and the window end.
+    pub fn lookback_periods(&self, valuation_date: NaiveDate) -> u32 {
+        let end = self.window_end_date(valuation_date);
+        let start = self
+            .window_start
+            .map(|d| d.0)
+            .or_else(|| self.lookback.span_start(end));
+        match (start, self.lookback) {
+            (Some(start), _) => {
+                crate::sampling::periods_between(self.frequency, self.weekday, start, end)
+            }
+            (None, Lookback::Periods(n)) => n,
+            (None, Lookback::Span { .. }) => unreachable!("a span always has a start"),
+        }
+    }
+
     /// How many lags and leads of the market return the method needs.
     pub fn market_lags_and_leads(&self) -> (u32, u32) {
         match self.method {
@@ -131,7 +269,7 @@ impl Default for BetaSettings {
     fn default() -> Self {
         BetaSettings {
             frequency: Frequency::Monthly,
-            lookback: 60,
+            lookback: Lookback::Periods(60),
             min_observations: 36,
             method: BetaMethod::Ols,
             adjustment: Adjustment::None,
@@ -141,6 +279,11 @@ impl Default for BetaSettings {
             dimson_leads: 0,
             vasicek_prior_mean: None,
             vasicek_prior_variance: None,
+            weekday: SampleWeekday::Wednesday,
+            returns: ReturnType::Simple,
+            max_stale_days: None,
+            window_start: None,
+            window_end: None,
         }
     }
 }
@@ -469,17 +612,17 @@ fn parse_override_value(raw: &str) -> toml::Value {
 
 /// Range checks of the estimator options in `[beta]`, against the window length `lookback`
 /// (the most observations a peer can have).
-fn validate_beta_options(beta: &BetaSettings) -> std::result::Result<(), String> {
+fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Result<(), String> {
     let (lags, leads) = beta.market_lags_and_leads();
     // Each shifted market column costs a coefficient and an end period; beyond N/4 of them the
     // regression has too little left to estimate anything (a common practice bound).
-    if 4 * (lags + leads) >= beta.lookback {
+    if 4 * (lags + leads) >= lookback {
         return Err(format!(
             "beta.dimson_lags + beta.dimson_leads = {} is at least beta.lookback / 4 = {}: too \
              many shifted market columns for {} periods",
             lags + leads,
-            f64::from(beta.lookback) / 4.0,
-            beta.lookback
+            f64::from(lookback) / 4.0,
+            lookback
         ));
     }
     if beta.method == BetaMethod::Dimson && lags + leads == 0 {
@@ -490,10 +633,10 @@ fn validate_beta_options(beta: &BetaSettings) -> std::result::Result<(), String>
         );
     }
     if let Some(l) = beta.newey_west_lags {
-        if 4 * l >= beta.lookback {
+        if 4 * l >= lookback {
             return Err(format!(
                 "beta.newey_west_lags = {l} is at least beta.lookback / 4 = {}",
-                f64::from(beta.lookback) / 4.0
+                f64::from(lookback) / 4.0
             ));
         }
     }
@@ -552,13 +695,44 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             beta.min_observations
         ));
     }
-    if beta.lookback < beta.min_observations {
+    let valuation_date = case.case.valuation_date.0;
+    if let Some(end) = beta.window_end {
+        if end.0 > valuation_date {
+            return Err(format!(
+                "beta.window_end = {end} is after case.valuation_date = {valuation_date}: no \
+                 data later than the valuation date may be used"
+            ));
+        }
+    }
+    if let (Some(start), end) = (beta.window_start, beta.window_end_date(valuation_date)) {
+        if start.0 >= end {
+            return Err(format!(
+                "beta.window_start = {start} is not before the window end {end}"
+            ));
+        }
+    }
+    let lookback = beta.lookback_periods(valuation_date);
+    if lookback < beta.min_observations {
+        let given = match beta.window_start {
+            Some(start) => format!("beta.window_start = {start}"),
+            None => format!("beta.lookback = {}", beta.lookback),
+        };
         return Err(format!(
-            "beta.lookback = {} is shorter than beta.min_observations = {}: no peer could pass",
-            beta.lookback, beta.min_observations
+            "{given} gives {lookback} {:?} return periods, fewer than beta.min_observations = \
+             {}: no peer could pass",
+            beta.frequency, beta.min_observations
         ));
     }
-    validate_beta_options(beta)?;
+    if let Some(0) = beta.max_stale_days {
+        if beta.frequency != Frequency::Daily {
+            return Err(
+                "beta.max_stale_days = 0 would drop every period whose sample is not dated on \
+                 its sample point; give at least 1"
+                    .into(),
+            );
+        }
+    }
+    validate_beta_options(beta, lookback)?;
     let target = &case.target;
     match (target.debt_to_equity, target.debt_to_capital) {
         (Some(_), Some(_)) => {

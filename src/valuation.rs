@@ -112,6 +112,12 @@ pub struct SamplingRecord {
     pub return_type: &'static str,
     pub excess_returns: bool,
     pub risk_free_convention: &'static str,
+    /// The weekday of weekly sampling (`null` for other frequencies).
+    pub weekday: Option<sampling::SampleWeekday>,
+    /// The staleness limit in calendar days (`null`: none beyond the period rule).
+    pub max_stale_days: Option<u32>,
+    /// The sampling rule of the frequency, in words.
+    pub sampling_rule: &'static str,
 }
 
 /// One peer's estimate through unlevering.
@@ -259,21 +265,33 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         .map(|l| -l)
         .chain(1..=leads as i32)
         .collect();
-    let grid = PeriodGrid::ending_at(
+    let lookback = beta_settings.lookback_periods(valuation_date);
+    let grid = PeriodGrid::ending_at_with(
         beta_settings.frequency,
-        valuation_date,
-        beta_settings.lookback + lags,
+        beta_settings.weekday,
+        beta_settings.window_end_date(valuation_date),
+        lookback + lags,
     );
+    let return_type = beta_settings.returns;
+    let stale_limit = beta_settings.max_stale_days;
+    let sample_returns = |file: &DataFile| {
+        let (samples, stale) =
+            sampling::sample_with_staleness(&grid, file.series.view(), stale_limit);
+        (
+            sampling::period_returns(&samples, return_type),
+            sampling::stale_returns(&stale),
+        )
+    };
     let first = lags as usize;
     let all_period_ends = grid.return_period_ends();
     let period_ends = &all_period_ends[first..];
     let window_start = grid.sample_points()[first];
-    let market_returns =
-        sampling::simple_returns(&sampling::sample(&grid, inputs.index.series.view()));
+    let (market_returns, market_stale) = sample_returns(&inputs.index);
     let risk_free = inputs.risk_free.as_ref().map(|file| {
-        sampling::risk_free_per_period(
+        sampling::risk_free_for_returns(
             &sampling::sample(&grid, file.series.view()),
             beta_settings.frequency,
+            return_type,
         )
     });
 
@@ -289,8 +307,8 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let mut peers = Vec::with_capacity(settings.peers.len());
     let mut returns = Vec::with_capacity(settings.peers.len());
     for (spec, file) in settings.peers.iter().zip(&inputs.peers) {
-        let asset_returns = sampling::simple_returns(&sampling::sample(&grid, file.series.view()));
-        let aligned = sampling::align_with_shifts(
+        let (asset_returns, asset_stale) = sample_returns(file);
+        let mut aligned = sampling::align_with_shifts(
             all_period_ends,
             &asset_returns,
             &market_returns,
@@ -298,6 +316,8 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             &offsets,
             first,
         );
+        aligned.dropped.asset_stale = asset_stale[first..].iter().filter(|&&s| s).count();
+        aligned.dropped.market_stale = market_stale[first..].iter().filter(|&&s| s).count();
         let estimation_error = |message: String| Error::Estimation {
             peer: spec.name.clone(),
             message,
@@ -348,6 +368,17 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                 aligned.dropped.asset_missing,
                 aligned.dropped.market_missing,
                 aligned.dropped.risk_free_missing
+            ));
+        }
+        let d = aligned.dropped;
+        if d.asset_stale + d.market_stale > 0 {
+            notes.push(format!(
+                "{}: {} periods with a stale peer price and {} with a stale index price \
+                 (older than beta.max_stale_days = {}) were dropped.",
+                spec.name,
+                d.asset_stale,
+                d.market_stale,
+                stale_limit.unwrap_or_default()
             ));
         }
         let adjusted_beta = beta::adjust(beta_settings.adjustment, estimate.beta);
@@ -474,14 +505,29 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         sampling: SamplingRecord {
             frequency: beta_settings.frequency,
             periods_per_year: beta_settings.frequency.periods_per_year(),
-            lookback: beta_settings.lookback,
+            lookback,
             min_observations: beta_settings.min_observations,
             window_start,
             window_end,
-            return_type: "simple",
+            return_type: match return_type {
+                sampling::ReturnType::Simple => "simple",
+                sampling::ReturnType::Log => "log",
+            },
+            weekday: (beta_settings.frequency == sampling::Frequency::Weekly)
+                .then_some(beta_settings.weekday),
+            max_stale_days: stale_limit,
+            sampling_rule: sampling::rule_text(beta_settings.frequency),
             excess_returns: risk_free.is_some(),
-            risk_free_convention: "annual yield sampled at the start of each period, \
-                                   compounded to the period: (1 + y)^(1/periods_per_year) - 1",
+            risk_free_convention: match return_type {
+                sampling::ReturnType::Simple => {
+                    "annual yield sampled at the start of each period, compounded to the \
+                     period: (1 + y)^(1/periods_per_year) - 1"
+                }
+                sampling::ReturnType::Log => {
+                    "annual yield sampled at the start of each period, continuously \
+                     compounded to the period: ln(1 + y)/periods_per_year"
+                }
+            },
         },
         estimator: beta::describe(beta_settings),
         peers,

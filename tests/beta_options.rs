@@ -203,7 +203,67 @@ fn bad_estimator_options_are_named() {
         &["beta.lookback = 30", "beta.min_observations = 36"],
     );
     rejects(
+        &["beta.frequency=weekly", "beta.weekday=wensday"],
+        &["wensday", "wednesday"],
+    );
+    rejects(&["beta.lookback=\"5x\""], &["beta.lookback", "5x"]);
+    rejects(
+        &["beta.frequency=quarterly", "beta.lookback=\"5y\""],
+        &["beta.lookback = \"5y\"", "20", "beta.min_observations = 36"],
+    );
+    rejects(
+        &["beta.window_end=2026-10-31"],
+        &["beta.window_end = 2026-10-31", "valuation_date"],
+    );
+    // 2026-01-31 to 2026-09-30 holds 8 month-end returns; 2 lags reach N/4 = 2.
+    rejects(
+        &[
+            "beta.window_start=2026-01-31",
+            "beta.min_observations=3",
+            "beta.method=dimson",
+            "beta.dimson_lags=2",
+        ],
+        &[
+            "beta.dimson_lags + beta.dimson_leads = 2",
+            "lookback / 4 = 2",
+        ],
+    );
+    rejects(
         &["peer.0.exclude=\"  \""],
         &["peer.0.exclude", "Brenvale Fluid Systems"],
     );
+}
+
+// Lookback spans resolve by the calendar: "5y" of month-ends ending 2026-09-30 is 60 returns
+// (61 month-ends from 2021-09-30), "104w" of Wednesdays is 104 returns, and explicit dates give
+// the periods between them (2024-09-30 to 2026-09-30: 24 month-end returns).
+#[test]
+fn lookback_spans_and_dates_resolve_by_the_calendar() {
+    let dir = tempfile::tempdir().unwrap();
+    let monthly = run_with(dir.path(), &["beta.lookback=\"5y\""]);
+    assert_eq!(monthly["sampling"]["lookback"], 60);
+    assert_eq!(monthly["sampling"]["window_start"], "2021-09-30");
+    let weekly = run_with(
+        dir.path(),
+        &["beta.frequency=weekly", "beta.lookback=\"104w\""],
+    );
+    assert_eq!(weekly["sampling"]["lookback"], 104);
+    assert_eq!(weekly["sampling"]["weekday"], "wednesday");
+    let dated = run_with(
+        dir.path(),
+        &["beta.window_start=2024-09-30", "beta.min_observations=12"],
+    );
+    assert_eq!(dated["sampling"]["lookback"], 24);
+    // Each of these passes the numpy/scipy check as well (weekly and log returns).
+    let logs = run_with(
+        dir.path(),
+        &[
+            "beta.frequency=weekly",
+            "beta.returns=log",
+            "beta.max_stale_days=3",
+        ],
+    );
+    assert_eq!(logs["sampling"]["return_type"], "log");
+    let report = reference_check(dir.path());
+    assert!(report.contains(" 0 failed"), "{report}");
 }
