@@ -130,6 +130,35 @@ pub struct BetaSettings {
     /// valuation date.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub window_end: Option<CaseDate>,
+    /// Flag `too_few_observations` below this share of the window's periods.
+    pub flag_observations_share: f64,
+    /// Flag `low_r_squared` below this R².
+    pub flag_r_squared_floor: f64,
+    /// Flag `stale_prices` when more than this share of the window's periods had a stale peer
+    /// price.
+    pub flag_stale_share: f64,
+    /// Peers raising any of these flags are left out of the aggregation (still shown).
+    pub exclude_flags: Vec<PeerFlag>,
+}
+
+/// A diagnostic warning on a peer's estimate.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PeerFlag {
+    TooFewObservations,
+    LowRSquared,
+    StalePrices,
+}
+
+impl PeerFlag {
+    /// The flag's name as the case file and `result.json` write it.
+    pub fn name(self) -> &'static str {
+        match self {
+            PeerFlag::TooFewObservations => "too_few_observations",
+            PeerFlag::LowRSquared => "low_r_squared",
+            PeerFlag::StalePrices => "stale_prices",
+        }
+    }
 }
 
 /// `beta.lookback`: a count of return periods or a calendar span (`5y`, `18m`, `104w`, `250d`).
@@ -284,6 +313,10 @@ impl Default for BetaSettings {
             max_stale_days: None,
             window_start: None,
             window_end: None,
+            flag_observations_share: 0.8,
+            flag_r_squared_floor: 0.05,
+            flag_stale_share: 0.1,
+            exclude_flags: Vec::new(),
         }
     }
 }
@@ -733,6 +766,15 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     validate_beta_options(beta, lookback)?;
+    for (key, value) in [
+        ("beta.flag_observations_share", beta.flag_observations_share),
+        ("beta.flag_r_squared_floor", beta.flag_r_squared_floor),
+        ("beta.flag_stale_share", beta.flag_stale_share),
+    ] {
+        if !(value.is_finite() && (0.0..=1.0).contains(&value)) {
+            return Err(format!("{key} = {value} is outside [0, 1]"));
+        }
+    }
     let target = &case.target;
     match (target.debt_to_equity, target.debt_to_capital) {
         (Some(_), Some(_)) => {

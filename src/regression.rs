@@ -34,6 +34,31 @@ pub struct OlsFit {
     /// (XᵀX)⁻¹, computed as D⁻¹R⁻¹R⁻ᵀD⁻¹ from the QR factor (never by inverting XᵀX); the
     /// "bread" of the sandwich covariance estimators.
     pub bread: DMatrix<f64>,
+    /// Leverages hᵢᵢ, the diagonal of the hat matrix X(XᵀX)⁻¹Xᵀ, as row sums of squares of the
+    /// thin Q factor.
+    pub leverages: Vec<f64>,
+}
+
+impl OlsFit {
+    /// Durbin–Watson statistic Σ(eₜ − eₜ₋₁)² / Σeₜ² of the residuals in observation order
+    /// (Durbin and Watson 1950, "Testing for serial correlation in least squares regression
+    /// I", Biometrika 37(3/4)); near 2 when they are serially uncorrelated.
+    pub fn durbin_watson(&self) -> f64 {
+        let e = &self.residuals;
+        let num: f64 = e.windows(2).map(|w| (w[1] - w[0]) * (w[1] - w[0])).sum();
+        num / e.iter().map(|v| v * v).sum::<f64>()
+    }
+
+    /// Internally studentised residuals eᵢ / (s·√(1 − hᵢᵢ)) (the textbook definition, e.g.
+    /// Cook and Weisberg 1982, "Residuals and influence in regression").
+    pub fn studentised_residuals(&self) -> Vec<f64> {
+        let s = self.residual_std_error;
+        self.residuals
+            .iter()
+            .zip(&self.leverages)
+            .map(|(e, h)| e / (s * (1.0 - h).sqrt()))
+            .collect()
+    }
 }
 
 impl OlsFit {
@@ -80,6 +105,8 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
             "regressor column {j} is a linear combination of the others (rank-deficient design)"
         )));
     }
+    let q = qr.q();
+    let leverages: Vec<f64> = q.row_iter().map(|row| row.norm_squared()).collect();
     let mut qty = y.clone();
     qr.q_tr_mul(&mut qty);
     let qty = qty.rows(0, k).into_owned();
@@ -132,6 +159,7 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
         degrees_of_freedom: df,
         residuals,
         bread,
+        leverages,
     })
 }
 
@@ -300,5 +328,22 @@ mod tests {
         // With L = 0 Newey–West is White's HC0 = Σe²/n² = 10/16.
         let hc0 = linear_estimator_covariance(&a, &e, 1, StdErrors::NeweyWest, 0);
         assert!((hc0[(0, 0)] - 10.0 / 16.0).abs() < 1e-15);
+    }
+
+    // The hand-worked example above: residuals −0.8, 0.6, 1.0, −0.6, −0.2 have successive
+    // differences 1.4, 0.4, −1.6, 0.4, so DW = (1.96 + 0.16 + 2.56 + 0.16)/2.4 = 4.84/2.4.
+    // Leverage of x = 1: 1/n + (x − x̄)²/Sxx = 0.2 + 4/10 = 0.6, so its studentised residual is
+    // −0.8/(√0.8·√0.4) = −√2.
+    #[test]
+    fn durbin_watson_and_studentised_residuals_by_hand() {
+        let x = [1.0, 2.0, 3.0, 4.0, 5.0];
+        let y = [2.0, 4.0, 5.0, 4.0, 5.0];
+        let fit = ols(&design_with_intercept(&[&x]), &y, true).unwrap();
+        // 1e-14: sums of five small numbers, QR rounding.
+        assert!((fit.durbin_watson() - 4.84 / 2.4).abs() < 1e-14);
+        assert!((fit.leverages[0] - 0.6).abs() < 1e-14);
+        assert!((fit.studentised_residuals()[0] + 2.0_f64.sqrt()).abs() < 1e-14);
+        // The leverages sum to k = 2 (trace of the hat matrix, a textbook identity).
+        assert!((fit.leverages.iter().sum::<f64>() - 2.0).abs() < 1e-14);
     }
 }

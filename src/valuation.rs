@@ -143,6 +143,10 @@ pub struct PeerResult {
     pub excluded_reason: Option<String>,
     /// The Vasicek-shrunk beta beside the raw one (`null` unless `beta.adjustment = "vasicek"`).
     pub vasicek: Option<beta::vasicek::Shrunk>,
+    /// Share of the window's periods dropped because the peer's price was stale.
+    pub stale_share: f64,
+    /// Diagnostic warnings (see README, "Diagnostics").
+    pub flags: Vec<crate::case::PeerFlag>,
 }
 
 /// Aggregation and relevering.
@@ -221,6 +225,28 @@ pub struct Valuation {
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
     #[serde(skip)]
     pub returns: Vec<AlignedReturns>,
+}
+
+/// The diagnostic flags of one peer's estimate against the case's thresholds.
+fn peer_flags(
+    settings: &crate::case::BetaSettings,
+    estimate: &BetaEstimate,
+    periods_in_window: usize,
+    stale_share: f64,
+) -> Vec<crate::case::PeerFlag> {
+    use crate::case::PeerFlag;
+    let mut flags = Vec::new();
+    if (estimate.observations as f64) < settings.flag_observations_share * periods_in_window as f64
+    {
+        flags.push(PeerFlag::TooFewObservations);
+    }
+    if estimate.r_squared < settings.flag_r_squared_floor {
+        flags.push(PeerFlag::LowRSquared);
+    }
+    if stale_share > settings.flag_stale_share {
+        flags.push(PeerFlag::StalePrices);
+    }
+    flags
 }
 
 /// The Vasicek prior: the case's stated mean and variance, else the cross-section of the raw
@@ -381,6 +407,21 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                 stale_limit.unwrap_or_default()
             ));
         }
+        let stale_share = d.asset_stale as f64 / period_ends.len() as f64;
+        let flags = peer_flags(beta_settings, &estimate, period_ends.len(), stale_share);
+        let excluded_by_rule: Vec<String> = flags
+            .iter()
+            .filter(|f| beta_settings.exclude_flags.contains(f))
+            .map(|f| f.name().to_string())
+            .collect();
+        let exclusion = spec.exclude.clone().or_else(|| {
+            (!excluded_by_rule.is_empty()).then(|| {
+                format!(
+                    "flag-based rule beta.exclude_flags: {}",
+                    excluded_by_rule.join(", ")
+                )
+            })
+        });
         let adjusted_beta = beta::adjust(beta_settings.adjustment, estimate.beta);
         let beta_used = adjusted_beta.unwrap_or(estimate.beta);
         let structure = CapitalStructure {
@@ -401,8 +442,10 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             tax_rate: spec.tax_rate,
             unlevered_beta: settings.leverage.formula.unlever(beta_used, structure),
             estimate,
-            excluded_reason: spec.exclude.clone(),
+            excluded_reason: exclusion,
             vasicek: None,
+            stale_share,
+            flags,
         });
         returns.push(aligned);
     }
@@ -447,6 +490,20 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         .map(|p| p.unlevered_beta)
         .collect();
     let peers_included = unlevered.len();
+    if peers_included == 0 {
+        return Err(Error::Estimation {
+            peer: "(all peers)".into(),
+            message: format!(
+                "every peer is excluded (beta.exclude_flags = {:?} or `exclude`): no peer is \
+                 left to aggregate",
+                beta_settings
+                    .exclude_flags
+                    .iter()
+                    .map(|f| f.name().to_string())
+                    .collect::<Vec<_>>()
+            ),
+        });
+    }
     let unlevered_dispersion = stats::dispersion(&unlevered);
     let aggregate = settings.leverage.aggregation.pick(&unlevered_dispersion);
     let target_de = case.target_debt_to_equity();

@@ -72,6 +72,11 @@ fn numpy_and_scipy_agree_with_every_estimator() {
     ]));
     configurations.push(owned(&["beta.adjustment=vasicek"]));
     configurations.push(owned(&[
+        "beta.flag_r_squared_floor=0.15",
+        "beta.exclude_flags=[\"low_r_squared\"]",
+        "beta.flag_observations_share=0.95",
+    ]));
+    configurations.push(owned(&[
         "beta.adjustment=vasicek",
         "beta.vasicek_prior_mean=1.0",
         "beta.vasicek_prior_variance=0.04",
@@ -266,4 +271,45 @@ fn lookback_spans_and_dates_resolve_by_the_calendar() {
     assert_eq!(logs["sampling"]["return_type"], "log");
     let report = reference_check(dir.path());
     assert!(report.contains(" 0 failed"), "{report}");
+}
+
+// The flag-based rule: with an R² floor of 0.15, peers below it are flagged and excluded with
+// the rule named as the reason; the others stay in (R² thresholds checked against the file's
+// own R², the flags recomputed independently in check_regressions.py).
+#[test]
+fn flag_based_exclusion_names_the_rule() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_with(
+        dir.path(),
+        &[
+            "beta.flag_r_squared_floor=0.15",
+            "beta.exclude_flags=[\"low_r_squared\"]",
+        ],
+    );
+    let mut included = 0;
+    for peer in result["peers"].as_array().unwrap() {
+        let low = peer["r_squared"].as_f64().unwrap() < 0.15;
+        let flagged = peer["flags"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|f| f == "low_r_squared");
+        assert_eq!(low, flagged, "{}", peer["name"]);
+        if low {
+            assert!(peer["excluded_reason"]
+                .as_str()
+                .unwrap()
+                .contains("beta.exclude_flags"));
+        } else {
+            assert!(peer["excluded_reason"].is_null());
+            included += 1;
+        }
+    }
+    assert!(included < 8, "the floor should flag someone in the demo");
+    assert_eq!(result["beta"]["peers_included"], included);
+    rejects(
+        &["beta.flag_r_squared_floor=1.5"],
+        &["beta.flag_r_squared_floor = 1.5"],
+    );
+    rejects(&["beta.exclude_flags=[\"shaky\"]"], &["shaky"]);
 }

@@ -50,6 +50,10 @@ pub struct BetaEstimate {
     pub market_coefficients: Vec<MarketCoefficient>,
     /// Scholes–Williams only: the market's first-order autocorrelation on the sample.
     pub market_autocorrelation: Option<f64>,
+    /// Durbin–Watson statistic of the regression's residuals (in period order).
+    pub durbin_watson: f64,
+    /// How many observations have an internally studentised residual above 3 in absolute value.
+    pub large_studentised_residuals: usize,
 }
 
 /// One slope on a (possibly lagged or led) market return.
@@ -171,6 +175,12 @@ pub(crate) fn finish(
         newey_west_lags: None,
         market_coefficients,
         market_autocorrelation: None,
+        durbin_watson: fit.durbin_watson(),
+        large_studentised_residuals: fit
+            .studentised_residuals()
+            .iter()
+            .filter(|r| r.abs() > 3.0)
+            .count(),
     }
 }
 

@@ -34,6 +34,19 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     Ok(())
 }
 
+/// The peer's flags and exclusion, for the table's last column.
+fn flags_cell(p: &hurdle::valuation::PeerResult) -> String {
+    let mut parts: Vec<String> = p.flags.iter().map(|f| f.name().to_string()).collect();
+    if let Some(reason) = &p.excluded_reason {
+        parts.push(format!("excluded: {reason}"));
+    }
+    if parts.is_empty() {
+        "-".into()
+    } else {
+        parts.join(", ")
+    }
+}
+
 fn table(v: &Valuation) -> String {
     let name_width = v
         .peers
@@ -43,13 +56,13 @@ fn table(v: &Valuation) -> String {
         .unwrap_or(4)
         .max(4);
     let mut out = format!(
-        "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}\n",
+        "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}  flags\n",
         "peer", "N", "beta", "SE", "95% CI", "R²", "beta*", "D/E", "unlevered"
     );
     for p in &v.peers {
         let e = &p.estimate;
         out.push_str(&format!(
-            "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}\n",
+            "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}  {}\n",
             p.name,
             e.observations,
             fixed(e.beta, 3),
@@ -63,6 +76,7 @@ fn table(v: &Valuation) -> String {
             fixed(p.beta_used, 3),
             fixed(p.debt_to_equity, 3),
             fixed(p.unlevered_beta, 3),
+            flags_cell(p),
         ));
     }
     out.push_str(&format!(

@@ -13,7 +13,7 @@ pub struct PeersCsv;
 /// Long form: one row per peer and return period.
 pub struct ReturnsCsv;
 
-const PEER_COLUMNS: [&str; 18] = [
+const PEER_COLUMNS: [&str; 24] = [
     "name",
     "prices_file",
     "observations",
@@ -32,6 +32,12 @@ const PEER_COLUMNS: [&str; 18] = [
     "tax_rate",
     "unlevered_beta",
     "residual_std_error",
+    "method",
+    "std_errors",
+    "durbin_watson",
+    "large_studentised_residuals",
+    "flags",
+    "excluded_reason",
 ];
 
 impl Render for PeersCsv {
@@ -63,6 +69,18 @@ impl Render for PeersCsv {
                 p.tax_rate.to_string(),
                 p.unlevered_beta.to_string(),
                 e.residual_std_error.to_string(),
+                json_text(&e.method),
+                json_text(&e.std_errors),
+                e.durbin_watson.to_string(),
+                e.large_studentised_residuals.to_string(),
+                field(
+                    &p.flags
+                        .iter()
+                        .map(|f| f.name())
+                        .collect::<Vec<_>>()
+                        .join(";"),
+                ),
+                field(p.excluded_reason.as_deref().unwrap_or("")),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');
@@ -113,6 +131,14 @@ impl Render for ReturnsCsv {
         }
         Ok(out.into_bytes())
     }
+}
+
+/// The serde name of a unit enum value (`dimson`, `newey-west`, `low_r_squared`).
+fn json_text<T: serde::Serialize>(value: &T) -> String {
+    serde_json::to_value(value)
+        .ok()
+        .and_then(|v| v.as_str().map(str::to_string))
+        .unwrap_or_default()
 }
 
 /// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).

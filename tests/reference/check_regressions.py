@@ -73,12 +73,7 @@ def check_estimator(name, peer, data, asset, market, result):
         # Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9)).
         expected = settings.get("newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
         check(f"{name} Newey-West lags", lags, expected)
-    shifted = {}
-    for key in data[0]:
-        if key.startswith("market_lag_"):
-            shifted[-int(key[len("market_lag_"):])] = np.array([float(r[key]) for r in data])
-        elif key.startswith("market_lead_"):
-            shifted[int(key[len("market_lead_"):])] = np.array([float(r[key]) for r in data])
+    shifted = shifted_columns(data)
     check_shifts_are_the_market_series(name, data, shifted, result)
     method = peer["method"]
     if method in ("ols", "dimson"):
@@ -147,6 +142,54 @@ def check_estimator(name, peer, data, asset, market, result):
         check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
 
 
+def shifted_columns(data):
+    shifted = {}
+    for key in data[0]:
+        if key.startswith("market_lag_"):
+            shifted[-int(key[len("market_lag_"):])] = np.array([float(r[key]) for r in data])
+        elif key.startswith("market_lead_"):
+            shifted[int(key[len("market_lead_"):])] = np.array([float(r[key]) for r in data])
+    return shifted
+
+
+def check_diagnostics(name, peer, data, asset, market, result):
+    """Durbin-Watson (1950, Biometrika 37) sum((e_t - e_t-1)^2)/sum(e^2); internally studentised
+    residuals e_i / (s sqrt(1 - h_ii)) with h the hat-matrix diagonal (textbook); the flags
+    against the case's thresholds as README states them."""
+    n = len(asset)
+    shifted = shifted_columns(data)
+    if peer["method"] == "scholes-williams":
+        columns = [shifted[-1], market, shifted[1]]
+    else:
+        offsets = sorted(list(shifted) + [0])
+        columns = [market if o == 0 else shifted[o] for o in offsets]
+    design = np.column_stack([np.ones(n)] + columns)
+    coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
+    e = asset - design @ coef
+    check(f"{name} Durbin-Watson", peer["durbin_watson"], np.sum(np.diff(e) ** 2) / (e @ e))
+    hat = np.einsum("ij,jk,ik->i", design, np.linalg.inv(design.T @ design), design)
+    s = np.sqrt(e @ e / (n - design.shape[1]))
+    studentised = e / (s * np.sqrt(1 - hat))
+    check(f"{name} |studentised| > 3", peer["large_studentised_residuals"], int(np.sum(np.abs(studentised) > 3)))
+    b = result["settings"]["beta"]
+    window = peer["periods_in_window"]
+    expected = []
+    if n < b["flag_observations_share"] * window:
+        expected.append("too_few_observations")
+    if peer["r_squared"] < b["flag_r_squared_floor"]:
+        expected.append("low_r_squared")
+    if peer["periods_dropped"]["asset_stale"] / window > b["flag_stale_share"]:
+        expected.append("stale_prices")
+    global checks
+    checks += 1
+    if peer["flags"] != expected:
+        failures.append(f"{name} flags: hurdle {peer['flags']} vs reference {expected}")
+    spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
+    by_rule = [f for f in expected if f in b["exclude_flags"]]
+    if spec.get("exclude") is None and by_rule:
+        assert peer["excluded_reason"] is not None and by_rule[0] in peer["excluded_reason"]
+
+
 def check_shifts_are_the_market_series(name, data, shifted, result):
     """Each lag/lead column must be the market's excess return of the period that many steps
     away on the window's grid (built here from every peer's rows of returns.csv)."""
@@ -193,6 +236,7 @@ def main(out_dir):
             asset, market = asset - rf, market - rf
         n = len(asset)
         check(f"{name} observations", peer["observations"], n)
+        check_diagnostics(name, peer, data, asset, market, result)
         if peer["method"] != "ols" or peer["std_errors"] != "classical" or peer.get("vasicek"):
             check_estimator(name, peer, data, asset, market, result)
             continue
