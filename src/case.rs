@@ -139,6 +139,14 @@ pub struct BetaSettings {
     pub flag_stale_share: f64,
     /// Peers raising any of these flags are left out of the aggregation (still shown).
     pub exclude_flags: Vec<PeerFlag>,
+    /// Return periods per rolling window; absent means half the window's periods.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rolling_window: Option<u32>,
+    /// Periods between consecutive rolling window ends.
+    pub rolling_step: u32,
+    /// Fewest observations in a rolling window; absent means 80% of it, rounded up.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rolling_min_observations: Option<u32>,
 }
 
 /// A diagnostic warning on a peer's estimate.
@@ -262,6 +270,15 @@ impl<'de> Deserialize<'de> for Lookback {
 }
 
 impl BetaSettings {
+    /// The rolling window length and its minimum observations, for a window of `lookback`.
+    pub fn rolling(&self, lookback: u32) -> (u32, u32) {
+        let window = self.rolling_window.unwrap_or(lookback / 2);
+        let min = self
+            .rolling_min_observations
+            .unwrap_or_else(|| (window * 4).div_ceil(5));
+        (window, min)
+    }
+
     /// The last date of the window: `window_end` or the valuation date.
     pub fn window_end_date(&self, valuation_date: NaiveDate) -> NaiveDate {
         self.window_end.map_or(valuation_date, |d| d.0)
@@ -317,6 +334,9 @@ impl Default for BetaSettings {
             flag_r_squared_floor: 0.05,
             flag_stale_share: 0.1,
             exclude_flags: Vec::new(),
+            rolling_window: None,
+            rolling_step: 1,
+            rolling_min_observations: None,
         }
     }
 }
@@ -766,6 +786,21 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     validate_beta_options(beta, lookback)?;
+    let (window, min) = beta.rolling(lookback);
+    if window > lookback || window < 3 {
+        return Err(format!(
+            "beta.rolling_window = {window} must lie between 3 and the window's {lookback} periods"
+        ));
+    }
+    if min < 3 || min > window {
+        return Err(format!(
+            "beta.rolling_min_observations = {min} must lie between 3 and beta.rolling_window = \
+             {window}"
+        ));
+    }
+    if beta.rolling_step == 0 {
+        return Err("beta.rolling_step = 0: give at least 1 period".into());
+    }
     for (key, value) in [
         ("beta.flag_observations_share", beta.flag_observations_share),
         ("beta.flag_r_squared_floor", beta.flag_r_squared_floor),

@@ -147,6 +147,8 @@ pub struct PeerResult {
     pub stale_share: f64,
     /// Diagnostic warnings (see README, "Diagnostics").
     pub flags: Vec<crate::case::PeerFlag>,
+    /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
+    pub stability: Option<crate::rolling::Stability>,
 }
 
 /// Aggregation and relevering.
@@ -225,6 +227,9 @@ pub struct Valuation {
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
     #[serde(skip)]
     pub returns: Vec<AlignedReturns>,
+    /// Each peer's rolling betas, in peer order (written to `rolling.csv`, not to JSON).
+    #[serde(skip)]
+    pub rolling: Vec<Vec<crate::rolling::RollingPoint>>,
 }
 
 /// The diagnostic flags of one peer's estimate against the case's thresholds.
@@ -332,6 +337,8 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
 
     let mut peers = Vec::with_capacity(settings.peers.len());
     let mut returns = Vec::with_capacity(settings.peers.len());
+    let mut rolling = Vec::with_capacity(settings.peers.len());
+    let (rolling_window, rolling_min) = beta_settings.rolling(lookback);
     for (spec, file) in settings.peers.iter().zip(&inputs.peers) {
         let (asset_returns, asset_stale) = sample_returns(file);
         let mut aligned = sampling::align_with_shifts(
@@ -407,6 +414,15 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
                 stale_limit.unwrap_or_default()
             ));
         }
+        let points = crate::rolling::rolling_betas(
+            period_ends,
+            &aligned.period_ends,
+            &aligned.asset_excess(),
+            &market_excess,
+            rolling_window as usize,
+            beta_settings.rolling_step as usize,
+            rolling_min as usize,
+        );
         let stale_share = d.asset_stale as f64 / period_ends.len() as f64;
         let flags = peer_flags(beta_settings, &estimate, period_ends.len(), stale_share);
         let excluded_by_rule: Vec<String> = flags
@@ -446,7 +462,10 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             vasicek: None,
             stale_share,
             flags,
+            stability: crate::rolling::stability(&points, rolling_window)
+                .map_err(|e| estimation_error(e.to_string()))?,
         });
+        rolling.push(points);
         returns.push(aligned);
     }
 
@@ -628,5 +647,6 @@ pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         wacc_contributions,
         notes,
         returns,
+        rolling,
     })
 }

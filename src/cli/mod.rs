@@ -4,6 +4,7 @@
 //! arm in [`Command`] and [`run`].
 
 pub mod betas;
+pub mod rolling;
 pub mod run;
 
 use std::path::PathBuf;
@@ -25,6 +26,8 @@ pub enum Command {
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),
+    /// Write each peer's rolling beta to rolling.csv.
+    Rolling(rolling::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -39,6 +42,25 @@ pub struct CaseArgs {
 }
 
 impl CaseArgs {
+    /// `output/` beside the case file.
+    pub fn default_output_dir(&self) -> PathBuf {
+        self.case
+            .parent()
+            .map(|p| p.join("output"))
+            .unwrap_or_else(|| PathBuf::from("output"))
+    }
+
+    /// As [`CaseArgs::valuation`], also returning the inputs read.
+    pub fn inputs_and_valuation(
+        &self,
+    ) -> hurdle::Result<(hurdle::valuation::Inputs, hurdle::valuation::Valuation)> {
+        let case = hurdle::case::read_case(&self.case, &self.overrides)?;
+        let inputs = hurdle::valuation::load_inputs(case)?;
+        let stamp = chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true);
+        let valuation = hurdle::valuation::value(&inputs, &stamp)?;
+        Ok((inputs, valuation))
+    }
+
     /// Reads the case, applies overrides, reads its data and computes the valuation.
     pub fn valuation(&self) -> hurdle::Result<hurdle::valuation::Valuation> {
         let case = hurdle::case::read_case(&self.case, &self.overrides)?;
@@ -53,5 +75,6 @@ pub fn run(cli: Cli) -> hurdle::Result<()> {
     match cli.command {
         Command::Run(args) => run::run(&args),
         Command::Betas(args) => betas::run(&args),
+        Command::Rolling(args) => rolling::run(&args),
     }
 }

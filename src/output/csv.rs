@@ -142,7 +142,7 @@ fn json_text<T: serde::Serialize>(value: &T) -> String {
 }
 
 /// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).
-fn field(text: &str) -> String {
+pub(crate) fn field(text: &str) -> String {
     if text.contains([',', '"', '\n', '\r']) {
         format!("\"{}\"", text.replace('"', "\"\""))
     } else {

@@ -212,6 +212,41 @@ def check_shifts_are_the_market_series(name, data, shifted, result):
     assert compared > 0, "no shifted market value could be compared"
 
 
+def check_rolling(out_dir, result):
+    """rolling.csv (written by `hurdle rolling`), when present: every window refitted from
+    scratch with scipy.stats.linregress on the returns.csv rows inside it (the window's
+    `window_periods` grid periods ending at window_end); slope and SE to 1e-9 relative."""
+    import os
+    path = f"{out_dir}/rolling.csv"
+    if not os.path.exists(path):
+        return
+    periods = sorted({r["period_end"] for rows in ROWS.values() for r in rows})
+    position = {p: i for i, p in enumerate(periods)}
+    with open(path, newline="") as f:
+        windows = list(csv.DictReader(f))
+    assert windows, "rolling.csv has no rows"
+    for w in windows:
+        peer = next(p for p in result["peers"] if p["name"] == w["peer"])
+        length = peer["stability"]["window_periods"]
+        end = position[w["window_end"]]
+        inside = set(periods[max(0, end - length + 1): end + 1])
+        rows = [r for r in ROWS[w["peer"]] if r["period_end"] in inside]
+        y = np.array([float(r["asset_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
+        x = np.array([float(r["market_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
+        fit = stats.linregress(x, y)
+        label = f"{w['peer']} rolling {w['window_end']}"
+        check(f"{label} observations", int(w["observations"]), len(rows))
+        check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
+        check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
+    betas = defaultdict(list)
+    for w in windows:
+        betas[w["peer"]].append(float(w["beta"]))
+    for peer in result["peers"]:
+        if peer["stability"]:
+            check(f"{peer['name']} rolling min", peer["stability"]["min"], min(betas[peer["name"]]))
+            check(f"{peer['name']} rolling max", peer["stability"]["max"], max(betas[peer["name"]]))
+
+
 ROWS = {}
 
 
@@ -304,6 +339,8 @@ def main(out_dir):
     we, wd = 1 / (1 + de), de / (1 + de)
     check("equity weight", result["weights"]["equity"], we)
     check("WACC", result["wacc"], we * ke + wd * kd)
+
+    check_rolling(out_dir, result)
 
     for line in failures:
         print("MISMATCH", line)
