@@ -48,3 +48,41 @@ pub fn dimson_beta(
         kind,
     ))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::case::BetaSettings;
+
+    // Hand-built data where the asset is exactly 0.5·m(t) + 0.7·m(t − 1): the Dimson
+    // coefficients must be 0.5 and 0.7 and beta their sum 1.2 (an exact fit; the definition in
+    // Dimson 1979). Eight observations with one shifted column pass the N/4 rule (4 < 8);
+    // with four observations the estimator refuses (4·1 ≥ 4).
+    #[test]
+    fn exact_lagged_response_gives_the_summed_slopes() {
+        let m = [0.02, -0.01, 0.03, 0.00, -0.02, 0.04, 0.01, -0.03, 0.02];
+        let market = &m[1..];
+        let lag: Vec<f64> = m[..8].to_vec();
+        let asset: Vec<f64> = (0..8).map(|t| 0.5 * market[t] + 0.7 * lag[t]).collect();
+        let shifted = [ShiftedMarket {
+            offset: -1,
+            returns: lag.clone(),
+        }];
+        let e = dimson_beta(&asset, market, &shifted, StdErrors::Classical, 0).unwrap();
+        // 1e-12: an exact fit solved by QR leaves rounding only.
+        assert!((e.beta - 1.2).abs() < 1e-12, "{e:?}");
+        assert!((e.market_coefficients[0].estimate - 0.7).abs() < 1e-12);
+        assert!((e.market_coefficients[1].estimate - 0.5).abs() < 1e-12);
+        let settings = BetaSettings {
+            method: BetaMethod::Dimson,
+            ..BetaSettings::default()
+        };
+        let short = [ShiftedMarket {
+            offset: -1,
+            returns: lag[..4].to_vec(),
+        }];
+        let err =
+            super::super::estimate_with(&settings, &asset[..4], &market[..4], &short).unwrap_err();
+        assert!(err.to_string().contains("N/4"), "{err}");
+    }
+}

@@ -92,6 +92,14 @@ pub fn estimate_with(
             )));
         }
     }
+    if settings.method != BetaMethod::Ols && 4 * shifted.len() >= n {
+        return Err(Error::Regression(format!(
+            "{} lagged and led index columns are at least N/4 = {} for N = {n} observations; \
+             lower beta.dimson_lags / beta.dimson_leads",
+            shifted.len(),
+            n as f64 / 4.0
+        )));
+    }
     let (kind, l) = (settings.std_errors, lags.unwrap_or(0));
     let mut estimate = match settings.method {
         BetaMethod::Ols => ols_beta_with(asset, market, kind, l)?,
