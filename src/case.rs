@@ -15,7 +15,8 @@ use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 use crate::error::{Error, Result};
 use crate::leverage::Formula;
-use crate::sampling::Frequency;
+use crate::regression::StdErrors;
+use crate::sampling::{Frequency, ReturnType, SampleWeekday};
 use crate::stats::Aggregation;
 
 /// The whole case file, as written (after overrides), with every default made explicit.
@@ -152,22 +153,250 @@ pub struct YieldSpec {
 #[serde(deny_unknown_fields, default)]
 pub struct BetaSettings {
     pub frequency: Frequency,
-    /// Number of return periods in the window (60 monthly returns span 61 month-ends).
-    pub lookback: u32,
+    /// Number of return periods in the window (60 monthly returns span 61 month-ends), or a
+    /// calendar span such as `"5y"`, `"104w"`, `"250d"`.
+    pub lookback: Lookback,
     /// A peer with fewer usable periods than this is an error, not a silent drop.
     pub min_observations: u32,
     pub method: BetaMethod,
     pub adjustment: Adjustment,
+    /// Standard errors behind every SE, t, p-value and confidence interval of beta.
+    pub std_errors: StdErrors,
+    /// Newey–West lags; absent means the rule floor(4·(N/100)^(2/9)).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub newey_west_lags: Option<u32>,
+    /// Lags of the market return in the Dimson regression.
+    pub dimson_lags: u32,
+    /// Leads of the market return in the Dimson regression.
+    pub dimson_leads: u32,
+    /// Vasicek prior mean; absent means the cross-sectional mean of the included peers' betas.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub vasicek_prior_mean: Option<f64>,
+    /// Vasicek prior variance; absent means the cross-sectional variance of those betas.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub vasicek_prior_variance: Option<f64>,
+    /// The weekday of weekly sampling.
+    pub weekday: SampleWeekday,
+    /// Simple or log returns.
+    pub returns: ReturnType,
+    /// A sample whose last price is more than this many calendar days older than its sample
+    /// point is dropped and counted as stale; absent means no limit beyond the period rule.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub max_stale_days: Option<u32>,
+    /// Explicit first date of the window; replaces `lookback` when given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub window_start: Option<CaseDate>,
+    /// Explicit last date of the window (on or before the valuation date); default the
+    /// valuation date.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub window_end: Option<CaseDate>,
+    /// Flag `too_few_observations` below this share of the window's periods.
+    pub flag_observations_share: f64,
+    /// Flag `low_r_squared` below this R².
+    pub flag_r_squared_floor: f64,
+    /// Flag `stale_prices` when more than this share of the window's periods had a stale peer
+    /// price.
+    pub flag_stale_share: f64,
+    /// Peers raising any of these flags are left out of the aggregation (still shown).
+    pub exclude_flags: Vec<PeerFlag>,
+    /// Return periods per rolling window; absent means half the window's periods.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rolling_window: Option<u32>,
+    /// Periods between consecutive rolling window ends.
+    pub rolling_step: u32,
+    /// Fewest observations in a rolling window; absent means 80% of it, rounded up.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rolling_min_observations: Option<u32>,
+}
+
+/// A diagnostic warning on a peer's estimate.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PeerFlag {
+    TooFewObservations,
+    LowRSquared,
+    StalePrices,
+}
+
+impl PeerFlag {
+    /// The flag's name as the case file and `result.json` write it.
+    pub fn name(self) -> &'static str {
+        match self {
+            PeerFlag::TooFewObservations => "too_few_observations",
+            PeerFlag::LowRSquared => "low_r_squared",
+            PeerFlag::StalePrices => "stale_prices",
+        }
+    }
+}
+
+/// `beta.lookback`: a count of return periods or a calendar span (`5y`, `18m`, `104w`, `250d`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Lookback {
+    Periods(u32),
+    Span { count: u32, unit: SpanUnit },
+}
+
+/// The unit of a lookback span.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SpanUnit {
+    Years,
+    Months,
+    Weeks,
+    Days,
+}
+
+impl fmt::Display for Lookback {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Lookback::Periods(n) => write!(f, "{n}"),
+            Lookback::Span { count, unit } => {
+                let u = match unit {
+                    SpanUnit::Years => 'y',
+                    SpanUnit::Months => 'm',
+                    SpanUnit::Weeks => 'w',
+                    SpanUnit::Days => 'd',
+                };
+                write!(f, "\"{count}{u}\"")
+            }
+        }
+    }
+}
+
+impl Lookback {
+    /// Parses a span such as `5y`, `104w`, `250d`, `18m`.
+    pub fn parse_span(text: &str) -> std::result::Result<Lookback, String> {
+        let text = text.trim();
+        let bad = || {
+            format!(
+                "beta.lookback = \"{text}\" is not a count of periods or a span such as \"5y\", \
+                 \"18m\", \"104w\" or \"250d\""
+            )
+        };
+        let unit = match text.chars().last().ok_or_else(bad)? {
+            'y' => SpanUnit::Years,
+            'm' => SpanUnit::Months,
+            'w' => SpanUnit::Weeks,
+            'd' => SpanUnit::Days,
+            _ => return Err(bad()),
+        };
+        let count: u32 = text[..text.len() - 1].parse().map_err(|_| bad())?;
+        if count == 0 {
+            return Err(bad());
+        }
+        Ok(Lookback::Span { count, unit })
+    }
+
+    /// The calendar date `self` before `end` (a span), or `None` for a count of periods.
+    /// Years and months keep the day of the month, clamped to the month's last day.
+    pub fn span_start(&self, end: NaiveDate) -> Option<NaiveDate> {
+        let Lookback::Span { count, unit } = *self else {
+            return None;
+        };
+        Some(match unit {
+            SpanUnit::Years => end
+                .checked_sub_months(chrono::Months::new(12 * count))
+                .expect("inside chrono's range"),
+            SpanUnit::Months => end
+                .checked_sub_months(chrono::Months::new(count))
+                .expect("inside chrono's range"),
+            SpanUnit::Weeks => end - chrono::Days::new(7 * u64::from(count)),
+            SpanUnit::Days => end - chrono::Days::new(u64::from(count)),
+        })
+    }
+}
+
+impl Serialize for Lookback {
+    fn serialize<S: Serializer>(&self, serializer: S) -> std::result::Result<S::Ok, S::Error> {
+        match self {
+            Lookback::Periods(n) => serializer.serialize_u32(*n),
+            span => serializer.collect_str(&span.to_string().trim_matches('"')),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for Lookback {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> std::result::Result<Self, D::Error> {
+        use serde::de::Error as _;
+        match toml::Value::deserialize(deserializer)? {
+            toml::Value::Integer(n) => u32::try_from(n).map(Lookback::Periods).map_err(|_| {
+                D::Error::custom(format!("beta.lookback = {n} is not a positive count"))
+            }),
+            toml::Value::String(s) => Lookback::parse_span(&s).map_err(D::Error::custom),
+            other => Err(D::Error::custom(format!(
+                "beta.lookback: expected a count such as 60 or a span such as \"5y\", found {other}"
+            ))),
+        }
+    }
+}
+
+impl BetaSettings {
+    /// The rolling window length and its minimum observations, for a window of `lookback`.
+    pub fn rolling(&self, lookback: u32) -> (u32, u32) {
+        let window = self.rolling_window.unwrap_or(lookback / 2);
+        let min = self
+            .rolling_min_observations
+            .unwrap_or_else(|| (window * 4).div_ceil(5));
+        (window, min)
+    }
+
+    /// The last date of the window: `window_end` or the valuation date.
+    pub fn window_end_date(&self, valuation_date: NaiveDate) -> NaiveDate {
+        self.window_end.map_or(valuation_date, |d| d.0)
+    }
+
+    /// The number of return periods in the window: the count given, or the periods inside the
+    /// span or between `window_start` and the window end.
+    pub fn lookback_periods(&self, valuation_date: NaiveDate) -> u32 {
+        let end = self.window_end_date(valuation_date);
+        let start = self
+            .window_start
+            .map(|d| d.0)
+            .or_else(|| self.lookback.span_start(end));
+        match (start, self.lookback) {
+            (Some(start), _) => {
+                crate::sampling::periods_between(self.frequency, self.weekday, start, end)
+            }
+            (None, Lookback::Periods(n)) => n,
+            (None, Lookback::Span { .. }) => unreachable!("a span always has a start"),
+        }
+    }
+
+    /// How many lags and leads of the market return the method needs.
+    pub fn market_lags_and_leads(&self) -> (u32, u32) {
+        match self.method {
+            BetaMethod::Ols => (0, 0),
+            BetaMethod::Dimson => (self.dimson_lags, self.dimson_leads),
+            BetaMethod::ScholesWilliams => (1, 1),
+        }
+    }
 }
 
 impl Default for BetaSettings {
     fn default() -> Self {
         BetaSettings {
             frequency: Frequency::Monthly,
-            lookback: 60,
+            lookback: Lookback::Periods(60),
             min_observations: 36,
             method: BetaMethod::Ols,
             adjustment: Adjustment::None,
+            std_errors: StdErrors::Classical,
+            newey_west_lags: None,
+            dimson_lags: 1,
+            dimson_leads: 0,
+            vasicek_prior_mean: None,
+            vasicek_prior_variance: None,
+            weekday: SampleWeekday::Wednesday,
+            returns: ReturnType::Simple,
+            max_stale_days: None,
+            window_start: None,
+            window_end: None,
+            flag_observations_share: 0.8,
+            flag_r_squared_floor: 0.05,
+            flag_stale_share: 0.1,
+            exclude_flags: Vec::new(),
+            rolling_window: None,
+            rolling_step: 1,
+            rolling_min_observations: None,
         }
     }
 }
@@ -178,6 +407,11 @@ impl Default for BetaSettings {
 pub enum BetaMethod {
     /// Ordinary least squares of the asset's on the market's (excess) returns, with intercept.
     Ols,
+    /// Dimson (1979) aggregated coefficients: the sum of the slopes on lagged, current and led
+    /// market returns.
+    Dimson,
+    /// Scholes and Williams (1977): lag, current and lead slopes over 1 + 2ρ(market).
+    ScholesWilliams,
 }
 
 /// An adjustment applied to the raw beta before unlevering.
@@ -187,6 +421,8 @@ pub enum Adjustment {
     None,
     /// Blume (1971, 1975): 0.67 · raw + 0.33.
     Blume,
+    /// Vasicek (1973): Bayesian shrinkage toward a prior by each peer's sampling variance.
+    Vasicek,
 }
 
 /// `[leverage]`: unlevering, aggregating and relevering.
@@ -477,6 +713,10 @@ pub struct PeerSpec {
     /// the subject's is used when absent.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub cost_of_debt: Option<f64>,
+    /// Leaves the peer out of the aggregation (it is still estimated and shown), for the reason
+    /// given here.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub exclude: Option<String>,
 }
 
 fn default_index_name() -> String {
@@ -765,6 +1005,59 @@ fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), S
     }
 }
 
+/// Range checks of the estimator options in `[beta]`, against the window length `lookback`
+/// (the most observations a peer can have).
+fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Result<(), String> {
+    let (lags, leads) = beta.market_lags_and_leads();
+    // Each shifted market column costs a coefficient and an end period; beyond N/4 of them the
+    // regression has too little left to estimate anything (a common practice bound).
+    if 4 * (lags + leads) >= lookback {
+        return Err(format!(
+            "beta.dimson_lags + beta.dimson_leads = {} is at least beta.lookback / 4 = {}: too \
+             many shifted market columns for {} periods",
+            lags + leads,
+            f64::from(lookback) / 4.0,
+            lookback
+        ));
+    }
+    if beta.method == BetaMethod::Dimson && lags + leads == 0 {
+        return Err(
+            "beta.method = \"dimson\" with beta.dimson_lags = 0 and beta.dimson_leads = 0 is \
+             plain OLS; use beta.method = \"ols\" or give at least one lag"
+                .into(),
+        );
+    }
+    if let Some(l) = beta.newey_west_lags {
+        if 4 * l >= lookback {
+            return Err(format!(
+                "beta.newey_west_lags = {l} is at least beta.lookback / 4 = {}",
+                f64::from(lookback) / 4.0
+            ));
+        }
+    }
+    match (beta.vasicek_prior_mean, beta.vasicek_prior_variance) {
+        (Some(m), Some(v)) => {
+            if !m.is_finite() {
+                return Err(format!("beta.vasicek_prior_mean = {m} is not a number"));
+            }
+            if !(v.is_finite() && v > 0.0) {
+                return Err(format!(
+                    "beta.vasicek_prior_variance = {v} must be a positive number"
+                ));
+            }
+        }
+        (None, None) => {}
+        _ => {
+            return Err(
+                "give both beta.vasicek_prior_mean and beta.vasicek_prior_variance, or neither \
+                 (then the cross-section of the peers is the prior)"
+                    .into(),
+            )
+        }
+    }
+    Ok(())
+}
+
 /// Range checks a type cannot express. The message names the key and the offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     if case.case.title.trim().is_empty() {
@@ -790,11 +1083,67 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             beta.min_observations
         ));
     }
-    if beta.lookback < beta.min_observations {
+    let valuation_date = case.case.valuation_date.0;
+    if let Some(end) = beta.window_end {
+        if end.0 > valuation_date {
+            return Err(format!(
+                "beta.window_end = {end} is after case.valuation_date = {valuation_date}: no \
+                 data later than the valuation date may be used"
+            ));
+        }
+    }
+    if let (Some(start), end) = (beta.window_start, beta.window_end_date(valuation_date)) {
+        if start.0 >= end {
+            return Err(format!(
+                "beta.window_start = {start} is not before the window end {end}"
+            ));
+        }
+    }
+    let lookback = beta.lookback_periods(valuation_date);
+    if lookback < beta.min_observations {
+        let given = match beta.window_start {
+            Some(start) => format!("beta.window_start = {start}"),
+            None => format!("beta.lookback = {}", beta.lookback),
+        };
         return Err(format!(
-            "beta.lookback = {} is shorter than beta.min_observations = {}: no peer could pass",
-            beta.lookback, beta.min_observations
+            "{given} gives {lookback} {:?} return periods, fewer than beta.min_observations = \
+             {}: no peer could pass",
+            beta.frequency, beta.min_observations
         ));
+    }
+    if let Some(0) = beta.max_stale_days {
+        if beta.frequency != Frequency::Daily {
+            return Err(
+                "beta.max_stale_days = 0 would drop every period whose sample is not dated on \
+                 its sample point; give at least 1"
+                    .into(),
+            );
+        }
+    }
+    validate_beta_options(beta, lookback)?;
+    let (window, min) = beta.rolling(lookback);
+    if window > lookback || window < 3 {
+        return Err(format!(
+            "beta.rolling_window = {window} must lie between 3 and the window's {lookback} periods"
+        ));
+    }
+    if min < 3 || min > window {
+        return Err(format!(
+            "beta.rolling_min_observations = {min} must lie between 3 and beta.rolling_window = \
+             {window}"
+        ));
+    }
+    if beta.rolling_step == 0 {
+        return Err("beta.rolling_step = 0: give at least 1 period".into());
+    }
+    for (key, value) in [
+        ("beta.flag_observations_share", beta.flag_observations_share),
+        ("beta.flag_r_squared_floor", beta.flag_r_squared_floor),
+        ("beta.flag_stale_share", beta.flag_stale_share),
+    ] {
+        if !(value.is_finite() && (0.0..=1.0).contains(&value)) {
+            return Err(format!("{key} = {value} is outside [0, 1]"));
+        }
     }
     let target = &case.target;
     validate_structure(case)?;
@@ -909,6 +1258,15 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
             rate(&key("debt_beta"), debt_beta, -1.0, 3.0)?;
         }
+        if peer.exclude.as_deref().is_some_and(|r| r.trim().is_empty()) {
+            return Err(format!(
+                "{} is empty: state the reason the peer is excluded",
+                key("exclude")
+            ));
+        }
+    }
+    if case.peers.iter().all(|p| p.exclude.is_some()) {
+        return Err("every [[peer]] has `exclude` set: no peer is left to aggregate".into());
     }
     Ok(())
 }

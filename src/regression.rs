@@ -8,6 +8,7 @@
 //! below max(n, k)·ε·max|Rᵢᵢ| means the columns are (numerically) dependent.
 
 use nalgebra::{DMatrix, DVector};
+use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
 use crate::stats;
@@ -30,6 +31,34 @@ pub struct OlsFit {
     pub observations: usize,
     pub degrees_of_freedom: usize,
     pub residuals: Vec<f64>,
+    /// (XᵀX)⁻¹, computed as D⁻¹R⁻¹R⁻ᵀD⁻¹ from the QR factor (never by inverting XᵀX); the
+    /// "bread" of the sandwich covariance estimators.
+    pub bread: DMatrix<f64>,
+    /// Leverages hᵢᵢ, the diagonal of the hat matrix X(XᵀX)⁻¹Xᵀ, as row sums of squares of the
+    /// thin Q factor.
+    pub leverages: Vec<f64>,
+}
+
+impl OlsFit {
+    /// Durbin–Watson statistic Σ(eₜ − eₜ₋₁)² / Σeₜ² of the residuals in observation order
+    /// (Durbin and Watson 1950, "Testing for serial correlation in least squares regression
+    /// I", Biometrika 37(3/4)); near 2 when they are serially uncorrelated.
+    pub fn durbin_watson(&self) -> f64 {
+        let e = &self.residuals;
+        let num: f64 = e.windows(2).map(|w| (w[1] - w[0]) * (w[1] - w[0])).sum();
+        num / e.iter().map(|v| v * v).sum::<f64>()
+    }
+
+    /// Internally studentised residuals eᵢ / (s·√(1 − hᵢᵢ)) (the textbook definition, e.g.
+    /// Cook and Weisberg 1982, "Residuals and influence in regression").
+    pub fn studentised_residuals(&self) -> Vec<f64> {
+        let s = self.residual_std_error;
+        self.residuals
+            .iter()
+            .zip(&self.leverages)
+            .map(|(e, h)| e / (s * (1.0 - h).sqrt()))
+            .collect()
+    }
 }
 
 impl OlsFit {
@@ -76,6 +105,8 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
             "regressor column {j} is a linear combination of the others (rank-deficient design)"
         )));
     }
+    let q = qr.q();
+    let leverages: Vec<f64> = q.row_iter().map(|row| row.norm_squared()).collect();
     let mut qty = y.clone();
     qr.q_tr_mul(&mut qty);
     let qty = qty.rows(0, k).into_owned();
@@ -94,9 +125,8 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
         .solve_upper_triangular(&DMatrix::identity(k, k))
         .ok_or_else(|| Error::Regression("the triangular factor is singular".into()))?;
     let unscaled = &r_inverse * r_inverse.transpose();
-    let covariance = DMatrix::from_fn(k, k, |i, j| {
-        sigma2 * unscaled[(i, j)] / (norms[i] * norms[j])
-    });
+    let bread = DMatrix::from_fn(k, k, |i, j| unscaled[(i, j)] / (norms[i] * norms[j]));
+    let covariance = &bread * sigma2;
     let std_errors: Vec<f64> = (0..k).map(|j| covariance[(j, j)].sqrt()).collect();
     let t_stats: Vec<f64> = (0..k).map(|j| coefficients[j] / std_errors[j]).collect();
     let p_values: Vec<f64> = t_stats
@@ -128,7 +158,101 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
         observations: n,
         degrees_of_freedom: df,
         residuals,
+        bread,
+        leverages,
     })
+}
+
+/// Which estimator of the coefficient covariance (and so of standard errors, t, p and CIs).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum StdErrors {
+    /// s²(XᵀX)⁻¹, valid for homoskedastic, serially uncorrelated errors.
+    Classical,
+    /// White's heteroskedasticity-consistent estimator with the n/(n − k) degrees-of-freedom
+    /// scaling (HC1): White (1980), "A heteroskedasticity-consistent covariance matrix estimator
+    /// and a direct test for heteroskedasticity", Econometrica 48(4); the HC1 name and scaling
+    /// follow MacKinnon and White (1985), J. Econometrics 29(3).
+    Hc1,
+    /// Newey and West (1987), "A simple, positive semi-definite, heteroskedasticity and
+    /// autocorrelation consistent covariance matrix", Econometrica 55(3): Bartlett weights
+    /// 1 − l/(L + 1) for lags l = 1..L, no small-sample scaling.
+    NeweyWest,
+}
+
+/// The Newey–West lag count when none is given: floor(4·(N/100)^(2/9)), the rule of Newey and
+/// West (1994), "Automatic lag selection in covariance matrix estimation", Rev. Econ. Studies
+/// 61(4) (their fixed-bandwidth rule for the Bartlett kernel).
+pub fn newey_west_default_lags(observations: usize) -> usize {
+    (4.0 * (observations as f64 / 100.0).powf(2.0 / 9.0)).floor() as usize
+}
+
+/// The covariance of the linear estimator `weights · y` (one row of `weights` per estimate, one
+/// column per observation) from the residuals `e` of a model with `parameters` coefficients:
+/// classical s²·AAᵀ with s² = Σe²/(n − k); HC1 n/(n − k)·A diag(e²) Aᵀ; Newey–West
+/// A Ω Aᵀ with Ω_ts = e_t e_s (1 − |t − s|/(L + 1)) for |t − s| ≤ L. For OLS, A = (XᵀX)⁻¹Xᵀ and
+/// these are the textbook sandwich estimators.
+pub fn linear_estimator_covariance(
+    weights: &DMatrix<f64>,
+    residuals: &[f64],
+    parameters: usize,
+    kind: StdErrors,
+    newey_west_lags: usize,
+) -> DMatrix<f64> {
+    let n = residuals.len();
+    let df = (n - parameters) as f64;
+    match kind {
+        StdErrors::Classical => {
+            let s2 = residuals.iter().map(|e| e * e).sum::<f64>() / df;
+            weights * weights.transpose() * s2
+        }
+        StdErrors::Hc1 => {
+            let scaled =
+                DMatrix::from_fn(weights.nrows(), n, |i, t| weights[(i, t)] * residuals[t]);
+            &scaled * scaled.transpose() * (n as f64 / df)
+        }
+        StdErrors::NeweyWest => {
+            // u_t = a_t·e_t per estimate; Ω-weighted sum of cross products, lag by lag.
+            let u = DMatrix::from_fn(weights.nrows(), n, |i, t| weights[(i, t)] * residuals[t]);
+            let mut meat = &u * u.transpose();
+            for lag in 1..=newey_west_lags.min(n.saturating_sub(1)) {
+                let w = 1.0 - lag as f64 / (newey_west_lags as f64 + 1.0);
+                let later = u.columns(lag, n - lag);
+                let earlier = u.columns(0, n - lag);
+                let cross = later * earlier.transpose();
+                meat += (&cross + cross.transpose()) * w;
+            }
+            meat
+        }
+    }
+}
+
+/// Replaces a fit's covariance, standard errors, t-statistics and p-values by those of the
+/// chosen estimator. `design` must be the matrix the fit was computed from.
+pub fn with_std_errors(
+    mut fit: OlsFit,
+    design: &DMatrix<f64>,
+    kind: StdErrors,
+    newey_west_lags: usize,
+) -> OlsFit {
+    if kind == StdErrors::Classical {
+        return fit;
+    }
+    let k = fit.coefficients.len();
+    let weights = &fit.bread * design.transpose();
+    fit.covariance =
+        linear_estimator_covariance(&weights, &fit.residuals, k, kind, newey_west_lags);
+    fit.std_errors = (0..k).map(|j| fit.covariance[(j, j)].sqrt()).collect();
+    fit.t_stats = (0..k)
+        .map(|j| fit.coefficients[j] / fit.std_errors[j])
+        .collect();
+    let df = fit.degrees_of_freedom as f64;
+    fit.p_values = fit
+        .t_stats
+        .iter()
+        .map(|&t| stats::student_t_two_sided_p(t, df))
+        .collect();
+    fit
 }
 
 /// The design matrix [1, x₁, …, x_m] for regressor columns given as slices of equal length.
@@ -173,5 +297,53 @@ mod tests {
         assert!(close(fit.std_errors[1], (0.8_f64 / 10.0).sqrt()));
         assert!(close(fit.r_squared, 0.6));
         assert_eq!(fit.degrees_of_freedom, 3);
+    }
+
+    // Newey and West (1994) rule floor(4·(N/100)^(2/9)), worked by hand: N = 60 gives
+    // 4·0.6^(0.2222) = 4·0.8927 = 3.57 → 3; N = 100 gives 4; N = 250 gives 4·1.2258 = 4.90 → 4;
+    // N = 1000 gives 4·1.6681 = 6.67 → 6.
+    #[test]
+    fn newey_west_lag_rule() {
+        assert_eq!(newey_west_default_lags(60), 3);
+        assert_eq!(newey_west_default_lags(100), 4);
+        assert_eq!(newey_west_default_lags(250), 4);
+        assert_eq!(newey_west_default_lags(1000), 6);
+    }
+
+    // Intercept-only model y = μ + e with y = 1, −1, 2, −2 (ȳ = 0, e = y), hand-worked:
+    // A = (1/n)·1ᵀ. Classical: s²/n = (10/3)/4 = 5/6. HC1: n/(n − 1)·Σe²/n² = 4/3·10/16 = 5/6
+    // (the textbook identity that HC1 equals classical for the mean). Newey–West with L = 1:
+    // (Σe² + 2·½·Σe_t e_{t−1})/n² = (10 + (−1 − 2 − 4))/16 = 3/16.
+    #[test]
+    fn sandwich_estimators_match_the_hand_computation() {
+        let e = [1.0, -1.0, 2.0, -2.0];
+        let a = DMatrix::from_element(1, 4, 0.25);
+        let classical = linear_estimator_covariance(&a, &e, 1, StdErrors::Classical, 0);
+        let hc1 = linear_estimator_covariance(&a, &e, 1, StdErrors::Hc1, 0);
+        let nw = linear_estimator_covariance(&a, &e, 1, StdErrors::NeweyWest, 1);
+        // 1e-15: sums of a few small integers scaled by powers of two and 1/3.
+        assert!((classical[(0, 0)] - 5.0 / 6.0).abs() < 1e-15);
+        assert!((hc1[(0, 0)] - 5.0 / 6.0).abs() < 1e-15);
+        assert!((nw[(0, 0)] - 3.0 / 16.0).abs() < 1e-15);
+        // With L = 0 Newey–West is White's HC0 = Σe²/n² = 10/16.
+        let hc0 = linear_estimator_covariance(&a, &e, 1, StdErrors::NeweyWest, 0);
+        assert!((hc0[(0, 0)] - 10.0 / 16.0).abs() < 1e-15);
+    }
+
+    // The hand-worked example above: residuals −0.8, 0.6, 1.0, −0.6, −0.2 have successive
+    // differences 1.4, 0.4, −1.6, 0.4, so DW = (1.96 + 0.16 + 2.56 + 0.16)/2.4 = 4.84/2.4.
+    // Leverage of x = 1: 1/n + (x − x̄)²/Sxx = 0.2 + 4/10 = 0.6, so its studentised residual is
+    // −0.8/(√0.8·√0.4) = −√2.
+    #[test]
+    fn durbin_watson_and_studentised_residuals_by_hand() {
+        let x = [1.0, 2.0, 3.0, 4.0, 5.0];
+        let y = [2.0, 4.0, 5.0, 4.0, 5.0];
+        let fit = ols(&design_with_intercept(&[&x]), &y, true).unwrap();
+        // 1e-14: sums of five small numbers, QR rounding.
+        assert!((fit.durbin_watson() - 4.84 / 2.4).abs() < 1e-14);
+        assert!((fit.leverages[0] - 0.6).abs() < 1e-14);
+        assert!((fit.studentised_residuals()[0] + 2.0_f64.sqrt()).abs() < 1e-14);
+        // The leverages sum to k = 2 (trace of the hat matrix, a textbook identity).
+        assert!((fit.leverages.iter().sum::<f64>() - 2.0).abs() < 1e-14);
     }
 }

@@ -7,7 +7,7 @@
 //! both of its ends. The asset, the index and the risk-free series are aligned on the periods
 //! where all of them have a value, and each dropped period is counted by reason.
 
-use chrono::{Datelike, NaiveDate};
+use chrono::{Datelike, NaiveDate, Weekday};
 use serde::{Deserialize, Serialize};
 
 use crate::data::SeriesView;
@@ -16,15 +16,236 @@ use crate::data::SeriesView;
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Frequency {
+    /// Every weekday (Monday to Friday).
+    Daily,
+    /// One chosen weekday each week (`beta.weekday`, default Wednesday).
+    Weekly,
     /// Calendar month-ends.
     Monthly,
+    /// Calendar quarter-ends (March 31, June 30, September 30, December 31).
+    Quarterly,
 }
 
 impl Frequency {
+    /// Periods per year for the risk-free conversion: 252 trading days (common practice), 52
+    /// weeks, 12 months, 4 quarters.
     pub fn periods_per_year(self) -> f64 {
         match self {
+            Frequency::Daily => 252.0,
+            Frequency::Weekly => 52.0,
             Frequency::Monthly => 12.0,
+            Frequency::Quarterly => 4.0,
         }
+    }
+}
+
+/// The weekday of weekly sampling.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum SampleWeekday {
+    Monday,
+    Tuesday,
+    Wednesday,
+    Thursday,
+    Friday,
+}
+
+impl SampleWeekday {
+    fn chrono(self) -> Weekday {
+        match self {
+            SampleWeekday::Monday => Weekday::Mon,
+            SampleWeekday::Tuesday => Weekday::Tue,
+            SampleWeekday::Wednesday => Weekday::Wed,
+            SampleWeekday::Thursday => Weekday::Thu,
+            SampleWeekday::Friday => Weekday::Fri,
+        }
+    }
+}
+
+/// Simple or continuously compounded (log) returns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum ReturnType {
+    /// p(t)/p(t − 1) − 1.
+    Simple,
+    /// ln(p(t)/p(t − 1)).
+    Log,
+}
+
+/// The sampling rule of a frequency, in words (README "Sampling", the memo).
+pub fn rule_text(frequency: Frequency) -> &'static str {
+    match frequency {
+        Frequency::Daily => {
+            "daily: one sample per weekday (Monday to Friday), the last price dated after the \
+             previous weekday and on or before this one (a Monday sample may be a weekend \
+             price); a weekday without a price (a holiday) is missing, so the returns into and \
+             out of it are dropped"
+        }
+        Frequency::Weekly => {
+            "weekly: one sample per week on the chosen weekday, the last price dated after the \
+             previous week's weekday and on or before this one (a holiday on the weekday takes \
+             the last earlier price of the same week); a week without a price is missing"
+        }
+        Frequency::Monthly => {
+            "monthly: one sample per calendar month, the last price dated inside the month; a \
+             month without a price is missing"
+        }
+        Frequency::Quarterly => {
+            "quarterly: one sample per calendar quarter (ending March 31, June 30, September \
+             30, December 31), the last price dated inside the quarter; a quarter without a \
+             price is missing"
+        }
+    }
+}
+
+/// The last sample point of `frequency` on or before `date`.
+pub fn last_point_on_or_before(
+    frequency: Frequency,
+    weekday: SampleWeekday,
+    date: NaiveDate,
+) -> NaiveDate {
+    match frequency {
+        Frequency::Daily => {
+            let mut d = date;
+            while matches!(d.weekday(), Weekday::Sat | Weekday::Sun) {
+                d = d.pred_opt().expect("dates stay inside chrono's range");
+            }
+            d
+        }
+        Frequency::Weekly => {
+            let back = (7 + date.weekday().num_days_from_monday()
+                - weekday.chrono().num_days_from_monday())
+                % 7;
+            date - chrono::Days::new(u64::from(back))
+        }
+        Frequency::Monthly => last_month_end_on_or_before(date),
+        Frequency::Quarterly => {
+            let mut end = last_month_end_on_or_before(date);
+            while end.month() % 3 != 0 {
+                end = last_month_end_on_or_before(end.with_day(1).expect("day 1 exists"));
+            }
+            end
+        }
+    }
+}
+
+/// The sample point before `point` (itself a sample point).
+fn previous_point(frequency: Frequency, weekday: SampleWeekday, point: NaiveDate) -> NaiveDate {
+    let day_before = point.pred_opt().expect("dates stay inside chrono's range");
+    match frequency {
+        Frequency::Weekly => point - chrono::Days::new(7),
+        _ => last_point_on_or_before(frequency, weekday, day_before),
+    }
+}
+
+impl PeriodGrid {
+    /// As [`PeriodGrid::ending_at`], for any frequency and weekday: `lookback` returns ending at
+    /// the last sample point on or before `as_of`.
+    pub fn ending_at_with(
+        frequency: Frequency,
+        weekday: SampleWeekday,
+        as_of: NaiveDate,
+        lookback: u32,
+    ) -> PeriodGrid {
+        let mut boundaries = Vec::with_capacity(lookback as usize + 2);
+        let mut point = last_point_on_or_before(frequency, weekday, as_of);
+        boundaries.push(point);
+        for _ in 0..=lookback {
+            point = previous_point(frequency, weekday, point);
+            boundaries.push(point);
+        }
+        boundaries.reverse();
+        PeriodGrid {
+            frequency,
+            boundaries,
+        }
+    }
+}
+
+/// The number of return periods whose both ends lie in [`start`, the last sample point on or
+/// before `end`]: the sample points from the first one on or after `start` to the last one.
+pub fn periods_between(
+    frequency: Frequency,
+    weekday: SampleWeekday,
+    start: NaiveDate,
+    end: NaiveDate,
+) -> u32 {
+    let mut point = last_point_on_or_before(frequency, weekday, end);
+    let mut count = 0;
+    loop {
+        let before = previous_point(frequency, weekday, point);
+        if before < start {
+            return count;
+        }
+        count += 1;
+        point = before;
+    }
+}
+
+/// Returns between consecutive samples of the chosen type; `None` where either is missing.
+pub fn period_returns(samples: &[Option<f64>], return_type: ReturnType) -> Vec<Option<f64>> {
+    match return_type {
+        ReturnType::Simple => simple_returns(samples),
+        ReturnType::Log => returns_by(samples, |previous, current| (current / previous).ln()),
+    }
+}
+
+/// As [`sample`] (one pass, O(rows + periods)), but a sample whose last price is dated more than `max_stale_days` calendar
+/// days before its sample point is stale: it is `None`, and its flag in the second vector is set.
+pub fn sample_with_staleness(
+    grid: &PeriodGrid,
+    series: SeriesView<'_>,
+    max_stale_days: Option<u32>,
+) -> (Vec<Option<f64>>, Vec<bool>) {
+    let mut samples = Vec::with_capacity(grid.boundaries.len() - 1);
+    let mut stale = Vec::with_capacity(grid.boundaries.len() - 1);
+    let mut i = 0;
+    let dates = series.dates;
+    while i < dates.len() && dates[i] <= grid.boundaries[0] {
+        i += 1;
+    }
+    for &end in grid.sample_points() {
+        let mut last = None;
+        while i < dates.len() && dates[i] <= end {
+            last = Some((dates[i], series.values[i]));
+            i += 1;
+        }
+        let too_old = |date: NaiveDate| {
+            max_stale_days.is_some_and(|limit| (end - date).num_days() > i64::from(limit))
+        };
+        match last {
+            Some((date, _)) if too_old(date) => {
+                samples.push(None);
+                stale.push(true);
+            }
+            other => {
+                samples.push(other.map(|(_, v)| v));
+                stale.push(false);
+            }
+        }
+    }
+    (samples, stale)
+}
+
+/// Per return period: whether either of its two samples was stale.
+pub fn stale_returns(stale_samples: &[bool]) -> Vec<bool> {
+    stale_samples.windows(2).map(|p| p[0] || p[1]).collect()
+}
+
+/// The risk-free rate of each return period for the return type: for simple returns
+/// [`risk_free_per_period`]; for log returns the continuously compounded ln(1 + y)/periods per
+/// year, of the yield at the period's start.
+pub fn risk_free_for_returns(
+    samples: &[Option<f64>],
+    frequency: Frequency,
+    return_type: ReturnType,
+) -> Vec<Option<f64>> {
+    match return_type {
+        ReturnType::Simple => risk_free_per_period(samples, frequency),
+        ReturnType::Log => samples[..samples.len().saturating_sub(1)]
+            .iter()
+            .map(|y| y.map(|y| (1.0 + y).ln() / frequency.periods_per_year()))
+            .collect(),
     }
 }
 
@@ -65,6 +286,9 @@ impl PeriodGrid {
     /// `lookback + 1` sample points, plus one earlier boundary that opens the first period.
     pub fn ending_at(frequency: Frequency, as_of: NaiveDate, lookback: u32) -> PeriodGrid {
         match frequency {
+            Frequency::Daily | Frequency::Weekly | Frequency::Quarterly => {
+                PeriodGrid::ending_at_with(frequency, SampleWeekday::Wednesday, as_of, lookback)
+            }
             Frequency::Monthly => {
                 let mut boundaries = Vec::with_capacity(lookback as usize + 2);
                 let mut end = last_month_end_on_or_before(as_of);
@@ -96,30 +320,20 @@ impl PeriodGrid {
 /// For each sample point, the last value dated inside its period, or `None`.
 /// One pass over the series: O(rows + periods).
 pub fn sample(grid: &PeriodGrid, series: SeriesView<'_>) -> Vec<Option<f64>> {
-    let mut samples = Vec::with_capacity(grid.boundaries.len() - 1);
-    let mut i = 0;
-    let dates = series.dates;
-    // Skip everything on or before the first boundary: it belongs to no period of the grid.
-    while i < dates.len() && dates[i] <= grid.boundaries[0] {
-        i += 1;
-    }
-    for &end in grid.sample_points() {
-        let mut last = None;
-        while i < dates.len() && dates[i] <= end {
-            last = Some(series.values[i]);
-            i += 1;
-        }
-        samples.push(last);
-    }
-    samples
+    sample_with_staleness(grid, series, None).0
 }
 
 /// Simple returns p_t / p_{t−1} − 1 between consecutive samples; `None` where either is missing.
 pub fn simple_returns(samples: &[Option<f64>]) -> Vec<Option<f64>> {
+    returns_by(samples, |previous, current| current / previous - 1.0)
+}
+
+/// Applies `f(previous, current)` to each pair of consecutive samples present.
+fn returns_by(samples: &[Option<f64>], f: impl Fn(f64, f64) -> f64) -> Vec<Option<f64>> {
     samples
         .windows(2)
         .map(|pair| match (pair[0], pair[1]) {
-            (Some(previous), Some(current)) => Some(current / previous - 1.0),
+            (Some(previous), Some(current)) => Some(f(previous, current)),
             _ => None,
         })
         .collect()
@@ -149,6 +363,23 @@ pub struct DroppedPeriods {
     pub asset_missing: usize,
     pub market_missing: usize,
     pub risk_free_missing: usize,
+    /// The peer's price at either end of the period was older than `beta.max_stale_days`
+    /// (these periods are also counted in `asset_missing`).
+    pub asset_stale: usize,
+    /// The same for the index (also counted in `market_missing`).
+    pub market_stale: usize,
+    /// A lagged or led market return that a Dimson or Scholes–Williams regression needs is
+    /// missing (its period has no index or risk-free value, or a lead would fall after the
+    /// window end: later data are never used).
+    pub shifted_market_missing: usize,
+}
+
+/// The market's (excess) return `offset` periods from each aligned period: −1 is the previous
+/// period (a lag), +1 the next (a lead).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ShiftedMarket {
+    pub offset: i32,
+    pub returns: Vec<f64>,
 }
 
 /// Returns of one asset and the market on the periods where every series has a value.
@@ -160,6 +391,8 @@ pub struct AlignedReturns {
     /// Per-period risk-free rate when excess returns are used.
     pub risk_free: Option<Vec<f64>>,
     pub dropped: DroppedPeriods,
+    /// Lagged and led market excess returns, one entry per requested offset (empty for OLS).
+    pub market_shifted: Vec<ShiftedMarket>,
 }
 
 impl AlignedReturns {
@@ -189,23 +422,75 @@ pub fn align(
     market: &[Option<f64>],
     risk_free: Option<&[Option<f64>]>,
 ) -> AlignedReturns {
+    align_with_shifts(period_ends, asset, market, risk_free, &[], 0)
+}
+
+/// As [`align`], over the periods from index `first` on, additionally requiring the market's
+/// excess return at each of `offsets` (−l a lag, +l a lead) relative to the period. The slices
+/// may start before `first` so that the first window periods have their lags; a shift outside
+/// the slices (a lead after the window end) counts as missing.
+pub fn align_with_shifts(
+    period_ends: &[NaiveDate],
+    asset: &[Option<f64>],
+    market: &[Option<f64>],
+    risk_free: Option<&[Option<f64>]>,
+    offsets: &[i32],
+    first: usize,
+) -> AlignedReturns {
+    let capacity = period_ends.len().saturating_sub(first);
     let mut aligned = AlignedReturns {
-        period_ends: Vec::with_capacity(period_ends.len()),
-        asset: Vec::with_capacity(period_ends.len()),
-        market: Vec::with_capacity(period_ends.len()),
-        risk_free: risk_free.map(|_| Vec::with_capacity(period_ends.len())),
+        period_ends: Vec::with_capacity(capacity),
+        asset: Vec::with_capacity(capacity),
+        market: Vec::with_capacity(capacity),
+        risk_free: risk_free.map(|_| Vec::with_capacity(capacity)),
         dropped: DroppedPeriods::default(),
+        market_shifted: offsets
+            .iter()
+            .map(|&offset| ShiftedMarket {
+                offset,
+                returns: Vec::with_capacity(capacity),
+            })
+            .collect(),
     };
-    for (j, &end) in period_ends.iter().enumerate() {
+    let market_excess_at = |j: usize| -> Option<f64> {
+        let m = market[j]?;
+        match risk_free {
+            Some(rf) => rf[j].map(|f| m - f),
+            None => Some(m),
+        }
+    };
+    for (j, &end) in period_ends.iter().enumerate().skip(first) {
         let rf = risk_free.map(|rf| rf[j]);
+        let shifted: Option<Vec<f64>> = offsets
+            .iter()
+            .map(|&o| {
+                let at = j as i64 + i64::from(o);
+                if at < 0 || at >= period_ends.len() as i64 {
+                    None
+                } else {
+                    market_excess_at(at as usize)
+                }
+            })
+            .collect();
         let dropped = &mut aligned.dropped;
         dropped.asset_missing += usize::from(asset[j].is_none());
         dropped.market_missing += usize::from(market[j].is_none());
         dropped.risk_free_missing += usize::from(matches!(rf, Some(None)));
+        dropped.shifted_market_missing += usize::from(shifted.is_none());
+        let Some(shifted) = shifted else {
+            aligned.dropped.total += 1;
+            continue;
+        };
         match (asset[j], market[j], rf) {
             (Some(a), Some(m), None) => aligned.push(end, a, m, None),
             (Some(a), Some(m), Some(Some(f))) => aligned.push(end, a, m, Some(f)),
-            _ => aligned.dropped.total += 1,
+            _ => {
+                aligned.dropped.total += 1;
+                continue;
+            }
+        }
+        for (series, value) in aligned.market_shifted.iter_mut().zip(shifted) {
+            series.returns.push(value);
         }
     }
     aligned
@@ -329,9 +614,230 @@ mod tests {
                 total: 2,
                 asset_missing: 1,
                 market_missing: 1,
-                risk_free_missing: 1
+                risk_free_missing: 1,
+                ..DroppedPeriods::default()
             }
         );
         assert_eq!(aligned.asset_excess(), vec![0.01 - 0.001]);
+    }
+
+    // Shifts by hand: four periods, the window starts at period 1 (one lag before it), the
+    // market has no value in period 2, and a lead of the last period would lie after the
+    // window, so it is never available. Lag column of period 1 is market[0] = 0.01.
+    #[test]
+    fn shifted_market_columns_come_from_neighbouring_periods() {
+        let ends: Vec<NaiveDate> = ["2026-06-30", "2026-07-31", "2026-08-31", "2026-09-30"]
+            .iter()
+            .map(|d| date(d))
+            .collect();
+        let asset = [Some(0.5), Some(0.1), Some(0.2), Some(0.3)];
+        let market = [Some(0.01), Some(0.02), None, Some(0.04)];
+        let lagged = align_with_shifts(&ends, &asset, &market, None, &[-1], 1);
+        // Period 1: lag = 0.01. Period 2: market missing. Period 3: its lag (period 2) missing.
+        assert_eq!(lagged.period_ends, vec![ends[1]]);
+        assert_eq!(lagged.market_shifted[0].returns, vec![0.01]);
+        assert_eq!(lagged.dropped.total, 2);
+        assert_eq!(lagged.dropped.market_missing, 1);
+        assert_eq!(lagged.dropped.shifted_market_missing, 1);
+        let led = align_with_shifts(&ends, &asset, &market, None, &[1], 0);
+        // Period 0 leads to 0.02; period 1's lead (period 2) is missing; period 2's lead exists
+        // but its own market value does not; period 3 has no later period.
+        assert_eq!(led.period_ends, vec![ends[0]]);
+        assert_eq!(led.market_shifted[0].returns, vec![0.02]);
+        assert_eq!(led.dropped.shifted_market_missing, 2);
+        assert_eq!(led.dropped.total, 3);
+    }
+
+    fn dates(list: &[&str]) -> Vec<NaiveDate> {
+        list.iter().map(|d| date(d)).collect()
+    }
+
+    // A hand-built weekly calendar (weekdays from the Gregorian calendar: 2026-09-30 is a
+    // Wednesday). Weeks end on Wednesdays Sep 2, 9, 16, 23, 30; Aug 26 opens the first period.
+    // - Sep 9 (Wednesday) is a holiday: the week's sample is Tuesday Sep 8's price.
+    // - The week ending Sep 16 has no trade at all (a missing week): its sample is missing, and
+    //   it is not filled from Sep 8.
+    // - Sep 30's sample is that day's own price; a Thursday Oct 1 price is ignored.
+    #[test]
+    fn weekly_samples_take_the_last_price_on_or_before_the_weekday() {
+        let grid = PeriodGrid::ending_at_with(
+            Frequency::Weekly,
+            SampleWeekday::Wednesday,
+            date("2026-10-02"),
+            4,
+        );
+        assert_eq!(
+            grid.boundaries,
+            dates(&[
+                "2026-08-26",
+                "2026-09-02",
+                "2026-09-09",
+                "2026-09-16",
+                "2026-09-23",
+                "2026-09-30"
+            ])
+        );
+        let d = dates(&[
+            "2026-08-31",
+            "2026-09-02",
+            "2026-09-08",
+            "2026-09-21",
+            "2026-09-23",
+            "2026-09-30",
+            "2026-10-01",
+        ]);
+        let v = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0];
+        let view = SeriesView {
+            dates: &d,
+            values: &v,
+        };
+        let (samples, stale) = sample_with_staleness(&grid, view, None);
+        assert_eq!(
+            samples,
+            vec![Some(2.0), Some(3.0), None, Some(5.0), Some(6.0)]
+        );
+        assert_eq!(stale, vec![false; 5]);
+        // With a one-day staleness limit the holiday week's Tuesday price (1 day old) is kept;
+        // with zero days it is stale: dropped and flagged, as are the returns on either side.
+        let (_, stale) = sample_with_staleness(&grid, view, Some(1));
+        assert_eq!(stale, vec![false; 5]);
+        let (samples, stale) = sample_with_staleness(&grid, view, Some(0));
+        assert_eq!(samples[1], None);
+        assert_eq!(stale, vec![false, true, false, false, false]);
+        assert_eq!(stale_returns(&stale), vec![true, true, false, false]);
+        // Thursday sampling of the same data: the weekday is configurable.
+        let thursday = PeriodGrid::ending_at_with(
+            Frequency::Weekly,
+            SampleWeekday::Thursday,
+            date("2026-10-02"),
+            1,
+        );
+        assert_eq!(
+            thursday.sample_points(),
+            &dates(&["2026-09-24", "2026-10-01"])[..]
+        );
+    }
+
+    // Daily: weekdays only. Mon Sep 7 2026 is a holiday in this invented calendar: it is missing,
+    // so the returns ending Sep 7 and Sep 8 are both dropped, never filled. A Saturday price
+    // belongs to the following Monday's period.
+    #[test]
+    fn daily_samples_skip_weekends_and_leave_holidays_missing() {
+        let grid = PeriodGrid::ending_at_with(
+            Frequency::Daily,
+            SampleWeekday::Wednesday,
+            date("2026-09-13"), // a Sunday: the last weekday is Friday Sep 11
+            5,
+        );
+        assert_eq!(
+            grid.sample_points(),
+            &dates(&[
+                "2026-09-04",
+                "2026-09-07",
+                "2026-09-08",
+                "2026-09-09",
+                "2026-09-10",
+                "2026-09-11"
+            ])[..]
+        );
+        let d = dates(&[
+            "2026-09-04",
+            "2026-09-08",
+            "2026-09-09",
+            "2026-09-10",
+            "2026-09-11",
+        ]);
+        let v = [10.0, 11.0, 12.0, 12.0, 13.0];
+        let (samples, _) = sample_with_staleness(
+            &grid,
+            SeriesView {
+                dates: &d,
+                values: &v,
+            },
+            None,
+        );
+        let returns = period_returns(&samples, ReturnType::Simple);
+        assert_eq!(returns[0], None);
+        assert_eq!(returns[1], None);
+        assert_eq!(returns[2], Some(12.0 / 11.0 - 1.0));
+        // Log returns: ln(13/12) for the last day.
+        let logs = period_returns(&samples, ReturnType::Log);
+        assert_eq!(logs[4], Some((13.0_f64 / 12.0).ln()));
+        // A weekend price (Saturday Sep 5) is Monday's sample, being the last price after Friday.
+        let d = dates(&["2026-09-04", "2026-09-05"]);
+        let v = [10.0, 10.5];
+        let (samples, _) = sample_with_staleness(
+            &grid,
+            SeriesView {
+                dates: &d,
+                values: &v,
+            },
+            None,
+        );
+        assert_eq!(samples[..2], [Some(10.0), Some(10.5)]);
+    }
+
+    // Quarter-ends from the calendar; "5y" of quarters ending 2026-09-30 holds 20 returns
+    // (2021-09-30 to 2026-09-30: 21 quarter-ends); "104w" of Wednesdays ending on the Wednesday
+    // 2026-09-30 starts 728 days earlier on a Wednesday, so 104 returns; "250d" of weekdays.
+    #[test]
+    fn quarterly_grid_and_span_counts() {
+        assert_eq!(
+            last_point_on_or_before(
+                Frequency::Quarterly,
+                SampleWeekday::Wednesday,
+                date("2026-08-15")
+            ),
+            date("2026-06-30")
+        );
+        let grid = PeriodGrid::ending_at_with(
+            Frequency::Quarterly,
+            SampleWeekday::Wednesday,
+            date("2026-09-30"),
+            2,
+        );
+        assert_eq!(
+            grid.boundaries,
+            dates(&["2025-12-31", "2026-03-31", "2026-06-30", "2026-09-30"])
+        );
+        let w = SampleWeekday::Wednesday;
+        let end = date("2026-09-30");
+        assert_eq!(
+            periods_between(Frequency::Quarterly, w, date("2021-09-30"), end),
+            20
+        );
+        assert_eq!(
+            periods_between(Frequency::Weekly, w, date("2024-10-02"), end),
+            104
+        );
+        assert_eq!(
+            periods_between(Frequency::Monthly, w, date("2021-09-30"), end),
+            60
+        );
+        // 250 calendar days before Wed 2026-09-30 is Fri 2026-01-23 (calendar arithmetic). The
+        // sample points are the weekdays from then to Sep 30, counted here by walking the
+        // calendar independently of the grid code; the returns are one fewer.
+        let start = date("2026-01-23");
+        let weekdays = (0..=(end - start).num_days())
+            .map(|k| start + chrono::Days::new(k as u64))
+            .filter(|d| !matches!(d.weekday(), Weekday::Sat | Weekday::Sun))
+            .count() as u32;
+        assert_eq!(
+            periods_between(Frequency::Daily, w, start, end),
+            weekdays - 1
+        );
+    }
+
+    // ln(1 + y)/periods per year is the continuously compounded rate whose e-power over a year
+    // gives 1 + y (textbook identity): exp(12 · r) = 1.05.
+    #[test]
+    fn log_risk_free_is_continuously_compounded() {
+        let rf = risk_free_for_returns(
+            &[Some(0.05), Some(0.05)],
+            Frequency::Monthly,
+            ReturnType::Log,
+        );
+        // 1e-15: one log, one exp of numbers near 1.
+        assert!(((12.0 * rf[0].unwrap()).exp() - 1.05).abs() < 1e-15);
     }
 }

@@ -133,6 +133,12 @@ pub struct SamplingRecord {
     pub return_type: &'static str,
     pub excess_returns: bool,
     pub risk_free_convention: &'static str,
+    /// The weekday of weekly sampling (`null` for other frequencies).
+    pub weekday: Option<sampling::SampleWeekday>,
+    /// The staleness limit in calendar days (`null`: none beyond the period rule).
+    pub max_stale_days: Option<u32>,
+    /// The sampling rule of the frequency, in words.
+    pub sampling_rule: &'static str,
 }
 
 /// One peer's estimate through unlevering.
@@ -164,6 +170,16 @@ pub struct PeerResult {
     pub cash_corrected_unlevered_beta: f64,
     /// cash / (equity + debt), gross debt: the share of capital the cash correction removes.
     pub cash_share_of_capital: f64,
+    /// Why the peer is left out of the aggregation, or `null` when it is included.
+    pub excluded_reason: Option<String>,
+    /// The Vasicek-shrunk beta beside the raw one (`null` unless `beta.adjustment = "vasicek"`).
+    pub vasicek: Option<beta::vasicek::Shrunk>,
+    /// Share of the window's periods dropped because the peer's price was stale.
+    pub stale_share: f64,
+    /// Diagnostic warnings (see README, "Diagnostics").
+    pub flags: Vec<crate::case::PeerFlag>,
+    /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
+    pub stability: Option<crate::rolling::Stability>,
 }
 
 /// Aggregation and relevering.
@@ -190,6 +206,10 @@ pub struct BetaSummary {
     pub unlevered_statistics: stats::Locations,
     /// Gross debt or net of cash in every D/E.
     pub debt_measure: crate::case::DebtMeasure,
+    /// The prior of the Vasicek adjustment (`null` unless it is used).
+    pub vasicek_prior: Option<beta::vasicek::Prior>,
+    /// How many peers enter the aggregation (those without an exclusion reason).
+    pub peers_included: usize,
 }
 
 /// The target capital structure, both ratios, whichever was given.
@@ -243,6 +263,8 @@ pub struct Valuation {
     pub settings: CaseFile,
     pub files: Vec<DataFile>,
     pub sampling: SamplingRecord,
+    /// The beta estimator and standard errors, in words with their sources.
+    pub estimator: beta::EstimatorRecord,
     pub peers: Vec<PeerResult>,
     /// Aggregation, relevering and the cost of capital (written at the top level of the JSON).
     #[serde(flatten)]
@@ -258,6 +280,9 @@ pub struct Valuation {
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
     #[serde(skip)]
     pub returns: Vec<AlignedReturns>,
+    /// Each peer's rolling betas, in peer order (written to `rolling.csv`, not to JSON).
+    #[serde(skip)]
+    pub rolling: Vec<Vec<crate::rolling::RollingPoint>>,
 }
 
 /// Everything after the peer regressions: aggregation, relevering, CAPM, cost of debt, WACC.
@@ -289,11 +314,88 @@ pub struct CostOfCapital {
     pub currency_conversion: Option<CurrencyConversion>,
 }
 
-/// The adjusted beta (`None` without an adjustment) and the beta used for a raw estimate: the
-/// one place the adjustment is applied, for the estimates and each Monte Carlo draw alike.
-pub fn betas_used(settings: &CaseFile, raw_beta: f64) -> (Option<f64>, f64) {
-    let adjusted = beta::adjust(settings.beta.adjustment, raw_beta);
-    (adjusted, adjusted.unwrap_or(raw_beta))
+/// Applies the case's `beta.adjustment` to every peer's raw beta, setting `adjusted_beta`,
+/// `beta_used` and `vasicek`: Blume peer by peer, Vasicek against a prior from the whole
+/// cross-section (or the stated one). The one place the adjustment is applied, for the
+/// estimates and each Monte Carlo draw alike; returns the Vasicek prior when one is used.
+pub fn apply_adjustment(
+    settings: &CaseFile,
+    peers: &mut [PeerResult],
+) -> Result<Option<beta::vasicek::Prior>> {
+    let beta_settings = &settings.beta;
+    if beta_settings.adjustment != crate::case::Adjustment::Vasicek {
+        for peer in peers.iter_mut() {
+            let raw = peer.estimate.beta;
+            peer.adjusted_beta = beta::adjust(beta_settings.adjustment, raw);
+            peer.beta_used = peer.adjusted_beta.unwrap_or(raw);
+            peer.vasicek = None;
+        }
+        return Ok(None);
+    }
+    let prior = vasicek_prior(beta_settings, peers).map_err(|message| Error::Estimation {
+        peer: "(all peers)".into(),
+        message,
+    })?;
+    for peer in peers.iter_mut() {
+        let shrunk =
+            beta::vasicek::shrink(peer.estimate.beta, peer.estimate.beta_std_error, &prior);
+        peer.adjusted_beta = Some(shrunk.beta);
+        peer.beta_used = shrunk.beta;
+        peer.vasicek = Some(shrunk);
+    }
+    Ok(Some(prior))
+}
+
+/// The diagnostic flags of one peer's estimate against the case's thresholds.
+fn peer_flags(
+    settings: &crate::case::BetaSettings,
+    estimate: &BetaEstimate,
+    periods_in_window: usize,
+    stale_share: f64,
+) -> Vec<crate::case::PeerFlag> {
+    use crate::case::PeerFlag;
+    let mut flags = Vec::new();
+    if (estimate.observations as f64) < settings.flag_observations_share * periods_in_window as f64
+    {
+        flags.push(PeerFlag::TooFewObservations);
+    }
+    if estimate.r_squared < settings.flag_r_squared_floor {
+        flags.push(PeerFlag::LowRSquared);
+    }
+    if stale_share > settings.flag_stale_share {
+        flags.push(PeerFlag::StalePrices);
+    }
+    flags
+}
+
+/// The Vasicek prior: the case's stated mean and variance, else the cross-section of the raw
+/// betas of the peers that enter the aggregation.
+fn vasicek_prior(
+    settings: &crate::case::BetaSettings,
+    peers: &[PeerResult],
+) -> std::result::Result<beta::vasicek::Prior, String> {
+    if let (Some(mean), Some(variance)) =
+        (settings.vasicek_prior_mean, settings.vasicek_prior_variance)
+    {
+        return Ok(beta::vasicek::Prior {
+            mean,
+            variance,
+            source: "stated",
+        });
+    }
+    let raw: Vec<f64> = peers
+        .iter()
+        .filter(|p| p.excluded_reason.is_none())
+        .map(|p| p.estimate.beta)
+        .collect();
+    beta::vasicek::cross_sectional_prior(&raw).ok_or_else(|| {
+        format!(
+            "beta.adjustment = \"vasicek\" needs at least two included peers with different \
+             betas for a cross-sectional prior ({} included); state beta.vasicek_prior_mean \
+             and beta.vasicek_prior_variance instead",
+            raw.len()
+        )
+    })
 }
 
 /// Computes the valuation. `generated_at` is stamped into the result as given.
@@ -307,18 +409,39 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
     let settings = &case.settings;
     let beta_settings = &settings.beta;
     let valuation_date = settings.case.valuation_date.0;
-    let grid = PeriodGrid::ending_at(
+    // Lagged market returns need periods before the window: the grid starts `lags` earlier.
+    let (lags, leads) = beta_settings.market_lags_and_leads();
+    let offsets: Vec<i32> = (1..=lags as i32)
+        .map(|l| -l)
+        .chain(1..=leads as i32)
+        .collect();
+    let lookback = beta_settings.lookback_periods(valuation_date);
+    let grid = PeriodGrid::ending_at_with(
         beta_settings.frequency,
-        valuation_date,
-        beta_settings.lookback,
+        beta_settings.weekday,
+        beta_settings.window_end_date(valuation_date),
+        lookback + lags,
     );
-    let period_ends = grid.return_period_ends();
-    let market_returns =
-        sampling::simple_returns(&sampling::sample(&grid, inputs.index.series.view()));
+    let return_type = beta_settings.returns;
+    let stale_limit = beta_settings.max_stale_days;
+    let sample_returns = |file: &DataFile| {
+        let (samples, stale) =
+            sampling::sample_with_staleness(&grid, file.series.view(), stale_limit);
+        (
+            sampling::period_returns(&samples, return_type),
+            sampling::stale_returns(&stale),
+        )
+    };
+    let first = lags as usize;
+    let all_period_ends = grid.return_period_ends();
+    let period_ends = &all_period_ends[first..];
+    let window_start = grid.sample_points()[first];
+    let (market_returns, market_stale) = sample_returns(&inputs.index);
     let risk_free = inputs.risk_free.as_ref().map(|file| {
-        sampling::risk_free_per_period(
+        sampling::risk_free_for_returns(
             &sampling::sample(&grid, file.series.view()),
             beta_settings.frequency,
+            return_type,
         )
     });
 
@@ -333,14 +456,20 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
 
     let mut peers = Vec::with_capacity(settings.peers.len());
     let mut returns = Vec::with_capacity(settings.peers.len());
+    let mut rolling = Vec::with_capacity(settings.peers.len());
+    let (rolling_window, rolling_min) = beta_settings.rolling(lookback);
     for (spec, file) in settings.peers.iter().zip(&inputs.peers) {
-        let asset_returns = sampling::simple_returns(&sampling::sample(&grid, file.series.view()));
-        let aligned = sampling::align(
-            period_ends,
+        let (asset_returns, asset_stale) = sample_returns(file);
+        let mut aligned = sampling::align_with_shifts(
+            all_period_ends,
             &asset_returns,
             &market_returns,
             risk_free.as_deref(),
+            &offsets,
+            first,
         );
+        aligned.dropped.asset_stale = asset_stale[first..].iter().filter(|&&s| s).count();
+        aligned.dropped.market_stale = market_stale[first..].iter().filter(|&&s| s).count();
         let estimation_error = |message: String| Error::Estimation {
             peer: spec.name.clone(),
             message,
@@ -353,7 +482,7 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
                  peer price missing {}, index price missing {}, risk-free missing {}); \
                  beta.min_observations = {}. Prices in {} run from {} to {}.",
                 period_ends.len(),
-                grid.sample_points()[0],
+                window_start,
                 window_end,
                 d.total,
                 d.asset_missing,
@@ -376,10 +505,11 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
                 inputs.index.path
             )));
         }
-        let estimate = beta::estimate(
-            beta_settings.method,
+        let estimate = beta::estimate_with(
+            beta_settings,
             &aligned.asset_excess(),
             &market_excess,
+            &aligned.market_shifted,
         )
         .map_err(|e| estimation_error(e.to_string()))?;
         if aligned.dropped.total > 0 {
@@ -394,14 +524,49 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
                 aligned.dropped.risk_free_missing
             ));
         }
-        let (adjusted_beta, beta_used) = betas_used(settings, estimate.beta);
+        let d = aligned.dropped;
+        if d.asset_stale + d.market_stale > 0 {
+            notes.push(format!(
+                "{}: {} periods with a stale peer price and {} with a stale index price \
+                 (older than beta.max_stale_days = {}) were dropped.",
+                spec.name,
+                d.asset_stale,
+                d.market_stale,
+                stale_limit.unwrap_or_default()
+            ));
+        }
+        let points = crate::rolling::rolling_betas(
+            period_ends,
+            &aligned.period_ends,
+            &aligned.asset_excess(),
+            &market_excess,
+            rolling_window as usize,
+            beta_settings.rolling_step as usize,
+            rolling_min as usize,
+        );
+        let stale_share = d.asset_stale as f64 / period_ends.len() as f64;
+        let flags = peer_flags(beta_settings, &estimate, period_ends.len(), stale_share);
+        let excluded_by_rule: Vec<String> = flags
+            .iter()
+            .filter(|f| beta_settings.exclude_flags.contains(f))
+            .map(|f| f.name().to_string())
+            .collect();
+        let exclusion = spec.exclude.clone().or_else(|| {
+            (!excluded_by_rule.is_empty()).then(|| {
+                format!(
+                    "flag-based rule beta.exclude_flags: {}",
+                    excluded_by_rule.join(", ")
+                )
+            })
+        });
         peers.push(PeerResult {
             name: spec.name.clone(),
             prices_file: file.path.clone(),
             periods_in_window: period_ends.len(),
             periods_dropped: aligned.dropped,
-            adjusted_beta,
-            beta_used,
+            // Set after the loop by `cost_of_capital`, which applies the adjustment.
+            adjusted_beta: None,
+            beta_used: f64::NAN,
             equity_value: spec.equity_value,
             debt: spec.debt,
             cash: spec.cash,
@@ -414,7 +579,14 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
             cash_corrected_unlevered_beta: f64::NAN,
             cash_share_of_capital: spec.cash / (spec.equity_value + spec.debt),
             estimate,
+            excluded_reason: exclusion,
+            vasicek: None,
+            stale_share,
+            flags,
+            stability: crate::rolling::stability(&points, rolling_window)
+                .map_err(|e| estimation_error(e.to_string()))?,
         });
+        rolling.push(points);
         returns.push(aligned);
     }
 
@@ -451,15 +623,31 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
         sampling: SamplingRecord {
             frequency: beta_settings.frequency,
             periods_per_year: beta_settings.frequency.periods_per_year(),
-            lookback: beta_settings.lookback,
+            lookback,
             min_observations: beta_settings.min_observations,
-            window_start: grid.sample_points()[0],
+            window_start,
             window_end,
-            return_type: "simple",
+            return_type: match return_type {
+                sampling::ReturnType::Simple => "simple",
+                sampling::ReturnType::Log => "log",
+            },
+            weekday: (beta_settings.frequency == sampling::Frequency::Weekly)
+                .then_some(beta_settings.weekday),
+            max_stale_days: stale_limit,
+            sampling_rule: sampling::rule_text(beta_settings.frequency),
             excess_returns: risk_free.is_some(),
-            risk_free_convention: "annual yield sampled at the start of each period, \
-                                   compounded to the period: (1 + y)^(1/periods_per_year) - 1",
+            risk_free_convention: match return_type {
+                sampling::ReturnType::Simple => {
+                    "annual yield sampled at the start of each period, compounded to the \
+                     period: (1 + y)^(1/periods_per_year) - 1"
+                }
+                sampling::ReturnType::Log => {
+                    "annual yield sampled at the start of each period, continuously \
+                     compounded to the period: ln(1 + y)/periods_per_year"
+                }
+            },
         },
+        estimator: beta::describe(beta_settings),
         peers,
         cost,
         sensitivity: None,
@@ -467,6 +655,7 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
         reconciliation: None,
         notes,
         returns,
+        rolling,
     })
 }
 
@@ -490,6 +679,31 @@ pub fn cost_of_capital(
     checks: Checks,
 ) -> Result<CostOfCapital> {
     let settings = &case.settings;
+    let vasicek_prior = apply_adjustment(settings, peers)?;
+    let peers_included = peers.iter().filter(|p| p.excluded_reason.is_none()).count();
+    if peers_included == 0 {
+        return Err(Error::Estimation {
+            peer: "(all peers)".into(),
+            message: format!(
+                "every peer is excluded (beta.exclude_flags = {:?} or `exclude`): no peer is \
+                 left to aggregate",
+                settings
+                    .beta
+                    .exclude_flags
+                    .iter()
+                    .map(|f| f.name().to_string())
+                    .collect::<Vec<_>>()
+            ),
+        });
+    }
+    for peer in peers.iter() {
+        if let Some(reason) = &peer.excluded_reason {
+            notes.push(format!(
+                "{} is estimated and shown but left out of the aggregation: {reason}",
+                peer.name
+            ));
+        }
+    }
     let market = &settings.market;
     let premiums = &settings.premiums;
     let cost_of_debt = debt::cost_of_debt(&settings.debt, debt_table, market.risk_free_rate)
@@ -610,6 +824,8 @@ pub fn cost_of_capital(
             unlevered_cash_corrected: chosen.unlevered_cash_corrected,
             unlevered_statistics: chosen.unlevered_statistics,
             debt_measure: settings.leverage.debt_measure,
+            vasicek_prior,
+            peers_included,
         },
         target: TargetRecord {
             given: match settings.target.source {
@@ -798,10 +1014,16 @@ fn aggregate_over_peers(
     unlevered: &[f64],
     settings: &CaseFile,
 ) -> (Dispersion, stats::Locations) {
-    let market_caps: Vec<f64> = peers.iter().map(|p| p.equity_value).collect();
+    // Excluded peers are estimated and shown, never aggregated.
+    let (values, market_caps): (Vec<f64>, Vec<f64>) = peers
+        .iter()
+        .zip(unlevered)
+        .filter(|(peer, _)| peer.excluded_reason.is_none())
+        .map(|(peer, &value)| (value, peer.equity_value))
+        .unzip();
     (
-        stats::dispersion(unlevered),
-        stats::locations(unlevered, &market_caps, settings.leverage.trim_fraction),
+        stats::dispersion(&values),
+        stats::locations(&values, &market_caps, settings.leverage.trim_fraction),
     )
 }
 

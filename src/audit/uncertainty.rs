@@ -2,9 +2,10 @@
 //!
 //! Each draw replaces every peer's raw beta by β + SE·z (z standard normal: the large-sample
 //! sampling distribution of the estimate), optionally draws the equity risk premium and the
-//! risk-free rate uniformly from user-given ranges, and reruns adjustment, unlevering,
+//! risk-free rate uniformly from user-given ranges, and reruns adjustment (a Vasicek prior from
+//! the cross-section is re-estimated from each draw's betas), unlevering,
 //! aggregation, relevering, cost of debt, CAPM and WACC through the same functions as the point
-//! estimate ([`betas_used`], [`cost_of_capital`]). The draws are seeded, so the same case gives
+//! estimate ([`cost_of_capital`], which also applies the Blume or Vasicek adjustment). The draws are seeded, so the same case gives
 //! the same percentiles everywhere. It measures the estimation error of the betas (and of the
 //! given ranges) only, not the error in choosing peers, index, window or method.
 
@@ -14,7 +15,7 @@ use crate::case::Case;
 use crate::error::Result;
 use crate::random::Rng;
 use crate::stats::quantile_sorted;
-use crate::valuation::{betas_used, cost_of_capital, Checks, CostOfCapital, Inputs, PeerResult};
+use crate::valuation::{cost_of_capital, Checks, CostOfCapital, Inputs, PeerResult};
 
 /// Percentiles of the simulated WACC.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -51,7 +52,6 @@ pub fn simulate(
         for (drawn, peer) in drawn_peers.iter_mut().zip(peers) {
             let raw = peer.estimate.beta + peer.estimate.beta_std_error * rng.normal();
             drawn.estimate.beta = raw;
-            (drawn.adjusted_beta, drawn.beta_used) = betas_used(&case.settings, raw);
         }
         let market = &mut drawn_case.settings.market;
         if let Some(range) = u.equity_risk_premium {

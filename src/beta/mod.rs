@@ -4,11 +4,20 @@
 //! `beta.method`. Adjustments (Blume) act on the raw estimate afterwards, so `beta` in every
 //! output is always the estimator's own, unadjusted figure.
 
+pub mod dimson;
+pub mod scholes_williams;
+pub mod vasicek;
+
+use nalgebra::DMatrix;
 use serde::Serialize;
 
-use crate::case::{Adjustment, BetaMethod};
-use crate::error::Result;
-use crate::regression::{design_with_intercept, ols};
+use crate::case::{Adjustment, BetaMethod, BetaSettings};
+use crate::error::{Error, Result};
+use crate::regression::{
+    design_with_intercept, newey_west_default_lags, ols, with_std_errors, OlsFit, StdErrors,
+};
+use crate::sampling::ShiftedMarket;
+use crate::stats;
 
 /// A raw beta and the regression statistics a reviewer asks for.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -31,39 +40,239 @@ pub struct BetaEstimate {
     pub r_squared: f64,
     pub adjusted_r_squared: f64,
     pub residual_std_error: f64,
+    /// Which standard errors the SE, t, p-value and CI above are.
+    pub std_errors: StdErrors,
+    /// Newey–West lags used (`null` unless `std_errors` is `newey-west`).
+    pub newey_west_lags: Option<usize>,
+    /// Every slope on the market: offset 0 is the current period, −l the market l periods
+    /// earlier, +l later. One entry for OLS; Dimson's coefficients; Scholes–Williams' three
+    /// simple-regression slopes.
+    pub market_coefficients: Vec<MarketCoefficient>,
+    /// Scholes–Williams only: the market's first-order autocorrelation on the sample.
+    pub market_autocorrelation: Option<f64>,
+    /// Durbin–Watson statistic of the regression's residuals (in period order).
+    pub durbin_watson: f64,
+    /// How many observations have an internally studentised residual above 3 in absolute value.
+    pub large_studentised_residuals: usize,
+}
+
+/// One slope on a (possibly lagged or led) market return.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct MarketCoefficient {
+    pub offset: i32,
+    pub estimate: f64,
+    pub std_error: f64,
+}
+
+/// The Newey–West lag count for `n` observations: the case's, else the Newey–West (1994) rule.
+pub fn newey_west_lags(settings: &BetaSettings, n: usize) -> Option<usize> {
+    (settings.std_errors == StdErrors::NeweyWest).then(|| {
+        settings
+            .newey_west_lags
+            .map_or_else(|| newey_west_default_lags(n), |l| l as usize)
+    })
+}
+
+/// Estimates beta of `asset` on `market` (and the shifted market columns the method needs, as
+/// built by `sampling::align_with_shifts`) with the case's method and standard errors.
+pub fn estimate_with(
+    settings: &BetaSettings,
+    asset: &[f64],
+    market: &[f64],
+    shifted: &[ShiftedMarket],
+) -> Result<BetaEstimate> {
+    let n = asset.len();
+    let lags = newey_west_lags(settings, n);
+    if let Some(l) = lags {
+        if 4 * l >= n {
+            return Err(Error::Regression(format!(
+                "Newey-West lags {l} are at least N/4 = {} for N = {n} observations; lower \
+                 beta.newey_west_lags",
+                n as f64 / 4.0
+            )));
+        }
+    }
+    if settings.method != BetaMethod::Ols && 4 * shifted.len() >= n {
+        return Err(Error::Regression(format!(
+            "{} lagged and led index columns are at least N/4 = {} for N = {n} observations; \
+             lower beta.dimson_lags / beta.dimson_leads",
+            shifted.len(),
+            n as f64 / 4.0
+        )));
+    }
+    let (kind, l) = (settings.std_errors, lags.unwrap_or(0));
+    let mut estimate = match settings.method {
+        BetaMethod::Ols => ols_beta_with(asset, market, kind, l)?,
+        BetaMethod::Dimson => dimson::dimson_beta(asset, market, shifted, kind, l)?,
+        BetaMethod::ScholesWilliams => {
+            scholes_williams::scholes_williams_beta(asset, market, shifted, kind, l)?
+        }
+    };
+    estimate.newey_west_lags = lags;
+    Ok(estimate)
+}
+
+/// A [`BetaEstimate`] whose beta is the linear combination `combination · coefficients` of a
+/// fit's coefficients (coefficient 0 the intercept), with its SE from the covariance matrix:
+/// √(cᵀVc). OLS takes c = (0, 1); Dimson sums the market slopes.
+pub(crate) fn from_fit(
+    method: BetaMethod,
+    fit: &OlsFit,
+    combination: &[f64],
+    offsets: &[i32],
+    kind: StdErrors,
+) -> BetaEstimate {
+    let c = DMatrix::from_column_slice(combination.len(), 1, combination);
+    let beta = combination
+        .iter()
+        .zip(&fit.coefficients)
+        .map(|(w, b)| w * b)
+        .sum::<f64>();
+    let beta_std_error = (c.transpose() * &fit.covariance * &c)[(0, 0)].sqrt();
+    let market_coefficients = offsets
+        .iter()
+        .enumerate()
+        .map(|(i, &offset)| MarketCoefficient {
+            offset,
+            estimate: fit.coefficients[i + 1],
+            std_error: fit.std_errors[i + 1],
+        })
+        .collect();
+    finish(
+        method,
+        fit,
+        (fit.coefficients[0], fit.std_errors[0]),
+        (beta, beta_std_error),
+        kind,
+        market_coefficients,
+    )
+}
+
+/// Fills the t, p and 95% CI of alpha and beta from their estimates and standard errors, with
+/// Student t on the fit's degrees of freedom (the CI and p follow the chosen standard errors).
+pub(crate) fn finish(
+    method: BetaMethod,
+    fit: &OlsFit,
+    (alpha, alpha_std_error): (f64, f64),
+    (beta, beta_std_error): (f64, f64),
+    kind: StdErrors,
+    market_coefficients: Vec<MarketCoefficient>,
+) -> BetaEstimate {
+    let df = fit.degrees_of_freedom as f64;
+    let t = stats::student_t_quantile(0.975, df);
+    let alpha_t_stat = alpha / alpha_std_error;
+    let beta_t_stat = beta / beta_std_error;
+    BetaEstimate {
+        method,
+        observations: fit.observations,
+        degrees_of_freedom: fit.degrees_of_freedom,
+        alpha,
+        alpha_std_error,
+        alpha_t_stat,
+        alpha_p_value: stats::student_t_two_sided_p(alpha_t_stat, df),
+        beta,
+        beta_std_error,
+        beta_t_stat,
+        beta_p_value: stats::student_t_two_sided_p(beta_t_stat, df),
+        beta_ci_low: beta - t * beta_std_error,
+        beta_ci_high: beta + t * beta_std_error,
+        r_squared: fit.r_squared,
+        adjusted_r_squared: fit.adjusted_r_squared,
+        residual_std_error: fit.residual_std_error,
+        std_errors: kind,
+        newey_west_lags: None,
+        market_coefficients,
+        market_autocorrelation: None,
+        durbin_watson: fit.durbin_watson(),
+        large_studentised_residuals: fit
+            .studentised_residuals()
+            .iter()
+            .filter(|r| r.abs() > 3.0)
+            .count(),
+    }
 }
 
 /// Estimates beta of `asset` on `market` (both already excess returns when a risk-free rate is
-/// used) with the case's method.
+/// used) with the case's method and classical standard errors; methods that need lagged market
+/// returns go through [`estimate_with`].
 pub fn estimate(method: BetaMethod, asset: &[f64], market: &[f64]) -> Result<BetaEstimate> {
-    match method {
-        BetaMethod::Ols => ols_beta(asset, market),
-    }
+    estimate_with(
+        &BetaSettings {
+            method,
+            ..BetaSettings::default()
+        },
+        asset,
+        market,
+        &[],
+    )
 }
 
 /// OLS market-model beta: r_asset = α + β·r_market + ε, with classical standard errors.
 /// Sharpe (1963), "A simplified model for portfolio analysis", Management Science 9(2).
 pub fn ols_beta(asset: &[f64], market: &[f64]) -> Result<BetaEstimate> {
-    let fit = ols(&design_with_intercept(&[market]), asset, true)?;
-    let (beta_ci_low, beta_ci_high) = fit.confidence_interval(1, 0.95);
-    Ok(BetaEstimate {
-        method: BetaMethod::Ols,
-        observations: fit.observations,
-        degrees_of_freedom: fit.degrees_of_freedom,
-        alpha: fit.coefficients[0],
-        alpha_std_error: fit.std_errors[0],
-        alpha_t_stat: fit.t_stats[0],
-        alpha_p_value: fit.p_values[0],
-        beta: fit.coefficients[1],
-        beta_std_error: fit.std_errors[1],
-        beta_t_stat: fit.t_stats[1],
-        beta_p_value: fit.p_values[1],
-        beta_ci_low,
-        beta_ci_high,
-        r_squared: fit.r_squared,
-        adjusted_r_squared: fit.adjusted_r_squared,
-        residual_std_error: fit.residual_std_error,
-    })
+    ols_beta_with(asset, market, StdErrors::Classical, 0)
+}
+
+/// [`ols_beta`] with the chosen standard errors.
+pub fn ols_beta_with(
+    asset: &[f64],
+    market: &[f64],
+    kind: StdErrors,
+    newey_west_lags: usize,
+) -> Result<BetaEstimate> {
+    let design = design_with_intercept(&[market]);
+    let fit = with_std_errors(ols(&design, asset, true)?, &design, kind, newey_west_lags);
+    Ok(from_fit(BetaMethod::Ols, &fit, &[0.0, 1.0], &[0], kind))
+}
+
+/// The estimator and standard errors of a case, in words with their sources, for the memo.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EstimatorRecord {
+    pub method: BetaMethod,
+    pub method_description: String,
+    pub std_errors: StdErrors,
+    pub std_errors_description: String,
+}
+
+/// Describes the case's estimator and standard errors, citing each source.
+pub fn describe(settings: &BetaSettings) -> EstimatorRecord {
+    let method_description = match settings.method {
+        BetaMethod::Ols => "ordinary least squares of the peer's on the index's return, the \
+                            market model of Sharpe (1963, Management Science 9(2))"
+            .to_string(),
+        BetaMethod::Dimson => format!(
+            "Dimson (1979, J. Financial Economics 7(2)) aggregated coefficients: OLS on the \
+             index return of the same period, {} earlier and {} later period(s); beta is the \
+             sum of the slopes, its SE from their covariance matrix",
+            settings.dimson_lags, settings.dimson_leads
+        ),
+        BetaMethod::ScholesWilliams => "Scholes and Williams (1977, J. Financial Economics \
+                                        5(3)): (b(-1) + b(0) + b(+1)) / (1 + 2ρ) from simple \
+                                        regressions on the previous, same and next period's \
+                                        index return, ρ the index's first-order autocorrelation"
+            .to_string(),
+    };
+    let std_errors_description = match settings.std_errors {
+        StdErrors::Classical => "classical (homoskedastic, serially uncorrelated errors)".into(),
+        StdErrors::Hc1 => "White (1980, Econometrica 48(4)) heteroskedasticity-robust, HC1 \
+                           scaling n/(n - k)"
+            .into(),
+        StdErrors::NeweyWest => format!(
+            "Newey and West (1987, Econometrica 55(3)) HAC with Bartlett weights; lags {}",
+            match settings.newey_west_lags {
+                Some(l) => format!("{l} as the case states"),
+                None => "floor(4(N/100)^(2/9)) per peer (Newey and West 1994, Rev. Econ. \
+                         Studies 61(4))"
+                    .into(),
+            }
+        ),
+    };
+    EstimatorRecord {
+        method: settings.method,
+        method_description,
+        std_errors: settings.std_errors,
+        std_errors_description,
+    }
 }
 
 /// Blume's adjustment toward the cross-sectional mean of 1: 0.67·β + 0.33.
@@ -73,10 +282,12 @@ pub fn blume(raw: f64) -> f64 {
     0.67 * raw + 0.33
 }
 
-/// The adjusted beta for a case's `beta.adjustment`, or `None` when there is none.
+/// The adjusted beta for a case's `beta.adjustment`, or `None` when there is none. Vasicek
+/// needs the whole cross-section and its prior, so it is applied by the caller with
+/// [`vasicek::shrink`]; here it returns `None`.
 pub fn adjust(adjustment: Adjustment, raw: f64) -> Option<f64> {
     match adjustment {
-        Adjustment::None => None,
+        Adjustment::None | Adjustment::Vasicek => None,
         Adjustment::Blume => Some(blume(raw)),
     }
 }

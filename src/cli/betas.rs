@@ -3,6 +3,7 @@
 //! Prints each peer's beta estimate and its statistics; writes no file.
 
 use hurdle::format::fixed;
+use hurdle::frequency_comparison::FrequencyRun;
 use hurdle::valuation::Valuation;
 
 use super::CaseArgs;
@@ -20,9 +21,23 @@ pub struct Args {
     /// Output format.
     #[arg(long, value_enum, default_value = "table")]
     pub format: Format,
+    /// Print one row per peer with the beta at every frequency (daily, weekly, monthly,
+    /// quarterly) over the case's calendar window.
+    #[arg(long)]
+    pub compare_frequencies: bool,
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
+    if args.compare_frequencies {
+        let (inputs, valuation) = args.case.inputs_and_valuation()?;
+        let runs = hurdle::frequency_comparison::compare_frequencies(
+            &inputs,
+            &valuation,
+            &valuation.generated_at,
+        )?;
+        print!("{}", comparison_table(&valuation, &runs));
+        return Ok(());
+    }
     let valuation = args.case.valuation()?;
     match args.format {
         Format::Table => print!("{}", table(&valuation)),
@@ -34,22 +49,83 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     Ok(())
 }
 
-fn table(v: &Valuation) -> String {
-    let name_width = v
-        .peers
+/// Width of the peer-name column: the longest name, at least 4.
+fn name_width(v: &Valuation) -> usize {
+    v.peers
         .iter()
         .map(|p| p.name.chars().count())
         .max()
         .unwrap_or(4)
-        .max(4);
+        .max(4)
+}
+
+fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
+    let name_width = name_width(base);
+    let mut out = format!("{:<name_width$}", "peer");
+    for run in runs {
+        out.push_str(&format!(
+            "  {:>22}",
+            format!("{:?} β (SE) N", run.frequency)
+        ));
+    }
+    out.push('\n');
+    for (i, peer) in base.peers.iter().enumerate() {
+        out.push_str(&format!("{:<name_width$}", peer.name));
+        for run in runs {
+            let cell = match &run.valuation {
+                Ok(v) => {
+                    let e = &v.peers[i].estimate;
+                    format!(
+                        "{} ({}) {}",
+                        fixed(e.beta, 3),
+                        fixed(e.beta_std_error, 3),
+                        e.observations
+                    )
+                }
+                Err(_) => "n/a".to_string(),
+            };
+            out.push_str(&format!("  {cell:>22}"));
+        }
+        out.push('\n');
+    }
+    out.push_str(&format!(
+        "window {} to {} at every frequency; method {:?}, std errors {:?}\n",
+        base.sampling.window_start,
+        base.sampling.window_end,
+        base.estimator.method,
+        base.estimator.std_errors
+    ));
+    for run in runs {
+        if let Err(reason) = &run.valuation {
+            out.push_str(&format!("{:?}: n/a: {reason}\n", run.frequency));
+        }
+    }
+    out
+}
+
+/// The peer's flags and exclusion, for the table's last column.
+fn flags_cell(p: &hurdle::valuation::PeerResult) -> String {
+    let mut parts: Vec<String> = p.flags.iter().map(|f| f.name().to_string()).collect();
+    if let Some(reason) = &p.excluded_reason {
+        parts.push(format!("excluded: {reason}"));
+    }
+    if parts.is_empty() {
+        "-".into()
+    } else {
+        parts.join(", ")
+    }
+}
+
+fn table(v: &Valuation) -> String {
+    let name_width = name_width(v);
     let mut out = format!(
-        "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}\n",
+        "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}  flags\n",
         "peer", "N", "beta", "SE", "95% CI", "R²", "beta*", "D/E", "unlevered"
     );
     for p in &v.peers {
         let e = &p.estimate;
         out.push_str(&format!(
-            "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}\n",
+            "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}  {}\n",
             p.name,
             e.observations,
             fixed(e.beta, 3),
@@ -63,6 +139,7 @@ fn table(v: &Valuation) -> String {
             fixed(p.beta_used, 3),
             fixed(p.debt_to_equity, 3),
             fixed(p.unlevered_beta, 3),
+            flags_cell(p),
         ));
     }
     out.push_str(&format!(

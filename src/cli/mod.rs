@@ -7,6 +7,7 @@ pub mod betas;
 pub mod compare;
 pub mod grid;
 pub mod implied;
+pub mod rolling;
 pub mod run;
 pub mod verify;
 
@@ -38,6 +39,8 @@ pub enum Command {
     Compare(compare::Args),
     /// Tabulate the WACC (or cost of equity) over two case keys.
     Grid(grid::Args),
+    /// Write each peer's rolling beta to rolling.csv.
+    Rolling(rolling::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -52,6 +55,23 @@ pub struct CaseArgs {
 }
 
 impl CaseArgs {
+    /// `output/` beside the case file.
+    pub fn default_output_dir(&self) -> PathBuf {
+        self.case
+            .parent()
+            .map(|p| p.join("output"))
+            .unwrap_or_else(|| PathBuf::from("output"))
+    }
+
+    /// As [`CaseArgs::valuation`], also returning the inputs read.
+    pub fn inputs_and_valuation(
+        &self,
+    ) -> hurdle::Result<(hurdle::valuation::Inputs, hurdle::valuation::Valuation)> {
+        let inputs = self.inputs()?;
+        let valuation = hurdle::valuation::value(&inputs, &timestamp())?;
+        Ok((inputs, valuation))
+    }
+
     /// Reads the case, applies overrides and reads its data files.
     pub fn inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
         let case = hurdle::case::read_case(&self.case, &self.overrides)?;
@@ -79,5 +99,6 @@ pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
         Command::Implied(args) => implied::run(&args),
         Command::Compare(args) => compare::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Rolling(args) => rolling::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }

@@ -13,7 +13,7 @@ pub struct PeersCsv;
 /// Long form: one row per peer and return period.
 pub struct ReturnsCsv;
 
-const PEER_COLUMNS: [&str; 18] = [
+const PEER_COLUMNS: [&str; 24] = [
     "name",
     "prices_file",
     "observations",
@@ -32,6 +32,12 @@ const PEER_COLUMNS: [&str; 18] = [
     "tax_rate",
     "unlevered_beta",
     "residual_std_error",
+    "method",
+    "std_errors",
+    "durbin_watson",
+    "large_studentised_residuals",
+    "flags",
+    "excluded_reason",
 ];
 
 impl Render for PeersCsv {
@@ -63,6 +69,18 @@ impl Render for PeersCsv {
                 p.tax_rate.to_string(),
                 p.unlevered_beta.to_string(),
                 e.residual_std_error.to_string(),
+                json_text(&e.method),
+                json_text(&e.std_errors),
+                e.durbin_watson.to_string(),
+                e.large_studentised_residuals.to_string(),
+                field(
+                    &p.flags
+                        .iter()
+                        .map(|f| f.name())
+                        .collect::<Vec<_>>()
+                        .join(";"),
+                ),
+                field(p.excluded_reason.as_deref().unwrap_or("")),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');
@@ -79,7 +97,19 @@ impl Render for ReturnsCsv {
     fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
         let with_rf = valuation.sampling.excess_returns;
         let mut out = String::from("peer,period_end,asset_return,market_return");
-        out.push_str(if with_rf { ",risk_free\n" } else { "\n" });
+        out.push_str(if with_rf { ",risk_free" } else { "" });
+        // Dimson and Scholes–Williams: the lagged and led market (excess) returns used.
+        if let Some(first) = valuation.returns.first() {
+            for shifted in &first.market_shifted {
+                if shifted.offset < 0 {
+                    write!(out, ",market_lag_{}", -shifted.offset)
+                } else {
+                    write!(out, ",market_lead_{}", shifted.offset)
+                }
+                .expect("writing to a String cannot fail");
+            }
+        }
+        out.push('\n');
         for (peer, returns) in valuation.peers.iter().zip(&valuation.returns) {
             let name = field(&peer.name);
             for j in 0..returns.period_ends.len() {
@@ -92,6 +122,10 @@ impl Render for ReturnsCsv {
                 if let Some(rf) = &returns.risk_free {
                     write!(out, ",{}", rf[j]).expect("writing to a String cannot fail");
                 }
+                for shifted in &returns.market_shifted {
+                    write!(out, ",{}", shifted.returns[j])
+                        .expect("writing to a String cannot fail");
+                }
                 out.push('\n');
             }
         }
@@ -99,8 +133,16 @@ impl Render for ReturnsCsv {
     }
 }
 
+/// The serde name of a unit enum value (`dimson`, `newey-west`, `low_r_squared`).
+fn json_text<T: serde::Serialize>(value: &T) -> String {
+    serde_json::to_value(value)
+        .ok()
+        .and_then(|v| v.as_str().map(str::to_string))
+        .unwrap_or_default()
+}
+
 /// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).
-fn field(text: &str) -> String {
+pub(crate) fn field(text: &str) -> String {
     if text.contains([',', '"', '\n', '\r']) {
         format!("\"{}\"", text.replace('"', "\"\""))
     } else {

@@ -6,6 +6,7 @@
 pub mod csv;
 pub mod json;
 pub mod memo;
+pub mod rolling;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

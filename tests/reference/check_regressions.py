@@ -37,6 +37,224 @@ def tax_factor(formula, t, kd):
     return {"hamada": 1 - t, "conine": 1 - t, "harris-pringle": 1.0, "miles-ezzell": 1 - t * kd / (1 + kd)}[formula]
 
 
+def sandwich(weights, residuals, parameters, kind, lags):
+    """Covariance of the linear estimator weights @ y from residuals e, written out from the
+    published formulas: classical s^2 A A' with s^2 = e'e/(n-k); HC1 (White 1980, Econometrica
+    48(4); MacKinnon and White 1985) n/(n-k) A diag(e^2) A'; Newey-West (1987, Econometrica
+    55(3)) A S A' with S_ts = e_t e_s (1 - |t-s|/(L+1)) for |t-s| <= L, no small-sample factor.
+    For OLS, A = (X'X)^-1 X' (numpy's inv here: this is the reference, not the solver)."""
+    n = len(residuals)
+    if kind == "classical":
+        return weights @ weights.T * (residuals @ residuals / (n - parameters))
+    if kind == "hc1":
+        return n / (n - parameters) * (weights * residuals**2) @ weights.T
+    assert kind == "newey-west"
+    omega = np.outer(residuals, residuals)
+    distance = np.abs(np.subtract.outer(np.arange(n), np.arange(n)))
+    kernel = np.where(distance <= lags, 1 - distance / (lags + 1), 0.0)
+    return weights @ (omega * kernel) @ weights.T
+
+
+def check_inference(name, peer, beta, se, alpha, alpha_se, df):
+    t975 = stats.t.ppf(0.975, df)
+    check(f"{name} beta", peer["beta"], beta)
+    check(f"{name} beta SE", peer["beta_std_error"], se)
+    check(f"{name} beta t", peer["beta_t_stat"], beta / se)
+    check(f"{name} beta p-value (scipy t)", peer["beta_p_value"], 2 * stats.t.sf(abs(beta / se), df))
+    check(f"{name} CI low (scipy t)", peer["beta_ci_low"], beta - t975 * se)
+    check(f"{name} CI high (scipy t)", peer["beta_ci_high"], beta + t975 * se)
+    check(f"{name} alpha", peer["alpha"], alpha)
+    check(f"{name} alpha SE", peer["alpha_std_error"], alpha_se)
+    check(f"{name} degrees of freedom", peer["degrees_of_freedom"], df)
+
+
+def check_estimator(name, peer, data, asset, market, result):
+    """Dimson, Scholes-Williams, robust errors and Vasicek, each from its formula."""
+    n = len(asset)
+    settings = result["settings"]["beta"]
+    kind = peer["std_errors"]
+    lags = peer["newey_west_lags"]
+    if kind == "newey-west":
+        # Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9)).
+        expected = settings.get("newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
+        check(f"{name} Newey-West lags", lags, expected)
+    shifted = shifted_columns(data)
+    check_shifts_are_the_market_series(name, data, shifted, result)
+    method = peer["method"]
+    if method in ("ols", "dimson"):
+        # Dimson (1979), J. Financial Economics 7(2): OLS on lagged/current/led market columns;
+        # beta = sum of the market slopes, Var = 1' V 1 from their covariance block.
+        offsets = sorted(list(shifted) + [0])
+        columns = [market if o == 0 else shifted[o] for o in offsets]
+        design = np.column_stack([np.ones(n)] + columns)
+        coef, _, rank, _ = np.linalg.lstsq(design, asset, rcond=None)
+        assert rank == design.shape[1]
+        residuals = asset - design @ coef
+        k = design.shape[1]
+        weights = np.linalg.inv(design.T @ design) @ design.T
+        cov = sandwich(weights, residuals, k, kind, lags)
+        ones = np.r_[0.0, np.ones(k - 1)]
+        beta, se = coef[1:].sum(), np.sqrt(ones @ cov @ ones)
+        check_inference(name, peer, beta, se, coef[0], np.sqrt(cov[0, 0]), n - k)
+        for i, c in enumerate(peer["market_coefficients"]):
+            check(f"{name} offset {c['offset']} slope", c["estimate"], coef[1 + offsets.index(c["offset"])])
+            check(f"{name} offset {c['offset']} SE", c["std_error"], np.sqrt(cov[1 + i, 1 + i]))
+        ss_total = ((asset - asset.mean()) ** 2).sum()
+        check(f"{name} R2", peer["r_squared"], 1 - residuals @ residuals / ss_total)
+    else:
+        # Scholes and Williams (1977), J. Financial Economics 5(3):
+        # beta = (b_-1 + b_0 + b_+1) / (1 + 2 rho), each b a simple regression slope (scipy).
+        assert method == "scholes-williams"
+        lag, lead = shifted[-1], shifted[1]
+        slopes = [stats.linregress(x, asset).slope for x in (lag, market, lead)]
+        rho = np.corrcoef(market, lag)[0, 1]
+        check(f"{name} market autocorrelation (numpy)", peer["market_autocorrelation"], rho)
+        beta = sum(slopes) / (1 + 2 * rho)
+        for c, b in zip(peer["market_coefficients"], slopes):
+            check(f"{name} SW slope {c['offset']}", c["estimate"], b)
+        # SE as README states: Var(a'r) with a = sum of slope weights / (1 + 2 rho), from the
+        # residuals of r on [1, m_-1, m_0, m_+1].
+        design = np.column_stack([np.ones(n), lag, market, lead])
+        coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
+        residuals = asset - design @ coef
+        w = sum((x - x.mean()) / ((x - x.mean()) ** 2).sum() for x in (lag, market, lead)) / (1 + 2 * rho)
+        a = np.vstack([1 / n - market.mean() * w, w])
+        cov = sandwich(a, residuals, 4, kind, lags)
+        alpha = asset.mean() - beta * market.mean()
+        check_inference(name, peer, beta, np.sqrt(cov[1, 1]), alpha, np.sqrt(cov[0, 0]), n - 4)
+
+    used = peer["beta"]
+    adjustment = settings["adjustment"]
+    if adjustment == "blume":
+        used = 0.67 * peer["beta"] + 0.33
+    elif adjustment == "vasicek":
+        # Vasicek (1973), J. Finance 28(5): w = var_prior / (var_prior + SE^2).
+        if settings.get("vasicek_prior_mean") is not None:
+            mean, var = settings["vasicek_prior_mean"], settings["vasicek_prior_variance"]
+        else:
+            raw = np.array([p["beta"] for p in result["peers"] if p.get("excluded_reason") is None])
+            mean, var = raw.mean(), raw.var(ddof=1)
+        check(f"{name} Vasicek prior mean", result["beta"]["vasicek_prior"]["mean"], mean)
+        check(f"{name} Vasicek prior variance", result["beta"]["vasicek_prior"]["variance"], var)
+        w = var / (var + peer["beta_std_error"] ** 2)
+        used = w * peer["beta"] + (1 - w) * mean
+        check(f"{name} Vasicek weight", peer["vasicek"]["weight_on_estimate"], w)
+        check(f"{name} Vasicek SE", peer["vasicek"]["std_error"], np.sqrt(1 / (1 / var + 1 / peer["beta_std_error"] ** 2)))
+    check(f"{name} beta used", peer["beta_used"], used)
+    spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
+    de = spec["debt"] / spec["equity_value"]
+    if result["beta"]["formula"] == "hamada":
+        check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
+
+
+def shifted_columns(data):
+    shifted = {}
+    for key in data[0]:
+        if key.startswith("market_lag_"):
+            shifted[-int(key[len("market_lag_"):])] = np.array([float(r[key]) for r in data])
+        elif key.startswith("market_lead_"):
+            shifted[int(key[len("market_lead_"):])] = np.array([float(r[key]) for r in data])
+    return shifted
+
+
+def check_diagnostics(name, peer, data, asset, market, result):
+    """Durbin-Watson (1950, Biometrika 37) sum((e_t - e_t-1)^2)/sum(e^2); internally studentised
+    residuals e_i / (s sqrt(1 - h_ii)) with h the hat-matrix diagonal (textbook); the flags
+    against the case's thresholds as README states them."""
+    n = len(asset)
+    shifted = shifted_columns(data)
+    if peer["method"] == "scholes-williams":
+        columns = [shifted[-1], market, shifted[1]]
+    else:
+        offsets = sorted(list(shifted) + [0])
+        columns = [market if o == 0 else shifted[o] for o in offsets]
+    design = np.column_stack([np.ones(n)] + columns)
+    coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
+    e = asset - design @ coef
+    check(f"{name} Durbin-Watson", peer["durbin_watson"], np.sum(np.diff(e) ** 2) / (e @ e))
+    hat = np.einsum("ij,jk,ik->i", design, np.linalg.inv(design.T @ design), design)
+    s = np.sqrt(e @ e / (n - design.shape[1]))
+    studentised = e / (s * np.sqrt(1 - hat))
+    check(f"{name} |studentised| > 3", peer["large_studentised_residuals"], int(np.sum(np.abs(studentised) > 3)))
+    b = result["settings"]["beta"]
+    window = peer["periods_in_window"]
+    expected = []
+    if n < b["flag_observations_share"] * window:
+        expected.append("too_few_observations")
+    if peer["r_squared"] < b["flag_r_squared_floor"]:
+        expected.append("low_r_squared")
+    if peer["periods_dropped"]["asset_stale"] / window > b["flag_stale_share"]:
+        expected.append("stale_prices")
+    global checks
+    checks += 1
+    if peer["flags"] != expected:
+        failures.append(f"{name} flags: hurdle {peer['flags']} vs reference {expected}")
+    spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
+    by_rule = [f for f in expected if f in b["exclude_flags"]]
+    if spec.get("exclude") is None and by_rule:
+        assert peer["excluded_reason"] is not None and by_rule[0] in peer["excluded_reason"]
+
+
+def check_shifts_are_the_market_series(name, data, shifted, result):
+    """Each lag/lead column must be the market's excess return of the period that many steps
+    away on the window's grid (built here from every peer's rows of returns.csv)."""
+    if not shifted:
+        return
+    market_by_period = {}
+    for rows in ROWS.values():
+        for r in rows:
+            m = float(r["market_return"]) - float(r.get("risk_free") or 0.0)
+            market_by_period[r["period_end"]] = m
+    periods = sorted(market_by_period)
+    position = {p: i for i, p in enumerate(periods)}
+    compared = 0
+    for j, r in enumerate(data):
+        for offset, values in shifted.items():
+            i = position[r["period_end"]] + offset
+            if 0 <= i < len(periods):
+                check(f"{name} {r['period_end']} market at offset {offset}", values[j], market_by_period[periods[i]])
+                compared += 1
+    assert compared > 0, "no shifted market value could be compared"
+
+
+def check_rolling(out_dir, result):
+    """rolling.csv (written by `hurdle rolling`), when present: every window refitted from
+    scratch with scipy.stats.linregress on the returns.csv rows inside it (the window's
+    `window_periods` grid periods ending at window_end); slope and SE to 1e-9 relative."""
+    import os
+    path = f"{out_dir}/rolling.csv"
+    if not os.path.exists(path):
+        return
+    periods = sorted({r["period_end"] for rows in ROWS.values() for r in rows})
+    position = {p: i for i, p in enumerate(periods)}
+    with open(path, newline="") as f:
+        windows = list(csv.DictReader(f))
+    assert windows, "rolling.csv has no rows"
+    for w in windows:
+        peer = next(p for p in result["peers"] if p["name"] == w["peer"])
+        length = peer["stability"]["window_periods"]
+        end = position[w["window_end"]]
+        inside = set(periods[max(0, end - length + 1): end + 1])
+        rows = [r for r in ROWS[w["peer"]] if r["period_end"] in inside]
+        y = np.array([float(r["asset_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
+        x = np.array([float(r["market_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
+        fit = stats.linregress(x, y)
+        label = f"{w['peer']} rolling {w['window_end']}"
+        check(f"{label} observations", int(w["observations"]), len(rows))
+        check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
+        check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
+    betas = defaultdict(list)
+    for w in windows:
+        betas[w["peer"]].append(float(w["beta"]))
+    for peer in result["peers"]:
+        if peer["stability"]:
+            check(f"{peer['name']} rolling min", peer["stability"]["min"], min(betas[peer["name"]]))
+            check(f"{peer['name']} rolling max", peer["stability"]["max"], max(betas[peer["name"]]))
+
+
+ROWS = {}
+
+
 def main(out_dir):
     with open(f"{out_dir}/result.json") as f:
         result = json.load(f)
@@ -46,6 +264,7 @@ def main(out_dir):
         excess = "risk_free" in reader.fieldnames
         for row in reader:
             rows[row["peer"]].append(row)
+    ROWS.update(rows)
 
     for peer in result["peers"]:
         name = peer["name"]
@@ -57,6 +276,10 @@ def main(out_dir):
             asset, market = asset - rf, market - rf
         n = len(asset)
         check(f"{name} observations", peer["observations"], n)
+        check_diagnostics(name, peer, data, asset, market, result)
+        if peer["method"] != "ols" or peer["std_errors"] != "classical" or peer.get("vasicek"):
+            check_estimator(name, peer, data, asset, market, result)
+            continue
 
         # numpy: least squares on [1, x].
         design = np.column_stack([np.ones(n), market])
@@ -112,7 +335,9 @@ def main(out_dir):
             s = tax_factor(result["beta"]["formula"], spec["tax_rate"], peer["cost_of_debt"])
             check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
-    unlevered = np.array([p["unlevered_beta"] for p in result["peers"]])
+    # Excluded peers are estimated and shown but not aggregated.
+    included = [p for p in result["peers"] if p.get("excluded_reason") is None]
+    unlevered = np.array([p["unlevered_beta"] for p in included])
     leverage = result["settings"]["leverage"]
     specs = {p["name"]: p for p in result["settings"]["peer"]}
     # Cash-corrected unlevered beta: beta_U / (1 - cash / (equity + debt)), gross debt.
@@ -123,8 +348,8 @@ def main(out_dir):
     for p, c in zip(result["peers"], corrected):
         check(f"{p['name']} cash-corrected unlevered", p["cash_corrected_unlevered_beta"], c)
     if leverage["cash_correction"]:
-        unlevered = corrected
-    caps = np.array([specs[p["name"]]["equity_value"] for p in result["peers"]])
+        unlevered = np.array([c for p, c in zip(result["peers"], corrected) if p.get("excluded_reason") is None])
+    caps = np.array([specs[p["name"]]["equity_value"] for p in included])
     statistics = {
         "median": np.median(unlevered),
         "mean": np.mean(unlevered),
@@ -147,7 +372,8 @@ def main(out_dir):
     tset = result["settings"]["target"]
     net = leverage["debt_measure"] == "net"
     if tset["source"] == "peer-median":
-        ratios = [(p["debt"] - (p["cash"] if net else 0)) / p["equity_value"] for p in result["settings"]["peer"]]
+        ratios = [(p["debt"] - (p["cash"] if net else 0)) / p["equity_value"] for p in result["settings"]["peer"]
+                  if next(q for q in result["peers"] if q["name"] == p["name"]).get("excluded_reason") is None]
         check("target D/E (peer median)", de, np.median(ratios))
     elif tset["source"] == "subject":
         debt = tset["subject_debt"] - (tset.get("subject_cash", 0) if net else 0)
@@ -181,6 +407,8 @@ def main(out_dir):
     # Preferred equity at its own cost (not deductible); leases after tax at the target rate.
     kl = leases.get("cost_pre_tax", result["cost_of_debt_pre_tax"]) * (1 - t)
     check("WACC", result["wacc"], we * ke + wd * kd + pref["weight"] * pref.get("cost", 0.0) + leases["weight"] * kl)
+
+    check_rolling(out_dir, result)
 
     for line in failures:
         print("MISMATCH", line)

@@ -1,0 +1,113 @@
+//! The Scholes–Williams beta for non-synchronous trading.
+//!
+//! Scholes and Williams (1977), "Estimating betas from nonsynchronous data", J. Financial
+//! Economics 5(3): β = (b₋₁ + b₀ + b₊₁) / (1 + 2ρ), where b₋₁, b₀ and b₊₁ are the slopes of
+//! simple regressions of the asset's return on the market's return of the previous, the same
+//! and the next period, and ρ is the market return's first-order autocorrelation.
+
+use nalgebra::DMatrix;
+
+use crate::case::BetaMethod;
+use crate::error::{Error, Result};
+use crate::regression::{design_with_intercept, linear_estimator_covariance, ols, StdErrors};
+use crate::sampling::ShiftedMarket;
+
+use super::{finish, BetaEstimate, MarketCoefficient};
+
+/// The Scholes–Williams beta on the sample where the previous and the next market returns are
+/// known (`shifted` must hold offsets −1 and +1). ρ is the Pearson correlation of m(t) and
+/// m(t − 1) over that sample.
+///
+/// The estimator is linear in the asset's returns given the market, β = aᵀr with
+/// a = (w₋₁ + w₀ + w₊₁)/(1 + 2ρ), wⱼ = (mⱼ − m̄ⱼ)/Σ(mⱼ − m̄ⱼ)², and α = r̄ − β·m̄₀ likewise.
+/// Their standard errors are the chosen estimator of Var(aᵀr) (classical, HC1 or Newey–West)
+/// applied to the residuals of the regression of r on [1, m₋₁, m₀, m₊₁], the model under which
+/// the three slopes sum to the true beta; ρ is treated as known. R² and the residual SE are
+/// those of that regression. This standard error is the project's construction (the 1977 paper
+/// gives the estimator's asymptotic properties, not this formula); because it treats ρ as known
+/// it omits ρ̂'s own sampling error (roughly β/√N when the market is serially uncorrelated), so
+/// it somewhat understates the spread, most when N is large relative to the residual noise.
+pub fn scholes_williams_beta(
+    asset: &[f64],
+    market: &[f64],
+    shifted: &[ShiftedMarket],
+    kind: StdErrors,
+    newey_west_lags: usize,
+) -> Result<BetaEstimate> {
+    let column = |offset: i32| {
+        shifted
+            .iter()
+            .find(|s| s.offset == offset)
+            .map(|s| s.returns.as_slice())
+            .ok_or_else(|| {
+                Error::Regression(format!(
+                    "the Scholes-Williams beta needs the market return at offset {offset}"
+                ))
+            })
+    };
+    let (lag, lead) = (column(-1)?, column(1)?);
+    let n = asset.len();
+    let fit = ols(&design_with_intercept(&[lag, market, lead]), asset, true)?;
+    let slope_weights = |x: &[f64]| -> Vec<f64> {
+        let mean = x.iter().sum::<f64>() / n as f64;
+        let sxx: f64 = x.iter().map(|v| (v - mean) * (v - mean)).sum();
+        x.iter().map(|v| (v - mean) / sxx).collect()
+    };
+    let weights: Vec<Vec<f64>> = [lag, market, lead]
+        .iter()
+        .map(|x| slope_weights(x))
+        .collect();
+    let slopes: Vec<f64> = weights
+        .iter()
+        .map(|w| w.iter().zip(asset).map(|(a, r)| a * r).sum())
+        .collect();
+    let rho = correlation(market, lag);
+    let scale = 1.0 + 2.0 * rho;
+    let beta_weights: Vec<f64> = (0..n)
+        .map(|t| (weights[0][t] + weights[1][t] + weights[2][t]) / scale)
+        .collect();
+    let beta = slopes.iter().sum::<f64>() / scale;
+    let market_mean = market.iter().sum::<f64>() / n as f64;
+    let alpha = asset.iter().sum::<f64>() / n as f64 - beta * market_mean;
+    // Rows: alpha, beta, then the three slopes, each a linear function of the asset returns.
+    let mut rows = vec![
+        (0..n)
+            .map(|t| 1.0 / n as f64 - market_mean * beta_weights[t])
+            .collect::<Vec<f64>>(),
+        beta_weights,
+    ];
+    rows.extend(weights);
+    let a = DMatrix::from_fn(rows.len(), n, |i, t| rows[i][t]);
+    let parameters = fit.coefficients.len();
+    let cov = linear_estimator_covariance(&a, &fit.residuals, parameters, kind, newey_west_lags);
+    let se = |i: usize| cov[(i, i)].sqrt();
+    let market_coefficients = [-1, 0, 1]
+        .iter()
+        .enumerate()
+        .map(|(i, &offset)| MarketCoefficient {
+            offset,
+            estimate: slopes[i],
+            std_error: se(i + 2),
+        })
+        .collect();
+    let mut estimate = finish(
+        BetaMethod::ScholesWilliams,
+        &fit,
+        (alpha, se(0)),
+        (beta, se(1)),
+        kind,
+        market_coefficients,
+    );
+    estimate.market_autocorrelation = Some(rho);
+    Ok(estimate)
+}
+
+/// Pearson correlation of two equally long series.
+fn correlation(x: &[f64], y: &[f64]) -> f64 {
+    let n = x.len() as f64;
+    let (mx, my) = (x.iter().sum::<f64>() / n, y.iter().sum::<f64>() / n);
+    let sxy: f64 = x.iter().zip(y).map(|(a, b)| (a - mx) * (b - my)).sum();
+    let sxx: f64 = x.iter().map(|a| (a - mx) * (a - mx)).sum();
+    let syy: f64 = y.iter().map(|b| (b - my) * (b - my)).sum();
+    sxy / (sxx * syy).sqrt()
+}

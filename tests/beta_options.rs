@@ -1,0 +1,380 @@
+//! The `[beta]` options end to end on the demo case: every estimator and kind of standard
+//! error is recomputed by numpy/scipy from their published formulas
+//! (tests/reference/check_regressions.py, 1e-9 relative), peers can be excluded with a reason,
+//! and each bad option value gets a message naming the key and the value, a non-zero exit and
+//! no output.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+const DEMO_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh/case.toml");
+
+fn hurdle(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(args)
+        .output()
+        .expect("hurdle runs")
+}
+
+fn run_with<S: AsRef<str> + std::fmt::Debug>(out: &Path, settings: &[S]) -> serde_json::Value {
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for s in settings {
+        args.extend_from_slice(&["--set", s.as_ref()]);
+    }
+    let output = hurdle(&args);
+    assert!(
+        output.status.success(),
+        "{settings:?}: {}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
+}
+
+fn reference_check(out: &Path) -> String {
+    let script = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/check_regressions.py"
+    );
+    let output = Command::new("python3")
+        .arg(script)
+        .arg(out)
+        .output()
+        .expect("python3 must be installed for the reference check");
+    let stdout = String::from_utf8_lossy(&output.stdout).to_string();
+    assert!(
+        output.status.success(),
+        "{stdout}\n{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    stdout
+}
+
+/// Each method × each kind of standard error, plus leads, an explicit Newey–West lag count and
+/// both Vasicek priors: numpy/scipy agree with every figure.
+#[test]
+fn numpy_and_scipy_agree_with_every_estimator() {
+    let owned = |list: &[&str]| list.iter().map(|s| s.to_string()).collect::<Vec<String>>();
+    let mut configurations: Vec<Vec<String>> = Vec::new();
+    for method in ["ols", "dimson", "scholes-williams"] {
+        for errors in ["classical", "hc1", "newey-west"] {
+            configurations.push(vec![
+                format!("beta.method={method}"),
+                format!("beta.std_errors={errors}"),
+            ]);
+        }
+    }
+    configurations.push(owned(&[
+        "beta.method=dimson",
+        "beta.dimson_lags=2",
+        "beta.dimson_leads=1",
+        "beta.std_errors=newey-west",
+        "beta.newey_west_lags=5",
+    ]));
+    configurations.push(owned(&["beta.adjustment=vasicek"]));
+    configurations.push(owned(&[
+        "beta.flag_r_squared_floor=0.15",
+        "beta.exclude_flags=[\"low_r_squared\"]",
+        "beta.flag_observations_share=0.95",
+    ]));
+    configurations.push(owned(&[
+        "beta.adjustment=vasicek",
+        "beta.vasicek_prior_mean=1.0",
+        "beta.vasicek_prior_variance=0.04",
+        "beta.method=scholes-williams",
+    ]));
+    for settings in configurations {
+        let dir = tempfile::tempdir().unwrap();
+        let result = run_with(dir.path(), &settings);
+        let report = reference_check(dir.path());
+        assert!(report.contains(" 0 failed"), "{settings:?}: {report}");
+        let method = settings
+            .iter()
+            .find_map(|s| s.strip_prefix("beta.method="))
+            .unwrap_or("ols");
+        assert_eq!(result["peers"][0]["method"], method, "{settings:?}");
+    }
+}
+
+// The Dimson regression with k lags reports k + 1 slopes (offsets −k..0), and their sum is the
+// beta (definition in Dimson 1979); Scholes–Williams reports its three simple slopes.
+#[test]
+fn every_market_coefficient_is_reported() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_with(dir.path(), &["beta.method=dimson", "beta.dimson_lags=2"]);
+    for peer in result["peers"].as_array().unwrap() {
+        let coefficients = peer["market_coefficients"].as_array().unwrap();
+        let offsets: Vec<i64> = coefficients
+            .iter()
+            .map(|c| c["offset"].as_i64().unwrap())
+            .collect();
+        assert_eq!(offsets, vec![-2, -1, 0]);
+        let sum: f64 = coefficients
+            .iter()
+            .map(|c| c["estimate"].as_f64().unwrap())
+            .sum();
+        // 1e-12: three additions of numbers near 1.
+        assert!((sum - peer["beta"].as_f64().unwrap()).abs() < 1e-12);
+    }
+    let sw = run_with(dir.path(), &["beta.method=scholes-williams"]);
+    let rho = sw["peers"][0]["market_autocorrelation"].as_f64().unwrap();
+    assert!((-1.0..=1.0).contains(&rho));
+    assert_eq!(
+        sw["peers"][0]["market_coefficients"]
+            .as_array()
+            .unwrap()
+            .len(),
+        3
+    );
+}
+
+#[test]
+fn an_excluded_peer_is_shown_but_not_aggregated() {
+    let dir = tempfile::tempdir().unwrap();
+    let all = run_with::<&str>(dir.path(), &[]);
+    let result = run_with(
+        dir.path(),
+        &["peer.Corrowick Valves.exclude=\"under review\""],
+    );
+    let peers = result["peers"].as_array().unwrap();
+    assert_eq!(peers.len(), 8);
+    assert_eq!(peers[1]["excluded_reason"], "under review");
+    assert!(peers[0]["excluded_reason"].is_null());
+    assert_eq!(result["beta"]["peers_included"], 7);
+    assert_eq!(result["beta"]["unlevered_dispersion"]["count"], 7);
+    // The median of the other seven (numpy's definition, recomputed here from the file).
+    let mut rest: Vec<f64> = peers
+        .iter()
+        .filter(|p| p["excluded_reason"].is_null())
+        .map(|p| p["unlevered_beta"].as_f64().unwrap())
+        .collect();
+    rest.sort_by(f64::total_cmp);
+    assert_eq!(result["beta"]["unlevered"].as_f64().unwrap(), rest[3]);
+    // The excluded peer's own estimate is unchanged by its exclusion.
+    assert_eq!(peers[1]["beta"], all["peers"][1]["beta"]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("under review"), "memo lacks the reason");
+}
+
+/// A bad option: non-zero exit, a message naming the key and the value, and no output.
+fn rejects(settings: &[&str], expected: &[&str]) {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for s in settings {
+        args.extend_from_slice(&["--set", s]);
+    }
+    let output = hurdle(&args);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{settings:?}: {stderr}");
+    for text in expected {
+        assert!(
+            stderr.contains(text),
+            "{settings:?}: `{text}` not in {stderr}"
+        );
+    }
+    assert!(!out.exists(), "{settings:?} wrote output");
+}
+
+#[test]
+fn bad_estimator_options_are_named() {
+    rejects(
+        &["beta.method=dimson", "beta.dimson_lags=15"],
+        &["beta.dimson_lags", "15", "lookback / 4"],
+    );
+    rejects(
+        &["beta.method=dimson", "beta.dimson_lags=0"],
+        &["beta.dimson_lags = 0"],
+    );
+    rejects(
+        &["beta.std_errors=newey-west", "beta.newey_west_lags=20"],
+        &["beta.newey_west_lags = 20", "lookback / 4"],
+    );
+    rejects(&["beta.std_errors=white"], &["white", "std_errors"]);
+    rejects(&["beta.method=bayes"], &["bayes"]);
+    rejects(
+        &["beta.adjustment=vasicek", "beta.vasicek_prior_mean=1.0"],
+        &["beta.vasicek_prior_variance"],
+    );
+    rejects(
+        &[
+            "beta.adjustment=vasicek",
+            "beta.vasicek_prior_mean=1.0",
+            "beta.vasicek_prior_variance=-0.1",
+        ],
+        &["beta.vasicek_prior_variance = -0.1"],
+    );
+    rejects(
+        &["beta.lookback=30", "beta.min_observations=36"],
+        &["beta.lookback = 30", "beta.min_observations = 36"],
+    );
+    rejects(
+        &["beta.frequency=weekly", "beta.weekday=wensday"],
+        &["wensday", "wednesday"],
+    );
+    rejects(&["beta.lookback=\"5x\""], &["beta.lookback", "5x"]);
+    rejects(
+        &["beta.frequency=quarterly", "beta.lookback=\"5y\""],
+        &["beta.lookback = \"5y\"", "20", "beta.min_observations = 36"],
+    );
+    rejects(
+        &["beta.window_end=2026-10-31"],
+        &["beta.window_end = 2026-10-31", "valuation_date"],
+    );
+    // 2026-01-31 to 2026-09-30 holds 8 month-end returns; 2 lags reach N/4 = 2.
+    rejects(
+        &[
+            "beta.window_start=2026-01-31",
+            "beta.min_observations=3",
+            "beta.method=dimson",
+            "beta.dimson_lags=2",
+        ],
+        &[
+            "beta.dimson_lags + beta.dimson_leads = 2",
+            "lookback / 4 = 2",
+        ],
+    );
+    rejects(
+        &["peer.0.exclude=\"  \""],
+        &["peer.0.exclude", "Brenvale Fluid Systems"],
+    );
+}
+
+// Lookback spans resolve by the calendar: "5y" of month-ends ending 2026-09-30 is 60 returns
+// (61 month-ends from 2021-09-30), "104w" of Wednesdays is 104 returns, and explicit dates give
+// the periods between them (2024-09-30 to 2026-09-30: 24 month-end returns).
+#[test]
+fn lookback_spans_and_dates_resolve_by_the_calendar() {
+    let dir = tempfile::tempdir().unwrap();
+    let monthly = run_with(dir.path(), &["beta.lookback=\"5y\""]);
+    assert_eq!(monthly["sampling"]["lookback"], 60);
+    assert_eq!(monthly["sampling"]["window_start"], "2021-09-30");
+    let weekly = run_with(
+        dir.path(),
+        &["beta.frequency=weekly", "beta.lookback=\"104w\""],
+    );
+    assert_eq!(weekly["sampling"]["lookback"], 104);
+    assert_eq!(weekly["sampling"]["weekday"], "wednesday");
+    let dated = run_with(
+        dir.path(),
+        &["beta.window_start=2024-09-30", "beta.min_observations=12"],
+    );
+    assert_eq!(dated["sampling"]["lookback"], 24);
+    // Each of these passes the numpy/scipy check as well (weekly and log returns).
+    let logs = run_with(
+        dir.path(),
+        &[
+            "beta.frequency=weekly",
+            "beta.returns=log",
+            "beta.max_stale_days=3",
+        ],
+    );
+    assert_eq!(logs["sampling"]["return_type"], "log");
+    let report = reference_check(dir.path());
+    assert!(report.contains(" 0 failed"), "{report}");
+}
+
+// The flag-based rule: with an R² floor of 0.15, peers below it are flagged and excluded with
+// the rule named as the reason; the others stay in (R² thresholds checked against the file's
+// own R², the flags recomputed independently in check_regressions.py).
+#[test]
+fn flag_based_exclusion_names_the_rule() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_with(
+        dir.path(),
+        &[
+            "beta.flag_r_squared_floor=0.15",
+            "beta.exclude_flags=[\"low_r_squared\"]",
+        ],
+    );
+    let mut included = 0;
+    for peer in result["peers"].as_array().unwrap() {
+        let low = peer["r_squared"].as_f64().unwrap() < 0.15;
+        let flagged = peer["flags"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|f| f == "low_r_squared");
+        assert_eq!(low, flagged, "{}", peer["name"]);
+        if low {
+            assert!(peer["excluded_reason"]
+                .as_str()
+                .unwrap()
+                .contains("beta.exclude_flags"));
+        } else {
+            assert!(peer["excluded_reason"].is_null());
+            included += 1;
+        }
+    }
+    assert!(included < 8, "the floor should flag someone in the demo");
+    assert_eq!(result["beta"]["peers_included"], included);
+    rejects(
+        &["beta.flag_r_squared_floor=1.5"],
+        &["beta.flag_r_squared_floor = 1.5"],
+    );
+    rejects(&["beta.exclude_flags=[\"shaky\"]"], &["shaky"]);
+}
+
+// `hurdle rolling` writes rolling.csv; check_regressions.py refits every window from scratch
+// with scipy.stats.linregress (1e-9 relative), so the O(T) updated sums are checked against an
+// independent fit of each window.
+#[test]
+fn rolling_betas_match_a_fresh_fit_of_every_window() {
+    let dir = tempfile::tempdir().unwrap();
+    run_with(
+        dir.path(),
+        &["beta.rolling_window=24", "beta.rolling_step=3"],
+    );
+    let output = hurdle(&[
+        "rolling",
+        DEMO_CASE,
+        "--out",
+        dir.path().to_str().unwrap(),
+        "--set",
+        "beta.rolling_window=24",
+        "--set",
+        "beta.rolling_step=3",
+    ]);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let csv = std::fs::read_to_string(dir.path().join("rolling.csv")).unwrap();
+    assert!(csv.starts_with("peer,window_end,beta,std_error,observations\n"));
+    // 60 periods, windows of 24 ending every 3rd period from the 24th: 24, 27, …, 60 → 13.
+    let brenvale = csv.lines().filter(|l| l.starts_with("Brenvale")).count();
+    assert_eq!(brenvale, 13);
+    let report = reference_check(dir.path());
+    assert!(report.contains(" 0 failed"), "{report}");
+    rejects(&["beta.rolling_window=61"], &["beta.rolling_window = 61"]);
+    rejects(&["beta.rolling_step=0"], &["beta.rolling_step = 0"]);
+}
+
+// --compare-frequencies: one row per peer, a column per frequency, over the case's own calendar
+// window; the daily column must equal a separate daily run over that window (same figures by
+// construction of the comparison, checked through the command line end to end).
+#[test]
+fn compare_frequencies_prints_every_peer_at_every_frequency() {
+    let output = hurdle(&["betas", DEMO_CASE, "--compare-frequencies"]);
+    assert!(output.status.success());
+    let table = String::from_utf8_lossy(&output.stdout).to_string();
+    for header in ["Daily", "Weekly", "Monthly", "Quarterly"] {
+        assert!(table.contains(header), "{table}");
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let daily = run_with(
+        dir.path(),
+        &[
+            "beta.frequency=daily",
+            "beta.window_start=2021-09-30",
+            "beta.min_observations=36",
+        ],
+    );
+    for peer in daily["peers"].as_array().unwrap() {
+        let name = peer["name"].as_str().unwrap();
+        let row = table.lines().find(|l| l.starts_with(name)).unwrap();
+        let beta = hurdle::format::fixed(peer["beta"].as_f64().unwrap(), 3);
+        let first_cell = row[name.len()..].split_whitespace().next().unwrap();
+        assert_eq!(first_cell, beta, "{row}");
+    }
+}
