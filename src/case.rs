@@ -1106,9 +1106,10 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             None => format!("beta.lookback = {}", beta.lookback),
         };
         return Err(format!(
-            "{given} gives {lookback} {:?} return periods, fewer than beta.min_observations = \
+            "{given} gives {lookback} {} return periods, fewer than beta.min_observations = \
              {}: no peer could pass",
-            beta.frequency, beta.min_observations
+            crate::format::label(&beta.frequency),
+            beta.min_observations
         ));
     }
     if let Some(0) = beta.max_stale_days {

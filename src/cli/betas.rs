@@ -2,7 +2,7 @@
 //!
 //! Prints each peer's beta estimate and its statistics; writes no file.
 
-use hurdle::format::fixed;
+use hurdle::format::{fixed, label};
 use hurdle::frequency_comparison::FrequencyRun;
 use hurdle::valuation::Valuation;
 
@@ -65,7 +65,7 @@ fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
     for run in runs {
         out.push_str(&format!(
             "  {:>22}",
-            format!("{:?} β (SE) N", run.frequency)
+            format!("{} β (SE) N", label(&run.frequency))
         ));
     }
     out.push('\n');
@@ -89,15 +89,15 @@ fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
         out.push('\n');
     }
     out.push_str(&format!(
-        "window {} to {} at every frequency; method {:?}, std errors {:?}\n",
+        "window {} to {} at every frequency; method {}, std errors {}\n",
         base.sampling.window_start,
         base.sampling.window_end,
-        base.estimator.method,
-        base.estimator.std_errors
+        label(&base.estimator.method),
+        label(&base.estimator.std_errors)
     ));
     for run in runs {
         if let Err(reason) = &run.valuation {
-            out.push_str(&format!("{:?}: n/a: {reason}\n", run.frequency));
+            out.push_str(&format!("{}: n/a: {reason}\n", label(&run.frequency)));
         }
     }
     out

@@ -51,14 +51,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         hurdle::format::label(&table.metric)
     ));
     print!("{out}");
-    let path = args.csv.clone().unwrap_or_else(|| {
-        args.case
-            .case
-            .parent()
-            .map(|p| p.join("output"))
-            .unwrap_or_default()
-            .join("grid.csv")
-    });
+    let path = args
+        .csv
+        .clone()
+        .unwrap_or_else(|| args.case.default_output_dir().join("grid.csv"));
     if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
         std::fs::create_dir_all(dir).map_err(|source| hurdle::Error::Io {
             path: dir.to_path_buf(),

@@ -30,13 +30,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         None => Memo::shipped(),
     };
     let valuation = hurdle::audit::evaluate(&args.case.inputs()?, &super::timestamp())?;
-    let out = args.out.clone().unwrap_or_else(|| {
-        args.case
-            .case
-            .parent()
-            .map(|p| p.join("output"))
-            .unwrap_or_else(|| PathBuf::from("output"))
-    });
+    let out = args
+        .out
+        .clone()
+        .unwrap_or_else(|| args.case.default_output_dir());
     let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
     let written = output::write_all(&out, &valuation, &outputs)?;
     print!("{}", summary(&valuation));
