@@ -14,16 +14,7 @@ fn main() -> ExitCode {
         .unwrap_or_else(|| PathBuf::from("cases/quillmarsh"));
     for (relative, contents) in generate(SEED) {
         let path = dir.join(relative);
-        let written = path
-            .parent()
-            .map_or(Ok(()), std::fs::create_dir_all)
-            .map_err(|source| hurdle::Error::Io {
-                path: path.clone(),
-                action: "cannot create the folder for",
-                source,
-            })
-            .and_then(|()| hurdle::output::write_atomic(&path, contents.as_bytes()));
-        if let Err(error) = written {
+        if let Err(error) = hurdle::output::write_file(&path, contents.as_bytes()) {
             eprintln!("error: {error}");
             return ExitCode::from(2);
         }

@@ -26,12 +26,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let result = bridge(&from, &to);
     print!("{}", render(&result));
     if let Some(dir) = &args.out {
-        std::fs::create_dir_all(dir).map_err(|source| hurdle::Error::Io {
-            path: dir.clone(),
-            action: "cannot create the output folder",
-            source,
-        })?;
-        hurdle::output::write_atomic(
+        hurdle::output::write_file(
             &dir.join("bridge.csv"),
             &hurdle::output::csv::bridge_csv(&result),
         )?;

@@ -55,14 +55,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .csv
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir().join("grid.csv"));
-    if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
-        std::fs::create_dir_all(dir).map_err(|source| hurdle::Error::Io {
-            path: dir.to_path_buf(),
-            action: "cannot create the output folder",
-            source,
-        })?;
-    }
-    hurdle::output::write_atomic(&path, &hurdle::output::csv::grid_csv(&table))?;
+    hurdle::output::write_file(&path, &hurdle::output::csv::grid_csv(&table))?;
     println!("  wrote {}", path.display());
     Ok(())
 }

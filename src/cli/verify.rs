@@ -35,12 +35,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     if let Some(dir) = &args.out {
         let mut bytes = serde_json::to_vec_pretty(&report).expect("a report always serialises");
         bytes.push(b'\n');
-        std::fs::create_dir_all(dir).map_err(|source| hurdle::Error::Io {
-            path: dir.clone(),
-            action: "cannot create the output folder",
-            source,
-        })?;
-        hurdle::output::write_atomic(&dir.join("verification.json"), &bytes)?;
+        hurdle::output::write_file(&dir.join("verification.json"), &bytes)?;
     }
     Ok(if report.reproduced {
         ExitCode::SUCCESS

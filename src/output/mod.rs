@@ -46,6 +46,18 @@ pub fn write_all(
     Ok(written)
 }
 
+/// Writes one file atomically, creating its folder when missing.
+pub fn write_file(path: &Path, bytes: &[u8]) -> Result<()> {
+    if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
+        std::fs::create_dir_all(dir).map_err(|source| Error::Io {
+            path: dir.to_path_buf(),
+            action: "cannot create the output folder",
+            source,
+        })?;
+    }
+    write_atomic(path, bytes)
+}
+
 /// Writes `bytes` to `path` through a temporary file in the same folder and a rename.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
     let dir = path
