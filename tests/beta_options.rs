@@ -358,7 +358,7 @@ fn compare_frequencies_prints_every_peer_at_every_frequency() {
     let output = hurdle(&["betas", DEMO_CASE, "--compare-frequencies"]);
     assert!(output.status.success());
     let table = String::from_utf8_lossy(&output.stdout).to_string();
-    for header in ["Daily", "Weekly", "Monthly", "Quarterly"] {
+    for header in ["daily", "weekly", "monthly", "quarterly"] {
         assert!(table.contains(header), "{table}");
     }
     let dir = tempfile::tempdir().unwrap();
