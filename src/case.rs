@@ -283,6 +283,20 @@ impl Lookback {
         if count == 0 {
             return Err(bad());
         }
+        // Two centuries of history is more than any price file holds; the bound keeps the date
+        // arithmetic inside the calendar.
+        let most = match unit {
+            SpanUnit::Years => 200,
+            SpanUnit::Months => 2_400,
+            SpanUnit::Weeks => 10_400,
+            SpanUnit::Days => 73_000,
+        };
+        if count > most {
+            return Err(format!(
+                "beta.lookback = \"{text}\" reaches back more than two centuries; at most {most}{}",
+                &text[text.len() - 1..]
+            ));
+        }
         Ok(Lookback::Span { count, unit })
     }
 
@@ -332,10 +346,11 @@ impl<'de> Deserialize<'de> for Lookback {
 impl BetaSettings {
     /// The rolling window length and its minimum observations, for a window of `lookback`.
     pub fn rolling(&self, lookback: u32) -> (u32, u32) {
-        let window = self.rolling_window.unwrap_or(lookback / 2);
+        // Defaults never fall below the 3 observations a regression with an intercept needs.
+        let window = self.rolling_window.unwrap_or((lookback / 2).max(3));
         let min = self
             .rolling_min_observations
-            .unwrap_or_else(|| (window * 4).div_ceil(5));
+            .unwrap_or_else(|| (window * 4).div_ceil(5).max(3));
         (window, min)
     }
 
@@ -348,10 +363,13 @@ impl BetaSettings {
     /// span or between `window_start` and the window end.
     pub fn lookback_periods(&self, valuation_date: NaiveDate) -> u32 {
         let end = self.window_end_date(valuation_date);
+        // A span counts back from the last sample point, not from a date between two of them.
+        let last_point =
+            crate::sampling::last_point_on_or_before(self.frequency, self.weekday, end);
         let start = self
             .window_start
             .map(|d| d.0)
-            .or_else(|| self.lookback.span_start(end));
+            .or_else(|| self.lookback.span_start(last_point));
         match (start, self.lookback) {
             (Some(start), _) => {
                 crate::sampling::periods_between(self.frequency, self.weekday, start, end)
@@ -1069,6 +1087,15 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         -0.5,
         1.0,
     )?;
+    if case.leverage.debt_beta_source == DebtBetaSource::CreditSpread
+        && case.market.equity_risk_premium <= 0.0
+    {
+        return Err(format!(
+            "market.equity_risk_premium = {} with leverage.debt_beta_source = \"credit-spread\": \
+             the debt beta (Kd - rf) / ERP needs a positive equity risk premium",
+            case.market.equity_risk_premium
+        ));
+    }
     rate(
         "market.equity_risk_premium",
         case.market.equity_risk_premium,
@@ -1089,6 +1116,14 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             return Err(format!(
                 "beta.window_end = {end} is after case.valuation_date = {valuation_date}: no \
                  data later than the valuation date may be used"
+            ));
+        }
+    }
+    if let Lookback::Periods(n) = beta.lookback {
+        // 100 000 periods is four centuries of daily data; beyond it the calendar overflows.
+        if n > 100_000 {
+            return Err(format!(
+                "beta.lookback = {n} periods is more than any price history holds; at most 100000"
             ));
         }
     }

@@ -23,6 +23,9 @@ pub enum Error {
     /// A `--set` assignment could not be applied.
     #[error("--set {assignment}: {message}")]
     Override { assignment: String, message: String },
+    /// A command-line option or a case value outside the `--set` syntax is malformed.
+    #[error("{option}: {message}")]
+    Argument { option: String, message: String },
     /// A data file is malformed as a whole (missing column, not CSV, no rows).
     #[error("{}: {message}", file.display())]
     DataFile { file: PathBuf, message: String },

@@ -721,6 +721,18 @@ pub fn cost_of_capital(
         }
         _ => settings.target_debt_to_equity(),
     };
+    if !(target_de.is_finite() && target_de >= 0.0) {
+        return Err(Error::Case {
+            file: case.path.clone(),
+            message: format!(
+                "target.source = {}: the target debt-to-equity works out at {target_de}, below 0 \
+                 (net debt under leverage.debt_measure = {} is negative); a target structure \
+                 needs D/E >= 0",
+                crate::format::label(&settings.target.source),
+                crate::format::label(&settings.leverage.debt_measure)
+            ),
+        });
+    }
     let tax_rate = settings.target.tax_rate;
     let subject_debt = DebtTerms {
         debt_beta: subject_debt_beta(settings, cost_of_debt_pre_tax),

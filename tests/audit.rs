@@ -322,3 +322,65 @@ fn monte_carlo_median_converges_to_the_point_estimate() {
         );
     }
 }
+
+// A case that states its target as debt-to-capital runs, and its memo grid varies that ratio
+// (the default grid may not set the other one, which validation forbids alongside it).
+#[test]
+fn a_debt_to_capital_case_runs_with_its_own_grid_axis() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let text = std::fs::read_to_string(&case).unwrap();
+    assert!(text.contains("debt_to_equity = 0.40\n"));
+    // D/(D+E) = 0.4 / 1.4 for D/E = 0.4.
+    let edited = text.replace(
+        "debt_to_equity = 0.40\n",
+        "debt_to_capital = 0.2857142857142857\n",
+    );
+    std::fs::write(&case, edited).unwrap();
+    let result = run_case(&case, &dir.path().join("out"), &[]);
+    assert_eq!(
+        result["sensitivity"]["columns"]["key"],
+        "target.debt_to_capital"
+    );
+    // Weights from D/V directly: wD = 0.2857…, so 1e-15 covers the one division by 1 − r.
+    assert!((number(&result, "weights.debt") - 0.2857142857142857).abs() < 1e-15);
+}
+
+#[test]
+fn implied_refuses_inputs_the_case_does_not_take_as_given() {
+    let case = format!("{DEMO_DIR}/case.toml");
+    let output = hurdle(&[
+        "implied",
+        &case,
+        "--wacc",
+        "0.09",
+        "--solve",
+        "debt_to_equity",
+        "--set",
+        "target.source=peer-median",
+    ]);
+    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
+    assert!(
+        text(&output).contains("target.source = peer-median"),
+        "{}",
+        text(&output)
+    );
+    let output = hurdle(&[
+        "implied",
+        &case,
+        "--wacc",
+        "0.09",
+        "--solve",
+        "beta",
+        "--set",
+        "premiums.country=0.02",
+        "--set",
+        "premiums.country_method=beta",
+    ]);
+    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
+    assert!(
+        text(&output).contains("premiums.country_method"),
+        "{}",
+        text(&output)
+    );
+}

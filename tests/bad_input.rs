@@ -307,6 +307,44 @@ fn negative_target_debt_to_equity() {
     assert_number(&stderr, "-0.1");
 }
 
+// Net debt below zero (cash above debt) makes the subject's own D/E negative: no capital
+// structure has negative debt weight (definition of the weights, common practice).
+#[test]
+fn negative_resolved_target_structure() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&[
+        "--set",
+        "target.source=subject",
+        "--set",
+        "leverage.debt_measure=net",
+        "--set",
+        "target.subject_cash=1950",
+    ]);
+    assert_mentions(&stderr, &["target.source = subject", "below 0"]);
+}
+
+#[test]
+fn lookbacks_beyond_any_history_are_refused() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&["--set", "beta.lookback=4000000"]);
+    assert_mentions(&stderr, &["beta.lookback", "at most 100000"]);
+    assert_number(&stderr, "4000000");
+    let stderr = case.fail(&["--set", "beta.lookback=\"300000y\""]);
+    assert_mentions(&stderr, &["beta.lookback", "300000y"]);
+}
+
+#[test]
+fn credit_spread_debt_betas_need_a_positive_premium() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&[
+        "--set",
+        "leverage.debt_beta_source=credit-spread",
+        "--set",
+        "market.equity_risk_premium=0",
+    ]);
+    assert_mentions(&stderr, &["market.equity_risk_premium", "credit-spread"]);
+}
+
 #[test]
 fn unknown_key_in_case_file() {
     let case = CaseCopy::new();

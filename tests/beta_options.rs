@@ -248,6 +248,14 @@ fn lookback_spans_and_dates_resolve_by_the_calendar() {
     let monthly = run_with(dir.path(), &["beta.lookback=\"5y\""]);
     assert_eq!(monthly["sampling"]["lookback"], 60);
     assert_eq!(monthly["sampling"]["window_start"], "2021-09-30");
+    // A valuation date inside a month: the window ends at the last month-end before it
+    // (2026-08-31), and five years back from that sample point is again 60 month-end returns.
+    let mid_month = run_with(
+        dir.path(),
+        &["beta.lookback=\"5y\"", "case.valuation_date=2026-09-15"],
+    );
+    assert_eq!(mid_month["sampling"]["lookback"], 60);
+    assert_eq!(mid_month["sampling"]["window_start"], "2021-08-31");
     let weekly = run_with(
         dir.path(),
         &["beta.frequency=weekly", "beta.lookback=\"104w\""],

@@ -258,6 +258,9 @@ pub struct Bridge {
     pub steps: Vec<Step>,
     /// `to.stated_wacc − to.wacc`: what the claim's own components do not explain.
     pub unexplained: Option<f64>,
+    /// `from.stated_wacc − from.wacc`: for a case with preferred equity or leases, their share
+    /// of its WACC, which the build-up leaves out.
+    pub unexplained_from: Option<f64>,
 }
 
 /// Bridges `from` to `to`.
@@ -283,6 +286,7 @@ pub fn bridge(from: &Side, to: &Side) -> Bridge {
         difference: to.wacc - from.wacc,
         steps,
         unexplained: to.stated_wacc.map(|stated| stated - to.wacc),
+        unexplained_from: from.stated_wacc.map(|stated| stated - from.wacc),
     }
 }
 

@@ -7,7 +7,7 @@
 use serde::{Deserialize, Serialize};
 
 use super::case_error;
-use crate::case::with_overrides;
+use crate::case::{with_overrides, TargetSource};
 use crate::error::{Error, Result};
 use crate::valuation::{value_case, Inputs, Valuation};
 
@@ -69,11 +69,12 @@ pub struct Grid {
 /// The most cells one axis may have; a larger grid is a typo more often than a wish.
 const MAX_POINTS: usize = 101;
 
-/// Parses `key=low..high:step` (inclusive of `high` when the steps land on it).
-pub fn parse_axis(spec: &str) -> Result<Axis> {
+/// Parses `key=low..high:step` (inclusive of `high` when the steps land on it). `origin` names
+/// where the axis was given (`--rows`, `sensitivity.columns`, …) for messages.
+pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
     let fail = |message: String| {
-        Error::Override {
-        assignment: spec.to_string(),
+        Error::Argument {
+        option: format!("{origin} {spec}"),
         message: format!("{message}; an axis is written KEY=LOW..HIGH:STEP, e.g. market.equity_risk_premium=0.04..0.07:0.005"),
     }
     };
@@ -121,23 +122,37 @@ pub fn parse_axis(spec: &str) -> Result<Axis> {
     })
 }
 
-/// The memo's default axes: the equity risk premium ±1 point in half points, against the target
-/// debt-to-equity from 0 to twice the target in quarters (0 to 1 when the target is 0).
+/// The memo's default axes: the equity risk premium ±1 point in half points (rows), against the
+/// target ratio the case gives from 0 to twice its value in quarters (0 to 1 for a D/E of 0;
+/// a debt-to-capital at most 0.9). A target taken from the peers or the subject has no ratio to
+/// vary, so the columns are then the risk-free rate ±1 point.
 pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
-    let erp = valuation.cost.equity_risk_premium;
-    let rows = Axis {
-        key: "market.equity_risk_premium".into(),
+    let round = |v: f64| (v * 1e12).round() / 1e12;
+    let around = |key: &str, centre: f64| Axis {
+        key: key.into(),
         values: (-2..=2)
-            .map(|i| ((erp + 0.005 * f64::from(i)) * 1e12).round() / 1e12)
+            .map(|i| round(centre + 0.005 * f64::from(i)))
             .collect(),
     };
-    let target = valuation.cost.target.debt_to_equity;
-    let span = if target > 0.0 { 2.0 * target } else { 1.0 };
-    let columns = Axis {
-        key: "target.debt_to_equity".into(),
-        values: (0..=4)
-            .map(|i| ((span * f64::from(i) / 4.0) * 1e12).round() / 1e12)
-            .collect(),
+    let from_zero = |key: &str, span: f64| Axis {
+        key: key.into(),
+        values: (0..=4).map(|i| round(span * f64::from(i) / 4.0)).collect(),
+    };
+    let rows = around(
+        "market.equity_risk_premium",
+        valuation.cost.equity_risk_premium,
+    );
+    let target = &valuation.settings.target;
+    let columns = match (target.source, target.debt_to_equity, target.debt_to_capital) {
+        (TargetSource::Explicit, Some(de), _) => from_zero(
+            "target.debt_to_equity",
+            if de > 0.0 { 2.0 * de } else { 1.0 },
+        ),
+        (TargetSource::Explicit, None, Some(dc)) => from_zero(
+            "target.debt_to_capital",
+            if dc > 0.0 { (2.0 * dc).min(0.9) } else { 0.8 },
+        ),
+        _ => around("market.risk_free_rate", valuation.cost.risk_free_rate),
     };
     (rows, columns)
 }
@@ -183,13 +198,13 @@ mod tests {
 
     #[test]
     fn axes_parse_inclusively() {
-        let axis = parse_axis("market.equity_risk_premium=0.04..0.07:0.005").unwrap();
+        let axis = parse_axis("--rows", "market.equity_risk_premium=0.04..0.07:0.005").unwrap();
         assert_eq!(
             axis.values,
             vec![0.04, 0.045, 0.05, 0.055, 0.06, 0.065, 0.07]
         );
         assert_eq!(axis.assignment(3), "market.equity_risk_premium=0.055");
-        let single = parse_axis("target.debt_to_equity=0.5..0.5:0.1").unwrap();
+        let single = parse_axis("--cols", "target.debt_to_equity=0.5..0.5:0.1").unwrap();
         assert_eq!(single.values, vec![0.5]);
     }
 
@@ -204,7 +219,7 @@ mod tests {
             ("k=a..0.07:0.01", "`a` is not a number"),
             ("k=0..10:0.01", "at most"),
         ] {
-            let message = parse_axis(spec).unwrap_err().to_string();
+            let message = parse_axis("--rows", spec).unwrap_err().to_string();
             assert!(message.contains(expected), "{spec}: {message}");
         }
     }

@@ -11,7 +11,7 @@
 use serde::Serialize;
 
 use super::bridge::Side;
-use crate::case::with_overrides;
+use crate::case::{with_overrides, CountryMethod, TargetSource};
 use crate::error::{Error, Result};
 use crate::valuation::{value_case, Inputs, Valuation};
 
@@ -94,8 +94,8 @@ pub fn implied(
 ) -> Result<Implied> {
     let (low, high) = range.unwrap_or_else(|| target.default_range());
     if !(low.is_finite() && high.is_finite() && low < high) {
-        return Err(Error::Override {
-            assignment: format!("--range {low}..{high}"),
+        return Err(Error::Argument {
+            option: format!("--range {low}..{high}"),
             message: "the range must be LOW..HIGH with LOW < HIGH".into(),
         });
     }
@@ -105,6 +105,25 @@ pub fn implied(
             file: inputs.case.path.clone(),
             message: "the cost of debt comes from a spread table (debt.source); solve for it \
                       with --set debt.source=given"
+                .into(),
+        });
+    }
+    if target == Target::DebtToEquity && settings.target.source != TargetSource::Explicit {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: format!(
+                "target.source = {}: the target structure is not a ratio of the case, so none can \
+                 be solved for; use --set target.source=explicit",
+                crate::format::label(&settings.target.source)
+            ),
+        });
+    }
+    // The build-up holds the premiums fixed; a country premium scaled by beta moves with it.
+    if target == Target::Beta && settings.premiums.country_method == CountryMethod::Beta {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: "premiums.country_method = \"beta\" scales the country premium by the beta \
+                      being solved for; solve for another input"
                 .into(),
         });
     }
@@ -155,7 +174,13 @@ pub fn implied(
         .iter()
         .map(|&x| Ok(wacc_at(x)? - claimed))
         .collect::<Result<Vec<f64>>>()?;
-    let crossing = |i: usize| gaps[i] == 0.0 || (gaps[i] < 0.0) != (gaps[i + 1] < 0.0);
+    // An interval crosses when the claim lies at its left end or strictly inside it; a root on
+    // its right end belongs to the next interval (or to the last one, at the range's end).
+    let crossing = |i: usize| {
+        gaps[i] == 0.0
+            || (gaps[i + 1] != 0.0 && (gaps[i] < 0.0) != (gaps[i + 1] < 0.0))
+            || (i + 1 == INTERVALS && gaps[i + 1] == 0.0)
+    };
     let crossings = (0..INTERVALS).filter(|&i| crossing(i)).count();
     let wacc_min = gaps.iter().fold(f64::INFINITY, |m, g| m.min(g + claimed));
     let wacc_max = gaps

@@ -21,11 +21,11 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let sensitivity = &inputs.case.settings.sensitivity;
     let (rows, columns) = grid::default_axes(&valuation);
     let rows = match &sensitivity.rows {
-        Some(spec) => grid::parse_axis(spec)?,
+        Some(spec) => grid::parse_axis("sensitivity.rows", spec)?,
         None => rows,
     };
     let columns = match &sensitivity.columns {
-        Some(spec) => grid::parse_axis(spec)?,
+        Some(spec) => grid::parse_axis("sensitivity.columns", spec)?,
         None => columns,
     };
     valuation.sensitivity = Some(grid::grid(inputs, &rows, &columns, sensitivity.metric)?);

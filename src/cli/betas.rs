@@ -144,10 +144,7 @@ fn table(v: &Valuation) -> String {
     }
     out.push_str(&format!(
         "beta* = beta used ({} adjustment); frequency {}, window {} to {}\n",
-        match v.peers.first().and_then(|p| p.adjusted_beta) {
-            Some(_) => "Blume",
-            None => "no",
-        },
+        label(&v.settings.beta.adjustment),
         hurdle::format::label(&v.sampling.frequency),
         v.sampling.window_start,
         v.sampling.window_end

@@ -64,9 +64,20 @@ fn render(b: &Bridge) -> String {
         basis_points(b.difference),
         basis_points(b.difference)
     ));
-    if let Some(gap) = b.unexplained.filter(|g| g.abs() > 5e-7) {
+    // Half a basis point: what the printed figures can show.
+    let visible = |gap: &f64| gap.abs() >= 5e-5;
+    if let Some(gap) = b.unexplained.filter(visible) {
         out.push_str(&format!(
-            "note: the claim states a WACC {} away from what its own components give\n",
+            "note: {} states a WACC {} away from what its own components give\n",
+            b.to.label,
+            basis_points(gap)
+        ));
+    }
+    if let Some(gap) = b.unexplained_from.filter(visible) {
+        out.push_str(&format!(
+            "note: {} states a WACC {} away from its equity-and-debt build-up (preferred \
+             equity and leases are not bridged)\n",
+            b.from.label,
             basis_points(gap)
         ));
     }

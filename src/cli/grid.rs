@@ -30,8 +30,8 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
-    let rows = parse_axis(&args.rows)?;
-    let columns = parse_axis(&args.cols)?;
+    let rows = parse_axis("--rows", &args.rows)?;
+    let columns = parse_axis("--cols", &args.cols)?;
     let table = grid(&args.case.inputs()?, &rows, &columns, args.metric)?;
     let mut out = format!("{:>14}", "");
     for c in &table.columns.values {
