@@ -141,10 +141,27 @@ def check_estimator(name, peer, data, asset, market, result):
         check(f"{name} Vasicek weight", peer["vasicek"]["weight_on_estimate"], w)
         check(f"{name} Vasicek SE", peer["vasicek"]["std_error"], np.sqrt(1 / (1 / var + 1 / peer["beta_std_error"] ** 2)))
     check(f"{name} beta used", peer["beta_used"], used)
+    check_unlevered(name, peer, used, result)
+
+
+def check_unlevered(name, peer, used, result):
+    """D/E (gross or net of cash) and the unlevered beta by the case's formula: Hamada (1972);
+    Harris-Pringle (1985), Miles-Ezzell (1980) and Conine (1980) solved for the asset beta."""
     spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
     de = spec["debt"] / spec["equity_value"]
+    if result["settings"]["leverage"]["debt_measure"] == "net":
+        de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
+    check(f"{name} D/E", peer["debt_to_equity"], de)
     if result["beta"]["formula"] == "hamada":
         check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
+        return
+    bd = peer["debt_beta"]
+    if result["settings"]["leverage"]["debt_beta_source"] == "credit-spread" and "debt_beta" not in spec:
+        # The CAPM solved for the beta of debt priced at Kd: (Kd - rf) / ERP.
+        kd = spec.get("cost_of_debt", result["cost_of_debt_pre_tax"])
+        check(f"{name} debt beta from spread", bd, (kd - result["risk_free_rate"]) / result["equity_risk_premium"])
+    s = tax_factor(result["beta"]["formula"], spec["tax_rate"], peer["cost_of_debt"])
+    check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
 
 def shifted_columns(data):
@@ -318,22 +335,7 @@ def main(out_dir):
         else:
             assert peer["adjusted_beta"] is None
         check(f"{name} beta used", peer["beta_used"], used)
-        spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
-        de = spec["debt"] / spec["equity_value"]
-        if result["settings"]["leverage"]["debt_measure"] == "net":
-            de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
-        check(f"{name} D/E", peer["debt_to_equity"], de)
-        if result["beta"]["formula"] == "hamada":
-            check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
-        else:
-            # Harris-Pringle (1985), Miles-Ezzell (1980), Conine (1980), solved for the asset beta.
-            bd = peer["debt_beta"]
-            if result["settings"]["leverage"]["debt_beta_source"] == "credit-spread" and "debt_beta" not in spec:
-                # The CAPM solved for the beta of debt priced at Kd: (Kd - rf) / ERP.
-                kd = spec.get("cost_of_debt", result["cost_of_debt_pre_tax"])
-                check(f"{name} debt beta from spread", bd, (kd - result["risk_free_rate"]) / result["equity_risk_premium"])
-            s = tax_factor(result["beta"]["formula"], spec["tax_rate"], peer["cost_of_debt"])
-            check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
+        check_unlevered(name, peer, used, result)
 
     # Excluded peers are estimated and shown but not aggregated.
     included = [p for p in result["peers"] if p.get("excluded_reason") is None]
@@ -367,9 +369,21 @@ def main(out_dir):
     check("upper quartile (numpy)", d["upper_quartile"], np.percentile(unlevered, 75))
     check("std dev (numpy, ddof=1)", d["std_dev"], np.std(unlevered, ddof=1))
 
+    # The rates and the target as the case states them, not as hurdle echoes them.
+    market = result["settings"]["market"]
+    check("risk-free rate from the case", result["risk_free_rate"], market["risk_free_rate"])
+    check("ERP from the case", result["equity_risk_premium"], market["equity_risk_premium"])
+    if result["settings"]["debt"]["source"] == "given":
+        check("pre-tax Kd from the case", result["cost_of_debt_pre_tax"], result["settings"]["debt"]["cost_pre_tax"])
     target = result["target"]
     de, t = target["debt_to_equity"], target["tax_rate"]
     tset = result["settings"]["target"]
+    check("tax rate from the case", t, tset["tax_rate"])
+    if tset["source"] == "explicit":
+        given = tset.get("debt_to_equity")
+        if given is None:
+            given = tset["debt_to_capital"] / (1 - tset["debt_to_capital"])
+        check("target D/E from the case", de, given)
     net = leverage["debt_measure"] == "net"
     if tset["source"] == "peer-median":
         ratios = [(p["debt"] - (p["cash"] if net else 0)) / p["equity_value"] for p in result["settings"]["peer"]
