@@ -282,30 +282,6 @@ pub fn last_month_end_on_or_before(date: NaiveDate) -> NaiveDate {
 }
 
 impl PeriodGrid {
-    /// The grid for `lookback` returns ending at the last period end on or before `as_of`:
-    /// `lookback + 1` sample points, plus one earlier boundary that opens the first period.
-    pub fn ending_at(frequency: Frequency, as_of: NaiveDate, lookback: u32) -> PeriodGrid {
-        match frequency {
-            Frequency::Daily | Frequency::Weekly | Frequency::Quarterly => {
-                PeriodGrid::ending_at_with(frequency, SampleWeekday::Wednesday, as_of, lookback)
-            }
-            Frequency::Monthly => {
-                let mut boundaries = Vec::with_capacity(lookback as usize + 2);
-                let mut end = last_month_end_on_or_before(as_of);
-                boundaries.push(end);
-                for _ in 0..=lookback {
-                    end = last_month_end_on_or_before(end.with_day(1).expect("day 1 exists"));
-                    boundaries.push(end);
-                }
-                boundaries.reverse();
-                PeriodGrid {
-                    frequency,
-                    boundaries,
-                }
-            }
-        }
-    }
-
     /// The dates on which samples are taken (all boundaries but the first).
     pub fn sample_points(&self) -> &[NaiveDate] {
         &self.boundaries[1..]
@@ -540,7 +516,12 @@ mod tests {
 
     #[test]
     fn grid_holds_lookback_plus_two_boundaries() {
-        let grid = PeriodGrid::ending_at(Frequency::Monthly, date("2026-10-15"), 3);
+        let grid = PeriodGrid::ending_at_with(
+            Frequency::Monthly,
+            SampleWeekday::Wednesday,
+            date("2026-10-15"),
+            3,
+        );
         let expected: Vec<NaiveDate> = [
             "2026-05-31",
             "2026-06-30",
@@ -573,7 +554,12 @@ mod tests {
         .map(|d| date(d))
         .collect();
         let values = vec![10.0, 11.0, 12.0, 13.0, 14.0, 15.0, 99.0];
-        let grid = PeriodGrid::ending_at(Frequency::Monthly, date("2026-09-30"), 3);
+        let grid = PeriodGrid::ending_at_with(
+            Frequency::Monthly,
+            SampleWeekday::Wednesday,
+            date("2026-09-30"),
+            3,
+        );
         // Sample points: Jun 30, Jul 31, Aug 31, Sep 30; May 29 lies before the first period.
         let samples = sample(
             &grid,
