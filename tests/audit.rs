@@ -3,7 +3,7 @@
 //! figures copied from hurdle's own output.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::Output;
 
 use hurdle::audit::bridge::{bridge, read_side};
 use hurdle::audit::uncertainty::simulate;
@@ -12,14 +12,7 @@ use hurdle::valuation::{load_inputs, value};
 
 mod common;
 
-use common::{copy_demo_case, DEMO_DIR};
-
-fn hurdle(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_hurdle"))
-        .args(args)
-        .output()
-        .expect("hurdle runs")
-}
+use common::{copy_demo_case, hurdle, number, DEMO_DIR};
 
 fn text(output: &Output) -> String {
     format!(
@@ -105,10 +98,6 @@ fn verify_refuses_a_receipt_from_a_newer_schema() {
         "{}",
         text(&output)
     );
-}
-
-fn number(v: &serde_json::Value, path: &str) -> f64 {
-    path.split('.').fold(v, |v, k| &v[k]).as_f64().unwrap()
 }
 
 // Plugging the implied value back in reproduces the claim: 1e-10 is the bar; bisection

@@ -5,16 +5,10 @@
 //! no output.
 
 use std::path::Path;
-use std::process::{Command, Output};
 
-const DEMO_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh/case.toml");
+mod common;
 
-fn hurdle(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_hurdle"))
-        .args(args)
-        .output()
-        .expect("hurdle runs")
-}
+use common::{hurdle, reference_check, DEMO_CASE};
 
 fn run_with<S: AsRef<str> + std::fmt::Debug>(out: &Path, settings: &[S]) -> serde_json::Value {
     let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
@@ -28,25 +22,6 @@ fn run_with<S: AsRef<str> + std::fmt::Debug>(out: &Path, settings: &[S]) -> serd
         String::from_utf8_lossy(&output.stderr)
     );
     serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
-}
-
-fn reference_check(out: &Path) -> String {
-    let script = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/reference/check_regressions.py"
-    );
-    let output = Command::new("python3")
-        .arg(script)
-        .arg(out)
-        .output()
-        .expect("python3 must be installed for the reference check");
-    let stdout = String::from_utf8_lossy(&output.stdout).to_string();
-    assert!(
-        output.status.success(),
-        "{stdout}\n{}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    stdout
 }
 
 /// Each method × each kind of standard error, plus leads, an explicit Newey–West lag count and
@@ -85,7 +60,7 @@ fn numpy_and_scipy_agree_with_every_estimator() {
     for settings in configurations {
         let dir = tempfile::tempdir().unwrap();
         let result = run_with(dir.path(), &settings);
-        let report = reference_check(dir.path());
+        let report = reference_check(dir.path(), "beta options");
         assert!(report.contains(" 0 failed"), "{settings:?}: {report}");
         let method = settings
             .iter()
@@ -277,7 +252,7 @@ fn lookback_spans_and_dates_resolve_by_the_calendar() {
         ],
     );
     assert_eq!(logs["sampling"]["return_type"], "log");
-    let report = reference_check(dir.path());
+    let report = reference_check(dir.path(), "beta options");
     assert!(report.contains(" 0 failed"), "{report}");
 }
 
@@ -352,7 +327,7 @@ fn rolling_betas_match_a_fresh_fit_of_every_window() {
     // 60 periods, windows of 24 ending every 3rd period from the 24th: 24, 27, …, 60 → 13.
     let brenvale = csv.lines().filter(|l| l.starts_with("Brenvale")).count();
     assert_eq!(brenvale, 13);
-    let report = reference_check(dir.path());
+    let report = reference_check(dir.path(), "beta options");
     assert!(report.contains(" 0 failed"), "{report}");
     rejects(&["beta.rolling_window=61"], &["beta.rolling_window = 61"]);
     rejects(&["beta.rolling_step=0"], &["beta.rolling_step = 0"]);

@@ -4,17 +4,11 @@
 //! inputs of these options with their messages.
 
 use std::path::Path;
-use std::process::Command;
 
-const DEMO_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh/case.toml");
+mod common;
+
+use common::{hurdle, number, reference_check, DEMO_CASE};
 const FORMULAS: [&str; 4] = ["hamada", "harris-pringle", "miles-ezzell", "conine"];
-
-fn hurdle(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_hurdle"))
-        .args(args)
-        .output()
-        .expect("hurdle runs")
-}
 
 fn run_demo(out: &Path, sets: &[&str]) -> serde_json::Value {
     let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
@@ -43,29 +37,6 @@ fn fails(sets: &[&str]) -> String {
     assert_eq!(output.status.code(), Some(2), "{sets:?} should fail");
     assert!(!out.exists(), "{sets:?}: output written on failure");
     String::from_utf8_lossy(&output.stderr).into_owned()
-}
-
-/// Runs tests/reference/check_regressions.py (numpy, scipy, textbook formulas) on a run's output.
-fn reference_check(out: &Path, label: &str) {
-    let script = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/reference/check_regressions.py"
-    );
-    let output = Command::new("python3")
-        .arg(script)
-        .arg(out)
-        .output()
-        .expect("python3 must be installed for the reference check");
-    let stdout = String::from_utf8_lossy(&output.stdout);
-    assert!(output.status.success(), "{label}: {stdout}");
-    assert!(stdout.contains(" 0 failed"), "{label}: {stdout}");
-}
-
-fn number(v: &serde_json::Value, path: &str) -> f64 {
-    path.split('.')
-        .fold(v, |v, key| &v[key])
-        .as_f64()
-        .unwrap_or_else(|| panic!("{path} is not a number"))
 }
 
 /// Textbook WACC on result.json's own components: wE·Ke + wD·Kd·(1 − t*) + wP·Kp + wL·KL·(1 − t*).

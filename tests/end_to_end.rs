@@ -3,16 +3,10 @@
 //! timestamp, and an independent numpy/scipy recomputation (tests/reference) agrees.
 
 use std::path::Path;
-use std::process::Command;
 
-const DEMO_CASE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh/case.toml");
+mod common;
 
-fn hurdle(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_hurdle"))
-        .args(args)
-        .output()
-        .expect("hurdle runs")
-}
+use common::{hurdle, number, reference_check, DEMO_CASE};
 
 fn run_demo(out: &Path, extra: &[&str]) -> serde_json::Value {
     let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
@@ -24,13 +18,6 @@ fn run_demo(out: &Path, extra: &[&str]) -> serde_json::Value {
         String::from_utf8_lossy(&output.stderr)
     );
     serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
-}
-
-fn number(v: &serde_json::Value, path: &str) -> f64 {
-    path.split('.')
-        .fold(v, |v, key| &v[key])
-        .as_f64()
-        .unwrap_or_else(|| panic!("{path} is not a number"))
 }
 
 #[test]
@@ -178,20 +165,5 @@ fn betas_command_prints_the_same_estimates_as_run() {
 fn numpy_and_scipy_agree_with_every_figure() {
     let dir = tempfile::tempdir().unwrap();
     run_demo(dir.path(), &[]);
-    let script = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/reference/check_regressions.py"
-    );
-    let output = Command::new("python3")
-        .arg(script)
-        .arg(dir.path())
-        .output()
-        .expect("python3 must be installed for the reference check");
-    let stdout = String::from_utf8_lossy(&output.stdout);
-    let stderr = String::from_utf8_lossy(&output.stderr);
-    assert!(
-        output.status.success(),
-        "reference check failed (install numpy and scipy: python3 -m pip install numpy scipy)\n{stdout}\n{stderr}"
-    );
-    assert!(stdout.contains(" 0 failed"), "{stdout}");
+    reference_check(dir.path(), "demo case");
 }
