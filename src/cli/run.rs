@@ -5,7 +5,7 @@
 
 use std::path::PathBuf;
 
-use hurdle::format::{fixed, percent};
+use hurdle::format::{fixed, label, percent};
 use hurdle::output::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
 
@@ -50,16 +50,25 @@ fn summary(v: &Valuation) -> String {
             v.case.title, v.case.valuation_date
         ),
         format!(
-            "  peers {} | unlevered beta ({}) {} | relevered {} at D/E {}",
+            "  {} beta, {} returns, adjustment {}; {} unlevering",
+            label(&v.estimator.method),
+            label(&v.sampling.frequency),
+            label(&v.settings.beta.adjustment),
+            label(&v.cost.beta.formula)
+        ),
+        format!(
+            "  peers {} ({} aggregated) | unlevered beta ({}) {} | relevered {} at D/E {}",
             v.peers.len(),
-            hurdle::format::label(&v.cost.beta.aggregation),
+            v.cost.beta.peers_included,
+            label(&v.cost.beta.aggregation),
             fixed(v.cost.beta.unlevered, 3),
             fixed(v.cost.beta.relevered, 3),
             fixed(v.cost.target.debt_to_equity, 3)
         ),
         format!(
-            "  cost of equity {} | cost of debt {} pre-tax, {} after tax",
+            "  cost of equity {} | cost of debt ({}) {} pre-tax, {} after tax",
             percent(v.cost.cost_of_equity, 2),
+            label(&v.cost.cost_of_debt.source),
             percent(v.cost.cost_of_debt_pre_tax, 2),
             percent(v.cost.cost_of_debt_after_tax, 2)
         ),

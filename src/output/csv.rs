@@ -13,7 +13,7 @@ pub struct PeersCsv;
 /// Long form: one row per peer and return period.
 pub struct ReturnsCsv;
 
-const PEER_COLUMNS: [&str; 24] = [
+const PEER_COLUMNS: [&str; 28] = [
     "name",
     "prices_file",
     "observations",
@@ -38,6 +38,10 @@ const PEER_COLUMNS: [&str; 24] = [
     "large_studentised_residuals",
     "flags",
     "excluded_reason",
+    "debt_beta",
+    "cost_of_debt",
+    "cash_share_of_capital",
+    "cash_corrected_unlevered_beta",
 ];
 
 impl Render for PeersCsv {
@@ -69,8 +73,8 @@ impl Render for PeersCsv {
                 p.tax_rate.to_string(),
                 p.unlevered_beta.to_string(),
                 e.residual_std_error.to_string(),
-                json_text(&e.method),
-                json_text(&e.std_errors),
+                crate::format::label(&e.method),
+                crate::format::label(&e.std_errors),
                 e.durbin_watson.to_string(),
                 e.large_studentised_residuals.to_string(),
                 field(
@@ -81,6 +85,10 @@ impl Render for PeersCsv {
                         .join(";"),
                 ),
                 field(p.excluded_reason.as_deref().unwrap_or("")),
+                p.debt_beta.to_string(),
+                p.cost_of_debt.to_string(),
+                p.cash_share_of_capital.to_string(),
+                p.cash_corrected_unlevered_beta.to_string(),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');
@@ -131,14 +139,6 @@ impl Render for ReturnsCsv {
         }
         Ok(out.into_bytes())
     }
-}
-
-/// The serde name of a unit enum value (`dimson`, `newey-west`, `low_r_squared`).
-fn json_text<T: serde::Serialize>(value: &T) -> String {
-    serde_json::to_value(value)
-        .ok()
-        .and_then(|v| v.as_str().map(str::to_string))
-        .unwrap_or_default()
 }
 
 /// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).
