@@ -81,6 +81,18 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
     assert!(report.contains("MISMATCH peers[4].beta:"), "{report}");
     assert!(!report.contains("MISMATCH peers[0].beta:"), "{report}");
     assert!(report.contains("MISMATCH files[6].sha256"), "{report}");
+    // The written status for the reviewer's file says the same.
+    let status_dir = dir.path().join("status");
+    let written = hurdle(&[
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        status_dir.to_str().unwrap(),
+    ]);
+    assert_eq!(written.status.code(), Some(1));
+    let status = std::fs::read_to_string(status_dir.join("verification.md")).unwrap();
+    assert!(status.contains("**NOT REPRODUCED**"), "{status}");
+    assert!(status.contains("| `peers[4].beta` |"), "{status}");
 }
 
 #[test]

@@ -2,7 +2,8 @@
 //!
 //! Reruns the case the receipt names and reports, figure by figure, what matches; with `--out`
 //! also writes `verification.json`. Exit 0 only when every input file is unchanged and every
-//! figure matches; 1 otherwise.
+//! figure matches; 1 otherwise. `--out` also writes `verification.md`, the same verdict for the
+//! reviewer's file.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -36,6 +37,8 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         let mut bytes = serde_json::to_vec_pretty(&report).expect("a report always serialises");
         bytes.push(b'\n');
         hurdle::output::write_file(&dir.join("verification.json"), &bytes)?;
+        let markdown = hurdle::output::verification::markdown(&report);
+        hurdle::output::write_file(&dir.join("verification.md"), markdown.as_bytes())?;
     }
     Ok(if report.reproduced {
         ExitCode::SUCCESS

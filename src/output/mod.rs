@@ -7,6 +7,7 @@ pub mod csv;
 pub mod json;
 pub mod memo;
 pub mod rolling;
+pub mod verification;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
