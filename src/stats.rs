@@ -45,21 +45,6 @@ pub enum Aggregation {
 }
 
 impl Aggregation {
-    /// The median or mean of a [`Dispersion`].
-    ///
-    /// # Panics
-    /// For the market-cap-weighted and trimmed means, which need more than a dispersion; use
-    /// [`Aggregation::select`].
-    pub fn pick(self, summary: &Dispersion) -> f64 {
-        match self {
-            Aggregation::Median => summary.median,
-            Aggregation::Mean => summary.mean,
-            Aggregation::MarketCapWeighted | Aggregation::TrimmedMean => {
-                panic!("{self:?} needs weights or a trim fraction; use Aggregation::select")
-            }
-        }
-    }
-
     /// This statistic out of all of them.
     pub fn select(self, statistics: &Locations) -> f64 {
         match self {
