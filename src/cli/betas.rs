@@ -2,8 +2,8 @@
 //!
 //! Prints each peer's beta estimate and its statistics; writes no file.
 
-use hurdle::format::{fixed, label};
-use hurdle::frequency_comparison::FrequencyRun;
+use hurdle::report::format::{fixed, label};
+use hurdle::audit::frequency_comparison::FrequencyRun;
 use hurdle::valuation::Valuation;
 
 use super::CaseArgs;
@@ -30,7 +30,7 @@ pub struct Args {
 pub fn run(args: &Args) -> hurdle::Result<()> {
     if args.compare_frequencies {
         let (inputs, valuation) = args.case.inputs_and_valuation()?;
-        let runs = hurdle::frequency_comparison::compare_frequencies(
+        let runs = hurdle::audit::frequency_comparison::compare_frequencies(
             &inputs,
             &valuation,
             &valuation.generated_at,
@@ -145,7 +145,7 @@ fn table(v: &Valuation) -> String {
     out.push_str(&format!(
         "beta* = beta used ({} adjustment); frequency {}, window {} to {}\n",
         label(&v.settings.beta.adjustment),
-        hurdle::format::label(&v.sampling.frequency),
+        hurdle::report::format::label(&v.sampling.frequency),
         v.sampling.window_start,
         v.sampling.window_end
     ));

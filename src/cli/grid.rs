@@ -7,7 +7,7 @@
 use std::path::PathBuf;
 
 use hurdle::audit::grid::{grid, parse_axis, Metric};
-use hurdle::format::percent;
+use hurdle::report::format::percent;
 
 use super::CaseArgs;
 
@@ -48,14 +48,14 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     out.push_str(&format!(
         "rows: {}; cells: {}\n",
         table.rows.key,
-        hurdle::format::label(&table.metric)
+        hurdle::report::format::label(&table.metric)
     ));
     print!("{out}");
     let path = args
         .csv
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir().join("grid.csv"));
-    hurdle::output::write_file(&path, &hurdle::output::csv::grid_csv(&table))?;
+    hurdle::report::write_file(&path, &hurdle::report::csv::grid_csv(&table))?;
     println!("  wrote {}", path.display());
     Ok(())
 }

@@ -7,8 +7,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::format::fixed;
-use hurdle::output::{self, rolling::RollingCsv, Render};
+use hurdle::report::format::fixed;
+use hurdle::report::{self, rolling::RollingCsv, Render};
 
 use super::CaseArgs;
 

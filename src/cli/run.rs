@@ -5,8 +5,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::format::{fixed, label, percent};
-use hurdle::output::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
+use hurdle::report::format::{fixed, label, percent};
+use hurdle::report::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
 
 use super::CaseArgs;

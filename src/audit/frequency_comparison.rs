@@ -9,7 +9,7 @@
 
 use crate::case::{validate, CaseDate};
 use crate::error::Result;
-use crate::sampling::Frequency;
+use crate::market::sampling::Frequency;
 use crate::valuation::{value, Inputs, Valuation};
 
 /// Every frequency, fastest first.
