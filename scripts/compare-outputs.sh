@@ -58,8 +58,8 @@ for combo in "${combos[@]}"; do
     name=${file##*/}; name=${name#old}
     other="$work/new/$name"; [ -e "$other" ] || other="$work/new${name}"
     [ -f "$file" ] || continue
-    if ! diff -q <(grep -v -e '"generated_at"' -e '^Generated' -e 'generated' "$file") \
-                 <(grep -v -e '"generated_at"' -e '^Generated' -e 'generated' "$other") >/dev/null 2>&1; then
+    if ! diff -q <(sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z/TIMESTAMP/' "$file") \
+                 <(sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z/TIMESTAMP/' "$other") >/dev/null 2>&1; then
       echo "DIFFERS [${combo:-demo}]: $name"; status=1
     fi
   done

@@ -11,16 +11,17 @@
 //! verify, implied, bridge) → [`report`] (memo, JSON, CSV, number formatting). [`demo`] generates
 //! the invented demo case. No module imports one to its right.
 
-pub mod io;
-pub mod market;
-pub mod stats;
+pub mod audit;
 pub mod beta;
 pub mod capital;
 pub mod case;
-pub mod valuation;
-pub mod audit;
-pub mod report;
 pub mod demo;
 pub mod error;
+pub mod estimate;
+pub mod io;
+pub mod market;
+pub mod report;
+pub mod stats;
+pub mod valuation;
 
 pub use error::{Error, Result};

@@ -12,14 +12,14 @@
 
 use std::path::Path;
 
-use serde::{Deserialize, Serialize};
+use serde::Deserialize;
 
-use crate::case::read_case;
 use crate::capital::cost;
-use crate::io::series::sha256_hex;
+use crate::case::read_case;
 use crate::error::{Error, Result};
-use crate::valuation::{load_inputs, value};
+use crate::io::series::sha256_hex;
 pub use crate::valuation::analyses::{Bridge, BuildUp, Group, Side, Step};
+use crate::valuation::{load_inputs, value};
 
 /// `[claimed]`: a build-up handed over by someone else.
 #[derive(Debug, Clone, Deserialize)]
@@ -195,6 +195,7 @@ mod tests {
             tax_rate: 0.25,
             equity_weight: 1.0 / 1.4,
             debt_weight: 0.4 / 1.4,
+            ..BuildUp::default()
         }
     }
 
@@ -224,6 +225,7 @@ mod tests {
             tax_rate: 0.3,
             equity_weight: 0.6,
             debt_weight: 0.4,
+            ..BuildUp::default()
         };
         let bridge = bridge(&side(a), &side(b));
         let steps: f64 = bridge.steps.iter().map(|s| s.contribution).sum();

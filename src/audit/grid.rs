@@ -6,18 +6,20 @@
 //! are estimated. An axis is written `key=low..high:step`.
 
 use super::case_error;
+use crate::case::Metric;
 use crate::case::{with_overrides, TargetSource};
 use crate::error::{Error, Result};
-use crate::case::Metric;
-use crate::valuation::{cost_of_capital, estimates_for, CostOfCapital, Inputs, PeerEstimates, Valuation};
 pub use crate::valuation::analyses::{Axis, Grid};
+use crate::valuation::{
+    cost_of_capital, estimates_for, CostOfCapital, Inputs, PeerEstimates, Valuation,
+};
 
 /// The figure `metric` names.
 fn read(metric: Metric, cost: &CostOfCapital) -> f64 {
-        match metric {
-            Metric::Wacc => cost.wacc,
-            Metric::CostOfEquity => cost.cost_of_equity,
-        }
+    match metric {
+        Metric::Wacc => cost.wacc,
+        Metric::CostOfEquity => cost.cost_of_equity,
+    }
 }
 
 /// The most cells one axis may have; a larger grid is a typo more often than a wish.

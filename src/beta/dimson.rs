@@ -8,8 +8,8 @@
 
 use super::BetaMethod;
 use crate::error::{Error, Result};
-use crate::stats::least_squares::{ols, with_std_errors, StdErrors};
 use crate::market::sampling::ShiftedMarket;
+use crate::stats::least_squares::{ols, with_std_errors, StdErrors};
 
 use super::{from_fit, BetaEstimate};
 

@@ -15,11 +15,11 @@ use nalgebra::DMatrix;
 use serde::Serialize;
 
 use crate::error::{Error, Result};
+use crate::market::sampling::ShiftedMarket;
+use crate::stats;
 use crate::stats::least_squares::{
     design_with_intercept, newey_west_default_lags, ols, with_std_errors, OlsFit, StdErrors,
 };
-use crate::market::sampling::ShiftedMarket;
-use crate::stats;
 pub use spec::{Adjustment, BetaMethod, EstimatorSpec};
 
 /// A raw beta and the regression statistics a reviewer asks for.

@@ -12,8 +12,8 @@
 use chrono::NaiveDate;
 use serde::Serialize;
 
-use crate::io::series::iso_date;
 use crate::error::Result;
+use crate::io::series::iso_date;
 use crate::stats::least_squares::{design_with_intercept, ols};
 
 /// One window's estimate.

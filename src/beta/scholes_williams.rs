@@ -9,8 +9,10 @@ use nalgebra::DMatrix;
 
 use super::BetaMethod;
 use crate::error::{Error, Result};
-use crate::stats::least_squares::{design_with_intercept, linear_estimator_covariance, ols, StdErrors};
 use crate::market::sampling::ShiftedMarket;
+use crate::stats::least_squares::{
+    design_with_intercept, linear_estimator_covariance, ols, StdErrors,
+};
 
 use super::{finish, BetaEstimate, MarketCoefficient};
 

@@ -336,15 +336,55 @@ pub fn chain(
 /// draw needs.
 pub fn wacc_only(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<f64, ChainError> {
     let common = common(spec, peers)?;
-    let unlevered = unlevered_betas(spec.formula, peers, &common);
+    let unlevered = unlevered_betas(spec.formula, peers, &common.adjusted, &common.peers);
     let values = if spec.cash_step {
-        cash_step_betas(&unlevered, &common)
+        cash_step_betas(&unlevered, &common.peers)
     } else {
         unlevered
     };
     let (betas, caps) = included_values(peers, &values);
     let aggregate = stats::location(spec.aggregation, &betas, &caps, spec.trim_fraction);
     Ok(equity_and_wacc(spec, spec.formula, aggregate, &common).2)
+}
+
+/// Each peer's figures through unlevering under the spec's formula.
+#[derive(Debug, Clone)]
+pub struct UnleveredPeers {
+    pub adjusted: Vec<AdjustedBeta>,
+    pub terms: Vec<PeerTerms>,
+    pub unlevered: Vec<f64>,
+    /// The betas of the operations (cash taken out).
+    pub cash_step: Vec<f64>,
+}
+
+/// What a beta listing shows of each peer: the adjusted beta, the capital-structure terms and the
+/// unlevered betas under the spec's formula — no target, cost of equity or WACC, so nothing those
+/// need can break a listing.
+pub fn unlevered_only(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+) -> Result<UnleveredPeers, ChainError> {
+    let raw: Vec<(f64, f64)> = peers
+        .iter()
+        .map(|p| (p.raw_beta, p.beta_std_error))
+        .collect();
+    let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
+    let (adjusted, _) = beta::adjust_all(spec.adjustment, spec.vasicek_prior, &raw, &included)
+        .map_err(ChainError::Adjustment)?;
+    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+        .map_err(ChainError::CostOfDebt)?;
+    let terms: Vec<PeerTerms> = peers
+        .iter()
+        .map(|p| peer_terms(spec, p, cost_of_debt.pre_tax))
+        .collect();
+    let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
+    let cash_step = cash_step_betas(&unlevered, &terms);
+    Ok(UnleveredPeers {
+        adjusted,
+        terms,
+        unlevered,
+        cash_step,
+    })
 }
 
 /// A peer's D/E (with the debt measure), debt beta and cost of debt.
@@ -383,11 +423,16 @@ fn subject_debt_beta(spec: &CapitalSpec<'_>, cost_of_debt: f64) -> f64 {
 }
 
 /// Every peer's unlevered beta under `formula`, in peer order.
-fn unlevered_betas(formula: Formula, peers: &[PeerCapital], common: &Common) -> Vec<f64> {
+fn unlevered_betas(
+    formula: Formula,
+    peers: &[PeerCapital],
+    adjusted: &[AdjustedBeta],
+    terms: &[PeerTerms],
+) -> Vec<f64> {
     peers
         .iter()
-        .zip(&common.adjusted)
-        .zip(&common.peers)
+        .zip(adjusted)
+        .zip(terms)
         .map(|((peer, adjusted), terms)| {
             formula.unlever_with(
                 adjusted.used,
@@ -408,10 +453,10 @@ fn unlevered_betas(formula: Formula, peers: &[PeerCapital], common: &Common) -> 
 /// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
 /// non-cash share leaves the operations' beta (common practice in valuation textbooks). Uses gross
 /// debt.
-fn cash_step_betas(unlevered: &[f64], common: &Common) -> Vec<f64> {
+fn cash_step_betas(unlevered: &[f64], terms: &[PeerTerms]) -> Vec<f64> {
     unlevered
         .iter()
-        .zip(&common.peers)
+        .zip(terms)
         .map(|(&u, terms)| u / (1.0 - terms.cash_share))
         .collect()
 }
@@ -475,12 +520,15 @@ fn formula_outcome(
     peers: &[PeerCapital],
     common: &Common,
 ) -> FormulaOutcome {
-    let peer_unlevered_betas = unlevered_betas(formula, peers, common);
-    let peer_cash_corrected_unlevered_betas = cash_step_betas(&peer_unlevered_betas, common);
+    let peer_unlevered_betas = unlevered_betas(formula, peers, &common.adjusted, &common.peers);
+    let peer_cash_corrected_unlevered_betas = cash_step_betas(&peer_unlevered_betas, &common.peers);
     let (plain_dispersion, plain_statistics) =
         aggregate(peers, &peer_unlevered_betas, spec.trim_fraction);
-    let (corrected_dispersion, corrected_statistics) =
-        aggregate(peers, &peer_cash_corrected_unlevered_betas, spec.trim_fraction);
+    let (corrected_dispersion, corrected_statistics) = aggregate(
+        peers,
+        &peer_cash_corrected_unlevered_betas,
+        spec.trim_fraction,
+    );
     let unlevered_plain = spec.aggregation.select(&plain_statistics);
     let unlevered_cash_corrected = spec.aggregation.select(&corrected_statistics);
     let (unlevered_dispersion, unlevered_statistics, unlevered) = if spec.cash_step {

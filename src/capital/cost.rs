@@ -99,7 +99,14 @@ mod tests {
         assert!((ke - 0.11).abs() < 1e-15);
         assert!((kd - 0.045).abs() < 1e-15);
         assert!((we - 0.8).abs() < 1e-15 && (wd - 0.2).abs() < 1e-15);
-        assert!((wacc(we, ke, wd, kd) - 0.097).abs() < 1e-15);
+        let terms = WaccTerms {
+            equity_weight: we,
+            cost_of_equity: ke,
+            debt_weight: wd,
+            cost_of_debt_after_tax: kd,
+            ..WaccTerms::default()
+        };
+        assert!((wacc(&terms) - 0.097).abs() < 1e-15);
     }
 
     // Identity: with no debt the WACC is the cost of equity.
@@ -107,7 +114,14 @@ mod tests {
     fn no_debt_wacc_is_cost_of_equity() {
         let (we, wd) = weights_from_debt_to_equity(0.0);
         assert_eq!((we, wd), (1.0, 0.0));
-        assert_eq!(wacc(we, 0.093, wd, 0.04), 0.093);
+        let terms = WaccTerms {
+            equity_weight: we,
+            cost_of_equity: 0.093,
+            debt_weight: wd,
+            cost_of_debt_after_tax: 0.04,
+            ..WaccTerms::default()
+        };
+        assert_eq!(wacc(&terms), 0.093);
     }
 
     // Hand-worked: preferred 10% and leases 5% of capital, D/E = 0.25: the rest 85% splits
@@ -120,7 +134,16 @@ mod tests {
         // 1e-15: one or two roundings of decimals.
         assert!((we - 0.68).abs() < 1e-15 && (wd - 0.17).abs() < 1e-15);
         let lease_after_tax = after_tax_cost_of_debt(0.06, 0.25);
-        let total = wacc(we, 0.11, wd, 0.045) + 0.10 * 0.07 + 0.05 * lease_after_tax;
+        let total = wacc(&WaccTerms {
+            equity_weight: we,
+            cost_of_equity: 0.11,
+            debt_weight: wd,
+            cost_of_debt_after_tax: 0.045,
+            preferred_weight: 0.10,
+            preferred_cost: 0.07,
+            lease_weight: 0.05,
+            lease_cost_after_tax: lease_after_tax,
+        });
         assert!((total - 0.0917).abs() < 1e-15);
     }
 }

@@ -149,6 +149,7 @@ pub enum DebtSource {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::io::spread_table::read_spread_table;
 
     fn coverage_table() -> SpreadTable {
         let row = |low: f64, rating: &str, spread: f64, line: usize| SpreadRow {

@@ -4,6 +4,7 @@
 //! which the case pipeline, the sensitivity grid, `implied`, the bridge and the Monte Carlo all
 //! call. Nothing here reads a file or a case.
 
+pub mod chain;
 pub mod cost;
 pub mod currency;
 pub mod debt;

@@ -62,7 +62,7 @@ pub struct SensitivitySettings {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub columns: Option<String>,
     /// `"wacc"` or `"cost_of_equity"`.
-    pub metric: crate::audit::grid::Metric,
+    pub metric: Metric,
 }
 
 /// `[uncertainty]`: the Monte Carlo of the WACC.
@@ -209,8 +209,6 @@ pub struct BetaSettings {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub rolling_min_observations: Option<u32>,
 }
-
-
 
 /// `beta.lookback`: a count of return periods or a calendar span (`5y`, `18m`, `104w`, `250d`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -402,8 +400,6 @@ impl Default for BetaSettings {
     }
 }
 
-
-
 /// `[leverage]`: unlevering, aggregating and relevering.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields, default)]
@@ -424,8 +420,6 @@ pub struct LeverageSettings {
     pub debt_measure: DebtMeasure,
 }
 
-
-
 impl Default for LeverageSettings {
     fn default() -> Self {
         LeverageSettings {
@@ -439,7 +433,6 @@ impl Default for LeverageSettings {
         }
     }
 }
-
 
 /// `[target]`: the capital structure the beta is relevered to and the WACC is weighted by.
 /// Exactly one of the two ratios is given.
@@ -469,7 +462,6 @@ pub struct TargetSettings {
     pub subject_cash: Option<f64>,
 }
 
-
 /// `target.source`: where the target D/E comes from.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
@@ -482,8 +474,6 @@ pub enum TargetSource {
     /// The subject's own current structure, `subject_debt / subject_equity_value`.
     Subject,
 }
-
-
 
 /// `[premiums]`: additions to the CAPM cost of equity (annual, decimal).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -501,7 +491,6 @@ pub struct Premiums {
     pub country_justification: String,
     pub company_specific_justification: String,
 }
-
 
 impl Default for Premiums {
     fn default() -> Self {

@@ -6,7 +6,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::audit::grid::{grid, parse_axis, Metric};
+use hurdle::audit::grid::{grid, parse_axis};
+use hurdle::case::Metric;
 use hurdle::report::format::percent;
 
 use super::CaseArgs;
@@ -32,7 +33,10 @@ pub struct Args {
 pub fn run(args: &Args) -> hurdle::Result<()> {
     let rows = parse_axis("--rows", &args.rows)?;
     let columns = parse_axis("--cols", &args.cols)?;
-    let table = grid(&args.case.inputs()?, &rows, &columns, args.metric)?;
+    let inputs = args.case.inputs()?;
+    // The peers are estimated once; cells re-estimate only when an axis changes estimation.
+    let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
+    let table = grid(&inputs, &estimates, &rows, &columns, args.metric)?;
     let mut out = format!("{:>14}", "");
     for c in &table.columns.values {
         out.push_str(&format!(" {c:>9}"));

@@ -41,7 +41,9 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     let inputs = args.case.inputs()?;
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     let base = hurdle::valuation::value_with(&inputs.case, &inputs, &estimates, "")?;
-    let r = implied(&inputs, &estimates, &base, args.solve, args.wacc, args.range)?;
+    let r = implied(
+        &inputs, &estimates, &base, args.solve, args.wacc, args.range,
+    )?;
     let show = |x: f64| {
         if r.key.contains("beta") || r.key.contains("debt_to_") {
             fixed(x, 4)

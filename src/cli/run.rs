@@ -35,7 +35,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
     let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
-    let written = output::write_all(&out, &valuation, &outputs)?;
+    let written = report::write_all(&out, &valuation, &outputs)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());

@@ -68,7 +68,7 @@ impl Window {
             spec.window_end,
             spec.lookback + lags,
         );
-        let all_period_ends = grid.return_period_ends();
+        let all_period_ends = grid.return_period_ends().to_vec();
         Window {
             grid,
             first: lags as usize,
@@ -232,9 +232,7 @@ pub fn estimate_security(
         spec.rolling.min_observations as usize,
     );
     let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
-    let flags = spec
-        .flags
-        .flags(&estimate, periods_in_window, stale_share);
+    let flags = spec.flags.flags(&estimate, periods_in_window, stale_share);
     let excluding_flags = spec.flags.excluding(&flags);
     let stability = rolling::stability(&rolling_points, spec.rolling.window)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;

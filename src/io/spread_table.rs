@@ -172,4 +172,3 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
         })
         .collect()
 }
-

@@ -5,8 +5,8 @@
 
 use serde::Serialize;
 
-use crate::capital::cost;
 use super::Valuation;
+use crate::capital::cost;
 use crate::case::Metric;
 
 /// One axis: a case key path and its values.
@@ -219,4 +219,3 @@ pub struct Bridge {
     /// of its WACC, which the build-up leaves out.
     pub unexplained_from: Option<f64>,
 }
-

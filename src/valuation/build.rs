@@ -1,9 +1,11 @@
 //! Builds the valuation's records from the peers' estimates and the capital chain: every record
 //! whole, in one place, from figures computed once.
 
-use crate::capital::chain::{self, Chain, ChainError, Checks, PeerCapital, Weights};
-use crate::case::{specs, Case, CaseFile, DebtBetaSource, DebtSource, TargetSource};
+use crate::capital::chain::{
+    self, Chain, ChainError, Checks, PeerCapital, UnleveredPeers, Weights,
+};
 use crate::capital::leverage::Formula;
+use crate::case::{specs, Case, CaseFile, DebtBetaSource, DebtSource, TargetSource};
 use crate::error::{Error, Result};
 use crate::market::sampling;
 use crate::valuation::records::convert_results;
@@ -22,7 +24,7 @@ pub fn value_with(
     let (chain, exclusions) = run_chain(case, inputs, estimates, Checks::Enforce)?;
     let mut notes = estimates.notes.clone();
     notes.extend(capital_notes(settings, &exclusions));
-    let peers = peer_results(settings, inputs, estimates, &chain, exclusions);
+    let peers = peer_results(settings, inputs, estimates, &unlevered(&chain), exclusions);
     let cost = cost_record(settings, &chain, &peers);
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());
@@ -66,7 +68,13 @@ pub fn cost_of_capital(
     estimates: &PeerEstimates,
 ) -> Result<CostOfCapital> {
     let (chain, exclusions) = run_chain(case, inputs, estimates, Checks::Enforce)?;
-    let peers = peer_results(&case.settings, inputs, estimates, &chain, exclusions);
+    let peers = peer_results(
+        &case.settings,
+        inputs,
+        estimates,
+        &unlevered(&chain),
+        exclusions,
+    );
     Ok(cost_record(&case.settings, &chain, &peers))
 }
 
@@ -214,15 +222,25 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
     notes
 }
 
+/// The chain's per-peer figures under the case's formula.
+fn unlevered(chain: &Chain) -> UnleveredPeers {
+    let chosen = chain.outcome();
+    UnleveredPeers {
+        adjusted: chain.adjusted.clone(),
+        terms: chain.peers.clone(),
+        unlevered: chosen.peer_unlevered_betas.clone(),
+        cash_step: chosen.peer_cash_corrected_unlevered_betas.clone(),
+    }
+}
+
 /// Every peer's record, whole: its estimate, adjustment, structure and unlevered betas.
-fn peer_results(
+pub fn peer_results(
     settings: &CaseFile,
     inputs: &Inputs,
     estimates: &PeerEstimates,
-    chain: &Chain,
+    figures: &UnleveredPeers,
     exclusions: Vec<Option<String>>,
 ) -> Vec<PeerResult> {
-    let chosen = chain.outcome();
     settings
         .peers
         .iter()
@@ -230,7 +248,7 @@ fn peer_results(
         .zip(exclusions)
         .enumerate()
         .map(|(i, ((spec, estimated), excluded_reason))| {
-            let (adjusted, terms) = (&chain.adjusted[i], &chain.peers[i]);
+            let (adjusted, terms) = (&figures.adjusted[i], &figures.terms[i]);
             PeerResult {
                 name: spec.name.clone(),
                 prices_file: inputs.peers[i].path.clone(),
@@ -244,13 +262,13 @@ fn peer_results(
                 cash: spec.cash,
                 debt_to_equity: terms.debt_to_equity,
                 tax_rate: spec.tax_rate,
-                unlevered_beta: chosen.peer_unlevered_betas[i],
+                unlevered_beta: figures.unlevered[i],
                 debt_beta: terms.debt_beta,
                 cost_of_debt: terms.cost_of_debt,
-                cash_corrected_unlevered_beta: chosen.peer_cash_corrected_unlevered_betas[i],
+                cash_corrected_unlevered_beta: figures.cash_step[i],
                 cash_share_of_capital: terms.cash_share,
                 excluded_reason,
-                vasicek: adjusted.vasicek.clone(),
+                vasicek: adjusted.vasicek,
                 stale_share: estimated.stale_share,
                 flags: estimated.flags.clone(),
                 stability: estimated.stability.clone(),
@@ -262,7 +280,7 @@ fn peer_results(
 /// The sampling actually applied.
 fn sampling_record(estimates: &PeerEstimates) -> SamplingRecord {
     let spec = &estimates.spec;
-SamplingRecord {
+    SamplingRecord {
         frequency: spec.frequency,
         periods_per_year: spec.frequency.periods_per_year(),
         lookback: spec.lookback,
@@ -273,8 +291,7 @@ SamplingRecord {
             sampling::ReturnType::Simple => "simple",
             sampling::ReturnType::Log => "log",
         },
-        weekday: (spec.frequency == sampling::Frequency::Weekly)
-            .then_some(spec.weekday),
+        weekday: (spec.frequency == sampling::Frequency::Weekly).then_some(spec.weekday),
         max_stale_days: spec.max_stale_days,
         sampling_rule: sampling::rule_text(spec.frequency),
         excess_returns: estimates.excess_returns,
@@ -288,7 +305,7 @@ SamplingRecord {
                  compounded to the period: ln(1 + y)/periods_per_year"
             }
         },
-}
+    }
 }
 
 /// The cost-of-capital records from the chain: aggregation, target, premiums, WACC.
@@ -313,7 +330,7 @@ fn cost_record(settings: &CaseFile, chain: &Chain, peers: &[PeerResult]) -> Cost
             unlevered_cash_corrected: chosen.unlevered_cash_corrected,
             unlevered_statistics: chosen.unlevered_statistics,
             debt_measure: settings.leverage.debt_measure,
-            vasicek_prior: chain.vasicek_prior.clone(),
+            vasicek_prior: chain.vasicek_prior,
             peers_included: peers.iter().filter(|p| p.excluded_reason.is_none()).count(),
         },
         target: TargetRecord {

@@ -8,6 +8,7 @@
 
 pub mod analyses;
 mod build;
+pub mod listing;
 pub mod records;
 
 use std::path::PathBuf;
@@ -15,13 +16,15 @@ use std::path::PathBuf;
 use chrono::NaiveDate;
 
 pub use analyses::{Bridge, Grid, Uncertainty};
-pub use build::{chain_error, chain_peers, cost_of_capital, exclusions, value_with};
+pub use build::{chain_error, chain_peers, cost_of_capital, exclusions, peer_results, value_with};
 pub use records::*;
 
-use crate::case::{specs, Case, DebtSource};
 use crate::capital::debt::SpreadTable;
+use crate::case::{specs, Case, DebtSource};
 use crate::error::{Error, Result};
-use crate::estimate::{self, EstimateError, EstimationSpec, MarketReturns, SecurityEstimate, Window};
+use crate::estimate::{
+    self, EstimateError, EstimationSpec, MarketReturns, SecurityEstimate, Window,
+};
 use crate::io::series::{read_series_file, DataFile, ValueKind};
 use crate::io::spread_table::read_spread_table;
 
@@ -39,6 +42,15 @@ pub struct Inputs {
 
 /// Reads every data file a case names, resolving paths against the case file's folder.
 pub fn load_inputs(case: Case) -> Result<Inputs> {
+    load(case, true)
+}
+
+/// Reads what estimating the peers needs: the price files and yields, no spread table.
+pub fn load_price_inputs(case: Case) -> Result<Inputs> {
+    load(case, false)
+}
+
+fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
     let settings = &case.settings;
     let index_spec = &settings.market.index;
     let index = read_series_file(
@@ -76,6 +88,7 @@ pub fn load_inputs(case: Case) -> Result<Inputs> {
         .collect::<Result<Vec<_>>>()?;
     let debt_settings = &settings.debt;
     let debt_table = match debt_settings.source {
+        _ if !with_debt_table => None,
         DebtSource::Given => None,
         DebtSource::Rating | DebtSource::Coverage => {
             let (written, coverage) = match debt_settings.source {

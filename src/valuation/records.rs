@@ -146,7 +146,6 @@ pub struct TargetRecord {
     pub tax_rate_basis: crate::capital::cost::TaxRateBasis,
 }
 
-
 #[derive(Debug, Clone, Serialize)]
 pub struct PremiumRecord {
     pub size: f64,
@@ -226,7 +225,6 @@ pub struct CostOfCapital {
     /// The results in the output currency by the Fisher relation, when `[conversion]` asks.
     pub currency_conversion: Option<CurrencyConversion>,
 }
-
 
 /// The cost of equity and WACC carried into the output currency, and both in real terms.
 #[derive(Debug, Clone, Serialize)]
