@@ -107,34 +107,7 @@ pub fn verify(
     let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
 
-    let current: Vec<(String, String)> = rerun
-        .files
-        .iter()
-        .map(|f| (f.role.clone(), f.sha256.clone()))
-        .collect();
-    let files = recorded["files"]
-        .as_array()
-        .map(|list| {
-            list.iter()
-                .map(|f| {
-                    let role = f["role"].as_str().unwrap_or("").to_string();
-                    let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
-                    let current_sha256 = current
-                        .iter()
-                        .find(|(r, _)| *r == role)
-                        .map(|(_, s)| s.clone())
-                        .unwrap_or_else(|| "(no longer in the case)".into());
-                    FileCheck {
-                        path: f["path"].as_str().unwrap_or("").to_string(),
-                        unchanged: recorded_sha256 == current_sha256,
-                        role,
-                        recorded_sha256,
-                        current_sha256,
-                    }
-                })
-                .collect::<Vec<_>>()
-        })
-        .unwrap_or_default();
+    let files = file_checks(&recorded, &rerun);
 
     let mut mismatches = Vec::new();
     let mut compared = 0;
@@ -255,6 +228,38 @@ fn compare(
             }
         }
     }
+}
+
+/// Each input file the receipt records, with its recorded and current SHA-256.
+fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation) -> Vec<FileCheck> {
+    let current: Vec<(String, String)> = rerun
+        .files
+        .iter()
+        .map(|f| (f.role.clone(), f.sha256.clone()))
+        .collect();
+    recorded["files"]
+        .as_array()
+        .map(|list| {
+            list.iter()
+                .map(|f| {
+                    let role = f["role"].as_str().unwrap_or("").to_string();
+                    let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
+                    let current_sha256 = current
+                        .iter()
+                        .find(|(r, _)| *r == role)
+                        .map(|(_, s)| s.clone())
+                        .unwrap_or_else(|| "(no longer in the case)".into());
+                    FileCheck {
+                        path: f["path"].as_str().unwrap_or("").to_string(),
+                        unchanged: recorded_sha256 == current_sha256,
+                        role,
+                        recorded_sha256,
+                        current_sha256,
+                    }
+                })
+                .collect::<Vec<_>>()
+        })
+        .unwrap_or_default()
 }
 
 #[cfg(test)]
