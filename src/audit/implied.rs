@@ -168,7 +168,7 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
             message: format!(
                 "target.source = {}: the target structure is not a ratio of the case, so none can \
                  be solved for; use --set target.source=explicit",
-                crate::report::format::label(&settings.target.source)
+                crate::case::label(&settings.target.source)
             ),
         });
     }
