@@ -57,6 +57,12 @@ pub struct BetaEstimate {
     pub durbin_watson: f64,
     /// How many observations have an internally studentised residual above 3 in absolute value.
     pub large_studentised_residuals: usize,
+    /// The beta's influence terms aₜ·eₜ, one per observation in period order: the estimator's
+    /// weight on the observation's return times its residual. Their cross-products between two
+    /// peers on shared periods give the covariance of the two betas' errors (a seemingly unrelated
+    /// regressions sandwich; see `audit::uncertainty`). Not written to `result.json`.
+    #[serde(skip)]
+    pub beta_influence: Vec<f64>,
 }
 
 /// One slope on a (possibly lagged or led) market return.
@@ -121,11 +127,19 @@ pub fn estimate_with(
 pub(crate) fn from_fit(
     method: BetaMethod,
     fit: &OlsFit,
+    design: &DMatrix<f64>,
     combination: &[f64],
     offsets: &[i32],
     kind: StdErrors,
 ) -> BetaEstimate {
     let c = DMatrix::from_column_slice(combination.len(), 1, combination);
+    // The beta as a linear function of the returns: weights cᵀ(XᵀX)⁻¹Xᵀ (from R⁻¹, not an inverse).
+    let weights = c.transpose() * &fit.bread * design.transpose();
+    let influence = weights
+        .iter()
+        .zip(&fit.residuals)
+        .map(|(w, e)| w * e)
+        .collect();
     let beta = combination
         .iter()
         .zip(&fit.coefficients)
@@ -141,14 +155,16 @@ pub(crate) fn from_fit(
             std_error: fit.std_errors[i + 1],
         })
         .collect();
-    finish(
+    let mut estimate = finish(
         method,
         fit,
         (fit.coefficients[0], fit.std_errors[0]),
         (beta, beta_std_error),
         kind,
         market_coefficients,
-    )
+    );
+    estimate.beta_influence = influence;
+    estimate
 }
 
 /// Fills the t, p and 95% CI of alpha and beta from their estimates and standard errors, with
@@ -192,6 +208,7 @@ pub(crate) fn finish(
             .iter()
             .filter(|r| r.abs() > 3.0)
             .count(),
+        beta_influence: Vec::new(),
     }
 }
 
@@ -228,7 +245,14 @@ pub fn ols_beta_with(
 ) -> Result<BetaEstimate> {
     let design = design_with_intercept(&[market]);
     let fit = with_std_errors(ols(&design, asset, true)?, &design, kind, newey_west_lags);
-    Ok(from_fit(BetaMethod::Ols, &fit, &[0.0, 1.0], &[0], kind))
+    Ok(from_fit(
+        BetaMethod::Ols,
+        &fit,
+        &design,
+        &[0.0, 1.0],
+        &[0],
+        kind,
+    ))
 }
 
 /// The estimator and standard errors of a case, in words with their sources, for the memo.

@@ -101,6 +101,7 @@ pub fn scholes_williams_beta(
         market_coefficients,
     );
     estimate.market_autocorrelation = Some(rho);
+    estimate.beta_influence = (0..n).map(|t| a[(1, t)] * fit.residuals[t]).collect();
     Ok(estimate)
 }
 

@@ -73,10 +73,21 @@ fn summary(v: &Valuation) -> String {
             percent(v.cost.cost_of_debt_after_tax, 2)
         ),
         format!(
-            "  weights E {} / D {} | WACC {}",
+            "  weights E {} / D {} | WACC {} (point estimate){}",
             percent(v.cost.weights.equity, 1),
             percent(v.cost.weights.debt, 1),
-            percent(v.cost.wacc, 2)
+            percent(v.cost.wacc, 2),
+            match &v.uncertainty {
+                Some(u) => format!(
+                    ", 90% interval {} to {} (beta estimation error), {} to {} with the peer set \
+                     resampled",
+                    percent(u.p05, 2),
+                    percent(u.p95, 2),
+                    percent(u.peer_set.p05, 2),
+                    percent(u.peer_set.p95, 2)
+                ),
+                None => String::new(),
+            }
         ),
     ];
     for note in &v.notes {

@@ -47,6 +47,59 @@ pub struct Uncertainty {
     pub p50: f64,
     pub p75: f64,
     pub p95: f64,
+    /// `"correlated"` or `"independent"` (`uncertainty.beta_errors`).
+    pub beta_errors: crate::case::BetaErrors,
+    /// Correlation of the peers' beta errors, peer order (the identity when drawn independently).
+    pub beta_error_correlation: Vec<Vec<f64>>,
+    /// The interval that also resamples the peer set.
+    pub peer_set: PeerSetInterval,
+    /// The WACC without each peer that enters the aggregation, in peer order.
+    pub leave_one_out: Vec<LeaveOneOut>,
+    /// A leave-one-out change above this (decimal) names the peer as influential.
+    pub influence_threshold: f64,
+    /// The WACC under the usual alternative frequencies and windows (empty when turned off).
+    pub specifications: Vec<Specification>,
+}
+
+/// Percentiles of the WACC when each draw resamples the peers (with replacement, among those
+/// aggregated) and draws their betas from their joint sampling distribution.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PeerSetInterval {
+    /// Draws that gave a WACC (a resample whose betas admit no Vasicek prior is skipped).
+    pub draws: u32,
+    pub mean: f64,
+    pub p05: f64,
+    pub p25: f64,
+    pub p50: f64,
+    pub p75: f64,
+    pub p95: f64,
+}
+
+/// The case's WACC without one peer.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LeaveOneOut {
+    pub peer: String,
+    /// `null` when leaving the peer out leaves no peer to aggregate.
+    pub wacc: Option<f64>,
+    /// `wacc` less the case's WACC, in basis points.
+    pub change_bp: Option<f64>,
+    /// Whether |change| is above `influence_threshold`.
+    pub influential: bool,
+}
+
+/// The WACC under one alternative specification of the return window.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Specification {
+    pub frequency: crate::market::sampling::Frequency,
+    /// The window: a span such as `"3y"`, or the case's own `beta.lookback`.
+    pub window: String,
+    /// The `--set` assignments that give this row, so anyone can rerun it.
+    pub overrides: Vec<String>,
+    /// Whether this is (the closest row to) the case's own choice.
+    pub case_choice: bool,
+    /// `null` when the data cannot support it (`reason` says why).
+    pub wacc: Option<f64>,
+    pub reason: Option<String>,
 }
 
 /// The components of a WACC build-up.
