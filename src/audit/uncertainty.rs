@@ -56,9 +56,10 @@ pub fn simulate(
 
     let mut rng = Rng::seeded(u.seed);
     let mut drawn = peers.clone();
+    let mut z = vec![0.0; peers.len()];
     let mut waccs = Vec::with_capacity(u.draws as usize);
     for _ in 0..u.draws {
-        draw_betas(&mut rng, &factor, &peers, &mut drawn);
+        draw_betas(&mut rng, &factor, &peers, &mut z, &mut drawn);
         let mut spec = base;
         if let Some(range) = u.equity_risk_premium {
             spec.equity_risk_premium = uniform(&mut rng, range);
@@ -167,10 +168,25 @@ pub fn beta_error_correlation(estimates: &PeerEstimates) -> Vec<Vec<f64>> {
         .collect()
 }
 
-/// A lower-triangular L with L·Lᵀ = the covariance diag(SE)·R·diag(SE): Cholesky, or, when
-/// rounding leaves R not quite positive definite (two peers with identical residuals), the
-/// symmetric square root with negative eigenvalues set to zero.
-fn covariance_factor(correlation: &[Vec<f64>], peers: &[PeerCapital]) -> DMatrix<f64> {
+/// A factor L of the betas' covariance, rows stored one after another.
+struct Factor {
+    n: usize,
+    rows: Vec<f64>,
+}
+
+/// L with L·Lᵀ = the covariance diag(SE)·R·diag(SE): the Cholesky factor, or, when rounding
+/// leaves R not quite positive definite (two peers with identical residuals), the symmetric square
+/// root with negative eigenvalues set to zero.
+fn covariance_factor(correlation: &[Vec<f64>], peers: &[PeerCapital]) -> Factor {
+    let matrix = covariance_root(correlation, peers);
+    let n = peers.len();
+    Factor {
+        n,
+        rows: (0..n * n).map(|k| matrix[(k / n, k % n)]).collect(),
+    }
+}
+
+fn covariance_root(correlation: &[Vec<f64>], peers: &[PeerCapital]) -> DMatrix<f64> {
     let n = peers.len();
     let covariance = DMatrix::from_fn(n, n, |i, j| {
         correlation[i][j] * peers[i].beta_std_error * peers[j].beta_std_error
@@ -183,16 +199,20 @@ fn covariance_factor(correlation: &[Vec<f64>], peers: &[PeerCapital]) -> DMatrix
     &eigen.eigenvectors * DMatrix::from_diagonal(&roots)
 }
 
-/// One joint draw of the raw betas into `drawn`: β̂ + L·z, z standard normal.
+/// One joint draw of the raw betas into `drawn`: β̂ + L·z, z standard normal (`z` is scratch).
 fn draw_betas(
     rng: &mut Rng,
-    factor: &DMatrix<f64>,
+    factor: &Factor,
     peers: &[PeerCapital],
+    z: &mut [f64],
     drawn: &mut [PeerCapital],
 ) {
-    let z: Vec<f64> = (0..peers.len()).map(|_| rng.normal()).collect();
+    for value in z.iter_mut() {
+        *value = rng.normal();
+    }
     for (i, (target, peer)) in drawn.iter_mut().zip(peers).enumerate() {
-        let shock: f64 = (0..peers.len()).map(|j| factor[(i, j)] * z[j]).sum();
+        let row = &factor.rows[i * factor.n..(i + 1) * factor.n];
+        let shock: f64 = row.iter().zip(z.iter()).map(|(l, z)| l * z).sum();
         target.raw_beta = peer.raw_beta + shock;
     }
 }
@@ -202,7 +222,7 @@ fn draw_betas(
 fn peer_set_interval(
     case: &Case,
     base: &chain::CapitalSpec<'_>,
-    factor: &DMatrix<f64>,
+    factor: &Factor,
     peers: &[PeerCapital],
 ) -> Result<PeerSetInterval> {
     let u = &case.settings.uncertainty;
@@ -210,10 +230,11 @@ fn peer_set_interval(
     let mut rng = Rng::seeded(u.seed ^ 0x005e_ed0f_9ee2_5e75);
     let included: Vec<usize> = (0..peers.len()).filter(|&i| peers[i].included).collect();
     let mut drawn = peers.to_vec();
+    let mut z = vec![0.0; peers.len()];
     let mut sample = Vec::with_capacity(included.len());
     let mut waccs = Vec::with_capacity(u.draws as usize);
     for _ in 0..u.draws {
-        draw_betas(&mut rng, factor, peers, &mut drawn);
+        draw_betas(&mut rng, factor, peers, &mut z, &mut drawn);
         sample.clear();
         for _ in 0..included.len() {
             let pick = ((rng.uniform() * included.len() as f64) as usize).min(included.len() - 1);
