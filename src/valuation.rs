@@ -178,8 +178,10 @@ pub struct PeerResult {
     pub stale_share: f64,
     /// Diagnostic warnings (see README, "Diagnostics").
     pub flags: Vec<crate::case::PeerFlag>,
-    /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
+    /// Range and trend of the rolling beta (`null` with fewer than two windows).
     pub stability: Option<crate::rolling::Stability>,
+    /// The fitted line α + β·x over the index returns used, with its 95% band (for the chart).
+    pub fitted_line: beta::fitted_line::FittedLine,
 }
 
 /// Aggregation and relevering.
@@ -540,10 +542,21 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
             &aligned.period_ends,
             &aligned.asset_excess(),
             &market_excess,
-            rolling_window as usize,
-            beta_settings.rolling_step as usize,
-            rolling_min as usize,
+            &aligned.market_shifted,
+            &crate::rolling::RollingSpec {
+                method: beta_settings.method,
+                std_errors: beta_settings.std_errors,
+                newey_west_lags: beta_settings.newey_west_lags.map(|l| l as usize),
+                window: rolling_window as usize,
+                step: beta_settings.rolling_step as usize,
+                min_observations: rolling_min as usize,
+            },
         );
+        let (x_min, x_max) = market_excess
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &x| {
+                (lo.min(x), hi.max(x))
+            });
         let stale_share = d.asset_stale as f64 / period_ends.len() as f64;
         let flags = peer_flags(beta_settings, &estimate, period_ends.len(), stale_share);
         let excluded_by_rule: Vec<String> = flags
@@ -578,6 +591,7 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
             cost_of_debt: f64::NAN,
             cash_corrected_unlevered_beta: f64::NAN,
             cash_share_of_capital: spec.cash / (spec.equity_value + spec.debt),
+            fitted_line: beta::fitted_line::fitted_line(&estimate, x_min, x_max),
             estimate,
             excluded_reason: exclusion,
             vasicek: None,

@@ -261,6 +261,8 @@ pub struct Bridge {
     /// `from.stated_wacc − from.wacc`: for a case with preferred equity or leases, their share
     /// of its WACC, which the build-up leaves out.
     pub unexplained_from: Option<f64>,
+    /// The bridge as waterfall bars, by Shapley value (see [`super::waterfall`]).
+    pub waterfall: Vec<super::waterfall::WaterfallBar>,
 }
 
 /// Bridges `from` to `to`.
@@ -280,13 +282,16 @@ pub fn bridge(from: &Side, to: &Side) -> Bridge {
             shapley: shapley[k],
         });
     }
+    let unexplained = to.stated_wacc.map(|stated| stated - to.wacc);
+    let unexplained_from = from.stated_wacc.map(|stated| stated - from.wacc);
     Bridge {
         from: from.clone(),
         to: to.clone(),
         difference: to.wacc - from.wacc,
+        waterfall: super::waterfall::waterfall(from, to, &steps, unexplained, unexplained_from),
         steps,
-        unexplained: to.stated_wacc.map(|stated| stated - to.wacc),
-        unexplained_from: from.stated_wacc.map(|stated| stated - from.wacc),
+        unexplained,
+        unexplained_from,
     }
 }
 

@@ -64,6 +64,9 @@ pub struct Grid {
     pub rows: Axis,
     pub columns: Axis,
     pub cells: Vec<Vec<f64>>,
+    /// `[row, column]` of the cell whose two values are the case's own (it reproduces the
+    /// case's figure); `null` when an axis does not hold the case's value.
+    pub base_cell: Option<[usize; 2]>,
 }
 
 /// The most cells one axis may have; a larger grid is a typo more often than a wish.
@@ -160,6 +163,9 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
 /// Computes the grid over `rows × columns`.
 pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Result<Grid> {
     let mut cells = Vec::with_capacity(rows.values.len());
+    // A cell is the case's own when its overrides leave the resolved case unchanged.
+    let own = toml::Value::try_from(&inputs.case.settings).ok();
+    let mut base_cell = None;
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
@@ -180,6 +186,12 @@ pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Res
                     ),
                 ));
             }
+            if base_cell.is_none()
+                && own.is_some()
+                && toml::Value::try_from(&case.settings).ok() == own
+            {
+                base_cell = Some([r, c]);
+            }
             line.push(metric.read(&value_case(&case, inputs, "")?));
         }
         cells.push(line);
@@ -189,6 +201,7 @@ pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Res
         rows: rows.clone(),
         columns: columns.clone(),
         cells,
+        base_cell,
     })
 }
 

@@ -8,9 +8,11 @@
 
 pub mod bridge;
 pub mod grid;
+pub mod histogram;
 pub mod implied;
 pub mod uncertainty;
 pub mod verify;
+pub mod waterfall;
 
 use crate::error::{Error, Result};
 use crate::valuation::{value, Inputs, Valuation};

@@ -32,6 +32,8 @@ pub struct Uncertainty {
     pub p50: f64,
     pub p75: f64,
     pub p95: f64,
+    /// The draws binned, for the memo's chart (see [`super::histogram`]).
+    pub histogram: super::histogram::Histogram,
 }
 
 /// Simulates the WACC of `case` around the point estimates `peers` and `point`.
@@ -85,5 +87,6 @@ pub fn simulate(
         p50: q(0.50),
         p75: q(0.75),
         p95: q(0.95),
+        histogram: super::histogram::histogram(&waccs),
     })
 }
