@@ -17,6 +17,7 @@ pub mod data;
 pub mod debt;
 pub mod demo;
 pub mod error;
+pub mod figures;
 pub mod format;
 pub mod frequency_comparison;
 pub mod leverage;

@@ -6,7 +6,7 @@
 //! meaning rests on telling red from green. Marks also differ by shape, so colour is never the
 //! only cue. Text uses the reader's system sans-serif, so the SVGs carry no font files.
 
-use plotters::style::{FontDesc, FontFamily, FontStyle, RGBColor, TextStyle};
+use plotters::style::{Color, FontDesc, FontFamily, FontStyle, RGBColor, TextStyle};
 
 /// The system font stack every label is set in.
 pub const FONT_STACK: &str =
@@ -28,13 +28,18 @@ pub const BAND: RGBColor = RGBColor(0xC9, 0xDA, 0xEE);
 pub const ACCENT: RGBColor = RGBColor(0xB0, 0x5A, 0x00);
 /// Flagged observations.
 pub const FLAG: RGBColor = RGBColor(0x8C, 0x2A, 0x6E);
+/// Histogram bars.
+pub const BARS: RGBColor = RGBColor(0x9C, 0xB8, 0xD9);
 /// Reference lines and residues.
 pub const NEUTRAL: RGBColor = RGBColor(0x8D, 0x99, 0xA6);
 
-/// The light and dark ends of the heat map's single-hue scale (monotone in lightness, so it
-/// reads in greyscale too).
-pub const HEAT_LOW: RGBColor = RGBColor(0xF0, 0xF4, 0xF9);
-pub const HEAT_HIGH: RGBColor = RGBColor(0x17, 0x3F, 0x6E);
+/// The heat map's single-hue scale, light to dark through a middle blue (monotone in
+/// lightness, so it reads in greyscale too).
+pub const HEAT: [RGBColor; 3] = [
+    RGBColor(0xEE, 0xF4, 0xFB),
+    RGBColor(0x7E, 0xA6, 0xD2),
+    RGBColor(0x15, 0x3B, 0x68),
+];
 
 /// Type sizes in CSS pixels.
 pub const TITLE: f64 = 17.0;
@@ -48,12 +53,12 @@ pub const MARGIN: i32 = 16;
 
 /// The text style of `px` pixels in `colour`. plotters writes font-size as size / 1.24, so the
 /// size handed over is the one that comes back as exactly `px` in the SVG.
-pub fn text(px: f64, colour: &RGBColor) -> TextStyle<'static> {
+pub fn text<C: Color>(px: f64, colour: &C) -> TextStyle<'static> {
     font(px, FontStyle::Normal).color(colour)
 }
 
 /// Bold text of `px` pixels.
-pub fn bold(px: f64, colour: &RGBColor) -> TextStyle<'static> {
+pub fn bold<C: Color>(px: f64, colour: &C) -> TextStyle<'static> {
     font(px, FontStyle::Bold).color(colour)
 }
 
@@ -76,13 +81,14 @@ fn font(px: f64, style: FontStyle) -> FontDesc<'static> {
 
 /// The colour a fraction `t` (0 to 1) of the way along the heat scale.
 pub fn heat(t: f64) -> RGBColor {
-    let t = t.clamp(0.0, 1.0);
-    let mix = |a: u8, b: u8| (f64::from(a) + (f64::from(b) - f64::from(a)) * t).round() as u8;
-    RGBColor(
-        mix(HEAT_LOW.0, HEAT_HIGH.0),
-        mix(HEAT_LOW.1, HEAT_HIGH.1),
-        mix(HEAT_LOW.2, HEAT_HIGH.2),
-    )
+    let t = t.clamp(0.0, 1.0) * 2.0;
+    let (from, to, f) = if t <= 1.0 {
+        (HEAT[0], HEAT[1], t)
+    } else {
+        (HEAT[1], HEAT[2], t - 1.0)
+    };
+    let mix = |a: u8, b: u8| (f64::from(a) + (f64::from(b) - f64::from(a)) * f).round() as u8;
+    RGBColor(mix(from.0, to.0), mix(from.1, to.1), mix(from.2, to.2))
 }
 
 /// Whether text on `background` should be light: its relative luminance (WCAG 2.1) is low.
@@ -125,7 +131,7 @@ mod tests {
             let ratio = 1.05 / (luminance(&colour) + 0.05);
             assert!(ratio >= 4.5, "{colour:?}: {ratio}");
         }
-        assert!(!needs_light_text(&HEAT_LOW) && needs_light_text(&HEAT_HIGH));
+        assert!(!needs_light_text(&HEAT[0]) && needs_light_text(&HEAT[2]));
     }
 
     #[test]

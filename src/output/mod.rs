@@ -41,7 +41,8 @@ pub fn write_all(
     let mut written = Vec::with_capacity(rendered.len());
     for (name, bytes) in rendered {
         let path = dir.join(name);
-        write_atomic(&path, &bytes)?;
+        // A name may hold a subfolder (`figures/…`), created on the way.
+        write_file(&path, &bytes)?;
         written.push(path);
     }
     Ok(written)
