@@ -132,7 +132,10 @@ impl Axis {
             .filter_map(|e| tick_value(&e.text).map(|v| (e.number(coordinate), v)))
             .collect();
         ticks.sort_by(|p, q| p.0.total_cmp(&q.0));
-        assert!(ticks.len() >= 2, "{class}: fewer than two numeric tick labels");
+        assert!(
+            ticks.len() >= 2,
+            "{class}: fewer than two numeric tick labels"
+        );
         let ((p0, v0), (p1, v1)) = (ticks[0], ticks[ticks.len() - 1]);
         let b = (v1 - v0) / (p1 - p0);
         Axis { a: v0 - b * p0, b }
@@ -167,7 +170,11 @@ impl Run {
         let mut args = vec!["run", DEMO_CASE, "--out", out.as_str()];
         args.extend_from_slice(extra);
         let output = hurdle(&args);
-        assert!(output.status.success(), "{}", String::from_utf8_lossy(&output.stderr));
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
         let result =
             serde_json::from_str(&std::fs::read_to_string(dir.path().join("result.json")).unwrap())
                 .unwrap();
@@ -226,7 +233,10 @@ fn check_regressions(run: &Run) {
             .find(|f| f.starts_with(&format!("regression-{:02}-", i + 1)))
             .unwrap();
         let svg = run.svg(file);
-        let (x, y) = (Axis::read(&svg, "x-axis", "x"), Axis::read(&svg, "y-axis", "y"));
+        let (x, y) = (
+            Axis::read(&svg, "x-axis", "x"),
+            Axis::read(&svg, "y-axis", "y"),
+        );
         let data = &returns[name];
         let points = in_group(&svg, "points");
         assert_eq!(points.len(), data.len(), "{name}: one point per return");
@@ -240,7 +250,10 @@ fn check_regressions(run: &Run) {
             .iter()
             .map(|r| r.as_u64().unwrap() as usize)
             .collect();
-        assert_eq!(rows.len() as u64, peer["large_studentised_residuals"].as_u64().unwrap());
+        assert_eq!(
+            rows.len() as u64,
+            peer["large_studentised_residuals"].as_u64().unwrap()
+        );
         let rings = in_group(&svg, "flagged");
         assert_eq!(rings.len(), rows.len(), "{name}: one ring per flagged row");
         for (ring, &row) in rings.iter().zip(&rows) {
@@ -276,7 +289,12 @@ fn check_regressions(run: &Run) {
             (band[2 * n - 1], x_min, 1.0),
         ] {
             close(name, x.value(point.0), at, x.tolerance());
-            close(name, y.value(point.1), alpha + beta * at + sign * half(at), y.tolerance());
+            close(
+                name,
+                y.value(point.1),
+                alpha + beta * at + sign * half(at),
+                y.tolerance(),
+            );
         }
     }
 }
@@ -301,17 +319,40 @@ fn check_betas(run: &Run) {
     let used = in_group(&svg, "beta-used");
     let unlevered = in_group(&svg, "unlevered-beta");
     assert_eq!(dots.len(), peers.len());
-    assert_eq!((intervals.len(), used.len(), unlevered.len()), (peers.len(), peers.len(), peers.len()));
+    assert_eq!(
+        (intervals.len(), used.len(), unlevered.len()),
+        (peers.len(), peers.len(), peers.len())
+    );
     let cash = run.result["beta"]["cash_corrected"].as_bool().unwrap();
     for (k, peer) in order.iter().enumerate() {
         let name = peer["name"].as_str().unwrap();
-        close(name, x.value(dots[k].number("cx")), f(&peer["beta"]), x.tolerance());
-        close(name, x.value(intervals[k][0].0), f(&peer["beta_ci_low"]), x.tolerance());
-        close(name, x.value(intervals[k][1].0), f(&peer["beta_ci_high"]), x.tolerance());
+        close(
+            name,
+            x.value(dots[k].number("cx")),
+            f(&peer["beta"]),
+            x.tolerance(),
+        );
+        close(
+            name,
+            x.value(intervals[k][0].0),
+            f(&peer["beta_ci_low"]),
+            x.tolerance(),
+        );
+        close(
+            name,
+            x.value(intervals[k][1].0),
+            f(&peer["beta_ci_high"]),
+            x.tolerance(),
+        );
         let triangle = used[k].points();
         let centre = triangle.iter().map(|p| p.0).sum::<f64>() / triangle.len() as f64;
         // The closed triangle repeats its apex: centre = apex x within half a pixel.
-        close(name, x.value(centre), f(&peer["beta_used"]), x.tolerance() * 1.25);
+        close(
+            name,
+            x.value(centre),
+            f(&peer["beta_used"]),
+            x.tolerance() * 1.25,
+        );
         let square = unlevered[k];
         let middle = square.number("x") + square.number("width") / 2.0;
         let expected = if cash {
@@ -322,7 +363,12 @@ fn check_betas(run: &Run) {
         close(name, x.value(middle), expected, x.tolerance());
     }
     let aggregate = in_group(&svg, "aggregate")[0].points()[0].0;
-    close("aggregate", x.value(aggregate), f(&run.result["beta"]["unlevered"]), x.tolerance());
+    close(
+        "aggregate",
+        x.value(aggregate),
+        f(&run.result["beta"]["unlevered"]),
+        x.tolerance(),
+    );
 }
 
 /// The rolling betas of every panel against rolling.csv (written by `hurdle rolling`).
@@ -354,10 +400,30 @@ fn check_stability(run: &Run, extra: &[&str]) {
         let band = in_group(&svg, &format!("band {panel}"))[0].points();
         let (first, last) = (rows[0], rows[rows.len() - 1]);
         let n = band.len() / 2;
-        close(name, y.value(band[0].1), first.0 - 1.96 * first.1, y.tolerance());
-        close(name, y.value(band[n - 1].1), last.0 - 1.96 * last.1, y.tolerance());
-        close(name, y.value(band[n].1), last.0 + 1.96 * last.1, y.tolerance());
-        close(name, y.value(band[2 * n - 1].1), first.0 + 1.96 * first.1, y.tolerance());
+        close(
+            name,
+            y.value(band[0].1),
+            first.0 - 1.96 * first.1,
+            y.tolerance(),
+        );
+        close(
+            name,
+            y.value(band[n - 1].1),
+            last.0 - 1.96 * last.1,
+            y.tolerance(),
+        );
+        close(
+            name,
+            y.value(band[n].1),
+            last.0 + 1.96 * last.1,
+            y.tolerance(),
+        );
+        close(
+            name,
+            y.value(band[2 * n - 1].1),
+            first.0 + 1.96 * first.1,
+            y.tolerance(),
+        );
     }
 }
 
@@ -371,7 +437,10 @@ fn check_sensitivity(run: &Run) {
         .iter()
         .flat_map(|r| r.as_array().unwrap().iter().map(f))
         .collect();
-    let texts: Vec<String> = in_group(&svg, "values").iter().map(|e| e.text.clone()).collect();
+    let texts: Vec<String> = in_group(&svg, "values")
+        .iter()
+        .map(|e| e.text.clone())
+        .collect();
     let expected: Vec<String> = cells.iter().map(|v| format!("{:.2}%", v * 100.0)).collect();
     assert_eq!(texts, expected, "printed cell values");
     // Relative luminance (WCAG 2.1) of each cell's fill: a higher value is never lighter.
@@ -395,7 +464,10 @@ fn check_sensitivity(run: &Run) {
     for i in 0..cells.len() {
         for j in 0..cells.len() {
             if cells[i] > cells[j] + 1e-12 {
-                assert!(fills[i] <= fills[j], "cell {i} is higher but lighter than cell {j}");
+                assert!(
+                    fills[i] <= fills[j],
+                    "cell {i} is higher but lighter than cell {j}"
+                );
             }
         }
     }
@@ -404,8 +476,10 @@ fn check_sensitivity(run: &Run) {
     let outline = in_group(&svg, "base-cell")[0];
     let cell = in_group(&svg, "cells")[r * columns + c];
     let inside = |e: &Element, o: &Element| {
-        o.number("x") >= e.number("x") && o.number("x") + o.number("width") <= e.number("x") + e.number("width")
-            && o.number("y") >= e.number("y") && o.number("y") + o.number("height") <= e.number("y") + e.number("height")
+        o.number("x") >= e.number("x")
+            && o.number("x") + o.number("width") <= e.number("x") + e.number("width")
+            && o.number("y") >= e.number("y")
+            && o.number("y") + o.number("height") <= e.number("y") + e.number("height")
     };
     assert!(inside(cell, outline), "the outline sits in cell [{r}, {c}]");
 }
@@ -414,10 +488,27 @@ fn check_sensitivity(run: &Run) {
 fn check_uncertainty(run: &Run) {
     let svg = run.svg("uncertainty.svg");
     let u = &run.result["uncertainty"];
-    let (x, y) = (Axis::read(&svg, "x-axis", "x"), Axis::read(&svg, "y-axis", "y"));
-    let edges: Vec<f64> = u["histogram"]["edges"].as_array().unwrap().iter().map(f).collect();
-    let counts: Vec<f64> = u["histogram"]["counts"].as_array().unwrap().iter().map(f).collect();
-    assert_eq!(counts.iter().sum::<f64>(), f(&u["draws"]), "every draw is counted");
+    let (x, y) = (
+        Axis::read(&svg, "x-axis", "x"),
+        Axis::read(&svg, "y-axis", "y"),
+    );
+    let edges: Vec<f64> = u["histogram"]["edges"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(f)
+        .collect();
+    let counts: Vec<f64> = u["histogram"]["counts"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(f)
+        .collect();
+    assert_eq!(
+        counts.iter().sum::<f64>(),
+        f(&u["draws"]),
+        "every draw is counted"
+    );
     let bars: Vec<&Element> = in_group(&svg, "bars")
         .into_iter()
         .filter(|e| e.attributes["stroke"] == "none")
@@ -453,8 +544,15 @@ fn check_reconciliation(run: &Run) {
     let bars = in_group(&svg, "bars");
     let steps = b["steps"].as_array().unwrap();
     // Bars top to bottom: this case, one per group (Shapley), the residue, the claim.
-    let first_group = if b["unexplained_from"].as_f64().unwrap_or(0.0) != 0.0 { 2 } else { 1 };
-    assert_eq!(bars.len(), first_group + steps.len() + 1 + usize::from(!b["unexplained"].is_null()));
+    let first_group = if b["unexplained_from"].as_f64().unwrap_or(0.0) != 0.0 {
+        2
+    } else {
+        1
+    };
+    assert_eq!(
+        bars.len(),
+        first_group + steps.len() + 1 + usize::from(!b["unexplained"].is_null())
+    );
     let length = |e: &Element| x.value(e.number("x") + e.number("width")) - x.value(e.number("x"));
     for (k, step) in steps.iter().enumerate() {
         let bar = bars[first_group + k];
@@ -467,14 +565,33 @@ fn check_reconciliation(run: &Run) {
     }
     if !b["unexplained"].is_null() {
         let residue = bars[first_group + steps.len()];
-        close("unexplained", length(residue), f(&b["unexplained"]).abs(), x.tolerance());
+        close(
+            "unexplained",
+            length(residue),
+            f(&b["unexplained"]).abs(),
+            x.tolerance(),
+        );
     }
     let right_end = |e: &Element| x.value(e.number("x") + e.number("width"));
-    let from = b["from"]["stated_wacc"].as_f64().unwrap_or(f(&b["from"]["wacc"]));
-    let to = b["to"]["stated_wacc"].as_f64().unwrap_or(f(&b["to"]["wacc"]));
+    let from = b["from"]["stated_wacc"]
+        .as_f64()
+        .unwrap_or(f(&b["from"]["wacc"]));
+    let to = b["to"]["stated_wacc"]
+        .as_f64()
+        .unwrap_or(f(&b["to"]["wacc"]));
     close("this case's WACC", right_end(bars[0]), from, x.tolerance());
-    close("claimed WACC", right_end(bars[bars.len() - 1]), to, x.tolerance());
-    close("this case's WACC is the result's", from, f(&run.result["wacc"]), 1e-15);
+    close(
+        "claimed WACC",
+        right_end(bars[bars.len() - 1]),
+        to,
+        x.tolerance(),
+    );
+    close(
+        "this case's WACC is the result's",
+        from,
+        f(&run.result["wacc"]),
+        1e-15,
+    );
 }
 
 /// Every chart has a title and a description for screen readers, and they are linked.
@@ -509,7 +626,10 @@ fn demo_charts_draw_the_result_figures() {
     // The memo links every chart with a relative path that exists.
     let memo = std::fs::read_to_string(run.dir.path().join("memo.md")).unwrap();
     for file in run.files() {
-        assert!(memo.contains(&format!("](figures/{file})")), "memo.md does not link {file}");
+        assert!(
+            memo.contains(&format!("](figures/{file})")),
+            "memo.md does not link {file}"
+        );
     }
 }
 
@@ -536,7 +656,9 @@ fn dimson_charts_draw_the_result_figures() {
         .map(|e| e.unwrap().path())
         .find(|p| p.to_string_lossy().contains("regression-01"))
         .unwrap();
-    assert!(std::fs::read_to_string(regression).unwrap().contains("Dimson (1979) sum"));
+    assert!(std::fs::read_to_string(regression)
+        .unwrap()
+        .contains("Dimson (1979) sum"));
 }
 
 #[test]
@@ -550,14 +672,22 @@ fn charts_are_byte_identical_across_runs_and_no_figures_writes_none() {
     // The report differs only by the run's timestamp, which the memo prints.
     let report = |run: &Run| {
         let stamp = run.result["generated_at"].as_str().unwrap().to_string();
-        std::fs::read_to_string(run.dir.path().join("report.html")).unwrap().replace(&stamp, "")
+        std::fs::read_to_string(run.dir.path().join("report.html"))
+            .unwrap()
+            .replace(&stamp, "")
     };
-    assert!(report(&a) == report(&b), "report.html differs beyond the timestamp");
+    assert!(
+        report(&a) == report(&b),
+        "report.html differs beyond the timestamp"
+    );
 
     let text_only = Run::new(&["--no-figures"]);
     assert!(!text_only.dir.path().join("figures").exists());
     assert!(!text_only.dir.path().join("report.html").exists());
     let memo = std::fs::read_to_string(text_only.dir.path().join("memo.md")).unwrap();
-    assert!(!memo.contains("figures/"), "a text-only memo links no chart");
+    assert!(
+        !memo.contains("figures/"),
+        "a text-only memo links no chart"
+    );
     assert!(Path::new(&text_only.dir.path().join("memo.md")).is_file());
 }

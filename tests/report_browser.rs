@@ -26,7 +26,11 @@ fn browser_check(label: &str, extra: &[&str]) {
     let mut args = vec!["run", DEMO_CASE, "--out", out];
     args.extend_from_slice(extra);
     let run = hurdle(&args);
-    assert!(run.status.success(), "{}", String::from_utf8_lossy(&run.stderr));
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
     let script = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/browser/check_report.py");
     let artifacts = artifacts(label);
     let output = Command::new("python3")
