@@ -269,14 +269,20 @@ mod tests {
         }
     }
 
-    // Every estimator and every kind of standard error: the updated sums must give what the
-    // full-sample estimator (`beta::estimate_with`, QR-based, itself checked against numpy and
-    // scipy in tests/reference) gives on each window's observations alone. Seeded data where
-    // the asset answers the market partly a period late (the thin-trading case), with a
-    // missing period so windows hold different counts.
-    #[test]
-    fn every_method_and_standard_error_equals_a_fresh_fit_of_each_window() {
-        let periods = 90;
+    /// The market column at an offset.
+    type Shifter = Box<dyn Fn(i32) -> ShiftedMarket>;
+
+    /// Seeded returns of an asset that answers the market partly a period late, one period
+    /// missing: observation dates, asset, market, and the market shifted by an offset.
+    #[allow(clippy::type_complexity)]
+    fn thinly_traded(
+        periods: usize,
+    ) -> (
+        Vec<NaiveDate>,
+        Vec<f64>,
+        Vec<f64>,
+        impl Fn(i32) -> ShiftedMarket,
+    ) {
         let ends = month_ends(periods);
         let mut rng = Rng::seeded(11);
         let m: Vec<f64> = (0..periods + 3)
@@ -286,13 +292,6 @@ mod tests {
         let observed: Vec<NaiveDate> = keep.iter().map(|&i| ends[i]).collect();
         // m[i + 2] is period i's market return; m[i + 1] the previous, m[i + 3] the next.
         let market: Vec<f64> = keep.iter().map(|&i| m[i + 2]).collect();
-        let column = |offset: i32| ShiftedMarket {
-            offset,
-            returns: keep
-                .iter()
-                .map(|&i| m[(i as i32 + 2 + offset) as usize])
-                .collect(),
-        };
         let asset: Vec<f64> = keep
             .iter()
             .map(|&i| {
@@ -302,6 +301,26 @@ mod tests {
                     + 0.04 * rng.normal() * (1.0 + m[i + 2].abs() * 10.0)
             })
             .collect();
+        let column: Shifter = Box::new(move |offset: i32| ShiftedMarket {
+            offset,
+            returns: keep
+                .iter()
+                .map(|&i| m[(i as i32 + 2 + offset) as usize])
+                .collect(),
+        });
+        (observed, asset, market, column)
+    }
+
+    // Every estimator and every kind of standard error: the updated sums must give what the
+    // full-sample estimator (`beta::estimate_with`, QR-based, itself checked against numpy and
+    // scipy in tests/reference) gives on each window's observations alone. Seeded data where
+    // the asset answers the market partly a period late (the thin-trading case), with a
+    // missing period so windows hold different counts.
+    #[test]
+    fn every_method_and_standard_error_equals_a_fresh_fit_of_each_window() {
+        let periods = 90;
+        let ends = month_ends(periods);
+        let (observed, asset, market, column) = thinly_traded(periods);
         let cases = [
             (BetaMethod::Ols, vec![]),
             (BetaMethod::Dimson, vec![column(-2), column(-1)]),

@@ -190,6 +190,13 @@ fn round12(v: f64) -> f64 {
     (v * 1e12).round() / 1e12
 }
 
+/// The smallest and largest of `values` (infinite when there are none).
+pub fn extent(values: impl Iterator<Item = f64>) -> (f64, f64) {
+    values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+        (lo.min(v), hi.max(v))
+    })
+}
+
 /// A chart's two axes, their titles and the room their labels take.
 pub struct Axes {
     pub x: Scale,

@@ -37,19 +37,12 @@ struct Row<'a> {
 pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let (rows, divider, bottom) = rows(&valuation.peers);
     let cash = valuation.cost.beta.cash_corrected;
-    let unlevered = |p: &PeerResult| {
-        if cash {
-            p.cash_corrected_unlevered_beta
-        } else {
-            p.unlevered_beta
-        }
-    };
     let values = valuation.peers.iter().flat_map(|p| {
         [
             p.estimate.beta_ci_low,
             p.estimate.beta_ci_high,
             p.beta_used,
-            unlevered(p),
+            unlevered(p, cash),
         ]
     });
     let (low, high) = values.fold((1.0_f64, 1.0_f64), |(lo, hi), v| (lo.min(v), hi.max(v)));
@@ -96,12 +89,40 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
+    names(&mut canvas, &layout, &axes, &rows, divider)?;
+    marks(
+        &mut canvas,
+        &layout,
+        &axes,
+        &rows,
+        divider,
+        (aggregate, cash),
+    )?;
+    let description = format!("{caption} {}", data_summary(&rows, |p| unlevered(p, cash)));
+    Ok(Figure {
+        kind: Kind::Betas,
+        svg: canvas.finish("betas", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The peers' names (and reasons for the excluded) left of the plot, and the divider.
+fn names(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    rows: &[Row],
+    divider: Option<f64>,
+) -> Result<()> {
     canvas.layer("y-axis", |root| {
         let (_, plot_area, _) = layout.split(root);
         let chart = axes.chart(&plot_area)?;
         let name_style = style::text(style::LABEL, &INK).pos(Pos::new(HPos::Right, VPos::Center));
         let reason_style = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Right, VPos::Top));
-        for row in &rows {
+        for row in rows {
             let (left, y) = chart.backend_coord(&(axes.x.range.start, row.y));
             let x = left - 12;
             root.draw_text(&row.peer.name, &name_style, (x, y))?;
@@ -123,15 +144,27 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         }
         Ok(())
     })?;
+    Ok(())
+}
+
+/// The reference line at 1, the aggregate line, and each row's interval and markers.
+fn marks(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    rows: &[Row],
+    divider: Option<f64>,
+    (aggregate, cash): (f64, bool),
+) -> Result<()> {
     let (top, last) = (axes.y.range.end, axes.y.range.start);
-    plot_layer(&mut canvas, &layout, &axes, "reference", |chart| {
+    plot_layer(canvas, layout, axes, "reference", |chart| {
         chart.draw_series(std::iter::once(PathElement::new(
             vec![(1.0, last), (1.0, top)],
             NEUTRAL.stroke_width(1),
         )))?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "aggregate", |chart| {
+    plot_layer(canvas, layout, axes, "aggregate", |chart| {
         let end = divider.unwrap_or(last);
         chart.draw_series(std::iter::once(DashedPathElement::new(
             vec![(aggregate, end), (aggregate, top)],
@@ -141,9 +174,9 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         )))?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "intervals", |chart| {
+    plot_layer(canvas, layout, axes, "intervals", |chart| {
         let stroke = PRIMARY.stroke_width(2);
-        for row in &rows {
+        for row in rows {
             let e = &row.peer.estimate;
             chart.draw_series(std::iter::once(PathElement::new(
                 vec![(e.beta_ci_low, row.y), (e.beta_ci_high, row.y)],
@@ -156,7 +189,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         }
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "raw-beta", |chart| {
+    plot_layer(canvas, layout, axes, "raw-beta", |chart| {
         let dot = PRIMARY.filled();
         chart.draw_series(
             rows.iter()
@@ -164,29 +197,30 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         )?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "beta-used", |chart| {
+    plot_layer(canvas, layout, axes, "beta-used", |chart| {
         chart.draw_series(
             rows.iter()
                 .map(|r| EmptyElement::at((r.peer.beta_used, r.y)) + triangle(INK)),
         )?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "unlevered-beta", |chart| {
+    plot_layer(canvas, layout, axes, "unlevered-beta", |chart| {
         chart.draw_series(
             rows.iter()
-                .map(|r| EmptyElement::at((unlevered(r.peer), r.y)) + square(ACCENT)),
+                .map(|r| EmptyElement::at((unlevered(r.peer, cash), r.y)) + square(ACCENT)),
         )?;
         Ok(())
     })?;
-    let description = format!("{caption} {}", data_summary(&rows, unlevered));
-    Ok(Figure {
-        kind: Kind::Betas,
-        svg: canvas.finish("betas", &title, &description),
-        file_name: name,
-        title,
-        caption,
-        peer: None,
-    })
+    Ok(())
+}
+
+/// The unlevered beta the case aggregates: cash-corrected or plain.
+fn unlevered(peer: &PeerResult, cash: bool) -> f64 {
+    if cash {
+        peer.cash_corrected_unlevered_beta
+    } else {
+        peer.unlevered_beta
+    }
 }
 
 /// The rows, included peers first in case order, then the excluded ones below a divider; with

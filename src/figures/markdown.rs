@@ -110,7 +110,7 @@ pub fn anchor(text: &str) -> String {
 
 /// The text without Markdown marks.
 fn plain(text: &str) -> String {
-    text.replace("**", "").replace('`', "").replace('\\', "")
+    text.replace("**", "").replace(['`', '\\'], "")
 }
 
 fn list(lines: &[&str]) -> String {

@@ -21,6 +21,9 @@ use crate::error::Result;
 use crate::format::{basis_points, percent};
 
 const WIDTH: u32 = 720;
+
+/// Where bar i goes: its two corners in data coordinates.
+type Placement<'a> = dyn Fn(usize, &WaterfallBar) -> [(f64, f64); 2] + 'a;
 const ROW: u32 = 34;
 
 fn colour(bar: &WaterfallBar) -> RGBColor {
@@ -110,10 +113,31 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    plot_layer(&mut canvas, &layout, &axes, "connectors", |chart| {
+    plot(&mut canvas, &layout, &axes, bars, &span)?;
+    let description = format!("{caption} {}", data_summary(bridge));
+    Ok(Figure {
+        kind: Kind::Reconciliation,
+        svg: canvas.finish("reconciliation", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The connectors, bars, break marks and values; `span` places bar i.
+fn plot(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    bars: &[WaterfallBar],
+    span: &Placement<'_>,
+) -> Result<()> {
+    let rows = bars.len();
+    plot_layer(canvas, layout, axes, "connectors", |chart| {
         // A dotted rule from each bar's end down to the next bar's start.
-        for i in 0..rows.saturating_sub(1) {
-            let at = bars[i].end;
+        for (i, bar) in bars.iter().enumerate().take(rows.saturating_sub(1)) {
+            let at = bar.end;
             let (upper, lower) = ((rows - 1 - i) as f64 + 0.15, (rows - 2 - i) as f64 + 0.85);
             chart.draw_series(std::iter::once(DashedPathElement::new(
                 vec![(at, upper), (at, lower)],
@@ -124,7 +148,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         }
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "bars", |chart| {
+    plot_layer(canvas, layout, axes, "bars", |chart| {
         chart.draw_series(
             bars.iter()
                 .enumerate()
@@ -132,7 +156,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         )?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "breaks", |chart| {
+    plot_layer(canvas, layout, axes, "breaks", |chart| {
         // Two white slashes across each total bar near the axis: the bar is cut there.
         for (i, bar) in bars
             .iter()
@@ -152,7 +176,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         }
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "values", |chart| {
+    plot_layer(canvas, layout, axes, "values", |chart| {
         chart.draw_series(bars.iter().enumerate().map(|(i, bar)| {
             let [(_, y0), (x1, y1)] = span(i, bar);
             let rightward = bar.kind == BarKind::Total || bar.end >= bar.start;
@@ -166,15 +190,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         }))?;
         Ok(())
     })?;
-    let description = format!("{caption} {}", data_summary(bridge));
-    Ok(Figure {
-        kind: Kind::Reconciliation,
-        svg: canvas.finish("reconciliation", &title, &description),
-        file_name: name,
-        title,
-        caption,
-        peer: None,
-    })
+    Ok(())
 }
 
 fn caption(bridge: &Bridge, axis_start: f64) -> String {

@@ -9,11 +9,12 @@
 
 use plotters::prelude::*;
 
-use super::axes::{plot_layer, Axes, Scale};
+use super::axes::{extent, plot_layer, Axes, Scale};
 use super::canvas::Canvas;
 use super::frame::{Layout, Mark};
 use super::style::{ACCENT, BAND, FLAG, NEUTRAL, PRIMARY};
 use super::{per_period, slug, Figure, Kind};
+use crate::beta::fitted_line::LinePoint;
 use crate::case::BetaMethod;
 use crate::error::Result;
 use crate::format::{self, fixed, percent};
@@ -30,15 +31,9 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
     let (x, y) = (returns.market_excess(), returns.asset_excess());
     let line = &peer.fitted_line.points;
     let flagged = &peer.estimate.large_studentised_residual_rows;
-    let extent = |values: &mut dyn Iterator<Item = f64>| {
-        values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
-            (lo.min(v), hi.max(v))
-        })
-    };
-    let (x_low, x_high) = extent(&mut x.iter().copied());
+    let (x_low, x_high) = extent(x.iter().copied());
     let (y_low, y_high) = extent(
-        &mut y
-            .iter()
+        y.iter()
             .copied()
             .chain(line.iter().flat_map(|p| [p.low, p.high])),
     );
@@ -80,7 +75,29 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    plot_layer(&mut canvas, &layout, &axes, "band", |chart| {
+    plot(&mut canvas, &layout, &axes, (&x, &y), line, flagged)?;
+    let id = format!("regression-{:02}", index + 1);
+    let description = format!("{caption} {}", data_summary(peer));
+    Ok(Figure {
+        kind: Kind::Regression,
+        svg: canvas.finish(&id, &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: Some(peer.name.clone()),
+    })
+}
+
+/// The plot's layers: band, reference lines through zero, points, flagged rings, fitted line.
+fn plot(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    (x, y): (&[f64], &[f64]),
+    line: &[LinePoint],
+    flagged: &[usize],
+) -> Result<()> {
+    plot_layer(canvas, layout, axes, "band", |chart| {
         let outline: Vec<(f64, f64)> = line
             .iter()
             .map(|p| (p.x, p.low))
@@ -89,7 +106,7 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
         chart.draw_series(std::iter::once(Polygon::new(outline, BAND.filled())))?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "reference", |chart| {
+    plot_layer(canvas, layout, axes, "reference", |chart| {
         // The axes through zero, where they fall inside the plot.
         let (xr, yr) = (&axes.x.range, &axes.y.range);
         let mut lines = Vec::new();
@@ -106,12 +123,12 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
         )?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "points", |chart| {
+    plot_layer(canvas, layout, axes, "points", |chart| {
         let dot = PRIMARY.mix(0.8).filled();
-        chart.draw_series(x.iter().zip(&y).map(|(&a, &b)| Circle::new((a, b), 3, dot)))?;
+        chart.draw_series(x.iter().zip(y).map(|(&a, &b)| Circle::new((a, b), 3, dot)))?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "flagged", |chart| {
+    plot_layer(canvas, layout, axes, "flagged", |chart| {
         let ring = FLAG.stroke_width(2);
         chart.draw_series(
             flagged
@@ -120,23 +137,14 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
         )?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "fitted-line", |chart| {
+    plot_layer(canvas, layout, axes, "fitted-line", |chart| {
         chart.draw_series(std::iter::once(PathElement::new(
             line.iter().map(|p| (p.x, p.fitted)).collect::<Vec<_>>(),
             ACCENT.stroke_width(3),
         )))?;
         Ok(())
     })?;
-    let id = format!("regression-{:02}", index + 1);
-    let description = format!("{caption} {}", data_summary(peer));
-    Ok(Figure {
-        kind: Kind::Regression,
-        svg: canvas.finish(&id, &title, &description),
-        file_name: name,
-        title,
-        caption,
-        peer: Some(peer.name.clone()),
-    })
+    Ok(())
 }
 
 /// What the chart shows and where its numbers come from.

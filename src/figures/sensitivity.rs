@@ -104,6 +104,27 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &[]))?;
     axes.draw(&mut canvas, &layout)?;
+    plot(&mut canvas, &layout, &axes, grid, &shade)?;
+    let description = format!("{caption} {}", data_summary(grid));
+    Ok(Figure {
+        kind: Kind::Sensitivity,
+        svg: canvas.finish("sensitivity", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The shaded cells, their printed values and the outline of the case's own cell.
+fn plot(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    grid: &Grid,
+    shade: &dyn Fn(f64) -> RGBColor,
+) -> Result<()> {
+    let rows = grid.rows.values.len();
     let cell = |r: usize, c: usize| {
         let bottom = (rows - 1 - r) as f64;
         [(c as f64, bottom), (c as f64 + 1.0, bottom + 1.0)]
@@ -114,7 +135,7 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
             .enumerate()
             .flat_map(|(r, line)| line.iter().enumerate().map(move |(c, &v)| (r, c, v)))
     };
-    plot_layer(&mut canvas, &layout, &axes, "cells", |chart| {
+    plot_layer(canvas, layout, axes, "cells", |chart| {
         chart
             .draw_series(cells().map(|(r, c, v)| Rectangle::new(cell(r, c), shade(v).filled())))?;
         // White hairlines between the cells.
@@ -123,7 +144,7 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
         )?;
         Ok(())
     })?;
-    plot_layer(&mut canvas, &layout, &axes, "values", |chart| {
+    plot_layer(canvas, layout, axes, "values", |chart| {
         chart.draw_series(cells().map(|(r, c, v)| {
             let background = shade(v);
             let colour = if style::needs_light_text(&background) {
@@ -147,7 +168,7 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
         Ok(())
     })?;
     if let Some([r, c]) = grid.base_cell {
-        plot_layer(&mut canvas, &layout, &axes, "base-cell", |chart| {
+        plot_layer(canvas, layout, axes, "base-cell", |chart| {
             let [(x0, y0), (x1, y1)] = cell(r, c);
             // Inset a little so the outline sits inside the white hairlines.
             let inset = [(x0 + 0.03, y0 + 0.06), (x1 - 0.03, y1 - 0.06)];
@@ -158,15 +179,7 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
             Ok(())
         })?;
     }
-    let description = format!("{caption} {}", data_summary(grid));
-    Ok(Figure {
-        kind: Kind::Sensitivity,
-        svg: canvas.finish("sensitivity", &title, &description),
-        file_name: name,
-        title,
-        caption,
-        peer: None,
-    })
+    Ok(())
 }
 
 fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {

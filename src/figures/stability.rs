@@ -81,85 +81,15 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let name = "figures/stability.svg".to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
-    let panel_layer =
-        |canvas: &mut Canvas, i: usize, class: &str, draw: &dyn Fn(&Area, &mut Chart) -> Drawn| {
-            canvas.layer(&format!("{class} panel-{}", i + 1), |root| {
-                let (_, plot, _) = layout.split(root);
-                let panels = plot.split_evenly((panel_rows, columns));
-                let (title_band, body) = panels[i].split_vertically(22);
-                let mut chart = axes.chart(&body)?;
-                draw(&title_band, &mut chart)
-            })
-        };
-    let x_format = |v: &f64| axes.x.label(*v);
-    let y_format = |v: &f64| axes.y.label(*v);
+    let grid = Panels {
+        layout: &layout,
+        axes: &axes,
+        rows: panel_rows,
+        columns,
+    };
     for (i, (peer, points)) in peers.iter().zip(&valuation.rolling).enumerate() {
-        panel_layer(&mut canvas, i, "panel-title", &|band, _| {
-            let name_style =
-                style::bold(style::LABEL - 1.0, &INK).pos(Pos::new(HPos::Left, VPos::Top));
-            band.draw_text(&peer.name, &name_style, (style::MARGIN, 4))?;
-            if points.is_empty() {
-                let note = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
-                band.draw_text(
-                    "no window with enough observations",
-                    &note,
-                    (style::MARGIN, 60),
-                )?;
-            }
-            Ok(())
-        })?;
-        panel_layer(&mut canvas, i, "grid", &|_, chart| {
-            chart
-                .configure_mesh()
-                .disable_axes()
-                .bold_line_style(style::RULE.stroke_width(1))
-                .light_line_style(TRANSPARENT)
-                .label_style(style::text(style::TICK, &RGBAColor(0, 0, 0, 0.0)))
-                .draw()
-        })?;
-        panel_layer(&mut canvas, i, "x-axis", &|_, chart| {
-            chart
-                .configure_mesh()
-                .disable_mesh()
-                .disable_y_axis()
-                .y_labels(0)
-                .axis_style(MUTED.stroke_width(1))
-                .label_style(style::text(style::SMALL, &MUTED))
-                .x_label_formatter(&x_format)
-                .draw()
-        })?;
-        panel_layer(&mut canvas, i, "y-axis", &|_, chart| {
-            chart
-                .configure_mesh()
-                .disable_mesh()
-                .disable_x_axis()
-                .x_labels(0)
-                .axis_style(MUTED.stroke_width(1))
-                .label_style(style::text(style::SMALL, &MUTED))
-                .y_label_formatter(&y_format)
-                .draw()
-        })?;
-        panel_layer(&mut canvas, i, "band", &|_, chart| draw_band(chart, points))?;
-        panel_layer(&mut canvas, i, "full-window-beta", &|_, chart| {
-            let (x0, x1) = (axes.x.range.start, axes.x.range.end);
-            chart.draw_series(std::iter::once(DashedPathElement::new(
-                vec![(x0, peer.estimate.beta), (x1, peer.estimate.beta)],
-                6,
-                4,
-                ACCENT.stroke_width(2),
-            )))?;
-            Ok(())
-        })?;
-        panel_layer(&mut canvas, i, "rolling-beta", &|_, chart| {
-            chart.draw_series(std::iter::once(PathElement::new(
-                points
-                    .iter()
-                    .map(|p| (year(p.window_end), p.beta))
-                    .collect::<Vec<_>>(),
-                PRIMARY.stroke_width(2),
-            )))?;
-            Ok(())
-        })?;
+        grid.frame(&mut canvas, i, &peer.name, points.is_empty())?;
+        grid.data(&mut canvas, i, peer.estimate.beta, points)?;
     }
     let description = format!("{caption} {}", data_summary(valuation));
     Ok(Figure {
@@ -170,6 +100,115 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         caption,
         peer: None,
     })
+}
+
+/// The grid of small panels in the plot band, one per peer in peer order.
+struct Panels<'a> {
+    layout: &'a Layout,
+    axes: &'a Axes,
+    rows: usize,
+    columns: usize,
+}
+
+impl Panels<'_> {
+    /// Draws one layer (class `{class} panel-{i + 1}`) of panel `i`: `draw` gets the panel's
+    /// title band and its plot.
+    fn layer(
+        &self,
+        canvas: &mut Canvas,
+        i: usize,
+        class: &str,
+        draw: &dyn Fn(&Area, &mut Chart) -> Drawn,
+    ) -> Result<()> {
+        canvas.layer(&format!("{class} panel-{}", i + 1), |root| {
+            let (_, plot, _) = self.layout.split(root);
+            let panels = plot.split_evenly((self.rows, self.columns));
+            let (title_band, body) = panels[i].split_vertically(22);
+            let mut chart = self.axes.chart(&body)?;
+            draw(&title_band, &mut chart)
+        })
+    }
+
+    /// Panel `i`'s title, grid and axes.
+    fn frame(&self, canvas: &mut Canvas, i: usize, name: &str, empty: bool) -> Result<()> {
+        self.layer(canvas, i, "panel-title", &|band, _| {
+            let name_style = style::bold(style::LABEL, &INK).pos(Pos::new(HPos::Left, VPos::Top));
+            band.draw_text(name, &name_style, (style::MARGIN, 4))?;
+            if empty {
+                let note = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
+                band.draw_text(
+                    "no window with enough observations",
+                    &note,
+                    (style::MARGIN, 60),
+                )?;
+            }
+            Ok(())
+        })?;
+        self.layer(canvas, i, "grid", &|_, chart| {
+            chart
+                .configure_mesh()
+                .disable_axes()
+                .bold_line_style(style::RULE.stroke_width(1))
+                .light_line_style(TRANSPARENT)
+                .label_style(style::text(style::TICK, &RGBAColor(0, 0, 0, 0.0)))
+                .draw()
+        })?;
+        let x_format = |v: &f64| self.axes.x.label(*v);
+        self.layer(canvas, i, "x-axis", &|_, chart| {
+            chart
+                .configure_mesh()
+                .disable_mesh()
+                .disable_y_axis()
+                .y_labels(0)
+                .axis_style(MUTED.stroke_width(1))
+                .label_style(style::text(style::SMALL, &MUTED))
+                .x_label_formatter(&x_format)
+                .draw()
+        })?;
+        let y_format = |v: &f64| self.axes.y.label(*v);
+        self.layer(canvas, i, "y-axis", &|_, chart| {
+            chart
+                .configure_mesh()
+                .disable_mesh()
+                .disable_x_axis()
+                .x_labels(0)
+                .axis_style(MUTED.stroke_width(1))
+                .label_style(style::text(style::SMALL, &MUTED))
+                .y_label_formatter(&y_format)
+                .draw()
+        })
+    }
+
+    /// Panel `i`'s band, whole-window beta and rolling betas.
+    fn data(
+        &self,
+        canvas: &mut Canvas,
+        i: usize,
+        beta: f64,
+        points: &[RollingPoint],
+    ) -> Result<()> {
+        self.layer(canvas, i, "band", &|_, chart| draw_band(chart, points))?;
+        let (x0, x1) = (self.axes.x.range.start, self.axes.x.range.end);
+        self.layer(canvas, i, "full-window-beta", &|_, chart| {
+            chart.draw_series(std::iter::once(DashedPathElement::new(
+                vec![(x0, beta), (x1, beta)],
+                6,
+                4,
+                ACCENT.stroke_width(2),
+            )))?;
+            Ok(())
+        })?;
+        self.layer(canvas, i, "rolling-beta", &|_, chart| {
+            chart.draw_series(std::iter::once(PathElement::new(
+                points
+                    .iter()
+                    .map(|p| (year(p.window_end), p.beta))
+                    .collect::<Vec<_>>(),
+                PRIMARY.stroke_width(2),
+            )))?;
+            Ok(())
+        })
+    }
 }
 
 fn draw_band(chart: &mut Chart, points: &[RollingPoint]) -> Drawn {

@@ -62,7 +62,22 @@ pub fn draw(u: &Uncertainty) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    plot_layer(&mut canvas, &layout, &axes, "bars", |chart| {
+    plot(&mut canvas, &layout, &axes, u)?;
+    let description = format!("{caption} {}", data_summary(u));
+    Ok(Figure {
+        kind: Kind::Uncertainty,
+        svg: canvas.finish("uncertainty", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The bars, the percentile lines and the point estimate, each line labelled.
+fn plot(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
+    let h = &u.histogram;
+    plot_layer(canvas, layout, axes, "bars", |chart| {
         chart.draw_series(h.counts.iter().enumerate().map(|(i, &count)| {
             Rectangle::new(
                 [(h.edges[i], 0.0), (h.edges[i + 1], f64::from(count))],
@@ -80,6 +95,11 @@ pub fn draw(u: &Uncertainty) -> Result<Figure> {
         ))?;
         Ok(())
     })?;
+    lines(canvas, layout, axes, u)
+}
+
+/// The percentile and point-estimate lines, each labelled at its own height.
+fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
     let top = axes.y.range.end;
     // Label rows from the top of the plot, as fractions of its height.
     let marks = [
@@ -113,7 +133,7 @@ pub fn draw(u: &Uncertainty) -> Result<Figure> {
         ),
     ];
     for (class, x, text, height, side) in marks {
-        plot_layer(&mut canvas, &layout, &axes, class, |chart| {
+        plot_layer(canvas, layout, axes, class, |chart| {
             let (colour, width) = if class == "point-estimate" {
                 (ACCENT, 3)
             } else {
@@ -141,15 +161,7 @@ pub fn draw(u: &Uncertainty) -> Result<Figure> {
             Ok(())
         })?;
     }
-    let description = format!("{caption} {}", data_summary(u));
-    Ok(Figure {
-        kind: Kind::Uncertainty,
-        svg: canvas.finish("uncertainty", &title, &description),
-        file_name: name,
-        title,
-        caption,
-        peer: None,
-    })
+    Ok(())
 }
 
 fn caption(u: &Uncertainty) -> String {

@@ -255,7 +255,7 @@ impl Moments {
         let mut beta = 0.0;
         for column in [lag, current, lead] {
             let sxx = centred(column, column);
-            if !(sxx > 0.0) {
+            if sxx.is_nan() || sxx <= 0.0 {
                 return None;
             }
             beta += centred(column, k) / sxx;
