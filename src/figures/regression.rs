@@ -22,7 +22,7 @@ use crate::regression::StdErrors;
 use crate::valuation::{PeerResult, Valuation};
 
 const WIDTH: u32 = 640;
-const PLOT: u32 = 380;
+const PLOT: u32 = 320;
 
 /// The regression chart of peer `index`.
 pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {

@@ -204,6 +204,7 @@ section.cautions h2 { border: 0; }
   nav { break-inside: avoid; }
   .table { overflow: visible; }
   table { font-size: 7.5pt; width: 100%; }
+  header.cover table { width: auto; font-size: 9pt; }
   th, td { padding: 0.15rem 0.3rem; }
   thead { display: table-header-group; }
   tr, figure, .gallery.two > figure { break-inside: avoid; }

@@ -10,6 +10,7 @@ use chrono::{Datelike, NaiveDate};
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
+use plotters::style::FontTransform;
 
 use super::axes::{Axes, Chart, Scale};
 use super::canvas::{Area, Canvas, Drawn};
@@ -23,6 +24,9 @@ use crate::valuation::Valuation;
 
 const WIDTH: u32 = 720;
 const PANEL_HEIGHT: u32 = 190;
+/// Room for the shared axis titles: below the panels, and left of them.
+const X_TITLE: u32 = 26;
+const Y_TITLE: u32 = 22;
 
 /// The date as a fractional year (2024-07-01 is about 2024.5), the x coordinate of the panels.
 fn year(date: NaiveDate) -> f64 {
@@ -73,7 +77,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     ];
     let layout = Layout::new(
         WIDTH,
-        PANEL_HEIGHT * panel_rows as u32 + 8,
+        PANEL_HEIGHT * panel_rows as u32 + X_TITLE + 8,
         &title,
         &legend,
         &caption,
@@ -81,6 +85,26 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let name = "figures/stability.svg".to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
+    canvas.layer("axis-titles", |root| {
+        let (_, plot, _) = layout.split(root);
+        let (width, height) = plot.dim_in_pixel();
+        let title = style::text(style::LABEL, &INK);
+        plot.draw_text(
+            &format!(
+                "Last period of the window (year), {} returns",
+                crate::format::label(&valuation.sampling.frequency)
+            ),
+            &title.pos(Pos::new(HPos::Center, VPos::Bottom)),
+            (width as i32 / 2, height as i32 - 4),
+        )?;
+        plot.draw_text(
+            "Equity beta",
+            &title
+                .transform(FontTransform::Rotate270)
+                .pos(Pos::new(HPos::Center, VPos::Top)),
+            (4, (height - X_TITLE) as i32 / 2),
+        )
+    })?;
     let grid = Panels {
         layout: &layout,
         axes: &axes,
@@ -122,7 +146,10 @@ impl Panels<'_> {
     ) -> Result<()> {
         canvas.layer(&format!("{class} panel-{}", i + 1), |root| {
             let (_, plot, _) = self.layout.split(root);
-            let panels = plot.split_evenly((self.rows, self.columns));
+            let (height, width) = (plot.dim_in_pixel().1, plot.dim_in_pixel().0);
+            let (grid, _) = plot.split_vertically(height - X_TITLE);
+            let (_, grid) = grid.split_horizontally(Y_TITLE.min(width));
+            let panels = grid.split_evenly((self.rows, self.columns));
             let (title_band, body) = panels[i].split_vertically(22);
             let mut chart = self.axes.chart(&body)?;
             draw(&title_band, &mut chart)
