@@ -18,7 +18,7 @@ use crate::format::{fixed, percent};
 use crate::valuation::Valuation;
 
 const WIDTH: u32 = 720;
-const CELL_HEIGHT: u32 = 42;
+const CELL_HEIGHT: u32 = 46;
 
 /// The axis's values as written: rates as percentages, ratios and betas as decimals, with the
 /// fewest decimals that write every value exactly.
@@ -47,7 +47,8 @@ fn value_labels(axis: &Axis) -> Vec<String> {
         .collect()
 }
 
-/// An axis title: the setting in words (for the usual keys) and its key path.
+/// An axis title: the setting in words for the usual keys (the caption names the key path),
+/// else the key path itself.
 fn key_title(key: &str) -> String {
     let words = match key {
         "market.equity_risk_premium" => "Equity risk premium",
@@ -61,7 +62,7 @@ fn key_title(key: &str) -> String {
         "premiums.company_specific" => "Company-specific premium",
         _ => return key.to_string(),
     };
-    format!("{words} ({key})")
+    words.to_string()
 }
 
 /// The heat map of `grid`.
