@@ -5,7 +5,8 @@
 //! [`sampling`] (period returns) → [`regression`] (least squares) → [`beta`] (estimators) →
 //! [`leverage`] (unlever, aggregate, relever) → [`debt`] (where the cost of debt comes from) →
 //! [`cost`] (cost of equity, cost of debt, WACC) → [`currency`] (Fisher conversion) →
-//! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV). [`stats`], [`format`]
+//! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV) and [`figures`] (charts,
+//! HTML report). [`stats`], [`format`]
 //! and [`random`] are shared helpers; [`demo`] generates the invented demo case.
 
 pub mod audit;
