@@ -9,10 +9,12 @@
 pub mod bridge;
 pub mod frequency_comparison;
 pub mod grid;
+pub mod histogram;
 pub mod implied;
 pub mod specification;
 pub mod uncertainty;
 pub mod verify;
+pub mod waterfall;
 
 use crate::error::{Error, Result};
 use crate::valuation::{estimate_peers, value_with, Inputs, Valuation};

@@ -95,6 +95,7 @@ pub fn simulate(
         beta_error_correlation: correlation,
         influence_threshold: u.influence_threshold,
         specifications,
+        histogram: super::histogram::histogram(&waccs),
     })
 }
 

@@ -97,6 +97,7 @@ pub fn scholes_williams_beta(
         &fit,
         (alpha, se(0)),
         (beta, se(1)),
+        cov[(0, 1)],
         kind,
         market_coefficients,
     );

@@ -30,6 +30,9 @@ pub struct Grid {
     pub rows: Axis,
     pub columns: Axis,
     pub cells: Vec<Vec<f64>>,
+    /// `[row, column]` of the cell whose two values are the case's own (it reproduces the
+    /// case's figure); `null` when an axis does not hold the case's value.
+    pub base_cell: Option<[usize; 2]>,
 }
 
 /// Percentiles of the simulated WACC.
@@ -59,6 +62,8 @@ pub struct Uncertainty {
     pub influence_threshold: f64,
     /// The WACC under the usual alternative frequencies and windows (empty when turned off).
     pub specifications: Vec<Specification>,
+    /// The estimation-error draws binned, for the memo's chart (see `audit::histogram`).
+    pub histogram: Histogram,
 }
 
 /// Percentiles of the WACC when each draw resamples the peers (with replacement, among those
@@ -268,7 +273,39 @@ pub struct Bridge {
     pub steps: Vec<Step>,
     /// `to.stated_wacc − to.wacc`: what the claim's own components do not explain.
     pub unexplained: Option<f64>,
-    /// `from.stated_wacc − from.wacc`: for a case with preferred equity or leases, their share
-    /// of its WACC, which the build-up leaves out.
+    /// `from.stated_wacc − from.wacc`: 0 for a case, whose build-up includes preferred equity
+    /// and leases.
     pub unexplained_from: Option<f64>,
+    /// The bridge as waterfall bars, by Shapley value (see `audit::waterfall`).
+    pub waterfall: Vec<WaterfallBar>,
+}
+
+/// Bin edges (one more than the counts) and counts of the values in each bin.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Histogram {
+    pub edges: Vec<f64>,
+    pub counts: Vec<u32>,
+    /// The bin width (the round step the edges are multiples of).
+    pub bin_width: f64,
+}
+
+/// What a bar stands for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum BarKind {
+    /// A WACC itself, drawn from zero.
+    Total,
+    /// An input group's Shapley value.
+    Group,
+    /// What no input group explains.
+    Residue,
+}
+
+/// One bar: it runs from `start` to `end` (WACC levels; `start` is 0 for a total).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct WaterfallBar {
+    pub label: String,
+    pub kind: BarKind,
+    pub start: f64,
+    pub end: f64,
 }
