@@ -24,6 +24,9 @@ use crate::stats::Aggregation;
 #[serde(deny_unknown_fields)]
 pub struct CaseFile {
     pub case: CaseInfo,
+    /// Wide price tables that series refer to by `source` and `column`.
+    #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
+    pub sources: crate::sources::Sources,
     pub market: Market,
     #[serde(default)]
     pub beta: BetaSettings,
@@ -130,7 +133,14 @@ pub struct Market {
 pub struct IndexSpec {
     #[serde(default = "default_index_name")]
     pub name: String,
+    /// A price file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub prices: String,
+    /// A table under `[sources]`, and the column in it (instead of `prices`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_price_column")]
@@ -141,7 +151,14 @@ pub struct IndexSpec {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct YieldSpec {
+    /// A yield file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub yields: String,
+    /// A table under `[sources]`, and the column in it (instead of `yields`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_yield_column")]
@@ -711,7 +728,14 @@ pub struct ConversionSettings {
 #[serde(deny_unknown_fields)]
 pub struct PeerSpec {
     pub name: String,
+    /// A price file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub prices: String,
+    /// A table under `[sources]`, and the column in it (instead of `prices`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_price_column")]
@@ -883,6 +907,7 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         file: path.to_path_buf(),
         message: format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
     })?;
+    crate::placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
     validate(&settings).map_err(|message| Error::Case {
         file: path.to_path_buf(),
@@ -1081,6 +1106,7 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
+    crate::sources::validate(case)?;
     rate(
         "market.risk_free_rate",
         case.market.risk_free_rate,

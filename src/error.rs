@@ -43,6 +43,9 @@ pub enum Error {
     /// A regression could not be solved (rank-deficient design, too few observations).
     #[error("regression: {0}")]
     Regression(String),
+    /// An output file could not be laid out (a spreadsheet limit, a missing figure).
+    #[error("{file}: {message}")]
+    Render { file: String, message: String },
     /// The memo template failed to parse or render.
     #[error("template {name}, line {line}: {message}")]
     Template {

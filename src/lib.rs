@@ -21,11 +21,15 @@ pub mod format;
 pub mod frequency_comparison;
 pub mod leverage;
 pub mod output;
+pub mod placeholders;
 pub mod random;
 pub mod regression;
 pub mod rolling;
 pub mod sampling;
+pub mod sources;
 pub mod stats;
+pub mod tables;
 pub mod valuation;
+pub mod workbook;
 
 pub use error::{Error, Result};

@@ -12,7 +12,7 @@ use crate::beta::{self, BetaEstimate};
 use crate::case::{Case, CaseFile, CountryMethod, DebtBetaSource, DebtSource, TargetSource};
 use crate::cost;
 use crate::currency;
-use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
+use crate::data::{iso_date, DataFile};
 use crate::debt::{self, CostOfDebtRecord, SpreadTable};
 use crate::error::{Error, Result};
 use crate::leverage::{self, CapitalStructure, DebtTerms, Formula};
@@ -37,40 +37,8 @@ pub struct Inputs {
 /// Reads every data file a case names, resolving paths against the case file's folder.
 pub fn load_inputs(case: Case) -> Result<Inputs> {
     let settings = &case.settings;
-    let index_spec = &settings.market.index;
-    let index = read_series_file(
-        "index",
-        &index_spec.prices,
-        &case.resolve(&index_spec.prices),
-        &index_spec.date_column,
-        &index_spec.price_column,
-        ValueKind::Price,
-    )?;
-    let risk_free = match &settings.market.risk_free_series {
-        Some(spec) => Some(read_series_file(
-            "risk_free",
-            &spec.yields,
-            &case.resolve(&spec.yields),
-            &spec.date_column,
-            &spec.yield_column,
-            ValueKind::Yield,
-        )?),
-        None => None,
-    };
-    let peers = settings
-        .peers
-        .iter()
-        .map(|peer| {
-            read_series_file(
-                &format!("peer:{}", peer.name),
-                &peer.prices,
-                &case.resolve(&peer.prices),
-                &peer.date_column,
-                &peer.price_column,
-                ValueKind::Price,
-            )
-        })
-        .collect::<Result<Vec<_>>>()?;
+    // Own files or columns of wide tables (`[sources]`); each table is read once.
+    let (index, risk_free, peers) = crate::sources::read_series(&case)?;
     let debt_settings = &settings.debt;
     let debt_table = match debt_settings.source {
         DebtSource::Given => None,

@@ -1,6 +1,7 @@
 //! `hurdle run CASE.toml [--out DIR] [--template FILE] [--set KEY=VALUE]...`
 //!
-//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv` and `returns.csv` to
+//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv` and
+//! `workbook.xlsx` (formulas that recompute the chain) to
 //! DIR (default: `output/` beside the case file), each atomically; prints a short summary.
 
 use std::path::PathBuf;
@@ -8,6 +9,7 @@ use std::path::PathBuf;
 use hurdle::format::{fixed, label, percent};
 use hurdle::output::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
+use hurdle::workbook::Workbook;
 
 use super::CaseArgs;
 
@@ -34,7 +36,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
+    let outputs: [&dyn Render; 5] = [&memo, &Json, &PeersCsv, &ReturnsCsv, &Workbook];
     let written = output::write_all(&out, &valuation, &outputs)?;
     print!("{}", summary(&valuation));
     for path in written {
