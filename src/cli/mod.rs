@@ -7,6 +7,7 @@ pub mod betas;
 pub mod compare;
 pub mod grid;
 pub mod implied;
+pub mod init;
 pub mod rolling;
 pub mod run;
 pub mod verify;
@@ -26,8 +27,8 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv and
-    /// returns.csv.
+    /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv,
+    /// returns.csv and workbook.xlsx.
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),
@@ -41,6 +42,8 @@ pub enum Command {
     Grid(grid::Args),
     /// Write each peer's rolling beta to rolling.csv.
     Rolling(rolling::Args),
+    /// Start a case file from a wide price table (one column per security).
+    Init(init::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -100,5 +103,6 @@ pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
         Command::Compare(args) => compare::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Rolling(args) => rolling::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Init(args) => init::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }
