@@ -231,12 +231,12 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
             )
         })?,
     };
-    if raw.header.len() < 2 {
+    let named = raw.header.iter().filter(|h| !h.is_empty()).count();
+    if named < 2 {
         return Err(format!(
-            "{prefix}the header has {} column(s) ({}); a price table needs a date column and at \
-             least one column of prices",
-            raw.header.len(),
-            quoted_list(raw.header.iter(), raw.header.len())
+            "{prefix}the header has {named} named column(s) ({}); a price table needs a date \
+             column and at least one column of prices",
+            quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named)
         ));
     }
     let date_name = raw.header[date_index].clone();
@@ -246,30 +246,7 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
         .into_iter()
         .filter(|&j| !raw.header[j].is_empty())
         .collect();
-    let mut dates = Vec::new();
-    let mut rows = Vec::new();
-    for (i, cell) in raw.columns[date_index].iter().enumerate() {
-        if cell.is_empty() {
-            if let Some(&j) = others.iter().find(|&&j| !raw.columns[j][i].is_empty()) {
-                return Err(format!(
-                    "{}: the date cell is empty but {} holds {}; every row with prices needs a \
-                     date",
-                    place.cell(i, date_index),
-                    place.cell(i, j),
-                    raw.columns[j][i].shown()
-                ));
-            }
-            continue;
-        }
-        let date = cell.date().map_err(|m| {
-            format!(
-                "{} (date column `{date_name}`): {m}",
-                place.cell(i, date_index)
-            )
-        })?;
-        dates.push(date);
-        rows.push(i);
-    }
+    let (mut dates, mut rows) = dated_rows(&raw, date_index, &others)?;
     if dates.is_empty() {
         return Err(format!(
             "{prefix}the date column `{date_name}` has no dates below the header"
@@ -300,6 +277,41 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
         positions: others,
         place,
     })
+}
+
+/// The date of every row that has one, with the row; a blank row is skipped, and a row with
+/// prices but no date is an error.
+fn dated_rows(
+    raw: &RawTable,
+    date_index: usize,
+    others: &[usize],
+) -> std::result::Result<(Vec<NaiveDate>, Vec<usize>), String> {
+    let place = &raw.place;
+    let date_name = &raw.header[date_index];
+    let (mut dates, mut rows) = (Vec::new(), Vec::new());
+    for (i, cell) in raw.columns[date_index].iter().enumerate() {
+        if cell.is_empty() {
+            if let Some(&j) = others.iter().find(|&&j| !raw.columns[j][i].is_empty()) {
+                return Err(format!(
+                    "{}: the date cell is empty but {} holds {}; every row with prices needs a \
+                     date",
+                    place.cell(i, date_index),
+                    place.cell(i, j),
+                    raw.columns[j][i].shown()
+                ));
+            }
+            continue;
+        }
+        let date = cell.date().map_err(|m| {
+            format!(
+                "{} (date column `{date_name}`): {m}",
+                place.cell(i, date_index)
+            )
+        })?;
+        dates.push(date);
+        rows.push(i);
+    }
+    Ok((dates, rows))
 }
 
 /// Every column with data has a name, and no name repeats.

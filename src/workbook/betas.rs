@@ -12,7 +12,7 @@ use crate::error::Result;
 use crate::regression::StdErrors;
 
 use super::returns::ReturnsLayout;
-use super::{relative, xlsx_error, Book, Expect, Sheet};
+use super::{relative, xlsx_error, Book, Expect, Format, Sheet};
 
 /// Where each peer's raw beta and its standard error are.
 pub(crate) struct BetasLayout {
@@ -40,8 +40,63 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
     let mut sheet = Sheet::new("Betas")?;
     let method = v.estimator.method;
     let offsets: Vec<i32> = returns.market.iter().map(|(o, _)| *o).collect();
+    let (c, cols, slopes) = columns(method, &offsets);
+    let header = book.styles.header.clone();
+    for (col, name) in c.names.iter().enumerate() {
+        book.text(&mut sheet, (0, col as u16), name, &header)?;
+    }
+    let s = &book.styles;
+    let formats = Formats {
+        count: s.count.clone(),
+        beta: s.beta.clone(),
+        statistic: s.statistic.clone(),
+        p_value: s.p_value.clone(),
+        percent: s.return_pct.clone(),
+    };
+    let mut rows = Vec::with_capacity(v.peers.len());
+    for i in 0..v.peers.len() {
+        let row = 1 + i as u32;
+        book.text(
+            &mut sheet,
+            (row, 0),
+            &v.peers[i].name,
+            &book.styles.text.clone(),
+        )?;
+        peer_row(
+            book,
+            &mut sheet,
+            returns,
+            (&cols, &formats),
+            &slopes,
+            (i, row),
+        )?;
+        rows.push(row);
+    }
+    let last = 2 + v.peers.len() as u32;
+    let note = format!(
+        "Method: {}. Standard errors: {}.",
+        v.estimator.method_description, v.estimator.std_errors_description
+    );
+    book.text(&mut sheet, (last, 0), &note, &book.styles.text.clone())?;
+    sheet.ws.set_freeze_panes(1, 1).map_err(xlsx_error)?;
+    sheet.ws.set_row_height(0, 32).map_err(xlsx_error)?;
+    sheet.ws.set_column_width(0, 26).map_err(xlsx_error)?;
+    for col in 1..c.names.len() as u16 {
+        sheet.ws.set_column_width(col, 11).map_err(xlsx_error)?;
+    }
+    Ok(BetasLayout {
+        sheet,
+        rows,
+        beta: cols.beta,
+        std_error: cols.se,
+    })
+}
+
+/// The sheet's columns for `method`: their names, the column of each figure, and the slope
+/// column of each index offset (Dimson and Scholes–Williams).
+fn columns(method: BetaMethod, offsets: &[i32]) -> (Columns, Cols, Vec<(i32, u16)>) {
     let mut c = Columns { names: Vec::new() };
-    let peer = c.add("Peer");
+    c.add("Peer");
     let n = c.add("Observations N");
     let df = c.add("Degrees of freedom");
     let slopes: Vec<(i32, u16)> = match method {
@@ -70,40 +125,7 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
         resid_se: c.add("Residual SE"),
         rho,
     };
-    let header = book.styles.header.clone();
-    for (col, name) in c.names.iter().enumerate() {
-        book.text(&mut sheet, (0, col as u16), name, &header)?;
-    }
-    let mut rows = Vec::with_capacity(v.peers.len());
-    for i in 0..v.peers.len() {
-        let row = 1 + i as u32;
-        book.text(
-            &mut sheet,
-            (row, peer),
-            &v.peers[i].name,
-            &book.styles.text.clone(),
-        )?;
-        peer_row(book, &mut sheet, returns, &cols, &slopes, i, row)?;
-        rows.push(row);
-    }
-    let last = 2 + v.peers.len() as u32;
-    let note = format!(
-        "Method: {}. Standard errors: {}.",
-        v.estimator.method_description, v.estimator.std_errors_description
-    );
-    book.text(&mut sheet, (last, 0), &note, &book.styles.text.clone())?;
-    sheet.ws.set_freeze_panes(1, 1).map_err(xlsx_error)?;
-    sheet.ws.set_row_height(0, 32).map_err(xlsx_error)?;
-    sheet.ws.set_column_width(0, 26).map_err(xlsx_error)?;
-    for col in 1..c.names.len() as u16 {
-        sheet.ws.set_column_width(col, 11).map_err(xlsx_error)?;
-    }
-    Ok(BetasLayout {
-        sheet,
-        rows,
-        beta: cols.beta,
-        std_error: cols.se,
-    })
+    (c, cols, slopes)
 }
 
 fn offset_label(offset: i32) -> String {
@@ -134,244 +156,278 @@ struct Cols {
     rho: Option<u16>,
 }
 
+/// The formats of the sheet, cloned once.
+struct Formats {
+    count: Format,
+    beta: Format,
+    statistic: Format,
+    p_value: Format,
+    percent: Format,
+}
+
+/// One peer's row: where its returns are and where its figures go.
+struct PeerRow<'a> {
+    i: usize,
+    row: u32,
+    cols: &'a Cols,
+    /// The peer's (excess) returns, the index return of the same period, and every index
+    /// column of the method side by side (for `LINEST`).
+    y: String,
+    x: String,
+    block: String,
+    /// The number of index columns the regression has.
+    k: usize,
+    formats: &'a Formats,
+}
+
+impl PeerRow<'_> {
+    fn at(&self, col: u16) -> String {
+        relative(self.row, col)
+    }
+
+    /// A formula in column `col` equal to the peer's `result.json` field `field`.
+    fn put(
+        &self,
+        book: &mut Book,
+        sheet: &mut Sheet,
+        col: u16,
+        formula: &str,
+        field: &str,
+        format: &Format,
+    ) -> Result<()> {
+        let expect = Expect::Json(format!("/peers/{}/{field}", self.i));
+        book.formula(sheet, (self.row, col), formula, expect, format)
+    }
+}
+
 /// One peer's regression row.
 fn peer_row(
     book: &mut Book,
     sheet: &mut Sheet,
     returns: &ReturnsLayout,
-    cols: &Cols,
+    (cols, formats): (&Cols, &Formats),
     slopes: &[(i32, u16)],
-    i: usize,
-    row: u32,
+    (i, row): (usize, u32),
 ) -> Result<()> {
-    let v = book.v;
-    let method = v.estimator.method;
-    let estimate = &v.peers[i].estimate;
-    let at = |col: u16| relative(row, col);
-    let p = |field: &str| Expect::Json(format!("/peers/{i}/{field}"));
-    let y = returns.range(i, returns.asset);
-    let x = returns.range(i, returns.market_column(0));
     let (lowest, highest) = (
         returns.market.first().map_or(0, |m| m.0),
         returns.market.last().map_or(0, |m| m.0),
     );
-    let block = returns.market_range(i, lowest, highest);
-    let k = slopes.len().max(1);
-    let s = &book.styles;
-    let (count, beta, stat, pv, pct) = (
-        s.count.clone(),
-        s.beta.clone(),
-        s.statistic.clone(),
-        s.p_value.clone(),
-        s.return_pct.clone(),
-    );
-    book.formula(
-        sheet,
-        (row, cols.n),
-        &format!("=COUNT({y})"),
-        p("observations"),
-        &count,
-    )?;
-    let parameters = if method == BetaMethod::ScholesWilliams {
-        4
-    } else {
-        k + 1
+    let peer = PeerRow {
+        i,
+        row,
+        cols,
+        y: returns.range(i, returns.asset),
+        x: returns.range(i, returns.market_column(0)),
+        block: returns.market_range(i, lowest, highest),
+        k: slopes.len().max(1),
+        formats,
     };
-    book.formula(
+    let f = formats;
+    peer.put(
+        book,
         sheet,
-        (row, cols.df),
-        &format!("={}-{parameters}", at(cols.n)),
-        p("degrees_of_freedom"),
-        &count,
+        cols.n,
+        &format!("=COUNT({})", peer.y),
+        "observations",
+        &f.count,
     )?;
+    // Every method's regression has an intercept and one slope per index column.
+    let df = format!("={}-{}", peer.at(cols.n), peer.k + 1);
+    peer.put(book, sheet, cols.df, &df, "degrees_of_freedom", &f.count)?;
+    coefficients(book, sheet, returns, &peer, slopes)?;
+    fit(book, sheet, &peer)?;
+    std_errors(book, sheet, &peer)?;
+    tests(book, sheet, &peer)
+}
+
+/// The slopes on each index column, beta and alpha, by the method's definition.
+fn coefficients(
+    book: &mut Book,
+    sheet: &mut Sheet,
+    returns: &ReturnsLayout,
+    peer: &PeerRow,
+    slopes: &[(i32, u16)],
+) -> Result<()> {
+    let method = book.v.estimator.method;
+    let (cols, f) = (peer.cols, peer.formats);
+    let (y, x, block, k) = (&peer.y, &peer.x, &peer.block, peer.k);
     for (m, &(offset, col)) in slopes.iter().enumerate() {
         let formula = match method {
             // LINEST lists the slopes of its columns in reverse order, the intercept last.
             BetaMethod::Dimson => format!("=INDEX(LINEST({y},{block}),1,{})", k - m),
-            _ => format!(
-                "=SLOPE({y},{})",
-                returns.range(i, returns.market_column(offset))
-            ),
+            _ => {
+                let market = returns.range(peer.i, returns.market_column(offset));
+                format!("=SLOPE({y},{market})")
+            }
         };
-        book.formula(
-            sheet,
-            (row, col),
-            &formula,
-            p(&format!("market_coefficients/{m}/estimate")),
-            &beta,
-        )?;
+        let field = format!("market_coefficients/{m}/estimate");
+        peer.put(book, sheet, col, &formula, &field, &f.beta)?;
     }
-    let slope_sum = || {
-        slopes
-            .iter()
-            .map(|&(_, col)| at(col))
-            .collect::<Vec<_>>()
-            .join("+")
-    };
-    let (beta_formula, alpha_formula) = match method {
+    let slope_sum = slopes
+        .iter()
+        .map(|&(_, col)| peer.at(col))
+        .collect::<Vec<_>>()
+        .join("+");
+    let (beta, alpha) = match method {
         BetaMethod::Ols => (format!("=SLOPE({y},{x})"), format!("=INTERCEPT({y},{x})")),
         BetaMethod::Dimson => (
-            format!("={}", slope_sum()),
+            format!("={slope_sum}"),
             format!("=INDEX(LINEST({y},{block}),1,{})", k + 1),
         ),
         BetaMethod::ScholesWilliams => {
             let rho = cols.rho.expect("Scholes-Williams has a ρ column");
-            let lag = returns.range(i, returns.market_column(-1));
-            book.formula(
-                sheet,
-                (row, rho),
-                &format!("=CORREL({x},{lag})"),
-                p("market_autocorrelation"),
-                &beta,
-            )?;
+            let lag = returns.range(peer.i, returns.market_column(-1));
+            let correl = format!("=CORREL({x},{lag})");
+            peer.put(book, sheet, rho, &correl, "market_autocorrelation", &f.beta)?;
             (
-                format!("=({})/(1+2*{})", slope_sum(), at(rho)),
-                format!("=AVERAGE({y})-{}*AVERAGE({x})", at(cols.beta)),
+                format!("=({slope_sum})/(1+2*{})", peer.at(rho)),
+                format!("=AVERAGE({y})-{}*AVERAGE({x})", peer.at(cols.beta)),
             )
         }
     };
-    book.formula(sheet, (row, cols.beta), &beta_formula, p("beta"), &beta)?;
-    book.formula(sheet, (row, cols.alpha), &alpha_formula, p("alpha"), &pct)?;
-    let (r2, resid) = match method {
+    peer.put(book, sheet, cols.beta, &beta, "beta", &f.beta)?;
+    peer.put(book, sheet, cols.alpha, &alpha, "alpha", &f.percent)
+}
+
+/// R², adjusted R² and the residual standard error of the method's regression.
+fn fit(book: &mut Book, sheet: &mut Sheet, peer: &PeerRow) -> Result<()> {
+    let (cols, f) = (peer.cols, peer.formats);
+    let (y, x, block) = (&peer.y, &peer.x, &peer.block);
+    let (r2, resid) = match book.v.estimator.method {
         BetaMethod::Ols => (format!("=RSQ({y},{x})"), format!("=STEYX({y},{x})")),
         _ => (
             format!("=INDEX(LINEST({y},{block},TRUE,TRUE),3,1)"),
             format!("=INDEX(LINEST({y},{block},TRUE,TRUE),3,2)"),
         ),
     };
-    book.formula(sheet, (row, cols.r2), &r2, p("r_squared"), &beta)?;
-    book.formula(
+    peer.put(book, sheet, cols.r2, &r2, "r_squared", &f.beta)?;
+    peer.put(
+        book,
         sheet,
-        (row, cols.resid_se),
+        cols.resid_se,
         &resid,
-        p("residual_std_error"),
-        &pct,
+        "residual_std_error",
+        &f.percent,
     )?;
-    let adjusted = format!("=1-(1-{})*({}-1)/{}", at(cols.r2), at(cols.n), at(cols.df));
-    book.formula(
+    let (r2, n, df) = (peer.at(cols.r2), peer.at(cols.n), peer.at(cols.df));
+    let adjusted = format!("=1-(1-{r2})*({n}-1)/{df}");
+    peer.put(
+        book,
         sheet,
-        (row, cols.adj_r2),
+        cols.adj_r2,
         &adjusted,
-        p("adjusted_r_squared"),
-        &beta,
-    )?;
-    std_errors(book, sheet, (i, row), cols, (&y, &x, &block, k))?;
-    let t_test = |value: u16, se: u16, t: u16, pcol: u16, name: &str| {
-        [
-            (
-                t,
-                format!("={}/{}", at(value), at(se)),
-                format!("{name}_t_stat"),
-            ),
-            (
-                pcol,
-                format!("=T.DIST.2T(ABS({}),{})", at(t), at(cols.df)),
-                format!("{name}_p_value"),
-            ),
-        ]
-    };
-    for (col, formula, field) in t_test(cols.beta, cols.se, cols.t, cols.p, "beta")
-        .into_iter()
-        .chain(t_test(
+        "adjusted_r_squared",
+        &f.beta,
+    )
+}
+
+/// The t statistics and two-sided p-values of beta and alpha, and beta's 95% interval, with
+/// Student t on the regression's degrees of freedom.
+fn tests(book: &mut Book, sheet: &mut Sheet, peer: &PeerRow) -> Result<()> {
+    let (cols, f) = (peer.cols, peer.formats);
+    let df = peer.at(cols.df);
+    for (value, se, t, p, name) in [
+        (cols.beta, cols.se, cols.t, cols.p, "beta"),
+        (
             cols.alpha,
             cols.alpha_se,
             cols.alpha_t,
             cols.alpha_p,
             "alpha",
-        ))
-    {
-        let format = if field.ends_with("p_value") {
-            &pv
-        } else {
-            &stat
-        };
-        book.formula(sheet, (row, col), &formula, p(&field), format)?;
+        ),
+    ] {
+        let ratio = format!("={}/{}", peer.at(value), peer.at(se));
+        peer.put(
+            book,
+            sheet,
+            t,
+            &ratio,
+            &format!("{name}_t_stat"),
+            &f.statistic,
+        )?;
+        let p_value = format!("=T.DIST.2T(ABS({}),{df})", peer.at(t));
+        peer.put(
+            book,
+            sheet,
+            p,
+            &p_value,
+            &format!("{name}_p_value"),
+            &f.p_value,
+        )?;
     }
-    let quantile = format!("T.INV.2T(0.05,{})", at(cols.df));
-    let (b, se) = (at(cols.beta), at(cols.se));
-    book.formula(
-        sheet,
-        (row, cols.ci_low),
-        &format!("={b}-{quantile}*{se}"),
-        p("beta_ci_low"),
-        &beta,
-    )?;
-    book.formula(
-        sheet,
-        (row, cols.ci_high),
-        &format!("={b}+{quantile}*{se}"),
-        p("beta_ci_high"),
-        &beta,
-    )?;
-    let _ = estimate;
-    Ok(())
+    let quantile = format!("T.INV.2T(0.05,{df})");
+    let (b, se) = (peer.at(cols.beta), peer.at(cols.se));
+    let low = format!("={b}-{quantile}*{se}");
+    peer.put(book, sheet, cols.ci_low, &low, "beta_ci_low", &f.beta)?;
+    let high = format!("={b}+{quantile}*{se}");
+    peer.put(book, sheet, cols.ci_high, &high, "beta_ci_high", &f.beta)
 }
 
 /// SE(β) and SE(α): formulas for classical OLS (and Dimson's α), hurdle's figures otherwise.
-fn std_errors(
-    book: &mut Book,
-    sheet: &mut Sheet,
-    (i, row): (usize, u32),
-    cols: &Cols,
-    (y, x, block, k): (&str, &str, &str, usize),
-) -> Result<()> {
+fn std_errors(book: &mut Book, sheet: &mut Sheet, peer: &PeerRow) -> Result<()> {
     let v = book.v;
-    let estimate = &v.peers[i].estimate;
+    let estimate = &v.peers[peer.i].estimate;
     let method = v.estimator.method;
     let classical = estimate.std_errors == StdErrors::Classical;
-    let at = |col: u16| relative(row, col);
-    let p = |field: &str| Expect::Json(format!("/peers/{i}/{field}"));
-    let (beta, pct) = (book.styles.beta.clone(), book.styles.return_pct.clone());
-    let kind = crate::format::label(&estimate.std_errors);
-    let why_beta = match (method, classical) {
-        (BetaMethod::Ols, _) => format!("{kind} standard errors need the residuals' sandwich, which no spreadsheet function gives."),
-        (BetaMethod::Dimson, _) => format!("the SE of a sum of slopes needs their covariance matrix ({kind} standard errors), which LINEST does not return."),
-        (BetaMethod::ScholesWilliams, _) => format!("the Scholes–Williams SE is a linear-estimator variance ({kind}) over the residuals of the three-slope regression (see README)."),
-    };
+    let (cols, f) = (peer.cols, peer.formats);
+    let (y, x, block, k) = (&peer.y, &peer.x, &peer.block, peer.k);
     if method == BetaMethod::Ols && classical {
-        let formula = format!("={}/SQRT(DEVSQ({x}))", at(cols.resid_se));
-        book.formula(sheet, (row, cols.se), &formula, p("beta_std_error"), &beta)?;
-        let formula = format!(
-            "={}*SQRT(1/{}+AVERAGE({x})^2/DEVSQ({x}))",
-            at(cols.resid_se),
-            at(cols.n)
-        );
-        book.formula(
+        let s = peer.at(cols.resid_se);
+        let se = format!("={s}/SQRT(DEVSQ({x}))");
+        peer.put(book, sheet, cols.se, &se, "beta_std_error", &f.beta)?;
+        let n = peer.at(cols.n);
+        let alpha_se = format!("={s}*SQRT(1/{n}+AVERAGE({x})^2/DEVSQ({x}))");
+        return peer.put(
+            book,
             sheet,
-            (row, cols.alpha_se),
-            &formula,
-            p("alpha_std_error"),
-            &pct,
-        )?;
-        let _ = y;
-        return Ok(());
+            cols.alpha_se,
+            &alpha_se,
+            "alpha_std_error",
+            &f.percent,
+        );
     }
+    let kind = crate::format::label(&estimate.std_errors);
+    let why = match method {
+        BetaMethod::Ols => format!(
+            "{kind} standard errors need the residuals' sandwich, which no spreadsheet function \
+             gives."
+        ),
+        BetaMethod::Dimson => format!(
+            "the SE of a sum of slopes needs their covariance matrix ({kind} standard errors), \
+             which LINEST does not return."
+        ),
+        BetaMethod::ScholesWilliams => format!(
+            "the Scholes–Williams SE is a linear-estimator variance ({kind}) over the residuals \
+             of the three-slope regression (see README)."
+        ),
+    };
     book.computed(
         sheet,
-        (row, cols.se),
+        (peer.row, cols.se),
         estimate.beta_std_error,
-        &why_beta,
-        &beta,
+        &why,
+        &f.beta,
     )?;
     if method == BetaMethod::Dimson && classical {
-        let formula = format!("=INDEX(LINEST({y},{block},TRUE,TRUE),2,{})", k + 1);
-        book.formula(
+        let alpha_se = format!("=INDEX(LINEST({y},{block},TRUE,TRUE),2,{})", k + 1);
+        peer.put(
+            book,
             sheet,
-            (row, cols.alpha_se),
-            &formula,
-            p("alpha_std_error"),
-            &pct,
-        )?;
+            cols.alpha_se,
+            &alpha_se,
+            "alpha_std_error",
+            &f.percent,
+        )
     } else {
         let why =
             format!("{kind} standard error of alpha, computed with the regression's residuals.");
         book.computed(
             sheet,
-            (row, cols.alpha_se),
+            (peer.row, cols.alpha_se),
             estimate.alpha_std_error,
             &why,
-            &pct,
-        )?;
+            &f.percent,
+        )
     }
-    Ok(())
 }

@@ -11,7 +11,7 @@ use crate::error::Result;
 use crate::leverage::Formula;
 
 use super::betas::BetasLayout;
-use super::{absolute, relative, xlsx_error, Book, Expect, Sheet};
+use super::{absolute, relative, xlsx_error, Book, Expect, Format, Sheet};
 
 /// The sheets after the regressions, and the cells the cover repeats.
 pub(crate) struct CapitalSheets {
@@ -142,6 +142,35 @@ fn unlevering(
     Ok((sheet, ranges))
 }
 
+/// One peer's row of the sheet: where it is and the peer's `result.json` fields.
+struct Row {
+    i: usize,
+    row: u32,
+}
+
+impl Row {
+    fn at(&self, col: u16) -> String {
+        relative(self.row, col)
+    }
+
+    fn field(&self, field: &str) -> Expect {
+        Expect::Json(format!("/peers/{}/{field}", self.i))
+    }
+
+    /// A formula in column `col` equal to the peer's field `field`.
+    fn put(
+        &self,
+        book: &mut Book,
+        sheet: &mut Sheet,
+        col: u16,
+        formula: &str,
+        field: &str,
+        format: &Format,
+    ) -> Result<()> {
+        book.formula(sheet, (self.row, col), formula, self.field(field), format)
+    }
+}
+
 /// One peer: adjustment, capital structure, debt terms, unlevered and cash-corrected betas.
 fn peer_row(
     book: &mut Book,
@@ -150,27 +179,12 @@ fn peer_row(
     i: usize,
     row: u32,
 ) -> Result<()> {
-    let v = book.v;
-    let peer = &v.peers[i];
-    let settings = &v.settings;
-    let spec = &settings.peers[i];
-    let at = |col: u16| relative(row, col);
-    let p = |field: &str| Expect::Json(format!("/peers/{i}/{field}"));
-    let s = &book.styles;
-    let (beta, pct, ratio, text) = (
-        s.beta.clone(),
-        s.percent.clone(),
-        s.ratio.clone(),
-        s.text.clone(),
-    );
-    let (amount_in, pct_in, beta_in, flag) = (
-        s.amount_input.clone(),
-        s.percent_input.clone(),
-        s.beta_input.clone(),
-        s.flag.clone(),
-    );
+    let peer = &book.v.peers[i];
+    let text = book.styles.text.clone();
+    let r = Row { i, row };
     book.text(sheet, (row, PEER), &peer.name, &text)?;
     let included = peer.excluded_reason.is_none();
+    let flag = book.styles.flag.clone();
     book.number(
         sheet,
         (row, INCLUDED),
@@ -180,98 +194,122 @@ fn peer_row(
     if let Some(reason) = &peer.excluded_reason {
         book.text(sheet, (row, REASON), reason, &text)?;
     }
-    let bref = |col: u16| format!("={}", betas.sheet.abs(betas.rows[i], col));
-    book.formula(sheet, (row, RAW), &bref(betas.beta), p("beta"), &beta)?;
-    book.formula(
+    adjustment(book, sheet, betas, &r)?;
+    structure(book, sheet, &r)?;
+    unlever(book, sheet, &r, included)
+}
+
+/// The raw beta and its SE from `Betas`, the case's adjustment, and the beta used.
+fn adjustment(book: &mut Book, sheet: &mut Sheet, betas: &BetasLayout, r: &Row) -> Result<()> {
+    let beta = book.styles.beta.clone();
+    let from_betas = |col: u16| format!("={}", betas.sheet.abs(betas.rows[r.i], col));
+    r.put(book, sheet, RAW, &from_betas(betas.beta), "beta", &beta)?;
+    r.put(
+        book,
         sheet,
-        (row, SE),
-        &bref(betas.std_error),
-        p("beta_std_error"),
+        SE,
+        &from_betas(betas.std_error),
+        "beta_std_error",
         &beta,
     )?;
-    let used = match settings.beta.adjustment {
-        Adjustment::None => format!("={}", at(RAW)),
+    let used = match book.v.settings.beta.adjustment {
+        Adjustment::None => format!("={}", r.at(RAW)),
         Adjustment::Blume => {
-            book.formula(
-                sheet,
-                (row, ADJUSTED),
-                &format!("=0.67*{}+0.33", at(RAW)),
-                p("adjusted_beta"),
-                &beta,
-            )?;
-            format!("={}", at(ADJUSTED))
+            let blume = format!("=0.67*{}+0.33", r.at(RAW));
+            r.put(book, sheet, ADJUSTED, &blume, "adjusted_beta", &beta)?;
+            format!("={}", r.at(ADJUSTED))
         }
         Adjustment::Vasicek => {
-            let weight = format!("=VasicekPriorVariance/(VasicekPriorVariance+{}^2)", at(SE));
-            book.formula(
+            let weight = format!(
+                "=VasicekPriorVariance/(VasicekPriorVariance+{}^2)",
+                r.at(SE)
+            );
+            r.put(
+                book,
                 sheet,
-                (row, WEIGHT),
+                WEIGHT,
                 &weight,
-                p("vasicek/weight_on_estimate"),
+                "vasicek/weight_on_estimate",
                 &beta,
             )?;
-            let shrunk = format!("={w}*{}+(1-{w})*VasicekPriorMean", at(RAW), w = at(WEIGHT));
-            book.formula(sheet, (row, ADJUSTED), &shrunk, p("adjusted_beta"), &beta)?;
-            format!("={}", at(ADJUSTED))
+            let w = r.at(WEIGHT);
+            let shrunk = format!("={w}*{}+(1-{w})*VasicekPriorMean", r.at(RAW));
+            r.put(book, sheet, ADJUSTED, &shrunk, "adjusted_beta", &beta)?;
+            format!("={}", r.at(ADJUSTED))
         }
     };
-    book.formula(sheet, (row, USED), &used, p("beta_used"), &beta)?;
-    book.number(sheet, (row, EQUITY), spec.equity_value, &amount_in)?;
-    book.number(sheet, (row, DEBT), spec.debt, &amount_in)?;
-    book.number(sheet, (row, CASH), spec.cash, &amount_in)?;
-    book.number(sheet, (row, TAX), spec.tax_rate, &pct_in)?;
+    r.put(book, sheet, USED, &used, "beta_used", &beta)
+}
+
+/// The peer's equity, debt, cash and tax rate (inputs), its D/E, cost of debt and debt beta.
+fn structure(book: &mut Book, sheet: &mut Sheet, r: &Row) -> Result<()> {
+    let settings = &book.v.settings;
+    let spec = &settings.peers[r.i];
+    let s = &book.styles;
+    let (beta, pct, ratio) = (s.beta.clone(), s.percent.clone(), s.ratio.clone());
+    let (amount_in, pct_in, beta_in) = (
+        s.amount_input.clone(),
+        s.percent_input.clone(),
+        s.beta_input.clone(),
+    );
+    for (col, value) in [
+        (EQUITY, spec.equity_value),
+        (DEBT, spec.debt),
+        (CASH, spec.cash),
+    ] {
+        book.number(sheet, (r.row, col), value, &amount_in)?;
+    }
+    book.number(sheet, (r.row, TAX), spec.tax_rate, &pct_in)?;
     let de = match settings.leverage.debt_measure {
-        DebtMeasure::Gross => format!("={}/{}", at(DEBT), at(EQUITY)),
-        DebtMeasure::Net => format!("=({}-{})/{}", at(DEBT), at(CASH), at(EQUITY)),
+        DebtMeasure::Gross => format!("={}/{}", r.at(DEBT), r.at(EQUITY)),
+        DebtMeasure::Net => format!("=({}-{})/{}", r.at(DEBT), r.at(CASH), r.at(EQUITY)),
     };
-    book.formula(sheet, (row, DE), &de, p("debt_to_equity"), &ratio)?;
+    r.put(book, sheet, DE, &de, "debt_to_equity", &ratio)?;
     match spec.cost_of_debt {
-        Some(kd) => book.number(sheet, (row, KD), kd, &pct_in)?,
-        None => book.formula(
-            sheet,
-            (row, KD),
-            "=CostOfDebtPreTax",
-            p("cost_of_debt"),
-            &pct,
-        )?,
+        Some(kd) => book.number(sheet, (r.row, KD), kd, &pct_in)?,
+        None => r.put(book, sheet, KD, "=CostOfDebtPreTax", "cost_of_debt", &pct)?,
     }
     match (settings.leverage.debt_beta_source, spec.debt_beta) {
-        (DebtBetaSource::None, _) => book.number(sheet, (row, DEBT_BETA), 0.0, &beta)?,
-        (_, Some(own)) => book.number(sheet, (row, DEBT_BETA), own, &beta_in)?,
-        (DebtBetaSource::Given, None) => book.formula(
+        (DebtBetaSource::None, _) => book.number(sheet, (r.row, DEBT_BETA), 0.0, &beta),
+        (_, Some(own)) => book.number(sheet, (r.row, DEBT_BETA), own, &beta_in),
+        (DebtBetaSource::Given, None) => r.put(
+            book,
             sheet,
-            (row, DEBT_BETA),
+            DEBT_BETA,
             "=SubjectDebtBeta",
-            p("debt_beta"),
+            "debt_beta",
             &beta,
-        )?,
+        ),
         (DebtBetaSource::CreditSpread, None) => {
-            let formula = format!("=({}-RiskFreeRate)/EquityRiskPremium", at(KD));
-            book.formula(sheet, (row, DEBT_BETA), &formula, p("debt_beta"), &beta)?
+            let spread = format!("=({}-RiskFreeRate)/EquityRiskPremium", r.at(KD));
+            r.put(book, sheet, DEBT_BETA, &spread, "debt_beta", &beta)
         }
     }
-    let unlevered = unlever_formula(v.cost.beta.formula, &at);
-    book.formula(
+}
+
+/// The unlevered beta under the case's formula, the cash-corrected one, and the figure the
+/// peer contributes to the aggregate.
+fn unlever(book: &mut Book, sheet: &mut Sheet, r: &Row, included: bool) -> Result<()> {
+    let v = book.v;
+    let (beta, ratio) = (book.styles.beta.clone(), book.styles.ratio.clone());
+    let unlevered = unlever_formula(v.cost.beta.formula, &|col| r.at(col));
+    r.put(book, sheet, UNLEVERED, &unlevered, "unlevered_beta", &beta)?;
+    let share = format!("={}/({}+{})", r.at(CASH), r.at(EQUITY), r.at(DEBT));
+    r.put(
+        book,
         sheet,
-        (row, UNLEVERED),
-        &unlevered,
-        p("unlevered_beta"),
-        &beta,
-    )?;
-    let share = format!("={}/({}+{})", at(CASH), at(EQUITY), at(DEBT));
-    book.formula(
-        sheet,
-        (row, CASH_SHARE),
+        CASH_SHARE,
         &share,
-        p("cash_share_of_capital"),
+        "cash_share_of_capital",
         &ratio,
     )?;
-    let corrected = format!("={}/(1-{})", at(UNLEVERED), at(CASH_SHARE));
-    book.formula(
+    let corrected = format!("={}/(1-{})", r.at(UNLEVERED), r.at(CASH_SHARE));
+    r.put(
+        book,
         sheet,
-        (row, CORRECTED),
+        CORRECTED,
         &corrected,
-        p("cash_corrected_unlevered_beta"),
+        "cash_corrected_unlevered_beta",
         &beta,
     )?;
     let (chosen, field) = if v.cost.beta.cash_corrected {
@@ -280,13 +318,13 @@ fn peer_row(
         (UNLEVERED, "unlevered_beta")
     };
     // Text for a peer left out, which MEDIAN, AVERAGE, TRIMMEAN and the rest skip.
-    let aggregated = format!("=IF({}=1,{},\"{LEFT_OUT}\")", at(INCLUDED), at(chosen));
+    let aggregated = format!("=IF({}=1,{},\"{LEFT_OUT}\")", r.at(INCLUDED), r.at(chosen));
     let expect = if included {
-        p(field)
+        r.field(field)
     } else {
         Expect::Text(LEFT_OUT)
     };
-    book.formula(sheet, (row, AGGREGATED), &aggregated, expect, &beta)
+    book.formula(sheet, (r.row, AGGREGATED), &aggregated, expect, &beta)
 }
 
 /// βU from the beta used, D/E, tax rate, debt beta and cost of debt of one row, under the

@@ -18,8 +18,9 @@ mod inputs;
 mod returns;
 mod style;
 
+pub(crate) use rust_xlsxwriter::Format;
+use rust_xlsxwriter::Worksheet;
 use rust_xlsxwriter::{DocProperties, ExcelDateTime, Formula, Note, Workbook as XlsxBook};
-use rust_xlsxwriter::{Format, Worksheet};
 use serde::Serialize;
 use serde_json::Value;
 

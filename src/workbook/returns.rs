@@ -66,82 +66,40 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
         .unwrap_or_default();
     offsets.push(0);
     offsets.sort_unstable();
-    let mut headers = vec!["Peer", "Period end", "Peer return", "Index return"];
-    if with_rf {
-        headers.extend(["Risk-free (per period)", "Peer excess return"]);
-    }
-    let asset: u16 = if with_rf { 5 } else { 2 };
-    let first_market = headers.len() as u16;
+    // Without a risk-free series the raw return is the regression's left-hand side.
+    let (asset, first_market): (u16, u16) = if with_rf { (5, 6) } else { (2, 4) };
     let market: Vec<(i32, u16)> = offsets
         .iter()
         .enumerate()
         .map(|(k, &o)| (o, first_market + k as u16))
         .collect();
-    let header = book.styles.header.clone();
-    for (col, text) in headers.iter().enumerate() {
-        book.text(&mut sheet, (0, col as u16), text, &header)?;
-    }
-    let kind = if with_rf { "excess " } else { "" };
-    for &(offset, col) in &market {
-        let title = match offset {
-            0 => format!("Index {kind}return (regressor, t)"),
-            o if o < 0 => format!("Index {kind}return, t{o}"),
-            o => format!("Index {kind}return, t+{o}"),
-        };
-        book.text(&mut sheet, (0, col), &title, &header)?;
-        if offset != 0 {
-            let note = Note::new(format!(
-                "The index {kind}return of the period {} periods {} each row's, as hurdle aligned \
-                 it (a value, not a formula: it may come from a period outside this peer's rows).",
-                offset.abs(),
-                if offset < 0 { "before" } else { "after" }
-            ))
-            .set_author("hurdle")
-            .add_author_prefix(false);
-            sheet.ws.insert_note(0, col, &note).map_err(xlsx_error)?;
-        }
-    }
+    headers(book, &mut sheet, &market, with_rf)?;
     let mut blocks = Vec::with_capacity(v.peers.len());
     let mut row = 1u32;
-    for (peer, returns) in v.peers.iter().zip(&v.returns) {
+    for (i, returns) in v.returns.iter().enumerate() {
         let first = row;
-        let asset_excess = returns.asset_excess();
-        let market_excess = returns.market_excess();
+        let (asset_excess, market_excess) = (returns.asset_excess(), returns.market_excess());
         for j in 0..returns.period_ends.len() {
-            peer_row(book, &mut sheet, row, &peer.name, returns, j)?;
+            peer_row(book, &mut sheet, row, &v.peers[i].name, returns, j)?;
             let here = |col: u16| super::relative(row, col);
             let pct = book.styles.return_pct.clone();
             if with_rf {
                 let formula = format!("={}-{}", here(2), here(4));
-                book.formula(
-                    &mut sheet,
-                    (row, asset),
-                    &formula,
-                    Expect::Value(asset_excess[j]),
-                    &pct,
-                )?;
+                let expect = Expect::Value(asset_excess[j]);
+                book.formula(&mut sheet, (row, asset), &formula, expect, &pct)?;
             }
             for &(offset, col) in &market {
                 if offset == 0 {
-                    let formula = if with_rf {
-                        format!("={}-{}", here(3), here(4))
-                    } else {
-                        format!("={}", here(3))
+                    let formula = match with_rf {
+                        true => format!("={}-{}", here(3), here(4)),
+                        false => format!("={}", here(3)),
                     };
-                    book.formula(
-                        &mut sheet,
-                        (row, col),
-                        &formula,
-                        Expect::Value(market_excess[j]),
-                        &pct,
-                    )?;
-                } else {
-                    let shifted = returns
-                        .market_shifted
-                        .iter()
-                        .find(|s| s.offset == offset)
-                        .map_or(f64::NAN, |s| s.returns[j]);
-                    book.number(&mut sheet, (row, col), shifted, &pct)?;
+                    let expect = Expect::Value(market_excess[j]);
+                    book.formula(&mut sheet, (row, col), &formula, expect, &pct)?;
+                } else if let Some(shifted) =
+                    returns.market_shifted.iter().find(|s| s.offset == offset)
+                {
+                    book.number(&mut sheet, (row, col), shifted.returns[j], &pct)?;
                 }
             }
             row += 1;
@@ -150,9 +108,10 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
     }
     let last_col = market.last().map_or(3, |(_, c)| *c);
     sheet.ws.set_freeze_panes(1, 2).map_err(xlsx_error)?;
+    let last_row = row.saturating_sub(1).max(1);
     sheet
         .ws
-        .autofilter(0, 0, row.saturating_sub(1).max(1), last_col)
+        .autofilter(0, 0, last_row, last_col)
         .map_err(xlsx_error)?;
     sheet.ws.set_column_width(0, 26).map_err(xlsx_error)?;
     sheet.ws.set_column_width(1, 11).map_err(xlsx_error)?;
@@ -165,6 +124,39 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
         asset,
         market,
     })
+}
+
+/// The header row, with a note on each lagged or led index column.
+fn headers(book: &Book, sheet: &mut Sheet, market: &[(i32, u16)], with_rf: bool) -> Result<()> {
+    let mut titles = vec!["Peer", "Period end", "Peer return", "Index return"];
+    if with_rf {
+        titles.extend(["Risk-free (per period)", "Peer excess return"]);
+    }
+    let header = book.styles.header.clone();
+    for (col, text) in titles.iter().enumerate() {
+        book.text(sheet, (0, col as u16), text, &header)?;
+    }
+    let kind = if with_rf { "excess " } else { "" };
+    for &(offset, col) in market {
+        let title = match offset {
+            0 => format!("Index {kind}return (regressor, t)"),
+            o if o < 0 => format!("Index {kind}return, t{o}"),
+            o => format!("Index {kind}return, t+{o}"),
+        };
+        book.text(sheet, (0, col), &title, &header)?;
+        if offset != 0 {
+            let note = Note::new(format!(
+                "The index {kind}return of the period {} periods {} each row's, as hurdle aligned \
+                 it (a value, not a formula: it may come from a period outside this peer's rows).",
+                offset.abs(),
+                if offset < 0 { "before" } else { "after" }
+            ))
+            .set_author("hurdle")
+            .add_author_prefix(false);
+            sheet.ws.insert_note(0, col, &note).map_err(xlsx_error)?;
+        }
+    }
+    Ok(())
 }
 
 /// The peer, the period end and the raw returns of one row (the risk-free rate too).
