@@ -198,7 +198,7 @@ fn rates(v: &Valuation) -> Vec<Spec> {
             "/target/tax_rate",
         )
         .note(format!(
-            "{} rate.",
+            "The {} rate (target.tax_rate_basis).",
             crate::format::label(&v.cost.target.tax_rate_basis)
         )),
     ]
