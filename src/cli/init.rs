@@ -89,7 +89,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
 /// When the first column was taken as the dates and is not, says how to name another.
 fn hint_date_column(error: hurdle::Error, guessed: bool) -> hurdle::Error {
     match error {
-        hurdle::Error::DataFile { file, message } if guessed && message.contains("date column") => {
+        hurdle::Error::DataFile { file, message }
+            if guessed && message.contains("is not a date") =>
+        {
             hurdle::Error::DataFile {
                 file,
                 message: format!(

@@ -233,10 +233,20 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
     };
     let named = raw.header.iter().filter(|h| !h.is_empty()).count();
     if named < 2 {
+        // A CSV file exported with another separator reads as one column.
+        let separator = raw.header.iter().find_map(|h| {
+            [';', '\t', '|']
+                .into_iter()
+                .find(|c| h.contains(*c))
+                .map(|c| {
+                    format!(" (is the file separated by {c:?}? CSV tables are read with commas)")
+                })
+        });
         return Err(format!(
             "{prefix}the header has {named} named column(s) ({}); a price table needs a date \
-             column and at least one column of prices",
-            quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named)
+             column and at least one column of prices{}",
+            quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named),
+            separator.unwrap_or_default()
         ));
     }
     let date_name = raw.header[date_index].clone();
