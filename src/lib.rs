@@ -7,6 +7,9 @@
 //! [`cost`] (cost of equity, cost of debt, WACC) → [`currency`] (Fisher conversion) →
 //! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV). [`stats`], [`format`]
 //! and [`random`] are shared helpers; [`demo`] generates the invented demo case.
+//! [`sources`] and [`tables`] read prices from wide tables (CSV, Parquet, workbooks);
+//! [`workbook`] writes the result as a spreadsheet whose formulas recompute it; [`scaffold`]
+//! and [`placeholders`] start a case from a table and keep it from running half-filled.
 
 pub mod audit;
 pub mod beta;

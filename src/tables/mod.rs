@@ -243,8 +243,8 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
                 })
         });
         return Err(format!(
-            "{prefix}the header has {named} named column(s) ({}); a price table needs a date \
-             column and at least one column of prices{}",
+            "{prefix}the header (the first row with anything in it) has {named} named column(s) \
+             ({}); a price table needs a date column and at least one column of prices{}",
             quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named),
             separator.unwrap_or_default()
         ));
