@@ -46,6 +46,9 @@ pub enum Error {
     /// A chart could not be drawn (`name` is its file name).
     #[error("figure {name}: {message}")]
     Figure { name: String, message: String },
+    /// An output file could not be laid out (a spreadsheet limit, a missing figure).
+    #[error("{file}: {message}")]
+    Render { file: String, message: String },
     /// The memo template failed to parse or render.
     #[error("template {name}, line {line}: {message}")]
     Template {

@@ -129,14 +129,7 @@ pub fn grid(
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
             let case = with_overrides(&inputs.case, &[rows.assignment(r), columns.assignment(c)])?;
-            if case.settings.market.index.prices != inputs.case.settings.market.index.prices
-                || case.settings.peers.iter().map(|p| &p.prices).ne(inputs
-                    .case
-                    .settings
-                    .peers
-                    .iter()
-                    .map(|p| &p.prices))
-            {
+            if !crate::case::sources::same_data(&case.settings, &inputs.case.settings) {
                 return Err(case_error(
                     inputs,
                     format!(

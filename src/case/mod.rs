@@ -9,7 +9,10 @@
 
 pub mod lookback;
 pub mod overrides;
+pub mod placeholders;
+pub mod scaffold;
 pub mod schema;
+pub mod sources;
 pub mod specs;
 pub mod validate;
 
@@ -122,6 +125,7 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         file: path.to_path_buf(),
         message: format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
     })?;
+    placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
     validate(&settings).map_err(|message| Error::Case {
         file: path.to_path_buf(),

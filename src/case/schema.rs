@@ -26,6 +26,9 @@ pub use crate::stats::Aggregation;
 #[serde(deny_unknown_fields)]
 pub struct CaseFile {
     pub case: CaseInfo,
+    /// Wide price tables that series refer to by `source` and `column`.
+    #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
+    pub sources: super::sources::Sources,
     pub market: Market,
     #[serde(default)]
     pub beta: BetaSettings,
@@ -155,7 +158,14 @@ pub struct Market {
 pub struct IndexSpec {
     #[serde(default = "default_index_name")]
     pub name: String,
+    /// A price file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub prices: String,
+    /// A table under `[sources]`, and the column in it (instead of `prices`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_price_column")]
@@ -166,7 +176,14 @@ pub struct IndexSpec {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct YieldSpec {
+    /// A yield file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub yields: String,
+    /// A table under `[sources]`, and the column in it (instead of `yields`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_yield_column")]
@@ -457,7 +474,14 @@ pub struct ConversionSettings {
 #[serde(deny_unknown_fields)]
 pub struct PeerSpec {
     pub name: String,
+    /// A price file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub prices: String,
+    /// A table under `[sources]`, and the column in it (instead of `prices`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_price_column")]

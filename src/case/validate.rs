@@ -85,6 +85,7 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
+    super::sources::validate(case)?;
     rate(
         "market.risk_free_rate",
         case.market.risk_free_rate,

@@ -7,6 +7,7 @@ pub mod betas;
 pub mod compare;
 pub mod grid;
 pub mod implied;
+pub mod init;
 pub mod rolling;
 pub mod run;
 pub mod verify;
@@ -27,7 +28,7 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv,
-    /// returns.csv, the charts (figures/*.svg) and report.html.
+    /// returns.csv, workbook.xlsx, the charts (figures/*.svg) and report.html.
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),
@@ -41,6 +42,8 @@ pub enum Command {
     Grid(grid::Args),
     /// Write each peer's rolling beta to rolling.csv.
     Rolling(rolling::Args),
+    /// Start a case file from a wide price table (one column per security).
+    Init(init::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -92,5 +95,6 @@ pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
         Command::Compare(args) => compare::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Rolling(args) => rolling::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Init(args) => init::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }

@@ -1,7 +1,8 @@
 //! `hurdle run CASE.toml [--out DIR] [--template FILE] [--no-figures] [--set KEY=VALUE]...`
 //!
-//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv`, the
-//! charts `figures/*.svg` and `report.html` to DIR (default: `output/` beside the case file),
+//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv`,
+//! `workbook.xlsx` (formulas that recompute the chain), the charts `figures/*.svg` and
+//! `report.html` to DIR (default: `output/` beside the case file),
 //! each atomically and only after all of them rendered; prints a short summary. `--no-figures`
 //! writes the text outputs only (no charts, no report).
 
@@ -9,6 +10,7 @@ use std::path::PathBuf;
 
 use hurdle::report::figures::{self, report::Report, FigureFile};
 use hurdle::report::format::{fixed, label, percent};
+use hurdle::report::workbook::Workbook;
 use hurdle::report::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
 
@@ -51,7 +53,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         figures: &figures,
     };
     let files: Vec<FigureFile> = figures.iter().map(FigureFile).collect();
-    let mut outputs: Vec<&dyn Render> = vec![&memo, &Json, &PeersCsv, &ReturnsCsv];
+    let mut outputs: Vec<&dyn Render> = vec![&memo, &Json, &PeersCsv, &ReturnsCsv, &Workbook];
     if !args.no_figures {
         outputs.extend(files.iter().map(|f| f as &dyn Render));
         outputs.push(&report);

@@ -4,3 +4,4 @@
 
 pub mod series;
 pub mod spread_table;
+pub mod tables;

@@ -64,6 +64,10 @@ pub struct DataFile {
     pub first_date: NaiveDate,
     #[serde(serialize_with = "iso_date")]
     pub last_date: NaiveDate,
+    /// The workbook sheet the series was read from (`null` for CSV and Parquet files).
+    pub sheet: Option<String>,
+    /// The column the values were read from.
+    pub column: String,
     #[serde(skip)]
     pub series: Series,
 }
@@ -110,6 +114,8 @@ pub fn read_series_file(
             .dates
             .last()
             .expect("parse_series rejects empty files"),
+        sheet: None,
+        column: value_column.to_string(),
         series,
     })
 }

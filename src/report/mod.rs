@@ -10,6 +10,7 @@ pub mod json;
 pub mod memo;
 pub mod rolling;
 pub mod verification;
+pub mod workbook;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

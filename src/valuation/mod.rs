@@ -11,8 +11,6 @@ mod build;
 pub mod listing;
 pub mod records;
 
-use std::path::PathBuf;
-
 use chrono::NaiveDate;
 
 pub use analyses::{Bridge, Grid, Uncertainty};
@@ -25,7 +23,7 @@ use crate::error::{Error, Result};
 use crate::estimate::{
     self, EstimateError, EstimationSpec, MarketReturns, SecurityEstimate, Window,
 };
-use crate::io::series::{read_series_file, DataFile, ValueKind};
+use crate::io::series::DataFile;
 use crate::io::spread_table::read_spread_table;
 
 /// A case with every data file it names, read and validated.
@@ -52,40 +50,8 @@ pub fn load_price_inputs(case: Case) -> Result<Inputs> {
 
 fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
     let settings = &case.settings;
-    let index_spec = &settings.market.index;
-    let index = read_series_file(
-        "index",
-        &index_spec.prices,
-        &case.resolve(&index_spec.prices),
-        &index_spec.date_column,
-        &index_spec.price_column,
-        ValueKind::Price,
-    )?;
-    let risk_free = match &settings.market.risk_free_series {
-        Some(spec) => Some(read_series_file(
-            "risk_free",
-            &spec.yields,
-            &case.resolve(&spec.yields),
-            &spec.date_column,
-            &spec.yield_column,
-            ValueKind::Yield,
-        )?),
-        None => None,
-    };
-    let peers = settings
-        .peers
-        .iter()
-        .map(|peer| {
-            read_series_file(
-                &format!("peer:{}", peer.name),
-                &peer.prices,
-                &case.resolve(&peer.prices),
-                &peer.date_column,
-                &peer.price_column,
-                ValueKind::Price,
-            )
-        })
-        .collect::<Result<Vec<_>>>()?;
+    // Own files or columns of wide tables (`[sources]`); each table is read once.
+    let (index, risk_free, peers) = crate::case::sources::read_series(&case)?;
     let debt_settings = &settings.debt;
     let debt_table = match debt_settings.source {
         _ if !with_debt_table => None,
@@ -126,25 +92,16 @@ pub struct PeerEstimates {
     pub peers: Vec<SecurityEstimate>,
     /// Remarks about the data (window end, dropped and stale periods), in peer order.
     pub notes: Vec<String>,
-    /// The price files estimated, to tell whether a what-if reads other files.
-    files: Vec<PathBuf>,
+    /// The settings the estimates were made under, to tell whether a what-if reads other data.
+    settings: crate::case::CaseFile,
 }
 
 impl PeerEstimates {
     /// Whether these estimates are what `case` would estimate on `inputs`' files.
     pub fn fit(&self, case: &Case) -> bool {
-        self.spec == specs::estimation(&case.settings) && self.files == price_files(case)
+        self.spec == specs::estimation(&case.settings)
+            && crate::case::sources::same_data(&self.settings, &case.settings)
     }
-}
-
-/// The price files a case estimates from, resolved.
-fn price_files(case: &Case) -> Vec<PathBuf> {
-    let market = &case.settings.market;
-    std::iter::once(&market.index.prices)
-        .chain(market.risk_free_series.iter().map(|s| &s.yields))
-        .chain(case.settings.peers.iter().map(|p| &p.prices))
-        .map(|written| case.resolve(written))
-        .collect()
 }
 
 /// Estimates every peer of `case` on the data files of `inputs`.
@@ -184,7 +141,7 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
         spec,
         peers,
         notes,
-        files: price_files(case),
+        settings: case.settings.clone(),
     })
 }
 

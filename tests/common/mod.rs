@@ -52,6 +52,16 @@ pub fn reference_check(out: &Path, label: &str) -> String {
     stdout
 }
 
+/// The wide-table form of the demo case (`hurdle-demo-data` writes it beside the demo).
+#[allow(dead_code)]
+pub const WIDE_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh-wide");
+
+/// Copies the wide-table demo case folder into `to`, without any previous run's `output/`.
+#[allow(dead_code)]
+pub fn copy_wide_case(to: &Path) {
+    copy_tree(Path::new(WIDE_DIR), to, true);
+}
+
 /// Copies the demo case folder into `to`, without any previous run's `output/`.
 #[allow(dead_code)]
 pub fn copy_demo_case(to: &Path) {
