@@ -346,7 +346,7 @@ coverage_table = "data/coverage_ratings.csv"  # illustrative, invented table
 size = 0.010                  # illustrative
 country = 0.0
 company_specific = 0.0
-country_method = "added"      # or "lambda" (with country_lambda) or "beta"
+country_method = "flat"       # or "exposure" (with country_exposure) or "beta-scaled"
 size_justification = "Illustrative: the subject is smaller than every peer (invented demo figure)."
 
 [uncertainty]
