@@ -313,3 +313,32 @@ fn readme_changelog_lists_every_rename() {
         );
     }
 }
+
+// The memo's wording that issue 13 asks for, phrase by phrase, and the beta of the operations as
+// its own table (not columns trailing the unlevering table).
+#[test]
+fn the_memo_states_its_assumptions_and_the_operations_step_on_its_own() {
+    let dir = tempfile::tempdir().unwrap();
+    run_demo(dir.path(), &["debt.source=coverage"]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let flat = memo.split_whitespace().collect::<Vec<_>>().join(" ");
+    for phrase in [
+        "That is an assumption this tool cannot check",
+        "as supplied in the case",
+        "the data cannot reject, at the 5% level, any beta inside the interval",
+        "Size and company-specific premiums are judgement calls",
+        "contested in the literature",
+        "A synthetic rating is not an agency rating",
+        "a flat addition, the same for every firm in the country",
+        "### The beta of the operations",
+    ] {
+        assert!(flat.contains(phrase), "memo lacks \"{phrase}\"");
+    }
+    let unlevering_header = memo
+        .lines()
+        .find(|l| l.starts_with("| Peer | D/E |"))
+        .expect("the unlevering table");
+    assert!(!unlevering_header.contains("Cash"), "{unlevering_header}");
+    let operations = &memo[memo.find("### The beta of the operations").unwrap()..];
+    assert!(operations.contains("| β of the operations |"));
+}
