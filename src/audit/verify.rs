@@ -20,6 +20,11 @@ use crate::valuation::{load_inputs, SCHEMA_VERSION};
 /// the last bit, while any change of input moves figures by far more.
 pub const DEFAULT_TOLERANCE: f64 = 1e-12;
 
+/// What a verification leaves out, and why: the derived outputs are drawn from the figures of
+/// `result.json`, which are compared one by one.
+pub const NOT_COMPARED: &str = "memo.md, figures/*.svg and report.html are not compared: they \
+are drawn from the figures of result.json, which are";
+
 /// The state of one input file.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FileCheck {

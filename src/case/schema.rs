@@ -78,6 +78,25 @@ pub struct UncertaintySettings {
     /// Draw the risk-free rate uniformly from `[low, high]` as well.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub risk_free_rate: Option<[f64; 2]>,
+    /// Whether the peers' beta errors are drawn jointly, correlated as their residuals are
+    /// (`"correlated"`), or each on its own (`"independent"`).
+    pub beta_errors: BetaErrors,
+    /// A peer whose leave-one-out WACC differs from the case's by more than this (decimal:
+    /// 0.0025 is 25 bp) is named in the memo.
+    pub influence_threshold: f64,
+    /// The WACC under the usual alternative frequencies and windows, beside the case's own.
+    pub specification_range: bool,
+}
+
+/// `uncertainty.beta_errors`: how the Monte Carlo draws the peers' betas.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum BetaErrors {
+    /// Jointly normal, with the covariance of seemingly unrelated regressions (Zellner 1962).
+    #[default]
+    Correlated,
+    /// Each peer's beta on its own, as if the peers' errors were unrelated.
+    Independent,
 }
 
 impl Default for UncertaintySettings {
@@ -87,6 +106,10 @@ impl Default for UncertaintySettings {
             seed: 1,
             equity_risk_premium: None,
             risk_free_rate: None,
+            beta_errors: BetaErrors::Correlated,
+            // hurdle's choice: a quarter point is a move a reviewer would ask an analyst to explain.
+            influence_threshold: 0.0025,
+            specification_range: true,
         }
     }
 }

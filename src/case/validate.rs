@@ -275,6 +275,12 @@ fn validate_premiums(case: &CaseFile) -> std::result::Result<(), String> {
 /// `[uncertainty]`: enough draws for percentiles, and ranges that are ranges.
 fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
     let u = &case.uncertainty;
+    if !(u.influence_threshold.is_finite() && u.influence_threshold > 0.0) {
+        return Err(format!(
+            "uncertainty.influence_threshold = {} must be a positive decimal (0.0025 is 25 bp)",
+            u.influence_threshold
+        ));
+    }
     if u.draws < 100 {
         return Err(format!(
             "uncertainty.draws = {} is too few for percentiles; use at least 100",
