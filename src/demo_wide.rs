@@ -67,8 +67,8 @@ pub fn generate_wide(seed: u64) -> Vec<(String, Vec<u8>)> {
     ];
     // The same spread tables and claimed build-up, so the wide case runs every option.
     for shared in [
-        "data/rating_spreads.csv",
-        "data/coverage_ratings.csv",
+        "data/rating_spreads_invented.csv",
+        "data/coverage_grid_invented.csv",
         "claimed.toml",
     ] {
         files.push((shared.to_string(), per_file[shared].clone().into_bytes()));

@@ -50,8 +50,10 @@ impl std::str::FromStr for Target {
 }
 
 impl Target {
-    /// The range searched unless the user gives one: wide enough for any case seen in practice
-    /// (common practice bounds, chosen generously).
+    /// The range searched unless the user gives one. These bounds are hurdle's choice, not a
+    /// published convention: each is wide enough to hold any value a practitioner would defend
+    /// (an ERP up to 20%, a beta up to 5, …) so that a claim is not missed, and narrow enough that
+    /// the 64-interval scan stays fine-grained; `--range` changes them.
     pub fn default_range(self) -> (f64, f64) {
         match self {
             Target::Erp => (0.0, 0.20),
@@ -173,11 +175,11 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
         });
     }
     // The build-up holds the premiums fixed; a country premium scaled by beta moves with it.
-    if target == Target::Beta && settings.premiums.country_method == CountryMethod::Beta {
+    if target == Target::Beta && settings.premiums.country_method == CountryMethod::BetaScaled {
         return Err(Error::Case {
             file: inputs.case.path.clone(),
-            message: "premiums.country_method = \"beta\" scales the country premium by the beta \
-                      being solved for; solve for another input"
+            message: "premiums.country_method = \"beta-scaled\" scales the country premium by the \
+                      beta being solved for; solve for another input"
                 .into(),
         });
     }

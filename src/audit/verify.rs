@@ -61,6 +61,20 @@ pub struct Verification {
     pub reproduced: bool,
 }
 
+/// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.
+/// Schema 2 renamed fields and case keys (README, Changelog), so a rerun cannot match a
+/// version-1 receipt figure by figure, and its case may use keys this version refuses.
+fn older_schema(version: u64, written_by: &str) -> String {
+    format!(
+        "schema_version {version} is older than this hurdle's ({SCHEMA_VERSION}): schema 2 renamed \
+         fields and case keys (for example cash_corrected_unlevered_beta is now operations_beta, \
+         adjusted_beta is shrunk_beta, leverage.cash_correction is leverage.operations_beta; \
+         README, Changelog lists every one), so its figures cannot be compared name by name. \
+         Verify it with the version that wrote it ({written_by}), or rename the keys in its case \
+         file and rerun to write a new receipt"
+    )
+}
+
 /// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
 /// where the case file is looked for.
 pub fn verify(
@@ -82,6 +96,12 @@ pub fn verify(
         return Err(fail(format!(
             "schema_version {version} is newer than this hurdle reads ({SCHEMA_VERSION}); verify with the version that wrote it ({})",
             recorded["tool"]["version"].as_str().unwrap_or("unknown")
+        )));
+    }
+    if version < u64::from(SCHEMA_VERSION) {
+        return Err(fail(older_schema(
+            version,
+            recorded["tool"]["version"].as_str().unwrap_or("unknown"),
         )));
     }
     let text = |pointer: &str| {

@@ -10,6 +10,7 @@
 pub mod lookback;
 pub mod overrides;
 pub mod placeholders;
+pub mod renamed;
 pub mod scaffold;
 pub mod schema;
 pub mod sources;
@@ -95,6 +96,7 @@ pub fn with_overrides(case: &Case, extra: &[String]) -> Result<Case> {
     for assignment in extra {
         apply_override(&mut table, assignment)?;
     }
+    renamed::check(&table).map_err(case_error)?;
     let settings = CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
         case_error(format!(
             "after applying --set {}: {}",
@@ -144,6 +146,10 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
         file: path.to_path_buf(),
         message,
     };
+    // A key renamed in schema 2 is named with its new name before the parser calls it unknown.
+    if let Ok(table) = toml::from_str::<toml::Table>(text) {
+        renamed::check(&table).map_err(case_error)?;
+    }
     // Parsing straight from text first keeps the parser's line and column in every message.
     let parsed: CaseFile = toml::from_str(text).map_err(|e| case_error(e.to_string()))?;
     if overrides.is_empty() {
@@ -153,6 +159,7 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
     for assignment in overrides {
         apply_override(&mut table, assignment)?;
     }
+    renamed::check(&table).map_err(case_error)?;
     CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
         case_error(format!(
             "after applying --set {}: {}",

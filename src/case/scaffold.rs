@@ -210,6 +210,11 @@ const BETA_KEYS: &[(&str, &str, &str)] = &[
     ),
     ("method", "ols, dimson or scholes-williams", ""),
     ("adjustment", "none, blume or vasicek", ""),
+    (
+        "blume_weight",
+        "blume: shrunk β = w·raw + (1 − w); 0.67 rounds Blume's (1971) slope",
+        "",
+    ),
     ("std_errors", "classical, hc1 or newey-west", ""),
     ("newey_west_lags", "absent: floor(4·(N/100)^(2/9))", "4"),
     ("dimson_lags", "index lags in the Dimson regression", ""),
@@ -277,8 +282,8 @@ const LEVERAGE_KEYS: &[(&str, &str, &str)] = &[
         "",
     ),
     (
-        "cash_correction",
-        "aggregate βU / (1 − cash / (equity + debt))",
+        "operations_beta",
+        "aggregate the betas of the operations, βU / (1 − cash / (equity + debt))",
         "",
     ),
     ("debt_measure", "gross, or net of cash, in every D/E", ""),
@@ -306,8 +311,8 @@ fn capital_sections() -> String {
          size = {size}\n\
          country = {country}\n\
          company_specific = {specific}\n\
-         country_method = {method}  # added, lambda or beta\n\
-         country_lambda = {lambda}  # the exposure λ, for country_method = \"lambda\"\n\
+         country_method = {method}  # flat, exposure or beta-scaled\n\
+         country_exposure = {lambda}  # the exposure λ, for country_method = \"exposure\"\n\
          size_justification = \"\"  # printed in the memo beside each premium\n\
          country_justification = \"\"\n\
          company_specific_justification = \"\"\n\n\
@@ -325,7 +330,7 @@ fn capital_sections() -> String {
         country = placeholder("country risk premium, decimal; 0 when none"),
         specific = placeholder("company-specific premium, decimal; 0 when none"),
         method = toml::Value::try_from(premiums.country_method).expect("serialises"),
-        lambda = toml::Value::Float(premiums.country_lambda),
+        lambda = toml::Value::Float(premiums.country_exposure),
     )
     .expect("String write");
     let uncertainty = UncertaintySettings::default();

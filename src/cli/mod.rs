@@ -79,6 +79,20 @@ impl CaseArgs {
     }
 }
 
+/// Which beta is unlevered, in the words the outputs use: the raw beta, or the shrunk beta and by
+/// whose method (with Blume's weight).
+pub fn shrinkage(beta: &hurdle::case::BetaSettings) -> String {
+    use hurdle::case::Adjustment;
+    match beta.adjustment {
+        Adjustment::None => "raw beta (no shrinkage)".into(),
+        Adjustment::Blume => format!(
+            "shrunk beta (Blume, weight {} on the raw beta)",
+            beta.blume_weight
+        ),
+        Adjustment::Vasicek => "shrunk beta (Vasicek)".into(),
+    }
+}
+
 /// The run's UTC time, to the second.
 pub fn timestamp() -> String {
     chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true)

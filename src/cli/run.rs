@@ -73,10 +73,10 @@ fn summary(v: &Valuation) -> String {
             v.case.title, v.case.valuation_date
         ),
         format!(
-            "  {} beta, {} returns, adjustment {}; {} unlevering",
+            "  {} beta, {} returns, {} unlevered; {} unlevering",
             label(&v.estimator.method),
             label(&v.sampling.frequency),
-            label(&v.settings.beta.adjustment),
+            super::shrinkage(&v.settings.beta),
             label(&v.cost.beta.formula)
         ),
         format!(

@@ -128,7 +128,7 @@ fn unlevering(
     }
     sheet.ws.set_column_width(REASON, 50).map_err(xlsx_error)?;
     let range = |col| sheet.range(first, last, col);
-    let chosen = if v.cost.beta.cash_corrected {
+    let chosen = if v.cost.beta.uses_operations_beta {
         CORRECTED
     } else {
         UNLEVERED
@@ -215,8 +215,8 @@ fn adjustment(book: &mut Book, sheet: &mut Sheet, betas: &BetasLayout, r: &Row) 
     let used = match book.v.settings.beta.adjustment {
         Adjustment::None => format!("={}", r.at(RAW)),
         Adjustment::Blume => {
-            let blume = format!("=0.67*{}+0.33", r.at(RAW));
-            r.put(book, sheet, ADJUSTED, &blume, "adjusted_beta", &beta)?;
+            let blume = format!("=BlumeWeight*{}+(1-BlumeWeight)", r.at(RAW));
+            r.put(book, sheet, ADJUSTED, &blume, "shrunk_beta", &beta)?;
             format!("={}", r.at(ADJUSTED))
         }
         Adjustment::Vasicek => {
@@ -234,7 +234,7 @@ fn adjustment(book: &mut Book, sheet: &mut Sheet, betas: &BetasLayout, r: &Row) 
             )?;
             let w = r.at(WEIGHT);
             let shrunk = format!("={w}*{}+(1-{w})*VasicekPriorMean", r.at(RAW));
-            r.put(book, sheet, ADJUSTED, &shrunk, "adjusted_beta", &beta)?;
+            r.put(book, sheet, ADJUSTED, &shrunk, "shrunk_beta", &beta)?;
             format!("={}", r.at(ADJUSTED))
         }
     };
@@ -294,26 +294,19 @@ fn unlever(book: &mut Book, sheet: &mut Sheet, r: &Row, included: bool) -> Resul
     let (beta, ratio) = (book.styles.beta.clone(), book.styles.ratio.clone());
     let unlevered = unlever_formula(v.cost.beta.formula, &|col| r.at(col));
     r.put(book, sheet, UNLEVERED, &unlevered, "unlevered_beta", &beta)?;
-    let share = format!("={}/({}+{})", r.at(CASH), r.at(EQUITY), r.at(DEBT));
-    r.put(
-        book,
-        sheet,
-        CASH_SHARE,
-        &share,
-        "cash_share_of_capital",
-        &ratio,
-    )?;
-    let corrected = format!("={}/(1-{})", r.at(UNLEVERED), r.at(CASH_SHARE));
+    let share = format!("=1-{}/({}+{})", r.at(CASH), r.at(EQUITY), r.at(DEBT));
+    r.put(book, sheet, CASH_SHARE, &share, "operating_share", &ratio)?;
+    let operations = format!("={}/{}", r.at(UNLEVERED), r.at(CASH_SHARE));
     r.put(
         book,
         sheet,
         CORRECTED,
-        &corrected,
-        "cash_corrected_unlevered_beta",
+        &operations,
+        "operations_beta",
         &beta,
     )?;
-    let (chosen, field) = if v.cost.beta.cash_corrected {
-        (CORRECTED, "cash_corrected_unlevered_beta")
+    let (chosen, field) = if v.cost.beta.uses_operations_beta {
+        (CORRECTED, "operations_beta")
     } else {
         (UNLEVERED, "unlevered_beta")
     };

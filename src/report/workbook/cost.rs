@@ -206,11 +206,14 @@ fn case_words(v: &crate::valuation::Valuation, p: &PeerRanges) -> Vec<(&'static 
         }
     };
     let (scale, scale_how) = match v.cost.premiums.country_method {
-        CountryMethod::Added => ("=1", "\"added\": the premium as given."),
-        CountryMethod::Lambda => ("=CountryLambda", "\"lambda\": λ times the premium."),
-        CountryMethod::Beta => (
+        CountryMethod::Flat => ("=1", "\"flat\": the premium as given."),
+        CountryMethod::Exposure => (
+            "=CountryExposure",
+            "\"exposure\": the subject's exposure λ times the premium.",
+        ),
+        CountryMethod::BetaScaled => (
             "=ReleveredBeta",
-            "\"beta\": the relevered beta times the premium.",
+            "\"beta-scaled\": the relevered beta times the premium.",
         ),
     };
     let hamada = beta.formula == Formula::Hamada;
@@ -221,8 +224,8 @@ fn case_words(v: &crate::valuation::Valuation, p: &PeerRanges) -> Vec<(&'static 
         ("eq", p.equity.clone()),
         (
             "which",
-            if beta.cash_corrected {
-                "cash-corrected "
+            if beta.uses_operations_beta {
+                "operations "
             } else {
                 ""
             }

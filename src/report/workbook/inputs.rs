@@ -169,12 +169,20 @@ fn rates(v: &Valuation) -> Vec<Spec> {
         )),
         spec(
             "Country exposure λ",
-            "CountryLambda",
-            "premiums.country_lambda",
-            "/settings/premiums/country_lambda",
+            "CountryExposure",
+            "premiums.country_exposure",
+            "/settings/premiums/country_exposure",
         )
         .format(Fmt::Beta)
-        .note("Used when premiums.country_method = \"lambda\"."),
+        .note("Used when premiums.country_method = \"exposure\"."),
+        spec(
+            "Blume weight on the raw beta",
+            "BlumeWeight",
+            "beta.blume_weight",
+            "/settings/beta/blume_weight",
+        )
+        .format(Fmt::Beta)
+        .note("Used when beta.adjustment = \"blume\": shrunk β = w·raw β + (1 − w)."),
         spec(
             "Company-specific premium",
             "CompanySpecificPremium",
