@@ -7,9 +7,20 @@ use std::process::ExitCode;
 use clap::Parser;
 
 fn main() -> ExitCode {
+    // Ctrl-C asks the work to stop at its next step, and nothing is written after it; a second
+    // Ctrl-C exits at once (removing any temporary output folder) unless files are being moved.
+    let _ = ctrlc::set_handler(|| {
+        if hurdle::progress::request_stop() && hurdle::staging::abandon() {
+            std::process::exit(130);
+        }
+    });
     let parsed = cli::Cli::parse();
     match cli::run(parsed) {
         Ok(code) => code,
+        Err(error @ hurdle::Error::Interrupted) => {
+            eprintln!("{error}");
+            ExitCode::from(130)
+        }
         Err(error) => {
             eprintln!("error: {error}");
             ExitCode::from(2)

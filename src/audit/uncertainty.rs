@@ -48,7 +48,9 @@ pub fn simulate(
     let mut waccs = Vec::with_capacity(u.draws as usize);
     let mut notes = Vec::new();
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
+    let mut progress = crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
     for _ in 0..u.draws {
+        progress.step()?;
         for (drawn, peer) in drawn_peers.iter_mut().zip(peers) {
             let raw = peer.estimate.beta + peer.estimate.beta_std_error * rng.normal();
             drawn.estimate.beta = raw;

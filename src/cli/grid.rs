@@ -32,7 +32,8 @@ pub struct Args {
 pub fn run(args: &Args) -> hurdle::Result<()> {
     let rows = parse_axis("--rows", &args.rows)?;
     let columns = parse_axis("--cols", &args.cols)?;
-    let table = grid(&args.case.inputs()?, &rows, &columns, args.metric)?;
+    let inputs = args.case.inputs()?;
+    let table = grid(&inputs, &rows, &columns, args.metric)?;
     let mut out = format!("{:>14}", "");
     for c in &table.columns.values {
         out.push_str(&format!(" {c:>9}"));
@@ -55,7 +56,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .csv
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir().join("grid.csv"));
-    hurdle::output::write_file(&path, &hurdle::output::csv::grid_csv(&table))?;
+    let (dir, name) = super::split_file_path("--csv", &path)?;
+    let file = (name, hurdle::output::csv::grid_csv(&table));
+    let reads = hurdle::staging::files_named(&inputs.case);
+    hurdle::staging::write_outputs(&dir, &[file], &reads)?;
     println!("  wrote {}", path.display());
     Ok(())
 }

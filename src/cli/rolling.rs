@@ -22,13 +22,14 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
-    let valuation = args.case.valuation()?;
+    let (inputs, valuation) = args.case.inputs_and_valuation()?;
     let out = args
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
     let outputs: [&dyn Render; 1] = [&RollingCsv];
-    let written = output::write_all(&out, &valuation, &outputs)?;
+    let reads = hurdle::staging::files_named(&inputs.case);
+    let written = output::write_all(&out, &valuation, &outputs, &reads)?;
     for peer in &valuation.peers {
         match &peer.stability {
             Some(s) => println!(

@@ -29,13 +29,18 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         Some(path) => Memo::from_file(path)?,
         None => Memo::shipped(),
     };
-    let valuation = hurdle::audit::evaluate(&args.case.inputs()?, &super::timestamp())?;
+    let inputs = args.case.inputs()?;
+    let mut reads = hurdle::staging::files_named(&inputs.case);
+    if let Some(path) = &args.template {
+        reads.push((path.clone(), "the memo template, --template".into()));
+    }
+    let valuation = hurdle::audit::evaluate(&inputs, &super::timestamp())?;
     let out = args
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
     let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
-    let written = output::write_all(&out, &valuation, &outputs)?;
+    let written = output::write_all(&out, &valuation, &outputs, &reads)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());

@@ -1,6 +1,6 @@
 //! Outputs: each file format is one [`Render`] implementation that turns a [`Valuation`] into
-//! bytes; [`write_all`] renders every file first and only then writes them, each atomically
-//! (a temporary file in the same folder, then a rename), so a failure leaves no output at all
+//! bytes; [`write_all`] renders every file first and only then writes them as one group
+//! ([`crate::staging`]: a temporary folder, then moves), so a failure leaves no output at all
 //! and a crash never leaves half a file. Inputs are never opened for writing.
 
 pub mod csv;
@@ -23,28 +23,19 @@ pub trait Render {
     fn render(&self, valuation: &Valuation) -> Result<Vec<u8>>;
 }
 
-/// Renders every output, then writes them all into `dir` (created when missing).
+/// Renders every output, then writes them all into `dir` (created when missing) as one group
+/// through [`crate::staging`], refusing any that would replace a file in `reads`.
 pub fn write_all(
     dir: &Path,
     valuation: &Valuation,
     outputs: &[&dyn Render],
+    reads: &[crate::staging::FileRead],
 ) -> Result<Vec<PathBuf>> {
     let rendered = outputs
         .iter()
         .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
         .collect::<Result<Vec<_>>>()?;
-    std::fs::create_dir_all(dir).map_err(|source| Error::Io {
-        path: dir.to_path_buf(),
-        action: "cannot create the output folder",
-        source,
-    })?;
-    let mut written = Vec::with_capacity(rendered.len());
-    for (name, bytes) in rendered {
-        let path = dir.join(name);
-        write_atomic(&path, &bytes)?;
-        written.push(path);
-    }
-    Ok(written)
+    crate::staging::write_outputs(dir, &rendered, reads)
 }
 
 /// Writes one file atomically, creating its folder when missing.
