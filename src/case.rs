@@ -135,6 +135,9 @@ pub struct IndexSpec {
     pub date_column: String,
     #[serde(default = "default_price_column")]
     pub price_column: String,
+    /// Dates whose move from the previous row beyond `sanity::JUMP_FACTOR` is real.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub accept_jumps: Vec<CaseDate>,
 }
 
 /// `[market.risk_free_series]`: a file of annualised risk-free yields.
@@ -735,6 +738,9 @@ pub struct PeerSpec {
     /// given here.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub exclude: Option<String>,
+    /// Dates whose move from the previous row beyond `sanity::JUMP_FACTOR` is real.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub accept_jumps: Vec<CaseDate>,
 }
 
 fn default_index_name() -> String {
@@ -853,13 +859,8 @@ pub fn with_overrides(case: &Case, extra: &[String]) -> Result<Case> {
     for assignment in extra {
         apply_override(&mut table, assignment)?;
     }
-    let settings = CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
-        case_error(format!(
-            "after applying --set {}: {}",
-            extra.join(", --set "),
-            e.message()
-        ))
-    })?;
+    let settings = CaseFile::deserialize(toml::Value::Table(table))
+        .map_err(|e| case_error(format!("with {}: {}", extra.join(", "), e.message())))?;
     validate(&settings).map_err(case_error)?;
     let mut overrides = case.overrides.clone();
     overrides.extend(extra.iter().cloned());
@@ -882,6 +883,10 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
     let text = String::from_utf8(bytes).map_err(|e| Error::Case {
         file: path.to_path_buf(),
         message: format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
+    })?;
+    crate::sanity::check_case_text(&text).map_err(|message| Error::Case {
+        file: path.to_path_buf(),
+        message,
     })?;
     let settings = parse_case(path, &text, overrides)?;
     validate(&settings).map_err(|message| Error::Case {
@@ -1019,6 +1024,7 @@ fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), S
     if value.is_finite() && value >= low && value < high {
         Ok(())
     } else {
+        let value = crate::format::compact(value);
         Err(format!("{key} = {value} is outside [{low}, {high})"))
     }
 }
@@ -1078,6 +1084,7 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
 
 /// Range checks a type cannot express. The message names the key and the offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    crate::sanity::check_case(case)?;
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }

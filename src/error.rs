@@ -50,6 +50,15 @@ pub enum Error {
         line: usize,
         message: String,
     },
+    /// The run was stopped (Ctrl-C) before its outputs were moved into place.
+    #[error("interrupted: stopped before any output was written")]
+    Interrupted,
+    /// A figure of the result is NaN or infinite; the last guard before any output.
+    #[error(
+        "the result would hold {value} at `{path}`; nothing is written: an input is outside \
+         any meaningful range (check the case and its data files)"
+    )]
+    NonFinite { path: String, value: f64 },
 }
 
 /// Shorthand used throughout the library.

@@ -23,6 +23,17 @@ pub fn fixed(value: f64, decimals: usize) -> String {
     }
 }
 
+/// A number as a message quotes it: in full, but in exponent form when that would run to many
+/// digits (`1e308` rather than 309 of them); NaN and infinity as Rust writes them.
+pub fn compact(value: f64) -> String {
+    let magnitude = value.abs();
+    if magnitude != 0.0 && magnitude.is_finite() && !(1e-6..1e15).contains(&magnitude) {
+        format!("{value:e}")
+    } else {
+        value.to_string()
+    }
+}
+
 /// The name a setting has in case files and JSON (`"median"`, `"wacc"`), for messages and
 /// summaries.
 pub fn label<T: serde::Serialize>(value: &T) -> String {
@@ -45,5 +56,9 @@ mod tests {
         assert_eq!(fixed(1.23456, 3), "1.235");
         assert_eq!(fixed(-0.0001, 3), "0.000");
         assert_eq!(fixed(-0.5, 2), "-0.50");
+        assert_eq!(compact(43.7678), "43.7678");
+        assert_eq!(compact(1e308), "1e308");
+        assert_eq!(compact(-2.5e-200), "-2.5e-200");
+        assert_eq!(compact(0.0), "0");
     }
 }

@@ -21,10 +21,13 @@ pub mod format;
 pub mod frequency_comparison;
 pub mod leverage;
 pub mod output;
+pub mod progress;
 pub mod random;
 pub mod regression;
 pub mod rolling;
 pub mod sampling;
+pub mod sanity;
+pub mod staging;
 pub mod stats;
 pub mod valuation;
 

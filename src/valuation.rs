@@ -87,13 +87,15 @@ pub fn load_inputs(case: Case) -> Result<Inputs> {
             )?)
         }
     };
-    Ok(Inputs {
+    let inputs = Inputs {
         case,
         index,
         risk_free,
         peers,
         debt_table,
-    })
+    };
+    crate::sanity::check_inputs(&inputs)?;
+    Ok(inputs)
 }
 
 /// The tool that produced a result.
@@ -400,7 +402,9 @@ fn vasicek_prior(
 
 /// Computes the valuation. `generated_at` is stamped into the result as given.
 pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
-    value_case(&inputs.case, inputs, generated_at)
+    let valuation = value_case(&inputs.case, inputs, generated_at)?;
+    crate::sanity::check_finite_figures(&valuation)?;
+    Ok(valuation)
 }
 
 /// Computes the valuation of `case` (the inputs' case, or a copy with overrides) on the data
@@ -437,6 +441,7 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
     let period_ends = &all_period_ends[first..];
     let window_start = grid.sample_points()[first];
     let (market_returns, market_stale) = sample_returns(&inputs.index);
+    crate::sanity::check_index_returns(&inputs.index.path, &market_returns[first..])?;
     let risk_free = inputs.risk_free.as_ref().map(|file| {
         sampling::risk_free_for_returns(
             &sampling::sample(&grid, file.series.view()),
@@ -445,7 +450,9 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
         )
     });
 
-    let mut notes = Vec::new();
+    let mut notes: Vec<String> = crate::sanity::window_note(beta_settings)
+        .into_iter()
+        .collect();
     let window_end = *grid.sample_points().last().expect("grid has sample points");
     if window_end != valuation_date {
         notes.push(format!(
@@ -512,6 +519,8 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
             &aligned.market_shifted,
         )
         .map_err(|e| estimation_error(e.to_string()))?;
+        crate::sanity::check_peer_fit(&aligned.asset, &estimate, &inputs.index.path)
+            .map_err(estimation_error)?;
         if aligned.dropped.total > 0 {
             notes.push(format!(
                 "{}: {} of {} periods dropped (peer price missing {}, index price missing {}, \

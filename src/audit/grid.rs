@@ -106,12 +106,16 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
         return Err(fail(format!("step {step} must be positive")));
     }
     // The tolerance lets 0.04..0.07:0.005 end at 0.07 despite decimal rounding in the step.
-    let count = ((high - low) / step + 1e-9).floor() as usize + 1;
-    if count > MAX_POINTS {
+    // Counted in floating point: a tiny step must not overflow the integer count.
+    let steps = ((high - low) / step + 1e-9).floor();
+    // NaN cannot arise (both bounds and the step are finite), so `>=` also refuses infinity.
+    if steps >= MAX_POINTS as f64 {
         return Err(fail(format!(
-            "{count} points; at most {MAX_POINTS} per axis"
+            "{} points; at most {MAX_POINTS} per axis",
+            crate::format::compact(steps + 1.0)
         )));
     }
+    let count = steps as usize + 1;
     // Rounded to 12 decimals so that 0.04 + 3 × 0.005 is written 0.055, as a user would type it.
     let values = (0..count)
         .map(|i| ((low + i as f64 * step) * 1e12).round() / 1e12)
@@ -159,11 +163,24 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
 
 /// Computes the grid over `rows × columns`.
 pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Result<Grid> {
+    crate::sanity::check_axes(&rows.key, &columns.key)?;
+    let total = rows.values.len() * columns.values.len();
+    let mut progress = crate::progress::Progress::new("grid cells", total as u64);
     let mut cells = Vec::with_capacity(rows.values.len());
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
-            let case = with_overrides(&inputs.case, &[rows.assignment(r), columns.assignment(c)])?;
+            progress.step()?;
+            let assignments = [rows.assignment(r), columns.assignment(c)];
+            // Name the cell, not a `--set` the user never gave.
+            let in_cell = |error: Error| Error::Argument {
+                option: format!("grid cell {}, {}", assignments[0], assignments[1]),
+                message: match error {
+                    Error::Override { message, .. } => message,
+                    other => other.to_string(),
+                },
+            };
+            let case = with_overrides(&inputs.case, &assignments).map_err(in_cell)?;
             if case.settings.market.index.prices != inputs.case.settings.market.index.prices
                 || case.settings.peers.iter().map(|p| &p.prices).ne(inputs
                     .case
@@ -180,7 +197,7 @@ pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Res
                     ),
                 ));
             }
-            line.push(metric.read(&value_case(&case, inputs, "")?));
+            line.push(metric.read(&value_case(&case, inputs, "").map_err(in_cell)?));
         }
         cells.push(line);
     }
@@ -218,6 +235,8 @@ mod tests {
             ("k=0.04..0.07:0", "must be positive"),
             ("k=a..0.07:0.01", "`a` is not a number"),
             ("k=0..10:0.01", "at most"),
+            // A step so small that the count overflowed an integer once gave an empty axis.
+            ("k=0.04..0.07:1e-300", "at most"),
         ] {
             let message = parse_axis("--rows", spec).unwrap_err().to_string();
             assert!(message.contains(expected), "{spec}: {message}");

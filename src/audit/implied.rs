@@ -95,7 +95,11 @@ pub fn implied(
     let (low, high) = range.unwrap_or_else(|| target.default_range());
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
-            option: format!("--range {low}..{high}"),
+            option: format!(
+                "--range {}..{}",
+                crate::format::compact(low),
+                crate::format::compact(high)
+            ),
             message: "the range must be LOW..HIGH with LOW < HIGH".into(),
         });
     }
@@ -148,6 +152,15 @@ pub fn implied(
         Target::DebtToEquity => ("target.debt_to_equity", base.cost.target.debt_to_equity),
         Target::Beta => ("relevered beta", base.cost.beta.relevered),
     };
+    crate::sanity::check_search_range(
+        if by_capital {
+            "target.debt_to_equity"
+        } else {
+            key
+        },
+        low,
+        high,
+    )?;
     // A debt-to-capital case is solved in debt-to-capital, over the same D/E range mapped.
     let (low, high) = if by_capital {
         (low / (1.0 + low), high / (1.0 + high))

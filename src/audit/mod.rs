@@ -41,6 +41,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         let ours = bridge::Side::from_valuation("this case", &valuation);
         valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
     }
+    crate::sanity::check_finite_figures(&valuation)?;
     Ok(valuation)
 }
 

@@ -54,6 +54,9 @@ pub struct Verification {
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
     pub reproduced: bool,
+    /// Every file the rerun read (not part of the report), so outputs never replace one.
+    #[serde(skip)]
+    pub files_read: Vec<crate::staging::FileRead>,
 }
 
 /// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
@@ -103,6 +106,7 @@ pub fn verify(
         .unwrap_or_default();
     let case = read_case(&case_file, &overrides)?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
+    let files_read = crate::staging::files_named(&case);
     let inputs = load_inputs(case)?;
     let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
@@ -158,6 +162,7 @@ pub fn verify(
         recorded_tool_version: text("/tool/version").unwrap_or_default(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        files_read,
     })
 }
 
