@@ -880,9 +880,13 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         source,
     })?;
     let sha256 = crate::data::sha256_hex(&bytes);
-    let text = String::from_utf8(bytes).map_err(|e| Error::Case {
-        file: path.to_path_buf(),
-        message: format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let valid = &e.as_bytes()[..e.utf8_error().valid_up_to()];
+        let line = valid.iter().filter(|&&b| b == b'\n').count() + 1;
+        Error::Case {
+            file: path.to_path_buf(),
+            message: format!("line {line}: not UTF-8 text; save the case file as UTF-8"),
+        }
     })?;
     crate::sanity::check_case_text(&text).map_err(|message| Error::Case {
         file: path.to_path_buf(),

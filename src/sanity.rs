@@ -14,7 +14,7 @@ pub mod text;
 use std::path::Path;
 
 use crate::beta::BetaEstimate;
-use crate::case::{CaseDate, CaseFile, DebtSource, TargetSource};
+use crate::case::{Case, CaseDate, CaseFile, DebtSource, TargetSource};
 use crate::data::{DataFile, Series, ValueKind};
 use crate::error::{Error, Result};
 use crate::format::compact as show;
@@ -53,10 +53,7 @@ pub const MAX_TOLERANCE: f64 = 1e-6;
 pub fn check_case(case: &CaseFile) -> std::result::Result<(), String> {
     let table = toml::Value::try_from(case).map_err(|e| e.to_string())?;
     if let Some((key, value)) = text::first_non_finite(&table, String::new()) {
-        return Err(format!(
-            "{key} = {value}: NaN and infinity are not numbers a case can hold, in any key \
-             (including one this case does not use)"
-        ));
+        return Err(format!("{key} = {value}: {}", text::NOT_A_NUMBER));
     }
     check_paths(case)?;
     check_dates(case)?;
@@ -176,7 +173,7 @@ fn check_counts(case: &CaseFile) -> std::result::Result<(), String> {
 /// below its equity plus debt.
 fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
     let too_high = |what: String, de: f64| {
-        let de = show(de);
+        let de = significant(de);
         format!(
             "{what} gives D/E = {de}, above {MAX_DEBT_TO_EQUITY} (debt over 10/11 of capital): \
              no leverage formula holds there; check the figures and their units"
@@ -361,14 +358,15 @@ fn check_jumps(path: &Path, key: &str, file: &DataFile, accepted: &[CaseDate]) -
             file: path.to_path_buf(),
             line: i + 2,
             message: format!(
-                "price {} on {} after {} on {} (line {}) is a move of x{ratio:.3e} in one row, \
-                 beyond the plausibility bound (x{JUMP_FACTOR} up or down); fix the price, or if \
-                 the move is real accept it with {key}.accept_jumps = [\"{}\"]",
+                "price {} on {} after {} on {} (line {}) moves by a factor of {}, beyond the \
+                 plausibility bound of {JUMP_FACTOR} up or down between two rows; fix the price, \
+                 or if the move is real accept it with {key}.accept_jumps = [\"{}\"]",
                 show(prices[i]),
                 dates[i],
                 show(prices[i - 1]),
                 dates[i - 1],
                 i + 1,
+                significant(ratio),
                 dates[i]
             ),
         });
@@ -376,20 +374,35 @@ fn check_jumps(path: &Path, key: &str, file: &DataFile, accepted: &[CaseDate]) -
     Ok(())
 }
 
-/// The index's returns over the estimation grid must vary; called by `valuation::value_case`
-/// before any peer, so a flat index is not blamed on the first peer.
-pub fn check_index_returns(index_path: &str, returns: &[Option<f64>]) -> Result<()> {
+/// The index must have at least `min_observations` returns in the window, and they must vary;
+/// called by `valuation::value_case` before any peer, so a short or flat index is blamed on the
+/// index file, not on the first peer.
+pub fn check_index_returns(case: &Case, index: &DataFile, returns: &[Option<f64>]) -> Result<()> {
+    let min_observations = case.settings.beta.min_observations;
+    let fail = |message: String| {
+        Err(Error::DataFile {
+            file: case.resolve(&index.path),
+            message,
+        })
+    };
     let present: Vec<f64> = returns.iter().flatten().copied().collect();
-    if present.len() >= 2 && present.iter().all(|&r| r == present[0]) {
-        return Err(Error::DataFile {
-            file: index_path.into(),
-            message: format!(
-                "the index's {} returns in the window are all {}: an index with zero variance \
-                 measures no beta",
-                present.len(),
-                show(present[0])
-            ),
-        });
+    if present.len() < min_observations as usize {
+        return fail(format!(
+            "{} of the window's {} periods have an index return, fewer than \
+             beta.min_observations = {min_observations}; its prices run from {} to {}",
+            present.len(),
+            returns.len(),
+            index.first_date,
+            index.last_date
+        ));
+    }
+    if present.iter().all(|&r| r == present[0]) {
+        return fail(format!(
+            "the index's {} returns in the window are all {}: an index with zero variance \
+             measures no beta",
+            present.len(),
+            show(present[0])
+        ));
     }
     Ok(())
 }
@@ -533,4 +546,15 @@ pub fn check_tolerance(text: &str) -> std::result::Result<f64, String> {
         ));
     }
     Ok(value)
+}
+
+/// A derived ratio to four significant digits (exponent form when very large or small): the
+/// message needs its size, not its last bits.
+fn significant(value: f64) -> String {
+    let magnitude = value.abs();
+    if magnitude == 0.0 || !magnitude.is_finite() || (1e-3..1e6).contains(&magnitude) {
+        format!("{}", (value * 1e4).round() / 1e4)
+    } else {
+        format!("{value:.3e}")
+    }
 }

@@ -441,7 +441,7 @@ pub fn value_case(case: &Case, inputs: &Inputs, generated_at: &str) -> Result<Va
     let period_ends = &all_period_ends[first..];
     let window_start = grid.sample_points()[first];
     let (market_returns, market_stale) = sample_returns(&inputs.index);
-    crate::sanity::check_index_returns(&inputs.index.path, &market_returns[first..])?;
+    crate::sanity::check_index_returns(case, &inputs.index, &market_returns[first..])?;
     let risk_free = inputs.risk_free.as_ref().map(|file| {
         sampling::risk_free_for_returns(
             &sampling::sample(&grid, file.series.view()),

@@ -14,6 +14,10 @@ use toml::Spanned;
 
 use crate::error::{Error, Result};
 
+/// Why a NaN or an infinity is refused wherever it is written.
+pub(crate) const NOT_A_NUMBER: &str =
+    "NaN and infinity are refused in every key, used or not: no figure can be built on them";
+
 /// A non-finite number found in a tree: its key path and value.
 type Found<T> = Option<(String, T)>;
 
@@ -127,8 +131,7 @@ fn non_finite_in_document(text: &str, scalars: &[Located<'_, '_>]) -> Option<Str
         let (x, raw) = number(s.value.get_ref())?;
         (!x.is_finite()).then(|| {
             format!(
-                "line {}: {} = {raw}: NaN and infinity are not numbers hurdle can use, in any key \
-                 (including one that is not used)",
+                "line {}: {} = {raw}: {NOT_A_NUMBER}",
                 line_of(text, s.value.span().start),
                 s.path
             )
@@ -241,6 +244,14 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
         message,
     };
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    if bytes.iter().all(u8::is_ascii_whitespace) {
+        return Err(Error::DataFile {
+            file: file.to_path_buf(),
+            message: "the file is empty: a header row (date,price) and one row per date are \
+                      expected"
+                .into(),
+        });
+    }
     let mut header_fields = None;
     let (mut fields, mut in_quotes, mut record_line) = (1, false, 1);
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
