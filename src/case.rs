@@ -1028,8 +1028,19 @@ fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), S
     if value.is_finite() && value >= low && value < high {
         Ok(())
     } else {
+        // A rate typed as a percentage is the likeliest reason for a value of 1 or more.
+        let hint = if value >= 1.0 && high <= 1.0 {
+            format!(
+                "; rates are decimals ({} for {}%)",
+                // Rounded to 12 decimals so that 5.8 reads 0.058, not 0.057999999999999996.
+                crate::format::compact((value / 100.0 * 1e12).round() / 1e12),
+                crate::format::compact(value)
+            )
+        } else {
+            String::new()
+        };
         let value = crate::format::compact(value);
-        Err(format!("{key} = {value} is outside [{low}, {high})"))
+        Err(format!("{key} = {value} is outside [{low}, {high}){hint}"))
     }
 }
 

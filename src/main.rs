@@ -14,6 +14,19 @@ fn main() -> ExitCode {
             std::process::exit(130);
         }
     });
+    // A closed pipe (`hurdle betas CASE | head`) ends the output as it ends any filter's:
+    // quietly, with the status a SIGPIPE gives (128 + 13), not with a panic.
+    let default_hook = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        let message = info
+            .payload()
+            .downcast_ref::<String>()
+            .map_or("", String::as_str);
+        if message.starts_with("failed printing to stdout") && message.contains("Broken pipe") {
+            std::process::exit(141);
+        }
+        default_hook(info);
+    }));
     let parsed = cli::Cli::parse();
     match cli::run(parsed) {
         Ok(code) => code,

@@ -22,8 +22,9 @@ use crate::valuation::{Inputs, Valuation};
 
 pub use text::{check_case_text, check_claimed_text, check_csv_shape};
 
-/// Most Monte Carlo draws: about five seconds on one core; the percentiles' sampling error is
-/// already below a hundredth of a basis point of WACC at a tenth of this.
+/// Most Monte Carlo draws: about five seconds on one core. On the demo case the median's own
+/// sampling error (1.2533·σ/√n, the asymptotic SE of a sample median) is 0.1 bp of WACC at a
+/// tenth of this and 0.03 bp at it; more draws only cost time.
 pub const MAX_DRAWS: u32 = 1_000_000;
 /// Most return periods, lags or window lengths: four centuries of daily data.
 pub const MAX_PERIODS: u32 = 100_000;

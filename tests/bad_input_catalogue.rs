@@ -842,7 +842,7 @@ fn case_files() -> Vec<Bad> {
             "rate in percent",
             |s| s.edit_case("risk_free_rate = 0.038", "risk_free_rate = 3.8"),
             ["run", "{case}", "--out", "{out}"],
-            ["market.risk_free_rate", "3.8"]
+            ["market.risk_free_rate", "3.8", "0.038 for 3.8%"]
         ),
         bad!(
             "NaN rate",
@@ -1185,7 +1185,7 @@ fn case_files() -> Vec<Bad> {
             "cost of debt in percent",
             |s| s.edit_case("cost_pre_tax = 0.058", "cost_pre_tax = 5.8"),
             ["run", "{case}", "--out", "{out}"],
-            ["debt.cost_pre_tax", "5.8"]
+            ["debt.cost_pre_tax", "5.8", "0.058 for 5.8%"]
         ),
         bad!(
             "NaN tax rate of a peer",

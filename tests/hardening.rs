@@ -212,3 +212,21 @@ fn no_progress_bar_off_a_terminal() {
     assert!(run.status.success(), "{}", stderr(&run));
     assert_eq!(stderr(&run), "");
 }
+
+// A reader that stops early (`hurdle betas CASE | head -1`) closes the pipe; hurdle then stops
+// as a Unix filter does, with the SIGPIPE status 141, instead of panicking (exit 101). The
+// reader is closed before hurdle has finished reading the case, so its first write fails.
+#[test]
+fn a_closed_pipe_is_not_a_panic() {
+    let child = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["betas", common::DEMO_CASE])
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut child = child;
+    drop(child.stdout.take());
+    let output = child.wait_with_output().unwrap();
+    assert!(!stderr(&output).contains("panicked"), "{}", stderr(&output));
+    assert_eq!(output.status.code(), Some(141), "{}", stderr(&output));
+}

@@ -197,7 +197,12 @@ pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Res
                     ),
                 ));
             }
-            line.push(metric.read(&value_case(&case, inputs, "").map_err(in_cell)?));
+            let cell = metric.read(&value_case(&case, inputs, "").map_err(in_cell)?);
+            if !cell.is_finite() {
+                let path = format!("grid cell {}, {}", assignments[0], assignments[1]);
+                return Err(Error::NonFinite { path, value: cell });
+            }
+            line.push(cell);
         }
         cells.push(line);
     }
