@@ -4,8 +4,8 @@
 #   fuzz/run.sh [SECONDS]        default 600; rounds of FUZZ_CASES (default 2000) inputs per
 #                                target, each round with a fresh random seed
 #
-# The time is checked between rounds, so a run ends up to one round (about a minute on one
-# core) after SECONDS. The first failure stops it and prints proptest's minimal input; the
+# The time is checked between rounds, so a run ends up to one round (about half a minute on
+# one core) after SECONDS. The first failure stops it and prints proptest's minimal input; the
 # last line is the figure README quotes ("N executions, 0 failures").
 set -euo pipefail
 cd "$(dirname "$0")/.."

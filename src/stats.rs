@@ -188,7 +188,7 @@ mod tests {
     }
 
     // A zero standard error gives t = ±inf (p = 0: the limit of 2·P(T > |t|)) or, with a zero
-    // estimate, t = NaN, for which there is no p-value; statrs used to be handed them and panic.
+    // estimate, t = NaN, for which there is no p-value (statrs' incomplete beta panics on NaN).
     #[test]
     fn non_finite_t_statistics_do_not_panic() {
         assert_eq!(student_t_two_sided_p(f64::INFINITY, 10.0), 0.0);

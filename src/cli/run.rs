@@ -1,7 +1,8 @@
 //! `hurdle run CASE.toml [--out DIR] [--template FILE] [--set KEY=VALUE]...`
 //!
 //! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv` and `returns.csv` to
-//! DIR (default: `output/` beside the case file), each atomically; prints a short summary.
+//! DIR (default: `output/` beside the case file) as one group that never replaces a file the
+//! run reads (`hurdle::staging`); prints a short summary.
 
 use std::path::PathBuf;
 
