@@ -23,6 +23,7 @@ pub mod error;
 pub mod estimate;
 pub mod io;
 pub mod market;
+pub mod progress;
 pub mod report;
 pub mod stats;
 pub mod valuation;

@@ -99,7 +99,11 @@ pub fn implied(
     let (low, high) = range.unwrap_or_else(|| target.default_range());
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
-            option: format!("search range {low}..{high}"),
+            option: format!(
+                "search range {}..{}",
+                crate::error::compact(low),
+                crate::error::compact(high)
+            ),
             message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
         });
     }
@@ -117,6 +121,15 @@ pub fn implied(
         Target::DebtToEquity => ("target.debt_to_equity", base.cost.target.debt_to_equity),
         Target::Beta => ("relevered beta", base.cost.beta.relevered),
     };
+    crate::valuation::sanity::check_search_range(
+        if by_capital {
+            "target.debt_to_equity"
+        } else {
+            key
+        },
+        low,
+        high,
+    )?;
     // A debt-to-capital case is solved in debt-to-capital, over the same D/E range mapped.
     let (low, high) = if by_capital {
         (low / (1.0 + low), high / (1.0 + high))

@@ -59,6 +59,9 @@ pub struct Verification {
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
     pub reproduced: bool,
+    /// Every file the rerun read (not part of the report), so outputs never replace one.
+    #[serde(skip)]
+    pub files_read: Vec<crate::report::staging::FileRead>,
 }
 
 /// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.
@@ -128,6 +131,7 @@ pub fn verify(
         .unwrap_or_default();
     let case = read_case(&case_file, &overrides)?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
+    let files_read = crate::case::files_read(&case);
     let inputs = load_inputs(case)?;
     let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
@@ -156,6 +160,7 @@ pub fn verify(
         recorded_tool_version: text("/tool/version").unwrap_or_default(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        files_read,
     })
 }
 

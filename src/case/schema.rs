@@ -170,6 +170,9 @@ pub struct IndexSpec {
     pub date_column: String,
     #[serde(default = "default_price_column")]
     pub price_column: String,
+    /// Dates whose move from the previous row beyond `sanity::JUMP_FACTOR` is real.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub accept_jumps: Vec<CaseDate>,
 }
 
 /// `[market.risk_free_series]`: a file of annualised risk-free yields.
@@ -493,6 +496,9 @@ pub struct PeerSpec {
     pub date_column: String,
     #[serde(default = "default_price_column")]
     pub price_column: String,
+    /// Dates whose move from the previous row beyond `sanity::JUMP_FACTOR` is real.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub accept_jumps: Vec<CaseDate>,
     /// Market value of equity, in any unit shared by all peers.
     pub equity_value: f64,
     /// Total (gross) debt, same unit.

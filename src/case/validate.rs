@@ -9,7 +9,19 @@ fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), S
     if value.is_finite() && value >= low && value < high {
         Ok(())
     } else {
-        Err(format!("{key} = {value} is outside [{low}, {high})"))
+        // A rate typed as a percentage is the likeliest reason for a value of 1 or more.
+        let hint = if value >= 1.0 && high <= 1.0 {
+            format!(
+                "; rates are decimals ({} for {}%)",
+                // Rounded to 12 decimals so that 5.8 reads 0.058, not 0.057999999999999996.
+                crate::error::compact((value / 100.0 * 1e12).round() / 1e12),
+                crate::error::compact(value)
+            )
+        } else {
+            String::new()
+        };
+        let value = crate::error::compact(value);
+        Err(format!("{key} = {value} is outside [{low}, {high}){hint}"))
     }
 }
 
@@ -77,6 +89,7 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
 /// Range checks a type cannot express, section by section. The message names the key and the
 /// offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    super::sanity::check_case(case)?;
     validate_case_and_market(case)?;
     validate_window(case)?;
     validate_target(case)?;

@@ -93,6 +93,20 @@ pub fn shrinkage(beta: &hurdle::case::BetaSettings) -> String {
     }
 }
 
+/// The folder and the file name of an output file given on the command line as `option`.
+pub fn split_file_path(option: &str, path: &std::path::Path) -> hurdle::Result<(PathBuf, String)> {
+    let name =
+        path.file_name()
+            .and_then(|n| n.to_str())
+            .ok_or_else(|| hurdle::Error::Argument {
+                option: format!("{option} {}", path.display()),
+                message: "names no file (it ends in a folder); give a file name such as grid.csv"
+                    .into(),
+            })?;
+    let dir = path.parent().unwrap_or(std::path::Path::new(""));
+    Ok((dir.to_path_buf(), name.to_string()))
+}
+
 /// The run's UTC time, to the second.
 pub fn timestamp() -> String {
     chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true)

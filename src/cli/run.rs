@@ -37,7 +37,12 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         Some(path) => Memo::from_file(path)?,
         None => Memo::shipped(),
     };
-    let valuation = hurdle::audit::evaluate(&args.case.inputs()?, &super::timestamp())?;
+    let inputs = args.case.inputs()?;
+    let mut reads = hurdle::case::files_read(&inputs.case);
+    if let Some(path) = &args.template {
+        reads.push((path.clone(), "the memo template, --template".into()));
+    }
+    let valuation = hurdle::audit::evaluate(&inputs, &super::timestamp())?;
     let out = args
         .out
         .clone()
@@ -58,7 +63,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         outputs.extend(files.iter().map(|f| f as &dyn Render));
         outputs.push(&report);
     }
-    let written = report::write_all(&out, &valuation, &outputs)?;
+    let written = report::write_all(&out, &valuation, &outputs, &reads)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());

@@ -10,6 +10,7 @@ pub mod analyses;
 mod build;
 pub mod listing;
 pub mod records;
+pub mod sanity;
 
 use chrono::NaiveDate;
 
@@ -69,13 +70,15 @@ fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
             )?)
         }
     };
-    Ok(Inputs {
+    let inputs = Inputs {
         case,
         index,
         risk_free,
         peers,
         debt_table,
-    })
+    };
+    sanity::check_inputs(&inputs)?;
+    Ok(inputs)
 }
 
 /// Every peer's estimate under one estimation spec, made once and shared by every what-if that
@@ -115,8 +118,11 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
         inputs.index.series.view(),
         inputs.risk_free.as_ref().map(|f| f.series.view()),
     );
+    sanity::check_index_returns(case, &inputs.index, market.window_returns(&window))?;
     let valuation_date = settings.case.valuation_date.0;
-    let mut notes = Vec::new();
+    let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
+        .into_iter()
+        .collect();
     if window.end() != valuation_date {
         notes.push(format!(
             "The valuation date {valuation_date} is not a period end; the return window ends at \
@@ -131,6 +137,15 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
                 peer: peer.name.clone(),
                 message: failure_message(&failure, &spec, &window, file, &inputs.index),
             })?;
+        sanity::check_peer_fit(
+            &estimated.returns.asset,
+            &estimated.estimate,
+            &inputs.index.path,
+        )
+        .map_err(|message| Error::Estimation {
+            peer: peer.name.clone(),
+            message,
+        })?;
         notes.extend(data_notes(&peer.name, &estimated, &spec));
         peers.push(estimated);
     }
@@ -208,7 +223,9 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
 
 /// Computes the valuation of the inputs' case. `generated_at` is stamped into the result as given.
 pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
-    value_case(&inputs.case, inputs, generated_at)
+    let valuation = value_case(&inputs.case, inputs, generated_at)?;
+    sanity::check_finite_figures(&valuation)?;
+    Ok(valuation)
 }
 
 /// Computes the valuation of `case` (the inputs' case, or a copy with overrides) on the data
