@@ -61,7 +61,7 @@ pub struct Verification {
     pub reproduced: bool,
     /// Every file the rerun read (not part of the report), so outputs never replace one.
     #[serde(skip)]
-    pub files_read: Vec<crate::report::staging::FileRead>,
+    pub files_read: Vec<crate::case::FileRead>,
 }
 
 /// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.

@@ -68,11 +68,26 @@ pub fn check_case(case: &CaseFile) -> std::result::Result<(), String> {
 }
 
 fn check_paths(case: &CaseFile) -> std::result::Result<(), String> {
-    let mut paths = vec![("market.index.prices".to_string(), &case.market.index.prices)];
-    if let Some(series) = &case.market.risk_free_series {
+    // A series read from a wide table (`source`) has no file of its own; `sources::validate`
+    // checks that it names one or the other.
+    let mut paths = Vec::new();
+    if case.market.index.source.is_none() {
+        paths.push(("market.index.prices".to_string(), &case.market.index.prices));
+    }
+    if let Some(series) = case
+        .market
+        .risk_free_series
+        .as_ref()
+        .filter(|s| s.source.is_none())
+    {
         paths.push(("market.risk_free_series.yields".into(), &series.yields));
     }
-    for (i, peer) in case.peers.iter().enumerate() {
+    for (i, peer) in case
+        .peers
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.source.is_none())
+    {
         paths.push((
             format!("peer.{i}.prices (peer \"{}\")", peer.name),
             &peer.prices,
