@@ -243,22 +243,31 @@ struct Common {
     other: OtherComponents,
 }
 
-/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas.
-fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
+/// The spec's adjustment applied to every peer's raw beta (a Vasicek prior from the peers
+/// that enter the aggregates), and the prior used.
+fn adjust(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+) -> Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), ChainError> {
     let raw: Vec<(f64, f64)> = peers
         .iter()
         .map(|p| (p.raw_beta, p.beta_std_error))
         .collect();
     let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
-    let (adjusted, vasicek_prior) = beta::adjust_all(
+    beta::adjust_all(
         spec.adjustment,
         spec.blume_weight,
         spec.vasicek_prior,
         &raw,
         &included,
     )
-    .map_err(ChainError::Adjustment)?;
-    if !included.contains(&true) {
+    .map_err(ChainError::Adjustment)
+}
+
+/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas.
+fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
+    let (adjusted, vasicek_prior) = adjust(spec, peers)?;
+    if !peers.iter().any(|p| p.included) {
         return Err(ChainError::NoPeerIncluded);
     }
     let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
@@ -382,19 +391,7 @@ pub fn unlevered_only(
     spec: &CapitalSpec<'_>,
     peers: &[PeerCapital],
 ) -> Result<UnleveredPeers, ChainError> {
-    let raw: Vec<(f64, f64)> = peers
-        .iter()
-        .map(|p| (p.raw_beta, p.beta_std_error))
-        .collect();
-    let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
-    let (adjusted, _) = beta::adjust_all(
-        spec.adjustment,
-        spec.blume_weight,
-        spec.vasicek_prior,
-        &raw,
-        &included,
-    )
-    .map_err(ChainError::Adjustment)?;
+    let (adjusted, _) = adjust(spec, peers)?;
     let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
     let terms: Vec<PeerTerms> = peers
