@@ -21,11 +21,13 @@ pub mod format;
 pub mod frequency_comparison;
 pub mod leverage;
 pub mod output;
+pub mod panel;
 pub mod random;
 pub mod regression;
 pub mod rolling;
 pub mod sampling;
 pub mod stats;
+pub mod universe;
 pub mod valuation;
 
 pub use error::{Error, Result};
