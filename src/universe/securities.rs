@@ -1,0 +1,314 @@
+//! One row per security: its estimate, the adjustment, the exclusion rule, its attributes and
+//! its unlevered betas.
+//!
+//! Each row is built whole once every estimate is known (a Vasicek prior needs the whole
+//! cross-section). A figure that needs a missing attribute is left empty and the row says what
+//! is missing; nothing is guessed. Unlevering uses the security's own D/E and tax rate with the
+//! formula of `[leverage]`, exactly as a case unlevers a peer.
+
+use serde::Serialize;
+
+use super::estimate::{NotEstimated, SecurityEstimate};
+use crate::beta::{self, vasicek, BetaEstimate};
+use crate::case::{Adjustment, DebtBetaSource, DebtMeasure, LeverageSettings, PeerFlag};
+use crate::leverage::{CapitalStructure, DebtTerms};
+use crate::panel::attributes::AttributeRecord;
+use crate::sampling::DroppedPeriods;
+
+/// A figure a security lacks.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Missing {
+    /// The attributes table has no row for the security.
+    Attributes,
+    Industry,
+    EquityValue,
+    Debt,
+    Cash,
+    TaxRate,
+}
+
+impl Missing {
+    pub const ALL: [Missing; 6] = [
+        Missing::Attributes,
+        Missing::Industry,
+        Missing::EquityValue,
+        Missing::Debt,
+        Missing::Cash,
+        Missing::TaxRate,
+    ];
+
+    /// The flag's name in outputs.
+    pub fn name(self) -> &'static str {
+        match self {
+            Missing::Attributes => "no_attributes",
+            Missing::Industry => "missing_industry",
+            Missing::EquityValue => "missing_equity_value",
+            Missing::Debt => "missing_debt",
+            Missing::Cash => "missing_cash",
+            Missing::TaxRate => "missing_tax_rate",
+        }
+    }
+}
+
+/// Everything reported for one security.
+#[derive(Debug, Clone, Serialize)]
+pub struct SecurityResult {
+    pub security: String,
+    pub industry: Option<String>,
+    /// Prices the panel holds for the security.
+    pub prices: usize,
+    pub periods_in_window: usize,
+    pub periods_dropped: DroppedPeriods,
+    /// The regression, when the security could be estimated.
+    pub estimate: Option<BetaEstimate>,
+    pub not_estimated: Option<NotEstimated>,
+    /// Why, in words, when not estimated.
+    pub not_estimated_detail: Option<String>,
+    pub flags: Vec<PeerFlag>,
+    pub stale_share: Option<f64>,
+    /// Why the security is left out of the aggregates (`beta.exclude_flags`), or `None`.
+    pub excluded_reason: Option<String>,
+    pub adjusted_beta: Option<f64>,
+    pub vasicek: Option<vasicek::Shrunk>,
+    /// The beta that is unlevered: the adjusted one when there is one, else the raw one.
+    pub beta_used: Option<f64>,
+    pub equity_value: Option<f64>,
+    pub debt: Option<f64>,
+    pub cash: Option<f64>,
+    pub tax_rate: Option<f64>,
+    pub missing: Vec<Missing>,
+    /// D/E with `leverage.debt_measure`.
+    pub debt_to_equity: Option<f64>,
+    pub debt_beta: f64,
+    pub unlevered_beta: Option<f64>,
+    /// cash / (equity + debt), gross debt.
+    pub cash_share_of_capital: Option<f64>,
+    /// βU / (1 − cash / (equity + debt)).
+    pub cash_corrected_unlevered_beta: Option<f64>,
+    /// Why an unlevered figure is undefined although every input is present.
+    pub unlevering_issue: Option<&'static str>,
+}
+
+impl SecurityResult {
+    /// Whether the security enters the aggregates of levered betas.
+    pub fn aggregated(&self) -> bool {
+        self.estimate.is_some() && self.excluded_reason.is_none()
+    }
+}
+
+/// The settings a row is built with.
+pub struct RowSettings<'a> {
+    pub adjustment: Adjustment,
+    pub exclude_flags: &'a [PeerFlag],
+    pub leverage: &'a LeverageSettings,
+    /// Whether the attributes name a cash column (otherwise cash is not a missing figure).
+    pub cash_column: bool,
+    pub vasicek_prior: Option<&'a vasicek::Prior>,
+}
+
+/// Why an estimated security is left out of the aggregates, from its flags.
+pub fn exclusion(flags: &[PeerFlag], exclude_flags: &[PeerFlag]) -> Option<String> {
+    let hit: Vec<&str> = flags
+        .iter()
+        .filter(|f| exclude_flags.contains(f))
+        .map(|f| f.name())
+        .collect();
+    (!hit.is_empty()).then(|| format!("flag-based rule beta.exclude_flags: {}", hit.join(", ")))
+}
+
+/// Builds one security's row from its estimate and attributes.
+pub fn security_row(
+    security: &str,
+    prices: usize,
+    periods_in_window: usize,
+    estimated: &SecurityEstimate,
+    attributes: Option<&AttributeRecord>,
+    settings: &RowSettings<'_>,
+) -> SecurityResult {
+    let (estimate, flags, stale_share, not_estimated) = match &estimated.outcome {
+        Ok(e) => (Some(e.estimate.clone()), e.flags.clone(), Some(e.stale_share), None),
+        Err((reason, detail)) => (None, Vec::new(), None, Some((*reason, detail.clone()))),
+    };
+    let excluded_reason = estimate
+        .as_ref()
+        .and(exclusion(&flags, settings.exclude_flags));
+    let (adjusted_beta, vasicek) = match (&estimate, settings.adjustment) {
+        (None, _) => (None, None),
+        (Some(e), Adjustment::Vasicek) => {
+            let prior = settings.vasicek_prior.expect("a prior when adjusting by Vasicek");
+            let shrunk = vasicek::shrink(e.beta, e.beta_std_error, prior);
+            (Some(shrunk.beta), Some(shrunk))
+        }
+        (Some(e), adjustment) => (beta::adjust(adjustment, e.beta), None),
+    };
+    let beta_used = estimate.as_ref().map(|e| adjusted_beta.unwrap_or(e.beta));
+    let missing = missing(attributes, settings.cash_column);
+    let figure = |f: fn(&AttributeRecord) -> Option<f64>| attributes.and_then(f);
+    let (equity, debt, cash, tax) = (
+        figure(|a| a.equity_value),
+        figure(|a| a.debt),
+        figure(|a| a.cash),
+        figure(|a| a.tax_rate),
+    );
+    let leverage = settings.leverage;
+    let debt_beta = match leverage.debt_beta_source {
+        DebtBetaSource::Given => leverage.debt_beta,
+        _ => 0.0,
+    };
+    let unlevering = unlever(beta_used, equity, debt, cash, tax, leverage, debt_beta);
+    SecurityResult {
+        security: security.to_string(),
+        industry: attributes.and_then(|a| a.industry.clone()),
+        prices,
+        periods_in_window,
+        periods_dropped: estimated.periods_dropped,
+        estimate,
+        not_estimated: not_estimated.as_ref().map(|(r, _)| *r),
+        not_estimated_detail: not_estimated.map(|(_, d)| d),
+        flags,
+        stale_share,
+        excluded_reason,
+        adjusted_beta,
+        vasicek,
+        beta_used,
+        equity_value: equity,
+        debt,
+        cash,
+        tax_rate: tax,
+        missing,
+        debt_to_equity: unlevering.debt_to_equity,
+        debt_beta,
+        unlevered_beta: unlevering.unlevered,
+        cash_share_of_capital: unlevering.cash_share,
+        cash_corrected_unlevered_beta: unlevering.cash_corrected,
+        unlevering_issue: unlevering.issue,
+    }
+}
+
+/// The figures a security lacks.
+fn missing(attributes: Option<&AttributeRecord>, cash_column: bool) -> Vec<Missing> {
+    let Some(a) = attributes else {
+        return vec![Missing::Attributes];
+    };
+    [
+        (Missing::Industry, a.industry.is_none()),
+        (Missing::EquityValue, a.equity_value.is_none()),
+        (Missing::Debt, a.debt.is_none()),
+        (Missing::Cash, cash_column && a.cash.is_none()),
+        (Missing::TaxRate, a.tax_rate.is_none()),
+    ]
+    .into_iter()
+    .filter(|&(_, absent)| absent)
+    .map(|(m, _)| m)
+    .collect()
+}
+
+/// The unlevering figures of one security; each is `None` when an input is missing.
+struct Unlevering {
+    debt_to_equity: Option<f64>,
+    unlevered: Option<f64>,
+    cash_share: Option<f64>,
+    cash_corrected: Option<f64>,
+    issue: Option<&'static str>,
+}
+
+/// D/E, the unlevered beta and its cash-corrected form, as a case computes them for a peer.
+fn unlever(
+    beta_used: Option<f64>,
+    equity: Option<f64>,
+    debt: Option<f64>,
+    cash: Option<f64>,
+    tax: Option<f64>,
+    leverage: &LeverageSettings,
+    debt_beta: f64,
+) -> Unlevering {
+    let debt_to_equity = match (leverage.debt_measure, equity, debt, cash) {
+        (DebtMeasure::Gross, Some(e), Some(d), _) => Some(d / e),
+        (DebtMeasure::Net, Some(e), Some(d), Some(c)) => Some((d - c) / e),
+        _ => None,
+    };
+    // A net D/E at or below −1 cannot be unlevered (the case refuses such a peer).
+    let issue = debt_to_equity
+        .filter(|&de| de <= -1.0)
+        .map(|_| "net_debt_at_or_below_minus_equity");
+    let unlevered = match (beta_used, debt_to_equity, tax, issue) {
+        (Some(beta), Some(de), Some(t), None) => Some(leverage.formula.unlever_with(
+            beta,
+            CapitalStructure {
+                debt_to_equity: de,
+                tax_rate: t,
+            },
+            DebtTerms {
+                debt_beta,
+                cost_of_debt: 0.0,
+            },
+        )),
+        _ => None,
+    };
+    let cash_share = match (equity, debt, cash) {
+        (Some(e), Some(d), Some(c)) => Some(c / (e + d)),
+        _ => None,
+    };
+    let issue = issue.or_else(|| {
+        cash_share
+            .filter(|&s| s >= 1.0)
+            .map(|_| "cash_not_below_equity_plus_debt")
+    });
+    let cash_corrected = match (unlevered, cash_share) {
+        (Some(u), Some(s)) if s < 1.0 => Some(u / (1.0 - s)),
+        _ => None,
+    };
+    Unlevering {
+        debt_to_equity,
+        unlevered,
+        cash_share,
+        cash_corrected,
+        issue,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::leverage::Formula;
+
+    // Hamada by hand: βL = 1.2, D/E = 0.5, t = 0.3: βU = 1.2 / (1 + 0.7·0.5) = 1.2 / 1.35.
+    // Cash share 50 / (100 + 50) = 1/3, so the cash-corrected βU is βU / (2/3).
+    #[test]
+    fn unlevering_matches_the_hand_computation() {
+        let leverage = LeverageSettings {
+            formula: Formula::Hamada,
+            ..LeverageSettings::default()
+        };
+        let u = unlever(
+            Some(1.2),
+            Some(100.0),
+            Some(50.0),
+            Some(50.0),
+            Some(0.3),
+            &leverage,
+            0.0,
+        );
+        // 1e-15: one multiply-add and one division.
+        assert!((u.unlevered.unwrap() - 1.2 / 1.35).abs() < 1e-15);
+        assert!((u.cash_corrected.unwrap() - 1.2 / 1.35 / (2.0 / 3.0)).abs() < 1e-15);
+        assert_eq!(u.debt_to_equity, Some(0.5));
+    }
+
+    // A missing figure leaves every figure that needs it empty, never a default.
+    #[test]
+    fn a_missing_figure_is_never_filled_in() {
+        let leverage = LeverageSettings::default();
+        let u = unlever(Some(1.2), Some(100.0), None, Some(5.0), Some(0.3), &leverage, 0.0);
+        assert_eq!(u.debt_to_equity, None);
+        assert_eq!(u.unlevered, None);
+        assert_eq!(u.cash_share, None);
+        let net = LeverageSettings {
+            debt_measure: DebtMeasure::Net,
+            ..LeverageSettings::default()
+        };
+        let u = unlever(Some(1.2), Some(100.0), Some(50.0), None, Some(0.3), &net, 0.0);
+        assert_eq!(u.unlevered, None);
+    }
+}
