@@ -12,8 +12,8 @@ use std::fmt::Write as _;
 
 use chrono::{Datelike, NaiveDate, Weekday};
 
-use crate::leverage::{CapitalStructure, Formula};
-use crate::random::Rng;
+use crate::capital::leverage::{CapitalStructure, Formula};
+use crate::stats::random::Rng;
 
 /// The seed of the shipped demo data.
 pub const SEED: u64 = 20_261_202;

@@ -1,31 +1,27 @@
 //! hurdle: from market data and capital-structure facts to a cost of capital that can be
 //! defended and reproduced.
 //!
-//! The modules follow the pipeline: [`case`] (the inputs) → [`data`] (reading price files) →
-//! [`sampling`] (period returns) → [`regression`] (least squares) → [`beta`] (estimators) →
-//! [`leverage`] (unlever, aggregate, relever) → [`debt`] (where the cost of debt comes from) →
-//! [`cost`] (cost of equity, cost of debt, WACC) → [`currency`] (Fisher conversion) →
-//! [`valuation`] (the one result value) → [`output`] (memo, JSON, CSV). [`stats`], [`format`]
-//! and [`random`] are shared helpers; [`demo`] generates the invented demo case.
+//! The modules follow the pipeline, and imports point one way, down it: [`io`] (reading and
+//! hashing files) → [`market`] (calendars, sampling, period returns, alignment) → [`stats`]
+//! (least squares, distributions, the seeded generator) → [`beta`] (estimators, adjustments,
+//! rolling betas, diagnostics) → [`estimate`] (one security: a series and a spec in, a complete
+//! estimate out) → [`capital`] (leverage formulas, cost of debt, cost of equity, WACC, the chain
+//! from peer betas to the WACC) → [`case`] (the case file and the specs it becomes) →
+//! [`valuation`] (one case valued: the one result value) → [`audit`] (sensitivity, Monte Carlo,
+//! verify, implied, bridge) → [`report`] (memo, JSON, CSV, number formatting). [`demo`] generates
+//! the invented demo case. No module imports one to its right.
 
 pub mod audit;
 pub mod beta;
+pub mod capital;
 pub mod case;
-pub mod cost;
-pub mod currency;
-pub mod data;
-pub mod debt;
 pub mod demo;
 pub mod error;
-pub mod format;
-pub mod frequency_comparison;
-pub mod leverage;
-pub mod output;
+pub mod estimate;
+pub mod io;
+pub mod market;
 pub mod panel;
-pub mod random;
-pub mod regression;
-pub mod rolling;
-pub mod sampling;
+pub mod report;
 pub mod stats;
 pub mod universe;
 pub mod valuation;

@@ -8,7 +8,7 @@ use std::process::Output;
 use hurdle::audit::bridge::{bridge, read_side};
 use hurdle::audit::uncertainty::simulate;
 use hurdle::case::read_case;
-use hurdle::valuation::{load_inputs, value};
+use hurdle::valuation::{estimate_peers, load_inputs, value};
 
 mod common;
 
@@ -279,23 +279,24 @@ fn demo_valuation(overrides: &[&str]) -> (hurdle::valuation::Inputs, hurdle::val
 #[test]
 fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
     let (inputs, valuation) = demo_valuation(&[]);
-    let mut peers = valuation.peers.clone();
-    for p in &mut peers {
+    let estimates = estimate_peers(&inputs.case, &inputs).unwrap();
+    let mut flat_estimates = estimates.clone();
+    for p in &mut flat_estimates.peers {
         p.estimate.beta_std_error = 0.0;
     }
-    let run = |case: &hurdle::case::Case, peers: &[hurdle::valuation::PeerResult]| {
-        simulate(case, &inputs, peers, &valuation.cost).unwrap()
+    let run = |case: &hurdle::case::Case, estimates: &hurdle::valuation::PeerEstimates| {
+        simulate(case, &inputs, estimates, valuation.cost.wacc).unwrap()
     };
     // No sampling error: every draw is the point estimate, so every percentile is too.
-    let flat = run(&inputs.case, &peers);
+    let flat = run(&inputs.case, &flat_estimates);
     for p in [flat.p05, flat.p25, flat.p50, flat.p75, flat.p95] {
         assert_eq!(p, valuation.cost.wacc);
     }
-    let once = run(&inputs.case, &valuation.peers);
-    assert_eq!(once, run(&inputs.case, &valuation.peers));
+    let once = run(&inputs.case, &estimates);
+    assert_eq!(once, run(&inputs.case, &estimates));
     let mut other_seed = inputs.case.clone();
     other_seed.settings.uncertainty.seed = 2;
-    assert_ne!(once.p50, run(&other_seed, &valuation.peers).p50);
+    assert_ne!(once.p50, run(&other_seed, &estimates).p50);
     assert!(
         once.p05 < once.p25 && once.p25 < once.p50 && once.p50 < once.p75 && once.p75 < once.p95
     );
@@ -312,7 +313,8 @@ fn monte_carlo_median_converges_to_the_point_estimate() {
     for draws in [2_000, 50_000] {
         let mut case = inputs.case.clone();
         case.settings.uncertainty.draws = draws;
-        let u = simulate(&case, &inputs, &valuation.peers, &valuation.cost).unwrap();
+        let estimates = estimate_peers(&case, &inputs).unwrap();
+        let u = simulate(&case, &inputs, &estimates, valuation.cost.wacc).unwrap();
         let sigma = (u.p75 - u.p25) / 1.349;
         let bound = 4.0 * (std::f64::consts::PI / 2.0).sqrt() * sigma / f64::from(draws).sqrt();
         assert!(

@@ -356,7 +356,7 @@ fn compare_frequencies_prints_every_peer_at_every_frequency() {
     for peer in daily["peers"].as_array().unwrap() {
         let name = peer["name"].as_str().unwrap();
         let row = table.lines().find(|l| l.starts_with(name)).unwrap();
-        let beta = hurdle::format::fixed(peer["beta"].as_f64().unwrap(), 3);
+        let beta = hurdle::report::format::fixed(peer["beta"].as_f64().unwrap(), 3);
         let first_cell = row[name.len()..].split_whitespace().next().unwrap();
         assert_eq!(first_cell, beta, "{row}");
     }

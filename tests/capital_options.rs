@@ -87,7 +87,7 @@ fn every_formula_runs_and_the_memo_compares_them_all() {
             for row in rows {
                 let line = format!("| {}", row["formula"].as_str().unwrap());
                 assert!(memo.contains(&line), "memo lacks the comparison row {line}");
-                let wacc = hurdle::format::percent(number(row, "wacc"), 2);
+                let wacc = hurdle::report::format::percent(number(row, "wacc"), 2);
                 assert!(memo.contains(&wacc), "memo lacks {wacc}");
             }
         }
@@ -353,7 +353,7 @@ fn the_memo_shows_the_fisher_conversion_to_an_output_currency() {
     assert!((real_from_output - number(c, "wacc_real")).abs() < 1e-15);
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
     assert!(memo.contains("### Conversion to USD"));
-    assert!(memo.contains(&hurdle::format::percent(converted, 2)));
+    assert!(memo.contains(&hurdle::report::format::percent(converted, 2)));
 }
 
 #[test]

@@ -88,7 +88,7 @@ fn demo_run_writes_every_output_with_consistent_figures() {
 
     // The memo carries the WACC as formatted from result.json, and the cautions.
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
-    let wacc_text = hurdle::format::percent(number(&result, "wacc"), 2);
+    let wacc_text = hurdle::report::format::percent(number(&result, "wacc"), 2);
     assert!(memo.contains(&wacc_text), "memo lacks {wacc_text}");
     for caution in [
         "Statistical error",

@@ -5,7 +5,7 @@
 
 use std::collections::BTreeMap;
 
-use hurdle::regression::{design_with_intercept, ols};
+use hurdle::stats::least_squares::{design_with_intercept, ols};
 
 fn data_path(name: &str) -> String {
     format!("{}/tests/data/{name}", env!("CARGO_MANIFEST_DIR"))

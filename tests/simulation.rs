@@ -7,7 +7,7 @@
 //! 10% too narrow or too wide (coverage ≈ 92.5% or 96.9%) falls outside them.
 
 use hurdle::beta::ols_beta;
-use hurdle::random::Rng;
+use hurdle::stats::random::Rng;
 
 fn coverage(seed: u64, repetitions: usize, n: usize, true_beta: f64, noise: f64) -> (f64, f64) {
     let mut rng = Rng::seeded(seed);

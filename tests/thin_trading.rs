@@ -13,9 +13,9 @@
 //! O(1/N) effects here, so its bounds are wider: coverage in [0.92, 0.98].
 
 use hurdle::beta::{dimson::dimson_beta, ols_beta, scholes_williams::scholes_williams_beta};
-use hurdle::random::Rng;
-use hurdle::regression::StdErrors;
-use hurdle::sampling::ShiftedMarket;
+use hurdle::market::sampling::ShiftedMarket;
+use hurdle::stats::least_squares::StdErrors;
+use hurdle::stats::random::Rng;
 
 const TRUE_BETA: f64 = 1.1;
 const IMMEDIATE: f64 = 0.45;

@@ -12,128 +12,14 @@
 
 use std::path::Path;
 
-use serde::{Deserialize, Serialize};
+use serde::Deserialize;
 
+use crate::capital::cost;
 use crate::case::read_case;
-use crate::cost;
-use crate::data::sha256_hex;
 use crate::error::{Error, Result};
-use crate::valuation::{load_inputs, value, Valuation};
-
-/// The components of a WACC build-up.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct BuildUp {
-    pub risk_free_rate: f64,
-    pub equity_risk_premium: f64,
-    /// Relevered (equity) beta.
-    pub beta: f64,
-    /// Sum of the additional equity premiums.
-    pub premiums: f64,
-    pub cost_of_debt_pre_tax: f64,
-    pub tax_rate: f64,
-    pub equity_weight: f64,
-    pub debt_weight: f64,
-}
-
-impl BuildUp {
-    pub fn cost_of_equity(&self) -> f64 {
-        cost::capm_cost_of_equity(
-            self.risk_free_rate,
-            self.beta,
-            self.equity_risk_premium,
-            self.premiums,
-        )
-    }
-
-    pub fn wacc(&self) -> f64 {
-        cost::wacc(
-            self.equity_weight,
-            self.cost_of_equity(),
-            self.debt_weight,
-            cost::after_tax_cost_of_debt(self.cost_of_debt_pre_tax, self.tax_rate),
-        )
-    }
-}
-
-/// The input groups of the bridge, in the order the sequential bridge replaces them.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Group {
-    RiskFreeRate,
-    EquityRiskPremium,
-    Beta,
-    Premiums,
-    CostOfDebt,
-    TaxRate,
-    Weights,
-}
-
-impl Group {
-    pub const ALL: [Group; 7] = [
-        Group::RiskFreeRate,
-        Group::EquityRiskPremium,
-        Group::Beta,
-        Group::Premiums,
-        Group::CostOfDebt,
-        Group::TaxRate,
-        Group::Weights,
-    ];
-
-    /// Copies this group's components from `from` into `into`.
-    fn take(self, from: &BuildUp, into: &mut BuildUp) {
-        match self {
-            Group::RiskFreeRate => into.risk_free_rate = from.risk_free_rate,
-            Group::EquityRiskPremium => into.equity_risk_premium = from.equity_risk_premium,
-            Group::Beta => into.beta = from.beta,
-            Group::Premiums => into.premiums = from.premiums,
-            Group::CostOfDebt => into.cost_of_debt_pre_tax = from.cost_of_debt_pre_tax,
-            Group::TaxRate => into.tax_rate = from.tax_rate,
-            Group::Weights => {
-                into.equity_weight = from.equity_weight;
-                into.debt_weight = from.debt_weight;
-            }
-        }
-    }
-}
-
-/// One side of a comparison.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Side {
-    pub label: String,
-    /// The file it came from, as given, and its SHA-256 (empty for the case being run).
-    pub source: String,
-    pub sha256: String,
-    pub build_up: BuildUp,
-    /// The WACC of the build-up's components.
-    pub wacc: f64,
-    /// The WACC the claim states, when it states one.
-    pub stated_wacc: Option<f64>,
-}
-
-impl Side {
-    /// The build-up of a computed valuation.
-    pub fn from_valuation(label: &str, valuation: &Valuation) -> Side {
-        let c = &valuation.cost;
-        let build_up = BuildUp {
-            risk_free_rate: c.risk_free_rate,
-            equity_risk_premium: c.equity_risk_premium,
-            beta: c.beta.relevered,
-            premiums: c.premiums.total,
-            cost_of_debt_pre_tax: c.cost_of_debt_pre_tax,
-            tax_rate: c.target.tax_rate,
-            equity_weight: c.weights.equity,
-            debt_weight: c.weights.debt,
-        };
-        Side {
-            label: label.to_string(),
-            source: String::new(),
-            sha256: String::new(),
-            wacc: build_up.wacc(),
-            stated_wacc: Some(c.wacc),
-            build_up,
-        }
-    }
-}
+use crate::io::series::sha256_hex;
+pub use crate::valuation::analyses::{Bridge, BuildUp, Group, Side, Step};
+use crate::valuation::{load_inputs, value};
 
 /// `[claimed]`: a build-up handed over by someone else.
 #[derive(Debug, Clone, Deserialize)]
@@ -226,6 +112,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         tax_rate: claimed.tax_rate,
         equity_weight,
         debt_weight,
+        ..BuildUp::default()
     };
     Ok(Side {
         label: claimed.label,
@@ -235,32 +122,6 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         stated_wacc: claimed.wacc,
         build_up,
     })
-}
-
-/// One step of the sequential bridge.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Step {
-    pub group: Group,
-    pub wacc_before: f64,
-    pub wacc_after: f64,
-    pub contribution: f64,
-    /// The group's Shapley value: its order-independent share of the difference.
-    pub shapley: f64,
-}
-
-/// The bridge from one WACC to another.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Bridge {
-    pub from: Side,
-    pub to: Side,
-    /// `to.wacc − from.wacc`, the difference the steps explain.
-    pub difference: f64,
-    pub steps: Vec<Step>,
-    /// `to.stated_wacc − to.wacc`: what the claim's own components do not explain.
-    pub unexplained: Option<f64>,
-    /// `from.stated_wacc − from.wacc`: for a case with preferred equity or leases, their share
-    /// of its WACC, which the build-up leaves out.
-    pub unexplained_from: Option<f64>,
 }
 
 /// Bridges `from` to `to`.
@@ -334,6 +195,7 @@ mod tests {
             tax_rate: 0.25,
             equity_weight: 1.0 / 1.4,
             debt_weight: 0.4 / 1.4,
+            ..BuildUp::default()
         }
     }
 
@@ -363,6 +225,7 @@ mod tests {
             tax_rate: 0.3,
             equity_weight: 0.6,
             debt_weight: 0.4,
+            ..BuildUp::default()
         };
         let bridge = bridge(&side(a), &side(b));
         let steps: f64 = bridge.steps.iter().map(|s| s.contribution).sum();

@@ -1,69 +1,25 @@
 //! Sensitivity grid: a figure of the valuation over two `--set` key paths.
 //!
-//! Each cell is the full valuation rerun on a copy of the case with the two values applied as
+//! Each cell is the valuation rerun on a copy of the case with the two values applied as
 //! overrides ([`crate::case::with_overrides`]), so a cell is exactly what `hurdle run --set
-//! ROW=… --set COLUMN=…` computes. An axis is written `key=low..high:step`.
-
-use serde::{Deserialize, Serialize};
+//! ROW=… --set COLUMN=…` computes; the peers are re-estimated only when a key changes how betas
+//! are estimated. An axis is written `key=low..high:step`.
 
 use super::case_error;
+use crate::case::Metric;
 use crate::case::{with_overrides, TargetSource};
 use crate::error::{Error, Result};
-use crate::valuation::{value_case, Inputs, Valuation};
+pub use crate::valuation::analyses::{Axis, Grid};
+use crate::valuation::{
+    cost_of_capital, estimates_for, CostOfCapital, Inputs, PeerEstimates, Valuation,
+};
 
-/// The figure a grid shows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Metric {
-    #[default]
-    Wacc,
-    CostOfEquity,
-}
-
-impl std::str::FromStr for Metric {
-    type Err = String;
-
-    fn from_str(text: &str) -> std::result::Result<Self, Self::Err> {
-        match text {
-            "wacc" => Ok(Metric::Wacc),
-            "cost_of_equity" => Ok(Metric::CostOfEquity),
-            other => Err(format!(
-                "`{other}` is not a metric; use wacc or cost_of_equity"
-            )),
-        }
+/// The figure `metric` names.
+fn read(metric: Metric, cost: &CostOfCapital) -> f64 {
+    match metric {
+        Metric::Wacc => cost.wacc,
+        Metric::CostOfEquity => cost.cost_of_equity,
     }
-}
-
-impl Metric {
-    fn read(self, valuation: &Valuation) -> f64 {
-        match self {
-            Metric::Wacc => valuation.cost.wacc,
-            Metric::CostOfEquity => valuation.cost.cost_of_equity,
-        }
-    }
-}
-
-/// One axis: a case key path and its values.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Axis {
-    pub key: String,
-    pub values: Vec<f64>,
-}
-
-impl Axis {
-    /// The `--set` assignment of value `i`.
-    pub fn assignment(&self, i: usize) -> String {
-        format!("{}={}", self.key, self.values[i])
-    }
-}
-
-/// A computed grid; `cells[r][c]` is the metric at row value `r` and column value `c`.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Grid {
-    pub metric: Metric,
-    pub rows: Axis,
-    pub columns: Axis,
-    pub cells: Vec<Vec<f64>>,
 }
 
 /// The most cells one axis may have; a larger grid is a typo more often than a wish.
@@ -158,7 +114,13 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
 }
 
 /// Computes the grid over `rows × columns`.
-pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Result<Grid> {
+pub fn grid(
+    inputs: &Inputs,
+    estimates: &PeerEstimates,
+    rows: &Axis,
+    columns: &Axis,
+    metric: Metric,
+) -> Result<Grid> {
     let mut cells = Vec::with_capacity(rows.values.len());
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
@@ -180,7 +142,9 @@ pub fn grid(inputs: &Inputs, rows: &Axis, columns: &Axis, metric: Metric) -> Res
                     ),
                 ));
             }
-            line.push(metric.read(&value_case(&case, inputs, "")?));
+            // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
+            let estimates = estimates_for(&case, inputs, estimates)?;
+            line.push(read(metric, &cost_of_capital(&case, inputs, &estimates)?));
         }
         cells.push(line);
     }

@@ -5,15 +5,16 @@
 //! narrowed by bisection until the bracket is as small as doubles allow. Bisection is chosen
 //! over faster methods because it cannot leave its bracket. A claim no value in the range
 //! reaches is reported with the WACC range found, never forced. Inputs that are case keys are
-//! varied through the full valuation (the same computation as `--set`); the relevered beta, which
-//! is not a case key, through the build-up of [`super::bridge::BuildUp`].
+//! varied through the valuation (the same computation as `--set`, reusing the peers' estimates,
+//! which none of these keys moves); the relevered beta, which is not a case key, through the
+//! build-up of [`super::bridge::BuildUp`], whose WACC is the case's own formula.
 
 use serde::Serialize;
 
 use super::bridge::Side;
 use crate::case::{with_overrides, CountryMethod, TargetSource};
 use crate::error::{Error, Result};
-use crate::valuation::{value_case, Inputs, Valuation};
+use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates, Valuation};
 
 /// An input that can be solved for.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -87,6 +88,7 @@ pub struct Implied {
 /// Solves for `target` so that the WACC equals `claimed`.
 pub fn implied(
     inputs: &Inputs,
+    estimates: &PeerEstimates,
     base: &Valuation,
     target: Target,
     claimed: f64,
@@ -95,8 +97,8 @@ pub fn implied(
     let (low, high) = range.unwrap_or_else(|| target.default_range());
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
-            option: format!("--range {low}..{high}"),
-            message: "the range must be LOW..HIGH with LOW < HIGH".into(),
+            option: format!("search range {low}..{high}"),
+            message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
         });
     }
     let settings = &inputs.case.settings;
@@ -114,7 +116,7 @@ pub fn implied(
             message: format!(
                 "target.source = {}: the target structure is not a ratio of the case, so none can \
                  be solved for; use --set target.source=explicit",
-                crate::format::label(&settings.target.source)
+                crate::report::format::label(&settings.target.source)
             ),
         });
     }
@@ -124,15 +126,6 @@ pub fn implied(
             file: inputs.case.path.clone(),
             message: "premiums.country_method = \"beta\" scales the country premium by the beta \
                       being solved for; solve for another input"
-                .into(),
-        });
-    }
-    if target == Target::Beta && settings.preferred.weight + settings.leases.weight > 0.0 {
-        return Err(Error::Case {
-            file: inputs.case.path.clone(),
-            message: "solving for the beta uses the plain equity-and-debt build-up, and this case \
-                      also has preferred equity or leases ([preferred], [leases]); solve for \
-                      another input"
                 .into(),
         });
     }
@@ -164,7 +157,8 @@ pub fn implied(
             .wacc());
         }
         let case = with_overrides(&inputs.case, &[format!("{key}={x}")])?;
-        Ok(value_case(&case, inputs, "")?.cost.wacc)
+        let estimates = estimates_for(&case, inputs, estimates)?;
+        Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
     };
     const INTERVALS: usize = 64;
     let xs: Vec<f64> = (0..=INTERVALS)

@@ -7,17 +7,20 @@
 //! ([`implied`]), what explains the gap between two WACCs ([`bridge`]).
 
 pub mod bridge;
+pub mod frequency_comparison;
 pub mod grid;
 pub mod implied;
 pub mod uncertainty;
 pub mod verify;
 
 use crate::error::{Error, Result};
-use crate::valuation::{value, Inputs, Valuation};
+use crate::valuation::{estimate_peers, value_with, Inputs, Valuation};
 
 /// The valuation with every analysis the memo shows.
 pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
-    let mut valuation = value(inputs, generated_at)?;
+    // The peers are estimated once; the grid and the Monte Carlo reuse the estimates.
+    let estimates = estimate_peers(&inputs.case, inputs)?;
+    let mut valuation = value_with(&inputs.case, inputs, &estimates, generated_at)?;
     let sensitivity = &inputs.case.settings.sensitivity;
     let (rows, columns) = grid::default_axes(&valuation);
     let rows = match &sensitivity.rows {
@@ -28,12 +31,18 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         Some(spec) => grid::parse_axis("sensitivity.columns", spec)?,
         None => columns,
     };
-    valuation.sensitivity = Some(grid::grid(inputs, &rows, &columns, sensitivity.metric)?);
+    valuation.sensitivity = Some(grid::grid(
+        inputs,
+        &estimates,
+        &rows,
+        &columns,
+        sensitivity.metric,
+    )?);
     valuation.uncertainty = Some(uncertainty::simulate(
         &inputs.case,
         inputs,
-        &valuation.peers,
-        &valuation.cost,
+        &estimates,
+        valuation.cost.wacc,
     )?);
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);

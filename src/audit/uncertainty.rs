@@ -5,70 +5,47 @@
 //! risk-free rate uniformly from user-given ranges, and reruns adjustment (a Vasicek prior from
 //! the cross-section is re-estimated from each draw's betas), unlevering,
 //! aggregation, relevering, cost of debt, CAPM and WACC through the same functions as the point
-//! estimate ([`cost_of_capital`], which also applies the Blume or Vasicek adjustment). The draws are seeded, so the same case gives
-//! the same percentiles everywhere. It measures the estimation error of the betas (and of the
+//! estimate ([`chain::wacc_only`], the case's formula alone). The draws are seeded, so the same
+//! case gives the same percentiles everywhere. It measures the estimation error of the betas (and of the
 //! given ranges) only, not the error in choosing peers, index, window or method.
 
-use serde::Serialize;
-
-use crate::case::Case;
+use crate::capital::chain;
+use crate::case::{specs, Case};
 use crate::error::Result;
-use crate::random::Rng;
 use crate::stats::quantile_sorted;
-use crate::valuation::{cost_of_capital, Checks, CostOfCapital, Inputs, PeerResult};
+use crate::stats::random::Rng;
+use crate::valuation::{chain_error, chain_peers, exclusions, Inputs, PeerEstimates};
 
-/// Percentiles of the simulated WACC.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Uncertainty {
-    pub draws: u32,
-    pub seed: u64,
-    pub beta_distribution: &'static str,
-    pub equity_risk_premium_range: Option<[f64; 2]>,
-    pub risk_free_rate_range: Option<[f64; 2]>,
-    pub point_estimate: f64,
-    pub mean: f64,
-    pub p05: f64,
-    pub p25: f64,
-    pub p50: f64,
-    pub p75: f64,
-    pub p95: f64,
-}
+pub use crate::valuation::analyses::Uncertainty;
 
-/// Simulates the WACC of `case` around the point estimates `peers` and `point`.
+/// Simulates the WACC of `case` around its peers' estimates; `point` is the case's WACC.
 pub fn simulate(
     case: &Case,
     inputs: &Inputs,
-    peers: &[PeerResult],
-    point: &CostOfCapital,
+    estimates: &PeerEstimates,
+    point: f64,
 ) -> Result<Uncertainty> {
-    let u = &case.settings.uncertainty;
+    let settings = &case.settings;
+    let u = &settings.uncertainty;
     let mut rng = Rng::seeded(u.seed);
-    let mut drawn_case = case.clone();
-    let mut drawn_peers = peers.to_vec();
+    let exclusions = exclusions(settings, estimates);
+    let mut drawn_peers = chain_peers(settings, estimates, &exclusions);
+    let base = specs::capital(settings, inputs.debt_table.as_ref());
     let mut waccs = Vec::with_capacity(u.draws as usize);
-    let mut notes = Vec::new();
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
     for _ in 0..u.draws {
-        for (drawn, peer) in drawn_peers.iter_mut().zip(peers) {
-            let raw = peer.estimate.beta + peer.estimate.beta_std_error * rng.normal();
-            drawn.estimate.beta = raw;
+        for (drawn, estimated) in drawn_peers.iter_mut().zip(&estimates.peers) {
+            let e = &estimated.estimate;
+            drawn.raw_beta = e.beta + e.beta_std_error * rng.normal();
         }
-        let market = &mut drawn_case.settings.market;
+        let mut spec = base;
         if let Some(range) = u.equity_risk_premium {
-            market.equity_risk_premium = uniform(&mut rng, range);
+            spec.equity_risk_premium = uniform(&mut rng, range);
         }
         if let Some(range) = u.risk_free_rate {
-            market.risk_free_rate = uniform(&mut rng, range);
+            spec.risk_free_rate = uniform(&mut rng, range);
         }
-        notes.clear();
-        let cost = cost_of_capital(
-            &drawn_case,
-            inputs.debt_table.as_ref(),
-            &mut drawn_peers,
-            &mut notes,
-            Checks::Skip,
-        )?;
-        waccs.push(cost.wacc);
+        waccs.push(chain::wacc_only(&spec, &drawn_peers).map_err(|e| chain_error(case, e))?);
     }
     waccs.sort_by(f64::total_cmp);
     let q = |p: f64| quantile_sorted(&waccs, p);
@@ -78,7 +55,7 @@ pub fn simulate(
         beta_distribution: "normal(beta, beta_std_error) for each peer, independent",
         equity_risk_premium_range: u.equity_risk_premium,
         risk_free_rate_range: u.risk_free_rate,
-        point_estimate: point.wacc,
+        point_estimate: point,
         mean: waccs.iter().sum::<f64>() / waccs.len() as f64,
         p05: q(0.05),
         p25: q(0.25),

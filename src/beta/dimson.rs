@@ -6,10 +6,10 @@
 //! share whose price reacts to market news a period late loads on the lagged market return, so
 //! the contemporaneous OLS slope alone understates its beta.
 
-use crate::case::BetaMethod;
+use super::BetaMethod;
 use crate::error::{Error, Result};
-use crate::regression::{ols, with_std_errors, StdErrors};
-use crate::sampling::ShiftedMarket;
+use crate::market::sampling::ShiftedMarket;
+use crate::stats::least_squares::{ols, with_std_errors, StdErrors};
 
 use super::{from_fit, BetaEstimate};
 
@@ -36,7 +36,7 @@ pub fn dimson_beta(
     }
     let slices: Vec<&[f64]> = columns.iter().map(|(_, c)| *c).collect();
     let offsets: Vec<i32> = columns.iter().map(|(o, _)| *o).collect();
-    let design = crate::regression::design_with_intercept(&slices);
+    let design = crate::stats::least_squares::design_with_intercept(&slices);
     let fit = with_std_errors(ols(&design, asset, true)?, &design, kind, newey_west_lags);
     let mut combination = vec![1.0; offsets.len() + 1];
     combination[0] = 0.0;
@@ -52,7 +52,7 @@ pub fn dimson_beta(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::case::BetaSettings;
+    use crate::beta::EstimatorSpec;
 
     // Hand-built data where the asset is exactly 0.5·m(t) + 0.7·m(t − 1): the Dimson
     // coefficients must be 0.5 and 0.7 and beta their sum 1.2 (an exact fit; the definition in
@@ -73,9 +73,12 @@ mod tests {
         assert!((e.beta - 1.2).abs() < 1e-12, "{e:?}");
         assert!((e.market_coefficients[0].estimate - 0.7).abs() < 1e-12);
         assert!((e.market_coefficients[1].estimate - 0.5).abs() < 1e-12);
-        let settings = BetaSettings {
+        let settings = EstimatorSpec {
             method: BetaMethod::Dimson,
-            ..BetaSettings::default()
+            std_errors: StdErrors::Classical,
+            newey_west_lags: None,
+            dimson_lags: 1,
+            dimson_leads: 0,
         };
         let short = [ShiftedMarket {
             offset: -1,

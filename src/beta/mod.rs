@@ -4,20 +4,23 @@
 //! `beta.method`. Adjustments (Blume) act on the raw estimate afterwards, so `beta` in every
 //! output is always the estimator's own, unadjusted figure.
 
+pub mod diagnostics;
 pub mod dimson;
+pub mod rolling;
 pub mod scholes_williams;
+pub mod spec;
 pub mod vasicek;
 
 use nalgebra::DMatrix;
 use serde::Serialize;
 
-use crate::case::{Adjustment, BetaMethod, BetaSettings};
 use crate::error::{Error, Result};
-use crate::regression::{
+use crate::market::sampling::ShiftedMarket;
+use crate::stats;
+use crate::stats::least_squares::{
     design_with_intercept, newey_west_default_lags, ols, with_std_errors, OlsFit, StdErrors,
 };
-use crate::sampling::ShiftedMarket;
-use crate::stats;
+pub use spec::{Adjustment, BetaMethod, EstimatorSpec};
 
 /// A raw beta and the regression statistics a reviewer asks for.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -65,7 +68,7 @@ pub struct MarketCoefficient {
 }
 
 /// The Newey–West lag count for `n` observations: the case's, else the Newey–West (1994) rule.
-pub fn newey_west_lags(settings: &BetaSettings, n: usize) -> Option<usize> {
+pub fn newey_west_lags(settings: &EstimatorSpec, n: usize) -> Option<usize> {
     (settings.std_errors == StdErrors::NeweyWest).then(|| {
         settings
             .newey_west_lags
@@ -76,7 +79,7 @@ pub fn newey_west_lags(settings: &BetaSettings, n: usize) -> Option<usize> {
 /// Estimates beta of `asset` on `market` (and the shifted market columns the method needs, as
 /// built by `sampling::align_with_shifts`) with the case's method and standard errors.
 pub fn estimate_with(
-    settings: &BetaSettings,
+    settings: &EstimatorSpec,
     asset: &[f64],
     market: &[f64],
     shifted: &[ShiftedMarket],
@@ -197,9 +200,12 @@ pub(crate) fn finish(
 /// returns go through [`estimate_with`].
 pub fn estimate(method: BetaMethod, asset: &[f64], market: &[f64]) -> Result<BetaEstimate> {
     estimate_with(
-        &BetaSettings {
+        &EstimatorSpec {
             method,
-            ..BetaSettings::default()
+            std_errors: StdErrors::Classical,
+            newey_west_lags: None,
+            dimson_lags: 1,
+            dimson_leads: 0,
         },
         asset,
         market,
@@ -235,7 +241,7 @@ pub struct EstimatorRecord {
 }
 
 /// Describes the case's estimator and standard errors, citing each source.
-pub fn describe(settings: &BetaSettings) -> EstimatorRecord {
+pub fn describe(settings: &EstimatorSpec) -> EstimatorRecord {
     let method_description = match settings.method {
         BetaMethod::Ols => "ordinary least squares of the peer's on the index's return, the \
                             market model of Sharpe (1963, Management Science 9(2))"
@@ -290,6 +296,75 @@ pub fn adjust(adjustment: Adjustment, raw: f64) -> Option<f64> {
         Adjustment::None | Adjustment::Vasicek => None,
         Adjustment::Blume => Some(blume(raw)),
     }
+}
+
+/// A raw beta after the adjustment: the adjusted figure (`None` without an adjustment), the beta
+/// that is unlevered, and Vasicek's record when it is the adjustment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AdjustedBeta {
+    pub adjusted: Option<f64>,
+    pub used: f64,
+    pub vasicek: Option<vasicek::Shrunk>,
+}
+
+/// Applies `adjustment` to every raw beta (`(beta, standard error)` pairs): Blume one by one,
+/// Vasicek against the stated prior or one from the cross-section of the `included` betas.
+/// Returns the adjusted betas and the Vasicek prior used, if any.
+pub fn adjust_all(
+    adjustment: Adjustment,
+    stated_prior: Option<(f64, f64)>,
+    raw: &[(f64, f64)],
+    included: &[bool],
+) -> std::result::Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), String> {
+    if adjustment != Adjustment::Vasicek {
+        let adjusted = raw
+            .iter()
+            .map(|&(beta, _)| {
+                let adjusted = adjust(adjustment, beta);
+                AdjustedBeta {
+                    adjusted,
+                    used: adjusted.unwrap_or(beta),
+                    vasicek: None,
+                }
+            })
+            .collect();
+        return Ok((adjusted, None));
+    }
+    let prior = match stated_prior {
+        Some((mean, variance)) => vasicek::Prior {
+            mean,
+            variance,
+            source: "stated",
+        },
+        None => {
+            let betas: Vec<f64> = raw
+                .iter()
+                .zip(included)
+                .filter(|(_, &inside)| inside)
+                .map(|(&(beta, _), _)| beta)
+                .collect();
+            vasicek::cross_sectional_prior(&betas).ok_or_else(|| {
+                format!(
+                    "beta.adjustment = \"vasicek\" needs at least two included peers with \
+                     different betas for a cross-sectional prior ({} included); state \
+                     beta.vasicek_prior_mean and beta.vasicek_prior_variance instead",
+                    betas.len()
+                )
+            })?
+        }
+    };
+    let adjusted = raw
+        .iter()
+        .map(|&(beta, std_error)| {
+            let shrunk = vasicek::shrink(beta, std_error, &prior);
+            AdjustedBeta {
+                adjusted: Some(shrunk.beta),
+                used: shrunk.beta,
+                vasicek: Some(shrunk),
+            }
+        })
+        .collect();
+    Ok((adjusted, Some(prior)))
 }
 
 #[cfg(test)]

@@ -7,10 +7,12 @@
 
 use nalgebra::DMatrix;
 
-use crate::case::BetaMethod;
+use super::BetaMethod;
 use crate::error::{Error, Result};
-use crate::regression::{design_with_intercept, linear_estimator_covariance, ols, StdErrors};
-use crate::sampling::ShiftedMarket;
+use crate::market::sampling::ShiftedMarket;
+use crate::stats::least_squares::{
+    design_with_intercept, linear_estimator_covariance, ols, StdErrors,
+};
 
 use super::{finish, BetaEstimate, MarketCoefficient};
 

@@ -5,7 +5,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use hurdle::demo::{generate, PEERS, SEED};
-use hurdle::format::fixed;
+use hurdle::report::format::fixed;
 
 fn main() -> ExitCode {
     let dir = std::env::args_os()
@@ -14,7 +14,7 @@ fn main() -> ExitCode {
         .unwrap_or_else(|| PathBuf::from("cases/quillmarsh"));
     for (relative, contents) in generate(SEED) {
         let path = dir.join(relative);
-        if let Err(error) = hurdle::output::write_file(&path, contents.as_bytes()) {
+        if let Err(error) = hurdle::report::write_file(&path, contents.as_bytes()) {
             eprintln!("error: {error}");
             return ExitCode::from(2);
         }

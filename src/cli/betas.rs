@@ -2,9 +2,10 @@
 //!
 //! Prints each peer's beta estimate and its statistics; writes no file.
 
-use hurdle::format::{fixed, label};
-use hurdle::frequency_comparison::FrequencyRun;
-use hurdle::valuation::Valuation;
+use hurdle::audit::frequency_comparison::FrequencyRun;
+use hurdle::case::Case;
+use hurdle::report::format::{fixed, label};
+use hurdle::valuation::{PeerEstimates, PeerResult};
 
 use super::CaseArgs;
 
@@ -28,30 +29,28 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
+    // Estimates only: no target, cost of equity or WACC is computed for a listing.
+    let inputs = args.case.inputs()?;
+    let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     if args.compare_frequencies {
-        let (inputs, valuation) = args.case.inputs_and_valuation()?;
-        let runs = hurdle::frequency_comparison::compare_frequencies(
-            &inputs,
-            &valuation,
-            &valuation.generated_at,
-        )?;
-        print!("{}", comparison_table(&valuation, &runs));
+        let runs = hurdle::audit::frequency_comparison::compare_frequencies(&inputs, &estimates)?;
+        print!("{}", comparison_table(&inputs.case, &estimates, &runs));
         return Ok(());
     }
-    let valuation = args.case.valuation()?;
+    let peers = hurdle::valuation::listing::list_betas(&inputs.case, &inputs, &estimates)?;
     match args.format {
-        Format::Table => print!("{}", table(&valuation)),
+        Format::Table => print!("{}", table(&inputs.case, &estimates, &peers)),
         Format::Json => println!(
             "{}",
-            serde_json::to_string_pretty(&valuation.peers).expect("peers always serialise")
+            serde_json::to_string_pretty(&peers).expect("peers always serialise")
         ),
     }
     Ok(())
 }
 
-/// Width of the peer-name column: the longest name, at least 4.
-fn name_width(v: &Valuation) -> usize {
-    v.peers
+fn name_width(case: &Case) -> usize {
+    case.settings
+        .peers
         .iter()
         .map(|p| p.name.chars().count())
         .max()
@@ -59,8 +58,8 @@ fn name_width(v: &Valuation) -> usize {
         .max(4)
 }
 
-fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
-    let name_width = name_width(base);
+fn comparison_table(case: &Case, base: &PeerEstimates, runs: &[FrequencyRun]) -> String {
+    let name_width = name_width(case);
     let mut out = format!("{:<name_width$}", "peer");
     for run in runs {
         out.push_str(&format!(
@@ -69,12 +68,12 @@ fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
         ));
     }
     out.push('\n');
-    for (i, peer) in base.peers.iter().enumerate() {
+    for (i, peer) in case.settings.peers.iter().enumerate() {
         out.push_str(&format!("{:<name_width$}", peer.name));
         for run in runs {
-            let cell = match &run.valuation {
-                Ok(v) => {
-                    let e = &v.peers[i].estimate;
+            let cell = match &run.estimates {
+                Ok(estimates) => {
+                    let e = &estimates.peers[i].estimate;
                     format!(
                         "{} ({}) {}",
                         fixed(e.beta, 3),
@@ -90,13 +89,13 @@ fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
     }
     out.push_str(&format!(
         "window {} to {} at every frequency; method {}, std errors {}\n",
-        base.sampling.window_start,
-        base.sampling.window_end,
-        label(&base.estimator.method),
-        label(&base.estimator.std_errors)
+        base.window_start,
+        base.window_end,
+        label(&base.spec.estimator.method),
+        label(&base.spec.estimator.std_errors)
     ));
     for run in runs {
-        if let Err(reason) = &run.valuation {
+        if let Err(reason) = &run.estimates {
             out.push_str(&format!("{}: n/a: {reason}\n", label(&run.frequency)));
         }
     }
@@ -104,7 +103,7 @@ fn comparison_table(base: &Valuation, runs: &[FrequencyRun]) -> String {
 }
 
 /// The peer's flags and exclusion, for the table's last column.
-fn flags_cell(p: &hurdle::valuation::PeerResult) -> String {
+fn flags_cell(p: &PeerResult) -> String {
     let mut parts: Vec<String> = p.flags.iter().map(|f| f.name().to_string()).collect();
     if let Some(reason) = &p.excluded_reason {
         parts.push(format!("excluded: {reason}"));
@@ -116,13 +115,13 @@ fn flags_cell(p: &hurdle::valuation::PeerResult) -> String {
     }
 }
 
-fn table(v: &Valuation) -> String {
-    let name_width = name_width(v);
+fn table(case: &Case, estimates: &PeerEstimates, peers: &[PeerResult]) -> String {
+    let name_width = name_width(case);
     let mut out = format!(
         "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}  flags\n",
         "peer", "N", "beta", "SE", "95% CI", "R²", "beta*", "D/E", "unlevered"
     );
-    for p in &v.peers {
+    for p in peers {
         let e = &p.estimate;
         out.push_str(&format!(
             "{:<name_width$}  {:>4}  {:>7}  {:>6}  {:>17}  {:>5}  {:>7}  {:>6}  {:>9}  {}\n",
@@ -144,10 +143,10 @@ fn table(v: &Valuation) -> String {
     }
     out.push_str(&format!(
         "beta* = beta used ({} adjustment); frequency {}, window {} to {}\n",
-        label(&v.settings.beta.adjustment),
-        hurdle::format::label(&v.sampling.frequency),
-        v.sampling.window_start,
-        v.sampling.window_end
+        label(&case.settings.beta.adjustment),
+        label(&estimates.spec.frequency),
+        estimates.window_start,
+        estimates.window_end
     ));
     out
 }

@@ -7,7 +7,7 @@
 use std::path::PathBuf;
 
 use hurdle::audit::bridge::{bridge, read_side, Bridge};
-use hurdle::format::{basis_points, percent};
+use hurdle::report::format::{basis_points, percent};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -26,9 +26,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let result = bridge(&from, &to);
     print!("{}", render(&result));
     if let Some(dir) = &args.out {
-        hurdle::output::write_file(
+        hurdle::report::write_file(
             &dir.join("bridge.csv"),
-            &hurdle::output::csv::bridge_csv(&result),
+            &hurdle::report::csv::bridge_csv(&result),
         )?;
     }
     Ok(())
@@ -51,7 +51,7 @@ fn render(b: &Bridge) -> String {
     for s in &b.steps {
         out.push_str(&format!(
             "{:<22} {:>12} {:>12} {:>10}\n",
-            hurdle::format::label(&s.group),
+            hurdle::report::format::label(&s.group),
             percent(s.wacc_after, 3),
             basis_points(s.contribution),
             basis_points(s.shapley)

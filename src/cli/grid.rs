@@ -6,8 +6,9 @@
 
 use std::path::PathBuf;
 
-use hurdle::audit::grid::{grid, parse_axis, Metric};
-use hurdle::format::percent;
+use hurdle::audit::grid::{grid, parse_axis};
+use hurdle::case::Metric;
+use hurdle::report::format::percent;
 
 use super::CaseArgs;
 
@@ -32,7 +33,10 @@ pub struct Args {
 pub fn run(args: &Args) -> hurdle::Result<()> {
     let rows = parse_axis("--rows", &args.rows)?;
     let columns = parse_axis("--cols", &args.cols)?;
-    let table = grid(&args.case.inputs()?, &rows, &columns, args.metric)?;
+    let inputs = args.case.inputs()?;
+    // The peers are estimated once; cells re-estimate only when an axis changes estimation.
+    let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
+    let table = grid(&inputs, &estimates, &rows, &columns, args.metric)?;
     let mut out = format!("{:>14}", "");
     for c in &table.columns.values {
         out.push_str(&format!(" {c:>9}"));
@@ -48,14 +52,14 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     out.push_str(&format!(
         "rows: {}; cells: {}\n",
         table.rows.key,
-        hurdle::format::label(&table.metric)
+        hurdle::report::format::label(&table.metric)
     ));
     print!("{out}");
     let path = args
         .csv
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir().join("grid.csv"));
-    hurdle::output::write_file(&path, &hurdle::output::csv::grid_csv(&table))?;
+    hurdle::report::write_file(&path, &hurdle::report::csv::grid_csv(&table))?;
     println!("  wrote {}", path.display());
     Ok(())
 }

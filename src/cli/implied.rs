@@ -6,7 +6,7 @@
 use std::process::ExitCode;
 
 use hurdle::audit::implied::{implied, Target};
-use hurdle::format::{fixed, percent};
+use hurdle::report::format::{fixed, percent};
 
 use super::CaseArgs;
 
@@ -39,8 +39,11 @@ fn parse_range(text: &str) -> Result<(f64, f64), String> {
 
 pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     let inputs = args.case.inputs()?;
-    let base = hurdle::valuation::value(&inputs, "")?;
-    let r = implied(&inputs, &base, args.solve, args.wacc, args.range)?;
+    let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
+    let base = hurdle::valuation::value_with(&inputs.case, &inputs, &estimates, "")?;
+    let r = implied(
+        &inputs, &estimates, &base, args.solve, args.wacc, args.range,
+    )?;
     let show = |x: f64| {
         if r.key.contains("beta") || r.key.contains("debt_to_") {
             fixed(x, 4)

@@ -63,24 +63,16 @@ impl CaseArgs {
             .unwrap_or_else(|| PathBuf::from("output"))
     }
 
-    /// As [`CaseArgs::valuation`], also returning the inputs read.
-    pub fn inputs_and_valuation(
-        &self,
-    ) -> hurdle::Result<(hurdle::valuation::Inputs, hurdle::valuation::Valuation)> {
-        let inputs = self.inputs()?;
-        let valuation = hurdle::valuation::value(&inputs, &timestamp())?;
-        Ok((inputs, valuation))
-    }
-
     /// Reads the case, applies overrides and reads its data files.
     pub fn inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
         let case = hurdle::case::read_case(&self.case, &self.overrides)?;
         hurdle::valuation::load_inputs(case)
     }
 
-    /// The valuation alone (peers through WACC), without the memo's analyses.
-    pub fn valuation(&self) -> hurdle::Result<hurdle::valuation::Valuation> {
-        hurdle::valuation::value(&self.inputs()?, &timestamp())
+    /// Reads the case and its price files only (no spread table): what estimating needs.
+    pub fn price_inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
+        let case = hurdle::case::read_case(&self.case, &self.overrides)?;
+        hurdle::valuation::load_price_inputs(case)
     }
 }
 

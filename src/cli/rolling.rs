@@ -7,8 +7,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::format::fixed;
-use hurdle::output::{self, rolling::RollingCsv, Render};
+use hurdle::report;
+use hurdle::report::format::fixed;
 
 use super::CaseArgs;
 
@@ -22,29 +22,37 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
-    let valuation = args.case.valuation()?;
+    // Estimates only: rolling betas need no target, cost of equity or WACC.
+    let inputs = args.case.price_inputs()?;
+    let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     let out = args
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let outputs: [&dyn Render; 1] = [&RollingCsv];
-    let written = output::write_all(&out, &valuation, &outputs)?;
-    for peer in &valuation.peers {
-        match &peer.stability {
+    let names: Vec<&str> = inputs
+        .case
+        .settings
+        .peers
+        .iter()
+        .map(|p| p.name.as_str())
+        .collect();
+    let rolling: Vec<_> = estimates.peers.iter().map(|p| p.rolling.clone()).collect();
+    let path = out.join("rolling.csv");
+    report::write_file(&path, &report::rolling::rolling_csv(&names, &rolling))?;
+    for (name, estimated) in names.iter().zip(&estimates.peers) {
+        match &estimated.stability {
             Some(s) => println!(
                 "{}: {} windows of {} periods, beta {} to {}, trend {} per year",
-                peer.name,
+                name,
                 s.windows,
                 s.window_periods,
                 fixed(s.min, 3),
                 fixed(s.max, 3),
                 fixed(s.trend_per_year, 3)
             ),
-            None => println!("{}: fewer than two rolling windows", peer.name),
+            None => println!("{name}: fewer than two rolling windows"),
         }
     }
-    for path in written {
-        println!("  wrote {}", path.display());
-    }
+    println!("  wrote {}", path.display());
     Ok(())
 }

@@ -5,8 +5,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::format::{fixed, label, percent};
-use hurdle::output::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
+use hurdle::report::format::{fixed, label, percent};
+use hurdle::report::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
 
 use super::CaseArgs;
@@ -35,7 +35,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
     let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
-    let written = output::write_all(&out, &valuation, &outputs)?;
+    let written = report::write_all(&out, &valuation, &outputs)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());

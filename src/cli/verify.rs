@@ -36,9 +36,9 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     if let Some(dir) = &args.out {
         let mut bytes = serde_json::to_vec_pretty(&report).expect("a report always serialises");
         bytes.push(b'\n');
-        hurdle::output::write_file(&dir.join("verification.json"), &bytes)?;
-        let markdown = hurdle::output::verification::markdown(&report);
-        hurdle::output::write_file(&dir.join("verification.md"), markdown.as_bytes())?;
+        hurdle::report::write_file(&dir.join("verification.json"), &bytes)?;
+        let markdown = hurdle::report::verification::markdown(&report);
+        hurdle::report::write_file(&dir.join("verification.md"), markdown.as_bytes())?;
     }
     Ok(if report.reproduced {
         ExitCode::SUCCESS

@@ -118,7 +118,7 @@ pub fn read_attributes(
     Ok(Attributes {
         file: AttributesFile {
             path: written.to_string(),
-            sha256: crate::data::sha256_hex(&bytes),
+            sha256: crate::io::series::sha256_hex(&bytes),
             format,
             rows: records.len(),
         },

@@ -21,7 +21,7 @@ use std::path::{Path, PathBuf};
 use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
-use crate::data::{iso_date, SeriesView};
+use crate::io::series::{iso_date, SeriesView};
 use crate::error::{Error, Result};
 
 /// How the prices are laid out in the file.

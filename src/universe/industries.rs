@@ -13,7 +13,8 @@ use serde::Serialize;
 
 use super::estimate::NotEstimated;
 use super::securities::SecurityResult;
-use crate::case::{LeverageSettings, PeerFlag};
+use crate::beta::diagnostics::PeerFlag;
+use crate::case::LeverageSettings;
 use crate::stats::{self, Aggregation, Dispersion};
 
 /// Location and spread of one figure over an industry's securities.

@@ -3,10 +3,11 @@
 //! industry.
 //!
 //! [`load_inputs`] reads the universe file's data (index, risk-free series, panel, attributes);
-//! [`evaluate`] is a function of what was read: the shared window once ([`estimate::Window`]),
-//! every security in parallel ([`estimate::estimate_security`]), the rows
-//! ([`securities::security_row`]) and the industry table ([`industries::industry_table`]), all
-//! in one [`UniverseResult`] that every output renders.
+//! [`evaluate`] is a function of what was read: the shared window once
+//! ([`estimate::Estimation`]), every security in parallel through the estimate layer, the
+//! adjustment over the cross-section, the rows ([`securities::security_row`]) and the industry
+//! table ([`industries::industry_table`]), all in one [`UniverseResult`] that every output
+//! renders.
 
 pub mod estimate;
 pub mod industries;
@@ -17,14 +18,13 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use serde::Serialize;
 
-use crate::beta::{self, vasicek};
-use crate::case::{Adjustment, PeerFlag};
-use crate::data::{iso_date, read_series_file, DataFile, ValueKind};
+use crate::beta::rolling::RollingPoint;
+use crate::beta::{self, vasicek, Adjustment, AdjustedBeta};
 use crate::error::{Error, Result};
+use crate::io::series::{iso_date, read_series_file, DataFile, ValueKind};
 use crate::panel::attributes::{read_attributes, Attributes, AttributesFile};
 use crate::panel::{read_panel, Panel, PanelFile};
-use crate::rolling::RollingPoint;
-use estimate::{estimate_security, NotEstimated, SecurityEstimate, Window, WindowRecord};
+use estimate::{Estimation, NotEstimated, SecurityEstimate, WindowRecord};
 use industries::IndustryResult;
 use securities::{security_row, Missing, RowSettings, SecurityResult};
 use settings::{Universe, UniverseFile};
@@ -168,43 +168,39 @@ pub fn evaluate(
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<UniverseResult> {
     let settings = &inputs.universe.settings;
-    let valuation_date = settings.universe.valuation_date.0;
-    let window = Window::new(
-        &settings.beta,
-        valuation_date,
+    let estimation = Estimation::new(
+        settings.estimation_spec(),
         inputs.index.series.view(),
         inputs.risk_free.as_ref().map(|f| f.series.view()),
+        settings.universe.rolling,
     );
-    check_overlap(inputs, &window)?;
+    check_overlap(inputs, &estimation)?;
     let panel = &inputs.panel;
-    let rolling = settings.universe.rolling;
     let estimates: Vec<SecurityEstimate> = (0..panel.len())
         .into_par_iter()
         .map(|i| {
-            let estimate = estimate_security(&window, panel.series(i), rolling);
+            let estimate = estimation.security(panel.series(i));
             progress(1);
             estimate
         })
         .collect();
-    let vasicek_prior = vasicek_prior(&settings.beta, &estimates)?;
+    let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
     let row_settings = RowSettings {
-        adjustment: settings.beta.adjustment,
-        exclude_flags: &settings.beta.exclude_flags,
         leverage: &settings.leverage,
         cash_column: settings.attributes.cash_column.is_some(),
-        vasicek_prior: vasicek_prior.as_ref(),
+        periods_in_window: estimation.window().period_ends().len(),
     };
-    let periods = window.period_ends().len();
     let (securities, rolling): (Vec<SecurityResult>, Vec<Vec<RollingPoint>>) = estimates
         .into_iter()
+        .zip(adjusted)
         .enumerate()
-        .map(|(i, estimate)| {
+        .map(|(i, (estimate, adjusted))| {
             let id = &panel.securities()[i];
             let row = security_row(
                 id,
                 panel.series(i).values.len(),
-                periods,
                 &estimate,
+                adjusted.as_ref(),
                 inputs.attributes.get(id),
                 &row_settings,
             );
@@ -230,7 +226,7 @@ pub fn evaluate(
             sha256: inputs.universe.sha256.clone(),
             overrides: inputs.universe.overrides.clone(),
             title: settings.universe.title.clone(),
-            valuation_date,
+            valuation_date: settings.universe.valuation_date.0,
         },
         settings: settings.clone(),
         files: Files {
@@ -239,8 +235,8 @@ pub fn evaluate(
             panel: panel.file.clone(),
             attributes: inputs.attributes.file.clone(),
         },
-        window: window.record(),
-        estimator: beta::describe(&settings.beta),
+        window: estimation.record(),
+        estimator: beta::describe(&settings.estimator_spec()),
         formula_source: settings.leverage.formula.citation(),
         formula_expression: settings.leverage.formula.expression(),
         vasicek_prior,
@@ -254,13 +250,13 @@ pub fn evaluate(
 
 /// A panel that shares no dates with the index inside the window is an input error, not a
 /// table of securities without estimates.
-fn check_overlap(inputs: &UniverseInputs, window: &Window) -> Result<()> {
+fn check_overlap(inputs: &UniverseInputs, estimation: &Estimation) -> Result<()> {
     let panel = &inputs.panel.file;
     let index = &inputs.index;
-    let opens = window.grid.boundaries[0];
-    let from = panel.first_date.max(index.first_date).max(opens);
-    let to = panel.last_date.min(index.last_date).min(window.end);
-    if from < to {
+    let window = estimation.window();
+    let from = panel.first_date.max(index.first_date);
+    let to = panel.last_date.min(index.last_date);
+    if from < to && from <= window.end() && to >= window.start() {
         return Ok(());
     }
     Err(Error::DataFile {
@@ -273,45 +269,39 @@ fn check_overlap(inputs: &UniverseInputs, window: &Window) -> Result<()> {
             index.path,
             index.first_date,
             index.last_date,
-            opens,
-            window.end
+            window.start(),
+            window.end()
         ),
     })
 }
 
-/// The Vasicek prior: the stated one, else the cross-section of every estimated security that
-/// is not excluded (the whole universe, as Vasicek (1973) took the cross-section of all stocks).
-fn vasicek_prior(
-    settings: &crate::case::BetaSettings,
+/// `beta.adjustment` over every estimated security (Vasicek's prior from the cross-section of
+/// those not excluded, the whole universe, unless stated): one entry per security, `None` for
+/// those not estimated.
+fn adjust(
+    settings: &UniverseFile,
     estimates: &[SecurityEstimate],
-) -> Result<Option<vasicek::Prior>> {
-    if settings.adjustment != Adjustment::Vasicek {
-        return Ok(None);
-    }
-    if let (Some(mean), Some(variance)) =
-        (settings.vasicek_prior_mean, settings.vasicek_prior_variance)
-    {
-        return Ok(Some(vasicek::Prior {
-            mean,
-            variance,
-            source: "stated",
-        }));
-    }
-    let raw: Vec<f64> = estimates
+) -> Result<(Vec<Option<AdjustedBeta>>, Option<vasicek::Prior>)> {
+    let estimated: Vec<&estimate::Estimated> =
+        estimates.iter().filter_map(|e| e.outcome.as_ref().ok()).collect();
+    let raw: Vec<(f64, f64)> = estimated
         .iter()
-        .filter_map(|e| e.outcome.as_ref().ok())
-        .filter(|e| securities::exclusion(&e.flags, &settings.exclude_flags).is_none())
-        .map(|e| e.estimate.beta)
+        .map(|e| (e.estimate.beta, e.estimate.beta_std_error))
         .collect();
-    vasicek::cross_sectional_prior(&raw).map(Some).ok_or_else(|| Error::Estimation {
-        peer: "(all securities)".into(),
-        message: format!(
-            "beta.adjustment = \"vasicek\" needs at least two estimated securities with \
-             different betas for a cross-sectional prior ({} estimated); state \
-             beta.vasicek_prior_mean and beta.vasicek_prior_variance instead",
-            raw.len()
-        ),
-    })
+    let included: Vec<bool> = estimated.iter().map(|e| e.excluding_flags.is_empty()).collect();
+    let beta = &settings.beta;
+    let stated = beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance);
+    let (adjusted, prior) = beta::adjust_all(beta.adjustment, stated, &raw, &included)
+        .map_err(|message| Error::Estimation {
+            peer: "(all securities)".into(),
+            message: message.replace("peers", "securities"),
+        })?;
+    let mut adjusted = adjusted.into_iter();
+    let per_security = estimates
+        .iter()
+        .map(|e| e.outcome.is_ok().then(|| adjusted.next().expect("one per estimate")))
+        .collect();
+    Ok((per_security, prior))
 }
 
 /// The counts of the summary and the notes a reviewer should see.
@@ -366,10 +356,3 @@ fn counts_and_notes(
     };
     (counts, notes)
 }
-
-/// The flags a security can raise, for outputs that list them.
-pub const FLAGS: [PeerFlag; 3] = [
-    PeerFlag::TooFewObservations,
-    PeerFlag::LowRSquared,
-    PeerFlag::StalePrices,
-];

@@ -9,11 +9,13 @@
 use serde::Serialize;
 
 use super::estimate::{NotEstimated, SecurityEstimate};
-use crate::beta::{self, vasicek, BetaEstimate};
-use crate::case::{Adjustment, DebtBetaSource, DebtMeasure, LeverageSettings, PeerFlag};
-use crate::leverage::{CapitalStructure, DebtTerms};
+use crate::beta::diagnostics::PeerFlag;
+use crate::beta::rolling::Stability;
+use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
+use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms};
+use crate::case::LeverageSettings;
+use crate::market::sampling::DroppedPeriods;
 use crate::panel::attributes::AttributeRecord;
-use crate::sampling::DroppedPeriods;
 
 /// A figure a security lacks.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
@@ -59,7 +61,9 @@ pub struct SecurityResult {
     /// Prices the panel holds for the security.
     pub prices: usize,
     pub periods_in_window: usize,
-    pub periods_dropped: DroppedPeriods,
+    /// Periods left out of the regression by reason (`None` when not known: a flat index or an
+    /// estimator that failed).
+    pub periods_dropped: Option<DroppedPeriods>,
     /// The regression, when the security could be estimated.
     pub estimate: Option<BetaEstimate>,
     pub not_estimated: Option<NotEstimated>,
@@ -88,6 +92,8 @@ pub struct SecurityResult {
     pub cash_corrected_unlevered_beta: Option<f64>,
     /// Why an unlevered figure is undefined although every input is present.
     pub unlevering_issue: Option<&'static str>,
+    /// Range and trend of the rolling betas, when `universe.rolling` asks for them.
+    pub stability: Option<Stability>,
 }
 
 impl SecurityResult {
@@ -99,50 +105,43 @@ impl SecurityResult {
 
 /// The settings a row is built with.
 pub struct RowSettings<'a> {
-    pub adjustment: Adjustment,
-    pub exclude_flags: &'a [PeerFlag],
     pub leverage: &'a LeverageSettings,
     /// Whether the attributes name a cash column (otherwise cash is not a missing figure).
     pub cash_column: bool,
-    pub vasicek_prior: Option<&'a vasicek::Prior>,
+    pub periods_in_window: usize,
 }
 
-/// Why an estimated security is left out of the aggregates, from its flags.
-pub fn exclusion(flags: &[PeerFlag], exclude_flags: &[PeerFlag]) -> Option<String> {
-    let hit: Vec<&str> = flags
-        .iter()
-        .filter(|f| exclude_flags.contains(f))
-        .map(|f| f.name())
-        .collect();
-    (!hit.is_empty()).then(|| format!("flag-based rule beta.exclude_flags: {}", hit.join(", ")))
+/// Why an estimated security is left out of the aggregates, from its excluding flags.
+pub fn exclusion(excluding_flags: &[PeerFlag]) -> Option<String> {
+    (!excluding_flags.is_empty()).then(|| {
+        let names: Vec<&str> = excluding_flags.iter().map(|f| f.name()).collect();
+        format!("flag-based rule beta.exclude_flags: {}", names.join(", "))
+    })
 }
 
-/// Builds one security's row from its estimate and attributes.
+/// Builds one security's row from its estimate, its adjusted beta (present exactly when it
+/// was estimated) and its attributes.
 pub fn security_row(
     security: &str,
     prices: usize,
-    periods_in_window: usize,
     estimated: &SecurityEstimate,
+    adjusted: Option<&AdjustedBeta>,
     attributes: Option<&AttributeRecord>,
     settings: &RowSettings<'_>,
 ) -> SecurityResult {
-    let (estimate, flags, stale_share, not_estimated) = match &estimated.outcome {
-        Ok(e) => (Some(e.estimate.clone()), e.flags.clone(), Some(e.stale_share), None),
-        Err((reason, detail)) => (None, Vec::new(), None, Some((*reason, detail.clone()))),
-    };
-    let excluded_reason = estimate
-        .as_ref()
-        .and(exclusion(&flags, settings.exclude_flags));
-    let (adjusted_beta, vasicek) = match (&estimate, settings.adjustment) {
-        (None, _) => (None, None),
-        (Some(e), Adjustment::Vasicek) => {
-            let prior = settings.vasicek_prior.expect("a prior when adjusting by Vasicek");
-            let shrunk = vasicek::shrink(e.beta, e.beta_std_error, prior);
-            (Some(shrunk.beta), Some(shrunk))
-        }
-        (Some(e), adjustment) => (beta::adjust(adjustment, e.beta), None),
-    };
-    let beta_used = estimate.as_ref().map(|e| adjusted_beta.unwrap_or(e.beta));
+    let (estimate, flags, stale_share, excluded_reason, stability, not_estimated) =
+        match &estimated.outcome {
+            Ok(e) => (
+                Some(e.estimate.clone()),
+                e.flags.clone(),
+                Some(e.stale_share),
+                exclusion(&e.excluding_flags),
+                e.stability.clone(),
+                None,
+            ),
+            Err((reason, detail)) => (None, Vec::new(), None, None, None, Some((*reason, detail.clone()))),
+        };
+    let beta_used = adjusted.map(|a| a.used);
     let missing = missing(attributes, settings.cash_column);
     let figure = |f: fn(&AttributeRecord) -> Option<f64>| attributes.and_then(f);
     let (equity, debt, cash, tax) = (
@@ -161,7 +160,7 @@ pub fn security_row(
         security: security.to_string(),
         industry: attributes.and_then(|a| a.industry.clone()),
         prices,
-        periods_in_window,
+        periods_in_window: settings.periods_in_window,
         periods_dropped: estimated.periods_dropped,
         estimate,
         not_estimated: not_estimated.as_ref().map(|(r, _)| *r),
@@ -169,8 +168,8 @@ pub fn security_row(
         flags,
         stale_share,
         excluded_reason,
-        adjusted_beta,
-        vasicek,
+        adjusted_beta: adjusted.and_then(|a| a.adjusted),
+        vasicek: adjusted.and_then(|a| a.vasicek),
         beta_used,
         equity_value: equity,
         debt,
@@ -183,6 +182,7 @@ pub fn security_row(
         cash_share_of_capital: unlevering.cash_share,
         cash_corrected_unlevered_beta: unlevering.cash_corrected,
         unlevering_issue: unlevering.issue,
+        stability,
     }
 }
 
@@ -271,7 +271,7 @@ fn unlever(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::leverage::Formula;
+    use crate::capital::leverage::Formula;
 
     // Hamada by hand: βL = 1.2, D/E = 0.5, t = 0.3: βU = 1.2 / (1 + 0.7·0.5) = 1.2 / 1.35.
     // Cash share 50 / (100 + 50) = 1/3, so the cash-corrected βU is βU / (2/3).

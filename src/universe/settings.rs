@@ -13,8 +13,10 @@ use serde::{Deserialize, Serialize};
 use crate::case::{
     self, BetaSettings, CaseDate, DebtBetaSource, IndexSpec, LeverageSettings, YieldSpec,
 };
+use crate::beta::EstimatorSpec;
 use crate::error::{Error, Result};
-use crate::leverage::Formula;
+use crate::estimate::EstimationSpec;
+use crate::capital::leverage::Formula;
 use crate::panel::attributes::AttributeColumns;
 use crate::panel::{PanelColumns, PanelLayout, TableFormat};
 
@@ -120,6 +122,19 @@ fn default_tax_rate_column() -> String {
     "tax_rate".into()
 }
 
+impl UniverseFile {
+    /// The estimation spec a case with this file's `[beta]` and valuation date would build
+    /// (through the case's own conversion, so the two cannot drift apart).
+    pub fn estimation_spec(&self) -> EstimationSpec {
+        case::specs::estimation(&stand_in_case(self))
+    }
+
+    /// The estimator of `[beta]`.
+    pub fn estimator_spec(&self) -> EstimatorSpec {
+        case::specs::estimator(&self.beta)
+    }
+}
+
 impl PanelSpec {
     /// The panel reader's column spec.
     pub fn columns(&self) -> PanelColumns {
@@ -173,7 +188,7 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
         action: "cannot read the universe file",
         source,
     })?;
-    let sha256 = crate::data::sha256_hex(&bytes);
+    let sha256 = crate::io::series::sha256_hex(&bytes);
     let file_error = |message: String| Error::Case {
         file: path.to_path_buf(),
         message,
@@ -291,8 +306,8 @@ fn check_distinct_names(names: &[(&str, &String)]) -> std::result::Result<(), St
 
 /// The checks of the sections shared with a case file, made by the case's own validation so
 /// that a `[beta]` or `[leverage]` setting is accepted or refused exactly as in a case: a
-/// stand-in case carries this file's sections and neutral values everywhere else, and the
-/// case's key names are mapped to this file's.
+/// stand-in case carries this file's sections and neutral values everywhere else (see
+/// [`stand_in_case`]), and the case's key names are mapped to this file's.
 fn validate_shared(universe: &UniverseFile) -> std::result::Result<(), String> {
     let stand_in = stand_in_case(universe);
     case::validate(&stand_in).map_err(|message| {
@@ -302,7 +317,9 @@ fn validate_shared(universe: &UniverseFile) -> std::result::Result<(), String> {
     })
 }
 
-/// A case holding the universe's shared sections, one neutral peer and neutral capital keys.
+/// A case holding the universe's shared sections (`[market.index]`, `[market.risk_free_series]`,
+/// `[beta]`, `[leverage]`, the valuation date), one neutral peer and neutral capital keys: the
+/// value through which the case's validation and spec conversion serve the universe file.
 fn stand_in_case(universe: &UniverseFile) -> case::CaseFile {
     case::CaseFile {
         case: case::CaseInfo {

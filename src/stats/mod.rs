@@ -5,6 +5,9 @@
 //! so confidence intervals agree with reference libraries to about 1e-13 rather than the
 //! accuracy of the inverse-beta routine alone.
 
+pub mod least_squares;
+pub mod random;
+
 use serde::{Deserialize, Serialize};
 use statrs::distribution::{Continuous, ContinuousCDF, StudentsT};
 
@@ -81,6 +84,29 @@ pub fn locations(values: &[f64], market_caps: &[f64], trim_fraction: f64) -> Loc
         trimmed_mean,
         trim_fraction,
         trimmed_each_end,
+    }
+}
+
+/// The one statistic `aggregation` picks, computed alone with the same arithmetic as
+/// [`locations`] (a Monte Carlo draw needs no other).
+pub fn location(
+    aggregation: Aggregation,
+    values: &[f64],
+    market_caps: &[f64],
+    trim_fraction: f64,
+) -> f64 {
+    match aggregation {
+        Aggregation::Median | Aggregation::Mean => {
+            let mut sorted = values.to_vec();
+            sorted.sort_by(f64::total_cmp);
+            if aggregation == Aggregation::Median {
+                quantile_sorted(&sorted, 0.5)
+            } else {
+                sorted.iter().sum::<f64>() / sorted.len() as f64
+            }
+        }
+        Aggregation::MarketCapWeighted => weighted_mean(values, market_caps),
+        Aggregation::TrimmedMean => trimmed_mean(values, trim_fraction).0,
     }
 }
 

@@ -4,6 +4,7 @@
 //! and a crash never leaves half a file. Inputs are never opened for writing.
 
 pub mod csv;
+pub mod format;
 pub mod json;
 pub mod memo;
 pub mod rolling;

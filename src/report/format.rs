@@ -23,15 +23,7 @@ pub fn fixed(value: f64, decimals: usize) -> String {
     }
 }
 
-/// The name a setting has in case files and JSON (`"median"`, `"wacc"`), for messages and
-/// summaries.
-pub fn label<T: serde::Serialize>(value: &T) -> String {
-    match serde_json::to_value(value) {
-        Ok(serde_json::Value::String(name)) => name,
-        Ok(other) => other.to_string(),
-        Err(_) => String::new(),
-    }
-}
+pub use crate::case::label;
 
 #[cfg(test)]
 mod tests {

@@ -1,183 +1,14 @@
 //! Where the pre-tax cost of debt comes from: a given yield, a rating's spread, or a synthetic
 //! rating from interest coverage.
 //!
-//! The two table-based sources read a small user-supplied table from the case folder (CSV with a
-//! header row, or TOML with one `[[row]]` per line of the table) and look up one row; the row
-//! used, with its line in the file, goes into the result so the memo can show it. Reading is in
-//! [`read_spread_table`]; the lookups [`rating_row`] and [`coverage_row`] and [`cost_of_debt`]
-//! are pure.
-
-use std::path::Path;
+//! The two table-based sources look up one row of a small user-supplied table (read by
+//! [`crate::io::spread_table`]); the row used, with its line in the file, goes into the result so
+//! the memo can show it. The lookups [`rating_row`] and [`coverage_row`] and [`cost_of_debt`] are
+//! pure.
 
 use serde::{Deserialize, Serialize};
 
-use crate::case::{DebtSettings, DebtSource};
-use crate::error::{Error, Result};
-
-/// One row of a spread table.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct SpreadRow {
-    /// Lowest interest coverage (EBIT / interest expense) of the row, inclusive; coverage
-    /// tables only.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub min_coverage: Option<f64>,
-    pub rating: String,
-    /// Spread over the risk-free rate (annual, decimal).
-    pub spread: f64,
-    /// 1-based line of the row in its file (CSV: counting the header as line 1; TOML: the
-    /// row's position).
-    #[serde(skip_deserializing)]
-    pub line: usize,
-}
-
-/// A rating → spread or coverage → rating → spread table, as read.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct SpreadTable {
-    /// The path as written in the case file.
-    pub path: String,
-    pub sha256: String,
-    /// Number of rows read.
-    pub row_count: usize,
-    #[serde(skip)]
-    pub rows: Vec<SpreadRow>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct TomlTable {
-    row: Vec<SpreadRow>,
-}
-
-/// Reads a spread table (`.toml`, else CSV). Coverage tables must give `min_coverage` on every
-/// row, in strictly ascending order. Lines starting with `#` in a CSV are comments.
-pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<SpreadTable> {
-    let bytes = std::fs::read(path).map_err(|source| Error::Io {
-        path: path.to_path_buf(),
-        action: "cannot read the spread table",
-        source,
-    })?;
-    let sha256 = crate::data::sha256_hex(&bytes);
-    let file_error = |message: String| Error::DataFile {
-        file: path.to_path_buf(),
-        message,
-    };
-    let text = String::from_utf8(bytes).map_err(|_| file_error("not UTF-8 text".into()))?;
-    let rows = if path
-        .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
-    {
-        let table: TomlTable = toml::from_str(&text).map_err(|e| file_error(e.to_string()))?;
-        // TOML rows have no line of their own; number them in order.
-        table
-            .row
-            .into_iter()
-            .enumerate()
-            .map(|(i, row)| SpreadRow { line: i + 1, ..row })
-            .collect()
-    } else {
-        parse_csv_table(&text, path, coverage)?
-    };
-    if rows.is_empty() {
-        return Err(file_error("the table has no rows".into()));
-    }
-    for (i, row) in rows.iter().enumerate() {
-        let row_error = |message: String| Error::DataRow {
-            file: path.to_path_buf(),
-            line: row.line,
-            message,
-        };
-        if !(row.spread.is_finite() && row.spread > -0.5 && row.spread < 1.0) {
-            return Err(row_error(format!(
-                "spread = {} is outside (-0.5, 1)",
-                row.spread
-            )));
-        }
-        if coverage {
-            let Some(low) = row.min_coverage else {
-                return Err(row_error("min_coverage is missing".into()));
-            };
-            if let Some(previous) = i.checked_sub(1).and_then(|j| rows[j].min_coverage) {
-                if low.is_nan() || low <= previous {
-                    return Err(row_error(format!(
-                        "min_coverage = {low} is not above the previous row's {previous}; \
-                         list the rows in ascending order of coverage"
-                    )));
-                }
-            }
-        }
-        if let Some(j) = rows[..i].iter().position(|r| r.rating == row.rating) {
-            if !coverage {
-                return Err(row_error(format!(
-                    "rating \"{}\" repeats line {}",
-                    row.rating, rows[j].line
-                )));
-            }
-        }
-    }
-    Ok(SpreadTable {
-        path: written.to_string(),
-        sha256,
-        row_count: rows.len(),
-        rows,
-    })
-}
-
-fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<SpreadRow>> {
-    let mut lines = text
-        .lines()
-        .enumerate()
-        .map(|(i, line)| (i + 1, line.trim()))
-        .filter(|(_, line)| !line.is_empty() && !line.starts_with('#'));
-    let (header_line, header) = lines.next().ok_or_else(|| Error::DataFile {
-        file: path.to_path_buf(),
-        message: "the table is empty".into(),
-    })?;
-    let columns: Vec<&str> = header.split(',').map(str::trim).collect();
-    let find = |name: &str| {
-        columns
-            .iter()
-            .position(|c| *c == name)
-            .ok_or_else(|| Error::DataRow {
-                file: path.to_path_buf(),
-                line: header_line,
-                message: format!("no `{name}` column (columns: {})", columns.join(", ")),
-            })
-    };
-    let rating = find("rating")?;
-    let spread = find("spread")?;
-    let min_coverage = if coverage {
-        Some(find("min_coverage")?)
-    } else {
-        None
-    };
-    lines
-        .map(|(line, text)| {
-            let cells: Vec<&str> = text.split(',').map(str::trim).collect();
-            let row_error = |message: String| Error::DataRow {
-                file: path.to_path_buf(),
-                line,
-                message,
-            };
-            let cell = |i: usize| {
-                cells.get(i).copied().ok_or_else(|| {
-                    row_error(format!("{} cells, expected {}", cells.len(), columns.len()))
-                })
-            };
-            let number = |i: usize| {
-                let raw = cell(i)?;
-                raw.parse::<f64>()
-                    .map_err(|_| row_error(format!("`{raw}` in `{}` is not a number", columns[i])))
-            };
-            Ok(SpreadRow {
-                min_coverage: min_coverage.map(number).transpose()?,
-                rating: cell(rating)?.to_string(),
-                spread: number(spread)?,
-                line,
-            })
-        })
-        .collect()
-}
+pub use crate::io::spread_table::{SpreadRow, SpreadTable};
 
 /// The row of `rating` in a rating → spread table.
 pub fn rating_row<'a>(
@@ -273,9 +104,52 @@ pub fn cost_of_debt(
     })
 }
 
+/// `[debt]`: the subject's cost of debt.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DebtSettings {
+    /// Where the pre-tax cost of debt comes from (default: given).
+    #[serde(default)]
+    pub source: DebtSource,
+    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity; required when the
+    /// source is `given`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cost_pre_tax: Option<f64>,
+    /// The subject's credit rating, looked up in `rating_table` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating: Option<String>,
+    /// CSV or TOML table of `rating, spread` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating_table: Option<String>,
+    /// Earnings before interest and taxes (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ebit: Option<f64>,
+    /// Interest expense, same unit as `ebit` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub interest_expense: Option<f64>,
+    /// CSV or TOML table of `min_coverage, rating, spread` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub coverage_table: Option<String>,
+}
+
+/// `debt.source`: where the pre-tax cost of debt comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtSource {
+    /// `debt.cost_pre_tax`, e.g. a yield to maturity.
+    #[default]
+    Given,
+    /// rf + the spread of `debt.rating` in `debt.rating_table`.
+    Rating,
+    /// rf + the spread of the synthetic rating from EBIT / interest expense in
+    /// `debt.coverage_table`.
+    Coverage,
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::io::spread_table::read_spread_table;
 
     fn coverage_table() -> SpreadTable {
         let row = |low: f64, rating: &str, spread: f64, line: usize| SpreadRow {

@@ -12,9 +12,9 @@
 use chrono::NaiveDate;
 use serde::Serialize;
 
-use crate::data::iso_date;
 use crate::error::Result;
-use crate::regression::{design_with_intercept, ols};
+use crate::io::series::iso_date;
+use crate::stats::least_squares::{design_with_intercept, ols};
 
 /// One window's estimate.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -152,14 +152,14 @@ pub fn stability(points: &[RollingPoint], window_periods: u32) -> Result<Option<
 mod tests {
     use super::*;
     use crate::beta::ols_beta;
-    use crate::random::Rng;
+    use crate::stats::random::Rng;
 
     fn month_ends(n: usize) -> Vec<NaiveDate> {
         let mut d = NaiveDate::from_ymd_opt(2020, 1, 31).unwrap();
         let mut out = Vec::new();
         for _ in 0..n {
             out.push(d);
-            d = crate::sampling::month_end(d + chrono::Days::new(1));
+            d = crate::market::sampling::month_end(d + chrono::Days::new(1));
         }
         out
     }

@@ -1,7 +1,7 @@
 //! `memo.md`: the reviewer's memo, rendered by minijinja from a template.
 //!
 //! The template sees the [`Valuation`] as `v` and may only format it: the filters `pct`, `bp`
-//! and `num` call [`crate::format`], and undefined names are errors (strict mode), so a typo in a
+//! and `num` call [`crate::report::format`], and undefined names are errors (strict mode), so a typo in a
 //! user's template fails loudly instead of printing an empty cell.
 
 use std::path::Path;
@@ -11,7 +11,7 @@ use minijinja::{Environment, UndefinedBehavior, Value};
 
 use super::Render;
 use crate::error::{Error, Result};
-use crate::format;
+use crate::report::format;
 use crate::valuation::Valuation;
 
 /// The memo template shipped with the tool (`templates/memo.md.j2`).

@@ -3,6 +3,8 @@
 //! Plain formulas over decimals. They are kept apart from the pipeline so that the memo's
 //! build-up, the sensitivity checks and the tests all use exactly the same arithmetic.
 
+use serde::{Deserialize, Serialize};
+
 /// CAPM cost of equity plus additive premiums: rf + β·ERP + premiums.
 /// Sharpe (1964), J. Finance 19(3); Lintner (1965), Rev. Econ. Statistics 47(1).
 pub fn capm_cost_of_equity(
@@ -25,10 +27,29 @@ pub fn weights_from_debt_to_equity(debt_to_equity: f64) -> (f64, f64) {
     (equity, debt_to_equity * equity)
 }
 
-/// Weighted average cost of capital: wE·Ke + wD·Kd·(1 − t) (Modigliani and Miller 1963,
-/// Am. Econ. Review 53(3), for the tax shield; the textbook WACC).
-pub fn wacc(equity_weight: f64, cost_of_equity: f64, debt_weight: f64, after_tax_debt: f64) -> f64 {
-    equity_weight * cost_of_equity + debt_weight * after_tax_debt
+/// The terms of a WACC: each capital component's weight and cost (after tax where deductible).
+/// Preferred equity and leases are 0 when a case has none.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct WaccTerms {
+    pub equity_weight: f64,
+    pub cost_of_equity: f64,
+    pub debt_weight: f64,
+    pub cost_of_debt_after_tax: f64,
+    pub preferred_weight: f64,
+    pub preferred_cost: f64,
+    pub lease_weight: f64,
+    pub lease_cost_after_tax: f64,
+}
+
+/// Weighted average cost of capital: wE·Ke + wD·Kd·(1 − t) + wP·Kp + wL·KL·(1 − t) (Modigliani
+/// and Miller 1963, Am. Econ. Review 53(3), for the tax shield; the textbook WACC, with preferred
+/// equity and leases as further components). The one WACC formula: the case, the bridge and
+/// `implied` all call it.
+pub fn wacc(terms: &WaccTerms) -> f64 {
+    terms.equity_weight * terms.cost_of_equity
+        + terms.debt_weight * terms.cost_of_debt_after_tax
+        + terms.preferred_weight * terms.preferred_cost
+        + terms.lease_weight * terms.lease_cost_after_tax
 }
 
 /// Scales two-part weights (equity, debt) to leave `other` (preferred + leases) of total capital:
@@ -36,6 +57,30 @@ pub fn wacc(equity_weight: f64, cost_of_equity: f64, debt_weight: f64, after_tax
 pub fn weights_with_other_components(debt_to_equity: f64, other: f64) -> (f64, f64) {
     let (equity, debt) = weights_from_debt_to_equity(debt_to_equity);
     (equity * (1.0 - other), debt * (1.0 - other))
+}
+
+/// `premiums.country_method`: how the country risk premium (CRP) enters the cost of equity.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CountryMethod {
+    /// + CRP.
+    #[default]
+    Added,
+    /// + λ·CRP, λ the subject's exposure (`country_lambda`).
+    Lambda,
+    /// + βL·CRP, scaled by the relevered beta.
+    Beta,
+}
+
+/// `target.tax_rate_basis`: which tax rate the shield is computed with.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TaxRateBasis {
+    /// The statutory rate on the next unit of taxable income (common practice for the shield).
+    #[default]
+    Marginal,
+    /// Taxes paid over pre-tax income.
+    Effective,
 }
 
 #[cfg(test)]
@@ -54,7 +99,14 @@ mod tests {
         assert!((ke - 0.11).abs() < 1e-15);
         assert!((kd - 0.045).abs() < 1e-15);
         assert!((we - 0.8).abs() < 1e-15 && (wd - 0.2).abs() < 1e-15);
-        assert!((wacc(we, ke, wd, kd) - 0.097).abs() < 1e-15);
+        let terms = WaccTerms {
+            equity_weight: we,
+            cost_of_equity: ke,
+            debt_weight: wd,
+            cost_of_debt_after_tax: kd,
+            ..WaccTerms::default()
+        };
+        assert!((wacc(&terms) - 0.097).abs() < 1e-15);
     }
 
     // Identity: with no debt the WACC is the cost of equity.
@@ -62,7 +114,14 @@ mod tests {
     fn no_debt_wacc_is_cost_of_equity() {
         let (we, wd) = weights_from_debt_to_equity(0.0);
         assert_eq!((we, wd), (1.0, 0.0));
-        assert_eq!(wacc(we, 0.093, wd, 0.04), 0.093);
+        let terms = WaccTerms {
+            equity_weight: we,
+            cost_of_equity: 0.093,
+            debt_weight: wd,
+            cost_of_debt_after_tax: 0.04,
+            ..WaccTerms::default()
+        };
+        assert_eq!(wacc(&terms), 0.093);
     }
 
     // Hand-worked: preferred 10% and leases 5% of capital, D/E = 0.25: the rest 85% splits
@@ -75,7 +134,16 @@ mod tests {
         // 1e-15: one or two roundings of decimals.
         assert!((we - 0.68).abs() < 1e-15 && (wd - 0.17).abs() < 1e-15);
         let lease_after_tax = after_tax_cost_of_debt(0.06, 0.25);
-        let total = wacc(we, 0.11, wd, 0.045) + 0.10 * 0.07 + 0.05 * lease_after_tax;
+        let total = wacc(&WaccTerms {
+            equity_weight: we,
+            cost_of_equity: 0.11,
+            debt_weight: wd,
+            cost_of_debt_after_tax: 0.045,
+            preferred_weight: 0.10,
+            preferred_cost: 0.07,
+            lease_weight: 0.05,
+            lease_cost_after_tax: lease_after_tax,
+        });
         assert!((total - 0.0917).abs() < 1e-15);
     }
 }

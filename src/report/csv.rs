@@ -73,8 +73,8 @@ impl Render for PeersCsv {
                 p.tax_rate.to_string(),
                 p.unlevered_beta.to_string(),
                 e.residual_std_error.to_string(),
-                crate::format::label(&e.method),
-                crate::format::label(&e.std_errors),
+                crate::report::format::label(&e.method),
+                crate::report::format::label(&e.std_errors),
                 e.durbin_watson.to_string(),
                 e.large_studentised_residuals.to_string(),
                 field(
@@ -175,7 +175,7 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
         writeln!(
             out,
             "{},{},{},{},{}",
-            crate::format::label(&s.group),
+            crate::report::format::label(&s.group),
             s.wacc_before,
             s.wacc_after,
             s.contribution,

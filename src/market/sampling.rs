@@ -10,7 +10,7 @@
 use chrono::{Datelike, NaiveDate, Weekday};
 use serde::{Deserialize, Serialize};
 
-use crate::data::SeriesView;
+use crate::io::series::SeriesView;
 
 /// Sampling frequency of returns.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]

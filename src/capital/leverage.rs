@@ -156,6 +156,38 @@ pub fn debt_beta_from_spread(cost_of_debt: f64, risk_free: f64, equity_risk_prem
     (cost_of_debt - risk_free) / equity_risk_premium
 }
 
+/// `leverage.debt_measure`: the debt in D/E.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtMeasure {
+    Gross,
+    /// Debt minus cash; may be negative for a firm holding more cash than debt.
+    Net,
+}
+
+impl DebtMeasure {
+    /// The debt counted in D/E.
+    pub fn debt(self, debt: f64, cash: f64) -> f64 {
+        match self {
+            DebtMeasure::Gross => debt,
+            DebtMeasure::Net => debt - cash,
+        }
+    }
+}
+
+/// `leverage.debt_beta_source`: how the beta of debt is set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DebtBetaSource {
+    /// Riskless debt: every debt beta is 0.
+    None,
+    /// `leverage.debt_beta`, or a peer's own `debt_beta`.
+    Given,
+    /// (Kd − rf) / ERP, an approximation (see `leverage::debt_beta_from_spread`); a peer's own
+    /// `cost_of_debt` when it has one, else the subject's.
+    CreditSpread,
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

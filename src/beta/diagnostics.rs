@@ -1,0 +1,70 @@
+//! Diagnostic flags on a beta estimate: warnings a reviewer should see before trusting a peer's
+//! beta, and the rule that leaves flagged peers out of an aggregate.
+
+use serde::{Deserialize, Serialize};
+
+use super::BetaEstimate;
+
+/// A diagnostic warning on a peer's estimate.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PeerFlag {
+    TooFewObservations,
+    LowRSquared,
+    StalePrices,
+}
+
+impl PeerFlag {
+    /// The flag's name as the case file and `result.json` write it.
+    pub fn name(self) -> &'static str {
+        match self {
+            PeerFlag::TooFewObservations => "too_few_observations",
+            PeerFlag::LowRSquared => "low_r_squared",
+            PeerFlag::StalePrices => "stale_prices",
+        }
+    }
+}
+
+/// The thresholds behind the flags, and which flags leave a security out of an aggregate.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FlagRule {
+    /// Flag `too_few_observations` below this share of the window's periods.
+    pub observations_share: f64,
+    /// Flag `low_r_squared` below this R².
+    pub r_squared_floor: f64,
+    /// Flag `stale_prices` when more than this share of the window's periods had a stale price.
+    pub stale_share: f64,
+    /// Securities raising any of these flags stay out of aggregates (they are still shown).
+    pub exclude: Vec<PeerFlag>,
+}
+
+impl FlagRule {
+    /// The flags an estimate raises against these thresholds.
+    pub fn flags(
+        &self,
+        estimate: &BetaEstimate,
+        periods_in_window: usize,
+        stale_share: f64,
+    ) -> Vec<PeerFlag> {
+        let mut flags = Vec::new();
+        if (estimate.observations as f64) < self.observations_share * periods_in_window as f64 {
+            flags.push(PeerFlag::TooFewObservations);
+        }
+        if estimate.r_squared < self.r_squared_floor {
+            flags.push(PeerFlag::LowRSquared);
+        }
+        if stale_share > self.stale_share {
+            flags.push(PeerFlag::StalePrices);
+        }
+        flags
+    }
+
+    /// Those of `flags` that the exclusion rule names, in the order raised.
+    pub fn excluding(&self, flags: &[PeerFlag]) -> Vec<PeerFlag> {
+        flags
+            .iter()
+            .copied()
+            .filter(|f| self.exclude.contains(f))
+            .collect()
+    }
+}

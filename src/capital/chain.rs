@@ -1,0 +1,584 @@
+//! The chain from peer betas to the WACC, over plain inputs: adjust the raw betas (Blume or
+//! Vasicek), set each peer's D/E, debt beta and cost of debt, unlever, aggregate, relever at the
+//! target structure, build the cost of equity, and weight the WACC — under every leverage formula
+//! for the memo's comparison.
+//!
+//! The one path for these steps: the case pipeline, the sensitivity grid, `implied`, the bridge
+//! and each Monte Carlo draw ([`wacc_only`], which computes just the case's formula) all come
+//! through the functions below, so a figure has one formula wherever it appears.
+
+use serde::Serialize;
+
+use super::cost::{self, CountryMethod};
+use super::debt::{self, CostOfDebtRecord, DebtSettings, SpreadTable};
+use super::leverage::{self, CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
+use crate::beta::{self, vasicek, AdjustedBeta, Adjustment};
+use crate::stats::{self, Aggregation, Dispersion};
+
+/// Everything the chain needs besides the peers: what a case's `[leverage]`, `[target]`,
+/// `[market]` rates, `[premiums]`, `[debt]`, `[preferred]` and `[leases]` say, as plain values.
+#[derive(Debug, Clone, Copy)]
+pub struct CapitalSpec<'a> {
+    pub adjustment: Adjustment,
+    /// A stated Vasicek prior (mean, variance); `None` takes it from the cross-section.
+    pub vasicek_prior: Option<(f64, f64)>,
+    pub formula: Formula,
+    pub aggregation: Aggregation,
+    pub trim_fraction: f64,
+    /// Aggregate the betas of the operations (the unlevered betas with cash taken out).
+    pub cash_step: bool,
+    pub debt_measure: DebtMeasure,
+    pub debt_beta_source: DebtBetaSource,
+    /// The debt beta of the subject and of every peer without its own (source `given`).
+    pub debt_beta: f64,
+    pub target: TargetSpec,
+    pub tax_rate: f64,
+    pub risk_free_rate: f64,
+    pub equity_risk_premium: f64,
+    pub premiums: PremiumSpec,
+    pub preferred: Component,
+    pub leases: Component,
+    pub debt: &'a DebtSettings,
+    /// The spread table the cost-of-debt source needs, already read.
+    pub debt_table: Option<&'a SpreadTable>,
+}
+
+/// Where the target D/E comes from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum TargetSpec {
+    /// A ratio known in advance (given, or the subject's own).
+    DebtToEquity(f64),
+    /// The median D/E of the peers that enter the aggregation.
+    PeerMedian,
+}
+
+/// The premiums added to the CAPM cost of equity.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PremiumSpec {
+    pub size: f64,
+    pub country: f64,
+    pub company_specific: f64,
+    pub country_method: CountryMethod,
+    /// λ, the subject's exposure to country risk (`CountryMethod::Lambda`).
+    pub country_lambda: f64,
+}
+
+impl PremiumSpec {
+    /// The country premium as it enters the cost of equity with relevered beta `beta`: CRP,
+    /// λ·CRP, or βL·CRP.
+    pub fn country_applied(&self, beta: f64) -> f64 {
+        match self.country_method {
+            CountryMethod::Added => self.country,
+            CountryMethod::Lambda => self.country_lambda * self.country,
+            CountryMethod::Beta => beta * self.country,
+        }
+    }
+
+    /// The country premium's multiplier: 1, λ or βL.
+    pub fn country_scale(&self, beta: f64) -> f64 {
+        match self.country_method {
+            CountryMethod::Added => 1.0,
+            CountryMethod::Lambda => self.country_lambda,
+            CountryMethod::Beta => beta,
+        }
+    }
+
+    /// Size + country as applied + company-specific.
+    pub fn total_applied(&self, beta: f64) -> f64 {
+        self.size + self.country_applied(beta) + self.company_specific
+    }
+}
+
+/// A capital component beside equity and debt (preferred equity, leases): its share of capital
+/// and its cost (`None`: preferred has none; leases cost the pre-tax cost of debt).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct Component {
+    pub weight: f64,
+    pub cost: Option<f64>,
+}
+
+/// One peer's figures that the chain takes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PeerCapital {
+    pub raw_beta: f64,
+    pub beta_std_error: f64,
+    pub equity_value: f64,
+    pub debt: f64,
+    pub cash: f64,
+    pub tax_rate: f64,
+    /// The peer's own debt beta and pre-tax cost of debt, when the case gives them.
+    pub own_debt_beta: Option<f64>,
+    pub own_cost_of_debt: Option<f64>,
+    /// Whether the peer enters the aggregates (excluded peers are still shown).
+    pub included: bool,
+}
+
+/// A peer's capital-structure terms as the chain used them.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PeerTerms {
+    /// With the case's debt measure (gross, or net of cash).
+    pub debt_to_equity: f64,
+    pub debt_beta: f64,
+    pub cost_of_debt: f64,
+    /// cash / (equity + debt), gross debt: the share of capital the cash step takes out.
+    pub cash_share: f64,
+}
+
+/// The four capital components' figures: weights, or each one's share of the WACC.
+#[derive(Debug, Clone, Serialize)]
+pub struct Weights {
+    pub equity: f64,
+    pub debt: f64,
+    /// Preferred equity (`[preferred]`); 0 when the case has none.
+    pub preferred: f64,
+    /// Lease liabilities (`[leases]`); 0 when the case has none.
+    pub leases: f64,
+}
+
+/// The costs of preferred equity and lease liabilities.
+#[derive(Debug, Clone, Serialize)]
+pub struct OtherComponents {
+    /// `preferred.cost` (0 when there is no preferred equity); not tax-deductible.
+    pub preferred_cost: f64,
+    /// `leases.cost_pre_tax`, else the pre-tax cost of debt.
+    pub lease_cost_pre_tax: f64,
+    /// The same after tax at the target tax rate.
+    pub lease_cost_after_tax: f64,
+}
+
+/// The figures of one leverage formula, from the peers' betas to the WACC.
+#[derive(Debug, Clone, Serialize)]
+pub struct FormulaOutcome {
+    pub formula: Formula,
+    pub formula_source: &'static str,
+    pub expression: &'static str,
+    /// Whether this is the formula the case uses.
+    pub in_use: bool,
+    /// Each peer's unlevered beta under this formula, in peer order.
+    pub peer_unlevered_betas: Vec<f64>,
+    /// The same corrected for cash, βU / (1 − cash / (equity + debt)).
+    pub peer_cash_corrected_unlevered_betas: Vec<f64>,
+    #[serde(skip)]
+    pub unlevered_dispersion: Dispersion,
+    /// Every location statistic of the betas aggregated (cash-corrected or not, as the case says).
+    #[serde(skip)]
+    pub unlevered_statistics: stats::Locations,
+    /// The aggregate of the plain and of the cash-corrected unlevered betas.
+    #[serde(skip)]
+    pub unlevered_plain: f64,
+    #[serde(skip)]
+    pub unlevered_cash_corrected: f64,
+    pub unlevered: f64,
+    pub relevered: f64,
+    pub cost_of_equity: f64,
+    pub wacc: f64,
+}
+
+/// Every figure of the chain.
+#[derive(Debug, Clone)]
+pub struct Chain {
+    /// Each peer's adjusted beta, in peer order.
+    pub adjusted: Vec<AdjustedBeta>,
+    pub vasicek_prior: Option<vasicek::Prior>,
+    pub peers: Vec<PeerTerms>,
+    pub cost_of_debt: CostOfDebtRecord,
+    pub cost_of_debt_after_tax: f64,
+    pub target_debt_to_equity: f64,
+    /// The debt beta used in relevering at the target (0 when none).
+    pub subject_debt_beta: f64,
+    pub weights: Weights,
+    pub other: OtherComponents,
+    /// Every formula's outcome, in the order of [`Formula::ALL`].
+    pub comparison: Vec<FormulaOutcome>,
+    /// The position of the spec's formula in `comparison`.
+    pub chosen: usize,
+}
+
+impl Chain {
+    /// The outcome under the spec's formula: the headline figures.
+    pub fn outcome(&self) -> &FormulaOutcome {
+        &self.comparison[self.chosen]
+    }
+}
+
+/// Why the chain cannot be computed. The caller names the case and the peers.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ChainError {
+    /// The adjustment could not be applied (a Vasicek prior from too few peers).
+    Adjustment(String),
+    /// Every peer is excluded: nothing is left to aggregate.
+    NoPeerIncluded,
+    /// The cost-of-debt source failed (a rating or coverage not in the table).
+    CostOfDebt(String),
+    /// The target D/E works out negative or not a number.
+    Target(f64),
+    /// A peer's debt beta is above its equity beta (peer position, debt beta, beta used).
+    PeerDebtBeta(usize, f64, f64),
+    /// The subject's debt beta is above the aggregate asset beta (debt beta, asset beta).
+    SubjectDebtBeta(f64, f64),
+}
+
+/// Whether [`chain`] rejects inconsistent debt betas (the point estimate does; a Monte Carlo draw,
+/// whose betas are random, is not an input error).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Checks {
+    Enforce,
+    Skip,
+}
+
+/// The chain's inputs shared by every formula.
+struct Common {
+    adjusted: Vec<AdjustedBeta>,
+    vasicek_prior: Option<vasicek::Prior>,
+    peers: Vec<PeerTerms>,
+    cost_of_debt: CostOfDebtRecord,
+    target: CapitalStructure,
+    subject_debt: DebtTerms,
+    weights: Weights,
+    cost_of_debt_after_tax: f64,
+    other: OtherComponents,
+}
+
+/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas.
+fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
+    let raw: Vec<(f64, f64)> = peers
+        .iter()
+        .map(|p| (p.raw_beta, p.beta_std_error))
+        .collect();
+    let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
+    let (adjusted, vasicek_prior) =
+        beta::adjust_all(spec.adjustment, spec.vasicek_prior, &raw, &included)
+            .map_err(ChainError::Adjustment)?;
+    if !included.contains(&true) {
+        return Err(ChainError::NoPeerIncluded);
+    }
+    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+        .map_err(ChainError::CostOfDebt)?;
+    let kd = cost_of_debt.pre_tax;
+    let terms: Vec<PeerTerms> = peers.iter().map(|p| peer_terms(spec, p, kd)).collect();
+    let target_de = match spec.target {
+        TargetSpec::PeerMedian => {
+            let ratios: Vec<f64> = terms.iter().map(|t| t.debt_to_equity).collect();
+            aggregate(peers, &ratios, spec.trim_fraction).0.median
+        }
+        TargetSpec::DebtToEquity(de) => de,
+    };
+    if !(target_de.is_finite() && target_de >= 0.0) {
+        return Err(ChainError::Target(target_de));
+    }
+    let subject_debt = DebtTerms {
+        debt_beta: subject_debt_beta(spec, kd),
+        cost_of_debt: kd,
+    };
+    let (preferred, leases) = (spec.preferred, spec.leases);
+    let (equity_weight, debt_weight) =
+        cost::weights_with_other_components(target_de, preferred.weight + leases.weight);
+    let lease_cost_pre_tax = leases.cost.unwrap_or(kd);
+    Ok(Common {
+        adjusted,
+        vasicek_prior,
+        peers: terms,
+        cost_of_debt,
+        target: CapitalStructure {
+            debt_to_equity: target_de,
+            tax_rate: spec.tax_rate,
+        },
+        subject_debt,
+        weights: Weights {
+            equity: equity_weight,
+            debt: debt_weight,
+            preferred: preferred.weight,
+            leases: leases.weight,
+        },
+        cost_of_debt_after_tax: cost::after_tax_cost_of_debt(kd, spec.tax_rate),
+        other: OtherComponents {
+            preferred_cost: preferred.cost.unwrap_or(0.0),
+            lease_cost_pre_tax,
+            lease_cost_after_tax: cost::after_tax_cost_of_debt(lease_cost_pre_tax, spec.tax_rate),
+        },
+    })
+}
+
+/// The whole chain under every formula; the spec's formula gives the headline figures.
+pub fn chain(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+    checks: Checks,
+) -> Result<Chain, ChainError> {
+    let common = common(spec, peers)?;
+    let comparison: Vec<FormulaOutcome> = Formula::ALL
+        .iter()
+        .map(|&formula| formula_outcome(spec, formula, peers, &common))
+        .collect();
+    let chosen = Formula::ALL
+        .iter()
+        .position(|&f| f == spec.formula)
+        .expect("Formula::ALL holds every formula");
+    if checks == Checks::Enforce {
+        check_debt_betas(spec, &common, &comparison[chosen])?;
+    }
+    Ok(Chain {
+        adjusted: common.adjusted,
+        vasicek_prior: common.vasicek_prior,
+        peers: common.peers,
+        cost_of_debt: common.cost_of_debt,
+        cost_of_debt_after_tax: common.cost_of_debt_after_tax,
+        target_debt_to_equity: common.target.debt_to_equity,
+        subject_debt_beta: common.subject_debt.debt_beta,
+        weights: common.weights,
+        other: common.other,
+        comparison,
+        chosen,
+    })
+}
+
+/// The WACC under the spec's formula alone, by the same steps as [`chain`]: what a Monte Carlo
+/// draw needs.
+pub fn wacc_only(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<f64, ChainError> {
+    let common = common(spec, peers)?;
+    let unlevered = unlevered_betas(spec.formula, peers, &common.adjusted, &common.peers);
+    let values = if spec.cash_step {
+        cash_step_betas(&unlevered, &common.peers)
+    } else {
+        unlevered
+    };
+    let (betas, caps) = included_values(peers, &values);
+    let aggregate = stats::location(spec.aggregation, &betas, &caps, spec.trim_fraction);
+    Ok(equity_and_wacc(spec, spec.formula, aggregate, &common).2)
+}
+
+/// Each peer's figures through unlevering under the spec's formula.
+#[derive(Debug, Clone)]
+pub struct UnleveredPeers {
+    pub adjusted: Vec<AdjustedBeta>,
+    pub terms: Vec<PeerTerms>,
+    pub unlevered: Vec<f64>,
+    /// The betas of the operations (cash taken out).
+    pub cash_step: Vec<f64>,
+}
+
+/// What a beta listing shows of each peer: the adjusted beta, the capital-structure terms and the
+/// unlevered betas under the spec's formula — no target, cost of equity or WACC, so nothing those
+/// need can break a listing.
+pub fn unlevered_only(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+) -> Result<UnleveredPeers, ChainError> {
+    let raw: Vec<(f64, f64)> = peers
+        .iter()
+        .map(|p| (p.raw_beta, p.beta_std_error))
+        .collect();
+    let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
+    let (adjusted, _) = beta::adjust_all(spec.adjustment, spec.vasicek_prior, &raw, &included)
+        .map_err(ChainError::Adjustment)?;
+    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+        .map_err(ChainError::CostOfDebt)?;
+    let terms: Vec<PeerTerms> = peers
+        .iter()
+        .map(|p| peer_terms(spec, p, cost_of_debt.pre_tax))
+        .collect();
+    let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
+    let cash_step = cash_step_betas(&unlevered, &terms);
+    Ok(UnleveredPeers {
+        adjusted,
+        terms,
+        unlevered,
+        cash_step,
+    })
+}
+
+/// A peer's D/E (with the debt measure), debt beta and cost of debt.
+fn peer_terms(spec: &CapitalSpec<'_>, peer: &PeerCapital, subject_cost_of_debt: f64) -> PeerTerms {
+    let cost_of_debt = peer.own_cost_of_debt.unwrap_or(subject_cost_of_debt);
+    let debt_beta = match spec.debt_beta_source {
+        DebtBetaSource::None => 0.0,
+        DebtBetaSource::Given => peer.own_debt_beta.unwrap_or(spec.debt_beta),
+        DebtBetaSource::CreditSpread => peer.own_debt_beta.unwrap_or_else(|| {
+            leverage::debt_beta_from_spread(
+                cost_of_debt,
+                spec.risk_free_rate,
+                spec.equity_risk_premium,
+            )
+        }),
+    };
+    PeerTerms {
+        debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
+        debt_beta,
+        cost_of_debt,
+        cash_share: peer.cash / (peer.equity_value + peer.debt),
+    }
+}
+
+/// The subject's debt beta at the target structure.
+fn subject_debt_beta(spec: &CapitalSpec<'_>, cost_of_debt: f64) -> f64 {
+    match spec.debt_beta_source {
+        DebtBetaSource::None => 0.0,
+        DebtBetaSource::Given => spec.debt_beta,
+        DebtBetaSource::CreditSpread => leverage::debt_beta_from_spread(
+            cost_of_debt,
+            spec.risk_free_rate,
+            spec.equity_risk_premium,
+        ),
+    }
+}
+
+/// Every peer's unlevered beta under `formula`, in peer order.
+fn unlevered_betas(
+    formula: Formula,
+    peers: &[PeerCapital],
+    adjusted: &[AdjustedBeta],
+    terms: &[PeerTerms],
+) -> Vec<f64> {
+    peers
+        .iter()
+        .zip(adjusted)
+        .zip(terms)
+        .map(|((peer, adjusted), terms)| {
+            formula.unlever_with(
+                adjusted.used,
+                CapitalStructure {
+                    debt_to_equity: terms.debt_to_equity,
+                    tax_rate: peer.tax_rate,
+                },
+                DebtTerms {
+                    debt_beta: terms.debt_beta,
+                    cost_of_debt: terms.cost_of_debt,
+                },
+            )
+        })
+        .collect()
+}
+
+/// The beta of the operations, βU / (1 − cash / (equity + debt)): the unlevered beta is a
+/// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
+/// non-cash share leaves the operations' beta (common practice in valuation textbooks). Uses gross
+/// debt.
+fn cash_step_betas(unlevered: &[f64], terms: &[PeerTerms]) -> Vec<f64> {
+    unlevered
+        .iter()
+        .zip(terms)
+        .map(|(&u, terms)| u / (1.0 - terms.cash_share))
+        .collect()
+}
+
+/// The figures of the included peers, with their market values of equity as weights.
+fn included_values(peers: &[PeerCapital], values: &[f64]) -> (Vec<f64>, Vec<f64>) {
+    peers
+        .iter()
+        .zip(values)
+        .filter(|(peer, _)| peer.included)
+        .map(|(peer, &value)| (value, peer.equity_value))
+        .unzip()
+}
+
+/// The dispersion and every location statistic of one figure per peer over the included peers:
+/// the one place peers are aggregated (the unlevered betas, and the D/E of a peer-median target).
+pub fn aggregate(
+    peers: &[PeerCapital],
+    values: &[f64],
+    trim_fraction: f64,
+) -> (Dispersion, stats::Locations) {
+    let (values, market_caps) = included_values(peers, values);
+    (
+        stats::dispersion(&values),
+        stats::locations(&values, &market_caps, trim_fraction),
+    )
+}
+
+/// Relevered beta, cost of equity and WACC from an aggregate unlevered beta.
+fn equity_and_wacc(
+    spec: &CapitalSpec<'_>,
+    formula: Formula,
+    unlevered: f64,
+    common: &Common,
+) -> (f64, f64, f64) {
+    let relevered = formula.relever_with(unlevered, common.target, common.subject_debt);
+    let cost_of_equity = cost::capm_cost_of_equity(
+        spec.risk_free_rate,
+        relevered,
+        spec.equity_risk_premium,
+        spec.premiums.total_applied(relevered),
+    );
+    let weights = &common.weights;
+    let wacc = cost::wacc(&cost::WaccTerms {
+        equity_weight: weights.equity,
+        cost_of_equity,
+        debt_weight: weights.debt,
+        cost_of_debt_after_tax: common.cost_of_debt_after_tax,
+        preferred_weight: weights.preferred,
+        preferred_cost: common.other.preferred_cost,
+        lease_weight: weights.leases,
+        lease_cost_after_tax: common.other.lease_cost_after_tax,
+    });
+    (relevered, cost_of_equity, wacc)
+}
+
+/// Unlevers every peer with `formula`, aggregates, relevers and builds the WACC.
+fn formula_outcome(
+    spec: &CapitalSpec<'_>,
+    formula: Formula,
+    peers: &[PeerCapital],
+    common: &Common,
+) -> FormulaOutcome {
+    let peer_unlevered_betas = unlevered_betas(formula, peers, &common.adjusted, &common.peers);
+    let peer_cash_corrected_unlevered_betas = cash_step_betas(&peer_unlevered_betas, &common.peers);
+    let (plain_dispersion, plain_statistics) =
+        aggregate(peers, &peer_unlevered_betas, spec.trim_fraction);
+    let (corrected_dispersion, corrected_statistics) = aggregate(
+        peers,
+        &peer_cash_corrected_unlevered_betas,
+        spec.trim_fraction,
+    );
+    let unlevered_plain = spec.aggregation.select(&plain_statistics);
+    let unlevered_cash_corrected = spec.aggregation.select(&corrected_statistics);
+    let (unlevered_dispersion, unlevered_statistics, unlevered) = if spec.cash_step {
+        (
+            corrected_dispersion,
+            corrected_statistics,
+            unlevered_cash_corrected,
+        )
+    } else {
+        (plain_dispersion, plain_statistics, unlevered_plain)
+    };
+    let (relevered, cost_of_equity, wacc) = equity_and_wacc(spec, formula, unlevered, common);
+    FormulaOutcome {
+        formula,
+        formula_source: formula.citation(),
+        expression: formula.expression(),
+        in_use: formula == spec.formula,
+        peer_unlevered_betas,
+        peer_cash_corrected_unlevered_betas,
+        unlevered_dispersion,
+        unlevered_statistics,
+        unlevered_plain,
+        unlevered_cash_corrected,
+        unlevered,
+        relevered,
+        cost_of_equity,
+        wacc,
+    }
+}
+
+/// Debt cannot be riskier than the equity it ranks ahead of: a debt beta above a peer's equity
+/// beta (or above the aggregate asset beta the subject is relevered from) is an input error.
+fn check_debt_betas(
+    spec: &CapitalSpec<'_>,
+    common: &Common,
+    chosen: &FormulaOutcome,
+) -> Result<(), ChainError> {
+    if chosen.formula == Formula::Hamada || spec.debt_beta_source == DebtBetaSource::None {
+        return Ok(());
+    }
+    for (i, (terms, adjusted)) in common.peers.iter().zip(&common.adjusted).enumerate() {
+        if terms.debt_beta > adjusted.used {
+            return Err(ChainError::PeerDebtBeta(i, terms.debt_beta, adjusted.used));
+        }
+    }
+    if common.subject_debt.debt_beta > chosen.unlevered {
+        return Err(ChainError::SubjectDebtBeta(
+            common.subject_debt.debt_beta,
+            chosen.unlevered,
+        ));
+    }
+    Ok(())
+}

@@ -1,0 +1,158 @@
+//! The case file: every input of one cost-of-capital estimate, in TOML.
+//!
+//! A case is read in three steps: parse the TOML into typed values ([`schema`]; unknown keys and
+//! wrong types are reported with their line by the TOML parser), apply any `--set
+//! dotted.key=value` overrides to the parsed table ([`overrides`]), then check every range that a
+//! type cannot express ([`validate`]). The result is a [`Case`]: the validated settings plus where
+//! they came from, so the receipt can name the file, its hash and the overrides. [`specs`] is the
+//! one place a case becomes the spec types of the computing layers.
+
+pub mod overrides;
+pub mod schema;
+pub mod specs;
+pub mod validate;
+
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+
+use crate::error::{Error, Result};
+pub use overrides::apply_override;
+pub use schema::*;
+pub use validate::validate;
+
+/// A validated case and where it came from.
+#[derive(Debug, Clone)]
+pub struct Case {
+    pub settings: CaseFile,
+    /// The case file's path as given.
+    pub path: PathBuf,
+    /// SHA-256 of the case file's bytes (before overrides).
+    pub sha256: String,
+    /// The `--set` assignments applied, in order.
+    pub overrides: Vec<String>,
+}
+
+impl Case {
+    /// Resolves a path written in the case file against the case file's folder.
+    pub fn resolve(&self, written: &str) -> PathBuf {
+        let dir = self.path.parent().unwrap_or_else(|| Path::new("."));
+        dir.join(written)
+    }
+}
+
+impl CaseFile {
+    /// The target debt-to-equity ratio a case states: the ratio given, or the subject's own
+    /// current structure. `None` for `target.source = "peer-median"`, which only the valuation
+    /// can work out (over the peers it aggregates, in `capital::chain`).
+    pub fn stated_target_debt_to_equity(&self) -> Option<f64> {
+        let target = &self.target;
+        match target.source {
+            TargetSource::Explicit => Some(match (target.debt_to_equity, target.debt_to_capital) {
+                (Some(de), _) => de,
+                (None, Some(dc)) => dc / (1.0 - dc),
+                (None, None) => unreachable!("validate() requires one target ratio"),
+            }),
+            TargetSource::PeerMedian => None,
+            TargetSource::Subject => {
+                let debt = self.leverage.debt_measure.debt(
+                    target.subject_debt.unwrap_or(0.0),
+                    target.subject_cash.unwrap_or(0.0),
+                );
+                Some(debt / target.subject_equity_value.expect("validated"))
+            }
+        }
+    }
+}
+
+/// The name a setting has in case files and JSON (`"median"`, `"wacc"`), for messages and
+/// summaries.
+pub fn label<T: serde::Serialize>(value: &T) -> String {
+    match serde_json::to_value(value) {
+        Ok(serde_json::Value::String(name)) => name,
+        Ok(other) => other.to_string(),
+        Err(_) => String::new(),
+    }
+}
+
+/// A copy of `case` with more `dotted.key=value` overrides applied to its settings, validated
+/// like a case read from disk. The sensitivity grid builds each cell this way, so a cell is the
+/// same computation as a run with the same `--set` values.
+pub fn with_overrides(case: &Case, extra: &[String]) -> Result<Case> {
+    let case_error = |message: String| Error::Case {
+        file: case.path.clone(),
+        message,
+    };
+    let toml::Value::Table(mut table) = toml::Value::try_from(&case.settings)
+        .map_err(|e| case_error(format!("cannot re-serialise the case: {e}")))?
+    else {
+        unreachable!("a struct serialises to a table");
+    };
+    for assignment in extra {
+        apply_override(&mut table, assignment)?;
+    }
+    let settings = CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
+        case_error(format!(
+            "after applying --set {}: {}",
+            extra.join(", --set "),
+            e.message()
+        ))
+    })?;
+    validate(&settings).map_err(case_error)?;
+    let mut overrides = case.overrides.clone();
+    overrides.extend(extra.iter().cloned());
+    Ok(Case {
+        settings,
+        path: case.path.clone(),
+        sha256: case.sha256.clone(),
+        overrides,
+    })
+}
+
+/// Reads, overrides and validates a case file. `overrides` are `dotted.key=value` strings.
+pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
+    let bytes = std::fs::read(path).map_err(|source| Error::Io {
+        path: path.to_path_buf(),
+        action: "cannot read the case file",
+        source,
+    })?;
+    let sha256 = crate::io::series::sha256_hex(&bytes);
+    let text = String::from_utf8(bytes).map_err(|e| Error::Case {
+        file: path.to_path_buf(),
+        message: format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
+    })?;
+    let settings = parse_case(path, &text, overrides)?;
+    validate(&settings).map_err(|message| Error::Case {
+        file: path.to_path_buf(),
+        message,
+    })?;
+    Ok(Case {
+        settings,
+        path: path.to_path_buf(),
+        sha256,
+        overrides: overrides.to_vec(),
+    })
+}
+
+fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile> {
+    let case_error = |message: String| Error::Case {
+        file: path.to_path_buf(),
+        message,
+    };
+    // Parsing straight from text first keeps the parser's line and column in every message.
+    let parsed: CaseFile = toml::from_str(text).map_err(|e| case_error(e.to_string()))?;
+    if overrides.is_empty() {
+        return Ok(parsed);
+    }
+    let mut table: toml::Table = toml::from_str(text).map_err(|e| case_error(e.to_string()))?;
+    for assignment in overrides {
+        apply_override(&mut table, assignment)?;
+    }
+    CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
+        case_error(format!(
+            "after applying --set {}: {}",
+            overrides.join(", --set "),
+            e.message()
+        ))
+    })
+}

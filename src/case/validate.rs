@@ -1,0 +1,455 @@
+//! Range checks a type cannot express: tax rates in [0, 1), positive equity, exactly one target
+//! ratio, window lengths the data can fill, … Each section of the case has its own function;
+//! every message names the key and the offending value.
+
+use super::schema::*;
+
+/// `key = value` must be finite and in [low, high).
+fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
+    if value.is_finite() && value >= low && value < high {
+        Ok(())
+    } else {
+        Err(format!("{key} = {value} is outside [{low}, {high})"))
+    }
+}
+
+/// Range checks of the estimator options in `[beta]`, against the window length `lookback`
+/// (the most observations a peer can have).
+fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Result<(), String> {
+    let (lags, leads) = beta.market_lags_and_leads();
+    // Each shifted market column costs a coefficient and an end period; beyond N/4 of them the
+    // regression has too little left to estimate anything (a common practice bound).
+    if 4 * (lags + leads) >= lookback {
+        return Err(format!(
+            "beta.dimson_lags + beta.dimson_leads = {} is at least beta.lookback / 4 = {}: too \
+             many shifted market columns for {} periods",
+            lags + leads,
+            f64::from(lookback) / 4.0,
+            lookback
+        ));
+    }
+    if beta.method == BetaMethod::Dimson && lags + leads == 0 {
+        return Err(
+            "beta.method = \"dimson\" with beta.dimson_lags = 0 and beta.dimson_leads = 0 is \
+             plain OLS; use beta.method = \"ols\" or give at least one lag"
+                .into(),
+        );
+    }
+    if let Some(l) = beta.newey_west_lags {
+        if 4 * l >= lookback {
+            return Err(format!(
+                "beta.newey_west_lags = {l} is at least beta.lookback / 4 = {}",
+                f64::from(lookback) / 4.0
+            ));
+        }
+    }
+    match (beta.vasicek_prior_mean, beta.vasicek_prior_variance) {
+        (Some(m), Some(v)) => {
+            if !m.is_finite() {
+                return Err(format!("beta.vasicek_prior_mean = {m} is not a number"));
+            }
+            if !(v.is_finite() && v > 0.0) {
+                return Err(format!(
+                    "beta.vasicek_prior_variance = {v} must be a positive number"
+                ));
+            }
+        }
+        (None, None) => {}
+        _ => {
+            return Err(
+                "give both beta.vasicek_prior_mean and beta.vasicek_prior_variance, or neither \
+                 (then the cross-section of the peers is the prior)"
+                    .into(),
+            )
+        }
+    }
+    Ok(())
+}
+
+/// Range checks a type cannot express. The message names the key and the offending value.
+pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    if case.case.title.trim().is_empty() {
+        return Err("case.title is empty".into());
+    }
+    rate(
+        "market.risk_free_rate",
+        case.market.risk_free_rate,
+        -0.5,
+        1.0,
+    )?;
+    if case.leverage.debt_beta_source == DebtBetaSource::CreditSpread
+        && case.market.equity_risk_premium <= 0.0
+    {
+        return Err(format!(
+            "market.equity_risk_premium = {} with leverage.debt_beta_source = \"credit-spread\": \
+             the debt beta (Kd - rf) / ERP needs a positive equity risk premium",
+            case.market.equity_risk_premium
+        ));
+    }
+    rate(
+        "market.equity_risk_premium",
+        case.market.equity_risk_premium,
+        -0.5,
+        1.0,
+    )?;
+    let beta = &case.beta;
+    if beta.min_observations < 3 {
+        return Err(format!(
+            "beta.min_observations = {} is below 3: a regression with an intercept needs at \
+             least one degree of freedom left",
+            beta.min_observations
+        ));
+    }
+    let valuation_date = case.case.valuation_date.0;
+    if let Some(end) = beta.window_end {
+        if end.0 > valuation_date {
+            return Err(format!(
+                "beta.window_end = {end} is after case.valuation_date = {valuation_date}: no \
+                 data later than the valuation date may be used"
+            ));
+        }
+    }
+    if let Lookback::Periods(n) = beta.lookback {
+        // 100 000 periods is four centuries of daily data; beyond it the calendar overflows.
+        if n > 100_000 {
+            return Err(format!(
+                "beta.lookback = {n} periods is more than any price history holds; at most 100000"
+            ));
+        }
+    }
+    if let (Some(start), end) = (beta.window_start, beta.window_end_date(valuation_date)) {
+        if start.0 >= end {
+            return Err(format!(
+                "beta.window_start = {start} is not before the window end {end}"
+            ));
+        }
+    }
+    let lookback = beta.lookback_periods(valuation_date);
+    if lookback < beta.min_observations {
+        let given = match beta.window_start {
+            Some(start) => format!("beta.window_start = {start}"),
+            None => format!("beta.lookback = {}", beta.lookback),
+        };
+        return Err(format!(
+            "{given} gives {lookback} {} return periods, fewer than beta.min_observations = \
+             {}: no peer could pass",
+            super::label(&beta.frequency),
+            beta.min_observations
+        ));
+    }
+    if let Some(0) = beta.max_stale_days {
+        if beta.frequency != Frequency::Daily {
+            return Err(
+                "beta.max_stale_days = 0 would drop every period whose sample is not dated on \
+                 its sample point; give at least 1"
+                    .into(),
+            );
+        }
+    }
+    validate_beta_options(beta, lookback)?;
+    let (window, min) = beta.rolling(lookback);
+    if window > lookback || window < 3 {
+        return Err(format!(
+            "beta.rolling_window = {window} must lie between 3 and the window's {lookback} periods"
+        ));
+    }
+    if min < 3 || min > window {
+        return Err(format!(
+            "beta.rolling_min_observations = {min} must lie between 3 and beta.rolling_window = \
+             {window}"
+        ));
+    }
+    if beta.rolling_step == 0 {
+        return Err("beta.rolling_step = 0: give at least 1 period".into());
+    }
+    for (key, value) in [
+        ("beta.flag_observations_share", beta.flag_observations_share),
+        ("beta.flag_r_squared_floor", beta.flag_r_squared_floor),
+        ("beta.flag_stale_share", beta.flag_stale_share),
+    ] {
+        if !(value.is_finite() && (0.0..=1.0).contains(&value)) {
+            return Err(format!("{key} = {value} is outside [0, 1]"));
+        }
+    }
+    let target = &case.target;
+    validate_structure(case)?;
+    match (target.debt_to_equity, target.debt_to_capital) {
+        (None, None) if target.source != TargetSource::Explicit => {}
+        (Some(_), Some(_)) => {
+            return Err(
+                "target.debt_to_equity and target.debt_to_capital are both given; keep one".into(),
+            )
+        }
+        (None, None) => {
+            return Err("[target] needs debt_to_equity or debt_to_capital".into());
+        }
+        (Some(de), None) => {
+            if !(de.is_finite() && de >= 0.0) {
+                return Err(format!(
+                    "target.debt_to_equity = {de} is negative or not a number"
+                ));
+            }
+        }
+        (None, Some(dc)) => rate("target.debt_to_capital", dc, 0.0, 1.0)?,
+    }
+    rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
+    validate_debt(case)?;
+    validate_components(case)?;
+    if let Some(conversion) = &case.conversion {
+        for (key, value) in [
+            ("conversion.inflation_case", conversion.inflation_case),
+            ("conversion.inflation_output", conversion.inflation_output),
+        ] {
+            if !(value.is_finite() && value > -1.0) {
+                return Err(format!(
+                    "{key} = {value} is at or below -100% (or not a number); the Fisher relation \
+                     divides by 1 + inflation, which must be positive"
+                ));
+            }
+            rate(key, value, -1.0, 10.0)?;
+        }
+        if conversion.currency.trim().is_empty() {
+            return Err("conversion.currency is empty".into());
+        }
+    }
+    for (key, value) in [
+        ("premiums.size", case.premiums.size),
+        ("premiums.country", case.premiums.country),
+        ("premiums.company_specific", case.premiums.company_specific),
+    ] {
+        rate(key, value, -0.5, 1.0)?;
+    }
+    let u = &case.uncertainty;
+    if u.draws < 100 {
+        return Err(format!(
+            "uncertainty.draws = {} is too few for percentiles; use at least 100",
+            u.draws
+        ));
+    }
+    for (key, range) in [
+        ("uncertainty.equity_risk_premium", u.equity_risk_premium),
+        ("uncertainty.risk_free_rate", u.risk_free_rate),
+    ] {
+        if let Some([low, high]) = range {
+            if !(low.is_finite() && high.is_finite() && low <= high) {
+                return Err(format!(
+                    "{key} = [{low}, {high}] is not a range [low, high] with low <= high"
+                ));
+            }
+        }
+    }
+    rate(
+        "premiums.country_lambda",
+        case.premiums.country_lambda,
+        0.0,
+        5.0,
+    )?;
+    if case.peers.is_empty() {
+        return Err("the case has no [[peer]] tables".into());
+    }
+    for (i, peer) in case.peers.iter().enumerate() {
+        let key = |field: &str| format!("peer.{i}.{field} (peer \"{}\")", peer.name);
+        if peer.name.trim().is_empty() {
+            return Err(format!("peer.{i}.name is empty"));
+        }
+        if let Some(j) = case.peers[..i].iter().position(|p| p.name == peer.name) {
+            return Err(format!(
+                "peer.{i}.name = \"{}\" repeats peer.{j}.name; peer names must be unique",
+                peer.name
+            ));
+        }
+        if !(peer.equity_value.is_finite() && peer.equity_value > 0.0) {
+            return Err(format!(
+                "{} = {} must be positive",
+                key("equity_value"),
+                peer.equity_value
+            ));
+        }
+        for (field, value) in [("debt", peer.debt), ("cash", peer.cash)] {
+            if !(value.is_finite() && value >= 0.0) {
+                return Err(format!("{} = {value} is negative", key(field)));
+            }
+        }
+        rate(&key("tax_rate"), peer.tax_rate, 0.0, 1.0)?;
+        if let Some(kd) = peer.cost_of_debt {
+            rate(&key("cost_of_debt"), kd, 0.0, 1.0)?;
+        }
+        if let Some(debt_beta) = peer.debt_beta {
+            if case.leverage.debt_beta_source == DebtBetaSource::None {
+                return Err(format!(
+                    "{} = {debt_beta} is given but leverage.debt_beta_source = \"none\" \
+                     (riskless debt); set it to \"given\" or drop the peer's debt_beta",
+                    key("debt_beta")
+                ));
+            }
+            rate(&key("debt_beta"), debt_beta, -1.0, 3.0)?;
+        }
+        if peer.exclude.as_deref().is_some_and(|r| r.trim().is_empty()) {
+            return Err(format!(
+                "{} is empty: state the reason the peer is excluded",
+                key("exclude")
+            ));
+        }
+    }
+    if case.peers.iter().all(|p| p.exclude.is_some()) {
+        return Err("every [[peer]] has `exclude` set: no peer is left to aggregate".into());
+    }
+    Ok(())
+}
+
+/// `[preferred]` and `[leases]`: weights in [0, 1) that leave room for equity and debt, and a cost
+/// for preferred equity that has a weight.
+fn validate_components(case: &CaseFile) -> std::result::Result<(), String> {
+    let (preferred, leases) = (&case.preferred, &case.leases);
+    rate("preferred.weight", preferred.weight, 0.0, 1.0)?;
+    rate("leases.weight", leases.weight, 0.0, 1.0)?;
+    let other = preferred.weight + leases.weight;
+    if other >= 1.0 {
+        return Err(format!(
+            "preferred.weight + leases.weight = {other} leaves no room for equity and debt; the \
+             two must sum to less than 1"
+        ));
+    }
+    match preferred.cost {
+        Some(cost) => rate("preferred.cost", cost, 0.0, 1.0)?,
+        None if preferred.weight > 0.0 => {
+            return Err(format!(
+                "preferred.cost is missing: preferred equity with preferred.weight = {} needs its \
+                 own cost (e.g. its dividend / price)",
+                preferred.weight
+            ))
+        }
+        None => {}
+    }
+    if let Some(cost) = leases.cost_pre_tax {
+        rate("leases.cost_pre_tax", cost, 0.0, 1.0)?;
+    }
+    Ok(())
+}
+
+/// `[leverage]` aggregation and cash keys, and the keys of the target sources.
+fn validate_structure(case: &CaseFile) -> std::result::Result<(), String> {
+    let leverage = &case.leverage;
+    rate("leverage.trim_fraction", leverage.trim_fraction, 0.0, 0.5)?;
+    if leverage.cash_correction && leverage.debt_measure == DebtMeasure::Net {
+        return Err(
+            "leverage.cash_correction = true with leverage.debt_measure = \"net\" would \
+                    count cash twice; use one of them"
+                .into(),
+        );
+    }
+    let target = &case.target;
+    if target.source == TargetSource::Subject {
+        match target.subject_equity_value {
+            Some(e) if e.is_finite() && e > 0.0 => {}
+            other => {
+                return Err(format!(
+                    "target.subject_equity_value = {} must be given and positive when \
+                     target.source = \"subject\"",
+                    other.map_or("(missing)".to_string(), |e| e.to_string())
+                ))
+            }
+        }
+        for (key, value) in [
+            ("target.subject_debt", target.subject_debt),
+            ("target.subject_cash", target.subject_cash),
+        ] {
+            if let Some(v) = value {
+                if !(v.is_finite() && v >= 0.0) {
+                    return Err(format!("{key} = {v} is negative"));
+                }
+            }
+        }
+        if target.subject_debt.is_none() {
+            return Err("target.subject_debt is required when target.source = \"subject\"".into());
+        }
+    }
+    for (i, peer) in case.peers.iter().enumerate() {
+        let net = DebtMeasure::Net.debt(peer.debt, peer.cash);
+        if leverage.debt_measure == DebtMeasure::Net && net <= -peer.equity_value {
+            return Err(format!(
+                "peer.{i} (peer \"{}\"): net debt {net} (debt − cash) is at or below minus its \
+                 equity_value {}, a net D/E at or below −1 that no leverage formula can unlever",
+                peer.name, peer.equity_value
+            ));
+        }
+        if leverage.cash_correction && peer.cash >= peer.equity_value + peer.debt {
+            return Err(format!(
+                "peer.{i}.cash = {} (peer \"{}\") is not below equity_value + debt = {}, so the \
+                 cash correction 1 / (1 − cash / (equity + debt)) is undefined",
+                peer.cash,
+                peer.name,
+                peer.equity_value + peer.debt
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// The `[debt]` keys each cost-of-debt source needs, and the leverage keys that go with them.
+fn validate_debt(case: &CaseFile) -> std::result::Result<(), String> {
+    let debt = &case.debt;
+    let need = |key: &str, present: bool| {
+        if present {
+            Ok(())
+        } else {
+            Err(format!(
+                "debt.{key} is required when debt.source = \"{}\"",
+                match debt.source {
+                    DebtSource::Given => "given",
+                    DebtSource::Rating => "rating",
+                    DebtSource::Coverage => "coverage",
+                }
+            ))
+        }
+    };
+    if let Some(kd) = debt.cost_pre_tax {
+        rate("debt.cost_pre_tax", kd, 0.0, 1.0)?;
+    }
+    match debt.source {
+        DebtSource::Given => need("cost_pre_tax", debt.cost_pre_tax.is_some())?,
+        DebtSource::Rating => {
+            need("rating", debt.rating.is_some())?;
+            need("rating_table", debt.rating_table.is_some())?;
+        }
+        DebtSource::Coverage => {
+            need("ebit", debt.ebit.is_some())?;
+            need("interest_expense", debt.interest_expense.is_some())?;
+            need("coverage_table", debt.coverage_table.is_some())?;
+            let (ebit, interest) = (
+                debt.ebit.unwrap_or(0.0),
+                debt.interest_expense.unwrap_or(0.0),
+            );
+            if !(interest.is_finite() && interest > 0.0) {
+                return Err(format!(
+                    "debt.interest_expense = {interest} must be positive to compute interest \
+                     coverage (EBIT / interest expense)"
+                ));
+            }
+            if !ebit.is_finite() || ebit < 0.0 {
+                return Err(format!(
+                    "debt.ebit = {ebit} gives a negative interest coverage {} (EBIT / interest \
+                     expense); a synthetic rating from coverage is not meaningful for a loss, so \
+                     give the cost of debt (debt.source = \"given\") or a rating",
+                    ebit / interest
+                ));
+            }
+        }
+    }
+    let leverage = &case.leverage;
+    if leverage.debt_beta_source == DebtBetaSource::Given {
+        rate("leverage.debt_beta", leverage.debt_beta, -1.0, 3.0)?;
+    } else if leverage.debt_beta != 0.0 {
+        return Err(format!(
+            "leverage.debt_beta = {} is given but leverage.debt_beta_source = {}; set \
+             leverage.debt_beta_source = \"given\" for it to be used",
+            leverage.debt_beta,
+            if leverage.debt_beta_source == DebtBetaSource::None {
+                "\"none\" (riskless debt)"
+            } else {
+                "\"credit-spread\""
+            }
+        ));
+    }
+    Ok(())
+}

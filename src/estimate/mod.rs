@@ -1,0 +1,250 @@
+//! One security estimated: a price series and an [`EstimationSpec`] in, a complete
+//! [`SecurityEstimate`] out — period returns aligned with the index, the beta with its statistics,
+//! diagnostics and flags, and the rolling betas.
+//!
+//! Nothing here knows about case files: the case pipeline, a whole-market universe and the tests
+//! all call [`estimate_security`]. The window and the index's returns depend only on the spec, so
+//! they are computed once ([`Window::new`], [`MarketReturns::new`]) and shared by every security.
+
+use chrono::NaiveDate;
+
+use crate::beta::diagnostics::{FlagRule, PeerFlag};
+use crate::beta::rolling::{self, RollingPoint, Stability};
+use crate::beta::{self, BetaEstimate, EstimatorSpec};
+use crate::io::series::SeriesView;
+use crate::market::sampling::{
+    self, AlignedReturns, DroppedPeriods, Frequency, PeriodGrid, ReturnType, SampleWeekday,
+};
+
+/// Everything that decides an estimate, and nothing else: two equal specs on the same prices give
+/// the same estimate, which is how a what-if knows it may reuse the estimates it has.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EstimationSpec {
+    pub frequency: Frequency,
+    pub weekday: SampleWeekday,
+    pub returns: ReturnType,
+    /// Samples older than this many calendar days are dropped as stale.
+    pub max_stale_days: Option<u32>,
+    /// The last date of the window (its last sample point is on or before it).
+    pub window_end: NaiveDate,
+    /// Return periods in the window.
+    pub lookback: u32,
+    /// A security with fewer usable returns is an error, not a silent drop.
+    pub min_observations: u32,
+    pub estimator: EstimatorSpec,
+    pub flags: FlagRule,
+    pub rolling: RollingSpec,
+}
+
+/// Rolling betas: periods per window, periods between window ends, fewest observations.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct RollingSpec {
+    pub window: u32,
+    pub step: u32,
+    pub min_observations: u32,
+}
+
+/// The return window of a spec: its period grid (widened by the estimator's lags) and the offsets
+/// of the shifted index columns.
+#[derive(Debug, Clone)]
+pub struct Window {
+    grid: PeriodGrid,
+    /// Grid periods before the window, there only to feed lagged index returns.
+    first: usize,
+    offsets: Vec<i32>,
+    all_period_ends: Vec<NaiveDate>,
+}
+
+impl Window {
+    pub fn new(spec: &EstimationSpec) -> Window {
+        let (lags, leads) = spec.estimator.market_lags_and_leads();
+        let offsets = (1..=lags as i32)
+            .map(|l| -l)
+            .chain(1..=leads as i32)
+            .collect();
+        let grid = PeriodGrid::ending_at_with(
+            spec.frequency,
+            spec.weekday,
+            spec.window_end,
+            spec.lookback + lags,
+        );
+        let all_period_ends = grid.return_period_ends().to_vec();
+        Window {
+            grid,
+            first: lags as usize,
+            offsets,
+            all_period_ends,
+        }
+    }
+
+    /// The end dates of the window's return periods.
+    pub fn period_ends(&self) -> &[NaiveDate] {
+        &self.all_period_ends[self.first..]
+    }
+
+    /// The first sample point: the base price of the first return.
+    pub fn start(&self) -> NaiveDate {
+        self.grid.sample_points()[self.first]
+    }
+
+    /// The last sample point.
+    pub fn end(&self) -> NaiveDate {
+        *self
+            .grid
+            .sample_points()
+            .last()
+            .expect("grid has sample points")
+    }
+}
+
+/// The index's period returns (and the risk-free rate per period) over a window, computed once for
+/// every security estimated against it.
+#[derive(Debug, Clone)]
+pub struct MarketReturns {
+    returns: Vec<Option<f64>>,
+    stale: Vec<bool>,
+    risk_free: Option<Vec<Option<f64>>>,
+}
+
+impl MarketReturns {
+    pub fn new(
+        spec: &EstimationSpec,
+        window: &Window,
+        index: SeriesView<'_>,
+        risk_free: Option<SeriesView<'_>>,
+    ) -> MarketReturns {
+        let (returns, stale) = sample_returns(spec, window, index);
+        let risk_free = risk_free.map(|yields| {
+            sampling::risk_free_for_returns(
+                &sampling::sample(&window.grid, yields),
+                spec.frequency,
+                spec.returns,
+            )
+        });
+        MarketReturns {
+            returns,
+            stale,
+            risk_free,
+        }
+    }
+
+    /// Whether returns are in excess of a risk-free rate.
+    pub fn excess(&self) -> bool {
+        self.risk_free.is_some()
+    }
+}
+
+/// One security's estimate, complete.
+#[derive(Debug, Clone)]
+pub struct SecurityEstimate {
+    pub periods_in_window: usize,
+    pub dropped: DroppedPeriods,
+    pub estimate: BetaEstimate,
+    /// Share of the window's periods dropped because the security's price was stale.
+    pub stale_share: f64,
+    pub flags: Vec<PeerFlag>,
+    /// The flags that the spec's exclusion rule names: the security stays out of aggregates.
+    pub excluding_flags: Vec<PeerFlag>,
+    pub rolling: Vec<RollingPoint>,
+    /// Range and trend of the rolling betas (`None` with fewer than two windows).
+    pub stability: Option<Stability>,
+    /// The aligned returns the estimate was made from.
+    pub returns: AlignedReturns,
+}
+
+/// Why a security could not be estimated. The caller names the security and its file.
+#[derive(Debug, Clone, PartialEq)]
+pub enum EstimateError {
+    /// Fewer usable returns than `min_observations`.
+    TooFewReturns {
+        usable: usize,
+        dropped: DroppedPeriods,
+    },
+    /// The index's returns do not vary over the periods shared with the security.
+    FlatIndex { periods: usize },
+    /// The estimator refused the data (rank, too many shifted columns, …).
+    Estimator(String),
+}
+
+/// Samples a price series onto the window's grid: period returns and which of them are stale.
+fn sample_returns(
+    spec: &EstimationSpec,
+    window: &Window,
+    prices: SeriesView<'_>,
+) -> (Vec<Option<f64>>, Vec<bool>) {
+    let (samples, stale) =
+        sampling::sample_with_staleness(&window.grid, prices, spec.max_stale_days);
+    (
+        sampling::period_returns(&samples, spec.returns),
+        sampling::stale_returns(&stale),
+    )
+}
+
+/// Estimates one security against the index returns of `market`.
+pub fn estimate_security(
+    spec: &EstimationSpec,
+    window: &Window,
+    market: &MarketReturns,
+    prices: SeriesView<'_>,
+) -> Result<SecurityEstimate, EstimateError> {
+    let (asset_returns, asset_stale) = sample_returns(spec, window, prices);
+    let first = window.first;
+    let mut aligned = sampling::align_with_shifts(
+        &window.all_period_ends,
+        &asset_returns,
+        &market.returns,
+        market.risk_free.as_deref(),
+        &window.offsets,
+        first,
+    );
+    aligned.dropped.asset_stale = asset_stale[first..].iter().filter(|&&s| s).count();
+    aligned.dropped.market_stale = market.stale[first..].iter().filter(|&&s| s).count();
+    let n = aligned.asset.len();
+    if n < spec.min_observations as usize {
+        return Err(EstimateError::TooFewReturns {
+            usable: n,
+            dropped: aligned.dropped,
+        });
+    }
+    let market_excess = aligned.market_excess();
+    // Raw returns too: with a risk-free series, a flat index would leave only the rate's own
+    // variation in the excess returns and the regression would measure nothing.
+    let constant = |values: &[f64]| values.iter().all(|&m| m == values[0]);
+    if constant(&aligned.market) || constant(&market_excess) {
+        return Err(EstimateError::FlatIndex { periods: n });
+    }
+    let asset_excess = aligned.asset_excess();
+    let estimate = beta::estimate_with(
+        &spec.estimator,
+        &asset_excess,
+        &market_excess,
+        &aligned.market_shifted,
+    )
+    .map_err(|e| EstimateError::Estimator(e.to_string()))?;
+    let periods_in_window = window.period_ends().len();
+    let rolling_points = rolling::rolling_betas(
+        window.period_ends(),
+        &aligned.period_ends,
+        &asset_excess,
+        &market_excess,
+        spec.rolling.window as usize,
+        spec.rolling.step as usize,
+        spec.rolling.min_observations as usize,
+    );
+    let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
+    let flags = spec.flags.flags(&estimate, periods_in_window, stale_share);
+    let excluding_flags = spec.flags.excluding(&flags);
+    let stability = rolling::stability(&rolling_points, spec.rolling.window)
+        .map_err(|e| EstimateError::Estimator(e.to_string()))?;
+    Ok(SecurityEstimate {
+        periods_in_window,
+        dropped: aligned.dropped,
+        estimate,
+        stale_share,
+        flags,
+        excluding_flags,
+        rolling: rolling_points,
+        stability,
+        returns: aligned,
+    })
+}

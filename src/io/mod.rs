@@ -1,0 +1,6 @@
+//! Reading input files: price and yield series (CSV through polars, with file/line messages) and
+//! the bytes' SHA-256 that every receipt records. Nothing here knows what a case or a beta is;
+//! the readers take a path, the column names and what kind of value a column holds.
+
+pub mod series;
+pub mod spread_table;

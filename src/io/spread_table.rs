@@ -1,0 +1,174 @@
+//! Spread tables: a rating → spread table or a coverage → rating → spread table, as CSV with a
+//! header row or as TOML with one `[[row]]` per line, each row remembered with its line so a memo
+//! can cite it. Reading only; the lookups live with the cost of debt in `capital::debt`.
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use crate::error::{Error, Result};
+
+/// One row of a spread table.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SpreadRow {
+    /// Lowest interest coverage (EBIT / interest expense) of the row, inclusive; coverage
+    /// tables only.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub min_coverage: Option<f64>,
+    pub rating: String,
+    /// Spread over the risk-free rate (annual, decimal).
+    pub spread: f64,
+    /// 1-based line of the row in its file (CSV: counting the header as line 1; TOML: the
+    /// row's position).
+    #[serde(skip_deserializing)]
+    pub line: usize,
+}
+
+/// A rating → spread or coverage → rating → spread table, as read.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SpreadTable {
+    /// The path as written in the case file.
+    pub path: String,
+    pub sha256: String,
+    /// Number of rows read.
+    pub row_count: usize,
+    #[serde(skip)]
+    pub rows: Vec<SpreadRow>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TomlTable {
+    row: Vec<SpreadRow>,
+}
+
+/// Reads a spread table (`.toml`, else CSV). Coverage tables must give `min_coverage` on every
+/// row, in strictly ascending order. Lines starting with `#` in a CSV are comments.
+pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<SpreadTable> {
+    let bytes = std::fs::read(path).map_err(|source| Error::Io {
+        path: path.to_path_buf(),
+        action: "cannot read the spread table",
+        source,
+    })?;
+    let sha256 = crate::io::series::sha256_hex(&bytes);
+    let file_error = |message: String| Error::DataFile {
+        file: path.to_path_buf(),
+        message,
+    };
+    let text = String::from_utf8(bytes).map_err(|_| file_error("not UTF-8 text".into()))?;
+    let rows = if path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
+    {
+        let table: TomlTable = toml::from_str(&text).map_err(|e| file_error(e.to_string()))?;
+        // TOML rows have no line of their own; number them in order.
+        table
+            .row
+            .into_iter()
+            .enumerate()
+            .map(|(i, row)| SpreadRow { line: i + 1, ..row })
+            .collect()
+    } else {
+        parse_csv_table(&text, path, coverage)?
+    };
+    if rows.is_empty() {
+        return Err(file_error("the table has no rows".into()));
+    }
+    for (i, row) in rows.iter().enumerate() {
+        let row_error = |message: String| Error::DataRow {
+            file: path.to_path_buf(),
+            line: row.line,
+            message,
+        };
+        if !(row.spread.is_finite() && row.spread > -0.5 && row.spread < 1.0) {
+            return Err(row_error(format!(
+                "spread = {} is outside (-0.5, 1)",
+                row.spread
+            )));
+        }
+        if coverage {
+            let Some(low) = row.min_coverage else {
+                return Err(row_error("min_coverage is missing".into()));
+            };
+            if let Some(previous) = i.checked_sub(1).and_then(|j| rows[j].min_coverage) {
+                if low.is_nan() || low <= previous {
+                    return Err(row_error(format!(
+                        "min_coverage = {low} is not above the previous row's {previous}; \
+                         list the rows in ascending order of coverage"
+                    )));
+                }
+            }
+        }
+        if let Some(j) = rows[..i].iter().position(|r| r.rating == row.rating) {
+            if !coverage {
+                return Err(row_error(format!(
+                    "rating \"{}\" repeats line {}",
+                    row.rating, rows[j].line
+                )));
+            }
+        }
+    }
+    Ok(SpreadTable {
+        path: written.to_string(),
+        sha256,
+        row_count: rows.len(),
+        rows,
+    })
+}
+
+fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<SpreadRow>> {
+    let mut lines = text
+        .lines()
+        .enumerate()
+        .map(|(i, line)| (i + 1, line.trim()))
+        .filter(|(_, line)| !line.is_empty() && !line.starts_with('#'));
+    let (header_line, header) = lines.next().ok_or_else(|| Error::DataFile {
+        file: path.to_path_buf(),
+        message: "the table is empty".into(),
+    })?;
+    let columns: Vec<&str> = header.split(',').map(str::trim).collect();
+    let find = |name: &str| {
+        columns
+            .iter()
+            .position(|c| *c == name)
+            .ok_or_else(|| Error::DataRow {
+                file: path.to_path_buf(),
+                line: header_line,
+                message: format!("no `{name}` column (columns: {})", columns.join(", ")),
+            })
+    };
+    let rating = find("rating")?;
+    let spread = find("spread")?;
+    let min_coverage = if coverage {
+        Some(find("min_coverage")?)
+    } else {
+        None
+    };
+    lines
+        .map(|(line, text)| {
+            let cells: Vec<&str> = text.split(',').map(str::trim).collect();
+            let row_error = |message: String| Error::DataRow {
+                file: path.to_path_buf(),
+                line,
+                message,
+            };
+            let cell = |i: usize| {
+                cells.get(i).copied().ok_or_else(|| {
+                    row_error(format!("{} cells, expected {}", cells.len(), columns.len()))
+                })
+            };
+            let number = |i: usize| {
+                let raw = cell(i)?;
+                raw.parse::<f64>()
+                    .map_err(|_| row_error(format!("`{raw}` in `{}` is not a number", columns[i])))
+            };
+            Ok(SpreadRow {
+                min_coverage: min_coverage.map(number).transpose()?,
+                rating: cell(rating)?.to_string(),
+                spread: number(spread)?,
+                line,
+            })
+        })
+        .collect()
+}

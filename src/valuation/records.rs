@@ -1,0 +1,261 @@
+//! The records of one valuation: what `result.json`, the memo and every other output show.
+//!
+//! Each record is built whole by the function that knows all its parts ([`super::value_with`]);
+//! none is created with placeholders and patched later. Field order is the order of
+//! `result.json`; README documents the schema.
+
+use chrono::NaiveDate;
+use serde::Serialize;
+
+use super::analyses::{Bridge, Grid, Uncertainty};
+use crate::beta::{self, rolling, BetaEstimate};
+use crate::capital::chain::{FormulaOutcome, OtherComponents, Weights};
+use crate::capital::debt::CostOfDebtRecord;
+use crate::case::{CaseFile, PeerFlag};
+use crate::io::series::{iso_date, DataFile};
+use crate::market::sampling::{self, AlignedReturns, DroppedPeriods};
+use crate::stats::{self, Dispersion};
+
+/// Version of the `result.json` layout; raised whenever a field changes meaning or goes away.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// The tool that produced a result.
+#[derive(Debug, Clone, Serialize)]
+pub struct ToolInfo {
+    pub name: &'static str,
+    pub version: &'static str,
+}
+
+/// Where the case came from.
+#[derive(Debug, Clone, Serialize)]
+pub struct CaseRecord {
+    pub file: String,
+    pub sha256: String,
+    pub overrides: Vec<String>,
+    pub title: String,
+    pub subject: String,
+    #[serde(serialize_with = "iso_date")]
+    pub valuation_date: NaiveDate,
+    pub currency: String,
+}
+
+/// The sampling actually applied.
+#[derive(Debug, Clone, Serialize)]
+pub struct SamplingRecord {
+    pub frequency: sampling::Frequency,
+    pub periods_per_year: f64,
+    /// Return periods in the window.
+    pub lookback: u32,
+    pub min_observations: u32,
+    /// The first sample point (the base price of the first return).
+    #[serde(serialize_with = "iso_date")]
+    pub window_start: NaiveDate,
+    /// The last sample point: the last period end on or before the valuation date.
+    #[serde(serialize_with = "iso_date")]
+    pub window_end: NaiveDate,
+    pub return_type: &'static str,
+    pub excess_returns: bool,
+    pub risk_free_convention: &'static str,
+    /// The weekday of weekly sampling (`null` for other frequencies).
+    pub weekday: Option<sampling::SampleWeekday>,
+    /// The staleness limit in calendar days (`null`: none beyond the period rule).
+    pub max_stale_days: Option<u32>,
+    /// The sampling rule of the frequency, in words.
+    pub sampling_rule: &'static str,
+}
+
+/// One peer's estimate through unlevering.
+#[derive(Debug, Clone, Serialize)]
+pub struct PeerResult {
+    pub name: String,
+    pub prices_file: String,
+    pub periods_in_window: usize,
+    pub periods_dropped: DroppedPeriods,
+    #[serde(flatten)]
+    pub estimate: BetaEstimate,
+    /// The adjusted beta, or `null` when the case asks for no adjustment.
+    pub adjusted_beta: Option<f64>,
+    /// The beta that is unlevered: the adjusted one when there is one, else the raw one.
+    pub beta_used: f64,
+    pub equity_value: f64,
+    pub debt: f64,
+    pub cash: f64,
+    pub debt_to_equity: f64,
+    pub tax_rate: f64,
+    pub unlevered_beta: f64,
+    /// The debt beta used in unlevering (0 when none; Hamada never uses one).
+    pub debt_beta: f64,
+    /// The peer's pre-tax cost of debt used by Miles–Ezzell and the credit-spread debt beta:
+    /// its own `cost_of_debt`, else the subject's.
+    pub cost_of_debt: f64,
+    /// βU / (1 − cash / (equity + debt)), the unlevered beta of the operating assets alone
+    /// (gross debt); aggregated instead of `unlevered_beta` when `leverage.cash_correction`.
+    pub cash_corrected_unlevered_beta: f64,
+    /// cash / (equity + debt), gross debt: the share of capital the cash correction removes.
+    pub cash_share_of_capital: f64,
+    /// Why the peer is left out of the aggregation, or `null` when it is included.
+    pub excluded_reason: Option<String>,
+    /// The Vasicek-shrunk beta beside the raw one (`null` unless `beta.adjustment = "vasicek"`).
+    pub vasicek: Option<beta::vasicek::Shrunk>,
+    /// Share of the window's periods dropped because the peer's price was stale.
+    pub stale_share: f64,
+    /// Diagnostic warnings (see README, "Diagnostics").
+    pub flags: Vec<PeerFlag>,
+    /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
+    pub stability: Option<rolling::Stability>,
+}
+
+/// Aggregation and relevering.
+#[derive(Debug, Clone, Serialize)]
+pub struct BetaSummary {
+    pub formula: crate::capital::leverage::Formula,
+    pub formula_source: &'static str,
+    /// The relevering relation, as printed in the memo.
+    pub formula_expression: &'static str,
+    pub aggregation: stats::Aggregation,
+    /// The aggregate unlevered beta that is relevered.
+    pub unlevered: f64,
+    /// The peers' unlevered betas: count, quartiles, mean, standard deviation.
+    pub unlevered_dispersion: Dispersion,
+    /// The aggregate relevered at the target structure.
+    pub relevered: f64,
+    /// Whether the cash-corrected unlevered betas are the ones aggregated.
+    pub cash_corrected: bool,
+    /// The aggregate of the plain unlevered betas and of the cash-corrected ones (same statistic);
+    /// `unlevered` is one of the two.
+    pub unlevered_plain: f64,
+    pub unlevered_cash_corrected: f64,
+    /// Median, mean, market-cap-weighted mean and trimmed mean of the betas aggregated.
+    pub unlevered_statistics: stats::Locations,
+    /// Gross debt or net of cash in every D/E.
+    pub debt_measure: crate::capital::leverage::DebtMeasure,
+    /// The prior of the Vasicek adjustment (`null` unless it is used).
+    pub vasicek_prior: Option<beta::vasicek::Prior>,
+    /// How many peers enter the aggregation (those without an exclusion reason).
+    pub peers_included: usize,
+}
+
+/// The target capital structure, both ratios, whichever was given.
+#[derive(Debug, Clone, Serialize)]
+pub struct TargetRecord {
+    pub given: &'static str,
+    pub debt_to_equity: f64,
+    pub debt_to_capital: f64,
+    pub tax_rate: f64,
+    /// Marginal or effective: the basis of `tax_rate`, used for relevering and the shield.
+    pub tax_rate_basis: crate::capital::cost::TaxRateBasis,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct PremiumRecord {
+    pub size: f64,
+    pub country: f64,
+    pub company_specific: f64,
+    /// The premiums added to the cost of equity: size + country as applied + company-specific.
+    pub total: f64,
+    pub country_method: crate::capital::cost::CountryMethod,
+    /// λ for `country_method = "lambda"`, βL for `"beta"`, 1 for `"added"`.
+    pub country_scale: f64,
+    /// The country premium as it enters the cost of equity.
+    pub country_applied: f64,
+    pub size_justification: String,
+    pub country_justification: String,
+    pub company_specific_justification: String,
+}
+
+/// Every figure of one cost-of-capital estimate, and every input that produced it.
+#[derive(Debug, Clone, Serialize)]
+pub struct Valuation {
+    pub schema_version: u32,
+    pub tool: ToolInfo,
+    /// When the run happened (UTC, RFC 3339); the only field that differs between reruns.
+    pub generated_at: String,
+    pub case: CaseRecord,
+    /// The resolved case settings, every default written out.
+    pub settings: CaseFile,
+    pub files: Vec<DataFile>,
+    pub sampling: SamplingRecord,
+    /// The beta estimator and standard errors, in words with their sources.
+    pub estimator: beta::EstimatorRecord,
+    pub peers: Vec<PeerResult>,
+    /// Aggregation, relevering and the cost of capital (written at the top level of the JSON).
+    #[serde(flatten)]
+    pub cost: CostOfCapital,
+    /// The memo's sensitivity grid (`null` from `value` alone; filled by `audit::evaluate`).
+    pub sensitivity: Option<Grid>,
+    /// Monte Carlo percentiles of the WACC (filled by `audit::evaluate`).
+    pub uncertainty: Option<Uncertainty>,
+    /// The bridge to a claimed build-up, when the case has `[reconcile]`.
+    pub reconciliation: Option<Bridge>,
+    /// Plain-language remarks about the data that a reviewer should see.
+    pub notes: Vec<String>,
+    /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
+    #[serde(skip)]
+    pub returns: Vec<AlignedReturns>,
+    /// Each peer's rolling betas, in peer order (written to `rolling.csv`, not to JSON).
+    #[serde(skip)]
+    pub rolling: Vec<Vec<rolling::RollingPoint>>,
+}
+
+/// Everything after the peer regressions: aggregation, relevering, CAPM, cost of debt, WACC.
+#[derive(Debug, Clone, Serialize)]
+pub struct CostOfCapital {
+    pub beta: BetaSummary,
+    pub target: TargetRecord,
+    pub weights: Weights,
+    pub risk_free_rate: f64,
+    pub equity_risk_premium: f64,
+    pub premiums: PremiumRecord,
+    /// The CAPM term of the cost of equity: relevered beta × equity risk premium.
+    pub beta_times_equity_risk_premium: f64,
+    pub cost_of_equity: f64,
+    pub cost_of_debt_pre_tax: f64,
+    pub cost_of_debt_after_tax: f64,
+    pub wacc: f64,
+    /// Each capital component's share of the WACC (weight × cost); they sum to `wacc`.
+    pub wacc_contributions: Weights,
+    /// The debt beta used in relevering at the target (0 when none).
+    pub subject_debt_beta: f64,
+    /// Costs of the optional capital components (0 weight when absent).
+    pub other_capital_costs: OtherComponents,
+    /// How the pre-tax cost of debt was arrived at: source, table and row used.
+    pub cost_of_debt: CostOfDebtRecord,
+    /// The relevered beta, cost of equity and WACC under every leverage formula, same inputs.
+    pub leverage_comparison: Vec<FormulaOutcome>,
+    /// The results in the output currency by the Fisher relation, when `[conversion]` asks.
+    pub currency_conversion: Option<CurrencyConversion>,
+}
+
+/// The cost of equity and WACC carried into the output currency, and both in real terms.
+#[derive(Debug, Clone, Serialize)]
+pub struct CurrencyConversion {
+    pub from: String,
+    pub to: String,
+    pub inflation_from: f64,
+    pub inflation_to: f64,
+    /// Nominal, in the output currency: (1 + r)·(1 + π_to)/(1 + π_from) − 1.
+    pub cost_of_equity: f64,
+    pub wacc: f64,
+    /// Real (the same in both currencies): (1 + r)/(1 + π_from) − 1.
+    pub cost_of_equity_real: f64,
+    pub wacc_real: f64,
+}
+
+pub(super) fn convert_results(
+    conversion: &crate::case::ConversionSettings,
+    case_currency: &str,
+    cost_of_equity: f64,
+    wacc: f64,
+) -> CurrencyConversion {
+    let (from, to) = (conversion.inflation_case, conversion.inflation_output);
+    CurrencyConversion {
+        from: case_currency.to_string(),
+        to: conversion.currency.clone(),
+        inflation_from: from,
+        inflation_to: to,
+        cost_of_equity: crate::capital::currency::convert_nominal(cost_of_equity, from, to),
+        wacc: crate::capital::currency::convert_nominal(wacc, from, to),
+        cost_of_equity_real: crate::capital::currency::nominal_to_real(cost_of_equity, from),
+        wacc_real: crate::capital::currency::nominal_to_real(wacc, from),
+    }
+}
