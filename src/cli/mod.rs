@@ -9,6 +9,7 @@ pub mod grid;
 pub mod implied;
 pub mod rolling;
 pub mod run;
+pub mod universe;
 pub mod verify;
 
 use std::path::PathBuf;
@@ -41,6 +42,8 @@ pub enum Command {
     Grid(grid::Args),
     /// Write each peer's rolling beta to rolling.csv.
     Rolling(rolling::Args),
+    /// Estimate every security of a market's price panel and tabulate betas by industry.
+    Universe(universe::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -92,5 +95,6 @@ pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
         Command::Compare(args) => compare::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Rolling(args) => rolling::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Universe(args) => universe::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }

@@ -21,8 +21,8 @@ use std::path::{Path, PathBuf};
 use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
-use crate::io::series::{iso_date, SeriesView};
 use crate::error::{Error, Result};
+use crate::io::series::{iso_date, SeriesView};
 
 /// How the prices are laid out in the file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]

@@ -8,6 +8,7 @@ pub mod format;
 pub mod json;
 pub mod memo;
 pub mod rolling;
+pub mod universe;
 pub mod verification;
 
 use std::io::Write;

@@ -142,7 +142,9 @@ impl Estimation {
                 periods_dropped: None,
                 outcome: Err((
                     NotEstimated::FlatIndex,
-                    format!("the index returns have zero variance over the {periods} periods aligned"),
+                    format!(
+                        "the index returns have zero variance over the {periods} periods aligned"
+                    ),
                 )),
                 rolling: Vec::new(),
             },

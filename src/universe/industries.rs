@@ -13,7 +13,6 @@ use serde::Serialize;
 
 use super::estimate::NotEstimated;
 use super::securities::SecurityResult;
-use crate::beta::diagnostics::PeerFlag;
 use crate::case::LeverageSettings;
 use crate::stats::{self, Aggregation, Dispersion};
 
@@ -90,18 +89,22 @@ fn industry_row(
     leverage: &LeverageSettings,
     adjusted: bool,
 ) -> IndustryResult {
-    let aggregated: Vec<&SecurityResult> = members.iter().copied().filter(|s| s.aggregated()).collect();
+    let aggregated: Vec<&SecurityResult> =
+        members.iter().copied().filter(|s| s.aggregated()).collect();
     let trim = leverage.trim_fraction;
     let summary = |figure: &dyn Fn(&SecurityResult) -> Option<f64>| {
         // Market-cap weights need an equity value: the weighted mean covers those that have one.
         let (values, weighted): (Vec<f64>, Vec<(f64, f64)>) = aggregated
             .iter()
             .filter_map(|s| figure(s).map(|v| (v, s.equity_value.map(|e| (v, e)))))
-            .fold((Vec::new(), Vec::new()), |(mut values, mut weighted), (v, w)| {
-                values.push(v);
-                weighted.extend(w);
-                (values, weighted)
-            });
+            .fold(
+                (Vec::new(), Vec::new()),
+                |(mut values, mut weighted), (v, w)| {
+                    values.push(v);
+                    weighted.extend(w);
+                    (values, weighted)
+                },
+            );
         summarise(&values, &weighted, trim)
     };
     let unlevered = summary(&|s| s.unlevered_beta);
@@ -114,7 +117,10 @@ fn industry_row(
     let ratios: Vec<f64> = aggregated.iter().filter_map(|s| s.debt_to_equity).collect();
     let mut not_estimated = BTreeMap::new();
     for reason in NotEstimated::ALL {
-        let n = members.iter().filter(|s| s.not_estimated == Some(reason)).count();
+        let n = members
+            .iter()
+            .filter(|s| s.not_estimated == Some(reason))
+            .count();
         not_estimated.insert(reason.name(), n);
     }
     let excluded_members: Vec<&&SecurityResult> = members
@@ -122,12 +128,11 @@ fn industry_row(
         .filter(|s| s.estimate.is_some() && s.excluded_reason.is_some())
         .collect();
     let mut excluded = BTreeMap::new();
-    for flag in [
-        PeerFlag::TooFewObservations,
-        PeerFlag::LowRSquared,
-        PeerFlag::StalePrices,
-    ] {
-        let n = excluded_members.iter().filter(|s| s.flags.contains(&flag)).count();
+    for flag in super::FLAGS {
+        let n = excluded_members
+            .iter()
+            .filter(|s| s.flags.contains(&flag))
+            .count();
         excluded.insert(flag.name(), n);
     }
     IndustryResult {
@@ -144,9 +149,7 @@ fn industry_row(
             None
         },
         median_debt_to_equity: (!ratios.is_empty()).then(|| stats::dispersion(&ratios).median),
-        unlevered_beta: chosen
-            .as_ref()
-            .and_then(|s| s.select(leverage.aggregation)),
+        unlevered_beta: chosen.as_ref().and_then(|s| s.select(leverage.aggregation)),
         unlevered,
         cash_corrected,
     }

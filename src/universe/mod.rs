@@ -18,8 +18,9 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use serde::Serialize;
 
+use crate::beta::diagnostics::PeerFlag;
 use crate::beta::rolling::RollingPoint;
-use crate::beta::{self, vasicek, Adjustment, AdjustedBeta};
+use crate::beta::{self, vasicek, AdjustedBeta, Adjustment};
 use crate::error::{Error, Result};
 use crate::io::series::{iso_date, read_series_file, DataFile, ValueKind};
 use crate::panel::attributes::{read_attributes, Attributes, AttributesFile};
@@ -282,24 +283,35 @@ fn adjust(
     settings: &UniverseFile,
     estimates: &[SecurityEstimate],
 ) -> Result<(Vec<Option<AdjustedBeta>>, Option<vasicek::Prior>)> {
-    let estimated: Vec<&estimate::Estimated> =
-        estimates.iter().filter_map(|e| e.outcome.as_ref().ok()).collect();
+    let estimated: Vec<&estimate::Estimated> = estimates
+        .iter()
+        .filter_map(|e| e.outcome.as_ref().ok())
+        .collect();
     let raw: Vec<(f64, f64)> = estimated
         .iter()
         .map(|e| (e.estimate.beta, e.estimate.beta_std_error))
         .collect();
-    let included: Vec<bool> = estimated.iter().map(|e| e.excluding_flags.is_empty()).collect();
+    let included: Vec<bool> = estimated
+        .iter()
+        .map(|e| e.excluding_flags.is_empty())
+        .collect();
     let beta = &settings.beta;
     let stated = beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance);
-    let (adjusted, prior) = beta::adjust_all(beta.adjustment, stated, &raw, &included)
-        .map_err(|message| Error::Estimation {
-            peer: "(all securities)".into(),
-            message: message.replace("peers", "securities"),
+    let (adjusted, prior) =
+        beta::adjust_all(beta.adjustment, stated, &raw, &included).map_err(|message| {
+            Error::Estimation {
+                peer: "(all securities)".into(),
+                message: message.replace("peers", "securities"),
+            }
         })?;
     let mut adjusted = adjusted.into_iter();
     let per_security = estimates
         .iter()
-        .map(|e| e.outcome.is_ok().then(|| adjusted.next().expect("one per estimate")))
+        .map(|e| {
+            e.outcome
+                .is_ok()
+                .then(|| adjusted.next().expect("one per estimate"))
+        })
         .collect();
     Ok((per_security, prior))
 }
@@ -356,3 +368,10 @@ fn counts_and_notes(
     };
     (counts, notes)
 }
+
+/// The flags a security can raise, in the order outputs list them.
+pub const FLAGS: [PeerFlag; 3] = [
+    PeerFlag::TooFewObservations,
+    PeerFlag::LowRSquared,
+    PeerFlag::StalePrices,
+];

@@ -139,7 +139,14 @@ pub fn security_row(
                 e.stability.clone(),
                 None,
             ),
-            Err((reason, detail)) => (None, Vec::new(), None, None, None, Some((*reason, detail.clone()))),
+            Err((reason, detail)) => (
+                None,
+                Vec::new(),
+                None,
+                None,
+                None,
+                Some((*reason, detail.clone())),
+            ),
         };
     let beta_used = adjusted.map(|a| a.used);
     let missing = missing(attributes, settings.cash_column);
@@ -300,7 +307,15 @@ mod tests {
     #[test]
     fn a_missing_figure_is_never_filled_in() {
         let leverage = LeverageSettings::default();
-        let u = unlever(Some(1.2), Some(100.0), None, Some(5.0), Some(0.3), &leverage, 0.0);
+        let u = unlever(
+            Some(1.2),
+            Some(100.0),
+            None,
+            Some(5.0),
+            Some(0.3),
+            &leverage,
+            0.0,
+        );
         assert_eq!(u.debt_to_equity, None);
         assert_eq!(u.unlevered, None);
         assert_eq!(u.cash_share, None);
@@ -308,7 +323,15 @@ mod tests {
             debt_measure: DebtMeasure::Net,
             ..LeverageSettings::default()
         };
-        let u = unlever(Some(1.2), Some(100.0), Some(50.0), None, Some(0.3), &net, 0.0);
+        let u = unlever(
+            Some(1.2),
+            Some(100.0),
+            Some(50.0),
+            None,
+            Some(0.3),
+            &net,
+            0.0,
+        );
         assert_eq!(u.unlevered, None);
     }
 }

@@ -10,13 +10,13 @@ use std::path::{Path, PathBuf};
 
 use serde::{Deserialize, Serialize};
 
+use crate::beta::EstimatorSpec;
+use crate::capital::leverage::Formula;
 use crate::case::{
     self, BetaSettings, CaseDate, DebtBetaSource, IndexSpec, LeverageSettings, YieldSpec,
 };
-use crate::beta::EstimatorSpec;
 use crate::error::{Error, Result};
 use crate::estimate::EstimationSpec;
-use crate::capital::leverage::Formula;
 use crate::panel::attributes::AttributeColumns;
 use crate::panel::{PanelColumns, PanelLayout, TableFormat};
 

@@ -1,0 +1,208 @@
+//! `hurdle universe UNIVERSE.toml [--out DIR] [--set KEY=VALUE]... [--quiet]`
+//!
+//! Estimates every security of the panel the universe file names as a case estimates a peer,
+//! unlevers each with its own capital structure and aggregates by industry; writes
+//! `securities.csv`/`.parquet`, `industries.csv`/`.parquet`, `summary.md` and `result.json`
+//! (and `rolling.csv`/`.parquet` with `universe.rolling = true`) to DIR (default: `output/`
+//! beside the universe file), each atomically. On a terminal, a progress bar shows once the run
+//! has taken about a second; with `--quiet`, or when stderr is not a terminal, stderr carries
+//! errors only. The closing summary goes to stdout.
+
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::time::{Duration, Instant};
+
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+
+use hurdle::report::universe::write_outputs;
+use hurdle::universe::settings::read_universe;
+use hurdle::universe::{evaluate, load_inputs, UniverseResult};
+
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// The universe file (TOML).
+    pub universe: PathBuf,
+    /// Output folder (default: `output/` beside the universe file).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Override a universe value, e.g. --set beta.frequency=weekly (repeatable).
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub overrides: Vec<String>,
+    /// No progress bar; stderr carries errors only.
+    #[arg(long)]
+    pub quiet: bool,
+}
+
+/// How long a run goes before the progress display appears.
+const QUIET_START: Duration = Duration::from_secs(1);
+
+pub fn run(args: &Args) -> hurdle::Result<()> {
+    let started = Instant::now();
+    let universe = read_universe(&args.universe, &args.overrides)?;
+    let out = args.out.clone().unwrap_or_else(|| {
+        args.universe
+            .parent()
+            .map(|p| p.join("output"))
+            .unwrap_or_else(|| PathBuf::from("output"))
+    });
+    let show = !args.quiet && std::io::stderr().is_terminal();
+    let reading = Display::new(show, started, ProgressBar::new_spinner());
+    reading
+        .bar
+        .set_message(format!("reading {}", universe.settings.panel.prices));
+    if show {
+        reading.bar.enable_steady_tick(Duration::from_millis(120));
+    }
+    let inputs = load_inputs(universe)?;
+    reading.bar.finish_and_clear();
+    refuse_overwriting_inputs(&out, &inputs)?;
+    let estimating = Display::new(show, started, ProgressBar::new(inputs.panel.len() as u64));
+    estimating.bar.set_style(
+        ProgressStyle::with_template(
+            "{bar:40} {pos}/{len} securities estimated  {per_sec}  about {eta} left",
+        )
+        .expect("a valid template"),
+    );
+    let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
+    estimating.bar.finish_and_clear();
+    let written = write_outputs(&out, &result)?;
+    print!("{}", summary(&result));
+    for path in written {
+        println!("  wrote {}", path.display());
+    }
+    Ok(())
+}
+
+/// A progress display that stays hidden until the run has taken [`QUIET_START`], and always
+/// when it should not show at all.
+struct Display {
+    bar: ProgressBar,
+    show: bool,
+    shown: AtomicBool,
+    started: Instant,
+}
+
+impl Display {
+    fn new(show: bool, started: Instant, bar: ProgressBar) -> Display {
+        let early = started.elapsed() >= QUIET_START;
+        bar.set_draw_target(if show && early {
+            ProgressDrawTarget::stderr()
+        } else {
+            ProgressDrawTarget::hidden()
+        });
+        Display {
+            bar,
+            show,
+            shown: AtomicBool::new(early),
+            started,
+        }
+    }
+
+    /// Counts `n` more securities (from any thread).
+    fn advance(&self, n: usize) {
+        self.bar.inc(n as u64);
+        if self.show
+            && self.started.elapsed() >= QUIET_START
+            && !self.shown.swap(true, Ordering::Relaxed)
+        {
+            self.bar.set_draw_target(ProgressDrawTarget::stderr());
+        }
+    }
+}
+
+/// An output file must never replace an input (a panel named `industries.csv` in the output
+/// folder, say).
+fn refuse_overwriting_inputs(
+    out: &Path,
+    inputs: &hurdle::universe::UniverseInputs,
+) -> hurdle::Result<()> {
+    let universe = &inputs.universe;
+    let settings = &universe.settings;
+    let mut read: Vec<PathBuf> = vec![
+        universe.path.clone(),
+        universe.resolve(&settings.panel.prices),
+        universe.resolve(&settings.attributes.file),
+        universe.resolve(&settings.market.index.prices),
+    ];
+    read.extend(
+        settings
+            .market
+            .risk_free_series
+            .as_ref()
+            .map(|r| universe.resolve(&r.yields)),
+    );
+    let read: Vec<PathBuf> = read.iter().filter_map(|p| p.canonicalize().ok()).collect();
+    for name in hurdle::report::universe::OUTPUT_NAMES {
+        let target = out.join(name);
+        if let Ok(target) = target.canonicalize() {
+            if read.contains(&target) {
+                return Err(hurdle::Error::Argument {
+                    option: "--out".into(),
+                    message: format!(
+                        "{} is an input of this run; choose another output folder",
+                        target.display()
+                    ),
+                });
+            }
+        }
+    }
+    Ok(())
+}
+
+fn summary(r: &UniverseResult) -> String {
+    let c = &r.counts;
+    let not: Vec<String> = c
+        .not_estimated
+        .iter()
+        .filter(|(_, &n)| n > 0)
+        .map(|(k, n)| format!("{k} {n}"))
+        .collect();
+    let missing: Vec<String> = c
+        .missing
+        .iter()
+        .filter(|(_, &n)| n > 0)
+        .map(|(k, n)| format!("{k} {n}"))
+        .collect();
+    let mut lines = vec![
+        format!(
+            "{} — valuation date {}, window {} to {}",
+            if r.universe.title.is_empty() {
+                "universe"
+            } else {
+                &r.universe.title
+            },
+            r.universe.valuation_date,
+            r.window.window_start,
+            r.window.window_end
+        ),
+        format!(
+            "  {} securities: {} estimated and aggregated, {} excluded by beta.exclude_flags, \
+             {} not estimated{}",
+            c.securities,
+            c.estimated,
+            c.excluded,
+            c.not_estimated.values().sum::<usize>(),
+            if not.is_empty() {
+                String::new()
+            } else {
+                format!(" ({})", not.join(", "))
+            }
+        ),
+        format!(
+            "  {} industries; {} securities with an unlevered beta{}",
+            r.industries.len(),
+            c.unlevered,
+            if missing.is_empty() {
+                String::new()
+            } else {
+                format!("; lacking: {}", missing.join(", "))
+            }
+        ),
+    ];
+    for note in &r.notes {
+        lines.push(format!("  note: {note}"));
+    }
+    lines.push(String::new());
+    lines.join("\n")
+}
