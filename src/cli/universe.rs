@@ -15,7 +15,7 @@ use std::time::{Duration, Instant};
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 
-use hurdle::report::universe::write_outputs;
+use hurdle::report::universe::{nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
 use hurdle::universe::{evaluate, load_inputs, UniverseResult};
 
@@ -152,18 +152,8 @@ fn refuse_overwriting_inputs(
 
 fn summary(r: &UniverseResult) -> String {
     let c = &r.counts;
-    let not: Vec<String> = c
-        .not_estimated
-        .iter()
-        .filter(|(_, &n)| n > 0)
-        .map(|(k, n)| format!("{k} {n}"))
-        .collect();
-    let missing: Vec<String> = c
-        .missing
-        .iter()
-        .filter(|(_, &n)| n > 0)
-        .map(|(k, n)| format!("{k} {n}"))
-        .collect();
+    let not = nonzero_counts(&c.not_estimated);
+    let missing = nonzero_counts(&c.missing);
     let mut lines = vec![
         format!(
             "{} — valuation date {}, window {} to {}",
@@ -186,7 +176,7 @@ fn summary(r: &UniverseResult) -> String {
             if not.is_empty() {
                 String::new()
             } else {
-                format!(" ({})", not.join(", "))
+                format!(" ({not})")
             }
         ),
         format!(
@@ -196,7 +186,7 @@ fn summary(r: &UniverseResult) -> String {
             if missing.is_empty() {
                 String::new()
             } else {
-                format!("; lacking: {}", missing.join(", "))
+                format!("; lacking: {missing}")
             }
         ),
     ];

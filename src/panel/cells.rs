@@ -73,9 +73,7 @@ pub(crate) fn push_long(
 ) -> Result<()> {
     let n = securities.len();
     let before = rows.prices.len();
-    rows.ids.reserve(n);
-    rows.dates.reserve(n);
-    rows.prices.reserve(n);
+    rows.reserve(n);
     // The fast path reads cells without nulls and stops at the first bad value; the checked
     // path then reads the block again to name it (nulls are errors too, named there).
     let nulls = securities.null_count()

@@ -50,6 +50,11 @@ pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, Str
         let scanned = scan_blocks(source, &block_bytes, |block, first| {
             if first {
                 let mut rows = Rows::default();
+                // Room for every row at once, estimated from the first block's line ends, so
+                // the columns never grow by copying.
+                let lines = block.iter().filter(|&&b| b == b'\n').count();
+                let file_bytes = std::fs::metadata(&source.file).map_or(0, |m| m.len()) as f64;
+                rows.reserve((file_bytes * lines as f64 / block.len() as f64 * 1.02) as usize);
                 let made = plan_for(source, columns, header(source, block)?, &mut rows)?;
                 let line: usize = made.header.iter().map(|n| n.len() + 1).sum();
                 block_bytes.store(BLOCK_BYTES.max(BLOCK_ROWS * line), Ordering::Relaxed);

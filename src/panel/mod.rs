@@ -317,6 +317,13 @@ struct Grouped {
 }
 
 impl Rows {
+    /// Makes room for `rows` more rows.
+    pub fn reserve(&mut self, rows: usize) {
+        self.ids.reserve(rows);
+        self.dates.reserve(rows);
+        self.prices.reserve(rows);
+    }
+
     pub fn push(&mut self, id: u32, date: NaiveDate, price: f64) {
         self.ids.push(id);
         self.dates.push(date);

@@ -7,6 +7,7 @@
 
 use std::fs::File;
 use std::io::Read;
+use std::sync::mpsc::sync_channel;
 
 use polars::prelude::*;
 use sha2::{Digest, Sha256};
@@ -16,13 +17,18 @@ use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, Source};
 use crate::error::{Error, Result};
 
 /// Rows per slice: row groups are merged up to this size (one group may be larger).
-const SLICE_ROWS: usize = 1 << 20;
+const SLICE_ROWS: usize = 1 << 18;
 
-/// Reads a Parquet panel into rows; returns them with the SHA-256 of the file's bytes.
+/// Reads a Parquet panel into rows; returns them with the SHA-256 of the file's bytes. Three
+/// stages overlap: one thread hashes the file, polars decodes a slice on its own threads, and
+/// another thread moves the previous slice's cells into the rows.
 pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, String)> {
-    let sha256 = hash_file(source)?;
     let mut rows = Rows::default();
     let names = column_names(source, columns)?;
+    if columns.layout == PanelLayout::Long {
+        // Room for every row at once, so the columns never grow by copying.
+        rows.reserve(ParquetReader::new(open(source)?).num_rows().unwrap_or(0));
+    }
     let wide: Vec<(String, u32)> = match columns.layout {
         PanelLayout::Long => Vec::new(),
         PanelLayout::Wide => names
@@ -31,39 +37,73 @@ pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, Str
             .map(|n| (n.clone(), rows.dictionary.id(n)))
             .collect(),
     };
-    for_each_slice(source, &names, |frame, first_row| {
-        let dates = date_column(source, frame, &columns.date_column)?;
-        let dates = cells(&dates);
-        match columns.layout {
-            PanelLayout::Long => {
-                let security = typed(source, frame, &columns.security_column, &DataType::String)?;
-                let price = typed(source, frame, &columns.price_column, &DataType::Float64)?;
-                push_long(
-                    &mut rows,
-                    &dates,
-                    security.str().expect("cast to text"),
-                    price.f64().expect("cast to doubles"),
-                    first_row,
-                    source,
-                    columns,
-                )
+    std::thread::scope(|scope| {
+        let hasher = scope.spawn(|| hash_file(source));
+        let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
+        let wide = &wide;
+        let pusher = scope.spawn(move || {
+            for (frame, first_row) in frames_in {
+                push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
             }
-            PanelLayout::Wide => {
-                let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
-                let prices = wide
-                    .iter()
-                    .map(|(name, _)| typed(source, frame, name, &DataType::Float64))
-                    .collect::<Result<Vec<_>>>()?;
-                let securities: Vec<_> = wide
-                    .iter()
-                    .zip(&prices)
-                    .map(|((name, id), c)| (*id, c.f64().expect("cast"), name.as_str()))
-                    .collect();
-                push_wide(&mut rows, &dates, &securities, first_row, source)
-            }
+            Ok(rows)
+        });
+        // A closed channel means the pusher stopped at a bad row; its error is returned below.
+        let decoded = for_each_slice(source, &names, |frame, first_row| {
+            frames
+                .send((frame, first_row))
+                .map_err(|_| source.file_error("stopped".into()))
+        });
+        drop(frames);
+        let pushed: Result<Rows> = pusher.join().expect("the row pusher does not panic");
+        let sha256 = hasher.join().expect("the hasher does not panic");
+        let rows = match (decoded, pushed) {
+            // The pusher's error concerns rows before any slice the decoder refused.
+            (_, Err(e)) | (Err(e), _) => return Err(e),
+            (Ok(()), Ok(rows)) => rows,
+        };
+        Ok((rows, sha256?))
+    })
+}
+
+/// Moves one decoded slice into `rows`.
+fn push_frame(
+    rows: &mut Rows,
+    frame: &DataFrame,
+    wide: &[(String, u32)],
+    first_row: usize,
+    source: &Source,
+    columns: &PanelColumns,
+) -> Result<()> {
+    let dates = date_column(source, frame, &columns.date_column)?;
+    let dates = cells(&dates);
+    match columns.layout {
+        PanelLayout::Long => {
+            let security = typed(source, frame, &columns.security_column, &DataType::String)?;
+            let price = typed(source, frame, &columns.price_column, &DataType::Float64)?;
+            push_long(
+                rows,
+                &dates,
+                security.str().expect("cast to text"),
+                price.f64().expect("cast to doubles"),
+                first_row,
+                source,
+                columns,
+            )
         }
-    })?;
-    Ok((rows, sha256))
+        PanelLayout::Wide => {
+            let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
+            let prices = wide
+                .iter()
+                .map(|(name, _)| typed(source, frame, name, &DataType::Float64))
+                .collect::<Result<Vec<_>>>()?;
+            let securities: Vec<_> = wide
+                .iter()
+                .zip(&prices)
+                .map(|((name, id), c)| (*id, c.f64().expect("cast"), name.as_str()))
+                .collect();
+            push_wide(rows, &dates, &securities, first_row, source)
+        }
+    }
 }
 
 /// The columns the layout reads, after checking that they exist.
@@ -113,7 +153,7 @@ fn column_names(source: &Source, columns: &PanelColumns) -> Result<Vec<String>> 
 fn for_each_slice(
     source: &Source,
     names: &[String],
-    mut each: impl FnMut(&DataFrame, usize) -> Result<()>,
+    mut each: impl FnMut(DataFrame, usize) -> Result<()>,
 ) -> Result<()> {
     let unreadable =
         |e: PolarsError| source.file_error(format!("not a readable Parquet file: {e}"));
@@ -133,7 +173,7 @@ fn for_each_slice(
             .with_slice(Some((start, length)));
         slice.set_metadata(metadata.clone());
         let frame = slice.finish().map_err(unreadable)?;
-        each(&frame, start)?;
+        each(frame, start)?;
         start += length;
         length = 0;
     }
@@ -233,6 +273,7 @@ pub(super) fn duplicate_error(
         PanelLayout::Wide => vec![columns.date_column.clone()],
     };
     let scan = for_each_slice(source, &names, |frame, first_row| {
+        let frame = &frame;
         let dates = date_column(source, frame, &columns.date_column)?;
         let dates = block_dates(&cells(&dates), first_row, source, &columns.date_column)?;
         let securities = match columns.layout {

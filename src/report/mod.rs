@@ -35,6 +35,12 @@ pub fn write_all(
         .iter()
         .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
         .collect::<Result<Vec<_>>>()?;
+    write_rendered(dir, rendered)
+}
+
+/// Writes files already rendered (name, bytes) into `dir` (created when missing), each
+/// atomically.
+pub fn write_rendered(dir: &Path, rendered: Vec<(String, Vec<u8>)>) -> Result<Vec<PathBuf>> {
     std::fs::create_dir_all(dir).map_err(|source| Error::Io {
         path: dir.to_path_buf(),
         action: "cannot create the output folder",

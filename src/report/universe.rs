@@ -14,7 +14,7 @@ use std::path::{Path, PathBuf};
 use polars::prelude::*;
 
 use super::format::{fixed, label};
-use super::write_atomic;
+use super::write_rendered;
 use crate::error::{Error, Result};
 use crate::universe::industries::{IndustryResult, Summary};
 use crate::universe::securities::SecurityResult;
@@ -35,19 +35,17 @@ pub const OUTPUT_NAMES: [&str; 8] = [
 /// Renders every output, then writes them all into `dir` (created when missing), each
 /// atomically; nothing is written when any rendering fails.
 pub fn write_outputs(dir: &Path, result: &UniverseResult) -> Result<Vec<PathBuf>> {
-    let rendered = render(result)?;
-    std::fs::create_dir_all(dir).map_err(|source| Error::Io {
-        path: dir.to_path_buf(),
-        action: "cannot create the output folder",
-        source,
-    })?;
-    let mut written = Vec::with_capacity(rendered.len());
-    for (name, bytes) in rendered {
-        let path = dir.join(name);
-        write_atomic(&path, &bytes)?;
-        written.push(path);
-    }
-    Ok(written)
+    write_rendered(dir, render(result)?)
+}
+
+/// Counts by name, those above zero, as `name n, name n` (empty when none is).
+pub fn nonzero_counts(counts: &std::collections::BTreeMap<&'static str, usize>) -> String {
+    counts
+        .iter()
+        .filter(|(_, &n)| n > 0)
+        .map(|(k, n)| format!("{k} {n}"))
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 /// Every output file's name and bytes.
@@ -400,11 +398,7 @@ fn summary(r: &UniverseResult) -> String {
         c.estimated,
         c.excluded,
         c.not_estimated.values().sum::<usize>(),
-        c.not_estimated
-            .iter()
-            .map(|(k, v)| format!("{k} {v}"))
-            .collect::<Vec<_>>()
-            .join(", "),
+        nonzero_counts(&c.not_estimated),
         c.unlevered
     );
     let _ = writeln!(
@@ -442,18 +436,12 @@ fn summary(r: &UniverseResult) -> String {
     for note in &r.notes {
         let _ = writeln!(out, "- {note}");
     }
-    let missing: Vec<String> = c
-        .missing
-        .iter()
-        .filter(|(_, &n)| n > 0)
-        .map(|(k, n)| format!("{k} {n}"))
-        .collect();
+    let missing = nonzero_counts(&c.missing);
     if !missing.is_empty() {
         let _ = writeln!(
             out,
             "- Securities lacking a figure (flagged in securities.csv, left out of every \
-             aggregate that needs it, never filled in): {}.",
-            missing.join(", ")
+             aggregate that needs it, never filled in): {missing}."
         );
     }
     out.push_str(CAUTIONS);
