@@ -43,6 +43,9 @@ pub enum Error {
     /// A regression could not be solved (rank-deficient design, too few observations).
     #[error("regression: {0}")]
     Regression(String),
+    /// A chart could not be drawn (`name` is its file name).
+    #[error("figure {name}: {message}")]
+    Figure { name: String, message: String },
     /// The memo template failed to parse or render.
     #[error("template {name}, line {line}: {message}")]
     Template {

@@ -285,7 +285,7 @@ fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
         p.estimate.beta_std_error = 0.0;
     }
     let run = |case: &hurdle::case::Case, estimates: &hurdle::valuation::PeerEstimates| {
-        simulate(case, &inputs, estimates, valuation.cost.wacc).unwrap()
+        simulate(case, &inputs, estimates, valuation.cost.wacc, Vec::new()).unwrap()
     };
     // No sampling error: every draw is the point estimate, so every percentile is too.
     let flat = run(&inputs.case, &flat_estimates);
@@ -314,7 +314,7 @@ fn monte_carlo_median_converges_to_the_point_estimate() {
         let mut case = inputs.case.clone();
         case.settings.uncertainty.draws = draws;
         let estimates = estimate_peers(&case, &inputs).unwrap();
-        let u = simulate(&case, &inputs, &estimates, valuation.cost.wacc).unwrap();
+        let u = simulate(&case, &inputs, &estimates, valuation.cost.wacc, Vec::new()).unwrap();
         let sigma = (u.p75 - u.p25) / 1.349;
         let bound = 4.0 * (std::f64::consts::PI / 2.0).sqrt() * sigma / f64::from(draws).sqrt();
         assert!(
@@ -386,4 +386,45 @@ fn implied_refuses_inputs_the_case_does_not_take_as_given() {
         "{}",
         text(&output)
     );
+}
+
+// Solving for the relevered beta of a case with preferred equity and leases: the answer, put
+// into the textbook WACC with every component (wE·(rf + β·ERP + premiums) + wD·Kd·(1 − t) +
+// wP·Kp + wL·KL·(1 − t), the base run's other figures), gives the claim. 1e-10 as above.
+#[test]
+fn implied_beta_counts_preferred_equity_and_leases() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let sets = [
+        "--set",
+        "preferred.weight=0.05",
+        "--set",
+        "preferred.cost=0.07",
+        "--set",
+        "leases.weight=0.05",
+        "--set",
+        "leases.cost_pre_tax=0.06",
+    ];
+    let base = run_case(Path::new(case), &dir.path().join("base"), &sets);
+    let mut arguments = vec!["implied", case, "--wacc", "0.091", "--solve", "beta"];
+    arguments.extend(sets);
+    let output = hurdle(&arguments);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let beta: f64 = report
+        .lines()
+        .find_map(|l| l.trim().strip_prefix("exact: relevered beta="))
+        .unwrap_or_else(|| panic!("{report}"))
+        .parse()
+        .unwrap();
+    let tax = number(&base, "target.tax_rate");
+    let wacc = number(&base, "weights.equity")
+        * (number(&base, "risk_free_rate")
+            + beta * number(&base, "equity_risk_premium")
+            + number(&base, "premiums.total"))
+        + number(&base, "weights.debt") * number(&base, "cost_of_debt_pre_tax") * (1.0 - tax)
+        + 0.05 * 0.07
+        + 0.05 * 0.06 * (1.0 - tax);
+    assert!((wacc - 0.091).abs() < 1e-10, "beta {beta} gives {wacc}");
 }

@@ -141,13 +141,16 @@ pub fn bridge(from: &Side, to: &Side) -> Bridge {
             shapley: shapley[k],
         });
     }
+    let unexplained = to.stated_wacc.map(|stated| stated - to.wacc);
+    let unexplained_from = from.stated_wacc.map(|stated| stated - from.wacc);
     Bridge {
         from: from.clone(),
         to: to.clone(),
         difference: to.wacc - from.wacc,
+        waterfall: super::waterfall::waterfall(from, to, &steps, unexplained, unexplained_from),
         steps,
-        unexplained: to.stated_wacc.map(|stated| stated - to.wacc),
-        unexplained_from: from.stated_wacc.map(|stated| stated - from.wacc),
+        unexplained,
+        unexplained_from,
     }
 }
 

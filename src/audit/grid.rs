@@ -122,6 +122,9 @@ pub fn grid(
     metric: Metric,
 ) -> Result<Grid> {
     let mut cells = Vec::with_capacity(rows.values.len());
+    // A cell is the case's own when its overrides leave the resolved case unchanged.
+    let own = toml::Value::try_from(&inputs.case.settings).ok();
+    let mut base_cell = None;
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
@@ -142,6 +145,12 @@ pub fn grid(
                     ),
                 ));
             }
+            if base_cell.is_none()
+                && own.is_some()
+                && toml::Value::try_from(&case.settings).ok() == own
+            {
+                base_cell = Some([r, c]);
+            }
             // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
             let estimates = estimates_for(&case, inputs, estimates)?;
             line.push(read(metric, &cost_of_capital(&case, inputs, &estimates)?));
@@ -153,6 +162,7 @@ pub fn grid(
         rows: rows.clone(),
         columns: columns.clone(),
         cells,
+        base_cell,
     })
 }
 

@@ -101,34 +101,8 @@ pub fn implied(
             message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
         });
     }
+    refuse_unsolvable(inputs, target)?;
     let settings = &inputs.case.settings;
-    if target == Target::CostOfDebt && settings.debt.source != crate::case::DebtSource::Given {
-        return Err(Error::Case {
-            file: inputs.case.path.clone(),
-            message: "the cost of debt comes from a spread table (debt.source); solve for it \
-                      with --set debt.source=given"
-                .into(),
-        });
-    }
-    if target == Target::DebtToEquity && settings.target.source != TargetSource::Explicit {
-        return Err(Error::Case {
-            file: inputs.case.path.clone(),
-            message: format!(
-                "target.source = {}: the target structure is not a ratio of the case, so none can \
-                 be solved for; use --set target.source=explicit",
-                crate::report::format::label(&settings.target.source)
-            ),
-        });
-    }
-    // The build-up holds the premiums fixed; a country premium scaled by beta moves with it.
-    if target == Target::Beta && settings.premiums.country_method == CountryMethod::Beta {
-        return Err(Error::Case {
-            file: inputs.case.path.clone(),
-            message: "premiums.country_method = \"beta\" scales the country premium by the beta \
-                      being solved for; solve for another input"
-                .into(),
-        });
-    }
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = match target {
         Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),
@@ -160,6 +134,65 @@ pub fn implied(
         let estimates = estimates_for(&case, inputs, estimates)?;
         Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
     };
+    let (value, crossings, wacc_min, wacc_max) = solve(&wacc_at, low, high, claimed)?;
+    let achieved_wacc = value.map(wacc_at).transpose()?;
+    Ok(Implied {
+        target,
+        key: key.to_string(),
+        claimed_wacc: claimed,
+        base_value,
+        base_wacc: base.cost.wacc,
+        range: (low, high),
+        value,
+        achieved_wacc,
+        crossings,
+        wacc_min,
+        wacc_max,
+    })
+}
+
+/// Refuses a target the case cannot be solved for, saying why.
+fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
+    let settings = &inputs.case.settings;
+    if target == Target::CostOfDebt && settings.debt.source != crate::case::DebtSource::Given {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: "the cost of debt comes from a spread table (debt.source); solve for it \
+                      with --set debt.source=given"
+                .into(),
+        });
+    }
+    if target == Target::DebtToEquity && settings.target.source != TargetSource::Explicit {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: format!(
+                "target.source = {}: the target structure is not a ratio of the case, so none can \
+                 be solved for; use --set target.source=explicit",
+                crate::case::label(&settings.target.source)
+            ),
+        });
+    }
+    // The build-up holds the premiums fixed; a country premium scaled by beta moves with it.
+    if target == Target::Beta && settings.premiums.country_method == CountryMethod::Beta {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: "premiums.country_method = \"beta\" scales the country premium by the beta \
+                      being solved for; solve for another input"
+                .into(),
+        });
+    }
+    Ok(())
+}
+
+/// Scans `wacc_at` over [low, high] for crossings of `claimed` and narrows the first by
+/// bisection: the solution (if any), the number of crossing intervals, and the lowest and highest
+/// WACC seen.
+fn solve(
+    wacc_at: &dyn Fn(f64) -> Result<f64>,
+    low: f64,
+    high: f64,
+    claimed: f64,
+) -> Result<(Option<f64>, usize, f64, f64)> {
     const INTERVALS: usize = 64;
     let xs: Vec<f64> = (0..=INTERVALS)
         .map(|i| low + (high - low) * i as f64 / INTERVALS as f64)
@@ -202,18 +235,5 @@ pub fn implied(
         let gap_b = wacc_at(b)? - claimed;
         value = Some(if gap_a.abs() <= gap_b.abs() { a } else { b });
     }
-    let achieved_wacc = value.map(wacc_at).transpose()?;
-    Ok(Implied {
-        target,
-        key: key.to_string(),
-        claimed_wacc: claimed,
-        base_value,
-        base_wacc: base.cost.wacc,
-        range: (low, high),
-        value,
-        achieved_wacc,
-        crossings,
-        wacc_min,
-        wacc_max,
-    })
+    Ok((value, crossings, wacc_min, wacc_max))
 }

@@ -9,9 +9,12 @@
 pub mod bridge;
 pub mod frequency_comparison;
 pub mod grid;
+pub mod histogram;
 pub mod implied;
+pub mod specification;
 pub mod uncertainty;
 pub mod verify;
+pub mod waterfall;
 
 use crate::error::{Error, Result};
 use crate::valuation::{estimate_peers, value_with, Inputs, Valuation};
@@ -38,11 +41,17 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         &columns,
         sensitivity.metric,
     )?);
+    let specifications = if inputs.case.settings.uncertainty.specification_range {
+        specification::range(inputs, &estimates, valuation.cost.wacc)?
+    } else {
+        Vec::new()
+    };
     valuation.uncertainty = Some(uncertainty::simulate(
         &inputs.case,
         inputs,
         &estimates,
         valuation.cost.wacc,
+        specifications,
     )?);
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);

@@ -1,43 +1,65 @@
-//! Monte Carlo interval of the WACC from the peers' beta sampling error.
+//! How sure the WACC is: a Monte Carlo interval from the peers' beta estimation error (drawn
+//! jointly, correlated as the peers' residuals are), a second interval that also resamples the
+//! peer set, and the WACC without each peer.
 //!
-//! Each draw replaces every peer's raw beta by β + SE·z (z standard normal: the large-sample
-//! sampling distribution of the estimate), optionally draws the equity risk premium and the
-//! risk-free rate uniformly from user-given ranges, and reruns adjustment (a Vasicek prior from
-//! the cross-section is re-estimated from each draw's betas), unlevering,
-//! aggregation, relevering, cost of debt, CAPM and WACC through the same functions as the point
-//! estimate ([`chain::wacc_only`], the case's formula alone). The draws are seeded, so the same
-//! case gives the same percentiles everywhere. It measures the estimation error of the betas (and of the
-//! given ranges) only, not the error in choosing peers, index, window or method.
+//! All peers are regressed on the same index, so their beta errors are correlated through the
+//! correlation of their residuals: the seemingly unrelated regressions view of Zellner (1962,
+//! "An efficient method of estimating seemingly unrelated regressions", J. Am. Statistical
+//! Association 57(298)). Each estimator is linear in the returns, β̂ᵢ = Σₜ aᵢₜ·rᵢₜ, so
+//! Cov(β̂ᵢ, β̂ⱼ) is estimated by the sandwich Σₜ (aᵢₜeᵢₜ)(aⱼₜeⱼₜ) over the periods both peers
+//! share (eᵢₜ the residuals). Its correlations, scaled by each peer's reported standard error,
+//! give the covariance the betas are drawn from: a draw is β̂ + L·z, L the Cholesky factor, z
+//! standard normal. Each draw optionally draws the ERP and the risk-free rate uniformly from
+//! given ranges and reruns adjustment, unlevering, aggregation, relevering, cost of debt, CAPM and
+//! WACC through [`chain::wacc_only`], the case's own formula. The draws are seeded, so the same
+//! case gives the same percentiles everywhere.
+//!
+//! What these intervals leave out: the choice of index, window, frequency and method (see
+//! [`super::specification`]), and error in the capital-structure inputs and premiums.
 
-use crate::capital::chain;
-use crate::case::{specs, Case};
+use chrono::NaiveDate;
+use nalgebra::{DMatrix, SymmetricEigen};
+
+use crate::capital::chain::{self, PeerCapital};
+use crate::case::{specs, BetaErrors, Case};
 use crate::error::Result;
 use crate::stats::quantile_sorted;
 use crate::stats::random::Rng;
+use crate::valuation::analyses::{LeaveOneOut, PeerSetInterval};
 use crate::valuation::{chain_error, chain_peers, exclusions, Inputs, PeerEstimates};
 
 pub use crate::valuation::analyses::Uncertainty;
 
 /// Simulates the WACC of `case` around its peers' estimates; `point` is the case's WACC.
+/// `specifications` is the specification range, computed by the caller.
 pub fn simulate(
     case: &Case,
     inputs: &Inputs,
     estimates: &PeerEstimates,
     point: f64,
+    specifications: Vec<crate::valuation::analyses::Specification>,
 ) -> Result<Uncertainty> {
     let settings = &case.settings;
     let u = &settings.uncertainty;
-    let mut rng = Rng::seeded(u.seed);
     let exclusions = exclusions(settings, estimates);
-    let mut drawn_peers = chain_peers(settings, estimates, &exclusions);
+    let peers = chain_peers(settings, estimates, &exclusions);
     let base = specs::capital(settings, inputs.debt_table.as_ref());
-    let mut waccs = Vec::with_capacity(u.draws as usize);
+    let correlation = match u.beta_errors {
+        BetaErrors::Correlated => beta_error_correlation(estimates),
+        BetaErrors::Independent => identity(peers.len()),
+    };
+    let factor = covariance_factor(&correlation, &peers);
+    let wacc_of = |spec: &chain::CapitalSpec<'_>, drawn: &[PeerCapital]| {
+        chain::wacc_only(spec, drawn).map_err(|e| chain_error(case, e))
+    };
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
+
+    let mut rng = Rng::seeded(u.seed);
+    let mut drawn = peers.clone();
+    let mut z = vec![0.0; peers.len()];
+    let mut waccs = Vec::with_capacity(u.draws as usize);
     for _ in 0..u.draws {
-        for (drawn, estimated) in drawn_peers.iter_mut().zip(&estimates.peers) {
-            let e = &estimated.estimate;
-            drawn.raw_beta = e.beta + e.beta_std_error * rng.normal();
-        }
+        draw_betas(&mut rng, &factor, &peers, &mut z, &mut drawn);
         let mut spec = base;
         if let Some(range) = u.equity_risk_premium {
             spec.equity_risk_premium = uniform(&mut rng, range);
@@ -45,22 +67,227 @@ pub fn simulate(
         if let Some(range) = u.risk_free_rate {
             spec.risk_free_rate = uniform(&mut rng, range);
         }
-        waccs.push(chain::wacc_only(&spec, &drawn_peers).map_err(|e| chain_error(case, e))?);
+        waccs.push(wacc_of(&spec, &drawn)?);
     }
-    waccs.sort_by(f64::total_cmp);
-    let q = |p: f64| quantile_sorted(&waccs, p);
+    let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
+
     Ok(Uncertainty {
         draws: u.draws,
         seed: u.seed,
-        beta_distribution: "normal(beta, beta_std_error) for each peer, independent",
+        beta_distribution: match u.beta_errors {
+            BetaErrors::Correlated => {
+                "joint normal(beta, covariance of the peers' beta errors from their residuals)"
+            }
+            BetaErrors::Independent => "normal(beta, beta_std_error) for each peer, independent",
+        },
         equity_risk_premium_range: u.equity_risk_premium,
         risk_free_rate_range: u.risk_free_rate,
         point_estimate: point,
-        mean: waccs.iter().sum::<f64>() / waccs.len() as f64,
-        p05: q(0.05),
-        p25: q(0.25),
-        p50: q(0.50),
-        p75: q(0.75),
-        p95: q(0.95),
+        mean,
+        p05,
+        p25,
+        p50,
+        p75,
+        p95,
+        beta_errors: u.beta_errors,
+        peer_set: peer_set_interval(case, &base, &factor, &peers)?,
+        leave_one_out: leave_one_out(case, &base, &peers, point)?,
+        beta_error_correlation: correlation,
+        influence_threshold: u.influence_threshold,
+        specifications,
+        histogram: super::histogram::histogram(&waccs),
     })
+}
+
+/// The mean and the 5th, 25th, 50th, 75th and 95th percentiles of `values` (sorted in place).
+fn percentiles(values: &mut [f64]) -> (f64, [f64; 5]) {
+    values.sort_by(f64::total_cmp);
+    let q = |p: f64| quantile_sorted(values, p);
+    (
+        values.iter().sum::<f64>() / values.len() as f64,
+        [q(0.05), q(0.25), q(0.50), q(0.75), q(0.95)],
+    )
+}
+
+fn identity(n: usize) -> Vec<Vec<f64>> {
+    (0..n)
+        .map(|i| (0..n).map(|j| if i == j { 1.0 } else { 0.0 }).collect())
+        .collect()
+}
+
+/// Σₜ uᵢₜ·uⱼₜ over the periods two peers share (both date lists ascending).
+fn shared_cross_product(
+    dates_i: &[NaiveDate],
+    u_i: &[f64],
+    dates_j: &[NaiveDate],
+    u_j: &[f64],
+) -> f64 {
+    let (mut a, mut b, mut sum) = (0, 0, 0.0);
+    while a < dates_i.len() && b < dates_j.len() {
+        match dates_i[a].cmp(&dates_j[b]) {
+            std::cmp::Ordering::Less => a += 1,
+            std::cmp::Ordering::Greater => b += 1,
+            std::cmp::Ordering::Equal => {
+                sum += u_i[a] * u_j[b];
+                a += 1;
+                b += 1;
+            }
+        }
+    }
+    sum
+}
+
+/// The correlation of the peers' beta errors: the sandwich cross-products of their influence
+/// terms on shared periods, each divided by the square roots of the two peers' own sums. A
+/// normalised Gram matrix, so it is positive semi-definite by construction.
+pub fn beta_error_correlation(estimates: &PeerEstimates) -> Vec<Vec<f64>> {
+    let peers = &estimates.peers;
+    let own: Vec<f64> = peers
+        .iter()
+        .map(|p| p.estimate.beta_influence.iter().map(|u| u * u).sum())
+        .collect();
+    (0..peers.len())
+        .map(|i| {
+            (0..peers.len())
+                .map(|j| {
+                    if i == j {
+                        return 1.0;
+                    }
+                    let scale = (own[i] * own[j]).sqrt();
+                    if scale == 0.0 {
+                        return 0.0;
+                    }
+                    shared_cross_product(
+                        &peers[i].returns.period_ends,
+                        &peers[i].estimate.beta_influence,
+                        &peers[j].returns.period_ends,
+                        &peers[j].estimate.beta_influence,
+                    ) / scale
+                })
+                .collect()
+        })
+        .collect()
+}
+
+/// A factor L of the betas' covariance, rows stored one after another.
+struct Factor {
+    n: usize,
+    rows: Vec<f64>,
+}
+
+/// L with L·Lᵀ = the covariance diag(SE)·R·diag(SE): the Cholesky factor, or, when rounding
+/// leaves R not quite positive definite (two peers with identical residuals), the symmetric square
+/// root with negative eigenvalues set to zero.
+fn covariance_factor(correlation: &[Vec<f64>], peers: &[PeerCapital]) -> Factor {
+    let matrix = covariance_root(correlation, peers);
+    let n = peers.len();
+    Factor {
+        n,
+        rows: (0..n * n).map(|k| matrix[(k / n, k % n)]).collect(),
+    }
+}
+
+fn covariance_root(correlation: &[Vec<f64>], peers: &[PeerCapital]) -> DMatrix<f64> {
+    let n = peers.len();
+    let covariance = DMatrix::from_fn(n, n, |i, j| {
+        correlation[i][j] * peers[i].beta_std_error * peers[j].beta_std_error
+    });
+    if let Some(cholesky) = covariance.clone().cholesky() {
+        return cholesky.l();
+    }
+    let eigen = SymmetricEigen::new(covariance);
+    let roots = eigen.eigenvalues.map(|v| v.max(0.0).sqrt());
+    &eigen.eigenvectors * DMatrix::from_diagonal(&roots)
+}
+
+/// One joint draw of the raw betas into `drawn`: β̂ + L·z, z standard normal (`z` is scratch).
+fn draw_betas(
+    rng: &mut Rng,
+    factor: &Factor,
+    peers: &[PeerCapital],
+    z: &mut [f64],
+    drawn: &mut [PeerCapital],
+) {
+    for value in z.iter_mut() {
+        *value = rng.normal();
+    }
+    for (i, (target, peer)) in drawn.iter_mut().zip(peers).enumerate() {
+        let row = &factor.rows[i * factor.n..(i + 1) * factor.n];
+        let shock: f64 = row.iter().zip(z.iter()).map(|(l, z)| l * z).sum();
+        target.raw_beta = peer.raw_beta + shock;
+    }
+}
+
+/// Each draw resamples the aggregated peers with replacement (Efron 1979, "Bootstrap methods:
+/// another look at the jackknife", Ann. Statistics 7(1)) and draws their betas jointly.
+fn peer_set_interval(
+    case: &Case,
+    base: &chain::CapitalSpec<'_>,
+    factor: &Factor,
+    peers: &[PeerCapital],
+) -> Result<PeerSetInterval> {
+    let u = &case.settings.uncertainty;
+    // A seed of its own, so the first interval does not change when this one is added.
+    let mut rng = Rng::seeded(u.seed ^ 0x005e_ed0f_9ee2_5e75);
+    let included: Vec<usize> = (0..peers.len()).filter(|&i| peers[i].included).collect();
+    let mut drawn = peers.to_vec();
+    let mut z = vec![0.0; peers.len()];
+    let mut sample = Vec::with_capacity(included.len());
+    let mut waccs = Vec::with_capacity(u.draws as usize);
+    for _ in 0..u.draws {
+        draw_betas(&mut rng, factor, peers, &mut z, &mut drawn);
+        sample.clear();
+        for _ in 0..included.len() {
+            let pick = ((rng.uniform() * included.len() as f64) as usize).min(included.len() - 1);
+            sample.push(drawn[included[pick]].clone());
+        }
+        match chain::wacc_only(base, &sample) {
+            Ok(wacc) => waccs.push(wacc),
+            // Only a Vasicek prior from a resample of one repeated peer fails; that draw says
+            // nothing about the peer set and is left out (and counted).
+            Err(chain::ChainError::Adjustment(_)) => {}
+            Err(e) => return Err(chain_error(case, e)),
+        }
+    }
+    let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
+    Ok(PeerSetInterval {
+        draws: waccs.len() as u32,
+        mean,
+        p05,
+        p25,
+        p50,
+        p75,
+        p95,
+    })
+}
+
+/// The WACC without each aggregated peer, at the point estimates.
+fn leave_one_out(
+    case: &Case,
+    base: &chain::CapitalSpec<'_>,
+    peers: &[PeerCapital],
+    point: f64,
+) -> Result<Vec<LeaveOneOut>> {
+    let threshold = case.settings.uncertainty.influence_threshold;
+    let mut rows = Vec::new();
+    for (i, spec) in case.settings.peers.iter().enumerate() {
+        if !peers[i].included {
+            continue;
+        }
+        let mut without = peers.to_vec();
+        without[i].included = false;
+        let wacc = match chain::wacc_only(base, &without) {
+            Ok(wacc) => Some(wacc),
+            Err(chain::ChainError::NoPeerIncluded) => None,
+            Err(e) => return Err(chain_error(case, e)),
+        };
+        let change = wacc.map(|w| w - point);
+        rows.push(LeaveOneOut {
+            peer: spec.name.clone(),
+            wacc,
+            change_bp: change.map(|c| c * 1e4),
+            influential: change.is_some_and(|c| c.abs() > threshold),
+        });
+    }
+    Ok(rows)
 }

@@ -20,6 +20,11 @@ use crate::valuation::{load_inputs, SCHEMA_VERSION};
 /// the last bit, while any change of input moves figures by far more.
 pub const DEFAULT_TOLERANCE: f64 = 1e-12;
 
+/// What a verification leaves out, and why: the derived outputs are drawn from the figures of
+/// `result.json`, which are compared one by one.
+pub const NOT_COMPARED: &str = "memo.md, figures/*.svg and report.html are not compared: they \
+are drawn from the figures of result.json, which are";
+
 /// The state of one input file.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FileCheck {
@@ -107,34 +112,7 @@ pub fn verify(
     let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
 
-    let current: Vec<(String, String)> = rerun
-        .files
-        .iter()
-        .map(|f| (f.role.clone(), f.sha256.clone()))
-        .collect();
-    let files = recorded["files"]
-        .as_array()
-        .map(|list| {
-            list.iter()
-                .map(|f| {
-                    let role = f["role"].as_str().unwrap_or("").to_string();
-                    let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
-                    let current_sha256 = current
-                        .iter()
-                        .find(|(r, _)| *r == role)
-                        .map(|(_, s)| s.clone())
-                        .unwrap_or_else(|| "(no longer in the case)".into());
-                    FileCheck {
-                        path: f["path"].as_str().unwrap_or("").to_string(),
-                        unchanged: recorded_sha256 == current_sha256,
-                        role,
-                        recorded_sha256,
-                        current_sha256,
-                    }
-                })
-                .collect::<Vec<_>>()
-        })
-        .unwrap_or_default();
+    let files = file_checks(&recorded, &rerun);
 
     let mut mismatches = Vec::new();
     let mut compared = 0;
@@ -255,6 +233,38 @@ fn compare(
             }
         }
     }
+}
+
+/// Each input file the receipt records, with its recorded and current SHA-256.
+fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation) -> Vec<FileCheck> {
+    let current: Vec<(String, String)> = rerun
+        .files
+        .iter()
+        .map(|f| (f.role.clone(), f.sha256.clone()))
+        .collect();
+    recorded["files"]
+        .as_array()
+        .map(|list| {
+            list.iter()
+                .map(|f| {
+                    let role = f["role"].as_str().unwrap_or("").to_string();
+                    let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
+                    let current_sha256 = current
+                        .iter()
+                        .find(|(r, _)| *r == role)
+                        .map(|(_, s)| s.clone())
+                        .unwrap_or_else(|| "(no longer in the case)".into());
+                    FileCheck {
+                        path: f["path"].as_str().unwrap_or("").to_string(),
+                        unchanged: recorded_sha256 == current_sha256,
+                        role,
+                        recorded_sha256,
+                        current_sha256,
+                    }
+                })
+                .collect::<Vec<_>>()
+        })
+        .unwrap_or_default()
 }
 
 #[cfg(test)]

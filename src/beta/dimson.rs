@@ -43,6 +43,7 @@ pub fn dimson_beta(
     Ok(from_fit(
         BetaMethod::Dimson,
         &fit,
+        &design,
         &combination,
         &offsets,
         kind,

@@ -6,6 +6,7 @@
 
 pub mod diagnostics;
 pub mod dimson;
+pub mod fitted_line;
 pub mod rolling;
 pub mod scholes_williams;
 pub mod spec;
@@ -57,6 +58,18 @@ pub struct BetaEstimate {
     pub durbin_watson: f64,
     /// How many observations have an internally studentised residual above 3 in absolute value.
     pub large_studentised_residuals: usize,
+    /// The beta's influence terms aₜ·eₜ, one per observation in period order: the estimator's
+    /// weight on the observation's return times its residual. Their cross-products between two
+    /// peers on shared periods give the covariance of the two betas' errors (a seemingly unrelated
+    /// regressions sandwich; see `audit::uncertainty`). Not written to `result.json`.
+    #[serde(skip)]
+    pub beta_influence: Vec<f64>,
+    /// Where those observations are: 0-based positions in period order (the peer's rows of
+    /// `returns.csv`, in order).
+    pub large_studentised_residual_rows: Vec<usize>,
+    /// Covariance of the α and β estimates, of the same kind as their standard errors; with
+    /// them it gives the confidence band of the fitted line α + β·x (see [`fitted_line`]).
+    pub alpha_beta_covariance: f64,
 }
 
 /// One slope on a (possibly lagged or led) market return.
@@ -121,17 +134,27 @@ pub fn estimate_with(
 pub(crate) fn from_fit(
     method: BetaMethod,
     fit: &OlsFit,
+    design: &DMatrix<f64>,
     combination: &[f64],
     offsets: &[i32],
     kind: StdErrors,
 ) -> BetaEstimate {
     let c = DMatrix::from_column_slice(combination.len(), 1, combination);
+    // The beta as a linear function of the returns: weights cᵀ(XᵀX)⁻¹Xᵀ (from R⁻¹, not an inverse).
+    let weights = c.transpose() * &fit.bread * design.transpose();
+    let influence = weights
+        .iter()
+        .zip(&fit.residuals)
+        .map(|(w, e)| w * e)
+        .collect();
     let beta = combination
         .iter()
         .zip(&fit.coefficients)
         .map(|(w, b)| w * b)
         .sum::<f64>();
     let beta_std_error = (c.transpose() * &fit.covariance * &c)[(0, 0)].sqrt();
+    // Cov(α, cᵀb) = Σⱼ cⱼ·Cov(b₀, bⱼ): row 0 of the covariance against the combination.
+    let alpha_beta_covariance = (fit.covariance.row(0) * &c)[(0, 0)];
     let market_coefficients = offsets
         .iter()
         .enumerate()
@@ -141,27 +164,39 @@ pub(crate) fn from_fit(
             std_error: fit.std_errors[i + 1],
         })
         .collect();
-    finish(
+    let mut estimate = finish(
         method,
         fit,
         (fit.coefficients[0], fit.std_errors[0]),
         (beta, beta_std_error),
+        alpha_beta_covariance,
         kind,
         market_coefficients,
-    )
+    );
+    estimate.beta_influence = influence;
+    estimate
 }
 
 /// Fills the t, p and 95% CI of alpha and beta from their estimates and standard errors, with
-/// Student t on the fit's degrees of freedom (the CI and p follow the chosen standard errors).
+/// Student t on the fit's degrees of freedom (the CI and p follow the chosen standard errors),
+/// and the diagnostics of the fit's residuals.
 pub(crate) fn finish(
     method: BetaMethod,
     fit: &OlsFit,
     (alpha, alpha_std_error): (f64, f64),
     (beta, beta_std_error): (f64, f64),
+    alpha_beta_covariance: f64,
     kind: StdErrors,
     market_coefficients: Vec<MarketCoefficient>,
 ) -> BetaEstimate {
     let df = fit.degrees_of_freedom as f64;
+    let large_studentised_residual_rows: Vec<usize> = fit
+        .studentised_residuals()
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| r.abs() > 3.0)
+        .map(|(row, _)| row)
+        .collect();
     let t = stats::student_t_quantile(0.975, df);
     let alpha_t_stat = alpha / alpha_std_error;
     let beta_t_stat = beta / beta_std_error;
@@ -187,11 +222,10 @@ pub(crate) fn finish(
         market_coefficients,
         market_autocorrelation: None,
         durbin_watson: fit.durbin_watson(),
-        large_studentised_residuals: fit
-            .studentised_residuals()
-            .iter()
-            .filter(|r| r.abs() > 3.0)
-            .count(),
+        large_studentised_residuals: large_studentised_residual_rows.len(),
+        large_studentised_residual_rows,
+        alpha_beta_covariance,
+        beta_influence: Vec::new(),
     }
 }
 
@@ -228,7 +262,14 @@ pub fn ols_beta_with(
 ) -> Result<BetaEstimate> {
     let design = design_with_intercept(&[market]);
     let fit = with_std_errors(ols(&design, asset, true)?, &design, kind, newey_west_lags);
-    Ok(from_fit(BetaMethod::Ols, &fit, &[0.0, 1.0], &[0], kind))
+    Ok(from_fit(
+        BetaMethod::Ols,
+        &fit,
+        &design,
+        &[0.0, 1.0],
+        &[0],
+        kind,
+    ))
 }
 
 /// The estimator and standard errors of a case, in words with their sources, for the memo.

@@ -97,10 +97,12 @@ pub fn scholes_williams_beta(
         &fit,
         (alpha, se(0)),
         (beta, se(1)),
+        cov[(0, 1)],
         kind,
         market_coefficients,
     );
     estimate.market_autocorrelation = Some(rho);
+    estimate.beta_influence = (0..n).map(|t| a[(1, t)] * fit.residuals[t]).collect();
     Ok(estimate)
 }
 

@@ -336,13 +336,22 @@ pub fn chain(
 /// draw needs.
 pub fn wacc_only(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<f64, ChainError> {
     let common = common(spec, peers)?;
-    let unlevered = unlevered_betas(spec.formula, peers, &common.adjusted, &common.peers);
-    let values = if spec.cash_step {
-        cash_step_betas(&unlevered, &common.peers)
-    } else {
-        unlevered
-    };
-    let (betas, caps) = included_values(peers, &values);
+    // The included peers' betas and weights straight into the two vectors the statistic reads:
+    // a draw allocates little, and each figure is computed by the same per-peer functions.
+    let mut betas = Vec::with_capacity(peers.len());
+    let mut caps = Vec::with_capacity(peers.len());
+    for ((peer, adjusted), terms) in peers.iter().zip(&common.adjusted).zip(&common.peers) {
+        if !peer.included {
+            continue;
+        }
+        let unlevered = unlever(spec.formula, peer, adjusted, terms);
+        betas.push(if spec.cash_step {
+            cash_step(unlevered, terms)
+        } else {
+            unlevered
+        });
+        caps.push(peer.equity_value);
+    }
     let aggregate = stats::location(spec.aggregation, &betas, &caps, spec.trim_fraction);
     Ok(equity_and_wacc(spec, spec.formula, aggregate, &common).2)
 }
@@ -422,6 +431,26 @@ fn subject_debt_beta(spec: &CapitalSpec<'_>, cost_of_debt: f64) -> f64 {
     }
 }
 
+/// One peer's unlevered beta under `formula`.
+fn unlever(
+    formula: Formula,
+    peer: &PeerCapital,
+    adjusted: &AdjustedBeta,
+    terms: &PeerTerms,
+) -> f64 {
+    formula.unlever_with(
+        adjusted.used,
+        CapitalStructure {
+            debt_to_equity: terms.debt_to_equity,
+            tax_rate: peer.tax_rate,
+        },
+        DebtTerms {
+            debt_beta: terms.debt_beta,
+            cost_of_debt: terms.cost_of_debt,
+        },
+    )
+}
+
 /// Every peer's unlevered beta under `formula`, in peer order.
 fn unlevered_betas(
     formula: Formula,
@@ -433,19 +462,7 @@ fn unlevered_betas(
         .iter()
         .zip(adjusted)
         .zip(terms)
-        .map(|((peer, adjusted), terms)| {
-            formula.unlever_with(
-                adjusted.used,
-                CapitalStructure {
-                    debt_to_equity: terms.debt_to_equity,
-                    tax_rate: peer.tax_rate,
-                },
-                DebtTerms {
-                    debt_beta: terms.debt_beta,
-                    cost_of_debt: terms.cost_of_debt,
-                },
-            )
-        })
+        .map(|((peer, adjusted), terms)| unlever(formula, peer, adjusted, terms))
         .collect()
 }
 
@@ -453,11 +470,16 @@ fn unlevered_betas(
 /// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
 /// non-cash share leaves the operations' beta (common practice in valuation textbooks). Uses gross
 /// debt.
+fn cash_step(unlevered: f64, terms: &PeerTerms) -> f64 {
+    unlevered / (1.0 - terms.cash_share)
+}
+
+/// [`cash_step`] for every peer.
 fn cash_step_betas(unlevered: &[f64], terms: &[PeerTerms]) -> Vec<f64> {
     unlevered
         .iter()
         .zip(terms)
-        .map(|(&u, terms)| u / (1.0 - terms.cash_share))
+        .map(|(&u, terms)| cash_step(u, terms))
         .collect()
 }
 

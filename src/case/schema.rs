@@ -11,6 +11,7 @@ use std::fmt;
 use chrono::NaiveDate;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
+pub use super::lookback::{Lookback, SpanUnit};
 pub use crate::beta::diagnostics::PeerFlag;
 pub use crate::beta::spec::{Adjustment, BetaMethod};
 pub use crate::capital::cost::{CountryMethod, TaxRateBasis};
@@ -77,6 +78,25 @@ pub struct UncertaintySettings {
     /// Draw the risk-free rate uniformly from `[low, high]` as well.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub risk_free_rate: Option<[f64; 2]>,
+    /// Whether the peers' beta errors are drawn jointly, correlated as their residuals are
+    /// (`"correlated"`), or each on its own (`"independent"`).
+    pub beta_errors: BetaErrors,
+    /// A peer whose leave-one-out WACC differs from the case's by more than this (decimal:
+    /// 0.0025 is 25 bp) is named in the memo.
+    pub influence_threshold: f64,
+    /// The WACC under the usual alternative frequencies and windows, beside the case's own.
+    pub specification_range: bool,
+}
+
+/// `uncertainty.beta_errors`: how the Monte Carlo draws the peers' betas.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum BetaErrors {
+    /// Jointly normal, with the covariance of seemingly unrelated regressions (Zellner 1962).
+    #[default]
+    Correlated,
+    /// Each peer's beta on its own, as if the peers' errors were unrelated.
+    Independent,
 }
 
 impl Default for UncertaintySettings {
@@ -86,6 +106,10 @@ impl Default for UncertaintySettings {
             seed: 1,
             equity_risk_premium: None,
             risk_free_rate: None,
+            beta_errors: BetaErrors::Correlated,
+            // hurdle's choice: a quarter point is a move a reviewer would ask an analyst to explain.
+            influence_threshold: 0.0025,
+            specification_range: true,
         }
     }
 }
@@ -208,120 +232,6 @@ pub struct BetaSettings {
     /// Fewest observations in a rolling window; absent means 80% of it, rounded up.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub rolling_min_observations: Option<u32>,
-}
-
-/// `beta.lookback`: a count of return periods or a calendar span (`5y`, `18m`, `104w`, `250d`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Lookback {
-    Periods(u32),
-    Span { count: u32, unit: SpanUnit },
-}
-
-/// The unit of a lookback span.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum SpanUnit {
-    Years,
-    Months,
-    Weeks,
-    Days,
-}
-
-impl fmt::Display for Lookback {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            Lookback::Periods(n) => write!(f, "{n}"),
-            Lookback::Span { count, unit } => {
-                let u = match unit {
-                    SpanUnit::Years => 'y',
-                    SpanUnit::Months => 'm',
-                    SpanUnit::Weeks => 'w',
-                    SpanUnit::Days => 'd',
-                };
-                write!(f, "\"{count}{u}\"")
-            }
-        }
-    }
-}
-
-impl Lookback {
-    /// Parses a span such as `5y`, `104w`, `250d`, `18m`.
-    pub fn parse_span(text: &str) -> std::result::Result<Lookback, String> {
-        let text = text.trim();
-        let bad = || {
-            format!(
-                "beta.lookback = \"{text}\" is not a count of periods or a span such as \"5y\", \
-                 \"18m\", \"104w\" or \"250d\""
-            )
-        };
-        let unit = match text.chars().last().ok_or_else(bad)? {
-            'y' => SpanUnit::Years,
-            'm' => SpanUnit::Months,
-            'w' => SpanUnit::Weeks,
-            'd' => SpanUnit::Days,
-            _ => return Err(bad()),
-        };
-        let count: u32 = text[..text.len() - 1].parse().map_err(|_| bad())?;
-        if count == 0 {
-            return Err(bad());
-        }
-        // Two centuries of history is more than any price file holds; the bound keeps the date
-        // arithmetic inside the calendar.
-        let most = match unit {
-            SpanUnit::Years => 200,
-            SpanUnit::Months => 2_400,
-            SpanUnit::Weeks => 10_400,
-            SpanUnit::Days => 73_000,
-        };
-        if count > most {
-            return Err(format!(
-                "beta.lookback = \"{text}\" reaches back more than two centuries; at most {most}{}",
-                &text[text.len() - 1..]
-            ));
-        }
-        Ok(Lookback::Span { count, unit })
-    }
-
-    /// The calendar date `self` before `end` (a span), or `None` for a count of periods.
-    /// Years and months keep the day of the month, clamped to the month's last day.
-    pub fn span_start(&self, end: NaiveDate) -> Option<NaiveDate> {
-        let Lookback::Span { count, unit } = *self else {
-            return None;
-        };
-        Some(match unit {
-            SpanUnit::Years => end
-                .checked_sub_months(chrono::Months::new(12 * count))
-                .expect("inside chrono's range"),
-            SpanUnit::Months => end
-                .checked_sub_months(chrono::Months::new(count))
-                .expect("inside chrono's range"),
-            SpanUnit::Weeks => end - chrono::Days::new(7 * u64::from(count)),
-            SpanUnit::Days => end - chrono::Days::new(u64::from(count)),
-        })
-    }
-}
-
-impl Serialize for Lookback {
-    fn serialize<S: Serializer>(&self, serializer: S) -> std::result::Result<S::Ok, S::Error> {
-        match self {
-            Lookback::Periods(n) => serializer.serialize_u32(*n),
-            span => serializer.collect_str(&span.to_string().trim_matches('"')),
-        }
-    }
-}
-
-impl<'de> Deserialize<'de> for Lookback {
-    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> std::result::Result<Self, D::Error> {
-        use serde::de::Error as _;
-        match toml::Value::deserialize(deserializer)? {
-            toml::Value::Integer(n) => u32::try_from(n).map(Lookback::Periods).map_err(|_| {
-                D::Error::custom(format!("beta.lookback = {n} is not a positive count"))
-            }),
-            toml::Value::String(s) => Lookback::parse_span(&s).map_err(D::Error::custom),
-            other => Err(D::Error::custom(format!(
-                "beta.lookback: expected a count such as 60 or a span such as \"5y\", found {other}"
-            ))),
-        }
-    }
 }
 
 impl BetaSettings {
@@ -504,29 +414,6 @@ impl Default for Premiums {
             country_justification: String::new(),
             company_specific_justification: String::new(),
         }
-    }
-}
-
-impl Premiums {
-    /// The premiums as written, summed (the country premium unscaled).
-    pub fn total(&self) -> f64 {
-        self.size + self.country + self.company_specific
-    }
-
-    /// The country premium as it enters the cost of equity with relevered beta `beta`: CRP,
-    /// λ·CRP, or βL·CRP.
-    pub fn country_applied(&self, beta: f64) -> f64 {
-        match self.country_method {
-            CountryMethod::Added => self.country,
-            CountryMethod::Lambda => self.country_lambda * self.country,
-            CountryMethod::Beta => beta * self.country,
-        }
-    }
-
-    /// The premiums added to the CAPM cost of equity: size + country as applied +
-    /// company-specific.
-    pub fn total_applied(&self, beta: f64) -> f64 {
-        self.size + self.country_applied(beta) + self.company_specific
     }
 }
 

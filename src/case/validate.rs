@@ -66,8 +66,22 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
     Ok(())
 }
 
-/// Range checks a type cannot express. The message names the key and the offending value.
+/// Range checks a type cannot express, section by section. The message names the key and the
+/// offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    validate_case_and_market(case)?;
+    validate_window(case)?;
+    validate_target(case)?;
+    validate_debt(case)?;
+    validate_components(case)?;
+    validate_conversion(case)?;
+    validate_premiums(case)?;
+    validate_uncertainty(case)?;
+    validate_peers(case)
+}
+
+/// `[case]` and the rates of `[market]`.
+fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> {
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
@@ -92,6 +106,12 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         -0.5,
         1.0,
     )?;
+    Ok(())
+}
+
+/// The return window of `[beta]`: its length against the data, the estimator options, the
+/// rolling windows and the flag thresholds.
+fn validate_window(case: &CaseFile) -> std::result::Result<(), String> {
     let beta = &case.beta;
     if beta.min_observations < 3 {
         return Err(format!(
@@ -171,6 +191,11 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             return Err(format!("{key} = {value} is outside [0, 1]"));
         }
     }
+    Ok(())
+}
+
+/// `[target]`: exactly one ratio (unless a source gives it), and the tax rate.
+fn validate_target(case: &CaseFile) -> std::result::Result<(), String> {
     let target = &case.target;
     validate_structure(case)?;
     match (target.debt_to_equity, target.debt_to_capital) {
@@ -193,8 +218,11 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         (None, Some(dc)) => rate("target.debt_to_capital", dc, 0.0, 1.0)?,
     }
     rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
-    validate_debt(case)?;
-    validate_components(case)?;
+    Ok(())
+}
+
+/// `[conversion]`: inflation rates the Fisher relation can divide by.
+fn validate_conversion(case: &CaseFile) -> std::result::Result<(), String> {
     if let Some(conversion) = &case.conversion {
         for (key, value) in [
             ("conversion.inflation_case", conversion.inflation_case),
@@ -212,6 +240,11 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             return Err("conversion.currency is empty".into());
         }
     }
+    Ok(())
+}
+
+/// `[premiums]`: each premium and the country exposure in range.
+fn validate_premiums(case: &CaseFile) -> std::result::Result<(), String> {
     for (key, value) in [
         ("premiums.size", case.premiums.size),
         ("premiums.country", case.premiums.country),
@@ -219,7 +252,24 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
     ] {
         rate(key, value, -0.5, 1.0)?;
     }
+    rate(
+        "premiums.country_lambda",
+        case.premiums.country_lambda,
+        0.0,
+        5.0,
+    )?;
+    Ok(())
+}
+
+/// `[uncertainty]`: enough draws for percentiles, and ranges that are ranges.
+fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
     let u = &case.uncertainty;
+    if !(u.influence_threshold.is_finite() && u.influence_threshold > 0.0) {
+        return Err(format!(
+            "uncertainty.influence_threshold = {} must be a positive decimal (0.0025 is 25 bp)",
+            u.influence_threshold
+        ));
+    }
     if u.draws < 100 {
         return Err(format!(
             "uncertainty.draws = {} is too few for percentiles; use at least 100",
@@ -238,12 +288,11 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
             }
         }
     }
-    rate(
-        "premiums.country_lambda",
-        case.premiums.country_lambda,
-        0.0,
-        5.0,
-    )?;
+    Ok(())
+}
+
+/// `[[peer]]`: names unique, figures in range, keys consistent with `[leverage]`.
+fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
     if case.peers.is_empty() {
         return Err("the case has no [[peer]] tables".into());
     }

@@ -27,8 +27,8 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv and
-    /// returns.csv.
+    /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv,
+    /// returns.csv, the charts (figures/*.svg) and report.html.
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),

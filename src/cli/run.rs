@@ -1,10 +1,13 @@
-//! `hurdle run CASE.toml [--out DIR] [--template FILE] [--set KEY=VALUE]...`
+//! `hurdle run CASE.toml [--out DIR] [--template FILE] [--no-figures] [--set KEY=VALUE]...`
 //!
-//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv` and `returns.csv` to
-//! DIR (default: `output/` beside the case file), each atomically; prints a short summary.
+//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv`, the
+//! charts `figures/*.svg` and `report.html` to DIR (default: `output/` beside the case file),
+//! each atomically and only after all of them rendered; prints a short summary. `--no-figures`
+//! writes the text outputs only (no charts, no report).
 
 use std::path::PathBuf;
 
+use hurdle::report::figures::{self, report::Report, FigureFile};
 use hurdle::report::format::{fixed, label, percent};
 use hurdle::report::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
@@ -21,6 +24,9 @@ pub struct Args {
     /// Memo template to use instead of the shipped one (minijinja syntax).
     #[arg(long, value_name = "FILE")]
     pub template: Option<PathBuf>,
+    /// Write the text outputs only: no figures/*.svg and no report.html.
+    #[arg(long)]
+    pub no_figures: bool,
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
@@ -34,7 +40,22 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let outputs: [&dyn Render; 4] = [&memo, &Json, &PeersCsv, &ReturnsCsv];
+    let figures = if args.no_figures {
+        Vec::new()
+    } else {
+        figures::draw_all(&valuation)?
+    };
+    let memo = memo.with_figures(figures::index(&figures));
+    let report = Report {
+        memo: &memo,
+        figures: &figures,
+    };
+    let files: Vec<FigureFile> = figures.iter().map(FigureFile).collect();
+    let mut outputs: Vec<&dyn Render> = vec![&memo, &Json, &PeersCsv, &ReturnsCsv];
+    if !args.no_figures {
+        outputs.extend(files.iter().map(|f| f as &dyn Render));
+        outputs.push(&report);
+    }
     let written = report::write_all(&out, &valuation, &outputs)?;
     print!("{}", summary(&valuation));
     for path in written {
@@ -73,10 +94,21 @@ fn summary(v: &Valuation) -> String {
             percent(v.cost.cost_of_debt_after_tax, 2)
         ),
         format!(
-            "  weights E {} / D {} | WACC {}",
+            "  weights E {} / D {} | WACC {} (point estimate){}",
             percent(v.cost.weights.equity, 1),
             percent(v.cost.weights.debt, 1),
-            percent(v.cost.wacc, 2)
+            percent(v.cost.wacc, 2),
+            match &v.uncertainty {
+                Some(u) => format!(
+                    ", 90% interval {} to {} (beta estimation error), {} to {} with the peer set \
+                     resampled",
+                    percent(u.p05, 2),
+                    percent(u.p95, 2),
+                    percent(u.peer_set.p05, 2),
+                    percent(u.peer_set.p95, 2)
+                ),
+                None => String::new(),
+            }
         ),
     ];
     for note in &v.notes {

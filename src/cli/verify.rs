@@ -8,7 +8,7 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE};
+use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE, NOT_COMPARED};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -79,6 +79,7 @@ fn render(r: &Verification) -> String {
             m.path, m.recorded, m.recomputed
         ));
     }
+    out.push_str(&format!("  note: {NOT_COMPARED}\n"));
     out.push_str(&format!(
         "{}: {} figures compared, {} mismatched (relative tolerance {:e})\n",
         if r.reproduced {

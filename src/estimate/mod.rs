@@ -9,6 +9,7 @@
 use chrono::NaiveDate;
 
 use crate::beta::diagnostics::{FlagRule, PeerFlag};
+use crate::beta::fitted_line::{self, FittedLine};
 use crate::beta::rolling::{self, RollingPoint, Stability};
 use crate::beta::{self, BetaEstimate, EstimatorSpec};
 use crate::io::series::SeriesView;
@@ -148,6 +149,8 @@ pub struct SecurityEstimate {
     pub rolling: Vec<RollingPoint>,
     /// Range and trend of the rolling betas (`None` with fewer than two windows).
     pub stability: Option<Stability>,
+    /// The fitted line α + β·x over the index returns used, with its 95% band.
+    pub fitted_line: FittedLine,
     /// The aligned returns the estimate was made from.
     pub returns: AlignedReturns,
 }
@@ -227,10 +230,22 @@ pub fn estimate_security(
         &aligned.period_ends,
         &asset_excess,
         &market_excess,
-        spec.rolling.window as usize,
-        spec.rolling.step as usize,
-        spec.rolling.min_observations as usize,
+        &aligned.market_shifted,
+        &rolling::RollingSpec {
+            method: spec.estimator.method,
+            std_errors: spec.estimator.std_errors,
+            newey_west_lags: spec.estimator.newey_west_lags.map(|l| l as usize),
+            window: spec.rolling.window as usize,
+            step: spec.rolling.step as usize,
+            min_observations: spec.rolling.min_observations as usize,
+        },
     );
+    let (x_min, x_max) = market_excess
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(low, high), &x| {
+            (low.min(x), high.max(x))
+        });
+    let fitted_line = fitted_line::fitted_line(&estimate, x_min, x_max);
     let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
     let flags = spec.flags.flags(&estimate, periods_in_window, stale_share);
     let excluding_flags = spec.flags.excluding(&flags);
@@ -245,6 +260,7 @@ pub fn estimate_security(
         excluding_flags,
         rolling: rolling_points,
         stability,
+        fitted_line,
         returns: aligned,
     })
 }

@@ -1,7 +1,8 @@
 //! `memo.md`: the reviewer's memo, rendered by minijinja from a template.
 //!
-//! The template sees the [`Valuation`] as `v` and may only format it: the filters `pct`, `bp`
-//! and `num` call [`crate::report::format`], and undefined names are errors (strict mode), so a typo in a
+//! The template sees the [`Valuation`] as `v` and the charts of the run as `figures` (see
+//! [`crate::report::figures::Index`]), and may only format them: the filters `pct`, `bp` and `num` call
+//! [`crate::report::format`], and undefined names are errors (strict mode), so a typo in a
 //! user's template fails loudly instead of printing an empty cell.
 
 use std::path::Path;
@@ -17,10 +18,11 @@ use crate::valuation::Valuation;
 /// The memo template shipped with the tool (`templates/memo.md.j2`).
 pub const DEFAULT_TEMPLATE: &str = include_str!("../../templates/memo.md.j2");
 
-/// A memo renderer holding its template's name and text.
+/// A memo renderer holding its template's name and text, and the charts it may link.
 pub struct Memo {
     name: String,
     source: String,
+    figures: crate::report::figures::Index,
 }
 
 impl Memo {
@@ -29,6 +31,7 @@ impl Memo {
         Memo {
             name: "templates/memo.md.j2".to_string(),
             source: DEFAULT_TEMPLATE.to_string(),
+            figures: crate::report::figures::Index::default(),
         }
     }
 
@@ -42,7 +45,14 @@ impl Memo {
         Ok(Memo {
             name: path.display().to_string(),
             source,
+            figures: crate::report::figures::Index::default(),
         })
+    }
+
+    /// The same memo, with the charts the template sees as `figures` (paths relative to the
+    /// output folder; by default none).
+    pub fn with_figures(self, figures: crate::report::figures::Index) -> Memo {
+        Memo { figures, ..self }
     }
 
     fn template_error(&self, e: &minijinja::Error) -> Error {
@@ -92,7 +102,10 @@ impl Render for Memo {
         let template = env
             .get_template(&self.name)
             .map_err(|e| self.template_error(&e))?;
-        let context = minijinja::context! { v => Value::from(Serde(valuation)) };
+        let context = minijinja::context! {
+            v => Value::from(Serde(valuation)),
+            figures => Value::from(Serde(&self.figures)),
+        };
         let mut text = template
             .render(context)
             .map_err(|e| self.template_error(&e))?;

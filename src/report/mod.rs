@@ -1,9 +1,10 @@
 //! Outputs: each file format is one [`Render`] implementation that turns a [`Valuation`] into
 //! bytes; [`write_all`] renders every file first and only then writes them, each atomically
-//! (a temporary file in the same folder, then a rename), so a failure leaves no output at all
-//! and a crash never leaves half a file. Inputs are never opened for writing.
+//! (a temporary file in the same folder, flushed, then a rename), so a failure leaves no output
+//! at all and a crash never leaves half a file. Inputs are never opened for writing.
 
 pub mod csv;
+pub mod figures;
 pub mod format;
 pub mod json;
 pub mod memo;
@@ -25,7 +26,10 @@ pub trait Render {
     fn render(&self, valuation: &Valuation) -> Result<Vec<u8>>;
 }
 
-/// Renders every output, then writes them all into `dir` (created when missing).
+/// Renders every output, then writes them all into `dir` (created when missing): each to a
+/// temporary file beside its target, all flushed to disk together (concurrently: a journaling
+/// file system commits concurrent flushes at once, so twenty files cost about one flush), and
+/// only then each renamed onto its name.
 pub fn write_all(
     dir: &Path,
     valuation: &Valuation,
@@ -46,10 +50,41 @@ pub fn write_rendered(dir: &Path, rendered: Vec<(String, Vec<u8>)>) -> Result<Ve
         action: "cannot create the output folder",
         source,
     })?;
-    let mut written = Vec::with_capacity(rendered.len());
-    for (name, bytes) in rendered {
-        let path = dir.join(name);
-        write_atomic(&path, &bytes)?;
+    let staged = rendered
+        .iter()
+        // A name may hold a subfolder (`figures/…`), created on the way.
+        .map(|(name, bytes)| stage(&dir.join(name), bytes).map(|file| (dir.join(name), file)))
+        .collect::<Result<Vec<_>>>()?;
+    // One thread per file: the flushes wait on the disk, not on a core.
+    std::thread::scope(|scope| {
+        let flushes: Vec<_> = staged
+            .iter()
+            .map(|(path, file)| {
+                scope.spawn(move || {
+                    file.as_file().sync_all().map_err(|source| Error::Io {
+                        path: path.clone(),
+                        action: "cannot flush",
+                        source,
+                    })
+                })
+            })
+            .collect();
+        flushes
+            .into_iter()
+            .zip(&staged)
+            .try_for_each(|(flush, (path, _))| {
+                flush.join().unwrap_or_else(|_| {
+                    Err(Error::Io {
+                        path: path.clone(),
+                        action: "cannot flush",
+                        source: std::io::Error::other("the flushing thread stopped"),
+                    })
+                })
+            })
+    })?;
+    let mut written = Vec::with_capacity(staged.len());
+    for (path, file) in staged {
+        persist(&path, file)?;
         written.push(path);
     }
     Ok(written)
@@ -69,10 +104,27 @@ pub fn write_file(path: &Path, bytes: &[u8]) -> Result<()> {
 
 /// Writes `bytes` to `path` through a temporary file in the same folder and a rename.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    let file = stage(path, bytes)?;
+    file.as_file().sync_all().map_err(|source| Error::Io {
+        path: path.to_path_buf(),
+        action: "cannot flush",
+        source,
+    })?;
+    persist(path, file)
+}
+
+/// `bytes` in a new temporary file beside `path` (its folder created when missing), not yet
+/// flushed or renamed.
+fn stage(path: &Path, bytes: &[u8]) -> Result<tempfile::NamedTempFile> {
     let dir = path
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
+    std::fs::create_dir_all(dir).map_err(|source| Error::Io {
+        path: dir.to_path_buf(),
+        action: "cannot create the output folder",
+        source,
+    })?;
     let io_error = |action: &'static str| {
         move |source| Error::Io {
             path: path.to_path_buf(),
@@ -85,12 +137,15 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
     temporary
         .write_all(bytes)
         .map_err(io_error("cannot write"))?;
-    temporary
-        .as_file()
-        .sync_all()
-        .map_err(io_error("cannot flush"))?;
-    temporary
-        .persist(path)
-        .map_err(|e| io_error("cannot rename the temporary file onto")(e.error))?;
+    Ok(temporary)
+}
+
+/// Renames a staged file onto `path`.
+fn persist(path: &Path, file: tempfile::NamedTempFile) -> Result<()> {
+    file.persist(path).map_err(|e| Error::Io {
+        path: path.to_path_buf(),
+        action: "cannot rename the temporary file onto",
+        source: e.error,
+    })?;
     Ok(())
 }

@@ -61,6 +61,7 @@ pub fn markdown(r: &Verification) -> String {
             let _ = writeln!(w, "| `{}` | {} | {} |", m.path, m.recorded, m.recomputed);
         }
     }
+    let _ = writeln!(w, "\nNot compared: {}.", crate::audit::verify::NOT_COMPARED);
     let _ = writeln!(
         w,
         "\nA match shows that the same inputs give the same figures; it does not show that the \

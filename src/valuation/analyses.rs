@@ -30,6 +30,9 @@ pub struct Grid {
     pub rows: Axis,
     pub columns: Axis,
     pub cells: Vec<Vec<f64>>,
+    /// `[row, column]` of the cell whose two values are the case's own (it reproduces the
+    /// case's figure); `null` when an axis does not hold the case's value.
+    pub base_cell: Option<[usize; 2]>,
 }
 
 /// Percentiles of the simulated WACC.
@@ -47,6 +50,61 @@ pub struct Uncertainty {
     pub p50: f64,
     pub p75: f64,
     pub p95: f64,
+    /// `"correlated"` or `"independent"` (`uncertainty.beta_errors`).
+    pub beta_errors: crate::case::BetaErrors,
+    /// Correlation of the peers' beta errors, peer order (the identity when drawn independently).
+    pub beta_error_correlation: Vec<Vec<f64>>,
+    /// The interval that also resamples the peer set.
+    pub peer_set: PeerSetInterval,
+    /// The WACC without each peer that enters the aggregation, in peer order.
+    pub leave_one_out: Vec<LeaveOneOut>,
+    /// A leave-one-out change above this (decimal) names the peer as influential.
+    pub influence_threshold: f64,
+    /// The WACC under the usual alternative frequencies and windows (empty when turned off).
+    pub specifications: Vec<Specification>,
+    /// The estimation-error draws binned, for the memo's chart (see `audit::histogram`).
+    pub histogram: Histogram,
+}
+
+/// Percentiles of the WACC when each draw resamples the peers (with replacement, among those
+/// aggregated) and draws their betas from their joint sampling distribution.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PeerSetInterval {
+    /// Draws that gave a WACC (a resample whose betas admit no Vasicek prior is skipped).
+    pub draws: u32,
+    pub mean: f64,
+    pub p05: f64,
+    pub p25: f64,
+    pub p50: f64,
+    pub p75: f64,
+    pub p95: f64,
+}
+
+/// The case's WACC without one peer.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LeaveOneOut {
+    pub peer: String,
+    /// `null` when leaving the peer out leaves no peer to aggregate.
+    pub wacc: Option<f64>,
+    /// `wacc` less the case's WACC, in basis points.
+    pub change_bp: Option<f64>,
+    /// Whether |change| is above `influence_threshold`.
+    pub influential: bool,
+}
+
+/// The WACC under one alternative specification of the return window.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Specification {
+    pub frequency: crate::market::sampling::Frequency,
+    /// The window: a span such as `"3y"`, or the case's own `beta.lookback`.
+    pub window: String,
+    /// The `--set` assignments that give this row, so anyone can rerun it.
+    pub overrides: Vec<String>,
+    /// Whether this is (the closest row to) the case's own choice.
+    pub case_choice: bool,
+    /// `null` when the data cannot support it (`reason` says why).
+    pub wacc: Option<f64>,
+    pub reason: Option<String>,
 }
 
 /// The components of a WACC build-up.
@@ -215,7 +273,39 @@ pub struct Bridge {
     pub steps: Vec<Step>,
     /// `to.stated_wacc − to.wacc`: what the claim's own components do not explain.
     pub unexplained: Option<f64>,
-    /// `from.stated_wacc − from.wacc`: for a case with preferred equity or leases, their share
-    /// of its WACC, which the build-up leaves out.
+    /// `from.stated_wacc − from.wacc`: 0 for a case, whose build-up includes preferred equity
+    /// and leases.
     pub unexplained_from: Option<f64>,
+    /// The bridge as waterfall bars, by Shapley value (see `audit::waterfall`).
+    pub waterfall: Vec<WaterfallBar>,
+}
+
+/// Bin edges (one more than the counts) and counts of the values in each bin.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Histogram {
+    pub edges: Vec<f64>,
+    pub counts: Vec<u32>,
+    /// The bin width (the round step the edges are multiples of).
+    pub bin_width: f64,
+}
+
+/// What a bar stands for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum BarKind {
+    /// A WACC itself, drawn from zero.
+    Total,
+    /// An input group's Shapley value.
+    Group,
+    /// What no input group explains.
+    Residue,
+}
+
+/// One bar: it runs from `start` to `end` (WACC levels; `start` is 0 for a total).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct WaterfallBar {
+    pub label: String,
+    pub kind: BarKind,
+    pub start: f64,
+    pub end: f64,
 }

@@ -272,6 +272,7 @@ pub fn peer_results(
                 stale_share: estimated.stale_share,
                 flags: estimated.flags.clone(),
                 stability: estimated.stability.clone(),
+                fitted_line: estimated.fitted_line.clone(),
             }
         })
         .collect()

@@ -103,6 +103,8 @@ pub struct PeerResult {
     pub flags: Vec<PeerFlag>,
     /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
     pub stability: Option<rolling::Stability>,
+    /// The fitted line α + β·x over the index returns used, with its 95% band (for the chart).
+    pub fitted_line: beta::fitted_line::FittedLine,
 }
 
 /// Aggregation and relevering.

@@ -55,6 +55,64 @@ def sandwich(weights, residuals, parameters, kind, lags):
     return weights @ (omega * kernel) @ weights.T
 
 
+def reference_beta(method, kind, lags, asset, market, shifted):
+    """Beta, its SE, alpha, alpha's SE, Cov(alpha, beta) and the residual degrees of freedom of
+    one estimator, from its published formula: OLS (Sharpe 1963) and Dimson (1979) by numpy
+    least squares on [1, shifted and current market], beta the sum of the slopes; Scholes and
+    Williams (1977) from scipy's simple-regression slopes and numpy's autocorrelation; standard
+    errors by `sandwich` (classical, HC1, Newey-West)."""
+    n = len(asset)
+    if method in ("ols", "dimson"):
+        offsets = sorted(list(shifted) + [0]) if method == "dimson" else [0]
+        columns = [market if o == 0 else shifted[o] for o in offsets]
+        design = np.column_stack([np.ones(n)] + columns)
+        coef, _, rank, _ = np.linalg.lstsq(design, asset, rcond=None)
+        assert rank == design.shape[1]
+        residuals = asset - design @ coef
+        k = design.shape[1]
+        cov = sandwich(np.linalg.inv(design.T @ design) @ design.T, residuals, k, kind, lags)
+        ones = np.r_[0.0, np.ones(k - 1)]
+        return dict(beta=coef[1:].sum(), se=np.sqrt(ones @ cov @ ones), alpha=coef[0],
+                    alpha_se=np.sqrt(cov[0, 0]), cov_ab=cov[0, 1:].sum(), df=n - k,
+                    coef=coef, cov=cov, offsets=offsets, residuals=residuals)
+    assert method == "scholes-williams"
+    lag, lead = shifted[-1], shifted[1]
+    slopes = [stats.linregress(x, asset).slope for x in (lag, market, lead)]
+    rho = np.corrcoef(market, lag)[0, 1]
+    beta = sum(slopes) / (1 + 2 * rho)
+    design = np.column_stack([np.ones(n), lag, market, lead])
+    coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
+    residuals = asset - design @ coef
+    w = sum((x - x.mean()) / ((x - x.mean()) ** 2).sum() for x in (lag, market, lead)) / (1 + 2 * rho)
+    a = np.vstack([1 / n - market.mean() * w, w])
+    cov = sandwich(a, residuals, 4, kind, lags)
+    return dict(beta=beta, se=np.sqrt(cov[1, 1]), alpha=asset.mean() - beta * market.mean(),
+                alpha_se=np.sqrt(cov[0, 0]), cov_ab=cov[0, 1], df=n - 4, slopes=slopes, rho=rho)
+
+
+def newey_west_lags(settings, n):
+    """The case's lags, else Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9))."""
+    return settings.get("newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
+
+
+def check_fitted_line(name, peer, market):
+    """The mean-response band (textbook): alpha + beta x +/- t(0.975, df) sqrt(Var a + 2x Cov + x^2 Var b),
+    over the index returns used, with scipy's t quantile."""
+    line = peer["fitted_line"]
+    t975 = stats.t.ppf(0.975, peer["degrees_of_freedom"])
+    check(f"{name} band t quantile (scipy)", line["t_critical"], t975)
+    points = line["points"]
+    check(f"{name} line starts at the lowest index return", points[0]["x"], market.min())
+    check(f"{name} line ends at the highest index return", points[-1]["x"], market.max())
+    for p in points:
+        x = p["x"]
+        fitted = peer["alpha"] + peer["beta"] * x
+        half = t975 * np.sqrt(peer["alpha_std_error"] ** 2 + 2 * x * peer["alpha_beta_covariance"] + x * x * peer["beta_std_error"] ** 2)
+        check(f"{name} line at {x:.4f}", p["fitted"], fitted)
+        check(f"{name} band low at {x:.4f}", p["low"], fitted - half)
+        check(f"{name} band high at {x:.4f}", p["high"], fitted + half)
+
+
 def check_inference(name, peer, beta, se, alpha, alpha_se, df):
     t975 = stats.t.ppf(0.975, df)
     check(f"{name} beta", peer["beta"], beta)
@@ -96,6 +154,7 @@ def check_estimator(name, peer, data, asset, market, result):
         ones = np.r_[0.0, np.ones(k - 1)]
         beta, se = coef[1:].sum(), np.sqrt(ones @ cov @ ones)
         check_inference(name, peer, beta, se, coef[0], np.sqrt(cov[0, 0]), n - k)
+        check(f"{name} Cov(alpha, beta)", peer["alpha_beta_covariance"], cov[0, 1:].sum())
         for i, c in enumerate(peer["market_coefficients"]):
             check(f"{name} offset {c['offset']} slope", c["estimate"], coef[1 + offsets.index(c["offset"])])
             check(f"{name} offset {c['offset']} SE", c["std_error"], np.sqrt(cov[1 + i, 1 + i]))
@@ -122,6 +181,7 @@ def check_estimator(name, peer, data, asset, market, result):
         cov = sandwich(a, residuals, 4, kind, lags)
         alpha = asset.mean() - beta * market.mean()
         check_inference(name, peer, beta, np.sqrt(cov[1, 1]), alpha, np.sqrt(cov[0, 0]), n - 4)
+        check(f"{name} Cov(alpha, beta)", peer["alpha_beta_covariance"], cov[0, 1])
 
     used = peer["beta"]
     adjustment = settings["adjustment"]
@@ -193,6 +253,11 @@ def check_diagnostics(name, peer, data, asset, market, result):
     s = np.sqrt(e @ e / (n - design.shape[1]))
     studentised = e / (s * np.sqrt(1 - hat))
     check(f"{name} |studentised| > 3", peer["large_studentised_residuals"], int(np.sum(np.abs(studentised) > 3)))
+    global checks
+    checks += 1
+    rows = [int(i) for i in np.flatnonzero(np.abs(studentised) > 3)]
+    if peer["large_studentised_residual_rows"] != rows:
+        failures.append(f"{name} flagged rows: hurdle {peer['large_studentised_residual_rows']} vs numpy {rows}")
     b = result["settings"]["beta"]
     window = peer["periods_in_window"]
     expected = []
@@ -202,7 +267,6 @@ def check_diagnostics(name, peer, data, asset, market, result):
         expected.append("low_r_squared")
     if peer["periods_dropped"]["asset_stale"] / window > b["flag_stale_share"]:
         expected.append("stale_prices")
-    global checks
     checks += 1
     if peer["flags"] != expected:
         failures.append(f"{name} flags: hurdle {peer['flags']} vs reference {expected}")
@@ -236,17 +300,22 @@ def check_shifts_are_the_market_series(name, data, shifted, result):
 
 def check_rolling(out_dir, result):
     """rolling.csv (written by `hurdle rolling`), when present: every window refitted from
-    scratch with scipy.stats.linregress on the returns.csv rows inside it (the window's
-    `window_periods` grid periods ending at window_end); slope and SE to 1e-9 relative."""
+    scratch on the returns.csv rows inside it (the window's `window_periods` grid periods ending
+    at window_end) with the case's own estimator and standard errors (`reference_beta`; for
+    classical OLS also scipy.stats.linregress), Newey-West lags by the rule on the window's own
+    N unless the case fixes them; slope and SE to 1e-9 relative."""
     import os
     path = f"{out_dir}/rolling.csv"
     if not os.path.exists(path):
         return
-    periods = sorted({r["period_end"] for rows in ROWS.values() for r in rows})
-    position = {p: i for i, p in enumerate(periods)}
     with open(path, newline="") as f:
         windows = list(csv.DictReader(f))
     assert windows, "rolling.csv has no rows"
+    # The grid's periods: those with a return of some peer, and every window's end (with a led
+    # index return, the last period has no usable return but still ends windows).
+    periods = sorted({r["period_end"] for rows in ROWS.values() for r in rows} | {w["window_end"] for w in windows})
+    position = {p: i for i, p in enumerate(periods)}
+    settings = result["settings"]["beta"]
     for w in windows:
         peer = next(p for p in result["peers"] if p["name"] == w["peer"])
         length = peer["stability"]["window_periods"]
@@ -255,11 +324,17 @@ def check_rolling(out_dir, result):
         rows = [r for r in ROWS[w["peer"]] if r["period_end"] in inside]
         y = np.array([float(r["asset_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
         x = np.array([float(r["market_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
-        fit = stats.linregress(x, y)
         label = f"{w['peer']} rolling {w['window_end']}"
         check(f"{label} observations", int(w["observations"]), len(rows))
-        check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
-        check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
+        kind = peer["std_errors"]
+        lags = newey_west_lags(settings, len(rows)) if kind == "newey-west" else 0
+        ref = reference_beta(peer["method"], kind, lags, y, x, shifted_columns(rows))
+        check(f"{label} beta ({peer['method']})", float(w["beta"]), ref["beta"])
+        check(f"{label} SE ({kind})", float(w["std_error"]), ref["se"])
+        if peer["method"] == "ols" and kind == "classical":
+            fit = stats.linregress(x, y)
+            check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
+            check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
     betas = defaultdict(list)
     for w in windows:
         betas[w["peer"]].append(float(w["beta"]))
@@ -267,6 +342,31 @@ def check_rolling(out_dir, result):
         if peer["stability"]:
             check(f"{peer['name']} rolling min", peer["stability"]["min"], min(betas[peer["name"]]))
             check(f"{peer['name']} rolling max", peer["stability"]["max"], max(betas[peer["name"]]))
+
+
+def check_histogram(result):
+    """The Monte Carlo histogram: counts add up to the draws, the edges are equally spaced by the
+    bin width, and each stored percentile lies in a bin whose cumulative count brackets it (the
+    empirical distribution function, counted from the histogram alone)."""
+    u = result.get("uncertainty")
+    if not u:
+        return
+    h = u["histogram"]
+    edges, counts = np.array(h["edges"]), np.array(h["counts"])
+    check("histogram counts sum to the draws", int(counts.sum()), u["draws"])
+    check("histogram bins", len(edges), len(counts) + 1)
+    for width in np.diff(edges):
+        check("histogram bin width", width, h["bin_width"], 1e-6)
+    cumulative = np.concatenate([[0], np.cumsum(counts)]) / counts.sum()
+    for key, q in (("p05", 0.05), ("p25", 0.25), ("p50", 0.5), ("p75", 0.75), ("p95", 0.95)):
+        i = int(np.searchsorted(edges, u[key], side="right")) - 1
+        global checks
+        checks += 1
+        # The bin holding the percentile must hold the q-th draw: cumulative share before it at
+        # most q, after it at least q (one draw of slack for the interpolation between draws).
+        slack = 1 / counts.sum()
+        if not (0 <= i < len(counts) and cumulative[i] <= q + slack and cumulative[i + 1] >= q - slack):
+            failures.append(f"{key} {u[key]} is not in the bin the histogram's counts put it")
 
 
 ROWS = {}
@@ -294,6 +394,7 @@ def main(out_dir):
         n = len(asset)
         check(f"{name} observations", peer["observations"], n)
         check_diagnostics(name, peer, data, asset, market, result)
+        check_fitted_line(name, peer, market)
         if peer["method"] != "ols" or peer["std_errors"] != "classical" or peer.get("vasicek"):
             check_estimator(name, peer, data, asset, market, result)
             continue
@@ -309,6 +410,7 @@ def main(out_dir):
         check(f"{name} beta (numpy)", peer["beta"], coef[1])
         check(f"{name} alpha SE (numpy)", peer["alpha_std_error"], np.sqrt(cov[0, 0]))
         check(f"{name} residual SE (numpy)", peer["residual_std_error"], np.sqrt(s2))
+        check(f"{name} Cov(alpha, beta) (numpy)", peer["alpha_beta_covariance"], cov[0, 1])
 
         # scipy: linregress gives slope, intercept, their SEs, r and the slope's p-value.
         fit = stats.linregress(market, asset)
@@ -423,6 +525,7 @@ def main(out_dir):
     check("WACC", result["wacc"], we * ke + wd * kd + pref["weight"] * pref.get("cost", 0.0) + leases["weight"] * kl)
 
     check_rolling(out_dir, result)
+    check_histogram(result)
 
     for line in failures:
         print("MISMATCH", line)

@@ -1,0 +1,106 @@
+//! The specification range: the case's WACC under the usual alternative return specifications —
+//! daily, weekly and monthly returns over 2-, 3- and 5-year windows — so a reader sees how much
+//! the choice of method moves the answer beside the statistical error of one method.
+//!
+//! Each row is the case rerun with `--set` overrides (frequency, a calendar-span lookback, and the
+//! minimum observations scaled to the window as `betas --compare-frequencies` scales them), so a
+//! row equals `hurdle run` with the same `--set` values. A row the data or settings cannot
+//! support says why instead of failing the run.
+
+use crate::case::{label, with_overrides, Case};
+use crate::error::Result;
+use crate::market::sampling::Frequency;
+use crate::valuation::analyses::Specification;
+use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates};
+
+/// The frequencies and window lengths (years) of the range.
+const FREQUENCIES: [Frequency; 3] = [Frequency::Daily, Frequency::Weekly, Frequency::Monthly];
+const WINDOW_YEARS: [u32; 3] = [2, 3, 5];
+
+/// Every row of the range, the case's own choice marked (added as a row of its own when it is
+/// not one of the nine).
+pub fn range(inputs: &Inputs, estimates: &PeerEstimates, point: f64) -> Result<Vec<Specification>> {
+    let case = &inputs.case;
+    let mut rows = Vec::with_capacity(FREQUENCIES.len() * WINDOW_YEARS.len() + 1);
+    for frequency in FREQUENCIES {
+        for years in WINDOW_YEARS {
+            rows.push(row(inputs, estimates, frequency, years));
+        }
+    }
+    if !rows.iter().any(|r| r.case_choice) {
+        let beta = &case.settings.beta;
+        rows.push(Specification {
+            frequency: beta.frequency,
+            window: match beta.window_start {
+                Some(start) => format!("from {start}"),
+                None => beta.lookback.to_string().trim_matches('"').to_string(),
+            },
+            overrides: Vec::new(),
+            case_choice: true,
+            wacc: Some(point),
+            reason: None,
+        });
+    }
+    Ok(rows)
+}
+
+/// One row: the overrides, then the WACC or the reason there is none.
+fn row(
+    inputs: &Inputs,
+    estimates: &PeerEstimates,
+    frequency: Frequency,
+    years: u32,
+) -> Specification {
+    let case = &inputs.case;
+    let mut overrides = vec![
+        format!("beta.frequency={}", label(&frequency)),
+        format!("beta.lookback={years}y"),
+    ];
+    let outcome = (|| -> std::result::Result<(f64, bool), String> {
+        if let Some(start) = case.settings.beta.window_start {
+            return Err(format!(
+                "the case fixes beta.window_start = {start}, which a lookback does not replace"
+            ));
+        }
+        overrides.push(format!(
+            "beta.min_observations={}",
+            scaled_minimum(case, frequency, years)
+        ));
+        let variant = with_overrides(case, &overrides).map_err(|e| e.to_string())?;
+        let estimated = estimates_for(&variant, inputs, estimates).map_err(|e| e.to_string())?;
+        let cost = cost_of_capital(&variant, inputs, &estimated).map_err(|e| e.to_string())?;
+        Ok((cost.wacc, estimated.spec == estimates.spec))
+    })();
+    let (wacc, case_choice, reason) = match outcome {
+        Ok((wacc, same)) => (Some(wacc), same, None),
+        Err(reason) => (None, false, Some(reason)),
+    };
+    Specification {
+        frequency,
+        window: format!("{years}y"),
+        overrides,
+        case_choice,
+        wacc,
+        reason,
+    }
+}
+
+/// The case's minimum observations scaled to a window of `years` at `frequency`: ceil(min ·
+/// periods / the case's periods), at least 3 and at most the window's periods.
+fn scaled_minimum(case: &Case, frequency: Frequency, years: u32) -> u32 {
+    let date = case.settings.case.valuation_date.0;
+    let beta = &case.settings.beta;
+    let base = f64::from(beta.lookback_periods(date));
+    let variant = crate::case::BetaSettings {
+        frequency,
+        lookback: crate::case::Lookback::Span {
+            count: years,
+            unit: crate::case::SpanUnit::Years,
+        },
+        ..beta.clone()
+    };
+    let periods = variant.lookback_periods(date);
+    let scaled =
+        (f64::from(case.settings.beta.min_observations) * f64::from(periods) / base).ceil();
+    (scaled as u32).clamp(3, periods.max(3))
+}

@@ -1,0 +1,368 @@
+//! The Markdown the memo is written in, as HTML blocks for the report.
+//!
+//! The report must say everything the memo says, from whatever template rendered it, so it
+//! converts the rendered memo instead of keeping a second template. The memo uses a small part
+//! of Markdown (headings, paragraphs, `-` lists with indented continuation lines, pipe tables
+//! with alignment, images, `**bold**`, `` `code` ``, links, backslash escapes), and that part is
+//! what this converts; anything else passes through as escaped text, never as raw HTML.
+
+/// One block of the document.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Block {
+    /// A heading: level (1–6), its text (plain) and its HTML.
+    Heading {
+        level: usize,
+        text: String,
+        html: String,
+    },
+    /// A paragraph made only of images: (alt text, path) of each.
+    Images(Vec<(String, String)>),
+    /// Anything else, as HTML.
+    Html(String),
+}
+
+/// Splits `markdown` into blocks.
+pub fn blocks(markdown: &str) -> Vec<Block> {
+    let lines: Vec<&str> = markdown.lines().collect();
+    let mut out = Vec::new();
+    let mut i = 0;
+    while i < lines.len() {
+        let line = lines[i];
+        let trimmed = line.trim();
+        if trimmed.is_empty() {
+            i += 1;
+        } else if let Some((level, text)) = heading(trimmed) {
+            let id = anchor(&text);
+            out.push(Block::Heading {
+                level,
+                html: format!("<h{level} id=\"{id}\">{}</h{level}>", inline(&text)),
+                text: plain(&text),
+            });
+            i += 1;
+        } else if trimmed.starts_with("```") {
+            let end = (i + 1..lines.len())
+                .find(|&j| lines[j].trim().starts_with("```"))
+                .unwrap_or(lines.len());
+            let code: Vec<String> = lines[i + 1..end].iter().map(|l| escape(l)).collect();
+            out.push(Block::Html(format!(
+                "<pre><code>{}</code></pre>",
+                code.join("\n")
+            )));
+            i = end + 1;
+        } else if trimmed.starts_with('|') {
+            let end = (i..lines.len())
+                .find(|&j| !lines[j].trim().starts_with('|'))
+                .unwrap_or(lines.len());
+            out.push(Block::Html(table(&lines[i..end])));
+            i = end;
+        } else if is_item(line) {
+            let end = (i + 1..lines.len())
+                .find(|&j| {
+                    lines[j].trim().is_empty() || !(is_item(lines[j]) || lines[j].starts_with(' '))
+                })
+                .unwrap_or(lines.len());
+            out.push(Block::Html(list(&lines[i..end])));
+            i = end;
+        } else {
+            let end = (i + 1..lines.len())
+                .find(|&j| {
+                    let t = lines[j].trim();
+                    t.is_empty() || heading(t).is_some() || t.starts_with('|') || is_item(lines[j])
+                })
+                .unwrap_or(lines.len());
+            let text = lines[i..end]
+                .iter()
+                .map(|l| l.trim())
+                .collect::<Vec<_>>()
+                .join(" ");
+            out.push(match images_only(&text) {
+                Some(images) => Block::Images(images),
+                None => Block::Html(format!("<p>{}</p>", inline(&text))),
+            });
+            i = end;
+        }
+    }
+    out
+}
+
+fn heading(line: &str) -> Option<(usize, String)> {
+    let level = line.chars().take_while(|&c| c == '#').count();
+    let rest = &line[level..];
+    ((1..=6).contains(&level) && rest.starts_with(' ')).then(|| (level, rest.trim().to_string()))
+}
+
+fn is_item(line: &str) -> bool {
+    line.starts_with("- ") || line.starts_with("* ")
+}
+
+/// An id for a heading: lower-case letters and digits, other runs as one hyphen.
+pub fn anchor(text: &str) -> String {
+    let mut id = String::from("s-");
+    for c in plain(text).chars() {
+        if c.is_alphanumeric() {
+            id.extend(c.to_lowercase());
+        } else if !id.ends_with('-') {
+            id.push('-');
+        }
+    }
+    id.trim_end_matches('-').to_string()
+}
+
+/// The text without Markdown marks.
+fn plain(text: &str) -> String {
+    text.replace("**", "").replace(['`', '\\'], "")
+}
+
+fn list(lines: &[&str]) -> String {
+    let mut items: Vec<String> = Vec::new();
+    for line in lines {
+        if is_item(line) {
+            items.push(line[2..].trim().to_string());
+        } else if let Some(last) = items.last_mut() {
+            last.push(' ');
+            last.push_str(line.trim());
+        }
+    }
+    let body: String = items
+        .iter()
+        .map(|item| format!("<li>{}</li>", inline(item)))
+        .collect();
+    format!("<ul>{body}</ul>")
+}
+
+/// A pipe table: header row, delimiter row (with `:` for alignment), body rows.
+fn table(lines: &[&str]) -> String {
+    let rows: Vec<Vec<String>> = lines.iter().map(|l| cells(l)).collect();
+    let delimiter = |row: &Vec<String>| {
+        !row.is_empty()
+            && row
+                .iter()
+                .all(|c| !c.is_empty() && c.chars().all(|ch| matches!(ch, '-' | ':')))
+    };
+    if rows.len() < 2 || !delimiter(&rows[1]) {
+        let text = lines
+            .iter()
+            .map(|l| inline(l.trim()))
+            .collect::<Vec<_>>()
+            .join("<br>");
+        return format!("<p>{text}</p>");
+    }
+    let align: Vec<&str> = rows[1]
+        .iter()
+        .map(|c| match (c.starts_with(':'), c.ends_with(':')) {
+            (_, true) => " class=\"num\"",
+            _ => "",
+        })
+        .collect();
+    let cell = |tag: &str, i: usize, text: &str| {
+        format!(
+            "<{tag}{}>{}</{tag}>",
+            align.get(i).copied().unwrap_or(""),
+            inline(text)
+        )
+    };
+    let mut html = String::from("<div class=\"table\"><table>");
+    if rows[0].iter().any(|c| !c.is_empty()) {
+        html.push_str("<thead><tr>");
+        html.extend(rows[0].iter().enumerate().map(|(i, c)| cell("th", i, c)));
+        html.push_str("</tr></thead>");
+    }
+    html.push_str("<tbody>");
+    for row in &rows[2..] {
+        html.push_str("<tr>");
+        html.extend(row.iter().enumerate().map(|(i, c)| cell("td", i, c)));
+        html.push_str("</tr>");
+    }
+    html.push_str("</tbody></table></div>");
+    html
+}
+
+/// The cells of a table row, split on unescaped pipes.
+fn cells(line: &str) -> Vec<String> {
+    let inner = line.trim();
+    let inner = inner.strip_prefix('|').unwrap_or(inner);
+    let inner = inner
+        .strip_suffix('|')
+        .filter(|s| !s.ends_with('\\'))
+        .unwrap_or(inner);
+    let mut out = Vec::new();
+    let mut current = String::new();
+    let mut chars = inner.chars().peekable();
+    while let Some(c) = chars.next() {
+        match c {
+            '\\' if chars.peek() == Some(&'|') => {
+                current.push_str("\\|");
+                chars.next();
+            }
+            '|' => out.push(std::mem::take(&mut current).trim().to_string()),
+            other => current.push(other),
+        }
+    }
+    out.push(current.trim().to_string());
+    out
+}
+
+/// `Some` when the paragraph is nothing but images `![alt](path)`.
+fn images_only(text: &str) -> Option<Vec<(String, String)>> {
+    let mut rest = text.trim();
+    let mut images = Vec::new();
+    while !rest.is_empty() {
+        let after = rest.strip_prefix("![")?;
+        let (alt, after) = after.split_once("](")?;
+        let (path, after) = after.split_once(')')?;
+        images.push((alt.to_string(), path.trim().to_string()));
+        rest = after.trim_start();
+    }
+    (!images.is_empty()).then_some(images)
+}
+
+/// Inline Markdown: code spans, bold, links, images, escapes; the rest HTML-escaped.
+pub fn inline(text: &str) -> String {
+    let mut out = String::with_capacity(text.len() + 16);
+    let mut rest = text;
+    let mut bold = false;
+    while let Some(c) = rest.chars().next() {
+        if let Some(after) = rest.strip_prefix('\\') {
+            match after.chars().next() {
+                Some(next) if "\\`*_|[]()#!-".contains(next) => {
+                    out.push_str(&escape(&next.to_string()));
+                    rest = &after[next.len_utf8()..];
+                }
+                _ => {
+                    out.push('\\');
+                    rest = after;
+                }
+            }
+        } else if let Some(after) = rest.strip_prefix('`') {
+            match after.split_once('`') {
+                Some((code, tail)) => {
+                    out.push_str(&format!("<code>{}</code>", escape(code)));
+                    rest = tail;
+                }
+                None => {
+                    out.push('`');
+                    rest = after;
+                }
+            }
+        } else if let Some(after) = rest.strip_prefix("**") {
+            if bold || after.contains("**") {
+                out.push_str(if bold { "</strong>" } else { "<strong>" });
+                bold = !bold;
+            } else {
+                out.push_str("**");
+            }
+            rest = after;
+        } else if let Some((html, tail)) = link(rest) {
+            out.push_str(&html);
+            rest = tail;
+        } else {
+            out.push_str(&escape(&c.to_string()));
+            rest = &rest[c.len_utf8()..];
+        }
+    }
+    if bold {
+        out.push_str("</strong>");
+    }
+    out
+}
+
+/// `[text](url)` or `![alt](url)` at the start of `text`: its HTML and what follows.
+fn link(text: &str) -> Option<(String, &str)> {
+    let (image, after) = match text.strip_prefix("![") {
+        Some(after) => (true, after),
+        None => (false, text.strip_prefix('[')?),
+    };
+    let (label, after) = after.split_once("](")?;
+    let (url, tail) = after.split_once(')')?;
+    let html = if image {
+        format!("<img src=\"{}\" alt=\"{}\">", escape(url), escape(label))
+    } else {
+        format!("<a href=\"{}\">{}</a>", escape(url), inline(label))
+    };
+    Some((html, tail))
+}
+
+/// Escapes text for HTML content and attribute values.
+pub fn escape(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for c in text.chars() {
+        match c {
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '&' => out.push_str("&amp;"),
+            '"' => out.push_str("&quot;"),
+            other => out.push(other),
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // The constructs of CommonMark 0.31 / GFM tables that the memo uses, with the HTML those
+    // specifications give for them (GFM §4.10 tables: alignment from the delimiter row; escaped
+    // pipes inside cells).
+    #[test]
+    fn converts_the_memo_subset() {
+        let md = "# Title\n\nSome **bold** and `a<b` text\ncontinued.\n\n- one\n  more\n- two\n\n\
+                  | A | B \\| C |\n|---|---:|\n| x | 1.0 |\n\n![Chart](figures/a.svg)\n![B](figures/b.svg)\n";
+        let b = blocks(md);
+        assert_eq!(
+            b[0],
+            Block::Heading {
+                level: 1,
+                text: "Title".into(),
+                html: "<h1 id=\"s-title\">Title</h1>".into()
+            }
+        );
+        assert_eq!(
+            b[1],
+            Block::Html(
+                "<p>Some <strong>bold</strong> and <code>a&lt;b</code> text continued.</p>".into()
+            )
+        );
+        assert_eq!(
+            b[2],
+            Block::Html("<ul><li>one more</li><li>two</li></ul>".into())
+        );
+        assert_eq!(
+            b[3],
+            Block::Html(
+                "<div class=\"table\"><table><thead><tr><th>A</th><th class=\"num\">B | C</th></tr></thead>\
+                 <tbody><tr><td>x</td><td class=\"num\">1.0</td></tr></tbody></table></div>"
+                    .into()
+            )
+        );
+        assert_eq!(
+            b[4],
+            Block::Images(vec![
+                ("Chart".into(), "figures/a.svg".into()),
+                ("B".into(), "figures/b.svg".into())
+            ])
+        );
+    }
+
+    #[test]
+    fn raw_html_is_escaped_never_passed_through() {
+        assert_eq!(
+            inline("<script>x</script> & \"q\""),
+            "&lt;script&gt;x&lt;/script&gt; &amp; &quot;q&quot;"
+        );
+        assert_eq!(inline("a ** b"), "a ** b");
+        assert_eq!(
+            inline("[site](https://example.org/a?b=1&c=2)"),
+            "<a href=\"https://example.org/a?b=1&amp;c=2\">site</a>"
+        );
+    }
+
+    #[test]
+    fn an_empty_header_row_gives_no_thead() {
+        let html = table(&["| | |", "|---|---|", "| a | b |"]);
+        assert!(
+            !html.contains("<thead>") && html.contains("<td>a</td>"),
+            "{html}"
+        );
+    }
+}

@@ -1,0 +1,195 @@
+//! Charts of a valuation, as SVG files, and the self-contained HTML report that shows them.
+//!
+//! A reviewer looks before reading: each peer's regression with its fitted line and band, the
+//! peers' betas with their intervals, the rolling betas, the sensitivity grid as a heat map, the
+//! Monte Carlo WACC as a histogram and the bridge to a claimed WACC as a waterfall. Every chart
+//! draws numbers read from the [`Valuation`] (the library computes and stores each figure,
+//! including the band, the histogram and the waterfall bars); nothing here computes one. The
+//! charts are drawn with plotters' SVG backend in hurdle's own style ([`style`]); [`report`]
+//! turns the memo and the charts into one HTML file.
+
+pub mod axes;
+pub mod betas;
+pub mod canvas;
+pub mod frame;
+pub mod markdown;
+pub mod reconciliation;
+pub mod regression;
+pub mod report;
+pub mod sensitivity;
+pub mod stability;
+pub mod style;
+pub mod uncertainty;
+
+use serde::Serialize;
+
+use crate::error::Result;
+use crate::report::Render;
+use crate::valuation::Valuation;
+
+/// The folder, inside the output folder, that holds the charts.
+pub const FOLDER: &str = "figures";
+
+/// Which chart a figure is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Kind {
+    Regression,
+    Betas,
+    Stability,
+    Sensitivity,
+    Uncertainty,
+    Reconciliation,
+}
+
+/// One drawn chart.
+#[derive(Debug, Clone)]
+pub struct Figure {
+    pub kind: Kind,
+    /// Path relative to the output folder, e.g. `figures/betas.svg`.
+    pub file_name: String,
+    pub title: String,
+    /// What is drawn and from which figures (also inside the SVG, under the plot).
+    pub caption: String,
+    /// The peer of a regression chart.
+    pub peer: Option<String>,
+    /// The SVG document.
+    pub svg: String,
+}
+
+/// Draws every chart the valuation supports, in the order the memo shows them: the peers'
+/// betas, each peer's regression, the rolling betas, then the sensitivity grid, the Monte Carlo
+/// histogram and the reconciliation waterfall when the valuation holds them.
+pub fn draw_all(valuation: &Valuation) -> Result<Vec<Figure>> {
+    let mut figures = vec![betas::draw(valuation)?];
+    for index in 0..valuation.peers.len() {
+        figures.push(regression::draw(valuation, index)?);
+    }
+    if valuation.rolling.iter().any(|points| !points.is_empty()) {
+        figures.push(stability::draw(valuation)?);
+    }
+    if let Some(grid) = &valuation.sensitivity {
+        figures.push(sensitivity::draw(valuation, grid)?);
+    }
+    if let Some(uncertainty) = &valuation.uncertainty {
+        figures.push(uncertainty::draw(uncertainty)?);
+    }
+    if let Some(bridge) = &valuation.reconciliation {
+        figures.push(reconciliation::draw(bridge)?);
+    }
+    Ok(figures)
+}
+
+/// A link to a chart, as the memo template sees it.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Link {
+    pub path: String,
+    pub title: String,
+    pub caption: String,
+    pub peer: Option<String>,
+}
+
+/// The charts by kind, for the memo template (`figures.betas.path`, `figures.regression[i]`);
+/// every key is present, `null` or empty when the chart was not drawn.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Index {
+    pub betas: Option<Link>,
+    pub regression: Vec<Link>,
+    pub stability: Option<Link>,
+    pub sensitivity: Option<Link>,
+    pub uncertainty: Option<Link>,
+    pub reconciliation: Option<Link>,
+}
+
+/// The index of `figures`.
+pub fn index(figures: &[Figure]) -> Index {
+    let mut index = Index::default();
+    for figure in figures {
+        let link = Link {
+            path: figure.file_name.clone(),
+            title: figure.title.clone(),
+            caption: figure.caption.clone(),
+            peer: figure.peer.clone(),
+        };
+        match figure.kind {
+            Kind::Regression => index.regression.push(link),
+            Kind::Betas => index.betas = Some(link),
+            Kind::Stability => index.stability = Some(link),
+            Kind::Sensitivity => index.sensitivity = Some(link),
+            Kind::Uncertainty => index.uncertainty = Some(link),
+            Kind::Reconciliation => index.reconciliation = Some(link),
+        }
+    }
+    index
+}
+
+/// One chart as an output file.
+pub struct FigureFile<'a>(pub &'a Figure);
+
+impl Render for FigureFile<'_> {
+    fn file_name(&self) -> &str {
+        &self.0.file_name
+    }
+
+    fn render(&self, _valuation: &Valuation) -> Result<Vec<u8>> {
+        Ok(self.0.svg.clone().into_bytes())
+    }
+}
+
+/// A file-name part from a peer's name: lower-case ASCII letters and digits, other runs of
+/// characters as one hyphen, at most 40 characters.
+pub fn slug(name: &str) -> String {
+    let mut out = String::new();
+    for c in name.chars() {
+        if c.is_ascii_alphanumeric() {
+            out.push(c.to_ascii_lowercase());
+        } else if !out.ends_with('-') && !out.is_empty() {
+            out.push('-');
+        }
+    }
+    let mut out: String = out.trim_end_matches('-').chars().take(40).collect();
+    while out.ends_with('-') {
+        out.pop();
+    }
+    out
+}
+
+/// An estimator's name as a reader writes it.
+pub fn method_name(method: crate::beta::BetaMethod) -> &'static str {
+    match method {
+        crate::beta::BetaMethod::Ols => "OLS",
+        crate::beta::BetaMethod::Dimson => "Dimson",
+        crate::beta::BetaMethod::ScholesWilliams => "Scholes–Williams",
+    }
+}
+
+/// A kind of standard errors as a reader writes it.
+pub fn std_errors_name(kind: crate::stats::least_squares::StdErrors) -> &'static str {
+    match kind {
+        crate::stats::least_squares::StdErrors::Classical => "classical",
+        crate::stats::least_squares::StdErrors::Hc1 => "HC1 robust",
+        crate::stats::least_squares::StdErrors::NeweyWest => "Newey–West",
+    }
+}
+
+/// "per month", "per week", … for axis titles.
+pub fn per_period(valuation: &Valuation) -> &'static str {
+    match crate::report::format::label(&valuation.sampling.frequency).as_str() {
+        "daily" => "per day",
+        "weekly" => "per week",
+        "quarterly" => "per quarter",
+        _ => "per month",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::slug;
+
+    #[test]
+    fn slugs_are_safe_file_names() {
+        assert_eq!(slug("Brenvale Fluid Systems"), "brenvale-fluid-systems");
+        assert_eq!(slug("  Ö&Co. (holdings)"), "co-holdings");
+        assert_eq!(slug("***"), "");
+    }
+}

@@ -1,0 +1,230 @@
+//! Chart 4: the sensitivity grid as a heat map — one cell per pair of values, shaded by the
+//! figure (darker is higher) with the figure printed in it, and the case's own cell outlined.
+//!
+//! Shading runs along one hue from light to dark, so the map reads in greyscale print and for
+//! colour-blind readers; the printed values carry the exact figures.
+
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+
+use super::axes::{plot_layer, Axes, Scale};
+use super::canvas::Canvas;
+use super::frame::Layout;
+use super::style::{self, INK, PAPER};
+use super::{Figure, Kind};
+use crate::audit::grid::{Axis, Grid};
+use crate::case::Metric;
+use crate::error::Result;
+use crate::report::format::{fixed, percent};
+use crate::valuation::Valuation;
+
+const WIDTH: u32 = 720;
+const CELL_HEIGHT: u32 = 46;
+
+/// The axis's values as written: rates as percentages, ratios and betas as decimals, with the
+/// fewest decimals that write every value exactly.
+fn value_labels(axis: &Axis) -> Vec<String> {
+    let ratio = ["debt_to_equity", "beta", "lambda"]
+        .iter()
+        .any(|k| axis.key.contains(k));
+    let scale = if ratio { 1.0 } else { 100.0 };
+    let decimals = (0..4)
+        .find(|&d| {
+            let p = 10f64.powi(d) * scale;
+            axis.values
+                .iter()
+                .all(|v| ((v * p).round() - v * p).abs() < 1e-6)
+        })
+        .unwrap_or(4) as usize;
+    axis.values
+        .iter()
+        .map(|&v| {
+            if ratio {
+                fixed(v, decimals.max(2))
+            } else {
+                percent(v, decimals.max(1))
+            }
+        })
+        .collect()
+}
+
+/// An axis title: the setting in words for the usual keys (the caption names the key path),
+/// else the key path itself.
+fn key_title(key: &str) -> String {
+    let words = match key {
+        "market.equity_risk_premium" => "Equity risk premium",
+        "market.risk_free_rate" => "Risk-free rate",
+        "target.debt_to_equity" => "Target debt-to-equity",
+        "target.debt_to_capital" => "Target debt-to-capital",
+        "target.tax_rate" => "Target tax rate",
+        "debt.cost_pre_tax" => "Pre-tax cost of debt",
+        "premiums.size" => "Size premium",
+        "premiums.country" => "Country risk premium",
+        "premiums.company_specific" => "Company-specific premium",
+        _ => return key.to_string(),
+    };
+    words.to_string()
+}
+
+/// The heat map of `grid`.
+pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
+    let rows = grid.rows.values.len();
+    let metric = match grid.metric {
+        Metric::Wacc => "WACC",
+        Metric::CostOfEquity => "Cost of equity",
+    };
+    let (low, high) = grid
+        .cells
+        .iter()
+        .flatten()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &v| {
+            (lo.min(v), hi.max(v))
+        });
+    let shade = |v: f64| {
+        style::heat(if high > low {
+            (v - low) / (high - low)
+        } else {
+            0.5
+        })
+    };
+    // The first row on top: y category i (from the bottom) is row rows − 1 − i.
+    let mut row_names = value_labels(&grid.rows);
+    row_names.reverse();
+    let axes = Axes {
+        x: Scale::categories(value_labels(&grid.columns)),
+        y: Scale::categories(row_names),
+        x_title: key_title(&grid.columns.key),
+        y_title: key_title(&grid.rows.key),
+        left: 92,
+        bottom: 50,
+        y_ticks: true,
+    };
+    let title = format!("{metric} sensitivity: the case's figure as two inputs vary");
+    let caption = caption(valuation, grid, metric);
+    let layout = Layout::new(WIDTH, CELL_HEIGHT * rows as u32 + 70, &title, &[], &caption);
+    let name = "figures/sensitivity.svg".to_string();
+    let mut canvas = Canvas::new(&name, WIDTH, layout.height());
+    canvas.layer("frame", |root| layout.frame(root, &[]))?;
+    axes.draw(&mut canvas, &layout)?;
+    plot(&mut canvas, &layout, &axes, grid, &shade)?;
+    let description = format!("{caption} {}", data_summary(grid));
+    Ok(Figure {
+        kind: Kind::Sensitivity,
+        svg: canvas.finish("sensitivity", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The shaded cells, their printed values and the outline of the case's own cell.
+fn plot(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    grid: &Grid,
+    shade: &dyn Fn(f64) -> RGBColor,
+) -> Result<()> {
+    let rows = grid.rows.values.len();
+    let cell = |r: usize, c: usize| {
+        let bottom = (rows - 1 - r) as f64;
+        [(c as f64, bottom), (c as f64 + 1.0, bottom + 1.0)]
+    };
+    let cells = || {
+        grid.cells
+            .iter()
+            .enumerate()
+            .flat_map(|(r, line)| line.iter().enumerate().map(move |(c, &v)| (r, c, v)))
+    };
+    plot_layer(canvas, layout, axes, "cells", |chart| {
+        chart
+            .draw_series(cells().map(|(r, c, v)| Rectangle::new(cell(r, c), shade(v).filled())))?;
+        // White hairlines between the cells.
+        chart.draw_series(
+            cells().map(|(r, c, _)| Rectangle::new(cell(r, c), PAPER.stroke_width(2))),
+        )?;
+        Ok(())
+    })?;
+    plot_layer(canvas, layout, axes, "values", |chart| {
+        chart.draw_series(cells().map(|(r, c, v)| {
+            let background = shade(v);
+            let colour = if style::needs_light_text(&background) {
+                PAPER
+            } else {
+                INK
+            };
+            let bold = grid.base_cell == Some([r, c]);
+            let font = if bold {
+                style::bold(style::LABEL, &colour)
+            } else {
+                style::text(style::LABEL, &colour)
+            };
+            let [(x0, y0), _] = cell(r, c);
+            Text::new(
+                percent(v, 2),
+                (x0 + 0.5, y0 + 0.5),
+                font.pos(Pos::new(HPos::Center, VPos::Center)),
+            )
+        }))?;
+        Ok(())
+    })?;
+    if let Some([r, c]) = grid.base_cell {
+        plot_layer(canvas, layout, axes, "base-cell", |chart| {
+            let [(x0, y0), (x1, y1)] = cell(r, c);
+            // Inset a little so the outline sits inside the white hairlines.
+            let inset = [(x0 + 0.03, y0 + 0.06), (x1 - 0.03, y1 - 0.06)];
+            chart.draw_series(std::iter::once(Rectangle::new(
+                inset,
+                style::ACCENT.stroke_width(4),
+            )))?;
+            Ok(())
+        })?;
+    }
+    Ok(())
+}
+
+fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {
+    let own = match grid.base_cell {
+        Some([r, c]) => format!(
+            "The outlined cell is the case itself ({}). ",
+            percent(grid.cells[r][c], 2)
+        ),
+        None => format!(
+            "The case's own values are not on these axes (its {} is {}). ",
+            metric,
+            percent(
+                match grid.metric {
+                    Metric::Wacc => valuation.cost.wacc,
+                    Metric::CostOfEquity => valuation.cost.cost_of_equity,
+                },
+                2
+            )
+        ),
+    };
+    format!(
+        "{metric} when {} (rows) and {} (columns) take the values shown, everything else as in \
+         the case; each cell is a full rerun, as hurdle run --set would compute it. Darker \
+         cells are higher. {own}Figures: result.json sensitivity (rows, columns, cells, \
+         base_cell).",
+        grid.rows.key, grid.columns.key
+    )
+}
+
+fn data_summary(grid: &Grid) -> String {
+    let rows = value_labels(&grid.rows);
+    let columns = value_labels(&grid.columns);
+    grid.cells
+        .iter()
+        .zip(&rows)
+        .map(|(line, row)| {
+            let cells: Vec<String> = line
+                .iter()
+                .zip(&columns)
+                .map(|(v, c)| format!("{c}: {}", percent(*v, 2)))
+                .collect();
+            format!("{} {row}: {}.", grid.rows.key, cells.join(", "))
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
+}

@@ -1,0 +1,310 @@
+//! Chart 3: each peer's rolling beta through the estimation window with its ±1.96·SE band, one
+//! small panel per peer on a shared beta scale, and the peer's whole-window beta as a dashed
+//! line for reference.
+//!
+//! The rolling betas are the library's ([`crate::beta::rolling`]): the case's own estimator and
+//! standard errors in every window, so a thinly traded peer's panel is not biased low. Each
+//! panel's layers carry the class `panel-N` (N from 1, in peer order).
+
+use chrono::{Datelike, NaiveDate};
+use plotters::element::DashedPathElement;
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+use plotters::style::FontTransform;
+
+use super::axes::{Axes, Chart, Scale};
+use super::canvas::{Area, Canvas, Drawn};
+use super::frame::{Layout, Mark};
+use super::style::{self, ACCENT, BAND, INK, MUTED, PRIMARY};
+use super::{Figure, Kind};
+use crate::beta::rolling::RollingPoint;
+use crate::error::Result;
+use crate::report::format::fixed;
+use crate::valuation::Valuation;
+
+const WIDTH: u32 = 720;
+const PANEL_HEIGHT: u32 = 190;
+/// Room for the shared axis titles: below the panels, and left of them.
+const X_TITLE: u32 = 26;
+const Y_TITLE: u32 = 22;
+
+/// The date as a fractional year (2024-07-01 is about 2024.5), the x coordinate of the panels.
+fn year(date: NaiveDate) -> f64 {
+    let days = if date.leap_year() { 366.0 } else { 365.0 };
+    f64::from(date.year()) + f64::from(date.ordinal0()) / days
+}
+
+/// The rolling-beta chart.
+pub fn draw(valuation: &Valuation) -> Result<Figure> {
+    let peers = &valuation.peers;
+    let columns = if peers.len() > 1 { 2 } else { 1 };
+    let panel_rows = peers.len().div_ceil(columns);
+    let all = valuation.rolling.iter().flatten();
+    let (low, high) = all
+        .clone()
+        .flat_map(|p| [p.band_low, p.band_high])
+        .chain(peers.iter().map(|p| p.estimate.beta))
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+            (lo.min(v), hi.max(v))
+        });
+    let (first, last) = all.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
+        let x = year(p.window_end);
+        (lo.min(x), hi.max(x))
+    });
+    let axes = Axes {
+        x: Scale::plain(first, last, 0.02, 4),
+        y: Scale::plain(low, high, 0.05, 6),
+        x_title: String::new(),
+        y_title: String::new(),
+        left: 44,
+        bottom: 24,
+        y_ticks: true,
+    };
+    let s = &valuation.settings.beta;
+    let window = peers
+        .iter()
+        .find_map(|p| p.stability.as_ref())
+        .map(|st| st.window_periods);
+    let title = format!(
+        "Rolling {} betas through the window",
+        super::method_name(valuation.estimator.method)
+    );
+    let caption = caption(valuation, window, s.rolling_step);
+    let legend = vec![
+        (Mark::Line(PRIMARY), "rolling β".to_string()),
+        (Mark::Swatch(BAND), "β ± 1.96·SE".to_string()),
+        (Mark::Dashed(ACCENT), "β over the whole window".to_string()),
+    ];
+    let layout = Layout::new(
+        WIDTH,
+        PANEL_HEIGHT * panel_rows as u32 + X_TITLE + 8,
+        &title,
+        &legend,
+        &caption,
+    );
+    let name = "figures/stability.svg".to_string();
+    let mut canvas = Canvas::new(&name, WIDTH, layout.height());
+    canvas.layer("frame", |root| layout.frame(root, &legend))?;
+    canvas.layer("axis-titles", |root| {
+        let (_, plot, _) = layout.split(root);
+        let (width, height) = plot.dim_in_pixel();
+        let title = style::text(style::LABEL, &INK);
+        plot.draw_text(
+            &format!(
+                "Last period of the window (year), {} returns",
+                crate::report::format::label(&valuation.sampling.frequency)
+            ),
+            &title.pos(Pos::new(HPos::Center, VPos::Bottom)),
+            (width as i32 / 2, height as i32 - 4),
+        )?;
+        plot.draw_text(
+            "Equity beta",
+            &title
+                .transform(FontTransform::Rotate270)
+                .pos(Pos::new(HPos::Center, VPos::Top)),
+            (4, (height - X_TITLE) as i32 / 2),
+        )
+    })?;
+    let grid = Panels {
+        layout: &layout,
+        axes: &axes,
+        rows: panel_rows,
+        columns,
+    };
+    for (i, (peer, points)) in peers.iter().zip(&valuation.rolling).enumerate() {
+        grid.frame(&mut canvas, i, &peer.name, points.is_empty())?;
+        grid.data(&mut canvas, i, peer.estimate.beta, points)?;
+    }
+    let description = format!("{caption} {}", data_summary(valuation));
+    Ok(Figure {
+        kind: Kind::Stability,
+        svg: canvas.finish("stability", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The grid of small panels in the plot band, one per peer in peer order.
+struct Panels<'a> {
+    layout: &'a Layout,
+    axes: &'a Axes,
+    rows: usize,
+    columns: usize,
+}
+
+impl Panels<'_> {
+    /// Draws one layer (class `{class} panel-{i + 1}`) of panel `i`: `draw` gets the panel's
+    /// title band and its plot.
+    fn layer(
+        &self,
+        canvas: &mut Canvas,
+        i: usize,
+        class: &str,
+        draw: &dyn Fn(&Area, &mut Chart) -> Drawn,
+    ) -> Result<()> {
+        canvas.layer(&format!("{class} panel-{}", i + 1), |root| {
+            let (_, plot, _) = self.layout.split(root);
+            let (height, width) = (plot.dim_in_pixel().1, plot.dim_in_pixel().0);
+            let (grid, _) = plot.split_vertically(height - X_TITLE);
+            let (_, grid) = grid.split_horizontally(Y_TITLE.min(width));
+            let panels = grid.split_evenly((self.rows, self.columns));
+            let (title_band, body) = panels[i].split_vertically(22);
+            let mut chart = self.axes.chart(&body)?;
+            draw(&title_band, &mut chart)
+        })
+    }
+
+    /// Panel `i`'s title, grid and axes.
+    fn frame(&self, canvas: &mut Canvas, i: usize, name: &str, empty: bool) -> Result<()> {
+        self.layer(canvas, i, "panel-title", &|band, _| {
+            let name_style = style::bold(style::LABEL, &INK).pos(Pos::new(HPos::Left, VPos::Top));
+            band.draw_text(name, &name_style, (style::MARGIN, 4))?;
+            if empty {
+                let note = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
+                band.draw_text(
+                    "no window with enough observations",
+                    &note,
+                    (style::MARGIN, 60),
+                )?;
+            }
+            Ok(())
+        })?;
+        self.layer(canvas, i, "grid", &|_, chart| {
+            chart
+                .configure_mesh()
+                .disable_axes()
+                .bold_line_style(style::RULE.stroke_width(1))
+                .light_line_style(TRANSPARENT)
+                .label_style(style::text(style::TICK, &RGBAColor(0, 0, 0, 0.0)))
+                .draw()
+        })?;
+        let x_format = |v: &f64| self.axes.x.label(*v);
+        self.layer(canvas, i, "x-axis", &|_, chart| {
+            chart
+                .configure_mesh()
+                .disable_mesh()
+                .disable_y_axis()
+                .y_labels(0)
+                .axis_style(MUTED.stroke_width(1))
+                .label_style(style::text(style::SMALL, &MUTED))
+                .x_label_formatter(&x_format)
+                .draw()
+        })?;
+        let y_format = |v: &f64| self.axes.y.label(*v);
+        self.layer(canvas, i, "y-axis", &|_, chart| {
+            chart
+                .configure_mesh()
+                .disable_mesh()
+                .disable_x_axis()
+                .x_labels(0)
+                .axis_style(MUTED.stroke_width(1))
+                .label_style(style::text(style::SMALL, &MUTED))
+                .y_label_formatter(&y_format)
+                .draw()
+        })
+    }
+
+    /// Panel `i`'s band, whole-window beta and rolling betas.
+    fn data(
+        &self,
+        canvas: &mut Canvas,
+        i: usize,
+        beta: f64,
+        points: &[RollingPoint],
+    ) -> Result<()> {
+        self.layer(canvas, i, "band", &|_, chart| draw_band(chart, points))?;
+        let (x0, x1) = (self.axes.x.range.start, self.axes.x.range.end);
+        self.layer(canvas, i, "full-window-beta", &|_, chart| {
+            chart.draw_series(std::iter::once(DashedPathElement::new(
+                vec![(x0, beta), (x1, beta)],
+                6,
+                4,
+                ACCENT.stroke_width(2),
+            )))?;
+            Ok(())
+        })?;
+        self.layer(canvas, i, "rolling-beta", &|_, chart| {
+            chart.draw_series(std::iter::once(PathElement::new(
+                points
+                    .iter()
+                    .map(|p| (year(p.window_end), p.beta))
+                    .collect::<Vec<_>>(),
+                PRIMARY.stroke_width(2),
+            )))?;
+            Ok(())
+        })
+    }
+}
+
+fn draw_band(chart: &mut Chart, points: &[RollingPoint]) -> Drawn {
+    if points.is_empty() {
+        return Ok(());
+    }
+    let outline: Vec<(f64, f64)> = points
+        .iter()
+        .map(|p| (year(p.window_end), p.band_low))
+        .chain(
+            points
+                .iter()
+                .rev()
+                .map(|p| (year(p.window_end), p.band_high)),
+        )
+        .collect();
+    chart.draw_series(std::iter::once(Polygon::new(outline, BAND.filled())))?;
+    Ok(())
+}
+
+fn caption(valuation: &Valuation, window: Option<u32>, step: u32) -> String {
+    let period = super::per_period(valuation).trim_start_matches("per ");
+    format!(
+        "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
+         whole window) over windows of {} {period}s ending every {}, with the band β ± 1.96·SE \
+         of each window; the dashed line is the peer's β over the whole window. The x axis is \
+         the window's last {period} (years); all panels share one β scale. Figures: the rolling \
+         betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
+         and peers[].stability.",
+        super::method_name(valuation.estimator.method),
+        super::std_errors_name(valuation.estimator.std_errors),
+        window.map_or_else(|| "?".to_string(), |w| w.to_string()),
+        if step == 1 {
+            period.to_string()
+        } else {
+            format!("{step} {period}s")
+        },
+    )
+}
+
+fn data_summary(valuation: &Valuation) -> String {
+    valuation
+        .peers
+        .iter()
+        .map(|p| match &p.stability {
+            Some(s) => format!(
+                "{}: {} windows, rolling β from {} to {}, first {}, last {}.",
+                p.name,
+                s.windows,
+                fixed(s.min, 3),
+                fixed(s.max, 3),
+                fixed(s.first, 3),
+                fixed(s.last, 3)
+            ),
+            None => format!("{}: fewer than two windows.", p.name),
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fractional_years() {
+        assert_eq!(year(NaiveDate::from_ymd_opt(2024, 1, 1).unwrap()), 2024.0);
+        // 2024 is a leap year: 1 July is day 182 of 366 counted from 0.
+        let july = year(NaiveDate::from_ymd_opt(2024, 7, 1).unwrap());
+        assert!((july - (2024.0 + 182.0 / 366.0)).abs() < 1e-12);
+    }
+}

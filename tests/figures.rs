@@ -1,0 +1,693 @@
+//! The charts against the numbers: every SVG that `hurdle run` writes is parsed (a small tag
+//! scanner below; plotters writes plain SVG, one element a line) and what it draws — points,
+//! line and band ends, interval ends, heat-map values, histogram bars, waterfall bars — is read
+//! back through the chart's own axis labels and compared with result.json, returns.csv and
+//! rolling.csv, recomputed here from the textbook formulas where a figure is derived. So a chart
+//! can never drift from the numbers. Also: the demo's charts are byte-identical across runs, the
+//! memo links every chart, and `--no-figures` writes none.
+//!
+//! Tolerances: plotters places every mark on a whole pixel (rounding down), and the scale is read
+//! from tick labels that are placed the same way, so a drawn value is within two pixels' worth of
+//! the figure; [`Axis::tolerance`] is that, in data units.
+
+use std::collections::HashMap;
+use std::path::Path;
+
+mod common;
+
+use common::{hurdle, DEMO_CASE};
+
+/// One SVG element: its tag, attributes, text content and the classes of its group.
+#[derive(Debug, Clone)]
+struct Element {
+    tag: String,
+    attributes: HashMap<String, String>,
+    text: String,
+    group: String,
+}
+
+impl Element {
+    fn number(&self, name: &str) -> f64 {
+        self.attributes[name].parse().unwrap()
+    }
+
+    fn points(&self) -> Vec<(f64, f64)> {
+        self.attributes["points"]
+            .split_whitespace()
+            .map(|p| {
+                let (x, y) = p.split_once(',').unwrap();
+                (x.parse().unwrap(), y.parse().unwrap())
+            })
+            .collect()
+    }
+}
+
+fn unescape(text: &str) -> String {
+    text.replace("&lt;", "<")
+        .replace("&gt;", ">")
+        .replace("&quot;", "\"")
+        .replace("&apos;", "'")
+        .replace("&amp;", "&")
+}
+
+/// Scans an SVG document into its elements (XML 1.0 tags and attributes; no DTD, no CDATA).
+fn parse(svg: &str) -> Vec<Element> {
+    let mut out = Vec::new();
+    let mut groups: Vec<String> = Vec::new();
+    let mut rest = svg;
+    while let Some(start) = rest.find('<') {
+        let end = start + rest[start..].find('>').expect("a tag closes");
+        let tag = &rest[start + 1..end];
+        rest = &rest[end + 1..];
+        if let Some(name) = tag.strip_prefix('/') {
+            if name.trim() == "g" {
+                groups.pop();
+            }
+            continue;
+        }
+        let closed = tag.ends_with('/');
+        let tag = tag.trim_end_matches('/');
+        let name = tag.split_whitespace().next().unwrap().to_string();
+        let mut attributes = HashMap::new();
+        let mut attrs = &tag[name.len()..];
+        while let Some(eq) = attrs.find("=\"") {
+            let key = attrs[..eq].trim().to_string();
+            let value_end = eq + 2 + attrs[eq + 2..].find('"').unwrap();
+            attributes.insert(key, unescape(&attrs[eq + 2..value_end]));
+            attrs = &attrs[value_end + 1..];
+        }
+        if name == "g" {
+            groups.push(attributes.get("class").cloned().unwrap_or_default());
+            continue;
+        }
+        let mut text = String::new();
+        if !closed && (name == "text" || name == "title" || name == "desc") {
+            let close = rest.find(&format!("</{name}>")).unwrap();
+            text = unescape(rest[..close].trim());
+            rest = &rest[close..];
+        }
+        out.push(Element {
+            tag: name,
+            attributes,
+            text,
+            group: groups.last().cloned().unwrap_or_default(),
+        });
+    }
+    out
+}
+
+/// Elements of groups whose classes include every word of `class`.
+fn in_group<'a>(elements: &'a [Element], class: &str) -> Vec<&'a Element> {
+    elements
+        .iter()
+        .filter(|e| {
+            let classes: Vec<&str> = e.group.split_whitespace().collect();
+            class.split_whitespace().all(|c| classes.contains(&c))
+        })
+        .collect()
+}
+
+/// A tick label as a number: "−7.5%" is −0.075.
+fn tick_value(text: &str) -> Option<f64> {
+    let text = text.replace('\u{2212}', "-");
+    match text.strip_suffix('%') {
+        Some(p) => p.parse::<f64>().ok().map(|v| v / 100.0),
+        None => text.parse().ok(),
+    }
+}
+
+/// An axis read from its tick labels: value = a + b·pixel.
+#[derive(Debug, Clone, Copy)]
+struct Axis {
+    a: f64,
+    b: f64,
+}
+
+impl Axis {
+    /// From the numeric labels of the group `class`; `coordinate` is "x" or "y".
+    fn read(elements: &[Element], class: &str, coordinate: &str) -> Axis {
+        let mut ticks: Vec<(f64, f64)> = in_group(elements, class)
+            .iter()
+            .filter(|e| e.tag == "text")
+            .filter_map(|e| tick_value(&e.text).map(|v| (e.number(coordinate), v)))
+            .collect();
+        ticks.sort_by(|p, q| p.0.total_cmp(&q.0));
+        assert!(
+            ticks.len() >= 2,
+            "{class}: fewer than two numeric tick labels"
+        );
+        let ((p0, v0), (p1, v1)) = (ticks[0], ticks[ticks.len() - 1]);
+        let b = (v1 - v0) / (p1 - p0);
+        Axis { a: v0 - b * p0, b }
+    }
+
+    fn value(&self, pixel: f64) -> f64 {
+        self.a + self.b * pixel
+    }
+
+    /// Two pixels' worth (see the module comment).
+    fn tolerance(&self) -> f64 {
+        2.0 * self.b.abs()
+    }
+}
+
+fn close(label: &str, drawn: f64, expected: f64, tolerance: f64) {
+    assert!(
+        (drawn - expected).abs() <= tolerance,
+        "{label}: drawn {drawn}, expected {expected} (tolerance {tolerance})"
+    );
+}
+
+struct Run {
+    dir: tempfile::TempDir,
+    result: serde_json::Value,
+}
+
+impl Run {
+    fn new(extra: &[&str]) -> Run {
+        let dir = tempfile::tempdir().unwrap();
+        let out = dir.path().to_str().unwrap().to_string();
+        let mut args = vec!["run", DEMO_CASE, "--out", out.as_str()];
+        args.extend_from_slice(extra);
+        let output = hurdle(&args);
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+        let result =
+            serde_json::from_str(&std::fs::read_to_string(dir.path().join("result.json")).unwrap())
+                .unwrap();
+        Run { dir, result }
+    }
+
+    fn svg(&self, file: &str) -> Vec<Element> {
+        parse(&std::fs::read_to_string(self.dir.path().join("figures").join(file)).unwrap())
+    }
+
+    fn files(&self) -> Vec<String> {
+        let mut names: Vec<String> = std::fs::read_dir(self.dir.path().join("figures"))
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        names.sort();
+        names
+    }
+
+    /// Each peer's (index excess, peer excess) returns from returns.csv, in row order.
+    fn returns(&self) -> HashMap<String, Vec<(f64, f64)>> {
+        let text = std::fs::read_to_string(self.dir.path().join("returns.csv")).unwrap();
+        let mut lines = text.lines();
+        let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+        let column = |name: &str| header.iter().position(|h| *h == name);
+        let (asset, market, rf) = (
+            column("asset_return").unwrap(),
+            column("market_return").unwrap(),
+            column("risk_free"),
+        );
+        let mut out: HashMap<String, Vec<(f64, f64)>> = HashMap::new();
+        for line in lines {
+            let cells: Vec<&str> = line.split(',').collect();
+            let value = |i: usize| cells[i].parse::<f64>().unwrap();
+            let r = rf.map_or(0.0, value);
+            out.entry(cells[0].to_string())
+                .or_default()
+                .push((value(market) - r, value(asset) - r));
+        }
+        out
+    }
+}
+
+fn f(v: &serde_json::Value) -> f64 {
+    v.as_f64().unwrap()
+}
+
+/// The regression chart of every peer: points, flagged points, line ends and band ends.
+fn check_regressions(run: &Run) {
+    let returns = run.returns();
+    let files = run.files();
+    for (i, peer) in run.result["peers"].as_array().unwrap().iter().enumerate() {
+        let name = peer["name"].as_str().unwrap();
+        let file = files
+            .iter()
+            .find(|f| f.starts_with(&format!("regression-{:02}-", i + 1)))
+            .unwrap();
+        let svg = run.svg(file);
+        let (x, y) = (
+            Axis::read(&svg, "x-axis", "x"),
+            Axis::read(&svg, "y-axis", "y"),
+        );
+        let data = &returns[name];
+        let points = in_group(&svg, "points");
+        assert_eq!(points.len(), data.len(), "{name}: one point per return");
+        for (p, (mx, ay)) in points.iter().zip(data) {
+            close(name, x.value(p.number("cx")), *mx, x.tolerance());
+            close(name, y.value(p.number("cy")), *ay, y.tolerance());
+        }
+        let rows: Vec<usize> = peer["large_studentised_residual_rows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| r.as_u64().unwrap() as usize)
+            .collect();
+        assert_eq!(
+            rows.len() as u64,
+            peer["large_studentised_residuals"].as_u64().unwrap()
+        );
+        let rings = in_group(&svg, "flagged");
+        assert_eq!(rings.len(), rows.len(), "{name}: one ring per flagged row");
+        for (ring, &row) in rings.iter().zip(&rows) {
+            close(name, x.value(ring.number("cx")), data[row].0, x.tolerance());
+            close(name, y.value(ring.number("cy")), data[row].1, y.tolerance());
+        }
+        // The line α + β·x from the lowest to the highest index return used.
+        let (alpha, beta) = (f(&peer["alpha"]), f(&peer["beta"]));
+        let x_min = data.iter().map(|d| d.0).fold(f64::INFINITY, f64::min);
+        let x_max = data.iter().map(|d| d.0).fold(f64::NEG_INFINITY, f64::max);
+        let line = in_group(&svg, "fitted-line")[0].points();
+        for ((px, py), at) in [(line[0], x_min), (line[line.len() - 1], x_max)] {
+            close(name, x.value(px), at, x.tolerance());
+            close(name, y.value(py), alpha + beta * at, y.tolerance());
+        }
+        // The mean-response band, textbook form: ŷ ± t(0.975, df)·√(Var α + 2x·Cov + x²·Var β),
+        // t from statrs' Student t (an independent implementation of the quantile).
+        use statrs::distribution::{ContinuousCDF, StudentsT};
+        let df = f(&peer["degrees_of_freedom"]);
+        let t = StudentsT::new(0.0, 1.0, df).unwrap().inverse_cdf(0.975);
+        let (sa, sb, cov) = (
+            f(&peer["alpha_std_error"]),
+            f(&peer["beta_std_error"]),
+            f(&peer["alpha_beta_covariance"]),
+        );
+        let half = |at: f64| t * (sa * sa + 2.0 * at * cov + at * at * sb * sb).sqrt();
+        let band = in_group(&svg, "band")[0].points();
+        let n = band.len() / 2;
+        for (point, at, sign) in [
+            (band[0], x_min, -1.0),
+            (band[n - 1], x_max, -1.0),
+            (band[n], x_max, 1.0),
+            (band[2 * n - 1], x_min, 1.0),
+        ] {
+            close(name, x.value(point.0), at, x.tolerance());
+            close(
+                name,
+                y.value(point.1),
+                alpha + beta * at + sign * half(at),
+                y.tolerance(),
+            );
+        }
+    }
+}
+
+/// The peers' betas: raw β, CI ends, β used, unlevered β and the aggregate line.
+fn check_betas(run: &Run) {
+    let svg = run.svg("betas.svg");
+    let x = Axis::read(&svg, "x-axis", "x");
+    let peers = run.result["peers"].as_array().unwrap();
+    // Rows: included peers in case order, then the excluded ones.
+    let order: Vec<&serde_json::Value> = peers
+        .iter()
+        .filter(|p| p["excluded_reason"].is_null())
+        .chain(peers.iter().filter(|p| !p["excluded_reason"].is_null()))
+        .collect();
+    let dots = in_group(&svg, "raw-beta");
+    let intervals: Vec<Vec<(f64, f64)>> = in_group(&svg, "intervals")
+        .iter()
+        .map(|e| e.points())
+        .filter(|p| p.len() == 2 && p[0].1 == p[1].1)
+        .collect();
+    let used = in_group(&svg, "beta-used");
+    let unlevered = in_group(&svg, "unlevered-beta");
+    assert_eq!(dots.len(), peers.len());
+    assert_eq!(
+        (intervals.len(), used.len(), unlevered.len()),
+        (peers.len(), peers.len(), peers.len())
+    );
+    let cash = run.result["beta"]["cash_corrected"].as_bool().unwrap();
+    for (k, peer) in order.iter().enumerate() {
+        let name = peer["name"].as_str().unwrap();
+        close(
+            name,
+            x.value(dots[k].number("cx")),
+            f(&peer["beta"]),
+            x.tolerance(),
+        );
+        close(
+            name,
+            x.value(intervals[k][0].0),
+            f(&peer["beta_ci_low"]),
+            x.tolerance(),
+        );
+        close(
+            name,
+            x.value(intervals[k][1].0),
+            f(&peer["beta_ci_high"]),
+            x.tolerance(),
+        );
+        let triangle = used[k].points();
+        let centre = triangle.iter().map(|p| p.0).sum::<f64>() / triangle.len() as f64;
+        // The closed triangle repeats its apex: centre = apex x within half a pixel.
+        close(
+            name,
+            x.value(centre),
+            f(&peer["beta_used"]),
+            x.tolerance() * 1.25,
+        );
+        let square = unlevered[k];
+        let middle = square.number("x") + square.number("width") / 2.0;
+        let expected = if cash {
+            f(&peer["cash_corrected_unlevered_beta"])
+        } else {
+            f(&peer["unlevered_beta"])
+        };
+        close(name, x.value(middle), expected, x.tolerance());
+    }
+    let aggregate = in_group(&svg, "aggregate")[0].points()[0].0;
+    close(
+        "aggregate",
+        x.value(aggregate),
+        f(&run.result["beta"]["unlevered"]),
+        x.tolerance(),
+    );
+}
+
+/// The rolling betas of every panel against rolling.csv (written by `hurdle rolling`).
+fn check_stability(run: &Run, extra: &[&str]) {
+    let out = run.dir.path().to_str().unwrap();
+    let mut args = vec!["rolling", DEMO_CASE, "--out", out];
+    args.extend_from_slice(extra);
+    assert!(hurdle(&args).status.success());
+    let csv = std::fs::read_to_string(run.dir.path().join("rolling.csv")).unwrap();
+    let svg = run.svg("stability.svg");
+    for (i, peer) in run.result["peers"].as_array().unwrap().iter().enumerate() {
+        let name = peer["name"].as_str().unwrap();
+        let panel = format!("panel-{}", i + 1);
+        let y = Axis::read(&svg, &format!("y-axis {panel}"), "y");
+        let rows: Vec<(f64, f64)> = csv
+            .lines()
+            .filter(|l| l.starts_with(&format!("{name},")))
+            .map(|l| {
+                let c: Vec<&str> = l.split(',').collect();
+                (c[2].parse().unwrap(), c[3].parse().unwrap())
+            })
+            .collect();
+        let line = in_group(&svg, &format!("rolling-beta {panel}"))[0].points();
+        assert_eq!(line.len(), rows.len(), "{name}: one vertex per window");
+        for (p, (beta, _)) in line.iter().zip(&rows) {
+            close(name, y.value(p.1), *beta, y.tolerance());
+        }
+        // Band ends: β ∓ 1.96·SE of the first and last window.
+        let band = in_group(&svg, &format!("band {panel}"))[0].points();
+        let (first, last) = (rows[0], rows[rows.len() - 1]);
+        let n = band.len() / 2;
+        close(
+            name,
+            y.value(band[0].1),
+            first.0 - 1.96 * first.1,
+            y.tolerance(),
+        );
+        close(
+            name,
+            y.value(band[n - 1].1),
+            last.0 - 1.96 * last.1,
+            y.tolerance(),
+        );
+        close(
+            name,
+            y.value(band[n].1),
+            last.0 + 1.96 * last.1,
+            y.tolerance(),
+        );
+        close(
+            name,
+            y.value(band[2 * n - 1].1),
+            first.0 + 1.96 * first.1,
+            y.tolerance(),
+        );
+    }
+}
+
+/// The heat map: each cell's printed value, darker shades for higher values, the case's cell.
+fn check_sensitivity(run: &Run) {
+    let svg = run.svg("sensitivity.svg");
+    let grid = &run.result["sensitivity"];
+    let cells: Vec<f64> = grid["cells"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .flat_map(|r| r.as_array().unwrap().iter().map(f))
+        .collect();
+    let texts: Vec<String> = in_group(&svg, "values")
+        .iter()
+        .map(|e| e.text.clone())
+        .collect();
+    let expected: Vec<String> = cells.iter().map(|v| format!("{:.2}%", v * 100.0)).collect();
+    assert_eq!(texts, expected, "printed cell values");
+    // Relative luminance (WCAG 2.1) of each cell's fill: a higher value is never lighter.
+    let fills: Vec<f64> = in_group(&svg, "cells")
+        .iter()
+        .filter(|e| e.attributes["fill"] != "none")
+        .map(|e| {
+            let hex = &e.attributes["fill"][1..];
+            let channel = |i: usize| {
+                let v = u8::from_str_radix(&hex[i..i + 2], 16).unwrap() as f64 / 255.0;
+                if v <= 0.04045 {
+                    v / 12.92
+                } else {
+                    ((v + 0.055) / 1.055).powf(2.4)
+                }
+            };
+            0.2126 * channel(0) + 0.7152 * channel(2) + 0.0722 * channel(4)
+        })
+        .collect();
+    assert_eq!(fills.len(), cells.len());
+    for i in 0..cells.len() {
+        for j in 0..cells.len() {
+            if cells[i] > cells[j] + 1e-12 {
+                assert!(
+                    fills[i] <= fills[j],
+                    "cell {i} is higher but lighter than cell {j}"
+                );
+            }
+        }
+    }
+    let [r, c] = [0, 1].map(|k| grid["base_cell"][k].as_u64().unwrap() as usize);
+    let columns = grid["columns"]["values"].as_array().unwrap().len();
+    let outline = in_group(&svg, "base-cell")[0];
+    let cell = in_group(&svg, "cells")[r * columns + c];
+    let inside = |e: &Element, o: &Element| {
+        o.number("x") >= e.number("x")
+            && o.number("x") + o.number("width") <= e.number("x") + e.number("width")
+            && o.number("y") >= e.number("y")
+            && o.number("y") + o.number("height") <= e.number("y") + e.number("height")
+    };
+    assert!(inside(cell, outline), "the outline sits in cell [{r}, {c}]");
+}
+
+/// The histogram: bar edges and counts, the percentile and point-estimate lines.
+fn check_uncertainty(run: &Run) {
+    let svg = run.svg("uncertainty.svg");
+    let u = &run.result["uncertainty"];
+    let (x, y) = (
+        Axis::read(&svg, "x-axis", "x"),
+        Axis::read(&svg, "y-axis", "y"),
+    );
+    let edges: Vec<f64> = u["histogram"]["edges"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(f)
+        .collect();
+    let counts: Vec<f64> = u["histogram"]["counts"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(f)
+        .collect();
+    assert_eq!(
+        counts.iter().sum::<f64>(),
+        f(&u["draws"]),
+        "every draw is counted"
+    );
+    let bars: Vec<&Element> = in_group(&svg, "bars")
+        .into_iter()
+        .filter(|e| e.attributes["stroke"] == "none")
+        .collect();
+    assert_eq!(bars.len(), counts.len());
+    for (i, bar) in bars.iter().enumerate() {
+        let (left, right) = (bar.number("x"), bar.number("x") + bar.number("width"));
+        close("bin start", x.value(left), edges[i], x.tolerance());
+        close("bin end", x.value(right), edges[i + 1], x.tolerance());
+        let height = y.value(bar.number("y")) - y.value(bar.number("y") + bar.number("height"));
+        close(&format!("bin {i} count"), height, counts[i], y.tolerance());
+    }
+    for (class, key) in [
+        ("percentile-05", "p05"),
+        ("median", "p50"),
+        ("percentile-95", "p95"),
+        ("point-estimate", "point_estimate"),
+    ] {
+        let line = in_group(&svg, class)
+            .into_iter()
+            .find(|e| e.tag == "polyline")
+            .unwrap()
+            .points();
+        close(class, x.value(line[0].0), f(&u[key]), x.tolerance());
+    }
+}
+
+/// The waterfall: each group's bar is its Shapley value, the residue last, the totals' ends.
+fn check_reconciliation(run: &Run) {
+    let svg = run.svg("reconciliation.svg");
+    let b = &run.result["reconciliation"];
+    let x = Axis::read(&svg, "x-axis", "x");
+    let bars = in_group(&svg, "bars");
+    let steps = b["steps"].as_array().unwrap();
+    // Bars top to bottom: this case, one per group (Shapley), the residue, the claim.
+    let first_group = if b["unexplained_from"].as_f64().unwrap_or(0.0) != 0.0 {
+        2
+    } else {
+        1
+    };
+    assert_eq!(
+        bars.len(),
+        first_group + steps.len() + 1 + usize::from(!b["unexplained"].is_null())
+    );
+    let length = |e: &Element| x.value(e.number("x") + e.number("width")) - x.value(e.number("x"));
+    for (k, step) in steps.iter().enumerate() {
+        let bar = bars[first_group + k];
+        close(
+            step["group"].as_str().unwrap(),
+            length(bar),
+            f(&step["shapley"]).abs(),
+            x.tolerance(),
+        );
+    }
+    if !b["unexplained"].is_null() {
+        let residue = bars[first_group + steps.len()];
+        close(
+            "unexplained",
+            length(residue),
+            f(&b["unexplained"]).abs(),
+            x.tolerance(),
+        );
+    }
+    let right_end = |e: &Element| x.value(e.number("x") + e.number("width"));
+    let from = b["from"]["stated_wacc"]
+        .as_f64()
+        .unwrap_or(f(&b["from"]["wacc"]));
+    let to = b["to"]["stated_wacc"]
+        .as_f64()
+        .unwrap_or(f(&b["to"]["wacc"]));
+    close("this case's WACC", right_end(bars[0]), from, x.tolerance());
+    close(
+        "claimed WACC",
+        right_end(bars[bars.len() - 1]),
+        to,
+        x.tolerance(),
+    );
+    close(
+        "this case's WACC is the result's",
+        from,
+        f(&run.result["wacc"]),
+        1e-15,
+    );
+}
+
+/// Every chart has a title and a description for screen readers, and they are linked.
+fn check_accessibility(run: &Run) {
+    for file in run.files() {
+        let svg = run.svg(&file);
+        let root = svg.iter().find(|e| e.tag == "svg").unwrap();
+        assert_eq!(root.attributes["role"], "img", "{file}");
+        let title = svg.iter().find(|e| e.tag == "title").unwrap();
+        let desc = svg.iter().find(|e| e.tag == "desc").unwrap();
+        assert!(!title.text.is_empty() && desc.text.len() > 80, "{file}");
+        assert_eq!(
+            root.attributes["aria-labelledby"],
+            format!("{} {}", title.attributes["id"], desc.attributes["id"])
+        );
+    }
+}
+
+#[test]
+fn demo_charts_draw_the_result_figures() {
+    let run = Run::new(&[]);
+    let peers = run.result["peers"].as_array().unwrap().len();
+    // Betas, one regression per peer, stability, sensitivity, uncertainty, reconciliation.
+    assert_eq!(run.files().len(), peers + 5, "{:?}", run.files());
+    check_regressions(&run);
+    check_betas(&run);
+    check_stability(&run, &[]);
+    check_sensitivity(&run);
+    check_uncertainty(&run);
+    check_reconciliation(&run);
+    check_accessibility(&run);
+    // The memo links every chart with a relative path that exists.
+    let memo = std::fs::read_to_string(run.dir.path().join("memo.md")).unwrap();
+    for file in run.files() {
+        assert!(
+            memo.contains(&format!("](figures/{file})")),
+            "memo.md does not link {file}"
+        );
+    }
+}
+
+// Dimson with Newey–West errors, a peer excluded by hand: the summed beta's line, the rolling
+// Dimson betas, and the excluded peer's row below the divider.
+#[test]
+fn dimson_charts_draw_the_result_figures() {
+    let extra = [
+        "--set",
+        "beta.method=dimson",
+        "--set",
+        "beta.std_errors=newey-west",
+        "--set",
+        "peer.1.exclude=\"illustration: shown apart\"",
+    ];
+    let run = Run::new(&extra);
+    check_regressions(&run);
+    check_betas(&run);
+    check_stability(&run, &extra);
+    let svg = std::fs::read_to_string(run.dir.path().join("figures/betas.svg")).unwrap();
+    assert!(svg.contains("Left out of the aggregate") && svg.contains("illustration: shown apart"));
+    let regression = std::fs::read_dir(run.dir.path().join("figures"))
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .find(|p| p.to_string_lossy().contains("regression-01"))
+        .unwrap();
+    assert!(std::fs::read_to_string(regression)
+        .unwrap()
+        .contains("Dimson (1979) sum"));
+}
+
+#[test]
+fn charts_are_byte_identical_across_runs_and_no_figures_writes_none() {
+    let (a, b) = (Run::new(&[]), Run::new(&[]));
+    assert_eq!(a.files(), b.files());
+    for file in a.files() {
+        let read = |run: &Run| std::fs::read(run.dir.path().join("figures").join(&file)).unwrap();
+        assert!(read(&a) == read(&b), "{file} differs between two runs");
+    }
+    // The report differs only by the run's timestamp, which the memo prints.
+    let report = |run: &Run| {
+        let stamp = run.result["generated_at"].as_str().unwrap().to_string();
+        std::fs::read_to_string(run.dir.path().join("report.html"))
+            .unwrap()
+            .replace(&stamp, "")
+    };
+    assert!(
+        report(&a) == report(&b),
+        "report.html differs beyond the timestamp"
+    );
+
+    let text_only = Run::new(&["--no-figures"]);
+    assert!(!text_only.dir.path().join("figures").exists());
+    assert!(!text_only.dir.path().join("report.html").exists());
+    let memo = std::fs::read_to_string(text_only.dir.path().join("memo.md")).unwrap();
+    assert!(
+        !memo.contains("figures/"),
+        "a text-only memo links no chart"
+    );
+    assert!(Path::new(&text_only.dir.path().join("memo.md")).is_file());
+}
