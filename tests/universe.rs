@@ -564,3 +564,32 @@ fn a_panel_in_the_other_layout_is_named() {
         &["prices-wide.parquet", "this looks like a wide file"],
     );
 }
+
+// The receipt reruns: `hurdle verify` on an untouched universe reproduces every figure (exit 0);
+// after one price changes it reports the panel's new SHA-256 and the moved figures (exit 1).
+#[test]
+fn verify_reruns_a_universe_receipt() {
+    let setup = Setup::new();
+    let out = setup.succeeds("out", &[]);
+    let receipt = out.join("result.json");
+    let receipt = receipt.to_str().unwrap();
+    let first = common::hurdle(&["verify", receipt]);
+    let report = String::from_utf8_lossy(&first.stdout);
+    assert_eq!(first.status.code(), Some(0), "{report}");
+    assert!(report.contains("REPRODUCED"), "{report}");
+    let cells = panel_line(&setup.dir(), 12);
+    let price: f64 = cells[2].parse().unwrap();
+    replace_line(
+        &setup.dir().join("prices-long.csv"),
+        12,
+        &format!("{},{},{}", cells[0], cells[1], price * 1.5),
+    );
+    let second = common::hurdle(&["verify", receipt]);
+    let report = String::from_utf8_lossy(&second.stdout);
+    assert_eq!(second.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains("prices-long.csv") && report.contains("CHANGED"),
+        "{report}"
+    );
+    assert!(report.contains("industries["), "{report}");
+}
