@@ -109,10 +109,15 @@ impl Estimation {
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
         let min = self.spec.min_observations;
         match estimated {
-            Ok(e) => SecurityEstimate {
+            Ok(mut e) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
                 outcome: Ok(Estimated {
-                    estimate: e.estimate,
+                    estimate: {
+                        // One influence term per return serves a case's joint Monte Carlo; a
+                        // universe keeps the statistics only (20 kB a security otherwise).
+                        e.estimate.beta_influence = Vec::new();
+                        e.estimate
+                    },
                     periods_in_window: e.periods_in_window,
                     stale_share: e.stale_share,
                     flags: e.flags,
