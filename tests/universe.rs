@@ -593,3 +593,56 @@ fn verify_reruns_a_universe_receipt() {
     );
     assert!(report.contains("industries["), "{report}");
 }
+
+// `universe.rolling = true`: each security's rolling betas are those `hurdle rolling` writes for a
+// case listing it as a peer (the same estimate layer; both files hold shortest round-trip
+// decimals, so the doubles must be equal).
+#[test]
+fn rolling_betas_equal_those_of_the_case() {
+    let setup = Setup::new();
+    let peers = [(0, "S01"), (8, "S09")];
+    let case = write_case(&setup.dir(), &peers);
+    let out = setup.succeeds("out", &["universe.rolling=true"]);
+    let universe = read_table(&out.join("rolling.csv"));
+    let case_out = setup.out("case");
+    let run = common::hurdle(&[
+        "rolling",
+        case.to_str().unwrap(),
+        "--out",
+        case_out.to_str().unwrap(),
+    ]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let case_rows = read_table(&case_out.join("rolling.csv"));
+    for (_, id) in peers {
+        let pick = |table: &DataFrame, key: &str| {
+            let mask = table.column(key).unwrap().str().unwrap().equal(id);
+            table.filter(&mask).unwrap()
+        };
+        let (ours, theirs) = (pick(&universe, "security"), pick(&case_rows, "peer"));
+        assert!(
+            ours.height() > 10,
+            "{id}: {} rolling windows",
+            ours.height()
+        );
+        assert_eq!(ours.height(), theirs.height(), "{id}: window count");
+        for column in ["window_end", "beta", "std_error", "observations"] {
+            let a = ours
+                .column(column)
+                .unwrap()
+                .as_materialized_series()
+                .clone();
+            let b = theirs
+                .column(column)
+                .unwrap()
+                .as_materialized_series()
+                .clone();
+            assert!(a.equals(&b), "{id}: {column} differs");
+        }
+    }
+    let securities = read_table(&out.join("securities.csv"));
+    assert!(securities.column("rolling_beta_trend_per_year").is_ok());
+}

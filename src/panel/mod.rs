@@ -298,6 +298,27 @@ pub(crate) struct Rows {
     pub dates: Vec<NaiveDate>,
     pub prices: Vec<f64>,
     pub date_cache: cells::DateCache,
+    order: Order,
+}
+
+/// What the rows' order shows so far, watched as they arrive so that grouping can skip whole
+/// passes: ids that never go back (each security's rows together, in order of first appearance)
+/// and dates rising within each security.
+#[derive(Debug)]
+struct Order {
+    last: Option<(u32, NaiveDate)>,
+    grouped: bool,
+    ascending: bool,
+}
+
+impl Default for Order {
+    fn default() -> Self {
+        Order {
+            last: None,
+            grouped: true,
+            ascending: true,
+        }
+    }
 }
 
 /// A (security, date) pair found twice.
@@ -325,9 +346,23 @@ impl Rows {
     }
 
     pub fn push(&mut self, id: u32, date: NaiveDate, price: f64) {
+        self.push_id_and_date(id, date);
+        self.prices.push(price);
+    }
+
+    /// A row's id and date; its price is pushed by the caller.
+    pub fn push_id_and_date(&mut self, id: u32, date: NaiveDate) {
+        let order = &mut self.order;
+        if let Some((last_id, last_date)) = order.last {
+            if id == last_id {
+                order.ascending &= date > last_date;
+            } else {
+                order.grouped &= id > last_id;
+            }
+        }
+        order.last = Some((id, date));
         self.ids.push(id);
         self.dates.push(date);
-        self.prices.push(price);
     }
 
     /// Groups the rows by security id in byte order with a counting sort (O(rows)), then sorts
@@ -339,6 +374,7 @@ impl Rows {
             ids,
             dates,
             prices,
+            order: seen,
             ..
         } = self;
         let names = dictionary.names;
@@ -357,27 +393,34 @@ impl Rows {
             rank[id as usize] = r as u32;
             offsets[r + 1] = offsets[r] + counts[id as usize];
         }
-        // Rows already grouped in id order (a file sorted by security) are kept as they are.
-        let in_order = ids
-            .windows(2)
-            .all(|w| rank[w[0] as usize] <= rank[w[1] as usize]);
+        // Rows already grouped in id order (a file sorted by security) are kept as they are;
+        // when the ids never went back, it is enough that first appearance is byte order.
+        let in_order = if seen.grouped {
+            order.windows(2).all(|w| w[0] < w[1])
+        } else {
+            ids.windows(2)
+                .all(|w| rank[w[0] as usize] <= rank[w[1] as usize])
+        };
         let (mut dates, mut prices) = if in_order {
             (dates, prices)
         } else {
             scatter(&ids, &rank, &offsets, &dates, &prices)
         };
         drop(ids);
-        let mut scratch = Vec::new();
-        for (r, &id) in order.iter().enumerate() {
-            let rows = offsets[r]..offsets[r + 1];
-            let (d, p) = (&mut dates[rows.clone()], &mut prices[rows]);
-            if !d.windows(2).all(|w| w[0] < w[1]) {
-                sort_by_date(d, p, &mut scratch);
-                if let Some(w) = d.windows(2).find(|w| w[0] == w[1]) {
-                    return Err(Duplicate {
-                        security: names[id as usize].clone(),
-                        date: w[0],
-                    });
+        // Grouped rows whose dates always rose need no check per security.
+        if !(seen.grouped && seen.ascending) {
+            let mut scratch = Vec::new();
+            for (r, &id) in order.iter().enumerate() {
+                let rows = offsets[r]..offsets[r + 1];
+                let (d, p) = (&mut dates[rows.clone()], &mut prices[rows]);
+                if !d.windows(2).all(|w| w[0] < w[1]) {
+                    sort_by_date(d, p, &mut scratch);
+                    if let Some(w) = d.windows(2).find(|w| w[0] == w[1]) {
+                        return Err(Duplicate {
+                            security: names[id as usize].clone(),
+                            date: w[0],
+                        });
+                    }
                 }
             }
         }
@@ -539,6 +582,36 @@ mod tests {
         let duplicate = rows.group().unwrap_err();
         assert_eq!(duplicate.security, "A");
         assert_eq!(duplicate.date, date("2026-01-02"));
+    }
+
+    // Rows already grouped by security skip the scans; the outcome must be the same as for any
+    // order: ids out of byte order are still sorted, and a repeated date is still found.
+    #[test]
+    fn grouped_rows_take_the_short_path_to_the_same_result() {
+        let mut rows = Rows::default();
+        for (s, d) in [
+            ("B", "2026-01-01"),
+            ("B", "2026-01-02"),
+            ("A", "2026-01-01"),
+        ] {
+            let id = rows.dictionary.id(s);
+            rows.push(id, date(d), 1.0);
+        }
+        assert!(rows.order.grouped && rows.order.ascending);
+        let grouped = rows.group().unwrap();
+        assert_eq!(grouped.securities, ["A", "B"]);
+        assert_eq!(grouped.offsets, [0, 1, 3]);
+        let mut rows = Rows::default();
+        for (s, d) in [
+            ("A", "2026-01-01"),
+            ("A", "2026-01-01"),
+            ("B", "2026-01-01"),
+        ] {
+            let id = rows.dictionary.id(s);
+            rows.push(id, date(d), 1.0);
+        }
+        assert!(rows.order.grouped && !rows.order.ascending);
+        assert_eq!(rows.group().unwrap_err().security, "A");
     }
 
     // The dictionary's guesses must never change which id a name gets.
