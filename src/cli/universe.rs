@@ -10,10 +10,9 @@
 
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant};
 
-use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 
 use hurdle::report::universe::{nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
@@ -59,10 +58,14 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     refuse_overwriting_inputs(&out, &inputs)?;
     let estimating = Display::new(show, started, ProgressBar::new(inputs.panel.len() as u64));
     estimating.bar.set_style(
-        ProgressStyle::with_template(
-            "{bar:40} {pos}/{len} securities estimated  {per_sec}  about {eta} left",
-        )
-        .expect("a valid template"),
+        ProgressStyle::with_template("{bar:30} {pos}/{len} securities  {rate}  about {eta} left")
+            .expect("a valid template")
+            .with_key(
+                "rate",
+                |state: &ProgressState, w: &mut dyn std::fmt::Write| {
+                    let _ = write!(w, "{:.0}/s", state.per_sec());
+                },
+            ),
     );
     let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
     estimating.bar.finish_and_clear();
@@ -74,40 +77,31 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     Ok(())
 }
 
-/// A progress display that stays hidden until the run has taken [`QUIET_START`], and always
-/// when it should not show at all.
+/// A progress display that stays hidden until the run has taken [`QUIET_START`] (a watcher
+/// thread then shows it, unless it has finished), and always when it should not show at all.
 struct Display {
     bar: ProgressBar,
-    show: bool,
-    shown: AtomicBool,
-    started: Instant,
 }
 
 impl Display {
     fn new(show: bool, started: Instant, bar: ProgressBar) -> Display {
-        let early = started.elapsed() >= QUIET_START;
-        bar.set_draw_target(if show && early {
-            ProgressDrawTarget::stderr()
-        } else {
-            ProgressDrawTarget::hidden()
-        });
-        Display {
-            bar,
-            show,
-            shown: AtomicBool::new(early),
-            started,
+        bar.set_draw_target(ProgressDrawTarget::hidden());
+        if show {
+            let delayed = bar.clone();
+            let wait = QUIET_START.saturating_sub(started.elapsed());
+            std::thread::spawn(move || {
+                std::thread::sleep(wait);
+                if !delayed.is_finished() {
+                    delayed.set_draw_target(ProgressDrawTarget::stderr());
+                }
+            });
         }
+        Display { bar }
     }
 
     /// Counts `n` more securities (from any thread).
     fn advance(&self, n: usize) {
         self.bar.inc(n as u64);
-        if self.show
-            && self.started.elapsed() >= QUIET_START
-            && !self.shown.swap(true, Ordering::Relaxed)
-        {
-            self.bar.set_draw_target(ProgressDrawTarget::stderr());
-        }
     }
 }
 
