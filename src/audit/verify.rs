@@ -98,22 +98,7 @@ pub fn verify(
             .and_then(Value::as_str)
             .map(str::to_string)
     };
-    let case_file = match case_path {
-        Some(path) => path.to_path_buf(),
-        None => locate_case(
-            receipt_path,
-            &text("/case/file").ok_or_else(|| fail("has no case.file".into()))?,
-        )
-        .map_err(fail)?,
-    };
-    let overrides: Vec<String> = recorded["case"]["overrides"]
-        .as_array()
-        .map(|list| {
-            list.iter()
-                .filter_map(|v| v.as_str().map(str::to_string))
-                .collect()
-        })
-        .unwrap_or_default();
+    let (case_file, overrides) = rerun_source(receipt_path, &recorded, "case", case_path)?;
     let case = read_case(&case_file, &overrides)?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
     let inputs = load_inputs(case)?;
@@ -145,6 +130,38 @@ pub fn verify(
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
     })
+}
+
+/// The input file a receipt's `section` (`case` or `universe`) names, found as
+/// [`locate_case`] finds it unless `given`, and the overrides it records.
+pub(super) fn rerun_source(
+    receipt_path: &Path,
+    recorded: &Value,
+    section: &str,
+    given: Option<&Path>,
+) -> Result<(PathBuf, Vec<String>)> {
+    let fail = |message: String| Error::DataFile {
+        file: receipt_path.to_path_buf(),
+        message,
+    };
+    let file = match given {
+        Some(path) => path.to_path_buf(),
+        None => {
+            let written = recorded[section]["file"]
+                .as_str()
+                .ok_or_else(|| fail(format!("has no {section}.file")))?;
+            locate_case(receipt_path, written).map_err(fail)?
+        }
+    };
+    let overrides = recorded[section]["overrides"]
+        .as_array()
+        .map(|list| {
+            list.iter()
+                .filter_map(|v| v.as_str().map(str::to_string))
+                .collect()
+        })
+        .unwrap_or_default();
+    Ok((file, overrides))
 }
 
 /// Finds the case file a receipt names: as recorded (relative to the working folder), else

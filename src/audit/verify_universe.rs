@@ -11,7 +11,7 @@ use std::path::Path;
 
 use serde_json::Value;
 
-use super::verify::{compare, locate_case, FileCheck, Verification};
+use super::verify::{compare, rerun_source, FileCheck, Verification};
 use crate::error::{Error, Result};
 use crate::universe::settings::read_universe;
 use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
@@ -36,22 +36,7 @@ pub fn verify_universe(
         )));
     }
     let text = |pointer: &str| recorded.pointer(pointer).and_then(Value::as_str);
-    let file = match universe_path {
-        Some(path) => path.to_path_buf(),
-        None => locate_case(
-            receipt_path,
-            text("/universe/file").ok_or_else(|| fail("has no universe.file".into()))?,
-        )
-        .map_err(fail)?,
-    };
-    let overrides: Vec<String> = recorded["universe"]["overrides"]
-        .as_array()
-        .map(|list| {
-            list.iter()
-                .filter_map(|v| v.as_str().map(str::to_string))
-                .collect()
-        })
-        .unwrap_or_default();
+    let (file, overrides) = rerun_source(receipt_path, recorded, "universe", universe_path)?;
     let universe = read_universe(&file, &overrides)?;
     let unchanged = Some(universe.sha256.as_str()) == text("/universe/sha256");
     let inputs = load_inputs(universe)?;
