@@ -5,8 +5,11 @@
 //! can see how well the estimates recover them. Each peer's true equity beta is its true asset
 //! beta relevered with Hamada at its own debt-to-equity, so the true asset betas are also the
 //! answer the unlevering step should approach. One peer lists late and one has a month with no
-//! trades, to show dropped periods. `hurdle-demo-data` writes the files; a test checks that the
-//! files in `cases/quillmarsh/` are exactly what this generator produces.
+//! trades, to show dropped periods. The risk-free yield wanders around an invented level, the
+//! equity risk premium is an invented, off-round figure and the spread tables come from a stated
+//! formula, so none of them follows real data or a published table. `hurdle-demo-data` writes the
+//! files; a test checks that the files in `cases/quillmarsh/` are exactly what this generator
+//! produces.
 
 use std::fmt::Write as _;
 
@@ -180,13 +183,13 @@ pub fn generate(seed: u64) -> Vec<(String, String)> {
         .collect();
     let n = days.len();
 
-    // Risk-free yield: drifts from 0.5% up to about 3.8%, with small daily noise.
+    // Risk-free yield: a seeded walk pulled back toward an invented level, with no trend, so it
+    // tracks no history; daily steps of 0.03 points, a few tenths of a point wide over a year.
     let mut yields = Vec::with_capacity(n);
-    let mut noise = 0.0_f64;
-    for t in 0..n {
-        noise = 0.98 * noise + 0.0004 * rng.normal();
-        let trend = 0.005 + 0.033 * (t as f64 / (n - 1) as f64).powf(0.7);
-        yields.push(((trend + noise) * 1e5).round() / 1e5);
+    let mut deviation = 0.0_f64;
+    for _ in 0..n {
+        deviation = 0.996 * deviation + 0.0003 * rng.normal();
+        yields.push(((RISK_FREE_LEVEL + deviation) * 1e5).round() / 1e5);
     }
     let daily_rf: Vec<f64> = yields.iter().map(|y| y / 252.0).collect();
     let market_excess: Vec<f64> = (0..n).map(|_| 0.00028 + 0.0105 * rng.normal()).collect();
@@ -237,7 +240,9 @@ pub fn generate(seed: u64) -> Vec<(String, String)> {
         files.push((format!("data/peers/{}.csv", peer.file_stem), text));
     }
     files.extend(spread_tables());
-    files.push(("case.toml".to_string(), case_toml()));
+    // The case's spot rate is the yield series' last value, to the basis point.
+    let spot = (yields[n - 1] * 1e4).round() / 1e4;
+    files.push(("case.toml".to_string(), case_toml(spot)));
     files.push(("claimed.toml".to_string(), CLAIMED.to_string()));
     files
 }
@@ -258,41 +263,59 @@ tax_rate = 0.25
 debt_to_equity = 0.50
 "#;
 
-/// Invented credit-spread tables for the `rating` and `coverage` cost-of-debt sources: rating,
-/// lowest interest coverage and spread per row. Illustrative only, not market data; the
-/// spreads merely widen as ratings fall, as real ones do.
-pub const DEMO_SPREADS: [(&str, f64, f64); 8] = [
-    ("C", 0.0, 0.1200),
-    ("CCC", 0.8, 0.0800),
-    ("B", 1.5, 0.0420),
-    ("BB", 2.5, 0.0260),
-    ("BBB", 3.5, 0.0160),
-    ("A", 5.0, 0.0110),
-    ("AA", 8.0, 0.0080),
-    ("AAA", 12.5, 0.0060),
-];
+/// The level the demo's risk-free yield wanders around: an invented figure.
+pub const RISK_FREE_LEVEL: f64 = 0.0290;
+
+/// The rating classes of the demo's spread tables, lowest first.
+pub const DEMO_RATINGS: [&str; 8] = ["C", "CCC", "B", "BB", "BBB", "A", "AA", "AAA"];
+
+/// The demo's invented coverage-to-rating-to-spread rows, lowest rating first: `(rating,
+/// min_coverage, spread)`. Made by formula, so that they are plainly invented and sit on no
+/// published grid: the k-th class above the lowest starts at coverage 0.9·1.47^k (rounded to two
+/// decimals; the lowest class starts at 0), and the class n steps below the top pays a spread of
+/// 0.45%·1.6^n (rounded to a basis point). Illustrative only, not market data.
+pub fn demo_spreads() -> Vec<(&'static str, f64, f64)> {
+    let top = DEMO_RATINGS.len() - 1;
+    DEMO_RATINGS
+        .iter()
+        .enumerate()
+        .map(|(k, &rating)| {
+            let min_coverage = if k == 0 {
+                0.0
+            } else {
+                (0.9 * 1.47_f64.powi(k as i32) * 100.0).round() / 100.0
+            };
+            let spread = (0.0045 * 1.6_f64.powi((top - k) as i32) * 1e4).round() / 1e4;
+            (rating, min_coverage, spread)
+        })
+        .collect()
+}
 
 fn spread_tables() -> Vec<(String, String)> {
     let warning = "# ILLUSTRATIVE ONLY: invented for the demo case by hurdle-demo-data \
-                   (src/demo.rs); not market data.\n";
-    let mut rating = format!("{warning}rating,spread\n");
+                   (src/demo.rs); not market data.\n# Made by formula, on no published grid: \
+                   the class n steps below the top pays 0.45% * 1.6^n (to a basis point)";
+    let mut rating = format!("{warning}.\nrating,spread\n");
     let mut coverage = format!(
-        "{warning}# A row applies from its min_coverage (EBIT / interest expense, inclusive) up to \
-         the next row's.\nmin_coverage,rating,spread\n"
+        "{warning}; the k-th class above the lowest starts at coverage 0.9 * 1.47^k (to two \
+         decimals).\n# A row applies from its min_coverage (EBIT / interest expense, inclusive) \
+         up to the next row's.\nmin_coverage,rating,spread\n"
     );
-    for (name, _, spread) in DEMO_SPREADS.iter().rev() {
+    let rows = demo_spreads();
+    for (name, _, spread) in rows.iter().rev() {
         writeln!(rating, "{name},{spread:.4}").expect("String write");
     }
-    for (name, low, spread) in DEMO_SPREADS {
-        writeln!(coverage, "{low:.1},{name},{spread:.4}").expect("String write");
+    for (name, low, spread) in &rows {
+        writeln!(coverage, "{low:.2},{name},{spread:.4}").expect("String write");
     }
     vec![
-        ("data/rating_spreads.csv".to_string(), rating),
-        ("data/coverage_ratings.csv".to_string(), coverage),
+        ("data/rating_spreads_invented.csv".to_string(), rating),
+        ("data/coverage_grid_invented.csv".to_string(), coverage),
     ]
 }
 
-fn case_toml() -> String {
+/// The demo's case file, with `spot` (the yield series' last value) as the risk-free rate.
+fn case_toml(spot: f64) -> String {
     let mut text = String::from(
         r#"# Demo case: an invented scenario. Every firm, figure and price here is fictional,
 # generated by `hurdle-demo-data` (src/demo.rs) from a seeded one-factor model. Not market data.
@@ -304,8 +327,8 @@ valuation_date = 2026-09-30
 currency = "EUR"
 
 [market]
-risk_free_rate = 0.038        # illustrative
-equity_risk_premium = 0.055   # illustrative
+risk_free_rate = RISK_FREE_SPOT  # illustrative: the demo yield series' last value
+equity_risk_premium = 0.0517  # illustrative, invented
 
 [market.index]
 name = "Demo broad market index (fictional)"
@@ -335,18 +358,18 @@ subject_cash = 80.0
 
 [debt]
 source = "given"              # or "rating" or "coverage", e.g. --set debt.source=coverage
-cost_pre_tax = 0.058          # illustrative
+cost_pre_tax = 0.0463         # illustrative
 rating = "BBB"                # illustrative; for source = "rating"
-rating_table = "data/rating_spreads.csv"      # illustrative, invented table
+rating_table = "data/rating_spreads_invented.csv"  # illustrative, invented table
 ebit = 210.0                  # illustrative; for source = "coverage" (coverage 4.375)
 interest_expense = 48.0       # illustrative
-coverage_table = "data/coverage_ratings.csv"  # illustrative, invented table
+coverage_table = "data/coverage_grid_invented.csv"  # illustrative, invented table
 
 [premiums]
 size = 0.010                  # illustrative
 country = 0.0
 company_specific = 0.0
-country_method = "added"      # or "lambda" (with country_lambda) or "beta"
+country_method = "flat"       # or "exposure" (with country_exposure) or "beta-scaled"
 size_justification = "Illustrative: the subject is smaller than every peer (invented demo figure)."
 
 [uncertainty]
@@ -356,7 +379,8 @@ seed = 1
 [reconcile]
 claimed = "claimed.toml"      # the memo bridges this case's WACC to the claimed build-up
 "#,
-    );
+    )
+    .replace("RISK_FREE_SPOT", &format!("{spot:.4}"));
     for peer in &PEERS {
         write!(
             text,

@@ -46,6 +46,9 @@ pub enum Error {
     /// A chart could not be drawn (`name` is its file name).
     #[error("figure {name}: {message}")]
     Figure { name: String, message: String },
+    /// An output file could not be laid out (a spreadsheet limit, a missing figure).
+    #[error("{file}: {message}")]
+    Render { file: String, message: String },
     /// The memo template failed to parse or render.
     #[error("template {name}, line {line}: {message}")]
     Template {
@@ -53,7 +56,27 @@ pub enum Error {
         line: usize,
         message: String,
     },
+    /// The run was stopped (Ctrl-C) before its outputs were moved into place.
+    #[error("interrupted: stopped before any output was written")]
+    Interrupted,
+    /// A figure of the result is NaN or infinite; the last guard before any output.
+    #[error(
+        "the result would hold {value} at `{path}`; nothing is written: an input is outside \
+         any meaningful range (check the case and its data files)"
+    )]
+    NonFinite { path: String, value: f64 },
 }
 
 /// Shorthand used throughout the library.
 pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// A number as a message quotes it: in full, but in exponent form when that would run to many
+/// digits (`1e308` rather than 309 of them); NaN and infinity as Rust writes them.
+pub fn compact(value: f64) -> String {
+    let magnitude = value.abs();
+    if magnitude != 0.0 && magnitude.is_finite() && !(1e-6..1e15).contains(&magnitude) {
+        format!("{value:e}")
+    } else {
+        value.to_string()
+    }
+}

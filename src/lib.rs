@@ -10,19 +10,23 @@
 //! from peer betas to the WACC) → [`case`] (the case file and the specs it becomes) →
 //! [`valuation`] (one case valued: the one result value) → [`universe`] (every security of a
 //! panel estimated, unlevered and tabulated by industry) → [`audit`] (sensitivity, Monte Carlo,
-//! verify, implied, bridge) → [`report`] (memo, JSON, CSV, number formatting). [`demo`] generates
-//! the invented demo case. No module imports one to its right.
+//! verify, implied, bridge) → [`report`] (memo, JSON, CSV, workbook, charts, HTML report, number
+//! formatting). Wide price tables (CSV, Parquet, workbooks) are read in [`io::tables`] and named
+//! in a case's `[sources]`. [`demo`] and [`demo_wide`] generate the invented demo case. No module
+//! imports one to its right.
 
 pub mod audit;
 pub mod beta;
 pub mod capital;
 pub mod case;
 pub mod demo;
+pub mod demo_wide;
 pub mod error;
 pub mod estimate;
 pub mod io;
 pub mod market;
 pub mod panel;
+pub mod progress;
 pub mod report;
 pub mod stats;
 pub mod universe;

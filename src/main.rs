@@ -7,9 +7,33 @@ use std::process::ExitCode;
 use clap::Parser;
 
 fn main() -> ExitCode {
+    // Ctrl-C asks the work to stop at its next step, and nothing is written after it; a second
+    // Ctrl-C exits at once (removing any temporary output folder) unless files are being moved.
+    let _ = ctrlc::set_handler(|| {
+        if hurdle::progress::request_stop() && hurdle::report::staging::abandon() {
+            std::process::exit(130);
+        }
+    });
+    // A closed pipe (`hurdle betas CASE | head`) ends the output as it ends any filter's:
+    // quietly, with the status a SIGPIPE gives (128 + 13), not with a panic.
+    let default_hook = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        let message = info
+            .payload()
+            .downcast_ref::<String>()
+            .map_or("", String::as_str);
+        if message.starts_with("failed printing to stdout") && message.contains("Broken pipe") {
+            std::process::exit(141);
+        }
+        default_hook(info);
+    }));
     let parsed = cli::Cli::parse();
     match cli::run(parsed) {
         Ok(code) => code,
+        Err(error @ hurdle::Error::Interrupted) => {
+            eprintln!("{error}");
+            ExitCode::from(130)
+        }
         Err(error) => {
             eprintln!("error: {error}");
             ExitCode::from(2)

@@ -119,7 +119,9 @@ fn implied_values_reproduce_the_claimed_wacc() {
     let (dir, case_dir) = demo_copy();
     let case = case_dir.join("case.toml");
     let case = case.to_str().unwrap();
-    let claimed = 0.091;
+    // A claim the demo reaches by each input inside its default range (its D/E scan runs over
+    // WACCs of about 6.6% to 7.7%).
+    let claimed = 0.076;
     for solve in [
         "erp",
         "cost_of_debt",
@@ -153,7 +155,7 @@ fn implied_values_reproduce_the_claimed_wacc() {
     // The relevered beta is not a case key: check it with the textbook WACC formula on the
     // base run's other components, wE·(rf + β·ERP + premiums) + wD·Kd·(1 − t).
     let base = run_case(Path::new(case), &dir.path().join("base"), &[]);
-    let output = hurdle(&["implied", case, "--wacc", "0.091", "--solve", "beta"]);
+    let output = hurdle(&["implied", case, "--wacc", "0.076", "--solve", "beta"]);
     let report = text(&output);
     let beta: f64 = report
         .lines()
@@ -168,7 +170,7 @@ fn implied_values_reproduce_the_claimed_wacc() {
         + number(&base, "weights.debt")
             * number(&base, "cost_of_debt_pre_tax")
             * (1.0 - number(&base, "target.tax_rate"));
-    assert!((wacc - 0.091).abs() < 1e-10, "beta {beta} gives {wacc}");
+    assert!((wacc - 0.076).abs() < 1e-10, "beta {beta} gives {wacc}");
 }
 
 #[test]
@@ -378,7 +380,7 @@ fn implied_refuses_inputs_the_case_does_not_take_as_given() {
         "--set",
         "premiums.country=0.02",
         "--set",
-        "premiums.country_method=beta",
+        "premiums.country_method=beta-scaled",
     ]);
     assert_eq!(output.status.code(), Some(2), "{}", text(&output));
     assert!(

@@ -11,7 +11,13 @@ use tempfile::TempDir;
 
 mod common;
 
-const OUTPUT_FILES: [&str; 4] = ["memo.md", "result.json", "peers.csv", "returns.csv"];
+const OUTPUT_FILES: [&str; 5] = [
+    "memo.md",
+    "result.json",
+    "peers.csv",
+    "returns.csv",
+    "workbook.xlsx",
+];
 const PEER_FILE: &str = "data/peers/corrowick.csv";
 
 /// A copy of the demo case (every file but a previous run's `output/`) in `<tmp>/case/`;

@@ -71,9 +71,10 @@ fn every_formula_runs_and_the_memo_compares_them_all() {
                 if source == "none" {
                     assert_eq!(debt_beta, 0.0);
                 } else {
-                    // (Kd − rf)/ERP with the demo's 5.8%, 3.8%, 5.5%: 0.02/0.055 = 0.3636….
-                    // 1e-15: one subtraction and one division.
-                    assert!((debt_beta - 0.02 / 0.055).abs() < 1e-15, "{debt_beta}");
+                    // (Kd − rf)/ERP with the demo's 4.63%, 2.67%, 5.17%: 0.0196/0.0517 = 0.3791….
+                    // 1e-15: one subtraction and one division, the same ones.
+                    let expected = (0.0463 - 0.0267) / 0.0517;
+                    assert!((debt_beta - expected).abs() < 1e-15, "{debt_beta}");
                 }
             }
             let rows = result["leverage_comparison"].as_array().unwrap();
@@ -128,12 +129,12 @@ fn the_reference_check_agrees_under_every_formula() {
     }
 }
 
-/// The reference check (numpy average, scipy trim_mean, the cash correction, net debt and the
+/// The reference check (numpy average, scipy trim_mean, the beta of the operations, net debt and the
 /// target sources written out in Python) under the aggregation and structure options.
 #[test]
 fn the_reference_check_agrees_under_the_aggregation_and_structure_options() {
     for sets in [
-        &["leverage.aggregation=mean", "leverage.cash_correction=true"][..],
+        &["leverage.aggregation=mean", "leverage.operations_beta=true"][..],
         &[
             "leverage.aggregation=market-cap-weighted",
             "leverage.debt_measure=net",
@@ -181,7 +182,7 @@ fn the_target_can_be_the_subjects_own_structure() {
 
 #[test]
 fn cash_counted_twice_is_refused() {
-    let message = fails(&["leverage.cash_correction=true", "leverage.debt_measure=net"]);
+    let message = fails(&["leverage.operations_beta=true", "leverage.debt_measure=net"]);
     assert!(message.contains("count cash twice"), "{message}");
 }
 
@@ -201,18 +202,18 @@ fn debt_beta_above_the_equity_beta_is_refused() {
 }
 
 // Cost-of-debt sources on the demo's illustrative tables (cases/quillmarsh/data, inputs, not
-// output): rating BBB → spread 0.0160, so Kd = 3.8% + 1.6% = 5.4%; coverage 210 / 48 = 4.375
-// lies in [3.5, 5.0), the BBB row, so the same 5.4%.
+// output): rating BBB → spread 0.0184, so Kd = 2.67% + 1.84% = 4.51%; coverage 210 / 48 = 4.375
+// lies in [4.20, 6.18), the BBB row, so the same 4.51%.
 #[test]
 fn every_cost_of_debt_source_runs_and_the_memo_shows_the_row() {
     for (source, expected_line) in [
-        ("rating", "| BBB | 160 bp |"),
-        ("coverage", "| 3.50 | BBB | 160 bp |"),
+        ("rating", "| BBB | 184 bp |"),
+        ("coverage", "| 4.20 | BBB | 184 bp |"),
     ] {
         let dir = tempfile::tempdir().unwrap();
         let result = run_demo(dir.path(), &[&format!("debt.source={source}")]);
         // 1e-15: one addition of decimals.
-        assert!((number(&result, "cost_of_debt_pre_tax") - 0.054).abs() < 1e-15);
+        assert!((number(&result, "cost_of_debt_pre_tax") - 0.0451).abs() < 1e-15);
         assert_eq!(result["cost_of_debt"]["row"]["rating"], "BBB");
         // 1e-12: as in the WACC identity above.
         assert!((wacc_from_components(&result) - number(&result, "wacc")).abs() < 1e-12);
@@ -225,11 +226,19 @@ fn every_cost_of_debt_source_runs_and_the_memo_shows_the_row() {
             assert_eq!(number(&result["cost_of_debt"], "interest_coverage"), 4.375);
         }
     }
-    // Exactly on the 5.0 threshold: EBIT 240 / interest 48 = 5 → row A, spread 0.0110.
+    // Exactly on the 6.18 threshold: EBIT 309 / interest 50 = 6.18 (a correctly rounded division
+    // gives the same double as the table's "6.18") → row A.
     let dir = tempfile::tempdir().unwrap();
-    let on = run_demo(dir.path(), &["debt.source=coverage", "debt.ebit=240"]);
+    let on = run_demo(
+        dir.path(),
+        &[
+            "debt.source=coverage",
+            "debt.ebit=309",
+            "debt.interest_expense=50",
+        ],
+    );
     assert_eq!(on["cost_of_debt"]["row"]["rating"], "A");
-    // Above the highest threshold (12.5): 960 / 48 = 20 → AAA.
+    // Above the highest threshold (13.35): 960 / 48 = 20 → AAA.
     let top = run_demo(dir.path(), &["debt.source=coverage", "debt.ebit=960"]);
     assert_eq!(top["cost_of_debt"]["row"]["rating"], "AAA");
 }
@@ -248,7 +257,10 @@ fn negative_coverage_is_refused() {
 fn a_rating_missing_from_the_table_is_refused() {
     let message = fails(&["debt.source=rating", "debt.rating=BB+"]);
     assert!(message.contains("\"BB+\""), "{message}");
-    assert!(message.contains("data/rating_spreads.csv"), "{message}");
+    assert!(
+        message.contains("data/rating_spreads_invented.csv"),
+        "{message}"
+    );
 }
 
 #[test]
@@ -300,21 +312,25 @@ fn preferred_equity_without_a_cost_is_refused() {
     assert!(message.contains("0.1"), "{message}");
 }
 
-// Country risk premium 2%: added → +2%; λ = 0.5 → +1%; scaled by βL → +βL·2%. The difference
-// in Ke against CRP = 0 is exactly that term (the rest of the build-up is unchanged).
+// Country risk premium 2%: flat → +2%; exposure 0.5 → +1%; scaled by βL → +βL·2%. The
+// difference in Ke against CRP = 0 is exactly that term (the rest of the build-up is unchanged).
 #[test]
-fn the_country_premium_is_added_scaled_by_lambda_or_by_beta() {
+fn the_country_premium_is_flat_scaled_by_exposure_or_by_beta() {
     let dir = tempfile::tempdir().unwrap();
     let base = run_demo(dir.path(), &[]);
     let ke0 = number(&base, "cost_of_equity");
     let beta = number(&base, "beta.relevered");
-    for (method, expected) in [("added", 0.02), ("lambda", 0.01), ("beta", beta * 0.02)] {
+    for (method, expected) in [
+        ("flat", 0.02),
+        ("exposure", 0.01),
+        ("beta-scaled", beta * 0.02),
+    ] {
         let result = run_demo(
             dir.path(),
             &[
                 "premiums.country=0.02",
                 &format!("premiums.country_method={method}"),
-                "premiums.country_lambda=0.5",
+                "premiums.country_exposure=0.5",
                 "premiums.country_justification=Illustrative reason",
             ],
         );

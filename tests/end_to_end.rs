@@ -61,7 +61,7 @@ fn demo_run_writes_every_output_with_consistent_figures() {
             number(peer, field);
         }
         assert!(peer["name"].is_string() && peer["prices_file"].is_string());
-        assert!(peer.get("adjusted_beta").is_some());
+        assert!(peer.get("shrunk_beta").is_some());
     }
     // Textbook WACC identity on the file's own components: wE·Ke + wD·Kd·(1 − t).
     // 1e-12: the same three products, summed in the same order, differ by rounding only.
@@ -130,13 +130,14 @@ fn reruns_are_byte_identical_apart_from_the_timestamp() {
 fn overrides_change_the_result_and_are_recorded() {
     let dir = tempfile::tempdir().unwrap();
     let base = run_demo(dir.path(), &[]);
-    let what_if = run_demo(dir.path(), &["--set", "market.equity_risk_premium=0.065"]);
+    let what_if = run_demo(dir.path(), &["--set", "market.equity_risk_premium=0.0617"]);
     assert_eq!(
         what_if["case"]["overrides"][0],
-        "market.equity_risk_premium=0.065"
+        "market.equity_risk_premium=0.0617"
     );
-    assert_eq!(number(&what_if, "equity_risk_premium"), 0.065);
-    // CAPM: one more percentage point of ERP raises Ke by βL × 1% (1e-12: rounding only).
+    assert_eq!(number(&what_if, "equity_risk_premium"), 0.0617);
+    // CAPM: one more percentage point of ERP than the demo's 5.17% raises Ke by βL × 1%
+    // (1e-12: rounding only).
     let delta = number(&what_if, "cost_of_equity") - number(&base, "cost_of_equity");
     assert!((delta - 0.01 * number(&base, "beta.relevered")).abs() < 1e-12);
     // By peer name inside [[peer]]:

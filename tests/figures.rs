@@ -323,7 +323,9 @@ fn check_betas(run: &Run) {
         (intervals.len(), used.len(), unlevered.len()),
         (peers.len(), peers.len(), peers.len())
     );
-    let cash = run.result["beta"]["cash_corrected"].as_bool().unwrap();
+    let cash = run.result["beta"]["uses_operations_beta"]
+        .as_bool()
+        .unwrap();
     for (k, peer) in order.iter().enumerate() {
         let name = peer["name"].as_str().unwrap();
         close(
@@ -356,7 +358,7 @@ fn check_betas(run: &Run) {
         let square = unlevered[k];
         let middle = square.number("x") + square.number("width") / 2.0;
         let expected = if cash {
-            f(&peer["cash_corrected_unlevered_beta"])
+            f(&peer["operations_beta"])
         } else {
             f(&peer["unlevered_beta"])
         };

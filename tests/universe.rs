@@ -189,10 +189,7 @@ fn each_security_equals_the_case_that_lists_it_as_a_peer() {
                 ("beta_used", "beta_used"),
                 ("debt_to_equity", "debt_to_equity"),
                 ("unlevered_beta", "unlevered_beta"),
-                (
-                    "cash_corrected_unlevered_beta",
-                    "cash_corrected_unlevered_beta",
-                ),
+                ("operations_beta", "operations_beta"),
                 ("stale_share", "stale_share"),
             ] {
                 let expected = common::number(peer, case_key);
@@ -236,7 +233,7 @@ fn industry_table_agrees_with_numpy_and_scipy() {
     for (k, sets) in [
         &[][..],
         &[
-            "leverage.cash_correction=true",
+            "leverage.operations_beta=true",
             "leverage.aggregation=trimmed-mean",
         ][..],
         &[

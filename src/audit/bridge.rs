@@ -73,6 +73,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         side.sha256 = valuation.case.sha256;
         return Ok(side);
     }
+    crate::case::sanity::check_claimed_text(&text).map_err(fail)?;
     let claimed = toml::from_str::<ClaimedFile>(&text)
         .map_err(|e| fail(e.to_string()))?
         .claimed;

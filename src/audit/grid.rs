@@ -62,12 +62,16 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
         return Err(fail(format!("step {step} must be positive")));
     }
     // The tolerance lets 0.04..0.07:0.005 end at 0.07 despite decimal rounding in the step.
-    let count = ((high - low) / step + 1e-9).floor() as usize + 1;
-    if count > MAX_POINTS {
+    // Counted in floating point: a tiny step must not overflow the integer count.
+    let steps = ((high - low) / step + 1e-9).floor();
+    // NaN cannot arise (both bounds and the step are finite), so `>=` also refuses infinity.
+    if steps >= MAX_POINTS as f64 {
         return Err(fail(format!(
-            "{count} points; at most {MAX_POINTS} per axis"
+            "{} points; at most {MAX_POINTS} per axis",
+            crate::error::compact(steps + 1.0)
         )));
     }
+    let count = steps as usize + 1;
     // Rounded to 12 decimals so that 0.04 + 3 × 0.005 is written 0.055, as a user would type it.
     let values = (0..count)
         .map(|i| ((low + i as f64 * step) * 1e12).round() / 1e12)
@@ -121,6 +125,9 @@ pub fn grid(
     columns: &Axis,
     metric: Metric,
 ) -> Result<Grid> {
+    crate::valuation::sanity::check_axes(&rows.key, &columns.key)?;
+    let total = rows.values.len() * columns.values.len();
+    let mut progress = crate::progress::Progress::new("grid cells", total as u64);
     let mut cells = Vec::with_capacity(rows.values.len());
     // A cell is the case's own when its overrides leave the resolved case unchanged.
     let own = toml::Value::try_from(&inputs.case.settings).ok();
@@ -128,15 +135,18 @@ pub fn grid(
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
-            let case = with_overrides(&inputs.case, &[rows.assignment(r), columns.assignment(c)])?;
-            if case.settings.market.index.prices != inputs.case.settings.market.index.prices
-                || case.settings.peers.iter().map(|p| &p.prices).ne(inputs
-                    .case
-                    .settings
-                    .peers
-                    .iter()
-                    .map(|p| &p.prices))
-            {
+            progress.step()?;
+            let assignments = [rows.assignment(r), columns.assignment(c)];
+            // Name the cell, not a `--set` the user never gave.
+            let in_cell = |error: Error| Error::Argument {
+                option: format!("grid cell {}, {}", assignments[0], assignments[1]),
+                message: match error {
+                    Error::Override { message, .. } => message,
+                    other => other.to_string(),
+                },
+            };
+            let case = with_overrides(&inputs.case, &assignments).map_err(in_cell)?;
+            if !crate::case::sources::same_data(&case.settings, &inputs.case.settings) {
                 return Err(case_error(
                     inputs,
                     format!(
@@ -152,8 +162,16 @@ pub fn grid(
                 base_cell = Some([r, c]);
             }
             // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
-            let estimates = estimates_for(&case, inputs, estimates)?;
-            line.push(read(metric, &cost_of_capital(&case, inputs, &estimates)?));
+            let estimates = estimates_for(&case, inputs, estimates).map_err(in_cell)?;
+            let cell = read(
+                metric,
+                &cost_of_capital(&case, inputs, &estimates).map_err(in_cell)?,
+            );
+            if !cell.is_finite() {
+                let path = format!("grid cell {}, {}", assignments[0], assignments[1]);
+                return Err(Error::NonFinite { path, value: cell });
+            }
+            line.push(cell);
         }
         cells.push(line);
     }
@@ -192,6 +210,8 @@ mod tests {
             ("k=0.04..0.07:0", "must be positive"),
             ("k=a..0.07:0.01", "`a` is not a number"),
             ("k=0..10:0.01", "at most"),
+            // A step so small that the count overflowed an integer once gave an empty axis.
+            ("k=0.04..0.07:1e-300", "at most"),
         ] {
             let message = parse_axis("--rows", spec).unwrap_err().to_string();
             assert!(message.contains(expected), "{spec}: {message}");

@@ -50,8 +50,10 @@ impl std::str::FromStr for Target {
 }
 
 impl Target {
-    /// The range searched unless the user gives one: wide enough for any case seen in practice
-    /// (common practice bounds, chosen generously).
+    /// The range searched unless the user gives one. These bounds are hurdle's choice, not a
+    /// published convention: each is wide enough to hold any value a practitioner would defend
+    /// (an ERP up to 20%, a beta up to 5, …) so that a claim is not missed, and narrow enough that
+    /// the 64-interval scan stays fine-grained; `--range` changes them.
     pub fn default_range(self) -> (f64, f64) {
         match self {
             Target::Erp => (0.0, 0.20),
@@ -97,7 +99,11 @@ pub fn implied(
     let (low, high) = range.unwrap_or_else(|| target.default_range());
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
-            option: format!("search range {low}..{high}"),
+            option: format!(
+                "search range {}..{}",
+                crate::error::compact(low),
+                crate::error::compact(high)
+            ),
             message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
         });
     }
@@ -115,6 +121,15 @@ pub fn implied(
         Target::DebtToEquity => ("target.debt_to_equity", base.cost.target.debt_to_equity),
         Target::Beta => ("relevered beta", base.cost.beta.relevered),
     };
+    crate::valuation::sanity::check_search_range(
+        if by_capital {
+            "target.debt_to_equity"
+        } else {
+            key
+        },
+        low,
+        high,
+    )?;
     // A debt-to-capital case is solved in debt-to-capital, over the same D/E range mapped.
     let (low, high) = if by_capital {
         (low / (1.0 + low), high / (1.0 + high))
@@ -173,11 +188,11 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
         });
     }
     // The build-up holds the premiums fixed; a country premium scaled by beta moves with it.
-    if target == Target::Beta && settings.premiums.country_method == CountryMethod::Beta {
+    if target == Target::Beta && settings.premiums.country_method == CountryMethod::BetaScaled {
         return Err(Error::Case {
             file: inputs.case.path.clone(),
-            message: "premiums.country_method = \"beta\" scales the country premium by the beta \
-                      being solved for; solve for another input"
+            message: "premiums.country_method = \"beta-scaled\" scales the country premium by the \
+                      beta being solved for; solve for another input"
                 .into(),
         });
     }

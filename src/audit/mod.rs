@@ -60,6 +60,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         let ours = bridge::Side::from_valuation("this case", &valuation);
         valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
     }
+    crate::valuation::sanity::check_finite_figures(&valuation)?;
     Ok(valuation)
 }
 

@@ -58,7 +58,9 @@ pub fn simulate(
     let mut drawn = peers.clone();
     let mut z = vec![0.0; peers.len()];
     let mut waccs = Vec::with_capacity(u.draws as usize);
+    let mut progress = crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
     for _ in 0..u.draws {
+        progress.step()?;
         draw_betas(&mut rng, &factor, &peers, &mut z, &mut drawn);
         let mut spec = base;
         if let Some(range) = u.equity_risk_premium {
@@ -234,7 +236,9 @@ fn peer_set_interval(
     let mut z = vec![0.0; peers.len()];
     let mut sample = Vec::with_capacity(included.len());
     let mut waccs = Vec::with_capacity(u.draws as usize);
+    let mut progress = crate::progress::Progress::new("peer-set draws", u64::from(u.draws));
     for _ in 0..u.draws {
+        progress.step()?;
         draw_betas(&mut rng, factor, peers, &mut z, &mut drawn);
         sample.clear();
         for _ in 0..included.len() {

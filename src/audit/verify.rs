@@ -59,6 +59,23 @@ pub struct Verification {
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
     pub reproduced: bool,
+    /// Every file the rerun read (not part of the report), so outputs never replace one.
+    #[serde(skip)]
+    pub files_read: Vec<crate::case::FileRead>,
+}
+
+/// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.
+/// Schema 2 renamed fields and case keys (README, Changelog), so a rerun cannot match a
+/// version-1 receipt figure by figure, and its case may use keys this version refuses.
+fn older_schema(version: u64, written_by: &str) -> String {
+    format!(
+        "schema_version {version} is older than this hurdle's ({SCHEMA_VERSION}): schema 2 renamed \
+         fields and case keys (for example cash_corrected_unlevered_beta is now operations_beta, \
+         adjusted_beta is shrunk_beta, leverage.cash_correction is leverage.operations_beta; \
+         README, Changelog lists every one), so its figures cannot be compared name by name. \
+         Verify it with the version that wrote it ({written_by}), or rename the keys in its case \
+         file and rerun to write a new receipt"
+    )
 }
 
 /// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
@@ -92,6 +109,12 @@ pub fn verify(
             recorded["tool"]["version"].as_str().unwrap_or("unknown")
         )));
     }
+    if version < u64::from(SCHEMA_VERSION) {
+        return Err(fail(older_schema(
+            version,
+            recorded["tool"]["version"].as_str().unwrap_or("unknown"),
+        )));
+    }
     let text = |pointer: &str| {
         recorded
             .pointer(pointer)
@@ -101,6 +124,7 @@ pub fn verify(
     let (case_file, overrides) = rerun_source(receipt_path, &recorded, "case", case_path)?;
     let case = read_case(&case_file, &overrides)?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
+    let files_read = crate::case::files_read(&case);
     let inputs = load_inputs(case)?;
     let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
@@ -129,6 +153,7 @@ pub fn verify(
         recorded_tool_version: text("/tool/version").unwrap_or_default(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        files_read,
     })
 }
 

@@ -38,6 +38,7 @@ pub fn verify_universe(
     let text = |pointer: &str| recorded.pointer(pointer).and_then(Value::as_str);
     let (file, overrides) = rerun_source(receipt_path, recorded, "universe", universe_path)?;
     let universe = read_universe(&file, &overrides)?;
+    let files_read = universe.files_read();
     let unchanged = Some(universe.sha256.as_str()) == text("/universe/sha256");
     let inputs = load_inputs(universe)?;
     let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
@@ -65,6 +66,7 @@ pub fn verify_universe(
         recorded_tool_version: text("/tool/version").unwrap_or_default().to_string(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        files_read,
     })
 }
 

@@ -1,8 +1,8 @@
 //! Beta estimators: from aligned returns to a raw equity beta with its statistics.
 //!
 //! Each estimator is a function over return slices; [`estimate`] dispatches on the case's
-//! `beta.method`. Adjustments (Blume) act on the raw estimate afterwards, so `beta` in every
-//! output is always the estimator's own, unadjusted figure.
+//! `beta.method`. Adjustments (Blume, Vasicek) shrink the raw estimate afterwards, so `beta` in
+//! every output is always the estimator's own figure and `shrunk_beta` the adjusted one.
 
 pub mod diagnostics;
 pub mod dimson;
@@ -322,37 +322,41 @@ pub fn describe(settings: &EstimatorSpec) -> EstimatorRecord {
     }
 }
 
-/// Blume's adjustment toward the cross-sectional mean of 1: 0.67·β + 0.33.
-/// Blume (1971), "On the assessment of risk", J. Finance 26(1); Blume (1975), "Betas and their
-/// regression tendencies", J. Finance 30(3). The rounded 2/3, 1/3 weights are common practice.
-pub fn blume(raw: f64) -> f64 {
-    0.67 * raw + 0.33
+/// Blume's shrinkage toward the cross-sectional mean of 1: w·β + (1 − w), with `weight` w on the
+/// raw beta (the case's `beta.blume_weight`, default 0.67 and 0.33 on 1 — not 2/3 and 1/3).
+/// Blume (1971), "On the assessment of risk", J. Finance 26(1), regressed later betas on earlier
+/// ones; from memory his estimate was β_t ≈ 0.343 + 0.677·β_{t−1}, whose intercept and slope sum
+/// to about 1, hence the form w·β + (1 − w). Blume (1975), "Betas and their regression
+/// tendencies", J. Finance 30(3).
+pub fn blume(raw: f64, weight: f64) -> f64 {
+    weight * raw + (1.0 - weight)
 }
 
-/// The adjusted beta for a case's `beta.adjustment`, or `None` when there is none. Vasicek
-/// needs the whole cross-section and its prior, so it is applied by the caller with
+/// The shrunk beta for a case's `beta.adjustment`, or `None` when there is none. Vasicek needs
+/// the whole cross-section and its prior, so it is applied by the caller with
 /// [`vasicek::shrink`]; here it returns `None`.
-pub fn adjust(adjustment: Adjustment, raw: f64) -> Option<f64> {
+pub fn adjust(adjustment: Adjustment, blume_weight: f64, raw: f64) -> Option<f64> {
     match adjustment {
         Adjustment::None | Adjustment::Vasicek => None,
-        Adjustment::Blume => Some(blume(raw)),
+        Adjustment::Blume => Some(blume(raw, blume_weight)),
     }
 }
 
-/// A raw beta after the adjustment: the adjusted figure (`None` without an adjustment), the beta
+/// A raw beta after the adjustment: the shrunk figure (`None` without an adjustment), the beta
 /// that is unlevered, and Vasicek's record when it is the adjustment.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AdjustedBeta {
-    pub adjusted: Option<f64>,
+    pub shrunk: Option<f64>,
     pub used: f64,
     pub vasicek: Option<vasicek::Shrunk>,
 }
 
-/// Applies `adjustment` to every raw beta (`(beta, standard error)` pairs): Blume one by one,
-/// Vasicek against the stated prior or one from the cross-section of the `included` betas.
-/// Returns the adjusted betas and the Vasicek prior used, if any.
+/// Applies `adjustment` to every raw beta (`(beta, standard error)` pairs): Blume one by one with
+/// `blume_weight`, Vasicek against the stated prior or one from the cross-section of the
+/// `included` betas. Returns the adjusted betas and the Vasicek prior used, if any.
 pub fn adjust_all(
     adjustment: Adjustment,
+    blume_weight: f64,
     stated_prior: Option<(f64, f64)>,
     raw: &[(f64, f64)],
     included: &[bool],
@@ -361,10 +365,10 @@ pub fn adjust_all(
         let adjusted = raw
             .iter()
             .map(|&(beta, _)| {
-                let adjusted = adjust(adjustment, beta);
+                let shrunk = adjust(adjustment, blume_weight, beta);
                 AdjustedBeta {
-                    adjusted,
-                    used: adjusted.unwrap_or(beta),
+                    shrunk,
+                    used: shrunk.unwrap_or(beta),
                     vasicek: None,
                 }
             })
@@ -399,7 +403,7 @@ pub fn adjust_all(
         .map(|&(beta, std_error)| {
             let shrunk = vasicek::shrink(beta, std_error, &prior);
             AdjustedBeta {
-                adjusted: Some(shrunk.beta),
+                shrunk: Some(shrunk.beta),
                 used: shrunk.beta,
                 vasicek: Some(shrunk),
             }
@@ -412,13 +416,17 @@ pub fn adjust_all(
 mod tests {
     use super::*;
 
-    // Common practice: the Blume weights move a beta one third of the way to 1.
+    // Blume's form w·β + (1 − w), worked by hand: with w = 0.67 a beta moves 0.33 of the way
+    // to 1; w = 1 leaves it raw.
     #[test]
-    fn blume_moves_a_third_of_the_way_to_one() {
-        assert_eq!(blume(1.0), 1.0);
+    fn blume_moves_a_beta_toward_one_by_one_minus_the_weight() {
+        assert_eq!(blume(1.0, 0.67), 1.0);
         // 0.67·1.6 + 0.33 = 1.072 + 0.33 = 1.402; 1e-15 for decimal rounding.
-        assert!((blume(1.6) - 1.402).abs() < 1e-15);
-        assert!((blume(0.4) - 0.598).abs() < 1e-15);
-        assert_eq!(adjust(Adjustment::None, 1.6), None);
+        assert!((blume(1.6, 0.67) - 1.402).abs() < 1e-15);
+        assert!((blume(0.4, 0.67) - 0.598).abs() < 1e-15);
+        // 0.5·1.6 + 0.5 = 1.3.
+        assert!((blume(1.6, 0.5) - 1.3).abs() < 1e-15);
+        assert_eq!(blume(1.6, 1.0), 1.6);
+        assert_eq!(adjust(Adjustment::None, 0.67, 1.6), None);
     }
 }

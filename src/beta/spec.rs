@@ -24,7 +24,7 @@ pub enum BetaMethod {
 #[serde(rename_all = "kebab-case")]
 pub enum Adjustment {
     None,
-    /// Blume (1971, 1975): 0.67 · raw + 0.33.
+    /// Blume (1971, 1975): w · raw + (1 − w), w the case's `beta.blume_weight`.
     Blume,
     /// Vasicek (1973): Bayesian shrinkage toward a prior by each peer's sampling variance.
     Vasicek,

@@ -1,10 +1,12 @@
 //! `hurdle-demo-data [CASE_DIR]`: writes the invented demo case (default `cases/quillmarsh`)
-//! from the seeded generator in `hurdle::demo`, and prints the true betas it used.
+//! from the seeded generator in `hurdle::demo`, and the same case in wide-table form (one price
+//! table, CSV and workbook) beside it in `CASE_DIR-wide`, and prints the true betas it used.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
 
 use hurdle::demo::{generate, PEERS, SEED};
+use hurdle::demo_wide::generate_wide;
 use hurdle::report::format::fixed;
 
 fn main() -> ExitCode {
@@ -12,14 +14,25 @@ fn main() -> ExitCode {
         .nth(1)
         .map(PathBuf::from)
         .unwrap_or_else(|| PathBuf::from("cases/quillmarsh"));
-    for (relative, contents) in generate(SEED) {
-        let path = dir.join(relative);
-        if let Err(error) = hurdle::report::write_file(&path, contents.as_bytes()) {
+    let mut wide_dir = dir.clone().into_os_string();
+    wide_dir.push("-wide");
+    let wide_dir = PathBuf::from(wide_dir);
+    let files = generate(SEED)
+        .into_iter()
+        .map(|(relative, text)| (dir.join(relative), text.into_bytes()))
+        .chain(
+            generate_wide(SEED)
+                .into_iter()
+                .map(|(relative, bytes)| (wide_dir.join(relative), bytes)),
+        );
+    for (path, contents) in files {
+        if let Err(error) = hurdle::report::write_file(&path, &contents) {
             eprintln!("error: {error}");
             return ExitCode::from(2);
         }
     }
     println!("wrote the demo case to {} (seed {SEED})", dir.display());
+    println!("wrote it in wide-table form to {}", wide_dir.display());
     println!("{:<24} {:>10} {:>11}", "peer", "true βL", "true βU");
     for peer in &PEERS {
         println!(

@@ -20,13 +20,16 @@ use crate::stats::{self, Aggregation, Dispersion};
 #[derive(Debug, Clone, Copy)]
 pub struct CapitalSpec<'a> {
     pub adjustment: Adjustment,
+    /// The weight on the raw beta in Blume's shrinkage (`Adjustment::Blume`).
+    pub blume_weight: f64,
     /// A stated Vasicek prior (mean, variance); `None` takes it from the cross-section.
     pub vasicek_prior: Option<(f64, f64)>,
     pub formula: Formula,
     pub aggregation: Aggregation,
     pub trim_fraction: f64,
-    /// Aggregate the betas of the operations (the unlevered betas with cash taken out).
-    pub cash_step: bool,
+    /// Aggregate the betas of the operations (the unlevered betas with cash, at beta zero, taken
+    /// out) instead of the unlevered betas.
+    pub operations_beta: bool,
     pub debt_measure: DebtMeasure,
     pub debt_beta_source: DebtBetaSource,
     /// The debt beta of the subject and of every peer without its own (source `given`).
@@ -59,27 +62,27 @@ pub struct PremiumSpec {
     pub country: f64,
     pub company_specific: f64,
     pub country_method: CountryMethod,
-    /// λ, the subject's exposure to country risk (`CountryMethod::Lambda`).
-    pub country_lambda: f64,
+    /// The subject's exposure to the country's risk (`CountryMethod::Exposure`).
+    pub country_exposure: f64,
 }
 
 impl PremiumSpec {
     /// The country premium as it enters the cost of equity with relevered beta `beta`: CRP,
-    /// λ·CRP, or βL·CRP.
+    /// exposure·CRP, or βL·CRP.
     pub fn country_applied(&self, beta: f64) -> f64 {
         match self.country_method {
-            CountryMethod::Added => self.country,
-            CountryMethod::Lambda => self.country_lambda * self.country,
-            CountryMethod::Beta => beta * self.country,
+            CountryMethod::Flat => self.country,
+            CountryMethod::Exposure => self.country_exposure * self.country,
+            CountryMethod::BetaScaled => beta * self.country,
         }
     }
 
-    /// The country premium's multiplier: 1, λ or βL.
+    /// The country premium's multiplier: 1, the exposure or βL.
     pub fn country_scale(&self, beta: f64) -> f64 {
         match self.country_method {
-            CountryMethod::Added => 1.0,
-            CountryMethod::Lambda => self.country_lambda,
-            CountryMethod::Beta => beta,
+            CountryMethod::Flat => 1.0,
+            CountryMethod::Exposure => self.country_exposure,
+            CountryMethod::BetaScaled => beta,
         }
     }
 
@@ -120,8 +123,8 @@ pub struct PeerTerms {
     pub debt_to_equity: f64,
     pub debt_beta: f64,
     pub cost_of_debt: f64,
-    /// cash / (equity + debt), gross debt: the share of capital the cash step takes out.
-    pub cash_share: f64,
+    /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
+    pub operating_share: f64,
 }
 
 /// The four capital components' figures: weights, or each one's share of the WACC.
@@ -156,18 +159,19 @@ pub struct FormulaOutcome {
     pub in_use: bool,
     /// Each peer's unlevered beta under this formula, in peer order.
     pub peer_unlevered_betas: Vec<f64>,
-    /// The same corrected for cash, βU / (1 − cash / (equity + debt)).
-    pub peer_cash_corrected_unlevered_betas: Vec<f64>,
+    /// Each peer's beta of the operations under this formula, βU / operating share.
+    pub peer_operations_betas: Vec<f64>,
     #[serde(skip)]
     pub unlevered_dispersion: Dispersion,
-    /// Every location statistic of the betas aggregated (cash-corrected or not, as the case says).
+    /// Every location statistic of the betas aggregated (unlevered or of the operations, as the
+    /// case says).
     #[serde(skip)]
     pub unlevered_statistics: stats::Locations,
-    /// The aggregate of the plain and of the cash-corrected unlevered betas.
+    /// The same statistic of the unlevered betas and of the betas of the operations.
     #[serde(skip)]
-    pub unlevered_plain: f64,
+    pub aggregate_of_unlevered: f64,
     #[serde(skip)]
-    pub unlevered_cash_corrected: f64,
+    pub aggregate_of_operations: f64,
     pub unlevered: f64,
     pub relevered: f64,
     pub cost_of_equity: f64,
@@ -239,17 +243,31 @@ struct Common {
     other: OtherComponents,
 }
 
-/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas.
-fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
+/// The spec's adjustment applied to every peer's raw beta (a Vasicek prior from the peers
+/// that enter the aggregates), and the prior used.
+fn adjust(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+) -> Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), ChainError> {
     let raw: Vec<(f64, f64)> = peers
         .iter()
         .map(|p| (p.raw_beta, p.beta_std_error))
         .collect();
     let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
-    let (adjusted, vasicek_prior) =
-        beta::adjust_all(spec.adjustment, spec.vasicek_prior, &raw, &included)
-            .map_err(ChainError::Adjustment)?;
-    if !included.contains(&true) {
+    beta::adjust_all(
+        spec.adjustment,
+        spec.blume_weight,
+        spec.vasicek_prior,
+        &raw,
+        &included,
+    )
+    .map_err(ChainError::Adjustment)
+}
+
+/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas.
+fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
+    let (adjusted, vasicek_prior) = adjust(spec, peers)?;
+    if !peers.iter().any(|p| p.included) {
         return Err(ChainError::NoPeerIncluded);
     }
     let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
@@ -345,8 +363,8 @@ pub fn wacc_only(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<f64, C
             continue;
         }
         let unlevered = unlever(spec.formula, peer, adjusted, terms);
-        betas.push(if spec.cash_step {
-            cash_step(unlevered, terms)
+        betas.push(if spec.operations_beta {
+            operations_beta(unlevered, terms)
         } else {
             unlevered
         });
@@ -363,7 +381,7 @@ pub struct UnleveredPeers {
     pub terms: Vec<PeerTerms>,
     pub unlevered: Vec<f64>,
     /// The betas of the operations (cash taken out).
-    pub cash_step: Vec<f64>,
+    pub operations: Vec<f64>,
 }
 
 /// What a beta listing shows of each peer: the adjusted beta, the capital-structure terms and the
@@ -373,13 +391,7 @@ pub fn unlevered_only(
     spec: &CapitalSpec<'_>,
     peers: &[PeerCapital],
 ) -> Result<UnleveredPeers, ChainError> {
-    let raw: Vec<(f64, f64)> = peers
-        .iter()
-        .map(|p| (p.raw_beta, p.beta_std_error))
-        .collect();
-    let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
-    let (adjusted, _) = beta::adjust_all(spec.adjustment, spec.vasicek_prior, &raw, &included)
-        .map_err(ChainError::Adjustment)?;
+    let (adjusted, _) = adjust(spec, peers)?;
     let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
     let terms: Vec<PeerTerms> = peers
@@ -387,12 +399,12 @@ pub fn unlevered_only(
         .map(|p| peer_terms(spec, p, cost_of_debt.pre_tax))
         .collect();
     let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
-    let cash_step = cash_step_betas(&unlevered, &terms);
+    let operations = operations_betas(&unlevered, &terms);
     Ok(UnleveredPeers {
         adjusted,
         terms,
         unlevered,
-        cash_step,
+        operations,
     })
 }
 
@@ -414,7 +426,7 @@ fn peer_terms(spec: &CapitalSpec<'_>, peer: &PeerCapital, subject_cost_of_debt: 
         debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
         debt_beta,
         cost_of_debt,
-        cash_share: peer.cash / (peer.equity_value + peer.debt),
+        operating_share: 1.0 - peer.cash / (peer.equity_value + peer.debt),
     }
 }
 
@@ -466,20 +478,19 @@ fn unlevered_betas(
         .collect()
 }
 
-/// The beta of the operations, βU / (1 − cash / (equity + debt)): the unlevered beta is a
-/// value-weighted mix of operating assets and cash with a beta of about zero, so dividing by the
-/// non-cash share leaves the operations' beta (common practice in valuation textbooks). Uses gross
-/// debt.
-fn cash_step(unlevered: f64, terms: &PeerTerms) -> f64 {
-    unlevered / (1.0 - terms.cash_share)
+/// The beta of the operations, βU / (1 − cash / (equity + debt)): the firm's value is its
+/// operations plus its cash, and the unlevered beta their value-weighted mix; with cash at a beta
+/// of zero, dividing by the operations' share of the value leaves their beta. Uses gross debt.
+fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
+    unlevered / terms.operating_share
 }
 
-/// [`cash_step`] for every peer.
-fn cash_step_betas(unlevered: &[f64], terms: &[PeerTerms]) -> Vec<f64> {
+/// [`operations_beta`] for every peer.
+fn operations_betas(unlevered: &[f64], terms: &[PeerTerms]) -> Vec<f64> {
     unlevered
         .iter()
         .zip(terms)
-        .map(|(&u, terms)| cash_step(u, terms))
+        .map(|(&u, terms)| operations_beta(u, terms))
         .collect()
 }
 
@@ -543,24 +554,21 @@ fn formula_outcome(
     common: &Common,
 ) -> FormulaOutcome {
     let peer_unlevered_betas = unlevered_betas(formula, peers, &common.adjusted, &common.peers);
-    let peer_cash_corrected_unlevered_betas = cash_step_betas(&peer_unlevered_betas, &common.peers);
+    let peer_operations_betas = operations_betas(&peer_unlevered_betas, &common.peers);
     let (plain_dispersion, plain_statistics) =
         aggregate(peers, &peer_unlevered_betas, spec.trim_fraction);
-    let (corrected_dispersion, corrected_statistics) = aggregate(
-        peers,
-        &peer_cash_corrected_unlevered_betas,
-        spec.trim_fraction,
-    );
-    let unlevered_plain = spec.aggregation.select(&plain_statistics);
-    let unlevered_cash_corrected = spec.aggregation.select(&corrected_statistics);
-    let (unlevered_dispersion, unlevered_statistics, unlevered) = if spec.cash_step {
+    let (operations_dispersion, operations_statistics) =
+        aggregate(peers, &peer_operations_betas, spec.trim_fraction);
+    let aggregate_of_unlevered = spec.aggregation.select(&plain_statistics);
+    let aggregate_of_operations = spec.aggregation.select(&operations_statistics);
+    let (unlevered_dispersion, unlevered_statistics, unlevered) = if spec.operations_beta {
         (
-            corrected_dispersion,
-            corrected_statistics,
-            unlevered_cash_corrected,
+            operations_dispersion,
+            operations_statistics,
+            aggregate_of_operations,
         )
     } else {
-        (plain_dispersion, plain_statistics, unlevered_plain)
+        (plain_dispersion, plain_statistics, aggregate_of_unlevered)
     };
     let (relevered, cost_of_equity, wacc) = equity_and_wacc(spec, formula, unlevered, common);
     FormulaOutcome {
@@ -569,11 +577,11 @@ fn formula_outcome(
         expression: formula.expression(),
         in_use: formula == spec.formula,
         peer_unlevered_betas,
-        peer_cash_corrected_unlevered_betas,
+        peer_operations_betas,
         unlevered_dispersion,
         unlevered_statistics,
-        unlevered_plain,
-        unlevered_cash_corrected,
+        aggregate_of_unlevered,
+        aggregate_of_operations,
         unlevered,
         relevered,
         cost_of_equity,

@@ -63,13 +63,14 @@ pub fn weights_with_other_components(debt_to_equity: f64, other: f64) -> (f64, f
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum CountryMethod {
-    /// + CRP.
+    /// A flat addition: + CRP, the same for every firm in the country.
     #[default]
-    Added,
-    /// + λ·CRP, λ the subject's exposure (`country_lambda`).
-    Lambda,
-    /// + βL·CRP, scaled by the relevered beta.
-    Beta,
+    Flat,
+    /// Scaled by the subject's exposure to the country: + exposure·CRP (`country_exposure`,
+    /// 1 for a firm as exposed as the average one there).
+    Exposure,
+    /// Scaled by the relevered beta: + βL·CRP, as if country risk moved with market risk.
+    BetaScaled,
 }
 
 /// `target.tax_rate_basis`: which tax rate the shield is computed with.

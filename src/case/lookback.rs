@@ -60,8 +60,8 @@ impl Lookback {
         if count == 0 {
             return Err(bad());
         }
-        // Two centuries of history is more than any price file holds; the bound keeps the date
-        // arithmetic inside the calendar.
+        // hurdle's bound: two centuries of history is more than any price file holds, and it
+        // keeps the date arithmetic inside the calendar.
         let most = match unit {
             SpanUnit::Years => 200,
             SpanUnit::Months => 2_400,

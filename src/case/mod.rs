@@ -9,7 +9,12 @@
 
 pub mod lookback;
 pub mod overrides;
+pub mod placeholders;
+pub mod renamed;
+pub mod sanity;
+pub mod scaffold;
 pub mod schema;
+pub mod sources;
 pub mod specs;
 pub mod validate;
 
@@ -66,6 +71,58 @@ impl CaseFile {
     }
 }
 
+/// A file the run read and what it is, for messages ("peer.1.prices (peer \"X\")").
+pub type FileRead = (PathBuf, String);
+
+/// Every file a case names that a run of it reads: the case file, the price and yield files,
+/// the spread table its cost-of-debt source uses and the claimed build-up it reconciles to.
+pub fn files_read(case: &Case) -> Vec<FileRead> {
+    let settings = &case.settings;
+    let mut files = vec![(case.path.clone(), "the case file".to_string())];
+    let mut add = |written: &str, role: String| files.push((case.resolve(written), role));
+    if !settings.market.index.prices.is_empty() {
+        add(&settings.market.index.prices, "market.index.prices".into());
+    }
+    if let Some(series) = settings
+        .market
+        .risk_free_series
+        .as_ref()
+        .filter(|s| !s.yields.is_empty())
+    {
+        add(&series.yields, "market.risk_free_series.yields".into());
+    }
+    for (i, peer) in settings
+        .peers
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| !p.prices.is_empty())
+    {
+        add(
+            &peer.prices,
+            format!("peer.{i}.prices (peer \"{}\")", peer.name),
+        );
+    }
+    for (name, table) in &settings.sources {
+        add(&table.file, format!("sources.{name}.file"));
+    }
+    let debt = &settings.debt;
+    let table = match debt.source {
+        DebtSource::Given => None,
+        DebtSource::Rating => debt.rating_table.as_ref().map(|t| (t, "debt.rating_table")),
+        DebtSource::Coverage => debt
+            .coverage_table
+            .as_ref()
+            .map(|t| (t, "debt.coverage_table")),
+    };
+    if let Some((written, key)) = table {
+        add(written, key.to_string());
+    }
+    if let Some(reconcile) = &settings.reconcile {
+        add(&reconcile.claimed, "reconcile.claimed".into());
+    }
+    files
+}
+
 /// The name a setting has in case files and JSON (`"median"`, `"wacc"`), for messages and
 /// summaries.
 pub fn label<T: serde::Serialize>(value: &T) -> String {
@@ -92,13 +149,9 @@ pub fn with_overrides(case: &Case, extra: &[String]) -> Result<Case> {
     for assignment in extra {
         apply_override(&mut table, assignment)?;
     }
-    let settings = CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
-        case_error(format!(
-            "after applying --set {}: {}",
-            extra.join(", --set "),
-            e.message()
-        ))
-    })?;
+    renamed::check(&table).map_err(case_error)?;
+    let settings = CaseFile::deserialize(toml::Value::Table(table))
+        .map_err(|e| case_error(format!("with {}: {}", extra.join(", "), e.message())))?;
     validate(&settings).map_err(case_error)?;
     let mut overrides = case.overrides.clone();
     overrides.extend(extra.iter().cloned());
@@ -118,10 +171,19 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         source,
     })?;
     let sha256 = crate::io::series::sha256_hex(&bytes);
-    let text = String::from_utf8(bytes).map_err(|e| Error::Case {
-        file: path.to_path_buf(),
-        message: format!("not UTF-8 text (byte {})", e.utf8_error().valid_up_to()),
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let valid = &e.as_bytes()[..e.utf8_error().valid_up_to()];
+        let line = valid.iter().filter(|&&b| b == b'\n').count() + 1;
+        Error::Case {
+            file: path.to_path_buf(),
+            message: format!("line {line}: not UTF-8 text; save the case file as UTF-8"),
+        }
     })?;
+    sanity::check_case_text(&text).map_err(|message| Error::Case {
+        file: path.to_path_buf(),
+        message,
+    })?;
+    placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
     validate(&settings).map_err(|message| Error::Case {
         file: path.to_path_buf(),
@@ -140,6 +202,10 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
         file: path.to_path_buf(),
         message,
     };
+    // A key renamed in schema 2 is named with its new name before the parser calls it unknown.
+    if let Ok(table) = toml::from_str::<toml::Table>(text) {
+        renamed::check(&table).map_err(case_error)?;
+    }
     // Parsing straight from text first keeps the parser's line and column in every message.
     let parsed: CaseFile = toml::from_str(text).map_err(|e| case_error(e.to_string()))?;
     if overrides.is_empty() {
@@ -149,6 +215,7 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
     for assignment in overrides {
         apply_override(&mut table, assignment)?;
     }
+    renamed::check(&table).map_err(case_error)?;
     CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
         case_error(format!(
             "after applying --set {}: {}",

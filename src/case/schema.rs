@@ -26,6 +26,9 @@ pub use crate::stats::Aggregation;
 #[serde(deny_unknown_fields)]
 pub struct CaseFile {
     pub case: CaseInfo,
+    /// Wide price tables that series refer to by `source` and `column`.
+    #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
+    pub sources: super::sources::Sources,
     pub market: Market,
     #[serde(default)]
     pub beta: BetaSettings,
@@ -155,18 +158,35 @@ pub struct Market {
 pub struct IndexSpec {
     #[serde(default = "default_index_name")]
     pub name: String,
+    /// A price file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub prices: String,
+    /// A table under `[sources]`, and the column in it (instead of `prices`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_price_column")]
     pub price_column: String,
+    /// Dates whose move from the previous row beyond `sanity::JUMP_FACTOR` is real.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub accept_jumps: Vec<CaseDate>,
 }
 
 /// `[market.risk_free_series]`: a file of annualised risk-free yields.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct YieldSpec {
+    /// A yield file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub yields: String,
+    /// A table under `[sources]`, and the column in it (instead of `yields`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_yield_column")]
@@ -185,6 +205,10 @@ pub struct BetaSettings {
     pub min_observations: u32,
     pub method: BetaMethod,
     pub adjustment: Adjustment,
+    /// The weight w on the raw beta in Blume's shrinkage w·β + (1 − w) (`adjustment = "blume"`),
+    /// in (0, 1]. Default 0.67, near the slope of Blume (1971, J. Finance 26(1)), from memory
+    /// β_t ≈ 0.343 + 0.677·β_{t−1}.
+    pub blume_weight: f64,
     /// Standard errors behind every SE, t, p-value and confidence interval of beta.
     pub std_errors: StdErrors,
     /// Newey–West lags; absent means the rule floor(4·(N/100)^(2/9)).
@@ -288,6 +312,7 @@ impl Default for BetaSettings {
             min_observations: 36,
             method: BetaMethod::Ols,
             adjustment: Adjustment::None,
+            blume_weight: 0.67,
             std_errors: StdErrors::Classical,
             newey_west_lags: None,
             dimson_lags: 1,
@@ -324,8 +349,9 @@ pub struct LeverageSettings {
     pub debt_beta: f64,
     /// Fraction of the unlevered betas cut from each end by `aggregation = "trimmed-mean"`.
     pub trim_fraction: f64,
-    /// Aggregate the cash-corrected unlevered betas βU / (1 − cash / (equity + debt)).
-    pub cash_correction: bool,
+    /// Aggregate the betas of the operations, βU / (1 − cash / (equity + debt)), instead of the
+    /// unlevered betas (cash taken out at a beta of zero).
+    pub operations_beta: bool,
     /// Gross debt, or debt net of cash, in every D/E (peers and the subject's own structure).
     pub debt_measure: DebtMeasure,
 }
@@ -338,7 +364,7 @@ impl Default for LeverageSettings {
             debt_beta_source: DebtBetaSource::None,
             debt_beta: 0.0,
             trim_fraction: 0.1,
-            cash_correction: false,
+            operations_beta: false,
             debt_measure: DebtMeasure::Gross,
         }
     }
@@ -394,8 +420,9 @@ pub struct Premiums {
     pub company_specific: f64,
     /// How the country risk premium enters the cost of equity.
     pub country_method: CountryMethod,
-    /// The subject's exposure λ to country risk, for `country_method = "lambda"`.
-    pub country_lambda: f64,
+    /// The subject's exposure to the country's risk (1 = as exposed as the average firm there),
+    /// for `country_method = "exposure"`.
+    pub country_exposure: f64,
     /// Free-text reasons for each premium, printed in the memo.
     pub size_justification: String,
     pub country_justification: String,
@@ -408,8 +435,8 @@ impl Default for Premiums {
             size: 0.0,
             country: 0.0,
             company_specific: 0.0,
-            country_method: CountryMethod::Added,
-            country_lambda: 1.0,
+            country_method: CountryMethod::Flat,
+            country_exposure: 1.0,
             size_justification: String::new(),
             country_justification: String::new(),
             company_specific_justification: String::new(),
@@ -457,11 +484,21 @@ pub struct ConversionSettings {
 #[serde(deny_unknown_fields)]
 pub struct PeerSpec {
     pub name: String,
+    /// A price file of its own; empty when `source` names a wide table instead.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub prices: String,
+    /// A table under `[sources]`, and the column in it (instead of `prices`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
     #[serde(default = "default_date_column")]
     pub date_column: String,
     #[serde(default = "default_price_column")]
     pub price_column: String,
+    /// Dates whose move from the previous row beyond `sanity::JUMP_FACTOR` is real.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub accept_jumps: Vec<CaseDate>,
     /// Market value of equity, in any unit shared by all peers.
     pub equity_value: f64,
     /// Total (gross) debt, same unit.

@@ -59,11 +59,12 @@ pub fn capital<'a>(settings: &'a CaseFile, debt_table: Option<&'a SpreadTable>) 
     let premiums = &settings.premiums;
     CapitalSpec {
         adjustment: beta.adjustment,
+        blume_weight: beta.blume_weight,
         vasicek_prior: beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance),
         formula: leverage.formula,
         aggregation: leverage.aggregation,
         trim_fraction: leverage.trim_fraction,
-        cash_step: leverage.cash_correction,
+        operations_beta: leverage.operations_beta,
         debt_measure: leverage.debt_measure,
         debt_beta_source: leverage.debt_beta_source,
         debt_beta: leverage.debt_beta,
@@ -78,7 +79,7 @@ pub fn capital<'a>(settings: &'a CaseFile, debt_table: Option<&'a SpreadTable>) 
             country: premiums.country,
             company_specific: premiums.company_specific,
             country_method: premiums.country_method,
-            country_lambda: premiums.country_lambda,
+            country_exposure: premiums.country_exposure,
         },
         preferred: Component {
             weight: settings.preferred.weight,

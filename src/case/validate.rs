@@ -9,7 +9,19 @@ fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), S
     if value.is_finite() && value >= low && value < high {
         Ok(())
     } else {
-        Err(format!("{key} = {value} is outside [{low}, {high})"))
+        // A rate typed as a percentage is the likeliest reason for a value of 1 or more.
+        let hint = if value >= 1.0 && high <= 1.0 {
+            format!(
+                "; rates are decimals ({} for {}%)",
+                // Rounded to 12 decimals so that 5.8 reads 0.058, not 0.057999999999999996.
+                crate::error::compact((value / 100.0 * 1e12).round() / 1e12),
+                crate::error::compact(value)
+            )
+        } else {
+            String::new()
+        };
+        let value = crate::error::compact(value);
+        Err(format!("{key} = {value} is outside [{low}, {high}){hint}"))
     }
 }
 
@@ -17,8 +29,9 @@ fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), S
 /// (the most observations a peer can have).
 fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Result<(), String> {
     let (lags, leads) = beta.market_lags_and_leads();
-    // Each shifted market column costs a coefficient and an end period; beyond N/4 of them the
-    // regression has too little left to estimate anything (a common practice bound).
+    // Each shifted market column costs a coefficient and an end period. N/4 is hurdle's own
+    // bound, not a published rule: it leaves more than four observations for each shifted column,
+    // so the slopes and their standard errors are not fitted to a handful of points.
     if 4 * (lags + leads) >= lookback {
         return Err(format!(
             "beta.dimson_lags + beta.dimson_leads = {} is at least beta.lookback / 4 = {}: too \
@@ -34,6 +47,13 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
              plain OLS; use beta.method = \"ols\" or give at least one lag"
                 .into(),
         );
+    }
+    let w = beta.blume_weight;
+    if !(w.is_finite() && w > 0.0 && w <= 1.0) {
+        return Err(format!(
+            "beta.blume_weight = {w} is outside (0, 1]: it is the weight on the raw beta in \
+             Blume's w·β + (1 − w); 1 leaves the beta raw"
+        ));
     }
     if let Some(l) = beta.newey_west_lags {
         if 4 * l >= lookback {
@@ -69,6 +89,7 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
 /// Range checks a type cannot express, section by section. The message names the key and the
 /// offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    super::sanity::check_case(case)?;
     validate_case_and_market(case)?;
     validate_window(case)?;
     validate_target(case)?;
@@ -85,6 +106,7 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
+    super::sources::validate(case)?;
     rate(
         "market.risk_free_rate",
         case.market.risk_free_rate,
@@ -130,7 +152,8 @@ fn validate_window(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     if let Lookback::Periods(n) = beta.lookback {
-        // 100 000 periods is four centuries of daily data; beyond it the calendar overflows.
+        // hurdle's bound: 100 000 periods is four centuries of daily data, more than any price
+        // file holds, and it keeps the window's date arithmetic inside the calendar.
         if n > 100_000 {
             return Err(format!(
                 "beta.lookback = {n} periods is more than any price history holds; at most 100000"
@@ -252,9 +275,11 @@ fn validate_premiums(case: &CaseFile) -> std::result::Result<(), String> {
     ] {
         rate(key, value, -0.5, 1.0)?;
     }
+    // Below 5 is hurdle's bound, not a published one: an exposure five times the average
+    // firm's is beyond any case we know of, and the bound catches a percentage typed as a number.
     rate(
-        "premiums.country_lambda",
-        case.premiums.country_lambda,
+        "premiums.country_exposure",
+        case.premiums.country_exposure,
         0.0,
         5.0,
     )?;
@@ -380,9 +405,9 @@ fn validate_components(case: &CaseFile) -> std::result::Result<(), String> {
 fn validate_structure(case: &CaseFile) -> std::result::Result<(), String> {
     let leverage = &case.leverage;
     rate("leverage.trim_fraction", leverage.trim_fraction, 0.0, 0.5)?;
-    if leverage.cash_correction && leverage.debt_measure == DebtMeasure::Net {
+    if leverage.operations_beta && leverage.debt_measure == DebtMeasure::Net {
         return Err(
-            "leverage.cash_correction = true with leverage.debt_measure = \"net\" would \
+            "leverage.operations_beta = true with leverage.debt_measure = \"net\" would \
                     count cash twice; use one of them"
                 .into(),
         );
@@ -422,10 +447,10 @@ fn validate_structure(case: &CaseFile) -> std::result::Result<(), String> {
                 peer.name, peer.equity_value
             ));
         }
-        if leverage.cash_correction && peer.cash >= peer.equity_value + peer.debt {
+        if leverage.operations_beta && peer.cash >= peer.equity_value + peer.debt {
             return Err(format!(
                 "peer.{i}.cash = {} (peer \"{}\") is not below equity_value + debt = {}, so the \
-                 cash correction 1 / (1 − cash / (equity + debt)) is undefined",
+                 beta of the operations βU / (1 − cash / (equity + debt)) is undefined",
                 peer.cash,
                 peer.name,
                 peer.equity_value + peer.debt

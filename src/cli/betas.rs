@@ -142,8 +142,8 @@ fn table(case: &Case, estimates: &PeerEstimates, peers: &[PeerResult]) -> String
         ));
     }
     out.push_str(&format!(
-        "beta* = beta used ({} adjustment); frequency {}, window {} to {}\n",
-        label(&case.settings.beta.adjustment),
+        "beta* = beta used: the {}; frequency {}, window {} to {}\n",
+        super::shrinkage(&case.settings.beta),
         label(&estimates.spec.frequency),
         estimates.window_start,
         estimates.window_end

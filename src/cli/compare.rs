@@ -26,10 +26,19 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let result = bridge(&from, &to);
     print!("{}", render(&result));
     if let Some(dir) = &args.out {
-        hurdle::report::write_file(
-            &dir.join("bridge.csv"),
-            &hurdle::report::csv::bridge_csv(&result),
-        )?;
+        let mut reads = Vec::new();
+        for side in [&args.from, &args.to] {
+            // A case side also reads its data files; a claimed build-up is the one file.
+            match hurdle::case::read_case(side, &[]) {
+                Ok(case) => reads.extend(hurdle::case::files_read(&case)),
+                Err(_) => reads.push((side.clone(), "a compared build-up".into())),
+            }
+        }
+        let file = (
+            "bridge.csv".to_string(),
+            hurdle::report::csv::bridge_csv(&result),
+        );
+        hurdle::report::staging::write_outputs(dir, &[file], &reads)?;
     }
     Ok(())
 }

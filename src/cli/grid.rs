@@ -59,7 +59,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .csv
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir().join("grid.csv"));
-    hurdle::report::write_file(&path, &hurdle::report::csv::grid_csv(&table))?;
+    let (dir, name) = super::split_file_path("--csv", &path)?;
+    let file = (name, hurdle::report::csv::grid_csv(&table));
+    let reads = hurdle::case::files_read(&inputs.case);
+    hurdle::report::staging::write_outputs(&dir, &[file], &reads)?;
     println!("  wrote {}", path.display());
     Ok(())
 }

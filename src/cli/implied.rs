@@ -15,7 +15,7 @@ pub struct Args {
     #[command(flatten)]
     pub case: CaseArgs,
     /// The claimed WACC, as a decimal (0.091 for 9.1%).
-    #[arg(long)]
+    #[arg(long, value_parser = hurdle::valuation::sanity::check_rate_argument)]
     pub wacc: f64,
     /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium.
     #[arg(long)]
@@ -32,7 +32,9 @@ fn parse_range(text: &str) -> Result<(f64, f64), String> {
     let number = |t: &str| {
         t.trim()
             .parse::<f64>()
-            .map_err(|_| format!("`{t}` is not a number"))
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| format!("`{t}` is not a finite number"))
     };
     Ok((number(low)?, number(high)?))
 }

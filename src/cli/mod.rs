@@ -7,6 +7,7 @@ pub mod betas;
 pub mod compare;
 pub mod grid;
 pub mod implied;
+pub mod init;
 pub mod rolling;
 pub mod run;
 pub mod universe;
@@ -28,7 +29,7 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv,
-    /// returns.csv, the charts (figures/*.svg) and report.html.
+    /// returns.csv, workbook.xlsx, the charts (figures/*.svg) and report.html.
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),
@@ -44,6 +45,8 @@ pub enum Command {
     Rolling(rolling::Args),
     /// Estimate every security of a market's price panel and tabulate betas by industry.
     Universe(universe::Args),
+    /// Start a case file from a wide price table (one column per security).
+    Init(init::Args),
 }
 
 /// Arguments every case-reading command takes.
@@ -79,6 +82,34 @@ impl CaseArgs {
     }
 }
 
+/// Which beta is unlevered, in the words the outputs use: the raw beta, or the shrunk beta and by
+/// whose method (with Blume's weight).
+pub fn shrinkage(beta: &hurdle::case::BetaSettings) -> String {
+    use hurdle::case::Adjustment;
+    match beta.adjustment {
+        Adjustment::None => "raw beta (no shrinkage)".into(),
+        Adjustment::Blume => format!(
+            "shrunk beta (Blume, weight {} on the raw beta)",
+            beta.blume_weight
+        ),
+        Adjustment::Vasicek => "shrunk beta (Vasicek)".into(),
+    }
+}
+
+/// The folder and the file name of an output file given on the command line as `option`.
+pub fn split_file_path(option: &str, path: &std::path::Path) -> hurdle::Result<(PathBuf, String)> {
+    let name =
+        path.file_name()
+            .and_then(|n| n.to_str())
+            .ok_or_else(|| hurdle::Error::Argument {
+                option: format!("{option} {}", path.display()),
+                message: "names no file (it ends in a folder); give a file name such as grid.csv"
+                    .into(),
+            })?;
+    let dir = path.parent().unwrap_or(std::path::Path::new(""));
+    Ok((dir.to_path_buf(), name.to_string()))
+}
+
 /// The run's UTC time, to the second.
 pub fn timestamp() -> String {
     chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true)
@@ -96,5 +127,6 @@ pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
         Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Rolling(args) => rolling::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Universe(args) => universe::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Init(args) => init::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }

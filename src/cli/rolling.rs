@@ -1,9 +1,9 @@
 //! `hurdle rolling CASE.toml [--out DIR] [--set KEY=VALUE]...`
 //!
 //! Computes the valuation and writes `rolling.csv` (peer, window_end, beta, std_error,
-//! observations) to DIR (default: `output/` beside the case file), atomically; prints each
-//! peer's range and trend of the rolling beta. Window length and step: `beta.rolling_window`,
-//! `beta.rolling_step`.
+//! observations) to DIR (default: `output/` beside the case file), never over an input; prints
+//! each peer's range and trend of the rolling beta. Window length and step:
+//! `beta.rolling_window`, `beta.rolling_step`.
 
 use std::path::PathBuf;
 
@@ -37,8 +37,12 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .map(|p| p.name.as_str())
         .collect();
     let rolling: Vec<_> = estimates.peers.iter().map(|p| p.rolling.clone()).collect();
-    let path = out.join("rolling.csv");
-    report::write_file(&path, &report::rolling::rolling_csv(&names, &rolling))?;
+    let file = (
+        "rolling.csv".to_string(),
+        report::rolling::rolling_csv(&names, &rolling),
+    );
+    let reads = hurdle::case::files_read(&inputs.case);
+    let written = report::staging::write_outputs(&out, &[file], &reads)?;
     for (name, estimated) in names.iter().zip(&estimates.peers) {
         match &estimated.stability {
             Some(s) => println!(
@@ -53,6 +57,8 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
             None => println!("{name}: fewer than two rolling windows"),
         }
     }
-    println!("  wrote {}", path.display());
+    for path in written {
+        println!("  wrote {}", path.display());
+    }
     Ok(())
 }

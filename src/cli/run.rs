@@ -1,7 +1,8 @@
 //! `hurdle run CASE.toml [--out DIR] [--template FILE] [--no-figures] [--set KEY=VALUE]...`
 //!
-//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv`, the
-//! charts `figures/*.svg` and `report.html` to DIR (default: `output/` beside the case file),
+//! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv`,
+//! `workbook.xlsx` (formulas that recompute the chain), the charts `figures/*.svg` and
+//! `report.html` to DIR (default: `output/` beside the case file),
 //! each atomically and only after all of them rendered; prints a short summary. `--no-figures`
 //! writes the text outputs only (no charts, no report).
 
@@ -9,6 +10,7 @@ use std::path::PathBuf;
 
 use hurdle::report::figures::{self, report::Report, FigureFile};
 use hurdle::report::format::{fixed, label, percent};
+use hurdle::report::workbook::Workbook;
 use hurdle::report::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
 use hurdle::valuation::Valuation;
 
@@ -35,7 +37,12 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         Some(path) => Memo::from_file(path)?,
         None => Memo::shipped(),
     };
-    let valuation = hurdle::audit::evaluate(&args.case.inputs()?, &super::timestamp())?;
+    let inputs = args.case.inputs()?;
+    let mut reads = hurdle::case::files_read(&inputs.case);
+    if let Some(path) = &args.template {
+        reads.push((path.clone(), "the memo template, --template".into()));
+    }
+    let valuation = hurdle::audit::evaluate(&inputs, &super::timestamp())?;
     let out = args
         .out
         .clone()
@@ -51,12 +58,12 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         figures: &figures,
     };
     let files: Vec<FigureFile> = figures.iter().map(FigureFile).collect();
-    let mut outputs: Vec<&dyn Render> = vec![&memo, &Json, &PeersCsv, &ReturnsCsv];
+    let mut outputs: Vec<&dyn Render> = vec![&memo, &Json, &PeersCsv, &ReturnsCsv, &Workbook];
     if !args.no_figures {
         outputs.extend(files.iter().map(|f| f as &dyn Render));
         outputs.push(&report);
     }
-    let written = report::write_all(&out, &valuation, &outputs)?;
+    let written = report::write_all(&out, &valuation, &outputs, &reads)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());
@@ -71,10 +78,10 @@ fn summary(v: &Valuation) -> String {
             v.case.title, v.case.valuation_date
         ),
         format!(
-            "  {} beta, {} returns, adjustment {}; {} unlevering",
+            "  {} beta, {} returns, {} unlevered; {} unlevering",
             label(&v.estimator.method),
             label(&v.sampling.frequency),
-            label(&v.settings.beta.adjustment),
+            super::shrinkage(&v.settings.beta),
             label(&v.cost.beta.formula)
         ),
         format!(

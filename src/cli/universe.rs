@@ -9,7 +9,7 @@
 //! errors only. The closing summary goes to stdout.
 
 use std::io::IsTerminal;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
@@ -53,9 +53,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     if show {
         reading.bar.enable_steady_tick(Duration::from_millis(120));
     }
+    let reads = universe.files_read();
     let inputs = load_inputs(universe)?;
     reading.bar.finish_and_clear();
-    refuse_overwriting_inputs(&out, &inputs)?;
     let estimating = Display::new(show, started, ProgressBar::new(inputs.panel.len() as u64));
     estimating.bar.set_style(
         ProgressStyle::with_template("{bar:30} {pos}/{len} securities  {rate}  about {eta} left")
@@ -69,7 +69,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     );
     let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
     estimating.bar.finish_and_clear();
-    let written = write_outputs(&out, &result)?;
+    let written = write_outputs(&out, &result, &reads)?;
     print!("{}", summary(&result));
     for path in written {
         println!("  wrote {}", path.display());
@@ -103,45 +103,6 @@ impl Display {
     fn advance(&self, n: usize) {
         self.bar.inc(n as u64);
     }
-}
-
-/// An output file must never replace an input (a panel named `industries.csv` in the output
-/// folder, say).
-fn refuse_overwriting_inputs(
-    out: &Path,
-    inputs: &hurdle::universe::UniverseInputs,
-) -> hurdle::Result<()> {
-    let universe = &inputs.universe;
-    let settings = &universe.settings;
-    let mut read: Vec<PathBuf> = vec![
-        universe.path.clone(),
-        universe.resolve(&settings.panel.prices),
-        universe.resolve(&settings.attributes.file),
-        universe.resolve(&settings.market.index.prices),
-    ];
-    read.extend(
-        settings
-            .market
-            .risk_free_series
-            .as_ref()
-            .map(|r| universe.resolve(&r.yields)),
-    );
-    let read: Vec<PathBuf> = read.iter().filter_map(|p| p.canonicalize().ok()).collect();
-    for name in hurdle::report::universe::OUTPUT_NAMES {
-        let target = out.join(name);
-        if let Ok(target) = target.canonicalize() {
-            if read.contains(&target) {
-                return Err(hurdle::Error::Argument {
-                    option: "--out".into(),
-                    message: format!(
-                        "{} is an input of this run; choose another output folder",
-                        target.display()
-                    ),
-                });
-            }
-        }
-    }
-    Ok(())
 }
 
 fn summary(r: &UniverseResult) -> String {

@@ -17,8 +17,8 @@ pub struct Args {
     /// Where the case file is, when not at the path the receipt records.
     #[arg(long, value_name = "CASE.toml")]
     pub case: Option<PathBuf>,
-    /// Relative tolerance for numbers.
-    #[arg(long, default_value_t = DEFAULT_TOLERANCE)]
+    /// Relative tolerance for numbers, in [0, 1e-6] (0: bit for bit).
+    #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = hurdle::valuation::sanity::check_tolerance)]
     pub tolerance: f64,
     /// Also write verification.json into this folder.
     #[arg(long, value_name = "DIR")]
@@ -36,9 +36,14 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     if let Some(dir) = &args.out {
         let mut bytes = serde_json::to_vec_pretty(&report).expect("a report always serialises");
         bytes.push(b'\n');
-        hurdle::report::write_file(&dir.join("verification.json"), &bytes)?;
         let markdown = hurdle::report::verification::markdown(&report);
-        hurdle::report::write_file(&dir.join("verification.md"), markdown.as_bytes())?;
+        let files = [
+            ("verification.json".to_string(), bytes),
+            ("verification.md".to_string(), markdown.into_bytes()),
+        ];
+        let mut reads = report.files_read.clone();
+        reads.push((args.receipt.clone(), "the receipt".into()));
+        hurdle::report::staging::write_outputs(dir, &files, &reads)?;
     }
     Ok(if report.reproduced {
         ExitCode::SUCCESS

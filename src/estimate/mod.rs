@@ -129,6 +129,11 @@ impl MarketReturns {
         }
     }
 
+    /// The index's period returns inside the window (`None` where a price is missing).
+    pub fn window_returns(&self, window: &Window) -> &[Option<f64>] {
+        &self.returns[window.first..]
+    }
+
     /// Whether returns are in excess of a risk-free rate.
     pub fn excess(&self) -> bool {
         self.risk_free.is_some()

@@ -64,6 +64,10 @@ pub struct DataFile {
     pub first_date: NaiveDate,
     #[serde(serialize_with = "iso_date")]
     pub last_date: NaiveDate,
+    /// The workbook sheet the series was read from (`null` for CSV and Parquet files).
+    pub sheet: Option<String>,
+    /// The column the values were read from.
+    pub column: String,
     #[serde(skip)]
     pub series: Series,
 }
@@ -110,6 +114,8 @@ pub fn read_series_file(
             .dates
             .last()
             .expect("parse_series rejects empty files"),
+        sheet: None,
+        column: value_column.to_string(),
         series,
     })
 }
@@ -126,13 +132,15 @@ pub fn parse_series(
         file: file.to_path_buf(),
         message,
     };
+    super::sanity::check_csv_shape(file, bytes)?;
     let frame = CsvReadOptions::default()
         .with_has_header(true)
         // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.
         .with_infer_schema_length(Some(0))
         .into_reader_with_file_handle(Cursor::new(bytes))
         .finish()
-        .map_err(|e| file_error(format!("not a readable CSV file: {e}")))?;
+        // The reader's first line only: the rest advises options the user cannot set.
+        .map_err(|e| file_error(format!("not a readable CSV file: {}", first_line(&e))))?;
     let column = |name: &str| -> Result<Vec<Option<String>>> {
         let found = frame.column(name).map_err(|_| {
             let names: Vec<String> = frame
@@ -207,5 +215,11 @@ pub fn parse_series(
         dates.push(date);
         values.push(value);
     }
-    Ok(Series { dates, values })
+    let series = Series { dates, values };
+    super::sanity::check_series_values(file, value_column, &series, kind)?;
+    Ok(series)
+}
+
+fn first_line(error: &impl std::fmt::Display) -> String {
+    error.to_string().lines().next().unwrap_or("").to_string()
 }

@@ -56,7 +56,13 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
         file: path.to_path_buf(),
         message,
     };
-    let text = String::from_utf8(bytes).map_err(|_| file_error("not UTF-8 text".into()))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let valid = &e.as_bytes()[..e.utf8_error().valid_up_to()];
+        let line = valid.iter().filter(|&&b| b == b'\n').count() + 1;
+        file_error(format!(
+            "line {line}: not UTF-8 text; save the table as UTF-8"
+        ))
+    })?;
     let rows = if path
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
@@ -91,6 +97,9 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
             let Some(low) = row.min_coverage else {
                 return Err(row_error("min_coverage is missing".into()));
             };
+            if !low.is_finite() {
+                return Err(row_error(format!("min_coverage = {low} is not a number")));
+            }
             if let Some(previous) = i.checked_sub(1).and_then(|j| rows[j].min_coverage) {
                 if low.is_nan() || low <= previous {
                     return Err(row_error(format!(

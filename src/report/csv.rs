@@ -26,7 +26,7 @@ const PEER_COLUMNS: [&str; 28] = [
     "beta_ci_low",
     "beta_ci_high",
     "r_squared",
-    "adjusted_beta",
+    "shrunk_beta",
     "beta_used",
     "debt_to_equity",
     "tax_rate",
@@ -40,8 +40,8 @@ const PEER_COLUMNS: [&str; 28] = [
     "excluded_reason",
     "debt_beta",
     "cost_of_debt",
-    "cash_share_of_capital",
-    "cash_corrected_unlevered_beta",
+    "operating_share",
+    "operations_beta",
 ];
 
 impl Render for PeersCsv {
@@ -67,7 +67,7 @@ impl Render for PeersCsv {
                 e.beta_ci_low.to_string(),
                 e.beta_ci_high.to_string(),
                 e.r_squared.to_string(),
-                p.adjusted_beta.map(|b| b.to_string()).unwrap_or_default(),
+                p.shrunk_beta.map(|b| b.to_string()).unwrap_or_default(),
                 p.beta_used.to_string(),
                 p.debt_to_equity.to_string(),
                 p.tax_rate.to_string(),
@@ -87,8 +87,8 @@ impl Render for PeersCsv {
                 field(p.excluded_reason.as_deref().unwrap_or("")),
                 p.debt_beta.to_string(),
                 p.cost_of_debt.to_string(),
-                p.cash_share_of_capital.to_string(),
-                p.cash_corrected_unlevered_beta.to_string(),
+                p.operating_share.to_string(),
+                p.operations_beta.to_string(),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');

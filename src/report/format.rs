@@ -24,6 +24,7 @@ pub fn fixed(value: f64, decimals: usize) -> String {
 }
 
 pub use crate::case::label;
+pub use crate::error::compact;
 
 #[cfg(test)]
 mod tests {
@@ -37,5 +38,9 @@ mod tests {
         assert_eq!(fixed(1.23456, 3), "1.235");
         assert_eq!(fixed(-0.0001, 3), "0.000");
         assert_eq!(fixed(-0.5, 2), "-0.50");
+        assert_eq!(compact(43.7678), "43.7678");
+        assert_eq!(compact(1e308), "1e308");
+        assert_eq!(compact(-2.5e-200), "-2.5e-200");
+        assert_eq!(compact(0.0), "0");
     }
 }

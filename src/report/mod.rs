@@ -9,8 +9,10 @@ pub mod format;
 pub mod json;
 pub mod memo;
 pub mod rolling;
+pub mod staging;
 pub mod universe;
 pub mod verification;
+pub mod workbook;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -34,60 +36,13 @@ pub fn write_all(
     dir: &Path,
     valuation: &Valuation,
     outputs: &[&dyn Render],
+    reads: &[crate::case::FileRead],
 ) -> Result<Vec<PathBuf>> {
     let rendered = outputs
         .iter()
         .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
         .collect::<Result<Vec<_>>>()?;
-    write_rendered(dir, rendered)
-}
-
-/// Writes files already rendered (name, bytes) into `dir` (created when missing), each
-/// atomically.
-pub fn write_rendered(dir: &Path, rendered: Vec<(String, Vec<u8>)>) -> Result<Vec<PathBuf>> {
-    std::fs::create_dir_all(dir).map_err(|source| Error::Io {
-        path: dir.to_path_buf(),
-        action: "cannot create the output folder",
-        source,
-    })?;
-    let staged = rendered
-        .iter()
-        // A name may hold a subfolder (`figures/…`), created on the way.
-        .map(|(name, bytes)| stage(&dir.join(name), bytes).map(|file| (dir.join(name), file)))
-        .collect::<Result<Vec<_>>>()?;
-    // One thread per file: the flushes wait on the disk, not on a core.
-    std::thread::scope(|scope| {
-        let flushes: Vec<_> = staged
-            .iter()
-            .map(|(path, file)| {
-                scope.spawn(move || {
-                    file.as_file().sync_all().map_err(|source| Error::Io {
-                        path: path.clone(),
-                        action: "cannot flush",
-                        source,
-                    })
-                })
-            })
-            .collect();
-        flushes
-            .into_iter()
-            .zip(&staged)
-            .try_for_each(|(flush, (path, _))| {
-                flush.join().unwrap_or_else(|_| {
-                    Err(Error::Io {
-                        path: path.clone(),
-                        action: "cannot flush",
-                        source: std::io::Error::other("the flushing thread stopped"),
-                    })
-                })
-            })
-    })?;
-    let mut written = Vec::with_capacity(staged.len());
-    for (path, file) in staged {
-        persist(&path, file)?;
-        written.push(path);
-    }
-    Ok(written)
+    staging::write_outputs(dir, &rendered, reads)
 }
 
 /// Writes one file atomically, creating its folder when missing.

@@ -14,28 +14,19 @@ use std::path::{Path, PathBuf};
 use polars::prelude::*;
 
 use super::format::{fixed, label};
-use super::write_rendered;
 use crate::error::{Error, Result};
 use crate::universe::industries::{IndustryResult, Summary};
 use crate::universe::securities::SecurityResult;
 use crate::universe::UniverseResult;
 
-/// Every file name a run may write, for the check that no output replaces an input.
-pub const OUTPUT_NAMES: [&str; 8] = [
-    "securities.csv",
-    "securities.parquet",
-    "industries.csv",
-    "industries.parquet",
-    "rolling.csv",
-    "rolling.parquet",
-    "summary.md",
-    "result.json",
-];
-
-/// Renders every output, then writes them all into `dir` (created when missing), each
-/// atomically; nothing is written when any rendering fails.
-pub fn write_outputs(dir: &Path, result: &UniverseResult) -> Result<Vec<PathBuf>> {
-    write_rendered(dir, render(result)?)
+/// Renders every output, then writes them all into `dir` as one group (never over a file in
+/// `reads`, nothing written when anything fails; see `staging`).
+pub fn write_outputs(
+    dir: &Path,
+    result: &UniverseResult,
+    reads: &[super::staging::FileRead],
+) -> Result<Vec<PathBuf>> {
+    super::staging::write_outputs(dir, &render(result)?, reads)
 }
 
 /// Counts by name, those above zero, as `name n, name n` (empty when none is).
@@ -215,7 +206,7 @@ fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame>
         "excluded_reason",
         rows.iter().map(|r| r.excluded_reason.clone()),
     );
-    t.number("adjusted_beta", rows.iter().map(|r| r.adjusted_beta));
+    t.number("shrunk_beta", rows.iter().map(|r| r.shrunk_beta));
     t.number("beta_used", rows.iter().map(|r| r.beta_used));
     t.number("equity_value", rows.iter().map(|r| r.equity_value));
     t.number("debt", rows.iter().map(|r| r.debt));
@@ -229,14 +220,8 @@ fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame>
     t.number("debt_to_equity", rows.iter().map(|r| r.debt_to_equity));
     t.number("debt_beta", rows.iter().map(|r| Some(r.debt_beta)));
     t.number("unlevered_beta", rows.iter().map(|r| r.unlevered_beta));
-    t.number(
-        "cash_share_of_capital",
-        rows.iter().map(|r| r.cash_share_of_capital),
-    );
-    t.number(
-        "cash_corrected_unlevered_beta",
-        rows.iter().map(|r| r.cash_corrected_unlevered_beta),
-    );
+    t.number("operating_share", rows.iter().map(|r| r.operating_share));
+    t.number("operations_beta", rows.iter().map(|r| r.operations_beta));
     t.text(
         "unlevering_issue",
         rows.iter().map(|r| r.unlevering_issue.map(str::to_string)),
@@ -312,16 +297,14 @@ fn industries_frame(rows: &[IndustryResult], adjusted: bool) -> Result<DataFrame
     }
     summary_columns(&mut t, rows, "beta", |r| r.levered.as_ref());
     if adjusted {
-        summary_columns(&mut t, rows, "adjusted_beta", |r| r.adjusted.as_ref());
+        summary_columns(&mut t, rows, "shrunk_beta", |r| r.shrunk.as_ref());
     }
     t.number(
         "median_debt_to_equity",
         rows.iter().map(|r| r.median_debt_to_equity),
     );
     summary_columns(&mut t, rows, "unlevered_beta", |r| r.unlevered.as_ref());
-    summary_columns(&mut t, rows, "cash_corrected_unlevered_beta", |r| {
-        r.cash_corrected.as_ref()
-    });
+    summary_columns(&mut t, rows, "operations_beta", |r| r.operations.as_ref());
     t.number("unlevered_beta", rows.iter().map(|r| r.unlevered_beta));
     t.finish()
 }
@@ -383,8 +366,8 @@ fn summary(r: &UniverseResult) -> String {
         label(&s.leverage.debt_measure),
         r.formula_source,
         label(&s.leverage.aggregation),
-        if s.leverage.cash_correction {
-            " after the cash step"
+        if s.leverage.operations_beta {
+            " of the betas of the operations (cash at a beta of zero)"
         } else {
             ""
         },

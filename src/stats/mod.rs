@@ -53,6 +53,13 @@ fn computed_t_quantile(p: f64, df: f64) -> f64 {
 
 /// Two-sided p-value of a t-statistic: 2·P(T > |t|).
 pub fn student_t_two_sided_p(t: f64, df: f64) -> f64 {
+    // statrs panics on a NaN argument; an infinite t lies beyond every quantile.
+    if t.is_nan() {
+        return f64::NAN;
+    }
+    if t.is_infinite() {
+        return 0.0;
+    }
     let dist = StudentsT::new(0.0, 1.0, df).expect("degrees of freedom are positive");
     (2.0 * dist.sf(t.abs())).min(1.0)
 }
@@ -226,6 +233,15 @@ mod tests {
         let exact = 2.0 * (0.5 - t.atan() / std::f64::consts::PI);
         // 1e-13: one incomplete-beta evaluation.
         assert!((student_t_two_sided_p(t, 1.0) - exact).abs() < 1e-13);
+    }
+
+    // A zero standard error gives t = ±inf (p = 0: the limit of 2·P(T > |t|)) or, with a zero
+    // estimate, t = NaN, for which there is no p-value (statrs' incomplete beta panics on NaN).
+    #[test]
+    fn non_finite_t_statistics_do_not_panic() {
+        assert_eq!(student_t_two_sided_p(f64::INFINITY, 10.0), 0.0);
+        assert_eq!(student_t_two_sided_p(f64::NEG_INFINITY, 10.0), 0.0);
+        assert!(student_t_two_sided_p(f64::NAN, 10.0).is_nan());
     }
 
     // numpy.percentile's default ("linear") on [1, 2, 3, 4]: 25% → 1.75, 50% → 2.5, 75% → 3.25

@@ -2,8 +2,9 @@
 //!
 //! Levered betas are aggregated over the securities that are estimated and not excluded by
 //! `beta.exclude_flags`; unlevered betas over those of them whose D/E and tax rate are known
-//! (and, with the cash step, their cash). Every location statistic an aggregation can pick is
-//! reported (median, mean, market-cap-weighted mean, trimmed mean), with and without the cash
+//! (and, for the betas of the operations, their cash). Every location statistic an aggregation
+//! can pick is reported (median, mean, market-cap-weighted mean, trimmed mean), of the unlevered
+//! betas and of the betas of the operations
 //! step, beside the dispersion, so the reader sees how much the choice matters. The statistics
 //! are the case's own ([`crate::stats`]).
 
@@ -53,15 +54,15 @@ pub struct IndustryResult {
     pub excluded_total: usize,
     /// Raw levered betas (market-cap weights over those with an equity value).
     pub levered: Option<Summary>,
-    /// The adjusted betas (Blume or Vasicek), when `beta.adjustment` asks for one.
-    pub adjusted: Option<Summary>,
+    /// The shrunk betas (Blume or Vasicek), when `beta.adjustment` asks for them.
+    pub shrunk: Option<Summary>,
     pub median_debt_to_equity: Option<f64>,
-    /// Unlevered betas under `leverage.formula`, without the cash step.
+    /// Unlevered betas under `leverage.formula`.
     pub unlevered: Option<Summary>,
-    /// The same after the cash step βU / (1 − cash / (equity + debt)).
-    pub cash_corrected: Option<Summary>,
+    /// The betas of the operations, βU / (1 − cash / (equity + debt)).
+    pub operations: Option<Summary>,
     /// The figure a case would relever: `leverage.aggregation` of the unlevered betas, with the
-    /// cash step when `leverage.cash_correction` is set.
+    /// betas of the operations when `leverage.operations_beta` is set.
     pub unlevered_beta: Option<f64>,
 }
 
@@ -108,9 +109,9 @@ fn industry_row(
         summarise(&values, &weighted, trim)
     };
     let unlevered = summary(&|s| s.unlevered_beta);
-    let cash_corrected = summary(&|s| s.cash_corrected_unlevered_beta);
-    let chosen = if leverage.cash_correction {
-        &cash_corrected
+    let operations = summary(&|s| s.operations_beta);
+    let chosen = if leverage.operations_beta {
+        &operations
     } else {
         &unlevered
     };
@@ -143,15 +144,15 @@ fn industry_row(
         excluded,
         excluded_total: excluded_members.len(),
         levered: summary(&|s| s.estimate.as_ref().map(|e| e.beta)),
-        adjusted: if adjusted {
-            summary(&|s| s.adjusted_beta)
+        shrunk: if adjusted {
+            summary(&|s| s.shrunk_beta)
         } else {
             None
         },
         median_debt_to_equity: (!ratios.is_empty()).then(|| stats::dispersion(&ratios).median),
         unlevered_beta: chosen.as_ref().and_then(|s| s.select(leverage.aggregation)),
         unlevered,
-        cash_corrected,
+        operations,
     }
 }
 

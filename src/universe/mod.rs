@@ -298,12 +298,12 @@ fn adjust(
     let beta = &settings.beta;
     let stated = beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance);
     let (adjusted, prior) =
-        beta::adjust_all(beta.adjustment, stated, &raw, &included).map_err(|message| {
-            Error::Estimation {
+        beta::adjust_all(beta.adjustment, beta.blume_weight, stated, &raw, &included).map_err(
+            |message| Error::Estimation {
                 peer: "(all securities)".into(),
                 message: message.replace("peers", "securities"),
-            }
-        })?;
+            },
+        )?;
     let mut adjusted = adjusted.into_iter();
     let per_security = estimates
         .iter()

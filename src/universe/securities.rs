@@ -73,9 +73,10 @@ pub struct SecurityResult {
     pub stale_share: Option<f64>,
     /// Why the security is left out of the aggregates (`beta.exclude_flags`), or `None`.
     pub excluded_reason: Option<String>,
-    pub adjusted_beta: Option<f64>,
+    /// The raw beta shrunk by Blume's or Vasicek's method (`beta.adjustment`).
+    pub shrunk_beta: Option<f64>,
     pub vasicek: Option<vasicek::Shrunk>,
-    /// The beta that is unlevered: the adjusted one when there is one, else the raw one.
+    /// The beta that is unlevered: the shrunk one when there is one, else the raw one.
     pub beta_used: Option<f64>,
     pub equity_value: Option<f64>,
     pub debt: Option<f64>,
@@ -86,10 +87,10 @@ pub struct SecurityResult {
     pub debt_to_equity: Option<f64>,
     pub debt_beta: f64,
     pub unlevered_beta: Option<f64>,
-    /// cash / (equity + debt), gross debt.
-    pub cash_share_of_capital: Option<f64>,
-    /// βU / (1 − cash / (equity + debt)).
-    pub cash_corrected_unlevered_beta: Option<f64>,
+    /// 1 − cash / (equity + debt), gross debt: the operations' share of the firm's value.
+    pub operating_share: Option<f64>,
+    /// The beta of the operations, βU / operating share (cash at a beta of zero).
+    pub operations_beta: Option<f64>,
     /// Why an unlevered figure is undefined although every input is present.
     pub unlevering_issue: Option<&'static str>,
     /// Range and trend of the rolling betas, when `universe.rolling` asks for them.
@@ -119,7 +120,7 @@ pub fn exclusion(excluding_flags: &[PeerFlag]) -> Option<String> {
     })
 }
 
-/// Builds one security's row from its estimate, its adjusted beta (present exactly when it
+/// Builds one security's row from its estimate, its shrunk beta (present exactly when it
 /// was estimated) and its attributes.
 pub fn security_row(
     security: &str,
@@ -175,7 +176,7 @@ pub fn security_row(
         flags,
         stale_share,
         excluded_reason,
-        adjusted_beta: adjusted.and_then(|a| a.adjusted),
+        shrunk_beta: adjusted.and_then(|a| a.shrunk),
         vasicek: adjusted.and_then(|a| a.vasicek),
         beta_used,
         equity_value: equity,
@@ -186,8 +187,8 @@ pub fn security_row(
         debt_to_equity: unlevering.debt_to_equity,
         debt_beta,
         unlevered_beta: unlevering.unlevered,
-        cash_share_of_capital: unlevering.cash_share,
-        cash_corrected_unlevered_beta: unlevering.cash_corrected,
+        operating_share: unlevering.operating_share,
+        operations_beta: unlevering.operations,
         unlevering_issue: unlevering.issue,
         stability,
     }
@@ -215,12 +216,12 @@ fn missing(attributes: Option<&AttributeRecord>, cash_column: bool) -> Vec<Missi
 struct Unlevering {
     debt_to_equity: Option<f64>,
     unlevered: Option<f64>,
-    cash_share: Option<f64>,
-    cash_corrected: Option<f64>,
+    operating_share: Option<f64>,
+    operations: Option<f64>,
     issue: Option<&'static str>,
 }
 
-/// D/E, the unlevered beta and its cash-corrected form, as a case computes them for a peer.
+/// D/E, the unlevered beta and the beta of the operations, as a case computes them for a peer.
 fn unlever(
     beta_used: Option<f64>,
     equity: Option<f64>,
@@ -253,24 +254,25 @@ fn unlever(
         )),
         _ => None,
     };
-    let cash_share = match (equity, debt, cash) {
-        (Some(e), Some(d), Some(c)) => Some(c / (e + d)),
+    let operating_share = match (equity, debt, cash) {
+        (Some(e), Some(d), Some(c)) => Some(1.0 - c / (e + d)),
         _ => None,
     };
+    // Cash at or above the firm's value leaves no operations to take a beta of.
     let issue = issue.or_else(|| {
-        cash_share
-            .filter(|&s| s >= 1.0)
+        operating_share
+            .filter(|&s| s <= 0.0)
             .map(|_| "cash_not_below_equity_plus_debt")
     });
-    let cash_corrected = match (unlevered, cash_share) {
-        (Some(u), Some(s)) if s < 1.0 => Some(u / (1.0 - s)),
+    let operations = match (unlevered, operating_share) {
+        (Some(u), Some(s)) if s > 0.0 => Some(u / s),
         _ => None,
     };
     Unlevering {
         debt_to_equity,
         unlevered,
-        cash_share,
-        cash_corrected,
+        operating_share,
+        operations,
         issue,
     }
 }
@@ -281,7 +283,7 @@ mod tests {
     use crate::capital::leverage::Formula;
 
     // Hamada by hand: βL = 1.2, D/E = 0.5, t = 0.3: βU = 1.2 / (1 + 0.7·0.5) = 1.2 / 1.35.
-    // Cash share 50 / (100 + 50) = 1/3, so the cash-corrected βU is βU / (2/3).
+    // Operating share 1 − 50 / (100 + 50) = 2/3, so the beta of the operations is βU / (2/3).
     #[test]
     fn unlevering_matches_the_hand_computation() {
         let leverage = LeverageSettings {
@@ -299,7 +301,7 @@ mod tests {
         );
         // 1e-15: one multiply-add and one division.
         assert!((u.unlevered.unwrap() - 1.2 / 1.35).abs() < 1e-15);
-        assert!((u.cash_corrected.unwrap() - 1.2 / 1.35 / (2.0 / 3.0)).abs() < 1e-15);
+        assert!((u.operations.unwrap() - 1.2 / 1.35 / (2.0 / 3.0)).abs() < 1e-15);
         assert_eq!(u.debt_to_equity, Some(0.5));
     }
 
@@ -318,7 +320,7 @@ mod tests {
         );
         assert_eq!(u.debt_to_equity, None);
         assert_eq!(u.unlevered, None);
-        assert_eq!(u.cash_share, None);
+        assert_eq!(u.operating_share, None);
         let net = LeverageSettings {
             debt_measure: DebtMeasure::Net,
             ..LeverageSettings::default()

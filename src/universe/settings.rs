@@ -90,7 +90,7 @@ pub struct AttributesSpec {
     pub equity_value_column: String,
     #[serde(default = "default_debt_column")]
     pub debt_column: String,
-    /// Optional: needed by `leverage.cash_correction` and `leverage.debt_measure = "net"`.
+    /// Optional: needed by `leverage.operations_beta` and `leverage.debt_measure = "net"`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub cash_column: Option<String>,
     #[serde(default = "default_tax_rate_column")]
@@ -179,6 +179,27 @@ impl Universe {
         let dir = self.path.parent().unwrap_or_else(|| Path::new("."));
         dir.join(written)
     }
+
+    /// Every file a run reads, with the key that names it, so no output can replace one.
+    pub fn files_read(&self) -> Vec<case::FileRead> {
+        let s = &self.settings;
+        let mut files = vec![
+            (self.path.clone(), "the universe file".to_string()),
+            (
+                self.resolve(&s.market.index.prices),
+                "market.index.prices".into(),
+            ),
+            (self.resolve(&s.panel.prices), "panel.prices".into()),
+            (self.resolve(&s.attributes.file), "attributes.file".into()),
+        ];
+        if let Some(series) = &s.market.risk_free_series {
+            files.push((
+                self.resolve(&series.yields),
+                "market.risk_free_series.yields".into(),
+            ));
+        }
+        files
+    }
 }
 
 /// Reads, overrides and validates a universe file. `overrides` are `dotted.key=value` strings.
@@ -245,12 +266,12 @@ pub fn validate(universe: &UniverseFile) -> std::result::Result<(), String> {
         );
     }
     let needs_cash =
-        leverage.cash_correction || leverage.debt_measure == crate::case::DebtMeasure::Net;
+        leverage.operations_beta || leverage.debt_measure == crate::case::DebtMeasure::Net;
     if needs_cash && universe.attributes.cash_column.is_none() {
         return Err(format!(
             "{} needs each firm's cash: name its column in attributes.cash_column",
-            if leverage.cash_correction {
-                "leverage.cash_correction = true"
+            if leverage.operations_beta {
+                "leverage.operations_beta = true"
             } else {
                 "leverage.debt_measure = \"net\""
             }
@@ -319,64 +340,41 @@ fn validate_shared(universe: &UniverseFile) -> std::result::Result<(), String> {
 
 /// A case holding the universe's shared sections (`[market.index]`, `[market.risk_free_series]`,
 /// `[beta]`, `[leverage]`, the valuation date), one neutral peer and neutral capital keys: the
-/// value through which the case's validation and spec conversion serve the universe file.
+/// value through which the case's validation and spec conversion serve the universe file. It is
+/// parsed from a minimal case text, so keys a case gains later take their defaults.
 fn stand_in_case(universe: &UniverseFile) -> case::CaseFile {
-    case::CaseFile {
-        case: case::CaseInfo {
-            title: "universe".into(),
-            subject: String::new(),
-            valuation_date: universe.universe.valuation_date,
-            currency: String::new(),
-        },
-        market: case::Market {
-            risk_free_rate: 0.0,
-            equity_risk_premium: 0.05,
-            index: universe.market.index.clone(),
-            risk_free_series: universe.market.risk_free_series.clone(),
-        },
-        beta: universe.beta.clone(),
-        leverage: universe.leverage.clone(),
-        target: case::TargetSettings {
-            debt_to_equity: Some(0.0),
-            debt_to_capital: None,
-            tax_rate: 0.0,
-            tax_rate_basis: Default::default(),
-            source: Default::default(),
-            subject_equity_value: None,
-            subject_debt: None,
-            subject_cash: None,
-        },
-        debt: case::DebtSettings {
-            source: case::DebtSource::Given,
-            cost_pre_tax: Some(0.05),
-            rating: None,
-            rating_table: None,
-            ebit: None,
-            interest_expense: None,
-            coverage_table: None,
-        },
-        premiums: Default::default(),
-        sensitivity: Default::default(),
-        uncertainty: Default::default(),
-        reconcile: None,
-        preferred: Default::default(),
-        leases: Default::default(),
-        conversion: None,
-        peers: vec![case::PeerSpec {
-            name: "stand-in".into(),
-            prices: "stand-in.csv".into(),
-            date_column: "date".into(),
-            price_column: "price".into(),
-            equity_value: 1.0,
-            debt: 0.0,
-            cash: 0.0,
-            tax_rate: 0.0,
-            debt_beta: None,
-            cost_of_debt: None,
-            exclude: None,
-        }],
-    }
+    let mut stand_in: case::CaseFile = toml::from_str(STAND_IN).expect("the stand-in case parses");
+    stand_in.case.valuation_date = universe.universe.valuation_date;
+    stand_in.market.index = universe.market.index.clone();
+    stand_in.market.risk_free_series = universe.market.risk_free_series.clone();
+    stand_in.beta = universe.beta.clone();
+    stand_in.leverage = universe.leverage.clone();
+    stand_in
 }
+
+/// Neutral values for every case key a universe does not have.
+const STAND_IN: &str = r#"
+[case]
+title = "universe"
+valuation_date = 2026-09-30
+currency = ""
+[market]
+risk_free_rate = 0.0
+equity_risk_premium = 0.05
+[market.index]
+prices = "index.csv"
+[target]
+debt_to_equity = 0.0
+tax_rate = 0.0
+[debt]
+cost_pre_tax = 0.05
+[[peer]]
+name = "stand-in"
+prices = "stand-in.csv"
+equity_value = 1.0
+debt = 0.0
+tax_rate = 0.0
+"#;
 
 #[cfg(test)]
 mod tests {
@@ -429,7 +427,7 @@ file = "attributes.parquet"
         universe.leverage.formula = Formula::MilesEzzell;
         assert!(validate(&universe).unwrap_err().contains("miles-ezzell"));
         let mut universe = parse(MINIMAL);
-        universe.leverage.cash_correction = true;
+        universe.leverage.operations_beta = true;
         assert!(validate(&universe)
             .unwrap_err()
             .contains("attributes.cash_column"));

@@ -10,8 +10,7 @@ pub mod analyses;
 mod build;
 pub mod listing;
 pub mod records;
-
-use std::path::PathBuf;
+pub mod sanity;
 
 use chrono::NaiveDate;
 
@@ -25,7 +24,7 @@ use crate::error::{Error, Result};
 use crate::estimate::{
     self, EstimateError, EstimationSpec, MarketReturns, SecurityEstimate, Window,
 };
-use crate::io::series::{read_series_file, DataFile, ValueKind};
+use crate::io::series::DataFile;
 use crate::io::spread_table::read_spread_table;
 
 /// A case with every data file it names, read and validated.
@@ -52,40 +51,8 @@ pub fn load_price_inputs(case: Case) -> Result<Inputs> {
 
 fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
     let settings = &case.settings;
-    let index_spec = &settings.market.index;
-    let index = read_series_file(
-        "index",
-        &index_spec.prices,
-        &case.resolve(&index_spec.prices),
-        &index_spec.date_column,
-        &index_spec.price_column,
-        ValueKind::Price,
-    )?;
-    let risk_free = match &settings.market.risk_free_series {
-        Some(spec) => Some(read_series_file(
-            "risk_free",
-            &spec.yields,
-            &case.resolve(&spec.yields),
-            &spec.date_column,
-            &spec.yield_column,
-            ValueKind::Yield,
-        )?),
-        None => None,
-    };
-    let peers = settings
-        .peers
-        .iter()
-        .map(|peer| {
-            read_series_file(
-                &format!("peer:{}", peer.name),
-                &peer.prices,
-                &case.resolve(&peer.prices),
-                &peer.date_column,
-                &peer.price_column,
-                ValueKind::Price,
-            )
-        })
-        .collect::<Result<Vec<_>>>()?;
+    // Own files or columns of wide tables (`[sources]`); each table is read once.
+    let (index, risk_free, peers) = crate::case::sources::read_series(&case)?;
     let debt_settings = &settings.debt;
     let debt_table = match debt_settings.source {
         _ if !with_debt_table => None,
@@ -103,13 +70,15 @@ fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
             )?)
         }
     };
-    Ok(Inputs {
+    let inputs = Inputs {
         case,
         index,
         risk_free,
         peers,
         debt_table,
-    })
+    };
+    sanity::check_inputs(&inputs)?;
+    Ok(inputs)
 }
 
 /// Every peer's estimate under one estimation spec, made once and shared by every what-if that
@@ -126,25 +95,16 @@ pub struct PeerEstimates {
     pub peers: Vec<SecurityEstimate>,
     /// Remarks about the data (window end, dropped and stale periods), in peer order.
     pub notes: Vec<String>,
-    /// The price files estimated, to tell whether a what-if reads other files.
-    files: Vec<PathBuf>,
+    /// The settings the estimates were made under, to tell whether a what-if reads other data.
+    settings: crate::case::CaseFile,
 }
 
 impl PeerEstimates {
     /// Whether these estimates are what `case` would estimate on `inputs`' files.
     pub fn fit(&self, case: &Case) -> bool {
-        self.spec == specs::estimation(&case.settings) && self.files == price_files(case)
+        self.spec == specs::estimation(&case.settings)
+            && crate::case::sources::same_data(&self.settings, &case.settings)
     }
-}
-
-/// The price files a case estimates from, resolved.
-fn price_files(case: &Case) -> Vec<PathBuf> {
-    let market = &case.settings.market;
-    std::iter::once(&market.index.prices)
-        .chain(market.risk_free_series.iter().map(|s| &s.yields))
-        .chain(case.settings.peers.iter().map(|p| &p.prices))
-        .map(|written| case.resolve(written))
-        .collect()
 }
 
 /// Estimates every peer of `case` on the data files of `inputs`.
@@ -158,8 +118,11 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
         inputs.index.series.view(),
         inputs.risk_free.as_ref().map(|f| f.series.view()),
     );
+    sanity::check_index_returns(case, &inputs.index, market.window_returns(&window))?;
     let valuation_date = settings.case.valuation_date.0;
-    let mut notes = Vec::new();
+    let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
+        .into_iter()
+        .collect();
     if window.end() != valuation_date {
         notes.push(format!(
             "The valuation date {valuation_date} is not a period end; the return window ends at \
@@ -174,6 +137,15 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
                 peer: peer.name.clone(),
                 message: failure_message(&failure, &spec, &window, file, &inputs.index),
             })?;
+        sanity::check_peer_fit(
+            &estimated.returns.asset,
+            &estimated.estimate,
+            &inputs.index.path,
+        )
+        .map_err(|message| Error::Estimation {
+            peer: peer.name.clone(),
+            message,
+        })?;
         notes.extend(data_notes(&peer.name, &estimated, &spec));
         peers.push(estimated);
     }
@@ -184,7 +156,7 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
         spec,
         peers,
         notes,
-        files: price_files(case),
+        settings: case.settings.clone(),
     })
 }
 
@@ -251,7 +223,9 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
 
 /// Computes the valuation of the inputs' case. `generated_at` is stamped into the result as given.
 pub fn value(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
-    value_case(&inputs.case, inputs, generated_at)
+    let valuation = value_case(&inputs.case, inputs, generated_at)?;
+    sanity::check_finite_figures(&valuation)?;
+    Ok(valuation)
 }
 
 /// Computes the valuation of `case` (the inputs' case, or a copy with overrides) on the data

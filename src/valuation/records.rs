@@ -17,7 +17,7 @@ use crate::market::sampling::{self, AlignedReturns, DroppedPeriods};
 use crate::stats::{self, Dispersion};
 
 /// Version of the `result.json` layout; raised whenever a field changes meaning or goes away.
-pub const SCHEMA_VERSION: u32 = 1;
+pub const SCHEMA_VERSION: u32 = 2;
 
 /// The tool that produced a result.
 #[derive(Debug, Clone, Serialize)]
@@ -73,9 +73,10 @@ pub struct PeerResult {
     pub periods_dropped: DroppedPeriods,
     #[serde(flatten)]
     pub estimate: BetaEstimate,
-    /// The adjusted beta, or `null` when the case asks for no adjustment.
-    pub adjusted_beta: Option<f64>,
-    /// The beta that is unlevered: the adjusted one when there is one, else the raw one.
+    /// The raw beta shrunk toward a mean (Blume or Vasicek), or `null` when the case asks for no
+    /// adjustment.
+    pub shrunk_beta: Option<f64>,
+    /// The beta that is unlevered: the shrunk one when there is one, else the raw one.
     pub beta_used: f64,
     pub equity_value: f64,
     pub debt: f64,
@@ -88,11 +89,11 @@ pub struct PeerResult {
     /// The peer's pre-tax cost of debt used by Miles–Ezzell and the credit-spread debt beta:
     /// its own `cost_of_debt`, else the subject's.
     pub cost_of_debt: f64,
-    /// βU / (1 − cash / (equity + debt)), the unlevered beta of the operating assets alone
-    /// (gross debt); aggregated instead of `unlevered_beta` when `leverage.cash_correction`.
-    pub cash_corrected_unlevered_beta: f64,
-    /// cash / (equity + debt), gross debt: the share of capital the cash correction removes.
-    pub cash_share_of_capital: f64,
+    /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
+    pub operating_share: f64,
+    /// The beta of the operations, `unlevered_beta / operating_share` (cash at beta zero);
+    /// aggregated instead of `unlevered_beta` when `leverage.operations_beta`.
+    pub operations_beta: f64,
     /// Why the peer is left out of the aggregation, or `null` when it is included.
     pub excluded_reason: Option<String>,
     /// The Vasicek-shrunk beta beside the raw one (`null` unless `beta.adjustment = "vasicek"`).
@@ -121,12 +122,12 @@ pub struct BetaSummary {
     pub unlevered_dispersion: Dispersion,
     /// The aggregate relevered at the target structure.
     pub relevered: f64,
-    /// Whether the cash-corrected unlevered betas are the ones aggregated.
-    pub cash_corrected: bool,
-    /// The aggregate of the plain unlevered betas and of the cash-corrected ones (same statistic);
-    /// `unlevered` is one of the two.
-    pub unlevered_plain: f64,
-    pub unlevered_cash_corrected: f64,
+    /// Whether the betas of the operations are the ones aggregated (`leverage.operations_beta`).
+    pub uses_operations_beta: bool,
+    /// The same statistic of the unlevered betas and of the betas of the operations; `unlevered`
+    /// is one of the two.
+    pub aggregate_of_unlevered: f64,
+    pub aggregate_of_operations: f64,
     /// Median, mean, market-cap-weighted mean and trimmed mean of the betas aggregated.
     pub unlevered_statistics: stats::Locations,
     /// Gross debt or net of cash in every D/E.
@@ -156,7 +157,7 @@ pub struct PremiumRecord {
     /// The premiums added to the cost of equity: size + country as applied + company-specific.
     pub total: f64,
     pub country_method: crate::capital::cost::CountryMethod,
-    /// λ for `country_method = "lambda"`, βL for `"beta"`, 1 for `"added"`.
+    /// The exposure for `country_method = "exposure"`, βL for `"beta-scaled"`, 1 for `"flat"`.
     pub country_scale: f64,
     /// The country premium as it enters the cost of equity.
     pub country_applied: f64,

@@ -52,6 +52,16 @@ pub fn reference_check(out: &Path, label: &str) -> String {
     stdout
 }
 
+/// The wide-table form of the demo case (`hurdle-demo-data` writes it beside the demo).
+#[allow(dead_code)]
+pub const WIDE_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/cases/quillmarsh-wide");
+
+/// Copies the wide-table demo case folder into `to`, without any previous run's `output/`.
+#[allow(dead_code)]
+pub fn copy_wide_case(to: &Path) {
+    copy_tree(Path::new(WIDE_DIR), to, true);
+}
+
 /// Copies the demo case folder into `to`, without any previous run's `output/`.
 #[allow(dead_code)]
 pub fn copy_demo_case(to: &Path) {
@@ -72,4 +82,112 @@ fn copy_tree(from: &Path, to: &Path, top: bool) {
             fs::copy(entry.path(), &target).unwrap();
         }
     }
+}
+
+/// A copy of the demo case in `<root>/case/` to break one thing in; outputs go to `<root>/out`.
+#[allow(dead_code)]
+pub struct Sandbox {
+    pub root: tempfile::TempDir,
+}
+
+#[allow(dead_code)]
+impl Sandbox {
+    pub fn new() -> Sandbox {
+        let root = tempfile::tempdir().expect("create a temporary folder");
+        copy_demo_case(&root.path().join("case"));
+        Sandbox { root }
+    }
+
+    /// A path under the case folder.
+    pub fn path(&self, relative: &str) -> std::path::PathBuf {
+        self.root.path().join("case").join(relative)
+    }
+
+    pub fn read(&self, relative: &str) -> String {
+        fs::read_to_string(self.path(relative)).unwrap()
+    }
+
+    pub fn write(&self, relative: &str, contents: impl AsRef<[u8]>) {
+        let path = self.path(relative);
+        fs::create_dir_all(path.parent().unwrap()).unwrap();
+        fs::write(path, contents).unwrap();
+    }
+
+    /// Replaces the single occurrence of `from` in a case-folder file.
+    pub fn edit(&self, relative: &str, from: &str, to: &str) {
+        let text = self.read(relative);
+        assert_eq!(
+            text.matches(from).count(),
+            1,
+            "`{from}` must occur once in {relative}"
+        );
+        self.write(relative, text.replacen(from, to, 1));
+    }
+
+    /// Replaces the single occurrence of `from` in case.toml.
+    pub fn edit_case(&self, from: &str, to: &str) {
+        self.edit("case.toml", from, to);
+    }
+
+    /// Rewrites every line of a file (1-based line numbers).
+    pub fn map_lines(&self, relative: &str, f: impl Fn(usize, &str) -> String) {
+        let text = self.read(relative);
+        let lines: Vec<String> = text.lines().enumerate().map(|(i, l)| f(i + 1, l)).collect();
+        self.write(relative, lines.join("\n") + "\n");
+    }
+
+    /// Replaces line `line` (1-based) of a file.
+    pub fn set_line(&self, relative: &str, line: usize, to: &str) {
+        self.map_lines(relative, |n, l| {
+            if n == line {
+                to.to_string()
+            } else {
+                l.to_string()
+            }
+        });
+    }
+
+    /// Replaces the value (second field) on line `line`, keeping the date.
+    pub fn set_value(&self, relative: &str, line: usize, value: &str) {
+        self.map_lines(relative, |n, l| match (n == line, l.split_once(',')) {
+            (true, Some((date, _))) => format!("{date},{value}"),
+            _ => l.to_string(),
+        });
+    }
+
+    /// Applies `f` to the value (second field) of every data row.
+    pub fn map_values(&self, relative: &str, f: impl Fn(f64) -> f64) {
+        self.map_lines(relative, |n, l| match (n > 1, l.split_once(',')) {
+            (true, Some((date, value))) => format!("{date},{}", f(value.parse().unwrap())),
+            _ => l.to_string(),
+        });
+    }
+}
+
+/// Every file and folder under `dir`, by relative path, with the SHA-256 of each file's bytes
+/// (folders as "folder"): equal before and after a run means nothing was changed or added.
+#[allow(dead_code)]
+pub fn tree_hashes(dir: &Path) -> std::collections::BTreeMap<std::path::PathBuf, String> {
+    fn walk(
+        base: &Path,
+        dir: &Path,
+        out: &mut std::collections::BTreeMap<std::path::PathBuf, String>,
+    ) {
+        for entry in fs::read_dir(dir).unwrap() {
+            let path = entry.unwrap().path();
+            let relative = path.strip_prefix(base).unwrap().to_path_buf();
+            if path.is_dir() {
+                out.insert(relative, "folder".into());
+                walk(base, &path, out);
+            } else {
+                out.insert(
+                    relative,
+                    hurdle::io::series::sha256_hex(&fs::read(&path).unwrap()),
+                );
+            }
+        }
+    }
+    let mut out = std::collections::BTreeMap::new();
+    walk(dir, dir, &mut out);
+    out
 }

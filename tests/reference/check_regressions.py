@@ -5,8 +5,9 @@ Usage: check_regressions.py OUTPUT_DIR
 
 Reads OUTPUT_DIR/returns.csv and OUTPUT_DIR/result.json (written by `hurdle run`), refits every
 peer's market-model regression with numpy's least squares and scipy.stats.linregress, and
-recomputes the Blume adjustment, Hamada unlevering, the median, relevering, the CAPM cost of
-equity and the WACC from their textbook formulas. Every figure must agree with result.json to a
+recomputes Blume's shrinkage (with the case's beta.blume_weight), Hamada unlevering, the beta of
+the operations, the median, relevering, the CAPM cost of equity and the WACC from their textbook
+formulas. Every figure must agree with result.json to a
 relative 1e-9: both sides are double-precision evaluations of the same closed forms on the same
 numbers, so honest differences are rounding (about 1e-13); 1e-9 is the project's stated bar.
 Exits non-zero on any mismatch.
@@ -186,7 +187,8 @@ def check_estimator(name, peer, data, asset, market, result):
     used = peer["beta"]
     adjustment = settings["adjustment"]
     if adjustment == "blume":
-        used = 0.67 * peer["beta"] + 0.33
+        used = blume(peer["beta"], settings["blume_weight"])
+        check(f"{name} shrunk beta (Blume)", peer["shrunk_beta"], used)
     elif adjustment == "vasicek":
         # Vasicek (1973), J. Finance 28(5): w = var_prior / (var_prior + SE^2).
         if settings.get("vasicek_prior_mean") is not None:
@@ -200,8 +202,17 @@ def check_estimator(name, peer, data, asset, market, result):
         used = w * peer["beta"] + (1 - w) * mean
         check(f"{name} Vasicek weight", peer["vasicek"]["weight_on_estimate"], w)
         check(f"{name} Vasicek SE", peer["vasicek"]["std_error"], np.sqrt(1 / (1 / var + 1 / peer["beta_std_error"] ** 2)))
+        check(f"{name} shrunk beta (Vasicek)", peer["shrunk_beta"], used)
+    else:
+        assert peer["shrunk_beta"] is None
     check(f"{name} beta used", peer["beta_used"], used)
     check_unlevered(name, peer, used, result)
+
+
+def blume(raw, weight):
+    """Blume (1971), J. Finance 26(1): w * beta + (1 - w), the weight w read from the case's
+    settings in result.json (beta.blume_weight), so a non-default weight is checked too."""
+    return weight * raw + (1 - weight)
 
 
 def check_unlevered(name, peer, used, result):
@@ -431,11 +442,12 @@ def main(out_dir):
 
         # Blume (1971, 1975) and Hamada (1972), written out here.
         adjustment = result["settings"]["beta"]["adjustment"]
-        used = 0.67 * fit.slope + 0.33 if adjustment == "blume" else fit.slope
+        weight = result["settings"]["beta"]["blume_weight"]
+        used = blume(fit.slope, weight) if adjustment == "blume" else fit.slope
         if adjustment == "blume":
-            check(f"{name} Blume beta", peer["adjusted_beta"], used)
+            check(f"{name} shrunk beta (Blume, weight {weight})", peer["shrunk_beta"], used)
         else:
-            assert peer["adjusted_beta"] is None
+            assert peer["shrunk_beta"] is None
         check(f"{name} beta used", peer["beta_used"], used)
         check_unlevered(name, peer, used, result)
 
@@ -444,28 +456,43 @@ def main(out_dir):
     unlevered = np.array([p["unlevered_beta"] for p in included])
     leverage = result["settings"]["leverage"]
     specs = {p["name"]: p for p in result["settings"]["peer"]}
-    # Cash-corrected unlevered beta: beta_U / (1 - cash / (equity + debt)), gross debt.
-    corrected = np.array([
-        p["unlevered_beta"] / (1 - specs[p["name"]]["cash"] / (specs[p["name"]]["equity_value"] + specs[p["name"]]["debt"]))
+    # The beta of the operations: beta_U / (1 - cash / (equity + debt)), gross debt, cash at beta 0.
+    share = np.array([
+        1 - specs[p["name"]]["cash"] / (specs[p["name"]]["equity_value"] + specs[p["name"]]["debt"])
         for p in result["peers"]
     ])
-    for p, c in zip(result["peers"], corrected):
-        check(f"{p['name']} cash-corrected unlevered", p["cash_corrected_unlevered_beta"], c)
-    if leverage["cash_correction"]:
-        unlevered = np.array([c for p, c in zip(result["peers"], corrected) if p.get("excluded_reason") is None])
+    operations = np.array([p["unlevered_beta"] for p in result["peers"]]) / share
+    for p, w, c in zip(result["peers"], share, operations):
+        check(f"{p['name']} operating share", p["operating_share"], w)
+        check(f"{p['name']} beta of the operations", p["operations_beta"], c)
+    in_use = next(f for f in result["leverage_comparison"] if f["in_use"])
+    for p, c, listed in zip(result["peers"], operations, in_use["peer_operations_betas"]):
+        check(f"{p['name']} beta of the operations (formula comparison)", listed, c)
+    plain = unlevered
+    ops_included = np.array([c for p, c in zip(result["peers"], operations) if p.get("excluded_reason") is None])
+    if leverage["operations_beta"]:
+        unlevered = ops_included
     caps = np.array([specs[p["name"]]["equity_value"] for p in included])
-    statistics = {
-        "median": np.median(unlevered),
-        "mean": np.mean(unlevered),
-        "market-cap-weighted": np.average(unlevered, weights=caps),
-        "trimmed-mean": stats.trim_mean(unlevered, leverage["trim_fraction"]),
-    }
+
+    def locations_of(values):
+        return {
+            "median": np.median(values),
+            "mean": np.mean(values),
+            "market-cap-weighted": np.average(values, weights=caps),
+            "trimmed-mean": stats.trim_mean(values, leverage["trim_fraction"]),
+        }
+
+    statistics = locations_of(unlevered)
     locations = result["beta"]["unlevered_statistics"]
     check("mean (numpy)", locations["mean"], statistics["mean"])
     check("market-cap-weighted mean (numpy average)", locations["market_cap_weighted_mean"], statistics["market-cap-weighted"])
     check("trimmed mean (scipy trim_mean)", locations["trimmed_mean"], statistics["trimmed-mean"])
     aggregate = statistics[result["beta"]["aggregation"]]
     check("aggregate unlevered beta", result["beta"]["unlevered"], aggregate)
+    check("operations beta flag", float(result["beta"]["uses_operations_beta"]), float(leverage["operations_beta"]))
+    how = result["beta"]["aggregation"]
+    check(f"{how} of the unlevered betas", result["beta"]["aggregate_of_unlevered"], locations_of(plain)[how])
+    check(f"{how} of the betas of the operations", result["beta"]["aggregate_of_operations"], locations_of(ops_included)[how])
     d = result["beta"]["unlevered_dispersion"]
     check("lower quartile (numpy)", d["lower_quartile"], np.percentile(unlevered, 25))
     check("upper quartile (numpy)", d["upper_quartile"], np.percentile(unlevered, 75))
@@ -509,8 +536,8 @@ def main(out_dir):
     check("relevered beta", result["beta"]["relevered"], relevered)
     p = result["premiums"]
     ps = result["settings"]["premiums"]
-    # Country risk premium added directly, times the exposure lambda, or times the relevered beta.
-    country = {"added": ps["country"], "lambda": ps["country_lambda"] * ps["country"], "beta": relevered * ps["country"]}[ps["country_method"]]
+    # Country risk premium: a flat addition, times the subject's exposure, or times the relevered beta.
+    country = {"flat": ps["country"], "exposure": ps["country_exposure"] * ps["country"], "beta-scaled": relevered * ps["country"]}[ps["country_method"]]
     check("country premium applied", p["country_applied"], country)
     ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + ps["size"] + country + ps["company_specific"]
     check("cost of equity (CAPM)", result["cost_of_equity"], ke)

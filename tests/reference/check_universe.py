@@ -13,7 +13,7 @@ recomputes, without any of hurdle's code:
     standard errors, R^2, the two-sided p-value) and the 95% interval with scipy.stats.t.ppf;
     Durbin-Watson from numpy; the too_few_observations and low_r_squared flags;
   - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt, and the
-    cash step beta_U / (1 - cash / (equity + debt));
+    beta of the operations beta_U / (1 - cash / (equity + debt));
   - per industry: counts, numpy.median / mean / percentile (linear, numpy's default) / min / max /
     std (ddof = 1), numpy.average weighted by market value, scipy.stats.trim_mean(0.1), median D/E,
     and the aggregate the universe file picks.
@@ -161,7 +161,7 @@ def securities(config, folder):
             if "beta" in row and "debt_to_equity" in row and tax is not None:
                 row["unlevered_beta"] = row["beta"] / (1.0 + (1.0 - tax) * row["debt_to_equity"])
                 if cash is not None:
-                    row["cash_corrected_unlevered_beta"] = row["unlevered_beta"] / (
+                    row["operations_beta"] = row["unlevered_beta"] / (
                         1.0 - cash / (equity + debt))
         if "beta" in row:
             row["too_few"] = row["observations"] < 0.8 * periods
@@ -202,7 +202,7 @@ def industries(config, rows):
         figures = {"securities": len(members), "estimated": len(estimated),
                    "not_estimated_too_few_observations": len(members) - len(estimated)}
         for key, prefix in (("beta", "beta"), ("unlevered_beta", "unlevered_beta"),
-                            ("cash_corrected_unlevered_beta", "cash_corrected_unlevered_beta")):
+                            ("operations_beta", "operations_beta")):
             have = [r for r in estimated if key in r]
             figures.update(summary([r[key] for r in have],
                                    [(r[key], r["equity"]) for r in have if r.get("equity")],
@@ -210,8 +210,7 @@ def industries(config, rows):
         ratios = [r["debt_to_equity"] for r in estimated if "debt_to_equity" in r]
         if ratios:
             figures["median_debt_to_equity"] = np.median(ratios)
-        stem = ("cash_corrected_unlevered_beta" if leverage.get("cash_correction")
-                else "unlevered_beta")
+        stem = "operations_beta" if leverage.get("operations_beta") else "unlevered_beta"
         pick = {"median": "median", "mean": "mean", "trimmed-mean": "trimmed_mean",
                 "market-cap-weighted": "market_cap_weighted"}[leverage.get("aggregation", "median")]
         if f"{pick}_{stem}" in figures:
@@ -249,7 +248,7 @@ def main():
         got = listed[security]
         for key in ("observations", "beta", "beta_std_error", "alpha", "alpha_std_error",
                     "r_squared", "beta_p_value", "beta_ci_low", "beta_ci_high", "durbin_watson",
-                    "debt_to_equity", "unlevered_beta", "cash_corrected_unlevered_beta"):
+                    "debt_to_equity", "unlevered_beta", "operations_beta"):
             check.same(f"{security} {key}", row.get(key), number(got[key]))
         if "beta" in row:
             flagged = "too_few_observations" in got["flags"].split(";")

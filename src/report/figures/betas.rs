@@ -36,7 +36,7 @@ struct Row<'a> {
 /// The peers' betas chart.
 pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let (rows, divider, bottom) = rows(&valuation.peers);
-    let cash = valuation.cost.beta.cash_corrected;
+    let cash = valuation.cost.beta.uses_operations_beta;
     let values = valuation.peers.iter().flat_map(|p| {
         [
             p.estimate.beta_ci_low,
@@ -69,7 +69,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         (
             Mark::Square(ACCENT),
             if cash {
-                "unlevered β, cash-corrected"
+                "β of the operations (cash at β 0)"
             } else {
                 "unlevered β"
             }
@@ -214,10 +214,10 @@ fn marks(
     Ok(())
 }
 
-/// The unlevered beta the case aggregates: cash-corrected or plain.
+/// The beta the case aggregates: of the operations (cash taken out) or unlevered.
 fn unlevered(peer: &PeerResult, cash: bool) -> f64 {
     if cash {
-        peer.cash_corrected_unlevered_beta
+        peer.operations_beta
     } else {
         peer.unlevered_beta
     }
@@ -249,9 +249,9 @@ fn rows(peers: &[PeerResult]) -> (Vec<Row<'_>>, Option<f64>, f64) {
 
 fn used_label(valuation: &Valuation) -> &'static str {
     match valuation.settings.beta.adjustment {
-        Adjustment::Blume => "Blume-adjusted",
-        Adjustment::Vasicek => "Vasicek-shrunk",
-        Adjustment::None => "raw, no adjustment",
+        Adjustment::Blume => "shrunk, Blume",
+        Adjustment::Vasicek => "shrunk, Vasicek",
+        Adjustment::None => "raw, no shrinkage",
     }
 }
 
@@ -267,8 +267,8 @@ fn caption(valuation: &Valuation) -> String {
         super::std_errors_name(valuation.estimator.std_errors),
         used_label(valuation),
         summary.formula_source,
-        if summary.cash_corrected {
-            ", cash-corrected"
+        if summary.uses_operations_beta {
+            "; the beta of the operations, cash at beta zero"
         } else {
             ""
         },
@@ -283,8 +283,8 @@ fn caption(valuation: &Valuation) -> String {
         } else {
             ""
         },
-        if summary.cash_corrected {
-            "cash_corrected_unlevered_beta"
+        if summary.uses_operations_beta {
+            "operations_beta"
         } else {
             "unlevered_beta"
         },

@@ -24,7 +24,7 @@ const CELL_HEIGHT: u32 = 46;
 /// The axis's values as written: rates as percentages, ratios and betas as decimals, with the
 /// fewest decimals that write every value exactly.
 fn value_labels(axis: &Axis) -> Vec<String> {
-    let ratio = ["debt_to_equity", "beta", "lambda"]
+    let ratio = ["debt_to_equity", "beta", "country_exposure"]
         .iter()
         .any(|k| axis.key.contains(k));
     let scale = if ratio { 1.0 } else { 100.0 };
@@ -60,6 +60,7 @@ fn key_title(key: &str) -> String {
         "debt.cost_pre_tax" => "Pre-tax cost of debt",
         "premiums.size" => "Size premium",
         "premiums.country" => "Country risk premium",
+        "premiums.country_exposure" => "Exposure to the country's risk",
         "premiums.company_specific" => "Company-specific premium",
         _ => return key.to_string(),
     };

@@ -1,0 +1,277 @@
+//! Sanity rules on a case: the checks a reviewer applies before trusting a figure.
+//!
+//! A file can parse and every key lie in its range and the result still be nonsense: yields
+//! typed as percentages, a balance sheet that makes D/E infinite, NaN in a key nobody reads, work
+//! that would run for hours. Each rule refuses such input with a message naming the key and the
+//! value. The thresholds are the constants below, stated with their reasons in README's "Error
+//! handling" section; the text checks (TOML values with their lines) are in [`text`]. The rules on
+//! data files are in `io::sanity`, those on estimates and results in `valuation::sanity`.
+
+pub mod text;
+
+use super::{CaseDate, CaseFile, DebtSource, TargetSource};
+use crate::error::compact as show;
+
+pub use text::{check_case_text, check_claimed_text};
+
+/// Most Monte Carlo draws: about five seconds on one core. On the demo case the median's own
+/// sampling error (1.2533·σ/√n, the asymptotic SE of a sample median) is 0.1 bp of WACC at a
+/// tenth of this and 0.03 bp at it; more draws only cost time.
+pub const MAX_DRAWS: u32 = 1_000_000;
+/// Most return periods, lags or window lengths: four centuries of daily data.
+pub const MAX_PERIODS: u32 = 100_000;
+/// Highest D/E of a peer, the target or the subject: debt above 10/11 of capital, where equity
+/// is an option on distressed assets and no leverage formula's assumptions hold.
+pub const MAX_DEBT_TO_EQUITY: f64 = 10.0;
+/// Highest weight of preferred equity or of leases: above half of capital they are the main
+/// financing, not an addition to a structure of equity and debt.
+pub const MAX_COMPONENT_WEIGHT: f64 = 0.5;
+/// A price that moves by more than this factor between two consecutive rows (up, or down to
+/// less than its inverse) is an error unless the case accepts the date: a simple return above
+/// +200% or below −66.7%, the same log move either way.
+pub const JUMP_FACTOR: f64 = 3.0;
+/// A peer whose returns the index explains to more than this R² is the index (or a copy).
+pub const MAX_R_SQUARED: f64 = 0.999;
+/// A risk-free series whose median yield exceeds this multiple of `market.risk_free_rate`
+/// (at least 1%) is taken for percentages.
+pub const YIELD_RATIO: f64 = 10.0;
+/// Years a case date may lie in: the calendar arithmetic is exercised there, and no market
+/// data is older.
+pub const YEARS: (i32, i32) = (1800, 2199);
+/// Largest relative tolerance of `verify`: looser, it stops being a reproduction check.
+pub const MAX_TOLERANCE: f64 = 1e-6;
+
+/// Range checks on a whole case (after overrides) that its keys' own ranges do not cover.
+/// Called first by `case::validate`, so a non-finite value is named before any arithmetic.
+pub fn check_case(case: &CaseFile) -> std::result::Result<(), String> {
+    let table = toml::Value::try_from(case).map_err(|e| e.to_string())?;
+    if let Some((key, value)) = text::first_non_finite(&table, String::new()) {
+        return Err(format!("{key} = {value}: {}", text::NOT_A_NUMBER));
+    }
+    check_paths(case)?;
+    check_dates(case)?;
+    check_counts(case)?;
+    check_structure(case)?;
+    for (key, weight) in [
+        ("preferred.weight", case.preferred.weight),
+        ("leases.weight", case.leases.weight),
+    ] {
+        if weight > MAX_COMPONENT_WEIGHT {
+            let weight = show(weight);
+            return Err(format!(
+                "{key} = {weight} is above {MAX_COMPONENT_WEIGHT}: a component that large is the \
+                 main financing; model it as debt or equity"
+            ));
+        }
+    }
+    Ok(())
+}
+
+fn check_paths(case: &CaseFile) -> std::result::Result<(), String> {
+    // A series read from a wide table (`source`) has no file of its own; `sources::validate`
+    // checks that it names one or the other.
+    let mut paths = Vec::new();
+    if case.market.index.source.is_none() {
+        paths.push(("market.index.prices".to_string(), &case.market.index.prices));
+    }
+    if let Some(series) = case
+        .market
+        .risk_free_series
+        .as_ref()
+        .filter(|s| s.source.is_none())
+    {
+        paths.push(("market.risk_free_series.yields".into(), &series.yields));
+    }
+    for (i, peer) in case
+        .peers
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.source.is_none())
+    {
+        paths.push((
+            format!("peer.{i}.prices (peer \"{}\")", peer.name),
+            &peer.prices,
+        ));
+    }
+    match case.debt.source {
+        DebtSource::Given => {}
+        DebtSource::Rating => paths.extend(
+            case.debt
+                .rating_table
+                .iter()
+                .map(|t| ("debt.rating_table".to_string(), t)),
+        ),
+        DebtSource::Coverage => paths.extend(
+            case.debt
+                .coverage_table
+                .iter()
+                .map(|t| ("debt.coverage_table".to_string(), t)),
+        ),
+    }
+    if let Some(reconcile) = &case.reconcile {
+        paths.push(("reconcile.claimed".into(), &reconcile.claimed));
+    }
+    match paths.iter().find(|(_, path)| path.trim().is_empty()) {
+        Some((key, _)) => Err(format!("{key} = \"\" is empty: give the path of the file")),
+        None => Ok(()),
+    }
+}
+
+fn check_dates(case: &CaseFile) -> std::result::Result<(), String> {
+    use chrono::Datelike;
+    let beta = &case.beta;
+    let dates = [
+        ("case.valuation_date", Some(case.case.valuation_date)),
+        ("beta.window_start", beta.window_start),
+        ("beta.window_end", beta.window_end),
+    ];
+    for (key, date) in dates {
+        if let Some(CaseDate(date)) = date {
+            if !(YEARS.0..=YEARS.1).contains(&date.year()) {
+                return Err(format!(
+                    "{key} = {date} is outside the years {} to {}",
+                    YEARS.0, YEARS.1
+                ));
+            }
+        }
+    }
+    Ok(())
+}
+
+fn check_counts(case: &CaseFile) -> std::result::Result<(), String> {
+    let beta = &case.beta;
+    let counts = [
+        ("beta.min_observations", Some(beta.min_observations)),
+        ("beta.dimson_lags", Some(beta.dimson_lags)),
+        ("beta.dimson_leads", Some(beta.dimson_leads)),
+        ("beta.newey_west_lags", beta.newey_west_lags),
+        ("beta.rolling_window", beta.rolling_window),
+        ("beta.rolling_step", Some(beta.rolling_step)),
+        (
+            "beta.rolling_min_observations",
+            beta.rolling_min_observations,
+        ),
+    ];
+    for (key, count) in counts {
+        if let Some(n) = count.filter(|&n| n > MAX_PERIODS) {
+            return Err(format!(
+                "{key} = {n} is more than any price history holds; at most {MAX_PERIODS}"
+            ));
+        }
+    }
+    if let Some(start) = beta.window_start {
+        let periods = beta.lookback_periods(case.case.valuation_date.0);
+        if periods > MAX_PERIODS {
+            return Err(format!(
+                "beta.window_start = {start} gives {periods} return periods; at most {MAX_PERIODS}"
+            ));
+        }
+    }
+    let draws = case.uncertainty.draws;
+    if draws > MAX_DRAWS {
+        return Err(format!(
+            "uncertainty.draws = {draws} is above {MAX_DRAWS}: that many draws would run for \
+             minutes to hours without changing the percentiles it reports"
+        ));
+    }
+    Ok(())
+}
+
+/// D/E of the target, the subject and every peer at most [`MAX_DEBT_TO_EQUITY`]; a peer's cash
+/// below its equity plus debt.
+fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
+    let too_high = |what: String, de: f64| {
+        let de = significant(de);
+        format!(
+            "{what} gives D/E = {de}, above {MAX_DEBT_TO_EQUITY} (debt over 10/11 of capital): \
+             no leverage formula holds there; check the figures and their units"
+        )
+    };
+    let target = &case.target;
+    if let Some(de) = target.debt_to_equity.filter(|&de| de > MAX_DEBT_TO_EQUITY) {
+        return Err(too_high(
+            format!("target.debt_to_equity = {}", show(de)),
+            de,
+        ));
+    }
+    if let Some(dc) = target
+        .debt_to_capital
+        .filter(|&dc| (0.0..1.0).contains(&dc))
+    {
+        let de = dc / (1.0 - dc);
+        if de > MAX_DEBT_TO_EQUITY {
+            return Err(too_high(
+                format!("target.debt_to_capital = {}", show(dc)),
+                de,
+            ));
+        }
+    }
+    let measure = case.leverage.debt_measure;
+    if let (TargetSource::Subject, Some(equity), Some(debt)) = (
+        target.source,
+        target.subject_equity_value.filter(|&e| e > 0.0),
+        target.subject_debt,
+    ) {
+        let de = measure.debt(debt, target.subject_cash.unwrap_or(0.0)) / equity;
+        if de > MAX_DEBT_TO_EQUITY {
+            return Err(too_high(
+                format!(
+                    "target.subject_debt = {} over target.subject_equity_value = {}",
+                    show(debt),
+                    show(equity)
+                ),
+                de,
+            ));
+        }
+    }
+    for (i, peer) in case.peers.iter().enumerate() {
+        if peer.equity_value <= 0.0 || peer.debt < 0.0 || peer.cash < 0.0 {
+            continue; // `validate` names these with its own message.
+        }
+        let de = measure.debt(peer.debt, peer.cash) / peer.equity_value;
+        if de > MAX_DEBT_TO_EQUITY {
+            return Err(too_high(
+                format!(
+                    "peer.{i} (peer \"{}\"): debt = {} over equity_value = {}",
+                    peer.name,
+                    show(peer.debt),
+                    show(peer.equity_value)
+                ),
+                de,
+            ));
+        }
+        if peer.cash >= peer.equity_value + peer.debt {
+            return Err(format!(
+                "peer.{i}.cash = {} (peer \"{}\") is not below equity_value + debt = {}: the firm \
+                 is valued at less than its cash, so its beta says nothing about operating assets",
+                show(peer.cash),
+                peer.name,
+                show(peer.equity_value + peer.debt)
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// When `beta.window_start` is given it sets the window and `beta.lookback` is not used; the
+/// run says so (a case file that writes both is refused by [`check_case_text`]).
+pub fn window_note(beta: &crate::case::BetaSettings) -> Option<String> {
+    beta.window_start.map(|start| {
+        format!(
+            "beta.window_start = {start} sets the start of the window; beta.lookback ({}) is not \
+             used.",
+            beta.lookback
+        )
+    })
+}
+
+/// A derived ratio to four significant digits (exponent form when very large or small): the
+/// message needs its size, not its last bits.
+pub(crate) fn significant(value: f64) -> String {
+    let magnitude = value.abs();
+    if magnitude == 0.0 || !magnitude.is_finite() || (1e-3..1e6).contains(&magnitude) {
+        format!("{}", (value * 1e4).round() / 1e4)
+    } else {
+        format!("{value:.3e}")
+    }
+}

@@ -1,0 +1,275 @@
+//! Text-level sanity checks: the shape of a CSV file, and the values of a TOML file with their
+//! lines.
+//!
+//! They run on the bytes before (or beside) the typed parsers, because only the text still knows
+//! where a value was written: a ragged row, a semicolon separator or a byte that is not UTF-8 is
+//! reported with its line instead of the CSV reader's internal advice, and NaN in a case or a
+//! claimed build-up is named with its key and line, even in a key the case does not use.
+
+use std::borrow::Cow;
+
+use toml::de::{DeTable, DeValue};
+use toml::Spanned;
+
+/// Why a NaN or an infinity is refused wherever it is written.
+pub(crate) const NOT_A_NUMBER: &str =
+    "NaN and infinity are refused in every key, used or not: no figure can be built on them";
+
+/// A non-finite number found in a tree: its key path and value.
+type Found<T> = Option<(String, T)>;
+
+fn join(path: &str, key: &str) -> String {
+    if path.is_empty() {
+        key.to_string()
+    } else {
+        format!("{path}.{key}")
+    }
+}
+
+/// The 1-based line of byte `offset` in `text`.
+fn line_of(text: &str, offset: usize) -> usize {
+    text.as_bytes()[..offset.min(text.len())]
+        .iter()
+        .filter(|&&b| b == b'\n')
+        .count()
+        + 1
+}
+
+/// The first float in a TOML value tree that is NaN or infinite, with its dotted key path
+/// (array-of-table entries by index, `peer.0.debt`, as `--set` writes them).
+pub(crate) fn first_non_finite(value: &toml::Value, path: String) -> Found<f64> {
+    match value {
+        toml::Value::Float(x) if !x.is_finite() => Some((path, *x)),
+        toml::Value::Array(items) => items.iter().enumerate().find_map(|(i, item)| {
+            let child = match item {
+                toml::Value::Table(_) => format!("{path}.{i}"),
+                _ => format!("{path}[{i}]"),
+            };
+            first_non_finite(item, child)
+        }),
+        toml::Value::Table(table) => table
+            .iter()
+            .find_map(|(key, item)| first_non_finite(item, join(&path, key))),
+        _ => None,
+    }
+}
+
+/// The same over a serialised result (a minijinja value tree, which keeps NaN and infinity
+/// where JSON would write `null`).
+pub(crate) fn first_non_finite_in(value: &minijinja::Value, path: String) -> Found<f64> {
+    use minijinja::value::ValueKind;
+    match value.kind() {
+        ValueKind::Number => {
+            let x = f64::try_from(value.clone()).ok()?;
+            (!x.is_finite()).then_some((path, x))
+        }
+        ValueKind::Seq => value
+            .try_iter()
+            .ok()?
+            .enumerate()
+            .find_map(|(i, item)| first_non_finite_in(&item, format!("{path}[{i}]"))),
+        ValueKind::Map => value.try_iter().ok()?.find_map(|key| {
+            let item = value.get_item(&key).ok()?;
+            first_non_finite_in(&item, join(&path, &key.to_string()))
+        }),
+        _ => None,
+    }
+}
+
+/// A value of a parsed TOML document with its key path and line.
+struct Located<'a, 'i> {
+    path: String,
+    value: &'a Spanned<DeValue<'i>>,
+}
+
+/// Every scalar of a TOML document, with its key path, in document order of the tables.
+fn scalars<'a, 'i>(table: &'a DeTable<'i>, path: &str, out: &mut Vec<Located<'a, 'i>>) {
+    for (key, value) in table.iter() {
+        let child = join(path, key.get_ref());
+        collect(value, child, out);
+    }
+}
+
+fn collect<'a, 'i>(value: &'a Spanned<DeValue<'i>>, path: String, out: &mut Vec<Located<'a, 'i>>) {
+    match value.get_ref() {
+        DeValue::Table(table) => scalars(table, &path, out),
+        DeValue::Array(items) => {
+            for (i, item) in items.iter().enumerate() {
+                let child = match item.get_ref() {
+                    DeValue::Table(_) => format!("{path}.{i}"),
+                    _ => format!("{path}[{i}]"),
+                };
+                collect(item, child, out);
+            }
+        }
+        _ => out.push(Located { path, value }),
+    }
+}
+
+/// The number a scalar holds (integers as floats), with its text as written.
+fn number<'v>(value: &'v DeValue<'_>) -> Option<(f64, Cow<'v, str>)> {
+    match value {
+        DeValue::Float(f) => {
+            let raw = f.as_str();
+            Some((raw.replace('_', "").parse().unwrap_or(f64::NAN), raw.into()))
+        }
+        DeValue::Integer(i) => {
+            let raw = i.as_str();
+            let parsed = i64::from_str_radix(&raw.replace('_', ""), i.radix()).ok()?;
+            Some((parsed as f64, raw.into()))
+        }
+        _ => None,
+    }
+}
+
+/// The first NaN or infinity in a TOML document: "line L: key = value".
+fn non_finite_in_document(text: &str, scalars: &[Located<'_, '_>]) -> Option<String> {
+    scalars.iter().find_map(|s| {
+        let (x, raw) = number(s.value.get_ref())?;
+        (!x.is_finite()).then(|| {
+            format!(
+                "line {}: {} = {raw}: {NOT_A_NUMBER}",
+                line_of(text, s.value.span().start),
+                s.path
+            )
+        })
+    })
+}
+
+/// Checks on a case file's text before it is parsed into settings: `[peer]` written for
+/// `[[peer]]`, NaN or infinity anywhere (with the line), and `beta.window_start` written
+/// together with `beta.lookback` (refused: both would set the window's start). Syntax errors are
+/// left to the TOML parser, whose messages already carry the line.
+pub fn check_case_text(text: &str) -> std::result::Result<(), String> {
+    for (i, line) in text.lines().enumerate() {
+        let header = line.trim();
+        let single = header.starts_with('[') && !header.starts_with("[[");
+        let name = header
+            .trim_start_matches('[')
+            .split(']')
+            .next()
+            .unwrap_or("");
+        if single && name.trim() == "peer" {
+            return Err(format!(
+                "line {}: `{header}` opens a single table; each peer is an entry of a list, \
+                 written [[peer]] (two brackets)",
+                i + 1
+            ));
+        }
+    }
+    let Ok(document) = DeTable::parse(text) else {
+        return Ok(());
+    };
+    let mut found = Vec::new();
+    scalars(document.get_ref(), "", &mut found);
+    if let Some(message) = non_finite_in_document(text, &found) {
+        return Err(message);
+    }
+    let line = |key: &str| {
+        found
+            .iter()
+            .find(|s| s.path == key)
+            .map(|s| line_of(text, s.value.span().start))
+    };
+    let date_keys = ["beta.window_start", "beta.lookback"];
+    if let [Some(start), Some(lookback)] = date_keys.map(line) {
+        return Err(format!(
+            "line {start}: beta.window_start and line {lookback}: beta.lookback both set where the \
+             window starts; keep one (the window is beta.window_start to beta.window_end, or \
+             beta.lookback periods back from it)"
+        ));
+    }
+    Ok(())
+}
+
+/// Checks on a claimed build-up's text: NaN or infinity anywhere, and each figure inside the
+/// bounds a case would accept for it (rates in [−0.5, 1), a cost of debt in [0, 1), a beta in
+/// [−5, 10], D/E at most 10), each named with its line.
+pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
+    let Ok(document) = DeTable::parse(text) else {
+        return Ok(());
+    };
+    let mut found = Vec::new();
+    scalars(document.get_ref(), "", &mut found);
+    if let Some(message) = non_finite_in_document(text, &found) {
+        return Err(message);
+    }
+    let most_de = super::MAX_DEBT_TO_EQUITY;
+    let bounds: [(&str, f64, f64, bool); 8] = [
+        ("claimed.risk_free_rate", -0.5, 1.0, false),
+        ("claimed.equity_risk_premium", -0.5, 1.0, false),
+        ("claimed.premiums", -0.5, 1.0, false),
+        ("claimed.wacc", -0.5, 1.0, false),
+        ("claimed.cost_of_debt_pre_tax", 0.0, 1.0, false),
+        ("claimed.beta", -5.0, 10.0, true),
+        ("claimed.debt_to_equity", 0.0, most_de, true),
+        (
+            "claimed.debt_to_capital",
+            0.0,
+            most_de / (1.0 + most_de),
+            true,
+        ),
+    ];
+    for s in &found {
+        let Some(&(key, low, high, closed)) = bounds.iter().find(|b| b.0 == s.path) else {
+            continue;
+        };
+        let Some((x, raw)) = number(s.value.get_ref()) else {
+            continue; // A wrong type is reported by the typed parser.
+        };
+        let inside = x >= low && if closed { x <= high } else { x < high };
+        if !inside {
+            return Err(format!(
+                "line {}: {key} = {raw} is outside [{low}, {high}{}: rates are decimals \
+                 (0.06 for 6%), and a figure outside these bounds is no build-up a case could give",
+                line_of(text, s.value.span().start),
+                if closed { "]" } else { ")" }
+            ));
+        }
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn case_text_names_non_finite_values_and_their_lines() {
+        let message = check_case_text("[a]\nx = 1.0\n\n[[peer]]\ndebt = nan\n").unwrap_err();
+        assert!(
+            message.contains("line 5") && message.contains("peer.0.debt"),
+            "{message}"
+        );
+        let message = check_case_text("[b]\ny = [0.1, -inf]\n").unwrap_err();
+        assert!(
+            message.contains("b.y[1]") && message.contains("-inf"),
+            "{message}"
+        );
+        assert!(check_case_text("[b]\ny = 1e400\n")
+            .unwrap_err()
+            .contains("1e400"));
+        assert!(check_case_text("[peer]\nname = \"x\"\n")
+            .unwrap_err()
+            .contains("line 1"));
+        let both = "[beta]\nlookback = 60\nwindow_start = 2020-01-01\n";
+        let message = check_case_text(both).unwrap_err();
+        assert!(
+            message.contains("line 3") && message.contains("line 2"),
+            "{message}"
+        );
+        assert!(check_case_text("[beta]\nlookback = 60\n").is_ok());
+    }
+
+    #[test]
+    fn claimed_text_bounds() {
+        let ok = "[claimed]\nbeta = 1.1\nrisk_free_rate = 0.04\ndebt_to_equity = 0.5\n";
+        assert!(check_claimed_text(ok).is_ok());
+        let message = check_claimed_text("[claimed]\nwacc = 0.09\nbeta = 1e308\n").unwrap_err();
+        assert!(
+            message.contains("line 3") && message.contains("1e308"),
+            "{message}"
+        );
+        assert!(check_claimed_text("[claimed]\nrisk_free_rate = 4\n").is_err());
+    }
+}

@@ -1,0 +1,468 @@
+//! A starting case file from a wide price table, for `hurdle init`.
+//!
+//! A newcomer with one price table should not have to write a `[[peer]]` table per column by
+//! hand. [`starting_case`] writes a complete case: the table as a `[sources]` entry, the index
+//! (and the risk-free yields, when named) and one peer per other column, every setting at its
+//! default with a comment, and every figure hurdle cannot know as a placeholder
+//! ([`crate::case::placeholders`]), so the case cannot run until a person has entered each one.
+
+use std::fmt::Write as _;
+use std::path::{Component, Path, PathBuf};
+
+use serde::Serialize;
+
+use crate::case::placeholders::placeholder;
+use crate::case::{BetaSettings, LeverageSettings, Premiums, UncertaintySettings};
+use crate::error::{Error, Result};
+use crate::io::tables::{PriceTable, TableFormat};
+
+/// What `hurdle init` was asked for.
+#[derive(Debug, Clone)]
+pub struct StartOptions<'a> {
+    /// The table's path as the case file will write it (relative to the case file's folder).
+    pub table_path: &'a str,
+    /// The column holding the market index.
+    pub index: &'a str,
+    /// The column holding annualised risk-free yields, if the table has one.
+    pub risk_free: Option<&'a str>,
+}
+
+/// A TOML string literal.
+fn quoted(text: &str) -> String {
+    toml::Value::String(text.to_string()).to_string()
+}
+
+/// The case file's text for `table`: one peer per column other than the index and the
+/// risk-free column.
+pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<String> {
+    let fail = |message: String| Error::DataFile {
+        file: table.resolved.clone(),
+        message,
+    };
+    let listed = || {
+        table
+            .columns
+            .iter()
+            .map(|c| format!("`{c}`"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    for (option, column) in [
+        ("--index", Some(options.index)),
+        ("--risk-free", options.risk_free),
+    ] {
+        if let Some(column) = column {
+            if !table.columns.iter().any(|c| c == column) {
+                return Err(fail(format!(
+                    "{option} `{column}` is not a column of the table; its price columns are: {}",
+                    listed()
+                )));
+            }
+        }
+    }
+    if options.risk_free == Some(options.index) {
+        return Err(fail(format!(
+            "--index and --risk-free name the same column `{}`",
+            options.index
+        )));
+    }
+    let peers: Vec<&String> = table
+        .columns
+        .iter()
+        .filter(|c| c.as_str() != options.index && Some(c.as_str()) != options.risk_free)
+        .collect();
+    if peers.is_empty() {
+        return Err(fail(format!(
+            "the table has {} price column(s) ({}) besides the date column `{}`; init needs the \
+             index column and at least one peer column",
+            table.columns.len(),
+            listed(),
+            table.date_column
+        )));
+    }
+    let mut text = header(table, options);
+    text.push_str(&market(options));
+    text.push_str(&defaults_sections());
+    text.push_str(&capital_sections());
+    for peer in peers {
+        text.push_str(&peer_table(peer));
+    }
+    Ok(text)
+}
+
+fn header(table: &PriceTable, options: &StartOptions) -> String {
+    let title = Path::new(options.table_path)
+        .file_name()
+        .map_or(String::new(), |n| n.to_string_lossy().into_owned());
+    let mut text = format!(
+        "# Case file started by `hurdle init` from {table_path}.\n\
+         # Every \"{mark}: …>\" value is a figure hurdle cannot know. Replace each with the figure\n\
+         # from its source; `hurdle run` refuses a case that still holds one and lists them all.\n\
+         # The other settings are written at their defaults, each with a comment; README's \"Case\n\
+         # file reference\" documents every key. Rates are annual decimals (0.055 is 5.5%).\n\n\
+         [case]\n\
+         title = {title}  # the memo's title\n\
+         subject = {subject}\n\
+         valuation_date = {date}\n\
+         currency = {currency}  # a label; no conversion is made\n\n\
+         # The price table: a date column and one column per security.\n\
+         [sources.prices]\n\
+         file = {file}\n",
+        table_path = options.table_path,
+        mark = crate::case::placeholders::MARK,
+        title = quoted(&format!("Cost of capital (started from {title})")),
+        subject = placeholder("the firm whose cost of capital is estimated"),
+        date = placeholder("valuation date, YYYY-MM-DD; the return window ends at the last period end on or before it"),
+        currency = placeholder("currency of the rates, e.g. EUR"),
+        file = quoted(options.table_path),
+    );
+    if table.format == TableFormat::Workbook {
+        if let Some(sheet) = &table.sheet {
+            writeln!(
+                text,
+                "sheet = {}  # the workbook's sheet holding the table",
+                quoted(sheet)
+            )
+            .expect("String write");
+        }
+    }
+    writeln!(
+        text,
+        "date_column = {}  # the header of the date column",
+        quoted(&table.date_column)
+    )
+    .expect("String write");
+    text
+}
+
+fn market(options: &StartOptions) -> String {
+    let mut text = format!(
+        "\n[market]\n\
+         risk_free_rate = {rf}\n\
+         equity_risk_premium = {erp}\n\n\
+         # The market index the betas are measured against.\n\
+         [market.index]\n\
+         name = {name}\n\
+         source = \"prices\"\n\
+         column = {name}\n",
+        rf = placeholder("risk-free rate used in the CAPM, decimal"),
+        erp = placeholder("equity risk premium over that rate, decimal"),
+        name = quoted(options.index),
+    );
+    match options.risk_free {
+        Some(column) => write!(
+            text,
+            "\n# Annualised risk-free yields (decimals): regressions use excess returns.\n\
+             [market.risk_free_series]\nsource = \"prices\"\ncolumn = {}\n",
+            quoted(column)
+        )
+        .expect("String write"),
+        None => text.push_str(
+            "\n# Optional: annualised risk-free yields, for excess returns. Add a yield column to\n\
+             # the table (or a file) and uncomment:\n\
+             # [market.risk_free_series]\n# source = \"prices\"\n# column = \"yield\"\n",
+        ),
+    }
+    text
+}
+
+/// `key = value  # comment` lines for the keys of a serialised default settings table, in the
+/// order given; optional keys absent from the defaults are written commented out.
+fn section<T: Serialize>(name: &str, defaults: &T, keys: &[(&str, &str, &str)]) -> String {
+    let table = toml::Value::try_from(defaults).expect("settings serialise to TOML");
+    let mut text = format!("\n[{name}]\n");
+    for (key, comment, example) in keys {
+        match table.get(key) {
+            Some(value) => writeln!(text, "{key} = {value}  # {comment}"),
+            None => writeln!(text, "# {key} = {example}  # {comment}"),
+        }
+        .expect("String write");
+    }
+    text
+}
+
+fn defaults_sections() -> String {
+    let mut text = section("beta", &BetaSettings::default(), BETA_KEYS);
+    text.push_str(&section(
+        "leverage",
+        &LeverageSettings::default(),
+        LEVERAGE_KEYS,
+    ));
+    text
+}
+
+/// The keys of `[beta]` with their comments (and an example for the optional ones).
+const BETA_KEYS: &[(&str, &str, &str)] = &[
+    (
+        "frequency",
+        "daily, weekly, monthly or quarterly returns",
+        "",
+    ),
+    (
+        "lookback",
+        "return periods in the window, or a span such as \"5y\"",
+        "",
+    ),
+    (
+        "min_observations",
+        "fewer usable returns for a peer is an error",
+        "",
+    ),
+    ("method", "ols, dimson or scholes-williams", ""),
+    ("adjustment", "none, blume or vasicek", ""),
+    (
+        "blume_weight",
+        "blume: shrunk β = w·raw + (1 − w); 0.67 rounds Blume's (1971) slope",
+        "",
+    ),
+    ("std_errors", "classical, hc1 or newey-west", ""),
+    ("newey_west_lags", "absent: floor(4·(N/100)^(2/9))", "4"),
+    ("dimson_lags", "index lags in the Dimson regression", ""),
+    ("dimson_leads", "index leads in the Dimson regression", ""),
+    (
+        "vasicek_prior_mean",
+        "absent: the peers' cross-section",
+        "1.0",
+    ),
+    (
+        "vasicek_prior_variance",
+        "absent: the peers' cross-section",
+        "0.09",
+    ),
+    ("weekday", "the sample weekday of weekly returns", ""),
+    ("returns", "simple or log returns", ""),
+    ("max_stale_days", "absent: no staleness limit", "10"),
+    ("window_start", "absent: the lookback decides", "2021-10-01"),
+    ("window_end", "absent: the valuation date", "2026-09-30"),
+    (
+        "flag_observations_share",
+        "flag a peer below this share of the window's periods",
+        "",
+    ),
+    ("flag_r_squared_floor", "flag a peer below this R²", ""),
+    (
+        "flag_stale_share",
+        "flag a peer with more stale periods than this share",
+        "",
+    ),
+    (
+        "exclude_flags",
+        "flags that leave a peer out of the aggregate",
+        "",
+    ),
+    ("rolling_window", "absent: half the window", "30"),
+    ("rolling_step", "periods between rolling window ends", ""),
+    (
+        "rolling_min_observations",
+        "absent: 80% of the rolling window",
+        "24",
+    ),
+];
+
+const LEVERAGE_KEYS: &[(&str, &str, &str)] = &[
+    (
+        "formula",
+        "hamada, harris-pringle, miles-ezzell or conine",
+        "",
+    ),
+    (
+        "aggregation",
+        "median, mean, market-cap-weighted or trimmed-mean",
+        "",
+    ),
+    (
+        "debt_beta_source",
+        "none (riskless debt), given or credit-spread",
+        "",
+    ),
+    ("debt_beta", "with debt_beta_source = \"given\"", ""),
+    (
+        "trim_fraction",
+        "share cut from each end by trimmed-mean",
+        "",
+    ),
+    (
+        "operations_beta",
+        "aggregate the betas of the operations, βU / (1 − cash / (equity + debt))",
+        "",
+    ),
+    ("debt_measure", "gross, or net of cash, in every D/E", ""),
+];
+
+fn capital_sections() -> String {
+    let mut text = format!(
+        "\n[target]\n\
+         debt_to_equity = {de}\n\
+         # debt_to_capital = 0.3  # instead of debt_to_equity: D/(D + E)\n\
+         tax_rate = {tax}\n\
+         tax_rate_basis = \"marginal\"  # marginal or effective\n\
+         source = \"explicit\"  # explicit, peer-median or subject\n\n\
+         [debt]\n\
+         source = \"given\"  # given, rating (with rating, rating_table) or coverage\n\
+         cost_pre_tax = {kd}\n",
+        de = placeholder("target debt-to-equity at market values"),
+        tax = placeholder("the subject's marginal tax rate, decimal"),
+        kd = placeholder("pre-tax cost of debt, decimal, e.g. a yield to maturity"),
+    );
+    let premiums = Premiums::default();
+    write!(
+        text,
+        "\n[premiums]\n\
+         size = {size}\n\
+         country = {country}\n\
+         company_specific = {specific}\n\
+         country_method = {method}  # flat, exposure or beta-scaled\n\
+         country_exposure = {lambda}  # the exposure λ, for country_method = \"exposure\"\n\
+         size_justification = \"\"  # printed in the memo beside each premium\n\
+         country_justification = \"\"\n\
+         company_specific_justification = \"\"\n\n\
+         [preferred]\n\
+         weight = 0.0  # preferred equity's share of total capital\n\
+         # cost = 0.07  # its cost, required when weight > 0\n\n\
+         [leases]\n\
+         weight = 0.0  # lease liabilities' share of total capital\n\
+         # cost_pre_tax = 0.05  # absent: the pre-tax cost of debt\n\n\
+         [sensitivity]\n\
+         metric = \"wacc\"  # wacc or cost_of_equity\n\
+         # rows = \"market.equity_risk_premium=0.045..0.065:0.005\"  # absent: ERP ± 1 point\n\
+         # columns = \"target.debt_to_equity=0..0.8:0.2\"  # absent: target D/E 0 to twice it\n",
+        size = placeholder("size premium, decimal; 0 when none"),
+        country = placeholder("country risk premium, decimal; 0 when none"),
+        specific = placeholder("company-specific premium, decimal; 0 when none"),
+        method = toml::Value::try_from(premiums.country_method).expect("serialises"),
+        lambda = toml::Value::Float(premiums.country_exposure),
+    )
+    .expect("String write");
+    let uncertainty = UncertaintySettings::default();
+    write!(
+        text,
+        "\n[uncertainty]\n\
+         draws = {}  # Monte Carlo draws of the WACC\n\
+         seed = {}  # the same seed gives the same percentiles\n\
+         # equity_risk_premium = [0.045, 0.065]  # also draw the ERP from this range\n",
+        uncertainty.draws, uncertainty.seed
+    )
+    .expect("String write");
+    text
+}
+
+fn peer_table(column: &str) -> String {
+    format!(
+        "\n[[peer]]\n\
+         name = {name}\n\
+         source = \"prices\"\n\
+         column = {name}\n\
+         equity_value = {equity}\n\
+         debt = {debt}\n\
+         cash = {cash}\n\
+         tax_rate = {tax}\n",
+        name = quoted(column),
+        equity = placeholder("market value of equity, in one unit for every peer"),
+        debt = placeholder("total (gross) debt, same unit"),
+        cash = placeholder("cash, same unit"),
+        tax = placeholder("marginal tax rate, decimal"),
+    )
+}
+
+/// `to` (a file) relative to the folder `from`, as a case file writes it; both are made
+/// absolute first. Falls back to the absolute path when they share no root.
+pub fn relative_path(from: &Path, to: &Path) -> PathBuf {
+    let (Ok(from), Ok(to)) = (std::path::absolute(from), std::path::absolute(to)) else {
+        return to.to_path_buf();
+    };
+    fn normal(p: &Path) -> Vec<Component<'_>> {
+        let mut out: Vec<Component<'_>> = Vec::new();
+        for c in p.components() {
+            match c {
+                Component::CurDir => {}
+                Component::ParentDir if matches!(out.last(), Some(Component::Normal(_))) => {
+                    out.pop();
+                }
+                other => out.push(other),
+            }
+        }
+        out
+    }
+    let (from, to) = (normal(&from), normal(&to));
+    if from.first() != to.first() {
+        return to.iter().collect();
+    }
+    let common = from.iter().zip(&to).take_while(|(a, b)| a == b).count();
+    let mut path = PathBuf::new();
+    for _ in common..from.len() {
+        path.push("..");
+    }
+    for c in &to[common..] {
+        path.push(c);
+    }
+    path
+}
+
+/// Writes `text` to `path`, never over an existing file (the check and the write are one step).
+pub fn write_new(path: &Path, text: &str) -> Result<()> {
+    use std::io::Write;
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let io_error = |action: &'static str| {
+        move |source| Error::Io {
+            path: path.to_path_buf(),
+            action,
+            source,
+        }
+    };
+    if path.exists() {
+        return Err(Error::Io {
+            path: path.to_path_buf(),
+            action: "exists already; init never overwrites a file (give another --out)",
+            source: std::io::Error::from(std::io::ErrorKind::AlreadyExists),
+        });
+    }
+    std::fs::create_dir_all(dir).map_err(io_error("cannot create the folder of"))?;
+    let mut temporary = tempfile::NamedTempFile::new_in(dir)
+        .map_err(io_error("cannot create a temporary file beside"))?;
+    temporary
+        .write_all(text.as_bytes())
+        .map_err(io_error("cannot write"))?;
+    temporary.persist_noclobber(path).map_err(|e| {
+        io_error("cannot create (it may exist already; init never overwrites)")(e.error)
+    })?;
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Every key a default settings table serialises has a line (and so a comment) in the
+    // starting case, so a new setting cannot be forgotten there.
+    #[test]
+    fn every_default_setting_is_written_with_a_comment() {
+        for (defaults, keys) in [
+            (
+                toml::Value::try_from(BetaSettings::default()).unwrap(),
+                BETA_KEYS,
+            ),
+            (
+                toml::Value::try_from(LeverageSettings::default()).unwrap(),
+                LEVERAGE_KEYS,
+            ),
+        ] {
+            for key in defaults.as_table().unwrap().keys() {
+                assert!(
+                    keys.iter().any(|(k, _, _)| k == key),
+                    "no comment for {key}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn relative_paths_walk_up_and_down() {
+        let p = |from: &str, to: &str| relative_path(Path::new(from), Path::new(to));
+        assert_eq!(p("/a/b", "/a/b/t.csv"), PathBuf::from("t.csv"));
+        assert_eq!(p("/a/b", "/a/c/t.csv"), PathBuf::from("../c/t.csv"));
+        assert_eq!(p("/a/b/c", "/a/t.csv"), PathBuf::from("../../t.csv"));
+    }
+}

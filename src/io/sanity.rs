@@ -1,0 +1,150 @@
+//! Sanity rules on a data file as read: the shape of a CSV before the reader sees it (so a
+//! ragged row, semicolons or decimal commas get a line number, not the reader's own advice), and
+//! values no market series holds (prices that are not positive, yields typed as percentages).
+//! The thresholds and their reasons are in README's "Error handling" section.
+
+use std::path::Path;
+
+use super::series::{Series, ValueKind};
+use crate::error::{compact as show, Error, Result};
+
+/// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
+/// separator, and no row with more fields than the header (a decimal comma, an unquoted comma in
+/// text). Quoted fields may hold commas and line breaks. Fewer fields than the header are left to
+/// the cell parser, which names the empty cell.
+pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
+    let row_error = |line: usize, message: String| Error::DataRow {
+        file: file.to_path_buf(),
+        line,
+        message,
+    };
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    if bytes.iter().all(u8::is_ascii_whitespace) {
+        return Err(Error::DataFile {
+            file: file.to_path_buf(),
+            message: "the file is empty: a header row (date,price) and one row per date are \
+                      expected"
+                .into(),
+        });
+    }
+    let mut header_fields = None;
+    let (mut fields, mut in_quotes, mut record_line) = (1, false, 1);
+    for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
+        let line = i + 1;
+        let raw = raw.strip_suffix(b"\r").unwrap_or(raw);
+        let text = std::str::from_utf8(raw).map_err(|e| {
+            let column = e.valid_up_to() + 1;
+            let byte = raw[e.valid_up_to()];
+            row_error(
+                line,
+                format!(
+                    "byte {column} (0x{byte:02X}) is not UTF-8 text; save the file as UTF-8 \
+                     (plain text)"
+                ),
+            )
+        })?;
+        if !in_quotes {
+            (fields, record_line) = (1, line);
+        }
+        for c in text.chars() {
+            match c {
+                '"' => in_quotes = !in_quotes,
+                ',' if !in_quotes => fields += 1,
+                _ => {}
+            }
+        }
+        if in_quotes {
+            continue; // The record goes on over the next line.
+        }
+        match header_fields {
+            None => {
+                check_header(text).map_err(|message| row_error(line, message))?;
+                header_fields = Some(fields);
+            }
+            Some(expected) if fields > expected => {
+                let shown: String = text.chars().take(80).collect();
+                return Err(row_error(
+                    record_line,
+                    format!(
+                        "`{shown}` has {fields} fields but the header (line 1) has {expected}; \
+                         numbers take a decimal point and no thousands separator (43.7678, not \
+                         43,7678), and text holding a comma must be quoted"
+                    ),
+                ));
+            }
+            Some(_) => {}
+        }
+    }
+    Ok(())
+}
+
+/// The header must be separated by commas: a single field holding `;` or a tab is another
+/// separator, which would otherwise surface as "no column named `date`".
+fn check_header(header: &str) -> std::result::Result<(), String> {
+    if header.contains(',') {
+        return Ok(());
+    }
+    for (separator, name) in [(';', "semicolons"), ('\t', "tabs")] {
+        if header.contains(separator) {
+            return Err(format!(
+                "the header `{header}` is separated by {name}; hurdle reads comma-separated files \
+                 with a decimal point (date,price then 2026-09-30,43.7678)"
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Yields written as percentages: any yield of 1 (100% a year) or more. Called by
+/// `data::parse_series` on every series it reads; `value_column` names the column.
+pub fn check_series_values(
+    file: &Path,
+    value_column: &str,
+    series: &Series,
+    kind: ValueKind,
+) -> Result<()> {
+    if kind != ValueKind::Yield {
+        return Ok(());
+    }
+    match series.values.iter().position(|&y| y >= 1.0) {
+        Some(i) => Err(Error::DataRow {
+            file: file.to_path_buf(),
+            line: i + 2,
+            message: format!(
+                "`{value_column}` = {} on {} is {}% a year: yields are decimals (0.038 for 3.8%), \
+                 and this looks like a percentage; divide the column by 100",
+                show(series.values[i]),
+                series.dates[i],
+                show(series.values[i] * 100.0)
+            ),
+        }),
+        None => Ok(()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn shape(text: &[u8]) -> String {
+        match check_csv_shape(Path::new("p.csv"), text) {
+            Ok(()) => "ok".into(),
+            Err(e) => e.to_string(),
+        }
+    }
+
+    #[test]
+    fn csv_shape_names_the_line() {
+        assert_eq!(shape(b"date,price\n2026-01-01,1.5\n"), "ok");
+        assert_eq!(shape(b"\xEF\xBB\xBFdate,price\r\n2026-01-01,1.5\r\n"), "ok");
+        assert_eq!(shape(b"date,name\n2026-01-01,\"a, b\"\n"), "ok");
+        assert_eq!(
+            shape(b"date,name\n2026-01-01,\"a\nb\"\n2026-01-02,c\n"),
+            "ok"
+        );
+        assert!(shape(b"date,price\n2026-01-01,1,5\n").contains("line 2"));
+        assert!(shape(b"date;price\n2026-01-01;1,5\n").contains("semicolons"));
+        let bad = shape(b"date,price\n2026-01-01,1.5\n2026-01-02,\xff\n");
+        assert!(bad.contains("line 3") && bad.contains("0xFF"), "{bad}");
+    }
+}

@@ -1,0 +1,111 @@
+//! CSV and Parquet price tables, read through polars into cells.
+//!
+//! A CSV file is read without a header and with every field as text, so the header row is
+//! checked here (empty or repeated names) and each field is parsed by the same cell rules as a
+//! workbook's, with its line in every message. Parquet columns are typed: numbers stay numbers,
+//! dates become ISO text, and nulls are empty cells.
+
+use std::io::Cursor;
+
+use polars::prelude::*;
+
+use super::cells::{Cell, Place, PlaceKind};
+use super::RawTable;
+
+/// Reads CSV bytes: the first line is the header.
+pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
+    let frame = CsvReadOptions::default()
+        .with_has_header(false)
+        // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.
+        .with_infer_schema_length(Some(0))
+        .into_reader_with_file_handle(Cursor::new(bytes))
+        .finish()
+        .map_err(|e| format!("not a readable CSV file: {e}"))?;
+    if frame.height() == 0 {
+        return Err("is empty: a price table needs a header row and rows of prices".into());
+    }
+    let mut header = Vec::with_capacity(frame.width());
+    let mut columns = Vec::with_capacity(frame.width());
+    for column in frame.columns() {
+        let text = column
+            .str()
+            .map_err(|e| format!("not a readable CSV file: {e}"))?;
+        let mut cells = text.iter().map(|v| match v {
+            None => Cell::Empty,
+            Some(s) => Cell::Text(s.to_string()),
+        });
+        header.push(match cells.next() {
+            Some(Cell::Text(name)) => name.trim().to_string(),
+            _ => String::new(),
+        });
+        columns.push(cells.collect());
+    }
+    Ok(RawTable {
+        sheet: None,
+        place: Place {
+            kind: PlaceKind::Csv,
+            first_row: 2,
+            first_column: 0,
+            header: header.clone(),
+        },
+        header,
+        columns,
+    })
+}
+
+/// Reads Parquet bytes: the schema's names are the header.
+pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
+    let frame = ParquetReader::new(Cursor::new(bytes))
+        .finish()
+        .map_err(|e| format!("not a readable Parquet file: {e}"))?;
+    let mut header = Vec::with_capacity(frame.width());
+    let mut columns = Vec::with_capacity(frame.width());
+    for column in frame.columns() {
+        header.push(column.name().trim().to_string());
+        columns.push(parquet_cells(column).map_err(|e| {
+            format!(
+                "column `{}` of type {} cannot be read: {e}",
+                column.name(),
+                column.dtype()
+            )
+        })?);
+    }
+    Ok(RawTable {
+        sheet: None,
+        place: Place {
+            kind: PlaceKind::Parquet,
+            first_row: 1,
+            first_column: 0,
+            header: header.clone(),
+        },
+        header,
+        columns,
+    })
+}
+
+/// A typed Parquet column as cells: numbers as numbers, logical values as such, everything
+/// else (dates, datetimes, text) as text, which the cell rules read.
+fn parquet_cells(column: &Column) -> PolarsResult<Vec<Cell>> {
+    let dtype = column.dtype();
+    if dtype.is_primitive_numeric() {
+        let numbers = column.cast(&DataType::Float64)?;
+        return Ok(numbers
+            .f64()?
+            .iter()
+            .map(|v| v.map_or(Cell::Empty, Cell::Number))
+            .collect());
+    }
+    if dtype == &DataType::Boolean {
+        return Ok(column
+            .bool()?
+            .iter()
+            .map(|v| v.map_or(Cell::Empty, Cell::Bool))
+            .collect());
+    }
+    let text = column.cast(&DataType::String)?;
+    Ok(text
+        .str()?
+        .iter()
+        .map(|v| v.map_or(Cell::Empty, |s| Cell::Text(s.to_string())))
+        .collect())
+}

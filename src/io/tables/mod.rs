@@ -1,0 +1,382 @@
+//! Wide price tables: one file with a date column and one column per security.
+//!
+//! Prices often arrive as a single table exported from a data terminal — CSV, Parquet or a
+//! spreadsheet workbook — rather than one file per security. This module reads such a table
+//! once (CSV and Parquet through polars, `.xlsx`/`.xls`/`.ods` through calamine), keeps every
+//! cell as it was found, and turns one column at a time into the same [`DataFile`] and
+//! [`Series`] that a one-file-per-peer case produces, so sampling, the receipt and `verify`
+//! work unchanged. Each bad cell is reported with its file, sheet, cell (or line) and value.
+
+mod cells;
+mod delimited;
+mod workbook;
+
+use std::path::{Path, PathBuf};
+
+use chrono::NaiveDate;
+
+use crate::error::{Error, Result};
+use crate::io::series::{sha256_hex, DataFile, Series, ValueKind};
+
+pub use cells::{column_letters, Cell, Place, PlaceKind};
+
+/// The file formats a wide table may come in, told apart by the file's extension.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TableFormat {
+    Csv,
+    Parquet,
+    /// A spreadsheet workbook; the sheet is chosen by name.
+    Workbook,
+}
+
+impl TableFormat {
+    /// The format of `path` by its extension, or an error naming the extensions read.
+    pub fn of(path: &Path) -> Result<TableFormat> {
+        let extension = path
+            .extension()
+            .and_then(|e| e.to_str())
+            .map(str::to_ascii_lowercase)
+            .unwrap_or_default();
+        match extension.as_str() {
+            "csv" | "txt" => Ok(TableFormat::Csv),
+            "parquet" | "pq" => Ok(TableFormat::Parquet),
+            "xlsx" | "xlsm" | "xls" | "ods" => Ok(TableFormat::Workbook),
+            _ => Err(Error::DataFile {
+                file: path.to_path_buf(),
+                message: format!(
+                    "cannot tell the table's format from the extension `.{extension}`; price \
+                     tables are .csv, .parquet, .xlsx, .xlsm, .xls or .ods"
+                ),
+            }),
+        }
+    }
+}
+
+/// What a reader found: the header and every cell below it, column by column.
+#[derive(Debug, Clone)]
+pub(crate) struct RawTable {
+    /// The sheet read (workbooks only).
+    pub sheet: Option<String>,
+    pub header: Vec<String>,
+    /// `columns[j][i]` is the cell of data row `i` under `header[j]`.
+    pub columns: Vec<Vec<Cell>>,
+    /// Where data row 0 and column 0 sit, for cell references in messages.
+    pub place: Place,
+}
+
+/// A wide table as read: its dates and every security column, not yet parsed as prices.
+#[derive(Debug, Clone)]
+pub struct PriceTable {
+    /// The path as the case (or the command line) writes it.
+    pub path: String,
+    /// Where the file was read from.
+    pub resolved: PathBuf,
+    pub sha256: String,
+    pub format: TableFormat,
+    /// The sheet read (workbooks only).
+    pub sheet: Option<String>,
+    pub date_column: String,
+    /// The other columns' names, in the table's order.
+    pub columns: Vec<String>,
+    /// One date per kept row, ascending.
+    dates: Vec<NaiveDate>,
+    /// The cells of each column in `columns`, one per date.
+    cells: Vec<Vec<Cell>>,
+    /// For each date, the data row it came from (for messages).
+    rows: Vec<usize>,
+    /// For each of `columns`, its position in the header (for messages).
+    positions: Vec<usize>,
+    place: Place,
+}
+
+impl PriceTable {
+    /// Reads a wide table. `written` is the path as given; `resolved` is where it is. `sheet`
+    /// picks a workbook's sheet (optional when it has only one); `date_column` names the date
+    /// column (default: the header's first column).
+    pub fn read(
+        written: &str,
+        resolved: &Path,
+        sheet: Option<&str>,
+        date_column: Option<&str>,
+    ) -> Result<PriceTable> {
+        let format = TableFormat::of(resolved)?;
+        let bytes = std::fs::read(resolved).map_err(|source| Error::Io {
+            path: resolved.to_path_buf(),
+            action: "cannot read the price table",
+            source,
+        })?;
+        let fail = |message: String| Error::DataFile {
+            file: resolved.to_path_buf(),
+            message,
+        };
+        if sheet.is_some() && format != TableFormat::Workbook {
+            return Err(fail(format!(
+                "`sheet` = \"{}\" is given, but a {} file has no sheets; drop `sheet`",
+                sheet.unwrap_or_default(),
+                if format == TableFormat::Csv {
+                    "CSV"
+                } else {
+                    "Parquet"
+                }
+            )));
+        }
+        let raw = match format {
+            TableFormat::Csv => delimited::read_csv(&bytes).map_err(fail)?,
+            TableFormat::Parquet => delimited::read_parquet(&bytes).map_err(fail)?,
+            TableFormat::Workbook => workbook::read_sheet(resolved, &bytes, sheet).map_err(fail)?,
+        };
+        let mut table = arrange(raw, date_column).map_err(fail)?;
+        table.path = written.to_string();
+        table.resolved = resolved.to_path_buf();
+        table.sha256 = sha256_hex(&bytes);
+        table.format = format;
+        Ok(table)
+    }
+
+    /// The dates of the table, ascending.
+    pub fn dates(&self) -> &[NaiveDate] {
+        &self.dates
+    }
+
+    /// One column as a validated series, packaged as the receipt records it. Empty cells are
+    /// missing prices; `role` is what the series is in the case (`index`, `peer:<name>`, …).
+    pub fn series(&self, role: &str, column: &str, kind: ValueKind) -> Result<DataFile> {
+        let fail = |message: String| Error::DataFile {
+            file: self.resolved.clone(),
+            message,
+        };
+        let j = self.column_index(column).map_err(fail)?;
+        let (mut dates, mut values) = (Vec::new(), Vec::new());
+        for (i, cell) in self.cells[j].iter().enumerate() {
+            let at = || {
+                format!(
+                    "{} (column `{column}`, date {})",
+                    self.place.cell(self.rows[i], self.positions[j]),
+                    self.dates[i]
+                )
+            };
+            let Some(value) = cell.number().map_err(|m| fail(format!("{}: {m}", at())))? else {
+                continue;
+            };
+            cells::check_range(value, kind).map_err(|m| fail(format!("{}: {m}", at())))?;
+            dates.push(self.dates[i]);
+            values.push(value);
+        }
+        let (Some(&first_date), Some(&last_date)) = (dates.first(), dates.last()) else {
+            return Err(fail(format!(
+                "{}column `{column}` holds no {} (every cell is empty)",
+                self.place.sheet_prefix(),
+                match kind {
+                    ValueKind::Price => "prices",
+                    ValueKind::Yield => "yields",
+                }
+            )));
+        };
+        Ok(DataFile {
+            role: role.to_string(),
+            path: self.path.clone(),
+            sha256: self.sha256.clone(),
+            rows: dates.len(),
+            first_date,
+            last_date,
+            sheet: self.sheet.clone(),
+            column: column.to_string(),
+            series: Series { dates, values },
+        })
+    }
+
+    /// The position of `column` among the security columns, or a message listing them.
+    fn column_index(&self, column: &str) -> std::result::Result<usize, String> {
+        if column == self.date_column {
+            return Err(format!(
+                "{}`{column}` is the date column, not a column of prices",
+                self.place.sheet_prefix()
+            ));
+        }
+        self.columns
+            .iter()
+            .position(|c| c == column)
+            .ok_or_else(|| {
+                format!(
+                    "{}no column named `{column}`; the header has: {}",
+                    self.place.sheet_prefix(),
+                    quoted_list(
+                        std::iter::once(&self.date_column).chain(&self.columns),
+                        self.columns.len() + 1
+                    )
+                )
+            })
+    }
+}
+
+/// Names in backticks, separated by commas.
+fn quoted_list<'a>(names: impl Iterator<Item = &'a String>, count: usize) -> String {
+    let mut list = Vec::with_capacity(count);
+    list.extend(names.map(|n| format!("`{n}`")));
+    list.join(", ")
+}
+
+/// Picks the date column, parses its dates, drops blank rows and puts the rows in ascending
+/// date order (a table sorted newest first is reversed, never re-sorted otherwise).
+fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<PriceTable, String> {
+    let place = raw.place.clone();
+    let prefix = place.sheet_prefix();
+    check_header(&raw)?;
+    let date_index = match date_column {
+        None => 0,
+        Some(name) => raw.header.iter().position(|h| h == name).ok_or_else(|| {
+            format!(
+                "{prefix}no date column named `{name}`; the header has: {}",
+                quoted_list(raw.header.iter(), raw.header.len())
+            )
+        })?,
+    };
+    let named = raw.header.iter().filter(|h| !h.is_empty()).count();
+    if named < 2 {
+        // A CSV file exported with another separator reads as one column.
+        let separator = raw.header.iter().find_map(|h| {
+            [';', '\t', '|']
+                .into_iter()
+                .find(|c| h.contains(*c))
+                .map(|c| {
+                    format!(" (is the file separated by {c:?}? CSV tables are read with commas)")
+                })
+        });
+        return Err(format!(
+            "{prefix}the header (the first row with anything in it) has {named} named column(s) \
+             ({}); a price table needs a date column and at least one column of prices{}",
+            quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named),
+            separator.unwrap_or_default()
+        ));
+    }
+    let date_name = raw.header[date_index].clone();
+    let others: Vec<usize> = (0..raw.header.len()).filter(|&j| j != date_index).collect();
+    // Trailing columns with neither a name nor data are a spreadsheet's used range, not data.
+    let others: Vec<usize> = others
+        .into_iter()
+        .filter(|&j| !raw.header[j].is_empty())
+        .collect();
+    let (mut dates, mut rows) = dated_rows(&raw, date_index, &others)?;
+    if dates.is_empty() {
+        return Err(format!(
+            "{prefix}the date column `{date_name}` has no dates below the header"
+        ));
+    }
+    check_order(&dates, &rows, &place, date_index)?;
+    let descending = dates.len() > 1 && dates[1] < dates[0];
+    let mut cells: Vec<Vec<Cell>> = others
+        .iter()
+        .map(|&j| rows.iter().map(|&i| raw.columns[j][i].clone()).collect())
+        .collect();
+    if descending {
+        dates.reverse();
+        rows.reverse();
+        cells.iter_mut().for_each(|c| c.reverse());
+    }
+    Ok(PriceTable {
+        path: String::new(),
+        resolved: PathBuf::new(),
+        sha256: String::new(),
+        format: TableFormat::Csv,
+        sheet: raw.sheet,
+        date_column: date_name,
+        columns: others.iter().map(|&j| raw.header[j].clone()).collect(),
+        dates,
+        cells,
+        rows,
+        positions: others,
+        place,
+    })
+}
+
+/// The date of every row that has one, with the row; a blank row is skipped, and a row with
+/// prices but no date is an error.
+fn dated_rows(
+    raw: &RawTable,
+    date_index: usize,
+    others: &[usize],
+) -> std::result::Result<(Vec<NaiveDate>, Vec<usize>), String> {
+    let place = &raw.place;
+    let date_name = &raw.header[date_index];
+    let (mut dates, mut rows) = (Vec::new(), Vec::new());
+    for (i, cell) in raw.columns[date_index].iter().enumerate() {
+        if cell.is_empty() {
+            if let Some(&j) = others.iter().find(|&&j| !raw.columns[j][i].is_empty()) {
+                return Err(format!(
+                    "{}: the date cell is empty but {} holds {}; every row with prices needs a \
+                     date",
+                    place.cell(i, date_index),
+                    place.cell(i, j),
+                    raw.columns[j][i].shown()
+                ));
+            }
+            continue;
+        }
+        let date = cell.date().map_err(|m| {
+            format!(
+                "{} (date column `{date_name}`): {m}",
+                place.cell(i, date_index)
+            )
+        })?;
+        dates.push(date);
+        rows.push(i);
+    }
+    Ok((dates, rows))
+}
+
+/// Every column with data has a name, and no name repeats.
+fn check_header(raw: &RawTable) -> std::result::Result<(), String> {
+    let place = &raw.place;
+    for (j, name) in raw.header.iter().enumerate() {
+        if name.is_empty() {
+            if let Some(i) = raw.columns[j].iter().position(|c| !c.is_empty()) {
+                return Err(format!(
+                    "{} has no header, but {} below it holds {}; name the column",
+                    place.header_cell(j),
+                    place.cell(i, j),
+                    raw.columns[j][i].shown()
+                ));
+            }
+        }
+        if let Some(k) = raw.header[..j]
+            .iter()
+            .position(|h| h == name && !h.is_empty())
+        {
+            return Err(format!(
+                "{} repeats the header `{name}` of {}; each column needs its own name",
+                place.header_cell(j),
+                place.header_cell(k)
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// The dates run strictly one way (ascending, or descending as many exports are), with no
+/// repeat; the first break is reported with both of its rows.
+fn check_order(
+    dates: &[NaiveDate],
+    rows: &[usize],
+    place: &Place,
+    date_index: usize,
+) -> std::result::Result<(), String> {
+    let descending = dates.len() > 1 && dates[1] < dates[0];
+    for k in 1..dates.len() {
+        let (before, here) = (dates[k - 1], dates[k]);
+        let this = place.cell(rows[k], date_index);
+        let that = place.cell(rows[k - 1], date_index);
+        if here == before {
+            return Err(format!(
+                "{this}: duplicate date {here} (also in {that}); each date may appear once"
+            ));
+        }
+        if (here < before) != descending {
+            return Err(format!(
+                "{this}: date {here} breaks the order of the dates above it ({before} in {that}); \
+                 rows must run in ascending (or descending) date order throughout — the table is \
+                 never re-sorted silently"
+            ));
+        }
+    }
+    Ok(())
+}

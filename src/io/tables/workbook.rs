@@ -1,0 +1,168 @@
+//! Spreadsheet workbooks (`.xlsx`, `.xlsm`, `.xls`, `.ods`) read through calamine, one sheet
+//! chosen by name.
+//!
+//! The workbook is opened from the same bytes that are hashed. The first row of the sheet with
+//! anything in it is the header; the rows below are data. A password-protected workbook, or a
+//! file that is not a workbook at all, is refused with a message that says which.
+
+use std::io::Cursor;
+use std::path::Path;
+
+use calamine::{open_workbook_from_rs, Data, Ods, Range, Reader, Xls, Xlsx};
+
+use super::cells::{Cell, Place, PlaceKind};
+use super::RawTable;
+
+/// The first bytes of a ZIP package (`.xlsx`, `.xlsm`, `.ods`).
+const ZIP_MAGIC: &[u8] = b"PK\x03\x04";
+/// The first bytes of an OLE compound file (`.xls`, and an encrypted `.xlsx`).
+const OLE_MAGIC: &[u8] = &[0xD0, 0xCF, 0x11, 0xE0, 0xA1, 0xB1, 0x1A, 0xE1];
+
+/// Reads the sheet `sheet` (or the only sheet) of the workbook in `bytes`.
+pub(crate) fn read_sheet(
+    path: &Path,
+    bytes: &[u8],
+    sheet: Option<&str>,
+) -> Result<RawTable, String> {
+    let extension = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase)
+        .unwrap_or_default();
+    let (name, range) = match extension.as_str() {
+        "xls" => load::<Xls<_>>(bytes, sheet, &extension)?,
+        "ods" => load::<Ods<_>>(bytes, sheet, &extension)?,
+        _ => load::<Xlsx<_>>(bytes, sheet, &extension)?,
+    };
+    from_range(name, range)
+}
+
+/// Opens the workbook with reader `R`, picks the sheet and returns its name and cells.
+fn load<'a, R>(
+    bytes: &'a [u8],
+    sheet: Option<&str>,
+    extension: &str,
+) -> Result<(String, Range<Data>), String>
+where
+    R: Reader<Cursor<&'a [u8]>>,
+    R::Error: std::fmt::Display,
+{
+    let mut workbook: R = open_workbook_from_rs(Cursor::new(bytes))
+        .map_err(|e: R::Error| open_error(bytes, extension, &e.to_string()))?;
+    let names = workbook.sheet_names();
+    let listed = || {
+        names
+            .iter()
+            .map(|n| format!("\"{n}\""))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let name = match sheet {
+        Some(wanted) => names
+            .iter()
+            .find(|n| n.as_str() == wanted)
+            .cloned()
+            .ok_or_else(|| {
+                format!(
+                    "has no sheet named \"{wanted}\"; its sheets are: {}",
+                    listed()
+                )
+            })?,
+        None if names.len() == 1 => names[0].clone(),
+        None => {
+            return Err(format!(
+                "has {} sheets; name the one with the prices (`sheet` in the case, --sheet for \
+                 init): {}",
+                names.len(),
+                listed()
+            ))
+        }
+    };
+    let range = workbook
+        .worksheet_range(&name)
+        .map_err(|e| format!("sheet \"{name}\" cannot be read: {e}"))?;
+    Ok((name, range))
+}
+
+/// The message for a workbook calamine cannot open: encrypted, not a workbook, or damaged.
+fn open_error(bytes: &[u8], extension: &str, detail: &str) -> String {
+    if detail.contains("password protected") {
+        return "is encrypted (password-protected), so its cells cannot be read; open it in its \
+                spreadsheet program and save a copy without a password"
+            .to_string();
+    }
+    let expected = if extension == "xls" {
+        OLE_MAGIC
+    } else {
+        ZIP_MAGIC
+    };
+    if !bytes.starts_with(expected) {
+        return format!(
+            "is not a .{extension} workbook: its bytes do not start the way a .{extension} file \
+             does (is it another kind of file renamed?)"
+        );
+    }
+    format!("is a damaged or unreadable .{extension} workbook: {detail}")
+}
+
+/// The header (first non-empty row) and the cells below it.
+fn from_range(sheet: String, range: Range<Data>) -> Result<RawTable, String> {
+    let Some((start_row, start_column)) = range.start() else {
+        return Err(format!("sheet \"{sheet}\" is empty"));
+    };
+    let rows: Vec<&[Data]> = range.rows().collect();
+    let header_at = rows
+        .iter()
+        .position(|row| row.iter().any(|c| !matches!(c, Data::Empty)))
+        .ok_or_else(|| format!("sheet \"{sheet}\" is empty"))?;
+    let header: Vec<String> = rows[header_at].iter().map(header_name).collect();
+    let mut columns: Vec<Vec<Cell>> = vec![Vec::new(); header.len()];
+    for row in &rows[header_at + 1..] {
+        for (j, value) in row.iter().enumerate() {
+            columns[j].push(cell(value));
+        }
+    }
+    Ok(RawTable {
+        sheet: Some(sheet.clone()),
+        place: Place {
+            kind: PlaceKind::Sheet(sheet),
+            // 1-based sheet row of the first data row: the header's row plus one.
+            first_row: start_row as usize + header_at + 2,
+            first_column: start_column as usize,
+            header: header.clone(),
+        },
+        header,
+        columns,
+    })
+}
+
+/// A header cell as a column name (numbers and dates as they read).
+fn header_name(value: &Data) -> String {
+    match cell(value) {
+        Cell::Empty => String::new(),
+        Cell::Number(x) => x.to_string(),
+        Cell::Text(text) => text.trim().to_string(),
+        Cell::Date(d) => d.to_string(),
+        Cell::Bool(b) => if b { "TRUE" } else { "FALSE" }.to_string(),
+        Cell::Error(e) => e,
+    }
+}
+
+/// A calamine value as a cell. Date cells become dates (the time of day is dropped); ISO text
+/// from OpenDocument files stays text, which the date rules read.
+fn cell(value: &Data) -> Cell {
+    match value {
+        Data::Empty => Cell::Empty,
+        Data::Int(i) => Cell::Number(*i as f64),
+        Data::Float(x) => Cell::Number(*x),
+        Data::String(s) => Cell::Text(s.clone()),
+        Data::Bool(b) => Cell::Bool(*b),
+        Data::DateTime(dt) if dt.is_datetime() => match dt.as_datetime() {
+            Some(moment) => Cell::Date(moment.date()),
+            None => Cell::Number(dt.as_f64()),
+        },
+        Data::DateTime(dt) => Cell::Number(dt.as_f64()),
+        Data::DateTimeIso(s) | Data::DurationIso(s) => Cell::Text(s.clone()),
+        Data::Error(e) => Cell::Error(e.to_string()),
+    }
+}

@@ -1,0 +1,325 @@
+//! Writing outputs safely: never over an input, all or nothing, nothing left on failure.
+//!
+//! Every command that writes files hands them here together with the files the run read.
+//! [`write_outputs`] refuses a target that is one of those inputs (naming it), or a folder in the
+//! way; writes every file into a temporary folder beside the output folder; and only when all
+//! are written (and no stop was requested) moves them into place, keeping each replaced file
+//! until the last move succeeded so that a failed move puts everything back. Folders it had to
+//! create are removed again on failure. A second Ctrl-C exits at once through [`abandon`], which
+//! removes the temporary folders, unless the moves are under way (they take milliseconds).
+
+use std::fs;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Mutex;
+
+pub use crate::case::{files_read, FileRead};
+use crate::error::{Error, Result};
+
+/// Temporary folders in use, removed by [`abandon`] on a forced exit.
+static STAGING: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+/// Set while files are being moved into place, when a forced exit must wait.
+static MOVING: AtomicBool = AtomicBool::new(false);
+
+/// Writes `files` (name, contents) into `dir` as one group, after checking that none of them
+/// would replace a file in `reads`. Returns the paths written.
+pub fn write_outputs(
+    dir: &Path,
+    files: &[(String, Vec<u8>)],
+    reads: &[FileRead],
+) -> Result<Vec<PathBuf>> {
+    check_targets(dir, files, reads)?;
+    let created = create_missing(dir)?;
+    let result = stage_and_move(dir, files);
+    if result.is_err() {
+        // Only folders this call created, deepest first, and only if they are empty again.
+        for folder in created.iter().rev() {
+            let _ = fs::remove_dir(folder);
+        }
+    }
+    result
+}
+
+/// Removes every temporary folder in use; for the binary's forced exit on a second Ctrl-C.
+/// Returns false while files are being moved into place, when the exit must wait.
+pub fn abandon() -> bool {
+    if MOVING.load(Ordering::SeqCst) {
+        return false;
+    }
+    if let Ok(folders) = STAGING.lock() {
+        for folder in folders.iter() {
+            let _ = fs::remove_dir_all(folder);
+        }
+    }
+    true
+}
+
+fn io_error<'a>(path: &'a Path, action: &'static str) -> impl FnOnce(std::io::Error) -> Error + 'a {
+    move |source| Error::Io {
+        path: path.to_path_buf(),
+        action,
+        source,
+    }
+}
+
+/// Refuses a target that is an input, a folder in the way, or an output "folder" that is a file.
+fn check_targets(dir: &Path, files: &[(String, Vec<u8>)], reads: &[FileRead]) -> Result<()> {
+    let refuse = |message: String| Error::Argument {
+        option: format!("output folder {}", dir.display()),
+        message,
+    };
+    if dir.exists() && !dir.is_dir() {
+        return Err(refuse(
+            "is a file, not a folder; give a folder for the outputs".into(),
+        ));
+    }
+    let inputs: Vec<(PathBuf, &str)> = reads
+        .iter()
+        .filter_map(|(path, role)| Some((fs::canonicalize(path).ok()?, role.as_str())))
+        .collect();
+    for (name, _) in files {
+        let target = dir.join(name);
+        let Ok(canonical) = fs::canonicalize(&target) else {
+            continue; // Nothing there yet, so nothing to overwrite.
+        };
+        if let Some((_, role)) = inputs.iter().find(|(input, _)| *input == canonical) {
+            return Err(refuse(format!(
+                "writing {name} there would overwrite {}, which this run reads ({role}); choose \
+                 another output folder",
+                target.display()
+            )));
+        }
+        if canonical.is_dir() {
+            return Err(refuse(format!(
+                "{} is a folder; hurdle writes a file of that name and never replaces a folder",
+                target.display()
+            )));
+        }
+    }
+    Ok(())
+}
+
+/// Creates `dir` and its missing parents, returning the folders created (outermost first).
+fn create_missing(dir: &Path) -> Result<Vec<PathBuf>> {
+    let mut missing = Vec::new();
+    let mut current = Some(dir);
+    while let Some(folder) = current.filter(|f| !f.as_os_str().is_empty() && !f.exists()) {
+        missing.push(folder.to_path_buf());
+        current = folder.parent();
+    }
+    missing.reverse();
+    for (i, folder) in missing.iter().enumerate() {
+        if let Err(source) = fs::create_dir(folder) {
+            for made in missing[..i].iter().rev() {
+                let _ = fs::remove_dir(made);
+            }
+            return Err(io_error(folder, "cannot create the output folder")(source));
+        }
+    }
+    Ok(missing)
+}
+
+/// A temporary folder beside `dir` (inside it when its parent is not writable).
+fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
+    let parent = dir
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let builder = || {
+        let mut b = tempfile::Builder::new();
+        b.prefix(".hurdle-staging-");
+        b
+    };
+    builder()
+        .tempdir_in(parent)
+        .or_else(|_| builder().tempdir_in(dir))
+        .map_err(io_error(dir, "cannot create a temporary folder beside"))
+}
+
+fn stage_and_move(dir: &Path, files: &[(String, Vec<u8>)]) -> Result<Vec<PathBuf>> {
+    let staging = staging_folder(dir)?;
+    let registered = staging.path().to_path_buf();
+    if let Ok(mut folders) = STAGING.lock() {
+        folders.push(registered.clone());
+    }
+    let result = write_staged(staging.path(), files).and_then(|()| {
+        crate::progress::check_stop()?;
+        MOVING.store(true, Ordering::SeqCst);
+        let moved = move_into_place(staging.path(), dir, files);
+        MOVING.store(false, Ordering::SeqCst);
+        moved
+    });
+    if let Ok(mut folders) = STAGING.lock() {
+        folders.retain(|f| *f != registered);
+    }
+    result
+}
+
+/// Writes every file into the staging folder (a name may hold a subfolder, `figures/…`), then
+/// flushes them all at once: one thread per file, since the flushes wait on the disk, not on a
+/// core, and twenty sequential flushes would cost twenty disk round trips.
+fn write_staged(staging: &Path, files: &[(String, Vec<u8>)]) -> Result<()> {
+    let mut written = Vec::with_capacity(files.len());
+    for (name, bytes) in files {
+        let path = staging.join(name);
+        if let Some(folder) = path.parent() {
+            fs::create_dir_all(folder).map_err(io_error(folder, "cannot create"))?;
+        }
+        let mut file = fs::File::create(&path).map_err(io_error(&path, "cannot create"))?;
+        file.write_all(bytes)
+            .map_err(io_error(&path, "cannot write"))?;
+        written.push((path, file));
+    }
+    std::thread::scope(|scope| {
+        let flushes: Vec<_> = written
+            .iter()
+            .map(|(path, file)| {
+                scope.spawn(move || file.sync_all().map_err(io_error(path, "cannot flush")))
+            })
+            .collect();
+        flushes.into_iter().try_for_each(|flush| {
+            flush.join().unwrap_or_else(|_| {
+                Err(Error::Io {
+                    path: staging.to_path_buf(),
+                    action: "cannot flush the files in",
+                    source: std::io::Error::other("a flushing thread stopped"),
+                })
+            })
+        })
+    })
+}
+
+/// Moves each staged file onto its target, keeping the file it replaces in `staging/previous`;
+/// on the first failure undoes every move and puts the replaced files back.
+fn move_into_place(
+    staging: &Path,
+    dir: &Path,
+    files: &[(String, Vec<u8>)],
+) -> Result<Vec<PathBuf>> {
+    let previous = staging.join("previous");
+    fs::create_dir(&previous).map_err(io_error(&previous, "cannot create"))?;
+    let mut moved: Vec<PathBuf> = Vec::new();
+    let mut kept: Vec<(PathBuf, PathBuf)> = Vec::new();
+    let mut step = |name: &str| -> Result<()> {
+        let target = dir.join(name);
+        for folder in [target.parent(), previous.join(name).parent()]
+            .into_iter()
+            .flatten()
+        {
+            fs::create_dir_all(folder).map_err(io_error(folder, "cannot create"))?;
+        }
+        if target.exists() {
+            let backup = previous.join(name);
+            fs::rename(&target, &backup)
+                .map_err(io_error(&target, "cannot set aside the previous"))?;
+            kept.push((backup, target.clone()));
+        }
+        fs::rename(staging.join(name), &target)
+            .map_err(io_error(&target, "cannot move the new file onto"))?;
+        moved.push(target);
+        Ok(())
+    };
+    for (name, _) in files {
+        if let Err(error) = step(name) {
+            for target in &moved {
+                let _ = fs::remove_file(target);
+            }
+            for (backup, target) in &kept {
+                let _ = fs::rename(backup, target);
+            }
+            return Err(error);
+        }
+    }
+    Ok(moved)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn files() -> Vec<(String, Vec<u8>)> {
+        vec![
+            ("a.txt".to_string(), b"new a".to_vec()),
+            ("b.txt".to_string(), b"new b".to_vec()),
+        ]
+    }
+
+    fn listing(dir: &Path) -> Vec<String> {
+        let mut names: Vec<String> = fs::read_dir(dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        names.sort();
+        names
+    }
+
+    #[test]
+    fn writes_every_file_and_leaves_no_temporary_folder() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("deep").join("out");
+        let written = write_outputs(&out, &files(), &[]).unwrap();
+        assert_eq!(written.len(), 2);
+        assert_eq!(fs::read(out.join("b.txt")).unwrap(), b"new b");
+        assert_eq!(listing(root.path()), vec!["deep"]);
+        assert_eq!(listing(&root.path().join("deep")), vec!["out"]);
+    }
+
+    #[test]
+    fn refuses_to_overwrite_an_input_and_creates_nothing() {
+        let root = tempfile::tempdir().unwrap();
+        let input = root.path().join("a.txt");
+        fs::write(&input, "input").unwrap();
+        let reads = vec![(input.clone(), "a price file".to_string())];
+        let message = write_outputs(root.path(), &files(), &reads)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            message.contains("a.txt") && message.contains("a price file"),
+            "{message}"
+        );
+        assert_eq!(fs::read(&input).unwrap(), b"input");
+        assert_eq!(listing(root.path()), vec!["a.txt"]);
+    }
+
+    #[test]
+    fn a_folder_in_the_way_is_refused_before_anything_moves() {
+        let root = tempfile::tempdir().unwrap();
+        fs::create_dir(root.path().join("b.txt")).unwrap();
+        let message = write_outputs(root.path(), &files(), &[])
+            .unwrap_err()
+            .to_string();
+        assert!(message.contains("is a folder"), "{message}");
+        assert_eq!(listing(root.path()), vec!["b.txt"]);
+    }
+
+    // A move that fails half-way (the second staged file vanished) puts the first target's
+    // previous contents back and removes nothing else.
+    #[test]
+    fn a_failed_move_restores_the_previous_files() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("out");
+        fs::create_dir(&out).unwrap();
+        fs::write(out.join("a.txt"), "old a").unwrap();
+        let staging = tempfile::tempdir_in(root.path()).unwrap();
+        write_staged(staging.path(), &files()).unwrap();
+        fs::remove_file(staging.path().join("b.txt")).unwrap();
+        assert!(move_into_place(staging.path(), &out, &files()).is_err());
+        assert_eq!(fs::read(out.join("a.txt")).unwrap(), b"old a");
+        assert_eq!(listing(&out), vec!["a.txt"]);
+    }
+
+    #[test]
+    fn a_failure_removes_the_folders_it_created() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("new").join("out");
+        // A name with a NUL byte cannot be created, so staging fails after the folders exist.
+        let bad = vec![("bad\0name".to_string(), Vec::new())];
+        assert!(write_outputs(&out, &bad, &[]).is_err());
+        assert!(
+            listing(root.path()).is_empty(),
+            "{:?}",
+            listing(root.path())
+        );
+    }
+}

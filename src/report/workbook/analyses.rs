@@ -1,0 +1,248 @@
+//! The `Analyses` sheet: figures that are whole reruns of the case, written as hurdle's values.
+//!
+//! The comparison of leverage formulas, the sensitivity grid, the Monte Carlo percentiles and
+//! the bridge to a claimed build-up each need the pipeline run again under other settings, which
+//! no formula on one sheet can do. They are shown here as values, marked as computed by hurdle,
+//! so a reviewer sees them beside the live chain without mistaking them for formulas.
+
+use rust_xlsxwriter::Format;
+
+use crate::error::Result;
+
+use super::{xlsx_error, Book, Note, Sheet};
+
+pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
+    let v = book.v;
+    let mut sheet = Sheet::new("Analyses")?;
+    book.text(
+        &mut sheet,
+        (0, 0),
+        "Analyses (values computed by hurdle)",
+        &book.styles.title.clone(),
+    )?;
+    book.text(
+        &mut sheet,
+        (1, 0),
+        "Each figure on this sheet is a full rerun of the case under other settings; it is a \
+         value, not a formula, and does not follow changes made to the Inputs sheet.",
+        &book.styles.text.clone(),
+    )?;
+    let mut row = 3;
+    row = formulas(book, &mut sheet, row)?;
+    if let Some(grid) = &v.sensitivity {
+        row = sensitivity(book, &mut sheet, row + 1, grid)?;
+    }
+    if let Some(u) = &v.uncertainty {
+        row = monte_carlo(book, &mut sheet, row + 1, u)?;
+    }
+    if let Some(bridge) = &v.reconciliation {
+        bridge_table(book, &mut sheet, row + 1, bridge)?;
+    }
+    sheet.ws.set_column_width(0, 40).map_err(xlsx_error)?;
+    for col in 1..12 {
+        sheet.ws.set_column_width(col, 13).map_err(xlsx_error)?;
+    }
+    Ok(sheet)
+}
+
+/// A table title with a note on where its figures come from.
+fn title(book: &Book, sheet: &mut Sheet, row: u32, text: &str, why: &str) -> Result<()> {
+    book.text(sheet, (row, 0), text, &book.styles.subtitle.clone())?;
+    let note = Note::new(format!("Computed by hurdle: {why}"))
+        .set_author("hurdle")
+        .add_author_prefix(false);
+    sheet.ws.insert_note(row, 0, &note).map_err(xlsx_error)?;
+    Ok(())
+}
+
+fn headers(book: &Book, sheet: &mut Sheet, row: u32, texts: &[&str]) -> Result<()> {
+    let header = book.styles.header.clone();
+    for (col, text) in texts.iter().enumerate() {
+        book.text(sheet, (row, col as u16), text, &header)?;
+    }
+    Ok(())
+}
+
+fn value(book: &Book, sheet: &mut Sheet, at: (u32, u16), x: f64, format: &Format) -> Result<()> {
+    let format = book.styles.computed(format);
+    book.number(sheet, at, x, &format)
+}
+
+fn formulas(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
+    let v = book.v;
+    title(
+        book,
+        sheet,
+        row,
+        "Every leverage formula, same inputs",
+        "the chain from the peers' betas to the WACC, once per formula.",
+    )?;
+    headers(
+        book,
+        sheet,
+        row + 1,
+        &[
+            "Formula",
+            "In use",
+            "Aggregate βU",
+            "Relevered βL",
+            "Cost of equity",
+            "WACC",
+        ],
+    )?;
+    let (beta, pct, text) = (
+        book.styles.beta.clone(),
+        book.styles.percent.clone(),
+        book.styles.text.clone(),
+    );
+    let mut r = row + 2;
+    for outcome in &v.cost.leverage_comparison {
+        let label = format!(
+            "{} — {}",
+            crate::report::format::label(&outcome.formula),
+            outcome.formula_source
+        );
+        book.text(sheet, (r, 0), &label, &text)?;
+        book.text(
+            sheet,
+            (r, 1),
+            if outcome.in_use { "yes" } else { "" },
+            &text,
+        )?;
+        value(book, sheet, (r, 2), outcome.unlevered, &beta)?;
+        value(book, sheet, (r, 3), outcome.relevered, &beta)?;
+        value(book, sheet, (r, 4), outcome.cost_of_equity, &pct)?;
+        value(book, sheet, (r, 5), outcome.wacc, &pct)?;
+        r += 1;
+    }
+    Ok(r)
+}
+
+fn sensitivity(
+    book: &mut Book,
+    sheet: &mut Sheet,
+    row: u32,
+    grid: &crate::audit::grid::Grid,
+) -> Result<u32> {
+    let metric = crate::report::format::label(&grid.metric);
+    let text = format!(
+        "Sensitivity of the {metric}: {} down, {} across",
+        grid.rows.key, grid.columns.key
+    );
+    title(
+        book,
+        sheet,
+        row,
+        &text,
+        "each cell reruns the case with the two values set, as `hurdle grid` does.",
+    )?;
+    let header = book.styles.header.clone();
+    let pct = book.styles.percent.clone();
+    book.text(
+        sheet,
+        (row + 1, 0),
+        &format!("{} \\ {}", grid.rows.key, grid.columns.key),
+        &header,
+    )?;
+    for (c, x) in grid.columns.values.iter().enumerate() {
+        book.number(sheet, (row + 1, 1 + c as u16), *x, &header)?;
+    }
+    let mut r = row + 2;
+    for (x, cells) in grid.rows.values.iter().zip(&grid.cells) {
+        book.number(sheet, (r, 0), *x, &header)?;
+        for (c, cell) in cells.iter().enumerate() {
+            value(book, sheet, (r, 1 + c as u16), *cell, &pct)?;
+        }
+        r += 1;
+    }
+    Ok(r)
+}
+
+fn monte_carlo(
+    book: &mut Book,
+    sheet: &mut Sheet,
+    row: u32,
+    u: &crate::audit::uncertainty::Uncertainty,
+) -> Result<u32> {
+    let text = format!(
+        "Monte Carlo of the WACC ({} draws, seed {})",
+        u.draws, u.seed
+    );
+    title(
+        book,
+        sheet,
+        row,
+        &text,
+        &format!(
+            "draws of the betas ({}), seeded, through the same chain.",
+            u.beta_distribution
+        ),
+    )?;
+    headers(book, sheet, row + 1, &["Statistic", "WACC"])?;
+    let (pct, label) = (book.styles.percent.clone(), book.styles.label.clone());
+    let mut r = row + 2;
+    for (name, x) in [
+        ("Point estimate", u.point_estimate),
+        ("Mean", u.mean),
+        ("5th percentile", u.p05),
+        ("25th percentile", u.p25),
+        ("Median", u.p50),
+        ("75th percentile", u.p75),
+        ("95th percentile", u.p95),
+    ] {
+        book.text(sheet, (r, 0), name, &label)?;
+        value(book, sheet, (r, 1), x, &pct)?;
+        r += 1;
+    }
+    Ok(r)
+}
+
+fn bridge_table(
+    book: &mut Book,
+    sheet: &mut Sheet,
+    row: u32,
+    bridge: &crate::audit::bridge::Bridge,
+) -> Result<u32> {
+    title(
+        book,
+        sheet,
+        row,
+        "Bridge to the claimed build-up",
+        "one input group at a time, with each group's Shapley value.",
+    )?;
+    headers(
+        book,
+        sheet,
+        row + 1,
+        &[
+            "Input group",
+            "WACC before",
+            "WACC after",
+            "Contribution",
+            "Shapley value",
+        ],
+    )?;
+    let (pct, label) = (book.styles.percent.clone(), book.styles.label.clone());
+    let mut r = row + 2;
+    for step in &bridge.steps {
+        book.text(
+            sheet,
+            (r, 0),
+            &crate::report::format::label(&step.group),
+            &label,
+        )?;
+        for (c, x) in [
+            step.wacc_before,
+            step.wacc_after,
+            step.contribution,
+            step.shapley,
+        ]
+        .iter()
+        .enumerate()
+        {
+            value(book, sheet, (r, 1 + c as u16), *x, &pct)?;
+        }
+        r += 1;
+    }
+    Ok(r)
+}

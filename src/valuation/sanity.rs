@@ -1,0 +1,280 @@
+//! Sanity rules on what was read and what was computed: price jumps a case has not accepted,
+//! risk-free yields that look like percentages, a flat index or peer, a peer that is the index
+//! (R² above 0.999), the last guard that no figure of the result is NaN or infinite, and the
+//! bounds of the reviewer commands' arguments. Thresholds and reasons: README, "Error handling".
+
+use std::path::Path;
+
+use super::{Inputs, Valuation};
+use crate::beta::BetaEstimate;
+use crate::case::sanity::significant;
+use crate::case::sanity::{
+    text, JUMP_FACTOR, MAX_DEBT_TO_EQUITY, MAX_R_SQUARED, MAX_TOLERANCE, YIELD_RATIO,
+};
+use crate::case::{Case, CaseDate};
+use crate::error::{compact as show, Error, Result};
+use crate::io::series::DataFile;
+
+/// Checks across the files a case read: price jumps (unless accepted), a peer whose data are
+/// the index's or another peer's, and a yield file far above the case's own rate. Called at the
+/// end of `valuation::load_inputs`.
+pub fn check_inputs(inputs: &Inputs) -> Result<()> {
+    let settings = &inputs.case.settings;
+    let index_file = inputs.case.resolve(&inputs.index.path);
+    check_jumps(
+        &index_file,
+        "market.index",
+        &inputs.index,
+        &settings.market.index.accept_jumps,
+    )?;
+    for (i, (peer, file)) in settings.peers.iter().zip(&inputs.peers).enumerate() {
+        let key = format!("peer.{i}");
+        check_jumps(
+            &inputs.case.resolve(&file.path),
+            &key,
+            file,
+            &peer.accept_jumps,
+        )?;
+        let same_as = |other: &DataFile| other.series == file.series;
+        let duplicate = if same_as(&inputs.index) {
+            Some(format!("the index's ({})", inputs.index.path))
+        } else {
+            inputs.peers[..i].iter().position(same_as).map(|j| {
+                format!(
+                    "peer.{j}'s ({}, peer \"{}\")",
+                    inputs.peers[j].path, settings.peers[j].name
+                )
+            })
+        };
+        if let Some(other) = duplicate {
+            return Err(Error::Case {
+                file: inputs.case.path.clone(),
+                message: format!(
+                    "{key}.prices = \"{}\" (peer \"{}\") holds the same dates and prices as \
+                     {other}: a peer's price file must be the peer's own",
+                    file.path, peer.name
+                ),
+            });
+        }
+    }
+    if let Some(yields) = &inputs.risk_free {
+        let median = crate::stats::dispersion(&yields.series.values).median;
+        let rate = settings.market.risk_free_rate;
+        if median > YIELD_RATIO * rate.abs().max(0.01) {
+            return Err(Error::DataFile {
+                file: inputs.case.resolve(&yields.path),
+                message: format!(
+                    "the median yield {} is more than {YIELD_RATIO} times \
+                     market.risk_free_rate = {}: the file looks like percentages (0.5 for \
+                     0.5%); yields are decimals (0.005)",
+                    show(median),
+                    show(rate)
+                ),
+            });
+        }
+    }
+    Ok(())
+}
+
+/// A move by more than [`JUMP_FACTOR`] between consecutive rows, unless its date is accepted.
+fn check_jumps(path: &Path, key: &str, file: &DataFile, accepted: &[CaseDate]) -> Result<()> {
+    let (dates, prices) = (&file.series.dates, &file.series.values);
+    for i in 1..prices.len() {
+        let ratio = prices[i] / prices[i - 1];
+        let plausible = (1.0 / JUMP_FACTOR..=JUMP_FACTOR).contains(&ratio);
+        if plausible || accepted.iter().any(|d| d.0 == dates[i]) {
+            continue;
+        }
+        return Err(Error::DataRow {
+            file: path.to_path_buf(),
+            line: i + 2,
+            message: format!(
+                "price {} on {} after {} on {} (line {}) moves by a factor of {}, beyond the \
+                 plausibility bound of {JUMP_FACTOR} up or down between two rows; fix the price, \
+                 or if the move is real accept it with {key}.accept_jumps = [\"{}\"]",
+                show(prices[i]),
+                dates[i],
+                show(prices[i - 1]),
+                dates[i - 1],
+                i + 1,
+                significant(ratio),
+                dates[i]
+            ),
+        });
+    }
+    Ok(())
+}
+
+/// The index must have at least `min_observations` returns in the window, and they must vary;
+/// called by `valuation::value_case` before any peer, so a short or flat index is blamed on the
+/// index file, not on the first peer.
+pub fn check_index_returns(case: &Case, index: &DataFile, returns: &[Option<f64>]) -> Result<()> {
+    let min_observations = case.settings.beta.min_observations;
+    let fail = |message: String| {
+        Err(Error::DataFile {
+            file: case.resolve(&index.path),
+            message,
+        })
+    };
+    let present: Vec<f64> = returns.iter().flatten().copied().collect();
+    if present.len() < min_observations as usize {
+        return fail(format!(
+            "{} of the window's {} periods have an index return, fewer than \
+             beta.min_observations = {min_observations}; its prices run from {} to {}",
+            present.len(),
+            returns.len(),
+            index.first_date,
+            index.last_date
+        ));
+    }
+    if present.iter().all(|&r| r == present[0]) {
+        return fail(format!(
+            "the index's {} returns in the window are all {}: an index with zero variance \
+             measures no beta",
+            present.len(),
+            show(present[0])
+        ));
+    }
+    Ok(())
+}
+
+/// One peer's estimate: its own returns must vary, the index must not explain them almost
+/// perfectly (a copy of the index), and every statistic must be finite.
+pub fn check_peer_fit(
+    asset_returns: &[f64],
+    estimate: &BetaEstimate,
+    index_path: &str,
+) -> std::result::Result<(), String> {
+    if asset_returns.iter().all(|&r| r == asset_returns[0]) {
+        return Err(format!(
+            "its {} returns in the window are all {}: a price that never moves has zero \
+             variance, and its beta of 0 carries no information",
+            asset_returns.len(),
+            show(asset_returns[0])
+        ));
+    }
+    if estimate.r_squared > MAX_R_SQUARED {
+        return Err(format!(
+            "the index ({index_path}) explains its returns with R² = {} (above {MAX_R_SQUARED}): \
+             the price file is the index or a copy of it",
+            show(estimate.r_squared)
+        ));
+    }
+    let figures = [
+        ("alpha", estimate.alpha),
+        ("beta", estimate.beta),
+        ("beta_std_error", estimate.beta_std_error),
+        ("beta_t_stat", estimate.beta_t_stat),
+        ("beta_p_value", estimate.beta_p_value),
+        ("r_squared", estimate.r_squared),
+    ];
+    match figures.iter().find(|(_, v)| !v.is_finite()) {
+        Some((name, value)) => Err(format!("the regression gives {name} = {}", show(*value))),
+        None => Ok(()),
+    }
+}
+
+/// No output may hold a non-finite number: the last guard, called on every result before it
+/// is rendered (by `valuation::value` and `audit::evaluate`).
+pub fn check_finite_figures(valuation: &Valuation) -> Result<()> {
+    let tree = minijinja::Value::from(minijinja::value::Serde(valuation));
+    if let Some((path, value)) = text::first_non_finite_in(&tree, String::new()) {
+        return Err(Error::NonFinite { path, value });
+    }
+    for (i, aligned) in valuation.returns.iter().enumerate() {
+        let columns = [&aligned.asset, &aligned.market];
+        if let Some(value) = columns
+            .iter()
+            .flat_map(|c| c.iter())
+            .find(|v| !v.is_finite())
+        {
+            return Err(Error::NonFinite {
+                path: format!("returns of peers[{i}]"),
+                value: *value,
+            });
+        }
+    }
+    for (i, points) in valuation.rolling.iter().enumerate() {
+        if let Some(p) = points
+            .iter()
+            .find(|p| !(p.beta.is_finite() && p.std_error.is_finite()))
+        {
+            return Err(Error::NonFinite {
+                path: format!("rolling beta of peers[{i}] ending {}", p.window_end),
+                value: if p.beta.is_finite() {
+                    p.std_error
+                } else {
+                    p.beta
+                },
+            });
+        }
+    }
+    Ok(())
+}
+
+/// A grid may not put the same key on both axes: one of them would be silently overridden.
+pub fn check_axes(rows_key: &str, columns_key: &str) -> Result<()> {
+    if rows_key == columns_key {
+        return Err(Error::Argument {
+            option: format!("grid axes {rows_key} and {columns_key}"),
+            message: "the same key on both axes: the column value would replace the row value in \
+                      every cell; give two different keys"
+                .into(),
+        });
+    }
+    Ok(())
+}
+
+/// The range `implied` searches for the case key `key` must lie inside the values the case
+/// accepts for that key (for the relevered beta, [−5, 10]).
+pub fn check_search_range(key: &str, low: f64, high: f64) -> Result<()> {
+    let (least, most) = match key {
+        "debt.cost_pre_tax" => (0.0, 1.0),
+        "target.debt_to_equity" => (0.0, MAX_DEBT_TO_EQUITY),
+        "target.debt_to_capital" => (0.0, MAX_DEBT_TO_EQUITY / (1.0 + MAX_DEBT_TO_EQUITY)),
+        "relevered beta" => (-5.0, 10.0),
+        _ => (-0.5, 1.0),
+    };
+    if low < least || high > most {
+        return Err(Error::Argument {
+            option: format!("--range {}..{}", show(low), show(high)),
+            message: format!("{key} can only lie in [{least}, {most}]; search inside it"),
+        });
+    }
+    Ok(())
+}
+
+/// A claimed WACC (or any rate given on the command line) must be a finite decimal in
+/// [−0.5, 1); 9.1 is taken for a percentage.
+pub fn check_rate_argument(text: &str) -> std::result::Result<f64, String> {
+    let value: f64 = text
+        .trim()
+        .parse()
+        .map_err(|_| format!("`{text}` is not a number"))?;
+    if !value.is_finite() {
+        return Err(format!("{value} is not a finite number"));
+    }
+    if !(-0.5..1.0).contains(&value) {
+        return Err(format!(
+            "{} is outside [-0.5, 1): rates are decimals (0.091 for 9.1%)",
+            show(value)
+        ));
+    }
+    Ok(value)
+}
+
+/// `verify --tolerance`: a finite relative tolerance in [0, [`MAX_TOLERANCE`]].
+pub fn check_tolerance(text: &str) -> std::result::Result<f64, String> {
+    let value: f64 = text
+        .trim()
+        .parse()
+        .map_err(|_| format!("`{text}` is not a number"))?;
+    if !(value.is_finite() && (0.0..=MAX_TOLERANCE).contains(&value)) {
+        return Err(format!(
+            "{} is not a relative tolerance in [0, {MAX_TOLERANCE:e}]: a reproduction \
+             agrees to the last digit (0) or to rounding on another platform (the default 1e-12)",
+            show(value)
+        ));
+    }
+    Ok(value)
+}

@@ -1,0 +1,232 @@
+//! The promises behind the bad-input catalogue that are not themselves bad inputs: a rerun
+//! reproduces every figure bit for bit, a setting given by `--set` that replaces another says
+//! so, an accepted price jump is used, outputs replace earlier outputs as one group and a failed
+//! run leaves them alone, Ctrl-C writes nothing, and long work draws no progress bar off a
+//! terminal.
+
+mod common;
+
+use std::fs;
+use std::process::{Command, Output, Stdio};
+
+use common::{tree_hashes, Sandbox};
+
+fn hurdle(args: &[&str]) -> Output {
+    common::hurdle(args)
+}
+
+fn run_into(sandbox: &Sandbox, out: &std::path::Path, extra: &[&str]) -> Output {
+    let case = sandbox.path("case.toml");
+    let mut args = vec![
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    args.extend_from_slice(extra);
+    hurdle(&args)
+}
+
+fn stderr(output: &Output) -> String {
+    String::from_utf8_lossy(&output.stderr).into_owned()
+}
+
+// README promises that a rerun reproduces every figure exactly. The receipt is written by
+// serde_json in the shortest form that reads back to the same double; reading it back must be
+// correctly rounded for that to hold, which serde_json's default parser is not.
+#[test]
+fn an_untouched_receipt_reproduces_at_tolerance_zero() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let run = run_into(&sandbox, &out, &[]);
+    assert!(run.status.success(), "{}", stderr(&run));
+    let receipt = out.join("result.json");
+    let verify = hurdle(&["verify", receipt.to_str().unwrap(), "--tolerance", "0"]);
+    let stdout = String::from_utf8_lossy(&verify.stdout);
+    assert!(verify.status.success(), "{stdout}{}", stderr(&verify));
+    assert!(stdout.contains(" 0 mismatched"), "{stdout}");
+}
+
+// The reference is Rust's own `str::parse::<f64>`, which is correctly rounded (IEEE 754
+// round-to-nearest; the standard library's documented contract), and Python's `repr(float(s))`
+// gives back each of the four strings below unchanged, so each is the shortest form of its
+// double. They are sensitivity cells of the demo receipt that serde_json's default parser read
+// one ulp off (to the doubles written 0.098980530939144, 0.09610634215001304, ...).
+#[test]
+fn receipts_read_every_double_back_exactly() {
+    for text in [
+        "0.09898053093914401",
+        "0.09610634215001303",
+        "0.09405335015777659",
+        "0.09251360616359927",
+    ] {
+        let parsed: f64 = serde_json::from_str(text).unwrap();
+        assert_eq!(
+            parsed.to_bits(),
+            text.parse::<f64>().unwrap().to_bits(),
+            "{text}"
+        );
+    }
+    // Doubles spread over every exponent (a 64-bit LCG, Knuth's MMIX constants, over the bit
+    // patterns), written as result.json writes them and read back.
+    let mut state: u64 = 1;
+    for _ in 0..200_000 {
+        state = state
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        let value = f64::from_bits(state);
+        if !value.is_finite() {
+            continue;
+        }
+        let written = serde_json::to_string(&value).unwrap();
+        let read: f64 = serde_json::from_str(&written).unwrap();
+        assert_eq!(read.to_bits(), value.to_bits(), "{written}");
+    }
+}
+
+// `beta.window_start` sets the window, so a `--set` of it over a case that writes `lookback`
+// wins, and the run's notes say so (a case file that writes both is refused: the catalogue).
+#[test]
+fn window_start_by_set_wins_and_the_run_says_so() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let run = run_into(&sandbox, &out, &["--set", "beta.window_start=2022-01-31"]);
+    assert!(run.status.success(), "{}", stderr(&run));
+    let stdout = String::from_utf8_lossy(&run.stdout);
+    assert!(
+        stdout.contains("beta.window_start = 2022-01-31") && stdout.contains("is not used"),
+        "{stdout}"
+    );
+    let receipt: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    // 2022-01-31 is a month-end, so it is the window's first sample point (README, Sampling).
+    assert_eq!(receipt["sampling"]["window_start"], "2022-01-31");
+}
+
+// A move beyond the plausibility bound is refused until the case lists its date; then it is
+// used. Line 848 of the Corrowick file is 2023-03-31; raising that price fourfold makes a
+// jump up on 2023-03-31 and one down on 2023-04-03.
+#[test]
+fn an_accepted_jump_is_used() {
+    let sandbox = Sandbox::new();
+    let file = "data/peers/corrowick.csv";
+    let row = sandbox.read(file).lines().nth(847).unwrap().to_string();
+    let (date, price) = row.split_once(',').unwrap();
+    assert_eq!(date, "2023-03-31");
+    let raised = price.parse::<f64>().unwrap() * 4.0;
+    sandbox.set_value(file, 848, &raised.to_string());
+    let case = sandbox.path("case.toml");
+    let refused = hurdle(&["betas", case.to_str().unwrap()]);
+    assert_eq!(refused.status.code(), Some(2));
+    assert!(
+        stderr(&refused).contains("line 848"),
+        "{}",
+        stderr(&refused)
+    );
+    sandbox.edit_case(
+        "prices = \"data/peers/corrowick.csv\"",
+        "prices = \"data/peers/corrowick.csv\"\naccept_jumps = [2023-03-31, 2023-04-03]",
+    );
+    let accepted = hurdle(&["betas", case.to_str().unwrap(), "--format", "json"]);
+    assert!(accepted.status.success(), "{}", stderr(&accepted));
+    let peers: serde_json::Value = serde_json::from_slice(&accepted.stdout).unwrap();
+    let original = hurdle(&["betas", common::DEMO_CASE, "--format", "json"]);
+    let before: serde_json::Value = serde_json::from_slice(&original.stdout).unwrap();
+    // The month-end price moved, so Corrowick's March and April 2023 returns and its beta move.
+    assert_ne!(peers[1]["beta"], before[1]["beta"]);
+    assert_eq!(peers[0]["beta"], before[0]["beta"]);
+}
+
+// A second run into the same folder replaces every output, leaves no temporary folder, and a
+// failed run afterwards leaves the first outputs as they were.
+#[test]
+fn outputs_are_replaced_as_a_group_and_a_failure_leaves_them_alone() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    assert!(run_into(&sandbox, &out, &[]).status.success());
+    let second = run_into(
+        &sandbox,
+        &out,
+        &["--set", "market.equity_risk_premium=0.06"],
+    );
+    assert!(second.status.success(), "{}", stderr(&second));
+    let receipt: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    assert_eq!(receipt["equity_risk_premium"], 0.06);
+    let memo = fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(
+        memo.contains("market.equity_risk_premium=0.06"),
+        "the memo is the second run's"
+    );
+    let before = tree_hashes(sandbox.root.path());
+    let failed = run_into(&sandbox, &out, &["--set", "market.equity_risk_premium=nan"]);
+    assert_eq!(failed.status.code(), Some(2));
+    assert_eq!(tree_hashes(sandbox.root.path()), before);
+    let names: Vec<String> = fs::read_dir(sandbox.root.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    assert!(
+        names.iter().all(|n| !n.starts_with(".hurdle-staging")),
+        "{names:?}"
+    );
+}
+
+// Ctrl-C during a long Monte Carlo leaves nothing behind and exits 130 (128 + SIGINT, the shell
+// convention). A million draws take seconds, so the signal arrives during the work.
+#[test]
+fn ctrl_c_leaves_no_output() {
+    let sandbox = Sandbox::new();
+    let root = sandbox.root.path();
+    let before = tree_hashes(root);
+    let child = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["run", sandbox.path("case.toml").to_str().unwrap(), "--out"])
+        .arg(root.join("out"))
+        .args(["--set", "uncertainty.draws=1000000"])
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(700));
+    let signal = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(signal.success());
+    let output = child.wait_with_output().unwrap();
+    assert_eq!(output.status.code(), Some(130), "{}", stderr(&output));
+    assert!(
+        stderr(&output).contains("interrupted"),
+        "{}",
+        stderr(&output)
+    );
+    assert_eq!(tree_hashes(root), before);
+}
+
+// Work longer than a second shows a bar only on a terminal: here stderr is a pipe, so a
+// 400 000-draw run (about two seconds) must print nothing there.
+#[test]
+fn no_progress_bar_off_a_terminal() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let run = run_into(&sandbox, &out, &["--set", "uncertainty.draws=400000"]);
+    assert!(run.status.success(), "{}", stderr(&run));
+    assert_eq!(stderr(&run), "");
+}
+
+// A reader that stops early (`hurdle betas CASE | head -1`) closes the pipe; hurdle then stops
+// as a Unix filter does, with the SIGPIPE status 141, instead of panicking (exit 101). The
+// reader is closed before hurdle has finished reading the case, so its first write fails.
+#[test]
+fn a_closed_pipe_is_not_a_panic() {
+    let child = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["betas", common::DEMO_CASE])
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut child = child;
+    drop(child.stdout.take());
+    let output = child.wait_with_output().unwrap();
+    assert!(!stderr(&output).contains("panicked"), "{}", stderr(&output));
+    assert_eq!(output.status.code(), Some(141), "{}", stderr(&output));
+}

@@ -1,0 +1,344 @@
+//! Schema 2's names on the demo case: every renamed field, column, case key and option value is
+//! present under its new name and absent under its old one; an old case key or option value is
+//! refused with a message naming the new one; a version-1 receipt is refused by `verify` with the
+//! reason; a non-default Blume weight is applied (checked by hand and by the numpy/scipy reference
+//! script, which reads the weight from result.json's settings). The list of renames checked here is
+//! the one README's Changelog publishes, and the test checks that README carries each of them.
+
+use std::path::Path;
+use std::process::Output;
+
+mod common;
+
+use common::{copy_demo_case, hurdle, number, reference_check, DEMO_CASE};
+
+/// Renamed `result.json` fields, `(path of the object holding it, old, new)`; `[]` is every
+/// element of an array.
+const JSON_RENAMES: [(&str, &str, &str); 8] = [
+    ("peers[]", "adjusted_beta", "shrunk_beta"),
+    (
+        "peers[]",
+        "cash_corrected_unlevered_beta",
+        "operations_beta",
+    ),
+    ("peers[]", "cash_share_of_capital", "operating_share"),
+    ("beta", "cash_corrected", "uses_operations_beta"),
+    ("beta", "unlevered_plain", "aggregate_of_unlevered"),
+    (
+        "beta",
+        "unlevered_cash_corrected",
+        "aggregate_of_operations",
+    ),
+    (
+        "leverage_comparison[]",
+        "peer_cash_corrected_unlevered_betas",
+        "peer_operations_betas",
+    ),
+    ("settings.leverage", "cash_correction", "operations_beta"),
+];
+
+/// Renamed `peers.csv` columns.
+const CSV_RENAMES: [(&str, &str); 3] = [
+    ("adjusted_beta", "shrunk_beta"),
+    ("cash_corrected_unlevered_beta", "operations_beta"),
+    ("cash_share_of_capital", "operating_share"),
+];
+
+/// Renamed case keys, as `--set` paths.
+const KEY_RENAMES: [(&str, &str); 2] = [
+    ("leverage.cash_correction", "leverage.operations_beta"),
+    ("premiums.country_lambda", "premiums.country_exposure"),
+];
+
+/// Renamed values of `premiums.country_method`.
+const OPTION_RENAMES: [(&str, &str); 3] = [
+    ("added", "flat"),
+    ("lambda", "exposure"),
+    ("beta", "beta-scaled"),
+];
+
+fn text(output: &Output) -> String {
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&output.stdout),
+        String::from_utf8_lossy(&output.stderr)
+    )
+}
+
+fn run_demo(out: &Path, sets: &[&str]) -> serde_json::Value {
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for set in sets {
+        args.extend_from_slice(&["--set", set]);
+    }
+    let output = hurdle(&args);
+    assert!(output.status.success(), "{sets:?}: {}", text(&output));
+    serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
+}
+
+/// Runs the demo with `sets`, expects exit 2 and no output, and returns the message.
+fn refused(sets: &[&str]) -> String {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for set in sets {
+        args.extend_from_slice(&["--set", set]);
+    }
+    let output = hurdle(&args);
+    assert_eq!(output.status.code(), Some(2), "{sets:?}: {}", text(&output));
+    assert!(!out.exists(), "{sets:?}: output written on failure");
+    text(&output)
+}
+
+/// The JSON objects at `path` (`a.b`, or `a[]` for each element of the array `a`).
+fn objects<'a>(root: &'a serde_json::Value, path: &str) -> Vec<&'a serde_json::Value> {
+    let (path, each) = match path.strip_suffix("[]") {
+        Some(p) => (p, true),
+        None => (path, false),
+    };
+    let value = path.split('.').fold(root, |v, key| &v[key]);
+    if each {
+        value.as_array().expect("an array").iter().collect()
+    } else {
+        vec![value]
+    }
+}
+
+#[test]
+fn renamed_fields_and_columns_are_present_and_the_old_ones_absent() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &[]);
+    assert_eq!(result["schema_version"], 2);
+    for (path, old, new) in JSON_RENAMES {
+        let found = objects(&result, path);
+        assert!(!found.is_empty(), "{path} is empty");
+        for object in found {
+            assert!(object.get(new).is_some(), "{path}.{new} missing");
+            assert!(object.get(old).is_none(), "{path}.{old} still written");
+        }
+    }
+    let premiums = &result["settings"]["premiums"];
+    assert!(premiums.get("country_exposure").is_some() && premiums.get("country_lambda").is_none());
+    assert_eq!(premiums["country_method"], "flat");
+    assert_eq!(result["premiums"]["country_method"], "flat");
+    // The default weight of README's case-file reference.
+    assert_eq!(result["settings"]["beta"]["blume_weight"], 0.67);
+    // No old name survives anywhere in the receipt, even nested.
+    let receipt = std::fs::read_to_string(dir.path().join("result.json")).unwrap();
+    for (_, old, _) in JSON_RENAMES {
+        assert!(
+            !receipt.contains(&format!("\"{old}\"")),
+            "{old} in result.json"
+        );
+    }
+    assert!(!receipt.contains("\"country_lambda\""));
+
+    let csv = std::fs::read_to_string(dir.path().join("peers.csv")).unwrap();
+    let header: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
+    for (old, new) in CSV_RENAMES {
+        assert!(header.contains(&new), "peers.csv lacks {new}");
+        assert!(!header.contains(&old), "peers.csv still has {old}");
+    }
+    // Each row has as many cells as the header (no name in the demo has a comma).
+    for line in csv.lines().skip(1) {
+        assert_eq!(line.split(',').count(), header.len(), "{line}");
+    }
+}
+
+#[test]
+fn old_case_keys_and_option_values_are_refused_with_their_new_names() {
+    for (old, new) in KEY_RENAMES {
+        let value = if old.starts_with("leverage") {
+            "true"
+        } else {
+            "0.5"
+        };
+        let message = refused(&[&format!("{old}={value}")]);
+        assert!(
+            message.contains(&format!("{old} = {value} was renamed to {new}")),
+            "{message}"
+        );
+    }
+    for (old, new) in OPTION_RENAMES {
+        let message = refused(&[&format!("premiums.country_method={old}")]);
+        assert!(
+            message.contains(&format!("\"{old}\" was renamed to \"{new}\"")),
+            "{message}"
+        );
+    }
+    // The same key written in a case file (not by --set): the file is named, and the new key.
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    copy_demo_case(&case_dir);
+    let case = case_dir.join("case.toml");
+    let written = std::fs::read_to_string(&case).unwrap().replace(
+        "aggregation = \"median\"\n",
+        "aggregation = \"median\"\ncash_correction = true\n",
+    );
+    assert!(written.contains("cash_correction = true"));
+    std::fs::write(&case, written).unwrap();
+    let output = hurdle(&["betas", case.to_str().unwrap()]);
+    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
+    let message = text(&output);
+    assert!(
+        message.contains("case.toml")
+            && message.contains("leverage.cash_correction = true was renamed to")
+            && message.contains("leverage.operations_beta = true"),
+        "{message}"
+    );
+    // And as a grid axis, which goes through the what-if path.
+    let output = hurdle(&[
+        "grid",
+        DEMO_CASE,
+        "--rows",
+        "premiums.country_lambda=0..1:0.5",
+        "--cols",
+        "target.debt_to_equity=0..1:0.5",
+        "--csv",
+        dir.path().join("grid.csv").to_str().unwrap(),
+    ]);
+    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
+    assert!(
+        text(&output).contains("premiums.country_exposure"),
+        "{}",
+        text(&output)
+    );
+}
+
+// Blume's form w·β + (1 − w) (Blume 1971, J. Finance 26(1)) with w = 0.5, written out here from
+// each peer's raw beta; the reference script recomputes it (and everything after it) with the
+// weight it reads from result.json's settings.
+#[test]
+fn a_non_default_blume_weight_is_applied() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["beta.blume_weight=0.5"]);
+    assert_eq!(result["settings"]["beta"]["blume_weight"], 0.5);
+    for peer in result["peers"].as_array().unwrap() {
+        let expected = 0.5 * number(peer, "beta") + 0.5;
+        // 1e-15: one product and one sum.
+        assert!((number(peer, "shrunk_beta") - expected).abs() < 1e-15);
+        assert_eq!(peer["beta_used"], peer["shrunk_beta"]);
+    }
+    reference_check(dir.path(), "beta.blume_weight=0.5");
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains("0.50 on the raw β (beta.blume_weight)"),
+        "memo lacks the weight"
+    );
+    // Weight 1 leaves the raw beta.
+    let raw = run_demo(dir.path(), &["beta.blume_weight=1"]);
+    for peer in raw["peers"].as_array().unwrap() {
+        assert_eq!(peer["shrunk_beta"], peer["beta"]);
+    }
+}
+
+#[test]
+fn a_blume_weight_outside_zero_to_one_is_refused() {
+    for value in ["0", "1.5", "-0.2"] {
+        let message = refused(&[&format!("beta.blume_weight={value}")]);
+        assert!(
+            message.contains(&format!("beta.blume_weight = {value}")) && message.contains("(0, 1]"),
+            "{message}"
+        );
+    }
+}
+
+#[test]
+fn verify_explains_why_a_version_1_receipt_cannot_be_verified() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    copy_demo_case(&case_dir);
+    let out = dir.path().join("out");
+    let output = hurdle(&[
+        "run",
+        case_dir.join("case.toml").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(output.status.success(), "{}", text(&output));
+    // A receipt as schema 1 wrote it: the version, and an old field name.
+    let mut result: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    result["schema_version"] = serde_json::json!(1);
+    let peer = result["peers"][0].as_object_mut().unwrap();
+    let shrunk = peer.remove("shrunk_beta").unwrap();
+    peer.insert("adjusted_beta".into(), shrunk);
+    let receipt = out.join("version1.json");
+    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
+    let output = hurdle(&["verify", receipt.to_str().unwrap()]);
+    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
+    let message = text(&output);
+    assert!(
+        message.contains("schema_version 1 is older")
+            && message.contains("renamed")
+            && message.contains("Changelog"),
+        "{message}"
+    );
+}
+
+#[test]
+fn readme_changelog_lists_every_rename() {
+    let readme =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+    let changelog = &readme[readme.find("## Changelog").expect("README has a Changelog")..];
+    // Line breaks inside a list item are spaces.
+    let changelog = changelog.split_whitespace().collect::<Vec<_>>().join(" ");
+    let mut pairs: Vec<(String, String)> = Vec::new();
+    // result.json fields by their path (`peers[].shrunk_beta`); the settings echo the case keys,
+    // listed below as keys.
+    pairs.extend(
+        JSON_RENAMES
+            .iter()
+            .filter(|(path, _, _)| !path.starts_with("settings"))
+            .map(|(path, old, new)| (format!("{path}.{old}"), format!("{path}.{new}"))),
+    );
+    pairs.extend(
+        CSV_RENAMES
+            .iter()
+            .map(|(o, n)| (o.to_string(), n.to_string())),
+    );
+    pairs.extend(
+        KEY_RENAMES
+            .iter()
+            .map(|(o, n)| (o.to_string(), n.to_string())),
+    );
+    pairs.extend(
+        OPTION_RENAMES
+            .iter()
+            .map(|(o, n)| (format!("\"{o}\""), format!("\"{n}\""))),
+    );
+    for (old, new) in pairs {
+        assert!(
+            changelog.contains(&format!("`{old}` → `{new}`")),
+            "README's Changelog lacks `{old}` → `{new}`"
+        );
+    }
+}
+
+// The memo's wording that issue 13 asks for, phrase by phrase, and the beta of the operations as
+// its own table (not columns trailing the unlevering table).
+#[test]
+fn the_memo_states_its_assumptions_and_the_operations_step_on_its_own() {
+    let dir = tempfile::tempdir().unwrap();
+    run_demo(dir.path(), &["debt.source=coverage"]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let flat = memo.split_whitespace().collect::<Vec<_>>().join(" ");
+    for phrase in [
+        "That is an assumption this tool cannot check",
+        "as supplied in the case",
+        "the data cannot reject, at the 5% level, any beta inside the interval",
+        "Size and company-specific premiums are judgement calls",
+        "contested in the literature",
+        "A synthetic rating is not an agency rating",
+        "a flat addition, the same for every firm in the country",
+        "### The beta of the operations",
+    ] {
+        assert!(flat.contains(phrase), "memo lacks \"{phrase}\"");
+    }
+    let unlevering_header = memo
+        .lines()
+        .find(|l| l.starts_with("| Peer | D/E |"))
+        .expect("the unlevering table");
+    assert!(!unlevering_header.contains("Cash"), "{unlevering_header}");
+    let operations = &memo[memo.find("### The beta of the operations").unwrap()..];
+    assert!(operations.contains("| β of the operations |"));
+}

@@ -1,0 +1,639 @@
+//! Wide price tables and `hurdle init`.
+//!
+//! The demo shipped as one table (CSV and workbook) must give the receipt of the file-per-series
+//! demo, figure for figure, apart from the input paths and hashes: two independent readers
+//! (data.rs per file, tables/ per column) of the same prices. Workbook fixtures written by
+//! openpyxl and converted by LibreOffice (tests/data/tables/make_fixtures.py) check every form
+//! a cell takes; a Parquet file is written by polars. `hurdle init` on the wide demo, with its
+//! placeholders filled from the demo's own figures, must give the demo's WACC. Each bad input
+//! exits with status 2, names the file, sheet, cell or column and the value, and writes nothing.
+
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::Output;
+
+use chrono::NaiveDate;
+use hurdle::demo_wide::{INDEX_COLUMN, RISK_FREE_COLUMN};
+use hurdle::io::series::ValueKind;
+use hurdle::io::tables::PriceTable;
+use serde_json::Value;
+
+mod common;
+
+use common::{copy_wide_case, hurdle, DEMO_CASE, WIDE_DIR};
+
+const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/tables");
+
+fn ok(output: &Output) -> String {
+    assert!(
+        output.status.success(),
+        "failed: {}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    String::from_utf8_lossy(&output.stdout).into_owned()
+}
+
+fn run_case(case: &Path, out: &Path, extra: &[&str]) -> Output {
+    let mut args = vec![
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    args.extend(extra);
+    hurdle(&args)
+}
+
+fn receipt(out: &Path) -> Value {
+    serde_json::from_str(&fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
+}
+
+/// Every leaf of a JSON value by its path (`files[2].sha256`).
+fn leaves(value: &Value, path: String, into: &mut Vec<(String, Value)>) {
+    match value {
+        Value::Object(map) => map
+            .iter()
+            .for_each(|(k, v)| leaves(v, format!("{path}.{k}"), into)),
+        Value::Array(items) => items
+            .iter()
+            .enumerate()
+            .for_each(|(i, v)| leaves(v, format!("{path}[{i}]"), into)),
+        other => into.push((path, other.clone())),
+    }
+}
+
+/// Where the two forms of a case may differ: where the prices were read from.
+fn is_input_location(path: &str) -> bool {
+    let allowed = [
+        ".case.file",
+        ".case.sha256",
+        ".generated_at",
+        ".settings.sources.",
+        ".settings.market.index.prices",
+        ".settings.market.index.source",
+        ".settings.market.index.column",
+        ".settings.market.risk_free_series.yields",
+        ".settings.market.risk_free_series.source",
+        ".settings.market.risk_free_series.column",
+    ];
+    let per_item = [
+        (".files[", &[".path", ".sha256", ".sheet", ".column"][..]),
+        (".peers[", &[".prices_file"][..]),
+        (".settings.peer[", &[".prices", ".source", ".column"][..]),
+    ];
+    allowed.iter().any(|a| path.starts_with(a))
+        || per_item
+            .iter()
+            .any(|(start, ends)| path.starts_with(start) && ends.iter().any(|e| path.ends_with(e)))
+}
+
+// Source of truth: the same demo prices read one file per series by data.rs. Every figure of
+// result.json must be identical (the same decimal text becomes the same double in both
+// readers, so no tolerance is needed); only input locations may differ.
+#[test]
+fn wide_tables_give_the_receipt_of_the_file_per_series_demo() {
+    let dir = tempfile::tempdir().unwrap();
+    let per_file = dir.path().join("per-file");
+    ok(&run_case(Path::new(DEMO_CASE), &per_file, &[]));
+    let mut reference = Vec::new();
+    leaves(&receipt(&per_file), String::new(), &mut reference);
+    for (case, sheet) in [("case.toml", None), ("case_workbook.toml", Some("Prices"))] {
+        let out = dir.path().join(case);
+        ok(&run_case(&Path::new(WIDE_DIR).join(case), &out, &[]));
+        let wide = receipt(&out);
+        let mut leaves_wide = Vec::new();
+        leaves(&wide, String::new(), &mut leaves_wide);
+        let keep = |l: &Vec<(String, Value)>| -> Vec<(String, Value)> {
+            l.iter()
+                .filter(|(p, _)| !is_input_location(p))
+                .cloned()
+                .collect()
+        };
+        let (a, b) = (keep(&reference), keep(&leaves_wide));
+        // A guard against comparing two nearly empty receipts: the demo's has about 900 leaves.
+        assert!(a.len() > 800, "too few figures compared: {}", a.len());
+        for ((pa, va), (pb, vb)) in a.iter().zip(&b) {
+            assert_eq!((pa, va), (pb, vb), "{case}");
+        }
+        assert_eq!(a.len(), b.len(), "{case}");
+        // The receipt records the table, its sheet and each series' column.
+        let files = wide["files"].as_array().unwrap();
+        assert_eq!(files[0]["column"], INDEX_COLUMN);
+        assert_eq!(files[1]["column"], RISK_FREE_COLUMN);
+        assert_eq!(files[2]["column"], "Brenvale Fluid Systems");
+        for file in files {
+            assert_eq!(file["sheet"].as_str(), sheet, "{case}");
+            assert_eq!(file["sha256"], files[0]["sha256"]);
+        }
+    }
+}
+
+// `hurdle verify` reruns a wide-table receipt, and sees an edited price in the table.
+#[test]
+fn verify_reproduces_a_wide_receipt_and_sees_an_edited_table() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    copy_wide_case(&case_dir);
+    let out = case_dir.join("output");
+    ok(&run_case(&case_dir.join("case.toml"), &out, &[]));
+    let receipt_path = out.join("result.json");
+    let verified = hurdle(&["verify", receipt_path.to_str().unwrap()]);
+    assert_eq!(verified.status.code(), Some(0), "{}", ok(&verified));
+    let table = case_dir.join("data/prices.csv");
+    let text = fs::read_to_string(&table).unwrap();
+    let line = text.lines().nth(1000).unwrap().to_string();
+    let mut cells: Vec<String> = line.split(',').map(String::from).collect();
+    let price: f64 = cells[4].parse().unwrap();
+    cells[4] = format!("{:.4}", price * 1.5);
+    fs::write(&table, text.replacen(&line, &cells.join(","), 1)).unwrap();
+    let verified = hurdle(&["verify", receipt_path.to_str().unwrap()]);
+    let stdout = String::from_utf8_lossy(&verified.stdout);
+    assert_eq!(verified.status.code(), Some(1), "{stdout}");
+    assert!(
+        stdout.contains("data/prices.csv") && stdout.contains("CHANGED"),
+        "{stdout}"
+    );
+}
+
+fn day(y: i32, m: u32, d: u32) -> NaiveDate {
+    NaiveDate::from_ymd_opt(y, m, d).unwrap()
+}
+
+// The fixture as make_fixtures.py writes it: a real date, a serial number (45351), ISO text and
+// a date with a time of day; numbers, numbers stored as text (" 23 " with spaces), an empty cell.
+fn expected_fixture() -> Vec<(&'static str, Vec<(NaiveDate, f64)>)> {
+    let dates = [
+        day(2024, 1, 31),
+        day(2024, 2, 29),
+        day(2024, 3, 28),
+        day(2024, 4, 30),
+    ];
+    vec![
+        (
+            "Alder",
+            vec![(dates[0], 10.5), (dates[1], 11.0), (dates[3], 12.25)],
+        ),
+        (
+            "Birch",
+            dates
+                .iter()
+                .copied()
+                .zip([20.25, 21.0, 22.5, 23.0])
+                .collect(),
+        ),
+        (
+            "Cedar index",
+            dates
+                .iter()
+                .copied()
+                .zip([100.0, 101.0, 102.5, 103.0])
+                .collect(),
+        ),
+    ]
+}
+
+fn check_table(table: &PriceTable, label: &str) {
+    assert_eq!(table.date_column, "date", "{label}");
+    for (column, expected) in expected_fixture() {
+        let file = table.series("peer", column, ValueKind::Price).unwrap();
+        let got: Vec<(NaiveDate, f64)> = file
+            .series
+            .dates
+            .iter()
+            .copied()
+            .zip(file.series.values.iter().copied())
+            .collect();
+        assert_eq!(got, expected, "{label}, column {column}");
+    }
+}
+
+// Workbooks written by openpyxl (.xlsx) and converted by LibreOffice (.ods, .xls).
+#[test]
+fn every_cell_form_of_a_workbook_is_read() {
+    for name in ["mixed.xlsx", "mixed.ods", "mixed.xls"] {
+        let path = Path::new(FIXTURES).join(name);
+        let table = PriceTable::read(name, &path, Some("Prices"), None).unwrap();
+        assert_eq!(table.sheet.as_deref(), Some("Prices"));
+        check_table(&table, name);
+        let bytes = fs::read(&path).unwrap();
+        assert_eq!(table.sha256, hurdle::io::series::sha256_hex(&bytes));
+    }
+}
+
+// A Parquet file written by polars: a typed date column, float prices with a null, and a text
+// column of numbers.
+#[test]
+fn parquet_tables_are_read() {
+    use polars::prelude::*;
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("prices.parquet");
+    let epoch = day(1970, 1, 1);
+    let days: Vec<i32> = expected_fixture()[1]
+        .1
+        .iter()
+        .map(|(d, _)| (*d - epoch).num_days() as i32)
+        .collect();
+    let dates = Series::new("date".into(), days)
+        .cast(&DataType::Date)
+        .unwrap();
+    let alder = Series::new("Alder".into(), [Some(10.5), Some(11.0), None, Some(12.25)]);
+    let birch = Series::new("Birch".into(), ["20.25", "21", "22.5", " 23 "]);
+    let cedar = Series::new("Cedar index".into(), [100.0, 101.0, 102.5, 103.0]);
+    let mut frame =
+        DataFrame::new_infer_height(vec![dates.into(), alder.into(), birch.into(), cedar.into()])
+            .unwrap();
+    let file = fs::File::create(&path).unwrap();
+    ParquetWriter::new(file).finish(&mut frame).unwrap();
+    let table = PriceTable::read("prices.parquet", &path, None, None).unwrap();
+    check_table(&table, "parquet");
+}
+
+/// A copy of the wide demo in `<tmp>/case`, and its output folder `<tmp>/out`.
+struct WideCopy {
+    root: tempfile::TempDir,
+}
+
+impl WideCopy {
+    fn new() -> WideCopy {
+        let root = tempfile::tempdir().unwrap();
+        copy_wide_case(&root.path().join("case"));
+        WideCopy { root }
+    }
+
+    fn path(&self, relative: &str) -> PathBuf {
+        self.root.path().join("case").join(relative)
+    }
+
+    fn edit(&self, relative: &str, from: &str, to: &str) {
+        let text = fs::read_to_string(self.path(relative)).unwrap();
+        assert_eq!(text.matches(from).count(), 1, "`{from}` once in {relative}");
+        fs::write(self.path(relative), text.replacen(from, to, 1)).unwrap();
+    }
+
+    /// Runs `case`, asserts exit 2 with no output and returns stderr.
+    fn fail(&self, case: &str) -> String {
+        let out = self.root.path().join("out");
+        let output = run_case(&self.path(case), &out, &[]);
+        let stderr = String::from_utf8_lossy(&output.stderr).into_owned();
+        assert_eq!(output.status.code(), Some(2), "{stderr}");
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        assert!(!out.exists(), "output written; {stderr}");
+        stderr
+    }
+
+    /// Rewrites data/prices.xlsx from data/prices.csv (dates as date cells, prices as numbers),
+    /// with `edit` choosing a text cell instead at (row, column) of the table.
+    fn workbook_with_text_cell(&self, row: u32, col: u16, text: &str) {
+        use rust_xlsxwriter::{ExcelDateTime, Workbook};
+        let csv = fs::read_to_string(self.path("data/prices.csv")).unwrap();
+        let mut book = Workbook::new();
+        book.add_worksheet().set_name("About").unwrap();
+        let sheet = book.add_worksheet();
+        sheet.set_name("Prices").unwrap();
+        for (r, line) in csv.lines().enumerate() {
+            for (c, cell) in line.split(',').enumerate() {
+                let (r, c) = (r as u32, c as u16);
+                if (r, c) == (row, col) {
+                    sheet.write_string(r, c, text).unwrap();
+                } else if r == 0 {
+                    sheet.write_string(r, c, cell).unwrap();
+                } else if c == 0 {
+                    let d = NaiveDate::parse_from_str(cell, "%Y-%m-%d").unwrap();
+                    let cell = ExcelDateTime::parse_from_str(&d.to_string()).unwrap();
+                    sheet.write_datetime(r, c, &cell).unwrap();
+                } else if !cell.is_empty() {
+                    sheet
+                        .write_number(r, c, cell.parse::<f64>().unwrap())
+                        .unwrap();
+                }
+            }
+        }
+        book.save(self.path("data/prices.xlsx")).unwrap();
+    }
+}
+
+#[test]
+fn a_sheet_that_is_not_there_lists_the_sheets() {
+    let copy = WideCopy::new();
+    copy.edit(
+        "case_workbook.toml",
+        "sheet = \"Prices\"",
+        "sheet = \"Prize\"",
+    );
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(stderr.contains("data/prices.xlsx"), "{stderr}");
+    assert!(
+        stderr.contains("no sheet named \"Prize\"; its sheets are: \"About\", \"Prices\""),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn a_column_that_is_not_there_lists_the_columns() {
+    let copy = WideCopy::new();
+    for case in ["case.toml", "case_workbook.toml"] {
+        copy.edit(
+            case,
+            "column = \"Corrowick Valves\"",
+            "column = \"Corrowick\"",
+        );
+        let stderr = copy.fail(case);
+        assert!(stderr.contains("no column named `Corrowick`"), "{stderr}");
+        assert!(
+            stderr.contains("`Corrowick Valves`, `Dunmere Hydraulics`"),
+            "{stderr}"
+        );
+        assert!(
+            stderr.contains("peer.1 (peer \"Corrowick Valves\").column"),
+            "{stderr}"
+        );
+    }
+}
+
+#[test]
+fn a_date_cell_that_is_not_a_date_is_named() {
+    let copy = WideCopy::new();
+    copy.workbook_with_text_cell(5, 0, "31/01/2020");
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(stderr.contains("sheet \"Prices\", cell A6"), "{stderr}");
+    assert!(
+        stderr.contains("the text \"31/01/2020\" is not a date"),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn text_in_a_price_cell_is_named() {
+    let copy = WideCopy::new();
+    copy.workbook_with_text_cell(7, 3, "n/a");
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(stderr.contains("sheet \"Prices\", cell D8"), "{stderr}");
+    assert!(
+        stderr.contains("column `Brenvale Fluid Systems`"),
+        "{stderr}"
+    );
+    assert!(
+        stderr.contains("the text \"n/a\" is not a number"),
+        "{stderr}"
+    );
+    // The CSV form names the line.
+    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
+    let line = csv.lines().nth(9).unwrap().to_string();
+    let mut cells: Vec<&str> = line.split(',').collect();
+    cells[4] = "#N/A";
+    fs::write(
+        copy.path("data/prices.csv"),
+        csv.replacen(&line, &cells.join(","), 1),
+    )
+    .unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(
+        stderr.contains("line 10, column `Corrowick Valves`"),
+        "{stderr}"
+    );
+    assert!(stderr.contains("\"#N/A\" is not a number"), "{stderr}");
+}
+
+#[test]
+fn duplicate_dates_are_named_with_both_rows() {
+    let copy = WideCopy::new();
+    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
+    let lines: Vec<&str> = csv.lines().collect();
+    let mut edited: Vec<&str> = lines.clone();
+    edited.insert(12, lines[11]);
+    fs::write(copy.path("data/prices.csv"), edited.join("\n") + "\n").unwrap();
+    let stderr = copy.fail("case.toml");
+    let date = lines[11].split(',').next().unwrap();
+    assert!(
+        stderr.contains(&format!(
+            "line 13, column `date`: duplicate date {date} (also in line 12"
+        )),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn an_encrypted_workbook_or_a_file_that_is_none_is_refused() {
+    let copy = WideCopy::new();
+    fs::copy(
+        Path::new(FIXTURES).join("encrypted.xlsx"),
+        copy.path("data/prices.xlsx"),
+    )
+    .unwrap();
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(
+        stderr.contains("data/prices.xlsx: is encrypted (password-protected)"),
+        "{stderr}"
+    );
+    fs::write(copy.path("data/prices.xlsx"), "date,price\n2024-01-31,10\n").unwrap();
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(
+        stderr.contains("data/prices.xlsx: is not a .xlsx workbook"),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn a_series_with_both_a_file_and_a_source_is_refused() {
+    let copy = WideCopy::new();
+    copy.edit(
+        "case.toml",
+        "source = \"prices\"\ncolumn = \"Dunmere Hydraulics\"",
+        "source = \"prices\"\ncolumn = \"Dunmere Hydraulics\"\nprices = \"data/dunmere.csv\"",
+    );
+    let stderr = copy.fail("case.toml");
+    assert!(
+        stderr.contains("peer.2 (peer \"Dunmere Hydraulics\") has both `prices`"),
+        "{stderr}"
+    );
+    let copy = WideCopy::new();
+    copy.edit("case.toml", "[sources.prices]", "[sources.table]");
+    let stderr = copy.fail("case.toml");
+    assert!(stderr.contains("market.index.source = \"prices\" is not a table under [sources]; the case has \"table\""), "{stderr}");
+}
+
+fn init(args: &[&str]) -> Output {
+    let mut all = vec!["init"];
+    all.extend(args);
+    hurdle(&all)
+}
+
+#[test]
+fn init_refuses_a_table_without_peers_or_dates() {
+    let dir = tempfile::tempdir().unwrap();
+    let one = dir.path().join("one.csv");
+    fs::write(&one, "date,Index\n2024-01-31,100\n2024-02-29,101\n").unwrap();
+    let out = dir.path().join("case.toml");
+    let output = init(&[
+        one.to_str().unwrap(),
+        "--index",
+        "Index",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("one.csv: the table has 1 price column(s) (`Index`)"),
+        "{stderr}"
+    );
+    assert!(!out.exists());
+    let names = dir.path().join("names.csv");
+    fs::write(
+        &names,
+        "security,Index,Alder\nfirst,100,10\nsecond,101,11\n",
+    )
+    .unwrap();
+    let output = init(&[
+        names.to_str().unwrap(),
+        "--index",
+        "Index",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains(
+            "line 2, column `security` (date column `security`): the text \"first\" is not a date"
+        ),
+        "{stderr}"
+    );
+    assert!(stderr.contains("--date-column"), "{stderr}");
+    let output = init(&[
+        names.to_str().unwrap(),
+        "--index",
+        "Index",
+        "--date-column",
+        "Date",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr
+            .contains("no date column named `Date`; the header has: `security`, `Index`, `Alder`"),
+        "{stderr}"
+    );
+    assert!(!out.exists());
+}
+
+#[test]
+fn init_never_overwrites_and_its_placeholders_stop_a_run() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = dir.path().join("prices.xlsx");
+    fs::copy(Path::new(WIDE_DIR).join("data/prices.xlsx"), &table).unwrap();
+    let case = dir.path().join("case.toml");
+    let args = [
+        table.to_str().unwrap(),
+        "--sheet",
+        "Prices",
+        "--index",
+        INDEX_COLUMN,
+    ];
+    ok(&init(&args));
+    let written = fs::read_to_string(&case).unwrap();
+    assert!(written.contains("file = \"prices.xlsx\""), "{written}");
+    let again = init(&args);
+    assert_eq!(again.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&again.stderr).contains("init never overwrites"));
+    assert_eq!(fs::read_to_string(&case).unwrap(), written);
+    let out = dir.path().join("out");
+    let output = run_case(&case, &out, &[]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(!out.exists());
+    // Every placeholder is listed with its line: 3 in [case], 2 in [market], 2 in [target],
+    // 1 in [debt], 3 in [premiums] and 4 per peer (9 peers: the risk-free column is one here).
+    assert!(
+        stderr.contains("47 placeholders are still to fill in"),
+        "{stderr}"
+    );
+    let line = written
+        .lines()
+        .position(|l| l.starts_with("equity_risk_premium"))
+        .unwrap()
+        + 1;
+    assert!(
+        stderr.contains(&format!(
+            "line {line}: market.equity_risk_premium = \"<FILL IN"
+        )),
+        "{stderr}"
+    );
+    assert!(
+        stderr.contains("peer.8 (\"Ivelbrook Instruments\").tax_rate"),
+        "{stderr}"
+    );
+}
+
+/// The demo's figure for a placeholder key, as cases/quillmarsh/case.toml and src/demo.rs
+/// state them.
+fn demo_figure(section: &str, key: &str, peer: Option<usize>) -> String {
+    if let Some(i) = peer {
+        let p = &hurdle::demo::PEERS[i];
+        let value = match key {
+            "equity_value" => p.equity_value,
+            "debt" => p.debt,
+            "cash" => p.cash,
+            "tax_rate" => p.tax_rate,
+            _ => panic!("peer key {key}"),
+        };
+        // Debug keeps the decimal point, so TOML reads a float.
+        return format!("{value:?}");
+    }
+    let demo: toml::Table = toml::from_str(&fs::read_to_string(DEMO_CASE).unwrap()).unwrap();
+    demo[section][key].to_string()
+}
+
+// `hurdle init` on the demo's wide table, with every placeholder filled from the demo's own
+// figures (and the one setting the demo changes from its default, beta.adjustment = "blume"),
+// must give the WACC of the demo case: the same prices and inputs through the same arithmetic,
+// so the two doubles are equal.
+#[test]
+fn init_with_the_demo_figures_filled_in_reproduces_the_demo_wacc() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = Path::new(WIDE_DIR).join("data/prices.xlsx");
+    let case = dir.path().join("started.toml");
+    ok(&init(&[
+        table.to_str().unwrap(),
+        "--sheet",
+        "Prices",
+        "--index",
+        INDEX_COLUMN,
+        "--risk-free",
+        RISK_FREE_COLUMN,
+        "--out",
+        case.to_str().unwrap(),
+    ]));
+    let text = fs::read_to_string(&case).unwrap();
+    let (mut section, mut peer) = (String::new(), None::<usize>);
+    let mut filled = Vec::new();
+    for line in text.lines() {
+        if line == "[[peer]]" {
+            peer = Some(peer.map_or(0, |p| p + 1));
+        } else if line.starts_with('[') {
+            section = line.trim_matches(['[', ']']).to_string();
+        }
+        match line.split_once(" = \"<FILL IN") {
+            Some((key, _)) => {
+                let value = demo_figure(&section, key, peer);
+                filled.push(format!("{key} = {value}"));
+            }
+            None => filled.push(line.to_string()),
+        }
+    }
+    fs::write(&case, filled.join("\n")).unwrap();
+    let started = dir.path().join("started");
+    ok(&run_case(
+        &case,
+        &started,
+        &["--set", "beta.adjustment=blume"],
+    ));
+    let demo = dir.path().join("demo");
+    ok(&run_case(Path::new(DEMO_CASE), &demo, &[]));
+    let (a, b) = (receipt(&started), receipt(&demo));
+    assert_eq!(a["wacc"].as_f64(), b["wacc"].as_f64());
+    assert_eq!(a["beta"]["unlevered"], b["beta"]["unlevered"]);
+    assert!(a["wacc"].as_f64().unwrap() > 0.0);
+}
