@@ -305,7 +305,8 @@ fn scan_blocks(
         let mut first = true;
         let mut outcome = Ok(());
         for block in blocks_in.iter() {
-            outcome = each(&block, first);
+            // A stop request (Ctrl-C) ends the reading between two blocks.
+            outcome = crate::progress::check_stop().and_then(|()| each(&block, first));
             first = false;
             if outcome.is_err() {
                 break;

@@ -173,6 +173,7 @@ fn for_each_slice(
             .with_slice(Some((start, length)));
         slice.set_metadata(metadata.clone());
         let frame = slice.finish().map_err(unreadable)?;
+        crate::progress::check_stop()?;
         each(frame, start)?;
         start += length;
         length = 0;

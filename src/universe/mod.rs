@@ -177,14 +177,16 @@ pub fn evaluate(
     );
     check_overlap(inputs, &estimation)?;
     let panel = &inputs.panel;
+    // A stop request (Ctrl-C) ends the run between two securities, with nothing written.
     let estimates: Vec<SecurityEstimate> = (0..panel.len())
         .into_par_iter()
         .map(|i| {
+            crate::progress::check_stop()?;
             let estimate = estimation.security(panel.series(i));
             progress(1);
-            estimate
+            Ok(estimate)
         })
-        .collect();
+        .collect::<Result<_>>()?;
     let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
     let row_settings = RowSettings {
         leverage: &settings.leverage,
