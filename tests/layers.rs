@@ -5,8 +5,9 @@
 use std::path::Path;
 
 /// The layers in pipeline order; `error` and `demo` sit beside them.
-const LAYERS: [&str; 10] = [
+const LAYERS: [&str; 12] = [
     "io",
+    "panel",
     "market",
     "stats",
     "beta",
@@ -14,6 +15,7 @@ const LAYERS: [&str; 10] = [
     "capital",
     "case",
     "valuation",
+    "universe",
     "audit",
     "report",
 ];

@@ -14,6 +14,7 @@ pub mod implied;
 pub mod specification;
 pub mod uncertainty;
 pub mod verify;
+pub mod verify_universe;
 pub mod waterfall;
 
 use crate::error::{Error, Result};

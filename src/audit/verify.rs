@@ -92,6 +92,14 @@ pub fn verify(
     };
     let recorded: Value =
         serde_json::from_str(receipt).map_err(|e| fail(format!("not JSON: {e}")))?;
+    if recorded["kind"] == "universe" {
+        return super::verify_universe::verify_universe(
+            receipt_path,
+            &recorded,
+            case_path,
+            tolerance,
+        );
+    }
     let version = recorded["schema_version"]
         .as_u64()
         .ok_or_else(|| fail("has no schema_version; is it a hurdle result.json?".into()))?;
@@ -113,22 +121,7 @@ pub fn verify(
             .and_then(Value::as_str)
             .map(str::to_string)
     };
-    let case_file = match case_path {
-        Some(path) => path.to_path_buf(),
-        None => locate_case(
-            receipt_path,
-            &text("/case/file").ok_or_else(|| fail("has no case.file".into()))?,
-        )
-        .map_err(fail)?,
-    };
-    let overrides: Vec<String> = recorded["case"]["overrides"]
-        .as_array()
-        .map(|list| {
-            list.iter()
-                .filter_map(|v| v.as_str().map(str::to_string))
-                .collect()
-        })
-        .unwrap_or_default();
+    let (case_file, overrides) = rerun_source(receipt_path, &recorded, "case", case_path)?;
     let case = read_case(&case_file, &overrides)?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
     let files_read = crate::case::files_read(&case);
@@ -164,9 +157,44 @@ pub fn verify(
     })
 }
 
+/// The input file a receipt's `section` (`case` or `universe`) names, found as
+/// [`locate_case`] finds it unless `given`, and the overrides it records.
+pub(super) fn rerun_source(
+    receipt_path: &Path,
+    recorded: &Value,
+    section: &str,
+    given: Option<&Path>,
+) -> Result<(PathBuf, Vec<String>)> {
+    let fail = |message: String| Error::DataFile {
+        file: receipt_path.to_path_buf(),
+        message,
+    };
+    let file = match given {
+        Some(path) => path.to_path_buf(),
+        None => {
+            let written = recorded[section]["file"]
+                .as_str()
+                .ok_or_else(|| fail(format!("has no {section}.file")))?;
+            locate_case(receipt_path, written).map_err(fail)?
+        }
+    };
+    let overrides = recorded[section]["overrides"]
+        .as_array()
+        .map(|list| {
+            list.iter()
+                .filter_map(|v| v.as_str().map(str::to_string))
+                .collect()
+        })
+        .unwrap_or_default();
+    Ok((file, overrides))
+}
+
 /// Finds the case file a receipt names: as recorded (relative to the working folder), else
 /// beside the receipt's folder, where `hurdle run` puts `output/` by default.
-fn locate_case(receipt_path: &Path, recorded: &str) -> std::result::Result<PathBuf, String> {
+pub(super) fn locate_case(
+    receipt_path: &Path,
+    recorded: &str,
+) -> std::result::Result<PathBuf, String> {
     let recorded = PathBuf::from(recorded);
     let mut candidates = vec![recorded.clone()];
     if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
@@ -191,7 +219,7 @@ pub fn numbers_agree(a: f64, b: f64, tolerance: f64) -> bool {
     a == b || (a - b).abs() <= tolerance * a.abs().max(b.abs())
 }
 
-fn compare(
+pub(super) fn compare(
     recorded: &Value,
     recomputed: &Value,
     path: String,
@@ -200,7 +228,7 @@ fn compare(
     out: &mut Vec<Mismatch>,
 ) {
     // When it ran and where the case was found from are not figures; the hashes are compared.
-    if path == "generated_at" || path == "case.file" {
+    if path == "generated_at" || path == "case.file" || path == "universe.file" {
         return;
     }
     let mut differ = || {

@@ -10,6 +10,7 @@ pub mod implied;
 pub mod init;
 pub mod rolling;
 pub mod run;
+pub mod universe;
 pub mod verify;
 
 use std::path::PathBuf;
@@ -42,6 +43,8 @@ pub enum Command {
     Grid(grid::Args),
     /// Write each peer's rolling beta to rolling.csv.
     Rolling(rolling::Args),
+    /// Estimate every security of a market's price panel and tabulate betas by industry.
+    Universe(universe::Args),
     /// Start a case file from a wide price table (one column per security).
     Init(init::Args),
 }
@@ -123,6 +126,7 @@ pub fn run(cli: Cli) -> hurdle::Result<ExitCode> {
         Command::Compare(args) => compare::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Grid(args) => grid::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Rolling(args) => rolling::run(&args).map(|()| ExitCode::SUCCESS),
+        Command::Universe(args) => universe::run(&args).map(|()| ExitCode::SUCCESS),
         Command::Init(args) => init::run(&args).map(|()| ExitCode::SUCCESS),
     }
 }

@@ -435,28 +435,28 @@ pub fn align_with_shifts(
             None => Some(m),
         }
     };
+    let shifted_at = |j: usize, o: i32| -> Option<f64> {
+        let at = j as i64 + i64::from(o);
+        if at < 0 || at >= period_ends.len() as i64 {
+            None
+        } else {
+            market_excess_at(at as usize)
+        }
+    };
     for (j, &end) in period_ends.iter().enumerate().skip(first) {
         let rf = risk_free.map(|rf| rf[j]);
-        let shifted: Option<Vec<f64>> = offsets
-            .iter()
-            .map(|&o| {
-                let at = j as i64 + i64::from(o);
-                if at < 0 || at >= period_ends.len() as i64 {
-                    None
-                } else {
-                    market_excess_at(at as usize)
-                }
-            })
-            .collect();
+        // Checked first and read again when pushed: no vector per period (a universe aligns
+        // millions of periods).
+        let shifted = offsets.iter().all(|&o| shifted_at(j, o).is_some());
         let dropped = &mut aligned.dropped;
         dropped.asset_missing += usize::from(asset[j].is_none());
         dropped.market_missing += usize::from(market[j].is_none());
         dropped.risk_free_missing += usize::from(matches!(rf, Some(None)));
-        dropped.shifted_market_missing += usize::from(shifted.is_none());
-        let Some(shifted) = shifted else {
+        dropped.shifted_market_missing += usize::from(!shifted);
+        if !shifted {
             aligned.dropped.total += 1;
             continue;
-        };
+        }
         match (asset[j], market[j], rf) {
             (Some(a), Some(m), None) => aligned.push(end, a, m, None),
             (Some(a), Some(m), Some(Some(f))) => aligned.push(end, a, m, Some(f)),
@@ -465,8 +465,10 @@ pub fn align_with_shifts(
                 continue;
             }
         }
-        for (series, value) in aligned.market_shifted.iter_mut().zip(shifted) {
-            series.returns.push(value);
+        for (series, &o) in aligned.market_shifted.iter_mut().zip(offsets) {
+            series
+                .returns
+                .push(shifted_at(j, o).expect("checked above"));
         }
     }
     aligned

@@ -10,6 +10,7 @@ pub mod json;
 pub mod memo;
 pub mod rolling;
 pub mod staging;
+pub mod universe;
 pub mod verification;
 pub mod workbook;
 

@@ -12,7 +12,29 @@ use serde::{Deserialize, Serialize};
 use statrs::distribution::{Continuous, ContinuousCDF, StudentsT};
 
 /// Quantile of Student's t with `df` degrees of freedom at probability `p` in (0, 1).
+///
+/// Remembered per thread for the last few (p, df) pairs: a universe of thousands of securities
+/// asks for the same 97.5% quantile at the same handful of degrees of freedom, and each fresh
+/// quantile costs an inverse incomplete beta and Newton steps.
 pub fn student_t_quantile(p: f64, df: f64) -> f64 {
+    thread_local! {
+        static KNOWN: std::cell::RefCell<[(u64, u64, f64); 64]> =
+            const { std::cell::RefCell::new([(u64::MAX, u64::MAX, 0.0); 64]) };
+    }
+    let key = (p.to_bits(), df.to_bits());
+    let slot = (df as usize) % 64;
+    if let Some(x) = KNOWN.with(|k| {
+        let (a, b, x) = k.borrow()[slot];
+        ((a, b) == key).then_some(x)
+    }) {
+        return x;
+    }
+    let x = computed_t_quantile(p, df);
+    KNOWN.with(|k| k.borrow_mut()[slot] = (key.0, key.1, x));
+    x
+}
+
+fn computed_t_quantile(p: f64, df: f64) -> f64 {
     let dist = StudentsT::new(0.0, 1.0, df).expect("degrees of freedom are positive");
     let mut x = dist.inverse_cdf(p);
     for _ in 0..3 {

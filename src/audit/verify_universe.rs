@@ -1,0 +1,99 @@
+//! Verification of a universe receipt: the `result.json` of `hurdle universe` names its universe
+//! file, the overrides and every input's SHA-256; the run is repeated and every leaf of the
+//! recorded JSON (settings, window, counts, notes, the whole industry table) is compared with the
+//! rerun's, numbers within the tolerance, as [`super::verify`] does for a case.
+//!
+//! The per-security rows are in `securities.csv`, not in the receipt; they enter the comparison
+//! through the industry table's counts and statistics, which any change to a security's beta,
+//! D/E or flags moves.
+
+use std::path::Path;
+
+use serde_json::Value;
+
+use super::verify::{compare, rerun_source, FileCheck, Verification};
+use crate::error::{Error, Result};
+use crate::universe::settings::read_universe;
+use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
+
+/// Verifies a parsed universe receipt found at `receipt_path`; `universe_path` overrides where
+/// the universe file is looked for.
+pub fn verify_universe(
+    receipt_path: &Path,
+    recorded: &Value,
+    universe_path: Option<&Path>,
+    tolerance: f64,
+) -> Result<Verification> {
+    let fail = |message: String| Error::DataFile {
+        file: receipt_path.to_path_buf(),
+        message,
+    };
+    let version = recorded["schema_version"].as_u64().unwrap_or(0);
+    if version > u64::from(SCHEMA_VERSION) {
+        return Err(fail(format!(
+            "universe schema_version {version} is newer than this hurdle reads \
+             ({SCHEMA_VERSION})"
+        )));
+    }
+    let text = |pointer: &str| recorded.pointer(pointer).and_then(Value::as_str);
+    let (file, overrides) = rerun_source(receipt_path, recorded, "universe", universe_path)?;
+    let universe = read_universe(&file, &overrides)?;
+    let files_read = universe.files_read();
+    let unchanged = Some(universe.sha256.as_str()) == text("/universe/sha256");
+    let inputs = load_inputs(universe)?;
+    let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
+    let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
+    let files = file_checks(recorded, &rerun);
+    let mut mismatches = Vec::new();
+    let mut compared = 0;
+    compare(
+        recorded,
+        &recomputed,
+        String::new(),
+        tolerance,
+        &mut compared,
+        &mut mismatches,
+    );
+    let reproduced = unchanged && files.iter().all(|f| f.unchanged) && mismatches.is_empty();
+    Ok(Verification {
+        receipt: receipt_path.display().to_string(),
+        case_file: file.display().to_string(),
+        case_unchanged: unchanged,
+        files,
+        tolerance,
+        compared,
+        mismatches,
+        recorded_tool_version: text("/tool/version").unwrap_or_default().to_string(),
+        current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
+        reproduced,
+        files_read,
+    })
+}
+
+/// The index, risk-free series, panel and attributes files: recorded and current SHA-256.
+fn file_checks(recorded: &Value, rerun: &UniverseResult) -> Vec<FileCheck> {
+    let f = &rerun.files;
+    let current = [
+        ("index", Some(f.index.sha256.as_str())),
+        ("risk_free", f.risk_free.as_ref().map(|r| r.sha256.as_str())),
+        ("panel", Some(f.panel.sha256.as_str())),
+        ("attributes", Some(f.attributes.sha256.as_str())),
+    ];
+    current
+        .iter()
+        .filter_map(|&(role, now)| {
+            let file = &recorded["files"][role];
+            let recorded_sha256 = file["sha256"].as_str()?.to_string();
+            let current_sha256 = now
+                .unwrap_or("(no longer in the universe file)")
+                .to_string();
+            Some(FileCheck {
+                role: role.to_string(),
+                path: file["path"].as_str().unwrap_or("").to_string(),
+                unchanged: recorded_sha256 == current_sha256,
+                recorded_sha256,
+                current_sha256,
+            })
+        })
+        .collect()
+}

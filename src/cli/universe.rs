@@ -1,0 +1,153 @@
+//! `hurdle universe UNIVERSE.toml [--out DIR] [--set KEY=VALUE]... [--quiet]`
+//!
+//! Estimates every security of the panel the universe file names as a case estimates a peer,
+//! unlevers each with its own capital structure and aggregates by industry; writes
+//! `securities.csv`/`.parquet`, `industries.csv`/`.parquet`, `summary.md` and `result.json`
+//! (and `rolling.csv`/`.parquet` with `universe.rolling = true`) to DIR (default: `output/`
+//! beside the universe file), each atomically. On a terminal, a progress bar shows once the run
+//! has taken about a second; with `--quiet`, or when stderr is not a terminal, stderr carries
+//! errors only. The closing summary goes to stdout.
+
+use std::io::IsTerminal;
+use std::path::PathBuf;
+use std::time::{Duration, Instant};
+
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
+
+use hurdle::report::universe::{nonzero_counts, write_outputs};
+use hurdle::universe::settings::read_universe;
+use hurdle::universe::{evaluate, load_inputs, UniverseResult};
+
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// The universe file (TOML).
+    pub universe: PathBuf,
+    /// Output folder (default: `output/` beside the universe file).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Override a universe value, e.g. --set beta.frequency=weekly (repeatable).
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub overrides: Vec<String>,
+    /// No progress bar; stderr carries errors only.
+    #[arg(long)]
+    pub quiet: bool,
+}
+
+/// How long a run goes before the progress display appears.
+const QUIET_START: Duration = Duration::from_secs(1);
+
+pub fn run(args: &Args) -> hurdle::Result<()> {
+    let started = Instant::now();
+    let universe = read_universe(&args.universe, &args.overrides)?;
+    let out = args.out.clone().unwrap_or_else(|| {
+        args.universe
+            .parent()
+            .map(|p| p.join("output"))
+            .unwrap_or_else(|| PathBuf::from("output"))
+    });
+    let show = !args.quiet && std::io::stderr().is_terminal();
+    let reading = Display::new(show, started, ProgressBar::new_spinner());
+    reading
+        .bar
+        .set_message(format!("reading {}", universe.settings.panel.prices));
+    if show {
+        reading.bar.enable_steady_tick(Duration::from_millis(120));
+    }
+    let reads = universe.files_read();
+    let inputs = load_inputs(universe)?;
+    reading.bar.finish_and_clear();
+    let estimating = Display::new(show, started, ProgressBar::new(inputs.panel.len() as u64));
+    estimating.bar.set_style(
+        ProgressStyle::with_template("{bar:30} {pos}/{len} securities  {rate}  about {eta} left")
+            .expect("a valid template")
+            .with_key(
+                "rate",
+                |state: &ProgressState, w: &mut dyn std::fmt::Write| {
+                    let _ = write!(w, "{:.0}/s", state.per_sec());
+                },
+            ),
+    );
+    let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
+    estimating.bar.finish_and_clear();
+    let written = write_outputs(&out, &result, &reads)?;
+    print!("{}", summary(&result));
+    for path in written {
+        println!("  wrote {}", path.display());
+    }
+    Ok(())
+}
+
+/// A progress display that stays hidden until the run has taken [`QUIET_START`] (a watcher
+/// thread then shows it, unless it has finished), and always when it should not show at all.
+struct Display {
+    bar: ProgressBar,
+}
+
+impl Display {
+    fn new(show: bool, started: Instant, bar: ProgressBar) -> Display {
+        bar.set_draw_target(ProgressDrawTarget::hidden());
+        if show {
+            let delayed = bar.clone();
+            let wait = QUIET_START.saturating_sub(started.elapsed());
+            std::thread::spawn(move || {
+                std::thread::sleep(wait);
+                if !delayed.is_finished() {
+                    delayed.set_draw_target(ProgressDrawTarget::stderr());
+                }
+            });
+        }
+        Display { bar }
+    }
+
+    /// Counts `n` more securities (from any thread).
+    fn advance(&self, n: usize) {
+        self.bar.inc(n as u64);
+    }
+}
+
+fn summary(r: &UniverseResult) -> String {
+    let c = &r.counts;
+    let not = nonzero_counts(&c.not_estimated);
+    let missing = nonzero_counts(&c.missing);
+    let mut lines = vec![
+        format!(
+            "{} — valuation date {}, window {} to {}",
+            if r.universe.title.is_empty() {
+                "universe"
+            } else {
+                &r.universe.title
+            },
+            r.universe.valuation_date,
+            r.window.window_start,
+            r.window.window_end
+        ),
+        format!(
+            "  {} securities: {} estimated and aggregated, {} excluded by beta.exclude_flags, \
+             {} not estimated{}",
+            c.securities,
+            c.estimated,
+            c.excluded,
+            c.not_estimated.values().sum::<usize>(),
+            if not.is_empty() {
+                String::new()
+            } else {
+                format!(" ({not})")
+            }
+        ),
+        format!(
+            "  {} industries; {} securities with an unlevered beta{}",
+            r.industries.len(),
+            c.unlevered,
+            if missing.is_empty() {
+                String::new()
+            } else {
+                format!("; lacking: {missing}")
+            }
+        ),
+    ];
+    for note in &r.notes {
+        lines.push(format!("  note: {note}"));
+    }
+    lines.push(String::new());
+    lines.join("\n")
+}

@@ -1,0 +1,478 @@
+//! CSV panels, read block by block through polars' CSV reader.
+//!
+//! The file is read in blocks of whole records (a few megabytes each, cut at a line end outside
+//! quotes) and each block is parsed by polars with a fixed schema: dates and ids as text, prices
+//! as doubles. Three stages overlap — one thread reads and hashes the bytes, polars parses a
+//! block on its own threads, another thread moves the parsed cells into the panel's columns —
+//! so memory holds a few blocks beside the prices already kept. When polars refuses a block,
+//! the block is read again as text to find the cell and line to name; a duplicate row is located
+//! by a second pass over the file, so the fast path carries no row numbers.
+
+use std::fs::File;
+use std::io::{Cursor, Read};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::mpsc::{channel, sync_channel, Receiver, SyncSender};
+use std::sync::Arc;
+
+use polars::prelude::*;
+use sha2::{Digest, Sha256};
+
+use super::cells::{block_dates, push_long, push_wide, DateCells};
+use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, Source};
+use crate::error::{Error, Result};
+
+/// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
+/// stay in cache between the stages (measured best among 4, 16 and 64 MiB on the benchmark).
+const BLOCK_BYTES: usize = 4 << 20;
+
+/// Rows per block at the least: polars sets up every column for each block, so a wide file's
+/// blocks hold at least this many rows whatever their width.
+const BLOCK_ROWS: usize = 2048;
+
+/// How the blocks of one file are parsed, fixed by its header.
+struct Plan {
+    header: Vec<String>,
+    schema: SchemaRef,
+    projection: Arc<Vec<usize>>,
+    /// Wide layout: each security column's name and dictionary id.
+    wide: Vec<(String, u32)>,
+}
+
+/// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes.
+pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, String)> {
+    std::thread::scope(|scope| {
+        let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
+        let mut frames_in = Some(frames_in);
+        let mut pusher = None;
+        let mut plan: Option<Plan> = None;
+        let mut next_row = 0;
+        let block_bytes = AtomicUsize::new(BLOCK_BYTES);
+        let scanned = scan_blocks(source, &block_bytes, |block, first| {
+            if first {
+                let mut rows = Rows::default();
+                // Room for every row at once, estimated from the first block's line ends, so
+                // the columns never grow by copying.
+                let lines = block.iter().filter(|&&b| b == b'\n').count();
+                let file_bytes = std::fs::metadata(&source.file).map_or(0, |m| m.len()) as f64;
+                rows.reserve((file_bytes * lines as f64 / block.len() as f64 * 1.02) as usize);
+                let made = plan_for(source, columns, header(source, block)?, &mut rows)?;
+                let line: usize = made.header.iter().map(|n| n.len() + 1).sum();
+                block_bytes.store(BLOCK_BYTES.max(BLOCK_ROWS * line), Ordering::Relaxed);
+                let (receiver, wide) = (frames_in.take().expect("once"), made.wide.clone());
+                pusher =
+                    Some(scope.spawn(move || push_frames(rows, receiver, &wide, source, columns)));
+                plan = Some(made);
+            }
+            let plan = plan.as_ref().expect("set by the first block");
+            let frame = parse(block, plan, first)
+                .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
+            let height = frame.height();
+            // A closed channel means the pusher stopped at a bad row; its error is returned below.
+            frames
+                .send((frame, next_row))
+                .map_err(|_| source.file_error("stopped".into()))?;
+            next_row += height;
+            Ok(())
+        });
+        drop(frames);
+        let pushed = pusher.map(|p| p.join().expect("the row pusher does not panic"));
+        match (scanned, pushed) {
+            // The pusher's error concerns rows before any block the parser refused.
+            (_, Some(Err(e))) | (Err(e), _) => Err(e),
+            (Ok(sha256), Some(Ok(rows))) => Ok((rows, sha256)),
+            (Ok(_), None) => unreachable!("the first block starts the pusher"),
+        }
+    })
+}
+
+/// The pusher stage: moves each parsed block into `rows`, in file order.
+fn push_frames(
+    mut rows: Rows,
+    frames: Receiver<(DataFrame, usize)>,
+    wide: &[(String, u32)],
+    source: &Source,
+    columns: &PanelColumns,
+) -> Result<Rows> {
+    for (frame, first_row) in frames {
+        push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
+    }
+    Ok(rows)
+}
+
+/// The header's column names, through polars (no data rows are parsed).
+fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
+    let frame = CsvReadOptions::default()
+        .with_has_header(true)
+        .with_infer_schema_length(Some(0))
+        .with_n_rows(Some(0))
+        .into_reader_with_file_handle(Cursor::new(block))
+        .finish()
+        .map_err(|e| source.file_error(format!("not a readable CSV file: {e}")))?;
+    Ok(frame
+        .get_column_names()
+        .iter()
+        .map(|n| n.to_string())
+        .collect())
+}
+
+/// Checks the header against the layout and fixes the schema every block is parsed with.
+fn plan_for(
+    source: &Source,
+    columns: &PanelColumns,
+    header: Vec<String>,
+    rows: &mut Rows,
+) -> Result<Plan> {
+    let position = |name: &str, key: &str| {
+        header.iter().position(|n| n == name).ok_or_else(|| {
+            let other = match columns.layout {
+                PanelLayout::Long => PanelLayout::Wide,
+                PanelLayout::Wide => PanelLayout::Long,
+            };
+            let hint =
+                layout_hint(&header, columns, other).map_or_else(String::new, |h| format!("; {h}"));
+            source.file_error(format!(
+                "no column named `{name}` ({key}); the header has: {}{hint}",
+                shortened(&header)
+            ))
+        })
+    };
+    let date = position(&columns.date_column, "panel.date_column")?;
+    let mut dtypes = vec![DataType::String; header.len()];
+    let (projection, wide) = match columns.layout {
+        PanelLayout::Long => {
+            let security = position(&columns.security_column, "panel.security_column")?;
+            let price = position(&columns.price_column, "panel.price_column")?;
+            dtypes[price] = DataType::Float64;
+            let mut projection = vec![date, security, price];
+            projection.sort_unstable();
+            (projection, Vec::new())
+        }
+        PanelLayout::Wide => {
+            if let Some(hint) = layout_hint(&header, columns, PanelLayout::Long) {
+                return Err(source.file_error(format!("read as a wide panel, but {hint}")));
+            }
+            let mut wide = Vec::with_capacity(header.len() - 1);
+            for (i, name) in header.iter().enumerate().filter(|&(i, _)| i != date) {
+                dtypes[i] = DataType::Float64;
+                wide.push((name.clone(), rows.dictionary.id(name)));
+            }
+            if wide.is_empty() {
+                return Err(source.file_error(format!(
+                    "has only the date column `{}`: a wide panel needs one column per security",
+                    columns.date_column
+                )));
+            }
+            ((0..header.len()).collect(), wide)
+        }
+    };
+    let schema = header
+        .iter()
+        .zip(dtypes)
+        .map(|(name, dtype)| Field::new(name.as_str().into(), dtype))
+        .collect::<Schema>();
+    Ok(Plan {
+        header,
+        schema: Arc::new(schema),
+        projection: Arc::new(projection),
+        wide,
+    })
+}
+
+/// The first names of a long header, for messages.
+fn shortened(names: &[String]) -> String {
+    if names.len() <= 8 {
+        names.join(", ")
+    } else {
+        format!("{}, … ({} columns)", names[..6].join(", "), names.len())
+    }
+}
+
+/// Parses one block with the plan's schema.
+fn parse(block: &[u8], plan: &Plan, has_header: bool) -> PolarsResult<DataFrame> {
+    CsvReadOptions::default()
+        .with_has_header(has_header)
+        .with_schema(Some(plan.schema.clone()))
+        .with_projection(Some(plan.projection.clone()))
+        .with_rechunk(false)
+        .into_reader_with_file_handle(Cursor::new(block))
+        .finish()
+}
+
+/// Moves a parsed block into `rows`.
+fn push_frame(
+    rows: &mut Rows,
+    frame: &DataFrame,
+    wide: &[(String, u32)],
+    first_row: usize,
+    source: &Source,
+    columns: &PanelColumns,
+) -> Result<()> {
+    let column = |name: &str| {
+        frame
+            .column(name)
+            .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
+    };
+    let typed = |e: PolarsError| source.file_error(e.to_string());
+    let dates = DateCells::Text(column(&columns.date_column)?.str().map_err(typed)?);
+    match columns.layout {
+        PanelLayout::Long => push_long(
+            rows,
+            &dates,
+            column(&columns.security_column)?.str().map_err(typed)?,
+            column(&columns.price_column)?.f64().map_err(typed)?,
+            first_row,
+            source,
+            columns,
+        ),
+        PanelLayout::Wide => {
+            let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
+            let securities = wide
+                .iter()
+                .map(|(name, id)| Ok((*id, column(name)?.f64().map_err(typed)?, name.as_str())))
+                .collect::<Result<Vec<_>>>()?;
+            push_wide(rows, &dates, &securities, first_row, source)
+        }
+    }
+}
+
+/// Names the cell polars could not parse: the block is read again as text and the first price
+/// that is not a number is reported with its line; failing that, polars' own message.
+fn diagnose(
+    source: &Source,
+    block: &[u8],
+    has_header: bool,
+    first_row: usize,
+    plan: &Plan,
+    columns: &PanelColumns,
+    error: &PolarsError,
+) -> Error {
+    let price_columns: Vec<&str> = match columns.layout {
+        PanelLayout::Long => vec![columns.price_column.as_str()],
+        PanelLayout::Wide => plan.wide.iter().map(|(n, _)| n.as_str()).collect(),
+    };
+    let text_schema: Schema = plan
+        .header
+        .iter()
+        .map(|name| Field::new(name.as_str().into(), DataType::String))
+        .collect();
+    let text = CsvReadOptions::default()
+        .with_has_header(has_header)
+        .with_schema(Some(Arc::new(text_schema)))
+        .into_reader_with_file_handle(Cursor::new(block))
+        .finish();
+    if let Ok(text) = text {
+        for name in price_columns {
+            let Ok(cells) = text.column(name).and_then(|c| c.str().cloned()) else {
+                continue;
+            };
+            for (k, cell) in cells.iter().enumerate() {
+                let Some(cell) = cell else { continue };
+                let trimmed = cell.trim();
+                if !trimmed.is_empty() && trimmed.parse::<f64>().is_err() {
+                    let hint = match columns.layout {
+                        PanelLayout::Wide => format!(
+                            " (a wide panel holds only prices beside `{}`; if this file has \
+                             one row per date and security, set panel.layout = \"long\")",
+                            columns.date_column
+                        ),
+                        PanelLayout::Long => String::new(),
+                    };
+                    return source.row_error(
+                        first_row + k,
+                        format!("`{name}` = \"{cell}\" is not a number{hint}"),
+                    );
+                }
+            }
+        }
+    }
+    source.file_error(format!(
+        "cannot be read as CSV in the rows from {}: {error}",
+        source.place(first_row)
+    ))
+}
+
+/// Calls `each(block, is_first)` on consecutive blocks of whole records, read (and hashed) by
+/// a second thread while `each` works, and returns the SHA-256 of every byte read.
+fn scan_blocks(
+    source: &Source,
+    block_bytes: &AtomicUsize,
+    mut each: impl FnMut(&[u8], bool) -> Result<()>,
+) -> Result<String> {
+    std::thread::scope(|scope| {
+        let (blocks, blocks_in) = sync_channel(2);
+        let (spares, spares_in) = channel();
+        let reader = scope.spawn(move || read_blocks(source, block_bytes, blocks, spares_in));
+        let mut first = true;
+        let mut outcome = Ok(());
+        for block in blocks_in.iter() {
+            // A stop request (Ctrl-C) ends the reading between two blocks.
+            outcome = crate::progress::check_stop().and_then(|()| each(&block, first));
+            first = false;
+            if outcome.is_err() {
+                break;
+            }
+            // The reader may have finished; then the buffer is simply dropped.
+            let _ = spares.send(block);
+        }
+        drop(blocks_in);
+        let sha256 = reader.join().expect("the block reader does not panic");
+        outcome?;
+        let sha256 = sha256?;
+        if first {
+            return Err(source.file_error("is empty (no header, no rows)".into()));
+        }
+        Ok(sha256)
+    })
+}
+
+/// The reader stage: sends blocks of whole records (of about `block_bytes`, which the consumer
+/// may raise once it has seen the header), reusing the buffers sent back, and returns the
+/// SHA-256 of the file (empty when the receiver stopped early).
+fn read_blocks(
+    source: &Source,
+    block_bytes: &AtomicUsize,
+    blocks: SyncSender<Vec<u8>>,
+    spares: Receiver<Vec<u8>>,
+) -> Result<String> {
+    let io_error = |action: &'static str| {
+        move |e: std::io::Error| Error::Io {
+            path: source.file.clone(),
+            action,
+            source: e,
+        }
+    };
+    let mut file = File::open(&source.file).map_err(io_error("cannot open the panel file"))?;
+    let mut hasher = Sha256::new();
+    let mut carry: Vec<u8> = Vec::new();
+    loop {
+        let mut buffer = spares.try_recv().unwrap_or_default();
+        buffer.clear();
+        buffer.extend_from_slice(&carry);
+        // A record longer than a block doubles the read until it fits.
+        let wanted = block_bytes.load(Ordering::Relaxed).max(2 * carry.len()) - carry.len();
+        let read = (&mut file)
+            .take(wanted as u64)
+            .read_to_end(&mut buffer)
+            .map_err(io_error("cannot read the panel file"))?;
+        hasher.update(&buffer[carry.len()..]);
+        let at_end = read < wanted;
+        let end = if at_end {
+            buffer.len()
+        } else {
+            last_record_end(&buffer).unwrap_or(0)
+        };
+        carry.clear();
+        carry.extend_from_slice(&buffer[end..]);
+        buffer.truncate(end);
+        if !buffer.is_empty() && blocks.send(buffer).is_err() {
+            return Ok(String::new());
+        }
+        if at_end {
+            return Ok(super::hex(&hasher.finalize()));
+        }
+    }
+}
+
+/// Just past the last line end that lies outside double quotes (CSV doubles a quote inside a
+/// quoted field, so quote parity tells inside from outside).
+fn last_record_end(bytes: &[u8]) -> Option<usize> {
+    if !bytes.contains(&b'"') {
+        return bytes.iter().rposition(|&b| b == b'\n').map(|p| p + 1);
+    }
+    let mut inside = false;
+    let mut end = None;
+    for (i, &b) in bytes.iter().enumerate() {
+        if b == b'"' {
+            inside = !inside;
+        } else if b == b'\n' && !inside {
+            end = Some(i + 1);
+        }
+    }
+    end
+}
+
+/// The error for a repeated (date, security): a second pass finds the lines that hold it.
+pub(super) fn duplicate_error(
+    source: &Source,
+    columns: &PanelColumns,
+    duplicate: &Duplicate,
+) -> Error {
+    let lines = match find_rows(source, columns, duplicate) {
+        Ok(rows) => rows
+            .iter()
+            .map(|r| (r + 2).to_string())
+            .collect::<Vec<_>>()
+            .join(" and "),
+        Err(e) => return e,
+    };
+    let message = match columns.layout {
+        PanelLayout::Long => format!(
+            "duplicate row for security {} on {} (lines {lines}); each (date, security) pair \
+             may appear once",
+            duplicate.security, duplicate.date
+        ),
+        PanelLayout::Wide => format!(
+            "the date {} appears on more than one row (lines {lines}); a wide panel has one row \
+             per date (if this file has one row per date and security, set panel.layout = \
+             \"long\")",
+            duplicate.date
+        ),
+    };
+    source.file_error(message)
+}
+
+/// The data rows (0-based) holding `duplicate` (long) or its date (wide).
+fn find_rows(source: &Source, columns: &PanelColumns, duplicate: &Duplicate) -> Result<Vec<usize>> {
+    let mut found = Vec::new();
+    let mut next_row = 0;
+    let mut scratch = Rows::default();
+    let mut plan: Option<Plan> = None;
+    scan_blocks(source, &AtomicUsize::new(BLOCK_BYTES), |block, first| {
+        if first {
+            plan = Some(plan_for(
+                source,
+                columns,
+                header(source, block)?,
+                &mut scratch,
+            )?);
+        }
+        let plan = plan.as_ref().expect("set by the first block");
+        let frame = parse(block, plan, first).map_err(|e| source.file_error(e.to_string()))?;
+        let text = |name: &str| {
+            frame
+                .column(name)
+                .and_then(|c| c.str().cloned())
+                .map_err(|e| source.file_error(e.to_string()))
+        };
+        let dates = text(&columns.date_column)?;
+        let securities = match columns.layout {
+            PanelLayout::Long => Some(text(&columns.security_column)?),
+            PanelLayout::Wide => None,
+        };
+        for (k, date) in dates.iter().enumerate() {
+            let same_date = date.and_then(super::parse_iso_date) == Some(duplicate.date);
+            let same_security = securities
+                .as_ref()
+                .is_none_or(|s| s.get(k).map(str::trim) == Some(duplicate.security.as_str()));
+            if same_date && same_security {
+                found.push(next_row + k);
+            }
+        }
+        next_row += frame.height();
+        Ok(())
+    })?;
+    Ok(found)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // RFC 4180: a line end inside a quoted field belongs to the field.
+    #[test]
+    fn records_end_only_outside_quotes() {
+        assert_eq!(last_record_end(b"a,b\n1,2\n3,"), Some(8));
+        assert_eq!(last_record_end(b"a,b\n\"x\ny\",2\n\"z\n"), Some(12));
+        assert_eq!(last_record_end(b"no line end"), None);
+    }
+}

@@ -1,0 +1,626 @@
+//! Price panels: a whole market's closing prices in one file, read into compact columns.
+//!
+//! A universe run reads millions of (date, security, price) rows, so the panel is kept as three
+//! flat arrays grouped by security — dates, prices, and the offsets where each security's rows
+//! start — and each security is handed to sampling as a borrowed [`SeriesView`], never copied.
+//! Files are CSV or Parquet (by extension) in a long layout (one row per date and security, any
+//! order) or a wide one (a date column and one column per security); polars reads them block by
+//! block, so memory holds the prices once plus one block. Rows are grouped by a counting sort on
+//! a dictionary index of the security ids, which avoids hashing a string per row whenever rows
+//! come grouped by security or cycle through the securities date by date. Every bad value is
+//! reported with its file, line (CSV) or row (Parquet) and the value; nothing is guessed.
+
+pub mod attributes;
+mod cells;
+mod csv;
+mod parquet;
+
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+
+use chrono::NaiveDate;
+use serde::{Deserialize, Serialize};
+
+use crate::error::{Error, Result};
+use crate::io::series::{iso_date, SeriesView};
+
+/// How the prices are laid out in the file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum PanelLayout {
+    /// One row per (date, security) with its price, rows in any order, gaps allowed.
+    Long,
+    /// A date column and one column of prices per security; an empty cell is a gap.
+    Wide,
+}
+
+/// A file format hurdle reads tables from, chosen by the file's extension.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum TableFormat {
+    Csv,
+    Parquet,
+}
+
+impl TableFormat {
+    /// `.csv` (or `.txt`) is CSV, `.parquet` (or `.pq`) is Parquet; `key` names the setting in
+    /// the message for anything else.
+    pub fn from_path(path: &Path, key: &str) -> Result<TableFormat> {
+        let extension = path
+            .extension()
+            .and_then(|e| e.to_str())
+            .map(str::to_ascii_lowercase);
+        match extension.as_deref() {
+            Some("csv" | "txt") => Ok(TableFormat::Csv),
+            Some("parquet" | "pq") => Ok(TableFormat::Parquet),
+            _ => Err(Error::Argument {
+                option: key.to_string(),
+                message: format!(
+                    "\"{}\" is neither a .csv nor a .parquet file (the format is chosen by the \
+                     extension)",
+                    path.display()
+                ),
+            }),
+        }
+    }
+}
+
+/// Which columns of a panel file hold what: the reader's own small spec.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PanelColumns {
+    pub layout: PanelLayout,
+    pub date_column: String,
+    /// Long layout only.
+    pub security_column: String,
+    /// Long layout only.
+    pub price_column: String,
+}
+
+/// What the receipt records about a panel file.
+#[derive(Debug, Clone, Serialize)]
+pub struct PanelFile {
+    /// The path as the universe file writes it.
+    pub path: String,
+    pub sha256: String,
+    pub format: TableFormat,
+    pub layout: PanelLayout,
+    /// Prices read (non-empty cells of a wide file).
+    pub observations: usize,
+    pub securities: usize,
+    #[serde(serialize_with = "iso_date")]
+    pub first_date: NaiveDate,
+    #[serde(serialize_with = "iso_date")]
+    pub last_date: NaiveDate,
+}
+
+/// Every security's prices, grouped by security (ids in byte order) and sorted by date.
+#[derive(Debug, Clone)]
+pub struct Panel {
+    pub file: PanelFile,
+    securities: Vec<String>,
+    /// Security `i` owns rows `offsets[i]..offsets[i + 1]`.
+    offsets: Vec<usize>,
+    dates: Vec<NaiveDate>,
+    prices: Vec<f64>,
+}
+
+impl Panel {
+    /// The number of securities.
+    pub fn len(&self) -> usize {
+        self.securities.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.securities.is_empty()
+    }
+
+    /// The security ids, in byte order.
+    pub fn securities(&self) -> &[String] {
+        &self.securities
+    }
+
+    /// The position of a security id, if the panel holds it.
+    pub fn position(&self, security: &str) -> Option<usize> {
+        self.securities
+            .binary_search_by(|s| s.as_str().cmp(security))
+            .ok()
+    }
+
+    /// Security `i`'s prices as a borrowed series, ascending in date.
+    pub fn series(&self, i: usize) -> SeriesView<'_> {
+        let rows = self.offsets[i]..self.offsets[i + 1];
+        SeriesView {
+            dates: &self.dates[rows.clone()],
+            values: &self.prices[rows],
+        }
+    }
+}
+
+/// Reads a panel file. `written` is the path as the universe file names it (for the receipt),
+/// `resolved` where it is.
+pub fn read_panel(written: &str, resolved: &Path, columns: &PanelColumns) -> Result<Panel> {
+    let format = TableFormat::from_path(resolved, "panel.prices")?;
+    let source = Source {
+        file: resolved.to_path_buf(),
+        format,
+    };
+    let (rows, sha256) = match format {
+        TableFormat::Csv => csv::read(&source, columns)?,
+        TableFormat::Parquet => parquet::read(&source, columns)?,
+    };
+    if rows.prices.is_empty() {
+        return Err(source.file_error("holds no prices: the panel is empty".into()));
+    }
+    let grouped = rows.group().map_err(|duplicate| match format {
+        TableFormat::Csv => csv::duplicate_error(&source, columns, &duplicate),
+        TableFormat::Parquet => parquet::duplicate_error(&source, columns, &duplicate),
+    })?;
+    let first_date = grouped.dates.iter().min().copied().expect("not empty");
+    let last_date = grouped.dates.iter().max().copied().expect("not empty");
+    Ok(Panel {
+        file: PanelFile {
+            path: written.to_string(),
+            sha256,
+            format,
+            layout: columns.layout,
+            observations: grouped.prices.len(),
+            securities: grouped.securities.len(),
+            first_date,
+            last_date,
+        },
+        securities: grouped.securities,
+        offsets: grouped.offsets,
+        dates: grouped.dates,
+        prices: grouped.prices,
+    })
+}
+
+/// The file being read, for messages.
+#[derive(Debug, Clone)]
+pub(crate) struct Source {
+    pub file: PathBuf,
+    pub format: TableFormat,
+}
+
+impl Source {
+    /// An error about the file as a whole.
+    pub fn file_error(&self, message: String) -> Error {
+        Error::DataFile {
+            file: self.file.clone(),
+            message,
+        }
+    }
+
+    /// An error about data row `row` (0-based, header not counted): CSV names the line an editor
+    /// shows (the header is line 1), Parquet the row counted from 1.
+    pub fn row_error(&self, row: usize, message: String) -> Error {
+        match self.format {
+            TableFormat::Csv => Error::DataRow {
+                file: self.file.clone(),
+                line: row + 2,
+                message,
+            },
+            TableFormat::Parquet => Error::DataFile {
+                file: self.file.clone(),
+                message: format!("row {}: {message}", row + 1),
+            },
+        }
+    }
+
+    /// Where data row `row` is, in words: "line 12" or "row 11".
+    pub fn place(&self, row: usize) -> String {
+        match self.format {
+            TableFormat::Csv => format!("line {}", row + 2),
+            TableFormat::Parquet => format!("row {}", row + 1),
+        }
+    }
+}
+
+/// Parses an ISO 8601 calendar date `YYYY-MM-DD` (surrounding spaces allowed).
+pub(crate) fn parse_iso_date(text: &str) -> Option<NaiveDate> {
+    let bytes = text.as_bytes();
+    if bytes.len() != 10 {
+        let trimmed = text.trim();
+        return (trimmed.len() == 10).then(|| parse_iso_date(trimmed))?;
+    }
+    let digits = |range: std::ops::Range<usize>| {
+        bytes[range].iter().try_fold(0_u32, |value, &b| {
+            b.is_ascii_digit().then(|| value * 10 + u32::from(b - b'0'))
+        })
+    };
+    if bytes[4] != b'-' || bytes[7] != b'-' {
+        return None;
+    }
+    let year = i32::try_from(digits(0..4)?).ok()?;
+    NaiveDate::from_ymd_opt(year, digits(5..7)?, digits(8..10)?)
+}
+
+/// Lower-case hexadecimal of a digest.
+pub(crate) fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// A price must be a finite positive number; `what` names the column (and the security) and
+/// is only called for a bad price.
+pub(crate) fn check_price(
+    price: f64,
+    what: impl FnOnce() -> String,
+) -> std::result::Result<(), String> {
+    if price.is_finite() && price > 0.0 {
+        Ok(())
+    } else {
+        Err(format!("{} = {price}: a price must be positive", what()))
+    }
+}
+
+/// Security ids in order of first appearance, with a cheap guess before any hashing: rows
+/// grouped by security repeat the last id, and rows sorted by date cycle through the ids in the
+/// same order, so the next id is tried too. Only a miss on both costs a hash lookup.
+#[derive(Debug, Default)]
+pub(crate) struct Dictionary {
+    names: Vec<String>,
+    index: HashMap<String, u32>,
+    last: usize,
+}
+
+impl Dictionary {
+    /// The index of `name`, adding it when new.
+    pub fn id(&mut self, name: &str) -> u32 {
+        let n = self.names.len();
+        if n > 0 {
+            let next = if self.last + 1 == n { 0 } else { self.last + 1 };
+            for guess in [self.last, next] {
+                if self.names[guess] == name {
+                    self.last = guess;
+                    return guess as u32;
+                }
+            }
+        }
+        let id = match self.index.get(name) {
+            Some(&id) => id,
+            None => {
+                let id = n as u32;
+                self.names.push(name.to_string());
+                self.index.insert(name.to_string(), id);
+                id
+            }
+        };
+        self.last = id as usize;
+        id
+    }
+}
+
+/// Rows as read, before grouping: one entry per price, in file order.
+#[derive(Debug, Default)]
+pub(crate) struct Rows {
+    pub dictionary: Dictionary,
+    pub ids: Vec<u32>,
+    pub dates: Vec<NaiveDate>,
+    pub prices: Vec<f64>,
+    pub date_cache: cells::DateCache,
+    order: Order,
+}
+
+/// What the rows' order shows so far, watched as they arrive so that grouping can skip whole
+/// passes: ids that never go back (each security's rows together, in order of first appearance)
+/// and dates rising within each security.
+#[derive(Debug)]
+struct Order {
+    last: Option<(u32, NaiveDate)>,
+    grouped: bool,
+    ascending: bool,
+}
+
+impl Default for Order {
+    fn default() -> Self {
+        Order {
+            last: None,
+            grouped: true,
+            ascending: true,
+        }
+    }
+}
+
+/// A (security, date) pair found twice.
+#[derive(Debug, Clone)]
+pub(crate) struct Duplicate {
+    pub security: String,
+    pub date: NaiveDate,
+}
+
+/// The rows grouped by security: what [`Panel`] holds.
+#[derive(Debug)]
+struct Grouped {
+    securities: Vec<String>,
+    offsets: Vec<usize>,
+    dates: Vec<NaiveDate>,
+    prices: Vec<f64>,
+}
+
+impl Rows {
+    /// Makes room for `rows` more rows.
+    pub fn reserve(&mut self, rows: usize) {
+        self.ids.reserve(rows);
+        self.dates.reserve(rows);
+        self.prices.reserve(rows);
+    }
+
+    pub fn push(&mut self, id: u32, date: NaiveDate, price: f64) {
+        self.push_id_and_date(id, date);
+        self.prices.push(price);
+    }
+
+    /// A row's id and date; its price is pushed by the caller.
+    pub fn push_id_and_date(&mut self, id: u32, date: NaiveDate) {
+        let order = &mut self.order;
+        if let Some((last_id, last_date)) = order.last {
+            if id == last_id {
+                order.ascending &= date > last_date;
+            } else {
+                order.grouped &= id > last_id;
+            }
+        }
+        order.last = Some((id, date));
+        self.ids.push(id);
+        self.dates.push(date);
+    }
+
+    /// Groups the rows by security id in byte order with a counting sort (O(rows)), then sorts
+    /// each security's rows by date where the file did not already. A date repeated within a
+    /// security is returned as the first [`Duplicate`].
+    fn group(self) -> std::result::Result<Grouped, Duplicate> {
+        let Rows {
+            dictionary,
+            ids,
+            dates,
+            prices,
+            order: seen,
+            ..
+        } = self;
+        let names = dictionary.names;
+        let mut counts = vec![0_usize; names.len()];
+        for &id in &ids {
+            counts[id as usize] += 1;
+        }
+        // A wide file's column without a single price holds no security.
+        let mut order: Vec<u32> = (0..names.len() as u32)
+            .filter(|&id| counts[id as usize] > 0)
+            .collect();
+        order.sort_unstable_by(|&a, &b| names[a as usize].cmp(&names[b as usize]));
+        let mut rank = vec![u32::MAX; names.len()];
+        let mut offsets = vec![0_usize; order.len() + 1];
+        for (r, &id) in order.iter().enumerate() {
+            rank[id as usize] = r as u32;
+            offsets[r + 1] = offsets[r] + counts[id as usize];
+        }
+        // Rows already grouped in id order (a file sorted by security) are kept as they are;
+        // when the ids never went back, it is enough that first appearance is byte order.
+        let in_order = if seen.grouped {
+            order.windows(2).all(|w| w[0] < w[1])
+        } else {
+            ids.windows(2)
+                .all(|w| rank[w[0] as usize] <= rank[w[1] as usize])
+        };
+        let (mut dates, mut prices) = if in_order {
+            (dates, prices)
+        } else {
+            scatter(&ids, &rank, &offsets, &dates, &prices)
+        };
+        drop(ids);
+        // Grouped rows whose dates always rose need no check per security.
+        if !(seen.grouped && seen.ascending) {
+            let mut scratch = Vec::new();
+            for (r, &id) in order.iter().enumerate() {
+                let rows = offsets[r]..offsets[r + 1];
+                let (d, p) = (&mut dates[rows.clone()], &mut prices[rows]);
+                if !d.windows(2).all(|w| w[0] < w[1]) {
+                    sort_by_date(d, p, &mut scratch);
+                    if let Some(w) = d.windows(2).find(|w| w[0] == w[1]) {
+                        return Err(Duplicate {
+                            security: names[id as usize].clone(),
+                            date: w[0],
+                        });
+                    }
+                }
+            }
+        }
+        let mut names = names;
+        let securities = order
+            .iter()
+            .map(|&id| std::mem::take(&mut names[id as usize]))
+            .collect();
+        Ok(Grouped {
+            securities,
+            offsets,
+            dates,
+            prices,
+        })
+    }
+}
+
+/// Moves each row to its security's block (rank order), keeping file order within a block.
+fn scatter(
+    ids: &[u32],
+    rank: &[u32],
+    offsets: &[usize],
+    dates: &[NaiveDate],
+    prices: &[f64],
+) -> (Vec<NaiveDate>, Vec<f64>) {
+    let mut cursor = offsets[..offsets.len() - 1].to_vec();
+    let mut grouped_dates = vec![NaiveDate::MIN; ids.len()];
+    let mut grouped_prices = vec![0.0; ids.len()];
+    for (k, &id) in ids.iter().enumerate() {
+        let slot = &mut cursor[rank[id as usize] as usize];
+        grouped_dates[*slot] = dates[k];
+        grouped_prices[*slot] = prices[k];
+        *slot += 1;
+    }
+    (grouped_dates, grouped_prices)
+}
+
+/// Sorts one security's rows by date (stable, so a duplicate keeps file order).
+fn sort_by_date(dates: &mut [NaiveDate], prices: &mut [f64], scratch: &mut Vec<(NaiveDate, f64)>) {
+    scratch.clear();
+    scratch.extend(dates.iter().copied().zip(prices.iter().copied()));
+    scratch.sort_by_key(|&(d, _)| d);
+    for (k, &(d, p)) in scratch.iter().enumerate() {
+        dates[k] = d;
+        prices[k] = p;
+    }
+}
+
+/// What a header with `names` looks like, for a message about a layout that does not fit:
+/// `None` when it gives no hint.
+pub(crate) fn layout_hint(
+    names: &[String],
+    columns: &PanelColumns,
+    other_layout: PanelLayout,
+) -> Option<String> {
+    let has = |name: &str| names.iter().any(|n| n == name);
+    match other_layout {
+        PanelLayout::Wide => {
+            let others: Vec<&str> = names
+                .iter()
+                .filter(|n| **n != columns.date_column)
+                .map(String::as_str)
+                .collect();
+            (has(&columns.date_column) && others.len() >= 2).then(|| {
+                format!(
+                    "this looks like a wide file (a `{}` column and {} other columns such as \
+                     {}); set panel.layout = \"wide\"",
+                    columns.date_column,
+                    others.len(),
+                    others[..others.len().min(3)].join(", ")
+                )
+            })
+        }
+        PanelLayout::Long => {
+            (has(&columns.security_column) && has(&columns.price_column)).then(|| {
+                format!(
+                    "this looks like a long file (it has the columns `{}` and `{}`); set \
+                     panel.layout = \"long\"",
+                    columns.security_column, columns.price_column
+                )
+            })
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn date(text: &str) -> NaiveDate {
+        NaiveDate::parse_from_str(text, "%Y-%m-%d").unwrap()
+    }
+
+    // ISO 8601 calendar dates: the Gregorian calendar decides which days exist.
+    #[test]
+    fn iso_dates_parse_and_impossible_ones_do_not() {
+        assert_eq!(parse_iso_date("2024-02-29"), Some(date("2024-02-29")));
+        assert_eq!(parse_iso_date(" 2026-09-30 "), Some(date("2026-09-30")));
+        for bad in [
+            "2023-02-29",
+            "2026-13-01",
+            "2026/09/30",
+            "30-09-2026",
+            "2026-9-30",
+            "",
+        ] {
+            assert_eq!(parse_iso_date(bad), None, "{bad}");
+        }
+    }
+
+    // Rows in any order: grouping must give each security its rows sorted by date, ids in byte
+    // order, whichever order the rows came in (checked against a sort of the same rows).
+    #[test]
+    fn grouping_sorts_by_security_then_date_from_any_order() {
+        let rows_in = [
+            ("B", "2026-01-02", 2.0),
+            ("A", "2026-01-05", 5.0),
+            ("B", "2026-01-01", 1.0),
+            ("A", "2026-01-02", 4.0),
+            ("C", "2026-01-01", 7.0),
+        ];
+        let mut rows = Rows::default();
+        for (s, d, p) in rows_in {
+            let id = rows.dictionary.id(s);
+            rows.push(id, date(d), p);
+        }
+        let grouped = rows.group().unwrap();
+        assert_eq!(grouped.securities, ["A", "B", "C"]);
+        assert_eq!(grouped.offsets, [0, 2, 4, 5]);
+        assert_eq!(grouped.prices, [4.0, 5.0, 1.0, 2.0, 7.0]);
+        let mut expected: Vec<_> = rows_in.iter().map(|&(s, d, _)| (s, date(d))).collect();
+        expected.sort();
+        let got: Vec<_> = (0..3)
+            .flat_map(|i| {
+                let s = grouped.securities[i].clone();
+                grouped.dates[grouped.offsets[i]..grouped.offsets[i + 1]]
+                    .iter()
+                    .map(move |&d| (s.clone(), d))
+            })
+            .collect();
+        let expected: Vec<_> = expected
+            .into_iter()
+            .map(|(s, d)| (s.to_string(), d))
+            .collect();
+        assert_eq!(got, expected);
+    }
+
+    #[test]
+    fn a_repeated_date_within_a_security_is_a_duplicate() {
+        let mut rows = Rows::default();
+        for (s, d) in [
+            ("A", "2026-01-02"),
+            ("B", "2026-01-02"),
+            ("A", "2026-01-02"),
+        ] {
+            let id = rows.dictionary.id(s);
+            rows.push(id, date(d), 1.0);
+        }
+        let duplicate = rows.group().unwrap_err();
+        assert_eq!(duplicate.security, "A");
+        assert_eq!(duplicate.date, date("2026-01-02"));
+    }
+
+    // Rows already grouped by security skip the scans; the outcome must be the same as for any
+    // order: ids out of byte order are still sorted, and a repeated date is still found.
+    #[test]
+    fn grouped_rows_take_the_short_path_to_the_same_result() {
+        let mut rows = Rows::default();
+        for (s, d) in [
+            ("B", "2026-01-01"),
+            ("B", "2026-01-02"),
+            ("A", "2026-01-01"),
+        ] {
+            let id = rows.dictionary.id(s);
+            rows.push(id, date(d), 1.0);
+        }
+        assert!(rows.order.grouped && rows.order.ascending);
+        let grouped = rows.group().unwrap();
+        assert_eq!(grouped.securities, ["A", "B"]);
+        assert_eq!(grouped.offsets, [0, 1, 3]);
+        let mut rows = Rows::default();
+        for (s, d) in [
+            ("A", "2026-01-01"),
+            ("A", "2026-01-01"),
+            ("B", "2026-01-01"),
+        ] {
+            let id = rows.dictionary.id(s);
+            rows.push(id, date(d), 1.0);
+        }
+        assert!(rows.order.grouped && !rows.order.ascending);
+        assert_eq!(rows.group().unwrap_err().security, "A");
+    }
+
+    // The dictionary's guesses must never change which id a name gets.
+    #[test]
+    fn dictionary_ids_follow_first_appearance() {
+        let mut dictionary = Dictionary::default();
+        let names = ["X", "Y", "Z", "X", "Y", "Z", "Z", "Y", "W", "X"];
+        let ids: Vec<u32> = names.iter().map(|n| dictionary.id(n)).collect();
+        assert_eq!(ids, [0, 1, 2, 0, 1, 2, 2, 1, 3, 0]);
+        assert_eq!(dictionary.names.len(), 4);
+    }
+}

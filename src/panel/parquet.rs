@@ -1,0 +1,316 @@
+//! Parquet panels, read a few row groups at a time through polars' Parquet reader.
+//!
+//! Only the columns the layout needs are read, in slices of whole row groups, so memory holds
+//! one slice beside the prices kept. Dates may be stored as dates, date-times at midnight or ISO
+//! text; ids as text or integers; prices as any numeric type. Messages name the row counted from
+//! 1, as a Parquet viewer shows it.
+
+use std::fs::File;
+use std::io::Read;
+use std::sync::mpsc::sync_channel;
+
+use polars::prelude::*;
+use sha2::{Digest, Sha256};
+
+use super::cells::{block_dates, push_long, push_wide, DateCells};
+use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, Source};
+use crate::error::{Error, Result};
+
+/// Rows per slice: row groups are merged up to this size (one group may be larger).
+const SLICE_ROWS: usize = 1 << 18;
+
+/// Reads a Parquet panel into rows; returns them with the SHA-256 of the file's bytes. Three
+/// stages overlap: one thread hashes the file, polars decodes a slice on its own threads, and
+/// another thread moves the previous slice's cells into the rows.
+pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, String)> {
+    let mut rows = Rows::default();
+    let names = column_names(source, columns)?;
+    if columns.layout == PanelLayout::Long {
+        // Room for every row at once, so the columns never grow by copying.
+        rows.reserve(ParquetReader::new(open(source)?).num_rows().unwrap_or(0));
+    }
+    let wide: Vec<(String, u32)> = match columns.layout {
+        PanelLayout::Long => Vec::new(),
+        PanelLayout::Wide => names
+            .iter()
+            .filter(|n| **n != columns.date_column)
+            .map(|n| (n.clone(), rows.dictionary.id(n)))
+            .collect(),
+    };
+    std::thread::scope(|scope| {
+        let hasher = scope.spawn(|| hash_file(source));
+        let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
+        let wide = &wide;
+        let pusher = scope.spawn(move || {
+            for (frame, first_row) in frames_in {
+                push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
+            }
+            Ok(rows)
+        });
+        // A closed channel means the pusher stopped at a bad row; its error is returned below.
+        let decoded = for_each_slice(source, &names, |frame, first_row| {
+            frames
+                .send((frame, first_row))
+                .map_err(|_| source.file_error("stopped".into()))
+        });
+        drop(frames);
+        let pushed: Result<Rows> = pusher.join().expect("the row pusher does not panic");
+        let sha256 = hasher.join().expect("the hasher does not panic");
+        let rows = match (decoded, pushed) {
+            // The pusher's error concerns rows before any slice the decoder refused.
+            (_, Err(e)) | (Err(e), _) => return Err(e),
+            (Ok(()), Ok(rows)) => rows,
+        };
+        Ok((rows, sha256?))
+    })
+}
+
+/// Moves one decoded slice into `rows`.
+fn push_frame(
+    rows: &mut Rows,
+    frame: &DataFrame,
+    wide: &[(String, u32)],
+    first_row: usize,
+    source: &Source,
+    columns: &PanelColumns,
+) -> Result<()> {
+    let dates = date_column(source, frame, &columns.date_column)?;
+    let dates = cells(&dates);
+    match columns.layout {
+        PanelLayout::Long => {
+            let security = typed(source, frame, &columns.security_column, &DataType::String)?;
+            let price = typed(source, frame, &columns.price_column, &DataType::Float64)?;
+            push_long(
+                rows,
+                &dates,
+                security.str().expect("cast to text"),
+                price.f64().expect("cast to doubles"),
+                first_row,
+                source,
+                columns,
+            )
+        }
+        PanelLayout::Wide => {
+            let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
+            let prices = wide
+                .iter()
+                .map(|(name, _)| typed(source, frame, name, &DataType::Float64))
+                .collect::<Result<Vec<_>>>()?;
+            let securities: Vec<_> = wide
+                .iter()
+                .zip(&prices)
+                .map(|((name, id), c)| (*id, c.f64().expect("cast"), name.as_str()))
+                .collect();
+            push_wide(rows, &dates, &securities, first_row, source)
+        }
+    }
+}
+
+/// The columns the layout reads, after checking that they exist.
+fn column_names(source: &Source, columns: &PanelColumns) -> Result<Vec<String>> {
+    let schema = ParquetReader::new(open(source)?)
+        .schema()
+        .map_err(|e| source.file_error(format!("not a readable Parquet file: {e}")))?;
+    let header: Vec<String> = schema.iter_names().map(|n| n.to_string()).collect();
+    let other = match columns.layout {
+        PanelLayout::Long => PanelLayout::Wide,
+        PanelLayout::Wide => PanelLayout::Long,
+    };
+    let require = |name: &str, key: &str| {
+        if header.iter().any(|n| n == name) {
+            return Ok(name.to_string());
+        }
+        let hint =
+            layout_hint(&header, columns, other).map_or_else(String::new, |h| format!("; {h}"));
+        Err(source.file_error(format!(
+            "no column named `{name}` ({key}); the file has {} columns: {}{hint}",
+            header.len(),
+            header[..header.len().min(8)].join(", ")
+        )))
+    };
+    let date = require(&columns.date_column, "panel.date_column")?;
+    match columns.layout {
+        PanelLayout::Long => Ok(vec![
+            date,
+            require(&columns.security_column, "panel.security_column")?,
+            require(&columns.price_column, "panel.price_column")?,
+        ]),
+        PanelLayout::Wide => {
+            if let Some(hint) = layout_hint(&header, columns, PanelLayout::Long) {
+                return Err(source.file_error(format!("read as a wide panel, but {hint}")));
+            }
+            if header.len() < 2 {
+                return Err(source.file_error(format!(
+                    "has only the date column `{date}`: a wide panel needs one column per security"
+                )));
+            }
+            Ok(header)
+        }
+    }
+}
+
+/// Calls `each(frame, first_row)` on consecutive slices of whole row groups.
+fn for_each_slice(
+    source: &Source,
+    names: &[String],
+    mut each: impl FnMut(DataFrame, usize) -> Result<()>,
+) -> Result<()> {
+    let unreadable =
+        |e: PolarsError| source.file_error(format!("not a readable Parquet file: {e}"));
+    let mut reader = ParquetReader::new(open(source)?);
+    let metadata = reader.get_metadata().map_err(unreadable)?.clone();
+    let mut start = 0;
+    let mut length = 0;
+    let groups: Vec<usize> = metadata.row_groups.iter().map(|g| g.num_rows()).collect();
+    for (i, &group) in groups.iter().enumerate() {
+        length += group;
+        let last = i + 1 == groups.len();
+        if length < SLICE_ROWS && !last {
+            continue;
+        }
+        let mut slice = ParquetReader::new(open(source)?)
+            .with_columns(Some(names.to_vec()))
+            .with_slice(Some((start, length)));
+        slice.set_metadata(metadata.clone());
+        let frame = slice.finish().map_err(unreadable)?;
+        crate::progress::check_stop()?;
+        each(frame, start)?;
+        start += length;
+        length = 0;
+    }
+    Ok(())
+}
+
+fn open(source: &Source) -> Result<File> {
+    File::open(&source.file).map_err(|e| Error::Io {
+        path: source.file.clone(),
+        action: "cannot open the panel file",
+        source: e,
+    })
+}
+
+/// SHA-256 of the file's bytes, read in blocks.
+fn hash_file(source: &Source) -> Result<String> {
+    let mut file = open(source)?;
+    let mut hasher = Sha256::new();
+    let mut buffer = vec![0_u8; 1 << 20];
+    loop {
+        let n = file.read(&mut buffer).map_err(|e| Error::Io {
+            path: source.file.clone(),
+            action: "cannot read the panel file",
+            source: e,
+        })?;
+        if n == 0 {
+            break;
+        }
+        hasher.update(&buffer[..n]);
+    }
+    Ok(super::hex(&hasher.finalize()))
+}
+
+/// The date column as days (a date or date-time column) or text (a string column).
+fn date_column(source: &Source, frame: &DataFrame, name: &str) -> Result<Column> {
+    let column = frame
+        .column(name)
+        .map_err(|e| source.file_error(e.to_string()))?;
+    match column.dtype() {
+        DataType::Date | DataType::String => Ok(column.clone()),
+        DataType::Datetime(_, _) => column
+            .cast(&DataType::Date)
+            .map_err(|e| source.file_error(format!("column `{name}`: {e}"))),
+        other => Err(source.file_error(format!(
+            "column `{name}` holds {other}, not dates (a date, or text YYYY-MM-DD)"
+        ))),
+    }
+}
+
+fn cells(column: &Column) -> DateCells<'_> {
+    match column.dtype() {
+        DataType::String => DateCells::Text(column.str().expect("checked")),
+        _ => DateCells::Days(column.date().expect("checked").physical()),
+    }
+}
+
+/// A column cast to `dtype`: ids to text, prices to doubles; anything else is an error.
+fn typed(source: &Source, frame: &DataFrame, name: &str, dtype: &DataType) -> Result<Column> {
+    let column = frame
+        .column(name)
+        .map_err(|e| source.file_error(e.to_string()))?;
+    let fits = match dtype {
+        DataType::String => column.dtype().is_string() || column.dtype().is_integer(),
+        _ => column.dtype().is_primitive_numeric(),
+    };
+    if !fits {
+        let hint = if dtype == &DataType::Float64 && column.dtype().is_string() {
+            " (a wide panel holds only prices beside the date column; if this file has one row \
+             per date and security, set panel.layout = \"long\")"
+        } else {
+            ""
+        };
+        return Err(source.file_error(format!(
+            "column `{name}` holds {}, not {}{hint}",
+            column.dtype(),
+            if dtype == &DataType::String {
+                "security ids"
+            } else {
+                "prices"
+            }
+        )));
+    }
+    column
+        .cast(dtype)
+        .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
+}
+
+/// The error for a repeated (date, security): a second pass finds the rows that hold it.
+pub(super) fn duplicate_error(
+    source: &Source,
+    columns: &PanelColumns,
+    duplicate: &Duplicate,
+) -> Error {
+    let mut found = Vec::new();
+    let names: Vec<String> = match columns.layout {
+        PanelLayout::Long => vec![columns.date_column.clone(), columns.security_column.clone()],
+        PanelLayout::Wide => vec![columns.date_column.clone()],
+    };
+    let scan = for_each_slice(source, &names, |frame, first_row| {
+        let frame = &frame;
+        let dates = date_column(source, frame, &columns.date_column)?;
+        let dates = block_dates(&cells(&dates), first_row, source, &columns.date_column)?;
+        let securities = match columns.layout {
+            PanelLayout::Long => Some(typed(
+                source,
+                frame,
+                &columns.security_column,
+                &DataType::String,
+            )?),
+            PanelLayout::Wide => None,
+        };
+        for (k, date) in dates.iter().enumerate() {
+            let same_security = securities.as_ref().is_none_or(|s| {
+                s.str().expect("cast").get(k).map(str::trim) == Some(duplicate.security.as_str())
+            });
+            if *date == duplicate.date && same_security {
+                found.push((first_row + k + 1).to_string());
+            }
+        }
+        Ok(())
+    });
+    if let Err(e) = scan {
+        return e;
+    }
+    let rows = found.join(" and ");
+    source.file_error(match columns.layout {
+        PanelLayout::Long => format!(
+            "duplicate row for security {} on {} (rows {rows}); each (date, security) pair may \
+             appear once",
+            duplicate.security, duplicate.date
+        ),
+        PanelLayout::Wide => format!(
+            "the date {} appears on more than one row (rows {rows}); a wide panel has one row \
+             per date (if this file has one row per date and security, set panel.layout = \
+             \"long\")",
+            duplicate.date
+        ),
+    })
+}

@@ -1,0 +1,442 @@
+//! The outputs of `hurdle universe`: `securities.csv`/`.parquet` (one row per security),
+//! `industries.csv`/`.parquet` (one row per industry), `summary.md` (the industry table for
+//! people, the settings and the cautions), `result.json` (the receipt) and, when asked for,
+//! `rolling.csv`/`.parquet`.
+//!
+//! Each table is built once as a polars frame from the [`UniverseResult`] and written in both
+//! formats from that frame, so the CSV and the Parquet file cannot differ. Nothing here computes a
+//! figure; an empty cell is a figure the result does not have (never a non-finite number).
+
+use std::fmt::Write as _;
+use std::io::Cursor;
+use std::path::{Path, PathBuf};
+
+use polars::prelude::*;
+
+use super::format::{fixed, label};
+use crate::error::{Error, Result};
+use crate::universe::industries::{IndustryResult, Summary};
+use crate::universe::securities::SecurityResult;
+use crate::universe::UniverseResult;
+
+/// Renders every output, then writes them all into `dir` as one group (never over a file in
+/// `reads`, nothing written when anything fails; see `staging`).
+pub fn write_outputs(
+    dir: &Path,
+    result: &UniverseResult,
+    reads: &[super::staging::FileRead],
+) -> Result<Vec<PathBuf>> {
+    super::staging::write_outputs(dir, &render(result)?, reads)
+}
+
+/// Counts by name, those above zero, as `name n, name n` (empty when none is).
+pub fn nonzero_counts(counts: &std::collections::BTreeMap<&'static str, usize>) -> String {
+    counts
+        .iter()
+        .filter(|(_, &n)| n > 0)
+        .map(|(k, n)| format!("{k} {n}"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// Every output file's name and bytes.
+pub fn render(result: &UniverseResult) -> Result<Vec<(String, Vec<u8>)>> {
+    let mut files = Vec::new();
+    let rolling = result.settings.universe.rolling;
+    let adjusted = result.settings.beta.adjustment != crate::beta::Adjustment::None;
+    let mut tables = vec![
+        ("securities", securities_frame(&result.securities, rolling)?),
+        (
+            "industries",
+            industries_frame(&result.industries, adjusted)?,
+        ),
+    ];
+    if rolling {
+        tables.push(("rolling", rolling_frame(result)?));
+    }
+    for (stem, mut frame) in tables {
+        files.push((format!("{stem}.csv"), csv_bytes(&mut frame)?));
+        files.push((format!("{stem}.parquet"), parquet_bytes(&mut frame)?));
+    }
+    files.push(("summary.md".into(), summary(result).into_bytes()));
+    let json =
+        serde_json::to_vec_pretty(result).map_err(|e| frame_error(format!("result.json: {e}")))?;
+    files.push(("result.json".into(), json));
+    Ok(files)
+}
+
+fn frame_error(message: String) -> Error {
+    Error::Argument {
+        option: "output".into(),
+        message,
+    }
+}
+
+fn csv_bytes(frame: &mut DataFrame) -> Result<Vec<u8>> {
+    let mut bytes = Vec::new();
+    CsvWriter::new(&mut bytes)
+        .finish(frame)
+        .map_err(|e| frame_error(format!("cannot write a CSV table: {e}")))?;
+    Ok(bytes)
+}
+
+fn parquet_bytes(frame: &mut DataFrame) -> Result<Vec<u8>> {
+    let mut bytes = Cursor::new(Vec::new());
+    ParquetWriter::new(&mut bytes)
+        .finish(frame)
+        .map_err(|e| frame_error(format!("cannot write a Parquet table: {e}")))?;
+    Ok(bytes.into_inner())
+}
+
+/// Columns of one table, added in order; non-finite numbers become empty cells.
+struct Table {
+    height: usize,
+    columns: Vec<Column>,
+}
+
+impl Table {
+    fn new(height: usize) -> Table {
+        Table {
+            height,
+            columns: Vec::new(),
+        }
+    }
+
+    fn number(&mut self, name: &str, values: impl Iterator<Item = Option<f64>>) {
+        let values: Vec<Option<f64>> = values.map(|v| v.filter(|v| v.is_finite())).collect();
+        self.columns.push(Column::new(name.into(), values));
+    }
+
+    fn count(&mut self, name: &str, values: impl Iterator<Item = Option<usize>>) {
+        let values: Vec<Option<u64>> = values.map(|v| v.map(|n| n as u64)).collect();
+        self.columns.push(Column::new(name.into(), values));
+    }
+
+    fn text(&mut self, name: &str, values: impl Iterator<Item = Option<String>>) {
+        let values: Vec<Option<String>> = values.collect();
+        self.columns.push(Column::new(name.into(), values));
+    }
+
+    fn finish(self) -> Result<DataFrame> {
+        DataFrame::new(self.height, self.columns)
+            .map_err(|e| frame_error(format!("cannot build a table: {e}")))
+    }
+}
+
+/// Names joined by `;`, or an empty cell.
+fn joined<'a>(names: impl Iterator<Item = &'a str>) -> Option<String> {
+    let names: Vec<&str> = names.collect();
+    (!names.is_empty()).then(|| names.join(";"))
+}
+
+/// `securities.csv`: every statistic a case reports for a peer, and the unlevering.
+fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame> {
+    let mut t = Table::new(rows.len());
+    let e = |f: fn(&crate::beta::BetaEstimate) -> f64| {
+        rows.iter().map(move |r| r.estimate.as_ref().map(f))
+    };
+    let dropped = |f: fn(&crate::market::sampling::DroppedPeriods) -> usize| {
+        rows.iter().map(move |r| r.periods_dropped.as_ref().map(f))
+    };
+    t.text("security", rows.iter().map(|r| Some(r.security.clone())));
+    t.text("industry", rows.iter().map(|r| r.industry.clone()));
+    t.count("prices", rows.iter().map(|r| Some(r.prices)));
+    t.count(
+        "periods_in_window",
+        rows.iter().map(|r| Some(r.periods_in_window)),
+    );
+    t.count(
+        "observations",
+        rows.iter()
+            .map(|r| r.estimate.as_ref().map(|e| e.observations)),
+    );
+    t.count("periods_dropped", dropped(|d| d.total));
+    t.count("dropped_price_missing", dropped(|d| d.asset_missing));
+    t.count("dropped_index_missing", dropped(|d| d.market_missing));
+    t.count(
+        "dropped_risk_free_missing",
+        dropped(|d| d.risk_free_missing),
+    );
+    t.count("dropped_price_stale", dropped(|d| d.asset_stale));
+    t.count("dropped_index_stale", dropped(|d| d.market_stale));
+    t.count(
+        "dropped_shifted_index_missing",
+        dropped(|d| d.shifted_market_missing),
+    );
+    t.text(
+        "not_estimated",
+        rows.iter()
+            .map(|r| r.not_estimated.map(|n| n.name().to_string())),
+    );
+    t.text(
+        "not_estimated_detail",
+        rows.iter().map(|r| r.not_estimated_detail.clone()),
+    );
+    t.number("alpha", e(|e| e.alpha));
+    t.number("alpha_std_error", e(|e| e.alpha_std_error));
+    t.number("alpha_t_stat", e(|e| e.alpha_t_stat));
+    t.number("alpha_p_value", e(|e| e.alpha_p_value));
+    t.number("beta", e(|e| e.beta));
+    t.number("beta_std_error", e(|e| e.beta_std_error));
+    t.number("beta_t_stat", e(|e| e.beta_t_stat));
+    t.number("beta_p_value", e(|e| e.beta_p_value));
+    t.number("beta_ci_low", e(|e| e.beta_ci_low));
+    t.number("beta_ci_high", e(|e| e.beta_ci_high));
+    t.number("r_squared", e(|e| e.r_squared));
+    t.number("adjusted_r_squared", e(|e| e.adjusted_r_squared));
+    t.number("residual_std_error", e(|e| e.residual_std_error));
+    t.number("durbin_watson", e(|e| e.durbin_watson));
+    t.count(
+        "large_studentised_residuals",
+        rows.iter()
+            .map(|r| r.estimate.as_ref().map(|e| e.large_studentised_residuals)),
+    );
+    t.count(
+        "newey_west_lags",
+        rows.iter()
+            .map(|r| r.estimate.as_ref().and_then(|e| e.newey_west_lags)),
+    );
+    t.number("stale_share", rows.iter().map(|r| r.stale_share));
+    t.text(
+        "flags",
+        rows.iter()
+            .map(|r| joined(r.flags.iter().map(|f| f.name()))),
+    );
+    t.text(
+        "excluded_reason",
+        rows.iter().map(|r| r.excluded_reason.clone()),
+    );
+    t.number("shrunk_beta", rows.iter().map(|r| r.shrunk_beta));
+    t.number("beta_used", rows.iter().map(|r| r.beta_used));
+    t.number("equity_value", rows.iter().map(|r| r.equity_value));
+    t.number("debt", rows.iter().map(|r| r.debt));
+    t.number("cash", rows.iter().map(|r| r.cash));
+    t.number("tax_rate", rows.iter().map(|r| r.tax_rate));
+    t.text(
+        "missing",
+        rows.iter()
+            .map(|r| joined(r.missing.iter().map(|m| m.name()))),
+    );
+    t.number("debt_to_equity", rows.iter().map(|r| r.debt_to_equity));
+    t.number("debt_beta", rows.iter().map(|r| Some(r.debt_beta)));
+    t.number("unlevered_beta", rows.iter().map(|r| r.unlevered_beta));
+    t.number("operating_share", rows.iter().map(|r| r.operating_share));
+    t.number("operations_beta", rows.iter().map(|r| r.operations_beta));
+    t.text(
+        "unlevering_issue",
+        rows.iter().map(|r| r.unlevering_issue.map(str::to_string)),
+    );
+    if rolling {
+        let s = |f: fn(&crate::beta::rolling::Stability) -> f64| {
+            rows.iter().map(move |r| r.stability.as_ref().map(f))
+        };
+        t.count(
+            "rolling_windows",
+            rows.iter().map(|r| r.stability.as_ref().map(|s| s.windows)),
+        );
+        t.number("rolling_beta_min", s(|s| s.min));
+        t.number("rolling_beta_max", s(|s| s.max));
+        t.number("rolling_beta_trend_per_year", s(|s| s.trend_per_year));
+    }
+    t.finish()
+}
+
+/// The statistics of one summary under a column prefix (`beta`, `unlevered_beta`, …).
+fn summary_columns(
+    t: &mut Table,
+    rows: &[IndustryResult],
+    stem: &str,
+    pick: fn(&IndustryResult) -> Option<&Summary>,
+) {
+    let d = |f: fn(&Summary) -> f64| rows.iter().map(move |r| pick(r).map(f));
+    t.count(
+        &format!("{stem}_count"),
+        rows.iter()
+            .map(|r| Some(pick(r).map_or(0, |s| s.dispersion.count))),
+    );
+    t.number(&format!("median_{stem}"), d(|s| s.dispersion.median));
+    t.number(&format!("mean_{stem}"), d(|s| s.dispersion.mean));
+    t.number(
+        &format!("market_cap_weighted_{stem}"),
+        rows.iter()
+            .map(|r| pick(r).and_then(|s| s.market_cap_weighted_mean)),
+    );
+    t.number(&format!("trimmed_mean_{stem}"), d(|s| s.trimmed_mean));
+    t.number(
+        &format!("lower_quartile_{stem}"),
+        d(|s| s.dispersion.lower_quartile),
+    );
+    t.number(
+        &format!("upper_quartile_{stem}"),
+        d(|s| s.dispersion.upper_quartile),
+    );
+    t.number(&format!("min_{stem}"), d(|s| s.dispersion.min));
+    t.number(&format!("max_{stem}"), d(|s| s.dispersion.max));
+    t.number(&format!("std_dev_{stem}"), d(|s| s.dispersion.std_dev));
+}
+
+/// `industries.csv`: counts, levered and unlevered betas by every statistic, the D/E.
+fn industries_frame(rows: &[IndustryResult], adjusted: bool) -> Result<DataFrame> {
+    let mut t = Table::new(rows.len());
+    t.text("industry", rows.iter().map(|r| Some(r.industry.clone())));
+    t.count("securities", rows.iter().map(|r| Some(r.securities)));
+    t.count("estimated", rows.iter().map(|r| Some(r.estimated)));
+    t.count("excluded", rows.iter().map(|r| Some(r.excluded_total)));
+    for flag in crate::universe::FLAGS {
+        t.count(
+            &format!("excluded_{}", flag.name()),
+            rows.iter().map(|r| r.excluded.get(flag.name()).copied()),
+        );
+    }
+    for reason in crate::universe::estimate::NotEstimated::ALL {
+        t.count(
+            &format!("not_estimated_{}", reason.name()),
+            rows.iter()
+                .map(|r| r.not_estimated.get(reason.name()).copied()),
+        );
+    }
+    summary_columns(&mut t, rows, "beta", |r| r.levered.as_ref());
+    if adjusted {
+        summary_columns(&mut t, rows, "shrunk_beta", |r| r.shrunk.as_ref());
+    }
+    t.number(
+        "median_debt_to_equity",
+        rows.iter().map(|r| r.median_debt_to_equity),
+    );
+    summary_columns(&mut t, rows, "unlevered_beta", |r| r.unlevered.as_ref());
+    summary_columns(&mut t, rows, "operations_beta", |r| r.operations.as_ref());
+    t.number("unlevered_beta", rows.iter().map(|r| r.unlevered_beta));
+    t.finish()
+}
+
+/// `rolling.csv`: one row per security and rolling window.
+fn rolling_frame(result: &UniverseResult) -> Result<DataFrame> {
+    let points: Vec<(&str, &crate::beta::rolling::RollingPoint)> = result
+        .securities
+        .iter()
+        .zip(&result.rolling)
+        .flat_map(|(s, points)| points.iter().map(move |p| (s.security.as_str(), p)))
+        .collect();
+    let mut t = Table::new(points.len());
+    t.text("security", points.iter().map(|(s, _)| Some(s.to_string())));
+    t.text(
+        "window_end",
+        points.iter().map(|(_, p)| Some(p.window_end.to_string())),
+    );
+    t.number("beta", points.iter().map(|(_, p)| Some(p.beta)));
+    t.number("std_error", points.iter().map(|(_, p)| Some(p.std_error)));
+    t.count(
+        "observations",
+        points.iter().map(|(_, p)| Some(p.observations)),
+    );
+    t.finish()
+}
+
+/// A figure to three decimals, or a dash.
+fn shown(value: Option<f64>) -> String {
+    value
+        .filter(|v| v.is_finite())
+        .map_or_else(|| "–".to_string(), |v| fixed(v, 3))
+}
+
+/// `summary.md`: what was run, the industry table, the counts and the cautions.
+fn summary(r: &UniverseResult) -> String {
+    let s = &r.settings;
+    let mut out = String::new();
+    let title = if r.universe.title.is_empty() {
+        "Industry betas"
+    } else {
+        &r.universe.title
+    };
+    let _ = writeln!(out, "# {title}\n");
+    let _ = writeln!(
+        out,
+        "Valuation date {}. Return window {} to {} ({} {} periods, at least {} usable returns \
+         per security). Estimator: {}; standard errors: {}. Unlevering: {} with each firm's own \
+         D/E ({} debt) and tax rate, {}. Aggregate unlevered beta: {}{}.\n",
+        r.universe.valuation_date,
+        r.window.window_start,
+        r.window.window_end,
+        r.window.periods,
+        label(&r.window.frequency),
+        r.window.min_observations,
+        r.estimator.method_description,
+        r.estimator.std_errors_description,
+        label(&s.leverage.formula),
+        label(&s.leverage.debt_measure),
+        r.formula_source,
+        label(&s.leverage.aggregation),
+        if s.leverage.operations_beta {
+            " of the betas of the operations (cash at a beta of zero)"
+        } else {
+            ""
+        },
+    );
+    let c = &r.counts;
+    let _ = writeln!(
+        out,
+        "{} securities with prices; {} estimated and aggregated, {} excluded by \
+         beta.exclude_flags, {} not estimated ({}); {} with an unlevered beta.\n",
+        c.securities,
+        c.estimated,
+        c.excluded,
+        c.not_estimated.values().sum::<usize>(),
+        nonzero_counts(&c.not_estimated),
+        c.unlevered
+    );
+    let _ = writeln!(
+        out,
+        "| Industry | Securities | Estimated | Median β | β quartiles | Median D/E | Median βU | βU ({}) |",
+        label(&s.leverage.aggregation)
+    );
+    out.push_str("|---|---:|---:|---:|---|---:|---:|---:|\n");
+    for i in &r.industries {
+        let levered = i.levered.as_ref();
+        let quartiles = levered.map_or_else(
+            || "–".to_string(),
+            |l| {
+                format!(
+                    "{} – {}",
+                    fixed(l.dispersion.lower_quartile, 3),
+                    fixed(l.dispersion.upper_quartile, 3)
+                )
+            },
+        );
+        let _ = writeln!(
+            out,
+            "| {} | {} | {} | {} | {} | {} | {} | {} |",
+            i.industry.replace('|', "\\|"),
+            i.securities,
+            i.estimated,
+            shown(levered.map(|l| l.dispersion.median)),
+            quartiles,
+            shown(i.median_debt_to_equity),
+            shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
+            shown(i.unlevered_beta),
+        );
+    }
+    out.push('\n');
+    for note in &r.notes {
+        let _ = writeln!(out, "- {note}");
+    }
+    let missing = nonzero_counts(&c.missing);
+    if !missing.is_empty() {
+        let _ = writeln!(
+            out,
+            "- Securities lacking a figure (flagged in securities.csv, left out of every \
+             aggregate that needs it, never filled in): {missing}."
+        );
+    }
+    out.push_str(CAUTIONS);
+    out
+}
+
+const CAUTIONS: &str = "\n## Cautions\n\n\
+- A discount rate is a judgement; these tables inform it and do not replace it.\n\
+- Every beta is an estimate with sampling error: securities.csv gives each one's standard \
+  error and 95% confidence interval. An industry figure resting on few securities is fragile; \
+  the counts say how many each rests on.\n\
+- Prices, attributes and industry labels are used as supplied; hurdle does not check them \
+  against any other source. A security's industry is the label in the attributes file.\n\
+- Unlevering assumes the formula's view of debt and taxes (see the formula's source); market \
+  values of equity and book or market debt are whatever the attributes file holds.\n";

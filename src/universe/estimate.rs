@@ -1,0 +1,195 @@
+//! The universe's use of the estimate layer: the window and the index's returns built once, then
+//! one call of [`crate::estimate::estimate_security`] per security — the call a case makes for a
+//! peer, with the spec a case with the same `[beta]` would build — so a security's figures equal
+//! that case's.
+//!
+//! What the universe keeps of each estimate is small: the regression, its diagnostics and the
+//! dropped periods; the aligned returns are dropped at once (5,000 securities' returns would
+//! otherwise hold hundreds of megabytes), and the rolling betas are computed only when asked for.
+//! A security the case would refuse (too few usable returns, a flat index over its periods, an
+//! estimator that cannot be fitted) is not an error here: it is listed with the reason.
+
+use chrono::NaiveDate;
+use serde::Serialize;
+
+use crate::beta::diagnostics::PeerFlag;
+use crate::beta::rolling::{RollingPoint, Stability};
+use crate::beta::BetaEstimate;
+use crate::estimate::{self, EstimateError, EstimationSpec, MarketReturns, Window};
+use crate::io::series::{iso_date, SeriesView};
+use crate::market::sampling::{self, DroppedPeriods};
+
+/// Why a security has no estimate.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum NotEstimated {
+    /// Fewer usable returns than `beta.min_observations`.
+    TooFewObservations,
+    /// The index returns do not vary over the periods aligned with the security.
+    FlatIndex,
+    /// The estimator could not be fitted (e.g. too many lags for the observations).
+    EstimatorFailed,
+}
+
+impl NotEstimated {
+    pub const ALL: [NotEstimated; 3] = [
+        NotEstimated::TooFewObservations,
+        NotEstimated::FlatIndex,
+        NotEstimated::EstimatorFailed,
+    ];
+
+    /// The reason's name in outputs.
+    pub fn name(self) -> &'static str {
+        match self {
+            NotEstimated::TooFewObservations => "too_few_observations",
+            NotEstimated::FlatIndex => "flat_index",
+            NotEstimated::EstimatorFailed => "estimator_failed",
+        }
+    }
+}
+
+/// A security's regression and its diagnostics.
+#[derive(Debug, Clone)]
+pub struct Estimated {
+    pub estimate: BetaEstimate,
+    pub periods_in_window: usize,
+    pub stale_share: f64,
+    pub flags: Vec<PeerFlag>,
+    /// The flags `beta.exclude_flags` names: the security stays out of the aggregates.
+    pub excluding_flags: Vec<PeerFlag>,
+    pub stability: Option<Stability>,
+}
+
+/// What estimating one security gave.
+#[derive(Debug, Clone)]
+pub struct SecurityEstimate {
+    pub periods_dropped: Option<DroppedPeriods>,
+    pub outcome: Result<Estimated, (NotEstimated, String)>,
+    /// Rolling OLS betas, when asked for.
+    pub rolling: Vec<RollingPoint>,
+}
+
+/// The spec, the window and the index's returns, shared by every security of a run.
+#[derive(Debug, Clone)]
+pub struct Estimation {
+    spec: EstimationSpec,
+    window: Window,
+    market: MarketReturns,
+    rolling: bool,
+}
+
+impl Estimation {
+    /// Builds the window of `spec` and samples the index (and the risk-free series) once.
+    /// Without `rolling` the spec's rolling window is set to 0, which computes no windows.
+    pub fn new(
+        mut spec: EstimationSpec,
+        index: SeriesView<'_>,
+        risk_free: Option<SeriesView<'_>>,
+        rolling: bool,
+    ) -> Estimation {
+        if !rolling {
+            spec.rolling.window = 0;
+        }
+        let window = Window::new(&spec);
+        let market = MarketReturns::new(&spec, &window, index, risk_free);
+        Estimation {
+            spec,
+            window,
+            market,
+            rolling,
+        }
+    }
+
+    pub fn window(&self) -> &Window {
+        &self.window
+    }
+
+    /// One security, as a case estimates a peer.
+    pub fn security(&self, prices: SeriesView<'_>) -> SecurityEstimate {
+        let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
+        let min = self.spec.min_observations;
+        match estimated {
+            Ok(mut e) => SecurityEstimate {
+                periods_dropped: Some(e.dropped),
+                outcome: Ok(Estimated {
+                    estimate: {
+                        // One influence term per return serves a case's joint Monte Carlo; a
+                        // universe keeps the statistics only (20 kB a security otherwise).
+                        e.estimate.beta_influence = Vec::new();
+                        e.estimate
+                    },
+                    periods_in_window: e.periods_in_window,
+                    stale_share: e.stale_share,
+                    flags: e.flags,
+                    excluding_flags: e.excluding_flags,
+                    stability: e.stability.filter(|_| self.rolling),
+                }),
+                rolling: e.rolling,
+            },
+            Err(EstimateError::TooFewReturns { usable, dropped }) => SecurityEstimate {
+                periods_dropped: Some(dropped),
+                outcome: Err((
+                    NotEstimated::TooFewObservations,
+                    format!(
+                        "{usable} usable returns in the window of {} periods (dropped {}: price \
+                         missing {}, index price missing {}, risk-free missing {}); \
+                         beta.min_observations = {min}",
+                        self.window.period_ends().len(),
+                        dropped.total,
+                        dropped.asset_missing,
+                        dropped.market_missing,
+                        dropped.risk_free_missing,
+                    ),
+                )),
+                rolling: Vec::new(),
+            },
+            Err(EstimateError::FlatIndex { periods }) => SecurityEstimate {
+                periods_dropped: None,
+                outcome: Err((
+                    NotEstimated::FlatIndex,
+                    format!(
+                        "the index returns have zero variance over the {periods} periods aligned"
+                    ),
+                )),
+                rolling: Vec::new(),
+            },
+            Err(EstimateError::Estimator(message)) => SecurityEstimate {
+                periods_dropped: None,
+                outcome: Err((NotEstimated::EstimatorFailed, message)),
+                rolling: Vec::new(),
+            },
+        }
+    }
+
+    /// The window as the receipt records it.
+    pub fn record(&self) -> WindowRecord {
+        WindowRecord {
+            frequency: self.spec.frequency,
+            lookback: self.spec.lookback,
+            periods: self.window.period_ends().len(),
+            min_observations: self.spec.min_observations,
+            window_start: self.window.start(),
+            window_end: self.window.end(),
+            excess_returns: self.market.excess(),
+            sampling_rule: sampling::rule_text(self.spec.frequency),
+        }
+    }
+}
+
+/// The window as the receipt records it.
+#[derive(Debug, Clone, Serialize)]
+pub struct WindowRecord {
+    pub frequency: sampling::Frequency,
+    pub lookback: u32,
+    /// Return periods in the window.
+    pub periods: usize,
+    pub min_observations: u32,
+    /// The first sample point (the base price of the first return).
+    #[serde(serialize_with = "iso_date")]
+    pub window_start: NaiveDate,
+    /// The last sample point.
+    #[serde(serialize_with = "iso_date")]
+    pub window_end: NaiveDate,
+    pub excess_returns: bool,
+    pub sampling_rule: &'static str,
+}

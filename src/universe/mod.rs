@@ -1,0 +1,379 @@
+//! Industry beta tables from a whole market: every security of a price panel estimated as a
+//! case would estimate a peer, unlevered with its own capital structure, and aggregated by
+//! industry.
+//!
+//! [`load_inputs`] reads the universe file's data (index, risk-free series, panel, attributes);
+//! [`evaluate`] is a function of what was read: the shared window once
+//! ([`estimate::Estimation`]), every security in parallel through the estimate layer, the
+//! adjustment over the cross-section, the rows ([`securities::security_row`]) and the industry
+//! table ([`industries::industry_table`]), all in one [`UniverseResult`] that every output
+//! renders.
+
+pub mod estimate;
+pub mod industries;
+pub mod securities;
+pub mod settings;
+
+use chrono::NaiveDate;
+use rayon::prelude::*;
+use serde::Serialize;
+
+use crate::beta::diagnostics::PeerFlag;
+use crate::beta::rolling::RollingPoint;
+use crate::beta::{self, vasicek, AdjustedBeta, Adjustment};
+use crate::error::{Error, Result};
+use crate::io::series::{iso_date, read_series_file, DataFile, ValueKind};
+use crate::panel::attributes::{read_attributes, Attributes, AttributesFile};
+use crate::panel::{read_panel, Panel, PanelFile};
+use estimate::{Estimation, NotEstimated, SecurityEstimate, WindowRecord};
+use industries::IndustryResult;
+use securities::{security_row, Missing, RowSettings, SecurityResult};
+use settings::{Universe, UniverseFile};
+
+/// Version of the universe `result.json` layout.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// A universe file with every table it names, read and checked.
+#[derive(Debug, Clone)]
+pub struct UniverseInputs {
+    pub universe: Universe,
+    pub index: DataFile,
+    pub risk_free: Option<DataFile>,
+    pub panel: Panel,
+    pub attributes: Attributes,
+}
+
+/// Reads every table the universe file names, resolving paths against its folder.
+pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
+    let settings = &universe.settings;
+    let index_spec = &settings.market.index;
+    let index = read_series_file(
+        "index",
+        &index_spec.prices,
+        &universe.resolve(&index_spec.prices),
+        &index_spec.date_column,
+        &index_spec.price_column,
+        ValueKind::Price,
+    )?;
+    let risk_free = match &settings.market.risk_free_series {
+        Some(spec) => Some(read_series_file(
+            "risk_free",
+            &spec.yields,
+            &universe.resolve(&spec.yields),
+            &spec.date_column,
+            &spec.yield_column,
+            ValueKind::Yield,
+        )?),
+        None => None,
+    };
+    let attributes_spec = &settings.attributes;
+    // The small table first: a bad attribute is reported before the panel's seconds of reading.
+    let attributes = read_attributes(
+        &attributes_spec.file,
+        &universe.resolve(&attributes_spec.file),
+        &attributes_spec.columns(),
+    )?;
+    let panel = read_panel(
+        &settings.panel.prices,
+        &universe.resolve(&settings.panel.prices),
+        &settings.panel.columns(),
+    )?;
+    Ok(UniverseInputs {
+        universe,
+        index,
+        risk_free,
+        panel,
+        attributes,
+    })
+}
+
+/// The tool that produced a result.
+#[derive(Debug, Clone, Serialize)]
+pub struct ToolInfo {
+    pub name: &'static str,
+    pub version: &'static str,
+}
+
+/// Where the universe file came from.
+#[derive(Debug, Clone, Serialize)]
+pub struct UniverseRecord {
+    pub file: String,
+    pub sha256: String,
+    pub overrides: Vec<String>,
+    pub title: String,
+    #[serde(serialize_with = "iso_date")]
+    pub valuation_date: NaiveDate,
+}
+
+/// The files read, with their hashes.
+#[derive(Debug, Clone, Serialize)]
+pub struct Files {
+    pub index: DataFile,
+    pub risk_free: Option<DataFile>,
+    pub panel: PanelFile,
+    pub attributes: AttributesFile,
+}
+
+/// How many securities went where.
+#[derive(Debug, Clone, Serialize)]
+pub struct Counts {
+    /// Securities with at least one price in the panel.
+    pub securities: usize,
+    /// Estimated and not excluded.
+    pub estimated: usize,
+    pub not_estimated: std::collections::BTreeMap<&'static str, usize>,
+    /// Estimated but excluded by `beta.exclude_flags`.
+    pub excluded: usize,
+    /// Securities lacking a figure, by figure (a security can lack several).
+    pub missing: std::collections::BTreeMap<&'static str, usize>,
+    /// Securities with an unlevered beta.
+    pub unlevered: usize,
+    /// Attribute rows whose security the panel does not hold.
+    pub attributes_not_in_panel: usize,
+}
+
+/// Every figure of one universe run and every input that produced it.
+#[derive(Debug, Clone, Serialize)]
+pub struct UniverseResult {
+    pub schema_version: u32,
+    /// `universe`, so a reader of `result.json` can tell it from a case's.
+    pub kind: &'static str,
+    pub tool: ToolInfo,
+    pub generated_at: String,
+    pub universe: UniverseRecord,
+    /// The resolved universe settings, every default written out.
+    pub settings: UniverseFile,
+    pub files: Files,
+    pub window: WindowRecord,
+    pub estimator: beta::EstimatorRecord,
+    pub formula_source: &'static str,
+    pub formula_expression: &'static str,
+    pub vasicek_prior: Option<vasicek::Prior>,
+    pub counts: Counts,
+    /// Plain-language remarks a reviewer should see (attributes without prices, …).
+    pub notes: Vec<String>,
+    pub industries: Vec<IndustryResult>,
+    /// One row per security, in id order (written to `securities.csv`, not to JSON).
+    #[serde(skip)]
+    pub securities: Vec<SecurityResult>,
+    /// Each security's rolling betas when `universe.rolling` (written to `rolling.csv`).
+    #[serde(skip)]
+    pub rolling: Vec<Vec<RollingPoint>>,
+}
+
+/// Computes the universe's tables. `progress(n)` is called as securities are estimated (from
+/// several threads); `generated_at` is stamped into the result as given.
+pub fn evaluate(
+    inputs: &UniverseInputs,
+    generated_at: &str,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<UniverseResult> {
+    let settings = &inputs.universe.settings;
+    let estimation = Estimation::new(
+        settings.estimation_spec(),
+        inputs.index.series.view(),
+        inputs.risk_free.as_ref().map(|f| f.series.view()),
+        settings.universe.rolling,
+    );
+    check_overlap(inputs, &estimation)?;
+    let panel = &inputs.panel;
+    // A stop request (Ctrl-C) ends the run between two securities, with nothing written.
+    let estimates: Vec<SecurityEstimate> = (0..panel.len())
+        .into_par_iter()
+        .map(|i| {
+            crate::progress::check_stop()?;
+            let estimate = estimation.security(panel.series(i));
+            progress(1);
+            Ok(estimate)
+        })
+        .collect::<Result<_>>()?;
+    let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
+    let row_settings = RowSettings {
+        leverage: &settings.leverage,
+        cash_column: settings.attributes.cash_column.is_some(),
+        periods_in_window: estimation.window().period_ends().len(),
+    };
+    let (securities, rolling): (Vec<SecurityResult>, Vec<Vec<RollingPoint>>) = estimates
+        .into_iter()
+        .zip(adjusted)
+        .enumerate()
+        .map(|(i, (estimate, adjusted))| {
+            let id = &panel.securities()[i];
+            let row = security_row(
+                id,
+                panel.series(i).values.len(),
+                &estimate,
+                adjusted.as_ref(),
+                inputs.attributes.get(id),
+                &row_settings,
+            );
+            (row, estimate.rolling)
+        })
+        .unzip();
+    let industries = industries::industry_table(
+        &securities,
+        &settings.leverage,
+        settings.beta.adjustment != Adjustment::None,
+    );
+    let (counts, notes) = counts_and_notes(inputs, &securities);
+    Ok(UniverseResult {
+        schema_version: SCHEMA_VERSION,
+        kind: "universe",
+        tool: ToolInfo {
+            name: env!("CARGO_PKG_NAME"),
+            version: env!("CARGO_PKG_VERSION"),
+        },
+        generated_at: generated_at.to_string(),
+        universe: UniverseRecord {
+            file: inputs.universe.path.display().to_string(),
+            sha256: inputs.universe.sha256.clone(),
+            overrides: inputs.universe.overrides.clone(),
+            title: settings.universe.title.clone(),
+            valuation_date: settings.universe.valuation_date.0,
+        },
+        settings: settings.clone(),
+        files: Files {
+            index: inputs.index.clone(),
+            risk_free: inputs.risk_free.clone(),
+            panel: panel.file.clone(),
+            attributes: inputs.attributes.file.clone(),
+        },
+        window: estimation.record(),
+        estimator: beta::describe(&settings.estimator_spec()),
+        formula_source: settings.leverage.formula.citation(),
+        formula_expression: settings.leverage.formula.expression(),
+        vasicek_prior,
+        counts,
+        notes,
+        industries,
+        securities,
+        rolling,
+    })
+}
+
+/// A panel that shares no dates with the index inside the window is an input error, not a
+/// table of securities without estimates.
+fn check_overlap(inputs: &UniverseInputs, estimation: &Estimation) -> Result<()> {
+    let panel = &inputs.panel.file;
+    let index = &inputs.index;
+    let window = estimation.window();
+    let from = panel.first_date.max(index.first_date);
+    let to = panel.last_date.min(index.last_date);
+    if from < to && from <= window.end() && to >= window.start() {
+        return Ok(());
+    }
+    Err(Error::DataFile {
+        file: inputs.universe.resolve(&panel.path),
+        message: format!(
+            "the panel's prices ({} to {}) do not overlap the index's ({}, {} to {}) inside the \
+             return window ({} to {}): no security can be estimated",
+            panel.first_date,
+            panel.last_date,
+            index.path,
+            index.first_date,
+            index.last_date,
+            window.start(),
+            window.end()
+        ),
+    })
+}
+
+/// `beta.adjustment` over every estimated security (Vasicek's prior from the cross-section of
+/// those not excluded, the whole universe, unless stated): one entry per security, `None` for
+/// those not estimated.
+fn adjust(
+    settings: &UniverseFile,
+    estimates: &[SecurityEstimate],
+) -> Result<(Vec<Option<AdjustedBeta>>, Option<vasicek::Prior>)> {
+    let estimated: Vec<&estimate::Estimated> = estimates
+        .iter()
+        .filter_map(|e| e.outcome.as_ref().ok())
+        .collect();
+    let raw: Vec<(f64, f64)> = estimated
+        .iter()
+        .map(|e| (e.estimate.beta, e.estimate.beta_std_error))
+        .collect();
+    let included: Vec<bool> = estimated
+        .iter()
+        .map(|e| e.excluding_flags.is_empty())
+        .collect();
+    let beta = &settings.beta;
+    let stated = beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance);
+    let (adjusted, prior) =
+        beta::adjust_all(beta.adjustment, beta.blume_weight, stated, &raw, &included).map_err(
+            |message| Error::Estimation {
+                peer: "(all securities)".into(),
+                message: message.replace("peers", "securities"),
+            },
+        )?;
+    let mut adjusted = adjusted.into_iter();
+    let per_security = estimates
+        .iter()
+        .map(|e| {
+            e.outcome
+                .is_ok()
+                .then(|| adjusted.next().expect("one per estimate"))
+        })
+        .collect();
+    Ok((per_security, prior))
+}
+
+/// The counts of the summary and the notes a reviewer should see.
+fn counts_and_notes(
+    inputs: &UniverseInputs,
+    securities: &[SecurityResult],
+) -> (Counts, Vec<String>) {
+    let panel = &inputs.panel;
+    let strays: Vec<&str> = inputs
+        .attributes
+        .records()
+        .iter()
+        .filter(|r| panel.position(&r.security).is_none())
+        .map(|r| r.security.as_str())
+        .collect();
+    let mut notes = Vec::new();
+    if !strays.is_empty() {
+        notes.push(format!(
+            "{} securities in the attributes ({}) have no prices in the panel and are left \
+             out: {}{}",
+            strays.len(),
+            inputs.attributes.file.path,
+            strays[..strays.len().min(10)].join(", "),
+            if strays.len() > 10 { ", …" } else { "" }
+        ));
+    }
+    let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
+    let not_estimated = NotEstimated::ALL
+        .iter()
+        .map(|&r| (r.name(), count(&|s| s.not_estimated == Some(r))))
+        .collect();
+    let missing = Missing::ALL
+        .iter()
+        .map(|&m| (m.name(), count(&|s| s.missing.contains(&m))))
+        .collect();
+    let excluded = count(&|s| s.estimate.is_some() && s.excluded_reason.is_some());
+    let without_industry = count(&|s| s.industry.is_none());
+    if without_industry > 0 {
+        notes.push(format!(
+            "{without_industry} securities have no industry (no attributes row or an empty \
+             label): they are listed in securities.csv but enter no industry."
+        ));
+    }
+    let counts = Counts {
+        securities: securities.len(),
+        estimated: count(&|s| s.aggregated()),
+        not_estimated,
+        excluded,
+        missing,
+        unlevered: count(&|s| s.unlevered_beta.is_some()),
+        attributes_not_in_panel: strays.len(),
+    };
+    (counts, notes)
+}
+
+/// The flags a security can raise, in the order outputs list them.
+pub const FLAGS: [PeerFlag; 3] = [
+    PeerFlag::TooFewObservations,
+    PeerFlag::LowRSquared,
+    PeerFlag::StalePrices,
+];

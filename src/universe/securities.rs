@@ -1,0 +1,339 @@
+//! One row per security: its estimate, the adjustment, the exclusion rule, its attributes and
+//! its unlevered betas.
+//!
+//! Each row is built whole once every estimate is known (a Vasicek prior needs the whole
+//! cross-section). A figure that needs a missing attribute is left empty and the row says what
+//! is missing; nothing is guessed. Unlevering uses the security's own D/E and tax rate with the
+//! formula of `[leverage]`, exactly as a case unlevers a peer.
+
+use serde::Serialize;
+
+use super::estimate::{NotEstimated, SecurityEstimate};
+use crate::beta::diagnostics::PeerFlag;
+use crate::beta::rolling::Stability;
+use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
+use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms};
+use crate::case::LeverageSettings;
+use crate::market::sampling::DroppedPeriods;
+use crate::panel::attributes::AttributeRecord;
+
+/// A figure a security lacks.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Missing {
+    /// The attributes table has no row for the security.
+    Attributes,
+    Industry,
+    EquityValue,
+    Debt,
+    Cash,
+    TaxRate,
+}
+
+impl Missing {
+    pub const ALL: [Missing; 6] = [
+        Missing::Attributes,
+        Missing::Industry,
+        Missing::EquityValue,
+        Missing::Debt,
+        Missing::Cash,
+        Missing::TaxRate,
+    ];
+
+    /// The flag's name in outputs.
+    pub fn name(self) -> &'static str {
+        match self {
+            Missing::Attributes => "no_attributes",
+            Missing::Industry => "missing_industry",
+            Missing::EquityValue => "missing_equity_value",
+            Missing::Debt => "missing_debt",
+            Missing::Cash => "missing_cash",
+            Missing::TaxRate => "missing_tax_rate",
+        }
+    }
+}
+
+/// Everything reported for one security.
+#[derive(Debug, Clone, Serialize)]
+pub struct SecurityResult {
+    pub security: String,
+    pub industry: Option<String>,
+    /// Prices the panel holds for the security.
+    pub prices: usize,
+    pub periods_in_window: usize,
+    /// Periods left out of the regression by reason (`None` when not known: a flat index or an
+    /// estimator that failed).
+    pub periods_dropped: Option<DroppedPeriods>,
+    /// The regression, when the security could be estimated.
+    pub estimate: Option<BetaEstimate>,
+    pub not_estimated: Option<NotEstimated>,
+    /// Why, in words, when not estimated.
+    pub not_estimated_detail: Option<String>,
+    pub flags: Vec<PeerFlag>,
+    pub stale_share: Option<f64>,
+    /// Why the security is left out of the aggregates (`beta.exclude_flags`), or `None`.
+    pub excluded_reason: Option<String>,
+    /// The raw beta shrunk by Blume's or Vasicek's method (`beta.adjustment`).
+    pub shrunk_beta: Option<f64>,
+    pub vasicek: Option<vasicek::Shrunk>,
+    /// The beta that is unlevered: the shrunk one when there is one, else the raw one.
+    pub beta_used: Option<f64>,
+    pub equity_value: Option<f64>,
+    pub debt: Option<f64>,
+    pub cash: Option<f64>,
+    pub tax_rate: Option<f64>,
+    pub missing: Vec<Missing>,
+    /// D/E with `leverage.debt_measure`.
+    pub debt_to_equity: Option<f64>,
+    pub debt_beta: f64,
+    pub unlevered_beta: Option<f64>,
+    /// 1 − cash / (equity + debt), gross debt: the operations' share of the firm's value.
+    pub operating_share: Option<f64>,
+    /// The beta of the operations, βU / operating share (cash at a beta of zero).
+    pub operations_beta: Option<f64>,
+    /// Why an unlevered figure is undefined although every input is present.
+    pub unlevering_issue: Option<&'static str>,
+    /// Range and trend of the rolling betas, when `universe.rolling` asks for them.
+    pub stability: Option<Stability>,
+}
+
+impl SecurityResult {
+    /// Whether the security enters the aggregates of levered betas.
+    pub fn aggregated(&self) -> bool {
+        self.estimate.is_some() && self.excluded_reason.is_none()
+    }
+}
+
+/// The settings a row is built with.
+pub struct RowSettings<'a> {
+    pub leverage: &'a LeverageSettings,
+    /// Whether the attributes name a cash column (otherwise cash is not a missing figure).
+    pub cash_column: bool,
+    pub periods_in_window: usize,
+}
+
+/// Why an estimated security is left out of the aggregates, from its excluding flags.
+pub fn exclusion(excluding_flags: &[PeerFlag]) -> Option<String> {
+    (!excluding_flags.is_empty()).then(|| {
+        let names: Vec<&str> = excluding_flags.iter().map(|f| f.name()).collect();
+        format!("flag-based rule beta.exclude_flags: {}", names.join(", "))
+    })
+}
+
+/// Builds one security's row from its estimate, its shrunk beta (present exactly when it
+/// was estimated) and its attributes.
+pub fn security_row(
+    security: &str,
+    prices: usize,
+    estimated: &SecurityEstimate,
+    adjusted: Option<&AdjustedBeta>,
+    attributes: Option<&AttributeRecord>,
+    settings: &RowSettings<'_>,
+) -> SecurityResult {
+    let (estimate, flags, stale_share, excluded_reason, stability, not_estimated) =
+        match &estimated.outcome {
+            Ok(e) => (
+                Some(e.estimate.clone()),
+                e.flags.clone(),
+                Some(e.stale_share),
+                exclusion(&e.excluding_flags),
+                e.stability.clone(),
+                None,
+            ),
+            Err((reason, detail)) => (
+                None,
+                Vec::new(),
+                None,
+                None,
+                None,
+                Some((*reason, detail.clone())),
+            ),
+        };
+    let beta_used = adjusted.map(|a| a.used);
+    let missing = missing(attributes, settings.cash_column);
+    let figure = |f: fn(&AttributeRecord) -> Option<f64>| attributes.and_then(f);
+    let (equity, debt, cash, tax) = (
+        figure(|a| a.equity_value),
+        figure(|a| a.debt),
+        figure(|a| a.cash),
+        figure(|a| a.tax_rate),
+    );
+    let leverage = settings.leverage;
+    let debt_beta = match leverage.debt_beta_source {
+        DebtBetaSource::Given => leverage.debt_beta,
+        _ => 0.0,
+    };
+    let unlevering = unlever(beta_used, equity, debt, cash, tax, leverage, debt_beta);
+    SecurityResult {
+        security: security.to_string(),
+        industry: attributes.and_then(|a| a.industry.clone()),
+        prices,
+        periods_in_window: settings.periods_in_window,
+        periods_dropped: estimated.periods_dropped,
+        estimate,
+        not_estimated: not_estimated.as_ref().map(|(r, _)| *r),
+        not_estimated_detail: not_estimated.map(|(_, d)| d),
+        flags,
+        stale_share,
+        excluded_reason,
+        shrunk_beta: adjusted.and_then(|a| a.shrunk),
+        vasicek: adjusted.and_then(|a| a.vasicek),
+        beta_used,
+        equity_value: equity,
+        debt,
+        cash,
+        tax_rate: tax,
+        missing,
+        debt_to_equity: unlevering.debt_to_equity,
+        debt_beta,
+        unlevered_beta: unlevering.unlevered,
+        operating_share: unlevering.operating_share,
+        operations_beta: unlevering.operations,
+        unlevering_issue: unlevering.issue,
+        stability,
+    }
+}
+
+/// The figures a security lacks.
+fn missing(attributes: Option<&AttributeRecord>, cash_column: bool) -> Vec<Missing> {
+    let Some(a) = attributes else {
+        return vec![Missing::Attributes];
+    };
+    [
+        (Missing::Industry, a.industry.is_none()),
+        (Missing::EquityValue, a.equity_value.is_none()),
+        (Missing::Debt, a.debt.is_none()),
+        (Missing::Cash, cash_column && a.cash.is_none()),
+        (Missing::TaxRate, a.tax_rate.is_none()),
+    ]
+    .into_iter()
+    .filter(|&(_, absent)| absent)
+    .map(|(m, _)| m)
+    .collect()
+}
+
+/// The unlevering figures of one security; each is `None` when an input is missing.
+struct Unlevering {
+    debt_to_equity: Option<f64>,
+    unlevered: Option<f64>,
+    operating_share: Option<f64>,
+    operations: Option<f64>,
+    issue: Option<&'static str>,
+}
+
+/// D/E, the unlevered beta and the beta of the operations, as a case computes them for a peer.
+fn unlever(
+    beta_used: Option<f64>,
+    equity: Option<f64>,
+    debt: Option<f64>,
+    cash: Option<f64>,
+    tax: Option<f64>,
+    leverage: &LeverageSettings,
+    debt_beta: f64,
+) -> Unlevering {
+    let debt_to_equity = match (leverage.debt_measure, equity, debt, cash) {
+        (DebtMeasure::Gross, Some(e), Some(d), _) => Some(d / e),
+        (DebtMeasure::Net, Some(e), Some(d), Some(c)) => Some((d - c) / e),
+        _ => None,
+    };
+    // A net D/E at or below −1 cannot be unlevered (the case refuses such a peer).
+    let issue = debt_to_equity
+        .filter(|&de| de <= -1.0)
+        .map(|_| "net_debt_at_or_below_minus_equity");
+    let unlevered = match (beta_used, debt_to_equity, tax, issue) {
+        (Some(beta), Some(de), Some(t), None) => Some(leverage.formula.unlever_with(
+            beta,
+            CapitalStructure {
+                debt_to_equity: de,
+                tax_rate: t,
+            },
+            DebtTerms {
+                debt_beta,
+                cost_of_debt: 0.0,
+            },
+        )),
+        _ => None,
+    };
+    let operating_share = match (equity, debt, cash) {
+        (Some(e), Some(d), Some(c)) => Some(1.0 - c / (e + d)),
+        _ => None,
+    };
+    // Cash at or above the firm's value leaves no operations to take a beta of.
+    let issue = issue.or_else(|| {
+        operating_share
+            .filter(|&s| s <= 0.0)
+            .map(|_| "cash_not_below_equity_plus_debt")
+    });
+    let operations = match (unlevered, operating_share) {
+        (Some(u), Some(s)) if s > 0.0 => Some(u / s),
+        _ => None,
+    };
+    Unlevering {
+        debt_to_equity,
+        unlevered,
+        operating_share,
+        operations,
+        issue,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::capital::leverage::Formula;
+
+    // Hamada by hand: βL = 1.2, D/E = 0.5, t = 0.3: βU = 1.2 / (1 + 0.7·0.5) = 1.2 / 1.35.
+    // Operating share 1 − 50 / (100 + 50) = 2/3, so the beta of the operations is βU / (2/3).
+    #[test]
+    fn unlevering_matches_the_hand_computation() {
+        let leverage = LeverageSettings {
+            formula: Formula::Hamada,
+            ..LeverageSettings::default()
+        };
+        let u = unlever(
+            Some(1.2),
+            Some(100.0),
+            Some(50.0),
+            Some(50.0),
+            Some(0.3),
+            &leverage,
+            0.0,
+        );
+        // 1e-15: one multiply-add and one division.
+        assert!((u.unlevered.unwrap() - 1.2 / 1.35).abs() < 1e-15);
+        assert!((u.operations.unwrap() - 1.2 / 1.35 / (2.0 / 3.0)).abs() < 1e-15);
+        assert_eq!(u.debt_to_equity, Some(0.5));
+    }
+
+    // A missing figure leaves every figure that needs it empty, never a default.
+    #[test]
+    fn a_missing_figure_is_never_filled_in() {
+        let leverage = LeverageSettings::default();
+        let u = unlever(
+            Some(1.2),
+            Some(100.0),
+            None,
+            Some(5.0),
+            Some(0.3),
+            &leverage,
+            0.0,
+        );
+        assert_eq!(u.debt_to_equity, None);
+        assert_eq!(u.unlevered, None);
+        assert_eq!(u.operating_share, None);
+        let net = LeverageSettings {
+            debt_measure: DebtMeasure::Net,
+            ..LeverageSettings::default()
+        };
+        let u = unlever(
+            Some(1.2),
+            Some(100.0),
+            Some(50.0),
+            None,
+            Some(0.3),
+            &net,
+            0.0,
+        );
+        assert_eq!(u.unlevered, None);
+    }
+}

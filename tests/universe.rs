@@ -1,0 +1,645 @@
+//! `hurdle universe` on a small seeded universe (tests/universe_data): each security's figures
+//! equal those of a case file that lists it as a peer with the same settings; the industry table
+//! agrees with an independent numpy/scipy computation (tests/reference/check_universe.py); the
+//! long, wide, CSV and Parquet forms of the same panel give byte-identical tables; and each bad
+//! input exits 2 with a message naming the file, the line or row and the value, writing nothing.
+
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use polars::prelude::*;
+use tempfile::TempDir;
+
+mod common;
+mod universe_data;
+
+/// A generated universe in `<tmp>/u/`; outputs go to `<tmp>/out*`.
+struct Setup {
+    root: TempDir,
+}
+
+impl Setup {
+    fn new() -> Setup {
+        let root = tempfile::tempdir().unwrap();
+        universe_data::generate(&root.path().join("u"), 20_260_930);
+        Setup { root }
+    }
+
+    fn dir(&self) -> PathBuf {
+        self.root.path().join("u")
+    }
+
+    fn out(&self, name: &str) -> PathBuf {
+        self.root.path().join(name)
+    }
+
+    /// Runs `hurdle universe` on the universe file with `--set` values.
+    fn universe(&self, out: &str, sets: &[&str]) -> Output {
+        let file = self.dir().join("universe.toml");
+        let out = self.out(out);
+        let mut args = vec![
+            "universe".to_string(),
+            file.display().to_string(),
+            "--out".into(),
+            out.display().to_string(),
+            "--quiet".into(),
+        ];
+        for s in sets {
+            args.push("--set".into());
+            args.push(s.to_string());
+        }
+        Command::new(env!("CARGO_BIN_EXE_hurdle"))
+            .args(&args)
+            .output()
+            .unwrap()
+    }
+
+    fn succeeds(&self, out: &str, sets: &[&str]) -> PathBuf {
+        let output = self.universe(out, sets);
+        assert!(
+            output.status.success(),
+            "hurdle universe failed: {}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+        self.out(out)
+    }
+}
+
+fn read_table(path: &Path) -> DataFrame {
+    CsvReadOptions::default()
+        .with_has_header(true)
+        .with_infer_schema_length(None)
+        .try_into_reader_with_file_path(Some(path.to_path_buf()))
+        .unwrap()
+        .finish()
+        .unwrap()
+}
+
+/// The row of `security` in securities.csv, as (column, value) pairs read by polars.
+fn security_row(table: &DataFrame, security: &str) -> DataFrame {
+    let mask = table
+        .column("security")
+        .unwrap()
+        .str()
+        .unwrap()
+        .equal(security);
+    table.filter(&mask).unwrap()
+}
+
+fn number(row: &DataFrame, column: &str) -> f64 {
+    let c = row
+        .column(column)
+        .unwrap()
+        .cast(&DataType::Float64)
+        .unwrap();
+    c.f64()
+        .unwrap()
+        .get(0)
+        .unwrap_or_else(|| panic!("{column} is empty"))
+}
+
+/// A case file holding the securities `peers` of the generated universe as peers, with the
+/// universe's `[beta]` and `[leverage]` (the rest does not touch a peer's figures).
+fn write_case(dir: &Path, peers: &[(usize, &str)]) -> PathBuf {
+    let mut text = String::from(
+        "[case]\ntitle = \"Equality with the universe\"\nvaluation_date = 2026-09-30\n\
+         currency = \"EUR\"\n\n[market]\nrisk_free_rate = 0.03\nequity_risk_premium = 0.05\n\n\
+         [market.index]\nprices = \"index.csv\"\n\n[beta]\nfrequency = \"daily\"\n\
+         window_start = 2025-01-02\nmin_observations = 40\n\n[leverage]\nformula = \"hamada\"\n\n\
+         [target]\ndebt_to_equity = 0.3\ntax_rate = 0.25\n\n[debt]\ncost_pre_tax = 0.05\n\n\
+         [uncertainty]\ndraws = 100\n",
+    );
+    for &(i, id) in peers {
+        let (equity, debt, cash, tax) = universe_data::figures(i);
+        text.push_str(&format!(
+            "\n[[peer]]\nname = \"{id}\"\nprices = \"peers/{id}.csv\"\nequity_value = {equity}\n\
+             debt = {debt}\ncash = {cash}\ntax_rate = {tax}\n"
+        ));
+    }
+    let path = dir.join("case.toml");
+    fs::write(&path, text).unwrap();
+    path
+}
+
+// The issue's promise: a security's numbers equal those of a case file with that security as a
+// peer (same window, method, settings). Both go through the same estimate layer, so the figures
+// are the same doubles; the only slack allowed is 2 ulps (4.4e-16 relative), because serde_json's
+// default float parser (without its `float_roundtrip` feature) may read result.json's shortest
+// decimal one ulp off. Any divergence of the pipelines is far larger.
+// Checked under two configurations: daily OLS with Hamada, and weekly Dimson with HC1 errors, the
+// Blume adjustment and Harris–Pringle. S01 trades normally, S09 lists late, S10 trades thinly.
+#[test]
+fn each_security_equals_the_case_that_lists_it_as_a_peer() {
+    let setup = Setup::new();
+    let peers = [(0, "S01"), (8, "S09"), (9, "S10")];
+    let case = write_case(&setup.dir(), &peers);
+    let configurations: [&[&str]; 2] = [
+        &[],
+        &[
+            "beta.frequency=weekly",
+            "beta.method=dimson",
+            "beta.std_errors=hc1",
+            "beta.adjustment=blume",
+            "leverage.formula=harris-pringle",
+        ],
+    ];
+    for (k, sets) in configurations.iter().enumerate() {
+        let out = setup.succeeds(&format!("out{k}"), sets);
+        let securities = read_table(&out.join("securities.csv"));
+        let case_out = setup.out(&format!("case{k}"));
+        let mut args = vec![
+            "run".to_string(),
+            case.display().to_string(),
+            "--out".into(),
+            case_out.display().to_string(),
+        ];
+        for s in *sets {
+            args.push("--set".into());
+            args.push(s.to_string());
+        }
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let run = common::hurdle(&args);
+        assert!(
+            run.status.success(),
+            "{}",
+            String::from_utf8_lossy(&run.stderr)
+        );
+        let result: serde_json::Value =
+            serde_json::from_str(&fs::read_to_string(case_out.join("result.json")).unwrap())
+                .unwrap();
+        for (p, (_, id)) in peers.iter().enumerate() {
+            let peer = &result["peers"][p];
+            let row = security_row(&securities, id);
+            assert_eq!(row.height(), 1, "{id} in securities.csv");
+            for (case_key, column) in [
+                ("observations", "observations"),
+                ("alpha", "alpha"),
+                ("alpha_std_error", "alpha_std_error"),
+                ("beta", "beta"),
+                ("beta_std_error", "beta_std_error"),
+                ("beta_t_stat", "beta_t_stat"),
+                ("beta_p_value", "beta_p_value"),
+                ("beta_ci_low", "beta_ci_low"),
+                ("beta_ci_high", "beta_ci_high"),
+                ("r_squared", "r_squared"),
+                ("adjusted_r_squared", "adjusted_r_squared"),
+                ("residual_std_error", "residual_std_error"),
+                ("durbin_watson", "durbin_watson"),
+                ("beta_used", "beta_used"),
+                ("debt_to_equity", "debt_to_equity"),
+                ("unlevered_beta", "unlevered_beta"),
+                ("operations_beta", "operations_beta"),
+                ("stale_share", "stale_share"),
+            ] {
+                let expected = common::number(peer, case_key);
+                let got = number(&row, column);
+                assert!(
+                    (got - expected).abs() <= 4.5e-16 * expected.abs(),
+                    "configuration {k}, {id}: {column}: universe {got}, case {expected}"
+                );
+            }
+            assert_eq!(
+                number(&row, "periods_dropped"),
+                common::number(peer, "periods_dropped.total"),
+                "configuration {k}, {id}: periods dropped"
+            );
+            let flags: Vec<String> = peer["flags"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|f| f.as_str().unwrap().to_string())
+                .collect();
+            let listed = row
+                .column("flags")
+                .unwrap()
+                .str()
+                .unwrap()
+                .get(0)
+                .unwrap_or("")
+                .to_string();
+            assert_eq!(listed, flags.join(";"), "configuration {k}, {id}: flags");
+        }
+    }
+}
+
+// The industry table and every security's regression, recomputed from the input files by
+// tests/reference/check_universe.py with numpy and scipy (its own sampling of the calendar,
+// scipy.stats.linregress, numpy.percentile, numpy.average, scipy.stats.trim_mean), on a universe
+// with holidays, gaps, a late listing and thin traders; tolerances are stated in the script.
+#[test]
+fn industry_table_agrees_with_numpy_and_scipy() {
+    let setup = Setup::new();
+    for (k, sets) in [
+        &[][..],
+        &[
+            "leverage.operations_beta=true",
+            "leverage.aggregation=trimmed-mean",
+        ][..],
+        &[
+            "beta.frequency=weekly",
+            "beta.weekday=friday",
+            "leverage.debt_measure=net",
+        ][..],
+    ]
+    .iter()
+    .enumerate()
+    {
+        let out = setup.succeeds(&format!("out{k}"), sets);
+        let script = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/tests/reference/check_universe.py"
+        );
+        let checked = Command::new("python3")
+            .arg(script)
+            .arg(setup.dir().join("universe.toml"))
+            .arg(&out)
+            .args(sets.iter().flat_map(|s| ["--set", s]))
+            .output()
+            .expect("python3 must be installed for the reference check");
+        let report = String::from_utf8_lossy(&checked.stdout);
+        assert!(
+            checked.status.success() && report.contains(" 0 failed"),
+            "configuration {k}: reference check failed (python3 -m pip install numpy scipy)\n{report}\n{}",
+            String::from_utf8_lossy(&checked.stderr)
+        );
+    }
+}
+
+// Long or wide, CSV or Parquet: the same prices must give the same tables, byte for byte.
+#[test]
+fn long_wide_csv_and_parquet_give_identical_outputs() {
+    let setup = Setup::new();
+    let forms: [&[&str]; 4] = [
+        &[],
+        &["panel.prices=prices-long.parquet"],
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
+    ];
+    let outs: Vec<PathBuf> = forms
+        .iter()
+        .enumerate()
+        .map(|(k, sets)| setup.succeeds(&format!("form{k}"), sets))
+        .collect();
+    for name in [
+        "securities.csv",
+        "industries.csv",
+        "securities.parquet",
+        "industries.parquet",
+    ] {
+        let first = fs::read(outs[0].join(name)).unwrap();
+        for (k, out) in outs.iter().enumerate().skip(1) {
+            assert!(
+                fs::read(out.join(name)).unwrap() == first,
+                "{name} differs for form {k}"
+            );
+        }
+    }
+    // The Parquet tables hold what the CSV tables hold.
+    let csv = read_table(&outs[0].join("industries.csv"));
+    let parquet = ParquetReader::new(fs::File::open(outs[0].join("industries.parquet")).unwrap())
+        .finish()
+        .unwrap();
+    assert!(
+        csv.equals_missing(&parquet),
+        "industries.csv and .parquet differ"
+    );
+}
+
+// A security in the attributes but not in the panel is a warning in the summary, not an error.
+#[test]
+fn attributes_without_prices_are_a_warning() {
+    let setup = Setup::new();
+    let output = setup.universe("out", &[]);
+    assert!(output.status.success());
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    assert!(stdout.contains("S99"), "{stdout}");
+    assert!(
+        output.stderr.is_empty(),
+        "stderr must stay empty with --quiet"
+    );
+    let summary = fs::read_to_string(setup.out("out").join("summary.md")).unwrap();
+    assert!(summary.contains("S99") && summary.contains("Cautions"));
+}
+
+/// Runs with one input broken by `edit`; asserts exit 2, a message holding every `expected`
+/// fragment and no output folder.
+fn refused(edit: impl FnOnce(&Path), sets: &[&str], expected: &[&str]) {
+    let setup = Setup::new();
+    edit(&setup.dir());
+    let output = setup.universe("out", sets);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    for fragment in expected {
+        assert!(
+            stderr.contains(fragment),
+            "message lacks {fragment:?}: {stderr}"
+        );
+    }
+    assert!(!setup.out("out").exists(), "an output folder was written");
+}
+
+/// Replaces line `line` (1-based, header = 1) of a file.
+fn replace_line(path: &Path, line: usize, with: &str) -> String {
+    let text = fs::read_to_string(path).unwrap();
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    let old = std::mem::replace(&mut lines[line - 1], with.to_string());
+    fs::write(path, lines.join("\n") + "\n").unwrap();
+    old
+}
+
+fn panel_line(dir: &Path, line: usize) -> Vec<String> {
+    let text = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+    text.lines()
+        .nth(line - 1)
+        .unwrap()
+        .split(',')
+        .map(str::to_string)
+        .collect()
+}
+
+#[test]
+fn a_duplicate_date_and_security_is_refused_naming_both_lines() {
+    refused(
+        |dir| {
+            let row = panel_line(dir, 7).join(",");
+            let mut text = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+            text.push_str(&row);
+            text.push('\n');
+            fs::write(dir.join("prices-long.csv"), text).unwrap();
+        },
+        &[],
+        &["prices-long.csv", "duplicate row", "lines 7 and"],
+    );
+}
+
+#[test]
+fn a_non_positive_price_is_refused() {
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 5);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                5,
+                &format!("{},{},-1.5", cells[0], cells[1]),
+            );
+        },
+        &[],
+        &["prices-long.csv, line 5", "-1.5", "must be positive"],
+    );
+}
+
+#[test]
+fn an_unparseable_price_is_refused() {
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 9);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                9,
+                &format!("{},{},n/a", cells[0], cells[1]),
+            );
+        },
+        &[],
+        &["prices-long.csv, line 9", "\"n/a\" is not a number"],
+    );
+}
+
+#[test]
+fn an_unparseable_date_is_refused() {
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 4);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                4,
+                &format!("2025-13-01,{},{}", cells[1], cells[2]),
+            );
+        },
+        &[],
+        &["prices-long.csv, line 4", "\"2025-13-01\"", "ISO 8601"],
+    );
+}
+
+#[test]
+fn a_bad_price_in_parquet_names_the_row() {
+    refused(
+        |dir| {
+            let path = dir.join("prices-long.parquet");
+            let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+                .finish()
+                .unwrap();
+            let mut closes: Vec<Option<f64>> = frame
+                .column("close")
+                .unwrap()
+                .f64()
+                .unwrap()
+                .iter()
+                .collect();
+            closes[10] = Some(0.0);
+            frame
+                .with_column(Column::new("close".into(), closes))
+                .unwrap();
+            ParquetWriter::new(fs::File::create(&path).unwrap())
+                .finish(&mut frame)
+                .unwrap();
+        },
+        &["panel.prices=prices-long.parquet"],
+        &["prices-long.parquet", "row 11", "= 0", "must be positive"],
+    );
+}
+
+#[test]
+fn bad_attribute_values_are_refused() {
+    let line = 3; // S02's row
+    for (column, value, message) in [
+        (4, "-5", "`debt` = -5 must not be negative"),
+        (3, "-100", "`market_cap` = -100 must be positive"),
+        (6, "1.2", "`tax_rate` = 1.2 is outside [0, 1)"),
+        (5, "-1", "`cash` = -1 must not be negative"),
+    ] {
+        refused(
+            |dir| {
+                let path = dir.join("attributes.csv");
+                let text = fs::read_to_string(&path).unwrap();
+                let mut cells: Vec<String> = text
+                    .lines()
+                    .nth(line - 1)
+                    .unwrap()
+                    .split(',')
+                    .map(str::to_string)
+                    .collect();
+                cells[column] = value.to_string();
+                replace_line(&path, line, &cells.join(","));
+            },
+            &[],
+            &["attributes.csv, line 3", message],
+        );
+    }
+}
+
+#[test]
+fn an_industry_column_that_does_not_exist_is_refused() {
+    refused(
+        |_| {},
+        &["attributes.industry_column=naics"],
+        &[
+            "attributes.csv",
+            "no column named `naics`",
+            "attributes.industry_column",
+            "industry, sector",
+        ],
+    );
+}
+
+#[test]
+fn an_empty_panel_is_refused() {
+    refused(
+        |dir| fs::write(dir.join("prices-long.csv"), "date,security,close\n").unwrap(),
+        &[],
+        &["prices-long.csv", "no prices", "empty"],
+    );
+}
+
+#[test]
+fn a_panel_without_overlap_with_the_index_is_refused() {
+    refused(
+        |dir| {
+            // Only the first year's index: the panel's prices all come later... the window
+            // holds index prices that no security shares.
+            let text = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+            let kept: String = text
+                .lines()
+                .enumerate()
+                .filter(|(i, l)| *i == 0 || l.starts_with("2026-0"))
+                .map(|(_, l)| format!("{l}\n"))
+                .collect();
+            fs::write(dir.join("prices-long.csv"), kept).unwrap();
+            let index = fs::read_to_string(dir.join("index.csv")).unwrap();
+            let early: String = index
+                .lines()
+                .enumerate()
+                .filter(|(i, l)| *i == 0 || l.starts_with("2025"))
+                .map(|(_, l)| format!("{l}\n"))
+                .collect();
+            fs::write(dir.join("index.csv"), early).unwrap();
+        },
+        &[],
+        &[
+            "prices-long.csv",
+            "do not overlap the index",
+            "2026-01-02",
+            "2025-12-31",
+        ],
+    );
+}
+
+#[test]
+fn a_panel_in_the_other_layout_is_named() {
+    refused(
+        |_| {},
+        &["panel.prices=prices-wide.csv"],
+        &[
+            "prices-wide.csv",
+            "no column named `security`",
+            "this looks like a wide file",
+            "panel.layout = \"wide\"",
+        ],
+    );
+    refused(
+        |_| {},
+        &["panel.layout=wide"],
+        &[
+            "prices-long.csv",
+            "this looks like a long file",
+            "panel.layout = \"long\"",
+        ],
+    );
+    refused(
+        |_| {},
+        &["panel.prices=prices-wide.parquet"],
+        &["prices-wide.parquet", "this looks like a wide file"],
+    );
+}
+
+// The receipt reruns: `hurdle verify` on an untouched universe reproduces every figure (exit 0);
+// after one price changes it reports the panel's new SHA-256 and the moved figures (exit 1).
+#[test]
+fn verify_reruns_a_universe_receipt() {
+    let setup = Setup::new();
+    let out = setup.succeeds("out", &[]);
+    let receipt = out.join("result.json");
+    let receipt = receipt.to_str().unwrap();
+    let first = common::hurdle(&["verify", receipt]);
+    let report = String::from_utf8_lossy(&first.stdout);
+    assert_eq!(first.status.code(), Some(0), "{report}");
+    assert!(report.contains("REPRODUCED"), "{report}");
+    let cells = panel_line(&setup.dir(), 12);
+    let price: f64 = cells[2].parse().unwrap();
+    replace_line(
+        &setup.dir().join("prices-long.csv"),
+        12,
+        &format!("{},{},{}", cells[0], cells[1], price * 1.5),
+    );
+    let second = common::hurdle(&["verify", receipt]);
+    let report = String::from_utf8_lossy(&second.stdout);
+    assert_eq!(second.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains("prices-long.csv") && report.contains("CHANGED"),
+        "{report}"
+    );
+    assert!(report.contains("industries["), "{report}");
+}
+
+// `universe.rolling = true`: each security's rolling betas are those `hurdle rolling` writes for a
+// case listing it as a peer (the same estimate layer; both files hold shortest round-trip
+// decimals, so the doubles must be equal).
+#[test]
+fn rolling_betas_equal_those_of_the_case() {
+    let setup = Setup::new();
+    let peers = [(0, "S01"), (8, "S09")];
+    let case = write_case(&setup.dir(), &peers);
+    let out = setup.succeeds("out", &["universe.rolling=true"]);
+    let universe = read_table(&out.join("rolling.csv"));
+    let case_out = setup.out("case");
+    let run = common::hurdle(&[
+        "rolling",
+        case.to_str().unwrap(),
+        "--out",
+        case_out.to_str().unwrap(),
+    ]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let case_rows = read_table(&case_out.join("rolling.csv"));
+    for (_, id) in peers {
+        let pick = |table: &DataFrame, key: &str| {
+            let mask = table.column(key).unwrap().str().unwrap().equal(id);
+            table.filter(&mask).unwrap()
+        };
+        let (ours, theirs) = (pick(&universe, "security"), pick(&case_rows, "peer"));
+        assert!(
+            ours.height() > 10,
+            "{id}: {} rolling windows",
+            ours.height()
+        );
+        assert_eq!(ours.height(), theirs.height(), "{id}: window count");
+        for column in ["window_end", "beta", "std_error", "observations"] {
+            let a = ours
+                .column(column)
+                .unwrap()
+                .as_materialized_series()
+                .clone();
+            let b = theirs
+                .column(column)
+                .unwrap()
+                .as_materialized_series()
+                .clone();
+            assert!(a.equals(&b), "{id}: {column} differs");
+        }
+    }
+    let securities = read_table(&out.join("securities.csv"));
+    assert!(securities.column("rolling_beta_trend_per_year").is_ok());
+}
