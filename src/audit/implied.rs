@@ -97,10 +97,11 @@ pub fn implied(
     range: Option<(f64, f64)>,
 ) -> Result<Implied> {
     let (low, high) = range.unwrap_or_else(|| target.default_range());
+    // Every default range passes, so a failing range is the user's `--range`: name the option.
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
             option: format!(
-                "search range {}..{}",
+                "--range {}..{}",
                 crate::error::compact(low),
                 crate::error::compact(high)
             ),
