@@ -5,7 +5,9 @@
 //! value, and a folder tree identical before and after the run (SHA-256 of every file, and every
 //! folder), so no input was changed and no output, partial output or temporary folder was left.
 //! What each message must contain is written beside the entry; the values are the ones the entry
-//! plants, so the expectation comes from the entry, not from hurdle's output.
+//! plants, so the expectation comes from the entry, not from hurdle's output. Where it depends on
+//! the demo data (a neighbouring price, the line of a table row or case key), the entry's setup
+//! reads it from the demo files and notes it for a `{name}` in the expectation.
 
 mod common;
 
@@ -16,10 +18,13 @@ use common::{tree_hashes, Sandbox};
 const PEER: &str = "data/peers/corrowick.csv";
 const INDEX: &str = "data/index.csv";
 const RISK_FREE: &str = "data/risk_free.csv";
-const RATING: &str = "data/rating_spreads.csv";
-const COVERAGE: &str = "data/coverage_ratings.csv";
-/// Line 848 of the index, risk-free and Corrowick files is 2023-03-31, inside the window.
+const RATING: &str = "data/rating_spreads_invented.csv";
+const COVERAGE: &str = "data/coverage_grid_invented.csv";
+/// Line 848 of the index, risk-free and Corrowick files is 2023-03-31, inside the window
+/// (`the_planted_line_is_the_one_the_entries_name` checks it against the demo files).
 const LINE: usize = 848;
+/// The date on [`LINE`] in each of those files.
+const LINE_DATE: &str = "2023-03-31";
 
 /// One bad input: what to break, how to run, and what the message must name.
 struct Bad {
@@ -38,6 +43,99 @@ macro_rules! bad {
 
 fn nothing(_: &Sandbox) {}
 
+thread_local! {
+    /// What an entry's setup read from the demo files for its expectations (a line number, a
+    /// value): `{name}` in an expectation is replaced by the text noted under `name`. Cleared
+    /// before each entry, so the expectation follows the demo files instead of copying them.
+    static NOTES: std::cell::RefCell<Vec<(String, String)>> =
+        const { std::cell::RefCell::new(Vec::new()) };
+}
+
+/// Notes `text` under `name` for the running entry's expectations.
+fn note(name: &str, text: impl ToString) {
+    NOTES.with(|n| {
+        n.borrow_mut()
+            .push((format!("{{{name}}}"), text.to_string()))
+    });
+}
+
+/// `Sandbox::edit`, noting the line where `from` starts as `{line}` and the line after it as
+/// `{next}` (where a line inserted after it lands).
+fn edit_at(s: &Sandbox, relative: &str, from: &str, to: &str) {
+    let text = s.read(relative);
+    let at = text
+        .find(from)
+        .unwrap_or_else(|| panic!("`{from}` is not in {relative}"));
+    let line = 1 + text[..at].matches('\n').count();
+    note("line", format!("line {line}"));
+    note("next", format!("line {}", line + 1));
+    s.edit(relative, from, to);
+}
+
+/// Replaces the date (first field) on line `line`, keeping the rest of the row.
+fn set_date(s: &Sandbox, relative: &str, line: usize, date: &str) {
+    let row = line_text(s, relative, line);
+    let (_, rest) = row.split_once(',').expect("a row with a date and a value");
+    s.set_line(relative, line, &format!("{date},{rest}"));
+}
+
+/// The 1-based number of the one line of a case-folder file that starts with `prefix`.
+fn line_starting(s: &Sandbox, relative: &str, prefix: &str) -> usize {
+    let text = s.read(relative);
+    let found: Vec<usize> = text
+        .lines()
+        .enumerate()
+        .filter(|(_, l)| l.starts_with(prefix))
+        .map(|(i, _)| i + 1)
+        .collect();
+    assert_eq!(
+        found.len(),
+        1,
+        "one line of {relative} must start with `{prefix}`"
+    );
+    found[0]
+}
+
+/// Line `line` (1-based) of a case-folder file.
+fn line_text(s: &Sandbox, relative: &str, line: usize) -> String {
+    s.read(relative)
+        .lines()
+        .nth(line - 1)
+        .unwrap_or_else(|| panic!("{relative} has no line {line}"))
+        .to_string()
+}
+
+/// The number in field `field` (0-based) of line `line` of a CSV file, as hurdle shows a
+/// number in a message (Rust's shortest round-trip form: `45.2560` is shown as `45.256`).
+fn number_at(s: &Sandbox, relative: &str, line: usize, field: usize) -> String {
+    let text = line_text(s, relative, line);
+    let cell = text
+        .split(',')
+        .nth(field)
+        .unwrap_or_else(|| panic!("{relative} line {line} has no field {field}: {text}"));
+    let value: f64 = cell
+        .parse()
+        .unwrap_or_else(|_| panic!("{relative} line {line}: {cell}"));
+    value.to_string()
+}
+
+/// The one `key = value` line of case.toml (its number, and the value without a comment).
+fn case_key(s: &Sandbox, key: &str) -> (usize, String) {
+    let line = line_starting(s, "case.toml", &format!("{key} = "));
+    let text = line_text(s, "case.toml", line);
+    let value = text[key.len() + 3..].split('#').next().unwrap().trim();
+    (line, value.to_string())
+}
+
+/// Sets `key` in case.toml to `value` (dropping the line's comment), and notes the line as
+/// `{line}` and the demo's value as `{was}`.
+fn set_case_key(s: &Sandbox, key: &str, value: &str) {
+    let (line, was) = case_key(s, key);
+    note("line", format!("line {line}"));
+    note("was", was);
+    s.set_line("case.toml", line, &format!("{key} = {value}"));
+}
+
 /// The binary under test: this build's, or another one named by `HURDLE_BIN` (to see which
 /// entries an earlier build fails; DEVELOPERS.md).
 fn binary() -> String {
@@ -47,14 +145,20 @@ fn binary() -> String {
 /// Runs one entry; `Err` describes every way it fell short.
 fn check(entry: &Bad) -> Result<(), String> {
     let sandbox = Sandbox::new();
+    NOTES.with(|n| n.borrow_mut().clear());
     (entry.setup)(&sandbox);
+    let notes = NOTES.with(|n| n.borrow().clone());
     let root = sandbox.root.path();
     let before = tree_hashes(root);
     let fill = |text: &str| {
-        text.replace("{case}", &sandbox.path("case.toml").display().to_string())
+        let text = text
+            .replace("{case}", &sandbox.path("case.toml").display().to_string())
             .replace("{dir}", &sandbox.path("").display().to_string())
             .replace("{out}", &root.join("out").display().to_string())
-            .replace("{root}", &root.display().to_string())
+            .replace("{root}", &root.display().to_string());
+        notes
+            .iter()
+            .fold(text, |text, (name, value)| text.replace(name, value))
     };
     let args: Vec<String> = entry.args.iter().map(|a| fill(a)).collect();
     let output = Command::new(binary())
@@ -74,7 +178,10 @@ fn check(entry: &Bad) -> Result<(), String> {
         faults.push("panicked".into());
     }
     for needle in entry.expect {
-        if !stderr.contains(&fill(needle)) {
+        let needle = fill(needle);
+        if needle.contains('{') {
+            faults.push(format!("nothing noted for `{needle}`"));
+        } else if !stderr.contains(&needle) {
             faults.push(format!("message lacks `{needle}`"));
         }
     }
@@ -204,19 +311,25 @@ fn price_files() -> Vec<Bad> {
         ),
         bad!(
             "decimal commas",
-            |s| s.map_lines(PEER, |n, l| if n > 1 {
-                l.replace('.', ",")
-            } else {
-                l.into()
-            }),
+            |s| {
+                note("row", line_text(s, PEER, 2).replace('.', ","));
+                s.map_lines(
+                    PEER,
+                    |n, l| if n > 1 { l.replace('.', ",") } else { l.into() },
+                )
+            },
             ["run", "{case}", "--out", "{out}"],
-            [PEER, "line 2", "2020-01-02,18,5000", "3 fields"]
+            [PEER, "line 2", "`{row}`", "3 fields"]
         ),
         bad!(
             "ragged row",
-            |s| s.set_line(PEER, LINE, "2023-03-31,43.8344,1200"),
+            |s| {
+                let row = format!("{},1200", line_text(s, PEER, LINE));
+                note("row", &row);
+                s.set_line(PEER, LINE, &row)
+            },
             ["run", "{case}", "--out", "{out}"],
-            [PEER, "line 848", "2023-03-31,43.8344,1200", "3 fields"]
+            [PEER, "line 848", "{row}", "3 fields"]
         ),
         bad!(
             "invalid UTF-8 byte",
@@ -258,25 +371,25 @@ fn price_files() -> Vec<Bad> {
         ),
         bad!(
             "impossible date",
-            |s| s.set_line(PEER, LINE, "2024-13-45,43.8344"),
+            |s| set_date(s, PEER, LINE, "2024-13-45"),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 848", "2024-13-45"]
         ),
         bad!(
             "day-first date",
-            |s| s.set_line(PEER, LINE, "31/03/2023,43.8344"),
+            |s| set_date(s, PEER, LINE, "31/03/2023"),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 848", "31/03/2023"]
         ),
         bad!(
             "date with a time",
-            |s| s.set_line(PEER, LINE, "2023-03-31T16:00:00,43.8344"),
+            |s| set_date(s, PEER, LINE, "2023-03-31T16:00:00"),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 848", "2023-03-31T16:00:00"]
         ),
         bad!(
             "empty date cell",
-            |s| s.set_line(PEER, LINE, ",43.8344"),
+            |s| set_date(s, PEER, LINE, ""),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 848", "`date` = \"\""]
         ),
@@ -342,9 +455,18 @@ fn price_files() -> Vec<Bad> {
         ),
         bad!(
             "price 1e200",
-            |s| s.set_value(PEER, LINE, "1e200"),
+            |s| {
+                note("before", number_at(s, PEER, LINE - 1, 1));
+                s.set_value(PEER, LINE, "1e200")
+            },
             ["run", "{case}", "--out", "{out}"],
-            [PEER, "line 848", "1e200", "43.7678", "peer.1.accept_jumps"]
+            [
+                PEER,
+                "line 848",
+                "1e200",
+                "after {before}",
+                "peer.1.accept_jumps"
+            ]
         ),
         bad!(
             "price 1e-200",
@@ -366,19 +488,25 @@ fn price_files() -> Vec<Bad> {
         ),
         bad!(
             "price typed ten times too large",
-            |s| s.set_value(PEER, LINE, "438.344"),
+            |s| {
+                let price: f64 = number_at(s, PEER, LINE, 1).parse().unwrap();
+                // Four decimals, as the demo writes prices; the message shows the number parsed.
+                let typed = format!("{:.4}", price * 10.0);
+                note("typed", typed.parse::<f64>().unwrap());
+                s.set_value(PEER, LINE, &typed)
+            },
             ["run", "{case}", "--out", "{out}"],
-            [PEER, "line 848", "438.344", "2023-03-30"]
+            [PEER, "line 848", "{typed}", "2023-03-30"]
         ),
         bad!(
             "duplicate date",
-            |s| s.set_line(PEER, LINE + 1, "2023-03-31,43.2290"),
+            |s| set_date(s, PEER, LINE + 1, LINE_DATE),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 848", "line 849", "2023-03-31"]
         ),
         bad!(
             "unsorted dates",
-            |s| s.set_line(PEER, LINE, "2023-04-04,43.8344"),
+            |s| set_date(s, PEER, LINE, "2023-04-04"),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 849", "2023-04-03", "sorted"]
         ),
@@ -463,13 +591,16 @@ fn price_files() -> Vec<Bad> {
         ),
         bad!(
             "index history ends before the window",
-            |s| keep_lines(s, INDEX, |n| n < 300),
+            |s| {
+                note("last", &line_text(s, INDEX, 299)[..10]);
+                keep_lines(s, INDEX, |n| n < 300)
+            },
             ["run", "{case}", "--out", "{out}"],
             [
                 INDEX,
                 "index return",
                 "beta.min_observations = 36",
-                "2021-02-"
+                "to {last}"
             ]
         ),
         bad!(
@@ -488,9 +619,22 @@ fn yield_files() -> Vec<Bad> {
     vec![
         bad!(
             "yields in percent",
-            |s| s.map_values(RISK_FREE, |y| y * 100.0),
+            |s| {
+                s.map_values(RISK_FREE, |y| y * 100.0);
+                // README: a yield of 1 (100% a year) or more is a percentage; the first such row
+                // of the planted file is the one the message must name.
+                let text = s.read(RISK_FREE);
+                let line = 1 + text
+                    .lines()
+                    .position(|l| {
+                        l.split(',').nth(1).and_then(|y| y.parse::<f64>().ok()) >= Some(1.0)
+                    })
+                    .expect("a yield of 1 or more");
+                note("line", format!("line {line}"));
+                note("yield", number_at(s, RISK_FREE, line, 1));
+            },
             ["run", "{case}", "--out", "{out}"],
-            [RISK_FREE, "line 126", "100.6", "percentage"]
+            [RISK_FREE, "{line}", "`yield` = {yield} ", "percentage"]
         ),
         bad!(
             "one yield in percent",
@@ -500,9 +644,13 @@ fn yield_files() -> Vec<Bad> {
         ),
         bad!(
             "yields in percent, all below 1",
-            |s| s.map_values(RISK_FREE, |y| y * 20.0),
+            |s| {
+                let rate: f64 = case_key(s, "risk_free_rate").1.parse().unwrap();
+                note("rate", rate);
+                s.map_values(RISK_FREE, |y| y * 20.0)
+            },
             ["run", "{case}", "--out", "{out}"],
-            [RISK_FREE, "median yield", "market.risk_free_rate = 0.038"]
+            [RISK_FREE, "median yield", "market.risk_free_rate = {rate}"]
         ),
         bad!(
             "yield below -100%",
@@ -548,13 +696,13 @@ fn yield_files() -> Vec<Bad> {
         ),
         bad!(
             "duplicate yield date",
-            |s| s.set_line(RISK_FREE, LINE + 1, "2023-03-31,0.02309"),
+            |s| set_date(s, RISK_FREE, LINE + 1, LINE_DATE),
             ["run", "{case}", "--out", "{out}"],
             [RISK_FREE, "line 849", "2023-03-31"]
         ),
         bad!(
             "unsorted yields",
-            |s| s.set_line(RISK_FREE, LINE, "2023-04-05,0.02320"),
+            |s| set_date(s, RISK_FREE, LINE, "2023-04-05"),
             ["run", "{case}", "--out", "{out}"],
             [RISK_FREE, "line 849", "sorted"]
         ),
@@ -566,16 +714,24 @@ fn yield_files() -> Vec<Bad> {
         ),
         bad!(
             "index prices as yields",
-            |s| s.edit_case(
-                "yields = \"data/risk_free.csv\"",
-                "yields = \"data/index.csv\"\nyield_column = \"price\""
-            ),
+            |s| {
+                // Every index level is far above 1, so the first row is the one named.
+                note("first", number_at(s, INDEX, 2, 1));
+                s.edit_case(
+                    "yields = \"data/risk_free.csv\"",
+                    "yields = \"data/index.csv\"\nyield_column = \"price\"",
+                )
+            },
             ["run", "{case}", "--out", "{out}"],
-            [INDEX, "line 2", "`price` = 1000", "percentage"]
+            [INDEX, "line 2", "`price` = {first} ", "percentage"]
         ),
         bad!(
             "yield file ragged",
-            |s| s.set_line(RISK_FREE, LINE, "2023-03-31,0,02320"),
+            |s| s.set_line(
+                RISK_FREE,
+                LINE,
+                &line_text(s, RISK_FREE, LINE).replacen('.', ",", 1)
+            ),
             ["run", "{case}", "--out", "{out}"],
             [RISK_FREE, "line 848", "3 fields"]
         ),
@@ -614,7 +770,11 @@ fn spread_tables() -> Vec<Bad> {
         ),
         bad!(
             "spread is text",
-            |s| s.set_line(RATING, 6, "BBB,abc"),
+            |s| {
+                let line = line_starting(s, RATING, "BBB,");
+                note("line", format!("line {line}"));
+                s.set_line(RATING, line, "BBB,abc")
+            },
             [
                 "run",
                 "{case}",
@@ -623,11 +783,15 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "line 6", "abc"]
+            [RATING, "{line}", "abc"]
         ),
         bad!(
             "spread NaN",
-            |s| s.set_line(RATING, 6, "BBB,NaN"),
+            |s| {
+                let line = line_starting(s, RATING, "BBB,");
+                note("line", format!("line {line}"));
+                s.set_line(RATING, line, "BBB,NaN")
+            },
             [
                 "run",
                 "{case}",
@@ -636,11 +800,19 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "line 6", "NaN"]
+            [RATING, "{line}", "NaN"]
         ),
         bad!(
             "spread in percent",
-            |s| s.set_line(RATING, 6, "BBB,1.60"),
+            |s| {
+                // The BBB spread typed as a percentage: 100 times the table's decimal.
+                let line = line_starting(s, RATING, "BBB,");
+                let spread: f64 = number_at(s, RATING, line, 1).parse().unwrap();
+                let typed = format!("{:.2}", spread * 100.0);
+                note("line", format!("line {line}"));
+                note("typed", typed.parse::<f64>().unwrap());
+                s.set_line(RATING, line, &format!("BBB,{typed}"))
+            },
             [
                 "run",
                 "{case}",
@@ -649,11 +821,23 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "line 6", "1.6"]
+            [RATING, "{line}", "{typed}"]
         ),
         bad!(
             "rating repeated",
-            |s| s.set_line(RATING, 7, "BBB,0.0260"),
+            |s| {
+                // The BB row relabelled BBB, so BBB appears on the row above and on this one.
+                let bbb = line_starting(s, RATING, "BBB,");
+                let bb = line_starting(s, RATING, "BB,");
+                assert_eq!(bb, bbb + 1, "BB follows BBB in {RATING}");
+                note("first", format!("line {bbb}"));
+                note("second", format!("line {bb}"));
+                s.set_line(
+                    RATING,
+                    bb,
+                    &line_text(s, RATING, bb).replacen("BB,", "BBB,", 1),
+                )
+            },
             [
                 "run",
                 "{case}",
@@ -662,11 +846,15 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "line 7", "line 6", "BBB"]
+            [RATING, "{second}", "{first}", "BBB"]
         ),
         bad!(
             "no spread column",
-            |s| s.set_line(RATING, 2, "rating,margin"),
+            |s| {
+                let line = line_starting(s, RATING, "rating,spread");
+                note("line", format!("line {line}"));
+                s.set_line(RATING, line, "rating,margin")
+            },
             [
                 "run",
                 "{case}",
@@ -675,11 +863,15 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "line 2", "`spread`", "margin"]
+            [RATING, "{line}", "`spread`", "margin"]
         ),
         bad!(
             "row with too few cells",
-            |s| s.set_line(RATING, 6, "BBB"),
+            |s| {
+                let line = line_starting(s, RATING, "BBB,");
+                note("line", format!("line {line}"));
+                s.set_line(RATING, line, "BBB")
+            },
             [
                 "run",
                 "{case}",
@@ -688,7 +880,7 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "line 6", "1 cells"]
+            [RATING, "{line}", "1 cells"]
         ),
         bad!(
             "table without rows",
@@ -731,7 +923,16 @@ fn spread_tables() -> Vec<Bad> {
         ),
         bad!(
             "coverage rows not ascending",
-            |s| s.set_line(COVERAGE, 7, "1.0,BB,0.0260"),
+            |s| {
+                // The BB row's threshold set below the B row's above it.
+                let text = s.read(COVERAGE);
+                let line = 1 + text.lines().position(|l| l.contains(",BB,")).unwrap();
+                note("line", format!("line {line}"));
+                note("above", number_at(s, COVERAGE, line - 1, 0));
+                let row = line_text(s, COVERAGE, line);
+                let (_, rest) = row.split_once(',').unwrap();
+                s.set_line(COVERAGE, line, &format!("1.0,{rest}"))
+            },
             [
                 "run",
                 "{case}",
@@ -740,11 +941,15 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=coverage"
             ],
-            [COVERAGE, "line 7", "1.5", "ascending"]
+            [COVERAGE, "{line}", "{above}", "ascending"]
         ),
         bad!(
             "coverage column missing",
-            |s| s.set_line(COVERAGE, 3, "coverage,rating,spread"),
+            |s| {
+                let line = line_starting(s, COVERAGE, "min_coverage,");
+                note("line", format!("line {line}"));
+                s.set_line(COVERAGE, line, "coverage,rating,spread")
+            },
             [
                 "run",
                 "{case}",
@@ -753,11 +958,18 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=coverage"
             ],
-            [COVERAGE, "line 3", "`min_coverage`"]
+            [COVERAGE, "{line}", "`min_coverage`"]
         ),
         bad!(
             "coverage threshold NaN",
-            |s| s.set_line(COVERAGE, 4, "nan,C,0.1200"),
+            |s| {
+                // The first row's threshold (the C row) made NaN.
+                let line = 1 + line_starting(s, COVERAGE, "min_coverage,");
+                note("line", format!("line {line}"));
+                let row = line_text(s, COVERAGE, line);
+                let (_, rest) = row.split_once(',').unwrap();
+                s.set_line(COVERAGE, line, &format!("nan,{rest}"))
+            },
             [
                 "run",
                 "{case}",
@@ -766,7 +978,7 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=coverage"
             ],
-            [COVERAGE, "line 4", "NaN"]
+            [COVERAGE, "{line}", "NaN"]
         ),
         bad!(
             "TOML table with an unknown key",
@@ -810,72 +1022,90 @@ fn case_files() -> Vec<Bad> {
     vec![
         bad!(
             "TOML syntax error",
-            |s| s.edit_case("currency = \"EUR\"", "currency = \"EUR"),
+            |s| edit_at(s, "case.toml", "currency = \"EUR\"", "currency = \"EUR"),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 8"]
+            ["case.toml", "{line}"]
         ),
         bad!(
             "[peer] for [[peer]]",
-            |s| s.edit_case("[[peer]]\nname = \"Brenvale", "[peer]\nname = \"Brenvale"),
+            |s| edit_at(
+                s,
+                "case.toml",
+                "[[peer]]\nname = \"Brenvale",
+                "[peer]\nname = \"Brenvale"
+            ),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 63", "[peer]", "[[peer]]"]
+            ["case.toml", "{line}", "[peer]", "[[peer]]"]
         ),
         bad!(
             "unknown key",
-            |s| s.edit_case("lookback = 60\n", "lookback = 60\nlookbak = 60\n"),
+            |s| edit_at(
+                s,
+                "case.toml",
+                "lookback = 60\n",
+                "lookback = 60\nlookbak = 60\n"
+            ),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 24", "lookbak"]
+            ["case.toml", "{next}", "lookbak"]
         ),
         bad!(
             "missing required key",
-            |s| s.edit_case("risk_free_rate = 0.038        # illustrative\n", ""),
+            |s| {
+                let line = line_starting(s, "case.toml", "risk_free_rate = ");
+                s.edit_case(&format!("{}\n", line_text(s, "case.toml", line)), "")
+            },
             ["run", "{case}", "--out", "{out}"],
             ["case.toml", "risk_free_rate"]
         ),
         bad!(
             "rate as text",
-            |s| s.edit_case("risk_free_rate = 0.038", "risk_free_rate = \"0.038\""),
+            |s| {
+                let (_, rate) = case_key(s, "risk_free_rate");
+                set_case_key(s, "risk_free_rate", &format!("\"{rate}\""))
+            },
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 11", "\"0.038\""]
+            ["case.toml", "{line}", "\"{was}\""]
         ),
         bad!(
             "rate in percent",
-            |s| s.edit_case("risk_free_rate = 0.038", "risk_free_rate = 3.8"),
+            |s| set_case_key(s, "risk_free_rate", "3.8"),
             ["run", "{case}", "--out", "{out}"],
             ["market.risk_free_rate", "3.8", "0.038 for 3.8%"]
         ),
         bad!(
             "NaN rate",
-            |s| s.edit_case("risk_free_rate = 0.038", "risk_free_rate = nan"),
+            |s| set_case_key(s, "risk_free_rate", "nan"),
             ["run", "{case}", "--out", "{out}"],
-            ["line 11", "market.risk_free_rate", "nan"]
+            ["{line}", "market.risk_free_rate", "nan"]
         ),
         bad!(
             "infinite premium",
-            |s| s.edit_case("equity_risk_premium = 0.055", "equity_risk_premium = +inf"),
+            |s| set_case_key(s, "equity_risk_premium", "+inf"),
             ["run", "{case}", "--out", "{out}"],
-            ["line 12", "market.equity_risk_premium", "+inf"]
+            ["{line}", "market.equity_risk_premium", "+inf"]
         ),
         bad!(
             "overflowing number",
-            |s| s.edit_case("equity_risk_premium = 0.055", "equity_risk_premium = 1e999"),
+            |s| set_case_key(s, "equity_risk_premium", "1e999"),
             ["run", "{case}", "--out", "{out}"],
-            ["line 12", "market.equity_risk_premium", "1e999"]
+            ["{line}", "market.equity_risk_premium", "1e999"]
         ),
         bad!(
             "NaN in an unused key",
-            |s| s.edit_case("ebit = 210.0", "ebit = nan"),
+            |s| edit_at(s, "case.toml", "ebit = 210.0", "ebit = nan"),
             ["run", "{case}", "--out", "{out}"],
-            ["line 45", "debt.ebit", "nan"]
+            ["{line}", "debt.ebit", "nan"]
         ),
         bad!(
             "infinity in an unused key",
-            |s| s.edit_case(
+            |s| edit_at(
+                s,
+                "case.toml",
                 "subject_equity_value = 1500.0",
                 "subject_equity_value = inf"
             ),
             ["run", "{case}", "--out", "{out}"],
-            ["line 36", "target.subject_equity_value", "inf"]
+            ["{line}", "target.subject_equity_value", "inf"]
         ),
         bad!(
             "NaN in a peer",
@@ -987,9 +1217,14 @@ fn case_files() -> Vec<Bad> {
         ),
         bad!(
             "impossible valuation date",
-            |s| s.edit_case("valuation_date = 2026-09-30", "valuation_date = 2026-02-30"),
+            |s| edit_at(
+                s,
+                "case.toml",
+                "valuation_date = 2026-09-30",
+                "valuation_date = 2026-02-30"
+            ),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 7"]
+            ["case.toml", "{line}"]
         ),
         bad!(
             "valuation date centuries ago",
@@ -1017,9 +1252,14 @@ fn case_files() -> Vec<Bad> {
         ),
         bad!(
             "window_start with lookback",
-            |s| s.edit_case("lookback = 60", "lookback = 60\nwindow_start = 2022-01-01"),
+            |s| edit_at(
+                s,
+                "case.toml",
+                "lookback = 60",
+                "lookback = 60\nwindow_start = 2022-01-01"
+            ),
             ["run", "{case}", "--out", "{out}"],
-            ["line 24", "beta.window_start", "line 23", "beta.lookback"]
+            ["{next}", "beta.window_start", "{line}", "beta.lookback"]
         ),
         bad!(
             "window end after the valuation date",
@@ -1041,21 +1281,26 @@ fn case_files() -> Vec<Bad> {
         ),
         bad!(
             "draws beyond a 32-bit count",
-            |s| s.edit_case("draws = 10000", "draws = 5000000000"),
+            |s| edit_at(s, "case.toml", "draws = 10000", "draws = 5000000000"),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 57", "5000000000"]
+            ["case.toml", "{line}", "5000000000"]
         ),
         bad!(
             "unknown frequency",
-            |s| s.edit_case("frequency = \"monthly\"", "frequency = \"hourly\""),
+            |s| edit_at(
+                s,
+                "case.toml",
+                "frequency = \"monthly\"",
+                "frequency = \"hourly\""
+            ),
             ["run", "{case}", "--out", "{out}"],
-            ["line 22", "hourly"]
+            ["{line}", "hourly"]
         ),
         bad!(
             "unknown method",
-            |s| s.edit_case("method = \"ols\"", "method = \"magic\""),
+            |s| edit_at(s, "case.toml", "method = \"ols\"", "method = \"magic\""),
             ["run", "{case}", "--out", "{out}"],
-            ["line 25", "magic"]
+            ["{line}", "magic"]
         ),
         bad!(
             "preferred weight beyond the bound",
@@ -1075,12 +1320,17 @@ fn case_files() -> Vec<Bad> {
         bad!(
             "case file not UTF-8",
             |s| {
+                // The byte goes on a new last line.
+                note(
+                    "line",
+                    format!("line {}", s.read("case.toml").lines().count() + 1),
+                );
                 let mut b = std::fs::read(s.path("case.toml")).unwrap();
                 b.extend_from_slice(b"# \xff\n");
                 s.write("case.toml", b)
             },
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "line 126", "UTF-8"]
+            ["case.toml", "{line}", "UTF-8"]
         ),
         bad!(
             "case file missing",
@@ -1141,11 +1391,21 @@ fn case_files() -> Vec<Bad> {
         ),
         bad!(
             "every peer excluded",
-            |s| s.map_lines("case.toml", |n, l| if n > 63 && l.starts_with("tax_rate") {
-                format!("{l}\nexclude = \"test\"")
-            } else {
-                l.into()
-            }),
+            |s| {
+                // Every tax_rate line after the first [[peer]] is a peer's.
+                let first = 1 + s
+                    .read("case.toml")
+                    .lines()
+                    .position(|l| l == "[[peer]]")
+                    .unwrap();
+                s.map_lines("case.toml", |n, l| {
+                    if n > first && l.starts_with("tax_rate") {
+                        format!("{l}\nexclude = \"test\"")
+                    } else {
+                        l.into()
+                    }
+                })
+            },
             ["run", "{case}", "--out", "{out}"],
             ["every [[peer]]", "exclude"]
         ),
@@ -1183,7 +1443,7 @@ fn case_files() -> Vec<Bad> {
         ),
         bad!(
             "cost of debt in percent",
-            |s| s.edit_case("cost_pre_tax = 0.058", "cost_pre_tax = 5.8"),
+            |s| set_case_key(s, "cost_pre_tax", "5.8"),
             ["run", "{case}", "--out", "{out}"],
             ["debt.cost_pre_tax", "5.8", "0.058 for 5.8%"]
         ),
@@ -1202,10 +1462,11 @@ fn case_files() -> Vec<Bad> {
     ]
 }
 
-/// A claimed build-up in `<case>/bad_claim.toml` with `line` replaced by `with`.
+/// A claimed build-up in `<case>/bad_claim.toml` with `line` replaced by `with` (its line noted
+/// as `{line}`, the one after as `{next}`).
 fn claim(s: &Sandbox, line: &str, with: &str) {
     copy(s, "claimed.toml", "bad_claim.toml");
-    s.edit("bad_claim.toml", line, with);
+    edit_at(s, "bad_claim.toml", line, with);
 }
 
 fn claimed_files() -> Vec<Bad> {
@@ -1214,25 +1475,25 @@ fn claimed_files() -> Vec<Bad> {
             "claimed beta NaN",
             |s| claim(s, "beta = 1.10", "beta = nan"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 9", "claimed.beta", "nan"]
+            ["bad_claim.toml", "{line}", "claimed.beta", "nan"]
         ),
         bad!(
             "claimed beta 1e308",
             |s| claim(s, "beta = 1.10", "beta = 1e308"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 9", "claimed.beta", "1e308"]
+            ["bad_claim.toml", "{line}", "claimed.beta", "1e308"]
         ),
         bad!(
             "claimed WACC infinite",
             |s| claim(s, "wacc = 0.0935", "wacc = inf"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 6", "claimed.wacc", "inf"]
+            ["bad_claim.toml", "{line}", "claimed.wacc", "inf"]
         ),
         bad!(
             "claimed rate in percent",
             |s| claim(s, "risk_free_rate = 0.040", "risk_free_rate = 4.0"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 7", "claimed.risk_free_rate", "4.0"]
+            ["bad_claim.toml", "{line}", "claimed.risk_free_rate", "4.0"]
         ),
         bad!(
             "claimed tax rate above 1",
@@ -1250,7 +1511,7 @@ fn claimed_files() -> Vec<Bad> {
             "claimed D/E beyond the bound",
             |s| claim(s, "debt_to_equity = 0.50", "debt_to_equity = 1e6"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 13", "claimed.debt_to_equity", "1e6"]
+            ["bad_claim.toml", "{line}", "claimed.debt_to_equity", "1e6"]
         ),
         bad!(
             "claimed both ratios",
@@ -1272,13 +1533,13 @@ fn claimed_files() -> Vec<Bad> {
             "claimed unknown key",
             |s| claim(s, "beta = 1.10", "beta = 1.10\nbeta_unlevered = 0.8"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "beta_unlevered", "line 10"]
+            ["bad_claim.toml", "beta_unlevered", "{next}"]
         ),
         bad!(
             "claimed not TOML",
             |s| claim(s, "beta = 1.10", "beta = 1,10"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 9"]
+            ["bad_claim.toml", "{line}"]
         ),
         bad!(
             "claimed cost of debt in percent",
@@ -1290,7 +1551,7 @@ fn claimed_files() -> Vec<Bad> {
             ["compare", "{case}", "{dir}/bad_claim.toml"],
             [
                 "bad_claim.toml",
-                "line 11",
+                "{line}",
                 "claimed.cost_of_debt_pre_tax",
                 "6.2"
             ]
@@ -1303,15 +1564,15 @@ fn claimed_files() -> Vec<Bad> {
         ),
         bad!(
             "reconciled claim with NaN",
-            |s| s.edit("claimed.toml", "beta = 1.10", "beta = nan"),
+            |s| edit_at(s, "claimed.toml", "beta = 1.10", "beta = nan"),
             ["run", "{case}", "--out", "{out}"],
-            ["claimed.toml", "line 9", "claimed.beta", "nan"]
+            ["claimed.toml", "{line}", "claimed.beta", "nan"]
         ),
         bad!(
             "claimed premiums NaN written as text",
             |s| claim(s, "premiums = 0.010", "premiums = \"nan\""),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "line 10", "premiums"]
+            ["bad_claim.toml", "{line}", "premiums"]
         ),
     ]
 }
@@ -1627,7 +1888,11 @@ fn command_arguments() -> Vec<Bad> {
             "verify: receipt's case missing",
             |s| s.write(
                 "r.json",
-                "{\"schema_version\": 1, \"case\": {\"file\": \"gone.toml\"}}"
+                // This build's schema, so that the receipt's case is what is wrong with it.
+                format!(
+                    "{{\"schema_version\": {}, \"case\": {{\"file\": \"gone.toml\"}}}}",
+                    hurdle::valuation::records::SCHEMA_VERSION
+                )
             ),
             ["verify", "{dir}/r.json"],
             ["r.json", "gone.toml", "--case"]
@@ -1874,9 +2139,9 @@ fn command_arguments() -> Vec<Bad> {
         ),
         bad!(
             "compare: broken case side",
-            |s| s.edit_case("risk_free_rate = 0.038", "risk_free_rate = nan"),
+            |s| set_case_key(s, "risk_free_rate", "nan"),
             ["compare", "{case}", "{dir}/claimed.toml"],
-            ["case.toml", "line 11", "nan"]
+            ["case.toml", "{line}", "nan"]
         ),
         bad!(
             "rolling: window longer than the lookback",
@@ -1949,7 +2214,11 @@ fn output_folders() -> Vec<Bad> {
             "run: the case named result.json in the output folder",
             |s| copy(s, "case.toml", "result.json"),
             ["run", "{dir}/result.json", "--out", "{dir}"],
-            ["result.json", "the case file", "overwrite"]
+            // Refused before anything is read further or written: the case is an input.
+            [
+                "would overwrite {dir}result.json",
+                "which this run reads (the case file)"
+            ]
         ),
         bad!(
             "run: a rating table named peers.csv in the output folder",
@@ -2091,6 +2360,27 @@ fn the_catalogue_holds_at_least_120_distinct_inputs() {
     }
     println!("catalogue: {count} bad inputs");
     assert!(count >= 120, "{count} entries");
+}
+
+/// The price, index and yield entries plant their cells on [`LINE`] and name the dates around
+/// it (the previous row's 2023-03-30, the next row's 2023-04-03); a regenerated demo must keep
+/// them there, or those entries would test another row than they say.
+#[test]
+fn the_planted_line_is_the_one_the_entries_name() {
+    let s = Sandbox::new();
+    for file in [PEER, INDEX, RISK_FREE] {
+        for (line, date) in [
+            (LINE - 1, "2023-03-30"),
+            (LINE, LINE_DATE),
+            (LINE + 1, "2023-04-03"),
+        ] {
+            let row = line_text(&s, file, line);
+            assert!(
+                row.starts_with(&format!("{date},")),
+                "{file} line {line} is `{row}`, expected {date}"
+            );
+        }
+    }
 }
 
 #[test]

@@ -97,6 +97,7 @@ pub fn implied(
     range: Option<(f64, f64)>,
 ) -> Result<Implied> {
     let (low, high) = range.unwrap_or_else(|| target.default_range());
+    // Every default range passes, so a failing range is the user's; the command line names it.
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
             option: format!(

@@ -237,7 +237,7 @@ pub fn check_search_range(key: &str, low: f64, high: f64) -> Result<()> {
     };
     if low < least || high > most {
         return Err(Error::Argument {
-            option: format!("--range {}..{}", show(low), show(high)),
+            option: format!("search range {}..{}", show(low), show(high)),
             message: format!("{key} can only lie in [{least}, {most}]; search inside it"),
         });
     }
