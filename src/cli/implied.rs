@@ -43,9 +43,19 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     let inputs = args.case.inputs()?;
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     let base = hurdle::valuation::value_with(&inputs.case, &inputs, &estimates, "")?;
+    // The library speaks of the search range; here it is the user's `--range`.
     let r = implied(
         &inputs, &estimates, &base, args.solve, args.wacc, args.range,
-    )?;
+    )
+    .map_err(|error| match error {
+        hurdle::Error::Argument { option, message } if option.starts_with("search range") => {
+            hurdle::Error::Argument {
+                option: option.replacen("search range", "--range", 1),
+                message,
+            }
+        }
+        other => other,
+    })?;
     let show = |x: f64| {
         if r.key.contains("beta") || r.key.contains("debt_to_") {
             fixed(x, 4)
