@@ -121,7 +121,7 @@ pub fn last_point_on_or_before(
         Frequency::Monthly => last_month_end_on_or_before(date),
         Frequency::Quarterly => {
             let mut end = last_month_end_on_or_before(date);
-            while end.month() % 3 != 0 {
+            while !end.month().is_multiple_of(3) {
                 end = last_month_end_on_or_before(end.with_day(1).expect("day 1 exists"));
             }
             end
