@@ -9,112 +9,13 @@
 
 use serde::Serialize;
 
-use super::cost::{self, CountryMethod};
-use super::debt::{self, CostOfDebtRecord, DebtSettings, SpreadTable};
-use super::leverage::{self, CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
-use crate::beta::{self, vasicek, AdjustedBeta, Adjustment};
-use crate::stats::{self, Aggregation, Dispersion};
+pub use super::spec::{CapitalSpec, Component, PeerCapital, PremiumSpec, TargetSpec};
 
-/// Everything the chain needs besides the peers: what a case's `[leverage]`, `[target]`,
-/// `[market]` rates, `[premiums]`, `[debt]`, `[preferred]` and `[leases]` say, as plain values.
-#[derive(Debug, Clone, Copy)]
-pub struct CapitalSpec<'a> {
-    pub adjustment: Adjustment,
-    /// The weight on the raw beta in Blume's shrinkage (`Adjustment::Blume`).
-    pub blume_weight: f64,
-    /// A stated Vasicek prior (mean, variance); `None` takes it from the cross-section.
-    pub vasicek_prior: Option<(f64, f64)>,
-    pub formula: Formula,
-    pub aggregation: Aggregation,
-    pub trim_fraction: f64,
-    /// Aggregate the betas of the operations (the unlevered betas with cash, at beta zero, taken
-    /// out) instead of the unlevered betas.
-    pub operations_beta: bool,
-    pub debt_measure: DebtMeasure,
-    pub debt_beta_source: DebtBetaSource,
-    /// The debt beta of the subject and of every peer without its own (source `given`).
-    pub debt_beta: f64,
-    pub target: TargetSpec,
-    pub tax_rate: f64,
-    pub risk_free_rate: f64,
-    pub equity_risk_premium: f64,
-    pub premiums: PremiumSpec,
-    pub preferred: Component,
-    pub leases: Component,
-    pub debt: &'a DebtSettings,
-    /// The spread table the cost-of-debt source needs, already read.
-    pub debt_table: Option<&'a SpreadTable>,
-}
-
-/// Where the target D/E comes from.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum TargetSpec {
-    /// A ratio known in advance (given, or the subject's own).
-    DebtToEquity(f64),
-    /// The median D/E of the peers that enter the aggregation.
-    PeerMedian,
-}
-
-/// The premiums added to the CAPM cost of equity.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct PremiumSpec {
-    pub size: f64,
-    pub country: f64,
-    pub company_specific: f64,
-    pub country_method: CountryMethod,
-    /// The subject's exposure to the country's risk (`CountryMethod::Exposure`).
-    pub country_exposure: f64,
-}
-
-impl PremiumSpec {
-    /// The country premium as it enters the cost of equity with relevered beta `beta`: CRP,
-    /// exposure·CRP, or βL·CRP.
-    pub fn country_applied(&self, beta: f64) -> f64 {
-        match self.country_method {
-            CountryMethod::Flat => self.country,
-            CountryMethod::Exposure => self.country_exposure * self.country,
-            CountryMethod::BetaScaled => beta * self.country,
-        }
-    }
-
-    /// The country premium's multiplier: 1, the exposure or βL.
-    pub fn country_scale(&self, beta: f64) -> f64 {
-        match self.country_method {
-            CountryMethod::Flat => 1.0,
-            CountryMethod::Exposure => self.country_exposure,
-            CountryMethod::BetaScaled => beta,
-        }
-    }
-
-    /// Size + country as applied + company-specific.
-    pub fn total_applied(&self, beta: f64) -> f64 {
-        self.size + self.country_applied(beta) + self.company_specific
-    }
-}
-
-/// A capital component beside equity and debt (preferred equity, leases): its share of capital
-/// and its cost (`None`: preferred has none; leases cost the pre-tax cost of debt).
-#[derive(Debug, Clone, Copy, PartialEq, Default)]
-pub struct Component {
-    pub weight: f64,
-    pub cost: Option<f64>,
-}
-
-/// One peer's figures that the chain takes.
-#[derive(Debug, Clone, PartialEq)]
-pub struct PeerCapital {
-    pub raw_beta: f64,
-    pub beta_std_error: f64,
-    pub equity_value: f64,
-    pub debt: f64,
-    pub cash: f64,
-    pub tax_rate: f64,
-    /// The peer's own debt beta and pre-tax cost of debt, when the case gives them.
-    pub own_debt_beta: Option<f64>,
-    pub own_cost_of_debt: Option<f64>,
-    /// Whether the peer enters the aggregates (excluded peers are still shown).
-    pub included: bool,
-}
+use super::cost;
+use super::debt::{self, CostOfDebtRecord};
+use super::leverage::{self, CapitalStructure, DebtBetaSource, DebtTerms, Formula};
+use crate::beta::{self, vasicek, AdjustedBeta};
+use crate::stats::{self, Dispersion};
 
 /// A peer's capital-structure terms as the chain used them.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -9,3 +9,4 @@ pub mod cost;
 pub mod currency;
 pub mod debt;
 pub mod leverage;
+pub mod spec;

@@ -132,9 +132,26 @@ fn joined<'a>(names: impl Iterator<Item = &'a str>) -> Option<String> {
 /// `securities.csv`: every statistic a case reports for a peer, and the unlevering.
 fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame> {
     let mut t = Table::new(rows.len());
-    let e = |f: fn(&crate::beta::BetaEstimate) -> f64| {
-        rows.iter().map(move |r| r.estimate.as_ref().map(f))
-    };
+    sample_columns(&mut t, rows);
+    estimate_columns(&mut t, rows);
+    capital_columns(&mut t, rows);
+    if rolling {
+        let s = |f: fn(&crate::beta::rolling::Stability) -> f64| {
+            rows.iter().map(move |r| r.stability.as_ref().map(f))
+        };
+        t.count(
+            "rolling_windows",
+            rows.iter().map(|r| r.stability.as_ref().map(|s| s.windows)),
+        );
+        t.number("rolling_beta_min", s(|s| s.min));
+        t.number("rolling_beta_max", s(|s| s.max));
+        t.number("rolling_beta_trend_per_year", s(|s| s.trend_per_year));
+    }
+    t.finish()
+}
+
+/// The security, its industry and its sample: periods, observations, what was dropped and why.
+fn sample_columns(t: &mut Table, rows: &[SecurityResult]) {
     let dropped = |f: fn(&crate::market::sampling::DroppedPeriods) -> usize| {
         rows.iter().map(move |r| r.periods_dropped.as_ref().map(f))
     };
@@ -172,6 +189,13 @@ fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame>
         "not_estimated_detail",
         rows.iter().map(|r| r.not_estimated_detail.clone()),
     );
+}
+
+/// The regression's statistics.
+fn estimate_columns(t: &mut Table, rows: &[SecurityResult]) {
+    let e = |f: fn(&crate::beta::BetaEstimate) -> f64| {
+        rows.iter().map(move |r| r.estimate.as_ref().map(f))
+    };
     t.number("alpha", e(|e| e.alpha));
     t.number("alpha_std_error", e(|e| e.alpha_std_error));
     t.number("alpha_t_stat", e(|e| e.alpha_t_stat));
@@ -196,6 +220,10 @@ fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame>
         rows.iter()
             .map(|r| r.estimate.as_ref().and_then(|e| e.newey_west_lags)),
     );
+}
+
+/// Flags, the adjustment, the firm's structure and the unlevered betas.
+fn capital_columns(t: &mut Table, rows: &[SecurityResult]) {
     t.number("stale_share", rows.iter().map(|r| r.stale_share));
     t.text(
         "flags",
@@ -226,19 +254,6 @@ fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame>
         "unlevering_issue",
         rows.iter().map(|r| r.unlevering_issue.map(str::to_string)),
     );
-    if rolling {
-        let s = |f: fn(&crate::beta::rolling::Stability) -> f64| {
-            rows.iter().map(move |r| r.stability.as_ref().map(f))
-        };
-        t.count(
-            "rolling_windows",
-            rows.iter().map(|r| r.stability.as_ref().map(|s| s.windows)),
-        );
-        t.number("rolling_beta_min", s(|s| s.min));
-        t.number("rolling_beta_max", s(|s| s.max));
-        t.number("rolling_beta_trend_per_year", s(|s| s.trend_per_year));
-    }
-    t.finish()
 }
 
 /// The statistics of one summary under a column prefix (`beta`, `unlevered_beta`, …).
