@@ -35,25 +35,30 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         Some(spec) => grid::parse_axis("sensitivity.columns", spec)?,
         None => columns,
     };
-    valuation.sensitivity = Some(grid::grid(
-        inputs,
-        &estimates,
-        &rows,
-        &columns,
-        sensitivity.metric,
-    )?);
-    let specifications = if inputs.case.settings.uncertainty.specification_range {
-        specification::range(inputs, &estimates, valuation.cost.wacc)?
-    } else {
-        Vec::new()
-    };
-    valuation.uncertainty = Some(uncertainty::simulate(
-        &inputs.case,
-        inputs,
-        &estimates,
-        valuation.cost.wacc,
-        specifications,
-    )?);
+    // The grid, the specification range and the Monte Carlo only read the estimates and the case,
+    // so they run side by side (two cores halve the wall time); their errors are reported in this
+    // fixed order, whichever finished first.
+    let point = valuation.cost.wacc;
+    let (sensitivity, (specifications, uncertainty)) = rayon::join(
+        || grid::grid(inputs, &estimates, &rows, &columns, sensitivity.metric),
+        || {
+            rayon::join(
+                || {
+                    if inputs.case.settings.uncertainty.specification_range {
+                        specification::range(inputs, &estimates, point)
+                    } else {
+                        Ok(Vec::new())
+                    }
+                },
+                || uncertainty::simulate(&inputs.case, inputs, &estimates, point, Vec::new()),
+            )
+        },
+    );
+    valuation.sensitivity = Some(sensitivity?);
+    let specifications = specifications?;
+    let mut uncertainty = uncertainty?;
+    uncertainty.specifications = specifications;
+    valuation.uncertainty = Some(uncertainty);
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);
         let claimed = bridge::read_side(&path, &reconcile.claimed)?;

@@ -54,23 +54,32 @@ pub fn simulate(
     };
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
 
-    let mut rng = Rng::seeded(u.seed);
-    let mut drawn = peers.clone();
-    let mut z = vec![0.0; peers.len()];
-    let mut waccs = Vec::with_capacity(u.draws as usize);
-    let mut progress = crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
-    for _ in 0..u.draws {
-        progress.step()?;
-        draw_betas(&mut rng, &factor, &peers, &mut z, &mut drawn);
-        let mut spec = base;
-        if let Some(range) = u.equity_risk_premium {
-            spec.equity_risk_premium = uniform(&mut rng, range);
-        }
-        if let Some(range) = u.risk_free_rate {
-            spec.risk_free_rate = uniform(&mut rng, range);
-        }
-        waccs.push(wacc_of(&spec, &drawn)?);
-    }
+    // The two intervals draw from generators of their own, so they run side by side.
+    let (waccs, peer_set) = rayon::join(
+        || -> Result<Vec<f64>> {
+            let mut rng = Rng::seeded(u.seed);
+            let mut drawn = peers.clone();
+            let mut z = vec![0.0; peers.len()];
+            let mut waccs = Vec::with_capacity(u.draws as usize);
+            let mut progress =
+                crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
+            for _ in 0..u.draws {
+                progress.step()?;
+                draw_betas(&mut rng, &factor, &peers, &mut z, &mut drawn);
+                let mut spec = base;
+                if let Some(range) = u.equity_risk_premium {
+                    spec.equity_risk_premium = uniform(&mut rng, range);
+                }
+                if let Some(range) = u.risk_free_rate {
+                    spec.risk_free_rate = uniform(&mut rng, range);
+                }
+                waccs.push(wacc_of(&spec, &drawn)?);
+            }
+            Ok(waccs)
+        },
+        || peer_set_interval(case, &base, &factor, &peers),
+    );
+    let mut waccs = waccs?;
     let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
 
     Ok(Uncertainty {
@@ -92,7 +101,7 @@ pub fn simulate(
         p75,
         p95,
         beta_errors: u.beta_errors,
-        peer_set: peer_set_interval(case, &base, &factor, &peers)?,
+        peer_set: peer_set?,
         leave_one_out: leave_one_out(case, &base, &peers, point)?,
         beta_error_correlation: correlation,
         influence_threshold: u.influence_threshold,

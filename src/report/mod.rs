@@ -21,7 +21,7 @@ use crate::error::{Error, Result};
 use crate::valuation::Valuation;
 
 /// One output file format.
-pub trait Render {
+pub trait Render: Sync {
     /// The file name written in the output folder.
     fn file_name(&self) -> &str;
     /// The file's complete contents.
@@ -38,8 +38,11 @@ pub fn write_all(
     outputs: &[&dyn Render],
     reads: &[crate::case::FileRead],
 ) -> Result<Vec<PathBuf>> {
+    // Each output is rendered on its own (the workbook, the report and the charts take the
+    // longest), so they render side by side; the files keep the order given.
+    use rayon::prelude::*;
     let rendered = outputs
-        .iter()
+        .par_iter()
         .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
         .collect::<Result<Vec<_>>>()?;
     staging::write_outputs(dir, &rendered, reads)
