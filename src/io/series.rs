@@ -173,7 +173,7 @@ pub fn parse_series(
             message,
         };
         let date_cell = date.as_deref().unwrap_or("").trim();
-        let date = NaiveDate::parse_from_str(date_cell, "%Y-%m-%d").map_err(|_| {
+        let date = parse_iso_date(date_cell).ok_or_else(|| {
             row_error(format!(
                 "`{date_column}` = \"{date_cell}\" is not an ISO 8601 date (YYYY-MM-DD)"
             ))
@@ -220,6 +220,60 @@ pub fn parse_series(
     Ok(series)
 }
 
+/// A `YYYY-MM-DD` date: the plain ten-character form read directly (most of a price file's
+/// parsing time otherwise goes to chrono's general format parser), anything else through chrono,
+/// so every form chrono accepts is still accepted.
+fn parse_iso_date(text: &str) -> Option<NaiveDate> {
+    let b = text.as_bytes();
+    let digits = |range: std::ops::Range<usize>| -> Option<u32> {
+        b[range].iter().try_fold(0u32, |n, &c| {
+            c.is_ascii_digit().then(|| n * 10 + u32::from(c - b'0'))
+        })
+    };
+    if b.len() == 10 && b[4] == b'-' && b[7] == b'-' {
+        if let (Some(y), Some(m), Some(d)) = (digits(0..4), digits(5..7), digits(8..10)) {
+            return NaiveDate::from_ymd_opt(y as i32, m, d);
+        }
+    }
+    NaiveDate::parse_from_str(text, "%Y-%m-%d").ok()
+}
+
 fn first_line(error: &impl std::fmt::Display) -> String {
     error.to_string().lines().next().unwrap_or("").to_string()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // The direct reading of `YYYY-MM-DD` must agree with chrono's own parser (the reference) on
+    // every form, valid or not, including impossible days and out-of-range months.
+    #[test]
+    fn the_direct_date_reading_agrees_with_chrono() {
+        for text in [
+            "2026-09-30",
+            "2024-02-29",
+            "2023-02-29",
+            "2023-02-30",
+            "2023-13-01",
+            "2023-00-10",
+            "0001-01-01",
+            "9999-12-31",
+            "2023-1-05",
+            "2023-01-5",
+            "2023/01/05",
+            "20230105",
+            "2023-01-05 ",
+            "+2023-01-05",
+            "2023-0a-05",
+            "",
+            "abcd-ef-gh",
+        ] {
+            assert_eq!(
+                parse_iso_date(text),
+                NaiveDate::parse_from_str(text, "%Y-%m-%d").ok(),
+                "{text:?}"
+            );
+        }
+    }
 }
