@@ -11,7 +11,7 @@ use crate::case::{label, with_overrides, Case};
 use crate::error::Result;
 use crate::market::sampling::Frequency;
 use crate::valuation::analyses::Specification;
-use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates};
+use crate::valuation::{cost_of_capital, estimate_peers_without_rolling, Inputs, PeerEstimates};
 
 /// The frequencies and window lengths (years) of the range.
 const FREQUENCIES: [Frequency; 3] = [Frequency::Daily, Frequency::Weekly, Frequency::Monthly];
@@ -67,9 +67,16 @@ fn row(
             scaled_minimum(case, frequency, years)
         ));
         let variant = with_overrides(case, &overrides).map_err(|e| e.to_string())?;
-        let estimated = estimates_for(&variant, inputs, estimates).map_err(|e| e.to_string())?;
+        // Only the WACC is read, so a re-estimation skips the rolling betas.
+        let estimated = if estimates.fit(&variant) {
+            std::borrow::Cow::Borrowed(estimates)
+        } else {
+            std::borrow::Cow::Owned(
+                estimate_peers_without_rolling(&variant, inputs).map_err(|e| e.to_string())?,
+            )
+        };
         let cost = cost_of_capital(&variant, inputs, &estimated).map_err(|e| e.to_string())?;
-        Ok((cost.wacc, estimated.spec == estimates.spec))
+        Ok((cost.wacc, estimates.fit(&variant)))
     })();
     let (wacc, case_choice, reason) = match outcome {
         Ok((wacc, same)) => (Some(wacc), same, None),

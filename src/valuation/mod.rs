@@ -109,8 +109,24 @@ impl PeerEstimates {
 
 /// Estimates every peer of `case` on the data files of `inputs`.
 pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
+    estimate_peers_under(case, inputs, specs::estimation(&case.settings))
+}
+
+/// As [`estimate_peers`], without rolling betas: for a what-if that reads only the WACC (the
+/// specification range), where the windows would cost more than the regression itself.
+pub fn estimate_peers_without_rolling(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
+    let mut spec = specs::estimation(&case.settings);
+    // A zero-length window computes no rolling betas (see `beta::rolling::rolling_betas`).
+    spec.rolling.window = 0;
+    estimate_peers_under(case, inputs, spec)
+}
+
+fn estimate_peers_under(
+    case: &Case,
+    inputs: &Inputs,
+    spec: EstimationSpec,
+) -> Result<PeerEstimates> {
     let settings = &case.settings;
-    let spec = specs::estimation(settings);
     let window = Window::new(&spec);
     let market = MarketReturns::new(
         &spec,
