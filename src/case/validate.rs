@@ -190,6 +190,14 @@ fn validate_window(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     validate_beta_options(beta, lookback)?;
+    validate_rolling_and_flags(beta, lookback)
+}
+
+/// The rolling windows against the window's `lookback` periods, and the flag thresholds.
+fn validate_rolling_and_flags(
+    beta: &BetaSettings,
+    lookback: u32,
+) -> std::result::Result<(), String> {
     let (window, min) = beta.rolling(lookback);
     if window > lookback || window < 3 {
         return Err(format!(

@@ -132,34 +132,7 @@ pub fn parse_series(
         file: file.to_path_buf(),
         message,
     };
-    super::sanity::check_csv_shape(file, bytes)?;
-    let frame = CsvReadOptions::default()
-        .with_has_header(true)
-        // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.
-        .with_infer_schema_length(Some(0))
-        .into_reader_with_file_handle(Cursor::new(bytes))
-        .finish()
-        // The reader's first line only: the rest advises options the user cannot set.
-        .map_err(|e| file_error(format!("not a readable CSV file: {}", first_line(&e))))?;
-    let column = |name: &str| -> Result<Vec<Option<String>>> {
-        let found = frame.column(name).map_err(|_| {
-            let names: Vec<String> = frame
-                .get_column_names()
-                .iter()
-                .map(|n| n.to_string())
-                .collect();
-            file_error(format!(
-                "no column named `{name}`; the header has: {}",
-                names.join(", ")
-            ))
-        })?;
-        let text = found
-            .str()
-            .map_err(|e| file_error(format!("column `{name}`: {e}")))?;
-        Ok(text.iter().map(|v| v.map(str::to_string)).collect())
-    };
-    let date_text = column(date_column)?;
-    let value_text = column(value_column)?;
+    let (date_text, value_text) = text_columns(file, bytes, date_column, value_column)?;
     if date_text.is_empty() {
         return Err(file_error("has a header but no data rows".into()));
     }
@@ -218,6 +191,50 @@ pub fn parse_series(
     let series = Series { dates, values };
     super::sanity::check_series_values(file, value_column, &series, kind)?;
     Ok(series)
+}
+
+/// One column's cells as text (`None` for an empty cell).
+type TextColumn = Vec<Option<String>>;
+
+/// The date and value columns of a CSV file as text, through polars (every column read as text,
+/// so parsing and its messages are hurdle's own), after the file's shape is checked.
+fn text_columns(
+    file: &Path,
+    bytes: &[u8],
+    date_column: &str,
+    value_column: &str,
+) -> Result<(TextColumn, TextColumn)> {
+    let file_error = |message: String| Error::DataFile {
+        file: file.to_path_buf(),
+        message,
+    };
+    super::sanity::check_csv_shape(file, bytes)?;
+    let frame = CsvReadOptions::default()
+        .with_has_header(true)
+        // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.
+        .with_infer_schema_length(Some(0))
+        .into_reader_with_file_handle(Cursor::new(bytes))
+        .finish()
+        // The reader's first line only: the rest advises options the user cannot set.
+        .map_err(|e| file_error(format!("not a readable CSV file: {}", first_line(&e))))?;
+    let column = |name: &str| -> Result<TextColumn> {
+        let found = frame.column(name).map_err(|_| {
+            let names: Vec<String> = frame
+                .get_column_names()
+                .iter()
+                .map(|n| n.to_string())
+                .collect();
+            file_error(format!(
+                "no column named `{name}`; the header has: {}",
+                names.join(", ")
+            ))
+        })?;
+        let text = found
+            .str()
+            .map_err(|e| file_error(format!("column `{name}`: {e}")))?;
+        Ok(text.iter().map(|v| v.map(str::to_string)).collect())
+    };
+    Ok((column(date_column)?, column(value_column)?))
 }
 
 /// A `YYYY-MM-DD` date: the plain ten-character form read directly (most of a price file's
