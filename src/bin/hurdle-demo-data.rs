@@ -17,16 +17,13 @@ fn main() -> ExitCode {
     let mut wide_dir = dir.clone().into_os_string();
     wide_dir.push("-wide");
     let wide_dir = PathBuf::from(wide_dir);
-    let files = generate(SEED)
+    // Each folder's files as one group, through the writer every command uses.
+    let per_file: Vec<(String, Vec<u8>)> = generate(SEED)
         .into_iter()
-        .map(|(relative, text)| (dir.join(relative), text.into_bytes()))
-        .chain(
-            generate_wide(SEED)
-                .into_iter()
-                .map(|(relative, bytes)| (wide_dir.join(relative), bytes)),
-        );
-    for (path, contents) in files {
-        if let Err(error) = hurdle::report::write_file(&path, &contents) {
+        .map(|(relative, text)| (relative, text.into_bytes()))
+        .collect();
+    for (folder, files) in [(&dir, per_file), (&wide_dir, generate_wide(SEED))] {
+        if let Err(error) = hurdle::report::staging::write_outputs(folder, &files, &[]) {
             eprintln!("error: {error}");
             return ExitCode::from(2);
         }

@@ -355,6 +355,43 @@ fn shown(value: Option<f64>) -> String {
 }
 
 /// `summary.md`: what was run, the industry table, the counts and the cautions.
+/// The industry table for people: counts, the levered betas' median and quartiles, the median
+/// D/E and the unlevered aggregates.
+fn industry_table(out: &mut String, r: &UniverseResult) {
+    let s = &r.settings;
+    let _ = writeln!(
+        *out,
+        "| Industry | Securities | Estimated | Median β | β quartiles | Median D/E | Median βU | βU ({}) |",
+        label(&s.leverage.aggregation)
+    );
+    out.push_str("|---|---:|---:|---:|---|---:|---:|---:|\n");
+    for i in &r.industries {
+        let levered = i.levered.as_ref();
+        let quartiles = levered.map_or_else(
+            || "–".to_string(),
+            |l| {
+                format!(
+                    "{} – {}",
+                    fixed(l.dispersion.lower_quartile, 3),
+                    fixed(l.dispersion.upper_quartile, 3)
+                )
+            },
+        );
+        let _ = writeln!(
+            *out,
+            "| {} | {} | {} | {} | {} | {} | {} | {} |",
+            i.industry.replace('|', "\\|"),
+            i.securities,
+            i.estimated,
+            shown(levered.map(|l| l.dispersion.median)),
+            quartiles,
+            shown(i.median_debt_to_equity),
+            shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
+            shown(i.unlevered_beta),
+        );
+    }
+}
+
 fn summary(r: &UniverseResult) -> String {
     let s = &r.settings;
     let mut out = String::new();
@@ -399,37 +436,7 @@ fn summary(r: &UniverseResult) -> String {
         nonzero_counts(&c.not_estimated),
         c.unlevered
     );
-    let _ = writeln!(
-        out,
-        "| Industry | Securities | Estimated | Median β | β quartiles | Median D/E | Median βU | βU ({}) |",
-        label(&s.leverage.aggregation)
-    );
-    out.push_str("|---|---:|---:|---:|---|---:|---:|---:|\n");
-    for i in &r.industries {
-        let levered = i.levered.as_ref();
-        let quartiles = levered.map_or_else(
-            || "–".to_string(),
-            |l| {
-                format!(
-                    "{} – {}",
-                    fixed(l.dispersion.lower_quartile, 3),
-                    fixed(l.dispersion.upper_quartile, 3)
-                )
-            },
-        );
-        let _ = writeln!(
-            out,
-            "| {} | {} | {} | {} | {} | {} | {} | {} |",
-            i.industry.replace('|', "\\|"),
-            i.securities,
-            i.estimated,
-            shown(levered.map(|l| l.dispersion.median)),
-            quartiles,
-            shown(i.median_debt_to_equity),
-            shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
-            shown(i.unlevered_beta),
-        );
-    }
+    industry_table(&mut out, r);
     out.push('\n');
     for note in &r.notes {
         let _ = writeln!(out, "- {note}");

@@ -70,14 +70,13 @@ impl OlsFit {
     }
 }
 
-/// Fits y on the columns of `design`. `has_intercept` says whether one column is a constant,
-/// which decides the R² definition (centred or not).
-pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Result<OlsFit> {
+/// Checks the shapes and returns each regressor column's norm (the equilibration scale): as
+/// many responses as rows, a degree of freedom left, no column all zeros or not finite.
+fn column_norms(design: &DMatrix<f64>, responses: usize) -> Result<Vec<f64>> {
     let (n, k) = design.shape();
-    if response.len() != n {
+    if responses != n {
         return Err(Error::Regression(format!(
-            "{} responses for {n} rows of regressors",
-            response.len()
+            "{responses} responses for {n} rows of regressors"
         )));
     }
     if n <= k {
@@ -91,6 +90,35 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
             "regressor column {j} is all zeros or not finite"
         )));
     }
+    Ok(norms)
+}
+
+/// R² (against the mean with an intercept, against zero without) and adjusted R² on `df`
+/// residual degrees of freedom.
+fn r_squared(response: &[f64], ssr: f64, df: usize, has_intercept: bool) -> (f64, f64) {
+    let n = response.len();
+    let total = if has_intercept {
+        let mean = response.iter().sum::<f64>() / n as f64;
+        response
+            .iter()
+            .map(|v| (v - mean) * (v - mean))
+            .sum::<f64>()
+    } else {
+        response.iter().map(|v| v * v).sum::<f64>()
+    };
+    let r_squared = 1.0 - ssr / total;
+    let model_df = if has_intercept { n - 1 } else { n };
+    (
+        r_squared,
+        1.0 - (1.0 - r_squared) * model_df as f64 / df as f64,
+    )
+}
+
+/// Fits y on the columns of `design`. `has_intercept` says whether one column is a constant,
+/// which decides the R² definition (centred or not).
+pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Result<OlsFit> {
+    let (n, k) = design.shape();
+    let norms = column_norms(design, response.len())?;
     let mut scaled = design.clone();
     for (j, mut column) in scaled.column_iter_mut().enumerate() {
         column /= norms[j];
@@ -134,18 +162,7 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
         .map(|&t| stats::student_t_two_sided_p(t, df as f64))
         .collect();
 
-    let total = if has_intercept {
-        let mean = response.iter().sum::<f64>() / n as f64;
-        response
-            .iter()
-            .map(|v| (v - mean) * (v - mean))
-            .sum::<f64>()
-    } else {
-        response.iter().map(|v| v * v).sum::<f64>()
-    };
-    let r_squared = 1.0 - ssr / total;
-    let model_df = if has_intercept { n - 1 } else { n };
-    let adjusted_r_squared = 1.0 - (1.0 - r_squared) * model_df as f64 / df as f64;
+    let (r_squared, adjusted_r_squared) = r_squared(response, ssr, df, has_intercept);
     Ok(OlsFit {
         coefficients,
         std_errors,

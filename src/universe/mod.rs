@@ -161,6 +161,24 @@ pub struct UniverseResult {
     pub rolling: Vec<Vec<RollingPoint>>,
 }
 
+/// Every security of the panel estimated, in parallel, in panel order. A stop request (Ctrl-C)
+/// ends the run between two securities, with nothing written.
+fn estimate_all(
+    panel: &Panel,
+    estimation: &Estimation,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<Vec<SecurityEstimate>> {
+    (0..panel.len())
+        .into_par_iter()
+        .map(|i| {
+            crate::progress::check_stop()?;
+            let estimate = estimation.security(panel.series(i));
+            progress(1);
+            Ok(estimate)
+        })
+        .collect()
+}
+
 /// Computes the universe's tables. `progress(n)` is called as securities are estimated (from
 /// several threads); `generated_at` is stamped into the result as given.
 pub fn evaluate(
@@ -177,16 +195,7 @@ pub fn evaluate(
     );
     check_overlap(inputs, &estimation)?;
     let panel = &inputs.panel;
-    // A stop request (Ctrl-C) ends the run between two securities, with nothing written.
-    let estimates: Vec<SecurityEstimate> = (0..panel.len())
-        .into_par_iter()
-        .map(|i| {
-            crate::progress::check_stop()?;
-            let estimate = estimation.security(panel.series(i));
-            progress(1);
-            Ok(estimate)
-        })
-        .collect::<Result<_>>()?;
+    let estimates = estimate_all(panel, &estimation, progress)?;
     let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
     let row_settings = RowSettings {
         leverage: &settings.leverage,

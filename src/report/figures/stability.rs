@@ -34,11 +34,9 @@ fn year(date: NaiveDate) -> f64 {
     f64::from(date.year()) + f64::from(date.ordinal0()) / days
 }
 
-/// The rolling-beta chart.
-pub fn draw(valuation: &Valuation) -> Result<Figure> {
+/// One scale for every panel: the years of the window ends, and every band and whole-window β.
+fn shared_axes(valuation: &Valuation) -> Axes {
     let peers = &valuation.peers;
-    let columns = if peers.len() > 1 { 2 } else { 1 };
-    let panel_rows = peers.len().div_ceil(columns);
     let all = valuation.rolling.iter().flatten();
     let (low, high) = all
         .clone()
@@ -51,7 +49,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         let x = year(p.window_end);
         (lo.min(x), hi.max(x))
     });
-    let axes = Axes {
+    Axes {
         x: Scale::plain(first, last, 0.02, 4),
         y: Scale::plain(low, high, 0.05, 6),
         x_title: String::new(),
@@ -59,7 +57,15 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         left: 44,
         bottom: 24,
         y_ticks: true,
-    };
+    }
+}
+
+/// The rolling-beta chart.
+pub fn draw(valuation: &Valuation) -> Result<Figure> {
+    let peers = &valuation.peers;
+    let columns = if peers.len() > 1 { 2 } else { 1 };
+    let panel_rows = peers.len().div_ceil(columns);
+    let axes = shared_axes(valuation);
     let s = &valuation.settings.beta;
     let window = peers
         .iter()

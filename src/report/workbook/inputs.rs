@@ -176,14 +176,6 @@ fn rates(v: &Valuation) -> Vec<Spec> {
         .format(Fmt::Beta)
         .note("Used when premiums.country_method = \"exposure\"."),
         spec(
-            "Blume weight on the raw beta",
-            "BlumeWeight",
-            "beta.blume_weight",
-            "/settings/beta/blume_weight",
-        )
-        .format(Fmt::Beta)
-        .note("Used when beta.adjustment = \"blume\": shrunk β = w·raw β + (1 − w)."),
-        spec(
             "Company-specific premium",
             "CompanySpecificPremium",
             "premiums.company_specific",
@@ -329,6 +321,18 @@ fn components(v: &Valuation) -> Vec<Spec> {
 /// them.
 fn optional(v: &Valuation) -> Vec<Spec> {
     let mut specs = Vec::new();
+    if v.settings.beta.adjustment == crate::beta::Adjustment::Blume {
+        specs.push(
+            spec(
+                "Blume weight on the raw beta",
+                "BlumeWeight",
+                "beta.blume_weight",
+                "/settings/beta/blume_weight",
+            )
+            .format(Fmt::Beta)
+            .note("shrunk β = w·raw β + (1 − w)."),
+        );
+    }
     if v.cost
         .beta
         .vasicek_prior
