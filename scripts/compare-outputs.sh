@@ -3,7 +3,8 @@
 # file that differs, the run's timestamp aside. Used to prove that a refactoring changed no figure:
 #   scripts/compare-outputs.sh OLD_BINARY NEW_BINARY
 # Build OLD_BINARY from the revision before the change (e.g. in a `git worktree`), NEW_BINARY from
-# the working tree. Exits 1 when any file differs.
+# the working tree. Exits 1 when any file differs. A workbook is compared by the XML of its parts
+# (so its compression does not count), the charts under figures/ file by file.
 set -euo pipefail
 old=$1 new=$2
 root=$(cd "$(dirname "$0")/.." && pwd)
@@ -45,6 +46,17 @@ combos=(
   "conversion.currency=USD conversion.inflation_case=0.02 conversion.inflation_output=0.035"
   "uncertainty.equity_risk_premium=[0.045,0.065] uncertainty.risk_free_rate=[0.03,0.045]"
 )
+# The file's text with the run's timestamp replaced; a workbook's parts one after another.
+normalised() {
+  if [[ $1 == *.xlsx ]]; then
+    python3 -c 'import sys, zipfile
+z = zipfile.ZipFile(sys.argv[1])
+for n in sorted(z.namelist()):
+    sys.stdout.write(n + "\n" + z.read(n).decode("utf-8", "replace") + "\n")' "$1"
+  else
+    cat "$1"
+  fi | sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z?/TIMESTAMP/g'
+}
 status=0
 for combo in "${combos[@]}"; do
   sets=()
@@ -55,12 +67,11 @@ for combo in "${combos[@]}"; do
     "$bin" run "$work/case/case.toml" --out "$work/$side" "${sets[@]}" >/dev/null 2>"$work/$side.err" || true
     "$bin" betas "$work/case/case.toml" "${sets[@]}" >"$work/$side.betas" 2>&1 || true
   done
-  for file in "$work/old"/* "$work/old.err" "$work/old.betas"; do
-    name=${file##*/}; name=${name#old}
+  for file in "$work/old"/* "$work/old"/figures/* "$work/old.err" "$work/old.betas"; do
+    name=${file#"$work"/old}; name=${name#/}
     other="$work/new/$name"; [ -e "$other" ] || other="$work/new${name}"
     [ -f "$file" ] || continue
-    if ! diff -q <(sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z/TIMESTAMP/' "$file") \
-                 <(sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z/TIMESTAMP/' "$other") >/dev/null 2>&1; then
+    if ! diff -q <(normalised "$file") <(normalised "$other") >/dev/null 2>&1; then
       echo "DIFFERS [${combo:-demo}]: $name"; status=1
     fi
   done

@@ -49,9 +49,10 @@ pub fn simulate(
         BetaErrors::Independent => identity(peers.len()),
     };
     let factor = covariance_factor(&correlation, &peers);
-    let wacc_of = |spec: &chain::CapitalSpec<'_>, drawn: &[PeerCapital]| {
-        chain::wacc_only(spec, drawn).map_err(|e| chain_error(case, e))
-    };
+    let wacc_of =
+        |spec: &chain::CapitalSpec<'_>, drawn: &[PeerCapital], buffers: &mut chain::Buffers| {
+            chain::wacc_with(spec, drawn, buffers).map_err(|e| chain_error(case, e))
+        };
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
 
     // The two intervals draw from generators of their own, so they run side by side.
@@ -60,6 +61,7 @@ pub fn simulate(
             let mut rng = Rng::seeded(u.seed);
             let mut drawn = peers.clone();
             let mut z = vec![0.0; peers.len()];
+            let mut buffers = chain::Buffers::default();
             let mut waccs = Vec::with_capacity(u.draws as usize);
             let mut progress =
                 crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
@@ -73,7 +75,7 @@ pub fn simulate(
                 if let Some(range) = u.risk_free_rate {
                     spec.risk_free_rate = uniform(&mut rng, range);
                 }
-                waccs.push(wacc_of(&spec, &drawn)?);
+                waccs.push(wacc_of(&spec, &drawn, &mut buffers)?);
             }
             Ok(waccs)
         },
@@ -244,6 +246,7 @@ fn peer_set_interval(
     let mut drawn = peers.to_vec();
     let mut z = vec![0.0; peers.len()];
     let mut sample = Vec::with_capacity(included.len());
+    let mut buffers = chain::Buffers::default();
     let mut waccs = Vec::with_capacity(u.draws as usize);
     let mut progress = crate::progress::Progress::new("peer-set draws", u64::from(u.draws));
     for _ in 0..u.draws {
@@ -252,9 +255,9 @@ fn peer_set_interval(
         sample.clear();
         for _ in 0..included.len() {
             let pick = ((rng.uniform() * included.len() as f64) as usize).min(included.len() - 1);
-            sample.push(drawn[included[pick]].clone());
+            sample.push(drawn[included[pick]]);
         }
-        match chain::wacc_only(base, &sample) {
+        match chain::wacc_with(base, &sample, &mut buffers) {
             Ok(wacc) => waccs.push(wacc),
             // Only a Vasicek prior from a resample of one repeated peer fails; that draw says
             // nothing about the peer set and is left out (and counted).

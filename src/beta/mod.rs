@@ -361,19 +361,39 @@ pub fn adjust_all(
     raw: &[(f64, f64)],
     included: &[bool],
 ) -> std::result::Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), String> {
+    let mut adjusted = Vec::with_capacity(raw.len());
+    let prior = adjust_all_into(
+        adjustment,
+        blume_weight,
+        stated_prior,
+        raw,
+        included,
+        &mut adjusted,
+    )?;
+    Ok((adjusted, prior))
+}
+
+/// [`adjust_all`] into a vector the caller reuses (cleared first), so that a run of Monte Carlo
+/// draws does not allocate one per draw.
+pub fn adjust_all_into(
+    adjustment: Adjustment,
+    blume_weight: f64,
+    stated_prior: Option<(f64, f64)>,
+    raw: &[(f64, f64)],
+    included: &[bool],
+    adjusted: &mut Vec<AdjustedBeta>,
+) -> std::result::Result<Option<vasicek::Prior>, String> {
+    adjusted.clear();
     if adjustment != Adjustment::Vasicek {
-        let adjusted = raw
-            .iter()
-            .map(|&(beta, _)| {
-                let shrunk = adjust(adjustment, blume_weight, beta);
-                AdjustedBeta {
-                    shrunk,
-                    used: shrunk.unwrap_or(beta),
-                    vasicek: None,
-                }
-            })
-            .collect();
-        return Ok((adjusted, None));
+        adjusted.extend(raw.iter().map(|&(beta, _)| {
+            let shrunk = adjust(adjustment, blume_weight, beta);
+            AdjustedBeta {
+                shrunk,
+                used: shrunk.unwrap_or(beta),
+                vasicek: None,
+            }
+        }));
+        return Ok(None);
     }
     let prior = match stated_prior {
         Some((mean, variance)) => vasicek::Prior {
@@ -398,18 +418,15 @@ pub fn adjust_all(
             })?
         }
     };
-    let adjusted = raw
-        .iter()
-        .map(|&(beta, std_error)| {
-            let shrunk = vasicek::shrink(beta, std_error, &prior);
-            AdjustedBeta {
-                shrunk: Some(shrunk.beta),
-                used: shrunk.beta,
-                vasicek: Some(shrunk),
-            }
-        })
-        .collect();
-    Ok((adjusted, Some(prior)))
+    adjusted.extend(raw.iter().map(|&(beta, std_error)| {
+        let shrunk = vasicek::shrink(beta, std_error, &prior);
+        AdjustedBeta {
+            shrunk: Some(shrunk.beta),
+            used: shrunk.beta,
+            vasicek: Some(shrunk),
+        }
+    }));
+    Ok(Some(prior))
 }
 
 #[cfg(test)]

@@ -131,12 +131,24 @@ pub enum Checks {
     Skip,
 }
 
-/// The chain's inputs shared by every formula.
-struct Common {
+/// Buffers a run of Monte Carlo draws reuses: once they have grown to the peer count, a draw
+/// through [`wacc_with`] allocates nothing.
+#[derive(Debug, Default, Clone)]
+pub struct Buffers {
+    raw: Vec<(f64, f64)>,
+    included: Vec<bool>,
     adjusted: Vec<AdjustedBeta>,
+    terms: Vec<PeerTerms>,
+    values: Vec<f64>,
+    market_caps: Vec<f64>,
+    sorted: Vec<f64>,
+}
+
+/// The chain's inputs shared by every formula: the per-peer ones (adjusted betas and terms)
+/// are left in the [`Buffers`], the rest is here.
+struct Shared {
     vasicek_prior: Option<vasicek::Prior>,
-    peers: Vec<PeerTerms>,
-    cost_of_debt: CostOfDebtRecord,
+    cost_of_debt_pre_tax: f64,
     target: CapitalStructure,
     subject_debt: DebtTerms,
     weights: Weights,
@@ -144,42 +156,57 @@ struct Common {
     other: OtherComponents,
 }
 
+/// Everything before the formulas, with the cost-of-debt record the outputs show.
+struct Common {
+    adjusted: Vec<AdjustedBeta>,
+    peers: Vec<PeerTerms>,
+    cost_of_debt: CostOfDebtRecord,
+    shared: Shared,
+}
+
 /// The spec's adjustment applied to every peer's raw beta (a Vasicek prior from the peers
-/// that enter the aggregates), and the prior used.
+/// that enter the aggregates) into `buffers.adjusted`; returns the prior used.
 fn adjust(
     spec: &CapitalSpec<'_>,
     peers: &[PeerCapital],
-) -> Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), ChainError> {
-    let raw: Vec<(f64, f64)> = peers
-        .iter()
-        .map(|p| (p.raw_beta, p.beta_std_error))
-        .collect();
-    let included: Vec<bool> = peers.iter().map(|p| p.included).collect();
-    beta::adjust_all(
+    buffers: &mut Buffers,
+) -> Result<Option<vasicek::Prior>, ChainError> {
+    buffers.raw.clear();
+    buffers
+        .raw
+        .extend(peers.iter().map(|p| (p.raw_beta, p.beta_std_error)));
+    buffers.included.clear();
+    buffers.included.extend(peers.iter().map(|p| p.included));
+    beta::adjust_all_into(
         spec.adjustment,
         spec.blume_weight,
         spec.vasicek_prior,
-        &raw,
-        &included,
+        &buffers.raw,
+        &buffers.included,
+        &mut buffers.adjusted,
     )
     .map_err(ChainError::Adjustment)
 }
 
-/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas.
-fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
-    let (adjusted, vasicek_prior) = adjust(spec, peers)?;
+/// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas. The
+/// adjusted betas and the peers' terms are left in `buffers`.
+fn shared(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+    buffers: &mut Buffers,
+) -> Result<Shared, ChainError> {
+    let vasicek_prior = adjust(spec, peers, buffers)?;
     if !peers.iter().any(|p| p.included) {
         return Err(ChainError::NoPeerIncluded);
     }
-    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+    let kd = debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
-    let kd = cost_of_debt.pre_tax;
-    let terms: Vec<PeerTerms> = peers.iter().map(|p| peer_terms(spec, p, kd)).collect();
+    buffers.terms.clear();
+    buffers
+        .terms
+        .extend(peers.iter().map(|p| peer_terms(spec, p, kd)));
     let target_de = match spec.target {
-        TargetSpec::PeerMedian => {
-            let ratios: Vec<f64> = terms.iter().map(|t| t.debt_to_equity).collect();
-            aggregate(peers, &ratios, spec.trim_fraction).0.median
-        }
+        TargetSpec::PeerMedian => peer_median_debt_to_equity(peers, buffers),
         TargetSpec::DebtToEquity(de) => de,
     };
     if !(target_de.is_finite() && target_de >= 0.0) {
@@ -193,11 +220,9 @@ fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, Chain
     let (equity_weight, debt_weight) =
         cost::weights_with_other_components(target_de, preferred.weight + leases.weight);
     let lease_cost_pre_tax = leases.cost.unwrap_or(kd);
-    Ok(Common {
-        adjusted,
+    Ok(Shared {
         vasicek_prior,
-        peers: terms,
-        cost_of_debt,
+        cost_of_debt_pre_tax: kd,
         target: CapitalStructure {
             debt_to_equity: target_de,
             tax_rate: spec.tax_rate,
@@ -215,6 +240,44 @@ fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, Chain
             lease_cost_pre_tax,
             lease_cost_after_tax: cost::after_tax_cost_of_debt(lease_cost_pre_tax, spec.tax_rate),
         },
+    })
+}
+
+/// The median D/E (with the case's debt measure) of the peers that enter the aggregates: the
+/// one peer-median target, from the terms in `buffers`.
+fn peer_median_debt_to_equity(peers: &[PeerCapital], buffers: &mut Buffers) -> f64 {
+    buffers.values.clear();
+    buffers.values.extend(
+        peers
+            .iter()
+            .zip(&buffers.terms)
+            .filter(|(peer, _)| peer.included)
+            .map(|(_, terms)| terms.debt_to_equity),
+    );
+    stats::location_in(
+        stats::Aggregation::Median,
+        &buffers.values,
+        &[],
+        0.0,
+        &mut buffers.sorted,
+    )
+}
+
+/// [`shared`] with the vectors and the cost-of-debt record the chain's outputs keep.
+fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
+    let mut buffers = Buffers::default();
+    let shared = shared(spec, peers, &mut buffers)?;
+    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+        .map_err(ChainError::CostOfDebt)?;
+    debug_assert_eq!(
+        cost_of_debt.pre_tax.to_bits(),
+        shared.cost_of_debt_pre_tax.to_bits()
+    );
+    Ok(Common {
+        adjusted: buffers.adjusted,
+        peers: buffers.terms,
+        cost_of_debt,
+        shared,
     })
 }
 
@@ -236,16 +299,17 @@ pub fn chain(
     if checks == Checks::Enforce {
         check_debt_betas(spec, &common, &comparison[chosen])?;
     }
+    let shared = common.shared;
     Ok(Chain {
         adjusted: common.adjusted,
-        vasicek_prior: common.vasicek_prior,
+        vasicek_prior: shared.vasicek_prior,
         peers: common.peers,
         cost_of_debt: common.cost_of_debt,
-        cost_of_debt_after_tax: common.cost_of_debt_after_tax,
-        target_debt_to_equity: common.target.debt_to_equity,
-        subject_debt_beta: common.subject_debt.debt_beta,
-        weights: common.weights,
-        other: common.other,
+        cost_of_debt_after_tax: shared.cost_of_debt_after_tax,
+        target_debt_to_equity: shared.target.debt_to_equity,
+        subject_debt_beta: shared.subject_debt.debt_beta,
+        weights: shared.weights,
+        other: shared.other,
         comparison,
         chosen,
     })
@@ -254,25 +318,47 @@ pub fn chain(
 /// The WACC under the spec's formula alone, by the same steps as [`chain`]: what a Monte Carlo
 /// draw needs.
 pub fn wacc_only(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<f64, ChainError> {
-    let common = common(spec, peers)?;
-    // The included peers' betas and weights straight into the two vectors the statistic reads:
-    // a draw allocates little, and each figure is computed by the same per-peer functions.
-    let mut betas = Vec::with_capacity(peers.len());
-    let mut caps = Vec::with_capacity(peers.len());
-    for ((peer, adjusted), terms) in peers.iter().zip(&common.adjusted).zip(&common.peers) {
+    wacc_with(spec, peers, &mut Buffers::default())
+}
+
+/// [`wacc_only`] in `buffers`, which a run of draws reuses: the per-peer figures, the included
+/// peers' betas and weights and the sorted copy the statistic reads all live there.
+pub fn wacc_with(
+    spec: &CapitalSpec<'_>,
+    peers: &[PeerCapital],
+    buffers: &mut Buffers,
+) -> Result<f64, ChainError> {
+    let shared = shared(spec, peers, buffers)?;
+    let Buffers {
+        adjusted,
+        terms,
+        values,
+        market_caps,
+        sorted,
+        ..
+    } = buffers;
+    values.clear();
+    market_caps.clear();
+    for ((peer, adjusted), terms) in peers.iter().zip(adjusted.iter()).zip(terms.iter()) {
         if !peer.included {
             continue;
         }
         let unlevered = unlever(spec.formula, peer, adjusted, terms);
-        betas.push(if spec.operations_beta {
+        values.push(if spec.operations_beta {
             operations_beta(unlevered, terms)
         } else {
             unlevered
         });
-        caps.push(peer.equity_value);
+        market_caps.push(peer.equity_value);
     }
-    let aggregate = stats::location(spec.aggregation, &betas, &caps, spec.trim_fraction);
-    Ok(equity_and_wacc(spec, spec.formula, aggregate, &common).2)
+    let aggregate = stats::location_in(
+        spec.aggregation,
+        values,
+        market_caps,
+        spec.trim_fraction,
+        sorted,
+    );
+    Ok(equity_and_wacc(spec, spec.formula, aggregate, &shared).2)
 }
 
 /// Each peer's figures through unlevering under the spec's formula.
@@ -292,13 +378,12 @@ pub fn unlevered_only(
     spec: &CapitalSpec<'_>,
     peers: &[PeerCapital],
 ) -> Result<UnleveredPeers, ChainError> {
-    let (adjusted, _) = adjust(spec, peers)?;
-    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+    let mut buffers = Buffers::default();
+    adjust(spec, peers, &mut buffers)?;
+    let adjusted = buffers.adjusted;
+    let kd = debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
-    let terms: Vec<PeerTerms> = peers
-        .iter()
-        .map(|p| peer_terms(spec, p, cost_of_debt.pre_tax))
-        .collect();
+    let terms: Vec<PeerTerms> = peers.iter().map(|p| peer_terms(spec, p, kd)).collect();
     let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
     let operations = operations_betas(&unlevered, &terms);
     Ok(UnleveredPeers {
@@ -406,8 +491,9 @@ fn included_values(peers: &[PeerCapital], values: &[f64]) -> (Vec<f64>, Vec<f64>
 }
 
 /// The dispersion and every location statistic of one figure per peer over the included peers:
-/// the one place peers are aggregated (the unlevered betas, and the D/E of a peer-median target).
-pub fn aggregate(
+/// how the unlevered betas are aggregated (the peer-median target D/E is
+/// [`peer_median_debt_to_equity`], the same median by `stats::quantile_sorted`).
+fn aggregate(
     peers: &[PeerCapital],
     values: &[f64],
     trim_fraction: f64,
@@ -424,7 +510,7 @@ fn equity_and_wacc(
     spec: &CapitalSpec<'_>,
     formula: Formula,
     unlevered: f64,
-    common: &Common,
+    common: &Shared,
 ) -> (f64, f64, f64) {
     let relevered = formula.relever_with(unlevered, common.target, common.subject_debt);
     let cost_of_equity = cost::capm_cost_of_equity(
@@ -471,7 +557,8 @@ fn formula_outcome(
     } else {
         (plain_dispersion, plain_statistics, aggregate_of_unlevered)
     };
-    let (relevered, cost_of_equity, wacc) = equity_and_wacc(spec, formula, unlevered, common);
+    let (relevered, cost_of_equity, wacc) =
+        equity_and_wacc(spec, formula, unlevered, &common.shared);
     FormulaOutcome {
         formula,
         formula_source: formula.citation(),
@@ -505,9 +592,10 @@ fn check_debt_betas(
             return Err(ChainError::PeerDebtBeta(i, terms.debt_beta, adjusted.used));
         }
     }
-    if common.subject_debt.debt_beta > chosen.unlevered {
+    let subject_debt_beta = common.shared.subject_debt.debt_beta;
+    if subject_debt_beta > chosen.unlevered {
         return Err(ChainError::SubjectDebtBeta(
-            common.subject_debt.debt_beta,
+            subject_debt_beta,
             chosen.unlevered,
         ));
     }

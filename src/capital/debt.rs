@@ -78,30 +78,59 @@ pub fn cost_of_debt(
         table: None,
         row: None,
         risk_free_rate: None,
-        pre_tax: debt.cost_pre_tax.unwrap_or(f64::NAN),
+        pre_tax: pre_tax_given(debt),
     };
-    let (row, coverage) = match debt.source {
-        DebtSource::Given => return Ok(given),
+    Ok(match spread_row(debt, table)? {
+        None => given,
+        Some((row, coverage)) => CostOfDebtRecord {
+            interest_coverage: coverage,
+            table: table.cloned(),
+            row: Some(row.clone()),
+            risk_free_rate: Some(risk_free),
+            pre_tax: risk_free + row.spread,
+            ..given
+        },
+    })
+}
+
+/// The figure of [`cost_of_debt`] alone, by the same lookup and sum, without copying the table
+/// into a record: what each Monte Carlo draw needs.
+pub fn pre_tax_cost_of_debt(
+    debt: &DebtSettings,
+    table: Option<&SpreadTable>,
+    risk_free: f64,
+) -> std::result::Result<f64, String> {
+    Ok(match spread_row(debt, table)? {
+        None => pre_tax_given(debt),
+        Some((row, _)) => risk_free + row.spread,
+    })
+}
+
+/// The given yield (source `given`; validated to be there).
+fn pre_tax_given(debt: &DebtSettings) -> f64 {
+    debt.cost_pre_tax.unwrap_or(f64::NAN)
+}
+
+/// The table row the source reads, with the interest coverage it was found by; `None` for a
+/// given yield.
+fn spread_row<'a>(
+    debt: &DebtSettings,
+    table: Option<&'a SpreadTable>,
+) -> std::result::Result<Option<(&'a SpreadRow, Option<f64>)>, String> {
+    match debt.source {
+        DebtSource::Given => Ok(None),
         DebtSource::Rating => {
             let table = table.expect("a rating table is read for source = rating");
             let rating = debt.rating.as_deref().expect("validated");
-            (rating_row(table, rating)?, None)
+            Ok(Some((rating_row(table, rating)?, None)))
         }
         DebtSource::Coverage => {
             let table = table.expect("a coverage table is read for source = coverage");
             let coverage =
                 debt.ebit.expect("validated") / debt.interest_expense.expect("validated");
-            (coverage_row(table, coverage)?, Some(coverage))
+            Ok(Some((coverage_row(table, coverage)?, Some(coverage))))
         }
-    };
-    Ok(CostOfDebtRecord {
-        interest_coverage: coverage,
-        table: table.cloned(),
-        row: Some(row.clone()),
-        risk_free_rate: Some(risk_free),
-        pre_tax: risk_free + row.spread,
-        ..given
-    })
+    }
 }
 
 /// `[debt]`: the subject's cost of debt.

@@ -95,7 +95,7 @@ pub struct Component {
 }
 
 /// One peer's figures that the chain takes.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PeerCapital {
     pub raw_beta: f64,
     pub beta_std_error: f64,

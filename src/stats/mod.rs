@@ -124,19 +124,42 @@ pub fn location(
     market_caps: &[f64],
     trim_fraction: f64,
 ) -> f64 {
+    location_in(
+        aggregation,
+        values,
+        market_caps,
+        trim_fraction,
+        &mut Vec::new(),
+    )
+}
+
+/// [`location`] with the sorted copy in `sorted`, a buffer the caller reuses.
+pub fn location_in(
+    aggregation: Aggregation,
+    values: &[f64],
+    market_caps: &[f64],
+    trim_fraction: f64,
+    sorted: &mut Vec<f64>,
+) -> f64 {
     match aggregation {
         Aggregation::Median | Aggregation::Mean => {
-            let mut sorted = values.to_vec();
-            sorted.sort_by(f64::total_cmp);
+            sort_into(values, sorted);
             if aggregation == Aggregation::Median {
-                quantile_sorted(&sorted, 0.5)
+                quantile_sorted(sorted, 0.5)
             } else {
                 sorted.iter().sum::<f64>() / sorted.len() as f64
             }
         }
         Aggregation::MarketCapWeighted => weighted_mean(values, market_caps),
-        Aggregation::TrimmedMean => trimmed_mean(values, trim_fraction).0,
+        Aggregation::TrimmedMean => trimmed_mean_in(values, trim_fraction, sorted).0,
     }
+}
+
+/// `values` ascending into `sorted` (cleared first).
+fn sort_into(values: &[f64], sorted: &mut Vec<f64>) {
+    sorted.clear();
+    sorted.extend_from_slice(values);
+    sorted.sort_by(f64::total_cmp);
 }
 
 /// Σ wᵢxᵢ / Σ wᵢ (the textbook weighted arithmetic mean).
@@ -150,8 +173,12 @@ pub fn weighted_mean(values: &[f64], weights: &[f64]) -> f64 {
 /// mean of Tukey (1962, Ann. Math. Statistics 33(1)), with the cut rounded down as in
 /// `scipy.stats.trim_mean`. α in [0, 0.5).
 pub fn trimmed_mean(values: &[f64], fraction: f64) -> (f64, usize) {
-    let mut sorted = values.to_vec();
-    sorted.sort_by(f64::total_cmp);
+    trimmed_mean_in(values, fraction, &mut Vec::new())
+}
+
+/// [`trimmed_mean`] with the sorted copy in `sorted`, a buffer the caller reuses.
+fn trimmed_mean_in(values: &[f64], fraction: f64, sorted: &mut Vec<f64>) -> (f64, usize) {
+    sort_into(values, sorted);
     let cut = (sorted.len() as f64 * fraction).floor() as usize;
     let kept = &sorted[cut..sorted.len() - cut];
     (kept.iter().sum::<f64>() / kept.len() as f64, cut)

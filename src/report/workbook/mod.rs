@@ -168,10 +168,33 @@ impl<'v> Book<'v> {
     pub fn formula(
         &mut self,
         sheet: &mut Sheet,
-        (row, col): (u32, u16),
+        at: (u32, u16),
         formula: &str,
         expect: Expect,
         format: &Format,
+    ) -> Result<()> {
+        self.formula_cell(sheet, at, formula, expect, Some(format))
+    }
+
+    /// [`Book::formula`] in a column whose format was set once for the whole column (a sheet of
+    /// thousands of rows: looking a cell's format up costs more than writing the cell).
+    pub fn column_formula(
+        &mut self,
+        sheet: &mut Sheet,
+        at: (u32, u16),
+        formula: &str,
+        expect: Expect,
+    ) -> Result<()> {
+        self.formula_cell(sheet, at, formula, expect, None)
+    }
+
+    fn formula_cell(
+        &mut self,
+        sheet: &mut Sheet,
+        (row, col): (u32, u16),
+        formula: &str,
+        expect: Expect,
+        format: Option<&Format>,
     ) -> Result<()> {
         let (cached, pointer, scale, value, text) = match &expect {
             Expect::Json(p) => (
@@ -189,10 +212,11 @@ impl<'v> Book<'v> {
             Expect::Text(t) => (t.to_string(), None, 1.0, None, Some(t.to_string())),
         };
         let cell = Formula::new(formula).set_result(cached);
-        sheet
-            .ws
-            .write_formula_with_format(row, col, cell, format)
-            .map_err(xlsx_error)?;
+        match format {
+            Some(format) => sheet.ws.write_formula_with_format(row, col, cell, format),
+            None => sheet.ws.write_formula(row, col, cell),
+        }
+        .map_err(xlsx_error)?;
         self.map.push(MappedCell {
             sheet: sheet.name.to_string(),
             cell: relative(row, col),
@@ -263,16 +287,19 @@ impl<'v> Book<'v> {
         (row, col): (u32, u16),
         date: chrono::NaiveDate,
     ) -> Result<()> {
-        use chrono::Datelike;
-        let cell =
-            ExcelDateTime::from_ymd(date.year() as u16, date.month() as u8, date.day() as u8)
-                .map_err(xlsx_error)?;
         sheet
             .ws
-            .write_datetime_with_format(row, col, &cell, &self.styles.date)
+            .write_datetime_with_format(row, col, &excel_date(date)?, &self.styles.date)
             .map_err(xlsx_error)?;
         Ok(())
     }
+}
+
+/// A calendar date as the spreadsheet's date-time.
+pub(crate) fn excel_date(date: chrono::NaiveDate) -> Result<ExcelDateTime> {
+    use chrono::Datelike;
+    ExcelDateTime::from_ymd(date.year() as u16, date.month() as u8, date.day() as u8)
+        .map_err(xlsx_error)
 }
 
 /// Lays the valuation out and returns the file's bytes with the map of its formula cells.
@@ -285,6 +312,10 @@ fn build(v: &Valuation) -> Result<(Vec<u8>, Vec<MappedCell>)> {
     let capital = capital::sheets(&mut book, &betas, &mut names)?;
     let cover = cover::sheet(&mut book)?;
     let mut workbook = XlsxBook::new();
+    // The fastest deflate level: compressing at the default level was a third of the
+    // workbook's time (callgrind on the demo case: 30 M instructions, 14 M at level 1); the
+    // demo's file grows from 57 kB to 87 kB.
+    workbook.set_zip_compression_level(1);
     // A fixed creation time keeps the bytes a function of the valuation alone.
     let created = ExcelDateTime::parse_from_str(&v.generated_at.replace('Z', ""))
         .or_else(|_| ExcelDateTime::from_ymd(2000, 1, 1))

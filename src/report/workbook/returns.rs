@@ -76,17 +76,28 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
     headers(book, &mut sheet, &market, with_rf)?;
     let mut blocks = Vec::with_capacity(v.peers.len());
     let mut row = 1u32;
+    // Every row has the same formats, so they are set per column and the cells written
+    // without one (a format per cell is looked up by hashing it, the larger part of a cell's
+    // cost on a sheet of thousands of cells).
+    let last_col = market.last().map_or(3, |(_, c)| *c);
+    let styles = &book.styles;
+    let ws = &mut sheet.ws;
+    ws.set_column_format(0, &styles.text).map_err(xlsx_error)?;
+    ws.set_column_format(1, &styles.date).map_err(xlsx_error)?;
+    for col in 2..=last_col {
+        ws.set_column_format(col, &styles.return_pct)
+            .map_err(xlsx_error)?;
+    }
     for (i, returns) in v.returns.iter().enumerate() {
         let first = row;
         let (asset_excess, market_excess) = (returns.asset_excess(), returns.market_excess());
         for j in 0..returns.period_ends.len() {
-            peer_row(book, &mut sheet, row, &v.peers[i].name, returns, j)?;
+            peer_row(&mut sheet, row, &v.peers[i].name, returns, j)?;
             let here = |col: u16| super::relative(row, col);
-            let pct = book.styles.return_pct.clone();
             if with_rf {
                 let formula = format!("={}-{}", here(2), here(4));
                 let expect = Expect::Value(asset_excess[j]);
-                book.formula(&mut sheet, (row, asset), &formula, expect, &pct)?;
+                book.column_formula(&mut sheet, (row, asset), &formula, expect)?;
             }
             for &(offset, col) in &market {
                 if offset == 0 {
@@ -95,18 +106,20 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
                         false => format!("={}", here(3)),
                     };
                     let expect = Expect::Value(market_excess[j]);
-                    book.formula(&mut sheet, (row, col), &formula, expect, &pct)?;
+                    book.column_formula(&mut sheet, (row, col), &formula, expect)?;
                 } else if let Some(shifted) =
                     returns.market_shifted.iter().find(|s| s.offset == offset)
                 {
-                    book.number(&mut sheet, (row, col), shifted.returns[j], &pct)?;
+                    sheet
+                        .ws
+                        .write_number(row, col, shifted.returns[j])
+                        .map_err(xlsx_error)?;
                 }
             }
             row += 1;
         }
         blocks.push((first, row - 1));
     }
-    let last_col = market.last().map_or(3, |(_, c)| *c);
     sheet.ws.set_freeze_panes(1, 2).map_err(xlsx_error)?;
     let last_row = row.saturating_sub(1).max(1);
     sheet
@@ -159,22 +172,25 @@ fn headers(book: &Book, sheet: &mut Sheet, market: &[(i32, u16)], with_rf: bool)
     Ok(())
 }
 
-/// The peer, the period end and the raw returns of one row (the risk-free rate too).
+/// The peer, the period end and the raw returns of one row (the risk-free rate too), in the
+/// columns' own formats.
 fn peer_row(
-    book: &Book,
     sheet: &mut Sheet,
     row: u32,
     name: &str,
     returns: &crate::market::sampling::AlignedReturns,
     j: usize,
 ) -> Result<()> {
-    let pct = book.styles.return_pct.clone();
-    book.text(sheet, (row, 0), name, &book.styles.text.clone())?;
-    book.date(sheet, (row, 1), returns.period_ends[j])?;
-    book.number(sheet, (row, 2), returns.asset[j], &pct)?;
-    book.number(sheet, (row, 3), returns.market[j], &pct)?;
+    let ws = &mut sheet.ws;
+    ws.write_string(row, 0, name).map_err(xlsx_error)?;
+    ws.write_datetime(row, 1, super::excel_date(returns.period_ends[j])?)
+        .map_err(xlsx_error)?;
+    ws.write_number(row, 2, returns.asset[j])
+        .map_err(xlsx_error)?;
+    ws.write_number(row, 3, returns.market[j])
+        .map_err(xlsx_error)?;
     if let Some(rf) = &returns.risk_free {
-        book.number(sheet, (row, 4), rf[j], &pct)?;
+        ws.write_number(row, 4, rf[j]).map_err(xlsx_error)?;
     }
     Ok(())
 }
