@@ -3,8 +3,9 @@
 # file that differs, the run's timestamp aside. Used to prove that a refactoring changed no figure:
 #   scripts/compare-outputs.sh OLD_BINARY NEW_BINARY
 # Build OLD_BINARY from the revision before the change (e.g. in a `git worktree`), NEW_BINARY from
-# the working tree. Exits 1 when any file differs. A workbook is compared by the XML of its parts
-# (so its compression does not count), the charts under figures/ file by file.
+# the working tree. Exits 1 when any file differs. A workbook is compared cell by cell as openpyxl
+# reads it (so neither its compression nor how a format is attached counts; needs
+# `pip install openpyxl`), the charts under figures/ file by file.
 set -euo pipefail
 old=$1 new=$2
 root=$(cd "$(dirname "$0")/.." && pwd)
@@ -46,13 +47,21 @@ combos=(
   "conversion.currency=USD conversion.inflation_case=0.02 conversion.inflation_output=0.035"
   "uncertainty.equity_risk_premium=[0.045,0.065] uncertainty.risk_free_rate=[0.03,0.045]"
 )
-# The file's text with the run's timestamp replaced; a workbook's parts one after another.
+# The file's text with the run's timestamp replaced; a workbook as what a reader sees of each
+# cell (value or formula, number format, font, fill, note), read back with openpyxl.
 normalised() {
   if [[ $1 == *.xlsx ]]; then
-    python3 -c 'import sys, zipfile
-z = zipfile.ZipFile(sys.argv[1])
-for n in sorted(z.namelist()):
-    sys.stdout.write(n + "\n" + z.read(n).decode("utf-8", "replace") + "\n")' "$1"
+    python3 -c 'import sys, openpyxl
+book = openpyxl.load_workbook(sys.argv[1])
+print(sorted(book.defined_names.keys()))
+for sheet in book.worksheets:
+    print("sheet", sheet.title)
+    for row in sheet.iter_rows():
+        for c in row:
+            if c.value is None and c.comment is None:
+                continue
+            print(c.coordinate, repr(c.value), c.number_format, c.font.b, c.font.color and
+                  c.font.color.rgb, c.fill.fgColor.rgb, c.comment and c.comment.text)' "$1"
   else
     cat "$1"
   fi | sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z?/TIMESTAMP/g'
