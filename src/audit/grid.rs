@@ -7,7 +7,7 @@
 
 use super::case_error;
 use crate::case::Metric;
-use crate::case::{with_overrides, TargetSource};
+use crate::case::{TargetSource, Variants};
 use crate::error::{Error, Result};
 pub use crate::valuation::analyses::{Axis, Grid};
 use crate::valuation::{
@@ -130,7 +130,8 @@ pub fn grid(
     let mut progress = crate::progress::Progress::new("grid cells", total as u64);
     let mut cells = Vec::with_capacity(rows.values.len());
     // A cell is the case's own when its overrides leave the resolved case unchanged.
-    let own = toml::Value::try_from(&inputs.case.settings).ok();
+    let variants = Variants::new(&inputs.case)?;
+    let own = toml::Value::Table(variants.own().clone());
     let mut base_cell = None;
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
@@ -145,7 +146,7 @@ pub fn grid(
                     other => other.to_string(),
                 },
             };
-            let case = with_overrides(&inputs.case, &assignments).map_err(in_cell)?;
+            let case = variants.with(&assignments).map_err(in_cell)?;
             if !crate::case::sources::same_data(&case.settings, &inputs.case.settings) {
                 return Err(case_error(
                     inputs,
@@ -156,8 +157,7 @@ pub fn grid(
                 ));
             }
             if base_cell.is_none()
-                && own.is_some()
-                && toml::Value::try_from(&case.settings).ok() == own
+                && toml::Value::try_from(&case.settings).ok().as_ref() == Some(&own)
             {
                 base_cell = Some([r, c]);
             }

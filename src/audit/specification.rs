@@ -7,7 +7,7 @@
 //! row equals `hurdle run` with the same `--set` values. A row the data or settings cannot
 //! support says why instead of failing the run.
 
-use crate::case::{label, with_overrides, Case};
+use crate::case::{label, Case, Variants};
 use crate::error::Result;
 use crate::market::sampling::Frequency;
 use crate::valuation::analyses::Specification;
@@ -21,10 +21,11 @@ const WINDOW_YEARS: [u32; 3] = [2, 3, 5];
 /// not one of the nine).
 pub fn range(inputs: &Inputs, estimates: &PeerEstimates, point: f64) -> Result<Vec<Specification>> {
     let case = &inputs.case;
+    let variants = Variants::new(case)?;
     let mut rows = Vec::with_capacity(FREQUENCIES.len() * WINDOW_YEARS.len() + 1);
     for frequency in FREQUENCIES {
         for years in WINDOW_YEARS {
-            rows.push(row(inputs, estimates, frequency, years));
+            rows.push(row(inputs, &variants, estimates, (frequency, years)));
         }
     }
     if !rows.iter().any(|r| r.case_choice) {
@@ -47,9 +48,9 @@ pub fn range(inputs: &Inputs, estimates: &PeerEstimates, point: f64) -> Result<V
 /// One row: the overrides, then the WACC or the reason there is none.
 fn row(
     inputs: &Inputs,
+    variants: &Variants<'_>,
     estimates: &PeerEstimates,
-    frequency: Frequency,
-    years: u32,
+    (frequency, years): (Frequency, u32),
 ) -> Specification {
     let case = &inputs.case;
     let mut overrides = vec![
@@ -66,7 +67,7 @@ fn row(
             "beta.min_observations={}",
             scaled_minimum(case, frequency, years)
         ));
-        let variant = with_overrides(case, &overrides).map_err(|e| e.to_string())?;
+        let variant = variants.with(&overrides).map_err(|e| e.to_string())?;
         // Only the WACC is read, so a re-estimation skips the rolling betas.
         let estimated = if estimates.fit(&variant) {
             std::borrow::Cow::Borrowed(estimates)

@@ -137,30 +137,59 @@ pub fn label<T: serde::Serialize>(value: &T) -> String {
 /// like a case read from disk. The sensitivity grid builds each cell this way, so a cell is the
 /// same computation as a run with the same `--set` values.
 pub fn with_overrides(case: &Case, extra: &[String]) -> Result<Case> {
-    let case_error = |message: String| Error::Case {
+    Variants::new(case)?.with(extra)
+}
+
+/// A case's settings serialised once, for many sets of overrides (the grid's cells, the
+/// specification range's rows): [`Variants::with`] is [`with_overrides`] without serialising
+/// the case again for each set.
+pub struct Variants<'a> {
+    case: &'a Case,
+    table: toml::Table,
+}
+
+impl<'a> Variants<'a> {
+    pub fn new(case: &'a Case) -> Result<Variants<'a>> {
+        let toml::Value::Table(table) = toml::Value::try_from(&case.settings)
+            .map_err(|e| case_error(case, format!("cannot re-serialise the case: {e}")))?
+        else {
+            unreachable!("a struct serialises to a table");
+        };
+        Ok(Variants { case, table })
+    }
+
+    /// The case's own settings as a TOML table.
+    pub fn own(&self) -> &toml::Table {
+        &self.table
+    }
+
+    /// The case with `extra` applied, validated like a case read from disk.
+    pub fn with(&self, extra: &[String]) -> Result<Case> {
+        let case = self.case;
+        let mut table = self.table.clone();
+        for assignment in extra {
+            apply_override(&mut table, assignment)?;
+        }
+        renamed::check(&table).map_err(|m| case_error(case, m))?;
+        let settings = CaseFile::deserialize(toml::Value::Table(table))
+            .map_err(|e| case_error(case, format!("with {}: {}", extra.join(", "), e.message())))?;
+        validate(&settings).map_err(|m| case_error(case, m))?;
+        let mut overrides = case.overrides.clone();
+        overrides.extend(extra.iter().cloned());
+        Ok(Case {
+            settings,
+            path: case.path.clone(),
+            sha256: case.sha256.clone(),
+            overrides,
+        })
+    }
+}
+
+fn case_error(case: &Case, message: String) -> Error {
+    Error::Case {
         file: case.path.clone(),
         message,
-    };
-    let toml::Value::Table(mut table) = toml::Value::try_from(&case.settings)
-        .map_err(|e| case_error(format!("cannot re-serialise the case: {e}")))?
-    else {
-        unreachable!("a struct serialises to a table");
-    };
-    for assignment in extra {
-        apply_override(&mut table, assignment)?;
     }
-    renamed::check(&table).map_err(case_error)?;
-    let settings = CaseFile::deserialize(toml::Value::Table(table))
-        .map_err(|e| case_error(format!("with {}: {}", extra.join(", "), e.message())))?;
-    validate(&settings).map_err(case_error)?;
-    let mut overrides = case.overrides.clone();
-    overrides.extend(extra.iter().cloned());
-    Ok(Case {
-        settings,
-        path: case.path.clone(),
-        sha256: case.sha256.clone(),
-        overrides,
-    })
 }
 
 /// Reads, overrides and validates a case file. `overrides` are `dotted.key=value` strings.

@@ -38,6 +38,23 @@ fn line_of(text: &str, offset: usize) -> usize {
 /// The first float in a TOML value tree that is NaN or infinite, with its dotted key path
 /// (array-of-table entries by index, `peer.0.debt`, as `--set` writes them).
 pub(crate) fn first_non_finite(value: &toml::Value, path: String) -> Found<f64> {
+    // The common case, every number finite, is answered without building a path per value.
+    if all_finite(value) {
+        return None;
+    }
+    first_non_finite_at(value, path)
+}
+
+fn all_finite(value: &toml::Value) -> bool {
+    match value {
+        toml::Value::Float(x) => x.is_finite(),
+        toml::Value::Array(items) => items.iter().all(all_finite),
+        toml::Value::Table(table) => table.values().all(all_finite),
+        _ => true,
+    }
+}
+
+fn first_non_finite_at(value: &toml::Value, path: String) -> Found<f64> {
     match value {
         toml::Value::Float(x) if !x.is_finite() => Some((path, *x)),
         toml::Value::Array(items) => items.iter().enumerate().find_map(|(i, item)| {
@@ -45,11 +62,11 @@ pub(crate) fn first_non_finite(value: &toml::Value, path: String) -> Found<f64> 
                 toml::Value::Table(_) => format!("{path}.{i}"),
                 _ => format!("{path}[{i}]"),
             };
-            first_non_finite(item, child)
+            first_non_finite_at(item, child)
         }),
         toml::Value::Table(table) => table
             .iter()
-            .find_map(|(key, item)| first_non_finite(item, join(&path, key))),
+            .find_map(|(key, item)| first_non_finite_at(item, join(&path, key))),
         _ => None,
     }
 }
@@ -57,6 +74,32 @@ pub(crate) fn first_non_finite(value: &toml::Value, path: String) -> Found<f64> 
 /// The same over a serialised result (a minijinja value tree, which keeps NaN and infinity
 /// where JSON would write `null`).
 pub(crate) fn first_non_finite_in(value: &minijinja::Value, path: String) -> Found<f64> {
+    if all_finite_in(value) {
+        return None;
+    }
+    first_non_finite_within(value, path)
+}
+
+fn all_finite_in(value: &minijinja::Value) -> bool {
+    use minijinja::value::ValueKind;
+    match value.kind() {
+        ValueKind::Number => f64::try_from(value.clone()).map_or(true, f64::is_finite),
+        ValueKind::Seq | ValueKind::Map => value.try_iter().map_or(true, |mut items| {
+            if value.kind() == ValueKind::Seq {
+                items.all(|item| all_finite_in(&item))
+            } else {
+                items.all(|key| {
+                    value
+                        .get_item(&key)
+                        .map_or(true, |item| all_finite_in(&item))
+                })
+            }
+        }),
+        _ => true,
+    }
+}
+
+fn first_non_finite_within(value: &minijinja::Value, path: String) -> Found<f64> {
     use minijinja::value::ValueKind;
     match value.kind() {
         ValueKind::Number => {
@@ -67,10 +110,10 @@ pub(crate) fn first_non_finite_in(value: &minijinja::Value, path: String) -> Fou
             .try_iter()
             .ok()?
             .enumerate()
-            .find_map(|(i, item)| first_non_finite_in(&item, format!("{path}[{i}]"))),
+            .find_map(|(i, item)| first_non_finite_within(&item, format!("{path}[{i}]"))),
         ValueKind::Map => value.try_iter().ok()?.find_map(|key| {
             let item = value.get_item(&key).ok()?;
-            first_non_finite_in(&item, join(&path, &key.to_string()))
+            first_non_finite_within(&item, join(&path, &key.to_string()))
         }),
         _ => None,
     }
