@@ -178,26 +178,30 @@ fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<
 /// one) and the peers in order. Each wide table is read (and hashed) once, however many series
 /// it holds.
 pub fn read_series(case: &Case) -> Result<(DataFile, Option<DataFile>, Vec<DataFile>)> {
+    use rayon::prelude::*;
     let settings = &case.settings;
+    let keys = series_keys(settings);
     let mut tables: BTreeMap<&str, PriceTable> = BTreeMap::new();
-    let mut files = Vec::new();
-    for keys in series_keys(settings) {
-        let file = match (keys.source, keys.column) {
-            (Some(source), Some(column)) => {
-                if !tables.contains_key(source) {
-                    let spec = &settings.sources[source];
-                    let table = PriceTable::read(
-                        &spec.file,
-                        &case.resolve(&spec.file),
-                        spec.sheet.as_deref(),
-                        spec.date_column.as_deref(),
-                    )?;
-                    tables.insert(source, table);
-                }
-                tables[source]
-                    .series(&keys.role, column, keys.kind)
-                    .map_err(|e| name_the_key(e, &keys.key))?
-            }
+    for source in keys.iter().filter_map(|k| k.column.and(k.source)) {
+        if !tables.contains_key(source) {
+            let spec = &settings.sources[source];
+            let table = PriceTable::read(
+                &spec.file,
+                &case.resolve(&spec.file),
+                spec.sheet.as_deref(),
+                spec.date_column.as_deref(),
+            )?;
+            tables.insert(source, table);
+        }
+    }
+    // The files are read and parsed side by side; the first error in key order is reported,
+    // whichever thread met it first.
+    let files: Vec<Result<DataFile>> = keys
+        .par_iter()
+        .map(|keys| match (keys.source, keys.column) {
+            (Some(source), Some(column)) => tables[source]
+                .series(&keys.role, column, keys.kind)
+                .map_err(|e| name_the_key(e, &keys.key)),
             _ => read_series_file(
                 &keys.role,
                 keys.file,
@@ -205,11 +209,10 @@ pub fn read_series(case: &Case) -> Result<(DataFile, Option<DataFile>, Vec<DataF
                 keys.date_column,
                 keys.value_column,
                 keys.kind,
-            )?,
-        };
-        files.push(file);
-    }
-    let mut files = files.into_iter();
+            ),
+        })
+        .collect();
+    let mut files = files.into_iter().collect::<Result<Vec<_>>>()?.into_iter();
     let index = files.next().expect("a case always has an index");
     let risk_free = if settings.market.risk_free_series.is_some() {
         files.next()

@@ -8,10 +8,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::report::figures::{self, report::Report, FigureFile};
 use hurdle::report::format::{fixed, label, percent};
-use hurdle::report::workbook::Workbook;
-use hurdle::report::{self, csv::PeersCsv, csv::ReturnsCsv, json::Json, memo::Memo, Render};
+use hurdle::report::{self, memo::Memo};
 use hurdle::valuation::Valuation;
 
 use super::CaseArgs;
@@ -47,23 +45,8 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let figures = if args.no_figures {
-        Vec::new()
-    } else {
-        figures::draw_all(&valuation)?
-    };
-    let memo = memo.with_figures(figures::index(&figures));
-    let report = Report {
-        memo: &memo,
-        figures: &figures,
-    };
-    let files: Vec<FigureFile> = figures.iter().map(FigureFile).collect();
-    let mut outputs: Vec<&dyn Render> = vec![&memo, &Json, &PeersCsv, &ReturnsCsv, &Workbook];
-    if !args.no_figures {
-        outputs.extend(files.iter().map(|f| f as &dyn Render));
-        outputs.push(&report);
-    }
-    let written = report::write_all(&out, &valuation, &outputs, &reads)?;
+    let rendered = report::render_run(&valuation, memo, !args.no_figures)?;
+    let written = report::staging::write_outputs(&out, &rendered, &reads)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());

@@ -37,12 +37,63 @@ pub fn write_all(
     outputs: &[&dyn Render],
     reads: &[crate::case::FileRead],
 ) -> Result<Vec<PathBuf>> {
-    // Each output is rendered on its own (the workbook, the report and the charts take the
-    // longest), so they render side by side; the files keep the order given.
+    staging::write_outputs(dir, &render_all(valuation, outputs)?, reads)
+}
+
+/// A rendered output: its file name and contents.
+pub type Rendered = (String, Vec<u8>);
+
+/// Renders `outputs` side by side (the workbook, the report and the charts take the longest);
+/// the files keep the order given.
+pub fn render_all(valuation: &Valuation, outputs: &[&dyn Render]) -> Result<Vec<Rendered>> {
     use rayon::prelude::*;
-    let rendered = outputs
+    outputs
         .par_iter()
         .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
-        .collect::<Result<Vec<_>>>()?;
-    staging::write_outputs(dir, &rendered, reads)
+        .collect()
+}
+
+/// Every file `hurdle run` writes, rendered: `memo.md`, `result.json`, `peers.csv`,
+/// `returns.csv`, `workbook.xlsx`, and with `figures` the charts and `report.html`. Two strands
+/// run side by side: the tables and the workbook; and the charts, then the memo that links them,
+/// then the report that converts that memo (rendered once) and inlines the charts.
+pub fn render_run(valuation: &Valuation, memo: memo::Memo, figures: bool) -> Result<Vec<Rendered>> {
+    let tables: [&dyn Render; 4] = [
+        &json::Json,
+        &csv::PeersCsv,
+        &csv::ReturnsCsv,
+        &workbook::Workbook,
+    ];
+    let (visual, tables) = rayon::join(
+        || render_visual(valuation, memo, figures),
+        || render_all(valuation, &tables),
+    );
+    let (memo, visual) = visual?;
+    let mut files = vec![memo];
+    files.extend(tables?);
+    files.extend(visual);
+    Ok(files)
+}
+
+/// The memo, then the charts and the report when `with_figures`.
+fn render_visual(
+    valuation: &Valuation,
+    memo: memo::Memo,
+    with_figures: bool,
+) -> Result<(Rendered, Vec<Rendered>)> {
+    let drawn = match with_figures {
+        true => figures::draw_all(valuation)?,
+        false => Vec::new(),
+    };
+    let memo = memo.with_figures(figures::index(&drawn));
+    let text = memo.render(valuation)?;
+    let mut files: Vec<Rendered> = drawn
+        .iter()
+        .map(|figure| (figure.file_name.clone(), figure.svg.clone().into_bytes()))
+        .collect();
+    if with_figures {
+        let report = figures::report::page(&String::from_utf8_lossy(&text), &drawn);
+        files.push(("report.html".to_string(), report.into_bytes()));
+    }
+    Ok(((memo.file_name().to_string(), text), files))
 }

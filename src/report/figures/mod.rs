@@ -24,7 +24,6 @@ pub mod uncertainty;
 use serde::Serialize;
 
 use crate::error::Result;
-use crate::report::Render;
 use crate::valuation::Valuation;
 
 /// The folder, inside the output folder, that holds the charts.
@@ -61,23 +60,26 @@ pub struct Figure {
 /// betas, each peer's regression, the rolling betas, then the sensitivity grid, the Monte Carlo
 /// histogram and the reconciliation waterfall when the valuation holds them.
 pub fn draw_all(valuation: &Valuation) -> Result<Vec<Figure>> {
-    let mut figures = vec![betas::draw(valuation)?];
+    use rayon::prelude::*;
+    // Each chart is drawn on its own, so they are drawn side by side, kept in this order.
+    type Draw<'a> = Box<dyn Fn() -> Result<Figure> + Send + Sync + 'a>;
+    let mut draws: Vec<Draw> = vec![Box::new(|| betas::draw(valuation))];
     for index in 0..valuation.peers.len() {
-        figures.push(regression::draw(valuation, index)?);
+        draws.push(Box::new(move || regression::draw(valuation, index)));
     }
     if valuation.rolling.iter().any(|points| !points.is_empty()) {
-        figures.push(stability::draw(valuation)?);
+        draws.push(Box::new(|| stability::draw(valuation)));
     }
     if let Some(grid) = &valuation.sensitivity {
-        figures.push(sensitivity::draw(valuation, grid)?);
+        draws.push(Box::new(move || sensitivity::draw(valuation, grid)));
     }
     if let Some(uncertainty) = &valuation.uncertainty {
-        figures.push(uncertainty::draw(uncertainty)?);
+        draws.push(Box::new(move || uncertainty::draw(uncertainty)));
     }
     if let Some(bridge) = &valuation.reconciliation {
-        figures.push(reconciliation::draw(bridge)?);
+        draws.push(Box::new(move || reconciliation::draw(bridge)));
     }
-    Ok(figures)
+    draws.par_iter().map(|draw| draw()).collect()
 }
 
 /// A link to a chart, as the memo template sees it.
@@ -121,19 +123,6 @@ pub fn index(figures: &[Figure]) -> Index {
         }
     }
     index
-}
-
-/// One chart as an output file.
-pub struct FigureFile<'a>(pub &'a Figure);
-
-impl Render for FigureFile<'_> {
-    fn file_name(&self) -> &str {
-        &self.0.file_name
-    }
-
-    fn render(&self, _valuation: &Valuation) -> Result<Vec<u8>> {
-        Ok(self.0.svg.clone().into_bytes())
-    }
 }
 
 /// A file-name part from a peer's name: lower-case ASCII letters and digits, other runs of

@@ -10,16 +10,6 @@
 
 use super::markdown::{self, Block};
 use super::Figure;
-use crate::error::Result;
-use crate::report::memo::Memo;
-use crate::report::Render;
-use crate::valuation::Valuation;
-
-/// The report renderer: the memo it converts and the charts it inlines.
-pub struct Report<'a> {
-    pub memo: &'a Memo,
-    pub figures: &'a [Figure],
-}
 
 /// The cautions every report ends with, used when the memo's template has none of its own.
 const CAUTIONS: &str = "<section class=\"cautions\" id=\"s-cautions\"><h2 id=\"s-cautions-h\">Cautions</h2><ul>\
@@ -28,17 +18,6 @@ const CAUTIONS: &str = "<section class=\"cautions\" id=\"s-cautions\"><h2 id=\"s
 <li><strong>Inputs as supplied.</strong> Market data, capital-structure figures, rates and premiums were supplied by the user and not verified by the tool; verify each against its source before relying on the result.</li>\
 <li><strong>Not advice.</strong> This is not investment, tax, legal or accounting advice nor a fairness opinion; defer to the applicable standards and to qualified professionals.</li>\
 </ul></section>";
-
-impl Render for Report<'_> {
-    fn file_name(&self) -> &str {
-        "report.html"
-    }
-
-    fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
-        let memo = String::from_utf8_lossy(&self.memo.render(valuation)?).into_owned();
-        Ok(page(&memo, self.figures).into_bytes())
-    }
-}
 
 /// The HTML page of a rendered memo with `figures`.
 pub fn page(memo: &str, figures: &[Figure]) -> String {
