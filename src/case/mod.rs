@@ -171,9 +171,15 @@ impl<'a> Variants<'a> {
             apply_override(&mut table, assignment)?;
         }
         renamed::check(&table).map_err(|m| case_error(case, m))?;
-        let settings = CaseFile::deserialize(toml::Value::Table(table))
+        let table = toml::Value::Table(table);
+        // The table is what the settings serialise to, so its numbers are theirs; the check's
+        // error is reported after the parser's, as `validate` would.
+        let finite = sanity::check_finite_table(&table);
+        let settings = CaseFile::deserialize(table)
             .map_err(|e| case_error(case, format!("with {}: {}", extra.join(", "), e.message())))?;
-        validate(&settings).map_err(|m| case_error(case, m))?;
+        finite
+            .and_then(|()| validate::validate_finite(&settings))
+            .map_err(|m| case_error(case, m))?;
         let mut overrides = case.overrides.clone();
         overrides.extend(extra.iter().cloned());
         Ok(Case {

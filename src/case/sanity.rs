@@ -41,13 +41,24 @@ pub const YEARS: (i32, i32) = (1800, 2199);
 /// Largest relative tolerance of `verify`: looser, it stops being a reproduction check.
 pub const MAX_TOLERANCE: f64 = 1e-6;
 
-/// Range checks on a whole case (after overrides) that its keys' own ranges do not cover.
-/// Called first by `case::validate`, so a non-finite value is named before any arithmetic.
-pub fn check_case(case: &CaseFile) -> std::result::Result<(), String> {
+/// Every number of a case (after overrides) finite. Called first by `case::validate`, so a
+/// non-finite value is named before any arithmetic.
+pub fn check_finite(case: &CaseFile) -> std::result::Result<(), String> {
     let table = toml::Value::try_from(case).map_err(|e| e.to_string())?;
-    if let Some((key, value)) = text::first_non_finite(&table, String::new()) {
-        return Err(format!("{key} = {value}: {}", text::NOT_A_NUMBER));
+    check_finite_table(&table)
+}
+
+/// [`check_finite`] over the case's settings already serialised (a what-if's table).
+pub fn check_finite_table(table: &toml::Value) -> std::result::Result<(), String> {
+    match text::first_non_finite(table, String::new()) {
+        Some((key, value)) => Err(format!("{key} = {value}: {}", text::NOT_A_NUMBER)),
+        None => Ok(()),
     }
+}
+
+/// Range checks on a whole case (after overrides) that its keys' own ranges do not cover, once
+/// its numbers are known to be finite ([`check_finite`]).
+pub fn check_case(case: &CaseFile) -> std::result::Result<(), String> {
     check_paths(case)?;
     check_dates(case)?;
     check_counts(case)?;

@@ -89,6 +89,13 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
 /// Range checks a type cannot express, section by section. The message names the key and the
 /// offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    super::sanity::check_finite(case)?;
+    validate_finite(case)
+}
+
+/// [`validate`] for settings whose numbers the caller has already found finite (a what-if
+/// checks the table it deserialises, which saves serialising the case once more).
+pub fn validate_finite(case: &CaseFile) -> std::result::Result<(), String> {
     super::sanity::check_case(case)?;
     validate_case_and_market(case)?;
     validate_window(case)?;
