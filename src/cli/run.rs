@@ -45,8 +45,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let rendered = report::render_run(&valuation, memo, !args.no_figures)?;
-    let written = report::staging::write_outputs(&out, &rendered, &reads)?;
+    let stage = report::staging::Stage::begin(&out, &reads)?;
+    let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
+    let written = stage.commit(&names)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());

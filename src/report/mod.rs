@@ -53,11 +53,19 @@ pub fn render_all(valuation: &Valuation, outputs: &[&dyn Render]) -> Result<Vec<
         .collect()
 }
 
-/// Every file `hurdle run` writes, rendered: `memo.md`, `result.json`, `peers.csv`,
-/// `returns.csv`, `workbook.xlsx`, and with `figures` the charts and `report.html`. Two strands
-/// run side by side: the tables and the workbook; and the charts, then the memo that links them,
-/// then the report that converts that memo (rendered once) and inlines the charts.
-pub fn render_run(valuation: &Valuation, memo: memo::Memo, figures: bool) -> Result<Vec<Rendered>> {
+/// Renders every file `hurdle run` writes into `stage` and returns their names in the order
+/// they are listed: `memo.md`, `result.json`, `peers.csv`, `returns.csv`, `workbook.xlsx`, and
+/// with `figures` the charts and `report.html`. Two strands run side by side: the tables and the
+/// workbook; and the charts, then the memo that links them, then the report that converts that
+/// memo (rendered once) and inlines the charts. Each file goes to the stage as soon as it is
+/// rendered, so its flush to disk overlaps the rendering of the others.
+pub fn render_run(
+    valuation: &Valuation,
+    memo: memo::Memo,
+    figures: bool,
+    stage: &staging::Stage,
+) -> Result<Vec<String>> {
+    use rayon::prelude::*;
     let tables: [&dyn Render; 4] = [
         &json::Json,
         &csv::PeersCsv,
@@ -65,35 +73,49 @@ pub fn render_run(valuation: &Valuation, memo: memo::Memo, figures: bool) -> Res
         &workbook::Workbook,
     ];
     let (visual, tables) = rayon::join(
-        || render_visual(valuation, memo, figures),
-        || render_all(valuation, &tables),
+        || render_visual(valuation, memo, figures, stage),
+        || {
+            tables
+                .par_iter()
+                .map(|output| {
+                    let name = output.file_name().to_string();
+                    stage.add(&name, &output.render(valuation)?)?;
+                    Ok(name)
+                })
+                .collect::<Result<Vec<_>>>()
+        },
     );
     let (memo, visual) = visual?;
-    let mut files = vec![memo];
-    files.extend(tables?);
-    files.extend(visual);
-    Ok(files)
+    let mut names = vec![memo];
+    names.extend(tables?);
+    names.extend(visual);
+    Ok(names)
 }
 
-/// The memo, then the charts and the report when `with_figures`.
+/// The memo, then the charts and the report when `with_figures`, each into `stage`; returns the
+/// memo's name and the others'.
 fn render_visual(
     valuation: &Valuation,
     memo: memo::Memo,
     with_figures: bool,
-) -> Result<(Rendered, Vec<Rendered>)> {
+    stage: &staging::Stage,
+) -> Result<(String, Vec<String>)> {
     let drawn = match with_figures {
         true => figures::draw_all(valuation)?,
         false => Vec::new(),
     };
+    let mut names = Vec::with_capacity(drawn.len() + 1);
+    for figure in &drawn {
+        stage.add(&figure.file_name, figure.svg.as_bytes())?;
+        names.push(figure.file_name.clone());
+    }
     let memo = memo.with_figures(figures::index(&drawn));
     let text = memo.render(valuation)?;
-    let mut files: Vec<Rendered> = drawn
-        .iter()
-        .map(|figure| (figure.file_name.clone(), figure.svg.clone().into_bytes()))
-        .collect();
     if with_figures {
         let report = figures::report::page(&String::from_utf8_lossy(&text), &drawn);
-        files.push(("report.html".to_string(), report.into_bytes()));
+        stage.add("report.html", report.as_bytes())?;
+        names.push("report.html".to_string());
     }
-    Ok(((memo.file_name().to_string(), text), files))
+    stage.add(memo.file_name(), &text)?;
+    Ok((memo.file_name().to_string(), names))
 }

@@ -1,18 +1,22 @@
 //! Writing outputs safely: never over an input, all or nothing, nothing left on failure.
 //!
 //! Every command that writes files hands them here together with the files the run read.
-//! [`write_outputs`] refuses a target that is one of those inputs (naming it), or a folder in the
-//! way; writes every file into a temporary folder beside the output folder; and only when all
-//! are written (and no stop was requested) moves them into place, keeping each replaced file
-//! until the last move succeeded so that a failed move puts everything back. Folders it had to
-//! create are removed again on failure. A second Ctrl-C exits at once through [`abandon`], which
-//! removes the temporary folders, unless the moves are under way (they take milliseconds).
+//! A [`Stage`] refuses a target that is one of those inputs (naming it), or a folder in the way;
+//! writes every file into a temporary folder beside the output folder, each flushed to disk on a
+//! thread of its own as soon as it is written (so a run's flushes overlap the rendering of its
+//! later files); and only when all are written and flushed (and no stop was requested) moves
+//! them into place, keeping each replaced file until the last move succeeded so that a failed
+//! move puts everything back. Folders it had to create are removed again on failure.
+//! [`write_outputs`] does all of it for files already rendered. A second Ctrl-C exits at once
+//! through [`abandon`], which removes the temporary folders, unless the moves are under way (they
+//! take milliseconds).
 
 use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
+use std::thread::JoinHandle;
 
 pub use crate::case::{files_read, FileRead};
 use crate::error::{Error, Result};
@@ -29,16 +33,178 @@ pub fn write_outputs(
     files: &[(String, Vec<u8>)],
     reads: &[FileRead],
 ) -> Result<Vec<PathBuf>> {
-    check_targets(dir, files, reads)?;
-    let created = create_missing(dir)?;
-    let result = stage_and_move(dir, files);
-    if result.is_err() {
-        // Only folders this call created, deepest first, and only if they are empty again.
-        for folder in created.iter().rev() {
+    let stage = Stage::begin(dir, reads)?;
+    for (name, _) in files {
+        stage.check_target(name)?;
+    }
+    for (name, bytes) in files {
+        stage.add(name, bytes)?;
+    }
+    let names: Vec<String> = files.iter().map(|(name, _)| name.clone()).collect();
+    stage.commit(&names)
+}
+
+/// One group of output files on its way into `dir`.
+pub struct Stage {
+    dir: PathBuf,
+    /// The files the run reads, canonical, with their roles.
+    inputs: Vec<(PathBuf, String)>,
+    /// Folders created for the outputs (outermost first), removed again on failure.
+    created: Vec<PathBuf>,
+    staging: Option<tempfile::TempDir>,
+    /// Each staged file's flush, on a thread of its own.
+    flushes: Mutex<Vec<(PathBuf, JoinHandle<std::io::Result<()>>)>>,
+}
+
+impl Stage {
+    /// Checks the output folder, creates it when missing and makes the temporary folder.
+    pub fn begin(dir: &Path, reads: &[FileRead]) -> Result<Stage> {
+        if dir.exists() && !dir.is_dir() {
+            return Err(refusal(
+                dir,
+                "is a file, not a folder; give a folder for the outputs".into(),
+            ));
+        }
+        let inputs = reads
+            .iter()
+            .filter_map(|(path, role)| Some((fs::canonicalize(path).ok()?, role.clone())))
+            .collect();
+        let created = create_missing(dir)?;
+        let mut stage = Stage {
+            dir: dir.to_path_buf(),
+            inputs,
+            created,
+            staging: None,
+            flushes: Mutex::new(Vec::new()),
+        };
+        let staging = staging_folder(dir)?;
+        if let Ok(mut folders) = STAGING.lock() {
+            folders.push(staging.path().to_path_buf());
+        }
+        stage.staging = Some(staging);
+        Ok(stage)
+    }
+
+    fn staging(&self) -> &Path {
+        self.staging
+            .as_ref()
+            .expect("set by begin until the stage ends")
+            .path()
+    }
+
+    /// Refuses a target that is an input or a folder.
+    pub fn check_target(&self, name: &str) -> Result<()> {
+        let target = self.dir.join(name);
+        let Ok(canonical) = fs::canonicalize(&target) else {
+            return Ok(()); // Nothing there yet, so nothing to overwrite.
+        };
+        if let Some((_, role)) = self.inputs.iter().find(|(input, _)| *input == canonical) {
+            return Err(refusal(
+                &self.dir,
+                format!(
+                    "writing {name} there would overwrite {}, which this run reads ({role}); \
+                     choose another output folder",
+                    target.display()
+                ),
+            ));
+        }
+        if canonical.is_dir() {
+            return Err(refusal(
+                &self.dir,
+                format!(
+                    "{} is a folder; hurdle writes a file of that name and never replaces a folder",
+                    target.display()
+                ),
+            ));
+        }
+        Ok(())
+    }
+
+    /// Writes one file (a name may hold a subfolder, `figures/…`) into the temporary folder and
+    /// starts its flush; callable from several threads at once.
+    pub fn add(&self, name: &str, bytes: &[u8]) -> Result<()> {
+        self.check_target(name)?;
+        let path = self.staging().join(name);
+        if let Some(folder) = path.parent() {
+            fs::create_dir_all(folder).map_err(io_error(folder, "cannot create"))?;
+        }
+        let mut file = fs::File::create(&path).map_err(io_error(&path, "cannot create"))?;
+        file.write_all(bytes)
+            .map_err(io_error(&path, "cannot write"))?;
+        // The flush waits on the disk, not on a core: a thread of its own, so twenty files
+        // cost about one disk round trip and the caller goes on rendering.
+        let flush = std::thread::spawn(move || file.sync_all());
+        self.flushes
+            .lock()
+            .map_err(|_| stopped_flush(&path))?
+            .push((path, flush));
+        Ok(())
+    }
+
+    /// Waits for every flush, then moves the files named in `names` (each added) into place, in
+    /// that order; returns their paths.
+    pub fn commit(mut self, names: &[String]) -> Result<Vec<PathBuf>> {
+        self.wait_for_flushes()?;
+        crate::progress::check_stop()?;
+        MOVING.store(true, Ordering::SeqCst);
+        let moved = move_into_place(self.staging(), &self.dir, names);
+        MOVING.store(false, Ordering::SeqCst);
+        let moved = moved?;
+        discard_previous(self.staging(), names);
+        self.created.clear(); // They hold the outputs now.
+        Ok(moved)
+    }
+
+    fn wait_for_flushes(&self) -> Result<()> {
+        let flushes = match self.flushes.lock() {
+            Ok(mut flushes) => std::mem::take(&mut *flushes),
+            Err(_) => return Err(stopped_flush(self.staging())),
+        };
+        let mut outcome = Ok(());
+        for (path, flush) in flushes {
+            let flushed = match flush.join() {
+                Ok(result) => result.map_err(io_error(&path, "cannot flush")),
+                Err(_) => Err(stopped_flush(&path)),
+            };
+            if outcome.is_ok() {
+                outcome = flushed;
+            }
+        }
+        outcome
+    }
+}
+
+impl Drop for Stage {
+    /// Removes the temporary folder and, when the stage did not commit, the folders it created
+    /// (deepest first, and only if they are empty again).
+    fn drop(&mut self) {
+        let _ = self.wait_for_flushes();
+        if let Some(staging) = self.staging.take() {
+            let path = staging.path().to_path_buf();
+            drop(staging);
+            if let Ok(mut folders) = STAGING.lock() {
+                folders.retain(|f| *f != path);
+            }
+        }
+        for folder in self.created.iter().rev() {
             let _ = fs::remove_dir(folder);
         }
     }
-    result
+}
+
+fn stopped_flush(path: &Path) -> Error {
+    Error::Io {
+        path: path.to_path_buf(),
+        action: "cannot flush",
+        source: std::io::Error::other("a flushing thread stopped"),
+    }
+}
+
+fn refusal(dir: &Path, message: String) -> Error {
+    Error::Argument {
+        option: format!("output folder {}", dir.display()),
+        message,
+    }
 }
 
 /// Removes every temporary folder in use; for the binary's forced exit on a second Ctrl-C.
@@ -61,43 +227,6 @@ fn io_error<'a>(path: &'a Path, action: &'static str) -> impl FnOnce(std::io::Er
         action,
         source,
     }
-}
-
-/// Refuses a target that is an input, a folder in the way, or an output "folder" that is a file.
-fn check_targets(dir: &Path, files: &[(String, Vec<u8>)], reads: &[FileRead]) -> Result<()> {
-    let refuse = |message: String| Error::Argument {
-        option: format!("output folder {}", dir.display()),
-        message,
-    };
-    if dir.exists() && !dir.is_dir() {
-        return Err(refuse(
-            "is a file, not a folder; give a folder for the outputs".into(),
-        ));
-    }
-    let inputs: Vec<(PathBuf, &str)> = reads
-        .iter()
-        .filter_map(|(path, role)| Some((fs::canonicalize(path).ok()?, role.as_str())))
-        .collect();
-    for (name, _) in files {
-        let target = dir.join(name);
-        let Ok(canonical) = fs::canonicalize(&target) else {
-            continue; // Nothing there yet, so nothing to overwrite.
-        };
-        if let Some((_, role)) = inputs.iter().find(|(input, _)| *input == canonical) {
-            return Err(refuse(format!(
-                "writing {name} there would overwrite {}, which this run reads ({role}); choose \
-                 another output folder",
-                target.display()
-            )));
-        }
-        if canonical.is_dir() {
-            return Err(refuse(format!(
-                "{} is a folder; hurdle writes a file of that name and never replaces a folder",
-                target.display()
-            )));
-        }
-    }
-    Ok(())
 }
 
 /// Creates `dir` and its missing parents, returning the folders created (outermost first).
@@ -137,69 +266,13 @@ fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
         .map_err(io_error(dir, "cannot create a temporary folder beside"))
 }
 
-fn stage_and_move(dir: &Path, files: &[(String, Vec<u8>)]) -> Result<Vec<PathBuf>> {
-    let staging = staging_folder(dir)?;
-    let registered = staging.path().to_path_buf();
-    if let Ok(mut folders) = STAGING.lock() {
-        folders.push(registered.clone());
-    }
-    let result = write_staged(staging.path(), files).and_then(|()| {
-        crate::progress::check_stop()?;
-        MOVING.store(true, Ordering::SeqCst);
-        let moved = move_into_place(staging.path(), dir, files);
-        MOVING.store(false, Ordering::SeqCst);
-        moved
-    });
-    if result.is_ok() {
-        discard_previous(staging.path(), files);
-    }
-    if let Ok(mut folders) = STAGING.lock() {
-        folders.retain(|f| *f != registered);
-    }
-    result
-}
-
-/// Writes every file into the staging folder (a name may hold a subfolder, `figures/…`), then
-/// flushes them all at once: one thread per file, since the flushes wait on the disk, not on a
-/// core, and twenty sequential flushes would cost twenty disk round trips.
-fn write_staged(staging: &Path, files: &[(String, Vec<u8>)]) -> Result<()> {
-    let mut written = Vec::with_capacity(files.len());
-    for (name, bytes) in files {
-        let path = staging.join(name);
-        if let Some(folder) = path.parent() {
-            fs::create_dir_all(folder).map_err(io_error(folder, "cannot create"))?;
-        }
-        let mut file = fs::File::create(&path).map_err(io_error(&path, "cannot create"))?;
-        file.write_all(bytes)
-            .map_err(io_error(&path, "cannot write"))?;
-        written.push((path, file));
-    }
-    std::thread::scope(|scope| {
-        let flushes: Vec<_> = written
-            .iter()
-            .map(|(path, file)| {
-                scope.spawn(move || file.sync_all().map_err(io_error(path, "cannot flush")))
-            })
-            .collect();
-        flushes.into_iter().try_for_each(|flush| {
-            flush.join().unwrap_or_else(|_| {
-                Err(Error::Io {
-                    path: staging.to_path_buf(),
-                    action: "cannot flush the files in",
-                    source: std::io::Error::other("a flushing thread stopped"),
-                })
-            })
-        })
-    })
-}
-
 /// Removes the replaced files kept in `staging/previous`, side by side: freeing a file's blocks
 /// waits on the file system's journal (a fraction of a millisecond each), not on a core. What is
 /// left (a file that could not be removed) goes with the staging folder.
-fn discard_previous(staging: &Path, files: &[(String, Vec<u8>)]) {
+fn discard_previous(staging: &Path, names: &[String]) {
     let previous = staging.join("previous");
     std::thread::scope(|scope| {
-        for (name, _) in files {
+        for name in names {
             let path = previous.join(name);
             scope.spawn(move || {
                 let _ = fs::remove_file(path);
@@ -210,11 +283,7 @@ fn discard_previous(staging: &Path, files: &[(String, Vec<u8>)]) {
 
 /// Moves each staged file onto its target, keeping the file it replaces in `staging/previous`;
 /// on the first failure undoes every move and puts the replaced files back.
-fn move_into_place(
-    staging: &Path,
-    dir: &Path,
-    files: &[(String, Vec<u8>)],
-) -> Result<Vec<PathBuf>> {
+fn move_into_place(staging: &Path, dir: &Path, names: &[String]) -> Result<Vec<PathBuf>> {
     let previous = staging.join("previous");
     fs::create_dir(&previous).map_err(io_error(&previous, "cannot create"))?;
     let mut moved: Vec<PathBuf> = Vec::new();
@@ -238,7 +307,7 @@ fn move_into_place(
         moved.push(target);
         Ok(())
     };
-    for (name, _) in files {
+    for name in names {
         if let Err(error) = step(name) {
             for target in &moved {
                 let _ = fs::remove_file(target);
@@ -319,12 +388,21 @@ mod tests {
         let out = root.path().join("out");
         fs::create_dir(&out).unwrap();
         fs::write(out.join("a.txt"), "old a").unwrap();
-        let staging = tempfile::tempdir_in(root.path()).unwrap();
-        write_staged(staging.path(), &files()).unwrap();
-        fs::remove_file(staging.path().join("b.txt")).unwrap();
-        assert!(move_into_place(staging.path(), &out, &files()).is_err());
+        let stage = Stage::begin(&out, &[]).unwrap();
+        for (name, bytes) in files() {
+            stage.add(&name, &bytes).unwrap();
+        }
+        stage.wait_for_flushes().unwrap();
+        fs::remove_file(stage.staging().join("b.txt")).unwrap();
+        let names: Vec<String> = files().into_iter().map(|(name, _)| name).collect();
+        assert!(stage.commit(&names).is_err());
         assert_eq!(fs::read(out.join("a.txt")).unwrap(), b"old a");
         assert_eq!(listing(&out), vec!["a.txt"]);
+        assert_eq!(
+            listing(root.path()),
+            vec!["out"],
+            "no temporary folder is left"
+        );
     }
 
     #[test]
