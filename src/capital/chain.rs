@@ -601,3 +601,124 @@ fn check_debt_betas(
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::beta::Adjustment;
+    use crate::capital::cost::CountryMethod;
+    use crate::capital::debt::{DebtSettings, DebtSource};
+    use crate::capital::leverage::DebtMeasure;
+    use crate::stats::Aggregation;
+
+    fn debt() -> DebtSettings {
+        DebtSettings {
+            source: DebtSource::Given,
+            cost_pre_tax: Some(0.06),
+            rating: None,
+            rating_table: None,
+            ebit: None,
+            interest_expense: None,
+            coverage_table: None,
+        }
+    }
+
+    fn spec(debt: &DebtSettings) -> CapitalSpec<'_> {
+        CapitalSpec {
+            adjustment: Adjustment::Blume,
+            blume_weight: 0.67,
+            vasicek_prior: None,
+            formula: Formula::Hamada,
+            aggregation: Aggregation::Median,
+            trim_fraction: 0.0,
+            operations_beta: false,
+            debt_measure: DebtMeasure::Gross,
+            debt_beta_source: DebtBetaSource::None,
+            debt_beta: 0.0,
+            target: TargetSpec::DebtToEquity(0.4),
+            tax_rate: 0.25,
+            risk_free_rate: 0.04,
+            equity_risk_premium: 0.05,
+            premiums: PremiumSpec {
+                size: 0.0,
+                country: 0.0,
+                company_specific: 0.0,
+                country_method: CountryMethod::Flat,
+                country_exposure: 1.0,
+            },
+            preferred: Component::default(),
+            leases: Component::default(),
+            debt,
+            debt_table: None,
+        }
+    }
+
+    fn peer(raw_beta: f64, debt: f64, included: bool) -> PeerCapital {
+        PeerCapital {
+            raw_beta,
+            beta_std_error: 0.2,
+            equity_value: 100.0,
+            debt,
+            cash: 0.0,
+            tax_rate: 0.25,
+            own_debt_beta: None,
+            own_cost_of_debt: None,
+            included,
+        }
+    }
+
+    // Worked by hand: Blume (1971) with weight 0.67 gives 1.134, 0.933 and 1.0335; Hamada
+    // (1972), βU = βL / (1 + (1 − t)·D/E) at t = 25% and D/E 0.5, 0.2, 0.3, gives 0.824727…,
+    // 0.811304… and 0.843673…, median 1.134 / 1.375; relevered at D/E 0.4: × 1.3; CAPM at
+    // rf 4% and ERP 5%; WACC = (Ke + 0.4 · 6% · 0.75) / 1.4 = 0.0797194805… The tolerance
+    // allows a few roundings of numbers near 0.08 (each about 1e-17).
+    #[test]
+    fn wacc_of_a_worked_example() {
+        let debt = debt();
+        let peers = [
+            peer(1.2, 50.0, true),
+            peer(0.9, 20.0, true),
+            peer(1.05, 30.0, true),
+        ];
+        let unlevered = 1.134 / 1.375;
+        let cost_of_equity = 0.04 + unlevered * 1.3 * 0.05;
+        let expected = (cost_of_equity + 0.4 * 0.06 * 0.75) / 1.4;
+        let wacc = wacc_only(&spec(&debt), &peers).unwrap();
+        assert!((wacc - expected).abs() < 1e-15, "{wacc} vs {expected}");
+        assert!((wacc - 0.079_719_480_519).abs() < 1e-12, "{wacc}");
+        let full = chain(&spec(&debt), &peers, Checks::Enforce).unwrap();
+        assert_eq!(full.outcome().wacc.to_bits(), wacc.to_bits());
+    }
+
+    // Buffers carried from one draw to the next must not leak into it: peer sets of other
+    // lengths, exclusions and targets give, bit for bit, what fresh buffers give.
+    #[test]
+    fn reused_buffers_give_what_fresh_ones_give() {
+        let debt = debt();
+        let mut buffers = Buffers::default();
+        let sets = [
+            vec![peer(1.2, 50.0, true), peer(0.9, 20.0, true)],
+            vec![
+                peer(1.4, 10.0, true),
+                peer(0.7, 80.0, false),
+                peer(1.0, 40.0, true),
+                peer(1.1, 0.0, true),
+                peer(0.95, 25.0, true),
+            ],
+            vec![peer(0.8, 35.0, true)],
+        ];
+        for (k, peers) in sets.iter().enumerate() {
+            for target in [TargetSpec::DebtToEquity(0.4), TargetSpec::PeerMedian] {
+                let spec = CapitalSpec {
+                    target,
+                    aggregation: [Aggregation::Median, Aggregation::TrimmedMean][k % 2],
+                    trim_fraction: 0.2,
+                    ..spec(&debt)
+                };
+                let reused = wacc_with(&spec, peers, &mut buffers).unwrap();
+                let fresh = wacc_only(&spec, peers).unwrap();
+                assert_eq!(reused.to_bits(), fresh.to_bits(), "set {k}, {target:?}");
+            }
+        }
+    }
+}
