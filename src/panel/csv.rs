@@ -18,7 +18,7 @@ use polars::prelude::*;
 use sha2::{Digest, Sha256};
 
 use super::cells::{block_dates, push_long, push_wide, DateCells};
-use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, Source};
+use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source};
 use crate::error::{Error, Result};
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
@@ -38,8 +38,13 @@ struct Plan {
     wide: Vec<(String, u32)>,
 }
 
-/// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes.
-pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, String)> {
+/// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes. Securities
+/// whose rows are complete go to `hook` as each block is pushed (long layout).
+pub(super) fn read(
+    source: &Source,
+    columns: &PanelColumns,
+    hook: Option<SecurityHook<'_>>,
+) -> Result<(Rows, String)> {
     std::thread::scope(|scope| {
         let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
         let mut frames_in = Some(frames_in);
@@ -50,6 +55,7 @@ pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, Str
         let scanned = scan_blocks(source, &block_bytes, |block, first| {
             if first {
                 let mut rows = Rows::default();
+                rows.runs.watching = hook.is_some() && columns.layout == PanelLayout::Long;
                 // Room for every row at once, estimated from the first block's line ends, so
                 // the columns never grow by copying.
                 let lines = block.iter().filter(|&&b| b == b'\n').count();
@@ -59,8 +65,9 @@ pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, Str
                 let line: usize = made.header.iter().map(|n| n.len() + 1).sum();
                 block_bytes.store(BLOCK_BYTES.max(BLOCK_ROWS * line), Ordering::Relaxed);
                 let (receiver, wide) = (frames_in.take().expect("once"), made.wide.clone());
-                pusher =
-                    Some(scope.spawn(move || push_frames(rows, receiver, &wide, source, columns)));
+                pusher = Some(
+                    scope.spawn(move || push_frames(rows, receiver, &wide, source, columns, hook)),
+                );
                 plan = Some(made);
             }
             let plan = plan.as_ref().expect("set by the first block");
@@ -92,9 +99,11 @@ fn push_frames(
     wide: &[(String, u32)],
     source: &Source,
     columns: &PanelColumns,
+    hook: Option<SecurityHook<'_>>,
 ) -> Result<Rows> {
     for (frame, first_row) in frames {
         push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
+        rows.hand_out(hook);
     }
     Ok(rows)
 }

@@ -14,6 +14,9 @@ pub mod attributes;
 mod cells;
 mod csv;
 mod parquet;
+mod runs;
+
+pub use runs::SecurityHook;
 
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -102,6 +105,7 @@ pub struct Panel {
     offsets: Vec<usize>,
     dates: Vec<NaiveDate>,
     prices: Vec<f64>,
+    whole_runs: bool,
 }
 
 impl Panel {
@@ -126,6 +130,12 @@ impl Panel {
             .ok()
     }
 
+    /// Whether each security's rows formed one run in the file (no security came back after
+    /// another), so that what a [`SecurityHook`] was handed is each security's whole series.
+    pub fn whole_runs(&self) -> bool {
+        self.whole_runs
+    }
+
     /// Security `i`'s prices as a borrowed series, ascending in date.
     pub fn series(&self, i: usize) -> SeriesView<'_> {
         let rows = self.offsets[i]..self.offsets[i + 1];
@@ -139,14 +149,26 @@ impl Panel {
 /// Reads a panel file. `written` is the path as the universe file names it (for the receipt),
 /// `resolved` where it is.
 pub fn read_panel(written: &str, resolved: &Path, columns: &PanelColumns) -> Result<Panel> {
+    read_panel_handing_out(written, resolved, columns, None)
+}
+
+/// [`read_panel`], handing each security of a long file grouped by security with rising dates
+/// to `hook` as soon as its rows are complete (see [`runs`]); valid if the panel read says
+/// [`Panel::whole_runs`].
+pub fn read_panel_handing_out(
+    written: &str,
+    resolved: &Path,
+    columns: &PanelColumns,
+    hook: Option<SecurityHook<'_>>,
+) -> Result<Panel> {
     let format = TableFormat::from_path(resolved, "panel.prices")?;
     let source = Source {
         file: resolved.to_path_buf(),
         format,
     };
     let (rows, sha256) = match format {
-        TableFormat::Csv => csv::read(&source, columns)?,
-        TableFormat::Parquet => parquet::read(&source, columns)?,
+        TableFormat::Csv => csv::read(&source, columns, hook)?,
+        TableFormat::Parquet => parquet::read(&source, columns, hook)?,
     };
     if rows.prices.is_empty() {
         return Err(source.file_error("holds no prices: the panel is empty".into()));
@@ -172,6 +194,7 @@ pub fn read_panel(written: &str, resolved: &Path, columns: &PanelColumns) -> Res
         offsets: grouped.offsets,
         dates: grouped.dates,
         prices: grouped.prices,
+        whole_runs: grouped.whole_runs,
     })
 }
 
@@ -299,6 +322,7 @@ pub(crate) struct Rows {
     pub prices: Vec<f64>,
     pub date_cache: cells::DateCache,
     order: Order,
+    pub runs: runs::Runs,
 }
 
 /// What the rows' order shows so far, watched as they arrive so that grouping can skip whole
@@ -335,6 +359,7 @@ struct Grouped {
     offsets: Vec<usize>,
     dates: Vec<NaiveDate>,
     prices: Vec<f64>,
+    whole_runs: bool,
 }
 
 impl Rows {
@@ -343,6 +368,14 @@ impl Rows {
         self.ids.reserve(rows);
         self.dates.reserve(rows);
         self.prices.reserve(rows);
+    }
+
+    /// Hands the runs finished so far to `hook`, if any (after a block is wholly pushed).
+    pub fn hand_out(&mut self, hook: Option<SecurityHook<'_>>) {
+        if let Some(hook) = hook {
+            let names = &self.dictionary.names;
+            self.runs.hand_out(names, &self.dates, &self.prices, hook);
+        }
     }
 
     pub fn push(&mut self, id: u32, date: NaiveDate, price: f64) {
@@ -358,6 +391,8 @@ impl Rows {
                 order.ascending &= date > last_date;
             } else {
                 order.grouped &= id > last_id;
+                let in_order = order.grouped && order.ascending;
+                self.runs.changed(last_id, self.ids.len(), in_order);
             }
         }
         order.last = Some((id, date));
@@ -377,6 +412,7 @@ impl Rows {
             order: seen,
             ..
         } = self;
+        let whole_runs = seen.grouped;
         let names = dictionary.names;
         let mut counts = vec![0_usize; names.len()];
         for &id in &ids {
@@ -434,6 +470,7 @@ impl Rows {
             offsets,
             dates,
             prices,
+            whole_runs,
         })
     }
 }

@@ -18,6 +18,7 @@ use crate::beta::BetaEstimate;
 use crate::estimate::{self, EstimateError, EstimationSpec, MarketReturns, Window};
 use crate::io::series::{iso_date, SeriesView};
 use crate::market::sampling::{self, DroppedPeriods};
+use crate::panel::Panel;
 
 /// Why a security has no estimate.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
@@ -173,6 +174,55 @@ impl Estimation {
             excess_returns: self.market.excess(),
             sampling_rule: sampling::rule_text(self.spec.frequency),
         }
+    }
+}
+
+/// Securities estimated while the panel was still being read (handed out by the reader as
+/// their rows were complete), with the spec they were estimated under.
+#[derive(Debug, Clone, Default)]
+pub struct EarlyEstimates {
+    spec: Option<(EstimationSpec, bool)>,
+    /// The security, its number of prices, its estimate.
+    found: Vec<(String, usize, SecurityEstimate)>,
+}
+
+impl EarlyEstimates {
+    pub fn new(
+        spec: EstimationSpec,
+        rolling: bool,
+        found: Vec<(String, usize, SecurityEstimate)>,
+    ) -> Self {
+        EarlyEstimates {
+            spec: Some((spec, rolling)),
+            found,
+        }
+    }
+
+    /// One entry per security of `panel`: its early estimate where it holds — the panel's rows
+    /// came in whole runs (so each hand-out was a security's whole series), the spec is the
+    /// one asked for, and the count of prices agrees — else `None`, to be estimated now.
+    pub fn for_panel(
+        &self,
+        panel: &Panel,
+        spec: &EstimationSpec,
+        rolling: bool,
+    ) -> Vec<Option<SecurityEstimate>> {
+        let mut out = vec![None; panel.len()];
+        let same_spec = self
+            .spec
+            .as_ref()
+            .is_some_and(|(s, r)| s == spec && *r == rolling);
+        if !(same_spec && panel.whole_runs()) {
+            return out;
+        }
+        for (security, prices, estimate) in &self.found {
+            if let Some(i) = panel.position(security) {
+                if panel.series(i).values.len() == *prices {
+                    out[i] = Some(estimate.clone());
+                }
+            }
+        }
+        out
     }
 }
 
