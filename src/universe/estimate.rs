@@ -81,7 +81,8 @@ pub struct Estimation {
 
 impl Estimation {
     /// Builds the window of `spec` and samples the index (and the risk-free series) once.
-    /// Without `rolling` the spec's rolling window is set to 0, which computes no windows.
+    /// Without `rolling` the spec's rolling window is set to 0, which computes no windows; the
+    /// case's extras (influence terms, fitted line) are always off.
     pub fn new(
         mut spec: EstimationSpec,
         index: SeriesView<'_>,
@@ -91,6 +92,8 @@ impl Estimation {
         if !rolling {
             spec.rolling.window = 0;
         }
+        // Influence terms and the fitted line serve a case's Monte Carlo and charts only.
+        spec.case_extras = false;
         let window = Window::new(&spec);
         let market = MarketReturns::new(&spec, &window, index, risk_free);
         Estimation {
@@ -110,15 +113,10 @@ impl Estimation {
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
         let min = self.spec.min_observations;
         match estimated {
-            Ok(mut e) => SecurityEstimate {
+            Ok(e) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
                 outcome: Ok(Estimated {
-                    estimate: {
-                        // One influence term per return serves a case's joint Monte Carlo; a
-                        // universe keeps the statistics only (20 kB a security otherwise).
-                        e.estimate.beta_influence = Vec::new();
-                        e.estimate
-                    },
+                    estimate: e.estimate,
                     periods_in_window: e.periods_in_window,
                     stale_share: e.stale_share,
                     flags: e.flags,
