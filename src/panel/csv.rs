@@ -196,13 +196,20 @@ fn shortened(names: &[String]) -> String {
     }
 }
 
-/// Parses one block with the plan's schema.
+/// Parses one block with the plan's schema. A block without a double quote cannot have a
+/// quoted field, so polars is told there is no quote character: its splitter then skips the
+/// quote tracking (about 15% of the parse on the benchmark), and every cell reads the same.
 fn parse(block: &[u8], plan: &Plan, has_header: bool) -> PolarsResult<DataFrame> {
+    let quoted = block.contains(&b'"');
     CsvReadOptions::default()
         .with_has_header(has_header)
         .with_schema(Some(plan.schema.clone()))
         .with_projection(Some(plan.projection.clone()))
         .with_rechunk(false)
+        .map_parse_options(|options| match quoted {
+            true => options,
+            false => options.with_quote_char(None),
+        })
         .into_reader_with_file_handle(Cursor::new(block))
         .finish()
 }
@@ -483,5 +490,34 @@ mod tests {
         assert_eq!(last_record_end(b"a,b\n1,2\n3,"), Some(8));
         assert_eq!(last_record_end(b"a,b\n\"x\ny\",2\n\"z\n"), Some(12));
         assert_eq!(last_record_end(b"no line end"), None);
+    }
+
+    // RFC 4180: quotes only enclose a field; a block parsed without quote tracking (it has no
+    // quote) must read as the same cells quoted, and a quoted separator stays in its field.
+    #[test]
+    fn blocks_without_quotes_read_as_the_same_cells_quoted() {
+        let columns = PanelColumns {
+            layout: PanelLayout::Long,
+            date_column: "date".into(),
+            security_column: "security".into(),
+            price_column: "close".into(),
+        };
+        let source = Source {
+            file: "prices.csv".into(),
+            format: super::super::TableFormat::Csv,
+        };
+        let header = ["date", "security", "close"].map(String::from).to_vec();
+        let plan = plan_for(&source, &columns, header, &mut Rows::default()).unwrap();
+        let plain = parse(b"2026-01-02,A,1.5\n2026-01-05,B C,2\n", &plan, false).unwrap();
+        let quoted = parse(
+            b"\"2026-01-02\",\"A\",1.5\n2026-01-05,\"B C\",\"2\"\n",
+            &plan,
+            false,
+        )
+        .unwrap();
+        assert!(plain.equals_missing(&quoted));
+        let comma = parse(b"2026-01-02,\"A,1\",1.5\n", &plan, false).unwrap();
+        let ids = comma.column("security").unwrap().str().unwrap().clone();
+        assert_eq!(ids.get(0), Some("A,1"));
     }
 }
