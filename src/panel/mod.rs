@@ -384,6 +384,7 @@ impl Rows {
     }
 
     /// A row's id and date; its price is pushed by the caller.
+    #[inline]
     pub fn push_id_and_date(&mut self, id: u32, date: NaiveDate) {
         let order = &mut self.order;
         if let Some((last_id, last_date)) = order.last {

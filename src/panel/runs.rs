@@ -29,7 +29,9 @@ pub(crate) struct Runs {
 
 impl Runs {
     /// A new security's first row is row `row`; `previous` (the last security) ended there.
-    /// `in_order` says whether the file is still grouped with rising dates.
+    /// `in_order` says whether the file is still grouped with rising dates. Once per security,
+    /// so kept out of the per-row path.
+    #[inline(never)]
     pub fn changed(&mut self, previous: u32, row: usize, in_order: bool) {
         if self.watching && in_order {
             self.finished.push((previous, self.start..row));
