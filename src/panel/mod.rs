@@ -177,8 +177,14 @@ pub fn read_panel_handing_out(
         TableFormat::Csv => csv::duplicate_error(&source, columns, &duplicate),
         TableFormat::Parquet => parquet::duplicate_error(&source, columns, &duplicate),
     })?;
-    let first_date = grouped.dates.iter().min().copied().expect("not empty");
-    let last_date = grouped.dates.iter().max().copied().expect("not empty");
+    // Each security's rows are sorted by date: its first and last rows bound it.
+    let bounds = grouped.offsets.windows(2).filter(|w| w[0] < w[1]);
+    let first_date = bounds.clone().map(|w| grouped.dates[w[0]]).min();
+    let last_date = bounds.map(|w| grouped.dates[w[1] - 1]).max();
+    let (first_date, last_date) = (
+        first_date.expect("not empty"),
+        last_date.expect("not empty"),
+    );
     Ok(Panel {
         file: PanelFile {
             path: written.to_string(),
