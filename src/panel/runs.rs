@@ -12,9 +12,10 @@ use std::ops::Range;
 
 use crate::io::series::SeriesView;
 
-/// Called with a security's id and all its rows, ascending in date, while the file is read;
-/// from the thread that moves the cells, so it should hand heavy work on.
-pub type SecurityHook<'a> = &'a (dyn Fn(&str, SeriesView<'_>) + Sync);
+/// Called, while the file is read, with the securities whose rows a block completed: each id
+/// with all its rows, ascending in date. It runs on the thread that moves the cells, so it
+/// should hand heavy work on (one batch per block keeps such hand-offs few).
+pub type SecurityHook<'a> = &'a (dyn Fn(&[(&str, SeriesView<'_>)]) + Sync);
 
 /// The runs of one security's rows that ended while the file was grouped and rising, not yet
 /// handed out.
@@ -45,7 +46,7 @@ impl Runs {
         self.finished.clear();
     }
 
-    /// Hands every finished run to `hook` (names by dictionary index).
+    /// Hands every finished run to `hook` in one batch (names by dictionary index).
     pub fn hand_out(
         &mut self,
         names: &[String],
@@ -53,15 +54,22 @@ impl Runs {
         prices: &[f64],
         hook: SecurityHook<'_>,
     ) {
-        for (id, rows) in self.finished.drain(..) {
-            hook(
-                &names[id as usize],
-                SeriesView {
-                    dates: &dates[rows.clone()],
-                    values: &prices[rows],
-                },
-            );
+        if self.finished.is_empty() {
+            return;
         }
+        let batch: Vec<(&str, SeriesView<'_>)> = self
+            .finished
+            .iter()
+            .map(|(id, rows)| {
+                let series = SeriesView {
+                    dates: &dates[rows.clone()],
+                    values: &prices[rows.clone()],
+                };
+                (names[*id as usize].as_str(), series)
+            })
+            .collect();
+        hook(&batch);
+        self.finished.clear();
     }
 }
 
@@ -76,11 +84,11 @@ mod tests {
 
     fn rows_of(order: &[(&str, u32)]) -> (Vec<(String, Vec<f64>)>, bool) {
         let handed = Mutex::new(Vec::new());
-        let hook = |security: &str, series: SeriesView<'_>| {
-            handed
-                .lock()
-                .unwrap()
-                .push((security.to_string(), series.values.to_vec()));
+        let hook = |batch: &[(&str, SeriesView<'_>)]| {
+            let mut handed = handed.lock().unwrap();
+            for (security, series) in batch {
+                handed.push((security.to_string(), series.values.to_vec()));
+            }
         };
         let mut rows = Rows::default();
         rows.runs.watching = true;

@@ -86,22 +86,31 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
     );
     let found = Mutex::new(Vec::new());
     // A file grouped by security hands each security over as soon as its rows are complete:
-    // it is estimated on rayon's threads while polars parses the later rows.
+    // they are estimated on rayon's threads, one task per block, while polars parses the later
+    // rows.
     let panel = rayon::in_place_scope(|scope| {
         let (estimation, found) = (&estimation, &found);
-        let hook = move |security: &str, series: SeriesView<'_>| {
-            let (security, dates, prices) = (
-                security.to_string(),
-                series.dates.to_vec(),
-                series.values.to_vec(),
-            );
+        let hook = move |batch: &[(&str, SeriesView<'_>)]| {
+            let owned: Vec<(String, Vec<NaiveDate>, Vec<f64>)> = batch
+                .iter()
+                .map(|(security, series)| {
+                    let (dates, prices) = (series.dates.to_vec(), series.values.to_vec());
+                    (security.to_string(), dates, prices)
+                })
+                .collect();
             scope.spawn(move |_| {
-                let estimate = estimation.security(SeriesView {
-                    dates: &dates,
-                    values: &prices,
-                });
+                let estimated: Vec<_> = owned
+                    .into_iter()
+                    .map(|(security, dates, prices)| {
+                        let series = SeriesView {
+                            dates: &dates,
+                            values: &prices,
+                        };
+                        (security, prices.len(), estimation.security(series))
+                    })
+                    .collect();
                 let mut found = found.lock().unwrap_or_else(|e| e.into_inner());
-                found.push((security, prices.len(), estimate));
+                found.extend(estimated);
             });
         };
         read_panel_handing_out(
