@@ -47,7 +47,9 @@ pub struct UniverseInputs {
     pub early: EarlyEstimates,
 }
 
-/// Reads every table the universe file names, resolving paths against its folder.
+/// Reads every table the universe file names, resolving paths against its folder. The
+/// securities of a panel grouped by security are estimated while it is read (kept in
+/// `early`, which [`evaluate`] uses where they hold).
 pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
     let settings = &universe.settings;
     let index_spec = &settings.market.index;
