@@ -86,12 +86,29 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         risk_free.as_ref().map(|f| f.series.view()),
         rolling,
     );
+    let (panel, found) = read_panel_estimating(&universe, &estimation)?;
+    Ok(UniverseInputs {
+        early: EarlyEstimates::new(spec, rolling, found),
+        universe,
+        index,
+        risk_free,
+        panel,
+        attributes,
+    })
+}
+
+/// Reads the panel; the securities of a file grouped by security are estimated while it is
+/// read, and returned with their number of prices.
+fn read_panel_estimating(
+    universe: &Universe,
+    estimation: &Estimation,
+) -> Result<(Panel, Vec<(String, usize, SecurityEstimate)>)> {
     let found = Mutex::new(Vec::new());
     // A file grouped by security hands each security over as soon as its rows are complete:
     // they are estimated on rayon's threads, one task per block, while polars parses the later
     // rows.
     let panel = rayon::in_place_scope(|scope| {
-        let (estimation, found) = (&estimation, &found);
+        let found = &found;
         let hook = move |batch: &[(&str, SeriesView<'_>)]| {
             let owned: Vec<(String, Vec<NaiveDate>, Vec<f64>)> = batch
                 .iter()
@@ -116,21 +133,13 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
             });
         };
         read_panel_handing_out(
-            &settings.panel.prices,
-            &universe.resolve(&settings.panel.prices),
-            &settings.panel.columns(),
+            &universe.settings.panel.prices,
+            &universe.resolve(&universe.settings.panel.prices),
+            &universe.settings.panel.columns(),
             Some(&hook),
         )
     })?;
-    let found = found.into_inner().unwrap_or_else(|e| e.into_inner());
-    Ok(UniverseInputs {
-        early: EarlyEstimates::new(spec, rolling, found),
-        universe,
-        index,
-        risk_free,
-        panel,
-        attributes,
-    })
+    Ok((panel, found.into_inner().unwrap_or_else(|e| e.into_inner())))
 }
 
 /// The tool that produced a result.
