@@ -175,21 +175,19 @@ impl Estimation {
     }
 }
 
+/// A security estimated while the panel was read: its id, its number of prices, its estimate.
+pub type EarlyEstimate = (String, usize, SecurityEstimate);
+
 /// Securities estimated while the panel was still being read (handed out by the reader as
 /// their rows were complete), with the spec they were estimated under.
 #[derive(Debug, Clone, Default)]
 pub struct EarlyEstimates {
     spec: Option<(EstimationSpec, bool)>,
-    /// The security, its number of prices, its estimate.
-    found: Vec<(String, usize, SecurityEstimate)>,
+    found: Vec<EarlyEstimate>,
 }
 
 impl EarlyEstimates {
-    pub fn new(
-        spec: EstimationSpec,
-        rolling: bool,
-        found: Vec<(String, usize, SecurityEstimate)>,
-    ) -> Self {
+    pub fn new(spec: EstimationSpec, rolling: bool, found: Vec<EarlyEstimate>) -> Self {
         EarlyEstimates {
             spec: Some((spec, rolling)),
             found,

@@ -27,7 +27,9 @@ use crate::error::{Error, Result};
 use crate::io::series::{iso_date, read_series_file, DataFile, SeriesView, ValueKind};
 use crate::panel::attributes::{read_attributes, Attributes, AttributesFile};
 use crate::panel::{read_panel_handing_out, Panel, PanelFile};
-use estimate::{EarlyEstimates, Estimation, NotEstimated, SecurityEstimate, WindowRecord};
+use estimate::{
+    EarlyEstimate, EarlyEstimates, Estimation, NotEstimated, SecurityEstimate, WindowRecord,
+};
 use industries::IndustryResult;
 use securities::{security_row, Missing, RowSettings, SecurityResult};
 use settings::{Universe, UniverseFile};
@@ -102,7 +104,7 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
 fn read_panel_estimating(
     universe: &Universe,
     estimation: &Estimation,
-) -> Result<(Panel, Vec<(String, usize, SecurityEstimate)>)> {
+) -> Result<(Panel, Vec<EarlyEstimate>)> {
     let found = Mutex::new(Vec::new());
     // A file grouped by security hands each security over as soon as its rows are complete:
     // they are estimated on rayon's threads, one task per block, while polars parses the later
