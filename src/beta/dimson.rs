@@ -23,6 +23,18 @@ pub fn dimson_beta(
     kind: StdErrors,
     newey_west_lags: usize,
 ) -> Result<BetaEstimate> {
+    dimson_fit(asset, market, shifted, kind, newey_west_lags, true)
+}
+
+/// [`dimson_beta`], the influence terms only when `influence`.
+pub(crate) fn dimson_fit(
+    asset: &[f64],
+    market: &[f64],
+    shifted: &[ShiftedMarket],
+    kind: StdErrors,
+    newey_west_lags: usize,
+    influence: bool,
+) -> Result<BetaEstimate> {
     let mut columns: Vec<(i32, &[f64])> = shifted
         .iter()
         .map(|s| (s.offset, s.returns.as_slice()))
@@ -47,6 +59,7 @@ pub fn dimson_beta(
         &combination,
         &offsets,
         kind,
+        influence,
     ))
 }
 

@@ -16,7 +16,7 @@ use crate::stats;
 pub const POINTS: usize = 25;
 
 /// The fitted line and its band at [`POINTS`] evenly spaced index returns.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, Default, PartialEq, Serialize)]
 pub struct FittedLine {
     /// The confidence level of the band (0.95).
     pub level: f64,

@@ -97,6 +97,18 @@ pub fn estimate_with(
     market: &[f64],
     shifted: &[ShiftedMarket],
 ) -> Result<BetaEstimate> {
+    estimate_with_influence(settings, asset, market, shifted, true)
+}
+
+/// [`estimate_with`]; without `influence` the estimate's `beta_influence` stays empty (it
+/// serves only a case's joint Monte Carlo, and costs a pass over the design).
+pub fn estimate_with_influence(
+    settings: &EstimatorSpec,
+    asset: &[f64],
+    market: &[f64],
+    shifted: &[ShiftedMarket],
+    influence: bool,
+) -> Result<BetaEstimate> {
     let n = asset.len();
     let lags = newey_west_lags(settings, n);
     if let Some(l) = lags {
@@ -118,19 +130,23 @@ pub fn estimate_with(
     }
     let (kind, l) = (settings.std_errors, lags.unwrap_or(0));
     let mut estimate = match settings.method {
-        BetaMethod::Ols => ols_beta_with(asset, market, kind, l)?,
-        BetaMethod::Dimson => dimson::dimson_beta(asset, market, shifted, kind, l)?,
+        BetaMethod::Ols => ols_fit(asset, market, kind, l, influence)?,
+        BetaMethod::Dimson => dimson::dimson_fit(asset, market, shifted, kind, l, influence)?,
         BetaMethod::ScholesWilliams => {
             scholes_williams::scholes_williams_beta(asset, market, shifted, kind, l)?
         }
     };
+    if !influence {
+        estimate.beta_influence = Vec::new();
+    }
     estimate.newey_west_lags = lags;
     Ok(estimate)
 }
 
 /// A [`BetaEstimate`] whose beta is the linear combination `combination · coefficients` of a
 /// fit's coefficients (coefficient 0 the intercept), with its SE from the covariance matrix:
-/// √(cᵀVc). OLS takes c = (0, 1); Dimson sums the market slopes.
+/// √(cᵀVc). OLS takes c = (0, 1); Dimson sums the market slopes. The influence terms are
+/// computed only when `influence`.
 pub(crate) fn from_fit(
     method: BetaMethod,
     fit: &OlsFit,
@@ -138,15 +154,20 @@ pub(crate) fn from_fit(
     combination: &[f64],
     offsets: &[i32],
     kind: StdErrors,
+    influence: bool,
 ) -> BetaEstimate {
     let c = DMatrix::from_column_slice(combination.len(), 1, combination);
     // The beta as a linear function of the returns: weights cᵀ(XᵀX)⁻¹Xᵀ (from R⁻¹, not an inverse).
-    let weights = c.transpose() * &fit.bread * design.transpose();
-    let influence = weights
-        .iter()
-        .zip(&fit.residuals)
-        .map(|(w, e)| w * e)
-        .collect();
+    let influence = if influence {
+        let weights = c.transpose() * &fit.bread * design.transpose();
+        weights
+            .iter()
+            .zip(&fit.residuals)
+            .map(|(w, e)| w * e)
+            .collect()
+    } else {
+        Vec::new()
+    };
     let beta = combination
         .iter()
         .zip(&fit.coefficients)
@@ -260,6 +281,17 @@ pub fn ols_beta_with(
     kind: StdErrors,
     newey_west_lags: usize,
 ) -> Result<BetaEstimate> {
+    ols_fit(asset, market, kind, newey_west_lags, true)
+}
+
+/// [`ols_beta_with`], the influence terms only when `influence`.
+fn ols_fit(
+    asset: &[f64],
+    market: &[f64],
+    kind: StdErrors,
+    newey_west_lags: usize,
+    influence: bool,
+) -> Result<BetaEstimate> {
     let design = design_with_intercept(&[market]);
     let fit = with_std_errors(ols(&design, asset, true)?, &design, kind, newey_west_lags);
     Ok(from_fit(
@@ -269,6 +301,7 @@ pub fn ols_beta_with(
         &[0.0, 1.0],
         &[0],
         kind,
+        influence,
     ))
 }
 

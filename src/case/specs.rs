@@ -44,6 +44,7 @@ pub fn estimation(settings: &CaseFile) -> EstimationSpec {
             stale_share: beta.flag_stale_share,
             exclude: beta.exclude_flags.clone(),
         },
+        case_extras: true,
         rolling: RollingSpec {
             window,
             step: beta.rolling_step,

@@ -35,6 +35,10 @@ pub struct EstimationSpec {
     pub estimator: EstimatorSpec,
     pub flags: FlagRule,
     pub rolling: RollingSpec,
+    /// Whether each estimate carries what only a case uses: every return's influence on the
+    /// beta (the case's joint Monte Carlo) and the fitted line with its band (its charts). A
+    /// whole-market table turns them off (the line is then empty); no statistic changes.
+    pub case_extras: bool,
 }
 
 /// Rolling betas: periods per window, periods between window ends, fewest observations.
@@ -222,11 +226,12 @@ pub fn estimate_security(
         return Err(EstimateError::FlatIndex { periods: n });
     }
     let asset_excess = aligned.asset_excess();
-    let estimate = beta::estimate_with(
+    let estimate = beta::estimate_with_influence(
         &spec.estimator,
         &asset_excess,
         &market_excess,
         &aligned.market_shifted,
+        spec.case_extras,
     )
     .map_err(|e| EstimateError::Estimator(e.to_string()))?;
     let periods_in_window = window.period_ends().len();
@@ -245,12 +250,16 @@ pub fn estimate_security(
             min_observations: spec.rolling.min_observations as usize,
         },
     );
-    let (x_min, x_max) = market_excess
-        .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(low, high), &x| {
-            (low.min(x), high.max(x))
-        });
-    let fitted_line = fitted_line::fitted_line(&estimate, x_min, x_max);
+    let fitted_line = if spec.case_extras {
+        let (x_min, x_max) = market_excess
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(low, high), &x| {
+                (low.min(x), high.max(x))
+            });
+        fitted_line::fitted_line(&estimate, x_min, x_max)
+    } else {
+        FittedLine::default()
+    };
     let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
     let flags = spec.flags.flags(&estimate, periods_in_window, stale_share);
     let excluding_flags = spec.flags.excluding(&flags);

@@ -90,6 +90,8 @@ pub(crate) fn push_long(
         rows.dates.truncate(before);
         rows.prices.truncate(before);
     }
+    // Rows pushed twice could end a run twice: no more hand-outs.
+    rows.runs.stop();
     push_long_checked(rows, dates, securities, prices, first_row, source, columns)
 }
 

@@ -14,6 +14,9 @@ pub mod attributes;
 mod cells;
 mod csv;
 mod parquet;
+mod runs;
+
+pub use runs::SecurityHook;
 
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -102,6 +105,7 @@ pub struct Panel {
     offsets: Vec<usize>,
     dates: Vec<NaiveDate>,
     prices: Vec<f64>,
+    whole_runs: bool,
 }
 
 impl Panel {
@@ -126,6 +130,12 @@ impl Panel {
             .ok()
     }
 
+    /// Whether each security's rows formed one run in the file (no security came back after
+    /// another), so that what a [`SecurityHook`] was handed is each security's whole series.
+    pub fn whole_runs(&self) -> bool {
+        self.whole_runs
+    }
+
     /// Security `i`'s prices as a borrowed series, ascending in date.
     pub fn series(&self, i: usize) -> SeriesView<'_> {
         let rows = self.offsets[i]..self.offsets[i + 1];
@@ -139,14 +149,26 @@ impl Panel {
 /// Reads a panel file. `written` is the path as the universe file names it (for the receipt),
 /// `resolved` where it is.
 pub fn read_panel(written: &str, resolved: &Path, columns: &PanelColumns) -> Result<Panel> {
+    read_panel_handing_out(written, resolved, columns, None)
+}
+
+/// [`read_panel`], handing each security of a long file grouped by security with rising dates
+/// to `hook` as soon as its rows are complete (see [`runs`]); valid if the panel read says
+/// [`Panel::whole_runs`].
+pub fn read_panel_handing_out(
+    written: &str,
+    resolved: &Path,
+    columns: &PanelColumns,
+    hook: Option<SecurityHook<'_>>,
+) -> Result<Panel> {
     let format = TableFormat::from_path(resolved, "panel.prices")?;
     let source = Source {
         file: resolved.to_path_buf(),
         format,
     };
     let (rows, sha256) = match format {
-        TableFormat::Csv => csv::read(&source, columns)?,
-        TableFormat::Parquet => parquet::read(&source, columns)?,
+        TableFormat::Csv => csv::read(&source, columns, hook)?,
+        TableFormat::Parquet => parquet::read(&source, columns, hook)?,
     };
     if rows.prices.is_empty() {
         return Err(source.file_error("holds no prices: the panel is empty".into()));
@@ -155,8 +177,14 @@ pub fn read_panel(written: &str, resolved: &Path, columns: &PanelColumns) -> Res
         TableFormat::Csv => csv::duplicate_error(&source, columns, &duplicate),
         TableFormat::Parquet => parquet::duplicate_error(&source, columns, &duplicate),
     })?;
-    let first_date = grouped.dates.iter().min().copied().expect("not empty");
-    let last_date = grouped.dates.iter().max().copied().expect("not empty");
+    // Each security's rows are sorted by date: its first and last rows bound it.
+    let bounds = grouped.offsets.windows(2).filter(|w| w[0] < w[1]);
+    let first_date = bounds.clone().map(|w| grouped.dates[w[0]]).min();
+    let last_date = bounds.map(|w| grouped.dates[w[1] - 1]).max();
+    let (first_date, last_date) = (
+        first_date.expect("not empty"),
+        last_date.expect("not empty"),
+    );
     Ok(Panel {
         file: PanelFile {
             path: written.to_string(),
@@ -172,6 +200,7 @@ pub fn read_panel(written: &str, resolved: &Path, columns: &PanelColumns) -> Res
         offsets: grouped.offsets,
         dates: grouped.dates,
         prices: grouped.prices,
+        whole_runs: grouped.whole_runs,
     })
 }
 
@@ -299,6 +328,7 @@ pub(crate) struct Rows {
     pub prices: Vec<f64>,
     pub date_cache: cells::DateCache,
     order: Order,
+    pub runs: runs::Runs,
 }
 
 /// What the rows' order shows so far, watched as they arrive so that grouping can skip whole
@@ -335,6 +365,7 @@ struct Grouped {
     offsets: Vec<usize>,
     dates: Vec<NaiveDate>,
     prices: Vec<f64>,
+    whole_runs: bool,
 }
 
 impl Rows {
@@ -345,12 +376,21 @@ impl Rows {
         self.prices.reserve(rows);
     }
 
+    /// Hands the runs finished so far to `hook`, if any (after a block is wholly pushed).
+    pub fn hand_out(&mut self, hook: Option<SecurityHook<'_>>) {
+        if let Some(hook) = hook {
+            let names = &self.dictionary.names;
+            self.runs.hand_out(names, &self.dates, &self.prices, hook);
+        }
+    }
+
     pub fn push(&mut self, id: u32, date: NaiveDate, price: f64) {
         self.push_id_and_date(id, date);
         self.prices.push(price);
     }
 
     /// A row's id and date; its price is pushed by the caller.
+    #[inline]
     pub fn push_id_and_date(&mut self, id: u32, date: NaiveDate) {
         let order = &mut self.order;
         if let Some((last_id, last_date)) = order.last {
@@ -358,6 +398,8 @@ impl Rows {
                 order.ascending &= date > last_date;
             } else {
                 order.grouped &= id > last_id;
+                let in_order = order.grouped && order.ascending;
+                self.runs.changed(last_id, self.ids.len(), in_order);
             }
         }
         order.last = Some((id, date));
@@ -377,6 +419,7 @@ impl Rows {
             order: seen,
             ..
         } = self;
+        let whole_runs = seen.grouped;
         let names = dictionary.names;
         let mut counts = vec![0_usize; names.len()];
         for &id in &ids {
@@ -434,6 +477,7 @@ impl Rows {
             offsets,
             dates,
             prices,
+            whole_runs,
         })
     }
 }

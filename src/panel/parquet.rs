@@ -13,7 +13,7 @@ use polars::prelude::*;
 use sha2::{Digest, Sha256};
 
 use super::cells::{block_dates, push_long, push_wide, DateCells};
-use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, Source};
+use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source};
 use crate::error::{Error, Result};
 
 /// Rows per slice: row groups are merged up to this size (one group may be larger).
@@ -21,9 +21,15 @@ const SLICE_ROWS: usize = 1 << 18;
 
 /// Reads a Parquet panel into rows; returns them with the SHA-256 of the file's bytes. Three
 /// stages overlap: one thread hashes the file, polars decodes a slice on its own threads, and
-/// another thread moves the previous slice's cells into the rows.
-pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, String)> {
+/// another thread moves the previous slice's cells into the rows (and hands complete securities
+/// to `hook`, long layout).
+pub(super) fn read(
+    source: &Source,
+    columns: &PanelColumns,
+    hook: Option<SecurityHook<'_>>,
+) -> Result<(Rows, String)> {
     let mut rows = Rows::default();
+    rows.runs.watching = hook.is_some() && columns.layout == PanelLayout::Long;
     let names = column_names(source, columns)?;
     if columns.layout == PanelLayout::Long {
         // Room for every row at once, so the columns never grow by copying.
@@ -44,6 +50,7 @@ pub(super) fn read(source: &Source, columns: &PanelColumns) -> Result<(Rows, Str
         let pusher = scope.spawn(move || {
             for (frame, first_row) in frames_in {
                 push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
+                rows.hand_out(hook);
             }
             Ok(rows)
         });

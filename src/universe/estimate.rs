@@ -18,6 +18,7 @@ use crate::beta::BetaEstimate;
 use crate::estimate::{self, EstimateError, EstimationSpec, MarketReturns, Window};
 use crate::io::series::{iso_date, SeriesView};
 use crate::market::sampling::{self, DroppedPeriods};
+use crate::panel::Panel;
 
 /// Why a security has no estimate.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
@@ -80,7 +81,8 @@ pub struct Estimation {
 
 impl Estimation {
     /// Builds the window of `spec` and samples the index (and the risk-free series) once.
-    /// Without `rolling` the spec's rolling window is set to 0, which computes no windows.
+    /// Without `rolling` the spec's rolling window is set to 0, which computes no windows; the
+    /// case's extras (influence terms, fitted line) are always off.
     pub fn new(
         mut spec: EstimationSpec,
         index: SeriesView<'_>,
@@ -90,6 +92,8 @@ impl Estimation {
         if !rolling {
             spec.rolling.window = 0;
         }
+        // Influence terms and the fitted line serve a case's Monte Carlo and charts only.
+        spec.case_extras = false;
         let window = Window::new(&spec);
         let market = MarketReturns::new(&spec, &window, index, risk_free);
         Estimation {
@@ -109,15 +113,10 @@ impl Estimation {
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
         let min = self.spec.min_observations;
         match estimated {
-            Ok(mut e) => SecurityEstimate {
+            Ok(e) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
                 outcome: Ok(Estimated {
-                    estimate: {
-                        // One influence term per return serves a case's joint Monte Carlo; a
-                        // universe keeps the statistics only (20 kB a security otherwise).
-                        e.estimate.beta_influence = Vec::new();
-                        e.estimate
-                    },
+                    estimate: e.estimate,
                     periods_in_window: e.periods_in_window,
                     stale_share: e.stale_share,
                     flags: e.flags,
@@ -173,6 +172,53 @@ impl Estimation {
             excess_returns: self.market.excess(),
             sampling_rule: sampling::rule_text(self.spec.frequency),
         }
+    }
+}
+
+/// A security estimated while the panel was read: its id, its number of prices, its estimate.
+pub type EarlyEstimate = (String, usize, SecurityEstimate);
+
+/// Securities estimated while the panel was still being read (handed out by the reader as
+/// their rows were complete), with the spec they were estimated under.
+#[derive(Debug, Clone, Default)]
+pub struct EarlyEstimates {
+    spec: Option<(EstimationSpec, bool)>,
+    found: Vec<EarlyEstimate>,
+}
+
+impl EarlyEstimates {
+    pub fn new(spec: EstimationSpec, rolling: bool, found: Vec<EarlyEstimate>) -> Self {
+        EarlyEstimates {
+            spec: Some((spec, rolling)),
+            found,
+        }
+    }
+
+    /// One entry per security of `panel`: its early estimate where it holds — the panel's rows
+    /// came in whole runs (so each hand-out was a security's whole series), the spec is the
+    /// one asked for, and the count of prices agrees — else `None`, to be estimated now.
+    pub fn for_panel(
+        &self,
+        panel: &Panel,
+        spec: &EstimationSpec,
+        rolling: bool,
+    ) -> Vec<Option<SecurityEstimate>> {
+        let mut out = vec![None; panel.len()];
+        let same_spec = self
+            .spec
+            .as_ref()
+            .is_some_and(|(s, r)| s == spec && *r == rolling);
+        if !(same_spec && panel.whole_runs()) {
+            return out;
+        }
+        for (security, prices, estimate) in &self.found {
+            if let Some(i) = panel.position(security) {
+                if panel.series(i).values.len() == *prices {
+                    out[i] = Some(estimate.clone());
+                }
+            }
+        }
+        out
     }
 }
 

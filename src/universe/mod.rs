@@ -14,6 +14,8 @@ pub mod industries;
 pub mod securities;
 pub mod settings;
 
+use std::sync::Mutex;
+
 use chrono::NaiveDate;
 use rayon::prelude::*;
 use serde::Serialize;
@@ -22,10 +24,12 @@ use crate::beta::diagnostics::PeerFlag;
 use crate::beta::rolling::RollingPoint;
 use crate::beta::{self, vasicek, AdjustedBeta, Adjustment};
 use crate::error::{Error, Result};
-use crate::io::series::{iso_date, read_series_file, DataFile, ValueKind};
+use crate::io::series::{iso_date, read_series_file, DataFile, SeriesView, ValueKind};
 use crate::panel::attributes::{read_attributes, Attributes, AttributesFile};
-use crate::panel::{read_panel, Panel, PanelFile};
-use estimate::{Estimation, NotEstimated, SecurityEstimate, WindowRecord};
+use crate::panel::{read_panel_handing_out, Panel, PanelFile};
+use estimate::{
+    EarlyEstimate, EarlyEstimates, Estimation, NotEstimated, SecurityEstimate, WindowRecord,
+};
 use industries::IndustryResult;
 use securities::{security_row, Missing, RowSettings, SecurityResult};
 use settings::{Universe, UniverseFile};
@@ -41,9 +45,13 @@ pub struct UniverseInputs {
     pub risk_free: Option<DataFile>,
     pub panel: Panel,
     pub attributes: Attributes,
+    /// Securities estimated while the panel was read; [`evaluate`] uses those that hold.
+    pub early: EarlyEstimates,
 }
 
-/// Reads every table the universe file names, resolving paths against its folder.
+/// Reads every table the universe file names, resolving paths against its folder. The
+/// securities of a panel grouped by security are estimated while it is read (kept in
+/// `early`, which [`evaluate`] uses where they hold).
 pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
     let settings = &universe.settings;
     let index_spec = &settings.market.index;
@@ -73,18 +81,67 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         &universe.resolve(&attributes_spec.file),
         &attributes_spec.columns(),
     )?;
-    let panel = read_panel(
-        &settings.panel.prices,
-        &universe.resolve(&settings.panel.prices),
-        &settings.panel.columns(),
-    )?;
+    let (spec, rolling) = (settings.estimation_spec(), settings.universe.rolling);
+    let estimation = Estimation::new(
+        spec.clone(),
+        index.series.view(),
+        risk_free.as_ref().map(|f| f.series.view()),
+        rolling,
+    );
+    let (panel, found) = read_panel_estimating(&universe, &estimation)?;
     Ok(UniverseInputs {
+        early: EarlyEstimates::new(spec, rolling, found),
         universe,
         index,
         risk_free,
         panel,
         attributes,
     })
+}
+
+/// Reads the panel; the securities of a file grouped by security are estimated while it is
+/// read, and returned with their number of prices.
+fn read_panel_estimating(
+    universe: &Universe,
+    estimation: &Estimation,
+) -> Result<(Panel, Vec<EarlyEstimate>)> {
+    let found = Mutex::new(Vec::new());
+    // A file grouped by security hands each security over as soon as its rows are complete:
+    // they are estimated on rayon's threads, one task per block, while polars parses the later
+    // rows.
+    let panel = rayon::in_place_scope(|scope| {
+        let found = &found;
+        let hook = move |batch: &[(&str, SeriesView<'_>)]| {
+            let owned: Vec<(String, Vec<NaiveDate>, Vec<f64>)> = batch
+                .iter()
+                .map(|(security, series)| {
+                    let (dates, prices) = (series.dates.to_vec(), series.values.to_vec());
+                    (security.to_string(), dates, prices)
+                })
+                .collect();
+            scope.spawn(move |_| {
+                let estimated: Vec<_> = owned
+                    .into_iter()
+                    .map(|(security, dates, prices)| {
+                        let series = SeriesView {
+                            dates: &dates,
+                            values: &prices,
+                        };
+                        (security, prices.len(), estimation.security(series))
+                    })
+                    .collect();
+                let mut found = found.lock().unwrap_or_else(|e| e.into_inner());
+                found.extend(estimated);
+            });
+        };
+        read_panel_handing_out(
+            &universe.settings.panel.prices,
+            &universe.resolve(&universe.settings.panel.prices),
+            &universe.settings.panel.columns(),
+            Some(&hook),
+        )
+    })?;
+    Ok((panel, found.into_inner().unwrap_or_else(|e| e.into_inner())))
 }
 
 /// The tool that produced a result.
@@ -161,20 +218,30 @@ pub struct UniverseResult {
     pub rolling: Vec<Vec<RollingPoint>>,
 }
 
-/// Every security of the panel estimated, in parallel, in panel order. A stop request (Ctrl-C)
-/// ends the run between two securities, with nothing written.
+/// Every security of the panel estimated, in parallel, in panel order, but for those `early`
+/// holds already. A stop request (Ctrl-C) ends the run between two securities, with nothing
+/// written.
 fn estimate_all(
     panel: &Panel,
     estimation: &Estimation,
+    early: Vec<Option<SecurityEstimate>>,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<SecurityEstimate>> {
-    (0..panel.len())
+    let done = early.iter().filter(|e| e.is_some()).count();
+    if done > 0 {
+        progress(done);
+    }
+    early
         .into_par_iter()
-        .map(|i| {
-            crate::progress::check_stop()?;
-            let estimate = estimation.security(panel.series(i));
-            progress(1);
-            Ok(estimate)
+        .enumerate()
+        .map(|(i, early)| match early {
+            Some(estimate) => Ok(estimate),
+            None => {
+                crate::progress::check_stop()?;
+                let estimate = estimation.security(panel.series(i));
+                progress(1);
+                Ok(estimate)
+            }
         })
         .collect()
 }
@@ -187,15 +254,17 @@ pub fn evaluate(
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<UniverseResult> {
     let settings = &inputs.universe.settings;
+    let (spec, rolling) = (settings.estimation_spec(), settings.universe.rolling);
+    let early = inputs.early.for_panel(&inputs.panel, &spec, rolling);
     let estimation = Estimation::new(
-        settings.estimation_spec(),
+        spec,
         inputs.index.series.view(),
         inputs.risk_free.as_ref().map(|f| f.series.view()),
-        settings.universe.rolling,
+        rolling,
     );
     check_overlap(inputs, &estimation)?;
     let panel = &inputs.panel;
-    let estimates = estimate_all(panel, &estimation, progress)?;
+    let estimates = estimate_all(panel, &estimation, early, progress)?;
     let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
     let row_settings = RowSettings {
         leverage: &settings.leverage,

@@ -1,0 +1,131 @@
+//! Securities handed out while a long panel is still being read, so their estimation overlaps
+//! the reading of later rows.
+//!
+//! In a file grouped by security with dates rising (the common export order), a security's
+//! rows are complete as soon as the next security's first row arrives. While the rows keep that
+//! order, each finished run is handed to the caller's [`SecurityHook`] once its block has been
+//! moved into the columns. Whether the hand-outs hold is only known at the end: they do when
+//! no security came back after another ([`super::Panel::whole_runs`]); otherwise the caller
+//! discards them and works from the grouped panel, as without a hook.
+
+use std::ops::Range;
+
+use crate::io::series::SeriesView;
+
+/// Called, while the file is read, with the securities whose rows a block completed: each id
+/// with all its rows, ascending in date. It runs on the thread that moves the cells, so it
+/// should hand heavy work on (one batch per block keeps such hand-offs few).
+pub type SecurityHook<'a> = &'a (dyn Fn(&[(&str, SeriesView<'_>)]) + Sync);
+
+/// The runs of one security's rows that ended while the file was grouped and rising, not yet
+/// handed out.
+#[derive(Debug, Default)]
+pub(crate) struct Runs {
+    /// Off unless a hook waits for them, and off for good after any row took the checked path
+    /// (whose pushes may repeat rows already seen).
+    pub watching: bool,
+    start: usize,
+    finished: Vec<(u32, Range<usize>)>,
+}
+
+impl Runs {
+    /// A new security's first row is row `row`; `previous` (the last security) ended there.
+    /// `in_order` says whether the file is still grouped with rising dates. Once per security,
+    /// so kept out of the per-row path.
+    #[inline(never)]
+    pub fn changed(&mut self, previous: u32, row: usize, in_order: bool) {
+        if self.watching && in_order {
+            self.finished.push((previous, self.start..row));
+        }
+        self.start = row;
+    }
+
+    /// Stops watching and forgets runs not yet handed out.
+    pub fn stop(&mut self) {
+        self.watching = false;
+        self.finished.clear();
+    }
+
+    /// Hands every finished run to `hook` in one batch (names by dictionary index).
+    pub fn hand_out(
+        &mut self,
+        names: &[String],
+        dates: &[chrono::NaiveDate],
+        prices: &[f64],
+        hook: SecurityHook<'_>,
+    ) {
+        if self.finished.is_empty() {
+            return;
+        }
+        let batch: Vec<(&str, SeriesView<'_>)> = self
+            .finished
+            .iter()
+            .map(|(id, rows)| {
+                let series = SeriesView {
+                    dates: &dates[rows.clone()],
+                    values: &prices[rows.clone()],
+                };
+                (names[*id as usize].as_str(), series)
+            })
+            .collect();
+        hook(&batch);
+        self.finished.clear();
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::sync::Mutex;
+
+    use chrono::NaiveDate;
+
+    use super::super::Rows;
+    use super::*;
+
+    fn rows_of(order: &[(&str, u32)]) -> (Vec<(String, Vec<f64>)>, bool) {
+        let handed = Mutex::new(Vec::new());
+        let hook = |batch: &[(&str, SeriesView<'_>)]| {
+            let mut handed = handed.lock().unwrap();
+            for (security, series) in batch {
+                handed.push((security.to_string(), series.values.to_vec()));
+            }
+        };
+        let mut rows = Rows::default();
+        rows.runs.watching = true;
+        for (k, &(security, day)) in order.iter().enumerate() {
+            let id = rows.dictionary.id(security);
+            let date = NaiveDate::from_ymd_opt(2026, 1, day).unwrap();
+            rows.push(id, date, k as f64 + 1.0);
+            // Hand-outs after every row, as after every block.
+            rows.hand_out(Some(&hook));
+        }
+        let grouped = rows.group().unwrap();
+        (handed.into_inner().unwrap(), grouped.whole_runs)
+    }
+
+    // A run is handed out only once the next security starts, with every row of it; the last
+    // security is never handed out (the file might hold more of it).
+    #[test]
+    fn grouped_rising_rows_hand_out_each_finished_security_whole() {
+        let (handed, whole) = rows_of(&[("B", 1), ("B", 2), ("C", 1), ("A", 1), ("A", 5)]);
+        assert!(whole);
+        assert_eq!(
+            handed,
+            [
+                ("B".to_string(), vec![1.0, 2.0]),
+                ("C".to_string(), vec![3.0])
+            ]
+        );
+    }
+
+    // A security coming back after another makes every hand-out void; a falling date stops
+    // the hand-outs from there on, while the earlier ones hold.
+    #[test]
+    fn a_security_that_comes_back_voids_the_hand_outs() {
+        let (_, whole) = rows_of(&[("A", 1), ("B", 1), ("A", 2)]);
+        assert!(!whole);
+        let (handed, whole) = rows_of(&[("A", 1), ("B", 2), ("B", 1), ("C", 1), ("D", 1)]);
+        assert!(whole);
+        assert_eq!(handed, [("A".to_string(), vec![1.0])]);
+    }
+}
