@@ -11,7 +11,7 @@ use crate::case::{label, Case, Variants};
 use crate::error::Result;
 use crate::market::sampling::Frequency;
 use crate::valuation::analyses::Specification;
-use crate::valuation::{cost_of_capital, estimate_peers_without_rolling, Inputs, PeerEstimates};
+use crate::valuation::{cost_of_capital, estimate_peers_for_wacc, Inputs, PeerEstimates};
 
 /// The frequencies and window lengths (years) of the range.
 const FREQUENCIES: [Frequency; 3] = [Frequency::Daily, Frequency::Weekly, Frequency::Monthly];
@@ -68,12 +68,12 @@ fn row(
             scaled_minimum(case, frequency, years)
         ));
         let variant = variants.with(&overrides).map_err(|e| e.to_string())?;
-        // Only the WACC is read, so a re-estimation skips the rolling betas.
+        // Only the WACC is read, so a re-estimation skips what only the charts and intervals read.
         let estimated = if estimates.fit(&variant) {
             std::borrow::Cow::Borrowed(estimates)
         } else {
             std::borrow::Cow::Owned(
-                estimate_peers_without_rolling(&variant, inputs).map_err(|e| e.to_string())?,
+                estimate_peers_for_wacc(&variant, inputs).map_err(|e| e.to_string())?,
             )
         };
         let cost = cost_of_capital(&variant, inputs, &estimated).map_err(|e| e.to_string())?;

@@ -112,12 +112,15 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
     estimate_peers_under(case, inputs, specs::estimation(&case.settings))
 }
 
-/// As [`estimate_peers`], without rolling betas: for a what-if that reads only the WACC (the
-/// specification range), where the windows would cost more than the regression itself.
-pub fn estimate_peers_without_rolling(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
+/// As [`estimate_peers`], with only what the WACC needs: for a what-if that reads nothing else
+/// (the specification range). No rolling betas (the windows would cost more than the
+/// regression itself), no influence terms and no fitted line; every statistic the chain reads
+/// is the same.
+pub fn estimate_peers_for_wacc(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
     let mut spec = specs::estimation(&case.settings);
     // A zero-length window computes no rolling betas (see `beta::rolling::rolling_betas`).
     spec.rolling.window = 0;
+    spec.case_extras = false;
     estimate_peers_under(case, inputs, spec)
 }
 
