@@ -192,6 +192,16 @@ fn sample_returns(
     )
 }
 
+/// The fitted line and its band over the range of the index returns the regression saw.
+fn line_over(estimate: &beta::BetaEstimate, market_excess: &[f64]) -> FittedLine {
+    let (x_min, x_max) = market_excess
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(low, high), &x| {
+            (low.min(x), high.max(x))
+        });
+    fitted_line::fitted_line(estimate, x_min, x_max)
+}
+
 /// Estimates one security against the index returns of `market`.
 pub fn estimate_security(
     spec: &EstimationSpec,
@@ -250,15 +260,9 @@ pub fn estimate_security(
             min_observations: spec.rolling.min_observations as usize,
         },
     );
-    let fitted_line = if spec.case_extras {
-        let (x_min, x_max) = market_excess
-            .iter()
-            .fold((f64::INFINITY, f64::NEG_INFINITY), |(low, high), &x| {
-                (low.min(x), high.max(x))
-            });
-        fitted_line::fitted_line(&estimate, x_min, x_max)
-    } else {
-        FittedLine::default()
+    let fitted_line = match spec.case_extras {
+        true => line_over(&estimate, &market_excess),
+        false => FittedLine::default(),
     };
     let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
     let flags = spec.flags.flags(&estimate, periods_in_window, stale_share);

@@ -1,7 +1,8 @@
 //! Outputs: each file format is one [`Render`] implementation that turns a [`Valuation`] into
-//! bytes; [`write_all`] renders every file first and only then writes them as one group through
-//! [`staging`] (a temporary folder beside the target, flushed, then moved into place), so a
-//! failure leaves no output at all and no output ever replaces a file the run reads.
+//! bytes; [`render_run`] renders the files of `hurdle run` into a [`staging::Stage`], which
+//! writes them as one group (a temporary folder beside the target, each file flushed, then all
+//! moved into place), so a failure leaves no output at all and no output ever replaces a file
+//! the run reads.
 
 pub mod csv;
 pub mod figures;
@@ -14,8 +15,6 @@ pub mod universe;
 pub mod verification;
 pub mod workbook;
 
-use std::path::{Path, PathBuf};
-
 use crate::error::Result;
 use crate::valuation::Valuation;
 
@@ -25,32 +24,6 @@ pub trait Render: Sync {
     fn file_name(&self) -> &str;
     /// The file's complete contents.
     fn render(&self, valuation: &Valuation) -> Result<Vec<u8>>;
-}
-
-/// Renders every output, then writes them all into `dir` (created when missing): each to a
-/// temporary file beside its target, all flushed to disk together (concurrently: a journaling
-/// file system commits concurrent flushes at once, so twenty files cost about one flush), and
-/// only then each renamed onto its name.
-pub fn write_all(
-    dir: &Path,
-    valuation: &Valuation,
-    outputs: &[&dyn Render],
-    reads: &[crate::case::FileRead],
-) -> Result<Vec<PathBuf>> {
-    staging::write_outputs(dir, &render_all(valuation, outputs)?, reads)
-}
-
-/// A rendered output: its file name and contents.
-pub type Rendered = (String, Vec<u8>);
-
-/// Renders `outputs` side by side (the workbook, the report and the charts take the longest);
-/// the files keep the order given.
-pub fn render_all(valuation: &Valuation, outputs: &[&dyn Render]) -> Result<Vec<Rendered>> {
-    use rayon::prelude::*;
-    outputs
-        .par_iter()
-        .map(|output| Ok((output.file_name().to_string(), output.render(valuation)?)))
-        .collect()
 }
 
 /// Renders every file `hurdle run` writes into `stage` and returns their names in the order

@@ -76,18 +76,8 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
     headers(book, &mut sheet, &market, with_rf)?;
     let mut blocks = Vec::with_capacity(v.peers.len());
     let mut row = 1u32;
-    // Every row has the same formats, so they are set per column and the cells written
-    // without one (a format per cell is looked up by hashing it, the larger part of a cell's
-    // cost on a sheet of thousands of cells).
     let last_col = market.last().map_or(3, |(_, c)| *c);
-    let styles = &book.styles;
-    let ws = &mut sheet.ws;
-    ws.set_column_format(0, &styles.text).map_err(xlsx_error)?;
-    ws.set_column_format(1, &styles.date).map_err(xlsx_error)?;
-    for col in 2..=last_col {
-        ws.set_column_format(col, &styles.return_pct)
-            .map_err(xlsx_error)?;
-    }
+    column_formats(book, &mut sheet, last_col)?;
     for (i, returns) in v.returns.iter().enumerate() {
         let first = row;
         let (asset_excess, market_excess) = (returns.asset_excess(), returns.market_excess());
@@ -137,6 +127,20 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
         asset,
         market,
     })
+}
+
+/// Every row has the same formats, so they are set per column and the cells written without
+/// one (a format per cell is looked up by hashing it, the larger part of a cell's cost on a
+/// sheet of thousands of cells).
+fn column_formats(book: &Book, sheet: &mut Sheet, last_col: u16) -> Result<()> {
+    let (styles, ws) = (&book.styles, &mut sheet.ws);
+    ws.set_column_format(0, &styles.text).map_err(xlsx_error)?;
+    ws.set_column_format(1, &styles.date).map_err(xlsx_error)?;
+    for col in 2..=last_col {
+        ws.set_column_format(col, &styles.return_pct)
+            .map_err(xlsx_error)?;
+    }
+    Ok(())
 }
 
 /// The header row, with a note on each lagged or led index column.
