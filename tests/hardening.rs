@@ -172,8 +172,24 @@ fn outputs_are_replaced_as_a_group_and_a_failure_leaves_them_alone() {
     );
 }
 
-// Ctrl-C during a long Monte Carlo leaves nothing behind and exits 130 (128 + SIGINT, the shell
-// convention). A million draws take seconds, so the signal arrives during the work.
+/// Work that outlasts a 700 ms wait by far (about 3 s on the 2-core machine): a million draws
+/// beside a grid whose 2,121 cells each re-estimate daily betas. A million draws alone end in
+/// about half a second.
+const LONG_WORK: [&str; 10] = [
+    "--set",
+    "uncertainty.draws=1000000",
+    "--set",
+    "beta.frequency=daily",
+    "--set",
+    "beta.lookback=750",
+    "--set",
+    "sensitivity.rows=beta.lookback=500..700:2",
+    "--set",
+    "sensitivity.columns=target.debt_to_equity=0..1:0.05",
+];
+
+// Ctrl-C during long work (the Monte Carlo and the grid) leaves nothing behind and exits 130
+// (128 + SIGINT, the shell convention); the work lasts seconds, so the signal arrives during it.
 #[test]
 fn ctrl_c_leaves_no_output() {
     let sandbox = Sandbox::new();
@@ -182,7 +198,7 @@ fn ctrl_c_leaves_no_output() {
     let child = Command::new(env!("CARGO_BIN_EXE_hurdle"))
         .args(["run", sandbox.path("case.toml").to_str().unwrap(), "--out"])
         .arg(root.join("out"))
-        .args(["--set", "uncertainty.draws=1000000"])
+        .args(LONG_WORK)
         .stderr(Stdio::piped())
         .spawn()
         .unwrap();
@@ -202,13 +218,13 @@ fn ctrl_c_leaves_no_output() {
     assert_eq!(tree_hashes(root), before);
 }
 
-// Work longer than a second shows a bar only on a terminal: here stderr is a pipe, so a
-// 400 000-draw run (about two seconds) must print nothing there.
+// Work longer than a second shows a bar only on a terminal: here stderr is a pipe, so a run of
+// about three seconds (the long work of `ctrl_c_leaves_no_output`) must print nothing there.
 #[test]
 fn no_progress_bar_off_a_terminal() {
     let sandbox = Sandbox::new();
     let out = sandbox.root.path().join("out");
-    let run = run_into(&sandbox, &out, &["--set", "uncertainty.draws=400000"]);
+    let run = run_into(&sandbox, &out, &LONG_WORK);
     assert!(run.status.success(), "{}", stderr(&run));
     assert_eq!(stderr(&run), "");
 }

@@ -44,6 +44,9 @@ pub fn write_outputs(
     stage.commit(&names)
 }
 
+/// A staged file's flush, on a thread of its own (`None`: flushed when it was written).
+type Flush = Option<JoinHandle<std::io::Result<()>>>;
+
 /// One group of output files on its way into `dir`.
 pub struct Stage {
     dir: PathBuf,
@@ -52,8 +55,8 @@ pub struct Stage {
     /// Folders created for the outputs (outermost first), removed again on failure.
     created: Vec<PathBuf>,
     staging: Option<tempfile::TempDir>,
-    /// Each staged file's flush, on a thread of its own.
-    flushes: Mutex<Vec<(PathBuf, JoinHandle<std::io::Result<()>>)>>,
+    /// Each staged file's flush.
+    flushes: Mutex<Vec<(PathBuf, Flush)>>,
 }
 
 impl Stage {
@@ -132,8 +135,17 @@ impl Stage {
         file.write_all(bytes)
             .map_err(io_error(&path, "cannot write"))?;
         // The flush waits on the disk, not on a core: a thread of its own, so twenty files
-        // cost about one disk round trip and the caller goes on rendering.
-        let flush = std::thread::spawn(move || file.sync_all());
+        // cost about one disk round trip and the caller goes on rendering. Without a thread
+        // to be had, it flushes here.
+        let file = std::sync::Arc::new(file);
+        let flushing = std::sync::Arc::clone(&file);
+        let flush = match std::thread::Builder::new().spawn(move || flushing.sync_all()) {
+            Ok(flush) => Some(flush),
+            Err(_) => {
+                file.sync_all().map_err(io_error(&path, "cannot flush"))?;
+                None
+            }
+        };
         self.flushes
             .lock()
             .map_err(|_| stopped_flush(&path))?
@@ -162,9 +174,10 @@ impl Stage {
         };
         let mut outcome = Ok(());
         for (path, flush) in flushes {
-            let flushed = match flush.join() {
-                Ok(result) => result.map_err(io_error(&path, "cannot flush")),
-                Err(_) => Err(stopped_flush(&path)),
+            let flushed = match flush.map(JoinHandle::join) {
+                None => Ok(()),
+                Some(Ok(result)) => result.map_err(io_error(&path, "cannot flush")),
+                Some(Err(_)) => Err(stopped_flush(&path)),
             };
             if outcome.is_ok() {
                 outcome = flushed;
@@ -274,9 +287,11 @@ fn discard_previous(staging: &Path, names: &[String]) {
     std::thread::scope(|scope| {
         for name in names {
             let path = previous.join(name);
-            scope.spawn(move || {
-                let _ = fs::remove_file(path);
-            });
+            let remove = move || {
+                let _ = fs::remove_file(&path);
+            };
+            // Without a thread to be had, the file goes with the staging folder.
+            let _ = std::thread::Builder::new().spawn_scoped(scope, remove);
         }
     });
 }
