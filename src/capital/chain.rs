@@ -148,7 +148,6 @@ pub struct Buffers {
 /// are left in the [`Buffers`], the rest is here.
 struct Shared {
     vasicek_prior: Option<vasicek::Prior>,
-    cost_of_debt_pre_tax: f64,
     target: CapitalStructure,
     subject_debt: DebtTerms,
     weights: Weights,
@@ -171,21 +170,19 @@ fn adjust(
     peers: &[PeerCapital],
     buffers: &mut Buffers,
 ) -> Result<Option<vasicek::Prior>, ChainError> {
-    buffers.raw.clear();
-    buffers
-        .raw
-        .extend(peers.iter().map(|p| (p.raw_beta, p.beta_std_error)));
-    buffers.included.clear();
-    buffers.included.extend(peers.iter().map(|p| p.included));
-    beta::adjust_all_into(
-        spec.adjustment,
-        spec.blume_weight,
-        spec.vasicek_prior,
-        &buffers.raw,
-        &buffers.included,
-        &mut buffers.adjusted,
-    )
-    .map_err(ChainError::Adjustment)
+    let Buffers {
+        raw,
+        included,
+        adjusted,
+        ..
+    } = buffers;
+    raw.clear();
+    raw.extend(peers.iter().map(|p| (p.raw_beta, p.beta_std_error)));
+    included.clear();
+    included.extend(peers.iter().map(|p| p.included));
+    let (weight, prior) = (spec.blume_weight, spec.vasicek_prior);
+    beta::adjust_all_into(spec.adjustment, weight, prior, raw, included, adjusted)
+        .map_err(ChainError::Adjustment)
 }
 
 /// Adjustment, cost of debt, peer terms, target, weights: everything before the formulas. The
@@ -201,10 +198,9 @@ fn shared(
     }
     let kd = debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
-    buffers.terms.clear();
-    buffers
-        .terms
-        .extend(peers.iter().map(|p| peer_terms(spec, p, kd)));
+    let terms = &mut buffers.terms;
+    terms.clear();
+    terms.extend(peers.iter().map(|p| peer_terms(spec, p, kd)));
     let target_de = match spec.target {
         TargetSpec::PeerMedian => peer_median_debt_to_equity(peers, buffers),
         TargetSpec::DebtToEquity(de) => de,
@@ -222,7 +218,6 @@ fn shared(
     let lease_cost_pre_tax = leases.cost.unwrap_or(kd);
     Ok(Shared {
         vasicek_prior,
-        cost_of_debt_pre_tax: kd,
         target: CapitalStructure {
             debt_to_equity: target_de,
             tax_rate: spec.tax_rate,
@@ -269,10 +264,6 @@ fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, Chain
     let shared = shared(spec, peers, &mut buffers)?;
     let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
-    debug_assert_eq!(
-        cost_of_debt.pre_tax.to_bits(),
-        shared.cost_of_debt_pre_tax.to_bits()
-    );
     Ok(Common {
         adjusted: buffers.adjusted,
         peers: buffers.terms,
