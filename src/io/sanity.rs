@@ -27,29 +27,36 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
                 .into(),
         });
     }
+    // Checked for the whole file at once, then named at its line; the lines before it are
+    // checked first, as if line by line.
+    let valid_up_to = std::str::from_utf8(bytes).map_or_else(|e| e.valid_up_to(), |_| bytes.len());
     let mut header_fields = None;
     let (mut fields, mut in_quotes, mut record_line) = (1, false, 1);
+    let mut line_start = 0;
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
         let line = i + 1;
+        let start = line_start;
+        line_start += raw.len() + 1;
         let raw = raw.strip_suffix(b"\r").unwrap_or(raw);
-        let text = std::str::from_utf8(raw).map_err(|e| {
-            let column = e.valid_up_to() + 1;
-            let byte = raw[e.valid_up_to()];
-            row_error(
+        if valid_up_to < start + raw.len() {
+            let column = valid_up_to - start + 1;
+            let byte = bytes[valid_up_to];
+            return Err(row_error(
                 line,
                 format!(
                     "byte {column} (0x{byte:02X}) is not UTF-8 text; save the file as UTF-8 \
                      (plain text)"
                 ),
-            )
-        })?;
+            ));
+        }
         if !in_quotes {
             (fields, record_line) = (1, line);
         }
-        for c in text.chars() {
-            match c {
-                '"' => in_quotes = !in_quotes,
-                ',' if !in_quotes => fields += 1,
+        // Quotes and commas are single bytes that UTF-8 never uses inside another character.
+        for &b in raw {
+            match b {
+                b'"' => in_quotes = !in_quotes,
+                b',' if !in_quotes => fields += 1,
                 _ => {}
             }
         }
@@ -58,11 +65,12 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
         }
         match header_fields {
             None => {
-                check_header(text).map_err(|message| row_error(line, message))?;
+                check_header(&String::from_utf8_lossy(raw))
+                    .map_err(|message| row_error(line, message))?;
                 header_fields = Some(fields);
             }
             Some(expected) if fields > expected => {
-                let shown: String = text.chars().take(80).collect();
+                let shown: String = String::from_utf8_lossy(raw).chars().take(80).collect();
                 return Err(row_error(
                     record_line,
                     format!(
@@ -146,5 +154,11 @@ mod tests {
         assert!(shape(b"date;price\n2026-01-01;1,5\n").contains("semicolons"));
         let bad = shape(b"date,price\n2026-01-01,1.5\n2026-01-02,\xff\n");
         assert!(bad.contains("line 3") && bad.contains("0xFF"), "{bad}");
+        // The byte's column within its line (here after a two-byte é), and a CRLF file.
+        let bad = shape(b"date,price\r\n2026-01-01,1.5\r\n\xc3\xa9,\xfe\r\n");
+        assert!(bad.contains("line 3") && bad.contains("byte 4 (0xFE)"), "{bad}");
+        // Lines are judged in order: a line with too many fields before the bad byte is named.
+        let first = shape(b"date,price\n2026-01-01,1,5\n2026-01-02,\xff\n");
+        assert!(first.contains("line 2") && first.contains("3 fields"), "{first}");
     }
 }
