@@ -156,9 +156,15 @@ mod tests {
         assert!(bad.contains("line 3") && bad.contains("0xFF"), "{bad}");
         // The byte's column within its line (here after a two-byte é), and a CRLF file.
         let bad = shape(b"date,price\r\n2026-01-01,1.5\r\n\xc3\xa9,\xfe\r\n");
-        assert!(bad.contains("line 3") && bad.contains("byte 4 (0xFE)"), "{bad}");
+        assert!(
+            bad.contains("line 3") && bad.contains("byte 4 (0xFE)"),
+            "{bad}"
+        );
         // Lines are judged in order: a line with too many fields before the bad byte is named.
         let first = shape(b"date,price\n2026-01-01,1,5\n2026-01-02,\xff\n");
-        assert!(first.contains("line 2") && first.contains("3 fields"), "{first}");
+        assert!(
+            first.contains("line 2") && first.contains("3 fields"),
+            "{first}"
+        );
     }
 }
