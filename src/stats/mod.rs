@@ -117,23 +117,8 @@ pub fn locations(values: &[f64], market_caps: &[f64], trim_fraction: f64) -> Loc
 }
 
 /// The one statistic `aggregation` picks, computed alone with the same arithmetic as
-/// [`locations`] (a Monte Carlo draw needs no other).
-pub fn location(
-    aggregation: Aggregation,
-    values: &[f64],
-    market_caps: &[f64],
-    trim_fraction: f64,
-) -> f64 {
-    location_in(
-        aggregation,
-        values,
-        market_caps,
-        trim_fraction,
-        &mut Vec::new(),
-    )
-}
-
-/// [`location`] with the sorted copy in `sorted`, a buffer the caller reuses.
+/// [`locations`] (a Monte Carlo draw needs no other), with the sorted copy in `sorted`, a
+/// buffer the caller reuses.
 pub fn location_in(
     aggregation: Aggregation,
     values: &[f64],
