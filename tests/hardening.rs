@@ -246,3 +246,74 @@ fn a_closed_pipe_is_not_a_panic() {
     assert!(!stderr(&output).contains("panicked"), "{}", stderr(&output));
     assert_eq!(output.status.code(), Some(141), "{}", stderr(&output));
 }
+
+// A beta listing computes no cost of capital, so a fault in the spread table that only the cost
+// of debt reads stops `run` and leaves `betas` and `rolling` alone. Once an unlevered beta reads
+// the subject's cost of debt (Miles–Ezzell discounts the tax shield at it, and a credit-spread
+// debt beta is read off it), `betas` needs the table and names the fault.
+#[test]
+fn a_spread_table_fault_stops_only_the_listings_that_read_it() {
+    let sandbox = Sandbox::new();
+    let table = "data/rating_spreads_invented.csv";
+    let header = sandbox
+        .read(table)
+        .lines()
+        .position(|line| line.starts_with("rating,"))
+        .expect("the table's header")
+        + 1;
+    let row = header + 1;
+    let planted = sandbox
+        .read(table)
+        .lines()
+        .nth(row - 1)
+        .unwrap()
+        .to_string();
+    let (rating, _) = planted.split_once(',').unwrap();
+    sandbox.set_line(table, row, &format!("{rating},not-a-spread"));
+    let case = sandbox.path("case.toml");
+    let case = case.to_str().unwrap();
+    let rating_source = ["--set", "debt.source=rating"];
+    let with = |extra: &[&str]| {
+        let mut args = extra.to_vec();
+        args.extend_from_slice(&rating_source);
+        hurdle(&args)
+    };
+
+    let out = sandbox.root.path().join("out");
+    let run = with(&["run", case, "--out", out.to_str().unwrap()]);
+    assert_eq!(run.status.code(), Some(2), "{}", stderr(&run));
+    let message = stderr(&run);
+    assert!(message.contains(&format!("line {row}")), "{message}");
+    assert!(message.contains("not-a-spread"), "{message}");
+
+    let listing = with(&["betas", case, "--format", "json"]);
+    assert!(listing.status.success(), "{}", stderr(&listing));
+    let peers: serde_json::Value = serde_json::from_slice(&listing.stdout).unwrap();
+    let original = hurdle(&["betas", common::DEMO_CASE, "--format", "json"]);
+    let demo: serde_json::Value = serde_json::from_slice(&original.stdout).unwrap();
+    for (peer, demo) in peers
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(demo.as_array().unwrap())
+    {
+        assert_eq!(peer["unlevered_beta"], demo["unlevered_beta"]);
+        // The table was not read, so no peer is given the subject's cost of debt from it.
+        assert!(peer.get("cost_of_debt").is_none(), "{peer}");
+    }
+    let rolling = with(&["rolling", case, "--out", out.to_str().unwrap()]);
+    assert!(rolling.status.success(), "{}", stderr(&rolling));
+
+    for reads_kd in [
+        "leverage.formula=miles-ezzell",
+        "leverage.debt_beta_source=credit-spread",
+    ] {
+        let refused = with(&["betas", case, "--set", reads_kd]);
+        assert_eq!(refused.status.code(), Some(2), "{reads_kd}");
+        assert!(
+            stderr(&refused).contains(&format!("line {row}")),
+            "{reads_kd}: {}",
+            stderr(&refused)
+        );
+    }
+}

@@ -23,7 +23,9 @@ pub struct PeerTerms {
     /// With the case's debt measure (gross, or net of cash).
     pub debt_to_equity: f64,
     pub debt_beta: f64,
-    pub cost_of_debt: f64,
+    /// The peer's own cost of debt, else the subject's; `None` only in a listing
+    /// ([`unlevered_only`]) whose spread table was not read because no step needed it.
+    pub cost_of_debt: Option<f64>,
     /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
     pub operating_share: f64,
 }
@@ -200,7 +202,9 @@ fn shared(
         .map_err(ChainError::CostOfDebt)?;
     let terms = &mut buffers.terms;
     terms.clear();
-    terms.extend(peers.iter().map(|p| peer_terms(spec, p, kd)));
+    for peer in peers {
+        terms.push(peer_terms(spec, peer, Some(kd))?);
+    }
     let target_de = match spec.target {
         TargetSpec::PeerMedian => peer_median_debt_to_equity(peers, buffers),
         TargetSpec::DebtToEquity(de) => de,
@@ -372,9 +376,19 @@ pub fn unlevered_only(
     let mut buffers = Buffers::default();
     adjust(spec, peers, &mut buffers)?;
     let adjusted = buffers.adjusted;
-    let kd = debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
-        .map_err(ChainError::CostOfDebt)?;
-    let terms: Vec<PeerTerms> = peers.iter().map(|p| peer_terms(spec, p, kd)).collect();
+    // The subject's cost of debt when the spec can give it: a given yield, or a spread table the
+    // caller read because an unlevered beta needs it ([`unlevering_needs_subject_cost_of_debt`]).
+    let kd = match spec.debt.source == debt::DebtSource::Given || spec.debt_table.is_some() {
+        true => Some(
+            debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+                .map_err(ChainError::CostOfDebt)?,
+        ),
+        false => None,
+    };
+    let terms = peers
+        .iter()
+        .map(|p| peer_terms(spec, p, kd))
+        .collect::<Result<Vec<_>, _>>()?;
     let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
     let operations = operations_betas(&unlevered, &terms);
     Ok(UnleveredPeers {
@@ -385,26 +399,50 @@ pub fn unlevered_only(
     })
 }
 
+/// Whether a peer's unlevered beta reads the subject's cost of debt: Miles–Ezzell discounts the
+/// tax shield at the cost of debt, and a debt beta from the credit spread is read off it, for a
+/// peer without a cost of debt (or, for the spread, a debt beta) of its own. `own` holds each
+/// peer's own cost of debt and debt beta.
+pub fn unlevering_needs_subject_cost_of_debt(
+    formula: Formula,
+    debt_beta_source: DebtBetaSource,
+    own: impl IntoIterator<Item = (Option<f64>, Option<f64>)>,
+) -> bool {
+    own.into_iter().any(|(cost_of_debt, debt_beta)| {
+        cost_of_debt.is_none()
+            && (formula.uses_cost_of_debt()
+                || (debt_beta_source == DebtBetaSource::CreditSpread && debt_beta.is_none()))
+    })
+}
+
 /// A peer's D/E (with the debt measure), debt beta and cost of debt.
-fn peer_terms(spec: &CapitalSpec<'_>, peer: &PeerCapital, subject_cost_of_debt: f64) -> PeerTerms {
-    let cost_of_debt = peer.own_cost_of_debt.unwrap_or(subject_cost_of_debt);
+fn peer_terms(
+    spec: &CapitalSpec<'_>,
+    peer: &PeerCapital,
+    subject_cost_of_debt: Option<f64>,
+) -> Result<PeerTerms, ChainError> {
+    let cost_of_debt = peer.own_cost_of_debt.or(subject_cost_of_debt);
+    let unread = || ChainError::CostOfDebt("the cost-of-debt spread table was not read".into());
     let debt_beta = match spec.debt_beta_source {
         DebtBetaSource::None => 0.0,
         DebtBetaSource::Given => peer.own_debt_beta.unwrap_or(spec.debt_beta),
-        DebtBetaSource::CreditSpread => peer.own_debt_beta.unwrap_or_else(|| {
-            leverage::debt_beta_from_spread(
-                cost_of_debt,
-                spec.risk_free_rate,
-                spec.equity_risk_premium,
-            )
-        }),
+        DebtBetaSource::CreditSpread => match (peer.own_debt_beta, cost_of_debt) {
+            (Some(own), _) => own,
+            (None, Some(kd)) => {
+                leverage::debt_beta_from_spread(kd, spec.risk_free_rate, spec.equity_risk_premium)
+            }
+            (None, None) => return Err(unread()),
+        },
     };
-    PeerTerms {
+    if spec.formula.uses_cost_of_debt() && cost_of_debt.is_none() {
+        return Err(unread());
+    }
+    Ok(PeerTerms {
         debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
         debt_beta,
         cost_of_debt,
         operating_share: 1.0 - peer.cash / (peer.equity_value + peer.debt),
-    }
+    })
 }
 
 /// The subject's debt beta at the target structure.
@@ -435,7 +473,8 @@ fn unlever(
         },
         DebtTerms {
             debt_beta: terms.debt_beta,
-            cost_of_debt: terms.cost_of_debt,
+            // Only Miles–Ezzell reads it, and `peer_terms` refuses that formula without it.
+            cost_of_debt: terms.cost_of_debt.unwrap_or_default(),
         },
     )
 }

@@ -29,8 +29,9 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
-    // Estimates only: no target, cost of equity or WACC is computed for a listing.
-    let inputs = args.case.inputs()?;
+    // Estimates only: no target, cost of equity or WACC is computed for a listing, and the spread
+    // table is read only when an unlevered beta needs the subject's cost of debt.
+    let inputs = args.case.listing_inputs()?;
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     if args.compare_frequencies {
         let runs = hurdle::audit::frequency_comparison::compare_frequencies(&inputs, &estimates)?;

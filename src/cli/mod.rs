@@ -75,6 +75,13 @@ impl CaseArgs {
         hurdle::valuation::load_inputs(case)
     }
 
+    /// Reads the case, its price files and, only when an unlevered beta reads the subject's cost of
+    /// debt from it, the spread table: what a beta listing needs.
+    pub fn listing_inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
+        let case = hurdle::case::read_case(&self.case, &self.overrides)?;
+        hurdle::valuation::load_listing_inputs(case)
+    }
+
     /// Reads the case and its price files only (no spread table): what estimating needs.
     pub fn price_inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
         let case = hurdle::case::read_case(&self.case, &self.overrides)?;

@@ -86,7 +86,7 @@ impl Render for PeersCsv {
                 ),
                 field(p.excluded_reason.as_deref().unwrap_or("")),
                 p.debt_beta.to_string(),
-                p.cost_of_debt.to_string(),
+                p.cost_of_debt.map(|kd| kd.to_string()).unwrap_or_default(),
                 p.operating_share.to_string(),
                 p.operations_beta.to_string(),
             ];

@@ -49,6 +49,19 @@ pub fn load_price_inputs(case: Case) -> Result<Inputs> {
     load(case, false)
 }
 
+/// Reads what a beta listing needs: the price files and yields, and the spread table only when an
+/// unlevered beta reads the subject's cost of debt from it (Miles–Ezzell, or a debt beta from the
+/// credit spread, for a peer without its own figure).
+pub fn load_listing_inputs(case: Case) -> Result<Inputs> {
+    let settings = &case.settings;
+    let needs = crate::capital::chain::unlevering_needs_subject_cost_of_debt(
+        settings.leverage.formula,
+        settings.leverage.debt_beta_source,
+        settings.peers.iter().map(|p| (p.cost_of_debt, p.debt_beta)),
+    );
+    load(case, needs)
+}
+
 fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
     let settings = &case.settings;
     // Own files or columns of wide tables (`[sources]`); each table is read once.

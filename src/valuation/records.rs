@@ -87,8 +87,11 @@ pub struct PeerResult {
     /// The debt beta used in unlevering (0 when none; Hamada never uses one).
     pub debt_beta: f64,
     /// The peer's pre-tax cost of debt used by Miles–Ezzell and the credit-spread debt beta:
-    /// its own `cost_of_debt`, else the subject's.
-    pub cost_of_debt: f64,
+    /// its own `cost_of_debt`, else the subject's. Always there in a valuation; a beta listing
+    /// leaves it out when the subject's comes from a spread table that no unlevered beta needs
+    /// (the table is then not read, so a fault in it cannot stop the listing).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cost_of_debt: Option<f64>,
     /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
     pub operating_share: f64,
     /// The beta of the operations, `unlevered_beta / operating_share` (cash at beta zero);
