@@ -11,14 +11,19 @@ use crate::error::{compact as show, Error, Result};
 /// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
 /// separator, and no row with more fields than the header (a decimal comma, an unquoted comma in
 /// text). Quoted fields may hold commas and line breaks. Fewer fields than the header are left to
-/// the cell parser, which names the empty cell.
-pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
+/// the cell parser, which names the empty cell. Returns the first blank line after the header
+/// (outside quotes; not the end after the last line break), which the cell parser reports as a
+/// row with empty cells once the rows before it are read.
+pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
     let row_error = |line: usize, message: String| Error::DataRow {
         file: file.to_path_buf(),
         line,
         message,
     };
+    let whole = bytes.len();
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    let bom = whole - bytes.len();
+    let mut blank = None;
     if bytes.iter().all(u8::is_ascii_whitespace) {
         return Err(Error::DataFile {
             file: file.to_path_buf(),
@@ -63,6 +68,13 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
         if in_quotes {
             continue; // The record goes on over the next line.
         }
+        let ends_in_a_break = start + raw.len() < bytes.len();
+        if raw.is_empty() && header_fields.is_some() && blank.is_none() && ends_in_a_break {
+            blank = Some(BlankLine {
+                line,
+                byte: bom + start,
+            });
+        }
         match header_fields {
             None => {
                 check_header(&String::from_utf8_lossy(raw))
@@ -83,7 +95,16 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<()> {
             Some(_) => {}
         }
     }
-    Ok(())
+    Ok(blank)
+}
+
+/// A line with nothing on it (or only a carriage return) inside a CSV file's rows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct BlankLine {
+    /// 1-based.
+    pub line: usize,
+    /// The offset of its first byte in the file.
+    pub byte: usize,
 }
 
 /// The header must be separated by commas: a single field holding `;` or a tab is another
@@ -136,7 +157,8 @@ mod tests {
 
     fn shape(text: &[u8]) -> String {
         match check_csv_shape(Path::new("p.csv"), text) {
-            Ok(()) => "ok".into(),
+            Ok(None) => "ok".into(),
+            Ok(Some(blank)) => format!("blank line {} at byte {}", blank.line, blank.byte),
             Err(e) => e.to_string(),
         }
     }
@@ -165,6 +187,26 @@ mod tests {
         assert!(
             first.contains("line 2") && first.contains("3 fields"),
             "{first}"
+        );
+    }
+
+    // A blank line is found by its line and first byte (after a BOM, in a CRLF file, after a
+    // quoted line break); the end of the file after its last line break is not one.
+    #[test]
+    fn csv_shape_finds_the_first_blank_line() {
+        assert_eq!(shape(b"date,price\n2026-01-01,1.5\n"), "ok");
+        assert_eq!(shape(b"date,price\n2026-01-01,1.5"), "ok");
+        assert_eq!(
+            shape(b"date,price\n2026-01-01,1.5\n\n2026-01-02,2\n\n"),
+            "blank line 3 at byte 26"
+        );
+        assert_eq!(
+            shape(b"\xEF\xBB\xBFdate,price\r\n2026-01-01,1.5\r\n\r\n"),
+            "blank line 3 at byte 31"
+        );
+        assert_eq!(
+            shape(b"date,name\n2026-01-01,\"a\n\nb\"\n2026-01-02,c\n\n"),
+            "blank line 6 at byte 41"
         );
     }
 }

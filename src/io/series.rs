@@ -1,7 +1,9 @@
 //! Data loading: price and yield files into typed, validated date series.
 //!
-//! Files are CSV with a header row; polars reads them with every column as text, and each cell
-//! is then parsed here so that a bad value is reported with its file, line and content. A series
+//! Files are CSV with a header row; the csv crate splits them into records (a price file is a few
+//! thousand short lines, for which polars' parallel reader costs more in setting up than in
+//! reading), and each cell is then parsed here so that a bad value is reported with its file,
+//! line and content. A series
 //! must be strictly ascending in date: a duplicate or an out-of-order date is an error naming
 //! both lines, never silently sorted or de-duplicated. The bytes that are parsed are the bytes
 //! that are hashed, so the receipt's SHA-256 describes exactly what was used.
@@ -9,11 +11,9 @@
 //! Sampling works on [`SeriesView`], a borrowed pair of date and value slices, so a long-format
 //! panel of many securities can feed the same code by slicing, without copying.
 
-use std::io::Cursor;
 use std::path::Path;
 
 use chrono::NaiveDate;
-use polars::prelude::*;
 use serde::Serialize;
 use sha2::{Digest, Sha256};
 
@@ -120,7 +120,10 @@ pub fn read_series_file(
     })
 }
 
-/// Parses CSV bytes into a validated series; `file` is only used in messages.
+/// Parses CSV bytes into a validated series; `file` is only used in messages. The shape is
+/// checked first (`sanity::check_csv_shape`: UTF-8, separators, field counts); the csv crate
+/// then hands over each record's cells as borrowed text, which are parsed here so that a bad
+/// value is named with its line.
 pub fn parse_series(
     file: &Path,
     bytes: &[u8],
@@ -132,109 +135,109 @@ pub fn parse_series(
         file: file.to_path_buf(),
         message,
     };
-    let (date_text, value_text) = text_columns(file, bytes, date_column, value_column)?;
-    if date_text.is_empty() {
-        return Err(file_error("has a header but no data rows".into()));
-    }
-    let mut dates = Vec::with_capacity(date_text.len());
-    let mut values = Vec::with_capacity(date_text.len());
-    for (row, (date, value)) in date_text.iter().zip(&value_text).enumerate() {
-        let line = row + 2;
-        let row_error = |message: String| Error::DataRow {
+    let blank = super::sanity::check_csv_shape(file, bytes)?;
+    // The reader skips blank lines; polars, and people, see a row with empty cells there.
+    let blank_row = |blank: super::sanity::BlankLine| Error::DataRow {
+        file: file.to_path_buf(),
+        line: blank.line,
+        message: format!("`{date_column}` = \"\" is not an ISO 8601 date (YYYY-MM-DD)"),
+    };
+    let mut reader = csv::ReaderBuilder::new().flexible(true).from_reader(bytes);
+    let unreadable = |e: csv::Error| file_error(format!("not a readable CSV file: {e}"));
+    let header = reader.headers().map_err(unreadable)?.clone();
+    let column = |name: &str| {
+        header.iter().position(|n| n == name).ok_or_else(|| {
+            let names: Vec<&str> = header.iter().collect();
+            file_error(format!(
+                "no column named `{name}`; the header has: {}",
+                names.join(", ")
+            ))
+        })
+    };
+    let (date_at, value_at) = (column(date_column)?, column(value_column)?);
+    let rows = bytes.iter().filter(|&&b| b == b'\n').count();
+    let mut dates = Vec::with_capacity(rows);
+    let mut values = Vec::with_capacity(rows);
+    let mut record = csv::StringRecord::new();
+    let mut previous_line = 0;
+    while reader.read_record(&mut record).map_err(unreadable)? {
+        let start = record.position().expect("the reader records positions");
+        // A record after a skipped blank line starts, for the reader, at the blank line.
+        if let Some(blank) = blank.filter(|b| start.byte() as usize >= b.byte) {
+            return Err(blank_row(blank));
+        }
+        let line = start.line() as usize;
+        let cell = |at: usize| record.get(at).unwrap_or("").trim();
+        let (date, value) = parse_row(
+            cell(date_at),
+            cell(value_at),
+            date_column,
+            value_column,
+            kind,
+        )
+        .map_err(|message| Error::DataRow {
             file: file.to_path_buf(),
             line,
             message,
-        };
-        let date_cell = date.as_deref().unwrap_or("").trim();
-        let date = parse_iso_date(date_cell).ok_or_else(|| {
-            row_error(format!(
-                "`{date_column}` = \"{date_cell}\" is not an ISO 8601 date (YYYY-MM-DD)"
-            ))
         })?;
-        let value_cell = value.as_deref().unwrap_or("").trim();
-        let value: f64 = value_cell.parse().map_err(|_| {
-            row_error(format!(
-                "`{value_column}` = \"{value_cell}\" is not a number"
-            ))
-        })?;
-        match kind {
-            ValueKind::Price if !(value.is_finite() && value > 0.0) => {
-                return Err(row_error(format!(
-                    "`{value_column}` = {value_cell} on {date}: a price must be positive"
-                )))
-            }
-            ValueKind::Yield if !(value.is_finite() && value > -1.0) => {
-                return Err(row_error(format!(
-                    "`{value_column}` = {value_cell} on {date}: a yield must be above -1 (−100%)"
-                )))
-            }
-            _ => {}
-        }
         if let Some(&previous) = dates.last() {
+            let order_error = |message: String| Error::DataRow {
+                file: file.to_path_buf(),
+                line,
+                message,
+            };
             if date == previous {
-                return Err(row_error(format!(
-                    "duplicate date {date} (also on line {}); each date may appear once",
-                    line - 1
+                return Err(order_error(format!(
+                    "duplicate date {date} (also on line {previous_line}); each date may appear \
+                     once"
                 )));
             }
             if date < previous {
-                return Err(row_error(format!(
-                    "date {date} comes after {previous} on line {}; rows must be sorted by \
-                     ascending date (sort the file; it is never reordered silently)",
-                    line - 1
+                return Err(order_error(format!(
+                    "date {date} comes after {previous} on line {previous_line}; rows must be \
+                     sorted by ascending date (sort the file; it is never reordered silently)"
                 )));
             }
         }
         dates.push(date);
         values.push(value);
+        previous_line = line;
+    }
+    if let Some(blank) = blank {
+        return Err(blank_row(blank));
+    }
+    if dates.is_empty() {
+        return Err(file_error("has a header but no data rows".into()));
     }
     let series = Series { dates, values };
     super::sanity::check_series_values(file, value_column, &series, kind)?;
     Ok(series)
 }
 
-/// One column's cells as text (`None` for an empty cell).
-type TextColumn = Vec<Option<String>>;
-
-/// The date and value columns of a CSV file as text, through polars (every column read as text,
-/// so parsing and its messages are hurdle's own), after the file's shape is checked.
-fn text_columns(
-    file: &Path,
-    bytes: &[u8],
+/// One row's date and value cells, parsed and checked against the kind's range; the message
+/// names the column and the cell.
+fn parse_row(
+    date_cell: &str,
+    value_cell: &str,
     date_column: &str,
     value_column: &str,
-) -> Result<(TextColumn, TextColumn)> {
-    let file_error = |message: String| Error::DataFile {
-        file: file.to_path_buf(),
-        message,
-    };
-    super::sanity::check_csv_shape(file, bytes)?;
-    let frame = CsvReadOptions::default()
-        .with_has_header(true)
-        // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.
-        .with_infer_schema_length(Some(0))
-        .into_reader_with_file_handle(Cursor::new(bytes))
-        .finish()
-        // The reader's first line only: the rest advises options the user cannot set.
-        .map_err(|e| file_error(format!("not a readable CSV file: {}", first_line(&e))))?;
-    let column = |name: &str| -> Result<TextColumn> {
-        let found = frame.column(name).map_err(|_| {
-            let names: Vec<String> = frame
-                .get_column_names()
-                .iter()
-                .map(|n| n.to_string())
-                .collect();
-            file_error(format!(
-                "no column named `{name}`; the header has: {}",
-                names.join(", ")
-            ))
-        })?;
-        let text = found
-            .str()
-            .map_err(|e| file_error(format!("column `{name}`: {e}")))?;
-        Ok(text.iter().map(|v| v.map(str::to_string)).collect())
-    };
-    Ok((column(date_column)?, column(value_column)?))
+    kind: ValueKind,
+) -> std::result::Result<(NaiveDate, f64), String> {
+    let date = parse_iso_date(date_cell).ok_or_else(|| {
+        format!("`{date_column}` = \"{date_cell}\" is not an ISO 8601 date (YYYY-MM-DD)")
+    })?;
+    let value: f64 = value_cell
+        .parse()
+        .map_err(|_| format!("`{value_column}` = \"{value_cell}\" is not a number"))?;
+    match kind {
+        ValueKind::Price if !(value.is_finite() && value > 0.0) => Err(format!(
+            "`{value_column}` = {value_cell} on {date}: a price must be positive"
+        )),
+        ValueKind::Yield if !(value.is_finite() && value > -1.0) => Err(format!(
+            "`{value_column}` = {value_cell} on {date}: a yield must be above -1 (−100%)"
+        )),
+        _ => Ok((date, value)),
+    }
 }
 
 /// A `YYYY-MM-DD` date: the plain ten-character form read directly (most of a price file's
@@ -255,13 +258,51 @@ fn parse_iso_date(text: &str) -> Option<NaiveDate> {
     NaiveDate::parse_from_str(text, "%Y-%m-%d").ok()
 }
 
-fn first_line(error: &impl std::fmt::Display) -> String {
-    error.to_string().lines().next().unwrap_or("").to_string()
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn parsed(text: &[u8]) -> std::result::Result<Series, String> {
+        parse_series(Path::new("p.csv"), text, "date", "price", ValueKind::Price)
+            .map_err(|e| e.to_string())
+    }
+
+    // RFC 4180 (the CSV format's published description): quoted cells lose their quotes, a
+    // quoted cell may hold a line break, CRLF ends a line like LF; a BOM before the header is
+    // not part of the first column's name.
+    #[test]
+    fn series_cells_are_read_as_rfc_4180_has_them() {
+        let series =
+            parsed(b"\xEF\xBB\xBFdate,price\r\n2026-01-01,\"1.5\"\r\n2026-01-02, 2.5 \r\n")
+                .unwrap();
+        assert_eq!(series.values, [1.5, 2.5]);
+        let quoted = parsed(b"date,note,price\n2026-01-01,\"a\nb\",1\n2026-01-01,c,2\n");
+        // The second record starts on line 4, after the quoted line break; the first on line 2.
+        assert!(
+            quoted.as_ref().unwrap_err().contains("line 4"),
+            "{quoted:?}"
+        );
+        assert!(quoted.unwrap_err().contains("also on line 2"));
+    }
+
+    // A blank line is a row without a date, named at its own line, after any fault above it.
+    #[test]
+    fn a_blank_line_is_named_where_it_is() {
+        let text = b"date,price\n2026-01-01,1\n\n2026-01-02,2\n";
+        let error = parsed(text).unwrap_err();
+        assert!(
+            error.contains("line 3") && error.contains("`date` = \"\""),
+            "{error}"
+        );
+        let trailing = parsed(b"date,price\n2026-01-01,1\n\n").unwrap_err();
+        assert!(trailing.contains("line 3"), "{trailing}");
+        let earlier = parsed(b"date,price\n2026-01-01,x\n\n").unwrap_err();
+        assert!(
+            earlier.contains("line 2") && earlier.contains("\"x\""),
+            "{earlier}"
+        );
+        assert!(parsed(b"date,price\n2026-01-01,1\n").is_ok());
+    }
 
     // The direct reading of `YYYY-MM-DD` must agree with chrono's own parser (the reference) on
     // every form, valid or not, including impossible days and out-of-range months.
