@@ -225,7 +225,7 @@ pub fn inline(text: &str) -> String {
         if let Some(after) = rest.strip_prefix('\\') {
             match after.chars().next() {
                 Some(next) if "\\`*_|[]()#!-".contains(next) => {
-                    out.push_str(&escape(&next.to_string()));
+                    escape_char(&mut out, next);
                     rest = &after[next.len_utf8()..];
                 }
                 _ => {
@@ -236,7 +236,9 @@ pub fn inline(text: &str) -> String {
         } else if let Some(after) = rest.strip_prefix('`') {
             match after.split_once('`') {
                 Some((code, tail)) => {
-                    out.push_str(&format!("<code>{}</code>", escape(code)));
+                    out.push_str("<code>");
+                    escape_into(&mut out, code);
+                    out.push_str("</code>");
                     rest = tail;
                 }
                 None => {
@@ -256,8 +258,14 @@ pub fn inline(text: &str) -> String {
             out.push_str(&html);
             rest = tail;
         } else {
-            out.push_str(&escape(&c.to_string()));
-            rest = &rest[c.len_utf8()..];
+            // This character, and the run of plain text after it (up to the next character that
+            // can open a mark), as text.
+            let run = c.len_utf8()
+                + rest[c.len_utf8()..]
+                    .find(['\\', '`', '*', '[', '!'])
+                    .unwrap_or(rest.len() - c.len_utf8());
+            escape_into(&mut out, &rest[..run]);
+            rest = &rest[run..];
         }
     }
     if bold {
@@ -285,16 +293,30 @@ fn link(text: &str) -> Option<(String, &str)> {
 /// Escapes text for HTML content and attribute values.
 pub fn escape(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        match c {
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '&' => out.push_str("&amp;"),
-            '"' => out.push_str("&quot;"),
-            other => out.push(other),
-        }
-    }
+    escape_into(&mut out, text);
     out
+}
+
+/// [`escape`], appended to `out`.
+fn escape_into(out: &mut String, text: &str) {
+    let mut rest = text;
+    while let Some(at) = rest.find(['<', '>', '&', '"']) {
+        out.push_str(&rest[..at]);
+        escape_char(out, rest[at..].chars().next().expect("found"));
+        rest = &rest[at + 1..];
+    }
+    out.push_str(rest);
+}
+
+/// One character of [`escape`], appended to `out`.
+fn escape_char(out: &mut String, c: char) {
+    match c {
+        '<' => out.push_str("&lt;"),
+        '>' => out.push_str("&gt;"),
+        '&' => out.push_str("&amp;"),
+        '"' => out.push_str("&quot;"),
+        other => out.push(other),
+    }
 }
 
 #[cfg(test)]
