@@ -17,6 +17,9 @@ use super::leverage::{self, CapitalStructure, DebtBetaSource, DebtTerms, Formula
 use crate::beta::{self, vasicek, AdjustedBeta};
 use crate::stats::{self, Dispersion};
 
+mod listing;
+pub use listing::{unlevered_only, unlevering_needs_subject_cost_of_debt, UnleveredPeers};
+
 /// A peer's capital-structure terms as the chain used them.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PeerTerms {
@@ -202,9 +205,7 @@ fn shared(
         .map_err(ChainError::CostOfDebt)?;
     let terms = &mut buffers.terms;
     terms.clear();
-    for peer in peers {
-        terms.push(peer_terms(spec, peer, Some(kd))?);
-    }
+    terms.extend(peers.iter().map(|p| peer_terms(spec, p, kd)));
     let target_de = match spec.target {
         TargetSpec::PeerMedian => peer_median_debt_to_equity(peers, buffers),
         TargetSpec::DebtToEquity(de) => de,
@@ -356,93 +357,37 @@ pub fn wacc_with(
     Ok(equity_and_wacc(spec, spec.formula, aggregate, &shared).2)
 }
 
-/// Each peer's figures through unlevering under the spec's formula.
-#[derive(Debug, Clone)]
-pub struct UnleveredPeers {
-    pub adjusted: Vec<AdjustedBeta>,
-    pub terms: Vec<PeerTerms>,
-    pub unlevered: Vec<f64>,
-    /// The betas of the operations (cash taken out).
-    pub operations: Vec<f64>,
-}
-
-/// What a beta listing shows of each peer: the adjusted beta, the capital-structure terms and the
-/// unlevered betas under the spec's formula — no target, cost of equity or WACC, so nothing those
-/// need can break a listing.
-pub fn unlevered_only(
-    spec: &CapitalSpec<'_>,
-    peers: &[PeerCapital],
-) -> Result<UnleveredPeers, ChainError> {
-    let mut buffers = Buffers::default();
-    adjust(spec, peers, &mut buffers)?;
-    let adjusted = buffers.adjusted;
-    // The subject's cost of debt when the spec can give it: a given yield, or a spread table the
-    // caller read because an unlevered beta needs it ([`unlevering_needs_subject_cost_of_debt`]).
-    let kd = match spec.debt.source == debt::DebtSource::Given || spec.debt_table.is_some() {
-        true => Some(
-            debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
-                .map_err(ChainError::CostOfDebt)?,
-        ),
-        false => None,
-    };
-    let terms = peers
-        .iter()
-        .map(|p| peer_terms(spec, p, kd))
-        .collect::<Result<Vec<_>, _>>()?;
-    let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
-    let operations = operations_betas(&unlevered, &terms);
-    Ok(UnleveredPeers {
-        adjusted,
-        terms,
-        unlevered,
-        operations,
-    })
-}
-
-/// Whether a peer's unlevered beta reads the subject's cost of debt: Miles–Ezzell discounts the
-/// tax shield at the cost of debt, and a debt beta from the credit spread is read off it, for a
-/// peer without a cost of debt (or, for the spread, a debt beta) of its own. `own` holds each
-/// peer's own cost of debt and debt beta.
-pub fn unlevering_needs_subject_cost_of_debt(
-    formula: Formula,
-    debt_beta_source: DebtBetaSource,
-    own: impl IntoIterator<Item = (Option<f64>, Option<f64>)>,
-) -> bool {
-    own.into_iter().any(|(cost_of_debt, debt_beta)| {
-        cost_of_debt.is_none()
-            && (formula.uses_cost_of_debt()
-                || (debt_beta_source == DebtBetaSource::CreditSpread && debt_beta.is_none()))
-    })
-}
-
 /// A peer's D/E (with the debt measure), debt beta and cost of debt.
-fn peer_terms(
-    spec: &CapitalSpec<'_>,
-    peer: &PeerCapital,
-    subject_cost_of_debt: Option<f64>,
-) -> Result<PeerTerms, ChainError> {
-    let cost_of_debt = peer.own_cost_of_debt.or(subject_cost_of_debt);
-    let unread = || ChainError::CostOfDebt("the cost-of-debt spread table was not read".into());
+fn peer_terms(spec: &CapitalSpec<'_>, peer: &PeerCapital, subject_cost_of_debt: f64) -> PeerTerms {
+    let cost_of_debt = peer.own_cost_of_debt.unwrap_or(subject_cost_of_debt);
     let debt_beta = match spec.debt_beta_source {
         DebtBetaSource::None => 0.0,
         DebtBetaSource::Given => peer.own_debt_beta.unwrap_or(spec.debt_beta),
-        DebtBetaSource::CreditSpread => match (peer.own_debt_beta, cost_of_debt) {
-            (Some(own), _) => own,
-            (None, Some(kd)) => {
-                leverage::debt_beta_from_spread(kd, spec.risk_free_rate, spec.equity_risk_premium)
-            }
-            (None, None) => return Err(unread()),
-        },
+        DebtBetaSource::CreditSpread => peer
+            .own_debt_beta
+            .unwrap_or_else(|| debt_beta_from_spread(spec, cost_of_debt)),
     };
-    if spec.formula.uses_cost_of_debt() && cost_of_debt.is_none() {
-        return Err(unread());
-    }
-    Ok(PeerTerms {
+    terms_with(spec, peer, debt_beta, Some(cost_of_debt))
+}
+
+/// (Kd − rf) / ERP at the spec's rates.
+fn debt_beta_from_spread(spec: &CapitalSpec<'_>, cost_of_debt: f64) -> f64 {
+    leverage::debt_beta_from_spread(cost_of_debt, spec.risk_free_rate, spec.equity_risk_premium)
+}
+
+/// A peer's terms once its debt beta and cost of debt are known.
+fn terms_with(
+    spec: &CapitalSpec<'_>,
+    peer: &PeerCapital,
+    debt_beta: f64,
+    cost_of_debt: Option<f64>,
+) -> PeerTerms {
+    PeerTerms {
         debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
         debt_beta,
         cost_of_debt,
         operating_share: 1.0 - peer.cash / (peer.equity_value + peer.debt),
-    })
+    }
 }
 
 /// The subject's debt beta at the target structure.
@@ -450,11 +395,7 @@ fn subject_debt_beta(spec: &CapitalSpec<'_>, cost_of_debt: f64) -> f64 {
     match spec.debt_beta_source {
         DebtBetaSource::None => 0.0,
         DebtBetaSource::Given => spec.debt_beta,
-        DebtBetaSource::CreditSpread => leverage::debt_beta_from_spread(
-            cost_of_debt,
-            spec.risk_free_rate,
-            spec.equity_risk_premium,
-        ),
+        DebtBetaSource::CreditSpread => debt_beta_from_spread(spec, cost_of_debt),
     }
 }
 

@@ -44,15 +44,8 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
         line_start += raw.len() + 1;
         let raw = raw.strip_suffix(b"\r").unwrap_or(raw);
         if valid_up_to < start + raw.len() {
-            let column = valid_up_to - start + 1;
-            let byte = bytes[valid_up_to];
-            return Err(row_error(
-                line,
-                format!(
-                    "byte {column} (0x{byte:02X}) is not UTF-8 text; save the file as UTF-8 \
-                     (plain text)"
-                ),
-            ));
+            let message = not_utf8(valid_up_to - start + 1, bytes[valid_up_to]);
+            return Err(row_error(line, message));
         }
         if !in_quotes {
             (fields, record_line) = (1, line);
@@ -96,6 +89,11 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
         }
     }
     Ok(blank)
+}
+
+/// The message for a byte that is not UTF-8 text, at its 1-based column in its line.
+fn not_utf8(column: usize, byte: u8) -> String {
+    format!("byte {column} (0x{byte:02X}) is not UTF-8 text; save the file as UTF-8 (plain text)")
 }
 
 /// A line with nothing on it (or only a carriage return) inside a CSV file's rows.

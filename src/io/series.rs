@@ -181,23 +181,11 @@ pub fn parse_series(
             message,
         })?;
         if let Some(&previous) = dates.last() {
-            let order_error = |message: String| Error::DataRow {
+            check_order(date, previous, previous_line).map_err(|message| Error::DataRow {
                 file: file.to_path_buf(),
                 line,
                 message,
-            };
-            if date == previous {
-                return Err(order_error(format!(
-                    "duplicate date {date} (also on line {previous_line}); each date may appear \
-                     once"
-                )));
-            }
-            if date < previous {
-                return Err(order_error(format!(
-                    "date {date} comes after {previous} on line {previous_line}; rows must be \
-                     sorted by ascending date (sort the file; it is never reordered silently)"
-                )));
-            }
+            })?;
         }
         dates.push(date);
         values.push(value);
@@ -212,6 +200,26 @@ pub fn parse_series(
     let series = Series { dates, values };
     super::sanity::check_series_values(file, value_column, &series, kind)?;
     Ok(series)
+}
+
+/// A row's date against the row before it (on `previous_line`): strictly later.
+fn check_order(
+    date: NaiveDate,
+    previous: NaiveDate,
+    previous_line: usize,
+) -> std::result::Result<(), String> {
+    if date == previous {
+        return Err(format!(
+            "duplicate date {date} (also on line {previous_line}); each date may appear once"
+        ));
+    }
+    if date < previous {
+        return Err(format!(
+            "date {date} comes after {previous} on line {previous_line}; rows must be sorted by \
+             ascending date (sort the file; it is never reordered silently)"
+        ));
+    }
+    Ok(())
 }
 
 /// One row's date and value cells, parsed and checked against the kind's range; the message
