@@ -400,6 +400,15 @@ fn price_files() -> Vec<Bad> {
             [PEER, "line 848", "`date` = \"\""]
         ),
         bad!(
+            "lines ended by a carriage return alone",
+            |s| {
+                let text = s.read(PEER).replace('\n', "\r");
+                s.write(PEER, text);
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "line 1", "carriage return", "LF or CRLF"]
+        ),
+        bad!(
             "price is text",
             |s| s.set_value(PEER, LINE, "abc"),
             ["run", "{case}", "--out", "{out}"],

@@ -51,10 +51,11 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
             (fields, record_line) = (1, line);
         }
         // Quotes and commas are single bytes that UTF-8 never uses inside another character.
-        for &b in raw {
+        for (at, &b) in raw.iter().enumerate() {
             match b {
                 b'"' => in_quotes = !in_quotes,
                 b',' if !in_quotes => fields += 1,
+                b'\r' if !in_quotes => return Err(row_error(line, lone_carriage_return(at + 1))),
                 _ => {}
             }
         }
@@ -94,6 +95,15 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
 /// The message for a byte that is not UTF-8 text, at its 1-based column in its line.
 fn not_utf8(column: usize, byte: u8) -> String {
     format!("byte {column} (0x{byte:02X}) is not UTF-8 text; save the file as UTF-8 (plain text)")
+}
+
+/// The message for a carriage return that does not end a line, at its 1-based byte in the line:
+/// lines ended by CR alone (classic Mac OS), which every other reader here takes as one line.
+fn lone_carriage_return(column: usize) -> String {
+    format!(
+        "byte {column} is a carriage return inside the line: the file's lines end with CR alone; \
+         save it with LF or CRLF line ends"
+    )
 }
 
 /// A line with nothing on it (or only a carriage return) inside a CSV file's rows.
@@ -181,6 +191,9 @@ mod tests {
             "{bad}"
         );
         // Lines are judged in order: a line with too many fields before the bad byte is named.
+        let mac = shape(b"date,price\r2026-01-01,1.5\r2026-01-02,1.6\r");
+        assert!(mac.contains("line 1") && mac.contains("byte 11"), "{mac}");
+        assert_eq!(shape(b"date,name\n2026-01-01,\"a\rb\"\n"), "ok");
         let first = shape(b"date,price\n2026-01-01,1,5\n2026-01-02,\xff\n");
         assert!(
             first.contains("line 2") && first.contains("3 fields"),
