@@ -317,3 +317,58 @@ fn a_spread_table_fault_stops_only_the_listings_that_read_it() {
         );
     }
 }
+
+// The output folder holds one run's outputs: a chart or report an earlier run wrote and this
+// run does not (the bridge no longer asked for; figures off) is taken away with the commit and
+// listed, while files hurdle does not name as its own stay.
+#[test]
+fn charts_an_earlier_run_left_are_taken_away() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let first = run_into(&sandbox, &out, &[]);
+    assert!(first.status.success(), "{}", stderr(&first));
+    let bridge = out.join("figures/reconciliation.svg");
+    assert!(bridge.is_file() && out.join("report.html").is_file());
+    let own = ["figures/notes.txt", "figures/my-betas.svg", "notes.md"];
+    for name in own {
+        fs::write(out.join(name), "the user's own file").unwrap();
+    }
+
+    sandbox.map_lines("case.toml", |_, line| {
+        let reconcile = line == "[reconcile]" || line.starts_with("claimed = \"claimed.toml\"");
+        if reconcile {
+            String::new()
+        } else {
+            line.to_string()
+        }
+    });
+    let second = run_into(&sandbox, &out, &[]);
+    assert!(second.status.success(), "{}", stderr(&second));
+    assert!(
+        !bridge.exists(),
+        "the bridge chart of the first run is left"
+    );
+    let listed = String::from_utf8_lossy(&second.stdout);
+    assert!(
+        listed.contains("removed") && listed.contains("reconciliation.svg"),
+        "{listed}"
+    );
+    assert!(out.join("figures/betas.svg").is_file() && out.join("report.html").is_file());
+
+    let third = run_into(&sandbox, &out, &["--no-figures"]);
+    assert!(third.status.success(), "{}", stderr(&third));
+    assert!(!out.join("report.html").exists());
+    let charts: Vec<_> = fs::read_dir(out.join("figures"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|name| name != "notes.txt" && name != "my-betas.svg")
+        .collect();
+    assert!(charts.is_empty(), "{charts:?}");
+    for name in own {
+        assert_eq!(
+            fs::read_to_string(out.join(name)).unwrap(),
+            "the user's own file"
+        );
+    }
+    assert!(out.join("memo.md").is_file());
+}

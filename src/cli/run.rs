@@ -4,7 +4,8 @@
 //! `workbook.xlsx` (formulas that recompute the chain), the charts `figures/*.svg` and
 //! `report.html` to DIR (default: `output/` beside the case file),
 //! each atomically and only after all of them rendered; prints a short summary. `--no-figures`
-//! writes the text outputs only (no charts, no report).
+//! writes the text outputs only (no charts, no report). Charts and a report an earlier run left
+//! in DIR that this run does not write are taken away with the same commit, and listed.
 
 use std::path::PathBuf;
 
@@ -45,12 +46,22 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let stage = report::staging::Stage::begin(&out, &reads)?;
+    let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
+    let stale = report::stale_run_outputs(&out, &names);
+    for name in &stale {
+        stage.retire(name);
+    }
     let written = stage.commit(&names)?;
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());
+    }
+    for name in &stale {
+        println!(
+            "  removed {} (an earlier run's; this run does not write it)",
+            out.join(name).display()
+        );
     }
     Ok(())
 }

@@ -15,8 +15,13 @@ pub mod universe;
 pub mod verification;
 pub mod workbook;
 
+use std::path::Path;
+
 use crate::error::Result;
 use crate::valuation::Valuation;
+
+/// The HTML report's file name in the output folder.
+pub const REPORT: &str = "report.html";
 
 /// One output file format.
 pub trait Render: Sync {
@@ -65,6 +70,30 @@ pub fn render_run(
     Ok(names)
 }
 
+/// The files an earlier `hurdle run` wrote into `dir` that this run, writing `written`, does not
+/// write again: charts named as a run names them ([`figures::is_chart_name`]; a peer no longer in
+/// the case, a bridge no longer asked for) and the report (a run with `figures` off). Left there,
+/// they would sit beside the new memo as if they belonged to it. Sorted.
+pub fn stale_run_outputs(dir: &Path, written: &[String]) -> Vec<String> {
+    let mut names = vec![REPORT.to_string()];
+    if let Ok(entries) = std::fs::read_dir(dir.join(figures::FOLDER)) {
+        names.extend(entries.flatten().map(|entry| {
+            format!(
+                "{}/{}",
+                figures::FOLDER,
+                entry.file_name().to_string_lossy()
+            )
+        }));
+    }
+    let mut stale: Vec<String> = names
+        .into_iter()
+        .filter(|name| name == REPORT || figures::is_chart_name(name))
+        .filter(|name| !written.contains(name) && dir.join(name).is_file())
+        .collect();
+    stale.sort();
+    stale
+}
+
 /// The memo, then the charts and the report when `with_figures`, each into `stage`; returns the
 /// memo's name and the others'.
 fn render_visual(
@@ -86,8 +115,8 @@ fn render_visual(
     let text = memo.render(valuation)?;
     if with_figures {
         let report = figures::report::page(&String::from_utf8_lossy(&text), &drawn);
-        stage.add("report.html", report.as_bytes())?;
-        names.push("report.html".to_string());
+        stage.add(REPORT, report.as_bytes())?;
+        names.push(REPORT.to_string());
     }
     stage.add(memo.file_name(), &text)?;
     Ok((memo.file_name().to_string(), names))

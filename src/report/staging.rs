@@ -57,6 +57,8 @@ pub struct Stage {
     staging: Option<tempfile::TempDir>,
     /// Each staged file's flush.
     flushes: Mutex<Vec<(PathBuf, Flush)>>,
+    /// Files of an earlier group in `dir` that this group takes away ([`Stage::retire`]).
+    retired: Vec<String>,
 }
 
 impl Stage {
@@ -79,6 +81,7 @@ impl Stage {
             created,
             staging: None,
             flushes: Mutex::new(Vec::new()),
+            retired: Vec::new(),
         };
         let staging = staging_folder(dir)?;
         if let Ok(mut folders) = STAGING.lock() {
@@ -153,16 +156,27 @@ impl Stage {
         Ok(())
     }
 
+    /// Marks a file of an earlier group in the folder, which this group does not write, to be
+    /// taken away with the commit: set aside with the replaced files, so that a failed commit
+    /// puts it back. A file this run reads is never taken away.
+    pub fn retire(&mut self, name: &str) {
+        let reads_it = fs::canonicalize(self.dir.join(name))
+            .is_ok_and(|canonical| self.inputs.iter().any(|(input, _)| *input == canonical));
+        if !reads_it {
+            self.retired.push(name.to_string());
+        }
+    }
+
     /// Waits for every flush, then moves the files named in `names` (each added) into place, in
-    /// that order; returns their paths.
+    /// that order, and takes away the retired files; returns the written files' paths.
     pub fn commit(mut self, names: &[String]) -> Result<Vec<PathBuf>> {
         self.wait_for_flushes()?;
         crate::progress::check_stop()?;
         MOVING.store(true, Ordering::SeqCst);
-        let moved = move_into_place(self.staging(), &self.dir, names);
+        let moved = move_into_place(self.staging(), &self.dir, names, &self.retired);
         MOVING.store(false, Ordering::SeqCst);
         let moved = moved?;
-        discard_previous(self.staging(), names);
+        discard_previous(self.staging(), names.iter().chain(&self.retired));
         self.created.clear(); // They hold the outputs now.
         Ok(moved)
     }
@@ -282,7 +296,7 @@ fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
 /// Removes the replaced files kept in `staging/previous`, side by side: freeing a file's blocks
 /// waits on the file system's journal (a fraction of a millisecond each), not on a core. What is
 /// left (a file that could not be removed) goes with the staging folder.
-fn discard_previous(staging: &Path, names: &[String]) {
+fn discard_previous<'a>(staging: &Path, names: impl Iterator<Item = &'a String>) {
     let previous = staging.join("previous");
     std::thread::scope(|scope| {
         for name in names {
@@ -296,14 +310,20 @@ fn discard_previous(staging: &Path, names: &[String]) {
     });
 }
 
-/// Moves each staged file onto its target, keeping the file it replaces in `staging/previous`;
-/// on the first failure undoes every move and puts the replaced files back.
-fn move_into_place(staging: &Path, dir: &Path, names: &[String]) -> Result<Vec<PathBuf>> {
+/// Moves each staged file onto its target, keeping the file it replaces in `staging/previous`,
+/// then sets each retired file aside there too; on the first failure undoes every move and puts
+/// the set-aside files back.
+fn move_into_place(
+    staging: &Path,
+    dir: &Path,
+    names: &[String],
+    retired: &[String],
+) -> Result<Vec<PathBuf>> {
     let previous = staging.join("previous");
     fs::create_dir(&previous).map_err(io_error(&previous, "cannot create"))?;
     let mut moved: Vec<PathBuf> = Vec::new();
     let mut kept: Vec<(PathBuf, PathBuf)> = Vec::new();
-    let mut step = |name: &str| -> Result<()> {
+    let mut step = |name: &str, retiring: bool| -> Result<()> {
         let target = dir.join(name);
         for folder in [target.parent(), previous.join(name).parent()]
             .into_iter()
@@ -317,13 +337,17 @@ fn move_into_place(staging: &Path, dir: &Path, names: &[String]) -> Result<Vec<P
                 .map_err(io_error(&target, "cannot set aside the previous"))?;
             kept.push((backup, target.clone()));
         }
+        if retiring {
+            return Ok(());
+        }
         fs::rename(staging.join(name), &target)
             .map_err(io_error(&target, "cannot move the new file onto"))?;
         moved.push(target);
         Ok(())
     };
-    for name in names {
-        if let Err(error) = step(name) {
+    let steps = names.iter().map(|n| (n, false));
+    for (name, retiring) in steps.chain(retired.iter().map(|n| (n, true))) {
+        if let Err(error) = step(name, retiring) {
             for target in &moved {
                 let _ = fs::remove_file(target);
             }
@@ -403,21 +427,45 @@ mod tests {
         let out = root.path().join("out");
         fs::create_dir(&out).unwrap();
         fs::write(out.join("a.txt"), "old a").unwrap();
-        let stage = Stage::begin(&out, &[]).unwrap();
+        fs::write(out.join("c.txt"), "old c").unwrap();
+        let mut stage = Stage::begin(&out, &[]).unwrap();
         for (name, bytes) in files() {
             stage.add(&name, &bytes).unwrap();
         }
+        stage.retire("c.txt");
         stage.wait_for_flushes().unwrap();
         fs::remove_file(stage.staging().join("b.txt")).unwrap();
         let names: Vec<String> = files().into_iter().map(|(name, _)| name).collect();
         assert!(stage.commit(&names).is_err());
         assert_eq!(fs::read(out.join("a.txt")).unwrap(), b"old a");
-        assert_eq!(listing(&out), vec!["a.txt"]);
+        assert_eq!(fs::read(out.join("c.txt")).unwrap(), b"old c");
+        assert_eq!(listing(&out), vec!["a.txt", "c.txt"]);
         assert_eq!(
             listing(root.path()),
             vec!["out"],
             "no temporary folder is left"
         );
+    }
+
+    // A retired file goes with the commit; one the run reads is never retired.
+    #[test]
+    fn retired_files_go_with_the_commit_and_inputs_stay() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("out");
+        fs::create_dir(&out).unwrap();
+        fs::write(out.join("c.txt"), "old c").unwrap();
+        fs::write(out.join("input.txt"), "input").unwrap();
+        let reads = vec![(out.join("input.txt"), "a price file".to_string())];
+        let mut stage = Stage::begin(&out, &reads).unwrap();
+        for (name, bytes) in files() {
+            stage.add(&name, &bytes).unwrap();
+        }
+        stage.retire("c.txt");
+        stage.retire("input.txt");
+        let names: Vec<String> = files().into_iter().map(|(name, _)| name).collect();
+        stage.commit(&names).unwrap();
+        assert_eq!(listing(&out), vec!["a.txt", "b.txt", "input.txt"]);
+        assert_eq!(listing(root.path()), vec!["out"]);
     }
 
     #[test]

@@ -125,6 +125,34 @@ pub fn index(figures: &[Figure]) -> Index {
     index
 }
 
+/// Whether `name` (relative to the output folder) is named as `hurdle run` names a chart:
+/// `figures/betas.svg`, `stability`, `sensitivity`, `uncertainty`, `reconciliation`, or
+/// `figures/regression-NN-<slug>.svg`. A run takes away such a file of an earlier run that it
+/// does not draw again; any other file in the folder is left alone.
+pub fn is_chart_name(name: &str) -> bool {
+    let Some(file) = name
+        .strip_prefix(FOLDER)
+        .and_then(|rest| rest.strip_prefix('/'))
+        .and_then(|rest| rest.strip_suffix(".svg"))
+    else {
+        return false;
+    };
+    if let Some(rest) = file.strip_prefix("regression-") {
+        let digits = rest.bytes().take_while(u8::is_ascii_digit).count();
+        let slug = &rest[digits..];
+        return digits >= 2
+            && (slug.is_empty()
+                || slug.strip_prefix('-').is_some_and(|s| {
+                    s.bytes()
+                        .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'-')
+                }));
+    }
+    matches!(
+        file,
+        "betas" | "stability" | "sensitivity" | "uncertainty" | "reconciliation"
+    )
+}
+
 /// A file-name part from a peer's name: lower-case ASCII letters and digits, other runs of
 /// characters as one hyphen, at most 40 characters.
 pub fn slug(name: &str) -> String {
@@ -173,7 +201,30 @@ pub fn per_period(valuation: &Valuation) -> &'static str {
 
 #[cfg(test)]
 mod tests {
-    use super::slug;
+    use super::{is_chart_name, slug};
+
+    #[test]
+    fn chart_names_are_recognised_and_nothing_else() {
+        for name in [
+            "figures/betas.svg",
+            "figures/regression-01-brenvale-fluid-systems.svg",
+            "figures/regression-12.svg",
+            "figures/reconciliation.svg",
+        ] {
+            assert!(is_chart_name(name), "{name}");
+        }
+        for name in [
+            "figures/notes.txt",
+            "figures/my-betas.svg",
+            "figures/regression-1-a.svg",
+            "figures/regression-01-Upper.svg",
+            "figures/sub/betas.svg",
+            "betas.svg",
+            "report.html",
+        ] {
+            assert!(!is_chart_name(name), "{name}");
+        }
+    }
 
     #[test]
     fn slugs_are_safe_file_names() {
