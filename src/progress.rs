@@ -9,14 +9,22 @@
 
 use std::io::IsTerminal;
 use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::OnceLock;
 use std::time::{Duration, Instant};
 
-use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
 
 use crate::error::{Error, Result};
 
 /// Set once a stop has been requested; never cleared (one process runs one command).
 static STOP: AtomicBool = AtomicBool::new(false);
+
+/// Every shown bar, one line each: the analyses run side by side (the grid, the two Monte Carlo
+/// intervals), and bars drawn on their own would overwrite each other's line.
+fn shown_bars() -> &'static MultiProgress {
+    static BARS: OnceLock<MultiProgress> = OnceLock::new();
+    BARS.get_or_init(|| MultiProgress::with_draw_target(ProgressDrawTarget::stderr()))
+}
 
 /// How long work runs before a bar appears: shorter work would only flicker.
 const SHOW_AFTER: Duration = Duration::from_secs(1);
@@ -71,7 +79,7 @@ impl Progress {
         self.bar.inc(1);
         // Reading the clock on every step costs nanoseconds against microseconds of work.
         if self.terminal && !self.shown && self.started.elapsed() >= SHOW_AFTER {
-            self.bar.set_draw_target(ProgressDrawTarget::stderr());
+            self.bar = shown_bars().add(self.bar.clone());
             self.shown = true;
         }
         Ok(())
@@ -82,5 +90,8 @@ impl Drop for Progress {
     /// Clears the bar whether the work finished or failed, so no half-drawn line remains.
     fn drop(&mut self) {
         self.bar.finish_and_clear();
+        if self.shown {
+            shown_bars().remove(&self.bar);
+        }
     }
 }
