@@ -190,10 +190,12 @@ mod tests {
             bad.contains("line 3") && bad.contains("byte 4 (0xFE)"),
             "{bad}"
         );
-        // Lines are judged in order: a line with too many fields before the bad byte is named.
+        // Lines ended by a carriage return alone are refused at the first one; a carriage return
+        // inside a quoted cell is text.
         let mac = shape(b"date,price\r2026-01-01,1.5\r2026-01-02,1.6\r");
         assert!(mac.contains("line 1") && mac.contains("byte 11"), "{mac}");
         assert_eq!(shape(b"date,name\n2026-01-01,\"a\rb\"\n"), "ok");
+        // Lines are judged in order: a line with too many fields before the bad byte is named.
         let first = shape(b"date,price\n2026-01-01,1,5\n2026-01-02,\xff\n");
         assert!(
             first.contains("line 2") && first.contains("3 fields"),

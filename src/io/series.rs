@@ -3,9 +3,8 @@
 //! Files are CSV with a header row; the csv crate splits them into records (a price file is a few
 //! thousand short lines, for which polars' parallel reader costs more in setting up than in
 //! reading), and each cell is then parsed here so that a bad value is reported with its file,
-//! line and content. A series
-//! must be strictly ascending in date: a duplicate or an out-of-order date is an error naming
-//! both lines, never silently sorted or de-duplicated. The bytes that are parsed are the bytes
+//! line and content. A series must be strictly ascending in date: a duplicate or an
+//! out-of-order date is an error naming both lines, never silently sorted or de-duplicated. The bytes that are parsed are the bytes
 //! that are hashed, so the receipt's SHA-256 describes exactly what was used.
 //!
 //! Sampling works on [`SeriesView`], a borrowed pair of date and value slices, so a long-format
@@ -161,7 +160,8 @@ pub fn parse_series(
     let mut record = csv::StringRecord::new();
     let mut previous_line = 0;
     while reader.read_record(&mut record).map_err(unreadable)? {
-        let start = record.position().expect("the reader records positions");
+        // read_record sets every record's position; the reader's own is the fallback.
+        let start = record.position().unwrap_or(reader.position()).clone();
         // A record after a skipped blank line starts, for the reader, at the blank line.
         if let Some(blank) = blank.filter(|b| start.byte() as usize >= b.byte) {
             return Err(blank_row(blank));

@@ -85,7 +85,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         ),
     ];
     let layout = Layout::new(WIDTH, plot, &title, &legend, &caption);
-    let name = "figures/betas.svg".to_string();
+    let name = super::BETAS.to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;

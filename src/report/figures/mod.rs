@@ -29,6 +29,15 @@ use crate::valuation::Valuation;
 /// The folder, inside the output folder, that holds the charts.
 pub const FOLDER: &str = "figures";
 
+/// The charts' file names in the output folder (a regression chart's continues with its number
+/// and the peer's slug); [`is_chart_name`] recognises exactly these.
+pub const BETAS: &str = "figures/betas.svg";
+pub const STABILITY: &str = "figures/stability.svg";
+pub const SENSITIVITY: &str = "figures/sensitivity.svg";
+pub const UNCERTAINTY: &str = "figures/uncertainty.svg";
+pub const RECONCILIATION: &str = "figures/reconciliation.svg";
+pub const REGRESSION_PREFIX: &str = "figures/regression-";
+
 /// Which chart a figure is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "snake_case")]
@@ -125,32 +134,27 @@ pub fn index(figures: &[Figure]) -> Index {
     index
 }
 
-/// Whether `name` (relative to the output folder) is named as `hurdle run` names a chart:
-/// `figures/betas.svg`, `stability`, `sensitivity`, `uncertainty`, `reconciliation`, or
-/// `figures/regression-NN-<slug>.svg`. A run takes away such a file of an earlier run that it
+/// Whether `name` (relative to the output folder) is named as `hurdle run` names a chart: one
+/// of the fixed names above, or `figures/regression-NN-<slug>.svg`. A run takes away such a file of an earlier run that it
 /// does not draw again; any other file in the folder is left alone.
 pub fn is_chart_name(name: &str) -> bool {
-    let Some(file) = name
-        .strip_prefix(FOLDER)
-        .and_then(|rest| rest.strip_prefix('/'))
+    if [BETAS, STABILITY, SENSITIVITY, UNCERTAINTY, RECONCILIATION].contains(&name) {
+        return true;
+    }
+    let Some(rest) = name
+        .strip_prefix(REGRESSION_PREFIX)
         .and_then(|rest| rest.strip_suffix(".svg"))
     else {
         return false;
     };
-    if let Some(rest) = file.strip_prefix("regression-") {
-        let digits = rest.bytes().take_while(u8::is_ascii_digit).count();
-        let slug = &rest[digits..];
-        return digits >= 2
-            && (slug.is_empty()
-                || slug.strip_prefix('-').is_some_and(|s| {
-                    s.bytes()
-                        .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'-')
-                }));
-    }
-    matches!(
-        file,
-        "betas" | "stability" | "sensitivity" | "uncertainty" | "reconciliation"
-    )
+    let digits = rest.bytes().take_while(u8::is_ascii_digit).count();
+    let slug = &rest[digits..];
+    digits >= 2
+        && (slug.is_empty()
+            || slug.strip_prefix('-').is_some_and(|s| {
+                s.bytes()
+                    .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'-')
+            }))
 }
 
 /// A file-name part from a peer's name: lower-case ASCII letters and digits, other runs of

@@ -109,7 +109,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         (Mark::Swatch(MUTED), "WACC".to_string()),
     ];
     let layout = Layout::new(WIDTH, ROW * rows as u32 + 60, &title, &legend, &caption);
-    let name = "figures/reconciliation.svg".to_string();
+    let name = super::RECONCILIATION.to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;

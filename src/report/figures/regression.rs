@@ -52,7 +52,8 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
         y_ticks: true,
     };
     let name = format!(
-        "figures/regression-{:02}-{}.svg",
+        "{}{:02}-{}.svg",
+        super::REGRESSION_PREFIX,
         index + 1,
         slug(&peer.name)
     );

@@ -103,7 +103,7 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
     let title = format!("{metric} sensitivity: the case's figure as two inputs vary");
     let caption = caption(valuation, grid, metric);
     let layout = Layout::new(WIDTH, CELL_HEIGHT * rows as u32 + 70, &title, &[], &caption);
-    let name = "figures/sensitivity.svg".to_string();
+    let name = super::SENSITIVITY.to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &[]))?;
     axes.draw(&mut canvas, &layout)?;

@@ -88,7 +88,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         &legend,
         &caption,
     );
-    let name = "figures/stability.svg".to_string();
+    let name = super::STABILITY.to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     canvas.layer("axis-titles", |root| {

@@ -58,7 +58,7 @@ pub fn draw(u: &Uncertainty) -> Result<Figure> {
         (Mark::Line(ACCENT), "point estimate".to_string()),
     ];
     let layout = Layout::new(WIDTH, PLOT, &title, &legend, &caption);
-    let name = "figures/uncertainty.svg".to_string();
+    let name = super::UNCERTAINTY.to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
