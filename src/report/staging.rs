@@ -98,13 +98,21 @@ impl Stage {
             .path()
     }
 
+    /// The role of the file at `canonical` when this run reads it.
+    fn input_role(&self, canonical: &Path) -> Option<&String> {
+        self.inputs
+            .iter()
+            .find(|(input, _)| input == canonical)
+            .map(|(_, role)| role)
+    }
+
     /// Refuses a target that is an input or a folder.
     pub fn check_target(&self, name: &str) -> Result<()> {
         let target = self.dir.join(name);
         let Ok(canonical) = fs::canonicalize(&target) else {
             return Ok(()); // Nothing there yet, so nothing to overwrite.
         };
-        if let Some((_, role)) = self.inputs.iter().find(|(input, _)| *input == canonical) {
+        if let Some(role) = self.input_role(&canonical) {
             return Err(refusal(
                 &self.dir,
                 format!(
@@ -161,7 +169,7 @@ impl Stage {
     /// puts it back. A file this run reads is never taken away.
     pub fn retire(&mut self, name: &str) {
         let reads_it = fs::canonicalize(self.dir.join(name))
-            .is_ok_and(|canonical| self.inputs.iter().any(|(input, _)| *input == canonical));
+            .is_ok_and(|canonical| self.input_role(&canonical).is_some());
         if !reads_it {
             self.retired.push(name.to_string());
         }
