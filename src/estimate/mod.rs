@@ -184,12 +184,7 @@ fn sample_returns(
     window: &Window,
     prices: SeriesView<'_>,
 ) -> (Vec<Option<f64>>, Vec<bool>) {
-    let (samples, stale) =
-        sampling::sample_with_staleness(&window.grid, prices, spec.max_stale_days);
-    (
-        sampling::period_returns(&samples, spec.returns),
-        sampling::stale_returns(&stale),
-    )
+    sampling::sampled_returns(&window.grid, prices, spec.max_stale_days, spec.returns)
 }
 
 /// The fitted line and its band over the range of the index returns the regression saw.

@@ -7,6 +7,8 @@
 //! both of its ends. The asset, the index and the risk-free series are aligned on the periods
 //! where all of them have a value, and each dropped period is counted by reason.
 
+use std::borrow::Cow;
+
 use chrono::{Datelike, NaiveDate, Weekday};
 use serde::{Deserialize, Serialize};
 
@@ -70,6 +72,16 @@ pub enum ReturnType {
     Simple,
     /// ln(p(t)/p(t − 1)).
     Log,
+}
+
+impl ReturnType {
+    /// The return from price `previous` to price `current`.
+    pub fn between(self, previous: f64, current: f64) -> f64 {
+        match self {
+            ReturnType::Simple => current / previous - 1.0,
+            ReturnType::Log => (current / previous).ln(),
+        }
+    }
 }
 
 /// The sampling rule of a frequency, in words (README "Sampling", the memo).
@@ -184,10 +196,13 @@ pub fn periods_between(
 
 /// Returns between consecutive samples of the chosen type; `None` where either is missing.
 pub fn period_returns(samples: &[Option<f64>], return_type: ReturnType) -> Vec<Option<f64>> {
-    match return_type {
-        ReturnType::Simple => simple_returns(samples),
-        ReturnType::Log => returns_by(samples, |previous, current| (current / previous).ln()),
-    }
+    samples
+        .windows(2)
+        .map(|pair| match (pair[0], pair[1]) {
+            (Some(previous), Some(current)) => Some(return_type.between(previous, current)),
+            _ => None,
+        })
+        .collect()
 }
 
 /// As [`sample`] (one pass, O(rows + periods)), but a sample whose last price is dated more than `max_stale_days` calendar
@@ -199,6 +214,49 @@ pub fn sample_with_staleness(
 ) -> (Vec<Option<f64>>, Vec<bool>) {
     let mut samples = Vec::with_capacity(grid.boundaries.len() - 1);
     let mut stale = Vec::with_capacity(grid.boundaries.len() - 1);
+    for_each_sample(grid, series, max_stale_days, |sample, is_stale| {
+        samples.push(sample);
+        stale.push(is_stale);
+    });
+    (samples, stale)
+}
+
+/// The period returns of [`period_returns`] over the samples of [`sample_with_staleness`], and
+/// per return whether either of its samples was stale ([`stale_returns`]), in the same pass as
+/// the sampling: the same figures without the two vectors of samples in between (a whole
+/// market samples millions of periods).
+pub fn sampled_returns(
+    grid: &PeriodGrid,
+    series: SeriesView<'_>,
+    max_stale_days: Option<u32>,
+    return_type: ReturnType,
+) -> (Vec<Option<f64>>, Vec<bool>) {
+    let periods = grid.boundaries.len().saturating_sub(2);
+    let mut returns = Vec::with_capacity(periods);
+    let mut stale = Vec::with_capacity(periods);
+    let mut previous: Option<(Option<f64>, bool)> = None;
+    for_each_sample(grid, series, max_stale_days, |sample, is_stale| {
+        if let Some((before, was_stale)) = previous {
+            returns.push(match (before, sample) {
+                (Some(before), Some(now)) => Some(return_type.between(before, now)),
+                _ => None,
+            });
+            stale.push(was_stale || is_stale);
+        }
+        previous = Some((sample, is_stale));
+    });
+    (returns, stale)
+}
+
+/// Calls `each(sample, stale)` for every sample point of `grid` in order: the last value dated
+/// inside the point's period (`None` when there is none, or when it is older than
+/// `max_stale_days`, which also sets `stale`).
+fn for_each_sample(
+    grid: &PeriodGrid,
+    series: SeriesView<'_>,
+    max_stale_days: Option<u32>,
+    mut each: impl FnMut(Option<f64>, bool),
+) {
     let mut i = 0;
     let dates = series.dates;
     while i < dates.len() && dates[i] <= grid.boundaries[0] {
@@ -214,17 +272,10 @@ pub fn sample_with_staleness(
             max_stale_days.is_some_and(|limit| (end - date).num_days() > i64::from(limit))
         };
         match last {
-            Some((date, _)) if too_old(date) => {
-                samples.push(None);
-                stale.push(true);
-            }
-            other => {
-                samples.push(other.map(|(_, v)| v));
-                stale.push(false);
-            }
+            Some((date, _)) if too_old(date) => each(None, true),
+            other => each(other.map(|(_, v)| v), false),
         }
     }
-    (samples, stale)
 }
 
 /// Per return period: whether either of its two samples was stale.
@@ -301,18 +352,7 @@ pub fn sample(grid: &PeriodGrid, series: SeriesView<'_>) -> Vec<Option<f64>> {
 
 /// Simple returns p_t / p_{t−1} − 1 between consecutive samples; `None` where either is missing.
 pub fn simple_returns(samples: &[Option<f64>]) -> Vec<Option<f64>> {
-    returns_by(samples, |previous, current| current / previous - 1.0)
-}
-
-/// Applies `f(previous, current)` to each pair of consecutive samples present.
-fn returns_by(samples: &[Option<f64>], f: impl Fn(f64, f64) -> f64) -> Vec<Option<f64>> {
-    samples
-        .windows(2)
-        .map(|pair| match (pair[0], pair[1]) {
-            (Some(previous), Some(current)) => Some(f(previous, current)),
-            _ => None,
-        })
-        .collect()
+    period_returns(samples, ReturnType::Simple)
 }
 
 /// Converts an annualised yield to the rate of one period by compounding:
@@ -372,21 +412,21 @@ pub struct AlignedReturns {
 }
 
 impl AlignedReturns {
-    /// Asset returns less the risk-free rate (or the raw returns when there is none).
-    pub fn asset_excess(&self) -> Vec<f64> {
+    /// Asset returns less the risk-free rate (or the raw returns, borrowed, when there is none).
+    pub fn asset_excess(&self) -> Cow<'_, [f64]> {
         subtract(&self.asset, self.risk_free.as_deref())
     }
 
-    /// Market returns less the risk-free rate (or the raw returns when there is none).
-    pub fn market_excess(&self) -> Vec<f64> {
+    /// Market returns less the risk-free rate (or the raw returns, borrowed, when there is none).
+    pub fn market_excess(&self) -> Cow<'_, [f64]> {
         subtract(&self.market, self.risk_free.as_deref())
     }
 }
 
-fn subtract(returns: &[f64], risk_free: Option<&[f64]>) -> Vec<f64> {
+fn subtract<'a>(returns: &'a [f64], risk_free: Option<&[f64]>) -> Cow<'a, [f64]> {
     match risk_free {
-        Some(rf) => returns.iter().zip(rf).map(|(r, f)| r - f).collect(),
-        None => returns.to_vec(),
+        Some(rf) => Cow::Owned(returns.iter().zip(rf).map(|(r, f)| r - f).collect()),
+        None => Cow::Borrowed(returns),
     }
 }
 
@@ -428,6 +468,10 @@ pub fn align_with_shifts(
             })
             .collect(),
     };
+    if offsets.is_empty() {
+        align_unshifted(&mut aligned, period_ends, asset, market, risk_free, first);
+        return aligned;
+    }
     let market_excess_at = |j: usize| -> Option<f64> {
         let m = market[j]?;
         match risk_free {
@@ -472,6 +516,57 @@ pub fn align_with_shifts(
         }
     }
     aligned
+}
+
+/// [`align_with_shifts`] without shifted index columns (OLS): the same rule and counts, into
+/// local vectors and counters the compiler keeps in registers (a whole market aligns millions of
+/// periods).
+fn align_unshifted(
+    aligned: &mut AlignedReturns,
+    period_ends: &[NaiveDate],
+    asset: &[Option<f64>],
+    market: &[Option<f64>],
+    risk_free: Option<&[Option<f64>]>,
+    first: usize,
+) {
+    let capacity = period_ends.len().saturating_sub(first);
+    let mut ends = std::mem::take(&mut aligned.period_ends);
+    let mut asset_kept = std::mem::take(&mut aligned.asset);
+    let mut market_kept = std::mem::take(&mut aligned.market);
+    let mut risk_free_kept = aligned.risk_free.take().unwrap_or_default();
+    let (mut asset_missing, mut market_missing, mut risk_free_missing) = (0, 0, 0);
+    for j in first..period_ends.len() {
+        let (a, m) = (asset[j], market[j]);
+        asset_missing += usize::from(a.is_none());
+        market_missing += usize::from(m.is_none());
+        let f = match risk_free {
+            Some(rf) => match rf[j] {
+                Some(f) => Some(f),
+                None => {
+                    risk_free_missing += 1;
+                    continue;
+                }
+            },
+            None => None,
+        };
+        if let (Some(a), Some(m)) = (a, m) {
+            ends.push(period_ends[j]);
+            asset_kept.push(a);
+            market_kept.push(m);
+            if let Some(f) = f {
+                risk_free_kept.push(f);
+            }
+        }
+    }
+    let dropped = &mut aligned.dropped;
+    dropped.asset_missing += asset_missing;
+    dropped.market_missing += market_missing;
+    dropped.risk_free_missing += risk_free_missing;
+    dropped.total += capacity - ends.len();
+    aligned.period_ends = ends;
+    aligned.asset = asset_kept;
+    aligned.market = market_kept;
+    aligned.risk_free = risk_free.map(|_| risk_free_kept);
 }
 
 impl AlignedReturns {
@@ -693,6 +788,17 @@ mod tests {
         assert_eq!(samples[1], None);
         assert_eq!(stale, vec![false, true, false, false, false]);
         assert_eq!(stale_returns(&stale), vec![true, true, false, false]);
+        // The one-pass form the estimation uses gives the same returns and flags as sampling,
+        // then taking returns, then flagging them (both return types, with and without a limit).
+        for limit in [None, Some(0), Some(1)] {
+            for kind in [ReturnType::Simple, ReturnType::Log] {
+                let (samples, stale) = sample_with_staleness(&grid, view, limit);
+                assert_eq!(
+                    sampled_returns(&grid, view, limit, kind),
+                    (period_returns(&samples, kind), stale_returns(&stale))
+                );
+            }
+        }
         // Thursday sampling of the same data: the weekday is configurable.
         let thursday = PeriodGrid::ending_at_with(
             Frequency::Weekly,

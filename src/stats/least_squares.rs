@@ -134,7 +134,14 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
         )));
     }
     let q = qr.q();
-    let leverages: Vec<f64> = q.row_iter().map(|row| row.norm_squared()).collect();
+    // Each row's sum of squares, added column by column from zero as nalgebra's `norm_squared`
+    // of the row adds them (the same figures), over the columns' contiguous storage.
+    let mut leverages = vec![0.0; n];
+    for column in q.as_slice().chunks_exact(n) {
+        for (h, v) in leverages.iter_mut().zip(column) {
+            *h += v * v;
+        }
+    }
     let mut qty = y.clone();
     qr.q_tr_mul(&mut qty);
     let qty = qty.rows(0, k).into_owned();
@@ -144,7 +151,11 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
     let coefficients: Vec<f64> = (0..k).map(|j| scaled_coefficients[j] / norms[j]).collect();
 
     let fitted = design * DVector::from_column_slice(&coefficients);
-    let residuals: Vec<f64> = (0..n).map(|i| response[i] - fitted[i]).collect();
+    let residuals: Vec<f64> = response
+        .iter()
+        .zip(fitted.as_slice())
+        .map(|(y, f)| y - f)
+        .collect();
     let ssr: f64 = residuals.iter().map(|e| e * e).sum();
     let df = n - k;
     let sigma2 = ssr / df as f64;
@@ -275,13 +286,14 @@ pub fn with_std_errors(
 /// The design matrix [1, x₁, …, x_m] for regressor columns given as slices of equal length.
 pub fn design_with_intercept(columns: &[&[f64]]) -> DMatrix<f64> {
     let n = columns.first().map_or(0, |c| c.len());
-    DMatrix::from_fn(n, columns.len() + 1, |i, j| {
-        if j == 0 {
-            1.0
-        } else {
-            columns[j - 1][i]
-        }
-    })
+    // Column-major storage: the ones, then each column as given.
+    let mut data = Vec::with_capacity(n * (columns.len() + 1));
+    data.resize(n, 1.0);
+    for column in columns {
+        assert_eq!(column.len(), n, "regressor columns of equal length");
+        data.extend_from_slice(column);
+    }
+    DMatrix::from_vec(n, columns.len() + 1, data)
 }
 
 #[cfg(test)]
