@@ -354,14 +354,13 @@ fn shown(value: Option<f64>) -> String {
         .map_or_else(|| "–".to_string(), |v| fixed(v, 3))
 }
 
-/// `summary.md`: what was run, the industry table, the counts and the cautions.
 /// The industry table for people: counts, the levered betas' median and quartiles, the median
 /// D/E and the unlevered aggregates.
 fn industry_table(out: &mut String, r: &UniverseResult) {
     let s = &r.settings;
     let _ = writeln!(
         *out,
-        "| Industry | Securities | Estimated | Median β | β quartiles | Median D/E | Median βU | βU ({}) |",
+        "| Industry | Securities | Estimated | Median β | β quartiles | Median D/E | Median βU | Industry βU ({}) |",
         label(&s.leverage.aggregation)
     );
     out.push_str("|---|---:|---:|---:|---|---:|---:|---:|\n");
@@ -392,6 +391,7 @@ fn industry_table(out: &mut String, r: &UniverseResult) {
     }
 }
 
+/// `summary.md`: what was run, the industry table, the counts and the cautions.
 fn summary(r: &UniverseResult) -> String {
     let s = &r.settings;
     let mut out = String::new();
@@ -404,8 +404,8 @@ fn summary(r: &UniverseResult) -> String {
     let _ = writeln!(
         out,
         "Valuation date {}. Return window {} to {} ({} {} periods, at least {} usable returns \
-         per security). Estimator: {}; standard errors: {}. Unlevering: {} with each firm's own \
-         D/E ({} debt) and tax rate, {}. Aggregate unlevered beta: {}{}.\n",
+         per security). Estimator: {}; standard errors: {}. Unlevering: {}, with each firm's own \
+         D/E ({} debt) and tax rate. Industry unlevered beta: the {}{}.\n",
         r.universe.valuation_date,
         r.window.window_start,
         r.window.window_end,
@@ -414,14 +414,13 @@ fn summary(r: &UniverseResult) -> String {
         r.window.min_observations,
         r.estimator.method_description,
         r.estimator.std_errors_description,
-        label(&s.leverage.formula),
-        label(&s.leverage.debt_measure),
         r.formula_source,
+        label(&s.leverage.debt_measure),
         label(&s.leverage.aggregation),
         if s.leverage.operations_beta {
             " of the betas of the operations (cash at a beta of zero)"
         } else {
-            ""
+            " of the unlevered betas"
         },
     );
     let c = &r.counts;
