@@ -535,26 +535,38 @@ fn align_unshifted(
     let mut market_kept = std::mem::take(&mut aligned.market);
     let mut risk_free_kept = aligned.risk_free.take().unwrap_or_default();
     let (mut asset_missing, mut market_missing, mut risk_free_missing) = (0, 0, 0);
-    for j in first..period_ends.len() {
-        let (a, m) = (asset[j], market[j]);
+    let periods = period_ends[first..]
+        .iter()
+        .zip(&asset[first..])
+        .zip(&market[first..]);
+    let mut count = |a: Option<f64>, m: Option<f64>| {
         asset_missing += usize::from(a.is_none());
         market_missing += usize::from(m.is_none());
-        let f = match risk_free {
-            Some(rf) => match rf[j] {
-                Some(f) => Some(f),
-                None => {
-                    risk_free_missing += 1;
-                    continue;
+        a.zip(m)
+    };
+    match risk_free {
+        None => {
+            for ((&end, &a), &m) in periods {
+                if let Some((a, m)) = count(a, m) {
+                    ends.push(end);
+                    asset_kept.push(a);
+                    market_kept.push(m);
                 }
-            },
-            None => None,
-        };
-        if let (Some(a), Some(m)) = (a, m) {
-            ends.push(period_ends[j]);
-            asset_kept.push(a);
-            market_kept.push(m);
-            if let Some(f) = f {
-                risk_free_kept.push(f);
+            }
+        }
+        Some(rf) => {
+            for (((&end, &a), &m), &f) in periods.zip(&rf[first..]) {
+                let both = count(a, m);
+                match (both, f) {
+                    (_, None) => risk_free_missing += 1,
+                    (Some((a, m)), Some(f)) => {
+                        ends.push(end);
+                        asset_kept.push(a);
+                        market_kept.push(m);
+                        risk_free_kept.push(f);
+                    }
+                    (None, Some(_)) => {}
+                }
             }
         }
     }
