@@ -421,9 +421,21 @@ impl Rows {
         } = self;
         let whole_runs = seen.grouped;
         let names = dictionary.names;
+        // Counted by runs of one id (a counter bumped row by row would wait on its own last
+        // store for each of millions of rows). Grouped rows have ids that only rise, one run per
+        // security, so each run's end is found by bisection instead of a pass over every row.
         let mut counts = vec![0_usize; names.len()];
-        for &id in &ids {
-            counts[id as usize] += 1;
+        let mut rest = &ids[..];
+        while let Some(&id) = rest.first() {
+            let run = match whole_runs {
+                true => rest.partition_point(|&other| other <= id),
+                false => rest
+                    .iter()
+                    .position(|&other| other != id)
+                    .unwrap_or(rest.len()),
+            };
+            counts[id as usize] += run;
+            rest = &rest[run..];
         }
         // A wide file's column without a single price holds no security.
         let mut order: Vec<u32> = (0..names.len() as u32)
