@@ -12,6 +12,7 @@ use std::io::Cursor;
 use std::path::{Path, PathBuf};
 
 use polars::prelude::*;
+use rayon::prelude::*;
 
 use super::format::{fixed, label};
 use crate::error::{Error, Result};
@@ -54,10 +55,28 @@ pub fn render(result: &UniverseResult) -> Result<Vec<(String, Vec<u8>)>> {
     if rolling {
         tables.push(("rolling", rolling_frame(result)?));
     }
-    for (stem, mut frame) in tables {
-        files.push((format!("{stem}.csv"), csv_bytes(&mut frame)?));
-        files.push((format!("{stem}.parquet"), parquet_bytes(&mut frame)?));
-    }
+    // Each table's CSV and Parquet are serialised side by side (a frame's clone shares its
+    // columns); the files keep this order.
+    let jobs: Vec<(String, DataFrame, bool)> = tables
+        .into_iter()
+        .flat_map(|(stem, frame)| {
+            [
+                (format!("{stem}.csv"), frame.clone(), false),
+                (format!("{stem}.parquet"), frame, true),
+            ]
+        })
+        .collect();
+    let tables: Vec<(String, Vec<u8>)> = jobs
+        .into_par_iter()
+        .map(|(name, mut frame, parquet)| {
+            let bytes = match parquet {
+                true => parquet_bytes(&mut frame)?,
+                false => csv_bytes(&mut frame)?,
+            };
+            Ok((name, bytes))
+        })
+        .collect::<Result<_>>()?;
+    files.extend(tables);
     files.push(("summary.md".into(), summary(result).into_bytes()));
     let json =
         serde_json::to_vec_pretty(result).map_err(|e| frame_error(format!("result.json: {e}")))?;
