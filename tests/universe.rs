@@ -376,6 +376,53 @@ fn attributes_without_prices_are_a_warning() {
     assert!(summary.contains("S99") && summary.contains("Cautions"));
 }
 
+// A security whose price never moves (a suspended line carried forward) has returns of zero
+// and an undefined R²: it is listed as not estimated (`flat_prices`, the rule a case applies to
+// a peer) and stays out of its industry, whose median is then the two others' (the median of two
+// values is their mean: textbook definition).
+#[test]
+fn a_security_whose_price_never_moves_is_not_estimated() {
+    let setup = Setup::new();
+    let long = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&long).unwrap();
+    let flattened: String = text
+        .lines()
+        .map(
+            |line| match line.split(',').collect::<Vec<_>>().as_slice() {
+                [date, "S03", _] => format!("{date},S03,50\n"),
+                _ => format!("{line}\n"),
+            },
+        )
+        .collect();
+    fs::write(&long, flattened).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let securities = read_table(&out.join("securities.csv"));
+    let flat = security_row(&securities, "S03");
+    let text_of = |row: &DataFrame, column: &str| {
+        let column = row.column(column).unwrap().cast(&DataType::String).unwrap();
+        column.str().unwrap().get(0).unwrap_or("").to_string()
+    };
+    assert_eq!(text_of(&flat, "not_estimated"), "flat_prices");
+    assert!(text_of(&flat, "not_estimated_detail").contains("a price that never moves"));
+    assert_eq!(text_of(&flat, "beta"), "", "no beta is listed for S03");
+    let industries = read_table(&out.join("industries.csv"));
+    let mask = industries
+        .column("industry")
+        .unwrap()
+        .str()
+        .unwrap()
+        .equal("Industry A");
+    let a = industries.filter(&mask).unwrap();
+    assert_eq!(number(&a, "estimated"), 2.0);
+    assert_eq!(number(&a, "not_estimated_flat_prices"), 1.0);
+    let others = [
+        number(&security_row(&securities, "S01"), "beta"),
+        number(&security_row(&securities, "S02"), "beta"),
+    ];
+    // 1e-15: the mean of two numbers near 1, one rounding apart at most.
+    assert!((number(&a, "median_beta") - (others[0] + others[1]) / 2.0).abs() < 1e-15);
+}
+
 /// Runs with one input broken by `edit`; asserts exit 2, a message holding every `expected`
 /// fragment and no output folder.
 fn refused(edit: impl FnOnce(&Path), sets: &[&str], expected: &[&str]) {
@@ -614,6 +661,28 @@ fn a_panel_in_the_other_layout_is_named() {
         &["panel.prices=prices-wide.parquet"],
         &["prices-wide.parquet", "this looks like a wide file"],
     );
+    // A long file whose price column has another name is not taken for a wide one: the one
+    // column the settings do not name is offered instead.
+    let rename_close = |dir: &Path| {
+        let long = dir.join("prices-long.csv");
+        let text = fs::read_to_string(&long).unwrap();
+        let header = text.lines().next().unwrap().to_string();
+        assert!(header.split(',').any(|c| c == "close"), "{header}");
+        let renamed = header.replace("close", "last");
+        fs::write(&long, text.replacen(&header, &renamed, 1)).unwrap();
+    };
+    refused(
+        rename_close,
+        &[],
+        &[
+            "no column named `close` (panel.price_column)",
+            "if `last` is that column, set panel.price_column = \"last\"",
+        ],
+    );
+    let setup = Setup::new();
+    rename_close(&setup.dir());
+    let stderr = String::from_utf8_lossy(&setup.universe("out", &[]).stderr).to_string();
+    assert!(!stderr.contains("looks like a wide file"), "{stderr}");
 }
 
 // The receipt reruns: `hurdle verify` on an untouched universe reproduces every figure (exit 0);

@@ -164,6 +164,24 @@ pub struct SecurityEstimate {
     pub returns: AlignedReturns,
 }
 
+impl SecurityEstimate {
+    /// Why the estimate says nothing when the security's returns (before any risk-free rate)
+    /// are all the same over the aligned periods: a price that never moves, a suspended or
+    /// stale line. Its beta of 0 and undefined R² carry no information; a case refuses such a
+    /// peer and a universe lists such a security as not estimated.
+    pub fn constant_price(&self) -> Option<String> {
+        let asset = &self.returns.asset;
+        self.returns.asset_is_constant().then(|| {
+            format!(
+                "its {} returns in the window are all {}: a price that never moves has zero \
+                 variance, and its beta of 0 carries no information",
+                asset.len(),
+                crate::error::compact(asset[0])
+            )
+        })
+    }
+}
+
 /// Why a security could not be estimated. The caller names the security and its file.
 #[derive(Debug, Clone, PartialEq)]
 pub enum EstimateError {

@@ -412,6 +412,15 @@ pub struct AlignedReturns {
 }
 
 impl AlignedReturns {
+    /// Whether the asset's returns (before any risk-free rate) are all the same: a price that
+    /// never moves over the aligned periods, whose beta of 0 and undefined R² carry no
+    /// information. `false` without returns.
+    pub fn asset_is_constant(&self) -> bool {
+        self.asset
+            .first()
+            .is_some_and(|&first| self.asset.iter().all(|&r| r == first))
+    }
+
     /// Asset returns less the risk-free rate (or the raw returns, borrowed, when there is none).
     pub fn asset_excess(&self) -> Cow<'_, [f64]> {
         subtract(&self.asset, self.risk_free.as_deref())

@@ -549,6 +549,30 @@ pub(crate) fn layout_hint(
 ) -> Option<String> {
     let has = |name: &str| names.iter().any(|n| n == name);
     match other_layout {
+        // A header with the long layout's security or price column is a long file with one
+        // column named otherwise: name the one column left over, if there is exactly one.
+        PanelLayout::Wide if has(&columns.security_column) || has(&columns.price_column) => {
+            let keys = [
+                ("panel.date_column", &columns.date_column),
+                ("panel.security_column", &columns.security_column),
+                ("panel.price_column", &columns.price_column),
+            ];
+            let missing: Vec<&str> = keys
+                .iter()
+                .filter(|(_, name)| !has(name))
+                .map(|(key, _)| *key)
+                .collect();
+            let unclaimed: Vec<&String> = names
+                .iter()
+                .filter(|n| keys.iter().all(|(_, name)| n != name))
+                .collect();
+            match (missing.as_slice(), unclaimed.as_slice()) {
+                ([key], [column]) => Some(format!(
+                    "if `{column}` is that column, set {key} = \"{column}\""
+                )),
+                _ => None,
+            }
+        }
         PanelLayout::Wide => {
             let others: Vec<&str> = names
                 .iter()

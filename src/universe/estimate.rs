@@ -28,14 +28,18 @@ pub enum NotEstimated {
     TooFewObservations,
     /// The index returns do not vary over the periods aligned with the security.
     FlatIndex,
+    /// The security's own returns do not vary: a price that never moves over the window (a
+    /// suspended or stale line), whose beta of 0 would pull its industry towards zero.
+    FlatPrices,
     /// The estimator could not be fitted (e.g. too many lags for the observations).
     EstimatorFailed,
 }
 
 impl NotEstimated {
-    pub const ALL: [NotEstimated; 3] = [
+    pub const ALL: [NotEstimated; 4] = [
         NotEstimated::TooFewObservations,
         NotEstimated::FlatIndex,
+        NotEstimated::FlatPrices,
         NotEstimated::EstimatorFailed,
     ];
 
@@ -44,6 +48,7 @@ impl NotEstimated {
         match self {
             NotEstimated::TooFewObservations => "too_few_observations",
             NotEstimated::FlatIndex => "flat_index",
+            NotEstimated::FlatPrices => "flat_prices",
             NotEstimated::EstimatorFailed => "estimator_failed",
         }
     }
@@ -112,8 +117,14 @@ impl Estimation {
     pub fn security(&self, prices: SeriesView<'_>) -> SecurityEstimate {
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
         let min = self.spec.min_observations;
-        match estimated {
-            Ok(e) => SecurityEstimate {
+        let flat = estimated.as_ref().ok().and_then(|e| e.constant_price());
+        match (estimated, flat) {
+            (Ok(e), Some(reason)) => SecurityEstimate {
+                periods_dropped: Some(e.dropped),
+                outcome: Err((NotEstimated::FlatPrices, reason)),
+                rolling: Vec::new(),
+            },
+            (Ok(e), None) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
                 outcome: Ok(Estimated {
                     estimate: e.estimate,
@@ -125,7 +136,7 @@ impl Estimation {
                 }),
                 rolling: e.rolling,
             },
-            Err(EstimateError::TooFewReturns { usable, dropped }) => SecurityEstimate {
+            (Err(EstimateError::TooFewReturns { usable, dropped }), _) => SecurityEstimate {
                 periods_dropped: Some(dropped),
                 outcome: Err((
                     NotEstimated::TooFewObservations,
@@ -142,7 +153,7 @@ impl Estimation {
                 )),
                 rolling: Vec::new(),
             },
-            Err(EstimateError::FlatIndex { periods }) => SecurityEstimate {
+            (Err(EstimateError::FlatIndex { periods }), _) => SecurityEstimate {
                 periods_dropped: None,
                 outcome: Err((
                     NotEstimated::FlatIndex,
@@ -152,7 +163,7 @@ impl Estimation {
                 )),
                 rolling: Vec::new(),
             },
-            Err(EstimateError::Estimator(message)) => SecurityEstimate {
+            (Err(EstimateError::Estimator(message)), _) => SecurityEstimate {
                 periods_dropped: None,
                 outcome: Err((NotEstimated::EstimatorFailed, message)),
                 rolling: Vec::new(),

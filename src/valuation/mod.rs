@@ -169,14 +169,11 @@ fn estimate_peers_under(
                 peer: peer.name.clone(),
                 message: failure_message(&failure, &spec, &window, file, &inputs.index),
             })?;
-        sanity::check_peer_fit(
-            &estimated.returns.asset,
-            &estimated.estimate,
-            &inputs.index.path,
-        )
-        .map_err(|message| Error::Estimation {
-            peer: peer.name.clone(),
-            message,
+        sanity::check_peer_fit(&estimated, &inputs.index.path).map_err(|message| {
+            Error::Estimation {
+                peer: peer.name.clone(),
+                message,
+            }
         })?;
         notes.extend(data_notes(&peer.name, &estimated, &spec));
         peers.push(estimated);

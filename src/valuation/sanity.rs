@@ -6,13 +6,13 @@
 use std::path::Path;
 
 use super::{Inputs, Valuation};
-use crate::beta::BetaEstimate;
 use crate::case::sanity::significant;
 use crate::case::sanity::{
     text, JUMP_FACTOR, MAX_DEBT_TO_EQUITY, MAX_R_SQUARED, MAX_TOLERANCE, YIELD_RATIO,
 };
 use crate::case::{Case, CaseDate};
 use crate::error::{compact as show, Error, Result};
+use crate::estimate::SecurityEstimate;
 use crate::io::series::DataFile;
 
 /// Checks across the files a case read: price jumps (unless accepted), a peer whose data are
@@ -141,18 +141,13 @@ pub fn check_index_returns(case: &Case, index: &DataFile, returns: &[Option<f64>
 /// One peer's estimate: its own returns must vary, the index must not explain them almost
 /// perfectly (a copy of the index), and every statistic must be finite.
 pub fn check_peer_fit(
-    asset_returns: &[f64],
-    estimate: &BetaEstimate,
+    estimated: &SecurityEstimate,
     index_path: &str,
 ) -> std::result::Result<(), String> {
-    if asset_returns.iter().all(|&r| r == asset_returns[0]) {
-        return Err(format!(
-            "its {} returns in the window are all {}: a price that never moves has zero \
-             variance, and its beta of 0 carries no information",
-            asset_returns.len(),
-            show(asset_returns[0])
-        ));
+    if let Some(reason) = estimated.constant_price() {
+        return Err(reason);
     }
+    let estimate = &estimated.estimate;
     if estimate.r_squared > MAX_R_SQUARED {
         return Err(format!(
             "the index ({index_path}) explains its returns with R² = {} (above {MAX_R_SQUARED}): \
