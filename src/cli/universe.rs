@@ -16,7 +16,7 @@ use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 
 use hurdle::report::universe::{nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
-use hurdle::universe::{evaluate, load_inputs, UniverseResult};
+use hurdle::universe::{evaluate, load_inputs, securities_count, UniverseResult};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -122,9 +122,9 @@ fn summary(r: &UniverseResult) -> String {
             r.window.window_end
         ),
         format!(
-            "  {} securities: {} estimated and aggregated, {} excluded by beta.exclude_flags, \
+            "  {}: {} estimated and aggregated, {} excluded by beta.exclude_flags, \
              {} not estimated{}",
-            c.securities,
+            securities_count(c.securities),
             c.estimated,
             c.excluded,
             c.not_estimated.values().sum::<usize>(),
@@ -135,9 +135,14 @@ fn summary(r: &UniverseResult) -> String {
             }
         ),
         format!(
-            "  {} industries; {} securities with an unlevered beta{}",
+            "  {} {}; {} with an unlevered beta{}",
             r.industries.len(),
-            c.unlevered,
+            if r.industries.len() == 1 {
+                "industry"
+            } else {
+                "industries"
+            },
+            securities_count(c.unlevered),
             if missing.is_empty() {
                 String::new()
             } else {

@@ -412,10 +412,11 @@ fn counts_and_notes(
     let mut notes = Vec::new();
     if !strays.is_empty() {
         notes.push(format!(
-            "{} securities in the attributes ({}) have no prices in the panel and are left \
-             out: {}{}",
-            strays.len(),
+            "{} in the attributes ({}) {} no prices in the panel and {} left out: {}{}",
+            securities_count(strays.len()),
             inputs.attributes.file.path,
+            if strays.len() == 1 { "has" } else { "have" },
+            if strays.len() == 1 { "is" } else { "are" },
             strays[..strays.len().min(10)].join(", "),
             if strays.len() > 10 { ", …" } else { "" }
         ));
@@ -432,9 +433,14 @@ fn counts_and_notes(
     let excluded = count(&|s| s.estimate.is_some() && s.excluded_reason.is_some());
     let without_industry = count(&|s| s.industry.is_none());
     if without_industry > 0 {
+        let (have, they, are, enter) = match without_industry {
+            1 => ("has", "it", "is", "enters"),
+            _ => ("have", "they", "are", "enter"),
+        };
         notes.push(format!(
-            "{without_industry} securities have no industry (no attributes row or an empty \
-             label): they are listed in securities.csv but enter no industry."
+            "{} {have} no industry (no attributes row or an empty label): {they} {are} listed in \
+             securities.csv but {enter} no industry.",
+            securities_count(without_industry)
         ));
     }
     let counts = Counts {
@@ -455,3 +461,11 @@ pub const FLAGS: [PeerFlag; 3] = [
     PeerFlag::LowRSquared,
     PeerFlag::StalePrices,
 ];
+
+/// "1 security", "2 securities": a count of securities for a note or a summary line.
+pub fn securities_count(n: usize) -> String {
+    match n {
+        1 => "1 security".to_string(),
+        _ => format!("{n} securities"),
+    }
+}
