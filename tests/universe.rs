@@ -685,6 +685,50 @@ fn a_panel_in_the_other_layout_is_named() {
     assert!(!stderr.contains("looks like a wide file"), "{stderr}");
 }
 
+// A header that names a column twice, or leaves a column of prices unnamed, is refused rather
+// than read as a security polars renamed (`S01_duplicated_0`) or one named "": whose prices
+// would they be? A wide file's trailing empty column (a separator at each line's end) stays
+// accepted.
+#[test]
+fn a_repeated_or_missing_column_name_is_refused() {
+    let rename_header = |dir: &Path, file: &str, edit: &dyn Fn(&str) -> String| {
+        let path = dir.join(file);
+        let text = fs::read_to_string(&path).unwrap();
+        let header = text.lines().next().unwrap().to_string();
+        fs::write(&path, text.replacen(&header, &edit(&header), 1)).unwrap();
+    };
+    refused(
+        |dir| rename_header(dir, "prices-wide.csv", &|h| h.replace("S02", "S01")),
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &[
+            "prices-wide.csv",
+            "the header names `S01` in columns 2 and 3",
+        ],
+    );
+    refused(
+        |dir| rename_header(dir, "prices-wide.csv", &|h| h.replace("S02", "")),
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &[
+            "prices-wide.csv",
+            "column 3 has no name in the header but holds",
+        ],
+    );
+    refused(
+        |dir| rename_header(dir, "prices-long.csv", &|h| h.replace("close", "security")),
+        &[],
+        &["the header names `security` in columns 2 and 3"],
+    );
+    let setup = Setup::new();
+    let wide = setup.dir().join("prices-wide.csv");
+    let text = fs::read_to_string(&wide).unwrap();
+    let trailing: String = text.lines().map(|line| format!("{line},\n")).collect();
+    fs::write(&wide, trailing).unwrap();
+    setup.succeeds(
+        "out",
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+    );
+}
+
 // The receipt reruns: `hurdle verify` on an untouched universe reproduces every figure (exit 0);
 // after one price changes it reports the panel's new SHA-256 and the moved figures (exit 1).
 #[test]

@@ -73,6 +73,7 @@ pub(super) fn read(
             let plan = plan.as_ref().expect("set by the first block");
             let frame = parse(block, plan, first, quoted)
                 .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
+            check_unnamed(source, plan, &frame, next_row)?;
             let height = frame.height();
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             frames
@@ -108,20 +109,53 @@ fn push_frames(
     Ok(rows)
 }
 
-/// The header's column names, through polars (no data rows are parsed).
+/// The header's column names as the file writes them, through polars: the first line read as
+/// a row of text, so that a repeated or empty name is seen as it is (read as a header, polars
+/// would rename it).
 fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     let frame = CsvReadOptions::default()
-        .with_has_header(true)
+        .with_has_header(false)
         .with_infer_schema_length(Some(0))
-        .with_n_rows(Some(0))
+        .with_n_rows(Some(1))
         .into_reader_with_file_handle(Cursor::new(block))
         .finish()
         .map_err(|e| source.file_error(format!("not a readable CSV file: {e}")))?;
     Ok(frame
-        .get_column_names()
+        .columns()
         .iter()
-        .map(|n| n.to_string())
+        .map(|c| {
+            c.str()
+                .ok()
+                .and_then(|s| s.get(0))
+                .unwrap_or("")
+                .to_string()
+        })
         .collect())
+}
+
+/// The header's names made unique for the parsing schema: an empty name (a column the header
+/// does not name) gets a placeholder no header name can equal.
+fn schema_names(header: &[String]) -> Vec<String> {
+    header
+        .iter()
+        .enumerate()
+        .map(|(i, name)| match name.is_empty() {
+            true => format!("\u{0}unnamed column {}", i + 1),
+            false => name.clone(),
+        })
+        .collect()
+}
+
+/// A name the header gives to more than one column: the name and the columns (from 1).
+fn repeated_name<'a>(header: &'a [String], among: &[&str]) -> Option<(&'a str, Vec<usize>)> {
+    header.iter().find_map(|name| {
+        let at: Vec<usize> = (0..header.len())
+            .filter(|&i| header[i] == *name)
+            .map(|i| i + 1)
+            .collect();
+        let counts = among.is_empty() || among.contains(&name.as_str());
+        (!name.is_empty() && counts && at.len() > 1).then_some((name.as_str(), at))
+    })
 }
 
 /// Checks the header against the layout and fixes the schema every block is parsed with.
@@ -145,6 +179,23 @@ fn plan_for(
             ))
         })
     };
+    // A long file's other columns are not read, so only a repeated date, security or price
+    // name is ambiguous there; in a wide file every column is a security.
+    let read: Vec<&str> = match columns.layout {
+        PanelLayout::Long => vec![
+            &columns.date_column,
+            &columns.security_column,
+            &columns.price_column,
+        ],
+        PanelLayout::Wide => Vec::new(),
+    };
+    if let Some((name, at)) = repeated_name(&header, &read) {
+        let at: Vec<String> = at.iter().map(usize::to_string).collect();
+        return Err(source.file_error(format!(
+            "the header names `{name}` in columns {}: each column needs a name of its own",
+            at.join(" and ")
+        )));
+    }
     let date = position(&columns.date_column, "panel.date_column")?;
     let mut dtypes = vec![DataType::String; header.len()];
     let (projection, wide) = match columns.layout {
@@ -163,7 +214,10 @@ fn plan_for(
             let mut wide = Vec::with_capacity(header.len() - 1);
             for (i, name) in header.iter().enumerate().filter(|&(i, _)| i != date) {
                 dtypes[i] = DataType::Float64;
-                wide.push((name.clone(), rows.dictionary.id(name)));
+                // A column the header does not name is read only to check that it is empty.
+                if !name.is_empty() {
+                    wide.push((name.clone(), rows.dictionary.id(name)));
+                }
             }
             if wide.is_empty() {
                 return Err(source.file_error(format!(
@@ -174,7 +228,7 @@ fn plan_for(
             ((0..header.len()).collect(), wide)
         }
     };
-    let schema = header
+    let schema = schema_names(&header)
         .iter()
         .zip(dtypes)
         .map(|(name, dtype)| Field::new(name.as_str().into(), dtype))
@@ -212,6 +266,37 @@ fn parse(block: &[u8], plan: &Plan, has_header: bool, quoted: bool) -> PolarsRes
         })
         .into_reader_with_file_handle(Cursor::new(block))
         .finish()
+}
+
+/// A wide panel's column that the header does not name may not hold a price: whose would it
+/// be? (A trailing comma on every line gives such a column, empty, and is accepted.)
+fn check_unnamed(source: &Source, plan: &Plan, frame: &DataFrame, first_row: usize) -> Result<()> {
+    if plan.wide.is_empty() {
+        return Ok(());
+    }
+    for (i, name) in schema_names(&plan.header).iter().enumerate() {
+        if !plan.header[i].is_empty() {
+            continue;
+        }
+        let Ok(cells) = frame.column(name).and_then(|c| c.f64().cloned()) else {
+            continue;
+        };
+        let first = cells
+            .iter()
+            .enumerate()
+            .find_map(|(k, v)| v.map(|v| (k, v)));
+        if let Some((k, value)) = first {
+            return Err(source.row_error(
+                first_row + k,
+                format!(
+                    "column {} has no name in the header but holds {value}: a wide panel's \
+                     columns are named by security",
+                    i + 1
+                ),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// Moves a parsed block into `rows`.
@@ -266,8 +351,7 @@ fn diagnose(
         PanelLayout::Long => vec![columns.price_column.as_str()],
         PanelLayout::Wide => plan.wide.iter().map(|(n, _)| n.as_str()).collect(),
     };
-    let text_schema: Schema = plan
-        .header
+    let text_schema: Schema = schema_names(&plan.header)
         .iter()
         .map(|name| Field::new(name.as_str().into(), DataType::String))
         .collect();
