@@ -718,6 +718,11 @@ fn a_repeated_or_missing_column_name_is_refused() {
         &[],
         &["the header names `security` in columns 2 and 3"],
     );
+    refused(
+        |dir| rename_header(dir, "attributes.csv", &|h| h.replace("cash", "industry")),
+        &[],
+        &["attributes.csv", "the header names `industry` in columns"],
+    );
     let setup = Setup::new();
     let wide = setup.dir().join("prices-wide.csv");
     let text = fs::read_to_string(&wide).unwrap();

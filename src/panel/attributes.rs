@@ -86,6 +86,18 @@ pub fn read_attributes(
         action: "cannot read the attributes file",
         source: e,
     })?;
+    if format == TableFormat::Csv {
+        let header = super::csv::header(&source, &bytes)?;
+        let mut used = vec![
+            columns.security.as_str(),
+            &columns.industry,
+            &columns.equity_value,
+            &columns.debt,
+            &columns.tax_rate,
+        ];
+        used.extend(columns.cash.as_deref());
+        super::csv::check_repeated_names(&source, &header, &used)?;
+    }
     let frame = match format {
         TableFormat::Csv => CsvReadOptions::default()
             .with_has_header(true)

@@ -112,7 +112,7 @@ fn push_frames(
 /// The header's column names as the file writes them, through polars: the first line read as
 /// a row of text, so that a repeated or empty name is seen as it is (read as a header, polars
 /// would rename it).
-fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
+pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     let frame = CsvReadOptions::default()
         .with_has_header(false)
         .with_infer_schema_length(Some(0))
@@ -146,16 +146,28 @@ fn schema_names(header: &[String]) -> Vec<String> {
         .collect()
 }
 
-/// A name the header gives to more than one column: the name and the columns (from 1).
-fn repeated_name<'a>(header: &'a [String], among: &[&str]) -> Option<(&'a str, Vec<usize>)> {
-    header.iter().find_map(|name| {
-        let at: Vec<usize> = (0..header.len())
+/// Refuses a header that gives one name to two columns, among the names in `among` (all names
+/// when it is empty): which of the two would be read?
+pub(super) fn check_repeated_names(
+    source: &Source,
+    header: &[String],
+    among: &[&str],
+) -> Result<()> {
+    let repeated = header.iter().find_map(|name| {
+        let at: Vec<String> = (0..header.len())
             .filter(|&i| header[i] == *name)
-            .map(|i| i + 1)
+            .map(|i| (i + 1).to_string())
             .collect();
         let counts = among.is_empty() || among.contains(&name.as_str());
-        (!name.is_empty() && counts && at.len() > 1).then_some((name.as_str(), at))
-    })
+        (!name.is_empty() && counts && at.len() > 1).then_some((name, at))
+    });
+    match repeated {
+        None => Ok(()),
+        Some((name, at)) => Err(source.file_error(format!(
+            "the header names `{name}` in columns {}: each column needs a name of its own",
+            at.join(" and ")
+        ))),
+    }
 }
 
 /// Checks the header against the layout and fixes the schema every block is parsed with.
@@ -189,13 +201,7 @@ fn plan_for(
         ],
         PanelLayout::Wide => Vec::new(),
     };
-    if let Some((name, at)) = repeated_name(&header, &read) {
-        let at: Vec<String> = at.iter().map(usize::to_string).collect();
-        return Err(source.file_error(format!(
-            "the header names `{name}` in columns {}: each column needs a name of its own",
-            at.join(" and ")
-        )));
-    }
+    check_repeated_names(source, &header, &read)?;
     let date = position(&columns.date_column, "panel.date_column")?;
     let mut dtypes = vec![DataType::String; header.len()];
     let (projection, wide) = match columns.layout {
