@@ -285,6 +285,12 @@ fn price_files() -> Vec<Bad> {
             [PEER, "`price`", "date, close"]
         ),
         bad!(
+            "price column named twice in the header",
+            |s| s.set_line(PEER, 1, "date,price,price"),
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "the header names `price` in columns 2 and 3"]
+        ),
+        bad!(
             "price column named in the case is absent",
             nothing,
             [
