@@ -801,6 +801,27 @@ fn spread_tables() -> Vec<Bad> {
             [RATING, "{line}", "abc"]
         ),
         bad!(
+            "spread column named twice",
+            |s| {
+                let line = line_starting(s, RATING, "rating,");
+                note("line", format!("line {line}"));
+                s.set_line(RATING, line, "rating,spread,spread")
+            },
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating"
+            ],
+            [
+                RATING,
+                "{line}",
+                "the header names `spread` in columns 2 and 3"
+            ]
+        ),
+        bad!(
             "spread NaN",
             |s| {
                 let line = line_starting(s, RATING, "BBB,");

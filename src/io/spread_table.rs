@@ -138,14 +138,27 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
     })?;
     let columns: Vec<&str> = header.split(',').map(str::trim).collect();
     let find = |name: &str| {
-        columns
-            .iter()
-            .position(|c| *c == name)
-            .ok_or_else(|| Error::DataRow {
-                file: path.to_path_buf(),
-                line: header_line,
-                message: format!("no `{name}` column (columns: {})", columns.join(", ")),
-            })
+        let header_error = |message: String| Error::DataRow {
+            file: path.to_path_buf(),
+            line: header_line,
+            message,
+        };
+        let at: Vec<usize> = (0..columns.len()).filter(|&i| columns[i] == name).collect();
+        match at.as_slice() {
+            [one] => Ok(*one),
+            [] => Err(header_error(format!(
+                "no `{name}` column (columns: {})",
+                columns.join(", ")
+            ))),
+            many => {
+                let at: Vec<String> = many.iter().map(|i| (i + 1).to_string()).collect();
+                Err(header_error(format!(
+                    "the header names `{name}` in columns {}: each column needs a name of its \
+                     own",
+                    at.join(" and ")
+                )))
+            }
+        }
     };
     let rating = find("rating")?;
     let spread = find("spread")?;
