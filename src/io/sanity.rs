@@ -8,6 +8,32 @@ use std::path::Path;
 use super::series::{Series, ValueKind};
 use crate::error::{compact as show, Error, Result};
 
+/// The position of the one column of `header` named `name` (`None` when none is), or, when the
+/// header gives that name to several columns, the message saying so: which of them would be
+/// read? One rule for price and yield files, spread tables, panels and attributes.
+pub fn unique_column<'a>(
+    header: impl IntoIterator<Item = &'a str>,
+    name: &str,
+) -> std::result::Result<Option<usize>, String> {
+    let at: Vec<usize> = header
+        .into_iter()
+        .enumerate()
+        .filter(|(_, n)| *n == name)
+        .map(|(i, _)| i)
+        .collect();
+    match at.as_slice() {
+        [] => Ok(None),
+        [one] => Ok(Some(*one)),
+        many => {
+            let at: Vec<String> = many.iter().map(|i| (i + 1).to_string()).collect();
+            Err(format!(
+                "the header names `{name}` in columns {}: each column needs a name of its own",
+                at.join(" and ")
+            ))
+        }
+    }
+}
+
 /// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
 /// separator, and no row with more fields than the header (a decimal comma, an unquoted comma in
 /// text). Quoted fields may hold commas and line breaks. Fewer fields than the header are left to
@@ -162,6 +188,19 @@ pub fn check_series_values(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Columns are counted from 1 in the message, as a spreadsheet's user counts them.
+    #[test]
+    fn a_column_name_is_found_once_or_named_as_repeated() {
+        let header = ["date", "price", "volume", "price"];
+        assert_eq!(unique_column(header, "date"), Ok(Some(0)));
+        assert_eq!(unique_column(header, "close"), Ok(None));
+        let repeated = unique_column(header, "price").unwrap_err();
+        assert!(
+            repeated.contains("`price` in columns 2 and 4"),
+            "{repeated}"
+        );
+    }
 
     fn shape(text: &[u8]) -> String {
         match check_csv_shape(Path::new("p.csv"), text) {

@@ -144,26 +144,16 @@ pub fn parse_series(
     let mut reader = csv::ReaderBuilder::new().flexible(true).from_reader(bytes);
     let unreadable = |e: csv::Error| file_error(format!("not a readable CSV file: {e}"));
     let header = reader.headers().map_err(unreadable)?.clone();
-    let column = |name: &str| {
-        let at: Vec<usize> = (0..header.len()).filter(|&i| &header[i] == name).collect();
-        match at.as_slice() {
-            [one] => Ok(*one),
-            [] => {
-                let names: Vec<&str> = header.iter().collect();
-                Err(file_error(format!(
-                    "no column named `{name}`; the header has: {}",
-                    names.join(", ")
-                )))
-            }
-            // Which of them would be read? Neither, silently.
-            many => {
-                let at: Vec<String> = many.iter().map(|i| (i + 1).to_string()).collect();
-                Err(file_error(format!(
-                    "the header names `{name}` in columns {}: each column needs a name of its own",
-                    at.join(" and ")
-                )))
-            }
+    let column = |name: &str| match super::sanity::unique_column(&header, name) {
+        Ok(Some(at)) => Ok(at),
+        Ok(None) => {
+            let names: Vec<&str> = header.iter().collect();
+            Err(file_error(format!(
+                "no column named `{name}`; the header has: {}",
+                names.join(", ")
+            )))
         }
+        Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);
     let rows = bytes.iter().filter(|&&b| b == b'\n').count();

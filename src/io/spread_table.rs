@@ -143,21 +143,13 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
             line: header_line,
             message,
         };
-        let at: Vec<usize> = (0..columns.len()).filter(|&i| columns[i] == name).collect();
-        match at.as_slice() {
-            [one] => Ok(*one),
-            [] => Err(header_error(format!(
+        match super::sanity::unique_column(columns.iter().copied(), name) {
+            Ok(Some(at)) => Ok(at),
+            Ok(None) => Err(header_error(format!(
                 "no `{name}` column (columns: {})",
                 columns.join(", ")
             ))),
-            many => {
-                let at: Vec<String> = many.iter().map(|i| (i + 1).to_string()).collect();
-                Err(header_error(format!(
-                    "the header names `{name}` in columns {}: each column needs a name of its \
-                     own",
-                    at.join(" and ")
-                )))
-            }
+            Err(message) => Err(header_error(message)),
         }
     };
     let rating = find("rating")?;

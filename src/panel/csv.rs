@@ -153,20 +153,18 @@ pub(super) fn check_repeated_names(
     header: &[String],
     among: &[&str],
 ) -> Result<()> {
-    let repeated = header.iter().find_map(|name| {
-        let at: Vec<String> = (0..header.len())
-            .filter(|&i| header[i] == *name)
-            .map(|i| (i + 1).to_string())
-            .collect();
-        let counts = among.is_empty() || among.contains(&name.as_str());
-        (!name.is_empty() && counts && at.len() > 1).then_some((name, at))
-    });
-    match repeated {
+    let names = header.iter().map(String::as_str);
+    // Sorted first: a wide header names thousands of securities.
+    let mut checked: Vec<&str> = names
+        .clone()
+        .filter(|n| !n.is_empty() && (among.is_empty() || among.contains(n)))
+        .collect();
+    checked.sort_unstable();
+    match checked.windows(2).find(|w| w[0] == w[1]) {
+        Some(pair) => crate::io::sanity::unique_column(names, pair[0])
+            .map(|_| ())
+            .map_err(|message| source.file_error(message)),
         None => Ok(()),
-        Some((name, at)) => Err(source.file_error(format!(
-            "the header names `{name}` in columns {}: each column needs a name of its own",
-            at.join(" and ")
-        ))),
     }
 }
 
