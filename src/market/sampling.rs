@@ -350,11 +350,6 @@ pub fn sample(grid: &PeriodGrid, series: SeriesView<'_>) -> Vec<Option<f64>> {
     sample_with_staleness(grid, series, None).0
 }
 
-/// Simple returns p_t / p_{t−1} − 1 between consecutive samples; `None` where either is missing.
-pub fn simple_returns(samples: &[Option<f64>]) -> Vec<Option<f64>> {
-    period_returns(samples, ReturnType::Simple)
-}
-
 /// Converts an annualised yield to the rate of one period by compounding:
 /// (1 + y)^(1 / periods_per_year) − 1.
 pub fn period_rate(annual_yield: f64, periods_per_year: f64) -> f64 {
@@ -687,7 +682,7 @@ mod tests {
             },
         );
         assert_eq!(samples, vec![Some(12.0), None, Some(14.0), Some(15.0)]);
-        let returns = simple_returns(&samples);
+        let returns = period_returns(&samples, ReturnType::Simple);
         assert_eq!(returns, vec![None, None, Some(15.0 / 14.0 - 1.0)]);
     }
 

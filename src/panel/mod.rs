@@ -351,20 +351,6 @@ impl Default for Order {
     }
 }
 
-/// The length of the run of `ids[0]` at the start of `ids`, whose values never fall: probes
-/// 1, 2, 4, … rows ahead, then bisects the last step, so it reads O(log run) rows near the run
-/// (a bisection over the whole rest would touch rows megabytes apart).
-fn rising_run(ids: &[u32]) -> usize {
-    let id = ids[0];
-    let (mut inside, mut step) = (0, 1);
-    while inside + step < ids.len() && ids[inside + step] == id {
-        inside += step;
-        step *= 2;
-    }
-    let end = (inside + step).min(ids.len());
-    inside + 1 + ids[inside + 1..end].partition_point(|&other| other == id)
-}
-
 /// A (security, date) pair found twice.
 #[derive(Debug, Clone)]
 pub(crate) struct Duplicate {
@@ -435,23 +421,7 @@ impl Rows {
         } = self;
         let whole_runs = seen.grouped;
         let names = dictionary.names;
-        // Counted by runs of one id (a counter bumped row by row would wait on its own last
-        // store for each of millions of rows). Grouped rows have ids that only rise, one run per
-        // security, so each run's end is found by a galloping search instead of a pass over
-        // every row.
-        let mut counts = vec![0_usize; names.len()];
-        let mut rest = &ids[..];
-        while let Some(&id) = rest.first() {
-            let run = match whole_runs {
-                true => rising_run(rest),
-                false => rest
-                    .iter()
-                    .position(|&other| other != id)
-                    .unwrap_or(rest.len()),
-            };
-            counts[id as usize] += run;
-            rest = &rest[run..];
-        }
+        let counts = runs::count_rows(&ids, names.len(), whole_runs);
         // A wide file's column without a single price holds no security.
         let mut order: Vec<u32> = (0..names.len() as u32)
             .filter(|&id| counts[id as usize] > 0)
@@ -707,20 +677,6 @@ mod tests {
         }
         assert!(rows.order.grouped && !rows.order.ascending);
         assert_eq!(rows.group().unwrap_err().security, "A");
-    }
-
-    // Every run length of a never-falling sequence, against the length it was built with: runs
-    // of 1 to 69 (across each power of two the search steps over), at the end of the slice and
-    // followed by other ids.
-    #[test]
-    fn rising_runs_are_measured_whole() {
-        for length in 1..70 {
-            for after in [0, 1, 5] {
-                let mut ids = vec![3_u32; length];
-                ids.extend(std::iter::repeat_n(4, after));
-                assert_eq!(rising_run(&ids), length, "run {length}, then {after}");
-            }
-        }
     }
 
     // The dictionary's guesses must never change which id a name gets.
