@@ -270,11 +270,25 @@ fn industry_table_agrees_with_numpy_and_scipy() {
 #[test]
 fn long_wide_csv_and_parquet_give_identical_outputs() {
     let setup = Setup::new();
-    let forms: [&[&str]; 4] = [
+    // The long Parquet once more with its ids as a categorical column (as data-frame libraries
+    // write categories); its labels are the ids.
+    let long = setup.dir().join("prices-long.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&long).unwrap())
+        .finish()
+        .unwrap();
+    let categories = DataType::from_categories(Categories::global());
+    frame
+        .apply("security", |c| c.cast(&categories).unwrap())
+        .unwrap();
+    assert!(frame.column("security").unwrap().dtype().is_categorical());
+    let categorical = fs::File::create(setup.dir().join("prices-categorical.parquet")).unwrap();
+    ParquetWriter::new(categorical).finish(&mut frame).unwrap();
+    let forms: [&[&str]; 5] = [
         &[],
         &["panel.prices=prices-long.parquet"],
         &["panel.prices=prices-wide.csv", "panel.layout=wide"],
         &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
+        &["panel.prices=prices-categorical.parquet"],
     ];
     let outs: Vec<PathBuf> = forms
         .iter()

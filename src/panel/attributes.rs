@@ -202,10 +202,11 @@ fn records(
     Ok(records)
 }
 
-/// A column as trimmed text; an empty cell is `None`. Integer columns are written as text.
+/// A column as trimmed text; an empty cell is `None`. Integer columns are written as text,
+/// categorical ones by their labels.
 fn text(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
     let name = column.name().to_string();
-    if !(column.dtype().is_string() || column.dtype().is_integer()) {
+    if !super::parquet::is_text_like(column.dtype()) {
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not text labels",
             column.dtype()

@@ -238,13 +238,19 @@ fn cells(column: &Column) -> DateCells<'_> {
     }
 }
 
+/// Whether a Parquet column can be read as text labels: text, integers (written as text), or
+/// categories (the categorical and enum columns data-frame libraries write: their labels).
+pub(super) fn is_text_like(dtype: &DataType) -> bool {
+    dtype.is_string() || dtype.is_integer() || dtype.is_categorical() || dtype.is_enum()
+}
+
 /// A column cast to `dtype`: ids to text, prices to doubles; anything else is an error.
 fn typed(source: &Source, frame: &DataFrame, name: &str, dtype: &DataType) -> Result<Column> {
     let column = frame
         .column(name)
         .map_err(|e| source.file_error(e.to_string()))?;
     let fits = match dtype {
-        DataType::String => column.dtype().is_string() || column.dtype().is_integer(),
+        DataType::String => is_text_like(column.dtype()),
         _ => column.dtype().is_primitive_numeric(),
     };
     if !fits {
