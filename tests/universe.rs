@@ -727,6 +727,24 @@ fn a_repeated_or_missing_column_name_is_refused() {
             "column 3 has no name in the header but holds",
         ],
     );
+    // Text there is named the same way, not as polars' parse error.
+    refused(
+        |dir| {
+            rename_header(dir, "prices-wide.csv", &|h| h.replace("S02", ""));
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+            let mut cells: Vec<&str> = lines[1].split(',').collect();
+            cells[2] = "n/a";
+            lines[1] = cells.join(",");
+            fs::write(&path, lines.join("\n") + "\n").unwrap();
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &[
+            "prices-wide.csv, line 2",
+            "column 3 has no name in the header but holds \"n/a\"",
+        ],
+    );
     refused(
         |dir| rename_header(dir, "prices-long.csv", &|h| h.replace("close", "security")),
         &[],

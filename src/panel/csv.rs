@@ -36,6 +36,9 @@ struct Plan {
     projection: Arc<Vec<usize>>,
     /// Wide layout: each security column's name and dictionary id.
     wide: Vec<(String, u32)>,
+    /// Wide layout: the columns the header leaves unnamed, by number (from 1) and schema name;
+    /// read only to check that they hold nothing.
+    unnamed: Vec<(usize, String)>,
 }
 
 /// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes. Securities
@@ -237,12 +240,26 @@ fn plan_for(
         .zip(dtypes)
         .map(|(name, dtype)| Field::new(name.as_str().into(), dtype))
         .collect::<Schema>();
+    let unnamed = unnamed_columns(&header, columns.layout);
     Ok(Plan {
         header,
         schema: Arc::new(schema),
         projection: Arc::new(projection),
         wide,
+        unnamed,
     })
+}
+
+/// A wide header's columns without a name, by number (from 1) and schema name.
+fn unnamed_columns(header: &[String], layout: PanelLayout) -> Vec<(usize, String)> {
+    if layout == PanelLayout::Long {
+        return Vec::new();
+    }
+    let names = schema_names(header).into_iter().enumerate();
+    names
+        .filter(|(i, _)| header[*i].is_empty())
+        .map(|(i, name)| (i + 1, name))
+        .collect()
 }
 
 /// The first names of a long header, for messages.
@@ -275,13 +292,7 @@ fn parse(block: &[u8], plan: &Plan, has_header: bool, quoted: bool) -> PolarsRes
 /// A wide panel's column that the header does not name may not hold a price: whose would it
 /// be? (A trailing comma on every line gives such a column, empty, and is accepted.)
 fn check_unnamed(source: &Source, plan: &Plan, frame: &DataFrame, first_row: usize) -> Result<()> {
-    if plan.wide.is_empty() {
-        return Ok(());
-    }
-    for (i, name) in schema_names(&plan.header).iter().enumerate() {
-        if !plan.header[i].is_empty() {
-            continue;
-        }
+    for (number, name) in &plan.unnamed {
         let Ok(cells) = frame.column(name).and_then(|c| c.f64().cloned()) else {
             continue;
         };
@@ -290,17 +301,26 @@ fn check_unnamed(source: &Source, plan: &Plan, frame: &DataFrame, first_row: usi
             .enumerate()
             .find_map(|(k, v)| v.map(|v| (k, v)));
         if let Some((k, value)) = first {
-            return Err(source.row_error(
+            return Err(unnamed_error(
+                source,
+                *number,
                 first_row + k,
-                format!(
-                    "column {} has no name in the header but holds {value}: a wide panel's \
-                     columns are named by security",
-                    i + 1
-                ),
+                &value.to_string(),
             ));
         }
     }
     Ok(())
+}
+
+/// The error for a value in a column the header leaves unnamed.
+fn unnamed_error(source: &Source, number: usize, row: usize, value: &str) -> Error {
+    source.row_error(
+        row,
+        format!(
+            "column {number} has no name in the header but holds \"{value}\": a wide panel's \
+             columns are named by security"
+        ),
+    )
 }
 
 /// Moves a parsed block into `rows`.
@@ -365,6 +385,18 @@ fn diagnose(
         .into_reader_with_file_handle(Cursor::new(block))
         .finish();
     if let Ok(text) = text {
+        for (number, name) in &plan.unnamed {
+            let Ok(cells) = text.column(name).and_then(|c| c.str().cloned()) else {
+                continue;
+            };
+            let first = cells
+                .iter()
+                .enumerate()
+                .find_map(|(k, c)| c.filter(|c| !c.trim().is_empty()).map(|c| (k, c)));
+            if let Some((k, cell)) = first {
+                return unnamed_error(source, *number, first_row + k, cell);
+            }
+        }
         for name in price_columns {
             let Ok(cells) = text.column(name).and_then(|c| c.str().cloned()) else {
                 continue;
