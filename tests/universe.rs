@@ -778,6 +778,12 @@ fn verify_reruns_a_universe_receipt() {
     let report = String::from_utf8_lossy(&first.stdout);
     assert_eq!(first.status.code(), Some(0), "{report}");
     assert!(report.contains("REPRODUCED"), "{report}");
+    // It speaks of the universe file and of the universe's own outputs, not of a case's.
+    assert!(report.contains("universe file: unchanged"), "{report}");
+    assert!(
+        report.contains("securities.csv") && !report.contains("memo.md"),
+        "{report}"
+    );
     let cells = panel_line(&setup.dir(), 12);
     let price: f64 = cells[2].parse().unwrap();
     replace_line(

@@ -48,6 +48,9 @@ pub struct Mismatch {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Verification {
     pub receipt: String,
+    /// What the receipt reruns: `case` or `universe`.
+    pub kind: &'static str,
+    /// The file it reruns (the case or the universe file; the field keeps its first name).
     pub case_file: String,
     pub case_unchanged: bool,
     pub files: Vec<FileCheck>,
@@ -59,6 +62,8 @@ pub struct Verification {
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
     pub reproduced: bool,
+    /// What this kind of verification leaves out, and why.
+    pub not_compared: &'static str,
     /// Every file the rerun read (not part of the report), so outputs never replace one.
     #[serde(skip)]
     pub files_read: Vec<crate::case::FileRead>,
@@ -144,6 +149,7 @@ pub fn verify(
     let reproduced = case_unchanged && files.iter().all(|f| f.unchanged) && mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
+        kind: "case",
         case_file: case_file.display().to_string(),
         case_unchanged,
         files,
@@ -153,6 +159,7 @@ pub fn verify(
         recorded_tool_version: text("/tool/version").unwrap_or_default(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        not_compared: NOT_COMPARED,
         files_read,
     })
 }

@@ -16,6 +16,12 @@ use crate::error::{Error, Result};
 use crate::universe::settings::read_universe;
 use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
 
+/// What a universe verification leaves out, and why.
+pub const NOT_COMPARED: &str = "securities.csv, industries.csv, their Parquet copies and \
+summary.md are not compared file by file: they are written from the same estimates as the \
+receipt's counts and industry table, which are, and every aggregated security's beta moves the \
+industry means";
+
 /// Verifies a parsed universe receipt found at `receipt_path`; `universe_path` overrides where
 /// the universe file is looked for.
 pub fn verify_universe(
@@ -57,6 +63,7 @@ pub fn verify_universe(
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
+        kind: "universe",
         case_file: file.display().to_string(),
         case_unchanged: unchanged,
         files,
@@ -66,6 +73,7 @@ pub fn verify_universe(
         recorded_tool_version: text("/tool/version").unwrap_or_default().to_string(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        not_compared: NOT_COMPARED,
         files_read,
     })
 }

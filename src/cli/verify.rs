@@ -8,7 +8,7 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE, NOT_COMPARED};
+use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -53,9 +53,10 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
 }
 
 fn render(r: &Verification) -> String {
-    let mut out = format!("verifying {} (case {})\n", r.receipt, r.case_file);
+    let mut out = format!("verifying {} ({} {})\n", r.receipt, r.kind, r.case_file);
     out.push_str(&format!(
-        "  case file: {}\n",
+        "  {} file: {}\n",
+        r.kind,
         if r.case_unchanged {
             "unchanged"
         } else {
@@ -84,7 +85,7 @@ fn render(r: &Verification) -> String {
             m.path, m.recorded, m.recomputed
         ));
     }
-    out.push_str(&format!("  note: {NOT_COMPARED}\n"));
+    out.push_str(&format!("  note: {}\n", r.not_compared));
     out.push_str(&format!(
         "{}: {} figures compared, {} mismatched (relative tolerance {:e})\n",
         if r.reproduced {

@@ -27,7 +27,8 @@ pub fn markdown(r: &Verification) -> String {
     );
     let _ = writeln!(
         w,
-        "Case file `{}`: {}. Receipt written by hurdle {}, verified with hurdle {}.\n",
+        "The {} file `{}`: {}. Receipt written by hurdle {}, verified with hurdle {}.\n",
+        r.kind,
         r.case_file,
         if r.case_unchanged {
             "unchanged"
@@ -61,7 +62,7 @@ pub fn markdown(r: &Verification) -> String {
             let _ = writeln!(w, "| `{}` | {} | {} |", m.path, m.recorded, m.recomputed);
         }
     }
-    let _ = writeln!(w, "\nNot compared: {}.", crate::audit::verify::NOT_COMPARED);
+    let _ = writeln!(w, "\nNot compared: {}.", r.not_compared);
     let _ = writeln!(
         w,
         "\nA match shows that the same inputs give the same figures; it does not show that the \
