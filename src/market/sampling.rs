@@ -222,7 +222,7 @@ pub fn sample_with_staleness(
 }
 
 /// The period returns of [`period_returns`] over the samples of [`sample_with_staleness`], and
-/// per return whether either of its samples was stale ([`stale_returns`]), in the same pass as
+/// per return whether either of its two samples was stale, in the same pass as
 /// the sampling: the same figures without the two vectors of samples in between (a whole
 /// market samples millions of periods).
 pub fn sampled_returns(
@@ -276,11 +276,6 @@ fn for_each_sample(
             other => each(other.map(|(_, v)| v), false),
         }
     }
-}
-
-/// Per return period: whether either of its two samples was stale.
-pub fn stale_returns(stale_samples: &[bool]) -> Vec<bool> {
-    stale_samples.windows(2).map(|p| p[0] || p[1]).collect()
 }
 
 /// The risk-free rate of each return period for the return type: for simple returns
@@ -599,6 +594,12 @@ impl AlignedReturns {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Per return period: whether either of its two samples was stale (the two-step form the
+    /// one-pass [`sampled_returns`] is checked against).
+    fn stale_returns(stale_samples: &[bool]) -> Vec<bool> {
+        stale_samples.windows(2).map(|p| p[0] || p[1]).collect()
+    }
 
     fn date(text: &str) -> NaiveDate {
         NaiveDate::parse_from_str(text, "%Y-%m-%d").unwrap()
