@@ -390,6 +390,24 @@ fn attributes_without_prices_are_a_warning() {
     assert!(summary.contains("S99") && summary.contains("Cautions"));
 }
 
+/// A one-row table's cell as text ("" when empty).
+fn text_of(row: &DataFrame, column: &str) -> String {
+    let column = row.column(column).unwrap().cast(&DataType::String).unwrap();
+    column.str().unwrap().get(0).unwrap_or("").to_string()
+}
+
+/// The row of "Industry A" in a run's industries.csv.
+fn industry_a(out: &Path) -> DataFrame {
+    let industries = read_table(&out.join("industries.csv"));
+    let mask = industries
+        .column("industry")
+        .unwrap()
+        .str()
+        .unwrap()
+        .equal("Industry A");
+    industries.filter(&mask).unwrap()
+}
+
 // A security whose price never moves (a suspended line carried forward) has returns of zero
 // and an undefined R²: it is listed as not estimated (`flat_prices`, the rule a case applies to
 // a peer) and stays out of its industry, whose median is then the two others' (the median of two
@@ -412,21 +430,10 @@ fn a_security_whose_price_never_moves_is_not_estimated() {
     let out = setup.succeeds("out", &[]);
     let securities = read_table(&out.join("securities.csv"));
     let flat = security_row(&securities, "S03");
-    let text_of = |row: &DataFrame, column: &str| {
-        let column = row.column(column).unwrap().cast(&DataType::String).unwrap();
-        column.str().unwrap().get(0).unwrap_or("").to_string()
-    };
     assert_eq!(text_of(&flat, "not_estimated"), "flat_prices");
     assert!(text_of(&flat, "not_estimated_detail").contains("a price that never moves"));
     assert_eq!(text_of(&flat, "beta"), "", "no beta is listed for S03");
-    let industries = read_table(&out.join("industries.csv"));
-    let mask = industries
-        .column("industry")
-        .unwrap()
-        .str()
-        .unwrap()
-        .equal("Industry A");
-    let a = industries.filter(&mask).unwrap();
+    let a = industry_a(&out);
     assert_eq!(number(&a, "estimated"), 2.0);
     assert_eq!(number(&a, "not_estimated_flat_prices"), 1.0);
     let others = [
@@ -435,6 +442,37 @@ fn a_security_whose_price_never_moves_is_not_estimated() {
     ];
     // 1e-15: the mean of two numbers near 1, one rounding apart at most.
     assert!((number(&a, "median_beta") - (others[0] + others[1]) / 2.0).abs() < 1e-15);
+}
+
+// A security whose prices are the index's (a fund tracking it, or the index itself listed in
+// the panel) is not a firm: the index explains its returns wholly (R² = 1 up to the prices'
+// four decimals), so it is listed as not estimated (`copies_index`, the rule a case applies to
+// a peer, R² above 0.999) and stays out of its industry's median.
+#[test]
+fn a_security_that_copies_the_index_is_not_estimated() {
+    let setup = Setup::new();
+    let index = fs::read_to_string(setup.dir().join("index.csv")).unwrap();
+    let long = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&long).unwrap();
+    let mut copied: String = text
+        .lines()
+        .filter(|line| !line.contains(",S03,"))
+        .map(|line| format!("{line}\n"))
+        .collect();
+    for line in index.lines().skip(1) {
+        let (date, level) = line.split_once(',').unwrap();
+        copied.push_str(&format!("{date},S03,{level}\n"));
+    }
+    fs::write(&long, copied).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let securities = read_table(&out.join("securities.csv"));
+    let copy = security_row(&securities, "S03");
+    assert_eq!(text_of(&copy, "not_estimated"), "copies_index");
+    assert!(text_of(&copy, "not_estimated_detail").contains("a fund tracking it"));
+    assert_eq!(text_of(&copy, "beta"), "", "no beta is listed for S03");
+    let a = industry_a(&out);
+    assert_eq!(number(&a, "estimated"), 2.0);
+    assert_eq!(number(&a, "not_estimated_copies_index"), 1.0);
 }
 
 /// Runs with one input broken by `edit`; asserts exit 2, a message holding every `expected`

@@ -314,12 +314,14 @@ pub struct EstimatorRecord {
     pub std_errors_description: String,
 }
 
-/// Describes the case's estimator and standard errors, citing each source.
-pub fn describe(settings: &EstimatorSpec) -> EstimatorRecord {
+/// Describes an estimator and its standard errors, citing each source; `subject` names what is
+/// regressed on the index ("peer" in a case, "security" in a universe).
+pub fn describe(settings: &EstimatorSpec, subject: &str) -> EstimatorRecord {
     let method_description = match settings.method {
-        BetaMethod::Ols => "ordinary least squares of the peer's on the index's return, the \
-                            market model of Sharpe (1963, Management Science 9(2))"
-            .to_string(),
+        BetaMethod::Ols => format!(
+            "ordinary least squares of the {subject}'s on the index's return, the market model \
+             of Sharpe (1963, Management Science 9(2))"
+        ),
         BetaMethod::Dimson => format!(
             "Dimson (1979, J. Financial Economics 7(2)) aggregated coefficients: OLS on the \
              index return of the same period, {} earlier and {} later period(s); beta is the \

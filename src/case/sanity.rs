@@ -31,7 +31,7 @@ pub const MAX_COMPONENT_WEIGHT: f64 = 0.5;
 /// +200% or below −66.7%, the same log move either way.
 pub const JUMP_FACTOR: f64 = 3.0;
 /// A peer whose returns the index explains to more than this R² is the index (or a copy).
-pub const MAX_R_SQUARED: f64 = 0.999;
+pub const MAX_R_SQUARED: f64 = crate::estimate::INDEX_COPY_R_SQUARED;
 /// A risk-free series whose median yield exceeds this multiple of `market.risk_free_rate`
 /// (at least 1%) is taken for percentages.
 pub const YIELD_RATIO: f64 = 10.0;

@@ -164,7 +164,17 @@ pub struct SecurityEstimate {
     pub returns: AlignedReturns,
 }
 
+/// A security whose returns the index explains to more than this R² is the index, or a copy of
+/// it such as a fund tracking it, not a firm: a case refuses it as a peer, a universe lists it
+/// as not estimated. No listed firm's returns follow an index this closely.
+pub const INDEX_COPY_R_SQUARED: f64 = 0.999;
+
 impl SecurityEstimate {
+    /// Whether the index explains the returns to more than [`INDEX_COPY_R_SQUARED`].
+    pub fn copies_index(&self) -> bool {
+        self.estimate.r_squared > INDEX_COPY_R_SQUARED
+    }
+
     /// Why the estimate says nothing when the security's returns (before any risk-free rate)
     /// are all the same over the aligned periods: a price that never moves, a suspended or
     /// stale line. Its beta of 0 and undefined R² carry no information; a case refuses such a

@@ -15,7 +15,9 @@ use serde::Serialize;
 use crate::beta::diagnostics::PeerFlag;
 use crate::beta::rolling::{RollingPoint, Stability};
 use crate::beta::BetaEstimate;
-use crate::estimate::{self, EstimateError, EstimationSpec, MarketReturns, Window};
+use crate::estimate::{
+    self, EstimateError, EstimationSpec, MarketReturns, Window, INDEX_COPY_R_SQUARED,
+};
 use crate::io::series::{iso_date, SeriesView};
 use crate::market::sampling::{self, DroppedPeriods};
 use crate::panel::Panel;
@@ -31,15 +33,20 @@ pub enum NotEstimated {
     /// The security's own returns do not vary: a price that never moves over the window (a
     /// suspended or stale line), whose beta of 0 would pull its industry towards zero.
     FlatPrices,
+    /// The index explains the security's returns almost wholly (R² above
+    /// [`INDEX_COPY_R_SQUARED`]): the index itself or a fund tracking it, not a firm; its beta
+    /// of 1 would pull its industry towards the market's (the rule a case applies to a peer).
+    CopiesIndex,
     /// The estimator could not be fitted (e.g. too many lags for the observations).
     EstimatorFailed,
 }
 
 impl NotEstimated {
-    pub const ALL: [NotEstimated; 4] = [
+    pub const ALL: [NotEstimated; 5] = [
         NotEstimated::TooFewObservations,
         NotEstimated::FlatIndex,
         NotEstimated::FlatPrices,
+        NotEstimated::CopiesIndex,
         NotEstimated::EstimatorFailed,
     ];
 
@@ -49,6 +56,7 @@ impl NotEstimated {
             NotEstimated::TooFewObservations => "too_few_observations",
             NotEstimated::FlatIndex => "flat_index",
             NotEstimated::FlatPrices => "flat_prices",
+            NotEstimated::CopiesIndex => "copies_index",
             NotEstimated::EstimatorFailed => "estimator_failed",
         }
     }
@@ -117,11 +125,24 @@ impl Estimation {
     pub fn security(&self, prices: SeriesView<'_>) -> SecurityEstimate {
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
         let min = self.spec.min_observations;
-        let flat = estimated.as_ref().ok().and_then(|e| e.constant_price());
-        match (estimated, flat) {
-            (Ok(e), Some(reason)) => SecurityEstimate {
+        let unfit = estimated
+            .as_ref()
+            .ok()
+            .and_then(|e| match e.constant_price() {
+                Some(reason) => Some((NotEstimated::FlatPrices, reason)),
+                None => e.copies_index().then(|| {
+                    let r_squared = crate::error::compact(e.estimate.r_squared);
+                    let reason = format!(
+                        "the index explains its returns with R² = {r_squared} (above \
+                     {INDEX_COPY_R_SQUARED}): the index itself or a fund tracking it, not a firm"
+                    );
+                    (NotEstimated::CopiesIndex, reason)
+                }),
+            });
+        match (estimated, unfit) {
+            (Ok(e), Some(unfit)) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
-                outcome: Err((NotEstimated::FlatPrices, reason)),
+                outcome: Err(unfit),
                 rolling: Vec::new(),
             },
             (Ok(e), None) => SecurityEstimate {

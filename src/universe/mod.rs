@@ -317,7 +317,7 @@ pub fn evaluate(
             attributes: inputs.attributes.file.clone(),
         },
         window: estimation.record(),
-        estimator: beta::describe(&settings.estimator_spec()),
+        estimator: beta::describe(&settings.estimator_spec(), "security"),
         formula_source: settings.leverage.formula.citation(),
         formula_expression: settings.leverage.formula.expression(),
         vasicek_prior,

@@ -48,7 +48,7 @@ pub fn value_with(
         settings: settings.clone(),
         files,
         sampling: sampling_record(estimates),
-        estimator: crate::beta::describe(&estimates.spec.estimator),
+        estimator: crate::beta::describe(&estimates.spec.estimator, "peer"),
         peers,
         cost,
         sensitivity: None,

@@ -148,7 +148,7 @@ pub fn check_peer_fit(
         return Err(reason);
     }
     let estimate = &estimated.estimate;
-    if estimate.r_squared > MAX_R_SQUARED {
+    if estimated.copies_index() {
         return Err(format!(
             "the index ({index_path}) explains its returns with R² = {} (above {MAX_R_SQUARED}): \
              the price file is the index or a copy of it",
