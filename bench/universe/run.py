@@ -128,6 +128,13 @@ def main():
     parser.add_argument("--skip-4x", action="store_true")
     parser.add_argument("--repeats", type=int, default=3)
     args = parser.parse_args()
+    binary = pathlib.Path(args.hurdle)
+    if not binary.exists():
+        sys.exit(f"no binary at {binary}: build it (cargo build --release) or pass --hurdle")
+    newest = max(p.stat().st_mtime for p in (REPO / "src").rglob("*.rs"))
+    if binary.stat().st_mtime < newest:
+        print(f"warning: {binary} is older than the sources in src/: rebuild it, or set "
+              "CARGO_TARGET_DIR to where it is built", file=sys.stderr)
     ensure(args.data, 5000, False)
     if not args.skip_4x:
         ensure(args.data_4x, 20000, True)
