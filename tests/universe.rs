@@ -526,6 +526,34 @@ fn a_duplicate_date_and_security_is_refused_naming_both_lines() {
     );
 }
 
+// A file exported with another separator (semicolons where the decimal mark is a comma, or
+// tabs) is named as such, not as a file without the configured columns: the rule a case's
+// price files follow.
+#[test]
+fn a_file_with_another_separator_is_named_as_such() {
+    let with = |file: &'static str, separator: &'static str| {
+        move |dir: &Path| {
+            let path = dir.join(file);
+            let text = fs::read_to_string(&path).unwrap();
+            fs::write(&path, text.replace(',', separator)).unwrap();
+        }
+    };
+    refused(
+        with("attributes.csv", ";"),
+        &[],
+        &[
+            "attributes.csv",
+            "separated by semicolons",
+            "comma-separated",
+        ],
+    );
+    refused(
+        with("prices-long.csv", "\t"),
+        &[],
+        &["prices-long.csv", "separated by tabs", "comma-separated"],
+    );
+}
+
 #[test]
 fn a_non_positive_price_is_refused() {
     refused(

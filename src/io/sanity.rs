@@ -144,18 +144,26 @@ pub struct BlankLine {
 /// The header must be separated by commas: a single field holding `;` or a tab is another
 /// separator, which would otherwise surface as "no column named `date`".
 fn check_header(header: &str) -> std::result::Result<(), String> {
+    match other_separator(header) {
+        Some(name) => Err(format!(
+            "the header `{header}` is separated by {name}; hurdle reads comma-separated files \
+             with a decimal point (date,price then 2026-09-30,43.7678)"
+        )),
+        None => Ok(()),
+    }
+}
+
+/// The separator a header line uses instead of commas, by name ("semicolons" or "tabs"), when
+/// it has no comma but holds `;` or a tab: spreadsheets export such files where the decimal
+/// mark is a comma. One rule for price and yield files, panels and attributes.
+pub fn other_separator(header: &str) -> Option<&'static str> {
     if header.contains(',') {
-        return Ok(());
+        return None;
     }
-    for (separator, name) in [(';', "semicolons"), ('\t', "tabs")] {
-        if header.contains(separator) {
-            return Err(format!(
-                "the header `{header}` is separated by {name}; hurdle reads comma-separated files \
-                 with a decimal point (date,price then 2026-09-30,43.7678)"
-            ));
-        }
-    }
-    Ok(())
+    [(';', "semicolons"), ('\t', "tabs")]
+        .into_iter()
+        .find(|(separator, _)| header.contains(*separator))
+        .map(|(_, name)| name)
 }
 
 /// Yields written as percentages: any yield of 1 (100% a year) or more. Called by

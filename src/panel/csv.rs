@@ -123,7 +123,7 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
         .into_reader_with_file_handle(Cursor::new(block))
         .finish()
         .map_err(|e| source.file_error(format!("not a readable CSV file: {e}")))?;
-    Ok(frame
+    let names: Vec<String> = frame
         .columns()
         .iter()
         .map(|c| {
@@ -133,7 +133,16 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
                 .unwrap_or("")
                 .to_string()
         })
-        .collect())
+        .collect();
+    if let [only] = names.as_slice() {
+        if let Some(separator) = crate::io::sanity::other_separator(only) {
+            return Err(source.file_error(format!(
+                "the header `{only}` is separated by {separator}; hurdle reads comma-separated \
+                 files with a decimal point"
+            )));
+        }
+    }
+    Ok(names)
 }
 
 /// The header's names made unique for the parsing schema: an empty name (a column the header
