@@ -11,6 +11,7 @@
 //! reported with its file, line (CSV) or row (Parquet) and the value; nothing is guessed.
 
 pub mod attributes;
+mod blocks;
 mod cells;
 mod csv;
 mod parquet;
