@@ -27,6 +27,30 @@ pub enum ValueKind {
     Yield,
 }
 
+impl ValueKind {
+    /// The rule `value` breaks, in words, or `None` when it lies in the kind's range: one rule
+    /// for price and yield files, wide tables and panels.
+    pub fn broken_rule(self, value: f64) -> Option<&'static str> {
+        match self {
+            _ if !value.is_finite() => Some(match self {
+                ValueKind::Price => "a price must be a finite number",
+                ValueKind::Yield => "a yield must be a finite number",
+            }),
+            ValueKind::Price if value <= 0.0 => Some("a price must be positive"),
+            ValueKind::Yield if value <= -1.0 => Some("a yield must be above -1 (−100%)"),
+            _ => None,
+        }
+    }
+
+    /// The kind's noun: "price" or "yield".
+    pub fn noun(self) -> &'static str {
+        match self {
+            ValueKind::Price => "price",
+            ValueKind::Yield => "yield",
+        }
+    }
+}
+
 /// A date-ordered series of one security's prices or one rate's yields.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Series {
@@ -239,14 +263,9 @@ fn parse_row(
     let value: f64 = value_cell
         .parse()
         .map_err(|_| format!("`{value_column}` = \"{value_cell}\" is not a number"))?;
-    match kind {
-        ValueKind::Price if !(value.is_finite() && value > 0.0) => Err(format!(
-            "`{value_column}` = {value_cell} on {date}: a price must be positive"
-        )),
-        ValueKind::Yield if !(value.is_finite() && value > -1.0) => Err(format!(
-            "`{value_column}` = {value_cell} on {date}: a yield must be above -1 (−100%)"
-        )),
-        _ => Ok((date, value)),
+    match kind.broken_rule(value) {
+        Some(rule) => Err(format!("`{value_column}` = {value_cell} on {date}: {rule}")),
+        None => Ok((date, value)),
     }
 }
 
@@ -271,6 +290,21 @@ fn parse_iso_date(text: &str) -> Option<NaiveDate> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // A price is a positive finite number and a yield a finite one above −100% (common
+    // practice: a price of zero has no return, a yield of −100% loses everything each year).
+    #[test]
+    fn prices_and_yields_break_their_own_rules() {
+        let rule = |kind: ValueKind, v: f64| kind.broken_rule(v).unwrap_or("");
+        assert_eq!(rule(ValueKind::Price, 12.5), "");
+        assert!(rule(ValueKind::Price, 0.0).contains("positive"));
+        assert!(rule(ValueKind::Price, -1.0).contains("positive"));
+        assert!(rule(ValueKind::Price, f64::INFINITY).contains("finite"));
+        assert!(rule(ValueKind::Price, f64::NAN).contains("finite"));
+        assert_eq!(rule(ValueKind::Yield, -0.5), "");
+        assert!(rule(ValueKind::Yield, -1.0).contains("above -1"));
+        assert!(rule(ValueKind::Yield, f64::NEG_INFINITY).contains("finite"));
+    }
 
     fn parsed(text: &[u8]) -> std::result::Result<Series, String> {
         parse_series(Path::new("p.csv"), text, "date", "price", ValueKind::Price)

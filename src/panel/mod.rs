@@ -26,7 +26,7 @@ use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
-use crate::io::series::{iso_date, SeriesView};
+use crate::io::series::{iso_date, SeriesView, ValueKind};
 
 /// How the prices are laid out in the file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -276,10 +276,9 @@ pub(crate) fn check_price(
     price: f64,
     what: impl FnOnce() -> String,
 ) -> std::result::Result<(), String> {
-    if price.is_finite() && price > 0.0 {
-        Ok(())
-    } else {
-        Err(format!("{} = {price}: a price must be positive", what()))
+    match ValueKind::Price.broken_rule(price) {
+        Some(rule) => Err(format!("{} = {price}: {rule}", what())),
+        None => Ok(()),
     }
 }
 

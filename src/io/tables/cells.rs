@@ -92,14 +92,9 @@ impl Cell {
 
 /// The range rule of a price (finite and positive) or a yield (finite and above −100%).
 pub fn check_range(value: f64, kind: ValueKind) -> Result<(), String> {
-    match kind {
-        ValueKind::Price if !(value.is_finite() && value > 0.0) => {
-            Err(format!("{value} is not a price: a price must be positive"))
-        }
-        ValueKind::Yield if !(value.is_finite() && value > -1.0) => Err(format!(
-            "{value} is not a yield: a yield must be above -1 (−100%)"
-        )),
-        _ => Ok(()),
+    match kind.broken_rule(value) {
+        Some(rule) => Err(format!("{value} is not a {}: {rule}", kind.noun())),
+        None => Ok(()),
     }
 }
 
