@@ -412,14 +412,41 @@ fn counts_and_notes(
     let mut notes = Vec::new();
     if !strays.is_empty() {
         notes.push(format!(
-            "{} in the attributes ({}) {} no prices in the panel and {} left out: {}{}",
+            "{} in the attributes ({}) {} no prices in the panel and {} left out: {}",
             securities_count(strays.len()),
             inputs.attributes.file.path,
             if strays.len() == 1 { "has" } else { "have" },
             if strays.len() == 1 { "is" } else { "are" },
-            strays[..strays.len().min(10)].join(", "),
-            if strays.len() > 10 { ", …" } else { "" }
+            first_ids(&strays)
         ));
+    }
+    // Securities whose prices say more about the data than about a firm, named for a reviewer.
+    for (reason, what) in [
+        (
+            NotEstimated::FlatPrices,
+            "prices that never move over the window",
+        ),
+        (
+            NotEstimated::CopiesIndex,
+            "returns the index explains with R² above 0.999 (the index itself or a fund \
+             tracking it)",
+        ),
+    ] {
+        let ids: Vec<&str> = securities
+            .iter()
+            .filter(|s| s.not_estimated == Some(reason))
+            .map(|s| s.security.as_str())
+            .collect();
+        if !ids.is_empty() {
+            notes.push(format!(
+                "{} {} {what} and {} not estimated ({}): {}",
+                securities_count(ids.len()),
+                if ids.len() == 1 { "has" } else { "have" },
+                if ids.len() == 1 { "is" } else { "are" },
+                reason.name(),
+                first_ids(&ids)
+            ));
+        }
     }
     let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
     let not_estimated = NotEstimated::ALL
@@ -461,6 +488,12 @@ pub const FLAGS: [PeerFlag; 3] = [
     PeerFlag::LowRSquared,
     PeerFlag::StalePrices,
 ];
+
+/// The first ten ids of a note's list, then "…" if there are more.
+fn first_ids(ids: &[&str]) -> String {
+    let more = if ids.len() > 10 { ", …" } else { "" };
+    format!("{}{more}", ids[..ids.len().min(10)].join(", "))
+}
 
 /// "1 security", "2 securities": a count of securities for a note or a summary line.
 pub fn securities_count(n: usize) -> String {
