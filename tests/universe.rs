@@ -434,7 +434,7 @@ fn a_security_whose_price_never_moves_is_not_estimated() {
     assert!(text_of(&flat, "not_estimated_detail").contains("a price that never moves"));
     assert_eq!(text_of(&flat, "beta"), "", "no beta is listed for S03");
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
-    assert!(summary.contains("never move over the window and is not estimated (flat_prices): S03"));
+    assert!(summary.contains("never move over the window, and so no estimate (flat_prices): S03"));
     let a = industry_a(&out);
     assert_eq!(number(&a, "estimated"), 2.0);
     assert_eq!(number(&a, "not_estimated_flat_prices"), 1.0);
@@ -473,7 +473,7 @@ fn a_security_that_copies_the_index_is_not_estimated() {
     assert!(text_of(&copy, "not_estimated_detail").contains("a fund tracking it"));
     assert_eq!(text_of(&copy, "beta"), "", "no beta is listed for S03");
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
-    assert!(summary.contains("is not estimated (copies_index): S03"));
+    assert!(summary.contains("and so no estimate (copies_index): S03"));
     let a = industry_a(&out);
     assert_eq!(number(&a, "estimated"), 2.0);
     assert_eq!(number(&a, "not_estimated_copies_index"), 1.0);

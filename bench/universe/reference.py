@@ -80,7 +80,9 @@ def pipeline(config_path, panel_override=None):
         pl.col(attributes["debt_column"]).alias("debt"),
         pl.col(attributes["tax_rate_column"]).alias("tax_rate"),
     )
-    unlevered = pl.col("beta") / (1.0 + (1.0 - pl.col("tax_rate")) * pl.col("debt") / pl.col("equity"))
+    # Hamada; no unlevered beta above a D/E of 10, where no leverage formula holds (hurdle's rule).
+    de = pl.col("debt") / pl.col("equity")
+    unlevered = pl.when(de <= 10.0).then(pl.col("beta") / (1.0 + (1.0 - pl.col("tax_rate")) * de))
     return (
         betas.join(table, on="security", how="inner")
         .group_by("industry")

@@ -420,33 +420,36 @@ fn counts_and_notes(
             first_ids(&strays)
         ));
     }
-    // Securities whose prices say more about the data than about a firm, named for a reviewer.
-    for (reason, what) in [
+    // Securities whose figures say more about the data than about a firm, named for a reviewer.
+    let not_estimated_as = |reason: NotEstimated, what: &str| {
+        let ids = ids_where(securities, |s| s.not_estimated == Some(reason));
         (
+            ids,
+            format!("{what}, and so no estimate ({})", reason.name()),
+        )
+    };
+    let mut named = vec![
+        not_estimated_as(
             NotEstimated::FlatPrices,
             "prices that never move over the window",
         ),
-        (
+        not_estimated_as(
             NotEstimated::CopiesIndex,
             "returns the index explains with R² above 0.999 (the index itself or a fund \
              tracking it)",
         ),
-    ] {
-        let ids: Vec<&str> = securities
-            .iter()
-            .filter(|s| s.not_estimated == Some(reason))
-            .map(|s| s.security.as_str())
-            .collect();
-        if !ids.is_empty() {
-            notes.push(format!(
-                "{} {} {what} and {} not estimated ({}): {}",
-                securities_count(ids.len()),
-                if ids.len() == 1 { "has" } else { "have" },
-                if ids.len() == 1 { "is" } else { "are" },
-                reason.name(),
-                first_ids(&ids)
-            ));
-        }
+    ];
+    for (issue, what) in securities::UNLEVERING_ISSUES {
+        let ids = ids_where(securities, |s| s.unlevering_issue == Some(issue));
+        named.push((ids, format!("{what} ({issue})")));
+    }
+    for (ids, what) in named.iter().filter(|(ids, _)| !ids.is_empty()) {
+        notes.push(format!(
+            "{} {} {what}: {}",
+            securities_count(ids.len()),
+            if ids.len() == 1 { "has" } else { "have" },
+            first_ids(ids)
+        ));
     }
     let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
     let not_estimated = NotEstimated::ALL
@@ -488,6 +491,15 @@ pub const FLAGS: [PeerFlag; 3] = [
     PeerFlag::LowRSquared,
     PeerFlag::StalePrices,
 ];
+
+/// The ids of the securities `pick` picks, in the rows' order.
+fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bool) -> Vec<&str> {
+    securities
+        .iter()
+        .filter(|s| pick(s))
+        .map(|s| s.security.as_str())
+        .collect()
+}
 
 /// The first ten ids of a note's list, then "…" if there are more.
 fn first_ids(ids: &[&str]) -> String {

@@ -13,6 +13,7 @@ use crate::beta::diagnostics::PeerFlag;
 use crate::beta::rolling::Stability;
 use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
 use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms};
+use crate::case::sanity::MAX_DEBT_TO_EQUITY;
 use crate::case::LeverageSettings;
 use crate::market::sampling::DroppedPeriods;
 use crate::panel::attributes::AttributeRecord;
@@ -221,6 +222,30 @@ struct Unlevering {
     issue: Option<&'static str>,
 }
 
+/// `unlevering_issue` when a net D/E is at or below −1.
+pub const NET_DEBT_AT_OR_BELOW_MINUS_EQUITY: &str = "net_debt_at_or_below_minus_equity";
+/// `unlevering_issue` when D/E is above [`MAX_DEBT_TO_EQUITY`].
+pub const DEBT_TO_EQUITY_ABOVE_LIMIT: &str = "debt_to_equity_above_limit";
+/// `unlevering_issue` when cash is not below equity plus debt (no operations to take a beta of).
+pub const CASH_NOT_BELOW_EQUITY_PLUS_DEBT: &str = "cash_not_below_equity_plus_debt";
+
+/// Each `unlevering_issue` with what it means, for the notes.
+pub const UNLEVERING_ISSUES: [(&str, &str); 3] = [
+    (
+        DEBT_TO_EQUITY_ABOVE_LIMIT,
+        "a D/E above 10 (debt over 10/11 of capital), where no leverage formula holds, and so no \
+         unlevered beta",
+    ),
+    (
+        NET_DEBT_AT_OR_BELOW_MINUS_EQUITY,
+        "net debt at or below minus the equity value, and so no unlevered beta",
+    ),
+    (
+        CASH_NOT_BELOW_EQUITY_PLUS_DEBT,
+        "cash not below equity plus debt, and so no beta of the operations",
+    ),
+];
+
 /// D/E, the unlevered beta and the beta of the operations, as a case computes them for a peer.
 fn unlever(
     beta_used: Option<f64>,
@@ -236,10 +261,14 @@ fn unlever(
         (DebtMeasure::Net, Some(e), Some(d), Some(c)) => Some((d - c) / e),
         _ => None,
     };
-    // A net D/E at or below −1 cannot be unlevered (the case refuses such a peer).
-    let issue = debt_to_equity
-        .filter(|&de| de <= -1.0)
-        .map(|_| "net_debt_at_or_below_minus_equity");
+    // A net D/E at or below −1, or a D/E above the case's limit (debt over 10/11 of capital,
+    // where equity is an option on distressed assets), cannot be unlevered: no leverage formula
+    // holds there, and the case refuses such a peer.
+    let issue = debt_to_equity.and_then(|de| match de {
+        _ if de <= -1.0 => Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY),
+        _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
+        _ => None,
+    });
     let unlevered = match (beta_used, debt_to_equity, tax, issue) {
         (Some(beta), Some(de), Some(t), None) => Some(leverage.formula.unlever_with(
             beta,
@@ -262,7 +291,7 @@ fn unlever(
     let issue = issue.or_else(|| {
         operating_share
             .filter(|&s| s <= 0.0)
-            .map(|_| "cash_not_below_equity_plus_debt")
+            .map(|_| CASH_NOT_BELOW_EQUITY_PLUS_DEBT)
     });
     let operations = match (unlevered, operating_share) {
         (Some(u), Some(s)) if s > 0.0 => Some(u / s),
@@ -282,6 +311,24 @@ mod tests {
     use super::*;
     use crate::capital::leverage::Formula;
 
+    /// `unlever` of a beta of 1.2 at a tax rate of 30%.
+    fn at(
+        equity: f64,
+        debt: Option<f64>,
+        cash: Option<f64>,
+        leverage: &LeverageSettings,
+    ) -> Unlevering {
+        unlever(
+            Some(1.2),
+            Some(equity),
+            debt,
+            cash,
+            Some(0.3),
+            leverage,
+            0.0,
+        )
+    }
+
     // Hamada by hand: βL = 1.2, D/E = 0.5, t = 0.3: βU = 1.2 / (1 + 0.7·0.5) = 1.2 / 1.35.
     // Operating share 1 − 50 / (100 + 50) = 2/3, so the beta of the operations is βU / (2/3).
     #[test]
@@ -290,34 +337,39 @@ mod tests {
             formula: Formula::Hamada,
             ..LeverageSettings::default()
         };
-        let u = unlever(
-            Some(1.2),
-            Some(100.0),
-            Some(50.0),
-            Some(50.0),
-            Some(0.3),
-            &leverage,
-            0.0,
-        );
+        let u = at(100.0, Some(50.0), Some(50.0), &leverage);
         // 1e-15: one multiply-add and one division.
         assert!((u.unlevered.unwrap() - 1.2 / 1.35).abs() < 1e-15);
         assert!((u.operations.unwrap() - 1.2 / 1.35 / (2.0 / 3.0)).abs() < 1e-15);
         assert_eq!(u.debt_to_equity, Some(0.5));
     }
 
+    // The case's limits on a peer's structure (common practice, see case::sanity): a D/E above
+    // 10 (debt over 10/11 of capital) or a net D/E at or below −1 has no unlevered beta, and
+    // says why; 10 itself is still unlevered.
+    #[test]
+    fn structures_no_formula_holds_for_are_not_unlevered() {
+        let gross = LeverageSettings::default();
+        let debt = |d: f64| at(100.0, Some(d), None, &gross);
+        assert!(debt(1000.0).unlevered.is_some());
+        assert_eq!(debt(1000.0).issue, None);
+        assert_eq!(debt(1000.5).unlevered, None);
+        assert_eq!(debt(1000.5).issue, Some(DEBT_TO_EQUITY_ABOVE_LIMIT));
+        let net = LeverageSettings {
+            debt_measure: DebtMeasure::Net,
+            ..LeverageSettings::default()
+        };
+        let u = at(100.0, Some(10.0), Some(110.0), &net);
+        assert_eq!(
+            (u.unlevered, u.issue),
+            (None, Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY))
+        );
+    }
+
     // A missing figure leaves every figure that needs it empty, never a default.
     #[test]
     fn a_missing_figure_is_never_filled_in() {
-        let leverage = LeverageSettings::default();
-        let u = unlever(
-            Some(1.2),
-            Some(100.0),
-            None,
-            Some(5.0),
-            Some(0.3),
-            &leverage,
-            0.0,
-        );
+        let u = at(100.0, None, Some(5.0), &LeverageSettings::default());
         assert_eq!(u.debt_to_equity, None);
         assert_eq!(u.unlevered, None);
         assert_eq!(u.operating_share, None);
@@ -325,15 +377,7 @@ mod tests {
             debt_measure: DebtMeasure::Net,
             ..LeverageSettings::default()
         };
-        let u = unlever(
-            Some(1.2),
-            Some(100.0),
-            Some(50.0),
-            None,
-            Some(0.3),
-            &net,
-            0.0,
-        );
+        let u = at(100.0, Some(50.0), None, &net);
         assert_eq!(u.unlevered, None);
     }
 }

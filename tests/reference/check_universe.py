@@ -12,8 +12,9 @@ recomputes, without any of hurdle's code:
   - each security's OLS market model with scipy.stats.linregress (slope, intercept, their
     standard errors, R^2, the two-sided p-value) and the 95% interval with scipy.stats.t.ppf;
     Durbin-Watson from numpy; the too_few_observations and low_r_squared flags;
-  - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt, and the
-    beta of the operations beta_U / (1 - cash / (equity + debt));
+  - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt (none for
+    a D/E above 10 or at or below -1), and the beta of the operations
+    beta_U / (1 - cash / (equity + debt));
   - per industry: counts, numpy.median / mean / percentile (linear, numpy's default) / min / max /
     std (ddof = 1), numpy.average weighted by market value, scipy.stats.trim_mean(0.1), median D/E,
     and the aggregate the universe file picks.
@@ -158,7 +159,10 @@ def securities(config, folder):
             row["equity"] = equity
             if equity is not None and debt is not None and (cash is not None or not net):
                 row["debt_to_equity"] = ((debt - cash) if net else debt) / equity
-            if "beta" in row and "debt_to_equity" in row and tax is not None:
+            # No leverage formula holds for a D/E above 10 or a net D/E at or below -1: no
+            # unlevered beta (the limits a case puts on a peer; README, securities.csv).
+            de = row.get("debt_to_equity")
+            if "beta" in row and de is not None and -1.0 < de <= 10.0 and tax is not None:
                 row["unlevered_beta"] = row["beta"] / (1.0 + (1.0 - tax) * row["debt_to_equity"])
                 if cash is not None:
                     row["operations_beta"] = row["unlevered_beta"] / (
