@@ -121,6 +121,12 @@ impl Formula {
         self == Formula::MilesEzzell
     }
 
+    /// Whether the formula needs the tax rate: all but Harris–Pringle, whose D/E has no tax
+    /// factor.
+    pub fn uses_tax_rate(self) -> bool {
+        self != Formula::HarrisPringle
+    }
+
     /// The name and source printed in the memo.
     pub fn citation(self) -> &'static str {
         match self {

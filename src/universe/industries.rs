@@ -1,8 +1,9 @@
 //! The industry table: every statistic of the securities of one industry label.
 //!
 //! Levered betas are aggregated over the securities that are estimated and not excluded by
-//! `beta.exclude_flags`; unlevered betas over those of them whose D/E and tax rate are known
-//! (and, for the betas of the operations, their cash). Every location statistic an aggregation
+//! `beta.exclude_flags`; unlevered betas over those of them that have one (a D/E, and a tax
+//! rate where the formula uses it; see [`super::securities`]) and, for the betas of the
+//! operations, their cash. Every location statistic an aggregation
 //! can pick is reported (median, mean, market-cap-weighted mean, trimmed mean), of the unlevered
 //! betas and of the betas of the operations
 //! step, beside the dispersion, so the reader sees how much the choice matters. The statistics

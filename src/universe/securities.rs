@@ -269,6 +269,8 @@ fn unlever(
         _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
         _ => None,
     });
+    // Harris–Pringle has no tax term: a missing tax rate does not stop it (the 0 is never read).
+    let tax = tax.or((!leverage.formula.uses_tax_rate()).then_some(0.0));
     let unlevered = match (beta_used, debt_to_equity, tax, issue) {
         (Some(beta), Some(de), Some(t), None) => Some(leverage.formula.unlever_with(
             beta,
@@ -364,6 +366,32 @@ mod tests {
             (u.unlevered, u.issue),
             (None, Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY))
         );
+    }
+
+    // Harris and Pringle (1985): βU = (βL + βD·D/E) / (1 + D/E), no tax term, so a missing tax
+    // rate does not stop it: 1.2 / 1.5 = 0.8 at D/E = 0.5 and βD = 0. Hamada needs the rate.
+    #[test]
+    fn a_tax_rate_is_needed_only_by_formulas_that_use_it() {
+        let unlevered = |formula: Formula| {
+            let leverage = LeverageSettings {
+                formula,
+                ..LeverageSettings::default()
+            };
+            unlever(
+                Some(1.2),
+                Some(100.0),
+                Some(50.0),
+                None,
+                None,
+                &leverage,
+                0.0,
+            )
+            .unlevered
+        };
+        // 1e-15: one division.
+        assert!((unlevered(Formula::HarrisPringle).unwrap() - 0.8).abs() < 1e-15);
+        assert_eq!(unlevered(Formula::Hamada), None);
+        assert_eq!(unlevered(Formula::Conine), None);
     }
 
     // A missing figure leaves every figure that needs it empty, never a default.
