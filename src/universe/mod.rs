@@ -420,37 +420,7 @@ fn counts_and_notes(
             first_ids(&strays)
         ));
     }
-    // Securities whose figures say more about the data than about a firm, named for a reviewer.
-    let not_estimated_as = |reason: NotEstimated, what: &str| {
-        let ids = ids_where(securities, |s| s.not_estimated == Some(reason));
-        (
-            ids,
-            format!("{what}, and so no estimate ({})", reason.name()),
-        )
-    };
-    let mut named = vec![
-        not_estimated_as(
-            NotEstimated::FlatPrices,
-            "prices that never move over the window",
-        ),
-        not_estimated_as(
-            NotEstimated::CopiesIndex,
-            "returns the index explains with R² above 0.999 (the index itself or a fund \
-             tracking it)",
-        ),
-    ];
-    for (issue, what) in securities::UNLEVERING_ISSUES {
-        let ids = ids_where(securities, |s| s.unlevering_issue == Some(issue));
-        named.push((ids, format!("{what} ({issue})")));
-    }
-    for (ids, what) in named.iter().filter(|(ids, _)| !ids.is_empty()) {
-        notes.push(format!(
-            "{} {} {what}: {}",
-            securities_count(ids.len()),
-            if ids.len() == 1 { "has" } else { "have" },
-            first_ids(ids)
-        ));
-    }
+    notes.extend(named_notes(securities));
     let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
     let not_estimated = NotEstimated::ALL
         .iter()
@@ -491,6 +461,45 @@ pub const FLAGS: [PeerFlag; 3] = [
     PeerFlag::LowRSquared,
     PeerFlag::StalePrices,
 ];
+
+/// The notes that name securities whose figures say more about the data than about a firm:
+/// those not estimated as `flat_prices` or `copies_index`, and those with an unlevering issue.
+fn named_notes(securities: &[SecurityResult]) -> Vec<String> {
+    let not_estimated_as = |reason: NotEstimated, what: &str| {
+        let ids = ids_where(securities, |s| s.not_estimated == Some(reason));
+        (
+            ids,
+            format!("{what}, and so no estimate ({})", reason.name()),
+        )
+    };
+    let mut named = vec![
+        not_estimated_as(
+            NotEstimated::FlatPrices,
+            "prices that never move over the window",
+        ),
+        not_estimated_as(
+            NotEstimated::CopiesIndex,
+            "returns the index explains with R² above 0.999 (the index itself or a fund \
+             tracking it)",
+        ),
+    ];
+    for (issue, what) in securities::UNLEVERING_ISSUES {
+        let ids = ids_where(securities, |s| s.unlevering_issue == Some(issue));
+        named.push((ids, format!("{what} ({issue})")));
+    }
+    named
+        .iter()
+        .filter(|(ids, _)| !ids.is_empty())
+        .map(|(ids, what)| {
+            format!(
+                "{} {} {what}: {}",
+                securities_count(ids.len()),
+                if ids.len() == 1 { "has" } else { "have" },
+                first_ids(ids)
+            )
+        })
+        .collect()
+}
 
 /// The ids of the securities `pick` picks, in the rows' order.
 fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bool) -> Vec<&str> {
