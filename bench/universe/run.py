@@ -2,7 +2,8 @@
 """Benchmark of `hurdle universe` against a polars-lazy reference pipeline, in one session.
 
 Generates the seeded synthetic universe when it is missing (bench/universe/generate.py), then
-times, each in its own process under /usr/bin/time -v (wall clock and peak resident memory):
+times, each in its own process under /usr/bin/time -v (wall clock, peak resident memory and,
+for hurdle's runs, CPU time: steadier than the wall clock on a shared machine):
   - polars merely reading the long CSV and the long Parquet panel (pl.read_csv / read_parquet);
   - the reference pipeline (bench/universe/reference.py: returns, cov/var betas, Hamada,
     industry medians; no statistics);
@@ -35,7 +36,8 @@ TOLERANCE = 1e-9  # the issue's agreement bound; both sides compute in f64 from 
 
 
 def measured(command, env=None):
-    """Runs `command` under /usr/bin/time -v; returns (wall seconds, peak MiB, stdout)."""
+    """Runs `command` under /usr/bin/time -v; returns (wall seconds, peak MiB, stdout, CPU
+    seconds: user plus system, over every thread)."""
     started = time.perf_counter()
     done = subprocess.run(
         ["/usr/bin/time", "-v", *command], capture_output=True, text=True, env=env
@@ -44,7 +46,9 @@ def measured(command, env=None):
     if done.returncode != 0:
         sys.exit(f"failed: {' '.join(map(str, command))}\n{done.stdout}\n{done.stderr}")
     peak = int(re.search(r"Maximum resident set size \(kbytes\): (\d+)", done.stderr).group(1))
-    return wall, peak / 1024, done.stdout
+    cpu = sum(float(re.search(rf"{kind} time \(seconds\): ([0-9.]+)", done.stderr).group(1))
+              for kind in ("User", "System"))
+    return wall, peak / 1024, done.stdout, cpu
 
 
 def python_read(path):
@@ -55,8 +59,8 @@ def python_read(path):
         f"t = time.perf_counter(); frame = pl.{reader}({str(path)!r})\n"
         "print('seconds', time.perf_counter() - t, frame.height)\n"
     )
-    _, peak, out = measured([sys.executable, "-c", code])
-    return float(out.split()[1]), peak
+    _, peak, out, _ = measured([sys.executable, "-c", code])
+    return float(out.split()[1]), peak, None
 
 
 def inner_seconds(stdout):
@@ -65,17 +69,17 @@ def inner_seconds(stdout):
 
 def reference(universe, scratch):
     """The reference pipeline's own time (after imports) and peak memory."""
-    _, peak, out = measured([sys.executable, str(HERE / "reference.py"), str(universe),
-                             "--out", str(scratch / "reference.csv")])
-    return inner_seconds(out), peak
+    _, peak, out, _ = measured([sys.executable, str(HERE / "reference.py"), str(universe),
+                                "--out", str(scratch / "reference.csv")])
+    return inner_seconds(out), peak, None
 
 
 def hurdle_run(hurdle, universe, out, *overrides):
     command = [hurdle, "universe", str(universe), "--out", str(out), "--quiet"]
     for assignment in overrides:
         command += ["--set", assignment]
-    wall, peak, _ = measured(command)
-    return wall, peak
+    wall, peak, _, cpu = measured(command)
+    return wall, peak, cpu
 
 
 def read_table(path):
@@ -114,8 +118,11 @@ def warm(folder):
 
 
 def best(runs):
-    """The fastest time and the largest peak of repeated (seconds, peak MiB, ...) runs."""
-    return min(r[0] for r in runs), max(r[1] for r in runs)
+    """The fastest time, the largest peak and the least CPU time of repeated (seconds, peak MiB,
+    CPU seconds or None) runs. CPU time is given for hurdle's runs only: a Python step's would
+    include its imports, which its own timing leaves out."""
+    cpus = [r[2] for r in runs if r[2] is not None]
+    return min(r[0] for r in runs), max(r[1] for r in runs), min(cpus) if cpus else None
 
 
 def main():
@@ -167,14 +174,15 @@ def main():
     size = (args.data / "prices-long.csv").stat().st_size / 1e6
     print(f"panel: {args.data}/prices-long.csv, {size:.0f} MB; {os.cpu_count()} cores; "
           f"load average {os.getloadavg()[0]:.1f}; best of {args.repeats}")
-    print(f"{'step':44} {'seconds':>8} {'peak MiB':>9}")
-    for name, (seconds, peak) in figures.items():
-        print(f"{name:44} {seconds:8.3f} {peak:9.0f}")
+    print(f"{'step':44} {'seconds':>8} {'peak MiB':>9} {'CPU s':>7}")
+    for name, (seconds, peak, cpu) in figures.items():
+        shown = f"{cpu:7.2f}" if cpu is not None else f"{'-':>7}"
+        print(f"{name:44} {seconds:8.3f} {peak:9.0f} {shown}")
     print(f"industry medians vs reference: max |difference| CSV {worst:.2e}, Parquet "
           f"{worst_pq:.2e} (bound {TOLERANCE:.0e})")
     read_csv = figures["polars read_csv (long CSV)"][0]
     ref = figures["reference pipeline (polars lazy)"][0]
-    ours_csv, ours_csv_peak = figures["hurdle universe, long CSV"]
+    ours_csv, ours_csv_peak, _ = figures["hurdle universe, long CSV"]
     ours_pq = figures["hurdle universe, long Parquet"][0]
     checks = [
         ("reference / hurdle CSV", ref / ours_csv, ">= 3", ref / ours_csv >= 3),
@@ -183,7 +191,7 @@ def main():
         ("hurdle CSV peak MiB", ours_csv_peak, "<= 600", ours_csv_peak <= 600),
     ]
     if not args.skip_4x:
-        ours_4x, ours_4x_peak = figures["hurdle universe, 4x (20,000) long CSV"]
+        ours_4x, ours_4x_peak, _ = figures["hurdle universe, 4x (20,000) long CSV"]
         checks += [
             ("hurdle 4x / hurdle 1x time", ours_4x / ours_csv, "about 4", ours_4x / ours_csv <= 4.6),
             ("hurdle 4x peak MiB", ours_4x_peak, "< 2560", ours_4x_peak < 2560),
