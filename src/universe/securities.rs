@@ -229,6 +229,9 @@ pub const DEBT_TO_EQUITY_ABOVE_LIMIT: &str = "debt_to_equity_above_limit";
 /// `unlevering_issue` when cash is not below equity plus debt (no operations to take a beta of).
 pub const CASH_NOT_BELOW_EQUITY_PLUS_DEBT: &str = "cash_not_below_equity_plus_debt";
 
+// The notes below say "10": the case's limit, checked here so the two cannot drift apart.
+const _: () = assert!(MAX_DEBT_TO_EQUITY == 10.0);
+
 /// Each `unlevering_issue` with what it means, for the notes.
 pub const UNLEVERING_ISSUES: [(&str, &str); 3] = [
     (
