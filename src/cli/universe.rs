@@ -89,7 +89,8 @@ impl Display {
         if show {
             let delayed = bar.clone();
             let wait = QUIET_START.saturating_sub(started.elapsed());
-            std::thread::spawn(move || {
+            // Without a thread (the system will not start one) the run goes on without a bar.
+            let _ = std::thread::Builder::new().spawn(move || {
                 std::thread::sleep(wait);
                 if !delayed.is_finished() {
                     delayed.set_draw_target(ProgressDrawTarget::stderr());

@@ -24,7 +24,9 @@ pub(super) fn scan_blocks(
     std::thread::scope(|scope| {
         let (blocks, blocks_in) = sync_channel(2);
         let (spares, spares_in) = channel();
-        let reader = scope.spawn(move || read_blocks(source, block_bytes, blocks, spares_in));
+        let reader = source.spawn(scope, move || {
+            read_blocks(source, block_bytes, blocks, spares_in)
+        })?;
         let mut first = true;
         let mut outcome = Ok(());
         for (block, quoted) in blocks_in.iter() {

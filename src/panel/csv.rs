@@ -67,9 +67,9 @@ pub(super) fn read(
                 let line: usize = made.header.iter().map(|n| n.len() + 1).sum();
                 block_bytes.store(BLOCK_BYTES.max(BLOCK_ROWS * line), Ordering::Relaxed);
                 let (receiver, wide) = (frames_in.take().expect("once"), made.wide.clone());
-                pusher = Some(
-                    scope.spawn(move || push_frames(rows, receiver, &wide, source, columns, hook)),
-                );
+                pusher = Some(source.spawn(scope, move || {
+                    push_frames(rows, receiver, &wide, source, columns, hook)
+                })?);
                 plan = Some(made);
             }
             let plan = plan.as_ref().expect("set by the first block");
@@ -330,14 +330,22 @@ fn parse_plain(block: &[u8], plan: &Plan) -> Option<DataFrame> {
         .max(1);
     let pieces = split_at_line_ends(block, parts);
     let frames: Vec<Option<DataFrame>> = std::thread::scope(|scope| {
+        // A piece whose thread the system will not start is parsed here, after the first.
         let others: Vec<_> = pieces[1..]
             .iter()
-            .map(|&bytes| scope.spawn(move || piece(bytes)))
+            .map(|&bytes| {
+                let thread = std::thread::Builder::new();
+                thread
+                    .spawn_scoped(scope, move || piece(bytes))
+                    .map_err(|_| bytes)
+            })
             .collect();
         let first = piece(pieces[0]);
-        std::iter::once(first)
-            .chain(others.into_iter().map(|h| h.join().unwrap_or(None)))
-            .collect()
+        let rest = others.into_iter().map(|other| match other {
+            Ok(thread) => thread.join().unwrap_or(None),
+            Err(bytes) => piece(bytes),
+        });
+        std::iter::once(first).chain(rest).collect()
     });
     let mut frames = frames.into_iter();
     let mut whole = frames.next()??;

@@ -213,6 +213,18 @@ pub(crate) struct Source {
 }
 
 impl Source {
+    /// Starts `work` on a thread of `scope`: a thread the system will not start is an error
+    /// about reading this file, not a panic.
+    pub(crate) fn spawn<'scope, T: Send + 'scope>(
+        &self,
+        scope: &'scope std::thread::Scope<'scope, '_>,
+        work: impl FnOnce() -> T + Send + 'scope,
+    ) -> Result<std::thread::ScopedJoinHandle<'scope, T>> {
+        std::thread::Builder::new()
+            .spawn_scoped(scope, work)
+            .map_err(|e| self.file_error(format!("cannot start a thread to read it: {e}")))
+    }
+
     /// An error about the file as a whole.
     pub fn file_error(&self, message: String) -> Error {
         Error::DataFile {

@@ -44,16 +44,16 @@ pub(super) fn read(
             .collect(),
     };
     std::thread::scope(|scope| {
-        let hasher = scope.spawn(|| hash_file(source));
+        let hasher = source.spawn(scope, || hash_file(source))?;
         let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
         let wide = &wide;
-        let pusher = scope.spawn(move || {
+        let pusher = source.spawn(scope, move || {
             for (frame, first_row) in frames_in {
                 push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
                 rows.hand_out(hook);
             }
             Ok(rows)
-        });
+        })?;
         // A closed channel means the pusher stopped at a bad row; its error is returned below.
         let decoded = for_each_slice(source, &names, |frame, first_row| {
             frames
