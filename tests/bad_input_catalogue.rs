@@ -1127,6 +1127,21 @@ fn case_files() -> Vec<Bad> {
             ["{line}", "market.equity_risk_premium", "1e999"]
         ),
         bad!(
+            "interest expense too small for a coverage ratio",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=coverage",
+                "--set",
+                "debt.interest_expense=1e-320"
+            ],
+            ["debt.interest_expense", "1e-320", "too small"]
+        ),
+        bad!(
             "NaN in an unused key",
             |s| edit_at(s, "case.toml", "ebit = 210.0", "ebit = nan"),
             ["run", "{case}", "--out", "{out}"],

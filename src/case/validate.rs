@@ -523,6 +523,18 @@ fn validate_debt(case: &CaseFile) -> std::result::Result<(), String> {
                     ebit / interest
                 ));
             }
+            // An interest expense so small that the ratio overflows (a value in the wrong
+            // units, or a denormal number) gives no rating either.
+            if !(ebit / interest).is_finite() {
+                let show = crate::error::compact;
+                return Err(format!(
+                    "debt.ebit = {} over debt.interest_expense = {} gives an interest coverage \
+                     of {}: the interest expense is too small for a ratio; check its units",
+                    show(ebit),
+                    show(interest),
+                    show(ebit / interest)
+                ));
+            }
         }
     }
     let leverage = &case.leverage;
