@@ -479,6 +479,45 @@ fn a_security_that_copies_the_index_is_not_estimated() {
     assert_eq!(number(&a, "not_estimated_copies_index"), 1.0);
 }
 
+// A price ten times its neighbours (a bad price, or a split the file did not adjust) moves by
+// more than the plausibility bound of 3 up or down between two rows, the rule a case applies to
+// a price file: the security is listed as not estimated (`price_jump`), its return never
+// reaches a regression, and the notes name it.
+#[test]
+fn a_security_with_an_implausible_price_move_is_not_estimated() {
+    let setup = Setup::new();
+    let long = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&long).unwrap();
+    let mut seen = 0;
+    let edited: String = text
+        .lines()
+        .map(
+            |line| match line.split(',').collect::<Vec<_>>().as_slice() {
+                [date, "S03", price] => {
+                    seen += 1;
+                    match seen {
+                        200 => format!("{date},S03,{}\n", price.parse::<f64>().unwrap() * 10.0),
+                        _ => format!("{line}\n"),
+                    }
+                }
+                _ => format!("{line}\n"),
+            },
+        )
+        .collect();
+    fs::write(&long, edited).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let securities = read_table(&out.join("securities.csv"));
+    let jumped = security_row(&securities, "S03");
+    assert_eq!(text_of(&jumped, "not_estimated"), "price_jump");
+    assert!(text_of(&jumped, "not_estimated_detail").contains("by a factor of 10"));
+    assert_eq!(text_of(&jumped, "beta"), "", "no beta is listed for S03");
+    let a = industry_a(&out);
+    assert_eq!(number(&a, "estimated"), 2.0);
+    assert_eq!(number(&a, "not_estimated_price_jump"), 1.0);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(summary.contains("and so no estimate (price_jump): S03"));
+}
+
 /// Runs with one input broken by `edit`; asserts exit 2, a message holding every `expected`
 /// fragment and no output folder.
 fn refused(edit: impl FnOnce(&Path), sets: &[&str], expected: &[&str]) {

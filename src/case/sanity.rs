@@ -30,6 +30,13 @@ pub const MAX_COMPONENT_WEIGHT: f64 = 0.5;
 /// less than its inverse) is an error unless the case accepts the date: a simple return above
 /// +200% or below −66.7%, the same log move either way.
 pub const JUMP_FACTOR: f64 = 3.0;
+
+/// Whether a price moving from `previous` to `price` between two consecutive rows goes beyond
+/// [`JUMP_FACTOR`] up or down: a case refuses the file unless the date is accepted, a universe
+/// does not estimate the security.
+pub fn implausible_move(previous: f64, price: f64) -> bool {
+    !(1.0 / JUMP_FACTOR..=JUMP_FACTOR).contains(&(price / previous))
+}
 /// A peer whose returns the index explains to more than this R² is the index (or a copy).
 pub const MAX_R_SQUARED: f64 = crate::estimate::INDEX_COPY_R_SQUARED;
 /// A risk-free series whose median yield exceeds this multiple of `market.risk_free_rate`

@@ -15,6 +15,7 @@ use serde::Serialize;
 use crate::beta::diagnostics::PeerFlag;
 use crate::beta::rolling::{RollingPoint, Stability};
 use crate::beta::BetaEstimate;
+use crate::case::sanity::{implausible_move, significant, JUMP_FACTOR};
 use crate::estimate::{
     self, EstimateError, EstimationSpec, MarketReturns, Window, INDEX_COPY_R_SQUARED,
 };
@@ -30,6 +31,10 @@ pub enum NotEstimated {
     TooFewObservations,
     /// The index returns do not vary over the periods aligned with the security.
     FlatIndex,
+    /// A price moves by more than the case's plausibility bound (a factor of 3 up or down)
+    /// between two consecutive rows in the window: an unadjusted split or a bad price, whose
+    /// return would swamp the regression (the rule a case applies to a price file).
+    PriceJump,
     /// The security's own returns do not vary: a price that never moves over the window (a
     /// suspended or stale line), whose beta of 0 would pull its industry towards zero.
     FlatPrices,
@@ -42,9 +47,10 @@ pub enum NotEstimated {
 }
 
 impl NotEstimated {
-    pub const ALL: [NotEstimated; 5] = [
+    pub const ALL: [NotEstimated; 6] = [
         NotEstimated::TooFewObservations,
         NotEstimated::FlatIndex,
+        NotEstimated::PriceJump,
         NotEstimated::FlatPrices,
         NotEstimated::CopiesIndex,
         NotEstimated::EstimatorFailed,
@@ -55,6 +61,7 @@ impl NotEstimated {
         match self {
             NotEstimated::TooFewObservations => "too_few_observations",
             NotEstimated::FlatIndex => "flat_index",
+            NotEstimated::PriceJump => "price_jump",
             NotEstimated::FlatPrices => "flat_prices",
             NotEstimated::CopiesIndex => "copies_index",
             NotEstimated::EstimatorFailed => "estimator_failed",
@@ -81,6 +88,26 @@ pub struct SecurityEstimate {
     pub outcome: Result<Estimated, (NotEstimated, String)>,
     /// Rolling OLS betas, when asked for.
     pub rolling: Vec<RollingPoint>,
+}
+
+/// The first move beyond the case's plausibility bound between two consecutive prices, the
+/// later dated inside the window (after its first sample point, up to its last), in words.
+fn first_jump(prices: SeriesView<'_>, start: NaiveDate, end: NaiveDate) -> Option<String> {
+    let (dates, values) = (prices.dates, prices.values);
+    let from = dates.partition_point(|&d| d <= start).max(1);
+    let to = dates.partition_point(|&d| d <= end);
+    let i = (from..to).find(|&i| implausible_move(values[i - 1], values[i]))?;
+    let show = crate::error::compact;
+    Some(format!(
+        "its price moves from {} on {} to {} on {}, by a factor of {}, beyond the plausibility \
+         bound of {JUMP_FACTOR} up or down between two rows: an unadjusted split or a bad price \
+         (a case refuses such a file unless the move is accepted)",
+        show(values[i - 1]),
+        dates[i - 1],
+        show(values[i]),
+        dates[i],
+        significant(values[i] / values[i - 1])
+    ))
 }
 
 /// The spec, the window and the index's returns, shared by every security of a run.
@@ -123,6 +150,13 @@ impl Estimation {
 
     /// One security, as a case estimates a peer.
     pub fn security(&self, prices: SeriesView<'_>) -> SecurityEstimate {
+        if let Some(detail) = first_jump(prices, self.window.start(), self.window.end()) {
+            return SecurityEstimate {
+                periods_dropped: None,
+                outcome: Err((NotEstimated::PriceJump, detail)),
+                rolling: Vec::new(),
+            };
+        }
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
         let min = self.spec.min_observations;
         let unfit = estimated

@@ -474,6 +474,11 @@ fn named_notes(securities: &[SecurityResult]) -> Vec<String> {
     };
     let mut named = vec![
         not_estimated_as(
+            NotEstimated::PriceJump,
+            "a price that moves by more than a factor of 3 between two rows in the window (an \
+             unadjusted split or a bad price)",
+        ),
+        not_estimated_as(
             NotEstimated::FlatPrices,
             "prices that never move over the window",
         ),

@@ -8,7 +8,8 @@ use std::path::Path;
 use super::{Inputs, Valuation};
 use crate::case::sanity::significant;
 use crate::case::sanity::{
-    text, JUMP_FACTOR, MAX_DEBT_TO_EQUITY, MAX_R_SQUARED, MAX_TOLERANCE, YIELD_RATIO,
+    implausible_move, text, JUMP_FACTOR, MAX_DEBT_TO_EQUITY, MAX_R_SQUARED, MAX_TOLERANCE,
+    YIELD_RATIO,
 };
 use crate::case::{Case, CaseDate};
 use crate::error::{compact as show, Error, Result};
@@ -81,7 +82,7 @@ fn check_jumps(path: &Path, key: &str, file: &DataFile, accepted: &[CaseDate]) -
     let (dates, prices) = (&file.series.dates, &file.series.values);
     for i in 1..prices.len() {
         let ratio = prices[i] / prices[i - 1];
-        let plausible = (1.0 / JUMP_FACTOR..=JUMP_FACTOR).contains(&ratio);
+        let plausible = !implausible_move(prices[i - 1], prices[i]);
         if plausible || accepted.iter().any(|d| d.0 == dates[i]) {
             continue;
         }

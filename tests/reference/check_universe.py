@@ -147,7 +147,11 @@ def securities(config, folder):
         asset = returns(samples(series, before, points))
         pairs = [(a, m) for a, m in zip(asset, market) if a is not None and m is not None]
         row = {"industry": None}
-        if len(pairs) >= beta.get("min_observations", 36):
+        # A move beyond a factor of 3 between two rows, the later after the first sample point
+        # and up to the last, leaves the security unestimated (an unadjusted split, a bad price).
+        jump = any(points[0] < d <= points[-1] and not (1 / 3 <= p / q <= 3)
+                   for (_, q), (d, p) in zip(series, series[1:]))
+        if len(pairs) >= beta.get("min_observations", 36) and not jump:
             row.update(regression([a for a, _ in pairs], [m for _, m in pairs]))
         a = attributes.get(security)
         if a is not None:
