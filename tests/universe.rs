@@ -597,6 +597,34 @@ fn a_file_with_another_separator_is_named_as_such() {
     );
 }
 
+// One bad index price moves every beta: the index is held to the case's bound on a price
+// file (a factor of 3 up or down between two rows), naming the line, and the case's key
+// `market.index.accept_jumps` accepts a real move.
+#[test]
+fn an_implausible_index_move_is_refused_unless_accepted() {
+    let tenfold = |dir: &Path| -> [String; 2] {
+        let path = dir.join("index.csv");
+        let text = fs::read_to_string(&path).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        let (date, price) = lines[49].split_once(',').unwrap();
+        let price: f64 = price.parse().unwrap();
+        replace_line(&path, 50, &format!("{date},{}", price * 10.0));
+        let next = lines[50].split_once(',').unwrap().0;
+        [date.to_string(), next.to_string()]
+    };
+    refused(
+        |dir| {
+            tenfold(dir);
+        },
+        &[],
+        &["index.csv, line 50", "market.index.accept_jumps"],
+    );
+    let setup = Setup::new();
+    let [up, down] = tenfold(&setup.dir());
+    let accepted = format!("market.index.accept_jumps=[\"{up}\", \"{down}\"]");
+    setup.succeeds("out", &[accepted.as_str()]);
+}
+
 #[test]
 fn a_non_positive_price_is_refused() {
     refused(

@@ -63,6 +63,14 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         &index_spec.price_column,
         ValueKind::Price,
     )?;
+    // One bad index price would move every beta: refused as a case refuses it, naming the
+    // line, unless `market.index.accept_jumps` accepts the date.
+    crate::valuation::sanity::check_jumps(
+        &universe.resolve(&index_spec.prices),
+        "market.index",
+        &index,
+        &index_spec.accept_jumps,
+    )?;
     let risk_free = match &settings.market.risk_free_series {
         Some(spec) => Some(read_series_file(
             "risk_free",

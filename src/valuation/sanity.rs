@@ -78,7 +78,12 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
 }
 
 /// A move by more than [`JUMP_FACTOR`] between consecutive rows, unless its date is accepted.
-fn check_jumps(path: &Path, key: &str, file: &DataFile, accepted: &[CaseDate]) -> Result<()> {
+pub(crate) fn check_jumps(
+    path: &Path,
+    key: &str,
+    file: &DataFile,
+    accepted: &[CaseDate],
+) -> Result<()> {
     let (dates, prices) = (&file.series.dates, &file.series.values);
     for i in 1..prices.len() {
         let ratio = prices[i] / prices[i - 1];
