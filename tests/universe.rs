@@ -415,29 +415,14 @@ fn industry_a(out: &Path) -> DataFrame {
 #[test]
 fn a_security_whose_price_never_moves_is_not_estimated() {
     let setup = Setup::new();
-    let long = setup.dir().join("prices-long.csv");
-    let text = fs::read_to_string(&long).unwrap();
-    let flattened: String = text
-        .lines()
-        .map(
-            |line| match line.split(',').collect::<Vec<_>>().as_slice() {
-                [date, "S03", _] => format!("{date},S03,50\n"),
-                _ => format!("{line}\n"),
-            },
-        )
-        .collect();
-    fs::write(&long, flattened).unwrap();
+    rewrite_s03(&setup.dir(), |date, _| Some(format!("{date},S03,50")));
     let out = setup.succeeds("out", &[]);
-    let securities = read_table(&out.join("securities.csv"));
-    let flat = security_row(&securities, "S03");
-    assert_eq!(text_of(&flat, "not_estimated"), "flat_prices");
-    assert!(text_of(&flat, "not_estimated_detail").contains("a price that never moves"));
-    assert_eq!(text_of(&flat, "beta"), "", "no beta is listed for S03");
-    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
-    assert!(summary.contains("never move over the window, and so no estimate (flat_prices): S03"));
-    let a = industry_a(&out);
-    assert_eq!(number(&a, "estimated"), 2.0);
-    assert_eq!(number(&a, "not_estimated_flat_prices"), 1.0);
+    let (securities, a) = assert_s03_left_out(
+        &out,
+        "flat_prices",
+        "a price that never moves",
+        "never move over the window, and so no estimate (flat_prices): S03",
+    );
     let others = [
         number(&security_row(&securities, "S01"), "beta"),
         number(&security_row(&securities, "S02"), "beta"),
@@ -467,16 +452,12 @@ fn a_security_that_copies_the_index_is_not_estimated() {
     }
     fs::write(&long, copied).unwrap();
     let out = setup.succeeds("out", &[]);
-    let securities = read_table(&out.join("securities.csv"));
-    let copy = security_row(&securities, "S03");
-    assert_eq!(text_of(&copy, "not_estimated"), "copies_index");
-    assert!(text_of(&copy, "not_estimated_detail").contains("a fund tracking it"));
-    assert_eq!(text_of(&copy, "beta"), "", "no beta is listed for S03");
-    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
-    assert!(summary.contains("and so no estimate (copies_index): S03"));
-    let a = industry_a(&out);
-    assert_eq!(number(&a, "estimated"), 2.0);
-    assert_eq!(number(&a, "not_estimated_copies_index"), 1.0);
+    assert_s03_left_out(
+        &out,
+        "copies_index",
+        "a fund tracking it",
+        "and so no estimate (copies_index): S03",
+    );
 }
 
 // A price ten times its neighbours (a bad price, or a split the file did not adjust) moves by
@@ -486,36 +467,59 @@ fn a_security_that_copies_the_index_is_not_estimated() {
 #[test]
 fn a_security_with_an_implausible_price_move_is_not_estimated() {
     let setup = Setup::new();
-    let long = setup.dir().join("prices-long.csv");
-    let text = fs::read_to_string(&long).unwrap();
     let mut seen = 0;
+    rewrite_s03(&setup.dir(), |date, price| {
+        seen += 1;
+        (seen == 200).then(|| format!("{date},S03,{}", price.parse::<f64>().unwrap() * 10.0))
+    });
+    let out = setup.succeeds("out", &[]);
+    assert_s03_left_out(
+        &out,
+        "price_jump",
+        "by a factor of 10",
+        "and so no estimate (price_jump): S03",
+    );
+}
+
+/// Rewrites S03's rows of the long panel: `row(date, price)` gives a row's new line, or `None`
+/// to keep it.
+fn rewrite_s03(dir: &Path, mut row: impl FnMut(&str, &str) -> Option<String>) {
+    let long = dir.join("prices-long.csv");
+    let text = fs::read_to_string(&long).unwrap();
     let edited: String = text
         .lines()
-        .map(
-            |line| match line.split(',').collect::<Vec<_>>().as_slice() {
-                [date, "S03", price] => {
-                    seen += 1;
-                    match seen {
-                        200 => format!("{date},S03,{}\n", price.parse::<f64>().unwrap() * 10.0),
-                        _ => format!("{line}\n"),
-                    }
-                }
-                _ => format!("{line}\n"),
-            },
-        )
+        .map(|line| {
+            let new = match line.split(',').collect::<Vec<_>>().as_slice() {
+                [date, "S03", price] => row(date, price),
+                _ => None,
+            };
+            new.unwrap_or_else(|| line.to_string()) + "\n"
+        })
         .collect();
     fs::write(&long, edited).unwrap();
-    let out = setup.succeeds("out", &[]);
+}
+
+/// Asserts that S03 is listed as not estimated for `reason` (its detail holding `detail`, no
+/// beta), that Industry A counts it under `not_estimated_{reason}` beside its two estimated
+/// securities, and that summary.md's notes hold `note`; returns the securities table and
+/// Industry A's row.
+fn assert_s03_left_out(
+    out: &Path,
+    reason: &str,
+    detail: &str,
+    note: &str,
+) -> (DataFrame, DataFrame) {
     let securities = read_table(&out.join("securities.csv"));
-    let jumped = security_row(&securities, "S03");
-    assert_eq!(text_of(&jumped, "not_estimated"), "price_jump");
-    assert!(text_of(&jumped, "not_estimated_detail").contains("by a factor of 10"));
-    assert_eq!(text_of(&jumped, "beta"), "", "no beta is listed for S03");
-    let a = industry_a(&out);
-    assert_eq!(number(&a, "estimated"), 2.0);
-    assert_eq!(number(&a, "not_estimated_price_jump"), 1.0);
+    let row = security_row(&securities, "S03");
+    assert_eq!(text_of(&row, "not_estimated"), reason);
+    assert!(text_of(&row, "not_estimated_detail").contains(detail));
+    assert_eq!(text_of(&row, "beta"), "", "no beta is listed for S03");
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
-    assert!(summary.contains("and so no estimate (price_jump): S03"));
+    assert!(summary.contains(note), "{summary}");
+    let a = industry_a(out);
+    assert_eq!(number(&a, "estimated"), 2.0);
+    assert_eq!(number(&a, &format!("not_estimated_{reason}")), 1.0);
+    (securities, a)
 }
 
 /// Runs with one input broken by `edit`; asserts exit 2, a message holding every `expected`
