@@ -1,6 +1,8 @@
-//! Fuzz targets on stable Rust (proptest): mutated case files, `--set` assignments and price
-//! files are fed through the library — reading, overrides, validation, data loading and the
-//! whole valuation — and the bar is zero panics. Any `Err` is an accepted answer; a panic, or a
+//! Fuzz targets on stable Rust (proptest): mutated case files, `--set` assignments, price
+//! files and universes (the universe file, its panel as long or wide CSV or Parquet, its
+//! attributes and its index) are fed through the library — reading, overrides, validation, data
+//! loading, the whole valuation or universe run, and the universe's writers — and the bar is
+//! zero panics. Any `Err` is an accepted answer; a panic, or a
 //! result holding a non-finite figure, fails the property and proptest shrinks it to a minimal
 //! input. The mutations are chosen from the values that broke hurdle before (NaN, infinities,
 //! huge and subnormal numbers, counts past 32 bits, impossible dates, separators, stray bytes)
@@ -11,10 +13,12 @@
 //! fresh random seeds and counts the executions. Each target prints how many inputs it ran.
 
 mod common;
+mod universe_data;
 
 use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
+use hurdle::case::sanity::text::first_non_finite_in;
 use hurdle::io::series::{parse_series, ValueKind};
 use proptest::prelude::*;
 use proptest::sample::select;
@@ -133,7 +137,10 @@ const TOML_LINES: &[&str] = &[
 
 /// Keys with plausible and edge values, so that mutated cases get through validation and
 /// reach the option combinations deep in the valuation. `peer` keys go to a random peer.
-const SETTINGS: &[(&str, &str, &[&str])] = &[
+/// A table, a key and the values to plant in it.
+type Setting = (&'static str, &'static str, &'static [&'static str]);
+
+const SETTINGS: &[Setting] = &[
     (
         "beta",
         "frequency",
@@ -302,6 +309,11 @@ fn edits() -> impl Strategy<Value = Vec<Edit>> {
 }
 
 fn apply(text: &str, edits: &[Edit]) -> String {
+    apply_with(text, edits, SETTINGS)
+}
+
+/// [`apply`] with `Edit::Set` choosing from `settings`.
+fn apply_with(text: &str, edits: &[Edit], settings: &[Setting]) -> String {
     let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
     for edit in edits {
         let find = |pick: &dyn Fn(&str) -> bool, n: usize, lines: &[String]| {
@@ -310,7 +322,7 @@ fn apply(text: &str, edits: &[Edit]) -> String {
         };
         let count = lines.len().max(1);
         match *edit {
-            Edit::Set(k, v) => set_key(&mut lines, SETTINGS[k % SETTINGS.len()], v),
+            Edit::Set(k, v) => set_key(&mut lines, settings[k % settings.len()], v),
             Edit::Value(n, value) => {
                 let is_pair = |l: &str| l.contains(" = ") && !l.starts_with('#');
                 if let Some(i) = find(&is_pair, n, &lines) {
@@ -349,7 +361,7 @@ fn apply(text: &str, edits: &[Edit]) -> String {
 
 /// Sets `key = values[v]` in the table `section` (the `v`-th peer's for `peer`), replacing the
 /// key's line or adding it after the table's header.
-fn set_key(lines: &mut Vec<String>, (section, key, values): (&str, &str, &[&str]), v: usize) {
+fn set_key(lines: &mut Vec<String>, (section, key, values): Setting, v: usize) {
     let header = if section == "peer" {
         "[[peer]]".to_string()
     } else {
@@ -597,8 +609,10 @@ fn rows(bytes: &[u8], f: impl FnOnce(&mut Vec<String>)) -> Vec<u8> {
     (lines.join("\n") + "\n").into_bytes()
 }
 
+/// The row's last field as a number: the price of a `date,price` file or of a long panel's
+/// `date,security,price` row.
 fn price(row: &str) -> Option<f64> {
-    row.split_once(',').and_then(|(_, p)| p.parse().ok())
+    row.rsplit_once(',').and_then(|(_, p)| p.parse().ok())
 }
 
 fn apply_bytes(original: &[u8], edits: &[ByteEdit]) -> Vec<u8> {
@@ -610,8 +624,8 @@ fn apply_bytes(original: &[u8], edits: &[ByteEdit]) -> Vec<u8> {
                 bytes = rows(&bytes, |data| {
                     let at = i % data.len().max(1);
                     if let Some(row) = data.get_mut(at) {
-                        if let (Some((date, _)), Some(p)) = (row.split_once(','), price(row)) {
-                            *row = format!("{date},{}", p * factor);
+                        if let (Some((head, _)), Some(p)) = (row.rsplit_once(','), price(row)) {
+                            *row = format!("{head},{}", p * factor);
                         }
                     }
                 })
@@ -629,8 +643,8 @@ fn apply_bytes(original: &[u8], edits: &[ByteEdit]) -> Vec<u8> {
                         return;
                     };
                     for row in data.iter_mut().skip(start).take(n) {
-                        if let Some((date, _)) = row.split_once(',') {
-                            *row = format!("{date},{p}");
+                        if let Some((head, _)) = row.rsplit_once(',') {
+                            *row = format!("{head},{p}");
                         }
                     }
                 })
@@ -692,5 +706,160 @@ fn price_files_through_the_valuation_never_panic() {
         report.runs.fetch_add(1, Ordering::SeqCst);
         sandbox.write("data/peers/corrowick.csv", apply_bytes(&original, &edits));
         value_case_file(&path, &[], &report.valued);
+    });
+}
+
+/// Keys only a universe has, and dates and counts that fit the test universe's calendar; with
+/// the case's `[beta]` and `[leverage]` settings (the sections a universe shares with a case)
+/// they make [`universe_settings`].
+const UNIVERSE_ONLY: &[Setting] = &[
+    ("beta", "min_observations", &["40", "400"]),
+    (
+        "beta",
+        "window_start",
+        &["2025-01-02", "2026-06-30", "2026-09-29"],
+    ),
+    ("beta", "lookback", &["\"1y\"", "\"26w\"", "\"10d\""]),
+    ("universe", "rolling", &["true", "false"]),
+    (
+        "universe",
+        "valuation_date",
+        &["2026-09-30", "2025-06-30", "2024-01-01"],
+    ),
+    (
+        "attributes",
+        "industry_column",
+        &["\"industry\"", "\"sector\"", "\"market_cap\""],
+    ),
+    ("attributes", "cash_column", &["\"cash\"", "\"debt\""]),
+    (
+        "attributes",
+        "tax_rate_column",
+        &["\"tax_rate\"", "\"cash\""],
+    ),
+    ("attributes", "debt_column", &["\"debt\"", "\"cash\""]),
+];
+
+/// Universe keys with plausible and edge values, so that mutated universe files reach the
+/// options deep in the run.
+fn universe_settings() -> Vec<Setting> {
+    let shared = SETTINGS
+        .iter()
+        .filter(|(section, _, _)| matches!(*section, "beta" | "leverage"));
+    shared.chain(UNIVERSE_ONLY).copied().collect()
+}
+
+/// The panel forms of the test universe: file and layout.
+const PANELS: [(&str, &str); 4] = [
+    ("prices-long.csv", "long"),
+    ("prices-wide.csv", "wide"),
+    ("prices-long.parquet", "long"),
+    ("prices-wide.parquet", "wide"),
+];
+
+/// The file of the test universe an input mutates.
+#[derive(Debug, Clone, Copy)]
+enum UniverseFile {
+    Toml,
+    Panel,
+    Attributes,
+    Index,
+}
+
+/// Runs a universe file through reading, estimation and aggregation, and a third of those that
+/// come through also through rendering and writing the outputs; any error but the last guard's
+/// is fine. Every figure of a result must be finite (the tables would show a non-finite one as
+/// an empty cell, which reads as "missing" rather than "wrong").
+fn run_universe(path: &Path, out: &Path, write: bool) -> bool {
+    let Ok(universe) = hurdle::universe::settings::read_universe(path, &[]) else {
+        return false;
+    };
+    let reads = universe.files_read();
+    let Ok(inputs) = hurdle::universe::load_inputs(universe) else {
+        return false;
+    };
+    let Ok(result) = hurdle::universe::evaluate(&inputs, "", &|_| {}) else {
+        return false;
+    };
+    let figures = [
+        minijinja::Value::from(minijinja::value::Serde(&result)),
+        minijinja::Value::from(minijinja::value::Serde(&result.securities)),
+        minijinja::Value::from(minijinja::value::Serde(&result.rolling)),
+    ];
+    for tree in figures {
+        if let Some((path, value)) = first_non_finite_in(&tree, String::new()) {
+            panic!("the result holds {path} = {value}");
+        }
+    }
+    if write {
+        if let Err(error) = hurdle::report::universe::write_outputs(out, &result, &reads) {
+            // Writing what was computed fails only for a reason outside the inputs.
+            panic!("writing the outputs failed: {error}");
+        }
+    }
+    true
+}
+
+#[test]
+fn universe_inputs_never_panic() {
+    common::quiet_guarded_panics();
+    let report = Report::new("universe inputs");
+    let root = tempfile::tempdir().unwrap();
+    let dir = root.path().join("universe");
+    universe_data::generate(&dir, 11);
+    let original = |name: &str| std::fs::read(dir.join(name)).unwrap();
+    let toml = String::from_utf8(original("universe.toml")).unwrap();
+    let panels: Vec<Vec<u8>> = PANELS.iter().map(|(file, _)| original(file)).collect();
+    let (attributes, index) = (original("attributes.csv"), original("index.csv"));
+    let settings = universe_settings();
+    let file = prop_oneof![
+        2 => Just(UniverseFile::Toml),
+        3 => Just(UniverseFile::Panel),
+        2 => Just(UniverseFile::Attributes),
+        1 => Just(UniverseFile::Index),
+    ];
+    proptest!(config(), |(
+        target in file,
+        panel in 0..PANELS.len(),
+        toml_edits in prop_oneof![
+            // Mostly settings, which keep the file valid and reach deep; some of any kind.
+            3 => prop::collection::vec(
+                (any::<usize>(), any::<usize>()).prop_map(|(k, v)| Edit::Set(k, v)),
+                1..5,
+            ),
+            1 => edits(),
+        ],
+        bytes in byte_edits(),
+        write in prop::bool::weighted(0.3),
+    )| {
+        report.runs.fetch_add(1, Ordering::SeqCst);
+        for (i, (name, _)) in PANELS.iter().enumerate() {
+            std::fs::write(dir.join(name), &panels[i]).unwrap();
+        }
+        std::fs::write(dir.join("attributes.csv"), &attributes).unwrap();
+        std::fs::write(dir.join("index.csv"), &index).unwrap();
+        let (prices, layout) = PANELS[panel];
+        let mut text = toml
+            .replace("prices = \"prices-long.csv\"", &format!("prices = \"{prices}\""))
+            .replace("layout = \"long\"", &format!("layout = \"{layout}\""));
+        if layout == "wide" {
+            text = text.replace("price_column = \"close\"\n", "");
+        }
+        match target {
+            UniverseFile::Toml => text = apply_with(&text, &toml_edits, &settings),
+            UniverseFile::Panel => {
+                std::fs::write(dir.join(prices), apply_bytes(&panels[panel], &bytes)).unwrap();
+            }
+            UniverseFile::Attributes => {
+                std::fs::write(dir.join("attributes.csv"), apply_bytes(&attributes, &bytes)).unwrap();
+            }
+            UniverseFile::Index => {
+                std::fs::write(dir.join("index.csv"), apply_bytes(&index, &bytes)).unwrap();
+            }
+        }
+        std::fs::write(dir.join("universe.toml"), text).unwrap();
+        if run_universe(&dir.join("universe.toml"), &root.path().join("out"), write) {
+            report.valued.fetch_add(1, Ordering::SeqCst);
+        }
     });
 }

@@ -705,6 +705,64 @@ fn a_bad_price_in_parquet_names_the_row() {
     );
 }
 
+// polars' Parquet decoder panics on some corrupt files instead of returning an error (found by
+// the universe fuzz target; polars 0.55). A corrupt panel must still get exit 2 and one line
+// naming the file, with no panic on stderr. The corruptions are single bytes set to `"`, as the
+// fuzz target's minimal input had it; every one of them must be read whole or refused naming
+// the file, and at least one must reach the guard around the decoder (if an upgrade of polars
+// stops panicking, this says so, and the guard in src/io/guard.rs can be reconsidered).
+#[test]
+fn a_corrupt_parquet_panel_is_refused_naming_the_file() {
+    common::quiet_guarded_panics();
+    let setup = Setup::new();
+    let dir = setup.dir();
+    let path = dir.join("prices-wide.parquet");
+    let original = fs::read(&path).unwrap();
+    let toml = dir.join("universe.toml");
+    let text = fs::read_to_string(&toml)
+        .unwrap()
+        .replace(
+            "prices = \"prices-long.csv\"",
+            "prices = \"prices-wide.parquet\"",
+        )
+        .replace("layout = \"long\"", "layout = \"wide\"")
+        .replace("price_column = \"close\"\n", "");
+    fs::write(&toml, text).unwrap();
+    let mut guarded = None;
+    for at in 0..original.len() {
+        let mut bytes = original.clone();
+        bytes[at] = b'"';
+        fs::write(&path, &bytes).unwrap();
+        let loaded = hurdle::universe::settings::read_universe(&toml, &[])
+            .and_then(hurdle::universe::load_inputs);
+        let Err(error) = loaded else { continue };
+        let message = error.to_string();
+        assert!(
+            message.contains("prices-wide.parquet"),
+            "byte {at}: the message does not name the file: {message}"
+        );
+        if message.contains("the decoder stopped on corrupt data") {
+            guarded = Some(at);
+            break;
+        }
+    }
+    let at = guarded.expect("no single-byte corruption reached polars' panic: see src/io/guard.rs");
+    let mut bytes = original;
+    bytes[at] = b'"';
+    fs::write(&path, bytes).unwrap();
+    let output = setup.universe("out", &[]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.starts_with("error: ")
+            && stderr.lines().count() == 1
+            && stderr.contains("prices-wide.parquet: not a readable Parquet file")
+            && !stderr.contains("panicked"),
+        "byte {at}: {stderr}"
+    );
+    assert!(!setup.out("out").exists(), "an output folder was written");
+}
+
 #[test]
 fn bad_attribute_values_are_refused() {
     let line = 3; // S02's row

@@ -2,6 +2,7 @@
 //! the bytes' SHA-256 that every receipt records. Nothing here knows what a case or a beta is;
 //! the readers take a path, the column names and what kind of value a column holds.
 
+pub mod guard;
 pub mod sanity;
 pub mod series;
 pub mod spread_table;

@@ -105,7 +105,10 @@ pub fn read_attributes(
             .with_infer_schema_length(Some(0))
             .into_reader_with_file_handle(Cursor::new(&bytes[..]))
             .finish(),
-        TableFormat::Parquet => ParquetReader::new(Cursor::new(&bytes[..])).finish(),
+        TableFormat::Parquet => {
+            crate::io::guard::decoding(|| ParquetReader::new(Cursor::new(&bytes[..])).finish())
+                .map_err(|reason| source.file_error(format!("not a readable table: {reason}")))?
+        }
     }
     .map_err(|e| source.file_error(format!("not a readable table: {e}")))?;
     let records = records(&source, &frame, columns)?;

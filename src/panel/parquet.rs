@@ -15,6 +15,7 @@ use sha2::{Digest, Sha256};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source};
 use crate::error::{Error, Result};
+use crate::io::guard;
 
 /// Rows per slice: row groups are merged up to this size (one group may be larger).
 const SLICE_ROWS: usize = 1 << 18;
@@ -33,7 +34,8 @@ pub(super) fn read(
     let names = column_names(source, columns)?;
     if columns.layout == PanelLayout::Long {
         // Room for every row at once, so the columns never grow by copying.
-        rows.reserve(ParquetReader::new(open(source)?).num_rows().unwrap_or(0));
+        let file = open(source)?;
+        rows.reserve(decode(source, || ParquetReader::new(file).num_rows()).unwrap_or(0));
     }
     let wide: Vec<(String, u32)> = match columns.layout {
         PanelLayout::Long => Vec::new(),
@@ -115,9 +117,8 @@ fn push_frame(
 
 /// The columns the layout reads, after checking that they exist.
 fn column_names(source: &Source, columns: &PanelColumns) -> Result<Vec<String>> {
-    let schema = ParquetReader::new(open(source)?)
-        .schema()
-        .map_err(|e| source.file_error(format!("not a readable Parquet file: {e}")))?;
+    let file = open(source)?;
+    let schema = decode(source, || ParquetReader::new(file).schema())?;
     let header: Vec<String> = schema.iter_names().map(|n| n.to_string()).collect();
     let other = match columns.layout {
         PanelLayout::Long => PanelLayout::Wide,
@@ -162,10 +163,8 @@ fn for_each_slice(
     names: &[String],
     mut each: impl FnMut(DataFrame, usize) -> Result<()>,
 ) -> Result<()> {
-    let unreadable =
-        |e: PolarsError| source.file_error(format!("not a readable Parquet file: {e}"));
     let mut reader = ParquetReader::new(open(source)?);
-    let metadata = reader.get_metadata().map_err(unreadable)?.clone();
+    let metadata = decode(source, || reader.get_metadata().cloned())?;
     let mut start = 0;
     let mut length = 0;
     let groups: Vec<usize> = metadata.row_groups.iter().map(|g| g.num_rows()).collect();
@@ -179,13 +178,24 @@ fn for_each_slice(
             .with_columns(Some(names.to_vec()))
             .with_slice(Some((start, length)));
         slice.set_metadata(metadata.clone());
-        let frame = slice.finish().map_err(unreadable)?;
+        let frame = decode(source, || slice.finish())?;
         crate::progress::check_stop()?;
         each(frame, start)?;
         start += length;
         length = 0;
     }
     Ok(())
+}
+
+/// A call into polars' Parquet reader; its error, or a panic on corrupt data
+/// ([`guard::decoding`]), becomes a message naming the file.
+fn decode<T>(source: &Source, call: impl FnOnce() -> PolarsResult<T>) -> Result<T> {
+    let unreadable =
+        |reason: String| source.file_error(format!("not a readable Parquet file: {reason}"));
+    match guard::decoding(call) {
+        Ok(decoded) => decoded.map_err(|e| unreadable(e.to_string())),
+        Err(reason) => Err(unreadable(reason)),
+    }
 }
 
 fn open(source: &Source) -> Result<File> {

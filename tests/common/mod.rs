@@ -191,3 +191,18 @@ pub fn tree_hashes(dir: &Path) -> std::collections::BTreeMap<std::path::PathBuf,
     walk(dir, dir, &mut out);
     out
 }
+
+/// Silences the panic messages of polars' Parquet decoder that the library's guard turns into
+/// errors (`hurdle::io::guard`), as the binary does; other panics print as usual.
+#[allow(dead_code)]
+pub fn quiet_guarded_panics() {
+    static ONCE: std::sync::Once = std::sync::Once::new();
+    ONCE.call_once(|| {
+        let default_hook = std::panic::take_hook();
+        std::panic::set_hook(Box::new(move |info| {
+            if !hurdle::io::guard::is_guarded(info) {
+                default_hook(info);
+            }
+        }));
+    });
+}

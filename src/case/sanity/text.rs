@@ -73,7 +73,7 @@ fn first_non_finite_at(value: &toml::Value, path: String) -> Found<f64> {
 
 /// The same over a serialised result (a minijinja value tree, which keeps NaN and infinity
 /// where JSON would write `null`).
-pub(crate) fn first_non_finite_in(value: &minijinja::Value, path: String) -> Found<f64> {
+pub fn first_non_finite_in(value: &minijinja::Value, path: String) -> Found<f64> {
     if all_finite_in(value) {
         return None;
     }

@@ -55,9 +55,9 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
 
 /// Reads Parquet bytes: the schema's names are the header.
 pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
-    let frame = ParquetReader::new(Cursor::new(bytes))
-        .finish()
-        .map_err(|e| format!("not a readable Parquet file: {e}"))?;
+    let frame = crate::io::guard::decoding(|| ParquetReader::new(Cursor::new(bytes)).finish())
+        .and_then(|read| read.map_err(|e| e.to_string()))
+        .map_err(|reason| format!("not a readable Parquet file: {reason}"))?;
     let mut header = Vec::with_capacity(frame.width());
     let mut columns = Vec::with_capacity(frame.width());
     for column in frame.columns() {
