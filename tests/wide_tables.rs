@@ -412,6 +412,53 @@ fn duplicate_dates_are_named_with_both_rows() {
     );
 }
 
+// Single bytes of the `.xls` fixture changed (found by corrupting its bytes at random): calamine
+// panicked on the first (a stream offset past the end) and its date conversion on the second (a
+// date serial of -1.2e308); both ended `hurdle` with a panic and exit 101. Each is refused by
+// name now, with one line on stderr and no case file written.
+#[test]
+fn a_damaged_workbook_is_refused_without_a_panic() {
+    let dir = tempfile::tempdir().unwrap();
+    let original = fs::read(Path::new(FIXTURES).join("mixed.xls")).unwrap();
+    let damaged = [
+        (
+            3102,
+            b'A',
+            "g.xls: is a damaged .xls workbook: the decoder stopped on corrupt data (",
+        ),
+        (
+            4416,
+            0xFF,
+            "g.xls: sheet \"Prices\", cell A5 (date column `date`): the number \
+             -1.245697618140524e308 is not a date",
+        ),
+    ];
+    for (at, byte, expected) in damaged {
+        let mut bytes = original.clone();
+        bytes[at] = byte;
+        let table = dir.path().join("g.xls");
+        fs::write(&table, bytes).unwrap();
+        let case = dir.path().join("case.toml");
+        let output = hurdle(&[
+            "init",
+            table.to_str().unwrap(),
+            "--index",
+            "Alder",
+            "--sheet",
+            "Prices",
+            "--out",
+            case.to_str().unwrap(),
+        ]);
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(2), "byte {at}: {stderr}");
+        assert!(
+            stderr.contains(expected) && stderr.lines().count() == 1,
+            "byte {at}: {stderr}"
+        );
+        assert!(!case.exists(), "byte {at}: a case file was written");
+    }
+}
+
 #[test]
 fn an_encrypted_workbook_or_a_file_that_is_none_is_refused() {
     let copy = WideCopy::new();

@@ -1,7 +1,8 @@
-//! polars' Parquet decoder run under a guard. The decoder trusts the sizes and offsets a file's
-//! pages state and, on some corrupt files, panics (an index out of bounds, a failed assertion
-//! in `polars-parquet`'s primitive and float decoders, found by the universe fuzz target in
-//! `tests/fuzz.rs`) instead of returning an error. Inside [`decoding`] such a panic becomes an
+//! Third-party decoders run under a guard. polars' Parquet decoder trusts the sizes and offsets
+//! a file's pages state and, on some corrupt files, panics (a failed assertion in
+//! `polars-parquet`'s primitive and float decoders, found by the universe fuzz target in
+//! `tests/fuzz.rs`); calamine does the same on some damaged `.xls` workbooks (a slice offset
+//! past the end) instead of returning an error. Inside [`decoding`] such a panic becomes an
 //! error message, so a corrupt file gets exit 2 and a message naming it, like any other bad
 //! input; the binary's panic hook asks [`is_guarded`] and stays quiet about it.
 
@@ -11,8 +12,8 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 /// Guards running now (on any thread): polars decodes on its own pool, whose threads panic.
 static RUNNING: AtomicUsize = AtomicUsize::new(0);
 
-/// Runs `decode` (a call into polars' Parquet reader); a panic inside it is returned as the
-/// text of an error: "the decoder stopped on corrupt data (…)".
+/// Runs `decode` (a call into polars' Parquet reader or calamine); a panic inside it is returned
+/// as the text of an error: "the decoder stopped on corrupt data (…)".
 pub fn decoding<T>(decode: impl FnOnce() -> T) -> Result<T, String> {
     RUNNING.fetch_add(1, Ordering::SeqCst);
     let outcome = catch_unwind(AssertUnwindSafe(decode));
@@ -27,13 +28,16 @@ pub fn decoding<T>(decode: impl FnOnce() -> T) -> Result<T, String> {
     })
 }
 
-/// Whether a panic is one [`decoding`] turns into an error: raised in polars' code while a
-/// guard runs. Other panics (a bug in hurdle) are reported as usual.
+/// The crates whose panics a guard expects: polars (Parquet) and calamine (workbooks).
+const GUARDED: [&str; 2] = ["/polars", "/calamine"];
+
+/// Whether a panic is one [`decoding`] turns into an error: raised in a guarded crate's code
+/// while a guard runs. Other panics (a bug in hurdle) are reported as usual.
 pub fn is_guarded(info: &PanicHookInfo<'_>) -> bool {
     RUNNING.load(Ordering::SeqCst) > 0
         && info
             .location()
-            .is_some_and(|place| place.file().contains("polars"))
+            .is_some_and(|place| GUARDED.iter().any(|c| place.file().contains(c)))
 }
 
 #[cfg(test)]

@@ -1,5 +1,6 @@
-//! Reading input files: price and yield series (CSV through polars, with file/line messages) and
-//! the bytes' SHA-256 that every receipt records. Nothing here knows what a case or a beta is;
+//! Reading input files: price and yield series (CSV split by the csv crate, with file/line
+//! messages), spread tables, wide price tables (CSV and Parquet through polars, workbooks through
+//! calamine, under the guard of `guard`) and the bytes' SHA-256 that every receipt records. Nothing here knows what a case or a beta is;
 //! the readers take a path, the column names and what kind of value a column holds.
 
 pub mod guard;

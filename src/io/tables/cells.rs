@@ -38,6 +38,11 @@ impl Cell {
     pub fn shown(&self) -> String {
         match self {
             Cell::Empty => "nothing".to_string(),
+            // Huge and tiny numbers (a damaged file) in the shortest exact scientific form,
+            // not hundreds of digits.
+            Cell::Number(x) if x.abs() >= 1e15 || (*x != 0.0 && x.abs() < 1e-6) => {
+                format!("the number {x:e}")
+            }
             Cell::Number(x) => format!("the number {x}"),
             Cell::Text(text) => format!("the text \"{}\"", text.trim()),
             Cell::Date(d) => format!("the date {d}"),

@@ -13,6 +13,10 @@ use calamine::{open_workbook_from_rs, Data, Ods, Range, Reader, Xls, Xlsx};
 use super::cells::{Cell, Place, PlaceKind};
 use super::RawTable;
 
+/// The last date serial a workbook holds (9999-12-31 in the 1900 date system; ECMA-376 Part 1,
+/// §18.17.4.1, from memory).
+const MAX_SERIAL: f64 = 2_958_465.999_999;
+
 /// The first bytes of a ZIP package (`.xlsx`, `.xlsm`, `.ods`).
 const ZIP_MAGIC: &[u8] = b"PK\x03\x04";
 /// The first bytes of an OLE compound file (`.xls`, and an encrypted `.xlsx`).
@@ -29,10 +33,16 @@ pub(crate) fn read_sheet(
         .and_then(|e| e.to_str())
         .map(str::to_ascii_lowercase)
         .unwrap_or_default();
-    let (name, range) = match extension.as_str() {
-        "xls" => load::<Xls<_>>(bytes, sheet, &extension)?,
-        "ods" => load::<Ods<_>>(bytes, sheet, &extension)?,
-        _ => load::<Xlsx<_>>(bytes, sheet, &extension)?,
+    // calamine panics on some damaged files (an offset past the end of an .xls stream, found
+    // by corrupting single bytes of a fixture): the guard makes that a damaged-workbook error.
+    let loaded = crate::io::guard::decoding(|| match extension.as_str() {
+        "xls" => load::<Xls<_>>(bytes, sheet, &extension),
+        "ods" => load::<Ods<_>>(bytes, sheet, &extension),
+        _ => load::<Xlsx<_>>(bytes, sheet, &extension),
+    });
+    let (name, range) = match loaded {
+        Ok(loaded) => loaded?,
+        Err(reason) => return Err(format!("is a damaged .{extension} workbook: {reason}")),
     };
     from_range(name, range)
 }
@@ -157,10 +167,14 @@ fn cell(value: &Data) -> Cell {
         Data::Float(x) => Cell::Number(*x),
         Data::String(s) => Cell::Text(s.clone()),
         Data::Bool(b) => Cell::Bool(*b),
-        Data::DateTime(dt) if dt.is_datetime() => match dt.as_datetime() {
-            Some(moment) => Cell::Date(moment.date()),
-            None => Cell::Number(dt.as_f64()),
-        },
+        // calamine's conversion panics far outside the serials a workbook can hold (a damaged
+        // file); those stay numbers, which the date rules refuse by cell.
+        Data::DateTime(dt) if dt.is_datetime() && (0.0..=MAX_SERIAL).contains(&dt.as_f64()) => {
+            match dt.as_datetime() {
+                Some(moment) => Cell::Date(moment.date()),
+                None => Cell::Number(dt.as_f64()),
+            }
+        }
         Data::DateTime(dt) => Cell::Number(dt.as_f64()),
         Data::DateTimeIso(s) | Data::DurationIso(s) => Cell::Text(s.clone()),
         Data::Error(e) => Cell::Error(e.to_string()),
