@@ -127,14 +127,17 @@ fn write_case(dir: &Path, peers: &[(usize, &str)]) -> PathBuf {
 // are the same doubles; the only slack allowed is 2 ulps (4.4e-16 relative), because serde_json's
 // default float parser (without its `float_roundtrip` feature) may read result.json's shortest
 // decimal one ulp off. Any divergence of the pipelines is far larger.
-// Checked under two configurations: daily OLS with Hamada, and weekly Dimson with HC1 errors, the
-// Blume adjustment and Harris–Pringle. S01 trades normally, S09 lists late, S10 trades thinly.
+// Checked under three configurations: daily OLS with Hamada; weekly Dimson with HC1 errors, the
+// Blume adjustment and Harris–Pringle; and daily Scholes–Williams on log returns with
+// Newey–West errors, a stated Vasicek prior (a prior from the cross-section differs by design:
+// the universe's is the whole universe, the case's its peers), Conine and net debt. S01 trades
+// normally, S09 lists late, S10 trades thinly.
 #[test]
 fn each_security_equals_the_case_that_lists_it_as_a_peer() {
     let setup = Setup::new();
     let peers = [(0, "S01"), (8, "S09"), (9, "S10")];
     let case = write_case(&setup.dir(), &peers);
-    let configurations: [&[&str]; 2] = [
+    let configurations: [&[&str]; 3] = [
         &[],
         &[
             "beta.frequency=weekly",
@@ -142,6 +145,16 @@ fn each_security_equals_the_case_that_lists_it_as_a_peer() {
             "beta.std_errors=hc1",
             "beta.adjustment=blume",
             "leverage.formula=harris-pringle",
+        ],
+        &[
+            "beta.method=scholes-williams",
+            "beta.returns=log",
+            "beta.std_errors=newey-west",
+            "beta.adjustment=vasicek",
+            "beta.vasicek_prior_mean=1.0",
+            "beta.vasicek_prior_variance=0.09",
+            "leverage.formula=conine",
+            "leverage.debt_measure=net",
         ],
     ];
     for (k, sets) in configurations.iter().enumerate() {
