@@ -776,6 +776,61 @@ fn a_corrupt_parquet_panel_is_refused_naming_the_file() {
     assert!(!setup.out("out").exists(), "an output folder was written");
 }
 
+// Database exports store amounts as decimals; hurdle's polars build reads no decimal (its
+// decoder panicked on one) and no 8-bit integer. The fixture, written by polars for Python
+// (tests/data/parquet/make_fixtures.py), holds the equity value as a decimal and as a double and
+// the tax rate as a double and as an 8-bit percent, beside an unused decimal column: a column
+// read in a type hurdle does not read is named with its type, and a column not read does not
+// matter. The attributes read are the universe's own figures, so the tables must match the run
+// with the CSV attributes.
+#[test]
+fn parquet_columns_of_types_hurdle_does_not_read_are_named() {
+    let setup = Setup::new();
+    let fixture = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/parquet");
+    fs::copy(
+        fixture.join("attributes-types.parquet"),
+        setup.dir().join("attributes-types.parquet"),
+    )
+    .unwrap();
+    let file = "attributes.file=attributes-types.parquet";
+    for (sets, expected) in [
+        (
+            vec![file, "attributes.equity_value_column=market_cap"],
+            "column `market_cap` is stored as a decimal (precision 20, scale 4), which hurdle \
+             does not read from Parquet",
+        ),
+        (
+            vec![
+                file,
+                "attributes.equity_value_column=market_cap_float",
+                "attributes.tax_rate_column=tax_percent",
+            ],
+            "column `tax_percent` is stored as an 8-bit integer",
+        ),
+    ] {
+        let output = setup.universe("refused", &sets);
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr.contains("attributes-types.parquet: ") && stderr.contains(expected),
+            "{stderr}"
+        );
+        assert!(!stderr.contains("panicked"), "{stderr}");
+    }
+    let out = setup.succeeds(
+        "read",
+        &[file, "attributes.equity_value_column=market_cap_float"],
+    );
+    let securities = read_table(&out.join("securities.csv"));
+    for (i, id) in [(0, "S01"), (3, "S04")] {
+        let (equity, debt, _, tax) = universe_data::figures(i);
+        let row = security_row(&securities, id);
+        // The fixture's doubles are Python's 500.0 + 250.0 i etc., the same doubles as Rust's.
+        assert_eq!(number(&row, "debt_to_equity"), debt / equity, "{id}");
+        assert_eq!(number(&row, "tax_rate"), tax, "{id}");
+    }
+}
+
 #[test]
 fn bad_attribute_values_are_refused() {
     let line = 3; // S02's row

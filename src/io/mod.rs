@@ -4,6 +4,7 @@
 //! the readers take a path, the column names and what kind of value a column holds.
 
 pub mod guard;
+pub mod parquet_types;
 pub mod sanity;
 pub mod series;
 pub mod spread_table;

@@ -15,6 +15,8 @@ use serde::Serialize;
 
 use super::{Source, TableFormat};
 use crate::error::{Error, Result};
+use crate::io::guard;
+use crate::io::parquet_types::unreadable_column;
 
 /// Which columns of the attributes table hold what.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -86,32 +88,34 @@ pub fn read_attributes(
         action: "cannot read the attributes file",
         source: e,
     })?;
-    if format == TableFormat::Csv {
-        let header = super::csv::header(&source, &bytes)?;
-        let mut used = vec![
-            columns.security.as_str(),
-            &columns.industry,
-            &columns.equity_value,
-            &columns.debt,
-            &columns.tax_rate,
-        ];
-        used.extend(columns.cash.as_deref());
-        super::csv::check_repeated_names(&source, &header, &used)?;
-    }
+    let mut used = vec![
+        columns.security.as_str(),
+        &columns.industry,
+        &columns.equity_value,
+        &columns.debt,
+        &columns.tax_rate,
+    ];
+    used.extend(columns.cash.as_deref());
+    let mut whole_header = None;
     let frame = match format {
-        TableFormat::Csv => CsvReadOptions::default()
-            .with_has_header(true)
-            // All text, so each number is parsed (and reported) here.
-            .with_infer_schema_length(Some(0))
-            .into_reader_with_file_handle(Cursor::new(&bytes[..]))
-            .finish(),
+        TableFormat::Csv => {
+            let header = super::csv::header(&source, &bytes)?;
+            super::csv::check_repeated_names(&source, &header, &used)?;
+            CsvReadOptions::default()
+                .with_has_header(true)
+                // All text, so each number is parsed (and reported) here.
+                .with_infer_schema_length(Some(0))
+                .into_reader_with_file_handle(Cursor::new(&bytes[..]))
+                .finish()
+        }
         TableFormat::Parquet => {
-            crate::io::guard::decoding(|| ParquetReader::new(Cursor::new(&bytes[..])).finish())
-                .map_err(|reason| source.file_error(format!("not a readable table: {reason}")))?
+            let (frame, header) = read_parquet(&source, &bytes, &used)?;
+            whole_header = Some(header);
+            frame
         }
     }
     .map_err(|e| source.file_error(format!("not a readable table: {e}")))?;
-    let records = records(&source, &frame, columns)?;
+    let records = records(&source, &frame, whole_header, columns)?;
     let mut order: Vec<usize> = (0..records.len()).collect();
     order.sort_by(|&a, &b| records[a].security.cmp(&records[b].security));
     if let Some(w) = order
@@ -141,17 +145,52 @@ pub fn read_attributes(
     })
 }
 
-/// Every row of the table, checked.
+/// The columns of a Parquet attributes file that `used` names, after checking that hurdle reads
+/// their types, and the file's whole header (for [`records`] to name a column it lacks); the
+/// other columns are not decoded, so a type hurdle does not read there does not matter.
+fn read_parquet(
+    source: &Source,
+    bytes: &[u8],
+    used: &[&str],
+) -> Result<(PolarsResult<DataFrame>, Vec<String>)> {
+    let unreadable = |reason: String| source.file_error(format!("not a readable table: {reason}"));
+    let schema = guard::decoding(|| ParquetReader::new(Cursor::new(bytes)).schema())
+        .map_err(unreadable)?
+        .map_err(|e| unreadable(e.to_string()))?;
+    if let Some(message) = unreadable_column(&schema, used.iter().copied()) {
+        return Err(source.file_error(message));
+    }
+    let header: Vec<String> = schema.iter_names().map(|n| n.to_string()).collect();
+    let mut read: Vec<String> = Vec::new();
+    for name in &header {
+        if used.contains(&name.as_str()) && !read.contains(name) {
+            read.push(name.clone());
+        }
+    }
+    let frame = guard::decoding(|| {
+        ParquetReader::new(Cursor::new(bytes))
+            .with_columns(Some(read))
+            .finish()
+    })
+    .map_err(unreadable)?;
+    Ok((frame, header))
+}
+
+/// Every row of the table, checked; a missing column is named with `whole_header` (the file's
+/// header when only some columns were decoded).
 fn records(
     source: &Source,
     frame: &DataFrame,
+    whole_header: Option<Vec<String>>,
     columns: &AttributeColumns,
 ) -> Result<Vec<AttributeRecord>> {
-    let header: Vec<String> = frame
-        .get_column_names()
-        .iter()
-        .map(|n| n.to_string())
-        .collect();
+    let header: Vec<String> = whole_header.unwrap_or_else(|| {
+        frame
+            .get_column_names()
+            .iter()
+            .map(|n| n.to_string())
+            .collect()
+    });
     let find = |name: &str, key: &str| -> Result<&Column> {
         frame.column(name).map_err(|_| {
             source.file_error(format!(

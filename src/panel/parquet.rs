@@ -16,6 +16,7 @@ use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source};
 use crate::error::{Error, Result};
 use crate::io::guard;
+use crate::io::parquet_types::unreadable_column;
 
 /// Rows per slice: row groups are merged up to this size (one group may be larger).
 const SLICE_ROWS: usize = 1 << 18;
@@ -137,12 +138,12 @@ fn column_names(source: &Source, columns: &PanelColumns) -> Result<Vec<String>> 
         )))
     };
     let date = require(&columns.date_column, "panel.date_column")?;
-    match columns.layout {
-        PanelLayout::Long => Ok(vec![
+    let names = match columns.layout {
+        PanelLayout::Long => vec![
             date,
             require(&columns.security_column, "panel.security_column")?,
             require(&columns.price_column, "panel.price_column")?,
-        ]),
+        ],
         PanelLayout::Wide => {
             if let Some(hint) = layout_hint(&header, columns, PanelLayout::Long) {
                 return Err(source.file_error(format!("read as a wide panel, but {hint}")));
@@ -152,8 +153,12 @@ fn column_names(source: &Source, columns: &PanelColumns) -> Result<Vec<String>> 
                     "has only the date column `{date}`: a wide panel needs one column per security"
                 )));
             }
-            Ok(header)
+            header
         }
+    };
+    match unreadable_column(&schema, names.iter().map(String::as_str)) {
+        Some(message) => Err(source.file_error(message)),
+        None => Ok(names),
     }
 }
 

@@ -11,6 +11,7 @@ use polars::prelude::*;
 
 use super::cells::{Cell, Place, PlaceKind};
 use super::RawTable;
+use crate::io::parquet_types::unreadable_column;
 
 /// Reads CSV bytes: the first line is the header.
 pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
@@ -55,9 +56,17 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
 
 /// Reads Parquet bytes: the schema's names are the header.
 pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
-    let frame = crate::io::guard::decoding(|| ParquetReader::new(Cursor::new(bytes)).finish())
-        .and_then(|read| read.map_err(|e| e.to_string()))
-        .map_err(|reason| format!("not a readable Parquet file: {reason}"))?;
+    fn decode<T>(read: impl FnOnce() -> PolarsResult<T>) -> Result<T, String> {
+        crate::io::guard::decoding(read)
+            .and_then(|read| read.map_err(|e| e.to_string()))
+            .map_err(|reason| format!("not a readable Parquet file: {reason}"))
+    }
+    // Every column is read, so every column must be of a type hurdle reads.
+    let schema = decode(|| ParquetReader::new(Cursor::new(bytes)).schema())?;
+    if let Some(message) = unreadable_column(&schema, schema.iter_names().map(|n| n.as_str())) {
+        return Err(message);
+    }
+    let frame = decode(|| ParquetReader::new(Cursor::new(bytes)).finish())?;
     let mut header = Vec::with_capacity(frame.width());
     let mut columns = Vec::with_capacity(frame.width());
     for column in frame.columns() {

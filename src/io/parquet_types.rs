@@ -1,0 +1,110 @@
+//! What hurdle reads from a Parquet file. polars is built with the features hurdle needs only
+//! (`Cargo.toml`: no decimals, no 8- or 16-bit integers, no times of day, no nested types), and
+//! a column of another type stops its decoder: a decimal column panics in polars 0.55 ("activate
+//! 'dtype-decimal' feature"), an 8-bit integer fails with "cannot create series from UInt8".
+//! Database exports often store amounts as decimals, so each Parquet reader checks the columns
+//! it is about to decode against the file's schema first and names the column and its type.
+
+use polars::prelude::{ArrowDataType, ArrowSchema};
+
+/// The first of `names` whose Parquet type hurdle does not read, as a message naming it and
+/// saying what to store instead; names not in `schema` are left to the caller.
+pub fn unreadable_column<'a>(
+    schema: &ArrowSchema,
+    names: impl IntoIterator<Item = &'a str>,
+) -> Option<String> {
+    names.into_iter().find_map(|name| {
+        let field = schema.get(name)?;
+        let kind = unreadable_kind(&field.dtype)?;
+        Some(format!(
+            "column `{name}` is stored as {kind}, which hurdle does not read from Parquet; store \
+             text as strings, numbers as 32- or 64-bit floats or integers, and dates as dates"
+        ))
+    })
+}
+
+/// How a type hurdle does not read is described, or `None` for a type it reads.
+fn unreadable_kind(dtype: &ArrowDataType) -> Option<String> {
+    use ArrowDataType as T;
+    let kind = match dtype {
+        T::Null
+        | T::Boolean
+        | T::Int32
+        | T::Int64
+        | T::UInt32
+        | T::UInt64
+        | T::Float32
+        | T::Float64
+        | T::Timestamp(..)
+        | T::Date32
+        | T::Binary
+        | T::LargeBinary
+        | T::BinaryView
+        | T::Utf8
+        | T::LargeUtf8
+        | T::Utf8View => return None,
+        // Categorical and enum columns: read by their labels.
+        T::Dictionary(_, values, _) => return unreadable_kind(values),
+        T::Extension(extension) => return unreadable_kind(&extension.inner),
+        T::Decimal(precision, scale)
+        | T::Decimal32(precision, scale)
+        | T::Decimal64(precision, scale)
+        | T::Decimal256(precision, scale) => {
+            format!("a decimal (precision {precision}, scale {scale})")
+        }
+        T::Int8 | T::UInt8 => "an 8-bit integer".to_string(),
+        T::Int16 | T::UInt16 => "a 16-bit integer".to_string(),
+        T::Int128 | T::UInt128 => "a 128-bit integer".to_string(),
+        T::Float16 => "a 16-bit float".to_string(),
+        T::Date64 => "a 64-bit date".to_string(),
+        T::Time32(_) | T::Time64(_) => "a time of day".to_string(),
+        T::Duration(_) | T::Interval(_) => "a duration".to_string(),
+        T::List(_) | T::LargeList(_) | T::FixedSizeList(..) => "a list".to_string(),
+        T::Struct(_) | T::Map(..) | T::Union(_) => "a nested record".to_string(),
+        other => format!("{other:?}"),
+    };
+    Some(kind)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use polars::prelude::ArrowField;
+
+    fn schema(fields: &[(&str, ArrowDataType)]) -> ArrowSchema {
+        fields
+            .iter()
+            .map(|(name, dtype)| {
+                let field = ArrowField::new((*name).into(), dtype.clone(), true);
+                ((*name).into(), field)
+            })
+            .collect()
+    }
+
+    #[test]
+    fn names_the_first_unreadable_column_among_those_read() {
+        let s = schema(&[
+            ("security", ArrowDataType::Utf8View),
+            ("notes", ArrowDataType::Decimal(38, 2)),
+            ("market_cap", ArrowDataType::Decimal(20, 4)),
+            ("industry", ArrowDataType::LargeUtf8),
+            ("tax_rate", ArrowDataType::UInt8),
+        ]);
+        // `notes` is not read, so its type does not matter.
+        assert_eq!(
+            unreadable_column(&s, ["security", "industry", "market_cap", "tax_rate"]),
+            Some(
+                "column `market_cap` is stored as a decimal (precision 20, scale 4), which \
+                 hurdle does not read from Parquet; store text as strings, numbers as 32- or \
+                 64-bit floats or integers, and dates as dates"
+                    .to_string()
+            )
+        );
+        assert_eq!(
+            unreadable_column(&s, ["security", "industry", "absent"]),
+            None
+        );
+        assert!(unreadable_column(&s, ["tax_rate"])
+            .is_some_and(|m| m.contains("`tax_rate` is stored as an 8-bit integer")));
+    }
+}
