@@ -412,31 +412,40 @@ fn duplicate_dates_are_named_with_both_rows() {
     );
 }
 
-// Single bytes of the `.xls` fixture changed (found by corrupting its bytes at random): calamine
-// panicked on the first (a stream offset past the end) and its date conversion on the second (a
-// date serial of -1.2e308); both ended `hurdle` with a panic and exit 101. Each is refused by
-// name now, with one line on stderr and no case file written.
+// Single bytes of the workbook fixtures changed (found by corrupting their bytes at random):
+// calamine panicked on the first (an `.xls` stream offset past the end) and its date conversion
+// on the second (a date serial of -1.2e308), both ending `hurdle` with a panic and exit 101; the
+// third's message quoted the damaged XML with its line break, over two lines. Each is refused
+// by name now, with one line on stderr and no case file written.
 #[test]
 fn a_damaged_workbook_is_refused_without_a_panic() {
     let dir = tempfile::tempdir().unwrap();
-    let original = fs::read(Path::new(FIXTURES).join("mixed.xls")).unwrap();
     let damaged = [
         (
+            "mixed.xls",
             3102,
             b'A',
             "g.xls: is a damaged .xls workbook: the decoder stopped on corrupt data (",
         ),
         (
+            "mixed.xls",
             4416,
             0xFF,
             "g.xls: sheet \"Prices\", cell A5 (date column `date`): the number \
              -1.245697618140524e308 is not a date",
         ),
+        (
+            "mixed.ods",
+            4257,
+            0x7F,
+            "g.ods: is a damaged or unreadable .ods workbook: Xml error: ill-formed document:",
+        ),
     ];
-    for (at, byte, expected) in damaged {
-        let mut bytes = original.clone();
+    for (fixture, at, byte, expected) in damaged {
+        let mut bytes = fs::read(Path::new(FIXTURES).join(fixture)).unwrap();
         bytes[at] = byte;
-        let table = dir.path().join("g.xls");
+        let extension = Path::new(fixture).extension().unwrap().to_str().unwrap();
+        let table = dir.path().join(format!("g.{extension}"));
         fs::write(&table, bytes).unwrap();
         let case = dir.path().join("case.toml");
         let output = hurdle(&[
@@ -450,12 +459,19 @@ fn a_damaged_workbook_is_refused_without_a_panic() {
             case.to_str().unwrap(),
         ]);
         let stderr = String::from_utf8_lossy(&output.stderr);
-        assert_eq!(output.status.code(), Some(2), "byte {at}: {stderr}");
+        assert_eq!(
+            output.status.code(),
+            Some(2),
+            "{fixture} byte {at}: {stderr}"
+        );
         assert!(
             stderr.contains(expected) && stderr.lines().count() == 1,
-            "byte {at}: {stderr}"
+            "{fixture} byte {at}: {stderr}"
         );
-        assert!(!case.exists(), "byte {at}: a case file was written");
+        assert!(
+            !case.exists(),
+            "{fixture} byte {at}: a case file was written"
+        );
     }
 }
 
