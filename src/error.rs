@@ -80,3 +80,29 @@ pub fn compact(value: f64) -> String {
         value.to_string()
     }
 }
+
+/// `text` on one line, for a terminal or a log: a message may quote a value read from a file,
+/// and a quoted CSV cell or a damaged workbook's XML can hold a line break or another control
+/// character; each is written as its escape (`\n`, `\t`, `\u{7f}`).
+pub fn one_line(text: &str) -> String {
+    let mut line = String::with_capacity(text.len());
+    for c in text.chars() {
+        if c.is_control() {
+            line.extend(c.escape_default());
+        } else {
+            line.push(c);
+        }
+    }
+    line
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn control_characters_become_their_escapes() {
+        assert_eq!(
+            super::one_line("`close` = \"12\n3\"\tend\u{7f}é"),
+            "`close` = \"12\\n3\"\\tend\\u{7f}é"
+        );
+    }
+}

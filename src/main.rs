@@ -40,7 +40,7 @@ fn main() -> ExitCode {
             ExitCode::from(130)
         }
         Err(error) => {
-            eprintln!("error: {error}");
+            eprintln!("error: {}", hurdle::error::one_line(&error.to_string()));
             ExitCode::from(2)
         }
     }

@@ -112,15 +112,6 @@ fn open_error(bytes: &[u8], extension: &str, detail: &str) -> String {
              does (is it another kind of file renamed?)"
         );
     }
-    // calamine's detail may quote the damaged bytes (an XML tag with a line break in it): one
-    // line, control characters escaped.
-    let detail: String = detail
-        .chars()
-        .flat_map(|c| match c.is_control() {
-            true => c.escape_default().collect::<Vec<_>>(),
-            false => vec![c],
-        })
-        .collect();
     format!("is a damaged or unreadable .{extension} workbook: {detail}")
 }
 
