@@ -674,6 +674,29 @@ fn an_unparseable_price_is_refused() {
     );
 }
 
+// A quoted cell may hold a line break (RFC 4180); the message quotes the cell, and stays on one
+// line with the break shown as `\n`.
+#[test]
+fn a_price_with_a_line_break_is_named_on_one_line() {
+    let setup = Setup::new();
+    let cells = panel_line(&setup.dir(), 9);
+    replace_line(
+        &setup.dir().join("prices-long.csv"),
+        9,
+        &format!("{},{},\"12\n3\"", cells[0], cells[1]),
+    );
+    let output = setup.universe("out", &[]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert_eq!(
+        stderr,
+        "error: prices-long.csv, line 9: `close` = \"12\\n3\" is not a number\n".replace(
+            "prices-long.csv",
+            &setup.dir().join("prices-long.csv").display().to_string()
+        )
+    );
+}
+
 #[test]
 fn an_unparseable_date_is_refused() {
     refused(
