@@ -1267,6 +1267,28 @@ fn case_files() -> Vec<Bad> {
             ["case.title", "empty"]
         ),
         bad!(
+            "title with a line break",
+            |s| s.edit_case(
+                "title = \"Quillmarsh Pumps: cost of capital for a fair-value measurement (demo)\"",
+                "title = \"Quillmarsh Pumps:\\ncost of capital\""
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "case.title",
+                "\"Quillmarsh Pumps:\\ncost of capital\"",
+                "one line"
+            ]
+        ),
+        bad!(
+            "peer name with a tab",
+            |s| s.edit_case(
+                "name = \"Corrowick Valves\"",
+                "name = \"Corrowick\\tValves\""
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            ["peer.1.name", "\"Corrowick\\tValves\"", "one line"]
+        ),
+        bad!(
             "impossible valuation date",
             |s| edit_at(
                 s,

@@ -697,6 +697,52 @@ fn a_price_with_a_line_break_is_named_on_one_line() {
     );
 }
 
+// An id or an industry label with a line break (a quoted cell) would match no other file's id
+// and split the summary's table: refused, naming the line, on one line; so is a title with one,
+// which would split the summary's heading.
+#[test]
+fn an_id_or_an_industry_with_a_line_break_is_refused() {
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 9);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                9,
+                &format!("{},\"S0\nX\",{}", cells[0], cells[2]),
+            );
+        },
+        &[],
+        &[
+            "prices-long.csv, line 9: `security` = \"S0\\nX\" holds a line break",
+            "ids and labels are one line of text",
+        ],
+    );
+    refused(
+        |dir| {
+            let path = dir.join("attributes.csv");
+            let line = fs::read_to_string(&path)
+                .unwrap()
+                .lines()
+                .nth(2)
+                .unwrap()
+                .to_string();
+            let cells: Vec<&str> = line.split(',').collect();
+            replace_line(
+                &path,
+                3,
+                &format!("{},\"Industry\nA\",{}", cells[0], cells[2..].join(",")),
+            );
+        },
+        &[],
+        &["attributes.csv, line 3: `industry` = \"Industry\\nA\" holds a line break"],
+    );
+    refused(
+        |_| {},
+        &["universe.title=\"Test\\nuniverse\""],
+        &["universe.title = \"Test\\nuniverse\" holds a line break"],
+    );
+}
+
 #[test]
 fn an_unparseable_date_is_refused() {
     refused(

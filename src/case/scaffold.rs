@@ -32,6 +32,17 @@ fn quoted(text: &str) -> String {
     toml::Value::String(text.to_string()).to_string()
 }
 
+/// A column header as a name for the memo: a header cell with a line break in it (a wrapped
+/// spreadsheet header) becomes one line, its runs of whitespace one space; the `column` key keeps
+/// the header as it is.
+fn display_name(header: &str) -> String {
+    header
+        .split(|c: char| c.is_whitespace() || c.is_control())
+        .filter(|part| !part.is_empty())
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
 /// The case file's text for `table`: one peer per column other than the index and the
 /// risk-free column.
 pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<String> {
@@ -144,10 +155,11 @@ fn market(options: &StartOptions) -> String {
          [market.index]\n\
          name = {name}\n\
          source = \"prices\"\n\
-         column = {name}\n",
+         column = {column}\n",
         rf = placeholder("risk-free rate used in the CAPM, decimal"),
         erp = placeholder("equity risk premium over that rate, decimal"),
-        name = quoted(options.index),
+        name = quoted(&display_name(options.index)),
+        column = quoted(options.index),
     );
     match options.risk_free {
         Some(column) => write!(
@@ -351,12 +363,13 @@ fn peer_table(column: &str) -> String {
         "\n[[peer]]\n\
          name = {name}\n\
          source = \"prices\"\n\
-         column = {name}\n\
+         column = {column}\n\
          equity_value = {equity}\n\
          debt = {debt}\n\
          cash = {cash}\n\
          tax_rate = {tax}\n",
-        name = quoted(column),
+        name = quoted(&display_name(column)),
+        column = quoted(column),
         equity = placeholder("market value of equity, in one unit for every peer"),
         debt = placeholder("total (gross) debt, same unit"),
         cash = placeholder("cash, same unit"),
@@ -434,6 +447,20 @@ pub fn write_new(path: &Path, text: &str) -> Result<()> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // A wrapped spreadsheet header ("Alder" line break "Tree") names its peer on one line, as
+    // case validation requires of a name; the column key keeps the header.
+    #[test]
+    fn a_wrapped_header_names_its_peer_on_one_line() {
+        assert_eq!(display_name("Alder\nTree"), "Alder Tree");
+        assert_eq!(display_name(" Birch\r\n\tand  Elm "), "Birch and Elm");
+        let table = peer_table("Alder\nTree");
+        assert!(table.contains("name = \"Alder Tree\"\n"), "{table}");
+        assert!(
+            table.contains("column = \"\"\"\nAlder\nTree\"\"\"\n"),
+            "{table}"
+        );
+    }
 
     // Every key a default settings table serialises has a line (and so a comment) in the
     // starting case, so a new setting cannot be forgotten there.

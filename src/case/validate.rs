@@ -113,6 +113,19 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
+    let labels = [
+        ("case.title", &case.case.title),
+        ("case.subject", &case.case.subject),
+        ("case.currency", &case.case.currency),
+        ("market.index.name", &case.market.index.name),
+    ];
+    let conversion = case
+        .conversion
+        .as_ref()
+        .map(|c| ("conversion.currency", &c.currency));
+    for (key, text) in labels.into_iter().chain(conversion) {
+        one_line(key, text)?;
+    }
     super::sources::validate(case)?;
     rate(
         "market.risk_free_rate",
@@ -331,6 +344,18 @@ fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
     Ok(())
 }
 
+/// A name, title or label the memo, the tables and the workbook show must be one line of text:
+/// a line break (`"A\nB"` in TOML) would split the memo's tables and headings.
+pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String> {
+    if crate::io::sanity::is_one_line(text) {
+        return Ok(());
+    }
+    Err(format!(
+        "{key} = {text:?} holds a line break or another control character: names, titles and \
+         labels are one line of text"
+    ))
+}
+
 /// `[[peer]]`: names unique, figures in range, keys consistent with `[leverage]`.
 fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
     if case.peers.is_empty() {
@@ -340,6 +365,10 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
         let key = |field: &str| format!("peer.{i}.{field} (peer \"{}\")", peer.name);
         if peer.name.trim().is_empty() {
             return Err(format!("peer.{i}.name is empty"));
+        }
+        one_line(&format!("peer.{i}.name"), &peer.name)?;
+        if let Some(reason) = &peer.exclude {
+            one_line(&key("exclude"), reason)?;
         }
         if let Some(j) = case.peers[..i].iter().position(|p| p.name == peer.name) {
             return Err(format!(

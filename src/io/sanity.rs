@@ -193,6 +193,13 @@ pub fn check_series_values(
     }
 }
 
+/// Whether a name, id or label is one line of text: no line break or other control character
+/// (a quoted CSV cell, a wrapped spreadsheet header or `"A\nB"` in TOML can hold one, and it
+/// would split the memo's and the summary's tables). Panels, attributes and case files ask it.
+pub fn is_one_line(text: &str) -> bool {
+    !text.chars().any(char::is_control)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -13,7 +13,7 @@ use std::path::Path;
 use polars::prelude::*;
 use serde::Serialize;
 
-use super::{Source, TableFormat};
+use super::{check_label, Source, TableFormat};
 use crate::error::{Error, Result};
 use crate::io::guard;
 use crate::io::parquet_types::unreadable_column;
@@ -247,6 +247,19 @@ fn records(
 /// A column as trimmed text; an empty cell is `None`. Integer columns are written as text,
 /// categorical ones by their labels.
 fn text(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
+    let name = column.name().to_string();
+    let labels = text_cells(source, column)?;
+    for (k, label) in labels.iter().enumerate() {
+        if let Some(label) = label {
+            check_label(label, || format!("`{name}`"))
+                .map_err(|message| source.row_error(k, message))?;
+        }
+    }
+    Ok(labels)
+}
+
+/// [`text`] before the labels are checked.
+fn text_cells(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
     let name = column.name().to_string();
     if !super::parquet::is_text_like(column.dtype()) {
         return Err(source.file_error(format!(

@@ -5,7 +5,7 @@
 use chrono::NaiveDate;
 use polars::prelude::*;
 
-use super::{check_price, parse_iso_date, PanelColumns, Rows, Source};
+use super::{check_label, check_price, parse_iso_date, PanelColumns, Rows, Source};
 use crate::error::Result;
 
 /// A block's date cells: ISO text (CSV, or a Parquet string column) or days since 1970-01-01
@@ -95,9 +95,9 @@ pub(crate) fn push_long(
     push_long_checked(rows, dates, securities, prices, first_row, source, columns)
 }
 
-/// Pushes a block's rows; `false` at the first bad date, bad price or id that is empty or
-/// padded with spaces (the checked path then names it, or trims the id), or when the columns'
-/// chunks do not line up.
+/// Pushes a block's rows; `false` at the first bad date, bad price or id that is empty, padded
+/// with spaces or holds a control character (the checked path then names it, or trims the id),
+/// or when the columns' chunks do not line up.
 fn push_long_fast(
     rows: &mut Rows,
     dates: &DateCells<'_>,
@@ -163,7 +163,8 @@ fn push_chunk(
         } else {
             let security = ids.value(i);
             let padded = |b: Option<&u8>| b.is_none_or(u8::is_ascii_whitespace);
-            if padded(security.as_bytes().first()) || padded(security.as_bytes().last()) {
+            let (first, last) = (security.as_bytes().first(), security.as_bytes().last());
+            if padded(first) || padded(last) || !crate::io::sanity::is_one_line(security) {
                 return false;
             }
             let id = rows.dictionary.id(security);
@@ -269,6 +270,8 @@ fn push_long_checked(
                 ))
             }
         };
+        check_label(security, || format!("`{security_column}`"))
+            .map_err(|message| source.row_error(first_row + k, message))?;
         let price = price.ok_or_else(|| {
             source.row_error(
                 first_row + k,

@@ -17,7 +17,9 @@ use polars::prelude::*;
 
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
-use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source};
+use super::{
+    check_label, layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
+};
 use crate::error::{Error, Result};
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
@@ -231,6 +233,8 @@ fn plan_for(
                 dtypes[i] = DataType::Float64;
                 // A column the header does not name is read only to check that it is empty.
                 if !name.is_empty() {
+                    check_label(name, || "the header's column name".to_string())
+                        .map_err(|message| source.file_error(message))?;
                     wide.push((name.clone(), rows.dictionary.id(name)));
                 }
             }

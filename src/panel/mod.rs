@@ -282,6 +282,23 @@ pub(crate) fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
 
+/// An id or a label must be one line of text: a line break or another control character (a
+/// quoted cell may hold one) is refused, as it would split the summary's table and match no
+/// other file's id. `what` names the column (or says where the label stands).
+pub(crate) fn check_label(
+    label: &str,
+    what: impl FnOnce() -> String,
+) -> std::result::Result<(), String> {
+    if crate::io::sanity::is_one_line(label) {
+        return Ok(());
+    }
+    Err(format!(
+        "{} = \"{label}\" holds a line break or another control character: ids and labels are \
+         one line of text",
+        what()
+    ))
+}
+
 /// A price must be a finite positive number; `what` names the column (and the security) and
 /// is only called for a bad price.
 pub(crate) fn check_price(

@@ -13,7 +13,9 @@ use polars::prelude::*;
 use sha2::{Digest, Sha256};
 
 use super::cells::{block_dates, push_long, push_wide, DateCells};
-use super::{layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source};
+use super::{
+    check_label, layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
+};
 use crate::error::{Error, Result};
 use crate::io::guard;
 use crate::io::parquet_types::unreadable_column;
@@ -43,8 +45,12 @@ pub(super) fn read(
         PanelLayout::Wide => names
             .iter()
             .filter(|n| **n != columns.date_column)
-            .map(|n| (n.clone(), rows.dictionary.id(n)))
-            .collect(),
+            .map(|n| {
+                check_label(n, || "the column name".to_string())
+                    .map_err(|message| source.file_error(message))?;
+                Ok((n.clone(), rows.dictionary.id(n)))
+            })
+            .collect::<Result<_>>()?,
     };
     std::thread::scope(|scope| {
         let hasher = source.spawn(scope, || hash_file(source))?;
