@@ -1141,6 +1141,42 @@ fn case_files() -> Vec<Bad> {
             ],
             ["debt.interest_expense", "1e-320", "too small"]
         ),
+        // Found by `fuzz/run.sh` (the overrides target): (Kd − rf) / 1e-320 overflowed to an
+        // infinite debt beta, which only the last guard caught.
+        bad!(
+            "subnormal ERP under a credit-spread debt beta",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "leverage.debt_beta_source=credit-spread",
+                "--set",
+                "market.equity_risk_premium=1e-320"
+            ],
+            ["market.equity_risk_premium", "1e-320", "credit-spread"]
+        ),
+        bad!(
+            "ERP draws from zero under a credit-spread debt beta",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "leverage.debt_beta_source=credit-spread",
+                "--set",
+                "uncertainty.equity_risk_premium=[0.0, 0.06]"
+            ],
+            [
+                "uncertainty.equity_risk_premium",
+                "[0, 0.06]",
+                "credit-spread"
+            ]
+        ),
         bad!(
             "NaN in an unused key",
             |s| edit_at(s, "case.toml", "ebit = 210.0", "ebit = nan"),

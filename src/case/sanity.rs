@@ -23,6 +23,10 @@ pub const MAX_PERIODS: u32 = 100_000;
 /// Highest D/E of a peer, the target or the subject: debt above 10/11 of capital, where equity
 /// is an option on distressed assets and no leverage formula's assumptions hold.
 pub const MAX_DEBT_TO_EQUITY: f64 = 10.0;
+/// Lowest equity risk premium when the debt beta is read from the credit spread,
+/// (Kd − rf) / ERP: below 10 bp a spread of a few points reads as a debt beta in the tens or
+/// more, which says nothing about debt, and a premium near zero makes the ratio overflow.
+pub const MIN_SPREAD_PREMIUM: f64 = 0.001;
 /// Highest weight of preferred equity or of leases: above half of capital they are the main
 /// financing, not an addition to a structure of equity and debt.
 pub const MAX_COMPONENT_WEIGHT: f64 = 0.5;

@@ -2,6 +2,7 @@
 //! ratio, window lengths the data can fill, … Each section of the case has its own function;
 //! every message names the key and the offending value.
 
+use super::sanity::MIN_SPREAD_PREMIUM;
 use super::schema::*;
 
 /// `key = value` must be finite and in [low, high).
@@ -134,12 +135,13 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
         1.0,
     )?;
     if case.leverage.debt_beta_source == DebtBetaSource::CreditSpread
-        && case.market.equity_risk_premium <= 0.0
+        && case.market.equity_risk_premium < MIN_SPREAD_PREMIUM
     {
         return Err(format!(
             "market.equity_risk_premium = {} with leverage.debt_beta_source = \"credit-spread\": \
-             the debt beta (Kd - rf) / ERP needs a positive equity risk premium",
-            case.market.equity_risk_premium
+             the debt beta (Kd - rf) / ERP needs an equity risk premium of at least \
+             {MIN_SPREAD_PREMIUM}",
+            crate::error::compact(case.market.equity_risk_premium)
         ));
     }
     rate(
@@ -337,6 +339,17 @@ fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
             if !(low.is_finite() && high.is_finite() && low <= high) {
                 return Err(format!(
                     "{key} = [{low}, {high}] is not a range [low, high] with low <= high"
+                ));
+            }
+            if key == "uncertainty.equity_risk_premium"
+                && case.leverage.debt_beta_source == DebtBetaSource::CreditSpread
+                && low < MIN_SPREAD_PREMIUM
+            {
+                let (low, high) = (crate::error::compact(low), crate::error::compact(high));
+                return Err(format!(
+                    "{key} = [{low}, {high}] with leverage.debt_beta_source = \"credit-spread\": \
+                     every draw's debt beta (Kd - rf) / ERP needs an equity risk premium of at \
+                     least {MIN_SPREAD_PREMIUM}"
                 ));
             }
         }
