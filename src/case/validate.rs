@@ -341,17 +341,17 @@ fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
                     "{key} = [{low}, {high}] is not a range [low, high] with low <= high"
                 ));
             }
-            if key == "uncertainty.equity_risk_premium"
-                && case.leverage.debt_beta_source == DebtBetaSource::CreditSpread
-                && low < MIN_SPREAD_PREMIUM
-            {
-                let (low, high) = (crate::error::compact(low), crate::error::compact(high));
-                return Err(format!(
-                    "{key} = [{low}, {high}] with leverage.debt_beta_source = \"credit-spread\": \
-                     every draw's debt beta (Kd - rf) / ERP needs an equity risk premium of at \
-                     least {MIN_SPREAD_PREMIUM}"
-                ));
-            }
+        }
+    }
+    let credit_spread = case.leverage.debt_beta_source == DebtBetaSource::CreditSpread;
+    if let (true, Some([low, high])) = (credit_spread, u.equity_risk_premium) {
+        if low < MIN_SPREAD_PREMIUM {
+            let (low, high) = (crate::error::compact(low), crate::error::compact(high));
+            return Err(format!(
+                "uncertainty.equity_risk_premium = [{low}, {high}] with \
+                 leverage.debt_beta_source = \"credit-spread\": every draw's debt beta \
+                 (Kd - rf) / ERP needs an equity risk premium of at least {MIN_SPREAD_PREMIUM}"
+            ));
         }
     }
     Ok(())
