@@ -17,13 +17,39 @@ pub enum Error {
         #[source]
         source: std::io::Error,
     },
-    /// The case file (or a `--set` override) is malformed or holds a value out of range.
+    /// The case file (or an override) is malformed or holds a value out of range.
     #[error("{}: {message}", file.display())]
     Case { file: PathBuf, message: String },
-    /// A `--set` assignment could not be applied.
-    #[error("--set {assignment}: {message}")]
+    /// An override (a `KEY=VALUE` assignment laid over a case or universe file) could not be
+    /// applied. The library never names a command-line flag; a front end words the assignment
+    /// as its users gave it (the command line: `--set`).
+    #[error("override {assignment}: {message}")]
     Override { assignment: String, message: String },
-    /// A command-line option or a case value outside the `--set` syntax is malformed.
+    /// The file with its overrides applied is not a valid file of its kind.
+    #[error(
+        "{}: after applying the overrides {}: {message}",
+        file.display(),
+        overrides.join(", ")
+    )]
+    AfterOverrides {
+        file: PathBuf,
+        overrides: Vec<String>,
+        message: String,
+    },
+    /// A receipt's input file (the case or universe file it records) is at none of the places
+    /// tried; a front end says how to give its place.
+    #[error(
+        "{}: the {section} file it names is not at {}",
+        receipt.display(),
+        tried.iter().map(|p| p.display().to_string()).collect::<Vec<_>>().join(" nor at ")
+    )]
+    InputNotFound {
+        receipt: PathBuf,
+        /// `case` or `universe`.
+        section: String,
+        tried: Vec<PathBuf>,
+    },
+    /// A command-line option or a value outside the override syntax is malformed.
     #[error("{option}: {message}")]
     Argument { option: String, message: String },
     /// A data file is malformed as a whole (missing column, not CSV, no rows).

@@ -40,7 +40,10 @@ fn main() -> ExitCode {
             ExitCode::from(130)
         }
         Err(error) => {
-            eprintln!("error: {}", hurdle::error::one_line(&error.to_string()));
+            eprintln!(
+                "error: {}",
+                hurdle::error::one_line(&cli::render_error(&error))
+            );
             ExitCode::from(2)
         }
     }

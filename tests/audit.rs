@@ -112,6 +112,14 @@ fn verify_refuses_a_receipt_from_a_newer_schema() {
     );
 }
 
+/// What follows `exact: {prefix}` in the output of `hurdle implied`.
+fn exact_line<'a>(report: &'a str, prefix: &str) -> &'a str {
+    report
+        .lines()
+        .find_map(|l| l.trim().strip_prefix("exact: ")?.strip_prefix(prefix))
+        .unwrap_or_else(|| panic!("no `exact: {prefix}` in {report}"))
+}
+
 // Plugging the implied value back in reproduces the claim: 1e-10 is the bar; bisection
 // narrows the bracket to adjacent doubles, so the WACC error is a few ulps of its slope.
 #[test]
@@ -139,11 +147,7 @@ fn implied_values_reproduce_the_claimed_wacc() {
         ]);
         let report = text(&output);
         assert_eq!(output.status.code(), Some(0), "{solve}: {report}");
-        let exact = report
-            .lines()
-            .find_map(|l| l.trim().strip_prefix("exact: "))
-            .unwrap_or_else(|| panic!("{solve}: {report}"))
-            .to_string();
+        let exact = exact_line(&report, "").to_string();
         let out = dir.path().join(solve);
         let rerun = run_case(Path::new(case), &out, &["--set", &exact]);
         let wacc = number(&rerun, "wacc");
@@ -157,12 +161,7 @@ fn implied_values_reproduce_the_claimed_wacc() {
     let base = run_case(Path::new(case), &dir.path().join("base"), &[]);
     let output = hurdle(&["implied", case, "--wacc", "0.076", "--solve", "beta"]);
     let report = text(&output);
-    let beta: f64 = report
-        .lines()
-        .find_map(|l| l.trim().strip_prefix("exact: relevered beta="))
-        .unwrap_or_else(|| panic!("{report}"))
-        .parse()
-        .unwrap();
+    let beta: f64 = exact_line(&report, "relevered beta=").parse().unwrap();
     let wacc = number(&base, "weights.equity")
         * (number(&base, "risk_free_rate")
             + beta * number(&base, "equity_risk_premium")
@@ -171,6 +170,50 @@ fn implied_values_reproduce_the_claimed_wacc() {
             * number(&base, "cost_of_debt_pre_tax")
             * (1.0 - number(&base, "target.tax_rate"));
     assert!((wacc - 0.076).abs() < 1e-10, "beta {beta} gives {wacc}");
+}
+
+// With a debt beta read from the credit spread, βD = (Kd − rf) / ERP (CAPM applied to debt,
+// common practice), the ERP search starts at the case's floor of 0.001 instead of at 0, where
+// the debt beta is undefined and every search used to stop at its first step. The answer must
+// reproduce the claim (1e-10, as above) and its debt beta must follow the formula at the solved
+// ERP (1e-12 relative: one division of the same doubles).
+#[test]
+fn implied_erp_with_a_credit_spread_debt_beta_starts_at_the_floor() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let settings = [
+        "--set",
+        "leverage.debt_beta_source=credit-spread",
+        "--set",
+        "leverage.formula=harris-pringle",
+    ];
+    let mut arguments = vec!["implied", case, "--wacc", "0.076", "--solve", "erp"];
+    arguments.extend(settings);
+    let output = hurdle(&arguments);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    // At the lowest ERPs the credit spread gives a debt beta above some peer's equity beta,
+    // which the case refuses; the scan leaves those values out and says so.
+    assert!(
+        report
+            .contains("of the 65 values searched, the lowest market.equity_risk_premium = 0.100%"),
+        "{report}"
+    );
+    let exact = exact_line(&report, "").to_string();
+    let mut rerun_settings = settings.to_vec();
+    rerun_settings.extend(["--set", &exact]);
+    let rerun = run_case(Path::new(case), &dir.path().join("erp"), &rerun_settings);
+    assert!((number(&rerun, "wacc") - 0.076).abs() < 1e-10, "{exact}");
+    let erp = number(&rerun, "equity_risk_premium");
+    assert!(erp >= 0.001, "{erp}");
+    let debt_beta =
+        (number(&rerun, "cost_of_debt_pre_tax") - number(&rerun, "risk_free_rate")) / erp;
+    let stored = number(&rerun, "subject_debt_beta");
+    assert!(
+        (stored - debt_beta).abs() <= 1e-12 * debt_beta.abs(),
+        "{stored} vs {debt_beta}"
+    );
 }
 
 #[test]
@@ -414,12 +457,7 @@ fn implied_beta_counts_preferred_equity_and_leases() {
     let output = hurdle(&arguments);
     let report = text(&output);
     assert_eq!(output.status.code(), Some(0), "{report}");
-    let beta: f64 = report
-        .lines()
-        .find_map(|l| l.trim().strip_prefix("exact: relevered beta="))
-        .unwrap_or_else(|| panic!("{report}"))
-        .parse()
-        .unwrap();
+    let beta: f64 = exact_line(&report, "relevered beta=").parse().unwrap();
     let tax = number(&base, "target.tax_rate");
     let wacc = number(&base, "weights.equity")
         * (number(&base, "risk_free_rate")

@@ -1797,6 +1797,22 @@ fn overrides() -> Vec<Bad> {
             ["market.index=5"]
         ),
         bad!(
+            "--set two values, one of the wrong type",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "beta.frequency=3",
+                "--set",
+                "market.equity_risk_premium=0.05"
+            ],
+            ["case.toml: after applying --set beta.frequency=3, --set \
+                 market.equity_risk_premium=0.05"]
+        ),
+        bad!(
             "--set two billion draws",
             nothing,
             [
@@ -2085,7 +2101,28 @@ fn command_arguments() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            ["debt.source", "spread table"]
+            ["debt.source", "spread table", "set debt.source = \"given\""]
+        ),
+        bad!(
+            "implied: ERP range under the credit-spread floor",
+            nothing,
+            [
+                "implied",
+                "{case}",
+                "--wacc",
+                "0.09",
+                "--solve",
+                "erp",
+                "--range",
+                "0..0.1",
+                "--set",
+                "leverage.debt_beta_source=credit-spread"
+            ],
+            [
+                "--range 0..0.1",
+                "credit-spread",
+                "market.equity_risk_premium of at least 0.001"
+            ]
         ),
         bad!(
             "grid: step 1e-300",

@@ -328,6 +328,37 @@ fn a_sheet_that_is_not_there_lists_the_sheets() {
     );
 }
 
+// A workbook of several sheets without a sheet named: the case is told its `sheet` key, init its
+// `--sheet` option (the library words it for the case; the command line for init).
+#[test]
+fn a_workbook_of_several_sheets_asks_for_one_in_the_callers_terms() {
+    let copy = WideCopy::new();
+    copy.edit("case_workbook.toml", "sheet = \"Prices\"", "");
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(
+        stderr.contains(
+            "data/prices.xlsx: has 2 sheets; name the one with the prices (`sheet` in the case's \
+             source): \"About\", \"Prices\""
+        ),
+        "{stderr}"
+    );
+    let out = copy.root.path().join("started.toml");
+    let output = init(&[
+        copy.path("data/prices.xlsx").to_str().unwrap(),
+        "--index",
+        "Index",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("has 2 sheets; name the one with the prices with --sheet: \"About\""),
+        "{stderr}"
+    );
+    assert!(!out.exists());
+}
+
 #[test]
 fn a_column_that_is_not_there_lists_the_columns() {
     let copy = WideCopy::new();

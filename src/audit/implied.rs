@@ -4,7 +4,9 @@
 //! intervals), every interval where it crosses the claim is counted, and the first crossing is
 //! narrowed by bisection until the bracket is as small as doubles allow. Bisection is chosen
 //! over faster methods because it cannot leave its bracket. A claim no value in the range
-//! reaches is reported with the WACC range found, never forced. Inputs that are case keys are
+//! reaches is reported with the WACC range found, never forced. A value the case refuses (an ERP
+//! low enough that a debt beta read from the credit spread exceeds a peer's equity beta) is left
+//! out of the scan and counted, not taken for an error of the whole search. Inputs that are case keys are
 //! varied through the valuation (the same computation as `--set`, reusing the peers' estimates,
 //! which none of these keys moves); the relevered beta, which is not a case key, through the
 //! build-up of [`super::bridge::BuildUp`], whose WACC is the case's own formula.
@@ -12,7 +14,8 @@
 use serde::Serialize;
 
 use super::bridge::Side;
-use crate::case::{with_overrides, CountryMethod, TargetSource};
+use crate::case::sanity::MIN_SPREAD_PREMIUM;
+use crate::case::{with_overrides, CountryMethod, DebtBetaSource, TargetSource};
 use crate::error::{Error, Result};
 use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates, Valuation};
 
@@ -82,9 +85,14 @@ pub struct Implied {
     pub achieved_wacc: Option<f64>,
     /// How many scan intervals cross the claim (more than one: several values fit).
     pub crossings: usize,
-    /// The lowest and highest WACC seen over the scan.
+    /// The lowest and highest WACC seen over the scan (over the values the case accepts).
     pub wacc_min: f64,
     pub wacc_max: f64,
+    /// How many of the scan's values the case refuses (for example an ERP at which a debt beta
+    /// read from the credit spread exceeds a peer's equity beta), and the lowest one with the
+    /// reason. No crossing is looked for next to a refused value.
+    pub refused: usize,
+    pub first_refused: Option<(f64, String)>,
 }
 
 /// Solves for `target` so that the WACC equals `claimed`.
@@ -96,7 +104,16 @@ pub fn implied(
     claimed: f64,
     range: Option<(f64, f64)>,
 ) -> Result<Implied> {
-    let (low, high) = range.unwrap_or_else(|| target.default_range());
+    let settings = &inputs.case.settings;
+    // A debt beta read from the credit spread, (Kd - rf) / ERP, needs a premium of at least
+    // `MIN_SPREAD_PREMIUM` (the case's own rule): the default search starts there.
+    let erp_floor = (target == Target::Erp
+        && settings.leverage.debt_beta_source == DebtBetaSource::CreditSpread)
+        .then_some(MIN_SPREAD_PREMIUM);
+    let (low, high) = range.unwrap_or_else(|| {
+        let (low, high) = target.default_range();
+        (erp_floor.map_or(low, |floor| low.max(floor)), high)
+    });
     // Every default range passes, so a failing range is the user's; the command line names it.
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
@@ -109,7 +126,19 @@ pub fn implied(
         });
     }
     refuse_unsolvable(inputs, target)?;
-    let settings = &inputs.case.settings;
+    if let Some(floor) = erp_floor.filter(|&floor| low < floor) {
+        return Err(Error::Argument {
+            option: format!(
+                "search range {}..{}",
+                crate::error::compact(low),
+                crate::error::compact(high)
+            ),
+            message: format!(
+                "with leverage.debt_beta_source = \"credit-spread\" the debt beta (Kd - rf) / ERP \
+                 needs market.equity_risk_premium of at least {floor}; search from {floor}"
+            ),
+        });
+    }
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = match target {
         Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),
@@ -150,7 +179,8 @@ pub fn implied(
         let estimates = estimates_for(&case, inputs, estimates)?;
         Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
     };
-    let (value, crossings, wacc_min, wacc_max) = solve(&wacc_at, low, high, claimed)?;
+    let scan = solve(&wacc_at, low, high, claimed)?;
+    let value = scan.value;
     let achieved_wacc = value.map(wacc_at).transpose()?;
     Ok(Implied {
         target,
@@ -161,9 +191,11 @@ pub fn implied(
         range: (low, high),
         value,
         achieved_wacc,
-        crossings,
-        wacc_min,
-        wacc_max,
+        crossings: scan.crossings,
+        wacc_min: scan.wacc_min,
+        wacc_max: scan.wacc_max,
+        refused: scan.refused,
+        first_refused: scan.first_refused,
     })
 }
 
@@ -173,8 +205,8 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
     if target == Target::CostOfDebt && settings.debt.source != crate::case::DebtSource::Given {
         return Err(Error::Case {
             file: inputs.case.path.clone(),
-            message: "the cost of debt comes from a spread table (debt.source); solve for it \
-                      with --set debt.source=given"
+            message: "the cost of debt comes from a spread table (debt.source); to solve for it, \
+                      set debt.source = \"given\""
                 .into(),
         });
     }
@@ -183,7 +215,7 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
             file: inputs.case.path.clone(),
             message: format!(
                 "target.source = {}: the target structure is not a ratio of the case, so none can \
-                 be solved for; use --set target.source=explicit",
+                 be solved for; set target.source = \"explicit\"",
                 crate::case::label(&settings.target.source)
             ),
         });
@@ -200,38 +232,57 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
     Ok(())
 }
 
+/// What the scan found: the solution (if any), the number of crossing intervals, the lowest and
+/// highest WACC seen, and the values the case refused.
+struct Scan {
+    value: Option<f64>,
+    crossings: usize,
+    wacc_min: f64,
+    wacc_max: f64,
+    refused: usize,
+    first_refused: Option<(f64, String)>,
+}
+
 /// Scans `wacc_at` over [low, high] for crossings of `claimed` and narrows the first by
-/// bisection: the solution (if any), the number of crossing intervals, and the lowest and highest
-/// WACC seen.
-fn solve(
-    wacc_at: &dyn Fn(f64) -> Result<f64>,
-    low: f64,
-    high: f64,
-    claimed: f64,
-) -> Result<(Option<f64>, usize, f64, f64)> {
+/// bisection. A value the case refuses (an error) is left out: an interval with a refused end
+/// is not searched. Every value refused returns the first error.
+fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64) -> Result<Scan> {
     const INTERVALS: usize = 64;
     let xs: Vec<f64> = (0..=INTERVALS)
         .map(|i| low + (high - low) * i as f64 / INTERVALS as f64)
         .collect();
-    let gaps = xs
-        .iter()
-        .map(|&x| Ok(wacc_at(x)? - claimed))
-        .collect::<Result<Vec<f64>>>()?;
+    let mut gaps: Vec<Option<f64>> = Vec::with_capacity(xs.len());
+    let mut refusals = Vec::new();
+    for &x in &xs {
+        match wacc_at(x) {
+            Ok(wacc) => gaps.push(Some(wacc - claimed)),
+            Err(error) => {
+                gaps.push(None);
+                refusals.push((x, error));
+            }
+        }
+    }
+    if refusals.len() == xs.len() {
+        return Err(refusals.swap_remove(0).1);
+    }
     // An interval crosses when the claim lies at its left end or strictly inside it; a root on
     // its right end belongs to the next interval (or to the last one, at the range's end).
-    let crossing = |i: usize| {
-        gaps[i] == 0.0
-            || (gaps[i + 1] != 0.0 && (gaps[i] < 0.0) != (gaps[i + 1] < 0.0))
-            || (i + 1 == INTERVALS && gaps[i + 1] == 0.0)
+    let crossing = |i: usize| match (gaps[i], gaps[i + 1]) {
+        (Some(left), Some(right)) => {
+            left == 0.0
+                || (right != 0.0 && (left < 0.0) != (right < 0.0))
+                || (i + 1 == INTERVALS && right == 0.0)
+        }
+        _ => false,
     };
     let crossings = (0..INTERVALS).filter(|&i| crossing(i)).count();
-    let wacc_min = gaps.iter().fold(f64::INFINITY, |m, g| m.min(g + claimed));
-    let wacc_max = gaps
-        .iter()
-        .fold(f64::NEG_INFINITY, |m, g| m.max(g + claimed));
+    let seen = || gaps.iter().flatten().map(|g| g + claimed);
+    let wacc_min = seen().fold(f64::INFINITY, f64::min);
+    let wacc_max = seen().fold(f64::NEG_INFINITY, f64::max);
     let mut value = None;
     if let Some(i) = (0..INTERVALS).find(|&i| crossing(i)) {
-        let (mut a, mut b, mut gap_a) = (xs[i], xs[i + 1], gaps[i]);
+        let (mut a, mut b) = (xs[i], xs[i + 1]);
+        let mut gap_a = gaps[i].expect("a crossing interval's ends are accepted");
         for _ in 0..200 {
             let mid = 0.5 * (a + b);
             if mid <= a || mid >= b {
@@ -251,5 +302,57 @@ fn solve(
         let gap_b = wacc_at(b)? - claimed;
         value = Some(if gap_a.abs() <= gap_b.abs() { a } else { b });
     }
-    Ok((value, crossings, wacc_min, wacc_max))
+    Ok(Scan {
+        value,
+        crossings,
+        wacc_min,
+        wacc_max,
+        refused: refusals.len(),
+        first_refused: refusals
+            .into_iter()
+            .next()
+            .map(|(x, error)| (x, reason(error))),
+    })
+}
+
+/// Why the case refuses a scanned value, without the case file's name (the value is hurdle's,
+/// not a line of the file).
+fn reason(error: Error) -> String {
+    match error {
+        Error::Case { message, .. } | Error::Override { message, .. } => message,
+        other => other.to_string(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // A line WACC = 0.05 + 0.5·x, refused below x = 0.3: the claim 0.25 has the root x = 0.4
+    // (algebra). The scan over [0, 1] has 65 values i/64, of which those below 0.3 (i ≤ 19,
+    // 20 values) are refused; bisection ends on adjacent doubles, so the root is met to a few
+    // ulps (1e-15 absolute).
+    #[test]
+    fn refused_values_are_left_out_of_the_scan() {
+        let wacc_at = |x: f64| -> Result<f64> {
+            if x < 0.3 {
+                Err(Error::Regression(format!("refused at {x}")))
+            } else {
+                Ok(0.05 + 0.5 * x)
+            }
+        };
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.25).unwrap();
+        assert!((scan.value.unwrap() - 0.4).abs() < 1e-15);
+        assert_eq!(scan.crossings, 1);
+        assert_eq!(scan.refused, 20);
+        assert_eq!(scan.first_refused.as_ref().unwrap().0, 0.0);
+        assert!((scan.wacc_min - (0.05 + 0.5 * 20.0 / 64.0)).abs() < 1e-15);
+        assert!((scan.wacc_max - 0.55).abs() < 1e-15);
+        // A claim only a refused value could meet is not found, and the scan says what it saw.
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.10).unwrap();
+        assert_eq!((scan.value, scan.crossings), (None, 0));
+        // Every value refused: the first refusal is the error.
+        let message = solve(&wacc_at, 0.0, 0.2, 0.1).err().unwrap().to_string();
+        assert_eq!(message, "regression: refused at 0");
+    }
 }

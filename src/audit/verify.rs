@@ -182,7 +182,7 @@ pub(super) fn rerun_source(
             let written = recorded[section]["file"]
                 .as_str()
                 .ok_or_else(|| fail(format!("has no {section}.file")))?;
-            locate_case(receipt_path, written).map_err(fail)?
+            locate_case(receipt_path, written, section)?
         }
     };
     let overrides = recorded[section]["overrides"]
@@ -196,12 +196,10 @@ pub(super) fn rerun_source(
     Ok((file, overrides))
 }
 
-/// Finds the case file a receipt names: as recorded (relative to the working folder), else
-/// beside the receipt's folder, where `hurdle run` puts `output/` by default.
-pub(super) fn locate_case(
-    receipt_path: &Path,
-    recorded: &str,
-) -> std::result::Result<PathBuf, String> {
+/// Finds the case (or universe) file a receipt names: as recorded (relative to the working
+/// folder), else beside the receipt's folder, where `hurdle run` puts `output/` by default.
+/// `section` is the receipt's section that records it (`case` or `universe`).
+pub(super) fn locate_case(receipt_path: &Path, recorded: &str, section: &str) -> Result<PathBuf> {
     let recorded = PathBuf::from(recorded);
     let mut candidates = vec![recorded.clone()];
     if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
@@ -212,12 +210,10 @@ pub(super) fn locate_case(
         .iter()
         .find(|p| p.is_file())
         .cloned()
-        .ok_or_else(|| {
-            let tried: Vec<String> = candidates.iter().map(|p| p.display().to_string()).collect();
-            format!(
-                "the case file it names is not at {}; give its place with --case",
-                tried.join(" nor at ")
-            )
+        .ok_or_else(|| Error::InputNotFound {
+            receipt: receipt_path.to_path_buf(),
+            section: section.to_string(),
+            tried: candidates.clone(),
         })
 }
 

@@ -251,11 +251,9 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
         apply_override(&mut table, assignment)?;
     }
     renamed::check(&table).map_err(case_error)?;
-    CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
-        case_error(format!(
-            "after applying --set {}: {}",
-            overrides.join(", --set "),
-            e.message()
-        ))
+    CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| Error::AfterOverrides {
+        file: path.to_path_buf(),
+        overrides: overrides.to_vec(),
+        message: e.message().to_string(),
     })
 }

@@ -59,8 +59,8 @@ pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<Strin
             .join(", ")
     };
     for (option, column) in [
-        ("--index", Some(options.index)),
-        ("--risk-free", options.risk_free),
+        ("the index column", Some(options.index)),
+        ("the risk-free column", options.risk_free),
     ] {
         if let Some(column) = column {
             if !table.columns.iter().any(|c| c == column) {
@@ -73,7 +73,7 @@ pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<Strin
     }
     if options.risk_free == Some(options.index) {
         return Err(fail(format!(
-            "--index and --risk-free name the same column `{}`",
+            "the index and the risk-free yields name the same column `{}`",
             options.index
         )));
     }
@@ -428,7 +428,7 @@ pub fn write_new(path: &Path, text: &str) -> Result<()> {
     if path.exists() {
         return Err(Error::Io {
             path: path.to_path_buf(),
-            action: "exists already; init never overwrites a file (give another --out)",
+            action: "exists already; init never overwrites a file (name another one to write)",
             source: std::io::Error::from(std::io::ErrorKind::AlreadyExists),
         });
     }

@@ -70,6 +70,16 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         r.key,
         show(r.base_value)
     );
+    let refusals = || {
+        if let Some((x, why)) = &r.first_refused {
+            println!(
+                "  note: the case refuses {} of the 65 values searched, the lowest {} = {}: {why}",
+                r.refused,
+                r.key,
+                show(*x)
+            );
+        }
+    };
     match (r.value, r.achieved_wacc) {
         (Some(value), Some(achieved)) => {
             println!(
@@ -85,6 +95,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                     r.crossings
                 );
             }
+            refusals();
             Ok(ExitCode::SUCCESS)
         }
         _ => {
@@ -96,6 +107,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                 percent(r.wacc_min, 3),
                 percent(r.wacc_max, 3)
             );
+            refusals();
             Ok(ExitCode::from(1))
         }
     }

@@ -10,7 +10,7 @@
 use std::path::{Path, PathBuf};
 
 use hurdle::case::scaffold::{relative_path, starting_case, write_new, StartOptions};
-use hurdle::io::tables::PriceTable;
+use hurdle::io::tables::{PriceTable, NAME_THE_SHEET};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -58,7 +58,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         args.sheet.as_deref(),
         args.date_column.as_deref(),
     )
-    .map_err(|e| hint_date_column(e, args.date_column.is_none()))?;
+    .map_err(|e| in_init_terms(e, args.date_column.is_none()))?;
     let text = starting_case(
         &table,
         &StartOptions {
@@ -86,9 +86,20 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     Ok(())
 }
 
-/// When the first column was taken as the dates and is not, says how to name another.
-fn hint_date_column(error: hurdle::Error, guessed: bool) -> hurdle::Error {
+/// A table's error in init's words: when the first column was taken as the dates and is not,
+/// says how to name another; a workbook of several sheets is told which option names one.
+fn in_init_terms(error: hurdle::Error, guessed: bool) -> hurdle::Error {
     match error {
+        hurdle::Error::DataFile { file, message } if message.contains(NAME_THE_SHEET) => {
+            hurdle::Error::DataFile {
+                file,
+                message: message.replacen(
+                    NAME_THE_SHEET,
+                    "name the one with the prices with --sheet",
+                    1,
+                ),
+            }
+        }
         hurdle::Error::DataFile { file, message }
             if guessed && message.contains("is not a date") =>
         {

@@ -49,6 +49,29 @@ pub enum Command {
     Init(init::Args),
 }
 
+/// A library error in the command line's words: the library speaks of overrides and of the
+/// file a receipt records; here they are `--set` and `--case`.
+pub fn render_error(error: &hurdle::Error) -> String {
+    use hurdle::Error;
+    match error {
+        Error::Override {
+            assignment,
+            message,
+        } => format!("--set {assignment}: {message}"),
+        Error::AfterOverrides {
+            file,
+            overrides,
+            message,
+        } => format!(
+            "{}: after applying --set {}: {message}",
+            file.display(),
+            overrides.join(", --set ")
+        ),
+        Error::InputNotFound { .. } => format!("{error}; give its place with --case"),
+        other => other.to_string(),
+    }
+}
+
 /// Arguments every case-reading command takes.
 #[derive(Debug, clap::Args)]
 pub struct CaseArgs {

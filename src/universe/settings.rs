@@ -230,11 +230,11 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
             case::apply_override(&mut table, assignment)?;
         }
         settings = UniverseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
-            file_error(format!(
-                "after applying --set {}: {}",
-                overrides.join(", --set "),
-                e.message()
-            ))
+            Error::AfterOverrides {
+                file: path.to_path_buf(),
+                overrides: overrides.to_vec(),
+                message: e.message().to_string(),
+            }
         })?;
     }
     validate(&settings).map_err(file_error)?;

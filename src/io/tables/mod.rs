@@ -19,6 +19,7 @@ use crate::error::{Error, Result};
 use crate::io::series::{sha256_hex, DataFile, Series, ValueKind};
 
 pub use cells::{column_letters, Cell, Place, PlaceKind};
+pub use workbook::NAME_THE_SHEET;
 
 /// The file formats a wide table may come in, told apart by the file's extension.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -18,6 +18,9 @@ use super::RawTable;
 const MAX_SERIAL: f64 = 2_958_465.999_999;
 
 /// The first bytes of a ZIP package (`.xlsx`, `.xlsm`, `.ods`).
+/// What a workbook of several sheets asks for, in a case's terms (a front end that takes the
+/// sheet otherwise replaces it).
+pub const NAME_THE_SHEET: &str = "name the one with the prices (`sheet` in the case's source)";
 const ZIP_MAGIC: &[u8] = b"PK\x03\x04";
 /// The first bytes of an OLE compound file (`.xls`, and an encrypted `.xlsx`).
 const OLE_MAGIC: &[u8] = &[0xD0, 0xCF, 0x11, 0xE0, 0xA1, 0xB1, 0x1A, 0xE1];
@@ -81,8 +84,7 @@ where
         None if names.len() == 1 => names[0].clone(),
         None => {
             return Err(format!(
-                "has {} sheets; name the one with the prices (`sheet` in the case, --sheet for \
-                 init): {}",
+                "has {} sheets; {NAME_THE_SHEET}: {}",
                 names.len(),
                 listed()
             ))
