@@ -313,6 +313,91 @@ fn grid_cells_equal_single_runs() {
     assert!(text(&bad).contains("KEY=LOW..HIGH:STEP"), "{}", text(&bad));
 }
 
+// A case whose memo grid reaches values the case itself refuses: with a debt beta read from the
+// credit spread, βD = (Kd − rf) / ERP (CAPM applied to debt, common practice), the grid's lowest
+// ERP row (2.6%) gives βD = (4.63% − 2.67%) / 2.6% ≈ 0.754, above a peer's equity beta, which a
+// case refuses. The run must still succeed: the refused cells are null with the reason (the
+// same message `hurdle run` gives for those two values), every other cell equals the run with
+// its two values, and the chart and the memo mark the empty cells n/a.
+#[test]
+fn grid_cells_the_case_refuses_are_left_empty_with_the_reason() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let settings = [
+        "--set",
+        "leverage.debt_beta_source=credit-spread",
+        "--set",
+        "leverage.formula=harris-pringle",
+        "--set",
+        "market.equity_risk_premium=0.036",
+    ];
+    let out = dir.path().join("out");
+    let result = run_case(&case, &out, &settings);
+    let grid = &result["sensitivity"];
+    let rows = grid["rows"]["values"].as_array().unwrap();
+    let columns = grid["columns"]["values"].as_array().unwrap();
+    let refused = grid["refused"].as_array().unwrap();
+    assert_eq!(refused.len(), columns.len(), "{grid}");
+    for (r, row) in grid["cells"].as_array().unwrap().iter().enumerate() {
+        for (c, cell) in row.as_array().unwrap().iter().enumerate() {
+            let entry = refused.iter().find(|x| x["row"] == r && x["column"] == c);
+            assert_eq!(cell.is_null(), entry.is_some(), "cell {r}, {c}");
+            assert_eq!(cell.is_null(), r == 0, "cell {r}, {c}: only the 2.6% row");
+        }
+    }
+    let debt_beta = (number(&result, "cost_of_debt_pre_tax") - number(&result, "risk_free_rate"))
+        / rows[0].as_f64().unwrap();
+    let reason = refused[0]["reason"].as_str().unwrap();
+    assert!(
+        reason.contains(&format!("debt beta {debt_beta}")),
+        "{reason} vs {debt_beta}"
+    );
+    // The refused values, run as a case, are refused with the same reason.
+    let with_values = |r: usize, c: usize| -> Vec<String> {
+        let mut args: Vec<String> = settings.iter().map(|s| s.to_string()).collect();
+        args.extend([
+            "--set".into(),
+            format!("market.equity_risk_premium={}", rows[r]),
+            "--set".into(),
+            format!("target.debt_to_equity={}", columns[c]),
+        ]);
+        args
+    };
+    let refused_out = dir.path().join("refused");
+    let values = with_values(0, 2);
+    let mut arguments = vec![
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        refused_out.to_str().unwrap(),
+    ];
+    arguments.extend(values.iter().map(String::as_str));
+    let output = hurdle(&arguments);
+    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
+    assert!(text(&output).contains(reason), "{}", text(&output));
+    // A computed cell equals the run with its two values (bit for bit, as above).
+    let values = with_values(1, 3);
+    let values: Vec<&str> = values.iter().map(String::as_str).collect();
+    let rerun = run_case(&case, &dir.path().join("cell"), &values);
+    assert_eq!(
+        grid["cells"][1][3].as_f64().unwrap(),
+        number(&rerun, "wacc")
+    );
+    let svg = std::fs::read_to_string(out.join("figures/sensitivity.svg")).unwrap();
+    // plotters writes each label on a line of its own inside its <text> element.
+    assert_eq!(
+        svg.matches(">\nn/a\n</text>").count(),
+        columns.len(),
+        "n/a labels in the chart"
+    );
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(
+        memo.contains("| 0.026 | n/a | n/a | n/a | n/a | n/a |"),
+        "{memo}"
+    );
+    assert!(memo.contains("(0.026, 0.000), (0.026, 0.200)"), "{memo}");
+}
+
 fn demo_valuation(overrides: &[&str]) -> (hurdle::valuation::Inputs, hurdle::valuation::Valuation) {
     let overrides: Vec<String> = overrides.iter().map(|s| s.to_string()).collect();
     let case = read_case(Path::new(&format!("{DEMO_DIR}/case.toml")), &overrides).unwrap();

@@ -2143,6 +2143,28 @@ fn command_arguments() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "grid: every cell refused by the case",
+            nothing,
+            [
+                "grid",
+                "{case}",
+                "--rows",
+                "market.equity_risk_premium=0.01..0.02:0.01",
+                "--cols",
+                "target.debt_to_equity=0..1:0.5",
+                "--csv",
+                "{out}/g.csv",
+                "--set",
+                "leverage.debt_beta_source=credit-spread",
+                "--set",
+                "leverage.formula=harris-pringle"
+            ],
+            [
+                "grid cell market.equity_risk_premium=0.01, target.debt_to_equity=0",
+                "debt beta 1.96"
+            ]
+        ),
+        bad!(
             "grid: same key on both axes",
             nothing,
             [

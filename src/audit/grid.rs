@@ -3,13 +3,16 @@
 //! Each cell is the valuation rerun on a copy of the case with the two values applied as
 //! overrides ([`crate::case::with_overrides`]), so a cell is exactly what `hurdle run --set
 //! ROW=… --set COLUMN=…` computes; the peers are re-estimated only when a key changes how betas
-//! are estimated. An axis is written `key=low..high:step`.
+//! are estimated. An axis is written `key=low..high:step`. A cell whose values the valuation
+//! refuses (a debt beta above a peer's equity beta, a window too short to estimate) is left
+//! empty with the reason; a value outside what its key accepts is an error of the axis, and so
+//! is a grid whose every cell is refused.
 
 use super::case_error;
 use crate::case::Metric;
 use crate::case::{TargetSource, Variants};
 use crate::error::{Error, Result};
-pub use crate::valuation::analyses::{Axis, Grid};
+pub use crate::valuation::analyses::{Axis, Grid, RefusedCell};
 use crate::valuation::{
     cost_of_capital, estimates_for, CostOfCapital, Inputs, PeerEstimates, Valuation,
 };
@@ -133,47 +136,45 @@ pub fn grid(
     let variants = Variants::new(&inputs.case)?;
     let own = toml::Value::Table(variants.own().clone());
     let mut base_cell = None;
+    let mut refused = Vec::new();
+    // The first refusal is the error of a grid whose every cell is refused.
+    let mut first_refusal = None;
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
             progress.step()?;
             let assignments = [rows.assignment(r), columns.assignment(c)];
-            // Name the cell, not a `--set` the user never gave.
-            let in_cell = |error: Error| Error::Argument {
-                option: format!("grid cell {}, {}", assignments[0], assignments[1]),
-                message: match error {
-                    Error::Override { message, .. } => message,
-                    other => other.to_string(),
-                },
+            let at = Cell {
+                inputs,
+                estimates,
+                variants: &variants,
+                own: &own,
+                axes: [rows, columns],
             };
-            let case = variants.with(&assignments).map_err(in_cell)?;
-            if !crate::case::sources::same_data(&case.settings, &inputs.case.settings) {
-                return Err(case_error(
-                    inputs,
-                    format!(
-                        "grid axes `{}` and `{}` may not change which data files are read",
-                        rows.key, columns.key
-                    ),
-                ));
-            }
-            if base_cell.is_none()
-                && toml::Value::try_from(&case.settings).ok().as_ref() == Some(&own)
-            {
-                base_cell = Some([r, c]);
-            }
-            // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
-            let estimates = estimates_for(&case, inputs, estimates).map_err(in_cell)?;
-            let cell = read(
-                metric,
-                &cost_of_capital(&case, inputs, &estimates).map_err(in_cell)?,
-            );
-            if !cell.is_finite() {
-                let path = format!("grid cell {}, {}", assignments[0], assignments[1]);
-                return Err(Error::NonFinite { path, value: cell });
-            }
-            line.push(cell);
+            line.push(match at.compute(&assignments, metric)? {
+                Ok((value, own_case)) => {
+                    if own_case && base_cell.is_none() {
+                        base_cell = Some([r, c]);
+                    }
+                    Some(value)
+                }
+                Err(error) => {
+                    refused.push(RefusedCell {
+                        row: r,
+                        column: c,
+                        reason: super::reason(&error),
+                    });
+                    first_refusal.get_or_insert(in_cell(&assignments, error));
+                    None
+                }
+            });
         }
         cells.push(line);
+    }
+    if refused.len() == total {
+        if let Some(error) = first_refusal {
+            return Err(error);
+        }
     }
     Ok(Grid {
         metric,
@@ -181,7 +182,70 @@ pub fn grid(
         columns: columns.clone(),
         cells,
         base_cell,
+        refused,
     })
+}
+
+/// An error of one cell, named by the cell rather than by a `--set` the user never gave.
+fn in_cell(assignments: &[String; 2], error: Error) -> Error {
+    Error::Argument {
+        option: format!("grid cell {}, {}", assignments[0], assignments[1]),
+        message: match error {
+            Error::Override { message, .. } => message,
+            other => other.to_string(),
+        },
+    }
+}
+
+/// What every cell of one grid shares.
+struct Cell<'a> {
+    inputs: &'a Inputs,
+    estimates: &'a PeerEstimates,
+    variants: &'a Variants<'a>,
+    /// The case's own resolved settings, to recognise its cell.
+    own: &'a toml::Value,
+    axes: [&'a Axis; 2],
+}
+
+impl Cell<'_> {
+    /// The cell of `assignments`: `Ok(Ok((figure, whether it is the case's own)))`,
+    /// `Ok(Err(why the valuation refuses those values))`, or an error of the whole grid (an
+    /// assignment that cannot be applied, a value outside what its key accepts, an axis that
+    /// changes the data files read, a figure that is not finite).
+    fn compute(
+        &self,
+        assignments: &[String; 2],
+        metric: Metric,
+    ) -> Result<std::result::Result<(f64, bool), Error>> {
+        // A value outside what the case's key accepts is an error of the axis the user wrote;
+        // only the valuation's own refusals (below) leave a cell empty.
+        let case = self
+            .variants
+            .with(assignments)
+            .map_err(|error| in_cell(assignments, error))?;
+        if !crate::case::sources::same_data(&case.settings, &self.inputs.case.settings) {
+            return Err(case_error(
+                self.inputs,
+                format!(
+                    "grid axes `{}` and `{}` may not change which data files are read",
+                    self.axes[0].key, self.axes[1].key
+                ),
+            ));
+        }
+        let own_case = toml::Value::try_from(&case.settings).ok().as_ref() == Some(self.own);
+        // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
+        let computed = estimates_for(&case, self.inputs, self.estimates)
+            .and_then(|estimates| cost_of_capital(&case, self.inputs, &estimates));
+        let cell = match computed {
+            Ok(cost) => read(metric, &cost),
+            Err(error) => return Ok(Err(error)),
+        };
+        if !cell.is_finite() {
+            let path = format!("grid cell {}, {}", assignments[0], assignments[1]);
+            return Err(Error::NonFinite { path, value: cell });
+        }
+        Ok(Ok((cell, own_case)))
+    }
 }
 
 #[cfg(test)]

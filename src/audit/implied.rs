@@ -311,17 +311,8 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
         first_refused: refusals
             .into_iter()
             .next()
-            .map(|(x, error)| (x, reason(error))),
+            .map(|(x, error)| (x, super::reason(&error))),
     })
-}
-
-/// Why the case refuses a scanned value, without the case file's name (the value is hurdle's,
-/// not a line of the file).
-fn reason(error: Error) -> String {
-    match error {
-        Error::Case { message, .. } | Error::Override { message, .. } => message,
-        other => other.to_string(),
-    }
 }
 
 #[cfg(test)]

@@ -69,6 +69,15 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     Ok(valuation)
 }
 
+/// Why the case refuses a value an analysis tried, without the case file's name (the value is
+/// the analysis's, not a line of the file).
+fn reason(error: &Error) -> String {
+    match error {
+        Error::Case { message, .. } | Error::Override { message, .. } => message.clone(),
+        other => other.to_string(),
+    }
+}
+
 fn case_error(inputs: &Inputs, message: String) -> Error {
     Error::Case {
         file: inputs.case.path.clone(),

@@ -45,7 +45,8 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     for (r, cells) in table.rows.values.iter().zip(&table.cells) {
         out.push_str(&format!("{r:>14}"));
         for cell in cells {
-            out.push_str(&format!(" {:>9}", percent(*cell, 2)));
+            let cell = cell.map_or_else(|| "n/a".to_string(), |v| percent(v, 2));
+            out.push_str(&format!(" {cell:>9}"));
         }
         out.push('\n');
     }
@@ -54,6 +55,14 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         table.rows.key,
         hurdle::report::format::label(&table.metric)
     ));
+    for refused in &table.refused {
+        out.push_str(&format!(
+            "n/a at {}, {}: {}\n",
+            table.rows.assignment(refused.row),
+            table.columns.assignment(refused.column),
+            refused.reason
+        ));
+    }
     print!("{out}");
     let path = args
         .csv

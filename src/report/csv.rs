@@ -151,7 +151,7 @@ pub(crate) fn field(text: &str) -> String {
 }
 
 /// A sensitivity grid as CSV: the row key's values down the first column, the column key's
-/// values across the header.
+/// values across the header; a cell the case refuses is empty (its reason is in the JSON).
 pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
     let mut out = field(&format!("{} \\ {}", grid.rows.key, grid.columns.key));
     for value in &grid.columns.values {
@@ -161,7 +161,10 @@ pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
     for (value, cells) in grid.rows.values.iter().zip(&grid.cells) {
         out.push_str(&value.to_string());
         for cell in cells {
-            write!(out, ",{cell}").expect("writing to a String cannot fail");
+            out.push(',');
+            if let Some(cell) = cell {
+                write!(out, "{cell}").expect("writing to a String cannot fail");
+            }
         }
         out.push('\n');
     }

@@ -23,16 +23,45 @@ impl Axis {
     }
 }
 
-/// A computed grid; `cells[r][c]` is the metric at row value `r` and column value `c`.
+/// A computed grid; `cells[r][c]` is the metric at row value `r` and column value `c`, or
+/// `None` (`null`) where the case refuses those two values (listed in `refused` with why).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Grid {
     pub metric: Metric,
     pub rows: Axis,
     pub columns: Axis,
-    pub cells: Vec<Vec<f64>>,
+    pub cells: Vec<Vec<Option<f64>>>,
     /// `[row, column]` of the cell whose two values are the case's own (it reproduces the
     /// case's figure); `null` when an axis does not hold the case's value.
     pub base_cell: Option<[usize; 2]>,
+    /// The cells the case refuses, in row-major order; absent from `result.json` when every
+    /// cell was computed (so a receipt written before this field verifies unchanged).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub refused: Vec<RefusedCell>,
+}
+
+/// A grid cell whose two values the case refuses: a low ERP at which a debt beta read from the
+/// credit spread exceeds a peer's equity beta, a window too short to estimate, …
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RefusedCell {
+    pub row: usize,
+    pub column: usize,
+    pub reason: String,
+}
+
+impl Grid {
+    /// The computed cells' figures, row by row.
+    pub fn computed(&self) -> impl Iterator<Item = f64> + '_ {
+        self.cells.iter().flatten().flatten().copied()
+    }
+
+    /// Why the case refuses cell (`row`, `column`), if it does.
+    pub fn refusal(&self, row: usize, column: usize) -> Option<&str> {
+        self.refused
+            .iter()
+            .find(|refused| refused.row == row && refused.column == column)
+            .map(|refused| refused.reason.as_str())
+    }
 }
 
 /// Percentiles of the simulated WACC.

@@ -14,7 +14,7 @@ pub mod sanity;
 
 use chrono::NaiveDate;
 
-pub use analyses::{Bridge, Grid, Uncertainty};
+pub use analyses::{Bridge, Grid, RefusedCell, Uncertainty};
 pub use build::{chain_error, chain_peers, cost_of_capital, exclusions, peer_results, value_with};
 pub use records::*;
 

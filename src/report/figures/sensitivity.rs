@@ -75,18 +75,18 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
         Metric::CostOfEquity => "Cost of equity",
     };
     let (low, high) = grid
-        .cells
-        .iter()
-        .flatten()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &v| {
+        .computed()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
             (lo.min(v), hi.max(v))
         });
-    let shade = |v: f64| {
-        style::heat(if high > low {
+    // A cell the case refuses is left in the divider grey, with `n/a` in it.
+    let shade = |v: Option<f64>| match v {
+        Some(v) => style::heat(if high > low {
             (v - low) / (high - low)
         } else {
             0.5
-        })
+        }),
+        None => style::RULE,
     };
     // The first row on top: y category i (from the bottom) is row rows − 1 − i.
     let mut row_names = value_labels(&grid.rows);
@@ -125,7 +125,7 @@ fn plot(
     layout: &Layout,
     axes: &Axes,
     grid: &Grid,
-    shade: &dyn Fn(f64) -> RGBColor,
+    shade: &dyn Fn(Option<f64>) -> RGBColor,
 ) -> Result<()> {
     let rows = grid.rows.values.len();
     let cell = |r: usize, c: usize| {
@@ -163,7 +163,7 @@ fn plot(
             };
             let [(x0, y0), _] = cell(r, c);
             Text::new(
-                percent(v, 2),
+                v.map_or_else(|| "n/a".to_string(), |v| percent(v, 2)),
                 (x0 + 0.5, y0 + 0.5),
                 font.pos(Pos::new(HPos::Center, VPos::Center)),
             )
@@ -186,10 +186,18 @@ fn plot(
 }
 
 fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {
+    let refused = match grid.refused.len() {
+        0 => String::new(),
+        n => format!(
+            "{n} cell{} marked n/a hold values the case refuses (the memo and result.json \
+             sensitivity.refused say why). ",
+            if n == 1 { "" } else { "s" }
+        ),
+    };
     let own = match grid.base_cell {
         Some([r, c]) => format!(
             "The outlined cell is the case itself ({}). ",
-            percent(grid.cells[r][c], 2)
+            grid.cells[r][c].map_or_else(|| "n/a".to_string(), |v| percent(v, 2))
         ),
         None => format!(
             "The case's own values are not on these axes (its {} is {}). ",
@@ -206,9 +214,15 @@ fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {
     format!(
         "{metric} when {} (rows) and {} (columns) take the values shown, everything else as in \
          the case; each cell is a full rerun, as hurdle run --set would compute it. Darker \
-         cells are higher. {own}Figures: result.json sensitivity (rows, columns, cells, \
-         base_cell).",
-        grid.rows.key, grid.columns.key
+         cells are higher. {own}{refused}Figures: result.json sensitivity (rows, columns, \
+         cells, base_cell{}).",
+        grid.rows.key,
+        grid.columns.key,
+        if grid.refused.is_empty() {
+            ""
+        } else {
+            ", refused"
+        }
     )
 }
 
@@ -222,7 +236,10 @@ fn data_summary(grid: &Grid) -> String {
             let cells: Vec<String> = line
                 .iter()
                 .zip(&columns)
-                .map(|(v, c)| format!("{c}: {}", percent(*v, 2)))
+                .map(|(v, c)| {
+                    let v = v.map_or_else(|| "n/a".to_string(), |v| percent(v, 2));
+                    format!("{c}: {v}")
+                })
                 .collect();
             format!("{} {row}: {}.", grid.rows.key, cells.join(", "))
         })

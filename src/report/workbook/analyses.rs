@@ -148,14 +148,33 @@ fn sensitivity(
         book.number(sheet, (row + 1, 1 + c as u16), *x, &header)?;
     }
     let mut r = row + 2;
-    for (x, cells) in grid.rows.values.iter().zip(&grid.cells) {
+    for (i, (x, cells)) in grid.rows.values.iter().zip(&grid.cells).enumerate() {
         book.number(sheet, (r, 0), *x, &header)?;
         for (c, cell) in cells.iter().enumerate() {
-            value(book, sheet, (r, 1 + c as u16), *cell, &pct)?;
+            let at = (r, 1 + c as u16);
+            match cell {
+                Some(cell) => value(book, sheet, at, *cell, &pct)?,
+                None => refused_cell(book, sheet, at, grid.refusal(i, c).unwrap_or_default())?,
+            }
         }
         r += 1;
     }
     Ok(r)
+}
+
+/// A grid cell the case refuses: `n/a`, with the reason in a note.
+fn refused_cell(
+    book: &Book,
+    sheet: &mut Sheet,
+    (row, col): (u32, u16),
+    reason: &str,
+) -> Result<()> {
+    book.text(sheet, (row, col), "n/a", &book.styles.text.clone())?;
+    let note = Note::new(format!("The case refuses these two values: {reason}"))
+        .set_author("hurdle")
+        .add_author_prefix(false);
+    sheet.ws.insert_note(row, col, &note).map_err(xlsx_error)?;
+    Ok(())
 }
 
 fn monte_carlo(
