@@ -201,6 +201,35 @@ fn debt_beta_above_the_equity_beta_is_refused() {
     assert!(message.contains("above the equity beta"), "{message}");
 }
 
+// The formula comparison under Hamada (1972), which ignores debt betas, with a peer debt beta
+// above that peer's equity beta: the case runs, and every other formula's row says the case
+// would be refused under it, in the very words of the run that uses that formula.
+#[test]
+fn comparison_rows_the_case_would_refuse_say_why() {
+    let sets = [
+        "leverage.debt_beta_source=given",
+        "leverage.debt_beta=0.3",
+        "peer.Dunmere Hydraulics.debt_beta=0.95",
+    ];
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &sets);
+    for row in result["leverage_comparison"].as_array().unwrap() {
+        let formula = row["formula"].as_str().unwrap();
+        if formula == "hamada" {
+            assert!(row.get("refused").is_none(), "{row}");
+            continue;
+        }
+        let reason = row["refused"].as_str().unwrap_or_else(|| panic!("{row}"));
+        let set_formula = format!("leverage.formula={formula}");
+        let mut refused_sets = sets.to_vec();
+        refused_sets.push(&set_formula);
+        let message = fails(&refused_sets);
+        assert!(message.contains(reason), "{formula}: {reason} / {message}");
+    }
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("| conine (refused, below) |"), "{memo}");
+}
+
 // Cost-of-debt sources on the demo's illustrative tables (cases/quillmarsh/data, inputs, not
 // output): rating BBB → spread 0.0184, so Kd = 2.67% + 1.84% = 4.51%; coverage 210 / 48 = 4.375
 // lies in [4.20, 6.18), the BBB row, so the same 4.51%.

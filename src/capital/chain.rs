@@ -80,6 +80,11 @@ pub struct FormulaOutcome {
     pub aggregate_of_operations: f64,
     pub unlevered: f64,
     pub relevered: f64,
+    /// Why the case would be refused under this formula (a debt beta above a peer's equity
+    /// beta or above the aggregate asset beta), checked for every formula; the case's own
+    /// formula with such a conflict stops the chain instead.
+    #[serde(skip)]
+    pub debt_beta_conflict: Option<ChainError>,
     pub cost_of_equity: f64,
     pub wacc: f64,
 }
@@ -293,7 +298,9 @@ pub fn chain(
         .position(|&f| f == spec.formula)
         .expect("Formula::ALL holds every formula");
     if checks == Checks::Enforce {
-        check_debt_betas(spec, &common, &comparison[chosen])?;
+        if let Some(conflict) = &comparison[chosen].debt_beta_conflict {
+            return Err(conflict.clone());
+        }
     }
     let shared = common.shared;
     Ok(Chain {
@@ -530,6 +537,7 @@ fn formula_outcome(
     };
     let (relevered, cost_of_equity, wacc) =
         equity_and_wacc(spec, formula, unlevered, &common.shared);
+    let debt_beta_conflict = check_debt_betas(spec, common, formula, unlevered).err();
     FormulaOutcome {
         formula,
         formula_source: formula.citation(),
@@ -545,6 +553,7 @@ fn formula_outcome(
         relevered,
         cost_of_equity,
         wacc,
+        debt_beta_conflict,
     }
 }
 
@@ -553,9 +562,10 @@ fn formula_outcome(
 fn check_debt_betas(
     spec: &CapitalSpec<'_>,
     common: &Common,
-    chosen: &FormulaOutcome,
+    formula: Formula,
+    unlevered: f64,
 ) -> Result<(), ChainError> {
-    if chosen.formula == Formula::Hamada || spec.debt_beta_source == DebtBetaSource::None {
+    if formula == Formula::Hamada || spec.debt_beta_source == DebtBetaSource::None {
         return Ok(());
     }
     for (i, (terms, adjusted)) in common.peers.iter().zip(&common.adjusted).enumerate() {
@@ -564,11 +574,8 @@ fn check_debt_betas(
         }
     }
     let subject_debt_beta = common.shared.subject_debt.debt_beta;
-    if subject_debt_beta > chosen.unlevered {
-        return Err(ChainError::SubjectDebtBeta(
-            subject_debt_beta,
-            chosen.unlevered,
-        ));
+    if subject_debt_beta > unlevered {
+        return Err(ChainError::SubjectDebtBeta(subject_debt_beta, unlevered));
     }
     Ok(())
 }

@@ -163,18 +163,44 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
         )),
         ChainError::PeerDebtBeta(i, debt_beta, beta_used) => Error::Estimation {
             peer: settings.peers[i].name.clone(),
-            message: format!(
-                "debt beta {debt_beta} is above the equity beta used {beta_used}; debt ranks \
-                 ahead of equity and cannot carry more systematic risk (check \
-                 leverage.debt_beta, the peer's debt_beta or cost_of_debt)"
-            ),
+            message: peer_debt_beta_message(debt_beta, beta_used),
         },
-        ChainError::SubjectDebtBeta(debt_beta, unlevered) => case_error(format!(
-            "the subject's debt beta {debt_beta} (leverage.debt_beta_source = {}) is above the \
-             aggregate unlevered beta {unlevered}, so relevering would lower the equity beta \
-             below the asset beta",
-            serde_json::to_string(&settings.leverage.debt_beta_source).unwrap_or_default(),
+        ChainError::SubjectDebtBeta(debt_beta, unlevered) => {
+            case_error(subject_debt_beta_message(settings, debt_beta, unlevered))
+        }
+    }
+}
+
+fn peer_debt_beta_message(debt_beta: f64, beta_used: f64) -> String {
+    format!(
+        "debt beta {debt_beta} is above the equity beta used {beta_used}; debt ranks ahead of \
+         equity and cannot carry more systematic risk (check leverage.debt_beta, the peer's \
+         debt_beta or cost_of_debt)"
+    )
+}
+
+fn subject_debt_beta_message(settings: &CaseFile, debt_beta: f64, unlevered: f64) -> String {
+    format!(
+        "the subject's debt beta {debt_beta} (leverage.debt_beta_source = {}) is above the \
+         aggregate unlevered beta {unlevered}, so relevering would lower the equity beta below \
+         the asset beta",
+        serde_json::to_string(&settings.leverage.debt_beta_source).unwrap_or_default(),
+    )
+}
+
+/// Why the case would be refused under a formula of the comparison, in the words of
+/// [`chain_error`] without the case file's name.
+fn conflict_reason(settings: &CaseFile, conflict: &ChainError) -> Option<String> {
+    match *conflict {
+        ChainError::PeerDebtBeta(i, debt_beta, beta_used) => Some(format!(
+            "peer \"{}\": {}",
+            settings.peers[i].name,
+            peer_debt_beta_message(debt_beta, beta_used)
         )),
+        ChainError::SubjectDebtBeta(debt_beta, unlevered) => {
+            Some(subject_debt_beta_message(settings, debt_beta, unlevered))
+        }
+        _ => None,
     }
 }
 
@@ -370,7 +396,17 @@ fn cost_record(settings: &CaseFile, chain: &Chain, peers: &[PeerResult]) -> Cost
         beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
         subject_debt_beta: chain.subject_debt_beta,
         cost_of_debt: chain.cost_of_debt.clone(),
-        leverage_comparison: chain.comparison.clone(),
+        leverage_comparison: chain
+            .comparison
+            .iter()
+            .map(|outcome| ComparedFormula {
+                outcome: outcome.clone(),
+                refused: outcome
+                    .debt_beta_conflict
+                    .as_ref()
+                    .and_then(|conflict| conflict_reason(settings, conflict)),
+            })
+            .collect(),
         cost_of_equity: chosen.cost_of_equity,
         cost_of_debt_pre_tax: chain.cost_of_debt.pre_tax,
         cost_of_debt_after_tax: chain.cost_of_debt_after_tax,

@@ -227,9 +227,21 @@ pub struct CostOfCapital {
     /// How the pre-tax cost of debt was arrived at: source, table and row used.
     pub cost_of_debt: CostOfDebtRecord,
     /// The relevered beta, cost of equity and WACC under every leverage formula, same inputs.
-    pub leverage_comparison: Vec<FormulaOutcome>,
+    pub leverage_comparison: Vec<ComparedFormula>,
     /// The results in the output currency by the Fisher relation, when `[conversion]` asks.
     pub currency_conversion: Option<CurrencyConversion>,
+}
+
+/// One row of the leverage-formula comparison: the formula's figures and, for another formula
+/// than the case's, why the case would be refused under it (its figures are then shown for
+/// comparison only).
+#[derive(Debug, Clone, Serialize)]
+pub struct ComparedFormula {
+    #[serde(flatten)]
+    pub outcome: FormulaOutcome,
+    /// Absent when the case would run under this formula.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub refused: Option<String>,
 }
 
 /// The cost of equity and WACC carried into the output currency, and both in real terms.

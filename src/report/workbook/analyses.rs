@@ -96,7 +96,8 @@ fn formulas(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         book.styles.text.clone(),
     );
     let mut r = row + 2;
-    for outcome in &v.cost.leverage_comparison {
+    for compared in &v.cost.leverage_comparison {
+        let outcome = &compared.outcome;
         let label = format!(
             "{} — {}",
             crate::report::format::label(&outcome.formula),
@@ -113,6 +114,14 @@ fn formulas(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         value(book, sheet, (r, 3), outcome.relevered, &beta)?;
         value(book, sheet, (r, 4), outcome.cost_of_equity, &pct)?;
         value(book, sheet, (r, 5), outcome.wacc, &pct)?;
+        if let Some(reason) = &compared.refused {
+            let note = Note::new(format!(
+                "For comparison only: the case would be refused under this formula: {reason}"
+            ))
+            .set_author("hurdle")
+            .add_author_prefix(false);
+            sheet.ws.insert_note(r, 0, &note).map_err(xlsx_error)?;
+        }
         r += 1;
     }
     Ok(r)
