@@ -122,8 +122,92 @@ pub fn one_line(text: &str) -> String {
     line
 }
 
+/// A TOML parse or type error of `source` as one line: `line L, column C (`the line`): what is
+/// wrong`, instead of the parser's multi-line drawing of the line with a caret. The line is
+/// counted from 1 as an editor shows it; the column in characters, from 1.
+pub fn toml_error(error: &toml::de::Error, source: &str) -> String {
+    let message = error.message().trim_end();
+    let Some(span) = error.span().filter(|s| s.start <= source.len()) else {
+        return message.to_string();
+    };
+    let before = source.get(..span.start).unwrap_or_default();
+    let line = before.matches('\n').count() + 1;
+    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+    let column = before[line_start..].chars().count() + 1;
+    let text = source[line_start..]
+        .lines()
+        .next()
+        .unwrap_or_default()
+        .trim();
+    // Long lines (a list of peers' names, a long title) are shortened to their start.
+    const SHOWN: usize = 60;
+    let shown: String = if text.chars().count() > SHOWN {
+        text.chars().take(SHOWN).chain(['…']).collect()
+    } else {
+        text.to_string()
+    };
+    if shown.is_empty() {
+        format!("line {line}, column {column}: {message}")
+    } else {
+        format!("line {line}, column {column} (`{shown}`): {message}")
+    }
+}
+
+/// Why `table` (a file with overrides applied) does not deserialise as `T`, naming the line of
+/// the table at fault (`frequency = 3`) when the parser can point at one: the table is written
+/// out as TOML and read again, so the error has a place; that text is not the user's file, so
+/// only the line is quoted, not its number. `fallback` is the message without a place.
+pub fn toml_error_in_table<T: serde::de::DeserializeOwned>(
+    table: &toml::Table,
+    fallback: String,
+) -> String {
+    let Ok(text) = toml::to_string(table) else {
+        return fallback;
+    };
+    let Err(error) = toml::from_str::<T>(&text) else {
+        return fallback;
+    };
+    let line = error
+        .span()
+        .filter(|span| span.start <= text.len())
+        .and_then(|span| {
+            let start = text[..span.start].rfind('\n').map_or(0, |i| i + 1);
+            text[start..].lines().next().map(str::trim)
+        })
+        .filter(|line| !line.is_empty());
+    match line {
+        Some(line) => format!("`{line}`: {}", error.message().trim_end()),
+        None => fallback,
+    }
+}
+
 #[cfg(test)]
 mod tests {
+    // The position follows the TOML 1.0 grammar's own error: an unknown key on line 3, column 1;
+    // a value of the wrong type on line 2, at its first character.
+    #[test]
+    fn toml_errors_name_the_line_and_column_on_one_line() {
+        #[derive(Debug, serde::Deserialize)]
+        #[serde(deny_unknown_fields)]
+        #[allow(dead_code)]
+        struct Shape {
+            rate: f64,
+        }
+        let text = "# comment\nrate = \"0.05\"\n";
+        let error = toml::from_str::<Shape>(text).unwrap_err();
+        assert_eq!(
+            super::toml_error(&error, text),
+            "line 2, column 8 (`rate = \"0.05\"`): invalid type: string \"0.05\", expected f64"
+        );
+        let text = "rate = 0.05\n\nratee = 1\n";
+        let error = toml::from_str::<Shape>(text).unwrap_err();
+        let message = super::toml_error(&error, text);
+        assert!(
+            message.starts_with("line 3, column 1 (`ratee = 1`): unknown field `ratee`"),
+            "{message}"
+        );
+    }
+
     #[test]
     fn control_characters_become_their_escapes() {
         assert_eq!(

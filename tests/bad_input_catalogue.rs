@@ -1082,7 +1082,10 @@ fn case_files() -> Vec<Bad> {
                 "lookback = 60\nlookbak = 60\n"
             ),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "{next}", "lookbak"]
+            [
+                "case.toml",
+                "{next}, column 1 (`lookbak = 60`): unknown field `lookbak`"
+            ]
         ),
         bad!(
             "missing required key",
@@ -1810,7 +1813,7 @@ fn overrides() -> Vec<Bad> {
                 "market.equity_risk_premium=0.05"
             ],
             ["case.toml: after applying --set beta.frequency=3, --set \
-                 market.equity_risk_premium=0.05"]
+                 market.equity_risk_premium=0.05: `frequency = 3`"]
         ),
         bad!(
             "--set two billion draws",

@@ -64,7 +64,8 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         source,
     })?;
     let text = String::from_utf8_lossy(&bytes);
-    let table: toml::Table = toml::from_str(&text).map_err(|e| fail(e.to_string()))?;
+    let table: toml::Table =
+        toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
     if !table.contains_key("claimed") {
         let case = read_case(path, &[])?;
         let valuation = value(&load_inputs(case)?, "")?;
@@ -75,7 +76,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
     }
     crate::case::sanity::check_claimed_text(&text).map_err(fail)?;
     let claimed = toml::from_str::<ClaimedFile>(&text)
-        .map_err(|e| fail(e.to_string()))?
+        .map_err(|e| fail(crate::error::toml_error(&e, &text)))?
         .claimed;
     let debt_to_equity = match (claimed.debt_to_equity, claimed.debt_to_capital) {
         (Some(de), None) if de >= 0.0 => de,

@@ -242,18 +242,20 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
         renamed::check(&table).map_err(case_error)?;
     }
     // Parsing straight from text first keeps the parser's line and column in every message.
-    let parsed: CaseFile = toml::from_str(text).map_err(|e| case_error(e.to_string()))?;
+    let parsed: CaseFile =
+        toml::from_str(text).map_err(|e| case_error(crate::error::toml_error(&e, text)))?;
     if overrides.is_empty() {
         return Ok(parsed);
     }
-    let mut table: toml::Table = toml::from_str(text).map_err(|e| case_error(e.to_string()))?;
+    let mut table: toml::Table =
+        toml::from_str(text).map_err(|e| case_error(crate::error::toml_error(&e, text)))?;
     for assignment in overrides {
         apply_override(&mut table, assignment)?;
     }
     renamed::check(&table).map_err(case_error)?;
-    CaseFile::deserialize(toml::Value::Table(table)).map_err(|e| Error::AfterOverrides {
+    CaseFile::deserialize(toml::Value::Table(table.clone())).map_err(|e| Error::AfterOverrides {
         file: path.to_path_buf(),
         overrides: overrides.to_vec(),
-        message: e.message().to_string(),
+        message: crate::error::toml_error_in_table::<CaseFile>(&table, e.message().to_string()),
     })
 }

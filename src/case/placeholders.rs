@@ -143,7 +143,7 @@ pub fn reject(path: &Path, text: &str, overrides: &[String]) -> Result<()> {
     if !overrides.is_empty() {
         let mut table: toml::Table = toml::from_str(text).map_err(|e| Error::Case {
             file: path.to_path_buf(),
-            message: e.to_string(),
+            message: crate::error::toml_error(&e, text),
         })?;
         for assignment in overrides {
             crate::case::apply_override(&mut table, assignment)?;

@@ -67,7 +67,8 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
     {
-        let table: TomlTable = toml::from_str(&text).map_err(|e| file_error(e.to_string()))?;
+        let table: TomlTable =
+            toml::from_str(&text).map_err(|e| file_error(crate::error::toml_error(&e, &text)))?;
         // TOML rows have no line of their own; number them in order.
         table
             .row

@@ -222,18 +222,21 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
     })?;
     // Parsing the text first keeps the parser's line and column in every message.
     let mut settings: UniverseFile =
-        toml::from_str(&text).map_err(|e| file_error(e.to_string()))?;
+        toml::from_str(&text).map_err(|e| file_error(crate::error::toml_error(&e, &text)))?;
     if !overrides.is_empty() {
         let mut table: toml::Table =
-            toml::from_str(&text).map_err(|e| file_error(e.to_string()))?;
+            toml::from_str(&text).map_err(|e| file_error(crate::error::toml_error(&e, &text)))?;
         for assignment in overrides {
             case::apply_override(&mut table, assignment)?;
         }
-        settings = UniverseFile::deserialize(toml::Value::Table(table)).map_err(|e| {
+        settings = UniverseFile::deserialize(toml::Value::Table(table.clone())).map_err(|e| {
             Error::AfterOverrides {
                 file: path.to_path_buf(),
                 overrides: overrides.to_vec(),
-                message: e.message().to_string(),
+                message: crate::error::toml_error_in_table::<UniverseFile>(
+                    &table,
+                    e.message().to_string(),
+                ),
             }
         })?;
     }
