@@ -175,8 +175,16 @@ impl<'a> Variants<'a> {
         // The table is what the settings serialise to, so its numbers are theirs; the check's
         // error is reported after the parser's, as `validate` would.
         let finite = sanity::check_finite_table(&table);
-        let settings = CaseFile::deserialize(table)
-            .map_err(|e| case_error(case, format!("with {}: {}", extra.join(", "), e.message())))?;
+        let settings = CaseFile::deserialize(table).map_err(|e| {
+            // Only on failure: the table again, so the message can quote the line at fault.
+            let mut table = self.table.clone();
+            for assignment in extra {
+                // Applied once already above, so it applies again.
+                let _ = apply_override(&mut table, assignment);
+            }
+            let located = crate::error::toml_error_in_table::<CaseFile>(&table, e.message().into());
+            case_error(case, format!("with {}: {located}", extra.join(", ")))
+        })?;
         finite
             .and_then(|()| validate::validate_finite(&settings))
             .map_err(|m| case_error(case, m))?;
