@@ -139,35 +139,37 @@ pub fn grid(
     let mut refused = Vec::new();
     // The first refusal is the error of a grid whose every cell is refused.
     let mut first_refusal = None;
+    let shared = Shared {
+        inputs,
+        estimates,
+        variants: &variants,
+        own: &own,
+        axes: [rows, columns],
+    };
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
         for c in 0..columns.values.len() {
             progress.step()?;
             let assignments = [rows.assignment(r), columns.assignment(c)];
-            let at = Cell {
-                inputs,
-                estimates,
-                variants: &variants,
-                own: &own,
-                axes: [rows, columns],
-            };
-            line.push(match at.compute(&assignments, metric)? {
-                Ok((value, own_case)) => {
-                    if own_case && base_cell.is_none() {
-                        base_cell = Some([r, c]);
+            line.push(
+                match shared.cell(&assignments, metric, base_cell.is_none())? {
+                    Ok((value, own_case)) => {
+                        if own_case && base_cell.is_none() {
+                            base_cell = Some([r, c]);
+                        }
+                        Some(value)
                     }
-                    Some(value)
-                }
-                Err(error) => {
-                    refused.push(RefusedCell {
-                        row: r,
-                        column: c,
-                        reason: super::reason(&error),
-                    });
-                    first_refusal.get_or_insert(in_cell(&assignments, error));
-                    None
-                }
-            });
+                    Err(error) => {
+                        refused.push(RefusedCell {
+                            row: r,
+                            column: c,
+                            reason: super::reason(&error),
+                        });
+                        first_refusal.get_or_insert(in_cell(&assignments, error));
+                        None
+                    }
+                },
+            );
         }
         cells.push(line);
     }
@@ -198,7 +200,7 @@ fn in_cell(assignments: &[String; 2], error: Error) -> Error {
 }
 
 /// What every cell of one grid shares.
-struct Cell<'a> {
+struct Shared<'a> {
     inputs: &'a Inputs,
     estimates: &'a PeerEstimates,
     variants: &'a Variants<'a>,
@@ -207,15 +209,17 @@ struct Cell<'a> {
     axes: [&'a Axis; 2],
 }
 
-impl Cell<'_> {
-    /// The cell of `assignments`: `Ok(Ok((figure, whether it is the case's own)))`,
+impl Shared<'_> {
+    /// The cell of `assignments`: `Ok(Ok((figure, whether it is the case's own, looked at
+    /// only when `find_own`)))`,
     /// `Ok(Err(why the valuation refuses those values))`, or an error of the whole grid (an
     /// assignment that cannot be applied, a value outside what its key accepts, an axis that
     /// changes the data files read, a figure that is not finite).
-    fn compute(
+    fn cell(
         &self,
         assignments: &[String; 2],
         metric: Metric,
+        find_own: bool,
     ) -> Result<std::result::Result<(f64, bool), Error>> {
         // A value outside what the case's key accepts is an error of the axis the user wrote;
         // only the valuation's own refusals (below) leave a cell empty.
@@ -232,7 +236,8 @@ impl Cell<'_> {
                 ),
             ));
         }
-        let own_case = toml::Value::try_from(&case.settings).ok().as_ref() == Some(self.own);
+        let own_case =
+            find_own && toml::Value::try_from(&case.settings).ok().as_ref() == Some(self.own);
         // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
         let computed = estimates_for(&case, self.inputs, self.estimates)
             .and_then(|estimates| cost_of_capital(&case, self.inputs, &estimates));

@@ -280,9 +280,12 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
     let wacc_min = seen().fold(f64::INFINITY, f64::min);
     let wacc_max = seen().fold(f64::NEG_INFINITY, f64::max);
     let mut value = None;
-    if let Some(i) = (0..INTERVALS).find(|&i| crossing(i)) {
+    // A crossing interval's ends are both accepted, so its left gap is there.
+    let first = (0..INTERVALS)
+        .find(|&i| crossing(i))
+        .and_then(|i| gaps[i].map(|gap| (i, gap)));
+    if let Some((i, mut gap_a)) = first {
         let (mut a, mut b) = (xs[i], xs[i + 1]);
-        let mut gap_a = gaps[i].expect("a crossing interval's ends are accepted");
         for _ in 0..200 {
             let mid = 0.5 * (a + b);
             if mid <= a || mid >= b {
