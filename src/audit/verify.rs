@@ -95,8 +95,11 @@ pub fn verify(
         file: receipt_path.to_path_buf(),
         message,
     };
-    let recorded: Value =
-        serde_json::from_str(receipt).map_err(|e| fail(format!("not JSON: {e}")))?;
+    let recorded: Value = serde_json::from_str(receipt).map_err(|e| {
+        fail(format!(
+            "not JSON: {e}; verify reads the result.json a run or a universe wrote"
+        ))
+    })?;
     if recorded["kind"] == "universe" {
         return super::verify_universe::verify_universe(
             receipt_path,
