@@ -173,12 +173,13 @@ fn implied_values_reproduce_the_claimed_wacc() {
 }
 
 // With a debt beta read from the credit spread, βD = (Kd − rf) / ERP (CAPM applied to debt,
-// common practice), the ERP search starts at the case's floor of 0.001 instead of at 0, where
-// the debt beta is undefined and every search used to stop at its first step. The answer must
+// common practice), the lowest ERPs of the search are values the case refuses (an ERP under
+// 0.001; a debt beta above a peer's equity beta); every such search used to stop at its first
+// step. The answer must
 // reproduce the claim (1e-10, as above) and its debt beta must follow the formula at the solved
 // ERP (1e-12 relative: one division of the same doubles).
 #[test]
-fn implied_erp_with_a_credit_spread_debt_beta_starts_at_the_floor() {
+fn implied_erp_with_a_credit_spread_debt_beta_leaves_out_refused_values() {
     let (dir, case_dir) = demo_copy();
     let case = case_dir.join("case.toml");
     let case = case.to_str().unwrap();
@@ -194,10 +195,30 @@ fn implied_erp_with_a_credit_spread_debt_beta_starts_at_the_floor() {
     let report = text(&output);
     assert_eq!(output.status.code(), Some(0), "{report}");
     // At the lowest ERPs the credit spread gives a debt beta above some peer's equity beta,
-    // which the case refuses; the scan leaves those values out and says so.
+    // which the case refuses (below 0.001 the case refuses any ERP under this source); the scan
+    // leaves those values out and says so. Which values: peer p's debt beta is
+    // (Kd_p − rf) / ERP, so it exceeds the beta used when ERP < (Kd_p − rf) / β_used,p =
+    // βD,p(base) · ERP(base) / β_used,p, from the base run's own figures; the scan's values are
+    // 0.20 · i / 64.
+    let base = run_case(Path::new(case), &dir.path().join("base"), &settings);
+    let base_erp = number(&base, "equity_risk_premium");
+    let threshold = base["peers"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| number(p, "debt_beta") * base_erp / number(p, "beta_used"))
+        .fold(0.001, f64::max);
+    let refused = (0..=64)
+        .filter(|&i| 0.2 * i as f64 / 64.0 < threshold)
+        .count();
+    let edge = 0.2 * (refused - 1) as f64 / 64.0;
     assert!(
-        report
-            .contains("of the 65 values searched, the lowest market.equity_risk_premium = 0.100%"),
+        report.contains(&format!(
+            "refuses {refused} of the 65 values searched (0.000% to {:.3}%); at \
+             market.equity_risk_premium = {:.3}%: peer",
+            edge * 100.0,
+            edge * 100.0
+        )),
         "{report}"
     );
     let exact = exact_line(&report, "").to_string();

@@ -2107,27 +2107,6 @@ fn command_arguments() -> Vec<Bad> {
             ["debt.source", "spread table", "set debt.source = \"given\""]
         ),
         bad!(
-            "implied: ERP range under the credit-spread floor",
-            nothing,
-            [
-                "implied",
-                "{case}",
-                "--wacc",
-                "0.09",
-                "--solve",
-                "erp",
-                "--range",
-                "0..0.1",
-                "--set",
-                "leverage.debt_beta_source=credit-spread"
-            ],
-            [
-                "--range 0..0.1",
-                "credit-spread",
-                "market.equity_risk_premium of at least 0.001"
-            ]
-        ),
-        bad!(
             "grid: step 1e-300",
             nothing,
             [

@@ -5,8 +5,9 @@
 //! narrowed by bisection until the bracket is as small as doubles allow. Bisection is chosen
 //! over faster methods because it cannot leave its bracket. A claim no value in the range
 //! reaches is reported with the WACC range found, never forced. A value the case refuses (an ERP
-//! low enough that a debt beta read from the credit spread exceeds a peer's equity beta) is left
-//! out of the scan and counted, not taken for an error of the whole search. Inputs that are case keys are
+//! below the 0.001 a debt beta read from the credit spread needs, or low enough that such a debt
+//! beta exceeds a peer's equity beta) is left out of the scan and counted, not taken for an
+//! error of the whole search. Inputs that are case keys are
 //! varied through the valuation (the same computation as `--set`, reusing the peers' estimates,
 //! which none of these keys moves); the relevered beta, which is not a case key, through the
 //! build-up of [`super::bridge::BuildUp`], whose WACC is the case's own formula.
@@ -14,8 +15,7 @@
 use serde::Serialize;
 
 use super::bridge::Side;
-use crate::case::sanity::MIN_SPREAD_PREMIUM;
-use crate::case::{with_overrides, CountryMethod, DebtBetaSource, TargetSource};
+use crate::case::{with_overrides, CountryMethod, TargetSource};
 use crate::error::{Error, Result};
 use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates, Valuation};
 
@@ -89,10 +89,12 @@ pub struct Implied {
     pub wacc_min: f64,
     pub wacc_max: f64,
     /// How many of the scan's values the case refuses (for example an ERP at which a debt beta
-    /// read from the credit spread exceeds a peer's equity beta), and the lowest one with the
-    /// reason. No crossing is looked for next to a refused value.
+    /// read from the credit spread exceeds a peer's equity beta), the lowest and highest of them,
+    /// and the reason at the refused value next to an accepted one (where the case starts or
+    /// stops refusing). No crossing is looked for next to a refused value.
     pub refused: usize,
-    pub first_refused: Option<(f64, String)>,
+    pub refused_range: Option<(f64, f64)>,
+    pub refused_at_edge: Option<(f64, String)>,
 }
 
 /// Solves for `target` so that the WACC equals `claimed`.
@@ -104,16 +106,7 @@ pub fn implied(
     claimed: f64,
     range: Option<(f64, f64)>,
 ) -> Result<Implied> {
-    let settings = &inputs.case.settings;
-    // A debt beta read from the credit spread, (Kd - rf) / ERP, needs a premium of at least
-    // `MIN_SPREAD_PREMIUM` (the case's own rule): the default search starts there.
-    let erp_floor = (target == Target::Erp
-        && settings.leverage.debt_beta_source == DebtBetaSource::CreditSpread)
-        .then_some(MIN_SPREAD_PREMIUM);
-    let (low, high) = range.unwrap_or_else(|| {
-        let (low, high) = target.default_range();
-        (erp_floor.map_or(low, |floor| low.max(floor)), high)
-    });
+    let (low, high) = range.unwrap_or_else(|| target.default_range());
     // Every default range passes, so a failing range is the user's; the command line names it.
     if !(low.is_finite() && high.is_finite() && low < high) {
         return Err(Error::Argument {
@@ -126,19 +119,7 @@ pub fn implied(
         });
     }
     refuse_unsolvable(inputs, target)?;
-    if let Some(floor) = erp_floor.filter(|&floor| low < floor) {
-        return Err(Error::Argument {
-            option: format!(
-                "search range {}..{}",
-                crate::error::compact(low),
-                crate::error::compact(high)
-            ),
-            message: format!(
-                "with leverage.debt_beta_source = \"credit-spread\" the debt beta (Kd - rf) / ERP \
-                 needs market.equity_risk_premium of at least {floor}; search from {floor}"
-            ),
-        });
-    }
+    let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = match target {
         Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),
@@ -195,7 +176,8 @@ pub fn implied(
         wacc_min: scan.wacc_min,
         wacc_max: scan.wacc_max,
         refused: scan.refused,
-        first_refused: scan.first_refused,
+        refused_range: scan.refused_range,
+        refused_at_edge: scan.refused_at_edge,
     })
 }
 
@@ -240,7 +222,8 @@ struct Scan {
     wacc_min: f64,
     wacc_max: f64,
     refused: usize,
-    first_refused: Option<(f64, String)>,
+    refused_range: Option<(f64, f64)>,
+    refused_at_edge: Option<(f64, String)>,
 }
 
 /// Scans `wacc_at` over [low, high] for crossings of `claimed` and narrows the first by
@@ -252,13 +235,13 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
         .map(|i| low + (high - low) * i as f64 / INTERVALS as f64)
         .collect();
     let mut gaps: Vec<Option<f64>> = Vec::with_capacity(xs.len());
-    let mut refusals = Vec::new();
+    let mut refusals: Vec<(usize, Error)> = Vec::new();
     for &x in &xs {
         match wacc_at(x) {
             Ok(wacc) => gaps.push(Some(wacc - claimed)),
             Err(error) => {
                 gaps.push(None);
-                refusals.push((x, error));
+                refusals.push((gaps.len() - 1, error));
             }
         }
     }
@@ -311,10 +294,17 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
         wacc_min,
         wacc_max,
         refused: refusals.len(),
-        first_refused: refusals
-            .into_iter()
-            .next()
-            .map(|(x, error)| (x, super::reason(&error))),
+        refused_range: refusals
+            .first()
+            .zip(refusals.last())
+            .map(|((first, _), (last, _))| (xs[*first], xs[*last])),
+        refused_at_edge: refusals
+            .iter()
+            .find(|(i, _)| {
+                let accepted = |j: usize| gaps.get(j).is_some_and(Option::is_some);
+                accepted(i + 1) || (*i > 0 && accepted(i - 1))
+            })
+            .map(|(i, error)| (xs[*i], super::reason(error))),
     })
 }
 
@@ -339,7 +329,9 @@ mod tests {
         assert!((scan.value.unwrap() - 0.4).abs() < 1e-15);
         assert_eq!(scan.crossings, 1);
         assert_eq!(scan.refused, 20);
-        assert_eq!(scan.first_refused.as_ref().unwrap().0, 0.0);
+        // Refused from x = 0 to 19/64; the edge is 19/64, next to the accepted 20/64.
+        assert_eq!(scan.refused_range, Some((0.0, 19.0 / 64.0)));
+        assert_eq!(scan.refused_at_edge.as_ref().unwrap().0, 19.0 / 64.0);
         assert!((scan.wacc_min - (0.05 + 0.5 * 20.0 / 64.0)).abs() < 1e-15);
         assert!((scan.wacc_max - 0.55).abs() < 1e-15);
         // A claim only a refused value could meet is not found, and the scan says what it saw.

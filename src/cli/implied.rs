@@ -71,10 +71,13 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         show(r.base_value)
     );
     let refusals = || {
-        if let Some((x, why)) = &r.first_refused {
+        if let (Some((low, high)), Some((x, why))) = (r.refused_range, &r.refused_at_edge) {
             println!(
-                "  note: the case refuses {} of the 65 values searched, the lowest {} = {}: {why}",
+                "  note: the case refuses {} of the 65 values searched ({} to {}); at {} = {}: \
+                 {why}",
                 r.refused,
+                show(low),
+                show(high),
                 r.key,
                 show(*x)
             );
