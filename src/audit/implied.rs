@@ -95,6 +95,8 @@ pub struct Implied {
     pub refused: usize,
     pub refused_range: Option<(f64, f64)>,
     pub refused_at_edge: Option<(f64, String)>,
+    /// How many values the scan evaluated (its intervals plus one).
+    pub searched: usize,
 }
 
 /// Solves for `target` so that the WACC equals `claimed`.
@@ -178,6 +180,7 @@ pub fn implied(
         refused: scan.refused,
         refused_range: scan.refused_range,
         refused_at_edge: scan.refused_at_edge,
+        searched: scan.searched,
     })
 }
 
@@ -224,6 +227,7 @@ struct Scan {
     refused: usize,
     refused_range: Option<(f64, f64)>,
     refused_at_edge: Option<(f64, String)>,
+    searched: usize,
 }
 
 /// Scans `wacc_at` over [low, high] for crossings of `claimed` and narrows the first by
@@ -294,6 +298,7 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
         wacc_min,
         wacc_max,
         refused: refusals.len(),
+        searched: xs.len(),
         refused_range: refusals
             .first()
             .zip(refusals.last())

@@ -73,9 +73,10 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     let refusals = || {
         if let (Some((low, high)), Some((x, why))) = (r.refused_range, &r.refused_at_edge) {
             println!(
-                "  note: the case refuses {} of the 65 values searched ({} to {}); at {} = {}: \
+                "  note: the case refuses {} of the {} values searched ({} to {}); at {} = {}: \
                  {why}",
                 r.refused,
+                r.searched,
                 show(low),
                 show(high),
                 r.key,
