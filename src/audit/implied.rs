@@ -123,17 +123,7 @@ pub fn implied(
     refuse_unsolvable(inputs, target)?;
     let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
-    let (key, base_value) = match target {
-        Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),
-        Target::RiskFree => ("market.risk_free_rate", base.cost.risk_free_rate),
-        Target::CostOfDebt => ("debt.cost_pre_tax", base.cost.cost_of_debt_pre_tax),
-        Target::SizePremium => ("premiums.size", base.cost.premiums.size),
-        Target::DebtToEquity if by_capital => {
-            ("target.debt_to_capital", base.cost.target.debt_to_capital)
-        }
-        Target::DebtToEquity => ("target.debt_to_equity", base.cost.target.debt_to_equity),
-        Target::Beta => ("relevered beta", base.cost.beta.relevered),
-    };
+    let (key, base_value) = key_and_base_value(target, by_capital, base);
     crate::valuation::sanity::check_search_range(
         if by_capital {
             "target.debt_to_equity"
@@ -182,6 +172,22 @@ pub fn implied(
         refused_at_edge: scan.refused_at_edge,
         searched: scan.searched,
     })
+}
+
+/// The case key varied for `target` (the relevered beta is not a key) and its base value; a
+/// debt-to-capital case solves its debt-to-capital.
+fn key_and_base_value(target: Target, by_capital: bool, base: &Valuation) -> (&'static str, f64) {
+    match target {
+        Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),
+        Target::RiskFree => ("market.risk_free_rate", base.cost.risk_free_rate),
+        Target::CostOfDebt => ("debt.cost_pre_tax", base.cost.cost_of_debt_pre_tax),
+        Target::SizePremium => ("premiums.size", base.cost.premiums.size),
+        Target::DebtToEquity if by_capital => {
+            ("target.debt_to_capital", base.cost.target.debt_to_capital)
+        }
+        Target::DebtToEquity => ("target.debt_to_equity", base.cost.target.debt_to_equity),
+        Target::Beta => ("relevered beta", base.cost.beta.relevered),
+    }
 }
 
 /// Refuses a target the case cannot be solved for, saying why.

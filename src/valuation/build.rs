@@ -188,6 +188,21 @@ fn subject_debt_beta_message(settings: &CaseFile, debt_beta: f64, unlevered: f64
     )
 }
 
+/// The leverage-formula comparison, each row with why the case would be refused under it.
+fn compared_formulas(settings: &CaseFile, chain: &Chain) -> Vec<ComparedFormula> {
+    chain
+        .comparison
+        .iter()
+        .map(|outcome| ComparedFormula {
+            outcome: outcome.clone(),
+            refused: outcome
+                .debt_beta_conflict
+                .as_ref()
+                .and_then(|conflict| conflict_reason(settings, conflict)),
+        })
+        .collect()
+}
+
 /// Why the case would be refused under a formula of the comparison, in the words of
 /// [`chain_error`] without the case file's name.
 fn conflict_reason(settings: &CaseFile, conflict: &ChainError) -> Option<String> {
@@ -396,17 +411,7 @@ fn cost_record(settings: &CaseFile, chain: &Chain, peers: &[PeerResult]) -> Cost
         beta_times_equity_risk_premium: relevered * market.equity_risk_premium,
         subject_debt_beta: chain.subject_debt_beta,
         cost_of_debt: chain.cost_of_debt.clone(),
-        leverage_comparison: chain
-            .comparison
-            .iter()
-            .map(|outcome| ComparedFormula {
-                outcome: outcome.clone(),
-                refused: outcome
-                    .debt_beta_conflict
-                    .as_ref()
-                    .and_then(|conflict| conflict_reason(settings, conflict)),
-            })
-            .collect(),
+        leverage_comparison: compared_formulas(settings, chain),
         cost_of_equity: chosen.cost_of_equity,
         cost_of_debt_pre_tax: chain.cost_of_debt.pre_tax,
         cost_of_debt_after_tax: chain.cost_of_debt_after_tax,
