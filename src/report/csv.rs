@@ -151,7 +151,8 @@ pub(crate) fn field(text: &str) -> String {
 }
 
 /// A sensitivity grid as CSV: the row key's values down the first column, the column key's
-/// values across the header; a cell the case refuses is empty (its reason is in the JSON).
+/// values across the header; a cell the valuation refuses is empty (its reason is in
+/// result.json's `sensitivity.refused`, or printed by `hurdle grid`).
 pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
     let mut out = field(&format!("{} \\ {}", grid.rows.key, grid.columns.key));
     for value in &grid.columns.values {
