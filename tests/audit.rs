@@ -417,6 +417,30 @@ fn grid_cells_the_case_refuses_are_left_empty_with_the_reason() {
         "{memo}"
     );
     assert!(memo.contains("(0.026, 0.000), (0.026, 0.200)"), "{memo}");
+    // `hurdle grid` over the same values: n/a on the terminal with the reason, empty in the CSV.
+    let csv = dir.path().join("grid.csv");
+    let mut arguments = vec![
+        "grid",
+        case.to_str().unwrap(),
+        "--rows",
+        "market.equity_risk_premium=0.026..0.036:0.005",
+        "--cols",
+        "target.debt_to_equity=0..0.4:0.2",
+        "--csv",
+        csv.to_str().unwrap(),
+    ];
+    arguments.extend(settings);
+    let output = hurdle(&arguments);
+    assert!(output.status.success(), "{}", text(&output));
+    assert!(
+        text(&output).contains(&format!(
+            "n/a at (0.026, 0), (0.026, 0.2), (0.026, 0.4): {reason}"
+        )),
+        "{}",
+        text(&output)
+    );
+    let table = std::fs::read_to_string(&csv).unwrap();
+    assert_eq!(table.lines().nth(1), Some("0.026,,,"), "{table}");
 }
 
 fn demo_valuation(overrides: &[&str]) -> (hurdle::valuation::Inputs, hurdle::valuation::Valuation) {

@@ -55,13 +55,23 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         table.rows.key,
         hurdle::report::format::label(&table.metric)
     ));
+    // The refused cells, grouped by reason in the order each reason first appears.
+    let mut reasons: Vec<(&str, Vec<String>)> = Vec::new();
     for refused in &table.refused {
-        out.push_str(&format!(
-            "n/a at {}, {}: {}\n",
-            table.rows.assignment(refused.row),
-            table.columns.assignment(refused.column),
-            refused.reason
-        ));
+        let cell = format!(
+            "({}, {})",
+            table.rows.values[refused.row], table.columns.values[refused.column]
+        );
+        match reasons
+            .iter_mut()
+            .find(|(reason, _)| *reason == refused.reason)
+        {
+            Some((_, cells)) => cells.push(cell),
+            None => reasons.push((&refused.reason, vec![cell])),
+        }
+    }
+    for (reason, cells) in reasons {
+        out.push_str(&format!("n/a at {}: {reason}\n", cells.join(", ")));
     }
     print!("{out}");
     let path = args
