@@ -127,30 +127,44 @@ pub fn one_line(text: &str) -> String {
 /// counted from 1 as an editor shows it; the column in characters, from 1.
 pub fn toml_error(error: &toml::de::Error, source: &str) -> String {
     let message = error.message().trim_end();
-    let Some(span) = error.span().filter(|s| s.start <= source.len()) else {
+    let Some(place) = place_of(error, source) else {
         return message.to_string();
     };
-    let before = source.get(..span.start).unwrap_or_default();
-    let line = before.matches('\n').count() + 1;
-    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
-    let column = before[line_start..].chars().count() + 1;
-    let text = source[line_start..]
-        .lines()
-        .next()
-        .unwrap_or_default()
-        .trim();
     // Long lines (a list of peers' names, a long title) are shortened to their start.
     const SHOWN: usize = 60;
-    let shown: String = if text.chars().count() > SHOWN {
-        text.chars().take(SHOWN).chain(['…']).collect()
+    let shown: String = if place.text.chars().count() > SHOWN {
+        place.text.chars().take(SHOWN).chain(['…']).collect()
     } else {
-        text.to_string()
+        place.text.to_string()
     };
+    let (line, column) = (place.line, place.column);
     if shown.is_empty() {
         format!("line {line}, column {column}: {message}")
     } else {
         format!("line {line}, column {column} (`{shown}`): {message}")
     }
+}
+
+/// Where a TOML error points in `source`: line and column (from 1, the column in characters)
+/// and the trimmed text of that line; `None` without a span or off a character boundary.
+struct Place<'a> {
+    line: usize,
+    column: usize,
+    text: &'a str,
+}
+
+fn place_of<'a>(error: &toml::de::Error, source: &'a str) -> Option<Place<'a>> {
+    let before = source.get(..error.span()?.start)?;
+    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+    Some(Place {
+        line: before.matches('\n').count() + 1,
+        column: before[line_start..].chars().count() + 1,
+        text: source[line_start..]
+            .lines()
+            .next()
+            .unwrap_or_default()
+            .trim(),
+    })
 }
 
 /// Why `table` (a file with overrides applied) does not deserialise as `T`, naming the line of
@@ -167,16 +181,8 @@ pub fn toml_error_in_table<T: serde::de::DeserializeOwned>(
     let Err(error) = toml::from_str::<T>(&text) else {
         return fallback;
     };
-    let line = error
-        .span()
-        .filter(|span| span.start <= text.len())
-        .and_then(|span| {
-            let start = text.get(..span.start)?.rfind('\n').map_or(0, |i| i + 1);
-            text[start..].lines().next().map(str::trim)
-        })
-        .filter(|line| !line.is_empty());
-    match line {
-        Some(line) => format!("`{line}`: {}", error.message().trim_end()),
+    match place_of(&error, &text).filter(|place| !place.text.is_empty()) {
+        Some(place) => format!("`{}`: {}", place.text, error.message().trim_end()),
         None => fallback,
     }
 }

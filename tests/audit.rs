@@ -175,9 +175,8 @@ fn implied_values_reproduce_the_claimed_wacc() {
 // With a debt beta read from the credit spread, βD = (Kd − rf) / ERP (CAPM applied to debt,
 // common practice), the lowest ERPs of the search are values the case refuses (an ERP under
 // 0.001; a debt beta above a peer's equity beta); every such search used to stop at its first
-// step. The answer must
-// reproduce the claim (1e-10, as above) and its debt beta must follow the formula at the solved
-// ERP (1e-12 relative: one division of the same doubles).
+// step. The answer must reproduce the claim (1e-10, as above) and its debt beta must follow the
+// formula at the solved ERP (1e-12 relative: one division of the same doubles).
 #[test]
 fn implied_erp_with_a_credit_spread_debt_beta_leaves_out_refused_values() {
     let (dir, case_dir) = demo_copy();
