@@ -112,6 +112,62 @@ fn verify_refuses_a_receipt_from_a_newer_schema() {
     );
 }
 
+/// A receipt whose descriptions of its settings read otherwise (as an earlier version worded
+/// them) still reproduces, with the wording listed; a changed setting does not.
+#[test]
+fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_changed_setting() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let mut result = run_case(&case_dir.join("case.toml"), &out, &[]);
+    result["estimator"]["method_description"] = "ordinary least squares, as worded before".into();
+    result["sampling"]["sampling_rule"] = "monthly, as worded before".into();
+    let receipt = out.join("reworded.json");
+    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
+    let status_dir = dir.path().join("status");
+    let args = [
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        status_dir.to_str().unwrap(),
+    ];
+    let output = hurdle(&args);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    assert!(
+        report.contains("worded differently estimator.method_description: recorded"),
+        "{report}"
+    );
+    assert!(
+        report.contains("worded differently sampling.sampling_rule"),
+        "{report}"
+    );
+    assert!(
+        report.contains("0 mismatched (relative tolerance 1e-12); 2 descriptions worded"),
+        "{report}"
+    );
+    let status = std::fs::read_to_string(status_dir.join("verification.md")).unwrap();
+    assert!(
+        status.contains("| `estimator.method_description` |"),
+        "{status}"
+    );
+    let written: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(status_dir.join("verification.json")).unwrap(),
+    )
+    .unwrap();
+    assert_eq!(written["reproduced"], true);
+    assert_eq!(written["wording_differences"].as_array().unwrap().len(), 2);
+
+    result["estimator"]["method"] = "dimson".into();
+    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
+    let output = hurdle(&args);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains(r#"MISMATCH estimator.method: recorded "dimson" recomputed "ols""#),
+        "{report}"
+    );
+}
+
 /// What follows `exact: {prefix}` in the output of `hurdle implied`.
 fn exact_line<'a>(report: &'a str, prefix: &str) -> &'a str {
     report

@@ -4,7 +4,9 @@
 //! the receipt's overrides; every input file's SHA-256 is compared with the recorded one; the
 //! full run is repeated and every leaf of the recorded JSON is compared with the rerun's, numbers
 //! within a relative tolerance and everything else exactly. Only `generated_at` and `case.file`
-//! (the path the case was found at) are skipped.
+//! (the path the case was found at) are skipped. A sentence that describes a setting in words
+//! ([`WORDING_KEYS`]) and reads differently is listed apart: a later version may word it better,
+//! and the setting it describes is compared as a value of its own.
 
 use std::path::{Path, PathBuf};
 
@@ -35,6 +37,25 @@ pub struct FileCheck {
     pub unchanged: bool,
 }
 
+/// Keys whose text only puts into words a setting that the receipt also records as a value of
+/// its own (the method, the standard errors, the frequency, the risk-free convention, the
+/// formula, the distribution of the draws), where that value is compared. A later version may
+/// word them better; a receipt written before still reproduces, with the differences listed as
+/// wording. Any change of the setting itself still fails the verification through its value.
+pub const WORDING_KEYS: &[&str] = &[
+    "method_description",
+    "std_errors_description",
+    "sampling_rule",
+    "risk_free_convention",
+    "formula_source",
+    "beta_distribution",
+];
+
+/// What a listed wording difference means, for the reader of a verification.
+pub const WORDING_NOTE: &str = "a sentence that describes a setting reads differently (the \
+version that wrote the receipt worded it otherwise); it is not a figure, and the setting it \
+describes is compared as a value of its own";
+
 /// One figure that differs.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Mismatch {
@@ -58,6 +79,9 @@ pub struct Verification {
     /// How many leaves were compared.
     pub compared: usize,
     pub mismatches: Vec<Mismatch>,
+    /// Descriptions of settings ([`WORDING_KEYS`]) that read differently: not figures, and
+    /// they do not make `reproduced` false.
+    pub wording_differences: Vec<Mismatch>,
     pub recorded_tool_version: String,
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
@@ -67,6 +91,18 @@ pub struct Verification {
     /// Every file the rerun read (not part of the report), so outputs never replace one.
     #[serde(skip)]
     pub files_read: Vec<crate::case::FileRead>,
+}
+
+impl Verification {
+    /// The wording differences for a verdict's line: empty without any, else how many
+    /// descriptions read differently (the verdict does not count them).
+    pub fn wording_summary(&self) -> String {
+        match self.wording_differences.len() {
+            0 => String::new(),
+            1 => "; 1 description worded differently".into(),
+            n => format!("; {n} descriptions worded differently"),
+        }
+    }
 }
 
 /// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.
@@ -139,17 +175,9 @@ pub fn verify(
 
     let files = file_checks(&recorded, &rerun);
 
-    let mut mismatches = Vec::new();
-    let mut compared = 0;
-    compare(
-        &recorded,
-        &recomputed,
-        String::new(),
-        tolerance,
-        &mut compared,
-        &mut mismatches,
-    );
-    let reproduced = case_unchanged && files.iter().all(|f| f.unchanged) && mismatches.is_empty();
+    let found = compare(&recorded, &recomputed, tolerance);
+    let reproduced =
+        case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
         kind: "case",
@@ -157,8 +185,9 @@ pub fn verify(
         case_unchanged,
         files,
         tolerance,
-        compared,
-        mismatches,
+        compared: found.compared,
+        mismatches: found.mismatches,
+        wording_differences: found.wording,
         recorded_tool_version: text("/tool/version").unwrap_or_default(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
@@ -225,72 +254,88 @@ pub fn numbers_agree(a: f64, b: f64, tolerance: f64) -> bool {
     a == b || (a - b).abs() <= tolerance * a.abs().max(b.abs())
 }
 
-pub(super) fn compare(
+/// What comparing a receipt with its rerun found.
+#[derive(Debug, Default)]
+pub(super) struct Comparison {
+    /// How many leaves were compared.
+    pub compared: usize,
+    pub mismatches: Vec<Mismatch>,
+    /// Leaves under [`WORDING_KEYS`] whose text differs.
+    pub wording: Vec<Mismatch>,
+}
+
+/// Compares every leaf of `recorded` with `recomputed`: numbers within `tolerance`
+/// ([`numbers_agree`]), everything else exactly, a key on one side only as against `null`.
+pub(super) fn compare(recorded: &Value, recomputed: &Value, tolerance: f64) -> Comparison {
+    let mut found = Comparison::default();
+    compare_at(
+        recorded,
+        recomputed,
+        String::new(),
+        "",
+        tolerance,
+        &mut found,
+    );
+    found
+}
+
+fn compare_at(
     recorded: &Value,
     recomputed: &Value,
     path: String,
+    key: &str,
     tolerance: f64,
-    compared: &mut usize,
-    out: &mut Vec<Mismatch>,
+    found: &mut Comparison,
 ) {
     // When it ran and where the case was found from are not figures; the hashes are compared.
     if path == "generated_at" || path == "case.file" || path == "universe.file" {
         return;
     }
-    let mut differ = || {
-        out.push(Mismatch {
-            path: path.clone(),
-            recorded: recorded.clone(),
-            recomputed: recomputed.clone(),
-        })
+    let child = |key: &str| {
+        if path.is_empty() {
+            key.to_string()
+        } else {
+            format!("{path}.{key}")
+        }
     };
-    match (recorded, recomputed) {
+    let agree = match (recorded, recomputed) {
         (Value::Object(a), Value::Object(b)) => {
             for (key, value) in a {
-                let child = if path.is_empty() {
-                    key.clone()
-                } else {
-                    format!("{path}.{key}")
-                };
-                compare(
-                    value,
-                    b.get(key).unwrap_or(&Value::Null),
-                    child,
-                    tolerance,
-                    compared,
-                    out,
-                );
+                let next = b.get(key).unwrap_or(&Value::Null);
+                compare_at(value, next, child(key), key, tolerance, found);
             }
             for key in b.keys().filter(|k| !a.contains_key(*k)) {
-                let child = if path.is_empty() {
-                    key.clone()
-                } else {
-                    format!("{path}.{key}")
-                };
-                compare(&Value::Null, &b[key], child, tolerance, compared, out);
+                compare_at(&Value::Null, &b[key], child(key), key, tolerance, found);
             }
+            return;
         }
         (Value::Array(a), Value::Array(b)) if a.len() == b.len() => {
             for (i, (x, y)) in a.iter().zip(b).enumerate() {
-                compare(x, y, format!("{path}[{i}]"), tolerance, compared, out);
+                compare_at(x, y, format!("{path}[{i}]"), key, tolerance, found);
             }
+            return;
         }
-        (Value::Number(a), Value::Number(b)) => {
-            *compared += 1;
-            let (a, b) = (
-                a.as_f64().unwrap_or(f64::NAN),
-                b.as_f64().unwrap_or(f64::NAN),
-            );
-            if !numbers_agree(a, b, tolerance) {
-                differ();
-            }
-        }
-        (a, b) => {
-            *compared += 1;
-            if a != b {
-                differ();
-            }
-        }
+        (Value::Number(a), Value::Number(b)) => numbers_agree(
+            a.as_f64().unwrap_or(f64::NAN),
+            b.as_f64().unwrap_or(f64::NAN),
+            tolerance,
+        ),
+        (a, b) => a == b,
+    };
+    found.compared += 1;
+    if agree {
+        return;
+    }
+    let difference = Mismatch {
+        path,
+        recorded: recorded.clone(),
+        recomputed: recomputed.clone(),
+    };
+    let wording = recorded.is_string() && recomputed.is_string() && WORDING_KEYS.contains(&key);
+    if wording {
+        found.wording.push(difference);
+    } else {
+        found.mismatches.push(difference);
     }
 }
 
@@ -343,5 +388,44 @@ mod tests {
             0.0867704171664703 * (1.0 + 1e-11),
             1e-12
         ));
+    }
+
+    /// A described setting's sentence that reads differently is wording; the setting's value,
+    /// a figure and a key that is not a description are mismatches.
+    #[test]
+    fn a_reworded_description_is_listed_apart_from_the_mismatches() {
+        let recorded = serde_json::json!({
+            "estimator": {"method": "ols", "method_description": "old words"},
+            "leverage_comparison": [{"formula_source": "Hamada (1972)", "unlevered_beta": 0.8}],
+            "case": {"title": "A"},
+        });
+        let mut rerun = recorded.clone();
+        rerun["estimator"]["method_description"] = "new words".into();
+        rerun["leverage_comparison"][0]["formula_source"] = "Hamada (1972), J. Finance".into();
+        let found = compare(&recorded, &rerun, 1e-12);
+        let paths = |list: &[Mismatch]| list.iter().map(|m| m.path.clone()).collect::<Vec<_>>();
+        assert!(found.mismatches.is_empty(), "{:?}", found.mismatches);
+        assert_eq!(
+            paths(&found.wording),
+            [
+                "estimator.method_description",
+                "leverage_comparison[0].formula_source"
+            ]
+        );
+        assert_eq!(found.compared, 5);
+
+        rerun["estimator"]["method"] = "dimson".into();
+        rerun["leverage_comparison"][0]["unlevered_beta"] = 0.81.into();
+        rerun["case"]["title"] = "B".into();
+        let found = compare(&recorded, &rerun, 1e-12);
+        assert_eq!(
+            paths(&found.mismatches),
+            [
+                "case.title",
+                "estimator.method",
+                "leverage_comparison[0].unlevered_beta"
+            ]
+        );
+        assert_eq!(found.wording.len(), 2);
     }
 }

@@ -50,17 +50,8 @@ pub fn verify_universe(
     let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
     let files = file_checks(recorded, &rerun);
-    let mut mismatches = Vec::new();
-    let mut compared = 0;
-    compare(
-        recorded,
-        &recomputed,
-        String::new(),
-        tolerance,
-        &mut compared,
-        &mut mismatches,
-    );
-    let reproduced = unchanged && files.iter().all(|f| f.unchanged) && mismatches.is_empty();
+    let found = compare(recorded, &recomputed, tolerance);
+    let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
         kind: "universe",
@@ -68,8 +59,9 @@ pub fn verify_universe(
         case_unchanged: unchanged,
         files,
         tolerance,
-        compared,
-        mismatches,
+        compared: found.compared,
+        mismatches: found.mismatches,
+        wording_differences: found.wording,
         recorded_tool_version: text("/tool/version").unwrap_or_default().to_string(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,

@@ -319,13 +319,13 @@ pub struct EstimatorRecord {
 pub fn describe(settings: &EstimatorSpec, subject: &str) -> EstimatorRecord {
     let method_description = match settings.method {
         BetaMethod::Ols => format!(
-            "ordinary least squares of the {subject}'s on the index's return, the market model \
-             of Sharpe (1963, Management Science 9(2))"
+            "ordinary least squares of the {subject}'s return on the index's return, the market \
+             model of Sharpe (1963, Management Science 9(2))"
         ),
         BetaMethod::Dimson => format!(
-            "Dimson (1979, J. Financial Economics 7(2)) aggregated coefficients: OLS on the \
-             index return of the same period, {} earlier and {} later period(s); beta is the \
-             sum of the slopes, its SE from their covariance matrix",
+            "Dimson (1979, J. Financial Economics 7(2)) aggregated coefficients: OLS of the \
+             {subject}'s return on the index's return of the same period, {} earlier and {} \
+             later period(s); beta is the sum of the slopes, its SE from their covariance matrix",
             settings.dimson_lags, settings.dimson_leads
         ),
         BetaMethod::ScholesWilliams => "Scholes and Williams (1977, J. Financial Economics \

@@ -8,7 +8,7 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE};
+use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE, WORDING_NOTE};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -85,9 +85,18 @@ fn render(r: &Verification) -> String {
             m.path, m.recorded, m.recomputed
         ));
     }
+    for m in &r.wording_differences {
+        out.push_str(&format!(
+            "  worded differently {}: recorded {} now {}\n",
+            m.path, m.recorded, m.recomputed
+        ));
+    }
+    if !r.wording_differences.is_empty() {
+        out.push_str(&format!("  note: {}\n", WORDING_NOTE));
+    }
     out.push_str(&format!("  note: {}\n", r.not_compared));
     out.push_str(&format!(
-        "{}: {} figures compared, {} mismatched (relative tolerance {:e})\n",
+        "{}: {} figures compared, {} mismatched (relative tolerance {:e}){}\n",
         if r.reproduced {
             "REPRODUCED"
         } else {
@@ -95,7 +104,8 @@ fn render(r: &Verification) -> String {
         },
         r.compared,
         r.mismatches.len(),
-        r.tolerance
+        r.tolerance,
+        r.wording_summary()
     ));
     out
 }

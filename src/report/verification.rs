@@ -5,7 +5,30 @@
 
 use std::fmt::Write as _;
 
-use crate::audit::verify::Verification;
+use crate::audit::verify::{Mismatch, Verification, WORDING_NOTE};
+
+/// A recorded or recomputed value as a Markdown table cell: its JSON text, with `|` escaped so
+/// that a text holding one keeps the table's columns.
+fn cell(value: &serde_json::Value) -> String {
+    value.to_string().replace('|', "\\|")
+}
+
+/// A table of `list` under `header` (three columns), nothing when the list is empty.
+fn differences(w: &mut String, header: &str, list: &[Mismatch]) {
+    if list.is_empty() {
+        return;
+    }
+    let _ = writeln!(w, "\n| {header} |\n|---|---|---|");
+    for m in list {
+        let _ = writeln!(
+            w,
+            "| `{}` | {} | {} |",
+            m.path,
+            cell(&m.recorded),
+            cell(&m.recomputed)
+        );
+    }
+}
 
 /// The verification report as Markdown.
 pub fn markdown(r: &Verification) -> String {
@@ -20,10 +43,11 @@ pub fn markdown(r: &Verification) -> String {
     let _ = writeln!(w, "# Verification of `{}`\n", r.receipt);
     let _ = writeln!(
         w,
-        "**{verdict}**: {} figures compared at a relative tolerance of {:e}, {} mismatched.\n",
+        "**{verdict}**: {} figures compared at a relative tolerance of {:e}, {} mismatched{}.\n",
         r.compared,
         r.tolerance,
-        r.mismatches.len()
+        r.mismatches.len(),
+        r.wording_summary()
     );
     let _ = writeln!(
         w,
@@ -55,12 +79,10 @@ pub fn markdown(r: &Verification) -> String {
             f.role, f.path, f.recorded_sha256, f.current_sha256
         );
     }
-    if !r.mismatches.is_empty() {
-        let _ = writeln!(w, "\n| Figure | Recorded | Recomputed |");
-        let _ = writeln!(w, "|---|---|---|");
-        for m in &r.mismatches {
-            let _ = writeln!(w, "| `{}` | {} | {} |", m.path, m.recorded, m.recomputed);
-        }
+    differences(w, "Figure | Recorded | Recomputed", &r.mismatches);
+    differences(w, "Description | Recorded | Now", &r.wording_differences);
+    if !r.wording_differences.is_empty() {
+        let _ = writeln!(w, "\nWorded differently: {WORDING_NOTE}.");
     }
     let _ = writeln!(w, "\nNot compared: {}.", r.not_compared);
     let _ = writeln!(
