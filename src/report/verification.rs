@@ -1,7 +1,8 @@
 //! `verification.md`: the verification status of a receipt, for the reviewer's file.
 //!
 //! Rendered from the [`Verification`] that `hurdle verify` computes; it restates the verdict,
-//! each input file's hash check and every mismatched figure, and computes nothing.
+//! each input file's hash check, every mismatched figure and every description worded
+//! differently, and computes nothing.
 
 use std::fmt::Write as _;
 
