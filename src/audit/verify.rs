@@ -39,7 +39,8 @@ pub struct FileCheck {
 
 /// Keys whose text only puts into words a setting that the receipt also records as a value of
 /// its own (the method, the standard errors, the frequency, the risk-free convention, the
-/// formula, the distribution of the draws), where that value is compared. A later version may
+/// formula's source and its written form, the distribution of the draws), where that value is
+/// compared. A later version may
 /// word them better; a receipt written before still reproduces, with the differences listed as
 /// wording. Any change of the setting itself still fails the verification through its value.
 pub const WORDING_KEYS: &[&str] = &[
@@ -48,6 +49,8 @@ pub const WORDING_KEYS: &[&str] = &[
     "sampling_rule",
     "risk_free_convention",
     "formula_source",
+    "formula_expression",
+    "expression",
     "beta_distribution",
 ];
 
