@@ -296,12 +296,19 @@ fn long_wide_csv_and_parquet_give_identical_outputs() {
     assert!(frame.column("security").unwrap().dtype().is_categorical());
     let categorical = fs::File::create(setup.dir().join("prices-categorical.parquet")).unwrap();
     ParquetWriter::new(categorical).finish(&mut frame).unwrap();
-    let forms: [&[&str]; 5] = [
+    // The wide CSV once more with a space after each comma of its header (`date, S01, S02`):
+    // the ids are those of the long file, read without surrounding spaces as its ids are.
+    let wide = fs::read_to_string(setup.dir().join("prices-wide.csv")).unwrap();
+    let (header, rest) = wide.split_once('\n').unwrap();
+    let spaced = format!("{}\n{rest}", header.replace(',', ", "));
+    fs::write(setup.dir().join("prices-wide-spaced.csv"), spaced).unwrap();
+    let forms: [&[&str]; 6] = [
         &[],
         &["panel.prices=prices-long.parquet"],
         &["panel.prices=prices-wide.csv", "panel.layout=wide"],
         &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
         &["panel.prices=prices-categorical.parquet"],
+        &["panel.prices=prices-wide-spaced.csv", "panel.layout=wide"],
     ];
     let outs: Vec<PathBuf> = forms
         .iter()
@@ -674,6 +681,54 @@ fn an_unparseable_price_is_refused() {
     );
 }
 
+// A row with more fields than the header (a decimal comma: "12,5") is named by its line and
+// text, in the panel (its ninth line and its last) and in the
+// attributes, not left to polars' message about its schema. A file whose lines end in a
+// carriage return alone is named as such at its header.
+#[test]
+fn a_row_with_more_fields_than_the_header_is_named() {
+    let last = fs::read_to_string(Setup::new().dir().join("prices-long.csv"))
+        .unwrap()
+        .lines()
+        .count();
+    for line in [9, last] {
+        let expected = format!("prices-long.csv, line {line}: 4 fields where the header has 3");
+        refused(
+            |dir| {
+                let cells = panel_line(dir, line);
+                let with_comma =
+                    format!("{},{},{}", cells[0], cells[1], cells[2].replace('.', ","));
+                replace_line(&dir.join("prices-long.csv"), line, &with_comma);
+            },
+            &[],
+            &[&expected, "a decimal comma"],
+        );
+    }
+    refused(
+        |dir| {
+            let path = dir.join("attributes.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let third = text.lines().nth(2).unwrap().to_string();
+            replace_line(&path, 3, &format!("{third},extra"));
+        },
+        &[],
+        &[
+            "attributes.csv, line 3:",
+            "fields where the header has",
+            ",extra\"",
+        ],
+    );
+    refused(
+        |dir| {
+            let path = dir.join("prices-long.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            fs::write(&path, text.replace('\n', "\r")).unwrap();
+        },
+        &[],
+        &["prices-long.csv, line 1:", "end with CR alone"],
+    );
+}
+
 // A quoted cell may hold a line break (RFC 4180); the message quotes the cell, and stays on one
 // line with the break shown as `\n`.
 #[test]
@@ -1033,6 +1088,28 @@ fn a_panel_in_the_other_layout_is_named() {
     rename_close(&setup.dir());
     let stderr = String::from_utf8_lossy(&setup.universe("out", &[]).stderr).to_string();
     assert!(!stderr.contains("looks like a wide file"), "{stderr}");
+    // A long Parquet file with its prices stored as text is told so, not sent to the layout it
+    // already has.
+    let setup = Setup::new();
+    let path = setup.dir().join("prices-long.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+        .finish()
+        .unwrap();
+    frame
+        .apply("close", |c| c.cast(&DataType::String).unwrap())
+        .unwrap();
+    ParquetWriter::new(fs::File::create(&path).unwrap())
+        .finish(&mut frame)
+        .unwrap();
+    let output = setup.universe("out", &["panel.prices=prices-long.parquet"]);
+    let stderr = String::from_utf8_lossy(&output.stderr).to_string();
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("prices-long.parquet: column `close` holds str, not prices")
+            && stderr.contains("stores its prices as numbers")
+            && !stderr.contains("panel.layout"),
+        "{stderr}"
+    );
 }
 
 // A header that names a column twice, or leaves a column of prices unnamed, is refused rather
@@ -1053,6 +1130,15 @@ fn a_repeated_or_missing_column_name_is_refused() {
         &[
             "prices-wide.csv",
             "the header names `S01` in columns 2 and 3",
+        ],
+    );
+    // Ids are read without surrounding spaces, so ` S01` is a second column for `S01`.
+    refused(
+        |dir| rename_header(dir, "prices-wide.csv", &|h| h.replace("S02", " S01")),
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &[
+            "prices-wide.csv",
+            "the header names security `S01` in columns 2 and 3",
         ],
     );
     refused(
@@ -1188,4 +1274,13 @@ fn rolling_betas_equal_those_of_the_case() {
     }
     let securities = read_table(&out.join("securities.csv"));
     assert!(securities.column("rolling_beta_trend_per_year").is_ok());
+    // A rerun without rolling betas into the same folder takes the earlier rolling tables away
+    // (the folder holds one run's outputs) and says so.
+    let rerun = setup.universe("out", &[]);
+    assert!(rerun.status.success());
+    let stdout = String::from_utf8_lossy(&rerun.stdout);
+    for name in ["rolling.csv", "rolling.parquet"] {
+        assert!(!out.join(name).exists(), "{name} left behind");
+        assert!(stdout.contains(&format!("removed {}", out.join(name).display())));
+    }
 }

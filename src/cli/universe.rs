@@ -69,10 +69,16 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     );
     let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
     estimating.bar.finish_and_clear();
-    let written = write_outputs(&out, &result, &reads)?;
+    let (written, stale) = write_outputs(&out, &result, &reads)?;
     print!("{}", summary(&result));
     for path in written {
         println!("  wrote {}", path.display());
+    }
+    for name in &stale {
+        println!(
+            "  removed {} (an earlier run's; this run does not write it)",
+            out.join(name).display()
+        );
     }
     Ok(())
 }

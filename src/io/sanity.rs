@@ -34,6 +34,45 @@ pub fn unique_column<'a>(
     }
 }
 
+/// The first record of CSV `bytes` with more fields than `expected` (the header's count): its
+/// first line (0-based), its field count and its text. Quoted fields may hold commas and line
+/// breaks; a line's carriage return is not part of it. What the panel and attributes readers
+/// use to name the line polars' "more fields than defined" refers to.
+pub fn first_record_with_extra_fields(
+    bytes: &[u8],
+    expected: usize,
+) -> Option<(usize, usize, String)> {
+    let (mut fields, mut in_quotes, mut record_line, mut record_start) = (1, false, 0, 0);
+    for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
+        let start = raw.as_ptr() as usize - bytes.as_ptr() as usize;
+        if !in_quotes {
+            (fields, record_line, record_start) = (1, i, start);
+        }
+        for &b in raw {
+            match b {
+                b'"' => in_quotes = !in_quotes,
+                b',' if !in_quotes => fields += 1,
+                _ => {}
+            }
+        }
+        if !in_quotes && fields > expected {
+            let end = start + raw.len();
+            let text = String::from_utf8_lossy(&bytes[record_start..end]);
+            return Some((record_line, fields, text.trim_end_matches('\r').to_string()));
+        }
+    }
+    None
+}
+
+/// The message for a record [`first_record_with_extra_fields`] found.
+pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> String {
+    format!(
+        "{fields} fields where the header has {expected} (a decimal comma, or a comma in text \
+         that is not in quotes?): \"{}\"",
+        text.trim()
+    )
+}
+
 /// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
 /// separator, and no row with more fields than the header (a decimal comma, an unquoted comma in
 /// text). Quoted fields may hold commas and line breaks. Fewer fields than the header are left to
@@ -125,7 +164,7 @@ fn not_utf8(column: usize, byte: u8) -> String {
 
 /// The message for a carriage return that does not end a line, at its 1-based byte in the line:
 /// lines ended by CR alone (classic Mac OS), which every other reader here takes as one line.
-fn lone_carriage_return(column: usize) -> String {
+pub fn lone_carriage_return(column: usize) -> String {
     format!(
         "byte {column} is a carriage return inside the line: the file's lines end with CR alone; \
          save it with LF or CRLF line ends"

@@ -17,6 +17,7 @@ use super::{check_label, Source, TableFormat};
 use crate::error::{Error, Result};
 use crate::io::guard;
 use crate::io::parquet_types::unreadable_column;
+use crate::io::sanity::{extra_fields_message, first_record_with_extra_fields};
 
 /// Which columns of the attributes table hold what.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -101,6 +102,11 @@ pub fn read_attributes(
         TableFormat::Csv => {
             let header = super::csv::header(&source, &bytes)?;
             super::csv::check_repeated_names(&source, &header, &used)?;
+            let expected = header.len();
+            if let Some((line, fields, text)) = first_record_with_extra_fields(&bytes, expected) {
+                let message = extra_fields_message(fields, expected, &text);
+                return Err(source.row_error(line.saturating_sub(1), message));
+            }
             CsvReadOptions::default()
                 .with_has_header(true)
                 // All text, so each number is parsed (and reported) here.

@@ -18,9 +18,10 @@ use polars::prelude::*;
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::{
-    check_label, layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
+    layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
 use crate::error::{Error, Result};
+use crate::io::sanity::{extra_fields_message, first_record_with_extra_fields};
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
 /// stay in cache between the stages (measured best among 4, 16 and 64 MiB on the benchmark).
@@ -117,6 +118,23 @@ fn push_frames(
 /// a row of text, so that a repeated or empty name is seen as it is (read as a header, polars
 /// would rename it).
 pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
+    // The first record alone (its end: the first line end outside quotes), so that a later
+    // line's field count is not the header's concern.
+    let mut in_quotes = false;
+    let end = block.iter().position(|&b| {
+        in_quotes ^= b == b'"';
+        b == b'\n' && !in_quotes
+    });
+    let block = &block[..end.map_or(block.len(), |end| end + 1)];
+    let line = block.strip_suffix(b"\n").unwrap_or(block);
+    let line = line.strip_suffix(b"\r").unwrap_or(line);
+    if let Some(at) = line.iter().position(|&b| b == b'\r') {
+        return Err(Error::DataRow {
+            file: source.file.clone(),
+            line: 1,
+            message: crate::io::sanity::lone_carriage_return(at + 1),
+        });
+    }
     let frame = CsvReadOptions::default()
         .with_has_header(false)
         .with_infer_schema_length(Some(0))
@@ -228,16 +246,13 @@ fn plan_for(
             if let Some(hint) = layout_hint(&header, columns, PanelLayout::Long) {
                 return Err(source.file_error(format!("read as a wide panel, but {hint}")));
             }
-            let mut wide = Vec::with_capacity(header.len() - 1);
-            for (i, name) in header.iter().enumerate().filter(|&(i, _)| i != date) {
-                dtypes[i] = DataType::Float64;
-                // A column the header does not name is read only to check that it is empty.
-                if !name.is_empty() {
-                    check_label(name, || "the header's column name".to_string())
-                        .map_err(|message| source.file_error(message))?;
-                    wide.push((name.clone(), rows.dictionary.id(name)));
-                }
+            for (_, dtype) in dtypes.iter_mut().enumerate().filter(|&(i, _)| i != date) {
+                *dtype = DataType::Float64;
             }
+            // A column the header does not name is read only to check that it is empty.
+            let named = (header.iter().enumerate()).filter(|&(i, n)| i != date && !n.is_empty());
+            let wide = wide_ids(named, &mut rows.dictionary)
+                .map_err(|message| source.file_error(message))?;
             if wide.is_empty() {
                 return Err(source.file_error(format!(
                     "has only the date column `{}`: a wide panel needs one column per security",
@@ -461,6 +476,11 @@ fn diagnose(
     columns: &PanelColumns,
     error: &PolarsError,
 ) -> Error {
+    let expected = plan.header.len();
+    if let Some((line, fields, text)) = first_record_with_extra_fields(block, expected) {
+        let row = (first_row + line).saturating_sub(usize::from(has_header));
+        return source.row_error(row, extra_fields_message(fields, expected, &text));
+    }
     let price_columns: Vec<&str> = match columns.layout {
         PanelLayout::Long => vec![columns.price_column.as_str()],
         PanelLayout::Wide => plan.wide.iter().map(|(n, _)| n.as_str()).collect(),

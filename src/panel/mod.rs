@@ -300,6 +300,33 @@ pub(crate) fn check_label(
     ))
 }
 
+/// A wide panel's security columns as (column name, dictionary id): the id is the name without
+/// surrounding spaces, as a long panel's and the attributes' ids are read, so ` S01` in a header
+/// written `date, S01` is the security `S01`. Two columns that name one security (`S01` and
+/// ` S01`) are refused with their column numbers; an empty name is left to the caller.
+pub(crate) fn wide_ids<'a>(
+    names: impl Iterator<Item = (usize, &'a String)>,
+    dictionary: &mut rows::Dictionary,
+) -> std::result::Result<Vec<(String, u32)>, String> {
+    let mut ids: Vec<(String, u32)> = Vec::new();
+    let mut seen: std::collections::HashMap<u32, usize> = std::collections::HashMap::new();
+    for (column, name) in names {
+        check_label(name, || "the header's column name".to_string())?;
+        let id = dictionary.id(name.trim());
+        if let Some(first) = seen.insert(id, column) {
+            return Err(format!(
+                "the header names security `{}` in columns {} and {}: each column needs a \
+                 security of its own (ids are read without surrounding spaces)",
+                name.trim(),
+                first + 1,
+                column + 1
+            ));
+        }
+        ids.push((name.clone(), id));
+    }
+    Ok(ids)
+}
+
 /// A price must be a finite positive number; `what` names the column (and the security) and
 /// is only called for a bad price.
 pub(crate) fn check_price(

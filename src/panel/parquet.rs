@@ -14,7 +14,7 @@ use sha2::{Digest, Sha256};
 
 use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::{
-    check_label, layout_hint, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
+    layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
 use crate::error::{Error, Result};
 use crate::io::guard;
@@ -42,15 +42,11 @@ pub(super) fn read(
     }
     let wide: Vec<(String, u32)> = match columns.layout {
         PanelLayout::Long => Vec::new(),
-        PanelLayout::Wide => names
-            .iter()
-            .filter(|n| **n != columns.date_column)
-            .map(|n| {
-                check_label(n, || "the column name".to_string())
-                    .map_err(|message| source.file_error(message))?;
-                Ok((n.clone(), rows.dictionary.id(n)))
-            })
-            .collect::<Result<_>>()?,
+        PanelLayout::Wide => {
+            let named = names.iter().enumerate();
+            let named = named.filter(|(_, n)| **n != columns.date_column);
+            wide_ids(named, &mut rows.dictionary).map_err(|message| source.file_error(message))?
+        }
     };
     std::thread::scope(|scope| {
         let hasher = source.spawn(scope, || hash_file(source))?;
@@ -94,8 +90,20 @@ fn push_frame(
     let dates = cells(&dates);
     match columns.layout {
         PanelLayout::Long => {
-            let security = typed(source, frame, &columns.security_column, &DataType::String)?;
-            let price = typed(source, frame, &columns.price_column, &DataType::Float64)?;
+            let security = typed(
+                source,
+                frame,
+                &columns.security_column,
+                &DataType::String,
+                PanelLayout::Long,
+            )?;
+            let price = typed(
+                source,
+                frame,
+                &columns.price_column,
+                &DataType::Float64,
+                PanelLayout::Long,
+            )?;
             push_long(
                 rows,
                 &dates,
@@ -110,7 +118,7 @@ fn push_frame(
             let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
             let prices = wide
                 .iter()
-                .map(|(name, _)| typed(source, frame, name, &DataType::Float64))
+                .map(|(name, _)| typed(source, frame, name, &DataType::Float64, PanelLayout::Wide))
                 .collect::<Result<Vec<_>>>()?;
             let securities: Vec<_> = wide
                 .iter()
@@ -266,7 +274,13 @@ pub(super) fn is_text_like(dtype: &DataType) -> bool {
 }
 
 /// A column cast to `dtype`: ids to text, prices to doubles; anything else is an error.
-fn typed(source: &Source, frame: &DataFrame, name: &str, dtype: &DataType) -> Result<Column> {
+fn typed(
+    source: &Source,
+    frame: &DataFrame,
+    name: &str,
+    dtype: &DataType,
+    layout: PanelLayout,
+) -> Result<Column> {
     let column = frame
         .column(name)
         .map_err(|e| source.file_error(e.to_string()))?;
@@ -275,11 +289,13 @@ fn typed(source: &Source, frame: &DataFrame, name: &str, dtype: &DataType) -> Re
         _ => column.dtype().is_primitive_numeric(),
     };
     if !fits {
-        let hint = if dtype == &DataType::Float64 && column.dtype().is_string() {
-            " (a wide panel holds only prices beside the date column; if this file has one row \
-             per date and security, set panel.layout = \"long\")"
-        } else {
-            ""
+        let hint = match layout {
+            _ if dtype != &DataType::Float64 || !column.dtype().is_string() => "",
+            PanelLayout::Wide => {
+                " (a wide panel holds only prices beside the date column; if this file has one \
+                 row per date and security, set panel.layout = \"long\")"
+            }
+            PanelLayout::Long => " (a Parquet panel stores its prices as numbers, not as text)",
         };
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not {}{hint}",
@@ -317,6 +333,7 @@ pub(super) fn duplicate_error(
                 frame,
                 &columns.security_column,
                 &DataType::String,
+                PanelLayout::Long,
             )?),
             PanelLayout::Wide => None,
         };

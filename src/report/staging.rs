@@ -33,7 +33,20 @@ pub fn write_outputs(
     files: &[(String, Vec<u8>)],
     reads: &[FileRead],
 ) -> Result<Vec<PathBuf>> {
-    let stage = Stage::begin(dir, reads)?;
+    Ok(write_outputs_replacing(dir, files, reads, &[])?.0)
+}
+
+/// [`write_outputs`] for a command some of whose files are optional: each name in `optional`
+/// that this group does not write but an earlier group left in `dir` is taken away with the same
+/// commit ([`Stage::retire`]), so the folder holds one run's outputs. Returns the paths written
+/// and the names taken away.
+pub fn write_outputs_replacing(
+    dir: &Path,
+    files: &[(String, Vec<u8>)],
+    reads: &[FileRead],
+    optional: &[&str],
+) -> Result<(Vec<PathBuf>, Vec<String>)> {
+    let mut stage = Stage::begin(dir, reads)?;
     for (name, _) in files {
         stage.check_target(name)?;
     }
@@ -41,7 +54,13 @@ pub fn write_outputs(
         stage.add(name, bytes)?;
     }
     let names: Vec<String> = files.iter().map(|(name, _)| name.clone()).collect();
-    stage.commit(&names)
+    let stale: Vec<String> = (optional.iter().map(|name| name.to_string()))
+        .filter(|name| !names.contains(name) && dir.join(name).is_file())
+        .collect();
+    for name in &stale {
+        stage.retire(name);
+    }
+    Ok((stage.commit(&names)?, stale))
 }
 
 /// A staged file's flush, on a thread of its own (`None`: flushed when it was written).

@@ -20,14 +20,19 @@ use crate::universe::industries::{IndustryResult, Summary};
 use crate::universe::securities::SecurityResult;
 use crate::universe::UniverseResult;
 
+/// The files a run writes only when asked for (`universe.rolling`).
+const OPTIONAL_OUTPUTS: [&str; 2] = ["rolling.csv", "rolling.parquet"];
+
 /// Renders every output, then writes them all into `dir` as one group (never over a file in
-/// `reads`, nothing written when anything fails; see `staging`).
+/// `reads`, nothing written when anything fails; see `staging`). An earlier run's rolling
+/// tables that this run does not write are taken away with the same commit, so the folder
+/// holds one run's outputs. Returns the paths written and the names taken away.
 pub fn write_outputs(
     dir: &Path,
     result: &UniverseResult,
     reads: &[super::staging::FileRead],
-) -> Result<Vec<PathBuf>> {
-    super::staging::write_outputs(dir, &render(result)?, reads)
+) -> Result<(Vec<PathBuf>, Vec<String>)> {
+    super::staging::write_outputs_replacing(dir, &render(result)?, reads, &OPTIONAL_OUTPUTS)
 }
 
 /// Counts by name, those above zero, as `name n, name n` (empty when none is).
