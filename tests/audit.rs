@@ -168,6 +168,74 @@ fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_change
     );
 }
 
+// A claim that is the WACC of an ERP on implied's scan (5% is 16 of the 64 steps over the
+// default 0–20%) must give that ERP back: the inverse of a function at a point of its own
+// (identity). The `--set` form is printed with every digit, so the round trip is exact.
+#[test]
+fn implied_returns_a_scan_value_that_meets_the_claim_exactly() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let at_five = run_case(
+        &case,
+        &dir.path().join("erp5"),
+        &["--set", "market.equity_risk_premium=0.05"],
+    );
+    let claimed = number(&at_five, "wacc");
+    let output = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        &claimed.to_string(),
+        "--solve",
+        "erp",
+    ]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    assert_eq!(exact_line(&report, "market.equity_risk_premium="), "0.05");
+}
+
+// A target D/E or ERP the case accepts always has its memo grid: the default
+// columns run from 0 to twice the target in quarters, capped at the limit, so a target of 6
+// gives 0, 2.5, 5, 7.5 and 10 rather than a refused column of 12 that stopped the run.
+#[test]
+fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
+    let (dir, case_dir) = demo_copy();
+    let result = run_case(
+        &case_dir.join("case.toml"),
+        &dir.path().join("out"),
+        &["--set", "target.debt_to_equity=6"],
+    );
+    let columns = &result["sensitivity"]["columns"];
+    assert_eq!(columns["key"], "target.debt_to_equity");
+    let values: Vec<f64> = (columns["values"].as_array().unwrap().iter())
+        .map(|v| v.as_f64().unwrap())
+        .collect();
+    assert_eq!(values, [0.0, 2.5, 5.0, 7.5, 10.0]);
+    // An ERP of 0.999 (accepted: [−0.5, 1)) keeps its rows below 1: 0.989, 0.994 and 0.999
+    // (the steps are rounded to 12 decimals); 1.004 and 1.009 are left off, not refused.
+    let result = run_case(
+        &case_dir.join("case.toml"),
+        &dir.path().join("erp"),
+        &["--set", "market.equity_risk_premium=0.999"],
+    );
+    let rows: Vec<f64> = (result["sensitivity"]["rows"]["values"]
+        .as_array()
+        .unwrap()
+        .iter())
+    .map(|v| v.as_f64().unwrap())
+    .collect();
+    assert_eq!(rows, [0.989, 0.994, 0.999]);
+}
+
+/// The relevered beta `hurdle implied --solve beta` prints after `exact: `.
+fn exact_beta(report: &str) -> f64 {
+    let line = exact_line(report, "");
+    let value = line.split(" (the relevered beta").next().unwrap();
+    value
+        .parse()
+        .unwrap_or_else(|_| panic!("no beta in `exact: {line}`"))
+}
+
 /// What follows `exact: {prefix}` in the output of `hurdle implied`.
 fn exact_line<'a>(report: &'a str, prefix: &str) -> &'a str {
     report
@@ -217,7 +285,7 @@ fn implied_values_reproduce_the_claimed_wacc() {
     let base = run_case(Path::new(case), &dir.path().join("base"), &[]);
     let output = hurdle(&["implied", case, "--wacc", "0.076", "--solve", "beta"]);
     let report = text(&output);
-    let beta: f64 = exact_line(&report, "relevered beta=").parse().unwrap();
+    let beta = exact_beta(&report);
     let wacc = number(&base, "weights.equity")
         * (number(&base, "risk_free_rate")
             + beta * number(&base, "equity_risk_premium")
@@ -642,7 +710,7 @@ fn implied_beta_counts_preferred_equity_and_leases() {
     let output = hurdle(&arguments);
     let report = text(&output);
     assert_eq!(output.status.code(), Some(0), "{report}");
-    let beta: f64 = exact_line(&report, "relevered beta=").parse().unwrap();
+    let beta = exact_beta(&report);
     let tax = number(&base, "target.tax_rate");
     let wacc = number(&base, "weights.equity")
         * (number(&base, "risk_free_rate")

@@ -1468,6 +1468,25 @@ fn case_files() -> Vec<Bad> {
             ["run", "{case}", "--out", "{out}"],
             ["uncertainty.equity_risk_premium", "0.07"]
         ),
+        // Each end of a range is a rate the ERP itself may take, [−0.5, 1): 4.5 is a
+        // percentage typed for 0.045.
+        bad!(
+            "uncertainty range in percent",
+            |s| s.edit_case("seed = 1", "seed = 1\nequity_risk_premium = [4.5, 6.0]"),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "uncertainty.equity_risk_premium = 4.5",
+                "[-0.5, 1)",
+                "0.045 for 4.5%",
+                "low end"
+            ]
+        ),
+        bad!(
+            "uncertainty risk-free range below the bound",
+            |s| s.edit_case("seed = 1", "seed = 1\nrisk_free_rate = [-0.6, 0.05]"),
+            ["run", "{case}", "--out", "{out}"],
+            ["uncertainty.risk_free_rate = -0.6", "[-0.5, 1)"]
+        ),
         bad!(
             "too few minimum observations",
             |s| s.edit_case("min_observations = 36", "min_observations = 2"),
@@ -1879,22 +1898,6 @@ fn overrides() -> Vec<Bad> {
             ["betas", "{case}", "--set", "peer.1.equity_value=1e-320"],
             ["peer.1", "1e-320"]
         ),
-        bad!(
-            "--set ERP so the memo grid leaves its range",
-            nothing,
-            [
-                "run",
-                "{case}",
-                "--out",
-                "{out}",
-                "--set",
-                "market.equity_risk_premium=0.999"
-            ],
-            [
-                "grid cell market.equity_risk_premium=1.004",
-                "market.equity_risk_premium = 1.004"
-            ]
-        ),
     ]
 }
 
@@ -2090,6 +2093,14 @@ fn command_arguments() -> Vec<Bad> {
                 "0..20"
             ],
             ["--range 0..20", "target.debt_to_equity"]
+        ),
+        // An ERP of 1 (100%) is outside the case's [−0.5, 1): a range reaching it is refused
+        // rather than searched with one value the case refuses.
+        bad!(
+            "implied: ERP range reaching 1",
+            nothing,
+            ["implied", "{case}", "--wacc", "0.09", "--solve", "erp", "--range", "0..1"],
+            ["--range 0..1", "market.equity_risk_premium", "[-0.5, 1)"]
         ),
         bad!(
             "implied: cost of debt from a table",

@@ -87,14 +87,17 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
 
 /// The memo's default axes: the equity risk premium ±1 point in half points (rows), against the
 /// target ratio the case gives from 0 to twice its value in quarters (0 to 1 for a D/E of 0;
-/// a debt-to-capital at most 0.9). A target taken from the peers or the subject has no ratio to
-/// vary, so the columns are then the risk-free rate ±1 point.
+/// a D/E at most the case's limit, a debt-to-capital at most 0.9). A target taken from the peers
+/// or the subject has no ratio to vary, so the columns are then the risk-free rate ±1 point.
+/// A rate's step the case would refuse (an ERP of 0.995 + 0.01) is left off its axis, so a case
+/// the valuation accepts always has its grid.
 pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
     let round = |v: f64| (v * 1e12).round() / 1e12;
     let around = |key: &str, centre: f64| Axis {
         key: key.into(),
         values: (-2..=2)
             .map(|i| round(centre + 0.005 * f64::from(i)))
+            .filter(|&v| crate::valuation::sanity::accepts(key, v))
             .collect(),
     };
     let from_zero = |key: &str, span: f64| Axis {
@@ -109,7 +112,11 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
     let columns = match (target.source, target.debt_to_equity, target.debt_to_capital) {
         (TargetSource::Explicit, Some(de), _) => from_zero(
             "target.debt_to_equity",
-            if de > 0.0 { 2.0 * de } else { 1.0 },
+            if de > 0.0 {
+                (2.0 * de).min(crate::case::sanity::MAX_DEBT_TO_EQUITY)
+            } else {
+                1.0
+            },
         ),
         (TargetSource::Explicit, None, Some(dc)) => from_zero(
             "target.debt_to_capital",

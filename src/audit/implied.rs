@@ -69,6 +69,13 @@ impl Target {
     }
 }
 
+/// How close the WACC at a solution must come to the claim for the claim to count as
+/// reproduced: bisection on a continuous WACC ends on adjacent doubles, where the gap is the
+/// slope times an ulp (about 1e-15 for every key's slope); a WACC that jumps across the claim
+/// (a spread table's rating step, for one) leaves a gap of the jump's size. 1e-10 (a millionth
+/// of a basis point) lies far between the two.
+pub const REPRODUCED: f64 = 1e-10;
+
 /// The answer to "which value gives this WACC".
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Implied {
@@ -97,6 +104,15 @@ pub struct Implied {
     pub refused_at_edge: Option<(f64, String)>,
     /// How many values the scan evaluated (its intervals plus one).
     pub searched: usize,
+}
+
+impl Implied {
+    /// Whether the solution's WACC equals the claim (within [`REPRODUCED`]); `false` when no
+    /// value was found or the WACC jumps across the claim at the value found.
+    pub fn reproduces(&self) -> bool {
+        self.achieved_wacc
+            .is_some_and(|wacc| (wacc - self.claimed_wacc).abs() <= REPRODUCED)
+    }
 }
 
 /// Solves for `target` so that the WACC equals `claimed`.
@@ -277,7 +293,11 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
     let first = (0..INTERVALS)
         .find(|&i| crossing(i))
         .and_then(|i| gaps[i].map(|gap| (i, gap)));
-    if let Some((i, mut gap_a)) = first {
+    if let Some((i, 0.0)) = first {
+        // The claim is the WACC at a scan value itself; bisecting from a zero gap would walk
+        // away from it.
+        value = Some(xs[i]);
+    } else if let Some((i, mut gap_a)) = first {
         let (mut a, mut b) = (xs[i], xs[i + 1]);
         for _ in 0..200 {
             let mid = 0.5 * (a + b);
@@ -351,5 +371,30 @@ mod tests {
         // Every value refused: the first refusal is the error.
         let message = solve(&wacc_at, 0.0, 0.2, 0.1).err().unwrap().to_string();
         assert_eq!(message, "regression: refused at 0");
+    }
+
+    // A claim that is the WACC at a scan value (x = 32/64 = 0.5 of the 65 values over [0, 1])
+    // is answered with that value exactly, not walked away from.
+    #[test]
+    fn a_claim_met_at_a_scan_value_is_that_value() {
+        let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + 0.5 * x) };
+        let claimed = wacc_at(0.5).unwrap();
+        let scan = solve(&wacc_at, 0.0, 1.0, claimed).unwrap();
+        assert_eq!(scan.value, Some(0.5));
+        assert_eq!(scan.crossings, 1);
+    }
+
+    // A WACC that jumps across the claim (0.25 below x = 0.4, 0.5 above; the claim 0.3 in the
+    // gap) gives the jump's place, where the WACC is a whole step away from the claim: the
+    // answer must not count as reproduced.
+    #[test]
+    fn a_jump_across_the_claim_is_not_a_reproduction() {
+        let wacc_at = |x: f64| -> Result<f64> { Ok(if x < 0.4 { 0.25 } else { 0.5 }) };
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.3).unwrap();
+        let value = scan.value.unwrap();
+        // Bisection closes on the step to adjacent doubles.
+        assert!((value - 0.4).abs() < 1e-15, "{value}");
+        let achieved = wacc_at(value).unwrap();
+        assert!((achieved - 0.3).abs() > REPRODUCED);
     }
 }

@@ -341,6 +341,12 @@ fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
                     "{key} = [{low}, {high}] is not a range [low, high] with low <= high"
                 ));
             }
+            // Each end is a rate the case itself would accept (a percentage typed for a decimal
+            // is refused here, not after 10,000 draws).
+            for (end, value) in [("low", low), ("high", high)] {
+                rate(key, value, -0.5, 1.0)
+                    .map_err(|message| format!("{message} (the range's {end} end)"))?;
+            }
         }
     }
     let credit_spread = case.leverage.debt_beta_source == DebtBetaSource::CreditSpread;

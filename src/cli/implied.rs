@@ -85,6 +85,18 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         }
     };
     match (r.value, r.achieved_wacc) {
+        (Some(value), Some(achieved)) if !r.reproduces() => {
+            println!(
+                "no value of {} reproduces it exactly: the WACC jumps across the claim at {} = {} \
+                 (WACC there {})",
+                r.key,
+                r.key,
+                show(value),
+                percent(achieved, 6)
+            );
+            refusals();
+            Ok(ExitCode::from(1))
+        }
         (Some(value), Some(achieved)) => {
             println!(
                 "{} = {} reproduces it (WACC {})",
@@ -92,7 +104,13 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                 show(value),
                 percent(achieved, 6)
             );
-            println!("  exact: {}={value}", r.key);
+            match r.target {
+                // The relevered beta is the build-up's, not a case key `--set` could take.
+                Target::Beta => {
+                    println!("  exact: {value} (the relevered beta; not a --set key)")
+                }
+                _ => println!("  exact: {}={value}", r.key),
+            }
             if r.crossings > 1 {
                 println!(
                     "  note: {} intervals of the range cross the claim; this is the lowest value",

@@ -226,20 +226,35 @@ pub fn check_axes(rows_key: &str, columns_key: &str) -> Result<()> {
     Ok(())
 }
 
+/// The values the case accepts for a key `implied` solves for or the grid varies by default:
+/// `(least, most, most_included)`. Rates are decimals in [−0.5, 1) and a pre-tax cost of debt
+/// in [0, 1), as the case's validation takes them; a D/E up to [`MAX_DEBT_TO_EQUITY`]; the
+/// relevered beta in [−5, 10].
+fn accepted_range(key: &str) -> (f64, f64, bool) {
+    match key {
+        "debt.cost_pre_tax" => (0.0, 1.0, false),
+        "target.debt_to_equity" => (0.0, MAX_DEBT_TO_EQUITY, true),
+        "target.debt_to_capital" => (0.0, MAX_DEBT_TO_EQUITY / (1.0 + MAX_DEBT_TO_EQUITY), true),
+        "relevered beta" => (-5.0, 10.0, true),
+        _ => (-0.5, 1.0, false),
+    }
+}
+
+/// Whether the case accepts `value` for `key` (see [`accepted_range`]).
+pub fn accepts(key: &str, value: f64) -> bool {
+    let (least, most, most_included) = accepted_range(key);
+    value >= least && (value < most || (most_included && value == most))
+}
+
 /// The range `implied` searches for the case key `key` must lie inside the values the case
-/// accepts for that key (for the relevered beta, [−5, 10]).
+/// accepts for that key, so that every value searched is a case the valuation could take.
 pub fn check_search_range(key: &str, low: f64, high: f64) -> Result<()> {
-    let (least, most) = match key {
-        "debt.cost_pre_tax" => (0.0, 1.0),
-        "target.debt_to_equity" => (0.0, MAX_DEBT_TO_EQUITY),
-        "target.debt_to_capital" => (0.0, MAX_DEBT_TO_EQUITY / (1.0 + MAX_DEBT_TO_EQUITY)),
-        "relevered beta" => (-5.0, 10.0),
-        _ => (-0.5, 1.0),
-    };
-    if low < least || high > most {
+    if !(accepts(key, low) && accepts(key, high)) {
+        let (least, most, most_included) = accepted_range(key);
+        let close = if most_included { "]" } else { ")" };
         return Err(Error::Argument {
             option: format!("search range {}..{}", show(low), show(high)),
-            message: format!("{key} can only lie in [{least}, {most}]; search inside it"),
+            message: format!("{key} can only lie in [{least}, {most}{close}; search inside it"),
         });
     }
     Ok(())
