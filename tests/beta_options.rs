@@ -24,6 +24,21 @@ fn run_with<S: AsRef<str> + std::fmt::Debug>(out: &Path, settings: &[S]) -> serd
     serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
 }
 
+/// `hurdle rolling` on the demo case with `settings`, into `out`; returns its rolling.csv.
+fn rolling_csv(out: &Path, settings: &[&str]) -> String {
+    let mut args = vec!["rolling", DEMO_CASE, "--out", out.to_str().unwrap()];
+    for s in settings {
+        args.extend_from_slice(&["--set", s]);
+    }
+    let output = hurdle(&args);
+    assert!(
+        output.status.success(),
+        "{settings:?}: {}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    std::fs::read_to_string(out.join("rolling.csv")).unwrap()
+}
+
 /// Each method × each kind of standard error, plus leads, an explicit Newey–West lag count and
 /// both Vasicek priors: numpy/scipy agree with every figure.
 #[test]
@@ -333,6 +348,39 @@ fn rolling_betas_match_a_fresh_fit_of_every_window() {
     rejects(&["beta.rolling_step=0"], &["beta.rolling_step = 0"]);
 }
 
+// Exactly two rolling windows (59 of the 60 periods, one period apart) still give a run: the
+// stability trend is the slope of the line through the two betas (algebra: the least-squares
+// line through two points), per year of 365.25 days between the windows' ends, as README
+// defines it; the betas and dates are read from `hurdle rolling`'s rolling.csv. 1e-12 relative:
+// one division over the same two doubles.
+#[test]
+fn two_rolling_windows_give_the_line_through_them() {
+    let dir = tempfile::tempdir().unwrap();
+    let settings = ["beta.rolling_window=59", "beta.rolling_min_observations=40"];
+    let result = run_with(dir.path(), &settings);
+    let csv = rolling_csv(dir.path(), &settings);
+    let date = |text: &str| chrono::NaiveDate::parse_from_str(text, "%Y-%m-%d").unwrap();
+    for peer in result["peers"].as_array().unwrap() {
+        let name = peer["name"].as_str().unwrap();
+        let rows: Vec<Vec<&str>> = csv
+            .lines()
+            .filter(|l| l.starts_with(&format!("{name},")))
+            .map(|l| l.split(',').collect())
+            .collect();
+        assert_eq!(rows.len(), 2, "{name}");
+        let years = (date(rows[1][1]) - date(rows[0][1])).num_days() as f64 / 365.25;
+        let slope =
+            (rows[1][2].parse::<f64>().unwrap() - rows[0][2].parse::<f64>().unwrap()) / years;
+        let stability = &peer["stability"];
+        assert_eq!(stability["windows"], 2, "{name}");
+        let trend = stability["trend_per_year"].as_f64().unwrap();
+        assert!(
+            (trend - slope).abs() <= 1e-12 * slope.abs().max(1e-3),
+            "{name}: {trend} {slope}"
+        );
+    }
+}
+
 // Rolling windows follow the case's estimator and standard errors: Dimson with Newey–West
 // (two lags, a lead), Scholes–Williams with HC1 and with a fixed Newey–West lag count.
 // check_regressions.py refits every window from scratch with the same published formulas
@@ -357,17 +405,7 @@ fn rolling_betas_follow_the_case_estimator_in_every_window() {
         let mut all = settings.clone();
         all.extend(["beta.rolling_window=24", "beta.rolling_step=2"]);
         run_with(dir.path(), &all);
-        let mut args = vec!["rolling", DEMO_CASE, "--out", dir.path().to_str().unwrap()];
-        for s in &all {
-            args.extend_from_slice(&["--set", s]);
-        }
-        let output = hurdle(&args);
-        assert!(
-            output.status.success(),
-            "{}",
-            String::from_utf8_lossy(&output.stderr)
-        );
-        let csv = std::fs::read_to_string(dir.path().join("rolling.csv")).unwrap();
+        let csv = rolling_csv(dir.path(), &all);
         assert!(
             csv.lines().count() > 8 * 10,
             "{settings:?}: too few windows\n{csv}"

@@ -96,3 +96,43 @@ fn specification_rows_equal_separate_set_runs() {
         assert_eq!(number(&rerun, "wacc"), wacc, "{row}");
     }
 }
+
+// A cross-sectional Vasicek prior needs two peers with different betas (Vasicek 1973: the
+// prior is the cross-section's mean and variance). With exactly two peers aggregated the case
+// is valid, but leaving one out leaves one: that row has no WACC and says why, and the run
+// goes on (it used to stop the whole run).
+#[test]
+fn leave_one_out_of_two_vasicek_peers_has_no_wacc_and_says_why() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_demo_case(&dir.path().join("case"));
+    let out = dir.path().join("out");
+    let mut sets = vec!["--set".to_string(), "beta.adjustment=vasicek".to_string()];
+    for peer in 2..8 {
+        sets.extend(["--set".to_string(), format!("peer.{peer}.exclude=kept out")]);
+    }
+    let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+    let result = run(&dir.path().join("case/case.toml"), &out, &sets);
+    let rows = result["uncertainty"]["leave_one_out"].as_array().unwrap();
+    assert_eq!(rows.len(), 2);
+    for row in rows {
+        assert!(row["wacc"].is_null(), "{row}");
+        assert!(row["reason"]
+            .as_str()
+            .unwrap()
+            .contains("Vasicek prior needs two"));
+    }
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(memo.contains("n/a (one peer left: a cross-sectional Vasicek prior needs two"));
+    // The demo's own receipt has no `reason` in its rows (a WACC in each).
+    let plain = run(
+        &dir.path().join("case/case.toml"),
+        &dir.path().join("plain"),
+        &[],
+    );
+    for row in plain["uncertainty"]["leave_one_out"].as_array().unwrap() {
+        assert!(
+            row["wacc"].is_number() && row.get("reason").is_none(),
+            "{row}"
+        );
+    }
+}

@@ -292,9 +292,19 @@ fn leave_one_out(
         }
         let mut without = peers.to_vec();
         without[i].included = false;
-        let wacc = match chain::wacc_only(base, &without) {
-            Ok(wacc) => Some(wacc),
-            Err(chain::ChainError::NoPeerIncluded) => None,
+        let (wacc, reason) = match chain::wacc_only(base, &without) {
+            Ok(wacc) => (Some(wacc), None),
+            Err(chain::ChainError::NoPeerIncluded) => (None, None),
+            // A cross-sectional Vasicek prior from the one peer left (the case has two): that
+            // row has no WACC, as a peer-set draw of one repeated peer has none.
+            Err(chain::ChainError::Adjustment(_)) => (
+                None,
+                Some(
+                    "one peer left: a cross-sectional Vasicek prior needs two with different \
+                     betas"
+                        .to_string(),
+                ),
+            ),
             Err(e) => return Err(chain_error(case, e)),
         };
         let change = wacc.map(|w| w - point);
@@ -303,6 +313,7 @@ fn leave_one_out(
             wacc,
             change_bp: change.map(|c| c * 1e4),
             influential: change.is_some_and(|c| c.abs() > threshold),
+            reason,
         });
     }
     Ok(rows)

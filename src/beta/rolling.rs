@@ -193,7 +193,12 @@ pub fn stability(points: &[RollingPoint], window_periods: u32) -> Result<Option<
         .map(|p| (p.window_end - origin).num_days() as f64 / 365.25)
         .collect();
     let betas: Vec<f64> = points.iter().map(|p| p.beta).collect();
-    let fit = ols(&design_with_intercept(&[&years]), &betas, true)?;
+    let trend_per_year = match (years.as_slice(), betas.as_slice()) {
+        // The least-squares line through two points is the line through them (the regression
+        // would have no residual degree of freedom, which `ols` refuses).
+        ([t1, t2], [b1, b2]) => (b2 - b1) / (t2 - t1),
+        _ => ols(&design_with_intercept(&[&years]), &betas, true)?.coefficients[1],
+    };
     Ok(Some(Stability {
         windows: points.len(),
         window_periods,
@@ -201,7 +206,7 @@ pub fn stability(points: &[RollingPoint], window_periods: u32) -> Result<Option<
         max: betas.iter().copied().fold(f64::NEG_INFINITY, f64::max),
         first: betas[0],
         last: betas[betas.len() - 1],
-        trend_per_year: fit.coefficients[1],
+        trend_per_year,
     }))
 }
 
@@ -416,5 +421,12 @@ mod tests {
         assert_eq!((s.min, s.max, s.windows), (1.0, 1.4, 5));
         // 0.1 per month is about 1.2 per year (months of unequal length: within 5%).
         assert!((s.trend_per_year - 1.2).abs() < 0.06, "{s:?}");
+        // Two windows: the line through both points (algebra). 2020-01-31 to 2020-02-29 is 29
+        // days, so the trend is 0.1 / (29 / 365.25) per year; one rounding step apart at most.
+        let s = stability(&points[..2], 12).unwrap().unwrap();
+        assert_eq!((s.windows, s.first, s.last), (2, 1.0, 1.1));
+        let expected = (1.1 - 1.0) / (29.0 / 365.25);
+        assert!((s.trend_per_year - expected).abs() < 1e-14, "{s:?}");
+        assert!(stability(&points[..1], 12).unwrap().is_none());
     }
 }

@@ -119,6 +119,10 @@ pub struct LeaveOneOut {
     pub change_bp: Option<f64>,
     /// Whether |change| is above `influence_threshold`.
     pub influential: bool,
+    /// Why `wacc` is `null` when a peer is left (absent otherwise, and when no peer is left):
+    /// a cross-sectional Vasicek prior from the one peer that remains.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
 }
 
 /// The WACC under one alternative specification of the return window.
