@@ -800,6 +800,43 @@ fn spread_tables() -> Vec<Bad> {
             ],
             [RATING, "{line}", "abc"]
         ),
+        // A decimal comma splits the spread in two cells; it used to be read as a spread of 0.
+        bad!(
+            "spread with a decimal comma",
+            |s| {
+                let line = line_starting(s, RATING, "BBB,");
+                note("line", format!("line {line}"));
+                s.set_line(RATING, line, "BBB,0,0184")
+            },
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating"
+            ],
+            [
+                RATING,
+                "{line}",
+                "`BBB,0,0184` has 3 fields but the header has 2"
+            ]
+        ),
+        // A quote inside an unquoted cell of a column hurdle does not read is text to the CSV
+        // reader; a later decimal comma must still be caught as an extra field.
+        bad!(
+            "price after a stray quote, with a decimal comma",
+            |s| {
+                s.map_lines(PEER, |n, l| match n {
+                    1 => format!("{l},note"),
+                    n if n == LINE - 1 => format!("{l},said 5\" pipe"),
+                    n if n == LINE => format!("{},ok", l.replacen('.', ",", 1)),
+                    _ => format!("{l},ok"),
+                })
+            },
+            ["betas", "{case}"],
+            [PEER, "line 848", "has 4 fields but the header has 3"]
+        ),
         bad!(
             "spread column named twice",
             |s| {

@@ -312,6 +312,75 @@ impl WideCopy {
     }
 }
 
+// A yield of 1 or more in a wide table's yield column is a percentage typed for a decimal,
+// refused as in a yield file of its own (README, sanity rules): 2.576 is 257.6% a year.
+#[test]
+fn a_percent_yield_in_a_wide_table_is_named() {
+    let copy = WideCopy::new();
+    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
+    let line = csv.lines().nth(9).unwrap().to_string();
+    let mut cells: Vec<&str> = line.split(',').collect();
+    cells[2] = "2.576";
+    fs::write(
+        copy.path("data/prices.csv"),
+        csv.replacen(&line, &cells.join(","), 1),
+    )
+    .unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(
+        stderr.contains("line 10, column `Risk-free yield`"),
+        "{stderr}"
+    );
+    assert!(stderr.contains("257.6% a year"), "{stderr}");
+}
+
+// A decimal comma in a wide CSV table is named by its line, as in a price file of its own
+// (the same shape check), not left to the CSV reader's schema message.
+#[test]
+fn a_decimal_comma_in_a_wide_csv_is_named_by_line() {
+    let copy = WideCopy::new();
+    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
+    let line = csv.lines().nth(9).unwrap().to_string();
+    let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
+    cells[3] = cells[3].replacen('.', ",", 1);
+    fs::write(
+        copy.path("data/prices.csv"),
+        csv.replacen(&line, &cells.join(","), 1),
+    )
+    .unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(stderr.contains("prices.csv: line 10: `"), "{stderr}");
+    assert!(stderr.contains("fields but the header has"), "{stderr}");
+}
+
+// A formula saved without its calculated value (as openpyxl writes one) has no value to read;
+// it is refused naming its cell, not read as a missing price. openpyxl stores a formula it
+// writes without a cached result (its documented behaviour: it never evaluates formulas).
+#[test]
+fn a_formula_without_a_saved_value_is_named() {
+    let copy = WideCopy::new();
+    let book = copy.path("data/prices.xlsx");
+    let script = "import sys, openpyxl\n\
+                  book = openpyxl.load_workbook(sys.argv[1])\n\
+                  sheet = book['Prices']\n\
+                  sheet['D8'] = '=41.25'\n\
+                  book.save(sys.argv[1])\n";
+    let python = std::process::Command::new("python3")
+        .args(["-c", script, book.to_str().unwrap()])
+        .output()
+        .expect("python3 with openpyxl (python3 -m pip install openpyxl)");
+    assert!(
+        python.status.success(),
+        "{}",
+        String::from_utf8_lossy(&python.stderr)
+    );
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(
+        stderr.contains("sheet \"Prices\", cell D8 holds the formula `=41.25` with no saved value"),
+        "{stderr}"
+    );
+}
+
 #[test]
 fn a_sheet_that_is_not_there_lists_the_sheets() {
     let copy = WideCopy::new();

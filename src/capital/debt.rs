@@ -280,7 +280,8 @@ mod tests {
         .unwrap();
         let table = read_spread_table("ratings.toml", &path, false).unwrap();
         let row = rating_row(&table, "BBB").unwrap();
-        assert_eq!((row.spread, row.line), (0.016, 2));
+        // Each row's line is where its `[[row]]` starts: BBB's is the file's fifth line.
+        assert_eq!((row.spread, row.line), (0.016, 5));
         std::fs::write(
             &path,
             "[[row]]\nrating = \"A\"\nspread = 0.011\n[[row]]\nrating = \"A\"\nspread = 0.02\n",
@@ -289,6 +290,6 @@ mod tests {
         let err = read_spread_table("ratings.toml", &path, false)
             .unwrap_err()
             .to_string();
-        assert!(err.contains("repeats line 1"), "{err}");
+        assert!(err.contains("line 4: rating \"A\" repeats line 1"), "{err}");
     }
 }

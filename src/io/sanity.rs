@@ -64,12 +64,15 @@ pub fn first_record_with_extra_fields(
     None
 }
 
-/// The message for a record [`first_record_with_extra_fields`] found.
+/// The message for a record with more fields than the header (its text shortened to 80
+/// characters): one wording for price and yield files, wide tables, panels, attributes and
+/// spread tables.
 pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> String {
+    let shown: String = text.trim().chars().take(80).collect();
     format!(
-        "{fields} fields where the header has {expected} (a decimal comma, or a comma in text \
-         that is not in quotes?): \"{}\"",
-        text.trim()
+        "`{shown}` has {fields} fields but the header has {expected}; numbers take a decimal \
+         point and no thousands separator (43.7678, not 43,7678), and text holding a comma must \
+         be quoted"
     )
 }
 
@@ -141,14 +144,10 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
                 header_fields = Some(fields);
             }
             Some(expected) if fields > expected => {
-                let shown: String = String::from_utf8_lossy(raw).chars().take(80).collect();
+                let shown = String::from_utf8_lossy(raw);
                 return Err(row_error(
                     record_line,
-                    format!(
-                        "`{shown}` has {fields} fields but the header (line 1) has {expected}; \
-                         numbers take a decimal point and no thousands separator (43.7678, not \
-                         43,7678), and text holding a comma must be quoted"
-                    ),
+                    extra_fields_message(fields, expected, &shown),
                 ));
             }
             Some(_) => {}
@@ -221,15 +220,26 @@ pub fn check_series_values(
             file: file.to_path_buf(),
             line: i + 2,
             message: format!(
-                "`{value_column}` = {} on {} is {}% a year: yields are decimals (0.038 for 3.8%), \
-                 and this looks like a percentage; divide the column by 100",
+                "`{value_column}` = {} on {} {}",
                 show(series.values[i]),
                 series.dates[i],
-                show(series.values[i] * 100.0)
+                percent_yield(series.values[i]).unwrap_or_default()
             ),
         }),
         None => Ok(()),
     }
+}
+
+/// Why a yield of 1 (100% a year) or more is refused: it is a percentage typed for a decimal.
+/// `None` for a yield below 1. One rule for yield files and wide tables' yield columns.
+pub fn percent_yield(value: f64) -> Option<String> {
+    (value >= 1.0).then(|| {
+        format!(
+            "is {}% a year: yields are decimals (0.038 for 3.8%), and this looks like a \
+             percentage; divide the column by 100",
+            show(value * 100.0)
+        )
+    })
 }
 
 /// Whether a name, id or label is one line of text: no line break or other control character

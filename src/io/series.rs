@@ -193,6 +193,18 @@ pub fn parse_series(
             return Err(blank_row(blank));
         }
         let line = start.line() as usize;
+        // The shape check reads a quote anywhere as opening a field; the csv crate reads a quote
+        // inside a field as text, so a record can still come out longer than the header.
+        if record.len() > header.len() {
+            let text: Vec<&str> = record.iter().collect();
+            let message =
+                super::sanity::extra_fields_message(record.len(), header.len(), &text.join(","));
+            return Err(Error::DataRow {
+                file: file.to_path_buf(),
+                line,
+                message,
+            });
+        }
         let cell = |at: usize| record.get(at).unwrap_or("").trim();
         let (date, value) = parse_row(
             cell(date_at),

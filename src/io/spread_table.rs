@@ -19,8 +19,8 @@ pub struct SpreadRow {
     pub rating: String,
     /// Spread over the risk-free rate (annual, decimal).
     pub spread: f64,
-    /// 1-based line of the row in its file (CSV: counting the header as line 1; TOML: the
-    /// row's position).
+    /// 1-based line of the row in its file (CSV: the record's line, the file's first line
+    /// being 1; TOML: the line where the row's table starts).
     #[serde(skip_deserializing)]
     pub line: usize,
 }
@@ -40,7 +40,7 @@ pub struct SpreadTable {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct TomlTable {
-    row: Vec<SpreadRow>,
+    row: Vec<toml::Spanned<SpreadRow>>,
 }
 
 /// Reads a spread table (`.toml`, else CSV). Coverage tables must give `min_coverage` on every
@@ -69,12 +69,17 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
     {
         let table: TomlTable =
             toml::from_str(&text).map_err(|e| file_error(crate::error::toml_error(&e, &text)))?;
-        // TOML rows have no line of their own; number them in order.
+        // Each row's line: where its table (or inline table) starts in the file.
         table
             .row
             .into_iter()
-            .enumerate()
-            .map(|(i, row)| SpreadRow { line: i + 1, ..row })
+            .map(|row| {
+                let line = text[..row.span().start].matches('\n').count() + 1;
+                SpreadRow {
+                    line,
+                    ..row.into_inner()
+                }
+            })
             .collect()
     } else {
         parse_csv_table(&text, path, coverage)?
@@ -128,16 +133,50 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
 }
 
 fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<SpreadRow>> {
-    let mut lines = text
-        .lines()
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let bytes = text.as_bytes();
+    if let Some(at) =
+        (0..bytes.len()).find(|&i| bytes[i] == b'\r' && bytes.get(i + 1) != Some(&b'\n'))
+    {
+        let line_start = bytes[..at]
+            .iter()
+            .rposition(|&b| b == b'\n')
+            .map_or(0, |i| i + 1);
+        return Err(Error::DataRow {
+            file: path.to_path_buf(),
+            line: bytes[..at].iter().filter(|&&b| b == b'\n').count() + 1,
+            message: super::sanity::lone_carriage_return(at - line_start + 1),
+        });
+    }
+    // Line by line (a spread table's cells hold no line breaks), so each row keeps its line
+    // whatever comments and blank lines come before it; the csv crate splits each line's cells
+    // (quoted cells, a trailing carriage return). Blank lines and lines starting with `#` are
+    // skipped.
+    let mut records = text
+        .split('\n')
         .enumerate()
         .map(|(i, line)| (i + 1, line.trim()))
-        .filter(|(_, line)| !line.is_empty() && !line.starts_with('#'));
-    let (header_line, header) = lines.next().ok_or_else(|| Error::DataFile {
+        .filter(|(_, line)| !line.is_empty() && !line.starts_with('#'))
+        .map(|(line, text)| {
+            let mut reader = csv::ReaderBuilder::new()
+                .has_headers(false)
+                .trim(csv::Trim::All)
+                .from_reader(text.as_bytes());
+            match reader.records().next() {
+                Some(Ok(record)) => Ok((line, record)),
+                Some(Err(e)) => Err(Error::DataRow {
+                    file: path.to_path_buf(),
+                    line,
+                    message: format!("not a readable CSV row: {e}"),
+                }),
+                None => Ok((line, csv::StringRecord::new())),
+            }
+        });
+    let (header_line, header) = records.next().transpose()?.ok_or_else(|| Error::DataFile {
         file: path.to_path_buf(),
         message: "the table is empty".into(),
     })?;
-    let columns: Vec<&str> = header.split(',').map(str::trim).collect();
+    let columns: Vec<&str> = header.iter().collect();
     let find = |name: &str| {
         let header_error = |message: String| Error::DataRow {
             file: path.to_path_buf(),
@@ -160,17 +199,29 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
     } else {
         None
     };
-    lines
-        .map(|(line, text)| {
-            let cells: Vec<&str> = text.split(',').map(str::trim).collect();
+    records
+        .map(|record| {
+            let (line, record) = record?;
             let row_error = |message: String| Error::DataRow {
                 file: path.to_path_buf(),
                 line,
                 message,
             };
+            if record.len() > columns.len() {
+                let text: Vec<&str> = record.iter().collect();
+                return Err(row_error(super::sanity::extra_fields_message(
+                    record.len(),
+                    columns.len(),
+                    &text.join(","),
+                )));
+            }
             let cell = |i: usize| {
-                cells.get(i).copied().ok_or_else(|| {
-                    row_error(format!("{} cells, expected {}", cells.len(), columns.len()))
+                record.get(i).ok_or_else(|| {
+                    row_error(format!(
+                        "{} cells, expected {}",
+                        record.len(),
+                        columns.len()
+                    ))
                 })
             };
             let number = |i: usize| {

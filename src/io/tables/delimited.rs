@@ -15,6 +15,18 @@ use crate::io::parquet_types::unreadable_column;
 
 /// Reads CSV bytes: the first line is the header.
 pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
+    // The shape first, as for a price file of its own: text that is not UTF-8, a row with more
+    // fields than the header (a decimal comma) and lines ending in a carriage return alone are
+    // named by line here, not left to polars' message. (An empty file keeps its own message.)
+    if !bytes.iter().all(u8::is_ascii_whitespace) {
+        match crate::io::sanity::check_csv_shape(std::path::Path::new(""), bytes) {
+            Ok(_) => {}
+            Err(crate::error::Error::DataRow { line, message, .. }) => {
+                return Err(format!("line {line}: {message}"))
+            }
+            Err(e) => return Err(e.to_string()),
+        }
+    }
     let frame = CsvReadOptions::default()
         .with_has_header(false)
         // Length 0 makes polars read every column as text, so parsing (and its messages) is ours.

@@ -15,7 +15,8 @@ use std::path::{Path, PathBuf};
 
 use chrono::NaiveDate;
 
-use crate::error::{Error, Result};
+use crate::error::{compact as show, Error, Result};
+use crate::io::sanity::percent_yield;
 use crate::io::series::{sha256_hex, DataFile, Series, ValueKind};
 
 pub use cells::{column_letters, Cell, Place, PlaceKind};
@@ -160,6 +161,12 @@ impl PriceTable {
                 continue;
             };
             cells::check_range(value, kind).map_err(|m| fail(format!("{}: {m}", at())))?;
+            if let Some(why) = (kind == ValueKind::Yield)
+                .then(|| percent_yield(value))
+                .flatten()
+            {
+                return Err(fail(format!("{}: {} {why}", at(), show(value))));
+            }
             dates.push(self.dates[i]);
             values.push(value);
         }

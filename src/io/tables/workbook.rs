@@ -93,6 +93,28 @@ where
     let range = workbook
         .worksheet_range(&name)
         .map_err(|e| format!("sheet \"{name}\" cannot be read: {e}"))?;
+    // A formula the workbook was saved without calculating has no stored value, and would read
+    // as an empty cell, a missing price: refused instead. (Formulas that cannot be read are left
+    // to their values.)
+    if let Ok(formulas) = workbook.worksheet_formula(&name) {
+        let uncalculated = formulas.cells().find(|&(row, column, formula)| {
+            let at = (
+                row as u32 + formulas.start().map_or(0, |s| s.0),
+                column as u32 + formulas.start().map_or(0, |s| s.1),
+            );
+            !formula.is_empty() && matches!(range.get_value(at), None | Some(Data::Empty))
+        });
+        if let Some((row, column, formula)) = uncalculated {
+            let (first_row, first_column) = formulas.start().unwrap_or((0, 0));
+            return Err(format!(
+                "sheet \"{name}\", cell {}{} holds the formula `={formula}` with no saved value \
+                 (the workbook was saved without calculating it); open it in its spreadsheet \
+                 program, let it calculate, and save it again",
+                super::cells::column_letters(first_column as usize + column),
+                first_row as usize + row + 1
+            ));
+        }
+    }
     Ok((name, range))
 }
 
