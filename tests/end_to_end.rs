@@ -168,3 +168,75 @@ fn numpy_and_scipy_agree_with_every_figure() {
     run_demo(dir.path(), &[]);
     reference_check(dir.path(), "demo case");
 }
+
+// The memo's words agree with result.json where the review found them apart:
+// - each sensitivity-grid axis value is printed as `--set` writes it (every digit, shortest
+//   round trip), so a row reads as the value result.json records and no two rows alike;
+// - a note on dropped periods lists reasons that add up to its total (arithmetic), including
+//   a lagged or led index return missing under Scholes–Williams;
+// - under Hamada with debt betas listed, the memo says Hamada uses none of them (Hamada 1972
+//   assumes riskless debt: βU = βL / (1 + (1 − t)·D/E) has no debt-beta term).
+#[test]
+fn the_memo_words_agree_with_the_figures() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &[]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let grid = &result["sensitivity"];
+    let mut printed = Vec::new();
+    for axis in ["rows", "columns"] {
+        for value in grid[axis]["values"].as_array().unwrap() {
+            let text = value.as_f64().unwrap().to_string();
+            assert!(
+                memo.contains(&format!("| {text} |")),
+                "memo lacks axis value {text}"
+            );
+            printed.push(text);
+        }
+    }
+    let rows = grid["rows"]["values"].as_array().unwrap().len();
+    let mut distinct = printed[..rows].to_vec();
+    distinct.dedup();
+    assert_eq!(distinct.len(), rows, "{printed:?}");
+
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["--set", "beta.method=scholes-williams"]);
+    let notes: Vec<&str> = (result["notes"].as_array().unwrap().iter())
+        .filter_map(|n| n.as_str())
+        .filter(|n| n.contains("periods dropped ("))
+        .collect();
+    assert!(!notes.is_empty());
+    for note in notes {
+        let numbers: Vec<u64> = note
+            .split(|c: char| !c.is_ascii_digit())
+            .filter(|s| !s.is_empty())
+            .map(|s| s.parse().unwrap())
+            .collect();
+        // "N of M periods dropped (a, b, c[, d])": the reasons add up to N.
+        let (total, reasons) = (numbers[0], &numbers[2..]);
+        assert_eq!(reasons.iter().sum::<u64>(), total, "{note}");
+    }
+
+    let dir = tempfile::tempdir().unwrap();
+    run_demo(
+        dir.path(),
+        &[
+            "--set",
+            "leverage.debt_beta_source=given",
+            "--set",
+            "leverage.debt_beta=0.2",
+        ],
+    );
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo
+        .contains("Hamada's formula assumes riskless debt, so it uses none of these debt betas"));
+
+    // With the betas of the operations aggregated, the betas chart's text names them, with
+    // each peer's figure from result.json (to its three printed decimals).
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["--set", "leverage.operations_beta=true"]);
+    let svg = std::fs::read_to_string(dir.path().join("figures/betas.svg")).unwrap();
+    assert!(svg.contains("included betas of the operations, βU = "));
+    let first = &result["peers"][0];
+    let operations = format!("operations {:.3}", number(first, "operations_beta"));
+    assert!(svg.contains(&operations), "betas.svg lacks `{operations}`");
+}

@@ -40,7 +40,9 @@ pub struct FileCheck {
 /// Keys whose text only puts into words a setting that the receipt also records as a value of
 /// its own (the method, the standard errors, the frequency, the risk-free convention, the
 /// formula's source and its written form, the distribution of the draws), where that value is
-/// compared. A later version may
+/// compared; and the run's `notes`, sentences for the reader whose counts the receipt records
+/// as figures (`periods_dropped` and its reasons, the flags; a note added or taken away still
+/// changes the list's length and fails). A later version may
 /// word them better; a receipt written before still reproduces, with the differences listed as
 /// wording. Any change of the setting itself still fails the verification through its value.
 pub const WORDING_KEYS: &[&str] = &[
@@ -52,6 +54,7 @@ pub const WORDING_KEYS: &[&str] = &[
     "formula_expression",
     "expression",
     "beta_distribution",
+    "notes",
 ];
 
 /// What a listed wording difference means, for the reader of a verification.

@@ -30,7 +30,7 @@ pub fn waterfall(
     let mut bars = vec![bar(from.label.clone(), BarKind::Total, 0.0, first)];
     if let Some(residue) = unexplained_from.filter(|r| *r != 0.0) {
         bars.push(bar(
-            "preferred equity and leases (outside the build-up)".into(),
+            "unexplained (stated less components)".into(),
             BarKind::Residue,
             first,
             first - residue,

@@ -75,20 +75,15 @@ fn render(b: &Bridge) -> String {
     ));
     // Half a basis point: what the printed figures can show.
     let visible = |gap: &f64| gap.abs() >= 5e-5;
-    if let Some(gap) = b.unexplained.filter(visible) {
-        out.push_str(&format!(
-            "note: {} states a WACC {} away from what its own components give\n",
-            b.to.label,
-            basis_points(gap)
-        ));
-    }
-    if let Some(gap) = b.unexplained_from.filter(visible) {
-        out.push_str(&format!(
-            "note: {} states a WACC {} away from its equity-and-debt build-up (preferred \
-             equity and leases are not bridged)\n",
-            b.from.label,
-            basis_points(gap)
-        ));
+    // Either side: a stated WACC (a claim's `wacc`) that its own components do not give.
+    for (side, gap) in [(&b.from, b.unexplained_from), (&b.to, b.unexplained)] {
+        if let Some(gap) = gap.filter(visible) {
+            out.push_str(&format!(
+                "note: {} states a WACC {} away from what its own components give\n",
+                side.label,
+                basis_points(gap)
+            ));
+        }
     }
     out
 }

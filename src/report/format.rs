@@ -13,6 +13,12 @@ pub fn basis_points(rate: f64) -> String {
     format!("{:.0} bp", rate * 10_000.0)
 }
 
+/// A number as a `--set` value is written: every digit it has and no more (0.0517, 2.5), so
+/// values one step apart on a grid axis never print alike.
+pub fn exact(value: f64) -> String {
+    crate::error::compact(value)
+}
+
 /// A number with a fixed number of decimals; `-0.000` is written `0.000`.
 pub fn fixed(value: f64, decimals: usize) -> String {
     let text = format!("{:.*}", decimals, value);

@@ -306,8 +306,9 @@ pub struct Bridge {
     pub steps: Vec<Step>,
     /// `to.stated_wacc − to.wacc`: what the claim's own components do not explain.
     pub unexplained: Option<f64>,
-    /// `from.stated_wacc − from.wacc`: 0 for a case, whose build-up includes preferred equity
-    /// and leases.
+    /// `from.stated_wacc − from.wacc`: what a claim on the starting side does not explain
+    /// with its own components (0 for a case, whose build-up includes preferred equity and
+    /// leases).
     pub unexplained_from: Option<f64>,
     /// The bridge as waterfall bars, by Shapley value (see `audit::waterfall`).
     pub waterfall: Vec<WaterfallBar>,

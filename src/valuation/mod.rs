@@ -228,9 +228,15 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
     let mut notes = Vec::new();
     let d = estimated.dropped;
     if d.total > 0 {
+        // Dimson and Scholes–Williams also drop a period whose lagged or led index return is
+        // missing; named only then, so the reasons add up to the total.
+        let shifted = match d.shifted_market_missing {
+            0 => String::new(),
+            n => format!(", lagged or led index return missing {n}"),
+        };
         notes.push(format!(
             "{name}: {} of {} periods dropped (peer price missing {}, index price missing {}, \
-             risk-free missing {}).",
+             risk-free missing {}{shifted}).",
             d.total,
             estimated.periods_in_window,
             d.asset_missing,

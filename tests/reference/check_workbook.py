@@ -229,6 +229,21 @@ def check_run(run, work, outdir_of):
         wrong = compare(recomputed(original), expected, f"{label} recomputed")
         report(not wrong, f"{label}: {len(wrong)} of {len(expected)} recomputed values differ from result.json")
         print(f"  compared {len(expected)} formula cells, cached and recomputed, with result.json")
+        # The Unlevering sheet's headers name the figures under them: the column that maps to
+        # peers[].operating_share is the operating share (1 - cash / (equity + debt)), the one
+        # mapped to peers[].operations_beta the beta of the operations.
+        headers = cached(original)["Unlevering"]
+        for field, words in [("operating_share", "Operating share"),
+                             ("operations_beta", "operations")]:
+            columns = {re.match(r"[A-Z]+", e["cell"]).group(0) for e in entries
+                       if e["sheet"] == "Unlevering" and (e["json_pointer"] or "").endswith(f"/{field}")}
+            # The first such column is the figure's own (a later one, "Aggregated figure",
+            # repeats it when the case aggregates the betas of the operations).
+            report(bool(columns), f"{label}: no Unlevering column maps to peers[].{field}")
+            for column in sorted(columns, key=lambda c: (len(c), c))[:1]:
+                header = headers[f"{column}1"].value or ""
+                report(words in header, f"{label}: Unlevering!{column}1 = {header!r} heads "
+                       f"peers[].{field}")
         if not whatif:
             return
         # 4. A wrong cached WACC: caught among the cached values, repaired by the recalculation.

@@ -98,7 +98,10 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         divider,
         (aggregate, cash),
     )?;
-    let description = format!("{caption} {}", data_summary(&rows, |p| unlevered(p, cash)));
+    let description = format!(
+        "{caption} {}",
+        data_summary(&rows, |p| unlevered(p, cash), cash)
+    );
     Ok(Figure {
         kind: Kind::Betas,
         svg: canvas.finish("betas", &title, &description),
@@ -261,7 +264,7 @@ fn caption(valuation: &Valuation) -> String {
     format!(
         "For each peer: the raw β (dot) with its 95% confidence interval ({} standard errors, \
          Student t), the β used ({}; triangle) and the unlevered β by {} (square{}). The dashed \
-         line is the {} of the {} included unlevered betas, βU = {}, relevered to {} at the \
+         line is the {} of the {} included {}, βU = {}, relevered to {} at the \
          target D/E of {}. {}The grey line marks β = 1, the index. Figures: result.json peers[] \
          (beta, beta_ci_low, beta_ci_high, beta_used, {}) and beta.unlevered.",
         super::std_errors_name(valuation.estimator.std_errors),
@@ -274,6 +277,11 @@ fn caption(valuation: &Valuation) -> String {
         },
         label(&summary.aggregation),
         summary.peers_included,
+        if summary.uses_operations_beta {
+            "betas of the operations"
+        } else {
+            "unlevered betas"
+        },
         fixed(summary.unlevered, 3),
         fixed(summary.relevered, 3),
         fixed(valuation.cost.target.debt_to_equity, 2),
@@ -291,17 +299,22 @@ fn caption(valuation: &Valuation) -> String {
     )
 }
 
-fn data_summary(rows: &[Row], unlevered: impl Fn(&PeerResult) -> f64) -> String {
+fn data_summary(rows: &[Row], unlevered: impl Fn(&PeerResult) -> f64, operations: bool) -> String {
     rows.iter()
         .map(|r| {
             let e = &r.peer.estimate;
             format!(
-                "{}: raw β {} (95% CI {} to {}), used {}, unlevered {}{}.",
+                "{}: raw β {} (95% CI {} to {}), used {}, {} {}{}.",
                 r.peer.name,
                 fixed(e.beta, 3),
                 fixed(e.beta_ci_low, 3),
                 fixed(e.beta_ci_high, 3),
                 fixed(r.peer.beta_used, 3),
+                if operations {
+                    "operations"
+                } else {
+                    "unlevered"
+                },
                 fixed(unlevered(r.peer), 3),
                 if r.peer.excluded_reason.is_some() {
                     ", excluded"

@@ -2,7 +2,7 @@
 //!
 //! One row per peer: the raw beta from `Betas`, the case's adjustment (Blume, or Vasicek's
 //! shrinkage toward a prior), the peer's capital structure as inputs, its D/E, debt beta and
-//! cost of debt, the unlevered beta under the case's formula and the cash-corrected one. The
+//! cost of debt, the unlevered beta under the case's formula and the beta of the operations. The
 //! last column holds the figure each aggregated peer contributes (the text "left out" for a
 //! peer left out), which the `Cost of capital` sheet's `MEDIAN`, `AVERAGE` and `TRIMMEAN` read.
 
@@ -24,7 +24,7 @@ pub(crate) struct CapitalSheets {
 pub(crate) struct PeerRanges {
     /// 1 for an aggregated peer, 0 for one left out.
     pub included: String,
-    /// The unlevered betas the case aggregates (plain or cash-corrected), every peer.
+    /// The unlevered betas the case aggregates (unlevered or of the operations), every peer.
     pub chosen: String,
     /// The same, text for a peer left out.
     pub aggregated: String,
@@ -86,8 +86,8 @@ const HEADERS: [&str; 19] = [
     "Pre-tax cost of debt",
     "Debt beta",
     "Unlevered beta",
-    "Cash / (equity + debt)",
-    "Cash-corrected unlevered beta",
+    "Operating share, 1 − cash / (equity + debt)",
+    "Beta of the operations",
     "Aggregated figure",
     "Why left out",
 ];
@@ -171,7 +171,7 @@ impl Row {
     }
 }
 
-/// One peer: adjustment, capital structure, debt terms, unlevered and cash-corrected betas.
+/// One peer: adjustment, capital structure, debt terms, unlevered beta and beta of the operations.
 fn peer_row(
     book: &mut Book,
     sheet: &mut Sheet,
@@ -287,7 +287,7 @@ fn structure(book: &mut Book, sheet: &mut Sheet, r: &Row) -> Result<()> {
     }
 }
 
-/// The unlevered beta under the case's formula, the cash-corrected one, and the figure the
+/// The unlevered beta under the case's formula, the beta of the operations, and the figure the
 /// peer contributes to the aggregate.
 fn unlever(book: &mut Book, sheet: &mut Sheet, r: &Row, included: bool) -> Result<()> {
     let v = book.v;
