@@ -353,6 +353,35 @@ fn a_decimal_comma_in_a_wide_csv_is_named_by_line() {
     assert!(stderr.contains("fields but the header has"), "{stderr}");
 }
 
+// An implausible jump in a wide table's column is named by its own line and column (and the
+// previous value's), not by its position in the series: the table's empty cells and its other
+// columns make the two differ.
+#[test]
+fn a_jump_in_a_wide_table_names_its_cell() {
+    let copy = WideCopy::new();
+    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
+    // Estwold's column (the seventh) is empty in the first rows (a late listing), so its values
+    // are not on the lines their positions would give. Multiply its price on line 600 by ten.
+    let line = csv.lines().nth(599).unwrap().to_string();
+    let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
+    let price: f64 = cells[6].parse().unwrap();
+    cells[6] = format!("{:.4}", price * 10.0);
+    fs::write(
+        copy.path("data/prices.csv"),
+        csv.replacen(&line, &cells.join(","), 1),
+    )
+    .unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(
+        stderr.contains("prices.csv: line 600, column `Estwold Flow Controls`: price"),
+        "{stderr}"
+    );
+    assert!(
+        stderr.contains("(line 599, column `Estwold Flow Controls`)"),
+        "{stderr}"
+    );
+}
+
 // A formula saved without its calculated value (as openpyxl writes one) has no value to read;
 // it is refused naming its cell, not read as a missing price. openpyxl stores a formula it
 // writes without a cached result (its documented behaviour: it never evaluates formulas).

@@ -93,6 +93,10 @@ pub struct DataFile {
     pub column: String,
     #[serde(skip)]
     pub series: Series,
+    /// Where each value sits in a wide table (`sheet "Prices", cell G1500`, `line 1500, column
+    /// `X``), for messages; empty for a file of its own, whose value i is on line i + 2.
+    #[serde(skip)]
+    pub places: Vec<String>,
 }
 
 /// Serialises a date as ISO 8601 text (`2026-09-30`), for `#[serde(serialize_with)]`.
@@ -140,6 +144,7 @@ pub fn read_series_file(
         sheet: None,
         column: value_column.to_string(),
         series,
+        places: Vec::new(),
     })
 }
 

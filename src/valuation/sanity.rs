@@ -91,21 +91,32 @@ pub(crate) fn check_jumps(
         if plausible || accepted.iter().any(|d| d.0 == dates[i]) {
             continue;
         }
-        return Err(Error::DataRow {
-            file: path.to_path_buf(),
-            line: i + 2,
-            message: format!(
-                "price {} on {} after {} on {} (line {}) moves by a factor of {}, beyond the \
-                 plausibility bound of {JUMP_FACTOR} up or down between two rows; fix the price, \
-                 or if the move is real accept it with {key}.accept_jumps = [\"{}\"]",
-                show(prices[i]),
-                dates[i],
-                show(prices[i - 1]),
-                dates[i - 1],
-                i + 1,
-                significant(ratio),
-                dates[i]
-            ),
+        // A file of its own has value i on line i + 2; a wide table names each value's cell.
+        let previous = match file.places.get(i - 1) {
+            Some(place) => place.clone(),
+            None => format!("line {}", i + 1),
+        };
+        let message = format!(
+            "price {} on {} after {} on {} ({previous}) moves by a factor of {}, beyond the \
+             plausibility bound of {JUMP_FACTOR} up or down between two rows; fix the price, or \
+             if the move is real accept it with {key}.accept_jumps = [\"{}\"]",
+            show(prices[i]),
+            dates[i],
+            show(prices[i - 1]),
+            dates[i - 1],
+            significant(ratio),
+            dates[i]
+        );
+        return Err(match file.places.get(i) {
+            Some(place) => Error::DataFile {
+                file: path.to_path_buf(),
+                message: format!("{place}: {message}"),
+            },
+            None => Error::DataRow {
+                file: path.to_path_buf(),
+                line: i + 2,
+                message,
+            },
         });
     }
     Ok(())

@@ -148,7 +148,7 @@ impl PriceTable {
             message,
         };
         let j = self.column_index(column).map_err(fail)?;
-        let (mut dates, mut values) = (Vec::new(), Vec::new());
+        let (mut dates, mut values, mut places) = (Vec::new(), Vec::new(), Vec::new());
         for (i, cell) in self.cells[j].iter().enumerate() {
             let at = || {
                 format!(
@@ -169,6 +169,7 @@ impl PriceTable {
             }
             dates.push(self.dates[i]);
             values.push(value);
+            places.push(self.place.cell(self.rows[i], self.positions[j]));
         }
         let (Some(&first_date), Some(&last_date)) = (dates.first(), dates.last()) else {
             return Err(fail(format!(
@@ -190,6 +191,7 @@ impl PriceTable {
             sheet: self.sheet.clone(),
             column: column.to_string(),
             series: Series { dates, values },
+            places,
         })
     }
 
