@@ -35,7 +35,7 @@ fn unreadable_kind(dtype: &ArrowDataType) -> Option<String> {
         | T::UInt64
         | T::Float32
         | T::Float64
-        | T::Timestamp(..)
+        | T::Timestamp(_, None)
         | T::Date32
         | T::Binary
         | T::LargeBinary
@@ -57,6 +57,19 @@ fn unreadable_kind(dtype: &ArrowDataType) -> Option<String> {
         T::Int128 | T::UInt128 => "a 128-bit integer".to_string(),
         T::Float16 => "a 16-bit float".to_string(),
         T::Date64 => "a 64-bit date".to_string(),
+        // Its calendar date depends on the zone's rules (a close stamped at local midnight in
+        // Tokyo falls on the previous day in UTC), which hurdle's polars build does not carry:
+        // taking the UTC date would shift such a series by a day without a word.
+        // UTC's date is the date the instant carries.
+        T::Timestamp(_, Some(zone))
+            if ["UTC", "Etc/UTC", "GMT", "Etc/GMT", "+00:00", "Z"].contains(&zone.as_str()) =>
+        {
+            return None
+        }
+        T::Timestamp(_, Some(zone)) => format!(
+            "a date-time with the time zone {zone} (its local date needs the zone's rules; store \
+             the local dates as dates, or date-times without a zone)"
+        ),
         T::Time32(_) | T::Time64(_) => "a time of day".to_string(),
         T::Duration(_) | T::Interval(_) => "a duration".to_string(),
         T::List(_) | T::LargeList(_) | T::FixedSizeList(..) => "a list".to_string(),
@@ -106,5 +119,32 @@ mod tests {
         );
         assert!(unreadable_column(&s, ["tax_rate"])
             .is_some_and(|m| m.contains("`tax_rate` is stored as an 8-bit integer")));
+    }
+
+    // A date-time without a zone is read (its date is the date written); one with a zone is
+    // named, since its local date needs the zone's rules (Asia/Tokyo is nine hours ahead of UTC
+    // all year: local midnight is 15:00 UTC the day before).
+    #[test]
+    fn a_date_time_with_a_time_zone_is_named() {
+        use polars::prelude::ArrowTimeUnit as TimeUnit;
+        let s = schema(&[
+            (
+                "plain",
+                ArrowDataType::Timestamp(TimeUnit::Microsecond, None),
+            ),
+            (
+                "zoned",
+                ArrowDataType::Timestamp(TimeUnit::Nanosecond, Some("Asia/Tokyo".into())),
+            ),
+        ]);
+        assert_eq!(unreadable_column(&s, ["plain"]), None);
+        let utc = schema(&[(
+            "utc",
+            ArrowDataType::Timestamp(TimeUnit::Millisecond, Some("UTC".into())),
+        )]);
+        assert_eq!(unreadable_column(&utc, ["utc"]), None);
+        assert!(unreadable_column(&s, ["zoned"]).is_some_and(
+            |m| m.contains("`zoned` is stored as a date-time with the time zone Asia/Tokyo")
+        ));
     }
 }

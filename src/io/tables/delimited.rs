@@ -123,6 +123,12 @@ fn parquet_cells(column: &Column) -> PolarsResult<Vec<Cell>> {
             .map(|v| v.map_or(Cell::Empty, Cell::Bool))
             .collect());
     }
+    // A date-time (naive, or in UTC: the only zone the schema check lets through) is read by
+    // its date.
+    let column = match dtype {
+        DataType::Datetime(..) => &column.cast(&DataType::Date)?,
+        _ => column,
+    };
     let text = column.cast(&DataType::String)?;
     Ok(text
         .str()?
