@@ -227,6 +227,46 @@ fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
     assert_eq!(rows, [0.989, 0.994, 0.999]);
 }
 
+// verify checks the hash of every file the receipt records: the spread table the cost of debt
+// came from and the claimed build-up too, not only the price files (an edited table row is
+// named as the changed file, beside the figures it moved).
+#[test]
+fn verify_checks_the_spread_table_and_the_claimed_file() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let out = dir.path().join("out");
+    run_case(&case, &out, &["--set", "debt.source=rating"]);
+    let receipt = out.join("result.json");
+    let ok = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&ok);
+    assert_eq!(ok.status.code(), Some(0), "{report}");
+    assert!(
+        report.contains("spread table data/rating_spreads_invented.csv: unchanged"),
+        "{report}"
+    );
+    assert!(
+        report.contains("claimed build-up claimed.toml: unchanged"),
+        "{report}"
+    );
+    let table = case_dir.join("data/rating_spreads_invented.csv");
+    let edited: String = std::fs::read_to_string(&table)
+        .unwrap()
+        .lines()
+        .map(|l| match l.starts_with("BBB,") {
+            true => "BBB,0.0190\n".to_string(),
+            false => format!("{l}\n"),
+        })
+        .collect();
+    std::fs::write(&table, edited).unwrap();
+    let changed = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&changed);
+    assert_eq!(changed.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains("spread table data/rating_spreads_invented.csv: CHANGED"),
+        "{report}"
+    );
+}
+
 /// The relevered beta `hurdle implied --solve beta` prints after `exact: `.
 fn exact_beta(report: &str) -> f64 {
     let line = exact_line(report, "");

@@ -345,36 +345,58 @@ fn compare_at(
     }
 }
 
-/// Each input file the receipt records, with its recorded and current SHA-256.
+/// Each input file the receipt records, with its recorded and current SHA-256: the data files,
+/// then the spread table the cost of debt was read from and the claimed build-up the case
+/// reconciles to, when the receipt has them.
 fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation) -> Vec<FileCheck> {
-    let current: Vec<(String, String)> = rerun
+    let mut current: Vec<(String, String)> = rerun
         .files
         .iter()
         .map(|f| (f.role.clone(), f.sha256.clone()))
         .collect();
-    recorded["files"]
+    let mut listed: Vec<(String, &Value)> = recorded["files"]
         .as_array()
         .map(|list| {
-            list.iter()
-                .map(|f| {
-                    let role = f["role"].as_str().unwrap_or("").to_string();
-                    let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
-                    let current_sha256 = current
-                        .iter()
-                        .find(|(r, _)| *r == role)
-                        .map(|(_, s)| s.clone())
-                        .unwrap_or_else(|| "(no longer in the case)".into());
-                    FileCheck {
-                        path: f["path"].as_str().unwrap_or("").to_string(),
-                        unchanged: recorded_sha256 == current_sha256,
-                        role,
-                        recorded_sha256,
-                        current_sha256,
-                    }
-                })
-                .collect::<Vec<_>>()
+            let role = |f: &Value| f["role"].as_str().unwrap_or("").to_string();
+            list.iter().map(|f| (role(f), f)).collect()
         })
-        .unwrap_or_default()
+        .unwrap_or_default();
+    const SPREAD_TABLE: &str = "spread table";
+    const CLAIMED: &str = "claimed build-up";
+    if let Some(table) = &rerun.cost.cost_of_debt.table {
+        current.push((SPREAD_TABLE.into(), table.sha256.clone()));
+    }
+    if let Some(bridge) = &rerun.reconciliation {
+        current.push((CLAIMED.into(), bridge.to.sha256.clone()));
+    }
+    // The path under `path`, the hash under `sha256` (a claimed file names its path `source`).
+    let table = &recorded["cost_of_debt"]["table"];
+    if table.is_object() {
+        listed.push((SPREAD_TABLE.into(), table));
+    }
+    let claimed = &recorded["reconciliation"]["to"];
+    if claimed.is_object() {
+        listed.push((CLAIMED.into(), claimed));
+    }
+    listed
+        .into_iter()
+        .map(|(role, f)| {
+            let recorded_sha256 = f["sha256"].as_str().unwrap_or("").to_string();
+            let current_sha256 = current
+                .iter()
+                .find(|(r, _)| *r == role)
+                .map(|(_, s)| s.clone())
+                .unwrap_or_else(|| "(no longer in the case)".into());
+            let path = f["path"].as_str().or(f["source"].as_str()).unwrap_or("");
+            FileCheck {
+                path: path.to_string(),
+                unchanged: recorded_sha256 == current_sha256,
+                role,
+                recorded_sha256,
+                current_sha256,
+            }
+        })
+        .collect()
 }
 
 #[cfg(test)]
