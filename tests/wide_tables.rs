@@ -382,6 +382,27 @@ fn a_jump_in_a_wide_table_names_its_cell() {
     );
 }
 
+// Two peers reading one column of a wide table are named by the key that chose the column
+// (`peer.1.column`), not by a `peer.1.prices` the case never sets.
+#[test]
+fn two_peers_on_one_column_are_named_by_their_column_keys() {
+    let copy = WideCopy::new();
+    let out = copy.root.path().join("out");
+    let output = run_case(
+        &copy.path("case.toml"),
+        &out,
+        &["--set", "peer.1.column=Brenvale Fluid Systems"],
+    );
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("peer.1.column = \"Brenvale Fluid Systems\" of data/prices.csv")
+            && stderr.contains("peer.0's (peer.0.column = \"Brenvale Fluid Systems\""),
+        "{stderr}"
+    );
+    assert!(!out.exists());
+}
+
 // A formula saved without its calculated value (as openpyxl writes one) has no value to read;
 // it is refused naming its cell, not read as a missing price. openpyxl stores a formula it
 // writes without a cached result (its documented behaviour: it never evaluates formulas).

@@ -37,13 +37,22 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
             &peer.accept_jumps,
         )?;
         let same_as = |other: &DataFile| other.series == file.series;
+        // A series of a wide table is named by its column, a file of its own by its path.
+        let named = |key: &str, f: &DataFile| match f.places.is_empty() {
+            true => format!("{key}.prices = \"{}\"", f.path),
+            false => format!("{key}.column = \"{}\" of {}", f.column, f.path),
+        };
         let duplicate = if same_as(&inputs.index) {
-            Some(format!("the index's ({})", inputs.index.path))
+            Some(format!(
+                "the index's ({})",
+                named("market.index", &inputs.index)
+            ))
         } else {
             inputs.peers[..i].iter().position(same_as).map(|j| {
                 format!(
                     "peer.{j}'s ({}, peer \"{}\")",
-                    inputs.peers[j].path, settings.peers[j].name
+                    named(&format!("peer.{j}"), &inputs.peers[j]),
+                    settings.peers[j].name
                 )
             })
         };
@@ -51,9 +60,10 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
             return Err(Error::Case {
                 file: inputs.case.path.clone(),
                 message: format!(
-                    "{key}.prices = \"{}\" (peer \"{}\") holds the same dates and prices as \
-                     {other}: a peer's price file must be the peer's own",
-                    file.path, peer.name
+                    "{} (peer \"{}\") holds the same dates and prices as {other}: a peer's \
+                     series must be the peer's own",
+                    named(&key, file),
+                    peer.name
                 ),
             });
         }
