@@ -20,6 +20,10 @@ pub enum Error {
     /// The case file (or an override) is malformed or holds a value out of range.
     #[error("{}: {message}", file.display())]
     Case { file: PathBuf, message: String },
+    /// Placeholders (`"<FILL IN: …>"`) left in a case, each as `line N: key = "text"`; shown
+    /// one per line by a front end that can, joined by `; ` here.
+    #[error("{}: {}{}", file.display(), placeholders_heading(items.len()), items.join("; "))]
+    Placeholders { file: PathBuf, items: Vec<String> },
     /// An override (a `KEY=VALUE` assignment laid over a case or universe file) could not be
     /// applied. The library never names a command-line flag; a front end words the assignment
     /// as its users gave it (the command line: `--set`).
@@ -95,6 +99,15 @@ pub enum Error {
 
 /// Shorthand used throughout the library.
 pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// The sentence before the list of placeholders left in a case.
+pub fn placeholders_heading(count: usize) -> String {
+    format!(
+        "{count} placeholder{} still to fill in; nothing is estimated from a figure nobody \
+         entered. Replace each with the figure from its source: ",
+        if count == 1 { " is" } else { "s are" },
+    )
+}
 
 /// A number as a message quotes it: in full, but in exponent form when that would run to many
 /// digits (`1e308` rather than 309 of them); NaN and infinity as Rust writes them.

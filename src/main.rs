@@ -39,6 +39,15 @@ fn main() -> ExitCode {
             eprintln!("{error}");
             ExitCode::from(130)
         }
+        // One placeholder per line: an `init` case lists dozens.
+        Err(hurdle::Error::Placeholders { file, items }) => {
+            let heading = hurdle::error::placeholders_heading(items.len());
+            eprintln!("error: {}: {}", file.display(), heading.trim_end());
+            for item in &items {
+                eprintln!("  {}", hurdle::error::one_line(item));
+            }
+            ExitCode::from(2)
+        }
         Err(error) => {
             eprintln!(
                 "error: {}",

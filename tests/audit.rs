@@ -227,6 +227,37 @@ fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
     assert_eq!(rows, [0.989, 0.994, 0.999]);
 }
 
+// A receipt records its case path as it was typed (`case.toml`, relative to the folder the run
+// started in). Verified from another folder that holds a different `case.toml`, verify must
+// rerun the receipt's own case (the one whose SHA-256 the receipt records, beside its output
+// folder), not the stranger's.
+#[test]
+fn verify_from_another_folder_reruns_the_receipts_own_case() {
+    let (dir, case_dir) = demo_copy();
+    let binary = env!("CARGO_BIN_EXE_hurdle");
+    let run = std::process::Command::new(binary)
+        .current_dir(&case_dir)
+        .args(["run", "case.toml", "--out", "out"])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", text(&run));
+    let other = dir.path().join("other");
+    copy_demo_case(&other);
+    let case = other.join("case.toml");
+    let edited = std::fs::read_to_string(&case)
+        .unwrap()
+        .replace("seed = 1", "seed = 2");
+    std::fs::write(&case, edited).unwrap();
+    let verify = std::process::Command::new(binary)
+        .current_dir(&other)
+        .args(["verify", "../case/out/result.json"])
+        .output()
+        .unwrap();
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(0), "{report}");
+    assert!(report.contains("(case ../case/case.toml)"), "{report}");
+}
+
 // verify checks the hash of every file the receipt records: the spread table the cost of debt
 // came from and the claimed build-up too, not only the price files (an edited table row is
 // named as the changed file, beside the figures it moved).

@@ -2131,6 +2131,25 @@ fn command_arguments() -> Vec<Bad> {
             ],
             ["--range 0..20", "target.debt_to_equity"]
         ),
+        // One key spelled two ways (the first peer by index and by name) on both axes: the
+        // column value would replace the row value in every cell.
+        bad!(
+            "grid: one key by index and by name",
+            nothing,
+            [
+                "grid",
+                "{case}",
+                "--rows",
+                "peer.0.debt=100..900:400",
+                "--cols",
+                "peer.Brenvale Fluid Systems.debt=100..900:400"
+            ],
+            [
+                "peer.0.debt",
+                "peer.Brenvale Fluid Systems.debt",
+                "the same key on both axes"
+            ]
+        ),
         // An ERP of 1 (100%) is outside the case's [−0.5, 1): a range reaching it is refused
         // rather than searched with one value the case refuses.
         bad!(

@@ -372,3 +372,56 @@ fn charts_an_earlier_run_left_are_taken_away() {
     }
     assert!(out.join("memo.md").is_file());
 }
+
+// A placeholder where a number or a date belongs (as `hurdle init` writes them) is filled by a
+// `--set` of that key (README: "A `--set` that gives the key a value counts as filled"): the
+// run then equals the demo's with the figures written in (same inputs, same bits). Left
+// unfilled, each placeholder is listed on a line of its own with its line and key.
+#[test]
+fn a_set_fills_a_placeholder_of_any_type() {
+    let sandbox = Sandbox::new();
+    let plain = sandbox.root.path().join("plain");
+    assert!(run_into(&sandbox, &plain, &[]).status.success());
+    sandbox.edit_case(
+        "valuation_date = 2026-09-30",
+        "valuation_date = \"<FILL IN: valuation date>\"",
+    );
+    sandbox.edit_case(
+        "equity_risk_premium = 0.0517",
+        "equity_risk_premium = \"<FILL IN: equity risk premium>\"",
+    );
+    let unfilled = run_into(&sandbox, &sandbox.root.path().join("unfilled"), &[]);
+    let message = stderr(&unfilled);
+    assert_eq!(unfilled.status.code(), Some(2), "{message}");
+    let listed: Vec<&str> = message
+        .lines()
+        .filter(|l| l.starts_with("  line "))
+        .collect();
+    assert_eq!(listed.len(), 2, "{message}");
+    assert!(
+        listed[0].contains("case.valuation_date = \"<FILL IN"),
+        "{message}"
+    );
+    assert!(
+        listed[1].contains("market.equity_risk_premium = \"<FILL IN"),
+        "{message}"
+    );
+    let filled = sandbox.root.path().join("filled");
+    let output = run_into(
+        &sandbox,
+        &filled,
+        &[
+            "--set",
+            "case.valuation_date=2026-09-30",
+            "--set",
+            "market.equity_risk_premium=0.0517",
+        ],
+    );
+    assert!(output.status.success(), "{}", stderr(&output));
+    let wacc = |dir: &std::path::Path| {
+        let result: serde_json::Value =
+            serde_json::from_str(&fs::read_to_string(dir.join("result.json")).unwrap()).unwrap();
+        result["wacc"].as_f64().unwrap()
+    };
+    assert_eq!(wacc(&filled), wacc(&plain));
+}

@@ -135,12 +135,12 @@ pub fn grid(
     columns: &Axis,
     metric: Metric,
 ) -> Result<Grid> {
-    crate::valuation::sanity::check_axes(&rows.key, &columns.key)?;
+    let variants = Variants::new(&inputs.case)?;
+    crate::valuation::sanity::check_axes(&rows.key, &columns.key, variants.own())?;
     let total = rows.values.len() * columns.values.len();
     let mut progress = crate::progress::Progress::new("grid cells", total as u64);
     let mut cells = Vec::with_capacity(rows.values.len());
     // A cell is the case's own when its overrides leave the resolved case unchanged.
-    let variants = Variants::new(&inputs.case)?;
     let own = toml::Value::Table(variants.own().clone());
     let mut base_cell = None;
     let mut refused = Vec::new();

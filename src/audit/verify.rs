@@ -220,7 +220,8 @@ pub(super) fn rerun_source(
             let written = recorded[section]["file"]
                 .as_str()
                 .ok_or_else(|| fail(format!("has no {section}.file")))?;
-            locate_case(receipt_path, written, section)?
+            let sha256 = recorded[section]["sha256"].as_str();
+            locate_case(receipt_path, written, section, sha256)?
         }
     };
     let overrides = recorded[section]["overrides"]
@@ -235,18 +236,31 @@ pub(super) fn rerun_source(
 }
 
 /// Finds the case (or universe) file a receipt names: as recorded (relative to the working
-/// folder), else beside the receipt's folder, where `hurdle run` puts `output/` by default.
-/// `section` is the receipt's section that records it (`case` or `universe`).
-pub(super) fn locate_case(receipt_path: &Path, recorded: &str, section: &str) -> Result<PathBuf> {
+/// folder), or beside the receipt's folder, where `hurdle run` puts `output/` by default. Of
+/// the two, the one whose SHA-256 is the recorded `sha256` wins (run from another folder, the
+/// recorded relative path can name another case of the same name); when neither matches, the
+/// first that exists, whose changed hash the verification then reports. `section` is the
+/// receipt's section that records it (`case` or `universe`).
+pub(super) fn locate_case(
+    receipt_path: &Path,
+    recorded: &str,
+    section: &str,
+    sha256: Option<&str>,
+) -> Result<PathBuf> {
     let recorded = PathBuf::from(recorded);
     let mut candidates = vec![recorded.clone()];
     if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
         let case_dir = output_dir.parent().unwrap_or(Path::new(""));
         candidates.push(case_dir.join(name));
     }
+    let same_bytes = |path: &PathBuf| {
+        let bytes = std::fs::read(path).ok();
+        sha256.is_some_and(|hash| bytes.is_some_and(|b| crate::io::series::sha256_hex(&b) == hash))
+    };
     candidates
         .iter()
-        .find(|p| p.is_file())
+        .find(|p| p.is_file() && same_bytes(p))
+        .or_else(|| candidates.iter().find(|p| p.is_file()))
         .cloned()
         .ok_or_else(|| Error::InputNotFound {
             receipt: receipt_path.to_path_buf(),

@@ -250,10 +250,10 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
         renamed::check(&table).map_err(case_error)?;
     }
     // Parsing straight from text first keeps the parser's line and column in every message.
-    let parsed: CaseFile =
-        toml::from_str(text).map_err(|e| case_error(crate::error::toml_error(&e, text)))?;
+    let parsed = toml::from_str::<CaseFile>(text)
+        .map_err(|e| case_error(crate::error::toml_error(&e, text)));
     if overrides.is_empty() {
-        return Ok(parsed);
+        return parsed;
     }
     let mut table: toml::Table =
         toml::from_str(text).map_err(|e| case_error(crate::error::toml_error(&e, text)))?;
@@ -261,9 +261,16 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
         apply_override(&mut table, assignment)?;
     }
     renamed::check(&table).map_err(case_error)?;
-    CaseFile::deserialize(toml::Value::Table(table.clone())).map_err(|e| Error::AfterOverrides {
-        file: path.to_path_buf(),
-        overrides: overrides.to_vec(),
-        message: crate::error::toml_error_in_table::<CaseFile>(&table, e.message().to_string()),
-    })
+    match CaseFile::deserialize(toml::Value::Table(table.clone())) {
+        Ok(case) => Ok(case),
+        // The file's own fault (a placeholder `--set` did not replace, a wrong type), named at
+        // its line; a `--set` may replace a value the file alone could not take (a placeholder
+        // where a number or a date belongs), so the file is only blamed when it still fails.
+        Err(_) if parsed.is_err() => parsed,
+        Err(e) => Err(Error::AfterOverrides {
+            file: path.to_path_buf(),
+            overrides: overrides.to_vec(),
+            message: crate::error::toml_error_in_table::<CaseFile>(&table, e.message().to_string()),
+        }),
+    }
 }

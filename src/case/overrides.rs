@@ -94,9 +94,73 @@ fn descend_array(
     Ok(())
 }
 
+/// Whether two key paths set the same value of `table` (`peer.0.debt` and
+/// `peer.Alder.debt`, for a first peer named Alder): each replaces what the other set (a key
+/// and the table holding it, `market` and `market.equity_risk_premium`, are not the same: the
+/// key cannot be set inside the text the table became). A path that cannot be applied sets
+/// nothing, so it shares no value.
+pub fn same_value(table: &toml::Table, a: &str, b: &str) -> bool {
+    // Printable (TOML strings hold no control characters) and unlike any case value.
+    const MARKS: [&str; 3] = [
+        "hurdle: first axis marker",
+        "hurdle: second axis marker",
+        "hurdle: third axis marker",
+    ];
+    let mut marked = table.clone();
+    let mut set =
+        |key: &str, text: &str| apply_override(&mut marked, &format!("{key}=\"{text}\"")).is_ok();
+    if !(set(a, MARKS[0]) && set(b, MARKS[1])) {
+        return false;
+    }
+    if holds(&marked, MARKS[0]) {
+        return false;
+    }
+    apply_override(&mut marked, &format!("{a}=\"{}\"", MARKS[2])).is_ok()
+        && !holds(&marked, MARKS[1])
+}
+
+/// Whether `text` is a string anywhere in `value`.
+fn holds(table: &toml::Table, text: &str) -> bool {
+    fn within(value: &toml::Value, text: &str) -> bool {
+        match value {
+            toml::Value::String(s) => s == text,
+            toml::Value::Table(t) => t.values().any(|v| within(v, text)),
+            toml::Value::Array(items) => items.iter().any(|v| within(v, text)),
+            _ => false,
+        }
+    }
+    table.values().any(|v| within(v, text))
+}
+
 fn parse_override_value(raw: &str) -> toml::Value {
     toml::from_str::<toml::Table>(&format!("v = {raw}"))
         .ok()
         .and_then(|mut t| t.remove("v"))
         .unwrap_or_else(|| toml::Value::String(raw.to_string()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Two spellings of one value (a peer by index and by name, spaces around a segment) share
+    // it; two peers' values, or two keys, do not; a key path that cannot be applied shares none.
+    #[test]
+    fn two_spellings_of_one_key_share_its_value() {
+        let table: toml::Table = toml::from_str(
+            "[market]\nequity_risk_premium = 0.05\nrisk_free_rate = 0.03\n\n\
+             [[peer]]\nname = \"Alder\"\ndebt = 1.0\n\n[[peer]]\nname = \"Birch\"\ndebt = 2.0\n",
+        )
+        .unwrap();
+        assert!(same_value(&table, "peer.0.debt", "peer.Alder.debt"));
+        assert!(same_value(&table, "peer.1.debt", "peer . Birch . debt"));
+        assert!(!same_value(&table, "peer.0.debt", "peer.1.debt"));
+        assert!(!same_value(
+            &table,
+            "market.equity_risk_premium",
+            "market.risk_free_rate"
+        ));
+        assert!(!same_value(&table, "peer.7.debt", "peer.7.debt"));
+        assert!(!same_value(&table, "market.equity_risk_premium", "market"));
+    }
 }

@@ -153,19 +153,12 @@ pub fn reject(path: &Path, text: &str, overrides: &[String]) -> Result<()> {
             return Ok(());
         }
     }
-    let lines: Vec<String> = left
-        .iter()
-        .map(|p| format!("  line {}: {} = \"{}\"", p.line, p.key, p.text))
-        .collect();
-    Err(Error::Case {
+    Err(Error::Placeholders {
         file: path.to_path_buf(),
-        message: format!(
-            "{} placeholder{} still to fill in; nothing is estimated from a figure nobody \
-             entered. Replace each with the figure from its source:\n{}",
-            left.len(),
-            if left.len() == 1 { " is" } else { "s are" },
-            lines.join("\n")
-        ),
+        items: left
+            .iter()
+            .map(|p| format!("line {}: {} = \"{}\"", p.line, p.key, p.text))
+            .collect(),
     })
 }
 

@@ -235,8 +235,9 @@ pub fn check_finite_figures(valuation: &Valuation) -> Result<()> {
 }
 
 /// A grid may not put the same key on both axes: one of them would be silently overridden.
-pub fn check_axes(rows_key: &str, columns_key: &str) -> Result<()> {
-    if rows_key == columns_key {
+pub fn check_axes(rows_key: &str, columns_key: &str, case: &toml::Table) -> Result<()> {
+    // Also two spellings of one key (a peer by index and by name).
+    if rows_key == columns_key || crate::case::overrides::same_value(case, rows_key, columns_key) {
         return Err(Error::Argument {
             option: format!("grid axes {rows_key} and {columns_key}"),
             message: "the same key on both axes: the column value would replace the row value in \
