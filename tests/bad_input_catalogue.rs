@@ -2228,6 +2228,23 @@ fn command_arguments() -> Vec<Bad> {
             ],
             ["market.equity_risk_premium", "both axes"]
         ),
+        // The demo's cost of debt is given, so its rating table is not read by this run; it
+        // is still the case's file, and no output may replace it.
+        bad!(
+            "grid: --csv over a spread table the run does not read",
+            nothing,
+            [
+                "grid",
+                "{case}",
+                "--rows",
+                "market.equity_risk_premium=0.04..0.07:0.01",
+                "--cols",
+                "target.debt_to_equity=0..1:0.5",
+                "--csv",
+                "{dir}/data/rating_spreads_invented.csv"
+            ],
+            ["rating_spreads_invented.csv", "debt.rating_table"]
+        ),
         bad!(
             "grid: zero step",
             nothing,

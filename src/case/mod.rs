@@ -74,8 +74,9 @@ impl CaseFile {
 /// A file the run read and what it is, for messages ("peer.1.prices (peer \"X\")").
 pub type FileRead = (PathBuf, String);
 
-/// Every file a case names that a run of it reads: the case file, the price and yield files,
-/// the spread table its cost-of-debt source uses and the claimed build-up it reconciles to.
+/// Every file a case names, which no output may replace: the case file, the price and yield
+/// files, the spread tables (both, whichever the cost-of-debt source reads) and the claimed
+/// build-up it reconciles to.
 pub fn files_read(case: &Case) -> Vec<FileRead> {
     let settings = &case.settings;
     let mut files = vec![(case.path.clone(), "the case file".to_string())];
@@ -105,17 +106,16 @@ pub fn files_read(case: &Case) -> Vec<FileRead> {
     for (name, table) in &settings.sources {
         add(&table.file, format!("sources.{name}.file"));
     }
+    // Both spread tables the case names, whichever the cost of debt reads now: a `--set
+    // debt.source` may read the other, and an output must never replace either.
     let debt = &settings.debt;
-    let table = match debt.source {
-        DebtSource::Given => None,
-        DebtSource::Rating => debt.rating_table.as_ref().map(|t| (t, "debt.rating_table")),
-        DebtSource::Coverage => debt
-            .coverage_table
-            .as_ref()
-            .map(|t| (t, "debt.coverage_table")),
-    };
-    if let Some((written, key)) = table {
-        add(written, key.to_string());
+    for (table, key) in [
+        (&debt.rating_table, "debt.rating_table"),
+        (&debt.coverage_table, "debt.coverage_table"),
+    ] {
+        if let Some(written) = table {
+            add(written, key.to_string());
+        }
     }
     if let Some(reconcile) = &settings.reconcile {
         add(&reconcile.claimed, "reconcile.claimed".into());
