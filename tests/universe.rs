@@ -1284,3 +1284,48 @@ fn rolling_betas_equal_those_of_the_case() {
         assert!(stdout.contains(&format!("removed {}", out.join(name).display())));
     }
 }
+
+// `excluded_<flag>` counts the securities a listed flag excludes, not every flag an excluded
+// security raises: with only `stale_prices` listed and an R² floor of 0.99 (every security
+// flagged `low_r_squared`), no security is excluded for low R², and each industry's
+// `excluded_stale_prices` is its count, in securities.csv, of estimated securities flagged
+// `stale_prices` (counting, against the table of securities).
+#[test]
+fn exclusion_counts_follow_the_listed_flags() {
+    let setup = Setup::new();
+    let out = setup.succeeds(
+        "out",
+        &[
+            "beta.exclude_flags=[\"stale_prices\"]",
+            "beta.flag_r_squared_floor=0.99",
+            "beta.flag_stale_share=0.01",
+            "beta.frequency=weekly",
+            "beta.min_observations=20",
+            "beta.max_stale_days=1",
+        ],
+    );
+    let industries = read_table(&out.join("industries.csv"));
+    let securities = read_table(&out.join("securities.csv"));
+    let mut stale_total = 0;
+    for k in 0..industries.height() {
+        let row = industries.slice(k as i64, 1);
+        let industry = text_of(&row, "industry");
+        assert_eq!(number(&row, "excluded_low_r_squared"), 0.0, "{industry}");
+        let flagged = (0..securities.height())
+            .map(|i| securities.slice(i as i64, 1))
+            .filter(|s| text_of(s, "industry") == industry)
+            .filter(|s| text_of(s, "flags").split(';').any(|f| f == "stale_prices"))
+            .count();
+        assert_eq!(
+            number(&row, "excluded_stale_prices"),
+            flagged as f64,
+            "{industry}"
+        );
+        assert_eq!(number(&row, "excluded"), flagged as f64, "{industry}");
+        stale_total += flagged;
+    }
+    assert!(
+        stale_total > 0,
+        "no security was flagged stale: the test checks nothing"
+    );
+}

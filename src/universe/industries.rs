@@ -133,7 +133,7 @@ fn industry_row(
     for flag in super::FLAGS {
         let n = excluded_members
             .iter()
-            .filter(|s| s.flags.contains(&flag))
+            .filter(|s| s.excluding_flags.contains(&flag))
             .count();
         excluded.insert(flag.name(), n);
     }

@@ -74,6 +74,8 @@ pub struct SecurityResult {
     pub stale_share: Option<f64>,
     /// Why the security is left out of the aggregates (`beta.exclude_flags`), or `None`.
     pub excluded_reason: Option<String>,
+    /// The flags that exclude it: those it raises that `beta.exclude_flags` lists.
+    pub excluding_flags: Vec<PeerFlag>,
     /// The raw beta shrunk by Blume's or Vasicek's method (`beta.adjustment`).
     pub shrunk_beta: Option<f64>,
     pub vasicek: Option<vasicek::Shrunk>,
@@ -131,13 +133,13 @@ pub fn security_row(
     attributes: Option<&AttributeRecord>,
     settings: &RowSettings<'_>,
 ) -> SecurityResult {
-    let (estimate, flags, stale_share, excluded_reason, stability, not_estimated) =
+    let (estimate, flags, stale_share, excluding_flags, stability, not_estimated) =
         match &estimated.outcome {
             Ok(e) => (
                 Some(e.estimate.clone()),
                 e.flags.clone(),
                 Some(e.stale_share),
-                exclusion(&e.excluding_flags),
+                e.excluding_flags.clone(),
                 e.stability.clone(),
                 None,
             ),
@@ -145,11 +147,12 @@ pub fn security_row(
                 None,
                 Vec::new(),
                 None,
-                None,
+                Vec::new(),
                 None,
                 Some((*reason, detail.clone())),
             ),
         };
+    let excluded_reason = exclusion(&excluding_flags);
     let beta_used = adjusted.map(|a| a.used);
     let missing = missing(attributes, settings.cash_column);
     let figure = |f: fn(&AttributeRecord) -> Option<f64>| attributes.and_then(f);
@@ -177,6 +180,7 @@ pub fn security_row(
         flags,
         stale_share,
         excluded_reason,
+        excluding_flags,
         shrunk_beta: adjusted.and_then(|a| a.shrunk),
         vasicek: adjusted.and_then(|a| a.vasicek),
         beta_used,
