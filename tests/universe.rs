@@ -1329,3 +1329,42 @@ fn exclusion_counts_follow_the_listed_flags() {
         "no security was flagged stale: the test checks nothing"
     );
 }
+
+// A sample standard deviation (n − 1) of one value is undefined (numpy's std with ddof = 1
+// gives nan): an industry of one security has an empty std_dev cell, not 0, beside its count
+// of 1 and a median equal to that security's beta.
+#[test]
+fn an_industry_of_one_has_no_standard_deviation() {
+    let setup = Setup::new();
+    let attributes = setup.dir().join("attributes.csv");
+    let text = fs::read_to_string(&attributes).unwrap();
+    let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
+    let at = header.iter().position(|c| *c == "industry").unwrap();
+    let edited: String = text
+        .lines()
+        .map(|line| {
+            let mut cells: Vec<&str> = line.split(',').collect();
+            if cells[0] == "S01" {
+                cells[at] = "Solo";
+            }
+            cells.join(",") + "\n"
+        })
+        .collect();
+    fs::write(&attributes, edited).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let industries = read_table(&out.join("industries.csv"));
+    let mask = industries
+        .column("industry")
+        .unwrap()
+        .str()
+        .unwrap()
+        .equal("Solo");
+    let solo = industries.filter(&mask).unwrap();
+    assert_eq!(number(&solo, "beta_count"), 1.0);
+    assert_eq!(text_of(&solo, "std_dev_beta"), "");
+    let securities = read_table(&out.join("securities.csv"));
+    assert_eq!(
+        number(&solo, "median_beta"),
+        number(&security_row(&securities, "S01"), "beta")
+    );
+}

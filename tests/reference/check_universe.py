@@ -189,7 +189,8 @@ def summary(values, weights, prefix):
         f"upper_quartile_{prefix}": np.percentile(v, 75),
         f"min_{prefix}": np.min(v),
         f"max_{prefix}": np.max(v),
-        f"std_dev_{prefix}": np.std(v, ddof=1) if len(v) > 1 else 0.0,
+        # A sample standard deviation of one value is undefined (numpy: nan); an empty cell.
+        f"std_dev_{prefix}": np.std(v, ddof=1) if len(v) > 1 else None,
         f"trimmed_mean_{prefix}": stats.trim_mean(v, 0.1),
     })
     if weights:
