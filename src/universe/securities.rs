@@ -12,7 +12,7 @@ use super::estimate::{NotEstimated, SecurityEstimate};
 use crate::beta::diagnostics::PeerFlag;
 use crate::beta::rolling::Stability;
 use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
-use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms};
+use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
 use crate::case::sanity::MAX_DEBT_TO_EQUITY;
 use crate::case::LeverageSettings;
 use crate::market::sampling::DroppedPeriods;
@@ -232,12 +232,15 @@ pub const NET_DEBT_AT_OR_BELOW_MINUS_EQUITY: &str = "net_debt_at_or_below_minus_
 pub const DEBT_TO_EQUITY_ABOVE_LIMIT: &str = "debt_to_equity_above_limit";
 /// `unlevering_issue` when cash is not below equity plus debt (no operations to take a beta of).
 pub const CASH_NOT_BELOW_EQUITY_PLUS_DEBT: &str = "cash_not_below_equity_plus_debt";
+/// `unlevering_issue` when the given debt beta is above the security's equity beta, under a
+/// formula that uses it: unlevering would raise the beta (a case refuses such a peer).
+pub const DEBT_BETA_ABOVE_EQUITY_BETA: &str = "debt_beta_above_equity_beta";
 
 // The notes below say "10": the case's limit, checked here so the two cannot drift apart.
 const _: () = assert!(MAX_DEBT_TO_EQUITY == 10.0);
 
 /// Each `unlevering_issue` with what it means, for the notes.
-pub const UNLEVERING_ISSUES: [(&str, &str); 3] = [
+pub const UNLEVERING_ISSUES: [(&str, &str); 4] = [
     (
         DEBT_TO_EQUITY_ABOVE_LIMIT,
         "a D/E above 10 (debt over 10/11 of capital), where no leverage formula holds, and so no \
@@ -250,6 +253,11 @@ pub const UNLEVERING_ISSUES: [(&str, &str); 3] = [
     (
         CASH_NOT_BELOW_EQUITY_PLUS_DEBT,
         "cash not below equity plus debt, and so no beta of the operations",
+    ),
+    (
+        DEBT_BETA_ABOVE_EQUITY_BETA,
+        "a given debt beta above the security's equity beta, which unlevering would raise, and \
+         so no unlevered beta (a case refuses such a peer)",
     ),
 ];
 
@@ -274,6 +282,10 @@ fn unlever(
     let issue = debt_to_equity.and_then(|de| match de {
         _ if de <= -1.0 => Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY),
         _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
+        // The case's rule (capital::chain), for the formulas that take a debt beta.
+        _ if leverage.formula != Formula::Hamada && beta_used.is_some_and(|b| debt_beta > b) => {
+            Some(DEBT_BETA_ABOVE_EQUITY_BETA)
+        }
         _ => None,
     });
     // Harris–Pringle has no tax term: a missing tax rate does not stop it (the 0 is never read).
@@ -318,7 +330,6 @@ fn unlever(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::capital::leverage::Formula;
 
     /// `unlever` of a beta of 1.2 at a tax rate of 30%.
     fn at(
@@ -351,6 +362,43 @@ mod tests {
         assert!((u.unlevered.unwrap() - 1.2 / 1.35).abs() < 1e-15);
         assert!((u.operations.unwrap() - 1.2 / 1.35 / (2.0 / 3.0)).abs() < 1e-15);
         assert_eq!(u.debt_to_equity, Some(0.5));
+    }
+
+    // A given debt beta above the equity beta: Harris–Pringle's βU = (E·βL + D·βD) / (D + E)
+    // would lie above βL (1.2 → (100·1.2 + 50·1.5) / 150 = 1.3), so, as a case refuses such a
+    // peer, there is no unlevered beta and the issue says why; Hamada, which ignores debt
+    // betas, unlevers as ever; a debt beta at the equity beta is still unlevered.
+    #[test]
+    fn a_debt_beta_above_the_equity_beta_is_not_unlevered() {
+        let harris_pringle = LeverageSettings {
+            formula: Formula::HarrisPringle,
+            ..LeverageSettings::default()
+        };
+        let with = |leverage: &LeverageSettings, debt_beta: f64| {
+            unlever(
+                Some(1.2),
+                Some(100.0),
+                Some(50.0),
+                None,
+                Some(0.3),
+                leverage,
+                debt_beta,
+            )
+        };
+        let above = with(&harris_pringle, 1.5);
+        assert_eq!(
+            (above.unlevered, above.issue),
+            (None, Some(DEBT_BETA_ABOVE_EQUITY_BETA))
+        );
+        let equal = with(&harris_pringle, 1.2);
+        assert_eq!(equal.issue, None);
+        assert!((equal.unlevered.unwrap() - 1.2).abs() < 1e-15);
+        let hamada = LeverageSettings {
+            formula: Formula::Hamada,
+            ..LeverageSettings::default()
+        };
+        assert_eq!(with(&hamada, 1.5).issue, None);
+        assert!((with(&hamada, 1.5).unlevered.unwrap() - 1.2 / 1.35).abs() < 1e-15);
     }
 
     // The case's limits on a peer's structure (common practice, see case::sanity): a D/E above
