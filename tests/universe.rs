@@ -1368,3 +1368,28 @@ fn an_industry_of_one_has_no_standard_deviation() {
         number(&security_row(&securities, "S01"), "beta")
     );
 }
+
+// summary.md says in words what shapes the betas beyond the estimator: the adjustment (with its
+// weight: README's `blume_weight`, 0.67 by default) and the debt betas (a given one, which
+// Hamada does not use).
+#[test]
+fn the_summary_names_the_adjustment_and_the_debt_betas() {
+    let setup = Setup::new();
+    let out = setup.succeeds(
+        "out",
+        &[
+            "beta.adjustment=blume",
+            "leverage.debt_beta_source=given",
+            "leverage.debt_beta=0.2",
+        ],
+    );
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("Adjustment: Blume, weight 0.67 on the raw beta"),
+        "{summary}"
+    );
+    assert!(
+        summary.contains("Debt betas: 0.20 for every security (Hamada, which assumes riskless debt, does not use it)"),
+        "{summary}"
+    );
+}

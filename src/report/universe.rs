@@ -424,6 +424,50 @@ fn industry_table(out: &mut String, r: &UniverseResult) {
     }
 }
 
+/// The settings that shape the betas beyond the estimator, in words: the returns, the
+/// adjustment (the table's levered β is the raw one, βU is unlevered from the adjusted one) and
+/// the debt betas.
+fn return_and_beta_settings(r: &UniverseResult) -> String {
+    let s = &r.settings;
+    let returns = format!(
+        "Returns: {}, {}.",
+        label(&s.beta.returns),
+        if r.window.excess_returns {
+            "in excess of the risk-free series"
+        } else {
+            "not in excess of a risk-free rate (no risk-free series)"
+        }
+    );
+    let adjustment = match (s.beta.adjustment, &r.vasicek_prior) {
+        (crate::beta::Adjustment::Blume, _) => format!(
+            "Adjustment: Blume, weight {} on the raw beta; the table's levered β is the raw \
+             estimate and βU is unlevered from the adjusted beta.",
+            fixed(s.beta.blume_weight, 2)
+        ),
+        (crate::beta::Adjustment::Vasicek, Some(prior)) => format!(
+            "Adjustment: Vasicek, toward a {} prior of mean {} and variance {}; the table's \
+             levered β is the raw estimate and βU is unlevered from the shrunk beta.",
+            prior.source,
+            fixed(prior.mean, 3),
+            fixed(prior.variance, 4)
+        ),
+        _ => "Adjustment: none; βU is unlevered from the raw beta.".to_string(),
+    };
+    let debt = match s.leverage.debt_beta_source {
+        crate::capital::leverage::DebtBetaSource::Given => format!(
+            "Debt betas: {} for every security{}.",
+            fixed(s.leverage.debt_beta, 2),
+            if s.leverage.formula == crate::capital::leverage::Formula::Hamada {
+                " (Hamada, which assumes riskless debt, does not use it)"
+            } else {
+                ""
+            }
+        ),
+        _ => "Debt betas: none (riskless debt).".to_string(),
+    };
+    format!("{returns} {adjustment} {debt}")
+}
+
 /// `summary.md`: what was run, the industry table, the counts and the cautions.
 fn summary(r: &UniverseResult) -> String {
     let s = &r.settings;
@@ -456,6 +500,7 @@ fn summary(r: &UniverseResult) -> String {
             " of the unlevered betas"
         },
     );
+    let _ = writeln!(out, "{}\n", return_and_beta_settings(r));
     let c = &r.counts;
     let _ = writeln!(
         out,
