@@ -1393,3 +1393,35 @@ fn the_summary_names_the_adjustment_and_the_debt_betas() {
         "{summary}"
     );
 }
+
+// As in a case (README, `window_start`): a universe file that writes both `window_start` and
+// `lookback` is refused naming both lines; a `--set beta.lookback` over a file's `window_start`
+// leaves the window to `window_start`, and the run's notes say the lookback is not used.
+#[test]
+fn a_window_given_twice_is_refused_or_noted_as_in_a_case() {
+    refused(
+        |dir| {
+            let path = dir.join("universe.toml");
+            let text = fs::read_to_string(&path).unwrap();
+            fs::write(
+                &path,
+                text.replacen("window_start = ", "lookback = 300\nwindow_start = ", 1),
+            )
+            .unwrap();
+        },
+        &[],
+        &["beta.window_start and line", "beta.lookback both set"],
+    );
+    let setup = Setup::new();
+    let plain = setup.succeeds("plain", &[]);
+    let noted = setup.succeeds("noted", &["beta.lookback=300"]);
+    let summary = fs::read_to_string(noted.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("beta.lookback (300) is not used"),
+        "{summary}"
+    );
+    assert_eq!(
+        fs::read(plain.join("industries.csv")).unwrap(),
+        fs::read(noted.join("industries.csv")).unwrap()
+    );
+}

@@ -417,7 +417,16 @@ fn counts_and_notes(
         .filter(|r| panel.position(&r.security).is_none())
         .map(|r| r.security.as_str())
         .collect();
-    let mut notes = Vec::new();
+    // As in a case, window_start sets the window and lookback is not used; said when an
+    // override names either (a file cannot write both), where one may have meant the other.
+    let universe = &inputs.universe;
+    let sets = |key: &str| {
+        (universe.overrides.iter()).any(|o| o.split('=').next().map(str::trim) == Some(key))
+    };
+    let mut notes: Vec<String> = crate::case::sanity::window_note(&universe.settings.beta)
+        .filter(|_| sets("beta.window_start") || sets("beta.lookback"))
+        .into_iter()
+        .collect();
     if !strays.is_empty() {
         notes.push(format!(
             "{} in the attributes ({}) {} no prices in the panel and {} left out: {}",

@@ -220,6 +220,9 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
             e.utf8_error().valid_up_to()
         ))
     })?;
+    // The case's checks on the text: NaN or infinity in any key, and a window given twice
+    // (`window_start` and `lookback` both written), each named with its line.
+    crate::case::sanity::check_case_text(&text).map_err(file_error)?;
     // Parsing the text first keeps the parser's line and column in every message.
     let mut settings: UniverseFile =
         toml::from_str(&text).map_err(|e| file_error(crate::error::toml_error(&e, &text)))?;
