@@ -442,4 +442,28 @@ fn compare_frequencies_prints_every_peer_at_every_frequency() {
         let first_cell = row[name.len()..].split_whitespace().next().unwrap();
         assert_eq!(first_cell, beta, "{row}");
     }
+    // The same comparison as JSON: each daily estimate is the daily run's, to the last bit
+    // (the same regression over the same window).
+    let output = hurdle(&[
+        "betas",
+        DEMO_CASE,
+        "--compare-frequencies",
+        "--format",
+        "json",
+    ]);
+    assert!(output.status.success());
+    let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let frequencies = json["frequencies"].as_array().unwrap();
+    assert_eq!(frequencies.len(), 4);
+    assert_eq!(frequencies[0]["frequency"], "daily");
+    for (listed, peer) in frequencies[0]["peers"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(daily["peers"].as_array().unwrap())
+    {
+        assert_eq!(listed["name"], peer["name"]);
+        assert_eq!(listed["estimate"]["beta"], peer["beta"]);
+        assert_eq!(listed["estimate"]["beta_std_error"], peer["beta_std_error"]);
+    }
 }

@@ -35,7 +35,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     if args.compare_frequencies {
         let runs = hurdle::audit::frequency_comparison::compare_frequencies(&inputs, &estimates)?;
-        print!("{}", comparison_table(&inputs.case, &estimates, &runs));
+        match args.format {
+            Format::Table => print!("{}", comparison_table(&inputs.case, &estimates, &runs)),
+            Format::Json => println!("{}", comparison_json(&inputs.case, &estimates, &runs)),
+        }
         return Ok(());
     }
     let peers = hurdle::valuation::listing::list_betas(&inputs.case, &inputs, &estimates)?;
@@ -57,6 +60,36 @@ fn name_width(case: &Case) -> usize {
         .max()
         .unwrap_or(4)
         .max(4)
+}
+
+/// The frequency comparison as JSON: the window, then per frequency either the reason there is
+/// no estimate or each peer's estimate (the `peers[]` statistics of `result.json`).
+fn comparison_json(case: &Case, base: &PeerEstimates, runs: &[FrequencyRun]) -> String {
+    let frequencies: Vec<serde_json::Value> = runs
+        .iter()
+        .map(|run| match &run.estimates {
+            Ok(estimates) => serde_json::json!({
+                "frequency": run.frequency,
+                "reason": null,
+                "peers": case.settings.peers.iter().zip(&estimates.peers).map(|(peer, e)| {
+                    serde_json::json!({ "name": peer.name, "estimate": e.estimate })
+                }).collect::<Vec<_>>(),
+            }),
+            Err(reason) => serde_json::json!({
+                "frequency": run.frequency,
+                "reason": reason,
+                "peers": [],
+            }),
+        })
+        .collect();
+    let document = serde_json::json!({
+        "window_start": base.window_start.to_string(),
+        "window_end": base.window_end.to_string(),
+        "method": base.spec.estimator.method,
+        "std_errors": base.spec.estimator.std_errors,
+        "frequencies": frequencies,
+    });
+    serde_json::to_string_pretty(&document).expect("estimates always serialise")
 }
 
 fn comparison_table(case: &Case, base: &PeerEstimates, runs: &[FrequencyRun]) -> String {

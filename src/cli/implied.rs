@@ -20,7 +20,8 @@ pub struct Args {
     /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium.
     #[arg(long)]
     pub solve: Target,
-    /// The range to search, LOW..HIGH (default: a wide plausible range for the input).
+    /// The range to search, LOW..HIGH (default: a wide plausible range for the input). For
+    /// debt_to_equity always in D/E, also when the case's target is a debt-to-capital.
     #[arg(long, value_name = "LOW..HIGH", value_parser = parse_range)]
     pub range: Option<(f64, f64)>,
 }
@@ -121,8 +122,16 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
             Ok(ExitCode::SUCCESS)
         }
         _ => {
+            // A debt-to-capital case searches the D/E range mapped to debt-to-capital.
+            let given = match (args.range, r.key.as_str()) {
+                (Some((low, high)), "target.debt_to_capital") => {
+                    format!(" (the D/E range {}..{})", show(low), show(high))
+                }
+                _ => String::new(),
+            };
             println!(
-                "no value of {} in [{}, {}] reproduces it: the WACC there runs from {} to {}",
+                "no value of {} in [{}, {}]{given} reproduces it: the WACC there runs from {} to \
+                 {}",
                 r.key,
                 show(r.range.0),
                 show(r.range.1),
