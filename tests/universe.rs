@@ -449,6 +449,12 @@ fn a_security_whose_price_never_moves_is_not_estimated() {
     ];
     // 1e-15: the mean of two numbers near 1, one rounding apart at most.
     assert!((number(&a, "median_beta") - (others[0] + others[1]) / 2.0).abs() < 1e-15);
+    // Not estimated, its usable returns are still counted: the window's periods less those
+    // dropped (identity).
+    let s03 = security_row(&securities, "S03");
+    let usable = number(&s03, "periods_in_window") - number(&s03, "periods_dropped");
+    assert!(usable > 0.0);
+    assert_eq!(number(&s03, "observations"), usable);
 }
 
 // A security whose prices are the index's (a fund tracking it, or the index itself listed in

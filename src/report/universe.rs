@@ -186,11 +186,7 @@ fn sample_columns(t: &mut Table, rows: &[SecurityResult]) {
         "periods_in_window",
         rows.iter().map(|r| Some(r.periods_in_window)),
     );
-    t.count(
-        "observations",
-        rows.iter()
-            .map(|r| r.estimate.as_ref().map(|e| e.observations)),
-    );
+    t.count("observations", rows.iter().map(|r| r.observations));
     t.count("periods_dropped", dropped(|d| d.total));
     t.count("dropped_price_missing", dropped(|d| d.asset_missing));
     t.count("dropped_index_missing", dropped(|d| d.market_missing));

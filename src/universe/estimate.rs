@@ -85,6 +85,10 @@ pub struct Estimated {
 #[derive(Debug, Clone)]
 pub struct SecurityEstimate {
     pub periods_dropped: Option<DroppedPeriods>,
+    /// The usable returns in the window, also for a security not estimated (too few of them,
+    /// a flat index over them, or a regression whose result is set aside); `None` when the
+    /// returns were never counted (a price jump, an estimator that failed).
+    pub observations: Option<usize>,
     pub outcome: Result<Estimated, (NotEstimated, String)>,
     /// Rolling OLS betas, when asked for.
     pub rolling: Vec<RollingPoint>,
@@ -153,6 +157,7 @@ impl Estimation {
         if let Some(detail) = first_jump(prices, self.window.start(), self.window.end()) {
             return SecurityEstimate {
                 periods_dropped: None,
+                observations: None,
                 outcome: Err((NotEstimated::PriceJump, detail)),
                 rolling: Vec::new(),
             };
@@ -176,11 +181,13 @@ impl Estimation {
         match (estimated, unfit) {
             (Ok(e), Some(unfit)) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
+                observations: Some(e.estimate.observations),
                 outcome: Err(unfit),
                 rolling: Vec::new(),
             },
             (Ok(e), None) => SecurityEstimate {
                 periods_dropped: Some(e.dropped),
+                observations: Some(e.estimate.observations),
                 outcome: Ok(Estimated {
                     estimate: e.estimate,
                     periods_in_window: e.periods_in_window,
@@ -193,6 +200,7 @@ impl Estimation {
             },
             (Err(EstimateError::TooFewReturns { usable, dropped }), _) => SecurityEstimate {
                 periods_dropped: Some(dropped),
+                observations: Some(usable),
                 outcome: Err((
                     NotEstimated::TooFewObservations,
                     format!(
@@ -210,6 +218,7 @@ impl Estimation {
             },
             (Err(EstimateError::FlatIndex { periods }), _) => SecurityEstimate {
                 periods_dropped: None,
+                observations: Some(periods),
                 outcome: Err((
                     NotEstimated::FlatIndex,
                     format!(
@@ -220,6 +229,7 @@ impl Estimation {
             },
             (Err(EstimateError::Estimator(message)), _) => SecurityEstimate {
                 periods_dropped: None,
+                observations: None,
                 outcome: Err((NotEstimated::EstimatorFailed, message)),
                 rolling: Vec::new(),
             },

@@ -62,6 +62,8 @@ pub struct SecurityResult {
     /// Prices the panel holds for the security.
     pub prices: usize,
     pub periods_in_window: usize,
+    /// The usable returns in the window (also for a security not estimated, when counted).
+    pub observations: Option<usize>,
     /// Periods left out of the regression by reason (`None` when not known: a flat index or an
     /// estimator that failed).
     pub periods_dropped: Option<DroppedPeriods>,
@@ -173,6 +175,7 @@ pub fn security_row(
         industry: attributes.and_then(|a| a.industry.clone()),
         prices,
         periods_in_window: settings.periods_in_window,
+        observations: estimated.observations,
         periods_dropped: estimated.periods_dropped,
         estimate,
         not_estimated: not_estimated.as_ref().map(|(r, _)| *r),

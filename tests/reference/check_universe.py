@@ -153,6 +153,10 @@ def securities(config, folder):
                    for (_, q), (d, p) in zip(series, series[1:]))
         if len(pairs) >= beta.get("min_observations", 36) and not jump:
             row.update(regression([a for a, _ in pairs], [m for _, m in pairs]))
+        elif not jump:
+            # Too few usable returns: not estimated, but the count is reported (a price jump
+            # stops the security before its returns are counted).
+            row["observations"] = len(pairs)
         a = attributes.get(security)
         if a is not None:
             row["industry"] = a[attrs.get("industry_column", "industry")] or None
