@@ -192,6 +192,19 @@ fn implied_returns_a_scan_value_that_meets_the_claim_exactly() {
     let report = text(&output);
     assert_eq!(output.status.code(), Some(0), "{report}");
     assert_eq!(exact_line(&report, "market.equity_risk_premium="), "0.05");
+    // A range that starts below zero is taken as written, without `--range=` (the risk-free
+    // rate's own default starts at −2%); the demo's 7.38% is met inside it.
+    let output = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        "0.07",
+        "--solve",
+        "risk_free",
+        "--range",
+        "-0.02..0.05",
+    ]);
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output));
 }
 
 // A target D/E or ERP the case accepts always has its memo grid: the default

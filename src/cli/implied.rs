@@ -15,14 +15,15 @@ pub struct Args {
     #[command(flatten)]
     pub case: CaseArgs,
     /// The claimed WACC, as a decimal (0.091 for 9.1%).
-    #[arg(long, value_parser = hurdle::valuation::sanity::check_rate_argument)]
+    #[arg(long, allow_hyphen_values = true, value_parser = hurdle::valuation::sanity::check_rate_argument)]
     pub wacc: f64,
     /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium.
     #[arg(long)]
     pub solve: Target,
     /// The range to search, LOW..HIGH (default: a wide plausible range for the input). For
     /// debt_to_equity always in D/E, also when the case's target is a debt-to-capital.
-    #[arg(long, value_name = "LOW..HIGH", value_parser = parse_range)]
+    // A range may start below zero (the risk-free rate's default is −0.02..0.20).
+    #[arg(long, value_name = "LOW..HIGH", allow_hyphen_values = true, value_parser = parse_range)]
     pub range: Option<(f64, f64)>,
 }
 

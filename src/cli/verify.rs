@@ -18,7 +18,7 @@ pub struct Args {
     #[arg(long, value_name = "CASE.toml")]
     pub case: Option<PathBuf>,
     /// Relative tolerance for numbers, in [0, 1e-6] (0: bit for bit).
-    #[arg(long, default_value_t = DEFAULT_TOLERANCE, value_parser = hurdle::valuation::sanity::check_tolerance)]
+    #[arg(long, default_value_t = DEFAULT_TOLERANCE, allow_hyphen_values = true, value_parser = hurdle::valuation::sanity::check_tolerance)]
     pub tolerance: f64,
     /// Also write verification.json into this folder.
     #[arg(long, value_name = "DIR")]
