@@ -671,6 +671,45 @@ fn init(args: &[&str]) -> Output {
     hurdle(&all)
 }
 
+// Two headers that read alike on one line (a wrapped "A" line break "B" and "A B") give two
+// peers whose names must differ (case validation refuses a repeated name): the later is
+// numbered, each `column` keeps its header as written, and the written case parses.
+#[test]
+fn init_names_peers_apart_when_their_headers_read_alike() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = dir.path().join("alike.csv");
+    fs::write(
+        &table,
+        "date,Index,\"A\nB\",A B\n2024-01-31,100,10,20\n2024-02-29,101,11,21\n",
+    )
+    .unwrap();
+    let out = dir.path().join("case.toml");
+    let output = init(&[
+        table.to_str().unwrap(),
+        "--index",
+        "Index",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let written = fs::read_to_string(&out).unwrap();
+    let case: toml::Table = toml::from_str(&written).unwrap();
+    let peers = case["peer"].as_array().unwrap();
+    let field = |i: usize, key: &str| peers[i][key].as_str().unwrap().to_string();
+    assert_eq!(
+        (field(0, "name"), field(0, "column")),
+        ("A B".into(), "A\nB".into())
+    );
+    assert_eq!(
+        (field(1, "name"), field(1, "column")),
+        ("A B (2)".into(), "A B".into())
+    );
+}
+
 #[test]
 fn init_refuses_a_table_without_peers_or_dates() {
     let dir = tempfile::tempdir().unwrap();

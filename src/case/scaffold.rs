@@ -95,8 +95,20 @@ pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<Strin
     text.push_str(&market(options));
     text.push_str(&defaults_sections());
     text.push_str(&capital_sections());
+    // Names must be unique; of two headers that read alike on one line (`A\nB` and `A B`),
+    // the later is numbered (`A B (2)`), so the case runs as written; `column` keeps each
+    // header as it is.
+    let mut names: Vec<String> = Vec::new();
     for peer in peers {
-        text.push_str(&peer_table(peer));
+        let plain = display_name(peer);
+        let mut name = plain.clone();
+        let mut n = 1;
+        while names.contains(&name) {
+            n += 1;
+            name = format!("{plain} ({n})");
+        }
+        text.push_str(&peer_table(peer, &name));
+        names.push(name);
     }
     Ok(text)
 }
@@ -358,7 +370,7 @@ fn capital_sections() -> String {
     text
 }
 
-fn peer_table(column: &str) -> String {
+fn peer_table(column: &str, name: &str) -> String {
     format!(
         "\n[[peer]]\n\
          name = {name}\n\
@@ -368,7 +380,7 @@ fn peer_table(column: &str) -> String {
          debt = {debt}\n\
          cash = {cash}\n\
          tax_rate = {tax}\n",
-        name = quoted(&display_name(column)),
+        name = quoted(name),
         column = quoted(column),
         equity = placeholder("market value of equity, in one unit for every peer"),
         debt = placeholder("total (gross) debt, same unit"),
@@ -454,7 +466,7 @@ mod tests {
     fn a_wrapped_header_names_its_peer_on_one_line() {
         assert_eq!(display_name("Alder\nTree"), "Alder Tree");
         assert_eq!(display_name(" Birch\r\n\tand  Elm "), "Birch and Elm");
-        let table = peer_table("Alder\nTree");
+        let table = peer_table("Alder\nTree", &display_name("Alder\nTree"));
         assert!(table.contains("name = \"Alder Tree\"\n"), "{table}");
         assert!(
             table.contains("column = \"\"\"\nAlder\nTree\"\"\"\n"),
