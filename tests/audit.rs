@@ -238,6 +238,18 @@ fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
     .map(|v| v.as_f64().unwrap())
     .collect();
     assert_eq!(rows, [0.989, 0.994, 0.999]);
+    // An ERP with every digit `implied` prints keeps its own row exactly (the other steps are
+    // rounded to 12 decimals), so the case's cell is on the grid.
+    let erp = 0.0787745187207365;
+    let result = run_case(
+        &case_dir.join("case.toml"),
+        &dir.path().join("exact"),
+        &["--set", &format!("market.equity_risk_premium={erp}")],
+    );
+    let grid = &result["sensitivity"];
+    assert_eq!(grid["rows"]["values"][2].as_f64(), Some(erp));
+    assert_eq!(grid["base_cell"], serde_json::json!([2, 2]));
+    assert_eq!(grid["cells"][2][2], result["wacc"]);
 }
 
 // A receipt records its case path as it was typed (`case.toml`, relative to the folder the run
@@ -269,6 +281,24 @@ fn verify_from_another_folder_reruns_the_receipts_own_case() {
     let report = text(&verify);
     assert_eq!(verify.status.code(), Some(0), "{report}");
     assert!(report.contains("(case ../case/case.toml)"), "{report}");
+}
+
+// A receipt written by another version of hurdle still reproduces when every file and figure
+// agrees: the version is named, not compared as a figure.
+#[test]
+fn a_receipt_of_another_version_reproduces_and_names_it() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    run_case(&case_dir.join("case.toml"), &out, &[]);
+    let receipt = out.join("result.json");
+    let mut recorded: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
+    recorded["tool"]["version"] = "0.0.1".into();
+    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    let verify = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(0), "{report}");
+    assert!(report.contains("written by hurdle 0.0.1"), "{report}");
 }
 
 // verify checks the hash of every file the receipt records: the spread table the cost of debt

@@ -97,6 +97,44 @@ fn specification_rows_equal_separate_set_runs() {
     }
 }
 
+// A case that writes its rolling window (README's default written out: half the 60-period
+// window, 30, and 24 observations) still gets every specification row: the rows scale the
+// rolling keys as they scale the minimum observations, and record them, so the 2-year monthly
+// row (24 periods) equals `hurdle run --set` with its recorded values.
+#[test]
+fn specification_rows_scale_a_rolling_window_the_case_sets() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_demo_case(&dir.path().join("case"));
+    let case = dir.path().join("case/case.toml");
+    let written = [
+        "--set",
+        "beta.rolling_window=30",
+        "--set",
+        "beta.rolling_min_observations=24",
+    ];
+    let base = run(&case, &dir.path().join("base"), &written);
+    let rows = base["uncertainty"]["specifications"].as_array().unwrap();
+    assert!(rows.iter().all(|r| r["wacc"].is_number()), "{rows:?}");
+    let monthly = rows
+        .iter()
+        .find(|r| r["frequency"] == "monthly" && r["window"] == "2y")
+        .unwrap();
+    let mut sets: Vec<String> = written.iter().map(|s| s.to_string()).collect();
+    for assignment in monthly["overrides"].as_array().unwrap() {
+        sets.extend([
+            "--set".to_string(),
+            assignment.as_str().unwrap().to_string(),
+        ]);
+    }
+    assert!(
+        sets.iter().any(|s| s.starts_with("beta.rolling_window=")),
+        "{sets:?}"
+    );
+    let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+    let rerun = run(&case, &dir.path().join("row"), &sets);
+    assert_eq!(number(&rerun, "wacc"), monthly["wacc"].as_f64().unwrap());
+}
+
 // A cross-sectional Vasicek prior needs two peers with different betas (Vasicek 1973: the
 // prior is the cross-section's mean and variance). With exactly two peers aggregated the case
 // is valid, but leaving one out leaves one: that row has no WACC and says why, and the run
@@ -123,6 +161,18 @@ fn leave_one_out_of_two_vasicek_peers_has_no_wacc_and_says_why() {
     }
     let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
     assert!(memo.contains("n/a (one peer left: a cross-sectional Vasicek prior needs two"));
+    // One aggregated peer: leaving it out leaves none, said as such (and the run goes on).
+    let mut sets = Vec::new();
+    for peer in 1..8 {
+        sets.extend(["--set".to_string(), format!("peer.{peer}.exclude=kept out")]);
+    }
+    let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+    let one = dir.path().join("one");
+    let result = run(&dir.path().join("case/case.toml"), &one, &sets);
+    let rows = result["uncertainty"]["leave_one_out"].as_array().unwrap();
+    assert!(rows.len() == 1 && rows[0]["wacc"].is_null() && rows[0].get("reason").is_none());
+    let memo = std::fs::read_to_string(one.join("memo.md")).unwrap();
+    assert!(memo.contains("n/a (no peer left)"), "{memo}");
     // The demo's own receipt has no `reason` in its rows (a WACC in each).
     let plain = run(
         &dir.path().join("case/case.toml"),

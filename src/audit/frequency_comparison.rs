@@ -40,10 +40,16 @@ pub fn compare_frequencies(inputs: &Inputs, base: &PeerEstimates) -> Result<Vec<
             beta.window_end = Some(CaseDate(base.window_end));
             let valuation_date = variant.case.settings.case.valuation_date.0;
             let periods = f64::from(beta.lookback_periods(valuation_date));
-            beta.min_observations = ((f64::from(base_settings.min_observations) * periods
-                / base_periods)
-                .ceil() as u32)
-                .max(3);
+            let scaled = |count: u32| (f64::from(count) * periods / base_periods).ceil() as u32;
+            beta.min_observations = scaled(base_settings.min_observations).max(3);
+            // Rolling windows the case sets are scaled the same way (their defaults follow the
+            // window by themselves), so that a quarterly run is not refused for a monthly one.
+            beta.rolling_window = base_settings.rolling_window.map(|w| scaled(w).max(3));
+            beta.rolling_min_observations = base_settings.rolling_min_observations.map(|m| {
+                scaled(m)
+                    .max(3)
+                    .min(beta.rolling_window.unwrap_or(u32::MAX))
+            });
             let estimates = validate(&variant.case.settings)
                 .and_then(|()| estimate_peers(&variant.case, &variant).map_err(|e| e.to_string()));
             FrequencyRun {

@@ -92,17 +92,28 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
 /// A rate's step the case would refuse (an ERP of 0.995 + 0.01) is left off its axis, so a case
 /// the valuation accepts always has its grid.
 pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
+    // The steps are rounded to 12 decimals (0.0567, not 0.056700000000000004); the case's own
+    // value is kept exactly, so its cell is the case itself.
     let round = |v: f64| (v * 1e12).round() / 1e12;
     let around = |key: &str, centre: f64| Axis {
         key: key.into(),
         values: (-2..=2)
-            .map(|i| round(centre + 0.005 * f64::from(i)))
+            .map(|i| match i {
+                0 => centre,
+                _ => round(centre + 0.005 * f64::from(i)),
+            })
             .filter(|&v| crate::valuation::sanity::accepts(key, v))
             .collect(),
     };
-    let from_zero = |key: &str, span: f64| Axis {
+    // From 0 to `span` in quarters; the middle step is `own` when the span is twice it.
+    let from_zero = |key: &str, span: f64, own: f64| Axis {
         key: key.into(),
-        values: (0..=4).map(|i| round(span * f64::from(i) / 4.0)).collect(),
+        values: (0..=4)
+            .map(|i| match i {
+                2 if span == 2.0 * own => own,
+                _ => round(span * f64::from(i) / 4.0),
+            })
+            .collect(),
     };
     let rows = around(
         "market.equity_risk_premium",
@@ -117,10 +128,12 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
             } else {
                 1.0
             },
+            de,
         ),
         (TargetSource::Explicit, None, Some(dc)) => from_zero(
             "target.debt_to_capital",
             if dc > 0.0 { (2.0 * dc).min(0.9) } else { 0.8 },
+            dc,
         ),
         _ => around("market.risk_free_rate", valuation.cost.risk_free_rate),
     };

@@ -63,10 +63,23 @@ fn row(
                 "the case fixes beta.window_start = {start}, which a lookback does not replace"
             ));
         }
+        let beta = &case.settings.beta;
         overrides.push(format!(
             "beta.min_observations={}",
-            scaled_minimum(case, frequency, years)
+            scaled(case, beta.min_observations, frequency, years)
         ));
+        // Rolling windows the case sets are scaled too (their defaults follow the window by
+        // themselves); without them a 2-year monthly row could not hold a 30-period window.
+        let window = beta
+            .rolling_window
+            .map(|w| scaled(case, w, frequency, years));
+        if let Some(window) = window {
+            overrides.push(format!("beta.rolling_window={window}"));
+        }
+        if let Some(min) = beta.rolling_min_observations {
+            let min = scaled(case, min, frequency, years).min(window.unwrap_or(u32::MAX));
+            overrides.push(format!("beta.rolling_min_observations={min}"));
+        }
         let variant = variants.with(&overrides).map_err(|e| e.to_string())?;
         // Only the WACC is read, so a re-estimation skips what only the charts and intervals read.
         let estimated = if estimates.fit(&variant) {
@@ -93,9 +106,10 @@ fn row(
     }
 }
 
-/// The case's minimum observations scaled to a window of `years` at `frequency`: ceil(min ·
-/// periods / the case's periods), at least 3 and at most the window's periods.
-fn scaled_minimum(case: &Case, frequency: Frequency, years: u32) -> u32 {
+/// A count of the case's periods (its minimum observations, a rolling window) scaled to a
+/// window of `years` at `frequency`: ceil(count · periods / the case's periods), at least 3 and
+/// at most the window's periods.
+fn scaled(case: &Case, count: u32, frequency: Frequency, years: u32) -> u32 {
     let date = case.settings.case.valuation_date.0;
     let beta = &case.settings.beta;
     let base = f64::from(beta.lookback_periods(date));
@@ -108,7 +122,6 @@ fn scaled_minimum(case: &Case, frequency: Frequency, years: u32) -> u32 {
         ..beta.clone()
     };
     let periods = variant.lookback_periods(date);
-    let scaled =
-        (f64::from(case.settings.beta.min_observations) * f64::from(periods) / base).ceil();
+    let scaled = (f64::from(count) * f64::from(periods) / base).ceil();
     (scaled as u32).clamp(3, periods.max(3))
 }

@@ -3,8 +3,8 @@
 //! The case file is read from the path the receipt records (or one the reviewer gives), with
 //! the receipt's overrides; every input file's SHA-256 is compared with the recorded one; the
 //! full run is repeated and every leaf of the recorded JSON is compared with the rerun's, numbers
-//! within a relative tolerance and everything else exactly. Only `generated_at` and `case.file`
-//! (the path the case was found at) are skipped. A sentence that describes a setting in words
+//! within a relative tolerance and everything else exactly. Only `generated_at`, `case.file`
+//! (the path the case was found at) and `tool.version` (which the report names) are skipped. A sentence that describes a setting in words
 //! ([`WORDING_KEYS`]) and reads differently is listed apart: a later version may word it better,
 //! and the setting it describes is compared as a value of its own.
 
@@ -307,8 +307,9 @@ fn compare_at(
     tolerance: f64,
     found: &mut Comparison,
 ) {
-    // When it ran and where the case was found from are not figures; the hashes are compared.
-    if path == "generated_at" || path == "case.file" || path == "universe.file" {
+    // When it ran, where the case was found from and which version wrote it are not figures
+    // (the hashes are compared, and the report names both versions when they differ).
+    if ["generated_at", "case.file", "universe.file", "tool.version"].contains(&path.as_str()) {
         return;
     }
     let child = |key: &str| {

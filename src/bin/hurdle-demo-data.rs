@@ -9,11 +9,32 @@ use hurdle::demo::{generate, PEERS, SEED};
 use hurdle::demo_wide::generate_wide;
 use hurdle::report::format::fixed;
 
+const USAGE: &str = "usage: hurdle-demo-data [CASE_DIR]  (default cases/quillmarsh; also writes \
+CASE_DIR-wide)";
+
 fn main() -> ExitCode {
-    let dir = std::env::args_os()
-        .nth(1)
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from("cases/quillmarsh"));
+    let mut args = std::env::args_os().skip(1);
+    let dir = args.next().map(PathBuf::from);
+    // An option (`--help`, `-h`) is not a folder to write into; nor is a second argument.
+    let option = dir
+        .as_ref()
+        .is_some_and(|d| d.to_string_lossy().starts_with('-'));
+    if option || args.next().is_some() {
+        let asked = dir
+            .as_ref()
+            .is_some_and(|d| matches!(d.to_str(), Some("--help" | "-h")));
+        return match asked {
+            true => {
+                println!("{USAGE}");
+                ExitCode::SUCCESS
+            }
+            false => {
+                eprintln!("error: {USAGE}");
+                ExitCode::from(2)
+            }
+        };
+    }
+    let dir = dir.unwrap_or_else(|| PathBuf::from("cases/quillmarsh"));
     let mut wide_dir = dir.clone().into_os_string();
     wide_dir.push("-wide");
     let wide_dir = PathBuf::from(wide_dir);

@@ -20,7 +20,7 @@ pub struct Args {
     /// Relative tolerance for numbers, in [0, 1e-6] (0: bit for bit).
     #[arg(long, default_value_t = DEFAULT_TOLERANCE, allow_hyphen_values = true, value_parser = hurdle::valuation::sanity::check_tolerance)]
     pub tolerance: f64,
-    /// Also write verification.json into this folder.
+    /// Also write verification.json and verification.md into this folder.
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
 }
