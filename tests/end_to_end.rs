@@ -230,6 +230,44 @@ fn the_memo_words_agree_with_the_figures() {
     assert!(memo
         .contains("Hamada's formula assumes riskless debt, so it uses none of these debt betas"));
 
+    // The demo (8 peers, none flagged, its WACC inside its interval) has none of the cautions
+    // that depend on the case; two aggregated peers, all flagged (an R² floor of 0.45 above
+    // both peers' R²), and an ERP range above the case's own ERP each bring theirs.
+    let demo_dir = tempfile::tempdir().unwrap();
+    run_demo(demo_dir.path(), &[]);
+    let demo = std::fs::read_to_string(demo_dir.path().join("memo.md")).unwrap();
+    let conditional = [
+        "**Few peers.**",
+        "**Every aggregated peer is flagged.**",
+        "**Point estimate outside its interval.**",
+    ];
+    assert!(demo.contains("## 13. Cautions"));
+    assert!(conditional.iter().all(|c| !demo.contains(c)));
+    let dir = tempfile::tempdir().unwrap();
+    let mut sets = vec![
+        "--set".to_string(),
+        "beta.flag_r_squared_floor=0.45".to_string(),
+    ];
+    for peer in 2..8 {
+        sets.extend(["--set".to_string(), format!("peer.{peer}.exclude=kept out")]);
+    }
+    let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+    run_demo(dir.path(), &sets);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains(conditional[0]) && memo.contains(conditional[1]),
+        "{memo}"
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &["--set", "uncertainty.equity_risk_premium=[0.06,0.08]"],
+    );
+    assert!(number(&result, "wacc") < number(&result, "uncertainty.p05"));
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains(conditional[2]), "{memo}");
+    assert!(memo.contains("from the betas' estimation error and the stated rate ranges"));
+
     // With the betas of the operations aggregated, the betas chart's text names them, with
     // each peer's figure from result.json (to its three printed decimals).
     let dir = tempfile::tempdir().unwrap();

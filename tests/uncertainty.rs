@@ -152,6 +152,11 @@ fn leave_one_out_of_two_vasicek_peers_has_no_wacc_and_says_why() {
     let result = run(&dir.path().join("case/case.toml"), &out, &sets);
     let rows = result["uncertainty"]["leave_one_out"].as_array().unwrap();
     assert_eq!(rows.len(), 2);
+    // The peer-set draws that resample one peer twice (equal betas: a prior of variance 0, so
+    // each beta shrinks to itself) count at that limit instead of being dropped: every draw
+    // gives a WACC.
+    let u = &result["uncertainty"];
+    assert_eq!(u["peer_set"]["draws"], u["draws"]);
     for row in rows {
         assert!(row["wacc"].is_null(), "{row}");
         assert!(row["reason"]

@@ -249,6 +249,12 @@ fn peer_set_interval(
     let mut buffers = chain::Buffers::default();
     let mut waccs = Vec::with_capacity(u.draws as usize);
     let mut progress = crate::progress::Progress::new("peer-set draws", u64::from(u.draws));
+    // A resample of one peer repeated has equal betas, so a cross-sectional Vasicek prior has
+    // variance 0 and each beta shrinks to their mean, itself: the draw is the unadjusted one.
+    let unadjusted = chain::CapitalSpec {
+        adjustment: crate::beta::Adjustment::None,
+        ..*base
+    };
     for _ in 0..u.draws {
         progress.step()?;
         draw_betas(&mut rng, factor, peers, &mut z, &mut drawn);
@@ -257,11 +263,15 @@ fn peer_set_interval(
             let pick = ((rng.uniform() * included.len() as f64) as usize).min(included.len() - 1);
             sample.push(drawn[included[pick]]);
         }
-        match chain::wacc_with(base, &sample, &mut buffers) {
+        let wacc = match chain::wacc_with(base, &sample, &mut buffers) {
+            // Only a Vasicek prior from a resample of one repeated peer fails: its limit.
+            Err(chain::ChainError::Adjustment(_)) => {
+                chain::wacc_with(&unadjusted, &sample, &mut buffers)
+            }
+            other => other,
+        };
+        match wacc {
             Ok(wacc) => waccs.push(wacc),
-            // Only a Vasicek prior from a resample of one repeated peer fails; that draw says
-            // nothing about the peer set and is left out (and counted).
-            Err(chain::ChainError::Adjustment(_)) => {}
             Err(e) => return Err(chain_error(case, e)),
         }
     }

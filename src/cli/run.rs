@@ -102,10 +102,14 @@ fn summary(v: &Valuation) -> String {
             percent(v.cost.wacc, 2),
             match &v.uncertainty {
                 Some(u) => format!(
-                    ", 90% interval {} to {} (beta estimation error), {} to {} with the peer set \
+                    ", 90% interval {} to {} (beta estimation error{}), {} to {} with the peer set \
                      resampled",
                     percent(u.p05, 2),
                     percent(u.p95, 2),
+                    match u.equity_risk_premium_range.is_some() || u.risk_free_rate_range.is_some() {
+                        true => " and the stated rate ranges",
+                        false => "",
+                    },
                     percent(u.peer_set.p05, 2),
                     percent(u.peer_set.p95, 2)
                 ),
