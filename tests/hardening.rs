@@ -418,6 +418,23 @@ fn a_set_fills_a_placeholder_of_any_type() {
         ],
     );
     assert!(output.status.success(), "{}", stderr(&output));
+    // With every placeholder filled, a bad `--set` is named as such, not the placeholder line.
+    let bad = run_into(
+        &sandbox,
+        &sandbox.root.path().join("bad"),
+        &[
+            "--set",
+            "case.valuation_date=2026-09-30",
+            "--set",
+            "market.equity_risk_premium=0.0517",
+            "--set",
+            "beta.lookback=abc",
+        ],
+    );
+    let message = stderr(&bad);
+    assert_eq!(bad.status.code(), Some(2), "{message}");
+    assert!(message.contains("beta.lookback = \"abc\""), "{message}");
+    assert!(!message.contains("FILL IN"), "{message}");
     let wacc = |dir: &std::path::Path| {
         let result: serde_json::Value =
             serde_json::from_str(&fs::read_to_string(dir.join("result.json")).unwrap()).unwrap();

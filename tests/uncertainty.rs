@@ -133,6 +133,22 @@ fn specification_rows_scale_a_rolling_window_the_case_sets() {
     let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
     let rerun = run(&case, &dir.path().join("row"), &sets);
     assert_eq!(number(&rerun, "wacc"), monthly["wacc"].as_f64().unwrap());
+    // A rolling window every row holds (12 periods) is left as the case writes it: no row
+    // records a rolling override (so receipts written before the scaling still verify).
+    let fits = run(
+        &case,
+        &dir.path().join("fits"),
+        &["--set", "beta.rolling_window=12"],
+    );
+    for row in fits["uncertainty"]["specifications"].as_array().unwrap() {
+        let overrides = row["overrides"].as_array().unwrap();
+        assert!(
+            overrides
+                .iter()
+                .all(|o| !o.as_str().unwrap().starts_with("beta.rolling")),
+            "{row}"
+        );
+    }
 }
 
 // A cross-sectional Vasicek prior needs two peers with different betas (Vasicek 1973: the

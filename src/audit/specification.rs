@@ -68,17 +68,17 @@ fn row(
             "beta.min_observations={}",
             scaled(case, beta.min_observations, frequency, years)
         ));
-        // Rolling windows the case sets are scaled too (their defaults follow the window by
-        // themselves); without them a 2-year monthly row could not hold a 30-period window.
-        let window = beta
-            .rolling_window
-            .map(|w| scaled(case, w, frequency, years));
-        if let Some(window) = window {
+        // A rolling window the case sets that the row's window cannot hold (30 periods in a
+        // 2-year monthly row) is scaled as the minimum observations are; one that fits is left
+        // as it is (the defaults follow the window by themselves).
+        let periods = row_periods(case, frequency, years);
+        if let Some(window) = beta.rolling_window.filter(|&w| w > periods) {
+            let window = scaled(case, window, frequency, years);
             overrides.push(format!("beta.rolling_window={window}"));
-        }
-        if let Some(min) = beta.rolling_min_observations {
-            let min = scaled(case, min, frequency, years).min(window.unwrap_or(u32::MAX));
-            overrides.push(format!("beta.rolling_min_observations={min}"));
+            if let Some(min) = beta.rolling_min_observations {
+                let min = scaled(case, min, frequency, years).min(window);
+                overrides.push(format!("beta.rolling_min_observations={min}"));
+            }
         }
         let variant = variants.with(&overrides).map_err(|e| e.to_string())?;
         // Only the WACC is read, so a re-estimation skips what only the charts and intervals read.
@@ -111,17 +111,21 @@ fn row(
 /// at most the window's periods.
 fn scaled(case: &Case, count: u32, frequency: Frequency, years: u32) -> u32 {
     let date = case.settings.case.valuation_date.0;
-    let beta = &case.settings.beta;
-    let base = f64::from(beta.lookback_periods(date));
+    let base = f64::from(case.settings.beta.lookback_periods(date));
+    let periods = row_periods(case, frequency, years);
+    let scaled = (f64::from(count) * f64::from(periods) / base).ceil();
+    (scaled as u32).clamp(3, periods.max(3))
+}
+
+/// The return periods of a window of `years` at `frequency`, ending where the case's does.
+fn row_periods(case: &Case, frequency: Frequency, years: u32) -> u32 {
     let variant = crate::case::BetaSettings {
         frequency,
         lookback: crate::case::Lookback::Span {
             count: years,
             unit: crate::case::SpanUnit::Years,
         },
-        ..beta.clone()
+        ..case.settings.beta.clone()
     };
-    let periods = variant.lookback_periods(date);
-    let scaled = (f64::from(count) * f64::from(periods) / base).ceil();
-    (scaled as u32).clamp(3, periods.max(3))
+    variant.lookback_periods(case.settings.case.valuation_date.0)
 }

@@ -41,8 +41,8 @@ pub struct FileCheck {
 /// its own (the method, the standard errors, the frequency, the risk-free convention, the
 /// formula's source and its written form, the distribution of the draws), where that value is
 /// compared; and the run's `notes`, sentences for the reader whose counts the receipt records
-/// as figures (`periods_dropped` and its reasons, the flags; a note added or taken away still
-/// changes the list's length and fails). A later version may
+/// as figures (`periods_dropped` and its reasons, the flags), also when a version adds or
+/// drops a note. A later version may
 /// word them better; a receipt written before still reproduces, with the differences listed as
 /// wording. Any change of the setting itself still fails the verification through its value.
 pub const WORDING_KEYS: &[&str] = &[
@@ -308,8 +308,17 @@ fn compare_at(
     found: &mut Comparison,
 ) {
     // When it ran, where the case was found from and which version wrote it are not figures
-    // (the hashes are compared, and the report names both versions when they differ).
-    if ["generated_at", "case.file", "universe.file", "tool.version"].contains(&path.as_str()) {
+    // (the hashes are compared, and the report names both versions when they differ); nor is
+    // the line a spread table's row sits on (the table's hash and the row's rating and spread
+    // are compared; a TOML table's row once recorded its position there, now its line).
+    const PLACES: [&str; 5] = [
+        "generated_at",
+        "case.file",
+        "universe.file",
+        "tool.version",
+        "cost_of_debt.row.line",
+    ];
+    if PLACES.contains(&path.as_str()) {
         return;
     }
     let child = |key: &str| {
@@ -352,7 +361,14 @@ fn compare_at(
         recorded: recorded.clone(),
         recomputed: recomputed.clone(),
     };
-    let wording = recorded.is_string() && recomputed.is_string() && WORDING_KEYS.contains(&key);
+    // A list of sentences (the notes) that another version words differently, or to which it
+    // adds one, is wording too: the figures the notes quote are compared where they are kept.
+    let sentences = |v: &Value| {
+        v.is_string()
+            || v.as_array()
+                .is_some_and(|items| items.iter().all(Value::is_string))
+    };
+    let wording = sentences(recorded) && sentences(recomputed) && WORDING_KEYS.contains(&key);
     if wording {
         found.wording.push(difference);
     } else {

@@ -263,10 +263,11 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
     renamed::check(&table).map_err(case_error)?;
     match CaseFile::deserialize(toml::Value::Table(table.clone())) {
         Ok(case) => Ok(case),
-        // The file's own fault (a placeholder `--set` did not replace, a wrong type), named at
-        // its line; a `--set` may replace a value the file alone could not take (a placeholder
-        // where a number or a date belongs), so the file is only blamed when it still fails.
-        Err(_) if parsed.is_err() => parsed,
+        // The file's own fault (a wrong type no `--set` touched), named at its line. A file
+        // with placeholders fails alone by design; every one was replaced by a `--set` (the
+        // placeholder check comes first), so what fails now is a `--set` or another key, which
+        // the message after the overrides names.
+        Err(_) if parsed.is_err() && placeholders::find(text).is_empty() => parsed,
         Err(e) => Err(Error::AfterOverrides {
             file: path.to_path_buf(),
             overrides: overrides.to_vec(),

@@ -96,7 +96,13 @@ where
     // A formula the workbook was saved without calculating has no stored value, and would read
     // as an empty cell, a missing price: refused instead. (Formulas that cannot be read are left
     // to their values.)
-    if let Ok(formulas) = workbook.worksheet_formula(&name) {
+    // Not for OpenDocument: a formula whose result is empty text ("") is saved there without a
+    // value type, which reads exactly like one never calculated.
+    let formulas = match extension {
+        "ods" => None,
+        _ => workbook.worksheet_formula(&name).ok(),
+    };
+    if let Some(formulas) = formulas {
         let uncalculated = formulas.cells().find(|&(row, column, formula)| {
             let at = (
                 row as u32 + formulas.start().map_or(0, |s| s.0),
@@ -107,11 +113,12 @@ where
         if let Some((row, column, formula)) = uncalculated {
             let (first_row, first_column) = formulas.start().unwrap_or((0, 0));
             return Err(format!(
-                "sheet \"{name}\", cell {}{} holds the formula `={formula}` with no saved value \
+                "sheet \"{name}\", cell {}{} holds the formula `={}` with no saved value \
                  (the workbook was saved without calculating it); open it in its spreadsheet \
                  program, let it calculate, and save it again",
                 super::cells::column_letters(first_column as usize + column),
-                first_row as usize + row + 1
+                first_row as usize + row + 1,
+                formula.trim_start_matches('=')
             ));
         }
     }
