@@ -239,6 +239,33 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
     Ok(())
 }
 
+/// Narrows `[a, b]`, whose ends' gaps to `claimed` differ in sign (`gap_a` at `a`, nonzero), to
+/// adjacent doubles; returns the end whose WACC is nearer the claim.
+fn bisect(
+    wacc_at: &dyn Fn(f64) -> Result<f64>,
+    (mut a, mut gap_a): (f64, f64),
+    mut b: f64,
+    claimed: f64,
+) -> Result<f64> {
+    for _ in 0..200 {
+        let mid = 0.5 * (a + b);
+        if mid <= a || mid >= b {
+            break;
+        }
+        let gap_mid = wacc_at(mid)? - claimed;
+        if gap_mid == 0.0 {
+            return Ok(mid);
+        }
+        if (gap_mid < 0.0) == (gap_a < 0.0) {
+            (a, gap_a) = (mid, gap_mid);
+        } else {
+            b = mid;
+        }
+    }
+    let gap_b = wacc_at(b)? - claimed;
+    Ok(if gap_a.abs() <= gap_b.abs() { a } else { b })
+}
+
 /// What the scan found: the solution (if any), the number of crossing intervals, the lowest and
 /// highest WACC seen, and the values the case refused.
 struct Scan {
@@ -288,36 +315,17 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
     let seen = || gaps.iter().flatten().map(|g| g + claimed);
     let wacc_min = seen().fold(f64::INFINITY, f64::min);
     let wacc_max = seen().fold(f64::NEG_INFINITY, f64::max);
-    let mut value = None;
     // A crossing interval's ends are both accepted, so its left gap is there.
     let first = (0..INTERVALS)
         .find(|&i| crossing(i))
         .and_then(|i| gaps[i].map(|gap| (i, gap)));
-    if let Some((i, 0.0)) = first {
+    let value = match first {
         // The claim is the WACC at a scan value itself; bisecting from a zero gap would walk
         // away from it.
-        value = Some(xs[i]);
-    } else if let Some((i, mut gap_a)) = first {
-        let (mut a, mut b) = (xs[i], xs[i + 1]);
-        for _ in 0..200 {
-            let mid = 0.5 * (a + b);
-            if mid <= a || mid >= b {
-                break;
-            }
-            let gap_mid = wacc_at(mid)? - claimed;
-            if gap_mid == 0.0 {
-                (a, b) = (mid, mid);
-                break;
-            }
-            if (gap_mid < 0.0) == (gap_a < 0.0) {
-                (a, gap_a) = (mid, gap_mid);
-            } else {
-                b = mid;
-            }
-        }
-        let gap_b = wacc_at(b)? - claimed;
-        value = Some(if gap_a.abs() <= gap_b.abs() { a } else { b });
-    }
+        Some((i, 0.0)) => Some(xs[i]),
+        Some((i, gap)) => Some(bisect(wacc_at, (xs[i], gap), xs[i + 1], claimed)?),
+        None => None,
+    };
     Ok(Scan {
         value,
         crossings,

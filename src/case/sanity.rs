@@ -275,6 +275,18 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
     Ok(())
 }
 
+/// A name, title or label the memo, the tables and the workbook show must be one line of text:
+/// a line break (`"A\nB"` in TOML) would split the memo's tables and headings.
+pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String> {
+    if crate::io::sanity::is_one_line(text) {
+        return Ok(());
+    }
+    Err(format!(
+        "{key} = {text:?} holds a line break or another control character: names, titles and \
+         labels are one line of text"
+    ))
+}
+
 /// When `beta.window_start` is given it sets the window and `beta.lookback` is not used; the
 /// run says so (a case file that writes both is refused by [`check_case_text`]).
 pub fn window_note(beta: &crate::case::BetaSettings) -> Option<String> {

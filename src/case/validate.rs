@@ -2,7 +2,7 @@
 //! ratio, window lengths the data can fill, … Each section of the case has its own function;
 //! every message names the key and the offending value.
 
-use super::sanity::MIN_SPREAD_PREMIUM;
+use super::sanity::{one_line, MIN_SPREAD_PREMIUM};
 use super::schema::*;
 
 /// `key = value` must be finite and in [low, high).
@@ -361,18 +361,6 @@ fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     Ok(())
-}
-
-/// A name, title or label the memo, the tables and the workbook show must be one line of text:
-/// a line break (`"A\nB"` in TOML) would split the memo's tables and headings.
-pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String> {
-    if crate::io::sanity::is_one_line(text) {
-        return Ok(());
-    }
-    Err(format!(
-        "{key} = {text:?} holds a line break or another control character: names, titles and \
-         labels are one line of text"
-    ))
 }
 
 /// `[[peer]]`: names unique, figures in range, keys consistent with `[leverage]`.

@@ -58,6 +58,26 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         }
         other => other,
     })?;
+    Ok(print_answer(&r, args.range))
+}
+
+/// The exact value found, as `--set` takes it (the relevered beta is the build-up's, not a
+/// case key), and a note when several intervals of the range cross the claim.
+fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
+    match r.target {
+        Target::Beta => println!("  exact: {value} (the relevered beta; not a --set key)"),
+        _ => println!("  exact: {}={value}", r.key),
+    }
+    if r.crossings > 1 {
+        println!(
+            "  note: {} intervals of the range cross the claim; this is the lowest value",
+            r.crossings
+        );
+    }
+}
+
+/// Prints the answer (a value, a jump, or none in the range) and returns the exit status.
+fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) -> ExitCode {
     let show = |x: f64| {
         if r.key.contains("beta") || r.key.contains("debt_to_") {
             fixed(x, 4)
@@ -97,7 +117,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                 percent(achieved, 6)
             );
             refusals();
-            Ok(ExitCode::from(1))
+            ExitCode::from(1)
         }
         (Some(value), Some(achieved)) => {
             println!(
@@ -106,25 +126,13 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                 show(value),
                 percent(achieved, 6)
             );
-            match r.target {
-                // The relevered beta is the build-up's, not a case key `--set` could take.
-                Target::Beta => {
-                    println!("  exact: {value} (the relevered beta; not a --set key)")
-                }
-                _ => println!("  exact: {}={value}", r.key),
-            }
-            if r.crossings > 1 {
-                println!(
-                    "  note: {} intervals of the range cross the claim; this is the lowest value",
-                    r.crossings
-                );
-            }
+            print_exact(r, value);
             refusals();
-            Ok(ExitCode::SUCCESS)
+            ExitCode::SUCCESS
         }
         _ => {
             // A debt-to-capital case searches the D/E range mapped to debt-to-capital.
-            let given = match (args.range, r.key.as_str()) {
+            let given = match (range, r.key.as_str()) {
                 (Some((low, high)), "target.debt_to_capital") => {
                     format!(" (the D/E range {}..{})", show(low), show(high))
                 }
@@ -140,7 +148,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                 percent(r.wacc_max, 3)
             );
             refusals();
-            Ok(ExitCode::from(1))
+            ExitCode::from(1)
         }
     }
 }

@@ -148,6 +148,26 @@ pub fn read_series_file(
     })
 }
 
+/// A record longer than the header is refused: the shape check reads a quote anywhere as
+/// opening a field, while the csv crate reads a quote inside a field as text, so a decimal comma
+/// after a stray quote reaches the reader.
+fn check_record_length(
+    file: &Path,
+    line: usize,
+    record: &csv::StringRecord,
+    fields: usize,
+) -> Result<()> {
+    if record.len() <= fields {
+        return Ok(());
+    }
+    let text: Vec<&str> = record.iter().collect();
+    Err(Error::DataRow {
+        file: file.to_path_buf(),
+        line,
+        message: super::sanity::extra_fields_message(record.len(), fields, &text.join(",")),
+    })
+}
+
 /// Parses CSV bytes into a validated series; `file` is only used in messages. The shape is
 /// checked first (`sanity::check_csv_shape`: UTF-8, separators, field counts); the csv crate
 /// then hands over each record's cells as borrowed text, which are parsed here so that a bad
@@ -198,18 +218,7 @@ pub fn parse_series(
             return Err(blank_row(blank));
         }
         let line = start.line() as usize;
-        // The shape check reads a quote anywhere as opening a field; the csv crate reads a quote
-        // inside a field as text, so a record can still come out longer than the header.
-        if record.len() > header.len() {
-            let text: Vec<&str> = record.iter().collect();
-            let message =
-                super::sanity::extra_fields_message(record.len(), header.len(), &text.join(","));
-            return Err(Error::DataRow {
-                file: file.to_path_buf(),
-                line,
-                message,
-            });
-        }
+        check_record_length(file, line, &record, header.len())?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();
         let (date, value) = parse_row(
             cell(date_at),

@@ -67,20 +67,7 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
     {
-        let table: TomlTable =
-            toml::from_str(&text).map_err(|e| file_error(crate::error::toml_error(&e, &text)))?;
-        // Each row's line: where its table (or inline table) starts in the file.
-        table
-            .row
-            .into_iter()
-            .map(|row| {
-                let line = text[..row.span().start].matches('\n').count() + 1;
-                SpreadRow {
-                    line,
-                    ..row.into_inner()
-                }
-            })
-            .collect()
+        parse_toml_table(&text, path)?
     } else {
         parse_csv_table(&text, path, coverage)?
     };
@@ -132,12 +119,35 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
     })
 }
 
-fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<SpreadRow>> {
+/// A TOML spread table's rows, each with the line where its table (or inline table) starts.
+fn parse_toml_table(text: &str, path: &Path) -> Result<Vec<SpreadRow>> {
+    let table: TomlTable = toml::from_str(text).map_err(|e| Error::DataFile {
+        file: path.to_path_buf(),
+        message: crate::error::toml_error(&e, text),
+    })?;
+    Ok(table
+        .row
+        .into_iter()
+        .map(|row| {
+            let line = text[..row.span().start].matches('\n').count() + 1;
+            SpreadRow {
+                line,
+                ..row.into_inner()
+            }
+        })
+        .collect())
+}
+
+/// A CSV spread table's records with their lines, after a BOM; a line ending in a carriage
+/// return alone is refused. Line by line (a spread table's cells hold no line breaks), so each
+/// row keeps its line whatever comments and blank lines come before it; the csv crate splits
+/// each line's cells (quoted cells, a trailing carriage return). Blank lines and lines starting
+/// with `#` are skipped.
+fn csv_records(text: &str, path: &Path) -> Result<Vec<(usize, csv::StringRecord)>> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     let bytes = text.as_bytes();
-    if let Some(at) =
-        (0..bytes.len()).find(|&i| bytes[i] == b'\r' && bytes.get(i + 1) != Some(&b'\n'))
-    {
+    let lone_cr = (0..bytes.len()).find(|&i| bytes[i] == b'\r' && bytes.get(i + 1) != Some(&b'\n'));
+    if let Some(at) = lone_cr {
         let line_start = bytes[..at]
             .iter()
             .rposition(|&b| b == b'\n')
@@ -148,14 +158,11 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
             message: super::sanity::lone_carriage_return(at - line_start + 1),
         });
     }
-    // Line by line (a spread table's cells hold no line breaks), so each row keeps its line
-    // whatever comments and blank lines come before it; the csv crate splits each line's cells
-    // (quoted cells, a trailing carriage return). Blank lines and lines starting with `#` are
-    // skipped.
-    let mut records = text
+    let lines = text
         .split('\n')
         .enumerate()
-        .map(|(i, line)| (i + 1, line.trim()))
+        .map(|(i, line)| (i + 1, line.trim()));
+    lines
         .filter(|(_, line)| !line.is_empty() && !line.starts_with('#'))
         .map(|(line, text)| {
             let mut reader = csv::ReaderBuilder::new()
@@ -171,8 +178,13 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
                 }),
                 None => Ok((line, csv::StringRecord::new())),
             }
-        });
-    let (header_line, header) = records.next().transpose()?.ok_or_else(|| Error::DataFile {
+        })
+        .collect()
+}
+
+fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<SpreadRow>> {
+    let mut records = csv_records(text, path)?.into_iter();
+    let (header_line, header) = records.next().ok_or_else(|| Error::DataFile {
         file: path.to_path_buf(),
         message: "the table is empty".into(),
     })?;
@@ -200,8 +212,7 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
         None
     };
     records
-        .map(|record| {
-            let (line, record) = record?;
+        .map(|(line, record)| {
             let row_error = |message: String| Error::DataRow {
                 file: path.to_path_buf(),
                 line,

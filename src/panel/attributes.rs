@@ -100,8 +100,8 @@ pub fn read_attributes(
     let mut whole_header = None;
     let frame = match format {
         TableFormat::Csv => {
-            let header = super::csv::header(&source, &bytes)?;
-            super::csv::check_repeated_names(&source, &header, &used)?;
+            let header = super::header::header(&source, &bytes)?;
+            super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
             if let Some((line, fields, text)) = first_record_with_extra_fields(&bytes, expected) {
                 let message = extra_fields_message(fields, expected, &text);

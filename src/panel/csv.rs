@@ -17,6 +17,7 @@ use polars::prelude::*;
 
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
+use super::header::{check_repeated_names, header};
 use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
@@ -114,56 +115,6 @@ fn push_frames(
     Ok(rows)
 }
 
-/// The header's column names as the file writes them, through polars: the first line read as
-/// a row of text, so that a repeated or empty name is seen as it is (read as a header, polars
-/// would rename it).
-pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
-    // The first record alone (its end: the first line end outside quotes), so that a later
-    // line's field count is not the header's concern.
-    let mut in_quotes = false;
-    let end = block.iter().position(|&b| {
-        in_quotes ^= b == b'"';
-        b == b'\n' && !in_quotes
-    });
-    let block = &block[..end.map_or(block.len(), |end| end + 1)];
-    let line = block.strip_suffix(b"\n").unwrap_or(block);
-    let line = line.strip_suffix(b"\r").unwrap_or(line);
-    if let Some(at) = line.iter().position(|&b| b == b'\r') {
-        return Err(Error::DataRow {
-            file: source.file.clone(),
-            line: 1,
-            message: crate::io::sanity::lone_carriage_return(at + 1),
-        });
-    }
-    let frame = CsvReadOptions::default()
-        .with_has_header(false)
-        .with_infer_schema_length(Some(0))
-        .with_n_rows(Some(1))
-        .into_reader_with_file_handle(Cursor::new(block))
-        .finish()
-        .map_err(|e| source.file_error(format!("not a readable CSV file: {e}")))?;
-    let names: Vec<String> = frame
-        .columns()
-        .iter()
-        .map(|c| {
-            c.str()
-                .ok()
-                .and_then(|s| s.get(0))
-                .unwrap_or("")
-                .to_string()
-        })
-        .collect();
-    if let [only] = names.as_slice() {
-        if let Some(separator) = crate::io::sanity::other_separator(only) {
-            return Err(source.file_error(format!(
-                "the header `{only}` is separated by {separator}; hurdle reads comma-separated \
-                 files with a decimal point"
-            )));
-        }
-    }
-    Ok(names)
-}
-
 /// The header's names made unique for the parsing schema: an empty name (a column the header
 /// does not name) gets a placeholder no header name can equal.
 fn schema_names(header: &[String]) -> Vec<String> {
@@ -175,28 +126,6 @@ fn schema_names(header: &[String]) -> Vec<String> {
             false => name.clone(),
         })
         .collect()
-}
-
-/// Refuses a header that gives one name to two columns, among the names in `among` (all names
-/// when it is empty): which of the two would be read?
-pub(super) fn check_repeated_names(
-    source: &Source,
-    header: &[String],
-    among: &[&str],
-) -> Result<()> {
-    let names = header.iter().map(String::as_str);
-    // Sorted first: a wide header names thousands of securities.
-    let mut checked: Vec<&str> = names
-        .clone()
-        .filter(|n| !n.is_empty() && (among.is_empty() || among.contains(n)))
-        .collect();
-    checked.sort_unstable();
-    match checked.windows(2).find(|w| w[0] == w[1]) {
-        Some(pair) => crate::io::sanity::unique_column(names, pair[0])
-            .map(|_| ())
-            .map_err(|message| source.file_error(message)),
-        None => Ok(()),
-    }
 }
 
 /// Checks the header against the layout and fixes the schema every block is parsed with.

@@ -14,6 +14,7 @@ pub mod attributes;
 mod blocks;
 mod cells;
 mod csv;
+mod header;
 mod parquet;
 mod rows;
 mod runs;

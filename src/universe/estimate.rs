@@ -163,7 +163,6 @@ impl Estimation {
             };
         }
         let estimated = estimate::estimate_security(&self.spec, &self.window, &self.market, prices);
-        let min = self.spec.min_observations;
         let unfit = estimated
             .as_ref()
             .ok()
@@ -203,16 +202,7 @@ impl Estimation {
                 observations: Some(usable),
                 outcome: Err((
                     NotEstimated::TooFewObservations,
-                    format!(
-                        "{usable} usable returns in the window of {} periods (dropped {}: price \
-                         missing {}, index price missing {}, risk-free missing {}); \
-                         beta.min_observations = {min}",
-                        self.window.period_ends().len(),
-                        dropped.total,
-                        dropped.asset_missing,
-                        dropped.market_missing,
-                        dropped.risk_free_missing,
-                    ),
+                    self.too_few(usable, &dropped),
                 )),
                 rolling: Vec::new(),
             },
@@ -234,6 +224,20 @@ impl Estimation {
                 rolling: Vec::new(),
             },
         }
+    }
+
+    /// Why a security with `usable` returns is not estimated, in words.
+    fn too_few(&self, usable: usize, dropped: &DroppedPeriods) -> String {
+        format!(
+            "{usable} usable returns in the window of {} periods (dropped {}: price missing {}, \
+             index price missing {}, risk-free missing {}); beta.min_observations = {}",
+            self.window.period_ends().len(),
+            dropped.total,
+            dropped.asset_missing,
+            dropped.market_missing,
+            dropped.risk_free_missing,
+            self.spec.min_observations,
+        )
     }
 
     /// The window as the receipt records it.
