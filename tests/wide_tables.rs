@@ -270,6 +270,17 @@ impl WideCopy {
         fs::write(self.path(relative), text.replacen(from, to, 1)).unwrap();
     }
 
+    /// Rewrites one cell of the wide CSV table (`line` counted from 1, the header being line 1;
+    /// `column` from 0) with `edit` of its text.
+    fn edit_csv_cell(&self, line: usize, column: usize, edit: impl Fn(&str) -> String) {
+        let path = self.path("data/prices.csv");
+        let csv = fs::read_to_string(&path).unwrap();
+        let old = csv.lines().nth(line - 1).unwrap().to_string();
+        let mut cells: Vec<String> = old.split(',').map(str::to_string).collect();
+        cells[column] = edit(&cells[column]);
+        fs::write(&path, csv.replacen(&old, &cells.join(","), 1)).unwrap();
+    }
+
     /// Runs `case`, asserts exit 2 with no output and returns stderr.
     fn fail(&self, case: &str) -> String {
         let out = self.root.path().join("out");
@@ -317,15 +328,7 @@ impl WideCopy {
 #[test]
 fn a_percent_yield_in_a_wide_table_is_named() {
     let copy = WideCopy::new();
-    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
-    let line = csv.lines().nth(9).unwrap().to_string();
-    let mut cells: Vec<&str> = line.split(',').collect();
-    cells[2] = "2.576";
-    fs::write(
-        copy.path("data/prices.csv"),
-        csv.replacen(&line, &cells.join(","), 1),
-    )
-    .unwrap();
+    copy.edit_csv_cell(10, 2, |_| "2.576".into());
     let stderr = copy.fail("case.toml");
     assert!(
         stderr.contains("line 10, column `Risk-free yield`"),
@@ -339,15 +342,7 @@ fn a_percent_yield_in_a_wide_table_is_named() {
 #[test]
 fn a_decimal_comma_in_a_wide_csv_is_named_by_line() {
     let copy = WideCopy::new();
-    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
-    let line = csv.lines().nth(9).unwrap().to_string();
-    let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
-    cells[3] = cells[3].replacen('.', ",", 1);
-    fs::write(
-        copy.path("data/prices.csv"),
-        csv.replacen(&line, &cells.join(","), 1),
-    )
-    .unwrap();
+    copy.edit_csv_cell(10, 3, |price| price.replacen('.', ",", 1));
     let stderr = copy.fail("case.toml");
     assert!(stderr.contains("prices.csv: line 10: `"), "{stderr}");
     assert!(stderr.contains("fields but the header has"), "{stderr}");
@@ -359,18 +354,11 @@ fn a_decimal_comma_in_a_wide_csv_is_named_by_line() {
 #[test]
 fn a_jump_in_a_wide_table_names_its_cell() {
     let copy = WideCopy::new();
-    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
     // Estwold's column (the seventh) is empty in the first rows (a late listing), so its values
     // are not on the lines their positions would give. Multiply its price on line 600 by ten.
-    let line = csv.lines().nth(599).unwrap().to_string();
-    let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
-    let price: f64 = cells[6].parse().unwrap();
-    cells[6] = format!("{:.4}", price * 10.0);
-    fs::write(
-        copy.path("data/prices.csv"),
-        csv.replacen(&line, &cells.join(","), 1),
-    )
-    .unwrap();
+    copy.edit_csv_cell(600, 6, |price| {
+        format!("{:.4}", price.parse::<f64>().unwrap() * 10.0)
+    });
     let stderr = copy.fail("case.toml");
     assert!(
         stderr.contains("prices.csv: line 600, column `Estwold Flow Controls`: price"),
@@ -527,15 +515,7 @@ fn text_in_a_price_cell_is_named() {
         "{stderr}"
     );
     // The CSV form names the line.
-    let csv = fs::read_to_string(copy.path("data/prices.csv")).unwrap();
-    let line = csv.lines().nth(9).unwrap().to_string();
-    let mut cells: Vec<&str> = line.split(',').collect();
-    cells[4] = "#N/A";
-    fs::write(
-        copy.path("data/prices.csv"),
-        csv.replacen(&line, &cells.join(","), 1),
-    )
-    .unwrap();
+    copy.edit_csv_cell(10, 4, |_| "#N/A".into());
     let stderr = copy.fail("case.toml");
     assert!(
         stderr.contains("line 10, column `Corrowick Valves`"),
