@@ -163,6 +163,21 @@ fn not_utf8(column: usize, byte: u8) -> String {
 
 /// The message for a carriage return that does not end a line, at its 1-based byte in the line:
 /// lines ended by CR alone (classic Mac OS), which every other reader here takes as one line.
+/// The first carriage return in `bytes` followed by something other than a line feed, as
+/// (line, byte within the line), both counted from 1: where a file whose lines end in CR alone
+/// is named. A CR that ends the bytes (a last line without its LF) is not one.
+pub fn first_lone_carriage_return(bytes: &[u8]) -> Option<(usize, usize)> {
+    let lone = |i: usize| bytes[i] == b'\r' && bytes.get(i + 1).is_some_and(|&b| b != b'\n');
+    let at = (0..bytes.len()).find(|&i| lone(i))?;
+    let before = &bytes[..at];
+    let line_start = before
+        .iter()
+        .rposition(|&b| b == b'\n')
+        .map_or(0, |i| i + 1);
+    let line = before.iter().filter(|&&b| b == b'\n').count() + 1;
+    Some((line, at - line_start + 1))
+}
+
 pub fn lone_carriage_return(column: usize) -> String {
     format!(
         "byte {column} is a carriage return inside the line: the file's lines end with CR alone; \
@@ -252,6 +267,19 @@ pub fn is_one_line(text: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Worked by hand: line and byte counted from 1; CRLF and a CR ending the bytes are not
+    // lone carriage returns.
+    #[test]
+    fn a_lone_carriage_return_is_found_at_its_line_and_byte() {
+        assert_eq!(
+            first_lone_carriage_return(b"date,price\r2024"),
+            Some((1, 11))
+        );
+        assert_eq!(first_lone_carriage_return(b"a\r\nbc\rd"), Some((2, 3)));
+        assert_eq!(first_lone_carriage_return(b"a\r\nb\r"), None);
+        assert_eq!(first_lone_carriage_return(b"a\nb"), None);
+    }
 
     // Columns are counted from 1 in the message, as a spreadsheet's user counts them.
     #[test]

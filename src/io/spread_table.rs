@@ -145,17 +145,11 @@ fn parse_toml_table(text: &str, path: &Path) -> Result<Vec<SpreadRow>> {
 /// with `#` are skipped.
 fn csv_records(text: &str, path: &Path) -> Result<Vec<(usize, csv::StringRecord)>> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let bytes = text.as_bytes();
-    let lone_cr = (0..bytes.len()).find(|&i| bytes[i] == b'\r' && bytes.get(i + 1) != Some(&b'\n'));
-    if let Some(at) = lone_cr {
-        let line_start = bytes[..at]
-            .iter()
-            .rposition(|&b| b == b'\n')
-            .map_or(0, |i| i + 1);
+    if let Some((line, column)) = super::sanity::first_lone_carriage_return(text.as_bytes()) {
         return Err(Error::DataRow {
             file: path.to_path_buf(),
-            line: bytes[..at].iter().filter(|&&b| b == b'\n').count() + 1,
-            message: super::sanity::lone_carriage_return(at - line_start + 1),
+            line,
+            message: super::sanity::lone_carriage_return(column),
         });
     }
     let lines = text

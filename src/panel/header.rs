@@ -21,13 +21,11 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
         b == b'\n' && !in_quotes
     });
     let block = &block[..end.map_or(block.len(), |end| end + 1)];
-    let line = block.strip_suffix(b"\n").unwrap_or(block);
-    let line = line.strip_suffix(b"\r").unwrap_or(line);
-    if let Some(at) = line.iter().position(|&b| b == b'\r') {
+    if let Some((line, column)) = crate::io::sanity::first_lone_carriage_return(block) {
         return Err(Error::DataRow {
             file: source.file.clone(),
-            line: 1,
-            message: crate::io::sanity::lone_carriage_return(at + 1),
+            line,
+            message: crate::io::sanity::lone_carriage_return(column),
         });
     }
     let frame = CsvReadOptions::default()
