@@ -1431,3 +1431,133 @@ fn a_window_given_twice_is_refused_or_noted_as_in_a_case() {
         fs::read(noted.join("industries.csv")).unwrap()
     );
 }
+
+// An id padded with a no-break space (U+00A0) is the same security as the plain id on every
+// path, as `str::trim` (Rust's Unicode white space) reads it in the attributes and a wide
+// header: before, a block without ASCII padding kept the no-break space, splitting one
+// security into two (found by review).
+#[test]
+fn an_id_padded_with_a_no_break_space_is_the_same_security() {
+    let setup = Setup::new();
+    let plain = setup.succeeds("plain", &[]);
+    let mut k = 0;
+    rewrite_s03(&setup.dir(), |date, price| {
+        k += 1;
+        (k % 2 == 0).then(|| format!("{date},S03\u{a0},{price}"))
+    });
+    let padded = setup.succeeds("padded", &[]);
+    for name in ["securities.csv", "industries.csv"] {
+        assert!(
+            fs::read(plain.join(name)).unwrap() == fs::read(padded.join(name)).unwrap(),
+            "{name} differs when half of S03's ids end in a no-break space"
+        );
+    }
+}
+
+// A record with fewer fields than the header: in the attributes its cells would shift into
+// the wrong columns (an industry read from the market cap), in a wide panel its last
+// securities' prices would be read as gaps. Both are refused naming the line (found by review).
+#[test]
+fn a_record_with_fewer_fields_than_the_header_is_refused() {
+    refused(
+        |dir| {
+            let path = dir.join("attributes.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let row: Vec<&str> = text.lines().nth(2).unwrap().split(',').collect();
+            let short = [&row[..1], &row[2..]].concat().join(",");
+            replace_line(&path, 3, &short);
+        },
+        &[],
+        &["attributes.csv, line 3", "fields but the header has 7"],
+    );
+    refused(
+        |dir| {
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let row: Vec<&str> = text.lines().nth(9).unwrap().split(',').collect();
+            replace_line(&path, 10, &row[..row.len() - 2].join(","));
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &["prices-wide.csv, line 10", "fields but the header has"],
+    );
+}
+
+// Header names with spaces around them are named as such, not as a wide file; a padded price
+// names its line and value instead of polars' own advice (found by review).
+#[test]
+fn padded_header_names_and_prices_are_named() {
+    refused(
+        |dir| {
+            replace_line(&dir.join("prices-long.csv"), 1, "date, security, close");
+        },
+        &[],
+        &["no column named `security`", "\" security\" has spaces around the name"],
+    );
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 5);
+            let padded = format!("{},{}, {} ", cells[0], cells[1], cells[2]);
+            replace_line(&dir.join("prices-long.csv"), 5, &padded);
+        },
+        &[],
+        &["prices-long.csv, line 5", "has spaces around the number"],
+    );
+}
+
+// Under net debt the unlevered beta has already netted the cash against the debt; the beta of
+// the operations is the gross-debt unlevered beta over the operating share, as a case reports
+// it (Hamada by hand from the security's own row), not the net figure divided again.
+#[test]
+fn operations_betas_under_net_debt_count_cash_once() {
+    let setup = Setup::new();
+    let net = setup.succeeds("net", &["leverage.debt_measure=net"]);
+    let gross = setup.succeeds("gross", &[]);
+    let net_rows = read_table(&net.join("securities.csv"));
+    let gross_rows = read_table(&gross.join("securities.csv"));
+    let mut checked = 0;
+    for id in ["S01", "S02", "S05", "S07"] {
+        let (n, g) = (security_row(&net_rows, id), security_row(&gross_rows, id));
+        if text_of(&n, "operations_beta").is_empty() {
+            continue;
+        }
+        // Figures as written to the CSV (17 significant digits); a few ulps of tolerance.
+        let close = |a: f64, b: f64| (a - b).abs() <= 1e-14 * b.abs().max(1.0);
+        assert!(close(number(&n, "operations_beta"), number(&g, "operations_beta")));
+        let (e, d, t) = (number(&g, "equity_value"), number(&g, "debt"), number(&g, "tax_rate"));
+        let hamada = number(&g, "beta_used") / (1.0 + (1.0 - t) * d / e);
+        assert!(close(number(&g, "unlevered_beta"), hamada));
+        let share = 1.0 - number(&g, "cash") / (e + d);
+        assert!(close(number(&n, "operations_beta"), hamada / share));
+        checked += 1;
+    }
+    assert!(checked >= 2, "too few securities with every figure");
+}
+
+// An industry label that an export writes for a missing classification ("N/A") is used as
+// written, and the summary says so; a count of zero has no empty list after it; a NaN figure
+// in the attributes is "not a finite number", not a sign error (found by review).
+#[test]
+fn placeholder_labels_empty_counts_and_nan_figures_are_worded_plainly() {
+    let setup = Setup::new();
+    let path = setup.dir().join("attributes.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    let labelled = text.replacen(",Industry A,", ",N/A,", 1);
+    assert_ne!(labelled, text, "the attributes name Industry A");
+    fs::write(&path, labelled).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(summary.contains("usually marks a missing classification (\"N/A\")"), "{summary}");
+    assert!(!summary.contains("()"), "{summary}");
+    refused(
+        |dir| {
+            let path = dir.join("attributes.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let mut cells: Vec<String> =
+                text.lines().nth(2).unwrap().split(',').map(str::to_string).collect();
+            cells[4] = "NaN".into();
+            replace_line(&path, 3, &cells.join(","));
+        },
+        &[],
+        &["attributes.csv, line 3", "`debt` = NaN is not a finite number"],
+    );
+}

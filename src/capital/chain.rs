@@ -13,7 +13,7 @@ pub use super::spec::{CapitalSpec, Component, PeerCapital, PremiumSpec, TargetSp
 
 use super::cost;
 use super::debt::{self, CostOfDebtRecord};
-use super::leverage::{self, CapitalStructure, DebtBetaSource, DebtTerms, Formula};
+use super::leverage::{self, CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
 use crate::beta::{self, vasicek, AdjustedBeta};
 use crate::stats::{self, Dispersion};
 
@@ -449,12 +449,33 @@ fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
     unlevered / terms.operating_share
 }
 
-/// [`operations_beta`] for every peer.
-fn operations_betas(unlevered: &[f64], terms: &[PeerTerms]) -> Vec<f64> {
-    unlevered
-        .iter()
-        .zip(terms)
-        .map(|(&u, terms)| operations_beta(u, terms))
+/// [`operations_beta`] for every peer, always of the unlevered beta at gross debt: under net
+/// debt the unlevered beta has already netted the cash (at a beta of zero) against the debt,
+/// and dividing it by the operating share as well would count the cash twice.
+fn operations_betas(
+    spec: &CapitalSpec<'_>,
+    formula: Formula,
+    peers: &[PeerCapital],
+    adjusted: &[AdjustedBeta],
+    terms: &[PeerTerms],
+    unlevered: &[f64],
+) -> Vec<f64> {
+    let each = peers.iter().zip(adjusted).zip(terms);
+    each.zip(unlevered)
+        .map(|(((peer, adjusted), terms), &u)| {
+            let gross = match spec.debt_measure {
+                DebtMeasure::Gross => u,
+                DebtMeasure::Net => {
+                    let debt_to_equity = peer.debt / peer.equity_value;
+                    let gross_terms = PeerTerms {
+                        debt_to_equity,
+                        ..*terms
+                    };
+                    unlever(formula, peer, adjusted, &gross_terms)
+                }
+            };
+            operations_beta(gross, terms)
+        })
         .collect()
 }
 
@@ -519,7 +540,8 @@ fn formula_outcome(
     common: &Common,
 ) -> FormulaOutcome {
     let peer_unlevered_betas = unlevered_betas(formula, peers, &common.adjusted, &common.peers);
-    let peer_operations_betas = operations_betas(&peer_unlevered_betas, &common.peers);
+    let peer_operations_betas =
+        operations_betas(spec, formula, peers, &common.adjusted, &common.peers, &peer_unlevered_betas);
     let (plain_dispersion, plain_statistics) =
         aggregate(peers, &peer_unlevered_betas, spec.trim_fraction);
     let (operations_dispersion, operations_statistics) =

@@ -34,13 +34,32 @@ pub fn unique_column<'a>(
     }
 }
 
-/// The first record of CSV `bytes` with more fields than `expected` (the header's count): its
-/// first line (0-based), its field count and its text. Quoted fields may hold commas and line
-/// breaks; a line's carriage return is not part of it. What the panel and attributes readers
-/// use to name the line polars' "more fields than defined" refers to.
-pub fn first_record_with_extra_fields(
+/// The part of a "no column named `name`" message that names a header column equal to `name`
+/// but for white space around it (`" security"`), which is otherwise hard to see in the list
+/// of names; empty when there is none. Column names are matched exactly, as written.
+pub fn padded_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &str) -> String {
+    match header
+        .into_iter()
+        .find(|n| *n != name && n.trim() == name.trim())
+    {
+        Some(padded) => format!(
+            "; the header's \"{padded}\" has spaces around the name, and names are matched as \
+             written: remove the spaces from the file"
+        ),
+        None => String::new(),
+    }
+}
+
+/// The first record of CSV `bytes` with more fields than `expected` (the header's count), or
+/// with fewer too when `fewer` (an empty line is not a record): its first line (0-based), its
+/// field count and its text. Quoted fields may hold commas and line breaks; a line's carriage
+/// return is not part of it. What the panel and attributes readers use to name the line
+/// polars' "more fields than defined" refers to, and a short record polars would fill with
+/// empty cells (its cells would then shift into the wrong columns unseen).
+pub fn first_record_with_wrong_field_count(
     bytes: &[u8],
     expected: usize,
+    fewer: bool,
 ) -> Option<(usize, usize, String)> {
     let (mut fields, mut in_quotes, mut record_line, mut record_start) = (1, false, 0, 0);
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
@@ -55,7 +74,8 @@ pub fn first_record_with_extra_fields(
                 _ => {}
             }
         }
-        if !in_quotes && fields > expected {
+        let blank = raw.is_empty() || raw == b"\r";
+        if !in_quotes && (fields > expected || (fewer && fields < expected && !blank)) {
             let end = start + raw.len();
             let text = String::from_utf8_lossy(&bytes[record_start..end]);
             return Some((record_line, fields, text.trim_end_matches('\r').to_string()));
@@ -69,6 +89,13 @@ pub fn first_record_with_extra_fields(
 /// spread tables.
 pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> String {
     let shown: String = text.trim().chars().take(80).collect();
+    if fields < expected {
+        return format!(
+            "`{shown}` has {fields} fields but the header has {expected}; a row needs a field \
+             for every column (an empty cell is written as nothing between two commas), or its \
+             cells are read into the wrong columns"
+        );
+    }
     format!(
         "`{shown}` has {fields} fields but the header has {expected}; numbers take a decimal \
          point and no thousands separator (43.7678, not 43,7678), and text holding a comma must \
@@ -77,9 +104,9 @@ pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> Strin
 }
 
 /// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
-/// separator, and no row with more fields than the header (a decimal comma, an unquoted comma in
-/// text). Quoted fields may hold commas and line breaks. Fewer fields than the header are left to
-/// the cell parser, which names the empty cell. Returns the first blank line after the header
+/// separator, and every row with as many fields as the header (more: a decimal comma, an unquoted
+/// comma in text; fewer: a row cut short, whose cells would shift or read as gaps). Quoted fields
+/// may hold commas and line breaks. Returns the first blank line after the header
 /// (outside quotes; not the end after the last line break), which the cell parser reports as a
 /// row with empty cells once the rows before it are read.
 pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
@@ -143,7 +170,9 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
                     .map_err(|message| row_error(line, message))?;
                 header_fields = Some(fields);
             }
-            Some(expected) if fields > expected => {
+            // A short record's cells would be read into the wrong columns, or a wide table's last
+            // columns be read as gaps; an empty line is the cell parser's to name.
+            Some(expected) if fields > expected || (fields < expected && !raw.is_empty()) => {
                 let shown = String::from_utf8_lossy(raw);
                 return Err(row_error(
                     record_line,

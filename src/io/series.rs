@@ -198,8 +198,9 @@ pub fn parse_series(
         Ok(None) => {
             let names: Vec<&str> = header.iter().collect();
             Err(file_error(format!(
-                "no column named `{name}`; the header has: {}",
-                names.join(", ")
+                "no column named `{name}`; the header has: {}{}",
+                names.join(", "),
+                super::sanity::padded_name_hint(names.iter().copied(), name)
             )))
         }
         Err(message) => Err(file_error(message)),

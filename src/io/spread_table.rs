@@ -192,8 +192,9 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
         match super::sanity::unique_column(columns.iter().copied(), name) {
             Ok(Some(at)) => Ok(at),
             Ok(None) => Err(header_error(format!(
-                "no `{name}` column (columns: {})",
-                columns.join(", ")
+                "no `{name}` column (columns: {}){}",
+                columns.join(", "),
+                super::sanity::padded_name_hint(columns.iter().copied(), name)
             ))),
             Err(message) => Err(header_error(message)),
         }

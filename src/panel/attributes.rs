@@ -17,7 +17,7 @@ use super::{check_label, Source, TableFormat};
 use crate::error::{Error, Result};
 use crate::io::guard;
 use crate::io::parquet_types::unreadable_column;
-use crate::io::sanity::{extra_fields_message, first_record_with_extra_fields};
+use crate::io::sanity::{extra_fields_message, first_record_with_wrong_field_count};
 
 /// Which columns of the attributes table hold what.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -103,7 +103,7 @@ pub fn read_attributes(
             let header = super::header::header(&source, &bytes)?;
             super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
-            if let Some((line, fields, text)) = first_record_with_extra_fields(&bytes, expected) {
+            if let Some((line, fields, text)) = first_record_with_wrong_field_count(&bytes, expected, true) {
                 let message = extra_fields_message(fields, expected, &text);
                 return Err(source.row_error(line.saturating_sub(1), message));
             }
@@ -200,8 +200,9 @@ fn records(
     let find = |name: &str, key: &str| -> Result<&Column> {
         frame.column(name).map_err(|_| {
             source.file_error(format!(
-                "no column named `{name}` ({key}); the header has: {}",
-                header.join(", ")
+                "no column named `{name}` ({key}); the header has: {}{}",
+                header.join(", "),
+                crate::io::sanity::padded_name_hint(header.iter().map(String::as_str), name)
             ))
         })
     };
@@ -306,6 +307,8 @@ impl Rule {
             };
         if fine {
             Ok(())
+        } else if !value.is_finite() {
+            Err("is not a finite number")
         } else {
             Err(match self {
                 Rule::Positive => "must be positive",

@@ -162,8 +162,10 @@ fn push_chunk(
             previous_id
         } else {
             let security = ids.value(i);
-            let padded = |b: Option<&u8>| b.is_none_or(u8::is_ascii_whitespace);
-            let (first, last) = (security.as_bytes().first(), security.as_bytes().last());
+            // Padding as `str::trim` (the checked path's, the attributes' and a wide header's)
+            // sees it: any Unicode white space, a no-break space too.
+            let padded = |c: Option<char>| c.is_none_or(char::is_whitespace);
+            let (first, last) = (security.chars().next(), security.chars().next_back());
             if padded(first) || padded(last) || !crate::io::sanity::is_one_line(security) {
                 return false;
             }

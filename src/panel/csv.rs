@@ -22,7 +22,7 @@ use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
 use crate::error::{Error, Result};
-use crate::io::sanity::{extra_fields_message, first_record_with_extra_fields};
+use crate::io::sanity::{extra_fields_message, first_record_with_wrong_field_count};
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
 /// stay in cache between the stages (measured best among 4, 16 and 64 MiB on the benchmark).
@@ -81,6 +81,9 @@ pub(super) fn read(
                 .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
             check_unnamed(source, plan, &frame, next_row)?;
             let height = frame.height();
+            if columns.layout == PanelLayout::Wide {
+                check_wide_fields(source, block, first, next_row, height, plan.header.len())?;
+            }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             frames
                 .send((frame, next_row))
@@ -141,8 +144,12 @@ fn plan_for(
                 PanelLayout::Long => PanelLayout::Wide,
                 PanelLayout::Wide => PanelLayout::Long,
             };
-            let hint =
-                layout_hint(&header, columns, other).map_or_else(String::new, |h| format!("; {h}"));
+            let names = header.iter().map(String::as_str);
+            let padded = crate::io::sanity::padded_name_hint(names, name);
+            let hint = match padded.is_empty() {
+                true => layout_hint(&header, columns, other).map_or_else(String::new, |h| format!("; {h}")),
+                false => padded,
+            };
             source.file_error(format!(
                 "no column named `{name}` ({key}); the header has: {}{hint}",
                 shortened(&header)
@@ -323,6 +330,31 @@ fn read_block(
         .finish()
 }
 
+/// A wide panel's row with fewer fields than the header would leave its last securities' cells
+/// empty, read as gaps: it is refused. The commas of a block of complete records number
+/// records × (fields − 1); only a block where they do not (a short row, a quoted comma) is read
+/// record by record.
+fn check_wide_fields(
+    source: &Source,
+    block: &[u8],
+    has_header: bool,
+    first_row: usize,
+    rows: usize,
+    expected: usize,
+) -> Result<()> {
+    let records = rows + usize::from(has_header);
+    if memchr::memchr_iter(b',', block).count() == records * (expected - 1) {
+        return Ok(());
+    }
+    match first_record_with_wrong_field_count(block, expected, true) {
+        Some((line, fields, text)) => {
+            let row = (first_row + line).saturating_sub(usize::from(has_header));
+            Err(source.row_error(row, extra_fields_message(fields, expected, &text)))
+        }
+        None => Ok(()),
+    }
+}
+
 /// A wide panel's column that the header does not name may not hold a price: whose would it
 /// be? (A trailing comma on every line gives such a column, empty, and is accepted.)
 fn check_unnamed(source: &Source, plan: &Plan, frame: &DataFrame, first_row: usize) -> Result<()> {
@@ -406,7 +438,7 @@ fn diagnose(
     error: &PolarsError,
 ) -> Error {
     let expected = plan.header.len();
-    if let Some((line, fields, text)) = first_record_with_extra_fields(block, expected) {
+    if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, false) {
         let row = (first_row + line).saturating_sub(usize::from(has_header));
         return source.row_error(row, extra_fields_message(fields, expected, &text));
     }
@@ -443,6 +475,15 @@ fn diagnose(
             for (k, cell) in cells.iter().enumerate() {
                 let Some(cell) = cell else { continue };
                 let trimmed = cell.trim();
+                if !trimmed.is_empty() && trimmed != cell && trimmed.parse::<f64>().is_ok() {
+                    return source.row_error(
+                        first_row + k,
+                        format!(
+                            "`{name}` = \"{cell}\" has spaces around the number; a panel's \
+                             prices are read as bare numbers: remove the spaces from the file"
+                        ),
+                    );
+                }
                 if !trimmed.is_empty() && trimmed.parse::<f64>().is_err() {
                     let hint = match columns.layout {
                         PanelLayout::Wide => format!(

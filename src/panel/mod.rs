@@ -347,7 +347,9 @@ pub(crate) fn layout_hint(
     columns: &PanelColumns,
     other_layout: PanelLayout,
 ) -> Option<String> {
-    let has = |name: &str| names.iter().any(|n| n == name);
+    // Names padded with spaces count: the hint is about the layout, and the padding is named
+    // when the file is read in the layout it suggests.
+    let has = |name: &str| names.iter().any(|n| n.trim() == name);
     match other_layout {
         // A header with the long layout's security or price column is a long file with one
         // column named otherwise: name the one column left over, if there is exactly one.

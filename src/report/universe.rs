@@ -498,15 +498,18 @@ fn summary(r: &UniverseResult) -> String {
     );
     let _ = writeln!(out, "{}\n", return_and_beta_settings(r));
     let c = &r.counts;
+    let why_not = match nonzero_counts(&c.not_estimated) {
+        reasons if reasons.is_empty() => reasons,
+        reasons => format!(" ({reasons})"),
+    };
     let _ = writeln!(
         out,
         "{} securities with prices; {} estimated and aggregated, {} excluded by \
-         beta.exclude_flags, {} not estimated ({}); {} with an unlevered beta.\n",
+         beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta.\n",
         c.securities,
         c.estimated,
         c.excluded,
         c.not_estimated.values().sum::<usize>(),
-        nonzero_counts(&c.not_estimated),
         c.unlevered
     );
     industry_table(&mut out, r);

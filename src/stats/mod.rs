@@ -147,11 +147,25 @@ fn sort_into(values: &[f64], sorted: &mut Vec<f64>) {
     sorted.sort_by(f64::total_cmp);
 }
 
-/// Σ wᵢxᵢ / Σ wᵢ (the textbook weighted arithmetic mean).
+/// Σ wᵢxᵢ / Σ wᵢ (the textbook weighted arithmetic mean). Weights so large that a sum
+/// overflows (market values near f64's limit) are taken relative to the largest, which leaves
+/// the mean as it is.
 pub fn weighted_mean(values: &[f64], weights: &[f64]) -> f64 {
     assert_eq!(values.len(), weights.len(), "one weight per value");
-    let total: f64 = weights.iter().sum();
-    values.iter().zip(weights).map(|(v, w)| v * w).sum::<f64>() / total
+    let mean = |scale: f64| {
+        let total: f64 = weights.iter().map(|w| w / scale).sum();
+        let sum: f64 = values.iter().zip(weights).map(|(v, w)| v * (w / scale)).sum();
+        sum / total
+    };
+    let plain = mean(1.0);
+    if plain.is_finite() {
+        return plain;
+    }
+    let largest = weights.iter().fold(0.0_f64, |m, w| m.max(w.abs()));
+    match largest.is_finite() && largest > 0.0 {
+        true => mean(largest),
+        false => plain,
+    }
 }
 
 /// Mean after removing ⌊n·α⌋ of the sorted values from each end, and that count: the trimmed
@@ -274,6 +288,9 @@ mod tests {
     #[test]
     fn weighted_mean_by_hand() {
         assert_eq!(weighted_mean(&[1.0, 2.0, 4.0], &[1.0, 1.0, 2.0]), 2.75);
+        // Equal weights whose sum overflows f64 (1e308 + 1e308): the plain mean of 1 and 3 by
+        // hand, 2, exactly (each weight is 1 relative to the largest).
+        assert_eq!(weighted_mean(&[1.0, 3.0], &[1e308, 1e308]), 2.0);
     }
 
     // Trimmed mean by hand, 10 values 1..=9 and 100, α = 0.1: cut ⌊1.0⌋ = 1 from each end,

@@ -460,6 +460,7 @@ fn counts_and_notes(
             securities_count(without_industry)
         ));
     }
+    notes.extend(placeholder_industries_note(securities));
     let counts = Counts {
         securities: securities.len(),
         estimated: count(&|s| s.aggregated()),
@@ -470,6 +471,37 @@ fn counts_and_notes(
         attributes_not_in_panel: strays.len(),
     };
     (counts, notes)
+}
+
+/// Industry labels that usually stand for a missing classification in an export.
+const PLACEHOLDER_LABELS: [&str; 9] = ["na", "n/a", "#n/a", "null", "none", "nan", "-", "--", "?"];
+
+/// A note on industries whose label looks like a placeholder ("N/A", "-"): the label is used as
+/// written, so its securities form an industry of their own, which the reader should know.
+fn placeholder_industries_note(securities: &[SecurityResult]) -> Option<String> {
+    let mut labels: Vec<&str> = securities
+        .iter()
+        .filter_map(|s| s.industry.as_deref())
+        .filter(|l| PLACEHOLDER_LABELS.contains(&l.trim().to_lowercase().as_str()))
+        .collect();
+    labels.sort_unstable();
+    labels.dedup();
+    let count = securities
+        .iter()
+        .filter(|s| s.industry.as_deref().is_some_and(|l| labels.contains(&l)))
+        .count();
+    (count > 0).then(|| {
+        let shown: Vec<String> = labels.iter().map(|l| format!("\"{l}\"")).collect();
+        format!(
+            "{} {} an industry label that usually marks a missing classification ({}); labels \
+             are used as written, so each such label is an industry of its own: give a real \
+             label, or leave the cell empty to keep {} out of every industry.",
+            securities_count(count),
+            if count == 1 { "has" } else { "have" },
+            shown.join(", "),
+            if count == 1 { "the security" } else { "them" },
+        )
+    })
 }
 
 /// The flags a security can raise, in the order outputs list them.

@@ -293,12 +293,12 @@ fn unlever(
     });
     // Harris–Pringle has no tax term: a missing tax rate does not stop it (the 0 is never read).
     let tax = tax.or((!leverage.formula.uses_tax_rate()).then_some(0.0));
-    let unlevered = match (beta_used, debt_to_equity, tax, issue) {
-        (Some(beta), Some(de), Some(t), None) => Some(leverage.formula.unlever_with(
+    let unlever_at = |debt_to_equity: f64| match (beta_used, tax, issue) {
+        (Some(beta), Some(tax_rate), None) => Some(leverage.formula.unlever_with(
             beta,
             CapitalStructure {
-                debt_to_equity: de,
-                tax_rate: t,
+                debt_to_equity,
+                tax_rate,
             },
             DebtTerms {
                 debt_beta,
@@ -307,6 +307,7 @@ fn unlever(
         )),
         _ => None,
     };
+    let unlevered = debt_to_equity.and_then(unlever_at);
     let operating_share = match (equity, debt, cash) {
         (Some(e), Some(d), Some(c)) => Some(1.0 - c / (e + d)),
         _ => None,
@@ -317,7 +318,15 @@ fn unlever(
             .filter(|&s| s <= 0.0)
             .map(|_| CASH_NOT_BELOW_EQUITY_PLUS_DEBT)
     });
-    let operations = match (unlevered, operating_share) {
+    // Of the unlevered beta at gross debt, as a case has it: under net debt the unlevered beta
+    // has already netted the cash against the debt, and dividing it by the share too would
+    // count the cash twice.
+    let gross_unlevered = match (leverage.debt_measure, equity, debt) {
+        (DebtMeasure::Gross, ..) => unlevered,
+        (DebtMeasure::Net, Some(e), Some(d)) => unlever_at(d / e),
+        (DebtMeasure::Net, ..) => None,
+    };
+    let operations = match (gross_unlevered, operating_share) {
         (Some(u), Some(s)) if s > 0.0 => Some(u / s),
         _ => None,
     };

@@ -14,7 +14,8 @@ recomputes, without any of hurdle's code:
     Durbin-Watson from numpy; the too_few_observations and low_r_squared flags;
   - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt (none for
     a D/E above 10 or at or below -1), and the beta of the operations
-    beta_U / (1 - cash / (equity + debt));
+    beta_U(gross D/E) / (1 - cash / (equity + debt)) under either debt measure (a net-debt
+    beta_U has already netted the cash against the debt);
   - per industry: counts, numpy.median / mean / percentile (linear, numpy's default) / min / max /
     std (ddof = 1), numpy.average weighted by market value, scipy.stats.trim_mean(0.1), median D/E,
     and the aggregate the universe file picks.
@@ -173,8 +174,8 @@ def securities(config, folder):
             if "beta" in row and de is not None and -1.0 < de <= 10.0 and tax is not None:
                 row["unlevered_beta"] = row["beta"] / (1.0 + (1.0 - tax) * row["debt_to_equity"])
                 if cash is not None:
-                    row["operations_beta"] = row["unlevered_beta"] / (
-                        1.0 - cash / (equity + debt))
+                    gross = row["beta"] / (1.0 + (1.0 - tax) * debt / equity)
+                    row["operations_beta"] = gross / (1.0 - cash / (equity + debt))
         if "beta" in row:
             row["too_few"] = row["observations"] < 0.8 * periods
         result[security] = row

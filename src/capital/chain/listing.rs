@@ -44,7 +44,7 @@ pub fn unlevered_only(
         .map(|p| listed_peer_terms(spec, p, kd))
         .collect::<Result<Vec<_>, _>>()?;
     let unlevered = unlevered_betas(spec.formula, peers, &adjusted, &terms);
-    let operations = operations_betas(&unlevered, &terms);
+    let operations = operations_betas(spec, spec.formula, peers, &adjusted, &terms, &unlevered);
     Ok(UnleveredPeers {
         adjusted,
         terms,
