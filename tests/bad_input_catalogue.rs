@@ -2210,7 +2210,7 @@ fn command_arguments() -> Vec<Bad> {
             ],
             [
                 "grid cell market.equity_risk_premium=0.01, target.debt_to_equity=0",
-                "debt beta 1.96"
+                "debt beta 1.9600"
             ]
         ),
         bad!(

@@ -385,12 +385,19 @@ fn check_stability(run: &Run, extra: &[&str]) {
         let name = peer["name"].as_str().unwrap();
         let panel = format!("panel-{}", i + 1);
         let y = Axis::read(&svg, &format!("y-axis {panel}"), "y");
+        // The estimator's coefficient count, from the whole-window regression: N − df.
+        let coefficients =
+            peer["observations"].as_u64().unwrap() - peer["degrees_of_freedom"].as_u64().unwrap();
+        // (β, half-width): t(0.975, N − k)·SE, Student's t (its quantiles are checked against
+        // printed tables in the library's unit tests).
         let rows: Vec<(f64, f64)> = csv
             .lines()
             .filter(|l| l.starts_with(&format!("{name},")))
             .map(|l| {
                 let c: Vec<&str> = l.split(',').collect();
-                (c[2].parse().unwrap(), c[3].parse().unwrap())
+                let (se, n): (f64, u64) = (c[3].parse().unwrap(), c[4].parse().unwrap());
+                let t = hurdle::stats::student_t_quantile(0.975, (n - coefficients) as f64);
+                (c[2].parse().unwrap(), t * se)
             })
             .collect();
         let line = in_group(&svg, &format!("rolling-beta {panel}"))[0].points();
@@ -398,32 +405,17 @@ fn check_stability(run: &Run, extra: &[&str]) {
         for (p, (beta, _)) in line.iter().zip(&rows) {
             close(name, y.value(p.1), *beta, y.tolerance());
         }
-        // Band ends: β ∓ 1.96·SE of the first and last window.
+        // Band ends: β ∓ t·SE of the first and last window.
         let band = in_group(&svg, &format!("band {panel}"))[0].points();
         let (first, last) = (rows[0], rows[rows.len() - 1]);
         let n = band.len() / 2;
-        close(
-            name,
-            y.value(band[0].1),
-            first.0 - 1.96 * first.1,
-            y.tolerance(),
-        );
-        close(
-            name,
-            y.value(band[n - 1].1),
-            last.0 - 1.96 * last.1,
-            y.tolerance(),
-        );
-        close(
-            name,
-            y.value(band[n].1),
-            last.0 + 1.96 * last.1,
-            y.tolerance(),
-        );
+        close(name, y.value(band[0].1), first.0 - first.1, y.tolerance());
+        close(name, y.value(band[n - 1].1), last.0 - last.1, y.tolerance());
+        close(name, y.value(band[n].1), last.0 + last.1, y.tolerance());
         close(
             name,
             y.value(band[2 * n - 1].1),
-            first.0 + 1.96 * first.1,
+            first.0 + first.1,
             y.tolerance(),
         );
     }

@@ -1491,7 +1491,10 @@ fn padded_header_names_and_prices_are_named() {
             replace_line(&dir.join("prices-long.csv"), 1, "date, security, close");
         },
         &[],
-        &["no column named `security`", "\" security\" has spaces around the name"],
+        &[
+            "no column named `security`",
+            "\" security\" has spaces around the name",
+        ],
     );
     refused(
         |dir| {
@@ -1522,8 +1525,15 @@ fn operations_betas_under_net_debt_count_cash_once() {
         }
         // Figures as written to the CSV (17 significant digits); a few ulps of tolerance.
         let close = |a: f64, b: f64| (a - b).abs() <= 1e-14 * b.abs().max(1.0);
-        assert!(close(number(&n, "operations_beta"), number(&g, "operations_beta")));
-        let (e, d, t) = (number(&g, "equity_value"), number(&g, "debt"), number(&g, "tax_rate"));
+        assert!(close(
+            number(&n, "operations_beta"),
+            number(&g, "operations_beta")
+        ));
+        let (e, d, t) = (
+            number(&g, "equity_value"),
+            number(&g, "debt"),
+            number(&g, "tax_rate"),
+        );
         let hamada = number(&g, "beta_used") / (1.0 + (1.0 - t) * d / e);
         assert!(close(number(&g, "unlevered_beta"), hamada));
         let share = 1.0 - number(&g, "cash") / (e + d);
@@ -1546,18 +1556,29 @@ fn placeholder_labels_empty_counts_and_nan_figures_are_worded_plainly() {
     fs::write(&path, labelled).unwrap();
     let out = setup.succeeds("out", &[]);
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
-    assert!(summary.contains("usually marks a missing classification (\"N/A\")"), "{summary}");
+    assert!(
+        summary.contains("usually marks a missing classification (\"N/A\")"),
+        "{summary}"
+    );
     assert!(!summary.contains("()"), "{summary}");
     refused(
         |dir| {
             let path = dir.join("attributes.csv");
             let text = fs::read_to_string(&path).unwrap();
-            let mut cells: Vec<String> =
-                text.lines().nth(2).unwrap().split(',').map(str::to_string).collect();
+            let mut cells: Vec<String> = text
+                .lines()
+                .nth(2)
+                .unwrap()
+                .split(',')
+                .map(str::to_string)
+                .collect();
             cells[4] = "NaN".into();
             replace_line(&path, 3, &cells.join(","));
         },
         &[],
-        &["attributes.csv, line 3", "`debt` = NaN is not a finite number"],
+        &[
+            "attributes.csv, line 3",
+            "`debt` = NaN is not a finite number",
+        ],
     );
 }

@@ -10,7 +10,7 @@
 
 use std::fs;
 use std::path::{Path, PathBuf};
-use std::process::Output;
+use std::process::{Command, Output};
 
 use chrono::NaiveDate;
 use hurdle::demo_wide::{INDEX_COLUMN, RISK_FREE_COLUMN};
@@ -293,7 +293,7 @@ impl WideCopy {
     }
 
     /// Rewrites data/prices.xlsx from data/prices.csv (dates as date cells, prices as numbers),
-    /// with `edit` choosing a text cell instead at (row, column) of the table.
+    /// with a text cell instead at (row, column) of the table, or beside it when outside.
     fn workbook_with_text_cell(&self, row: u32, col: u16, text: &str) {
         use rust_xlsxwriter::{ExcelDateTime, Workbook};
         let csv = fs::read_to_string(self.path("data/prices.csv")).unwrap();
@@ -318,6 +318,13 @@ impl WideCopy {
                         .unwrap();
                 }
             }
+        }
+        let (rows, columns) = (
+            csv.lines().count(),
+            csv.lines().next().unwrap().split(',').count(),
+        );
+        if row as usize >= rows || col as usize >= columns {
+            sheet.write_string(row, col, text).unwrap();
         }
         book.save(self.path("data/prices.xlsx")).unwrap();
     }
@@ -346,6 +353,26 @@ fn a_decimal_comma_in_a_wide_csv_is_named_by_line() {
     let stderr = copy.fail("case.toml");
     assert!(stderr.contains("prices.csv: line 10: `"), "{stderr}");
     assert!(stderr.contains("fields but the header has"), "{stderr}");
+}
+
+// A row cut short in a wide CSV table would read its last peers' prices as gaps (an empty cell
+// is a gap): it is refused naming its line, not accepted with two peers missing a day (found by
+// review).
+#[test]
+fn a_row_cut_short_in_a_wide_csv_is_named_by_line() {
+    let copy = WideCopy::new();
+    let path = copy.path("data/prices.csv");
+    let csv = fs::read_to_string(&path).unwrap();
+    let old = csv.lines().nth(499).unwrap().to_string();
+    let cells: Vec<&str> = old.split(',').collect();
+    let short = cells[..cells.len() - 2].join(",");
+    fs::write(&path, csv.replacen(&old, &short, 1)).unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(stderr.contains("prices.csv: line 500: `"), "{stderr}");
+    assert!(
+        stderr.contains("a row needs a field for every column"),
+        "{stderr}"
+    );
 }
 
 // An implausible jump in a wide table's column is named by its own line and column (and the
@@ -868,4 +895,71 @@ fn init_with_the_demo_figures_filled_in_reproduces_the_demo_wacc() {
     assert_eq!(a["wacc"].as_f64(), b["wacc"].as_f64());
     assert_eq!(a["beta"]["unlevered"], b["beta"]["unlevered"]);
     assert!(a["wacc"].as_f64().unwrap() > 0.0);
+}
+
+/// The figures of a receipt, without input locations and hashes.
+fn figures(receipt: &Value) -> Vec<(String, Value)> {
+    let mut all = Vec::new();
+    leaves(receipt, String::new(), &mut all);
+    all.into_iter()
+        .filter(|(p, _)| !is_input_location(p))
+        .collect()
+}
+
+// A workbook in the 1904 date system (older Mac spreadsheets count serials from 1904-01-01)
+// whose dates are plain numbers: read in the workbook's own system, so the figures equal the
+// CSV table's. openpyxl writes it (`wb.epoch = CALENDAR_MAC_1904`, its documented switch, and
+// the serials computed here from 1904-01-01); before, the dates read four years and a day
+// early (found by review).
+#[test]
+fn a_1904_workbook_with_serial_dates_reads_in_its_own_date_system() {
+    let copy = WideCopy::new();
+    let script = r#"
+import csv, datetime, sys, openpyxl
+from openpyxl.utils.datetime import CALENDAR_MAC_1904
+source, target = sys.argv[1], sys.argv[2]
+wb = openpyxl.Workbook()
+wb.epoch = CALENDAR_MAC_1904
+sheet = wb.active
+sheet.title = "Prices"
+with open(source, newline="") as f:
+    for k, row in enumerate(csv.reader(f)):
+        if k == 0:
+            sheet.append(row)
+            continue
+        day = datetime.date.fromisoformat(row[0])
+        serial = (day - datetime.date(1904, 1, 1)).days
+        sheet.append([serial] + [float(c) if c else None for c in row[1:]])
+wb.save(target)
+"#;
+    let made = Command::new("python3")
+        .args(["-c", script])
+        .arg(copy.path("data/prices.csv"))
+        .arg(copy.path("data/prices.xlsx"))
+        .output()
+        .expect("python3 with openpyxl (python3 -m pip install openpyxl)");
+    assert!(
+        made.status.success(),
+        "{}",
+        String::from_utf8_lossy(&made.stderr)
+    );
+    let out = copy.root.path().join("out-1904");
+    ok(&run_case(&copy.path("case_workbook.toml"), &out, &[]));
+    let csv_out = copy.root.path().join("out-csv");
+    ok(&run_case(&copy.path("case.toml"), &csv_out, &[]));
+    let (a, b) = (figures(&receipt(&csv_out)), figures(&receipt(&out)));
+    assert!(a.len() > 800, "too few figures compared: {}", a.len());
+    assert_eq!(a, b);
+}
+
+// One stray entry far from the table (a space typed at XFD1048576) would make the sheet a
+// rectangle of 17 billion cells: refused naming the cell, exit 2, instead of an abort on a
+// failed allocation (found by review).
+#[test]
+fn a_stray_cell_far_from_the_table_is_named() {
+    let copy = WideCopy::new();
+    copy.workbook_with_text_cell(1_048_575, 16_383, " ");
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(stderr.contains("XFD1048576 (the text \"\")"), "{stderr}");
+    assert!(stderr.contains("far from the rest"), "{stderr}");
 }

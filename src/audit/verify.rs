@@ -67,8 +67,38 @@ describes is compared as a value of its own";
 pub struct Mismatch {
     /// JSON path, e.g. `peers[2].beta`.
     pub path: String,
+    /// The name of the list entry the figure belongs to, as the receipt records it (a peer's
+    /// `name`, a leave-one-out row's `peer`), so a reader need not count positions.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub item: Option<String>,
     pub recorded: Value,
     pub recomputed: Value,
+}
+
+impl Mismatch {
+    /// The path with the entry's name after it: `peers[0].beta ("Brenvale Fluid Systems")`.
+    pub fn place(&self) -> String {
+        match &self.item {
+            Some(item) => format!("{} (\"{item}\")", self.path),
+            None => self.path.clone(),
+        }
+    }
+
+    /// For two numbers, their difference (recomputed − recorded) and its size relative to the
+    /// recorded figure: `; difference 1.2e-3 (0.11%)`. Empty otherwise.
+    pub fn difference(&self) -> String {
+        match (self.recorded.as_f64(), self.recomputed.as_f64()) {
+            (Some(a), Some(b)) if a != 0.0 => {
+                format!(
+                    "; difference {:.4e} ({:+.4}%)",
+                    b - a,
+                    (b - a) / a.abs() * 100.0
+                )
+            }
+            (Some(a), Some(b)) => format!("; difference {:.4e}", b - a),
+            _ => String::new(),
+        }
+    }
 }
 
 /// The verdict on a receipt.
@@ -92,6 +122,9 @@ pub struct Verification {
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
     pub reproduced: bool,
+    /// The headline figures (`wacc`, `cost_of_equity`, `cost_of_debt_after_tax` of a case),
+    /// each with whether it reproduced: what a reader asks first.
+    pub headline: Vec<(String, bool)>,
     /// What this kind of verification leaves out, and why.
     pub not_compared: &'static str,
     /// Every file the rerun read (not part of the report), so outputs never replace one.
@@ -100,6 +133,45 @@ pub struct Verification {
 }
 
 impl Verification {
+    /// The input files (the case or universe file among them) whose SHA-256 differs.
+    pub fn changed_inputs(&self) -> usize {
+        usize::from(!self.case_unchanged) + self.files.iter().filter(|f| !f.unchanged).count()
+    }
+
+    /// The verdict's line: `REPRODUCED: …` or `NOT REPRODUCED: …`, saying apart whether input
+    /// files changed and how many figures differ.
+    pub fn verdict(&self) -> String {
+        let changed = match self.changed_inputs() {
+            0 => String::new(),
+            1 => "1 input file changed; ".into(),
+            n => format!("{n} input files changed; "),
+        };
+        format!(
+            "{}: {changed}{} figures compared, {} mismatched (relative tolerance {:e}){}",
+            if self.reproduced {
+                "REPRODUCED"
+            } else {
+                "NOT REPRODUCED"
+            },
+            self.compared,
+            self.mismatches.len(),
+            self.tolerance,
+            self.wording_summary()
+        )
+    }
+
+    /// The headline figures in words: `WACC reproduced; cost of equity DIFFERS; …`.
+    pub fn headline_summary(&self) -> String {
+        self.headline
+            .iter()
+            .map(|(name, same)| {
+                let name = name.replace('_', " ").replace("wacc", "WACC");
+                format!("{name} {}", if *same { "reproduced" } else { "DIFFERS" })
+            })
+            .collect::<Vec<_>>()
+            .join("; ")
+    }
+
     /// The wording differences for a verdict's line: empty without any, else how many
     /// descriptions read differently (the verdict does not count them).
     pub fn wording_summary(&self) -> String {
@@ -184,6 +256,15 @@ pub fn verify(
     let found = compare(&recorded, &recomputed, tolerance);
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
+    let headline = ["wacc", "cost_of_equity", "cost_of_debt_after_tax"]
+        .iter()
+        .map(|key| {
+            (
+                key.to_string(),
+                !found.mismatches.iter().any(|m| m.path == *key),
+            )
+        })
+        .collect();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
         kind: "case",
@@ -197,6 +278,7 @@ pub fn verify(
         recorded_tool_version: text("/tool/version").unwrap_or_default(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        headline,
         not_compared: NOT_COMPARED,
         files_read,
     })
@@ -248,11 +330,17 @@ pub(super) fn locate_case(
     sha256: Option<&str>,
 ) -> Result<PathBuf> {
     let recorded = PathBuf::from(recorded);
-    let mut candidates = vec![recorded.clone()];
+    // The case beside the receipt's folder first (a copied or moved bundle carries its own
+    // case and data, which the recorded path may still find at the original's place), then the
+    // recorded path. The receipt's path made absolute first, so that `result.json` given from
+    // inside the output folder still has a parent folder.
+    let receipt_path = std::path::absolute(receipt_path).unwrap_or(receipt_path.to_path_buf());
+    let mut candidates = Vec::new();
     if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
         let case_dir = output_dir.parent().unwrap_or(Path::new(""));
         candidates.push(case_dir.join(name));
     }
+    candidates.push(recorded.clone());
     let same_bytes = |path: &PathBuf| {
         let bytes = std::fs::read(path).ok();
         sha256.is_some_and(|hash| bytes.is_some_and(|b| crate::io::series::sha256_hex(&b) == hash))
@@ -263,7 +351,7 @@ pub(super) fn locate_case(
         .or_else(|| candidates.iter().find(|p| p.is_file()))
         .cloned()
         .ok_or_else(|| Error::InputNotFound {
-            receipt: receipt_path.to_path_buf(),
+            receipt: receipt_path.clone(),
             section: section.to_string(),
             tried: candidates.clone(),
         })
@@ -288,25 +376,38 @@ pub(super) struct Comparison {
 /// ([`numbers_agree`]), everything else exactly, a key on one side only as against `null`.
 pub(super) fn compare(recorded: &Value, recomputed: &Value, tolerance: f64) -> Comparison {
     let mut found = Comparison::default();
-    compare_at(
-        recorded,
-        recomputed,
-        String::new(),
-        "",
-        tolerance,
-        &mut found,
-    );
+    let at = Place {
+        path: String::new(),
+        key: "",
+        item: None,
+    };
+    compare_at(recorded, recomputed, at, tolerance, &mut found);
     found
+}
+
+/// Where a leaf is: its JSON path, its own key, and the name of the list entry it is in.
+struct Place<'a> {
+    path: String,
+    key: &'a str,
+    item: Option<String>,
+}
+
+/// The name a list entry records for itself (a peer's `name`, a leave-one-out row's `peer`).
+fn entry_name(entry: &Value) -> Option<String> {
+    ["name", "peer", "security"]
+        .iter()
+        .find_map(|k| entry.get(k).and_then(Value::as_str))
+        .map(str::to_string)
 }
 
 fn compare_at(
     recorded: &Value,
     recomputed: &Value,
-    path: String,
-    key: &str,
+    at: Place<'_>,
     tolerance: f64,
     found: &mut Comparison,
 ) {
+    let Place { path, key, item } = at;
     // When it ran, where the case was found from and which version wrote it are not figures
     // (the hashes are compared, and the report names both versions when they differ); nor is
     // the line a spread table's row sits on (the table's hash and the row's rating and spread
@@ -318,7 +419,10 @@ fn compare_at(
         "tool.version",
         "cost_of_debt.row.line",
     ];
-    if PLACES.contains(&path.as_str()) {
+    // An input's hash is compared file by file (the verification's file list), not again as a
+    // figure: a file whose bytes changed (line ends, a comment) while every figure stayed is
+    // reported once, as a changed input.
+    if PLACES.contains(&path.as_str()) || key == "sha256" {
         return;
     }
     let child = |key: &str| {
@@ -330,18 +434,28 @@ fn compare_at(
     };
     let agree = match (recorded, recomputed) {
         (Value::Object(a), Value::Object(b)) => {
+            let place = |key| Place {
+                path: child(key),
+                key,
+                item: item.clone(),
+            };
             for (key, value) in a {
                 let next = b.get(key).unwrap_or(&Value::Null);
-                compare_at(value, next, child(key), key, tolerance, found);
+                compare_at(value, next, place(key), tolerance, found);
             }
             for key in b.keys().filter(|k| !a.contains_key(*k)) {
-                compare_at(&Value::Null, &b[key], child(key), key, tolerance, found);
+                compare_at(&Value::Null, &b[key], place(key), tolerance, found);
             }
             return;
         }
         (Value::Array(a), Value::Array(b)) if a.len() == b.len() => {
             for (i, (x, y)) in a.iter().zip(b).enumerate() {
-                compare_at(x, y, format!("{path}[{i}]"), key, tolerance, found);
+                let at = Place {
+                    path: format!("{path}[{i}]"),
+                    key,
+                    item: entry_name(x).or_else(|| item.clone()),
+                };
+                compare_at(x, y, at, tolerance, found);
             }
             return;
         }
@@ -358,6 +472,7 @@ fn compare_at(
     }
     let difference = Mismatch {
         path,
+        item,
         recorded: recorded.clone(),
         recomputed: recomputed.clone(),
     };

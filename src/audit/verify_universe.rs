@@ -65,6 +65,7 @@ pub fn verify_universe(
         recorded_tool_version: text("/tool/version").unwrap_or_default().to_string(),
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
+        headline: Vec::new(),
         not_compared: NOT_COMPARED,
         files_read,
     })

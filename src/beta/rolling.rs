@@ -22,9 +22,6 @@ use crate::market::sampling::ShiftedMarket;
 use crate::stats::least_squares::{design_with_intercept, newey_west_default_lags, ols, StdErrors};
 use moments::{Combination, Moments};
 
-/// The standard normal 97.5% quantile (to two decimals, as charts conventionally draw it).
-pub const BAND_Z: f64 = 1.96;
-
 /// One window's estimate.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RollingPoint {
@@ -33,8 +30,9 @@ pub struct RollingPoint {
     pub beta: f64,
     pub std_error: f64,
     pub observations: usize,
-    /// β ∓ 1.96·SE: the band the stability chart draws (the normal approximation, as a
-    /// window's t quantile would differ by window).
+    /// β ∓ t(0.975, df)·SE with the window's residual degrees of freedom (N less the
+    /// coefficients): the 95% interval the case's tables give for the whole window, and the
+    /// band the stability chart draws.
     pub band_low: f64,
     pub band_high: f64,
 }
@@ -128,13 +126,15 @@ pub fn rolling_betas(
             continue;
         }
         if let Some((beta, std_error)) = sums.beta(combination, spec.std_errors, lags) {
+            let df = n - regressors.len() - 1;
+            let half = crate::stats::student_t_quantile(0.975, df as f64) * std_error;
             points.push(RollingPoint {
                 window_end: end,
                 beta,
                 std_error,
                 observations: n,
-                band_low: beta - BAND_Z * std_error,
-                band_high: beta + BAND_Z * std_error,
+                band_low: beta - half,
+                band_high: beta + half,
             });
         }
     }

@@ -26,9 +26,9 @@ use super::{finish, BetaEstimate, MarketCoefficient};
 /// applied to the residuals of the regression of r on [1, m₋₁, m₀, m₊₁], the model under which
 /// the three slopes sum to the true beta; ρ is treated as known. R² and the residual SE are
 /// those of that regression. This standard error is the project's construction (the 1977 paper
-/// gives the estimator's asymptotic properties, not this formula); because it treats ρ as known
-/// it omits ρ̂'s own sampling error (roughly β/√N when the market is serially uncorrelated), so
-/// it somewhat understates the spread, most when N is large relative to the residual noise.
+/// gives the estimator's asymptotic properties, not this formula); it treats ρ as known, so
+/// ρ̂'s own sampling error is not in it (b₋₁ and b₊₁ move with the sample's autocorrelation
+/// too, which may offset much of it; how much it matters is not established here).
 pub fn scholes_williams_beta(
     asset: &[f64],
     market: &[f64],

@@ -540,8 +540,14 @@ fn formula_outcome(
     common: &Common,
 ) -> FormulaOutcome {
     let peer_unlevered_betas = unlevered_betas(formula, peers, &common.adjusted, &common.peers);
-    let peer_operations_betas =
-        operations_betas(spec, formula, peers, &common.adjusted, &common.peers, &peer_unlevered_betas);
+    let peer_operations_betas = operations_betas(
+        spec,
+        formula,
+        peers,
+        &common.adjusted,
+        &common.peers,
+        &peer_unlevered_betas,
+    );
     let (plain_dispersion, plain_statistics) =
         aggregate(peers, &peer_unlevered_betas, spec.trim_fraction);
     let (operations_dispersion, operations_statistics) =

@@ -52,9 +52,11 @@ pub enum Formula {
     /// discount rates — extensions from the average-risk case", J. Financial Research 8(3).
     HarrisPringle,
     /// βL = βU + (βU − βD)·D/E·(1 − t·Kd/(1 + Kd)): debt rebalanced to a constant D/V once a
-    /// period, so the next period's shield is known and discounted at Kd. Miles and Ezzell
-    /// (1980), "The weighted average cost of capital, perfect capital markets, and project
-    /// life: a clarification", J. Financial and Quantitative Analysis 15(3).
+    /// period, so the next period's shield is known and discounted at Kd. The beta relation is
+    /// the unlevering procedure of Miles and Ezzell (1985), "Reformulating tax shield valuation:
+    /// a note", J. Finance 40(5); the constant-leverage WACC it rests on is their 1980 paper,
+    /// "The weighted average cost of capital, perfect capital markets, and project life: a
+    /// clarification", J. Financial and Quantitative Analysis 15(3).
     MilesEzzell,
     /// βL = βU + (βU − βD)·(1 − t)·D/E: Hamada with risky debt. Conine (1980), "Corporate
     /// debt and corporate taxes: an extension", J. Finance 35(4).
@@ -135,7 +137,8 @@ impl Formula {
                 "Harris and Pringle (1985), Journal of Financial Research 8(3)"
             }
             Formula::MilesEzzell => {
-                "Miles and Ezzell (1980), Journal of Financial and Quantitative Analysis 15(3)"
+                "Miles and Ezzell (1985), Journal of Finance 40(5), on their 1980 constant-leverage \
+                 WACC"
             }
             Formula::Conine => "Conine (1980), Journal of Finance 35(4)",
         }

@@ -81,8 +81,11 @@ fn render(r: &Verification) -> String {
     }
     for m in &r.mismatches {
         out.push_str(&format!(
-            "  MISMATCH {}: recorded {} recomputed {}\n",
-            m.path, m.recorded, m.recomputed
+            "  MISMATCH {}: recorded {} recomputed {}{}\n",
+            m.place(),
+            m.recorded,
+            m.recomputed,
+            m.difference()
         ));
     }
     for m in &r.wording_differences {
@@ -95,17 +98,10 @@ fn render(r: &Verification) -> String {
         out.push_str(&format!("  note: {}\n", WORDING_NOTE));
     }
     out.push_str(&format!("  note: {}\n", r.not_compared));
-    out.push_str(&format!(
-        "{}: {} figures compared, {} mismatched (relative tolerance {:e}){}\n",
-        if r.reproduced {
-            "REPRODUCED"
-        } else {
-            "NOT REPRODUCED"
-        },
-        r.compared,
-        r.mismatches.len(),
-        r.tolerance,
-        r.wording_summary()
-    ));
+    if !r.headline.is_empty() {
+        out.push_str(&format!("  {}\n", r.headline_summary()));
+    }
+    out.push_str(&r.verdict());
+    out.push('\n');
     out
 }

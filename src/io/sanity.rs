@@ -104,12 +104,13 @@ pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> Strin
 }
 
 /// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
-/// separator, and every row with as many fields as the header (more: a decimal comma, an unquoted
-/// comma in text; fewer: a row cut short, whose cells would shift or read as gaps). Quoted fields
-/// may hold commas and line breaks. Returns the first blank line after the header
+/// separator, and no row with more fields than the header (a decimal comma, an unquoted comma in
+/// text), nor with fewer when `short_rows` (a wide table, where a row cut short would read its
+/// last columns as gaps; in a price file the cell parser names the empty cell, after the header's
+/// own checks). Quoted fields may hold commas and line breaks. Returns the first blank line after the header
 /// (outside quotes; not the end after the last line break), which the cell parser reports as a
 /// row with empty cells once the rows before it are read.
-pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
+pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Option<BlankLine>> {
     let row_error = |line: usize, message: String| Error::DataRow {
         file: file.to_path_buf(),
         line,
@@ -170,9 +171,10 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8]) -> Result<Option<BlankLine>> {
                     .map_err(|message| row_error(line, message))?;
                 header_fields = Some(fields);
             }
-            // A short record's cells would be read into the wrong columns, or a wide table's last
-            // columns be read as gaps; an empty line is the cell parser's to name.
-            Some(expected) if fields > expected || (fields < expected && !raw.is_empty()) => {
+            // An empty line is the cell parser's to name.
+            Some(expected)
+                if fields > expected || (short_rows && fields < expected && !raw.is_empty()) =>
+            {
                 let shown = String::from_utf8_lossy(raw);
                 return Err(row_error(
                     record_line,
@@ -324,7 +326,7 @@ mod tests {
     }
 
     fn shape(text: &[u8]) -> String {
-        match check_csv_shape(Path::new("p.csv"), text) {
+        match check_csv_shape(Path::new("p.csv"), text, false) {
             Ok(None) => "ok".into(),
             Ok(Some(blank)) => format!("blank line {} at byte {}", blank.line, blank.byte),
             Err(e) => e.to_string(),

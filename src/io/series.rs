@@ -183,7 +183,7 @@ pub fn parse_series(
         file: file.to_path_buf(),
         message,
     };
-    let blank = super::sanity::check_csv_shape(file, bytes)?;
+    let blank = super::sanity::check_csv_shape(file, bytes, false)?;
     // The reader skips blank lines; polars, and people, see a row with empty cells there.
     let blank_row = |blank: super::sanity::BlankLine| Error::DataRow {
         file: file.to_path_buf(),

@@ -147,7 +147,8 @@ fn plan_for(
             let names = header.iter().map(String::as_str);
             let padded = crate::io::sanity::padded_name_hint(names, name);
             let hint = match padded.is_empty() {
-                true => layout_hint(&header, columns, other).map_or_else(String::new, |h| format!("; {h}")),
+                true => layout_hint(&header, columns, other)
+                    .map_or_else(String::new, |h| format!("; {h}")),
                 false => padded,
             };
             source.file_error(format!(
@@ -438,7 +439,8 @@ fn diagnose(
     error: &PolarsError,
 ) -> Error {
     let expected = plan.header.len();
-    if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, false) {
+    if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, false)
+    {
         let row = (first_row + line).saturating_sub(usize::from(has_header));
         return source.row_error(row, extra_fields_message(fields, expected, &text));
     }

@@ -78,6 +78,8 @@ pub struct Stage {
     flushes: Mutex<Vec<(PathBuf, Flush)>>,
     /// Files of an earlier group in `dir` that this group takes away ([`Stage::retire`]).
     retired: Vec<String>,
+    /// The output folder, held locked until the stage ends (see [`lock_folder`]).
+    _lock: Option<fs::File>,
 }
 
 impl Stage {
@@ -94,6 +96,11 @@ impl Stage {
             .filter_map(|(path, role)| Some((fs::canonicalize(path).ok()?, role.clone())))
             .collect();
         let created = create_missing(dir)?;
+        let lock = lock_folder(dir).inspect_err(|_| {
+            for made in created.iter().rev() {
+                let _ = fs::remove_dir(made);
+            }
+        })?;
         let mut stage = Stage {
             dir: dir.to_path_buf(),
             inputs,
@@ -101,6 +108,7 @@ impl Stage {
             staging: None,
             flushes: Mutex::new(Vec::new()),
             retired: Vec::new(),
+            _lock: lock,
         };
         let staging = staging_folder(dir)?;
         if let Ok(mut folders) = STAGING.lock() {
@@ -293,7 +301,11 @@ fn create_missing(dir: &Path) -> Result<Vec<PathBuf>> {
     }
     missing.reverse();
     for (i, folder) in missing.iter().enumerate() {
-        if let Err(source) = fs::create_dir(folder) {
+        // Another run may create the same folder meanwhile: one that exists now is fine.
+        if let Err(source) = fs::create_dir(folder).or_else(|e| match folder.is_dir() {
+            true => Ok(()),
+            false => Err(e),
+        }) {
             for made in missing[..i].iter().rev() {
                 let _ = fs::remove_dir(made);
             }
@@ -301,6 +313,26 @@ fn create_missing(dir: &Path) -> Result<Vec<PathBuf>> {
         }
     }
     Ok(missing)
+}
+
+/// The output folder opened and locked (an advisory lock, `flock` on Unix, released when the
+/// run ends, also when it crashes): two runs writing one folder at once would leave it holding
+/// some files of each. A second run is refused while the first holds it. Where a folder cannot
+/// be opened or locked (another platform, a file system without locks), runs go unlocked.
+fn lock_folder(dir: &Path) -> Result<Option<fs::File>> {
+    let Ok(folder) = fs::File::open(dir) else {
+        return Ok(None);
+    };
+    match folder.try_lock() {
+        Ok(()) => Ok(Some(folder)),
+        Err(fs::TryLockError::WouldBlock) => Err(refusal(
+            dir,
+            "is being written by another hurdle run right now; wait for it to finish, or give \
+             another folder (--out)"
+                .into(),
+        )),
+        Err(fs::TryLockError::Error(_)) => Ok(None),
+    }
 }
 
 /// A temporary folder beside `dir` (inside it when its parent is not writable).
@@ -405,6 +437,19 @@ mod tests {
             .collect();
         names.sort();
         names
+    }
+
+    // Two runs writing one folder at once: the second is refused while the first holds it, and
+    // may write once the first has ended (flock semantics, POSIX).
+    #[test]
+    fn a_folder_another_run_is_writing_is_refused() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("out");
+        let first = Stage::begin(&out, &[]).unwrap();
+        let refused = Stage::begin(&out, &[]).err().expect("refused").to_string();
+        assert!(refused.contains("another hurdle run"), "{refused}");
+        drop(first);
+        assert!(Stage::begin(&out, &[]).is_ok());
     }
 
     #[test]

@@ -19,14 +19,18 @@ fn differences(w: &mut String, header: &str, list: &[Mismatch]) {
     if list.is_empty() {
         return;
     }
-    let _ = writeln!(w, "\n| {header} |\n|---|---|---|");
+    let _ = writeln!(w, "\n| {header} |\n|---|---|---|---|");
     for m in list {
         let _ = writeln!(
             w,
-            "| `{}` | {} | {} |",
+            "| `{}`{} | {} | {} | {} |",
             m.path,
+            m.item
+                .as_ref()
+                .map_or_else(String::new, |i| format!(" ({})", i.replace('|', "\\|"))),
             cell(&m.recorded),
-            cell(&m.recomputed)
+            cell(&m.recomputed),
+            m.difference().trim_start_matches("; difference ")
         );
     }
 }
@@ -34,22 +38,15 @@ fn differences(w: &mut String, header: &str, list: &[Mismatch]) {
 /// The verification report as Markdown.
 pub fn markdown(r: &Verification) -> String {
     let mut out = String::new();
-    let verdict = if r.reproduced {
-        "REPRODUCED"
-    } else {
-        "NOT REPRODUCED"
-    };
     let w = &mut out;
     // Writing to a String cannot fail; the results are ignored below for that reason.
     let _ = writeln!(w, "# Verification of `{}`\n", r.receipt);
-    let _ = writeln!(
-        w,
-        "**{verdict}**: {} figures compared at a relative tolerance of {:e}, {} mismatched{}.\n",
-        r.compared,
-        r.tolerance,
-        r.mismatches.len(),
-        r.wording_summary()
-    );
+    let verdict = r.verdict();
+    let (word, rest) = verdict.split_once(": ").unwrap_or((&verdict, ""));
+    let _ = writeln!(w, "**{word}**: {rest}.\n");
+    if !r.headline.is_empty() {
+        let _ = writeln!(w, "{}.\n", r.headline_summary());
+    }
     let _ = writeln!(
         w,
         "The {} file `{}`: {}. Receipt written by hurdle {}, verified with hurdle {}.\n",
@@ -80,8 +77,12 @@ pub fn markdown(r: &Verification) -> String {
             f.role, f.path, f.recorded_sha256, f.current_sha256
         );
     }
-    differences(w, "Figure | Recorded | Recomputed", &r.mismatches);
-    differences(w, "Description | Recorded | Now", &r.wording_differences);
+    differences(
+        w,
+        "Figure | Recorded | Recomputed | Difference",
+        &r.mismatches,
+    );
+    differences(w, "Description | Recorded | Now | ", &r.wording_differences);
     if !r.wording_differences.is_empty() {
         let _ = writeln!(w, "\nWorded differently: {WORDING_NOTE}.");
     }

@@ -210,7 +210,8 @@ pub enum StdErrors {
 
 /// The Newey–West lag count when none is given: floor(4·(N/100)^(2/9)), the rule of Newey and
 /// West (1994), "Automatic lag selection in covariance matrix estimation", Rev. Econ. Studies
-/// 61(4) (their fixed-bandwidth rule for the Bartlett kernel).
+/// 61(4): the preliminary bandwidth of their automatic procedure for the Bartlett kernel, used
+/// on its own as a rule of thumb.
 pub fn newey_west_default_lags(observations: usize) -> usize {
     (4.0 * (observations as f64 / 100.0).powf(2.0 / 9.0)).floor() as usize
 }

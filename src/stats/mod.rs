@@ -77,6 +77,16 @@ pub enum Aggregation {
 }
 
 impl Aggregation {
+    /// The statistic in words, as a noun ("market-cap-weighted mean").
+    pub fn noun(self) -> &'static str {
+        match self {
+            Aggregation::Median => "median",
+            Aggregation::Mean => "mean",
+            Aggregation::MarketCapWeighted => "market-cap-weighted mean",
+            Aggregation::TrimmedMean => "trimmed mean",
+        }
+    }
+
     /// This statistic out of all of them.
     pub fn select(self, statistics: &Locations) -> f64 {
         match self {
@@ -154,7 +164,11 @@ pub fn weighted_mean(values: &[f64], weights: &[f64]) -> f64 {
     assert_eq!(values.len(), weights.len(), "one weight per value");
     let mean = |scale: f64| {
         let total: f64 = weights.iter().map(|w| w / scale).sum();
-        let sum: f64 = values.iter().zip(weights).map(|(v, w)| v * (w / scale)).sum();
+        let sum: f64 = values
+            .iter()
+            .zip(weights)
+            .map(|(v, w)| v * (w / scale))
+            .sum();
         sum / total
     };
     let plain = mean(1.0);

@@ -171,7 +171,18 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
     }
 }
 
+/// Two computed betas to compare in a message: four decimals, or every digit where four would
+/// print them alike.
+fn two_betas(a: f64, b: f64) -> (String, String) {
+    let (x, y) = (format!("{a:.4}"), format!("{b:.4}"));
+    match x == y {
+        true => (crate::error::compact(a), crate::error::compact(b)),
+        false => (x, y),
+    }
+}
+
 fn peer_debt_beta_message(debt_beta: f64, beta_used: f64) -> String {
+    let (debt_beta, beta_used) = two_betas(debt_beta, beta_used);
     format!(
         "debt beta {debt_beta} is above the equity beta used {beta_used}; debt ranks ahead of \
          equity and cannot carry more systematic risk (check leverage.debt_beta, the peer's \
@@ -180,6 +191,7 @@ fn peer_debt_beta_message(debt_beta: f64, beta_used: f64) -> String {
 }
 
 fn subject_debt_beta_message(settings: &CaseFile, debt_beta: f64, unlevered: f64) -> String {
+    let (debt_beta, unlevered) = two_betas(debt_beta, unlevered);
     format!(
         "the subject's debt beta {debt_beta} (leverage.debt_beta_source = {}) is above the \
          aggregate unlevered beta {unlevered}, so relevering would lower the equity beta below \

@@ -217,7 +217,7 @@ def blume(raw, weight):
 
 def check_unlevered(name, peer, used, result):
     """D/E (gross or net of cash) and the unlevered beta by the case's formula: Hamada (1972);
-    Harris-Pringle (1985), Miles-Ezzell (1980) and Conine (1980) solved for the asset beta."""
+    Harris-Pringle (1985), Miles-Ezzell (1985) and Conine (1980) solved for the asset beta."""
     spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
     de = spec["debt"] / spec["equity_value"]
     if result["settings"]["leverage"]["debt_measure"] == "net":
@@ -456,12 +456,23 @@ def main(out_dir):
     unlevered = np.array([p["unlevered_beta"] for p in included])
     leverage = result["settings"]["leverage"]
     specs = {p["name"]: p for p in result["settings"]["peer"]}
-    # The beta of the operations: beta_U / (1 - cash / (equity + debt)), gross debt, cash at beta 0.
+    # The beta of the operations: beta_U / (1 - cash / (equity + debt)), gross debt, cash at beta 0;
+    # beta_U at gross debt under either debt measure (under net debt the unlevered beta has already
+    # netted the cash), by the same textbook relations as check_unlevered.
     share = np.array([
         1 - specs[p["name"]]["cash"] / (specs[p["name"]]["equity_value"] + specs[p["name"]]["debt"])
         for p in result["peers"]
     ])
-    operations = np.array([p["unlevered_beta"] for p in result["peers"]]) / share
+    def gross_unlevered(p):
+        if leverage["debt_measure"] != "net":
+            return p["unlevered_beta"]
+        spec = specs[p["name"]]
+        de = spec["debt"] / spec["equity_value"]
+        if result["beta"]["formula"] == "hamada":
+            return p["beta_used"] / (1 + (1 - spec["tax_rate"]) * de)
+        s = tax_factor(result["beta"]["formula"], spec["tax_rate"], p["cost_of_debt"])
+        return (p["beta_used"] + p["debt_beta"] * s * de) / (1 + s * de)
+    operations = np.array([gross_unlevered(p) for p in result["peers"]]) / share
     for p, w, c in zip(result["peers"], share, operations):
         check(f"{p['name']} operating share", p["operating_share"], w)
         check(f"{p['name']} beta of the operations", p["operations_beta"], c)

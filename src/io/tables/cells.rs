@@ -55,6 +55,16 @@ impl Cell {
     /// day, which is dropped), or a serial number of the 1900 date system (its fraction, the
     /// time of day, is dropped).
     pub fn date(&self) -> Result<NaiveDate, String> {
+        self.date_in(false)
+    }
+
+    /// [`Cell::date`] in a workbook's date system: with `system_1904`, a serial number counts
+    /// days from 1904-01-01 (serial 0), which is serial 1462 of the 1900 system (ECMA-376 Part
+    /// 1, §18.17.4.1, from memory; the 1,461 days of 1900–1903 and the 1900 system's day 0 of
+    /// 1899-12-30).
+    pub fn date_in(&self, system_1904: bool) -> Result<NaiveDate, String> {
+        let offset = if system_1904 { 1462.0 } else { 0.0 };
+        let serial = |x: f64| serial_to_date(x + offset);
         let not_a_date = || {
             format!(
                 "{} is not a date; give a date cell, an ISO 8601 date such as 2026-09-30, or a \
@@ -64,11 +74,11 @@ impl Cell {
         };
         match self {
             Cell::Date(d) => Ok(*d),
-            Cell::Number(x) => serial_to_date(*x).ok_or_else(not_a_date),
+            Cell::Number(x) => serial(*x).ok_or_else(not_a_date),
             Cell::Text(text) => {
                 let text = text.trim();
                 iso_date(text)
-                    .or_else(|| text.parse::<f64>().ok().and_then(serial_to_date))
+                    .or_else(|| text.parse::<f64>().ok().and_then(serial))
                     .ok_or_else(not_a_date)
             }
             _ => Err(not_a_date()),
@@ -226,6 +236,12 @@ mod tests {
         assert_eq!(Cell::Text(" 2026-09-30 ".into()).date(), Ok(day));
         assert_eq!(Cell::Text("2026-09-30T16:30:00".into()).date(), Ok(day));
         assert_eq!(Cell::Number(46_295.0).date(), Ok(day));
+        // The 1904 date system: serial 0 is 1904-01-01, so 2026-09-30 is 46,295 − 1,462.
+        assert_eq!(Cell::Number(44_833.0).date_in(true), Ok(day));
+        assert_eq!(
+            Cell::Number(0.0).date_in(true),
+            Ok(NaiveDate::from_ymd_opt(1904, 1, 1).unwrap())
+        );
         assert_eq!(Cell::Text("46295".into()).date(), Ok(day));
         let refused = Cell::Text("30/09/2026".into()).date().unwrap_err();
         assert!(

@@ -16,10 +16,11 @@ use crate::io::parquet_types::unreadable_column;
 /// Reads CSV bytes: the first line is the header.
 pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
     // The shape first, as for a price file of its own: text that is not UTF-8, a row with more
-    // fields than the header (a decimal comma) and lines ending in a carriage return alone are
+    // fields than the header (a decimal comma) or fewer (a row cut short, whose last columns
+    // would read as gaps) and lines ending in a carriage return alone are
     // named by line here, not left to polars' message. (An empty file keeps its own message.)
     if !bytes.iter().all(u8::is_ascii_whitespace) {
-        match crate::io::sanity::check_csv_shape(std::path::Path::new(""), bytes) {
+        match crate::io::sanity::check_csv_shape(std::path::Path::new(""), bytes, true) {
             Ok(_) => {}
             Err(crate::error::Error::DataRow { line, message, .. }) => {
                 return Err(format!("line {line}: {message}"))
@@ -63,6 +64,7 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
         },
         header,
         columns,
+        date_system_1904: false,
     })
 }
 
@@ -101,6 +103,7 @@ pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
         },
         header,
         columns,
+        date_system_1904: false,
     })
 }
 

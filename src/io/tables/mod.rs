@@ -64,6 +64,9 @@ pub(crate) struct RawTable {
     pub columns: Vec<Vec<Cell>>,
     /// Where data row 0 and column 0 sit, for cell references in messages.
     pub place: Place,
+    /// The workbook counts date serials from 1904-01-01 (the 1904 date system of older Mac
+    /// workbooks) rather than from 1900: a date given as a plain number is read in it.
+    pub date_system_1904: bool,
 }
 
 /// A wide table as read: its dates and every security column, not yet parsed as prices.
@@ -322,7 +325,7 @@ fn dated_rows(
             }
             continue;
         }
-        let date = cell.date().map_err(|m| {
+        let date = cell.date_in(raw.date_system_1904).map_err(|m| {
             format!(
                 "{} (date column `{date_name}`): {m}",
                 place.cell(i, date_index)

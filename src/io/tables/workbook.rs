@@ -5,10 +5,10 @@
 //! anything in it is the header; the rows below are data. A password-protected workbook, or a
 //! file that is not a workbook at all, is refused with a message that says which.
 
-use std::io::Cursor;
+use std::io::{Cursor, Read, Seek};
 use std::path::Path;
 
-use calamine::{open_workbook_from_rs, Data, Ods, Range, Reader, Xls, Xlsx};
+use calamine::{open_workbook_from_rs, Data, DataRef, Ods, Range, Reader, Xls, Xlsx};
 
 use super::cells::{Cell, Place, PlaceKind};
 use super::RawTable;
@@ -16,6 +16,12 @@ use super::RawTable;
 /// The last date serial a workbook holds (9999-12-31 in the 1900 date system; ECMA-376 Part 1,
 /// §18.17.4.1, from memory).
 const MAX_SERIAL: f64 = 2_958_465.999_999;
+
+/// The most cells a sheet's rectangle (from its first used cell to its last) may span: a sheet
+/// is held as that whole rectangle, so one stray entry far from the table (a space typed at
+/// XFD1048576) would ask for more memory than a machine has. 25 million cells is about 800 MB,
+/// far beyond any price table (30,000 days × 400 series is 12 million).
+const MAX_SHEET_CELLS: u64 = 25_000_000;
 
 /// The first bytes of a ZIP package (`.xlsx`, `.xlsm`, `.ods`).
 /// What a workbook of several sheets asks for, in a case's terms (a front end that takes the
@@ -43,11 +49,109 @@ pub(crate) fn read_sheet(
         "ods" => load::<Ods<_>>(bytes, sheet, &extension),
         _ => load::<Xlsx<_>>(bytes, sheet, &extension),
     });
-    let (name, range) = match loaded {
+    let (name, range, system_1904) = match loaded {
         Ok(loaded) => loaded?,
         Err(reason) => return Err(format!("is a damaged .{extension} workbook: {reason}")),
     };
-    from_range(name, range)
+    let mut table = from_range(name, range)?;
+    table.date_system_1904 = system_1904;
+    Ok(table)
+}
+
+/// What hurdle asks of each kind of workbook beyond calamine's `Reader`: its date system, and a
+/// sheet's cells.
+trait Book<RS: Read + Seek>: Reader<RS> {
+    /// Whether date serials count from 1904 (`.xlsx` and `.xls` say; OpenDocument stores dates
+    /// as dates).
+    fn system_1904(&self) -> bool;
+
+    /// The sheet's cells as one rectangle.
+    fn sheet_cells(&mut self, name: &str) -> Result<Range<Data>, String>
+    where
+        Self::Error: std::fmt::Display,
+    {
+        self.worksheet_range(name)
+            .map_err(|e| format!("sheet \"{name}\" cannot be read: {e}"))
+    }
+}
+
+impl<RS: Read + Seek> Book<RS> for Xls<RS> {
+    fn system_1904(&self) -> bool {
+        self.has_1904_epoch()
+    }
+}
+
+impl<RS: Read + Seek> Book<RS> for Ods<RS> {
+    fn system_1904(&self) -> bool {
+        false
+    }
+}
+
+impl<RS: Read + Seek> Book<RS> for Xlsx<RS> {
+    fn system_1904(&self) -> bool {
+        self.has_1904_epoch()
+    }
+
+    /// Read cell by cell, so that a rectangle too large to hold is refused before it is built,
+    /// naming the cells that stretch it.
+    fn sheet_cells(&mut self, name: &str) -> Result<Range<Data>, String> {
+        let unreadable = |e: calamine::XlsxError| format!("sheet \"{name}\" cannot be read: {e}");
+        let mut reader = self.worksheet_cells_reader(name).map_err(unreadable)?;
+        let mut cells = Vec::new();
+        while let Some(cell) = reader.next_cell().map_err(unreadable)? {
+            if !matches!(cell.get_value(), DataRef::Empty) {
+                let value = Data::from(cell.get_value().clone());
+                cells.push(calamine::Cell::new(cell.get_position(), value));
+            }
+        }
+        check_span(name, &cells)?;
+        Ok(Range::from_sparse(cells))
+    }
+}
+
+/// Refuses cells whose rectangle spans more than [`MAX_SHEET_CELLS`], naming the last row's and
+/// the last column's cells (the strays, as a rule) with their values.
+fn check_span(name: &str, cells: &[calamine::Cell<Data>]) -> Result<(), String> {
+    let positions = cells.iter().map(|c| c.get_position());
+    let (Some(top), Some(left)) = (
+        positions.clone().map(|p| p.0).min(),
+        positions.clone().map(|p| p.1).min(),
+    ) else {
+        return Ok(());
+    };
+    let lowest = cells
+        .iter()
+        .max_by_key(|c| c.get_position().0)
+        .expect("cells");
+    let rightmost = cells
+        .iter()
+        .max_by_key(|c| c.get_position().1)
+        .expect("cells");
+    let height = u64::from(lowest.get_position().0 - top) + 1;
+    let width = u64::from(rightmost.get_position().1 - left) + 1;
+    if height * width <= MAX_SHEET_CELLS {
+        return Ok(());
+    }
+    let at = |c: &calamine::Cell<Data>| {
+        let (row, column) = c.get_position();
+        let address = format!(
+            "{}{}",
+            super::cells::column_letters(column as usize),
+            row + 1
+        );
+        format!("{address} ({})", cell(c.get_value()).shown())
+    };
+    let mut strays = vec![at(lowest)];
+    if rightmost.get_position() != lowest.get_position() {
+        strays.push(at(rightmost));
+    }
+    Err(format!(
+        "sheet \"{name}\" spans {height} rows by {width} columns ({} cells) because of \
+         {}, far from the rest: delete what lies outside the table, or save the table as \
+         CSV",
+        height * width,
+        strays.join(" and ")
+    ))
 }
 
 /// Opens the workbook with reader `R`, picks the sheet and returns its name and cells.
@@ -55,9 +159,9 @@ fn load<'a, R>(
     bytes: &'a [u8],
     sheet: Option<&str>,
     extension: &str,
-) -> Result<(String, Range<Data>), String>
+) -> Result<(String, Range<Data>, bool), String>
 where
-    R: Reader<Cursor<&'a [u8]>>,
+    R: Book<Cursor<&'a [u8]>>,
     R::Error: std::fmt::Display,
 {
     let mut workbook: R = open_workbook_from_rs(Cursor::new(bytes))
@@ -90,9 +194,7 @@ where
             ))
         }
     };
-    let range = workbook
-        .worksheet_range(&name)
-        .map_err(|e| format!("sheet \"{name}\" cannot be read: {e}"))?;
+    let range = workbook.sheet_cells(&name)?;
     // A formula the workbook was saved without calculating has no stored value, and would read
     // as an empty cell, a missing price: refused instead. (Formulas that cannot be read are left
     // to their values.)
@@ -122,7 +224,7 @@ where
             ));
         }
     }
-    Ok((name, range))
+    Ok((name, range, workbook.system_1904()))
 }
 
 /// The message for a workbook calamine cannot open: encrypted, not a workbook, or damaged.
@@ -174,6 +276,7 @@ fn from_range(sheet: String, range: Range<Data>) -> Result<RawTable, String> {
         },
         header,
         columns,
+        date_system_1904: false,
     })
 }
 

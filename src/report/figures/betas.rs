@@ -10,7 +10,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::axes::{plot_layer, Axes, Scale};
-use super::canvas::{wrap, Canvas};
+use super::canvas::{shorten, wrap, Canvas};
 use super::frame::{square, triangle, Layout, Mark};
 use super::style::{self, ACCENT, INK, MUTED, NEUTRAL, PRIMARY, RULE};
 use super::{Figure, Kind};
@@ -26,6 +26,9 @@ const ROW: f64 = 40.0;
 const EXCLUDED_ROW: f64 = 1.5;
 /// Width of the band of peer names.
 const NAMES: u32 = 210;
+/// The characters of a name that fit the band (about 7 px each at the label size); a longer
+/// name is cut with an ellipsis, whole in the description.
+const NAME_CHARS: usize = 27;
 
 /// One peer's row: its position on the y axis (row units, downward negative).
 struct Row<'a> {
@@ -50,7 +53,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let axes = Axes {
         x: Scale::plain(low.min(aggregate), high.max(aggregate), 0.05, 8),
         y: Scale::bare(bottom, -0.35),
-        x_title: "Equity beta (the index = 1)".to_string(),
+        x_title: "Beta, equity or unlevered (the index = 1)".to_string(),
         y_title: String::new(),
         left: NAMES,
         bottom: 50,
@@ -78,8 +81,13 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         (
             Mark::Dashed(ACCENT),
             format!(
-                "{} of included, {}",
-                label(&summary.aggregation),
+                "{} {} of the peers included, {}",
+                summary.aggregation.noun(),
+                if cash {
+                    "β of the operations"
+                } else {
+                    "unlevered β"
+                },
                 fixed(aggregate, 3)
             ),
         ),
@@ -128,10 +136,17 @@ fn names(
         for row in rows {
             let (left, y) = chart.backend_coord(&(axes.x.range.start, row.y));
             let x = left - 12;
-            root.draw_text(&row.peer.name, &name_style, (x, y))?;
+            root.draw_text(&shorten(&row.peer.name, NAME_CHARS), &name_style, (x, y))?;
             if let Some(reason) = &row.peer.excluded_reason {
-                for (i, line) in wrap(reason, 34).iter().take(2).enumerate() {
-                    root.draw_text(line, &reason_style, (x, y + 10 + 13 * i as i32))?;
+                let lines = wrap(reason, 34);
+                for (i, line) in lines.iter().take(2).enumerate() {
+                    // A reason longer than two lines ends in an ellipsis (whole in the
+                    // description).
+                    let line = match i == 1 && lines.len() > 2 {
+                        true => shorten(&format!("{line} {}", lines[2]), 34),
+                        false => line.clone(),
+                    };
+                    root.draw_text(&line, &reason_style, (x, y + 10 + 13 * i as i32))?;
                 }
             }
         }
@@ -316,10 +331,9 @@ fn data_summary(rows: &[Row], unlevered: impl Fn(&PeerResult) -> f64, operations
                     "unlevered"
                 },
                 fixed(unlevered(r.peer), 3),
-                if r.peer.excluded_reason.is_some() {
-                    ", excluded"
-                } else {
-                    ""
+                match &r.peer.excluded_reason {
+                    Some(reason) => format!(", excluded ({reason})"),
+                    None => String::new(),
                 }
             )
         })

@@ -105,6 +105,16 @@ pub fn escape(text: &str) -> String {
     out
 }
 
+/// `text` cut to at most `width` characters, the last of them an ellipsis when it is cut: a
+/// label that would run out of its space (the whole text stays in the chart's description).
+pub fn shorten(text: &str, width: usize) -> String {
+    if text.chars().count() <= width {
+        return text.to_string();
+    }
+    let kept: String = text.chars().take(width.saturating_sub(1)).collect();
+    format!("{}…", kept.trim_end())
+}
+
 /// Breaks `text` into lines of at most `width` characters at spaces (a longer word stands
 /// alone on its line).
 pub fn wrap(text: &str, width: usize) -> Vec<String> {
@@ -128,6 +138,14 @@ pub fn wrap(text: &str, width: usize) -> Vec<String> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn shortening_keeps_short_text_and_marks_a_cut() {
+        assert_eq!(shorten("Corrowick Valves", 16), "Corrowick Valves");
+        assert_eq!(shorten("Corrowick Valves", 12), "Corrowick V…");
+        assert_eq!(shorten("Corrowick Valves", 11), "Corrowick…");
+        assert_eq!(shorten("Ünïcode names", 5), "Ünïc…");
+    }
 
     #[test]
     fn wrapping_keeps_words_whole() {

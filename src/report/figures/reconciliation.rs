@@ -4,7 +4,8 @@
 //! The bars are the library's ([`crate::audit::waterfall`]); bars run left to right along the
 //! WACC axis, one row each, so long group names stay readable. The axis does not start at zero
 //! (a few basis points would vanish beside a WACC of several percent), so the two total bars are
-//! cut at the left edge, marked by a break.
+//! cut at the left edge, marked by a break; when the running level falls to zero or below, the
+//! axis takes in zero and the totals are drawn whole from it.
 
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
@@ -87,18 +88,20 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         y_ticks: true,
     };
     let rows = bars.len();
+    // The totals are cut at the axis's start only when it lies above zero.
+    let cut = axes.x.range.start > 0.0;
     // Bar i sits in category rows − 1 − i (the first bar on top), 70% of the row high.
     let span = |i: usize, bar: &WaterfallBar| {
         let y = (rows - 1 - i) as f64;
-        let start = if bar.kind == BarKind::Total {
-            axes.x.range.start
-        } else {
-            bar.start
+        let start = match (bar.kind == BarKind::Total, cut) {
+            (true, true) => axes.x.range.start,
+            (true, false) => 0.0,
+            (false, _) => bar.start,
         };
         [(start, y + 0.15), (bar.end, y + 0.85)]
     };
     let title = "Bridge to the claimed WACC, input group by input group".to_string();
-    let caption = caption(bridge, axes.x.range.start);
+    let caption = caption(bridge, axes.x.range.start, cut, low);
     let legend = vec![
         (Mark::Swatch(ACCENT), "raises the WACC".to_string()),
         (Mark::Swatch(PRIMARY), "lowers it".to_string()),
@@ -113,7 +116,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    plot(&mut canvas, &layout, &axes, bars, &span)?;
+    plot(&mut canvas, &layout, &axes, bars, (&span, cut))?;
     let description = format!("{caption} {}", data_summary(bridge));
     Ok(Figure {
         kind: Kind::Reconciliation,
@@ -131,7 +134,7 @@ fn plot(
     layout: &Layout,
     axes: &Axes,
     bars: &[WaterfallBar],
-    span: &Placement<'_>,
+    (span, cut): (&Placement<'_>, bool),
 ) -> Result<()> {
     let rows = bars.len();
     plot_layer(canvas, layout, axes, "connectors", |chart| {
@@ -161,7 +164,7 @@ fn plot(
         for (i, bar) in bars
             .iter()
             .enumerate()
-            .filter(|(_, b)| b.kind == BarKind::Total)
+            .filter(|(_, b)| cut && b.kind == BarKind::Total)
         {
             let [(x0, y0), (_, y1)] = span(i, bar);
             for dx in [10, 16] {
@@ -193,7 +196,18 @@ fn plot(
     Ok(())
 }
 
-fn caption(bridge: &Bridge, axis_start: f64) -> String {
+fn caption(bridge: &Bridge, axis_start: f64, cut: bool, lowest: f64) -> String {
+    let axis = match (cut, lowest < 0.0) {
+        (true, _) => format!(
+            "The axis starts at {}, so the two WACC bars are cut at the left (the break marks). ",
+            percent(axis_start, 2)
+        ),
+        (false, false) => "The WACC bars are drawn from zero. ".to_string(),
+        (false, true) => "The WACC bars are drawn from zero. The levels between them are running \
+                          sums of the Shapley values, not WACCs of any case, and fall below zero \
+                          here. "
+            .to_string(),
+    };
     let residue = match bridge.unexplained {
         Some(u) => format!(
             "The last step, {}, is what the claim's stated WACC holds beyond its own components. ",
@@ -204,14 +218,12 @@ fn caption(bridge: &Bridge, axis_start: f64) -> String {
     format!(
         "From this case's WACC ({}) to \"{}\" ({}): each bar moves the WACC by one input group's \
          Shapley value, its share of the {} gap averaged over every order of replacing the \
-         groups, so the picture does not depend on the order drawn. {residue}The axis starts at \
-         {}, so the two WACC bars are cut at the left (the break marks). Figures: result.json \
-         reconciliation.waterfall (from steps[].shapley, unexplained).",
+         groups, so the picture does not depend on the order drawn. {residue}{axis}Figures: \
+         result.json reconciliation.waterfall (from steps[].shapley, unexplained).",
         percent(bridge.from.stated_wacc.unwrap_or(bridge.from.wacc), 2),
         bridge.to.label,
         percent(bridge.to.stated_wacc.unwrap_or(bridge.to.wacc), 2),
         basis_points(bridge.difference),
-        percent(axis_start, 2),
     )
 }
 

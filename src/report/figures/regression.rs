@@ -10,7 +10,7 @@
 use plotters::prelude::*;
 
 use super::axes::{extent, plot_layer, Axes, Scale};
-use super::canvas::Canvas;
+use super::canvas::{shorten, Canvas};
 use super::frame::{Layout, Mark};
 use super::style::{ACCENT, BAND, FLAG, NEUTRAL, PRIMARY};
 use super::{per_period, slug, Figure, Kind};
@@ -72,7 +72,10 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
         Mark::Ring(FLAG),
         format!("|studentised residual| > 3 ({})", flagged.len()),
     ));
-    let layout = Layout::new(WIDTH, PLOT, &title, &legend, &caption);
+    // The drawn title fits the chart's width (a name cut with an ellipsis); the SVG's own
+    // title and the report keep it whole.
+    let drawn = format!("{}: regression on the index", shorten(&peer.name, 40));
+    let layout = Layout::new(WIDTH, PLOT, &drawn, &legend, &caption);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;

@@ -165,7 +165,7 @@ th { background: var(--wash); font-weight: 600; border-bottom: 2px solid #C5CDD6
 td.num, th.num { text-align: right; white-space: nowrap; }
 tbody tr:nth-child(even) td { background: #FAFBFC; }
 .gallery { margin: 1rem 0 1.5rem; }
-.gallery.two { display: grid; grid-template-columns: repeat(auto-fit, minmax(30rem, 1fr)); gap: 1rem; }
+.gallery.two { display: grid; grid-template-columns: repeat(auto-fit, minmax(min(30rem, 100%), 1fr)); gap: 1rem; }
 figure.chart { margin: 0 0 1rem; }
 figure.chart svg { display: block; width: 100%; height: auto; max-width: 760px; border: 1px solid var(--rule); border-radius: 4px; }
 section.cautions { border-top: 3px solid var(--accent); margin-top: 2.5rem; }
@@ -189,7 +189,8 @@ section.cautions h2 { border: 0; }
   tr, figure, .gallery.two > figure { break-inside: avoid; }
   td.num, th.num { white-space: normal; }
   .gallery.two { display: block; }
-  figure.chart svg { max-width: 100%; border: 0; }
+  figure.chart svg { max-width: 100%; max-height: 240mm; border: 0; }
+  p, li { orphans: 3; widows: 3; }
   a { color: inherit; text-decoration: none; }
   code { background: none; padding: 0; }
 }

@@ -1,4 +1,4 @@
-//! Chart 3: each peer's rolling beta through the estimation window with its ±1.96·SE band, one
+//! Chart 3: each peer's rolling beta through the estimation window with its 95% band, one
 //! small panel per peer on a shared beta scale, and the peer's whole-window beta as a dashed
 //! line for reference.
 //!
@@ -13,7 +13,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::style::FontTransform;
 
 use super::axes::{Axes, Chart, Scale};
-use super::canvas::{Area, Canvas, Drawn};
+use super::canvas::{shorten, Area, Canvas, Drawn};
 use super::frame::{Layout, Mark};
 use super::style::{self, ACCENT, BAND, INK, MUTED, PRIMARY};
 use super::{Figure, Kind};
@@ -78,7 +78,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let caption = caption(valuation, window, s.rolling_step);
     let legend = vec![
         (Mark::Line(PRIMARY), "rolling β".to_string()),
-        (Mark::Swatch(BAND), "β ± 1.96·SE".to_string()),
+        (Mark::Swatch(BAND), "95% interval, β ± t·SE".to_string()),
         (Mark::Dashed(ACCENT), "β over the whole window".to_string()),
     ];
     let layout = Layout::new(
@@ -166,7 +166,10 @@ impl Panels<'_> {
     fn frame(&self, canvas: &mut Canvas, i: usize, name: &str, empty: bool) -> Result<()> {
         self.layer(canvas, i, "panel-title", &|band, _| {
             let name_style = style::bold(style::LABEL, &INK).pos(Pos::new(HPos::Left, VPos::Top));
-            band.draw_text(name, &name_style, (style::MARGIN, 4))?;
+            // About 8 px a bold character: a longer name is cut to the panel's width with an
+            // ellipsis (whole in the description).
+            let room = (band.dim_in_pixel().0 as usize).saturating_sub(2 * style::MARGIN as usize);
+            band.draw_text(&shorten(name, room / 8), &name_style, (style::MARGIN, 4))?;
             if empty {
                 let note = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
                 band.draw_text(
@@ -266,8 +269,8 @@ fn caption(valuation: &Valuation, window: Option<u32>, step: u32) -> String {
     let period = super::per_period(valuation).trim_start_matches("per ");
     format!(
         "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
-         whole window) over windows of {} {period}s ending every {}, with the band β ± 1.96·SE \
-         of each window; the dashed line is the peer's β over the whole window. The x axis is \
+         whole window) over windows of {} {period}s ending every {}, with each window's 95% \
+         interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
          the window's last {period} (years); all panels share one β scale. Figures: the rolling \
          betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",

@@ -296,7 +296,23 @@ fn unlever(book: &mut Book, sheet: &mut Sheet, r: &Row, included: bool) -> Resul
     r.put(book, sheet, UNLEVERED, &unlevered, "unlevered_beta", &beta)?;
     let share = format!("=1-{}/({}+{})", r.at(CASH), r.at(EQUITY), r.at(DEBT));
     r.put(book, sheet, CASH_SHARE, &share, "operating_share", &ratio)?;
-    let operations = format!("={}/{}", r.at(UNLEVERED), r.at(CASH_SHARE));
+    // Of the unlevered beta at gross debt: under net debt the unlevered beta has already netted
+    // the cash, and dividing it by the share too would count the cash twice.
+    let operations = match v.settings.leverage.debt_measure {
+        DebtMeasure::Gross => format!("={}/{}", r.at(UNLEVERED), r.at(CASH_SHARE)),
+        DebtMeasure::Net => {
+            let gross_de = format!("({}/{})", r.at(DEBT), r.at(EQUITY));
+            let at = |col| {
+                if col == DE {
+                    gross_de.clone()
+                } else {
+                    r.at(col)
+                }
+            };
+            let gross = unlever_formula(v.cost.beta.formula, &at);
+            format!("=({})/{}", gross.trim_start_matches('='), r.at(CASH_SHARE))
+        }
+    };
     r.put(
         book,
         sheet,
