@@ -76,11 +76,20 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
         report.contains("peer:Fenhallow Seals data/peers/fenhallow.csv: CHANGED"),
         "{report}"
     );
-    // Fenhallow Seals is the fifth peer: its beta and the files' hash moved; the unchanged
-    // peers did not.
-    assert!(report.contains("MISMATCH peers[4].beta:"), "{report}");
-    assert!(!report.contains("MISMATCH peers[0].beta:"), "{report}");
-    assert!(report.contains("MISMATCH files[6].sha256"), "{report}");
+    // Fenhallow Seals is the fifth peer: its beta moved, named by the peer, with the
+    // difference; the unchanged peers did not. The file's hash is reported once, as a changed
+    // input, not again as a figure.
+    assert!(
+        report.contains("MISMATCH peers[4].beta (\"Fenhallow Seals\"): recorded"),
+        "{report}"
+    );
+    assert!(report.contains("; difference "), "{report}");
+    assert!(!report.contains("MISMATCH peers[0].beta"), "{report}");
+    assert!(!report.contains("sha256:"), "{report}");
+    assert!(
+        report.contains("NOT REPRODUCED: 1 input file changed; "),
+        "{report}"
+    );
     // The written status for the reviewer's file says the same.
     let status_dir = dir.path().join("status");
     let written = hurdle(&[
@@ -92,7 +101,10 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
     assert_eq!(written.status.code(), Some(1));
     let status = std::fs::read_to_string(status_dir.join("verification.md")).unwrap();
     assert!(status.contains("**NOT REPRODUCED**"), "{status}");
-    assert!(status.contains("| `peers[4].beta` |"), "{status}");
+    assert!(
+        status.contains("| `peers[4].beta` (Fenhallow Seals) |"),
+        "{status}"
+    );
 }
 
 #[test]
@@ -280,7 +292,79 @@ fn verify_from_another_folder_reruns_the_receipts_own_case() {
         .unwrap();
     let report = text(&verify);
     assert_eq!(verify.status.code(), Some(0), "{report}");
-    assert!(report.contains("(case ../case/case.toml)"), "{report}");
+    assert!(report.contains("case/case.toml)"), "{report}");
+    assert!(!report.contains("other/case.toml"), "{report}");
+}
+
+// A copied bundle (case, data and output) whose data were then edited, verified from the
+// folder of the original: the receipt records `case.toml` relative to where the run started,
+// which finds the original's case (the same bytes, so the same hash); verify must rerun the
+// copy beside the receipt, and see the edit. And the command the memo prints, `hurdle verify
+// result.json` from inside the output folder, finds the case one folder up (found by review).
+#[test]
+fn verify_reruns_the_case_beside_the_receipt_and_works_from_the_output_folder() {
+    let (dir, case_dir) = demo_copy();
+    let binary = env!("CARGO_BIN_EXE_hurdle");
+    let run = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args(["run", "case/case.toml"])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", text(&run));
+    let inside = std::process::Command::new(binary)
+        .current_dir(case_dir.join("output"))
+        .args(["verify", "result.json"])
+        .output()
+        .unwrap();
+    assert_eq!(inside.status.code(), Some(0), "{}", text(&inside));
+    let bundle = dir.path().join("bundle");
+    copy_demo_case(&bundle);
+    std::fs::create_dir_all(bundle.join("output")).unwrap();
+    std::fs::copy(
+        case_dir.join("output/result.json"),
+        bundle.join("output/result.json"),
+    )
+    .unwrap();
+    let peer_file = bundle.join("data/peers/fenhallow.csv");
+    let prices = std::fs::read_to_string(&peer_file).unwrap();
+    let last = prices.lines().last().unwrap().to_string();
+    let (date, price) = last.split_once(',').unwrap();
+    let edited = format!("{date},{:.4}", price.parse::<f64>().unwrap() * 1.05);
+    std::fs::write(&peer_file, prices.replace(&last, &edited)).unwrap();
+    let verify = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args(["verify", "bundle/output/result.json"])
+        .output()
+        .unwrap();
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(1), "{report}");
+    assert!(report.contains("bundle/case.toml)"), "{report}");
+    assert!(report.contains("fenhallow.csv: CHANGED"), "{report}");
+}
+
+// An input whose bytes changed without moving any figure (Windows line ends in one price
+// file) does not reproduce the receipt's hashes, and is reported as a changed input with
+// every figure reproduced, not as a mismatched figure (found by review).
+#[test]
+fn a_file_changed_without_moving_a_figure_is_a_changed_input_only() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    run_case(&case_dir.join("case.toml"), &out, &[]);
+    let peer_file = case_dir.join("data/peers/corrowick.csv");
+    let crlf = std::fs::read_to_string(&peer_file)
+        .unwrap()
+        .replace('\n', "\r\n");
+    std::fs::write(&peer_file, crlf).unwrap();
+    let verify = hurdle(&["verify", out.join("result.json").to_str().unwrap()]);
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(1), "{report}");
+    assert!(report.contains("corrowick.csv: CHANGED"), "{report}");
+    assert!(report.contains("WACC reproduced"), "{report}");
+    assert!(
+        report.contains("NOT REPRODUCED: 1 input file changed; ")
+            && report.contains(", 0 mismatched"),
+        "{report}"
+    );
 }
 
 // A receipt written by another version of hurdle still reproduces when every file and figure

@@ -192,6 +192,21 @@ const LONG_WORK: [&str; 10] = [
 // (128 + SIGINT, the shell convention); the work lasts seconds, so the signal arrives during it.
 #[test]
 fn ctrl_c_leaves_no_output() {
+    stopped_by_signal_leaves_no_output("-INT");
+}
+
+// SIGTERM (a job scheduler's stop, `kill`) and SIGHUP (a closed terminal) are handled as
+// Ctrl-C is: exit 130, nothing written, no temporary folder left (found by review: before, the
+// process died there and left its staging folder).
+#[test]
+fn sigterm_and_sighup_leave_no_output() {
+    stopped_by_signal_leaves_no_output("-TERM");
+    stopped_by_signal_leaves_no_output("-HUP");
+}
+
+/// Starts a long run, sends it `signal` (as `kill` takes it), and checks that it stops with exit
+/// 130 and leaves the sandbox as it was.
+fn stopped_by_signal_leaves_no_output(signal: &str) {
     let sandbox = Sandbox::new();
     let root = sandbox.root.path();
     let before = tree_hashes(root);
@@ -203,11 +218,11 @@ fn ctrl_c_leaves_no_output() {
         .spawn()
         .unwrap();
     std::thread::sleep(std::time::Duration::from_millis(700));
-    let signal = Command::new("kill")
-        .args(["-INT", &child.id().to_string()])
+    let sent = Command::new("kill")
+        .args([signal, &child.id().to_string()])
         .status()
         .unwrap();
-    assert!(signal.success());
+    assert!(sent.success());
     let output = child.wait_with_output().unwrap();
     assert_eq!(output.status.code(), Some(130), "{}", stderr(&output));
     assert!(
@@ -373,6 +388,36 @@ fn charts_an_earlier_run_left_are_taken_away() {
     assert!(out.join("memo.md").is_file());
 }
 
+// A folder of the user's own, without an earlier run's receipt, keeps a `report.html` and
+// chart-named SVGs: only a folder holding a hurdle `result.json` has files taken to be an
+// earlier run's (found by review).
+#[test]
+fn a_folder_without_an_earlier_receipt_keeps_files_named_like_outputs() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("mine");
+    fs::create_dir_all(out.join("figures")).unwrap();
+    for name in [
+        "report.html",
+        "figures/betas.svg",
+        "figures/regression-01-notes.svg",
+    ] {
+        fs::write(out.join(name), "the user's own file").unwrap();
+    }
+    let run = run_into(&sandbox, &out, &["--no-figures"]);
+    assert!(run.status.success(), "{}", stderr(&run));
+    assert!(!String::from_utf8_lossy(&run.stdout).contains("removed"));
+    for name in [
+        "report.html",
+        "figures/betas.svg",
+        "figures/regression-01-notes.svg",
+    ] {
+        assert_eq!(
+            fs::read_to_string(out.join(name)).unwrap(),
+            "the user's own file"
+        );
+    }
+}
+
 // A placeholder where a number or a date belongs (as `hurdle init` writes them) is filled by a
 // `--set` of that key (README: "A `--set` that gives the key a value counts as filled"): the
 // run then equals the demo's with the figures written in (same inputs, same bits). Left
@@ -441,4 +486,23 @@ fn a_set_fills_a_placeholder_of_any_type() {
         result["wacc"].as_f64().unwrap()
     };
     assert_eq!(wacc(&filled), wacc(&plain));
+}
+
+// A `|` in a peer's name would split the memo's Markdown tables (numbers under the wrong
+// headers, in the report too): it is escaped in each table cell (GFM §4.10), and the report
+// shows the name whole in its cell (found by review).
+#[test]
+fn a_pipe_in_a_peer_name_keeps_the_tables_whole() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let run = run_into(
+        &sandbox,
+        &out,
+        &["--set", "peer.0.name=\"Brenvale | Fluid Systems\""],
+    );
+    assert!(run.status.success(), "{}", stderr(&run));
+    let memo = fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(memo.contains("| Brenvale \\| Fluid Systems | "), "{memo}");
+    let report = fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(report.contains("<td>Brenvale | Fluid Systems</td>"));
 }

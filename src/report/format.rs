@@ -19,6 +19,12 @@ pub fn exact(value: f64) -> String {
     crate::error::compact(value)
 }
 
+/// Text for a Markdown table cell: a `|` in it (a peer's name, a file's path) escaped, so that
+/// it does not split the row.
+pub fn table_cell(text: String) -> String {
+    text.replace('|', "\\|")
+}
+
 /// A number with a fixed number of decimals; `-0.000` is written `0.000`.
 pub fn fixed(value: f64, decimals: usize) -> String {
     let text = format!("{:.*}", decimals, value);

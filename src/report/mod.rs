@@ -73,8 +73,12 @@ pub fn render_run(
 /// The files an earlier `hurdle run` wrote into `dir` that this run, writing `written`, does not
 /// write again: charts named as a run names them ([`figures::is_chart_name`]; a peer no longer in
 /// the case, a bridge no longer asked for) and the report (a run with `figures` off). Left there,
-/// they would sit beside the new memo as if they belonged to it. Sorted.
+/// they would sit beside the new memo as if they belonged to it. Only in a folder that holds an
+/// earlier run's receipt ([`staging::holds_an_earlier_run`]). Sorted.
 pub fn stale_run_outputs(dir: &Path, written: &[String]) -> Vec<String> {
+    if !staging::holds_an_earlier_run(dir) {
+        return Vec::new();
+    }
     let mut names = vec![REPORT.to_string()];
     if let Ok(entries) = std::fs::read_dir(dir.join(figures::FOLDER)) {
         names.extend(entries.flatten().map(|entry| {

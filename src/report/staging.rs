@@ -54,13 +54,26 @@ pub fn write_outputs_replacing(
         stage.add(name, bytes)?;
     }
     let names: Vec<String> = files.iter().map(|(name, _)| name.clone()).collect();
+    let earlier = holds_an_earlier_run(dir);
     let stale: Vec<String> = (optional.iter().map(|name| name.to_string()))
-        .filter(|name| !names.contains(name) && dir.join(name).is_file())
+        .filter(|name| earlier && !names.contains(name) && dir.join(name).is_file())
         .collect();
     for name in &stale {
         stage.retire(name);
     }
     Ok((stage.commit(&names)?, stale))
+}
+
+/// Whether `dir` holds the receipt of an earlier hurdle run (a `result.json` whose `tool.name`
+/// is hurdle): only then are files there named as hurdle names its optional outputs taken to be
+/// that run's, and taken away when a run does not write them again. A folder of the user's own
+/// with a `report.html` in it keeps it.
+pub fn holds_an_earlier_run(dir: &Path) -> bool {
+    let Ok(bytes) = fs::read(dir.join("result.json")) else {
+        return false;
+    };
+    serde_json::from_slice::<serde_json::Value>(&bytes)
+        .is_ok_and(|receipt| receipt["tool"]["name"] == env!("CARGO_PKG_NAME"))
 }
 
 /// A staged file's flush, on a thread of its own (`None`: flushed when it was written).

@@ -177,7 +177,8 @@ fn table(lines: &[&str]) -> String {
     html
 }
 
-/// The cells of a table row, split on unescaped pipes.
+/// The cells of a table row, split on unescaped pipes; an escaped pipe is the cell's own `|`,
+/// in a code span too (GFM §4.10: the escape belongs to the table, not the cell's content).
 fn cells(line: &str) -> Vec<String> {
     let inner = line.trim();
     let inner = inner.strip_prefix('|').unwrap_or(inner);
@@ -191,7 +192,7 @@ fn cells(line: &str) -> Vec<String> {
     while let Some(c) = chars.next() {
         match c {
             '\\' if chars.peek() == Some(&'|') => {
-                current.push_str("\\|");
+                current.push('|');
                 chars.next();
             }
             '|' => out.push(std::mem::take(&mut current).trim().to_string()),
@@ -322,6 +323,17 @@ fn escape_char(out: &mut String, c: char) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // GFM §4.10, example 200 (from memory): an escaped pipe in a table cell is the cell's own
+    // `|`, inside a code span too.
+    #[test]
+    fn an_escaped_pipe_in_a_code_span_stays_in_its_cell() {
+        let b = blocks("| File | N |\n|---|---:|\n| `a\\|b.csv` | 1 |\n");
+        let Block::Html(html) = &b[0] else {
+            panic!("a table: {b:?}")
+        };
+        assert!(html.contains("<td><code>a|b.csv</code></td>"), "{html}");
+    }
 
     // The constructs of CommonMark 0.31 / GFM tables that the memo uses, with the HTML those
     // specifications give for them (GFM §4.10 tables: alignment from the delimiter row; escaped
