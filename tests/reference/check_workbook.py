@@ -181,6 +181,43 @@ def formula_cells(path):
     return book, cells
 
 
+def check_analyses(sheet, result, label):
+    """The Analyses sheet's values (hurdle's reruns, written as values) against result.json, found
+    by their row labels: both Monte Carlo intervals, the leave-one-out WACCs and the bridge's end
+    rows (what the claim's components give, the part no group explains, the claim as stated)."""
+    rows = {}
+    for row in sheet.iter_rows(min_col=1, max_col=4):
+        name = row[0].value
+        if isinstance(name, str) and name not in rows:
+            rows[name] = [c.value for c in row[1:]]
+    checked = 0
+    u = result.get("uncertainty")
+    if u:
+        for name, key in [("5th percentile", "p05"), ("Median", "p50"), ("95th percentile", "p95")]:
+            values = rows.get(name, [None, None])
+            report(agree(values[0], u[key]), f"{label}: Analyses {name}: {values[0]} vs uncertainty.{key}")
+            report(agree(values[1], u["peer_set"][key]),
+                   f"{label}: Analyses {name} (peer set): {values[1]} vs uncertainty.peer_set.{key}")
+            checked += 2
+        for entry in u["leave_one_out"]:
+            if entry["wacc"] is not None:
+                got = rows.get(entry["peer"], [None])[0]
+                report(agree(got, entry["wacc"]), f"{label}: Analyses leave-one-out {entry['peer']}: {got}")
+                checked += 1
+    bridge = result.get("reconciliation")
+    if bridge:
+        ends = [("The claim's components give", bridge["to"]["wacc"]),
+                ("Not explained by any input group", bridge["unexplained"]),
+                ("The claim's WACC as stated", bridge["to"]["stated_wacc"])]
+        for name, expected in ends:
+            if expected is None:
+                continue
+            got = rows.get(name, [None, None])[1]
+            report(agree(got, expected), f"{label}: Analyses {name}: {got} vs {expected}")
+            checked += 1
+    print(f"  compared {checked} Analyses values with result.json")
+
+
 def check_run(run, work, outdir_of):
     """Prepares one run's files for LibreOffice; returns a function that checks the results."""
     label = run["label"]
@@ -244,6 +281,7 @@ def check_run(run, work, outdir_of):
                 header = headers[f"{column}1"].value or ""
                 report(words in header, f"{label}: Unlevering!{column}1 = {header!r} heads "
                        f"peers[].{field}")
+        check_analyses(cached(original)["Analyses"], result, label)
         if not whatif:
             return
         # 4. A wrong cached WACC: caught among the cached values, repaired by the recalculation.

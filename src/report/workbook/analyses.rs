@@ -153,12 +153,23 @@ fn sensitivity(
         &format!("{} \\ {}", grid.rows.key, grid.columns.key),
         &header,
     )?;
+    // Each axis in its key's own format: a rate as a percentage, anything else (a D/E, a
+    // lookback) as a plain number.
+    let axis_format = |key: &str| {
+        let rate = key.contains("rate") || key.contains("premium") || key.ends_with("spread");
+        let format = header.clone();
+        match rate {
+            true => format.set_num_format("0.00%"),
+            false => format.set_num_format("0.###"),
+        }
+    };
+    let (row_format, column_format) = (axis_format(&grid.rows.key), axis_format(&grid.columns.key));
     for (c, x) in grid.columns.values.iter().enumerate() {
-        book.number(sheet, (row + 1, 1 + c as u16), *x, &header)?;
+        book.number(sheet, (row + 1, 1 + c as u16), *x, &column_format)?;
     }
     let mut r = row + 2;
     for (i, (x, cells)) in grid.rows.values.iter().zip(&grid.cells).enumerate() {
-        book.number(sheet, (r, 0), *x, &header)?;
+        book.number(sheet, (r, 0), *x, &row_format)?;
         for (c, cell) in cells.iter().enumerate() {
             let at = (r, 1 + c as u16);
             match cell {
@@ -206,20 +217,111 @@ fn monte_carlo(
             u.beta_distribution
         ),
     )?;
-    headers(book, sheet, row + 1, &["Statistic", "WACC"])?;
+    headers(
+        book,
+        sheet,
+        row + 1,
+        &[
+            "Statistic",
+            "WACC, estimation error",
+            "WACC, peer set resampled",
+        ],
+    )?;
     let (pct, label) = (book.styles.percent.clone(), book.styles.label.clone());
     let mut r = row + 2;
-    for (name, x) in [
-        ("Point estimate", u.point_estimate),
-        ("Mean", u.mean),
-        ("5th percentile", u.p05),
-        ("25th percentile", u.p25),
-        ("Median", u.p50),
-        ("75th percentile", u.p75),
-        ("95th percentile", u.p95),
+    let p = &u.peer_set;
+    for (name, x, y) in [
+        ("Point estimate", u.point_estimate, u.point_estimate),
+        ("Mean", u.mean, p.mean),
+        ("5th percentile", u.p05, p.p05),
+        ("25th percentile", u.p25, p.p25),
+        ("Median", u.p50, p.p50),
+        ("75th percentile", u.p75, p.p75),
+        ("95th percentile", u.p95, p.p95),
     ] {
         book.text(sheet, (r, 0), name, &label)?;
         value(book, sheet, (r, 1), x, &pct)?;
+        value(book, sheet, (r, 2), y, &pct)?;
+        r += 1;
+    }
+    leave_one_out(book, sheet, r + 1, u)
+}
+
+/// The WACC without each aggregated peer, and the specification range, as the memo lists them.
+fn leave_one_out(
+    book: &mut Book,
+    sheet: &mut Sheet,
+    row: u32,
+    u: &crate::audit::uncertainty::Uncertainty,
+) -> Result<u32> {
+    title(
+        book,
+        sheet,
+        row,
+        "Leave one out",
+        "the case rerun at the point estimates without each aggregated peer.",
+    )?;
+    headers(
+        book,
+        sheet,
+        row + 1,
+        &["Peer left out", "WACC", "Change (bp)"],
+    )?;
+    let (pct, label, text) = (
+        book.styles.percent.clone(),
+        book.styles.label.clone(),
+        book.styles.text.clone(),
+    );
+    let bp = book.styles.statistic.clone();
+    let mut r = row + 2;
+    for entry in &u.leave_one_out {
+        book.text(sheet, (r, 0), &entry.peer, &label)?;
+        match (entry.wacc, entry.change_bp) {
+            (Some(wacc), Some(change)) => {
+                value(book, sheet, (r, 1), wacc, &pct)?;
+                value(book, sheet, (r, 2), change, &bp)?;
+            }
+            _ => {
+                let why = entry.reason.as_deref().unwrap_or("no peer left");
+                book.text(sheet, (r, 1), &format!("n/a ({why})"), &text)?;
+            }
+        }
+        r += 1;
+    }
+    if u.specifications.is_empty() {
+        return Ok(r);
+    }
+    let r = r + 1;
+    title(
+        book,
+        sheet,
+        r,
+        "Specification range",
+        "the case rerun at other return frequencies and windows (result.json lists each \
+         row's --set values).",
+    )?;
+    headers(book, sheet, r + 1, &["Frequency", "Window", "WACC", ""])?;
+    let mut r = r + 2;
+    for spec in &u.specifications {
+        book.text(
+            sheet,
+            (r, 0),
+            &crate::report::format::label(&spec.frequency),
+            &label,
+        )?;
+        book.text(sheet, (r, 1), &spec.window, &text)?;
+        match spec.wacc {
+            Some(wacc) => value(book, sheet, (r, 2), wacc, &pct)?,
+            None => book.text(sheet, (r, 2), "n/a", &text)?,
+        }
+        let remark = match (spec.case_choice, &spec.reason) {
+            (true, _) => "this case".to_string(),
+            (false, Some(reason)) => reason.clone(),
+            (false, None) => String::new(),
+        };
+        if !remark.is_empty() {
+            book.text(sheet, (r, 3), &remark, &text)?;
+        }
         r += 1;
     }
     Ok(r)
@@ -270,6 +372,19 @@ fn bridge_table(
         {
             value(book, sheet, (r, 1 + c as u16), *x, &pct)?;
         }
+        r += 1;
+    }
+    // Where the steps end, and what the claim states beyond its own components.
+    let ends = [
+        ("This case's WACC", Some(bridge.from.wacc)),
+        ("The claim's components give", Some(bridge.to.wacc)),
+        ("Not explained by any input group", bridge.unexplained),
+        ("The claim's WACC as stated", bridge.to.stated_wacc),
+    ];
+    for (name, x) in ends {
+        let Some(x) = x else { continue };
+        book.text(sheet, (r, 0), name, &label)?;
+        value(book, sheet, (r, 2), x, &pct)?;
         r += 1;
     }
     Ok(r)
