@@ -506,3 +506,20 @@ fn a_pipe_in_a_peer_name_keeps_the_tables_whole() {
     let report = fs::read_to_string(out.join("report.html")).unwrap();
     assert!(report.contains("<td>Brenvale | Fluid Systems</td>"));
 }
+
+// A peer name that begins as a formula would run in a spreadsheet opening peers.csv or
+// returns.csv (CSV injection, OWASP): refused naming the key and the character (found by
+// review).
+#[test]
+fn a_peer_name_that_begins_as_a_formula_is_refused() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let run = run_into(&sandbox, &out, &["--set", "peer.1.name=\"=1+2 Corrowick\""]);
+    assert_eq!(run.status.code(), Some(2), "{}", stderr(&run));
+    assert!(
+        stderr(&run).contains("peer.1.name = \"=1+2 Corrowick\" begins with `=`"),
+        "{}",
+        stderr(&run)
+    );
+    assert!(!out.exists());
+}

@@ -36,11 +36,18 @@ fn quoted(text: &str) -> String {
 /// spreadsheet header) becomes one line, its runs of whitespace one space; the `column` key keeps
 /// the header as it is.
 fn display_name(header: &str) -> String {
-    header
+    let name = header
         .split(|c: char| c.is_whitespace() || c.is_control())
         .filter(|part| !part.is_empty())
         .collect::<Vec<_>>()
-        .join(" ")
+        .join(" ");
+    // A name a spreadsheet would read as a formula in a CSV output is refused by the case, so
+    // the characters that start one are left off the name (`column` keeps the header).
+    let kept = name.trim_start_matches(['=', '+', '-', '@', ' ']);
+    match kept.is_empty() {
+        true => "peer".to_string(),
+        false => kept.to_string(),
+    }
 }
 
 /// The case file's text for `table`: one peer per column other than the index and the
@@ -466,6 +473,10 @@ mod tests {
     fn a_wrapped_header_names_its_peer_on_one_line() {
         assert_eq!(display_name("Alder\nTree"), "Alder Tree");
         assert_eq!(display_name(" Birch\r\n\tand  Elm "), "Birch and Elm");
+        // What would start a formula in a CSV output is left off (the case refuses it).
+        assert_eq!(display_name("=1+2 Cedar"), "1+2 Cedar");
+        assert_eq!(display_name("@-Larch"), "Larch");
+        assert_eq!(display_name("=-"), "peer");
         let table = peer_table("Alder\nTree", &display_name("Alder\nTree"));
         assert!(table.contains("name = \"Alder Tree\"\n"), "{table}");
         assert!(
