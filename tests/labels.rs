@@ -342,3 +342,48 @@ fn the_memo_states_its_assumptions_and_the_operations_step_on_its_own() {
     let operations = &memo[memo.find("### The beta of the operations").unwrap()..];
     assert!(operations.contains("| β of the operations |"));
 }
+
+// The cautions a discount rate needs, from a methods review (common practice in valuation
+// reports; the pre-tax point from IAS 36's requirement of a pre-tax rate, from memory): what
+// kind of rate the WACC is, survivorship and leverage timing, Hamada's fixed debt against
+// constant target weights (Arzac and Glosten 2005), and a target leverage beyond every peer's,
+// whose range the test takes from result.json's peers.
+#[test]
+fn the_memo_cautions_follow_the_case() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["target.debt_to_equity=3"]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let flat = memo.split_whitespace().collect::<Vec<_>>().join(" ");
+    for phrase in [
+        "The WACC is a post-tax rate in EUR",
+        "It is not the pre-tax rate some standards ask for",
+        "(survivorship)",
+        "unlevered at the D/E supplied",
+        "**Hamada and the target weights.**",
+    ] {
+        assert!(flat.contains(phrase), "memo lacks \"{phrase}\"");
+    }
+    let de: Vec<f64> = result["peers"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|p| p["excluded_reason"].is_null())
+        .map(|p| p["debt_to_equity"].as_f64().unwrap())
+        .collect();
+    let (low, high) = de
+        .iter()
+        .fold((f64::MAX, f64::MIN), |(l, h), &x| (l.min(x), h.max(x)));
+    let range = format!("peer's ({low:.3} to {high:.3})");
+    assert!(
+        flat.contains("**Leverage beyond the peers'.** The target D/E of 3.000"),
+        "{flat}"
+    );
+    assert!(flat.contains(&range), "memo lacks \"{range}\"");
+    // Under Harris–Pringle (debt rebalanced to the target ratio) the Hamada caution goes, and at
+    // the case's own D/E (inside the peers' range) so does the leverage one.
+    let other = tempfile::tempdir().unwrap();
+    run_demo(other.path(), &["leverage.formula=harris-pringle"]);
+    let memo = std::fs::read_to_string(other.path().join("memo.md")).unwrap();
+    assert!(!memo.contains("Hamada and the target weights"));
+    assert!(!memo.contains("Leverage beyond the peers'"));
+}

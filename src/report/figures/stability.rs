@@ -34,22 +34,44 @@ fn year(date: NaiveDate) -> f64 {
     f64::from(date.year()) + f64::from(date.ordinal0()) / days
 }
 
-/// One scale for every panel: the years of the window ends, and every band and whole-window β.
-fn shared_axes(valuation: &Valuation) -> Axes {
-    let peers = &valuation.peers;
-    let all = valuation.rolling.iter().flatten();
-    let (low, high) = all
-        .clone()
-        .flat_map(|p| [p.band_low, p.band_high])
-        .chain(peers.iter().map(|p| p.estimate.beta))
+/// A shared scale wider than this many times the median peer's own range would squash most
+/// panels into a sliver to show one peer's extremes: each panel then gets its own scale.
+const SHARED_SCALE_LIMIT: f64 = 4.0;
+
+/// The β range of one peer's panel: its bands and its whole-window β.
+fn beta_range(points: &[RollingPoint], whole: f64) -> (f64, f64) {
+    (points.iter().flat_map(|p| [p.band_low, p.band_high]))
+        .chain(std::iter::once(whole))
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
             (lo.min(v), hi.max(v))
+        })
+}
+
+/// Each panel's scale, and whether they are one shared scale: the years of the window ends, and
+/// the bands and whole-window βs of every peer, unless one peer's range would make the shared
+/// scale more than [`SHARED_SCALE_LIMIT`] times the median peer's range (then each its own).
+fn panel_axes(valuation: &Valuation) -> (Vec<Axes>, bool) {
+    let peers = &valuation.peers;
+    let (first, last) = valuation.rolling.iter().flatten().fold(
+        (f64::INFINITY, f64::NEG_INFINITY),
+        |(lo, hi), p| {
+            let x = year(p.window_end);
+            (lo.min(x), hi.max(x))
+        },
+    );
+    let ranges: Vec<(f64, f64)> = (peers.iter().zip(&valuation.rolling))
+        .map(|(peer, points)| beta_range(points, peer.estimate.beta))
+        .collect();
+    let (low, high) = ranges
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), r| {
+            (lo.min(r.0), hi.max(r.1))
         });
-    let (first, last) = all.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
-        let x = year(p.window_end);
-        (lo.min(x), hi.max(x))
-    });
-    Axes {
+    let mut spans: Vec<f64> = ranges.iter().map(|(lo, hi)| hi - lo).collect();
+    spans.sort_by(f64::total_cmp);
+    let median_span = spans.get(spans.len() / 2).copied().unwrap_or(0.0);
+    let shared = !(median_span > 0.0 && high - low > SHARED_SCALE_LIMIT * median_span);
+    let axes = |(low, high): (f64, f64)| Axes {
         x: Scale::plain(first, last, 0.02, 4),
         y: Scale::plain(low, high, 0.05, 6),
         x_title: String::new(),
@@ -57,7 +79,12 @@ fn shared_axes(valuation: &Valuation) -> Axes {
         left: 44,
         bottom: 24,
         y_ticks: true,
-    }
+    };
+    let each = match shared {
+        true => ranges.iter().map(|_| axes((low, high))).collect(),
+        false => ranges.into_iter().map(axes).collect(),
+    };
+    (each, shared)
 }
 
 /// The rolling-beta chart.
@@ -65,7 +92,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     let peers = &valuation.peers;
     let columns = if peers.len() > 1 { 2 } else { 1 };
     let panel_rows = peers.len().div_ceil(columns);
-    let axes = shared_axes(valuation);
+    let (axes, shared) = panel_axes(valuation);
     let s = &valuation.settings.beta;
     let window = peers
         .iter()
@@ -75,7 +102,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         "Rolling {} betas through the window",
         super::method_name(valuation.estimator.method)
     );
-    let caption = caption(valuation, window, s.rolling_step);
+    let caption = caption(valuation, window, s.rolling_step, shared);
     let legend = vec![
         (Mark::Line(PRIMARY), "rolling β".to_string()),
         (Mark::Swatch(BAND), "95% interval, β ± t·SE".to_string()),
@@ -113,7 +140,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     })?;
     let grid = Panels {
         layout: &layout,
-        axes: &axes,
+        axes: &axes[..],
         rows: panel_rows,
         columns,
     };
@@ -135,7 +162,8 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
 /// The grid of small panels in the plot band, one per peer in peer order.
 struct Panels<'a> {
     layout: &'a Layout,
-    axes: &'a Axes,
+    /// Panel i's scale.
+    axes: &'a [Axes],
     rows: usize,
     columns: usize,
 }
@@ -157,7 +185,7 @@ impl Panels<'_> {
             let (_, grid) = grid.split_horizontally(Y_TITLE.min(width));
             let panels = grid.split_evenly((self.rows, self.columns));
             let (title_band, body) = panels[i].split_vertically(22);
-            let mut chart = self.axes.chart(&body)?;
+            let mut chart = self.axes[i].chart(&body)?;
             draw(&title_band, &mut chart)
         })
     }
@@ -189,7 +217,7 @@ impl Panels<'_> {
                 .label_style(style::text(style::TICK, &RGBAColor(0, 0, 0, 0.0)))
                 .draw()
         })?;
-        let x_format = |v: &f64| self.axes.x.label(*v);
+        let x_format = |v: &f64| self.axes[i].x.label(*v);
         self.layer(canvas, i, "x-axis", &|_, chart| {
             chart
                 .configure_mesh()
@@ -201,7 +229,7 @@ impl Panels<'_> {
                 .x_label_formatter(&x_format)
                 .draw()
         })?;
-        let y_format = |v: &f64| self.axes.y.label(*v);
+        let y_format = |v: &f64| self.axes[i].y.label(*v);
         self.layer(canvas, i, "y-axis", &|_, chart| {
             chart
                 .configure_mesh()
@@ -224,7 +252,7 @@ impl Panels<'_> {
         points: &[RollingPoint],
     ) -> Result<()> {
         self.layer(canvas, i, "band", &|_, chart| draw_band(chart, points))?;
-        let (x0, x1) = (self.axes.x.range.start, self.axes.x.range.end);
+        let (x0, x1) = (self.axes[i].x.range.start, self.axes[i].x.range.end);
         self.layer(canvas, i, "full-window-beta", &|_, chart| {
             chart.draw_series(std::iter::once(DashedPathElement::new(
                 vec![(x0, beta), (x1, beta)],
@@ -265,13 +293,20 @@ fn draw_band(chart: &mut Chart, points: &[RollingPoint]) -> Drawn {
     Ok(())
 }
 
-fn caption(valuation: &Valuation, window: Option<u32>, step: u32) -> String {
+fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) -> String {
+    let scale = match shared {
+        true => "all panels share one β scale",
+        false => {
+            "each panel has a β scale of its own, since one peer's range would squash the \
+                  others on a shared one: compare panels by their axes"
+        }
+    };
     let period = super::per_period(valuation).trim_start_matches("per ");
     format!(
         "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
          whole window) over windows of {} {period}s ending every {}, with each window's 95% \
          interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
-         the window's last {period} (years); all panels share one β scale. Figures: the rolling \
+         the window's last {period} (years); {scale}. Figures: the rolling \
          betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",
         super::method_name(valuation.estimator.method),

@@ -101,6 +101,12 @@ fn plot(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> R
 /// The percentile and point-estimate lines, each labelled at its own height.
 fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
     let top = axes.y.range.end;
+    // The point estimate's label goes on the side away from the median, whose taller line would
+    // otherwise strike through it; the median's on the other side.
+    let (point_side, median_side) = match u.point_estimate < u.p50 {
+        true => (HPos::Right, HPos::Left),
+        false => (HPos::Left, HPos::Right),
+    };
     // Label rows from the top of the plot, as fractions of its height.
     let marks = [
         (
@@ -122,14 +128,14 @@ fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> 
             u.p50,
             format!("median {}", percent(u.p50, 2)),
             0.87,
-            HPos::Right,
+            median_side,
         ),
         (
             "point-estimate",
             u.point_estimate,
             format!("point estimate {}", percent(u.point_estimate, 2)),
             0.79,
-            HPos::Left,
+            point_side,
         ),
     ];
     for (class, x, text, height, side) in marks {
