@@ -26,9 +26,9 @@ const ROW: f64 = 40.0;
 const EXCLUDED_ROW: f64 = 1.5;
 /// Width of the band of peer names.
 const NAMES: u32 = 210;
-/// The characters of a name that fit the band (about 7 px each at the label size); a longer
-/// name is cut with an ellipsis, whole in the description.
-const NAME_CHARS: usize = 27;
+/// The characters of a name that fit the band (up to about 8.5 px each at the label size, for
+/// capitals); a longer name is cut with an ellipsis, whole in the description.
+const NAME_CHARS: usize = 24;
 
 /// One peer's row: its position on the y axis (row units, downward negative).
 struct Row<'a> {
