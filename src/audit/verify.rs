@@ -256,15 +256,7 @@ pub fn verify(
     let found = compare(&recorded, &recomputed, tolerance);
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
-    let headline = ["wacc", "cost_of_equity", "cost_of_debt_after_tax"]
-        .iter()
-        .map(|key| {
-            (
-                key.to_string(),
-                !found.mismatches.iter().any(|m| m.path == *key),
-            )
-        })
-        .collect();
+    let headline = headline(&found);
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
         kind: "case",
@@ -282,6 +274,19 @@ pub fn verify(
         not_compared: NOT_COMPARED,
         files_read,
     })
+}
+
+/// Whether each headline figure of a case reproduced, by whether it is among the mismatches.
+fn headline(found: &Comparison) -> Vec<(String, bool)> {
+    ["wacc", "cost_of_equity", "cost_of_debt_after_tax"]
+        .iter()
+        .map(|key| {
+            (
+                key.to_string(),
+                !found.mismatches.iter().any(|m| m.path == *key),
+            )
+        })
+        .collect()
 }
 
 /// The input file a receipt's `section` (`case` or `universe`) names, found as
@@ -467,27 +472,36 @@ fn compare_at(
         (a, b) => a == b,
     };
     found.compared += 1;
-    if agree {
-        return;
+    if !agree {
+        let difference = Mismatch {
+            path,
+            item,
+            recorded: recorded.clone(),
+            recomputed: recomputed.clone(),
+        };
+        found.record(difference, key);
     }
-    let difference = Mismatch {
-        path,
-        item,
-        recorded: recorded.clone(),
-        recomputed: recomputed.clone(),
-    };
-    // A list of sentences (the notes) that another version words differently, or to which it
-    // adds one, is wording too: the figures the notes quote are compared where they are kept.
-    let sentences = |v: &Value| {
-        v.is_string()
-            || v.as_array()
-                .is_some_and(|items| items.iter().all(Value::is_string))
-    };
-    let wording = sentences(recorded) && sentences(recomputed) && WORDING_KEYS.contains(&key);
-    if wording {
-        found.wording.push(difference);
-    } else {
-        found.mismatches.push(difference);
+}
+
+impl Comparison {
+    /// A leaf that differs: a mismatch, or a wording difference when it is sentences under one
+    /// of [`WORDING_KEYS`].
+    fn record(&mut self, difference: Mismatch, key: &str) {
+        let (recorded, recomputed) = (&difference.recorded, &difference.recomputed);
+        // A list of sentences (the notes) that another version words differently, or to which
+        // it adds one, is wording too: the figures the notes quote are compared where they are
+        // kept.
+        let sentences = |v: &Value| {
+            v.is_string()
+                || v.as_array()
+                    .is_some_and(|items| items.iter().all(Value::is_string))
+        };
+        let wording = sentences(recorded) && sentences(recomputed) && WORDING_KEYS.contains(&key);
+        if wording {
+            self.wording.push(difference);
+        } else {
+            self.mismatches.push(difference);
+        }
     }
 }
 

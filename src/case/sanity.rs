@@ -287,6 +287,24 @@ pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String>
     ))
 }
 
+/// A name the CSV outputs write may not begin with a character that makes a spreadsheet read
+/// the cell as a formula (`=`, `+`, `-`, `@`; the characters OWASP's advice on CSV injection
+/// names): opened in a spreadsheet, peers.csv or returns.csv would run it.
+pub(crate) fn not_a_formula(key: &str, text: &str) -> std::result::Result<(), String> {
+    match text
+        .chars()
+        .next()
+        .filter(|c| matches!(c, '=' | '+' | '-' | '@'))
+    {
+        None => Ok(()),
+        Some(first) => Err(format!(
+            "{key} = \"{text}\" begins with `{first}`: a spreadsheet opening peers.csv or \
+             returns.csv would run it as a formula; begin the name otherwise (the column it \
+             reads in a wide table is chosen by `column`)"
+        )),
+    }
+}
+
 /// When `beta.window_start` is given it sets the window and `beta.lookback` is not used; the
 /// run says so (a case file that writes both is refused by [`check_case_text`]).
 pub fn window_note(beta: &crate::case::BetaSettings) -> Option<String> {

@@ -363,14 +363,6 @@ fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
     Ok(())
 }
 
-/// The character a text begins with that makes a spreadsheet read a CSV cell as a formula
-/// (`=`, `+`, `-`, `@`; the characters OWASP's advice on CSV injection names), if it does.
-pub(crate) fn formula_start(text: &str) -> Option<char> {
-    text.chars()
-        .next()
-        .filter(|c| matches!(c, '=' | '+' | '-' | '@'))
-}
-
 /// `[[peer]]`: names unique, figures in range, keys consistent with `[leverage]`.
 fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
     if case.peers.is_empty() {
@@ -382,14 +374,7 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
             return Err(format!("peer.{i}.name is empty"));
         }
         one_line(&format!("peer.{i}.name"), &peer.name)?;
-        if let Some(first) = formula_start(&peer.name) {
-            return Err(format!(
-                "peer.{i}.name = \"{}\" begins with `{first}`: a spreadsheet opening peers.csv \
-                 or returns.csv would run it as a formula; begin the name otherwise (the column \
-                 it reads in a wide table is chosen by `column`)",
-                peer.name
-            ));
-        }
+        super::sanity::not_a_formula(&format!("peer.{i}.name"), &peer.name)?;
         if let Some(reason) = &peer.exclude {
             one_line(&key("exclude"), reason)?;
         }

@@ -168,6 +168,16 @@ fn check_record_length(
     })
 }
 
+/// "No column named `name`", with the header's names and a name that differs only by spaces.
+fn missing_column(header: &csv::StringRecord, name: &str) -> String {
+    let names: Vec<&str> = header.iter().collect();
+    format!(
+        "no column named `{name}`; the header has: {}{}",
+        names.join(", "),
+        super::sanity::padded_name_hint(names.iter().copied(), name)
+    )
+}
+
 /// Parses CSV bytes into a validated series; `file` is only used in messages. The shape is
 /// checked first (`sanity::check_csv_shape`: UTF-8, separators, field counts); the csv crate
 /// then hands over each record's cells as borrowed text, which are parsed here so that a bad
@@ -195,14 +205,7 @@ pub fn parse_series(
     let header = reader.headers().map_err(unreadable)?.clone();
     let column = |name: &str| match super::sanity::unique_column(&header, name) {
         Ok(Some(at)) => Ok(at),
-        Ok(None) => {
-            let names: Vec<&str> = header.iter().collect();
-            Err(file_error(format!(
-                "no column named `{name}`; the header has: {}{}",
-                names.join(", "),
-                super::sanity::padded_name_hint(names.iter().copied(), name)
-            )))
-        }
+        Ok(None) => Err(file_error(missing_column(&header, name))),
         Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);

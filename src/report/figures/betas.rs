@@ -59,11 +59,42 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         bottom: 50,
         y_ticks: false,
     };
-    let summary = &valuation.cost.beta;
     let title = "Peer betas with their 95% confidence intervals".to_string();
     let caption = caption(valuation);
     let plot = ((-bottom) * ROW) as u32 + 60;
-    let legend = vec![
+    let legend = legend(valuation, cash, aggregate);
+    let layout = Layout::new(WIDTH, plot, &title, &legend, &caption);
+    let name = super::BETAS.to_string();
+    let mut canvas = Canvas::new(&name, WIDTH, layout.height());
+    canvas.layer("frame", |root| layout.frame(root, &legend))?;
+    axes.draw(&mut canvas, &layout)?;
+    names(&mut canvas, &layout, &axes, &rows, divider)?;
+    marks(
+        &mut canvas,
+        &layout,
+        &axes,
+        &rows,
+        divider,
+        (aggregate, cash),
+    )?;
+    let description = format!(
+        "{caption} {}",
+        data_summary(&rows, |p| unlevered(p, cash), cash)
+    );
+    Ok(Figure {
+        kind: Kind::Betas,
+        svg: canvas.finish("betas", &title, &description),
+        file_name: name,
+        title,
+        caption,
+        peer: None,
+    })
+}
+
+/// The chart's legend: the three marks and the aggregate's line, with its statistic and value.
+fn legend(valuation: &Valuation, cash: bool, aggregate: f64) -> Vec<(Mark, String)> {
+    let summary = &valuation.cost.beta;
+    vec![
         (Mark::Interval(PRIMARY), "raw β, 95% CI".to_string()),
         (
             Mark::Triangle(INK),
@@ -91,33 +122,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
                 fixed(aggregate, 3)
             ),
         ),
-    ];
-    let layout = Layout::new(WIDTH, plot, &title, &legend, &caption);
-    let name = super::BETAS.to_string();
-    let mut canvas = Canvas::new(&name, WIDTH, layout.height());
-    canvas.layer("frame", |root| layout.frame(root, &legend))?;
-    axes.draw(&mut canvas, &layout)?;
-    names(&mut canvas, &layout, &axes, &rows, divider)?;
-    marks(
-        &mut canvas,
-        &layout,
-        &axes,
-        &rows,
-        divider,
-        (aggregate, cash),
-    )?;
-    let description = format!(
-        "{caption} {}",
-        data_summary(&rows, |p| unlevered(p, cash), cash)
-    );
-    Ok(Figure {
-        kind: Kind::Betas,
-        svg: canvas.finish("betas", &title, &description),
-        file_name: name,
-        title,
-        caption,
-        peer: None,
-    })
+    ]
 }
 
 /// The peers' names (and reasons for the excluded) left of the plot, and the divider.

@@ -1,0 +1,42 @@
+//! The beta of the operations: the unlevered beta with the cash (at a beta of zero) taken out,
+//! always from the unlevered beta at gross debt. Apart from the chain because the listing
+//! (`listing.rs`) and the full chain both report it.
+
+use super::{unlever, AdjustedBeta, CapitalSpec, DebtMeasure, Formula, PeerCapital, PeerTerms};
+
+/// The beta of the operations, βU / (1 − cash / (equity + debt)): the firm's value is its
+/// operations plus its cash, and the unlevered beta their value-weighted mix; with cash at a beta
+/// of zero, dividing by the operations' share of the value leaves their beta. Uses gross debt.
+pub(super) fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
+    unlevered / terms.operating_share
+}
+
+/// [`operations_beta`] for every peer, always of the unlevered beta at gross debt: under net
+/// debt the unlevered beta has already netted the cash (at a beta of zero) against the debt,
+/// and dividing it by the operating share as well would count the cash twice.
+pub(super) fn operations_betas(
+    spec: &CapitalSpec<'_>,
+    formula: Formula,
+    peers: &[PeerCapital],
+    adjusted: &[AdjustedBeta],
+    terms: &[PeerTerms],
+    unlevered: &[f64],
+) -> Vec<f64> {
+    let each = peers.iter().zip(adjusted).zip(terms);
+    each.zip(unlevered)
+        .map(|(((peer, adjusted), terms), &u)| {
+            let gross = match spec.debt_measure {
+                DebtMeasure::Gross => u,
+                DebtMeasure::Net => {
+                    let debt_to_equity = peer.debt / peer.equity_value;
+                    let gross_terms = PeerTerms {
+                        debt_to_equity,
+                        ..*terms
+                    };
+                    unlever(formula, peer, adjusted, &gross_terms)
+                }
+            };
+            operations_beta(gross, terms)
+        })
+        .collect()
+}
