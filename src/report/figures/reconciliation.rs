@@ -14,7 +14,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 use super::axes::{plot_layer, Axes, Scale};
 use super::canvas::Canvas;
 use super::frame::{Layout, Mark};
-use super::style::{self, ACCENT, INK, MUTED, NEUTRAL, PAPER, PRIMARY};
+use super::style::{self, ACCENT, INK, NEUTRAL, PAPER, PRIMARY};
 use super::{Figure, Kind};
 use crate::audit::bridge::Bridge;
 use crate::audit::waterfall::{BarKind, WaterfallBar};
@@ -27,9 +27,11 @@ const WIDTH: u32 = 720;
 type Placement<'a> = dyn Fn(usize, &WaterfallBar) -> [(f64, f64); 2] + 'a;
 const ROW: u32 = 34;
 
+/// A bar's colour. The totals are ink-dark, apart in greyscale from both directions' colours
+/// (the ochre of a rise and a mid grey are about equally light).
 fn colour(bar: &WaterfallBar) -> RGBColor {
     match bar.kind {
-        BarKind::Total => MUTED,
+        BarKind::Total => INK,
         BarKind::Residue => NEUTRAL,
         BarKind::Group if bar.end >= bar.start => ACCENT,
         BarKind::Group => PRIMARY,
@@ -109,7 +111,7 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
             Mark::Swatch(NEUTRAL),
             "not explained by an input group".to_string(),
         ),
-        (Mark::Swatch(MUTED), "WACC".to_string()),
+        (Mark::Swatch(INK), "WACC".to_string()),
     ];
     let layout = Layout::new(WIDTH, ROW * rows as u32 + 60, &title, &legend, &caption);
     let name = super::RECONCILIATION.to_string();

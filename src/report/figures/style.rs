@@ -91,8 +91,8 @@ pub fn heat(t: f64) -> RGBColor {
     RGBColor(mix(from.0, to.0), mix(from.1, to.1), mix(from.2, to.2))
 }
 
-/// Whether text on `background` should be light: its relative luminance (WCAG 2.1) is low.
-pub fn needs_light_text(background: &RGBColor) -> bool {
+/// Relative luminance of a colour (WCAG 2.1, §1.4.3's definition).
+fn luminance(colour: &RGBColor) -> f64 {
     let channel = |c: u8| {
         let v = f64::from(c) / 255.0;
         if v <= 0.04045 {
@@ -101,11 +101,15 @@ pub fn needs_light_text(background: &RGBColor) -> bool {
             ((v + 0.055) / 1.055).powf(2.4)
         }
     };
-    let luminance = 0.2126 * channel(background.0)
-        + 0.7152 * channel(background.1)
-        + 0.0722 * channel(background.2);
-    // Above 0.18 dark ink has the better contrast ratio; below it white has.
-    luminance < 0.18
+    0.2126 * channel(colour.0) + 0.7152 * channel(colour.1) + 0.0722 * channel(colour.2)
+}
+
+/// Whether text on `background` should be paper-white rather than ink: whichever has the
+/// higher contrast ratio with it, (L₁ + 0.05) / (L₂ + 0.05) (WCAG 2.1).
+pub fn needs_light_text(background: &RGBColor) -> bool {
+    let ratio = |a: f64, b: f64| (a.max(b) + 0.05) / (a.min(b) + 0.05);
+    let l = luminance(background);
+    ratio(l, luminance(&PAPER)) > ratio(l, luminance(&INK))
 }
 
 #[cfg(test)]
@@ -132,6 +136,9 @@ mod tests {
             assert!(ratio >= 4.5, "{colour:?}: {ratio}");
         }
         assert!(!needs_light_text(&HEAT[0]) && needs_light_text(&HEAT[2]));
+        // A mid blue of the scale (#547CA8, relative luminance about 0.19 by WCAG's formula):
+        // white gives about 4.3:1, the ink about 3.4:1 (worked by hand), so white text.
+        assert!(needs_light_text(&RGBColor(0x54, 0x7C, 0xA8)));
     }
 
     // No double s has s / 1.24 == 13 or 15 exactly, so the scale avoids those two sizes.
