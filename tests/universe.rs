@@ -1582,3 +1582,24 @@ fn placeholder_labels_empty_counts_and_nan_figures_are_worded_plainly() {
         ],
     );
 }
+
+// An index whose prices end before the window does leaves every security without those periods
+// (dropped_index_missing); the summary says so once, instead of leaving each row to look like
+// that security's fault (found by review). Its dates are taken from the truncated file.
+#[test]
+fn an_index_that_ends_early_is_noted() {
+    let setup = Setup::new();
+    let path = setup.dir().join("index.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    let kept = &lines[..lines.len() - 40];
+    fs::write(&path, kept.join("\n") + "\n").unwrap();
+    let last = kept.last().unwrap().split(',').next().unwrap();
+    let out = setup.succeeds("out", &[]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("The index (index.csv) has prices from ")
+            && summary.contains(&format!(" to {last}, less than the window's")),
+        "{summary}"
+    );
+}

@@ -301,7 +301,12 @@ pub fn evaluate(
         &settings.leverage,
         settings.beta.adjustment != Adjustment::None,
     );
-    let (counts, notes) = counts_and_notes(inputs, &securities);
+    let (counts, mut notes) = counts_and_notes(inputs, &securities);
+    let window = estimation.window();
+    notes.splice(
+        0..0,
+        index_coverage_note(&inputs.index, window.start(), window.end()),
+    );
     Ok(UniverseResult {
         schema_version: SCHEMA_VERSION,
         kind: "universe",
@@ -471,6 +476,24 @@ fn counts_and_notes(
         attributes_not_in_panel: strays.len(),
     };
     (counts, notes)
+}
+
+/// A note when the index's prices cover less than the window: the periods outside them have no
+/// index return, so every security loses them (counted as `dropped_index_missing`), which a
+/// reader of one security's row could take for a fault of that security.
+fn index_coverage_note(
+    index: &crate::io::series::DataFile,
+    start: chrono::NaiveDate,
+    end: chrono::NaiveDate,
+) -> Option<String> {
+    (index.first_date > start || index.last_date < end).then(|| {
+        format!(
+            "The index ({}) has prices from {} to {}, less than the window's {start} to {end}: \
+             periods outside them have no index return, so every security's are dropped there \
+             (counted in dropped_index_missing).",
+            index.path, index.first_date, index.last_date
+        )
+    })
 }
 
 /// Industry labels that usually stand for a missing classification in an export.
