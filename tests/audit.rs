@@ -967,3 +967,32 @@ fn implied_beta_counts_preferred_equity_and_leases() {
         + 0.05 * 0.06 * (1.0 - tax);
     assert!((wacc - 0.091).abs() < 1e-10, "beta {beta} gives {wacc}");
 }
+
+// A receipt edited to name a key twice (`"wacc": 0.5` before the real one) reads as 0.5 to a
+// person and as the last value to serde_json: refused, naming the key, exit 2 (found by
+// review).
+#[test]
+fn a_receipt_with_a_repeated_key_is_refused() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    run_case(&case_dir.join("case.toml"), &out, &[]);
+    let receipt = out.join("result.json");
+    let json = std::fs::read_to_string(&receipt).unwrap();
+    assert_eq!(
+        json.matches("\n  \"wacc\": ").count(),
+        1,
+        "one top-level wacc"
+    );
+    std::fs::write(
+        &receipt,
+        json.replacen("\n  \"wacc\": ", "\n  \"wacc\": 0.5,\n  \"wacc\": ", 1),
+    )
+    .unwrap();
+    let verify = hurdle(&["verify", receipt.to_str().unwrap()]);
+    assert_eq!(verify.status.code(), Some(2), "{}", text(&verify));
+    assert!(
+        text(&verify).contains("the key \"wacc\" appears twice"),
+        "{}",
+        text(&verify)
+    );
+}

@@ -11,6 +11,7 @@ pub mod frequency_comparison;
 pub mod grid;
 pub mod histogram;
 pub mod implied;
+pub mod receipt;
 pub mod specification;
 pub mod uncertainty;
 pub mod verify;

@@ -209,10 +209,14 @@ pub fn verify(
         file: receipt_path.to_path_buf(),
         message,
     };
-    let recorded: Value = serde_json::from_str(receipt).map_err(|e| {
-        fail(format!(
+    let recorded: Value = super::receipt::parse(receipt).map_err(|e| match e.is_data() {
+        // A repeated key: readers disagree on which value counts, so the receipt is refused.
+        true => fail(format!(
+            "{e}: a receipt names each key once, so that every reader sees the same figure"
+        )),
+        false => fail(format!(
             "not JSON: {e}; verify reads the result.json a run or a universe wrote"
-        ))
+        )),
     })?;
     if recorded["kind"] == "universe" {
         return super::verify_universe::verify_universe(
