@@ -522,4 +522,8 @@ fn a_peer_name_that_begins_as_a_formula_is_refused() {
         stderr(&run)
     );
     assert!(!out.exists());
+    // An exclusion reason goes into peers.csv too (`excluded_reason`).
+    let run = run_into(&sandbox, &out, &["--set", "peer.1.exclude=\"@SUM(A1)\""]);
+    assert_eq!(run.status.code(), Some(2), "{}", stderr(&run));
+    assert!(stderr(&run).contains("peer.1.exclude = \"@SUM(A1)\" begins with `@`"));
 }

@@ -1603,3 +1603,43 @@ fn an_index_that_ends_early_is_noted() {
         "{summary}"
     );
 }
+
+// A quoted comma in the wide header (a name such as "S09, B") adds the comma a short row
+// lacks; the block is read record by record and the short row still refused. A header alone
+// ending in a comma (a last column it leaves unnamed) lets rows omit that field, as before
+// (found by review of the short-row check).
+#[test]
+fn short_rows_are_found_beside_quoted_headers_and_a_trailing_header_comma_is_accepted() {
+    refused(
+        |dir| {
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let header = text
+                .lines()
+                .next()
+                .unwrap()
+                .replace(",S09,", ",\"S09, B\",");
+            replace_line(&path, 1, &header);
+            let row: Vec<&str> = text.lines().nth(9).unwrap().split(',').collect();
+            replace_line(&path, 10, &row[..row.len() - 1].join(","));
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &["prices-wide.csv, line 10", "fields but the header has"],
+    );
+    let setup = Setup::new();
+    let wide = ["panel.prices=prices-wide.csv", "panel.layout=wide"];
+    let plain = setup.succeeds("plain", &wide);
+    for name in ["prices-wide.csv", "attributes.csv"] {
+        let path = setup.dir().join(name);
+        let text = fs::read_to_string(&path).unwrap();
+        let header = text.lines().next().unwrap().to_string() + ",";
+        replace_line(&path, 1, &header);
+    }
+    let trailing = setup.succeeds("trailing", &wide);
+    for name in ["securities.csv", "industries.csv"] {
+        assert!(
+            fs::read(plain.join(name)).unwrap() == fs::read(trailing.join(name)).unwrap(),
+            "{name} differs with a header ending in a comma"
+        );
+    }
+}

@@ -373,6 +373,17 @@ fn a_row_cut_short_in_a_wide_csv_is_named_by_line() {
         stderr.contains("a row needs a field for every column"),
         "{stderr}"
     );
+    // A header alone ending in a comma leaves a last column unnamed, which rows may omit.
+    let copy = WideCopy::new();
+    let path = copy.path("data/prices.csv");
+    let csv = fs::read_to_string(&path).unwrap();
+    let header = csv.lines().next().unwrap().to_string();
+    fs::write(&path, csv.replacen(&header, &format!("{header},"), 1)).unwrap();
+    ok(&run_case(
+        &copy.path("case.toml"),
+        &copy.root.path().join("out"),
+        &[],
+    ));
 }
 
 // An implausible jump in a wide table's column is named by its own line and column (and the
@@ -960,6 +971,17 @@ fn a_stray_cell_far_from_the_table_is_named() {
     let copy = WideCopy::new();
     copy.workbook_with_text_cell(1_048_575, 16_383, " ");
     let stderr = copy.fail("case_workbook.toml");
-    assert!(stderr.contains("XFD1048576 (the text \"\")"), "{stderr}");
-    assert!(stderr.contains("far from the rest"), "{stderr}");
+    assert!(
+        stderr.contains("because of XFD1048576 (the text \" \"), far from the rest"),
+        "{stderr}"
+    );
+    // A stray only far to the right (a note in the header row, column WQK, 0-based 16,000):
+    // that cell alone is named, not the table's last price, whose row is no stray.
+    let copy = WideCopy::new();
+    copy.workbook_with_text_cell(0, 16_000, "note");
+    let stderr = copy.fail("case_workbook.toml");
+    assert!(
+        stderr.contains("because of WQK1 (the text \"note\"), far from"),
+        "{stderr}"
+    );
 }

@@ -287,9 +287,10 @@ pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String>
     ))
 }
 
-/// A name the CSV outputs write may not begin with a character that makes a spreadsheet read
-/// the cell as a formula (`=`, `+`, `-`, `@`; the characters OWASP's advice on CSV injection
-/// names): opened in a spreadsheet, peers.csv or returns.csv would run it.
+/// A text the CSV outputs write (a peer's name, its exclusion reason) may not begin with a
+/// character that makes a spreadsheet read the cell as a formula (`=`, `+`, `-`, `@`; the
+/// characters OWASP's advice on CSV injection names): opened in a spreadsheet, peers.csv or
+/// returns.csv would run it.
 pub(crate) fn not_a_formula(key: &str, text: &str) -> std::result::Result<(), String> {
     match text
         .chars()
@@ -299,8 +300,8 @@ pub(crate) fn not_a_formula(key: &str, text: &str) -> std::result::Result<(), St
         None => Ok(()),
         Some(first) => Err(format!(
             "{key} = \"{text}\" begins with `{first}`: a spreadsheet opening peers.csv or \
-             returns.csv would run it as a formula; begin the name otherwise (the column it \
-             reads in a wide table is chosen by `column`)"
+             returns.csv would run it as a formula; begin it otherwise (a peer's column in a \
+             wide table is chosen by `column`, not by its name)"
         )),
     }
 }

@@ -377,6 +377,7 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
         super::sanity::not_a_formula(&format!("peer.{i}.name"), &peer.name)?;
         if let Some(reason) = &peer.exclude {
             one_line(&key("exclude"), reason)?;
+            super::sanity::not_a_formula(&format!("peer.{i}.exclude"), reason)?;
         }
         if let Some(j) = case.peers[..i].iter().position(|p| p.name == peer.name) {
             return Err(format!(

@@ -34,6 +34,15 @@ pub fn unique_column<'a>(
     }
 }
 
+/// The fewest fields a record of a table may have: the header's count, or one fewer when the
+/// header alone ends in a separator (a last column it leaves unnamed, which rows may omit).
+pub fn fewest_fields(header: &[String]) -> usize {
+    match header.last() {
+        Some(last) if last.is_empty() => header.len() - 1,
+        _ => header.len(),
+    }
+}
+
 /// The part of a "no column named `name`" message that names a header column equal to `name`
 /// but for white space around it (`" security"`), which is otherwise hard to see in the list
 /// of names; empty when there is none. Column names are matched exactly, as written.
@@ -51,15 +60,15 @@ pub fn padded_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &st
 }
 
 /// The first record of CSV `bytes` with more fields than `expected` (the header's count), or
-/// with fewer too when `fewer` (an empty line is not a record): its first line (0-based), its
-/// field count and its text. Quoted fields may hold commas and line breaks; a line's carriage
+/// with fewer than `fewest` when it is given (an empty line is not a record): its first line
+/// (0-based), its field count and its text. Quoted fields may hold commas and line breaks; a line's carriage
 /// return is not part of it. What the panel and attributes readers use to name the line
 /// polars' "more fields than defined" refers to, and a short record polars would fill with
 /// empty cells (its cells would then shift into the wrong columns unseen).
 pub fn first_record_with_wrong_field_count(
     bytes: &[u8],
     expected: usize,
-    fewer: bool,
+    fewest: Option<usize>,
 ) -> Option<(usize, usize, String)> {
     let (mut fields, mut in_quotes, mut record_line, mut record_start) = (1, false, 0, 0);
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
@@ -75,7 +84,8 @@ pub fn first_record_with_wrong_field_count(
             }
         }
         let blank = raw.is_empty() || raw == b"\r";
-        if !in_quotes && (fields > expected || (fewer && fields < expected && !blank)) {
+        let short = fewest.is_some_and(|fewest| fields < fewest) && !blank;
+        if !in_quotes && (fields > expected || short) {
             let end = start + raw.len();
             let text = String::from_utf8_lossy(&bytes[record_start..end]);
             return Some((record_line, fields, text.trim_end_matches('\r').to_string()));
@@ -132,6 +142,7 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
     // checked first, as if line by line.
     let valid_up_to = std::str::from_utf8(bytes).map_or_else(|e| e.valid_up_to(), |_| bytes.len());
     let mut header_fields = None;
+    let mut fewest = 0;
     let (mut fields, mut in_quotes, mut record_line) = (1, false, 1);
     let mut line_start = 0;
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
@@ -170,10 +181,13 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
                 check_header(&String::from_utf8_lossy(raw))
                     .map_err(|message| row_error(line, message))?;
                 header_fields = Some(fields);
+                // A header alone ending in a comma leaves its last column unnamed: rows may
+                // omit that field.
+                fewest = fields - usize::from(raw.last() == Some(&b','));
             }
             // An empty line is the cell parser's to name.
             Some(expected)
-                if fields > expected || (short_rows && fields < expected && !raw.is_empty()) =>
+                if fields > expected || (short_rows && fields < fewest && !raw.is_empty()) =>
             {
                 let shown = String::from_utf8_lossy(raw);
                 return Err(row_error(

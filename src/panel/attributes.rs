@@ -103,9 +103,11 @@ pub fn read_attributes(
             let header = super::header::header(&source, &bytes)?;
             super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
-            if let Some((line, fields, text)) =
-                first_record_with_wrong_field_count(&bytes, expected, true)
-            {
+            if let Some((line, fields, text)) = first_record_with_wrong_field_count(
+                &bytes,
+                expected,
+                Some(crate::io::sanity::fewest_fields(&header)),
+            ) {
                 let message = extra_fields_message(fields, expected, &text);
                 return Err(source.row_error(line.saturating_sub(1), message));
             }

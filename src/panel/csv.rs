@@ -82,7 +82,8 @@ pub(super) fn read(
             check_unnamed(source, plan, &frame, next_row)?;
             let height = frame.height();
             if columns.layout == PanelLayout::Wide {
-                check_wide_fields(source, block, first, next_row, height, plan.header.len())?;
+                let rows = (next_row, height);
+                check_wide_fields(source, block, (first, quoted), rows, &plan.header)?;
             }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             frames
@@ -332,22 +333,23 @@ fn read_block(
 }
 
 /// A wide panel's row with fewer fields than the header would leave its last securities' cells
-/// empty, read as gaps: it is refused. The commas of a block of complete records number
-/// records × (fields − 1); only a block where they do not (a short row, a quoted comma) is read
-/// record by record.
+/// empty, read as gaps: it is refused (a header alone ending in a comma lets rows omit that
+/// last, unnamed field). The commas of a quote-free block of complete records number records ×
+/// (fields − 1); a block where they do not, or with a quote (a quoted comma would make up for
+/// a missing one), is read record by record.
 fn check_wide_fields(
     source: &Source,
     block: &[u8],
-    has_header: bool,
-    first_row: usize,
-    rows: usize,
-    expected: usize,
+    (has_header, quoted): (bool, bool),
+    (first_row, rows): (usize, usize),
+    header: &[String],
 ) -> Result<()> {
-    let records = rows + usize::from(has_header);
-    if memchr::memchr_iter(b',', block).count() == records * (expected - 1) {
+    let (records, expected) = (rows + usize::from(has_header), header.len());
+    if !quoted && memchr::memchr_iter(b',', block).count() == records * (expected - 1) {
         return Ok(());
     }
-    match first_record_with_wrong_field_count(block, expected, true) {
+    let fewest = crate::io::sanity::fewest_fields(header);
+    match first_record_with_wrong_field_count(block, expected, Some(fewest)) {
         Some((line, fields, text)) => {
             let row = (first_row + line).saturating_sub(usize::from(has_header));
             Err(source.row_error(row, extra_fields_message(fields, expected, &text)))
@@ -439,8 +441,7 @@ fn diagnose(
     error: &PolarsError,
 ) -> Error {
     let expected = plan.header.len();
-    if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, false)
-    {
+    if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, None) {
         let row = (first_row + line).saturating_sub(usize::from(has_header));
         return source.row_error(row, extra_fields_message(fields, expected, &text));
     }

@@ -313,19 +313,21 @@ fn create_missing(dir: &Path) -> Result<Vec<PathBuf>> {
         current = folder.parent();
     }
     missing.reverse();
-    for (i, folder) in missing.iter().enumerate() {
-        // Another run may create the same folder meanwhile: one that exists now is fine.
-        if let Err(source) = fs::create_dir(folder).or_else(|e| match folder.is_dir() {
-            true => Ok(()),
-            false => Err(e),
-        }) {
-            for made in missing[..i].iter().rev() {
-                let _ = fs::remove_dir(made);
+    let mut made = Vec::new();
+    for folder in missing {
+        match fs::create_dir(&folder) {
+            Ok(()) => made.push(folder),
+            // Another run created it meanwhile: it is that run's, not this one's to remove.
+            Err(_) if folder.is_dir() => {}
+            Err(source) => {
+                for folder in made.iter().rev() {
+                    let _ = fs::remove_dir(folder);
+                }
+                return Err(io_error(&folder, "cannot create the output folder")(source));
             }
-            return Err(io_error(folder, "cannot create the output folder")(source));
         }
     }
-    Ok(missing)
+    Ok(made)
 }
 
 /// The output folder opened and locked (an advisory lock, `flock` on Unix, released when the

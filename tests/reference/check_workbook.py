@@ -206,13 +206,14 @@ def check_analyses(sheet, result, label):
                 checked += 1
     bridge = result.get("reconciliation")
     if bridge:
-        ends = [("The claim's components give", bridge["to"]["wacc"]),
-                ("Not explained by any input group", bridge["unexplained"]),
-                ("The claim's WACC as stated", bridge["to"]["stated_wacc"])]
-        for name, expected in ends:
+        # WACCs in column C ("WACC after"), the unexplained difference in D ("Contribution").
+        ends = [("The claim's components give", bridge["to"]["wacc"], 1),
+                ("Not explained by any input group", bridge["unexplained"], 2),
+                ("The claim's WACC as stated", bridge["to"]["stated_wacc"], 1)]
+        for name, expected, col in ends:
             if expected is None:
                 continue
-            got = rows.get(name, [None, None])[1]
+            got = rows.get(name, [None, None, None])[col]
             report(agree(got, expected), f"{label}: Analyses {name}: {got} vs {expected}")
             checked += 1
     print(f"  compared {checked} Analyses values with result.json")

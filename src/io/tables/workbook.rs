@@ -85,6 +85,25 @@ impl<RS: Read + Seek> Book<RS> for Ods<RS> {
     fn system_1904(&self) -> bool {
         false
     }
+
+    /// calamine holds an OpenDocument sheet as its whole rectangle once read (up to its own
+    /// limit, which it reports as an error): a sheet over [`MAX_SHEET_CELLS`] is refused as an
+    /// `.xlsx` sheet is, naming the cells that stretch it.
+    fn sheet_cells(&mut self, name: &str) -> Result<Range<Data>, String> {
+        let range = self.worksheet_range(name).map_err(|e| match e {
+            calamine::OdsError::CellLimitExceeded { .. } => format!(
+                "sheet \"{name}\" spans more cells than a workbook reader holds: a stray entry \
+                 far from the table? delete what lies outside it, or save the table as CSV"
+            ),
+            other => format!("sheet \"{name}\" cannot be read: {other}"),
+        })?;
+        let (top, left) = range.start().unwrap_or((0, 0));
+        let used = range
+            .used_cells()
+            .map(|(r, c, value)| ((top + r as u32, left + c as u32), value));
+        check_span(name, used)?;
+        Ok(range)
+    }
 }
 
 impl<RS: Read + Seek> Book<RS> for Xlsx<RS> {
@@ -104,53 +123,63 @@ impl<RS: Read + Seek> Book<RS> for Xlsx<RS> {
                 cells.push(calamine::Cell::new(cell.get_position(), value));
             }
         }
-        check_span(name, &cells)?;
+        let each = cells.iter().map(|c| (c.get_position(), c.get_value()));
+        check_span(name, each)?;
         Ok(Range::from_sparse(cells))
     }
 }
 
-/// Refuses cells whose rectangle spans more than [`MAX_SHEET_CELLS`], naming the last row's and
-/// the last column's cells (the strays, as a rule) with their values.
-fn check_span(name: &str, cells: &[calamine::Cell<Data>]) -> Result<(), String> {
-    let positions = cells.iter().map(|c| c.get_position());
-    let (Some(top), Some(left)) = (
-        positions.clone().map(|p| p.0).min(),
-        positions.clone().map(|p| p.1).min(),
-    ) else {
+/// Refuses cells whose rectangle spans more than [`MAX_SHEET_CELLS`], naming the cells that
+/// stretch it: the last row's when it lies more than half the height below the row before it,
+/// the last column's likewise (the strays, as a rule), each with its value.
+fn check_span<'a>(
+    name: &str,
+    cells: impl Iterator<Item = ((u32, u32), &'a Data)> + Clone,
+) -> Result<(), String> {
+    let rows = || cells.clone().map(|((row, _), _)| row);
+    let columns = || cells.clone().map(|((_, column), _)| column);
+    let (Some(top), Some(bottom), Some(left), Some(right)) =
+        (rows().min(), rows().max(), columns().min(), columns().max())
+    else {
         return Ok(());
     };
-    let lowest = cells
-        .iter()
-        .max_by_key(|c| c.get_position().0)
-        .expect("cells");
-    let rightmost = cells
-        .iter()
-        .max_by_key(|c| c.get_position().1)
-        .expect("cells");
-    let height = u64::from(lowest.get_position().0 - top) + 1;
-    let width = u64::from(rightmost.get_position().1 - left) + 1;
+    let (height, width) = (u64::from(bottom - top) + 1, u64::from(right - left) + 1);
     if height * width <= MAX_SHEET_CELLS {
         return Ok(());
     }
-    let at = |c: &calamine::Cell<Data>| {
-        let (row, column) = c.get_position();
-        let address = format!(
-            "{}{}",
+    let at = |((row, column), value): ((u32, u32), &Data)| {
+        let shown = match value {
+            Data::String(text) => format!("the text {text:?}"),
+            other => cell(other).shown(),
+        };
+        format!(
+            "{}{} ({shown})",
             super::cells::column_letters(column as usize),
             row + 1
-        );
-        format!("{address} ({})", cell(c.get_value()).shown())
+        )
     };
-    let mut strays = vec![at(lowest)];
-    if rightmost.get_position() != lowest.get_position() {
-        strays.push(at(rightmost));
+    let next_row = rows().filter(|&r| r < bottom).max().unwrap_or(top);
+    let next_column = columns().filter(|&c| c < right).max().unwrap_or(left);
+    let mut strays = Vec::new();
+    if u64::from(bottom - next_row) * 2 > height {
+        strays.extend(cells.clone().find(|((r, _), _)| *r == bottom).map(at));
     }
+    if u64::from(right - next_column) * 2 > width {
+        let found = cells.clone().find(|((_, c), _)| *c == right).map(at);
+        strays.extend(found.filter(|f| !strays.contains(f)));
+    }
+    let because = match strays.is_empty() {
+        true => "its used cells".to_string(),
+        false => format!(
+            "{}, far from the rest: delete what lies outside the table",
+            strays.join(" and ")
+        ),
+    };
     Err(format!(
-        "sheet \"{name}\" spans {height} rows by {width} columns ({} cells) because of \
-         {}, far from the rest: delete what lies outside the table, or save the table as \
-         CSV",
+        "sheet \"{name}\" spans {height} rows by {width} columns ({} cells, more than the {} \
+         hurdle holds) because of {because}, or save the table as CSV",
         height * width,
-        strays.join(" and ")
+        MAX_SHEET_CELLS
     ))
 }
 
@@ -243,6 +272,14 @@ fn open_error(bytes: &[u8], extension: &str, detail: &str) -> String {
         return format!(
             "is not a .{extension} workbook: its bytes do not start the way a .{extension} file \
              does (is it another kind of file renamed?)"
+        );
+    }
+    // calamine reads every sheet of an OpenDocument file as it opens it, and stops at its own
+    // cell limit: a sheet stretched by one stray entry, not a damaged file.
+    if detail.starts_with("Cell limit exceeded") {
+        return format!(
+            "has a sheet that spans more cells than a workbook reader holds ({detail}): a stray \
+             entry far from the table? delete what lies outside it, or save the table as CSV"
         );
     }
     format!("is a damaged or unreadable .{extension} workbook: {detail}")

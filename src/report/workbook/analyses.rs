@@ -153,14 +153,28 @@ fn sensitivity(
         &format!("{} \\ {}", grid.rows.key, grid.columns.key),
         &header,
     )?;
-    // Each axis in its key's own format: a rate as a percentage, anything else (a D/E, a
-    // lookback) as a plain number.
+    // Each axis in its key's own format: a rate or premium as a percentage with every digit it
+    // has (up to four decimals of a percent), anything else (a D/E, a lookback, an amount) as
+    // the number itself.
     let axis_format = |key: &str| {
-        let rate = key.contains("rate") || key.contains("premium") || key.ends_with("spread");
+        let last = key.rsplit('.').next().unwrap_or(key);
+        let rate = key.starts_with("premiums.")
+            || [
+                "risk_free_rate",
+                "equity_risk_premium",
+                "cost_pre_tax",
+                "cost_of_debt",
+                "tax_rate",
+                "cost",
+                "weight",
+                "inflation_from",
+                "inflation_to",
+            ]
+            .contains(&last);
         let format = header.clone();
         match rate {
-            true => format.set_num_format("0.00%"),
-            false => format.set_num_format("0.###"),
+            true => format.set_num_format("0.00##%"),
+            false => format.set_num_format("General"),
         }
     };
     let (row_format, column_format) = (axis_format(&grid.rows.key), axis_format(&grid.columns.key));
@@ -376,15 +390,17 @@ fn bridge_table(
     }
     // Where the steps end, and what the claim states beyond its own components.
     let ends = [
-        ("This case's WACC", Some(bridge.from.wacc)),
-        ("The claim's components give", Some(bridge.to.wacc)),
-        ("Not explained by any input group", bridge.unexplained),
-        ("The claim's WACC as stated", bridge.to.stated_wacc),
+        // WACCs under "WACC after"; the part no group explains, a difference, under
+        // "Contribution".
+        ("This case's WACC", Some(bridge.from.wacc), 2),
+        ("The claim's components give", Some(bridge.to.wacc), 2),
+        ("Not explained by any input group", bridge.unexplained, 3),
+        ("The claim's WACC as stated", bridge.to.stated_wacc, 2),
     ];
-    for (name, x) in ends {
+    for (name, x, col) in ends {
         let Some(x) = x else { continue };
         book.text(sheet, (r, 0), name, &label)?;
-        value(book, sheet, (r, 2), x, &pct)?;
+        value(book, sheet, (r, col), x, &pct)?;
         r += 1;
     }
     Ok(r)
