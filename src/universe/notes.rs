@@ -1,0 +1,186 @@
+//! The counts the summary gives and the notes a reviewer should see: securities left out and
+//! why, attribute rows without prices, placeholder industry labels, an index that covers less
+//! than the window. Apart from `mod.rs`, which computes the figures these describe.
+
+use super::{
+    securities, securities_count, Counts, Missing, NotEstimated, SecurityResult, UniverseInputs,
+};
+
+/// The counts of the summary and the notes a reviewer should see.
+pub(super) fn counts_and_notes(
+    inputs: &UniverseInputs,
+    securities: &[SecurityResult],
+    (start, end): (chrono::NaiveDate, chrono::NaiveDate),
+) -> (Counts, Vec<String>) {
+    let panel = &inputs.panel;
+    let strays: Vec<&str> = inputs
+        .attributes
+        .records()
+        .iter()
+        .filter(|r| panel.position(&r.security).is_none())
+        .map(|r| r.security.as_str())
+        .collect();
+    // As in a case, window_start sets the window and lookback is not used; said when an
+    // override names either (a file cannot write both), where one may have meant the other.
+    let universe = &inputs.universe;
+    let sets = |key: &str| {
+        (universe.overrides.iter()).any(|o| o.split('=').next().map(str::trim) == Some(key))
+    };
+    let mut notes: Vec<String> = crate::case::sanity::window_note(&universe.settings.beta)
+        .filter(|_| sets("beta.window_start") || sets("beta.lookback"))
+        .into_iter()
+        .collect();
+    notes.splice(0..0, index_coverage_note(&inputs.index, start, end));
+    if !strays.is_empty() {
+        notes.push(format!(
+            "{} in the attributes ({}) {} no prices in the panel and {} left out: {}",
+            securities_count(strays.len()),
+            inputs.attributes.file.path,
+            if strays.len() == 1 { "has" } else { "have" },
+            if strays.len() == 1 { "is" } else { "are" },
+            first_ids(&strays)
+        ));
+    }
+    notes.extend(named_notes(securities));
+    let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
+    let not_estimated = NotEstimated::ALL
+        .iter()
+        .map(|&r| (r.name(), count(&|s| s.not_estimated == Some(r))))
+        .collect();
+    let missing = Missing::ALL
+        .iter()
+        .map(|&m| (m.name(), count(&|s| s.missing.contains(&m))))
+        .collect();
+    let excluded = count(&|s| s.estimate.is_some() && s.excluded_reason.is_some());
+    let without_industry = count(&|s| s.industry.is_none());
+    if without_industry > 0 {
+        let (have, they, are, enter) = match without_industry {
+            1 => ("has", "it", "is", "enters"),
+            _ => ("have", "they", "are", "enter"),
+        };
+        notes.push(format!(
+            "{} {have} no industry (no attributes row or an empty label): {they} {are} listed in \
+             securities.csv but {enter} no industry.",
+            securities_count(without_industry)
+        ));
+    }
+    notes.extend(placeholder_industries_note(securities));
+    let counts = Counts {
+        securities: securities.len(),
+        estimated: count(&|s| s.aggregated()),
+        not_estimated,
+        excluded,
+        missing,
+        unlevered: count(&|s| s.unlevered_beta.is_some()),
+        attributes_not_in_panel: strays.len(),
+    };
+    (counts, notes)
+}
+
+/// A note when the index's prices cover less than the window: the periods outside them have no
+/// index return, so every security loses them (counted as `dropped_index_missing`), which a
+/// reader of one security's row could take for a fault of that security.
+fn index_coverage_note(
+    index: &crate::io::series::DataFile,
+    start: chrono::NaiveDate,
+    end: chrono::NaiveDate,
+) -> Option<String> {
+    (index.first_date > start || index.last_date < end).then(|| {
+        format!(
+            "The index ({}) has prices from {} to {}, less than the window's {start} to {end}: \
+             periods outside them have no index return, so every security's are dropped there \
+             (counted in dropped_index_missing).",
+            index.path, index.first_date, index.last_date
+        )
+    })
+}
+
+/// Industry labels that usually stand for a missing classification in an export.
+const PLACEHOLDER_LABELS: [&str; 9] = ["na", "n/a", "#n/a", "null", "none", "nan", "-", "--", "?"];
+
+/// A note on industries whose label looks like a placeholder ("N/A", "-"): the label is used as
+/// written, so its securities form an industry of their own, which the reader should know.
+fn placeholder_industries_note(securities: &[SecurityResult]) -> Option<String> {
+    let mut labels: Vec<&str> = securities
+        .iter()
+        .filter_map(|s| s.industry.as_deref())
+        .filter(|l| PLACEHOLDER_LABELS.contains(&l.trim().to_lowercase().as_str()))
+        .collect();
+    labels.sort_unstable();
+    labels.dedup();
+    let count = securities
+        .iter()
+        .filter(|s| s.industry.as_deref().is_some_and(|l| labels.contains(&l)))
+        .count();
+    (count > 0).then(|| {
+        let shown: Vec<String> = labels.iter().map(|l| format!("\"{l}\"")).collect();
+        format!(
+            "{} {} an industry label that usually marks a missing classification ({}); labels \
+             are used as written, so each such label is an industry of its own: give a real \
+             label, or leave the cell empty to keep {} out of every industry.",
+            securities_count(count),
+            if count == 1 { "has" } else { "have" },
+            shown.join(", "),
+            if count == 1 { "the security" } else { "them" },
+        )
+    })
+}
+
+/// The notes that name securities whose figures say more about the data than about a firm:
+/// those not estimated as `flat_prices` or `copies_index`, and those with an unlevering issue.
+fn named_notes(securities: &[SecurityResult]) -> Vec<String> {
+    let not_estimated_as = |reason: NotEstimated, what: &str| {
+        let ids = ids_where(securities, |s| s.not_estimated == Some(reason));
+        (
+            ids,
+            format!("{what}, and so no estimate ({})", reason.name()),
+        )
+    };
+    let mut named = vec![
+        not_estimated_as(
+            NotEstimated::PriceJump,
+            "a price that moves by more than a factor of 3 between two rows in the window (an \
+             unadjusted split or a bad price)",
+        ),
+        not_estimated_as(
+            NotEstimated::FlatPrices,
+            "prices that never move over the window",
+        ),
+        not_estimated_as(
+            NotEstimated::CopiesIndex,
+            "returns the index explains with R² above 0.999 (the index itself or a fund \
+             tracking it)",
+        ),
+    ];
+    for (issue, what) in securities::UNLEVERING_ISSUES {
+        let ids = ids_where(securities, |s| s.unlevering_issue == Some(issue));
+        named.push((ids, format!("{what} ({issue})")));
+    }
+    named
+        .iter()
+        .filter(|(ids, _)| !ids.is_empty())
+        .map(|(ids, what)| {
+            format!(
+                "{} {} {what}: {}",
+                securities_count(ids.len()),
+                if ids.len() == 1 { "has" } else { "have" },
+                first_ids(ids)
+            )
+        })
+        .collect()
+}
+
+/// The ids of the securities `pick` picks, in the rows' order.
+fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bool) -> Vec<&str> {
+    securities
+        .iter()
+        .filter(|s| pick(s))
+        .map(|s| s.security.as_str())
+        .collect()
+}
+
+/// The first ten ids of a note's list, then "…" if there are more.
+fn first_ids(ids: &[&str]) -> String {
+    let more = if ids.len() > 10 { ", …" } else { "" };
+    format!("{}{more}", ids[..ids.len().min(10)].join(", "))
+}
