@@ -387,3 +387,31 @@ fn the_memo_cautions_follow_the_case() {
     assert!(!memo.contains("Hamada and the target weights"));
     assert!(!memo.contains("Leverage beyond the peers'"));
 }
+
+// Figures a percentage typed for a decimal below 1 would give (0.5 for a 0.5% size premium) pass
+// every range check; the run notes them (generous bounds, a judgement: common practice puts
+// premiums and an ERP well under 15%). A valuation date after the data leaves a window the
+// index does not cover; the run says so with the index's own dates (the demo's index ends
+// 2026-09-30, its file's last row). Both found by review.
+#[test]
+fn implausible_figures_and_a_window_beyond_the_data_are_noted() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["premiums.size=0.5"]);
+    let notes = result["notes"].to_string();
+    assert!(
+        notes.contains("Check: the additional equity premiums sum to 50.00%"),
+        "{notes}"
+    );
+    let other = tempfile::tempdir().unwrap();
+    let result = run_demo(other.path(), &["case.valuation_date=2027-06-30"]);
+    let notes = result["notes"].to_string();
+    let index = &result["files"][0];
+    let expected = format!(
+        "has prices from {} to {}, less than the window's {} to 2027-06-30",
+        index["first_date"].as_str().unwrap(),
+        index["last_date"].as_str().unwrap(),
+        result["sampling"]["window_start"].as_str().unwrap()
+    );
+    assert!(notes.contains(&expected), "{notes}");
+    assert_eq!(index["last_date"], "2026-09-30");
+}

@@ -306,6 +306,27 @@ pub(crate) fn not_a_formula(key: &str, text: &str) -> std::result::Result<(), St
     }
 }
 
+/// A note when the index's prices cover less than the return window (a valuation date after the
+/// last price, a lookback longer than the data): the periods outside them have no index return,
+/// so every `each` (peer, security) loses them, counted under `counted`; a reader of one row could
+/// take that for a fault of that row, and the window the outputs name is not the one the data
+/// cover.
+pub fn index_coverage_note(
+    index: &crate::io::series::DataFile,
+    (start, end): (chrono::NaiveDate, chrono::NaiveDate),
+    each: &str,
+    counted: &str,
+) -> Option<String> {
+    (index.first_date > start || index.last_date < end).then(|| {
+        format!(
+            "The index ({}) has prices from {} to {}, less than the window's {start} to {end}: \
+             periods outside them have no index return, so every {each}'s are dropped there \
+             (counted in {counted}).",
+            index.path, index.first_date, index.last_date
+        )
+    })
+}
+
 /// When `beta.window_start` is given it sets the window and `beta.lookback` is not used; the
 /// run says so (a case file that writes both is refused by [`check_case_text`]).
 pub fn window_note(beta: &crate::case::BetaSettings) -> Option<String> {

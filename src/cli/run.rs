@@ -73,9 +73,12 @@ fn summary(v: &Valuation) -> String {
             v.case.title, v.case.valuation_date
         ),
         format!(
-            "  {} beta, {} returns, {} unlevered; {} unlevering",
+            "  {} beta, {} returns over {} to {} ({} periods), {} unlevered; {} unlevering",
             label(&v.estimator.method),
             label(&v.sampling.frequency),
+            v.sampling.window_start,
+            v.sampling.window_end,
+            v.sampling.lookback,
             super::shrinkage(&v.settings.beta),
             label(&v.cost.beta.formula)
         ),

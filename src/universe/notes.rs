@@ -77,22 +77,18 @@ pub(super) fn counts_and_notes(
     (counts, notes)
 }
 
-/// A note when the index's prices cover less than the window: the periods outside them have no
-/// index return, so every security loses them (counted as `dropped_index_missing`), which a
-/// reader of one security's row could take for a fault of that security.
+/// [`crate::case::sanity::index_coverage_note`], in a universe's words.
 fn index_coverage_note(
     index: &crate::io::series::DataFile,
     start: chrono::NaiveDate,
     end: chrono::NaiveDate,
 ) -> Option<String> {
-    (index.first_date > start || index.last_date < end).then(|| {
-        format!(
-            "The index ({}) has prices from {} to {}, less than the window's {start} to {end}: \
-             periods outside them have no index return, so every security's are dropped there \
-             (counted in dropped_index_missing).",
-            index.path, index.first_date, index.last_date
-        )
-    })
+    crate::case::sanity::index_coverage_note(
+        index,
+        (start, end),
+        "security",
+        "dropped_index_missing",
+    )
 }
 
 /// Industry labels that usually stand for a missing classification in an export.

@@ -26,6 +26,7 @@ pub fn value_with(
     notes.extend(capital_notes(settings, &exclusions));
     let peers = peer_results(settings, inputs, estimates, &unlevered(&chain), exclusions);
     let cost = cost_record(settings, &chain, &peers);
+    notes.extend(plausibility_notes(&cost));
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());
     files.extend(inputs.peers.iter().cloned());
@@ -271,6 +272,59 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
              figures; Conine (1980) is Hamada with a debt beta (see the formula comparison)."
                 .to_string(),
         );
+    }
+    notes
+}
+
+/// Notes on figures far outside what a discount rate's parts usually are: the range checks take
+/// any rate below 1, so a percentage typed for a decimal below 1 (0.5 for a 0.5% size premium)
+/// goes through as 50%. The bounds are generous judgements, not rules of any standard: they
+/// flag, they do not refuse.
+fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
+    // Written as the memo writes a rate (the outputs' formatting lives above this layer).
+    let percent = |x: f64| format!("{:.2}%", x * 100.0);
+    let checks = [
+        (
+            cost.risk_free_rate > 0.20,
+            "the risk-free rate is",
+            cost.risk_free_rate,
+        ),
+        (
+            cost.equity_risk_premium > 0.15,
+            "the equity risk premium is",
+            cost.equity_risk_premium,
+        ),
+        (
+            cost.premiums.total > 0.15,
+            "the additional equity premiums sum to",
+            cost.premiums.total,
+        ),
+        (
+            cost.cost_of_debt_pre_tax > 0.30,
+            "the pre-tax cost of debt is",
+            cost.cost_of_debt_pre_tax,
+        ),
+        (cost.wacc > 0.30, "the WACC is", cost.wacc),
+    ];
+    let mut notes: Vec<String> = checks
+        .iter()
+        .filter(|(far, ..)| *far)
+        .map(|(_, what, x)| {
+            format!(
+                "Check: {what} {}, far above what such a figure usually is; rates are \
+                 decimals (0.055 is 5.5%), so a percentage typed for one reads 100 times too \
+                 large.",
+                percent(*x)
+            )
+        })
+        .collect();
+    if cost.cost_of_debt_pre_tax > cost.cost_of_equity {
+        notes.push(format!(
+            "Check: the pre-tax cost of debt, {}, is above the cost of equity, {}: debt ranks \
+             ahead of equity and should cost less; look at the spread or the rates.",
+            percent(cost.cost_of_debt_pre_tax),
+            percent(cost.cost_of_equity)
+        ));
     }
     notes
 }

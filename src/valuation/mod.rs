@@ -155,6 +155,12 @@ fn estimate_peers_under(
     let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
         .into_iter()
         .collect();
+    notes.extend(crate::case::sanity::index_coverage_note(
+        &inputs.index,
+        (window.start(), window.end()),
+        "peer",
+        "periods_dropped.market_missing",
+    ));
     if window.end() != valuation_date {
         notes.push(format!(
             "The valuation date {valuation_date} is not a period end; the return window ends at \
