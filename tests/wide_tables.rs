@@ -427,6 +427,18 @@ fn two_peers_on_one_column_are_named_by_their_column_keys() {
         "{stderr}"
     );
     assert!(!out.exists());
+    // The risk-free yields read as a peer too (found by review): refused as the index is.
+    let output = run_case(
+        &copy.path("case.toml"),
+        &out,
+        &["--set", "peer.0.column=Risk-free yield"],
+    );
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("as the risk-free series' (market.risk_free_series.column"),
+        "{stderr}"
+    );
 }
 
 // A formula saved without its calculated value (as openpyxl writes one) has no value to read;

@@ -47,6 +47,13 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
                 "the index's ({})",
                 named("market.index", &inputs.index)
             ))
+        } else if let Some(yields) = inputs.risk_free.as_ref().filter(|y| same_as(y)) {
+            // The risk-free yields taken for a peer (a wide table's yield column left among
+            // the peers): its "beta" would be that of a yield.
+            Some(format!(
+                "the risk-free series' ({})",
+                named("market.risk_free_series", yields)
+            ))
         } else {
             inputs.peers[..i].iter().position(same_as).map(|j| {
                 format!(
