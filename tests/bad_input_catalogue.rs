@@ -1324,6 +1324,29 @@ fn case_files() -> Vec<Bad> {
             ["run", "{case}", "--out", "{out}"],
             ["peer.2.name", "Corrowick Valves", "peer.1.name"]
         ),
+        // Found by review: names a reader, or `--set peer.NAME`, cannot tell apart.
+        bad!(
+            "peer names differing only in capitals",
+            |s| s.edit_case(
+                "name = \"Dunmere Hydraulics\"",
+                "name = \"CORROWICK VALVES\""
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            ["peer.2.name", "repeats peer.1.name", "capitals are ignored"]
+        ),
+        bad!(
+            "a peer name with a trailing space",
+            |s| s.edit_case(
+                "name = \"Dunmere Hydraulics\"",
+                "name = \"Dunmere Hydraulics \""
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "peer.2.name",
+                "\"Dunmere Hydraulics \"",
+                "white space around it"
+            ]
+        ),
         bad!(
             "no peers",
             |s| {

@@ -287,6 +287,33 @@ pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String>
     ))
 }
 
+/// A peer's name must be told apart from the others by a reader and by `--set peer.NAME.…`:
+/// no white space around it (`"Alder "` prints as `"Alder"`, which `--set` then cannot find),
+/// and no earlier peer's name, also when the two differ only in capitals.
+pub(crate) fn distinct_name<'a>(
+    i: usize,
+    name: &str,
+    earlier: impl Iterator<Item = &'a str>,
+) -> std::result::Result<(), String> {
+    if name.trim() != name {
+        return Err(format!(
+            "peer.{i}.name = \"{name}\" has white space around it, which no table shows and \
+             `--set peer.NAME.…` cannot match; remove it"
+        ));
+    }
+    let folded = name.to_lowercase();
+    match earlier
+        .enumerate()
+        .find(|(_, e)| e.to_lowercase() == folded)
+    {
+        Some((j, other)) => Err(format!(
+            "peer.{i}.name = \"{name}\" repeats peer.{j}.name (\"{other}\"); peer names must be \
+             unique, also when capitals are ignored"
+        )),
+        None => Ok(()),
+    }
+}
+
 /// A text the CSV outputs write (a peer's name, its exclusion reason) may not begin with a
 /// character that makes a spreadsheet read the cell as a formula (`=`, `+`, `-`, `@`; the
 /// characters OWASP's advice on CSV injection names): opened in a spreadsheet, peers.csv or

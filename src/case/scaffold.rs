@@ -110,7 +110,11 @@ pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<Strin
         let plain = display_name(peer);
         let mut name = plain.clone();
         let mut n = 1;
-        while names.contains(&name) {
+        // Alike also when capitals are ignored, as the case compares names.
+        while names
+            .iter()
+            .any(|n| n.to_lowercase() == name.to_lowercase())
+        {
             n += 1;
             name = format!("{plain} ({n})");
         }

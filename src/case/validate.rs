@@ -379,12 +379,8 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
             one_line(&key("exclude"), reason)?;
             super::sanity::not_a_formula(&format!("peer.{i}.exclude"), reason)?;
         }
-        if let Some(j) = case.peers[..i].iter().position(|p| p.name == peer.name) {
-            return Err(format!(
-                "peer.{i}.name = \"{}\" repeats peer.{j}.name; peer names must be unique",
-                peer.name
-            ));
-        }
+        let earlier = case.peers[..i].iter().map(|p| p.name.as_str());
+        super::sanity::distinct_name(i, &peer.name, earlier)?;
         if !(peer.equity_value.is_finite() && peer.equity_value > 0.0) {
             return Err(format!(
                 "{} = {} must be positive",
