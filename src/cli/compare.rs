@@ -6,8 +6,8 @@
 
 use std::path::PathBuf;
 
-use hurdle::audit::bridge::{bridge, read_side, Bridge};
-use hurdle::report::format::{basis_points, percent};
+use hurdle::audit::bridge::{bridge, read_side, Bridge, Group};
+use hurdle::report::format::{basis_points, fixed, percent};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -54,21 +54,30 @@ fn render(b: &Bridge) -> String {
         percent(b.to.wacc, 3)
     );
     out.push_str(&format!(
-        "{:<22} {:>12} {:>12} {:>10}\n",
-        "input group", "WACC after", "step", "Shapley"
+        "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
+        "input group", "from", "to", "WACC after", "step", "Shapley"
     ));
     for s in &b.steps {
+        let shown = |x: f64| match s.group {
+            Group::Beta => fixed(x, 3),
+            Group::Weights => format!("E {}", percent(x, 1)),
+            _ => percent(x, 2),
+        };
         out.push_str(&format!(
-            "{:<22} {:>12} {:>12} {:>10}\n",
+            "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
             hurdle::report::format::label(&s.group),
+            shown(s.group.figure(&b.from.build_up)),
+            shown(s.group.figure(&b.to.build_up)),
             percent(s.wacc_after, 3),
             basis_points(s.contribution),
             basis_points(s.shapley)
         ));
     }
     out.push_str(&format!(
-        "{:<22} {:>12} {:>12} {:>10}\n",
+        "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
         "total",
+        "",
+        "",
         "",
         basis_points(b.difference),
         basis_points(b.difference)
@@ -77,13 +86,21 @@ fn render(b: &Bridge) -> String {
     let visible = |gap: &f64| gap.abs() >= 5e-5;
     // Either side: a stated WACC (a claim's `wacc`) that its own components do not give.
     for (side, gap) in [(&b.from, b.unexplained_from), (&b.to, b.unexplained)] {
-        if let Some(gap) = gap.filter(visible) {
+        if let (Some(gap), Some(stated)) = (gap.filter(visible), side.stated_wacc) {
             out.push_str(&format!(
-                "note: {} states a WACC {} away from what its own components give\n",
+                "note: {} states a WACC of {}; its own components give {}, so {} of it \
+                 (stated less components) is explained by no input group\n",
                 side.label,
+                percent(stated, 3),
+                percent(side.wacc, 3),
                 basis_points(gap)
             ));
         }
     }
+    out.push_str(
+        "note: each group is the figure the build-up carries: the beta is the relevered beta, so \
+         a different D/E moves the beta line as well as the weights line (the weights step does \
+         not relever it)\n",
+    );
     out
 }

@@ -174,16 +174,30 @@ pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
 
 /// A bridge as CSV: one row per input group.
 pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
-    let mut out = String::from("group,wacc_before,wacc_after,contribution,shapley\n");
+    let mut out =
+        String::from("group,from_value,to_value,wacc_before,wacc_after,contribution,shapley\n");
     for s in &bridge.steps {
         writeln!(
             out,
-            "{},{},{},{},{}",
+            "{},{},{},{},{},{},{}",
             crate::report::format::label(&s.group),
+            s.group.figure(&bridge.from.build_up),
+            s.group.figure(&bridge.to.build_up),
             s.wacc_before,
             s.wacc_after,
             s.contribution,
             s.shapley
+        )
+        .expect("writing to a String cannot fail");
+    }
+    // What the claim states beyond its own components, after the groups: with it the
+    // contributions add up to the gap between the two stated WACCs.
+    if let Some(gap) = bridge.unexplained.filter(|g| *g != 0.0) {
+        writeln!(
+            out,
+            "unexplained (the claim's stated WACC less its components'),,,{},{},{gap},{gap}",
+            bridge.to.wacc,
+            bridge.to.stated_wacc.unwrap_or(bridge.to.wacc)
         )
         .expect("writing to a String cannot fail");
     }

@@ -240,6 +240,21 @@ impl Group {
             }
         }
     }
+
+    /// The figure that stands for this group in `build_up`, for showing the two sides: the
+    /// rate, the relevered beta, the premiums' sum, the pre-tax cost of debt, the tax rate, or
+    /// for the weights the equity weight.
+    pub fn figure(self, build_up: &BuildUp) -> f64 {
+        match self {
+            Group::RiskFreeRate => build_up.risk_free_rate,
+            Group::EquityRiskPremium => build_up.equity_risk_premium,
+            Group::Beta => build_up.beta,
+            Group::Premiums => build_up.premiums,
+            Group::CostOfDebt => build_up.cost_of_debt_pre_tax,
+            Group::TaxRate => build_up.tax_rate,
+            Group::Weights => build_up.equity_weight,
+        }
+    }
 }
 
 /// One side of a comparison.
