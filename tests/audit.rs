@@ -1007,3 +1007,52 @@ fn a_receipt_with_a_repeated_key_is_refused() {
         text(&verify)
     );
 }
+
+// A value that reproduces the claim but that no one could defend is cautioned: the demo's
+// 9.35% through the cost of debt alone needs a pre-tax cost of debt above the case's cost of
+// equity (read from the case's own result.json), and a claim far below the case's WACC needs
+// a negative equity risk premium (found by review). The textbook order of the claims on a
+// firm's cash: debt before equity, so debt costs less.
+#[test]
+fn implied_values_no_one_could_defend_are_cautioned() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let result = run_case(&case, &dir.path().join("out"), &["--no-figures"]);
+    let cost_of_equity = number(&result, "cost_of_equity");
+    let solved = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        "0.0935",
+        "--solve",
+        "cost_of_debt",
+    ]);
+    let report = text(&solved);
+    assert_eq!(solved.status.code(), Some(0), "{report}");
+    let value: f64 = report
+        .split("debt.cost_pre_tax=")
+        .nth(1)
+        .and_then(|rest| rest.split_whitespace().next())
+        .and_then(|v| v.parse().ok())
+        .expect("the exact --set value");
+    assert!(value > cost_of_equity, "{report}");
+    assert!(
+        report.contains("caution: a pre-tax cost of debt above the case's cost of equity"),
+        "{report}"
+    );
+    let low = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        "0.02",
+        "--solve",
+        "erp",
+        "--range",
+        "-0.5..0.2",
+    ]);
+    assert!(
+        text(&low).contains("caution: an equity risk premium below zero"),
+        "{}",
+        text(&low)
+    );
+}

@@ -104,9 +104,50 @@ pub struct Implied {
     pub refused_at_edge: Option<(f64, String)>,
     /// How many values the scan evaluated (its intervals plus one).
     pub searched: usize,
+    /// The case's own cost of equity, which a solved cost of debt should stay below.
+    pub base_cost_of_equity: f64,
 }
 
 impl Implied {
+    /// Why the value found, though it reproduces the claim, is hard to defend: a negative
+    /// premium, rate or beta, a figure far above the usual (the bounds the run's notes use), or
+    /// a pre-tax cost of debt above the case's cost of equity (debt ranks ahead of equity).
+    /// `None` when nothing stands out.
+    pub fn caution(&self) -> Option<String> {
+        let value = self.value?;
+        let percent = |x: f64| format!("{:.2}%", x * 100.0);
+        let too_high = match self.target {
+            Target::Erp | Target::SizePremium => 0.15,
+            Target::RiskFree => 0.20,
+            Target::CostOfDebt => 0.30,
+            Target::Beta => 3.0,
+            Target::DebtToEquity => return None,
+        };
+        let what = match self.target {
+            Target::Erp => "an equity risk premium",
+            Target::SizePremium => "a size premium",
+            Target::RiskFree => "a risk-free rate",
+            Target::CostOfDebt => "a pre-tax cost of debt",
+            Target::Beta => "a relevered beta",
+            Target::DebtToEquity => unreachable!("returned above"),
+        };
+        if value < 0.0 {
+            Some(format!(
+                "{what} below zero: the claim implies an input no market gives"
+            ))
+        } else if value > too_high {
+            Some(format!("{what} far above what such a figure usually is"))
+        } else if self.target == Target::CostOfDebt && value > self.base_cost_of_equity {
+            Some(format!(
+                "a pre-tax cost of debt above the case's cost of equity ({}): debt ranks ahead \
+                 of equity and should cost less",
+                percent(self.base_cost_of_equity)
+            ))
+        } else {
+            None
+        }
+    }
+
     /// Whether the solution's WACC equals the claim (within [`REPRODUCED`]); `false` when no
     /// value was found or the WACC jumps across the claim at the value found.
     pub fn reproduces(&self) -> bool {
@@ -187,6 +228,7 @@ pub fn implied(
         refused_range: scan.refused_range,
         refused_at_edge: scan.refused_at_edge,
         searched: scan.searched,
+        base_cost_of_equity: base.cost.cost_of_equity,
     })
 }
 

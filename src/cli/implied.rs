@@ -74,6 +74,9 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
             r.crossings
         );
     }
+    if let Some(caution) = r.caution() {
+        println!("  caution: {caution}; the claim may rest on other inputs than this one");
+    }
 }
 
 /// Prints the answer (a value, a jump, or none in the range) and returns the exit status.
