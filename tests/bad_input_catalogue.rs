@@ -1690,7 +1690,25 @@ fn claimed_files() -> Vec<Bad> {
             "claimed tax rate above 1",
             |s| claim(s, "tax_rate = 0.25", "tax_rate = 1.5"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "claimed.tax_rate", "1.5"]
+            [
+                "bad_claim.toml",
+                "{line}",
+                "claimed.tax_rate",
+                "1.5",
+                "rates are decimals"
+            ]
+        ),
+        // Found by review: a claim whose [claimed] header was lost read as a case.
+        bad!(
+            "claimed file without its [claimed] header",
+            |s| claim(s, "[claimed]", ""),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            [
+                "bad_claim.toml",
+                "neither a case file",
+                "no [claimed] table",
+                "wacc"
+            ]
         ),
         bad!(
             "claimed negative D/E",

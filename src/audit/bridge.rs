@@ -67,6 +67,19 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
     let table: toml::Table =
         toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
     if !table.contains_key("claimed") {
+        // Neither a case nor a claim: say what each needs, not what a case lacks.
+        if !table.contains_key("case") {
+            let keys: Vec<&str> = table.keys().map(String::as_str).collect();
+            return Err(fail(format!(
+                "is neither a case file (no [case] table) nor a claimed build-up (no [claimed] \
+                 table); its top-level keys are: {}",
+                if keys.is_empty() {
+                    "none".to_string()
+                } else {
+                    keys.join(", ")
+                }
+            )));
+        }
         let case = read_case(path, &[])?;
         let valuation = value(&load_inputs(case)?, "")?;
         let mut side = Side::from_valuation(&valuation.case.title, &valuation);

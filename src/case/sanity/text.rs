@@ -226,8 +226,8 @@ pub fn check_case_text(text: &str) -> std::result::Result<(), String> {
 }
 
 /// Checks on a claimed build-up's text: NaN or infinity anywhere, and each figure inside the
-/// bounds a case would accept for it (rates in [−0.5, 1), a cost of debt in [0, 1), a beta in
-/// [−5, 10], D/E at most 10), each named with its line.
+/// bounds a case would accept for it (rates in [−0.5, 1), a cost of debt and a tax rate in
+/// [0, 1), a beta in [−5, 10], D/E at most 10), each named with its line.
 pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
     let Ok(document) = DeTable::parse(text) else {
         return Ok(());
@@ -238,8 +238,9 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
         return Err(message);
     }
     let most_de = super::MAX_DEBT_TO_EQUITY;
-    let bounds: [(&str, f64, f64, bool); 8] = [
+    let bounds: [(&str, f64, f64, bool); 9] = [
         ("claimed.risk_free_rate", -0.5, 1.0, false),
+        ("claimed.tax_rate", 0.0, 1.0, false),
         ("claimed.equity_risk_premium", -0.5, 1.0, false),
         ("claimed.premiums", -0.5, 1.0, false),
         ("claimed.wacc", -0.5, 1.0, false),
