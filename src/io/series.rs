@@ -116,6 +116,39 @@ pub fn sha256_hex(bytes: &[u8]) -> String {
 }
 
 /// Reads one series file. `written` is the path as the case names it; `resolved` is where it is.
+/// A data file that cannot be read, named with what the case reads it as (`role`: `index`,
+/// `risk_free`, `peer:NAME`) and, when the folder holds a file whose name differs only in
+/// capitals, that name (file names are matched exactly on most systems).
+fn unreadable(resolved: &Path, role: &str, source: &std::io::Error) -> Error {
+    let what = match role.strip_prefix("peer:") {
+        Some(name) => format!("the price file of peer \"{name}\""),
+        None if role == "index" => "the index's price file (market.index)".to_string(),
+        None => "the risk-free yields (market.risk_free_series)".to_string(),
+    };
+    let wanted = resolved
+        .file_name()
+        .map(|n| n.to_string_lossy().to_lowercase());
+    let alike = resolved
+        .parent()
+        .and_then(|folder| std::fs::read_dir(folder).ok())
+        .and_then(|entries| {
+            entries
+                .flatten()
+                .map(|e| e.file_name().to_string_lossy().into_owned())
+                .find(|n| {
+                    Some(n.to_lowercase()) == wanted
+                        && Some(n.as_str()) != resolved.file_name().and_then(|f| f.to_str())
+                })
+        });
+    let hint = alike.map_or_else(String::new, |name| {
+        format!("; the folder has `{name}`, which differs only in capitals")
+    });
+    Error::DataFile {
+        file: resolved.to_path_buf(),
+        message: format!("cannot read {what}: {source}{hint}"),
+    }
+}
+
 pub fn read_series_file(
     role: &str,
     written: &str,
@@ -124,11 +157,7 @@ pub fn read_series_file(
     value_column: &str,
     kind: ValueKind,
 ) -> Result<DataFile> {
-    let bytes = std::fs::read(resolved).map_err(|source| Error::Io {
-        path: resolved.to_path_buf(),
-        action: "cannot read the data file",
-        source,
-    })?;
+    let bytes = std::fs::read(resolved).map_err(|source| unreadable(resolved, role, &source))?;
     let sha256 = sha256_hex(&bytes);
     let series = parse_series(resolved, &bytes, date_column, value_column, kind)?;
     Ok(DataFile {
