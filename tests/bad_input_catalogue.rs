@@ -246,14 +246,21 @@ fn price_files() -> Vec<Bad> {
             "missing price file",
             |s| s.edit_case("data/peers/dunmere.csv", "data/peers/gone.csv"),
             ["run", "{case}", "--out", "{out}"],
-            ["data/peers/gone.csv", "price file of peer \"Dunmere Hydraulics\"", "No such file"]
+            [
+                "data/peers/gone.csv",
+                "price file of peer \"Dunmere Hydraulics\"",
+                "No such file"
+            ]
         ),
         // Found by review: a name typed with other capitals than the file's.
         bad!(
             "price file named with other capitals",
             |s| s.edit_case("data/peers/dunmere.csv", "data/peers/Dunmere.csv"),
             ["run", "{case}", "--out", "{out}"],
-            ["Dunmere.csv", "the folder has `dunmere.csv`, which differs only in capitals"]
+            [
+                "Dunmere.csv",
+                "the folder has `dunmere.csv`, which differs only in capitals"
+            ]
         ),
         bad!(
             "empty price path",

@@ -228,9 +228,24 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
     })?;
     placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
-    validate(&settings).map_err(|message| Error::Case {
-        file: path.to_path_buf(),
-        message,
+    validate(&settings).map_err(|message| {
+        // A value an override gave is blamed on the override, not on the file.
+        let key = |o: &String| o.split('=').next().unwrap_or("").trim().to_string();
+        let given: Vec<String> = (overrides.iter())
+            .filter(|o| !key(o).is_empty() && message.contains(&key(o)))
+            .cloned()
+            .collect();
+        match given.is_empty() {
+            true => Error::Case {
+                file: path.to_path_buf(),
+                message,
+            },
+            false => Error::AfterOverrides {
+                file: path.to_path_buf(),
+                overrides: given,
+                message,
+            },
+        }
     })?;
     Ok(Case {
         settings,

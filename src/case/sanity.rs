@@ -287,8 +287,9 @@ pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String>
     ))
 }
 
-/// A peer's name must be told apart from the others by a reader and by `--set peer.NAME.…`:
-/// no white space around it (`"Alder "` prints as `"Alder"`, which `--set` then cannot find),
+/// A peer's name must be told apart from the others by a reader and by an override that names
+/// it (`peer.NAME.…`): no white space around it (`"Alder "` prints as `"Alder"`, which an
+/// override then cannot find),
 /// and no earlier peer's name, also when the two differ only in capitals.
 pub(crate) fn distinct_name<'a>(
     i: usize,
@@ -298,7 +299,7 @@ pub(crate) fn distinct_name<'a>(
     if name.trim() != name {
         return Err(format!(
             "peer.{i}.name = \"{name}\" has white space around it, which no table shows and \
-             `--set peer.NAME.…` cannot match; remove it"
+             no override naming the peer (`peer.NAME.…`) can match; remove it"
         ));
     }
     let folded = name.to_lowercase();
