@@ -1802,6 +1802,23 @@ fn claimed_files() -> Vec<Bad> {
 
 fn overrides() -> Vec<Bad> {
     vec![
+        // Found by review: a value out of range is blamed on the --set that gave it.
+        bad!(
+            "--set rate in percent",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "market.equity_risk_premium=5.5"
+            ],
+            [
+                "after applying --set market.equity_risk_premium=5.5",
+                "rates are decimals"
+            ]
+        ),
         bad!(
             "--set without =",
             nothing,
