@@ -150,7 +150,8 @@ fn estimate_peers_under(
         inputs.index.series.view(),
         inputs.risk_free.as_ref().map(|f| f.series.view()),
     );
-    sanity::check_index_returns(case, &inputs.index, market.window_returns(&window))?;
+    let bounds = (window.start(), window.end());
+    sanity::check_index_returns(case, &inputs.index, market.window_returns(&window), bounds)?;
     let valuation_date = settings.case.valuation_date.0;
     let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
         .into_iter()

@@ -3,6 +3,7 @@
 //! (R² above 0.999), the last guard that no figure of the result is NaN or infinite, and the
 //! bounds of the reviewer commands' arguments. Thresholds and reasons: README, "Error handling".
 
+use chrono::NaiveDate;
 use std::path::Path;
 
 use super::{Inputs, Valuation};
@@ -142,7 +143,12 @@ pub(crate) fn check_jumps(
 /// The index must have at least `min_observations` returns in the window, and they must vary;
 /// called by `valuation::value_case` before any peer, so a short or flat index is blamed on the
 /// index file, not on the first peer.
-pub fn check_index_returns(case: &Case, index: &DataFile, returns: &[Option<f64>]) -> Result<()> {
+pub fn check_index_returns(
+    case: &Case,
+    index: &DataFile,
+    returns: &[Option<f64>],
+    (start, end): (NaiveDate, NaiveDate),
+) -> Result<()> {
     let min_observations = case.settings.beta.min_observations;
     let fail = |message: String| {
         Err(Error::DataFile {
@@ -152,9 +158,21 @@ pub fn check_index_returns(case: &Case, index: &DataFile, returns: &[Option<f64>
     };
     let present: Vec<f64> = returns.iter().flatten().copied().collect();
     if present.len() < min_observations as usize {
+        // Prices around the whole window but too few returns: too sparse for the frequency.
+        let what_to_do = match index.first_date <= start && index.last_date >= end {
+            true => {
+                "the prices cover the window but too sparsely for these returns: a lower \
+                     beta.frequency fits them"
+            }
+            false => {
+                "move case.valuation_date, or shorten beta.lookback (or beta.window_start), \
+                      so that the window lies inside them"
+            }
+        };
         return fail(format!(
-            "{} of the window's {} periods have an index return, fewer than \
-             beta.min_observations = {min_observations}; its prices run from {} to {}",
+            "{} of the window's {} periods ({start} to {end}, set by case.valuation_date and the \
+             window's length) have an index return, fewer than beta.min_observations = \
+             {min_observations}; its prices run from {} to {}: {what_to_do}",
             present.len(),
             returns.len(),
             index.first_date,
