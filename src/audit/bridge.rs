@@ -52,6 +52,24 @@ fn default_claim_label() -> String {
     "claimed".to_string()
 }
 
+/// A file with neither a `[case]` nor a `[claimed]` table is named as such, with its top-level
+/// keys, instead of being read as a case that lacks everything.
+fn neither_case_nor_claim(table: &toml::Table) -> std::result::Result<(), String> {
+    if table.contains_key("case") {
+        return Ok(());
+    }
+    let keys: Vec<&str> = table.keys().map(String::as_str).collect();
+    Err(format!(
+        "is neither a case file (no [case] table) nor a claimed build-up (no [claimed] table); \
+         its top-level keys are: {}",
+        if keys.is_empty() {
+            "none".to_string()
+        } else {
+            keys.join(", ")
+        }
+    ))
+}
+
 /// Reads one side: a TOML file with a `[claimed]` table, or else a case file (which is run).
 pub fn read_side(path: &Path, written: &str) -> Result<Side> {
     let fail = |message: String| Error::Case {
@@ -67,19 +85,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
     let table: toml::Table =
         toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
     if !table.contains_key("claimed") {
-        // Neither a case nor a claim: say what each needs, not what a case lacks.
-        if !table.contains_key("case") {
-            let keys: Vec<&str> = table.keys().map(String::as_str).collect();
-            return Err(fail(format!(
-                "is neither a case file (no [case] table) nor a claimed build-up (no [claimed] \
-                 table); its top-level keys are: {}",
-                if keys.is_empty() {
-                    "none".to_string()
-                } else {
-                    keys.join(", ")
-                }
-            )));
-        }
+        neither_case_nor_claim(&table).map_err(fail)?;
         let case = read_case(path, &[])?;
         let valuation = value(&load_inputs(case)?, "")?;
         let mut side = Side::from_valuation(&valuation.case.title, &valuation);
