@@ -402,6 +402,16 @@ fn implausible_figures_and_a_window_beyond_the_data_are_noted() {
         notes.contains("Check: the additional equity premiums sum to 50.00%"),
         "{notes}"
     );
+    // One peer's equity value in units while the others are in millions.
+    let units = tempfile::tempdir().unwrap();
+    let result = run_demo(units.path(), &["peer.0.equity_value=900000000"]);
+    assert!(
+        result["notes"]
+            .to_string()
+            .contains("a factor of more than 10,000"),
+        "{}",
+        result["notes"]
+    );
     let other = tempfile::tempdir().unwrap();
     let result = run_demo(other.path(), &["case.valuation_date=2027-06-30"]);
     let notes = result["notes"].to_string();

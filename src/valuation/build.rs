@@ -264,6 +264,17 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
             }
         ));
     }
+    // Peers' equity values a factor of 10,000 apart: most often one given in units and the
+    // others in millions (a judgement; peer sets rarely span so far in size).
+    let equity = settings.peers.iter().map(|p| p.equity_value);
+    let (least, most) = equity.fold((f64::INFINITY, 0.0_f64), |(l, m), e| (l.min(e), m.max(e)));
+    if most > 10_000.0 * least {
+        notes.push(format!(
+            "Check: the peers' equity values run from {least} to {most}, a factor of more than \
+             10,000: are they all in the same units (millions, say)? Each D/E and the \
+             market-cap weights read them as given."
+        ));
+    }
     if settings.leverage.formula == Formula::Hamada
         && settings.leverage.debt_beta_source != DebtBetaSource::None
     {
