@@ -377,19 +377,21 @@ fn a_long_file_grouped_by_security_gives_the_same_tables_as_any_order() {
     let shuffled = setup.succeeds("shuffled", &[]);
     for (k, set) in [&sorted, &reversed, &falling].iter().enumerate() {
         let out = setup.succeeds(&format!("grouped{k}"), &[set.as_str()]);
-        for name in ["securities.csv", "industries.csv"] {
-            assert!(
-                fs::read(out.join(name)).unwrap() == fs::read(shuffled.join(name)).unwrap(),
-                "{name} differs for {set}"
-            );
-        }
+        assert_same_tables(&out, &shuffled, &["securities.csv", "industries.csv"], set);
     }
     let shuffled = setup.succeeds("shuffled-rolling", &["universe.rolling=true"]);
     let out = setup.succeeds("grouped-rolling", &[&sorted, "universe.rolling=true"]);
-    for name in ["securities.csv", "rolling.csv"] {
+    let tables = ["securities.csv", "rolling.csv"];
+    assert_same_tables(&out, &shuffled, &tables, "with rolling betas");
+}
+
+/// Asserts that the files `names` are byte-identical in two output folders (`why` says which
+/// runs they are, for the message).
+fn assert_same_tables(a: &Path, b: &Path, names: &[&str], why: &str) {
+    for name in names {
         assert!(
-            fs::read(out.join(name)).unwrap() == fs::read(shuffled.join(name)).unwrap(),
-            "{name} differs with rolling betas"
+            fs::read(a.join(name)).unwrap() == fs::read(b.join(name)).unwrap(),
+            "{name} differs: {why}"
         );
     }
 }
@@ -1446,12 +1448,8 @@ fn an_id_padded_with_a_no_break_space_is_the_same_security() {
         (k % 2 == 0).then(|| format!("{date},S03\u{a0},{price}"))
     });
     let padded = setup.succeeds("padded", &[]);
-    for name in ["securities.csv", "industries.csv"] {
-        assert!(
-            fs::read(plain.join(name)).unwrap() == fs::read(padded.join(name)).unwrap(),
-            "{name} differs when half of S03's ids end in a no-break space"
-        );
-    }
+    let why = "half of S03's ids end in a no-break space";
+    assert_same_tables(&plain, &padded, &["securities.csv", "industries.csv"], why);
 }
 
 // A record with fewer fields than the header: in the attributes its cells would shift into
@@ -1636,10 +1634,11 @@ fn short_rows_are_found_beside_quoted_headers_and_a_trailing_header_comma_is_acc
         replace_line(&path, 1, &header);
     }
     let trailing = setup.succeeds("trailing", &wide);
-    for name in ["securities.csv", "industries.csv"] {
-        assert!(
-            fs::read(plain.join(name)).unwrap() == fs::read(trailing.join(name)).unwrap(),
-            "{name} differs with a header ending in a comma"
-        );
-    }
+    let why = "a header ending in a comma";
+    assert_same_tables(
+        &plain,
+        &trailing,
+        &["securities.csv", "industries.csv"],
+        why,
+    );
 }
