@@ -116,10 +116,11 @@ impl Implied {
     pub fn caution(&self) -> Option<String> {
         let value = self.value?;
         let percent = |x: f64| format!("{:.2}%", x * 100.0);
+        use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
         let too_high = match self.target {
-            Target::Erp | Target::SizePremium => 0.15,
-            Target::RiskFree => 0.20,
-            Target::CostOfDebt => 0.30,
+            Target::Erp | Target::SizePremium => USUAL_MAX_PREMIUM,
+            Target::RiskFree => USUAL_MAX_RISK_FREE,
+            Target::CostOfDebt => USUAL_MAX_COST,
             Target::Beta => 3.0,
             Target::DebtToEquity => return None,
         };

@@ -23,6 +23,14 @@ pub const MAX_PERIODS: u32 = 100_000;
 /// Highest D/E of a peer, the target or the subject: debt above 10/11 of capital, where equity
 /// is an option on distressed assets and no leverage formula's assumptions hold.
 pub const MAX_DEBT_TO_EQUITY: f64 = 10.0;
+
+/// Where a figure is "far above what such a figure usually is": the bounds a run's notes and
+/// `implied`'s caution both use (hurdle's judgement, not a standard's; they flag, they do not
+/// refuse). A risk-free rate; an equity risk premium or premiums; a pre-tax cost of debt or a
+/// WACC.
+pub const USUAL_MAX_RISK_FREE: f64 = 0.20;
+pub const USUAL_MAX_PREMIUM: f64 = 0.15;
+pub const USUAL_MAX_COST: f64 = 0.30;
 /// Lowest equity risk premium when the debt beta is read from the credit spread,
 /// (Kd − rf) / ERP: below 10 bp a spread of a few points reads as a debt beta in the tens or
 /// more, which says nothing about debt, and a premium near zero makes the ratio overflow.

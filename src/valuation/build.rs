@@ -292,30 +292,31 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
 /// goes through as 50%. The bounds are generous judgements, not rules of any standard: they
 /// flag, they do not refuse.
 fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
+    use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
     // Written as the memo writes a rate (the outputs' formatting lives above this layer).
     let percent = |x: f64| format!("{:.2}%", x * 100.0);
     let checks = [
         (
-            cost.risk_free_rate > 0.20,
+            cost.risk_free_rate > USUAL_MAX_RISK_FREE,
             "the risk-free rate is",
             cost.risk_free_rate,
         ),
         (
-            cost.equity_risk_premium > 0.15,
+            cost.equity_risk_premium > USUAL_MAX_PREMIUM,
             "the equity risk premium is",
             cost.equity_risk_premium,
         ),
         (
-            cost.premiums.total > 0.15,
+            cost.premiums.total > USUAL_MAX_PREMIUM,
             "the additional equity premiums sum to",
             cost.premiums.total,
         ),
         (
-            cost.cost_of_debt_pre_tax > 0.30,
+            cost.cost_of_debt_pre_tax > USUAL_MAX_COST,
             "the pre-tax cost of debt is",
             cost.cost_of_debt_pre_tax,
         ),
-        (cost.wacc > 0.30, "the WACC is", cost.wacc),
+        (cost.wacc > USUAL_MAX_COST, "the WACC is", cost.wacc),
     ];
     let mut notes: Vec<String> = checks
         .iter()
