@@ -1589,7 +1589,7 @@ fn case_files() -> Vec<Bad> {
             "Newey-West lags beyond any history",
             |s| s.edit_case(
                 "adjustment = \"blume\"",
-                "adjustment = \"blume\"\nnewey_west_lags = 3000000000"
+                "adjustment = \"blume\"\nstd_errors = \"newey-west\"\nnewey_west_lags = 3000000000"
             ),
             ["run", "{case}", "--out", "{out}"],
             ["beta.newey_west_lags", "3000000000"]

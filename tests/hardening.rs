@@ -103,6 +103,56 @@ fn window_start_by_set_wins_and_the_run_says_so() {
     assert_eq!(receipt["sampling"]["window_start"], "2022-01-31");
 }
 
+// Settings the chosen method, standard errors or adjustment never read are named in the run's
+// notes, and they are truly unused: every peer's figures and the WACC equal a run without them
+// (bit for bit: the same arithmetic runs either way).
+#[test]
+fn settings_the_case_does_not_use_are_noted_and_change_nothing() {
+    let sandbox = Sandbox::new();
+    let plain = sandbox.root.path().join("plain");
+    let given = sandbox.root.path().join("given");
+    let base = ["--no-figures", "--set", "beta.adjustment=none"];
+    let run = run_into(&sandbox, &plain, &base);
+    assert!(run.status.success(), "{}", stderr(&run));
+    let unused = [
+        "beta.newey_west_lags=6",
+        "beta.dimson_lags=2",
+        "beta.blume_weight=0.5",
+        "beta.vasicek_prior_mean=1",
+        "beta.vasicek_prior_variance=0.09",
+        "preferred.cost=0.08",
+        "leases.cost_pre_tax=0.06",
+    ];
+    let mut args: Vec<&str> = base.to_vec();
+    for set in &unused {
+        args.extend(["--set", set]);
+    }
+    let run = run_into(&sandbox, &given, &args);
+    assert!(run.status.success(), "{}", stderr(&run));
+    let stdout = String::from_utf8_lossy(&run.stdout);
+    for set in unused {
+        let (key, value) = set.split_once('=').unwrap();
+        assert!(
+            stdout.contains(&format!("{key} = {value}")) && stdout.contains("is not used"),
+            "{key}: {stdout}"
+        );
+    }
+    let read = |dir: &std::path::Path| -> serde_json::Value {
+        serde_json::from_str(&fs::read_to_string(dir.join("result.json")).unwrap()).unwrap()
+    };
+    let (plain, given) = (read(&plain), read(&given));
+    for figure in [
+        "peers",
+        "beta",
+        "cost_of_equity",
+        "wacc",
+        "uncertainty",
+        "sensitivity",
+    ] {
+        assert_eq!(plain[figure], given[figure], "{figure}");
+    }
+}
+
 // A move beyond the plausibility bound is refused until the case lists its date; then it is
 // used. Line 848 of the Corrowick file is 2023-03-31; raising that price fourfold makes a
 // jump up on 2023-03-31 and one down on 2023-04-03.

@@ -375,6 +375,69 @@ pub fn window_note(beta: &crate::case::BetaSettings) -> Option<String> {
     })
 }
 
+/// `[beta]` settings the case gives but the chosen method, standard errors or adjustment never
+/// read: a reviewer who sees `newey_west_lags = 6` in the file should not take the standard
+/// errors for Newey–West ones. A setting with a default counts as given when it differs from
+/// that default (the parsed case cannot tell a default written out from one left out).
+pub fn unused_beta_notes(beta: &crate::case::BetaSettings) -> Vec<String> {
+    use crate::beta::{Adjustment, BetaMethod};
+    use crate::stats::least_squares::StdErrors;
+    let default = crate::case::BetaSettings::default();
+    let mut notes = Vec::new();
+    if let Some(lags) = beta
+        .newey_west_lags
+        .filter(|_| beta.std_errors != StdErrors::NeweyWest)
+    {
+        notes.push(format!(
+            "beta.newey_west_lags = {lags} is not used: the standard errors are {} \
+             (beta.std_errors), not Newey–West.",
+            match beta.std_errors {
+                StdErrors::Hc1 => "HC1",
+                _ => "classical",
+            }
+        ));
+    }
+    if beta.method != BetaMethod::Dimson
+        && (beta.dimson_lags, beta.dimson_leads) != (default.dimson_lags, default.dimson_leads)
+    {
+        notes.push(format!(
+            "beta.dimson_lags = {} and beta.dimson_leads = {} are not used: the method is {} \
+             (beta.method), not Dimson.",
+            beta.dimson_lags,
+            beta.dimson_leads,
+            match beta.method {
+                BetaMethod::ScholesWilliams => "Scholes–Williams, which takes one lag and one lead",
+                _ => "OLS",
+            }
+        ));
+    }
+    let adjustment = match beta.adjustment {
+        Adjustment::None => "none",
+        Adjustment::Blume => "Blume",
+        Adjustment::Vasicek => "Vasicek",
+    };
+    if beta.adjustment != Adjustment::Blume && beta.blume_weight != default.blume_weight {
+        notes.push(format!(
+            "beta.blume_weight = {} is not used: the adjustment is {adjustment} \
+             (beta.adjustment), not Blume.",
+            beta.blume_weight
+        ));
+    }
+    if beta.adjustment != Adjustment::Vasicek {
+        let given = [
+            ("beta.vasicek_prior_mean", beta.vasicek_prior_mean),
+            ("beta.vasicek_prior_variance", beta.vasicek_prior_variance),
+        ];
+        for (key, value) in given.iter().filter_map(|(k, v)| v.map(|v| (k, v))) {
+            notes.push(format!(
+                "{key} = {value} is not used: the adjustment is {adjustment} (beta.adjustment), \
+                 not Vasicek."
+            ));
+        }
+    }
+    notes
+}
+
 /// A derived ratio to four significant digits (exponent form when very large or small): the
 /// message needs its size, not its last bits.
 pub(crate) fn significant(value: f64) -> String {

@@ -56,7 +56,10 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
              Blume's w·β + (1 − w); 1 leaves the beta raw"
         ));
     }
-    if let Some(l) = beta.newey_west_lags {
+    // Only when the standard errors use them: an unused setting (noted by the run) must not
+    // refuse a window, say a shorter one of the specification range.
+    let newey_west = beta.std_errors == crate::stats::least_squares::StdErrors::NeweyWest;
+    if let Some(l) = beta.newey_west_lags.filter(|_| newey_west) {
         if 4 * l >= lookback {
             return Err(format!(
                 "beta.newey_west_lags = {l} is at least beta.lookback / 4 = {}",

@@ -29,6 +29,9 @@ pub(super) fn counts_and_notes(
     let mut notes: Vec<String> = crate::case::sanity::window_note(&universe.settings.beta)
         .filter(|_| sets("beta.window_start") || sets("beta.lookback"))
         .into_iter()
+        .chain(crate::case::sanity::unused_beta_notes(
+            &universe.settings.beta,
+        ))
         .collect();
     notes.splice(0..0, index_coverage_note(&inputs.index, start, end));
     if !strays.is_empty() {

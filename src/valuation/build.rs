@@ -264,6 +264,28 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
             }
         ));
     }
+    let costs_without_weight = [
+        (
+            "preferred",
+            settings.preferred.weight,
+            settings.preferred.cost,
+            "cost",
+        ),
+        (
+            "leases",
+            settings.leases.weight,
+            settings.leases.cost_pre_tax,
+            "cost_pre_tax",
+        ),
+    ];
+    for (section, _, cost, key) in costs_without_weight.iter().filter(|c| c.1 == 0.0) {
+        if let Some(cost) = cost {
+            notes.push(format!(
+                "{section}.{key} = {cost} is not used: {section}.weight is 0, so the WACC gives \
+                 it no weight."
+            ));
+        }
+    }
     // Peers' equity values a factor of 10,000 apart: most often one given in units and the
     // others in millions (a judgement; peer sets rarely span so far in size).
     let equity = settings.peers.iter().map(|p| p.equity_value);

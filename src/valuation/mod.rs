@@ -155,6 +155,7 @@ fn estimate_peers_under(
     let valuation_date = settings.case.valuation_date.0;
     let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
         .into_iter()
+        .chain(crate::case::sanity::unused_beta_notes(&settings.beta))
         .collect();
     notes.extend(crate::case::sanity::index_coverage_note(
         &inputs.index,
