@@ -367,6 +367,47 @@ fn a_file_changed_without_moving_a_figure_is_a_changed_input_only() {
     );
 }
 
+// Peers are matched by name: with the last peer moved to the front, every peer's own
+// estimate reproduces (a peer's regression does not depend on the others), so no `peers[…]`
+// figure is listed; with a peer dropped, that peer is one named mismatch while the aggregate
+// (now over seven peers) differs.
+#[test]
+fn verify_matches_reordered_or_dropped_peers_by_name() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let case = case_dir.join("case.toml");
+    run_case(&case, &out, &[]);
+    let text_of_case = std::fs::read_to_string(&case).unwrap();
+    // The demo case ends with its eight [[peer]] blocks.
+    let last = text_of_case.rfind("[[peer]]").unwrap();
+    let first = text_of_case.find("[[peer]]").unwrap();
+    let (head, peers) = text_of_case.split_at(first);
+    let (others, moved) = peers.split_at(last - first);
+    let receipt = out.join("result.json");
+
+    std::fs::write(&case, format!("{head}{moved}\n{others}")).unwrap();
+    let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));
+    assert!(report.contains("case file: CHANGED"), "{report}");
+    assert!(!report.contains("MISMATCH peers["), "{report}");
+
+    std::fs::write(&case, format!("{head}{others}")).unwrap();
+    let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));
+    let peer_lines: Vec<&str> = report
+        .lines()
+        .filter(|l| l.contains("MISMATCH peers["))
+        .collect();
+    assert_eq!(
+        peer_lines,
+        [
+            r#"  MISMATCH peers[7] ("Ivelbrook Instruments"): recorded "only in the receipt" recomputed null"#
+        ]
+    );
+    assert!(
+        report.contains("MISMATCH beta.peers_included: recorded 8 recomputed 7"),
+        "{report}"
+    );
+}
+
 // A receipt written by another version of hurdle still reproduces when every file and figure
 // agrees: the version is named, not compared as a figure.
 #[test]

@@ -401,9 +401,10 @@ struct Place<'a> {
     item: Option<String>,
 }
 
-/// The name a list entry records for itself (a peer's `name`, a leave-one-out row's `peer`).
+/// The name a list entry records for itself (a peer's `name`, a leave-one-out row's `peer`, an
+/// input file's `role`).
 fn entry_name(entry: &Value) -> Option<String> {
-    ["name", "peer", "security"]
+    ["name", "peer", "security", "role"]
         .iter()
         .find_map(|k| entry.get(k).and_then(Value::as_str))
         .map(str::to_string)
@@ -457,6 +458,10 @@ fn compare_at(
             }
             return;
         }
+        (Value::Array(a), Value::Array(b)) if named_differently(a, b) => {
+            compare_by_name(a, b, (&path, key), tolerance, found);
+            return;
+        }
         (Value::Array(a), Value::Array(b)) if a.len() == b.len() => {
             for (i, (x, y)) in a.iter().zip(b).enumerate() {
                 let at = Place {
@@ -484,6 +489,71 @@ fn compare_at(
             recomputed: recomputed.clone(),
         };
         found.record(difference, key);
+    }
+}
+
+/// Whether two lists hold named entries (peers, leave-one-out rows) in another order or of
+/// another set: every entry named, each name once on each side, the two sequences of names not
+/// the same. Such lists are compared entry by entry by name, so a case whose peers were
+/// reordered, or one that dropped a peer, shows which peers' figures differ instead of every
+/// position's (or of the whole list as one value).
+fn named_differently(a: &[Value], b: &[Value]) -> bool {
+    let names = |list: &[Value]| -> Option<Vec<String>> {
+        let names: Vec<String> = list.iter().map(entry_name).collect::<Option<_>>()?;
+        let distinct: std::collections::HashSet<&String> = names.iter().collect();
+        (!names.is_empty() && distinct.len() == names.len()).then_some(names)
+    };
+    match (names(a), names(b)) {
+        (Some(x), Some(y)) => x != y,
+        _ => false,
+    }
+}
+
+/// Each recorded entry against the rerun's entry of the same name (its path keeps the
+/// receipt's position); an entry on one side only is one mismatch, named.
+fn compare_by_name(
+    a: &[Value],
+    b: &[Value],
+    (path, key): (&str, &str),
+    tolerance: f64,
+    found: &mut Comparison,
+) {
+    let position: std::collections::HashMap<String, usize> = (b.iter().enumerate())
+        .filter_map(|(j, y)| entry_name(y).map(|name| (name, j)))
+        .collect();
+    let mut matched = vec![false; b.len()];
+    let alone = |side: &str| Value::String(format!("only in the {side}"));
+    for (i, x) in a.iter().enumerate() {
+        let name = entry_name(x);
+        let at = Place {
+            path: format!("{path}[{i}]"),
+            key,
+            item: name.clone(),
+        };
+        match name.as_ref().and_then(|n| position.get(n)) {
+            Some(&j) => {
+                matched[j] = true;
+                compare_at(x, &b[j], at, tolerance, found);
+            }
+            None => {
+                found.compared += 1;
+                found.mismatches.push(Mismatch {
+                    path: at.path,
+                    item: at.item,
+                    recorded: alone("receipt"),
+                    recomputed: Value::Null,
+                });
+            }
+        }
+    }
+    for (j, y) in b.iter().enumerate().filter(|(j, _)| !matched[*j]) {
+        found.compared += 1;
+        found.mismatches.push(Mismatch {
+            path: format!("{path}[{j}] (rerun)"),
+            item: entry_name(y),
+            recorded: Value::Null,
+            recomputed: alone("rerun"),
+        });
     }
 }
 
@@ -624,5 +694,38 @@ mod tests {
             ]
         );
         assert_eq!(found.wording.len(), 2);
+    }
+
+    /// Peers reordered, one dropped and one added: figures are compared by name, and each
+    /// peer on one side only is one named mismatch.
+    #[test]
+    fn named_entries_are_matched_by_name() {
+        let peer = |name: &str, beta: f64| serde_json::json!({"name": name, "beta": beta});
+        let recorded =
+            serde_json::json!({"peers": [peer("A", 1.0), peer("B", 0.8), peer("C", 1.2)]});
+        let rerun = serde_json::json!({"peers": [peer("B", 0.8), peer("A", 1.1), peer("D", 0.9)]});
+        let found = compare(&recorded, &rerun, 1e-12);
+        let seen: Vec<(String, Option<String>)> = found
+            .mismatches
+            .iter()
+            .map(|m| (m.path.clone(), m.item.clone()))
+            .collect();
+        let named = |path: &str, item: &str| (path.to_string(), Some(item.to_string()));
+        assert_eq!(
+            seen,
+            [
+                named("peers[0].beta", "A"),
+                named("peers[2]", "C"),
+                named("peers[2] (rerun)", "D"),
+            ]
+        );
+        assert_eq!(
+            found.mismatches[0].difference(),
+            "; difference 1.0000e-1 (+10.0000%)"
+        );
+        // In the same order the lists are compared by position, as before.
+        let same = compare(&recorded, &recorded.clone(), 0.0);
+        assert!(same.mismatches.is_empty());
+        assert_eq!(same.compared, 6);
     }
 }
