@@ -65,9 +65,10 @@ fn ols_is_biased_low_and_the_thin_trading_estimators_cover_the_truth() {
         sw_covered += covers(sw.beta_ci_low, sw.beta_ci_high);
     }
     let share = |count: usize| count as f64 / repetitions as f64;
-    // OLS estimates the immediate response 0.45; its mean over 2000 samples has a standard error
-    // of about 0.05/(0.045·√120·√2000) ≈ 0.002, so 0.45 ± 0.03 is a loose band around it, far
-    // below the true 1.1.
+    // OLS estimates the immediate response 0.45; its residual holds the omitted lagged term
+    // too, SD √(0.05² + 0.65²·0.045²) ≈ 0.058, so its mean over 2000 samples has a standard
+    // error of about 0.058/(0.045·√120·√2000) ≈ 0.0026, and 0.45 ± 0.03 is a loose band around
+    // it, far below the true 1.1.
     let ols_mean = ols_sum / repetitions as f64;
     assert!((ols_mean - IMMEDIATE).abs() < 0.03, "OLS mean {ols_mean}");
     // Its interval almost never covers the truth: the bias (0.65) is over 4 SEs (≈ 0.1).
@@ -89,7 +90,8 @@ fn ols_is_biased_low_and_the_thin_trading_estimators_cover_the_truth() {
 }
 
 // One long seeded sample, as an analyst would see it: the truth lies outside the OLS interval
-// (with N = 1000 the OLS SE is about 0.035 and the bias 0.65, some 18 SEs) and inside Dimson's
+// (with N = 1000 the OLS SE is about 0.058/(0.045·√1000) ≈ 0.041, the residual holding the
+// omitted lagged term, and the bias 0.65, some 16 SEs) and inside Dimson's
 // for every kind of standard error. For Scholes–Williams the check is |β − truth| < 4·SE: its
 // SE treats ρ as known, and ρ̂'s own sampling error (about β/√N ≈ 0.035 here, against an SE of
 // about 0.054) makes the true spread about 1.2 SEs, so 4 SEs are more than 3 true standard

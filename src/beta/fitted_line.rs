@@ -78,9 +78,9 @@ mod tests {
     use crate::stats::least_squares::{design_with_intercept, ols};
 
     // The textbook mean-response interval written the other way: Var(ŷ(x₀)) = s²·x₀ᵀ(XᵀX)⁻¹x₀
-    // with x₀ = (1, x). Here it comes from the QR fit's own covariance matrix (regression.rs)
+    // with x₀ = (1, x). Here it comes from the QR fit's own covariance matrix (least_squares.rs)
     // and must equal the band built from α's and β's SEs and their covariance. The hand-worked
-    // example of regression.rs: x = 1..5, y = 2,4,5,4,5, s² = 0.8, Sxx = 10, x̄ = 3, so
+    // example of least_squares.rs: x = 1..5, y = 2,4,5,4,5, s² = 0.8, Sxx = 10, x̄ = 3, so
     // Var(ŷ(3)) = s²/n = 0.16 at the mean, the band's narrowest point.
     #[test]
     fn band_is_the_mean_response_interval() {
@@ -91,7 +91,7 @@ mod tests {
         let line = fitted_line(&estimate, 1.0, 5.0);
         assert_eq!(line.points.len(), POINTS);
         assert_eq!((line.points[0].x, line.points[POINTS - 1].x), (1.0, 5.0));
-        // t(0.975, 3) = 3.182446305 (any t table).
+        // t(0.975, 3) = 3.182446305 (any t table); 1e-8: the table's nine decimals.
         assert!((line.t_critical - 3.182446305).abs() < 1e-8);
         for p in &line.points {
             let x0 = nalgebra::DVector::from_column_slice(&[1.0, p.x]);

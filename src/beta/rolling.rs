@@ -238,7 +238,7 @@ mod tests {
         out
     }
 
-    // The updated sums must give what a fresh OLS fit (QR, src/regression.rs) of each window
+    // The updated sums must give what a fresh OLS fit (QR, src/stats/least_squares.rs) of each window
     // gives — the textbook simple-regression slope and SE — here on seeded random data with
     // two periods missing, so windows hold different counts.
     #[test]

@@ -94,7 +94,8 @@ mod tests {
             source: "stated",
         };
         let noisy = shrink(2.5, 1e4, &prior);
-        // w = 0.05 / (0.05 + 1e8) ≈ 5e-10, so β* is within 2.5·5e-10 of the prior.
+        // w = 0.05 / (0.05 + 1e8) ≈ 5e-10, so β* = 0.9 + w·(2.5 − 0.9) is within 1.6·5e-10 =
+        // 8e-10 of the prior.
         assert!((noisy.beta - 0.9).abs() < 1e-8, "{noisy:?}");
         let precise = shrink(2.5, 1e-5, &prior);
         // w = 0.05 / (0.05 + 1e-10) = 1 − 2e-9, so β* is within 1.6·2e-9 of the estimate.

@@ -404,6 +404,7 @@ mod tests {
         );
         let equal = with(&harris_pringle, 1.2);
         assert_eq!(equal.issue, None);
+        // 1e-15: a few roundings of numbers near 1 (ulp 2.2e-16), the formula's only error.
         assert!((equal.unlevered.unwrap() - 1.2).abs() < 1e-15);
         let hamada = LeverageSettings {
             formula: Formula::Hamada,

@@ -349,6 +349,7 @@ mod tests {
         assert_eq!(year(NaiveDate::from_ymd_opt(2024, 1, 1).unwrap()), 2024.0);
         // 2024 is a leap year: 1 July is day 182 of 366 counted from 0.
         let july = year(NaiveDate::from_ymd_opt(2024, 7, 1).unwrap());
+        // 1e-12: one division and one addition on numbers near 2024 (ulp 4.5e-13).
         assert!((july - (2024.0 + 182.0 / 366.0)).abs() < 1e-12);
     }
 }
