@@ -2,7 +2,7 @@
 //!
 //! The demo shipped as one table (CSV and workbook) must give the receipt of the file-per-series
 //! demo, figure for figure, apart from the input paths and hashes: two independent readers
-//! (data.rs per file, tables/ per column) of the same prices. Workbook fixtures written by
+//! (io/series.rs per file, io/tables/ per column) of the same prices. Workbook fixtures written by
 //! openpyxl and converted by LibreOffice (tests/data/tables/make_fixtures.py) check every form
 //! a cell takes; a Parquet file is written by polars. `hurdle init` on the wide demo, with its
 //! placeholders filled from the demo's own figures, must give the demo's WACC. Each bad input
@@ -87,7 +87,7 @@ fn is_input_location(path: &str) -> bool {
             .any(|(start, ends)| path.starts_with(start) && ends.iter().any(|e| path.ends_with(e)))
 }
 
-// Source of truth: the same demo prices read one file per series by data.rs. Every figure of
+// Source of truth: the same demo prices read one file per series by io/series.rs. Every figure of
 // result.json must be identical (the same decimal text becomes the same double in both
 // readers, so no tolerance is needed); only input locations may differ.
 #[test]
