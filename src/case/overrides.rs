@@ -21,15 +21,18 @@ pub fn apply_override(table: &mut toml::Table, assignment: &str) -> Result<()> {
         .ok_or_else(|| fail("expected KEY=VALUE, e.g. market.equity_risk_premium=0.05".into()))?;
     let key = key.trim();
     let segments: Vec<&str> = key.split('.').map(str::trim).collect();
-    if segments.iter().any(|s| s.is_empty()) {
-        return Err(fail(format!("`{key}` is not a dotted key path")));
-    }
+    // Checked segment by segment below: inside a list a name may hold dots, even end in one
+    // (`peer.Birch Inc..debt`).
+    let not_a_path = || fail(format!("`{key}` is not a dotted key path"));
     let value = parse_override_value(raw.trim());
     let (last, parents) = segments
         .split_last()
         .expect("split yields at least one segment");
     let mut current = table;
     for (depth, segment) in parents.iter().enumerate() {
+        if segment.is_empty() {
+            return Err(not_a_path());
+        }
         let here = segments[..=depth].join(".");
         let entry = current
             .entry(segment.to_string())
@@ -37,7 +40,14 @@ pub fn apply_override(table: &mut toml::Table, assignment: &str) -> Result<()> {
         current = match entry {
             toml::Value::Table(t) => t,
             toml::Value::Array(items) => {
-                return descend_array(items, &segments[depth + 1..], value, &here).map_err(fail);
+                // The key's own text after this segment: a name may hold a dot.
+                let rest = key.splitn(depth + 2, '.').last().unwrap_or_default();
+                let rest =
+                    named_entry(items, rest).unwrap_or_else(|| segments[depth + 1..].to_vec());
+                if rest.iter().any(|s| s.is_empty()) {
+                    return Err(not_a_path());
+                }
+                return descend_array(items, &rest, value, &here).map_err(fail);
             }
             other => {
                 return Err(fail(format!(
@@ -46,8 +56,31 @@ pub fn apply_override(table: &mut toml::Table, assignment: &str) -> Result<()> {
             }
         };
     }
+    if last.is_empty() {
+        return Err(not_a_path());
+    }
     current.insert(last.to_string(), value);
     Ok(())
+}
+
+/// The segments after an array's key when they begin with an entry's `name` that holds a dot
+/// (`peer.Alder Co. Ltd.debt`): that name as one segment, then the keys. The longest such name
+/// wins, so `Alder.Co` is not read as `Alder` and a key `Co`. `None` when no name with a dot
+/// begins the text (then the dots split it as usual).
+fn named_entry<'a>(items: &[toml::Value], rest: &'a str) -> Option<Vec<&'a str>> {
+    let rest = rest.trim_start();
+    let length = items
+        .iter()
+        .filter_map(|item| item.get("name").and_then(|n| n.as_str()))
+        .filter(|name| name.contains('.'))
+        .filter(|name| {
+            rest.strip_prefix(*name)
+                .is_some_and(|after| after.starts_with('.'))
+        })
+        .map(str::len)
+        .max()?;
+    let keys = rest[length + 1..].split('.').map(str::trim);
+    Some(std::iter::once(&rest[..length]).chain(keys).collect())
 }
 
 /// Continues an override inside an array of tables: the first segment picks the element.
@@ -162,5 +195,30 @@ mod tests {
         ));
         assert!(!same_value(&table, "peer.7.debt", "peer.7.debt"));
         assert!(!same_value(&table, "market.equity_risk_premium", "market"));
+    }
+
+    // A peer whose name holds dots, even ends in one, is addressed by that name; the longest
+    // name that begins the key wins; a path with an empty segment elsewhere is still refused.
+    #[test]
+    fn a_name_with_dots_picks_its_peer() {
+        let mut table: toml::Table = toml::from_str(
+            "[[peer]]\nname = \"Alder\"\ndebt = 1.0\n\n[[peer]]\nname = \"Alder.Co\"\ndebt = 2.0\n\n\
+             [[peer]]\nname = \"Birch Inc.\"\ndebt = 3.0\n",
+        )
+        .unwrap();
+        apply_override(&mut table, "peer.Alder.Co.debt=20.0").unwrap();
+        apply_override(&mut table, "peer.Alder.debt=10.0").unwrap();
+        apply_override(&mut table, "peer.Birch Inc..debt=30.0").unwrap();
+        let debts: Vec<f64> = table["peer"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|p| p["debt"].as_float().unwrap())
+            .collect();
+        assert_eq!(debts, [10.0, 20.0, 30.0]);
+        for bad in ["market..risk_free_rate=0.03", "peer.0..debt=1", "market.=1"] {
+            let error = apply_override(&mut table, bad).unwrap_err().to_string();
+            assert!(error.contains("is not a dotted key path"), "{bad}: {error}");
+        }
     }
 }

@@ -1,28 +1,54 @@
 #!/usr/bin/env python3
 """Independent check of a hurdle run with numpy and scipy.
 
-Usage: check_regressions.py OUTPUT_DIR
+Usage: check_regressions.py OUTPUT_DIR [--case CASE.toml]
 
-Reads OUTPUT_DIR/returns.csv and OUTPUT_DIR/result.json (written by `hurdle run`), refits every
-peer's market-model regression with numpy's least squares and scipy.stats.linregress, and
-recomputes Blume's shrinkage (with the case's beta.blume_weight), Hamada unlevering, the beta of
-the operations, the median, relevering, the CAPM cost of equity and the WACC from their textbook
-formulas. Every figure must agree with result.json to a
-relative 1e-9: both sides are double-precision evaluations of the same closed forms on the same
-numbers, so honest differences are rounding (about 1e-13); 1e-9 is the project's stated bar.
+Reads OUTPUT_DIR/result.json (written by `hurdle run`) and the case file it names (found as
+`hurdle verify` finds it, or given with --case, and accepted only with the SHA-256 the receipt
+records), applies the recorded --set overrides itself, and takes every setting, rate and peer
+figure from that case with README's defaults, not from hurdle's echo under result["settings"]
+(the echo is compared as an extra check). Then:
+  - rebuilds every return from the case's own price and yield files: the window's sample points,
+    each sample as the last price of its period, simple or log returns, the risk-free yield at the
+    start of each period turned into the per-period rate, staleness, dropped periods by reason and
+    the lagged and led index columns, all written here from README's "Methods and their sources"
+    (Sampling, Risk-free conversion by frequency, Excess returns, Lagged and led index returns);
+    compares them with OUTPUT_DIR/returns.csv to a relative 1e-12 and regresses on its own returns
+    (a part it cannot rebuild, such as a non-CSV wide table, is reported as NOT RECOMPUTED and
+    returns.csv is used for it; never silently);
+  - refits every peer's market-model regression with numpy's least squares and
+    scipy.stats.linregress, and recomputes Blume's shrinkage (with the case's beta.blume_weight),
+    Hamada unlevering, the beta of the operations, the median, relevering, the CAPM cost of equity
+    and the WACC from their textbook formulas.
+Every figure must agree with result.json to a relative 1e-9: both sides are double-precision
+evaluations of the same closed forms on the same numbers, so honest differences are rounding
+(about 1e-13); 1e-9 is the project's stated bar.
 Exits non-zero on any mismatch.
 """
+import calendar
 import csv
+import datetime as dt
+import hashlib
 import json
+import math
+import os
+import re
 import sys
+import tomllib
 from collections import defaultdict
 
 import numpy as np
 from scipy import stats
 
 TOLERANCE = 1e-9
+# Rebuilt returns against returns.csv: the same IEEE operations (p1 / p0 - 1, ln(p1 / p0),
+# (1 + y)^(1 / periods) - 1, ln(1 + y) / periods, a - rf) on the same doubles parsed from the same
+# decimal text give the same double, up to the last bits of a libm pow or log (far below 1e-12
+# relative); a wrong sample, period, yield date or convention moves a return by 1e-6 or more.
+RETURNS_TOLERANCE = 1e-12
 failures = []
 checks = 0
+not_recomputed = []
 
 
 def check(label, ours, reference, tolerance=TOLERANCE):
@@ -31,6 +57,472 @@ def check(label, ours, reference, tolerance=TOLERANCE):
     scale = max(abs(reference), 1e-300)
     if not (abs(ours - reference) <= tolerance * scale or abs(ours - reference) < 1e-15):
         failures.append(f"{label}: hurdle {ours!r} vs reference {reference!r}")
+
+
+def check_equal(label, ours, reference):
+    """Counts, dates, names and choices: exact."""
+    global checks
+    checks += 1
+    if ours != reference:
+        failures.append(f"{label}: hurdle {ours!r} vs reference {reference!r}")
+
+
+# --------------------------------------------------------------------------------------------
+# The case as written: case.toml read with tomllib, the recorded --set overrides applied here.
+
+# README "Case file reference": the default column of each table (None: no default, the key is
+# optional; a key absent from this table and from the case is required and stops the check).
+DEFAULTS = {
+    "market": {},
+    "beta": {"frequency": "monthly", "lookback": 60, "min_observations": 36, "method": "ols",
+             "adjustment": "none", "blume_weight": 0.67, "std_errors": "classical",
+             "newey_west_lags": None, "dimson_lags": 1, "dimson_leads": 0,
+             "vasicek_prior_mean": None, "vasicek_prior_variance": None, "weekday": "wednesday",
+             "returns": "simple", "max_stale_days": None, "window_start": None, "window_end": None,
+             "flag_observations_share": 0.8, "flag_r_squared_floor": 0.05,
+             "flag_stale_share": 0.1, "exclude_flags": [], "rolling_window": None,
+             "rolling_step": 1},
+    "leverage": {"formula": "hamada", "aggregation": "median", "trim_fraction": 0.1,
+                 "operations_beta": False, "debt_measure": "gross", "debt_beta_source": "none",
+                 "debt_beta": 0.0},
+    "target": {"debt_to_equity": None, "debt_to_capital": None, "source": "explicit",
+               "subject_equity_value": None, "subject_debt": None, "subject_cash": 0.0},
+    "debt": {"source": "given", "cost_pre_tax": None},
+    "premiums": {"size": 0.0, "country": 0.0, "company_specific": 0.0, "country_method": "flat",
+                 "country_exposure": 1.0},
+    "preferred": {"weight": 0.0, "cost": None},
+    "leases": {"weight": 0.0, "cost_pre_tax": None},
+}
+# README "[[peer]]".
+PEER_DEFAULTS = {"cash": 0.0, "debt_beta": None, "cost_of_debt": None, "exclude": None,
+                 "date_column": "date", "price_column": "price"}
+CASE = {}
+
+
+def setting(section, key):
+    """The case's value of section.key after the overrides, else README's default."""
+    table = CASE.get(section, {})
+    if key in table:
+        return table[key]
+    if key in DEFAULTS[section]:
+        return DEFAULTS[section][key]
+    raise KeyError(f"{section}.{key} is required (README) and the case does not give it")
+
+
+def peer_spec(name):
+    """The case's [[peer]] table of that name, with README's defaults."""
+    spec = next(p for p in CASE["peer"] if p["name"] == name)
+    return {**PEER_DEFAULTS, **spec}
+
+
+def sha256(path):
+    with open(path, "rb") as f:
+        return hashlib.sha256(f.read()).hexdigest()
+
+
+def find_case(out_dir, result, given):
+    """The case file the receipt names, looked for as `hurdle verify` looks for it (README,
+    Commands: --case, then CASE_DIR/output/result.json -> CASE_DIR/case.toml, then the recorded
+    path, absolute or relative to the current folder); only the one with the recorded SHA-256
+    counts, so the figures below are those of the case hurdle ran."""
+    recorded = result["case"]["file"]
+    candidates = [given] if given else []
+    candidates += [os.path.join(os.path.dirname(os.path.abspath(out_dir)), "case.toml"), recorded]
+    seen = []
+    for path in candidates:
+        if path and os.path.isfile(path):
+            if sha256(path) == result["case"]["sha256"]:
+                return path
+            seen.append(f"{path} (another SHA-256)")
+    raise SystemExit(f"MISMATCH case file: none with the recorded SHA-256 among {candidates}; "
+                     f"seen {seen}; give it with --case\nreference: 0 passed, 1 failed")
+
+
+def toml_value(text):
+    """A --set value is read as TOML (a number, true, a date, a quoted string, a list); anything
+    else is taken as text (README, Commands, `--set`)."""
+    try:
+        return tomllib.loads(f"value = {text}")["value"]
+    except tomllib.TOMLDecodeError:
+        return text
+
+
+def apply_overrides(case, overrides):
+    """README, Commands, `--set`: the dotted path of the case key; inside [[peer]] the second
+    segment picks the peer by 0-based position or by name."""
+    for assignment in overrides:
+        key, text = assignment.split("=", 1)
+        table, path = case, key
+        if key.startswith("peer."):
+            rest = key[len("peer."):]
+            head, _, tail = rest.partition(".")
+            if head.isdigit():
+                table, path = case["peer"][int(head)], tail
+            else:
+                names = [p for p in case["peer"] if rest.startswith(p["name"] + ".")]
+                if not names:
+                    names = [p for p in case["peer"] if rest.lower().startswith(p["name"].lower() + ".")]
+                assert names, f"override {assignment!r} names no peer of the case"
+                peer = max(names, key=lambda p: len(p["name"]))
+                table, path = peer, rest[len(peer["name"]) + 1:]
+        *parents, last = path.split(".")
+        for p in parents:
+            table = table.setdefault(p, {})
+        table[last] = toml_value(text)
+
+
+def load_case(out_dir, result, given):
+    path = find_case(out_dir, result, given)
+    with open(path, "rb") as f:
+        case = tomllib.load(f)
+    apply_overrides(case, result["case"]["overrides"])
+    CASE.clear()
+    CASE.update(case)
+    return path
+
+
+def compare_with_echo(result):
+    """Extra check: every setting used here against hurdle's echo of it (result["settings"])."""
+    echo = result["settings"]
+    for section, keys in DEFAULTS.items():
+        for key in keys:
+            if section == "beta" and key in ("lookback", "window_start", "window_end", "rolling_window"):
+                continue  # resolved into result["sampling"] and checked there
+            ours = setting(section, key)
+            theirs = echo.get(section, {}).get(key)
+            if isinstance(ours, (dt.date, dt.datetime)):
+                ours = ours.isoformat()
+            if isinstance(ours, (int, float)) and not isinstance(ours, bool) and theirs is not None:
+                check(f"settings echo {section}.{key}", theirs, ours)
+            else:
+                check_equal(f"settings echo {section}.{key}", theirs, ours)
+    for key in ("risk_free_rate", "equity_risk_premium"):
+        check(f"settings echo market.{key}", echo["market"][key], setting("market", key))
+    names = [p["name"] for p in CASE["peer"]]
+    check_equal("peers, in the case's order", [p["name"] for p in result["peers"]], names)
+    for name in names:
+        spec, listed = peer_spec(name), next(p for p in echo["peer"] if p["name"] == name)
+        for key in ("equity_value", "debt", "cash", "tax_rate", "debt_beta", "cost_of_debt", "exclude"):
+            if spec[key] is None or isinstance(spec[key], str):
+                check_equal(f"settings echo {name} {key}", listed.get(key), spec[key])
+            else:
+                check(f"settings echo {name} {key}", listed[key], spec[key])
+
+
+def spread_table(path):
+    """README "[debt]", spread tables: CSV with a header row (`#` lines are comments) or TOML with
+    one [[row]] table per row; keys rating, spread, and min_coverage in a coverage table."""
+    if path.endswith(".toml"):
+        with open(path, "rb") as f:
+            return tomllib.load(f)["row"]
+    with open(path, newline="") as f:
+        lines = [line for line in f if not line.lstrip().startswith("#")]
+    rows = []
+    for r in csv.DictReader(lines):
+        row = {"rating": r["rating"].strip(), "spread": float(r["spread"])}
+        if "min_coverage" in r:
+            row["min_coverage"] = float(r["min_coverage"])
+        rows.append(row)
+    return rows
+
+
+def case_cost_of_debt(folder):
+    """README "[debt]": given; rf + the rating's spread; or rf + the spread of the row the
+    coverage ebit / interest_expense falls in (from its min_coverage, inclusive, to the next's)."""
+    source, rf = setting("debt", "source"), setting("market", "risk_free_rate")
+    if source == "given":
+        return setting("debt", "cost_pre_tax")
+    if source == "rating":
+        rows = spread_table(os.path.join(folder, setting("debt", "rating_table")))
+        return rf + next(r["spread"] for r in rows if r["rating"] == setting("debt", "rating"))
+    assert source == "coverage", source
+    rows = spread_table(os.path.join(folder, setting("debt", "coverage_table")))
+    coverage = setting("debt", "ebit") / setting("debt", "interest_expense")
+    row = [r for r in rows if r["min_coverage"] <= coverage][-1]
+    return rf + row["spread"]
+
+
+# --------------------------------------------------------------------------------------------
+# The returns, rebuilt from the case's files by README's rules ("Methods and their sources").
+
+WEEKDAYS = {"monday": 0, "tuesday": 1, "wednesday": 2, "thursday": 3, "friday": 4}
+# README "Risk-free conversion by frequency": periods per year.
+PERIODS_PER_YEAR = {"daily": 252, "weekly": 52, "monthly": 12, "quarterly": 4}
+
+
+class NotRecomputed(Exception):
+    pass
+
+
+def as_date(value):
+    return value if isinstance(value, dt.date) else dt.date.fromisoformat(str(value))
+
+
+def is_sample_point(day, frequency, weekday):
+    """README "Sampling (monthly)" and "Sampling (other frequencies)": month-ends; weekdays
+    Monday to Friday (daily); the chosen weekday (weekly); March 31, June 30, September 30 and
+    December 31 (quarterly)."""
+    month_end = (day + dt.timedelta(days=1)).day == 1
+    if frequency == "monthly":
+        return month_end
+    if frequency == "quarterly":
+        return month_end and day.month in (3, 6, 9, 12)
+    if frequency == "weekly":
+        return day.weekday() == weekday
+    if frequency == "daily":
+        return day.weekday() < 5
+    raise NotRecomputed(f"frequency {frequency!r} has no sampling rule here")
+
+
+def point_on_or_before(day, frequency, weekday):
+    while not is_sample_point(day, frequency, weekday):
+        day -= dt.timedelta(days=1)
+    return day
+
+
+def point_on_or_after(day, frequency, weekday):
+    while not is_sample_point(day, frequency, weekday):
+        day += dt.timedelta(days=1)
+    return day
+
+
+def span_start(end, span):
+    """README "Sampling (other frequencies)": a span starts that much earlier by the calendar;
+    years and months keep the day of the month, clamped to the month's end; weeks are 7 days
+    (days: calendar days)."""
+    match = re.fullmatch(r"(\d+)([ymwd])", span.strip())
+    if not match:
+        raise NotRecomputed(f"beta.lookback {span!r} is not a span this check reads")
+    count, unit = int(match.group(1)), match.group(2)
+    if unit in "ym":
+        months = end.year * 12 + end.month - 1 - (count * 12 if unit == "y" else count)
+        year, month = divmod(months, 12)
+        month += 1
+        return dt.date(year, month, min(end.day, calendar.monthrange(year, month)[1]))
+    return end - dt.timedelta(days=count * (7 if unit == "w" else 1))
+
+
+def window_grid(frequency, weekday, lags):
+    """The sample points: `lags` points before the window (README "Lagged and led index
+    returns": the grid starts that many periods early), then the window's points, the last on or
+    before window_end (default the valuation date), the first `lookback` periods earlier, on or
+    after the span's start, or on or after window_start (which replaces lookback); and the point
+    before the first, which opens the first sample's period."""
+    end_date = as_date(setting("beta", "window_end") or CASE["case"]["valuation_date"])
+    end = point_on_or_before(end_date, frequency, weekday)
+    start, lookback = setting("beta", "window_start"), setting("beta", "lookback")
+    back = lambda d: point_on_or_before(d - dt.timedelta(days=1), frequency, weekday)
+    if start is None and isinstance(lookback, int):
+        points = [end]
+        for _ in range(lookback):
+            points.insert(0, back(points[0]))
+    else:
+        first = as_date(start) if start is not None else span_start(end, str(lookback))
+        points, day = [], point_on_or_after(first, frequency, weekday)
+        while day <= end:
+            points.append(day)
+            day = point_on_or_after(day + dt.timedelta(days=1), frequency, weekday)
+    window_periods = len(points) - 1
+    for _ in range(lags):
+        points.insert(0, back(points[0]))
+    return back(points[0]), points, window_periods
+
+
+def read_series(folder, table, value_default, role):
+    """A series of the case (README "Price files"): a CSV of its own, dates ascending, or a
+    column of a CSV wide table under [sources.NAME] (README "Wide price tables": ISO or 1900
+    serial dates, either order, an empty cell a missing price). Returns [(date, value)]."""
+    if "source" in table:
+        source = CASE["sources"][table["source"]]
+        path = os.path.join(folder, source["file"])
+        if not path.lower().endswith((".csv", ".txt")):
+            raise NotRecomputed(f"{role} is read from the wide table {source['file']}, "
+                                f"which is not CSV (this check reads CSV tables only)")
+        with open(path, newline="", encoding="utf-8") as f:
+            reader = csv.reader(f)
+            header = [h for h in next(reader)]
+            date_at = header.index(source["date_column"]) if "date_column" in source else 0
+            value_at = header.index(table["column"])
+            rows = []
+            for cells in reader:
+                if not any(c.strip() for c in cells) or not cells[value_at].strip():
+                    continue
+                text = cells[date_at].strip()
+                if re.fullmatch(r"\d+(\.\d*)?", text):
+                    day = dt.date(1899, 12, 30) + dt.timedelta(days=int(float(text)))
+                else:
+                    day = dt.date.fromisoformat(text[:10])
+                rows.append((day, float(cells[value_at])))
+        return sorted(rows), path
+    path = os.path.join(folder, table[value_default[0]])
+    date_column = table.get("date_column", "date")
+    value_column = table.get(value_default[1], value_default[2])
+    with open(path, newline="", encoding="utf-8") as f:
+        rows = [(dt.date.fromisoformat(r[date_column].strip()), float(r[value_column]))
+                for r in csv.DictReader(f)]
+    return rows, path
+
+
+def samples(series, opening, points, max_stale):
+    """README "Sampling": each point's sample is the last value dated after the previous point
+    and on or before this one, None when there is none (never carried forward); with
+    max_stale_days, a sample dated more than that many days before its point is 'stale'."""
+    out, i = [], 0
+    while i < len(series) and series[i][0] <= opening:
+        i += 1
+    for point in points:
+        last = None
+        while i < len(series) and series[i][0] <= point:
+            last = series[i]
+            i += 1
+        if last is None:
+            out.append(None)
+        elif max_stale is not None and (point - last[0]).days > max_stale:
+            out.append("stale")
+        else:
+            out.append(last[1])
+    return out
+
+
+def period_returns(sampled, kind):
+    """Return k (k = 1..) from samples k-1 and k: p(t)/p(t-1) - 1 or ln(p(t)/p(t-1)) (README
+    "[beta]", returns); 'missing' without both prices, 'stale' when either sample is stale (the
+    returns on both sides of a stale sample; README "Sampling (other frequencies)")."""
+    out = [None]
+    for a, b in zip(sampled[:-1], sampled[1:]):
+        if a is None or b is None:
+            out.append("missing")
+        elif a == "stale" or b == "stale":
+            out.append("stale")
+        else:
+            out.append(b / a - 1.0 if kind == "simple" else math.log(b / a))
+    return out
+
+
+def risk_free_rates(sampled, kind, periods):
+    """README "Excess returns" and "Risk-free conversion by frequency": period k's rate is the
+    yield sampled at the period's start (point k-1), (1 + y)^(1/periods) - 1 for simple returns,
+    ln(1 + y)/periods for log returns."""
+    out = [None]
+    for y in sampled[:-1]:
+        if y is None or y == "stale":
+            out.append("missing")
+        else:
+            out.append((1.0 + y) ** (1.0 / periods) - 1.0 if kind == "simple" else math.log(1.0 + y) / periods)
+    return out
+
+
+def rebuild_returns(case_path, result):
+    """Every row returns.csv should hold, and each peer's window and dropped periods, from the
+    case's own files. Raises NotRecomputed for a part this check cannot rebuild."""
+    folder = os.path.dirname(os.path.abspath(case_path))
+    frequency, kind = setting("beta", "frequency"), setting("beta", "returns")
+    if frequency not in PERIODS_PER_YEAR:
+        raise NotRecomputed(f"frequency {frequency!r}")
+    if kind not in ("simple", "log"):
+        raise NotRecomputed(f"return type {kind!r}")
+    weekday = WEEKDAYS[setting("beta", "weekday")]
+    method = setting("beta", "method")
+    lags, leads = {"ols": (0, 0), "scholes-williams": (1, 1),
+                   "dimson": (setting("beta", "dimson_lags"), setting("beta", "dimson_leads"))}[method]
+    max_stale = setting("beta", "max_stale_days")
+    opening, points, window_periods = window_grid(frequency, weekday, lags)
+    sampling = result["sampling"]
+    check_equal("sampling frequency", sampling["frequency"], frequency)
+    check_equal("sampling return type", sampling["return_type"], kind)
+    check_equal("sampling window start (first sample point)", sampling["window_start"], points[lags].isoformat())
+    check_equal("sampling window end (last sample point)", sampling["window_end"], points[-1].isoformat())
+    check_equal("sampling lookback (periods)", sampling["lookback"], window_periods)
+    check("periods per year", sampling["periods_per_year"], PERIODS_PER_YEAR[frequency])
+    hashes = {f["role"]: f["sha256"] for f in result["files"]}
+
+    def series(role, table, value_default):
+        rows, path = read_series(folder, table, value_default, role)
+        check_equal(f"{role} file SHA-256 (the file read here is the one hurdle read)", hashes.get(role), sha256(path))
+        return samples(rows, opening, points, max_stale)
+
+    index = series("index", CASE["market"]["index"], ("prices", "price_column", "price"))
+    market = period_returns(index, kind)
+    excess = "risk_free_series" in CASE["market"]
+    check_equal("excess returns (a risk-free series is given)", sampling["excess_returns"], excess)
+    if excess:
+        # The yield's sample is its own: a stale yield is not a rule README states, so a yield
+        # sample is never dropped for age (max_stale_days applies to prices).
+        values, path = read_series(folder, CASE["market"]["risk_free_series"], ("yields", "yield_column", "yield"), "risk_free")
+        check_equal("risk_free file SHA-256 (the file read here is the one hurdle read)", hashes.get("risk_free"), sha256(path))
+        yields = samples(values, opening, points, None)
+        rf = risk_free_rates(yields, kind, PERIODS_PER_YEAR[frequency])
+    else:
+        rf = [None] + [0.0] * (len(points) - 1)
+    # The index's (excess) return of each grid period, None when it or its rate is missing.
+    market_excess = [None] + [m - r if isinstance(m, float) and isinstance(r, float) else None
+                              for m, r in zip(market[1:], rf[1:])]
+    last = len(points) - 1
+    rows, drops = [], {}
+    for p in CASE["peer"]:
+        name = p["name"]
+        asset = period_returns(series(f"peer:{name}", {**PEER_DEFAULTS, **p}, ("prices", "price_column", "price")), kind)
+        dropped = defaultdict(int)
+        for k in range(lags + 1, last + 1):
+            reasons = set()
+            if asset[k] == "missing":
+                reasons.add("asset_missing")
+            if asset[k] == "stale":
+                reasons.add("asset_stale")
+            if market[k] == "missing":
+                reasons.add("market_missing")
+            if market[k] == "stale":
+                reasons.add("market_stale")
+            if rf[k] == "missing":
+                reasons.add("risk_free_missing")
+            shifted = {-l: k - l for l in range(1, lags + 1)} | {l: k + l for l in range(1, leads + 1)}
+            # A lead past the window end is never taken (README): the last `leads` periods drop.
+            if any(j > last or market_excess[j] is None for j in shifted.values()):
+                reasons.add("shifted_market_missing")
+            for reason in reasons:
+                dropped[reason] += 1
+            if reasons:
+                dropped["total"] += 1
+                continue
+            row = {"peer": name, "period_end": points[k].isoformat(),
+                   "asset_return": asset[k], "market_return": market[k]}
+            if excess:
+                row["risk_free"] = rf[k]
+            for offset, j in sorted(shifted.items()):
+                column = f"market_lag_{-offset}" if offset < 0 else f"market_lead_{offset}"
+                row[column] = market_excess[j]
+            rows.append(row)
+        drops[name] = dropped
+    return rows, drops, window_periods
+
+
+def compare_returns(out_dir, rebuilt, drops, window_periods, result):
+    """returns.csv and the peers' window counts against the rebuilt ones."""
+    with open(f"{out_dir}/returns.csv", newline="") as f:
+        reader = csv.DictReader(f)
+        written = list(reader)
+        header = reader.fieldnames
+    expected_header = list(rebuilt[0].keys()) if rebuilt else header
+    check_equal("returns.csv columns", header, expected_header)
+    check_equal("returns.csv rows", len(written), len(rebuilt))
+    for got, want in zip(written, rebuilt):
+        label = f"returns.csv {want['peer']} {want['period_end']}"
+        check_equal(f"{label} (peer, period)", (got.get("peer"), got.get("period_end")), (want["peer"], want["period_end"]))
+        for key, value in want.items():
+            if key in ("peer", "period_end"):
+                continue
+            global checks
+            checks += 1
+            theirs = float(got[key]) if got.get(key) not in (None, "") else None
+            if theirs is None or not (theirs == value or abs(theirs - value) <= RETURNS_TOLERANCE * abs(value)):
+                failures.append(f"{label} {key}: hurdle {got.get(key)!r} vs rebuilt {value!r}")
+    for peer in result["peers"]:
+        name = peer["name"]
+        check_equal(f"{name} periods in the window", peer["periods_in_window"], window_periods)
+        for reason, count in peer["periods_dropped"].items():
+            check_equal(f"{name} periods dropped ({reason})", count, drops[name].get(reason, 0))
+        check(f"{name} stale share (periods with a stale peer price / window)", peer["stale_share"],
+              drops[name].get("asset_stale", 0) / window_periods)
 
 
 def tax_factor(formula, t, kd):
