@@ -99,9 +99,10 @@ fn summary(v: &Valuation) -> String {
             percent(v.cost.cost_of_debt_after_tax, 2)
         ),
         format!(
-            "  weights E {} / D {} | WACC {} (point estimate){}",
+            "  weights E {} / D {}{} | WACC {} (point estimate){}",
             percent(v.cost.weights.equity, 1),
             percent(v.cost.weights.debt, 1),
+            other_weights(&v.cost.weights),
             percent(v.cost.wacc, 2),
             match &v.uncertainty {
                 Some(u) => format!(
@@ -125,4 +126,17 @@ fn summary(v: &Valuation) -> String {
     }
     lines.push(String::new());
     lines.join("\n")
+}
+
+/// The preferred equity and lease weights after E and D when the case has them, so that the
+/// weights shown add up to 100%.
+fn other_weights(weights: &hurdle::capital::chain::Weights) -> String {
+    let mut text = String::new();
+    if weights.preferred > 0.0 {
+        text.push_str(&format!(" / preferred {}", percent(weights.preferred, 1)));
+    }
+    if weights.leases > 0.0 {
+        text.push_str(&format!(" / leases {}", percent(weights.leases, 1)));
+    }
+    text
 }

@@ -304,7 +304,7 @@ fn caption(valuation: &Valuation) -> String {
         },
         fixed(summary.unlevered, 3),
         fixed(summary.relevered, 3),
-        fixed(valuation.cost.target.debt_to_equity, 2),
+        fixed(valuation.cost.target.debt_to_equity, 3),
         if excluded > 0 {
             "Peers below the divider are estimated and shown but left out of the aggregate, for \
              the reason given. "

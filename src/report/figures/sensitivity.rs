@@ -28,14 +28,14 @@ fn value_labels(axis: &Axis) -> Vec<String> {
         .iter()
         .any(|k| axis.key.contains(k));
     let scale = if ratio { 1.0 } else { 100.0 };
-    let decimals = (0..4)
+    let decimals = (0..=6)
         .find(|&d| {
             let p = 10f64.powi(d) * scale;
             axis.values
                 .iter()
                 .all(|v| ((v * p).round() - v * p).abs() < 1e-6)
         })
-        .unwrap_or(4) as usize;
+        .unwrap_or(6) as usize;
     axis.values
         .iter()
         .map(|&v| {

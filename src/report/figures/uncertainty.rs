@@ -27,6 +27,17 @@ fn bin_width(width: f64) -> String {
     }
 }
 
+/// Decimals of a bin edge in percent: the fewest, at least two, that write every edge exactly
+/// (bins 0.025% wide need three), so adjacent bins read alike wide.
+fn edge_decimals(width: f64) -> usize {
+    (2..=6)
+        .find(|&d| {
+            let scaled = width * 100.0 * 10f64.powi(d as i32);
+            (scaled - scaled.round()).abs() < 1e-6
+        })
+        .unwrap_or(6)
+}
+
 const WIDTH: u32 = 720;
 const PLOT: u32 = 330;
 
@@ -206,6 +217,7 @@ fn caption(u: &Uncertainty) -> String {
 
 fn data_summary(u: &Uncertainty) -> String {
     let h = &u.histogram;
+    let decimals = edge_decimals(h.bin_width);
     let bins: Vec<String> = h
         .counts
         .iter()
@@ -214,8 +226,8 @@ fn data_summary(u: &Uncertainty) -> String {
         .map(|(i, c)| {
             format!(
                 "{} to {}: {c}",
-                percent(h.edges[i], 2),
-                percent(h.edges[i + 1], 2)
+                percent(h.edges[i], decimals),
+                percent(h.edges[i + 1], decimals)
             )
         })
         .collect();
