@@ -7,15 +7,17 @@ Reads OUTPUT_DIR/result.json (written by `hurdle run`) and the case file it name
 `hurdle verify` finds it, or given with --case, and accepted only with the SHA-256 the receipt
 records), applies the recorded --set overrides itself, and takes every setting, rate and peer
 figure from that case with README's defaults, not from hurdle's echo under result["settings"]
-(the echo is compared as an extra check). Then:
+(the echo is compared as an extra check); the pre-tax cost of debt is the case's, or rf plus the
+spread its rating or coverage table gives. Then:
   - rebuilds every return from the case's own price and yield files: the window's sample points,
     each sample as the last price of its period, simple or log returns, the risk-free yield at the
     start of each period turned into the per-period rate, staleness, dropped periods by reason and
     the lagged and led index columns, all written here from README's "Methods and their sources"
     (Sampling, Risk-free conversion by frequency, Excess returns, Lagged and led index returns);
-    compares them with OUTPUT_DIR/returns.csv to a relative 1e-12 and regresses on its own returns
-    (a part it cannot rebuild, such as a non-CSV wide table, is reported as NOT RECOMPUTED and
-    returns.csv is used for it; never silently);
+    reads the files' SHA-256 against the receipt's; compares the returns with OUTPUT_DIR/returns.csv
+    to a relative 1e-12, and the window and dropped periods with result.json; and regresses on its
+    own returns (a part it cannot rebuild, a wide table in Parquet, .xls or .ods, is reported as
+    NOT RECOMPUTED and returns.csv is used for it: said in the output, never silent);
   - refits every peer's market-model regression with numpy's least squares and
     scipy.stats.linregress, and recomputes Blume's shrinkage (with the case's beta.blume_weight),
     Hamada unlevering, the beta of the operations, the median, relevering, the CAPM cost of equity
@@ -44,18 +46,24 @@ TOLERANCE = 1e-9
 # Rebuilt returns against returns.csv: the same IEEE operations (p1 / p0 - 1, ln(p1 / p0),
 # (1 + y)^(1 / periods) - 1, ln(1 + y) / periods, a - rf) on the same doubles parsed from the same
 # decimal text give the same double, up to the last bits of a libm pow or log (far below 1e-12
-# relative); a wrong sample, period, yield date or convention moves a return by 1e-6 or more.
+# relative; measured: bit-identical on every configuration tried); a wrong sample, period, yield
+# date or convention moves a return by 1e-6 or more.
 RETURNS_TOLERANCE = 1e-12
 failures = []
 checks = 0
 not_recomputed = []
 
 
-def check(label, ours, reference, tolerance=TOLERANCE):
+def check(label, ours, reference, tolerance=TOLERANCE, floor=1e-15):
+    """Relative `tolerance`, with an absolute `floor` for figures at or near zero (1e-15: the
+    rounding of sums of terms of order one). P-values pass floor=0: they can be 1e-20 and
+    smaller, where any floor would pass everything; scipy and statrs agree on them to about
+    1e-13 relative (a tail probability's relative error is about |t| times the t-statistic's
+    absolute rounding)."""
     global checks
     checks += 1
     scale = max(abs(reference), 1e-300)
-    if not (abs(ours - reference) <= tolerance * scale or abs(ours - reference) < 1e-15):
+    if not (abs(ours - reference) <= tolerance * scale or abs(ours - reference) < floor):
         failures.append(f"{label}: hurdle {ours!r} vs reference {reference!r}")
 
 
@@ -81,7 +89,7 @@ DEFAULTS = {
              "returns": "simple", "max_stale_days": None, "window_start": None, "window_end": None,
              "flag_observations_share": 0.8, "flag_r_squared_floor": 0.05,
              "flag_stale_share": 0.1, "exclude_flags": [], "rolling_window": None,
-             "rolling_step": 1},
+             "rolling_step": 1, "rolling_min_observations": None},
     "leverage": {"formula": "hamada", "aggregation": "median", "trim_fraction": 0.1,
                  "operations_beta": False, "debt_measure": "gross", "debt_beta_source": "none",
                  "debt_beta": 0.0},
@@ -134,8 +142,10 @@ def find_case(out_dir, result, given):
             if sha256(path) == result["case"]["sha256"]:
                 return path
             seen.append(f"{path} (another SHA-256)")
-    raise SystemExit(f"MISMATCH case file: none with the recorded SHA-256 among {candidates}; "
-                     f"seen {seen}; give it with --case\nreference: 0 passed, 1 failed")
+    print(f"MISMATCH case file: none with the recorded SHA-256 among {candidates} (seen: {seen}); "
+          f"give it with --case")
+    print("reference: 0 passed, 1 failed")
+    sys.exit(1)
 
 
 def toml_value(text):
@@ -328,32 +338,64 @@ def window_grid(frequency, weekday, lags):
     return back(points[0]), points, window_periods
 
 
+TABLES = {}
+
+
+def wide_table(path, source, role):
+    """The cells of a wide table (README "Wide price tables"): a CSV file, or one sheet of an
+    .xlsx/.xlsm workbook read with openpyxl (the values the workbook saved); the header is the
+    first row with anything in it. Other formats are not read here. Read once per table."""
+    if path not in TABLES:
+        TABLES[path] = read_wide_table(path, source, role)
+    return TABLES[path]
+
+
+def read_wide_table(path, source, role):
+    lower = path.lower()
+    if lower.endswith((".csv", ".txt")):
+        with open(path, newline="", encoding="utf-8") as f:
+            rows, epoch = [list(r) for r in csv.reader(f)], dt.date(1899, 12, 30)
+    elif lower.endswith((".xlsx", ".xlsm")):
+        import openpyxl
+        book = openpyxl.load_workbook(path, read_only=True, data_only=True)
+        sheet = book[source["sheet"]] if "sheet" in source else book.worksheets[0]
+        rows = [list(r) for r in sheet.iter_rows(values_only=True)]
+        # Serial numbers count from the workbook's own date system (1900 or 1904).
+        epoch = dt.date(1899, 12, 30) if book.epoch.year == 1899 else dt.date(1904, 1, 1)
+    else:
+        raise NotRecomputed(f"{role} is read from the wide table {source['file']}, a format this check "
+                            f"does not read (CSV, .xlsx and .xlsm only)")
+    blank = lambda cell: cell is None or (isinstance(cell, str) and not cell.strip())
+    while rows and all(blank(c) for c in rows[0]):
+        rows.pop(0)
+    return rows, epoch, blank
+
+
 def read_series(folder, table, value_default, role):
     """A series of the case (README "Price files"): a CSV of its own, dates ascending, or a
-    column of a CSV wide table under [sources.NAME] (README "Wide price tables": ISO or 1900
-    serial dates, either order, an empty cell a missing price). Returns [(date, value)]."""
+    column of a wide table under [sources.NAME] (README "Wide price tables": date cells, serial
+    numbers or ISO text, either order; an empty cell a missing price; numbers stored as text).
+    Returns ([(date, value)] in date order, the file's path)."""
     if "source" in table:
         source = CASE["sources"][table["source"]]
         path = os.path.join(folder, source["file"])
-        if not path.lower().endswith((".csv", ".txt")):
-            raise NotRecomputed(f"{role} is read from the wide table {source['file']}, "
-                                f"which is not CSV (this check reads CSV tables only)")
-        with open(path, newline="", encoding="utf-8") as f:
-            reader = csv.reader(f)
-            header = [h for h in next(reader)]
-            date_at = header.index(source["date_column"]) if "date_column" in source else 0
-            value_at = header.index(table["column"])
-            rows = []
-            for cells in reader:
-                if not any(c.strip() for c in cells) or not cells[value_at].strip():
-                    continue
-                text = cells[date_at].strip()
-                if re.fullmatch(r"\d+(\.\d*)?", text):
-                    day = dt.date(1899, 12, 30) + dt.timedelta(days=int(float(text)))
-                else:
-                    day = dt.date.fromisoformat(text[:10])
-                rows.append((day, float(cells[value_at])))
-        return sorted(rows), path
+        rows, epoch, blank = wide_table(path, source, role)
+        header = [str(h).strip() if h is not None else "" for h in rows[0]]
+        date_at = header.index(source["date_column"]) if "date_column" in source else 0
+        value_at = header.index(table["column"])
+        series = []
+        for cells in rows[1:]:
+            if all(blank(c) for c in cells) or value_at >= len(cells) or blank(cells[value_at]):
+                continue
+            day = cells[date_at]
+            if isinstance(day, dt.datetime):
+                day = day.date()
+            elif isinstance(day, (int, float)) or re.fullmatch(r"\s*\d+(\.\d*)?\s*", str(day)):
+                day = epoch + dt.timedelta(days=int(float(day)))  # a time of day is dropped
+            elif not isinstance(day, dt.date):
+                day = dt.date.fromisoformat(str(day).strip()[:10])
+            series.append((day, float(cells[value_at])))
+        return sorted(series), path
     path = os.path.join(folder, table[value_default[0]])
     date_column = table.get("date_column", "date")
     value_column = table.get(value_default[1], value_default[2])
@@ -386,16 +428,23 @@ def samples(series, opening, points, max_stale):
 
 def period_returns(sampled, kind):
     """Return k (k = 1..) from samples k-1 and k: p(t)/p(t-1) - 1 or ln(p(t)/p(t-1)) (README
-    "[beta]", returns); 'missing' without both prices, 'stale' when either sample is stale (the
-    returns on both sides of a stale sample; README "Sampling (other frequencies)")."""
-    out = [None]
+    "[beta]", returns), with the reasons it is missing: {"missing"} without a usable sample at
+    either end, plus "stale" when either end's sample is stale. README "Sampling" says a stale
+    sample "is dropped" and "the returns on both sides of it are counted as stale": a dropped
+    sample leaves its periods without a sample at that end ("a return needs samples at both of its
+    month-ends"), so such a period counts as a missing price and as stale (README, universe
+    outputs: "a period can have several" reasons; hurdle's result.json counts it so too)."""
+    out = [(None, set())]
     for a, b in zip(sampled[:-1], sampled[1:]):
-        if a is None or b is None:
-            out.append("missing")
-        elif a == "stale" or b == "stale":
-            out.append("stale")
+        reasons = set()
+        if not isinstance(a, float) or not isinstance(b, float):
+            reasons.add("missing")
+        if a == "stale" or b == "stale":
+            reasons.add("stale")
+        if reasons:
+            out.append((None, reasons))
         else:
-            out.append(b / a - 1.0 if kind == "simple" else math.log(b / a))
+            out.append((b / a - 1.0 if kind == "simple" else math.log(b / a), reasons))
     return out
 
 
@@ -455,8 +504,8 @@ def rebuild_returns(case_path, result):
     else:
         rf = [None] + [0.0] * (len(points) - 1)
     # The index's (excess) return of each grid period, None when it or its rate is missing.
-    market_excess = [None] + [m - r if isinstance(m, float) and isinstance(r, float) else None
-                              for m, r in zip(market[1:], rf[1:])]
+    market_excess = [None] + [m - r if m is not None and isinstance(r, float) else None
+                              for (m, _), r in zip(market[1:], rf[1:])]
     last = len(points) - 1
     rows, drops = [], {}
     for p in CASE["peer"]:
@@ -464,15 +513,7 @@ def rebuild_returns(case_path, result):
         asset = period_returns(series(f"peer:{name}", {**PEER_DEFAULTS, **p}, ("prices", "price_column", "price")), kind)
         dropped = defaultdict(int)
         for k in range(lags + 1, last + 1):
-            reasons = set()
-            if asset[k] == "missing":
-                reasons.add("asset_missing")
-            if asset[k] == "stale":
-                reasons.add("asset_stale")
-            if market[k] == "missing":
-                reasons.add("market_missing")
-            if market[k] == "stale":
-                reasons.add("market_stale")
+            reasons = {f"asset_{r}" for r in asset[k][1]} | {f"market_{r}" for r in market[k][1]}
             if rf[k] == "missing":
                 reasons.add("risk_free_missing")
             shifted = {-l: k - l for l in range(1, lags + 1)} | {l: k + l for l in range(1, leads + 1)}
@@ -485,7 +526,7 @@ def rebuild_returns(case_path, result):
                 dropped["total"] += 1
                 continue
             row = {"peer": name, "period_end": points[k].isoformat(),
-                   "asset_return": asset[k], "market_return": market[k]}
+                   "asset_return": asset[k][0], "market_return": market[k][0]}
             if excess:
                 row["risk_free"] = rf[k]
             for offset, j in sorted(shifted.items()):
@@ -493,17 +534,20 @@ def rebuild_returns(case_path, result):
                 row[column] = market_excess[j]
             rows.append(row)
         drops[name] = dropped
-    return rows, drops, window_periods
+    grid = [points[k].isoformat() for k in range(lags + 1, last + 1)]
+    return rows, drops, window_periods, grid
 
 
 def compare_returns(out_dir, rebuilt, drops, window_periods, result):
     """returns.csv and the peers' window counts against the rebuilt ones."""
+    global checks
     with open(f"{out_dir}/returns.csv", newline="") as f:
         reader = csv.DictReader(f)
         written = list(reader)
         header = reader.fieldnames
     expected_header = list(rebuilt[0].keys()) if rebuilt else header
-    check_equal("returns.csv columns", header, expected_header)
+    # The columns as a set: README names them but not the order of the lag and lead columns.
+    check_equal("returns.csv columns", sorted(header), sorted(expected_header))
     check_equal("returns.csv rows", len(written), len(rebuilt))
     for got, want in zip(written, rebuilt):
         label = f"returns.csv {want['peer']} {want['period_end']}"
@@ -511,7 +555,6 @@ def compare_returns(out_dir, rebuilt, drops, window_periods, result):
         for key, value in want.items():
             if key in ("peer", "period_end"):
                 continue
-            global checks
             checks += 1
             theirs = float(got[key]) if got.get(key) not in (None, "") else None
             if theirs is None or not (theirs == value or abs(theirs - value) <= RETURNS_TOLERANCE * abs(value)):
@@ -519,8 +562,10 @@ def compare_returns(out_dir, rebuilt, drops, window_periods, result):
     for peer in result["peers"]:
         name = peer["name"]
         check_equal(f"{name} periods in the window", peer["periods_in_window"], window_periods)
-        for reason, count in peer["periods_dropped"].items():
-            check_equal(f"{name} periods dropped ({reason})", count, drops[name].get(reason, 0))
+        # README, result.json schema: periods_dropped by reason.
+        for reason in ("total", "asset_missing", "market_missing", "risk_free_missing", "asset_stale",
+                       "market_stale", "shifted_market_missing"):
+            check_equal(f"{name} periods dropped ({reason})", peer["periods_dropped"].get(reason), drops[name].get(reason, 0))
         check(f"{name} stale share (periods with a stale peer price / window)", peer["stale_share"],
               drops[name].get("asset_stale", 0) / window_periods)
 
@@ -583,9 +628,9 @@ def reference_beta(method, kind, lags, asset, market, shifted):
                 alpha_se=np.sqrt(cov[0, 0]), cov_ab=cov[0, 1], df=n - 4, slopes=slopes, rho=rho)
 
 
-def newey_west_lags(settings, n):
+def newey_west_lags(n):
     """The case's lags, else Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9))."""
-    return settings.get("newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
+    return setting("beta", "newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
 
 
 def check_fitted_line(name, peer, market):
@@ -611,7 +656,7 @@ def check_inference(name, peer, beta, se, alpha, alpha_se, df):
     check(f"{name} beta", peer["beta"], beta)
     check(f"{name} beta SE", peer["beta_std_error"], se)
     check(f"{name} beta t", peer["beta_t_stat"], beta / se)
-    check(f"{name} beta p-value (scipy t)", peer["beta_p_value"], 2 * stats.t.sf(abs(beta / se), df))
+    check(f"{name} beta p-value (scipy t)", peer["beta_p_value"], 2 * stats.t.sf(abs(beta / se), df), floor=0.0)
     check(f"{name} CI low (scipy t)", peer["beta_ci_low"], beta - t975 * se)
     check(f"{name} CI high (scipy t)", peer["beta_ci_high"], beta + t975 * se)
     check(f"{name} alpha", peer["alpha"], alpha)
@@ -622,16 +667,16 @@ def check_inference(name, peer, beta, se, alpha, alpha_se, df):
 def check_estimator(name, peer, data, asset, market, result):
     """Dimson, Scholes-Williams, robust errors and Vasicek, each from its formula."""
     n = len(asset)
-    settings = result["settings"]["beta"]
-    kind = peer["std_errors"]
-    lags = peer["newey_west_lags"]
-    if kind == "newey-west":
-        # Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9)).
-        expected = settings.get("newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
-        check(f"{name} Newey-West lags", lags, expected)
+    kind = setting("beta", "std_errors")
+    check_equal(f"{name} standard errors (the case's)", peer["std_errors"], kind)
+    # Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9)), unless the case
+    # gives beta.newey_west_lags; null under other standard errors (README, result.json schema).
+    lags = newey_west_lags(n) if kind == "newey-west" else None
+    check_equal(f"{name} Newey-West lags", peer["newey_west_lags"], lags)
     shifted = shifted_columns(data)
     check_shifts_are_the_market_series(name, data, shifted, result)
-    method = peer["method"]
+    method = setting("beta", "method")
+    check_equal(f"{name} method (the case's)", peer["method"], method)
     if method in ("ols", "dimson"):
         # Dimson (1979), J. Financial Economics 7(2): OLS on lagged/current/led market columns;
         # beta = sum of the market slopes, Var = 1' V 1 from their covariance block.
@@ -648,6 +693,7 @@ def check_estimator(name, peer, data, asset, market, result):
         beta, se = coef[1:].sum(), np.sqrt(ones @ cov @ ones)
         check_inference(name, peer, beta, se, coef[0], np.sqrt(cov[0, 0]), n - k)
         check(f"{name} Cov(alpha, beta)", peer["alpha_beta_covariance"], cov[0, 1:].sum())
+        check_equal(f"{name} market coefficients' offsets", [c["offset"] for c in peer["market_coefficients"]], offsets)
         for i, c in enumerate(peer["market_coefficients"]):
             check(f"{name} offset {c['offset']} slope", c["estimate"], coef[1 + offsets.index(c["offset"])])
             check(f"{name} offset {c['offset']} SE", c["std_error"], np.sqrt(cov[1 + i, 1 + i]))
@@ -677,16 +723,17 @@ def check_estimator(name, peer, data, asset, market, result):
         check(f"{name} Cov(alpha, beta)", peer["alpha_beta_covariance"], cov[0, 1])
 
     used = peer["beta"]
-    adjustment = settings["adjustment"]
+    adjustment = setting("beta", "adjustment")
     if adjustment == "blume":
-        used = blume(peer["beta"], settings["blume_weight"])
+        used = blume(peer["beta"], setting("beta", "blume_weight"))
         check(f"{name} shrunk beta (Blume)", peer["shrunk_beta"], used)
     elif adjustment == "vasicek":
         # Vasicek (1973), J. Finance 28(5): w = var_prior / (var_prior + SE^2).
-        if settings.get("vasicek_prior_mean") is not None:
-            mean, var = settings["vasicek_prior_mean"], settings["vasicek_prior_variance"]
+        if setting("beta", "vasicek_prior_mean") is not None:
+            mean, var = setting("beta", "vasicek_prior_mean"), setting("beta", "vasicek_prior_variance")
         else:
-            raw = np.array([p["beta"] for p in result["peers"] if p.get("excluded_reason") is None])
+            # The peers that enter the aggregation, by the case's exclude and exclude_flags.
+            raw = np.array([p["beta"] for p in result["peers"] if INCLUDED[p["name"]]])
             mean, var = raw.mean(), raw.var(ddof=1)
         check(f"{name} Vasicek prior mean", result["beta"]["vasicek_prior"]["mean"], mean)
         check(f"{name} Vasicek prior variance", result["beta"]["vasicek_prior"]["variance"], var)
@@ -702,29 +749,41 @@ def check_estimator(name, peer, data, asset, market, result):
 
 
 def blume(raw, weight):
-    """Blume (1971), J. Finance 26(1): w * beta + (1 - w), the weight w read from the case's
-    settings in result.json (beta.blume_weight), so a non-default weight is checked too."""
+    """Blume (1971), J. Finance 26(1): w * beta + (1 - w), the weight w read from the case file
+    with its overrides (beta.blume_weight, default 0.67), so a non-default weight is checked too."""
     return weight * raw + (1 - weight)
 
 
 def check_unlevered(name, peer, used, result):
     """D/E (gross or net of cash) and the unlevered beta by the case's formula: Hamada (1972);
     Harris-Pringle (1985), Miles-Ezzell (1985) and Conine (1980) solved for the asset beta."""
-    spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
+    spec = peer_spec(name)
     de = spec["debt"] / spec["equity_value"]
-    if result["settings"]["leverage"]["debt_measure"] == "net":
+    if setting("leverage", "debt_measure") == "net":
         de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
     check(f"{name} D/E", peer["debt_to_equity"], de)
-    if result["beta"]["formula"] == "hamada":
+    check(f"{name} tax rate (the case's)", peer["tax_rate"], spec["tax_rate"])
+    # The peer's own pre-tax Kd, else the subject's (README "[[peer]]", cost_of_debt).
+    kd = spec["cost_of_debt"] if spec["cost_of_debt"] is not None else RATES["kd"]
+    check(f"{name} cost of debt", peer["cost_of_debt"], kd)
+    # README "[leverage]", debt_beta_source: none; given (the peer's own, else leverage.debt_beta);
+    # credit-spread (the peer's own, else the CAPM solved for debt priced at Kd: (Kd - rf) / ERP).
+    source = setting("leverage", "debt_beta_source")
+    if source == "none":
+        bd = 0.0
+    elif spec["debt_beta"] is not None:
+        bd = spec["debt_beta"]
+    elif source == "given":
+        bd = setting("leverage", "debt_beta")
+    else:
+        bd = (kd - RATES["rf"]) / RATES["erp"]
+    check(f"{name} debt beta ({source})", peer["debt_beta"], bd)
+    formula = setting("leverage", "formula")
+    if formula == "hamada":
         check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
         return
-    bd = peer["debt_beta"]
-    if result["settings"]["leverage"]["debt_beta_source"] == "credit-spread" and "debt_beta" not in spec:
-        # The CAPM solved for the beta of debt priced at Kd: (Kd - rf) / ERP.
-        kd = spec.get("cost_of_debt", result["cost_of_debt_pre_tax"])
-        check(f"{name} debt beta from spread", bd, (kd - result["risk_free_rate"]) / result["equity_risk_premium"])
-    s = tax_factor(result["beta"]["formula"], spec["tax_rate"], peer["cost_of_debt"])
-    check(f"{name} unlevered ({result['beta']['formula']})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
+    s = tax_factor(formula, spec["tax_rate"], kd)
+    check(f"{name} unlevered ({formula})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
 
 def shifted_columns(data):
@@ -743,7 +802,7 @@ def check_diagnostics(name, peer, data, asset, market, result):
     against the case's thresholds as README states them."""
     n = len(asset)
     shifted = shifted_columns(data)
-    if peer["method"] == "scholes-williams":
+    if setting("beta", "method") == "scholes-williams":
         columns = [shifted[-1], market, shifted[1]]
     else:
         offsets = sorted(list(shifted) + [0])
@@ -761,28 +820,48 @@ def check_diagnostics(name, peer, data, asset, market, result):
     rows = [int(i) for i in np.flatnonzero(np.abs(studentised) > 3)]
     if peer["large_studentised_residual_rows"] != rows:
         failures.append(f"{name} flagged rows: hurdle {peer['large_studentised_residual_rows']} vs numpy {rows}")
-    b = result["settings"]["beta"]
-    window = peer["periods_in_window"]
+    # R^2 of the estimating regression (README "Diagnostics per peer"; for Scholes-Williams of r
+    # on [1, m-1, m0, m+1]), from these residuals, not hurdle's figure.
+    r_squared = 1 - e @ e / ((asset - asset.mean()) @ (asset - asset.mean()))
+    check(f"{name} R2 of the estimating regression", peer["r_squared"], r_squared)
+    # The window's periods and the stale count as rebuilt from the case's files (hurdle's own
+    # figures only where the returns could not be rebuilt, which the report says).
+    window = WINDOW["periods"] if WINDOW else peer["periods_in_window"]
+    stale = WINDOW["drops"][name].get("asset_stale", 0) if WINDOW else peer["periods_dropped"]["asset_stale"]
     expected = []
-    if n < b["flag_observations_share"] * window:
+    if n < setting("beta", "flag_observations_share") * window:
         expected.append("too_few_observations")
-    if peer["r_squared"] < b["flag_r_squared_floor"]:
+    if r_squared < setting("beta", "flag_r_squared_floor"):
         expected.append("low_r_squared")
-    if peer["periods_dropped"]["asset_stale"] / window > b["flag_stale_share"]:
+    if stale / window > setting("beta", "flag_stale_share"):
         expected.append("stale_prices")
     checks += 1
     if peer["flags"] != expected:
         failures.append(f"{name} flags: hurdle {peer['flags']} vs reference {expected}")
-    spec = next(p for p in result["settings"]["peer"] if p["name"] == name)
-    by_rule = [f for f in expected if f in b["exclude_flags"]]
-    if spec.get("exclude") is None and by_rule:
-        assert peer["excluded_reason"] is not None and by_rule[0] in peer["excluded_reason"]
+    # README "[beta]", exclude_flags, and "[[peer]]", exclude: a peer's own reason takes
+    # precedence; else the first listed flag it raises excludes it, the rule named as the reason.
+    spec = peer_spec(name)
+    by_rule = [f for f in expected if f in setting("beta", "exclude_flags")]
+    INCLUDED[name] = spec["exclude"] is None and not by_rule
+    checks += 1
+    reason = peer["excluded_reason"]
+    if spec["exclude"] is not None:
+        ok = reason == spec["exclude"]
+    elif by_rule:
+        ok = reason is not None and by_rule[0] in reason and "beta.exclude_flags" in reason
+    else:
+        ok = reason is None
+    if not ok:
+        failures.append(f"{name} excluded_reason: hurdle {reason!r}, case: exclude {spec['exclude']!r}, flags by rule {by_rule}")
 
 
 def check_shifts_are_the_market_series(name, data, shifted, result):
     """Each lag/lead column must be the market's excess return of the period that many steps
-    away on the window's grid (built here from every peer's rows of returns.csv)."""
-    if not shifted:
+    away on the window's grid (built here from every peer's rows of returns.csv). Only when the
+    returns were not rebuilt: rebuilt rows take each shifted value from the sampled grid itself
+    (holidays included, which a grid pieced together from returns.csv rows would skip), and
+    compare_returns has compared returns.csv's columns with them."""
+    if not shifted or WINDOW:
         return
     market_by_period = {}
     for rows in ROWS.values():
@@ -807,34 +886,47 @@ def check_rolling(out_dir, result):
     at window_end) with the case's own estimator and standard errors (`reference_beta`; for
     classical OLS also scipy.stats.linregress), Newey-West lags by the rule on the window's own
     N unless the case fixes them; slope and SE to 1e-9 relative."""
-    import os
     path = f"{out_dir}/rolling.csv"
     if not os.path.exists(path):
         return
     with open(path, newline="") as f:
         windows = list(csv.DictReader(f))
     assert windows, "rolling.csv has no rows"
-    # The grid's periods: those with a return of some peer, and every window's end (with a led
-    # index return, the last period has no usable return but still ends windows).
-    periods = sorted({r["period_end"] for rows in ROWS.values() for r in rows} | {w["window_end"] for w in windows})
+    # The grid's periods: the rebuilt window's period ends; else (returns not rebuilt) those with
+    # a return of some peer, and every window's end (with a led index return, the last period has
+    # no usable return but still ends windows).
+    if WINDOW:
+        periods = WINDOW["grid"]
+    else:
+        periods = sorted({r["period_end"] for rows in ROWS.values() for r in rows} | {w["window_end"] for w in windows})
     position = {p: i for i, p in enumerate(periods)}
-    settings = result["settings"]["beta"]
+    method, kind = setting("beta", "method"), setting("beta", "std_errors")
+    step = setting("beta", "rolling_step")
     for w in windows:
         peer = next(p for p in result["peers"] if p["name"] == w["peer"])
         length = peer["stability"]["window_periods"]
+        if setting("beta", "rolling_window") is not None:
+            check(f"{w['peer']} rolling window length (the case's)", length, setting("beta", "rolling_window"))
         end = position[w["window_end"]]
+        if WINDOW:
+            # README "Rolling beta": windows end at every rolling_step-th period end of the
+            # estimation window, counted from its first full window.
+            check_equal(f"{w['peer']} rolling window {w['window_end']} ends on the schedule",
+                        end >= length - 1 and (end - (length - 1)) % step == 0, True)
         inside = set(periods[max(0, end - length + 1): end + 1])
         rows = [r for r in ROWS[w["peer"]] if r["period_end"] in inside]
         y = np.array([float(r["asset_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
         x = np.array([float(r["market_return"]) - float(r.get("risk_free") or 0.0) for r in rows])
         label = f"{w['peer']} rolling {w['window_end']}"
         check(f"{label} observations", int(w["observations"]), len(rows))
-        kind = peer["std_errors"]
-        lags = newey_west_lags(settings, len(rows)) if kind == "newey-west" else 0
-        ref = reference_beta(peer["method"], kind, lags, y, x, shifted_columns(rows))
-        check(f"{label} beta ({peer['method']})", float(w["beta"]), ref["beta"])
+        # README "[beta]": rolling_min_observations, default 80% of rolling_window, rounded up.
+        least = setting("beta", "rolling_min_observations") or math.ceil(0.8 * length)
+        check_equal(f"{label} has at least rolling_min_observations", len(rows) >= least, True)
+        lags = newey_west_lags(len(rows)) if kind == "newey-west" else 0
+        ref = reference_beta(method, kind, lags, y, x, shifted_columns(rows))
+        check(f"{label} beta ({method})", float(w["beta"]), ref["beta"])
         check(f"{label} SE ({kind})", float(w["std_error"]), ref["se"])
-        if peer["method"] == "ols" and kind == "classical":
+        if method == "ols" and kind == "classical":
             fit = stats.linregress(x, y)
             check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
             check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
@@ -843,6 +935,7 @@ def check_rolling(out_dir, result):
         betas[w["peer"]].append(float(w["beta"]))
     for peer in result["peers"]:
         if peer["stability"]:
+            check_equal(f"{peer['name']} rolling windows", peer["stability"]["windows"], len(betas[peer["name"]]))
             check(f"{peer['name']} rolling min", peer["stability"]["min"], min(betas[peer["name"]]))
             check(f"{peer['name']} rolling max", peer["stability"]["max"], max(betas[peer["name"]]))
 
@@ -873,19 +966,45 @@ def check_histogram(result):
 
 
 ROWS = {}
+WINDOW = {}  # the rebuilt window: its period count and ends, each peer's dropped periods by reason
+INCLUDED = {}  # peer name -> aggregated, by the case's exclude and exclude_flags
+RATES = {}  # rf, ERP and the pre-tax Kd as the case states them
 
 
-def main(out_dir):
+def main(out_dir, given_case=None):
     with open(f"{out_dir}/result.json") as f:
         result = json.load(f)
+    case_path = load_case(out_dir, result, given_case)
+    print(f"case: {case_path} (SHA-256 as recorded), overrides {result['case']['overrides']}")
+    compare_with_echo(result)
+    RATES.update(rf=setting("market", "risk_free_rate"), erp=setting("market", "equity_risk_premium"),
+                 kd=case_cost_of_debt(os.path.dirname(os.path.abspath(case_path))))
+
     rows = defaultdict(list)
     with open(f"{out_dir}/returns.csv", newline="") as f:
         reader = csv.DictReader(f)
         excess = "risk_free" in reader.fieldnames
         for row in reader:
             rows[row["peer"]].append(row)
+    try:
+        rebuilt, drops, window_periods, grid = rebuild_returns(case_path, result)
+    except NotRecomputed as reason:
+        not_recomputed.append(f"returns.csv not recomputed: {reason}; the regressions below use "
+                              f"hurdle's returns.csv as written")
+    else:
+        compare_returns(out_dir, rebuilt, drops, window_periods, result)
+        WINDOW.update(periods=window_periods, drops=drops, grid=grid)
+        excess = "risk_free_series" in CASE["market"]
+        rows = defaultdict(list)
+        for row in rebuilt:
+            rows[row["peer"]].append(row)
+        print(f"returns: {len(rebuilt)} rows rebuilt from the case's files "
+              f"({setting('beta', 'frequency')} {setting('beta', 'returns')} returns, "
+              f"{'excess of the risk-free series' if excess else 'no risk-free series'}, "
+              f"max_stale_days {setting('beta', 'max_stale_days')}); the regressions use them")
     ROWS.update(rows)
 
+    series = {}
     for peer in result["peers"]:
         name = peer["name"]
         data = rows[name]
@@ -894,11 +1013,16 @@ def main(out_dir):
         if excess:
             rf = np.array([float(r["risk_free"]) for r in data])
             asset, market = asset - rf, market - rf
-        n = len(asset)
-        check(f"{name} observations", peer["observations"], n)
+        series[name] = data, asset, market
+        check(f"{name} observations", peer["observations"], len(asset))
         check_diagnostics(name, peer, data, asset, market, result)
+    for peer in result["peers"]:
+        name = peer["name"]
+        data, asset, market = series[name]
+        n = len(asset)
         check_fitted_line(name, peer, market)
-        if peer["method"] != "ols" or peer["std_errors"] != "classical" or peer.get("vasicek"):
+        if (setting("beta", "method") != "ols" or setting("beta", "std_errors") != "classical"
+                or setting("beta", "adjustment") == "vasicek"):
             check_estimator(name, peer, data, asset, market, result)
             continue
 
@@ -922,10 +1046,10 @@ def main(out_dir):
         check(f"{name} beta SE (scipy)", peer["beta_std_error"], fit.stderr)
         check(f"{name} alpha SE (scipy)", peer["alpha_std_error"], fit.intercept_stderr)
         check(f"{name} R2 (scipy)", peer["r_squared"], fit.rvalue**2)
-        check(f"{name} beta p-value (scipy)", peer["beta_p_value"], fit.pvalue)
+        check(f"{name} beta p-value (scipy)", peer["beta_p_value"], fit.pvalue, floor=0.0)
         check(f"{name} beta t (scipy)", peer["beta_t_stat"], fit.slope / fit.stderr)
         alpha_t = fit.intercept / fit.intercept_stderr
-        check(f"{name} alpha p-value (scipy)", peer["alpha_p_value"], 2 * stats.t.sf(abs(alpha_t), n - 2))
+        check(f"{name} alpha p-value (scipy)", peer["alpha_p_value"], 2 * stats.t.sf(abs(alpha_t), n - 2), floor=0.0)
         adjusted = 1 - (1 - fit.rvalue**2) * (n - 1) / (n - 2)
         check(f"{name} adjusted R2", peer["adjusted_r_squared"], adjusted)
         t975 = stats.t.ppf(0.975, n - 2)
@@ -933,8 +1057,9 @@ def main(out_dir):
         check(f"{name} CI high (scipy t)", peer["beta_ci_high"], fit.slope + t975 * fit.stderr)
 
         # Blume (1971, 1975) and Hamada (1972), written out here.
-        adjustment = result["settings"]["beta"]["adjustment"]
-        weight = result["settings"]["beta"]["blume_weight"]
+        check_equal(f"{name} method (the case's)", (peer["method"], peer["std_errors"]), ("ols", "classical"))
+        adjustment = setting("beta", "adjustment")
+        weight = setting("beta", "blume_weight")
         used = blume(fit.slope, weight) if adjustment == "blume" else fit.slope
         if adjustment == "blume":
             check(f"{name} shrunk beta (Blume, weight {weight})", peer["shrunk_beta"], used)
@@ -943,11 +1068,16 @@ def main(out_dir):
         check(f"{name} beta used", peer["beta_used"], used)
         check_unlevered(name, peer, used, result)
 
-    # Excluded peers are estimated and shown but not aggregated.
-    included = [p for p in result["peers"] if p.get("excluded_reason") is None]
+    # Excluded peers are estimated and shown but not aggregated (which peers: the case's exclude
+    # reasons and exclude_flags, decided in check_diagnostics).
+    check_equal("peers included", result["beta"]["peers_included"], sum(INCLUDED.values()))
+    included = [p for p in result["peers"] if INCLUDED[p["name"]]]
     unlevered = np.array([p["unlevered_beta"] for p in included])
-    leverage = result["settings"]["leverage"]
-    specs = {p["name"]: p for p in result["settings"]["peer"]}
+    specs = {p["name"]: peer_spec(p["name"]) for p in result["peers"]}
+    formula, how = setting("leverage", "formula"), setting("leverage", "aggregation")
+    check_equal("leverage formula (the case's)", result["beta"]["formula"], formula)
+    check_equal("aggregation (the case's)", result["beta"]["aggregation"], how)
+    net = setting("leverage", "debt_measure") == "net"
     # The beta of the operations: beta_U / (1 - cash / (equity + debt)), gross debt, cash at beta 0;
     # beta_U at gross debt under either debt measure (under net debt the unlevered beta has already
     # netted the cash), by the same textbook relations as check_unlevered.
@@ -956,24 +1086,25 @@ def main(out_dir):
         for p in result["peers"]
     ])
     def gross_unlevered(p):
-        if leverage["debt_measure"] != "net":
+        if not net:
             return p["unlevered_beta"]
         spec = specs[p["name"]]
         de = spec["debt"] / spec["equity_value"]
-        if result["beta"]["formula"] == "hamada":
+        if formula == "hamada":
             return p["beta_used"] / (1 + (1 - spec["tax_rate"]) * de)
-        s = tax_factor(result["beta"]["formula"], spec["tax_rate"], p["cost_of_debt"])
+        s = tax_factor(formula, spec["tax_rate"], p["cost_of_debt"])
         return (p["beta_used"] + p["debt_beta"] * s * de) / (1 + s * de)
     operations = np.array([gross_unlevered(p) for p in result["peers"]]) / share
     for p, w, c in zip(result["peers"], share, operations):
         check(f"{p['name']} operating share", p["operating_share"], w)
         check(f"{p['name']} beta of the operations", p["operations_beta"], c)
     in_use = next(f for f in result["leverage_comparison"] if f["in_use"])
+    check_equal("leverage comparison: the entry in use is the case's formula", in_use["formula"], formula)
     for p, c, listed in zip(result["peers"], operations, in_use["peer_operations_betas"]):
         check(f"{p['name']} beta of the operations (formula comparison)", listed, c)
     plain = unlevered
-    ops_included = np.array([c for p, c in zip(result["peers"], operations) if p.get("excluded_reason") is None])
-    if leverage["operations_beta"]:
+    ops_included = np.array([c for p, c in zip(result["peers"], operations) if INCLUDED[p["name"]]])
+    if setting("leverage", "operations_beta"):
         unlevered = ops_included
     caps = np.array([specs[p["name"]]["equity_value"] for p in included])
 
@@ -982,7 +1113,7 @@ def main(out_dir):
             "median": np.median(values),
             "mean": np.mean(values),
             "market-cap-weighted": np.average(values, weights=caps),
-            "trimmed-mean": stats.trim_mean(values, leverage["trim_fraction"]),
+            "trimmed-mean": stats.trim_mean(values, setting("leverage", "trim_fraction")),
         }
 
     statistics = locations_of(unlevered)
@@ -990,10 +1121,9 @@ def main(out_dir):
     check("mean (numpy)", locations["mean"], statistics["mean"])
     check("market-cap-weighted mean (numpy average)", locations["market_cap_weighted_mean"], statistics["market-cap-weighted"])
     check("trimmed mean (scipy trim_mean)", locations["trimmed_mean"], statistics["trimmed-mean"])
-    aggregate = statistics[result["beta"]["aggregation"]]
+    aggregate = statistics[how]
     check("aggregate unlevered beta", result["beta"]["unlevered"], aggregate)
-    check("operations beta flag", float(result["beta"]["uses_operations_beta"]), float(leverage["operations_beta"]))
-    how = result["beta"]["aggregation"]
+    check("operations beta flag", float(result["beta"]["uses_operations_beta"]), float(setting("leverage", "operations_beta")))
     check(f"{how} of the unlevered betas", result["beta"]["aggregate_of_unlevered"], locations_of(plain)[how])
     check(f"{how} of the betas of the operations", result["beta"]["aggregate_of_operations"], locations_of(ops_included)[how])
     d = result["beta"]["unlevered_dispersion"]
@@ -1001,62 +1131,65 @@ def main(out_dir):
     check("upper quartile (numpy)", d["upper_quartile"], np.percentile(unlevered, 75))
     check("std dev (numpy, ddof=1)", d["std_dev"], np.std(unlevered, ddof=1))
 
-    # The rates and the target as the case states them, not as hurdle echoes them.
-    market = result["settings"]["market"]
-    check("risk-free rate from the case", result["risk_free_rate"], market["risk_free_rate"])
-    check("ERP from the case", result["equity_risk_premium"], market["equity_risk_premium"])
-    if result["settings"]["debt"]["source"] == "given":
-        check("pre-tax Kd from the case", result["cost_of_debt_pre_tax"], result["settings"]["debt"]["cost_pre_tax"])
-    target = result["target"]
-    de, t = target["debt_to_equity"], target["tax_rate"]
-    tset = result["settings"]["target"]
-    check("tax rate from the case", t, tset["tax_rate"])
-    if tset["source"] == "explicit":
-        given = tset.get("debt_to_equity")
-        if given is None:
-            given = tset["debt_to_capital"] / (1 - tset["debt_to_capital"])
-        check("target D/E from the case", de, given)
-    net = leverage["debt_measure"] == "net"
-    if tset["source"] == "peer-median":
-        ratios = [(p["debt"] - (p["cash"] if net else 0)) / p["equity_value"] for p in result["settings"]["peer"]
-                  if next(q for q in result["peers"] if q["name"] == p["name"]).get("excluded_reason") is None]
-        check("target D/E (peer median)", de, np.median(ratios))
-    elif tset["source"] == "subject":
-        debt = tset["subject_debt"] - (tset.get("subject_cash", 0) if net else 0)
-        check("target D/E (subject)", de, debt / tset["subject_equity_value"])
-    formula = result["beta"]["formula"]
+    # The rates and the target as the case states them (the case file and its overrides, read
+    # above), not as hurdle echoes them; every later figure is built on the case's values.
+    rf, erp, kd_pre = RATES["rf"], RATES["erp"], RATES["kd"]
+    check("risk-free rate from the case", result["risk_free_rate"], rf)
+    check("ERP from the case", result["equity_risk_premium"], erp)
+    check(f"pre-tax Kd from the case (debt.source = {setting('debt', 'source')})", result["cost_of_debt_pre_tax"], kd_pre)
+    t = setting("target", "tax_rate")
+    check("tax rate from the case", result["target"]["tax_rate"], t)
+    source = setting("target", "source")
+    if source == "explicit":
+        de = setting("target", "debt_to_equity")
+        if de is None:
+            de = setting("target", "debt_to_capital") / (1 - setting("target", "debt_to_capital"))
+    elif source == "peer-median":
+        de = np.median([(specs[p["name"]]["debt"] - (specs[p["name"]]["cash"] if net else 0)) / specs[p["name"]]["equity_value"]
+                        for p in included])
+    else:
+        assert source == "subject", source
+        debt = setting("target", "subject_debt") - (setting("target", "subject_cash") if net else 0)
+        de = debt / setting("target", "subject_equity_value")
+    check(f"target D/E ({source})", result["target"]["debt_to_equity"], de)
     # The subject's debt beta: none, given, or (Kd - rf) / ERP from its own cost of debt.
     bd = {
         "none": 0.0,
-        "given": leverage["debt_beta"],
-        "credit-spread": (result["cost_of_debt_pre_tax"] - result["risk_free_rate"]) / result["equity_risk_premium"],
-    }[leverage["debt_beta_source"]]
+        "given": setting("leverage", "debt_beta"),
+        "credit-spread": (kd_pre - rf) / erp,
+    }[setting("leverage", "debt_beta_source")]
     check("subject debt beta", result["subject_debt_beta"], bd)
     if formula == "hamada":
         bd = 0.0
-    s = tax_factor(formula, t, result["cost_of_debt_pre_tax"])
+    s = tax_factor(formula, t, kd_pre)
     relevered = aggregate + (aggregate - bd) * s * de
     check("relevered beta", result["beta"]["relevered"], relevered)
     p = result["premiums"]
-    ps = result["settings"]["premiums"]
+    size, crp, specific = (setting("premiums", k) for k in ("size", "country", "company_specific"))
     # Country risk premium: a flat addition, times the subject's exposure, or times the relevered beta.
-    country = {"flat": ps["country"], "exposure": ps["country_exposure"] * ps["country"], "beta-scaled": relevered * ps["country"]}[ps["country_method"]]
+    country = {"flat": crp, "exposure": setting("premiums", "country_exposure") * crp,
+               "beta-scaled": relevered * crp}[setting("premiums", "country_method")]
     check("country premium applied", p["country_applied"], country)
-    ke = result["risk_free_rate"] + relevered * result["equity_risk_premium"] + ps["size"] + country + ps["company_specific"]
+    ke = rf + relevered * erp + size + country + specific
     check("cost of equity (CAPM)", result["cost_of_equity"], ke)
-    kd = result["cost_of_debt_pre_tax"] * (1 - t)
+    kd = kd_pre * (1 - t)
     check("after-tax cost of debt", result["cost_of_debt_after_tax"], kd)
-    pref, leases = result["settings"]["preferred"], result["settings"]["leases"]
-    other = pref["weight"] + leases["weight"]
+    wp, wl = setting("preferred", "weight"), setting("leases", "weight")
+    other = wp + wl
     we, wd = (1 - other) / (1 + de), (1 - other) * de / (1 + de)
     check("equity weight", result["weights"]["equity"], we)
+    check("debt weight", result["weights"]["debt"], wd)
     # Preferred equity at its own cost (not deductible); leases after tax at the target rate.
-    kl = leases.get("cost_pre_tax", result["cost_of_debt_pre_tax"]) * (1 - t)
-    check("WACC", result["wacc"], we * ke + wd * kd + pref["weight"] * pref.get("cost", 0.0) + leases["weight"] * kl)
+    lease_cost = setting("leases", "cost_pre_tax")
+    kl = (kd_pre if lease_cost is None else lease_cost) * (1 - t)
+    kp = setting("preferred", "cost") if wp > 0 else 0.0
+    check("WACC", result["wacc"], we * ke + wd * kd + wp * kp + wl * kl)
 
     check_rolling(out_dir, result)
     check_histogram(result)
 
+    for line in not_recomputed:
+        print("NOT RECOMPUTED", line)
     for line in failures:
         print("MISMATCH", line)
     print(f"reference: {checks - len(failures)} passed, {len(failures)} failed")
@@ -1064,4 +1197,11 @@ def main(out_dir):
 
 
 if __name__ == "__main__":
-    sys.exit(main(sys.argv[1]))
+    arguments = sys.argv[1:]
+    case_given = None
+    if "--case" in arguments:
+        at = arguments.index("--case")
+        case_given = arguments[at + 1]
+        del arguments[at:at + 2]
+    assert len(arguments) == 1, "usage: check_regressions.py OUTPUT_DIR [--case CASE.toml]"
+    sys.exit(main(arguments[0], case_given))

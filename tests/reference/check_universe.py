@@ -3,37 +3,69 @@
 
 Usage: check_universe.py UNIVERSE.toml OUT_DIR [--set key=value]...
 
-Reads the universe file and its input tables (long CSV panel, index CSV, attributes CSV) and
-recomputes, without any of hurdle's code:
-  - the sampling rule (README "Sampling"): sample points are the weekdays (daily) or the chosen
-    weekday of each week (weekly) from the first on or after beta.window_start to the last on or
-    before the valuation date; each sample is the last price dated after the previous point and
-    on or before its own; a return needs both samples, and the index's return for the period;
+Reads the universe file (with the --set values applied here, each read as TOML as hurdle reads
+them) and its input tables (long CSV panel, index CSV, attributes CSV) and recomputes, without
+any of hurdle's code:
+  - the sampling rule (README "Sampling (monthly)" and "Sampling (other frequencies)"): sample
+    points are the weekdays (daily), the chosen weekday of each week (weekly), the month-ends
+    (monthly) or the quarter-ends (quarterly), the last on or before the valuation date (or
+    beta.window_end), the first on or after beta.window_start, or `lookback` periods (or a span)
+    before the last; each sample is the last price dated after the previous point and on or
+    before its own; a return (simple, or log with beta.returns = "log") needs both samples, and
+    the index's return for the period;
   - each security's OLS market model with scipy.stats.linregress (slope, intercept, their
     standard errors, R^2, the two-sided p-value) and the 95% interval with scipy.stats.t.ppf;
-    Durbin-Watson from numpy; the too_few_observations and low_r_squared flags;
+    Durbin-Watson from numpy; the flags too_few_observations (N below
+    beta.flag_observations_share, default 0.8, of the window's periods) and low_r_squared (R^2
+    below beta.flag_r_squared_floor, default 0.05), compared with securities.csv's flags;
   - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt (none for
     a D/E above 10 or at or below -1), and the beta of the operations
     beta_U(gross D/E) / (1 - cash / (equity + debt)) under either debt measure (a net-debt
     beta_U has already netted the cash against the debt);
   - per industry: counts, numpy.median / mean / percentile (linear, numpy's default) / min / max /
-    std (ddof = 1), numpy.average weighted by market value, scipy.stats.trim_mean(0.1), median D/E,
-    and the aggregate the universe file picks.
-Compares every figure with hurdle's securities.csv and industries.csv and prints
-"<n> checks, <m> failed". Tolerance: 1e-9 relative to max(1, |value|) -- the issue's agreement
-bound; hurdle's QR and scipy's sums of squares differ by rounding only (about 1e-13 here).
+    std (ddof = 1), numpy.average weighted by market value, scipy.stats.trim_mean
+    (leverage.trim_fraction, default 0.1), median D/E, and the aggregate the universe file picks.
+Settings it does not implement (another estimator, standard errors or adjustment, a risk-free
+series, a staleness limit, a leverage formula other than Hamada, debt betas, exclusion flags,
+rolling betas) are reported as NOT IMPLEMENTED and fail the check, never silently passed.
+Compares every figure with hurdle's securities.csv and industries.csv, prints
+"<n> checks, <m> failed" and exits non-zero on any failure. Tolerance: 1e-9 relative -- the
+issue's agreement bound; hurdle's QR and scipy's sums of squares differ by rounding only (about
+1e-13 here) -- with an absolute floor of 1e-15 for figures near zero (the rounding of sums of
+terms of order one), and no floor for p-values (see Checker.same).
 """
 
+import calendar
 import csv
 import datetime as dt
+import math
 import sys
 import tomllib
 
 import numpy as np
 from scipy import stats
 
+# Relative: both sides are double-precision evaluations of the same closed forms on the same
+# doubles, so honest differences are rounding (about 1e-13 relative here); 1e-9 is the issue's bar.
 TOLERANCE = 1e-9
+# Absolute floor for figures that can sit at or near zero (an alpha, a CI bound across zero): a
+# difference below it is the rounding of sums of terms of order one, not a disagreement.
+FLOOR = 1e-15
 WEEKDAYS = {"monday": 0, "tuesday": 1, "wednesday": 2, "thursday": 3, "friday": 4}
+# Settings this check implements, by key: anything else in the universe file (or a --set) is
+# reported as NOT IMPLEMENTED and fails the run (README "Universe file reference" for the keys).
+IMPLEMENTED = {
+    ("beta", "method"): ("ols",),
+    ("beta", "std_errors"): ("classical",),
+    ("beta", "adjustment"): ("none",),
+    ("beta", "exclude_flags"): ([],),
+    ("beta", "max_stale_days"): (None,),
+    ("beta", "returns"): ("simple", "log"),
+    ("beta", "frequency"): ("daily", "weekly", "monthly", "quarterly"),
+    ("leverage", "formula"): ("hamada",),
+    ("leverage", "debt_beta_source"): ("none",),
+    ("universe", "rolling"): (False,),
+}
 
 
 def parse_args(argv):
@@ -46,6 +78,15 @@ def parse_args(argv):
     return universe, out, sets
 
 
+def toml_value(text):
+    """A --set value is read as TOML (a number, true, a date, a quoted string, a list); anything
+    else is taken as text (README, Commands, `--set`)."""
+    try:
+        return tomllib.loads(f"value = {text}")["value"]
+    except tomllib.TOMLDecodeError:
+        return text
+
+
 def apply_sets(config, sets):
     for assignment in sets:
         key, value = assignment.split("=", 1)
@@ -53,7 +94,23 @@ def apply_sets(config, sets):
         table = config
         for p in parents:
             table = table.setdefault(p, {})
-        table[last] = {"true": True, "false": False}.get(value, value)
+        table[last] = toml_value(value)
+
+
+def not_implemented(config):
+    """The settings this check would get wrong, in words (empty when it implements them all)."""
+    out = []
+    for (section, key), allowed in IMPLEMENTED.items():
+        table = config.get(section, {})
+        if key in table and table[key] not in allowed:
+            out.append(f"{section}.{key} = {table[key]!r}")
+    if "risk_free_series" in config.get("market", {}):
+        out.append("market.risk_free_series (excess returns)")
+    if config.get("panel", {}).get("layout", "long") != "long" or not config["panel"]["prices"].endswith((".csv", ".txt")):
+        out.append("a panel other than a long CSV")
+    if not config["attributes"]["file"].endswith((".csv", ".txt")):
+        out.append("an attributes file other than CSV")
+    return out
 
 
 def read_series(path, date_column, value_column):
@@ -64,20 +121,60 @@ def read_series(path, date_column, value_column):
     return rows
 
 
+def as_date(value):
+    return value if isinstance(value, dt.date) else dt.date.fromisoformat(str(value))
+
+
 def sample_points(beta, valuation_date):
-    """The window's sample points, and the point before the first (which opens its period)."""
-    start = beta["window_start"]
-    if beta.get("frequency", "monthly") == "daily":
-        keep = lambda d: d.weekday() < 5
+    """The window's sample points, and the point before the first (which opens its period).
+    README "Sampling (monthly)" and "Sampling (other frequencies)": the last point is the last
+    on or before beta.window_end (default the valuation date); the first is the first on or
+    after beta.window_start, else `lookback` periods before the last, or the first on or after
+    the start of a `lookback` span (years and months keep the day of the month, clamped to the
+    month's end; weeks 7 days; days calendar days)."""
+    frequency = beta.get("frequency", "monthly")
+    weekday = WEEKDAYS[beta.get("weekday", "wednesday")]
+
+    def keep(d):
+        month_end = (d + dt.timedelta(days=1)).day == 1
+        if frequency == "daily":
+            return d.weekday() < 5
+        if frequency == "weekly":
+            return d.weekday() == weekday
+        if frequency == "monthly":
+            return month_end
+        if frequency == "quarterly":
+            return month_end and d.month in (3, 6, 9, 12)
+        # Never fall back to another grid: a frequency this check has no rule for stops it.
+        raise SystemExit(f"NOT IMPLEMENTED: beta.frequency = {frequency!r}\n1 checks, 1 failed")
+
+    end = as_date(beta.get("window_end", valuation_date))
+    while not keep(end):
+        end -= dt.timedelta(days=1)
+    lookback = beta.get("lookback", 60)
+    if "window_start" in beta:
+        start = as_date(beta["window_start"])
+    elif isinstance(lookback, int):
+        start = end
+        for _ in range(lookback):
+            start -= dt.timedelta(days=1)
+            while not keep(start):
+                start -= dt.timedelta(days=1)
     else:
-        weekday = WEEKDAYS[beta.get("weekday", "wednesday")]
-        keep = lambda d: d.weekday() == weekday
+        count, unit = int(str(lookback)[:-1]), str(lookback)[-1]
+        if unit in "ym":
+            months = end.year * 12 + end.month - 1 - (count * 12 if unit == "y" else count)
+            year, month = divmod(months, 12)
+            last_day = calendar.monthrange(year, month + 1)[1]
+            start = dt.date(year, month + 1, min(end.day, last_day))
+        else:
+            start = end - dt.timedelta(days=count * (7 if unit == "w" else 1))
     day, points = start, []
-    while day <= valuation_date:
+    while day <= end:
         if keep(day):
             points.append(day)
         day += dt.timedelta(days=1)
-    before = start - dt.timedelta(days=1)
+    before = points[0] - dt.timedelta(days=1)
     while not keep(before):
         before -= dt.timedelta(days=1)
     return before, points
@@ -97,8 +194,10 @@ def samples(series, before, points):
     return out
 
 
-def returns(values):
-    return [b / a - 1.0 if a is not None and b is not None else None
+def returns(values, kind="simple"):
+    """Simple p(t)/p(t-1) - 1 or log ln(p(t)/p(t-1)) (README "[beta]", returns)."""
+    ratio = (lambda a, b: b / a - 1.0) if kind == "simple" else (lambda a, b: math.log(b / a))
+    return [ratio(a, b) if a is not None and b is not None else None
             for a, b in zip(values[:-1], values[1:])]
 
 
@@ -130,7 +229,8 @@ def securities(config, folder):
     valuation_date = config["universe"]["valuation_date"]
     index = read_series(folder + "/" + config["market"]["index"]["prices"], "date", "price")
     before, points = sample_points(beta, valuation_date)
-    market = returns(samples(index, before, points))
+    kind = beta.get("returns", "simple")
+    market = returns(samples(index, before, points), kind)
     periods = len(points) - 1
     by_security = {}
     with open(folder + "/" + panel["prices"], newline="") as handle:
@@ -145,7 +245,7 @@ def securities(config, folder):
     result = {}
     for security, series in by_security.items():
         series.sort()
-        asset = returns(samples(series, before, points))
+        asset = returns(samples(series, before, points), kind)
         pairs = [(a, m) for a, m in zip(asset, market) if a is not None and m is not None]
         row = {"industry": None}
         # A move beyond a factor of 3 between two rows, the later after the first sample point
@@ -177,12 +277,19 @@ def securities(config, folder):
                     gross = row["beta"] / (1.0 + (1.0 - tax) * debt / equity)
                     row["operations_beta"] = gross / (1.0 - cash / (equity + debt))
         if "beta" in row:
-            row["too_few"] = row["observations"] < 0.8 * periods
+            # README "[beta]": flag too_few_observations when N is below flag_observations_share
+            # (default 0.8) of the window's periods, low_r_squared when R^2 is below
+            # flag_r_squared_floor (default 0.05).
+            row["flags"] = set()
+            if row["observations"] < beta.get("flag_observations_share", 0.8) * periods:
+                row["flags"].add("too_few_observations")
+            if row["r_squared"] < beta.get("flag_r_squared_floor", 0.05):
+                row["flags"].add("low_r_squared")
         result[security] = row
     return result
 
 
-def summary(values, weights, prefix):
+def summary(values, weights, prefix, trim):
     out = {f"{prefix}_count": len(values)}
     if not values:
         return out
@@ -196,7 +303,7 @@ def summary(values, weights, prefix):
         f"max_{prefix}": np.max(v),
         # A sample standard deviation of one value is undefined (numpy: nan); an empty cell.
         f"std_dev_{prefix}": np.std(v, ddof=1) if len(v) > 1 else None,
-        f"trimmed_mean_{prefix}": stats.trim_mean(v, 0.1),
+        f"trimmed_mean_{prefix}": stats.trim_mean(v, trim),
     })
     if weights:
         wv, ww = zip(*weights)
@@ -220,7 +327,7 @@ def industries(config, rows):
             have = [r for r in estimated if key in r]
             figures.update(summary([r[key] for r in have],
                                    [(r[key], r["equity"]) for r in have if r.get("equity")],
-                                   prefix))
+                                   prefix, leverage.get("trim_fraction", 0.1)))
         ratios = [r["debt_to_equity"] for r in estimated if "debt_to_equity" in r]
         if ratios:
             figures["median_debt_to_equity"] = np.median(ratios)
@@ -237,13 +344,20 @@ class Checker:
     def __init__(self):
         self.checks, self.failures = 0, []
 
-    def same(self, where, expected, got):
+    def same(self, where, expected, got, floor=FLOOR):
+        """Relative TOLERANCE with an absolute floor (FLOOR, or none for p-values)."""
         self.checks += 1
         if expected is None or got is None:
             if (expected is None) != (got is None):
                 self.failures.append(f"{where}: expected {expected}, hurdle {got}")
             return
-        if abs(float(expected) - float(got)) > TOLERANCE * max(1.0, abs(float(expected))):
+        difference = abs(float(expected) - float(got))
+        if not (difference <= TOLERANCE * abs(float(expected)) or difference < floor):
+            self.failures.append(f"{where}: expected {expected!r}, hurdle {got!r}")
+
+    def equal(self, where, expected, got):
+        self.checks += 1
+        if expected != got:
             self.failures.append(f"{where}: expected {expected!r}, hurdle {got!r}")
 
 
@@ -252,6 +366,12 @@ def main():
     with open(universe, "rb") as handle:
         config = tomllib.load(handle)
     apply_sets(config, sets)
+    missing = not_implemented(config)
+    if missing:
+        for setting in missing:
+            print("NOT IMPLEMENTED", setting)
+        print(f"0 checks, {len(missing)} failed")
+        sys.exit(1)
     folder = universe.rsplit("/", 1)[0]
     rows = securities(config, folder)
     check = Checker()
@@ -261,12 +381,20 @@ def main():
     for security, row in rows.items():
         got = listed[security]
         for key in ("observations", "beta", "beta_std_error", "alpha", "alpha_std_error",
-                    "r_squared", "beta_p_value", "beta_ci_low", "beta_ci_high", "durbin_watson",
+                    "r_squared", "beta_ci_low", "beta_ci_high", "durbin_watson",
                     "debt_to_equity", "unlevered_beta", "operations_beta"):
             check.same(f"{security} {key}", row.get(key), number(got[key]))
+        # p-values relative only, without the floor (p-values of 1e-20 and below occur here and
+        # would otherwise always pass). statrs and scipy agree far inside 1e-9 relative even in
+        # the far tail: a two-sided p-value's relative error is the t-statistic's absolute
+        # rounding times the density-to-tail ratio (about |t|), about 1e-13 here (measured: at
+        # most 4e-13 relative, at p = 7e-21).
+        check.same(f"{security} beta_p_value", row.get("beta_p_value"), number(got["beta_p_value"]), floor=0.0)
         if "beta" in row:
-            flagged = "too_few_observations" in got["flags"].split(";")
-            check.same(f"{security} too_few_observations flag", row["too_few"], flagged)
+            # Both flags this check recomputes, and no other flag (staleness and exclusions are
+            # not implemented here and refused above).
+            flagged = {f for f in got["flags"].split(";") if f}
+            check.equal(f"{security} flags", sorted(row["flags"]), sorted(flagged))
     with open(out + "/industries.csv", newline="") as handle:
         tabled = {r["industry"]: r for r in csv.DictReader(handle)}
     expected = industries(config, rows)
@@ -277,6 +405,7 @@ def main():
     for failure in check.failures:
         print("MISMATCH", failure)
     print(f"{check.checks} checks, {len(check.failures)} failed")
+    sys.exit(1 if check.failures else 0)
 
 
 if __name__ == "__main__":

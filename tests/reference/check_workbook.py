@@ -10,7 +10,11 @@ cached values, so a workbook whose saved figures are right but whose formulas ar
 
 Checks, each counted as passed or failed:
   1. every formula cell of the workbook is listed in the figure map (nothing escapes the check);
-  2. the cached values hurdle wrote equal result.json (and returns.csv figures) to 1e-9 relative;
+  2. the cached values hurdle wrote equal the figure map's expected values to 1e-9 relative: a
+     result.json field (times the map's scale), or, for the excess returns that result.json does
+     not hold, the number the map itself carries (hurdle's own figure, the one returns.csv lists;
+     this script does not read returns.csv, so those cells are checked against hurdle's figure,
+     not an independent one: tests/reference/check_regressions.py rebuilds returns.csv);
   3. LibreOffice's recomputed values equal them to 1e-9 relative;
   4. a copy whose cached WACC is deliberately wrong is caught by check 2, and LibreOffice's
      recalculation replaces the wrong figure (proof that it recalculated);
