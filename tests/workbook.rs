@@ -114,6 +114,8 @@ const CONFIGURATIONS: [(&str, &[&str]); 4] = [
             "leverage.debt_measure=net",
             "leverage.aggregation=mean",
             "target.source=peer-median",
+            // A peer left out, so the target's MEDIAN reads the aggregated peers only.
+            "peer.2.exclude=\"a peer left out of the median\"",
         ],
     ),
 ];

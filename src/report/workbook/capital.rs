@@ -142,6 +142,18 @@ fn unlevering(
     Ok((sheet, ranges))
 }
 
+/// The peers' median D/E over the aggregated peers' D/E cells of this sheet, for a target taken
+/// from the peers (`target.source = "peer-median"`): a change to a peer's equity, debt or cash
+/// here moves the target. The peers are those the run aggregated (a listed set of cells, so
+/// changing a peer's "Aggregated" flag does not change which ones it reads).
+pub(crate) fn peer_median_debt_to_equity(v: &crate::valuation::Valuation) -> String {
+    let cells: Vec<String> = (v.peers.iter().enumerate())
+        .filter(|(_, p)| p.excluded_reason.is_none())
+        .map(|(i, _)| format!("Unlevering!{}", absolute(1 + i as u32, DE)))
+        .collect();
+    format!("=MEDIAN({})", cells.join(","))
+}
+
 /// One peer's row of the sheet: where it is and the peer's `result.json` fields.
 struct Row {
     i: usize,

@@ -16,14 +16,14 @@ use super::{absolute, relative, xlsx_error, Book, Expect, Sheet};
 const VALUE: u16 = 1;
 
 /// What the value cell holds.
-#[derive(Clone, Copy, PartialEq)]
+#[derive(Clone, PartialEq)]
 enum Kind {
     /// The case's figure, which the reader may change (yellow).
     Input,
     /// A figure of the case's settings that is not meant to be changed here.
     Fixed,
     /// A formula over other inputs.
-    Formula(&'static str),
+    Formula(String),
 }
 
 #[derive(Clone, Copy)]
@@ -128,8 +128,9 @@ fn rates(v: &Valuation) -> Vec<Spec> {
     let method = crate::report::format::label(&premiums.country_method);
     let target_note = match v.cost.target.given {
         "peer_median" => {
-            "The median of the aggregated peers' D/E (target.source = \
-                          \"peer-median\"), as hurdle found it."
+            "The median of the aggregated peers' D/E on the Unlevering sheet (target.source = \
+             \"peer-median\"): a change to a peer's equity, debt or cash there moves it. It reads \
+             the peers the run aggregated; changing a peer's Aggregated flag does not change which."
         }
         "subject_current" => "The subject's own current D/E (target.source = \"subject\").",
         "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",
@@ -190,6 +191,10 @@ fn rates(v: &Valuation) -> Vec<Spec> {
             "/target/debt_to_equity",
         )
         .format(Fmt::Ratio)
+        .kind(match v.cost.target.given {
+            "peer_median" => Kind::Formula(super::capital::peer_median_debt_to_equity(v)),
+            _ => Kind::Input,
+        })
         .note(target_note),
         spec(
             "Target tax rate",
@@ -236,7 +241,7 @@ fn debt(v: &Valuation) -> Vec<Spec> {
                 .bp()
                 .note(note),
                 pre_tax
-                    .kind(Kind::Formula("=RiskFreeRate+CreditSpread"))
+                    .kind(Kind::Formula("=RiskFreeRate+CreditSpread".into()))
                     .note("The risk-free rate plus the spread."),
             ]
         }
@@ -257,7 +262,7 @@ fn debt(v: &Valuation) -> Vec<Spec> {
         }
         DebtBetaSource::CreditSpread => debt_beta
             .kind(Kind::Formula(
-                "=(CostOfDebtPreTax-RiskFreeRate)/EquityRiskPremium",
+                "=(CostOfDebtPreTax-RiskFreeRate)/EquityRiskPremium".into(),
             ))
             .note(
                 "(Kd − rf) / ERP, the credit-spread approximation: it reads the whole spread \
@@ -301,7 +306,7 @@ fn components(v: &Valuation) -> Vec<Spec> {
     specs.push(match v.settings.leases.cost_pre_tax {
         Some(_) => lease,
         None => lease
-            .kind(Kind::Formula("=CostOfDebtPreTax"))
+            .kind(Kind::Formula("=CostOfDebtPreTax".into()))
             .note("Not given: the pre-tax cost of debt."),
     });
     specs.push(
@@ -394,7 +399,7 @@ fn write_row(book: &mut Book, sheet: &mut Sheet, row: u32, spec: &Spec) -> Resul
     if !spec.note.trim().is_empty() {
         book.text(sheet, (row, 5), spec.note.trim(), &text)?;
     }
-    match spec.kind {
+    match &spec.kind {
         Kind::Input => book.number(sheet, (row, VALUE), book.figure(spec.pointer)?, &input)?,
         Kind::Fixed => book.number(sheet, (row, VALUE), book.figure(spec.pointer)?, &plain)?,
         Kind::Formula(formula) => {
