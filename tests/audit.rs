@@ -551,6 +551,64 @@ fn implied_values_reproduce_the_claimed_wacc() {
     assert!((wacc - 0.076).abs() < 1e-10, "beta {beta} gives {wacc}");
 }
 
+// `--solve all` lists every input with the value that reproduces the claim alone; each case
+// key's value, set back in, gives the claim (1e-10, as above), and the beta's equals what
+// `--solve beta` finds (the same search, so the same double). A claim no input reaches within
+// its range exits 1; `--range` with all is refused (exit 2), each input having its own range.
+#[test]
+fn implied_all_lists_the_value_of_each_input_that_reproduces_the_claim() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let output = hurdle(&["implied", case, "--wacc", "0.076", "--solve", "all"]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let rows: Vec<(&str, &str)> = report
+        .lines()
+        .filter_map(|l| {
+            let key = l.split_whitespace().next()?;
+            let exact = l.split("exact: ").nth(1)?.split(';').next()?;
+            Some((key, exact))
+        })
+        .collect();
+    let keys: Vec<&str> = rows.iter().map(|(k, _)| *k).collect();
+    assert_eq!(
+        keys,
+        [
+            "market.risk_free_rate",
+            "market.equity_risk_premium",
+            "relevered",
+            "premiums.size",
+            "debt.cost_pre_tax",
+            "target.debt_to_equity"
+        ],
+        "{report}"
+    );
+    for (k, (key, exact)) in rows.iter().enumerate() {
+        if *key == "relevered" {
+            let single = hurdle(&["implied", case, "--wacc", "0.076", "--solve", "beta"]);
+            assert_eq!(exact_beta(&text(&single)).to_string(), *exact);
+            continue;
+        }
+        let set = format!("{key}={exact}");
+        let rerun = run_case(
+            Path::new(case),
+            &dir.path().join(format!("row{k}")),
+            &["--set", &set],
+        );
+        let wacc = number(&rerun, "wacc");
+        assert!((wacc - 0.076).abs() < 1e-10, "{set} gives {wacc}");
+    }
+    let none = hurdle(&["implied", case, "--wacc", "0.5", "--solve", "all"]);
+    assert_eq!(none.status.code(), Some(1), "{}", text(&none));
+    assert!(text(&none).contains("no single input reproduces the claim"));
+    let ranged = hurdle(&[
+        "implied", case, "--wacc", "0.076", "--solve", "all", "--range", "0..1",
+    ]);
+    assert_eq!(ranged.status.code(), Some(2), "{}", text(&ranged));
+    assert!(text(&ranged).contains("--range"));
+}
+
 // With a debt beta read from the credit spread, βD = (Kd − rf) / ERP (CAPM applied to debt,
 // common practice), the lowest ERPs of the search are values the case refuses (an ERP under
 // 0.001; a debt beta above a peer's equity beta); every such search used to stop at its first

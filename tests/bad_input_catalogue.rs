@@ -2183,6 +2183,12 @@ fn command_arguments() -> Vec<Bad> {
             ["--range 0.1..0.05", "LOW < HIGH"]
         ),
         bad!(
+            "implied: a range with every input",
+            nothing,
+            ["implied", "{case}", "--wacc", "0.09", "--solve", "all", "--range", "0..1"],
+            ["--range 0..1", "not with all"]
+        ),
+        bad!(
             "implied: range not numbers",
             nothing,
             ["implied", "{case}", "--wacc", "0.09", "--solve", "erp", "--range", "a..b"],

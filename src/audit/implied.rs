@@ -53,6 +53,16 @@ impl std::str::FromStr for Target {
 }
 
 impl Target {
+    /// Every input that can be solved for, in the order a table of them lists them.
+    pub const ALL: [Target; 6] = [
+        Target::RiskFree,
+        Target::Erp,
+        Target::Beta,
+        Target::SizePremium,
+        Target::CostOfDebt,
+        Target::DebtToEquity,
+    ];
+
     /// The range searched unless the user gives one. These bounds are hurdle's choice, not a
     /// published convention: each is wide enough to hold any value a practitioner would defend
     /// (an ERP up to 20%, a beta up to 5, …) so that a claim is not missed, and narrow enough that
@@ -235,7 +245,13 @@ pub fn implied(
 
 /// The case key varied for `target` (the relevered beta is not a key) and its base value; a
 /// debt-to-capital case solves its debt-to-capital.
-fn key_and_base_value(target: Target, by_capital: bool, base: &Valuation) -> (&'static str, f64) {
+/// The case key `target` varies (`target.debt_to_capital` for a case that gives its target
+/// that way) and its value in `base`.
+pub fn key_and_base_value(
+    target: Target,
+    by_capital: bool,
+    base: &Valuation,
+) -> (&'static str, f64) {
     match target {
         Target::Erp => ("market.equity_risk_premium", base.cost.equity_risk_premium),
         Target::RiskFree => ("market.risk_free_rate", base.cost.risk_free_rate),

@@ -2,6 +2,9 @@
 //!
 //! Solves for the value of one input (erp, beta, cost_of_debt, debt_to_equity, risk_free,
 //! size_premium) that reproduces a claimed WACC. Exit 1 when no value in the range does.
+//! `--solve all` solves for each of them in turn, the others held at the case's values, and
+//! prints one table: which single input would have to move, and how far, to give the claim.
+//! Exit 1 when none does.
 
 use std::process::ExitCode;
 
@@ -17,14 +20,32 @@ pub struct Args {
     /// The claimed WACC, as a decimal (0.091 for 9.1%).
     #[arg(long, allow_hyphen_values = true, value_parser = hurdle::valuation::sanity::check_rate_argument)]
     pub wacc: f64,
-    /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium.
-    #[arg(long)]
-    pub solve: Target,
+    /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium,
+    /// or all (each in turn, one table).
+    #[arg(long, value_parser = parse_solve)]
+    pub solve: Solve,
     /// The range to search, LOW..HIGH (default: a wide plausible range for the input). For
     /// debt_to_equity always in D/E, also when the case's target is a debt-to-capital.
     // A range may start below zero (the risk-free rate's default is −0.02..0.20).
     #[arg(long, value_name = "LOW..HIGH", allow_hyphen_values = true, value_parser = parse_range)]
     pub range: Option<(f64, f64)>,
+}
+
+/// One input, or every input in turn.
+#[derive(Debug, Clone, Copy)]
+pub enum Solve {
+    One(Target),
+    All,
+}
+
+fn parse_solve(text: &str) -> Result<Solve, String> {
+    match text {
+        "all" => Ok(Solve::All),
+        other => other
+            .parse::<Target>()
+            .map(Solve::One)
+            .map_err(|e| format!("{e}, or all")),
+    }
 }
 
 fn parse_range(text: &str) -> Result<(f64, f64), String> {
@@ -45,20 +66,153 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     let inputs = args.case.inputs()?;
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     let base = hurdle::valuation::value_with(&inputs.case, &inputs, &estimates, "")?;
-    // The library speaks of the search range; here it is the user's `--range`.
-    let r = implied(
-        &inputs, &estimates, &base, args.solve, args.wacc, args.range,
-    )
-    .map_err(|error| match error {
-        hurdle::Error::Argument { option, message } if option.starts_with("search range") => {
-            hurdle::Error::Argument {
-                option: option.replacen("search range", "--range", 1),
-                message,
+    let target = match args.solve {
+        Solve::One(target) => target,
+        Solve::All => {
+            if let Some((low, high)) = args.range {
+                return Err(hurdle::Error::Argument {
+                    option: format!("--range {low}..{high}"),
+                    message: "each input has its own range; give --range with one --solve \
+                              input, not with all"
+                        .into(),
+                });
             }
+            return Ok(print_all(&inputs, &estimates, &base, args.wacc));
         }
-        other => other,
-    })?;
+    };
+    // The library speaks of the search range; here it is the user's `--range`.
+    let r =
+        implied(&inputs, &estimates, &base, target, args.wacc, args.range).map_err(|error| {
+            match error {
+                hurdle::Error::Argument { option, message }
+                    if option.starts_with("search range") =>
+                {
+                    hurdle::Error::Argument {
+                        option: option.replacen("search range", "--range", 1),
+                        message,
+                    }
+                }
+                other => other,
+            }
+        })?;
     Ok(print_answer(&r, args.range))
+}
+
+/// `--solve all`: each input solved for alone over its default range, one row each.
+fn print_all(
+    inputs: &hurdle::valuation::Inputs,
+    estimates: &hurdle::valuation::PeerEstimates,
+    base: &hurdle::valuation::Valuation,
+    claimed: f64,
+) -> ExitCode {
+    println!(
+        "claimed WACC {} | case WACC {}; each input solved for alone, the others at the case's \
+         values:",
+        percent(claimed, 3),
+        percent(base.cost.wacc, 3)
+    );
+    println!(
+        "{:<26} {:>10} {:>12} {:>12}  note",
+        "input", "case", "reproduces", "change"
+    );
+    let mut found = 0;
+    for target in Target::ALL {
+        match implied(inputs, estimates, base, target, claimed, None) {
+            Ok(r) => {
+                found += usize::from(r.reproduces());
+                println!("{}", solved_row(&r));
+            }
+            Err(error) => println!("{}", unsolved_row(target, base, error)),
+        }
+    }
+    if found == 0 {
+        println!("no single input reproduces the claim within its range");
+        ExitCode::from(1)
+    } else {
+        println!(
+            "note: each row moves one input alone; a claim usually differs in several, which \
+             `hurdle compare` bridges input by input"
+        );
+        ExitCode::SUCCESS
+    }
+}
+
+/// A row of `--solve all` for an input searched: the value that reproduces the claim and its
+/// change from the case's, or why none does.
+fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
+    let show = shown(r);
+    let (value, change, note) = match (r.value, r.reproduces()) {
+        (Some(value), true) => {
+            let change = if r.key.contains("beta") || r.key.contains("debt_to_") {
+                format!("{:+}", fixed(value - r.base_value, 4))
+            } else {
+                format!("{:+} bp", fixed((value - r.base_value) * 1e4, 0))
+            };
+            let mut note = format!("exact: {value}");
+            if r.crossings > 1 {
+                note.push_str(&format!("; {} values fit, the lowest shown", r.crossings));
+            }
+            if let Some(caution) = r.caution() {
+                note.push_str(&format!("; caution: {caution}"));
+            }
+            (show(value), change, note)
+        }
+        (Some(value), false) => (
+            "n/a".into(),
+            String::new(),
+            format!("the WACC jumps across the claim at {}", show(value)),
+        ),
+        (None, _) => (
+            "n/a".into(),
+            String::new(),
+            format!(
+                "none in {} to {} (WACC {} to {})",
+                show(r.range.0),
+                show(r.range.1),
+                percent(r.wacc_min, 3),
+                percent(r.wacc_max, 3)
+            ),
+        ),
+    };
+    format!(
+        "{:<26} {:>10} {value:>12} {change:>12}  {note}",
+        r.key,
+        show(r.base_value)
+    )
+}
+
+/// A row of `--solve all` for an input the case cannot be solved for, saying why.
+fn unsolved_row(
+    target: Target,
+    base: &hurdle::valuation::Valuation,
+    error: hurdle::Error,
+) -> String {
+    let (key, value) = hurdle::audit::implied::key_and_base_value(target, false, base);
+    // The case file is named above; the row says why this input is not solved.
+    let why = match error {
+        hurdle::Error::Case { message, .. } => message,
+        other => other.to_string(),
+    };
+    let show = if key.contains("debt_to_") {
+        fixed(value, 4)
+    } else {
+        percent(value, 3)
+    };
+    format!(
+        "{key:<26} {show:>10} {:>12} {:>12}  not solved: {why}",
+        "n/a", ""
+    )
+}
+
+/// How a value of the input is shown: a beta or a ratio to four decimals, a rate in percent.
+fn shown(r: &hurdle::audit::implied::Implied) -> impl Fn(f64) -> String + '_ {
+    move |x: f64| {
+        if r.key.contains("beta") || r.key.contains("debt_to_") {
+            fixed(x, 4)
+        } else {
+            percent(x, 3)
+        }
+    }
 }
 
 /// The exact value found, as `--set` takes it (the relevered beta is the build-up's, not a
@@ -81,13 +235,7 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
 
 /// Prints the answer (a value, a jump, or none in the range) and returns the exit status.
 fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) -> ExitCode {
-    let show = |x: f64| {
-        if r.key.contains("beta") || r.key.contains("debt_to_") {
-            fixed(x, 4)
-        } else {
-            percent(x, 3)
-        }
-    };
+    let show = shown(r);
     println!(
         "claimed WACC {} | case WACC {} with {} = {}",
         percent(r.claimed_wacc, 3),
