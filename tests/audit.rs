@@ -406,6 +406,9 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
         report.contains("MISMATCH beta.peers_included: recorded 8 recomputed 7"),
         "{report}"
     );
+    // The dropped peer's price file is reported once, by the file checks.
+    assert!(report.contains("(no longer in the case)"), "{report}");
+    assert!(!report.contains("MISMATCH files["), "{report}");
 }
 
 // A receipt written by another version of hurdle still reproduces when every file and figure

@@ -125,7 +125,7 @@ impl Implied {
     /// `None` when nothing stands out.
     pub fn caution(&self) -> Option<String> {
         let value = self.value?;
-        let percent = |x: f64| format!("{:.2}%", x * 100.0);
+        let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
         use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
         let too_high = match self.target {
             Target::Erp | Target::SizePremium => USUAL_MAX_PREMIUM,

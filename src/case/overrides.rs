@@ -45,7 +45,10 @@ pub fn apply_override(table: &mut toml::Table, assignment: &str) -> Result<()> {
                 let rest =
                     named_entry(items, rest).unwrap_or_else(|| segments[depth + 1..].to_vec());
                 if rest.iter().any(|s| s.is_empty()) {
-                    return Err(not_a_path());
+                    return Err(fail(format!(
+                        "`{key}` names no `{here}` entry: no entry's name begins what follows \
+                         `{here}.`, and read as dotted segments one of them is empty"
+                    )));
                 }
                 return descend_array(items, &rest, value, &here).map_err(fail);
             }
@@ -69,17 +72,22 @@ pub fn apply_override(table: &mut toml::Table, assignment: &str) -> Result<()> {
 /// begins the text (then the dots split it as usual).
 fn named_entry<'a>(items: &[toml::Value], rest: &'a str) -> Option<Vec<&'a str>> {
     let rest = rest.trim_start();
-    let length = items
+    // Spaces may stand around the dot after the name, as around any segment.
+    let keys_after = |name: &str| {
+        let after = rest.strip_prefix(name)?;
+        let dot = after.len() - after.trim_start().len();
+        after
+            .trim_start()
+            .starts_with('.')
+            .then_some(name.len() + dot + 1)
+    };
+    let (length, keys) = items
         .iter()
         .filter_map(|item| item.get("name").and_then(|n| n.as_str()))
         .filter(|name| name.contains('.'))
-        .filter(|name| {
-            rest.strip_prefix(*name)
-                .is_some_and(|after| after.starts_with('.'))
-        })
-        .map(str::len)
-        .max()?;
-    let keys = rest[length + 1..].split('.').map(str::trim);
+        .filter_map(|name| keys_after(name).map(|keys| (name.len(), keys)))
+        .max_by_key(|(length, _)| *length)?;
+    let keys = rest[keys..].split('.').map(str::trim);
     Some(std::iter::once(&rest[..length]).chain(keys).collect())
 }
 
@@ -208,7 +216,7 @@ mod tests {
         .unwrap();
         apply_override(&mut table, "peer.Alder.Co.debt=20.0").unwrap();
         apply_override(&mut table, "peer.Alder.debt=10.0").unwrap();
-        apply_override(&mut table, "peer.Birch Inc..debt=30.0").unwrap();
+        apply_override(&mut table, "peer.Birch Inc. . debt=30.0").unwrap();
         let debts: Vec<f64> = table["peer"]
             .as_array()
             .unwrap()
@@ -216,9 +224,14 @@ mod tests {
             .map(|p| p["debt"].as_float().unwrap())
             .collect();
         assert_eq!(debts, [10.0, 20.0, 30.0]);
-        for bad in ["market..risk_free_rate=0.03", "peer.0..debt=1", "market.=1"] {
+        for bad in ["market..risk_free_rate=0.03", "market.=1"] {
             let error = apply_override(&mut table, bad).unwrap_err().to_string();
             assert!(error.contains("is not a dotted key path"), "{bad}: {error}");
+        }
+        // A misspelt name with a dot is named as no entry's, not as a malformed path.
+        for bad in ["peer.0..debt=1", "peer.Birch Ltd..debt=1"] {
+            let error = apply_override(&mut table, bad).unwrap_err().to_string();
+            assert!(error.contains("names no `peer` entry"), "{bad}: {error}");
         }
     }
 }

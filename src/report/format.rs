@@ -30,59 +30,49 @@ pub fn fixed(value: f64, decimals: usize) -> String {
     rounded(value, decimals)
 }
 
-/// `value` to `decimals` places as a spreadsheet shows it, so the memo, the charts and the
-/// terminal agree with the workbook's cells to the last digit shown: the value first taken to
-/// 15 significant digits (which removes the noise of `x·100`: 0.07025·100 is 7.0249999…96),
-/// then rounded half away from zero on those digits (0.04625 is 4.63%, where Rust's own
-/// formatting, exact on the binary value, gives 4.62%). A result of zero has no sign.
-fn rounded(value: f64, decimals: usize) -> String {
-    if !value.is_finite() {
-        return value.to_string();
-    }
-    let text = format!("{:.14e}", value.abs());
-    let (mantissa, exponent) = text.split_once('e').unwrap_or((&text, "0"));
-    let exponent: i64 = exponent.parse().unwrap_or(0);
-    let digits: Vec<u8> = mantissa.bytes().filter(u8::is_ascii_digit).collect();
-    // The 15 digits d₁…d₁₅ are |value| = 0.d₁…d₁₅ · 10^(exponent + 1); the leading `keep` of
-    // them are the integer |value| · 10^decimals, the next one decides the rounding.
-    let keep = exponent + 1 + decimals as i64;
-    let mut kept: Vec<u8> = (0..keep.max(0))
-        .map(|i| *digits.get(i as usize).unwrap_or(&b'0'))
-        .collect();
-    let next = usize::try_from(keep).ok().and_then(|k| digits.get(k));
-    if next.is_some_and(|&d| d >= b'5') {
-        let mut carry = true;
-        for digit in kept.iter_mut().rev() {
-            if *digit == b'9' {
-                *digit = b'0';
-            } else {
-                *digit += 1;
-                carry = false;
-                break;
-            }
-        }
-        if carry {
-            kept.insert(0, b'1');
-        }
-    }
-    // At least one digit before the point.
-    while kept.len() <= decimals {
-        kept.insert(0, b'0');
-    }
-    let point = kept.len() - decimals;
-    let whole = std::str::from_utf8(&kept[..point]).unwrap_or("0");
-    let fraction = std::str::from_utf8(&kept[point..]).unwrap_or("");
-    let zero = kept.iter().all(|&d| d == b'0');
-    let sign = if value < 0.0 && !zero { "-" } else { "" };
-    if decimals == 0 {
-        format!("{sign}{whole}")
-    } else {
-        format!("{sign}{whole}.{fraction}")
-    }
+/// Whether a case key holds an annual rate, a premium, a tax rate or a weight (a decimal shown
+/// as a percentage), by its last segment: a grid axis over it is labelled in percent.
+pub fn key_is_rate(key: &str) -> bool {
+    matches!(
+        key.rsplit('.').next().unwrap_or(key).trim(),
+        "risk_free_rate"
+            | "equity_risk_premium"
+            | "size"
+            | "country"
+            | "company_specific"
+            | "cost_pre_tax"
+            | "tax_rate"
+            | "cost"
+            | "weight"
+            | "inflation_case"
+            | "inflation_output"
+            | "debt_to_capital"
+    )
+}
+
+/// Whether a case key holds a count (periods, lags, days) or an amount (a peer's equity value,
+/// debt or cash): a grid axis over it is labelled as the number itself, with no decimals it
+/// does not need.
+pub fn key_is_count_or_amount(key: &str) -> bool {
+    matches!(
+        key.rsplit('.').next().unwrap_or(key).trim(),
+        "lookback"
+            | "min_observations"
+            | "dimson_lags"
+            | "dimson_leads"
+            | "newey_west_lags"
+            | "rolling_window"
+            | "rolling_step"
+            | "rolling_min_observations"
+            | "max_stale_days"
+            | "equity_value"
+            | "debt"
+            | "cash"
+    )
 }
 
 pub use crate::case::label;
-pub use crate::error::compact;
+pub use crate::error::{compact, rounded};
 
 #[cfg(test)]
 mod tests {
@@ -102,10 +92,10 @@ mod tests {
         assert_eq!(compact(0.0), "0");
     }
 
-    // Spreadsheet display rounding (half away from zero on 15 significant digits, as Excel and
-    // LibreOffice Calc show a cell; LibreOffice checked on 4.63% for 0.04625 in this project's
-    // workbook review): ties go up where Rust's exact binary formatting would go to even or
-    // down, and no negative zero appears.
+    // Excel's display rounding (half away from zero on 15 significant digits; from memory):
+    // ties go up where Rust's exact binary formatting would go to even or down, and no negative
+    // zero appears. LibreOffice Calc agrees on 0.04625 (4.63%) but shows 7.07% for 0.07075,
+    // rounding the binary value's shortest decimal (measured in this project's review).
     #[test]
     fn rounds_as_a_spreadsheet_shows() {
         assert_eq!(percent(0.04625, 2), "4.63%");

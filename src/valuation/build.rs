@@ -278,8 +278,17 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
             "cost_pre_tax",
         ),
     ];
+    // A sensitivity axis over the weight gives the cost weight in the grid's cells.
+    let axes = [&settings.sensitivity.rows, &settings.sensitivity.columns];
+    let on_an_axis = |section: &str| {
+        let weight = format!("{section}.weight");
+        axes.iter().any(|axis| {
+            axis.as_deref()
+                .is_some_and(|a| a.trim_start().starts_with(&weight))
+        })
+    };
     for (section, _, cost, key) in costs_without_weight.iter().filter(|c| c.1 == 0.0) {
-        if let Some(cost) = cost {
+        if let Some(cost) = cost.filter(|_| !on_an_axis(section)) {
             notes.push(format!(
                 "{section}.{key} = {cost} is not used: {section}.weight is 0, so the WACC gives \
                  it no weight."
@@ -315,8 +324,8 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
 /// flag, they do not refuse.
 fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
     use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
-    // Written as the memo writes a rate (the outputs' formatting lives above this layer).
-    let percent = |x: f64| format!("{:.2}%", x * 100.0);
+    // Written as the memo writes a rate, rounded as everywhere else.
+    let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
     let checks = [
         (
             cost.risk_free_rate > USUAL_MAX_RISK_FREE,

@@ -158,24 +158,34 @@ def toml_value(text):
 
 
 def apply_overrides(case, overrides):
-    """README, Commands, `--set`: the dotted path of the case key; inside [[peer]] the second
-    segment picks the peer by 0-based position or by name."""
+    """README, Commands, `--set`: the dotted path of the case key, spaces around each segment
+    ignored; inside [[peer]] the second segment picks the peer by 0-based position or by name,
+    and a name may hold dots (the longest name that begins the rest is the one picked)."""
     for assignment in overrides:
         key, text = assignment.split("=", 1)
-        table, path = case, key
-        if key.startswith("peer."):
-            rest = key[len("peer."):]
-            head, _, tail = rest.partition(".")
-            if head.isdigit():
-                table, path = case["peer"][int(head)], tail
+        key, text = key.strip(), text.strip()
+        table, segments = case, [s.strip() for s in key.split(".")]
+        if segments[0] == "peer":
+            rest = key.split(".", 1)[1].lstrip()
+            dotted = []
+            for p in case["peer"]:
+                name = p["name"]
+                after = rest[len(name):].lstrip() if "." in name and rest.startswith(name) else ""
+                if after.startswith("."):
+                    dotted.append((len(name), p, after[1:]))
+            if dotted:
+                _, table, tail = max(dotted, key=lambda d: d[0])
+                segments = [s.strip() for s in tail.split(".")]
             else:
-                names = [p for p in case["peer"] if rest.startswith(p["name"] + ".")]
-                if not names:
-                    names = [p for p in case["peer"] if rest.lower().startswith(p["name"].lower() + ".")]
-                assert names, f"override {assignment!r} names no peer of the case"
-                peer = max(names, key=lambda p: len(p["name"]))
-                table, path = peer, rest[len(peer["name"]) + 1:]
-        *parents, last = path.split(".")
+                head = segments[1]
+                if head.isdigit():
+                    table = case["peer"][int(head)]
+                else:
+                    named = [p for p in case["peer"] if p["name"] == head]
+                    assert named, f"override {assignment!r} names no peer of the case"
+                    table = named[0]
+                segments = segments[2:]
+        *parents, last = segments
         for p in parents:
             table = table.setdefault(p, {})
         table[last] = toml_value(text)

@@ -90,7 +90,9 @@ def toml_value(text):
 def apply_sets(config, sets):
     for assignment in sets:
         key, value = assignment.split("=", 1)
-        *parents, last = key.split(".")
+        # Spaces around the key, its segments and the value are ignored, as hurdle does.
+        value = value.strip()
+        *parents, last = [s.strip() for s in key.strip().split(".")]
         table = config
         for p in parents:
             table = table.setdefault(p, {})

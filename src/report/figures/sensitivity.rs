@@ -15,19 +15,18 @@ use super::{Figure, Kind};
 use crate::audit::grid::{Axis, Grid};
 use crate::case::Metric;
 use crate::error::Result;
-use crate::report::format::{fixed, percent};
+use crate::report::format::{fixed, key_is_count_or_amount, key_is_rate, percent};
 use crate::valuation::Valuation;
 
 const WIDTH: u32 = 720;
 const CELL_HEIGHT: u32 = 46;
 
-/// The axis's values as written: rates as percentages, ratios and betas as decimals, with the
-/// fewest decimals that write every value exactly.
+/// The axis's values as written: rates as percentages, counts and amounts as whole numbers
+/// when they are whole, ratios and betas as decimals (at least two), with the fewest decimals
+/// that write every value exactly.
 fn value_labels(axis: &Axis) -> Vec<String> {
-    let ratio = ["debt_to_equity", "beta", "country_exposure"]
-        .iter()
-        .any(|k| axis.key.contains(k));
-    let scale = if ratio { 1.0 } else { 100.0 };
+    let rate = key_is_rate(&axis.key);
+    let scale = if rate { 100.0 } else { 1.0 };
     let decimals = (0..=6)
         .find(|&d| {
             let p = 10f64.powi(d) * scale;
@@ -36,13 +35,18 @@ fn value_labels(axis: &Axis) -> Vec<String> {
                 .all(|v| ((v * p).round() - v * p).abs() < 1e-6)
         })
         .unwrap_or(6) as usize;
+    let least = if key_is_count_or_amount(&axis.key) {
+        0
+    } else {
+        2
+    };
     axis.values
         .iter()
         .map(|&v| {
-            if ratio {
-                fixed(v, decimals.max(2))
-            } else {
+            if rate {
                 percent(v, decimals.max(1))
+            } else {
+                fixed(v, decimals.max(least))
             }
         })
         .collect()

@@ -157,22 +157,8 @@ fn sensitivity(
     // has (up to four decimals of a percent), anything else (a D/E, a lookback, an amount) as
     // the number itself.
     let axis_format = |key: &str| {
-        let last = key.rsplit('.').next().unwrap_or(key);
-        let rate = key.starts_with("premiums.")
-            || [
-                "risk_free_rate",
-                "equity_risk_premium",
-                "cost_pre_tax",
-                "cost_of_debt",
-                "tax_rate",
-                "cost",
-                "weight",
-                "inflation_from",
-                "inflation_to",
-            ]
-            .contains(&last);
         let format = header.clone();
-        match rate {
+        match crate::report::format::key_is_rate(key) {
             true => format.set_num_format("0.00##%"),
             false => format.set_num_format("General"),
         }
