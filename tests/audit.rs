@@ -770,6 +770,39 @@ fn compare_names_the_unexplained_part_of_either_claim() {
     assert!(!report.contains("preferred"), "{report}");
 }
 
+// A grid axis over a setting the case does not use (Newey–West lags under the demo's classical
+// standard errors) gives equal rows, and the grid says so; axes that move the WACC get no note.
+#[test]
+fn a_grid_axis_that_changes_nothing_is_noted() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let grid = |rows: &str| {
+        let output = hurdle(&[
+            "grid",
+            case.to_str().unwrap(),
+            "--rows",
+            rows,
+            "--cols",
+            "market.equity_risk_premium=0.05..0.06:0.005",
+            "--csv",
+            dir.path().join("grid.csv").to_str().unwrap(),
+        ]);
+        assert!(output.status.success(), "{}", text(&output));
+        text(&output)
+    };
+    let unused = grid("beta.newey_west_lags=1..3:1");
+    assert!(
+        unused.contains("note: the WACC does not move along beta.newey_west_lags"),
+        "{unused}"
+    );
+    assert!(
+        !unused.contains("along market.equity_risk_premium"),
+        "{unused}"
+    );
+    let used = grid("target.debt_to_equity=0.2..0.6:0.2");
+    assert!(!used.contains("does not move"), "{used}");
+}
+
 // A grid cell is exactly the run with the same two --set values: same computation, so the
 // same bits.
 #[test]

@@ -73,6 +73,16 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     for (reason, cells) in reasons {
         out.push_str(&format!("n/a at {}: {reason}\n", cells.join(", ")));
     }
+    let figure = match table.metric {
+        hurdle::case::Metric::Wacc => "WACC",
+        hurdle::case::Metric::CostOfEquity => "cost of equity",
+    };
+    for key in table.unmoved_axes() {
+        out.push_str(&format!(
+            "note: the {figure} does not move along {key}: under the case's settings it changes \
+             nothing (`hurdle run` notes the settings a case gives but does not use)\n"
+        ));
+    }
     print!("{out}");
     let path = args
         .csv

@@ -55,6 +55,33 @@ impl Grid {
         self.cells.iter().flatten().flatten().copied()
     }
 
+    /// The keys of the axes along which no computed figure changes (each axis with at least
+    /// two values, and at least two computed cells to compare along it): under the case's
+    /// settings such a key changes nothing, for instance Newey–West lags with classical
+    /// standard errors.
+    pub fn unmoved_axes(&self) -> Vec<&str> {
+        let along_rows = (0..self.columns.values.len())
+            .map(|c| self.cells.iter().map(move |row| row[c]).collect::<Vec<_>>());
+        let along_columns = self.cells.iter().cloned();
+        let unmoved = |mut lines: Box<dyn Iterator<Item = Vec<Option<f64>>> + '_>| {
+            let mut compared = false;
+            let flat = lines.all(|line| {
+                let values: Vec<f64> = line.into_iter().flatten().collect();
+                compared |= values.len() > 1;
+                values.windows(2).all(|pair| pair[0] == pair[1])
+            });
+            flat && compared
+        };
+        let mut keys = Vec::new();
+        if self.rows.values.len() > 1 && unmoved(Box::new(along_rows)) {
+            keys.push(self.rows.key.as_str());
+        }
+        if self.columns.values.len() > 1 && unmoved(Box::new(along_columns)) {
+            keys.push(self.columns.key.as_str());
+        }
+        keys
+    }
+
     /// Why the case refuses cell (`row`, `column`), if it does.
     pub fn refusal(&self, row: usize, column: usize) -> Option<&str> {
         self.refused
