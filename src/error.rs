@@ -4,6 +4,8 @@
 //! template line) and the offending value, because the person reading the message is usually an
 //! analyst fixing an input file, not a programmer reading a stack trace.
 
+mod plain;
+
 use std::path::PathBuf;
 
 /// Everything that can go wrong between a case file and a finished valuation.
@@ -211,8 +213,9 @@ pub fn one_line(text: &str) -> String {
 /// wrong`, instead of the parser's multi-line drawing of the line with a caret. The line is
 /// counted from 1 as an editor shows it; the column in characters, from 1.
 pub fn toml_error(error: &toml::de::Error, source: &str) -> String {
-    let message = &plain_type_message(error.message().trim_end());
-    let Some(place) = place_of(error, source) else {
+    let place = place_of(error, source);
+    let message = &plain::plain_message(error.message().trim_end(), place.as_ref().map(|p| p.text));
+    let Some(place) = place else {
         return message.to_string();
     };
     // Long lines (a list of peers' names, a long title) are shortened to their start.
@@ -270,35 +273,9 @@ pub fn toml_error_in_table<T: serde::de::DeserializeOwned>(
         Some(place) => format!(
             "`{}`: {}",
             place.text,
-            plain_type_message(error.message().trim_end())
+            plain::plain_message(error.message().trim_end(), Some(place.text))
         ),
         None => fallback,
-    }
-}
-
-/// serde's type message in the case file's terms: a number given as quoted text (a placeholder
-/// filled inside its quotes, `"0.0324"` or `"5.5%"`) gets how to write it; a table where a
-/// value was given is named as a table, not by the program's type name (`struct Market`).
-fn plain_type_message(message: &str) -> String {
-    let quoted_number = message.starts_with("invalid type: string")
-        && [
-            "expected f64",
-            "expected u32",
-            "expected u64",
-            "expected usize",
-            "expected i64",
-        ]
-        .iter()
-        .any(|e| message.ends_with(e));
-    if quoted_number {
-        return format!(
-            "{message}: a number is written without quotes (0.0324, not \"0.0324\"), and a rate \
-             as a decimal (0.055 for 5.5%)"
-        );
-    }
-    match message.find("expected struct ") {
-        Some(at) => format!("{}expected a table of keys", &message[..at]),
-        None => message.to_string(),
     }
 }
 
@@ -318,15 +295,16 @@ mod tests {
         let error = toml::from_str::<Shape>(text).unwrap_err();
         assert_eq!(
             super::toml_error(&error, text),
-            "line 2, column 8 (`rate = \"0.05\"`): invalid type: string \"0.05\", expected f64: \
-             a number is written without quotes (0.0324, not \"0.0324\"), and a rate as a decimal \
-             (0.055 for 5.5%)"
+            "line 2, column 8 (`rate = \"0.05\"`): \"0.05\" is not a number: a number is \
+             written without quotes (0.0324, not \"0.0324\")"
         );
         let text = "rate = 0.05\n\nratee = 1\n";
         let error = toml::from_str::<Shape>(text).unwrap_err();
         let message = super::toml_error(&error, text);
         assert!(
-            message.starts_with("line 3, column 1 (`ratee = 1`): unknown field `ratee`"),
+            message.starts_with(
+                "line 3, column 1 (`ratee = 1`): unknown key `ratee`: did you mean `rate`?"
+            ),
             "{message}"
         );
     }

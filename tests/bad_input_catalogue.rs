@@ -266,7 +266,7 @@ fn price_files() -> Vec<Bad> {
             "empty price path",
             |s| s.edit_case("data/peers/dunmere.csv", ""),
             ["run", "{case}", "--out", "{out}"],
-            ["peer.2.prices", "\"\" is empty"]
+            ["peer.2.prices", "= \"\" (missing or empty)"]
         ),
         bad!(
             "price path is a folder",
@@ -378,7 +378,14 @@ fn price_files() -> Vec<Bad> {
                 s.write(PEER, wide);
             },
             ["run", "{case}", "--out", "{out}"],
-            [PEER, "line 1", "0xFF", "UTF-8"]
+            [PEER, "UTF-16", "not CSV text", "UTF-8"]
+        ),
+        bad!(
+            "a workbook given as a price file",
+            // An .xlsx is a ZIP archive: its first bytes are the ZIP signature.
+            |s| s.write(PEER, b"PK\x03\x04\x14\x00\x06\x00rest of a workbook"),
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "workbook", "not CSV text"]
         ),
         bad!(
             "compressed file",
@@ -1135,7 +1142,7 @@ fn case_files() -> Vec<Bad> {
             ["run", "{case}", "--out", "{out}"],
             [
                 "case.toml",
-                "{next}, column 1 (`lookbak = 60`): unknown field `lookbak`"
+                "{next}, column 1 (`lookbak = 60`): unknown key `lookbak`: did you mean `lookback`?"
             ]
         ),
         bad!(
@@ -1161,6 +1168,30 @@ fn case_files() -> Vec<Bad> {
             |s| set_case_key(s, "risk_free_rate", "3.8"),
             ["run", "{case}", "--out", "{out}"],
             ["market.risk_free_rate", "3.8", "0.038 for 3.8%"]
+        ),
+        bad!(
+            "rate with a percent sign",
+            |s| set_case_key(s, "risk_free_rate", "2.67%"),
+            ["run", "{case}", "--out", "{out}"],
+            ["line 11", "2.67% is not a number", "0.0267 for 2.67%"]
+        ),
+        bad!(
+            "rate with a decimal comma",
+            |s| set_case_key(s, "risk_free_rate", "0,0267"),
+            ["run", "{case}", "--out", "{out}"],
+            ["line 11", "0,0267 is not a number", "decimal point"]
+        ),
+        bad!(
+            "typographic quotes",
+            |s| s.edit_case("currency = \"EUR\"", "currency = “EUR”"),
+            ["run", "{case}", "--out", "{out}"],
+            ["line 8", "“EUR”", "straight quotes"]
+        ),
+        bad!(
+            "a day-first date",
+            |s| s.edit_case("valuation_date = 2026-09-30", "valuation_date = 30/09/2026"),
+            ["run", "{case}", "--out", "{out}"],
+            ["line 7", "30/09/2026", "YYYY-MM-DD"]
         ),
         bad!(
             "NaN rate",
@@ -1525,6 +1556,18 @@ fn case_files() -> Vec<Bad> {
             ["nowhere.toml", "No such file"]
         ),
         bad!(
+            "a price file given as the case",
+            nothing,
+            ["run", "{dir}/data/index.csv", "--out", "{out}"],
+            ["index.csv", "CSV table", "date,price"]
+        ),
+        bad!(
+            "a claimed build-up given as the case",
+            nothing,
+            ["run", "{dir}/claimed.toml", "--out", "{out}"],
+            ["claimed.toml", "claimed build-up", "hurdle compare"]
+        ),
+        bad!(
             "case file is a folder",
             nothing,
             ["run", "{dir}/data", "--out", "{out}"],
@@ -1534,7 +1577,7 @@ fn case_files() -> Vec<Bad> {
             "empty case file",
             |s| s.write("case.toml", ""),
             ["run", "{case}", "--out", "{out}"],
-            ["case.toml", "missing field"]
+            ["case.toml", "the file is empty"]
         ),
         bad!(
             "uncertainty range reversed",

@@ -82,6 +82,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         source,
     })?;
     let text = String::from_utf8_lossy(&bytes);
+    crate::case::sanity::empty_or_csv(&text).map_err(fail)?;
     let table: toml::Table =
         toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
     if !table.contains_key("claimed") {

@@ -12,7 +12,7 @@ pub mod text;
 use super::{CaseDate, CaseFile, DebtSource, TargetSource};
 use crate::error::compact as show;
 
-pub use text::{check_case_text, check_claimed_text};
+pub use text::{check_case_text, check_claimed_text, empty_or_csv};
 
 /// Most Monte Carlo draws: about five seconds on one core. On the demo case the median's own
 /// sampling error (1.2533·σ/√n, the asymptotic SE of a sample median) is 0.1 bp of WACC at a
@@ -142,7 +142,11 @@ fn check_paths(case: &CaseFile) -> std::result::Result<(), String> {
         paths.push(("reconcile.claimed".into(), &reconcile.claimed));
     }
     match paths.iter().find(|(_, path)| path.trim().is_empty()) {
-        Some((key, _)) => Err(format!("{key} = \"\" is empty: give the path of the file")),
+        // A key left out reads as empty too (a series may name a `source` instead of a file).
+        Some((key, _)) => Err(format!(
+            "{key} = \"\" (missing or empty): give the path of the file (or, for a series, a \
+             source and column)"
+        )),
         None => Ok(()),
     }
 }

@@ -126,6 +126,16 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         line,
         message,
     };
+    if let Some(kind) = binary_kind(bytes) {
+        return Err(Error::DataFile {
+            file: file.to_path_buf(),
+            message: format!(
+                "the file is {kind}, not CSV text: save it as CSV (comma-separated, UTF-8), \
+                 or, where hurdle reads workbooks or Parquet (a [sources.NAME] table, a \
+                 universe's panel), name the file with its own extension"
+            ),
+        });
+    }
     let whole = bytes.len();
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let bom = whole - bytes.len();
@@ -199,6 +209,24 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         }
     }
     Ok(blank)
+}
+
+/// What a file given where CSV text belongs is, by its first bytes (the formats' published
+/// signatures): an Excel workbook (.xlsx is a ZIP archive, "PK\x03\x04"; .xls an OLE compound
+/// file, D0 CF 11 E0), a Parquet file ("PAR1"), or text saved as UTF-16 (a byte-order mark
+/// FF FE or FE FF, as "Unicode text" exports write).
+fn binary_kind(bytes: &[u8]) -> Option<&'static str> {
+    if bytes.starts_with(b"PK\x03\x04") {
+        Some("a workbook or another ZIP archive (.xlsx, .ods)")
+    } else if bytes.starts_with(&[0xD0, 0xCF, 0x11, 0xE0]) {
+        Some("an old Excel workbook (.xls)")
+    } else if bytes.starts_with(b"PAR1") {
+        Some("a Parquet file")
+    } else if bytes.starts_with(&[0xFF, 0xFE]) || bytes.starts_with(&[0xFE, 0xFF]) {
+        Some("text saved as UTF-16 (\"Unicode text\")")
+    } else {
+        None
+    }
 }
 
 /// The message for a byte that is not UTF-8 text, at its 1-based column in its line.

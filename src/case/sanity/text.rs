@@ -179,11 +179,60 @@ fn non_finite_in_document(text: &str, scalars: &[Located<'_, '_>]) -> Option<Str
     })
 }
 
+/// A file given where a case belongs that is plainly something else: an empty file, a CSV
+/// table (a header of comma-separated names and no `key = value` line), or a claimed build-up
+/// (a `[claimed]` table and no `[case]`). Each is named as what it is, with the command that
+/// takes it, instead of as a case that lacks every key.
+fn other_kind_of_file(text: &str) -> std::result::Result<(), String> {
+    empty_or_csv(text)?;
+    let lines: Vec<&str> = (text.lines().map(str::trim))
+        .filter(|l| !l.is_empty() && !l.starts_with('#'))
+        .collect();
+    let tables: Vec<&str> = (lines.iter())
+        .filter_map(|l| l.strip_prefix('[')?.split(']').next())
+        .map(str::trim)
+        .collect();
+    if tables.contains(&"claimed") && !tables.contains(&"case") {
+        return Err(
+            "this is a claimed build-up ([claimed]), not a case: bridge it to a case \
+                    with `hurdle compare CASE.toml CLAIM.toml`, or name it in a case's \
+                    [reconcile] claimed"
+                .into(),
+        );
+    }
+    Ok(())
+}
+
+/// An empty file, or a CSV table (a header of comma-separated names and no `key = value`
+/// line), given where a case or a claimed build-up belongs.
+pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
+    let lines: Vec<&str> = (text.lines().map(str::trim))
+        .filter(|l| !l.is_empty() && !l.starts_with('#'))
+        .collect();
+    let Some(first) = lines.first() else {
+        return Err(
+            "the file is empty: a case is a TOML file (`hurdle init` starts one from a price \
+             table; README, Starting a case from a price table)"
+                .into(),
+        );
+    };
+    if first.contains(',') && !lines.iter().any(|l| l.contains('=') || l.starts_with('[')) {
+        return Err(format!(
+            "this is a CSV table (its first line is `{}`), not a case or claim: a case is a \
+             TOML file that names its price files (README, Case file reference); `hurdle init` \
+             starts one from a price table",
+            first.chars().take(40).collect::<String>()
+        ));
+    }
+    Ok(())
+}
+
 /// Checks on a case file's text before it is parsed into settings: `[peer]` written for
 /// `[[peer]]`, NaN or infinity anywhere (with the line), and `beta.window_start` written
 /// together with `beta.lookback` (refused: both would set the window's start). Syntax errors are
 /// left to the TOML parser, whose messages already carry the line.
 pub fn check_case_text(text: &str) -> std::result::Result<(), String> {
+    other_kind_of_file(text)?;
     for (i, line) in text.lines().enumerate() {
         let header = line.trim();
         let single = header.starts_with('[') && !header.starts_with("[[");

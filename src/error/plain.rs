@@ -1,0 +1,329 @@
+//! The TOML reader's and serde's messages in a case file's own terms.
+//!
+//! An analyst who typed `2.67%`, `2,400.0`, `“EUR”` or `30/09/2026` into a case file, or gave a
+//! list where text belongs, should read what to write instead, not the parser's grammar
+//! (`invalid float, expected nothing`) or a program's type names (`expected u32`). Each rule
+//! keeps the parser's own words after its explanation only where they add something.
+
+/// `message` (from the TOML reader or serde) rewritten for a person; `line` is the text of the
+/// line the error points at, when known, whose value suggests the likelier cause.
+pub(super) fn plain_message(message: &str, line: Option<&str>) -> String {
+    if let Some(plain) = type_message(message).or_else(|| key_message(message)) {
+        return plain;
+    }
+    match line.and_then(line_hint) {
+        Some(hint) => format!("{hint} ({message})"),
+        None if message == "duplicate key" => {
+            "this key (or table) is given twice; keep one".to_string()
+        }
+        None if message == "wanted string or table" => "this key takes one of its named values, \
+                                                         written in quotes (README, Case file \
+                                                         reference, lists them)"
+            .to_string(),
+        None => match message.find("expected struct ") {
+            Some(at) => format!("{}expected a table of keys", &message[..at]),
+            None => message.to_string(),
+        },
+    }
+}
+
+/// What the value of a line that failed to parse most likely holds: typographic quotes, a
+/// percent sign, a decimal comma or thousands separator, a day-first date, or nothing at all.
+fn line_hint(line: &str) -> Option<String> {
+    // The value without a comment after it (a `#` inside quotes is rare in a line that failed).
+    let value = line.split_once('=').map_or("", |(_, v)| v);
+    let value = value.split('#').next().unwrap_or_default().trim();
+    if line.contains(['“', '”', '‘', '’']) {
+        return Some(
+            "the line uses typographic quotes (“ ” or ‘ ’), as a word processor writes them; \
+             write straight quotes (\")"
+                .to_string(),
+        );
+    }
+    if line.contains('=') && (value.is_empty() || value.starts_with('#')) {
+        return Some("the key has no value".to_string());
+    }
+    let digits = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
+    if value.ends_with('%') && value[..value.len() - 1].trim().parse::<f64>().is_ok() {
+        return Some(format!(
+            "{value} is not a number: write a rate as a decimal, without the % sign (0.0267 for \
+             2.67%)"
+        ));
+    }
+    let date_parts: Vec<&str> = value.split(['/', '.']).collect();
+    if date_parts.len() == 3 && date_parts.iter().all(|p| digits(p)) {
+        return Some(format!(
+            "{value} is not a date hurdle reads: write dates year first, YYYY-MM-DD \
+             (2026-09-30), without quotes"
+        ));
+    }
+    if value.contains(',') && value.split(',').all(|p| p.trim().parse::<f64>().is_ok()) {
+        return Some(format!(
+            "{value} is not a number: numbers take a decimal point and no thousands separator \
+             (2400.0, 0.0267)"
+        ));
+    }
+    None
+}
+
+/// serde's "invalid type" and "invalid value" messages: what the key takes, in words.
+fn type_message(message: &str) -> Option<String> {
+    let rest = message
+        .strip_prefix("invalid type: ")
+        .or_else(|| message.strip_prefix("invalid value: "))?;
+    let (found, expected) = rest.split_once(", expected ")?;
+    let whole = matches!(expected, "u32" | "u64" | "usize" | "i64");
+    let number = whole || expected == "f64";
+    if let Some(text) = found
+        .strip_prefix("string \"")
+        .and_then(|t| t.strip_suffix('"'))
+        .filter(|_| number)
+    {
+        let advice = if text.trim_end().ends_with('%') {
+            "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
+        } else if text.contains(',') {
+            "numbers take a decimal point and no thousands separator (2400.0, 0.0267)"
+        } else if text.trim().parse::<f64>().is_ok() {
+            "a number is written without quotes (0.0324, not \"0.0324\")"
+        } else if whole {
+            "this key takes a whole number"
+        } else {
+            "this key takes a number; a rate as a decimal (0.055 for 5.5%)"
+        };
+        return Some(format!("\"{text}\" is not a number: {advice}"));
+    }
+    if whole {
+        let value = found
+            .trim_start_matches("floating point ")
+            .trim_start_matches("integer ")
+            .trim_matches('`');
+        let why = if found.starts_with("floating point") {
+            "is not a whole number: this key takes a whole number"
+        } else if found.starts_with("integer") {
+            "is out of range for this key (a count: at least 0, and not in the billions)"
+        } else {
+            "is not a number: this key takes a whole number"
+        };
+        return Some(format!("{value} {why}"));
+    }
+    let shown = found
+        .split_once(' ')
+        .map_or(found, |(_, v)| v)
+        .trim_matches('`');
+    let what = match expected {
+        "a sequence" => "a list, written in brackets: [\"2023-03-31\"] or [\"low_r_squared\"]",
+        "a string" => "text, written in quotes (\"…\")",
+        "a boolean" => "true or false",
+        "f64" => "a number; a rate as a decimal (0.055 for 5.5%)",
+        "a date" | "local date" => "a date, YYYY-MM-DD without quotes (2026-09-30)",
+        e if e.starts_with("struct ") || e == "a table" => "a table of keys",
+        _ => return None,
+    };
+    Some(format!(
+        "{shown} is not what this key takes: it takes {what}"
+    ))
+}
+
+/// serde's "unknown field", "unknown variant" and "missing field": the key or value named,
+/// with the likeliest intended one when a near spelling exists.
+fn key_message(message: &str) -> Option<String> {
+    if let Some(field) = message
+        .strip_prefix("missing field `")
+        .and_then(|r| r.strip_suffix('`'))
+    {
+        const TABLES: [&str; 12] = [
+            "case",
+            "market",
+            "index",
+            "beta",
+            "leverage",
+            "target",
+            "premiums",
+            "universe",
+            "panel",
+            "attributes",
+            "claimed",
+            "conversion",
+        ];
+        return Some(match field {
+            "peer" => "there is no [[peer]] table: a case needs at least one peer".to_string(),
+            // A peer's key and a table of the case share this name.
+            "debt" => "`debt` is missing here: a peer's debt (`debt = …` in its [[peer]] \
+                       table) or the case's [debt] table (README, Case file reference)"
+                .to_string(),
+            table if TABLES.contains(&table) => {
+                format!("the table [{table}] is missing (README, Case file reference)")
+            }
+            key => format!(
+                "the key `{key}` is missing here: add `{key} = …` (README, Case file reference)"
+            ),
+        });
+    }
+    let (kind, rest) = if let Some(rest) = message.strip_prefix("unknown field `") {
+        ("key", rest)
+    } else {
+        ("value", message.strip_prefix("unknown variant `")?)
+    };
+    let (given, choices) = rest.split_once("`, expected ")?;
+    let choices: Vec<&str> = choices
+        .trim_start_matches("one of ")
+        .split(", ")
+        .map(|c| c.trim_matches('`'))
+        .collect();
+    let list = choices.join(", ");
+    if let Some(lower) = choices.iter().find(|c| c.eq_ignore_ascii_case(given)) {
+        return Some(format!(
+            "unknown {kind} `{given}`: write it in lower case, `{lower}`"
+        ));
+    }
+    let near = choices
+        .iter()
+        .map(|c| (edit_distance(given, c), *c))
+        .filter(|(d, c)| *d <= 2.max(c.len() / 4))
+        .min_by_key(|(d, _)| *d);
+    Some(match near {
+        Some((_, c)) => format!("unknown {kind} `{given}`: did you mean `{c}`?"),
+        None => format!("unknown {kind} `{given}`; here: {list}"),
+    })
+}
+
+/// Levenshtein distance of two short names, for "did you mean".
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut row: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut diagonal = row[0];
+        row[0] = i + 1;
+        for (j, cb) in b.iter().enumerate() {
+            let above = row[j + 1];
+            row[j + 1] = (above + 1)
+                .min(row[j] + 1)
+                .min(diagonal + usize::from(ca != *cb));
+            diagonal = above;
+        }
+    }
+    row[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Levenshtein distances worked by hand: kitten → sitting is 3 (the textbook example), one
+    // dropped letter is 1.
+    #[test]
+    fn edit_distances() {
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
+        assert_eq!(edit_distance("lookbak", "lookback"), 1);
+        assert_eq!(edit_distance("", "abc"), 3);
+    }
+
+    #[test]
+    fn everyday_typing_is_explained() {
+        let cases = [
+            (
+                "invalid float, expected nothing",
+                "risk_free_rate = 2.67%",
+                "without the % sign",
+            ),
+            (
+                "invalid float, expected nothing",
+                "risk_free_rate = 2.67%  # a comment",
+                "2.67% is not",
+            ),
+            (
+                "wanted string or table",
+                "frequency = 3",
+                "named values, written in quotes",
+            ),
+            (
+                "invalid float, expected nothing",
+                "valuation_date = 30.09.2026",
+                "YYYY-MM-DD",
+            ),
+            (
+                "string values must be quoted, expected literal string",
+                "valuation_date = 30/09/2026",
+                "YYYY-MM-DD",
+            ),
+            (
+                "unexpected key or value, expected newline, `#`",
+                "risk_free_rate = 0,0267",
+                "decimal point",
+            ),
+            (
+                "string values must be quoted, expected literal string",
+                "currency = “EUR”",
+                "straight quotes",
+            ),
+            (
+                "string values must be quoted, expected literal string",
+                "equity_risk_premium = ",
+                "no value",
+            ),
+            ("duplicate key", "", "given twice"),
+            (
+                "invalid type: string \"3.2%\", expected f64",
+                "",
+                "without the % sign",
+            ),
+            (
+                "invalid type: string \"2,400\", expected f64",
+                "",
+                "thousands separator",
+            ),
+            (
+                "invalid type: string \"0.05\", expected f64",
+                "",
+                "without quotes",
+            ),
+            (
+                "invalid type: floating point `36.5`, expected u32",
+                "",
+                "36.5 is not a whole number",
+            ),
+            (
+                "invalid value: integer `5000000000`, expected u32",
+                "",
+                "5000000000 is out of range",
+            ),
+            (
+                "invalid type: string \"2023-03-31\", expected a sequence",
+                "",
+                "a list, written in brackets",
+            ),
+            (
+                "invalid type: boolean `true`, expected a string",
+                "",
+                "true is not what this key takes: it takes text",
+            ),
+            (
+                "unknown field `lookbak`, expected one of `frequency`, `lookback`",
+                "",
+                "did you mean `lookback`?",
+            ),
+            (
+                "unknown variant `Monthly`, expected one of `daily`, `monthly`",
+                "",
+                "lower case, `monthly`",
+            ),
+            (
+                "unknown variant `average`, expected one of `median`, `mean`",
+                "",
+                "unknown value `average`; here: median, mean",
+            ),
+            ("missing field `debt`", "", "a peer's debt (`debt = …`"),
+            (
+                "missing field `tax_rate`",
+                "",
+                "the key `tax_rate` is missing here",
+            ),
+            ("missing field `case`", "", "the table [case] is missing"),
+            ("missing field `peer`", "", "no [[peer]] table"),
+        ];
+        for (message, line, expected) in cases {
+            let plain = plain_message(message, Some(line).filter(|l| !l.is_empty()));
+            assert!(plain.contains(expected), "{message} / {line}: {plain}");
+        }
+    }
+}
