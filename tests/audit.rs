@@ -768,6 +768,21 @@ fn compare_names_the_unexplained_part_of_either_claim() {
         "{report}"
     );
     assert!(!report.contains("preferred"), "{report}");
+    // bridge.csv: a first row for the starting claim's own gap and a last one for the other's,
+    // so the rows add up to the gap between the two stated WACCs, 9.35% − 8.00% (1e-15: a sum
+    // of nine doubles of order 0.01).
+    let csv = std::fs::read_to_string(dir.path().join("out/bridge.csv")).unwrap();
+    let rows: Vec<&str> = csv.lines().skip(1).collect();
+    assert!(rows[0].starts_with("unexplained at the start"), "{csv}");
+    assert!(
+        rows[rows.len() - 1].starts_with("unexplained (the claim's"),
+        "{csv}"
+    );
+    let sum: f64 = rows
+        .iter()
+        .map(|l| l.rsplit(',').nth(1).unwrap().parse::<f64>().unwrap())
+        .sum();
+    assert!((sum - (0.0935 - 0.08)).abs() < 1e-15, "{sum}");
 }
 
 // A grid axis over a setting the case does not use (Newey–West lags under the demo's classical
@@ -1191,4 +1206,43 @@ fn implied_values_no_one_could_defend_are_cautioned() {
         "{}",
         text(&low)
     );
+    // Debt cheaper than the riskless rate, and a riskless rate above the debt's cost: each
+    // solved value is compared with the case's other rate (result.json), and cautioned.
+    let risk_free = number(&result, "risk_free_rate");
+    let cost_of_debt = number(&result, "cost_of_debt_pre_tax");
+    for (claim, solve, key, caution) in [
+        (
+            "0.066",
+            "cost_of_debt",
+            "debt.cost_pre_tax=",
+            "below the case's risk-free rate",
+        ),
+        (
+            "0.0935",
+            "risk_free",
+            "market.risk_free_rate=",
+            "above the case's pre-tax cost of debt",
+        ),
+    ] {
+        let output = hurdle(&[
+            "implied",
+            case.to_str().unwrap(),
+            "--wacc",
+            claim,
+            "--solve",
+            solve,
+        ]);
+        let report = text(&output);
+        let value: f64 = report
+            .split(key)
+            .nth(1)
+            .and_then(|rest| rest.split_whitespace().next())
+            .and_then(|v| v.parse().ok())
+            .expect("the exact --set value");
+        match solve {
+            "cost_of_debt" => assert!(value < risk_free, "{report}"),
+            _ => assert!(value > cost_of_debt, "{report}"),
+        }
+        assert!(report.contains(caution), "{report}");
+    }
 }

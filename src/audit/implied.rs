@@ -116,12 +116,18 @@ pub struct Implied {
     pub searched: usize,
     /// The case's own cost of equity, which a solved cost of debt should stay below.
     pub base_cost_of_equity: f64,
+    /// The case's risk-free rate, which a solved cost of debt should stay above, and its
+    /// pre-tax cost of debt when the case gives it (a table's cost moves with the rate), which
+    /// a solved risk-free rate should stay below.
+    pub base_risk_free_rate: f64,
+    pub base_cost_of_debt: Option<f64>,
 }
 
 impl Implied {
     /// Why the value found, though it reproduces the claim, is hard to defend: a negative
-    /// premium, rate or beta, a figure far above the usual (the bounds the run's notes use), or
-    /// a pre-tax cost of debt above the case's cost of equity (debt ranks ahead of equity).
+    /// premium, rate or beta, a figure far above the usual (the bounds the run's notes use), a
+    /// pre-tax cost of debt below the risk-free rate or above the case's cost of equity (debt
+    /// ranks ahead of equity), or a risk-free rate above the case's given cost of debt.
     /// `None` when nothing stands out.
     pub fn caution(&self) -> Option<String> {
         let value = self.value?;
@@ -148,6 +154,21 @@ impl Implied {
             ))
         } else if value > too_high {
             Some(format!("{what} far above what such a figure usually is"))
+        } else if self.target == Target::CostOfDebt && value < self.base_risk_free_rate {
+            Some(format!(
+                "a pre-tax cost of debt below the case's risk-free rate ({}): no lender takes \
+                 less than the riskless rate",
+                percent(self.base_risk_free_rate)
+            ))
+        } else if let Some(kd) = self
+            .base_cost_of_debt
+            .filter(|kd| self.target == Target::RiskFree && value > *kd)
+        {
+            Some(format!(
+                "a risk-free rate above the case's pre-tax cost of debt ({}): the debt would pay \
+                 less than the riskless rate",
+                percent(kd)
+            ))
         } else if self.target == Target::CostOfDebt && value > self.base_cost_of_equity {
             Some(format!(
                 "a pre-tax cost of debt above the case's cost of equity ({}): debt ranks ahead \
@@ -240,6 +261,9 @@ pub fn implied(
         refused_at_edge: scan.refused_at_edge,
         searched: scan.searched,
         base_cost_of_equity: base.cost.cost_of_equity,
+        base_risk_free_rate: base.cost.risk_free_rate,
+        base_cost_of_debt: (inputs.case.settings.debt.source == crate::case::DebtSource::Given)
+            .then_some(base.cost.cost_of_debt_pre_tax),
     })
 }
 

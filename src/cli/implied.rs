@@ -127,13 +127,14 @@ fn print_all(
     }
     if found == 0 {
         println!("no single input reproduces the claim within its range");
-        ExitCode::from(1)
-    } else {
-        println!(
-            "note: each row moves one input alone; a claim usually differs in several, which \
-             `hurdle compare` bridges input by input"
-        );
-        ExitCode::SUCCESS
+    }
+    println!(
+        "note: each row moves one input alone over its default range; a claim usually differs \
+         in several, which `hurdle compare` bridges input by input"
+    );
+    match found {
+        0 => ExitCode::from(1),
+        _ => ExitCode::SUCCESS,
     }
 }
 
@@ -143,10 +144,15 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
     let show = shown(r);
     let (value, change, note) = match (r.value, r.reproduces()) {
         (Some(value), true) => {
+            // The sign written out: a plus for a rise (`{:+}` does not sign a string).
+            let signed = |text: String| match text.starts_with('-') {
+                true => text,
+                false => format!("+{text}"),
+            };
             let change = if r.key.contains("beta") || r.key.contains("debt_to_") {
-                format!("{:+}", fixed(value - r.base_value, 4))
+                signed(fixed(value - r.base_value, 4))
             } else {
-                format!("{:+} bp", fixed((value - r.base_value) * 1e4, 0))
+                format!("{} bp", signed(fixed((value - r.base_value) * 1e4, 1)))
             };
             let mut note = format!("exact: {value}");
             if r.crossings > 1 {
@@ -188,18 +194,21 @@ fn unsolved_row(
     error: hurdle::Error,
 ) -> String {
     let (key, value) = hurdle::audit::implied::key_and_base_value(target, false, base);
-    // The case file is named above; the row says why this input is not solved.
+    // The case file is named above; the row says why this input is not solved. The value is
+    // the case's figure, which need not be the key's (a cost of debt from a spread table, a
+    // target from the peers), so the row names the figure, not the key.
     let why = match error {
         hurdle::Error::Case { message, .. } => message,
         other => other.to_string(),
     };
-    let show = if key.contains("debt_to_") {
-        fixed(value, 4)
-    } else {
-        percent(value, 3)
+    let (label, show) = match target {
+        Target::CostOfDebt => ("pre-tax cost of debt", percent(value, 3)),
+        Target::DebtToEquity => ("target D/E", fixed(value, 4)),
+        Target::Beta => ("relevered beta", fixed(value, 4)),
+        _ => (key, percent(value, 3)),
     };
     format!(
-        "{key:<26} {show:>10} {:>12} {:>12}  not solved: {why}",
+        "{label:<26} {show:>10} {:>12} {:>12}  not solved: {why}",
         "n/a", ""
     )
 }

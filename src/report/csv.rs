@@ -176,6 +176,20 @@ pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
 pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
     let mut out =
         String::from("group,from_value,to_value,wacc_before,wacc_after,contribution,shapley\n");
+    // A starting claim whose stated WACC its components do not give: first the step from the
+    // stated WACC to the components', so the rows add up to the gap between the stated WACCs.
+    if let Some(gap) = bridge.unexplained_from.filter(|g| *g != 0.0) {
+        writeln!(
+            out,
+            "unexplained at the start (the starting claim's stated WACC less its components'),,,\
+             {},{},{},{}",
+            bridge.from.stated_wacc.unwrap_or(bridge.from.wacc),
+            bridge.from.wacc,
+            -gap,
+            -gap
+        )
+        .expect("writing to a String cannot fail");
+    }
     for s in &bridge.steps {
         writeln!(
             out,
