@@ -44,14 +44,23 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
 }
 
 fn render(b: &Bridge) -> String {
+    // A claim whose stated WACC its components do not give: both figures, named.
+    let wacc = |side: &hurdle::audit::bridge::Side| match side.stated_wacc {
+        Some(stated) if (stated - side.wacc).abs() >= 5e-6 => format!(
+            "WACC {} from its components (stated {})",
+            percent(side.wacc, 3),
+            percent(stated, 3)
+        ),
+        _ => format!("WACC {}", percent(side.wacc, 3)),
+    };
     let mut out = format!(
-        "from {} ({}) WACC {}\n  to {} ({}) WACC {}\n",
+        "from {} ({}) {}\n  to {} ({}) {}\n",
         b.from.label,
         b.from.source,
-        percent(b.from.wacc, 3),
+        wacc(&b.from),
         b.to.label,
         b.to.source,
-        percent(b.to.wacc, 3)
+        wacc(&b.to)
     );
     out.push_str(&format!(
         "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
@@ -97,6 +106,10 @@ fn render(b: &Bridge) -> String {
             ));
         }
     }
+    out.push_str(
+        "note: steps and Shapley values are shown to the basis point and may not add to the \
+         total by a basis point; bridge.csv holds them in full\n",
+    );
     out.push_str(
         "note: each group is the figure the build-up carries: the beta is the relevered beta, so \
          a different D/E moves the beta line as well as the weights line (the weights step does \

@@ -161,6 +161,9 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
             if let Some(caution) = r.caution() {
                 note.push_str(&format!("; caution: {caution}"));
             }
+            if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
+                note.push_str("; the cost of debt, rf plus the table's spread, moves with it");
+            }
             (show(value), change, note)
         }
         (Some(value), false) => (
@@ -239,6 +242,9 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     }
     if let Some(caution) = r.caution() {
         println!("  caution: {caution}; the claim may rest on other inputs than this one");
+    }
+    if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
+        println!("  note: the cost of debt, rf plus the table's spread, moves with the rate");
     }
 }
 
