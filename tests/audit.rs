@@ -676,6 +676,35 @@ fn implied_erp_with_a_credit_spread_debt_beta_leaves_out_refused_values() {
     );
 }
 
+// A claim met just inside the values the case accepts, between the refusal's edge and the
+// first accepted scan value: under a credit-spread debt beta the demo refuses risk-free rates
+// up to about 0.86% (a peer's debt beta would pass its equity beta), and the claim 6.2% needs
+// about 0.98%; the scan values are −0.02 + k·0.0034375, of which 0.0075 is refused and 0.0109
+// accepted, so no two accepted scan values bracket it. Set back in, the value gives the claim
+// (1e-10, as above).
+#[test]
+fn implied_finds_a_claim_next_to_the_values_the_case_refuses() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let settings = [
+        "--set",
+        "leverage.formula=harris-pringle",
+        "--set",
+        "leverage.debt_beta_source=credit-spread",
+    ];
+    let mut arguments = vec!["implied", case, "--wacc", "0.062", "--solve", "risk_free"];
+    arguments.extend(settings);
+    let output = hurdle(&arguments);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let exact = exact_line(&report, "").to_string();
+    let mut rerun = settings.to_vec();
+    rerun.extend(["--set", &exact]);
+    let result = run_case(Path::new(case), &dir.path().join("rf"), &rerun);
+    assert!((number(&result, "wacc") - 0.062).abs() < 1e-10, "{exact}");
+}
+
 #[test]
 fn an_unreachable_claim_is_reported_not_forced() {
     let case = format!("{DEMO_DIR}/case.toml");

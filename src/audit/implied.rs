@@ -267,10 +267,8 @@ pub fn implied(
     })
 }
 
-/// The case key varied for `target` (the relevered beta is not a key) and its base value; a
-/// debt-to-capital case solves its debt-to-capital.
 /// The case key `target` varies (`target.debt_to_capital` for a case that gives its target
-/// that way) and its value in `base`.
+/// that way; the relevered beta is not a key) and its value in `base`.
 pub fn key_and_base_value(
     target: Target,
     by_capital: bool,
@@ -349,6 +347,28 @@ fn bisect(
     Ok(if gap_a.abs() <= gap_b.abs() { a } else { b })
 }
 
+/// The accepted value nearest the refused value `refused`, between it and `accepted` (with its
+/// WACC), by bisection to adjacent doubles; `None` when no value between them is accepted
+/// (the accepted scan value is itself the edge).
+fn accepted_edge(
+    wacc_at: &dyn Fn(f64) -> Result<f64>,
+    mut refused: f64,
+    (mut accepted, mut wacc): (f64, f64),
+) -> Option<(f64, f64)> {
+    let start = accepted;
+    for _ in 0..200 {
+        let mid = 0.5 * (refused + accepted);
+        if mid == refused || mid == accepted {
+            break;
+        }
+        match wacc_at(mid) {
+            Ok(w) => (accepted, wacc) = (mid, w),
+            Err(_) => refused = mid,
+        }
+    }
+    (accepted != start).then_some((accepted, wacc))
+}
+
 /// What the scan found: the solution (if any), the number of crossing intervals, the lowest and
 /// highest WACC seen, and the values the case refused.
 struct Scan {
@@ -384,29 +404,51 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
     if refusals.len() == xs.len() {
         return Err(refusals.swap_remove(0).1);
     }
+    // Where the case starts or stops refusing between two scan values, the accepted side is
+    // searched up to the edge, found by bisection: a claim met just inside the accepted values
+    // is not lost to the refused scan value beside it.
+    let mut points: Vec<(f64, Option<f64>)> =
+        xs.iter().copied().zip(gaps.iter().copied()).collect();
+    for i in 0..INTERVALS {
+        let edge = match (gaps[i], gaps[i + 1]) {
+            (None, Some(gap)) => accepted_edge(wacc_at, xs[i], (xs[i + 1], gap + claimed)),
+            (Some(gap), None) => accepted_edge(wacc_at, xs[i + 1], (xs[i], gap + claimed)),
+            _ => None,
+        };
+        if let Some((x, wacc)) = edge {
+            points.push((x, Some(wacc - claimed)));
+        }
+    }
+    points.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let last = points.len() - 1;
     // An interval crosses when the claim lies at its left end or strictly inside it; a root on
     // its right end belongs to the next interval (or to the last one, at the range's end).
-    let crossing = |i: usize| match (gaps[i], gaps[i + 1]) {
+    let crossing = |j: usize| match (points[j].1, points[j + 1].1) {
         (Some(left), Some(right)) => {
             left == 0.0
                 || (right != 0.0 && (left < 0.0) != (right < 0.0))
-                || (i + 1 == INTERVALS && right == 0.0)
+                || (j + 1 == last && right == 0.0)
         }
         _ => false,
     };
-    let crossings = (0..INTERVALS).filter(|&i| crossing(i)).count();
-    let seen = || gaps.iter().flatten().map(|g| g + claimed);
+    let crossings = (0..last).filter(|&j| crossing(j)).count();
+    let seen = || points.iter().filter_map(|(_, g)| *g).map(|g| g + claimed);
     let wacc_min = seen().fold(f64::INFINITY, f64::min);
     let wacc_max = seen().fold(f64::NEG_INFINITY, f64::max);
     // A crossing interval's ends are both accepted, so its left gap is there.
-    let first = (0..INTERVALS)
-        .find(|&i| crossing(i))
-        .and_then(|i| gaps[i].map(|gap| (i, gap)));
+    let first = (0..last)
+        .find(|&j| crossing(j))
+        .and_then(|j| points[j].1.map(|gap| (j, gap)));
     let value = match first {
         // The claim is the WACC at a scan value itself; bisecting from a zero gap would walk
         // away from it.
-        Some((i, 0.0)) => Some(xs[i]),
-        Some((i, gap)) => Some(bisect(wacc_at, (xs[i], gap), xs[i + 1], claimed)?),
+        Some((j, 0.0)) => Some(points[j].0),
+        Some((j, gap)) => Some(bisect(
+            wacc_at,
+            (points[j].0, gap),
+            points[j + 1].0,
+            claimed,
+        )?),
         None => None,
     };
     Ok(Scan {
@@ -454,8 +496,14 @@ mod tests {
         // Refused from x = 0 to 19/64; the edge is 19/64, next to the accepted 20/64.
         assert_eq!(scan.refused_range, Some((0.0, 19.0 / 64.0)));
         assert_eq!(scan.refused_at_edge.as_ref().unwrap().0, 19.0 / 64.0);
-        assert!((scan.wacc_min - (0.05 + 0.5 * 20.0 / 64.0)).abs() < 1e-15);
+        // The lowest WACC is at the refusal's edge, x = 0.3 (found by bisection to adjacent
+        // doubles, so 0.05 + 0.5·0.3 = 0.2 to an ulp or two).
+        assert!((scan.wacc_min - 0.2).abs() < 1e-15, "{}", scan.wacc_min);
         assert!((scan.wacc_max - 0.55).abs() < 1e-15);
+        // A claim met between the edge and the first accepted scan value, 20/64 = 0.3125: at
+        // x = 0.305 (WACC 0.2025), which no scan value brackets.
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.2025).unwrap();
+        assert!((scan.value.unwrap() - 0.305).abs() < 1e-15);
         // A claim only a refused value could meet is not found, and the scan says what it saw.
         let scan = solve(&wacc_at, 0.0, 1.0, 0.10).unwrap();
         assert_eq!((scan.value, scan.crossings), (None, 0));
