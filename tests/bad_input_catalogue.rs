@@ -412,7 +412,19 @@ fn price_files() -> Vec<Bad> {
             "date with a time",
             |s| set_date(s, PEER, LINE, "2023-03-31T16:00:00"),
             ["run", "{case}", "--out", "{out}"],
-            [PEER, "line 848", "2023-03-31T16:00:00"]
+            [PEER, "line 848", "2023-03-31T16:00:00", "time of day"]
+        ),
+        bad!(
+            "a day-first date in a price file",
+            |s| set_date(s, PEER, LINE, "31/03/2023"),
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "line 848", "31/03/2023", "year first"]
+        ),
+        bad!(
+            "a spreadsheet error in a price cell",
+            |s| s.set_value(PEER, LINE, "#N/A"),
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "line 848", "#N/A", "delete the row"]
         ),
         bad!(
             "empty date cell",
@@ -1188,7 +1200,7 @@ fn case_files() -> Vec<Bad> {
             ["line 8", "“EUR”", "straight quotes"]
         ),
         bad!(
-            "a day-first date",
+            "a day-first date in the case",
             |s| s.edit_case("valuation_date = 2026-09-30", "valuation_date = 30/09/2026"),
             ["run", "{case}", "--out", "{out}"],
             ["line 7", "30/09/2026", "YYYY-MM-DD"]

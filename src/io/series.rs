@@ -227,7 +227,7 @@ pub fn parse_series(
     let blank_row = |blank: super::sanity::BlankLine| Error::DataRow {
         file: file.to_path_buf(),
         line: blank.line,
-        message: format!("`{date_column}` = \"\" is not an ISO 8601 date (YYYY-MM-DD)"),
+        message: format!("`{date_column}` = \"\" {}", date_problem("", date_column)),
     };
     let mut reader = csv::ReaderBuilder::new().flexible(true).from_reader(bytes);
     let unreadable = |e: csv::Error| file_error(format!("not a readable CSV file: {e}"));
@@ -301,7 +301,8 @@ fn check_order(
     if date < previous {
         return Err(format!(
             "date {date} comes after {previous} on line {previous_line}; rows must be sorted by \
-             ascending date (sort the file; it is never reordered silently)"
+             ascending date, oldest first (sort the file, also one saved newest first; it is \
+             never reordered silently)"
         ));
     }
     Ok(())
@@ -317,14 +318,61 @@ fn parse_row(
     kind: ValueKind,
 ) -> std::result::Result<(NaiveDate, f64), String> {
     let date = parse_iso_date(date_cell).ok_or_else(|| {
-        format!("`{date_column}` = \"{date_cell}\" is not an ISO 8601 date (YYYY-MM-DD)")
+        format!(
+            "`{date_column}` = \"{date_cell}\" {}",
+            date_problem(date_cell, date_column)
+        )
     })?;
-    let value: f64 = value_cell
-        .parse()
-        .map_err(|_| format!("`{value_column}` = \"{value_cell}\" is not a number"))?;
+    let value: f64 = value_cell.parse().map_err(|_| {
+        format!(
+            "`{value_column}` = \"{value_cell}\" is not a number: {}",
+            number_problem(value_cell)
+        )
+    })?;
     match kind.broken_rule(value) {
         Some(rule) => Err(format!("`{value_column}` = {value_cell} on {date}: {rule}")),
         None => Ok((date, value)),
+    }
+}
+
+/// What is wrong with a date cell hurdle cannot read, and what to write: a spreadsheet's
+/// day-first or month-first date, a serial number, a time of day, the header repeated, an
+/// empty cell (a blank or total row).
+fn date_problem(cell: &str, date_column: &str) -> String {
+    let cell = cell.trim();
+    let digits = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
+    let parts: Vec<&str> = cell.split(['/', '.', '-']).collect();
+    let hint = if cell.is_empty() {
+        "the date is empty: delete the blank or total row"
+    } else if cell == date_column {
+        "the header row is repeated here: delete this line"
+    } else if digits(cell) && cell.len() == 5 {
+        "a spreadsheet's serial day number: format the date column as yyyy-mm-dd before saving"
+    } else if parts.len() == 3 && parts.iter().all(|p| digits(p)) && parts[0].len() <= 2 {
+        "a day-first or month-first date: write dates year first (2023-03-31), for example by \
+         formatting the date column as yyyy-mm-dd before saving"
+    } else if cell.len() > 10 && cell.get(..10).and_then(parse_iso_date).is_some() {
+        "a date with a time of day: keep the date alone (YYYY-MM-DD)"
+    } else {
+        "write dates year first, YYYY-MM-DD (2023-03-31)"
+    };
+    format!("is not a date hurdle reads: {hint}")
+}
+
+/// What to write instead of a price or yield cell that is not a number.
+fn number_problem(cell: &str) -> &'static str {
+    let cell = cell.trim();
+    if cell.starts_with('#') || cell.is_empty() || cell == "-" {
+        "a spreadsheet error or empty cell; delete the row of a day without a price (a missing \
+         day is skipped, never filled)"
+    } else if cell.ends_with('%') {
+        "write the number without a % sign (a yield as a decimal, 0.0325 for 3.25%)"
+    } else if cell.contains(',') {
+        "write the number with a decimal point and no thousands separator (1043.83)"
+    } else if cell.starts_with(['$', '€', '£', '¥']) {
+        "write the number without a currency sign"
+    } else {
+        "write the number alone, with a decimal point"
     }
 }
 
