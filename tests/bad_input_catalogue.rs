@@ -771,7 +771,7 @@ fn yield_files() -> Vec<Bad> {
                 )
             },
             ["run", "{case}", "--out", "{out}"],
-            [INDEX, "line 2", "`price` = {first} ", "percentage"]
+            [INDEX, "line 2", "`price` = {first} ", "not a yield series"]
         ),
         bad!(
             "yield file ragged",

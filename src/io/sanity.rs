@@ -321,10 +321,20 @@ pub fn check_series_values(
 /// Why a yield of 1 (100% a year) or more is refused: it is a percentage typed for a decimal.
 /// `None` for a yield below 1. One rule for yield files and wide tables' yield columns.
 pub fn percent_yield(value: f64) -> Option<String> {
+    // Up to 100 it reads as a percentage (3.8 for 3.8%); beyond, as basis points (286.1 for
+    // 2.861%) up to 10,000, and beyond that as prices or an index level, not yields at all.
+    let advice = if value < 100.0 {
+        "this looks like a percentage; divide the column by 100"
+    } else if value < 10_000.0 {
+        "this looks like basis points or prices; basis points are divided by 10,000, and a \
+         price column is not a yield series (check the yield column the case names)"
+    } else {
+        "this looks like prices or an index level, not yields; check the yield column the case \
+         names"
+    };
     (value >= 1.0).then(|| {
         format!(
-            "is {}% a year: yields are decimals (0.038 for 3.8%), and this looks like a \
-             percentage; divide the column by 100",
+            "is {}% a year: yields are decimals (0.038 for 3.8%), and {advice}",
             show(value * 100.0)
         )
     })

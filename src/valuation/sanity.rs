@@ -114,15 +114,25 @@ pub(crate) fn check_jumps(
             Some(place) => place.clone(),
             None => format!("line {}", i + 1),
         };
+        // A fall is said as a share of the price before it (a quarter: an unadjusted split).
+        let moved = if ratio < 1.0 {
+            format!(
+                "falls to {}% of it (a factor of {}; an unadjusted split or a misplaced decimal \
+                 point?)",
+                significant(ratio * 100.0),
+                significant(ratio)
+            )
+        } else {
+            format!("moves by a factor of {}", significant(ratio))
+        };
         let message = format!(
-            "price {} on {} after {} on {} ({previous}) moves by a factor of {}, beyond the \
-             plausibility bound of {JUMP_FACTOR} up or down between two rows; fix the price, or \
-             if the move is real accept it with {key}.accept_jumps = [\"{}\"]",
+            "price {} on {} after {} on {} ({previous}) {moved}, beyond the plausibility bound \
+             of {JUMP_FACTOR} up or down between two rows; fix the price (use prices adjusted \
+             for splits), or if the move is real accept it with {key}.accept_jumps = [\"{}\"]",
             show(prices[i]),
             dates[i],
             show(prices[i - 1]),
             dates[i - 1],
-            significant(ratio),
             dates[i]
         );
         return Err(match file.places.get(i) {
