@@ -106,6 +106,25 @@ fn render(b: &Bridge) -> String {
             ));
         }
     }
+    // Preferred equity and leases move with the weights group, their costs included.
+    let other = |u: &hurdle::audit::bridge::BuildUp| {
+        format!(
+            "preferred {} at {}, leases {} at {} pre-tax",
+            percent(u.preferred_weight, 1),
+            percent(u.preferred_cost, 2),
+            percent(u.lease_weight, 1),
+            percent(u.lease_cost_pre_tax, 2)
+        )
+    };
+    let (from, to) = (&b.from.build_up, &b.to.build_up);
+    if from.preferred_weight + from.lease_weight + to.preferred_weight + to.lease_weight > 0.0 {
+        out.push_str(&format!(
+            "note: the weights step also moves preferred equity and leases, weights and costs: \
+             from {}; to {}\n",
+            other(from),
+            other(to)
+        ));
+    }
     out.push_str(
         "note: steps and Shapley values are shown to the basis point and may not add to the \
          total by a basis point; bridge.csv holds them in full\n",
