@@ -814,6 +814,32 @@ fn compare_names_the_unexplained_part_of_either_claim() {
     assert!((sum - (0.0935 - 0.08)).abs() < 1e-15, "{sum}");
 }
 
+// Leases at their default cost take the pre-tax cost of debt (README, `[leases]`), 4.63% in
+// the demo and 5% with it raised; the bridge moves them with the weights step and says so.
+#[test]
+fn compare_names_the_preferred_and_lease_terms_the_weights_step_moves() {
+    let (_dir, case_dir) = demo_copy();
+    let text_of_case = std::fs::read_to_string(case_dir.join("case.toml")).unwrap();
+    let with_leases = format!("{text_of_case}\n[leases]\nweight = 0.1\n");
+    std::fs::write(case_dir.join("a.toml"), &with_leases).unwrap();
+    let dearer = with_leases.replacen("cost_pre_tax = 0.0463", "cost_pre_tax = 0.05", 1);
+    assert_ne!(dearer, with_leases);
+    std::fs::write(case_dir.join("b.toml"), dearer).unwrap();
+    let output = hurdle(&[
+        "compare",
+        case_dir.join("a.toml").to_str().unwrap(),
+        case_dir.join("b.toml").to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert!(
+        report.contains("note: the weights step also moves preferred equity and leases")
+            && report.contains("from preferred 0.0% at 0.00%, leases 10.0% at 4.63% pre-tax")
+            && report.contains("to preferred 0.0% at 0.00%, leases 10.0% at 5.00% pre-tax"),
+        "{report}"
+    );
+}
+
 // A grid axis over a setting the case does not use (Newey–West lags under the demo's classical
 // standard errors) gives equal rows, and the grid says so; axes that move the WACC get no note.
 #[test]
