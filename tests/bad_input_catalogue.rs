@@ -415,6 +415,17 @@ fn price_files() -> Vec<Bad> {
             [PEER, "line 848", "2023-03-31T16:00:00", "time of day"]
         ),
         bad!(
+            "a header in capitals",
+            |s| s.edit(PEER, "date,price", "Date,Price"),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                PEER,
+                "no column named `date`",
+                "Date, Price",
+                "capitals too"
+            ]
+        ),
+        bad!(
             "a day-first date in a price file",
             |s| set_date(s, PEER, LINE, "31/03/2023"),
             ["run", "{case}", "--out", "{out}"],

@@ -59,6 +59,23 @@ pub fn padded_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &st
     }
 }
 
+/// The part of a "no column named `name`" message that names a header column equal to `name`
+/// but for capitals (`Date` for `date`): names are matched as written, so the case (or
+/// universe file) must write it so; empty when there is none.
+pub fn capitals_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &str) -> String {
+    match header
+        .into_iter()
+        .find(|n| *n != name && n.trim().eq_ignore_ascii_case(name.trim()))
+    {
+        Some(other) => format!(
+            "; names are matched as written, capitals too: write \"{}\" for the column's name \
+             in the case (date_column, price_column or yield_column)",
+            other.trim()
+        ),
+        None => String::new(),
+    }
+}
+
 /// The first record of CSV `bytes` with more fields than `expected` (the header's count), or
 /// with fewer than `fewest` when it is given (an empty line is not a record): its first line
 /// (0-based), its field count and its text. Quoted fields may hold commas and line breaks; a line's carriage
