@@ -347,6 +347,32 @@ fn bisect(
     Ok(if gap_a.abs() <= gap_b.abs() { a } else { b })
 }
 
+/// The scan's values and gaps (WACC less the claim; `None` where the case refuses), with the
+/// edge of every refused stretch added: where the case starts or stops refusing between two
+/// scan values, the accepted side is searched up to the edge, found by bisection, so a claim
+/// met just inside the accepted values is not lost to the refused scan value beside it.
+fn with_refusal_edges(
+    wacc_at: &dyn Fn(f64) -> Result<f64>,
+    xs: &[f64],
+    gaps: &[Option<f64>],
+    claimed: f64,
+) -> Vec<(f64, Option<f64>)> {
+    let mut points: Vec<(f64, Option<f64>)> =
+        xs.iter().copied().zip(gaps.iter().copied()).collect();
+    for i in 0..xs.len() - 1 {
+        let edge = match (gaps[i], gaps[i + 1]) {
+            (None, Some(gap)) => accepted_edge(wacc_at, xs[i], (xs[i + 1], gap + claimed)),
+            (Some(gap), None) => accepted_edge(wacc_at, xs[i + 1], (xs[i], gap + claimed)),
+            _ => None,
+        };
+        if let Some((x, wacc)) = edge {
+            points.push((x, Some(wacc - claimed)));
+        }
+    }
+    points.sort_by(|a, b| a.0.total_cmp(&b.0));
+    points
+}
+
 /// The accepted value nearest the refused value `refused`, between it and `accepted` (with its
 /// WACC), by bisection to adjacent doubles; `None` when no value between them is accepted
 /// (the accepted scan value is itself the edge).
@@ -404,22 +430,7 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
     if refusals.len() == xs.len() {
         return Err(refusals.swap_remove(0).1);
     }
-    // Where the case starts or stops refusing between two scan values, the accepted side is
-    // searched up to the edge, found by bisection: a claim met just inside the accepted values
-    // is not lost to the refused scan value beside it.
-    let mut points: Vec<(f64, Option<f64>)> =
-        xs.iter().copied().zip(gaps.iter().copied()).collect();
-    for i in 0..INTERVALS {
-        let edge = match (gaps[i], gaps[i + 1]) {
-            (None, Some(gap)) => accepted_edge(wacc_at, xs[i], (xs[i + 1], gap + claimed)),
-            (Some(gap), None) => accepted_edge(wacc_at, xs[i + 1], (xs[i], gap + claimed)),
-            _ => None,
-        };
-        if let Some((x, wacc)) = edge {
-            points.push((x, Some(wacc - claimed)));
-        }
-    }
-    points.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let points = with_refusal_edges(wacc_at, &xs, &gaps, claimed);
     let last = points.len() - 1;
     // An interval crosses when the claim lies at its left end or strictly inside it; a root on
     // its right end belongs to the next interval (or to the last one, at the range's end).

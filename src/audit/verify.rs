@@ -8,6 +8,8 @@
 //! ([`WORDING_KEYS`]) and reads differently is listed apart: a later version may word it better,
 //! and the setting it describes is compared as a value of its own.
 
+mod compare;
+
 use std::path::{Path, PathBuf};
 
 use serde::Serialize;
@@ -16,6 +18,8 @@ use serde_json::Value;
 use crate::case::read_case;
 use crate::error::{Error, Result};
 use crate::valuation::{load_inputs, SCHEMA_VERSION};
+pub use compare::numbers_agree;
+pub(super) use compare::{compare, Comparison};
 
 /// Relative tolerance for numbers. Reruns on one build are bit-identical; 1e-12 leaves room for
 /// another platform's `powf` and `ln` (used in the risk-free conversion), which may differ in
@@ -364,224 +368,6 @@ pub(super) fn locate_case(
             section: section.to_string(),
             tried: candidates.clone(),
         })
-}
-
-/// Numbers agree when |a − b| ≤ tolerance·max(|a|, |b|) (or both are zero).
-pub fn numbers_agree(a: f64, b: f64, tolerance: f64) -> bool {
-    a == b || (a - b).abs() <= tolerance * a.abs().max(b.abs())
-}
-
-/// What comparing a receipt with its rerun found.
-#[derive(Debug, Default)]
-pub(super) struct Comparison {
-    /// How many leaves were compared.
-    pub compared: usize,
-    pub mismatches: Vec<Mismatch>,
-    /// Leaves under [`WORDING_KEYS`] whose text differs.
-    pub wording: Vec<Mismatch>,
-}
-
-/// Compares every leaf of `recorded` with `recomputed`: numbers within `tolerance`
-/// ([`numbers_agree`]), everything else exactly, a key on one side only as against `null`.
-pub(super) fn compare(recorded: &Value, recomputed: &Value, tolerance: f64) -> Comparison {
-    let mut found = Comparison::default();
-    let at = Place {
-        path: String::new(),
-        key: "",
-        item: None,
-    };
-    compare_at(recorded, recomputed, at, tolerance, &mut found);
-    found
-}
-
-/// Where a leaf is: its JSON path, its own key, and the name of the list entry it is in.
-struct Place<'a> {
-    path: String,
-    key: &'a str,
-    item: Option<String>,
-}
-
-/// The name a list entry records for itself (a peer's `name`, a leave-one-out row's `peer`, an
-/// input file's `role`).
-fn entry_name(entry: &Value) -> Option<String> {
-    ["name", "peer", "security", "role"]
-        .iter()
-        .find_map(|k| entry.get(k).and_then(Value::as_str))
-        .map(str::to_string)
-}
-
-fn compare_at(
-    recorded: &Value,
-    recomputed: &Value,
-    at: Place<'_>,
-    tolerance: f64,
-    found: &mut Comparison,
-) {
-    let Place { path, key, item } = at;
-    // When it ran, where the case was found from and which version wrote it are not figures
-    // (the hashes are compared, and the report names both versions when they differ); nor is
-    // the line a spread table's row sits on (the table's hash and the row's rating and spread
-    // are compared; a TOML table's row once recorded its position there, now its line).
-    const PLACES: [&str; 5] = [
-        "generated_at",
-        "case.file",
-        "universe.file",
-        "tool.version",
-        "cost_of_debt.row.line",
-    ];
-    // An input's hash is compared file by file (the verification's file list), not again as a
-    // figure: a file whose bytes changed (line ends, a comment) while every figure stayed is
-    // reported once, as a changed input.
-    if PLACES.contains(&path.as_str()) || key == "sha256" {
-        return;
-    }
-    let child = |key: &str| {
-        if path.is_empty() {
-            key.to_string()
-        } else {
-            format!("{path}.{key}")
-        }
-    };
-    let agree = match (recorded, recomputed) {
-        (Value::Object(a), Value::Object(b)) => {
-            let place = |key| Place {
-                path: child(key),
-                key,
-                item: item.clone(),
-            };
-            for (key, value) in a {
-                let next = b.get(key).unwrap_or(&Value::Null);
-                compare_at(value, next, place(key), tolerance, found);
-            }
-            for key in b.keys().filter(|k| !a.contains_key(*k)) {
-                compare_at(&Value::Null, &b[key], place(key), tolerance, found);
-            }
-            return;
-        }
-        (Value::Array(a), Value::Array(b)) if named_differently(a, b) => {
-            compare_by_name(a, b, (&path, key), tolerance, found);
-            return;
-        }
-        (Value::Array(a), Value::Array(b)) if a.len() == b.len() => {
-            for (i, (x, y)) in a.iter().zip(b).enumerate() {
-                let at = Place {
-                    path: format!("{path}[{i}]"),
-                    key,
-                    item: entry_name(x).or_else(|| item.clone()),
-                };
-                compare_at(x, y, at, tolerance, found);
-            }
-            return;
-        }
-        (Value::Number(a), Value::Number(b)) => numbers_agree(
-            a.as_f64().unwrap_or(f64::NAN),
-            b.as_f64().unwrap_or(f64::NAN),
-            tolerance,
-        ),
-        (a, b) => a == b,
-    };
-    found.compared += 1;
-    if !agree {
-        let difference = Mismatch {
-            path,
-            item,
-            recorded: recorded.clone(),
-            recomputed: recomputed.clone(),
-        };
-        found.record(difference, key);
-    }
-}
-
-/// Whether two lists hold named entries (peers, leave-one-out rows) in another order or of
-/// another set: every entry named, each name once on each side, the two sequences of names not
-/// the same. Such lists are compared entry by entry by name, so a case whose peers were
-/// reordered, or one that dropped a peer, shows which peers' figures differ instead of every
-/// position's (or of the whole list as one value).
-fn named_differently(a: &[Value], b: &[Value]) -> bool {
-    let names = |list: &[Value]| -> Option<Vec<String>> {
-        let names: Vec<String> = list.iter().map(entry_name).collect::<Option<_>>()?;
-        let distinct: std::collections::HashSet<&String> = names.iter().collect();
-        (!names.is_empty() && distinct.len() == names.len()).then_some(names)
-    };
-    match (names(a), names(b)) {
-        (Some(x), Some(y)) => x != y,
-        _ => false,
-    }
-}
-
-/// Each recorded entry against the rerun's entry of the same name (its path keeps the
-/// receipt's position); an entry on one side only is one mismatch, named.
-fn compare_by_name(
-    a: &[Value],
-    b: &[Value],
-    (path, key): (&str, &str),
-    tolerance: f64,
-    found: &mut Comparison,
-) {
-    let position: std::collections::HashMap<String, usize> = (b.iter().enumerate())
-        .filter_map(|(j, y)| entry_name(y).map(|name| (name, j)))
-        .collect();
-    let mut matched = vec![false; b.len()];
-    let alone = |side: &str| Value::String(format!("only in the {side}"));
-    // An input file on one side only is reported by the file checks ("no longer in the case"),
-    // once, as every changed input is.
-    let report_alone = path != "files";
-    for (i, x) in a.iter().enumerate() {
-        let name = entry_name(x);
-        let at = Place {
-            path: format!("{path}[{i}]"),
-            key,
-            item: name.clone(),
-        };
-        match name.as_ref().and_then(|n| position.get(n)) {
-            Some(&j) => {
-                matched[j] = true;
-                compare_at(x, &b[j], at, tolerance, found);
-            }
-            None if report_alone => {
-                found.compared += 1;
-                found.mismatches.push(Mismatch {
-                    path: at.path,
-                    item: at.item,
-                    recorded: alone("receipt"),
-                    recomputed: Value::Null,
-                });
-            }
-            None => {}
-        }
-    }
-    let unmatched = b.iter().enumerate().filter(|(j, _)| !matched[*j]);
-    for (j, y) in unmatched.filter(|_| report_alone) {
-        found.compared += 1;
-        found.mismatches.push(Mismatch {
-            path: format!("{path}[{j}] (rerun)"),
-            item: entry_name(y),
-            recorded: Value::Null,
-            recomputed: alone("rerun"),
-        });
-    }
-}
-
-impl Comparison {
-    /// A leaf that differs: a mismatch, or a wording difference when it is sentences under one
-    /// of [`WORDING_KEYS`].
-    fn record(&mut self, difference: Mismatch, key: &str) {
-        let (recorded, recomputed) = (&difference.recorded, &difference.recomputed);
-        // A list of sentences (the notes) that another version words differently, or to which
-        // it adds one, is wording too: the figures the notes quote are compared where they are
-        // kept.
-        let sentences = |v: &Value| {
-            v.is_string()
-                || v.as_array()
-                    .is_some_and(|items| items.iter().all(Value::is_string))
-        };
-        let wording = sentences(recorded) && sentences(recomputed) && WORDING_KEYS.contains(&key);
-        if wording {
-            self.wording.push(difference);
-        } else {
-            self.mismatches.push(difference);
-        }
-    }
 }
 
 /// Each input file the receipt records, with its recorded and current SHA-256: the data files,

@@ -91,6 +91,14 @@ fn render(b: &Bridge) -> String {
         basis_points(b.difference),
         basis_points(b.difference)
     ));
+    out.push_str(&notes(b));
+    out
+}
+
+/// The notes under the bridge table: each side's unexplained part, the preferred and lease
+/// terms the weights step moves, the rounding of the steps, and what the beta line carries.
+fn notes(b: &Bridge) -> String {
+    let mut out = String::new();
     // Half a basis point: what the printed figures can show.
     let visible = |gap: &f64| gap.abs() >= 5e-5;
     // Either side: a stated WACC (a claim's `wacc`) that its own components do not give.

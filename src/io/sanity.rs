@@ -143,16 +143,7 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         line,
         message,
     };
-    if let Some(kind) = binary_kind(bytes) {
-        return Err(Error::DataFile {
-            file: file.to_path_buf(),
-            message: format!(
-                "the file is {kind}, not CSV text: save it as CSV (comma-separated, UTF-8), \
-                 or, where hurdle reads workbooks or Parquet (a [sources.NAME] table, a \
-                 universe's panel), name the file with its own extension"
-            ),
-        });
-    }
+    refuse_binary(file, bytes)?;
     let whole = bytes.len();
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let bom = whole - bytes.len();
@@ -226,6 +217,21 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         }
     }
     Ok(blank)
+}
+
+/// A workbook, Parquet or UTF-16 file given where CSV text belongs, named as what it is.
+fn refuse_binary(file: &Path, bytes: &[u8]) -> Result<()> {
+    match binary_kind(bytes) {
+        Some(kind) => Err(Error::DataFile {
+            file: file.to_path_buf(),
+            message: format!(
+                "the file is {kind}, not CSV text: save it as CSV (comma-separated, UTF-8), \
+                 or, where hurdle reads workbooks or Parquet (a [sources.NAME] table, a \
+                 universe's panel), name the file with its own extension"
+            ),
+        }),
+        None => Ok(()),
+    }
 }
 
 /// What a file given where CSV text belongs is, by its first bytes (the formats' published

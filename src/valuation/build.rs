@@ -264,6 +264,34 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
             }
         ));
     }
+    notes.extend(unused_cost_notes(settings));
+    // Peers' equity values a factor of 10,000 apart: most often one given in units and the
+    // others in millions (a judgement; peer sets rarely span so far in size).
+    let equity = settings.peers.iter().map(|p| p.equity_value);
+    let (least, most) = equity.fold((f64::INFINITY, 0.0_f64), |(l, m), e| (l.min(e), m.max(e)));
+    if most > 10_000.0 * least {
+        notes.push(format!(
+            "Check: the peers' equity values run from {least} to {most}, a factor of more than \
+             10,000: are they all in the same units (millions, say)? Each D/E and the \
+             market-cap weights read them as given."
+        ));
+    }
+    if settings.leverage.formula == Formula::Hamada
+        && settings.leverage.debt_beta_source != DebtBetaSource::None
+    {
+        notes.push(
+            "Hamada (1972) assumes riskless debt, so the debt betas are not used in the \
+             figures; Conine (1980) is Hamada with a debt beta (see the formula comparison)."
+                .to_string(),
+        );
+    }
+    notes
+}
+
+/// Preferred or lease costs given with a weight of 0: the WACC gives them no weight, unless a
+/// sensitivity axis moves that weight (then the grid's cells use the cost).
+fn unused_cost_notes(settings: &CaseFile) -> Vec<String> {
+    let mut notes = Vec::new();
     let costs_without_weight = [
         (
             "preferred",
@@ -294,26 +322,6 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
                  it no weight."
             ));
         }
-    }
-    // Peers' equity values a factor of 10,000 apart: most often one given in units and the
-    // others in millions (a judgement; peer sets rarely span so far in size).
-    let equity = settings.peers.iter().map(|p| p.equity_value);
-    let (least, most) = equity.fold((f64::INFINITY, 0.0_f64), |(l, m), e| (l.min(e), m.max(e)));
-    if most > 10_000.0 * least {
-        notes.push(format!(
-            "Check: the peers' equity values run from {least} to {most}, a factor of more than \
-             10,000: are they all in the same units (millions, say)? Each D/E and the \
-             market-cap weights read them as given."
-        ));
-    }
-    if settings.leverage.formula == Formula::Hamada
-        && settings.leverage.debt_beta_source != DebtBetaSource::None
-    {
-        notes.push(
-            "Hamada (1972) assumes riskless debt, so the debt betas are not used in the \
-             figures; Conine (1980) is Hamada with a debt beta (see the formula comparison)."
-                .to_string(),
-        );
     }
     notes
 }

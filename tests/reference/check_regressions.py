@@ -42,6 +42,8 @@ from collections import defaultdict
 import numpy as np
 from scipy import stats
 
+from set_values import set_path
+
 TOLERANCE = 1e-9
 # Rebuilt returns against returns.csv: the same IEEE operations (p1 / p0 - 1, ln(p1 / p0),
 # (1 + y)^(1 / periods) - 1, ln(1 + y) / periods, a - rf) on the same doubles parsed from the same
@@ -148,15 +150,6 @@ def find_case(out_dir, result, given):
     sys.exit(1)
 
 
-def toml_value(text):
-    """A --set value is read as TOML (a number, true, a date, a quoted string, a list); anything
-    else is taken as text (README, Commands, `--set`)."""
-    try:
-        return tomllib.loads(f"value = {text}")["value"]
-    except tomllib.TOMLDecodeError:
-        return text
-
-
 def apply_overrides(case, overrides):
     """README, Commands, `--set`: the dotted path of the case key, spaces around each segment
     ignored; inside [[peer]] the second segment picks the peer by 0-based position or by name,
@@ -185,10 +178,7 @@ def apply_overrides(case, overrides):
                     assert named, f"override {assignment!r} names no peer of the case"
                     table = named[0]
                 segments = segments[2:]
-        *parents, last = segments
-        for p in parents:
-            table = table.setdefault(p, {})
-        table[last] = toml_value(text)
+        set_path(table, segments, text)
 
 
 def load_case(out_dir, result, given):

@@ -45,6 +45,8 @@ import tomllib
 import numpy as np
 from scipy import stats
 
+from set_values import set_path
+
 # Relative: both sides are double-precision evaluations of the same closed forms on the same
 # doubles, so honest differences are rounding (about 1e-13 relative here); 1e-9 is the issue's bar.
 TOLERANCE = 1e-9
@@ -78,25 +80,10 @@ def parse_args(argv):
     return universe, out, sets
 
 
-def toml_value(text):
-    """A --set value is read as TOML (a number, true, a date, a quoted string, a list); anything
-    else is taken as text (README, Commands, `--set`)."""
-    try:
-        return tomllib.loads(f"value = {text}")["value"]
-    except tomllib.TOMLDecodeError:
-        return text
-
-
 def apply_sets(config, sets):
     for assignment in sets:
         key, value = assignment.split("=", 1)
-        # Spaces around the key, its segments and the value are ignored, as hurdle does.
-        value = value.strip()
-        *parents, last = [s.strip() for s in key.strip().split(".")]
-        table = config
-        for p in parents:
-            table = table.setdefault(p, {})
-        table[last] = toml_value(value)
+        set_path(config, key.strip().split("."), value)
 
 
 def not_implemented(config):

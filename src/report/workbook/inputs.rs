@@ -126,16 +126,6 @@ pub(crate) fn sheet(book: &mut Book, names: &mut Vec<(String, String)>) -> Resul
 fn rates(v: &Valuation) -> Vec<Spec> {
     let premiums = &v.settings.premiums;
     let method = crate::report::format::label(&premiums.country_method);
-    let target_note = match v.cost.target.given {
-        "peer_median" => {
-            "The median of the aggregated peers' D/E on the Unlevering sheet (target.source = \
-             \"peer-median\"): a change to a peer's equity, debt or cash there moves it. It reads \
-             the peers the run aggregated; changing a peer's Aggregated flag does not change which."
-        }
-        "subject_current" => "The subject's own current D/E (target.source = \"subject\").",
-        "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",
-        _ => "",
-    };
     vec![
         spec(
             "Risk-free rate",
@@ -184,18 +174,7 @@ fn rates(v: &Valuation) -> Vec<Spec> {
         )
         .bp()
         .note(&premiums.company_specific_justification),
-        spec(
-            "Target debt-to-equity (D/E)",
-            "TargetDebtToEquity",
-            "target.debt_to_equity",
-            "/target/debt_to_equity",
-        )
-        .format(Fmt::Ratio)
-        .kind(match v.cost.target.given {
-            "peer_median" => Kind::Formula(super::capital::peer_median_debt_to_equity(v)),
-            _ => Kind::Input,
-        })
-        .note(target_note),
+        target_debt_to_equity(v),
         spec(
             "Target tax rate",
             "TargetTaxRate",
@@ -207,6 +186,33 @@ fn rates(v: &Valuation) -> Vec<Spec> {
             crate::report::format::label(&v.cost.target.tax_rate_basis)
         )),
     ]
+}
+
+/// The target D/E row: an input, or the peers' median as a formula over their D/E cells when
+/// the target comes from the peers.
+fn target_debt_to_equity(v: &Valuation) -> Spec {
+    let target_note = match v.cost.target.given {
+        "peer_median" => {
+            "The median of the aggregated peers' D/E on the Unlevering sheet (target.source = \
+             \"peer-median\"): a change to a peer's equity, debt or cash there moves it. It reads \
+             the peers the run aggregated; changing a peer's Aggregated flag does not change which."
+        }
+        "subject_current" => "The subject's own current D/E (target.source = \"subject\").",
+        "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",
+        _ => "",
+    };
+    spec(
+        "Target debt-to-equity (D/E)",
+        "TargetDebtToEquity",
+        "target.debt_to_equity",
+        "/target/debt_to_equity",
+    )
+    .format(Fmt::Ratio)
+    .kind(match v.cost.target.given {
+        "peer_median" => Kind::Formula(super::capital::peer_median_debt_to_equity(v)),
+        _ => Kind::Input,
+    })
+    .note(target_note)
 }
 
 /// The cost of debt (given, or rf + a table spread) and the subject's debt beta.
