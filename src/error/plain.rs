@@ -33,7 +33,8 @@ fn line_hint(line: &str) -> Option<String> {
     // The value without a comment after it (a `#` inside quotes is rare in a line that failed).
     let value = line.split_once('=').map_or("", |(_, v)| v);
     let value = value.split('#').next().unwrap_or_default().trim();
-    if line.contains(['“', '”', '‘', '’']) {
+    // A value that opens with one (not a title quoting a word inside straight quotes).
+    if value.starts_with(['“', '”', '‘', '’']) {
         return Some(
             "the line uses typographic quotes (“ ” or ‘ ’), as a word processor writes them; \
              write straight quotes (\")"
@@ -230,6 +231,12 @@ mod tests {
                 "invalid float, expected nothing",
                 "risk_free_rate = 2.67%  # a comment",
                 "2.67% is not",
+            ),
+            // Typographic quotes inside a straight-quoted title are text, not the error.
+            (
+                "duplicate key",
+                "title = \"The “best” case\"",
+                "given twice",
             ),
             (
                 "wanted string or table",
