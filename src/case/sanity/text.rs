@@ -312,9 +312,20 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
         };
         let inside = x >= low && if closed { x <= high } else { x < high };
         if !inside {
+            // The closed bounds are a beta's and a ratio's; the open ones are rates', and a
+            // rate of 1 or more is most often a percentage typed for a decimal.
+            let hint = if closed || x < 1.0 {
+                String::new()
+            } else {
+                format!(
+                    "rates are decimals ({} for {}%), and ",
+                    crate::error::compact(x / 100.0),
+                    raw
+                )
+            };
             return Err(format!(
-                "line {}: {key} = {raw} is outside [{low}, {high}{}: rates are decimals \
-                 (0.06 for 6%), and a figure outside these bounds is no build-up a case could give",
+                "line {}: {key} = {raw} is outside [{low}, {high}{}: {hint}a figure outside these \
+                 bounds is no build-up a case could give",
                 line_of(text, s.value.span().start),
                 if closed { "]" } else { ")" }
             ));
