@@ -1752,7 +1752,13 @@ fn claimed_files() -> Vec<Bad> {
             "claimed beta 1e308",
             |s| claim(s, "beta = 1.10", "beta = 1e308"),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "{line}", "claimed.beta", "1e308", "[-5, 10]: a figure"]
+            [
+                "bad_claim.toml",
+                "{line}",
+                "claimed.beta",
+                "1e308",
+                "[-5, 10]: a figure"
+            ]
         ),
         bad!(
             "claimed WACC infinite",
