@@ -1235,11 +1235,8 @@ fn implied_values_no_one_could_defend_are_cautioned() {
     ]);
     let report = text(&solved);
     assert_eq!(solved.status.code(), Some(0), "{report}");
-    let value: f64 = report
-        .split("debt.cost_pre_tax=")
-        .nth(1)
-        .and_then(|rest| rest.split_whitespace().next())
-        .and_then(|v| v.parse().ok())
+    let value: f64 = exact_line(&report, "debt.cost_pre_tax=")
+        .parse()
         .expect("the exact --set value");
     assert!(value > cost_of_equity, "{report}");
     assert!(
@@ -1288,11 +1285,8 @@ fn implied_values_no_one_could_defend_are_cautioned() {
             solve,
         ]);
         let report = text(&output);
-        let value: f64 = report
-            .split(key)
-            .nth(1)
-            .and_then(|rest| rest.split_whitespace().next())
-            .and_then(|v| v.parse().ok())
+        let value: f64 = exact_line(&report, key)
+            .parse()
             .expect("the exact --set value");
         match solve {
             "cost_of_debt" => assert!(value < risk_free, "{report}"),

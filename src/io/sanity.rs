@@ -45,31 +45,26 @@ pub fn fewest_fields(header: &[String]) -> usize {
 
 /// The part of a "no column named `name`" message that names a header column equal to `name`
 /// but for white space around it (`" security"`), which is otherwise hard to see in the list
-/// of names; empty when there is none. Column names are matched exactly, as written.
-pub fn padded_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &str) -> String {
-    match header
-        .into_iter()
-        .find(|n| *n != name && n.trim() == name.trim())
+/// of names, or but for capitals (`Date` for `date`); empty when there is none. Column names
+/// are matched exactly, as written.
+pub fn column_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &str) -> String {
+    let names: Vec<&str> = header.into_iter().collect();
+    if let Some(padded) = names
+        .iter()
+        .find(|n| **n != name && n.trim() == name.trim())
     {
-        Some(padded) => format!(
+        return format!(
             "; the header's \"{padded}\" has spaces around the name, and names are matched as \
              written: remove the spaces from the file"
-        ),
-        None => String::new(),
+        );
     }
-}
-
-/// The part of a "no column named `name`" message that names a header column equal to `name`
-/// but for capitals (`Date` for `date`): names are matched as written, so the case (or
-/// universe file) must write it so; empty when there is none.
-pub fn capitals_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &str) -> String {
-    match header
-        .into_iter()
-        .find(|n| *n != name && n.trim().eq_ignore_ascii_case(name.trim()))
+    match names
+        .iter()
+        .find(|n| **n != name && n.trim().eq_ignore_ascii_case(name.trim()))
     {
         Some(other) => format!(
-            "; names are matched as written, capitals too: write \"{}\" for the column's name \
-             in the case (date_column, price_column or yield_column)",
+            "; names are matched as written, capitals too: write \"{}\" where the case or \
+             universe file names this column",
             other.trim()
         ),
         None => String::new(),

@@ -200,11 +200,7 @@ fn check_record_length(
 /// "No column named `name`", with the header's names and a name that differs only by spaces.
 fn missing_column(header: &csv::StringRecord, name: &str) -> String {
     let names: Vec<&str> = header.iter().collect();
-    let padded = super::sanity::padded_name_hint(names.iter().copied(), name);
-    let hint = match padded.is_empty() {
-        true => super::sanity::capitals_name_hint(names.iter().copied(), name),
-        false => padded,
-    };
+    let hint = super::sanity::column_name_hint(names.iter().copied(), name);
     format!(
         "no column named `{name}`; the header has: {}{hint}",
         names.join(", ")

@@ -194,7 +194,7 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
             Ok(None) => Err(header_error(format!(
                 "no `{name}` column (columns: {}){}",
                 columns.join(", "),
-                super::sanity::padded_name_hint(columns.iter().copied(), name)
+                super::sanity::column_name_hint(columns.iter().copied(), name)
             ))),
             Err(message) => Err(header_error(message)),
         }

@@ -206,7 +206,7 @@ fn records(
             source.file_error(format!(
                 "no column named `{name}` ({key}); the header has: {}{}",
                 header.join(", "),
-                crate::io::sanity::padded_name_hint(header.iter().map(String::as_str), name)
+                crate::io::sanity::column_name_hint(header.iter().map(String::as_str), name)
             ))
         })
     };

@@ -146,7 +146,7 @@ fn plan_for(
                 PanelLayout::Wide => PanelLayout::Long,
             };
             let names = header.iter().map(String::as_str);
-            let padded = crate::io::sanity::padded_name_hint(names, name);
+            let padded = crate::io::sanity::column_name_hint(names, name);
             let hint = match padded.is_empty() {
                 true => layout_hint(&header, columns, other)
                     .map_or_else(String::new, |h| format!("; {h}")),
