@@ -554,6 +554,71 @@ fn implied_values_reproduce_the_claimed_wacc() {
     assert!((wacc - 0.076).abs() < 1e-10, "beta {beta} gives {wacc}");
 }
 
+/// The unlevered beta `implied --solve beta` prints beside a solved relevered beta (four
+/// decimals, as shown).
+fn unlevered_shown(report: &str) -> f64 {
+    let after = report
+        .split("an unlevered beta of ")
+        .nth(1)
+        .unwrap_or_else(|| panic!("no unlevered beta in {report}"));
+    after.split(',').next().unwrap().parse().unwrap()
+}
+
+// A solved relevered beta is also shown as the unlevered beta it implies at the case's target,
+// by the textbook inverses: Hamada βU = βL / (1 + (1 − t)·D/E) (Hamada 1972) and
+// Harris–Pringle βU = (βL + βD·D/E) / (1 + D/E) (Harris and Pringle 1985). 0.6e-4: the line
+// shows four decimals, so it may differ from the exact inverse by half a unit in the last.
+#[test]
+fn implied_beta_names_the_unlevered_beta_it_implies() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let base = run_case(Path::new(case), &dir.path().join("base"), &[]);
+    let (de, t) = (
+        number(&base, "target.debt_to_equity"),
+        number(&base, "target.tax_rate"),
+    );
+    let report = text(&hurdle(&[
+        "implied", case, "--wacc", "0.08", "--solve", "beta",
+    ]));
+    let beta = exact_beta(&report);
+    let hamada = beta / (1.0 + (1.0 - t) * de);
+    assert!(
+        (unlevered_shown(&report) - hamada).abs() < 0.6e-4,
+        "{report}"
+    );
+    assert!(report.contains("hamada formula"), "{report}");
+
+    let sets = [
+        "--set",
+        "leverage.formula=harris-pringle",
+        "--set",
+        "leverage.debt_beta_source=given",
+        "--set",
+        "leverage.debt_beta=0.1",
+    ];
+    let mut arguments = vec!["implied", case, "--wacc", "0.08", "--solve", "beta"];
+    arguments.extend(sets);
+    let report = text(&hurdle(&arguments));
+    let beta = exact_beta(&report);
+    let harris_pringle = (beta + 0.1 * de) / (1.0 + de);
+    assert!(
+        (unlevered_shown(&report) - harris_pringle).abs() < 0.6e-4,
+        "{report}"
+    );
+    // The case's own aggregate is shown beside it, as result.json records it.
+    let hp_base = run_case(Path::new(case), &dir.path().join("hp"), &sets);
+    let case_aggregate = report
+        .split("against the case's aggregate ")
+        .nth(1)
+        .unwrap();
+    let case_aggregate: f64 = case_aggregate.trim().parse().unwrap();
+    assert!(
+        (case_aggregate - number(&hp_base, "beta.unlevered")).abs() < 0.6e-4,
+        "{report}"
+    );
+}
+
 // `--solve all` lists every input with the value that reproduces the claim alone; each case
 // key's value, set back in, gives the claim (1e-10, as above), and the beta's equals what
 // `--solve beta` finds (the same search, so the same double). A claim no input reaches within

@@ -15,6 +15,7 @@
 use serde::Serialize;
 
 use super::bridge::Side;
+use crate::capital::leverage::{CapitalStructure, DebtTerms, Formula};
 use crate::case::{with_overrides, CountryMethod, TargetSource};
 use crate::error::{Error, Result};
 use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates, Valuation};
@@ -121,6 +122,47 @@ pub struct Implied {
     /// a solved risk-free rate should stay below.
     pub base_risk_free_rate: f64,
     pub base_cost_of_debt: Option<f64>,
+    /// For the relevered beta: the aggregate unlevered beta that relevers to the value found at
+    /// the case's target structure, with the case's own aggregate beside it
+    /// ([`UnleveredEquivalent`]); `None` for every other target or when nothing was found.
+    pub unlevered_equivalent: Option<UnleveredEquivalent>,
+}
+
+/// A solved relevered beta taken back to the asset beta it implies: the case's formula run
+/// backwards at the case's target D/E, tax rate and subject debt terms, so a reader can set it
+/// beside the peers' unlevered betas.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct UnleveredEquivalent {
+    pub formula: Formula,
+    pub debt_to_equity: f64,
+    pub tax_rate: f64,
+    /// The case's own aggregate unlevered beta.
+    pub case_unlevered: f64,
+    /// The unlevered beta that relevers to the solved beta.
+    pub unlevered: f64,
+}
+
+impl UnleveredEquivalent {
+    /// The unlevered beta behind `relevered` under the structure and formula of `base`.
+    pub fn of(base: &Valuation, relevered: f64) -> Self {
+        let cost = &base.cost;
+        let structure = CapitalStructure {
+            debt_to_equity: cost.target.debt_to_equity,
+            tax_rate: cost.target.tax_rate,
+        };
+        let debt = DebtTerms {
+            debt_beta: cost.subject_debt_beta,
+            cost_of_debt: cost.cost_of_debt_pre_tax,
+        };
+        let formula = cost.beta.formula;
+        UnleveredEquivalent {
+            formula,
+            debt_to_equity: structure.debt_to_equity,
+            tax_rate: structure.tax_rate,
+            case_unlevered: cost.beta.unlevered,
+            unlevered: formula.unlever_with(relevered, structure, debt),
+        }
+    }
 }
 
 impl Implied {
@@ -264,6 +306,9 @@ pub fn implied(
         base_risk_free_rate: base.cost.risk_free_rate,
         base_cost_of_debt: (inputs.case.settings.debt.source == crate::case::DebtSource::Given)
             .then_some(base.cost.cost_of_debt_pre_tax),
+        unlevered_equivalent: value
+            .filter(|_| target == Target::Beta)
+            .map(|beta| UnleveredEquivalent::of(base, beta)),
     })
 }
 

@@ -164,6 +164,9 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
             if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
                 note.push_str("; the cost of debt, rf plus the table's spread, moves with it");
             }
+            if let Some(u) = &r.unlevered_equivalent {
+                note.push_str(&format!("; {}", unlevered_line(u)));
+            }
             (show(value), change, note)
         }
         (Some(value), false) => (
@@ -227,12 +230,29 @@ fn shown(r: &hurdle::audit::implied::Implied) -> impl Fn(f64) -> String + '_ {
     }
 }
 
+/// A solved relevered beta as the unlevered beta it implies, beside the case's aggregate, at
+/// the structure it is relevered to: a reader compares it with the peers' unlevered betas.
+fn unlevered_line(u: &hurdle::audit::implied::UnleveredEquivalent) -> String {
+    format!(
+        "at the case's target D/E {} and tax rate {} ({} formula): an unlevered beta of {}, \
+         against the case's aggregate {}",
+        fixed(u.debt_to_equity, 4),
+        percent(u.tax_rate, 2),
+        hurdle::case::label(&u.formula),
+        fixed(u.unlevered, 4),
+        fixed(u.case_unlevered, 4)
+    )
+}
+
 /// The exact value found, as `--set` takes it (the relevered beta is the build-up's, not a
 /// case key), and a note when several intervals of the range cross the claim.
 fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     match r.target {
         Target::Beta => println!("  exact: {value} (the relevered beta; not a --set key)"),
         _ => println!("  exact: {}={value}", r.key),
+    }
+    if let Some(u) = &r.unlevered_equivalent {
+        println!("  {}", unlevered_line(u));
     }
     if r.crossings > 1 {
         println!(
