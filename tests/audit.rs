@@ -107,6 +107,84 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
     );
 }
 
+// A receipt written with `--set` overrides reproduces only with them reapplied: verify says
+// which it reapplied, at the terminal and in verification.md, so a reader does not take the
+// case file alone for the figures (found by review). With the case's ERP then edited, the
+// headline gives both WACCs and the gap in basis points, the figures of the two receipts
+// rounded as the memo shows them (three decimals of a percent, one of a basis point).
+#[test]
+fn verify_names_the_receipts_overrides_and_the_headline_gap() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let out = dir.path().join("out");
+    let set = "market.equity_risk_premium=0.06";
+    let recorded = run_case(&case, &out, &["--set", set]);
+    let receipt = out.join("result.json");
+    // The run itself says so below its title.
+    let shown = dir.path().join("shown");
+    let run = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        shown.to_str().unwrap(),
+        "--no-figures",
+        "--set",
+        set,
+    ]);
+    assert!(
+        text(&run)
+            .lines()
+            .nth(1)
+            .unwrap()
+            .contains(&format!("with --set {set} (recorded")),
+        "{}",
+        text(&run)
+    );
+    let status_dir = dir.path().join("status");
+    let args = [
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        status_dir.to_str().unwrap(),
+    ];
+    let output = hurdle(&args);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    assert!(
+        report.contains(&format!(
+            "overrides: the receipt's run applied --set \"{set}\""
+        )),
+        "{report}"
+    );
+    let status = std::fs::read_to_string(status_dir.join("verification.md")).unwrap();
+    assert!(
+        status.contains(&format!(
+            "overrides, reapplied to the rerun (the case file alone gives other figures): `{set}`"
+        )),
+        "{status}"
+    );
+
+    // The case's own ERP no longer matters (the override sets it); its risk-free rate does.
+    let case_text = std::fs::read_to_string(&case).unwrap();
+    let rf = case_text
+        .lines()
+        .find(|l| l.starts_with("risk_free_rate"))
+        .unwrap();
+    std::fs::write(&case, case_text.replace(rf, "risk_free_rate = 0.0300")).unwrap();
+    let moved = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&moved);
+    assert_eq!(moved.status.code(), Some(1), "{report}");
+    let now = run_case(&case, &dir.path().join("now"), &["--set", set]);
+    let (was, now) = (number(&recorded, "wacc"), number(&now, "wacc"));
+    let expected = format!(
+        "WACC DIFFERS (recorded {:.3}%, recomputed {:.3}%, +{:.1} bp)",
+        was * 100.0,
+        now * 100.0,
+        (now - was) * 1e4
+    );
+    assert!(report.contains(&expected), "{expected} in {report}");
+}
+
 #[test]
 fn verify_refuses_a_receipt_from_a_newer_schema() {
     let (dir, case_dir) = demo_copy();
@@ -340,6 +418,47 @@ fn verify_reruns_the_case_beside_the_receipt_and_works_from_the_output_folder() 
     assert_eq!(verify.status.code(), Some(1), "{report}");
     assert!(report.contains("bundle/case.toml)"), "{report}");
     assert!(report.contains("fenhallow.csv: CHANGED"), "{report}");
+
+    // The bundle's own case edited: the recorded path still finds the original, unchanged, so
+    // the receipt could stand for either; verify names both and asks which (exit 2), and
+    // `--case` settles it (found by review: the original used to win, silently, and pass).
+    let case_file = bundle.join("case.toml");
+    let case_text = std::fs::read_to_string(&case_file).unwrap();
+    let erp = case_text
+        .lines()
+        .find(|l| l.starts_with("equity_risk_premium"))
+        .unwrap();
+    std::fs::write(
+        &case_file,
+        case_text.replace(erp, "equity_risk_premium = 0.0550"),
+    )
+    .unwrap();
+    let verify = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args(["verify", "bundle/output/result.json"])
+        .output()
+        .unwrap();
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(2), "{report}");
+    assert!(
+        report.contains("two case files could be this receipt's")
+            && report.contains("bundle/case.toml beside it")
+            && report.contains("--case"),
+        "{report}"
+    );
+    let chosen = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args([
+            "verify",
+            "bundle/output/result.json",
+            "--case",
+            "bundle/case.toml",
+        ])
+        .output()
+        .unwrap();
+    let report = text(&chosen);
+    assert_eq!(chosen.status.code(), Some(1), "{report}");
+    assert!(report.contains("equity_risk_premium"), "{report}");
 }
 
 // An input whose bytes changed without moving any figure (Windows line ends in one price

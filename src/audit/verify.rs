@@ -28,8 +28,10 @@ pub const DEFAULT_TOLERANCE: f64 = 1e-12;
 
 /// What a verification leaves out, and why: the derived outputs are drawn from the figures of
 /// `result.json`, which are compared one by one.
-pub const NOT_COMPARED: &str = "memo.md, figures/*.svg and report.html are not compared: they \
-are drawn from the figures of result.json, which are";
+pub const NOT_COMPARED: &str = "memo.md, figures/*.svg, report.html, peers.csv, workbook.xlsx \
+and returns.csv are not compared: they are drawn from the figures of result.json, which are \
+(the returns from the price files, whose hashes are); a rerun with hurdle run writes them anew \
+for a comparison by eye";
 
 /// The state of one input file.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -89,12 +91,12 @@ impl Mismatch {
     }
 
     /// For two numbers, their difference (recomputed − recorded) and its size relative to the
-    /// recorded figure: `; difference 1.2e-3 (0.11%)`. Empty otherwise.
+    /// recorded figure: `; difference 1.2e-3 (+0.11% of the recorded figure)`. Empty otherwise.
     pub fn difference(&self) -> String {
         match (self.recorded.as_f64(), self.recomputed.as_f64()) {
             (Some(a), Some(b)) if a != 0.0 => {
                 format!(
-                    "; difference {:.4e} ({:+.4}%)",
+                    "; difference {:.4e} ({:+.4}% of the recorded figure)",
                     b - a,
                     (b - a) / a.abs() * 100.0
                 )
@@ -114,6 +116,9 @@ pub struct Verification {
     /// The file it reruns (the case or the universe file; the field keeps its first name).
     pub case_file: String,
     pub case_unchanged: bool,
+    /// The `--set` overrides the receipt records, reapplied to the rerun: the case file alone
+    /// gives other figures when there are any.
+    pub overrides: Vec<String>,
     pub files: Vec<FileCheck>,
     pub tolerance: f64,
     /// How many leaves were compared.
@@ -151,7 +156,7 @@ impl Verification {
             n => format!("{n} input files changed; "),
         };
         format!(
-            "{}: {changed}{} figures compared, {} mismatched (relative tolerance {:e}){}",
+            "{}: {changed}{} figures compared, {} mismatched (relative tolerance {}){}",
             if self.reproduced {
                 "REPRODUCED"
             } else {
@@ -159,7 +164,7 @@ impl Verification {
             },
             self.compared,
             self.mismatches.len(),
-            self.tolerance,
+            crate::error::compact(self.tolerance),
             self.wording_summary()
         )
     }
@@ -168,9 +173,28 @@ impl Verification {
     pub fn headline_summary(&self) -> String {
         self.headline
             .iter()
-            .map(|(name, same)| {
-                let name = name.replace('_', " ").replace("wacc", "WACC");
-                format!("{name} {}", if *same { "reproduced" } else { "DIFFERS" })
+            .map(|(key, same)| {
+                let name = key.replace('_', " ").replace("wacc", "WACC");
+                if *same {
+                    return format!("{name} reproduced");
+                }
+                // The two rates and their gap in basis points, as a reviewer reads a rate.
+                let figure = self.mismatches.iter().find(|m| m.path == *key);
+                let values =
+                    figure.and_then(|m| Some((m.recorded.as_f64()?, m.recomputed.as_f64()?)));
+                match values {
+                    Some((was, now)) => {
+                        let pct = |x: f64| crate::error::rounded(x * 100.0, 3);
+                        let bp = crate::error::rounded((now - was) * 1e4, 1);
+                        let sign = if now > was { "+" } else { "" };
+                        format!(
+                            "{name} DIFFERS (recorded {}%, recomputed {}%, {sign}{bp} bp)",
+                            pct(was),
+                            pct(now)
+                        )
+                    }
+                    None => format!("{name} DIFFERS"),
+                }
             })
             .collect::<Vec<_>>()
             .join("; ")
@@ -270,6 +294,7 @@ pub fn verify(
         kind: "case",
         case_file: case_file.display().to_string(),
         case_unchanged,
+        overrides,
         files,
         tolerance,
         compared: found.compared,
@@ -358,7 +383,7 @@ pub(super) fn locate_case(
         let bytes = std::fs::read(path).ok();
         sha256.is_some_and(|hash| bytes.is_some_and(|b| crate::io::series::sha256_hex(&b) == hash))
     };
-    candidates
+    let found = candidates
         .iter()
         .find(|p| p.is_file() && same_bytes(p))
         .or_else(|| candidates.iter().find(|p| p.is_file()))
@@ -367,7 +392,28 @@ pub(super) fn locate_case(
             receipt: receipt_path.clone(),
             section: section.to_string(),
             tried: candidates.clone(),
-        })
+        })?;
+    // A bundle whose own case changed, while the recorded path (read from the working folder)
+    // finds an unchanged copy elsewhere: which one the receipt stands for is the auditor's
+    // call, never a silent choice, because verifying the copy would pass over the bundle's
+    // edit.
+    let beside = &candidates[0];
+    if candidates.len() == 2 && beside.is_file() && !same_bytes(beside) && found != *beside {
+        let absolute = |p: &Path| std::path::absolute(p).unwrap_or(p.to_path_buf());
+        if absolute(beside) != absolute(&found) {
+            return Err(Error::DataFile {
+                file: receipt_path.clone(),
+                message: format!(
+                    "two {section} files could be this receipt's: {} beside it, changed since \
+                     the receipt (its SHA-256 differs), and {}, the recorded path read from the \
+                     working folder, unchanged; pass --case with the one to verify",
+                    absolute(beside).display(),
+                    absolute(&found).display()
+                ),
+            });
+        }
+    }
+    Ok(found)
 }
 
 /// Each input file the receipt records, with its recorded and current SHA-256: the data files,

@@ -56,6 +56,7 @@ pub fn verify_universe(
         receipt: receipt_path.display().to_string(),
         kind: "universe",
         case_file: file.display().to_string(),
+        overrides,
         case_unchanged: unchanged,
         files,
         tolerance,

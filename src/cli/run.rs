@@ -121,6 +121,15 @@ fn summary(v: &Valuation) -> String {
             }
         ),
     ];
+    if !v.case.overrides.is_empty() {
+        lines.insert(
+            1,
+            format!(
+                "  with --set {} (recorded in result.json; the case file alone gives other figures)",
+                v.case.overrides.join(", ")
+            ),
+        );
+    }
     for note in &v.notes {
         lines.push(format!("  note: {note}"));
     }

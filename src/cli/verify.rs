@@ -52,6 +52,15 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     })
 }
 
+/// The overrides as the command line gives them, each `--set` quoted.
+fn quoted_overrides(overrides: &[String]) -> String {
+    overrides
+        .iter()
+        .map(|o| format!("--set \"{o}\""))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
 fn render(r: &Verification) -> String {
     let mut out = format!("verifying {} ({} {})\n", r.receipt, r.kind, r.case_file);
     out.push_str(&format!(
@@ -63,6 +72,14 @@ fn render(r: &Verification) -> String {
             "CHANGED since the receipt"
         }
     ));
+    if !r.overrides.is_empty() {
+        out.push_str(&format!(
+            "  overrides: the receipt's run applied {}, reapplied here (the {} file alone gives \
+             other figures)\n",
+            quoted_overrides(&r.overrides),
+            r.kind
+        ));
+    }
     for f in &r.files {
         if f.unchanged {
             out.push_str(&format!("  {} {}: unchanged\n", f.role, f.path));

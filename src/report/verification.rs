@@ -60,6 +60,16 @@ pub fn markdown(r: &Verification) -> String {
         r.recorded_tool_version,
         r.current_tool_version
     );
+    if !r.overrides.is_empty() {
+        let list: Vec<String> = r.overrides.iter().map(|o| format!("`{o}`")).collect();
+        let _ = writeln!(
+            w,
+            "The receipt's run applied these `--set` overrides, reapplied to the rerun (the {} \
+             file alone gives other figures): {}.\n",
+            r.kind,
+            list.join(", ")
+        );
+    }
     let _ = writeln!(
         w,
         "| Role | File | Status | Recorded SHA-256 | Current SHA-256 |"
@@ -86,7 +96,7 @@ pub fn markdown(r: &Verification) -> String {
     if !r.wording_differences.is_empty() {
         let _ = writeln!(w, "\nWorded differently: {WORDING_NOTE}.");
     }
-    let _ = writeln!(w, "\nNot compared: {}.", r.not_compared);
+    let _ = writeln!(w, "\n{}.", r.not_compared);
     let _ = writeln!(
         w,
         "\nA match shows that the same inputs give the same figures; it does not show that the \
