@@ -43,6 +43,18 @@ fn run_case(case: &Path, out: &Path, extra: &[&str]) -> serde_json::Value {
     serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap()
 }
 
+/// `hurdle verify RECEIPT --out DIR`: its output and text.
+fn verify_into(receipt: &Path, dir: &Path) -> (std::process::Output, String) {
+    let output = hurdle(&[
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        dir.to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    (output, report)
+}
+
 #[test]
 fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
     let (dir, case_dir) = demo_copy();
@@ -141,14 +153,7 @@ fn verify_names_the_receipts_overrides_and_the_headline_gap() {
         text(&run)
     );
     let status_dir = dir.path().join("status");
-    let args = [
-        "verify",
-        receipt.to_str().unwrap(),
-        "--out",
-        status_dir.to_str().unwrap(),
-    ];
-    let output = hurdle(&args);
-    let report = text(&output);
+    let (output, report) = verify_into(&receipt, &status_dir);
     assert_eq!(output.status.code(), Some(0), "{report}");
     assert!(
         report.contains(&format!(
@@ -214,14 +219,7 @@ fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_change
     let receipt = out.join("reworded.json");
     std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let status_dir = dir.path().join("status");
-    let args = [
-        "verify",
-        receipt.to_str().unwrap(),
-        "--out",
-        status_dir.to_str().unwrap(),
-    ];
-    let output = hurdle(&args);
-    let report = text(&output);
+    let (output, report) = verify_into(&receipt, &status_dir);
     assert_eq!(output.status.code(), Some(0), "{report}");
     assert!(
         report.contains("worded differently estimator.method_description: recorded"),
@@ -249,8 +247,7 @@ fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_change
 
     result["estimator"]["method"] = "dimson".into();
     std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
-    let output = hurdle(&args);
-    let report = text(&output);
+    let (output, report) = verify_into(&receipt, &status_dir);
     assert_eq!(output.status.code(), Some(1), "{report}");
     assert!(
         report.contains(r#"MISMATCH estimator.method: recorded "dimson" recomputed "ols""#),
