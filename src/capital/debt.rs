@@ -29,6 +29,18 @@ pub fn rating_row<'a>(
         })
 }
 
+/// How far below a threshold a coverage may fall in binary and still count as reaching it: a
+/// ratio of two decimal figures that equals a threshold in decimal (37.8 / 9 = 4.2) can land an
+/// ulp or two below the threshold's double (4.199999999999999), and would be given the worse
+/// rating. 1e-12 relative lies far above that rounding (about 1e-16) and far below any two
+/// thresholds a table could mean to tell apart (they are given to a few decimals).
+const COVERAGE_ROUNDING: f64 = 1e-12;
+
+/// Whether `coverage` reaches the threshold `low`, within [`COVERAGE_ROUNDING`].
+fn reaches(coverage: f64, low: f64) -> bool {
+    coverage >= low || low - coverage <= COVERAGE_ROUNDING * low.abs()
+}
+
 /// The row of a coverage → rating → spread table that `coverage` falls in: the last row whose
 /// `min_coverage` is at or below it (thresholds are inclusive lower bounds; the top row is
 /// open-ended). A coverage below the lowest threshold is not covered by the table.
@@ -37,7 +49,7 @@ pub fn coverage_row(table: &SpreadTable, coverage: f64) -> std::result::Result<&
         .rows
         .iter()
         .rev()
-        .find(|r| r.min_coverage.is_some_and(|low| coverage >= low))
+        .find(|r| r.min_coverage.is_some_and(|low| reaches(coverage, low)))
         .ok_or_else(|| {
             format!(
                 "interest coverage {coverage} (debt.ebit / debt.interest_expense) is below the \
@@ -248,6 +260,37 @@ mod tests {
         assert_eq!(record.row.as_ref().unwrap().line, 4);
         // 1e-15: one addition of decimals.
         assert!((record.pre_tax - 0.058).abs() < 1e-15);
+    }
+
+    // A coverage equal to a threshold in decimal reaches it, although its double lies an ulp
+    // below (37.8 / 9 is 4.199999999999999 in binary; 25.08 / 19 is 1.3199999999999998, both
+    // checked in Python): the table's own rule, "at or below", taken in decimal (found by
+    // review: both were given the next worse rating).
+    #[test]
+    fn a_coverage_on_a_threshold_gets_that_row() {
+        let table = SpreadTable {
+            rows: vec![
+                SpreadRow {
+                    min_coverage: Some(1.32),
+                    rating: "CCC".into(),
+                    spread: 0.07,
+                    line: 2,
+                },
+                SpreadRow {
+                    min_coverage: Some(4.2),
+                    rating: "BBB".into(),
+                    spread: 0.0184,
+                    line: 3,
+                },
+            ],
+            ..coverage_table()
+        };
+        assert!(37.8 / 9.0 < 4.2 && 25.08 / 19.0 < 1.32);
+        assert_eq!(coverage_row(&table, 37.8 / 9.0).unwrap().rating, "BBB");
+        assert_eq!(coverage_row(&table, 25.08 / 19.0).unwrap().rating, "CCC");
+        // A coverage truly below a threshold stays below it.
+        assert_eq!(coverage_row(&table, 4.1999).unwrap().rating, "CCC");
+        assert!(coverage_row(&table, 1.3199).is_err());
     }
 
     #[test]
