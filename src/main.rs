@@ -25,6 +25,12 @@ fn main() -> ExitCode {
         if message.starts_with("failed printing to stdout") && message.contains("Broken pipe") {
             std::process::exit(141);
         }
+        // Any other failure to print (a full disk, `> /dev/full`) is an error of the
+        // destination, reported as one: exit 2, not a panic's 101.
+        if let Some(reason) = message.strip_prefix("failed printing to stdout: ") {
+            eprintln!("error: cannot write to standard output: {reason}");
+            std::process::exit(2);
+        }
         // A corrupt Parquet file that polars' decoder panics on is reported as an error by the
         // library's guard; the panic itself is not news.
         if hurdle::io::guard::is_guarded(info) {

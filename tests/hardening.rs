@@ -312,6 +312,28 @@ fn a_closed_pipe_is_not_a_panic() {
     assert_eq!(output.status.code(), Some(141), "{}", stderr(&output));
 }
 
+// Standard output on a full device (`> /dev/full`, Linux's always-full file) is an error of
+// the destination: exit 2 with the OS's reason, not a panic (found by review: exit 101).
+#[test]
+fn a_full_standard_output_is_an_error_not_a_panic() {
+    let Ok(full) = std::fs::OpenOptions::new().write(true).open("/dev/full") else {
+        return; // Not Linux: there is no always-full device to write to.
+    };
+    let output = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["betas", common::DEMO_CASE])
+        .stdout(full)
+        .stderr(Stdio::piped())
+        .output()
+        .unwrap();
+    assert!(!stderr(&output).contains("panicked"), "{}", stderr(&output));
+    assert_eq!(output.status.code(), Some(2), "{}", stderr(&output));
+    assert!(
+        stderr(&output).contains("cannot write to standard output: No space left on device"),
+        "{}",
+        stderr(&output)
+    );
+}
+
 // A beta listing computes no cost of capital, so a fault in the spread table that only the cost
 // of debt reads stops `run` and leaves `betas` and `rolling` alone. Once an unlevered beta reads
 // the subject's cost of debt (Miles–Ezzell discounts the tax shield at it, and a credit-spread
