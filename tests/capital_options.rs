@@ -199,6 +199,25 @@ fn debt_beta_above_the_equity_beta_is_refused() {
         "{message}"
     );
     assert!(message.contains("above the equity beta"), "{message}");
+
+    // The same debt beta on a peer without debt describes no debt: its D/E is 0, so every
+    // formula unlevers it to its own equity beta (βU = βL at D = 0, Harris and Pringle 1985),
+    // and the case runs (found by review: it was refused). Exact: 0 × anything adds nothing.
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "leverage.formula=harris-pringle",
+            "leverage.debt_beta_source=given",
+            "leverage.debt_beta=0.3",
+            "peer.Dunmere Hydraulics.debt_beta=0.95",
+            "peer.Dunmere Hydraulics.debt=0",
+        ],
+    );
+    let dunmere = &result["peers"][2];
+    assert_eq!(dunmere["name"], "Dunmere Hydraulics");
+    assert_eq!(dunmere["debt_to_equity"], 0.0);
+    assert_eq!(dunmere["unlevered_beta"], dunmere["beta_used"]);
 }
 
 // The formula comparison under Hamada (1972), which ignores debt betas, with a peer debt beta

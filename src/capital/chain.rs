@@ -551,7 +551,9 @@ fn formula_outcome(
 }
 
 /// Debt cannot be riskier than the equity it ranks ahead of: a debt beta above a peer's equity
-/// beta (or above the aggregate asset beta the subject is relevered from) is an input error.
+/// beta (or above the aggregate asset beta the subject is relevered from) is an input error. A
+/// peer whose D/E is 0 (no debt, gross) is unlevered to its own equity beta whatever the debt
+/// beta, which then describes no debt, so it is not held against the peer.
 fn check_debt_betas(
     spec: &CapitalSpec<'_>,
     common: &Common,
@@ -562,7 +564,7 @@ fn check_debt_betas(
         return Ok(());
     }
     for (i, (terms, adjusted)) in common.peers.iter().zip(&common.adjusted).enumerate() {
-        if terms.debt_beta > adjusted.used {
+        if terms.debt_to_equity != 0.0 && terms.debt_beta > adjusted.used {
             return Err(ChainError::PeerDebtBeta(i, terms.debt_beta, adjusted.used));
         }
     }

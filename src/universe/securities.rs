@@ -285,8 +285,12 @@ fn unlever(
     let issue = debt_to_equity.and_then(|de| match de {
         _ if de <= -1.0 => Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY),
         _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
-        // The case's rule (capital::chain), for the formulas that take a debt beta.
-        _ if leverage.formula != Formula::Hamada && beta_used.is_some_and(|b| debt_beta > b) => {
+        // The case's rule (capital::chain), for the formulas that take a debt beta, and a D/E
+        // that lets the debt beta count.
+        _ if leverage.formula != Formula::Hamada
+            && de != 0.0
+            && beta_used.is_some_and(|b| debt_beta > b) =>
+        {
             Some(DEBT_BETA_ABOVE_EQUITY_BETA)
         }
         _ => None,
