@@ -1439,6 +1439,26 @@ fn implied_values_no_one_could_defend_are_cautioned() {
         "{}",
         text(&low)
     );
+    // A negative risk-free rate is cautioned without calling it impossible: government yields
+    // below zero have been quoted in some currencies (a fact of the trade, common practice).
+    let negative = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        "0.045",
+        "--solve",
+        "risk_free",
+        "--range",
+        "-0.05..0.2",
+    ]);
+    let report = text(&negative);
+    assert_eq!(negative.status.code(), Some(0), "{report}");
+    assert!(
+        report
+            .contains("caution: a risk-free rate below zero: some markets have quoted such yields")
+            && !report.contains("no market gives"),
+        "{report}"
+    );
     // Debt cheaper than the riskless rate, and a riskless rate above the debt's cost: each
     // solved value is compared with the case's other rate (result.json), and cautioned.
     let risk_free = number(&result, "risk_free_rate");

@@ -461,3 +461,65 @@ fn a_debt_beta_without_its_source_is_refused() {
     assert!(message.contains("leverage.debt_beta = 0.2"), "{message}");
     assert!(message.contains("debt_beta_source"), "{message}");
 }
+
+// Figures a reviewer would question are named in the run's notes and again among the memo's
+// cautions (found by review: a negative cost of equity and WACC, and a cost of debt below the
+// risk-free rate, were published without a word). The bounds are facts of the trade (common
+// practice): equity earns more than the riskless rate, debt costs at least the riskless rate of
+// its currency, and a discount rate is above zero.
+#[test]
+fn implausible_signs_are_named_as_figures_to_check() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("negative");
+    let result = run_demo(
+        &out,
+        &["premiums.size=-0.5", "premiums.company_specific=-0.5"],
+    );
+    let notes: Vec<&str> = result["notes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|n| n.as_str())
+        .collect();
+    let ke = number(&result, "cost_of_equity");
+    assert!(ke < 0.0 && number(&result, "wacc") < 0.0);
+    assert!(
+        notes
+            .iter()
+            .any(|n| n.starts_with("Check: the cost of equity, ")
+                && n.contains("below the risk-free rate")),
+        "{notes:?}"
+    );
+    assert!(
+        notes.iter().any(|n| n.starts_with("Check: the WACC, ")),
+        "{notes:?}"
+    );
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    let cautions = memo.split("## 13. Cautions").nth(1).unwrap();
+    assert!(
+        cautions.contains("**Figures to check.**")
+            && cautions.contains("  - the WACC, ")
+            && cautions.contains("  - the cost of equity, "),
+        "{cautions}"
+    );
+
+    let out = dir.path().join("kd");
+    let result = run_demo(&out, &["debt.cost_pre_tax=0.02"]);
+    assert!(
+        result["notes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|n| n.as_str().unwrap().starts_with(
+                "Check: the pre-tax cost of debt, 2.00%, is below the risk-free rate, 2.67%"
+            )),
+        "{}",
+        result["notes"]
+    );
+    // The demo itself raises none of these.
+    let out = dir.path().join("demo");
+    let result = run_demo(&out, &[]);
+    assert!(!result["notes"].to_string().contains("Check:"));
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(!memo.contains("Figures to check"));
+}

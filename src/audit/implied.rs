@@ -190,7 +190,14 @@ impl Implied {
             Target::Beta => "a relevered beta",
             Target::DebtToEquity => unreachable!("returned above"),
         };
-        if value < 0.0 {
+        if value < 0.0 && self.target == Target::RiskFree {
+            // Negative yields have been quoted on some currencies' government bonds.
+            Some(
+                "a risk-free rate below zero: some markets have quoted such yields; check that \
+                 the claim's currency and date had one"
+                    .into(),
+            )
+        } else if value < 0.0 {
             Some(format!(
                 "{what} below zero: the claim implies an input no market gives"
             ))

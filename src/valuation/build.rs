@@ -369,6 +369,39 @@ fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
             )
         })
         .collect();
+    let below = |what: &str, x: f64, why: &str| format!("Check: {what}, {}, {why}", percent(x));
+    if cost.equity_risk_premium <= 0.0 {
+        notes.push(below(
+            "the equity risk premium",
+            cost.equity_risk_premium,
+            "is not above zero: equities would be expected to earn no more than the riskless \
+             asset.",
+        ));
+    }
+    if cost.cost_of_equity < cost.risk_free_rate {
+        notes.push(format!(
+            "Check: the cost of equity, {}, is below the risk-free rate, {}: an equity investor \
+             would accept less than the riskless rate (a negative premium or beta).",
+            percent(cost.cost_of_equity),
+            percent(cost.risk_free_rate)
+        ));
+    }
+    if cost.cost_of_debt_pre_tax < cost.risk_free_rate {
+        notes.push(format!(
+            "Check: the pre-tax cost of debt, {}, is below the risk-free rate, {}: no lender \
+             takes less than the riskless rate of the same currency and term; look at the spread \
+             or the given yield.",
+            percent(cost.cost_of_debt_pre_tax),
+            percent(cost.risk_free_rate)
+        ));
+    }
+    if cost.wacc <= 0.0 {
+        notes.push(below(
+            "the WACC",
+            cost.wacc,
+            "is not above zero: it cannot serve as a discount rate.",
+        ));
+    }
     if cost.cost_of_debt_pre_tax > cost.cost_of_equity {
         notes.push(format!(
             "Check: the pre-tax cost of debt, {}, is above the cost of equity, {}: debt ranks \
