@@ -1229,6 +1229,11 @@ fn verify_reruns_a_universe_receipt() {
         "{report}"
     );
     assert!(report.contains("industries["), "{report}");
+    // Each industry row is named by its label, as peers are by name (found by review: rows
+    // were matched by position, so a relabelled industry compared against its neighbour).
+    for line in report.lines().filter(|l| l.contains("MISMATCH industries[")) {
+        assert!(line.contains("(\""), "{line}");
+    }
 }
 
 // `universe.rolling = true`: each security's rolling betas are those `hurdle rolling` writes for a

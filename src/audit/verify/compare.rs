@@ -42,9 +42,9 @@ struct Place<'a> {
 }
 
 /// The name a list entry records for itself (a peer's `name`, a leave-one-out row's `peer`, an
-/// input file's `role`).
+/// input file's `role`, a universe's industry row's `industry`).
 fn entry_name(entry: &Value) -> Option<String> {
-    ["name", "peer", "security", "role"]
+    ["name", "peer", "security", "industry", "role"]
         .iter()
         .find_map(|k| entry.get(k).and_then(Value::as_str))
         .map(str::to_string)
