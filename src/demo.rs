@@ -325,10 +325,13 @@ title = "Quillmarsh Pumps: cost of capital for a fair-value measurement (demo)"
 subject = "Quillmarsh Pumps (fictional)"
 valuation_date = 2026-09-30
 currency = "EUR"
+peer_selection = "Illustrative: listed makers of industrial pumps, valves and seals with at least three years of prices (invented demo peers)."
 
 [market]
 risk_free_rate = RISK_FREE_SPOT  # illustrative: the demo yield series' last value
 equity_risk_premium = 0.0517  # illustrative, invented
+risk_free_rate_justification = "Illustrative: the last value of the demo's invented yield series, at the valuation date."
+equity_risk_premium_justification = "Illustrative: an invented figure for the demo, not an estimate of any market's premium."
 
 [market.index]
 name = "Demo broad market index (fictional)"
@@ -355,6 +358,7 @@ tax_rate = 0.25
 subject_equity_value = 1500.0
 subject_debt = 450.0
 subject_cash = 80.0
+justification = "Illustrative: the structure the invented subject plans to hold, above its current 0.30 (invented demo figure)."
 
 [debt]
 source = "given"              # or "rating" or "coverage", e.g. --set debt.source=coverage
@@ -364,6 +368,7 @@ rating_table = "data/rating_spreads_invented.csv"  # illustrative, invented tabl
 ebit = 210.0                  # illustrative; for source = "coverage" (coverage 4.375)
 interest_expense = 48.0       # illustrative
 coverage_table = "data/coverage_grid_invented.csv"  # illustrative, invented table
+justification = "Illustrative: an invented yield on the subject's debt (demo figure)."
 
 [premiums]
 size = 0.010                  # illustrative

@@ -55,6 +55,24 @@ pub enum Error {
         section: String,
         tried: Vec<PathBuf>,
     },
+    /// Two files could be the one a receipt reruns: the one beside the receipt changed since
+    /// the receipt, while the recorded path finds an unchanged copy; a front end says how to
+    /// choose.
+    #[error(
+        "{}: two {section} files could be this receipt's: {} beside it, changed since the receipt \
+         (its SHA-256 differs), and {}, the recorded path read from the working folder, \
+         unchanged; say which one to verify",
+        receipt.display(),
+        beside.display(),
+        recorded.display()
+    )]
+    AmbiguousInput {
+        receipt: PathBuf,
+        /// `case` or `universe`.
+        section: String,
+        beside: PathBuf,
+        recorded: PathBuf,
+    },
     /// A command-line option or a value outside the override syntax is malformed.
     #[error("{option}: {message}")]
     Argument { option: String, message: String },

@@ -1196,13 +1196,13 @@ fn case_files() -> Vec<Bad> {
             "rate with a percent sign",
             |s| set_case_key(s, "risk_free_rate", "2.67%"),
             ["run", "{case}", "--out", "{out}"],
-            ["line 11", "2.67% is not a number", "0.0267 for 2.67%"]
+            ["line 12", "2.67% is not a number", "0.0267 for 2.67%"]
         ),
         bad!(
             "rate with a decimal comma",
             |s| set_case_key(s, "risk_free_rate", "0,0267"),
             ["run", "{case}", "--out", "{out}"],
-            ["line 11", "0,0267 is not a number", "decimal point"]
+            ["line 12", "0,0267 is not a number", "decimal point"]
         ),
         bad!(
             "typographic quotes",

@@ -1231,7 +1231,10 @@ fn verify_reruns_a_universe_receipt() {
     assert!(report.contains("industries["), "{report}");
     // Each industry row is named by its label, as peers are by name (found by review: rows
     // were matched by position, so a relabelled industry compared against its neighbour).
-    for line in report.lines().filter(|l| l.contains("MISMATCH industries[")) {
+    for line in report
+        .lines()
+        .filter(|l| l.contains("MISMATCH industries["))
+    {
         assert!(line.contains("(\""), "{line}");
     }
 }

@@ -401,15 +401,11 @@ pub(super) fn locate_case(
     if candidates.len() == 2 && beside.is_file() && !same_bytes(beside) && found != *beside {
         let absolute = |p: &Path| std::path::absolute(p).unwrap_or(p.to_path_buf());
         if absolute(beside) != absolute(&found) {
-            return Err(Error::DataFile {
-                file: receipt_path.clone(),
-                message: format!(
-                    "two {section} files could be this receipt's: {} beside it, changed since \
-                     the receipt (its SHA-256 differs), and {}, the recorded path read from the \
-                     working folder, unchanged; pass --case with the one to verify",
-                    absolute(beside).display(),
-                    absolute(&found).display()
-                ),
+            return Err(Error::AmbiguousInput {
+                receipt: receipt_path.clone(),
+                section: section.to_string(),
+                beside: absolute(beside),
+                recorded: absolute(&found),
             });
         }
     }
@@ -558,7 +554,7 @@ mod tests {
         );
         assert_eq!(
             found.mismatches[0].difference(),
-            "; difference 1.0000e-1 (+10.0000%)"
+            "; difference 1.0000e-1 (+10.0000% of the recorded figure)"
         );
         // In the same order the lists are compared by position, as before.
         let same = compare(&recorded, &recorded.clone(), 0.0);

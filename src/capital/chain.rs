@@ -101,6 +101,9 @@ pub struct Chain {
     pub cost_of_debt: CostOfDebtRecord,
     pub cost_of_debt_after_tax: f64,
     pub target_debt_to_equity: f64,
+    /// The median D/E of the peers that enter the aggregates, whatever the target's source:
+    /// the peer-median target, and what an explicit target is set beside.
+    pub peer_median_debt_to_equity: f64,
     /// The debt beta used in relevering at the target (0 when none).
     pub subject_debt_beta: f64,
     pub weights: Weights,
@@ -172,6 +175,7 @@ struct Common {
     adjusted: Vec<AdjustedBeta>,
     peers: Vec<PeerTerms>,
     cost_of_debt: CostOfDebtRecord,
+    peer_median_debt_to_equity: f64,
     shared: Shared,
 }
 
@@ -276,10 +280,12 @@ fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, Chain
     let shared = shared(spec, peers, &mut buffers)?;
     let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
+    let peer_median_debt_to_equity = peer_median_debt_to_equity(peers, &mut buffers);
     Ok(Common {
         adjusted: buffers.adjusted,
         peers: buffers.terms,
         cost_of_debt,
+        peer_median_debt_to_equity,
         shared,
     })
 }
@@ -312,6 +318,7 @@ pub fn chain(
         cost_of_debt: common.cost_of_debt,
         cost_of_debt_after_tax: shared.cost_of_debt_after_tax,
         target_debt_to_equity: shared.target.debt_to_equity,
+        peer_median_debt_to_equity: common.peer_median_debt_to_equity,
         subject_debt_beta: shared.subject_debt.debt_beta,
         weights: shared.weights,
         other: shared.other,
@@ -593,6 +600,7 @@ mod tests {
             ebit: None,
             interest_expense: None,
             coverage_table: None,
+            justification: String::new(),
         }
     }
 

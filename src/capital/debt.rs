@@ -171,6 +171,10 @@ pub struct DebtSettings {
     /// CSV or TOML table of `min_coverage, rating, spread` (source `coverage`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub coverage_table: Option<String>,
+    /// Where the cost of debt or its rating comes from, printed in the memo (a case's words;
+    /// no computation reads it).
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub justification: String,
 }
 
 /// `debt.source`: where the pre-tax cost of debt comes from.
@@ -254,6 +258,7 @@ mod tests {
             ebit: Some(120.0),
             interest_expense: Some(40.0),
             coverage_table: Some("coverage.csv".into()),
+            justification: String::new(),
         };
         let record = cost_of_debt(&settings, Some(&table), 0.038).unwrap();
         assert_eq!(record.interest_coverage, Some(3.0));

@@ -60,14 +60,24 @@ impl CaseFile {
                 (None, None) => unreachable!("validate() requires one target ratio"),
             }),
             TargetSource::PeerMedian => None,
-            TargetSource::Subject => {
-                let debt = self.leverage.debt_measure.debt(
-                    target.subject_debt.unwrap_or(0.0),
-                    target.subject_cash.unwrap_or(0.0),
-                );
-                Some(debt / target.subject_equity_value.expect("validated"))
-            }
+            TargetSource::Subject => Some(
+                self.subject_debt_to_equity()
+                    .expect("validate() requires the subject's equity value"),
+            ),
         }
+    }
+
+    /// The subject's own current D/E (with the case's debt measure) when the case gives its
+    /// equity value: the target of `target.source = "subject"`, and what another target is set
+    /// beside.
+    pub fn subject_debt_to_equity(&self) -> Option<f64> {
+        let target = &self.target;
+        let equity = target.subject_equity_value.filter(|&e| e > 0.0)?;
+        let debt = self.leverage.debt_measure.debt(
+            target.subject_debt.unwrap_or(0.0),
+            target.subject_cash.unwrap_or(0.0),
+        );
+        Some(debt / equity)
     }
 }
 

@@ -138,7 +138,8 @@ fn header(table: &PriceTable, options: &StartOptions) -> String {
          title = {title}  # the memo's title\n\
          subject = {subject}\n\
          valuation_date = {date}\n\
-         currency = {currency}  # a label; no conversion is made\n\n\
+         currency = {currency}  # a label; no conversion is made\n\
+         peer_selection = \"\"  # how the peers were chosen, printed in the memo\n\n\
          # The price table: a date column and one column per security.\n\
          [sources.prices]\n\
          file = {file}\n",
@@ -173,7 +174,9 @@ fn market(options: &StartOptions) -> String {
     let mut text = format!(
         "\n[market]\n\
          risk_free_rate = {rf}\n\
-         equity_risk_premium = {erp}\n\n\
+         equity_risk_premium = {erp}\n\
+         risk_free_rate_justification = \"\"  # its source, date and maturity, printed in the memo\n\
+         equity_risk_premium_justification = \"\"  # its source and method\n\n\
          # The market index the betas are measured against.\n\
          [market.index]\n\
          name = {name}\n\
@@ -331,10 +334,12 @@ fn capital_sections() -> String {
          # debt_to_capital = 0.3  # instead of debt_to_equity: D/(D + E)\n\
          tax_rate = {tax}\n\
          tax_rate_basis = \"marginal\"  # marginal or effective\n\
-         source = \"explicit\"  # explicit, peer-median or subject\n\n\
+         source = \"explicit\"  # explicit, peer-median or subject\n\
+         justification = \"\"  # why this structure, printed in the memo\n\n\
          [debt]\n\
          source = \"given\"  # given, rating (with rating, rating_table) or coverage\n\
-         cost_pre_tax = {kd}\n",
+         cost_pre_tax = {kd}\n\
+         justification = \"\"  # where the cost of debt or the rating comes from\n",
         de = placeholder("target debt-to-equity at market values"),
         tax = placeholder("the subject's marginal tax rate, decimal"),
         kd = placeholder("pre-tax cost of debt, decimal, e.g. a yield to maturity"),

@@ -136,6 +136,9 @@ pub struct CaseInfo {
     pub valuation_date: CaseDate,
     /// A label only; no conversion is made.
     pub currency: String,
+    /// How the peers were chosen (criteria, candidates left aside), printed in the memo.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub peer_selection: String,
 }
 
 /// `[market]`: the rates of the CAPM and the index the betas are measured against.
@@ -146,6 +149,12 @@ pub struct Market {
     pub risk_free_rate: f64,
     /// Annual equity risk premium over that rate (decimal).
     pub equity_risk_premium: f64,
+    /// Where the risk-free rate comes from (source, date, maturity), printed in the memo.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub risk_free_rate_justification: String,
+    /// Where the equity risk premium comes from (source, method, date), printed in the memo.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub equity_risk_premium_justification: String,
     pub index: IndexSpec,
     /// Annualised yields used to turn returns into excess returns; raw returns when absent.
     #[serde(default)]
@@ -396,6 +405,9 @@ pub struct TargetSettings {
     /// The subject's cash, same unit (source `subject` with net debt).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub subject_cash: Option<f64>,
+    /// Why this structure is the one expected over the cash flows' horizon, printed in the memo.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub justification: String,
 }
 
 /// `target.source`: where the target D/E comes from.

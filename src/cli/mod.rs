@@ -68,6 +68,7 @@ pub fn render_error(error: &hurdle::Error) -> String {
             overrides.join(", --set ")
         ),
         Error::InputNotFound { .. } => format!("{error}; give its place with --case"),
+        Error::AmbiguousInput { .. } => format!("{error} with --case"),
         other => other.to_string(),
     }
 }

@@ -24,6 +24,7 @@ pub fn value_with(
     let (chain, exclusions) = run_chain(case, inputs, estimates, Checks::Enforce)?;
     let mut notes = estimates.notes.clone();
     notes.extend(capital_notes(settings, &exclusions));
+    notes.extend(target_note(settings, &chain));
     let peers = peer_results(settings, inputs, estimates, &unlevered(&chain), exclusions);
     let cost = cost_record(settings, &chain, &peers);
     notes.extend(plausibility_notes(&cost));
@@ -286,6 +287,27 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
         );
     }
     notes
+}
+
+/// An explicit target structure given without a basis (`target.justification`), set beside
+/// the aggregated peers' median D/E and the subject's own, which a reviewer compares it with.
+fn target_note(settings: &CaseFile, chain: &Chain) -> Option<String> {
+    if settings.target.source != TargetSource::Explicit || !settings.target.justification.is_empty()
+    {
+        return None;
+    }
+    let ratio = |x: f64| crate::error::rounded(x, 3);
+    let own = settings
+        .subject_debt_to_equity()
+        .map(|de| format!(" and the subject's own, {}", ratio(de)))
+        .unwrap_or_default();
+    Some(format!(
+        "The target D/E of {} has no stated basis (target.justification): the aggregated peers' \
+         median is {}{own}; say why the structure expected over the cash flows' horizon is this \
+         one.",
+        ratio(chain.target_debt_to_equity),
+        ratio(chain.peer_median_debt_to_equity)
+    ))
 }
 
 /// Preferred or lease costs given with a weight of 0: the WACC gives them no weight, unless a

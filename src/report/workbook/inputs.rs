@@ -132,13 +132,15 @@ fn rates(v: &Valuation) -> Vec<Spec> {
             "RiskFreeRate",
             "market.risk_free_rate",
             "/risk_free_rate",
-        ),
+        )
+        .note(&v.settings.market.risk_free_rate_justification),
         spec(
             "Equity risk premium",
             "EquityRiskPremium",
             "market.equity_risk_premium",
             "/equity_risk_premium",
-        ),
+        )
+        .note(&v.settings.market.equity_risk_premium_justification),
         spec(
             "Size premium",
             "SizePremium",
@@ -201,6 +203,12 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
         "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",
         _ => "",
     };
+    let target_note = [target_note, v.settings.target.justification.as_str()]
+        .iter()
+        .filter(|text| !text.is_empty())
+        .copied()
+        .collect::<Vec<_>>()
+        .join(" ");
     spec(
         "Target debt-to-equity (D/E)",
         "TargetDebtToEquity",
@@ -225,7 +233,7 @@ fn debt(v: &Valuation) -> Vec<Spec> {
         "/cost_of_debt_pre_tax",
     );
     let mut specs = match record.source {
-        DebtSource::Given => vec![pre_tax],
+        DebtSource::Given => vec![pre_tax.note(&v.settings.debt.justification)],
         DebtSource::Rating | DebtSource::Coverage => {
             let row = record.row.as_ref();
             let coverage = record.interest_coverage.map_or(String::new(), |c| {
