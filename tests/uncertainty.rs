@@ -102,6 +102,98 @@ fn specification_rows_equal_separate_set_runs() {
     assert_eq!(compared, 9);
 }
 
+// The specification range's note restates what the rows show beside the intervals: where the
+// case's own row falls among the others and how many lie outside the 90% estimation interval.
+// Recounted here from result.json's rows and percentiles (the note's two-decimal percentages).
+// The demo's own row is the lowest of the nine, two others above the interval's top.
+#[test]
+fn the_specification_note_places_the_case_among_its_rows() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_demo_case(&dir.path().join("case"));
+    let case = dir.path().join("case/case.toml");
+    let base = run(&case, &dir.path().join("base"), &["--no-figures"]);
+    let u = &base["uncertainty"];
+    let rows = u["specifications"].as_array().unwrap();
+    let own = rows.iter().find(|r| r["case_choice"] == true).unwrap()["wacc"]
+        .as_f64()
+        .unwrap();
+    let others: Vec<f64> = rows
+        .iter()
+        .filter(|r| r["case_choice"] != true)
+        .filter_map(|r| r["wacc"].as_f64())
+        .collect();
+    let (p05, p95) = (
+        number(&base, "uncertainty.p05"),
+        number(&base, "uncertainty.p95"),
+    );
+    let outside = others.iter().filter(|&&w| w < p05 || w > p95).count();
+    assert!(others.iter().all(|&w| w > own) && outside == 2, "{rows:?}");
+    let low = others.iter().copied().fold(f64::INFINITY, f64::min);
+    let high = others.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let pct = |x: f64| format!("{:.2}%", x * 100.0);
+    let expected = format!(
+        "Specification range: the case's own frequency and window give {}, the lowest WACC of \
+         the 9 rows (the others {} to {}); 2 of the other 8 lie outside the 90% \
+         estimation-error interval ({} to {})",
+        pct(own),
+        pct(low),
+        pct(high),
+        pct(p05),
+        pct(p95)
+    );
+    let notes = base["notes"].to_string();
+    assert!(notes.contains(&expected), "{expected}\n{notes}");
+    let memo = std::fs::read_to_string(dir.path().join("base/memo.md")).unwrap();
+    assert!(memo.contains("\nThe case's own frequency and window give"));
+}
+
+// A first and a last rolling window whose betas differ by more than 1.96 standard errors of
+// the difference (the two-sample z of Paternoster et al. 1998, computed here from `hurdle
+// rolling`'s rolling.csv) are noted for that peer, and only for it.
+#[test]
+fn a_rolling_beta_that_moved_beyond_its_error_is_noted() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_demo_case(&dir.path().join("case"));
+    let case = dir.path().join("case/case.toml");
+    let base = run(&case, &dir.path().join("base"), &["--no-figures"]);
+    let rolling_dir = dir.path().join("rolling");
+    let output = hurdle(&[
+        "rolling",
+        case.to_str().unwrap(),
+        "--out",
+        rolling_dir.to_str().unwrap(),
+    ]);
+    assert!(output.status.success());
+    let table = std::fs::read_to_string(rolling_dir.join("rolling.csv")).unwrap();
+    let mut by_peer: std::collections::BTreeMap<String, Vec<(f64, f64)>> = Default::default();
+    for line in table.lines().skip(1) {
+        let cells: Vec<&str> = line.split(',').collect();
+        let (beta, se) = (cells[2].parse().unwrap(), cells[3].parse().unwrap());
+        by_peer
+            .entry(cells[0].to_string())
+            .or_default()
+            .push((beta, se));
+    }
+    let notes = base["notes"].to_string();
+    let mut noted = 0;
+    for (peer, points) in &by_peer {
+        let ((b1, s1), (b2, s2)) = (points[0], points[points.len() - 1]);
+        let z: f64 = (b2 - b1) / (s1 * s1 + s2 * s2).sqrt();
+        let prefix = format!("{peer}: the rolling beta moved from");
+        if z.abs() > 1.96 {
+            noted += 1;
+            assert!(
+                notes.contains(&format!("{prefix} {b1:.2}"))
+                    && notes.contains(&format!("{:.1} standard errors", z.abs())),
+                "{peer} z {z}: {notes}"
+            );
+        } else {
+            assert!(!notes.contains(&prefix), "{peer} z {z}: {notes}");
+        }
+    }
+    assert_eq!(noted, 1, "the demo has one such peer: {notes}");
+}
+
 // A case that writes its rolling window (README's default written out: half the 60-period
 // window, 30, and 24 observations) still gets every specification row: the rows scale the
 // rolling keys as they scale the minimum observations, and record them, so the 2-year monthly

@@ -59,6 +59,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let specifications = specifications?;
     let mut uncertainty = uncertainty?;
     uncertainty.specifications = specifications;
+    valuation.notes.extend(specification::note(&uncertainty));
     valuation.uncertainty = Some(uncertainty);
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);

@@ -10,7 +10,7 @@
 use crate::case::{label, Case, Variants};
 use crate::error::Result;
 use crate::market::sampling::Frequency;
-use crate::valuation::analyses::Specification;
+use crate::valuation::analyses::{Specification, Uncertainty};
 use crate::valuation::{cost_of_capital, estimate_peers_for_wacc, Inputs, PeerEstimates};
 
 /// The frequencies and window lengths (years) of the range.
@@ -128,4 +128,54 @@ fn row_periods(case: &Case, frequency: Frequency, years: u32) -> u32 {
         ..case.settings.beta.clone()
     };
     variant.lookback_periods(case.settings.case.valuation_date.0)
+}
+
+/// A note when the specification range tells a reader something the intervals do not: the
+/// case's own choice gives the lowest or the highest WACC of the rows (with at least three
+/// others), or rows lie outside the estimation-error interval, which covers the statistical
+/// error of one specification and not the choice among them. `None` otherwise.
+pub fn note(u: &Uncertainty) -> Option<String> {
+    let own = u.specifications.iter().find(|r| r.case_choice)?.wacc?;
+    let others: Vec<f64> = (u.specifications.iter())
+        .filter(|r| !r.case_choice)
+        .filter_map(|r| r.wacc)
+        .collect();
+    let (low, high) = others
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &w| {
+            (l.min(w), h.max(w))
+        });
+    let outside = others.iter().filter(|&&w| w < u.p05 || w > u.p95).count();
+    let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
+    let extreme = match others.len() >= 3 {
+        true if own < low => Some("lowest"),
+        true if own > high => Some("highest"),
+        _ => None,
+    };
+    if extreme.is_none() && outside == 0 {
+        return None;
+    }
+    let mut text = format!(
+        "Specification range: the case's own frequency and window give {}",
+        percent(own)
+    );
+    if let Some(which) = extreme {
+        text.push_str(&format!(
+            ", the {which} WACC of the {} rows (the others {} to {})",
+            others.len() + 1,
+            percent(low),
+            percent(high)
+        ));
+    }
+    if outside > 0 {
+        text.push_str(&format!(
+            "; {outside} of the other {} lie outside the 90% estimation-error interval ({} to \
+             {}), which does not cover the choice of frequency and window",
+            others.len(),
+            percent(u.p05),
+            percent(u.p95)
+        ));
+    }
+    text.push('.');
+    Some(text)
 }

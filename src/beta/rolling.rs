@@ -210,6 +210,22 @@ pub fn stability(points: &[RollingPoint], window_periods: u32) -> Result<Option<
     }))
 }
 
+/// How far the last rolling window's beta lies from the first's, in standard errors of their
+/// difference, the two estimates taken as independent: z = (β_last − β_first) /
+/// √(SE_first² + SE_last²), the usual test for the equality of two regression coefficients
+/// from separate samples (Paternoster, Brame, Mazerolle and Piquero 1998, Criminology 36(4);
+/// from memory). Windows that overlap share returns, which makes the two estimates positively
+/// correlated and this z smaller than the exact one: the test then errs towards calling a
+/// change no change. `None` with fewer than two windows or a zero standard error.
+pub fn first_to_last_z(points: &[RollingPoint]) -> Option<f64> {
+    let (first, last) = (points.first()?, points.last()?);
+    if points.len() < 2 {
+        return None;
+    }
+    let spread = first.std_error.hypot(last.std_error);
+    (spread > 0.0).then(|| (last.beta - first.beta) / spread)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -428,5 +444,27 @@ mod tests {
         let expected = (1.1 - 1.0) / (29.0 / 365.25);
         assert!((s.trend_per_year - expected).abs() < 1e-14, "{s:?}");
         assert!(stability(&points[..1], 12).unwrap().is_none());
+    }
+
+    // The first-to-last z by the two-sample formula (Paternoster et al. 1998), worked by hand:
+    // (1.2 − 0.1) / √(0.3² + 0.28²) = 1.1 / 0.410366… = 2.680536 (checked in Python); its sign follows the move.
+    // 1e-6: the hand value's digits.
+    #[test]
+    fn first_to_last_z_is_the_two_sample_statistic() {
+        let point = |beta: f64, std_error: f64| RollingPoint {
+            window_end: month_ends(1)[0],
+            beta,
+            std_error,
+            observations: 30,
+            band_low: 0.0,
+            band_high: 0.0,
+        };
+        let points = [point(0.1, 0.3), point(0.7, 0.2), point(1.2, 0.28)];
+        let z = first_to_last_z(&points).unwrap();
+        assert!((z - 2.680536).abs() < 1e-6, "{z}");
+        let falling = [point(1.2, 0.28), point(0.1, 0.3)];
+        assert!((first_to_last_z(&falling).unwrap() + 2.680536).abs() < 1e-6);
+        assert!(first_to_last_z(&points[..1]).is_none());
+        assert!(first_to_last_z(&[point(1.0, 0.0), point(1.0, 0.0)]).is_none());
     }
 }

@@ -231,7 +231,12 @@ fn failure_message(
     }
 }
 
-/// The notes a reviewer should see about one peer's data: periods dropped and stale prices.
+/// The two-sided 5% point of the standard normal (1.959964, rounded as tables print it): a
+/// first-to-last rolling beta change beyond it is noted.
+const ROLLING_SHIFT_Z: f64 = 1.96;
+
+/// The notes a reviewer should see about one peer's data: periods dropped, a rolling beta that
+/// moved by more than its error, and stale prices.
 fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -> Vec<String> {
     let mut notes = Vec::new();
     let d = estimated.dropped;
@@ -250,6 +255,28 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
             d.asset_missing,
             d.market_missing,
             d.risk_free_missing
+        ));
+    }
+    if let Some(z) = crate::beta::rolling::first_to_last_z(&estimated.rolling)
+        .filter(|z| z.abs() > ROLLING_SHIFT_Z)
+    {
+        let (first, last) = (
+            &estimated.rolling[0],
+            &estimated.rolling[estimated.rolling.len() - 1],
+        );
+        let fixed = |x: f64| crate::error::rounded(x, 2);
+        notes.push(format!(
+            "{name}: the rolling beta moved from {} (window ending {}) to {} (ending {}), {} \
+             standard errors of the difference (two independent estimates; beyond {} is a \
+             change at the 5% level): the full-window beta of {} averages over it; see the \
+             stability chart, and weigh a later or shorter window.",
+            fixed(first.beta),
+            first.window_end,
+            fixed(last.beta),
+            last.window_end,
+            crate::error::rounded(z.abs(), 1),
+            ROLLING_SHIFT_Z,
+            fixed(estimated.estimate.beta)
         ));
     }
     if d.asset_stale + d.market_stale > 0 {
