@@ -268,8 +268,9 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
         notes.push(format!(
             "{name}: the rolling beta moved from {} (window ending {}) to {} (ending {}), {} \
              standard errors of the difference (two independent estimates; beyond {} is a \
-             change at the 5% level): the full-window beta of {} averages over it; see the \
-             stability chart, and weigh a later or shorter window.",
+             change at the 5% level, which one stable beta in twenty also passes by chance): \
+             the full-window beta of {} averages over it; see the stability chart, and weigh a \
+             later or shorter window.",
             fixed(first.beta),
             first.window_end,
             fixed(last.beta),
