@@ -217,8 +217,19 @@ fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_change
     result["estimator"]["method_description"] = "ordinary least squares, as worded before".into();
     result["sampling"]["sampling_rule"] = "monthly, as worded before".into();
     let receipt = out.join("reworded.json");
-    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let status_dir = dir.path().join("status");
+    // Written by this very version, a sentence that reads otherwise was edited: a mismatch
+    // (found by review: an edited note passed as wording).
+    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
+    let (output, report) = verify_into(&receipt, &status_dir);
+    assert_eq!(output.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains("MISMATCH estimator.method_description: recorded"),
+        "{report}"
+    );
+    // Written by an earlier version, it is that version's wording.
+    result["tool"]["version"] = "0.0.1".into();
+    std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let (output, report) = verify_into(&receipt, &status_dir);
     assert_eq!(output.status.code(), Some(0), "{report}");
     assert!(

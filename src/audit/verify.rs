@@ -61,6 +61,7 @@ pub const WORDING_KEYS: &[&str] = &[
     "expression",
     "beta_distribution",
     "notes",
+    "label",
 ];
 
 /// What a listed wording difference means, for the reader of a verification.
@@ -285,7 +286,8 @@ pub fn verify(
 
     let files = file_checks(&recorded, &rerun);
 
-    let found = compare(&recorded, &recomputed, tolerance);
+    let mut found = compare(&recorded, &recomputed, tolerance);
+    found.same_version_wording_is_a_mismatch(text("/tool/version").as_deref());
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     let headline = headline(&found);

@@ -9,7 +9,6 @@
 //! WACC and its own components.
 
 use super::bridge::{Side, Step};
-use crate::case::label;
 pub use crate::valuation::analyses::{BarKind, WaterfallBar};
 
 /// The bars from `from`'s WACC to `to`'s, in drawing order.
@@ -38,7 +37,7 @@ pub fn waterfall(
     }
     let mut running = from.wacc;
     for step in steps {
-        let name = label(&step.group).replace('_', " ");
+        let name = step.group.title().to_string();
         bars.push(bar(name, BarKind::Group, running, running + step.shapley));
         running += step.shapley;
     }

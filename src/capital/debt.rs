@@ -290,9 +290,16 @@ mod tests {
             ],
             ..coverage_table()
         };
-        assert!(37.8 / 9.0 < 4.2 && 25.08 / 19.0 < 1.32);
-        assert_eq!(coverage_row(&table, 37.8 / 9.0).unwrap().rating, "BBB");
-        assert_eq!(coverage_row(&table, 25.08 / 19.0).unwrap().rating, "CCC");
+        let (on_bbb, on_ccc) = (
+            std::hint::black_box(37.8) / 9.0,
+            std::hint::black_box(25.08) / 19.0,
+        );
+        assert!(
+            on_bbb < 4.2 && on_ccc < 1.32,
+            "each an ulp below its threshold"
+        );
+        assert_eq!(coverage_row(&table, on_bbb).unwrap().rating, "BBB");
+        assert_eq!(coverage_row(&table, on_ccc).unwrap().rating, "CCC");
         // A coverage truly below a threshold stays below it.
         assert_eq!(coverage_row(&table, 4.1999).unwrap().rating, "CCC");
         assert!(coverage_row(&table, 1.3199).is_err());

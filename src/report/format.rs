@@ -25,6 +25,16 @@ pub fn table_cell(text: String) -> String {
     text.replace('|', "\\|")
 }
 
+/// A bridge group's name for people, from its key as `result.json` writes it
+/// (`risk_free_rate` → `Risk-free rate`); any other text as it is.
+pub fn group_title(key: String) -> String {
+    use crate::valuation::analyses::Group;
+    Group::ALL
+        .iter()
+        .find(|g| label(*g) == key)
+        .map_or(key, |g| g.title().to_string())
+}
+
 /// A number with a fixed number of decimals; `-0.000` is written `0.000`.
 pub fn fixed(value: f64, decimals: usize) -> String {
     rounded(value, decimals)

@@ -248,6 +248,20 @@ impl Group {
         Group::Weights,
     ];
 
+    /// The group's name for people (the memo, the chart, the workbook); the CSV and the
+    /// terminal keep its key (`risk_free_rate`).
+    pub fn title(self) -> &'static str {
+        match self {
+            Group::RiskFreeRate => "Risk-free rate",
+            Group::EquityRiskPremium => "Equity risk premium",
+            Group::Beta => "Relevered beta",
+            Group::Premiums => "Additional premiums",
+            Group::CostOfDebt => "Pre-tax cost of debt",
+            Group::TaxRate => "Tax rate",
+            Group::Weights => "Capital weights",
+        }
+    }
+
     /// Copies this group's components from `from` into `into`.
     pub fn take(self, from: &BuildUp, into: &mut BuildUp) {
         match self {

@@ -355,12 +355,7 @@ fn bridge_table(
     let (pct, label) = (book.styles.percent.clone(), book.styles.label.clone());
     let mut r = row + 2;
     for step in &bridge.steps {
-        book.text(
-            sheet,
-            (r, 0),
-            &crate::report::format::label(&step.group),
-            &label,
-        )?;
+        book.text(sheet, (r, 0), step.group.title(), &label)?;
         for (c, x) in [
             step.wacc_before,
             step.wacc_after,
