@@ -533,9 +533,55 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
         report.contains("MISMATCH beta.peers_included: recorded 8 recomputed 7"),
         "{report}"
     );
-    // The dropped peer's price file is reported once, by the file checks.
-    assert!(report.contains("(no longer in the case)"), "{report}");
+    // The dropped peer's price file is reported once, by the file checks, as no longer read
+    // (not as a changed file; found by review).
+    assert!(
+        report.contains("peer:Ivelbrook Instruments data/peers/ivelbrook.csv: NO LONGER READ by the case (recorded "),
+        "{report}"
+    );
     assert!(!report.contains("MISMATCH files["), "{report}");
+    assert!(
+        report.contains("NOT REPRODUCED: 2 input files changed"),
+        "{report}"
+    );
+
+    // A peer added since the receipt: its price file is listed as new; a peer's file renamed
+    // (same bytes) is unchanged and says where it is read now.
+    std::fs::copy(
+        case_dir.join("data/peers/ivelbrook.csv"),
+        case_dir.join("data/peers/ivelbrook_v2.csv"),
+    )
+    .unwrap();
+    let renamed = text_of_case.replace("data/peers/ivelbrook.csv", "data/peers/ivelbrook_v2.csv");
+    let added = format!(
+        "{renamed}\n[[peer]]\nname = \"Added Copy\"\nprices = \"data/peers/fenhallow_copy.csv\"\n\
+         equity_value = 900.0\ndebt = 100.0\ntax_rate = 0.25\n"
+    );
+    let fenhallow = std::fs::read_to_string(case_dir.join("data/peers/fenhallow.csv")).unwrap();
+    // Another peer's prices shifted by a constant factor (the same returns, so the same beta),
+    // so that the new peer is no copy of an existing file.
+    let shifted: String = fenhallow
+        .lines()
+        .enumerate()
+        .map(|(i, line)| match (i, line.split_once(',')) {
+            (0, _) | (_, None) => format!("{line}\n"),
+            (_, Some((date, price))) => {
+                format!("{date},{}\n", price.parse::<f64>().unwrap() * 2.0)
+            }
+        })
+        .collect();
+    std::fs::write(case_dir.join("data/peers/fenhallow_copy.csv"), shifted).unwrap();
+    std::fs::write(&case, added).unwrap();
+    let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));
+    assert!(
+        report
+            .contains("peer:Added Copy data/peers/fenhallow_copy.csv: NEW since the receipt (now "),
+        "{report}"
+    );
+    assert!(
+        report.contains("peer:Ivelbrook Instruments data/peers/ivelbrook.csv: unchanged; read now from data/peers/ivelbrook_v2.csv"),
+        "{report}"
+    );
 }
 
 // A receipt written by another version of hurdle still reproduces when every file and figure

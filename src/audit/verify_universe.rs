@@ -76,27 +76,26 @@ pub fn verify_universe(
 /// The index, risk-free series, panel and attributes files: recorded and current SHA-256.
 fn file_checks(recorded: &Value, rerun: &UniverseResult) -> Vec<FileCheck> {
     let f = &rerun.files;
+    let read = |path: &str, sha256: &str| Some((path.to_string(), sha256.to_string()));
     let current = [
-        ("index", Some(f.index.sha256.as_str())),
-        ("risk_free", f.risk_free.as_ref().map(|r| r.sha256.as_str())),
-        ("panel", Some(f.panel.sha256.as_str())),
-        ("attributes", Some(f.attributes.sha256.as_str())),
+        ("index", read(&f.index.path, &f.index.sha256)),
+        (
+            "risk_free",
+            (f.risk_free.as_ref()).and_then(|r| read(&r.path, &r.sha256)),
+        ),
+        ("panel", read(&f.panel.path, &f.panel.sha256)),
+        ("attributes", read(&f.attributes.path, &f.attributes.sha256)),
     ];
     current
         .iter()
-        .filter_map(|&(role, now)| {
+        .filter_map(|(role, now)| {
             let file = &recorded["files"][role];
-            let recorded_sha256 = file["sha256"].as_str()?.to_string();
-            let current_sha256 = now
-                .unwrap_or("(no longer in the universe file)")
-                .to_string();
-            Some(FileCheck {
-                role: role.to_string(),
-                path: file["path"].as_str().unwrap_or("").to_string(),
-                unchanged: recorded_sha256 == current_sha256,
-                recorded_sha256,
-                current_sha256,
-            })
+            let was = file["sha256"].as_str().map(|sha256| {
+                let path = file["path"].as_str().unwrap_or("").to_string();
+                (path, sha256.to_string())
+            });
+            let now = now.clone();
+            (was.is_some() || now.is_some()).then(|| FileCheck::new(role.to_string(), was, now))
         })
         .collect()
 }

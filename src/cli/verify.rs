@@ -81,14 +81,7 @@ fn render(r: &Verification) -> String {
         ));
     }
     for f in &r.files {
-        if f.unchanged {
-            out.push_str(&format!("  {} {}: unchanged\n", f.role, f.path));
-        } else {
-            out.push_str(&format!(
-                "  {} {}: CHANGED (recorded {}, now {})\n",
-                f.role, f.path, f.recorded_sha256, f.current_sha256
-            ));
-        }
+        out.push_str(&format!("  {} {}: {}\n", f.role, f.path, f.describe()));
     }
     if r.recorded_tool_version != r.current_tool_version {
         out.push_str(&format!(

@@ -76,15 +76,24 @@ pub fn markdown(r: &Verification) -> String {
     );
     let _ = writeln!(w, "|---|---|---|---|---|");
     for f in &r.files {
-        let status = if f.unchanged {
-            "unchanged"
-        } else {
-            "**changed**"
+        let status = match f.status {
+            "unchanged" => "unchanged".to_string(),
+            "changed" => "**changed**".to_string(),
+            "dropped" => "**no longer read**".to_string(),
+            _ => "**new since the receipt**".to_string(),
         };
+        let status = match &f.current_path {
+            Some(now) => format!("{status}; read now from `{now}`"),
+            None => status,
+        };
+        let hash = |h: &Option<String>| h.as_ref().map_or("—".to_string(), |h| format!("`{h}`"));
         let _ = writeln!(
             w,
-            "| {} | `{}` | {status} | `{}` | `{}` |",
-            f.role, f.path, f.recorded_sha256, f.current_sha256
+            "| {} | `{}` | {status} | {} | {} |",
+            f.role,
+            f.path,
+            hash(&f.recorded_sha256),
+            hash(&f.current_sha256)
         );
     }
     differences(
