@@ -466,7 +466,27 @@ fn verify_reruns_the_case_beside_the_receipt_and_works_from_the_output_folder() 
         .unwrap();
     let report = text(&chosen);
     assert_eq!(chosen.status.code(), Some(1), "{report}");
-    assert!(report.contains("equity_risk_premium"), "{report}");
+    // The case line names the setting that moved, and it is the first mismatch listed; the
+    // figures drawn only for the charts are counted after the others, not listed.
+    assert!(
+        report.contains("case file: CHANGED since the receipt; the settings that differ, listed first below: market.equity_risk_premium\n"),
+        "{report}"
+    );
+    let first = report.lines().find(|l| l.contains("MISMATCH")).unwrap();
+    assert!(
+        first.starts_with(
+            "  MISMATCH settings.market.equity_risk_premium: recorded 0.0517 recomputed 0.055"
+        ),
+        "{report}"
+    );
+    assert!(
+        !report.contains("MISMATCH uncertainty.histogram"),
+        "{report}"
+    );
+    assert!(
+        report.contains("figures drawn only for the charts (fitted lines, histogram, waterfall)"),
+        "{report}"
+    );
 }
 
 // An input whose bytes changed without moving any figure (Windows line ends in one price

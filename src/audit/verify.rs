@@ -50,6 +50,38 @@ pub struct FileCheck {
     pub unchanged: bool,
 }
 
+/// Paths of figures drawn only for the charts (each fitted line's points, the histogram's
+/// bins, the waterfall's bars, the rows the residual chart marks): they move with the
+/// estimates and are listed after every other figure, and a terminal may count them.
+const CHART_FIGURES: [&str; 4] = [
+    ".fitted_line.",
+    "uncertainty.histogram.",
+    "reconciliation.waterfall[",
+    ".large_studentised_residual_rows",
+];
+
+impl Mismatch {
+    /// Where the mismatch is listed: the case's settings first (the inputs that changed), then
+    /// the headline figures, then the others in the receipt's order, then the chart figures.
+    pub fn rank(&self) -> u8 {
+        const HEADLINE: [&str; 3] = ["wacc", "cost_of_equity", "cost_of_debt_after_tax"];
+        if self.path.starts_with("settings.") || self.path.starts_with("case.overrides") {
+            0
+        } else if HEADLINE.contains(&self.path.as_str()) {
+            1
+        } else if self.is_chart_figure() {
+            3
+        } else {
+            2
+        }
+    }
+
+    /// Whether the figure is drawn only for a chart ([`CHART_FIGURES`]).
+    pub fn is_chart_figure(&self) -> bool {
+        CHART_FIGURES.iter().any(|part| self.path.contains(part))
+    }
+}
+
 impl FileCheck {
     /// The check of one role from what the receipt records and what the rerun read, each a
     /// (path, SHA-256) when present.
@@ -213,6 +245,28 @@ impl Verification {
         usize::from(!self.case_unchanged) + self.files.iter().filter(|f| !f.unchanged).count()
     }
 
+    /// The case's settings that differ from the receipt's (paths below `settings.`), which
+    /// are listed first among the mismatches: what changed in the case file.
+    pub fn changed_settings(&self) -> Vec<&str> {
+        (self.mismatches.iter())
+            .filter_map(|m| m.path.strip_prefix("settings."))
+            .collect()
+    }
+
+    /// The case or universe file's state in words, naming the settings that differ.
+    pub fn case_state(&self) -> String {
+        if self.case_unchanged {
+            return "unchanged".into();
+        }
+        match self.changed_settings().as_slice() {
+            [] => "CHANGED since the receipt (no setting differs: a comment or spacing)".into(),
+            settings => format!(
+                "CHANGED since the receipt; the settings that differ, listed first below: {}",
+                settings.join(", ")
+            ),
+        }
+    }
+
     /// The verdict's line: `REPRODUCED: …` or `NOT REPRODUCED: …`, saying apart whether input
     /// files changed and how many figures differ.
     pub fn verdict(&self) -> String {
@@ -353,6 +407,7 @@ pub fn verify(
 
     let mut found = compare(&recorded, &recomputed, tolerance);
     found.same_version_wording_is_a_mismatch(text("/tool/version").as_deref());
+    found.mismatches.sort_by_key(|m| m.rank());
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     let headline = headline(&found);

@@ -63,15 +63,7 @@ fn quoted_overrides(overrides: &[String]) -> String {
 
 fn render(r: &Verification) -> String {
     let mut out = format!("verifying {} ({} {})\n", r.receipt, r.kind, r.case_file);
-    out.push_str(&format!(
-        "  {} file: {}\n",
-        r.kind,
-        if r.case_unchanged {
-            "unchanged"
-        } else {
-            "CHANGED since the receipt"
-        }
-    ));
+    out.push_str(&format!("  {} file: {}\n", r.kind, r.case_state()));
     if !r.overrides.is_empty() {
         out.push_str(&format!(
             "  overrides: the receipt's run applied {}, reapplied here (the {} file alone gives \
@@ -89,13 +81,24 @@ fn render(r: &Verification) -> String {
             r.recorded_tool_version, r.current_tool_version
         ));
     }
-    for m in &r.mismatches {
+    // The chart figures (fitted lines' points, histogram bins, waterfall bars) are counted,
+    // not listed: they follow the estimates above them; --out lists each.
+    let (charts, figures): (Vec<_>, Vec<_>) =
+        r.mismatches.iter().partition(|m| m.is_chart_figure());
+    for m in figures {
         out.push_str(&format!(
             "  MISMATCH {}: recorded {} recomputed {}{}\n",
             m.place(),
             m.recorded,
             m.recomputed,
             m.difference()
+        ));
+    }
+    if !charts.is_empty() {
+        out.push_str(&format!(
+            "  and {} figures drawn only for the charts (fitted lines, histogram, waterfall), \
+             which follow the figures above; verification.md (--out) lists each\n",
+            charts.len()
         ));
     }
     for m in &r.wording_differences {

@@ -52,11 +52,7 @@ pub fn markdown(r: &Verification) -> String {
         "The {} file `{}`: {}. Receipt written by hurdle {}, verified with hurdle {}.\n",
         r.kind,
         r.case_file,
-        if r.case_unchanged {
-            "unchanged"
-        } else {
-            "changed since the receipt"
-        },
+        r.case_state(),
         r.recorded_tool_version,
         r.current_tool_version
     );
