@@ -66,6 +66,14 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
     let ok = hurdle(&["verify", receipt.to_str().unwrap()]);
     assert_eq!(ok.status.code(), Some(0), "{}", text(&ok));
     assert!(text(&ok).contains("REPRODUCED"));
+    // The same receipt saved with a byte-order mark (as some editors write JSON) still reads
+    // (found by review: "not JSON").
+    let marked = out.join("marked.json");
+    let mut bytes = b"\xef\xbb\xbf".to_vec();
+    bytes.extend(std::fs::read(&receipt).unwrap());
+    std::fs::write(&marked, bytes).unwrap();
+    let ok = hurdle(&["verify", marked.to_str().unwrap()]);
+    assert_eq!(ok.status.code(), Some(0), "{}", text(&ok));
 
     // Edit one price of one peer by 1%.
     let peer_file = case_dir.join("data/peers/fenhallow.csv");

@@ -2185,6 +2185,32 @@ fn command_arguments() -> Vec<Bad> {
             ["r.json", "not JSON", "line 1"]
         ),
         bad!(
+            "verify: a case given as the receipt",
+            nothing,
+            ["verify", "{case}"],
+            [
+                "case.toml",
+                "a TOML file (a case or a claimed build-up?), not a receipt",
+                "output/result.json"
+            ]
+        ),
+        bad!(
+            "verify: a CSV table given as the receipt",
+            |s| s.write("r.json", "date,close\n2026-01-02,100\n"),
+            ["verify", "{dir}/r.json"],
+            ["r.json", "a CSV table, not JSON, not a receipt"]
+        ),
+        bad!(
+            "compare: a receipt given as a case",
+            |s| s.write("result.json", "{\"schema_version\": 2}"),
+            ["compare", "{dir}/result.json", "{case}"],
+            [
+                "result.json",
+                "this is a JSON file (a result.json receipt?), not a case or claim",
+                "hurdle verify"
+            ]
+        ),
+        bad!(
             "verify: receipt of another program",
             |s| s.write("r.json", "{\"wacc\": 0.09}"),
             ["verify", "{dir}/r.json"],

@@ -345,6 +345,32 @@ fn older_schema(version: u64, written_by: &str) -> String {
     )
 }
 
+/// A file given as a receipt that is plainly something else: a case file or a claimed build-up
+/// (TOML tables and keys), or a CSV table (commas on its first line); named as such, with what
+/// to give instead.
+fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
+    let first = (text.lines().map(str::trim))
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    if first.starts_with('{') || first.is_empty() {
+        return Ok(());
+    }
+    let toml = text.lines().any(|l| {
+        let l = l.trim();
+        l.starts_with('[') && l.ends_with(']') || l.contains(" = ")
+    });
+    let what = match (toml, first.contains(',')) {
+        (true, _) => "a TOML file (a case or a claimed build-up?)",
+        (false, true) => "a CSV table, not JSON",
+        // Anything else is left to the JSON parser, whose message gives the line.
+        (false, false) => return Ok(()),
+    };
+    Err(format!(
+        "{what}, not a receipt: verify reads the result.json that `hurdle run` or `hurdle \
+         universe` wrote (output/result.json beside the case), and finds the case from it"
+    ))
+}
+
 /// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
 /// where the case file is looked for.
 pub fn verify(
@@ -357,6 +383,11 @@ pub fn verify(
         file: receipt_path.to_path_buf(),
         message,
     };
+    // A byte-order mark, which some editors write before JSON, is not part of the document.
+    let receipt = receipt.strip_prefix('\u{feff}').unwrap_or(receipt);
+    if let Err(what) = not_a_receipt(receipt) {
+        return Err(fail(what));
+    }
     let recorded: Value = super::receipt::parse(receipt).map_err(|e| match e.is_data() {
         // A repeated key: readers disagree on which value counts, so the receipt is refused.
         true => fail(format!(

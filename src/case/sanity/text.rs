@@ -203,8 +203,8 @@ fn other_kind_of_file(text: &str) -> std::result::Result<(), String> {
     Ok(())
 }
 
-/// An empty file, or a CSV table (a header of comma-separated names and no `key = value`
-/// line), given where a case or a claimed build-up belongs.
+/// An empty file, a JSON document (a receipt), or a CSV table (a header of comma-separated
+/// names and no `key = value` line), given where a case or a claimed build-up belongs.
 pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
     let lines: Vec<&str> = (text.lines().map(str::trim))
         .filter(|l| !l.is_empty() && !l.starts_with('#'))
@@ -216,6 +216,15 @@ pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
                 .into(),
         );
     };
+    // A receipt or another JSON document opens with a brace (a BOM before it aside).
+    if first.trim_start_matches('\u{feff}').starts_with('{') {
+        return Err(
+            "this is a JSON file (a result.json receipt?), not a case or claim: a receipt is \
+             rerun by `hurdle verify RECEIPT.json`, and a case is the TOML file it names \
+             (README, Case file reference)"
+                .into(),
+        );
+    }
     if first.contains(',') && !lines.iter().any(|l| l.contains('=') || l.starts_with('[')) {
         return Err(format!(
             "this is a CSV table (its first line is `{}`), not a case or claim: a case is a \
