@@ -1581,3 +1581,25 @@ fn implied_values_no_one_could_defend_are_cautioned() {
         assert!(report.contains(caution), "{report}");
     }
 }
+
+// A bundle that keeps the receipt beside its case (written with `--out` into the case's own
+// folder), moved elsewhere: the case is found in the receipt's own folder (found by review: it
+// was looked for one folder up and at the recorded path only).
+#[test]
+fn verify_finds_a_case_kept_beside_the_receipt() {
+    let (dir, case_dir) = demo_copy();
+    let binary = env!("CARGO_BIN_EXE_hurdle");
+    let run = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args(["run", "case/case.toml", "--out", "case", "--no-figures"])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", text(&run));
+    let moved = dir.path().join("elsewhere/bundle");
+    std::fs::create_dir_all(moved.parent().unwrap()).unwrap();
+    std::fs::rename(&case_dir, &moved).unwrap();
+    let verify = hurdle(&["verify", moved.join("result.json").to_str().unwrap()]);
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(0), "{report}");
+    assert!(report.contains("bundle/case.toml)"), "{report}");
+}

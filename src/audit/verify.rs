@@ -522,7 +522,8 @@ pub(super) fn locate_case(
 ) -> Result<PathBuf> {
     let recorded = PathBuf::from(recorded);
     // The case beside the receipt's folder first (a copied or moved bundle carries its own
-    // case and data, which the recorded path may still find at the original's place), then the
+    // case and data, which the recorded path may still find at the original's place), then in
+    // the receipt's own folder (a bundle that keeps the receipt beside the case), then the
     // recorded path. The receipt's path made absolute first, so that `result.json` given from
     // inside the output folder still has a parent folder.
     let receipt_path = std::path::absolute(receipt_path).unwrap_or(receipt_path.to_path_buf());
@@ -530,7 +531,9 @@ pub(super) fn locate_case(
     if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
         let case_dir = output_dir.parent().unwrap_or(Path::new(""));
         candidates.push(case_dir.join(name));
+        candidates.push(output_dir.join(name));
     }
+    let in_bundle = candidates.len();
     candidates.push(recorded.clone());
     let same_bytes = |path: &PathBuf| {
         let bytes = std::fs::read(path).ok();
@@ -550,8 +553,8 @@ pub(super) fn locate_case(
     // finds an unchanged copy elsewhere: which one the receipt stands for is the auditor's
     // call, never a silent choice, because verifying the copy would pass over the bundle's
     // edit.
-    let beside = &candidates[0];
-    if candidates.len() == 2 && beside.is_file() && !same_bytes(beside) && found != *beside {
+    let beside = candidates[..in_bundle].iter().find(|p| p.is_file());
+    if let Some(beside) = beside.filter(|b| !same_bytes(b) && found != **b) {
         let absolute = |p: &Path| std::path::absolute(p).unwrap_or(p.to_path_buf());
         if absolute(beside) != absolute(&found) {
             return Err(Error::AmbiguousInput {
