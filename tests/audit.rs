@@ -1603,3 +1603,33 @@ fn verify_finds_a_case_kept_beside_the_receipt() {
     assert_eq!(verify.status.code(), Some(0), "{report}");
     assert!(report.contains("bundle/case.toml)"), "{report}");
 }
+
+// A claim equal to the case's own WACC is met by the case's own values, and `implied` gives
+// them as the case writes them (found by review: the bisection's neighbouring double,
+// 0.39999999999999813 for a D/E of 0.4). The WACC is passed with every digit (Rust's shortest
+// round-trip form), so the claim is the case's WACC to the bit.
+#[test]
+fn implied_at_the_case_wacc_gives_the_case_values() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let base = run_case(&case, &dir.path().join("out"), &["--no-figures"]);
+    let wacc = number(&base, "wacc").to_string();
+    for (solve, expected) in [
+        ("debt_to_equity", "target.debt_to_equity=0.4"),
+        ("erp", "market.equity_risk_premium=0.0517"),
+        ("cost_of_debt", "debt.cost_pre_tax=0.0463"),
+        ("size_premium", "premiums.size=0.01"),
+    ] {
+        let output = hurdle(&[
+            "implied",
+            case.to_str().unwrap(),
+            "--wacc",
+            &wacc,
+            "--solve",
+            solve,
+        ]);
+        let report = text(&output);
+        assert_eq!(output.status.code(), Some(0), "{report}");
+        assert_eq!(exact_line(&report, ""), expected, "{report}");
+    }
+}

@@ -291,7 +291,15 @@ pub fn implied(
         Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
     };
     let scan = solve(&wacc_at, low, high, claimed)?;
-    let value = scan.value;
+    // A claim the case's own value already meets is answered with that value, not with the
+    // double next to it where the bisection stopped (0.39999999999999813 for 0.4).
+    let value = scan.value.map(|x| {
+        let near = (x - base_value).abs() <= 1e-9 * base_value.abs().max(1e-9);
+        match near && matches!(wacc_at(base_value), Ok(w) if (w - claimed).abs() <= REPRODUCED) {
+            true => base_value,
+            false => x,
+        }
+    });
     let achieved_wacc = value.map(wacc_at).transpose()?;
     Ok(Implied {
         target,
