@@ -595,3 +595,15 @@ fn the_basis_of_each_input_is_printed_and_a_missing_one_is_named() {
         "{note} (median {median})"
     );
 }
+
+// A what-if on the target written the other way (`--set target.debt_to_capital` on a case that
+// gives `debt_to_equity`) replaces the case's ratio instead of leaving both, which the case
+// refuses (found by review). D/E = r / (1 − r) (algebra of D/(D + E)); 1e-15: one division.
+#[test]
+fn a_target_what_if_in_the_other_ratio_replaces_the_case_ratio() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["target.debt_to_capital=0.3"]);
+    assert_eq!(result["target"]["given"], "debt_to_capital");
+    assert!((number(&result, "target.debt_to_equity") - 0.3 / 0.7).abs() < 1e-15);
+    assert!(result["settings"]["target"].get("debt_to_equity").is_none());
+}

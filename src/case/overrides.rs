@@ -62,6 +62,15 @@ pub fn apply_override(table: &mut toml::Table, assignment: &str) -> Result<()> {
     if last.is_empty() {
         return Err(not_a_path());
     }
+    // The target is one ratio written either way: a what-if that sets one replaces the other
+    // the case file gives, instead of leaving both (which the case refuses).
+    if parents == ["target"] {
+        match *last {
+            "debt_to_equity" => current.remove("debt_to_capital"),
+            "debt_to_capital" => current.remove("debt_to_equity"),
+            _ => None,
+        };
+    }
     current.insert(last.to_string(), value);
     Ok(())
 }
