@@ -2185,6 +2185,43 @@ fn command_arguments() -> Vec<Bad> {
             ["r.json", "not JSON", "line 1"]
         ),
         bad!(
+            "Scholes–Williams on a window too short for its shifted columns",
+            nothing,
+            [
+                "betas",
+                "{case}",
+                "--set",
+                "beta.method=scholes-williams",
+                "--set",
+                "beta.lookback=8",
+                "--set",
+                "beta.min_observations=3"
+            ],
+            [
+                "beta.method = \"scholes-williams\" uses one lagged and one led",
+                "lengthen the window"
+            ]
+        ),
+        bad!(
+            "Newey–West lags by the rule too many for the window",
+            nothing,
+            [
+                "betas",
+                "{case}",
+                "--set",
+                "beta.std_errors=newey-west",
+                "--set",
+                "beta.lookback=8",
+                "--set",
+                "beta.min_observations=6"
+            ],
+            [
+                "Newey-West lags 2",
+                "rule floor(4·(N/100)^(2/9)) chose 2",
+                "lengthen the window"
+            ]
+        ),
+        bad!(
             "verify: a case given as the receipt",
             nothing,
             ["verify", "{case}"],

@@ -113,9 +113,16 @@ pub fn estimate_with_influence(
     let lags = newey_west_lags(settings, n);
     if let Some(l) = lags {
         if 4 * l >= n {
+            // Given, the lags are the user's to lower; by the rule, the window is too short.
+            let remedy = match settings.newey_west_lags {
+                Some(_) => "lower beta.newey_west_lags".to_string(),
+                None => format!(
+                    "the Newey–West (1994) rule floor(4·(N/100)^(2/9)) chose {l}; give \
+                     beta.newey_west_lags a smaller value or lengthen the window"
+                ),
+            };
             return Err(Error::Regression(format!(
-                "Newey-West lags {l} are at least N/4 = {} for N = {n} observations; lower \
-                 beta.newey_west_lags",
+                "Newey-West lags {l} are at least N/4 = {} for N = {n} observations; {remedy}",
                 n as f64 / 4.0
             )));
         }

@@ -34,10 +34,21 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
     // bound, not a published rule: it leaves more than four observations for each shifted column,
     // so the slopes and their standard errors are not fitted to a handful of points.
     if 4 * (lags + leads) >= lookback {
+        // Scholes–Williams always takes one lag and one lead; only Dimson's are keys to lower.
+        let columns = match beta.method {
+            BetaMethod::ScholesWilliams => {
+                "beta.method = \"scholes-williams\" uses one lagged and one led market return \
+                 (2 shifted columns), which is at least"
+                    .to_string()
+            }
+            _ => format!(
+                "beta.dimson_lags + beta.dimson_leads = {} is at least",
+                lags + leads
+            ),
+        };
         return Err(format!(
-            "beta.dimson_lags + beta.dimson_leads = {} is at least beta.lookback / 4 = {}: too \
-             many shifted market columns for {} periods",
-            lags + leads,
+            "{columns} beta.lookback / 4 = {}: too many shifted market columns for {} periods; \
+             lengthen the window",
             f64::from(lookback) / 4.0,
             lookback
         ));
