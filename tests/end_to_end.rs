@@ -278,3 +278,59 @@ fn the_memo_words_agree_with_the_figures() {
     let operations = format!("operations {:.3}", number(first, "operations_beta"));
     assert!(svg.contains(&operations), "betas.svg lacks `{operations}`");
 }
+
+// A peer whose prices are the index's (scaled by a constant) is refused, naming the remedy;
+// once the case excludes it, it is listed with a note and enters no aggregate (found by
+// review: the exclusion did not help). The aggregate is then the seven other peers' median.
+#[test]
+fn a_copy_of_the_index_the_case_excludes_is_listed_not_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let index = std::fs::read_to_string(case_dir.join("data/index.csv")).unwrap();
+    let scaled: String = index
+        .lines()
+        .enumerate()
+        .map(|(i, line)| match (i, line.split_once(',')) {
+            (0, _) | (_, None) => format!("{line}\n"),
+            (_, Some((date, price))) => {
+                format!("{date},{}\n", price.parse::<f64>().unwrap() / 20.0)
+            }
+        })
+        .collect();
+    std::fs::write(case_dir.join("data/peers/corrowick.csv"), scaled).unwrap();
+    let case = case_dir.join("case.toml");
+    let out = dir.path().join("out");
+    let refused = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(refused.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&refused.stderr).contains("give it `exclude = \"…\"`"),
+        "{}",
+        String::from_utf8_lossy(&refused.stderr)
+    );
+    let listed = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--no-figures",
+        "--set",
+        "peer.Corrowick Valves.exclude=tracks the index",
+    ]);
+    assert!(
+        listed.status.success(),
+        "{}",
+        String::from_utf8_lossy(&listed.stderr)
+    );
+    let result: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    assert_eq!(result["beta"]["peers_included"], 7);
+    assert!(result["notes"]
+        .to_string()
+        .contains("Corrowick Valves: the index (data/index.csv) explains its returns"));
+}

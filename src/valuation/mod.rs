@@ -177,12 +177,23 @@ fn estimate_peers_under(
                 peer: peer.name.clone(),
                 message: failure_message(&failure, &spec, &window, file, &inputs.index),
             })?;
-        sanity::check_peer_fit(&estimated, &inputs.index.path).map_err(|message| {
-            Error::Estimation {
-                peer: peer.name.clone(),
-                message,
+        match sanity::check_peer_fit(&estimated, &inputs.index.path) {
+            // A copy of the index the case already leaves out is listed, not refused: its
+            // figures are finite, and it enters no aggregate.
+            Err(message) if estimated.copies_index() && peer.exclude.is_some() => {
+                notes.push(format!(
+                    "{}: {message}; it is listed but left out, as the case says.",
+                    peer.name
+                ));
             }
-        })?;
+            Err(message) => {
+                return Err(Error::Estimation {
+                    peer: peer.name.clone(),
+                    message,
+                })
+            }
+            Ok(()) => {}
+        }
         notes.extend(data_notes(&peer.name, &estimated, &spec));
         peers.push(estimated);
     }
