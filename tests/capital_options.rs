@@ -607,3 +607,32 @@ fn a_target_what_if_in_the_other_ratio_replaces_the_case_ratio() {
     assert!((number(&result, "target.debt_to_equity") - 0.3 / 0.7).abs() < 1e-15);
     assert!(result["settings"]["target"].get("debt_to_equity").is_none());
 }
+
+// A peer whose net cash nearly equals its equity value unlevers to a multiple of its equity
+// beta (Hamada: βU = βL / (1 + (1 − t)·D/E), D/E near −1): the run names it as a figure to
+// check (found by review: a WACC of thousands of percent came with a units hint only). The
+// demo's own net-debt run, whose peers hold modest cash, raises no such note.
+#[test]
+fn a_peer_whose_net_cash_blows_up_its_unlevered_beta_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let net = ["leverage.debt_measure=net", "leverage.aggregation=mean"];
+    let plain = run_demo(&dir.path().join("plain"), &net);
+    assert!(!plain["notes"].to_string().contains("has a net D/E of"));
+    let mut sets = net.to_vec();
+    sets.extend(["peer.7.cash=989.99", "peer.7.debt=0", "peer.7.tax_rate=0"]);
+    let result = run_demo(&dir.path().join("cash"), &sets);
+    let peer = &result["peers"][7];
+    let hamada = number(peer, "beta_used") / (1.0 + number(peer, "debt_to_equity"));
+    // 1e-9 relative: the same division, written out here.
+    assert!((number(peer, "unlevered_beta") / hamada - 1.0).abs() < 1e-9);
+    let note = format!(
+        "Check: Ivelbrook Instruments has a net D/E of {:.6}, which makes its unlevered beta {:.3}",
+        number(peer, "debt_to_equity"),
+        number(peer, "unlevered_beta")
+    );
+    assert!(
+        result["notes"].to_string().contains(&note),
+        "{note}\n{}",
+        result["notes"]
+    );
+}

@@ -28,6 +28,7 @@ pub fn value_with(
     let peers = peer_results(settings, inputs, estimates, &unlevered(&chain), exclusions);
     let cost = cost_record(settings, &chain, &peers);
     notes.extend(plausibility_notes(&cost));
+    notes.extend(peers.iter().filter_map(net_cash_note));
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());
     files.extend(inputs.peers.iter().cloned());
@@ -433,6 +434,26 @@ fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
         ));
     }
     notes
+}
+
+/// A peer whose net cash leaves the unlevering denominator 1 + s·D/E near zero: its unlevered
+/// beta is then a multiple of its equity beta that says nothing about its operations (three
+/// times, hurdle's judgement: net cash of about two thirds of the equity value at a 0% tax).
+fn net_cash_note(peer: &PeerResult) -> Option<String> {
+    let (levered, unlevered) = (peer.beta_used, peer.unlevered_beta);
+    let aggregated = peer.excluded_reason.is_none();
+    let blown_up = peer.debt_to_equity < 0.0 && unlevered.abs() > 3.0 * levered.abs();
+    (aggregated && blown_up).then(|| {
+        format!(
+            "Check: {} has a net D/E of {}, which makes its unlevered beta {} against an equity \
+             beta of {}: net cash near the equity value leaves the formula's denominator near \
+             zero; consider leverage.debt_measure = \"gross\" or leaving the peer out.",
+            peer.name,
+            crate::error::rounded(peer.debt_to_equity, 6),
+            crate::error::rounded(unlevered, 3),
+            crate::error::rounded(levered, 3)
+        )
+    })
 }
 
 /// The chain's per-peer figures under the case's formula.
