@@ -258,9 +258,18 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
             0 => String::new(),
             n => format!(", lagged or led index return missing {n}"),
         };
+        // A missing price inside the window loses two returns: the one into its period and
+        // the one out of it.
+        let why = match d.asset_missing + d.market_missing {
+            0 => "",
+            _ => {
+                " A return needs a price at both ends of its period, so one missing price inside \
+                 the window costs two returns."
+            }
+        };
         notes.push(format!(
             "{name}: {} of {} periods dropped (peer price missing {}, index price missing {}, \
-             risk-free missing {}{shifted}).",
+             risk-free missing {}{shifted}).{why}",
             d.total,
             estimated.periods_in_window,
             d.asset_missing,
