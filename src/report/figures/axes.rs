@@ -71,6 +71,8 @@ pub struct Scale {
     percent: bool,
     /// For a category axis, the name at each tick (in tick order).
     names: Vec<String>,
+    /// For an axis of given ticks (dates), each tick's label (in tick order).
+    tick_labels: Vec<String>,
 }
 
 impl Scale {
@@ -113,6 +115,24 @@ impl Scale {
             decimals,
             percent,
             names: Vec::new(),
+            tick_labels: Vec::new(),
+        }
+    }
+
+    /// An axis over `[low, high]` padded by `pad` of the span on each side, whose ticks and
+    /// their labels the chart gives (dates at the starts of months, say); the ticks outside the
+    /// padded range are left out.
+    pub fn labelled(low: f64, high: f64, pad: f64, ticks: Vec<(f64, String)>) -> Scale {
+        let span = (high - low).max(0.0);
+        let range = (low - pad * span)..(high + pad * span);
+        let (ticks, tick_labels) = ticks.into_iter().filter(|(x, _)| range.contains(x)).unzip();
+        Scale {
+            range,
+            ticks,
+            decimals: 0,
+            percent: false,
+            names: Vec::new(),
+            tick_labels,
         }
     }
 
@@ -124,6 +144,7 @@ impl Scale {
             decimals: 0,
             percent: false,
             names: Vec::new(),
+            tick_labels: Vec::new(),
         }
     }
 
@@ -135,6 +156,7 @@ impl Scale {
             decimals: 0,
             percent: false,
             names,
+            tick_labels: Vec::new(),
         }
     }
 
@@ -150,6 +172,11 @@ impl Scale {
         if !self.names.is_empty() {
             let i = (value.floor().max(0.0) as usize).min(self.names.len() - 1);
             return self.names[i].clone();
+        }
+        if let Some(i) = self.ticks.iter().position(|t| *t == value) {
+            if let Some(text) = self.tick_labels.get(i) {
+                return text.clone();
+            }
         }
         let text = if self.percent {
             format::percent(value, self.decimals)

@@ -38,6 +38,40 @@ fn year(date: NaiveDate) -> f64 {
 /// panels into a sliver to show one peer's extremes: each panel then gets its own scale.
 const SHARED_SCALE_LIMIT: f64 = 4.0;
 
+/// Ticks at the starts of years, half-years, quarters or months, the coarsest that puts at
+/// least three inside `[first, last]` (fractional years): years are labelled `2025`, the others
+/// `2024-07`, so a window of two or three years is not marked by two year labels alone.
+fn month_ticks(first: f64, last: f64) -> Vec<(f64, String)> {
+    if !(first.is_finite() && last.is_finite()) {
+        return Vec::new();
+    }
+    let starts = |step: u32| -> Vec<(f64, String)> {
+        let (from, to) = (first.floor() as i32 - 1, last.ceil() as i32 + 1);
+        (from..=to)
+            .flat_map(|y| (0..12).step_by(step as usize).map(move |m| (y, m + 1)))
+            .filter_map(|(y, m)| NaiveDate::from_ymd_opt(y, m, 1))
+            .map(|d| {
+                let label = match step {
+                    12 => d.format("%Y").to_string(),
+                    _ => d.format("%Y-%m").to_string(),
+                };
+                (year(d), label)
+            })
+            .collect()
+    };
+    let inside = |ticks: &[(f64, String)]| {
+        ticks
+            .iter()
+            .filter(|(x, _)| (first..=last).contains(x))
+            .count()
+    };
+    [12, 6, 3, 1]
+        .into_iter()
+        .map(starts)
+        .find(|ticks| inside(ticks) >= 3)
+        .unwrap_or_else(|| starts(1))
+}
+
 /// The β range of one peer's panel: its bands and its whole-window β.
 fn beta_range(points: &[RollingPoint], whole: f64) -> (f64, f64) {
     (points.iter().flat_map(|p| [p.band_low, p.band_high]))
@@ -72,7 +106,7 @@ fn panel_axes(valuation: &Valuation) -> (Vec<Axes>, bool) {
     let median_span = spans.get(spans.len() / 2).copied().unwrap_or(0.0);
     let shared = !(median_span > 0.0 && high - low > SHARED_SCALE_LIMIT * median_span);
     let axes = |(low, high): (f64, f64)| Axes {
-        x: Scale::plain(first, last, 0.02, 4),
+        x: Scale::labelled(first, last, 0.02, month_ticks(first, last)),
         y: Scale::plain(low, high, 0.05, 6),
         x_title: String::new(),
         y_title: String::new(),
@@ -124,7 +158,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         let title = style::text(style::LABEL, &INK);
         plot.draw_text(
             &format!(
-                "Last period of the window (year), {} returns",
+                "End of the window (year and month), {} returns",
                 crate::report::format::label(&valuation.sampling.frequency)
             ),
             &title.pos(Pos::new(HPos::Center, VPos::Bottom)),
@@ -306,7 +340,7 @@ fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) 
         "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
          whole window) over windows of {} {period}s ending every {}, with each window's 95% \
          interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
-         the window's last {period} (years); {scale}. Figures: the rolling \
+         the window's last {period}, marked at the starts of years, half-years, quarters or months; {scale}. Figures: the rolling \
          betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",
         super::method_name(valuation.estimator.method),
@@ -343,6 +377,35 @@ fn data_summary(valuation: &Valuation) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    // Two and a half years of windows get half-year ticks (two year starts alone would be too
+    // few); ten years get year ticks; a few months get month ticks.
+    #[test]
+    fn ticks_are_the_coarsest_giving_three_labels() {
+        let at = |y, m, d| year(NaiveDate::from_ymd_opt(y, m, d).unwrap());
+        let labels = |first, last| -> Vec<String> {
+            let ticks = month_ticks(first, last);
+            (ticks.into_iter())
+                .filter(|(x, _)| (first..=last).contains(x))
+                .map(|(_, l)| l)
+                .collect()
+        };
+        assert_eq!(
+            labels(at(2024, 3, 31), at(2026, 9, 30)),
+            ["2024-07", "2025-01", "2025-07", "2026-01", "2026-07"]
+        );
+        assert_eq!(
+            labels(at(2016, 9, 30), at(2026, 9, 30))
+                .first()
+                .map(String::as_str),
+            Some("2017")
+        );
+        assert_eq!(
+            labels(at(2026, 5, 29), at(2026, 9, 30)),
+            ["2026-06", "2026-07", "2026-08", "2026-09"]
+        );
+    }
 
     #[test]
     fn fractional_years() {
