@@ -112,11 +112,22 @@ fn plot(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> R
 /// The percentile and point-estimate lines, each labelled at its own height.
 fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
     let top = axes.y.range.end;
-    // The point estimate's label goes on the side away from the median, whose taller line would
-    // otherwise strike through it; the median's on the other side.
-    let (point_side, median_side) = match u.point_estimate < u.p50 {
-        true => (HPos::Right, HPos::Left),
-        false => (HPos::Left, HPos::Right),
+    // The point estimate is labelled in the top row with the percentiles, whose labels lie
+    // outside the interval, on the side with the more room up to the interval's nearer end (or
+    // away from the interval when the point lies outside it): no line reaches that row, so none
+    // strikes through it. The median's label, a row lower, goes the other way, away from the
+    // point's taller line. (An anchor of Right puts the text to the left of its line.)
+    let room_left = u.point_estimate - u.p05;
+    let room_right = u.p95 - u.point_estimate;
+    let point_side = match (room_left < 0.0, room_right < 0.0) {
+        (true, _) => HPos::Right,
+        (_, true) => HPos::Left,
+        _ if room_right >= room_left => HPos::Left,
+        _ => HPos::Right,
+    };
+    let median_side = match u.p50 < u.point_estimate {
+        true => HPos::Right,
+        false => HPos::Left,
     };
     // Label rows from the top of the plot, as fractions of its height.
     let marks = [
@@ -145,7 +156,7 @@ fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> 
             "point-estimate",
             u.point_estimate,
             format!("point estimate {}", percent(u.point_estimate, 2)),
-            0.79,
+            0.95,
             point_side,
         ),
     ];
