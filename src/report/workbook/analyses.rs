@@ -133,7 +133,10 @@ fn sensitivity(
     row: u32,
     grid: &crate::audit::grid::Grid,
 ) -> Result<u32> {
-    let metric = crate::report::format::label(&grid.metric);
+    let metric = match grid.metric {
+        crate::case::Metric::Wacc => "WACC",
+        crate::case::Metric::CostOfEquity => "cost of equity",
+    };
     let text = format!(
         "Sensitivity of the {metric}: {} down, {} across",
         grid.rows.key, grid.columns.key

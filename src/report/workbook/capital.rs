@@ -76,7 +76,7 @@ const HEADERS: [&str; 19] = [
     "Raw beta",
     "SE(β)",
     "Vasicek weight on the estimate",
-    "Adjusted beta",
+    "Shrunk beta (Blume or Vasicek)",
     "Beta used",
     "Equity value",
     "Debt",
