@@ -2222,6 +2222,29 @@ fn command_arguments() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "a universe file given as a case",
+            |s| s.write(
+                "universe.toml",
+                "[universe]\nvaluation_date = 2026-09-30\n\n[panel]\nprices = \"p.csv\"\n"
+            ),
+            ["run", "{dir}/universe.toml", "--out", "{out}"],
+            [
+                "universe.toml",
+                "this is a universe file ([universe], [panel]), not a case",
+                "hurdle universe"
+            ]
+        ),
+        bad!(
+            "a case given as a universe file",
+            nothing,
+            ["universe", "{case}", "--out", "{out}"],
+            [
+                "case.toml",
+                "this is a case file ([case]), not a universe file",
+                "hurdle run"
+            ]
+        ),
+        bad!(
             "verify: a case given as the receipt",
             nothing,
             ["verify", "{case}"],

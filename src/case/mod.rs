@@ -232,10 +232,12 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
             message: format!("line {line}: not UTF-8 text; save the case file as UTF-8"),
         }
     })?;
-    sanity::check_case_text(&text).map_err(|message| Error::Case {
-        file: path.to_path_buf(),
-        message,
-    })?;
+    (sanity::case_or_universe(&text, false))
+        .and_then(|()| sanity::check_case_text(&text))
+        .map_err(|message| Error::Case {
+            file: path.to_path_buf(),
+            message,
+        })?;
     placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
     validate(&settings).map_err(|message| {

@@ -12,7 +12,7 @@ pub mod text;
 use super::{CaseDate, CaseFile, DebtSource, TargetSource};
 use crate::error::compact as show;
 
-pub use text::{check_case_text, check_claimed_text, empty_or_csv};
+pub use text::{case_or_universe, check_case_text, check_claimed_text, empty_or_csv};
 
 /// Most Monte Carlo draws: about five seconds on one core. On the demo case the median's own
 /// sampling error (1.2533·σ/√n, the asymptotic SE of a sample median) is 0.1 bp of WACC at a

@@ -222,6 +222,7 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
     })?;
     // The case's checks on the text: NaN or infinity in any key, and a window given twice
     // (`window_start` and `lookback` both written), each named with its line.
+    crate::case::sanity::case_or_universe(&text, true).map_err(file_error)?;
     crate::case::sanity::check_case_text(&text).map_err(file_error)?;
     // Parsing the text first keeps the parser's line and column in every message.
     let mut settings: UniverseFile =

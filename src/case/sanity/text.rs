@@ -203,6 +203,34 @@ fn other_kind_of_file(text: &str) -> std::result::Result<(), String> {
     Ok(())
 }
 
+/// The names of a TOML text's top-level tables (`[case]`, `[universe]`), as written.
+fn top_tables(text: &str) -> Vec<&str> {
+    (text.lines().map(str::trim))
+        .filter(|l| l.starts_with('[') && !l.starts_with("[["))
+        .filter_map(|l| l.strip_prefix('[')?.split(']').next())
+        .map(str::trim)
+        .filter(|name| !name.contains('.'))
+        .collect()
+}
+
+/// A universe file (`[universe]` or `[panel]` and no `[case]`) given where a case belongs, or a
+/// case (`[case]` and no `[universe]`) where a universe file belongs; named as such, with the
+/// command that takes it. `universe` says which the reader wanted.
+pub fn case_or_universe(text: &str, universe: bool) -> std::result::Result<(), String> {
+    let tables = top_tables(text);
+    let is_universe = tables.contains(&"universe") || tables.contains(&"panel");
+    let is_case = tables.contains(&"case");
+    match (universe, is_case, is_universe) {
+        (false, false, true) => Err("this is a universe file ([universe], [panel]), not a \
+             case: run it with `hurdle universe UNIVERSE.toml`"
+            .into()),
+        (true, true, false) => Err("this is a case file ([case]), not a universe file: run it \
+             with `hurdle run CASE.toml`; a universe receipt reruns the universe file it names"
+            .into()),
+        _ => Ok(()),
+    }
+}
+
 /// An empty file, a JSON document (a receipt), or a CSV table (a header of comma-separated
 /// names and no `key = value` line), given where a case or a claimed build-up belongs.
 pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
