@@ -516,6 +516,16 @@ fn implausible_signs_are_named_as_figures_to_check() {
         "{}",
         result["notes"]
     );
+    // Tax rates above one half, the subject's or a peer's, are named (statutory corporate rates
+    // lie well below: common practice).
+    let out = dir.path().join("tax");
+    let result = run_demo(&out, &["target.tax_rate=0.99", "peer.0.tax_rate=0.9"]);
+    let notes = result["notes"].to_string();
+    assert!(
+        notes.contains("Check: the target tax rate is 99.00%, above any usual corporate rate")
+            && notes.contains("Check: the tax rate of Brenvale Fluid Systems is 90.00%"),
+        "{notes}"
+    );
     // The demo itself raises none of these.
     let out = dir.path().join("demo");
     let result = run_demo(&out, &[]);
@@ -635,4 +645,23 @@ fn a_peer_whose_net_cash_blows_up_its_unlevered_beta_is_named() {
         "{note}\n{}",
         result["notes"]
     );
+}
+
+// With one aggregated peer, the peer-set interval resamples that peer alone, and the memo says
+// it adds nothing to the estimation-error interval (found by review).
+#[test]
+fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
+    let dir = tempfile::tempdir().unwrap();
+    let sets: Vec<String> = (1..8).map(|i| format!("peer.{i}.exclude=test")).collect();
+    let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+    run_demo(dir.path(), &sets);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains("With one aggregated peer every resample draws that"),
+        "{memo}"
+    );
+    let dir = tempfile::tempdir().unwrap();
+    run_demo(dir.path(), &[]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(!memo.contains("With one aggregated peer"));
 }

@@ -267,6 +267,14 @@ fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<Stri
         ));
     }
     notes.extend(unused_cost_notes(settings));
+    for peer in settings.peers.iter().filter(|p| p.tax_rate > 0.5) {
+        notes.push(format!(
+            "Check: the tax rate of {} is {}%, above any usual corporate rate: check the \
+             figure.",
+            peer.name,
+            crate::error::rounded(peer.tax_rate * 100.0, 2)
+        ));
+    }
     // Peers' equity values a factor of 10,000 apart: most often one given in units and the
     // others in millions (a judgement; peer sets rarely span so far in size).
     let equity = settings.peers.iter().map(|p| p.equity_value);
@@ -416,6 +424,15 @@ fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
              or the given yield.",
             percent(cost.cost_of_debt_pre_tax),
             percent(cost.risk_free_rate)
+        ));
+    }
+    // Statutory corporate rates lie well below one half (a fact of the trade, common practice);
+    // a rate above it is most often a typing slip.
+    if cost.target.tax_rate > 0.5 {
+        notes.push(format!(
+            "Check: the target tax rate is {}, above any usual corporate rate: check the \
+             figure.",
+            percent(cost.target.tax_rate)
         ));
     }
     if cost.wacc <= 0.0 {
