@@ -38,39 +38,45 @@ fn year(date: NaiveDate) -> f64 {
 /// panels into a sliver to show one peer's extremes: each panel then gets its own scale.
 const SHARED_SCALE_LIMIT: f64 = 4.0;
 
-/// Ticks at the starts of years, half-years, quarters or months, the coarsest that puts at
-/// least three inside `[first, last]` (fractional years): years are labelled `2025`, the others
-/// `2024-07`, so a window of two or three years is not marked by two year labels alone.
+/// Ticks at the starts of months, quarters, half-years, years or every 2, 5 or 10 years, the
+/// finest of those that puts at most [`MAX_TIME_TICKS`] inside `[first, last]` (fractional
+/// years), and only those inside: a year is labelled `2025`, a finer tick `2024-07`, so a window
+/// of two or three years is not marked by two year labels alone, nor forty years by forty.
 fn month_ticks(first: f64, last: f64) -> Vec<(f64, String)> {
-    if !(first.is_finite() && last.is_finite()) {
+    if !(first.is_finite() && last.is_finite() && first <= last) {
         return Vec::new();
     }
-    let starts = |step: u32| -> Vec<(f64, String)> {
-        let (from, to) = (first.floor() as i32 - 1, last.ceil() as i32 + 1);
-        (from..=to)
-            .flat_map(|y| (0..12).step_by(step as usize).map(move |m| (y, m + 1)))
-            .filter_map(|(y, m)| NaiveDate::from_ymd_opt(y, m, 1))
-            .map(|d| {
-                let label = match step {
-                    12 => d.format("%Y").to_string(),
-                    _ => d.format("%Y-%m").to_string(),
-                };
-                (year(d), label)
+    let (from, to) = (first.floor() as i32, last.ceil() as i32);
+    let starts = |months: i32| -> Vec<(f64, String)> {
+        let dates: Vec<NaiveDate> = match months {
+            m if m < 12 => (from..=to)
+                .flat_map(|y| (1..=12).step_by(m as usize).map(move |month| (y, month)))
+                .filter_map(|(y, month)| NaiveDate::from_ymd_opt(y, month as u32, 1))
+                .collect(),
+            m => (from..=to)
+                .filter(|y| y.rem_euclid(m / 12) == 0)
+                .filter_map(|y| NaiveDate::from_ymd_opt(y, 1, 1))
+                .collect(),
+        };
+        (dates.into_iter())
+            .map(|d| (year(d), d))
+            .filter(|(x, _)| (first..=last).contains(x))
+            .map(|(x, d)| match months >= 12 {
+                true => (x, d.format("%Y").to_string()),
+                false => (x, d.format("%Y-%m").to_string()),
             })
             .collect()
     };
-    let inside = |ticks: &[(f64, String)]| {
-        ticks
-            .iter()
-            .filter(|(x, _)| (first..=last).contains(x))
-            .count()
-    };
-    [12, 6, 3, 1]
+    [1, 3, 6, 12, 24, 60, 120]
         .into_iter()
         .map(starts)
-        .find(|ticks| inside(ticks) >= 3)
-        .unwrap_or_else(|| starts(1))
+        .find(|ticks| ticks.len() <= MAX_TIME_TICKS)
+        .unwrap_or_else(|| starts(240))
 }
+
+/// The most time labels a panel's axis takes (a panel is about 300 px wide; a label "2024-07"
+/// about 45 px).
+const MAX_TIME_TICKS: usize = 6;
 
 /// The β range of one peer's panel: its bands and its whole-window β.
 fn beta_range(points: &[RollingPoint], whole: f64) -> (f64, f64) {
@@ -340,7 +346,7 @@ fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) 
         "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
          whole window) over windows of {} {period}s ending every {}, with each window's 95% \
          interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
-         the window's last {period}, marked at the starts of years, half-years, quarters or months; {scale}. Figures: the rolling \
+         the window's last {period}, marked at the starts of months, quarters, half-years or years (every 2, 5 or 10 years on a long span); {scale}. Figures: the rolling \
          betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",
         super::method_name(valuation.estimator.method),
@@ -378,16 +384,15 @@ fn data_summary(valuation: &Valuation) -> String {
 mod tests {
     use super::*;
 
-    #[test]
     // Two and a half years of windows get half-year ticks (two year starts alone would be too
-    // few); ten years get year ticks; a few months get month ticks.
+    // few); a few months get month ticks; ten years every two years; thirty-five years every
+    // ten; never more than six, and none outside the windows.
     #[test]
-    fn ticks_are_the_coarsest_giving_three_labels() {
+    fn time_ticks_are_the_finest_with_at_most_six_labels() {
         let at = |y, m, d| year(NaiveDate::from_ymd_opt(y, m, d).unwrap());
         let labels = |first, last| -> Vec<String> {
-            let ticks = month_ticks(first, last);
-            (ticks.into_iter())
-                .filter(|(x, _)| (first..=last).contains(x))
+            month_ticks(first, last)
+                .into_iter()
                 .map(|(_, l)| l)
                 .collect()
         };
@@ -396,14 +401,16 @@ mod tests {
             ["2024-07", "2025-01", "2025-07", "2026-01", "2026-07"]
         );
         assert_eq!(
-            labels(at(2016, 9, 30), at(2026, 9, 30))
-                .first()
-                .map(String::as_str),
-            Some("2017")
-        );
-        assert_eq!(
             labels(at(2026, 5, 29), at(2026, 9, 30)),
             ["2026-06", "2026-07", "2026-08", "2026-09"]
+        );
+        assert_eq!(
+            labels(at(2016, 9, 30), at(2026, 9, 30)),
+            ["2018", "2020", "2022", "2024", "2026"]
+        );
+        assert_eq!(
+            labels(at(1991, 9, 30), at(2026, 9, 30)),
+            ["2000", "2010", "2020"]
         );
     }
 
