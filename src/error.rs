@@ -59,9 +59,9 @@ pub enum Error {
     /// the receipt, while the recorded path finds an unchanged copy; a front end says how to
     /// choose.
     #[error(
-        "{}: two {section} files could be this receipt's: {} beside it, changed since the receipt \
-         (its SHA-256 differs), and {}, the recorded path read from the working folder, \
-         unchanged; say which one to verify",
+        "{}: two {section} files could be this receipt's: {} beside it, with the receipt's \
+         title but changed since the receipt (its SHA-256 differs), and {}, unchanged (the \
+         recorded SHA-256); say which one to verify",
         receipt.display(),
         beside.display(),
         recorded.display()

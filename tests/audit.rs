@@ -1633,3 +1633,41 @@ fn implied_at_the_case_wacc_gives_the_case_values() {
         assert_eq!(exact_line(&report, ""), expected, "{report}");
     }
 }
+
+// A receipt written into another case's folder (`--out other/out-b`): the case beside it has
+// another title, so it is not this receipt's; the recorded path's unchanged case is rerun
+// (found by review: the other case was taken for an edited copy and the receipt refused).
+#[test]
+fn verify_passes_over_an_unrelated_case_beside_the_receipt() {
+    let (dir, _) = demo_copy();
+    let other = dir.path().join("other");
+    copy_demo_case(&other);
+    let text_of = std::fs::read_to_string(other.join("case.toml")).unwrap();
+    let title = text_of.lines().find(|l| l.starts_with("title")).unwrap();
+    std::fs::write(
+        other.join("case.toml"),
+        text_of.replace(title, "title = \"Another case\""),
+    )
+    .unwrap();
+    let binary = env!("CARGO_BIN_EXE_hurdle");
+    let run = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args([
+            "run",
+            "case/case.toml",
+            "--out",
+            "other/out-b",
+            "--no-figures",
+        ])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", text(&run));
+    let verify = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .args(["verify", "other/out-b/result.json"])
+        .output()
+        .unwrap();
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(0), "{report}");
+    assert!(report.contains("(case case/case.toml)"), "{report}");
+}

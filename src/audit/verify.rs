@@ -493,8 +493,11 @@ pub(super) fn rerun_source(
             let written = recorded[section]["file"]
                 .as_str()
                 .ok_or_else(|| fail(format!("has no {section}.file")))?;
-            let sha256 = recorded[section]["sha256"].as_str();
-            locate_case(receipt_path, written, section, sha256)?
+            let recorded_file = RecordedFile {
+                sha256: recorded[section]["sha256"].as_str(),
+                title: recorded[section]["title"].as_str(),
+            };
+            locate_case(receipt_path, written, section, recorded_file)?
         }
     };
     let overrides = recorded[section]["overrides"]
@@ -508,24 +511,31 @@ pub(super) fn rerun_source(
     Ok((file, overrides))
 }
 
-/// Finds the case (or universe) file a receipt names: as recorded (relative to the working
-/// folder), or beside the receipt's folder, where `hurdle run` puts `output/` by default. Of
-/// the two, the one whose SHA-256 is the recorded `sha256` wins (run from another folder, the
-/// recorded relative path can name another case of the same name); when neither matches, the
-/// first that exists, whose changed hash the verification then reports. `section` is the
-/// receipt's section that records it (`case` or `universe`).
+/// What a receipt records of the file it reruns: its SHA-256 and its title (`case.title`, or
+/// `universe.title`), each when present.
+#[derive(Clone, Copy)]
+pub(super) struct RecordedFile<'a> {
+    pub sha256: Option<&'a str>,
+    pub title: Option<&'a str>,
+}
+
+/// Finds the case (or universe) file a receipt names: beside the receipt's folder (where
+/// `hurdle run` puts `output/` by default), in the receipt's own folder, or at the recorded
+/// path (relative to the working folder). The first with the recorded SHA-256 wins; when none
+/// has it, the first with the receipt's title (the receipt's own case, edited); else the first
+/// that exists, whose changed hash the verification then reports. A bundle's own case that
+/// carries the receipt's title but changed, while a farther place holds the unchanged bytes,
+/// could be either: that is refused, naming both, for the caller to choose. `section` is the
+/// receipt's section that records the file (`case` or `universe`).
 pub(super) fn locate_case(
     receipt_path: &Path,
     recorded: &str,
     section: &str,
-    sha256: Option<&str>,
+    file: RecordedFile<'_>,
 ) -> Result<PathBuf> {
     let recorded = PathBuf::from(recorded);
-    // The case beside the receipt's folder first (a copied or moved bundle carries its own
-    // case and data, which the recorded path may still find at the original's place), then in
-    // the receipt's own folder (a bundle that keeps the receipt beside the case), then the
-    // recorded path. The receipt's path made absolute first, so that `result.json` given from
-    // inside the output folder still has a parent folder.
+    // The receipt's path made absolute first, so that `result.json` given from inside the
+    // output folder still has a parent folder.
     let receipt_path = std::path::absolute(receipt_path).unwrap_or(receipt_path.to_path_buf());
     let mut candidates = Vec::new();
     if let (Some(output_dir), Some(name)) = (receipt_path.parent(), recorded.file_name()) {
@@ -535,35 +545,42 @@ pub(super) fn locate_case(
     }
     let in_bundle = candidates.len();
     candidates.push(recorded.clone());
+    let read = |path: &PathBuf| std::fs::read(path).ok();
     let same_bytes = |path: &PathBuf| {
-        let bytes = std::fs::read(path).ok();
-        sha256.is_some_and(|hash| bytes.is_some_and(|b| crate::io::series::sha256_hex(&b) == hash))
+        let bytes = read(path);
+        (file.sha256)
+            .is_some_and(|hash| bytes.is_some_and(|b| crate::io::series::sha256_hex(&b) == hash))
     };
-    let found = candidates
-        .iter()
-        .find(|p| p.is_file() && same_bytes(p))
-        .or_else(|| candidates.iter().find(|p| p.is_file()))
-        .cloned()
+    // The receipt's own file, edited: it still carries the receipt's title.
+    let titled = |path: &PathBuf| {
+        let text = read(path).and_then(|b| String::from_utf8(b).ok());
+        let table: Option<toml::Table> = text.and_then(|t| toml::from_str(&t).ok());
+        let title = table
+            .as_ref()
+            .and_then(|t| t.get(section)?.get("title")?.as_str().map(str::to_string));
+        file.title.is_some() && title.as_deref() == file.title
+    };
+    let existing: Vec<&PathBuf> = candidates.iter().filter(|p| p.is_file()).collect();
+    let found = (existing.iter().find(|p| same_bytes(p)))
+        .or_else(|| existing.iter().find(|p| titled(p)))
+        .or_else(|| existing.first())
+        .map(|p| (*p).clone())
         .ok_or_else(|| Error::InputNotFound {
             receipt: receipt_path.clone(),
             section: section.to_string(),
             tried: candidates.clone(),
         })?;
-    // A bundle whose own case changed, while the recorded path (read from the working folder)
-    // finds an unchanged copy elsewhere: which one the receipt stands for is the auditor's
-    // call, never a silent choice, because verifying the copy would pass over the bundle's
-    // edit.
-    let beside = candidates[..in_bundle].iter().find(|p| p.is_file());
-    if let Some(beside) = beside.filter(|b| !same_bytes(b) && found != **b) {
-        let absolute = |p: &Path| std::path::absolute(p).unwrap_or(p.to_path_buf());
-        if absolute(beside) != absolute(&found) {
-            return Err(Error::AmbiguousInput {
-                receipt: receipt_path.clone(),
-                section: section.to_string(),
-                beside: absolute(beside),
-                recorded: absolute(&found),
-            });
-        }
+    let absolute = |p: &Path| std::path::absolute(p).unwrap_or(p.to_path_buf());
+    let edited_in_bundle = (candidates[..in_bundle].iter())
+        .take_while(|p| absolute(p) != absolute(&found))
+        .find(|p| p.is_file() && !same_bytes(p) && titled(p));
+    if let Some(beside) = edited_in_bundle.filter(|_| same_bytes(&found)) {
+        return Err(Error::AmbiguousInput {
+            receipt: receipt_path.clone(),
+            section: section.to_string(),
+            beside: absolute(beside),
+            recorded: absolute(&found),
+        });
     }
     Ok(found)
 }
