@@ -8,7 +8,7 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE, WORDING_NOTE};
+use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -108,7 +108,7 @@ fn render(r: &Verification) -> String {
         ));
     }
     if !r.wording_differences.is_empty() {
-        out.push_str(&format!("  note: {}\n", WORDING_NOTE));
+        out.push_str(&format!("  note: {}\n", r.wording_note()));
     }
     out.push_str(&format!("  note: {}\n", r.not_compared));
     if !r.headline.is_empty() {

@@ -6,7 +6,7 @@
 
 use std::fmt::Write as _;
 
-use crate::audit::verify::{Mismatch, Verification, WORDING_NOTE};
+use crate::audit::verify::{Mismatch, Verification};
 
 /// A recorded or recomputed value as a Markdown table cell: its JSON text, with `|` escaped so
 /// that a text holding one keeps the table's columns.
@@ -99,7 +99,7 @@ pub fn markdown(r: &Verification) -> String {
     );
     differences(w, "Description | Recorded | Now | ", &r.wording_differences);
     if !r.wording_differences.is_empty() {
-        let _ = writeln!(w, "\nWorded differently: {WORDING_NOTE}.");
+        let _ = writeln!(w, "\nWorded differently: {}.", r.wording_note());
     }
     let _ = writeln!(w, "\n{}.", r.not_compared);
     let _ = writeln!(

@@ -205,14 +205,6 @@ fn compare_by_name(
 impl Comparison {
     /// A leaf that differs: a mismatch, or a wording difference when it is sentences under one
     /// of [`WORDING_KEYS`].
-    /// A receipt written by this very version words every sentence as a rerun does, so a
-    /// sentence that reads otherwise was edited: it counts as a mismatch, not as wording.
-    pub(crate) fn same_version_wording_is_a_mismatch(&mut self, written_by: Option<&str>) {
-        if written_by == Some(env!("CARGO_PKG_VERSION")) {
-            self.mismatches.append(&mut self.wording);
-        }
-    }
-
     fn record(&mut self, difference: Mismatch, key: &str) {
         let (recorded, recomputed) = (&difference.recorded, &difference.recomputed);
         // A list of sentences (the notes) that another version words differently, or to which
