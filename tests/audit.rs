@@ -1633,6 +1633,27 @@ fn implied_at_the_case_wacc_gives_the_case_values() {
         assert_eq!(output.status.code(), Some(0), "{report}");
         assert_eq!(exact_line(&report, ""), expected, "{report}");
     }
+    // A case value of 0 as well (found by review: a size premium of −1.4e-17 came back, with
+    // a caution that it is below zero).
+    let zero = run_case(
+        &case,
+        &dir.path().join("zero"),
+        &["--no-figures", "--set", "premiums.size=0"],
+    );
+    let wacc = number(&zero, "wacc").to_string();
+    let output = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        &wacc,
+        "--solve",
+        "size_premium",
+        "--set",
+        "premiums.size=0",
+    ]);
+    let report = text(&output);
+    assert_eq!(exact_line(&report, ""), "premiums.size=0", "{report}");
+    assert!(!report.contains("caution"), "{report}");
 }
 
 // A receipt written into another case's folder (`--out other/out-b`): the case beside it has

@@ -294,7 +294,8 @@ pub fn implied(
     // A claim the case's own value already meets is answered with that value, not with the
     // double next to it where the bisection stopped (0.39999999999999813 for 0.4).
     let value = scan.value.map(|x| {
-        let near = (x - base_value).abs() <= 1e-9 * base_value.abs().max(1e-9);
+        // Within a billionth of the value, or of a rate's unit near zero (a case value of 0).
+        let near = (x - base_value).abs() <= 1e-9 * base_value.abs().max(1e-3);
         match near && matches!(wacc_at(base_value), Ok(w) if (w - claimed).abs() <= REPRODUCED) {
             true => base_value,
             false => x,
