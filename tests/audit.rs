@@ -165,7 +165,7 @@ fn verify_names_the_receipts_overrides_and_the_headline_gap() {
     assert_eq!(output.status.code(), Some(0), "{report}");
     assert!(
         report.contains(&format!(
-            "overrides: the receipt's run applied --set \"{set}\""
+            "overrides: the receipt's run applied --set '{set}'"
         )),
         "{report}"
     );
@@ -609,6 +609,23 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
     );
     assert!(
         report.contains("peer:Ivelbrook Instruments data/peers/ivelbrook.csv: unchanged; read now from data/peers/ivelbrook_v2.csv"),
+        "{report}"
+    );
+
+    // A peer renamed, its file untouched: one unchanged file under its new role, not a file
+    // dropped and another added (found by review).
+    std::fs::write(
+        &case,
+        text_of_case.replace("\"Ivelbrook Instruments\"", "\"Ivelbrook Renamed\""),
+    )
+    .unwrap();
+    let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));
+    assert!(
+        report.contains("peer:Ivelbrook Renamed (was peer:Ivelbrook Instruments) data/peers/ivelbrook.csv: unchanged"),
+        "{report}"
+    );
+    assert!(
+        report.contains("NOT REPRODUCED: 1 input file changed"),
         "{report}"
     );
 }

@@ -2222,6 +2222,25 @@ fn command_arguments() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "both target ratios by --set",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "target.debt_to_equity=0.3",
+                "--set",
+                "target.debt_to_capital=0.2"
+            ],
+            [
+                "--set target.debt_to_capital=0.2",
+                "another override sets target.debt_to_equity",
+                "keep one"
+            ]
+        ),
+        bad!(
             "a universe file given as a case",
             |s| s.write(
                 "universe.toml",

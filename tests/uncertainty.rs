@@ -133,8 +133,8 @@ fn the_specification_note_places_the_case_among_its_rows() {
     let pct = |x: f64| format!("{:.2}%", x * 100.0);
     let expected = format!(
         "Specification range: the case's own frequency and window give {}, the lowest WACC of \
-         the 9 rows (the others {} to {}); 2 of the other 8 lie outside the 90% \
-         estimation-error interval ({} to {})",
+         the 9 rows (the others {} to {}); 2 of the other 8 lie outside the 90% interval \
+         of the first Monte Carlo ({} to {})",
         pct(own),
         pct(low),
         pct(high),

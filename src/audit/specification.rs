@@ -169,8 +169,8 @@ pub fn note(u: &Uncertainty) -> Option<String> {
     }
     if outside > 0 {
         text.push_str(&format!(
-            "; {outside} of the other {} lie outside the 90% estimation-error interval ({} to \
-             {}), which does not cover the choice of frequency and window",
+            "; {outside} of the other {} lie outside the 90% interval of the first Monte Carlo \
+             ({} to {}), which does not cover the choice of frequency and window",
             others.len(),
             percent(u.p05),
             percent(u.p95)

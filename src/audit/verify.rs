@@ -267,7 +267,9 @@ impl Verification {
             return "unchanged".into();
         }
         match self.changed_settings().as_slice() {
-            [] => "CHANGED since the receipt (no setting differs: a comment or spacing)".into(),
+            [] => "CHANGED since the receipt (no setting differs: a comment, spacing, or a \
+                   value the receipt's overrides replace)"
+                .into(),
             settings => format!(
                 "CHANGED since the receipt; the settings that differ, listed first below: {}",
                 settings.join(", ")
@@ -369,7 +371,8 @@ fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
     let first = (text.lines().map(str::trim))
         .find(|l| !l.is_empty() && !l.starts_with('#'))
         .unwrap_or("");
-    if first.starts_with('{') || first.is_empty() {
+    // JSON of any shape is left to the receipt's own checks ("has no schema_version").
+    if first.starts_with('{') || first.is_empty() || serde_json::from_str::<Value>(text).is_ok() {
         return Ok(());
     }
     let toml = text.lines().any(|l| {
@@ -653,10 +656,24 @@ fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation) -> Vec<Fil
             FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role))
         })
         .collect();
-    // Files the case reads now that the receipt does not have (a peer added since).
+    // Files the case reads now that the receipt does not have (a peer added since), unless
+    // they are the bytes of a file no longer read under its role (a peer renamed): one check.
     for (role, file) in &current {
-        if !listed.iter().any(|(r, _)| r == role) {
-            checks.push(FileCheck::new(role.clone(), None, Some(file.clone())));
+        if listed.iter().any(|(r, _)| r == role) {
+            continue;
+        }
+        let renamed = (checks.iter_mut())
+            .find(|c| c.status == "dropped" && c.recorded_sha256.as_deref() == Some(&file.1));
+        match renamed {
+            Some(check) => {
+                let was = (check.path.clone(), file.1.clone());
+                *check = FileCheck::new(
+                    format!("{role} (was {})", check.role),
+                    Some(was),
+                    Some(file.clone()),
+                );
+            }
+            None => checks.push(FileCheck::new(role.clone(), None, Some(file.clone()))),
         }
     }
     checks

@@ -81,6 +81,26 @@ impl CaseFile {
     }
 }
 
+/// Two overrides that set the target both ways (`target.debt_to_equity` and
+/// `target.debt_to_capital`): one would silently replace the other, since an override of one
+/// ratio removes the other.
+fn refuse_both_target_ratios(overrides: &[String]) -> Result<()> {
+    let key = |o: &String| o.split_once('=').map(|(k, _)| k.trim().to_string());
+    let ratio = |name: &str| overrides.iter().find(|o| key(o).as_deref() == Some(name));
+    match (
+        ratio("target.debt_to_equity"),
+        ratio("target.debt_to_capital"),
+    ) {
+        (Some(_), Some(second)) => Err(Error::Override {
+            assignment: second.clone(),
+            message: "another override sets target.debt_to_equity; the target is one ratio, \
+                      written either way: keep one"
+                .into(),
+        }),
+        _ => Ok(()),
+    }
+}
+
 /// A file the run read and what it is, for messages ("peer.1.prices (peer \"X\")").
 pub type FileRead = (PathBuf, String);
 
@@ -284,6 +304,7 @@ fn parse_case(path: &Path, text: &str, overrides: &[String]) -> Result<CaseFile>
     }
     let mut table: toml::Table =
         toml::from_str(text).map_err(|e| case_error(crate::error::toml_error(&e, text)))?;
+    refuse_both_target_ratios(overrides)?;
     for assignment in overrides {
         apply_override(&mut table, assignment)?;
     }

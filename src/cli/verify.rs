@@ -52,11 +52,12 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     })
 }
 
-/// The overrides as the command line gives them, each `--set` quoted.
+/// The overrides as a POSIX shell takes them, each `--set` in single quotes (a quote inside
+/// written `'\''`).
 fn quoted_overrides(overrides: &[String]) -> String {
     overrides
         .iter()
-        .map(|o| format!("--set \"{o}\""))
+        .map(|o| format!("--set '{}'", o.replace('\'', "'\\''")))
         .collect::<Vec<_>>()
         .join(" ")
 }

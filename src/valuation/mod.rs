@@ -187,10 +187,17 @@ fn estimate_peers_under(
                 ));
             }
             Err(message) => {
+                let remedy = match estimated.copies_index() {
+                    true => {
+                        "; remove the peer, or give it `exclude = \"…\"` to list it without \
+                             aggregating it"
+                    }
+                    false => "",
+                };
                 return Err(Error::Estimation {
                     peer: peer.name.clone(),
-                    message,
-                })
+                    message: format!("{message}{remedy}"),
+                });
             }
             Ok(()) => {}
         }

@@ -213,8 +213,7 @@ pub fn check_peer_fit(
     if estimated.copies_index() {
         return Err(format!(
             "the index ({index_path}) explains its returns with R² = {} (above {MAX_R_SQUARED}): \
-             the price file is the index or a copy of it; remove the peer, or give it `exclude = \
-             \"…\"` to list it without aggregating it",
+             the price file is the index or a copy of it",
             show(estimate.r_squared)
         ));
     }
