@@ -196,6 +196,12 @@ fn verify_names_the_receipts_overrides_and_the_headline_gap() {
         (now - was) * 1e4
     );
     assert!(report.contains(&expected), "{expected} in {report}");
+    // The specification range's note quotes WACCs, which moved with the rate: its wording
+    // differs because the inputs did, which the note says (found by review: it was called an
+    // edit).
+    assert!(report.contains("worded differently notes"), "{report}");
+    assert!(report.contains("because the inputs changed"), "{report}");
+    assert!(!report.contains("edited by hand"), "{report}");
 }
 
 #[test]

@@ -2216,7 +2216,7 @@ fn command_arguments() -> Vec<Bad> {
                 "beta.min_observations=6"
             ],
             [
-                "Newey-West lags 2",
+                "Newey–West lags 2",
                 "rule floor(4·(N/100)^(2/9)) chose 2",
                 "lengthen the window"
             ]
@@ -2269,8 +2269,18 @@ fn command_arguments() -> Vec<Bad> {
             ["verify", "{case}"],
             [
                 "case.toml",
-                "a TOML file (a case or a claimed build-up?), not a receipt",
+                "a TOML file (a case, universe or claimed build-up file?), not a receipt",
                 "output/result.json"
+            ]
+        ),
+        bad!(
+            "verify: a workbook given as the receipt",
+            |s| s.write("r.json", "PK\u{3}\u{4} a zip archive's first bytes"),
+            ["verify", "{dir}/r.json"],
+            [
+                "r.json",
+                "a workbook or another ZIP archive",
+                "not a receipt"
             ]
         ),
         bad!(

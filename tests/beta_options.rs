@@ -169,7 +169,11 @@ fn rejects(settings: &[&str], expected: &[&str]) {
 fn bad_estimator_options_are_named() {
     rejects(
         &["beta.method=dimson", "beta.dimson_lags=15"],
-        &["beta.dimson_lags", "15", "lookback / 4"],
+        &[
+            "beta.dimson_lags",
+            "15",
+            "a quarter of the window's 60 periods (15)",
+        ],
     );
     rejects(
         &["beta.method=dimson", "beta.dimson_lags=0"],
@@ -177,7 +181,10 @@ fn bad_estimator_options_are_named() {
     );
     rejects(
         &["beta.std_errors=newey-west", "beta.newey_west_lags=20"],
-        &["beta.newey_west_lags = 20", "lookback / 4"],
+        &[
+            "beta.newey_west_lags = 20",
+            "a quarter of the window's 60 periods (15)",
+        ],
     );
     rejects(&["beta.std_errors=white"], &["white", "std_errors"]);
     rejects(&["beta.method=bayes"], &["bayes"]);
@@ -220,7 +227,7 @@ fn bad_estimator_options_are_named() {
         ],
         &[
             "beta.dimson_lags + beta.dimson_leads = 2",
-            "lookback / 4 = 2",
+            "a quarter of the window's 8 periods (2)",
         ],
     );
     rejects(

@@ -169,9 +169,10 @@ pub fn note(u: &Uncertainty) -> Option<String> {
     }
     if outside > 0 {
         text.push_str(&format!(
-            "; {outside} of the other {} lie outside the 90% interval of the first Monte Carlo \
+            "; {outside} of the other {} {} outside the 90% interval of the first Monte Carlo \
              ({} to {}), which does not cover the choice of frequency and window",
             others.len(),
+            if outside == 1 { "lies" } else { "lie" },
             percent(u.p05),
             percent(u.p95)
         ));

@@ -169,6 +169,12 @@ hurdle, which words these sentences as its rerun does: unless it was built from 
 under the same version number, they were edited by hand; they are not figures, and every \
 figure is compared";
 
+/// What a wording difference means when this version wrote the receipt and inputs changed: a
+/// note quotes figures (a WACC, a count), which moved with the inputs.
+pub const MOVED_WITH_INPUTS_NOTE: &str = "a sentence reads differently because the inputs \
+changed and it quotes figures that moved with them; it is not a figure itself, and every \
+figure is compared";
+
 /// What a listed wording difference means, for the reader of a verification.
 pub const WORDING_NOTE: &str = "a sentence that describes a setting reads differently (the \
 version that wrote the receipt worded it otherwise); it is not a figure, and the setting it \
@@ -330,12 +336,17 @@ impl Verification {
             .join("; ")
     }
 
-    /// What the wording differences mean: another version's words, or, when the receipt's
-    /// version is this one, most likely an edit ([`SAME_VERSION_WORDING_NOTE`]).
+    /// What the wording differences mean: another version's words; with changed inputs, the
+    /// figures the notes quote, which moved with them; or, when this very version wrote the
+    /// receipt from the same inputs, most likely an edit ([`SAME_VERSION_WORDING_NOTE`]).
     pub fn wording_note(&self) -> &'static str {
-        match self.recorded_tool_version == self.current_tool_version {
-            true => SAME_VERSION_WORDING_NOTE,
-            false => WORDING_NOTE,
+        match (
+            self.recorded_tool_version == self.current_tool_version,
+            self.changed_inputs() == 0,
+        ) {
+            (false, _) => WORDING_NOTE,
+            (true, false) => MOVED_WITH_INPUTS_NOTE,
+            (true, true) => SAME_VERSION_WORDING_NOTE,
         }
     }
 
@@ -380,7 +391,7 @@ fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
         l.starts_with('[') && l.ends_with(']') || l.contains(" = ")
     });
     let what = match (toml, first.contains(',')) {
-        (true, _) => "a TOML file (a case or a claimed build-up?)",
+        (true, _) => "a TOML file (a case, universe or claimed build-up file?)",
         (false, true) => "a CSV table, not JSON",
         // Anything else is left to the JSON parser, whose message gives the line.
         (false, false) => return Ok(()),

@@ -122,7 +122,7 @@ pub fn estimate_with_influence(
                 ),
             };
             return Err(Error::Regression(format!(
-                "Newey-West lags {l} are at least N/4 = {} for N = {n} observations; {remedy}",
+                "Newey–West lags {l} are at least N/4 = {} for N = {n} observations; {remedy}",
                 n as f64 / 4.0
             )));
         }

@@ -47,10 +47,10 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
             ),
         };
         return Err(format!(
-            "{columns} beta.lookback / 4 = {}: too many shifted market columns for {} periods; \
-             lengthen the window",
-            f64::from(lookback) / 4.0,
-            lookback
+            "{columns} a quarter of the window's {} periods ({}): too many shifted market \
+             columns; lengthen the window",
+            lookback,
+            f64::from(lookback) / 4.0
         ));
     }
     if beta.method == BetaMethod::Dimson && lags + leads == 0 {
@@ -73,7 +73,8 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
     if let Some(l) = beta.newey_west_lags.filter(|_| newey_west) {
         if 4 * l >= lookback {
             return Err(format!(
-                "beta.newey_west_lags = {l} is at least beta.lookback / 4 = {}",
+                "beta.newey_west_lags = {l} is at least a quarter of the window's {lookback} \
+                 periods ({})",
                 f64::from(lookback) / 4.0
             ));
         }

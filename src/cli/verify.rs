@@ -26,11 +26,23 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
-    let text = std::fs::read_to_string(&args.receipt).map_err(|source| hurdle::Error::Io {
+    let bytes = std::fs::read(&args.receipt).map_err(|source| hurdle::Error::Io {
         path: args.receipt.clone(),
         action: "cannot read the receipt",
         source,
     })?;
+    // A workbook or other binary file given as the receipt is named as what it is.
+    let not_a_receipt = |what: &str| hurdle::Error::DataFile {
+        file: args.receipt.clone(),
+        message: format!(
+            "the file is {what}, not a receipt: verify reads the result.json that `hurdle run` \
+             or `hurdle universe` wrote"
+        ),
+    };
+    if let Some(kind) = hurdle::io::sanity::binary_kind(&bytes) {
+        return Err(not_a_receipt(kind));
+    }
+    let text = String::from_utf8(bytes).map_err(|_| not_a_receipt("not UTF-8 text"))?;
     let report = verify(&args.receipt, &text, args.case.as_deref(), args.tolerance)?;
     print!("{}", render(&report));
     if let Some(dir) = &args.out {

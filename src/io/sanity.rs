@@ -233,7 +233,7 @@ fn refuse_binary(file: &Path, bytes: &[u8]) -> Result<()> {
 /// signatures): an Excel workbook (.xlsx is a ZIP archive, "PK\x03\x04"; .xls an OLE compound
 /// file, D0 CF 11 E0), a Parquet file ("PAR1"), or text saved as UTF-16 (a byte-order mark
 /// FF FE or FE FF, as "Unicode text" exports write).
-fn binary_kind(bytes: &[u8]) -> Option<&'static str> {
+pub fn binary_kind(bytes: &[u8]) -> Option<&'static str> {
     if bytes.starts_with(b"PK\x03\x04") {
         Some("a workbook or another ZIP archive (.xlsx, .ods)")
     } else if bytes.starts_with(&[0xD0, 0xCF, 0x11, 0xE0]) {

@@ -466,7 +466,11 @@ fn net_cash_note(peer: &PeerResult) -> Option<String> {
              beta of {}: net cash near the equity value leaves the formula's denominator near \
              zero; consider leverage.debt_measure = \"gross\" or leaving the peer out.",
             peer.name,
-            crate::error::rounded(peer.debt_to_equity, 6),
+            // Three decimals as every D/E, more where three would read as −1.
+            match (peer.debt_to_equity + 1.0).abs() < 0.0005 {
+                true => crate::error::rounded(peer.debt_to_equity, 6),
+                false => crate::error::rounded(peer.debt_to_equity, 3),
+            },
             crate::error::rounded(unlevered, 3),
             crate::error::rounded(levered, 3)
         )

@@ -270,8 +270,9 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
         let why = match d.asset_missing + d.market_missing {
             0 => "",
             _ => {
-                " A return needs a price at both ends of its period, so one missing price inside \
-                 the window costs two returns."
+                " A return needs a price at both ends of its period: a price missing inside the \
+                 window costs two returns, one missing before the data start or after they end \
+                 one each."
             }
         };
         notes.push(format!(
