@@ -48,10 +48,16 @@ pub fn simulate(
         BetaErrors::Correlated => beta_error_correlation(estimates),
         BetaErrors::Independent => identity(peers.len()),
     };
-    let factor = covariance_factor(&correlation, &peers);
+    // The draws take the peers in the order of their names, not of the case file, so that a
+    // case listing the same peers in another order draws the same intervals (found by review:
+    // the seeded normals went to other peers). The records stay in the case's order.
+    let order = name_order(settings);
+    let named: Vec<PeerCapital> = order.iter().map(|&i| peers[i]).collect();
+    let factor = covariance_factor(&permuted(&correlation, &order), &named);
     let wacc_of =
         |spec: &chain::CapitalSpec<'_>, drawn: &[PeerCapital], buffers: &mut chain::Buffers| {
-            chain::wacc_with(spec, drawn, buffers).map_err(|e| chain_error(case, e))
+            (chain::wacc_with(spec, drawn, buffers))
+                .map_err(|e| chain_error(case, in_case_order(e, &order)))
         };
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
 
@@ -59,15 +65,15 @@ pub fn simulate(
     let (waccs, peer_set) = rayon::join(
         || -> Result<Vec<f64>> {
             let mut rng = Rng::seeded(u.seed);
-            let mut drawn = peers.clone();
-            let mut z = vec![0.0; peers.len()];
+            let mut drawn = named.clone();
+            let mut z = vec![0.0; named.len()];
             let mut buffers = chain::Buffers::default();
             let mut waccs = Vec::with_capacity(u.draws as usize);
             let mut progress =
                 crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
             for _ in 0..u.draws {
                 progress.step()?;
-                draw_betas(&mut rng, &factor, &peers, &mut z, &mut drawn);
+                draw_betas(&mut rng, &factor, &named, &mut z, &mut drawn);
                 let mut spec = base;
                 if let Some(range) = u.equity_risk_premium {
                     spec.equity_risk_premium = uniform(&mut rng, range);
@@ -79,7 +85,7 @@ pub fn simulate(
             }
             Ok(waccs)
         },
-        || peer_set_interval(case, &base, &factor, &peers),
+        || peer_set_interval(case, &base, &factor, (&named, &order)),
     );
     let mut waccs = waccs?;
     let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
@@ -110,6 +116,32 @@ pub fn simulate(
         specifications,
         histogram: super::histogram::histogram(&waccs),
     })
+}
+
+/// The peers' positions in the order of their names (ties in the case's order): the order the
+/// draws take them in.
+fn name_order(settings: &crate::case::CaseFile) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..settings.peers.len()).collect();
+    order.sort_by(|&a, &b| settings.peers[a].name.cmp(&settings.peers[b].name));
+    order
+}
+
+/// `matrix` with its rows and columns taken in `order`.
+fn permuted(matrix: &[Vec<f64>], order: &[usize]) -> Vec<Vec<f64>> {
+    (order.iter())
+        .map(|&i| order.iter().map(|&j| matrix[i][j]).collect())
+        .collect()
+}
+
+/// A chain error raised on the peers in [`name_order`], with its peer position in the case's
+/// order again, so that the message names the right peer.
+fn in_case_order(error: chain::ChainError, order: &[usize]) -> chain::ChainError {
+    match error {
+        chain::ChainError::PeerDebtBeta(i, debt, used) => {
+            chain::ChainError::PeerDebtBeta(order[i], debt, used)
+        }
+        other => other,
+    }
 }
 
 /// The mean and the 5th, 25th, 50th, 75th and 95th percentiles of `values` (sorted in place).
@@ -237,7 +269,7 @@ fn peer_set_interval(
     case: &Case,
     base: &chain::CapitalSpec<'_>,
     factor: &Factor,
-    peers: &[PeerCapital],
+    (peers, order): (&[PeerCapital], &[usize]),
 ) -> Result<PeerSetInterval> {
     let u = &case.settings.uncertainty;
     // A seed of its own, so the first interval does not change when this one is added.
@@ -272,7 +304,7 @@ fn peer_set_interval(
         };
         match wacc {
             Ok(wacc) => waccs.push(wacc),
-            Err(e) => return Err(chain_error(case, e)),
+            Err(e) => return Err(chain_error(case, in_case_order(e, order))),
         }
     }
     let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
