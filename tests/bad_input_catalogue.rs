@@ -844,6 +844,19 @@ fn spread_tables() -> Vec<Bad> {
             ],
             [RATING, "{line}", "abc"]
         ),
+        bad!(
+            "spread table separated by semicolons",
+            |s| { s.map_lines(RATING, |_, l| l.replace(',', ";")) },
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating"
+            ],
+            [RATING, "no `rating` column", "separated by semicolons"]
+        ),
         // A decimal comma splits the spread in two cells; it used to be read as a spread of 0.
         bad!(
             "spread with a decimal comma",
@@ -938,7 +951,12 @@ fn spread_tables() -> Vec<Bad> {
                 "--set",
                 "debt.source=rating"
             ],
-            [RATING, "{line}", "{typed}"]
+            [
+                RATING,
+                "{line}",
+                "{typed}",
+                "spreads are decimals over the risk-free rate"
+            ]
         ),
         bad!(
             "rating repeated",

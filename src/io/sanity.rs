@@ -49,6 +49,18 @@ pub fn fewest_fields(header: &[String]) -> usize {
 /// are matched exactly, as written.
 pub fn column_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &str) -> String {
     let names: Vec<&str> = header.into_iter().collect();
+    // One column whose name holds the wanted name and a semicolon or tab: another separator.
+    if let [only] = names.as_slice() {
+        let separator = [(';', "semicolons"), ('\t', "tabs")]
+            .into_iter()
+            .find(|(c, _)| only.contains(*c) && only.contains(name.trim()));
+        if let Some((_, which)) = separator {
+            return format!(
+                "; the header is one column, so the file is separated by {which}: save it \
+                 comma-separated"
+            );
+        }
+    }
     if let Some(padded) = names
         .iter()
         .find(|n| **n != name && n.trim() == name.trim())

@@ -81,8 +81,17 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
             message,
         };
         if !(row.spread.is_finite() && row.spread > -0.5 && row.spread < 1.0) {
+            // A spread written in percent (1.15 for 1.15%) is the usual slip.
+            let hint = match row.spread >= 1.0 && row.spread < 100.0 {
+                true => format!(
+                    ": spreads are decimals over the risk-free rate ({} for {}%)",
+                    crate::error::compact(row.spread / 100.0),
+                    crate::error::compact(row.spread)
+                ),
+                false => String::new(),
+            };
             return Err(row_error(format!(
-                "spread = {} is outside (-0.5, 1)",
+                "spread = {} is outside (-0.5, 1){hint}",
                 row.spread
             )));
         }
