@@ -1716,3 +1716,70 @@ fn verify_passes_over_an_unrelated_case_beside_the_receipt() {
     assert_eq!(verify.status.code(), Some(0), "{report}");
     assert!(report.contains("(case case/case.toml)"), "{report}");
 }
+
+// `--claim FILE` takes the claimed WACC from a claimed build-up (its stated `wacc`), so the
+// answer is the one `--wacc` with that figure gives, to the digit; without a stated WACC, the
+// one its components give (the textbook build-up, checked by the bridge's tests).
+#[test]
+fn implied_reads_the_claimed_wacc_from_a_claim_file() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let claim = case_dir.join("claimed.toml");
+    let stated = std::fs::read_to_string(&claim).unwrap();
+    let wacc_line = stated.lines().find(|l| l.starts_with("wacc")).unwrap();
+    let wacc = wacc_line
+        .split('=')
+        .nth(1)
+        .unwrap()
+        .split('#')
+        .next()
+        .unwrap()
+        .trim();
+    let by_claim = text(&hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--claim",
+        claim.to_str().unwrap(),
+        "--solve",
+        "erp",
+    ]));
+    let by_wacc = text(&hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        wacc,
+        "--solve",
+        "erp",
+    ]));
+    assert_eq!(
+        exact_line(&by_claim, ""),
+        exact_line(&by_wacc, ""),
+        "{by_claim}"
+    );
+    assert!(by_claim.contains("as it states"), "{by_claim}");
+    // Without a stated WACC, its components' WACC is the claim.
+    let unstated = dir.path().join("unstated.toml");
+    std::fs::write(&unstated, stated.replace(wacc_line, "")).unwrap();
+    let side = read_side(&unstated, "unstated.toml").unwrap();
+    let by_components = text(&hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--claim",
+        unstated.to_str().unwrap(),
+        "--solve",
+        "erp",
+    ]));
+    assert!(
+        by_components.contains("from its components"),
+        "{by_components}"
+    );
+    let by_wacc = text(&hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        &side.wacc.to_string(),
+        "--solve",
+        "erp",
+    ]));
+    assert_eq!(exact_line(&by_components, ""), exact_line(&by_wacc, ""));
+}

@@ -1,4 +1,5 @@
-//! `hurdle implied CASE.toml --wacc X --solve TARGET [--range LOW..HIGH] [--set KEY=VALUE]...`
+//! `hurdle implied CASE.toml (--wacc X | --claim FILE) --solve TARGET [--range LOW..HIGH]
+//! [--set KEY=VALUE]...`
 //!
 //! Solves for the value of one input (erp, beta, cost_of_debt, debt_to_equity, risk_free,
 //! size_premium) that reproduces a claimed WACC. Exit 1 when no value in the range does.
@@ -14,12 +15,17 @@ use hurdle::report::format::{fixed, percent};
 use super::CaseArgs;
 
 #[derive(Debug, clap::Args)]
+#[command(group(clap::ArgGroup::new("claimed").required(true).args(["wacc", "claim"])))]
 pub struct Args {
     #[command(flatten)]
     pub case: CaseArgs,
     /// The claimed WACC, as a decimal (0.091 for 9.1%).
     #[arg(long, allow_hyphen_values = true, value_parser = hurdle::valuation::sanity::check_rate_argument)]
-    pub wacc: f64,
+    pub wacc: Option<f64>,
+    /// Take the claimed WACC from a claimed build-up file (its stated `wacc`, else what its
+    /// components give) or from another case file, instead of --wacc.
+    #[arg(long, value_name = "FILE")]
+    pub claim: Option<std::path::PathBuf>,
     /// The input to solve for: erp, beta, cost_of_debt, debt_to_equity, risk_free, size_premium,
     /// or all (each in turn, one table).
     #[arg(long, value_parser = parse_solve)]
@@ -62,7 +68,31 @@ fn parse_range(text: &str) -> Result<(f64, f64), String> {
     Ok((number(low)?, number(high)?))
 }
 
+/// The claimed WACC: `--wacc`, or the one the `--claim` file states (else its components').
+fn claimed_wacc(args: &Args) -> hurdle::Result<f64> {
+    match (&args.claim, args.wacc) {
+        (Some(path), _) => {
+            let side = hurdle::audit::bridge::read_side(path, &path.display().to_string())?;
+            let wacc = side.stated_wacc.unwrap_or(side.wacc);
+            let whose = match side.stated_wacc {
+                Some(_) => "as it states",
+                None => "from its components",
+            };
+            println!(
+                "claim: {} ({}), WACC {} {whose}",
+                side.label,
+                path.display(),
+                percent(wacc, 3)
+            );
+            Ok(wacc)
+        }
+        (None, Some(wacc)) => Ok(wacc),
+        (None, None) => unreachable!("clap requires --wacc or --claim"),
+    }
+}
+
 pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
+    let claimed = claimed_wacc(args)?;
     let inputs = args.case.inputs()?;
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     let base = hurdle::valuation::value_with(&inputs.case, &inputs, &estimates, "")?;
@@ -77,24 +107,21 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
                         .into(),
                 });
             }
-            return Ok(print_all(&inputs, &estimates, &base, args.wacc));
+            return Ok(print_all(&inputs, &estimates, &base, claimed));
         }
     };
     // The library speaks of the search range; here it is the user's `--range`.
-    let r =
-        implied(&inputs, &estimates, &base, target, args.wacc, args.range).map_err(|error| {
-            match error {
-                hurdle::Error::Argument { option, message }
-                    if option.starts_with("search range") =>
-                {
-                    hurdle::Error::Argument {
-                        option: option.replacen("search range", "--range", 1),
-                        message,
-                    }
+    let r = implied(&inputs, &estimates, &base, target, claimed, args.range).map_err(|error| {
+        match error {
+            hurdle::Error::Argument { option, message } if option.starts_with("search range") => {
+                hurdle::Error::Argument {
+                    option: option.replacen("search range", "--range", 1),
+                    message,
                 }
-                other => other,
             }
-        })?;
+            other => other,
+        }
+    })?;
     Ok(print_answer(&r, args.range))
 }
 
