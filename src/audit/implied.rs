@@ -291,16 +291,9 @@ pub fn implied(
         Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
     };
     let scan = solve(&wacc_at, low, high, claimed)?;
-    // A claim the case's own value already meets is answered with that value, not with the
-    // double next to it where the bisection stopped (0.39999999999999813 for 0.4).
-    let value = scan.value.map(|x| {
-        // Within a billionth of the value, or of a rate's unit near zero (a case value of 0).
-        let near = (x - base_value).abs() <= 1e-9 * base_value.abs().max(1e-3);
-        match near && matches!(wacc_at(base_value), Ok(w) if (w - claimed).abs() <= REPRODUCED) {
-            true => base_value,
-            false => x,
-        }
-    });
+    let value = scan
+        .value
+        .map(|x| case_value_if_it_meets(x, base_value, &wacc_at, claimed));
     let achieved_wacc = value.map(wacc_at).transpose()?;
     Ok(Implied {
         target,
@@ -326,6 +319,23 @@ pub fn implied(
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
     })
+}
+
+/// A claim the case's own value already meets is answered with that value, not with the double
+/// next to it where the bisection stopped (0.39999999999999813 for 0.4): `found` when it is not
+/// within a billionth of `base` (or of a rate's unit near zero, for a case value of 0) or
+/// `base` does not reproduce the claim.
+fn case_value_if_it_meets(
+    found: f64,
+    base: f64,
+    wacc_at: &dyn Fn(f64) -> Result<f64>,
+    claimed: f64,
+) -> f64 {
+    let near = (found - base).abs() <= 1e-9 * base.abs().max(1e-3);
+    match near && matches!(wacc_at(base), Ok(w) if (w - claimed).abs() <= REPRODUCED) {
+        true => base,
+        false => found,
+    }
 }
 
 /// The case key `target` varies (`target.debt_to_capital` for a case that gives its target

@@ -48,12 +48,7 @@ pub fn simulate(
         BetaErrors::Correlated => beta_error_correlation(estimates),
         BetaErrors::Independent => identity(peers.len()),
     };
-    // The draws take the peers in the order of their names, not of the case file, so that a
-    // case listing the same peers in another order draws the same intervals (found by review:
-    // the seeded normals went to other peers). The records stay in the case's order.
-    let order = name_order(settings);
-    let named: Vec<PeerCapital> = order.iter().map(|&i| peers[i]).collect();
-    let factor = covariance_factor(&permuted(&correlation, &order), &named);
+    let (order, named, factor) = in_name_order(settings, &peers, &correlation);
     let wacc_of =
         |spec: &chain::CapitalSpec<'_>, drawn: &[PeerCapital], buffers: &mut chain::Buffers| {
             (chain::wacc_with(spec, drawn, buffers))
@@ -116,6 +111,21 @@ pub fn simulate(
         specifications,
         histogram: super::histogram::histogram(&waccs),
     })
+}
+
+/// The draws take the peers in the order of their names, not of the case file, so that a case
+/// listing the same peers in another order draws the same intervals (found by review: the
+/// seeded normals went to other peers); the records stay in the case's order. Returns that
+/// order ([`name_order`]), the peers in it and the covariance factor of their beta errors.
+fn in_name_order(
+    settings: &crate::case::CaseFile,
+    peers: &[PeerCapital],
+    correlation: &[Vec<f64>],
+) -> (Vec<usize>, Vec<PeerCapital>, Factor) {
+    let order = name_order(settings);
+    let named: Vec<PeerCapital> = order.iter().map(|&i| peers[i]).collect();
+    let factor = covariance_factor(&permuted(correlation, &order), &named);
+    (order, named, factor)
 }
 
 /// The peers' positions in the order of their names (ties in the case's order): the order the

@@ -9,6 +9,7 @@
 //! and the setting it describes is compared as a value of its own.
 
 mod compare;
+mod files;
 
 use std::path::{Path, PathBuf};
 
@@ -20,6 +21,8 @@ use crate::error::{Error, Result};
 use crate::valuation::{load_inputs, SCHEMA_VERSION};
 pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
+use files::file_checks;
+pub use files::FileCheck;
 
 /// Relative tolerance for numbers. Reruns on one build are bit-identical; 1e-12 leaves room for
 /// another platform's `powf` and `ln` (used in the risk-free conversion), which may differ in
@@ -32,23 +35,6 @@ pub const NOT_COMPARED: &str = "memo.md, figures/*.svg, report.html, peers.csv, 
 and returns.csv are not compared: they are drawn from the figures of result.json, which are \
 (the returns from the price files, whose hashes are); a rerun with hurdle run writes them anew \
 for a comparison by eye";
-
-/// The state of one input file.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct FileCheck {
-    pub role: String,
-    /// The path the receipt records (the rerun's for a file the receipt does not have).
-    pub path: String,
-    /// The path the rerun read, when it differs from `path` (a renamed or moved file).
-    pub current_path: Option<String>,
-    /// `null` for a file the receipt does not have.
-    pub recorded_sha256: Option<String>,
-    /// `null` for a file the case no longer reads.
-    pub current_sha256: Option<String>,
-    /// `unchanged`, `changed`, `dropped` (no longer read) or `added` (new since the receipt).
-    pub status: &'static str,
-    pub unchanged: bool,
-}
 
 /// Paths of figures drawn only for the charts (each fitted line's points, the histogram's
 /// bins, the waterfall's bars, the rows the residual chart marks): they move with the
@@ -79,64 +65,6 @@ impl Mismatch {
     /// Whether the figure is drawn only for a chart ([`CHART_FIGURES`]).
     pub fn is_chart_figure(&self) -> bool {
         CHART_FIGURES.iter().any(|part| self.path.contains(part))
-    }
-}
-
-impl FileCheck {
-    /// The check of one role from what the receipt records and what the rerun read, each a
-    /// (path, SHA-256) when present.
-    pub fn new(
-        role: String,
-        recorded: Option<(String, String)>,
-        current: Option<(String, String)>,
-    ) -> FileCheck {
-        let status = match (&recorded, &current) {
-            (Some((_, was)), Some((_, now))) if was == now => "unchanged",
-            (Some(_), Some(_)) => "changed",
-            (Some(_), None) => "dropped",
-            (None, _) => "added",
-        };
-        let (recorded_path, recorded_sha256) = recorded.unzip();
-        let (current_path, current_sha256) = current.unzip();
-        let path = recorded_path
-            .clone()
-            .or(current_path.clone())
-            .unwrap_or_default();
-        FileCheck {
-            role,
-            current_path: current_path.filter(|now| recorded_path.is_some_and(|was| was != *now)),
-            path,
-            recorded_sha256,
-            current_sha256,
-            status,
-            unchanged: status == "unchanged",
-        }
-    }
-
-    /// The check in words: `unchanged`, `CHANGED (recorded …, now …)`, `no longer read
-    /// (recorded …)`, `NEW since the receipt (now …)`, with the new path of a moved file.
-    pub fn describe(&self) -> String {
-        let short = |hash: &Option<String>| hash.clone().unwrap_or_default();
-        let state = match self.status {
-            "unchanged" => "unchanged".to_string(),
-            "changed" => format!(
-                "CHANGED (recorded {}, now {})",
-                short(&self.recorded_sha256),
-                short(&self.current_sha256)
-            ),
-            "dropped" => format!(
-                "NO LONGER READ by the case (recorded {})",
-                short(&self.recorded_sha256)
-            ),
-            _ => format!(
-                "NEW since the receipt (now {})",
-                short(&self.current_sha256)
-            ),
-        };
-        match &self.current_path {
-            Some(now) => format!("{state}; read now from {now}"),
-            None => state,
-        }
     }
 }
 
@@ -402,6 +330,20 @@ fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
     ))
 }
 
+/// The receipt's JSON: a byte-order mark before it dropped (some editors write one), a case or
+/// table given instead named ([`not_a_receipt`]), and a key named twice in an object refused
+/// (readers disagree on which value counts).
+fn parse_receipt(receipt: &str) -> std::result::Result<Value, String> {
+    let receipt = receipt.strip_prefix('\u{feff}').unwrap_or(receipt);
+    not_a_receipt(receipt)?;
+    super::receipt::parse(receipt).map_err(|e| match e.is_data() {
+        true => {
+            format!("{e}: a receipt names each key once, so that every reader sees the same figure")
+        }
+        false => format!("not JSON: {e}; verify reads the result.json a run or a universe wrote"),
+    })
+}
+
 /// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
 /// where the case file is looked for.
 pub fn verify(
@@ -414,20 +356,7 @@ pub fn verify(
         file: receipt_path.to_path_buf(),
         message,
     };
-    // A byte-order mark, which some editors write before JSON, is not part of the document.
-    let receipt = receipt.strip_prefix('\u{feff}').unwrap_or(receipt);
-    if let Err(what) = not_a_receipt(receipt) {
-        return Err(fail(what));
-    }
-    let recorded: Value = super::receipt::parse(receipt).map_err(|e| match e.is_data() {
-        // A repeated key: readers disagree on which value counts, so the receipt is refused.
-        true => fail(format!(
-            "{e}: a receipt names each key once, so that every reader sees the same figure"
-        )),
-        false => fail(format!(
-            "not JSON: {e}; verify reads the result.json a run or a universe wrote"
-        )),
-    })?;
+    let recorded = parse_receipt(receipt).map_err(fail)?;
     if recorded["kind"] == "universe" {
         return super::verify_universe::verify_universe(
             receipt_path,
@@ -613,81 +542,6 @@ pub(super) fn locate_case(
         });
     }
     Ok(found)
-}
-
-/// Each input file the receipt records, with its recorded and current SHA-256: the data files,
-/// then the spread table the cost of debt was read from and the claimed build-up the case
-/// reconciles to, when the receipt has them.
-fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation) -> Vec<FileCheck> {
-    let mut current: Vec<(String, (String, String))> = rerun
-        .files
-        .iter()
-        .map(|f| (f.role.clone(), (f.path.clone(), f.sha256.clone())))
-        .collect();
-    let mut listed: Vec<(String, &Value)> = recorded["files"]
-        .as_array()
-        .map(|list| {
-            let role = |f: &Value| f["role"].as_str().unwrap_or("").to_string();
-            list.iter().map(|f| (role(f), f)).collect()
-        })
-        .unwrap_or_default();
-    const SPREAD_TABLE: &str = "spread table";
-    const CLAIMED: &str = "claimed build-up";
-    if let Some(table) = &rerun.cost.cost_of_debt.table {
-        current.push((
-            SPREAD_TABLE.into(),
-            (table.path.clone(), table.sha256.clone()),
-        ));
-    }
-    if let Some(bridge) = &rerun.reconciliation {
-        current.push((
-            CLAIMED.into(),
-            (bridge.to.source.clone(), bridge.to.sha256.clone()),
-        ));
-    }
-    // The path under `path`, the hash under `sha256` (a claimed file names its path `source`).
-    let table = &recorded["cost_of_debt"]["table"];
-    if table.is_object() {
-        listed.push((SPREAD_TABLE.into(), table));
-    }
-    let claimed = &recorded["reconciliation"]["to"];
-    if claimed.is_object() {
-        listed.push((CLAIMED.into(), claimed));
-    }
-    let now = |role: &str| {
-        current
-            .iter()
-            .find(|(r, _)| r == role)
-            .map(|(_, f)| f.clone())
-    };
-    let mut checks: Vec<FileCheck> = (listed.iter())
-        .map(|(role, f)| {
-            let sha256 = f["sha256"].as_str().unwrap_or("").to_string();
-            let path = f["path"].as_str().or(f["source"].as_str()).unwrap_or("");
-            FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role))
-        })
-        .collect();
-    // Files the case reads now that the receipt does not have (a peer added since), unless
-    // they are the bytes of a file no longer read under its role (a peer renamed): one check.
-    for (role, file) in &current {
-        if listed.iter().any(|(r, _)| r == role) {
-            continue;
-        }
-        let renamed = (checks.iter_mut())
-            .find(|c| c.status == "dropped" && c.recorded_sha256.as_deref() == Some(&file.1));
-        match renamed {
-            Some(check) => {
-                let was = (check.path.clone(), file.1.clone());
-                *check = FileCheck::new(
-                    format!("{role} (was {})", check.role),
-                    Some(was),
-                    Some(file.clone()),
-                );
-            }
-            None => checks.push(FileCheck::new(role.clone(), None, Some(file.clone()))),
-        }
-    }
-    checks
 }
 
 #[cfg(test)]

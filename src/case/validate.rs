@@ -36,21 +36,15 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
     if 4 * (lags + leads) >= lookback {
         // Scholes–Williams always takes one lag and one lead; only Dimson's are keys to lower.
         let columns = match beta.method {
-            BetaMethod::ScholesWilliams => {
-                "beta.method = \"scholes-williams\" uses one lagged and one led market return \
-                 (2 shifted columns), which is at least"
-                    .to_string()
-            }
-            _ => format!(
-                "beta.dimson_lags + beta.dimson_leads = {} is at least",
-                lags + leads
-            ),
+            BetaMethod::ScholesWilliams => "beta.method = \"scholes-williams\" uses one lagged \
+                 and one led market return (2 shifted columns), which"
+                .to_string(),
+            _ => format!("beta.dimson_lags + beta.dimson_leads = {}", lags + leads),
         };
+        let quarter = f64::from(lookback) / 4.0;
         return Err(format!(
-            "{columns} a quarter of the window's {} periods ({}): too many shifted market \
-             columns; lengthen the window",
-            lookback,
-            f64::from(lookback) / 4.0
+            "{columns} is at least a quarter of the window's {lookback} periods ({quarter}): \
+             too many shifted market columns; lengthen the window"
         ));
     }
     if beta.method == BetaMethod::Dimson && lags + leads == 0 {

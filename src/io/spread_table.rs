@@ -80,21 +80,7 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
             line: row.line,
             message,
         };
-        if !(row.spread.is_finite() && row.spread > -0.5 && row.spread < 1.0) {
-            // A spread written in percent (1.15 for 1.15%) is the usual slip.
-            let hint = match row.spread >= 1.0 && row.spread < 100.0 {
-                true => format!(
-                    ": spreads are decimals over the risk-free rate ({} for {}%)",
-                    crate::error::compact(row.spread / 100.0),
-                    crate::error::compact(row.spread)
-                ),
-                false => String::new(),
-            };
-            return Err(row_error(format!(
-                "spread = {} is outside (-0.5, 1){hint}",
-                row.spread
-            )));
-        }
+        check_spread(row.spread).map_err(row_error)?;
         if coverage {
             let Some(low) = row.min_coverage else {
                 return Err(row_error("min_coverage is missing".into()));
@@ -252,4 +238,21 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
             })
         })
         .collect()
+}
+
+/// A spread in (−0.5, 1); one written in percent (1.15 for 1.15%), the usual slip, gets the
+/// decimals hint.
+fn check_spread(spread: f64) -> std::result::Result<(), String> {
+    if spread.is_finite() && spread > -0.5 && spread < 1.0 {
+        return Ok(());
+    }
+    let hint = match (1.0..100.0).contains(&spread) {
+        true => format!(
+            ": spreads are decimals over the risk-free rate ({} for {}%)",
+            crate::error::compact(spread / 100.0),
+            crate::error::compact(spread)
+        ),
+        false => String::new(),
+    };
+    Err(format!("spread = {spread} is outside (-0.5, 1){hint}"))
 }

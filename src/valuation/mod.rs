@@ -9,6 +9,7 @@
 pub mod analyses;
 mod build;
 pub mod listing;
+mod notes;
 pub mod records;
 pub mod sanity;
 

@@ -1,0 +1,156 @@
+//! The file checks of a verification: each input file the receipt records against the one the
+//! rerun read, as unchanged, changed, no longer read or new since the receipt (a renamed
+//! peer's file paired), with the path it is read from now when that moved.
+
+use serde::Serialize;
+use serde_json::Value;
+
+/// The state of one input file.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FileCheck {
+    pub role: String,
+    /// The path the receipt records (the rerun's for a file the receipt does not have).
+    pub path: String,
+    /// The path the rerun read, when it differs from `path` (a renamed or moved file).
+    pub current_path: Option<String>,
+    /// `null` for a file the receipt does not have.
+    pub recorded_sha256: Option<String>,
+    /// `null` for a file the case no longer reads.
+    pub current_sha256: Option<String>,
+    /// `unchanged`, `changed`, `dropped` (no longer read) or `added` (new since the receipt).
+    pub status: &'static str,
+    pub unchanged: bool,
+}
+
+impl FileCheck {
+    /// The check of one role from what the receipt records and what the rerun read, each a
+    /// (path, SHA-256) when present.
+    pub fn new(
+        role: String,
+        recorded: Option<(String, String)>,
+        current: Option<(String, String)>,
+    ) -> FileCheck {
+        let status = match (&recorded, &current) {
+            (Some((_, was)), Some((_, now))) if was == now => "unchanged",
+            (Some(_), Some(_)) => "changed",
+            (Some(_), None) => "dropped",
+            (None, _) => "added",
+        };
+        let (recorded_path, recorded_sha256) = recorded.unzip();
+        let (current_path, current_sha256) = current.unzip();
+        let path = recorded_path
+            .clone()
+            .or(current_path.clone())
+            .unwrap_or_default();
+        FileCheck {
+            role,
+            current_path: current_path.filter(|now| recorded_path.is_some_and(|was| was != *now)),
+            path,
+            recorded_sha256,
+            current_sha256,
+            status,
+            unchanged: status == "unchanged",
+        }
+    }
+
+    /// The check in words: `unchanged`, `CHANGED (recorded …, now …)`, `no longer read
+    /// (recorded …)`, `NEW since the receipt (now …)`, with the new path of a moved file.
+    pub fn describe(&self) -> String {
+        let short = |hash: &Option<String>| hash.clone().unwrap_or_default();
+        let state = match self.status {
+            "unchanged" => "unchanged".to_string(),
+            "changed" => format!(
+                "CHANGED (recorded {}, now {})",
+                short(&self.recorded_sha256),
+                short(&self.current_sha256)
+            ),
+            "dropped" => format!(
+                "NO LONGER READ by the case (recorded {})",
+                short(&self.recorded_sha256)
+            ),
+            _ => format!(
+                "NEW since the receipt (now {})",
+                short(&self.current_sha256)
+            ),
+        };
+        match &self.current_path {
+            Some(now) => format!("{state}; read now from {now}"),
+            None => state,
+        }
+    }
+}
+
+/// Each input file the receipt records, with its recorded and current SHA-256: the data files,
+/// then the spread table the cost of debt was read from and the claimed build-up the case
+/// reconciles to, when the receipt has them.
+pub(super) fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation) -> Vec<FileCheck> {
+    let mut current: Vec<(String, (String, String))> = rerun
+        .files
+        .iter()
+        .map(|f| (f.role.clone(), (f.path.clone(), f.sha256.clone())))
+        .collect();
+    let mut listed: Vec<(String, &Value)> = recorded["files"]
+        .as_array()
+        .map(|list| {
+            let role = |f: &Value| f["role"].as_str().unwrap_or("").to_string();
+            list.iter().map(|f| (role(f), f)).collect()
+        })
+        .unwrap_or_default();
+    const SPREAD_TABLE: &str = "spread table";
+    const CLAIMED: &str = "claimed build-up";
+    if let Some(table) = &rerun.cost.cost_of_debt.table {
+        current.push((
+            SPREAD_TABLE.into(),
+            (table.path.clone(), table.sha256.clone()),
+        ));
+    }
+    if let Some(bridge) = &rerun.reconciliation {
+        current.push((
+            CLAIMED.into(),
+            (bridge.to.source.clone(), bridge.to.sha256.clone()),
+        ));
+    }
+    // The path under `path`, the hash under `sha256` (a claimed file names its path `source`).
+    let table = &recorded["cost_of_debt"]["table"];
+    if table.is_object() {
+        listed.push((SPREAD_TABLE.into(), table));
+    }
+    let claimed = &recorded["reconciliation"]["to"];
+    if claimed.is_object() {
+        listed.push((CLAIMED.into(), claimed));
+    }
+    let now = |role: &str| {
+        current
+            .iter()
+            .find(|(r, _)| r == role)
+            .map(|(_, f)| f.clone())
+    };
+    let mut checks: Vec<FileCheck> = (listed.iter())
+        .map(|(role, f)| {
+            let sha256 = f["sha256"].as_str().unwrap_or("").to_string();
+            let path = f["path"].as_str().or(f["source"].as_str()).unwrap_or("");
+            FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role))
+        })
+        .collect();
+    // Files the case reads now that the receipt does not have (a peer added since), unless
+    // they are the bytes of a file no longer read under its role (a peer renamed): one check.
+    for (role, file) in &current {
+        if listed.iter().any(|(r, _)| r == role) {
+            continue;
+        }
+        let renamed = (checks.iter_mut())
+            .find(|c| c.status == "dropped" && c.recorded_sha256.as_deref() == Some(&file.1));
+        match renamed {
+            Some(check) => {
+                let was = (check.path.clone(), file.1.clone());
+                *check = FileCheck::new(
+                    format!("{role} (was {})", check.role),
+                    Some(was),
+                    Some(file.clone()),
+                );
+            }
+            None => checks.push(FileCheck::new(role.clone(), None, Some(file.clone()))),
+        }
+    }
+    checks
+}

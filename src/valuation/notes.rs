@@ -1,0 +1,262 @@
+//! The notes a run writes on the capital side, for the reviewer: excluded peers, settings the
+//! case gives but does not use, an explicit target without a basis, and "Check:" notes on
+//! figures outside their usual bounds or order, which the memo's cautions repeat.
+
+use crate::capital::chain::Chain;
+use crate::capital::leverage::Formula;
+use crate::case::{CaseFile, DebtBetaSource, DebtSource, TargetSource};
+
+use super::records::{CostOfCapital, PeerResult};
+
+/// Notes on the capital side: excluded peers and keys the case gives but does not use.
+pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<String> {
+    let mut notes = Vec::new();
+    for (peer, reason) in settings.peers.iter().zip(exclusions) {
+        if let Some(reason) = reason {
+            notes.push(format!(
+                "{} is estimated and shown but left out of the aggregation: {reason}",
+                peer.name
+            ));
+        }
+    }
+    if settings.debt.source != DebtSource::Given && settings.debt.cost_pre_tax.is_some() {
+        notes.push(format!(
+            "debt.cost_pre_tax is not used: the cost of debt comes from the {} table.",
+            if settings.debt.source == DebtSource::Rating {
+                "rating"
+            } else {
+                "coverage"
+            }
+        ));
+    }
+    if settings.target.source != TargetSource::Explicit
+        && (settings.target.debt_to_equity.is_some() || settings.target.debt_to_capital.is_some())
+    {
+        notes.push(format!(
+            "target.source = {}: the target ratio written in [target] is not used.",
+            match settings.target.source {
+                TargetSource::PeerMedian => "peer-median",
+                _ => "subject",
+            }
+        ));
+    }
+    notes.extend(unused_cost_notes(settings));
+    for peer in settings.peers.iter().filter(|p| p.tax_rate > 0.5) {
+        notes.push(format!(
+            "Check: the tax rate of {} is {}%, above any usual corporate rate: check the \
+             figure.",
+            peer.name,
+            crate::error::rounded(peer.tax_rate * 100.0, 2)
+        ));
+    }
+    // Peers' equity values a factor of 10,000 apart: most often one given in units and the
+    // others in millions (a judgement; peer sets rarely span so far in size).
+    let equity = settings.peers.iter().map(|p| p.equity_value);
+    let (least, most) = equity.fold((f64::INFINITY, 0.0_f64), |(l, m), e| (l.min(e), m.max(e)));
+    if most > 10_000.0 * least {
+        notes.push(format!(
+            "Check: the peers' equity values run from {least} to {most}, a factor of more than \
+             10,000: are they all in the same units (millions, say)? Each D/E and the \
+             market-cap weights read them as given."
+        ));
+    }
+    if settings.leverage.formula == Formula::Hamada
+        && settings.leverage.debt_beta_source != DebtBetaSource::None
+    {
+        notes.push(
+            "Hamada (1972) assumes riskless debt, so the debt betas are not used in the \
+             figures; Conine (1980) is Hamada with a debt beta (see the formula comparison)."
+                .to_string(),
+        );
+    }
+    notes
+}
+
+/// An explicit target structure given without a basis (`target.justification`), set beside
+/// the aggregated peers' median D/E and the subject's own, which a reviewer compares it with.
+pub(super) fn target_note(settings: &CaseFile, chain: &Chain) -> Option<String> {
+    if settings.target.source != TargetSource::Explicit || !settings.target.justification.is_empty()
+    {
+        return None;
+    }
+    let ratio = |x: f64| crate::error::rounded(x, 3);
+    let own = settings
+        .subject_debt_to_equity()
+        .map(|de| format!(" and the subject's own, {}", ratio(de)))
+        .unwrap_or_default();
+    Some(format!(
+        "The target D/E of {} has no stated basis (target.justification): the aggregated peers' \
+         median is {}{own}; say why the structure expected over the cash flows' horizon is this \
+         one.",
+        ratio(chain.target_debt_to_equity),
+        ratio(chain.peer_median_debt_to_equity)
+    ))
+}
+
+/// Preferred or lease costs given with a weight of 0: the WACC gives them no weight, unless a
+/// sensitivity axis moves that weight (then the grid's cells use the cost).
+fn unused_cost_notes(settings: &CaseFile) -> Vec<String> {
+    let mut notes = Vec::new();
+    let costs_without_weight = [
+        (
+            "preferred",
+            settings.preferred.weight,
+            settings.preferred.cost,
+            "cost",
+        ),
+        (
+            "leases",
+            settings.leases.weight,
+            settings.leases.cost_pre_tax,
+            "cost_pre_tax",
+        ),
+    ];
+    // A sensitivity axis over the weight gives the cost weight in the grid's cells.
+    let axes = [&settings.sensitivity.rows, &settings.sensitivity.columns];
+    let on_an_axis = |section: &str| {
+        let weight = format!("{section}.weight");
+        axes.iter().any(|axis| {
+            axis.as_deref()
+                .is_some_and(|a| a.trim_start().starts_with(&weight))
+        })
+    };
+    for (section, _, cost, key) in costs_without_weight.iter().filter(|c| c.1 == 0.0) {
+        if let Some(cost) = cost.filter(|_| !on_an_axis(section)) {
+            notes.push(format!(
+                "{section}.{key} = {cost} is not used: {section}.weight is 0, so the WACC gives \
+                 it no weight."
+            ));
+        }
+    }
+    notes
+}
+
+/// Notes on figures far outside what a discount rate's parts usually are: the range checks take
+/// any rate below 1, so a percentage typed for a decimal below 1 (0.5 for a 0.5% size premium)
+/// goes through as 50%. The bounds are generous judgements, not rules of any standard: they
+/// flag, they do not refuse.
+pub(super) fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
+    use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
+    // Written as the memo writes a rate, rounded as everywhere else.
+    let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
+    let checks = [
+        (
+            cost.risk_free_rate > USUAL_MAX_RISK_FREE,
+            "the risk-free rate is",
+            cost.risk_free_rate,
+        ),
+        (
+            cost.equity_risk_premium > USUAL_MAX_PREMIUM,
+            "the equity risk premium is",
+            cost.equity_risk_premium,
+        ),
+        (
+            cost.premiums.total > USUAL_MAX_PREMIUM,
+            "the additional equity premiums sum to",
+            cost.premiums.total,
+        ),
+        (
+            cost.cost_of_debt_pre_tax > USUAL_MAX_COST,
+            "the pre-tax cost of debt is",
+            cost.cost_of_debt_pre_tax,
+        ),
+        (cost.wacc > USUAL_MAX_COST, "the WACC is", cost.wacc),
+    ];
+    let mut notes: Vec<String> = checks
+        .iter()
+        .filter(|(far, ..)| *far)
+        .map(|(_, what, x)| {
+            format!(
+                "Check: {what} {}, far above what such a figure usually is; rates are \
+                 decimals (0.055 is 5.5%), so a percentage typed for one reads 100 times too \
+                 large.",
+                percent(*x)
+            )
+        })
+        .collect();
+    notes.extend(out_of_order_notes(cost));
+    notes
+}
+
+/// Notes on figures out of their usual order: an ERP or a WACC not above zero, a cost of equity
+/// or of debt below the risk-free rate, a cost of debt above the cost of equity, and a tax rate
+/// above one half.
+fn out_of_order_notes(cost: &CostOfCapital) -> Vec<String> {
+    let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
+    let mut notes = Vec::new();
+    let below = |what: &str, x: f64, why: &str| format!("Check: {what}, {}, {why}", percent(x));
+    if cost.equity_risk_premium <= 0.0 {
+        notes.push(below(
+            "the equity risk premium",
+            cost.equity_risk_premium,
+            "is not above zero: equities would be expected to earn no more than the riskless \
+             asset.",
+        ));
+    }
+    if cost.cost_of_equity < cost.risk_free_rate {
+        notes.push(format!(
+            "Check: the cost of equity, {}, is below the risk-free rate, {}: an equity investor \
+             would accept less than the riskless rate (a negative premium or beta).",
+            percent(cost.cost_of_equity),
+            percent(cost.risk_free_rate)
+        ));
+    }
+    if cost.cost_of_debt_pre_tax < cost.risk_free_rate {
+        notes.push(format!(
+            "Check: the pre-tax cost of debt, {}, is below the risk-free rate, {}: no lender \
+             takes less than the riskless rate of the same currency and term; look at the spread \
+             or the given yield.",
+            percent(cost.cost_of_debt_pre_tax),
+            percent(cost.risk_free_rate)
+        ));
+    }
+    // Statutory corporate rates lie well below one half (a fact of the trade, common practice);
+    // a rate above it is most often a typing slip.
+    if cost.target.tax_rate > 0.5 {
+        notes.push(format!(
+            "Check: the target tax rate is {}, above any usual corporate rate: check the \
+             figure.",
+            percent(cost.target.tax_rate)
+        ));
+    }
+    if cost.wacc <= 0.0 {
+        notes.push(below(
+            "the WACC",
+            cost.wacc,
+            "is not above zero: it cannot serve as a discount rate.",
+        ));
+    }
+    if cost.cost_of_debt_pre_tax > cost.cost_of_equity {
+        notes.push(format!(
+            "Check: the pre-tax cost of debt, {}, is above the cost of equity, {}: debt ranks \
+             ahead of equity and should cost less; look at the spread or the rates.",
+            percent(cost.cost_of_debt_pre_tax),
+            percent(cost.cost_of_equity)
+        ));
+    }
+    notes
+}
+
+/// A peer whose net cash leaves the unlevering denominator 1 + s·D/E near zero: its unlevered
+/// beta is then a multiple of its equity beta that says nothing about its operations (three
+/// times, hurdle's judgement: net cash of about two thirds of the equity value at a 0% tax).
+pub(super) fn net_cash_note(peer: &PeerResult) -> Option<String> {
+    let (levered, unlevered) = (peer.beta_used, peer.unlevered_beta);
+    let aggregated = peer.excluded_reason.is_none();
+    let blown_up = peer.debt_to_equity < 0.0 && unlevered.abs() > 3.0 * levered.abs();
+    (aggregated && blown_up).then(|| {
+        format!(
+            "Check: {} has a net D/E of {}, which makes its unlevered beta {} against an equity \
+             beta of {}: net cash near the equity value leaves the formula's denominator near \
+             zero; consider leverage.debt_measure = \"gross\" or leaving the peer out.",
+            peer.name,
+            // Three decimals as every D/E, more where three would read as −1.
+            match (peer.debt_to_equity + 1.0).abs() < 0.0005 {
+                true => crate::error::rounded(peer.debt_to_equity, 6),
+                false => crate::error::rounded(peer.debt_to_equity, 3),
+            },
+            crate::error::rounded(unlevered, 3),
+            crate::error::rounded(levered, 3)
+        )
+    })
+}
