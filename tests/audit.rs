@@ -595,16 +595,7 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
     let fenhallow = std::fs::read_to_string(case_dir.join("data/peers/fenhallow.csv")).unwrap();
     // Another peer's prices shifted by a constant factor (the same returns, so the same beta),
     // so that the new peer is no copy of an existing file.
-    let shifted: String = fenhallow
-        .lines()
-        .enumerate()
-        .map(|(i, line)| match (i, line.split_once(',')) {
-            (0, _) | (_, None) => format!("{line}\n"),
-            (_, Some((date, price))) => {
-                format!("{date},{}\n", price.parse::<f64>().unwrap() * 2.0)
-            }
-        })
-        .collect();
+    let shifted = common::scaled_prices(&fenhallow, 2.0);
     std::fs::write(case_dir.join("data/peers/fenhallow_copy.csv"), shifted).unwrap();
     std::fs::write(&case, added).unwrap();
     let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));

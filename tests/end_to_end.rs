@@ -288,16 +288,7 @@ fn a_copy_of_the_index_the_case_excludes_is_listed_not_refused() {
     let case_dir = dir.path().join("case");
     common::copy_demo_case(&case_dir);
     let index = std::fs::read_to_string(case_dir.join("data/index.csv")).unwrap();
-    let scaled: String = index
-        .lines()
-        .enumerate()
-        .map(|(i, line)| match (i, line.split_once(',')) {
-            (0, _) | (_, None) => format!("{line}\n"),
-            (_, Some((date, price))) => {
-                format!("{date},{}\n", price.parse::<f64>().unwrap() / 20.0)
-            }
-        })
-        .collect();
+    let scaled = common::scaled_prices(&index, 1.0 / 20.0);
     std::fs::write(case_dir.join("data/peers/corrowick.csv"), scaled).unwrap();
     let case = case_dir.join("case.toml");
     let out = dir.path().join("out");

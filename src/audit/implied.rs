@@ -246,18 +246,7 @@ pub fn implied(
     claimed: f64,
     range: Option<(f64, f64)>,
 ) -> Result<Implied> {
-    let (low, high) = range.unwrap_or_else(|| target.default_range());
-    // Every default range passes, so a failing range is the user's; the command line names it.
-    if !(low.is_finite() && high.is_finite() && low < high) {
-        return Err(Error::Argument {
-            option: format!(
-                "search range {}..{}",
-                crate::error::compact(low),
-                crate::error::compact(high)
-            ),
-            message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
-        });
-    }
+    let (low, high) = search_range(range, target)?;
     refuse_unsolvable(inputs, target)?;
     let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
@@ -318,6 +307,23 @@ pub fn implied(
         unlevered_equivalent: value
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
+    })
+}
+
+/// The range to search: the given one, else the target's default. Every default range passes,
+/// so a failing range is the user's; the command line names it.
+fn search_range(range: Option<(f64, f64)>, target: Target) -> Result<(f64, f64)> {
+    let (low, high) = range.unwrap_or_else(|| target.default_range());
+    if low.is_finite() && high.is_finite() && low < high {
+        return Ok((low, high));
+    }
+    Err(Error::Argument {
+        option: format!(
+            "search range {}..{}",
+            crate::error::compact(low),
+            crate::error::compact(high)
+        ),
+        message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
     })
 }
 

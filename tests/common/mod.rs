@@ -62,6 +62,21 @@ pub fn copy_wide_case(to: &Path) {
     copy_tree(Path::new(WIDE_DIR), to, true);
 }
 
+/// A `date,price` file's text with every price multiplied by `factor` (the header and any line
+/// without a comma as they are): the same returns, so the same beta, from other bytes.
+#[allow(dead_code)]
+pub fn scaled_prices(text: &str, factor: f64) -> String {
+    text.lines()
+        .enumerate()
+        .map(|(i, line)| match (i, line.split_once(',')) {
+            (0, _) | (_, None) => format!("{line}\n"),
+            (_, Some((date, price))) => {
+                format!("{date},{}\n", price.parse::<f64>().unwrap() * factor)
+            }
+        })
+        .collect()
+}
+
 /// Copies the demo case folder into `to`, without any previous run's `output/`.
 #[allow(dead_code)]
 pub fn copy_demo_case(to: &Path) {
