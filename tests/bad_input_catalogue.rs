@@ -2318,6 +2318,32 @@ fn command_arguments() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "run: a case's receipt given as the case",
+            |s| s.write(
+                "result.json",
+                "{\"schema_version\": 2, \"case\": {\"file\": \"deals/q3/case.toml\"}}"
+            ),
+            ["run", "{dir}/result.json"],
+            [
+                "result.json",
+                "the receipt (result.json) of the case file `deals/q3/case.toml`",
+                "hurdle verify"
+            ]
+        ),
+        bad!(
+            "betas: a universe's receipt given as the case",
+            |s| s.write(
+                "result.json",
+                "{\"kind\": \"universe\", \"universe\": {\"file\": \"market.toml\"}}"
+            ),
+            ["betas", "{dir}/result.json"],
+            [
+                "result.json",
+                "the receipt (result.json) of the universe file `market.toml`",
+                "hurdle universe"
+            ]
+        ),
+        bad!(
             "verify: receipt of another program",
             |s| s.write("r.json", "{\"wacc\": 0.09}"),
             ["verify", "{dir}/r.json"],

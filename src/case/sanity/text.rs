@@ -231,6 +231,35 @@ pub fn case_or_universe(text: &str, universe: bool) -> std::result::Result<(), S
     }
 }
 
+/// The message for a JSON document given where a case or a claim belongs: a receipt names the
+/// file it records (`case.file`, or `universe.file` for a universe's receipt), so the message
+/// can say which file to run.
+fn json_given(text: &str) -> String {
+    let recorded = serde_json::from_str::<serde_json::Value>(text.trim_start_matches('\u{feff}'))
+        .ok()
+        .and_then(|value| {
+            ["case", "universe"].into_iter().find_map(|section| {
+                let file = value[section]["file"].as_str()?;
+                Some((section, file.to_string()))
+            })
+        });
+    match recorded {
+        Some(("universe", file)) => format!(
+            "this is the receipt (result.json) of the universe file `{file}`, not a case or \
+             claim: run that file with `hurdle universe`, or rerun the receipt with `hurdle \
+             verify`"
+        ),
+        Some((_, file)) => format!(
+            "this is the receipt (result.json) of the case file `{file}`, not a case or claim: \
+             run that case, or rerun the receipt with `hurdle verify`"
+        ),
+        None => "this is a JSON file (a result.json receipt?), not a case or claim: a receipt \
+                 is rerun by `hurdle verify RECEIPT.json`, and a case is the TOML file it names \
+                 (README, Case file reference)"
+            .into(),
+    }
+}
+
 /// An empty file, a JSON document (a receipt), or a CSV table (a header of comma-separated
 /// names and no `key = value` line), given where a case or a claimed build-up belongs.
 pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
@@ -246,12 +275,7 @@ pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
     };
     // A receipt or another JSON document opens with a brace (a BOM before it aside).
     if first.trim_start_matches('\u{feff}').starts_with('{') {
-        return Err(
-            "this is a JSON file (a result.json receipt?), not a case or claim: a receipt is \
-             rerun by `hurdle verify RECEIPT.json`, and a case is the TOML file it names \
-             (README, Case file reference)"
-                .into(),
-        );
+        return Err(json_given(text));
     }
     if first.contains(',') && !lines.iter().any(|l| l.contains('=') || l.starts_with('[')) {
         return Err(format!(
