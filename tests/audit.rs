@@ -1050,7 +1050,7 @@ fn bridge_steps_and_shapley_values_sum_to_the_gap() {
 // E/V·(rf + β·ERP) + D/V·Kd·(1 − t) = 0.7·(0.035 + 0.055) + 0.3·0.055·0.75 = 7.5375%, so
 // 46 bp (46.25, printed to the basis point) that its own components do not explain (7.5375%
 // is printed 7.538%: a tie to three decimals rounds half up, as a spreadsheet shows it); nothing
-// about preferred equity or leases, which a claim does not hold.
+// about preferred equity or leases, which neither claim holds.
 #[test]
 fn compare_names_the_unexplained_part_of_either_claim() {
     let (dir, case_dir) = demo_copy();
@@ -1119,6 +1119,72 @@ fn compare_names_the_preferred_and_lease_terms_the_weights_step_moves() {
             && report.contains("to preferred 0.0% at 0.00%, leases 10.0% at 5.00% pre-tax"),
         "{report}"
     );
+}
+
+// A claim with preferred equity and leases, by the textbook WACC with those components
+// (README, Weights; the case's own formula): Ke = 0.04 + 1.1·0.06 + 0.01 = 11.6%; equity and
+// debt share 1 − 0.05 − 0.10 = 0.85 at D/E 0.5, so wE = 0.85/1.5 and wD = 0.85·0.5/1.5; the
+// lease cost defaults to the pre-tax cost of debt (6.2%), deducted at the claim's tax rate:
+// WACC = 0.56667·0.116 + 0.28333·0.062·0.75 + 0.05·0.07 + 0.10·0.062·0.75 = 8.705833…%
+// (worked by hand). 1e-15: a sum of four products of doubles of order 0.1.
+#[test]
+fn a_claim_with_preferred_equity_and_leases_counts_them() {
+    let (dir, case_dir) = demo_copy();
+    let claim = case_dir.join("bank.toml");
+    std::fs::write(
+        &claim,
+        "[claimed]\nlabel = \"Bank\"\nrisk_free_rate = 0.04\nequity_risk_premium = 0.06\n\
+         beta = 1.1\npremiums = 0.01\ncost_of_debt_pre_tax = 0.062\ntax_rate = 0.25\n\
+         debt_to_equity = 0.5\npreferred_weight = 0.05\npreferred_cost = 0.07\n\
+         lease_weight = 0.10\n",
+    )
+    .unwrap();
+    let side = read_side(&claim, "bank.toml").unwrap();
+    let (we, wd) = (0.85 / 1.5, 0.85 * 0.5 / 1.5);
+    let expected = we * 0.116 + wd * 0.062 * 0.75 + 0.05 * 0.07 + 0.10 * 0.062 * 0.75;
+    assert!((side.wacc - expected).abs() < 1e-15, "{}", side.wacc);
+    assert!((expected - 0.08705833333333333).abs() < 1e-12);
+    assert_eq!(side.build_up.lease_cost_pre_tax, 0.062);
+    // The case's [reconcile] records the claim's terms in result.json (the demo has neither,
+    // so its own side writes none of the four keys).
+    let case = case_dir.join("case.toml");
+    let text_of_case = std::fs::read_to_string(&case).unwrap();
+    let reconciled = text_of_case.replacen("claimed.toml", "bank.toml", 1);
+    assert_ne!(reconciled, text_of_case);
+    std::fs::write(&case, reconciled).unwrap();
+    let output = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        dir.path().join("out").to_str().unwrap(),
+    ]);
+    assert!(output.status.success(), "{}", text(&output));
+    let json: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(dir.path().join("out/result.json")).unwrap())
+            .unwrap();
+    let to = &json["reconciliation"]["to"];
+    assert_eq!(to["build_up"]["preferred_weight"], 0.05);
+    assert_eq!(to["build_up"]["preferred_cost"], 0.07);
+    assert_eq!(to["build_up"]["lease_weight"], 0.1);
+    assert_eq!(to["build_up"]["lease_cost_pre_tax"], 0.062);
+    assert!((to["wacc"].as_f64().unwrap() - expected).abs() < 1e-15);
+    let from = json["reconciliation"]["from"]["build_up"]
+        .as_object()
+        .unwrap();
+    assert!(!from
+        .keys()
+        .any(|k| k.starts_with("preferred") || k.starts_with("lease")));
+    // implied --claim takes the components' WACC of such a claim (it states none).
+    let output = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--claim",
+        claim.to_str().unwrap(),
+        "--solve",
+        "erp",
+    ]);
+    assert!(output.status.success(), "{}", text(&output));
+    assert!(text(&output).contains("8.706%"), "{}", text(&output));
 }
 
 // A grid axis over a setting the case does not use (Newey–West lags under the demo's classical

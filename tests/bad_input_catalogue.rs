@@ -1837,6 +1837,48 @@ fn claimed_files() -> Vec<Bad> {
             ["bad_claim.toml", "debt_to_equity", "debt_to_capital"]
         ),
         bad!(
+            "claimed preferred weight without its cost",
+            |s| claim(s, "beta = 1.10", "beta = 1.10\npreferred_weight = 0.05"),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            [
+                "bad_claim.toml",
+                "claimed.preferred_weight = 0.05",
+                "needs claimed.preferred_cost"
+            ]
+        ),
+        bad!(
+            "claimed lease cost without a lease weight",
+            |s| claim(s, "beta = 1.10", "beta = 1.10\nlease_cost_pre_tax = 0.05"),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            [
+                "bad_claim.toml",
+                "claimed.lease_cost_pre_tax is given",
+                "claimed.lease_weight is 0"
+            ]
+        ),
+        bad!(
+            "claimed preferred and lease weights summing to 1",
+            |s| claim(
+                s,
+                "beta = 1.10",
+                "beta = 1.10\npreferred_weight = 0.6\npreferred_cost = 0.07\nlease_weight = 0.4"
+            ),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            ["bad_claim.toml", "0.6 + 0.4", "sum below 1"]
+        ),
+        bad!(
+            "claimed lease weight in percent",
+            |s| claim(s, "beta = 1.10", "beta = 1.10\nlease_weight = 10"),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            [
+                "bad_claim.toml",
+                "{next}",
+                "claimed.lease_weight",
+                "10",
+                "weights are decimals"
+            ]
+        ),
+        bad!(
             "claimed beta missing",
             |s| claim(s, "beta = 1.10\n", ""),
             ["compare", "{case}", "{dir}/bad_claim.toml"],

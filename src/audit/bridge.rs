@@ -46,6 +46,66 @@ struct Claimed {
     debt_to_equity: Option<f64>,
     #[serde(default)]
     debt_to_capital: Option<f64>,
+    /// Preferred equity's and lease liabilities' shares of total capital, with their costs, as
+    /// a case's `[preferred]` and `[leases]` give them (the lease cost defaults to the pre-tax
+    /// cost of debt, as a case's does).
+    #[serde(default)]
+    preferred_weight: f64,
+    #[serde(default)]
+    preferred_cost: Option<f64>,
+    #[serde(default)]
+    lease_weight: f64,
+    #[serde(default)]
+    lease_cost_pre_tax: Option<f64>,
+}
+
+/// The preferred and lease terms of a claim as (weight, cost) pairs, checked as a case's are:
+/// weights in [0, 1) summing below 1, a preferred cost whenever its weight is above 0, and no
+/// cost given for a component the claim does not hold (it would be read by nothing).
+fn other_components(claimed: &Claimed) -> std::result::Result<[(f64, f64); 2], String> {
+    let (wp, wl) = (claimed.preferred_weight, claimed.lease_weight);
+    for (key, weight) in [("preferred_weight", wp), ("lease_weight", wl)] {
+        if !(0.0..1.0).contains(&weight) {
+            return Err(format!("claimed.{key} = {weight} is outside [0, 1)"));
+        }
+    }
+    if wp + wl >= 1.0 {
+        return Err(format!(
+            "claimed.preferred_weight + claimed.lease_weight = {wp} + {wl} leaves no room for \
+             equity and debt: the two must sum below 1"
+        ));
+    }
+    for (key, weight, cost) in [
+        ("preferred", wp, claimed.preferred_cost),
+        ("lease", wl, claimed.lease_cost_pre_tax),
+    ] {
+        if weight == 0.0 && cost.is_some() {
+            let cost_key = if key == "lease" {
+                "lease_cost_pre_tax"
+            } else {
+                "preferred_cost"
+            };
+            return Err(format!(
+                "claimed.{cost_key} is given but claimed.{key}_weight is 0 or absent: give the \
+                 weight too, or drop the cost"
+            ));
+        }
+    }
+    let preferred_cost = match claimed.preferred_cost {
+        Some(cost) => cost,
+        None if wp > 0.0 => {
+            return Err(format!(
+                "claimed.preferred_weight = {wp} needs claimed.preferred_cost (the cost of \
+                 preferred equity, e.g. its dividend / price)"
+            ))
+        }
+        None => 0.0,
+    };
+    let lease_cost = match (wl > 0.0, claimed.lease_cost_pre_tax) {
+        (true, None) => claimed.cost_of_debt_pre_tax,
+        (_, cost) => cost.unwrap_or(0.0),
+    };
+    Ok([(wp, preferred_cost), (wl, lease_cost)])
 }
 
 fn default_claim_label() -> String {
@@ -124,7 +184,10 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
             claimed.tax_rate
         )));
     }
-    let (equity_weight, debt_weight) = cost::weights_from_debt_to_equity(debt_to_equity);
+    let [(preferred_weight, preferred_cost), (lease_weight, lease_cost_pre_tax)] =
+        other_components(&claimed).map_err(fail)?;
+    let (equity_weight, debt_weight) =
+        cost::weights_with_other_components(debt_to_equity, preferred_weight + lease_weight);
     let build_up = BuildUp {
         risk_free_rate: claimed.risk_free_rate,
         equity_risk_premium: claimed.equity_risk_premium,
@@ -134,7 +197,10 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         tax_rate: claimed.tax_rate,
         equity_weight,
         debt_weight,
-        ..BuildUp::default()
+        preferred_weight,
+        preferred_cost,
+        lease_weight,
+        lease_cost_pre_tax,
     };
     Ok(Side {
         label: claimed.label,

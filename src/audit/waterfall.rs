@@ -4,9 +4,9 @@
 //! From this case's WACC, one bar per input group of the build-up moves the running total by
 //! the group's Shapley value (order-independent, so the picture does not depend on which group
 //! is drawn first); the groups' bars end at the claim's build-up WACC because Shapley values sum
-//! to the whole difference. What the build-up leaves out comes as residue bars: first the share
-//! of preferred equity and leases in this case's WACC, last the gap between the claim's stated
-//! WACC and its own components.
+//! to the whole difference. What a side's components do not explain comes as residue bars:
+//! first the gap between the starting side's stated WACC and its components (0 for a case, whose
+//! build-up holds preferred equity and leases too), last the same gap of the claim.
 
 use super::bridge::{Side, Step};
 pub use crate::valuation::analyses::{BarKind, WaterfallBar};

@@ -180,17 +180,22 @@ pub struct BuildUp {
     pub tax_rate: f64,
     pub equity_weight: f64,
     pub debt_weight: f64,
-    /// Preferred equity and lease liabilities (0 for a claimed build-up, which has neither): in
-    /// the WACC so the bridge and `implied` use the case's own formula, and moved with the
-    /// weights group. Not written to `result.json`.
-    #[serde(skip)]
+    /// Preferred equity and lease liabilities (0 when a side has neither): in the WACC so the
+    /// bridge and `implied` use the case's own formula, and moved with the weights group.
+    /// Written to `result.json` only when above 0, so a receipt of a build-up without them
+    /// reads as before.
+    #[serde(skip_serializing_if = "is_zero")]
     pub preferred_weight: f64,
-    #[serde(skip)]
+    #[serde(skip_serializing_if = "is_zero")]
     pub preferred_cost: f64,
-    #[serde(skip)]
+    #[serde(skip_serializing_if = "is_zero")]
     pub lease_weight: f64,
-    #[serde(skip)]
+    #[serde(skip_serializing_if = "is_zero")]
     pub lease_cost_pre_tax: f64,
+}
+
+fn is_zero(x: &f64) -> bool {
+    *x == 0.0
 }
 
 impl BuildUp {
@@ -326,9 +331,9 @@ impl Side {
             equity_weight: c.weights.equity,
             debt_weight: c.weights.debt,
             preferred_weight: c.weights.preferred,
-            preferred_cost: c.other_capital_costs.preferred_cost,
+            preferred_cost: held(c.weights.preferred, c.other_capital_costs.preferred_cost),
             lease_weight: c.weights.leases,
-            lease_cost_pre_tax: c.other_capital_costs.lease_cost_pre_tax,
+            lease_cost_pre_tax: held(c.weights.leases, c.other_capital_costs.lease_cost_pre_tax),
         };
         Side {
             label: label.to_string(),
@@ -338,6 +343,16 @@ impl Side {
             stated_wacc: Some(c.wacc),
             build_up,
         }
+    }
+}
+
+/// A component's cost as the build-up holds it: 0 for a component the case does not hold (a
+/// lease cost defaults to the cost of debt even at weight 0), which moves no WACC.
+fn held(weight: f64, cost: f64) -> f64 {
+    if weight > 0.0 {
+        cost
+    } else {
+        0.0
     }
 }
 

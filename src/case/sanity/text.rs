@@ -348,8 +348,12 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
         return Err(message);
     }
     let most_de = super::MAX_DEBT_TO_EQUITY;
-    let bounds: [(&str, f64, f64, bool); 9] = [
+    let bounds: [(&str, f64, f64, bool); 13] = [
         ("claimed.risk_free_rate", -0.5, 1.0, false),
+        ("claimed.preferred_weight", 0.0, 1.0, false),
+        ("claimed.lease_weight", 0.0, 1.0, false),
+        ("claimed.preferred_cost", 0.0, 1.0, false),
+        ("claimed.lease_cost_pre_tax", 0.0, 1.0, false),
         ("claimed.tax_rate", 0.0, 1.0, false),
         ("claimed.equity_risk_premium", -0.5, 1.0, false),
         ("claimed.premiums", -0.5, 1.0, false),
@@ -379,7 +383,12 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
                 String::new()
             } else {
                 format!(
-                    "rates are decimals ({} for {}%), and ",
+                    "{} are decimals ({} for {}%), and ",
+                    if key.ends_with("_weight") {
+                        "weights"
+                    } else {
+                        "rates"
+                    },
                     crate::error::compact(x / 100.0),
                     raw
                 )
