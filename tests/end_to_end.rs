@@ -325,3 +325,93 @@ fn a_copy_of_the_index_the_case_excludes_is_listed_not_refused() {
         .to_string()
         .contains("Corrowick Valves: the index (data/index.csv) explains its returns"));
 }
+
+/// The notes of a run of the demo case (a copy, with `edit` applied to its folder) under `set`.
+fn notes_of_run(edit: impl Fn(&Path), set: &[&str]) -> Vec<String> {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    edit(&case_dir);
+    let case = case_dir.join("case.toml");
+    let out = dir.path().join("out");
+    let mut args = vec![
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    for assignment in set {
+        args.extend(["--set", assignment]);
+    }
+    let output = hurdle(&args);
+    assert!(output.status.success(), "{output:?}");
+    let result: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("result.json")).unwrap()).unwrap();
+    (result["notes"].as_array().unwrap().iter())
+        .map(|n| n.as_str().unwrap().to_string())
+        .collect()
+}
+
+/// Keeps a CSV file's header and its rows dated on or before `last` (ISO dates compare as text).
+fn cut_after(path: &Path, last: &str) {
+    let text = std::fs::read_to_string(path).unwrap();
+    let kept: Vec<&str> = (text.lines().enumerate())
+        .filter(|(i, line)| *i == 0 || line[..10] <= *last)
+        .map(|(_, line)| line)
+        .collect();
+    std::fs::write(path, kept.join("\n") + "\n").unwrap();
+}
+
+// The marks of a case rolled forward by a quarter with something left behind. Calendar facts
+// (common knowledge): 2026-06-30 to 2026-09-30 is 31 + 31 + 30 = 92 days. The demo's files run
+// to its valuation date, 2026-09-30, so the demo itself gets none of these notes.
+#[test]
+fn a_date_or_a_file_left_behind_is_noted() {
+    let has = |notes: &[String], text: &str| notes.iter().any(|n| n.contains(text));
+    let plain = notes_of_run(|_| {}, &[]);
+    for text in [
+        "days past the valuation date",
+        "ends the return window",
+        "before the window's last period",
+    ] {
+        assert!(!has(&plain, text), "{plain:?}");
+    }
+    // A valuation date not moved with the files: the index runs 92 days past it.
+    let unmoved = notes_of_run(|_| {}, &["case.valuation_date=2026-06-30"]);
+    assert!(
+        has(&unmoved, "The index's prices (data/index.csv) run to 2026-09-30, 92 days past the valuation date 2026-06-30"),
+        "{unmoved:?}"
+    );
+    // A window end kept from the quarter before.
+    let kept_end = notes_of_run(|_| {}, &["beta.window_end=2026-06-30"]);
+    assert!(
+        has(&kept_end, "beta.window_end = 2026-06-30 ends the return window 92 days before the valuation date 2026-09-30."),
+        "{kept_end:?}"
+    );
+    assert!(!has(&kept_end, "is not a period end"), "{kept_end:?}");
+    // A peer's file and the risk-free series not extended to the new date: each is named, and
+    // its missing returns counted where the note says (monthly periods: July, August and
+    // September have no peer price at their end).
+    let cut = notes_of_run(
+        |dir| {
+            cut_after(&dir.join("data/peers/corrowick.csv"), "2026-06-30");
+            cut_after(&dir.join("data/risk_free.csv"), "2026-06-30");
+        },
+        &[],
+    );
+    assert!(
+        has(&cut, "Corrowick Valves: its prices (data/peers/corrowick.csv) end at 2026-06-30, before the window's last period (to 2026-09-30)"),
+        "{cut:?}"
+    );
+    assert!(
+        has(&cut, "The risk-free series (data/risk_free.csv) ends at 2026-06-30, before the window's last period"),
+        "{cut:?}"
+    );
+    assert!(
+        has(
+            &cut,
+            "Corrowick Valves: 3 of 60 periods dropped (peer price missing 3"
+        ),
+        "{cut:?}"
+    );
+}

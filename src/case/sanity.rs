@@ -367,6 +367,88 @@ pub fn index_coverage_note(
     })
 }
 
+/// Where the return window ends against the valuation date: `beta.window_end` before it (a
+/// setting a rolled-forward case easily keeps), or a valuation date that is no period end.
+pub fn window_end_note(
+    beta: &crate::case::BetaSettings,
+    valuation_date: chrono::NaiveDate,
+    end: chrono::NaiveDate,
+) -> Option<String> {
+    match beta.window_end.map(|d| d.0) {
+        Some(set) if set != valuation_date => {
+            let last = if end == set {
+                String::new()
+            } else {
+                format!("; the last period end on or before it is {end}")
+            };
+            Some(format!(
+                "beta.window_end = {set} ends the return window {} days {} the valuation date \
+                 {valuation_date}{last}.",
+                (valuation_date - set).num_days().abs(),
+                if set < valuation_date {
+                    "before"
+                } else {
+                    "after"
+                }
+            ))
+        }
+        _ => (end != valuation_date).then(|| {
+            format!(
+                "The valuation date {valuation_date} is not a period end; the return window ends \
+                 at {end}, the last period end before it."
+            )
+        }),
+    }
+}
+
+/// Files whose dates stop short of the window's last period, or run far past the valuation
+/// date: the marks of a case rolled forward with a file left behind or a date left unmoved.
+/// `peers` pairs each peer's name with its file.
+pub fn file_end_notes(
+    index: &crate::io::series::DataFile,
+    risk_free: Option<&crate::io::series::DataFile>,
+    peers: &[(&str, &crate::io::series::DataFile)],
+    period_ends: &[chrono::NaiveDate],
+    valuation_date: chrono::NaiveDate,
+) -> Vec<String> {
+    let mut notes = Vec::new();
+    // A file whose last date is on or before the next-to-last period end has no price inside
+    // the last period, so that period's return is missing (at the least).
+    let [.., before_last, end] = period_ends else {
+        return notes;
+    };
+    for (name, file) in peers {
+        if file.last_date <= *before_last {
+            notes.push(format!(
+                "{name}: its prices ({}) end at {}, before the window's last period (to \
+                 {end}): its returns after that are missing (counted in \
+                 periods_dropped.asset_missing).",
+                file.path, file.last_date
+            ));
+        }
+    }
+    if let Some(file) = risk_free.filter(|f| f.last_date <= *before_last) {
+        notes.push(format!(
+            "The risk-free series ({}) ends at {}, before the window's last period (to {end}): \
+             every peer's returns after that are missing (counted in \
+             periods_dropped.risk_free_missing).",
+            file.path, file.last_date
+        ));
+    }
+    // A month past the valuation date: prices fetched later than the date are common, but a
+    // quarter's worth more is the trace of a valuation date not moved with the files.
+    let past = (index.last_date - valuation_date).num_days();
+    if past > 31 {
+        notes.push(format!(
+            "The index's prices ({}) run to {}, {past} days past the valuation date \
+             {valuation_date}; returns after the window's end are not used (if the case was \
+             meant to move to a later date, check case.valuation_date).",
+            index.path, index.last_date
+        ));
+    }
+    notes
+}
+
 /// When `beta.window_start` is given it sets the window and `beta.lookback` is not used; the
 /// run says so (a case file that writes both is refused by [`check_case_text`]).
 pub fn window_note(beta: &crate::case::BetaSettings) -> Option<String> {

@@ -164,13 +164,22 @@ fn estimate_peers_under(
         "peer",
         "periods_dropped.market_missing",
     ));
-    if window.end() != valuation_date {
-        notes.push(format!(
-            "The valuation date {valuation_date} is not a period end; the return window ends at \
-             {}, the last period end before it.",
-            window.end()
-        ));
-    }
+    notes.extend(crate::case::sanity::window_end_note(
+        &settings.beta,
+        valuation_date,
+        window.end(),
+    ));
+    let peer_files: Vec<(&str, &DataFile)> = (settings.peers.iter())
+        .zip(&inputs.peers)
+        .map(|(peer, file)| (peer.name.as_str(), file))
+        .collect();
+    notes.extend(crate::case::sanity::file_end_notes(
+        &inputs.index,
+        inputs.risk_free.as_ref(),
+        &peer_files,
+        window.period_ends(),
+        valuation_date,
+    ));
     let mut peers = Vec::with_capacity(settings.peers.len());
     for (peer, file) in settings.peers.iter().zip(&inputs.peers) {
         let estimated = estimate::estimate_security(&spec, &window, &market, file.series.view())
