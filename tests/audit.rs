@@ -529,6 +529,101 @@ fn a_file_changed_without_moving_a_figure_is_a_changed_input_only() {
     );
 }
 
+// A verification written into a run's folder describes the receipt there; a new run replaces
+// that receipt, so it takes the verification away and says so (found by review: a stale
+// "REPRODUCED" sat beside a new result.json). The status names the receipt's SHA-256, checked
+// against coreutils' `sha256sum` of the file.
+#[test]
+fn a_new_run_takes_away_the_verification_of_the_receipt_it_replaces() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let case = case_dir.join("case.toml");
+    run_case(&case, &out, &[]);
+    let receipt = out.join("result.json");
+    let verified = hurdle(&[
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(verified.status.code(), Some(0), "{}", text(&verified));
+    let sum = std::process::Command::new("sha256sum")
+        .arg(&receipt)
+        .output()
+        .unwrap();
+    let sum = String::from_utf8(sum.stdout).unwrap();
+    let hash = sum.split_whitespace().next().unwrap();
+    let status = std::fs::read_to_string(out.join("verification.md")).unwrap();
+    assert!(
+        status.contains(&format!("Receipt (SHA-256 `{hash}`)")),
+        "{status}"
+    );
+    let json: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("verification.json")).unwrap()).unwrap();
+    assert_eq!(json["receipt_sha256"], hash);
+
+    let rerun = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let said = text(&rerun);
+    assert!(rerun.status.success(), "{said}");
+    for name in ["verification.json", "verification.md"] {
+        assert!(
+            !out.join(name).exists(),
+            "{name} left beside the new receipt"
+        );
+        assert!(
+            said.contains(&format!(
+                "removed {} (the status of the receipt this run replaces)",
+                out.join(name).display()
+            )),
+            "{said}"
+        );
+    }
+    // A verification of a receipt elsewhere, written into this folder, is the user's: kept.
+    let other = dir.path().join("elsewhere");
+    run_case(&case, &other, &[]);
+    let verified = hurdle(&[
+        "verify",
+        other.join("result.json").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(verified.status.code(), Some(0), "{}", text(&verified));
+    run_case(&case, &out, &[]);
+    assert!(out.join("verification.json").exists());
+}
+
+// A price file extended past the valuation date (a case rolled forward in place) is one
+// changed input whose check names its rows and last date; they are not listed again as
+// mismatched figures `files[…].rows` and `files[…].last_date` (README: a changed file is
+// reported once). Rows after the window's end move no figure: the WACC reproduces.
+#[test]
+fn an_extended_file_is_reported_once_with_its_rows_and_dates() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    run_case(&case_dir.join("case.toml"), &out, &[]);
+    let peer_file = case_dir.join("data/peers/corrowick.csv");
+    let mut prices = std::fs::read_to_string(&peer_file).unwrap();
+    prices.push_str("2026-10-01,59.5\n2026-10-02,59.7\n");
+    std::fs::write(&peer_file, prices).unwrap();
+    let verify = hurdle(&["verify", out.join("result.json").to_str().unwrap()]);
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(1), "{report}");
+    // The demo's file has 1,760 rows after its header (`wc -l` gives 1,761 lines).
+    assert!(
+        report.contains("corrowick.csv: CHANGED (recorded ")
+            && report.contains("); rows 1760 → 1762, last date 2026-09-30 → 2026-10-02\n"),
+        "{report}"
+    );
+    assert!(!report.contains("MISMATCH files["), "{report}");
+    assert!(report.contains("WACC reproduced"), "{report}");
+    assert!(report.contains(", 0 mismatched"), "{report}");
+}
+
 // Peers are matched by name: with the last peer moved to the front, every peer's own
 // estimate reproduces (a peer's regression does not depend on the others), so no `peers[…]`
 // figure is listed; with a peer dropped, that peer is one named mismatch while the aggregate

@@ -151,6 +151,9 @@ impl Mismatch {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Verification {
     pub receipt: String,
+    /// The SHA-256 of the receipt's bytes: ties this verification to the receipt it checked
+    /// (a later run writes another `result.json` under the same name).
+    pub receipt_sha256: String,
     /// What the receipt reruns: `case` or `universe`.
     pub kind: &'static str,
     /// The file it reruns (the case or the universe file; the field keeps its first name).
@@ -357,9 +360,10 @@ pub fn verify(
         message,
     };
     let recorded = parse_receipt(receipt).map_err(fail)?;
+    let receipt_sha256 = crate::io::series::sha256_hex(receipt.as_bytes());
     if recorded["kind"] == "universe" {
         return super::verify_universe::verify_universe(
-            receipt_path,
+            (receipt_path, receipt_sha256),
             &recorded,
             case_path,
             tolerance,
@@ -397,12 +401,15 @@ pub fn verify(
     let files = file_checks(&recorded, &rerun);
 
     let mut found = compare(&recorded, &recomputed, tolerance);
+    // A changed or moved data file is reported once, by its file check.
+    (found.mismatches).retain(|m| !files::reported_with_its_file(&m.path, &recorded, &files));
     found.mismatches.sort_by_key(|m| m.rank());
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     let headline = headline(&found);
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
+        receipt_sha256,
         kind: "case",
         case_file: case_file.display().to_string(),
         case_unchanged,

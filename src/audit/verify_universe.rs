@@ -25,7 +25,7 @@ industry means";
 /// Verifies a parsed universe receipt found at `receipt_path`; `universe_path` overrides where
 /// the universe file is looked for.
 pub fn verify_universe(
-    receipt_path: &Path,
+    (receipt_path, receipt_sha256): (&Path, String),
     recorded: &Value,
     universe_path: Option<&Path>,
     tolerance: f64,
@@ -54,6 +54,7 @@ pub fn verify_universe(
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
+        receipt_sha256,
         kind: "universe",
         case_file: file.display().to_string(),
         overrides,

@@ -58,10 +58,11 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         println!("  wrote {}", path.display());
     }
     for name in &stale {
-        println!(
-            "  removed {} (an earlier run's; this run does not write it)",
-            out.join(name).display()
-        );
+        let why = match report::VERIFICATION.contains(&name.as_str()) {
+            true => "the status of the receipt this run replaces",
+            false => "an earlier run's; this run does not write it",
+        };
+        println!("  removed {} ({why})", out.join(name).display());
     }
     Ok(())
 }

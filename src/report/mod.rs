@@ -73,8 +73,9 @@ pub fn render_run(
 /// The files an earlier `hurdle run` wrote into `dir` that this run, writing `written`, does not
 /// write again: charts named as a run names them ([`figures::is_chart_name`]; a peer no longer in
 /// the case, a bridge no longer asked for) and the report (a run with `figures` off). Left there,
-/// they would sit beside the new memo as if they belonged to it. Only in a folder that holds an
-/// earlier run's receipt ([`staging::holds_an_earlier_run`]). Sorted.
+/// they would sit beside the new memo as if they belonged to it; and `hurdle verify --out`'s
+/// status of the receipt this run replaces. Only in a folder that holds an earlier run's
+/// receipt ([`staging::holds_an_earlier_run`]). Sorted.
 pub fn stale_run_outputs(dir: &Path, written: &[String]) -> Vec<String> {
     if !staging::holds_an_earlier_run(dir) {
         return Vec::new();
@@ -94,8 +95,36 @@ pub fn stale_run_outputs(dir: &Path, written: &[String]) -> Vec<String> {
         .filter(|name| name == REPORT || figures::is_chart_name(name))
         .filter(|name| !written.contains(name) && dir.join(name).is_file())
         .collect();
+    if verifies_the_receipt_in(dir) {
+        stale.extend(VERIFICATION.iter().map(|name| name.to_string()));
+        stale.retain(|name| dir.join(name).is_file());
+    }
     stale.sort();
     stale
+}
+
+/// What `hurdle verify --out` writes.
+pub const VERIFICATION: [&str; 2] = ["verification.json", "verification.md"];
+
+/// Whether `dir` holds `hurdle verify --out`'s status of the receipt in `dir` itself: the run
+/// replaces that receipt, so the status (which may say REPRODUCED) no longer describes the
+/// `result.json` beside it.
+fn verifies_the_receipt_in(dir: &Path) -> bool {
+    let Ok(text) = std::fs::read_to_string(dir.join(VERIFICATION[0])) else {
+        return false;
+    };
+    let Ok(status) = serde_json::from_str::<serde_json::Value>(&text) else {
+        return false;
+    };
+    let (Some(receipt), Some(_)) = (status["receipt"].as_str(), status["reproduced"].as_bool())
+    else {
+        return false;
+    };
+    let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    };
+    same(Path::new(receipt), &dir.join("result.json"))
 }
 
 /// The memo, then the charts and the report when `with_figures`, each into `stage`; returns the

@@ -49,10 +49,12 @@ pub fn markdown(r: &Verification) -> String {
     }
     let _ = writeln!(
         w,
-        "The {} file `{}`: {}. Receipt written by hurdle {}, verified with hurdle {}.\n",
+        "The {} file `{}`: {}. Receipt (SHA-256 `{}`) written by hurdle {}, verified with \
+         hurdle {}.\n",
         r.kind,
         r.case_file,
         r.case_state(),
+        r.receipt_sha256,
         r.recorded_tool_version,
         r.current_tool_version
     );

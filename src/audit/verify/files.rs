@@ -20,6 +20,11 @@ pub struct FileCheck {
     /// `unchanged`, `changed`, `dropped` (no longer read) or `added` (new since the receipt).
     pub status: &'static str,
     pub unchanged: bool,
+    /// For a changed data file, what else the receipt records of it that differs now (its
+    /// rows, first and last dates): "rows 61 → 64", "last date 2026-09-30 → 2026-12-31". These
+    /// are reported here, with the file, and not again as figures.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub changes: Vec<String>,
 }
 
 impl FileCheck {
@@ -50,6 +55,7 @@ impl FileCheck {
             current_sha256,
             status,
             unchanged: status == "unchanged",
+            changes: Vec::new(),
         }
     }
 
@@ -73,11 +79,64 @@ impl FileCheck {
                 short(&self.current_sha256)
             ),
         };
+        let state = match self.changes.is_empty() {
+            true => state,
+            false => format!("{state}; {}", self.changes.join(", ")),
+        };
         match &self.current_path {
             Some(now) => format!("{state}; read now from {now}"),
             None => state,
         }
     }
+}
+
+/// What the receipt records of a data file beside its hash, as the comparison names it.
+const DESCRIBED: [(&str, &str); 3] = [
+    ("rows", "rows"),
+    ("first_date", "first date"),
+    ("last_date", "last date"),
+];
+
+/// A changed data file's recorded rows and dates against the rerun's, where they differ.
+fn changes(recorded: &Value, now: &crate::io::series::DataFile) -> Vec<String> {
+    let current = serde_json::to_value(now).unwrap_or(Value::Null);
+    let shown = |v: &Value| match v {
+        Value::String(text) => text.clone(),
+        other => other.to_string(),
+    };
+    (DESCRIBED.iter())
+        .filter(|(key, _)| recorded[key] != current[key])
+        .map(|(key, words)| {
+            format!(
+                "{words} {} → {}",
+                shown(&recorded[key]),
+                shown(&current[key])
+            )
+        })
+        .collect()
+}
+
+/// Whether the mismatch at `path` is a field of a recorded data file (`files[3].rows`) that
+/// its file check already reports: any field of a file whose bytes changed (the check lists
+/// its rows and dates), and the path of a file read, unchanged, from another place (the check
+/// says where from).
+pub(super) fn reported_with_its_file(path: &str, recorded: &Value, checks: &[FileCheck]) -> bool {
+    let Some((index, field)) = path
+        .strip_prefix("files[")
+        .and_then(|rest| rest.split_once("]."))
+    else {
+        return false;
+    };
+    let Ok(index) = index.parse::<usize>() else {
+        return false;
+    };
+    let Some(role) = recorded["files"][index]["role"].as_str() else {
+        return false;
+    };
+    (checks.iter().find(|c| c.role == role)).is_some_and(|check| match check.status {
+        "changed" => true,
+        _ => field == "path" && check.current_path.is_some(),
+    })
 }
 
 /// Each input file the receipt records, with its recorded and current SHA-256: the data files,
@@ -129,7 +188,15 @@ pub(super) fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation)
         .map(|(role, f)| {
             let sha256 = f["sha256"].as_str().unwrap_or("").to_string();
             let path = f["path"].as_str().or(f["source"].as_str()).unwrap_or("");
-            FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role))
+            let mut check =
+                FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role));
+            if let Some(file) = (check.status == "changed")
+                .then(|| rerun.files.iter().find(|d| d.role == *role))
+                .flatten()
+            {
+                check.changes = changes(f, file);
+            }
+            check
         })
         .collect();
     // Files the case reads now that the receipt does not have (a peer added since), unless
