@@ -1934,4 +1934,18 @@ fn implied_reads_the_claimed_wacc_from_a_claim_file() {
         "erp",
     ]));
     assert_eq!(exact_line(&by_components, ""), exact_line(&by_wacc, ""));
+    // A case given as the claim states no WACC: hurdle computes it (found by review: it was
+    // said to be "as it states"). The demo's WACC is 7.378%, 7.38% in README (The demo case).
+    let by_case = text(&hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--claim",
+        case.to_str().unwrap(),
+        "--solve",
+        "erp",
+    ]));
+    assert!(
+        by_case.contains("WACC 7.378% as hurdle computes the case"),
+        "{by_case}"
+    );
 }

@@ -209,6 +209,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         wacc: build_up.wacc(),
         stated_wacc: claimed.wacc,
         build_up,
+        computed: false,
     })
 }
 
@@ -298,6 +299,7 @@ mod tests {
             wacc: build_up.wacc(),
             stated_wacc: None,
             build_up,
+            computed: false,
         }
     }
 

@@ -74,9 +74,10 @@ fn claimed_wacc(args: &Args) -> hurdle::Result<f64> {
         (Some(path), _) => {
             let side = hurdle::audit::bridge::read_side(path, &path.display().to_string())?;
             let wacc = side.stated_wacc.unwrap_or(side.wacc);
-            let whose = match side.stated_wacc {
-                Some(_) => "as it states",
-                None => "from its components",
+            let whose = match (side.computed, side.stated_wacc) {
+                (true, _) => "as hurdle computes the case",
+                (false, Some(_)) => "as it states",
+                (false, None) => "from its components",
             };
             println!(
                 "claim: {} ({}), WACC {} {whose}",

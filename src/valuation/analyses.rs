@@ -315,6 +315,10 @@ pub struct Side {
     pub wacc: f64,
     /// The WACC the claim states, when it states one.
     pub stated_wacc: Option<f64>,
+    /// Whether this side is a case hurdle computed (its `stated_wacc` is the case's own WACC),
+    /// not a claim that states one.
+    #[serde(skip)]
+    pub computed: bool,
 }
 
 impl Side {
@@ -342,6 +346,7 @@ impl Side {
             wacc: build_up.wacc(),
             stated_wacc: Some(c.wacc),
             build_up,
+            computed: true,
         }
     }
 }
