@@ -59,23 +59,25 @@ impl Render for PeersCsv {
                 field(&p.prices_file),
                 e.observations.to_string(),
                 p.periods_dropped.total.to_string(),
-                e.alpha.to_string(),
-                e.beta.to_string(),
-                e.beta_std_error.to_string(),
-                e.beta_t_stat.to_string(),
-                e.beta_p_value.to_string(),
-                e.beta_ci_low.to_string(),
-                e.beta_ci_high.to_string(),
-                e.r_squared.to_string(),
-                p.shrunk_beta.map(|b| b.to_string()).unwrap_or_default(),
-                p.beta_used.to_string(),
-                p.debt_to_equity.to_string(),
-                p.tax_rate.to_string(),
-                p.unlevered_beta.to_string(),
-                e.residual_std_error.to_string(),
+                Full(e.alpha).to_string(),
+                Full(e.beta).to_string(),
+                Full(e.beta_std_error).to_string(),
+                Full(e.beta_t_stat).to_string(),
+                Full(e.beta_p_value).to_string(),
+                Full(e.beta_ci_low).to_string(),
+                Full(e.beta_ci_high).to_string(),
+                Full(e.r_squared).to_string(),
+                p.shrunk_beta
+                    .map(|b| Full(b).to_string())
+                    .unwrap_or_default(),
+                Full(p.beta_used).to_string(),
+                Full(p.debt_to_equity).to_string(),
+                Full(p.tax_rate).to_string(),
+                Full(p.unlevered_beta).to_string(),
+                Full(e.residual_std_error).to_string(),
                 crate::report::format::label(&e.method),
                 crate::report::format::label(&e.std_errors),
-                e.durbin_watson.to_string(),
+                Full(e.durbin_watson).to_string(),
                 e.large_studentised_residuals.to_string(),
                 field(
                     &p.flags
@@ -85,10 +87,12 @@ impl Render for PeersCsv {
                         .join(";"),
                 ),
                 field(p.excluded_reason.as_deref().unwrap_or("")),
-                p.debt_beta.to_string(),
-                p.cost_of_debt.map(|kd| kd.to_string()).unwrap_or_default(),
-                p.operating_share.to_string(),
-                p.operations_beta.to_string(),
+                Full(p.debt_beta).to_string(),
+                p.cost_of_debt
+                    .map(|kd| Full(kd).to_string())
+                    .unwrap_or_default(),
+                Full(p.operating_share).to_string(),
+                Full(p.operations_beta).to_string(),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');
@@ -124,20 +128,39 @@ impl Render for ReturnsCsv {
                 write!(
                     out,
                     "{name},{},{},{}",
-                    returns.period_ends[j], returns.asset[j], returns.market[j]
+                    returns.period_ends[j],
+                    Full(returns.asset[j]),
+                    Full(returns.market[j])
                 )
                 .expect("writing to a String cannot fail");
                 if let Some(rf) = &returns.risk_free {
-                    write!(out, ",{}", rf[j]).expect("writing to a String cannot fail");
+                    write!(out, ",{}", Full(rf[j])).expect("writing to a String cannot fail");
                 }
                 for shifted in &returns.market_shifted {
-                    write!(out, ",{}", shifted.returns[j])
+                    write!(out, ",{}", Full(shifted.returns[j]))
                         .expect("writing to a String cannot fail");
                 }
                 out.push('\n');
             }
         }
         Ok(out.into_bytes())
+    }
+}
+
+/// A number in full, as the shortest text that reads back to the same double: plain decimals,
+/// except below 1e-5 or from 1e16 in size, where the exponent form keeps it short (a p-value of
+/// 4.2e-244 would otherwise take 245 digits), as `result.json` writes such numbers. Every
+/// spreadsheet and CSV reader takes both forms.
+struct Full(f64);
+
+impl std::fmt::Display for Full {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let size = self.0.abs();
+        if size != 0.0 && !(1e-5..1e16).contains(&size) {
+            write!(f, "{:e}", self.0)
+        } else {
+            write!(f, "{}", self.0)
+        }
     }
 }
 
@@ -228,5 +251,31 @@ mod tests {
         assert_eq!(field("Plain"), "Plain");
         assert_eq!(field("A, B"), "\"A, B\"");
         assert_eq!(field("say \"x\""), "\"say \"\"x\"\"\"");
+    }
+
+    // Each form reads back to the same double (Rust's own parser, which follows IEEE 754
+    // round-trip rules), and is as short as serde_json's (the ryu algorithm, an implementation
+    // independent of Rust's formatting) writes the same number in result.json.
+    #[test]
+    fn numbers_are_written_in_full_and_short() {
+        use super::Full;
+        for x in [
+            4.2e-244,
+            5.110808174994548e-8,
+            -3e-6,
+            1e-5,
+            0.0267,
+            2400.0,
+            1.5e17,
+            0.0,
+        ] {
+            let text = Full(x).to_string();
+            assert_eq!(text.parse::<f64>().unwrap(), x, "{text}");
+            let json = serde_json::to_string(&x).unwrap();
+            assert!(text.len() <= json.len().max(4), "{text} against {json}");
+        }
+        assert_eq!(Full(4.2e-244).to_string(), "4.2e-244");
+        assert_eq!(Full(0.0267).to_string(), "0.0267");
+        assert_eq!(Full(1e-5).to_string(), "0.00001");
     }
 }
