@@ -1951,6 +1951,26 @@ fn overrides() -> Vec<Bad> {
                 "rates are decimals"
             ]
         ),
+        // Found by review: the message named no peer and no reason.
+        bad!(
+            "--set exclusion rule that leaves no peer",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "beta.flag_r_squared_floor=1",
+                "--set",
+                "beta.exclude_flags=[\"low_r_squared\"]"
+            ],
+            [
+                "every peer is excluded",
+                "Brenvale Fluid Systems (flag-based rule beta.exclude_flags: low_r_squared)",
+                "Ivelbrook Instruments (flag-based rule beta.exclude_flags: low_r_squared)"
+            ]
+        ),
         bad!(
             "--set without =",
             nothing,

@@ -129,8 +129,32 @@ fn run_chain(
     let exclusions = exclusions(settings, estimates);
     let peers = chain_peers(settings, estimates, &exclusions);
     let spec = specs::capital(settings, inputs.debt_table.as_ref());
-    let chain = chain::chain(&spec, &peers, checks).map_err(|e| chain_error(case, e))?;
+    let chain = chain::chain(&spec, &peers, checks).map_err(|e| match e {
+        ChainError::NoPeerIncluded => no_peer_left(settings, &exclusions),
+        e => chain_error(case, e),
+    })?;
     Ok((chain, exclusions))
+}
+
+/// Every peer excluded: the message names each peer with its reason, so the case can be
+/// mended without a run that succeeds to read them from.
+fn no_peer_left(settings: &CaseFile, exclusions: &[Option<String>]) -> Error {
+    let each: Vec<String> = (settings.peers.iter().zip(exclusions))
+        .map(|(peer, reason)| {
+            format!(
+                "{} ({})",
+                peer.name,
+                reason.as_deref().unwrap_or("not excluded")
+            )
+        })
+        .collect();
+    Error::Estimation {
+        peer: "(all peers)".into(),
+        message: format!(
+            "every peer is excluded, so no peer is left to aggregate: {}",
+            each.join("; ")
+        ),
+    }
 }
 
 /// A chain failure as the error a user sees, naming the key, the peer or the case.
