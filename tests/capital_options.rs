@@ -660,8 +660,33 @@ fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
         memo.contains("With one aggregated peer every resample draws that"),
         "{memo}"
     );
+    // The headline gives no peer-set interval then; with two peers it says how few distinct
+    // sets a bootstrap of two can draw: C(2n − 1, n) = 3 multisets of size 2 from 2 (textbook
+    // combinatorics, sampling with replacement).
+    let headline = |memo: &str| {
+        let line = memo
+            .lines()
+            .find(|l| l.starts_with("| WACC, point estimate"));
+        line.unwrap().to_string()
+    };
+    assert!(
+        headline(&memo).contains("with one aggregated peer, resampling the peer set adds nothing")
+            && !headline(&memo).contains("with the peer set resampled"),
+        "{memo}"
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let sets: Vec<String> = (2..8).map(|i| format!("peer.{i}.exclude=test")).collect();
+    let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+    run_demo(dir.path(), &sets);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        headline(&memo)
+            .contains("with the peer set resampled (two peers allow only three distinct sets)"),
+        "{memo}"
+    );
     let dir = tempfile::tempdir().unwrap();
     run_demo(dir.path(), &[]);
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
     assert!(!memo.contains("With one aggregated peer"));
+    assert!(!headline(&memo).contains("distinct sets"), "{memo}");
 }

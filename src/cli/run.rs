@@ -107,16 +107,27 @@ fn summary(v: &Valuation) -> String {
             percent(v.cost.wacc, 2),
             match &v.uncertainty {
                 Some(u) => format!(
-                    ", 90% interval {} to {} (beta estimation error{}), {} to {} with the peer set \
-                     resampled",
+                    ", 90% interval {} to {} (beta estimation error{}){}",
                     percent(u.p05, 2),
                     percent(u.p95, 2),
-                    match u.equity_risk_premium_range.is_some() || u.risk_free_rate_range.is_some() {
+                    match u.equity_risk_premium_range.is_some() || u.risk_free_rate_range.is_some()
+                    {
                         true => " and the stated rate ranges",
                         false => "",
                     },
-                    percent(u.peer_set.p05, 2),
-                    percent(u.peer_set.p95, 2)
+                    match v.cost.beta.peers_included {
+                        1 => "; one aggregated peer: no peer set to resample".to_string(),
+                        n => format!(
+                            ", {} to {} with the peer set resampled{}",
+                            percent(u.peer_set.p05, 2),
+                            percent(u.peer_set.p95, 2),
+                            if n == 2 {
+                                " (only three distinct sets)"
+                            } else {
+                                ""
+                            }
+                        ),
+                    }
                 ),
                 None => String::new(),
             }
