@@ -474,3 +474,114 @@ fn compare_frequencies_prints_every_peer_at_every_frequency() {
         assert_eq!(listed["estimate"]["beta_std_error"], peer["beta_std_error"]);
     }
 }
+
+// Prices repeated as a data vendor fills days without a trade: in 15 of the window's 60
+// months every row of one peer's file repeats the previous month's last price, so exactly 15
+// of its 60 monthly returns are zero (by construction: 25%, above the default 20% threshold).
+// The flag is raised, the note gives the share, the flag-based rule can exclude the peer, and
+// check_regressions.py recounts the zero returns from the price files and recomputes every
+// flag independently.
+#[test]
+fn prices_repeated_by_a_vendor_are_flagged_as_zero_returns() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let file = case_dir.join("data/peers/corrowick.csv");
+    let text = std::fs::read_to_string(&file).unwrap();
+    // Every fourth month from 2021-11 (inside the window, which starts at 2021-09-30).
+    let filled: Vec<String> = (0..15)
+        .map(|k| {
+            let month = 11 + 4 * k; // months after 2020-12
+            format!(
+                "{}-{:02}",
+                2020 + (month - 1) / 12 + 1,
+                (month - 1) % 12 + 1
+            )
+        })
+        .collect();
+    let mut last_price = String::new();
+    let mut last_month = String::new();
+    let mut carried = String::new();
+    let mut lines = Vec::new();
+    for (i, line) in text.lines().enumerate() {
+        if i == 0 {
+            lines.push(line.to_string());
+            continue;
+        }
+        let (date, price) = line.split_once(',').unwrap();
+        let month = date[..7].to_string();
+        if month != last_month {
+            carried = last_price.clone();
+            last_month = month.clone();
+        }
+        let written = match filled.contains(&month) {
+            true => carried.clone(),
+            false => price.to_string(),
+        };
+        lines.push(format!("{date},{written}"));
+        last_price = written;
+    }
+    std::fs::write(&file, lines.join("\n") + "\n").unwrap();
+    let out = dir.path().join("out");
+    let case = case_dir.join("case.toml");
+    let output = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(output.status.success(), "{output:?}");
+    let result: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let peer = &result["peers"][1];
+    assert_eq!(peer["name"], "Corrowick Valves");
+    assert_eq!(peer["observations"], 60);
+    assert!(
+        peer["flags"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|f| f == "zero_returns"),
+        "{}",
+        peer["flags"]
+    );
+    assert!(
+        result["notes"]
+            .to_string()
+            .contains("Corrowick Valves: 25% of its returns are exactly zero"),
+        "{}",
+        result["notes"]
+    );
+    let others = result["peers"].as_array().unwrap().iter();
+    assert!(others
+        .filter(|p| p["name"] != "Corrowick Valves")
+        .all(|p| !p["flags"].to_string().contains("zero_returns")));
+    reference_check(&out, "zero returns");
+    // The rule can leave it out; a threshold above the share does not flag it.
+    let excluded = dir.path().join("excluded");
+    let run = |out: &Path, set: &str| {
+        let output = hurdle(&[
+            "run",
+            case.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--set",
+            set,
+        ]);
+        assert!(output.status.success(), "{output:?}");
+        serde_json::from_str::<serde_json::Value>(
+            &std::fs::read_to_string(out.join("result.json")).unwrap(),
+        )
+        .unwrap()
+    };
+    let result = run(&excluded, "beta.exclude_flags=[\"zero_returns\"]");
+    assert_eq!(result["beta"]["peers_included"], 7);
+    let result = run(
+        &dir.path().join("higher"),
+        "beta.flag_zero_return_share=0.3",
+    );
+    assert!(!result["peers"][1]["flags"]
+        .to_string()
+        .contains("zero_returns"));
+    reference_check(&dir.path().join("higher"), "zero returns, threshold 0.3");
+}

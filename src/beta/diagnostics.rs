@@ -12,6 +12,7 @@ pub enum PeerFlag {
     TooFewObservations,
     LowRSquared,
     StalePrices,
+    ZeroReturns,
 }
 
 impl PeerFlag {
@@ -21,6 +22,7 @@ impl PeerFlag {
             PeerFlag::TooFewObservations => "too_few_observations",
             PeerFlag::LowRSquared => "low_r_squared",
             PeerFlag::StalePrices => "stale_prices",
+            PeerFlag::ZeroReturns => "zero_returns",
         }
     }
 }
@@ -34,6 +36,11 @@ pub struct FlagRule {
     pub r_squared_floor: f64,
     /// Flag `stale_prices` when more than this share of the window's periods had a stale price.
     pub stale_share: f64,
+    /// Flag `zero_returns` when more than this share of the returns used are exactly zero: a
+    /// price repeated from one period to the next, as a data vendor fills days without a
+    /// trade (the share of zero returns as a measure of illiquidity: Lesmond, Ogden and
+    /// Trzcinka 1999, Review of Financial Studies 12(5)).
+    pub zero_return_share: f64,
     /// Securities raising any of these flags stay out of aggregates (they are still shown).
     pub exclude: Vec<PeerFlag>,
 }
@@ -44,7 +51,7 @@ impl FlagRule {
         &self,
         estimate: &BetaEstimate,
         periods_in_window: usize,
-        stale_share: f64,
+        (stale_share, zero_return_share): (f64, f64),
     ) -> Vec<PeerFlag> {
         let mut flags = Vec::new();
         if (estimate.observations as f64) < self.observations_share * periods_in_window as f64 {
@@ -55,6 +62,9 @@ impl FlagRule {
         }
         if stale_share > self.stale_share {
             flags.push(PeerFlag::StalePrices);
+        }
+        if zero_return_share > self.zero_return_share {
+            flags.push(PeerFlag::ZeroReturns);
         }
         flags
     }

@@ -284,6 +284,11 @@ const BETA_KEYS: &[(&str, &str, &str)] = &[
         "",
     ),
     (
+        "flag_zero_return_share",
+        "flag a peer with more zero returns than this share (the default)",
+        "0.2",
+    ),
+    (
         "exclude_flags",
         "flags that leave a peer out of the aggregate",
         "",

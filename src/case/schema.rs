@@ -255,6 +255,10 @@ pub struct BetaSettings {
     /// Flag `stale_prices` when more than this share of the window's periods had a stale peer
     /// price.
     pub flag_stale_share: f64,
+    /// Flag `zero_returns` when more than this share of a peer's returns are exactly zero.
+    /// Written to a receipt only when not the default, so receipts of earlier versions verify.
+    #[serde(skip_serializing_if = "is_default_zero_return_share")]
+    pub flag_zero_return_share: f64,
     /// Peers raising any of these flags are left out of the aggregation (still shown).
     pub exclude_flags: Vec<PeerFlag>,
     /// Return periods per rolling window; absent means half the window's periods.
@@ -336,12 +340,21 @@ impl Default for BetaSettings {
             flag_observations_share: 0.8,
             flag_r_squared_floor: 0.05,
             flag_stale_share: 0.1,
+            flag_zero_return_share: DEFAULT_ZERO_RETURN_SHARE,
             exclude_flags: Vec::new(),
             rolling_window: None,
             rolling_step: 1,
             rolling_min_observations: None,
         }
     }
+}
+
+/// hurdle's choice: a fifth of the returns unchanged is far above what a traded share shows at
+/// any frequency, and below the thin trading that biases a daily beta visibly.
+const DEFAULT_ZERO_RETURN_SHARE: f64 = 0.2;
+
+fn is_default_zero_return_share(share: &f64) -> bool {
+    *share == DEFAULT_ZERO_RETURN_SHARE
 }
 
 /// `[leverage]`: unlevering, aggregating and relevering.

@@ -42,6 +42,7 @@ pub fn estimation(settings: &CaseFile) -> EstimationSpec {
             observations_share: beta.flag_observations_share,
             r_squared_floor: beta.flag_r_squared_floor,
             stale_share: beta.flag_stale_share,
+            zero_return_share: beta.flag_zero_return_share,
             exclude: beta.exclude_flags.clone(),
         },
         case_extras: true,

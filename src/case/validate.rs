@@ -248,6 +248,7 @@ fn validate_rolling_and_flags(
         ("beta.flag_observations_share", beta.flag_observations_share),
         ("beta.flag_r_squared_floor", beta.flag_r_squared_floor),
         ("beta.flag_stale_share", beta.flag_stale_share),
+        ("beta.flag_zero_return_share", beta.flag_zero_return_share),
     ] {
         if !(value.is_finite() && (0.0..=1.0).contains(&value)) {
             return Err(format!("{key} = {value} is outside [0, 1]"));

@@ -152,6 +152,9 @@ pub struct SecurityEstimate {
     pub estimate: BetaEstimate,
     /// Share of the window's periods dropped because the security's price was stale.
     pub stale_share: f64,
+    /// The share of the returns used that are exactly zero (the same price at both ends of
+    /// the period): flagged `zero_returns` above the rule's threshold.
+    pub zero_return_share: f64,
     pub flags: Vec<PeerFlag>,
     /// The flags that the spec's exclusion rule names: the security stays out of aggregates.
     pub excluding_flags: Vec<PeerFlag>,
@@ -213,6 +216,14 @@ fn sample_returns(
     prices: SeriesView<'_>,
 ) -> (Vec<Option<f64>>, Vec<bool>) {
     sampling::sampled_returns(&window.grid, prices, spec.max_stale_days, spec.returns)
+}
+
+/// The share of `returns` that are exactly zero (0 when there are none).
+fn zero_share(returns: &[f64]) -> f64 {
+    match returns.len() {
+        0 => 0.0,
+        n => returns.iter().filter(|r| **r == 0.0).count() as f64 / n as f64,
+    }
 }
 
 /// The fitted line and its band over the range of the index returns the regression saw.
@@ -288,7 +299,12 @@ pub fn estimate_security(
         false => FittedLine::default(),
     };
     let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
-    let flags = spec.flags.flags(&estimate, periods_in_window, stale_share);
+    let zero_return_share = zero_share(&aligned.asset);
+    let flags = spec.flags.flags(
+        &estimate,
+        periods_in_window,
+        (stale_share, zero_return_share),
+    );
     let excluding_flags = spec.flags.excluding(&flags);
     let stability = rolling::stability(&rolling_points, spec.rolling.window)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;
@@ -297,6 +313,7 @@ pub fn estimate_security(
         dropped: aligned.dropped,
         estimate,
         stale_share,
+        zero_return_share,
         flags,
         excluding_flags,
         rolling: rolling_points,

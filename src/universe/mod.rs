@@ -407,10 +407,11 @@ fn adjust(
 }
 
 /// The flags a security can raise, in the order outputs list them.
-pub const FLAGS: [PeerFlag; 3] = [
+pub const FLAGS: [PeerFlag; 4] = [
     PeerFlag::TooFewObservations,
     PeerFlag::LowRSquared,
     PeerFlag::StalePrices,
+    PeerFlag::ZeroReturns,
 ];
 
 /// "1 security", "2 securities": a count of securities for a note or a summary line.

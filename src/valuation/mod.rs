@@ -327,7 +327,35 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
             spec.max_stale_days.unwrap_or_default()
         ));
     }
+    if estimated
+        .flags
+        .contains(&crate::beta::diagnostics::PeerFlag::ZeroReturns)
+    {
+        notes.push(zero_returns_note(name, estimated.zero_return_share, spec));
+    }
     notes
+}
+
+/// A peer many of whose returns are exactly zero: prices repeated from one period to the next,
+/// as a vendor fills days without a trade, which a staleness limit cannot see (the file has a
+/// price on every day). Its index co-movement shows up late, so the beta is biased toward zero
+/// (Scholes and Williams 1977; Dimson 1979).
+fn zero_returns_note(name: &str, share: f64, spec: &EstimationSpec) -> String {
+    let remedy = match spec.estimator.method {
+        crate::beta::BetaMethod::Ols => {
+            "; consider beta.method = \"dimson\" or \"scholes-williams\", or a longer \
+             frequency"
+        }
+        _ => "",
+    };
+    format!(
+        "{name}: {}% of its returns are exactly zero (the same price at both ends of the \
+         period, as when a data vendor repeats the last price on days without a trade; flagged \
+         zero_returns above beta.flag_zero_return_share = {}): a thinly traded share's beta is \
+         biased toward zero (Scholes and Williams 1977; Dimson 1979){remedy}.",
+        crate::error::rounded(share * 100.0, 0),
+        crate::error::compact(spec.flags.zero_return_share)
+    )
 }
 
 /// Computes the valuation of the inputs' case. `generated_at` is stamped into the result as given.

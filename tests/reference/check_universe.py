@@ -16,8 +16,10 @@ any of hurdle's code:
   - each security's OLS market model with scipy.stats.linregress (slope, intercept, their
     standard errors, R^2, the two-sided p-value) and the 95% interval with scipy.stats.t.ppf;
     Durbin-Watson from numpy; the flags too_few_observations (N below
-    beta.flag_observations_share, default 0.8, of the window's periods) and low_r_squared (R^2
-    below beta.flag_r_squared_floor, default 0.05), compared with securities.csv's flags;
+    beta.flag_observations_share, default 0.8, of the window's periods), low_r_squared (R^2
+    below beta.flag_r_squared_floor, default 0.05) and zero_returns (more than
+    beta.flag_zero_return_share, default 0.2, of the returns used exactly zero), compared with
+    securities.csv's flags;
   - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt (none for
     a D/E above 10 or at or below -1), and the beta of the operations
     beta_U(gross D/E) / (1 - cash / (equity + debt)) under either debt measure (a net-debt
@@ -274,6 +276,11 @@ def securities(config, folder):
                 row["flags"].add("too_few_observations")
             if row["r_squared"] < beta.get("flag_r_squared_floor", 0.05):
                 row["flags"].add("low_r_squared")
+            # zero_returns when more than flag_zero_return_share (default 0.2) of the returns
+            # used are exactly zero.
+            zeros = sum(1 for a, _ in pairs if a == 0.0)
+            if zeros / len(pairs) > beta.get("flag_zero_return_share", 0.2):
+                row["flags"].add("zero_returns")
         result[security] = row
     return result
 
