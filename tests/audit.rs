@@ -1190,6 +1190,57 @@ fn compare_names_the_unexplained_part_of_either_claim() {
     assert!((sum - (0.0935 - 0.08)).abs() < 1e-15, "{sum}");
 }
 
+// Two cases: each side's date, window, peers and unlevered beta are printed under it, the
+// peers aggregated on one side only are named, and a cost of debt built as rf + spread is
+// said to carry part of a risk-free change (found by review of a quarter's roll-forward).
+// The demo's figures (README, The demo case): valuation date 2026-09-30, monthly returns over
+// five years, eight peers, unlevered beta 0.784 (0.7842…, result.json), target D/E 0.40.
+#[test]
+fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
+    let (_dir, case_dir) = demo_copy();
+    let text_of_case = std::fs::read_to_string(case_dir.join("case.toml")).unwrap();
+    // The demo case ends with its eight [[peer]] blocks, Ivelbrook Instruments last.
+    let last = text_of_case.rfind("[[peer]]").unwrap();
+    let fewer = text_of_case[..last]
+        .replacen("source = \"given\"", "source = \"rating\"", 1)
+        .replacen("risk_free_rate = 0.0267", "risk_free_rate = 0.03", 1);
+    std::fs::write(case_dir.join("b.toml"), fewer).unwrap();
+    let a = case_dir.join("case.toml");
+    let b = case_dir.join("b.toml");
+    let output = hurdle(&["compare", a.to_str().unwrap(), b.to_str().unwrap()]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert!(
+        report.contains(
+            "     valuation date 2026-09-30, monthly returns 2021-09-30 to 2026-09-30, 8 peers \
+             aggregated, unlevered beta 0.784 at target D/E 0.400\n"
+        ),
+        "{report}"
+    );
+    assert!(report.contains(", 7 peers aggregated, "), "{report}");
+    assert!(
+        report.contains(&format!(
+            "note: the peer sets differ: aggregated only in {}: Ivelbrook Instruments; only in {}: none",
+            a.display(),
+            b.display()
+        )),
+        "{report}"
+    );
+    assert!(
+        report.contains("part of the cost of debt line is the change in the risk-free rate"),
+        "{report}"
+    );
+    // A claim has no such facts and no such notes.
+    let claim = case_dir.join("claimed.toml");
+    let report = text(&hurdle(&[
+        "compare",
+        a.to_str().unwrap(),
+        claim.to_str().unwrap(),
+    ]));
+    assert_eq!(report.matches("     valuation date").count(), 1, "{report}");
+    assert!(!report.contains("peer sets differ"), "{report}");
+}
+
 // Leases at their default cost take the pre-tax cost of debt (README, `[leases]`), 4.63% in
 // the demo and 5% with it raised; the bridge moves them with the weights step and says so.
 #[test]

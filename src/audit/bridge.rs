@@ -130,8 +130,50 @@ fn neither_case_nor_claim(table: &toml::Table) -> std::result::Result<(), String
     ))
 }
 
+/// What a case side is beyond its build-up, for telling two cases apart (a case rolled forward
+/// against its earlier self): its date, window, peers and unlevered beta. A claim has none.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CaseFacts {
+    pub valuation_date: chrono::NaiveDate,
+    pub frequency: String,
+    pub window: (chrono::NaiveDate, chrono::NaiveDate),
+    /// The peers in the aggregate, in the case's order.
+    pub peers_included: Vec<String>,
+    pub unlevered_beta: f64,
+    pub target_debt_to_equity: f64,
+    /// The pre-tax cost of debt is the risk-free rate plus a spread (a rating or coverage
+    /// table), so the rate moves it too.
+    pub debt_on_risk_free: bool,
+}
+
+impl CaseFacts {
+    fn of(valuation: &crate::valuation::Valuation) -> CaseFacts {
+        let cost = &valuation.cost;
+        CaseFacts {
+            valuation_date: valuation.case.valuation_date,
+            frequency: crate::case::label(&valuation.sampling.frequency),
+            window: (
+                valuation.sampling.window_start,
+                valuation.sampling.window_end,
+            ),
+            peers_included: (valuation.peers.iter())
+                .filter(|p| p.excluded_reason.is_none())
+                .map(|p| p.name.clone())
+                .collect(),
+            unlevered_beta: cost.beta.unlevered,
+            target_debt_to_equity: cost.target.debt_to_equity,
+            debt_on_risk_free: cost.cost_of_debt.risk_free_rate.is_some(),
+        }
+    }
+}
+
 /// Reads one side: a TOML file with a `[claimed]` table, or else a case file (which is run).
 pub fn read_side(path: &Path, written: &str) -> Result<Side> {
+    Ok(read_side_with_facts(path, written)?.0)
+}
+
+/// [`read_side`], with the facts of a case side.
+pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<CaseFacts>)> {
     let fail = |message: String| Error::Case {
         file: path.to_path_buf(),
         message,
@@ -151,8 +193,8 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         let valuation = value(&load_inputs(case)?, "")?;
         let mut side = Side::from_valuation(&valuation.case.title, &valuation);
         side.source = written.to_string();
-        side.sha256 = valuation.case.sha256;
-        return Ok(side);
+        side.sha256 = valuation.case.sha256.clone();
+        return Ok((side, Some(CaseFacts::of(&valuation))));
     }
     crate::case::sanity::check_claimed_text(&text).map_err(fail)?;
     let claimed = toml::from_str::<ClaimedFile>(&text)
@@ -202,7 +244,7 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         lease_weight,
         lease_cost_pre_tax,
     };
-    Ok(Side {
+    let side = Side {
         label: claimed.label,
         source: written.to_string(),
         sha256: sha256_hex(&bytes),
@@ -210,7 +252,8 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
         stated_wacc: claimed.wacc,
         build_up,
         computed: false,
-    })
+    };
+    Ok((side, None))
 }
 
 /// Bridges `from` to `to`.

@@ -6,7 +6,7 @@
 
 use std::path::PathBuf;
 
-use hurdle::audit::bridge::{bridge, read_side, Bridge, Group};
+use hurdle::audit::bridge::{bridge, read_side_with_facts, Bridge, CaseFacts, Group};
 use hurdle::report::format::{basis_points, fixed, percent};
 
 #[derive(Debug, clap::Args)]
@@ -21,10 +21,13 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
-    let from = read_side(&args.from, &args.from.display().to_string())?;
-    let to = read_side(&args.to, &args.to.display().to_string())?;
+    let (from, from_facts) = read_side_with_facts(&args.from, &args.from.display().to_string())?;
+    let (to, to_facts) = read_side_with_facts(&args.to, &args.to.display().to_string())?;
     let result = bridge(&from, &to);
-    print!("{}", render(&result));
+    print!(
+        "{}",
+        render(&result, [from_facts.as_ref(), to_facts.as_ref()])
+    );
     if let Some(dir) = &args.out {
         let mut reads = Vec::new();
         for side in [&args.from, &args.to] {
@@ -43,7 +46,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     Ok(())
 }
 
-fn render(b: &Bridge) -> String {
+fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
     // A claim whose stated WACC its components do not give: both figures, named.
     let wacc = |side: &hurdle::audit::bridge::Side| match side.stated_wacc {
         Some(stated) if (stated - side.wacc).abs() >= 5e-6 => format!(
@@ -53,15 +56,29 @@ fn render(b: &Bridge) -> String {
         ),
         _ => format!("WACC {}", percent(side.wacc, 3)),
     };
-    let mut out = format!(
-        "from {} ({}) {}\n  to {} ({}) {}\n",
-        b.from.label,
-        b.from.source,
-        wacc(&b.from),
-        b.to.label,
-        b.to.source,
-        wacc(&b.to)
-    );
+    let mut out = String::new();
+    for ((word, side), facts) in [("from", &b.from), ("  to", &b.to)].into_iter().zip(facts) {
+        out.push_str(&format!(
+            "{word} {} ({}) {}\n",
+            side.label,
+            side.source,
+            wacc(side)
+        ));
+        if let Some(f) = facts {
+            out.push_str(&format!(
+                "     valuation date {}, {} returns {} to {}, {} peer{} aggregated, unlevered \
+                 beta {} at target D/E {}\n",
+                f.valuation_date,
+                f.frequency,
+                f.window.0,
+                f.window.1,
+                f.peers_included.len(),
+                if f.peers_included.len() == 1 { "" } else { "s" },
+                fixed(f.unlevered_beta, 3),
+                fixed(f.target_debt_to_equity, 3)
+            ));
+        }
+    }
     out.push_str(&format!(
         "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
         "input group", "from", "to", "WACC after", "step", "Shapley"
@@ -92,6 +109,45 @@ fn render(b: &Bridge) -> String {
         basis_points(b.difference)
     ));
     out.push_str(&notes(b));
+    if let [Some(from), Some(to)] = facts {
+        out.push_str(&case_notes(b, from, to));
+    }
+    out
+}
+
+/// Notes for two cases: the peers in one aggregate and not the other (they move the beta line
+/// through the unlevered beta), and a cost of debt built on the risk-free rate (a change in the
+/// rate then moves the cost of debt line too).
+fn case_notes(b: &Bridge, from: &CaseFacts, to: &CaseFacts) -> String {
+    let mut out = String::new();
+    let only = |a: &CaseFacts, other: &CaseFacts| -> Vec<String> {
+        (a.peers_included.iter())
+            .filter(|p| !other.peers_included.contains(p))
+            .cloned()
+            .collect()
+    };
+    let (gone, new) = (only(from, to), only(to, from));
+    if !gone.is_empty() || !new.is_empty() {
+        let list = |names: &[String]| match names.is_empty() {
+            true => "none".to_string(),
+            false => names.join(", "),
+        };
+        out.push_str(&format!(
+            "note: the peer sets differ: aggregated only in {}: {}; only in {}: {} (each moves \
+             the beta line through the unlevered beta, with the window and the data)\n",
+            b.from.source,
+            list(&gone),
+            b.to.source,
+            list(&new)
+        ));
+    }
+    let rates_differ = b.from.build_up.risk_free_rate != b.to.build_up.risk_free_rate;
+    if rates_differ && (from.debt_on_risk_free || to.debt_on_risk_free) {
+        out.push_str(
+            "note: a pre-tax cost of debt here is the risk-free rate plus a spread, so part of \
+             the cost of debt line is the change in the risk-free rate\n",
+        );
+    }
     out
 }
 
