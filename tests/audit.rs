@@ -597,6 +597,40 @@ fn a_new_run_takes_away_the_verification_of_the_receipt_it_replaces() {
     assert!(out.join("verification.json").exists());
 }
 
+// A run into a folder holding another valuation's receipt (a case rolled forward into last
+// quarter's folder) says which receipt it replaced; a rerun of the same valuation says
+// nothing. The demo's WACC is 7.38% (README, The demo case).
+#[test]
+fn a_run_says_when_it_replaces_another_valuation() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let case = case_dir.join("case.toml");
+    let run = |set: &[&str]| {
+        let mut args = vec![
+            "run",
+            case.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ];
+        for s in set {
+            args.extend(["--set", s]);
+        }
+        let output = hurdle(&args);
+        assert!(output.status.success(), "{}", text(&output));
+        text(&output)
+    };
+    run(&[]);
+    assert!(!run(&[]).contains("replaced the receipt"));
+    let moved = run(&["case.valuation_date=2026-06-30"]);
+    assert!(
+        moved.contains(&format!(
+            "replaced the receipt of another valuation: {}, valuation date 2026-09-30, WACC 7.38%",
+            case.display()
+        )),
+        "{moved}"
+    );
+}
+
 // A price file extended past the valuation date (a case rolled forward in place) is one
 // changed input whose check names its rows and last date; they are not listed again as
 // mismatched figures `files[…].rows` and `files[…].last_date` (README: a changed file is

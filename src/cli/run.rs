@@ -46,6 +46,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
+    let earlier = report::staging::earlier_receipt(&out);
     let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
     let stale = report::stale_run_outputs(&out, &names);
@@ -56,6 +57,19 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     print!("{}", summary(&valuation));
     for path in written {
         println!("  wrote {}", path.display());
+    }
+    if let Some(e) = earlier.filter(|e| {
+        e.valuation_date != valuation.case.valuation_date.to_string()
+            || e.case_file != valuation.case.file
+    }) {
+        println!(
+            "  replaced the receipt of another valuation: {}, valuation date {}{}",
+            e.case_file,
+            e.valuation_date,
+            e.wacc
+                .map(|w| format!(", WACC {}", percent(w, 2)))
+                .unwrap_or_default()
+        );
     }
     for name in &stale {
         let why = match report::VERIFICATION.contains(&name.as_str()) {

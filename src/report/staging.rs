@@ -64,6 +64,30 @@ pub fn write_outputs_replacing(
     Ok((stage.commit(&names)?, stale))
 }
 
+/// What the receipt an earlier run left in a folder records of its case: enough to say, when a
+/// new run replaces it, that it was another valuation (a case rolled forward into last
+/// quarter's folder, or another case's run into this one).
+#[derive(Debug, Clone, PartialEq)]
+pub struct EarlierReceipt {
+    pub case_file: String,
+    pub valuation_date: String,
+    pub wacc: Option<f64>,
+}
+
+/// The earlier run's receipt in `dir`, when there is one.
+pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
+    if !holds_an_earlier_run(dir) {
+        return None;
+    }
+    let bytes = fs::read(dir.join("result.json")).ok()?;
+    let receipt: serde_json::Value = serde_json::from_slice(&bytes).ok()?;
+    Some(EarlierReceipt {
+        case_file: receipt["case"]["file"].as_str()?.to_string(),
+        valuation_date: receipt["case"]["valuation_date"].as_str()?.to_string(),
+        wacc: receipt["wacc"].as_f64(),
+    })
+}
+
 /// Whether `dir` holds the receipt of an earlier hurdle run (a `result.json` whose `tool.name`
 /// is hurdle): only then are files there named as hurdle names its optional outputs taken to be
 /// that run's, and taken away when a run does not write them again. A folder of the user's own
