@@ -1275,6 +1275,51 @@ fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
     assert!(!report.contains("peer sets differ"), "{report}");
 }
 
+// A claim may say which date it speaks for; against a case of another valuation date, compare
+// and the run's reconciliation note that part of the gap is the dates' (found by review: a
+// roll-forward reconciled silently to last quarter's adviser figure). The demo's valuation
+// date is 2026-09-30 (README, The demo case).
+#[test]
+fn a_claim_of_another_date_is_noted() {
+    let (dir, case_dir) = demo_copy();
+    let claim = case_dir.join("claimed.toml");
+    let text_of_claim = std::fs::read_to_string(&claim).unwrap();
+    let dated = text_of_claim.replacen("wacc = 0.0935", "wacc = 0.0935\nas_of = 2026-06-30", 1);
+    assert_ne!(dated, text_of_claim);
+    std::fs::write(&claim, dated).unwrap();
+    let case = case_dir.join("case.toml");
+    let report = text(&hurdle(&[
+        "compare",
+        case.to_str().unwrap(),
+        claim.to_str().unwrap(),
+    ]));
+    assert!(
+        report.contains("WACC 9.283% from its components (stated 9.350%) as of 2026-06-30"),
+        "{report}"
+    );
+    assert!(
+        report.contains("is as of 2026-09-30 and Adviser's build-up (fictional) as of 2026-06-30"),
+        "{report}"
+    );
+    let result = run_case(&case, &dir.path().join("out"), &[]);
+    assert_eq!(result["reconciliation"]["to"]["as_of"], "2026-06-30");
+    assert!(result["reconciliation"]["from"].get("as_of").is_none());
+    assert!(
+        result["notes"].to_string().contains(
+            "this case is as of 2026-09-30 and Adviser's build-up (fictional) as of 2026-06-30"
+        ),
+        "{}",
+        result["notes"]
+    );
+    // The same date: no note.
+    let same = std::fs::read_to_string(&claim)
+        .unwrap()
+        .replace("2026-06-30", "2026-09-30");
+    std::fs::write(&claim, same).unwrap();
+    let result = run_case(&case, &dir.path().join("out2"), &[]);
+    assert!(!result["notes"].to_string().contains("is as of"));
+}
+
 // Leases at their default cost take the pre-tax cost of debt (README, `[leases]`), 4.63% in
 // the demo and 5% with it raised; the bridge moves them with the weights step and says so.
 #[test]

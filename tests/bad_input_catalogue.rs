@@ -1879,6 +1879,12 @@ fn claimed_files() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "claimed as_of not a date",
+            |s| claim(s, "beta = 1.10", "beta = 1.10\nas_of = \"last quarter\""),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            ["bad_claim.toml", "{next}", "last quarter"]
+        ),
+        bad!(
             "claimed beta missing",
             |s| claim(s, "beta = 1.10\n", ""),
             ["compare", "{case}", "{dir}/bad_claim.toml"],

@@ -35,6 +35,9 @@ struct Claimed {
     label: String,
     #[serde(default)]
     wacc: Option<f64>,
+    /// The date the build-up speaks for, when it says.
+    #[serde(default)]
+    as_of: Option<crate::case::CaseDate>,
     risk_free_rate: f64,
     equity_risk_premium: f64,
     beta: f64,
@@ -193,6 +196,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         let valuation = value(&load_inputs(case)?, "")?;
         let mut side = Side::from_valuation(&valuation.case.title, &valuation);
         side.source = written.to_string();
+        side.as_of = Some(valuation.case.valuation_date.to_string());
         side.sha256 = valuation.case.sha256.clone();
         return Ok((side, Some(CaseFacts::of(&valuation))));
     }
@@ -252,8 +256,24 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         stated_wacc: claimed.wacc,
         build_up,
         computed: false,
+        as_of: claimed.as_of.map(|d| d.to_string()),
     };
     Ok((side, None))
+}
+
+/// A note when the two sides speak for different dates (a claim's `as_of`, a case's valuation
+/// date): rates and premiums move between dates, so part of the gap is the date's.
+pub fn dates_note(from: &Side, to: &Side) -> Option<String> {
+    let (Some(a), Some(b)) = (&from.as_of, &to.as_of) else {
+        return None;
+    };
+    (a != b).then(|| {
+        format!(
+            "{} is as of {a} and {} as of {b}: rates, premiums and prices move between the two \
+             dates, so part of the gap between them is the dates'.",
+            from.label, to.label
+        )
+    })
 }
 
 /// Bridges `from` to `to`.
@@ -343,6 +363,7 @@ mod tests {
             stated_wacc: None,
             build_up,
             computed: false,
+            as_of: None,
         }
     }
 

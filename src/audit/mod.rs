@@ -64,7 +64,10 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);
         let claimed = bridge::read_side(&path, &reconcile.claimed)?;
-        let ours = bridge::Side::from_valuation("this case", &valuation);
+        let mut ours = bridge::Side::from_valuation("this case", &valuation);
+        ours.as_of = Some(valuation.case.valuation_date.to_string());
+        valuation.notes.extend(bridge::dates_note(&ours, &claimed));
+        ours.as_of = None;
         valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
     }
     crate::valuation::sanity::check_finite_figures(&valuation)?;

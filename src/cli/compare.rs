@@ -58,8 +58,12 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
     };
     let mut out = String::new();
     for ((word, side), facts) in [("from", &b.from), ("  to", &b.to)].into_iter().zip(facts) {
+        let dated = match (&side.as_of, facts) {
+            (Some(date), None) => format!(" as of {date}"),
+            _ => String::new(),
+        };
         out.push_str(&format!(
-            "{word} {} ({}) {}\n",
+            "{word} {} ({}) {}{dated}\n",
             side.label,
             side.source,
             wacc(side)
@@ -109,6 +113,9 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
         basis_points(b.difference)
     ));
     out.push_str(&notes(b));
+    if let Some(note) = hurdle::audit::bridge::dates_note(&b.from, &b.to) {
+        out.push_str(&format!("note: {note}\n"));
+    }
     if let [Some(from), Some(to)] = facts {
         out.push_str(&case_notes(b, from, to));
     }

@@ -319,6 +319,10 @@ pub struct Side {
     /// not a claim that states one.
     #[serde(skip)]
     pub computed: bool,
+    /// The date the side speaks for: a case's valuation date, a claim's `as_of` when it gives
+    /// one. Written when present (the case's own side leaves it to `case.valuation_date`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub as_of: Option<String>,
 }
 
 impl Side {
@@ -347,6 +351,7 @@ impl Side {
             stated_wacc: Some(c.wacc),
             build_up,
             computed: true,
+            as_of: None,
         }
     }
 }
