@@ -585,3 +585,21 @@ fn prices_repeated_by_a_vendor_are_flagged_as_zero_returns() {
         .contains("zero_returns"));
     reference_check(&dir.path().join("higher"), "zero returns, threshold 0.3");
 }
+
+// A daily sample is a price dated after the previous weekday (README, Sampling): at most two
+// days old (a Monday's from Saturday), so a staleness limit of two days or more never drops
+// one, and the run says so instead of presenting an inert check (found by review); a limit of
+// one day can still drop a Monday sample priced on a weekend, so it gets no such note.
+#[test]
+fn an_inert_daily_staleness_limit_is_noted() {
+    let daily = ["beta.frequency=daily", "beta.lookback=750"];
+    let notes = |days: &str| {
+        let dir = tempfile::tempdir().unwrap();
+        let limit = format!("beta.max_stale_days={days}");
+        let result = run_with(dir.path(), &[daily[0], daily[1], limit.as_str()]);
+        result["notes"].to_string()
+    };
+    assert!(notes("4").contains("beta.max_stale_days = 4 cannot drop a daily sample"));
+    assert!(notes("2").contains("beta.max_stale_days = 2 cannot drop a daily sample"));
+    assert!(!notes("1").contains("cannot drop a daily sample"));
+}

@@ -521,6 +521,19 @@ pub fn unused_beta_notes(beta: &crate::case::BetaSettings) -> Vec<String> {
             ));
         }
     }
+    // A daily sample takes only a price dated after the previous weekday (a Monday's from
+    // Saturday at the oldest), so no limit of two days or more can drop one.
+    if let Some(days) = beta
+        .max_stale_days
+        .filter(|d| *d >= 2 && beta.frequency == crate::market::sampling::Frequency::Daily)
+    {
+        notes.push(format!(
+            "beta.max_stale_days = {days} cannot drop a daily sample: a day's sample is a price \
+             dated after the previous weekday, at most 2 days old, so the stale_prices flag \
+             cannot fire; a thinly traded share shows in daily data as missing days, or as zero \
+             returns when its vendor repeats the last price (flag zero_returns)."
+        ));
+    }
     notes
 }
 
