@@ -211,7 +211,8 @@ fn estimate_peers_under(
             }
             Ok(()) => {}
         }
-        notes.extend(data_notes(&peer.name, &estimated, &spec));
+        let explained = notes.iter().any(|n| n.contains(TWO_RETURNS));
+        notes.extend(data_notes(&peer.name, &estimated, &spec, explained));
         peers.push(estimated);
     }
     Ok(PeerEstimates {
@@ -265,7 +266,17 @@ const ROLLING_SHIFT_Z: f64 = 1.96;
 
 /// The notes a reviewer should see about one peer's data: periods dropped, a rolling beta that
 /// moved by more than its error, and stale prices.
-fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -> Vec<String> {
+/// Why a missing price costs two returns: said once, in the first note that needs it.
+const TWO_RETURNS: &str = " A return needs a price at both ends of its period: a price missing \
+                           inside the window costs two returns, one missing before the data \
+                           start or after they end one each.";
+
+fn data_notes(
+    name: &str,
+    estimated: &SecurityEstimate,
+    spec: &EstimationSpec,
+    explained: bool,
+) -> Vec<String> {
     let mut notes = Vec::new();
     let d = estimated.dropped;
     if d.total > 0 {
@@ -277,13 +288,9 @@ fn data_notes(name: &str, estimated: &SecurityEstimate, spec: &EstimationSpec) -
         };
         // A missing price inside the window loses two returns: the one into its period and
         // the one out of it.
-        let why = match d.asset_missing + d.market_missing {
-            0 => "",
-            _ => {
-                " A return needs a price at both ends of its period: a price missing inside the \
-                 window costs two returns, one missing before the data start or after they end \
-                 one each."
-            }
+        let why = match (d.asset_missing + d.market_missing, explained) {
+            (0, _) | (_, true) => "",
+            _ => TWO_RETURNS,
         };
         notes.push(format!(
             "{name}: {} of {} periods dropped (peer price missing {}, index price missing {}, \
