@@ -17,12 +17,14 @@ mod common;
 
 use common::{hurdle, DEMO_CASE};
 
-/// One SVG element: its tag, attributes, text content and the classes of its group.
+/// One SVG element: its tag, attributes, text content, the tooltip of a label (a `<title>` as its
+/// first child) and the classes of its group.
 #[derive(Debug, Clone)]
 struct Element {
     tag: String,
     attributes: HashMap<String, String>,
     text: String,
+    tooltip: Option<String>,
     group: String,
 }
 
@@ -81,15 +83,23 @@ fn parse(svg: &str) -> Vec<Element> {
             continue;
         }
         let mut text = String::new();
+        let mut tooltip = None;
         if !closed && (name == "text" || name == "title" || name == "desc") {
             let close = rest.find(&format!("</{name}>")).unwrap();
-            text = unescape(rest[..close].trim());
+            let mut content = rest[..close].trim();
+            if let Some(inner) = content.strip_prefix("<title>") {
+                let (title, after) = inner.split_once("</title>").unwrap();
+                tooltip = Some(unescape(title));
+                content = after;
+            }
+            text = unescape(content.trim());
             rest = &rest[close..];
         }
         out.push(Element {
             tag: name,
             attributes,
             text,
+            tooltip,
             group: groups.last().cloned().unwrap_or_default(),
         });
     }
@@ -684,4 +694,269 @@ fn charts_are_byte_identical_across_runs_and_no_figures_writes_none() {
         "a text-only memo links no chart"
     );
     assert!(Path::new(&text_only.dir.path().join("memo.md")).is_file());
+}
+
+/// The horizontal extent of a label, estimated as the charts lay text out: 0.6 em a character
+/// (DejaVu Sans, the widest common system sans-serif, averages about that; frame.rs), 4% more
+/// for bold (as the chart titles are fitted), placed by its `text-anchor`. A rotated label
+/// (the y axis titles) has no horizontal extent to speak of and is skipped.
+fn text_extent(e: &Element) -> Option<(f64, f64)> {
+    if e.tag != "text" || e.attributes.contains_key("transform") {
+        return None;
+    }
+    let size = e.number("font-size");
+    let bold = e.attributes.get("font-weight").is_some_and(|w| w == "bold");
+    let width = e.text.chars().count() as f64 * size * 0.6 * if bold { 1.04 } else { 1.0 };
+    let x = e.number("x");
+    Some(match e.attributes.get("text-anchor").map(String::as_str) {
+        Some("end") => (x - width, x),
+        Some("middle") => (x - width / 2.0, x + width / 2.0),
+        _ => (x, x + width),
+    })
+}
+
+/// No label of the chart `file` runs past its left or right edge (the SVG's own width), by the
+/// estimate above; no tolerance: a chart that fits its text by the estimate never needs one.
+fn check_text_fits(file: &str, svg: &[Element]) {
+    let width = svg.iter().find(|e| e.tag == "svg").unwrap().number("width");
+    for e in svg {
+        if let Some((left, right)) = text_extent(e) {
+            assert!(
+                left >= 0.0 && right <= width,
+                "{file}: \"{}\" spans {left:.0} to {right:.0} px of {width}",
+                e.text
+            );
+        }
+    }
+}
+
+/// Two invented names sharing their first 42 characters, and one of 108.
+const NORTH: &str = "Caddlewick Precision Flow Control Holdings North America";
+const EUROPE: &str = "Caddlewick Precision Flow Control Holdings Europe";
+const VERY_LONG: &str = "Fallowmoor Very Long Name Engineering Consolidated Worldwide Limited \
+                         Partnership (Registered Holding Company) Ltd";
+const CLAIM: &str = "Invented adviser build-up for the large review case";
+const REASON: &str = "Invented: a pending merger distorts its prices since 2025; left out on \
+                      judgement.";
+
+/// The demo case copied into `root/case` with 22 more invented peers (30 in all), each on a
+/// demo peer's prices scaled (a file of its own; the same returns), two of them `NORTH` and
+/// `EUROPE`, the last excluded by hand for `REASON`; and the claim labelled `CLAIM`.
+fn thirty_peer_case(root: &Path) -> std::path::PathBuf {
+    let case = root.join("case");
+    common::copy_demo_case(&case);
+    let mut toml = std::fs::read_to_string(case.join("case.toml")).unwrap();
+    let files: Vec<String> = toml
+        .lines()
+        .filter_map(|l| l.strip_prefix("prices = \"data/peers/"))
+        .map(|l| format!("data/peers/{}", l.trim_end_matches('"')))
+        .collect();
+    assert_eq!(files.len(), 8, "the demo has eight peers");
+    let mut names = vec![NORTH.to_string(), EUROPE.to_string()];
+    names.extend((3..=22).map(|k| format!("Invented Added Peer {k:02}")));
+    for (k, name) in names.iter().enumerate() {
+        let source = &files[k % files.len()];
+        let text = std::fs::read_to_string(case.join(source)).unwrap();
+        let file = format!("data/peers/added-{k:02}.csv");
+        let factor = 1.0 + 0.5 * (k + 1) as f64;
+        std::fs::write(case.join(&file), common::scaled_prices(&text, factor)).unwrap();
+        toml.push_str(&format!(
+            "\n[[peer]]\nname = \"{name}\"\nprices = \"{file}\"\nequity_value = 1000.0\n\
+             debt = 300.0\ncash = 50.0\ntax_rate = 0.25\n"
+        ));
+        if k == names.len() - 1 {
+            toml.push_str(&format!("exclude = \"{REASON}\"\n"));
+        }
+    }
+    std::fs::write(case.join("case.toml"), toml).unwrap();
+    let claimed = std::fs::read_to_string(case.join("claimed.toml")).unwrap();
+    let claimed = claimed.replace(
+        "label = \"Adviser's build-up (fictional)\"",
+        &format!("label = \"{CLAIM}\""),
+    );
+    assert!(claimed.contains(CLAIM));
+    std::fs::write(case.join("claimed.toml"), claimed).unwrap();
+    case.join("case.toml")
+}
+
+/// The drawn labels of `svg` that carry a tooltip, as (drawn, tooltip).
+fn tooltips(svg: &[Element]) -> Vec<(String, String)> {
+    svg.iter()
+        .filter_map(|e| Some((e.text.clone(), e.tooltip.clone()?)))
+        .collect()
+}
+
+// Thirty peers: the betas and the rolling betas come in parts small enough to print legibly,
+// every part linked from the memo and inlined in the report, every peer drawn exactly once;
+// names shortened in the middle stay apart and keep the whole name as a tooltip; the claim's
+// label and the exclusion reason fit; no label runs off any chart. A smaller run into the
+// same folder then takes the extra parts away.
+#[test]
+fn a_large_peer_set_is_drawn_in_legible_parts_with_distinct_labels() {
+    let root = tempfile::tempdir().unwrap();
+    let case = thirty_peer_case(root.path());
+    let out = root.path().join("out");
+    let run = |case: &str| {
+        let output = hurdle(&["run", case, "--out", out.to_str().unwrap()]);
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+    };
+    run(case.to_str().unwrap());
+    let figures = out.join("figures");
+    let read = |file: &str| parse(&std::fs::read_to_string(figures.join(file)).unwrap());
+    let mut files: Vec<String> = std::fs::read_dir(&figures)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    files.sort();
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    for file in &files {
+        assert!(memo.contains(&format!("](figures/{file})")), "memo: {file}");
+        assert!(
+            report.contains(&format!("data-file=\"figures/{file}\"")),
+            "report: {file}"
+        );
+        check_text_fits(file, &read(file));
+    }
+
+    // Parts: stability.svg first, then stability-2.svg, … numbered without gaps; each peer's
+    // panel (class panel-N, N its place in the case) in exactly one part.
+    let parts = |stem: &str| -> Vec<String> {
+        let mut parts = vec![format!("{stem}.svg")];
+        while files.contains(&format!("{stem}-{}.svg", parts.len() + 1)) {
+            parts.push(format!("{stem}-{}.svg", parts.len() + 1));
+        }
+        let all = files.iter().filter(|f| f.starts_with(stem)).count();
+        assert_eq!(
+            all,
+            parts.len(),
+            "{stem}: parts numbered 2, 3, … without gaps"
+        );
+        parts
+    };
+    let stability = parts("stability");
+    assert!(stability.len() > 1, "30 panels do not fit one printed page");
+    let mut panels = Vec::new();
+    for part in &stability {
+        let svg = read(part);
+        let titles: Vec<&Element> = svg
+            .iter()
+            .filter(|e| e.tag == "text" && e.group.starts_with("panel-title "))
+            .collect();
+        // Four rows of two 190-px panels (with the bands, about 1,000 px) still print at about
+        // nine tenths of the page width; more would shrink the text below legibility.
+        assert!(titles.len() <= 8, "{part}: {} panels", titles.len());
+        panels.extend(titles.iter().map(|e| e.group.clone()));
+    }
+    let expected: Vec<String> = (1..=30).map(|n| format!("panel-title panel-{n}")).collect();
+    assert_eq!(panels, expected, "each peer's panel once, in case order");
+
+    // Betas: every peer's row once across the parts (the same order as on one chart), each part
+    // short enough to print on a page (the print styles cap a chart at 240 mm, 938 px at the
+    // page's 720-px width): no part may be taller than that.
+    let betas = parts("betas");
+    assert!(betas.len() > 1);
+    let mut dots = 0;
+    for part in &betas {
+        let svg = read(part);
+        dots += in_group(&svg, "raw-beta").len();
+        let height = svg
+            .iter()
+            .find(|e| e.tag == "svg")
+            .unwrap()
+            .number("height");
+        assert!(height <= 938.0, "{part}: {height} px high");
+    }
+    assert_eq!(dots, 30);
+
+    // Names sharing their first 42 characters are drawn differently, each with its whole name
+    // as the tooltip, in the betas chart, the rolling-beta panels and the regression titles.
+    let labelled = |files: &[String]| -> Vec<(String, String)> {
+        files.iter().flat_map(|f| tooltips(&read(f))).collect()
+    };
+    let regressions: Vec<String> = files
+        .iter()
+        .filter(|f| f.starts_with("regression-"))
+        .cloned()
+        .collect();
+    for (chart, labels) in [
+        ("betas", labelled(&betas)),
+        ("stability", labelled(&stability)),
+        ("regression", labelled(&regressions)),
+    ] {
+        let drawn = |full: &str| -> String {
+            let hits: Vec<&(String, String)> =
+                labels.iter().filter(|(_, t)| t.contains(full)).collect();
+            assert_eq!(hits.len(), 1, "{chart}: one label with the tooltip {full}");
+            hits[0].0.clone()
+        };
+        let (north, europe) = (drawn(NORTH), drawn(EUROPE));
+        assert_ne!(north, europe, "{chart}");
+        for (shown, full) in [(&north, NORTH), (&europe, EUROPE)] {
+            assert!(shown.contains('…'), "{chart}: {shown}");
+            // The drawn start and end are the name's own.
+            let name_part = shown.split(": regression").next().unwrap();
+            let (start, end) = name_part.split_once('…').unwrap();
+            assert!(
+                full.starts_with(start) && full.ends_with(end),
+                "{chart}: {shown}"
+            );
+        }
+    }
+
+    // The claim's label: cut with an ellipsis, ": WACC" kept, the whole label the tooltip.
+    let bridge = read("reconciliation.svg");
+    let claim = tooltips(&bridge)
+        .into_iter()
+        .find(|(_, t)| t == &format!("{CLAIM}: WACC"))
+        .expect("the claim's label has its tooltip");
+    assert!(claim.0.ends_with("…: WACC") && CLAIM.starts_with(claim.0.split('…').next().unwrap()));
+
+    // The exclusion reason, wrapped under the name: every word of it drawn (it fits three lines),
+    // and whole in the tooltip.
+    let last = read(betas.last().unwrap());
+    let reason: Vec<&Element> = in_group(&last, "y-axis")
+        .into_iter()
+        // The reason's small text, not the divider's bold note.
+        .filter(|e| e.tag == "text" && e.attributes["font-size"] == "11")
+        .filter(|e| !e.attributes.contains_key("font-weight"))
+        .collect();
+    assert_eq!(reason[0].tooltip.as_deref(), Some(REASON));
+    let drawn: Vec<&str> = reason.iter().map(|e| e.text.as_str()).collect();
+    assert_eq!(drawn.join(" "), REASON);
+
+    // A run of the eight-peer demo into the same folder leaves one betas and one stability
+    // chart: the earlier run's extra parts are taken away.
+    run(DEMO_CASE);
+    for stem in ["betas", "stability"] {
+        let left: Vec<String> = std::fs::read_dir(&figures)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .filter(|f| f.starts_with(stem))
+            .collect();
+        assert_eq!(left, [format!("{stem}.svg")]);
+    }
+}
+
+// One peer with a 108-character name: its rolling-beta panel title (the panel is the chart's
+// full width) and the other charts' labels stay inside the chart, and the demo's own charts do.
+#[test]
+fn long_names_and_the_demo_labels_stay_inside_their_charts() {
+    let name = format!("peer.0.name=\"{VERY_LONG}\"");
+    for run in [Run::new(&[]), Run::new(&["--set", &name])] {
+        for file in run.files() {
+            check_text_fits(&file, &run.svg(&file));
+        }
+    }
+    let run = Run::new(&["--set", &name]);
+    let stability = run.svg("stability.svg");
+    let title = stability
+        .iter()
+        .find(|e| e.tooltip.as_deref() == Some(VERY_LONG))
+        .expect("the panel title's tooltip holds the whole name");
+    assert!(title.text.contains('…'));
 }

@@ -10,8 +10,8 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::axes::{plot_layer, Axes, Scale};
-use super::canvas::{shorten, wrap, Canvas};
-use super::frame::{square, triangle, Layout, Mark};
+use super::canvas::{shorten, shorten_middle, wrap, Canvas};
+use super::frame::{fit, square, triangle, Layout, Mark};
 use super::style::{self, ACCENT, INK, MUTED, NEUTRAL, PRIMARY, RULE};
 use super::{Figure, Kind};
 use crate::case::Adjustment;
@@ -26,9 +26,15 @@ const ROW: f64 = 40.0;
 const EXCLUDED_ROW: f64 = 1.5;
 /// Width of the band of peer names.
 const NAMES: u32 = 210;
-/// The characters of a name that fit the band (up to about 8.5 px each at the label size, for
-/// capitals); a longer name is cut with an ellipsis, whole in the description.
-const NAME_CHARS: usize = 24;
+/// The most row units (a peer 1, an excluded one [`EXCLUDED_ROW`], the divider half a unit) one
+/// chart holds: a longer list goes on in `betas-2.svg`, … so each part prints on a page at a
+/// legible size (the print styles cap a chart at 240 mm: with the title, legend, axis and caption
+/// bands, about 15 rows of 40 px make a chart of some 900 px, 720 wide, which fills the page
+/// width at that height).
+const ROWS_PER_PART: f64 = 15.0;
+/// The most lines an exclusion reason takes under the peer's name (a row and a half holds three
+/// lines of small text).
+const REASON_LINES: usize = 3;
 
 /// One peer's row: its position on the y axis (row units, downward negative).
 struct Row<'a> {
@@ -36,10 +42,59 @@ struct Row<'a> {
     y: f64,
 }
 
-/// The peers' betas chart.
-pub fn draw(valuation: &Valuation) -> Result<Figure> {
-    let (rows, divider, bottom) = rows(&valuation.peers);
+/// The peers' betas chart: one figure, or with many peers several parts (`betas.svg`,
+/// `betas-2.svg`, …) of consecutive rows on one shared β axis.
+pub fn draw(valuation: &Valuation) -> Result<Vec<Figure>> {
+    let parts = parts(&valuation.peers);
+    let count = parts.len();
+    (parts.iter().enumerate())
+        .map(|(k, part)| draw_part(valuation, part, (k, count)))
+        .collect()
+}
+
+/// The peers in row order (included in case order, then the excluded), cut into parts of at
+/// most [`ROWS_PER_PART`] row units.
+fn parts(peers: &[PeerResult]) -> Vec<Vec<&PeerResult>> {
+    let order = (peers.iter().filter(|p| p.excluded_reason.is_none()))
+        .chain(peers.iter().filter(|p| p.excluded_reason.is_some()));
+    let mut parts: Vec<Vec<&PeerResult>> = vec![Vec::new()];
+    let mut used = 0.0;
+    for peer in order {
+        let units = |part: &[&PeerResult]| match peer.excluded_reason {
+            None => 1.0,
+            // The first excluded row of a part comes under the divider.
+            Some(_) if part.iter().all(|p| p.excluded_reason.is_none()) => EXCLUDED_ROW + 0.5,
+            Some(_) => EXCLUDED_ROW,
+        };
+        let last = parts.last().expect("one part at least");
+        if !last.is_empty() && used + units(last) > ROWS_PER_PART {
+            parts.push(Vec::new());
+            used = 0.0;
+        }
+        let last = parts.last_mut().expect("one part at least");
+        used += units(last);
+        last.push(peer);
+    }
+    parts
+}
+
+/// The file name of part `k` (from 0): `betas.svg`, then `betas-2.svg`, ….
+pub fn part_name(k: usize) -> String {
+    match k {
+        0 => super::BETAS.to_string(),
+        k => format!("{}{}.svg", super::BETAS_PART_PREFIX, k + 1),
+    }
+}
+
+/// Part `k` of `count` of the chart, with the rows of `peers`.
+fn draw_part(
+    valuation: &Valuation,
+    peers: &[&PeerResult],
+    (k, count): (usize, usize),
+) -> Result<Figure> {
+    let (rows, divider, bottom) = rows(peers);
     let cash = valuation.cost.beta.uses_operations_beta;
+    // The β axis spans every peer's marks, so all parts share one scale.
     let values = valuation.peers.iter().flat_map(|p| {
         [
             p.estimate.beta_ci_low,
@@ -59,12 +114,23 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         bottom: 50,
         y_ticks: false,
     };
-    let title = "Peer betas with their 95% confidence intervals".to_string();
-    let caption = caption(valuation);
+    let mut title = "Peer betas with their 95% confidence intervals".to_string();
+    let mut caption = caption(valuation);
+    if count > 1 {
+        title.push_str(&format!(" (part {} of {count})", k + 1));
+        caption.push_str(&format!(
+            " Part {} of {count}: the rows {}, on the same β axis.",
+            k + 1,
+            match k + 1 == count {
+                true => "continue from the part before",
+                false => "continue in the next part",
+            }
+        ));
+    }
     let plot = ((-bottom) * ROW) as u32 + 60;
     let legend = legend(valuation, cash, aggregate);
     let layout = Layout::new(WIDTH, plot, &title, &legend, &caption);
-    let name = super::BETAS.to_string();
+    let name = part_name(k);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
@@ -81,9 +147,13 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         "{caption} {}",
         data_summary(&rows, |p| unlevered(p, cash), cash)
     );
+    let id = match k {
+        0 => "betas".to_string(),
+        k => format!("betas-{}", k + 1),
+    };
     Ok(Figure {
         kind: Kind::Betas,
-        svg: canvas.finish("betas", &title, &description),
+        svg: canvas.finish(&id, &title, &description),
         file_name: name,
         title,
         caption,
@@ -133,6 +203,8 @@ fn names(
     rows: &[Row],
     divider: Option<f64>,
 ) -> Result<()> {
+    // Each label drawn shorter than its text, with the whole text, for its tooltip.
+    let mut labels: Vec<(String, String)> = Vec::new();
     canvas.layer("y-axis", |root| {
         let (_, plot_area, _) = layout.split(root);
         let chart = axes.chart(&plot_area)?;
@@ -141,18 +213,17 @@ fn names(
         for row in rows {
             let (left, y) = chart.backend_coord(&(axes.x.range.start, row.y));
             let x = left - 12;
-            root.draw_text(&shorten(&row.peer.name, NAME_CHARS), &name_style, (x, y))?;
+            // The band left of the plot, by the estimated advance of the characters (frame.rs).
+            let room = f64::from(x - style::MARGIN);
+            let name = shorten_middle(&row.peer.name, fit(room, style::LABEL));
+            root.draw_text(&name, &name_style, (x, y))?;
+            labels.push((name, row.peer.name.clone()));
             if let Some(reason) = &row.peer.excluded_reason {
-                let lines = wrap(reason, 34);
-                for (i, line) in lines.iter().take(2).enumerate() {
-                    // A reason longer than two lines ends in an ellipsis (whole in the
-                    // description).
-                    let line = match i == 1 && lines.len() > 2 {
-                        true => shorten(&format!("{line} {}", lines[2]), 34),
-                        false => line.clone(),
-                    };
-                    root.draw_text(&line, &reason_style, (x, y + 10 + 13 * i as i32))?;
+                let lines = reason_lines(reason, fit(room, style::SMALL));
+                for (i, line) in lines.iter().enumerate() {
+                    root.draw_text(line, &reason_style, (x, y + 10 + 13 * i as i32))?;
                 }
+                labels.push((lines[0].clone(), reason.clone()));
             }
         }
         if let Some(divider) = divider {
@@ -167,7 +238,29 @@ fn names(
         }
         Ok(())
     })?;
+    for (shown, full) in &labels {
+        canvas.tooltip(shown, full);
+    }
     Ok(())
+}
+
+/// The lines of an exclusion reason under the name, at most [`REASON_LINES`] of `width`
+/// characters; the library's wording of a flag rule ("flag-based rule beta.exclude_flags:
+/// too_few_observations") is written "flag: too_few_observations", since the flags are what
+/// the lines are for (the whole reason is their tooltip and in the description).
+fn reason_lines(reason: &str, width: usize) -> Vec<String> {
+    let text = match reason.strip_prefix("flag-based rule beta.exclude_flags: ") {
+        Some(flags) => format!("flag: {flags}"),
+        None => reason.to_string(),
+    };
+    let mut lines = wrap(&text, width);
+    if lines.len() > REASON_LINES {
+        let rest = lines[REASON_LINES - 1..].join(" ");
+        lines.truncate(REASON_LINES - 1);
+        lines.push(shorten(&rest, width));
+    }
+    // A word longer than the line is cut too.
+    lines.iter().map(|line| shorten(line, width)).collect()
 }
 
 /// The reference line at 1, the aggregate line, and each row's interval and markers.
@@ -246,28 +339,31 @@ fn unlevered(peer: &PeerResult, cash: bool) -> f64 {
     }
 }
 
-/// The rows, included peers first in case order, then the excluded ones below a divider; with
-/// the divider's position (when any peer is excluded) and the axis bottom.
-fn rows(peers: &[PeerResult]) -> (Vec<Row<'_>>, Option<f64>, f64) {
+/// The rows of `peers` (given in row order: included, then excluded), with the divider's
+/// position (above the first excluded peer, if any) and the axis bottom.
+fn rows<'a>(peers: &[&'a PeerResult]) -> (Vec<Row<'a>>, Option<f64>, f64) {
     let mut rows = Vec::with_capacity(peers.len());
     // `y` is the marker line of the last row placed; a row's slot is ±0.5 around it.
     let mut y = 0.0;
-    for peer in peers.iter().filter(|p| p.excluded_reason.is_none()) {
-        y -= 1.0;
-        rows.push(Row { peer, y });
-    }
     let mut divider = None;
-    for peer in peers.iter().filter(|p| p.excluded_reason.is_some()) {
-        if divider.is_none() {
+    let mut reason_below = 0.0;
+    for &peer in peers {
+        if peer.excluded_reason.is_some() && divider.is_none() {
             divider = Some(y - 0.75);
             y -= 0.5;
         }
         y -= 1.0;
         rows.push(Row { peer, y });
-        // Room below the name for the reason.
-        y -= EXCLUDED_ROW - 1.0;
+        reason_below = 0.0;
+        if peer.excluded_reason.is_some() {
+            // Room below the name for the reason.
+            y -= EXCLUDED_ROW - 1.0;
+            reason_below = 0.35;
+        }
     }
-    (rows, divider, y - 0.6)
+    // The last row's reason, three lines of small text (47 px, 1.2 units), needs more room
+    // above the axis than a row's half unit: only when the last row is an excluded peer.
+    (rows, divider, y - 0.6 - reason_below)
 }
 
 fn used_label(valuation: &Valuation) -> &'static str {

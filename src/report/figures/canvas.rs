@@ -65,6 +65,21 @@ impl Canvas {
         Ok(())
     }
 
+    /// Gives the first drawn label reading `shown` that has no tooltip yet a `<title>` holding
+    /// `full` (its first child, so a browser shows it on hover and a screen reader reads it):
+    /// the whole text of a label shortened to fit. Nothing happens when `shown` is `full`.
+    pub fn tooltip(&mut self, shown: &str, full: &str) {
+        if shown == full {
+            return;
+        }
+        // plotters writes a label as `<text …>`, the escaped text on a line of its own, `</text>`.
+        let drawn = format!(">\n{}\n</text>", escape(shown));
+        if let Some(at) = self.body.find(&drawn) {
+            self.body
+                .insert_str(at + 2, &format!("<title>{}</title>", escape(full)));
+        }
+    }
+
     fn error(&self, layer: &str, message: &str) -> Error {
         Error::Figure {
             name: self.name.clone(),
@@ -115,6 +130,41 @@ pub fn shorten(text: &str, width: usize) -> String {
     format!("{}…", kept.trim_end())
 }
 
+/// `text` cut to at most `width` characters by leaving out its middle, marked by an ellipsis:
+/// the start and the end are kept ("Caddlewick Precision…North America"), so names that share a
+/// long start (a group's regional companies, share classes) still read differently.
+pub fn shorten_middle(text: &str, width: usize) -> String {
+    let count = text.chars().count();
+    if count <= width {
+        return text.to_string();
+    }
+    let chars: Vec<char> = text.chars().collect();
+    let kept = width.saturating_sub(1);
+    // The start takes the larger half: it names the firm, the end tells it from its siblings.
+    let mut head = kept.div_ceil(2);
+    // Each part ends (or starts) at a space rather than inside a word when that keeps at least
+    // half of it: "Caddlewick…North America" reads better than "Caddlewick P…rth America". What
+    // the start gives up goes to the end.
+    if !chars[head].is_whitespace() {
+        if let Some(space) = chars[..head].iter().rposition(|c| c.is_whitespace()) {
+            if space >= head / 2 {
+                head = space;
+            }
+        }
+    }
+    let mut tail = count - (kept - head);
+    if tail > 0 && !chars[tail - 1].is_whitespace() {
+        if let Some(space) = chars[tail..].iter().position(|c| c.is_whitespace()) {
+            if space <= (count - tail) / 2 {
+                tail += space + 1;
+            }
+        }
+    }
+    let start: String = chars[..head].iter().collect();
+    let end: String = chars[tail..].iter().collect();
+    format!("{}…{}", start.trim_end(), end.trim_start())
+}
+
 /// Breaks `text` into lines of at most `width` characters at spaces (a longer word stands
 /// alone on its line).
 pub fn wrap(text: &str, width: usize) -> Vec<String> {
@@ -145,6 +195,43 @@ mod tests {
         assert_eq!(shorten("Corrowick Valves", 12), "Corrowick V…");
         assert_eq!(shorten("Corrowick Valves", 11), "Corrowick…");
         assert_eq!(shorten("Ünïcode names", 5), "Ünïc…");
+    }
+
+    #[test]
+    fn shortening_in_the_middle_keeps_both_ends() {
+        assert_eq!(shorten_middle("Corrowick Valves", 16), "Corrowick Valves");
+        let america = "Caddlewick Precision Flow Control Holdings North America";
+        let europe = "Caddlewick Precision Flow Control Holdings Europe";
+        assert_eq!(shorten_middle(america, 24), "Caddlewick…North America");
+        assert_eq!(shorten_middle(europe, 24), "Caddlewick…Europe");
+        assert_eq!(
+            shorten_middle(america, 40),
+            "Caddlewick Precision…North America"
+        );
+        for width in 3..40 {
+            assert!(shorten_middle(america, width).chars().count() <= width);
+        }
+    }
+
+    #[test]
+    fn a_tooltip_goes_on_the_label_that_reads_so() {
+        let mut canvas = Canvas::new("test.svg", 100, 50);
+        let style = style::text(style::LABEL, &style::INK);
+        canvas
+            .layer("names", |root| {
+                root.draw_text("A & B", &style, (0, 0))?;
+                root.draw_text("A & B", &style, (0, 20))
+            })
+            .unwrap();
+        canvas.tooltip("A & B", "A & B Holdings");
+        canvas.tooltip("A & B", "A & B Europe");
+        let svg = canvas.finish("t", "T", "D");
+        let first = svg.find("<title>A &amp; B Holdings</title>A &amp; B\n</text>");
+        let second = svg.find("<title>A &amp; B Europe</title>A &amp; B\n</text>");
+        assert!(
+            first.is_some() && second.is_some() && first < second,
+            "{svg}"
+        );
     }
 
     #[test]

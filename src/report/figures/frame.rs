@@ -30,15 +30,15 @@ pub struct Layout {
 
 /// Estimated advance of one character, in em: wide enough for the common system sans-serifs
 /// (DejaVu Sans, the widest of them, averages about 0.6 em), so wrapped text never overruns.
-const CHAR_EM: f64 = 0.6;
+pub const CHAR_EM: f64 = 0.6;
 
-/// How many characters of `px` text fit in `pixels`.
-fn fit(pixels: f64, px: f64) -> usize {
+/// How many characters of `px` text fit in `pixels` (bold text: `px` × 1.04, see the title).
+pub fn fit(pixels: f64, px: f64) -> usize {
     (pixels / (px * CHAR_EM)).floor().max(1.0) as usize
 }
 
 /// The estimated width in pixels of `text` at `px`.
-fn text_width(text: &str, px: f64) -> i32 {
+pub fn text_width(text: &str, px: f64) -> i32 {
     (text.chars().count() as f64 * px * CHAR_EM).ceil() as i32
 }
 

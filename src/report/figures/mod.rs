@@ -30,9 +30,12 @@ use crate::valuation::Valuation;
 pub const FOLDER: &str = "figures";
 
 /// The charts' file names in the output folder (a regression chart's continues with its number
-/// and the peer's slug); [`is_chart_name`] recognises exactly these.
+/// and the peer's slug; the betas and stability charts of many peers go on in parts 2, 3, … as
+/// `betas-2.svg`, `stability-2.svg`, …); [`is_chart_name`] recognises exactly these.
 pub const BETAS: &str = "figures/betas.svg";
 pub const STABILITY: &str = "figures/stability.svg";
+pub const BETAS_PART_PREFIX: &str = "figures/betas-";
+pub const STABILITY_PART_PREFIX: &str = "figures/stability-";
 pub const SENSITIVITY: &str = "figures/sensitivity.svg";
 pub const UNCERTAINTY: &str = "figures/uncertainty.svg";
 pub const RECONCILIATION: &str = "figures/reconciliation.svg";
@@ -71,24 +74,28 @@ pub struct Figure {
 pub fn draw_all(valuation: &Valuation) -> Result<Vec<Figure>> {
     use rayon::prelude::*;
     // Each chart is drawn on its own, so they are drawn side by side, kept in this order.
-    type Draw<'a> = Box<dyn Fn() -> Result<Figure> + Send + Sync + 'a>;
+    // A chart of many peers comes in parts (the betas and the rolling betas), so each draw
+    // gives one figure or several.
+    type Draw<'a> = Box<dyn Fn() -> Result<Vec<Figure>> + Send + Sync + 'a>;
+    let one = |figure: Result<Figure>| figure.map(|f| vec![f]);
     let mut draws: Vec<Draw> = vec![Box::new(|| betas::draw(valuation))];
     for index in 0..valuation.peers.len() {
-        draws.push(Box::new(move || regression::draw(valuation, index)));
+        draws.push(Box::new(move || one(regression::draw(valuation, index))));
     }
     if valuation.rolling.iter().any(|points| !points.is_empty()) {
         draws.push(Box::new(|| stability::draw(valuation)));
     }
     if let Some(grid) = &valuation.sensitivity {
-        draws.push(Box::new(move || sensitivity::draw(valuation, grid)));
+        draws.push(Box::new(move || one(sensitivity::draw(valuation, grid))));
     }
     if let Some(uncertainty) = &valuation.uncertainty {
-        draws.push(Box::new(move || uncertainty::draw(uncertainty)));
+        draws.push(Box::new(move || one(uncertainty::draw(uncertainty))));
     }
     if let Some(bridge) = &valuation.reconciliation {
-        draws.push(Box::new(move || reconciliation::draw(bridge)));
+        draws.push(Box::new(move || one(reconciliation::draw(bridge))));
     }
-    draws.par_iter().map(|draw| draw()).collect()
+    let drawn: Vec<Vec<Figure>> = draws.par_iter().map(|draw| draw()).collect::<Result<_>>()?;
+    Ok(drawn.into_iter().flatten().collect())
 }
 
 /// A link to a chart, as the memo template sees it.
@@ -101,12 +108,15 @@ pub struct Link {
 }
 
 /// The charts by kind, for the memo template (`figures.betas.path`, `figures.regression[i]`);
-/// every key is present, `null` or empty when the chart was not drawn.
+/// every key is present, `null` or empty when the chart was not drawn. A chart in parts has its
+/// first part under its own key and the others, in order, under `…_continued`.
 #[derive(Debug, Clone, Default, Serialize)]
 pub struct Index {
     pub betas: Option<Link>,
+    pub betas_continued: Vec<Link>,
     pub regression: Vec<Link>,
     pub stability: Option<Link>,
+    pub stability_continued: Vec<Link>,
     pub sensitivity: Option<Link>,
     pub uncertainty: Option<Link>,
     pub reconciliation: Option<Link>,
@@ -124,7 +134,9 @@ pub fn index(figures: &[Figure]) -> Index {
         };
         match figure.kind {
             Kind::Regression => index.regression.push(link),
+            Kind::Betas if index.betas.is_some() => index.betas_continued.push(link),
             Kind::Betas => index.betas = Some(link),
+            Kind::Stability if index.stability.is_some() => index.stability_continued.push(link),
             Kind::Stability => index.stability = Some(link),
             Kind::Sensitivity => index.sensitivity = Some(link),
             Kind::Uncertainty => index.uncertainty = Some(link),
@@ -135,11 +147,20 @@ pub fn index(figures: &[Figure]) -> Index {
 }
 
 /// Whether `name` (relative to the output folder) is named as `hurdle run` names a chart: one
-/// of the fixed names above, or `figures/regression-NN-<slug>.svg`. A run takes away such a file of an earlier run that it
-/// does not draw again; any other file in the folder is left alone.
+/// of the fixed names above, a later part `figures/betas-N.svg` or `figures/stability-N.svg`, or
+/// `figures/regression-NN-<slug>.svg`. A run takes away such a file of an earlier run that it
+/// does not draw again (so a smaller peer set leaves no part of a larger one behind); any other
+/// file in the folder is left alone.
 pub fn is_chart_name(name: &str) -> bool {
     if [BETAS, STABILITY, SENSITIVITY, UNCERTAINTY, RECONCILIATION].contains(&name) {
         return true;
+    }
+    let part = [BETAS_PART_PREFIX, STABILITY_PART_PREFIX]
+        .iter()
+        .find_map(|prefix| name.strip_prefix(prefix)?.strip_suffix(".svg"));
+    if let Some(number) = part {
+        return number.parse::<usize>().is_ok_and(|n| n >= 2)
+            && number.bytes().all(|b| b.is_ascii_digit());
     }
     let Some(rest) = name
         .strip_prefix(REGRESSION_PREFIX)
@@ -214,6 +235,8 @@ mod tests {
             "figures/regression-01-brenvale-fluid-systems.svg",
             "figures/regression-12.svg",
             "figures/reconciliation.svg",
+            "figures/betas-2.svg",
+            "figures/stability-12.svg",
         ] {
             assert!(is_chart_name(name), "{name}");
         }
@@ -223,6 +246,9 @@ mod tests {
             "figures/regression-1-a.svg",
             "figures/regression-01-Upper.svg",
             "figures/sub/betas.svg",
+            "figures/stability-1.svg",
+            "figures/stability-x.svg",
+            "figures/betas-+2.svg",
             "betas.svg",
             "report.html",
         ] {

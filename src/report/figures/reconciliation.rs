@@ -12,8 +12,8 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::axes::{plot_layer, Axes, Scale};
-use super::canvas::Canvas;
-use super::frame::{Layout, Mark};
+use super::canvas::{shorten, Canvas};
+use super::frame::{fit, text_width, Layout, Mark};
 use super::style::{self, ACCENT, INK, NEUTRAL, PAPER, PRIMARY};
 use super::{Figure, Kind};
 use crate::audit::bridge::Bridge;
@@ -50,6 +50,34 @@ fn name(bar: &WaterfallBar) -> String {
     text
 }
 
+/// The label band's width: at least [`GUTTER`], wider for a longer label up to [`MAX_GUTTER`].
+/// plotters ends a label [`LABEL_GAP`] px left of the plot, which starts a margin right of the
+/// band; the label's left end is kept a margin inside the chart.
+fn gutter(names: &[String]) -> u32 {
+    let widest = names
+        .iter()
+        .map(|n| text_width(n, style::TICK))
+        .max()
+        .unwrap_or(0);
+    (widest + LABEL_GAP).clamp(GUTTER as i32, MAX_GUTTER as i32) as u32
+}
+
+const GUTTER: u32 = 250;
+const MAX_GUTTER: u32 = 330;
+const LABEL_GAP: i32 = 10;
+
+/// A bar's label as drawn: whole when it fits the widest band, else cut with an ellipsis (a
+/// total keeps its ": WACC"); whole in the tooltip and the description.
+fn fitted(label: &str) -> String {
+    let room = fit(f64::from(MAX_GUTTER) - f64::from(LABEL_GAP), style::TICK);
+    match label.strip_suffix(": WACC") {
+        Some(total) if label.chars().count() > room => {
+            format!("{}: WACC", shorten(total, room.saturating_sub(6)))
+        }
+        _ => shorten(label, room),
+    }
+}
+
 /// The value written at a bar's end: a total's level, a step's size.
 fn value(bar: &WaterfallBar) -> String {
     match bar.kind {
@@ -78,14 +106,14 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
     let (low, high) = ends.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
         (lo.min(v), hi.max(v))
     });
-    let mut names: Vec<String> = bars.iter().map(name).collect();
-    names.reverse();
+    let full: Vec<String> = bars.iter().rev().map(name).collect();
+    let names: Vec<String> = full.iter().map(|n| fitted(n)).collect();
     let axes = Axes {
         x: Scale::percent(low, high, 0.25, 7),
-        y: Scale::categories(names),
+        y: Scale::categories(names.clone()),
         x_title: "WACC (%)".to_string(),
         y_title: String::new(),
-        left: 250,
+        left: gutter(&names),
         bottom: 50,
         y_ticks: true,
     };
@@ -118,6 +146,9 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
+    for (shown, full) in names.iter().zip(&full) {
+        canvas.tooltip(shown, full);
+    }
     plot(&mut canvas, &layout, &axes, bars, (&span, cut))?;
     let description = format!("{caption} {}", data_summary(bridge));
     Ok(Figure {

@@ -10,7 +10,7 @@
 use plotters::prelude::*;
 
 use super::axes::{extent, plot_layer, Axes, Scale};
-use super::canvas::{shorten, Canvas};
+use super::canvas::{shorten_middle, Canvas};
 use super::frame::{Layout, Mark};
 use super::style::{ACCENT, BAND, FLAG, NEUTRAL, PRIMARY};
 use super::{per_period, slug, Figure, Kind};
@@ -74,10 +74,18 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
     ));
     // The drawn title fits the chart's width (a name cut with an ellipsis); the SVG's own
     // title and the report keep it whole.
-    let drawn = format!("{}: regression on the index", shorten(&peer.name, 40));
+    // Shortened in the middle, so peers whose names share a long start stay apart; the whole
+    // name is the first title line's tooltip.
+    let drawn = format!(
+        "{}: regression on the index",
+        shorten_middle(&peer.name, 40)
+    );
     let layout = Layout::new(WIDTH, PLOT, &drawn, &legend, &caption);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
+    if drawn != title {
+        canvas.tooltip(&layout.title[0], &title);
+    }
     axes.draw(&mut canvas, &layout)?;
     plot(&mut canvas, &layout, &axes, (&x, &y), line, flagged)?;
     let id = format!("regression-{:02}", index + 1);

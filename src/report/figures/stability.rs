@@ -13,8 +13,8 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::style::FontTransform;
 
 use super::axes::{Axes, Chart, Scale};
-use super::canvas::{shorten, Area, Canvas, Drawn};
-use super::frame::{Layout, Mark};
+use super::canvas::{shorten_middle, Area, Canvas, Drawn};
+use super::frame::{fit, Layout, Mark};
 use super::style::{self, ACCENT, BAND, INK, MUTED, PRIMARY};
 use super::{Figure, Kind};
 use crate::beta::rolling::RollingPoint;
@@ -127,22 +127,65 @@ fn panel_axes(valuation: &Valuation) -> (Vec<Axes>, bool) {
     (each, shared)
 }
 
-/// The rolling-beta chart.
-pub fn draw(valuation: &Valuation) -> Result<Figure> {
-    let peers = &valuation.peers;
-    let columns = if peers.len() > 1 { 2 } else { 1 };
-    let panel_rows = peers.len().div_ceil(columns);
+/// The most panels one chart holds: more peers go on in `stability-2.svg`, … (four rows of two
+/// panels of 190 px, with the title, legend and caption bands, make a chart of about 1,000 px by
+/// 720 that prints at about nine tenths of the page width under the print styles' 240 mm cap;
+/// a larger set, squeezed onto one page, printed at a quarter of that).
+const PANELS_PER_PART: usize = 8;
+
+/// The rolling-beta chart: one figure, or with more than [`PANELS_PER_PART`] peers several
+/// parts (`stability.svg`, `stability-2.svg`, …) on the same scales.
+pub fn draw(valuation: &Valuation) -> Result<Vec<Figure>> {
+    let count = valuation.peers.len().div_ceil(PANELS_PER_PART).max(1);
     let (axes, shared) = panel_axes(valuation);
+    (0..count)
+        .map(|k| draw_part(valuation, (&axes, shared), (k, count)))
+        .collect()
+}
+
+/// The file name of part `k` (from 0): `stability.svg`, then `stability-2.svg`, ….
+pub fn part_name(k: usize) -> String {
+    match k {
+        0 => super::STABILITY.to_string(),
+        k => format!("{}{}.svg", super::STABILITY_PART_PREFIX, k + 1),
+    }
+}
+
+/// Part `k` of `count`: the panels of peers `k · PANELS_PER_PART` onward.
+fn draw_part(
+    valuation: &Valuation,
+    (axes, shared): (&[Axes], bool),
+    (k, count): (usize, usize),
+) -> Result<Figure> {
+    let peers = &valuation.peers;
+    let first = k * PANELS_PER_PART;
+    let last = (first + PANELS_PER_PART).min(peers.len());
+    let columns = if peers.len() > 1 { 2 } else { 1 };
+    let panel_rows = (last - first).div_ceil(columns);
     let s = &valuation.settings.beta;
     let window = peers
         .iter()
         .find_map(|p| p.stability.as_ref())
         .map(|st| st.window_periods);
-    let title = format!(
+    let mut title = format!(
         "Rolling {} betas through the window",
         super::method_name(valuation.estimator.method)
     );
-    let caption = caption(valuation, window, s.rolling_step, shared);
+    let mut caption = caption(valuation, window, s.rolling_step, shared);
+    if count > 1 {
+        title.push_str(&format!(" (part {} of {count})", k + 1));
+        caption.push_str(&format!(
+            " Part {} of {count}: peers {} to {} of {}{}.",
+            k + 1,
+            first + 1,
+            last,
+            peers.len(),
+            match shared {
+                true => ", on the same scales as the other parts",
+                false => "",
+            }
+        ));
+    }
     let legend = vec![
         (Mark::Line(PRIMARY), "rolling β".to_string()),
         (Mark::Swatch(BAND), "95% interval, β ± t·SE".to_string()),
@@ -155,7 +198,7 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
         &legend,
         &caption,
     );
-    let name = super::STABILITY.to_string();
+    let name = part_name(k);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     canvas.layer("axis-titles", |root| {
@@ -180,18 +223,24 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     })?;
     let grid = Panels {
         layout: &layout,
-        axes: &axes[..],
+        axes,
         rows: panel_rows,
         columns,
+        first,
     };
-    for (i, (peer, points)) in peers.iter().zip(&valuation.rolling).enumerate() {
+    let panels = peers.iter().zip(&valuation.rolling).enumerate();
+    for (i, (peer, points)) in panels.take(last).skip(first) {
         grid.frame(&mut canvas, i, &peer.name, points.is_empty())?;
         grid.data(&mut canvas, i, peer.estimate.beta, points)?;
     }
-    let description = format!("{caption} {}", data_summary(valuation));
+    let description = format!("{caption} {}", data_summary(&peers[first..last]));
+    let id = match k {
+        0 => "stability".to_string(),
+        k => format!("stability-{}", k + 1),
+    };
     Ok(Figure {
         kind: Kind::Stability,
-        svg: canvas.finish("stability", &title, &description),
+        svg: canvas.finish(&id, &title, &description),
         file_name: name,
         title,
         caption,
@@ -199,13 +248,14 @@ pub fn draw(valuation: &Valuation) -> Result<Figure> {
     })
 }
 
-/// The grid of small panels in the plot band, one per peer in peer order.
+/// The grid of small panels in the plot band, one per peer in peer order, from peer `first`.
 struct Panels<'a> {
     layout: &'a Layout,
-    /// Panel i's scale.
+    /// Peer i's scale (every peer's, not only this part's).
     axes: &'a [Axes],
     rows: usize,
     columns: usize,
+    first: usize,
 }
 
 impl Panels<'_> {
@@ -224,7 +274,7 @@ impl Panels<'_> {
             let (grid, _) = plot.split_vertically(height - X_TITLE);
             let (_, grid) = grid.split_horizontally(Y_TITLE.min(width));
             let panels = grid.split_evenly((self.rows, self.columns));
-            let (title_band, body) = panels[i].split_vertically(22);
+            let (title_band, body) = panels[i - self.first].split_vertically(22);
             let mut chart = self.axes[i].chart(&body)?;
             draw(&title_band, &mut chart)
         })
@@ -232,22 +282,28 @@ impl Panels<'_> {
 
     /// Panel `i`'s title, grid and axes.
     fn frame(&self, canvas: &mut Canvas, i: usize, name: &str, empty: bool) -> Result<()> {
+        let shown = std::cell::RefCell::new(String::new());
         self.layer(canvas, i, "panel-title", &|band, _| {
             let name_style = style::bold(style::LABEL, &INK).pos(Pos::new(HPos::Left, VPos::Top));
-            // About 8 px a bold character: a longer name is cut to the panel's width with an
-            // ellipsis (whole in the description).
-            let room = (band.dim_in_pixel().0 as usize).saturating_sub(2 * style::MARGIN as usize);
-            band.draw_text(&shorten(name, room / 8), &name_style, (style::MARGIN, 4))?;
+            // A longer name is shortened in the middle to the panel's width by the estimated
+            // advance of bold characters (frame.rs, as for the chart's title), whole in the
+            // tooltip and the description.
+            let room = f64::from(band.dim_in_pixel().0) - 2.0 * f64::from(style::MARGIN);
+            let text = shorten_middle(name, fit(room, style::LABEL * 1.04));
+            band.draw_text(&text, &name_style, (style::MARGIN, 4))?;
+            *shown.borrow_mut() = text;
             if empty {
+                // Inside the plot, right of the y axis's labels.
                 let note = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
                 band.draw_text(
                     "no window with enough observations",
                     &note,
-                    (style::MARGIN, 60),
+                    (style::MARGIN + self.axes[i].left as i32 + 8, 60),
                 )?;
             }
             Ok(())
         })?;
+        canvas.tooltip(&shown.into_inner(), name);
         self.layer(canvas, i, "grid", &|_, chart| {
             chart
                 .configure_mesh()
@@ -360,9 +416,8 @@ fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) 
     )
 }
 
-fn data_summary(valuation: &Valuation) -> String {
-    valuation
-        .peers
+fn data_summary(peers: &[crate::valuation::PeerResult]) -> String {
+    peers
         .iter()
         .map(|p| match &p.stability {
             Some(s) => format!(
