@@ -130,6 +130,19 @@ fn list(lines: &[&str]) -> String {
     format!("<ul>{body}</ul>")
 }
 
+/// A cell a line break would garble: an interval (`[1.364, 1.562]`) or an ISO date, which a
+/// browser otherwise breaks at the comma or the hyphen when a long name narrows its column.
+fn unbreakable(text: &str) -> bool {
+    let text = text.trim();
+    let interval = text.starts_with('[') && text.ends_with(']') && text.len() <= 32;
+    let date = text.len() == 10
+        && text.char_indices().all(|(i, c)| match i {
+            4 | 7 => c == '-',
+            _ => c.is_ascii_digit(),
+        });
+    interval || date
+}
+
 /// A pipe table: header row, delimiter row (with `:` for alignment), body rows.
 fn table(lines: &[&str]) -> String {
     let rows: Vec<Vec<String>> = lines.iter().map(|l| cells(l)).collect();
@@ -155,11 +168,11 @@ fn table(lines: &[&str]) -> String {
         })
         .collect();
     let cell = |tag: &str, i: usize, text: &str| {
-        format!(
-            "<{tag}{}>{}</{tag}>",
-            align.get(i).copied().unwrap_or(""),
-            inline(text)
-        )
+        let class = match align.get(i).copied().unwrap_or("") {
+            "" if unbreakable(text) => " class=\"keep\"",
+            class => class,
+        };
+        format!("<{tag}{class}>{}</{tag}>", inline(text))
     };
     let mut html = String::from("<div class=\"table\"><table>");
     if rows[0].iter().any(|c| !c.is_empty()) {
@@ -333,6 +346,26 @@ mod tests {
             panic!("a table: {b:?}")
         };
         assert!(html.contains("<td><code>a|b.csv</code></td>"), "{html}");
+    }
+
+    // An interval and an ISO date are kept on one line; a name or a hash may wrap.
+    #[test]
+    fn intervals_and_dates_are_kept_whole() {
+        let html = table(&[
+            "| Peer | 95% CI | Date | SHA-256 |",
+            "|---|---|---|---|",
+            "| A long name | [1.364, 1.562] | 2021-01-04 | 3fb9d096 |",
+        ]);
+        assert!(
+            html.contains("<td class=\"keep\">[1.364, 1.562]</td>"),
+            "{html}"
+        );
+        assert!(
+            html.contains("<td class=\"keep\">2021-01-04</td>"),
+            "{html}"
+        );
+        assert!(html.contains("<td>A long name</td>") && html.contains("<td>3fb9d096</td>"));
+        assert!(!unbreakable("2021-1-04") && !unbreakable("[a long list of many, many words]"));
     }
 
     // The constructs of CommonMark 0.31 / GFM tables that the memo uses, with the HTML those

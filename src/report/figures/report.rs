@@ -163,6 +163,7 @@ table { border-collapse: collapse; font-size: 0.87rem; font-variant-numeric: tab
 th, td { padding: 0.3rem 0.6rem; border-bottom: 1px solid var(--rule); text-align: left; vertical-align: top; }
 th { background: var(--wash); font-weight: 600; border-bottom: 2px solid #C5CDD6; }
 td.num, th.num { text-align: right; white-space: nowrap; }
+td.keep { white-space: nowrap; }
 tbody tr:nth-child(even) td { background: #FAFBFC; }
 .gallery { margin: 1rem 0 1.5rem; }
 .gallery.two { display: grid; grid-template-columns: repeat(auto-fit, minmax(min(30rem, 100%), 1fr)); gap: 1rem; }
