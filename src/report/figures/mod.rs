@@ -185,6 +185,8 @@ pub fn slug(name: &str) -> String {
     for c in name.chars() {
         if c.is_ascii_alphanumeric() {
             out.push(c.to_ascii_lowercase());
+        } else if let Some(letters) = latin_letters(c) {
+            out.push_str(letters);
         } else if !out.ends_with('-') && !out.is_empty() {
             out.push('-');
         }
@@ -194,6 +196,36 @@ pub fn slug(name: &str) -> String {
         out.pop();
     }
     out
+}
+
+/// The plain letters a file name writes for a Latin letter with a diacritic or a ligature
+/// (Ø → o, ß → ss), so `Wexcombe-Ørsby` keeps its letters in a chart's file name; `None` for
+/// anything else.
+fn latin_letters(c: char) -> Option<&'static str> {
+    const FOLDS: [(&str, &str); 15] = [
+        ("àáâãäåāăą", "a"),
+        ("çćĉċč", "c"),
+        ("ďđ", "d"),
+        ("èéêëēĕėęě", "e"),
+        ("ĝğġģ", "g"),
+        ("ìíîïĩīĭįı", "i"),
+        ("ĺļľŀł", "l"),
+        ("ñńņňŉ", "n"),
+        ("òóôõöøōŏő", "o"),
+        ("ŕŗř", "r"),
+        ("śŝşšș", "s"),
+        ("ţťŧț", "t"),
+        ("ùúûüũūŭůűų", "u"),
+        ("ýÿŷ", "y"),
+        ("źżž", "z"),
+    ];
+    const LIGATURES: [(char, &str); 4] = [('ß', "ss"), ('æ', "ae"), ('œ', "oe"), ('þ', "th")];
+    let lower = c.to_lowercase().next()?;
+    if let Some((_, letters)) = LIGATURES.iter().find(|(l, _)| *l == lower) {
+        return Some(letters);
+    }
+    let (_, letter) = FOLDS.iter().find(|(set, _)| set.contains(lower))?;
+    Some(letter)
 }
 
 /// An estimator's name as a reader writes it.
@@ -259,7 +291,9 @@ mod tests {
     #[test]
     fn slugs_are_safe_file_names() {
         assert_eq!(slug("Brenvale Fluid Systems"), "brenvale-fluid-systems");
-        assert_eq!(slug("  Ö&Co. (holdings)"), "co-holdings");
+        assert_eq!(slug("  Ö&Co. (holdings)"), "o-co-holdings");
+        assert_eq!(slug("Wexcombe-Ørsby Straße"), "wexcombe-orsby-strasse");
+        assert_eq!(slug("Żółw Ýmir"), "zolw-ymir");
         assert_eq!(slug("***"), "");
     }
 }
