@@ -674,6 +674,11 @@ fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
             && !headline(&memo).contains("with the peer set resampled"),
         "{memo}"
     );
+    let chart = std::fs::read_to_string(dir.path().join("figures/betas.svg")).unwrap();
+    assert!(
+        chart.contains("of the 1 included unlevered beta, "),
+        "{chart}"
+    );
     let dir = tempfile::tempdir().unwrap();
     let sets: Vec<String> = (2..8).map(|i| format!("peer.{i}.exclude=test")).collect();
     let sets: Vec<&str> = sets.iter().map(String::as_str).collect();

@@ -393,10 +393,11 @@ fn caption(valuation: &Valuation) -> String {
         },
         label(&summary.aggregation),
         summary.peers_included,
-        if summary.uses_operations_beta {
-            "betas of the operations"
-        } else {
-            "unlevered betas"
+        match (summary.uses_operations_beta, summary.peers_included == 1) {
+            (true, false) => "betas of the operations",
+            (true, true) => "beta of the operations",
+            (false, false) => "unlevered betas",
+            (false, true) => "unlevered beta",
         },
         fixed(summary.unlevered, 3),
         fixed(summary.relevered, 3),
