@@ -392,6 +392,23 @@ mod tests {
         assert!((bridge.difference - (b.wacc() - a.wacc())).abs() < 1e-15);
     }
 
+    // A component the side holds is written with its cost, 0 included; one it does not hold is
+    // not written at all (so receipts of build-ups without them read as before).
+    #[test]
+    fn other_components_are_written_when_held() {
+        let held = BuildUp {
+            preferred_weight: 0.1,
+            preferred_cost: 0.0,
+            ..base()
+        };
+        let json = serde_json::to_value(held).unwrap();
+        assert_eq!(json["preferred_weight"], 0.1);
+        assert_eq!(json["preferred_cost"], 0.0);
+        assert!(json.get("lease_weight").is_none() && json.get("lease_cost_pre_tax").is_none());
+        let json = serde_json::to_value(base()).unwrap();
+        assert_eq!(json.as_object().unwrap().len(), 8, "{json}");
+    }
+
     // Symmetry (Shapley 1953): rf and ERP enter Ke as rf + β·ERP; with β = 1 in both sides and
     // equal changes in rf and ERP, the two groups are interchangeable players and must get
     // equal values. Dummy player: a group that does not change gets 0.

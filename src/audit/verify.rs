@@ -170,6 +170,10 @@ pub struct Verification {
     /// Descriptions of settings ([`WORDING_KEYS`]) that read differently: not figures, and
     /// they do not make `reproduced` false.
     pub wording_differences: Vec<Mismatch>,
+    /// Figures the verifying version writes and the receipt's (another version) never did, by
+    /// path: not compared, and they do not make `reproduced` false.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub added_by_this_version: Vec<String>,
     pub recorded_tool_version: String,
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
@@ -185,6 +189,29 @@ pub struct Verification {
 }
 
 impl Verification {
+    /// The figures this version adds, in words (empty when there are none): not in the
+    /// receipt another version wrote, so not compared.
+    pub fn added_note(&self) -> String {
+        if self.added_by_this_version.is_empty() {
+            return String::new();
+        }
+        const SHOWN: usize = 8;
+        let list = &self.added_by_this_version;
+        let more = match list.len() > SHOWN {
+            true => format!(" and {} more", list.len() - SHOWN),
+            false => String::new(),
+        };
+        format!(
+            "{} figure{} that hurdle {} writes and the receipt, written by hurdle {}, does not \
+             have (not compared; they do not count against the verification): {}{more}",
+            list.len(),
+            if list.len() == 1 { "" } else { "s" },
+            self.current_tool_version,
+            self.recorded_tool_version,
+            list[..list.len().min(SHOWN)].join(", ")
+        )
+    }
+
     /// The input files (the case or universe file among them) whose SHA-256 differs.
     pub fn changed_inputs(&self) -> usize {
         usize::from(!self.case_unchanged) + self.files.iter().filter(|f| !f.unchanged).count()
@@ -401,6 +428,8 @@ pub fn verify(
     let files = file_checks(&recorded, &rerun);
 
     let mut found = compare(&recorded, &recomputed, tolerance);
+    let recorded_version = text("/tool/version").unwrap_or_default();
+    let added = found.settle_added(recorded_version == env!("CARGO_PKG_VERSION"));
     // A changed or moved data file is reported once, by its file check.
     (found.mismatches).retain(|m| !files::reported_with_its_file(&m.path, &recorded, &files));
     found.mismatches.sort_by_key(|m| m.rank());
@@ -419,7 +448,8 @@ pub fn verify(
         compared: found.compared,
         mismatches: found.mismatches,
         wording_differences: found.wording,
-        recorded_tool_version: text("/tool/version").unwrap_or_default(),
+        added_by_this_version: added,
+        recorded_tool_version: recorded_version,
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
         headline,

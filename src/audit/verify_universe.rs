@@ -50,7 +50,9 @@ pub fn verify_universe(
     let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
     let files = file_checks(recorded, &rerun);
-    let found = compare(recorded, &recomputed, tolerance);
+    let mut found = compare(recorded, &recomputed, tolerance);
+    let recorded_version = text("/tool/version").unwrap_or_default().to_string();
+    let added = found.settle_added(recorded_version == env!("CARGO_PKG_VERSION"));
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
@@ -64,7 +66,8 @@ pub fn verify_universe(
         compared: found.compared,
         mismatches: found.mismatches,
         wording_differences: found.wording,
-        recorded_tool_version: text("/tool/version").unwrap_or_default().to_string(),
+        added_by_this_version: added,
+        recorded_tool_version: recorded_version,
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
         headline: Vec::new(),

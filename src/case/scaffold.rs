@@ -285,8 +285,8 @@ const BETA_KEYS: &[(&str, &str, &str)] = &[
     ),
     (
         "flag_zero_return_share",
-        "flag a peer with more zero returns than this share (the default)",
-        "0.2",
+        "flag a peer with more zero returns than this share",
+        "",
     ),
     (
         "exclude_flags",

@@ -256,8 +256,6 @@ pub struct BetaSettings {
     /// price.
     pub flag_stale_share: f64,
     /// Flag `zero_returns` when more than this share of a peer's returns are exactly zero.
-    /// Written to a receipt only when not the default, so receipts of earlier versions verify.
-    #[serde(skip_serializing_if = "is_default_zero_return_share")]
     pub flag_zero_return_share: f64,
     /// Peers raising any of these flags are left out of the aggregation (still shown).
     pub exclude_flags: Vec<PeerFlag>,
@@ -352,10 +350,6 @@ impl Default for BetaSettings {
 /// hurdle's choice: a fifth of the returns unchanged is far above what a traded share shows at
 /// any frequency, and below the thin trading that biases a daily beta visibly.
 const DEFAULT_ZERO_RETURN_SHARE: f64 = 0.2;
-
-fn is_default_zero_return_share(share: &f64) -> bool {
-    *share == DEFAULT_ZERO_RETURN_SHARE
-}
 
 /// `[leverage]`: unlevering, aggregating and relevering.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

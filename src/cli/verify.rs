@@ -123,6 +123,9 @@ fn render(r: &Verification) -> String {
     if !r.wording_differences.is_empty() {
         out.push_str(&format!("  note: {}\n", r.wording_note()));
     }
+    if !r.added_by_this_version.is_empty() {
+        out.push_str(&format!("  note: {}\n", r.added_note()));
+    }
     out.push_str(&format!("  note: {}\n", r.not_compared));
     if !r.headline.is_empty() {
         out.push_str(&format!("  {}\n", r.headline_summary()));

@@ -245,6 +245,10 @@ fn estimate_columns(t: &mut Table, rows: &[SecurityResult]) {
 /// Flags, the adjustment, the firm's structure and the unlevered betas.
 fn capital_columns(t: &mut Table, rows: &[SecurityResult]) {
     t.number("stale_share", rows.iter().map(|r| r.stale_share));
+    t.number(
+        "zero_return_share",
+        rows.iter().map(|r| r.zero_return_share),
+    );
     t.text(
         "flags",
         rows.iter()

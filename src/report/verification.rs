@@ -103,6 +103,9 @@ pub fn markdown(r: &Verification) -> String {
     if !r.wording_differences.is_empty() {
         let _ = writeln!(w, "\nWorded differently: {}.", r.wording_note());
     }
+    if !r.added_by_this_version.is_empty() {
+        let _ = writeln!(w, "\nAdded since the receipt: {}.", r.added_note());
+    }
     let _ = writeln!(w, "\n{}.", r.not_compared);
     let _ = writeln!(
         w,

@@ -75,6 +75,7 @@ pub struct Estimated {
     pub estimate: BetaEstimate,
     pub periods_in_window: usize,
     pub stale_share: f64,
+    pub zero_return_share: f64,
     pub flags: Vec<PeerFlag>,
     /// The flags `beta.exclude_flags` names: the security stays out of the aggregates.
     pub excluding_flags: Vec<PeerFlag>,
@@ -191,6 +192,7 @@ impl Estimation {
                     estimate: e.estimate,
                     periods_in_window: e.periods_in_window,
                     stale_share: e.stale_share,
+                    zero_return_share: e.zero_return_share,
                     flags: e.flags,
                     excluding_flags: e.excluding_flags,
                     stability: e.stability.filter(|_| self.rolling),

@@ -74,6 +74,7 @@ pub struct SecurityResult {
     pub not_estimated_detail: Option<String>,
     pub flags: Vec<PeerFlag>,
     pub stale_share: Option<f64>,
+    pub zero_return_share: Option<f64>,
     /// Why the security is left out of the aggregates (`beta.exclude_flags`), or `None`.
     pub excluded_reason: Option<String>,
     /// The flags that exclude it: those it raises that `beta.exclude_flags` lists.
@@ -135,12 +136,12 @@ pub fn security_row(
     attributes: Option<&AttributeRecord>,
     settings: &RowSettings<'_>,
 ) -> SecurityResult {
-    let (estimate, flags, stale_share, excluding_flags, stability, not_estimated) =
+    let (estimate, flags, shares, excluding_flags, stability, not_estimated) =
         match &estimated.outcome {
             Ok(e) => (
                 Some(e.estimate.clone()),
                 e.flags.clone(),
-                Some(e.stale_share),
+                Some((e.stale_share, e.zero_return_share)),
                 e.excluding_flags.clone(),
                 e.stability.clone(),
                 None,
@@ -181,7 +182,8 @@ pub fn security_row(
         not_estimated: not_estimated.as_ref().map(|(r, _)| *r),
         not_estimated_detail: not_estimated.map(|(_, d)| d),
         flags,
-        stale_share,
+        stale_share: shares.map(|s| s.0),
+        zero_return_share: shares.map(|s| s.1),
         excluded_reason,
         excluding_flags,
         shrunk_beta: adjusted.and_then(|a| a.shrunk),

@@ -168,7 +168,7 @@ pub struct Specification {
 }
 
 /// The components of a WACC build-up.
-#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct BuildUp {
     pub risk_free_rate: f64,
     pub equity_risk_premium: f64,
@@ -182,20 +182,54 @@ pub struct BuildUp {
     pub debt_weight: f64,
     /// Preferred equity and lease liabilities (0 when a side has neither): in the WACC so the
     /// bridge and `implied` use the case's own formula, and moved with the weights group.
-    /// Written to `result.json` only when above 0, so a receipt of a build-up without them
-    /// reads as before.
-    #[serde(skip_serializing_if = "is_zero")]
     pub preferred_weight: f64,
-    #[serde(skip_serializing_if = "is_zero")]
     pub preferred_cost: f64,
-    #[serde(skip_serializing_if = "is_zero")]
     pub lease_weight: f64,
-    #[serde(skip_serializing_if = "is_zero")]
     pub lease_cost_pre_tax: f64,
 }
 
-fn is_zero(x: &f64) -> bool {
-    *x == 0.0
+/// Written with each other component's weight and cost only when the side holds it (weight
+/// above 0, its cost then always, 0 included), so a receipt of a build-up without them reads
+/// as before.
+impl Serialize for BuildUp {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        let mut map = serializer.serialize_map(None)?;
+        let fields = [
+            ("risk_free_rate", self.risk_free_rate),
+            ("equity_risk_premium", self.equity_risk_premium),
+            ("beta", self.beta),
+            ("premiums", self.premiums),
+            ("cost_of_debt_pre_tax", self.cost_of_debt_pre_tax),
+            ("tax_rate", self.tax_rate),
+            ("equity_weight", self.equity_weight),
+            ("debt_weight", self.debt_weight),
+        ];
+        for (key, value) in fields {
+            map.serialize_entry(key, &value)?;
+        }
+        let others = [
+            (
+                "preferred_weight",
+                "preferred_cost",
+                self.preferred_weight,
+                self.preferred_cost,
+            ),
+            (
+                "lease_weight",
+                "lease_cost_pre_tax",
+                self.lease_weight,
+                self.lease_cost_pre_tax,
+            ),
+        ];
+        for (weight_key, cost_key, weight, cost) in others {
+            if weight > 0.0 {
+                map.serialize_entry(weight_key, &weight)?;
+                map.serialize_entry(cost_key, &cost)?;
+            }
+        }
+        map.end()
+    }
 }
 
 impl BuildUp {

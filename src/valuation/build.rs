@@ -306,6 +306,7 @@ pub fn peer_results(
                 excluded_reason,
                 vasicek: adjusted.vasicek,
                 stale_share: estimated.stale_share,
+                zero_return_share: estimated.zero_return_share,
                 flags: estimated.flags.clone(),
                 stability: estimated.stability.clone(),
                 fitted_line: estimated.fitted_line.clone(),

@@ -103,6 +103,8 @@ pub struct PeerResult {
     pub vasicek: Option<beta::vasicek::Shrunk>,
     /// Share of the window's periods dropped because the peer's price was stale.
     pub stale_share: f64,
+    /// Share of the returns used that are exactly zero (flag `zero_returns`).
+    pub zero_return_share: f64,
     /// Diagnostic warnings (see README, "Diagnostics").
     pub flags: Vec<PeerFlag>,
     /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).

@@ -191,9 +191,6 @@ def load_case(out_dir, result, given):
     return path
 
 
-ECHOED_WHEN_SET = {("beta", "flag_zero_return_share")}
-
-
 def compare_with_echo(result):
     """Extra check: every setting used here against hurdle's echo of it (result["settings"])."""
     echo = result["settings"]
@@ -203,10 +200,6 @@ def compare_with_echo(result):
                 continue  # resolved into result["sampling"] and checked there
             ours = setting(section, key)
             theirs = echo.get(section, {}).get(key)
-            # README "[beta]": a setting added after a receipt format was fixed is echoed only
-            # when it differs from its default, so older receipts still verify.
-            if (section, key) in ECHOED_WHEN_SET and theirs is None:
-                theirs = DEFAULTS[section][key]
             if isinstance(ours, (dt.date, dt.datetime)):
                 ours = ours.isoformat()
             if isinstance(ours, (int, float)) and not isinstance(ours, bool) and theirs is not None:
@@ -845,7 +838,9 @@ def check_diagnostics(name, peer, data, asset, market, result):
     # README "[beta]", flag_zero_return_share: the share of the returns used (raw, before the
     # risk-free rate) that are exactly zero.
     raw = [float(r["asset_return"]) for r in data]
-    if raw and sum(1 for x in raw if x == 0.0) / len(raw) > setting("beta", "flag_zero_return_share"):
+    zero_share = sum(1 for x in raw if x == 0.0) / len(raw) if raw else 0.0
+    check(f"{name} zero_return_share", peer["zero_return_share"], zero_share)
+    if zero_share > setting("beta", "flag_zero_return_share"):
         expected.append("zero_returns")
     checks += 1
     if peer["flags"] != expected:

@@ -278,8 +278,8 @@ def securities(config, folder):
                 row["flags"].add("low_r_squared")
             # zero_returns when more than flag_zero_return_share (default 0.2) of the returns
             # used are exactly zero.
-            zeros = sum(1 for a, _ in pairs if a == 0.0)
-            if zeros / len(pairs) > beta.get("flag_zero_return_share", 0.2):
+            row["zero_return_share"] = sum(1 for a, _ in pairs if a == 0.0) / len(pairs)
+            if row["zero_return_share"] > beta.get("flag_zero_return_share", 0.2):
                 row["flags"].add("zero_returns")
         result[security] = row
     return result
@@ -378,7 +378,7 @@ def main():
         got = listed[security]
         for key in ("observations", "beta", "beta_std_error", "alpha", "alpha_std_error",
                     "r_squared", "beta_ci_low", "beta_ci_high", "durbin_watson",
-                    "debt_to_equity", "unlevered_beta", "operations_beta"):
+                    "debt_to_equity", "unlevered_beta", "operations_beta", "zero_return_share"):
             check.same(f"{security} {key}", row.get(key), number(got[key]))
         # p-values relative only, without the floor (p-values of 1e-20 and below occur here and
         # would otherwise always pass). statrs and scipy agree far inside 1e-9 relative even in
@@ -387,7 +387,7 @@ def main():
         # most 4e-13 relative, at p = 7e-21).
         check.same(f"{security} beta_p_value", row.get("beta_p_value"), number(got["beta_p_value"]), floor=0.0)
         if "beta" in row:
-            # Both flags this check recomputes, and no other flag (staleness and exclusions are
+            # The flags this check recomputes, and no other flag (staleness and exclusions are
             # not implemented here and refused above).
             flagged = {f for f in got["flags"].split(";") if f}
             check.equal(f"{security} flags", sorted(row["flags"]), sorted(flagged))

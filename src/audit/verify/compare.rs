@@ -19,6 +19,24 @@ pub(crate) struct Comparison {
     pub mismatches: Vec<Mismatch>,
     /// Leaves under [`WORDING_KEYS`] whose text differs.
     pub wording: Vec<Mismatch>,
+    /// Keys the rerun writes and the receipt does not have at all (not `null`: absent). A
+    /// mismatch when the same version wrote the receipt; a figure the rerun's version adds when
+    /// another one did ([`Comparison::settle_added`]).
+    pub added: Vec<Mismatch>,
+}
+
+impl Comparison {
+    /// Settles the keys only the rerun has: mismatches when the receipt is of this very
+    /// version (the receipt was edited, or its figures lost), else figures this version adds,
+    /// returned by path.
+    pub fn settle_added(&mut self, same_version: bool) -> Vec<String> {
+        let added = std::mem::take(&mut self.added);
+        if same_version {
+            self.mismatches.extend(added);
+            return Vec::new();
+        }
+        added.into_iter().map(|m| m.place()).collect()
+    }
 }
 
 /// Compares every leaf of `recorded` with `recomputed`: numbers within `tolerance`
@@ -94,7 +112,18 @@ fn compare_at(
                 compare_at(value, next, place(key), tolerance, found);
             }
             for key in b.keys().filter(|k| !a.contains_key(*k)) {
-                compare_at(&Value::Null, &b[key], place(key), tolerance, found);
+                let at = place(key);
+                if b[key].is_null() || PLACES.contains(&at.path.as_str()) || key == "sha256" {
+                    compare_at(&Value::Null, &b[key], at, tolerance, found);
+                    continue;
+                }
+                found.compared += 1;
+                found.added.push(Mismatch {
+                    path: at.path,
+                    item: at.item,
+                    recorded: Value::Null,
+                    recomputed: b[key].clone(),
+                });
             }
             return;
         }
