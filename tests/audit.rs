@@ -583,18 +583,54 @@ fn a_new_run_takes_away_the_verification_of_the_receipt_it_replaces() {
             "{said}"
         );
     }
-    // A verification of a receipt elsewhere, written into this folder, is the user's: kept.
-    let other = dir.path().join("elsewhere");
-    run_case(&case, &other, &[]);
-    let verified = hurdle(&[
-        "verify",
-        other.join("result.json").to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
-    assert_eq!(verified.status.code(), Some(0), "{}", text(&verified));
-    run_case(&case, &out, &[]);
-    assert!(out.join("verification.json").exists());
+    // A verification of a receipt elsewhere, written into this folder, is the user's: kept,
+    // even when both receipts are `out/result.json` relative to the folders they were verified
+    // and run from (found by review: the path, resolved from another folder, matched).
+    let in_dir = |cwd: &Path, args: &[&str]| {
+        let output = std::process::Command::new(env!("CARGO_BIN_EXE_hurdle"))
+            .current_dir(cwd)
+            .args(args)
+            .output()
+            .unwrap();
+        assert!(
+            output.status.code().is_some_and(|c| c <= 1),
+            "{}",
+            text(&output)
+        );
+        text(&output)
+    };
+    let (a, b) = (dir.path().join("a"), dir.path().join("b"));
+    for (folder, premium) in [(&a, "0.05"), (&b, "0.055")] {
+        std::fs::create_dir_all(folder).unwrap();
+        let set = format!("market.equity_risk_premium={premium}");
+        in_dir(
+            folder,
+            &["run", case.to_str().unwrap(), "--out", "out", "--set", &set],
+        );
+    }
+    in_dir(&a, &["verify", "out/result.json", "--out", "../b/out"]);
+    let said = in_dir(&b, &["run", case.to_str().unwrap(), "--out", "out"]);
+    assert!(b.join("out/verification.json").exists(), "{said}");
+    assert!(!said.contains("verification"), "{said}");
+    // A status of this folder's receipt, written from another folder by a relative path, is
+    // taken away with the receipt it describes.
+    in_dir(
+        dir.path(),
+        &["verify", "a/out/result.json", "--out", "a/out"],
+    );
+    let said = in_dir(
+        &a,
+        &[
+            "run",
+            case.to_str().unwrap(),
+            "--out",
+            "out",
+            "--set",
+            "market.equity_risk_premium=0.06",
+        ],
+    );
+    assert!(!a.join("out/verification.json").exists(), "{said}");
+    assert!(!a.join("out/verification.md").exists(), "{said}");
 }
 
 // A run into a folder holding another valuation's receipt (a case rolled forward into last
@@ -621,11 +657,23 @@ fn a_run_says_when_it_replaces_another_valuation() {
     };
     run(&[]);
     assert!(!run(&[]).contains("replaced the receipt"));
+    // The same case run from its own folder, the path typed otherwise: the same valuation.
+    let here = std::process::Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .current_dir(&case_dir)
+        .args(["run", "./case.toml", "--out", out.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(here.status.success(), "{}", text(&here));
+    assert!(
+        !text(&here).contains("replaced the receipt"),
+        "{}",
+        text(&here)
+    );
     let moved = run(&["case.valuation_date=2026-06-30"]);
     assert!(
         moved.contains(&format!(
-            "replaced the receipt of another valuation: {}, valuation date 2026-09-30, WACC 7.38%",
-            case.display()
+            "replaced the receipt of another valuation: ./case.toml, valuation date 2026-09-30, \
+             WACC 7.38%"
         )),
         "{moved}"
     );

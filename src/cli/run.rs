@@ -58,9 +58,11 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     for path in written {
         println!("  wrote {}", path.display());
     }
+    // Another valuation: another date or another case's title (the path as typed says
+    // nothing: the same case is run from other folders).
     if let Some(e) = earlier.filter(|e| {
         e.valuation_date != valuation.case.valuation_date.to_string()
-            || e.case_file != valuation.case.file
+            || e.title != valuation.case.title
     }) {
         println!(
             "  replaced the receipt of another valuation: {}, valuation date {}{}",

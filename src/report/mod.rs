@@ -106,9 +106,11 @@ pub fn stale_run_outputs(dir: &Path, written: &[String]) -> Vec<String> {
 /// What `hurdle verify --out` writes.
 pub const VERIFICATION: [&str; 2] = ["verification.json", "verification.md"];
 
-/// Whether `dir` holds `hurdle verify --out`'s status of the receipt in `dir` itself: the run
-/// replaces that receipt, so the status (which may say REPRODUCED) no longer describes the
-/// `result.json` beside it.
+/// Whether `dir` holds `hurdle verify --out`'s status of the receipt in `dir` itself, by the
+/// receipt's SHA-256 the status records (a path would depend on the folder `verify` ran
+/// from): the run replaces that receipt, so the status (which may say REPRODUCED) no longer
+/// describes the `result.json` beside it. A status of another receipt, or one without the
+/// hash, is the user's and stays.
 fn verifies_the_receipt_in(dir: &Path) -> bool {
     let Ok(text) = std::fs::read_to_string(dir.join(VERIFICATION[0])) else {
         return false;
@@ -116,15 +118,10 @@ fn verifies_the_receipt_in(dir: &Path) -> bool {
     let Ok(status) = serde_json::from_str::<serde_json::Value>(&text) else {
         return false;
     };
-    let (Some(receipt), Some(_)) = (status["receipt"].as_str(), status["reproduced"].as_bool())
-    else {
+    let Ok(receipt) = std::fs::read(dir.join("result.json")) else {
         return false;
     };
-    let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
-        (Ok(a), Ok(b)) => a == b,
-        _ => false,
-    };
-    same(Path::new(receipt), &dir.join("result.json"))
+    status["receipt_sha256"].as_str() == Some(&crate::io::series::sha256_hex(&receipt))
 }
 
 /// The memo, then the charts and the report when `with_figures`, each into `stage`; returns the

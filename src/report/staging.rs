@@ -70,6 +70,7 @@ pub fn write_outputs_replacing(
 #[derive(Debug, Clone, PartialEq)]
 pub struct EarlierReceipt {
     pub case_file: String,
+    pub title: String,
     pub valuation_date: String,
     pub wacc: Option<f64>,
 }
@@ -83,6 +84,10 @@ pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
     let receipt: serde_json::Value = serde_json::from_slice(&bytes).ok()?;
     Some(EarlierReceipt {
         case_file: receipt["case"]["file"].as_str()?.to_string(),
+        title: receipt["case"]["title"]
+            .as_str()
+            .unwrap_or_default()
+            .to_string(),
         valuation_date: receipt["case"]["valuation_date"].as_str()?.to_string(),
         wacc: receipt["wacc"].as_f64(),
     })
