@@ -414,4 +414,25 @@ fn a_date_or_a_file_left_behind_is_noted() {
         ),
         "{cut:?}"
     );
+    // Quarterly, a file cut two months before the end still has a price inside the last
+    // quarter, so no return is missing; its last return runs to a price 61 days old
+    // (2026-07-31 to 2026-09-30: 31 + 30 days, calendar arithmetic), which the run names
+    // (found by review: it was silent).
+    let quarterly = [
+        "beta.frequency=quarterly",
+        "beta.lookback=20",
+        "beta.min_observations=12",
+    ];
+    let stale = notes_of_run(
+        |dir| cut_after(&dir.join("data/peers/corrowick.csv"), "2026-07-31"),
+        &quarterly,
+    );
+    assert!(
+        has(&stale, "Corrowick Valves: its prices (data/peers/corrowick.csv) end at 2026-07-31, 61 days before the window's end 2026-09-30: the last period's return runs to a price 61 days old"),
+        "{stale:?}"
+    );
+    assert!(!has(
+        &notes_of_run(|_| {}, &quarterly),
+        "days before the window's end"
+    ));
 }

@@ -401,6 +401,10 @@ pub fn window_end_note(
     }
 }
 
+/// More calendar days than a long holiday weekend leaves between a file's last price and the
+/// window's end: hurdle's choice for noting a file that was not brought up to date.
+const STALE_END_DAYS: i64 = 7;
+
 /// Files whose dates stop short of the window's last period, or run far past the valuation
 /// date: the marks of a case rolled forward with a file left behind or a date left unmoved.
 /// `peers` pairs each peer's name with its file.
@@ -418,11 +422,21 @@ pub fn file_end_notes(
         return notes;
     };
     for (name, file) in peers {
+        let short = (*end - file.last_date).num_days();
         if file.last_date <= *before_last {
             notes.push(format!(
                 "{name}: its prices ({}) end at {}, before the window's last period (to \
                  {end}): its returns after that are missing (counted in \
                  periods_dropped.asset_missing).",
+                file.path, file.last_date
+            ));
+        } else if short > STALE_END_DAYS {
+            // Inside the last period: its return ends at that old price unless a staleness
+            // limit drops it.
+            notes.push(format!(
+                "{name}: its prices ({}) end at {}, {short} days before the window's end \
+                 {end}: the last period's return runs to a price {short} days old (a \
+                 beta.max_stale_days below {short} would drop it as stale).",
                 file.path, file.last_date
             ));
         }
