@@ -3,6 +3,7 @@
 
 use std::fmt::Write as _;
 
+use super::format::Full;
 use super::Render;
 use crate::error::Result;
 use crate::valuation::Valuation;
@@ -147,23 +148,6 @@ impl Render for ReturnsCsv {
     }
 }
 
-/// A number in full, as the shortest text that reads back to the same double: plain decimals,
-/// except below 1e-5 or from 1e16 in size, where the exponent form keeps it short (a p-value of
-/// 4.2e-244 would otherwise take 245 digits), as `result.json` writes such numbers. Every
-/// spreadsheet and CSV reader takes both forms.
-struct Full(f64);
-
-impl std::fmt::Display for Full {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        let size = self.0.abs();
-        if size != 0.0 && !(1e-5..1e16).contains(&size) {
-            write!(f, "{:e}", self.0)
-        } else {
-            write!(f, "{}", self.0)
-        }
-    }
-}
-
 /// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).
 pub(crate) fn field(text: &str) -> String {
     if text.contains([',', '"', '\n', '\r']) {
@@ -179,15 +163,15 @@ pub(crate) fn field(text: &str) -> String {
 pub fn grid_csv(grid: &crate::audit::grid::Grid) -> Vec<u8> {
     let mut out = field(&format!("{} \\ {}", grid.rows.key, grid.columns.key));
     for value in &grid.columns.values {
-        write!(out, ",{value}").expect("writing to a String cannot fail");
+        write!(out, ",{}", Full(*value)).expect("writing to a String cannot fail");
     }
     out.push('\n');
     for (value, cells) in grid.rows.values.iter().zip(&grid.cells) {
-        out.push_str(&value.to_string());
+        out.push_str(&Full(*value).to_string());
         for cell in cells {
             out.push(',');
             if let Some(cell) = cell {
-                write!(out, "{cell}").expect("writing to a String cannot fail");
+                write!(out, "{}", Full(*cell)).expect("writing to a String cannot fail");
             }
         }
         out.push('\n');
@@ -206,10 +190,10 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
             out,
             "unexplained at the start (the starting claim's stated WACC less its components'),,,\
              {},{},{},{}",
-            bridge.from.stated_wacc.unwrap_or(bridge.from.wacc),
-            bridge.from.wacc,
-            -gap,
-            -gap
+            Full(bridge.from.stated_wacc.unwrap_or(bridge.from.wacc)),
+            Full(bridge.from.wacc),
+            Full(-gap),
+            Full(-gap)
         )
         .expect("writing to a String cannot fail");
     }
@@ -218,12 +202,12 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
             out,
             "{},{},{},{},{},{},{}",
             crate::report::format::label(&s.group),
-            s.group.figure(&bridge.from.build_up),
-            s.group.figure(&bridge.to.build_up),
-            s.wacc_before,
-            s.wacc_after,
-            s.contribution,
-            s.shapley
+            Full(s.group.figure(&bridge.from.build_up)),
+            Full(s.group.figure(&bridge.to.build_up)),
+            Full(s.wacc_before),
+            Full(s.wacc_after),
+            Full(s.contribution),
+            Full(s.shapley)
         )
         .expect("writing to a String cannot fail");
     }
@@ -232,9 +216,11 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
     if let Some(gap) = bridge.unexplained.filter(|g| *g != 0.0) {
         writeln!(
             out,
-            "unexplained (the claim's stated WACC less its components'),,,{},{},{gap},{gap}",
-            bridge.to.wacc,
-            bridge.to.stated_wacc.unwrap_or(bridge.to.wacc)
+            "unexplained (the claim's stated WACC less its components'),,,{},{},{},{}",
+            Full(bridge.to.wacc),
+            Full(bridge.to.stated_wacc.unwrap_or(bridge.to.wacc)),
+            Full(gap),
+            Full(gap)
         )
         .expect("writing to a String cannot fail");
     }
@@ -244,6 +230,7 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
 #[cfg(test)]
 mod tests {
     use super::field;
+    use crate::report::format::Full;
 
     // RFC 4180, section 2: fields with commas or quotes are quoted, quotes doubled.
     #[test]
@@ -258,7 +245,6 @@ mod tests {
     // independent of Rust's formatting) writes the same number in result.json.
     #[test]
     fn numbers_are_written_in_full_and_short() {
-        use super::Full;
         for x in [
             4.2e-244,
             5.110808174994548e-8,

@@ -13,6 +13,23 @@ pub fn basis_points(rate: f64) -> String {
     format!("{} bp", rounded(rate * 10_000.0, 0))
 }
 
+/// A number in full, as the shortest text that reads back to the same double: plain decimals,
+/// except below 1e-5 or from 1e16 in size, where the exponent form keeps it short (a p-value of
+/// 4.2e-244 would otherwise take 245 digits), as `result.json` writes such numbers. Every
+/// spreadsheet and CSV reader takes both forms.
+pub struct Full(pub f64);
+
+impl std::fmt::Display for Full {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let size = self.0.abs();
+        if size != 0.0 && !(1e-5..1e16).contains(&size) {
+            write!(f, "{:e}", self.0)
+        } else {
+            write!(f, "{}", self.0)
+        }
+    }
+}
+
 /// A number as a `--set` value is written: every digit it has and no more (0.0517, 2.5), so
 /// values one step apart on a grid axis never print alike.
 pub fn exact(value: f64) -> String {

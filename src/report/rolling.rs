@@ -3,6 +3,7 @@
 
 use std::fmt::Write as _;
 
+use super::format::Full;
 use super::Render;
 use crate::beta::rolling::RollingPoint;
 use crate::error::Result;
@@ -31,7 +32,10 @@ pub fn rolling_csv(names: &[&str], rolling: &[Vec<RollingPoint>]) -> Vec<u8> {
             writeln!(
                 out,
                 "{name},{},{},{},{}",
-                p.window_end, p.beta, p.std_error, p.observations
+                p.window_end,
+                Full(p.beta),
+                Full(p.std_error),
+                p.observations
             )
             .expect("writing to a String cannot fail");
         }
