@@ -1972,9 +1972,11 @@ fn overrides() -> Vec<Bad> {
                 "beta.exclude_flags=[\"low_r_squared\"]"
             ],
             [
+                "case.toml",
                 "every peer is excluded",
-                "Brenvale Fluid Systems (flag-based rule beta.exclude_flags: low_r_squared)",
-                "Ivelbrook Instruments (flag-based rule beta.exclude_flags: low_r_squared)"
+                "Brenvale Fluid Systems, Corrowick Valves, Dunmere Hydraulics, Estwold Flow \
+                 Controls, Fenhallow Seals, Glimmerby Pumpworks, Hollinsedge Industrial, \
+                 Ivelbrook Instruments (flag-based rule beta.exclude_flags: low_r_squared)"
             ]
         ),
         bad!(

@@ -130,26 +130,28 @@ fn run_chain(
     let peers = chain_peers(settings, estimates, &exclusions);
     let spec = specs::capital(settings, inputs.debt_table.as_ref());
     let chain = chain::chain(&spec, &peers, checks).map_err(|e| match e {
-        ChainError::NoPeerIncluded => no_peer_left(settings, &exclusions),
+        ChainError::NoPeerIncluded => no_peer_left(case, &exclusions),
         e => chain_error(case, e),
     })?;
     Ok((chain, exclusions))
 }
 
-/// Every peer excluded: the message names each peer with its reason, so the case can be
-/// mended without a run that succeeds to read them from.
-fn no_peer_left(settings: &CaseFile, exclusions: &[Option<String>]) -> Error {
-    let each: Vec<String> = (settings.peers.iter().zip(exclusions))
-        .map(|(peer, reason)| {
-            format!(
-                "{} ({})",
-                peer.name,
-                reason.as_deref().unwrap_or("not excluded")
-            )
-        })
+/// Every peer excluded: the message names the case and each reason with the peers it leaves
+/// out, so the case can be mended without a run that succeeds to read them from.
+fn no_peer_left(case: &Case, exclusions: &[Option<String>]) -> Error {
+    let mut by_reason: Vec<(&str, Vec<&str>)> = Vec::new();
+    for (peer, reason) in case.settings.peers.iter().zip(exclusions) {
+        let reason = reason.as_deref().unwrap_or("not excluded");
+        match by_reason.iter_mut().find(|(r, _)| *r == reason) {
+            Some((_, names)) => names.push(&peer.name),
+            None => by_reason.push((reason, vec![&peer.name])),
+        }
+    }
+    let each: Vec<String> = (by_reason.iter())
+        .map(|(reason, names)| format!("{} ({reason})", names.join(", ")))
         .collect();
-    Error::Estimation {
-        peer: "(all peers)".into(),
+    Error::Case {
+        file: case.path.clone(),
         message: format!(
             "every peer is excluded, so no peer is left to aggregate: {}",
             each.join("; ")
