@@ -1238,6 +1238,19 @@ fn verify_reruns_a_universe_receipt() {
     for line in industry_lines {
         assert!(line.contains("(\""), "{line}");
     }
+    // A row appended to the panel (a security's later price): the panel's facts that moved are
+    // given with its file check, not listed again as mismatched figures (README: a changed file
+    // is reported once).
+    let panel = setup.dir().join("prices-long.csv");
+    let mut text = std::fs::read_to_string(&panel).unwrap();
+    let last = text.lines().last().unwrap().to_string();
+    let fields: Vec<&str> = last.split(',').collect();
+    text.push_str(&format!("2030-01-02,{},{}\n", fields[1], fields[2]));
+    std::fs::write(&panel, text).unwrap();
+    let third = common::hurdle(&["verify", receipt]);
+    let report = String::from_utf8_lossy(&third.stdout);
+    assert!(!report.contains("MISMATCH files."), "{report}");
+    assert!(report.contains(" → "), "{report}");
 }
 
 // `universe.rolling = true`: each security's rolling betas are those `hurdle rolling` writes for a

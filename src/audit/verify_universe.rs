@@ -51,6 +51,7 @@ pub fn verify_universe(
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
     let files = file_checks(recorded, &rerun);
     let mut found = compare(recorded, &recomputed, tolerance);
+    (found.mismatches).retain(|m| !reported_with_its_file(&m.path, &files));
     let recorded_version = text("/tool/version").unwrap_or_default().to_string();
     let added = found.settle_added(recorded_version == env!("CARGO_PKG_VERSION"));
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
@@ -89,6 +90,7 @@ fn file_checks(recorded: &Value, rerun: &UniverseResult) -> Vec<FileCheck> {
         ("panel", read(&f.panel.path, &f.panel.sha256)),
         ("attributes", read(&f.attributes.path, &f.attributes.sha256)),
     ];
+    let files_now = serde_json::to_value(f).unwrap_or(Value::Null);
     current
         .iter()
         .filter_map(|(role, now)| {
@@ -98,7 +100,44 @@ fn file_checks(recorded: &Value, rerun: &UniverseResult) -> Vec<FileCheck> {
                 (path, sha256.to_string())
             });
             let now = now.clone();
-            (was.is_some() || now.is_some()).then(|| FileCheck::new(role.to_string(), was, now))
+            let mut check = (was.is_some() || now.is_some())
+                .then(|| FileCheck::new(role.to_string(), was, now))?;
+            if check.status == "changed" {
+                check.changes = changes(file, &files_now[role]);
+            }
+            Some(check)
         })
         .collect()
+}
+
+/// A changed file's other recorded facts (rows, dates, counts) against the rerun's, where they
+/// differ: reported with its file check, not again as figures.
+fn changes(recorded: &Value, now: &Value) -> Vec<String> {
+    let shown = |v: &Value| match v {
+        Value::String(text) => text.clone(),
+        other => other.to_string(),
+    };
+    (recorded.as_object().into_iter().flatten())
+        .filter(|(key, value)| !matches!(key.as_str(), "path" | "sha256") && now[key] != **value)
+        .map(|(key, value)| {
+            format!(
+                "{} {} → {}",
+                key.replace('_', " "),
+                shown(value),
+                shown(&now[key])
+            )
+        })
+        .collect()
+}
+
+/// Whether the mismatch at `path` is a field of a recorded input file (`files.panel.rows`)
+/// that its file check reports: any field of a changed file, the path of a moved one.
+fn reported_with_its_file(path: &str, checks: &[FileCheck]) -> bool {
+    let Some((role, field)) = path.strip_prefix("files.").and_then(|p| p.split_once('.')) else {
+        return false;
+    };
+    (checks.iter().find(|c| c.role == role)).is_some_and(|check| match check.status {
+        "changed" => true,
+        _ => field == "path" && check.current_path.is_some(),
+    })
 }

@@ -91,10 +91,12 @@ impl FileCheck {
 }
 
 /// What the receipt records of a data file beside its hash, as the comparison names it.
-const DESCRIBED: [(&str, &str); 3] = [
+const DESCRIBED: [(&str, &str); 5] = [
     ("rows", "rows"),
     ("first_date", "first date"),
     ("last_date", "last date"),
+    ("sheet", "sheet"),
+    ("column", "column"),
 ];
 
 /// A changed data file's recorded rows and dates against the rerun's, where they differ.
