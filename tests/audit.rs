@@ -671,10 +671,10 @@ fn a_run_says_when_it_replaces_another_valuation() {
     );
     let moved = run(&["case.valuation_date=2026-06-30"]);
     assert!(
-        moved.contains(&format!(
+        moved.contains(
             "replaced the receipt of another valuation: ./case.toml, valuation date 2026-09-30, \
              WACC 7.38%"
-        )),
+        ),
         "{moved}"
     );
 }
@@ -1285,7 +1285,12 @@ fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
     let last = text_of_case.rfind("[[peer]]").unwrap();
     let fewer = text_of_case[..last]
         .replacen("source = \"given\"", "source = \"rating\"", 1)
-        .replacen("risk_free_rate = 0.0267", "risk_free_rate = 0.03", 1);
+        .replacen("risk_free_rate = 0.0267", "risk_free_rate = 0.03", 1)
+        .replacen(
+            "valuation_date = 2026-09-30",
+            "valuation_date = 2026-06-30",
+            1,
+        );
     std::fs::write(case_dir.join("b.toml"), fewer).unwrap();
     let a = case_dir.join("case.toml");
     let b = case_dir.join("b.toml");
@@ -1295,7 +1300,7 @@ fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
     assert!(
         report.contains(
             "     valuation date 2026-09-30, monthly returns 2021-09-30 to 2026-09-30, 8 peers \
-             aggregated, unlevered beta 0.784 at target D/E 0.400\n"
+             aggregated, unlevered beta 0.784, target D/E 0.400\n"
         ),
         "{report}"
     );
@@ -1310,6 +1315,15 @@ fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
     );
     assert!(
         report.contains("part of the cost of debt line is the change in the risk-free rate"),
+        "{report}"
+    );
+    // One title on both sides: the dates note names the files.
+    assert!(
+        report.contains(&format!(
+            "note: {} is as of 2026-09-30 and {} as of 2026-06-30",
+            a.display(),
+            b.display()
+        )),
         "{report}"
     );
     // A claim has no such facts and no such notes.

@@ -1879,6 +1879,17 @@ fn claimed_files() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "claimed preferred weight of all capital",
+            |s| claim(s, "beta = 1.10", "beta = 1.10\npreferred_weight = 1.0"),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            [
+                "bad_claim.toml",
+                "{next}",
+                "claimed.preferred_weight = 1.0",
+                "a share of total capital below 1"
+            ]
+        ),
+        bad!(
             "claimed as_of not a date",
             |s| claim(s, "beta = 1.10", "beta = 1.10\nas_of = \"last quarter\""),
             ["compare", "{case}", "{dir}/bad_claim.toml"],

@@ -267,11 +267,17 @@ pub fn dates_note(from: &Side, to: &Side) -> Option<String> {
     let (Some(a), Some(b)) = (&from.as_of, &to.as_of) else {
         return None;
     };
+    // Two cases of one title (a case and its rolled-forward self) are told apart by file.
+    let name = |side: &Side| match from.label == to.label && !side.source.is_empty() {
+        true => side.source.clone(),
+        false => side.label.clone(),
+    };
     (a != b).then(|| {
         format!(
             "{} is as of {a} and {} as of {b}: rates, premiums and prices move between the two \
              dates, so part of the gap between them is the dates'.",
-            from.label, to.label
+            name(from),
+            name(to)
         )
     })
 }

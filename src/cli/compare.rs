@@ -71,7 +71,7 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
         if let Some(f) = facts {
             out.push_str(&format!(
                 "     valuation date {}, {} returns {} to {}, {} peer{} aggregated, unlevered \
-                 beta {} at target D/E {}\n",
+                 beta {}, target D/E {}\n",
                 f.valuation_date,
                 f.frequency,
                 f.window.0,

@@ -132,7 +132,8 @@ fn summary(v: &Valuation) -> String {
                         false => "",
                     },
                     match v.cost.beta.peers_included {
-                        1 => "; one aggregated peer: no peer set to resample".to_string(),
+                        1 => "; with one aggregated peer, resampling the peer set adds nothing"
+                            .to_string(),
                         n => format!(
                             ", {} to {} with the peer set resampled{}",
                             percent(u.peer_set.p05, 2),

@@ -353,14 +353,18 @@ fn zero_returns_note(name: &str, share: f64, spec: &EstimationSpec) -> String {
             "; consider beta.method = \"dimson\" or \"scholes-williams\", or a longer \
              frequency"
         }
-        _ => "",
+        _ => {
+            "; the case's estimator takes the index's lagged returns into account, which \
+             allows for a price that reacts late, but a price repeated for many periods is no \
+             trade at all: weigh whether the share trades enough to stand as a peer"
+        }
     };
     format!(
         "{name}: {}% of its returns are exactly zero (the same price at both ends of the \
          period, as when a data vendor repeats the last price on days without a trade; flagged \
          zero_returns above beta.flag_zero_return_share = {}): a thinly traded share's beta is \
          biased toward zero (Scholes and Williams 1977; Dimson 1979){remedy}.",
-        crate::error::rounded(share * 100.0, 0),
+        crate::error::rounded(share * 100.0, 1),
         crate::error::compact(spec.flags.zero_return_share)
     )
 }

@@ -245,13 +245,14 @@ fn json_given(text: &str) -> String {
         });
     match recorded {
         Some(("universe", file)) => format!(
-            "this is the receipt (result.json) of the universe file `{file}`, not a case or \
-             claim: run that file with `hurdle universe`, or rerun the receipt with `hurdle \
-             verify`"
+            "this is the receipt (result.json) of the universe file `{file}` (the path as the \
+             run that wrote it was given it), not a case or claim: run that file with `hurdle \
+             universe`, or rerun the receipt with `hurdle verify`"
         ),
         Some((_, file)) => format!(
-            "this is the receipt (result.json) of the case file `{file}`, not a case or claim: \
-             run that case, or rerun the receipt with `hurdle verify`"
+            "this is the receipt (result.json) of the case file `{file}` (the path as the run \
+             that wrote it was given it), not a case or claim: run that case, or rerun the \
+             receipt with `hurdle verify`"
         ),
         None => "this is a JSON file (a result.json receipt?), not a case or claim: a receipt \
                  is rerun by `hurdle verify RECEIPT.json`, and a case is the TOML file it names \
@@ -379,16 +380,16 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
         if !inside {
             // The closed bounds are a beta's and a ratio's; the open ones are rates', and a
             // rate of 1 or more is most often a percentage typed for a decimal.
+            // A weight of exactly 1 is all of capital, not 1%: it gets no percentage reading.
+            let weight = key.ends_with("_weight");
             let hint = if closed || x < 1.0 {
                 String::new()
+            } else if weight && x < 2.0 {
+                "a weight is a share of total capital below 1 (0.1 for 10%), and ".to_string()
             } else {
                 format!(
                     "{} are decimals ({} for {}%), and ",
-                    if key.ends_with("_weight") {
-                        "weights"
-                    } else {
-                        "rates"
-                    },
+                    if weight { "weights" } else { "rates" },
                     crate::error::compact(x / 100.0),
                     raw
                 )
