@@ -49,7 +49,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let earlier = report::staging::earlier_receipt(&out);
     let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
-    let stale = report::stale_run_outputs(&out, &names);
+    let stale = report::stale_run_outputs(&out, &names, earlier.is_some());
     for name in &stale {
         stage.retire(name);
     }
@@ -61,8 +61,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     // Another valuation: another date or another case's title (the path as typed says
     // nothing: the same case is run from other folders).
     if let Some(e) = earlier.filter(|e| {
-        e.valuation_date != valuation.case.valuation_date.to_string()
-            || e.title != valuation.case.title
+        !e.valuation_date.is_empty()
+            && (e.valuation_date != valuation.case.valuation_date.to_string()
+                || e.title != valuation.case.title)
     }) {
         println!(
             "  replaced the receipt of another valuation: {}, valuation date {}{}",

@@ -75,9 +75,9 @@ pub fn render_run(
 /// the case, a bridge no longer asked for) and the report (a run with `figures` off). Left there,
 /// they would sit beside the new memo as if they belonged to it; and `hurdle verify --out`'s
 /// status of the receipt this run replaces. Only in a folder that holds an earlier run's
-/// receipt ([`staging::holds_an_earlier_run`]). Sorted.
-pub fn stale_run_outputs(dir: &Path, written: &[String]) -> Vec<String> {
-    if !staging::holds_an_earlier_run(dir) {
+/// receipt (`earlier_run`, from [`staging::earlier_receipt`]). Sorted.
+pub fn stale_run_outputs(dir: &Path, written: &[String], earlier_run: bool) -> Vec<String> {
+    if !earlier_run {
         return Vec::new();
     }
     let mut names = vec![REPORT.to_string()];

@@ -75,20 +75,26 @@ pub struct EarlierReceipt {
     pub wacc: Option<f64>,
 }
 
-/// The earlier run's receipt in `dir`, when there is one.
+/// The earlier run's receipt in `dir`, when there is one (a universe's too, whose case fields
+/// are empty): read once for both uses, the notice and [`super::stale_run_outputs`].
 pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
-    if !holds_an_earlier_run(dir) {
-        return None;
-    }
     let bytes = fs::read(dir.join("result.json")).ok()?;
     let receipt: serde_json::Value = serde_json::from_slice(&bytes).ok()?;
+    if receipt["tool"]["name"] != env!("CARGO_PKG_NAME") {
+        return None;
+    }
     Some(EarlierReceipt {
-        case_file: receipt["case"]["file"].as_str()?.to_string(),
+        case_file: receipt["case"]["file"]
+            .as_str()
+            .unwrap_or_default()
+            .to_string(),
         title: receipt["case"]["title"]
             .as_str()
             .unwrap_or_default()
             .to_string(),
-        valuation_date: receipt["case"]["valuation_date"].as_str()?.to_string(),
+        valuation_date: (receipt["case"]["valuation_date"].as_str())
+            .unwrap_or_default()
+            .to_string(),
         wacc: receipt["wacc"].as_f64(),
     })
 }
