@@ -679,6 +679,17 @@ fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
         chart.contains("of the 1 included unlevered beta, "),
         "{chart}"
     );
+    // The first peer table marks the peers left out (found by review: only the details table
+    // further down said so).
+    assert!(memo.contains("| Corrowick Valves (excluded) |"), "{memo}");
+    assert!(
+        !memo.contains("| Brenvale Fluid Systems (excluded) |"),
+        "{memo}"
+    );
+    assert!(
+        memo.contains("A peer marked (excluded) is estimated and shown"),
+        "{memo}"
+    );
     let dir = tempfile::tempdir().unwrap();
     let sets: Vec<String> = (2..8).map(|i| format!("peer.{i}.exclude=test")).collect();
     let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
@@ -694,4 +705,5 @@ fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
     assert!(!memo.contains("With one aggregated peer"));
     assert!(!headline(&memo).contains("distinct sets"), "{memo}");
+    assert!(!memo.contains("(excluded)"), "{memo}");
 }
