@@ -21,6 +21,9 @@ use crate::report::format::{self, fixed, percent};
 use crate::stats::least_squares::StdErrors;
 use crate::valuation::{PeerResult, Valuation};
 
+/// More points than this (a year of daily returns) are drawn lighter and smaller.
+const DENSE_POINTS: usize = 250;
+
 const WIDTH: u32 = 640;
 const PLOT: u32 = 320;
 
@@ -136,8 +139,14 @@ fn plot(
         Ok(())
     })?;
     plot_layer(canvas, layout, axes, "points", |chart| {
-        let dot = PRIMARY.mix(0.8).filled();
-        chart.draw_series(x.iter().zip(y).map(|(&a, &b)| Circle::new((a, b), 3, dot)))?;
+        // Hundreds of daily returns overplot into one blot at full strength: lighter, smaller
+        // dots let their density show.
+        let (opacity, radius) = match x.len() > DENSE_POINTS {
+            true => (0.35, 2),
+            false => (0.8, 3),
+        };
+        let dot = PRIMARY.mix(opacity).filled();
+        chart.draw_series(x.iter().zip(y).map(|(&a, &b)| Circle::new((a, b), radius, dot)))?;
         Ok(())
     })?;
     plot_layer(canvas, layout, axes, "flagged", |chart| {
