@@ -194,3 +194,37 @@ fn libreoffice_recomputes_every_workbook_layout() {
     assert!(stdout.contains("tampered formula: caught at"), "{stdout}");
     println!("{stdout}");
 }
+
+// A long peer name widens the sheets' name column, up to 60 characters (found by review: a
+// 60-character name was cut off in a 26-wide column), as openpyxl reads the widths back.
+#[test]
+fn long_peer_names_widen_the_name_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    // 50 characters.
+    let name = "Brenvale Fluid Systems Holdings and Partners Group";
+    assert_eq!(name.chars().count(), 50);
+    let renamed = format!("peer.0.name={name}");
+    run(DEMO_CASE, &[renamed.as_str()], &out);
+    let script = "import sys, openpyxl\n\
+                  book = openpyxl.load_workbook(sys.argv[1])\n\
+                  print(' '.join(str(book[s].column_dimensions['A'].width) for s in sys.argv[2:]))";
+    let output = Command::new("python3")
+        .args(["-c", script])
+        .arg(out.join("workbook.xlsx"))
+        .args(["Betas", "Returns", "Unlevering"])
+        .output()
+        .expect("python3 runs");
+    let widths = String::from_utf8_lossy(&output.stdout);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    // The name's 50 characters and 2 of margin; openpyxl reads rust_xlsxwriter's stored width,
+    // which adds Excel's padding of about 0.71 characters to the width asked for.
+    for width in widths.split_whitespace() {
+        let width: f64 = width.parse().unwrap();
+        assert!((52.0..53.0).contains(&width), "{widths}");
+    }
+}

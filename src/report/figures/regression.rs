@@ -146,7 +146,11 @@ fn plot(
             false => (0.8, 3),
         };
         let dot = PRIMARY.mix(opacity).filled();
-        chart.draw_series(x.iter().zip(y).map(|(&a, &b)| Circle::new((a, b), radius, dot)))?;
+        chart.draw_series(
+            x.iter()
+                .zip(y)
+                .map(|(&a, &b)| Circle::new((a, b), radius, dot)),
+        )?;
         Ok(())
     })?;
     plot_layer(canvas, layout, axes, "flagged", |chart| {

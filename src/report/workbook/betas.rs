@@ -80,7 +80,9 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
     book.text(&mut sheet, (last, 0), &note, &book.styles.text.clone())?;
     sheet.ws.set_freeze_panes(1, 1).map_err(xlsx_error)?;
     sheet.ws.set_row_height(0, 32).map_err(xlsx_error)?;
-    sheet.ws.set_column_width(0, 26).map_err(xlsx_error)?;
+    (sheet.ws)
+        .set_column_width(0, super::name_column_width(book.v))
+        .map_err(xlsx_error)?;
     for col in 1..c.names.len() as u16 {
         sheet.ws.set_column_width(col, 11).map_err(xlsx_error)?;
     }

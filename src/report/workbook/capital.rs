@@ -122,7 +122,9 @@ fn unlevering(
     book.text(&mut sheet, (last + 1, 0), &note, &book.styles.text.clone())?;
     sheet.ws.set_freeze_panes(1, 1).map_err(xlsx_error)?;
     sheet.ws.set_row_height(0, 45).map_err(xlsx_error)?;
-    sheet.ws.set_column_width(PEER, 26).map_err(xlsx_error)?;
+    (sheet.ws)
+        .set_column_width(PEER, super::name_column_width(book.v))
+        .map_err(xlsx_error)?;
     for col in INCLUDED..REASON {
         sheet.ws.set_column_width(col, 12).map_err(xlsx_error)?;
     }

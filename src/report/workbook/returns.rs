@@ -116,7 +116,9 @@ pub(crate) fn sheet(book: &mut Book) -> Result<ReturnsLayout> {
         .ws
         .autofilter(0, 0, last_row, last_col)
         .map_err(xlsx_error)?;
-    sheet.ws.set_column_width(0, 26).map_err(xlsx_error)?;
+    (sheet.ws)
+        .set_column_width(0, super::name_column_width(v))
+        .map_err(xlsx_error)?;
     sheet.ws.set_column_width(1, 11).map_err(xlsx_error)?;
     for col in 2..=last_col {
         sheet.ws.set_column_width(col, 14).map_err(xlsx_error)?;
