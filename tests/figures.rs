@@ -960,3 +960,49 @@ fn long_names_and_the_demo_labels_stay_inside_their_charts() {
         .expect("the panel title's tooltip holds the whole name");
     assert!(title.text.contains('…'));
 }
+
+// One peer's returns multiplied by 15 before 2024 (its betas and their errors with them, by
+// the scaling of OLS: β and SE scale with the dependent variable) give it by far the widest
+// rolling band, so the panels take scales of their own and the caption names that peer (found
+// by review: it said "one peer" without naming it).
+#[test]
+fn the_peer_that_unshares_the_stability_scale_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let file = case_dir.join("data/peers/dunmere.csv");
+    let text = std::fs::read_to_string(&file).unwrap();
+    let mut lines = text.lines();
+    let mut out = vec![lines.next().unwrap().to_string()];
+    let (mut previous, mut level) = (None::<f64>, 0.0);
+    for line in lines {
+        let (date, price) = line.split_once(',').unwrap();
+        let price: f64 = price.parse().unwrap();
+        level = match previous {
+            None => price,
+            Some(before) => {
+                let factor = if date < "2024-01-01" { 15.0 } else { 1.0 };
+                level * (factor * (price / before).ln()).exp()
+            }
+        };
+        previous = Some(price);
+        out.push(format!("{date},{level:.8}"));
+    }
+    std::fs::write(&file, out.join("\n") + "\n").unwrap();
+    let run_dir = dir.path().join("out");
+    let case = case_dir.join("case.toml");
+    let output = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        run_dir.to_str().unwrap(),
+    ]);
+    assert!(output.status.success(), "{output:?}");
+    let svg = std::fs::read_to_string(run_dir.join("figures/stability.svg")).unwrap();
+    assert!(
+        unescape(&svg).contains(
+            "each panel has a β scale of its own, since the band of Dunmere Hydraulics ("
+        ),
+        "{svg}"
+    );
+}

@@ -389,13 +389,36 @@ fn draw_band(chart: &mut Chart, points: &[RollingPoint]) -> Drawn {
     Ok(())
 }
 
+/// The peer whose rolling band spans the widest β range (the one that would squash a shared
+/// scale), with that range, and whether it is left out of the aggregate.
+fn widest(valuation: &Valuation) -> String {
+    let spans = (valuation.peers.iter().zip(&valuation.rolling))
+        .map(|(peer, points)| (peer, beta_range(points, peer.estimate.beta)));
+    let Some((peer, (low, high))) =
+        spans.max_by(|a, b| (a.1 .1 - a.1 .0).total_cmp(&(b.1 .1 - b.1 .0)))
+    else {
+        return "one peer".to_string();
+    };
+    format!(
+        "{} ({} to {}{})",
+        peer.name,
+        fixed(low, 2),
+        fixed(high, 2),
+        match peer.excluded_reason {
+            Some(_) => ", a peer left out of the aggregate",
+            None => "",
+        }
+    )
+}
+
 fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) -> String {
     let scale = match shared {
-        true => "all panels share one β scale",
-        false => {
-            "each panel has a β scale of its own, since one peer's range would squash the \
-                  others on a shared one: compare panels by their axes"
-        }
+        true => "all panels share one β scale".to_string(),
+        false => format!(
+            "each panel has a β scale of its own, since the band of {} would squash the \
+             others on a shared one: compare panels by their axes",
+            widest(valuation)
+        ),
     };
     let period = super::per_period(valuation).trim_start_matches("per ");
     format!(
