@@ -706,4 +706,12 @@ fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
     assert!(!memo.contains("With one aggregated peer"));
     assert!(!headline(&memo).contains("distinct sets"), "{memo}");
     assert!(!memo.contains("(excluded)"), "{memo}");
+    // The estimation details state the case-wide method, frequency and standard errors once
+    // (found by review: they repeated on every row); the demo is OLS on monthly returns with
+    // classical errors (README, The demo case).
+    assert!(
+        memo.contains("every peer by the same method (`beta.method = \"ols\"`),\non monthly returns, with classical standard errors"),
+        "{memo}"
+    );
+    assert!(memo.contains("| Peer | NW lags | Slopes on the index (offset: β) | Aggregation |"));
 }
