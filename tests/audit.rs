@@ -679,6 +679,36 @@ fn a_run_says_when_it_replaces_another_valuation() {
     );
 }
 
+// A receipt of 0.2.0 lacks the figures 0.3.0 began to write (README, Changelog); verify lists
+// them as added and still reproduces. A figure no version added, deleted from such a receipt,
+// is a mismatch (found by review: a deleted WACC passed).
+#[test]
+fn a_receipt_of_an_earlier_version_verifies_without_the_figures_added_since() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let mut receipt = run_case(&case_dir.join("case.toml"), &out, &[]);
+    receipt["tool"]["version"] = serde_json::json!("0.2.0");
+    for peer in receipt["peers"].as_array_mut().unwrap() {
+        peer.as_object_mut().unwrap().remove("zero_return_share");
+    }
+    (receipt["settings"]["beta"].as_object_mut().unwrap()).remove("flag_zero_return_share");
+    let older = out.join("older.json");
+    std::fs::write(&older, serde_json::to_vec_pretty(&receipt).unwrap()).unwrap();
+    let verified = hurdle(&["verify", older.to_str().unwrap()]);
+    let report = text(&verified);
+    assert_eq!(verified.status.code(), Some(0), "{report}");
+    assert!(
+        report.contains("9 figures that hurdle 0.3.0 writes and the receipt, written by hurdle 0.2.0, does not have"),
+        "{report}"
+    );
+    receipt.as_object_mut().unwrap().remove("wacc");
+    std::fs::write(&older, serde_json::to_vec_pretty(&receipt).unwrap()).unwrap();
+    let verified = hurdle(&["verify", older.to_str().unwrap()]);
+    let report = text(&verified);
+    assert_eq!(verified.status.code(), Some(1), "{report}");
+    assert!(report.contains("MISMATCH wacc: recorded null"), "{report}");
+}
+
 // A price file extended past the valuation date (a case rolled forward in place) is one
 // changed input whose check names its rows and last date; they are not listed again as
 // mismatched figures `files[…].rows` and `files[…].last_date` (README: a changed file is

@@ -429,7 +429,7 @@ pub fn verify(
 
     let mut found = compare(&recorded, &recomputed, tolerance);
     let recorded_version = text("/tool/version").unwrap_or_default();
-    let added = found.settle_added(recorded_version == env!("CARGO_PKG_VERSION"));
+    let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
     // A changed or moved data file is reported once, by its file check.
     (found.mismatches).retain(|m| !files::reported_with_its_file(&m.path, &recorded, &files));
     found.mismatches.sort_by_key(|m| m.rank());

@@ -51,9 +51,9 @@ pub fn verify_universe(
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
     let files = file_checks(recorded, &rerun);
     let mut found = compare(recorded, &recomputed, tolerance);
-    (found.mismatches).retain(|m| !reported_with_its_file(&m.path, &files));
     let recorded_version = text("/tool/version").unwrap_or_default().to_string();
-    let added = found.settle_added(recorded_version == env!("CARGO_PKG_VERSION"));
+    let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
+    (found.mismatches).retain(|m| !reported_with_its_file(&m.path, &files));
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
