@@ -389,25 +389,38 @@ fn draw_band(chart: &mut Chart, points: &[RollingPoint]) -> Drawn {
     Ok(())
 }
 
-/// The peer whose rolling band spans the widest β range (the one that would squash a shared
-/// scale), with that range, and whether it is left out of the aggregate.
+/// The peers whose rolling bands reach the two ends of the shared range (what would squash a
+/// shared scale), each with its end, and whether it is left out of the aggregate.
 fn widest(valuation: &Valuation) -> String {
-    let spans = (valuation.peers.iter().zip(&valuation.rolling))
-        .map(|(peer, points)| (peer, beta_range(points, peer.estimate.beta)));
-    let Some((peer, (low, high))) =
-        spans.max_by(|a, b| (a.1 .1 - a.1 .0).total_cmp(&(b.1 .1 - b.1 .0)))
-    else {
+    let ranges: Vec<_> = (valuation.peers.iter().zip(&valuation.rolling))
+        .map(|(peer, points)| (peer, beta_range(points, peer.estimate.beta)))
+        .collect();
+    let lowest = ranges.iter().min_by(|a, b| a.1 .0.total_cmp(&b.1 .0));
+    let highest = ranges.iter().max_by(|a, b| a.1 .1.total_cmp(&b.1 .1));
+    let (Some((low_peer, (low, _))), Some((high_peer, (_, high)))) = (lowest, highest) else {
         return "one peer".to_string();
     };
+    let left_out = |peer: &crate::valuation::PeerResult| match peer.excluded_reason {
+        Some(_) => ", left out of the aggregate",
+        None => "",
+    };
+    if low_peer.name == high_peer.name {
+        return format!(
+            "the band of {} ({} to {}{})",
+            low_peer.name,
+            fixed(*low, 2),
+            fixed(*high, 2),
+            left_out(low_peer)
+        );
+    }
     format!(
-        "{} ({} to {}{})",
-        peer.name,
-        fixed(low, 2),
-        fixed(high, 2),
-        match peer.excluded_reason {
-            Some(_) => ", a peer left out of the aggregate",
-            None => "",
-        }
+        "the bands of {} (down to {}{}) and {} (up to {}{})",
+        low_peer.name,
+        fixed(*low, 2),
+        left_out(low_peer),
+        high_peer.name,
+        fixed(*high, 2),
+        left_out(high_peer)
     )
 }
 
@@ -415,8 +428,8 @@ fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) 
     let scale = match shared {
         true => "all panels share one β scale".to_string(),
         false => format!(
-            "each panel has a β scale of its own, since the band of {} would squash the \
-             others on a shared one: compare panels by their axes",
+            "each panel has a β scale of its own, since {} would squash the others on a \
+             shared one: compare panels by their axes",
             widest(valuation)
         ),
     };
