@@ -677,6 +677,44 @@ fn a_run_says_when_it_replaces_another_valuation() {
         ),
         "{moved}"
     );
+    // Another case file of the same title and date (a variant kept beside the case) is
+    // another valuation too (found by review: it was silent).
+    run(&[]);
+    let other = case_dir.join("variant.toml");
+    std::fs::copy(&case, &other).unwrap();
+    let output = hurdle(&[
+        "run",
+        other.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(
+        text(&output).contains(&format!(
+            "replaced the receipt of another valuation: {}",
+            case.display()
+        )),
+        "{}",
+        text(&output)
+    );
+    // A universe's receipt in the folder: named as such.
+    let fresh = dir.path().join("fresh");
+    std::fs::create_dir_all(&fresh).unwrap();
+    std::fs::write(
+        fresh.join("result.json"),
+        r#"{"tool": {"name": "hurdle"}, "kind": "universe", "universe": {"file": "market.toml"}}"#,
+    )
+    .unwrap();
+    let output = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        fresh.to_str().unwrap(),
+    ]);
+    assert!(
+        text(&output).contains("replaced the receipt of a universe run (market.toml)"),
+        "{}",
+        text(&output)
+    );
 }
 
 // A receipt of 0.2.0 lacks the figures 0.3.0 began to write (README, Changelog); verify lists

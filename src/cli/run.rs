@@ -58,21 +58,22 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     for path in written {
         println!("  wrote {}", path.display());
     }
-    // Another valuation: another date or another case's title (the path as typed says
-    // nothing: the same case is run from other folders).
-    if let Some(e) = earlier.filter(|e| {
-        !e.valuation_date.is_empty()
-            && (e.valuation_date != valuation.case.valuation_date.to_string()
-                || e.title != valuation.case.title)
-    }) {
-        println!(
-            "  replaced the receipt of another valuation: {}, valuation date {}{}",
-            e.case_file,
-            e.valuation_date,
-            e.wacc
-                .map(|w| format!(", WACC {}", percent(w, 2)))
-                .unwrap_or_default()
-        );
+    if let Some(e) = earlier.filter(|e| another_valuation(e, &valuation)) {
+        match e.universe {
+            true => println!(
+                "  replaced the receipt of a universe run ({}); its tables in the folder are \
+                 not this run's",
+                e.case_file
+            ),
+            false => println!(
+                "  replaced the receipt of another valuation: {}, valuation date {}{}",
+                e.case_file,
+                e.valuation_date,
+                e.wacc
+                    .map(|w| format!(", WACC {}", percent(w, 2)))
+                    .unwrap_or_default()
+            ),
+        }
     }
     for name in &stale {
         let why = match report::VERIFICATION.contains(&name.as_str()) {
@@ -82,6 +83,17 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         println!("  removed {} ({why})", out.join(name).display());
     }
     Ok(())
+}
+
+/// Whether an earlier receipt in the output folder is of another valuation: a universe's, or a
+/// case of another title, valuation date or case file name (the folders the path was typed
+/// from do not count: the same case is run from its own folder and from above it).
+fn another_valuation(e: &report::staging::EarlierReceipt, v: &Valuation) -> bool {
+    let name = |path: &str| std::path::Path::new(path).file_name().map(|n| n.to_owned());
+    e.universe
+        || e.valuation_date != v.case.valuation_date.to_string()
+        || e.title != v.case.title
+        || name(&e.case_file) != name(&v.case.file)
 }
 
 fn summary(v: &Valuation) -> String {

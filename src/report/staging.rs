@@ -69,6 +69,8 @@ pub fn write_outputs_replacing(
 /// quarter's folder, or another case's run into this one).
 #[derive(Debug, Clone, PartialEq)]
 pub struct EarlierReceipt {
+    /// A universe's receipt (`kind = "universe"`), whose file is `case_file` here.
+    pub universe: bool,
     pub case_file: String,
     pub title: String,
     pub valuation_date: String,
@@ -84,8 +86,9 @@ pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
         return None;
     }
     Some(EarlierReceipt {
-        case_file: receipt["case"]["file"]
-            .as_str()
+        universe: receipt["kind"] == "universe",
+        case_file: (receipt["case"]["file"].as_str())
+            .or(receipt["universe"]["file"].as_str())
             .unwrap_or_default()
             .to_string(),
         title: receipt["case"]["title"]
