@@ -435,4 +435,18 @@ fn a_date_or_a_file_left_behind_is_noted() {
         &notes_of_run(|_| {}, &quarterly),
         "days before the window's end"
     ));
+    // With a staleness limit below that age the return is dropped, and the note says so.
+    let limited: Vec<&str> = quarterly
+        .iter()
+        .copied()
+        .chain(["beta.max_stale_days=30"])
+        .collect();
+    let dropped = notes_of_run(
+        |dir| cut_after(&dir.join("data/peers/corrowick.csv"), "2026-07-31"),
+        &limited,
+    );
+    assert!(
+        has(&dropped, "the last period's sample is 61 days old, beyond beta.max_stale_days = 30, so that return is dropped as stale"),
+        "{dropped:?}"
+    );
 }

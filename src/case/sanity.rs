@@ -413,7 +413,7 @@ pub fn file_end_notes(
     risk_free: Option<&crate::io::series::DataFile>,
     peers: &[(&str, &crate::io::series::DataFile)],
     period_ends: &[chrono::NaiveDate],
-    valuation_date: chrono::NaiveDate,
+    (valuation_date, max_stale_days): (chrono::NaiveDate, Option<u32>),
 ) -> Vec<String> {
     let mut notes = Vec::new();
     // A file whose last date is on or before the next-to-last period end has no price inside
@@ -433,10 +433,19 @@ pub fn file_end_notes(
         } else if short > STALE_END_DAYS {
             // Inside the last period: its return ends at that old price unless a staleness
             // limit drops it.
+            let what = match max_stale_days {
+                Some(days) if i64::from(days) < short => format!(
+                    "the last period's sample is {short} days old, beyond beta.max_stale_days = \
+                     {days}, so that return is dropped as stale"
+                ),
+                _ => format!(
+                    "the last period's return runs to a price {short} days old (a \
+                     beta.max_stale_days below {short} would drop it as stale)"
+                ),
+            };
             notes.push(format!(
                 "{name}: its prices ({}) end at {}, {short} days before the window's end \
-                 {end}: the last period's return runs to a price {short} days old (a \
-                 beta.max_stale_days below {short} would drop it as stale).",
+                 {end}: {what}.",
                 file.path, file.last_date
             ));
         }

@@ -178,7 +178,7 @@ fn estimate_peers_under(
         inputs.risk_free.as_ref(),
         &peer_files,
         window.period_ends(),
-        valuation_date,
+        (valuation_date, settings.beta.max_stale_days),
     ));
     let mut peers = Vec::with_capacity(settings.peers.len());
     for (peer, file) in settings.peers.iter().zip(&inputs.peers) {
