@@ -631,6 +631,15 @@ fn a_new_run_takes_away_the_verification_of_the_receipt_it_replaces() {
     );
     assert!(!a.join("out/verification.json").exists(), "{said}");
     assert!(!a.join("out/verification.md").exists(), "{said}");
+    // A status written by 0.2.0 records no hash: its receipt path, as that version read it,
+    // still ties it to the receipt the run replaces.
+    let status = serde_json::json!({
+        "receipt": a.join("out/result.json").display().to_string(),
+        "reproduced": true
+    });
+    std::fs::write(a.join("out/verification.json"), status.to_string()).unwrap();
+    in_dir(&a, &["run", case.to_str().unwrap(), "--out", "out"]);
+    assert!(!a.join("out/verification.json").exists());
 }
 
 // A run into a folder holding another valuation's receipt (a case rolled forward into last

@@ -121,7 +121,19 @@ fn verifies_the_receipt_in(dir: &Path) -> bool {
     let Ok(receipt) = std::fs::read(dir.join("result.json")) else {
         return false;
     };
-    status["receipt_sha256"].as_str() == Some(&crate::io::series::sha256_hex(&receipt))
+    match status["receipt_sha256"].as_str() {
+        Some(hash) => hash == crate::io::series::sha256_hex(&receipt),
+        // A status of 0.2.0 records no hash: its receipt path, from the working folder, as
+        // that version took it away.
+        None => {
+            let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
+                (Ok(a), Ok(b)) => a == b,
+                _ => false,
+            };
+            (status["receipt"].as_str())
+                .is_some_and(|receipt| same(Path::new(receipt), &dir.join("result.json")))
+        }
+    }
 }
 
 /// The memo, then the charts and the report when `with_figures`, each into `stage`; returns the

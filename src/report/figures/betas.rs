@@ -223,7 +223,9 @@ fn names(
                 for (i, line) in lines.iter().enumerate() {
                     root.draw_text(line, &reason_style, (x, y + 10 + 13 * i as i32))?;
                 }
-                labels.push((lines[0].clone(), reason.clone()));
+                if let Some(first) = lines.first() {
+                    labels.push((first.clone(), reason.clone()));
+                }
             }
         }
         if let Some(divider) = divider {

@@ -159,8 +159,10 @@ pub fn is_chart_name(name: &str) -> bool {
         .iter()
         .find_map(|prefix| name.strip_prefix(prefix)?.strip_suffix(".svg"));
     if let Some(number) = part {
+        // As a run writes them: no leading zero (`betas-2.svg`, never `betas-02.svg`).
         return number.parse::<usize>().is_ok_and(|n| n >= 2)
-            && number.bytes().all(|b| b.is_ascii_digit());
+            && number.bytes().all(|b| b.is_ascii_digit())
+            && !number.starts_with('0');
     }
     let Some(rest) = name
         .strip_prefix(REGRESSION_PREFIX)
@@ -281,6 +283,7 @@ mod tests {
             "figures/stability-1.svg",
             "figures/stability-x.svg",
             "figures/betas-+2.svg",
+            "figures/betas-02.svg",
             "betas.svg",
             "report.html",
         ] {

@@ -126,7 +126,6 @@ impl Sheet {
     }
 }
 
-/// `$C$5` for 0-based row 4, column 2.
 /// The width of a column of peer names: the longest name, at least 26 characters (the width
 /// the sheets had) and at most 60 (a longer name is cut off in its cell, whole in the bar).
 pub(crate) fn name_column_width(valuation: &Valuation) -> f64 {
@@ -137,6 +136,7 @@ pub(crate) fn name_column_width(valuation: &Valuation) -> f64 {
     (longest as f64 + 2.0).clamp(26.0, 60.0)
 }
 
+/// `$C$5` for 0-based row 4, column 2.
 pub(crate) fn absolute(row: u32, col: u16) -> String {
     format!("${}${}", column_letters(col as usize), row + 1)
 }
