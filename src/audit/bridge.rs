@@ -175,6 +175,16 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
     Ok(read_side_with_facts(path, written)?.0)
 }
 
+/// A case file as a side: run, and its build-up, date and facts taken from the valuation.
+fn case_side(path: &Path, written: &str) -> Result<(Side, Option<CaseFacts>)> {
+    let valuation = value(&load_inputs(read_case(path, &[])?)?, "")?;
+    let mut side = Side::from_valuation(&valuation.case.title, &valuation);
+    side.source = written.to_string();
+    side.as_of = Some(valuation.case.valuation_date.to_string());
+    side.sha256 = valuation.case.sha256.clone();
+    Ok((side, Some(CaseFacts::of(&valuation))))
+}
+
 /// [`read_side`], with the facts of a case side.
 pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<CaseFacts>)> {
     let fail = |message: String| Error::Case {
@@ -192,13 +202,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
     if !table.contains_key("claimed") {
         neither_case_nor_claim(&table).map_err(fail)?;
-        let case = read_case(path, &[])?;
-        let valuation = value(&load_inputs(case)?, "")?;
-        let mut side = Side::from_valuation(&valuation.case.title, &valuation);
-        side.source = written.to_string();
-        side.as_of = Some(valuation.case.valuation_date.to_string());
-        side.sha256 = valuation.case.sha256.clone();
-        return Ok((side, Some(CaseFacts::of(&valuation))));
+        return case_side(path, written);
     }
     crate::case::sanity::check_claimed_text(&text).map_err(fail)?;
     let claimed = toml::from_str::<ClaimedFile>(&text)

@@ -338,7 +338,8 @@ impl Default for BetaSettings {
             flag_observations_share: 0.8,
             flag_r_squared_floor: 0.05,
             flag_stale_share: 0.1,
-            flag_zero_return_share: DEFAULT_ZERO_RETURN_SHARE,
+            // hurdle's choice: a fifth of the returns unchanged is far above a traded share's.
+            flag_zero_return_share: 0.2,
             exclude_flags: Vec::new(),
             rolling_window: None,
             rolling_step: 1,
@@ -346,10 +347,6 @@ impl Default for BetaSettings {
         }
     }
 }
-
-/// hurdle's choice: a fifth of the returns unchanged is far above what a traded share shows at
-/// any frequency, and below the thin trading that biases a daily beta visibly.
-const DEFAULT_ZERO_RETURN_SHARE: f64 = 0.2;
 
 /// `[leverage]`: unlevering, aggregating and relevering.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

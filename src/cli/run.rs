@@ -96,6 +96,36 @@ fn another_valuation(e: &report::staging::EarlierReceipt, v: &Valuation) -> bool
         || name(&e.case_file) != name(&v.case.file)
 }
 
+/// The headline's intervals: the betas' estimation error, and the peer set resampled (nothing
+/// to resample with one aggregated peer; only three distinct sets with two).
+fn intervals(v: &Valuation) -> String {
+    let Some(u) = &v.uncertainty else {
+        return String::new();
+    };
+    let rates = match u.equity_risk_premium_range.is_some() || u.risk_free_rate_range.is_some() {
+        true => " and the stated rate ranges",
+        false => "",
+    };
+    let peer_set = match v.cost.beta.peers_included {
+        1 => "; with one aggregated peer, resampling the peer set adds nothing".to_string(),
+        n => format!(
+            ", {} to {} with the peer set resampled{}",
+            percent(u.peer_set.p05, 2),
+            percent(u.peer_set.p95, 2),
+            if n == 2 {
+                " (only three distinct sets)"
+            } else {
+                ""
+            }
+        ),
+    };
+    format!(
+        ", 90% interval {} to {} (beta estimation error{rates}){peer_set}",
+        percent(u.p05, 2),
+        percent(u.p95, 2)
+    )
+}
+
 fn summary(v: &Valuation) -> String {
     let mut lines = vec![
         format!(
@@ -134,33 +164,7 @@ fn summary(v: &Valuation) -> String {
             percent(v.cost.weights.debt, 1),
             other_weights(&v.cost.weights),
             percent(v.cost.wacc, 2),
-            match &v.uncertainty {
-                Some(u) => format!(
-                    ", 90% interval {} to {} (beta estimation error{}){}",
-                    percent(u.p05, 2),
-                    percent(u.p95, 2),
-                    match u.equity_risk_premium_range.is_some() || u.risk_free_rate_range.is_some()
-                    {
-                        true => " and the stated rate ranges",
-                        false => "",
-                    },
-                    match v.cost.beta.peers_included {
-                        1 => "; with one aggregated peer, resampling the peer set adds nothing"
-                            .to_string(),
-                        n => format!(
-                            ", {} to {} with the peer set resampled{}",
-                            percent(u.peer_set.p05, 2),
-                            percent(u.peer_set.p95, 2),
-                            if n == 2 {
-                                " (only three distinct sets)"
-                            } else {
-                                ""
-                            }
-                        ),
-                    }
-                ),
-                None => String::new(),
-            }
+            intervals(v)
         ),
     ];
     if !v.case.overrides.is_empty() {

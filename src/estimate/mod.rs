@@ -218,12 +218,16 @@ fn sample_returns(
     sampling::sampled_returns(&window.grid, prices, spec.max_stale_days, spec.returns)
 }
 
-/// The share of `returns` that are exactly zero (0 when there are none).
-fn zero_share(returns: &[f64]) -> f64 {
-    match returns.len() {
+/// The shares the flags read: of the window's periods with a stale price, and of the returns
+/// used that are exactly zero (0 when there are none).
+fn flag_shares(aligned: &sampling::AlignedReturns, periods_in_window: usize) -> (f64, f64) {
+    let returns = &aligned.asset;
+    let zero = match returns.len() {
         0 => 0.0,
         n => returns.iter().filter(|r| **r == 0.0).count() as f64 / n as f64,
-    }
+    };
+    let stale = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
+    (stale, zero)
 }
 
 /// The fitted line and its band over the range of the index returns the regression saw.
@@ -298,13 +302,9 @@ pub fn estimate_security(
         true => line_over(&estimate, &market_excess),
         false => FittedLine::default(),
     };
-    let stale_share = aligned.dropped.asset_stale as f64 / periods_in_window as f64;
-    let zero_return_share = zero_share(&aligned.asset);
-    let flags = spec.flags.flags(
-        &estimate,
-        periods_in_window,
-        (stale_share, zero_return_share),
-    );
+    let shares = flag_shares(&aligned, periods_in_window);
+    let (stale_share, zero_return_share) = shares;
+    let flags = spec.flags.flags(&estimate, periods_in_window, shares);
     let excluding_flags = spec.flags.excluding(&flags);
     let stability = rolling::stability(&rolling_points, spec.rolling.window)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;

@@ -153,33 +153,7 @@ fn estimate_peers_under(
     );
     let bounds = (window.start(), window.end());
     sanity::check_index_returns(case, &inputs.index, market.window_returns(&window), bounds)?;
-    let valuation_date = settings.case.valuation_date.0;
-    let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
-        .into_iter()
-        .chain(crate::case::sanity::unused_beta_notes(&settings.beta))
-        .collect();
-    notes.extend(crate::case::sanity::index_coverage_note(
-        &inputs.index,
-        (window.start(), window.end()),
-        "peer",
-        "periods_dropped.market_missing",
-    ));
-    notes.extend(crate::case::sanity::window_end_note(
-        &settings.beta,
-        valuation_date,
-        window.end(),
-    ));
-    let peer_files: Vec<(&str, &DataFile)> = (settings.peers.iter())
-        .zip(&inputs.peers)
-        .map(|(peer, file)| (peer.name.as_str(), file))
-        .collect();
-    notes.extend(crate::case::sanity::file_end_notes(
-        &inputs.index,
-        inputs.risk_free.as_ref(),
-        &peer_files,
-        window.period_ends(),
-        (valuation_date, settings.beta.max_stale_days),
-    ));
+    let mut notes = window_notes(case, inputs, &window);
     let mut peers = Vec::with_capacity(settings.peers.len());
     for (peer, file) in settings.peers.iter().zip(&inputs.peers) {
         let estimated = estimate::estimate_security(&spec, &window, &market, file.series.view())
@@ -224,6 +198,41 @@ fn estimate_peers_under(
         notes,
         settings: case.settings.clone(),
     })
+}
+
+/// The notes on the window and the files before any peer's own: the settings that set or do
+/// not touch the window, the index's coverage, where the window ends against the valuation
+/// date, and files left behind.
+fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
+    let settings = &case.settings;
+    let valuation_date = settings.case.valuation_date.0;
+    let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
+        .into_iter()
+        .chain(crate::case::sanity::unused_beta_notes(&settings.beta))
+        .collect();
+    notes.extend(crate::case::sanity::index_coverage_note(
+        &inputs.index,
+        (window.start(), window.end()),
+        "peer",
+        "periods_dropped.market_missing",
+    ));
+    notes.extend(crate::case::sanity::window_end_note(
+        &settings.beta,
+        valuation_date,
+        window.end(),
+    ));
+    let peer_files: Vec<(&str, &DataFile)> = (settings.peers.iter())
+        .zip(&inputs.peers)
+        .map(|(peer, file)| (peer.name.as_str(), file))
+        .collect();
+    notes.extend(crate::case::sanity::file_end_notes(
+        &inputs.index,
+        inputs.risk_free.as_ref(),
+        &peer_files,
+        window.period_ends(),
+        (valuation_date, settings.beta.max_stale_days),
+    ));
+    notes
 }
 
 /// Why a peer could not be estimated, with the file and the window.

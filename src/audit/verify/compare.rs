@@ -103,6 +103,18 @@ pub(crate) fn compare(recorded: &Value, recomputed: &Value, tolerance: f64) -> C
     found
 }
 
+/// When it ran, where the case was found from and which version wrote it are not figures
+/// (the hashes are compared, and the report names both versions when they differ); nor is
+/// the line a spread table's row sits on (the table's hash and the row's rating and spread
+/// are compared; a TOML table's row once recorded its position there, now its line).
+const PLACES: [&str; 5] = [
+    "generated_at",
+    "case.file",
+    "universe.file",
+    "tool.version",
+    "cost_of_debt.row.line",
+];
+
 /// Where a leaf is: its JSON path, its own key, and the name of the list entry it is in.
 struct Place<'a> {
     path: String,
@@ -127,17 +139,6 @@ fn compare_at(
     found: &mut Comparison,
 ) {
     let Place { path, key, item } = at;
-    // When it ran, where the case was found from and which version wrote it are not figures
-    // (the hashes are compared, and the report names both versions when they differ); nor is
-    // the line a spread table's row sits on (the table's hash and the row's rating and spread
-    // are compared; a TOML table's row once recorded its position there, now its line).
-    const PLACES: [&str; 5] = [
-        "generated_at",
-        "case.file",
-        "universe.file",
-        "tool.version",
-        "cost_of_debt.row.line",
-    ];
     // An input's hash is compared file by file (the verification's file list), not again as a
     // figure: a file whose bytes changed (line ends, a comment) while every figure stayed is
     // reported once, as a changed input.
@@ -163,17 +164,7 @@ fn compare_at(
                 compare_at(value, next, place(key), tolerance, found);
             }
             for key in b.keys().filter(|k| !a.contains_key(*k)) {
-                let at = place(key);
-                if b[key].is_null() || PLACES.contains(&at.path.as_str()) || key == "sha256" {
-                    compare_at(&Value::Null, &b[key], at, tolerance, found);
-                    continue;
-                }
-                found.added.push(Mismatch {
-                    path: at.path,
-                    item: at.item,
-                    recorded: Value::Null,
-                    recomputed: b[key].clone(),
-                });
+                only_in_rerun(&b[key], place(key), tolerance, found);
             }
             return;
         }
@@ -209,6 +200,23 @@ fn compare_at(
         };
         found.record(difference, key);
     }
+}
+
+/// A key only the rerun writes: held apart as possibly added by a later version
+/// ([`Comparison::settle_added`]), unless it is `null`, a place or a hash, which compare as
+/// any other leaf.
+fn only_in_rerun(value: &Value, at: Place<'_>, tolerance: f64, found: &mut Comparison) {
+    let ignored = PLACES.contains(&at.path.as_str()) || at.key == "sha256";
+    if value.is_null() || ignored {
+        compare_at(&Value::Null, value, at, tolerance, found);
+        return;
+    }
+    found.added.push(Mismatch {
+        path: at.path,
+        item: at.item,
+        recorded: Value::Null,
+        recomputed: value.clone(),
+    });
 }
 
 /// Whether two lists hold named entries (peers, leave-one-out rows) in another order or of

@@ -151,18 +151,15 @@ pub fn part_name(k: usize) -> String {
     }
 }
 
-/// Part `k` of `count`: the panels of peers `k · PANELS_PER_PART` onward.
-fn draw_part(
+/// A part's title and caption: the chart's, with the part's place among the parts when there
+/// are several.
+fn part_words(
     valuation: &Valuation,
-    (axes, shared): (&[Axes], bool),
+    shared: bool,
     (k, count): (usize, usize),
-) -> Result<Figure> {
+    (first, last): (usize, usize),
+) -> (String, String) {
     let peers = &valuation.peers;
-    let first = k * PANELS_PER_PART;
-    let last = (first + PANELS_PER_PART).min(peers.len());
-    let columns = if peers.len() > 1 { 2 } else { 1 };
-    let panel_rows = (last - first).div_ceil(columns);
-    let s = &valuation.settings.beta;
     let window = peers
         .iter()
         .find_map(|p| p.stability.as_ref())
@@ -171,7 +168,8 @@ fn draw_part(
         "Rolling {} betas through the window",
         super::method_name(valuation.estimator.method)
     );
-    let mut caption = caption(valuation, window, s.rolling_step, shared);
+    let step = valuation.settings.beta.rolling_step;
+    let mut caption = caption(valuation, window, step, shared);
     if count > 1 {
         title.push_str(&format!(" (part {} of {count})", k + 1));
         caption.push_str(&format!(
@@ -186,6 +184,43 @@ fn draw_part(
             }
         ));
     }
+    (title, caption)
+}
+
+/// The titles of the time axis and the beta axis, shared by every panel.
+fn axis_titles(valuation: &Valuation, layout: &Layout, root: &Area) -> Drawn {
+    let (_, plot, _) = layout.split(root);
+    let (width, height) = plot.dim_in_pixel();
+    let title = style::text(style::LABEL, &INK);
+    plot.draw_text(
+        &format!(
+            "End of the window (year and month), {} returns",
+            crate::report::format::label(&valuation.sampling.frequency)
+        ),
+        &title.pos(Pos::new(HPos::Center, VPos::Bottom)),
+        (width as i32 / 2, height as i32 - 4),
+    )?;
+    plot.draw_text(
+        "Equity beta",
+        &title
+            .transform(FontTransform::Rotate270)
+            .pos(Pos::new(HPos::Center, VPos::Top)),
+        (4, (height - X_TITLE) as i32 / 2),
+    )
+}
+
+/// Part `k` of `count`: the panels of peers `k · PANELS_PER_PART` onward.
+fn draw_part(
+    valuation: &Valuation,
+    (axes, shared): (&[Axes], bool),
+    (k, count): (usize, usize),
+) -> Result<Figure> {
+    let peers = &valuation.peers;
+    let first = k * PANELS_PER_PART;
+    let last = (first + PANELS_PER_PART).min(peers.len());
+    let columns = if peers.len() > 1 { 2 } else { 1 };
+    let panel_rows = (last - first).div_ceil(columns);
+    let (title, caption) = part_words(valuation, shared, (k, count), (first, last));
     let legend = vec![
         (Mark::Line(PRIMARY), "rolling β".to_string()),
         (Mark::Swatch(BAND), "95% interval, β ± t·SE".to_string()),
@@ -201,26 +236,7 @@ fn draw_part(
     let name = part_name(k);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
-    canvas.layer("axis-titles", |root| {
-        let (_, plot, _) = layout.split(root);
-        let (width, height) = plot.dim_in_pixel();
-        let title = style::text(style::LABEL, &INK);
-        plot.draw_text(
-            &format!(
-                "End of the window (year and month), {} returns",
-                crate::report::format::label(&valuation.sampling.frequency)
-            ),
-            &title.pos(Pos::new(HPos::Center, VPos::Bottom)),
-            (width as i32 / 2, height as i32 - 4),
-        )?;
-        plot.draw_text(
-            "Equity beta",
-            &title
-                .transform(FontTransform::Rotate270)
-                .pos(Pos::new(HPos::Center, VPos::Top)),
-            (4, (height - X_TITLE) as i32 / 2),
-        )
-    })?;
+    canvas.layer("axis-titles", |root| axis_titles(valuation, &layout, root))?;
     let grid = Panels {
         layout: &layout,
         axes,
