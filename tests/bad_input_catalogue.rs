@@ -1984,6 +1984,7 @@ fn overrides() -> Vec<Bad> {
             ],
             [
                 "case.toml",
+                "after applying --set beta.flag_r_squared_floor=1, --set beta.exclude_flags",
                 "every peer is excluded",
                 "Brenvale Fluid Systems, Corrowick Valves, Dunmere Hydraulics, Estwold Flow \
                  Controls, Fenhallow Seals, Glimmerby Pumpworks, Hollinsedge Industrial, \

@@ -150,12 +150,21 @@ fn no_peer_left(case: &Case, exclusions: &[Option<String>]) -> Error {
     let each: Vec<String> = (by_reason.iter())
         .map(|(reason, names)| format!("{} ({reason})", names.join(", ")))
         .collect();
-    Error::Case {
-        file: case.path.clone(),
-        message: format!(
-            "every peer is excluded, so no peer is left to aggregate: {}",
-            each.join("; ")
-        ),
+    let message = format!(
+        "every peer is excluded, so no peer is left to aggregate: {}",
+        each.join("; ")
+    );
+    // With overrides the exclusions may be theirs: the message says they were applied.
+    match case.overrides.is_empty() {
+        true => Error::Case {
+            file: case.path.clone(),
+            message,
+        },
+        false => Error::AfterOverrides {
+            file: case.path.clone(),
+            overrides: case.overrides.clone(),
+            message,
+        },
     }
 }
 
