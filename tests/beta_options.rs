@@ -524,15 +524,7 @@ fn prices_repeated_by_a_vendor_are_flagged_as_zero_returns() {
     std::fs::write(&file, lines.join("\n") + "\n").unwrap();
     let out = dir.path().join("out");
     let case = case_dir.join("case.toml");
-    let output = hurdle(&[
-        "run",
-        case.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
-    assert!(output.status.success(), "{output:?}");
-    let result: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let result = common::run_case_with(&case, &out, &[]);
     let peer = &result["peers"][1];
     assert_eq!(peer["name"], "Corrowick Valves");
     assert_eq!(peer["observations"], 60);
@@ -564,21 +556,7 @@ fn prices_repeated_by_a_vendor_are_flagged_as_zero_returns() {
     );
     // The rule can leave it out; a threshold above the share does not flag it.
     let excluded = dir.path().join("excluded");
-    let run = |out: &Path, set: &str| {
-        let output = hurdle(&[
-            "run",
-            case.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-            "--set",
-            set,
-        ]);
-        assert!(output.status.success(), "{output:?}");
-        serde_json::from_str::<serde_json::Value>(
-            &std::fs::read_to_string(out.join("result.json")).unwrap(),
-        )
-        .unwrap()
-    };
+    let run = |out: &Path, set: &str| common::run_case_with(&case, out, &[set]);
     let result = run(&excluded, "beta.exclude_flags=[\"zero_returns\"]");
     assert_eq!(result["beta"]["peers_included"], 7);
     let result = run(
@@ -632,19 +610,7 @@ fn an_inert_daily_staleness_limit_is_noted() {
         let out = dir.path().join(format!("out-{days}"));
         let limit = format!("beta.max_stale_days={days}");
         let case = case_dir.join("case.toml");
-        let mut args = vec![
-            "run",
-            case.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-        ];
-        for set in [daily[0], daily[1], limit.as_str()] {
-            args.extend(["--set", set]);
-        }
-        let output = hurdle(&args);
-        assert!(output.status.success(), "{output:?}");
-        let result: serde_json::Value =
-            serde_json::from_slice(&std::fs::read(out.join("result.json")).unwrap()).unwrap();
+        let result = common::run_case_with(&case, &out, &[daily[0], daily[1], &limit]);
         result["peers"][1]["periods_dropped"]["asset_stale"]
             .as_u64()
             .unwrap()

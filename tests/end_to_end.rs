@@ -332,21 +332,8 @@ fn notes_of_run(edit: impl Fn(&Path), set: &[&str]) -> Vec<String> {
     let case_dir = dir.path().join("case");
     common::copy_demo_case(&case_dir);
     edit(&case_dir);
-    let case = case_dir.join("case.toml");
     let out = dir.path().join("out");
-    let mut args = vec![
-        "run",
-        case.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ];
-    for assignment in set {
-        args.extend(["--set", assignment]);
-    }
-    let output = hurdle(&args);
-    assert!(output.status.success(), "{output:?}");
-    let result: serde_json::Value =
-        serde_json::from_slice(&std::fs::read(out.join("result.json")).unwrap()).unwrap();
+    let result = common::run_case_with(&case_dir.join("case.toml"), &out, set);
     (result["notes"].as_array().unwrap().iter())
         .map(|n| n.as_str().unwrap().to_string())
         .collect()

@@ -990,14 +990,7 @@ fn the_peer_that_unshares_the_stability_scale_is_named() {
     }
     std::fs::write(&file, out.join("\n") + "\n").unwrap();
     let run_dir = dir.path().join("out");
-    let case = case_dir.join("case.toml");
-    let output = hurdle(&[
-        "run",
-        case.to_str().unwrap(),
-        "--out",
-        run_dir.to_str().unwrap(),
-    ]);
-    assert!(output.status.success(), "{output:?}");
+    common::run_case_with(&case_dir.join("case.toml"), &run_dir, &[]);
     let svg = std::fs::read_to_string(run_dir.join("figures/stability.svg")).unwrap();
     assert!(
         unescape(&svg).contains(

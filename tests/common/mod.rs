@@ -20,6 +20,23 @@ pub fn hurdle(args: &[&str]) -> Output {
         .expect("hurdle runs")
 }
 
+/// `hurdle run CASE --out OUT --set …` for each of `sets`, which must succeed; its result.json.
+#[allow(dead_code)]
+pub fn run_case_with(case: &Path, out: &Path, sets: &[&str]) -> serde_json::Value {
+    let mut args = vec![
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    for set in sets {
+        args.extend(["--set", set]);
+    }
+    let output = hurdle(&args);
+    assert!(output.status.success(), "{sets:?}: {output:?}");
+    serde_json::from_slice(&fs::read(out.join("result.json")).unwrap()).unwrap()
+}
+
 /// A number in a JSON value by its dotted path (`weights.equity`).
 #[allow(dead_code)]
 pub fn number(v: &serde_json::Value, path: &str) -> f64 {
