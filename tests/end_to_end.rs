@@ -78,6 +78,24 @@ fn demo_run_writes_every_output_with_consistent_figures() {
     // peers.csv has one row per peer; returns.csv one row per peer and period used.
     let peers_csv = std::fs::read_to_string(dir.path().join("peers.csv")).unwrap();
     assert_eq!(peers_csv.lines().count(), 1 + peers.len());
+    // Its figures are result.json's, written in the shortest form that reads back to the same
+    // double, so they compare exactly (no tolerance: one value feeds both files).
+    let mut table = csv::Reader::from_reader(peers_csv.as_bytes());
+    let header = table.headers().unwrap().clone();
+    let column = |name: &str| header.iter().position(|h| h == name).unwrap();
+    for (row, peer) in table.records().zip(peers) {
+        let row = row.unwrap();
+        assert_eq!(&row[column("name")], peer["name"].as_str().unwrap());
+        for field in [
+            "beta_used",
+            "unlevered_beta",
+            "stale_share",
+            "zero_return_share",
+        ] {
+            let written: f64 = row[column(field)].parse().unwrap();
+            assert_eq!(written, peer[field].as_f64().unwrap(), "{field}");
+        }
+    }
     let returns_csv = std::fs::read_to_string(dir.path().join("returns.csv")).unwrap();
     let used: u64 = peers
         .iter()

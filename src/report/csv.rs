@@ -14,7 +14,7 @@ pub struct PeersCsv;
 /// Long form: one row per peer and return period.
 pub struct ReturnsCsv;
 
-const PEER_COLUMNS: [&str; 28] = [
+const PEER_COLUMNS: [&str; 30] = [
     "name",
     "prices_file",
     "observations",
@@ -43,6 +43,8 @@ const PEER_COLUMNS: [&str; 28] = [
     "cost_of_debt",
     "operating_share",
     "operations_beta",
+    "stale_share",
+    "zero_return_share",
 ];
 
 impl Render for PeersCsv {
@@ -94,6 +96,8 @@ impl Render for PeersCsv {
                     .unwrap_or_default(),
                 Full(p.operating_share).to_string(),
                 Full(p.operations_beta).to_string(),
+                Full(p.stale_share).to_string(),
+                Full(p.zero_return_share).to_string(),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');

@@ -36,6 +36,37 @@ pub fn exact(value: f64) -> String {
     crate::error::compact(value)
 }
 
+/// A setting's rate in percent with every digit it has and no more (0.2 → `20%`, 0.125 →
+/// `12.5%`, 0.2575 → `25.75%`), so a memo that names a key's value shows the value the case
+/// holds, not a rounding of it. The decimal point of the rate's shortest text is moved, so no
+/// `x·100` noise appears (0.07·100 is 7.000000000000001 in binary).
+pub fn exact_percent(rate: f64) -> String {
+    let text = exact(rate);
+    if text.contains(['e', 'E', 'N', 'i']) {
+        return format!("{}%", exact(rate * 100.0));
+    }
+    let (sign, digits) = text
+        .strip_prefix('-')
+        .map_or(("", text.as_str()), |rest| ("-", rest));
+    let (whole, fraction) = digits.split_once('.').unwrap_or((digits, ""));
+    let fraction = format!("{fraction:0<2}");
+    let (moved, rest) = fraction.split_at(2);
+    let whole = format!("{whole}{moved}");
+    let whole = whole.trim_start_matches('0');
+    let whole = if whole.is_empty() { "0" } else { whole };
+    let rest = rest.trim_end_matches('0');
+    let sign = if whole == "0" && rest.is_empty() {
+        ""
+    } else {
+        sign
+    };
+    if rest.is_empty() {
+        format!("{sign}{whole}%")
+    } else {
+        format!("{sign}{whole}.{rest}%")
+    }
+}
+
 /// Text for a Markdown table cell: a `|` in it (a peer's name, a file's path) escaped, so that
 /// it does not split the row.
 pub fn table_cell(text: String) -> String {
@@ -104,6 +135,25 @@ pub use crate::error::{compact, rounded};
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_setting_in_percent_keeps_every_digit_it_has() {
+        // Decimal arithmetic by hand: moving the point two places is exact.
+        for (rate, text) in [
+            (0.2, "20%"),
+            (0.125, "12.5%"),
+            (0.2575, "25.75%"),
+            (0.07, "7%"),
+            (0.005, "0.5%"),
+            (0.0, "0%"),
+            (1.0, "100%"),
+            (1.5, "150%"),
+            (-0.0125, "-1.25%"),
+            (0.123456789, "12.3456789%"),
+        ] {
+            assert_eq!(exact_percent(rate), text, "{rate}");
+        }
+    }
 
     #[test]
     fn formats() {

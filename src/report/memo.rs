@@ -98,6 +98,7 @@ impl Render for Memo {
         env.add_filter("bp", bp);
         env.add_filter("num", num);
         env.add_filter("exact", format::exact);
+        env.add_filter("exact_pct", format::exact_percent);
         env.add_filter("cell", format::table_cell);
         env.add_filter("group", format::group_title);
         env.add_template_owned(self.name.clone(), self.source.clone())
