@@ -786,6 +786,78 @@ fn tooltips(svg: &[Element]) -> Vec<(String, String)> {
         .collect()
 }
 
+// Thirty peers of which twenty are left out: the aggregate's line is drawn beside the peers it
+// aggregates, so a betas part holding only peers left out has none (it once drew a stub of it
+// above the divider).
+#[test]
+fn a_betas_part_of_peers_left_out_draws_no_aggregate_line() {
+    let root = tempfile::tempdir().unwrap();
+    let case = thirty_peer_case(root.path());
+    let mut toml = std::fs::read_to_string(&case).unwrap();
+    for k in 3..22 {
+        let name = format!("name = \"Invented Added Peer {k:02}\"\n");
+        assert!(toml.contains(&name));
+        toml = toml.replace(
+            &name,
+            &format!("{name}exclude = \"Left out for this test\"\n"),
+        );
+    }
+    std::fs::write(&case, toml).unwrap();
+    let out = root.path().join("out");
+    let output = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let result: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let peers = result["peers"].as_array().unwrap();
+    let included = peers
+        .iter()
+        .filter(|p| p["excluded_reason"].is_null())
+        .count();
+    assert_eq!((peers.len(), included), (30, 10));
+    // Rows run included first, then the excluded; a part holds an included peer when the
+    // rows before it are fewer than the included ones.
+    let (mut before, mut parts_without) = (0, 0);
+    for k in 1.. {
+        let file = match k {
+            1 => "betas.svg".to_string(),
+            k => format!("betas-{k}.svg"),
+        };
+        let Ok(text) = std::fs::read_to_string(out.join("figures").join(&file)) else {
+            break;
+        };
+        let svg = parse(&text);
+        let rows = in_group(&svg, "raw-beta").len();
+        let lines = in_group(&svg, "aggregate").len();
+        if before < included {
+            assert!(
+                lines > 0,
+                "{file}: holds included peers, so the aggregate's line"
+            );
+        } else {
+            assert_eq!(
+                lines, 0,
+                "{file}: only peers left out, so no aggregate line"
+            );
+            parts_without += 1;
+        }
+        before += rows;
+    }
+    assert_eq!(before, 30);
+    assert!(
+        parts_without > 0,
+        "the case puts a part of excluded peers alone"
+    );
+}
+
 // Thirty peers: the betas and the rolling betas come in parts small enough to print legibly,
 // every part linked from the memo and inlined in the report, every peer drawn exactly once;
 // names shortened in the middle stay apart and keep the whole name as a tooltip; the claim's

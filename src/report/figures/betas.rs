@@ -282,16 +282,20 @@ fn marks(
         )))?;
         Ok(())
     })?;
-    plot_layer(canvas, layout, axes, "aggregate", |chart| {
-        let end = divider.unwrap_or(last);
-        chart.draw_series(std::iter::once(DashedPathElement::new(
-            vec![(aggregate, end), (aggregate, top)],
-            6,
-            4,
-            ACCENT.stroke_width(2),
-        )))?;
-        Ok(())
-    })?;
+    // The aggregate's line runs beside the peers it aggregates: none in a part that holds only
+    // peers left out of it (a large set's last part).
+    if rows.iter().any(|r| r.peer.excluded_reason.is_none()) {
+        plot_layer(canvas, layout, axes, "aggregate", |chart| {
+            let end = divider.unwrap_or(last);
+            chart.draw_series(std::iter::once(DashedPathElement::new(
+                vec![(aggregate, end), (aggregate, top)],
+                6,
+                4,
+                ACCENT.stroke_width(2),
+            )))?;
+            Ok(())
+        })?;
+    }
     plot_layer(canvas, layout, axes, "intervals", |chart| {
         let stroke = PRIMARY.stroke_width(2);
         for row in rows {
