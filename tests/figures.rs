@@ -735,13 +735,18 @@ const NORTH: &str = "Caddlewick Precision Flow Control Holdings North America";
 const EUROPE: &str = "Caddlewick Precision Flow Control Holdings Europe";
 const VERY_LONG: &str = "Fallowmoor Very Long Name Engineering Consolidated Worldwide Limited \
                          Partnership (Registered Holding Company) Ltd";
+/// Two invented names that differ only in their middle: cut in the middle alone, they read
+/// the same.
+const CLASS_A: &str = "Tarnwell Pump and Valve Holdings Class A Voting Ordinary Shares";
+const CLASS_B: &str = "Tarnwell Pump and Valve Holdings Class B Voting Ordinary Shares";
 const CLAIM: &str = "Invented adviser build-up for the large review case";
 const REASON: &str = "Invented: a pending merger distorts its prices since 2025; left out on \
                       judgement.";
 
 /// The demo case copied into `root/case` with 22 more invented peers (30 in all), each on a
 /// demo peer's prices scaled (a file of its own; the same returns), two of them `NORTH` and
-/// `EUROPE`, the last excluded by hand for `REASON`; and the claim labelled `CLAIM`.
+/// `EUROPE`, two `CLASS_A` and `CLASS_B`, the last excluded by hand for `REASON`; and the
+/// claim labelled `CLAIM`.
 fn thirty_peer_case(root: &Path) -> std::path::PathBuf {
     let case = root.join("case");
     common::copy_demo_case(&case);
@@ -753,7 +758,8 @@ fn thirty_peer_case(root: &Path) -> std::path::PathBuf {
         .collect();
     assert_eq!(files.len(), 8, "the demo has eight peers");
     let mut names = vec![NORTH.to_string(), EUROPE.to_string()];
-    names.extend((3..=22).map(|k| format!("Invented Added Peer {k:02}")));
+    names.extend([CLASS_A.to_string(), CLASS_B.to_string()]);
+    names.extend((5..=22).map(|k| format!("Invented Added Peer {k:02}")));
     for (k, name) in names.iter().enumerate() {
         let source = &files[k % files.len()];
         let text = std::fs::read_to_string(case.join(source)).unwrap();
@@ -794,7 +800,7 @@ fn a_betas_part_of_peers_left_out_draws_no_aggregate_line() {
     let root = tempfile::tempdir().unwrap();
     let case = thirty_peer_case(root.path());
     let mut toml = std::fs::read_to_string(&case).unwrap();
-    for k in 3..22 {
+    for k in 5..22 {
         let name = format!("name = \"Invented Added Peer {k:02}\"\n");
         assert!(toml.contains(&name));
         toml = toml.replace(
@@ -822,7 +828,7 @@ fn a_betas_part_of_peers_left_out_draws_no_aggregate_line() {
         .iter()
         .filter(|p| p["excluded_reason"].is_null())
         .count();
-    assert_eq!((peers.len(), included), (30, 10));
+    assert_eq!((peers.len(), included), (30, 12));
     // Rows run included first, then the excluded; a part holds an included peer when the
     // rows before it are fewer than the included ones.
     let (mut before, mut parts_without) = (0, 0);
@@ -968,6 +974,8 @@ fn a_large_peer_set_is_drawn_in_legible_parts_with_distinct_labels() {
         };
         let (north, europe) = (drawn(NORTH), drawn(EUROPE));
         assert_ne!(north, europe, "{chart}");
+        // Names that differ only in their middle are drawn apart too.
+        assert_ne!(drawn(CLASS_A), drawn(CLASS_B), "{chart}");
         for (shown, full) in [(&north, NORTH), (&europe, EUROPE)] {
             assert!(shown.contains('…'), "{chart}: {shown}");
             // The drawn start and end are the name's own.

@@ -10,7 +10,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::axes::{plot_layer, Axes, Scale};
-use super::canvas::{shorten, shorten_middle, wrap, Canvas};
+use super::canvas::{distinct_middle, shorten, shorten_middle, wrap, Canvas};
 use super::frame::{fit, square, triangle, Layout, Mark};
 use super::style::{self, ACCENT, INK, MUTED, NEUTRAL, PRIMARY, RULE};
 use super::{Figure, Kind};
@@ -134,7 +134,8 @@ fn draw_part(
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    names(&mut canvas, &layout, &axes, &rows, divider)?;
+    let all: Vec<&str> = valuation.peers.iter().map(|p| p.name.as_str()).collect();
+    names(&mut canvas, &layout, &axes, (&rows, &all), divider)?;
     marks(
         &mut canvas,
         &layout,
@@ -200,7 +201,7 @@ fn names(
     canvas: &mut Canvas,
     layout: &Layout,
     axes: &Axes,
-    rows: &[Row],
+    (rows, all): (&[Row], &[&str]),
     divider: Option<f64>,
 ) -> Result<()> {
     // Each label drawn shorter than its text, with the whole text, for its tooltip.
@@ -215,7 +216,12 @@ fn names(
             let x = left - 12;
             // The band left of the plot, by the estimated advance of the characters (frame.rs).
             let room = f64::from(x - style::MARGIN);
-            let name = shorten_middle(&row.peer.name, fit(room, style::LABEL));
+            // Shortened among every peer's name, so two never read alike (in any part).
+            let width = fit(room, style::LABEL);
+            let name = match all.iter().position(|n| *n == row.peer.name) {
+                Some(place) => distinct_middle(all, width).swap_remove(place),
+                None => shorten_middle(&row.peer.name, width),
+            };
             root.draw_text(&name, &name_style, (x, y))?;
             labels.push((name, row.peer.name.clone()));
             if let Some(reason) = &row.peer.excluded_reason {

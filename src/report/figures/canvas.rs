@@ -165,7 +165,73 @@ pub fn shorten_middle(text: &str, width: usize) -> String {
     format!("{}…{}", start.trim_end(), end.trim_start())
 }
 
-/// Breaks `text` into lines of at most `width` characters at spaces (a longer word stands
+/// Each of `names` shortened in the middle to `width` characters ([`shorten_middle`]), with
+/// labels that would read alike told apart: two names that differ only inside the part the
+/// cut leaves out ("Orrin Holdings Class A Voting Shares" and "… Class B …") keep their start,
+/// then an ellipsis, then the text from the first character where they differ ("Orrin Ho…A
+/// Voting Shares", "Orrin Ho…B Voting Shares"), cut again at the end if need be. A label that
+/// still reads like another (three names or more, each pair differing elsewhere) ends with its
+/// place in `names` ("#3"). Names are unique, so whole names never need it.
+pub fn distinct_middle(names: &[&str], width: usize) -> Vec<String> {
+    let mut labels: Vec<String> = names.iter().map(|n| shorten_middle(n, width)).collect();
+    let first = labels.clone();
+    for (i, name) in names.iter().enumerate() {
+        let shared = (names.iter().zip(&first))
+            .filter(|(other, label)| *other != name && **label == first[i])
+            .map(|(other, _)| common_prefix(name, other))
+            .max();
+        if let Some(shared) = shared {
+            labels[i] = from_difference(name, shared, width);
+        }
+    }
+    let second = labels.clone();
+    for (i, label) in labels.iter_mut().enumerate() {
+        if second.iter().filter(|l| *l == label).count() > 1 {
+            let mark = format!(" #{}", i + 1);
+            let room = width.saturating_sub(mark.chars().count()).max(2);
+            *label = format!("{}{mark}", shorten(label, room));
+        }
+    }
+    labels
+}
+
+/// How many leading characters `a` and `b` share.
+fn common_prefix(a: &str, b: &str) -> usize {
+    a.chars().zip(b.chars()).take_while(|(x, y)| x == y).count()
+}
+
+/// `text` as a start, an ellipsis and the text from the word holding character `from` on, in
+/// `width` characters: the start at most a third of them (ending at a space when that keeps
+/// half of it), the rest taking whole words before that one while they fit, else cut at its
+/// end with a second ellipsis.
+fn from_difference(text: &str, from: usize, width: usize) -> String {
+    let chars: Vec<char> = text.chars().collect();
+    let from = from.min(chars.len());
+    let mut head = (width.saturating_sub(2) / 3).clamp(1, from.max(1));
+    if let Some(space) = chars[..head].iter().rposition(|c| c.is_whitespace()) {
+        if space >= head / 2 && space > 0 {
+            head = space;
+        }
+    }
+    let room = width.saturating_sub(head + 1).max(1);
+    let word_start = |at: usize| {
+        chars[..at]
+            .iter()
+            .rposition(|c| c.is_whitespace())
+            .map_or(0, |space| space + 1)
+            .max(head)
+    };
+    let mut start = word_start(from);
+    // Earlier words while the rest still fits whole.
+    while start > head + 1 && chars.len() - word_start(start - 1) <= room {
+        start = word_start(start - 1);
+    }
+    let head: String = chars[..head].iter().collect();
+    let rest: String = chars[start..].iter().collect();
+    format!("{}…{}", head.trim_end(), shorten(rest.trim_start(), room))
+}
+
+/// Breaks `text` into lines of at most `width` characters at spaces/// Breaks `text` into lines of at most `width` characters at spaces (a longer word stands
 /// alone on its line).
 pub fn wrap(text: &str, width: usize) -> Vec<String> {
     let mut lines = Vec::new();
@@ -210,6 +276,43 @@ mod tests {
         );
         for width in 3..40 {
             assert!(shorten_middle(america, width).chars().count() <= width);
+        }
+    }
+
+    #[test]
+    fn names_alike_but_for_their_middle_are_drawn_apart() {
+        let a = "Orrin Valve and Pump Holdings Class A Voting Shares";
+        let b = "Orrin Valve and Pump Holdings Class B Voting Shares";
+        let c = "Corrowick Valves";
+        // Cut in the middle alone, the two read the same.
+        assert_eq!(shorten_middle(a, 24), shorten_middle(b, 24));
+        let labels = distinct_middle(&[a, b, c], 24);
+        assert_eq!(labels[0], "Orrin…A Voting Shares");
+        assert_eq!(labels[1], "Orrin…B Voting Shares");
+        // Wider, the words before the difference come back while they fit.
+        let wide = distinct_middle(&[a, b], 30);
+        assert_eq!(wide[0], "Orrin…Class A Voting Shares");
+        assert_eq!(labels[2], c);
+        // Narrower, the text after the difference is cut too; still apart and within width.
+        for width in 8..30 {
+            let labels = distinct_middle(&[a, b, c], width);
+            assert_ne!(labels[0], labels[1], "{width}");
+            assert!(
+                labels.iter().all(|l| l.chars().count() <= width),
+                "{labels:?}"
+            );
+        }
+        // Three names each pair of which differs in the cut part: no two labels alike.
+        let names = [
+            "Tessaly Group Industrial A Holdings North",
+            "Tessaly Group Industrial B Holdings North",
+            "Tessaly Group Industrial C Holdings North",
+        ];
+        let labels = distinct_middle(&names, 16);
+        for i in 0..3 {
+            for j in 0..i {
+                assert_ne!(labels[i], labels[j], "{labels:?}");
+            }
         }
     }
 

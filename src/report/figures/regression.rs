@@ -10,7 +10,7 @@
 use plotters::prelude::*;
 
 use super::axes::{extent, plot_layer, Axes, Scale};
-use super::canvas::{shorten_middle, Canvas};
+use super::canvas::{distinct_middle, Canvas};
 use super::frame::{Layout, Mark};
 use super::style::{ACCENT, BAND, FLAG, NEUTRAL, PRIMARY};
 use super::{per_period, slug, Figure, Kind};
@@ -79,9 +79,10 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
     // title and the report keep it whole.
     // Shortened in the middle, so peers whose names share a long start stay apart; the whole
     // name is the first title line's tooltip.
+    let names: Vec<&str> = valuation.peers.iter().map(|p| p.name.as_str()).collect();
     let drawn = format!(
         "{}: regression on the index",
-        shorten_middle(&peer.name, 40)
+        distinct_middle(&names, 40).swap_remove(index)
     );
     let layout = Layout::new(WIDTH, PLOT, &drawn, &legend, &caption);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());

@@ -13,7 +13,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::style::FontTransform;
 
 use super::axes::{Axes, Chart, Scale};
-use super::canvas::{shorten_middle, Area, Canvas, Drawn};
+use super::canvas::{distinct_middle, Area, Canvas, Drawn};
 use super::frame::{fit, Layout, Mark};
 use super::style::{self, ACCENT, BAND, INK, MUTED, PRIMARY};
 use super::{Figure, Kind};
@@ -237,12 +237,14 @@ fn draw_part(
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     canvas.layer("axis-titles", |root| axis_titles(valuation, &layout, root))?;
+    let names: Vec<&str> = peers.iter().map(|p| p.name.as_str()).collect();
     let grid = Panels {
         layout: &layout,
         axes,
         rows: panel_rows,
         columns,
         first,
+        names: &names,
     };
     let panels = peers.iter().zip(&valuation.rolling).enumerate();
     for (i, (peer, points)) in panels.take(last).skip(first) {
@@ -272,6 +274,8 @@ struct Panels<'a> {
     rows: usize,
     columns: usize,
     first: usize,
+    /// Every peer's name, in case order, so no two panel titles read alike.
+    names: &'a [&'a str],
 }
 
 impl Panels<'_> {
@@ -305,7 +309,7 @@ impl Panels<'_> {
             // advance of bold characters (frame.rs, as for the chart's title), whole in the
             // tooltip and the description.
             let room = f64::from(band.dim_in_pixel().0) - 2.0 * f64::from(style::MARGIN);
-            let text = shorten_middle(name, fit(room, style::LABEL * 1.04));
+            let text = distinct_middle(self.names, fit(room, style::LABEL * 1.04)).swap_remove(i);
             band.draw_text(&text, &name_style, (style::MARGIN, 4))?;
             *shown.borrow_mut() = text;
             if empty {
