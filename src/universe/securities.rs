@@ -287,9 +287,11 @@ fn unlever(
     let issue = debt_to_equity.and_then(|de| match de {
         _ if de <= -1.0 => Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY),
         _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
-        // The case's rule (capital::chain), for the formulas that take a debt beta, and a D/E
-        // that lets the debt beta count.
+        // The case's rule (capital::chain::check_debt_betas), for the formulas that take a debt
+        // beta, when a debt beta is given, and a D/E that lets the debt beta count: without a
+        // given debt beta (riskless debt) a negative equity beta is unlevered as Hamada would.
         _ if leverage.formula != Formula::Hamada
+            && leverage.debt_beta_source != DebtBetaSource::None
             && de != 0.0
             && beta_used.is_some_and(|b| debt_beta > b) =>
         {
@@ -390,6 +392,7 @@ mod tests {
     fn a_debt_beta_above_the_equity_beta_is_not_unlevered() {
         let harris_pringle = LeverageSettings {
             formula: Formula::HarrisPringle,
+            debt_beta_source: DebtBetaSource::Given,
             ..LeverageSettings::default()
         };
         let with = |leverage: &LeverageSettings, debt_beta: f64| {
@@ -440,6 +443,31 @@ mod tests {
             (u.unlevered, u.issue),
             (None, Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY))
         );
+    }
+
+    // Without a given debt beta (riskless debt, leverage.debt_beta_source = "none") a negative
+    // equity beta is unlevered under Harris–Pringle as a case unlevers its peer
+    // (capital::chain::check_debt_betas skips the rule then): βU = −0.06 / 1.5 = −0.04 at
+    // D/E = 0.5 (Harris and Pringle 1985, βD = 0).
+    #[test]
+    fn a_negative_beta_is_unlevered_when_no_debt_beta_is_given() {
+        let leverage = LeverageSettings {
+            formula: Formula::HarrisPringle,
+            ..LeverageSettings::default()
+        };
+        assert_eq!(leverage.debt_beta_source, DebtBetaSource::None);
+        let u = unlever(
+            Some(-0.06),
+            Some(100.0),
+            Some(50.0),
+            None,
+            Some(0.3),
+            &leverage,
+            0.0,
+        );
+        assert_eq!(u.issue, None);
+        // 1e-17: one division of a number near 0.06 (ulp about 7e-18).
+        assert!((u.unlevered.unwrap() + 0.04).abs() < 1e-17);
     }
 
     // Harris and Pringle (1985): βU = (βL + βD·D/E) / (1 + D/E), no tax term, so a missing tax
