@@ -600,6 +600,19 @@ fn price_files() -> Vec<Bad> {
             ["peer.1.prices", "data/index.csv", "same dates and prices"]
         ),
         bad!(
+            "peer file is the index with rows left out",
+            |s| {
+                copy(s, INDEX, PEER);
+                keep_lines(s, PEER, |n| n % 5 != 3)
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "Corrowick Valves",
+                "prices equal the index's",
+                "data/index.csv"
+            ]
+        ),
+        bad!(
             "peer file is the index scaled",
             |s| {
                 copy(s, INDEX, PEER);

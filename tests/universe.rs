@@ -459,10 +459,10 @@ fn a_security_whose_price_never_moves_is_not_estimated() {
     assert_eq!(number(&s03, "observations"), usable);
 }
 
-// A security whose prices are the index's (a fund tracking it, or the index itself listed in
-// the panel) is not a firm: the index explains its returns wholly (R² = 1 up to the prices'
-// four decimals), so it is listed as not estimated (`copies_index`, the rule a case applies to
-// a peer, R² above 0.999) and stays out of its industry's median.
+// A security whose prices are half the index's (a fund tracking it) is not a firm: the index
+// explains its returns wholly (R² = 1 up to the prices' decimals), so it is listed as not
+// estimated (`copies_index`, the rule a case applies to a peer, R² above 0.999) and stays out
+// of its industry's median.
 #[test]
 fn a_security_that_copies_the_index_is_not_estimated() {
     let setup = Setup::new();
@@ -476,7 +476,8 @@ fn a_security_that_copies_the_index_is_not_estimated() {
         .collect();
     for line in index.lines().skip(1) {
         let (date, level) = line.split_once(',').unwrap();
-        copied.push_str(&format!("{date},S03,{level}\n"));
+        let half = level.parse::<f64>().unwrap() / 2.0;
+        copied.push_str(&format!("{date},S03,{half}\n"));
     }
     fs::write(&long, copied).unwrap();
     let out = setup.succeeds("out", &[]);
@@ -486,6 +487,45 @@ fn a_security_that_copies_the_index_is_not_estimated() {
         "a fund tracking it",
         "and so no estimate (copies_index): S03",
     );
+}
+
+// The index's prices with some rows missing: sampled weekly on Fridays, the security's week
+// then often ends a day earlier than the index's, so its returns no longer copy the index's
+// to R² above 0.999; yet every price it has is the index's on that date. It is a copy of the
+// index's price file, not a firm, and is listed as such (`copies_index`), as a case refuses
+// such a peer.
+#[test]
+fn a_security_with_the_index_prices_on_every_date_it_has_is_not_estimated() {
+    let setup = Setup::new();
+    let index = fs::read_to_string(setup.dir().join("index.csv")).unwrap();
+    let long = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&long).unwrap();
+    let mut copied: String = text
+        .lines()
+        .filter(|line| !line.contains(",S03,"))
+        .map(|line| format!("{line}\n"))
+        .collect();
+    for (k, line) in index.lines().skip(1).enumerate() {
+        // Two of every three Fridays missing.
+        let (date, level) = line.split_once(',').unwrap();
+        let day = chrono::NaiveDate::parse_from_str(date, "%Y-%m-%d").unwrap();
+        let friday = chrono::Datelike::weekday(&day) == chrono::Weekday::Fri;
+        if !(friday && k % 3 != 0) {
+            copied.push_str(&format!("{date},S03,{level}\n"));
+        }
+    }
+    fs::write(&long, copied).unwrap();
+    let sets = ["beta.frequency=weekly", "beta.weekday=friday"];
+    let out = setup.succeeds("out", &sets);
+    let securities = read_table(&out.join("securities.csv"));
+    let row = security_row(&securities, "S03");
+    assert_eq!(text_of(&row, "not_estimated"), "copies_index");
+    assert!(
+        text_of(&row, "not_estimated_detail").contains("prices equal the index's"),
+        "{}",
+        text_of(&row, "not_estimated_detail")
+    );
+    assert_eq!(text_of(&row, "beta"), "");
 }
 
 // A price ten times its neighbours (a bad price, or a split the file did not adjust) moves by

@@ -172,6 +172,36 @@ pub struct SecurityEstimate {
 /// as not estimated. No listed firm's returns follow an index this closely.
 pub const INDEX_COPY_R_SQUARED: f64 = 0.999;
 
+/// How many dates from `start` to `end` (inclusive) `security` and `index` both have prices
+/// for, when on every one of them the two prices are the same number (at least two such dates):
+/// a copy of the index's price file with rows left out or added, which sampled on another day
+/// can escape [`INDEX_COPY_R_SQUARED`]. `None` at the first date whose prices differ, so a
+/// firm's series costs a comparison or two.
+pub fn same_prices_as_index(
+    security: SeriesView<'_>,
+    index: SeriesView<'_>,
+    (start, end): (NaiveDate, NaiveDate),
+) -> Option<usize> {
+    let from = security.dates.partition_point(|&d| d < start);
+    let mut j = index.dates.partition_point(|&d| d < start);
+    let mut shared = 0;
+    for (date, price) in security.dates[from..].iter().zip(&security.values[from..]) {
+        if *date > end {
+            break;
+        }
+        while j < index.dates.len() && index.dates[j] < *date {
+            j += 1;
+        }
+        if j < index.dates.len() && index.dates[j] == *date {
+            if index.values[j] != *price {
+                return None;
+            }
+            shared += 1;
+        }
+    }
+    (shared >= 2).then_some(shared)
+}
+
 impl SecurityEstimate {
     /// Whether the index explains the returns to more than [`INDEX_COPY_R_SQUARED`].
     pub fn copies_index(&self) -> bool {
@@ -321,4 +351,49 @@ pub fn estimate_security(
         fitted_line,
         returns: aligned,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn day(d: u32) -> NaiveDate {
+        NaiveDate::from_ymd_opt(2026, 3, d).unwrap()
+    }
+
+    // By hand: the index's prices on 2–6 March; a copy missing 4 March shares 4 dates, all
+    // equal; a firm differing on one date in the window is no copy; dates outside the window
+    // are not looked at; a single shared date is not enough to call it a copy.
+    #[test]
+    fn a_copy_of_the_index_prices_is_told_by_every_shared_date() {
+        let dates = [day(2), day(3), day(4), day(5), day(6)];
+        let levels = [100.0, 101.0, 99.5, 102.0, 103.0];
+        let index = SeriesView {
+            dates: &dates,
+            values: &levels,
+        };
+        let window = (day(2), day(6));
+        let copy_dates = [day(2), day(3), day(5), day(6)];
+        let copy = [100.0, 101.0, 102.0, 103.0];
+        let security = SeriesView {
+            dates: &copy_dates,
+            values: &copy,
+        };
+        assert_eq!(same_prices_as_index(security, index, window), Some(4));
+        let firm = [100.0, 101.0, 102.5, 103.0];
+        let security = SeriesView {
+            dates: &copy_dates,
+            values: &firm,
+        };
+        assert_eq!(same_prices_as_index(security, index, window), None);
+        // Outside the window the differing price is not looked at.
+        assert_eq!(
+            same_prices_as_index(security, index, (day(2), day(3))),
+            Some(2)
+        );
+        assert_eq!(
+            same_prices_as_index(security, index, (day(6), day(6))),
+            None
+        );
+    }
 }

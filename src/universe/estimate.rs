@@ -19,7 +19,7 @@ use crate::case::sanity::{implausible_move, significant, JUMP_FACTOR};
 use crate::estimate::{
     self, EstimateError, EstimationSpec, MarketReturns, Window, INDEX_COPY_R_SQUARED,
 };
-use crate::io::series::{iso_date, SeriesView};
+use crate::io::series::{iso_date, Series, SeriesView};
 use crate::market::sampling::{self, DroppedPeriods};
 use crate::panel::Panel;
 
@@ -39,8 +39,10 @@ pub enum NotEstimated {
     /// suspended or stale line), whose beta of 0 would pull its industry towards zero.
     FlatPrices,
     /// The index explains the security's returns almost wholly (R² above
-    /// [`INDEX_COPY_R_SQUARED`]): the index itself or a fund tracking it, not a firm; its beta
-    /// of 1 would pull its industry towards the market's (the rule a case applies to a peer).
+    /// [`INDEX_COPY_R_SQUARED`]), or its prices are the index's on every date both have
+    /// ([`estimate::same_prices_as_index`]): the index itself or a fund tracking it, not a firm;
+    /// its beta of 1 would pull its industry towards the market's (the rules a case applies to
+    /// a peer).
     CopiesIndex,
     /// The estimator could not be fitted (e.g. too many lags for the observations).
     EstimatorFailed,
@@ -122,6 +124,8 @@ pub struct Estimation {
     window: Window,
     market: MarketReturns,
     rolling: bool,
+    /// The index's prices inside the window, to tell a copy of them.
+    index: Series,
 }
 
 impl Estimation {
@@ -141,11 +145,18 @@ impl Estimation {
         spec.case_extras = false;
         let window = Window::new(&spec);
         let market = MarketReturns::new(&spec, &window, index, risk_free);
+        let from = index.dates.partition_point(|&d| d < window.start());
+        let to = index.dates.partition_point(|&d| d <= window.end());
+        let index = Series {
+            dates: index.dates[from..to].to_vec(),
+            values: index.values[from..to].to_vec(),
+        };
         Estimation {
             spec,
             window,
             market,
             rolling,
+            index,
         }
     }
 
@@ -160,6 +171,21 @@ impl Estimation {
                 periods_dropped: None,
                 observations: None,
                 outcome: Err((NotEstimated::PriceJump, detail)),
+                rolling: Vec::new(),
+            };
+        }
+        let bounds = (self.window.start(), self.window.end());
+        if let Some(shared) = estimate::same_prices_as_index(prices, self.index.view(), bounds) {
+            return SecurityEstimate {
+                periods_dropped: None,
+                observations: None,
+                outcome: Err((
+                    NotEstimated::CopiesIndex,
+                    format!(
+                        "its prices equal the index's on all {shared} dates in the window that \
+                         both have: a copy of the index's prices, not a firm"
+                    ),
+                )),
                 rolling: Vec::new(),
             };
         }

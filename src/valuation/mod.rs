@@ -161,17 +161,20 @@ fn estimate_peers_under(
                 peer: peer.name.clone(),
                 message: failure_message(&failure, &spec, &window, file, &inputs.index),
             })?;
-        match sanity::check_peer_fit(&estimated, &inputs.index.path) {
+        let index = inputs.index.series.view();
+        let same = estimate::same_prices_as_index(file.series.view(), index, bounds);
+        let copy = estimated.copies_index() || same.is_some();
+        match sanity::check_peer_fit(&estimated, (&inputs.index.path, same)) {
             // A copy of the index the case already leaves out is listed, not refused: its
             // figures are finite, and it enters no aggregate.
-            Err(message) if estimated.copies_index() && peer.exclude.is_some() => {
+            Err(message) if copy && peer.exclude.is_some() => {
                 notes.push(format!(
                     "{}: {message}; it is listed but left out, as the case says.",
                     peer.name
                 ));
             }
             Err(message) => {
-                let remedy = match estimated.copies_index() {
+                let remedy = match copy {
                     true => {
                         "; remove the peer, or give it `exclude = \"…\"` to list it without \
                              aggregating it"

@@ -200,14 +200,21 @@ pub fn check_index_returns(
     Ok(())
 }
 
-/// One peer's estimate: its own returns must vary, the index must not explain them almost
-/// perfectly (a copy of the index), and every statistic must be finite.
+/// One peer's estimate: its own returns must vary, its prices must not be the index's on every
+/// date both have (`same_prices`, from [`crate::estimate::same_prices_as_index`]), the index must
+/// not explain them almost perfectly (a copy of the index), and every statistic must be finite.
 pub fn check_peer_fit(
     estimated: &SecurityEstimate,
-    index_path: &str,
+    (index_path, same_prices): (&str, Option<usize>),
 ) -> std::result::Result<(), String> {
     if let Some(reason) = estimated.constant_price() {
         return Err(reason);
+    }
+    if let Some(shared) = same_prices {
+        return Err(format!(
+            "its prices equal the index's ({index_path}) on all {shared} dates in the window \
+             that both have: the price file is the index or a copy of it"
+        ));
     }
     let estimate = &estimated.estimate;
     if estimated.copies_index() {
