@@ -745,7 +745,7 @@ fn a_receipt_of_an_earlier_version_verifies_without_the_figures_added_since() {
     let report = text(&verified);
     assert_eq!(verified.status.code(), Some(0), "{report}");
     assert!(
-        report.contains("9 figures that hurdle 0.3.0 writes and the receipt, written by hurdle 0.2.0, does not have"),
+        report.contains("9 figures that hurdle 0.4.0 writes and the receipt, written by hurdle 0.2.0, does not have"),
         "{report}"
     );
     receipt.as_object_mut().unwrap().remove("wacc");

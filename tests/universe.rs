@@ -1293,6 +1293,50 @@ fn verify_reruns_a_universe_receipt() {
     assert!(report.contains(" → "), "{report}");
 }
 
+// A universe receipt of 0.3.0 lacks the counts 0.4.0 began to write (README, verify): they are
+// listed as added and the receipt still reproduces; one deleted from a receipt of this version
+// is a mismatch.
+#[test]
+fn a_universe_receipt_of_0_3_0_verifies_without_the_counts_added_since() {
+    let setup = Setup::new();
+    let out = setup.succeeds("out", &[]);
+    let path = out.join("result.json");
+    let mut receipt: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(&path).unwrap()).unwrap();
+    let current = receipt["tool"]["version"].as_str().unwrap().to_string();
+    let strip = |receipt: &mut serde_json::Value| {
+        for row in receipt["industries"].as_array_mut().unwrap() {
+            let row = row.as_object_mut().unwrap();
+            for key in ["not_estimated_total", "flagged", "flagged_total"] {
+                assert!(row.remove(key).is_some(), "{key}");
+            }
+        }
+        let counts = receipt["counts"].as_object_mut().unwrap();
+        for key in ["estimated_without_industry", "flagged", "flagged_total"] {
+            assert!(counts.remove(key).is_some(), "{key}");
+        }
+    };
+    strip(&mut receipt);
+    let older = out.join("older.json");
+    let verify = |receipt: &serde_json::Value| {
+        fs::write(&older, serde_json::to_vec_pretty(receipt).unwrap()).unwrap();
+        common::hurdle(&["verify", older.to_str().unwrap()])
+    };
+    receipt["tool"]["version"] = serde_json::json!("0.3.0");
+    let verified = verify(&receipt);
+    let report = String::from_utf8_lossy(&verified.stdout);
+    assert_eq!(verified.status.code(), Some(0), "{report}");
+    assert!(
+        report.contains("written by hurdle 0.3.0, does not have"),
+        "{report}"
+    );
+    receipt["tool"]["version"] = serde_json::json!(current);
+    let verified = verify(&receipt);
+    let report = String::from_utf8_lossy(&verified.stdout);
+    assert_eq!(verified.status.code(), Some(1), "{report}");
+    assert!(report.contains("MISMATCH counts.flagged_total"), "{report}");
+}
+
 // `universe.rolling = true`: each security's rolling betas are those `hurdle rolling` writes for a
 // case listing it as a peer (the same estimate layer; both files hold shortest round-trip
 // decimals, so the doubles must be equal).
@@ -1393,10 +1437,32 @@ fn exclusion_counts_follow_the_listed_flags() {
         );
         assert_eq!(number(&row, "excluded"), flagged as f64, "{industry}");
         stale_total += flagged;
+        // `flagged_<flag>` counts the securities aggregated (in `estimated`) that carry a flag:
+        // every one of them carries low_r_squared at a floor of 0.99, none stale_prices (those
+        // are excluded).
+        let estimated = number(&row, "estimated");
+        assert_eq!(
+            number(&row, "flagged_low_r_squared"),
+            estimated,
+            "{industry}"
+        );
+        assert_eq!(number(&row, "flagged"), estimated, "{industry}");
+        assert_eq!(number(&row, "flagged_stale_prices"), 0.0, "{industry}");
     }
     assert!(
         stale_total > 0,
         "no security was flagged stale: the test checks nothing"
+    );
+    // The summary says so: the flagged count by flag, and the industries resting mostly on
+    // flagged securities.
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("estimated and aggregated carry a flag (low_r_squared "),
+        "{summary}"
+    );
+    assert!(
+        summary.contains("more than half of which carry a flag"),
+        "{summary}"
     );
 }
 

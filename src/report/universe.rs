@@ -45,6 +45,14 @@ pub fn nonzero_counts(counts: &std::collections::BTreeMap<&'static str, usize>) 
         .join(", ")
 }
 
+/// " (2 of them in no industry)" after the count of securities aggregated, when some have none.
+pub fn in_no_industry(n: usize) -> String {
+    match n {
+        0 => String::new(),
+        n => format!(" ({n} of them in no industry)"),
+    }
+}
+
 /// Every output file's name and bytes.
 pub fn render(result: &UniverseResult) -> Result<Vec<(String, Vec<u8>)>> {
     let mut files = Vec::new();
@@ -336,6 +344,17 @@ fn industries_frame(rows: &[IndustryResult], adjusted: bool) -> Result<DataFrame
             rows.iter().map(|r| r.excluded.get(flag.name()).copied()),
         );
     }
+    t.count("flagged", rows.iter().map(|r| Some(r.flagged_total)));
+    for flag in crate::universe::FLAGS {
+        t.count(
+            &format!("flagged_{}", flag.name()),
+            rows.iter().map(|r| r.flagged.get(flag.name()).copied()),
+        );
+    }
+    t.count(
+        "not_estimated",
+        rows.iter().map(|r| Some(r.not_estimated_total)),
+    );
     for reason in crate::universe::estimate::NotEstimated::ALL {
         t.count(
             &format!("not_estimated_{}", reason.name()),
@@ -393,10 +412,10 @@ fn industry_table(out: &mut String, r: &UniverseResult) {
     let s = &r.settings;
     let _ = writeln!(
         *out,
-        "| Industry | Securities | Estimated | Median β | β quartiles | Median D/E | Median βU | Industry βU ({}) |",
+        "| Industry | Securities | Estimated | Excluded | Not estimated | Flagged | Median β | β quartiles | Median D/E | Median βU | Industry βU ({}) |",
         label(&s.leverage.aggregation)
     );
-    out.push_str("|---|---:|---:|---:|---|---:|---:|---:|\n");
+    out.push_str("|---|---:|---:|---:|---:|---:|---:|---|---:|---:|---:|\n");
     for i in &r.industries {
         let levered = i.levered.as_ref();
         let quartiles = levered.map_or_else(
@@ -411,10 +430,13 @@ fn industry_table(out: &mut String, r: &UniverseResult) {
         );
         let _ = writeln!(
             *out,
-            "| {} | {} | {} | {} | {} | {} | {} | {} |",
+            "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
             i.industry.replace('|', "\\|"),
             i.securities,
             i.estimated,
+            i.excluded_total,
+            i.not_estimated_total,
+            i.flagged_total,
             shown(levered.map(|l| l.dispersion.median)),
             quartiles,
             shown(i.median_debt_to_equity),
@@ -508,10 +530,13 @@ fn summary(r: &UniverseResult) -> String {
     };
     let _ = writeln!(
         out,
-        "{} securities with prices; {} estimated and aggregated, {} excluded by \
-         beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta.\n",
+        "{} securities with prices; {} estimated and aggregated{}, {} excluded by \
+         beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta. \"Estimated\" \
+         counts the securities that enter an industry's figures; \"Flagged\" those of them that \
+         carry a flag (securities.csv names each).\n",
         c.securities,
         c.estimated,
+        in_no_industry(c.estimated_without_industry),
         c.excluded,
         c.not_estimated.values().sum::<usize>(),
         c.unlevered

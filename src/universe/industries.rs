@@ -53,6 +53,13 @@ pub struct IndustryResult {
     /// Estimated but left out by `beta.exclude_flags`, by flag (a security can carry several).
     pub excluded: BTreeMap<&'static str, usize>,
     pub excluded_total: usize,
+    /// Not estimated, whatever the reason.
+    pub not_estimated_total: usize,
+    /// Estimated and not excluded, yet carrying each flag (they enter the aggregates; a flag
+    /// listed in `beta.exclude_flags` would leave them out), by flag.
+    pub flagged: BTreeMap<&'static str, usize>,
+    /// Of the securities aggregated, those carrying any flag.
+    pub flagged_total: usize,
     /// Raw levered betas (market-cap weights over those with an equity value).
     pub levered: Option<Summary>,
     /// The shrunk betas (Blume or Vasicek), when `beta.adjustment` asks for them.
@@ -137,13 +144,23 @@ fn industry_row(
             .count();
         excluded.insert(flag.name(), n);
     }
+    let flagged = super::FLAGS
+        .iter()
+        .map(|flag| {
+            let n = aggregated.iter().filter(|s| s.flags.contains(flag)).count();
+            (flag.name(), n)
+        })
+        .collect();
     IndustryResult {
         industry: label.to_string(),
         securities: members.len(),
         estimated: aggregated.len(),
+        not_estimated_total: not_estimated.values().sum(),
         not_estimated,
         excluded,
         excluded_total: excluded_members.len(),
+        flagged,
+        flagged_total: aggregated.iter().filter(|s| !s.flags.is_empty()).count(),
         levered: summary(&|s| s.estimate.as_ref().map(|e| e.beta)),
         shrunk: if adjusted {
             summary(&|s| s.shrunk_beta)

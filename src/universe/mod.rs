@@ -187,6 +187,12 @@ pub struct Counts {
     pub securities: usize,
     /// Estimated and not excluded.
     pub estimated: usize,
+    /// Of those, the securities without an industry: they enter no industry's aggregates.
+    pub estimated_without_industry: usize,
+    /// Of the estimated and not excluded, those carrying each flag (they are aggregated).
+    pub flagged: std::collections::BTreeMap<&'static str, usize>,
+    /// Of the estimated and not excluded, those carrying any flag.
+    pub flagged_total: usize,
     pub not_estimated: std::collections::BTreeMap<&'static str, usize>,
     /// Estimated but excluded by `beta.exclude_flags`.
     pub excluded: usize,
@@ -303,7 +309,7 @@ pub fn evaluate(
         settings.beta.adjustment != Adjustment::None,
     );
     let window = (estimation.window().start(), estimation.window().end());
-    let (counts, notes) = notes::counts_and_notes(inputs, &securities, window);
+    let (counts, notes) = notes::counts_and_notes(inputs, (&securities, &industries), window);
     Ok(UniverseResult {
         schema_version: SCHEMA_VERSION,
         kind: "universe",

@@ -2,14 +2,23 @@
 //! why, attribute rows without prices, placeholder industry labels, an index that covers less
 //! than the window. Apart from `mod.rs`, which computes the figures these describe.
 
+use std::collections::BTreeMap;
+
+use super::industries::IndustryResult;
 use super::{
     securities, securities_count, Counts, Missing, NotEstimated, SecurityResult, UniverseInputs,
+    FLAGS,
 };
+use crate::beta::diagnostics::PeerFlag;
+use crate::beta::BetaMethod;
+
+/// An industry resting on fewer securities than this is named in a note as fragile.
+const FEW_SECURITIES: usize = 3;
 
 /// The counts of the summary and the notes a reviewer should see.
 pub(super) fn counts_and_notes(
     inputs: &UniverseInputs,
-    securities: &[SecurityResult],
+    (securities, industries): (&[SecurityResult], &[IndustryResult]),
     (start, end): (chrono::NaiveDate, chrono::NaiveDate),
 ) -> (Counts, Vec<String>) {
     let panel = &inputs.panel;
@@ -55,22 +64,34 @@ pub(super) fn counts_and_notes(
         .map(|&m| (m.name(), count(&|s| s.missing.contains(&m))))
         .collect();
     let excluded = count(&|s| s.estimate.is_some() && s.excluded_reason.is_some());
-    let without_industry = count(&|s| s.industry.is_none());
-    if without_industry > 0 {
-        let (have, they, are, enter) = match without_industry {
+    let without_industry = ids_where(securities, |s| s.industry.is_none());
+    if !without_industry.is_empty() {
+        let (have, they, are, enter) = match without_industry.len() {
             1 => ("has", "it", "is", "enters"),
             _ => ("have", "they", "are", "enter"),
         };
         notes.push(format!(
             "{} {have} no industry (no attributes row or an empty label): {they} {are} listed in \
-             securities.csv but {enter} no industry.",
-            securities_count(without_industry)
+             securities.csv but {enter} no industry: {}",
+            securities_count(without_industry.len()),
+            first_ids(&without_industry)
         ));
     }
     notes.extend(placeholder_industries_note(securities));
+    let flagged: BTreeMap<&'static str, usize> = FLAGS
+        .iter()
+        .map(|f| (f.name(), count(&|s| s.aggregated() && s.flags.contains(f))))
+        .collect();
+    let flagged_total = count(&|s| s.aggregated() && !s.flags.is_empty());
+    let method = inputs.universe.settings.beta.method;
+    notes.extend(flagged_notes(securities, (&flagged, flagged_total), method));
+    notes.extend(industry_notes(industries));
     let counts = Counts {
         securities: securities.len(),
         estimated: count(&|s| s.aggregated()),
+        estimated_without_industry: count(&|s| s.aggregated() && s.industry.is_none()),
+        flagged,
+        flagged_total,
         not_estimated,
         excluded,
         missing,
@@ -78,6 +99,101 @@ pub(super) fn counts_and_notes(
         attributes_not_in_panel: strays.len(),
     };
     (counts, notes)
+}
+
+/// The notes on securities that are aggregated although they carry a flag (none is listed in
+/// `beta.exclude_flags`, or not theirs): how many by flag, and by name those that trade thinly,
+/// whose OLS betas lean toward zero (Scholes and Williams 1977; Dimson 1979).
+fn flagged_notes(
+    securities: &[SecurityResult],
+    (flagged, total): (&BTreeMap<&'static str, usize>, usize),
+    method: BetaMethod,
+) -> Vec<String> {
+    if total == 0 {
+        return Vec::new();
+    }
+    let by_flag: Vec<String> = (flagged.iter())
+        .filter(|(_, &n)| n > 0)
+        .map(|(flag, n)| format!("{flag} {n}"))
+        .collect();
+    let mut notes =
+        vec![format!(
+        "{} estimated and aggregated {} a flag ({}): {} their industries' figures as estimated; \
+         the flags column of securities.csv names them, and a flag listed in beta.exclude_flags \
+         leaves its securities out.",
+        securities_count(total),
+        if total == 1 { "carries" } else { "carry" },
+        by_flag.join(", "),
+        if total == 1 { "it enters" } else { "they enter" },
+    )];
+    let thin = ids_where(securities, |s| {
+        s.aggregated()
+            && (s.flags.contains(&PeerFlag::ZeroReturns)
+                || s.flags.contains(&PeerFlag::StalePrices))
+    });
+    if !thin.is_empty() {
+        let remedy = match method {
+            BetaMethod::Ols => {
+                "; an OLS beta of a thinly traded share leans toward zero (Scholes and Williams \
+                 1977; Dimson 1979): beta.method = \"dimson\" or \"scholes-williams\", or the \
+                 flag in beta.exclude_flags, answers it"
+            }
+            _ => "",
+        };
+        notes.push(format!(
+            "{} aggregated {} thinly (zero_returns or stale_prices): {}{remedy}.",
+            securities_count(thin.len()),
+            if thin.len() == 1 { "trades" } else { "trade" },
+            first_ids(&thin)
+        ));
+    }
+    notes
+}
+
+/// The notes on industries whose figures are fragile: resting on fewer than
+/// [`FEW_SECURITIES`] securities, or mostly on flagged ones.
+fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
+    let list = |rows: Vec<String>| {
+        let more = if rows.len() > 10 { ", …" } else { "" };
+        format!("{}{more}", rows[..rows.len().min(10)].join(", "))
+    };
+    let few: Vec<String> = (industries.iter())
+        .filter(|i| i.estimated > 0 && i.estimated < FEW_SECURITIES)
+        .map(|i| format!("{} ({})", i.industry, i.estimated))
+        .collect();
+    let mostly: Vec<String> = (industries.iter())
+        .filter(|i| i.estimated > 0 && 2 * i.flagged_total > i.estimated)
+        .map(|i| format!("{} ({} of {})", i.industry, i.flagged_total, i.estimated))
+        .collect();
+    let mut notes = Vec::new();
+    if !few.is_empty() {
+        notes.push(format!(
+            "{} {} on fewer than {FEW_SECURITIES} securities estimated and aggregated, so {} \
+             figures say little about the industry: {}.",
+            few.len(),
+            if few.len() == 1 {
+                "industry rests"
+            } else {
+                "industries rest"
+            },
+            if few.len() == 1 { "its" } else { "their" },
+            list(few)
+        ));
+    }
+    if !mostly.is_empty() {
+        notes.push(format!(
+            "{} {} on securities more than half of which carry a flag (flagged of aggregated): \
+             {}.",
+            mostly.len(),
+            if mostly.len() == 1 {
+                "industry's figures rest"
+            } else {
+                "industries' figures rest"
+            },
+            list(mostly)
+        ));
+    }
+    notes
 }
 
 /// [`crate::case::sanity::index_coverage_note`], in a universe's words.
@@ -147,8 +263,8 @@ fn named_notes(securities: &[SecurityResult]) -> Vec<String> {
         ),
         not_estimated_as(
             NotEstimated::CopiesIndex,
-            "returns the index explains with R² above 0.999 (the index itself or a fund \
-             tracking it)",
+            "returns the index explains with R² above 0.999, or the index's prices on every \
+             date both have (the index itself or a fund tracking it)",
         ),
     ];
     for (issue, what) in securities::UNLEVERING_ISSUES {

@@ -317,7 +317,13 @@ def industries(config, rows):
     for industry, members in table.items():
         estimated = [r for r in members if "beta" in r]
         figures = {"securities": len(members), "estimated": len(estimated),
-                   "not_estimated_too_few_observations": len(members) - len(estimated)}
+                   "not_estimated": len(members) - len(estimated),
+                   "not_estimated_too_few_observations": len(members) - len(estimated),
+                   # README, industries.csv: the estimated (and, exclude_flags being empty,
+                   # aggregated) securities carrying any flag, and each flag recomputed above.
+                   "flagged": sum(1 for r in estimated if r["flags"])}
+        for flag in ("too_few_observations", "low_r_squared", "zero_returns"):
+            figures[f"flagged_{flag}"] = sum(1 for r in estimated if flag in r["flags"])
         for key, prefix in (("beta", "beta"), ("unlevered_beta", "unlevered_beta"),
                             ("operations_beta", "operations_beta")):
             have = [r for r in estimated if key in r]

@@ -27,18 +27,31 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 1] = [(
-    "0.3.0",
-    &[
-        "peers[].zero_return_share",
-        "settings.beta.flag_zero_return_share",
-        "reconciliation.from.build_up.preferred_weight",
-        "reconciliation.from.build_up.preferred_cost",
-        "reconciliation.from.build_up.lease_weight",
-        "reconciliation.from.build_up.lease_cost_pre_tax",
-        "industries[].excluded.zero_returns",
-    ],
-)];
+const ADDED_IN: [(&str, &[&str]); 2] = [
+    (
+        "0.3.0",
+        &[
+            "peers[].zero_return_share",
+            "settings.beta.flag_zero_return_share",
+            "reconciliation.from.build_up.preferred_weight",
+            "reconciliation.from.build_up.preferred_cost",
+            "reconciliation.from.build_up.lease_weight",
+            "reconciliation.from.build_up.lease_cost_pre_tax",
+            "industries[].excluded.zero_returns",
+        ],
+    ),
+    (
+        "0.4.0",
+        &[
+            "industries[].not_estimated_total",
+            "industries[].flagged",
+            "industries[].flagged_total",
+            "counts.estimated_without_industry",
+            "counts.flagged",
+            "counts.flagged_total",
+        ],
+    ),
+];
 
 /// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.
 fn version(text: &str) -> Option<Vec<u64>> {
