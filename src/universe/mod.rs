@@ -225,12 +225,41 @@ pub struct UniverseResult {
     /// Plain-language remarks a reviewer should see (attributes without prices, …).
     pub notes: Vec<String>,
     pub industries: Vec<IndustryResult>,
-    /// One row per security, in id order (written to `securities.csv`, not to JSON).
-    #[serde(skip)]
+    /// One row per security, in id order: written whole to `securities.csv`; `result.json`
+    /// records each one's id, industry, observations, beta, standard error, unlevered beta and
+    /// why it was not estimated ([`security_figures`]), so `hurdle verify` names the
+    /// securities whose figures moved.
+    #[serde(serialize_with = "security_figures")]
     pub securities: Vec<SecurityResult>,
     /// Each security's rolling betas when `universe.rolling` (written to `rolling.csv`).
     #[serde(skip)]
     pub rolling: Vec<Vec<RollingPoint>>,
+}
+
+/// The figures of each security `result.json` records (see [`UniverseResult::securities`]).
+fn security_figures<S: serde::Serializer>(
+    securities: &[SecurityResult],
+    serializer: S,
+) -> std::result::Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    struct Figures<'a> {
+        security: &'a str,
+        industry: Option<&'a str>,
+        observations: Option<usize>,
+        beta: Option<f64>,
+        beta_std_error: Option<f64>,
+        unlevered_beta: Option<f64>,
+        not_estimated: Option<&'static str>,
+    }
+    serializer.collect_seq(securities.iter().map(|s| Figures {
+        security: &s.security,
+        industry: s.industry.as_deref(),
+        observations: s.observations,
+        beta: s.estimate.as_ref().map(|e| e.beta),
+        beta_std_error: s.estimate.as_ref().map(|e| e.beta_std_error),
+        unlevered_beta: s.unlevered_beta,
+        not_estimated: s.not_estimated.map(NotEstimated::name),
+    }))
 }
 
 /// Every security of the panel estimated, in parallel, in panel order, but for those `early`
