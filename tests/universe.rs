@@ -793,10 +793,12 @@ fn a_price_with_a_line_break_is_named_on_one_line() {
     assert_eq!(output.status.code(), Some(2), "{stderr}");
     assert_eq!(
         stderr,
-        "error: prices-long.csv, line 9: `close` = \"12\\n3\" is not a number\n".replace(
-            "prices-long.csv",
-            &setup.dir().join("prices-long.csv").display().to_string()
-        )
+        "error: prices-long.csv, line 9: `close` = \"12\\n3\" is not a number: write the \
+         number alone, with a decimal point\n"
+            .replace(
+                "prices-long.csv",
+                &setup.dir().join("prices-long.csv").display().to_string()
+            )
     );
 }
 
@@ -859,6 +861,66 @@ fn an_unparseable_date_is_refused() {
         },
         &[],
         &["prices-long.csv, line 4", "\"2025-13-01\"", "ISO 8601"],
+    );
+}
+
+// A spreadsheet's habits get the same advice as in a case's price file (found by review: the
+// panel's and the attributes' messages named the cell without saying what to write): a
+// day-first date, a thousands separator, a tax rate with a % sign; and in a wide panel a
+// spreadsheet error, which there means "no price that day": leave the cell empty.
+#[test]
+fn a_spreadsheets_habits_are_refused_with_what_to_write() {
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 4);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                4,
+                &format!("13/01/2025,{},{}", cells[1], cells[2]),
+            );
+        },
+        &[],
+        &["prices-long.csv, line 4", "\"13/01/2025\"", "day-first"],
+    );
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 4);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                4,
+                &format!("{},{},\"1,083.21\"", cells[0], cells[1]),
+            );
+        },
+        &[],
+        &["prices-long.csv, line 4", "no thousands separator"],
+    );
+    refused(
+        |dir| {
+            let path = dir.join("attributes.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let second = text.lines().nth(1).unwrap().to_string();
+            let (head, tax) = second.rsplit_once(',').unwrap();
+            let percent = tax.parse::<f64>().unwrap() * 100.0;
+            replace_line(&path, 2, &format!("{head},{percent}%"));
+        },
+        &[],
+        &["attributes.csv, line 2", "without a % sign"],
+    );
+    refused(
+        |dir| {
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let third = text.lines().nth(2).unwrap().to_string();
+            let (date, rest) = third.split_once(',').unwrap();
+            let (_, others) = rest.split_once(',').unwrap();
+            replace_line(&path, 3, &format!("{date},#N/A,{others}"));
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &[
+            "prices-wide.csv, line 3",
+            "\"#N/A\"",
+            "leave the cell empty",
+        ],
     );
 }
 

@@ -339,6 +339,15 @@ fn parse_row(
 /// day-first or month-first date, a serial number, a time of day, the header repeated, an
 /// empty cell (a blank or total row).
 fn date_problem(cell: &str, date_column: &str) -> String {
+    format!(
+        "is not a date hurdle reads: {}",
+        date_hint(cell, date_column)
+    )
+}
+
+/// What to write instead of a date cell hurdle cannot read ([`date_problem`] without its
+/// opening words): also for a market panel's cells.
+pub(crate) fn date_hint(cell: &str, date_column: &str) -> &'static str {
     let cell = cell.trim();
     let digits = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
     let parts: Vec<&str> = cell.split(['/', '.', '-']).collect();
@@ -354,19 +363,22 @@ fn date_problem(cell: &str, date_column: &str) -> String {
     } else if cell.len() > 10 && cell.get(..10).and_then(parse_iso_date).is_some() {
         "a date with a time of day: keep the date alone (YYYY-MM-DD)"
     } else {
-        "write dates year first, YYYY-MM-DD (2023-03-31)"
+        GENERIC_DATE_HINT
     };
-    format!("is not a date hurdle reads: {hint}")
+    hint
 }
 
-/// What to write instead of a price or yield cell that is not a number.
-fn number_problem(cell: &str) -> &'static str {
+/// [`date_hint`] for a cell that looks like no particular mistake.
+pub(crate) const GENERIC_DATE_HINT: &str = "write dates year first, YYYY-MM-DD (2023-03-31)";
+
+/// What to write instead of a price, yield or attribute cell that is not a number.
+pub(crate) fn number_problem(cell: &str) -> &'static str {
     let cell = cell.trim();
     if cell.starts_with('#') || cell.is_empty() || cell == "-" {
         "a spreadsheet error or empty cell; delete the row of a day without a price (a missing \
          day is skipped, never filled)"
     } else if cell.ends_with('%') {
-        "write the number without a % sign (a yield as a decimal, 0.0325 for 3.25%)"
+        "write the number without a % sign (a yield or rate as a decimal, 0.0325 for 3.25%)"
     } else if cell.contains(',') {
         "write the number with a decimal point and no thousands separator (1043.83)"
     } else if cell.starts_with(['$', '€', '£', '¥']) {

@@ -338,7 +338,13 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
                         .parse::<f64>()
                         .map(|v| (Some(v), Some(text.to_string())))
                         .map_err(|_| {
-                            source.row_error(k, format!("`{name}` = \"{text}\" is not a number"))
+                            source.row_error(
+                                k,
+                                format!(
+                                    "`{name}` = \"{text}\" is not a number: {}",
+                                    crate::io::series::number_problem(text)
+                                ),
+                            )
                         }),
                 },
             )

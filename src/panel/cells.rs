@@ -7,6 +7,7 @@ use polars::prelude::*;
 
 use super::{check_label, check_price, parse_iso_date, PanelColumns, Rows, Source};
 use crate::error::Result;
+use crate::io::series::{date_hint, GENERIC_DATE_HINT};
 
 /// A block's date cells: ISO text (CSV, or a Parquet string column) or days since 1970-01-01
 /// (a Parquet date column).
@@ -30,8 +31,18 @@ pub(crate) fn block_dates(
         source.row_error(
             first_row + k,
             match value {
-                None => format!("`{column}` is empty: every row needs a date"),
-                Some(v) => format!("`{column}` = \"{v}\" is not an ISO 8601 date (YYYY-MM-DD)"),
+                None => format!(
+                    "`{column}` is empty: every row needs a date ({})",
+                    date_hint("", column)
+                ),
+                Some(v) => match date_hint(&v, column) {
+                    GENERIC_DATE_HINT => {
+                        format!("`{column}` = \"{v}\" is not an ISO 8601 date (YYYY-MM-DD)")
+                    }
+                    hint => {
+                        format!("`{column}` = \"{v}\" is not an ISO 8601 date (YYYY-MM-DD): {hint}")
+                    }
+                },
             },
         )
     };
