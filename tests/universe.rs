@@ -410,6 +410,18 @@ fn attributes_without_prices_are_a_warning() {
     );
     let summary = fs::read_to_string(setup.out("out").join("summary.md")).unwrap();
     assert!(summary.contains("S99") && summary.contains("Cautions"));
+    // An attributes id that a panel id matches but for capitals (an export that changed them)
+    // is named beside its twin (found by review).
+    let path = setup.dir().join("attributes.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    fs::write(&path, text.replace("\nS02,", "\ns02,")).unwrap();
+    let output = setup.universe("again", &[]);
+    assert!(output.status.success());
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    assert!(
+        stdout.contains("differing only in capitals (S02 for s02)"),
+        "{stdout}"
+    );
 }
 
 /// A one-row table's cell as text ("" when empty).
@@ -665,7 +677,31 @@ fn a_file_with_another_separator_is_named_as_such() {
     refused(
         with("prices-long.csv", "\t"),
         &[],
-        &["prices-long.csv", "separated by tabs", "comma-separated"],
+        &[
+            "prices-long.csv, line 1",
+            "separated by tabs",
+            "comma-separated",
+        ],
+    );
+    // A wide header names every security: the message quotes its start only (80 characters).
+    let setup = Setup::new();
+    let ids: Vec<String> = (1..=60).map(|k| format!("Invented{k:03}")).collect();
+    let header = format!(
+        "date;{}\n2026-09-30;{}\n",
+        ids.join(";"),
+        ["1,5"; 60].join(";")
+    );
+    fs::write(setup.dir().join("prices-wide.csv"), header).unwrap();
+    let output = setup.universe(
+        "out",
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+    );
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    let quoted = stderr.split('`').nth(1).unwrap();
+    assert!(
+        quoted.ends_with('…') && quoted.chars().count() == 80,
+        "{stderr}"
     );
 }
 

@@ -166,9 +166,11 @@ fn key_message(message: &str) -> Option<String> {
         ("value", message.strip_prefix("unknown variant `")?)
     };
     let (given, choices) = rest.split_once("`, expected ")?;
+    // serde lists three or more as "one of `a`, `b`, `c`" and two as "`a` or `b`".
     let choices: Vec<&str> = choices
         .trim_start_matches("one of ")
         .split(", ")
+        .flat_map(|c| c.split(" or "))
         .map(|c| c.trim_matches('`'))
         .collect();
     let list = choices.join(", ");
@@ -217,6 +219,21 @@ mod tests {
         assert_eq!(edit_distance("kitten", "sitting"), 3);
         assert_eq!(edit_distance("lookbak", "lookback"), 1);
         assert_eq!(edit_distance("", "abc"), 3);
+    }
+
+    // serde's wording (from memory, and as the universe's [market] gave it): three choices or
+    // more are "one of `a`, `b`, `c`", two are "`a` or `b`"; both are listed plainly.
+    #[test]
+    fn an_unknown_key_lists_the_keys_of_its_table() {
+        assert_eq!(
+            key_message("unknown field `risk_free_rate`, expected `index` or `risk_free_series`")
+                .unwrap(),
+            "unknown key `risk_free_rate`; here: index, risk_free_series"
+        );
+        assert_eq!(
+            key_message("unknown field `colour`, expected one of `a`, `bb`, `ccc`").unwrap(),
+            "unknown key `colour`; here: a, bb, ccc"
+        );
     }
 
     #[test]

@@ -48,10 +48,19 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
         .collect();
     if let [only] = names.as_slice() {
         if let Some(separator) = crate::io::sanity::other_separator(only) {
-            return Err(source.file_error(format!(
-                "the header `{only}` is separated by {separator}; hurdle reads comma-separated \
-                 files with a decimal point"
-            )));
+            // A wide panel's header names thousands of securities: its start says enough.
+            let shown: String = match only.chars().count() {
+                n if n > 80 => format!("{}…", only.chars().take(79).collect::<String>()),
+                _ => only.clone(),
+            };
+            return Err(crate::error::Error::DataRow {
+                file: source.file.clone(),
+                line: 1,
+                message: format!(
+                    "the header `{shown}` is separated by {separator}; hurdle reads \
+                     comma-separated files with a decimal point"
+                ),
+            });
         }
     }
     Ok(names)

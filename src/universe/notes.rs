@@ -45,12 +45,13 @@ pub(super) fn counts_and_notes(
     notes.splice(0..0, index_coverage_note(&inputs.index, start, end));
     if !strays.is_empty() {
         notes.push(format!(
-            "{} in the attributes ({}) {} no prices in the panel and {} left out: {}",
+            "{} in the attributes ({}) {} no prices in the panel and {} left out: {}{}",
             securities_count(strays.len()),
             inputs.attributes.file.path,
             if strays.len() == 1 { "has" } else { "have" },
             if strays.len() == 1 { "is" } else { "are" },
-            first_ids(&strays)
+            first_ids(&strays),
+            case_twins(&strays, panel.securities())
         ));
     }
     notes.extend(named_notes(securities));
@@ -99,6 +100,28 @@ pub(super) fn counts_and_notes(
         attributes_not_in_panel: strays.len(),
     };
     (counts, notes)
+}
+
+/// ". The panel's SEC0100 differs from sec0100 only in capitals: ids are matched exactly"
+/// for attribute ids without prices that a panel id matches but for case (an export that
+/// changed capitals), else nothing.
+fn case_twins(strays: &[&str], panel: &[String]) -> String {
+    let lower: std::collections::HashMap<String, &str> = panel
+        .iter()
+        .map(|id| (id.to_lowercase(), id.as_str()))
+        .collect();
+    let pairs: Vec<String> = (strays.iter())
+        .filter_map(|s| Some(format!("{} for {s}", lower.get(&s.to_lowercase())?)))
+        .collect();
+    match pairs.len() {
+        0 => String::new(),
+        n => format!(
+            ". The panel holds {} differing only in capitals ({}): ids are matched exactly, so \
+             write them alike in both files",
+            if n == 1 { "an id" } else { "ids" },
+            first_ids(&pairs.iter().map(String::as_str).collect::<Vec<_>>())
+        ),
+    }
 }
 
 /// The notes on securities that are aggregated although they carry a flag (none is listed in
