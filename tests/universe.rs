@@ -1256,6 +1256,32 @@ fn a_panel_in_the_other_layout_is_named() {
             && !stderr.contains("panel.layout"),
         "{stderr}"
     );
+    // So is a wide Parquet file with one security's prices stored as text (as polars infers a
+    // late listing's column whose first cells are empty), instead of being sent to the long
+    // layout (found by review).
+    let setup = Setup::new();
+    let path = setup.dir().join("prices-wide.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+        .finish()
+        .unwrap();
+    frame
+        .apply("S04", |c| c.cast(&DataType::String).unwrap())
+        .unwrap();
+    ParquetWriter::new(fs::File::create(&path).unwrap())
+        .finish(&mut frame)
+        .unwrap();
+    let output = setup.universe(
+        "out",
+        &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
+    );
+    let stderr = String::from_utf8_lossy(&output.stderr).to_string();
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("column `S04` holds str, not prices")
+            && stderr.contains("numbers stored as text")
+            && !stderr.contains("panel.layout"),
+        "{stderr}"
+    );
 }
 
 // A header that names a column twice, or leaves a column of prices unnamed, is refused rather

@@ -289,8 +289,21 @@ fn typed(
         _ => column.dtype().is_primitive_numeric(),
     };
     if !fits {
+        // Text cells that all read as numbers (or none at all): a price column a writer typed
+        // as text, as polars infers one whose first rows are empty (a late listing).
+        let numbers_as_text = column.str().is_ok_and(|cells| {
+            cells
+                .iter()
+                .flatten()
+                .take(1000)
+                .all(|c| c.trim().parse::<f64>().is_ok())
+        });
         let hint = match layout {
             _ if dtype != &DataType::Float64 || !column.dtype().is_string() => "",
+            PanelLayout::Wide if numbers_as_text => {
+                " (its cells are numbers stored as text: write the column as numbers, for \
+                 example cast to Float64, before saving the Parquet file)"
+            }
             PanelLayout::Wide => {
                 " (a wide panel holds only prices beside the date column; if this file has one \
                  row per date and security, set panel.layout = \"long\")"
