@@ -204,6 +204,29 @@ fn missing_price_file() {
     assert_mentions(&stderr, &["data/peers/dunmere_missing.csv"]);
 }
 
+// A window just long enough for the case's check (2 shifted columns, 4·2 < 9 periods) but whose
+// peer keeps 8 returns: Scholes–Williams always takes one lag and one lead, so the message may
+// not send the user to Dimson's keys, which change nothing here (found by review).
+#[test]
+fn a_short_scholes_williams_window_names_no_dimson_key() {
+    let case = CaseCopy::new();
+    let stderr = case.fail(&[
+        "--set",
+        "beta.method=scholes-williams",
+        "--set",
+        "beta.lookback=9",
+        "--set",
+        "beta.min_observations=3",
+        "--set",
+        "beta.rolling_window=3",
+    ]);
+    assert_mentions(
+        &stderr,
+        &["N/4", "Scholes–Williams always uses one lag and one lead"],
+    );
+    assert!(!stderr.contains("dimson"), "{stderr}");
+}
+
 #[test]
 fn unparseable_date() {
     let case = CaseCopy::new();

@@ -128,9 +128,17 @@ pub fn estimate_with_influence(
         }
     }
     if settings.method != BetaMethod::Ols && 4 * shifted.len() >= n {
+        // Scholes–Williams always takes one lag and one lead: only more observations help.
+        let remedy = match settings.method {
+            BetaMethod::ScholesWilliams => {
+                "Scholes–Williams always uses one lag and one lead: lengthen the window, or \
+                 fill the peer's gaps"
+            }
+            _ => "lower beta.dimson_lags / beta.dimson_leads, or lengthen the window",
+        };
         return Err(Error::Regression(format!(
             "{} lagged and led index columns are at least N/4 = {} for N = {n} observations; \
-             lower beta.dimson_lags / beta.dimson_leads",
+             {remedy}",
             shifted.len(),
             n as f64 / 4.0
         )));
