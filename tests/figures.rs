@@ -696,6 +696,29 @@ fn charts_are_byte_identical_across_runs_and_no_figures_writes_none() {
     assert!(Path::new(&text_only.dir.path().join("memo.md")).is_file());
 }
 
+// A run without charts into the folder of a run with them takes the charts away and, when
+// nothing else is in it, the `figures/` folder too (found by review: an empty folder was left).
+#[test]
+fn a_run_without_charts_leaves_no_empty_figures_folder() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    for extra in [&[][..], &["--no-figures"][..]] {
+        let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+        args.extend_from_slice(extra);
+        let output = hurdle(&args);
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+    }
+    assert!(out.join("memo.md").is_file());
+    assert!(
+        !out.join("figures").exists(),
+        "an empty figures/ folder is left"
+    );
+}
+
 /// The horizontal extent of a label, estimated as the charts lay text out: 0.6 em a character
 /// (DejaVu Sans, the widest common system sans-serif, averages about that; frame.rs), 4% more
 /// for bold (as the chart titles are fitted), placed by its `text-anchor`. A rotated label

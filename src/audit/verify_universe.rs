@@ -17,10 +17,9 @@ use crate::universe::settings::read_universe;
 use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
 
 /// What a universe verification leaves out, and why.
-pub const NOT_COMPARED: &str = "securities.csv, industries.csv, their Parquet copies and \
-summary.md are not compared file by file: they are written from the same estimates as the \
-receipt's counts and industry table, which are, and every aggregated security's beta moves the \
-industry means";
+pub const NOT_COMPARED: &str = "securities.csv, industries.csv, rolling.csv, their Parquet \
+copies and summary.md are not compared file by file: they are written from the same estimates \
+as the receipt's counts, industry table and securities' figures, which are";
 
 /// Verifies a parsed universe receipt found at `receipt_path`; `universe_path` overrides where
 /// the universe file is looked for.

@@ -263,6 +263,15 @@ impl Stage {
         MOVING.store(false, Ordering::SeqCst);
         let moved = moved?;
         discard_previous(self.staging(), names.iter().chain(&self.retired));
+        // A subfolder the retired files leave empty (`figures/` after a run without charts)
+        // goes too; one that still holds anything, such as a user's own file, stays.
+        for name in &self.retired {
+            if let Some(parent) = Path::new(name).parent() {
+                if !parent.as_os_str().is_empty() {
+                    let _ = fs::remove_dir(self.dir.join(parent));
+                }
+            }
+        }
         self.created.clear(); // They hold the outputs now.
         Ok(moved)
     }
