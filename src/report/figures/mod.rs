@@ -204,24 +204,34 @@ pub fn slug(name: &str) -> String {
 /// (Ø → o, ß → ss), so `Wexcombe-Ørsby` keeps its letters in a chart's file name; `None` for
 /// anything else.
 fn latin_letters(c: char) -> Option<&'static str> {
-    const FOLDS: [(&str, &str); 15] = [
+    const FOLDS: [(&str, &str); 19] = [
         ("àáâãäåāăą", "a"),
         ("çćĉċč", "c"),
-        ("ďđ", "d"),
+        ("ďđð", "d"),
         ("èéêëēĕėęě", "e"),
         ("ĝğġģ", "g"),
+        ("ĥħ", "h"),
         ("ìíîïĩīĭįı", "i"),
+        ("ĵ", "j"),
+        ("ķĸ", "k"),
         ("ĺļľŀł", "l"),
-        ("ñńņňŉ", "n"),
+        ("ñńņňŉŋ", "n"),
         ("òóôõöøōŏő", "o"),
         ("ŕŗř", "r"),
-        ("śŝşšș", "s"),
+        ("śŝşšșſ", "s"),
         ("ţťŧț", "t"),
         ("ùúûüũūŭůűų", "u"),
+        ("ŵ", "w"),
         ("ýÿŷ", "y"),
         ("źżž", "z"),
     ];
-    const LIGATURES: [(char, &str); 4] = [('ß', "ss"), ('æ', "ae"), ('œ', "oe"), ('þ', "th")];
+    const LIGATURES: [(char, &str); 5] = [
+        ('ß', "ss"),
+        ('æ', "ae"),
+        ('œ', "oe"),
+        ('þ', "th"),
+        ('ĳ', "ij"),
+    ];
     let lower = c.to_lowercase().next()?;
     if let Some((_, letters)) = LIGATURES.iter().find(|(l, _)| *l == lower) {
         return Some(letters);
@@ -297,6 +307,10 @@ mod tests {
         assert_eq!(slug("  Ö&Co. (holdings)"), "o-co-holdings");
         assert_eq!(slug("Wexcombe-Ørsby Straße"), "wexcombe-orsby-strasse");
         assert_eq!(slug("Żółw Ýmir"), "zolw-ymir");
+        // Letters of Icelandic, Maltese, Esperanto, Latvian, Welsh, Sami and Dutch names, by
+        // their usual Latin transcriptions (from memory): ð d, ħ h, ĵ j, ķ k, ŵ w, ŋ n, ĳ ij.
+        assert_eq!(slug("Ðaðir Ħamrun Ĵaŭdo"), "dadir-hamrun-jaudo");
+        assert_eq!(slug("Ķekava Ŵyn Ŋaat Ĳssel"), "kekava-wyn-naat-ijssel");
         assert_eq!(slug("***"), "");
     }
 }
