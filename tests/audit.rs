@@ -705,7 +705,9 @@ fn a_run_says_when_it_replaces_another_valuation() {
         "{}",
         text(&output)
     );
-    // A universe's receipt in the folder: named as such.
+    // A universe's receipt in the folder: named as such, and its tables taken away with it (they
+    // would sit beside the case's receipt as if it had written them); a file of the user's own
+    // stays.
     let fresh = dir.path().join("fresh");
     std::fs::create_dir_all(&fresh).unwrap();
     std::fs::write(
@@ -713,6 +715,14 @@ fn a_run_says_when_it_replaces_another_valuation() {
         r#"{"tool": {"name": "hurdle"}, "kind": "universe", "universe": {"file": "market.toml"}}"#,
     )
     .unwrap();
+    for name in [
+        "securities.csv",
+        "industries.parquet",
+        "summary.md",
+        "my-notes.md",
+    ] {
+        std::fs::write(fresh.join(name), "an earlier file").unwrap();
+    }
     let output = hurdle(&[
         "run",
         case.to_str().unwrap(),
@@ -724,6 +734,13 @@ fn a_run_says_when_it_replaces_another_valuation() {
         "{}",
         text(&output)
     );
+    for name in ["securities.csv", "industries.parquet", "summary.md"] {
+        assert!(
+            !fresh.join(name).exists(),
+            "{name} left beside the case's receipt"
+        );
+    }
+    assert!(fresh.join("my-notes.md").is_file() && fresh.join("memo.md").is_file());
 }
 
 // A receipt of 0.2.0 lacks the figures 0.3.0 began to write (README, Changelog); verify lists

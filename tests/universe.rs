@@ -396,6 +396,37 @@ fn assert_same_tables(a: &Path, b: &Path, names: &[&str], why: &str) {
     }
 }
 
+// A universe run into the folder of a case's run takes the case's outputs away with its
+// receipt (the memo, tables, workbook, report and charts would sit beside the universe's
+// receipt as if it had written them); a file of the user's own stays.
+#[test]
+fn a_universe_run_into_a_case_folder_takes_the_case_outputs_away() {
+    let setup = Setup::new();
+    let out = setup.out("out");
+    let ran = common::hurdle(&["run", common::DEMO_CASE, "--out", out.to_str().unwrap()]);
+    assert!(
+        ran.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ran.stderr)
+    );
+    fs::write(out.join("my-notes.md"), "the user's own").unwrap();
+    setup.succeeds("out", &[]);
+    for name in [
+        "memo.md",
+        "peers.csv",
+        "returns.csv",
+        "workbook.xlsx",
+        "report.html",
+    ] {
+        assert!(
+            !out.join(name).exists(),
+            "{name} left beside the universe's receipt"
+        );
+    }
+    assert!(!out.join("figures").exists(), "the case's charts are left");
+    assert!(out.join("securities.csv").is_file() && out.join("my-notes.md").is_file());
+}
+
 // A security in the attributes but not in the panel is a warning in the summary, not an error.
 #[test]
 fn attributes_without_prices_are_a_warning() {

@@ -49,7 +49,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let earlier = report::staging::earlier_receipt(&out);
     let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
-    let stale = report::stale_run_outputs(&out, &names, earlier.is_some());
+    let stale = report::stale_run_outputs(&out, &names, earlier.as_ref());
     for name in &stale {
         stage.retire(name);
     }
@@ -61,8 +61,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     if let Some(e) = earlier.filter(|e| another_valuation(e, &valuation)) {
         match e.universe {
             true => println!(
-                "  replaced the receipt of a universe run ({}); its tables in the folder are \
-                 not this run's",
+                "  replaced the receipt of a universe run ({}); its tables are taken away",
                 e.case_file
             ),
             false => println!(

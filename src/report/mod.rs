@@ -76,11 +76,20 @@ pub fn render_run(
 /// they would sit beside the new memo as if they belonged to it; and `hurdle verify --out`'s
 /// status of the receipt this run replaces. Only in a folder that holds an earlier run's
 /// receipt (`earlier_run`, from [`staging::earlier_receipt`]). Sorted.
-pub fn stale_run_outputs(dir: &Path, written: &[String], earlier_run: bool) -> Vec<String> {
-    if !earlier_run {
+pub fn stale_run_outputs(
+    dir: &Path,
+    written: &[String],
+    earlier: Option<&staging::EarlierReceipt>,
+) -> Vec<String> {
+    let Some(earlier) = earlier else {
         return Vec::new();
-    }
+    };
     let mut names = vec![REPORT.to_string()];
+    // A universe's tables, when its receipt is the one replaced: they would sit beside the
+    // case's receipt as if it had written them.
+    if earlier.universe {
+        names.extend(universe::OUTPUTS.iter().map(|n| n.to_string()));
+    }
     if let Ok(entries) = std::fs::read_dir(dir.join(figures::FOLDER)) {
         names.extend(entries.flatten().map(|entry| {
             format!(
@@ -92,7 +101,11 @@ pub fn stale_run_outputs(dir: &Path, written: &[String], earlier_run: bool) -> V
     }
     let mut stale: Vec<String> = names
         .into_iter()
-        .filter(|name| name == REPORT || figures::is_chart_name(name))
+        .filter(|name| {
+            name == REPORT
+                || figures::is_chart_name(name)
+                || universe::OUTPUTS.contains(&name.as_str())
+        })
         .filter(|name| !written.contains(name) && dir.join(name).is_file())
         .collect();
     if verifies_the_receipt_in(dir) {
@@ -101,6 +114,35 @@ pub fn stale_run_outputs(dir: &Path, written: &[String], earlier_run: bool) -> V
     }
     stale.sort();
     stale
+}
+
+/// The files a case's run writes that are not a universe's, as they stand in `dir`: what a
+/// universe run takes away when the receipt it replaces is a case's (the memo, the tables, the
+/// workbook, the report, the charts and `hurdle verify --out`'s status of that receipt).
+pub fn case_run_outputs_in(dir: &Path) -> Vec<String> {
+    let mut names: Vec<String> = [
+        "memo.md",
+        "peers.csv",
+        "returns.csv",
+        "workbook.xlsx",
+        REPORT,
+    ]
+    .iter()
+    .map(|n| n.to_string())
+    .collect();
+    if let Ok(entries) = std::fs::read_dir(dir.join(figures::FOLDER)) {
+        names.extend(
+            (entries.flatten())
+                .map(|e| format!("{}/{}", figures::FOLDER, e.file_name().to_string_lossy()))
+                .filter(|name| figures::is_chart_name(name)),
+        );
+    }
+    if verifies_the_receipt_in(dir) {
+        names.extend(VERIFICATION.iter().map(|n| n.to_string()));
+    }
+    names.retain(|name| dir.join(name).is_file());
+    names.sort();
+    names
 }
 
 /// What `hurdle verify --out` writes.

@@ -23,6 +23,18 @@ use crate::universe::UniverseResult;
 /// The files a run writes only when asked for (`universe.rolling`).
 const OPTIONAL_OUTPUTS: [&str; 2] = ["rolling.csv", "rolling.parquet"];
 
+/// Every file a universe run may write.
+pub const OUTPUTS: [&str; 8] = [
+    "securities.csv",
+    "securities.parquet",
+    "industries.csv",
+    "industries.parquet",
+    "summary.md",
+    "result.json",
+    "rolling.csv",
+    "rolling.parquet",
+];
+
 /// Renders every output, then writes them all into `dir` as one group (never over a file in
 /// `reads`, nothing written when anything fails; see `staging`). An earlier run's rolling
 /// tables that this run does not write are taken away with the same commit, so the folder
@@ -32,7 +44,14 @@ pub fn write_outputs(
     result: &UniverseResult,
     reads: &[super::staging::FileRead],
 ) -> Result<(Vec<PathBuf>, Vec<String>)> {
-    super::staging::write_outputs_replacing(dir, &render(result)?, reads, &OPTIONAL_OUTPUTS)
+    // A case's outputs go too when the receipt replaced is a case's: they would sit beside the
+    // universe's receipt as if it had written them.
+    let mut optional: Vec<String> = OPTIONAL_OUTPUTS.iter().map(|n| n.to_string()).collect();
+    if super::staging::earlier_receipt(dir).is_some_and(|e| !e.universe) {
+        optional.extend(super::case_run_outputs_in(dir));
+    }
+    let optional: Vec<&str> = optional.iter().map(String::as_str).collect();
+    super::staging::write_outputs_replacing(dir, &render(result)?, reads, &optional)
 }
 
 /// Counts by name, those above zero, as `name n, name n` (empty when none is).
