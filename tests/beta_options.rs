@@ -528,6 +528,17 @@ fn prices_repeated_by_a_vendor_are_flagged_as_zero_returns() {
     let peer = &result["peers"][1];
     assert_eq!(peer["name"], "Corrowick Valves");
     assert_eq!(peer["observations"], 60);
+    // peers.csv's zero_return_share is this share (15 of 60, by construction), under its own
+    // header and not the stale share's (0 here: no staleness limit).
+    let table = std::fs::read_to_string(out.join("peers.csv")).unwrap();
+    let header: Vec<&str> = table.lines().next().unwrap().split(',').collect();
+    let row: Vec<&str> = table.lines().nth(2).unwrap().rsplit(',').collect();
+    let cell = |name: &str| {
+        let from_end = header.len() - 1 - header.iter().position(|h| *h == name).unwrap();
+        row[from_end].parse::<f64>().unwrap()
+    };
+    assert_eq!(cell("zero_return_share"), 0.25);
+    assert_eq!(cell("stale_share"), 0.0);
     assert!(
         peer["flags"]
             .as_array()

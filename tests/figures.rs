@@ -866,16 +866,24 @@ fn a_betas_part_of_peers_left_out_draws_no_aggregate_line() {
         let svg = parse(&text);
         let rows = in_group(&svg, "raw-beta").len();
         let lines = in_group(&svg, "aggregate").len();
+        // The legend keys the line only where it is drawn (found by review: it keyed a line
+        // the part did not draw).
+        let key = svg
+            .iter()
+            .any(|e| e.tag == "text" && e.text.contains("of the peers included"));
         if before < included {
             assert!(
                 lines > 0,
                 "{file}: holds included peers, so the aggregate's line"
             );
+            assert!(key, "{file}: the line's key");
         } else {
             assert_eq!(
                 lines, 0,
                 "{file}: only peers left out, so no aggregate line"
             );
+            assert!(!key, "{file}: a key for a line not drawn");
+            assert!(text.contains("The peers here are all left out"), "{file}");
             parts_without += 1;
         }
         before += rows;

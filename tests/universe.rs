@@ -989,6 +989,20 @@ fn a_spreadsheets_habits_are_refused_with_what_to_write() {
             "leave the cell empty",
         ],
     );
+    // A number formatted with a thousands separator in a wide panel is told so, not sent to
+    // the long layout (found by review).
+    refused(
+        |dir| {
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let third = text.lines().nth(2).unwrap().to_string();
+            let (date, rest) = third.split_once(',').unwrap();
+            let (_, others) = rest.split_once(',').unwrap();
+            replace_line(&path, 3, &format!("{date},\"1,083.21\",{others}"));
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &["prices-wide.csv, line 3", "no thousands separator"],
+    );
 }
 
 #[test]

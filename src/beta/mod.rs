@@ -132,7 +132,7 @@ pub fn estimate_with_influence(
         let remedy = match settings.method {
             BetaMethod::ScholesWilliams => {
                 "Scholes–Williams always uses one lag and one lead: lengthen the window, or \
-                 fill the peer's gaps"
+                 supply the missing prices"
             }
             _ => "lower beta.dimson_lags / beta.dimson_leads, or lengthen the window",
         };

@@ -14,7 +14,7 @@ use std::time::{Duration, Instant};
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 
-use hurdle::report::universe::{in_no_industry, nonzero_counts, write_outputs};
+use hurdle::report::universe::{estimated_count, nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
 use hurdle::universe::{evaluate, load_inputs, securities_count, UniverseResult};
 
@@ -129,11 +129,10 @@ fn summary(r: &UniverseResult) -> String {
             r.window.window_end
         ),
         format!(
-            "  {}: {} estimated and aggregated{}, {} excluded by beta.exclude_flags, \
+            "  {}: {}, {} excluded by beta.exclude_flags, \
              {} not estimated{}",
             securities_count(c.securities),
-            c.estimated,
-            in_no_industry(c.estimated_without_industry),
+            estimated_count(c.estimated, c.estimated_without_industry),
             c.excluded,
             c.not_estimated.values().sum::<usize>(),
             if not.is_empty() {

@@ -41,30 +41,29 @@ pub fn exact(value: f64) -> String {
 /// holds, not a rounding of it. The decimal point of the rate's shortest text is moved, so no
 /// `x·100` noise appears (0.07·100 is 7.000000000000001 in binary).
 pub fn exact_percent(rate: f64) -> String {
-    let text = exact(rate);
-    if text.contains(['e', 'E', 'N', 'i']) {
-        return format!("{}%", exact(rate * 100.0));
+    if !rate.is_finite() {
+        return format!("{rate}%");
     }
-    let (sign, digits) = text
-        .strip_prefix('-')
-        .map_or(("", text.as_str()), |rest| ("-", rest));
-    let (whole, fraction) = digits.split_once('.').unwrap_or((digits, ""));
-    let fraction = format!("{fraction:0<2}");
-    let (moved, rest) = fraction.split_at(2);
-    let whole = format!("{whole}{moved}");
-    let whole = whole.trim_start_matches('0');
-    let whole = if whole.is_empty() { "0" } else { whole };
-    let rest = rest.trim_end_matches('0');
-    let sign = if whole == "0" && rest.is_empty() {
-        ""
+    if rate == 0.0 {
+        return "0%".to_string();
+    }
+    // Rust's exponent form holds the shortest digits that read back to the same double.
+    let text = format!("{:e}", rate.abs());
+    let (mantissa, exponent) = text.split_once('e').expect("exponent form");
+    let digits = mantissa.replace('.', "");
+    let exponent: i64 = exponent.parse().expect("an integer exponent");
+    // Digits before the decimal point once multiplied by 100.
+    let point = 1 + exponent + 2;
+    let plain = if point <= 0 {
+        format!("0.{}{digits}", "0".repeat((-point) as usize))
+    } else if point as usize >= digits.len() {
+        format!("{digits}{}", "0".repeat(point as usize - digits.len()))
     } else {
-        sign
+        let (whole, fraction) = digits.split_at(point as usize);
+        format!("{whole}.{fraction}")
     };
-    if rest.is_empty() {
-        format!("{sign}{whole}%")
-    } else {
-        format!("{sign}{whole}.{rest}%")
-    }
+    let sign = if rate < 0.0 { "-" } else { "" };
+    format!("{sign}{plain}%")
 }
 
 /// Text for a Markdown table cell: a `|` in it (a peer's name, a file's path) escaped, so that
@@ -150,6 +149,14 @@ mod tests {
             (1.5, "150%"),
             (-0.0125, "-1.25%"),
             (0.123456789, "12.3456789%"),
+            // Below 1e-6, where the shortest text has an exponent (found by review: 1e-7 gave
+            // 0.000009999999999999999%), and above 1.
+            (1e-7, "0.00001%"),
+            (5e-7, "0.00005%"),
+            (123.456, "12345.6%"),
+            (-0.0, "0%"),
+            // The double nearest 0.1 + 0.2 is not the one nearest 0.3: its every digit shows.
+            (0.1 + 0.2, "30.000000000000004%"),
         ] {
             assert_eq!(exact_percent(rate), text, "{rate}");
         }

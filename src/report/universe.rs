@@ -64,11 +64,15 @@ pub fn nonzero_counts(counts: &std::collections::BTreeMap<&'static str, usize>) 
         .join(", ")
 }
 
-/// " (2 of them in no industry)" after the count of securities aggregated, when some have none.
-pub fn in_no_industry(n: usize) -> String {
-    match n {
-        0 => String::new(),
-        n => format!(" ({n} of them in no industry)"),
+/// "297 estimated and aggregated", or, when some of them have no industry and so enter no
+/// industry's figures, "297 estimated and not excluded (2 of them in no industry, …)".
+pub fn estimated_count(estimated: usize, without_industry: usize) -> String {
+    match without_industry {
+        0 => format!("{estimated} estimated and aggregated"),
+        n => format!(
+            "{estimated} estimated and not excluded ({n} of them in no industry, and so in no \
+             industry's figures)"
+        ),
     }
 }
 
@@ -549,13 +553,12 @@ fn summary(r: &UniverseResult) -> String {
     };
     let _ = writeln!(
         out,
-        "{} securities with prices; {} estimated and aggregated{}, {} excluded by \
+        "{} securities with prices; {}, {} excluded by \
          beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta. \"Estimated\" \
          counts the securities that enter an industry's figures; \"Flagged\" those of them that \
          carry a flag (securities.csv names each).\n",
         c.securities,
-        c.estimated,
-        in_no_industry(c.estimated_without_industry),
+        estimated_count(c.estimated, c.estimated_without_industry),
         c.excluded,
         c.not_estimated.values().sum::<usize>(),
         c.unlevered

@@ -139,15 +139,16 @@ fn flagged_notes(
         .filter(|(_, &n)| n > 0)
         .map(|(flag, n)| format!("{flag} {n}"))
         .collect();
-    let mut notes =
-        vec![format!(
-        "{} estimated and aggregated {} a flag ({}): {} their industries' figures as estimated; \
-         the flags column of securities.csv names them, and a flag listed in beta.exclude_flags \
+    let (carry, enter, them) = match total {
+        1 => ("carries", "it enters its industry's", "it"),
+        _ => ("carry", "they enter their industries'", "them"),
+    };
+    let mut notes = vec![format!(
+        "{} estimated and aggregated {carry} a flag ({}): {enter} figures as estimated; the \
+         flags column of securities.csv names {them}, and a flag listed in beta.exclude_flags \
          leaves its securities out.",
         securities_count(total),
-        if total == 1 { "carries" } else { "carry" },
         by_flag.join(", "),
-        if total == 1 { "it enters" } else { "they enter" },
     )];
     let thin = ids_where(securities, |s| {
         s.aggregated()
@@ -189,17 +190,34 @@ fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
         .map(|i| format!("{} ({} of {})", i.industry, i.flagged_total, i.estimated))
         .collect();
     let mut notes = Vec::new();
+    let none: Vec<String> = (industries.iter())
+        .filter(|i| i.estimated == 0)
+        .map(|i| format!("{} ({})", i.industry, securities_count(i.securities)))
+        .collect();
+    if !none.is_empty() {
+        notes.push(format!(
+            "{} no security estimated and aggregated, and so no figure: {}.",
+            if none.len() == 1 {
+                "1 industry has".to_string()
+            } else {
+                format!("{} industries have", none.len())
+            },
+            list(none)
+        ));
+    }
     if !few.is_empty() {
         notes.push(format!(
-            "{} {} on fewer than {FEW_SECURITIES} securities estimated and aggregated, so {} \
-             figures say little about the industry: {}.",
-            few.len(),
+            "{} on fewer than {FEW_SECURITIES} securities estimated and aggregated, so {}: {}.",
             if few.len() == 1 {
-                "industry rests"
+                "1 industry rests".to_string()
             } else {
-                "industries rest"
+                format!("{} industries rest", few.len())
             },
-            if few.len() == 1 { "its" } else { "their" },
+            if few.len() == 1 {
+                "its figures say little about the industry"
+            } else {
+                "their figures say little about those industries"
+            },
             list(few)
         ));
     }

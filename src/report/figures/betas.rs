@@ -115,7 +115,9 @@ fn draw_part(
         y_ticks: false,
     };
     let mut title = "Peer betas with their 95% confidence intervals".to_string();
-    let mut caption = caption(valuation);
+    // A part of peers all left out draws no aggregate line (`marks`), so its key goes too.
+    let line_here = peers.iter().any(|p| p.excluded_reason.is_none());
+    let mut caption = caption(valuation, line_here);
     if count > 1 {
         title.push_str(&format!(" (part {} of {count})", k + 1));
         caption.push_str(&format!(
@@ -128,7 +130,10 @@ fn draw_part(
         ));
     }
     let plot = ((-bottom) * ROW) as u32 + 60;
-    let legend = legend(valuation, cash, aggregate);
+    let mut legend = legend(valuation, cash, aggregate);
+    if !line_here {
+        legend.retain(|(mark, _)| !matches!(mark, Mark::Dashed(_)));
+    }
     let layout = Layout::new(WIDTH, plot, &title, &legend, &caption);
     let name = part_name(k);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
@@ -206,6 +211,7 @@ fn names(
 ) -> Result<()> {
     // Each label drawn shorter than its text, with the whole text, for its tooltip.
     let mut labels: Vec<(String, String)> = Vec::new();
+    let apart = std::cell::OnceCell::new();
     canvas.layer("y-axis", |root| {
         let (_, plot_area, _) = layout.split(root);
         let chart = axes.chart(&plot_area)?;
@@ -216,10 +222,12 @@ fn names(
             let x = left - 12;
             // The band left of the plot, by the estimated advance of the characters (frame.rs).
             let room = f64::from(x - style::MARGIN);
-            // Shortened among every peer's name, so two never read alike (in any part).
+            // Shortened among every peer's name, so two never read alike (in any part); every
+            // row has the same room, so the labels are told apart once.
             let width = fit(room, style::LABEL);
+            let drawn = apart.get_or_init(|| distinct_middle(all, width));
             let name = match all.iter().position(|n| *n == row.peer.name) {
-                Some(place) => distinct_middle(all, width).swap_remove(place),
+                Some(place) => drawn[place].clone(),
                 None => shorten_middle(&row.peer.name, width),
             };
             root.draw_text(&name, &name_style, (x, y))?;
@@ -386,13 +394,15 @@ fn used_label(valuation: &Valuation) -> &'static str {
     }
 }
 
-fn caption(valuation: &Valuation) -> String {
+/// The chart's caption; `line_here` is false for a part that holds only peers left out of the
+/// aggregate, which does not draw its line.
+fn caption(valuation: &Valuation, line_here: bool) -> String {
     let summary = &valuation.cost.beta;
     let excluded = valuation.peers.len() - summary.peers_included;
     format!(
         "For each peer: the raw β (dot) with its 95% confidence interval ({} standard errors, \
-         Student t), the β used ({}; triangle) and the unlevered β by {} (square{}). The dashed \
-         line is the {} of the {} included {}, βU = {}, relevered to {} at the \
+         Student t), the β used ({}; triangle) and the unlevered β by {} (square{}). {} the {} \
+         of the {} included {}, βU = {}, relevered to {} at the \
          target D/E of {}. {}The grey line marks β = 1, the index. Figures: result.json peers[] \
          (beta, beta_ci_low, beta_ci_high, beta_used, {}) and beta.unlevered.",
         super::std_errors_name(valuation.estimator.std_errors),
@@ -402,6 +412,12 @@ fn caption(valuation: &Valuation) -> String {
             "; the beta of the operations, cash at beta zero"
         } else {
             ""
+        },
+        match line_here {
+            true => "The dashed line is",
+            false =>
+                "The peers here are all left out; the dashed line, drawn beside the \
+                      included peers, is",
         },
         label(&summary.aggregation),
         summary.peers_included,

@@ -174,6 +174,10 @@ pub fn shorten_middle(text: &str, width: usize) -> String {
 /// place in `names` ("#3"). Names are unique, so whole names never need it.
 pub fn distinct_middle(names: &[&str], width: usize) -> Vec<String> {
     let mut labels: Vec<String> = names.iter().map(|n| shorten_middle(n, width)).collect();
+    // Too narrow to tell anything apart (no chart lays out names this short).
+    if width < 6 {
+        return labels;
+    }
     let first = labels.clone();
     for (i, name) in names.iter().enumerate() {
         let shared = (names.iter().zip(&first))
@@ -203,7 +207,9 @@ fn common_prefix(a: &str, b: &str) -> usize {
 /// `text` as a start, an ellipsis and the text from the word holding character `from` on, in
 /// `width` characters: the start at most a third of them (ending at a space when that keeps
 /// half of it), the rest taking whole words before that one while they fit, else cut at its
-/// end with a second ellipsis.
+/// end with a second ellipsis. When the word is too long to show the character `from` (a name
+/// without spaces, or a long word), the rest starts a few characters before it instead; when
+/// nothing lies between the start and the rest, no ellipsis stands there.
 fn from_difference(text: &str, from: usize, width: usize) -> String {
     let chars: Vec<char> = text.chars().collect();
     let from = from.min(chars.len());
@@ -226,12 +232,28 @@ fn from_difference(text: &str, from: usize, width: usize) -> String {
     while start > head + 1 && chars.len() - word_start(start - 1) <= room {
         start = word_start(start - 1);
     }
-    let head: String = chars[..head].iter().collect();
+    // The characters shown before a closing ellipsis, when the rest is cut.
+    let shown = match chars.len() - start <= room {
+        true => room,
+        false => room.saturating_sub(1),
+    };
+    if from >= start + shown {
+        start = from.saturating_sub(shown / 2).max(head);
+    }
+    if start == head {
+        // Nothing left out between the start and the rest: the text cut at its end alone.
+        return shorten(text, width);
+    }
+    let head_text: String = chars[..head].iter().collect();
     let rest: String = chars[start..].iter().collect();
-    format!("{}…{}", head.trim_end(), shorten(rest.trim_start(), room))
+    format!(
+        "{}…{}",
+        head_text.trim_end(),
+        shorten(rest.trim_start(), room)
+    )
 }
 
-/// Breaks `text` into lines of at most `width` characters at spaces/// Breaks `text` into lines of at most `width` characters at spaces (a longer word stands
+/// Breaks `text` into lines of at most `width` characters at spaces (a longer word stands
 /// alone on its line).
 pub fn wrap(text: &str, width: usize) -> Vec<String> {
     let mut lines = Vec::new();
@@ -301,6 +323,29 @@ mod tests {
                 labels.iter().all(|l| l.chars().count() <= width),
                 "{labels:?}"
             );
+        }
+        // Names without spaces (written without them, as in Japanese) and a difference inside
+        // a long word: the character that differs is shown, and the labels differ without
+        // resorting to their places (found by review: "東京精…密機械工… #1").
+        let kanji = ["東京精密機械工業第一製作所", "東京精密機械工業第二製作所"];
+        let drawn = distinct_middle(&kanji, 12);
+        assert_ne!(drawn[0], drawn[1]);
+        assert!(
+            drawn[0].contains('一') && drawn[1].contains('二'),
+            "{drawn:?}"
+        );
+        assert!(drawn
+            .iter()
+            .all(|l| !l.contains('#') && l.chars().count() <= 12));
+        let long = [
+            "Orrin Supercalifragilistic1 Holdings",
+            "Orrin Supercalifragilistic2 Holdings",
+            "Orrin Supercalifragilistic3 Holdings",
+        ];
+        let drawn = distinct_middle(&long, 24);
+        for (label, digit) in drawn.iter().zip(['1', '2', '3']) {
+            assert!(label.contains(digit) && !label.contains('#'), "{drawn:?}");
+            assert!(label.chars().count() <= 24, "{label}");
         }
         // Three names each pair of which differs in the cut part: no two labels alike.
         let names = [

@@ -78,9 +78,14 @@ pub fn draw_all(valuation: &Valuation) -> Result<Vec<Figure>> {
     // gives one figure or several.
     type Draw<'a> = Box<dyn Fn() -> Result<Vec<Figure>> + Send + Sync + 'a>;
     let one = |figure: Result<Figure>| figure.map(|f| vec![f]);
+    // The regression charts' drawn names, told apart once for all of them.
+    let titles = regression::drawn_names(valuation);
+    let titles = &titles;
     let mut draws: Vec<Draw> = vec![Box::new(|| betas::draw(valuation))];
     for index in 0..valuation.peers.len() {
-        draws.push(Box::new(move || one(regression::draw(valuation, index))));
+        draws.push(Box::new(move || {
+            one(regression::draw(valuation, (index, &titles[index])))
+        }));
     }
     if valuation.rolling.iter().any(|points| !points.is_empty()) {
         draws.push(Box::new(|| stability::draw(valuation)));

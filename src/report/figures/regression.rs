@@ -27,8 +27,16 @@ const DENSE_POINTS: usize = 250;
 const WIDTH: u32 = 640;
 const PLOT: u32 = 320;
 
-/// The regression chart of peer `index`.
-pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
+/// Every peer's name as its regression chart's title draws it: at most 40 characters, no two
+/// alike ([`distinct_middle`]), computed once for all the charts.
+pub fn drawn_names(valuation: &Valuation) -> Vec<String> {
+    let names: Vec<&str> = valuation.peers.iter().map(|p| p.name.as_str()).collect();
+    distinct_middle(&names, 40)
+}
+
+/// The regression chart of peer `index`, whose title draws its name as `drawn_name` (from
+/// [`drawn_names`]).
+pub fn draw(valuation: &Valuation, (index, drawn_name): (usize, &str)) -> Result<Figure> {
     let peer = &valuation.peers[index];
     let returns = &valuation.returns[index];
     let (x, y) = (returns.market_excess(), returns.asset_excess());
@@ -79,11 +87,7 @@ pub fn draw(valuation: &Valuation, index: usize) -> Result<Figure> {
     // title and the report keep it whole.
     // Shortened in the middle, so peers whose names share a long start stay apart; the whole
     // name is the first title line's tooltip.
-    let names: Vec<&str> = valuation.peers.iter().map(|p| p.name.as_str()).collect();
-    let drawn = format!(
-        "{}: regression on the index",
-        distinct_middle(&names, 40).swap_remove(index)
-    );
+    let drawn = format!("{drawn_name}: regression on the index");
     let layout = Layout::new(WIDTH, PLOT, &drawn, &legend, &caption);
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;

@@ -245,6 +245,7 @@ fn draw_part(
         columns,
         first,
         names: &names,
+        titles: std::cell::OnceCell::new(),
     };
     let panels = peers.iter().zip(&valuation.rolling).enumerate();
     for (i, (peer, points)) in panels.take(last).skip(first) {
@@ -276,6 +277,8 @@ struct Panels<'a> {
     first: usize,
     /// Every peer's name, in case order, so no two panel titles read alike.
     names: &'a [&'a str],
+    /// The titles as drawn, told apart once (every panel has the same width).
+    titles: std::cell::OnceCell<Vec<String>>,
 }
 
 impl Panels<'_> {
@@ -309,7 +312,11 @@ impl Panels<'_> {
             // advance of bold characters (frame.rs, as for the chart's title), whole in the
             // tooltip and the description.
             let room = f64::from(band.dim_in_pixel().0) - 2.0 * f64::from(style::MARGIN);
-            let text = distinct_middle(self.names, fit(room, style::LABEL * 1.04)).swap_remove(i);
+            let width = fit(room, style::LABEL * 1.04);
+            let text = self
+                .titles
+                .get_or_init(|| distinct_middle(self.names, width))[i]
+                .clone();
             band.draw_text(&text, &name_style, (style::MARGIN, 4))?;
             *shown.borrow_mut() = text;
             if empty {
