@@ -80,11 +80,10 @@ pub fn draw_all(valuation: &Valuation) -> Result<Vec<Figure>> {
     let one = |figure: Result<Figure>| figure.map(|f| vec![f]);
     // The regression charts' drawn names, told apart once for all of them.
     let titles = regression::drawn_names(valuation);
-    let titles = &titles;
     let mut draws: Vec<Draw> = vec![Box::new(|| betas::draw(valuation))];
-    for index in 0..valuation.peers.len() {
+    for (index, title) in titles.iter().enumerate() {
         draws.push(Box::new(move || {
-            one(regression::draw(valuation, (index, &titles[index])))
+            one(regression::draw(valuation, (index, title)))
         }));
     }
     if valuation.rolling.iter().any(|points| !points.is_empty()) {
