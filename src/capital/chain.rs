@@ -20,7 +20,7 @@ use crate::stats::{self, Dispersion};
 mod listing;
 mod operations;
 pub use listing::{unlevered_only, unlevering_needs_subject_cost_of_debt, UnleveredPeers};
-use operations::{operations_beta, operations_betas};
+use operations::{operations_betas, peer_operations_beta};
 
 /// A peer's capital-structure terms as the chain used them.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -357,7 +357,7 @@ pub fn wacc_with(
         }
         let unlevered = unlever(spec.formula, peer, adjusted, terms);
         values.push(if spec.operations_beta {
-            operations_beta(unlevered, terms)
+            peer_operations_beta(spec, spec.formula, (peer, adjusted, terms), unlevered)
         } else {
             unlevered
         });
@@ -669,6 +669,38 @@ mod tests {
         assert!((wacc - 0.079_719_480_519).abs() < 1e-12, "{wacc}");
         let full = chain(&spec(&debt), &peers, Checks::Enforce).unwrap();
         assert_eq!(full.outcome().wacc.to_bits(), wacc.to_bits());
+    }
+
+    // One rule for the beta of the operations in the point estimate and in a draw (found by
+    // review: a draw divided the unlevered beta at net debt by the operating share, counting
+    // the cash twice, where the point estimate starts from gross debt): under every debt
+    // measure, with cash, `wacc_only` is `chain`'s WACC to the bit.
+    #[test]
+    fn a_draw_takes_the_beta_of_the_operations_as_the_point_estimate_does() {
+        let debt = debt();
+        let with_cash = |raw: f64, d: f64| PeerCapital {
+            cash: 15.0,
+            ..peer(raw, d, true)
+        };
+        let peers = [
+            with_cash(1.2, 50.0),
+            with_cash(0.9, 20.0),
+            with_cash(1.05, 30.0),
+        ];
+        for debt_measure in [DebtMeasure::Gross, DebtMeasure::Net] {
+            let spec = CapitalSpec {
+                operations_beta: true,
+                debt_measure,
+                ..spec(&debt)
+            };
+            let draw = wacc_only(&spec, &peers).unwrap();
+            let full = chain(&spec, &peers, Checks::Enforce).unwrap();
+            assert_eq!(
+                full.outcome().wacc.to_bits(),
+                draw.to_bits(),
+                "{debt_measure:?}"
+            );
+        }
     }
 
     // Buffers carried from one draw to the next must not leak into it: peer sets of other

@@ -7,13 +7,35 @@ use super::{unlever, AdjustedBeta, CapitalSpec, DebtMeasure, Formula, PeerCapita
 /// The beta of the operations, βU / (1 − cash / (equity + debt)): the firm's value is its
 /// operations plus its cash, and the unlevered beta their value-weighted mix; with cash at a beta
 /// of zero, dividing by the operations' share of the value leaves their beta. Uses gross debt.
-pub(super) fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
+fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
     unlevered / terms.operating_share
 }
 
-/// [`operations_beta`] for every peer, always of the unlevered beta at gross debt: under net
-/// debt the unlevered beta has already netted the cash (at a beta of zero) against the debt,
-/// and dividing it by the operating share as well would count the cash twice.
+/// One peer's beta of the operations, always from the unlevered beta at gross debt
+/// (`unlevered` is the peer's unlevered beta under the spec's debt measure): under net debt the
+/// unlevered beta has already netted the cash (at a beta of zero) against the debt, and
+/// dividing it by the operating share as well would count the cash twice. The one rule for the
+/// point estimate ([`operations_betas`]) and every draw (`wacc_with`).
+pub(super) fn peer_operations_beta(
+    spec: &CapitalSpec<'_>,
+    formula: Formula,
+    (peer, adjusted, terms): (&PeerCapital, &AdjustedBeta, &PeerTerms),
+    unlevered: f64,
+) -> f64 {
+    let gross = match spec.debt_measure {
+        DebtMeasure::Gross => unlevered,
+        DebtMeasure::Net => {
+            let gross_terms = PeerTerms {
+                debt_to_equity: peer.debt / peer.equity_value,
+                ..*terms
+            };
+            unlever(formula, peer, adjusted, &gross_terms)
+        }
+    };
+    operations_beta(gross, terms)
+}
+
+/// [`peer_operations_beta`] for every peer.
 pub(super) fn operations_betas(
     spec: &CapitalSpec<'_>,
     formula: Formula,
@@ -25,18 +47,7 @@ pub(super) fn operations_betas(
     let each = peers.iter().zip(adjusted).zip(terms);
     each.zip(unlevered)
         .map(|(((peer, adjusted), terms), &u)| {
-            let gross = match spec.debt_measure {
-                DebtMeasure::Gross => u,
-                DebtMeasure::Net => {
-                    let debt_to_equity = peer.debt / peer.equity_value;
-                    let gross_terms = PeerTerms {
-                        debt_to_equity,
-                        ..*terms
-                    };
-                    unlever(formula, peer, adjusted, &gross_terms)
-                }
-            };
-            operations_beta(gross, terms)
+            peer_operations_beta(spec, formula, (peer, adjusted, terms), u)
         })
         .collect()
 }
