@@ -1487,7 +1487,12 @@ fn a_universe_receipt_of_0_3_0_verifies_without_the_counts_added_since() {
             }
         }
         let counts = receipt["counts"].as_object_mut().unwrap();
-        for key in ["estimated_without_industry", "flagged", "flagged_total"] {
+        for key in [
+            "estimated_without_industry",
+            "flagged",
+            "flagged_total",
+            "not_estimated_total",
+        ] {
             assert!(counts.remove(key).is_some(), "{key}");
         }
         (receipt.as_object_mut().unwrap().remove("securities")).expect("securities");

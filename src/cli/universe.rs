@@ -134,7 +134,7 @@ fn summary(r: &UniverseResult) -> String {
             securities_count(c.securities),
             estimated_count(c.estimated, c.estimated_without_industry),
             c.excluded,
-            c.not_estimated.values().sum::<usize>(),
+            c.not_estimated_total,
             if not.is_empty() {
                 String::new()
             } else {

@@ -5,7 +5,7 @@
 use chrono::NaiveDate;
 use polars::prelude::*;
 
-use super::{check_label, check_price, parse_iso_date, PanelColumns, Rows, Source};
+use super::{check_label, check_price, parse_iso_date, PanelColumns, PanelLayout, Rows, Source};
 use crate::error::Result;
 use crate::io::series::{date_hint, GENERIC_DATE_HINT};
 
@@ -14,6 +14,27 @@ use crate::io::series::{date_hint, GENERIC_DATE_HINT};
 pub(crate) enum DateCells<'a> {
     Text(&'a StringChunked),
     Days(&'a Int32Chunked),
+}
+
+/// What to write instead of a price cell that is not a number, after "is not a number": a
+/// case's price-file advice in a long panel; in a wide one, a spreadsheet error or dash is a
+/// day without a price (left empty), a formatted number gets the same advice, and a word
+/// suggests the file is long.
+pub(crate) fn number_hint(cell: &str, columns: &PanelColumns) -> String {
+    let placeholder = cell.starts_with('#') || cell.trim_matches('-').is_empty();
+    // A number as a spreadsheet formats it: a separator, a % or currency sign.
+    let formatted = cell.contains([',', '%']) || cell.starts_with(['$', '€', '£', '¥']);
+    match columns.layout {
+        PanelLayout::Wide if placeholder => ": a spreadsheet error or a placeholder; leave the \
+            cell empty for a day without a price (it is skipped, never filled)"
+            .to_string(),
+        PanelLayout::Wide if !formatted => format!(
+            " (a wide panel holds only prices beside `{}`; if this file has one row per date and \
+             security, set panel.layout = \"long\")",
+            columns.date_column
+        ),
+        _ => format!(": {}", crate::io::series::number_problem(cell)),
+    }
 }
 
 /// Parses every date of a block; the first bad one is an error naming its row.

@@ -488,29 +488,7 @@ fn diagnose(
                     );
                 }
                 if !trimmed.is_empty() && trimmed.parse::<f64>().is_err() {
-                    let placeholder =
-                        trimmed.starts_with('#') || trimmed.trim_matches('-').is_empty();
-                    // A number as a spreadsheet formats it: a separator, a % or currency sign.
-                    let formatted =
-                        trimmed.contains([',', '%']) || trimmed.starts_with(['$', '€', '£', '¥']);
-                    let hint = match columns.layout {
-                        // A spreadsheet's error or a dash for a day without a price.
-                        PanelLayout::Wide if placeholder => ": a spreadsheet error or a \
-                            placeholder; leave the cell empty for a day without a price (it is \
-                            skipped, never filled)"
-                            .to_string(),
-                        PanelLayout::Wide if formatted => {
-                            format!(": {}", crate::io::series::number_problem(trimmed))
-                        }
-                        PanelLayout::Wide => format!(
-                            " (a wide panel holds only prices beside `{}`; if this file has \
-                             one row per date and security, set panel.layout = \"long\")",
-                            columns.date_column
-                        ),
-                        PanelLayout::Long => {
-                            format!(": {}", crate::io::series::number_problem(trimmed))
-                        }
-                    };
+                    let hint = super::cells::number_hint(trimmed, columns);
                     return source.row_error(
                         first_row + k,
                         format!("`{name}` = \"{cell}\" is not a number{hint}"),

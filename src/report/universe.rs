@@ -560,7 +560,7 @@ fn summary(r: &UniverseResult) -> String {
         c.securities,
         estimated_count(c.estimated, c.estimated_without_industry),
         c.excluded,
-        c.not_estimated.values().sum::<usize>(),
+        c.not_estimated_total,
         c.unlevered
     );
     industry_table(&mut out, r);

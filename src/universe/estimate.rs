@@ -164,28 +164,30 @@ impl Estimation {
         &self.window
     }
 
+    /// Why a security is not estimated at all, from its prices alone: an implausible move in
+    /// the window, or the index's prices on every date both have.
+    fn refused_before_estimating(&self, prices: SeriesView<'_>) -> Option<(NotEstimated, String)> {
+        let bounds = (self.window.start(), self.window.end());
+        if let Some(detail) = first_jump(prices, bounds.0, bounds.1) {
+            return Some((NotEstimated::PriceJump, detail));
+        }
+        let shared = estimate::same_prices_as_index(prices, self.index.view(), bounds)?;
+        Some((
+            NotEstimated::CopiesIndex,
+            format!(
+                "its prices equal the index's on all {shared} dates in the window that both \
+                 have: a copy of the index's prices, not a firm"
+            ),
+        ))
+    }
+
     /// One security, as a case estimates a peer.
     pub fn security(&self, prices: SeriesView<'_>) -> SecurityEstimate {
-        if let Some(detail) = first_jump(prices, self.window.start(), self.window.end()) {
+        if let Some(refused) = self.refused_before_estimating(prices) {
             return SecurityEstimate {
                 periods_dropped: None,
                 observations: None,
-                outcome: Err((NotEstimated::PriceJump, detail)),
-                rolling: Vec::new(),
-            };
-        }
-        let bounds = (self.window.start(), self.window.end());
-        if let Some(shared) = estimate::same_prices_as_index(prices, self.index.view(), bounds) {
-            return SecurityEstimate {
-                periods_dropped: None,
-                observations: None,
-                outcome: Err((
-                    NotEstimated::CopiesIndex,
-                    format!(
-                        "its prices equal the index's on all {shared} dates in the window that \
-                         both have: a copy of the index's prices, not a firm"
-                    ),
-                )),
+                outcome: Err(refused),
                 rolling: Vec::new(),
             };
         }

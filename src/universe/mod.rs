@@ -194,6 +194,8 @@ pub struct Counts {
     /// Of the estimated and not excluded, those carrying any flag.
     pub flagged_total: usize,
     pub not_estimated: std::collections::BTreeMap<&'static str, usize>,
+    /// Not estimated, whatever the reason.
+    pub not_estimated_total: usize,
     /// Estimated but excluded by `beta.exclude_flags`.
     pub excluded: usize,
     /// Securities lacking a figure, by figure (a security can lack several).

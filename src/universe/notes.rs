@@ -43,63 +43,78 @@ pub(super) fn counts_and_notes(
         ))
         .collect();
     notes.splice(0..0, index_coverage_note(&inputs.index, start, end));
-    if !strays.is_empty() {
-        notes.push(format!(
+    notes.extend(strays_note(inputs, &strays));
+    notes.extend(named_notes(securities));
+    notes.extend(no_industry_note(securities));
+    notes.extend(placeholder_industries_note(securities));
+    let counts = counts(securities, strays.len());
+    let method = inputs.universe.settings.beta.method;
+    notes.extend(flagged_notes(
+        securities,
+        (&counts.flagged, counts.flagged_total),
+        method,
+    ));
+    notes.extend(industry_notes(industries));
+    (counts, notes)
+}
+
+/// How many securities went where; `strays` attribute rows have no prices in the panel.
+fn counts(securities: &[SecurityResult], strays: usize) -> Counts {
+    let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
+    Counts {
+        securities: securities.len(),
+        estimated: count(&|s| s.aggregated()),
+        estimated_without_industry: count(&|s| s.aggregated() && s.industry.is_none()),
+        not_estimated_total: count(&|s| s.not_estimated.is_some()),
+        flagged: FLAGS
+            .iter()
+            .map(|f| (f.name(), count(&|s| s.aggregated() && s.flags.contains(f))))
+            .collect(),
+        flagged_total: count(&|s| s.aggregated() && !s.flags.is_empty()),
+        not_estimated: NotEstimated::ALL
+            .iter()
+            .map(|&r| (r.name(), count(&|s| s.not_estimated == Some(r))))
+            .collect(),
+        excluded: count(&|s| s.estimate.is_some() && s.excluded_reason.is_some()),
+        missing: Missing::ALL
+            .iter()
+            .map(|&m| (m.name(), count(&|s| s.missing.contains(&m))))
+            .collect(),
+        unlevered: count(&|s| s.unlevered_beta.is_some()),
+        attributes_not_in_panel: strays,
+    }
+}
+
+/// The attribute rows whose security the panel does not hold, by id.
+fn strays_note(inputs: &UniverseInputs, strays: &[&str]) -> Option<String> {
+    (!strays.is_empty()).then(|| {
+        format!(
             "{} in the attributes ({}) {} no prices in the panel and {} left out: {}{}",
             securities_count(strays.len()),
             inputs.attributes.file.path,
             if strays.len() == 1 { "has" } else { "have" },
             if strays.len() == 1 { "is" } else { "are" },
-            first_ids(&strays),
-            case_twins(&strays, panel.securities())
-        ));
-    }
-    notes.extend(named_notes(securities));
-    let count = |f: &dyn Fn(&SecurityResult) -> bool| securities.iter().filter(|s| f(s)).count();
-    let not_estimated = NotEstimated::ALL
-        .iter()
-        .map(|&r| (r.name(), count(&|s| s.not_estimated == Some(r))))
-        .collect();
-    let missing = Missing::ALL
-        .iter()
-        .map(|&m| (m.name(), count(&|s| s.missing.contains(&m))))
-        .collect();
-    let excluded = count(&|s| s.estimate.is_some() && s.excluded_reason.is_some());
-    let without_industry = ids_where(securities, |s| s.industry.is_none());
-    if !without_industry.is_empty() {
-        let (have, they, are, enter) = match without_industry.len() {
+            first_ids(strays),
+            case_twins(strays, inputs.panel.securities())
+        )
+    })
+}
+
+/// The securities without an industry, by id: listed, in no industry.
+fn no_industry_note(securities: &[SecurityResult]) -> Option<String> {
+    let without = ids_where(securities, |s| s.industry.is_none());
+    (!without.is_empty()).then(|| {
+        let (have, they, are, enter) = match without.len() {
             1 => ("has", "it", "is", "enters"),
             _ => ("have", "they", "are", "enter"),
         };
-        notes.push(format!(
+        format!(
             "{} {have} no industry (no attributes row or an empty label): {they} {are} listed in \
              securities.csv but {enter} no industry: {}",
-            securities_count(without_industry.len()),
-            first_ids(&without_industry)
-        ));
-    }
-    notes.extend(placeholder_industries_note(securities));
-    let flagged: BTreeMap<&'static str, usize> = FLAGS
-        .iter()
-        .map(|f| (f.name(), count(&|s| s.aggregated() && s.flags.contains(f))))
-        .collect();
-    let flagged_total = count(&|s| s.aggregated() && !s.flags.is_empty());
-    let method = inputs.universe.settings.beta.method;
-    notes.extend(flagged_notes(securities, (&flagged, flagged_total), method));
-    notes.extend(industry_notes(industries));
-    let counts = Counts {
-        securities: securities.len(),
-        estimated: count(&|s| s.aggregated()),
-        estimated_without_industry: count(&|s| s.aggregated() && s.industry.is_none()),
-        flagged,
-        flagged_total,
-        not_estimated,
-        excluded,
-        missing,
-        unlevered: count(&|s| s.unlevered_beta.is_some()),
-        attributes_not_in_panel: strays.len(),
-    };
-    (counts, notes)
+            securities_count(without.len()),
+            first_ids(&without)
+        )
+    })
 }
 
 /// ". The panel's SEC0100 differs from sec0100 only in capitals: ids are matched exactly"

@@ -49,6 +49,7 @@ const ADDED_IN: [(&str, &[&str]); 2] = [
             "counts.estimated_without_industry",
             "counts.flagged",
             "counts.flagged_total",
+            "counts.not_estimated_total",
             "securities",
         ],
     ),
