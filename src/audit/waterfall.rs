@@ -8,8 +8,8 @@
 //! first the gap between the starting side's stated WACC and its components (0 for a case, whose
 //! build-up holds preferred equity and leases too), last the same gap of the claim.
 
-use super::bridge::{Side, Step};
 pub use crate::valuation::analyses::{BarKind, WaterfallBar};
+use crate::valuation::analyses::{Side, Step};
 
 /// The bars from `from`'s WACC to `to`'s, in drawing order.
 pub fn waterfall(
@@ -19,41 +19,38 @@ pub fn waterfall(
     unexplained: Option<f64>,
     unexplained_from: Option<f64>,
 ) -> Vec<WaterfallBar> {
-    let bar = |label: String, kind, start, end| WaterfallBar {
+    // A step from `start` by `change`; a total from zero to its level.
+    let step = |label: String, kind, start: f64, change: f64| WaterfallBar {
         label,
         kind,
         start,
-        end,
+        end: start + change,
+        change: Some(change),
+    };
+    let total = |label: String, level: f64| WaterfallBar {
+        label,
+        kind: BarKind::Total,
+        start: 0.0,
+        end: level,
+        change: None,
     };
     let first = from.stated_wacc.unwrap_or(from.wacc);
-    let mut bars = vec![bar(from.label.clone(), BarKind::Total, 0.0, first)];
+    let mut bars = vec![total(from.label.clone(), first)];
     if let Some(residue) = unexplained_from.filter(|r| *r != 0.0) {
-        bars.push(bar(
-            "unexplained (stated less components)".into(),
-            BarKind::Residue,
-            first,
-            first - residue,
-        ));
+        bars.push(step(UNEXPLAINED.into(), BarKind::Residue, first, -residue));
     }
     let mut running = from.wacc;
-    for step in steps {
-        let name = step.group.title().to_string();
-        bars.push(bar(name, BarKind::Group, running, running + step.shapley));
-        running += step.shapley;
+    for s in steps {
+        let name = s.group.title().to_string();
+        bars.push(step(name, BarKind::Group, running, s.shapley));
+        running += s.shapley;
     }
     if let Some(residue) = unexplained {
-        bars.push(bar(
-            "unexplained (stated less components)".into(),
-            BarKind::Residue,
-            to.wacc,
-            to.wacc + residue,
-        ));
+        bars.push(step(UNEXPLAINED.into(), BarKind::Residue, to.wacc, residue));
     }
-    bars.push(bar(
-        to.label.clone(),
-        BarKind::Total,
-        0.0,
-        to.stated_wacc.unwrap_or(to.wacc),
-    ));
+    bars.push(total(to.label.clone(), to.stated_wacc.unwrap_or(to.wacc)));
     bars
 }
+
+/// The label of a residue bar.
+const UNEXPLAINED: &str = "unexplained (stated less components)";

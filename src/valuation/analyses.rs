@@ -457,4 +457,7 @@ pub struct WaterfallBar {
     pub kind: BarKind,
     pub start: f64,
     pub end: f64,
+    /// The step's size, as computed (a group's Shapley value, a residue), which the chart
+    /// writes at the bar's end; `None` for a total.
+    pub change: Option<f64>,
 }

@@ -50,6 +50,7 @@ const ADDED_IN: [(&str, &[&str]); 2] = [
             "counts.flagged",
             "counts.flagged_total",
             "counts.not_estimated_total",
+            "reconciliation.waterfall[].change",
             "securities",
         ],
     ),

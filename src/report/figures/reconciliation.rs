@@ -80,10 +80,9 @@ fn fitted(label: &str) -> String {
 
 /// The value written at a bar's end: a total's level, a step's size.
 fn value(bar: &WaterfallBar) -> String {
-    match bar.kind {
-        BarKind::Total => percent(bar.end, 2),
-        _ => {
-            let change = bar.end - bar.start;
+    match (bar.kind, bar.change) {
+        (BarKind::Total, _) | (_, None) => percent(bar.end, 2),
+        (_, Some(change)) => {
             // Below half a basis point the step rounds to nothing: no sign then.
             if (change * 1e4).abs() < 0.5 {
                 "0 bp".to_string()
