@@ -1774,7 +1774,10 @@ fn monte_carlo_collapses_without_error_and_repeats_with_its_seed() {
         p.estimate.beta_std_error = 0.0;
     }
     let run = |case: &hurdle::case::Case, estimates: &hurdle::valuation::PeerEstimates| {
-        simulate(case, &inputs, estimates, valuation.cost.wacc, Vec::new()).unwrap()
+        simulate(case, &inputs, estimates, valuation.cost.wacc, || {
+            Ok(Vec::new())
+        })
+        .unwrap()
     };
     // No sampling error: every draw is the point estimate, so every percentile is too.
     let flat = run(&inputs.case, &flat_estimates);
@@ -1803,7 +1806,10 @@ fn monte_carlo_median_converges_to_the_point_estimate() {
         let mut case = inputs.case.clone();
         case.settings.uncertainty.draws = draws;
         let estimates = estimate_peers(&case, &inputs).unwrap();
-        let u = simulate(&case, &inputs, &estimates, valuation.cost.wacc, Vec::new()).unwrap();
+        let u = simulate(&case, &inputs, &estimates, valuation.cost.wacc, || {
+            Ok(Vec::new())
+        })
+        .unwrap();
         let sigma = (u.p75 - u.p25) / 1.349;
         let bound = 4.0 * (std::f64::consts::PI / 2.0).sqrt() * sigma / f64::from(draws).sqrt();
         assert!(

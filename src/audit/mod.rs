@@ -40,34 +40,32 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     // so they run side by side (two cores halve the wall time); their errors are reported in this
     // fixed order, whichever finished first.
     let point = valuation.cost.wacc;
-    let (sensitivity, (specifications, uncertainty)) = rayon::join(
+    let specifications = || {
+        if inputs.case.settings.uncertainty.specification_range {
+            specification::range(inputs, &estimates, point)
+        } else {
+            Ok(Vec::new())
+        }
+    };
+    let (sensitivity, uncertainty) = rayon::join(
         || grid::grid(inputs, &estimates, &rows, &columns, sensitivity.metric),
-        || {
-            rayon::join(
-                || {
-                    if inputs.case.settings.uncertainty.specification_range {
-                        specification::range(inputs, &estimates, point)
-                    } else {
-                        Ok(Vec::new())
-                    }
-                },
-                || uncertainty::simulate(&inputs.case, inputs, &estimates, point, Vec::new()),
-            )
-        },
+        || uncertainty::simulate(&inputs.case, inputs, &estimates, point, specifications),
     );
     valuation.sensitivity = Some(sensitivity?);
-    let specifications = specifications?;
-    let mut uncertainty = uncertainty?;
-    uncertainty.specifications = specifications;
+    let uncertainty = uncertainty?;
     valuation.notes.extend(specification::note(&uncertainty));
     valuation.uncertainty = Some(uncertainty);
     if let Some(reconcile) = &inputs.case.settings.reconcile {
         let path = inputs.case.resolve(&reconcile.claimed);
         let claimed = bridge::read_side(&path, &reconcile.claimed)?;
-        let mut ours = bridge::Side::from_valuation("this case", &valuation);
-        ours.as_of = Some(valuation.case.valuation_date.to_string());
-        valuation.notes.extend(bridge::dates_note(&ours, &claimed));
-        ours.as_of = None;
+        let ours = bridge::Side::from_valuation("this case", &valuation);
+        // The case's date speaks for its side in the note only; the bridge's record of the
+        // side keeps no date (a case's is in the receipt already).
+        let dated = bridge::Side {
+            as_of: Some(valuation.case.valuation_date.to_string()),
+            ..ours.clone()
+        };
+        valuation.notes.extend(bridge::dates_note(&dated, &claimed));
         valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
     }
     crate::valuation::sanity::check_finite_figures(&valuation)?;

@@ -37,7 +37,7 @@ pub fn simulate(
     inputs: &Inputs,
     estimates: &PeerEstimates,
     point: f64,
-    specifications: Vec<crate::valuation::analyses::Specification>,
+    specifications: impl FnOnce() -> Result<Vec<crate::valuation::analyses::Specification>> + Send,
 ) -> Result<Uncertainty> {
     let settings = &case.settings;
     let u = &settings.uncertainty;
@@ -56,32 +56,35 @@ pub fn simulate(
         };
     let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
 
-    // The two intervals draw from generators of their own, so they run side by side.
-    let (waccs, peer_set) = rayon::join(
-        || -> Result<Vec<f64>> {
-            let mut rng = Rng::seeded(u.seed);
-            let mut drawn = named.clone();
-            let mut z = vec![0.0; named.len()];
-            let mut buffers = chain::Buffers::default();
-            let mut waccs = Vec::with_capacity(u.draws as usize);
-            let mut progress =
-                crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
-            for _ in 0..u.draws {
-                progress.step()?;
-                draw_betas(&mut rng, &factor, &named, &mut z, &mut drawn);
-                let mut spec = base;
-                if let Some(range) = u.equity_risk_premium {
-                    spec.equity_risk_premium = uniform(&mut rng, range);
+    // The two intervals draw from generators of their own, so they run side by side, and
+    // beside the specification range's reruns (the record is built once all are done).
+    let (specifications, (waccs, peer_set)) = rayon::join(specifications, || {
+        rayon::join(
+            || -> Result<Vec<f64>> {
+                let mut rng = Rng::seeded(u.seed);
+                let mut drawn = named.clone();
+                let mut z = vec![0.0; named.len()];
+                let mut buffers = chain::Buffers::default();
+                let mut waccs = Vec::with_capacity(u.draws as usize);
+                let mut progress =
+                    crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
+                for _ in 0..u.draws {
+                    progress.step()?;
+                    draw_betas(&mut rng, &factor, &named, &mut z, &mut drawn);
+                    let mut spec = base;
+                    if let Some(range) = u.equity_risk_premium {
+                        spec.equity_risk_premium = uniform(&mut rng, range);
+                    }
+                    if let Some(range) = u.risk_free_rate {
+                        spec.risk_free_rate = uniform(&mut rng, range);
+                    }
+                    waccs.push(wacc_of(&spec, &drawn, &mut buffers)?);
                 }
-                if let Some(range) = u.risk_free_rate {
-                    spec.risk_free_rate = uniform(&mut rng, range);
-                }
-                waccs.push(wacc_of(&spec, &drawn, &mut buffers)?);
-            }
-            Ok(waccs)
-        },
-        || peer_set_interval(case, &base, &factor, (&named, &order)),
-    );
+                Ok(waccs)
+            },
+            || peer_set_interval(case, &base, &factor, (&named, &order)),
+        )
+    });
     let mut waccs = waccs?;
     let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
 
@@ -108,7 +111,7 @@ pub fn simulate(
         leave_one_out: leave_one_out(case, &base, &peers, point)?,
         beta_error_correlation: correlation,
         influence_threshold: u.influence_threshold,
-        specifications,
+        specifications: specifications?,
         histogram: super::histogram::histogram(&waccs),
     })
 }
