@@ -15,7 +15,6 @@ pub mod receipt;
 pub mod specification;
 pub mod uncertainty;
 pub mod verify;
-pub mod verify_universe;
 pub mod waterfall;
 
 use crate::error::{Error, Result};

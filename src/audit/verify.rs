@@ -10,6 +10,7 @@
 
 mod compare;
 mod files;
+mod universe;
 
 use std::path::{Path, PathBuf};
 
@@ -389,7 +390,7 @@ pub fn verify(
     let recorded = parse_receipt(receipt).map_err(fail)?;
     let receipt_sha256 = crate::io::series::sha256_hex(receipt.as_bytes());
     if recorded["kind"] == "universe" {
-        return super::verify_universe::verify_universe(
+        return universe::verify_universe(
             (receipt_path, receipt_sha256),
             &recorded,
             case_path,

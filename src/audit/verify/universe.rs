@@ -1,7 +1,7 @@
 //! Verification of a universe receipt: the `result.json` of `hurdle universe` names its universe
 //! file, the overrides and every input's SHA-256; the run is repeated and every leaf of the
 //! recorded JSON (settings, window, counts, notes, the whole industry table) is compared with the
-//! rerun's, numbers within the tolerance, as [`super::verify`] does for a case.
+//! rerun's, numbers within the tolerance, as [`super::verify`] (the parent module) does for a case.
 //!
 //! The per-security rows are in `securities.csv`, not in the receipt; they enter the comparison
 //! through the industry table's counts and statistics, which any change to a security's beta,
@@ -11,7 +11,7 @@ use std::path::Path;
 
 use serde_json::Value;
 
-use super::verify::{compare, rerun_source, FileCheck, Verification};
+use super::{compare, rerun_source, FileCheck, Verification};
 use crate::error::{Error, Result};
 use crate::universe::settings::read_universe;
 use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
