@@ -5,8 +5,40 @@
 
 use std::path::Path;
 
-use super::series::{Series, ValueKind};
 use crate::error::{compact as show, Error, Result};
+
+/// What the numbers in a file are, which decides the range they must lie in.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ValueKind {
+    /// An adjusted (total-return) closing price: finite and positive.
+    Price,
+    /// An annualised yield in decimals: finite and above −100%.
+    Yield,
+}
+
+impl ValueKind {
+    /// The rule `value` breaks, in words, or `None` when it lies in the kind's range: one rule
+    /// for price and yield files, wide tables and panels.
+    pub fn broken_rule(self, value: f64) -> Option<&'static str> {
+        match self {
+            _ if !value.is_finite() => Some(match self {
+                ValueKind::Price => "a price must be a finite number",
+                ValueKind::Yield => "a yield must be a finite number",
+            }),
+            ValueKind::Price if value <= 0.0 => Some("a price must be positive"),
+            ValueKind::Yield if value <= -1.0 => Some("a yield must be above -1 (−100%)"),
+            _ => None,
+        }
+    }
+
+    /// The kind's noun: "price" or "yield".
+    pub fn noun(self) -> &'static str {
+        match self {
+            ValueKind::Price => "price",
+            ValueKind::Yield => "yield",
+        }
+    }
+}
 
 /// The position of the one column of `header` named `name` (`None` when none is), or, when the
 /// header gives that name to several columns, the message saying so: which of them would be
@@ -327,21 +359,21 @@ pub fn other_separator(header: &str) -> Option<&'static str> {
 pub fn check_series_values(
     file: &Path,
     value_column: &str,
-    series: &Series,
+    (dates, values): (&[chrono::NaiveDate], &[f64]),
     kind: ValueKind,
 ) -> Result<()> {
     if kind != ValueKind::Yield {
         return Ok(());
     }
-    match series.values.iter().position(|&y| y >= 1.0) {
+    match values.iter().position(|&y| y >= 1.0) {
         Some(i) => Err(Error::DataRow {
             file: file.to_path_buf(),
             line: i + 2,
             message: format!(
                 "`{value_column}` = {} on {} {}",
-                show(series.values[i]),
-                series.dates[i],
-                percent_yield(series.values[i]).unwrap_or_default()
+                show(values[i]),
+                dates[i],
+                percent_yield(values[i]).unwrap_or_default()
             ),
         }),
         None => Ok(()),

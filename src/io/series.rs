@@ -18,38 +18,7 @@ use sha2::{Digest, Sha256};
 
 use crate::error::{Error, Result};
 
-/// What the numbers in a file are, which decides the range they must lie in.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum ValueKind {
-    /// An adjusted (total-return) closing price: finite and positive.
-    Price,
-    /// An annualised yield in decimals: finite and above −100%.
-    Yield,
-}
-
-impl ValueKind {
-    /// The rule `value` breaks, in words, or `None` when it lies in the kind's range: one rule
-    /// for price and yield files, wide tables and panels.
-    pub fn broken_rule(self, value: f64) -> Option<&'static str> {
-        match self {
-            _ if !value.is_finite() => Some(match self {
-                ValueKind::Price => "a price must be a finite number",
-                ValueKind::Yield => "a yield must be a finite number",
-            }),
-            ValueKind::Price if value <= 0.0 => Some("a price must be positive"),
-            ValueKind::Yield if value <= -1.0 => Some("a yield must be above -1 (−100%)"),
-            _ => None,
-        }
-    }
-
-    /// The kind's noun: "price" or "yield".
-    pub fn noun(self) -> &'static str {
-        match self {
-            ValueKind::Price => "price",
-            ValueKind::Yield => "yield",
-        }
-    }
-}
+pub use super::sanity::ValueKind;
 
 /// A date-ordered series of one security's prices or one rate's yields.
 #[derive(Debug, Clone, PartialEq)]
@@ -283,7 +252,7 @@ pub fn parse_series(
         return Err(file_error("has a header but no data rows".into()));
     }
     let series = Series { dates, values };
-    super::sanity::check_series_values(file, value_column, &series, kind)?;
+    super::sanity::check_series_values(file, value_column, (&series.dates, &series.values), kind)?;
     Ok(series)
 }
 
