@@ -84,23 +84,22 @@ pub fn cost_of_debt(
     table: Option<&SpreadTable>,
     risk_free: f64,
 ) -> std::result::Result<CostOfDebtRecord, String> {
-    let given = CostOfDebtRecord {
-        source: debt.source,
-        interest_coverage: None,
-        table: None,
-        row: None,
-        risk_free_rate: None,
-        pre_tax: pre_tax_given(debt),
-    };
     Ok(match spread_row(debt, table)? {
-        None => given,
+        None => CostOfDebtRecord {
+            source: debt.source,
+            interest_coverage: None,
+            table: None,
+            row: None,
+            risk_free_rate: None,
+            pre_tax: pre_tax_given(debt)?,
+        },
         Some((row, coverage)) => CostOfDebtRecord {
             interest_coverage: coverage,
             table: table.cloned(),
             row: Some(row.clone()),
             risk_free_rate: Some(risk_free),
             pre_tax: risk_free + row.spread,
-            ..given
+            source: debt.source,
         },
     })
 }
@@ -113,14 +112,16 @@ pub fn pre_tax_cost_of_debt(
     risk_free: f64,
 ) -> std::result::Result<f64, String> {
     Ok(match spread_row(debt, table)? {
-        None => pre_tax_given(debt),
+        None => pre_tax_given(debt)?,
         Some((row, _)) => risk_free + row.spread,
     })
 }
 
-/// The given yield (source `given`; validated to be there).
-fn pre_tax_given(debt: &DebtSettings) -> f64 {
-    debt.cost_pre_tax.unwrap_or(f64::NAN)
+/// The given yield (source `given`; a case validates it to be there, so the error speaks to
+/// another caller of the layer).
+fn pre_tax_given(debt: &DebtSettings) -> std::result::Result<f64, String> {
+    debt.cost_pre_tax
+        .ok_or_else(|| "debt.source = \"given\" needs debt.cost_pre_tax".to_string())
 }
 
 /// The table row the source reads, with the interest coverage it was found by; `None` for a
