@@ -390,7 +390,7 @@ fn lock_folder(dir: &Path) -> Result<Option<fs::File>> {
         Err(fs::TryLockError::WouldBlock) => Err(refusal(
             dir,
             "is being written by another hurdle run right now; wait for it to finish, or give \
-             another folder (--out)"
+             another output folder"
                 .into(),
         )),
         Err(fs::TryLockError::Error(_)) => Ok(None),

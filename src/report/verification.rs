@@ -62,7 +62,7 @@ pub fn markdown(r: &Verification) -> String {
         let list: Vec<String> = r.overrides.iter().map(|o| format!("`{o}`")).collect();
         let _ = writeln!(
             w,
-            "The receipt's run applied these `--set` overrides, reapplied to the rerun (the {} \
+            "The receipt's run applied these overrides, reapplied to the rerun (the {} \
              file alone gives other figures): {}.\n",
             r.kind,
             list.join(", ")

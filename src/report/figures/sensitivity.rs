@@ -217,7 +217,7 @@ fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {
     };
     format!(
         "{metric} when {} (rows) and {} (columns) take the values shown, everything else as in \
-         the case; each cell is a full rerun, as hurdle run --set would compute it. Darker \
+         the case; each cell is a full rerun, as a run of the case with those two values would compute it. Darker \
          cells are higher. {own}{refused}Figures: result.json sensitivity (rows, columns, \
          cells, base_cell{}).",
         grid.rows.key,

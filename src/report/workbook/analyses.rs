@@ -301,7 +301,7 @@ fn leave_one_out(
         r,
         "Specification range",
         "the case rerun at other return frequencies and windows (result.json lists each \
-         row's --set values).",
+         row's override values).",
     )?;
     headers(book, sheet, r + 1, &["Frequency", "Window", "WACC", ""])?;
     let mut r = r + 2;

@@ -81,7 +81,7 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
         ("Run at (UTC)", v.generated_at.clone()),
         ("Case file", v.case.file.clone()),
         ("Case file SHA-256", v.case.sha256.clone()),
-        ("Overrides (--set)", v.case.overrides.join("; ")),
+        ("Overrides", v.case.overrides.join("; ")),
         ("Beta method", v.estimator.method_description.clone()),
         (
             "Standard errors",
