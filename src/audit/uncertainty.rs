@@ -106,6 +106,7 @@ pub fn simulate(
         p50,
         p75,
         p95,
+        point_outside_interval: point < p05 || point > p95,
         beta_errors: u.beta_errors,
         peer_set: peer_set?,
         leave_one_out: leave_one_out(case, &base, &peers, point)?,

@@ -106,6 +106,9 @@ pub struct Uncertainty {
     pub p50: f64,
     pub p75: f64,
     pub p95: f64,
+    /// Whether the point estimate lies outside the 5th to 95th percentile of the draws (stated
+    /// rate ranges can move the interval away from the case's own rates).
+    pub point_outside_interval: bool,
     /// `"correlated"` or `"independent"` (`uncertainty.beta_errors`).
     pub beta_errors: crate::case::BetaErrors,
     /// Correlation of the peers' beta errors, peer order (the identity when drawn independently).

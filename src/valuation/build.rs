@@ -27,6 +27,7 @@ pub fn value_with(
     notes.extend(target_note(settings, &chain));
     let peers = peer_results(settings, inputs, estimates, &unlevered(&chain), exclusions);
     let cost = cost_record(settings, &chain, &peers);
+    let cautions = super::notes::cautions(&peers, &cost);
     notes.extend(plausibility_notes(&cost));
     notes.extend(peers.iter().filter_map(net_cash_note));
     let mut files = vec![inputs.index.clone()];
@@ -58,6 +59,7 @@ pub fn value_with(
         uncertainty: None,
         reconciliation: None,
         notes,
+        cautions,
         returns: estimates.peers.iter().map(|p| p.returns.clone()).collect(),
         rolling: estimates.peers.iter().map(|p| p.rolling.clone()).collect(),
     })

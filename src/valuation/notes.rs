@@ -6,7 +6,7 @@ use crate::capital::chain::Chain;
 use crate::capital::leverage::Formula;
 use crate::case::{CaseFile, DebtBetaSource, DebtSource, TargetSource};
 
-use super::records::{CostOfCapital, PeerResult};
+use super::records::{Cautions, CostOfCapital, PeerResult};
 
 /// Notes on the capital side: excluded peers and keys the case gives but does not use.
 pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<String> {
@@ -259,4 +259,34 @@ pub(super) fn net_cash_note(peer: &PeerResult) -> Option<String> {
             crate::error::rounded(levered, 3)
         )
     })
+}
+
+/// The facts behind the memo's conditional cautions (see [`Cautions`]), over the peers that
+/// enter the aggregate.
+pub(super) fn cautions(peers: &[PeerResult], cost: &CostOfCapital) -> Cautions {
+    let aggregated: Vec<&PeerResult> = peers
+        .iter()
+        .filter(|p| p.excluded_reason.is_none())
+        .collect();
+    let names = |pick: &dyn Fn(&PeerResult) -> bool| -> Vec<String> {
+        (aggregated.iter())
+            .filter(|p| pick(p))
+            .map(|p| p.name.clone())
+            .collect()
+    };
+    let ratios = aggregated.iter().map(|p| p.debt_to_equity);
+    let (low, high) = ratios.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), r| {
+        (lo.min(r), hi.max(r))
+    });
+    let flagged = names(&|p| !p.flags.is_empty());
+    Cautions {
+        leverage_beyond_peers: (!aggregated.is_empty() && cost.target.debt_to_equity > high)
+            .then_some([low, high]),
+        betas_near_zero: names(&|p| p.estimate.beta_ci_low <= 0.0),
+        turned_positive_by_adjustment: names(&|p| p.estimate.beta < 0.0 && p.beta_used > 0.0),
+        every_peer_flagged: match !flagged.is_empty() && flagged.len() == aggregated.len() {
+            true => flagged,
+            false => Vec::new(),
+        },
+    }
 }

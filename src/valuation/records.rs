@@ -197,12 +197,28 @@ pub struct Valuation {
     pub reconciliation: Option<Bridge>,
     /// Plain-language remarks about the data that a reviewer should see.
     pub notes: Vec<String>,
+    /// What the memo's conditional cautions rest on, computed here so a template only reads.
+    pub cautions: Cautions,
     /// Each peer's aligned returns, in peer order (written to `returns.csv`, not to JSON).
     #[serde(skip)]
     pub returns: Vec<AlignedReturns>,
     /// Each peer's rolling betas, in peer order (written to `rolling.csv`, not to JSON).
     #[serde(skip)]
     pub rolling: Vec<Vec<rolling::RollingPoint>>,
+}
+
+/// The facts behind the memo's conditional cautions, over the aggregated peers.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Cautions {
+    /// The aggregated peers' lowest and highest D/E, when the target D/E is above every one of
+    /// them (the relevered beta extrapolates the formula); `null` otherwise.
+    pub leverage_beyond_peers: Option<[f64; 2]>,
+    /// Aggregated peers whose raw beta's 95% interval reaches zero or lies below it.
+    pub betas_near_zero: Vec<String>,
+    /// Aggregated peers whose negative raw beta the adjustment turns positive.
+    pub turned_positive_by_adjustment: Vec<String>,
+    /// Every aggregated peer, when each raises a diagnostic flag; empty otherwise.
+    pub every_peer_flagged: Vec<String>,
 }
 
 /// Everything after the peer regressions: aggregation, relevering, CAPM, cost of debt, WACC.

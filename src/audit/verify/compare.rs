@@ -51,6 +51,8 @@ const ADDED_IN: [(&str, &[&str]); 2] = [
             "counts.flagged_total",
             "counts.not_estimated_total",
             "reconciliation.waterfall[].change",
+            "cautions",
+            "uncertainty.point_outside_interval",
             "securities",
         ],
     ),
