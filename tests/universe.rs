@@ -410,7 +410,29 @@ fn a_universe_run_into_a_case_folder_takes_the_case_outputs_away() {
         String::from_utf8_lossy(&ran.stderr)
     );
     fs::write(out.join("my-notes.md"), "the user's own").unwrap();
-    setup.succeeds("out", &[]);
+    // verify --out's status of that receipt goes with it (found by review: a stale REPRODUCED
+    // stayed beside the new receipt).
+    let receipt = out.join("result.json");
+    let verified = common::hurdle(&[
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(verified.status.code(), Some(0));
+    assert!(out.join("verification.md").is_file());
+    let ran = setup.universe("out", &[]);
+    assert!(
+        ran.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ran.stderr)
+    );
+    let stdout = String::from_utf8_lossy(&ran.stdout);
+    assert!(
+        stdout.contains("replaced the receipt of a case's run"),
+        "{stdout}"
+    );
+    assert!(!out.join("verification.md").exists() && !out.join("verification.json").exists());
     for name in [
         "memo.md",
         "peers.csv",
@@ -1511,11 +1533,28 @@ fn a_universe_receipt_of_0_3_0_verifies_without_the_counts_added_since() {
         report.contains("written by hurdle 0.3.0, does not have"),
         "{report}"
     );
+    // Each added key once, however many industry rows hold it, and the missing per-security
+    // figures said plainly (found by review: a list cut after eight entries hid `securities`,
+    // while a note claimed the securities' figures were compared).
+    assert!(report.contains("industries[].flagged ("), "{report}");
+    assert!(
+        report.contains("no security's beta was verified"),
+        "{report}"
+    );
+    assert!(!report.contains(" more"), "{report}");
     receipt["tool"]["version"] = serde_json::json!(current);
     let verified = verify(&receipt);
     let report = String::from_utf8_lossy(&verified.stdout);
     assert_eq!(verified.status.code(), Some(1), "{report}");
     assert!(report.contains("MISMATCH counts.flagged_total"), "{report}");
+    // A receipt of a version newer than this verifier is named as such.
+    receipt["tool"]["version"] = serde_json::json!("99.0.0");
+    let verified = verify(&receipt);
+    let report = String::from_utf8_lossy(&verified.stdout);
+    assert!(
+        report.contains("written by hurdle 99.0.0, newer than this hurdle"),
+        "{report}"
+    );
 }
 
 // `universe.rolling = true`: each security's rolling betas are those `hurdle rolling` writes for a

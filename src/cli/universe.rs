@@ -69,16 +69,25 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     );
     let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
     estimating.bar.finish_and_clear();
+    let earlier = hurdle::report::staging::earlier_receipt(&out);
     let (written, stale) = write_outputs(&out, &result, &reads)?;
     print!("{}", summary(&result));
     for path in written {
         println!("  wrote {}", path.display());
     }
-    for name in &stale {
+    if let Some(e) = earlier.filter(|e| !e.universe) {
         println!(
-            "  removed {} (an earlier run's; this run does not write it)",
-            out.join(name).display()
+            "  replaced the receipt of a case's run ({}, valuation date {}); its outputs are \
+             taken away",
+            e.case_file, e.valuation_date
         );
+    }
+    for name in &stale {
+        let why = match hurdle::report::VERIFICATION.contains(&name.as_str()) {
+            true => "the status of the receipt this run replaces",
+            false => "an earlier run's; this run does not write it",
+        };
+        println!("  removed {} ({why})", out.join(name).display());
     }
     Ok(())
 }

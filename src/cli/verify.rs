@@ -88,11 +88,9 @@ fn render(r: &Verification) -> String {
     for f in &r.files {
         out.push_str(&format!("  {} {}: {}\n", f.role, f.path, f.describe()));
     }
-    if r.recorded_tool_version != r.current_tool_version {
-        out.push_str(&format!(
-            "  note: written by hurdle {}, verified with {}\n",
-            r.recorded_tool_version, r.current_tool_version
-        ));
+    let versions = r.versions_note();
+    if !versions.is_empty() {
+        out.push_str(&format!("  note: {versions}\n"));
     }
     // The chart figures (fitted lines' points, histogram bins, waterfall bars) are counted,
     // not listed: they follow the estimates above them; --out lists each.

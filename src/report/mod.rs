@@ -153,7 +153,7 @@ pub const VERIFICATION: [&str; 2] = ["verification.json", "verification.md"];
 /// from): the run replaces that receipt, so the status (which may say REPRODUCED) no longer
 /// describes the `result.json` beside it. A status of another receipt, or one without the
 /// hash, is the user's and stays.
-fn verifies_the_receipt_in(dir: &Path) -> bool {
+pub(crate) fn verifies_the_receipt_in(dir: &Path) -> bool {
     let Ok(text) = std::fs::read_to_string(dir.join(VERIFICATION[0])) else {
         return false;
     };

@@ -50,6 +50,13 @@ pub fn write_outputs(
     if super::staging::earlier_receipt(dir).is_some_and(|e| !e.universe) {
         optional.extend(super::case_run_outputs_in(dir));
     }
+    // `hurdle verify --out`'s status of the receipt this run replaces, which would otherwise
+    // say REPRODUCED beside a receipt it never saw (found by review).
+    if super::verifies_the_receipt_in(dir) {
+        optional.extend(super::VERIFICATION.iter().map(|n| n.to_string()));
+    }
+    optional.sort();
+    optional.dedup();
     let optional: Vec<&str> = optional.iter().map(String::as_str).collect();
     super::staging::write_outputs_replacing(dir, &render(result)?, reads, &optional)
 }

@@ -49,14 +49,16 @@ pub fn markdown(r: &Verification) -> String {
     }
     let _ = writeln!(
         w,
-        "The {} file `{}`: {}. Receipt (SHA-256 `{}`) written by hurdle {}, verified with \
-         hurdle {}.\n",
+        "The {} file `{}`: {}. Receipt (SHA-256 `{}`) {}.\n",
         r.kind,
         r.case_file,
         r.case_state(),
         r.receipt_sha256,
-        r.recorded_tool_version,
-        r.current_tool_version
+        match r.versions_note() {
+            note if note.is_empty() =>
+                format!("written and verified by hurdle {}", r.current_tool_version),
+            note => note,
+        }
     );
     if !r.overrides.is_empty() {
         let list: Vec<String> = r.overrides.iter().map(|o| format!("`{o}`")).collect();

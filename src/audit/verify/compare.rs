@@ -59,12 +59,12 @@ const ADDED_IN: [(&str, &[&str]); 2] = [
 ];
 
 /// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.
-fn version(text: &str) -> Option<Vec<u64>> {
+pub(super) fn version(text: &str) -> Option<Vec<u64>> {
     text.split('.').map(|part| part.parse().ok()).collect()
 }
 
 /// A path with its list positions left out: `peers[3].beta` → `peers[].beta`.
-fn without_positions(path: &str) -> String {
+pub(super) fn without_positions(path: &str) -> String {
     let mut out = String::with_capacity(path.len());
     let mut inside = false;
     for c in path.chars() {
