@@ -1677,7 +1677,7 @@ fn exclusion_counts_follow_the_listed_flags() {
     // flagged securities.
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
     assert!(
-        summary.contains("estimated and aggregated carry a flag (low_r_squared "),
+        summary.contains("estimated and not excluded carry a flag (low_r_squared "),
         "{summary}"
     );
     assert!(

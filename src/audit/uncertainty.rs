@@ -85,6 +85,9 @@ pub fn simulate(
             || peer_set_interval(case, &base, &factor, (&named, &order)),
         )
     });
+    // Errors in the order the run reports its analyses: the specification range, then the
+    // draws.
+    let specifications = specifications?;
     let mut waccs = waccs?;
     let (mean, [p05, p25, p50, p75, p95]) = percentiles(&mut waccs);
 
@@ -112,7 +115,7 @@ pub fn simulate(
         leave_one_out: leave_one_out(case, &base, &peers, point)?,
         beta_error_correlation: correlation,
         influence_threshold: u.influence_threshold,
-        specifications: specifications?,
+        specifications,
         histogram: super::histogram::histogram(&waccs),
     })
 }

@@ -560,11 +560,11 @@ fn summary(r: &UniverseResult) -> String {
     };
     let _ = writeln!(
         out,
-        "{} securities with prices; {}, {} excluded by \
+        "{} with prices; {}, {} excluded by \
          beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta. \"Estimated\" \
          counts the securities that enter an industry's figures; \"Flagged\" those of them that \
          carry a flag (securities.csv names each).\n",
-        c.securities,
+        crate::universe::securities_count(c.securities),
         estimated_count(c.estimated, c.estimated_without_industry),
         c.excluded,
         c.not_estimated_total,

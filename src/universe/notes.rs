@@ -155,13 +155,21 @@ fn flagged_notes(
         .map(|(flag, n)| format!("{flag} {n}"))
         .collect();
     let (carry, enter, them) = match total {
-        1 => ("carries", "it enters its industry's", "it"),
-        _ => ("carry", "they enter their industries'", "them"),
+        1 => (
+            "carries",
+            "it enters its industry's figures, if it has one,",
+            "it",
+        ),
+        _ => (
+            "carry",
+            "each enters its industry's figures, if it has one,",
+            "them",
+        ),
     };
     let mut notes = vec![format!(
-        "{} estimated and aggregated {carry} a flag ({}): {enter} figures as estimated; the \
-         flags column of securities.csv names {them}, and a flag listed in beta.exclude_flags \
-         leaves its securities out.",
+        "{} estimated and not excluded {carry} a flag ({}): {enter} as estimated; the flags \
+         column of securities.csv names {them}, and a flag listed in beta.exclude_flags leaves \
+         its securities out.",
         securities_count(total),
         by_flag.join(", "),
     )];
@@ -180,7 +188,8 @@ fn flagged_notes(
             _ => "",
         };
         notes.push(format!(
-            "{} aggregated {} thinly (zero_returns or stale_prices): {}{remedy}.",
+            "{} estimated and not excluded {} thinly (zero_returns or stale_prices): \
+             {}{remedy}.",
             securities_count(thin.len()),
             if thin.len() == 1 { "trades" } else { "trade" },
             first_ids(&thin)

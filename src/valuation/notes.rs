@@ -268,11 +268,14 @@ pub(super) fn cautions(peers: &[PeerResult], cost: &CostOfCapital) -> Cautions {
         .iter()
         .filter(|p| p.excluded_reason.is_none())
         .collect();
+    // In name order, so a case listing its peers in another order records the same lists.
     let names = |pick: &dyn Fn(&PeerResult) -> bool| -> Vec<String> {
-        (aggregated.iter())
+        let mut names: Vec<String> = (aggregated.iter())
             .filter(|p| pick(p))
             .map(|p| p.name.clone())
-            .collect()
+            .collect();
+        names.sort();
+        names
     };
     let ratios = aggregated.iter().map(|p| p.debt_to_equity);
     let (low, high) = ratios.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), r| {
