@@ -49,39 +49,11 @@ pub fn simulate(
         BetaErrors::Independent => identity(peers.len()),
     };
     let (order, named, factor) = in_name_order(settings, &peers, &correlation);
-    let wacc_of =
-        |spec: &chain::CapitalSpec<'_>, drawn: &[PeerCapital], buffers: &mut chain::Buffers| {
-            (chain::wacc_with(spec, drawn, buffers))
-                .map_err(|e| chain_error(case, in_case_order(e, &order)))
-        };
-    let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
-
     // The two intervals draw from generators of their own, so they run side by side, and
     // beside the specification range's reruns (the record is built once all are done).
     let (specifications, (waccs, peer_set)) = rayon::join(specifications, || {
         rayon::join(
-            || -> Result<Vec<f64>> {
-                let mut rng = Rng::seeded(u.seed);
-                let mut drawn = named.clone();
-                let mut z = vec![0.0; named.len()];
-                let mut buffers = chain::Buffers::default();
-                let mut waccs = Vec::with_capacity(u.draws as usize);
-                let mut progress =
-                    crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
-                for _ in 0..u.draws {
-                    progress.step()?;
-                    draw_betas(&mut rng, &factor, &named, &mut z, &mut drawn);
-                    let mut spec = base;
-                    if let Some(range) = u.equity_risk_premium {
-                        spec.equity_risk_premium = uniform(&mut rng, range);
-                    }
-                    if let Some(range) = u.risk_free_rate {
-                        spec.risk_free_rate = uniform(&mut rng, range);
-                    }
-                    waccs.push(wacc_of(&spec, &drawn, &mut buffers)?);
-                }
-                Ok(waccs)
-            },
+            || estimation_error_draws(case, &base, &factor, (&named, &order)),
             || peer_set_interval(case, &base, &factor, (&named, &order)),
         )
     });
@@ -278,6 +250,40 @@ fn draw_betas(
         let shock: f64 = row.iter().zip(z.iter()).map(|(l, z)| l * z).sum();
         target.raw_beta = peer.raw_beta + shock;
     }
+}
+
+/// The first interval's WACCs: each draw the peers' betas by `factor` around their estimates
+/// (`peers` in name order, `order` their places in the case) and, when ranges are given, the
+/// ERP and the risk-free rate uniformly within them.
+fn estimation_error_draws(
+    case: &Case,
+    base: &chain::CapitalSpec<'_>,
+    factor: &Factor,
+    (peers, order): (&[PeerCapital], &[usize]),
+) -> Result<Vec<f64>> {
+    let u = &case.settings.uncertainty;
+    let uniform = |rng: &mut Rng, [low, high]: [f64; 2]| low + (high - low) * rng.uniform();
+    let mut rng = Rng::seeded(u.seed);
+    let mut drawn = peers.to_vec();
+    let mut z = vec![0.0; peers.len()];
+    let mut buffers = chain::Buffers::default();
+    let mut waccs = Vec::with_capacity(u.draws as usize);
+    let mut progress = crate::progress::Progress::new("Monte Carlo draws", u64::from(u.draws));
+    for _ in 0..u.draws {
+        progress.step()?;
+        draw_betas(&mut rng, factor, peers, &mut z, &mut drawn);
+        let mut spec = *base;
+        if let Some(range) = u.equity_risk_premium {
+            spec.equity_risk_premium = uniform(&mut rng, range);
+        }
+        if let Some(range) = u.risk_free_rate {
+            spec.risk_free_rate = uniform(&mut rng, range);
+        }
+        let wacc = chain::wacc_with(&spec, &drawn, &mut buffers)
+            .map_err(|e| chain_error(case, in_case_order(e, order)))?;
+        waccs.push(wacc);
+    }
+    Ok(waccs)
 }
 
 /// Each draw resamples the aggregated peers with replacement (Efron 1979, "Bootstrap methods:
