@@ -833,19 +833,7 @@ fn a_betas_part_of_peers_left_out_draws_no_aggregate_line() {
     }
     std::fs::write(&case, toml).unwrap();
     let out = root.path().join("out");
-    let output = hurdle(&[
-        "run",
-        case.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
-    assert!(
-        output.status.success(),
-        "{}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    let result: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let result = common::run_case_with(&case, &out, &[]);
     let peers = result["peers"].as_array().unwrap();
     let included = peers
         .iter()

@@ -531,20 +531,10 @@ fn a_security_whose_price_never_moves_is_not_estimated() {
 #[test]
 fn a_security_that_copies_the_index_is_not_estimated() {
     let setup = Setup::new();
-    let index = fs::read_to_string(setup.dir().join("index.csv")).unwrap();
-    let long = setup.dir().join("prices-long.csv");
-    let text = fs::read_to_string(&long).unwrap();
-    let mut copied: String = text
-        .lines()
-        .filter(|line| !line.contains(",S03,"))
-        .map(|line| format!("{line}\n"))
-        .collect();
-    for line in index.lines().skip(1) {
-        let (date, level) = line.split_once(',').unwrap();
+    s03_from_index(&setup.dir(), |_, date, level| {
         let half = level.parse::<f64>().unwrap() / 2.0;
-        copied.push_str(&format!("{date},S03,{half}\n"));
-    }
-    fs::write(&long, copied).unwrap();
+        Some(format!("{date},S03,{half}"))
+    });
     let out = setup.succeeds("out", &[]);
     assert_s03_left_out(
         &out,
@@ -562,24 +552,12 @@ fn a_security_that_copies_the_index_is_not_estimated() {
 #[test]
 fn a_security_with_the_index_prices_on_every_date_it_has_is_not_estimated() {
     let setup = Setup::new();
-    let index = fs::read_to_string(setup.dir().join("index.csv")).unwrap();
-    let long = setup.dir().join("prices-long.csv");
-    let text = fs::read_to_string(&long).unwrap();
-    let mut copied: String = text
-        .lines()
-        .filter(|line| !line.contains(",S03,"))
-        .map(|line| format!("{line}\n"))
-        .collect();
-    for (k, line) in index.lines().skip(1).enumerate() {
+    s03_from_index(&setup.dir(), |k, date, level| {
         // Two of every three Fridays missing.
-        let (date, level) = line.split_once(',').unwrap();
         let day = chrono::NaiveDate::parse_from_str(date, "%Y-%m-%d").unwrap();
         let friday = chrono::Datelike::weekday(&day) == chrono::Weekday::Fri;
-        if !(friday && k % 3 != 0) {
-            copied.push_str(&format!("{date},S03,{level}\n"));
-        }
-    }
-    fs::write(&long, copied).unwrap();
+        (!(friday && k % 3 != 0)).then(|| format!("{date},S03,{level}"))
+    });
     let sets = ["beta.frequency=weekly", "beta.weekday=friday"];
     let out = setup.succeeds("out", &sets);
     let securities = read_table(&out.join("securities.csv"));
@@ -612,6 +590,26 @@ fn a_security_with_an_implausible_price_move_is_not_estimated() {
         "by a factor of 10",
         "and so no estimate (price_jump): S03",
     );
+}
+
+/// Replaces S03's rows of the long panel by rows made from the index's: `row(k, date, level)`
+/// for the index's k-th row gives S03's line for that date, or `None` for no row.
+fn s03_from_index(dir: &Path, mut row: impl FnMut(usize, &str, &str) -> Option<String>) {
+    let index = fs::read_to_string(dir.join("index.csv")).unwrap();
+    let long = dir.join("prices-long.csv");
+    let text = fs::read_to_string(&long).unwrap();
+    let mut copied: String = text
+        .lines()
+        .filter(|line| !line.contains(",S03,"))
+        .map(|line| format!("{line}\n"))
+        .collect();
+    for (k, line) in index.lines().skip(1).enumerate() {
+        let (date, level) = line.split_once(',').unwrap();
+        if let Some(new) = row(k, date, level) {
+            copied.push_str(&format!("{new}\n"));
+        }
+    }
+    fs::write(&long, copied).unwrap();
 }
 
 /// Rewrites S03's rows of the long panel: `row(date, price)` gives a row's new line, or `None`
