@@ -199,7 +199,11 @@ fn verify_names_the_receipts_overrides_and_the_headline_gap() {
     // The specification range's note quotes WACCs, which moved with the rate: its wording
     // differs because the inputs did, which the note says (found by review: it was called an
     // edit).
-    assert!(report.contains("worded differently notes"), "{report}");
+    // Each note is compared as a sentence: the old one only in the receipt, the new one only
+    // in the rerun (found by review: two lists were shown whole, or paired by position).
+    let spec_range = |side: &str| format!("notes: only in the {side}: \"Specification range: ");
+    assert!(report.contains(&spec_range("receipt")), "{report}");
+    assert!(report.contains(&spec_range("rerun")), "{report}");
     assert!(report.contains("because the inputs changed"), "{report}");
     assert!(!report.contains("edited by hand"), "{report}");
 }
@@ -232,19 +236,28 @@ fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_change
     result["sampling"]["sampling_rule"] = "monthly, as worded before".into();
     let receipt = out.join("reworded.json");
     let status_dir = dir.path().join("status");
-    // Written by this very version, a sentence that reads otherwise was most likely edited:
-    // still not a figure, but the note says so (found by review: it blamed another version).
+    // Written by this very version from the same inputs, a sentence that reads otherwise was
+    // edited: a mismatch, and the note says why (found by reviews: it blamed another version,
+    // and then a receipt whose cautions were deleted by hand reproduced).
     std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let (output, report) = verify_into(&receipt, &status_dir);
-    assert_eq!(output.status.code(), Some(0), "{report}");
+    assert_eq!(output.status.code(), Some(1), "{report}");
     assert!(report.contains("they were edited by hand"), "{report}");
+    assert!(
+        report.contains("MISMATCH estimator.method_description: recorded \"ordinary least"),
+        "{report}"
+    );
+    assert!(
+        report.contains(" 2 mismatched (relative tolerance 1e-12)\n"),
+        "{report}"
+    );
     // Written by an earlier version, it is that version's wording.
     result["tool"]["version"] = "0.0.1".into();
     std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let (output, report) = verify_into(&receipt, &status_dir);
     assert_eq!(output.status.code(), Some(0), "{report}");
     assert!(
-        report.contains("the version that wrote the receipt worded it otherwise"),
+        report.contains("the version that wrote the receipt words some sentences otherwise"),
         "{report}"
     );
     assert!(
@@ -770,7 +783,10 @@ fn a_receipt_of_an_earlier_version_verifies_without_the_figures_added_since() {
     let verified = hurdle(&["verify", older.to_str().unwrap()]);
     let report = text(&verified);
     assert_eq!(verified.status.code(), Some(1), "{report}");
-    assert!(report.contains("MISMATCH wacc: recorded null"), "{report}");
+    assert!(
+        report.contains("MISMATCH wacc: absent from the receipt; recomputed 0.07"),
+        "{report}"
+    );
 }
 
 // A price file extended past the valuation date (a case rolled forward in place) is one
@@ -829,11 +845,14 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
         .lines()
         .filter(|l| l.contains("MISMATCH peers["))
         .collect();
-    assert_eq!(
-        peer_lines,
-        [
-            r#"  MISMATCH peers[7] ("Ivelbrook Instruments"): recorded "only in the receipt" recomputed null"#
-        ]
+    // The peer's entry is shown by its size, not as its JSON (found by review: a section
+    // printed as one line of thousands of characters).
+    assert_eq!(peer_lines.len(), 1, "{report}");
+    assert!(
+        peer_lines[0].starts_with(
+            r#"  MISMATCH peers[7] ("Ivelbrook Instruments"): recorded a section of "#
+        ) && peer_lines[0].ends_with(" figures; not written by the rerun"),
+        "{report}"
     );
     assert!(
         report.contains("MISMATCH beta.peers_included: recorded 8 recomputed 7"),
@@ -872,7 +891,7 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
     let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));
     assert!(
         report
-            .contains("peer:Added Copy data/peers/fenhallow_copy.csv: NEW since the receipt (now "),
+            .contains("peer:Added Copy data/peers/fenhallow_copy.csv: NOT IN THE RECEIPT (a file the case reads since, or an entry removed from the receipt; now "),
         "{report}"
     );
     assert!(
@@ -919,7 +938,8 @@ fn a_receipt_of_another_version_reproduces_and_names_it() {
     let report = text(&verify);
     assert_eq!(verify.status.code(), Some(0), "{report}");
     assert!(report.contains("written by hurdle 0.0.1"), "{report}");
-    assert!(report.contains("worded differently notes"), "{report}");
+    assert!(report.contains("notes: only in the rerun: "), "{report}");
+    assert!(report.contains("; 1 note on one side only"), "{report}");
 }
 
 // verify checks the hash of every file the receipt records: the spread table the cost of debt
@@ -2239,5 +2259,93 @@ fn implied_reads_the_claimed_wacc_from_a_claim_file() {
     assert!(
         by_case.contains("WACC 7.378% as hurdle computes the case"),
         "{by_case}"
+    );
+}
+
+// Found by review of an auditor's use: a receipt that lacks a hash blamed the input file, a
+// key changed to the other kind was refused for its schema version, and an output folder that
+// cannot take the status printed the verdict above its error. Each is now said for what it is.
+#[test]
+fn verify_says_what_a_receipt_lacks_and_checks_its_output_folder_first() {
+    let (dir, case_dir) = demo_copy();
+    let out = dir.path().join("out");
+    let recorded = run_case(&case_dir.join("case.toml"), &out, &["--no-figures"]);
+    let receipt = out.join("edited.json");
+    let verify_edited = |edit: &dyn Fn(&mut serde_json::Value)| {
+        let mut edited = recorded.clone();
+        edit(&mut edited);
+        std::fs::write(&receipt, serde_json::to_string(&edited).unwrap()).unwrap();
+        let output = hurdle(&["verify", receipt.to_str().unwrap()]);
+        (output.status.code(), text(&output))
+    };
+    let (code, report) = verify_edited(&|r| {
+        r["case"].as_object_mut().unwrap().remove("sha256");
+        r["files"][2].as_object_mut().unwrap().remove("sha256");
+    });
+    assert_eq!(code, Some(1), "{report}");
+    assert!(
+        report.contains(
+            "case file: NOT HASHED in the receipt (it records no SHA-256 for the case file"
+        ),
+        "{report}"
+    );
+    assert!(
+        report.contains("data/peers/brenvale.csv: NOT HASHED in the receipt"),
+        "{report}"
+    );
+    // A recorded figure so small that the difference's share overflows is given without it
+    // (README: no non-finite number in an output).
+    let (code, report) = verify_edited(&|r| r["peers"][0]["beta"] = serde_json::json!(5e-324));
+    assert_eq!(code, Some(1), "{report}");
+    assert!(
+        report.contains(r#"MISMATCH peers[0].beta ("Brenvale Fluid Systems"): recorded 5e-324"#)
+    );
+    assert!(!report.contains("inf"), "{report}");
+    let (code, report) = verify_edited(&|r| r["kind"] = "universe".into());
+    assert_eq!(code, Some(2), "{report}");
+    assert!(
+        report.contains(r#"says kind = "universe" but records the file it reruns under `case`"#),
+        "{report}"
+    );
+    // A file where the status folder should be: the error alone, no verdict above it.
+    let blocker = dir.path().join("blocker");
+    std::fs::write(&blocker, "a file, not a folder").unwrap();
+    let (output, report) = verify_into(&out.join("result.json"), &blocker);
+    assert_eq!(output.status.code(), Some(2), "{report}");
+    assert!(!report.contains("REPRODUCED"), "{report}");
+}
+
+// One edited cell of a wide table changes one file, which every series read from it shares:
+// reported once with its roles, and counted once (found by review: ten changed files).
+#[test]
+fn a_wide_table_read_for_several_series_is_one_changed_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("wide");
+    common::copy_case("quillmarsh-wide", &case_dir);
+    let out = dir.path().join("out");
+    run_case(&case_dir.join("case.toml"), &out, &["--no-figures"]);
+    let prices = case_dir.join("data/prices.csv");
+    let table = std::fs::read_to_string(&prices).unwrap();
+    let edited = table.replacen(
+        "2020-01-03,1018.00,0.02880,43.2418",
+        "2020-01-03,1018.00,0.02880,43.2419",
+        1,
+    );
+    assert_ne!(edited, table);
+    std::fs::write(&prices, edited).unwrap();
+    let output = hurdle(&["verify", out.join("result.json").to_str().unwrap()]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(1), "{report}");
+    let lines: Vec<&str> = (report.lines())
+        .filter(|l| l.contains(" data/prices.csv: "))
+        .collect();
+    assert_eq!(lines.len(), 1, "{report}");
+    assert!(
+        lines[0].starts_with("  index, risk_free and 8 peers data/prices.csv: CHANGED"),
+        "{report}"
+    );
+    assert!(
+        report.contains("NOT REPRODUCED: 1 input file changed;"),
+        "{report}"
     );
 }

@@ -10,6 +10,7 @@
 
 mod compare;
 mod files;
+mod mismatch;
 mod notes;
 mod universe;
 
@@ -24,7 +25,8 @@ use crate::valuation::{load_inputs, SCHEMA_VERSION};
 pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
 use files::file_checks;
-pub use files::FileCheck;
+pub use files::{by_file, FileCheck, FileGroup};
+pub use mismatch::{shown, Absent, Mismatch};
 
 /// Relative tolerance for numbers. Reruns on one build are bit-identical; 1e-12 leaves room for
 /// another platform's `powf` and `ln` (used in the risk-free conversion), which may differ in
@@ -37,38 +39,6 @@ pub const NOT_COMPARED: &str = "memo.md, figures/*.svg, report.html, peers.csv, 
 and returns.csv are not compared: they are drawn from the figures of result.json, which are \
 (the returns from the price files, whose hashes are); a rerun with hurdle run writes them anew \
 for a comparison by eye";
-
-/// Paths of figures drawn only for the charts (each fitted line's points, the histogram's
-/// bins, the waterfall's bars, the rows the residual chart marks): they move with the
-/// estimates and are listed after every other figure, and a terminal may count them.
-const CHART_FIGURES: [&str; 4] = [
-    ".fitted_line.",
-    "uncertainty.histogram.",
-    "reconciliation.waterfall[",
-    ".large_studentised_residual_rows",
-];
-
-impl Mismatch {
-    /// Where the mismatch is listed: the case's settings first (the inputs that changed), then
-    /// the headline figures, then the others in the receipt's order, then the chart figures.
-    pub fn rank(&self) -> u8 {
-        const HEADLINE: [&str; 3] = ["wacc", "cost_of_equity", "cost_of_debt_after_tax"];
-        if self.path.starts_with("settings.") || self.path.starts_with("case.overrides") {
-            0
-        } else if HEADLINE.contains(&self.path.as_str()) {
-            1
-        } else if self.is_chart_figure() {
-            3
-        } else {
-            2
-        }
-    }
-
-    /// Whether the figure is drawn only for a chart ([`CHART_FIGURES`]).
-    pub fn is_chart_figure(&self) -> bool {
-        CHART_FIGURES.iter().any(|part| self.path.contains(part))
-    }
-}
 
 /// Keys whose text only puts into words a setting that the receipt also records as a value of
 /// its own (the method, the standard errors, the frequency, the risk-free convention, the
@@ -91,13 +61,14 @@ pub const WORDING_KEYS: &[&str] = &[
     "label",
 ];
 
-/// What a wording difference most likely means when the receipt was written by this very
-/// version, which words every sentence as its rerun does (a build of the same version number
-/// from other sources aside).
+/// What sentences that differ mean when this very version wrote the receipt from the same
+/// inputs: it words every sentence as its rerun does (a build of the same version number from
+/// other sources aside), so they were edited, and they count as mismatches (found by review: a
+/// receipt whose cautions were deleted by hand reproduced).
 pub const SAME_VERSION_WORDING_NOTE: &str = "the receipt was written by this same version of \
-hurdle, which words these sentences as its rerun does: unless it was built from other sources \
-under the same version number, they were edited by hand; they are not figures, and every \
-figure is compared";
+hurdle from the same inputs, which words these sentences as its rerun does: unless it was built \
+from other sources under the same version number, they were edited by hand (a note deleted, \
+added or reworded), so they count as mismatches";
 
 /// What a wording difference means when this version wrote the receipt and inputs changed: a
 /// note quotes figures (a WACC, a count), which moved with the inputs.
@@ -106,48 +77,10 @@ changed and it quotes figures that moved with them; it is not a figure itself, a
 figure is compared";
 
 /// What a listed wording difference means, for the reader of a verification.
-pub const WORDING_NOTE: &str = "a sentence that describes a setting reads differently (the \
-version that wrote the receipt worded it otherwise); it is not a figure, and the setting it \
-describes is compared as a value of its own";
-
-/// One figure that differs.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Mismatch {
-    /// JSON path, e.g. `peers[2].beta`.
-    pub path: String,
-    /// The name of the list entry the figure belongs to, as the receipt records it (a peer's
-    /// `name`, a leave-one-out row's `peer`), so a reader need not count positions.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub item: Option<String>,
-    pub recorded: Value,
-    pub recomputed: Value,
-}
-
-impl Mismatch {
-    /// The path with the entry's name after it: `peers[0].beta ("Brenvale Fluid Systems")`.
-    pub fn place(&self) -> String {
-        match &self.item {
-            Some(item) => format!("{} (\"{item}\")", self.path),
-            None => self.path.clone(),
-        }
-    }
-
-    /// For two numbers, their difference (recomputed − recorded) and its size relative to the
-    /// recorded figure: `; difference 1.2e-3 (+0.11% of the recorded figure)`. Empty otherwise.
-    pub fn difference(&self) -> String {
-        match (self.recorded.as_f64(), self.recomputed.as_f64()) {
-            (Some(a), Some(b)) if a != 0.0 => {
-                format!(
-                    "; difference {:.4e} ({:+.4}% of the recorded figure)",
-                    b - a,
-                    (b - a) / a.abs() * 100.0
-                )
-            }
-            (Some(a), Some(b)) => format!("; difference {:.4e}", b - a),
-            _ => String::new(),
-        }
-    }
-}
+pub const WORDING_NOTE: &str = "the version that wrote the receipt words some sentences \
+otherwise or writes other notes: a description of a setting, whose value is compared as a \
+figure of its own, or a note for the reader, whose counts are compared where the receipt keeps \
+them; neither is a figure";
 
 /// The verdict on a receipt.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -161,6 +94,9 @@ pub struct Verification {
     /// The file it reruns (the case or the universe file; the field keeps its first name).
     pub case_file: String,
     pub case_unchanged: bool,
+    /// Whether the receipt records the case (or universe) file's SHA-256 at all: without it
+    /// the file cannot be checked, which is said instead of blaming the file.
+    pub case_hash_recorded: bool,
     /// The `--set` overrides the receipt records, reapplied to the rerun: the case file alone
     /// gives other figures when there are any.
     pub overrides: Vec<String>,
@@ -176,6 +112,10 @@ pub struct Verification {
     /// path: not compared, and they do not make `reproduced` false.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub added_by_this_version: Vec<String>,
+    /// Changes of figures that a version later than the receipt's made on purpose under its
+    /// settings (README, Changelog), in words, when a difference lies where they move figures.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub known_changes: Vec<String>,
     pub recorded_tool_version: String,
     pub current_tool_version: String,
     /// True only when every file is unchanged and every figure matches.
@@ -193,7 +133,8 @@ pub struct Verification {
 impl Verification {
     /// The input files (the case or universe file among them) whose SHA-256 differs.
     pub fn changed_inputs(&self) -> usize {
-        usize::from(!self.case_unchanged) + self.files.iter().filter(|f| !f.unchanged).count()
+        let files = files::by_file(&self.files);
+        usize::from(!self.case_unchanged) + files.iter().filter(|g| !g.check.unchanged).count()
     }
 
     /// The case's settings that differ from the receipt's (paths below `settings.`), which
@@ -208,6 +149,13 @@ impl Verification {
     pub fn case_state(&self) -> String {
         if self.case_unchanged {
             return "unchanged".into();
+        }
+        if !self.case_hash_recorded {
+            return format!(
+                "NOT HASHED in the receipt (it records no SHA-256 for the {} file, so the file \
+                 cannot be checked)",
+                self.kind
+            );
         }
         match self.changed_settings().as_slice() {
             [] => "CHANGED since the receipt (no setting differs: a comment, spacing, or a \
@@ -273,28 +221,41 @@ impl Verification {
             .join("; ")
     }
 
-    /// What the wording differences mean: another version's words; with changed inputs, the
-    /// figures the notes quote, which moved with them; or, when this very version wrote the
-    /// receipt from the same inputs, most likely an edit ([`SAME_VERSION_WORDING_NOTE`]).
+    /// What the wording differences mean: another version's words, or, with changed inputs,
+    /// the figures the notes quote, which moved with them. (From this very version and the
+    /// same inputs they are mismatches: [`Verification::edited_sentences`].)
     pub fn wording_note(&self) -> &'static str {
-        match (
-            self.recorded_tool_version == self.current_tool_version,
-            self.changed_inputs() == 0,
-        ) {
-            (false, _) => WORDING_NOTE,
-            (true, false) => MOVED_WITH_INPUTS_NOTE,
-            (true, true) => SAME_VERSION_WORDING_NOTE,
+        match self.recorded_tool_version == self.current_tool_version {
+            false => WORDING_NOTE,
+            true => MOVED_WITH_INPUTS_NOTE,
         }
+    }
+
+    /// The mismatches that are sentences ([`WORDING_KEYS`]), which only a receipt of this very
+    /// version from the same inputs counts as mismatches: edited by hand.
+    pub fn edited_sentences(&self) -> usize {
+        self.mismatches.iter().filter(|m| m.is_sentence()).count()
     }
 
     /// The wording differences for a verdict's line: empty without any, else how many
     /// descriptions read differently (the verdict does not count them).
     pub fn wording_summary(&self) -> String {
-        match self.wording_differences.len() {
-            0 => String::new(),
-            1 => "; 1 description worded differently".into(),
-            n => format!("; {n} descriptions worded differently"),
+        let notes = (self.wording_differences.iter())
+            .filter(|m| m.absent_from.is_some())
+            .count();
+        let reworded = self.wording_differences.len() - notes;
+        let mut out = String::new();
+        match reworded {
+            0 => {}
+            1 => out.push_str("; 1 description worded differently"),
+            n => out.push_str(&format!("; {n} descriptions worded differently")),
         }
+        match notes {
+            0 => {}
+            1 => out.push_str("; 1 note on one side only"),
+            n => out.push_str(&format!("; {n} notes on one side only")),
+        }
+        out
     }
 }
 
@@ -367,6 +328,22 @@ pub fn verify(
     };
     let recorded = parse_receipt(receipt).map_err(fail)?;
     let receipt_sha256 = crate::io::series::sha256_hex(receipt.as_bytes());
+    // A receipt whose kind disagrees with the section naming the file it reruns was edited:
+    // named as such, not read as the other kind (found by review: a case receipt marked as a
+    // universe's was refused for its schema version).
+    let sections = (
+        recorded["case"].is_object(),
+        recorded["universe"].is_object(),
+    );
+    let kind = recorded["kind"].as_str().unwrap_or("case");
+    if let ("universe", (true, false)) | ("case", (false, true)) = (kind, sections) {
+        return Err(fail(format!(
+            "says kind = \"{kind}\" but records the file it reruns under `{}`: a receipt of \
+             the other kind whose kind was edited; restore its kind or verify the receipt the \
+             run wrote",
+            if sections.0 { "case" } else { "universe" }
+        )));
+    }
     if recorded["kind"] == "universe" {
         return universe::verify_universe(
             (receipt_path, receipt_sha256),
@@ -411,9 +388,12 @@ pub fn verify(
     let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
     // A changed or moved data file is reported once, by its file check.
     (found.mismatches).retain(|m| !files::reported_with_its_file(&m.path, &recorded, &files));
+    let inputs_unchanged = case_unchanged && files.iter().all(|f| f.unchanged);
+    found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
     found.mismatches.sort_by_key(|m| m.rank());
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
+    let known_changes = found.known_changes("case", &recorded_version, (&recorded, &recomputed));
     let headline = headline(&found);
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
@@ -421,6 +401,7 @@ pub fn verify(
         kind: "case",
         case_file: case_file.display().to_string(),
         case_unchanged,
+        case_hash_recorded: text("/case/sha256").is_some(),
         overrides,
         files,
         tolerance,
@@ -428,6 +409,7 @@ pub fn verify(
         mismatches: found.mismatches,
         wording_differences: found.wording,
         added_by_this_version: added,
+        known_changes,
         recorded_tool_version: recorded_version,
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,

@@ -8,7 +8,9 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use hurdle::audit::verify::{verify, Verification, DEFAULT_TOLERANCE};
+use hurdle::audit::verify::{
+    by_file, verify, Verification, DEFAULT_TOLERANCE, SAME_VERSION_WORDING_NOTE,
+};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -44,7 +46,9 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     }
     let text = String::from_utf8(bytes).map_err(|_| not_a_receipt("not UTF-8 text"))?;
     let report = verify(&args.receipt, &text, args.case.as_deref(), args.tolerance)?;
-    print!("{}", render(&report));
+    // The status files are written before the verdict is printed: an output folder that
+    // cannot take them stops the command with its error alone (found by review: the verdict
+    // came first, so a log showed REPRODUCED above the error).
     if let Some(dir) = &args.out {
         let mut bytes = serde_json::to_vec_pretty(&report).expect("a report always serialises");
         bytes.push(b'\n');
@@ -57,6 +61,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         reads.push((args.receipt.clone(), "the receipt".into()));
         hurdle::report::staging::write_outputs(dir, &files, &reads)?;
     }
+    print!("{}", render(&report));
     Ok(if report.reproduced {
         ExitCode::SUCCESS
     } else {
@@ -85,8 +90,9 @@ fn render(r: &Verification) -> String {
             r.kind
         ));
     }
-    for f in &r.files {
-        out.push_str(&format!("  {} {}: {}\n", f.role, f.path, f.describe()));
+    for group in by_file(&r.files) {
+        let f = group.check;
+        out.push_str(&format!("  {} {}: {}\n", group.roles, f.path, f.describe()));
     }
     let versions = r.versions_note();
     if !versions.is_empty() {
@@ -97,13 +103,7 @@ fn render(r: &Verification) -> String {
     let (charts, figures): (Vec<_>, Vec<_>) =
         r.mismatches.iter().partition(|m| m.is_chart_figure());
     for m in figures {
-        out.push_str(&format!(
-            "  MISMATCH {}: recorded {} recomputed {}{}\n",
-            m.place(),
-            m.recorded,
-            m.recomputed,
-            m.difference()
-        ));
+        out.push_str(&format!("  MISMATCH {}\n", m.describe()));
     }
     if !charts.is_empty() {
         out.push_str(&format!(
@@ -113,13 +113,16 @@ fn render(r: &Verification) -> String {
         ));
     }
     for m in &r.wording_differences {
-        out.push_str(&format!(
-            "  worded differently {}: recorded {} now {}\n",
-            m.path, m.recorded, m.recomputed
-        ));
+        out.push_str(&format!("  {}\n", m.wording()));
     }
     if !r.wording_differences.is_empty() {
         out.push_str(&format!("  note: {}\n", r.wording_note()));
+    }
+    if r.edited_sentences() > 0 {
+        out.push_str(&format!("  note: {SAME_VERSION_WORDING_NOTE}\n"));
+    }
+    for change in &r.known_changes {
+        out.push_str(&format!("  known change: {change}\n"));
     }
     if !r.added_by_this_version.is_empty() {
         out.push_str(&format!("  note: {}\n", r.added_note()));

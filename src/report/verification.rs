@@ -6,32 +6,47 @@
 
 use std::fmt::Write as _;
 
-use crate::audit::verify::{Mismatch, Verification};
+use crate::audit::verify::{
+    by_file, shown, Absent, Mismatch, Verification, SAME_VERSION_WORDING_NOTE,
+};
 
-/// A recorded or recomputed value as a Markdown table cell: its JSON text, with `|` escaped so
-/// that a text holding one keeps the table's columns.
-fn cell(value: &serde_json::Value) -> String {
-    value.to_string().replace('|', "\\|")
+/// A recorded or recomputed value as a Markdown table cell: as the terminal shows it (a long
+/// section by its size), with `|` escaped so that a text holding one keeps the table's
+/// columns; a side that lacks the figure says so.
+fn cell(value: &serde_json::Value, absent: bool) -> String {
+    match absent {
+        true => "*absent*".to_string(),
+        false => shown(value).replace('|', "\\|"),
+    }
 }
 
-/// A table of `list` under `header` (three columns), nothing when the list is empty.
-fn differences(w: &mut String, header: &str, list: &[Mismatch]) {
+/// A table of `list` under `header`: the figure, both sides and, for figures, their
+/// difference; nothing when the list is empty.
+fn differences(w: &mut String, header: &[&str], list: &[Mismatch]) {
     if list.is_empty() {
         return;
     }
-    let _ = writeln!(w, "\n| {header} |\n|---|---|---|---|");
+    let rule = vec!["---"; header.len()].join("|");
+    let _ = writeln!(w, "\n| {} |\n|{rule}|", header.join(" | "));
     for m in list {
-        let _ = writeln!(
-            w,
-            "| `{}`{} | {} | {} | {} |",
-            m.path,
-            m.item
-                .as_ref()
-                .map_or_else(String::new, |i| format!(" ({})", i.replace('|', "\\|"))),
-            cell(&m.recorded),
-            cell(&m.recomputed),
-            m.difference().trim_start_matches("; difference ")
-        );
+        let mut cells = vec![
+            format!(
+                "`{}`{}",
+                m.path,
+                (m.item.as_ref())
+                    .map_or_else(String::new, |i| format!(" ({})", i.replace('|', "\\|")))
+            ),
+            cell(&m.recorded, m.absent_from == Some(Absent::Receipt)),
+            cell(&m.recomputed, m.absent_from == Some(Absent::Rerun)),
+        ];
+        if header.len() == 4 {
+            cells.push(
+                m.difference()
+                    .trim_start_matches("; difference ")
+                    .to_string(),
+            );
+        }
+        let _ = writeln!(w, "| {} |", cells.join(" | "));
     }
 }
 
@@ -75,12 +90,14 @@ pub fn markdown(r: &Verification) -> String {
         "| Role | File | Status | Recorded SHA-256 | Current SHA-256 |"
     );
     let _ = writeln!(w, "|---|---|---|---|---|");
-    for f in &r.files {
+    for group in by_file(&r.files) {
+        let f = group.check;
         let status = match f.status {
             "unchanged" => "unchanged".to_string(),
             "changed" => "**changed**".to_string(),
             "dropped" => "**no longer read**".to_string(),
-            _ => "**new since the receipt**".to_string(),
+            "unrecorded" => "**no hash in the receipt**".to_string(),
+            _ => "**not in the receipt**".to_string(),
         };
         let status = match &f.current_path {
             Some(now) => format!("{status}; read now from `{now}`"),
@@ -90,7 +107,7 @@ pub fn markdown(r: &Verification) -> String {
         let _ = writeln!(
             w,
             "| {} | `{}` | {status} | {} | {} |",
-            f.role,
+            group.roles,
             f.path,
             hash(&f.recorded_sha256),
             hash(&f.current_sha256)
@@ -98,12 +115,22 @@ pub fn markdown(r: &Verification) -> String {
     }
     differences(
         w,
-        "Figure | Recorded | Recomputed | Difference",
+        &["Figure", "Recorded", "Recomputed", "Difference"],
         &r.mismatches,
     );
-    differences(w, "Description | Recorded | Now | ", &r.wording_differences);
+    differences(
+        w,
+        &["Description", "Recorded", "Now"],
+        &r.wording_differences,
+    );
     if !r.wording_differences.is_empty() {
         let _ = writeln!(w, "\nWorded differently: {}.", r.wording_note());
+    }
+    if r.edited_sentences() > 0 {
+        let _ = writeln!(w, "\nSentences that differ: {SAME_VERSION_WORDING_NOTE}.");
+    }
+    for change in &r.known_changes {
+        let _ = writeln!(w, "\nKnown change: {change}.");
     }
     if !r.added_by_this_version.is_empty() {
         let _ = writeln!(w, "\nAdded since the receipt: {}.", r.added_note());

@@ -11,7 +11,7 @@
 
 pub mod estimate;
 pub mod industries;
-mod notes;
+pub(crate) mod notes;
 pub mod securities;
 pub mod settings;
 

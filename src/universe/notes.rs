@@ -360,7 +360,7 @@ fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bo
 }
 
 /// The first ten ids of a note's list, then "…" if there are more.
-fn first_ids(ids: &[&str]) -> String {
+pub(crate) fn first_ids(ids: &[&str]) -> String {
     let more = if ids.len() > 10 { ", …" } else { "" };
     format!("{}{more}", ids[..ids.len().min(10)].join(", "))
 }

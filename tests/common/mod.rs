@@ -100,6 +100,15 @@ pub fn copy_demo_case(to: &Path) {
     copy_tree(Path::new(DEMO_DIR), to, true);
 }
 
+/// Copies the case folder `cases/<name>` into `to`, without any previous run's `output/`.
+#[allow(dead_code)]
+pub fn copy_case(name: &str, to: &Path) {
+    let cases = Path::new(DEMO_DIR)
+        .parent()
+        .expect("cases/ holds the demo case");
+    copy_tree(&cases.join(name), to, true);
+}
+
 fn copy_tree(from: &Path, to: &Path, top: bool) {
     fs::create_dir_all(to).unwrap();
     for entry in fs::read_dir(from).unwrap() {

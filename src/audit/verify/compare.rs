@@ -4,7 +4,7 @@
 
 use serde_json::Value;
 
-use super::{Mismatch, WORDING_KEYS};
+use super::{Absent, Mismatch, WORDING_KEYS};
 
 /// Numbers agree when |a − b| ≤ tolerance·max(|a|, |b|) (or both are zero).
 pub fn numbers_agree(a: f64, b: f64, tolerance: f64) -> bool {
@@ -108,8 +108,32 @@ impl Comparison {
     }
 }
 
+impl Comparison {
+    /// The changes of figures a later version made on purpose that may explain the
+    /// differences found ([`super::notes::known_changes`]).
+    pub fn known_changes(
+        &self,
+        kind: &str,
+        recorded_version: &str,
+        (receipt, rerun): (&Value, &Value),
+    ) -> Vec<String> {
+        let differences: Vec<&Mismatch> = self.mismatches.iter().chain(&self.wording).collect();
+        let versions = (recorded_version, env!("CARGO_PKG_VERSION"));
+        super::notes::known_changes(kind, versions, &differences, (receipt, rerun))
+    }
+
+    /// The wording differences of a receipt this very version wrote from the same inputs
+    /// (`same_source`) are edits, moved among the mismatches; otherwise they stay apart.
+    pub fn settle_wording(&mut self, same_source: bool) {
+        if same_source {
+            self.mismatches.append(&mut self.wording);
+        }
+    }
+}
+
 /// Compares every leaf of `recorded` with `recomputed`: numbers within `tolerance`
-/// ([`numbers_agree`]), everything else exactly, a key on one side only as against `null`.
+/// ([`numbers_agree`]), everything else exactly, a key on one side only as absent from the
+/// other ([`Absent`]), the run's notes as sets of sentences.
 pub(crate) fn compare(recorded: &Value, recomputed: &Value, tolerance: f64) -> Comparison {
     let mut found = Comparison::default();
     let at = Place {
@@ -178,12 +202,18 @@ fn compare_at(
                 item: item.clone(),
             };
             for (key, value) in a {
-                let next = b.get(key).unwrap_or(&Value::Null);
-                compare_at(value, next, place(key), tolerance, found);
+                match b.get(key) {
+                    Some(next) => compare_at(value, next, place(key), tolerance, found),
+                    None => only_in_receipt(value, place(key), found),
+                }
             }
             for key in b.keys().filter(|k| !a.contains_key(*k)) {
                 only_in_rerun(&b[key], place(key), tolerance, found);
             }
+            return;
+        }
+        (Value::Array(a), Value::Array(b)) if key == "notes" && all_text(a) && all_text(b) => {
+            compare_notes(a, b, &path, found);
             return;
         }
         (Value::Array(a), Value::Array(b)) if named_differently(a, b) => {
@@ -215,9 +245,71 @@ fn compare_at(
             item,
             recorded: recorded.clone(),
             recomputed: recomputed.clone(),
+            absent_from: None,
         };
         found.record(difference, key);
     }
+}
+
+/// Whether every entry of a list is a text.
+fn all_text(list: &[Value]) -> bool {
+    list.iter().all(Value::is_string)
+}
+
+/// The run's notes as a set of sentences: each recorded note the rerun does not write, and
+/// each note the rerun writes that the receipt does not have, is one wording difference on its
+/// side (found by review: two lists of one length were paired by position, an unrelated new
+/// note shown as the rewording of an old one, and lists of two lengths shown whole).
+fn compare_notes(recorded: &[Value], rerun: &[Value], path: &str, found: &mut Comparison) {
+    let mut unmatched: Vec<&Value> = rerun.iter().collect();
+    let mut dropped = Vec::new();
+    for note in recorded {
+        match unmatched.iter().position(|n| *n == note) {
+            Some(i) => {
+                unmatched.remove(i);
+            }
+            None => dropped.push(note),
+        }
+    }
+    found.compared += recorded.len() + unmatched.len();
+    let one_side = |value: &Value, absent_from| Mismatch {
+        path: path.to_string(),
+        item: None,
+        recorded: if absent_from == Absent::Rerun {
+            value.clone()
+        } else {
+            Value::Null
+        },
+        recomputed: if absent_from == Absent::Receipt {
+            value.clone()
+        } else {
+            Value::Null
+        },
+        absent_from: Some(absent_from),
+    };
+    let differences = (dropped.into_iter().map(|n| one_side(n, Absent::Rerun)))
+        .chain(unmatched.into_iter().map(|n| one_side(n, Absent::Receipt)));
+    found.wording.extend(differences);
+}
+
+/// A key only the receipt has: compared as a leaf against nothing, unless it is `null` (a
+/// figure the rerun leaves out when it has none), a place or a hash.
+fn only_in_receipt(value: &Value, at: Place<'_>, found: &mut Comparison) {
+    if PLACES.contains(&at.path.as_str()) || at.key == "sha256" {
+        return;
+    }
+    found.compared += 1;
+    if value.is_null() {
+        return;
+    }
+    let difference = Mismatch {
+        path: at.path,
+        item: at.item,
+        recorded: value.clone(),
+        recomputed: Value::Null,
+        absent_from: Some(Absent::Rerun),
+    };
+    found.record(difference, at.key);
 }
 
 /// A key only the rerun writes: held apart as possibly added by a later version
@@ -234,6 +326,7 @@ fn only_in_rerun(value: &Value, at: Place<'_>, tolerance: f64, found: &mut Compa
         item: at.item,
         recorded: Value::Null,
         recomputed: value.clone(),
+        absent_from: Some(Absent::Receipt),
     });
 }
 
@@ -267,7 +360,6 @@ fn compare_by_name(
         .filter_map(|(j, y)| entry_name(y).map(|name| (name, j)))
         .collect();
     let mut matched = vec![false; b.len()];
-    let alone = |side: &str| Value::String(format!("only in the {side}"));
     // An input file on one side only is reported by the file checks ("no longer in the case"),
     // once, as every changed input is.
     let report_alone = path != "files";
@@ -288,8 +380,9 @@ fn compare_by_name(
                 found.mismatches.push(Mismatch {
                     path: at.path,
                     item: at.item,
-                    recorded: alone("receipt"),
+                    recorded: x.clone(),
                     recomputed: Value::Null,
+                    absent_from: Some(Absent::Rerun),
                 });
             }
             None => {}
@@ -302,7 +395,8 @@ fn compare_by_name(
             path: format!("{path}[{j}] (rerun)"),
             item: entry_name(y),
             recorded: Value::Null,
-            recomputed: alone("rerun"),
+            recomputed: y.clone(),
+            absent_from: Some(Absent::Receipt),
         });
     }
 }
@@ -370,6 +464,40 @@ mod tests {
         let (found, added) = settled("0.2.0", &receipt, &["/wacc", "/peers/0/beta"]);
         assert!(added.is_empty());
         assert_eq!(found.mismatches.len(), 2);
+    }
+
+    // Notes are sentences compared as a set: a note replaced in a list of the same length is
+    // one note on each side, not a pair of one rewording (found by review: an unrelated new
+    // note was shown as the rewording of an old one); a note moved in the list is no
+    // difference; an absent figure is marked absent, not shown as null.
+    #[test]
+    fn notes_are_compared_as_a_set_of_sentences_and_an_absent_figure_is_marked() {
+        let recorded = serde_json::json!({"notes": ["a", "b", "c"], "wacc": 0.07});
+        let rerun = serde_json::json!({"notes": ["c", "a", "d"]});
+        let found = compare(&recorded, &rerun, 0.0);
+        let sides: Vec<(Option<Absent>, String)> = (found.wording.iter())
+            .map(|m| (m.absent_from, m.describe()))
+            .collect();
+        assert_eq!(
+            sides,
+            [
+                (
+                    Some(Absent::Rerun),
+                    r#"notes: only in the receipt: "b""#.to_string()
+                ),
+                (
+                    Some(Absent::Receipt),
+                    r#"notes: only in the rerun: "d""#.to_string()
+                ),
+            ]
+        );
+        assert_eq!(found.mismatches.len(), 1);
+        assert_eq!(
+            found.mismatches[0].describe(),
+            "wacc: recorded 0.07; not written by the rerun"
+        );
+        // Three recorded notes, one only in the rerun, and the WACC.
+        assert_eq!(found.compared, 5);
     }
 
     #[test]

@@ -17,7 +17,9 @@ pub struct FileCheck {
     pub recorded_sha256: Option<String>,
     /// `null` for a file the case no longer reads.
     pub current_sha256: Option<String>,
-    /// `unchanged`, `changed`, `dropped` (no longer read) or `added` (new since the receipt).
+    /// `unchanged`, `changed`, `dropped` (no longer read), `added` (not in the receipt: new
+    /// since, or its entry removed from the receipt) or `unrecorded` (the receipt names the
+    /// file without its SHA-256).
     pub status: &'static str,
     pub unchanged: bool,
     /// For a changed data file, what else the receipt records of it that differs now (its
@@ -36,6 +38,7 @@ impl FileCheck {
         current: Option<(String, String)>,
     ) -> FileCheck {
         let status = match (&recorded, &current) {
+            (Some((_, was)), _) if was.is_empty() => "unrecorded",
             (Some((_, was)), Some((_, now))) if was == now => "unchanged",
             (Some(_), Some(_)) => "changed",
             (Some(_), None) => "dropped",
@@ -74,8 +77,14 @@ impl FileCheck {
                 "NO LONGER READ by the case (recorded {})",
                 short(&self.recorded_sha256)
             ),
+            "unrecorded" => format!(
+                "NOT HASHED in the receipt (it names the file without its SHA-256, so the \
+                 file cannot be checked; now {})",
+                short(&self.current_sha256)
+            ),
             _ => format!(
-                "NEW since the receipt (now {})",
+                "NOT IN THE RECEIPT (a file the case reads since, or an entry removed from \
+                 the receipt; now {})",
                 short(&self.current_sha256)
             ),
         };
@@ -87,6 +96,56 @@ impl FileCheck {
             Some(now) => format!("{state}; read now from {now}"),
             None => state,
         }
+    }
+}
+
+/// The checks of one file that several series are read from (a wide table holding the index,
+/// the risk-free series and the peers): the same path, state and hashes, reported once (found
+/// by review: one edited cell of a wide table was reported as ten changed files).
+pub struct FileGroup<'a> {
+    /// The roles, in words: `index, risk_free and 8 peers`.
+    pub roles: String,
+    pub check: &'a FileCheck,
+}
+
+/// The checks grouped by file: each file once, in the order of its first check.
+pub fn by_file(checks: &[FileCheck]) -> Vec<FileGroup<'_>> {
+    let same = |a: &FileCheck, b: &FileCheck| {
+        (a.path == b.path && a.current_path == b.current_path && a.status == b.status)
+            && (a.recorded_sha256 == b.recorded_sha256 && a.current_sha256 == b.current_sha256)
+            && a.changes == b.changes
+    };
+    let mut groups: Vec<(Vec<&str>, &FileCheck)> = Vec::new();
+    for check in checks {
+        match groups.iter_mut().find(|(_, first)| same(first, check)) {
+            Some((roles, _)) => roles.push(&check.role),
+            None => groups.push((vec![check.role.as_str()], check)),
+        }
+    }
+    (groups.into_iter())
+        .map(|(roles, check)| FileGroup {
+            roles: roles_in_words(&roles),
+            check,
+        })
+        .collect()
+}
+
+/// Roles in words: up to three by name, else the other roles by name and the peers counted.
+fn roles_in_words(roles: &[&str]) -> String {
+    if roles.len() <= 3 {
+        return roles.join(", ");
+    }
+    let (peers, others): (Vec<&str>, Vec<&str>) =
+        roles.iter().partition(|r| r.starts_with("peer:"));
+    let mut parts: Vec<String> = others.iter().map(|r| r.to_string()).collect();
+    match peers.len() {
+        0 => {}
+        1 => parts.push(peers[0].to_string()),
+        n => parts.push(format!("{n} peers")),
+    }
+    match parts.split_last() {
+        Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
+        _ => parts.join(""),
     }
 }
 
@@ -188,6 +247,7 @@ pub(super) fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation)
     };
     let mut checks: Vec<FileCheck> = (listed.iter())
         .map(|(role, f)| {
+            // A missing hash is kept empty: the check says the receipt has none.
             let sha256 = f["sha256"].as_str().unwrap_or("").to_string();
             let path = f["path"].as_str().or(f["source"].as_str()).unwrap_or("");
             let mut check =

@@ -2,7 +2,9 @@
 //! and which version wrote the receipt beside the one verifying it. Apart from `verify.rs`,
 //! which compares.
 
-use super::{compare, Verification};
+use serde_json::Value;
+
+use super::{compare, Mismatch, Verification};
 
 impl Verification {
     /// The figures this version adds, in words (empty when there are none): not in the
@@ -70,5 +72,144 @@ impl Verification {
             ),
             false => format!("written by hurdle {recorded}, verified with {current}"),
         }
+    }
+}
+
+/// A change of figures a version made on purpose (README, Changelog, under the entry
+/// named), which a receipt of an earlier version written under the settings it touches cannot
+/// reproduce: named beside the mismatches so that the reader finds why (found by review: a
+/// 0.3.0 universe under Harris–Pringle failed with nothing pointing to the change).
+struct KnownChange {
+    /// The version that made the change.
+    version: &'static str,
+    /// The receipt's `kind` (`case` or `universe`).
+    kind: &'static str,
+    /// Mismatches under these paths are the ones the change can explain.
+    paths: &'static [&'static str],
+    /// The change in words, when the receipt's settings are ones it touches (given the
+    /// receipt and the rerun, so that it can name what moved), else `None`.
+    explain: fn(&Value, &Value) -> Option<String>,
+}
+
+const KNOWN_CHANGES: [KnownChange; 2] = [
+    KnownChange {
+        version: "0.2.0",
+        kind: "case",
+        paths: &["cost_of_debt", "wacc", "settings.debt"],
+        explain: |receipt, _| {
+            (receipt["cost_of_debt"]["source"] == "coverage").then(|| {
+                "hurdle 0.2.0 gives an interest coverage equal to a coverage table's threshold \
+                 that threshold's row (its double lies an ulp below the threshold, and an \
+                 earlier version gave it the next worse rating and spread): a coverage on a \
+                 threshold moves the cost of debt and the WACC (README, Changelog, \"Reviews \
+                 of an auditor's, a reviewer's and a practitioner's use\")"
+                    .to_string()
+            })
+        },
+    },
+    KnownChange {
+        version: "0.4.0",
+        kind: "universe",
+        paths: &["counts", "industries", "notes", "securities"],
+        explain: |receipt, rerun| {
+            let leverage = &receipt["settings"]["leverage"];
+            let formula = match leverage["formula"].as_str() {
+                Some("harris-pringle") => "Harris–Pringle",
+                Some("conine") => "Conine",
+                _ => return None,
+            };
+            let applies = leverage["debt_beta_source"] == "none";
+            applies.then(|| {
+                let negative: Vec<&str> = (rerun["securities"].as_array().into_iter().flatten())
+                    .filter(|s| s["beta"].as_f64().is_some_and(|b| b < 0.0))
+                    .filter_map(|s| s["security"].as_str())
+                    .collect();
+                let which = match negative.len() {
+                    0 => String::new(),
+                    n => format!(
+                        "; here {n} securit{} a negative beta: {}",
+                        if n == 1 { "y has" } else { "ies have" },
+                        crate::universe::notes::first_ids(&negative)
+                    ),
+                };
+                format!(
+                    "hurdle 0.4.0 unlevers a negative equity beta under {formula} without a \
+                     given debt beta, as a case does, where an earlier version left such a \
+                     security out of its industry under a note that blamed a given debt beta: \
+                     its industry's counts and figures move (README, Changelog, \"Loose ends \
+                     of the reviews\"){which}"
+                )
+            })
+        },
+    },
+];
+
+/// The changes of figures ([`KNOWN_CHANGES`]) that a version later than the receipt's
+/// (`versions`: the receipt's, this one's), and no later than this one, made under the
+/// receipt's settings, in words; only when a difference lies where the change moves figures.
+pub(super) fn known_changes(
+    kind: &str,
+    (recorded, current): (&str, &str),
+    differences: &[&Mismatch],
+    (receipt, rerun): (&Value, &Value),
+) -> Vec<String> {
+    let (was, now) = (compare::version(recorded), compare::version(current));
+    (KNOWN_CHANGES.iter())
+        .filter(|change| change.kind == kind)
+        .filter(|change| {
+            let made = compare::version(change.version);
+            was.is_some() && was < made && made <= now
+        })
+        .filter(|change| {
+            (differences.iter()).any(|m| change.paths.iter().any(|p| m.path.starts_with(p)))
+        })
+        .filter_map(|change| (change.explain)(receipt, rerun))
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    fn mismatch(path: &str) -> Mismatch {
+        Mismatch {
+            path: path.into(),
+            item: None,
+            recorded: json!(1),
+            recomputed: json!(2),
+            absent_from: None,
+        }
+    }
+
+    // The change 0.4.0 made (README, Changelog, "Loose ends of the reviews") is named for a
+    // universe receipt of an earlier version under Harris–Pringle or Conine without a given
+    // debt beta whose industry figures differ, with the securities of negative beta; not for
+    // a receipt of 0.4.0, another formula, a given debt beta, or differences elsewhere.
+    #[test]
+    fn a_known_change_is_named_only_where_it_moves_figures() {
+        let receipt = |formula: &str, source: &str| json!({"settings": {"leverage": {"formula": formula, "debt_beta_source": source}}});
+        let rerun = json!({"securities": [
+            {"security": "X05", "beta": -0.2}, {"security": "X06", "beta": 0.4},
+            {"security": "X08", "beta": -0.01}, {"security": "X09", "beta": null},
+        ]});
+        let counts = mismatch("counts.unlevered");
+        let found = |versions, receipt: &Value, differences: &[&Mismatch]| {
+            known_changes("universe", versions, differences, (receipt, &rerun))
+        };
+        let hp = receipt("harris-pringle", "none");
+        let named = found(("0.3.0", "0.4.0"), &hp, &[&counts]);
+        assert_eq!(named.len(), 1);
+        assert!(named[0]
+            .starts_with("hurdle 0.4.0 unlevers a negative equity beta under Harris–Pringle"));
+        assert!(named[0].ends_with("here 2 securities have a negative beta: X05, X08"));
+        assert!(found(("0.4.0", "0.4.0"), &hp, &[&counts]).is_empty());
+        assert!(found(("0.3.0", "0.4.0"), &receipt("hamada", "none"), &[&counts]).is_empty());
+        assert!(found(("0.3.0", "0.4.0"), &receipt("conine", "given"), &[&counts]).is_empty());
+        assert!(found(("0.3.0", "0.4.0"), &hp, &[&mismatch("window.start")]).is_empty());
+        assert_eq!(
+            found(("0.3.0", "0.4.0"), &receipt("conine", "none"), &[&counts]).len(),
+            1
+        );
     }
 }

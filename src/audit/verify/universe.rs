@@ -54,7 +54,10 @@ pub fn verify_universe(
     let recorded_version = text("/tool/version").unwrap_or_default().to_string();
     let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
     (found.mismatches).retain(|m| !reported_with_its_file(&m.path, &files));
+    let inputs_unchanged = unchanged && files.iter().all(|f| f.unchanged);
+    found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
+    let known_changes = found.known_changes("universe", &recorded_version, (recorded, &recomputed));
     Ok(Verification {
         receipt: receipt_path.display().to_string(),
         receipt_sha256,
@@ -62,12 +65,14 @@ pub fn verify_universe(
         case_file: file.display().to_string(),
         overrides,
         case_unchanged: unchanged,
+        case_hash_recorded: text("/universe/sha256").is_some(),
         files,
         tolerance,
         compared: found.compared,
         mismatches: found.mismatches,
         wording_differences: found.wording,
         added_by_this_version: added,
+        known_changes,
         recorded_tool_version: recorded_version,
         current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
         reproduced,
