@@ -864,6 +864,63 @@ fn a_row_with_more_fields_than_the_header_is_named() {
     );
 }
 
+// Quotes as RFC 4180 §2 reads them (rules 5-7: a field is quoted when its first character is
+// a quote; a quote inside is doubled), which is how polars reads them too: a quote after a
+// space is text, so the comma in `, "Beta, Gamma"` splits the field; text after a closing
+// quote is no field at all; a row cut short is counted, not read as an empty price. Each is
+// named by its line (found by review: polars' own messages, with its Python options, or a
+// price reported missing for the wrong security).
+#[test]
+fn quotes_and_short_rows_are_named_by_their_line() {
+    let attributes_line = |dir: &Path, edit: &dyn Fn(&str) -> String| {
+        let path = dir.join("attributes.csv");
+        let third = fs::read_to_string(&path)
+            .unwrap()
+            .lines()
+            .nth(2)
+            .unwrap()
+            .to_string();
+        replace_line(&path, 3, &edit(&third));
+    };
+    let industry_swapped = |row: &str, industry: &str| {
+        let mut cells: Vec<String> = row.split(',').map(str::to_string).collect();
+        cells[1] = industry.to_string();
+        cells.join(",")
+    };
+    refused(
+        |dir| attributes_line(dir, &|row| industry_swapped(row, " \"Beta, Gamma & Co\"")),
+        &[],
+        &[
+            "attributes.csv, line 3:",
+            "has 8 fields but the header has 7",
+            "a space before the quote",
+        ],
+    );
+    refused(
+        |dir| attributes_line(dir, &|row| industry_swapped(row, "\"Beta, Gamma\" & Co")),
+        &[],
+        &[
+            "attributes.csv, line 3:",
+            "has text after a quoted field's closing quote",
+        ],
+    );
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 9);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                9,
+                &format!("{},{}", cells[0], cells[2]),
+            );
+        },
+        &[],
+        &[
+            "prices-long.csv, line 9:",
+            "has 2 fields but the header has 3",
+        ],
+    );
+}
+
 // A quoted cell may hold a line break (RFC 4180); the message quotes the cell, and stays on one
 // line with the break shown as `\n`.
 #[test]

@@ -115,39 +115,113 @@ pub fn column_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &st
     }
 }
 
+/// One record of a CSV file as RFC 4180 splits it: a quote opens a quoted field only as the
+/// field's first character (as polars reads it: `a, "b, c"` is three fields, the quote after
+/// the space being text), inside one `""` is a quote, and the field ends at its closing quote.
+struct Record {
+    /// Its first line (0-based) and byte range.
+    line: usize,
+    range: std::ops::Range<usize>,
+    fields: usize,
+    /// Whether text follows a quoted field's closing quote (`"a, b" c`), which no reader
+    /// takes.
+    after_quote: bool,
+}
+
+/// Calls `visit` with each record of `bytes` (an empty line is a record of one empty field)
+/// until it returns true; the record it stopped at.
+fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<Record> {
+    #[derive(PartialEq)]
+    enum State {
+        FieldStart,
+        Unquoted,
+        Quoted,
+        QuoteInQuoted,
+    }
+    let mut state = State::FieldStart;
+    let mut record = Record {
+        line: 0,
+        range: 0..0,
+        fields: 1,
+        after_quote: false,
+    };
+    let mut line = 0;
+    for (i, &b) in bytes.iter().enumerate() {
+        state = match (state, b) {
+            (State::Quoted, b'"') => State::QuoteInQuoted,
+            (State::Quoted, _) => State::Quoted,
+            (State::FieldStart, b'"') | (State::QuoteInQuoted, b'"') => State::Quoted,
+            (_, b',') => {
+                record.fields += 1;
+                State::FieldStart
+            }
+            (State::QuoteInQuoted, b'\r' | b'\n') => State::Unquoted,
+            (State::QuoteInQuoted, _) => {
+                record.after_quote = true;
+                State::Unquoted
+            }
+            _ => State::Unquoted,
+        };
+        if b == b'\n' {
+            line += 1;
+            if state != State::Quoted {
+                record.range.end = i;
+                if visit(&record) {
+                    return Some(record);
+                }
+                record = Record {
+                    line,
+                    range: i + 1..i + 1,
+                    fields: 1,
+                    after_quote: false,
+                };
+                state = State::FieldStart;
+            }
+        }
+    }
+    record.range.end = bytes.len();
+    (record.range.start < bytes.len() && visit(&record)).then_some(record)
+}
+
+/// The text of a record, without its line's carriage return.
+fn record_text(bytes: &[u8], record: &Record) -> String {
+    let text = String::from_utf8_lossy(&bytes[record.range.clone()]);
+    text.trim_end_matches('\r').to_string()
+}
+
 /// The first record of CSV `bytes` with more fields than `expected` (the header's count), or
 /// with fewer than `fewest` when it is given (an empty line is not a record): its first line
-/// (0-based), its field count and its text. Quoted fields may hold commas and line breaks; a line's carriage
-/// return is not part of it. What the panel and attributes readers use to name the line
-/// polars' "more fields than defined" refers to, and a short record polars would fill with
-/// empty cells (its cells would then shift into the wrong columns unseen).
+/// (0-based), its field count and its text. Fields are split as RFC 4180 and polars split them
+/// ([`Record`]). What the panel and attributes readers use to name the line polars' "more
+/// fields than defined" refers to, and a short record polars would fill with empty cells (its
+/// cells would then shift into the wrong columns unseen).
 pub fn first_record_with_wrong_field_count(
     bytes: &[u8],
     expected: usize,
     fewest: Option<usize>,
 ) -> Option<(usize, usize, String)> {
-    let (mut fields, mut in_quotes, mut record_line, mut record_start) = (1, false, 0, 0);
-    for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
-        let start = raw.as_ptr() as usize - bytes.as_ptr() as usize;
-        if !in_quotes {
-            (fields, record_line, record_start) = (1, i, start);
-        }
-        for &b in raw {
-            match b {
-                b'"' => in_quotes = !in_quotes,
-                b',' if !in_quotes => fields += 1,
-                _ => {}
-            }
-        }
+    let found = find_record(bytes, |r| {
+        let raw = &bytes[r.range.clone()];
         let blank = raw.is_empty() || raw == b"\r";
-        let short = fewest.is_some_and(|fewest| fields < fewest) && !blank;
-        if !in_quotes && (fields > expected || short) {
-            let end = start + raw.len();
-            let text = String::from_utf8_lossy(&bytes[record_start..end]);
-            return Some((record_line, fields, text.trim_end_matches('\r').to_string()));
-        }
-    }
-    None
+        let short = fewest.is_some_and(|fewest| r.fields < fewest) && !blank;
+        r.fields > expected || short
+    })?;
+    Some((found.line, found.fields, record_text(bytes, &found)))
+}
+
+/// The first record of CSV `bytes` with text after a quoted field's closing quote (`"Beta,
+/// Gamma" & Co`): its first line (0-based) and the message, which polars' own does not give.
+pub fn first_misquoted_record(bytes: &[u8]) -> Option<(usize, String)> {
+    let found = find_record(bytes, |r| r.after_quote)?;
+    let shown: String = record_text(bytes, &found).trim().chars().take(80).collect();
+    Some((
+        found.line,
+        format!(
+            "`{shown}` has text after a quoted field's closing quote; a quote inside quoted text \
+             is written twice (\"\"), and a field holding a comma is quoted whole, its quote \
+             right after the comma"
+        ),
+    ))
 }
 
 /// The message for a record with more fields than the header (its text shortened to 80
@@ -162,10 +236,15 @@ pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> Strin
              cells are read into the wrong columns"
         );
     }
+    // A quote after a space is text, not the start of a quoted field (found by review).
+    let spaced = match shown.contains(", \"") {
+        true => " (its quote right after the comma: `, \"` has a space before the quote, which makes the quote text)",
+        false => "",
+    };
     format!(
         "`{shown}` has {fields} fields but the header has {expected}; numbers take a decimal \
          point and no thousands separator (43.7678, not 43,7678), and text holding a comma must \
-         be quoted"
+         be quoted{spaced}"
     )
 }
 
@@ -412,6 +491,20 @@ pub fn is_one_line(text: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // RFC 4180 §2, rules 5-7: a quoted field may hold commas, line breaks and doubled quotes;
+    // a quote is a field's quote only as its first character. Counted by hand.
+    #[test]
+    fn records_are_split_as_rfc_4180_splits_them() {
+        let text = b"a,b,c\n\"x, \"\"y\"\"\nz\",2,3\nq, \"r, s\",4\n\"t\"u,5,6\n";
+        // The quoted field spans lines 2-3 and holds a comma and doubled quotes: 3 fields.
+        assert_eq!(first_record_with_wrong_field_count(text, 3, Some(3)).unwrap().0, 3);
+        let (line, fields, shown) = first_record_with_wrong_field_count(text, 3, None).unwrap();
+        assert_eq!((line, fields, shown.as_str()), (3, 4, "q, \"r, s\",4"));
+        assert_eq!(first_misquoted_record(text).map(|(line, _)| line), Some(4));
+        assert_eq!(first_record_with_wrong_field_count(b"a,b\r\n1,2\r\n", 2, Some(2)), None);
+        assert_eq!(first_misquoted_record(b"a,\"b\"\r\n\"1\",\"\"\n"), None);
+    }
 
     // Worked by hand: line and byte counted from 1; CRLF and a CR ending the bytes are not
     // lone carriage returns.

@@ -17,7 +17,9 @@ use super::{check_label, Source, TableFormat};
 use crate::error::{Error, Result};
 use crate::io::guard;
 use crate::io::parquet_types::unreadable_column;
-use crate::io::sanity::{extra_fields_message, first_record_with_wrong_field_count};
+use crate::io::sanity::{
+    extra_fields_message, first_misquoted_record, first_record_with_wrong_field_count,
+};
 
 /// Which columns of the attributes table hold what.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -109,6 +111,9 @@ pub fn read_attributes(
                 Some(crate::io::sanity::fewest_fields(&header)),
             ) {
                 let message = extra_fields_message(fields, expected, &text);
+                return Err(source.row_error(line.saturating_sub(1), message));
+            }
+            if let Some((line, message)) = first_misquoted_record(&bytes) {
                 return Err(source.row_error(line.saturating_sub(1), message));
             }
             CsvReadOptions::default()

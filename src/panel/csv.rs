@@ -22,7 +22,9 @@ use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
 use crate::error::{Error, Result};
-use crate::io::sanity::{extra_fields_message, first_record_with_wrong_field_count};
+use crate::io::sanity::{
+    extra_fields_message, first_misquoted_record, first_record_with_wrong_field_count,
+};
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
 /// stay in cache between the stages (measured best among 4, 16 and 64 MiB on the benchmark).
@@ -84,6 +86,11 @@ pub(super) fn read(
             if columns.layout == PanelLayout::Wide {
                 let rows = (next_row, height);
                 check_wide_fields(source, block, (first, quoted), rows, &plan.header)?;
+            } else if has_empty_cells(&frame, columns) {
+                // A row cut short leaves its last cells empty, which would be reported as a
+                // missing price of the wrong security (found by review): its fields are
+                // counted first, on this rare path only.
+                check_short_records(source, block, (first, next_row), &plan.header)?;
             }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             frames
@@ -332,6 +339,31 @@ fn read_block(
         .finish()
 }
 
+/// Whether a long block's security or price column has an empty cell (polars counts them as
+/// it parses).
+fn has_empty_cells(frame: &DataFrame, columns: &PanelColumns) -> bool {
+    [&columns.security_column, &columns.price_column]
+        .iter()
+        .any(|name| frame.column(name).is_ok_and(|c| c.null_count() > 0))
+}
+
+/// The first record of a block with fewer (or more) fields than the header, as an error.
+fn check_short_records(
+    source: &Source,
+    block: &[u8],
+    (has_header, first_row): (bool, usize),
+    header: &[String],
+) -> Result<()> {
+    let (expected, fewest) = (header.len(), crate::io::sanity::fewest_fields(header));
+    match first_record_with_wrong_field_count(block, expected, Some(fewest)) {
+        Some((line, fields, text)) => {
+            let row = (first_row + line).saturating_sub(usize::from(has_header));
+            Err(source.row_error(row, extra_fields_message(fields, expected, &text)))
+        }
+        None => Ok(()),
+    }
+}
+
 /// A wide panel's row with fewer fields than the header would leave its last securities' cells
 /// empty, read as gaps: it is refused (a header alone ending in a comma lets rows omit that
 /// last, unnamed field). The commas of a quote-free block of complete records number records ×
@@ -348,14 +380,7 @@ fn check_wide_fields(
     if !quoted && memchr::memchr_iter(b',', block).count() == records * (expected - 1) {
         return Ok(());
     }
-    let fewest = crate::io::sanity::fewest_fields(header);
-    match first_record_with_wrong_field_count(block, expected, Some(fewest)) {
-        Some((line, fields, text)) => {
-            let row = (first_row + line).saturating_sub(usize::from(has_header));
-            Err(source.row_error(row, extra_fields_message(fields, expected, &text)))
-        }
-        None => Ok(()),
-    }
+    check_short_records(source, block, (has_header, first_row), header)
 }
 
 /// A wide panel's column that the header does not name may not hold a price: whose would it
@@ -441,9 +466,12 @@ fn diagnose(
     error: &PolarsError,
 ) -> Error {
     let expected = plan.header.len();
+    let row = |line: usize| (first_row + line).saturating_sub(usize::from(has_header));
     if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, None) {
-        let row = (first_row + line).saturating_sub(usize::from(has_header));
-        return source.row_error(row, extra_fields_message(fields, expected, &text));
+        return source.row_error(row(line), extra_fields_message(fields, expected, &text));
+    }
+    if let Some((line, message)) = first_misquoted_record(block) {
+        return source.row_error(row(line), message);
     }
     let price_columns: Vec<&str> = match columns.layout {
         PanelLayout::Long => vec![columns.price_column.as_str()],

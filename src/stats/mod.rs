@@ -61,7 +61,15 @@ pub fn student_t_two_sided_p(t: f64, df: f64) -> f64 {
         return 0.0;
     }
     let dist = StudentsT::new(0.0, 1.0, df).expect("degrees of freedom are positive");
-    (2.0 * dist.sf(t.abs())).min(1.0)
+    let p = (2.0 * dist.sf(t.abs())).min(1.0);
+    // A p-value below the smallest normal double is written as 0: a subnormal carries almost no
+    // precision, and spreadsheets read one as text (found by review: a universe's p-values of
+    // 7.9e-320 opened as text beside numbers).
+    if p < f64::MIN_POSITIVE {
+        0.0
+    } else {
+        p
+    }
 }
 
 /// The statistic of a set of values that a step carries forward.
@@ -249,6 +257,26 @@ pub fn quantile_sorted(sorted: &[f64], q: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // IEEE 754 doubles: below f64::MIN_POSITIVE (2.2e-308) lie the subnormals. Far in the
+    // tail of a t with many degrees of freedom the raw two-sided tail passes through them; the
+    // p-value is then 0, and otherwise the raw figure, untouched.
+    #[test]
+    fn a_p_value_is_never_subnormal() {
+        let dist = StudentsT::new(0.0, 1.0, 2500.0).unwrap();
+        let ts: Vec<f64> = (0..400).map(|i| 30.0 + i as f64 * 0.05).collect();
+        let raw = |t: f64| 2.0 * dist.sf(t);
+        assert!(ts
+            .iter()
+            .any(|&t| raw(t) > 0.0 && raw(t) < f64::MIN_POSITIVE));
+        for &t in &ts {
+            let p = student_t_two_sided_p(t, 2500.0);
+            match raw(t) < f64::MIN_POSITIVE {
+                true => assert_eq!(p, 0.0),
+                false => assert_eq!(p, raw(t)),
+            }
+        }
+    }
 
     // Student t critical values from standard printed tables (e.g. any statistics textbook's
     // appendix; values recalled from memory, to the 3 decimals tables print): t(0.975, 10) =
