@@ -1944,6 +1944,49 @@ fn operations_betas_under_net_debt_count_cash_once() {
     assert!(checked >= 2, "too few securities with every figure");
 }
 
+// The summary states what shaped its counts (found by review): the flags' thresholds and which
+// flags exclude, the staleness limit or its absence (a stale_share of 0 is then no
+// measurement), the overrides applied, and a header that says the industry's figure is of the
+// operations' betas. Industry labels differing only in capitals are noted as two industries.
+#[test]
+fn the_summary_states_flags_exclusion_staleness_and_overrides() {
+    let setup = Setup::new();
+    let path = setup.dir().join("attributes.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    let relabelled = text.replacen(",Industry A,", ",industry a,", 1);
+    assert_ne!(relabelled, text, "the attributes name Industry A");
+    fs::write(&path, relabelled).unwrap();
+    let sets = [
+        "beta.exclude_flags=[\"low_r_squared\"]",
+        "leverage.operations_beta=true",
+    ];
+    let out = setup.succeeds("out", &sets);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    for expected in [
+        "Flags: too_few_observations below 80% of the window's periods with a return",
+        "low_r_squared below an R² of 0.05",
+        "low_r_squared leaves a security out of the aggregates (beta.exclude_flags)",
+        "Staleness limit: none (beta.max_stale_days)",
+        "Overrides applied to the universe file: `beta.exclude_flags=[\"low_r_squared\"]`, \
+         `leverage.operations_beta=true`",
+        "| Median βU | Industry βU of operations (median) |",
+        "labels are used as written: \"Industry A\" and \"industry a\"",
+    ] {
+        assert!(summary.contains(expected), "{expected} in {summary}");
+    }
+    let out = setup.succeeds("limited", &["beta.max_stale_days=5"]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("Staleness limit: a price older than 5 calendar days"),
+        "{summary}"
+    );
+    assert!(summary.contains("none leaves a security out"), "{summary}");
+    assert!(
+        summary.contains("Overrides applied to the universe file: `beta.max_stale_days=5` ("),
+        "{summary}"
+    );
+}
+
 // An industry label that an export writes for a missing classification ("N/A") is used as
 // written, and the summary says so; a count of zero has no empty list after it; a NaN figure
 // in the attributes is "not a finite number", not a sign error (found by review).

@@ -498,11 +498,19 @@ mod tests {
     fn records_are_split_as_rfc_4180_splits_them() {
         let text = b"a,b,c\n\"x, \"\"y\"\"\nz\",2,3\nq, \"r, s\",4\n\"t\"u,5,6\n";
         // The quoted field spans lines 2-3 and holds a comma and doubled quotes: 3 fields.
-        assert_eq!(first_record_with_wrong_field_count(text, 3, Some(3)).unwrap().0, 3);
+        assert_eq!(
+            first_record_with_wrong_field_count(text, 3, Some(3))
+                .unwrap()
+                .0,
+            3
+        );
         let (line, fields, shown) = first_record_with_wrong_field_count(text, 3, None).unwrap();
         assert_eq!((line, fields, shown.as_str()), (3, 4, "q, \"r, s\",4"));
         assert_eq!(first_misquoted_record(text).map(|(line, _)| line), Some(4));
-        assert_eq!(first_record_with_wrong_field_count(b"a,b\r\n1,2\r\n", 2, Some(2)), None);
+        assert_eq!(
+            first_record_with_wrong_field_count(b"a,b\r\n1,2\r\n", 2, Some(2)),
+            None
+        );
         assert_eq!(first_misquoted_record(b"a,\"b\"\r\n\"1\",\"\"\n"), None);
     }
 

@@ -402,13 +402,17 @@ pub struct AlignedReturns {
 }
 
 impl AlignedReturns {
-    /// Whether the asset's returns (before any risk-free rate) are all the same: a price that
-    /// never moves over the aligned periods, whose beta of 0 and undefined R² carry no
-    /// information. `false` without returns.
+    /// Whether the asset's returns (before any risk-free rate) are all the same, to the
+    /// rounding of computing them: a price that never moves over the aligned periods, or one
+    /// that grows by one fixed rate (found by review: 20·1.001ⁿ was estimated, its beta
+    /// −2e-16 entering its industry), whose beta of 0 and undefined R² carry no information.
+    /// A return p₁/p₀ − 1 (or its logarithm) is rounded to within a few ulps of 1 + r, so
+    /// returns within 16 ε·(1 + |r|) of the first are the same. `false` without returns.
     pub fn asset_is_constant(&self) -> bool {
-        self.asset
-            .first()
-            .is_some_and(|&first| self.asset.iter().all(|&r| r == first))
+        self.asset.first().is_some_and(|&first| {
+            let rounding = 16.0 * f64::EPSILON * (1.0 + first.abs());
+            self.asset.iter().all(|&r| (r - first).abs() <= rounding)
+        })
     }
 
     /// Asset returns less the risk-free rate (or the raw returns, borrowed, when there is none).
@@ -594,6 +598,29 @@ impl AlignedReturns {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // A price growing by one fixed rate gives returns equal to that rate up to the rounding
+    // of p₁/p₀ − 1 (IEEE 754: each operation within half an ulp), so they are constant; a
+    // return that differs by a thousandth of a basis point (1e-7) is not.
+    #[test]
+    fn returns_of_a_fixed_growth_rate_are_constant() {
+        let prices: Vec<f64> = (0..300).map(|n| 20.0 * 1.001_f64.powi(n)).collect();
+        let returns: Vec<f64> = prices.windows(2).map(|w| w[1] / w[0] - 1.0).collect();
+        assert!(returns.iter().any(|&r| r != returns[0]), "rounding shows");
+        let aligned = |asset: Vec<f64>| AlignedReturns {
+            period_ends: Vec::new(),
+            market: vec![0.0; asset.len()],
+            asset,
+            risk_free: None,
+            dropped: DroppedPeriods::default(),
+            market_shifted: Vec::new(),
+        };
+        assert!(aligned(returns.clone()).asset_is_constant());
+        let mut moved = returns;
+        moved[150] += 1e-7;
+        assert!(!aligned(moved).asset_is_constant());
+        assert!(!aligned(Vec::new()).asset_is_constant());
+    }
 
     /// Per return period: whether either of its two samples was stale (the two-step form the
     /// one-pass [`sampled_returns`] is checked against).

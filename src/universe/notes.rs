@@ -47,6 +47,7 @@ pub(super) fn counts_and_notes(
     notes.extend(named_notes(securities));
     notes.extend(no_industry_note(securities));
     notes.extend(placeholder_industries_note(securities));
+    notes.extend(label_twins_note(securities));
     let counts = counts(securities, strays.len());
     let method = inputs.universe.settings.beta.method;
     notes.extend(flagged_notes(
@@ -359,8 +360,66 @@ fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bo
         .collect()
 }
 
-/// The first ten ids of a note's list, then "…" if there are more.
+/// The first ten ids of a note's list, then "…" if there are more; an id holding a comma or a
+/// quote is quoted, so the list reads as the ids it holds (found by review: `SEC,0031` read as
+/// two ids).
 pub(crate) fn first_ids(ids: &[&str]) -> String {
     let more = if ids.len() > 10 { ", …" } else { "" };
-    format!("{}{more}", ids[..ids.len().min(10)].join(", "))
+    let shown: Vec<String> = (ids[..ids.len().min(10)].iter())
+        .map(|id| match id.contains([',', '"']) {
+            true => format!("{id:?}"),
+            false => id.to_string(),
+        })
+        .collect();
+    format!("{}{more}", shown.join(", "))
+}
+
+/// A note on industry labels that differ only in capitals or surrounding spaces ("Alpha Works"
+/// and "alpha works"): labels are used as written, so each is an industry of its own, which
+/// is seldom meant (found by review: split silently, while ids that differ so are noted).
+fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
+    let mut labels: Vec<&str> = securities
+        .iter()
+        .filter_map(|s| s.industry.as_deref())
+        .collect();
+    labels.sort_unstable();
+    labels.dedup();
+    let mut by_key: BTreeMap<String, Vec<&str>> = BTreeMap::new();
+    for label in labels {
+        by_key
+            .entry(label.trim().to_lowercase())
+            .or_default()
+            .push(label);
+    }
+    let twins: Vec<String> = (by_key.values())
+        .filter(|group| group.len() > 1)
+        .map(|group| {
+            let quoted: Vec<String> = group.iter().map(|l| format!("{l:?}")).collect();
+            quoted.join(" and ")
+        })
+        .collect();
+    (!twins.is_empty()).then(|| {
+        format!(
+            "Industry labels that differ only in capitals or spaces are separate industries, as \
+             labels are used as written: {}; write one label for one industry.",
+            twins.join("; ")
+        )
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::first_ids;
+
+    // Three ids read as three: one holding a comma or a quote is quoted (Rust's escaping).
+    #[test]
+    fn ids_holding_a_comma_or_a_quote_are_quoted() {
+        assert_eq!(
+            first_ids(&["SEC\"0032", "SEC,0031", "SEC0013"]),
+            r#""SEC\"0032", "SEC,0031", SEC0013"#
+        );
+        let many: Vec<String> = (0..12).map(|i| format!("S{i}")).collect();
+        let many: Vec<&str> = many.iter().map(String::as_str).collect();
+        assert!(first_ids(&many).ends_with("S9, …"));
+    }
 }

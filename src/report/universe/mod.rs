@@ -7,18 +7,18 @@
 //! formats from that frame, so the CSV and the Parquet file cannot differ. Nothing here computes a
 //! figure; an empty cell is a figure the result does not have (never a non-finite number).
 
-use std::fmt::Write as _;
 use std::io::Cursor;
 use std::path::{Path, PathBuf};
 
 use polars::prelude::*;
 use rayon::prelude::*;
 
-use super::format::{fixed, label};
+mod summary;
 use crate::error::{Error, Result};
 use crate::universe::industries::{IndustryResult, Summary};
 use crate::universe::securities::SecurityResult;
 use crate::universe::UniverseResult;
+use summary::summary;
 
 /// The files a run writes only when asked for (`universe.rolling`).
 const OPTIONAL_OUTPUTS: [&str; 2] = ["rolling.csv", "rolling.parquet"];
@@ -428,171 +428,3 @@ fn rolling_frame(result: &UniverseResult) -> Result<DataFrame> {
     );
     t.finish()
 }
-
-/// A figure to three decimals, or a dash.
-fn shown(value: Option<f64>) -> String {
-    value
-        .filter(|v| v.is_finite())
-        .map_or_else(|| "–".to_string(), |v| fixed(v, 3))
-}
-
-/// The industry table for people: counts, the levered betas' median and quartiles, the median
-/// D/E and the unlevered aggregates.
-fn industry_table(out: &mut String, r: &UniverseResult) {
-    let s = &r.settings;
-    let _ = writeln!(
-        *out,
-        "| Industry | Securities | Estimated | Excluded | Not estimated | Flagged | Median β | β quartiles | Median D/E | Median βU | Industry βU ({}) |",
-        label(&s.leverage.aggregation)
-    );
-    out.push_str("|---|---:|---:|---:|---:|---:|---:|---|---:|---:|---:|\n");
-    for i in &r.industries {
-        let levered = i.levered.as_ref();
-        let quartiles = levered.map_or_else(
-            || "–".to_string(),
-            |l| {
-                format!(
-                    "{} – {}",
-                    fixed(l.dispersion.lower_quartile, 3),
-                    fixed(l.dispersion.upper_quartile, 3)
-                )
-            },
-        );
-        let _ = writeln!(
-            *out,
-            "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-            i.industry.replace('|', "\\|"),
-            i.securities,
-            i.estimated,
-            i.excluded_total,
-            i.not_estimated_total,
-            i.flagged_total,
-            shown(levered.map(|l| l.dispersion.median)),
-            quartiles,
-            shown(i.median_debt_to_equity),
-            shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
-            shown(i.unlevered_beta),
-        );
-    }
-}
-
-/// The settings that shape the betas beyond the estimator, in words: the returns, the
-/// adjustment (the table's levered β is the raw one, βU is unlevered from the adjusted one) and
-/// the debt betas.
-fn return_and_beta_settings(r: &UniverseResult) -> String {
-    let s = &r.settings;
-    let returns = format!(
-        "Returns: {}, {}.",
-        label(&s.beta.returns),
-        if r.window.excess_returns {
-            "in excess of the risk-free series"
-        } else {
-            "not in excess of a risk-free rate (no risk-free series)"
-        }
-    );
-    let adjustment = match (s.beta.adjustment, &r.vasicek_prior) {
-        (crate::beta::Adjustment::Blume, _) => format!(
-            "Adjustment: Blume, weight {} on the raw beta; the table's levered β is the raw \
-             estimate and βU is unlevered from the adjusted beta.",
-            fixed(s.beta.blume_weight, 2)
-        ),
-        (crate::beta::Adjustment::Vasicek, Some(prior)) => format!(
-            "Adjustment: Vasicek, toward a {} prior of mean {} and variance {}; the table's \
-             levered β is the raw estimate and βU is unlevered from the shrunk beta.",
-            prior.source,
-            fixed(prior.mean, 3),
-            fixed(prior.variance, 4)
-        ),
-        _ => "Adjustment: none; βU is unlevered from the raw beta.".to_string(),
-    };
-    let debt = match s.leverage.debt_beta_source {
-        crate::capital::leverage::DebtBetaSource::Given => format!(
-            "Debt betas: {} for every security{}.",
-            fixed(s.leverage.debt_beta, 2),
-            if s.leverage.formula == crate::capital::leverage::Formula::Hamada {
-                " (Hamada, which assumes riskless debt, does not use it)"
-            } else {
-                ""
-            }
-        ),
-        _ => "Debt betas: none (riskless debt).".to_string(),
-    };
-    format!("{returns} {adjustment} {debt}")
-}
-
-/// `summary.md`: what was run, the industry table, the counts and the cautions.
-fn summary(r: &UniverseResult) -> String {
-    let s = &r.settings;
-    let mut out = String::new();
-    let title = if r.universe.title.is_empty() {
-        "Industry betas"
-    } else {
-        &r.universe.title
-    };
-    let _ = writeln!(out, "# {title}\n");
-    let _ = writeln!(
-        out,
-        "Valuation date {}. Return window {} to {} ({} {} periods, at least {} usable returns \
-         per security). Estimator: {}; standard errors: {}. Unlevering: {}, with each firm's own \
-         D/E ({} debt) and tax rate. Industry unlevered beta: the {}{}.\n",
-        r.universe.valuation_date,
-        r.window.window_start,
-        r.window.window_end,
-        r.window.periods,
-        label(&r.window.frequency),
-        r.window.min_observations,
-        r.estimator.method_description,
-        r.estimator.std_errors_description,
-        r.formula_source,
-        label(&s.leverage.debt_measure),
-        label(&s.leverage.aggregation),
-        if s.leverage.operations_beta {
-            " of the betas of the operations (cash at a beta of zero)"
-        } else {
-            " of the unlevered betas"
-        },
-    );
-    let _ = writeln!(out, "{}\n", return_and_beta_settings(r));
-    let c = &r.counts;
-    let why_not = match nonzero_counts(&c.not_estimated) {
-        reasons if reasons.is_empty() => reasons,
-        reasons => format!(" ({reasons})"),
-    };
-    let _ = writeln!(
-        out,
-        "{} with prices; {}, {} excluded by \
-         beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta. \"Estimated\" \
-         counts the securities that enter an industry's figures; \"Flagged\" those of them that \
-         carry a flag (securities.csv names each).\n",
-        crate::universe::securities_count(c.securities),
-        estimated_count(c.estimated, c.estimated_without_industry),
-        c.excluded,
-        c.not_estimated_total,
-        c.unlevered
-    );
-    industry_table(&mut out, r);
-    out.push('\n');
-    for note in &r.notes {
-        let _ = writeln!(out, "- {note}");
-    }
-    let missing = nonzero_counts(&c.missing);
-    if !missing.is_empty() {
-        let _ = writeln!(
-            out,
-            "- Securities lacking a figure (flagged in securities.csv, left out of every \
-             aggregate that needs it, never filled in): {missing}."
-        );
-    }
-    out.push_str(CAUTIONS);
-    out
-}
-
-const CAUTIONS: &str = "\n## Cautions\n\n\
-- A discount rate is a judgement; these tables inform it and do not replace it.\n\
-- Every beta is an estimate with sampling error: securities.csv gives each one's standard \
-  error and 95% confidence interval. An industry figure resting on few securities is fragile; \
-  the counts say how many each rests on.\n\
-- Prices, attributes and industry labels are used as supplied; hurdle does not check them \
-  against any other source. A security's industry is the label in the attributes file.\n\
-- Unlevering assumes the formula's view of debt and taxes (see the formula's source); market \
-  values of equity and book or market debt are whatever the attributes file holds.\n";
