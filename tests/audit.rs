@@ -2349,3 +2349,43 @@ fn a_wide_table_read_for_several_series_is_one_changed_input() {
         "{report}"
     );
 }
+
+// Two cases that differ in a formula and in one peer's prices: compare names the setting with
+// both values and the price file whose bytes differ, since the bridge's lines alone (a beta
+// moved by 4 bp) do not say why; of one target D/E it does not say a D/E moved the beta line
+// (found by review of a practitioner's use).
+#[test]
+fn compare_names_the_settings_and_files_behind_a_gap() {
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let text_of_case = std::fs::read_to_string(&case).unwrap();
+    let other = text_of_case.replacen("formula = \"hamada\"", "formula = \"harris-pringle\"", 1);
+    assert_ne!(other, text_of_case, "the demo case names its formula");
+    let peer = case_dir.join("data/peers/fenhallow.csv");
+    let copy = case_dir.join("data/peers/fenhallow_b.csv");
+    let prices = std::fs::read_to_string(&peer).unwrap();
+    let mut lines: Vec<String> = prices.lines().map(str::to_string).collect();
+    let row = lines.len() / 2;
+    let (head, price) = lines[row].rsplit_once(',').unwrap();
+    let moved = price.parse::<f64>().unwrap() * 1.01;
+    lines[row] = format!("{head},{moved:.4}");
+    std::fs::write(&copy, lines.join("\n") + "\n").unwrap();
+    let other = other.replacen("data/peers/fenhallow.csv", "data/peers/fenhallow_b.csv", 1);
+    let b = case_dir.join("b.toml");
+    std::fs::write(&b, other).unwrap();
+    let output = hurdle(&["compare", case.to_str().unwrap(), b.to_str().unwrap()]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert!(
+        report.contains(r#"leverage.formula "hamada" → "harris-pringle""#),
+        "{report}"
+    );
+    assert!(
+        report.contains("whose bytes differ between the sides: peer:Fenhallow Seals"),
+        "{report}"
+    );
+    assert!(
+        !report.contains("a different D/E moves the beta line"),
+        "{report}"
+    );
+}

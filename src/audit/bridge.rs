@@ -147,6 +147,41 @@ pub struct CaseFacts {
     /// The pre-tax cost of debt is the risk-free rate plus a spread (a rating or coverage
     /// table), so the rate moves it too.
     pub debt_on_risk_free: bool,
+    /// The case's resolved settings, as its receipt records them under `settings`.
+    pub settings: serde_json::Value,
+    /// Each data file's role and SHA-256.
+    pub files: Vec<(String, String)>,
+}
+
+impl CaseFacts {
+    /// What differs between two cases' inputs, in words: each setting with both values
+    /// (`leverage.formula "hamada" → "harris-pringle"`), then each data file of one role read
+    /// on both sides whose bytes differ (found by review: a gap from a formula, an adjustment
+    /// or edited prices was shown with nothing naming its cause).
+    pub fn differences(&self, to: &CaseFacts) -> (Vec<String>, Vec<String>) {
+        let found = super::verify::compare(&self.settings, &to.settings, 0.0);
+        let settings = (found.mismatches.iter().chain(&found.wording))
+            .map(|m| {
+                let shown = |v: &serde_json::Value| match v.is_null() {
+                    true => "none".to_string(),
+                    false => super::verify::shown(v),
+                };
+                format!(
+                    "{} {} → {}",
+                    m.place(),
+                    shown(&m.recorded),
+                    shown(&m.recomputed)
+                )
+            })
+            .collect();
+        let files = (self.files.iter())
+            .filter(|(role, sha256)| {
+                (to.files.iter()).any(|(other, hash)| other == role && hash != sha256)
+            })
+            .map(|(role, _)| role.clone())
+            .collect();
+        (settings, files)
+    }
 }
 
 impl CaseFacts {
@@ -166,6 +201,10 @@ impl CaseFacts {
             unlevered_beta: cost.beta.unlevered,
             target_debt_to_equity: cost.target.debt_to_equity,
             debt_on_risk_free: cost.cost_of_debt.risk_free_rate.is_some(),
+            settings: serde_json::to_value(&valuation.settings).unwrap_or_default(),
+            files: (valuation.files.iter())
+                .map(|f| (f.role.clone(), f.sha256.clone()))
+                .collect(),
         }
     }
 }

@@ -148,6 +148,22 @@ fn case_notes(b: &Bridge, from: &CaseFacts, to: &CaseFacts) -> String {
             list(&new)
         ));
     }
+    let (settings, files) = from.differences(to);
+    if !settings.is_empty() {
+        out.push_str(&format!(
+            "note: the case settings that differ ({} → {}): {}\n",
+            b.from.source,
+            b.to.source,
+            settings.join("; ")
+        ));
+    }
+    if !files.is_empty() {
+        out.push_str(&format!(
+            "note: data read for the same role whose bytes differ between the sides: {} (the \
+             returns, and so the betas, may differ with them)\n",
+            files.join(", ")
+        ));
+    }
     let rates_differ = b.from.build_up.risk_free_rate != b.to.build_up.risk_free_rate;
     if rates_differ && (from.debt_on_risk_free || to.debt_on_risk_free) {
         out.push_str(
@@ -200,10 +216,13 @@ fn notes(b: &Bridge) -> String {
         "note: steps and Shapley values are shown to the basis point and may not add to the \
          total by a basis point; bridge.csv holds them in full\n",
     );
-    out.push_str(
-        "note: each group is the figure the build-up carries: the beta is the relevered beta, so \
-         a different D/E moves the beta line as well as the weights line (the weights step does \
-         not relever it)\n",
-    );
+    // Only when the D/E differs (found by review: said of two cases of one D/E).
+    if from.debt_weight * to.equity_weight != to.debt_weight * from.equity_weight {
+        out.push_str(
+            "note: each group is the figure the build-up carries: the beta is the relevered \
+             beta, so a different D/E moves the beta line as well as the weights line (the \
+             weights step does not relever it)\n",
+        );
+    }
     out
 }
