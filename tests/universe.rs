@@ -2088,3 +2088,60 @@ fn short_rows_are_found_beside_quoted_headers_and_a_trailing_header_comma_is_acc
         why,
     );
 }
+
+// A listed peer set is aggregated by the industry table's own rules: listing exactly an
+// industry's securities gives that industry's figures, and the industry's median lies at the
+// middle of its own members (mid-rank percentile of a median: 50%, ties counted half, a
+// textbook property of the median). An id the panel does not hold is refused by name, with a
+// capital twin named (exit 2); `verify` reproduces the set.
+#[test]
+fn a_listed_peer_set_is_set_beside_its_industry() {
+    let setup = Setup::new();
+    let out = setup.succeeds("plain", &[]);
+    let securities = read_table(&out.join("securities.csv"));
+    let mask = (securities.column("industry").unwrap().str().unwrap()).equal("Industry B");
+    let members = securities.filter(&mask).unwrap();
+    let ids: Vec<String> = (members.column("security").unwrap().str().unwrap().iter())
+        .map(|id| id.unwrap().to_string())
+        .collect();
+    assert!(ids.len() >= 3, "{ids:?}");
+    let listed = format!("universe.peer_set={ids:?}");
+    let out = setup.succeeds("listed", &[&listed, "leverage.aggregation=\"median\""]);
+    let result: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let industry = (result["industries"].as_array().unwrap().iter())
+        .find(|i| i["industry"] == "Industry B")
+        .unwrap();
+    let set = &result["peer_set"];
+    let mut figures = set["figures"].clone();
+    figures["industry"] = "Industry B".into();
+    assert_eq!(&figures, industry);
+    assert_eq!(set["home_industry"], "Industry B");
+    assert_eq!(set["home_unlevered_beta"], industry["unlevered_beta"]);
+    assert_eq!(set["share_of_home_below"], 0.5);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(summary.contains("## The listed peer set"), "{summary}");
+    assert!(summary.contains("| peer set | "), "{summary}");
+    assert!(summary.contains("50% of Industry B's"), "{summary}");
+    let verified = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["verify", out.join("result.json").to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(
+        verified.status.success(),
+        "{}",
+        String::from_utf8_lossy(&verified.stdout)
+    );
+    let lower = format!("universe.peer_set=[\"{}\"]", ids[0].to_lowercase());
+    refused(
+        |_| {},
+        &[&lower],
+        &[
+            &format!(
+                "universe.peer_set lists \"{}\", which the panel does not hold",
+                ids[0].to_lowercase()
+            ),
+            &format!("the panel holds \"{}\"", ids[0]),
+        ],
+    );
+}

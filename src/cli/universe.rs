@@ -14,6 +14,7 @@ use std::time::{Duration, Instant};
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 
+use hurdle::report::format::{fixed, percent};
 use hurdle::report::universe::{estimated_count, nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
 use hurdle::universe::{evaluate, load_inputs, securities_count, UniverseResult};
@@ -166,6 +167,21 @@ fn summary(r: &UniverseResult) -> String {
             }
         ),
     ];
+    if let Some(p) = &r.peer_set {
+        let shown = |x: Option<f64>| x.map_or("–".to_string(), |x| fixed(x, 3));
+        lines.push(format!(
+            "  peer set: {} listed, unlevered beta {}; {} {}{}",
+            p.securities.len(),
+            shown(p.figures.unlevered_beta),
+            p.home_industry.as_deref().unwrap_or("no industry"),
+            shown(p.home_unlevered_beta),
+            p.share_of_home_below.map_or(String::new(), |share| format!(
+                " ({} of its {} figures below the set's)",
+                percent(share, 0),
+                p.home_count
+            ))
+        ));
+    }
     for note in &r.notes {
         lines.push(format!("  note: {note}"));
     }

@@ -92,7 +92,7 @@ pub fn industry_table(
         .collect()
 }
 
-fn industry_row(
+pub(super) fn industry_row(
     label: &str,
     members: &[&SecurityResult],
     leverage: &LeverageSettings,

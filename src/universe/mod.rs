@@ -12,6 +12,7 @@
 pub mod estimate;
 pub mod industries;
 pub(crate) mod notes;
+pub mod peer_set;
 pub mod securities;
 pub mod settings;
 
@@ -227,6 +228,9 @@ pub struct UniverseResult {
     /// Plain-language remarks a reviewer should see (attributes without prices, …).
     pub notes: Vec<String>,
     pub industries: Vec<IndustryResult>,
+    /// The listed peer set beside its industry, when `universe.peer_set` lists one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub peer_set: Option<peer_set::PeerSetResult>,
     /// One row per security, in id order: written whole to `securities.csv`; `result.json`
     /// records each one's id, industry, observations, beta, standard error, unlevered beta and
     /// why it was not estimated ([`security_figures`]), so `hurdle verify` names the
@@ -309,6 +313,12 @@ pub fn evaluate(
         rolling,
     );
     check_overlap(inputs, &estimation)?;
+    peer_set::check(&settings.universe.peer_set, inputs.panel.securities()).map_err(|message| {
+        Error::Case {
+            file: inputs.universe.path.clone(),
+            message,
+        }
+    })?;
     let panel = &inputs.panel;
     let estimates = estimate_all(panel, &estimation, early, progress)?;
     let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
@@ -334,10 +344,13 @@ pub fn evaluate(
             (row, estimate.rolling)
         })
         .unzip();
-    let industries = industries::industry_table(
+    let adjusted_betas = settings.beta.adjustment != Adjustment::None;
+    let industries = industries::industry_table(&securities, &settings.leverage, adjusted_betas);
+    let peer_set = peer_set::peer_set(
+        &settings.universe.peer_set,
         &securities,
-        &settings.leverage,
-        settings.beta.adjustment != Adjustment::None,
+        &industries,
+        (&settings.leverage, adjusted_betas),
     );
     let window = (estimation.window().start(), estimation.window().end());
     let (counts, notes) = notes::counts_and_notes(inputs, (&securities, &industries), window);
@@ -371,6 +384,7 @@ pub fn evaluate(
         counts,
         notes,
         industries,
+        peer_set,
         securities,
         rolling,
     })

@@ -45,6 +45,10 @@ pub struct UniverseInfo {
     /// Also write every security's rolling betas (`rolling.csv`, `rolling.parquet`).
     #[serde(default)]
     pub rolling: bool,
+    /// Security ids of a peer set to set beside its industry (an analyst's peers, for a
+    /// reviewer): its figures by the industry table's rules, in `summary.md` and `result.json`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub peer_set: Vec<String>,
 }
 
 /// `[market]` of a universe: the index and the optional risk-free series, as in a case. The

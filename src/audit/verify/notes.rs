@@ -211,5 +211,21 @@ mod tests {
             found(("0.3.0", "0.4.0"), &receipt("conine", "none"), &[&counts]).len(),
             1
         );
+        // 0.2.0's coverage on a table's threshold, for a case whose cost of debt came from a
+        // coverage table and moved.
+        let coverage = json!({"cost_of_debt": {"source": "coverage"}});
+        let moved = mismatch("cost_of_debt.pre_tax");
+        let case = |versions, receipt: &Value| {
+            known_changes("case", versions, &[&moved], (receipt, &Value::Null)).len()
+        };
+        assert_eq!(case(("0.1.0", "0.5.0"), &coverage), 1);
+        assert_eq!(case(("0.2.0", "0.5.0"), &coverage), 0);
+        assert_eq!(
+            case(
+                ("0.1.0", "0.5.0"),
+                &json!({"cost_of_debt": {"source": "given"}})
+            ),
+            0
+        );
     }
 }

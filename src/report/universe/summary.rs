@@ -6,6 +6,7 @@ use std::fmt::Write as _;
 
 use super::{estimated_count, nonzero_counts};
 use crate::report::format::{fixed, label};
+use crate::universe::industries::IndustryResult;
 use crate::universe::UniverseResult;
 
 /// A figure to three decimals, or a dash.
@@ -18,6 +19,14 @@ fn shown(value: Option<f64>) -> String {
 /// The industry table for people: counts, the levered betas' median and quartiles, the median
 /// D/E and the unlevered aggregates.
 fn industry_table(out: &mut String, r: &UniverseResult) {
+    table_header(out, r);
+    for i in &r.industries {
+        table_row(out, i);
+    }
+}
+
+/// The industry table's header and rule.
+fn table_header(out: &mut String, r: &UniverseResult) {
     let s = &r.settings;
     let _ = writeln!(
         *out,
@@ -32,34 +41,81 @@ fn industry_table(out: &mut String, r: &UniverseResult) {
         label(&s.leverage.aggregation)
     );
     out.push_str("|---|---:|---:|---:|---:|---:|---:|---|---:|---:|---:|\n");
-    for i in &r.industries {
-        let levered = i.levered.as_ref();
-        let quartiles = levered.map_or_else(
-            || "–".to_string(),
-            |l| {
-                format!(
-                    "{} – {}",
-                    fixed(l.dispersion.lower_quartile, 3),
-                    fixed(l.dispersion.upper_quartile, 3)
-                )
-            },
-        );
-        let _ = writeln!(
-            *out,
-            "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-            i.industry.replace('|', "\\|"),
-            i.securities,
-            i.estimated,
-            i.excluded_total,
-            i.not_estimated_total,
-            i.flagged_total,
-            shown(levered.map(|l| l.dispersion.median)),
-            quartiles,
-            shown(i.median_debt_to_equity),
-            shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
-            shown(i.unlevered_beta),
-        );
-    }
+}
+
+/// One row of the industry table (an industry, or the listed peer set).
+fn table_row(out: &mut String, i: &IndustryResult) {
+    let levered = i.levered.as_ref();
+    let quartiles = levered.map_or_else(
+        || "–".to_string(),
+        |l| {
+            format!(
+                "{} – {}",
+                fixed(l.dispersion.lower_quartile, 3),
+                fixed(l.dispersion.upper_quartile, 3)
+            )
+        },
+    );
+    let _ = writeln!(
+        *out,
+        "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+        i.industry.replace('|', "\\|"),
+        i.securities,
+        i.estimated,
+        i.excluded_total,
+        i.not_estimated_total,
+        i.flagged_total,
+        shown(levered.map(|l| l.dispersion.median)),
+        quartiles,
+        shown(i.median_debt_to_equity),
+        shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
+        shown(i.unlevered_beta),
+    );
+}
+
+/// The listed peer set beside its home industry: its row, the industries its members carry,
+/// and where its unlevered beta lies among the home industry's.
+fn peer_set_section(out: &mut String, r: &UniverseResult) {
+    let Some(p) = &r.peer_set else { return };
+    let _ = writeln!(out, "\n## The listed peer set\n");
+    let industries: Vec<String> = (p.industries.iter())
+        .map(|(label, n)| format!("{label} {n}"))
+        .collect();
+    let _ = writeln!(
+        out,
+        "{} listed in universe.peer_set, {} of them estimated and not excluded: {}. Their \
+         industries: {}.\n",
+        crate::universe::securities_count(p.securities.len()),
+        p.figures.estimated,
+        crate::universe::notes::first_ids(
+            &p.securities.iter().map(String::as_str).collect::<Vec<_>>()
+        ),
+        industries.join(", ")
+    );
+    table_header(out, r);
+    table_row(out, &p.figures);
+    let aggregation = label(&r.settings.leverage.aggregation);
+    let placed = match (
+        &p.home_industry,
+        p.figures.unlevered_beta,
+        p.share_of_home_below,
+    ) {
+        (Some(home), Some(own), Some(share)) => format!(
+            "The set's unlevered beta ({aggregation}) is {}; {home}'s is {}, and {} of \
+             {home}'s {} figures lie below the set's (ties count half): a set drawn from its \
+             industry's middle lies near 50%, one at either end says its peers are not typical \
+             of their industry.",
+            fixed(own, 3),
+            shown(p.home_unlevered_beta),
+            crate::report::format::percent(share, 0),
+            p.home_count
+        ),
+        (None, _, _) => "No listed security has an industry label, so there is no \
+                         industry to set the peer set beside."
+            .into(),
+        _ => "The set, or its home industry, has no unlevered beta to compare.".into(),
+    };
+    let _ = writeln!(out, "\n{placed}");
 }
 
 /// The settings that shape the betas beyond the estimator, in words: the returns, the
@@ -205,6 +261,7 @@ pub(super) fn summary(r: &UniverseResult) -> String {
         c.unlevered
     );
     industry_table(&mut out, r);
+    peer_set_section(&mut out, r);
     out.push('\n');
     for note in &r.notes {
         let _ = writeln!(out, "- {note}");
