@@ -129,6 +129,18 @@ pub fn placeholders_heading(count: usize) -> String {
     )
 }
 
+/// A reader's own error message as hurdle quotes it: its first paragraph (polars follows it
+/// with advice in terms of its Python options), cut to 240 characters (found by review: an
+/// unclosed quote in a large panel made polars quote the rest of the file, 800 MB of error).
+pub fn reader_message(error: &dyn std::fmt::Display) -> String {
+    let text = error.to_string();
+    let first = text.split("\n\n").next().unwrap_or("").trim();
+    match first.chars().count() > 240 {
+        true => format!("{}…", first.chars().take(240).collect::<String>()),
+        false => first.to_string(),
+    }
+}
+
 /// A number as a message quotes it: in full, but in exponent form when that would run to many
 /// digits (`1e308` rather than 309 of them); NaN and infinity as Rust writes them.
 pub fn compact(value: f64) -> String {

@@ -2296,6 +2296,11 @@ fn verify_says_what_a_receipt_lacks_and_checks_its_output_folder_first() {
         report.contains("data/peers/brenvale.csv: NOT HASHED in the receipt"),
         "{report}"
     );
+    // Neither a change nor a match: counted apart (found by review: "2 input files changed").
+    assert!(
+        report.contains("NOT REPRODUCED: 2 input files not hashed in the receipt; "),
+        "{report}"
+    );
     // A recorded figure so small that the difference's share overflows is given without it
     // (README: no non-finite number in an output).
     let (code, report) = verify_edited(&|r| r["peers"][0]["beta"] = serde_json::json!(5e-324));
@@ -2303,7 +2308,13 @@ fn verify_says_what_a_receipt_lacks_and_checks_its_output_folder_first() {
     assert!(
         report.contains(r#"MISMATCH peers[0].beta ("Brenvale Fluid Systems"): recorded 5e-324"#)
     );
-    assert!(!report.contains("inf"), "{report}");
+    assert!(!report.contains("inf%"), "{report}");
+    let (code, report) = verify_edited(&|r| r["kind"] = "banana".into());
+    assert_eq!(code, Some(2), "{report}");
+    assert!(
+        report.contains(r#"kind = "banana" is no kind of receipt hurdle writes"#),
+        "{report}"
+    );
     let (code, report) = verify_edited(&|r| r["kind"] = "universe".into());
     assert_eq!(code, Some(2), "{report}");
     assert!(
@@ -2329,11 +2340,12 @@ fn a_wide_table_read_for_several_series_is_one_changed_input() {
     run_case(&case_dir.join("case.toml"), &out, &["--no-figures"]);
     let prices = case_dir.join("data/prices.csv");
     let table = std::fs::read_to_string(&prices).unwrap();
-    let edited = table.replacen(
-        "2020-01-03,1018.00,0.02880,43.2418",
-        "2020-01-03,1018.00,0.02880,43.2419",
-        1,
-    );
+    // Brenvale's last price left empty: its column loses a row, the others keep theirs, and
+    // the file is still one changed input (found by review: grouped only by equal changes).
+    let last = table.lines().last().unwrap();
+    let mut cells: Vec<&str> = last.split(',').collect();
+    cells[3] = "";
+    let edited = table.replacen(last, &cells.join(","), 1);
     assert_ne!(edited, table);
     std::fs::write(&prices, edited).unwrap();
     let output = hurdle(&["verify", out.join("result.json").to_str().unwrap()]);
@@ -2349,6 +2361,10 @@ fn a_wide_table_read_for_several_series_is_one_changed_input() {
     );
     assert!(
         report.contains("NOT REPRODUCED: 1 input file changed;"),
+        "{report}"
+    );
+    assert!(
+        report.contains("peer:Brenvale Fluid Systems: rows "),
         "{report}"
     );
 }
@@ -2374,6 +2390,8 @@ fn compare_names_the_settings_and_files_behind_a_gap() {
     lines[row] = format!("{head},{moved:.4}");
     std::fs::write(&copy, lines.join("\n") + "\n").unwrap();
     let other = other.replacen("data/peers/fenhallow.csv", "data/peers/fenhallow_b.csv", 1);
+    // A key the second case sets and the first leaves out is named too (found by reviews).
+    let other = other.replacen("[beta]\n", "[beta]\nmax_stale_days = 10\n", 1);
     let b = case_dir.join("b.toml");
     std::fs::write(&b, other).unwrap();
     let output = hurdle(&["compare", case.to_str().unwrap(), b.to_str().unwrap()]);
@@ -2383,6 +2401,7 @@ fn compare_names_the_settings_and_files_behind_a_gap() {
         report.contains(r#"leverage.formula "hamada" → "harris-pringle""#),
         "{report}"
     );
+    assert!(report.contains("beta.max_stale_days none → 10"), "{report}");
     assert!(
         report.contains("whose bytes differ between the sides: peer:Fenhallow Seals"),
         "{report}"

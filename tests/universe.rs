@@ -890,11 +890,7 @@ fn quotes_and_short_rows_are_named_by_their_line() {
     refused(
         |dir| attributes_line(dir, &|row| industry_swapped(row, " \"Beta, Gamma & Co\"")),
         &[],
-        &[
-            "attributes.csv, line 3:",
-            "has 8 fields but the header has 7",
-            "a space before the quote",
-        ],
+        &["attributes.csv, line 3:", "has a quote after a space"],
     );
     refused(
         |dir| attributes_line(dir, &|row| industry_swapped(row, "\"Beta, Gamma\" & Co")),
@@ -903,6 +899,15 @@ fn quotes_and_short_rows_are_named_by_their_line() {
             "attributes.csv, line 3:",
             "has text after a quoted field's closing quote",
         ],
+    );
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 9);
+            let spaced = format!("{}, \"{}\",{}", cells[0], cells[1], cells[2]);
+            replace_line(&dir.join("prices-long.csv"), 9, &spaced);
+        },
+        &[],
+        &["prices-long.csv, line 9:", "has a quote after a space"],
     );
     refused(
         |dir| {
@@ -2143,5 +2148,82 @@ fn a_listed_peer_set_is_set_beside_its_industry() {
             ),
             &format!("the panel holds \"{}\"", ids[0]),
         ],
+    );
+}
+
+// A peer set drawn from two industries, one security each: the two labels tie, the first in
+// byte order is the home industry and the other is named; the set's median unlevered beta is
+// the mean of its two (a median of two values); its share of the home industry's unlevered
+// betas below it, ties counted half, is recomputed here from securities.csv (the percentile
+// rank's textbook mid-rank definition). A listed security not estimated is named as left out.
+#[test]
+fn a_peer_set_across_industries_names_the_tie_and_its_share() {
+    let setup = Setup::new();
+    let out = setup.succeeds("plain", &[]);
+    let table = read_table(&out.join("securities.csv"));
+    let column = |name: &str| -> Vec<String> {
+        let c = table.column(name).unwrap().cast(&DataType::String).unwrap();
+        (c.str().unwrap().iter())
+            .map(|v| v.unwrap_or("").to_string())
+            .collect()
+    };
+    let (ids, industries, unlevered, reasons) = (
+        column("security"),
+        column("industry"),
+        column("unlevered_beta"),
+        column("not_estimated"),
+    );
+    let first_of = |label: &str| {
+        (0..ids.len())
+            .find(|&i| industries[i] == label && !unlevered[i].is_empty())
+            .unwrap()
+    };
+    let (a, b) = (first_of("Industry A"), first_of("Industry B"));
+    let unestimated = (0..ids.len()).find(|&i| !reasons[i].is_empty()).unwrap();
+    assert!(industries[unestimated] != "Industry A" && industries[unestimated] != "Industry B");
+    let listed = format!(
+        "universe.peer_set=[\"{}\", \"{}\", \"{}\"]",
+        ids[b], ids[a], ids[unestimated]
+    );
+    let out = setup.succeeds("listed", &[&listed]);
+    let result: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let set = &result["peer_set"];
+    let value = |i: usize| unlevered[i].parse::<f64>().unwrap();
+    let median = (value(a) + value(b)) / 2.0;
+    // 1e-12 relative: the CSV writes each double to its shortest round-trip text, so the
+    // parsed values are the run's own; only the mean's rounding may differ.
+    let got = set["figures"]["unlevered_beta"].as_f64().unwrap();
+    assert!(
+        (got - median).abs() <= 1e-12 * median.abs(),
+        "{got} {median}"
+    );
+    assert_eq!(set["home_industry"], "Industry A");
+    // Every listed security counts by its label, the one not estimated too.
+    let mut tied = vec!["Industry B".to_string(), industries[unestimated].clone()];
+    tied.retain(|l| !l.is_empty());
+    tied.sort();
+    tied.dedup();
+    assert_eq!(set["tied_with"], serde_json::json!(tied));
+    assert_eq!(set["left_out"], serde_json::json!([ids[unestimated]]));
+    let home: Vec<f64> = (0..ids.len())
+        .filter(|&i| industries[i] == "Industry A" && !unlevered[i].is_empty())
+        .map(value)
+        .collect();
+    let below = home.iter().filter(|&&v| v < got).count() as f64;
+    let equal = home.iter().filter(|&&v| v == got).count() as f64;
+    let share = (below + equal / 2.0) / home.len() as f64;
+    assert_eq!(set["share_of_home_below"].as_f64().unwrap(), share);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains(&format!(
+            "(as many of the set carry {}; the first label in byte order",
+            tied.join(", ")
+        )),
+        "{summary}"
+    );
+    assert!(
+        summary.contains(&format!(" (1 not: {})", ids[unestimated])),
+        "{summary}"
     );
 }

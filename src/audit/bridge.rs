@@ -159,26 +159,37 @@ impl CaseFacts {
     /// on both sides whose bytes differ (found by review: a gap from a formula, an adjustment
     /// or edited prices was shown with nothing naming its cause).
     pub fn differences(&self, to: &CaseFacts) -> (Vec<String>, Vec<String>) {
+        // Every difference, a key set on the second side only among them (found by review:
+        // those were left out), each list entry named without verify's word for the sides.
         let found = super::verify::compare(&self.settings, &to.settings, 0.0);
-        let settings = (found.mismatches.iter().chain(&found.wording))
-            .map(|m| {
-                let shown = |v: &serde_json::Value| match v.is_null() {
-                    true => "none".to_string(),
-                    false => super::verify::shown(v),
-                };
-                format!(
-                    "{} {} → {}",
-                    m.place(),
-                    shown(&m.recorded),
-                    shown(&m.recomputed)
-                )
-            })
-            .collect();
-        let files = (self.files.iter())
-            .filter(|(role, sha256)| {
-                (to.files.iter()).any(|(other, hash)| other == role && hash != sha256)
-            })
-            .map(|(role, _)| role.clone())
+        let settings = (found
+            .mismatches
+            .iter()
+            .chain(&found.wording)
+            .chain(&found.added))
+        .map(|m| {
+            let shown = |v: &serde_json::Value| match v.is_null() {
+                true => "none".to_string(),
+                false => super::verify::shown(v),
+            };
+            let place = m.place().replace(" (rerun)", "");
+            format!("{place} {} → {}", shown(&m.recorded), shown(&m.recomputed))
+        })
+        .collect();
+        // One file read for several roles (a wide table) is one file, its roles in words.
+        let mut files: Vec<(Vec<&str>, (&str, &str))> = Vec::new();
+        for (role, sha256) in &self.files {
+            let Some((_, other)) = (to.files.iter()).find(|(r, h)| r == role && h != sha256) else {
+                continue;
+            };
+            let hashes = (sha256.as_str(), other.as_str());
+            match files.iter_mut().find(|(_, h)| *h == hashes) {
+                Some((roles, _)) => roles.push(role),
+                None => files.push((vec![role], hashes)),
+            }
+        }
+        let files = (files.iter())
+            .map(|(roles, _)| super::verify::roles_in_words(roles))
             .collect();
         (settings, files)
     }
@@ -202,8 +213,14 @@ impl CaseFacts {
             target_debt_to_equity: cost.target.debt_to_equity,
             debt_on_risk_free: cost.cost_of_debt.risk_free_rate.is_some(),
             settings: serde_json::to_value(&valuation.settings).unwrap_or_default(),
+            // The data files, and the spread table the cost of debt was read from (found by
+            // review: an edited spread went unnamed).
             files: (valuation.files.iter())
                 .map(|f| (f.role.clone(), f.sha256.clone()))
+                .chain(
+                    (cost.cost_of_debt.table.iter())
+                        .map(|t| ("spread table".to_string(), t.sha256.clone())),
+                )
                 .collect(),
         }
     }

@@ -8,6 +8,7 @@
 //! ([`WORDING_KEYS`]) and reads differently is listed apart: a later version may word it better,
 //! and the setting it describes is compared as a value of its own.
 
+mod checks;
 mod compare;
 mod files;
 mod mismatch;
@@ -21,10 +22,12 @@ use serde_json::Value;
 
 use crate::case::read_case;
 use crate::error::{Error, Result};
-use crate::valuation::{load_inputs, SCHEMA_VERSION};
+use crate::valuation::load_inputs;
+use checks::{check_kind, check_schema};
 pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
 use files::file_checks;
+pub(crate) use files::roles_in_words;
 pub use files::{by_file, FileCheck, FileGroup};
 pub use mismatch::{shown, Absent, Mismatch};
 
@@ -76,6 +79,12 @@ pub const MOVED_WITH_INPUTS_NOTE: &str = "a sentence reads differently because t
 changed and it quotes figures that moved with them; it is not a figure itself, and every \
 figure is compared";
 
+/// What a wording difference means when this version wrote the receipt and an input could not
+/// be checked (the receipt names it without a hash).
+pub const UNHASHED_WORDING_NOTE: &str = "a sentence reads differently and an input could not \
+be checked (the receipt names it without its SHA-256): the sentence may have moved with that \
+input, or been edited; it is not a figure, and every figure is compared";
+
 /// What a listed wording difference means, for the reader of a verification.
 pub const WORDING_NOTE: &str = "the version that wrote the receipt words some sentences \
 otherwise or writes other notes: a description of a setting, whose value is compared as a \
@@ -105,6 +114,10 @@ pub struct Verification {
     /// How many leaves were compared.
     pub compared: usize,
     pub mismatches: Vec<Mismatch>,
+    /// Whether sentences that differ count as mismatches: this very version wrote the receipt
+    /// from the same, checked inputs, so they were edited ([`Comparison::settle_wording`]).
+    #[serde(skip)]
+    pub sentences_are_figures: bool,
     /// Descriptions of settings ([`WORDING_KEYS`]) that read differently: not figures, and
     /// they do not make `reproduced` false.
     pub wording_differences: Vec<Mismatch>,
@@ -134,7 +147,17 @@ impl Verification {
     /// The input files (the case or universe file among them) whose SHA-256 differs.
     pub fn changed_inputs(&self) -> usize {
         let files = files::by_file(&self.files);
-        usize::from(!self.case_unchanged) + files.iter().filter(|g| !g.check.unchanged).count()
+        let case = !self.case_unchanged && self.case_hash_recorded;
+        let changed = |g: &&FileGroup| !g.check.unchanged && g.check.status != "unrecorded";
+        usize::from(case) + files.iter().filter(changed).count()
+    }
+
+    /// The input files the receipt names without a SHA-256 (the case or universe file among
+    /// them): they cannot be checked, which is neither a change nor a match.
+    pub fn unhashed_inputs(&self) -> usize {
+        let files = files::by_file(&self.files);
+        let unrecorded = files.iter().filter(|g| g.check.status == "unrecorded");
+        usize::from(!self.case_hash_recorded) + unrecorded.count()
     }
 
     /// The case's settings that differ from the receipt's (paths below `settings.`), which
@@ -171,11 +194,16 @@ impl Verification {
     /// The verdict's line: `REPRODUCED: …` or `NOT REPRODUCED: …`, saying apart whether input
     /// files changed and how many figures differ.
     pub fn verdict(&self) -> String {
-        let changed = match self.changed_inputs() {
+        let mut changed = match self.changed_inputs() {
             0 => String::new(),
             1 => "1 input file changed; ".into(),
             n => format!("{n} input files changed; "),
         };
+        match self.unhashed_inputs() {
+            0 => {}
+            1 => changed.push_str("1 input file not hashed in the receipt; "),
+            n => changed.push_str(&format!("{n} input files not hashed in the receipt; ")),
+        }
         format!(
             "{}: {changed}{} figures compared, {} mismatched (relative tolerance {}){}",
             if self.reproduced {
@@ -225,16 +253,23 @@ impl Verification {
     /// the figures the notes quote, which moved with them. (From this very version and the
     /// same inputs they are mismatches: [`Verification::edited_sentences`].)
     pub fn wording_note(&self) -> &'static str {
-        match self.recorded_tool_version == self.current_tool_version {
-            false => WORDING_NOTE,
-            true => MOVED_WITH_INPUTS_NOTE,
+        match (
+            self.recorded_tool_version == self.current_tool_version,
+            self.changed_inputs() > 0,
+        ) {
+            (false, _) => WORDING_NOTE,
+            (true, true) => MOVED_WITH_INPUTS_NOTE,
+            (true, false) => UNHASHED_WORDING_NOTE,
         }
     }
 
     /// The mismatches that are sentences ([`WORDING_KEYS`]), which only a receipt of this very
-    /// version from the same inputs counts as mismatches: edited by hand.
+    /// version from the same, checked inputs counts as mismatches: edited by hand.
     pub fn edited_sentences(&self) -> usize {
-        self.mismatches.iter().filter(|m| m.is_sentence()).count()
+        match self.sentences_are_figures {
+            true => self.mismatches.iter().filter(|m| m.is_sentence()).count(),
+            false => 0,
+        }
     }
 
     /// The wording differences for a verdict's line: empty without any, else how many
@@ -257,20 +292,6 @@ impl Verification {
         }
         out
     }
-}
-
-/// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.
-/// Schema 2 renamed fields and case keys (README, Changelog), so a rerun cannot match a
-/// version-1 receipt figure by figure, and its case may use keys this version refuses.
-fn older_schema(version: u64, written_by: &str) -> String {
-    format!(
-        "schema_version {version} is older than this hurdle's ({SCHEMA_VERSION}): schema 2 renamed \
-         fields and case keys (for example cash_corrected_unlevered_beta is now operations_beta, \
-         adjusted_beta is shrunk_beta, leverage.cash_correction is leverage.operations_beta; \
-         README, Changelog lists every one), so its figures cannot be compared name by name. \
-         Verify it with the version that wrote it ({written_by}), or rename the keys in its case \
-         file and rerun to write a new receipt"
-    )
 }
 
 /// A file given as a receipt that is plainly something else: a case file or a claimed build-up
@@ -328,22 +349,7 @@ pub fn verify(
     };
     let recorded = parse_receipt(receipt).map_err(fail)?;
     let receipt_sha256 = crate::io::series::sha256_hex(receipt.as_bytes());
-    // A receipt whose kind disagrees with the section naming the file it reruns was edited:
-    // named as such, not read as the other kind (found by review: a case receipt marked as a
-    // universe's was refused for its schema version).
-    let sections = (
-        recorded["case"].is_object(),
-        recorded["universe"].is_object(),
-    );
-    let kind = recorded["kind"].as_str().unwrap_or("case");
-    if let ("universe", (true, false)) | ("case", (false, true)) = (kind, sections) {
-        return Err(fail(format!(
-            "says kind = \"{kind}\" but records the file it reruns under `{}`: a receipt of \
-             the other kind whose kind was edited; restore its kind or verify the receipt the \
-             run wrote",
-            if sections.0 { "case" } else { "universe" }
-        )));
-    }
+    check_kind(&recorded).map_err(fail)?;
     if recorded["kind"] == "universe" {
         return universe::verify_universe(
             (receipt_path, receipt_sha256),
@@ -352,21 +358,7 @@ pub fn verify(
             tolerance,
         );
     }
-    let version = recorded["schema_version"]
-        .as_u64()
-        .ok_or_else(|| fail("has no schema_version; is it a hurdle result.json?".into()))?;
-    if version > u64::from(SCHEMA_VERSION) {
-        return Err(fail(format!(
-            "schema_version {version} is newer than this hurdle reads ({SCHEMA_VERSION}); verify with the version that wrote it ({})",
-            recorded["tool"]["version"].as_str().unwrap_or("unknown")
-        )));
-    }
-    if version < u64::from(SCHEMA_VERSION) {
-        return Err(fail(older_schema(
-            version,
-            recorded["tool"]["version"].as_str().unwrap_or("unknown"),
-        )));
-    }
+    check_schema(&recorded).map_err(fail)?;
     let text = |pointer: &str| {
         recorded
             .pointer(pointer)
@@ -389,7 +381,8 @@ pub fn verify(
     // A changed or moved data file is reported once, by its file check.
     (found.mismatches).retain(|m| !files::reported_with_its_file(&m.path, &recorded, &files));
     let inputs_unchanged = case_unchanged && files.iter().all(|f| f.unchanged);
-    found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
+    let sentences_are_figures =
+        found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
     found.mismatches.sort_by_key(|m| m.rank());
     let reproduced =
         case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
@@ -407,6 +400,7 @@ pub fn verify(
         tolerance,
         compared: found.compared,
         mismatches: found.mismatches,
+        sentences_are_figures,
         wording_differences: found.wording,
         added_by_this_version: added,
         known_changes,

@@ -217,7 +217,12 @@ fn notes(b: &Bridge) -> String {
          total by a basis point; bridge.csv holds them in full\n",
     );
     // Only when the D/E differs (found by review: said of two cases of one D/E).
-    if from.debt_weight * to.equity_weight != to.debt_weight * from.equity_weight {
+    // (Also when preferred equity on one side makes the weights' products differ by rounding.)
+    let (a, b) = (
+        from.debt_weight * to.equity_weight,
+        to.debt_weight * from.equity_weight,
+    );
+    if (a - b).abs() > 1e-12 * a.abs().max(b.abs()) {
         out.push_str(
             "note: each group is the figure the build-up carries: the beta is the relevered \
              beta, so a different D/E moves the beta line as well as the weights line (the \

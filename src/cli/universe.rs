@@ -170,8 +170,12 @@ fn summary(r: &UniverseResult) -> String {
     if let Some(p) = &r.peer_set {
         let shown = |x: Option<f64>| x.map_or("–".to_string(), |x| fixed(x, 3));
         lines.push(format!(
-            "  peer set: {} listed, unlevered beta {}; {} {}{}",
+            "  peer set: {} listed, {} {}; {} {}{}",
             p.securities.len(),
+            match r.settings.leverage.operations_beta {
+                true => "beta of the operations",
+                false => "unlevered beta",
+            },
             shown(p.figures.unlevered_beta),
             p.home_industry.as_deref().unwrap_or("no industry"),
             shown(p.home_unlevered_beta),

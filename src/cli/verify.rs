@@ -92,7 +92,12 @@ fn render(r: &Verification) -> String {
     }
     for group in by_file(&r.files) {
         let f = group.check;
-        out.push_str(&format!("  {} {}: {}\n", group.roles, f.path, f.describe()));
+        out.push_str(&format!(
+            "  {} {}: {}\n",
+            group.roles,
+            f.path,
+            group.describe()
+        ));
     }
     let versions = r.versions_note();
     if !versions.is_empty() {

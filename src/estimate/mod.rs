@@ -216,8 +216,9 @@ impl SecurityEstimate {
         let asset = &self.returns.asset;
         self.returns.asset_is_constant().then(|| {
             format!(
-                "its {} returns in the window are all {}: a price that never moves has zero \
-                 variance, and its beta of 0 carries no information",
+                "its {} returns in the window are all {} (to the rounding of computing them): \
+                 a price that never moves, or grows by one fixed rate, has zero variance in its \
+                 returns, and its beta of 0 carries no information",
                 asset.len(),
                 crate::error::compact(asset[0])
             )

@@ -123,9 +123,22 @@ struct Record {
     line: usize,
     range: std::ops::Range<usize>,
     fields: usize,
-    /// Whether text follows a quoted field's closing quote (`"a, b" c`), which no reader
-    /// takes.
-    after_quote: bool,
+    /// What is wrong with its quotes, if anything.
+    quoting: Option<Quoting>,
+}
+
+/// A record's quotes that no reader takes as the writer meant.
+#[derive(Clone, Copy, PartialEq)]
+enum Quoting {
+    /// Text after a quoted field's closing quote (`"a, b" c`).
+    AfterClosingQuote,
+    /// A quote inside an unquoted field, after spaces only (`, "X06"`): text, not a quoted
+    /// field, so the quotes become part of the value.
+    AfterSpace,
+    /// A quote inside an unquoted field elsewhere (`5"0`).
+    InsideField,
+    /// A quoted field still open at the end of the bytes.
+    NeverClosed,
 }
 
 /// Calls `visit` with each record of `bytes` (an empty line is a record of one empty field)
@@ -139,13 +152,17 @@ fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<R
         QuoteInQuoted,
     }
     let mut state = State::FieldStart;
-    let mut record = Record {
-        line: 0,
-        range: 0..0,
+    let fresh = |line, start| Record {
+        line,
+        range: start..start,
         fields: 1,
-        after_quote: false,
+        quoting: None,
     };
-    let mut line = 0;
+    let mut record = fresh(0, 0);
+    let (mut line, mut field_start) = (0, 0);
+    let flag = |record: &mut Record, what| {
+        record.quoting.get_or_insert(what);
+    };
     for (i, &b) in bytes.iter().enumerate() {
         state = match (state, b) {
             (State::Quoted, b'"') => State::QuoteInQuoted,
@@ -153,11 +170,23 @@ fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<R
             (State::FieldStart, b'"') | (State::QuoteInQuoted, b'"') => State::Quoted,
             (_, b',') => {
                 record.fields += 1;
+                field_start = i + 1;
                 State::FieldStart
             }
             (State::QuoteInQuoted, b'\r' | b'\n') => State::Unquoted,
             (State::QuoteInQuoted, _) => {
-                record.after_quote = true;
+                flag(&mut record, Quoting::AfterClosingQuote);
+                State::Unquoted
+            }
+            (State::Unquoted, b'"') => {
+                let spaces = bytes[field_start..i]
+                    .iter()
+                    .all(|&c| c == b' ' || c == b'\t');
+                let what = match spaces {
+                    true => Quoting::AfterSpace,
+                    false => Quoting::InsideField,
+                };
+                flag(&mut record, what);
                 State::Unquoted
             }
             _ => State::Unquoted,
@@ -169,59 +198,70 @@ fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<R
                 if visit(&record) {
                     return Some(record);
                 }
-                record = Record {
-                    line,
-                    range: i + 1..i + 1,
-                    fields: 1,
-                    after_quote: false,
-                };
-                state = State::FieldStart;
+                record = fresh(line, i + 1);
+                (state, field_start) = (State::FieldStart, i + 1);
             }
         }
     }
     record.range.end = bytes.len();
+    if state == State::Quoted {
+        flag(&mut record, Quoting::NeverClosed);
+    }
     (record.range.start < bytes.len() && visit(&record)).then_some(record)
 }
 
-/// The text of a record, without its line's carriage return.
+/// The text of a record, without its line's carriage return, cut to 80 characters.
 fn record_text(bytes: &[u8], record: &Record) -> String {
-    let text = String::from_utf8_lossy(&bytes[record.range.clone()]);
-    text.trim_end_matches('\r').to_string()
+    let end = record.range.end.min(record.range.start + 400);
+    let text = String::from_utf8_lossy(&bytes[record.range.start..end]);
+    text.trim_end_matches('\r')
+        .trim()
+        .chars()
+        .take(80)
+        .collect()
 }
 
-/// The first record of CSV `bytes` with more fields than `expected` (the header's count), or
-/// with fewer than `fewest` when it is given (an empty line is not a record): its first line
-/// (0-based), its field count and its text. Fields are split as RFC 4180 and polars split them
-/// ([`Record`]). What the panel and attributes readers use to name the line polars' "more
-/// fields than defined" refers to, and a short record polars would fill with empty cells (its
-/// cells would then shift into the wrong columns unseen).
-pub fn first_record_with_wrong_field_count(
+/// The first record of CSV `bytes` whose quotes no reader takes as meant ([`Quoting`]), or with
+/// more fields than `expected` (the header's count), or with fewer than `fewest` when it is
+/// given (an empty line is not a record): its first line (0-based) and the message, quoting
+/// its text. Fields are split as RFC 4180 and polars split them ([`Record`]). What the panel
+/// and attributes readers use to name the line polars' own messages do not give, and a short
+/// record polars would fill with empty cells (its cells would then shift into the wrong
+/// columns unseen).
+pub fn first_bad_record(
     bytes: &[u8],
     expected: usize,
     fewest: Option<usize>,
-) -> Option<(usize, usize, String)> {
+) -> Option<(usize, String)> {
     let found = find_record(bytes, |r| {
         let raw = &bytes[r.range.clone()];
         let blank = raw.is_empty() || raw == b"\r";
         let short = fewest.is_some_and(|fewest| r.fields < fewest) && !blank;
-        r.fields > expected || short
+        r.quoting.is_some() || r.fields > expected || short
     })?;
-    Some((found.line, found.fields, record_text(bytes, &found)))
-}
-
-/// The first record of CSV `bytes` with text after a quoted field's closing quote (`"Beta,
-/// Gamma" & Co`): its first line (0-based) and the message, which polars' own does not give.
-pub fn first_misquoted_record(bytes: &[u8]) -> Option<(usize, String)> {
-    let found = find_record(bytes, |r| r.after_quote)?;
-    let shown: String = record_text(bytes, &found).trim().chars().take(80).collect();
-    Some((
-        found.line,
-        format!(
-            "`{shown}` has text after a quoted field's closing quote; a quote inside quoted text \
+    let text = record_text(bytes, &found);
+    let message = match found.quoting {
+        Some(Quoting::AfterClosingQuote) => format!(
+            "`{text}` has text after a quoted field's closing quote; a quote inside quoted text \
              is written twice (\"\"), and a field holding a comma is quoted whole, its quote \
              right after the comma"
         ),
-    ))
+        Some(Quoting::AfterSpace) => format!(
+            "`{text}` has a quote after a space, which makes the quote part of the value, not \
+             the start of a quoted field: write the quote right after the comma (`,\"…\"`), or \
+             no quotes at all"
+        ),
+        Some(Quoting::InsideField) => format!(
+            "`{text}` has a quote inside a field that is not quoted; quote the whole field and \
+             write the quote inside it twice (\"5\"\"0\"), or remove it"
+        ),
+        Some(Quoting::NeverClosed) => format!(
+            "`{text}` opens a quoted field that is never closed (the file ends inside it): \
+             close the quote, or remove it"
+        ),
+        None => extra_fields_message(found.fields, expected, &text),
+    };
+    Some((found.line, message))
 }
 
 /// The message for a record with more fields than the header (its text shortened to 80
@@ -236,15 +276,10 @@ pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> Strin
              cells are read into the wrong columns"
         );
     }
-    // A quote after a space is text, not the start of a quoted field (found by review).
-    let spaced = match shown.contains(", \"") {
-        true => " (its quote right after the comma: `, \"` has a space before the quote, which makes the quote text)",
-        false => "",
-    };
     format!(
         "`{shown}` has {fields} fields but the header has {expected}; numbers take a decimal \
          point and no thousands separator (43.7678, not 43,7678), and text holding a comma must \
-         be quoted{spaced}"
+         be quoted"
     )
 }
 
@@ -492,30 +527,40 @@ pub fn is_one_line(text: &str) -> bool {
 mod tests {
     use super::*;
 
-    // RFC 4180 §2, rules 5-7: a quoted field may hold commas, line breaks and doubled quotes;
-    // a quote is a field's quote only as its first character. Counted by hand.
+    // RFC 4180 §2, rules 5-7: a quoted field may hold commas, line breaks (LF or CRLF) and
+    // doubled quotes; a quote is a field's quote only as its first character. Counted by hand.
     #[test]
     fn records_are_split_as_rfc_4180_splits_them() {
-        let text = b"a,b,c\n\"x, \"\"y\"\"\nz\",2,3\nq, \"r, s\",4\n\"t\"u,5,6\n";
-        // The quoted field spans lines 2-3 and holds a comma and doubled quotes: 3 fields.
-        assert_eq!(
-            first_record_with_wrong_field_count(text, 3, Some(3))
-                .unwrap()
-                .0,
-            3
+        let good = b"a,b,c\n\"x, \"\"y\"\"\r\nz\",2,3\n\nq,\"r\",4\r\n";
+        assert_eq!(first_bad_record(good, 3, Some(3)), None);
+        let bad = |text: &[u8]| first_bad_record(text, 3, Some(3)).unwrap();
+        let (line, message) = bad(b"a,b,c\n\"x,\ny\",2,3\nq, \"r, s\",4\n");
+        assert_eq!(line, 3);
+        assert!(
+            message.starts_with("`q, \"r, s\",4` has a quote after a space"),
+            "{message}"
         );
-        let (line, fields, shown) = first_record_with_wrong_field_count(text, 3, None).unwrap();
-        assert_eq!((line, fields, shown.as_str()), (3, 4, "q, \"r, s\",4"));
-        assert_eq!(first_misquoted_record(text).map(|(line, _)| line), Some(4));
-        assert_eq!(
-            first_record_with_wrong_field_count(b"a,b\r\n1,2\r\n", 2, Some(2)),
-            None
+        let (line, message) = bad(b"a,b,c\n1,\"t\"u,6\n");
+        assert_eq!(line, 1);
+        assert!(
+            message.contains("text after a quoted field's closing quote"),
+            "{message}"
         );
-        assert_eq!(first_misquoted_record(b"a,\"b\"\r\n\"1\",\"\"\n"), None);
+        assert!(bad(b"a,b,c\n1,5\"0,6\n")
+            .1
+            .contains("a quote inside a field"));
+        let (line, message) = bad(b"a,b,c\n1,2,3\n4,\"5,6\n7,8,9\n");
+        assert_eq!(line, 2);
+        assert!(message.contains("never closed"), "{message}");
+        let (line, message) = bad(b"a,b,c\n1,2\r\n");
+        assert_eq!(line, 1);
+        assert!(
+            message.starts_with("`1,2` has 2 fields but the header has 3"),
+            "{message}"
+        );
+        assert_eq!(bad(b"a,b,c\n1,2,3,4\n").0, 1);
     }
 
-    // Worked by hand: line and byte counted from 1; CRLF and a CR ending the bytes are not
-    // lone carriage returns.
     #[test]
     fn a_lone_carriage_return_is_found_at_its_line_and_byte() {
         assert_eq!(

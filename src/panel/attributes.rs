@@ -17,9 +17,7 @@ use super::{check_label, Source, TableFormat};
 use crate::error::{Error, Result};
 use crate::io::guard;
 use crate::io::parquet_types::unreadable_column;
-use crate::io::sanity::{
-    extra_fields_message, first_misquoted_record, first_record_with_wrong_field_count,
-};
+use crate::io::sanity::first_bad_record;
 
 /// Which columns of the attributes table hold what.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -105,15 +103,8 @@ pub fn read_attributes(
             let header = super::header::header(&source, &bytes)?;
             super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
-            if let Some((line, fields, text)) = first_record_with_wrong_field_count(
-                &bytes,
-                expected,
-                Some(crate::io::sanity::fewest_fields(&header)),
-            ) {
-                let message = extra_fields_message(fields, expected, &text);
-                return Err(source.row_error(line.saturating_sub(1), message));
-            }
-            if let Some((line, message)) = first_misquoted_record(&bytes) {
+            let fewest = crate::io::sanity::fewest_fields(&header);
+            if let Some((line, message)) = first_bad_record(&bytes, expected, Some(fewest)) {
                 return Err(source.row_error(line.saturating_sub(1), message));
             }
             CsvReadOptions::default()
@@ -129,7 +120,10 @@ pub fn read_attributes(
             frame
         }
     }
-    .map_err(|e| source.file_error(format!("not a readable table: {e}")))?;
+    .map_err(|e| {
+        let message = crate::error::reader_message(&e);
+        source.file_error(format!("not a readable table: {message}"))
+    })?;
     let records = records(&source, &frame, whole_header, columns)?;
     let mut order: Vec<usize> = (0..records.len()).collect();
     order.sort_by(|&a, &b| records[a].security.cmp(&records[b].security));

@@ -17,14 +17,15 @@ use polars::prelude::*;
 
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
+use super::checks::{
+    check_records, check_unnamed, check_wide_fields, has_empty_cells, unnamed_error,
+};
 use super::header::{check_repeated_names, header};
 use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
 use crate::error::{Error, Result};
-use crate::io::sanity::{
-    extra_fields_message, first_misquoted_record, first_record_with_wrong_field_count,
-};
+use crate::io::sanity::first_bad_record;
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
 /// stay in cache between the stages (measured best among 4, 16 and 64 MiB on the benchmark).
@@ -81,16 +82,17 @@ pub(super) fn read(
             let plan = plan.as_ref().expect("set by the first block");
             let frame = parse(block, plan, first, quoted)
                 .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
-            check_unnamed(source, plan, &frame, next_row)?;
+            check_unnamed(source, &plan.unnamed, &frame, next_row)?;
             let height = frame.height();
             if columns.layout == PanelLayout::Wide {
                 let rows = (next_row, height);
                 check_wide_fields(source, block, (first, quoted), rows, &plan.header)?;
-            } else if has_empty_cells(&frame, columns) {
+            } else if quoted || has_empty_cells(&frame, columns) {
                 // A row cut short leaves its last cells empty, which would be reported as a
-                // missing price of the wrong security (found by review): its fields are
-                // counted first, on this rare path only.
-                check_short_records(source, block, (first, next_row), &plan.header)?;
+                // missing price of the wrong security, and a quote after a space becomes part
+                // of an id (found by reviews): such blocks' records are read one by one, on
+                // this rare path only.
+                check_records(source, block, (first, next_row), &plan.header)?;
             }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             frames
@@ -339,84 +341,6 @@ fn read_block(
         .finish()
 }
 
-/// Whether a long block's security or price column has an empty cell (polars counts them as
-/// it parses).
-fn has_empty_cells(frame: &DataFrame, columns: &PanelColumns) -> bool {
-    [&columns.security_column, &columns.price_column]
-        .iter()
-        .any(|name| frame.column(name).is_ok_and(|c| c.null_count() > 0))
-}
-
-/// The first record of a block with fewer (or more) fields than the header, as an error.
-fn check_short_records(
-    source: &Source,
-    block: &[u8],
-    (has_header, first_row): (bool, usize),
-    header: &[String],
-) -> Result<()> {
-    let (expected, fewest) = (header.len(), crate::io::sanity::fewest_fields(header));
-    match first_record_with_wrong_field_count(block, expected, Some(fewest)) {
-        Some((line, fields, text)) => {
-            let row = (first_row + line).saturating_sub(usize::from(has_header));
-            Err(source.row_error(row, extra_fields_message(fields, expected, &text)))
-        }
-        None => Ok(()),
-    }
-}
-
-/// A wide panel's row with fewer fields than the header would leave its last securities' cells
-/// empty, read as gaps: it is refused (a header alone ending in a comma lets rows omit that
-/// last, unnamed field). The commas of a quote-free block of complete records number records ×
-/// (fields − 1); a block where they do not, or with a quote (a quoted comma would make up for
-/// a missing one), is read record by record.
-fn check_wide_fields(
-    source: &Source,
-    block: &[u8],
-    (has_header, quoted): (bool, bool),
-    (first_row, rows): (usize, usize),
-    header: &[String],
-) -> Result<()> {
-    let (records, expected) = (rows + usize::from(has_header), header.len());
-    if !quoted && memchr::memchr_iter(b',', block).count() == records * (expected - 1) {
-        return Ok(());
-    }
-    check_short_records(source, block, (has_header, first_row), header)
-}
-
-/// A wide panel's column that the header does not name may not hold a price: whose would it
-/// be? (A trailing comma on every line gives such a column, empty, and is accepted.)
-fn check_unnamed(source: &Source, plan: &Plan, frame: &DataFrame, first_row: usize) -> Result<()> {
-    for (number, name) in &plan.unnamed {
-        let Ok(cells) = frame.column(name).and_then(|c| c.f64().cloned()) else {
-            continue;
-        };
-        let first = cells
-            .iter()
-            .enumerate()
-            .find_map(|(k, v)| v.map(|v| (k, v)));
-        if let Some((k, value)) = first {
-            return Err(unnamed_error(
-                source,
-                *number,
-                first_row + k,
-                &value.to_string(),
-            ));
-        }
-    }
-    Ok(())
-}
-
-/// The error for a value in a column the header leaves unnamed.
-fn unnamed_error(source: &Source, number: usize, row: usize, value: &str) -> Error {
-    source.row_error(
-        row,
-        format!(
-            "column {number} has no name in the header but holds \"{value}\": a wide panel's \
-             columns are named by security"
-        ),
-    )
-}
-
 /// Moves a parsed block into `rows`.
 fn push_frame(
     rows: &mut Rows,
@@ -466,12 +390,9 @@ fn diagnose(
     error: &PolarsError,
 ) -> Error {
     let expected = plan.header.len();
-    let row = |line: usize| (first_row + line).saturating_sub(usize::from(has_header));
-    if let Some((line, fields, text)) = first_record_with_wrong_field_count(block, expected, None) {
-        return source.row_error(row(line), extra_fields_message(fields, expected, &text));
-    }
-    if let Some((line, message)) = first_misquoted_record(block) {
-        return source.row_error(row(line), message);
+    if let Some((line, message)) = first_bad_record(block, expected, None) {
+        let row = (first_row + line).saturating_sub(usize::from(has_header));
+        return source.row_error(row, message);
     }
     let price_columns: Vec<&str> = match columns.layout {
         PanelLayout::Long => vec![columns.price_column.as_str()],
@@ -526,8 +447,9 @@ fn diagnose(
         }
     }
     source.file_error(format!(
-        "cannot be read as CSV in the rows from {}: {error}",
-        source.place(first_row)
+        "cannot be read as CSV in the rows from {}: {}",
+        source.place(first_row),
+        crate::error::reader_message(error)
     ))
 }
 

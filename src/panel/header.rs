@@ -28,13 +28,25 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
             message: crate::io::sanity::lone_carriage_return(column),
         });
     }
+    // A header whose quotes no reader takes as meant is named at its line, before polars
+    // gives its own message (found by review).
+    if let Some((_, message)) = crate::io::sanity::first_bad_record(block, usize::MAX, None) {
+        return Err(Error::DataRow {
+            file: source.file.clone(),
+            line: 1,
+            message,
+        });
+    }
     let frame = CsvReadOptions::default()
         .with_has_header(false)
         .with_infer_schema_length(Some(0))
         .with_n_rows(Some(1))
         .into_reader_with_file_handle(Cursor::new(block))
         .finish()
-        .map_err(|e| source.file_error(format!("not a readable CSV file: {e}")))?;
+        .map_err(|e| {
+            let message = crate::error::reader_message(&e);
+            source.file_error(format!("not a readable CSV file: {message}"))
+        })?;
     let names: Vec<String> = frame
         .columns()
         .iter()

@@ -13,6 +13,7 @@
 pub mod attributes;
 mod blocks;
 mod cells;
+mod checks;
 mod csv;
 mod header;
 mod parquet;

@@ -50,6 +50,38 @@ fn differences(w: &mut String, header: &[&str], list: &[Mismatch]) {
     }
 }
 
+/// Each input file's hash check, one row per file (a wide table's roles on one row).
+fn files_table(w: &mut String, r: &Verification) {
+    let _ = writeln!(
+        w,
+        "| Role | File | Status | Recorded SHA-256 | Current SHA-256 |"
+    );
+    let _ = writeln!(w, "|---|---|---|---|---|");
+    for group in by_file(&r.files) {
+        let f = group.check;
+        let status = match f.status {
+            "unchanged" => "unchanged".to_string(),
+            "changed" => "**changed**".to_string(),
+            "dropped" => "**no longer read**".to_string(),
+            "unrecorded" => "**no hash in the receipt**".to_string(),
+            _ => "**not in the receipt**".to_string(),
+        };
+        let status = match &f.current_path {
+            Some(now) => format!("{status}; read now from `{now}`"),
+            None => status,
+        };
+        let hash = |h: &Option<String>| h.as_ref().map_or("—".to_string(), |h| format!("`{h}`"));
+        let _ = writeln!(
+            w,
+            "| {} | `{}` | {status} | {} | {} |",
+            group.roles,
+            f.path,
+            hash(&f.recorded_sha256),
+            hash(&f.current_sha256)
+        );
+    }
+}
+
 /// The verification report as Markdown.
 pub fn markdown(r: &Verification) -> String {
     let mut out = String::new();
@@ -85,34 +117,7 @@ pub fn markdown(r: &Verification) -> String {
             list.join(", ")
         );
     }
-    let _ = writeln!(
-        w,
-        "| Role | File | Status | Recorded SHA-256 | Current SHA-256 |"
-    );
-    let _ = writeln!(w, "|---|---|---|---|---|");
-    for group in by_file(&r.files) {
-        let f = group.check;
-        let status = match f.status {
-            "unchanged" => "unchanged".to_string(),
-            "changed" => "**changed**".to_string(),
-            "dropped" => "**no longer read**".to_string(),
-            "unrecorded" => "**no hash in the receipt**".to_string(),
-            _ => "**not in the receipt**".to_string(),
-        };
-        let status = match &f.current_path {
-            Some(now) => format!("{status}; read now from `{now}`"),
-            None => status,
-        };
-        let hash = |h: &Option<String>| h.as_ref().map_or("—".to_string(), |h| format!("`{h}`"));
-        let _ = writeln!(
-            w,
-            "| {} | `{}` | {status} | {} | {} |",
-            group.roles,
-            f.path,
-            hash(&f.recorded_sha256),
-            hash(&f.current_sha256)
-        );
-    }
+    files_table(w, r);
     differences(
         w,
         &["Figure", "Recorded", "Recomputed", "Difference"],

@@ -99,6 +99,11 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         rolling,
     );
     let (panel, found) = read_panel_estimating(&universe, &estimation)?;
+    let listed = &universe.settings.universe.peer_set;
+    peer_set::check(listed, panel.securities()).map_err(|message| Error::Case {
+        file: universe.path.clone(),
+        message,
+    })?;
     Ok(UniverseInputs {
         early: EarlyEstimates::new(spec, rolling, found),
         universe,
@@ -313,12 +318,6 @@ pub fn evaluate(
         rolling,
     );
     check_overlap(inputs, &estimation)?;
-    peer_set::check(&settings.universe.peer_set, inputs.panel.securities()).map_err(|message| {
-        Error::Case {
-            file: inputs.universe.path.clone(),
-            message,
-        }
-    })?;
     let panel = &inputs.panel;
     let estimates = estimate_all(panel, &estimation, early, progress)?;
     let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
@@ -327,23 +326,7 @@ pub fn evaluate(
         cash_column: settings.attributes.cash_column.is_some(),
         periods_in_window: estimation.window().period_ends().len(),
     };
-    let (securities, rolling): (Vec<SecurityResult>, Vec<Vec<RollingPoint>>) = estimates
-        .into_iter()
-        .zip(adjusted)
-        .enumerate()
-        .map(|(i, (estimate, adjusted))| {
-            let id = &panel.securities()[i];
-            let row = security_row(
-                id,
-                panel.series(i).values.len(),
-                &estimate,
-                adjusted.as_ref(),
-                inputs.attributes.get(id),
-                &row_settings,
-            );
-            (row, estimate.rolling)
-        })
-        .unzip();
+    let (securities, rolling) = rows(inputs, (estimates, adjusted), &row_settings);
     let adjusted_betas = settings.beta.adjustment != Adjustment::None;
     let industries = industries::industry_table(&securities, &settings.leverage, adjusted_betas);
     let peer_set = peer_set::peer_set(
@@ -388,6 +371,32 @@ pub fn evaluate(
         securities,
         rolling,
     })
+}
+
+/// Each security's row and rolling betas, from its estimate and its adjusted beta.
+fn rows(
+    inputs: &UniverseInputs,
+    (estimates, adjusted): (Vec<SecurityEstimate>, Vec<Option<AdjustedBeta>>),
+    row_settings: &RowSettings<'_>,
+) -> (Vec<SecurityResult>, Vec<Vec<RollingPoint>>) {
+    let panel = &inputs.panel;
+    estimates
+        .into_iter()
+        .zip(adjusted)
+        .enumerate()
+        .map(|(i, (estimate, adjusted))| {
+            let id = &panel.securities()[i];
+            let row = security_row(
+                id,
+                panel.series(i).values.len(),
+                &estimate,
+                adjusted.as_ref(),
+                inputs.attributes.get(id),
+                row_settings,
+            );
+            (row, estimate.rolling)
+        })
+        .unzip()
 }
 
 /// A panel that shares no dates with the index inside the window is an input error, not a

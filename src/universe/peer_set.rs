@@ -22,11 +22,18 @@ pub struct PeerSetResult {
     pub securities: Vec<String>,
     /// The set's figures, computed as an industry's are.
     pub figures: IndustryResult,
-    /// How many of the set carry each industry label (none: no industry).
+    /// How many of the set carry each industry label.
     pub industries: BTreeMap<String, usize>,
+    /// How many of the set have no industry label.
+    pub without_industry: usize,
+    /// The listed securities that enter none of the set's figures: not estimated, or left out
+    /// by `beta.exclude_flags`.
+    pub left_out: Vec<String>,
     /// The label most of the set carry (the first in byte order on a tie); `None` when none has
     /// one.
     pub home_industry: Option<String>,
+    /// The other labels as many of the set carry as the home industry's, when there is a tie.
+    pub tied_with: Vec<String>,
     /// The home industry's figure a case would relever.
     pub home_unlevered_beta: Option<f64>,
     /// Of the home industry's securities aggregated with the figure its industry beta is taken
@@ -72,22 +79,15 @@ pub fn peer_set(
         .collect();
     let figures = industry_row(PEER_SET_LABEL, &members, leverage, adjusted);
     let mut by_industry: BTreeMap<String, usize> = BTreeMap::new();
-    for s in &members {
-        let label = s.industry.clone().unwrap_or_else(|| "no industry".into());
-        *by_industry.entry(label).or_default() += 1;
+    for label in members.iter().filter_map(|s| s.industry.as_ref()) {
+        *by_industry.entry(label.clone()).or_default() += 1;
     }
-    let home = (members.iter())
-        .filter_map(|s| s.industry.as_deref())
-        .fold(BTreeMap::<&str, usize>::new(), |mut counts, label| {
-            *counts.entry(label).or_default() += 1;
-            counts
-        })
-        .into_iter()
-        .fold(None, |best: Option<(&str, usize)>, (label, n)| match best {
-            Some((_, m)) if m >= n => best,
-            _ => Some((label, n)),
-        })
-        .map(|(label, _)| label.to_string());
+    let most = by_industry.values().copied().max().unwrap_or(0);
+    let mut tops = (by_industry.iter())
+        .filter(|(_, &n)| n == most)
+        .map(|(l, _)| l.clone());
+    let home = tops.next();
+    let tied_with: Vec<String> = tops.collect();
     let home_row = (industries.iter()).find(|i| Some(&i.industry) == home.as_ref());
     let figure = |s: &SecurityResult| match leverage.operations_beta {
         true => s.operations_beta,
@@ -108,7 +108,13 @@ pub fn peer_set(
     Some(PeerSetResult {
         securities: listed.to_vec(),
         figures,
+        without_industry: members.iter().filter(|s| s.industry.is_none()).count(),
+        left_out: (members.iter())
+            .filter(|s| !s.aggregated())
+            .map(|s| s.security.clone())
+            .collect(),
         industries: by_industry,
+        tied_with,
         home_unlevered_beta: home_row.and_then(|i| i.unlevered_beta),
         home_industry: home,
         share_of_home_below: share,

@@ -124,10 +124,12 @@ impl Comparison {
 
     /// The wording differences of a receipt this very version wrote from the same inputs
     /// (`same_source`) are edits, moved among the mismatches; otherwise they stay apart.
-    pub fn settle_wording(&mut self, same_source: bool) {
+    /// Returns `same_source`: whether sentences now count as figures.
+    pub fn settle_wording(&mut self, same_source: bool) -> bool {
         if same_source {
             self.mismatches.append(&mut self.wording);
         }
+        same_source
     }
 }
 

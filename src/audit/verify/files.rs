@@ -45,6 +45,8 @@ impl FileCheck {
             (None, _) => "added",
         };
         let (recorded_path, recorded_sha256) = recorded.unzip();
+        // A hash the receipt does not record is none, not an empty one.
+        let recorded_sha256 = recorded_sha256.filter(|hash| !hash.is_empty());
         let (current_path, current_sha256) = current.unzip();
         let path = recorded_path
             .clone()
@@ -106,6 +108,18 @@ pub struct FileGroup<'a> {
     /// The roles, in words: `index, risk_free and 8 peers`.
     pub roles: String,
     pub check: &'a FileCheck,
+    /// What else differs of the file, by role when the roles differ in it (one column's rows
+    /// changed, the others' not).
+    pub changes: Vec<String>,
+}
+
+impl FileGroup<'_> {
+    /// The group's state in words, as [`FileCheck::describe`] gives one check's.
+    pub fn describe(&self) -> String {
+        let mut check = self.check.clone();
+        check.changes = self.changes.clone();
+        check.describe()
+    }
 }
 
 /// The checks grouped by file: each file once, in the order of its first check.
@@ -113,25 +127,38 @@ pub fn by_file(checks: &[FileCheck]) -> Vec<FileGroup<'_>> {
     let same = |a: &FileCheck, b: &FileCheck| {
         (a.path == b.path && a.current_path == b.current_path && a.status == b.status)
             && (a.recorded_sha256 == b.recorded_sha256 && a.current_sha256 == b.current_sha256)
-            && a.changes == b.changes
     };
-    let mut groups: Vec<(Vec<&str>, &FileCheck)> = Vec::new();
+    let mut groups: Vec<Vec<&FileCheck>> = Vec::new();
     for check in checks {
-        match groups.iter_mut().find(|(_, first)| same(first, check)) {
-            Some((roles, _)) => roles.push(&check.role),
-            None => groups.push((vec![check.role.as_str()], check)),
+        match groups.iter_mut().find(|group| same(group[0], check)) {
+            Some(group) => group.push(check),
+            None => groups.push(vec![check]),
         }
     }
     (groups.into_iter())
-        .map(|(roles, check)| FileGroup {
-            roles: roles_in_words(&roles),
-            check,
+        .map(|group| {
+            let roles: Vec<&str> = group.iter().map(|c| c.role.as_str()).collect();
+            let changes = match group.iter().all(|c| c.changes == group[0].changes) {
+                true => group[0].changes.clone(),
+                false => (group.iter())
+                    .flat_map(|c| {
+                        c.changes
+                            .iter()
+                            .map(|change| format!("{}: {change}", c.role))
+                    })
+                    .collect(),
+            };
+            FileGroup {
+                roles: roles_in_words(&roles),
+                check: group[0],
+                changes,
+            }
         })
         .collect()
 }
 
 /// Roles in words: up to three by name, else the other roles by name and the peers counted.
-fn roles_in_words(roles: &[&str]) -> String {
+pub(crate) fn roles_in_words(roles: &[&str]) -> String {
     if roles.len() <= 3 {
         return roles.join(", ");
     }

@@ -95,9 +95,14 @@ const KNOWN_CHANGES: [KnownChange; 2] = [
     KnownChange {
         version: "0.2.0",
         kind: "case",
-        paths: &["cost_of_debt", "wacc", "settings.debt"],
-        explain: |receipt, _| {
-            (receipt["cost_of_debt"]["source"] == "coverage").then(|| {
+        paths: &["cost_of_debt"],
+        // Only a coverage on its row's threshold (found by review: named for any coverage).
+        explain: |receipt, rerun| {
+            let cost = &rerun["cost_of_debt"];
+            let on_threshold = (cost["interest_coverage"].as_f64())
+                .zip(cost["row"]["min_coverage"].as_f64())
+                .is_some_and(|(coverage, low)| coverage <= low);
+            (receipt["cost_of_debt"]["source"] == "coverage" && on_threshold).then(|| {
                 "hurdle 0.2.0 gives an interest coverage equal to a coverage table's threshold \
                  that threshold's row (its double lies an ulp below the threshold, and an \
                  earlier version gave it the next worse rating and spread): a coverage on a \
@@ -119,19 +124,25 @@ const KNOWN_CHANGES: [KnownChange; 2] = [
                 _ => return None,
             };
             let applies = leverage["debt_beta_source"] == "none";
-            applies.then(|| {
-                let negative: Vec<&str> = (rerun["securities"].as_array().into_iter().flatten())
-                    .filter(|s| s["beta"].as_f64().is_some_and(|b| b < 0.0))
-                    .filter_map(|s| s["security"].as_str())
-                    .collect();
-                let which = match negative.len() {
-                    0 => String::new(),
-                    n => format!(
-                        "; here {n} securit{} a negative beta: {}",
-                        if n == 1 { "y has" } else { "ies have" },
-                        crate::universe::notes::first_ids(&negative)
-                    ),
-                };
+            // The securities it concerns: those unlevered now from a negative beta (the raw
+            // or the adjusted one, whichever is unlevered; unlevering keeps the sign), none of
+            // which an earlier version unlevered (found by review: named by the raw beta, and
+            // also when no security was negative).
+            let negative: Vec<&str> = (rerun["securities"].as_array().into_iter().flatten())
+                .filter(|s| s["unlevered_beta"].as_f64().is_some_and(|b| b < 0.0))
+                .filter_map(|s| s["security"].as_str())
+                .collect();
+            (applies && !negative.is_empty()).then(|| {
+                let which = format!(
+                    "; here {} securit{} unlevered from a negative beta: {}",
+                    negative.len(),
+                    if negative.len() == 1 {
+                        "y is"
+                    } else {
+                        "ies are"
+                    },
+                    crate::universe::notes::first_ids(&negative)
+                );
                 format!(
                     "hurdle 0.4.0 unlevers a negative equity beta under {formula} without a \
                      given debt beta, as a case does, where an earlier version left such a \
@@ -190,8 +201,10 @@ mod tests {
     fn a_known_change_is_named_only_where_it_moves_figures() {
         let receipt = |formula: &str, source: &str| json!({"settings": {"leverage": {"formula": formula, "debt_beta_source": source}}});
         let rerun = json!({"securities": [
-            {"security": "X05", "beta": -0.2}, {"security": "X06", "beta": 0.4},
-            {"security": "X08", "beta": -0.01}, {"security": "X09", "beta": null},
+            {"security": "X05", "beta": -0.2, "unlevered_beta": -0.18},
+            {"security": "X06", "beta": 0.4, "unlevered_beta": 0.35},
+            {"security": "X08", "beta": -0.01, "unlevered_beta": -0.009},
+            {"security": "X09", "beta": null, "unlevered_beta": null},
         ]});
         let counts = mismatch("counts.unlevered");
         let found = |versions, receipt: &Value, differences: &[&Mismatch]| {
@@ -202,7 +215,12 @@ mod tests {
         assert_eq!(named.len(), 1);
         assert!(named[0]
             .starts_with("hurdle 0.4.0 unlevers a negative equity beta under Harris–Pringle"));
-        assert!(named[0].ends_with("here 2 securities have a negative beta: X05, X08"));
+        assert!(
+            named[0].ends_with("here 2 securities are unlevered from a negative beta: X05, X08")
+        );
+        let positive = json!({"securities": [{"security": "X06", "unlevered_beta": 0.35}]});
+        let versions = ("0.3.0", "0.4.0");
+        assert!(known_changes("universe", versions, &[&counts], (&hp, &positive)).is_empty());
         assert!(found(("0.4.0", "0.4.0"), &hp, &[&counts]).is_empty());
         assert!(found(("0.3.0", "0.4.0"), &receipt("hamada", "none"), &[&counts]).is_empty());
         assert!(found(("0.3.0", "0.4.0"), &receipt("conine", "given"), &[&counts]).is_empty());
@@ -215,9 +233,12 @@ mod tests {
         // coverage table and moved.
         let coverage = json!({"cost_of_debt": {"source": "coverage"}});
         let moved = mismatch("cost_of_debt.pre_tax");
+        let on = json!({"cost_of_debt": {"interest_coverage": 4.2, "row": {"min_coverage": 4.2}}});
         let case = |versions, receipt: &Value| {
-            known_changes("case", versions, &[&moved], (receipt, &Value::Null)).len()
+            known_changes("case", versions, &[&moved], (receipt, &on)).len()
         };
+        let off = json!({"cost_of_debt": {"interest_coverage": 4.4, "row": {"min_coverage": 4.2}}});
+        assert!(known_changes("case", ("0.1.0", "0.5.0"), &[&moved], (&coverage, &off)).is_empty());
         assert_eq!(case(("0.1.0", "0.5.0"), &coverage), 1);
         assert_eq!(case(("0.2.0", "0.5.0"), &coverage), 0);
         assert_eq!(

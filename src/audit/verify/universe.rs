@@ -55,7 +55,8 @@ pub fn verify_universe(
     let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
     (found.mismatches).retain(|m| !reported_with_its_file(&m.path, &files));
     let inputs_unchanged = unchanged && files.iter().all(|f| f.unchanged);
-    found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
+    let sentences_are_figures =
+        found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
     let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
     let known_changes = found.known_changes("universe", &recorded_version, (recorded, &recomputed));
     Ok(Verification {
@@ -70,6 +71,7 @@ pub fn verify_universe(
         tolerance,
         compared: found.compared,
         mismatches: found.mismatches,
+        sentences_are_figures,
         wording_differences: found.wording,
         added_by_this_version: added,
         known_changes,

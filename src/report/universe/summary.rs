@@ -78,44 +78,68 @@ fn table_row(out: &mut String, i: &IndustryResult) {
 fn peer_set_section(out: &mut String, r: &UniverseResult) {
     let Some(p) = &r.peer_set else { return };
     let _ = writeln!(out, "\n## The listed peer set\n");
-    let industries: Vec<String> = (p.industries.iter())
+    let mut industries: Vec<String> = (p.industries.iter())
         .map(|(label, n)| format!("{label} {n}"))
         .collect();
+    if p.without_industry > 0 {
+        industries.push(format!("{} in no industry", p.without_industry));
+    }
+    let ids = |list: &[String]| {
+        crate::universe::notes::first_ids(&list.iter().map(String::as_str).collect::<Vec<_>>())
+    };
+    let left_out = match p.left_out.as_slice() {
+        [] => String::new(),
+        list => format!(" ({} not: {})", list.len(), ids(list)),
+    };
     let _ = writeln!(
         out,
-        "{} listed in universe.peer_set, {} of them estimated and not excluded: {}. Their \
-         industries: {}.\n",
+        "{} listed in universe.peer_set: {}; {} of them estimated and not excluded{left_out}. \
+         Their industries: {}.\n",
         crate::universe::securities_count(p.securities.len()),
+        ids(&p.securities),
         p.figures.estimated,
-        crate::universe::notes::first_ids(
-            &p.securities.iter().map(String::as_str).collect::<Vec<_>>()
-        ),
         industries.join(", ")
     );
     table_header(out, r);
     table_row(out, &p.figures);
-    let aggregation = label(&r.settings.leverage.aggregation);
-    let placed = match (
+    let _ = writeln!(out, "\n{}", placed(r, p));
+}
+
+/// Where the peer set's figure lies among its home industry's, in words.
+fn placed(r: &UniverseResult, p: &crate::universe::peer_set::PeerSetResult) -> String {
+    let leverage = &r.settings.leverage;
+    let what = match leverage.operations_beta {
+        true => "beta of the operations",
+        false => "unlevered beta",
+    };
+    let tie = match p.tied_with.as_slice() {
+        [] => String::new(),
+        others => format!(
+            " (as many of the set carry {}; the first label in byte order is taken)",
+            others.join(", ")
+        ),
+    };
+    match (
         &p.home_industry,
         p.figures.unlevered_beta,
         p.share_of_home_below,
     ) {
         (Some(home), Some(own), Some(share)) => format!(
-            "The set's unlevered beta ({aggregation}) is {}; {home}'s is {}, and {} of \
+            "The set's {what} ({}) is {}; its home industry, {home}{tie}, has {}, and {} of \
              {home}'s {} figures lie below the set's (ties count half): a set drawn from its \
              industry's middle lies near 50%, one at either end says its peers are not typical \
              of their industry.",
+            label(&leverage.aggregation),
             fixed(own, 3),
             shown(p.home_unlevered_beta),
             crate::report::format::percent(share, 0),
             p.home_count
         ),
-        (None, _, _) => "No listed security has an industry label, so there is no \
-                         industry to set the peer set beside."
+        (None, _, _) => "No listed security has an industry label, so there is no industry to \
+                         set the peer set beside."
             .into(),
-        _ => "The set, or its home industry, has no unlevered beta to compare.".into(),
-    };
-    let _ = writeln!(out, "\n{placed}");
+        _ => format!("The set, or its home industry, has no {what} to compare."),
+    }
 }
 
 /// The settings that shape the betas beyond the estimator, in words: the returns, the
@@ -262,6 +286,11 @@ pub(super) fn summary(r: &UniverseResult) -> String {
     );
     industry_table(&mut out, r);
     peer_set_section(&mut out, r);
+    // A heading of their own, so that with a peer set the notes do not read as about the set
+    // (found by review).
+    if !r.notes.is_empty() {
+        out.push_str("\n## Notes\n");
+    }
     out.push('\n');
     for note in &r.notes {
         let _ = writeln!(out, "- {note}");

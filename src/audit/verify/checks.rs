@@ -1,0 +1,72 @@
+//! The checks of a receipt's shape before it is rerun: its `kind` against the section naming
+//! the file it reruns, and its schema version against this hurdle's. Apart from `verify.rs`,
+//! which reruns and compares.
+
+use serde_json::Value;
+
+use crate::valuation::SCHEMA_VERSION;
+
+/// A receipt's `kind` against the section naming the file it reruns: one this hurdle writes
+/// (`case` or `universe`), and the one that section belongs to. A disagreement means an edit,
+/// named as such, not read as the other kind (found by reviews: a case receipt marked as a
+/// universe's was refused for its schema version, a kind of "banana" became a mismatch).
+pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
+    let sections = (
+        recorded["case"].is_object(),
+        recorded["universe"].is_object(),
+    );
+    let kind = recorded["kind"].as_str();
+    if let Some(other) = kind.filter(|k| !["case", "universe"].contains(k)) {
+        return Err(format!(
+            "kind = \"{other}\" is no kind of receipt hurdle writes (\"case\" or \"universe\"): \
+             it was edited; restore it or verify the receipt the run wrote"
+        ));
+    }
+    if let (Some("universe"), (true, false)) | (Some("case") | None, (false, true)) =
+        (kind, sections)
+    {
+        let said = kind.map_or("has no kind".to_string(), |k| {
+            format!("says kind = \"{k}\"")
+        });
+        return Err(format!(
+            "{said} but records the file it reruns under `{}`: a receipt whose kind was edited \
+             or removed; restore its kind or verify the receipt the run wrote",
+            if sections.0 { "case" } else { "universe" }
+        ));
+    }
+    Ok(())
+}
+
+/// A case receipt's schema version: this hurdle's, else refused with what to do.
+pub(super) fn check_schema(recorded: &Value) -> std::result::Result<(), String> {
+    let version = recorded["schema_version"]
+        .as_u64()
+        .ok_or("has no schema_version; is it a hurdle result.json?")?;
+    if version > u64::from(SCHEMA_VERSION) {
+        return Err(format!(
+            "schema_version {version} is newer than this hurdle reads ({SCHEMA_VERSION}); verify with the version that wrote it ({})",
+            recorded["tool"]["version"].as_str().unwrap_or("unknown")
+        ));
+    }
+    if version < u64::from(SCHEMA_VERSION) {
+        return Err(older_schema(
+            version,
+            recorded["tool"]["version"].as_str().unwrap_or("unknown"),
+        ));
+    }
+    Ok(())
+}
+
+/// Why a receipt of an older schema cannot be verified by this hurdle, and what to do instead.
+/// Schema 2 renamed fields and case keys (README, Changelog), so a rerun cannot match a
+/// version-1 receipt figure by figure, and its case may use keys this version refuses.
+fn older_schema(version: u64, written_by: &str) -> String {
+    format!(
+        "schema_version {version} is older than this hurdle's ({SCHEMA_VERSION}): schema 2 renamed \
+         fields and case keys (for example cash_corrected_unlevered_beta is now operations_beta, \
+         adjusted_beta is shrunk_beta, leverage.cash_correction is leverage.operations_beta; \
+         README, Changelog lists every one), so its figures cannot be compared name by name. \
+         Verify it with the version that wrote it ({written_by}), or rename the keys in its case \
+         file and rerun to write a new receipt"
+    )
+}

@@ -1,0 +1,98 @@
+//! The checks of a CSV panel's parsed block that name a row polars reads without complaint:
+//! a record cut short or with quotes no reader takes as meant (read one by one, on the rare
+//! blocks that can hold one), and a value in a column the header leaves unnamed. Apart from
+//! `csv.rs`, which reads the blocks.
+
+use polars::prelude::*;
+
+use super::{PanelColumns, Source};
+use crate::error::{Error, Result};
+use crate::io::sanity::first_bad_record;
+
+/// Whether a long block's date, security or price column has an empty cell (polars counts
+/// them as it parses).
+pub(super) fn has_empty_cells(frame: &DataFrame, columns: &PanelColumns) -> bool {
+    [
+        &columns.date_column,
+        &columns.security_column,
+        &columns.price_column,
+    ]
+    .iter()
+    .any(|name| frame.column(name).is_ok_and(|c| c.null_count() > 0))
+}
+
+/// The first record of a block with fewer (or more) fields than the header, or whose quotes
+/// no reader takes as meant, as an error.
+pub(super) fn check_records(
+    source: &Source,
+    block: &[u8],
+    (has_header, first_row): (bool, usize),
+    header: &[String],
+) -> Result<()> {
+    let (expected, fewest) = (header.len(), crate::io::sanity::fewest_fields(header));
+    match first_bad_record(block, expected, Some(fewest)) {
+        Some((line, message)) => {
+            let row = (first_row + line).saturating_sub(usize::from(has_header));
+            Err(source.row_error(row, message))
+        }
+        None => Ok(()),
+    }
+}
+
+/// A wide panel's row with fewer fields than the header would leave its last securities' cells
+/// empty, read as gaps: it is refused (a header alone ending in a comma lets rows omit that
+/// last, unnamed field). The commas of a quote-free block of complete records number records ×
+/// (fields − 1); a block where they do not, or with a quote (a quoted comma would make up for
+/// a missing one), is read record by record.
+pub(super) fn check_wide_fields(
+    source: &Source,
+    block: &[u8],
+    (has_header, quoted): (bool, bool),
+    (first_row, rows): (usize, usize),
+    header: &[String],
+) -> Result<()> {
+    let (records, expected) = (rows + usize::from(has_header), header.len());
+    if !quoted && memchr::memchr_iter(b',', block).count() == records * (expected - 1) {
+        return Ok(());
+    }
+    check_records(source, block, (has_header, first_row), header)
+}
+
+/// A wide panel's column that the header does not name may not hold a price: whose would it
+/// be? (A trailing comma on every line gives such a column, empty, and is accepted.)
+pub(super) fn check_unnamed(
+    source: &Source,
+    unnamed: &[(usize, String)],
+    frame: &DataFrame,
+    first_row: usize,
+) -> Result<()> {
+    for (number, name) in unnamed {
+        let Ok(cells) = frame.column(name).and_then(|c| c.f64().cloned()) else {
+            continue;
+        };
+        let first = cells
+            .iter()
+            .enumerate()
+            .find_map(|(k, v)| v.map(|v| (k, v)));
+        if let Some((k, value)) = first {
+            return Err(unnamed_error(
+                source,
+                *number,
+                first_row + k,
+                &value.to_string(),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// The error for a value in a column the header leaves unnamed.
+pub(super) fn unnamed_error(source: &Source, number: usize, row: usize, value: &str) -> Error {
+    source.row_error(
+        row,
+        format!(
+            "column {number} has no name in the header but holds \"{value}\": a wide panel's \
+             columns are named by security"
+        ),
+    )
+}
