@@ -157,12 +157,20 @@ fn case_notes(b: &Bridge, from: &CaseFacts, to: &CaseFacts) -> String {
             settings.join("; ")
         ));
     }
-    if !files.is_empty() {
+    let (tables, data): (Vec<String>, Vec<String>) =
+        files.into_iter().partition(|role| role == "spread table");
+    if !data.is_empty() {
         out.push_str(&format!(
             "note: data read for the same role whose bytes differ between the sides: {} (the \
              returns, and so the betas, may differ with them)\n",
-            files.join(", ")
+            data.join(", ")
         ));
+    }
+    if !tables.is_empty() {
+        out.push_str(
+            "note: the spread tables' bytes differ between the sides (the cost of debt may \
+             differ with them)\n",
+        );
     }
     let rates_differ = b.from.build_up.risk_free_rate != b.to.build_up.risk_free_rate;
     if rates_differ && (from.debt_on_risk_free || to.debt_on_risk_free) {

@@ -18,7 +18,7 @@ use polars::prelude::*;
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::checks::{
-    check_records, check_unnamed, check_wide_fields, has_empty_cells, unnamed_error,
+    check_records, check_unnamed, check_wide_fields, has_empty_cells, spaced_quote, unnamed_error,
 };
 use super::header::{check_repeated_names, header};
 use super::{
@@ -87,7 +87,7 @@ pub(super) fn read(
             if columns.layout == PanelLayout::Wide {
                 let rows = (next_row, height);
                 check_wide_fields(source, block, (first, quoted), rows, &plan.header)?;
-            } else if quoted || has_empty_cells(&frame, columns) {
+            } else if spaced_quote(block, quoted) || has_empty_cells(&frame, columns) {
                 // A row cut short leaves its last cells empty, which would be reported as a
                 // missing price of the wrong security, and a quote after a space becomes part
                 // of an id (found by reviews): such blocks' records are read one by one, on
