@@ -689,6 +689,19 @@ fn panel_line(dir: &Path, line: usize) -> Vec<String> {
         .collect()
 }
 
+/// A run refused after line `line` of the long CSV panel is rewritten from its cells by
+/// `rewrite`, with every `expected` part in its message.
+fn refused_with_panel_line(line: usize, rewrite: impl Fn(&[String]) -> String, expected: &[&str]) {
+    refused(
+        |dir| {
+            let text = rewrite(&panel_line(dir, line));
+            replace_line(&dir.join("prices-long.csv"), line, &text);
+        },
+        &[],
+        expected,
+    );
+}
+
 #[test]
 fn a_duplicate_date_and_security_is_refused_naming_both_lines() {
     refused(
@@ -900,25 +913,14 @@ fn quotes_and_short_rows_are_named_by_their_line() {
             "has text after a quoted field's closing quote",
         ],
     );
-    refused(
-        |dir| {
-            let cells = panel_line(dir, 9);
-            let spaced = format!("{}, \"{}\",{}", cells[0], cells[1], cells[2]);
-            replace_line(&dir.join("prices-long.csv"), 9, &spaced);
-        },
-        &[],
+    refused_with_panel_line(
+        9,
+        |cells| format!("{}, \"{}\",{}", cells[0], cells[1], cells[2]),
         &["prices-long.csv, line 9:", "has a quote after a space"],
     );
-    refused(
-        |dir| {
-            let cells = panel_line(dir, 9);
-            replace_line(
-                &dir.join("prices-long.csv"),
-                9,
-                &format!("{},{}", cells[0], cells[2]),
-            );
-        },
-        &[],
+    refused_with_panel_line(
+        9,
+        |cells| format!("{},{}", cells[0], cells[2]),
         &[
             "prices-long.csv, line 9:",
             "has 2 fields but the header has 3",
