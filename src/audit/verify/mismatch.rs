@@ -5,6 +5,33 @@
 use serde::Serialize;
 use serde_json::Value;
 
+/// One figure that differs.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Mismatch {
+    /// JSON path, e.g. `peers[2].beta`.
+    pub path: String,
+    /// The name of the list entry the figure belongs to, as the receipt records it (a peer's
+    /// `name`, a leave-one-out row's `peer`), so a reader need not count positions.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub item: Option<String>,
+    pub recorded: Value,
+    pub recomputed: Value,
+    /// The side that lacks the figure altogether (not `null`: absent), when one does; the
+    /// other side's value is then shown alone.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub absent_from: Option<Absent>,
+}
+
+/// Which side of a comparison lacks a figure: the receipt (a figure deleted from it, or one a
+/// later version writes) or the rerun (a figure added to the receipt, or one this version no
+/// longer writes).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Absent {
+    Receipt,
+    Rerun,
+}
+
 /// Paths of figures drawn only for the charts (each fitted line's points, the histogram's
 /// bins, the waterfall's bars, the rows the residual chart marks): they move with the
 /// estimates and are listed after every other figure, and a terminal may count them.
@@ -35,33 +62,6 @@ impl Mismatch {
     pub fn is_chart_figure(&self) -> bool {
         CHART_FIGURES.iter().any(|part| self.path.contains(part))
     }
-}
-
-/// One figure that differs.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Mismatch {
-    /// JSON path, e.g. `peers[2].beta`.
-    pub path: String,
-    /// The name of the list entry the figure belongs to, as the receipt records it (a peer's
-    /// `name`, a leave-one-out row's `peer`), so a reader need not count positions.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub item: Option<String>,
-    pub recorded: Value,
-    pub recomputed: Value,
-    /// The side that lacks the figure altogether (not `null`: absent), when one does; the
-    /// other side's value is then shown alone.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub absent_from: Option<Absent>,
-}
-
-/// Which side of a comparison lacks a figure: the receipt (a figure deleted from it, or one a
-/// later version writes) or the rerun (a figure added to the receipt, or one this version no
-/// longer writes).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Absent {
-    Receipt,
-    Rerun,
 }
 
 /// Longest JSON text shown whole for a section or a list; a longer one is shown by its size.
@@ -124,9 +124,7 @@ impl Mismatch {
             _ => String::new(),
         }
     }
-}
 
-impl Mismatch {
     /// Whether the difference is in the run's notes (sentences for the reader), which are
     /// compared as sets of sentences: each differing note is one entry, on one side only.
     pub fn is_note(&self) -> bool {
