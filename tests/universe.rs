@@ -1976,7 +1976,7 @@ fn the_summary_states_flags_exclusion_staleness_and_overrides() {
         "Staleness limit: none (beta.max_stale_days)",
         "Overrides applied to the universe file: `beta.exclude_flags=[\"low_r_squared\"]`, \
          `leverage.operations_beta=true`",
-        "| Median βU | Industry βU of operations (median) |",
+        "| Median βU | βU quartiles | Industry βU of operations (median) |",
         "labels are used as written: \"Industry A\" and \"industry a\"",
     ] {
         assert!(summary.contains(expected), "{expected} in {summary}");

@@ -30,7 +30,7 @@ fn table_header(out: &mut String, r: &UniverseResult) {
     let s = &r.settings;
     let _ = writeln!(
         *out,
-        "| Industry | Securities | Estimated | Excluded | Not estimated | Flagged | Median β | β quartiles | Median D/E | Median βU | Industry βU{} ({}) |",
+        "| Industry | Securities | Estimated | Excluded | Not estimated | Flagged | Median β | β quartiles | Median D/E | Median βU | βU quartiles | Industry βU{} ({}) |",
         // The industry's figure is of the operations' betas when asked for, while the median
         // beside it is of the unlevered betas (found by review: the header did not say so).
         if s.leverage.operations_beta {
@@ -40,25 +40,29 @@ fn table_header(out: &mut String, r: &UniverseResult) {
         },
         label(&s.leverage.aggregation)
     );
-    out.push_str("|---|---:|---:|---:|---:|---:|---:|---|---:|---:|---:|\n");
+    out.push_str("|---|---:|---:|---:|---:|---:|---:|---|---:|---:|---|---:|\n");
 }
 
 /// One row of the industry table (an industry, or the listed peer set).
 fn table_row(out: &mut String, i: &IndustryResult) {
     let levered = i.levered.as_ref();
-    let quartiles = levered.map_or_else(
-        || "–".to_string(),
-        |l| {
-            format!(
-                "{} – {}",
-                fixed(l.dispersion.lower_quartile, 3),
-                fixed(l.dispersion.upper_quartile, 3)
-            )
-        },
-    );
+    // The quartiles of the levered and (found by review: asked for by a reviewer) the
+    // unlevered betas.
+    let quartiles = |summary: Option<&crate::universe::industries::Summary>| {
+        summary.map_or_else(
+            || "–".to_string(),
+            |l| {
+                format!(
+                    "{} – {}",
+                    fixed(l.dispersion.lower_quartile, 3),
+                    fixed(l.dispersion.upper_quartile, 3)
+                )
+            },
+        )
+    };
     let _ = writeln!(
         *out,
-        "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+        "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
         i.industry.replace('|', "\\|"),
         i.securities,
         i.estimated,
@@ -66,9 +70,10 @@ fn table_row(out: &mut String, i: &IndustryResult) {
         i.not_estimated_total,
         i.flagged_total,
         shown(levered.map(|l| l.dispersion.median)),
-        quartiles,
+        quartiles(levered),
         shown(i.median_debt_to_equity),
         shown(i.unlevered.as_ref().map(|u| u.dispersion.median)),
+        quartiles(i.unlevered.as_ref()),
         shown(i.unlevered_beta),
     );
 }
