@@ -2268,3 +2268,28 @@ fn a_panel_with_every_id_quoted_and_a_byte_order_mark_reads_the_same() {
         );
     }
 }
+
+// A message gives the line a person sees: after a quoted field holding a line break (in a
+// column hurdle does not read, RFC 4180 §2 rule 6), the record is on a later line than its
+// number says (found by review: one line short per break).
+#[test]
+fn a_line_break_inside_quotes_moves_the_lines_named_after_it() {
+    refused(
+        |dir| {
+            let path = dir.join("attributes.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+            // The third line's sector (its third field) breaks across two lines.
+            let mut cells: Vec<String> = lines[2].split(',').map(str::to_string).collect();
+            cells[2] = "\"Sector\nOne\"".to_string();
+            lines[2] = cells.join(",");
+            // The fifth line's debt (its fifth field) is negative: on line 6 after the break.
+            let mut cells: Vec<String> = lines[4].split(',').map(str::to_string).collect();
+            cells[4] = "-1".to_string();
+            lines[4] = cells.join(",");
+            fs::write(&path, lines.join("\n") + "\n").unwrap();
+        },
+        &[],
+        &["attributes.csv, line 6:", "must not be negative"],
+    );
+}

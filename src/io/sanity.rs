@@ -119,6 +119,8 @@ pub fn column_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &st
 /// field's first character (as polars reads it: `a, "b, c"` is three fields, the quote after
 /// the space being text), inside one `""` is a quote, and the field ends at its closing quote.
 struct Record {
+    /// Its number among the records (0-based: the header is record 0).
+    index: usize,
     /// Its first line (0-based) and byte range.
     line: usize,
     range: std::ops::Range<usize>,
@@ -152,7 +154,8 @@ fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<R
         QuoteInQuoted,
     }
     let mut state = State::FieldStart;
-    let fresh = |line, start| Record {
+    let fresh = |index, line, start| Record {
+        index,
         line,
         range: start..start,
         fields: 1,
@@ -165,7 +168,7 @@ fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<R
     } else {
         0
     };
-    let mut record = fresh(0, 0);
+    let mut record = fresh(0, 0, 0);
     let (mut line, mut field_start) = (0, first);
     let flag = |record: &mut Record, what| {
         record.quoting.get_or_insert(what);
@@ -205,7 +208,7 @@ fn find_record(bytes: &[u8], mut visit: impl FnMut(&Record) -> bool) -> Option<R
                 if visit(&record) {
                     return Some(record);
                 }
-                record = fresh(line, i + 1);
+                record = fresh(record.index + 1, line, i + 1);
                 (state, field_start) = (State::FieldStart, i + 1);
             }
         }
@@ -228,10 +231,20 @@ fn record_text(bytes: &[u8], record: &Record) -> String {
         .collect()
 }
 
+/// The line (1-based) on which record `index` of CSV `bytes` starts (0: the header), counting
+/// the line breaks inside quoted fields before it; `None` past the last record. A reader
+/// counts records, a person lines: they differ after a quoted field holding a line break.
+pub fn record_line(bytes: &[u8], index: usize) -> Option<usize> {
+    if memchr::memchr(b'"', bytes).is_none() {
+        return Some(index + 1);
+    }
+    find_record(bytes, |r| r.index == index).map(|r| r.line + 1)
+}
+
 /// The first record of CSV `bytes` whose quotes no reader takes as meant ([`Quoting`]), or with
 /// more fields than `expected` (the header's count), or with fewer than `fewest` when it is
-/// given (an empty line is not a record): its first line (0-based) and the message, quoting
-/// its text. Fields are split as RFC 4180 and polars split them ([`Record`]). What the panel
+/// given (an empty line is not a record): its number among the records (0: the first) and
+/// the message, quoting its text. Fields are split as RFC 4180 and polars split them ([`Record`]). What the panel
 /// and attributes readers use to name the line polars' own messages do not give, and a short
 /// record polars would fill with empty cells (its cells would then shift into the wrong
 /// columns unseen).
@@ -268,7 +281,7 @@ pub fn first_bad_record(
         ),
         None => extra_fields_message(found.fields, expected, &text),
     };
-    Some((found.line, message))
+    Some((found.index, message))
 }
 
 /// The message for a record with more fields than the header (its text shortened to 80
@@ -541,8 +554,12 @@ mod tests {
         let good = b"a,b,c\n\"x, \"\"y\"\"\r\nz\",2,3\n\nq,\"r\",4\r\n";
         assert_eq!(first_bad_record(good, 3, Some(3)), None);
         let bad = |text: &[u8]| first_bad_record(text, 3, Some(3)).unwrap();
-        let (line, message) = bad(b"a,b,c\n\"x,\ny\",2,3\nq, \"r, s\",4\n");
-        assert_eq!(line, 3);
+        let text = b"a,b,c\n\"x,\ny\",2,3\nq, \"r, s\",4\n";
+        let (record, message) = bad(text);
+        // Record 2 (the header is record 0) starts on line 4: the quoted break moves it.
+        assert_eq!(record, 2);
+        assert_eq!(record_line(text, record), Some(4));
+        assert_eq!(record_line(b"a\nb\nc\n", 2), Some(3));
         assert!(
             message.starts_with("`q, \"r, s\",4` has a quote after a space"),
             "{message}"

@@ -104,8 +104,8 @@ pub fn read_attributes(
             super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
             let fewest = crate::io::sanity::fewest_fields(&header);
-            if let Some((line, message)) = first_bad_record(&bytes, expected, Some(fewest)) {
-                return Err(source.row_error(line.saturating_sub(1), message));
+            if let Some((record, message)) = first_bad_record(&bytes, expected, Some(fewest)) {
+                return Err(source.row_error(record.saturating_sub(1), message));
             }
             CsvReadOptions::default()
                 .with_has_header(true)

@@ -41,8 +41,8 @@ pub(super) fn check_records(
 ) -> Result<()> {
     let (expected, fewest) = (header.len(), crate::io::sanity::fewest_fields(header));
     match first_bad_record(block, expected, Some(fewest)) {
-        Some((line, message)) => {
-            let row = (first_row + line).saturating_sub(usize::from(has_header));
+        Some((record, message)) => {
+            let row = (first_row + record).saturating_sub(usize::from(has_header));
             Err(source.row_error(row, message))
         }
         None => Ok(()),

@@ -390,8 +390,8 @@ fn diagnose(
     error: &PolarsError,
 ) -> Error {
     let expected = plan.header.len();
-    if let Some((line, message)) = first_bad_record(block, expected, None) {
-        let row = (first_row + line).saturating_sub(usize::from(has_header));
+    if let Some((record, message)) = first_bad_record(block, expected, None) {
+        let row = (first_row + record).saturating_sub(usize::from(has_header));
         return source.row_error(row, message);
     }
     let price_columns: Vec<&str> = match columns.layout {

@@ -242,7 +242,7 @@ impl Source {
         match self.format {
             TableFormat::Csv => Error::DataRow {
                 file: self.file.clone(),
-                line: row + 2,
+                line: self.line(row),
                 message,
             },
             TableFormat::Parquet => Error::DataFile {
@@ -252,10 +252,21 @@ impl Source {
         }
     }
 
+    /// The line of a CSV file on which data row `row` starts: row + 2 (after the header),
+    /// unless a quoted field holding a line break comes before it, which the file is read
+    /// again to count (found by review: the line given was one short per such break; an
+    /// error path only).
+    fn line(&self, row: usize) -> usize {
+        std::fs::read(&self.file)
+            .ok()
+            .and_then(|bytes| crate::io::sanity::record_line(&bytes, row + 1))
+            .unwrap_or(row + 2)
+    }
+
     /// Where data row `row` is, in words: "line 12" or "row 11".
     pub fn place(&self, row: usize) -> String {
         match self.format {
-            TableFormat::Csv => format!("line {}", row + 2),
+            TableFormat::Csv => format!("line {}", self.line(row)),
             TableFormat::Parquet => format!("row {}", row + 1),
         }
     }
