@@ -374,30 +374,75 @@ pub fn verify(
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
 
     let files = file_checks(&recorded, &rerun);
+    let run = Rerun {
+        kind: "case",
+        receipt: (receipt_path, receipt_sha256),
+        file: &case_file,
+        overrides,
+        unchanged: case_unchanged,
+        files,
+        files_read,
+        not_compared: NOT_COMPARED,
+    };
+    let on_file =
+        |path: &str, checks: &[FileCheck]| files::reported_with_its_file(path, &recorded, checks);
+    Ok(settle(run, (&recorded, &recomputed), tolerance, &on_file))
+}
 
-    let mut found = compare(&recorded, &recomputed, tolerance);
-    let recorded_version = text("/tool/version").unwrap_or_default();
-    let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
+/// What the case's and the universe's verification hand over once the rerun is done: the kind,
+/// the receipt, the file rerun with its overrides and whether it is unchanged, each input
+/// file's check, the files read and what the kind leaves out.
+pub(super) struct Rerun<'a> {
+    pub kind: &'static str,
+    /// The receipt's path and the SHA-256 of its bytes.
+    pub receipt: (&'a Path, String),
+    pub file: &'a Path,
+    pub overrides: Vec<String>,
+    pub unchanged: bool,
+    pub files: Vec<FileCheck>,
+    pub files_read: Vec<crate::case::FileRead>,
+    pub not_compared: &'static str,
+}
+
+/// The verification of a receipt against its rerun, one sequence for a case and a universe:
+/// every leaf compared; keys a later version added settled by the receipt's version; a field
+/// of a changed or moved data file left to its file check (`on_file`); sentences counted as
+/// figures only for a receipt of this version from the same inputs; a case's mismatches
+/// ranked and its headline figures judged; the known changes named.
+pub(super) fn settle(
+    run: Rerun<'_>,
+    (recorded, recomputed): (&Value, &Value),
+    tolerance: f64,
+    on_file: &dyn Fn(&str, &[FileCheck]) -> bool,
+) -> Verification {
+    let current = env!("CARGO_PKG_VERSION");
+    let text = |pointer: &str| recorded.pointer(pointer).and_then(Value::as_str);
+    let mut found = compare(recorded, recomputed, tolerance);
+    let recorded_version = text("/tool/version").unwrap_or_default().to_string();
+    let added = found.settle_added(&recorded_version, current);
     // A changed or moved data file is reported once, by its file check.
-    (found.mismatches).retain(|m| !files::reported_with_its_file(&m.path, &recorded, &files));
-    let inputs_unchanged = case_unchanged && files.iter().all(|f| f.unchanged);
+    (found.mismatches).retain(|m| !on_file(&m.path, &run.files));
+    let inputs_unchanged = run.unchanged && run.files.iter().all(|f| f.unchanged);
     let sentences_are_figures =
-        found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
-    found.mismatches.sort_by_key(|m| m.rank());
-    let reproduced =
-        case_unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
-    let known_changes = found.known_changes("case", &recorded_version, (&recorded, &recomputed));
-    let headline = headline(&found);
-    Ok(Verification {
+        found.settle_wording(inputs_unchanged && recorded_version == current);
+    let case = run.kind == "case";
+    if case {
+        found.mismatches.sort_by_key(|m| m.rank());
+    }
+    let known_changes = found.known_changes(run.kind, &recorded_version, (recorded, recomputed));
+    let (receipt_path, receipt_sha256) = run.receipt;
+    Verification {
         receipt: receipt_path.display().to_string(),
         receipt_sha256,
-        kind: "case",
-        case_file: case_file.display().to_string(),
-        case_unchanged,
-        case_hash_recorded: text("/case/sha256").is_some(),
-        overrides,
-        files,
+        kind: run.kind,
+        case_file: run.file.display().to_string(),
+        case_unchanged: run.unchanged,
+        case_hash_recorded: text(&format!("/{}/sha256", run.kind)).is_some(),
+        overrides: run.overrides,
+        reproduced: inputs_unchanged && found.mismatches.is_empty(),
+        files: run.files,
         tolerance,
+        headline: if case { headline(&found) } else { Vec::new() },
         compared: found.compared,
         mismatches: found.mismatches,
         sentences_are_figures,
@@ -405,12 +450,10 @@ pub fn verify(
         added_by_this_version: added,
         known_changes,
         recorded_tool_version: recorded_version,
-        current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
-        reproduced,
-        headline,
-        not_compared: NOT_COMPARED,
-        files_read,
-    })
+        current_tool_version: current.to_string(),
+        not_compared: run.not_compared,
+        files_read: run.files_read,
+    }
 }
 
 /// Whether each headline figure of a case reproduced, by whether it is among the mismatches.

@@ -11,7 +11,7 @@ use std::path::Path;
 
 use serde_json::Value;
 
-use super::{compare, rerun_source, FileCheck, Verification};
+use super::{rerun_source, settle, FileCheck, Rerun, Verification};
 use crate::error::{Error, Result};
 use crate::universe::settings::read_universe;
 use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
@@ -49,39 +49,22 @@ pub fn verify_universe(
     let inputs = load_inputs(universe)?;
     let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
-    let files = file_checks(recorded, &rerun);
-    let mut found = compare(recorded, &recomputed, tolerance);
-    let recorded_version = text("/tool/version").unwrap_or_default().to_string();
-    let added = found.settle_added(&recorded_version, env!("CARGO_PKG_VERSION"));
-    (found.mismatches).retain(|m| !reported_with_its_file(&m.path, &files));
-    let inputs_unchanged = unchanged && files.iter().all(|f| f.unchanged);
-    let sentences_are_figures =
-        found.settle_wording(inputs_unchanged && recorded_version == env!("CARGO_PKG_VERSION"));
-    let reproduced = unchanged && files.iter().all(|f| f.unchanged) && found.mismatches.is_empty();
-    let known_changes = found.known_changes("universe", &recorded_version, (recorded, &recomputed));
-    Ok(Verification {
-        receipt: receipt_path.display().to_string(),
-        receipt_sha256,
+    let run = Rerun {
         kind: "universe",
-        case_file: file.display().to_string(),
+        receipt: (receipt_path, receipt_sha256),
+        file: &file,
         overrides,
-        case_unchanged: unchanged,
-        case_hash_recorded: text("/universe/sha256").is_some(),
-        files,
-        tolerance,
-        compared: found.compared,
-        mismatches: found.mismatches,
-        sentences_are_figures,
-        wording_differences: found.wording,
-        added_by_this_version: added,
-        known_changes,
-        recorded_tool_version: recorded_version,
-        current_tool_version: env!("CARGO_PKG_VERSION").to_string(),
-        reproduced,
-        headline: Vec::new(),
-        not_compared: NOT_COMPARED,
+        unchanged,
+        files: file_checks(recorded, &rerun),
         files_read,
-    })
+        not_compared: NOT_COMPARED,
+    };
+    Ok(settle(
+        run,
+        (recorded, &recomputed),
+        tolerance,
+        &reported_with_its_file,
+    ))
 }
 
 /// The index, risk-free series, panel and attributes files: recorded and current SHA-256.
