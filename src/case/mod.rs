@@ -7,6 +7,7 @@
 //! they came from, so the receipt can name the file, its hash and the overrides. [`specs`] is the
 //! one place a case becomes the spec types of the computing layers.
 
+pub mod analyses;
 pub mod lookback;
 pub mod overrides;
 pub mod placeholders;
