@@ -1187,6 +1187,22 @@ fn implied_all_lists_the_value_of_each_input_that_reproduces_the_claim() {
     assert!(text(&ranged).contains("--range"));
 }
 
+/// A credit-spread debt beta under Harris–Pringle: the settings under which the demo refuses
+/// some values of an `implied` search (a peer's debt beta above its equity beta).
+const CREDIT_SPREAD: [&str; 4] = [
+    "--set",
+    "leverage.debt_beta_source=credit-spread",
+    "--set",
+    "leverage.formula=harris-pringle",
+];
+
+/// `hurdle implied CASE --wacc WACC --solve SOLVE` with `settings` after.
+fn implied_with(case: &str, wacc: &str, solve: &str, settings: &[&str]) -> std::process::Output {
+    let mut arguments = vec!["implied", case, "--wacc", wacc, "--solve", solve];
+    arguments.extend(settings);
+    hurdle(&arguments)
+}
+
 // With a debt beta read from the credit spread, βD = (Kd − rf) / ERP (CAPM applied to debt,
 // common practice), the lowest ERPs of the search are values the case refuses (an ERP under
 // 0.001; a debt beta above a peer's equity beta); every such search used to stop at its first
@@ -1197,15 +1213,8 @@ fn implied_erp_with_a_credit_spread_debt_beta_leaves_out_refused_values() {
     let (dir, case_dir) = demo_copy();
     let case = case_dir.join("case.toml");
     let case = case.to_str().unwrap();
-    let settings = [
-        "--set",
-        "leverage.debt_beta_source=credit-spread",
-        "--set",
-        "leverage.formula=harris-pringle",
-    ];
-    let mut arguments = vec!["implied", case, "--wacc", "0.076", "--solve", "erp"];
-    arguments.extend(settings);
-    let output = hurdle(&arguments);
+    let settings = CREDIT_SPREAD;
+    let output = implied_with(case, "0.076", "erp", &settings);
     let report = text(&output);
     assert_eq!(output.status.code(), Some(0), "{report}");
     // At the lowest ERPs the credit spread gives a debt beta above some peer's equity beta,
@@ -1251,6 +1260,36 @@ fn implied_erp_with_a_credit_spread_debt_beta_leaves_out_refused_values() {
     );
 }
 
+// A `--solve all` row with no answer says how many values the case refused, as the single
+// search does: "none in 0% to 30%" alone read as if every cost of debt had been tried (found by
+// review). Under a credit-spread debt beta a peer without a cost of debt of its own takes the
+// case's (README, [[peer]] `cost_of_debt`), and above about 6.5% one passes its equity beta, which the case refuses; the row must carry the
+// single search's own refusal note word for word (the same scan of the same values).
+#[test]
+fn implied_all_rows_without_an_answer_name_the_refused_values() {
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let settings = CREDIT_SPREAD;
+    let output = implied_with(case, "0.5", "all", &settings);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(1), "{report}");
+    let alone = text(&implied_with(case, "0.5", "cost_of_debt", &settings));
+    let note = alone
+        .lines()
+        .find_map(|l| l.trim().strip_prefix("note: the case refuses"))
+        .unwrap_or_else(|| panic!("{alone}"));
+    let row = report
+        .lines()
+        .find(|l| l.starts_with("debt.cost_pre_tax"))
+        .unwrap_or_else(|| panic!("{report}"));
+    assert!(row.contains("none in 0.000% to 30.000%"), "{row}");
+    assert!(
+        row.contains(&format!("; the case refuses{note}")),
+        "{row}\n{alone}"
+    );
+}
+
 // A claim met just inside the values the case accepts, between the refusal's edge and the
 // first accepted scan value: under a credit-spread debt beta the demo refuses risk-free rates
 // up to about 0.86% (a peer's debt beta would pass its equity beta), and the claim 6.2% needs
@@ -1262,15 +1301,8 @@ fn implied_finds_a_claim_next_to_the_values_the_case_refuses() {
     let (dir, case_dir) = demo_copy();
     let case = case_dir.join("case.toml");
     let case = case.to_str().unwrap();
-    let settings = [
-        "--set",
-        "leverage.formula=harris-pringle",
-        "--set",
-        "leverage.debt_beta_source=credit-spread",
-    ];
-    let mut arguments = vec!["implied", case, "--wacc", "0.062", "--solve", "risk_free"];
-    arguments.extend(settings);
-    let output = hurdle(&arguments);
+    let settings = CREDIT_SPREAD;
+    let output = implied_with(case, "0.062", "risk_free", &settings);
     let report = text(&output);
     assert_eq!(output.status.code(), Some(0), "{report}");
     let exact = exact_line(&report, "").to_string();

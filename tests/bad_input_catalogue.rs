@@ -1720,6 +1720,22 @@ fn case_files() -> Vec<Bad> {
             ["conversion.inflation_case", "-1"]
         ),
         bad!(
+            // Fisher (1930): one currency's nominal rate has one expected inflation behind it;
+            // the demo case is in EUR, so "converting" to EUR at another inflation is refused.
+            "conversion to the case's own currency at another inflation",
+            |s| {
+                s.edit_case("[uncertainty]", "[conversion]\ncurrency = \"eur\"\ninflation_case = 0.02\ninflation_output = 0.03\n\n[uncertainty]")
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "conversion.currency",
+                "eur",
+                "case's own currency",
+                "0.02",
+                "0.03"
+            ]
+        ),
+        bad!(
             "sensitivity axis malformed",
             |s| s.edit_case(
                 "[uncertainty]",

@@ -424,4 +424,23 @@ fn implausible_figures_and_a_window_beyond_the_data_are_noted() {
     );
     assert!(notes.contains(&expected), "{notes}");
     assert_eq!(index["last_date"], "2026-09-30");
+    // Weekly on Fridays to Friday 2026-10-02: the index's last price (Wednesday 2026-09-30) lies
+    // inside the last week, after the Friday before (the sampling rule, README "Sampling"), so
+    // every period has an index return and no coverage note is due (found by review: the note
+    // compared the last price with the window's end date).
+    let weekly = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        weekly.path(),
+        &[
+            "beta.frequency=weekly",
+            "beta.weekday=friday",
+            "case.valuation_date=2026-10-02",
+        ],
+    );
+    let notes = result["notes"].to_string();
+    assert!(!notes.contains("has prices from"), "{notes}");
+    assert_eq!(result["sampling"]["window_end"], "2026-10-02");
+    for peer in result["peers"].as_array().unwrap() {
+        assert_eq!(peer["periods_dropped"]["market_missing"], 0, "{peer}");
+    }
 }

@@ -353,11 +353,14 @@ pub(crate) fn not_a_formula(key: &str, text: &str) -> std::result::Result<(), St
 /// cover.
 pub fn index_coverage_note(
     index: &crate::io::series::DataFile,
-    (start, end): (chrono::NaiveDate, chrono::NaiveDate),
+    window: &crate::estimate::Window,
     each: &str,
     counted: &str,
 ) -> Option<String> {
-    (index.first_date > start || index.last_date < end).then(|| {
+    let (start, end) = (window.start(), window.end());
+    // The last period takes the last price after the sample point before it, so an index whose
+    // last price falls on the Friday before a Sunday month end still covers the window.
+    (index.first_date > start || index.last_date <= window.last_period_opens()).then(|| {
         format!(
             "The index ({}) has prices from {} to {}, less than the window's {start} to {end}: \
              periods outside them have no index return, so every {each}'s are dropped there \

@@ -302,6 +302,19 @@ fn validate_conversion(case: &CaseFile) -> std::result::Result<(), String> {
         if conversion.currency.trim().is_empty() {
             return Err("conversion.currency is empty".into());
         }
+        // One currency has one expected inflation: "converting" EUR to EUR at two inflations
+        // would print two different nominal EUR rates for the same cash flows.
+        let same =
+            conversion.currency.trim().to_lowercase() == case.case.currency.trim().to_lowercase();
+        if same && conversion.inflation_case != conversion.inflation_output {
+            return Err(format!(
+                "conversion.currency = \"{}\" is the case's own currency (case.currency), yet \
+                 conversion.inflation_case = {} differs from conversion.inflation_output = {}; one \
+                 currency has one expected inflation: name the other currency, or leave out \
+                 [conversion]",
+                conversion.currency, conversion.inflation_case, conversion.inflation_output
+            ));
+        }
     }
     Ok(())
 }

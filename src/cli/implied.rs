@@ -214,6 +214,10 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
             ),
         ),
     };
+    let note = match refusal_text(r) {
+        Some(refused) if !r.reproduces() => format!("{note}; {refused}"),
+        _ => note,
+    };
     format!(
         "{:<26} {:>10} {value:>12} {change:>12}  {note}",
         r.key,
@@ -296,6 +300,23 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     }
 }
 
+/// How many of the values searched the case refused, over which range, and why at the edge of
+/// the refused stretch; `None` when it refused none. A search with no answer may have missed it
+/// there, so the reader is told.
+fn refusal_text(r: &hurdle::audit::implied::Implied) -> Option<String> {
+    let show = shown(r);
+    let ((low, high), (x, why)) = (r.refused_range?, r.refused_at_edge.as_ref()?);
+    Some(format!(
+        "the case refuses {} of the {} values searched ({} to {}); at {} = {}: {why}",
+        r.refused,
+        r.searched,
+        show(low),
+        show(high),
+        r.key,
+        show(*x)
+    ))
+}
+
 /// Prints the answer (a value, a jump, or none in the range) and returns the exit status.
 fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) -> ExitCode {
     let show = shown(r);
@@ -307,17 +328,8 @@ fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) 
         show(r.base_value)
     );
     let refusals = || {
-        if let (Some((low, high)), Some((x, why))) = (r.refused_range, &r.refused_at_edge) {
-            println!(
-                "  note: the case refuses {} of the {} values searched ({} to {}); at {} = {}: \
-                 {why}",
-                r.refused,
-                r.searched,
-                show(low),
-                show(high),
-                r.key,
-                show(*x)
-            );
+        if let Some(text) = refusal_text(r) {
+            println!("  note: {text}");
         }
     };
     match (r.value, r.achieved_wacc) {

@@ -92,6 +92,13 @@ impl Window {
         self.grid.sample_points()[self.first]
     }
 
+    /// The sample point before the last: the last period holds the prices dated after it and
+    /// on or before [`Window::end`].
+    pub fn last_period_opens(&self) -> NaiveDate {
+        let points = self.grid.sample_points();
+        points[points.len().saturating_sub(2)]
+    }
+
     /// The last sample point.
     pub fn end(&self) -> NaiveDate {
         *self

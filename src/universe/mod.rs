@@ -335,8 +335,8 @@ pub fn evaluate(
         &industries,
         (&settings.leverage, adjusted_betas),
     );
-    let window = (estimation.window().start(), estimation.window().end());
-    let (counts, notes) = notes::counts_and_notes(inputs, (&securities, &industries), window);
+    let (counts, notes) =
+        notes::counts_and_notes(inputs, (&securities, &industries), estimation.window());
     Ok(UniverseResult {
         schema_version: SCHEMA_VERSION,
         kind: "universe",

@@ -19,7 +19,7 @@ const FEW_SECURITIES: usize = 3;
 pub(super) fn counts_and_notes(
     inputs: &UniverseInputs,
     (securities, industries): (&[SecurityResult], &[IndustryResult]),
-    (start, end): (chrono::NaiveDate, chrono::NaiveDate),
+    window: &crate::estimate::Window,
 ) -> (Counts, Vec<String>) {
     let panel = &inputs.panel;
     let strays: Vec<&str> = inputs
@@ -42,7 +42,7 @@ pub(super) fn counts_and_notes(
             &universe.settings.beta,
         ))
         .collect();
-    notes.splice(0..0, index_coverage_note(&inputs.index, start, end));
+    notes.splice(0..0, index_coverage_note(&inputs.index, window));
     notes.extend(strays_note(inputs, &strays));
     notes.extend(named_notes(securities));
     notes.extend(no_industry_note(securities));
@@ -265,15 +265,9 @@ fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
 /// [`crate::case::sanity::index_coverage_note`], in a universe's words.
 fn index_coverage_note(
     index: &crate::io::series::DataFile,
-    start: chrono::NaiveDate,
-    end: chrono::NaiveDate,
+    window: &crate::estimate::Window,
 ) -> Option<String> {
-    crate::case::sanity::index_coverage_note(
-        index,
-        (start, end),
-        "security",
-        "dropped_index_missing",
-    )
+    crate::case::sanity::index_coverage_note(index, window, "security", "dropped_index_missing")
 }
 
 /// Industry labels that usually stand for a missing classification in an export.

@@ -215,7 +215,7 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         .collect();
     notes.extend(crate::case::sanity::index_coverage_note(
         &inputs.index,
-        (window.start(), window.end()),
+        window,
         "peer",
         "periods_dropped.market_missing",
     ));
