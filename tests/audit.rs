@@ -335,7 +335,8 @@ fn implied_returns_a_scan_value_that_meets_the_claim_exactly() {
 
 // A target D/E or ERP the case accepts always has its memo grid: the default
 // columns run from 0 to twice the target in quarters, capped at the limit, so a target of 6
-// gives 0, 2.5, 5, 7.5 and 10 rather than a refused column of 12 that stopped the run.
+// gives 0, 2.5, 5, 7.5 and 10 rather than a refused column of 12 that stopped the run, with the
+// case's own 6 put in its place so that its cell is on the grid (found by review: it was not).
 #[test]
 fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
     let (dir, case_dir) = demo_copy();
@@ -349,7 +350,10 @@ fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
     let values: Vec<f64> = (columns["values"].as_array().unwrap().iter())
         .map(|v| v.as_f64().unwrap())
         .collect();
-    assert_eq!(values, [0.0, 2.5, 5.0, 7.5, 10.0]);
+    assert_eq!(values, [0.0, 2.5, 5.0, 6.0, 7.5, 10.0]);
+    let grid = &result["sensitivity"];
+    assert_eq!(grid["base_cell"], serde_json::json!([2, 3]));
+    assert_eq!(grid["cells"][2][3], result["wacc"]);
     // An ERP of 0.999 (accepted: [−0.5, 1)) keeps its rows below 1: 0.989, 0.994 and 0.999
     // (the steps are rounded to 12 decimals); 1.004 and 1.009 are left off, not refused.
     let result = run_case(

@@ -87,7 +87,8 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
 
 /// The memo's default axes: the equity risk premium ±1 point in half points (rows), against the
 /// target ratio the case gives from 0 to twice its value in quarters (0 to 1 for a D/E of 0;
-/// a D/E at most the case's limit, a debt-to-capital at most 0.9). A target taken from the peers
+/// a D/E at most the case's limit, a debt-to-capital at most 0.9, with the case's own ratio
+/// added when that cap cuts the span). A target taken from the peers
 /// or the subject has no ratio to vary, so the columns are then the risk-free rate ±1 point.
 /// A rate's step the case would refuse (an ERP of 0.995 + 0.01) is left off its axis, so a case
 /// the valuation accepts always has its grid.
@@ -105,15 +106,24 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
             .filter(|&v| crate::valuation::sanity::accepts(key, v))
             .collect(),
     };
-    // From 0 to `span` in quarters; the middle step is `own` when the span is twice it.
-    let from_zero = |key: &str, span: f64, own: f64| Axis {
-        key: key.into(),
-        values: (0..=4)
+    // From 0 to `span` in quarters; the middle step is `own` when the span is twice it, and
+    // `own` is put in its place among them when the span was capped below that, so the case's
+    // own cell is always on the grid.
+    let from_zero = |key: &str, span: f64, own: f64| {
+        let mut values: Vec<f64> = (0..=4)
             .map(|i| match i {
                 2 if span == 2.0 * own => own,
                 _ => round(span * f64::from(i) / 4.0),
             })
-            .collect(),
+            .collect();
+        if !values.contains(&own) {
+            let at = values.partition_point(|&v| v < own);
+            values.insert(at, own);
+        }
+        Axis {
+            key: key.into(),
+            values,
+        }
     };
     let rows = around(
         "market.equity_risk_premium",
