@@ -147,9 +147,11 @@ fn the_specification_note_places_the_case_among_its_rows() {
     assert!(memo.contains("\nThe case's own frequency and window give"));
 }
 
-// A first and a last rolling window whose betas differ by more than 1.96 standard errors of
-// the difference (the two-sample z of Paternoster et al. 1998, computed here from `hurdle
-// rolling`'s rolling.csv) are noted for that peer, and only for it.
+// A first and a last rolling window whose betas differ by more than t(0.975, ν) standard
+// errors of the difference, ν the smaller window's residual degrees of freedom (N − 2 under
+// OLS), are noted for that peer, and only for it: the two-sample z of Paternoster et al. 1998,
+// computed here from `hurdle rolling`'s rolling.csv, against printed t-table values (three
+// decimals, as scipy.stats.t.ppf gives them rounded; the demo's windows hold 24 to 30 returns).
 #[test]
 fn a_rolling_beta_that_moved_beyond_its_error_is_noted() {
     let dir = tempfile::tempdir().unwrap();
@@ -165,26 +167,42 @@ fn a_rolling_beta_that_moved_beyond_its_error_is_noted() {
     ]);
     assert!(output.status.success());
     let table = std::fs::read_to_string(rolling_dir.join("rolling.csv")).unwrap();
-    let mut by_peer: std::collections::BTreeMap<String, Vec<(f64, f64)>> = Default::default();
+    let mut by_peer: std::collections::BTreeMap<String, Vec<(f64, f64, usize)>> =
+        Default::default();
     for line in table.lines().skip(1) {
         let cells: Vec<&str> = line.split(',').collect();
         let (beta, se) = (cells[2].parse().unwrap(), cells[3].parse().unwrap());
+        let observations: usize = cells[4].parse().unwrap();
         by_peer
             .entry(cells[0].to_string())
             .or_default()
-            .push((beta, se));
+            .push((beta, se, observations));
     }
+    let t_table = |df: usize| match df {
+        22 => 2.074,
+        23 => 2.069,
+        24 => 2.064,
+        25 => 2.060,
+        26 => 2.056,
+        27 => 2.052,
+        28 => 2.048,
+        _ => panic!("no table value for {df} degrees of freedom"),
+    };
     let notes = base["notes"].to_string();
     let mut noted = 0;
     for (peer, points) in &by_peer {
-        let ((b1, s1), (b2, s2)) = (points[0], points[points.len() - 1]);
+        let ((b1, s1, n1), (b2, s2, n2)) = (points[0], points[points.len() - 1]);
         let z: f64 = (b2 - b1) / (s1 * s1 + s2 * s2).sqrt();
+        let critical = t_table(n1.min(n2) - 2);
+        // No peer's z lies within the table's rounding (5e-4) of its critical value.
+        assert!((z.abs() - critical).abs() > 5e-4, "{peer} z {z}");
         let prefix = format!("{peer}: the rolling beta moved from");
-        if z.abs() > 1.96 {
+        if z.abs() > critical {
             noted += 1;
             assert!(
                 notes.contains(&format!("{prefix} {b1:.2}"))
-                    && notes.contains(&format!("{:.1} standard errors", z.abs())),
+                    && notes.contains(&format!("{:.1} standard errors", z.abs()))
+                    && notes.contains(&format!("beyond {critical:.2}, Student's t")),
                 "{peer} z {z}: {notes}"
             );
         } else {

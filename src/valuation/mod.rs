@@ -272,10 +272,6 @@ fn failure_message(
     }
 }
 
-/// The two-sided 5% point of the standard normal (1.959964, rounded as tables print it): a
-/// first-to-last rolling beta change beyond it is noted.
-const ROLLING_SHIFT_Z: f64 = 1.96;
-
 /// The notes a reviewer should see about one peer's data: periods dropped, a rolling beta that
 /// moved by more than its error, and stale prices.
 /// Why a missing price costs two returns: said once, in the first note that needs it.
@@ -314,9 +310,12 @@ fn data_notes(
             d.risk_free_missing
         ));
     }
-    if let Some(z) = crate::beta::rolling::first_to_last_z(&estimated.rolling)
-        .filter(|z| z.abs() > ROLLING_SHIFT_Z)
-    {
+    // Beyond the two-sided 5% point of t at the smaller window's degrees of freedom.
+    let rolling = &estimated.rolling;
+    let shift = crate::beta::rolling::first_to_last_z(rolling)
+        .zip(crate::beta::rolling::first_to_last_critical(rolling))
+        .filter(|(z, critical)| z.abs() > *critical);
+    if let Some((z, critical)) = shift {
         let (first, last) = (
             &estimated.rolling[0],
             &estimated.rolling[estimated.rolling.len() - 1],
@@ -324,16 +323,17 @@ fn data_notes(
         let fixed = |x: f64| crate::error::rounded(x, 2);
         notes.push(format!(
             "{name}: the rolling beta moved from {} (window ending {}) to {} (ending {}), {} \
-             standard errors of the difference (two independent estimates; beyond {} is a \
-             change at the 5% level, which one stable beta in twenty also passes by chance): \
-             the full-window beta of {} averages over it; see the stability chart, and weigh a \
-             later or shorter window.",
+             standard errors of the difference (two independent estimates; beyond {}, \
+             Student's t at the shorter window's degrees of freedom, is a change at the 5% \
+             level, which one stable beta in twenty also passes by chance): the full-window \
+             beta of {} averages over it; see its rolling betas (peers[].stability, and the \
+             stability chart where charts are drawn), and weigh a later or shorter window.",
             fixed(first.beta),
             first.window_end,
             fixed(last.beta),
             last.window_end,
             crate::error::rounded(z.abs(), 1),
-            ROLLING_SHIFT_Z,
+            crate::error::rounded(critical, 2),
             fixed(estimated.estimate.beta)
         ));
     }
