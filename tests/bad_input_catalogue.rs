@@ -1465,6 +1465,22 @@ fn case_files() -> Vec<Bad> {
             ["case.title", "empty"]
         ),
         bad!(
+            // Markdown's link syntax (CommonMark 0.31, "Links"): a name that is one would put a
+            // link into the memo and the report; found by review.
+            "peer name holding a Markdown link",
+            |s| s.edit_case(
+                "name = \"Brenvale Fluid Systems\"",
+                "name = \"[Brenvale](http://example.invalid/x)\""
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "peer.0.name",
+                "[Brenvale](http://example.invalid/x)",
+                "holds `[`",
+                "square brackets"
+            ]
+        ),
+        bad!(
             "title with a line break",
             |s| s.edit_case(
                 "title = \"Quillmarsh Pumps: cost of capital for a fair-value measurement (demo)\"",

@@ -288,15 +288,25 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
 }
 
 /// A name, title or label the memo, the tables and the workbook show must be one line of text:
-/// a line break (`"A\nB"` in TOML) would split the memo's tables and headings.
-pub(crate) fn one_line(key: &str, text: &str) -> std::result::Result<(), String> {
-    if crate::io::sanity::is_one_line(text) {
-        return Ok(());
+/// a line break (`"A\nB"` in TOML) would split the memo's tables and headings. Nor may it hold a
+/// backtick or a square bracket, which open code spans, links and images in the memo's Markdown:
+/// a peer named `[x](http://…)` would put a link, or an image loaded from elsewhere, into the
+/// self-contained report, and a bracket in a chart's title breaks the image line that places it.
+pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), String> {
+    if !crate::io::sanity::is_one_line(text) {
+        return Err(format!(
+            "{key} = {text:?} holds a line break or another control character: names, titles \
+             and labels are one line of text"
+        ));
     }
-    Err(format!(
-        "{key} = {text:?} holds a line break or another control character: names, titles and \
-         labels are one line of text"
-    ))
+    match text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
+        None => Ok(()),
+        Some(mark) => Err(format!(
+            "{key} = \"{text}\" holds `{mark}`, which opens code or a link in the memo's and the \
+             report's Markdown (a name could then draw a link or lose its chart); write it \
+             without backticks and square brackets, with parentheses for instance"
+        )),
+    }
 }
 
 /// A peer's name must be told apart from the others by a reader and by an override that names

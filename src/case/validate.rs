@@ -2,7 +2,7 @@
 //! ratio, window lengths the data can fill, … Each section of the case has its own function;
 //! every message names the key and the offending value.
 
-use super::sanity::{one_line, MIN_SPREAD_PREMIUM};
+use super::sanity::{plain_label, MIN_SPREAD_PREMIUM};
 use super::schema::*;
 
 /// `key = value` must be finite and in [low, high).
@@ -134,7 +134,7 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
         .as_ref()
         .map(|c| ("conversion.currency", &c.currency));
     for (key, text) in labels.into_iter().chain(conversion) {
-        one_line(key, text)?;
+        plain_label(key, text)?;
     }
     super::sources::validate(case)?;
     rate(
@@ -396,10 +396,10 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
         if peer.name.trim().is_empty() {
             return Err(format!("peer.{i}.name is empty"));
         }
-        one_line(&format!("peer.{i}.name"), &peer.name)?;
+        plain_label(&format!("peer.{i}.name"), &peer.name)?;
         super::sanity::not_a_formula(&format!("peer.{i}.name"), &peer.name)?;
         if let Some(reason) = &peer.exclude {
-            one_line(&key("exclude"), reason)?;
+            plain_label(&key("exclude"), reason)?;
             super::sanity::not_a_formula(&format!("peer.{i}.exclude"), reason)?;
         }
         let earlier = case.peers[..i].iter().map(|p| p.name.as_str());
