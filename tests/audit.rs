@@ -1425,6 +1425,49 @@ fn compare_names_the_unexplained_part_of_either_claim() {
     assert!((sum - (0.0935 - 0.08)).abs() < 1e-15, "{sum}");
 }
 
+// A claimed build-up gets the plausibility checks a case's figures get (found by review: a
+// claim's premiums of 0.6, a 0.6% typed as a percentage, passed without a word). Premiums of
+// 60% are above the 15% the case's check uses for a premium (README, "Sanity rules"; a
+// judgement, common practice puts premiums well under it), and the WACC its components then
+// give, 48.6% (compare prints it), is above the check's 30%; the adviser's Kd (6.2%) is below
+// the claim's Ke, so no other check fires. The notes name the claim, in `compare` and in the
+// run's notes through [reconcile]; the case's own side gets none.
+#[test]
+fn a_claimed_build_up_gets_the_plausibility_checks() {
+    let (dir, case_dir) = demo_copy();
+    let claimed = case_dir.join("claimed.toml");
+    let written = std::fs::read_to_string(&claimed).unwrap();
+    let edited = written.replace("premiums = 0.010", "premiums = 0.6");
+    assert_ne!(edited, written);
+    std::fs::write(&claimed, edited).unwrap();
+    let case = case_dir.join("case.toml");
+    let output = hurdle(&[
+        "compare",
+        case.to_str().unwrap(),
+        claimed.to_str().unwrap(),
+        "--out",
+        dir.path().join("out").to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    let expected = "Check: in the claimed build-up \"Adviser's build-up (fictional)\", the \
+                    additional equity premiums sum to 60.00%, far above";
+    let wacc = "Check: in the claimed build-up \"Adviser's build-up (fictional)\", the WACC is \
+                48.62%, far above";
+    let checks: Vec<&str> = report.lines().filter(|l| l.contains("Check:")).collect();
+    assert_eq!(checks.len(), 2, "{report}");
+    assert!(checks[0].contains(expected), "{report}");
+    assert!(checks[1].contains(wacc), "{report}");
+    let result = run_case(&case, &dir.path().join("run"), &[]);
+    let notes: Vec<&str> = (result["notes"].as_array().unwrap().iter())
+        .map(|n| n.as_str().unwrap())
+        .filter(|n| n.starts_with("Check:"))
+        .collect();
+    assert_eq!(notes.len(), 2, "{notes:?}");
+    assert!(notes[0].starts_with(expected), "{notes:?}");
+    assert!(notes[1].starts_with(wacc), "{notes:?}");
+}
+
 // Two cases: each side's date, window, peers and unlevered beta are printed under it, the
 // peers aggregated on one side only are named, and a cost of debt built as rf + spread is
 // said to carry part of a risk-free change (found by review of a quarter's roll-forward).

@@ -228,3 +228,76 @@ fn long_peer_names_widen_the_name_column() {
         assert!((52.0..53.0).contains(&width), "{widths}");
     }
 }
+
+// The workbook carries the run's own notes and each peer's flags, as result.json gives them (a
+// reader who opens only the workbook saw the general cautions and nothing the run found; found
+// by review). A size premium of 0.5 (a percentage typed as a decimal) makes a "Check:" note;
+// openpyxl, an independent reader of the file, reads the Cover's notes block and the Betas
+// sheet's Flags column back.
+#[test]
+fn the_workbook_carries_the_runs_notes_and_flags() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    run(DEMO_CASE, &["premiums.size=0.5"], &out);
+    let script = "import sys, json, openpyxl\n\
+                  book = openpyxl.load_workbook(sys.argv[1])\n\
+                  cover = [[c.value for c in r] for r in book['Cover'].iter_rows(max_col=2)]\n\
+                  at = [r[0] for r in cover].index('Notes on this run')\n\
+                  notes = []\n\
+                  for mark, text in cover[at + 1:]:\n    \
+                      if mark is None: break\n    \
+                      notes.append([mark, text])\n\
+                  betas = book['Betas']\n\
+                  head = [c.value for c in betas[1]]\n\
+                  col = head.index('Flags')\n\
+                  flags = {r[0].value: r[col].value for r in betas.iter_rows(min_row=2) if r[col].value}\n\
+                  print(json.dumps({'notes': notes, 'flags': flags}))";
+    let output = Command::new("python3")
+        .args(["-c", script])
+        .arg(out.join("workbook.xlsx"))
+        .output()
+        .expect("python3 runs");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let read: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let result: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    let notes: Vec<&str> = (result["notes"].as_array().unwrap().iter())
+        .map(|n| n.as_str().unwrap())
+        .collect();
+    let mut expected: Vec<&str> = notes
+        .iter()
+        .copied()
+        .filter(|n| n.starts_with("Check: "))
+        .collect();
+    assert!(!expected.is_empty(), "{notes:?}");
+    expected.extend(notes.iter().filter(|n| !n.starts_with("Check: ")));
+    let listed: Vec<(&str, &str)> = (read["notes"].as_array().unwrap().iter())
+        .map(|pair| (pair[0].as_str().unwrap(), pair[1].as_str().unwrap()))
+        .collect();
+    assert_eq!(listed.iter().map(|(_, n)| *n).collect::<Vec<_>>(), expected);
+    for (mark, note) in listed {
+        assert_eq!(
+            mark == "Check",
+            note.starts_with("Check: "),
+            "{mark}: {note}"
+        );
+    }
+    for peer in result["peers"].as_array().unwrap() {
+        let flags: Vec<&str> = (peer["flags"].as_array().unwrap().iter())
+            .map(|f| f.as_str().unwrap())
+            .collect();
+        let shown = if flags.is_empty() {
+            "none".to_string()
+        } else {
+            flags.join(", ")
+        };
+        assert_eq!(
+            read["flags"][peer["name"].as_str().unwrap()],
+            shown.as_str()
+        );
+    }
+}

@@ -321,6 +321,42 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
     Ok((side, None))
 }
 
+/// The plausibility checks a case's own figures get, run on a claimed build-up (a case hurdle
+/// computed has its own notes): a bank's or adviser's file is as open to a percentage typed for
+/// a decimal (0.6 for a 0.6% premium) as a case. Each note begins "Check: " and names the claim.
+pub fn claim_notes(side: &Side) -> Vec<String> {
+    if side.computed {
+        return Vec::new();
+    }
+    let b = &side.build_up;
+    let figures = crate::valuation::Figures {
+        risk_free_rate: b.risk_free_rate,
+        equity_risk_premium: b.equity_risk_premium,
+        premiums: b.premiums,
+        cost_of_debt_pre_tax: b.cost_of_debt_pre_tax,
+        cost_of_equity: b.cost_of_equity(),
+        tax_rate: b.tax_rate,
+        wacc: side.wacc,
+    };
+    let stated = side
+        .stated_wacc
+        .filter(|&w| w > crate::case::sanity::USUAL_MAX_COST || w <= 0.0)
+        .map(|w| {
+            format!(
+                "Check: the stated WACC is {}%, outside what a discount rate usually is; rates \
+                 are decimals (0.055 is 5.5%).",
+                crate::error::rounded(w * 100.0, 2)
+            )
+        });
+    (crate::valuation::plausibility(&figures).into_iter())
+        .chain(stated)
+        .map(|note| {
+            let rest = note.strip_prefix("Check: ").unwrap_or(&note);
+            format!("Check: in the claimed build-up \"{}\", {rest}", side.label)
+        })
+        .collect()
+}
+
 /// A note when the two sides speak for different dates (a claim's `as_of`, a case's valuation
 /// date): rates and premiums move between dates, so part of the gap is the date's.
 pub fn dates_note(from: &Side, to: &Side) -> Option<String> {

@@ -65,6 +65,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             ..ours.clone()
         };
         valuation.notes.extend(bridge::dates_note(&dated, &claimed));
+        valuation.notes.extend(bridge::claim_notes(&claimed));
         valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
     }
     crate::valuation::sanity::check_finite_figures(&valuation)?;

@@ -17,6 +17,7 @@ use chrono::NaiveDate;
 
 pub use analyses::{Bridge, Grid, RefusedCell, Uncertainty};
 pub use build::{chain_error, chain_peers, cost_of_capital, exclusions, peer_results, value_with};
+pub use notes::{plausibility, Figures};
 pub use records::*;
 
 use crate::capital::debt::SpreadTable;

@@ -136,6 +136,33 @@ fn unused_cost_notes(settings: &CaseFile) -> Vec<String> {
 /// goes through as 50%. The bounds are generous judgements, not rules of any standard: they
 /// flag, they do not refuse.
 pub(super) fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
+    plausibility(&Figures {
+        risk_free_rate: cost.risk_free_rate,
+        equity_risk_premium: cost.equity_risk_premium,
+        premiums: cost.premiums.total,
+        cost_of_debt_pre_tax: cost.cost_of_debt_pre_tax,
+        cost_of_equity: cost.cost_of_equity,
+        tax_rate: cost.target.tax_rate,
+        wacc: cost.wacc,
+    })
+}
+
+/// The figures the plausibility checks read: a case's, or a claimed build-up's (which a bank or
+/// adviser typed, as open to a percentage typed for a decimal as a case).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Figures {
+    pub risk_free_rate: f64,
+    pub equity_risk_premium: f64,
+    /// The sum of the additional equity premiums.
+    pub premiums: f64,
+    pub cost_of_debt_pre_tax: f64,
+    pub cost_of_equity: f64,
+    pub tax_rate: f64,
+    pub wacc: f64,
+}
+
+/// [`plausibility_notes`] over plain figures: each note begins "Check: ".
+pub fn plausibility(cost: &Figures) -> Vec<String> {
     use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
     // Written as the memo writes a rate, rounded as everywhere else.
     let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
@@ -151,9 +178,9 @@ pub(super) fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
             cost.equity_risk_premium,
         ),
         (
-            cost.premiums.total > USUAL_MAX_PREMIUM,
+            cost.premiums > USUAL_MAX_PREMIUM,
             "the additional equity premiums sum to",
-            cost.premiums.total,
+            cost.premiums,
         ),
         (
             cost.cost_of_debt_pre_tax > USUAL_MAX_COST,
@@ -181,7 +208,7 @@ pub(super) fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
 /// Notes on figures out of their usual order: an ERP or a WACC not above zero, a cost of equity
 /// or of debt below the risk-free rate, a cost of debt above the cost of equity, and a tax rate
 /// above one half.
-fn out_of_order_notes(cost: &CostOfCapital) -> Vec<String> {
+fn out_of_order_notes(cost: &Figures) -> Vec<String> {
     let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
     let mut notes = Vec::new();
     let below = |what: &str, x: f64, why: &str| format!("Check: {what}, {}, {why}", percent(x));
@@ -212,11 +239,11 @@ fn out_of_order_notes(cost: &CostOfCapital) -> Vec<String> {
     }
     // Statutory corporate rates lie well below one half (a fact of the trade, common practice);
     // a rate above it is most often a typing slip.
-    if cost.target.tax_rate > 0.5 {
+    if cost.tax_rate > 0.5 {
         notes.push(format!(
             "Check: the target tax rate is {}, above any usual corporate rate: check the \
              figure.",
-            percent(cost.target.tax_rate)
+            percent(cost.tax_rate)
         ));
     }
     if cost.wacc <= 0.0 {

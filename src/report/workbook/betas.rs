@@ -53,15 +53,21 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
         p_value: s.p_value.clone(),
         percent: s.return_pct.clone(),
     };
+    // The run's flags last, as text: what the memo's diagnostics table says of each peer.
+    let flags_col = c.names.len() as u16;
+    book.text(&mut sheet, (0, flags_col), "Flags", &header)?;
     let mut rows = Vec::with_capacity(v.peers.len());
     for i in 0..v.peers.len() {
         let row = 1 + i as u32;
-        book.text(
-            &mut sheet,
-            (row, 0),
-            &v.peers[i].name,
-            &book.styles.text.clone(),
-        )?;
+        let text = book.styles.text.clone();
+        book.text(&mut sheet, (row, 0), &v.peers[i].name, &text)?;
+        let flags: Vec<&str> = v.peers[i].flags.iter().map(|f| f.name()).collect();
+        let flags = if flags.is_empty() {
+            "none".to_string()
+        } else {
+            flags.join(", ")
+        };
+        book.text(&mut sheet, (row, flags_col), &flags, &text)?;
         peer_row(
             book,
             &mut sheet,
@@ -86,6 +92,10 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
     for col in 1..c.names.len() as u16 {
         sheet.ws.set_column_width(col, 11).map_err(xlsx_error)?;
     }
+    sheet
+        .ws
+        .set_column_width(flags_col, 28)
+        .map_err(xlsx_error)?;
     Ok(BetasLayout {
         sheet,
         rows,

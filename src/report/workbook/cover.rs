@@ -112,6 +112,7 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
         row += 1;
     }
     row = headline(book, &mut sheet, row + 1)?;
+    row = notes(book, &mut sheet, row + 1)?;
     row = files(book, &mut sheet, row + 1)?;
     book.text(&mut sheet, (row + 1, 0), "Sheets", &subtitle)?;
     row += 2;
@@ -134,6 +135,36 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
         sheet.ws.set_column_width(col, 16).map_err(xlsx_error)?;
     }
     Ok(sheet)
+}
+
+/// The run's own notes, as `result.json` and the memo give them, the figures to check first: a
+/// reader who opens only the workbook sees what the run found (a premium typed as a percentage,
+/// a peer dropped, a window the data do not cover), not just the general cautions.
+fn notes(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
+    let v = book.v;
+    let (subtitle, text, flag) = (
+        book.styles.subtitle.clone(),
+        book.styles.text.clone(),
+        book.styles.flag.clone(),
+    );
+    book.text(sheet, (row, 0), "Notes on this run", &subtitle)?;
+    let mut row = row + 1;
+    if v.notes.is_empty() {
+        book.text(sheet, (row, 1), "None.", &text)?;
+        return Ok(row + 1);
+    }
+    let checks = v.notes.iter().filter(|n| n.starts_with("Check: "));
+    let others = v.notes.iter().filter(|n| !n.starts_with("Check: "));
+    for note in checks.chain(others) {
+        let (mark, style) = match note.starts_with("Check: ") {
+            true => ("Check", &flag),
+            false => ("•", &text),
+        };
+        book.text(sheet, (row, 0), mark, style)?;
+        book.text(sheet, (row, 1), note, &text)?;
+        row += 1;
+    }
+    Ok(row)
 }
 
 /// The headline figures, as formulas over the named results.
