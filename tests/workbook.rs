@@ -44,8 +44,9 @@ fn run(case: &str, overrides: &[&str], out: &Path) {
 /// Option sets that between them take every branch of the workbook's layout: each estimator,
 /// kind of standard error, adjustment, leverage formula, debt-beta source, cost-of-debt source,
 /// aggregation, country-premium method and target source, cash correction, net debt, preferred
-/// equity and leases, a currency conversion, an excluded peer, and raw (not excess) returns.
-const CONFIGURATIONS: [(&str, &[&str]); 4] = [
+/// equity and leases, a currency conversion, an excluded peer, raw (not excess) returns, and
+/// an aggregate of one peer (whose spread result.json leaves null and the sheet gives "n/a").
+const CONFIGURATIONS: [(&str, &[&str]); 5] = [
     (
         "dimson",
         &[
@@ -116,6 +117,18 @@ const CONFIGURATIONS: [(&str, &[&str]); 4] = [
             "target.source=peer-median",
             // A peer left out, so the target's MEDIAN reads the aggregated peers only.
             "peer.2.exclude=\"a peer left out of the median\"",
+        ],
+    ),
+    (
+        "one-peer",
+        &[
+            "peer.1.exclude=left out",
+            "peer.2.exclude=left out",
+            "peer.3.exclude=left out",
+            "peer.4.exclude=left out",
+            "peer.5.exclude=left out",
+            "peer.6.exclude=left out",
+            "peer.7.exclude=left out",
         ],
     ),
 ];

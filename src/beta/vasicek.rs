@@ -35,7 +35,7 @@ pub fn cross_sectional_prior(betas: &[f64]) -> Option<Prior> {
         return None;
     }
     let summary = crate::stats::dispersion(betas);
-    let variance = summary.std_dev * summary.std_dev;
+    let variance = summary.std_dev.map_or(0.0, |s| s * s);
     (variance > 0.0).then_some(Prior {
         mean: summary.mean,
         variance,

@@ -217,8 +217,9 @@ pub struct Dispersion {
     pub upper_quartile: f64,
     pub max: f64,
     pub mean: f64,
-    /// Sample standard deviation (n − 1 denominator); 0 for a single value.
-    pub std_dev: f64,
+    /// Sample standard deviation (n − 1 denominator); `None` (null) for a single value, which
+    /// has no spread to estimate (0 would read as a spread measured to be nil).
+    pub std_dev: Option<f64>,
 }
 
 /// Summarises a non-empty set of finite values.
@@ -228,11 +229,9 @@ pub fn dispersion(values: &[f64]) -> Dispersion {
     sorted.sort_by(f64::total_cmp);
     let n = sorted.len();
     let mean = sorted.iter().sum::<f64>() / n as f64;
-    let std_dev = if n > 1 {
+    let std_dev = (n > 1).then(|| {
         (sorted.iter().map(|v| (v - mean) * (v - mean)).sum::<f64>() / (n - 1) as f64).sqrt()
-    } else {
-        0.0
-    };
+    });
     Dispersion {
         count: n,
         min: sorted[0],
@@ -323,7 +322,10 @@ mod tests {
         );
         assert_eq!((d.min, d.max, d.mean), (1.0, 4.0, 2.5));
         // Sample SD of 1..4: √(5/3) (sum of squared deviations 5, n − 1 = 3).
-        assert!((d.std_dev - (5.0_f64 / 3.0).sqrt()).abs() < 1e-15);
+        assert!((d.std_dev.unwrap() - (5.0_f64 / 3.0).sqrt()).abs() < 1e-15);
+        // One value: no spread to estimate (numpy.std(ddof=1) of one value is nan with a
+        // warning), so none, not 0.
+        assert_eq!(dispersion(&[0.8]).std_dev, None);
     }
 
     // Weighted mean by hand: values 1, 2, 4 with weights 1, 1, 2: (1 + 2 + 8) / 4 = 2.75.

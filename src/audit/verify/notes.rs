@@ -91,7 +91,35 @@ struct KnownChange {
     explain: fn(&Value, &Value) -> Option<String>,
 }
 
-const KNOWN_CHANGES: [KnownChange; 2] = [
+/// 0.6.0's null for the standard deviation of one value, in words (a case's aggregate of one
+/// peer, a universe's industry of one security).
+const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a single value \
+    as null, where an earlier version wrote 0 (one value has no spread to estimate; 0 read as a \
+    spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
+    user's and a chart reader's reviews\")";
+
+const KNOWN_CHANGES: [KnownChange; 4] = [
+    KnownChange {
+        version: "0.6.0",
+        kind: "case",
+        paths: &["beta.unlevered_dispersion.std_dev"],
+        explain: |_, rerun| {
+            rerun["beta"]["unlevered_dispersion"]["std_dev"]
+                .is_null()
+                .then(|| ONE_VALUE_SPREAD.to_string())
+        },
+    },
+    KnownChange {
+        version: "0.6.0",
+        kind: "universe",
+        paths: &["industries"],
+        explain: |_, rerun| {
+            let singles = (rerun["industries"].as_array().into_iter().flatten())
+                .flat_map(|i| [&i["levered"], &i["shrunk"], &i["unlevered"]])
+                .any(|s| s["dispersion"]["count"] == 1);
+            singles.then(|| ONE_VALUE_SPREAD.to_string())
+        },
+    },
     KnownChange {
         version: "0.2.0",
         kind: "case",
@@ -248,5 +276,32 @@ mod tests {
             ),
             0
         );
+    }
+
+    // 0.6.0's null spread of one value: named for an earlier case receipt whose aggregate's
+    // std_dev differs and is now null, not for a receipt of 0.6.0 or a spread of eight peers;
+    // for a universe receipt whose industries differ and hold an industry of one.
+    #[test]
+    fn the_null_spread_of_one_value_is_a_known_change() {
+        let spread = mismatch("beta.unlevered_dispersion.std_dev");
+        let one = json!({"beta": {"unlevered_dispersion": {"count": 1, "std_dev": null}}});
+        let eight = json!({"beta": {"unlevered_dispersion": {"count": 8, "std_dev": 0.09}}});
+        let named = |versions, rerun: &Value| {
+            known_changes("case", versions, &[&spread], (&json!({}), rerun))
+        };
+        let found = named(("0.5.0", "0.6.0"), &one);
+        assert_eq!(found.len(), 1);
+        assert!(found[0].starts_with("hurdle 0.6.0 writes the standard deviation of a single"));
+        assert!(named(("0.6.0", "0.6.0"), &one).is_empty());
+        assert!(named(("0.5.0", "0.6.0"), &eight).is_empty());
+        let industries = mismatch("industries[3].levered.dispersion.std_dev");
+        let single = json!({"industries": [{"levered": {"dispersion": {"count": 1}}}]});
+        let versions = ("0.5.0", "0.6.0");
+        let universe = |rerun: &Value| {
+            known_changes("universe", versions, &[&industries], (&json!({}), rerun)).len()
+        };
+        assert_eq!(universe(&single), 1);
+        let pair = json!({"industries": [{"levered": {"dispersion": {"count": 2}}}]});
+        assert_eq!(universe(&pair), 0);
     }
 }

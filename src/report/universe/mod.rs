@@ -349,15 +349,12 @@ fn summary_columns(
     );
     t.number(&format!("min_{stem}"), d(|s| s.dispersion.min));
     t.number(&format!("max_{stem}"), d(|s| s.dispersion.max));
-    // A sample standard deviation needs two values; with one, the cell is empty (the result's
-    // 0 with its count of 1 would read as no dispersion).
+    // A sample standard deviation needs two values; with one, the cell is empty (as the
+    // result's null).
     t.number(
         &format!("std_dev_{stem}"),
-        rows.iter().map(move |r| {
-            pick(r)
-                .filter(|s| s.dispersion.count >= 2)
-                .map(|s| s.dispersion.std_dev)
-        }),
+        rows.iter()
+            .map(move |r| pick(r).and_then(|s| s.dispersion.std_dev)),
     );
 }
 

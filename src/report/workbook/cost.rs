@@ -54,7 +54,7 @@ const AGGREGATION: &[Row] = &[
     ("Upper quartile", "=QUARTILE.INC({agg},3)", "/beta/unlevered_dispersion/upper_quartile",
      Fmt::Beta, "", None),
     ("Highest", "=MAX({agg})", "/beta/unlevered_dispersion/max", Fmt::Beta, "", None),
-    ("Standard deviation", "=IF(COUNT({agg})>1,STDEV.S({agg}),0)",
+    ("Standard deviation", "=IF(COUNT({agg})>1,STDEV.S({agg}),\"n/a\")",
      "/beta/unlevered_dispersion/std_dev", Fmt::Beta, "Sample standard deviation (n − 1).", None),
     ("Aggregate unlevered beta βU", "={statistic}", "/beta/unlevered", Fmt::Beta,
      "The case's statistic: {aggregation}.", Some("UnleveredBeta")),
@@ -297,7 +297,11 @@ impl Writer<'_, '_> {
         };
         let (label_style, mono, text) = (s.label.clone(), s.mono.clone(), s.text.clone());
         book.text(self.sheet, (r, 0), label, &label_style)?;
-        let expect = Expect::Json(pointer.to_string());
+        // A figure result.json leaves null (the spread of one peer) is the formula's "n/a".
+        let expect = match book.is_null(pointer) {
+            true => Expect::Text("n/a"),
+            false => Expect::Json(pointer.to_string()),
+        };
         book.formula(self.sheet, (r, 1), &fill(formula, words), expect, &format)?;
         let field = pointer.trim_start_matches('/').replace('/', ".");
         book.text(self.sheet, (r, 2), &field, &mono)?;
