@@ -544,6 +544,12 @@ fn a_file_changed_without_moving_a_figure_is_a_changed_input_only() {
             && report.contains(", 0 mismatched"),
         "{report}"
     );
+    // And says that the data read give the receipt's figures (found by review: a workbook
+    // saved again read as a changed input with nothing more said).
+    assert!(
+        report.contains("every figure matches, so the changed files' bytes differ but the data"),
+        "{report}"
+    );
 }
 
 // A verification written into a run's folder describes the receipt there; a new run replaces

@@ -204,8 +204,19 @@ impl Verification {
             1 => changed.push_str("1 input file not hashed in the receipt; "),
             n => changed.push_str(&format!("{n} input files not hashed in the receipt; ")),
         }
+        // Files whose bytes changed while every figure matches: the data the run reads are,
+        // for every figure, the receipt's (line ends rewritten, a workbook saved again); the
+        // verdict stays, since the receipt's hashes are not met, but says so.
+        let same_data = match self.changed_inputs() > 0 && self.mismatches.is_empty() {
+            true => {
+                "; every figure matches, so the changed files' bytes differ but the data read \
+                 from them give the receipt's figures (line ends rewritten or a workbook saved \
+                 again do this): compare the files to settle it"
+            }
+            false => "",
+        };
         format!(
-            "{}: {changed}{} figures compared, {} mismatched (relative tolerance {}){}",
+            "{}: {changed}{} figures compared, {} mismatched (relative tolerance {}){}{same_data}",
             if self.reproduced {
                 "REPRODUCED"
             } else {
