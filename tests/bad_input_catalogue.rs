@@ -715,6 +715,25 @@ fn yield_files() -> Vec<Bad> {
             [RISK_FREE, "line 848", "3.8", "percentage"]
         ),
         bad!(
+            // A series that goes on in percentages below 1 partway (0.52 for 0.52%, twenty
+            // times the demo's yields) passes the 100% bound and the median check; the first
+            // switched row (the demo's line 848, 2023-03-31) is named. README, "Sanity rules".
+            "yields switching to percent partway, all below 1",
+            |s| s.map_lines(RISK_FREE, |n, l| match l.split_once(',') {
+                Some((date, y)) if n >= LINE => {
+                    format!("{date},{}", y.parse::<f64>().unwrap() * 20.0)
+                }
+                _ => l.into(),
+            }),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                RISK_FREE,
+                "line 848",
+                "on 2023-03-31 after 0.02591",
+                "decimals and percentages mixed"
+            ]
+        ),
+        bad!(
             "yields in percent, all below 1",
             |s| {
                 let rate: f64 = case_key(s, "risk_free_rate").1.parse().unwrap();
@@ -1906,10 +1925,18 @@ fn claimed_files() -> Vec<Bad> {
             |s| claim(
                 s,
                 "beta = 1.10",
-                "beta = 1.10\npreferred_weight = 0.6\npreferred_cost = 0.07\nlease_weight = 0.4"
+                "beta = 1.10\npreferred_weight = 0.5\npreferred_cost = 0.07\nlease_weight = 0.5"
             ),
             ["compare", "{case}", "{dir}/bad_claim.toml"],
-            ["bad_claim.toml", "0.6 + 0.4", "sum below 1"]
+            ["bad_claim.toml", "0.5 + 0.5", "sum below 1"]
+        ),
+        bad!(
+            // The bound of a case's [leases] weight (README, "Sanity rules"), found by review
+            // to be missing for a claim.
+            "claimed lease weight above half of capital",
+            |s| claim(s, "beta = 1.10", "beta = 1.10\nlease_weight = 0.6"),
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            ["bad_claim.toml", "claimed.lease_weight = 0.6", "above 0.5"]
         ),
         bad!(
             "claimed lease weight in percent",

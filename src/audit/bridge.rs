@@ -71,6 +71,15 @@ fn other_components(claimed: &Claimed) -> std::result::Result<[(f64, f64); 2], S
         if !(0.0..1.0).contains(&weight) {
             return Err(format!("claimed.{key} = {weight} is outside [0, 1)"));
         }
+        // The bound a case's [preferred] and [leases] have (README, "Sanity rules").
+        let most = crate::case::sanity::MAX_COMPONENT_WEIGHT;
+        if weight > most {
+            return Err(format!(
+                "claimed.{key} = {weight} is above {most}: a component that large is the main \
+                 financing; a case would refuse it, so the two sides could not be compared on \
+                 one footing"
+            ));
+        }
     }
     if wp + wl >= 1.0 {
         return Err(format!(

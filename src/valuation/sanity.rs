@@ -77,6 +77,8 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
         }
     }
     if let Some(yields) = &inputs.risk_free {
+        // The more specific finding first: a switch of units partway also moves the median.
+        check_yield_switch(&inputs.case.resolve(&yields.path), yields)?;
         let median = crate::stats::dispersion(&yields.series.values).median;
         let rate = settings.market.risk_free_rate;
         if median > YIELD_RATIO * rate.abs().max(0.01) {
@@ -93,6 +95,50 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// A yield that moves by more than this factor between two rows, and by more than
+/// [`YIELD_SWITCH_POINTS`], has changed units, not level.
+const YIELD_SWITCH_FACTOR: f64 = 10.0;
+/// Ten percentage points in one row: with a tenfold move, from at most 1.1% to at least 11%
+/// (or back), which no government yield has done from one period to the next outside a
+/// currency's collapse; a series written in decimals that goes on in percentages below 1 (0.031,
+/// then 0.5 for 0.5%) does it. hurdle's bound, not a published one.
+const YIELD_SWITCH_POINTS: f64 = 0.10;
+
+/// A yield series that switches units partway (decimals, then percentages that stay below 1,
+/// which the 100% bound cannot see), named at the first row of the switch.
+fn check_yield_switch(path: &Path, file: &DataFile) -> Result<()> {
+    let (dates, values) = (&file.series.dates, &file.series.values);
+    let switch = (1..values.len()).find(|&i| {
+        let (before, now) = (values[i - 1], values[i]);
+        let (low, high) = (before.abs().min(now.abs()), before.abs().max(now.abs()));
+        (now - before).abs() > YIELD_SWITCH_POINTS && high > YIELD_SWITCH_FACTOR * low
+    });
+    let Some(i) = switch else {
+        return Ok(());
+    };
+    let message = format!(
+        "yield {} on {} after {} on {} moves by {} percentage points in one row, more than \
+         tenfold: the series looks like decimals and percentages mixed (0.5 for 0.5% after \
+         0.031 for 3.1%); yields are decimals throughout",
+        show(values[i]),
+        dates[i],
+        show(values[i - 1]),
+        dates[i - 1],
+        crate::error::rounded((values[i] - values[i - 1]).abs() * 100.0, 2)
+    );
+    Err(match file.places.get(i) {
+        Some(place) => Error::DataFile {
+            file: path.to_path_buf(),
+            message: format!("{place}: {message}"),
+        },
+        None => Error::DataRow {
+            file: path.to_path_buf(),
+            line: i + 2,
+            message,
+        },
+    })
 }
 
 /// A move by more than [`JUMP_FACTOR`] between consecutive rows, unless its date is accepted.
