@@ -622,10 +622,18 @@ fn an_inert_daily_staleness_limit_is_noted() {
         let limit = format!("beta.max_stale_days={days}");
         let case = case_dir.join("case.toml");
         let result = common::run_case_with(&case, &out, &[daily[0], daily[1], &limit]);
-        result["peers"][1]["periods_dropped"]["asset_stale"]
+        let count = result["peers"][1]["periods_dropped"]["asset_stale"]
             .as_u64()
-            .unwrap()
+            .unwrap();
+        (count, result["notes"].to_string())
     };
-    assert!(stale("1") > 0);
-    assert_eq!(stale("2"), 0);
+    let (count, notes) = stale("1");
+    assert!(count > 0);
+    // The note on the dropped periods says how many were dropped for a stale price (found by
+    // review: it said "peer price missing" of a file with a price on every weekday but Monday).
+    assert!(
+        notes.contains(&format!("{count} of them for a stale price")),
+        "{notes}"
+    );
+    assert_eq!(stale("2").0, 0);
 }

@@ -122,6 +122,7 @@ fn settings_the_case_does_not_use_are_noted_and_change_nothing() {
         "beta.vasicek_prior_variance=0.09",
         "preferred.cost=0.08",
         "leases.cost_pre_tax=0.06",
+        "premiums.country_exposure=0.8",
     ];
     let mut args: Vec<&str> = base.to_vec();
     for set in &unused {

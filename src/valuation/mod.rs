@@ -301,13 +301,19 @@ fn data_notes(
             (0, _) | (_, true) => "",
             _ => TWO_RETURNS,
         };
+        // A stale sample is dropped as missing; said beside its count, so the reader does not
+        // look for a gap in a file that has a price on every day (found by review).
+        let of_which = |missing: usize, stale: usize| match stale {
+            0 => missing.to_string(),
+            n => format!("{missing}, {n} of them for a stale price"),
+        };
         notes.push(format!(
             "{name}: {} of {} periods dropped (peer price missing {}, index price missing {}, \
              risk-free missing {}{shifted}).{why}",
             d.total,
             estimated.periods_in_window,
-            d.asset_missing,
-            d.market_missing,
+            of_which(d.asset_missing, d.asset_stale),
+            of_which(d.market_missing, d.market_stale),
             d.risk_free_missing
         ));
     }

@@ -3,6 +3,7 @@
 //! figures outside their usual bounds or order, which the memo's cautions repeat.
 
 use crate::capital::chain::Chain;
+use crate::capital::cost::CountryMethod;
 use crate::capital::leverage::Formula;
 use crate::case::{CaseFile, DebtBetaSource, DebtSource, TargetSource};
 
@@ -41,6 +42,18 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
         ));
     }
     notes.extend(unused_cost_notes(settings));
+    let premiums = &settings.premiums;
+    if premiums.country_method != CountryMethod::Exposure && premiums.country_exposure != 1.0 {
+        notes.push(format!(
+            "premiums.country_exposure = {} is not used: premiums.country_method is \"{}\"; \
+             only \"exposure\" scales the country premium by it.",
+            crate::error::compact(premiums.country_exposure),
+            match premiums.country_method {
+                CountryMethod::BetaScaled => "beta-scaled",
+                _ => "flat",
+            }
+        ));
+    }
     for peer in settings.peers.iter().filter(|p| p.tax_rate > 0.5) {
         notes.push(format!(
             "Check: the tax rate of {} is {}%, above any usual corporate rate: check the \
