@@ -1431,6 +1431,50 @@ fn compare_names_the_unexplained_part_of_either_claim() {
     assert!((sum - (0.0935 - 0.08)).abs() < 1e-15, "{sum}");
 }
 
+// A claim may say its currency; one other than the case's is noted, since each nominal rate
+// carries its currency's expected inflation (Fisher 1930) and the bridge's steps would read a
+// currency gap as judgement (found by review: a claim could not say its currency). The demo's
+// case is in EUR; "eur" is the same currency, written otherwise, and gets no note.
+#[test]
+fn a_claim_in_another_currency_is_noted() {
+    let (dir, case_dir) = demo_copy();
+    let claimed = case_dir.join("claimed.toml");
+    let written = std::fs::read_to_string(&claimed).unwrap();
+    let case = case_dir.join("case.toml");
+    let in_currency = |currency: &str, name: &str| {
+        let edited = written.replace(
+            "wacc = 0.0935",
+            &format!("wacc = 0.0935\ncurrency = \"{currency}\""),
+        );
+        assert_ne!(edited, written);
+        std::fs::write(&claimed, edited).unwrap();
+        let output = hurdle(&[
+            "compare",
+            case.to_str().unwrap(),
+            claimed.to_str().unwrap(),
+            "--out",
+            dir.path().join(name).to_str().unwrap(),
+        ]);
+        assert!(output.status.success(), "{}", text(&output));
+        let result = run_case(&case, &dir.path().join(format!("{name}-run")), &[]);
+        (text(&output), result)
+    };
+    let expected =
+        "is in EUR and Adviser's build-up (fictional) in USD: each rate carries its own \
+                    currency's expected inflation";
+    let (report, result) = in_currency("USD", "usd");
+    assert!(report.contains(expected), "{report}");
+    assert!(
+        result["notes"].to_string().contains(expected),
+        "{}",
+        result["notes"]
+    );
+    assert_eq!(result["reconciliation"]["to"]["currency"], "USD");
+    let (report, result) = in_currency("eur", "eur");
+    assert!(!report.contains("expected inflation"), "{report}");
+    assert!(!result["notes"].to_string().contains("expected inflation"));
+}
+
 // A claimed build-up gets the plausibility checks a case's figures get (found by review: a
 // claim's premiums of 0.6, a 0.6% typed as a percentage, passed without a word). Premiums of
 // 60% are above the 15% the case's check uses for a premium (README, "Sanity rules"; a

@@ -38,6 +38,9 @@ struct Claimed {
     /// The date the build-up speaks for, when it says.
     #[serde(default)]
     as_of: Option<crate::case::CaseDate>,
+    /// The currency the build-up's rates are in, when it says.
+    #[serde(default)]
+    currency: Option<String>,
     risk_free_rate: f64,
     equity_risk_premium: f64,
     beta: f64,
@@ -246,6 +249,7 @@ fn case_side(path: &Path, written: &str) -> Result<(Side, Option<CaseFacts>)> {
     let mut side = Side::from_valuation(&valuation.case.title, &valuation);
     side.source = written.to_string();
     side.as_of = Some(valuation.case.valuation_date.to_string());
+    side.currency = Some(valuation.case.currency.clone());
     side.sha256 = valuation.case.sha256.clone();
     Ok((side, Some(CaseFacts::of(&valuation))))
 }
@@ -273,6 +277,14 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
     let claimed = toml::from_str::<ClaimedFile>(&text)
         .map_err(|e| fail(crate::error::toml_error(&e, &text)))?
         .claimed;
+    if let Some(currency) = &claimed.currency {
+        if currency.trim().is_empty() {
+            return Err(fail(
+                "claimed.currency is empty; leave it out or name the currency".into(),
+            ));
+        }
+        crate::case::sanity::plain_label("claimed.currency", currency).map_err(fail)?;
+    }
     let debt_to_equity = match (claimed.debt_to_equity, claimed.debt_to_capital) {
         (Some(de), None) if de >= 0.0 => de,
         (None, Some(dc)) if (0.0..1.0).contains(&dc) => dc / (1.0 - dc),
@@ -326,6 +338,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         build_up,
         computed: false,
         as_of: claimed.as_of.map(|d| d.to_string()),
+        currency: claimed.currency,
     };
     Ok((side, None))
 }
@@ -364,6 +377,25 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
             format!("Check: in the claimed build-up \"{}\", {rest}", side.label)
         })
         .collect()
+}
+
+/// A note when the two sides' rates are in different currencies (each side's `currency`, a
+/// case's being its `case.currency`): a nominal rate carries its currency's expected inflation
+/// (Fisher 1930), so part of the gap is the currencies', which no input group of the bridge
+/// names. `None` when either side does not say.
+pub fn currency_note(from: &Side, to: &Side) -> Option<String> {
+    let (Some(a), Some(b)) = (&from.currency, &to.currency) else {
+        return None;
+    };
+    (a.trim().to_lowercase() != b.trim().to_lowercase()).then(|| {
+        format!(
+            "{} is in {a} and {} in {b}: each rate carries its own currency's expected \
+             inflation, so part of the gap is the currencies', not the inputs' judgement; put \
+             both sides in one currency first (a case's [conversion] does it for a case) before \
+             reading the steps.",
+            from.label, to.label
+        )
+    })
 }
 
 /// A note when the two sides speak for different dates (a claim's `as_of`, a case's valuation
@@ -475,6 +507,7 @@ mod tests {
             build_up,
             computed: false,
             as_of: None,
+            currency: None,
         }
     }
 

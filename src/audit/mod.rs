@@ -62,9 +62,13 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         // side keeps no date (a case's is in the receipt already).
         let dated = bridge::Side {
             as_of: Some(valuation.case.valuation_date.to_string()),
+            currency: Some(valuation.case.currency.clone()),
             ..ours.clone()
         };
         valuation.notes.extend(bridge::dates_note(&dated, &claimed));
+        valuation
+            .notes
+            .extend(bridge::currency_note(&dated, &claimed));
         valuation.notes.extend(bridge::claim_notes(&claimed));
         valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
     }

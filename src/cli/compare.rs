@@ -116,6 +116,9 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
     if let Some(note) = hurdle::audit::bridge::dates_note(&b.from, &b.to) {
         out.push_str(&format!("note: {note}\n"));
     }
+    if let Some(note) = hurdle::audit::bridge::currency_note(&b.from, &b.to) {
+        out.push_str(&format!("note: {note}\n"));
+    }
     for side in [&b.from, &b.to] {
         for note in hurdle::audit::bridge::claim_notes(side) {
             out.push_str(&format!("note: {note}\n"));

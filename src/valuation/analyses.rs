@@ -360,6 +360,10 @@ pub struct Side {
     /// one. Written when present (the case's own side leaves it to `case.valuation_date`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub as_of: Option<String>,
+    /// The currency the side's rates are in: a claim's `currency` when it gives one (written
+    /// then), a case's `case.currency` for the notes only.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub currency: Option<String>,
 }
 
 impl Side {
@@ -389,6 +393,7 @@ impl Side {
             build_up,
             computed: true,
             as_of: None,
+            currency: None,
         }
     }
 }
