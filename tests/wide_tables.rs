@@ -777,11 +777,17 @@ fn init_refuses_a_table_without_peers_or_dates() {
     assert_eq!(output.status.code(), Some(2), "{stderr}");
     assert!(
         stderr.contains(
-            "line 2, column `security` (date column `security`): the text \"first\" is not a date"
+            "line 2, column `security` (the date column): the text \"first\" is not a date"
         ),
         "{stderr}"
     );
-    assert!(stderr.contains("--date-column"), "{stderr}");
+    assert!(
+        stderr.contains(
+            "the first column, `security`, is taken as the dates unless --date-column names \
+             another (it holds no dates); no column holds date cells or ISO dates"
+        ),
+        "{stderr}"
+    );
     let output = init(&[
         names.to_str().unwrap(),
         "--index",
@@ -996,4 +1002,45 @@ fn a_stray_cell_far_from_the_table_is_named() {
         stderr.contains("because of WQK1 (the text \"note\"), far from"),
         "{stderr}"
     );
+}
+
+// A case reading a hidden sheet says so in its own notes (result.json and the memo), not only
+// `init` on the terminal (found by review: read without a note). openpyxl, an independent
+// writer, hides the wide demo's "Prices" sheet (`sheet_state`, its documented attribute; the
+// "About" sheet stays visible, as a workbook needs one); the figures are the workbook case's.
+#[test]
+fn a_case_reading_a_hidden_sheet_notes_it() {
+    let copy = WideCopy::new();
+    let book = copy.path("data/prices.xlsx");
+    let script = "import sys, openpyxl\n\
+                  book = openpyxl.load_workbook(sys.argv[1])\n\
+                  book['Prices'].sheet_state = 'hidden'\n\
+                  book.save(sys.argv[1])";
+    let output = Command::new("python3")
+        .args(["-c", script])
+        .arg(&book)
+        .output()
+        .expect("python3 with openpyxl (python3 -m pip install openpyxl)");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let out = copy.root.path().join("out");
+    let run = run_case(&copy.path("case_workbook.toml"), &out, &[]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let notes = receipt(&out)["notes"].to_string();
+    assert!(
+        notes.contains(
+            "data/prices.xlsx: sheet \\\"Prices\\\" is hidden in the workbook (its spreadsheet \
+             program does not show it)"
+        ),
+        "{notes}"
+    );
+    let memo = fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(memo.contains("sheet \"Prices\" is hidden"), "{memo}");
 }

@@ -5,6 +5,9 @@
 //! (and the risk-free yields, when named) and one peer per other column, every setting at its
 //! default with a comment, and every figure hurdle cannot know as a placeholder
 //! ([`crate::case::placeholders`]), so the case cannot run until a person has entered each one.
+//! Every column the case names is read here as `hurdle run` will read it, so a column that
+//! cannot be read is refused now; a peer column whose values all lie between −1 and 1 (yields,
+//! not prices, most likely) is reported in [`StartingCase`] and marked in the case.
 
 use std::fmt::Write as _;
 use std::path::{Component, Path, PathBuf};
@@ -13,7 +16,8 @@ use serde::Serialize;
 
 use crate::case::placeholders::placeholder;
 use crate::case::{BetaSettings, LeverageSettings, Premiums, UncertaintySettings};
-use crate::error::{Error, Result};
+use crate::error::{compact, Error, Result};
+use crate::io::series::ValueKind;
 use crate::io::tables::{PriceTable, TableFormat};
 
 /// What `hurdle init` was asked for.
@@ -44,84 +48,169 @@ fn display_name(header: &str) -> String {
     // A name a spreadsheet would read as a formula in a CSV output is refused by the case, so
     // the characters that start one are left off the name (`column` keeps the header).
     let kept = name.trim_start_matches(['=', '+', '-', '@', ' ']);
+    // Backticks and square brackets open code and links in the memo's Markdown, which the case
+    // refuses in a name: a bracket becomes a parenthesis, a backtick an apostrophe.
+    let kept = kept.replace('[', "(").replace(']', ")").replace('`', "'");
     match kept.is_empty() {
         true => "peer".to_string(),
-        false => kept.to_string(),
+        false => kept,
     }
 }
 
-/// The case file's text for `table`: one peer per column other than the index and the
-/// risk-free column.
-pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<String> {
+/// What `hurdle init` wrote and chose: the case's text and the columns it names.
+#[derive(Debug, Clone)]
+pub struct StartingCase {
+    /// The case file's text.
+    pub text: String,
+    /// The index column's header, as the table writes it.
+    pub index: String,
+    /// The risk-free yield column's header, when one was named.
+    pub risk_free: Option<String>,
+    /// One per peer, in the table's order.
+    pub peers: Vec<StartedPeer>,
+}
+
+/// A peer made of a column of the table.
+#[derive(Debug, Clone)]
+pub struct StartedPeer {
+    /// The peer's name in the case: the header on one line, numbered when two read alike.
+    pub name: String,
+    /// The column's header, as the table writes it.
+    pub column: String,
+    /// The lowest and the highest value when every value lies strictly between −1 and 1, as
+    /// yields and rates do and prices seldom do: the column may be the risk-free yields.
+    pub rate_like: Option<(f64, f64)>,
+}
+
+/// The starting case for `table`: one peer per column other than the index and the risk-free
+/// column. Every column it names is read as `hurdle run` will read it (the same reader), so a
+/// column that cannot be read, or holds fewer than two values, is refused here, naming its cell.
+pub fn starting_case(table: &PriceTable, options: &StartOptions) -> Result<StartingCase> {
     let fail = |message: String| Error::DataFile {
         file: table.resolved.clone(),
         message,
     };
-    let listed = || {
-        table
-            .columns
-            .iter()
-            .map(|c| format!("`{c}`"))
-            .collect::<Vec<_>>()
-            .join(", ")
+    let index = chosen(table, "the index column", options.index)?;
+    let risk_free = match options.risk_free {
+        Some(column) => Some(chosen(table, "the risk-free column", column)?),
+        None => None,
     };
-    for (option, column) in [
-        ("the index column", Some(options.index)),
-        ("the risk-free column", options.risk_free),
-    ] {
-        if let Some(column) = column {
-            if !table.columns.iter().any(|c| c == column) {
-                return Err(fail(format!(
-                    "{option} `{column}` is not a column of the table; its price columns are: {}",
-                    listed()
-                )));
-            }
-        }
-    }
-    if options.risk_free == Some(options.index) {
+    if risk_free == Some(index) {
         return Err(fail(format!(
-            "the index and the risk-free yields name the same column `{}`",
-            options.index
+            "the index and the risk-free yields name the same column `{index}`"
         )));
     }
-    let peers: Vec<&String> = table
+    let columns: Vec<&String> = table
         .columns
         .iter()
-        .filter(|c| c.as_str() != options.index && Some(c.as_str()) != options.risk_free)
+        .filter(|c| c.as_str() != index && Some(c.as_str()) != risk_free)
         .collect();
-    if peers.is_empty() {
+    if columns.is_empty() {
         return Err(fail(format!(
             "the table has {} price column(s) ({}) besides the date column `{}`; init needs the \
              index column and at least one peer column",
             table.columns.len(),
-            listed(),
+            quoted_list(&table.columns),
             table.date_column
         )));
     }
+    column_values(table, index, ValueKind::Price, "")?;
+    if let Some(column) = risk_free {
+        column_values(table, column, ValueKind::Yield, "")?;
+    }
+    let peers = started_peers(table, &columns)?;
     let mut text = header(table, options);
-    text.push_str(&market(options));
+    text.push_str(&market(index, risk_free));
     text.push_str(&defaults_sections());
     text.push_str(&capital_sections());
-    // Names must be unique; of two headers that read alike on one line (`A\nB` and `A B`),
-    // the later is numbered (`A B (2)`), so the case runs as written; `column` keeps each
-    // header as it is.
-    let mut names: Vec<String> = Vec::new();
-    for peer in peers {
-        let plain = display_name(peer);
+    for peer in &peers {
+        text.push_str(&peer_table(peer));
+    }
+    Ok(StartingCase {
+        text,
+        index: index.to_string(),
+        risk_free: risk_free.map(str::to_string),
+        peers,
+    })
+}
+
+/// The header of the column `column` names (as the table writes it; a wrapped header matches
+/// its name typed on one line), or an error saying which column `what` is.
+fn chosen<'t>(table: &'t PriceTable, what: &str, column: &str) -> Result<&'t str> {
+    table
+        .find_column(column)
+        .map_err(|message| Error::DataFile {
+            file: table.resolved.clone(),
+            message: format!("{what} `{column}`: {message}"),
+        })
+}
+
+/// Names in backticks, separated by commas.
+fn quoted_list(names: &[String]) -> String {
+    names
+        .iter()
+        .map(|c| format!("`{c}`"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The values of `column` read as `run` reads them, refused when a cell cannot be read or when
+/// fewer than two are there (no return can be made); `peer_advice` ends a peer's message.
+fn column_values(
+    table: &PriceTable,
+    column: &str,
+    kind: ValueKind,
+    peer_advice: &str,
+) -> Result<Vec<f64>> {
+    let with_advice = |error: Error| match error {
+        Error::DataFile { file, message } => Error::DataFile {
+            file,
+            message: format!("{message}{peer_advice}"),
+        },
+        other => other,
+    };
+    let file = table.series("init", column, kind).map_err(with_advice)?;
+    if let [only] = file.places.as_slice() {
+        return Err(with_advice(Error::DataFile {
+            file: table.resolved.clone(),
+            message: format!(
+                "{} holds the only {} of its column: a return needs two",
+                table.with_column(only, column),
+                kind.noun()
+            ),
+        }));
+    }
+    Ok(file.series.values)
+}
+
+/// A peer for each of `columns`, each read as its prices; of two headers that read alike on one
+/// line (`A\nB` and `A B`), the later is numbered (`A B (2)`), so the case runs as written.
+fn started_peers(table: &PriceTable, columns: &[&String]) -> Result<Vec<StartedPeer>> {
+    const ADVICE: &str = "; init makes every column other than the index (and the risk-free \
+                          yields) a peer: correct the cell, or remove the column from the table";
+    let mut peers: Vec<StartedPeer> = Vec::with_capacity(columns.len());
+    for column in columns {
+        let values = column_values(table, column, ValueKind::Price, ADVICE)?;
+        let plain = display_name(column);
         let mut name = plain.clone();
         let mut n = 1;
         // Alike also when capitals are ignored, as the case compares names.
-        while names
+        while peers
             .iter()
-            .any(|n| n.to_lowercase() == name.to_lowercase())
+            .any(|p| p.name.to_lowercase() == name.to_lowercase())
         {
             n += 1;
             name = format!("{plain} ({n})");
         }
-        text.push_str(&peer_table(peer, &name));
-        names.push(name);
+        let low = values.iter().copied().fold(f64::INFINITY, f64::min);
+        let high = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        peers.push(StartedPeer {
+            name,
+            column: column.to_string(),
+            rate_like: (low > -1.0 && high < 1.0).then_some((low, high)),
+        });
     }
-    Ok(text)
+    Ok(peers)
 }
 
 fn header(table: &PriceTable, options: &StartOptions) -> String {
@@ -170,7 +259,7 @@ fn header(table: &PriceTable, options: &StartOptions) -> String {
     text
 }
 
-fn market(options: &StartOptions) -> String {
+fn market(index: &str, risk_free: Option<&str>) -> String {
     let mut text = format!(
         "\n[market]\n\
          risk_free_rate = {rf}\n\
@@ -184,10 +273,10 @@ fn market(options: &StartOptions) -> String {
          column = {column}\n",
         rf = placeholder("risk-free rate used in the CAPM, decimal"),
         erp = placeholder("equity risk premium over that rate, decimal"),
-        name = quoted(&display_name(options.index)),
-        column = quoted(options.index),
+        name = quoted(&display_name(index)),
+        column = quoted(index),
     );
-    match options.risk_free {
+    match risk_free {
         Some(column) => write!(
             text,
             "\n# Annualised risk-free yields (decimals): regressions use excess returns.\n\
@@ -391,9 +480,19 @@ fn capital_sections() -> String {
     text
 }
 
-fn peer_table(column: &str, name: &str) -> String {
+fn peer_table(peer: &StartedPeer) -> String {
+    let check = match peer.rate_like {
+        Some((low, high)) => format!(
+            "# Check: every value of this column lies between -1 and 1 ({} to {}), as yields do\n\
+             # and prices seldom do. If it holds the risk-free yields, delete this [[peer]] and\n\
+             # read the column as [market.risk_free_series] (source = \"prices\").\n",
+            compact(low),
+            compact(high)
+        ),
+        None => String::new(),
+    };
     format!(
-        "\n[[peer]]\n\
+        "\n{check}[[peer]]\n\
          name = {name}\n\
          source = \"prices\"\n\
          column = {column}\n\
@@ -401,8 +500,8 @@ fn peer_table(column: &str, name: &str) -> String {
          debt = {debt}\n\
          cash = {cash}\n\
          tax_rate = {tax}\n",
-        name = quoted(name),
-        column = quoted(column),
+        name = quoted(&peer.name),
+        column = quoted(&peer.column),
         equity = placeholder("market value of equity, in one unit for every peer"),
         debt = placeholder("total (gross) debt, same unit"),
         cash = placeholder("cash, same unit"),
@@ -491,7 +590,13 @@ mod tests {
         assert_eq!(display_name("=1+2 Cedar"), "1+2 Cedar");
         assert_eq!(display_name("@-Larch"), "Larch");
         assert_eq!(display_name("=-"), "peer");
-        let table = peer_table("Alder\nTree", &display_name("Alder\nTree"));
+        // Markdown's code and link marks (refused in a case's name) become plain punctuation.
+        assert_eq!(display_name("Alder [A] `B`"), "Alder (A) 'B'");
+        let table = peer_table(&StartedPeer {
+            name: display_name("Alder\nTree"),
+            column: "Alder\nTree".into(),
+            rate_like: None,
+        });
         assert!(table.contains("name = \"Alder Tree\"\n"), "{table}");
         assert!(
             table.contains("column = \"\"\"\nAlder\nTree\"\"\"\n"),

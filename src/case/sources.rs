@@ -177,7 +177,18 @@ fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<
 /// Reads every series of a validated case: the index, the risk-free series (when the case has
 /// one) and the peers in order. Each wide table is read (and hashed) once, however many series
 /// it holds.
-pub fn read_series(case: &Case) -> Result<(DataFile, Option<DataFile>, Vec<DataFile>)> {
+/// The series a case reads, and what reading its wide tables saw but does not act on.
+pub struct SeriesRead {
+    pub index: DataFile,
+    pub risk_free: Option<DataFile>,
+    /// In the order of the case's `[[peer]]` tables.
+    pub peers: Vec<DataFile>,
+    /// The wide tables' notes (a hidden sheet, a workbook's filter), in the order of
+    /// `[sources]`, each naming its file.
+    pub notes: Vec<String>,
+}
+
+pub fn read_series(case: &Case) -> Result<SeriesRead> {
     use rayon::prelude::*;
     let settings = &case.settings;
     let keys = series_keys(settings);
@@ -219,7 +230,18 @@ pub fn read_series(case: &Case) -> Result<(DataFile, Option<DataFile>, Vec<DataF
     } else {
         None
     };
-    Ok((index, risk_free, files.collect()))
+    let notes = (tables.iter())
+        .flat_map(|(source, table)| {
+            let file = &settings.sources[*source].file;
+            table.notes.iter().map(move |n| format!("{file}: {n}"))
+        })
+        .collect();
+    Ok(SeriesRead {
+        index,
+        risk_free,
+        peers: files.collect(),
+        notes,
+    })
 }
 
 /// Adds the case key that asked for a column to a table's message.

@@ -5,12 +5,15 @@
 //! file: the table as `[sources.prices]`, the index column, the risk-free yield column when
 //! named, one `[[peer]]` per other column, every setting at its default with a comment, and
 //! every figure hurdle cannot know as a placeholder. CASE.toml defaults to `case.toml` beside
-//! the table; an existing file is never overwritten.
+//! the table; an existing file is never overwritten. It prints the columns it chose; on standard
+//! error, what reading the table noticed (a hidden sheet, a filter) and a warning for each peer
+//! column whose values all lie between -1 and 1, naming `--risk-free`.
 
 use std::path::{Path, PathBuf};
 
-use hurdle::case::scaffold::{relative_path, starting_case, write_new, StartOptions};
-use hurdle::io::tables::{PriceTable, NAME_THE_SHEET};
+use hurdle::case::scaffold::{relative_path, starting_case, write_new, StartOptions, StartingCase};
+use hurdle::error::{compact, one_line};
+use hurdle::io::tables::{header_key, PriceTable, NAME_THE_DATE_COLUMN, NAME_THE_SHEET};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -58,8 +61,8 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         args.sheet.as_deref(),
         args.date_column.as_deref(),
     )
-    .map_err(|e| in_init_terms(e, args.date_column.is_none()))?;
-    let text = starting_case(
+    .map_err(in_init_terms)?;
+    let started = starting_case(
         &table,
         &StartOptions {
             table_path: &written,
@@ -67,50 +70,89 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
             risk_free: args.risk_free.as_deref(),
         },
     )?;
-    write_new(&out, &text)?;
-    let placeholders = hurdle::case::placeholders::find(&text).len();
-    println!(
-        "wrote {} with {} peer(s) from {} ({} dates, {} to {})",
-        out.display(),
-        text.matches("[[peer]]").count(),
-        args.table.display(),
-        table.dates().len(),
-        table.dates()[0],
-        table.dates()[table.dates().len() - 1]
-    );
-    println!(
-        "  {placeholders} placeholders (\"{}: …>\") are figures only you can supply: fill each in \
-         before `hurdle run`",
-        hurdle::case::placeholders::MARK
-    );
+    write_new(&out, &started.text)?;
+    report(args, &out, &table, &started);
     Ok(())
 }
 
-/// A table's error in init's words: when the first column was taken as the dates and is not,
-/// says how to name another; a workbook of several sheets is told which option names one.
-fn in_init_terms(error: hurdle::Error, guessed: bool) -> hurdle::Error {
+/// What init wrote and chose, on standard output; what the table's reading noticed and the
+/// peers that look like yields, on standard error.
+fn report(args: &Args, out: &Path, table: &PriceTable, started: &StartingCase) {
+    let dates = table.dates();
+    println!(
+        "wrote {} with {} peer(s) from {} ({} dates, {} to {})",
+        out.display(),
+        started.peers.len(),
+        args.table.display(),
+        dates.len(),
+        dates[0],
+        dates[dates.len() - 1]
+    );
+    let shown = |header: &str| format!("`{}`", header_key(header));
+    let risk_free = match &started.risk_free {
+        Some(column) => shown(column),
+        None => "none (--risk-free COLUMN names a column of yields)".to_string(),
+    };
+    println!(
+        "  dates: {}; index: {}; risk-free yields: {risk_free}",
+        shown(&table.date_column),
+        shown(&started.index)
+    );
+    let peers: Vec<String> = started.peers.iter().map(|p| shown(&p.name)).collect();
+    println!("  peers: {}", peers.join(", "));
+    println!(
+        "  {} placeholders (\"{}: …>\") are figures only you can supply: fill each in before \
+         `hurdle run`",
+        hurdle::case::placeholders::find(&started.text).len(),
+        hurdle::case::placeholders::MARK
+    );
+    for note in &table.notes {
+        eprintln!("note: {}: {}", args.table.display(), one_line(note));
+    }
+    for peer in &started.peers {
+        let Some((low, high)) = peer.rate_like else {
+            continue;
+        };
+        eprintln!(
+            "warning: {}: column {} became a peer, but every value in it lies between -1 and 1 \
+             ({} to {}), as yields do and prices seldom do; if it holds the risk-free yields, \
+             delete {} and run init again with --risk-free {}",
+            args.table.display(),
+            shown(&peer.column),
+            compact(low),
+            compact(high),
+            out.display(),
+            shell_word(&header_key(&peer.column))
+        );
+    }
+}
+
+/// `text` as one shell word: quoted unless it is letters, digits and `-_.` only.
+fn shell_word(text: &str) -> String {
+    let plain = !text.is_empty()
+        && text
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || "-_.".contains(c));
+    match plain {
+        true => text.to_string(),
+        false => format!("'{}'", text.replace('\'', "'\\''")),
+    }
+}
+
+/// A table's error in init's words: the options that name a sheet or the date column replace
+/// the case's keys in the library's advice.
+fn in_init_terms(error: hurdle::Error) -> hurdle::Error {
     match error {
-        hurdle::Error::DataFile { file, message } if message.contains(NAME_THE_SHEET) => {
-            hurdle::Error::DataFile {
-                file,
-                message: message.replacen(
+        hurdle::Error::DataFile { file, message } => hurdle::Error::DataFile {
+            file,
+            message: message
+                .replacen(
                     NAME_THE_SHEET,
                     "name the one with the prices with --sheet",
                     1,
-                ),
-            }
-        }
-        hurdle::Error::DataFile { file, message }
-            if guessed && message.contains("is not a date") =>
-        {
-            hurdle::Error::DataFile {
-                file,
-                message: format!(
-                    "{message} (init takes the first column as the dates; name the date column \
-                     with --date-column)"
-                ),
-            }
-        }
+                )
+                .replacen(NAME_THE_DATE_COLUMN, "--date-column names another", 1),
+        },
         other => other,
     }
 }

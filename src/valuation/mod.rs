@@ -39,6 +39,8 @@ pub struct Inputs {
     pub peers: Vec<DataFile>,
     /// The rating or coverage spread table `[debt]` names, when its source needs one.
     pub debt_table: Option<SpreadTable>,
+    /// What reading the case's wide tables saw but does not act on (a hidden sheet, a filter).
+    pub table_notes: Vec<String>,
 }
 
 /// Reads every data file a case names, resolving paths against the case file's folder.
@@ -67,7 +69,12 @@ pub fn load_listing_inputs(case: Case) -> Result<Inputs> {
 fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
     let settings = &case.settings;
     // Own files or columns of wide tables (`[sources]`); each table is read once.
-    let (index, risk_free, peers) = crate::case::sources::read_series(&case)?;
+    let crate::case::sources::SeriesRead {
+        index,
+        risk_free,
+        peers,
+        notes: table_notes,
+    } = crate::case::sources::read_series(&case)?;
     let debt_settings = &settings.debt;
     let debt_table = match debt_settings.source {
         _ if !with_debt_table => None,
@@ -91,6 +98,7 @@ fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
         risk_free,
         peers,
         debt_table,
+        table_notes,
     };
     sanity::check_inputs(&inputs)?;
     Ok(inputs)
@@ -213,6 +221,7 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
     let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
         .into_iter()
         .chain(crate::case::sanity::unused_beta_notes(&settings.beta))
+        .chain(inputs.table_notes.iter().cloned())
         .collect();
     notes.extend(crate::case::sanity::index_coverage_note(
         &inputs.index,

@@ -1,11 +1,11 @@
 //! One cell of a price table, as found, and the rules that turn it into a date or a price.
 //!
 //! Spreadsheets hold dates as real date cells, as serial numbers or as ISO text, and numbers as
-//! numbers or as text; an empty cell is a missing price. Everything else — a word in a price
+//! numbers or as text; an empty cell is a missing price (or yield). Everything else — a word in a price
 //! column, an error value such as `#N/A`, a date where a price belongs — is an error whose
 //! message shows the value, so the analyst can find and fix the cell.
 
-use chrono::{Days, NaiveDate, NaiveDateTime};
+use chrono::{Days, NaiveDate, NaiveTime};
 
 use crate::io::series::ValueKind;
 
@@ -52,7 +52,7 @@ impl Cell {
     }
 
     /// The cell as a date: a date cell, ISO 8601 text (`2026-09-30`, optionally with a time of
-    /// day, which is dropped), or a serial number of the 1900 date system (its fraction, the
+    /// day and a zone, which are dropped: see [`iso_date`]), or a serial number of the 1900 date system (its fraction, the
     /// time of day, is dropped).
     pub fn date(&self) -> Result<NaiveDate, String> {
         self.date_in(false)
@@ -85,22 +85,43 @@ impl Cell {
         }
     }
 
-    /// The cell as a number, `None` when empty. Numbers stored as text are read as numbers.
-    pub fn number(&self) -> Result<Option<f64>, String> {
+    /// The cell as a number of `kind`, `None` when empty (a missing price or yield). Numbers
+    /// stored as text are read as numbers.
+    pub fn number(&self, kind: ValueKind) -> Result<Option<f64>, String> {
+        let refused = || {
+            format!(
+                "{} is not a number; write the number, or clear the cell for a missing {}",
+                self.shown(),
+                kind.noun()
+            )
+        };
         match self {
             _ if self.is_empty() => Ok(None),
             Cell::Number(x) => Ok(Some(*x)),
             Cell::Text(text) => match text.trim().parse::<f64>() {
                 Ok(x) if x.is_finite() => Ok(Some(x)),
-                _ => Err(format!(
-                    "{} is not a number; write the number, or clear the cell for a missing price",
-                    self.shown()
-                )),
+                _ => Err(refused()),
             },
-            _ => Err(format!(
-                "{} is not a number; write the number, or clear the cell for a missing price",
-                self.shown()
-            )),
+            _ => Err(refused()),
+        }
+    }
+
+    /// A date cell, or text that reads as an ISO 8601 date: what a column of dates holds,
+    /// told apart from numbers, which may be prices as well as date serials.
+    pub fn is_written_date(&self) -> bool {
+        match self {
+            Cell::Date(_) => true,
+            Cell::Text(text) => iso_date(text.trim()).is_some(),
+            _ => false,
+        }
+    }
+
+    /// A number, or text that reads as one.
+    pub fn is_numeric(&self) -> bool {
+        match self {
+            Cell::Number(_) => true,
+            Cell::Text(text) => text.trim().parse::<f64>().is_ok_and(f64::is_finite),
+            _ => false,
         }
     }
 }
@@ -113,20 +134,35 @@ pub fn check_range(value: f64, kind: ValueKind) -> Result<(), String> {
     }
 }
 
-/// ISO 8601 date text, with or without a time of day.
+/// ISO 8601 date text: `YYYY-MM-DD`, or that date followed by a time of day, `THH:MM`,
+/// `THH:MM:SS` or `THH:MM:SS.fff` with an optional zone `Z` or `±HH:MM`
+/// (`2024-01-31T16:30:00+01:00`), or by a space and `HH:MM[:SS[.fff]]`. The time and the zone
+/// are checked for their form and then ignored: the date as written is the trading day, so a
+/// close stamped `2024-01-31T23:00:00-05:00` stays 31 January, not 1 February in UTC.
 fn iso_date(text: &str) -> Option<NaiveDate> {
-    NaiveDate::parse_from_str(text, "%Y-%m-%d")
-        .ok()
-        .or_else(|| {
-            [
-                "%Y-%m-%dT%H:%M:%S%.f",
-                "%Y-%m-%d %H:%M:%S%.f",
-                "%Y-%m-%dT%H:%M",
-            ]
-            .iter()
-            .find_map(|format| NaiveDateTime::parse_from_str(text, format).ok())
-            .map(|dt| dt.date())
-        })
+    let day = |date: &str| NaiveDate::parse_from_str(date, "%Y-%m-%d").ok();
+    if let Some(date) = day(text) {
+        return Some(date);
+    }
+    let (date, time) = text.split_once(['T', ' '])?;
+    is_time_of_day(time).then(|| day(date)).flatten()
+}
+
+/// `HH:MM`, `HH:MM:SS` or `HH:MM:SS.fff`, optionally followed by `Z` or `±HH:MM`.
+fn is_time_of_day(time: &str) -> bool {
+    let (clock, zone) = time.split_at(time.find(['Z', 'z', '+', '-']).unwrap_or(time.len()));
+    let zone_ok = match zone.as_bytes() {
+        [] | [b'Z' | b'z'] => true,
+        [b'+' | b'-', offset @ ..] => {
+            offset.len() == 5 && NaiveTime::parse_from_str(&zone[1..], "%H:%M").is_ok()
+        }
+        _ => false,
+    };
+    let clock_ok = match clock.len() {
+        5 => NaiveTime::parse_from_str(clock, "%H:%M").is_ok(),
+        _ => clock.len() >= 8 && NaiveTime::parse_from_str(clock, "%H:%M:%S%.f").is_ok(),
+    };
+    zone_ok && clock_ok
 }
 
 /// A serial date of the 1900 date system: day 1 is 1900-01-01 and day 61 is 1900-03-01 (the
@@ -187,6 +223,44 @@ impl Place {
             ),
             PlaceKind::Csv => format!("the header (line 1), column {}", column + 1),
             PlaceKind::Parquet => format!("the schema, column {}", column + 1),
+        }
+    }
+
+    /// Whether [`Place::cell`] names the column itself (a CSV line or a Parquet row does; a
+    /// sheet's cell reference does not), so that a message does not name it twice.
+    pub fn names_column(&self) -> bool {
+        !matches!(self.kind, PlaceKind::Sheet(_))
+    }
+
+    /// The row of data row `row` as a person finds it: `row 17` of a sheet or a Parquet file,
+    /// `line 17` of a CSV file.
+    pub fn row(&self, row: usize) -> String {
+        match self.kind {
+            PlaceKind::Csv => format!("line {}", self.first_row + row),
+            _ => format!("row {}", self.first_row + row),
+        }
+    }
+
+    /// The header's row: `row 3` of a sheet (the first with anything in it), `line 1` of a CSV.
+    pub fn header_row(&self) -> String {
+        match self.kind {
+            PlaceKind::Csv => "line 1".to_string(),
+            PlaceKind::Parquet => "the schema".to_string(),
+            PlaceKind::Sheet(_) => format!("row {}", self.first_row.saturating_sub(1).max(1)),
+        }
+    }
+
+    /// The cells of column `column` from data row `first` to data row `last`: `D2 to D40` of a
+    /// sheet, `lines 2 to 40` of a CSV file, `rows 1 to 39` of a Parquet file.
+    pub fn span(&self, column: usize, first: usize, last: usize) -> String {
+        let (a, b) = (self.first_row + first, self.first_row + last);
+        match self.kind {
+            PlaceKind::Sheet(_) => {
+                let letters = column_letters(self.first_column + column);
+                format!("{letters}{a} to {letters}{b}")
+            }
+            PlaceKind::Csv => format!("lines {a} to {b}"),
+            PlaceKind::Parquet => format!("rows {a} to {b}"),
         }
     }
 
@@ -252,15 +326,63 @@ mod tests {
 
     #[test]
     fn numbers_may_be_stored_as_text_and_empty_cells_are_missing() {
-        assert_eq!(Cell::Text(" 12.5 ".into()).number(), Ok(Some(12.5)));
-        assert_eq!(Cell::Number(3.0).number(), Ok(Some(3.0)));
-        assert_eq!(Cell::Empty.number(), Ok(None));
-        assert_eq!(Cell::Text("  ".into()).number(), Ok(None));
-        let text = Cell::Text("n/a".into()).number().unwrap_err();
-        assert!(text.contains("the text \"n/a\" is not a number"), "{text}");
-        let error = Cell::Error("#N/A".into()).number().unwrap_err();
+        let price = ValueKind::Price;
+        assert_eq!(Cell::Text(" 12.5 ".into()).number(price), Ok(Some(12.5)));
+        assert_eq!(Cell::Number(3.0).number(price), Ok(Some(3.0)));
+        assert_eq!(Cell::Empty.number(price), Ok(None));
+        assert_eq!(Cell::Text("  ".into()).number(price), Ok(None));
+        let text = Cell::Text("n/a".into()).number(price).unwrap_err();
+        assert!(
+            text.contains("the text \"n/a\" is not a number")
+                && text.ends_with("clear the cell for a missing price"),
+            "{text}"
+        );
+        let error = Cell::Error("#N/A".into()).number(price).unwrap_err();
         assert!(error.contains("the error value #N/A"), "{error}");
-        assert!(Cell::Text("inf".into()).number().is_err());
+        assert!(Cell::Text("inf".into()).number(price).is_err());
+        // A yield column's empty cell is a missing yield, not a missing price.
+        let text = Cell::Text("n/a".into())
+            .number(ValueKind::Yield)
+            .unwrap_err();
+        assert!(
+            text.ends_with("clear the cell for a missing yield"),
+            "{text}"
+        );
+    }
+
+    // ISO 8601 date-times as exports write them: the date as written is the trading day,
+    // whatever the time and the zone (a close at 23:00 five hours west of UTC stays that day).
+    #[test]
+    fn iso_date_times_are_read_by_their_date() {
+        let day = NaiveDate::from_ymd_opt(2024, 1, 31).unwrap();
+        for text in [
+            "2024-01-31T16:30",
+            "2024-01-31T16:30:05",
+            "2024-01-31T16:30:05.125",
+            "2024-01-31T16:30Z",
+            "2024-01-31T16:30:05Z",
+            "2024-01-31T16:30:05.125Z",
+            "2024-01-31T23:00:00-05:00",
+            "2024-01-31T00:30:00+01:00",
+            "2024-01-31T16:30+01:00",
+            "2024-01-31 16:30",
+            "2024-01-31 16:30:05",
+        ] {
+            assert_eq!(Cell::Text(text.into()).date(), Ok(day), "{text}");
+        }
+        for text in [
+            "2024-01-31T",
+            "2024-01-31T16",
+            "2024-01-31T25:00",
+            "2024-01-31T16:30+1",
+            "2024-01-31T16:30+01:00:00",
+            "2024-01-31T16:30Q",
+            "2024-01-31 noon",
+            "2024-02-30T16:30",
+        ] {
+            let refused = Cell::Text(text.into()).date().unwrap_err();
+            assert!(refused.contains("is not a date"), "{text}: {refused}");
+        }
     }
 
     #[test]

@@ -23,7 +23,8 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
         match crate::io::sanity::check_csv_shape(std::path::Path::new(""), bytes, true) {
             Ok(_) => {}
             Err(crate::error::Error::DataRow { line, message, .. }) => {
-                return Err(format!("line {line}: {message}"))
+                // A title line above the table has fewer fields than the header below it.
+                return Err(title_line(bytes).unwrap_or(format!("line {line}: {message}")));
             }
             Err(e) => return Err(e.to_string()),
         }
@@ -65,6 +66,57 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
         header,
         columns,
         date_system_1904: false,
+        notes: Vec::new(),
+    })
+}
+
+/// The message for a title written on the first lines, above the header, when the lines
+/// below have more fields than it (the shape check's complaint): the first lines read field by
+/// field, each on its own line, and asked as a table's header is.
+fn title_line(bytes: &[u8]) -> Option<String> {
+    let mut reader = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(bytes);
+    let mut lines: Vec<(usize, Vec<String>)> = Vec::new();
+    for record in reader.records().take(super::header::TITLE_SEARCH_ROWS + 1) {
+        let record = record.ok()?;
+        // The line a record starts on, counted from its byte offset: the reader skips blank
+        // lines without counting them, and its offset is where the skipped lines begin.
+        let mut byte = record.position().map_or(0, |p| p.byte() as usize);
+        while matches!(bytes.get(byte), Some(b'\n' | b'\r')) {
+            byte += 1;
+        }
+        let line = 1 + bytes[..byte.min(bytes.len())]
+            .iter()
+            .filter(|&&b| b == b'\n')
+            .count();
+        lines.push((line, record.iter().map(|f| f.trim().to_string()).collect()));
+    }
+    let (&(first, ref header), below) = lines.split_first()?;
+    let width = lines.iter().map(|(_, fields)| fields.len()).max()?;
+    let height = lines.last().map_or(0, |(line, _)| line - first);
+    let mut columns = vec![vec![Cell::Empty; height]; width];
+    for (line, fields) in below {
+        for (j, field) in fields.iter().enumerate() {
+            columns[j][line - first - 1] = Cell::Text(field.clone());
+        }
+    }
+    let mut header = header.clone();
+    header.resize(width, String::new());
+    let place = Place {
+        kind: PlaceKind::Csv,
+        first_row: first + 1,
+        first_column: 0,
+        header: header.clone(),
+    };
+    super::header::title_above(&RawTable {
+        sheet: None,
+        header,
+        columns,
+        place,
+        date_system_1904: false,
+        notes: Vec::new(),
     })
 }
 
@@ -104,6 +156,7 @@ pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
         header,
         columns,
         date_system_1904: false,
+        notes: Vec::new(),
     })
 }
 

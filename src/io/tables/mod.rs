@@ -9,6 +9,7 @@
 
 mod cells;
 mod delimited;
+mod header;
 mod workbook;
 
 use std::path::{Path, PathBuf};
@@ -20,6 +21,7 @@ use crate::io::sanity::percent_yield;
 use crate::io::series::{sha256_hex, DataFile, Series, ValueKind};
 
 pub use cells::{column_letters, Cell, Place, PlaceKind};
+pub use header::{header_key, NAME_THE_DATE_COLUMN};
 pub use workbook::NAME_THE_SHEET;
 
 /// The file formats a wide table may come in, told apart by the file's extension.
@@ -67,6 +69,8 @@ pub(crate) struct RawTable {
     /// The workbook counts date serials from 1904-01-01 (the 1904 date system of older Mac
     /// workbooks) rather than from 1900: a date given as a plain number is read in it.
     pub date_system_1904: bool,
+    /// What the reader saw but does not act on (a hidden sheet, a filter), each a sentence.
+    pub notes: Vec<String>,
 }
 
 /// A wide table as read: its dates and every security column, not yet parsed as prices.
@@ -92,6 +96,9 @@ pub struct PriceTable {
     /// For each of `columns`, its position in the header (for messages).
     positions: Vec<usize>,
     place: Place,
+    /// What reading saw but does not act on (a hidden sheet, a workbook's filter), each a
+    /// sentence naming the sheet, for a front end to show.
+    pub notes: Vec<String>,
 }
 
 impl PriceTable {
@@ -144,7 +151,8 @@ impl PriceTable {
     }
 
     /// One column as a validated series, packaged as the receipt records it. Empty cells are
-    /// missing prices; `role` is what the series is in the case (`index`, `peer:<name>`, …).
+    /// missing prices (or yields); `role` is what the series is in the case (`index`,
+    /// `peer:<name>`, …). `column` is matched as [`PriceTable::find_column`] matches it.
     pub fn series(&self, role: &str, column: &str, kind: ValueKind) -> Result<DataFile> {
         let fail = |message: String| Error::DataFile {
             file: self.resolved.clone(),
@@ -153,14 +161,16 @@ impl PriceTable {
         let j = self.column_index(column).map_err(fail)?;
         let (mut dates, mut values, mut places) = (Vec::new(), Vec::new(), Vec::new());
         for (i, cell) in self.cells[j].iter().enumerate() {
-            let at = || {
-                format!(
-                    "{} (column `{column}`, date {})",
-                    self.place.cell(self.rows[i], self.positions[j]),
-                    self.dates[i]
-                )
+            let here = || self.place.cell(self.rows[i], self.positions[j]);
+            // A CSV line or Parquet row names its column already.
+            let at = || match self.place.names_column() {
+                true => format!("{} (date {})", here(), self.dates[i]),
+                false => format!("{} (column `{column}`, date {})", here(), self.dates[i]),
             };
-            let Some(value) = cell.number().map_err(|m| fail(format!("{}: {m}", at())))? else {
+            let Some(value) = cell
+                .number(kind)
+                .map_err(|m| fail(format!("{}: {m}", at())))?
+            else {
                 continue;
             };
             cells::check_range(value, kind).map_err(|m| fail(format!("{}: {m}", at())))?;
@@ -172,17 +182,10 @@ impl PriceTable {
             }
             dates.push(self.dates[i]);
             values.push(value);
-            places.push(self.place.cell(self.rows[i], self.positions[j]));
+            places.push(here());
         }
         let (Some(&first_date), Some(&last_date)) = (dates.first(), dates.last()) else {
-            return Err(fail(format!(
-                "{}column `{column}` holds no {} (every cell is empty)",
-                self.place.sheet_prefix(),
-                match kind {
-                    ValueKind::Price => "prices",
-                    ValueKind::Yield => "yields",
-                }
-            )));
+            return Err(fail(self.no_values(j, kind)));
         };
         Ok(DataFile {
             role: role.to_string(),
@@ -198,27 +201,55 @@ impl PriceTable {
         })
     }
 
+    /// `place` (one of a series' [`DataFile::places`]) with its column named, unless the place
+    /// names it already (a CSV line or a Parquet row does; a sheet's cell does not).
+    pub fn with_column(&self, place: &str, column: &str) -> String {
+        match self.place.names_column() {
+            true => place.to_string(),
+            false => format!("{place} (column `{column}`)"),
+        }
+    }
+
+    /// The message for column `j` with no value in any dated row, naming its cells.
+    fn no_values(&self, j: usize, kind: ValueKind) -> String {
+        let first = self.rows.iter().min().copied().unwrap_or(0);
+        let last = self.rows.iter().max().copied().unwrap_or(0);
+        format!(
+            "{}column `{}` holds no {}s: its cells in {} are all empty",
+            self.place.sheet_prefix(),
+            self.columns[j],
+            kind.noun(),
+            self.place.span(self.positions[j], first, last)
+        )
+    }
+
+    /// The header of the security column `name`: written exactly so, or the one header that
+    /// reads the same with each run of whitespace (a wrapped cell's line break, a no-break
+    /// space) as one space. The error lists the header.
+    pub fn find_column(&self, name: &str) -> std::result::Result<&str, String> {
+        self.column_index(name).map(|j| self.columns[j].as_str())
+    }
+
     /// The position of `column` among the security columns, or a message listing them.
     fn column_index(&self, column: &str) -> std::result::Result<usize, String> {
-        if column == self.date_column {
+        if header_key(column) == header_key(&self.date_column) {
             return Err(format!(
                 "{}`{column}` is the date column, not a column of prices",
                 self.place.sheet_prefix()
             ));
         }
-        self.columns
-            .iter()
-            .position(|c| c == column)
-            .ok_or_else(|| {
-                format!(
-                    "{}no column named `{column}`; the header has: {}",
-                    self.place.sheet_prefix(),
-                    quoted_list(
-                        std::iter::once(&self.date_column).chain(&self.columns),
-                        self.columns.len() + 1
-                    )
+        let found = header::find_header(&self.columns, column)
+            .map_err(|m| format!("{}{m}", self.place.sheet_prefix()))?;
+        found.ok_or_else(|| {
+            format!(
+                "{}no column named `{column}`; the header has: {}",
+                self.place.sheet_prefix(),
+                quoted_list(
+                    std::iter::once(&self.date_column).chain(&self.columns),
+                    self.columns.len() + 1
                 )
-            })
+            )
+        })
     }
 }
 
@@ -232,50 +263,29 @@ fn quoted_list<'a>(names: impl Iterator<Item = &'a String>, count: usize) -> Str
 /// Picks the date column, parses its dates, drops blank rows and puts the rows in ascending
 /// date order (a table sorted newest first is reversed, never re-sorted otherwise).
 fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<PriceTable, String> {
+    // A refused header may be a title written above the table: then that is the message.
+    let (date_index, others) =
+        columns_of(&raw, date_column).map_err(|m| header::title_above(&raw).unwrap_or(m))?;
     let place = raw.place.clone();
-    let prefix = place.sheet_prefix();
-    check_header(&raw)?;
-    let date_index = match date_column {
-        None => 0,
-        Some(name) => raw.header.iter().position(|h| h == name).ok_or_else(|| {
-            format!(
-                "{prefix}no date column named `{name}`; the header has: {}",
-                quoted_list(raw.header.iter(), raw.header.len())
-            )
-        })?,
+    // When the first column was taken for the dates, a date error names the columns holding them.
+    let hint = |message: String| {
+        let hint = date_column
+            .is_none()
+            .then(|| header::date_column_hint(&raw, &others));
+        match hint.flatten() {
+            Some(hint) => format!("{message}; {hint}"),
+            None => message,
+        }
     };
-    let named = raw.header.iter().filter(|h| !h.is_empty()).count();
-    if named < 2 {
-        // A CSV file exported with another separator reads as one column.
-        let separator = raw.header.iter().find_map(|h| {
-            [';', '\t', '|']
-                .into_iter()
-                .find(|c| h.contains(*c))
-                .map(|c| {
-                    format!(" (is the file separated by {c:?}? CSV tables are read with commas)")
-                })
-        });
-        return Err(format!(
-            "{prefix}the header (the first row with anything in it) has {named} named column(s) \
-             ({}); a price table needs a date column and at least one column of prices{}",
-            quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named),
-            separator.unwrap_or_default()
-        ));
-    }
     let date_name = raw.header[date_index].clone();
-    let others: Vec<usize> = (0..raw.header.len()).filter(|&j| j != date_index).collect();
-    // Trailing columns with neither a name nor data are a spreadsheet's used range, not data.
-    let others: Vec<usize> = others
-        .into_iter()
-        .filter(|&j| !raw.header[j].is_empty())
-        .collect();
-    let (mut dates, mut rows) = dated_rows(&raw, date_index, &others)?;
+    let (mut dates, mut rows) = dated_rows(&raw, date_index, &others).map_err(&hint)?;
     if dates.is_empty() {
-        return Err(format!(
-            "{prefix}the date column `{date_name}` has no dates below the header"
-        ));
+        return Err(hint(format!(
+            "{}the date column `{date_name}` has no dates below the header",
+            place.sheet_prefix()
+        )));
     }
-    check_order(&dates, &rows, &place, date_index)?;
+    check_order(&dates, &rows, &place, date_index).map_err(&hint)?;
     let descending = dates.len() > 1 && dates[1] < dates[0];
     let mut cells: Vec<Vec<Cell>> = others
         .iter()
@@ -299,7 +309,53 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
         rows,
         positions: others,
         place,
+        notes: raw.notes,
     })
+}
+
+/// The date column's position (`date_column` matched as a security column is, or the first)
+/// and the named columns beside it. Refuses an unnamed column holding data, a repeated name,
+/// and a header of fewer than two names.
+fn columns_of(
+    raw: &RawTable,
+    date_column: Option<&str>,
+) -> std::result::Result<(usize, Vec<usize>), String> {
+    let prefix = raw.place.sheet_prefix();
+    check_header(raw)?;
+    let date_index = match date_column {
+        None => 0,
+        Some(name) => header::find_header(&raw.header, name)
+            .map_err(|m| format!("{prefix}{m}"))?
+            .ok_or_else(|| {
+                format!(
+                    "{prefix}no date column named `{name}`; the header has: {}",
+                    quoted_list(raw.header.iter(), raw.header.len())
+                )
+            })?,
+    };
+    let named = raw.header.iter().filter(|h| !h.is_empty()).count();
+    if named < 2 {
+        // A CSV file exported with another separator reads as one column.
+        let separator = raw.header.iter().find_map(|h| {
+            [';', '\t', '|']
+                .into_iter()
+                .find(|c| h.contains(*c))
+                .map(|c| {
+                    format!(" (is the file separated by {c:?}? CSV tables are read with commas)")
+                })
+        });
+        return Err(format!(
+            "{prefix}the header (the first row with anything in it) has {named} named column(s) \
+             ({}); a price table needs a date column and at least one column of prices{}",
+            quoted_list(raw.header.iter().filter(|h| !h.is_empty()), named),
+            separator.unwrap_or_default()
+        ));
+    }
+    // Trailing columns with neither a name nor data are a spreadsheet's used range, not data.
+    let others = (0..raw.header.len())
+        .filter(|&j| j != date_index && !raw.header[j].is_empty())
+        .collect();
+    Ok((date_index, others))
 }
 
 /// The date of every row that has one, with the row; a blank row is skipped, and a row with
@@ -326,10 +382,12 @@ fn dated_rows(
             continue;
         }
         let date = cell.date_in(raw.date_system_1904).map_err(|m| {
-            format!(
-                "{} (date column `{date_name}`): {m}",
-                place.cell(i, date_index)
-            )
+            let here = place.cell(i, date_index);
+            // A CSV line or Parquet row names its column already.
+            match place.names_column() {
+                true => format!("{here} (the date column): {m}"),
+                false => format!("{here} (date column `{date_name}`): {m}"),
+            }
         })?;
         dates.push(date);
         rows.push(i);

@@ -3,12 +3,14 @@
 //!
 //! The workbook is opened from the same bytes that are hashed. The first row of the sheet with
 //! anything in it is the header; the rows below are data. A password-protected workbook, or a
-//! file that is not a workbook at all, is refused with a message that says which.
+//! file that is not a workbook at all, is refused with a message that says which. A hidden
+//! sheet is marked so wherever sheets are listed, and noted when read; a filter on the sheet is
+//! noted too, since calamine does not say which rows or columns a workbook hides.
 
 use std::io::{Cursor, Read, Seek};
 use std::path::Path;
 
-use calamine::{open_workbook_from_rs, Data, DataRef, Ods, Range, Reader, Xls, Xlsx};
+use calamine::{open_workbook_from_rs, Data, DataRef, Ods, Range, Reader, SheetVisible, Xls, Xlsx};
 
 use super::cells::{Cell, Place, PlaceKind};
 use super::RawTable;
@@ -49,12 +51,13 @@ pub(crate) fn read_sheet(
         "ods" => load::<Ods<_>>(bytes, sheet, &extension),
         _ => load::<Xlsx<_>>(bytes, sheet, &extension),
     });
-    let (name, range, system_1904) = match loaded {
+    let (name, range, system_1904, notes) = match loaded {
         Ok(loaded) => loaded?,
         Err(reason) => return Err(format!("is a damaged .{extension} workbook: {reason}")),
     };
     let mut table = from_range(name, range)?;
     table.date_system_1904 = system_1904;
+    table.notes = notes;
     Ok(table)
 }
 
@@ -183,77 +186,117 @@ fn check_span<'a>(
     ))
 }
 
+/// A sheet as `load` found it: its name, its cells, whether the workbook counts dates from
+/// 1904, and what was seen but not acted on (a hidden sheet, a filter).
+type Loaded = (String, Range<Data>, bool, Vec<String>);
+
 /// Opens the workbook with reader `R`, picks the sheet and returns its name and cells.
-fn load<'a, R>(
-    bytes: &'a [u8],
-    sheet: Option<&str>,
-    extension: &str,
-) -> Result<(String, Range<Data>, bool), String>
+fn load<'a, R>(bytes: &'a [u8], sheet: Option<&str>, extension: &str) -> Result<Loaded, String>
 where
     R: Book<Cursor<&'a [u8]>>,
     R::Error: std::fmt::Display,
 {
     let mut workbook: R = open_workbook_from_rs(Cursor::new(bytes))
         .map_err(|e: R::Error| open_error(bytes, extension, &e.to_string()))?;
-    let names = workbook.sheet_names();
-    let listed = || {
-        names
-            .iter()
-            .map(|n| format!("\"{n}\""))
-            .collect::<Vec<_>>()
-            .join(", ")
-    };
-    let name = match sheet {
-        Some(wanted) => names
-            .iter()
-            .find(|n| n.as_str() == wanted)
-            .cloned()
-            .ok_or_else(|| {
-                format!(
-                    "has no sheet named \"{wanted}\"; its sheets are: {}",
-                    listed()
-                )
-            })?,
-        None if names.len() == 1 => names[0].clone(),
-        None => {
-            return Err(format!(
-                "has {} sheets; {NAME_THE_SHEET}: {}",
-                names.len(),
-                listed()
-            ))
-        }
-    };
+    let sheets = workbook.sheets_metadata().to_vec();
+    let name = pick_sheet(&sheets, sheet)?;
     let range = workbook.sheet_cells(&name)?;
     // A formula the workbook was saved without calculating has no stored value, and would read
     // as an empty cell, a missing price: refused instead. (Formulas that cannot be read are left
     // to their values.)
     // Not for OpenDocument: a formula whose result is empty text ("") is saved there without a
     // value type, which reads exactly like one never calculated.
-    let formulas = match extension {
-        "ods" => None,
-        _ => workbook.worksheet_formula(&name).ok(),
-    };
-    if let Some(formulas) = formulas {
-        let uncalculated = formulas.cells().find(|&(row, column, formula)| {
-            let at = (
-                row as u32 + formulas.start().map_or(0, |s| s.0),
-                column as u32 + formulas.start().map_or(0, |s| s.1),
-            );
-            !formula.is_empty() && matches!(range.get_value(at), None | Some(Data::Empty))
-        });
-        if let Some((row, column, formula)) = uncalculated {
-            let (first_row, first_column) = formulas.start().unwrap_or((0, 0));
-            return Err(format!(
-                "sheet \"{name}\", cell {}{} holds the formula `={}` with no saved value \
-                 (the workbook was saved without calculating it); open it in its spreadsheet \
-                 program, let it calculate, and save it again",
-                super::cells::column_letters(first_column as usize + column),
-                first_row as usize + row + 1,
-                formula.trim_start_matches('=')
-            ));
+    if extension != "ods" {
+        if let Ok(formulas) = workbook.worksheet_formula(&name) {
+            check_formulas(&name, &formulas, &range)?;
         }
     }
-    Ok((name, range, workbook.system_1904()))
+    let mut notes = Vec::new();
+    if sheets
+        .iter()
+        .any(|s| s.name == name && s.visible != SheetVisible::Visible)
+    {
+        notes.push(format!(
+            "sheet \"{name}\" is hidden in the workbook (its spreadsheet program does not show \
+             it); check that it holds the table meant"
+        ));
+    }
+    notes.extend(filter_note(&name, workbook.defined_names()));
+    Ok((name, range, workbook.system_1904(), notes))
+}
+
+/// The sheet named `wanted`, or the only one; the messages list every sheet, a hidden one
+/// marked so.
+fn pick_sheet(sheets: &[calamine::Sheet], wanted: Option<&str>) -> Result<String, String> {
+    let listed = || {
+        sheets
+            .iter()
+            .map(|s| match s.visible {
+                SheetVisible::Visible => format!("\"{}\"", s.name),
+                _ => format!("\"{}\" (hidden)", s.name),
+            })
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    match wanted {
+        Some(wanted) => match sheets.iter().find(|s| s.name == wanted) {
+            Some(found) => Ok(found.name.clone()),
+            None => Err(format!(
+                "has no sheet named \"{wanted}\"; its sheets are: {}",
+                listed()
+            )),
+        },
+        None if sheets.len() == 1 => Ok(sheets[0].name.clone()),
+        None => Err(format!(
+            "has {} sheets; {NAME_THE_SHEET}: {}",
+            sheets.len(),
+            listed()
+        )),
+    }
+}
+
+/// Refuses a formula saved without its value, naming its cell.
+fn check_formulas(name: &str, formulas: &Range<String>, range: &Range<Data>) -> Result<(), String> {
+    let (first_row, first_column) = formulas.start().unwrap_or((0, 0));
+    let uncalculated = formulas.cells().find(|&(row, column, formula)| {
+        let at = (first_row + row as u32, first_column + column as u32);
+        !formula.is_empty() && matches!(range.get_value(at), None | Some(Data::Empty))
+    });
+    match uncalculated {
+        Some((row, column, formula)) => Err(format!(
+            "sheet \"{name}\", cell {}{} holds the formula `={}` with no saved value (the \
+             workbook was saved without calculating it); open it in its spreadsheet program, let \
+             it calculate, and save it again",
+            super::cells::column_letters(first_column as usize + column),
+            first_row as usize + row + 1,
+            formula.trim_start_matches('=')
+        )),
+        None => Ok(()),
+    }
+}
+
+/// A note when the workbook's filter (its `_xlnm._FilterDatabase` name, which a spreadsheet
+/// program writes with a filter's range) lies on sheet `name`. calamine does not say which rows
+/// or columns a filter or the user hid, so hidden rows are read like any other: the note says
+/// so, naming the filter's range.
+fn filter_note(name: &str, defined: &[(String, String)]) -> Option<String> {
+    let quoted = format!("'{}'!", name.replace('\'', "''"));
+    let plain = format!("{name}!");
+    defined.iter().find_map(|(defined_name, formula)| {
+        let range = formula
+            .strip_prefix(&quoted)
+            .or_else(|| formula.strip_prefix(&plain))?;
+        // An .xls file stores the name as its built-in code, 0x0D (MS-XLS, the Lbl record).
+        let filter = matches!(defined_name.as_str(), "_xlnm._FilterDatabase" | "\u{d}");
+        filter.then(|| {
+            format!(
+                "sheet \"{name}\" has a filter over {}: rows a filter hides (and rows or columns \
+                 hidden by hand) are read like any other, since the workbook reader does not \
+                 say which are hidden; check that every row of the table is meant",
+                range.replace('$', "")
+            )
+        })
+    })
 }
 
 /// The message for a workbook calamine cannot open: encrypted, not a workbook, or damaged.
@@ -314,6 +357,7 @@ fn from_range(sheet: String, range: Range<Data>) -> Result<RawTable, String> {
         header,
         columns,
         date_system_1904: false,
+        notes: Vec::new(),
     })
 }
 
@@ -349,5 +393,32 @@ fn cell(value: &Data) -> Cell {
         Data::DateTime(dt) => Cell::Number(dt.as_f64()),
         Data::DateTimeIso(s) | Data::DurationIso(s) => Cell::Text(s.clone()),
         Data::Error(e) => Cell::Error(e.to_string()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // A filter's range as calamine reports it: `_xlnm._FilterDatabase` with a quoted sheet name
+    // from an .xlsx, the built-in code 0x0D with the sheet name unquoted from an .xls (a copy of
+    // an .xlsx with a filter, converted by LibreOffice, read so); another sheet's filter and
+    // other names are not this sheet's.
+    #[test]
+    fn a_filter_is_noted_on_its_own_sheet() {
+        let names = |name: &str, formula: &str| vec![(name.to_string(), formula.to_string())];
+        let xlsx = names("_xlnm._FilterDatabase", "'Old prices'!$A$1:$D$5");
+        let note = filter_note("Old prices", &xlsx).unwrap();
+        assert!(
+            note.starts_with("sheet \"Old prices\" has a filter over A1:D5: rows a filter hides"),
+            "{note}"
+        );
+        let xls = names("\u{d}", "Old prices!$A$1:$D$5");
+        assert_eq!(filter_note("Old prices", &xls), Some(note));
+        assert_eq!(filter_note("Prices", &xlsx), None);
+        assert_eq!(
+            filter_note("Old prices", &names("Rates", "'Old prices'!$A$1")),
+            None
+        );
     }
 }
