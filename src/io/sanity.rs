@@ -531,7 +531,8 @@ pub fn percent_yield(value: f64) -> Option<String> {
     (value >= 1.0).then(|| {
         format!(
             "is {}% a year: yields are decimals (0.038 for 3.8%), and {advice}",
-            show(value * 100.0)
+            // Rounded to 10 decimals so that 2.2861 reads 228.61, not 228.60999999999999.
+            show((value * 100.0 * 1e10).round() / 1e10)
         )
     })
 }
@@ -546,6 +547,15 @@ pub fn is_one_line(text: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // 2.2861·100 is 228.60999999999999 in binary (Python's repr of 2.2861*100 shows it); the
+    // message writes the percentage the user typed, 228.61 (found by review).
+    #[test]
+    fn a_percent_yield_is_written_as_typed() {
+        let why = percent_yield(2.2861).unwrap();
+        assert!(why.starts_with("is 228.61% a year"), "{why}");
+        assert_eq!(percent_yield(0.99), None);
+    }
 
     // RFC 4180 §2, rules 5-7: a quoted field may hold commas, line breaks (LF or CRLF) and
     // doubled quotes; a quote is a field's quote only as its first character. Counted by hand.
