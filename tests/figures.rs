@@ -1098,3 +1098,381 @@ fn the_peer_that_unshares_the_stability_scale_is_named() {
         "{svg}"
     );
 }
+
+/// The stability chart's tick labels of panel `panel` as (x, label), left to right.
+fn time_ticks(svg: &[Element], panel: usize) -> Vec<(f64, String)> {
+    let mut ticks: Vec<(f64, String)> = in_group(svg, &format!("x-axis panel-{panel}"))
+        .into_iter()
+        .filter(|e| e.tag == "text")
+        .map(|e| (e.number("x"), e.text.clone()))
+        .collect();
+    ticks.sort_by(|a, b| a.0.total_cmp(&b.0));
+    ticks
+}
+
+// A rolling window of 60 months in the demo's window of 60 monthly returns (README: lookback
+// 60, rolling_window "3 to the window's periods") fits one window a peer: no rolling β over
+// time to draw. No stability chart then (the one an earlier run left is taken away), nothing
+// links one, the memo's stability section says why for each peer, and no caption ever reads
+// "windows of ? months" (found by review: an empty chart with that caption). With 59 months,
+// two windows a peer: the chart, its caption naming the window the case sets.
+#[test]
+fn one_rolling_window_a_peer_draws_no_stability_chart() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    common::run_case_with(Path::new(DEMO_CASE), &out, &[]);
+    assert!(out.join("figures/stability.svg").is_file());
+    common::run_case_with(Path::new(DEMO_CASE), &out, &["beta.rolling_window=60"]);
+    assert!(
+        !out.join("figures/stability.svg").exists(),
+        "an empty chart"
+    );
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(!memo.contains("stability.svg") && !report.contains("stability.svg"));
+    assert_eq!(
+        memo.matches("fewer than two rolling windows with enough observations")
+            .count(),
+        8,
+        "each of the demo's eight peers says why"
+    );
+    for entry in std::fs::read_dir(out.join("figures")).unwrap() {
+        let text = std::fs::read_to_string(entry.unwrap().path()).unwrap();
+        assert!(!text.contains("windows of ?"));
+    }
+    let run = Run::new(&["--set", "beta.rolling_window=59"]);
+    let svg = run.svg("stability.svg");
+    let desc = svg.iter().find(|e| e.tag == "desc").unwrap();
+    assert!(
+        desc.text.contains("over windows of 59 months"),
+        "{}",
+        desc.text
+    );
+    for i in 1..=8 {
+        let line = in_group(&svg, &format!("rolling-beta panel-{i}"))[0].points();
+        assert_eq!(line.len(), 2, "two windows of 59 in 60 returns");
+    }
+}
+
+// The ticks of the rolling betas' time axis stand where the windows end: the demo's monthly
+// windows end on the last day of a month (rolling.csv's window_end), so the tick labelled with
+// a month stands on the point of the window ending in that month (found by review: ticks at
+// the months' starts stood beside the month before's window). 55-month windows in 60 returns
+// end in the last six months, so the axis is marked monthly.
+#[test]
+fn time_ticks_stand_on_the_windows_of_their_month() {
+    let set = ["--set", "beta.rolling_window=55"];
+    let run = Run::new(&set);
+    let out = run.dir.path().to_str().unwrap();
+    assert!(
+        hurdle(&["rolling", DEMO_CASE, "--out", out, set[0], set[1]])
+            .status
+            .success()
+    );
+    let csv = std::fs::read_to_string(run.dir.path().join("rolling.csv")).unwrap();
+    let svg = run.svg("stability.svg");
+    for (i, peer) in run.result["peers"].as_array().unwrap().iter().enumerate() {
+        let name = peer["name"].as_str().unwrap();
+        let ends: Vec<String> = (csv.lines())
+            .filter(|l| l.starts_with(&format!("{name},")))
+            .map(|l| l.split(',').nth(1).unwrap().to_string())
+            .collect();
+        let line = in_group(&svg, &format!("rolling-beta panel-{}", i + 1))[0].points();
+        assert_eq!(line.len(), ends.len());
+        let ticks = time_ticks(&svg, i + 1);
+        assert!(ticks.len() >= 2, "{name}: {ticks:?}");
+        for (x, label) in &ticks {
+            let window = ends.iter().position(|end| end.starts_with(label.as_str()));
+            let window = window.unwrap_or_else(|| panic!("{name}: no window ends in {label}"));
+            // Both the tick and the vertex are the same date's pixel, rounded down alike.
+            close(&format!("{name} {label}"), *x, line[window].0, 0.0);
+        }
+    }
+}
+
+// Weekly and daily windows span a few months: the month labels of a half-width panel once
+// stood 37 px apart while each is about 46 px wide (found by review). Now neighbouring labels,
+// centred on their ticks, are at least half of each one's width apart, by the 0.6 em estimate
+// of the labels' width (check_text_fits; README: "an estimated advance of 0.6 em").
+#[test]
+fn time_labels_never_overlap_at_any_frequency() {
+    for sets in [
+        &[][..],
+        &["--set", "beta.frequency=\"weekly\""][..],
+        &["--set", "beta.frequency=\"daily\""][..],
+        &[
+            "--set",
+            "beta.frequency=\"daily\"",
+            "--set",
+            "beta.lookback=250",
+        ][..],
+    ] {
+        let run = Run::new(sets);
+        let svg = run.svg("stability.svg");
+        for panel in 1..=8 {
+            let ticks = time_ticks(&svg, panel);
+            assert!(!ticks.is_empty(), "{sets:?}: panel {panel} has no tick");
+            let width = |label: &str| label.chars().count() as f64 * 11.0 * 0.6;
+            for pair in ticks.windows(2) {
+                let room = pair[1].0 - pair[0].0;
+                let needed = (width(&pair[0].1) + width(&pair[1].1)) / 2.0;
+                assert!(room >= needed, "{sets:?}: panel {panel}: {ticks:?}");
+            }
+        }
+    }
+}
+
+/// The boxes of the Monte Carlo chart's line labels: (class, text, left, right, top, bottom),
+/// by the 0.6 em estimate across and the font size up and down from the centre line.
+fn line_labels(svg: &[Element]) -> Vec<(String, String, f64, f64, f64, f64)> {
+    let classes = ["percentile-05", "median", "percentile-95", "point-estimate"];
+    classes
+        .iter()
+        .map(|class| {
+            let text = (in_group(svg, class).into_iter())
+                .find(|e| e.tag == "text")
+                .unwrap_or_else(|| panic!("{class}: no label"));
+            let (left, right) = text_extent(text).unwrap();
+            let (y, half) = (text.number("y"), text.number("font-size") / 2.0);
+            (
+                class.to_string(),
+                text.text.clone(),
+                left,
+                right,
+                y - half,
+                y + half,
+            )
+        })
+        .collect()
+}
+
+// Percentiles close together: a Vasicek prior of variance 1e-4 pulls every beta to 1 (the
+// median and the point estimate then a hair apart), and with a prior of 1e-6 and the
+// risk-free rate drawn from a range 1.3 points above the case's, the draws sit within a basis
+// point, far from the point estimate. The labels once overlapped or ran off the chart (found
+// by review). Now no two label boxes meet, every label is inside the chart, and each states
+// its figure from result.json to the decimals it prints, apart from the others.
+#[test]
+fn monte_carlo_labels_stand_apart_when_the_percentiles_are_close() {
+    let vasicek = |variance: &str| {
+        vec![
+            "--set".to_string(),
+            "beta.adjustment=\"vasicek\"".to_string(),
+            "--set".to_string(),
+            "beta.vasicek_prior_mean=1.0".to_string(),
+            "--set".to_string(),
+            format!("beta.vasicek_prior_variance={variance}"),
+        ]
+    };
+    let mut shifted = vasicek("0.000001");
+    shifted.extend([
+        "--set".into(),
+        "uncertainty.risk_free_rate=[0.04,0.0401]".into(),
+    ]);
+    for sets in [vec![], vasicek("0.0001"), shifted] {
+        let sets: Vec<&str> = sets.iter().map(String::as_str).collect();
+        let run = Run::new(&sets);
+        let u = &run.result["uncertainty"];
+        let svg = run.svg("uncertainty.svg");
+        check_text_fits("uncertainty.svg", &svg);
+        let labels = line_labels(&svg);
+        for (i, a) in labels.iter().enumerate() {
+            for b in &labels[..i] {
+                let apart = a.3 <= b.2 || b.3 <= a.2 || a.5 <= b.4 || b.5 <= a.4;
+                assert!(apart, "{sets:?}: {a:?} meets {b:?}");
+            }
+        }
+        for ((class, text, ..), key) in labels.iter().zip(["p05", "p50", "p95", "point_estimate"]) {
+            let printed = text.rsplit(' ').next().unwrap().trim_end_matches('%');
+            let decimals = printed.split('.').nth(1).map_or(0, str::len) as i32;
+            let value: f64 = printed.parse::<f64>().unwrap() / 100.0;
+            // Half a unit of the last printed decimal, in rate terms, plus a hair for binary.
+            let half_unit = 0.5 * 10f64.powi(-decimals - 2) * (1.0 + 1e-9);
+            close(class, value, f(&u[key]), half_unit);
+        }
+        let printed: Vec<&str> = labels
+            .iter()
+            .map(|l| l.1.rsplit(' ').next().unwrap())
+            .collect();
+        let values: Vec<f64> = ["p05", "p50", "p95"].iter().map(|k| f(&u[k])).collect();
+        if values[2] - values[0] >= 2e-6 {
+            // Percentiles two hundredths of a basis point apart print differently.
+            assert_ne!(printed[0], printed[2], "{sets:?}");
+        }
+    }
+}
+
+// Draws all but equal (a Vasicek prior of variance 1e-12 holds every beta at the prior mean,
+// so each draw's WACC is the same to about 1e-12): every draw counted (it was 9,574 of
+// 10,000), edges strictly increasing, and the chart's bin width a width, not "0 bp" (found by
+// review). The width printed is the one result.json records.
+#[test]
+fn nearly_constant_draws_are_all_counted_in_a_readable_bin() {
+    let run = Run::new(&[
+        "--set",
+        "beta.adjustment=\"vasicek\"",
+        "--set",
+        "beta.vasicek_prior_mean=1.0",
+        "--set",
+        "beta.vasicek_prior_variance=1e-12",
+    ]);
+    let u = &run.result["uncertainty"];
+    let h = &u["histogram"];
+    let edges: Vec<f64> = h["edges"].as_array().unwrap().iter().map(f).collect();
+    let counts: Vec<u64> = (h["counts"].as_array().unwrap().iter())
+        .map(|c| c.as_u64().unwrap())
+        .collect();
+    assert_eq!(counts.iter().sum::<u64>(), u["draws"].as_u64().unwrap());
+    assert!(edges.windows(2).all(|e| e[0] < e[1]), "{edges:?}");
+    for key in ["p05", "p95"] {
+        assert!(edges[0] <= f(&u[key]) && f(&u[key]) <= edges[edges.len() - 1]);
+    }
+    let svg = run.svg("uncertainty.svg");
+    let title = (in_group(&svg, "y-axis").into_iter())
+        .find(|e| e.tag == "text" && e.text.starts_with("Draws per "))
+        .unwrap();
+    let width = title.text["Draws per ".len()..].trim_end_matches(" bin");
+    assert!(!width.contains("0 bp"), "{width}");
+    // 1e-15: the width printed in percent with as many decimals as it needs, read back.
+    close(
+        "bin width",
+        tick_value(width).unwrap(),
+        f(&h["bin_width"]),
+        1e-15,
+    );
+    check_uncertainty(&run);
+}
+
+// numpy.histogram counts a sample's values into the edges hurdle stores, half-open bins and
+// the last closed, the convention hurdle's module documents; its counts must be hurdle's. The
+// width is Freedman and Diaconis's 2·IQR·n^(−1/3) with numpy's quartiles (linear
+// interpolation, as hurdle's), rounded up to 1, 2, 2.5 or 5 × 10^k, written out in Python.
+#[test]
+fn histogram_counts_agree_with_numpy() {
+    let mut rng = hurdle::stats::random::Rng::seeded(11);
+    let mut values: Vec<f64> = (0..10_000)
+        .map(|_| 0.0812 + 0.0031 * rng.normal())
+        .collect();
+    values.sort_by(f64::total_cmp);
+    let h = hurdle::audit::histogram::histogram(&values);
+    let dir = tempfile::tempdir().unwrap();
+    let input = dir.path().join("histogram.json");
+    let data = serde_json::json!({"values": values, "edges": h.edges});
+    std::fs::write(&input, data.to_string()).unwrap();
+    let script = r#"
+import json, math, sys
+import numpy as np
+d = json.load(open(sys.argv[1]))
+v, edges = np.array(d["values"]), np.array(d["edges"])
+counts, _ = np.histogram(v, bins=edges)
+q1, q3 = np.percentile(v, [25, 75])
+raw = 2 * (q3 - q1) * len(v) ** (-1 / 3)
+power = 10 ** math.floor(math.log10(raw))
+width = min(m * power for m in (1, 2, 2.5, 5, 10) if m * power >= raw)
+print(json.dumps({"counts": counts.tolist(), "width": width}))
+"#;
+    let output = std::process::Command::new("python3")
+        .args(["-c", script, input.to_str().unwrap()])
+        .output()
+        .expect("python3 with numpy must be installed (python3 -m pip install numpy scipy)");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let numpy: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let counts: Vec<u32> = (numpy["counts"].as_array().unwrap().iter())
+        .map(|c| c.as_u64().unwrap() as u32)
+        .collect();
+    assert_eq!(h.counts, counts);
+    // 1e-18: both widths are a power of ten times 1, 2, 2.5 or 5, computed alike.
+    close("bin width", h.bin_width, f(&numpy["width"]), 1e-18);
+}
+
+// Thirty peers, the last left out: the betas come in parts and only the last draws the divider
+// above the peer left out. Each part's caption speaks of the divider only where it is drawn;
+// a part without it says which part shows the peer left out (found by review: the first part's
+// caption spoke of a divider drawn only in the second).
+#[test]
+fn each_betas_part_is_captioned_for_what_it_draws() {
+    let root = tempfile::tempdir().unwrap();
+    let case = thirty_peer_case(root.path());
+    let out = root.path().join("out");
+    common::run_case_with(&case, &out, &[]);
+    let mut parts = vec!["betas.svg".to_string()];
+    while out
+        .join("figures")
+        .join(format!("betas-{}.svg", parts.len() + 1))
+        .is_file()
+    {
+        parts.push(format!("betas-{}.svg", parts.len() + 1));
+    }
+    assert!(parts.len() >= 2, "30 rows do not fit one part");
+    let svgs: Vec<Vec<Element>> = (parts.iter())
+        .map(|p| parse(&std::fs::read_to_string(out.join("figures").join(p)).unwrap()))
+        .collect();
+    let divider = |svg: &[Element]| {
+        svg.iter()
+            .any(|e| e.tag == "text" && e.text == "Left out of the aggregate")
+    };
+    let with_divider: Vec<usize> = (0..parts.len()).filter(|&k| divider(&svgs[k])).collect();
+    assert_eq!(
+        with_divider,
+        [parts.len() - 1],
+        "one peer left out, in the last part"
+    );
+    for (k, svg) in svgs.iter().enumerate() {
+        let caption = &svg.iter().find(|e| e.tag == "desc").unwrap().text;
+        let speaks = caption.contains("below the divider");
+        assert_eq!(speaks, divider(svg), "{}: {caption}", parts[k]);
+        if !divider(svg) {
+            let pointer = format!(
+                "The 1 peer left out of the aggregate is drawn in part {}",
+                parts.len()
+            );
+            assert!(caption.contains(&pointer), "{}: {caption}", parts[k]);
+        }
+    }
+}
+
+// README: a regression chart is `regression-NN-<peer>.svg`, NN the peer's place in the case
+// and <peer> its name in lower-case ASCII. Names in Greek or CJK letters have no such letters:
+// their charts are `regression-NN.svg`, not `regression-NN-.svg` (found by review), one file
+// a peer, each linked from the memo and placed in the report.
+#[test]
+fn peers_named_without_latin_letters_get_charts_by_their_place() {
+    let run = Run::new(&[
+        "--set",
+        "peer.1.name=\"Ωμέγα Δέλτα\"",
+        "--set",
+        "peer.2.name=\"東京精密機械\"",
+    ]);
+    let files = run.files();
+    let regressions: Vec<&String> = files
+        .iter()
+        .filter(|f| f.starts_with("regression-"))
+        .collect();
+    assert_eq!(regressions.len(), 8, "{files:?}");
+    assert!(
+        files.contains(&"regression-02.svg".to_string()),
+        "{files:?}"
+    );
+    assert!(
+        files.contains(&"regression-03.svg".to_string()),
+        "{files:?}"
+    );
+    assert!(files.iter().all(|f| !f.ends_with("-.svg")), "{files:?}");
+    let memo = std::fs::read_to_string(run.dir.path().join("memo.md")).unwrap();
+    let report = std::fs::read_to_string(run.dir.path().join("report.html")).unwrap();
+    for file in regressions {
+        assert!(memo.contains(&format!("](figures/{file})")), "memo: {file}");
+        assert!(
+            report.contains(&format!("data-file=\"figures/{file}\"")),
+            "{file}"
+        );
+    }
+    let title = run.svg("regression-02.svg");
+    assert!(title
+        .iter()
+        .any(|e| e.tag == "title" && e.text.starts_with("Ωμέγα Δέλτα")));
+}

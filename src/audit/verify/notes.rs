@@ -98,7 +98,25 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 4] = [
+const KNOWN_CHANGES: [KnownChange; 5] = [
+    KnownChange {
+        version: "0.6.0",
+        kind: "case",
+        paths: &["uncertainty.histogram"],
+        // Only a histogram at the new floor: wider bins are computed as before.
+        explain: |_, rerun| {
+            let width = rerun["uncertainty"]["histogram"]["bin_width"].as_f64();
+            width
+                .is_some_and(|w| w <= crate::audit::histogram::MIN_BIN_WIDTH)
+                .then(|| {
+                    "hurdle 0.6.0 draws the Monte Carlo histogram with bins of at least 0.01 bp, \
+                     where an earlier version's narrower bins lost draws to edges that rounding \
+                     made equal (README, Changelog, \"Findings of a practitioner's, a \
+                     spreadsheet user's and a chart reader's reviews\")"
+                        .to_string()
+                })
+        },
+    },
     KnownChange {
         version: "0.6.0",
         kind: "case",
@@ -303,5 +321,13 @@ mod tests {
         assert_eq!(universe(&single), 1);
         let pair = json!({"industries": [{"levered": {"dispersion": {"count": 2}}}]});
         assert_eq!(universe(&pair), 0);
+        // The histogram's floor: named when the rerun's bins are at it, not for wider bins.
+        let bins = mismatch("uncertainty.histogram.counts");
+        let histogram = |width: f64| {
+            let rerun = json!({"uncertainty": {"histogram": {"bin_width": width}}});
+            known_changes("case", versions, &[&bins], (&json!({}), &rerun)).len()
+        };
+        assert_eq!(histogram(1e-6), 1);
+        assert_eq!(histogram(5e-4), 0);
     }
 }

@@ -120,7 +120,7 @@ impl Scale {
     }
 
     /// An axis over `[low, high]` padded by `pad` of the span on each side, whose ticks and
-    /// their labels the chart gives (dates at the starts of months, say); the ticks outside the
+    /// their labels the chart gives (dates at the ends of months, say); the ticks outside the
     /// padded range are left out.
     pub fn labelled(low: f64, high: f64, pad: f64, ticks: Vec<(f64, String)>) -> Scale {
         let span = (high - low).max(0.0);
@@ -237,6 +237,15 @@ pub struct Axes {
     pub y_ticks: bool,
 }
 
+/// Room [`Axes::chart`] leaves right of the plot, in pixels (for the last x label's half).
+const RIGHT_MARGIN: u32 = style::MARGIN as u32 + 8;
+
+/// The width in pixels of the plot [`Axes::chart`] lays out in an area `area` pixels wide, with
+/// a band of `left` pixels for the y labels.
+pub fn plot_width(area: u32, left: u32) -> u32 {
+    area.saturating_sub(style::MARGIN as u32 + left + RIGHT_MARGIN)
+}
+
 impl Axes {
     /// The plot of `plot_area` in these axes' coordinates.
     pub fn chart<'a, 'b>(
@@ -245,7 +254,7 @@ impl Axes {
     ) -> std::result::Result<Chart<'a, 'b>, DrawingAreaErrorKind<std::io::Error>> {
         ChartBuilder::on(plot_area)
             .margin_left(style::MARGIN as u32)
-            .margin_right(style::MARGIN as u32 + 8)
+            .margin_right(RIGHT_MARGIN)
             .margin_top(6)
             .x_label_area_size(self.bottom)
             .y_label_area_size(self.left)

@@ -47,9 +47,43 @@ struct Row<'a> {
 pub fn draw(valuation: &Valuation) -> Result<Vec<Figure>> {
     let parts = parts(&valuation.peers);
     let count = parts.len();
-    (parts.iter().enumerate())
-        .map(|(k, part)| draw_part(valuation, part, (k, count)))
+    (0..count)
+        .map(|k| draw_part(valuation, &parts[k], (k, count), &left_out_words(&parts, k)))
         .collect()
+}
+
+/// What part `k`'s caption says of the peers left out of the aggregate: those below its divider
+/// when it draws one, else the parts that hold them (a large set's first parts hold included
+/// peers only, and no divider); nothing when no peer is left out.
+fn left_out_words(parts: &[Vec<&PeerResult>], k: usize) -> String {
+    let left_out = |part: &Vec<&PeerResult>| part.iter().any(|p| p.excluded_reason.is_some());
+    if left_out(&parts[k]) {
+        return "Peers below the divider are estimated and shown but left out of the aggregate, \
+                for the reason given. "
+            .to_string();
+    }
+    let holding: Vec<usize> = (0..parts.len()).filter(|&j| left_out(&parts[j])).collect();
+    let count: usize = (parts.iter().flatten())
+        .filter(|p| p.excluded_reason.is_some())
+        .count();
+    let (peers, are) = if count == 1 {
+        ("peer", "is")
+    } else {
+        ("peers", "are")
+    };
+    let lead = format!("The {count} {peers} left out of the aggregate {are} drawn in");
+    match holding.as_slice() {
+        [] => String::new(),
+        [one] => format!(
+            "{lead} part {}, below a divider, with the reason. ",
+            one + 1
+        ),
+        [first, .., last] => format!(
+            "{lead} parts {} to {}, below a divider, with the reasons. ",
+            first + 1,
+            last + 1
+        ),
+    }
 }
 
 /// The peers in row order (included in case order, then the excluded), cut into parts of at
@@ -91,6 +125,7 @@ fn draw_part(
     valuation: &Valuation,
     peers: &[&PeerResult],
     (k, count): (usize, usize),
+    left_out: &str,
 ) -> Result<Figure> {
     let (rows, divider, bottom) = rows(peers);
     let cash = valuation.cost.beta.uses_operations_beta;
@@ -117,7 +152,7 @@ fn draw_part(
     let mut title = "Peer betas with their 95% confidence intervals".to_string();
     // A part of peers all left out draws no aggregate line (`marks`), so its key goes too.
     let line_here = peers.iter().any(|p| p.excluded_reason.is_none());
-    let mut caption = caption(valuation, line_here);
+    let mut caption = caption(valuation, line_here, left_out);
     if count > 1 {
         title.push_str(&format!(" (part {} of {count})", k + 1));
         caption.push_str(&format!(
@@ -395,10 +430,10 @@ fn used_label(valuation: &Valuation) -> &'static str {
 }
 
 /// The chart's caption; `line_here` is false for a part that holds only peers left out of the
-/// aggregate, which does not draw its line.
-fn caption(valuation: &Valuation, line_here: bool) -> String {
+/// aggregate, which does not draw its line; `left_out` says where the peers left out are drawn
+/// ([`left_out_words`]).
+fn caption(valuation: &Valuation, line_here: bool, left_out: &str) -> String {
     let summary = &valuation.cost.beta;
-    let excluded = valuation.peers.len() - summary.peers_included;
     format!(
         "For each peer: the raw β (dot) with its 95% confidence interval ({} standard errors, \
          Student t), the β used ({}; triangle) and the unlevered β by {} (square{}). {} the {} \
@@ -430,12 +465,7 @@ fn caption(valuation: &Valuation, line_here: bool) -> String {
         fixed(summary.unlevered, 3),
         fixed(summary.relevered, 3),
         fixed(valuation.cost.target.debt_to_equity, 3),
-        if excluded > 0 {
-            "Peers below the divider are estimated and shown but left out of the aggregate, for \
-             the reason given. "
-        } else {
-            ""
-        },
+        left_out,
         if summary.uses_operations_beta {
             "operations_beta"
         } else {

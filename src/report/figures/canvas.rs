@@ -80,6 +80,19 @@ impl Canvas {
         }
     }
 
+    /// Runs `measure` on a scratch area of the chart's size, keeping nothing it draws: where a
+    /// layout puts things (a label's pixels, say) before they are drawn. `what` labels an error.
+    pub fn measure<T>(
+        &self,
+        what: &str,
+        measure: impl FnOnce(&Area) -> std::result::Result<T, DrawingAreaErrorKind<std::io::Error>>,
+    ) -> Result<T> {
+        let mut buffer = String::new();
+        let root =
+            SVGBackend::with_string(&mut buffer, (self.width, self.height)).into_drawing_area();
+        measure(&root).map_err(|e| self.error(what, &e.to_string()))
+    }
+
     fn error(&self, layer: &str, message: &str) -> Error {
         Error::Figure {
             name: self.name.clone(),

@@ -86,7 +86,10 @@ pub fn draw_all(valuation: &Valuation) -> Result<Vec<Figure>> {
             one(regression::draw(valuation, (index, title)))
         }));
     }
-    if valuation.rolling.iter().any(|points| !points.is_empty()) {
+    // A rolling beta over time needs two windows at least; with none anywhere (a rolling window
+    // as long as the estimation window) there is no chart, and the memo's stability section
+    // gives each peer's reason.
+    if stability::has_lines(valuation) {
         draws.push(Box::new(|| stability::draw(valuation)));
     }
     if let Some(grid) = &valuation.sensitivity {
@@ -184,8 +187,19 @@ pub fn is_chart_name(name: &str) -> bool {
             }))
 }
 
+/// The file name of peer `index`'s (from 0) regression chart: `figures/regression-NN-<slug>.svg`
+/// with NN its place in the case, or `figures/regression-NN.svg` when the name leaves no slug
+/// (a name written in Greek, Cyrillic or CJK letters, say). NN alone tells the charts apart.
+pub fn regression_file_name(index: usize, name: &str) -> String {
+    match slug(name) {
+        slug if slug.is_empty() => format!("{REGRESSION_PREFIX}{:02}.svg", index + 1),
+        slug => format!("{REGRESSION_PREFIX}{:02}-{slug}.svg", index + 1),
+    }
+}
+
 /// A file-name part from a peer's name: lower-case ASCII letters and digits, other runs of
-/// characters as one hyphen, at most 40 characters.
+/// characters as one hyphen, at most 40 characters; empty when the name has no Latin letter or
+/// digit.
 pub fn slug(name: &str) -> String {
     let mut out = String::new();
     for c in name.chars() {
@@ -316,5 +330,35 @@ mod tests {
         assert_eq!(slug("Ðaðir Ħamrun Ĵaŭdo"), "dadir-hamrun-jaudo");
         assert_eq!(slug("Ķekava Ŵyn Ŋaat Ĳssel"), "kekava-wyn-naat-ijssel");
         assert_eq!(slug("***"), "");
+    }
+
+    // README: `regression-NN-<peer>.svg`, NN the peer's place in the case from 01. A name
+    // without a Latin letter or digit (Greek, CJK) has no slug: the file is `regression-NN.svg`,
+    // not `regression-NN-.svg` (found by review), still a chart's name to a later run.
+    #[test]
+    fn a_name_without_latin_letters_gives_the_place_alone() {
+        use super::regression_file_name;
+        assert_eq!(
+            regression_file_name(0, "Brenvale Fluid Systems"),
+            "figures/regression-01-brenvale-fluid-systems.svg"
+        );
+        assert_eq!(
+            regression_file_name(9, "Ωμέγα Δέλτα"),
+            "figures/regression-10.svg"
+        );
+        assert_eq!(
+            regression_file_name(10, "東京精密機械"),
+            "figures/regression-11.svg"
+        );
+        assert_eq!(
+            regression_file_name(11, "Ωmega Δelta"),
+            "figures/regression-12-mega-elta.svg"
+        );
+        for name in [
+            "figures/regression-10.svg",
+            "figures/regression-12-mega-elta.svg",
+        ] {
+            assert!(is_chart_name(name), "{name}");
+        }
     }
 }

@@ -13,7 +13,7 @@ use super::axes::{extent, plot_layer, Axes, Scale};
 use super::canvas::{distinct_middle, Canvas};
 use super::frame::{Layout, Mark};
 use super::style::{ACCENT, BAND, FLAG, NEUTRAL, PRIMARY};
-use super::{per_period, slug, Figure, Kind};
+use super::{per_period, Figure, Kind};
 use crate::beta::fitted_line::LinePoint;
 use crate::beta::BetaMethod;
 use crate::error::Result;
@@ -62,12 +62,7 @@ pub fn draw(valuation: &Valuation, (index, drawn_name): (usize, &str)) -> Result
         bottom: 50,
         y_ticks: true,
     };
-    let name = format!(
-        "{}{:02}-{}.svg",
-        super::REGRESSION_PREFIX,
-        index + 1,
-        slug(&peer.name)
-    );
+    let name = super::regression_file_name(index, &peer.name);
     let title = format!("{}: regression on the index", peer.name);
     let caption = caption(valuation, peer, index);
     let mut legend = vec![

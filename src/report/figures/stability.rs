@@ -6,7 +6,8 @@
 //! standard errors in every window, so a thinly traded peer's panel is not biased low. Each
 //! panel's layers carry the class `panel-N` (N from 1, in peer order).
 
-use chrono::{Datelike, NaiveDate};
+mod time_axis;
+
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
@@ -21,6 +22,7 @@ use crate::beta::rolling::RollingPoint;
 use crate::error::Result;
 use crate::report::format::fixed;
 use crate::valuation::Valuation;
+use time_axis::year;
 
 const WIDTH: u32 = 720;
 const PANEL_HEIGHT: u32 = 190;
@@ -28,55 +30,29 @@ const PANEL_HEIGHT: u32 = 190;
 const X_TITLE: u32 = 26;
 const Y_TITLE: u32 = 22;
 
-/// The date as a fractional year (2024-07-01 is about 2024.5), the x coordinate of the panels.
-fn year(date: NaiveDate) -> f64 {
-    let days = if date.leap_year() { 366.0 } else { 365.0 };
-    f64::from(date.year()) + f64::from(date.ordinal0()) / days
-}
-
 /// A shared scale wider than this many times the median peer's own range would squash most
 /// panels into a sliver to show one peer's extremes: each panel then gets its own scale.
 const SHARED_SCALE_LIMIT: f64 = 4.0;
 
-/// Ticks at the starts of months, quarters, half-years, years or every 2, 5 or 10 years, the
-/// finest of those that puts at most [`MAX_TIME_TICKS`] inside `[first, last]` (fractional
-/// years), and only those inside: a year is labelled `2025`, a finer tick `2024-07`, so a window
-/// of two or three years is not marked by two year labels alone, nor forty years by forty.
-fn month_ticks(first: f64, last: f64) -> Vec<(f64, String)> {
-    if !(first.is_finite() && last.is_finite() && first <= last) {
-        return Vec::new();
+/// The band of a panel's y labels, in pixels, and the padding of its time axis (a share of the
+/// span on each side).
+const PANEL_LEFT: u32 = 44;
+const TIME_PAD: f64 = 0.02;
+
+/// Panels side by side: two, or one for a single peer.
+fn columns(valuation: &Valuation) -> usize {
+    if valuation.peers.len() > 1 {
+        2
+    } else {
+        1
     }
-    let (from, to) = (first.floor() as i32, last.ceil() as i32);
-    let starts = |months: i32| -> Vec<(f64, String)> {
-        let dates: Vec<NaiveDate> = match months {
-            m if m < 12 => (from..=to)
-                .flat_map(|y| (1..=12).step_by(m as usize).map(move |month| (y, month)))
-                .filter_map(|(y, month)| NaiveDate::from_ymd_opt(y, month as u32, 1))
-                .collect(),
-            m => (from..=to)
-                .filter(|y| y.rem_euclid(m / 12) == 0)
-                .filter_map(|y| NaiveDate::from_ymd_opt(y, 1, 1))
-                .collect(),
-        };
-        (dates.into_iter())
-            .map(|d| (year(d), d))
-            .filter(|(x, _)| (first..=last).contains(x))
-            .map(|(x, d)| match months >= 12 {
-                true => (x, d.format("%Y").to_string()),
-                false => (x, d.format("%Y-%m").to_string()),
-            })
-            .collect()
-    };
-    [1, 3, 6, 12, 24, 60, 120]
-        .into_iter()
-        .map(starts)
-        .find(|ticks| ticks.len() <= MAX_TIME_TICKS)
-        .unwrap_or_else(|| starts(240))
 }
 
-/// The most time labels a panel's axis takes (a panel is about 300 px wide; a label "2024-07"
-/// about 45 px).
-const MAX_TIME_TICKS: usize = 6;
+/// Whether the chart has a line to draw: a peer with two rolling windows at least. A rolling
+/// window as long as the estimation window leaves one window a peer, and nothing to draw.
+pub fn has_lines(valuation: &Valuation) -> bool {
+    valuation.rolling.iter().any(|points| points.len() >= 2)
+}
 
 /// The β range of one peer's panel: its bands and its whole-window β.
 fn beta_range(points: &[RollingPoint], whole: f64) -> (f64, f64) {
@@ -111,12 +87,18 @@ fn panel_axes(valuation: &Valuation) -> (Vec<Axes>, bool) {
     spans.sort_by(f64::total_cmp);
     let median_span = spans.get(spans.len() / 2).copied().unwrap_or(0.0);
     let shared = !(median_span > 0.0 && high - low > SHARED_SCALE_LIMIT * median_span);
+    // The time labels fit the width of one panel's plot (the grid right of the y axis title,
+    // split into the columns).
+    let panel = (WIDTH - Y_TITLE) / columns(valuation) as u32;
+    let pixels = f64::from(super::axes::plot_width(panel, PANEL_LEFT));
+    let pixels_per_year = pixels / ((last - first) * (1.0 + 2.0 * TIME_PAD));
+    let ticks = time_axis::ticks(first, last, pixels_per_year);
     let axes = |(low, high): (f64, f64)| Axes {
-        x: Scale::labelled(first, last, 0.02, month_ticks(first, last)),
+        x: Scale::labelled(first, last, TIME_PAD, ticks.clone()),
         y: Scale::plain(low, high, 0.05, 6),
         x_title: String::new(),
         y_title: String::new(),
-        left: 44,
+        left: PANEL_LEFT,
         bottom: 24,
         y_ticks: true,
     };
@@ -160,10 +142,17 @@ fn part_words(
     (first, last): (usize, usize),
 ) -> (String, String) {
     let peers = &valuation.peers;
-    let window = peers
-        .iter()
-        .find_map(|p| p.stability.as_ref())
-        .map(|st| st.window_periods);
+    // The periods of a rolling window as the peers' records give them, else as the case sets
+    // them (a peer has a record with two windows or more).
+    let window = (peers.iter().find_map(|p| p.stability.as_ref()))
+        .map(|st| st.window_periods)
+        .unwrap_or_else(|| {
+            valuation
+                .settings
+                .beta
+                .rolling(valuation.sampling.lookback)
+                .0
+        });
     let mut title = format!(
         "Rolling {} betas through the window",
         super::method_name(valuation.estimator.method)
@@ -218,7 +207,7 @@ fn draw_part(
     let peers = &valuation.peers;
     let first = k * PANELS_PER_PART;
     let last = (first + PANELS_PER_PART).min(peers.len());
-    let columns = if peers.len() > 1 { 2 } else { 1 };
+    let columns = columns(valuation);
     let panel_rows = (last - first).div_ceil(columns);
     let (title, caption) = part_words(valuation, shared, (k, count), (first, last));
     let legend = vec![
@@ -249,7 +238,7 @@ fn draw_part(
     };
     let panels = peers.iter().zip(&valuation.rolling).enumerate();
     for (i, (peer, points)) in panels.take(last).skip(first) {
-        grid.frame(&mut canvas, i, &peer.name, points.is_empty())?;
+        grid.frame(&mut canvas, i, &peer.name, points.len())?;
         grid.data(&mut canvas, i, peer.estimate.beta, points)?;
     }
     let description = format!("{caption} {}", data_summary(&peers[first..last]));
@@ -303,8 +292,9 @@ impl Panels<'_> {
         })
     }
 
-    /// Panel `i`'s title, grid and axes.
-    fn frame(&self, canvas: &mut Canvas, i: usize, name: &str, empty: bool) -> Result<()> {
+    /// Panel `i`'s title, grid and axes, and why it draws no line when it has fewer than two
+    /// of the `windows`.
+    fn frame(&self, canvas: &mut Canvas, i: usize, name: &str, windows: usize) -> Result<()> {
         let shown = std::cell::RefCell::new(String::new());
         self.layer(canvas, i, "panel-title", &|band, _| {
             let name_style = style::bold(style::LABEL, &INK).pos(Pos::new(HPos::Left, VPos::Top));
@@ -319,11 +309,16 @@ impl Panels<'_> {
                 .clone();
             band.draw_text(&text, &name_style, (style::MARGIN, 4))?;
             *shown.borrow_mut() = text;
-            if empty {
+            let why = match windows {
+                0 => "no window with enough observations",
+                1 => "one window only: no line over time",
+                _ => "",
+            };
+            if !why.is_empty() {
                 // Inside the plot, right of the y axis's labels.
                 let note = style::text(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
                 band.draw_text(
-                    "no window with enough observations",
+                    why,
                     &note,
                     (style::MARGIN + self.axes[i].left as i32 + 8, 60),
                 )?;
@@ -374,6 +369,8 @@ impl Panels<'_> {
         beta: f64,
         points: &[RollingPoint],
     ) -> Result<()> {
+        // One window is a point, not a line over time: the panel says so instead (`frame`).
+        let points = if points.len() >= 2 { points } else { &[] };
         self.layer(canvas, i, "band", &|_, chart| draw_band(chart, points))?;
         let (x0, x1) = (self.axes[i].x.range.start, self.axes[i].x.range.end);
         self.layer(canvas, i, "full-window-beta", &|_, chart| {
@@ -386,6 +383,9 @@ impl Panels<'_> {
             Ok(())
         })?;
         self.layer(canvas, i, "rolling-beta", &|_, chart| {
+            if points.is_empty() {
+                return Ok(());
+            }
             chart.draw_series(std::iter::once(PathElement::new(
                 points
                     .iter()
@@ -451,7 +451,7 @@ fn widest(valuation: &Valuation) -> String {
     )
 }
 
-fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) -> String {
+fn caption(valuation: &Valuation, window: u32, step: u32, shared: bool) -> String {
     let scale = match shared {
         true => "all panels share one β scale".to_string(),
         false => format!(
@@ -465,12 +465,14 @@ fn caption(valuation: &Valuation, window: Option<u32>, step: u32, shared: bool) 
         "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
          whole window) over windows of {} {period}s ending every {}, with each window's 95% \
          interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
-         the window's last {period}, marked at the starts of months, quarters, half-years or years (every 2, 5 or 10 years on a long span); {scale}. Figures: the rolling \
+         the window's last {period}, marked at the ends of months, quarters, half-years or years \
+         (every 2, 5, 10 or more years on a long span), each tick labelled with the month or year \
+         it ends, as finely as the labels fit; {scale}. Figures: the rolling \
          betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",
         super::method_name(valuation.estimator.method),
         super::std_errors_name(valuation.estimator.std_errors),
-        window.map_or_else(|| "?".to_string(), |w| w.to_string()),
+        window,
         if step == 1 {
             period.to_string()
         } else {
@@ -496,48 +498,4 @@ fn data_summary(peers: &[crate::valuation::PeerResult]) -> String {
         })
         .collect::<Vec<_>>()
         .join(" ")
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    // Two and a half years of windows get half-year ticks (two year starts alone would be too
-    // few); a few months get month ticks; ten years every two years; thirty-five years every
-    // ten; never more than six, and none outside the windows.
-    #[test]
-    fn time_ticks_are_the_finest_with_at_most_six_labels() {
-        let at = |y, m, d| year(NaiveDate::from_ymd_opt(y, m, d).unwrap());
-        let labels = |first, last| -> Vec<String> {
-            month_ticks(first, last)
-                .into_iter()
-                .map(|(_, l)| l)
-                .collect()
-        };
-        assert_eq!(
-            labels(at(2024, 3, 31), at(2026, 9, 30)),
-            ["2024-07", "2025-01", "2025-07", "2026-01", "2026-07"]
-        );
-        assert_eq!(
-            labels(at(2026, 5, 29), at(2026, 9, 30)),
-            ["2026-06", "2026-07", "2026-08", "2026-09"]
-        );
-        assert_eq!(
-            labels(at(2016, 9, 30), at(2026, 9, 30)),
-            ["2018", "2020", "2022", "2024", "2026"]
-        );
-        assert_eq!(
-            labels(at(1991, 9, 30), at(2026, 9, 30)),
-            ["2000", "2010", "2020"]
-        );
-    }
-
-    #[test]
-    fn fractional_years() {
-        assert_eq!(year(NaiveDate::from_ymd_opt(2024, 1, 1).unwrap()), 2024.0);
-        // 2024 is a leap year: 1 July is day 182 of 366 counted from 0.
-        let july = year(NaiveDate::from_ymd_opt(2024, 7, 1).unwrap());
-        // 1e-12: one division and one addition on numbers near 2024 (ulp 4.5e-13).
-        assert!((july - (2024.0 + 182.0 / 366.0)).abs() < 1e-12);
-    }
 }

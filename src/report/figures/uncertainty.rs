@@ -2,28 +2,35 @@
 //! and the point estimate marked.
 //!
 //! The bins and counts are the library's ([`crate::audit::histogram`]), so the bars are the
-//! stored counts; the percentiles are the same figures the memo's table prints.
+//! stored counts; the percentiles are the same figures the memo's table prints, with more
+//! decimals only where two would read alike. Each line's label stands beside it in a row of
+//! its own when lines lie close (`uncertainty/labels.rs`).
 
+mod labels;
+
+use plotters::coord::CoordTranslate;
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::axes::{plot_layer, Axes, Scale};
 use super::canvas::Canvas;
-use super::frame::{Layout, Mark};
+use super::frame::{text_width, Layout, Mark};
 use super::style::{self, ACCENT, BARS, INK, PAPER};
 use super::{Figure, Kind};
 use crate::audit::uncertainty::Uncertainty;
 use crate::error::Result;
 use crate::report::format::{basis_points, percent};
+use labels::{Side, Wanted};
 
-/// A bin width in basis points when it is a whole number of them, else in percent.
+/// A bin width in basis points when it is a whole number of them, else in percent with the
+/// decimals that write it exactly (0.25 bp as 0.0025%, the narrowest bin, 0.01 bp, as 0.0001%).
 fn bin_width(width: f64) -> String {
     let bp = width * 1e4;
-    if (bp - bp.round()).abs() < 1e-9 {
+    if bp >= 1.0 && (bp - bp.round()).abs() < 1e-9 {
         basis_points(width)
     } else {
-        percent(width, 4)
+        percent(width, edge_decimals(width))
     }
 }
 
@@ -109,66 +116,105 @@ fn plot(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> R
     lines(canvas, layout, axes, u)
 }
 
-/// The percentile and point-estimate lines, each labelled at its own height.
-fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
-    let top = axes.y.range.end;
-    // The point estimate is labelled in the top row with the percentiles, whose labels lie
-    // outside the interval, on the side with the more room up to the interval's nearer end (or
-    // away from the interval when the point lies outside it): no line reaches that row, so none
-    // strikes through it. The median's label, a row lower, goes the other way, away from the
-    // point's taller line. (An anchor of Right puts the text to the left of its line.)
+/// The heights of the label rows, top down, as shares of the y axis: the bars reach 1/1.45 of
+/// it (about 0.69), so the lowest row's text clears the tallest bar by some 8 px.
+const LABEL_ROWS: [f64; 4] = [0.95, 0.88, 0.81, 0.74];
+
+/// One labelled line: its layer's class, where it stands, its label, and the row and side the
+/// chart would choose for the label.
+struct Marked {
+    class: &'static str,
+    x: f64,
+    text: String,
+    row: usize,
+    side: Side,
+}
+
+/// The percentile and point-estimate lines, in the order their labels are placed. The point
+/// estimate is labelled in the top row with the percentiles, whose labels lie outside the
+/// interval, on the side with the more room up to the interval's nearer end (or away from the
+/// interval when the point lies outside it): no line reaches that row, so none strikes
+/// through it. The median's label, a row lower, goes the other way, away from the point's
+/// taller line. Labels too close for that take other places ([`labels::place`]).
+fn marked(u: &Uncertainty) -> [Marked; 4] {
     let room_left = u.point_estimate - u.p05;
     let room_right = u.p95 - u.point_estimate;
     let point_side = match (room_left < 0.0, room_right < 0.0) {
-        (true, _) => HPos::Right,
-        (_, true) => HPos::Left,
-        _ if room_right >= room_left => HPos::Left,
-        _ => HPos::Right,
+        (true, _) => Side::Left,
+        (_, true) => Side::Right,
+        _ if room_right >= room_left => Side::Right,
+        _ => Side::Left,
     };
     let median_side = match u.p50 < u.point_estimate {
-        true => HPos::Right,
-        false => HPos::Left,
+        true => Side::Left,
+        false => Side::Right,
     };
-    // Label rows from the top of the plot, as fractions of its height.
-    let marks = [
-        (
-            "percentile-05",
-            u.p05,
-            format!("5th {}", percent(u.p05, 2)),
-            0.95,
-            HPos::Right,
-        ),
-        (
-            "percentile-95",
-            u.p95,
-            format!("95th {}", percent(u.p95, 2)),
-            0.95,
-            HPos::Left,
-        ),
-        (
-            "median",
-            u.p50,
-            format!("median {}", percent(u.p50, 2)),
-            0.87,
-            median_side,
-        ),
-        (
+    let decimals = label_decimals(&[u.p05, u.p50, u.p95, u.point_estimate]);
+    let mark = |class, x, name: &str, row, side| Marked {
+        class,
+        x,
+        text: format!("{name} {}", percent(x, decimals)),
+        row,
+        side,
+    };
+    [
+        mark("percentile-05", u.p05, "5th", 0, Side::Left),
+        mark("percentile-95", u.p95, "95th", 0, Side::Right),
+        mark(
             "point-estimate",
             u.point_estimate,
-            format!("point estimate {}", percent(u.point_estimate, 2)),
-            0.95,
+            "point estimate",
+            0,
             point_side,
         ),
-    ];
-    for (class, x, text, height, side) in marks {
-        plot_layer(canvas, layout, axes, class, |chart| {
-            let (colour, width) = if class == "point-estimate" {
-                (ACCENT, 3)
-            } else {
-                (INK, 2)
+        mark("median", u.p50, "median", 1, median_side),
+    ]
+}
+
+/// Decimals of the lines' labels in percent: two, or up to four when fewer would print alike
+/// two figures that four tell apart (percentiles a hair apart under a narrow distribution).
+fn label_decimals(values: &[f64]) -> usize {
+    let apart = |a: f64, b: f64, d: usize| percent(a, d) != percent(b, d);
+    (2..=4)
+        .find(|&d| {
+            values.iter().enumerate().all(|(i, &a)| {
+                values[..i]
+                    .iter()
+                    .all(|&b| !apart(a, b, 4) || apart(a, b, d))
+            })
+        })
+        .unwrap_or(4)
+}
+
+/// The percentile and point-estimate lines, each labelled in its row beside it.
+fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
+    let top = axes.y.range.end;
+    let marks = marked(u);
+    // The lines' pixels and the plot's, as the layers below will draw them.
+    let coordinates = canvas.measure("labels", |root| {
+        let (_, plot_area, _) = layout.split(root);
+        let chart = axes.chart(&plot_area)?;
+        Ok(chart.as_coord_spec().clone())
+    })?;
+    let wanted: Vec<Wanted> = (marks.iter())
+        .map(|m| Wanted {
+            x: coordinates.translate(&(m.x, 0.0)).0,
+            width: text_width(&m.text, style::SMALL),
+            row: m.row,
+            side: m.side,
+        })
+        .collect();
+    let bounds = coordinates.get_x_axis_pixel_range();
+    let places = labels::place(&wanted, LABEL_ROWS.len(), (bounds.start, bounds.end));
+    for (m, place) in marks.iter().zip(places) {
+        let height = LABEL_ROWS[place.row];
+        plot_layer(canvas, layout, axes, m.class, |chart| {
+            let (colour, width) = match m.class {
+                "point-estimate" => (ACCENT, 3),
+                _ => (INK, 2),
             };
-            let line = vec![(x, 0.0), (x, top * (height - 0.02))];
-            if class.starts_with("percentile") {
+            let line = vec![(m.x, 0.0), (m.x, top * (height - 0.02))];
+            if m.class.starts_with("percentile") {
                 chart.draw_series(std::iter::once(DashedPathElement::new(
                     line,
                     6,
@@ -181,10 +227,15 @@ fn lines(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> 
                     colour.stroke_width(width),
                 )))?;
             }
-            let offset = if matches!(side, HPos::Right) { -5 } else { 5 };
-            let label = style::text(style::SMALL, &colour).pos(Pos::new(side, VPos::Center));
+            // An anchor of Right puts the text to the left of its line.
+            let (anchor, offset) = match place.side {
+                Side::Left => (HPos::Right, -labels::OFFSET),
+                Side::Right => (HPos::Left, labels::OFFSET),
+            };
+            let label = style::text(style::SMALL, &colour).pos(Pos::new(anchor, VPos::Center));
             chart.draw_series(std::iter::once(
-                EmptyElement::at((x, top * height)) + Text::new(text.clone(), (offset, 0), label),
+                EmptyElement::at((m.x, top * height))
+                    + Text::new(m.text.clone(), (offset, 0), label),
             ))?;
             Ok(())
         })?;
