@@ -9,11 +9,13 @@
 /// One block of the document.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Block {
-    /// A heading: level (1–6), its text (plain) and its HTML.
+    /// A heading: level (1–6), its text (plain), its HTML and its `id` (unique in the
+    /// document: a second heading of the same text gets `-2`, a third `-3`).
     Heading {
         level: usize,
         text: String,
         html: String,
+        id: String,
     },
     /// A paragraph made only of images: (alt text, path) of each.
     Images(Vec<(String, String)>),
@@ -25,6 +27,9 @@ pub enum Block {
 pub fn blocks(markdown: &str) -> Vec<Block> {
     let lines: Vec<&str> = markdown.lines().collect();
     let mut out = Vec::new();
+    // Ids given so far: an id twice in one page breaks the contents' links (HTML requires
+    // each id once), which a template repeating a heading would otherwise give.
+    let mut taken = std::collections::HashSet::new();
     let mut i = 0;
     while i < lines.len() {
         let line = lines[i];
@@ -32,11 +37,19 @@ pub fn blocks(markdown: &str) -> Vec<Block> {
         if trimmed.is_empty() {
             i += 1;
         } else if let Some((level, text)) = heading(trimmed) {
-            let id = anchor(&text);
+            let base = anchor(&text);
+            let id = (1..)
+                .map(|n| match n {
+                    1 => base.clone(),
+                    n => format!("{base}-{n}"),
+                })
+                .find(|id| taken.insert(id.clone()))
+                .expect("some suffix is free");
             out.push(Block::Heading {
                 level,
                 html: format!("<h{level} id=\"{id}\">{}</h{level}>", inline(&text)),
                 text: plain(&text),
+                id,
             });
             i += 1;
         } else if trimmed.starts_with("```") {
@@ -381,7 +394,8 @@ mod tests {
             Block::Heading {
                 level: 1,
                 text: "Title".into(),
-                html: "<h1 id=\"s-title\">Title</h1>".into()
+                html: "<h1 id=\"s-title\">Title</h1>".into(),
+                id: "s-title".into()
             }
         );
         assert_eq!(

@@ -12,12 +12,12 @@ use super::markdown::{self, Block};
 use super::Figure;
 
 /// The cautions every report ends with, used when the memo's template has none of its own.
-const CAUTIONS: &str = "<section class=\"cautions\" id=\"s-cautions\"><h2 id=\"s-cautions-h\">Cautions</h2><ul>\
+const CAUTIONS: &str = "<h2 id=\"s-cautions\">Cautions</h2><ul>\
 <li><strong>A discount rate is a judgement.</strong> The figures here record a calculation from the inputs given; the choice of peers, index, window, frequency and premiums can move the result by more than any interval shows.</li>\
 <li><strong>Estimates have error.</strong> Every beta is an estimate with statistical error, and so is every figure built on it; read the confidence intervals and the Monte Carlo range, not only the point estimates.</li>\
 <li><strong>Inputs as supplied.</strong> Market data, capital-structure figures, rates and premiums were supplied by the user and not verified by the tool; verify each against its source before relying on the result.</li>\
 <li><strong>Not advice.</strong> This is not investment, tax, legal or accounting advice nor a fairness opinion; defer to the applicable standards and to qualified professionals.</li>\
-</ul></section>";
+</ul>";
 
 /// The HTML page of a rendered memo with `figures`.
 pub fn page(memo: &str, figures: &[Figure]) -> String {
@@ -32,6 +32,7 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
                 level: 1,
                 text,
                 html,
+                ..
             } => {
                 title = text.clone();
                 cover.push_str(html);
@@ -41,8 +42,9 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
                 level: 2,
                 text,
                 html,
+                id,
             } => {
-                sections.push((markdown::anchor(text), text.clone(), html.clone()));
+                sections.push((id.clone(), text.clone(), html.clone()));
                 continue;
             }
             Block::Heading { html, .. } => html.clone(),
@@ -65,12 +67,19 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
         .rposition(|(_, text, _)| text.to_lowercase().contains("caution"));
     if !unplaced.is_empty() {
         let body: String = unplaced.iter().map(|f| figure(f)).collect();
+        let id = free_id(&sections, "s-charts");
         let charts = (
-            "s-charts".to_string(),
+            id.clone(),
             "Charts".to_string(),
-            format!("<h2 id=\"s-charts\">Charts</h2><div class=\"gallery\">{body}</div>"),
+            format!("<h2 id=\"{id}\">Charts</h2><div class=\"gallery\">{body}</div>"),
         );
         sections.insert(cautions_at.unwrap_or(sections.len()), charts);
+    }
+    // The standard cautions, listed in the contents like any section, when the memo has none.
+    if cautions_at.is_none() {
+        let id = free_id(&sections, "s-cautions");
+        let html = CAUTIONS.replacen("s-cautions", &id, 1);
+        sections.push((id, "Cautions".to_string(), html));
     }
     let mut body = String::new();
     body.push_str(&format!(
@@ -87,9 +96,6 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
             "<section id=\"{id}-section\"{class}>{html}</section>"
         ));
     }
-    if cautions_at.is_none() {
-        body.push_str(CAUTIONS);
-    }
     format!(
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
          <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
@@ -97,6 +103,18 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
          </head>\n<body>\n<main>\n{body}\n</main>\n</body>\n</html>\n",
         markdown::escape(&title)
     )
+}
+
+/// `id`, or `id-2`, `id-3`… when a section of the memo has it already (a template's own
+/// "Charts" heading, say): each id once in the page.
+fn free_id(sections: &[(String, String, String)], id: &str) -> String {
+    (1..)
+        .map(|n| match n {
+            1 => id.to_string(),
+            n => format!("{id}-{n}"),
+        })
+        .find(|candidate| sections.iter().all(|(taken, ..)| taken != candidate))
+        .expect("some suffix is free")
 }
 
 /// The list of sections under the title.
@@ -229,10 +247,39 @@ mod tests {
         assert!(html.trim_end().ends_with("</html>"));
     }
 
+    // A memo without cautions gets the standard ones last, listed in the contents (found by
+    // review: they were missing from it).
     #[test]
     fn a_memo_without_cautions_gets_the_standard_ones() {
         let html = page("# Memo\n\n## Only\n\ntext\n", &[]);
         assert!(html.contains("A discount rate is a judgement"));
-        assert!(html.rfind("Only").unwrap() < html.find("s-cautions").unwrap());
+        assert!(html.rfind("Only").unwrap() < html.find("id=\"s-cautions\"").unwrap());
+        assert!(
+            html.contains("<li><a href=\"#s-cautions\">Cautions</a></li>"),
+            "{html}"
+        );
+        assert!(html.contains("<section id=\"s-cautions-section\" class=\"cautions\">"));
+    }
+
+    // A template that repeats a heading (and names one "Charts", as the gathered charts'
+    // section is named) gets each id once, and the contents link each section (HTML Living
+    // Standard, "The id attribute": unique in the document). Found by review.
+    #[test]
+    fn repeated_headings_get_ids_of_their_own() {
+        let memo = "# Memo\n\n## Notes\n\na\n\n## Notes\n\nb\n\n## Charts\n\nc\n";
+        let html = page(memo, &[chart("figures/b.svg")]);
+        let ids: Vec<&str> = html
+            .split(" id=\"")
+            .skip(1)
+            .map(|rest| rest.split('"').next().unwrap())
+            .collect();
+        let unique: std::collections::HashSet<&&str> = ids.iter().collect();
+        assert_eq!(unique.len(), ids.len(), "{ids:?}");
+        for id in ["s-notes", "s-notes-2", "s-charts", "s-charts-2"] {
+            assert!(
+                html.contains(&format!("<a href=\"#{id}\">")),
+                "{id}: {html}"
+            );
+        }
     }
 }
