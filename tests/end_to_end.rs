@@ -455,3 +455,31 @@ fn a_date_or_a_file_left_behind_is_noted() {
         "{dropped:?}"
     );
 }
+
+// A price file of its own whose dates carry a time and zone (ISO 8601 date-times, as a data
+// export writes a close: `2023-03-31T16:30:00Z`, `2023-03-31 16:30`) is read by its dates, as a
+// wide table's are: every figure equals the demo's exactly (the same dates and prices read).
+// Found by review: a wide table accepted these forms and a file of its own refused them.
+#[test]
+fn date_times_in_a_price_file_are_read_by_their_date() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let file = case_dir.join("data/peers/corrowick.csv");
+    let text = std::fs::read_to_string(&file).unwrap();
+    let stamped: Vec<String> = (text.lines().enumerate())
+        .map(|(i, line)| match (i, line.split_once(',')) {
+            (0, _) | (_, None) => line.to_string(),
+            (i, Some((date, price))) if i % 2 == 0 => format!("{date}T16:30:00Z,{price}"),
+            (_, Some((date, price))) => format!("{date} 16:30,{price}"),
+        })
+        .collect();
+    std::fs::write(&file, stamped.join("\n") + "\n").unwrap();
+    let stamped = common::run_case_with(&case_dir.join("case.toml"), &dir.path().join("a"), &[]);
+    let plain = run_demo(&dir.path().join("b"), &[]);
+    for key in ["wacc", "cost_of_equity"] {
+        assert_eq!(stamped[key], plain[key], "{key}");
+    }
+    assert_eq!(stamped["peers"][1]["beta"], plain["peers"][1]["beta"]);
+    assert_eq!(stamped["files"][3]["rows"], plain["files"][3]["rows"]);
+}

@@ -286,7 +286,7 @@ fn parse_row(
     value_column: &str,
     kind: ValueKind,
 ) -> std::result::Result<(NaiveDate, f64), String> {
-    let date = parse_iso_date(date_cell).ok_or_else(|| {
+    let date = parse_file_date(date_cell).ok_or_else(|| {
         format!(
             "`{date_column}` = \"{date_cell}\" {}",
             date_problem(date_cell, date_column)
@@ -373,6 +373,12 @@ fn parse_iso_date(text: &str) -> Option<NaiveDate> {
         }
     }
     NaiveDate::parse_from_str(text, "%Y-%m-%d").ok()
+}
+
+/// A date cell of a file of its own: [`parse_iso_date`], or an ISO 8601 date-time read by its
+/// date as a wide table's cell is (`2024-09-30T16:30Z`: the time and zone are ignored).
+fn parse_file_date(text: &str) -> Option<NaiveDate> {
+    parse_iso_date(text).or_else(|| crate::io::tables::iso_date_time(text))
 }
 
 #[cfg(test)]

@@ -139,7 +139,7 @@ pub fn check_range(value: f64, kind: ValueKind) -> Result<(), String> {
 /// (`2024-01-31T16:30:00+01:00`), or by a space and `HH:MM[:SS[.fff]]`. The time and the zone
 /// are checked for their form and then ignored: the date as written is the trading day, so a
 /// close stamped `2024-01-31T23:00:00-05:00` stays 31 January, not 1 February in UTC.
-fn iso_date(text: &str) -> Option<NaiveDate> {
+pub(crate) fn iso_date(text: &str) -> Option<NaiveDate> {
     let day = |date: &str| NaiveDate::parse_from_str(date, "%Y-%m-%d").ok();
     if let Some(date) = day(text) {
         return Some(date);

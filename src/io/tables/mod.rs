@@ -8,6 +8,8 @@
 //! work unchanged. Each bad cell is reported with its file, sheet, cell (or line) and value.
 
 mod cells;
+/// An ISO 8601 date, or a date-time read by its date (for files of their own, as for tables).
+pub(crate) use cells::iso_date as iso_date_time;
 mod delimited;
 mod header;
 mod workbook;
