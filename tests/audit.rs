@@ -1879,7 +1879,7 @@ fn grid_cells_the_case_refuses_are_left_empty_with_the_reason() {
     );
     let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
     assert!(
-        memo.contains("| 0.026 | n/a | n/a | n/a | n/a | n/a |"),
+        memo.contains("| 2.6% | n/a | n/a | n/a | n/a | n/a |"),
         "{memo}"
     );
     assert!(memo.contains("(0.026, 0), (0.026, 0.2)"), "{memo}");

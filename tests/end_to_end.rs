@@ -187,9 +187,28 @@ fn numpy_and_scipy_agree_with_every_figure() {
     reference_check(dir.path(), "demo case");
 }
 
+/// A printed axis value as the decimal it stands for: `4.17%` is 0.0417, its digits moved by
+/// string (so no ·0.01 rounding enters), any other text parsed as it is.
+fn decimal_of(text: &str) -> f64 {
+    let Some(percent) = text.strip_suffix('%') else {
+        return text.parse().unwrap();
+    };
+    let (sign, percent) = match percent.strip_prefix('-') {
+        Some(rest) => ("-", rest),
+        None => ("", percent),
+    };
+    let (whole, fraction) = percent.split_once('.').unwrap_or((percent, ""));
+    let digits = format!("{:0>3}{fraction}", whole);
+    let point = digits.len() - fraction.len() - 2;
+    format!("{sign}{}.{}", &digits[..point], &digits[point..])
+        .parse()
+        .unwrap()
+}
+
 // The memo's words agree with result.json where the review found them apart:
-// - each sensitivity-grid axis value is printed as `--set` writes it (every digit, shortest
-//   round trip), so a row reads as the value result.json records and no two rows alike;
+// - each sensitivity-grid axis value is printed with every digit (shortest round trip; a rate
+//   in percent, its digits moved two places), so a row reads back as the exact value
+//   result.json records and no two rows alike;
 // - a note on dropped periods lists reasons that add up to its total (arithmetic), including
 //   a lagged or led index return missing under Scholes–Williams;
 // - under Hamada with debt betas listed, the memo says Hamada uses none of them (Hamada 1972
@@ -200,21 +219,38 @@ fn the_memo_words_agree_with_the_figures() {
     let result = run_demo(dir.path(), &[]);
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
     let grid = &result["sensitivity"];
-    let mut printed = Vec::new();
-    for axis in ["rows", "columns"] {
-        for value in grid[axis]["values"].as_array().unwrap() {
-            let text = value.as_f64().unwrap().to_string();
-            assert!(
-                memo.contains(&format!("| {text} |")),
-                "memo lacks axis value {text}"
-            );
-            printed.push(text);
-        }
+    // The table's header row (the column values) and first column (the row values), as
+    // printed: a rate in percent with every digit (the ERP rows), another key's value plain.
+    let header = format!(
+        "| {} \\ {} |",
+        grid["rows"]["key"].as_str().unwrap(),
+        grid["columns"]["key"].as_str().unwrap()
+    );
+    let lines: Vec<&str> = memo
+        .lines()
+        .skip_while(|l| !l.starts_with(&header))
+        .collect();
+    let cells = |line: &str| -> Vec<String> {
+        line.trim_matches('|')
+            .split('|')
+            .map(|c| c.trim().to_string())
+            .collect()
+    };
+    let columns: Vec<String> = cells(lines[0])[1..].to_vec();
+    let rows: Vec<String> = (lines[2..].iter())
+        .take_while(|l| l.starts_with('|'))
+        .map(|l| cells(l)[0].clone())
+        .collect();
+    for (axis, printed) in [("rows", &rows), ("columns", &columns)] {
+        let values: Vec<f64> = (grid[axis]["values"].as_array().unwrap().iter())
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        let read: Vec<f64> = printed.iter().map(|t| decimal_of(t)).collect();
+        assert_eq!(read, values, "{axis}: {printed:?}");
     }
-    let rows = grid["rows"]["values"].as_array().unwrap().len();
-    let mut distinct = printed[..rows].to_vec();
+    let mut distinct = rows.clone();
     distinct.dedup();
-    assert_eq!(distinct.len(), rows, "{printed:?}");
+    assert_eq!(distinct.len(), rows.len(), "{rows:?}");
 
     let dir = tempfile::tempdir().unwrap();
     let result = run_demo(dir.path(), &["--set", "beta.method=scholes-williams"]);

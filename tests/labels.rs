@@ -444,3 +444,66 @@ fn implausible_figures_and_a_window_beyond_the_data_are_noted() {
         assert_eq!(peer["periods_dropped"]["market_missing"], 0, "{peer}");
     }
 }
+
+// The memo as a committee member reads it (found by review): a premium without a stated basis
+// is named among the inputs without one; peers that raise a flag and are still aggregated are
+// named in a caution; a basis written for another source than an override chose is marked; the
+// sensitivity axes of rates are in percent as the cells are; and a window under two years
+// (60 weekly returns: 2025-08-06 to 2026-09-30 is 420 days, 1.15 years of 365.25 days) is
+// noted. The demo (five years of months, every input with a basis) gets none of these.
+#[test]
+fn the_memo_names_what_a_reviewer_would_ask_about() {
+    let plain = tempfile::tempdir().unwrap();
+    run_demo(plain.path(), &[]);
+    let memo = std::fs::read_to_string(plain.path().join("memo.md")).unwrap();
+    for absent in [
+        "Flagged peers in the aggregate",
+        "company-specific premium (premiums.company_specific_justification)",
+        "was set by an override",
+        "spans",
+    ] {
+        assert!(!memo.contains(absent), "{absent}");
+    }
+    // The ERP axis in percent: 5.17% less one point is 4.17%.
+    assert!(memo.contains("\n| 4.17% | "), "{memo}");
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "premiums.company_specific=0.02",
+            "beta.flag_r_squared_floor=0.15",
+            "target.source=subject",
+        ],
+    );
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let flat = memo.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        flat.contains("no source or reason for the company-specific premium (premiums.company_specific_justification)"),
+        "{flat}"
+    );
+    let flagged: Vec<String> = (result["peers"].as_array().unwrap().iter())
+        .filter(|p| !p["flags"].as_array().unwrap().is_empty() && p["excluded_reason"].is_null())
+        .map(|p| format!("{} (low_r_squared)", p["name"].as_str().unwrap()))
+        .collect();
+    assert!(!flagged.is_empty());
+    assert!(
+        flat.contains(&format!(
+            "**Flagged peers in the aggregate.** {}",
+            flagged.join("; ")
+        )),
+        "{flat}"
+    );
+    assert!(
+        flat.contains("(target.source was set by an override, target.source=subject: the case file's basis may describe another source.)"),
+        "{flat}"
+    );
+    let weekly = tempfile::tempdir().unwrap();
+    let result = run_demo(weekly.path(), &["beta.frequency=weekly"]);
+    assert!(
+        result["notes"].to_string().contains(
+            "The return window, 60 weekly returns from 2025-08-06 to 2026-09-30, spans 1.15 years"
+        ),
+        "{}",
+        result["notes"]
+    );
+}

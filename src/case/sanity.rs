@@ -380,6 +380,30 @@ pub fn index_coverage_note(
     })
 }
 
+/// A return window shorter than this many years is noted (common practice estimates betas over
+/// two to five years: less rests on one phase of the market).
+const SHORT_WINDOW_YEARS: f64 = 2.0;
+
+/// A note when the return window spans less than [`SHORT_WINDOW_YEARS`]: a lookback counted in
+/// periods keeps its count when the frequency changes (60 months are 60 weeks once weekly), so
+/// the calendar span is said in years.
+pub fn short_window_note(
+    (start, end): (chrono::NaiveDate, chrono::NaiveDate),
+    periods: usize,
+    period: &str,
+) -> Option<String> {
+    let years = (end - start).num_days() as f64 / 365.25;
+    (years < SHORT_WINDOW_YEARS).then(|| {
+        format!(
+            "The return window, {periods} {period} returns from {start} to {end}, spans {} \
+             years: less than the two to five years betas are usually estimated over (common \
+             practice), so it rests on one phase of the market; a lookback counted in periods \
+             keeps its count when the frequency changes (beta.lookback).",
+            crate::error::rounded(years, 2)
+        )
+    })
+}
+
 /// Where the return window ends against the valuation date: `beta.window_end` before it (a
 /// setting a rolled-forward case easily keeps), or a valuation date that is no period end.
 pub fn window_end_note(

@@ -72,6 +72,16 @@ pub fn table_cell(text: String) -> String {
     text.replace('|', "\\|")
 }
 
+/// A sensitivity axis's value as the chart and the workbook show it: a rate, premium, tax rate
+/// or weight in percent with every digit it has (0.0417 → `4.17%`), any other key's value
+/// (a D/E, a beta) as a plain number.
+pub fn axis_value(value: f64, key: String) -> String {
+    match key_is_rate(&key) {
+        true => exact_percent(value),
+        false => exact(value),
+    }
+}
+
 /// A bridge group's name for people, from its key as `result.json` writes it
 /// (`risk_free_rate` → `Risk-free rate`); any other text as it is.
 pub fn group_title(key: String) -> String {

@@ -101,6 +101,7 @@ impl Render for Memo {
         env.add_filter("exact_pct", format::exact_percent);
         env.add_filter("cell", format::table_cell);
         env.add_filter("group", format::group_title);
+        env.add_filter("axis", format::axis_value);
         env.add_template_owned(self.name.clone(), self.source.clone())
             .map_err(|e| self.template_error(&e))?;
         let template = env

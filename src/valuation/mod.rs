@@ -229,6 +229,11 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         "peer",
         "periods_dropped.market_missing",
     ));
+    notes.extend(crate::case::sanity::short_window_note(
+        (window.start(), window.end()),
+        window.period_ends().len(),
+        &crate::case::label(&settings.beta.frequency),
+    ));
     notes.extend(crate::case::sanity::window_end_note(
         &settings.beta,
         valuation_date,

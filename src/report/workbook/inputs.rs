@@ -203,12 +203,23 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
         "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",
         _ => "",
     };
-    let target_note = [target_note, v.settings.target.justification.as_str()]
-        .iter()
-        .filter(|text| !text.is_empty())
-        .copied()
-        .collect::<Vec<_>>()
-        .join(" ");
+    // A basis the case file wrote for another source than an override chose is marked, as in
+    // the memo.
+    let overridden = (v.case.overrides.iter())
+        .any(|o| o.starts_with("target.source"))
+        .then_some("(target.source was set by an override: the case file's basis may describe another source.)")
+        .filter(|_| !v.settings.target.justification.is_empty())
+        .unwrap_or("");
+    let target_note = [
+        target_note,
+        v.settings.target.justification.as_str(),
+        overridden,
+    ]
+    .iter()
+    .filter(|text| !text.is_empty())
+    .copied()
+    .collect::<Vec<_>>()
+    .join(" ");
     spec(
         "Target debt-to-equity (D/E)",
         "TargetDebtToEquity",
