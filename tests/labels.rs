@@ -497,6 +497,37 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
         flat.contains("(target.source was set by an override, target.source=subject: the case file's basis may describe another source.)"),
         "{flat}"
     );
+    // The subject's target leaves the grid's columns to the risk-free rate (README,
+    // [sensitivity]); the demo's cost of debt is given, so it stays put along that axis.
+    assert!(
+        flat.contains("along the risk-free axis the given cost of debt (4.63%) stays where it is"),
+        "{flat}"
+    );
+    assert!(!flat.contains("along the D/E axis"), "{flat}");
+    // Scholes–Williams's standard error treats ρ as known (README, Methods); a credit-spread
+    // debt beta reads each peer's cost of debt, the subject's where a peer gives none (README,
+    // [[peer]] `cost_of_debt`); a coverage rating is the subject's as it stands.
+    let other = tempfile::tempdir().unwrap();
+    run_demo(
+        other.path(),
+        &[
+            "beta.method=scholes-williams",
+            "leverage.debt_beta_source=credit-spread",
+            "leverage.formula=harris-pringle",
+            "debt.source=coverage",
+        ],
+    );
+    let memo = std::fs::read_to_string(other.path().join("memo.md")).unwrap();
+    let flat = memo.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        flat.contains("treats the index's autocorrelation ρ as known"),
+        "{flat}"
+    );
+    assert_eq!(memo.matches(" (subject's) |").count(), 8, "{memo}");
+    assert!(
+        flat.contains("The coverage is the subject's as it stands"),
+        "{flat}"
+    );
     let weekly = tempfile::tempdir().unwrap();
     let result = run_demo(weekly.path(), &["beta.frequency=weekly"]);
     assert!(
