@@ -180,7 +180,22 @@ fn libreoffice_recomputes_every_workbook_layout() {
         run(case, overrides, &out);
         let map = dir.path().join(format!("{label}.json"));
         write_map(case, overrides, &map);
-        runs.push(serde_json::json!({"label": label, "dir": out, "map": map}));
+        let mut entry = serde_json::json!({"label": label, "dir": out, "map": map});
+        // Under a peers' median target, a peer's Aggregated flag set to 0 in the workbook must
+        // give the WACC of the case with that peer excluded: the flag moves the target's
+        // median as it moves the beta's statistic (found by review: the median read a fixed
+        // list of peers).
+        if label == "dimson-raw-returns" {
+            let excluded = dir.path().join(format!("{label}-excluded"));
+            let mut with_exclusion = overrides.to_vec();
+            with_exclusion.push("peer.0.exclude=left out in the what-if");
+            run(case, &with_exclusion, &excluded);
+            entry["whatif"] = serde_json::json!({
+                "cells": {"Unlevering!B2": 0},
+                "result": excluded.join("result.json"),
+            });
+        }
+        runs.push(entry);
     }
     let plan = dir.path().join("plan.json");
     std::fs::write(

@@ -33,7 +33,8 @@ by 1e-4 or more).
 Usage: check_workbook.py PLAN_JSON, where the plan is
   {"runs": [{"label": "demo", "dir": RUN_DIR, "map": MAP_JSON,
              "whatif": {"EquityRiskPremium": 0.065, "TargetDebtToEquity": 0.6,
-                        "result": WHATIF_RESULT_JSON}}, ...]}
+                        "cells": {"Unlevering!B2": 0}, "result": WHATIF_RESULT_JSON}}, ...]}
+(each of the what-if's named inputs and cells optional)
 RUN_DIR holds workbook.xlsx and result.json of one `hurdle run`; MAP_JSON is the figure map
 (hurdle::report::workbook::figure_map) of that run; WHATIF_RESULT_JSON is result.json of the same case
 run with --set market.equity_risk_premium=... --set target.debt_to_equity=... (optional; the
@@ -244,11 +245,17 @@ def check_run(run, work, outdir_of):
         wrong_formula = os.path.join(work, f"{label}-formula.xlsx")
         rewrite_cell(original, wrong_formula, wacc_sheet, wacc_cell,
                      lambda xml: re.sub(r"<f>([^<]*)</f>", r"<f>1.01*(\1)</f>", xml))
-        # openpyxl sets the two named input cells (it keeps the formulas, drops the caches).
+        # openpyxl sets the named input cells the what-if gives, and any cell it gives by
+        # address ("Unlevering!B2": a peer's Aggregated flag); it keeps the formulas and drops
+        # the caches.
         edited = openpyxl.load_workbook(original)
         for name in ["EquityRiskPremium", "TargetDebtToEquity"]:
-            sheet, cell = named_cell(edited, name)
-            edited[sheet][cell].value = whatif[name]
+            if name in whatif:
+                sheet, cell = named_cell(edited, name)
+                edited[sheet][cell].value = whatif[name]
+        for address, value in whatif.get("cells", {}).items():
+            sheet, cell = address.split("!")
+            edited[sheet][cell].value = value
         whatif_file = os.path.join(work, f"{label}-whatif.xlsx")
         edited.save(whatif_file)
         files += [wrong_cache, wrong_formula, whatif_file]
@@ -311,8 +318,8 @@ def check_run(run, work, outdir_of):
         got = recomputed(whatif_file)[wacc_sheet][wacc_cell].value
         report(agree(got, expected_wacc), f"{label}: what-if WACC: workbook {got!r}, hurdle run --set {expected_wacc!r}")
         report(not agree(expected_wacc, result["wacc"]), f"{label}: the what-if did not move the WACC")
-        print(f"  what-if ERP={whatif['EquityRiskPremium']}, D/E={whatif['TargetDebtToEquity']}: "
-              f"workbook WACC {got!r}, hurdle run --set {expected_wacc!r}")
+        edits = {k: v for k, v in whatif.items() if k != "result"}
+        print(f"  what-if {edits}: workbook WACC {got!r}, hurdle run --set {expected_wacc!r}")
 
     return files, check
 

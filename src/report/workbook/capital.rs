@@ -66,11 +66,14 @@ const CASH_SHARE: u16 = 15;
 const CORRECTED: u16 = 16;
 const AGGREGATED: u16 = 17;
 const REASON: u16 = 18;
+/// The peer's D/E when it is aggregated, else "left out": what the peers' median target reads,
+/// so it follows the Aggregated flag as the beta's statistic does.
+const DE_AGGREGATED: u16 = 19;
 
 /// What the aggregated-figure column shows for a peer left out.
 const LEFT_OUT: &str = "left out";
 
-const HEADERS: [&str; 19] = [
+const HEADERS: [&str; 20] = [
     "Peer",
     "Aggregated (1 = yes)",
     "Raw beta",
@@ -90,6 +93,7 @@ const HEADERS: [&str; 19] = [
     "Beta of the operations",
     "Aggregated figure",
     "Why left out",
+    "D/E if aggregated (the peers' median target reads these)",
 ];
 
 fn unlevering(
@@ -111,6 +115,16 @@ fn unlevering(
     for i in 0..v.peers.len() {
         peer_row(book, &mut sheet, betas, i, 1 + i as u32)?;
     }
+    // The Aggregated flags are inputs a user may change: 1 or 0 only (a 2 or "yes" would read
+    // differently in a weighted sum and a test for 1).
+    let flags = rust_xlsxwriter::DataValidation::new()
+        .allow_whole_number(rust_xlsxwriter::DataValidationRule::Between(0, 1))
+        .set_error_title("Aggregated: 1 or 0")
+        .and_then(|d| d.set_error_message("1 aggregates the peer, 0 leaves it out."))
+        .map_err(xlsx_error)?;
+    (sheet.ws)
+        .add_data_validation(first, INCLUDED, last, INCLUDED, &flags)
+        .map_err(xlsx_error)?;
     let formula = crate::report::format::label(&v.cost.beta.formula);
     let note = format!(
         "Unlevered with {} ({}): {}. Debt in D/E: {} debt.",
@@ -129,6 +143,10 @@ fn unlevering(
         sheet.ws.set_column_width(col, 12).map_err(xlsx_error)?;
     }
     sheet.ws.set_column_width(REASON, 50).map_err(xlsx_error)?;
+    sheet
+        .ws
+        .set_column_width(DE_AGGREGATED, 16)
+        .map_err(xlsx_error)?;
     let range = |col| sheet.range(first, last, col);
     let chosen = if v.cost.beta.uses_operations_beta {
         CORRECTED
@@ -144,16 +162,17 @@ fn unlevering(
     Ok((sheet, ranges))
 }
 
-/// The peers' median D/E over the aggregated peers' D/E cells of this sheet, for a target taken
-/// from the peers (`target.source = "peer-median"`): a change to a peer's equity, debt or cash
-/// here moves the target. The peers are those the run aggregated (a listed set of cells, so
-/// changing a peer's "Aggregated" flag does not change which ones it reads).
+/// The peers' median D/E over this sheet's "D/E if aggregated" column, for a target taken from
+/// the peers (`target.source = "peer-median"`): a change to a peer's equity, debt or cash, or
+/// to its Aggregated flag, moves the target, as it moves the beta's statistic (MEDIAN skips the
+/// "left out" text).
 pub(crate) fn peer_median_debt_to_equity(v: &crate::valuation::Valuation) -> String {
-    let cells: Vec<String> = (v.peers.iter().enumerate())
-        .filter(|(_, p)| p.excluded_reason.is_none())
-        .map(|(i, _)| format!("Unlevering!{}", absolute(1 + i as u32, DE)))
-        .collect();
-    format!("=MEDIAN({})", cells.join(","))
+    let last = v.peers.len() as u32;
+    format!(
+        "=MEDIAN(Unlevering!{}:{})",
+        absolute(1, DE_AGGREGATED),
+        absolute(last, DE_AGGREGATED)
+    )
 }
 
 /// One peer's row of the sheet: where it is and the peer's `result.json` fields.
@@ -198,7 +217,7 @@ fn peer_row(
     let r = Row { i, row };
     book.text(sheet, (row, PEER), &peer.name, &text)?;
     let included = peer.excluded_reason.is_none();
-    let flag = book.styles.flag.clone();
+    let flag = book.styles.flag_input.clone();
     book.number(
         sheet,
         (row, INCLUDED),
@@ -210,7 +229,14 @@ fn peer_row(
     }
     adjustment(book, sheet, betas, &r)?;
     structure(book, sheet, &r)?;
-    unlever(book, sheet, &r, included)
+    unlever(book, sheet, &r, included)?;
+    let de = format!("=IF({}=1,{},\"{LEFT_OUT}\")", r.at(INCLUDED), r.at(DE));
+    let expect = match included {
+        true => r.field("debt_to_equity"),
+        false => Expect::Text(LEFT_OUT),
+    };
+    let ratio = book.styles.ratio.clone();
+    book.formula(sheet, (r.row, DE_AGGREGATED), &de, expect, &ratio)
 }
 
 /// The raw beta and its SE from `Betas`, the case's adjustment, and the beta used.
@@ -392,7 +418,8 @@ fn vasicek_prior(
         "Vasicek prior mean (cross-section)",
         &label,
     )?;
-    let mean = format!("=SUMPRODUCT({included},{raw})/SUM({included})");
+    // `--(flag=1)`: a flag of 2 or "yes" counts as left out, as in every other formula.
+    let mean = format!("=SUMPRODUCT(--({included}=1),{raw})/COUNTIF({included},1)");
     book.formula(
         sheet,
         (row, 2),
@@ -407,7 +434,7 @@ fn vasicek_prior(
         &label,
     )?;
     let variance = format!(
-        "=SUMPRODUCT({included},({raw}-{m})^2)/(SUM({included})-1)",
+        "=SUMPRODUCT(--({included}=1),({raw}-{m})^2)/(COUNTIF({included},1)-1)",
         m = absolute(row, 2)
     );
     book.formula(

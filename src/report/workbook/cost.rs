@@ -42,7 +42,7 @@ const AGGREGATION: &[Row] = &[
      "Of the aggregated peers' {which}unlevered betas.", Some("AggregateMedian")),
     ("Mean", "=AVERAGE({agg})", "/beta/unlevered_statistics/mean", Fmt::Beta, "",
      Some("AggregateMean")),
-    ("Market-cap-weighted mean", "=SUMPRODUCT({inc},{chosen},{eq})/SUMPRODUCT({inc},{eq})",
+    ("Market-cap-weighted mean", "=SUMPRODUCT(--({inc}=1),{chosen},{eq})/SUMPRODUCT(--({inc}=1),{eq})",
      "/beta/unlevered_statistics/market_cap_weighted_mean", Fmt::Beta,
      "Weights: each peer's market value of equity.", Some("AggregateMarketCapWeighted")),
     ("Trimmed mean", "=TRIMMEAN({agg},2*TrimFraction)", "/beta/unlevered_statistics/trimmed_mean",

@@ -196,8 +196,9 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
     let target_note = match v.cost.target.given {
         "peer_median" => {
             "The median of the aggregated peers' D/E on the Unlevering sheet (target.source = \
-             \"peer-median\"): a change to a peer's equity, debt or cash there moves it. It reads \
-             the peers the run aggregated; changing a peer's Aggregated flag does not change which."
+             \"peer-median\"; its column \"D/E if aggregated\"): a change to a peer's equity, \
+             debt or cash there moves it, and so does a change to a peer's Aggregated flag, as it \
+             moves the beta's statistic."
         }
         "subject_current" => "The subject's own current D/E (target.source = \"subject\").",
         "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",

@@ -30,6 +30,8 @@ pub struct Styles {
     pub statistic: Format,
     pub p_value: Format,
     pub flag: Format,
+    /// An Aggregated flag: an input (1 or 0), styled as one.
+    pub flag_input: Format,
 }
 
 const INPUT_FILL: u32 = 0xFFF4C2;
@@ -75,6 +77,11 @@ impl Styles {
             count: Format::new().set_num_format("0"),
             statistic: Format::new().set_num_format("0.00"),
             p_value: Format::new().set_num_format("0.0000"),
+            flag_input: input(
+                Format::new()
+                    .set_num_format("0")
+                    .set_align(FormatAlign::Center),
+            ),
             flag: Format::new()
                 .set_num_format("0")
                 .set_align(FormatAlign::Center),
