@@ -329,3 +329,79 @@ fn the_workbook_carries_the_runs_notes_and_flags() {
         );
     }
 }
+
+// The workbook prints: every sheet landscape and one page wide, the table sheets with their
+// header row on every page (found by review: the demo printed as 55 pages, column B of the
+// Cover on pages of its own). openpyxl reads the page setup back (its documented attributes:
+// `page_setup.orientation`, `page_setup.fitToWidth`, `sheet_properties.pageSetUpPr.fitToPage`,
+// `print_title_rows`).
+#[test]
+fn every_sheet_prints_one_page_wide() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    run(DEMO_CASE, &[], &out);
+    let script = "import sys, json, openpyxl\n\
+                  book = openpyxl.load_workbook(sys.argv[1])\n\
+                  print(json.dumps({ws.title: [ws.page_setup.orientation, \
+                  ws.page_setup.fitToWidth, ws.sheet_properties.pageSetUpPr.fitToPage, \
+                  ws.print_title_rows] for ws in book.worksheets}))";
+    let output = Command::new("python3")
+        .args(["-c", script])
+        .arg(out.join("workbook.xlsx"))
+        .output()
+        .expect("python3 runs");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let setup: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let sheets = setup.as_object().unwrap();
+    assert_eq!(sheets.len(), 7, "{setup}");
+    for (name, s) in sheets {
+        assert_eq!(s[0], "landscape", "{name}: {s}");
+        // An absent fitToWidth is 1 page, the attribute's default in ECMA-376 (CT_PageSetup;
+        // from memory), which openpyxl reads as None; fitToPage is what turns fitting on.
+        assert!(s[1].is_null() || s[1] == 1, "{name}: {s}");
+        assert_eq!(s[2], true, "{name}: {s}");
+        let titled = ["Unlevering", "Betas", "Returns"].contains(&name.as_str());
+        assert_eq!(s[3].as_str() == Some("$1:$1"), titled, "{name}: {s}");
+    }
+}
+
+// The Inputs sheet's key column names a key that sets the row, or says none does (found by
+// review: under a rating's spread the pre-tax cost of debt named debt.cost_pre_tax, which the
+// run then notes as not used, README "[debt]"). openpyxl reads the column back.
+#[test]
+fn the_inputs_sheet_names_only_keys_that_set_a_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    run(DEMO_CASE, &["debt.source=rating"], &out);
+    let script = "import sys, json, openpyxl\n\
+                  ws = openpyxl.load_workbook(sys.argv[1])['Inputs']\n\
+                  print(json.dumps({r[0].value: r[4].value for r in ws.iter_rows(min_row=3) \
+                  if r[0].value}))";
+    let output = Command::new("python3")
+        .args(["-c", script])
+        .arg(out.join("workbook.xlsx"))
+        .output()
+        .expect("python3 runs");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let keys: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(
+        keys["Pre-tax cost of debt"], "(a formula; no case key sets it)",
+        "{keys}"
+    );
+    assert_eq!(
+        keys["Credit spread over the risk-free rate"], "debt.rating (a row of debt.rating_table)",
+        "{keys}"
+    );
+    assert_eq!(
+        keys["Equity risk premium"], "market.equity_risk_premium",
+        "{keys}"
+    );
+}

@@ -318,6 +318,12 @@ def check_run(run, work, outdir_of):
         got = recomputed(whatif_file)[wacc_sheet][wacc_cell].value
         report(agree(got, expected_wacc), f"{label}: what-if WACC: workbook {got!r}, hurdle run --set {expected_wacc!r}")
         report(not agree(expected_wacc, result["wacc"]), f"{label}: the what-if did not move the WACC")
+        # The Cover's headline says the edited WACC is no longer the run's (and, before the
+        # edit, that it is: a mapped text cell, checked with the others).
+        states = {row[0].value: row[3].value
+                  for row in recomputed(whatif_file)["Cover"].iter_rows(max_col=4)}
+        report(states.get("WACC") == "EDITED: not the run's figure",
+               f"{label}: the Cover's WACC state after the what-if is {states.get('WACC')!r}")
         edits = {k: v for k, v in whatif.items() if k != "result"}
         print(f"  what-if {edits}: workbook WACC {got!r}, hurdle run --set {expected_wacc!r}")
 

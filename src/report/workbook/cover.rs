@@ -67,11 +67,15 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
         s.text.clone(),
         s.mono.clone(),
     );
+    // Long sentences wrap inside column B, on screen and on paper.
+    let wrapped = text.clone().set_text_wrap();
     book.text(&mut sheet, (0, 0), &v.case.title, &title)?;
     let intro = format!(
         "Cost-of-capital workbook written by {} {}. The chain from the returns to the WACC is made \
          of live formulas: change an input on the Inputs sheet and every figure that depends on \
-         it recomputes. Cached values equal result.json of the same run.",
+         it recomputes. Cached values equal result.json of the same run until an input is \
+         edited; the headline figures' State column then says which figures are no longer the \
+         run's, and the notes, the Analyses sheet and the file hashes below stay as of the run.",
         v.tool.name, v.tool.version
     );
     book.text(&mut sheet, (1, 0), &intro, &text)?;
@@ -118,7 +122,7 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
     row += 2;
     for (name, what) in GUIDE {
         book.text(&mut sheet, (row, 0), name, &label)?;
-        book.text(&mut sheet, (row, 1), what, &text)?;
+        book.text(&mut sheet, (row, 1), what, &wrapped)?;
         row += 1;
     }
     row = legend(book, &mut sheet, row + 1)?;
@@ -126,7 +130,7 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
     row += 2;
     for caution in CAUTIONS {
         book.text(&mut sheet, (row, 0), "•", &text)?;
-        book.text(&mut sheet, (row, 1), caution, &text)?;
+        book.text(&mut sheet, (row, 1), caution, &wrapped)?;
         row += 1;
     }
     sheet.ws.set_column_width(0, 28).map_err(xlsx_error)?;
@@ -161,7 +165,7 @@ fn notes(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
             false => ("•", &text),
         };
         book.text(sheet, (row, 0), mark, style)?;
-        book.text(sheet, (row, 1), note, &text)?;
+        book.text(sheet, (row, 1), note, &text.clone().set_text_wrap())?;
         row += 1;
     }
     Ok(row)
@@ -172,7 +176,26 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
     let (subtitle, label) = (book.styles.subtitle.clone(), book.styles.label.clone());
     let (pct, beta) = (book.styles.percent.clone(), book.styles.beta.clone());
     book.text(sheet, (row, 0), "Headline figures", &subtitle)?;
-    let rows = [
+    let header = book.styles.header.clone();
+    let currency = &book.v.case.currency;
+    for (col, text) in [
+        (1, format!("Live ({currency}; formulas)")),
+        (2, "As run (values)".to_string()),
+        (3, "State".to_string()),
+    ] {
+        book.text(sheet, (row, col), &text, &header)?;
+    }
+    let converted = book
+        .v
+        .cost
+        .currency_conversion
+        .as_ref()
+        .map(|c| c.to.clone());
+    let wacc_out = converted.as_ref().map(|to| format!("WACC ({to})"));
+    let equity_out = converted
+        .as_ref()
+        .map(|to| format!("Cost of equity ({to})"));
+    let mut rows = vec![
         ("WACC", "=Wacc", "/wacc", &pct),
         ("Cost of equity", "=CostOfEquity", "/cost_of_equity", &pct),
         (
@@ -189,14 +212,49 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
             &beta,
         ),
     ];
+    if let (Some(wacc), Some(equity)) = (&wacc_out, &equity_out) {
+        rows.insert(
+            1,
+            (
+                wacc.as_str(),
+                "=WaccOutputCurrency",
+                "/currency_conversion/wacc",
+                &pct,
+            ),
+        );
+        rows.insert(
+            3,
+            (
+                equity.as_str(),
+                "=CostOfEquityOutputCurrency",
+                "/currency_conversion/cost_of_equity",
+                &pct,
+            ),
+        );
+    }
     let mut r = row + 1;
     for (name, formula, pointer, format) in rows {
         book.text(sheet, (r, 0), name, &label)?;
         book.formula(sheet, (r, 1), formula, Expect::Json(pointer.into()), format)?;
+        // The run's own figure beside the live one, and whether an edit has moved it: an
+        // edited workbook no longer shows the run's figures, and says so here.
+        let as_run = book.figure(pointer)?;
+        let fixed = book.styles.computed(format);
+        book.number(sheet, (r, 2), as_run, &fixed)?;
+        let (live, kept) = (sheet.abs(r, 1), sheet.abs(r, 2));
+        let state =
+            format!("=IF(ABS({live}-{kept})>1E-12*MAX(1,ABS({kept})),\"{EDITED}\",\"{AS_RUN}\")");
+        let text = book.styles.text.clone();
+        book.formula(sheet, (r, 3), &state, Expect::Text(AS_RUN), &text)?;
         r += 1;
     }
     Ok(r)
 }
+
+/// The headline's state of a figure the workbook still computes as the run did.
+const AS_RUN: &str = "as run";
+/// The headline's state of a figure an edit has moved.
+const EDITED: &str = "EDITED: not the run's figure";
 
 /// Every input file with its sheet, column, rows and SHA-256.
 fn files(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {

@@ -89,7 +89,10 @@ pub(crate) fn sheet(book: &mut Book, names: &mut Vec<(String, String)>) -> Resul
     book.text(&mut sheet, (0, 0), "Inputs", &title)?;
     let intro = "Yellow cells are the case's inputs, each a named cell; change one and every \
                  formula that depends on it recomputes. Other cells here are formulas over the \
-                 inputs.";
+                 inputs, or figures the case fixes that are not meant to be changed here (a \
+                 debt beta of 0 under riskless debt). Each peer's inputs (equity value, debt, \
+                 cash, tax rate, and its own cost of debt or debt beta when it gives one) and its \
+                 Aggregated flag are the yellow cells of the Unlevering sheet.";
     book.text(&mut sheet, (1, 0), intro, &text)?;
     let heads = ["Input", "Value", "In bp", "Name", "Case key", "Note"];
     for (col, head) in heads.iter().enumerate() {
@@ -261,7 +264,10 @@ fn debt(v: &Valuation) -> Vec<Spec> {
                 spec(
                     "Credit spread over the risk-free rate",
                     "CreditSpread",
-                    "debt.source",
+                    match record.source {
+                        DebtSource::Rating => "debt.rating (a row of debt.rating_table)",
+                        _ => "debt.ebit, debt.interest_expense (a row of debt.coverage_table)",
+                    },
                     "/cost_of_debt/row/spread",
                 )
                 .bp()
@@ -421,7 +427,13 @@ fn write_row(book: &mut Book, sheet: &mut Sheet, row: u32, spec: &Spec) -> Resul
     );
     book.text(sheet, (row, 0), spec.label, &label)?;
     book.text(sheet, (row, 3), spec.name, &mono)?;
-    book.text(sheet, (row, 4), spec.key, &mono)?;
+    // A formula's row names no case key: none sets it (under a table's spread, say,
+    // debt.cost_pre_tax is not read), so the key column would send a reader the wrong way.
+    let key = match spec.kind {
+        Kind::Formula(_) => "(a formula; no case key sets it)",
+        _ => spec.key,
+    };
+    book.text(sheet, (row, 4), key, &mono)?;
     if !spec.note.trim().is_empty() {
         book.text(sheet, (row, 5), spec.note.trim(), &text)?;
     }

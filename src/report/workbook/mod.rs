@@ -347,7 +347,10 @@ fn build(v: &Valuation) -> Result<(Vec<u8>, Vec<MappedCell>)> {
     }
     let mut cover = cover;
     cover.ws.set_active(true);
-    for sheet in [
+    // Printed: landscape, one page wide, and the header row of each table sheet on every page.
+    // (Unlevering, Betas and Returns have their header on the first row.)
+    let tables = [false, false, false, true, true, true, false];
+    for (mut sheet, table) in [
         cover,
         inputs,
         capital.cost,
@@ -355,7 +358,14 @@ fn build(v: &Valuation) -> Result<(Vec<u8>, Vec<MappedCell>)> {
         betas.sheet,
         returns.sheet,
         capital.analyses,
-    ] {
+    ]
+    .into_iter()
+    .zip(tables)
+    {
+        sheet.ws.set_landscape().set_print_fit_to_pages(1, 0);
+        if table {
+            sheet.ws.set_repeat_rows(0, 0).map_err(xlsx_error)?;
+        }
         workbook.push_worksheet(sheet.ws);
     }
     let bytes = workbook.save_to_buffer().map_err(xlsx_error)?;
