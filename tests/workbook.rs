@@ -41,6 +41,22 @@ fn run(case: &str, overrides: &[&str], out: &Path) {
     );
 }
 
+/// Runs the Python `script` (openpyxl, an independent reader) on `workbook` and parses the JSON
+/// it prints.
+fn openpyxl_json(script: &str, workbook: &Path) -> serde_json::Value {
+    let output = Command::new("python3")
+        .args(["-c", script])
+        .arg(workbook)
+        .output()
+        .expect("python3 with openpyxl (python3 -m pip install openpyxl)");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    serde_json::from_slice(&output.stdout).unwrap()
+}
+
 /// Option sets that between them take every branch of the workbook's layout: each estimator,
 /// kind of standard error, adjustment, leverage formula, debt-beta source, cost-of-debt source,
 /// aggregation, country-premium method and target source, cash correction, net debt, preferred
@@ -280,17 +296,7 @@ fn the_workbook_carries_the_runs_notes_and_flags() {
                   col = head.index('Flags')\n\
                   flags = {r[0].value: r[col].value for r in betas.iter_rows(min_row=2) if r[col].value}\n\
                   print(json.dumps({'notes': notes, 'flags': flags}))";
-    let output = Command::new("python3")
-        .args(["-c", script])
-        .arg(out.join("workbook.xlsx"))
-        .output()
-        .expect("python3 runs");
-    assert!(
-        output.status.success(),
-        "{}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    let read: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let read = openpyxl_json(script, &out.join("workbook.xlsx"));
     let result: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
     let notes: Vec<&str> = (result["notes"].as_array().unwrap().iter())
@@ -345,17 +351,7 @@ fn every_sheet_prints_one_page_wide() {
                   print(json.dumps({ws.title: [ws.page_setup.orientation, \
                   ws.page_setup.fitToWidth, ws.sheet_properties.pageSetUpPr.fitToPage, \
                   ws.print_title_rows] for ws in book.worksheets}))";
-    let output = Command::new("python3")
-        .args(["-c", script])
-        .arg(out.join("workbook.xlsx"))
-        .output()
-        .expect("python3 runs");
-    assert!(
-        output.status.success(),
-        "{}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    let setup: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let setup = openpyxl_json(script, &out.join("workbook.xlsx"));
     let sheets = setup.as_object().unwrap();
     assert_eq!(sheets.len(), 7, "{setup}");
     for (name, s) in sheets {
@@ -381,17 +377,7 @@ fn the_inputs_sheet_names_only_keys_that_set_a_row() {
                   ws = openpyxl.load_workbook(sys.argv[1])['Inputs']\n\
                   print(json.dumps({r[0].value: r[4].value for r in ws.iter_rows(min_row=3) \
                   if r[0].value}))";
-    let output = Command::new("python3")
-        .args(["-c", script])
-        .arg(out.join("workbook.xlsx"))
-        .output()
-        .expect("python3 runs");
-    assert!(
-        output.status.success(),
-        "{}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    let keys: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let keys = openpyxl_json(script, &out.join("workbook.xlsx"));
     assert_eq!(
         keys["Pre-tax cost of debt"], "(a formula; no case key sets it)",
         "{keys}"
