@@ -497,6 +497,12 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
         flat.contains("(target.source was set by an override, target.source=subject: the case file's basis may describe another source.)"),
         "{flat}"
     );
+    // The header names the command line's overrides (the receipt records them, README
+    // "result.json"; the memo said so only in section 12).
+    assert!(
+        memo.contains("| Overrides | `premiums.company_specific=0.02`, `beta.flag_r_squared_floor=0.15`, `target.source=subject` (set on the command line, not in the case file) |"),
+        "{memo}"
+    );
     // The subject's target leaves the grid's columns to the risk-free rate (README,
     // [sensitivity]); the demo's cost of debt is given, so it stays put along that axis.
     assert!(
@@ -528,6 +534,26 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
         flat.contains("The coverage is the subject's as it stands"),
         "{flat}"
     );
+    // Under [conversion] the header gives the converted WACC beside the case's, as result.json
+    // records it (its currency_conversion.wacc and wacc_real, to two decimals as the memo's
+    // rates are printed).
+    let converted = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        converted.path(),
+        &[
+            "conversion.currency=USD",
+            "conversion.inflation_case=0.02",
+            "conversion.inflation_output=0.03",
+        ],
+    );
+    let memo = std::fs::read_to_string(converted.path().join("memo.md")).unwrap();
+    let c = &result["currency_conversion"];
+    let row = format!(
+        "| WACC in USD | {:.2}% nominal, {:.2}% real",
+        c["wacc"].as_f64().unwrap() * 100.0,
+        c["wacc_real"].as_f64().unwrap() * 100.0
+    );
+    assert!(memo.contains(&row), "{row}\n{memo}");
     let weekly = tempfile::tempdir().unwrap();
     let result = run_demo(weekly.path(), &["beta.frequency=weekly"]);
     assert!(

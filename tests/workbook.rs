@@ -282,7 +282,12 @@ fn long_peer_names_widen_the_name_column() {
 fn the_workbook_carries_the_runs_notes_and_flags() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("out");
-    run(DEMO_CASE, &["premiums.size=0.5"], &out);
+    // A target D/E of 1.5, above every peer's, adds the run's leverage caution.
+    run(
+        DEMO_CASE,
+        &["premiums.size=0.5", "target.debt_to_equity=1.5"],
+        &out,
+    );
     let script = "import sys, json, openpyxl\n\
                   book = openpyxl.load_workbook(sys.argv[1])\n\
                   cover = [[c.value for c in r] for r in book['Cover'].iter_rows(max_col=2)]\n\
@@ -312,6 +317,18 @@ fn the_workbook_carries_the_runs_notes_and_flags() {
     let listed: Vec<(&str, &str)> = (read["notes"].as_array().unwrap().iter())
         .map(|pair| (pair[0].as_str().unwrap(), pair[1].as_str().unwrap()))
         .collect();
+    // The run's caution first, in the memo's words, with result.json's range of the peers'
+    // D/E (three decimals, as the memo prints them).
+    let range = &result["cautions"]["leverage_beyond_peers"];
+    let caution = format!(
+        "Leverage beyond the peers': the target D/E of 1.500 is above every aggregated peer's \
+         ({:.3} to {:.3})",
+        range[0].as_f64().unwrap(),
+        range[1].as_f64().unwrap()
+    );
+    assert_eq!(listed[0].0, "Caution", "{listed:?}");
+    assert!(listed[0].1.starts_with(&caution), "{listed:?}");
+    let listed = listed[1..].to_vec();
     assert_eq!(listed.iter().map(|(_, n)| *n).collect::<Vec<_>>(), expected);
     for (mark, note) in listed {
         assert_eq!(

@@ -153,22 +153,66 @@ fn notes(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
     );
     book.text(sheet, (row, 0), "Notes on this run", &subtitle)?;
     let mut row = row + 1;
-    if v.notes.is_empty() {
+    let cautions = case_cautions(v);
+    if v.notes.is_empty() && cautions.is_empty() {
         book.text(sheet, (row, 1), "None.", &text)?;
         return Ok(row + 1);
     }
     let checks = v.notes.iter().filter(|n| n.starts_with("Check: "));
     let others = v.notes.iter().filter(|n| !n.starts_with("Check: "));
-    for note in checks.chain(others) {
-        let (mark, style) = match note.starts_with("Check: ") {
-            true => ("Check", &flag),
-            false => ("•", &text),
+    let marked = (cautions.iter().map(|c| ("Caution", c)))
+        .chain(checks.map(|n| ("Check", n)))
+        .chain(others.map(|n| ("•", n)));
+    for (mark, note) in marked {
+        let style = match mark {
+            "•" => &text,
+            _ => &flag,
         };
         book.text(sheet, (row, 0), mark, style)?;
         book.text(sheet, (row, 1), note, &text.clone().set_text_wrap())?;
         row += 1;
     }
     Ok(row)
+}
+
+/// The run's own cautions (`result.json` `cautions`), in the memo's words, shortened: what the
+/// memo's cautions section says of this case beyond the general cautions.
+fn case_cautions(v: &crate::valuation::Valuation) -> Vec<String> {
+    let c = &v.cautions;
+    let names = |list: &[String]| list.join(", ");
+    let mut out = Vec::new();
+    if let Some([low, high]) = c.leverage_beyond_peers {
+        out.push(format!(
+            "Leverage beyond the peers': the target D/E of {} is above every aggregated peer's \
+             ({} to {}); the relevered beta extrapolates the formula beyond the leverage the \
+             betas were measured at.",
+            crate::error::rounded(v.cost.target.debt_to_equity, 3),
+            crate::error::rounded(low, 3),
+            crate::error::rounded(high, 3)
+        ));
+    }
+    if !c.betas_near_zero.is_empty() {
+        out.push(format!(
+            "Betas near or below zero: {}: the raw beta's 95% interval reaches zero or lies \
+             below it, yet it enters the aggregate{}.",
+            names(&c.betas_near_zero),
+            match c.turned_positive_by_adjustment.is_empty() {
+                true => String::new(),
+                false => format!(
+                    ", and the adjustment turns the negative raw beta of {} positive",
+                    names(&c.turned_positive_by_adjustment)
+                ),
+            }
+        ));
+    }
+    if !c.every_peer_flagged.is_empty() {
+        out.push(format!(
+            "Every aggregated peer is flagged ({}): the aggregate rests only on betas the \
+             diagnostics question.",
+            names(&c.every_peer_flagged)
+        ));
+    }
+    out
 }
 
 /// The headline figures, as formulas over the named results.
