@@ -361,3 +361,48 @@ fn reordering_the_peers_leaves_the_intervals_unchanged() {
         assert_eq!(other["uncertainty"][key], base["uncertainty"][key], "{key}");
     }
 }
+
+// What an exclusion is worth (found by review: the memo never showed it): with two peers
+// excluded, putting one back gives the WACC of the case that excludes only the other, and
+// putting both back the WACC of the case that excludes neither, bit for bit (the same chain
+// over the same estimates).
+#[test]
+fn excluded_peers_put_back_give_the_runs_without_their_exclusion() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_demo_case(&dir.path().join("case"));
+    let case = dir.path().join("case/case.toml");
+    let (dunmere, fenhallow) = ("peer.2.exclude=left out", "peer.4.exclude=left out");
+    let both = run(
+        &case,
+        &dir.path().join("both"),
+        &["--no-figures", "--set", dunmere, "--set", fenhallow],
+    );
+    let rows = both["uncertainty"]["put_back"].as_array().unwrap();
+    let names: Vec<&str> = rows.iter().map(|r| r["peer"].as_str().unwrap()).collect();
+    assert_eq!(
+        names,
+        [
+            "Dunmere Hydraulics",
+            "Fenhallow Seals",
+            "all 2 excluded peers"
+        ]
+    );
+    let only = |set: &str, name: &str| {
+        let result = run(
+            &case,
+            &dir.path().join(name),
+            &["--no-figures", "--set", set],
+        );
+        number(&result, "wacc")
+    };
+    assert_eq!(
+        rows[0]["wacc"].as_f64().unwrap(),
+        only(fenhallow, "fenhallow")
+    );
+    assert_eq!(rows[1]["wacc"].as_f64().unwrap(), only(dunmere, "dunmere"));
+    let neither = run(&case, &dir.path().join("neither"), &["--no-figures"]);
+    assert_eq!(rows[2]["wacc"].as_f64().unwrap(), number(&neither, "wacc"));
+    assert!(neither["uncertainty"].get("put_back").is_none());
+    let memo = std::fs::read_to_string(dir.path().join("both/memo.md")).unwrap();
+    assert!(memo.contains("**Excluded peers put back.**"), "{memo}");
+}

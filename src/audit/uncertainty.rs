@@ -22,7 +22,7 @@ use nalgebra::{DMatrix, SymmetricEigen};
 
 use crate::capital::chain::{self, PeerCapital};
 use crate::case::{specs, BetaErrors, Case};
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::stats::quantile_sorted;
 use crate::stats::random::Rng;
 use crate::valuation::analyses::{LeaveOneOut, PeerSetInterval};
@@ -85,6 +85,7 @@ pub fn simulate(
         beta_errors: u.beta_errors,
         peer_set: peer_set?,
         leave_one_out: leave_one_out(case, &base, &peers, point)?,
+        put_back: put_back(case, &base, &peers, point)?,
         beta_error_correlation: correlation,
         influence_threshold: u.influence_threshold,
         specifications,
@@ -340,6 +341,50 @@ fn peer_set_interval(
         p75,
         p95,
     })
+}
+
+/// The WACC with each excluded peer put back, and with all of them when there are two or more,
+/// at the point estimates: the reviewer's question of what an exclusion is worth. A peer the
+/// valuation refuses once put back (its debt beta above its equity beta, say) gets its row with
+/// the reason and no WACC.
+fn put_back(
+    case: &Case,
+    base: &chain::CapitalSpec<'_>,
+    peers: &[PeerCapital],
+    point: f64,
+) -> Result<Vec<LeaveOneOut>> {
+    let threshold = case.settings.uncertainty.influence_threshold;
+    let excluded: Vec<usize> = (0..peers.len()).filter(|&i| !peers[i].included).collect();
+    let mut sets: Vec<(String, Vec<usize>)> = (excluded.iter())
+        .map(|&i| (case.settings.peers[i].name.clone(), vec![i]))
+        .collect();
+    if excluded.len() >= 2 {
+        sets.push((format!("all {} excluded peers", excluded.len()), excluded));
+    }
+    let mut rows = Vec::with_capacity(sets.len());
+    for (peer, set) in sets {
+        let mut with = peers.to_vec();
+        for &i in &set {
+            with[i].included = true;
+        }
+        let (wacc, reason) = match chain::wacc_only(base, &with) {
+            Ok(wacc) => (Some(wacc), None),
+            // The valuation's own words, without the case file's name.
+            Err(e) => match chain_error(case, e) {
+                Error::Case { message, .. } => (None, Some(message)),
+                other => (None, Some(other.to_string())),
+            },
+        };
+        let change = wacc.map(|w| w - point);
+        rows.push(LeaveOneOut {
+            peer,
+            wacc,
+            change_bp: change.map(|c| c * 1e4),
+            influential: change.is_some_and(|c| c.abs() > threshold),
+            reason,
+        });
+    }
+    Ok(rows)
 }
 
 /// The WACC without each aggregated peer, at the point estimates.

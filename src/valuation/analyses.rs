@@ -117,6 +117,11 @@ pub struct Uncertainty {
     pub peer_set: PeerSetInterval,
     /// The WACC without each peer that enters the aggregation, in peer order.
     pub leave_one_out: Vec<LeaveOneOut>,
+    /// The WACC with each excluded peer put back, in peer order, and with every one put back
+    /// (a last row named "all N excluded peers", when there are two or more): what each
+    /// exclusion is worth. Absent when no peer is excluded.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub put_back: Vec<LeaveOneOut>,
     /// A leave-one-out change above this (decimal) names the peer as influential.
     pub influence_threshold: f64,
     /// The WACC under the usual alternative frequencies and windows (empty when turned off).
@@ -139,7 +144,7 @@ pub struct PeerSetInterval {
     pub p95: f64,
 }
 
-/// The case's WACC without one peer.
+/// The case's WACC without one peer (or, in `put_back`, with an excluded one).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct LeaveOneOut {
     pub peer: String,
