@@ -40,7 +40,14 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
     let mut sheet = Sheet::new("Betas")?;
     let method = v.estimator.method;
     let offsets: Vec<i32> = returns.market.iter().map(|(o, _)| *o).collect();
-    let (c, cols, slopes) = columns(method, &offsets);
+    let period = crate::report::format::label(&v.sampling.frequency);
+    let per = match period.as_str() {
+        "daily" => "day",
+        "weekly" => "week",
+        "quarterly" => "quarter",
+        _ => "month",
+    };
+    let (c, cols, slopes) = columns(method, &offsets, per);
     let header = book.styles.header.clone();
     for (col, name) in c.names.iter().enumerate() {
         book.text(&mut sheet, (0, col as u16), name, &header)?;
@@ -106,7 +113,9 @@ pub(crate) fn sheet(book: &mut Book, returns: &ReturnsLayout) -> Result<BetasLay
 
 /// The sheet's columns for `method`: their names, the column of each figure, and the slope
 /// column of each index offset (Dimson and Scholes–Williams).
-fn columns(method: BetaMethod, offsets: &[i32]) -> (Columns, Cols, Vec<(i32, u16)>) {
+/// Alpha, its SE and the residual SE are rates of one return period (`per`: a month, a week…),
+/// and their headers say so.
+fn columns(method: BetaMethod, offsets: &[i32], per: &str) -> (Columns, Cols, Vec<(i32, u16)>) {
     let mut c = Columns { names: Vec::new() };
     c.add("Peer");
     let n = c.add("Observations N");
@@ -122,19 +131,19 @@ fn columns(method: BetaMethod, offsets: &[i32]) -> (Columns, Cols, Vec<(i32, u16
     let cols = Cols {
         n,
         df,
-        alpha: c.add("Alpha α"),
+        alpha: c.add(format!("Alpha α (per {per})")),
         beta: c.add("Raw beta β"),
         se: c.add("SE(β)"),
         t: c.add("t(β)"),
         p: c.add("p-value"),
         ci_low: c.add("95% CI low"),
         ci_high: c.add("95% CI high"),
-        alpha_se: c.add("SE(α)"),
+        alpha_se: c.add(format!("SE(α) (per {per})")),
         alpha_t: c.add("t(α)"),
         alpha_p: c.add("p-value (α)"),
         r2: c.add("R²"),
         adj_r2: c.add("Adjusted R²"),
-        resid_se: c.add("Residual SE"),
+        resid_se: c.add(format!("Residual SE (per {per})")),
         rho,
     };
     (c, cols, slopes)
