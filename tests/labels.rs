@@ -556,6 +556,16 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
     assert!(memo.contains(&row), "{row}\n{memo}");
     let weekly = tempfile::tempdir().unwrap();
     let result = run_demo(weekly.path(), &["beta.frequency=weekly"]);
+    // The case's own row of the specification range says its window in weeks and in years
+    // (60 / 52 weeks a year, README "Risk-free conversion by frequency", is 1.15: 1.2 to one
+    // decimal), beside rows written in years.
+    let own = (result["uncertainty"]["specifications"]
+        .as_array()
+        .unwrap()
+        .iter())
+    .find(|r| r["case_choice"] == true)
+    .unwrap();
+    assert_eq!(own["window"], "60 weeks (about 1.2y)", "{own}");
     assert!(
         result["notes"].to_string().contains(
             "The return window, 60 weekly returns from 2025-08-06 to 2026-09-30, spans 1.15 years"

@@ -32,9 +32,21 @@ pub fn range(inputs: &Inputs, estimates: &PeerEstimates, point: f64) -> Result<V
         let beta = &case.settings.beta;
         rows.push(Specification {
             frequency: beta.frequency,
-            window: match beta.window_start {
-                Some(start) => format!("from {start}"),
-                None => beta.lookback.to_string().trim_matches('"').to_string(),
+            window: match (beta.window_start, beta.lookback) {
+                (Some(start), _) => format!("from {start}"),
+                // A count of periods in the rows' unit, years, beside it (60 weekly returns
+                // are about 1.2 years, not the 5 of 60 months).
+                (None, crate::case::Lookback::Periods(n)) => format!(
+                    "{n} {} (about {}y)",
+                    match beta.frequency {
+                        crate::market::sampling::Frequency::Daily => "days",
+                        crate::market::sampling::Frequency::Weekly => "weeks",
+                        crate::market::sampling::Frequency::Monthly => "months",
+                        crate::market::sampling::Frequency::Quarterly => "quarters",
+                    },
+                    crate::error::rounded(f64::from(n) / beta.frequency.periods_per_year(), 1)
+                ),
+                (None, span) => span.to_string().trim_matches('"').to_string(),
             },
             overrides: Vec::new(),
             case_choice: true,
