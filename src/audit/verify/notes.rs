@@ -98,7 +98,27 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 5] = [
+const KNOWN_CHANGES: [KnownChange; 6] = [
+    KnownChange {
+        version: "0.6.0",
+        kind: "case",
+        paths: &["uncertainty.specifications"],
+        explain: |_, rerun| {
+            let rows = rerun["uncertainty"]["specifications"].as_array();
+            let own = (rows.into_iter().flatten())
+                .find(|r| r["case_choice"] == true)
+                .and_then(|r| r["window"].as_str())
+                .filter(|w| w.contains(" (about "));
+            own.map(|window| {
+                format!(
+                    "hurdle 0.6.0 writes the specification range's row for the case's own window \
+                     with its unit and years (\"{window}\"), where an earlier version wrote the \
+                     count alone (README, Changelog, \"Findings of a practitioner's, a \
+                     spreadsheet user's and a chart reader's reviews\")"
+                )
+            })
+        },
+    },
     KnownChange {
         version: "0.6.0",
         kind: "case",
@@ -329,5 +349,14 @@ mod tests {
         };
         assert_eq!(histogram(1e-6), 1);
         assert_eq!(histogram(5e-4), 0);
+        // The specification row's window: named when the rerun's own row carries its years.
+        let rows = mismatch("uncertainty.specifications[9].window");
+        let specification = |window: &str| {
+            let rerun = json!({"uncertainty": {"specifications": [
+                {"case_choice": true, "window": window}]}});
+            known_changes("case", versions, &[&rows], (&json!({}), &rerun)).len()
+        };
+        assert_eq!(specification("60 weeks (about 1.2y)"), 1);
+        assert_eq!(specification("3y"), 0);
     }
 }
