@@ -554,6 +554,28 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
         c["wacc_real"].as_f64().unwrap() * 100.0
     );
     assert!(memo.contains(&row), "{row}\n{memo}");
+    // With preferred equity and leases the target's ratio is D/(D + E) of equity and debt
+    // alone, and the WACC's debt weight is smaller (wD = (1 − wP − wL)·D/(D + E), README
+    // "[preferred]"): the memo names both, the weight as result.json gives it.
+    let other_capital = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        other_capital.path(),
+        &[
+            "preferred.weight=0.05",
+            "preferred.cost=0.07",
+            "leases.weight=0.1",
+        ],
+    );
+    let memo = std::fs::read_to_string(other_capital.path().join("memo.md")).unwrap();
+    let flat = memo.split_whitespace().collect::<Vec<_>>().join(" ");
+    let weight = result["weights"]["debt"].as_f64().unwrap() * 100.0;
+    assert!(
+        flat.contains(&format!(
+            "(D/(D + E) 28.6%, of equity and debt alone: with preferred equity or leases in the \
+             capital, the WACC's debt weight is {weight:.1}%"
+        )),
+        "{flat}"
+    );
     let weekly = tempfile::tempdir().unwrap();
     let result = run_demo(weekly.path(), &["beta.frequency=weekly"]);
     // The case's own row of the specification range says its window in weeks and in years
