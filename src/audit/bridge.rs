@@ -285,26 +285,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         }
         crate::case::sanity::plain_label("claimed.currency", currency).map_err(fail)?;
     }
-    let debt_to_equity = match (claimed.debt_to_equity, claimed.debt_to_capital) {
-        (Some(de), None) if de >= 0.0 => de,
-        (None, Some(dc)) if (0.0..1.0).contains(&dc) => dc / (1.0 - dc),
-        (Some(_), Some(_)) => {
-            return Err(fail(
-                "[claimed] gives both debt_to_equity and debt_to_capital; keep one".into(),
-            ))
-        }
-        (None, None) => {
-            return Err(fail(
-                "[claimed] needs debt_to_equity or debt_to_capital".into(),
-            ))
-        }
-        (Some(v), None) => return Err(fail(format!("claimed.debt_to_equity = {v} is negative"))),
-        (None, Some(v)) => {
-            return Err(fail(format!(
-                "claimed.debt_to_capital = {v} is outside [0, 1)"
-            )))
-        }
-    };
+    let debt_to_equity = claimed_debt_to_equity(&claimed).map_err(fail)?;
     if !(0.0..1.0).contains(&claimed.tax_rate) {
         return Err(fail(format!(
             "claimed.tax_rate = {} is outside [0, 1)",
@@ -377,6 +358,20 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
             format!("Check: in the claimed build-up \"{}\", {rest}", side.label)
         })
         .collect()
+}
+
+/// The claim's D/E, from `debt_to_equity` or `debt_to_capital` (exactly one of them, in range).
+fn claimed_debt_to_equity(claimed: &Claimed) -> std::result::Result<f64, String> {
+    match (claimed.debt_to_equity, claimed.debt_to_capital) {
+        (Some(de), None) if de >= 0.0 => Ok(de),
+        (None, Some(dc)) if (0.0..1.0).contains(&dc) => Ok(dc / (1.0 - dc)),
+        (Some(_), Some(_)) => {
+            Err("[claimed] gives both debt_to_equity and debt_to_capital; keep one".into())
+        }
+        (None, None) => Err("[claimed] needs debt_to_equity or debt_to_capital".into()),
+        (Some(v), None) => Err(format!("claimed.debt_to_equity = {v} is negative")),
+        (None, Some(v)) => Err(format!("claimed.debt_to_capital = {v} is outside [0, 1)")),
+    }
 }
 
 /// A note when the two sides' rates are in different currencies (each side's `currency`, a

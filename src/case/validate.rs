@@ -2,11 +2,13 @@
 //! ratio, window lengths the data can fill, … Each section of the case has its own function;
 //! every message names the key and the offending value.
 
+mod capital;
+
 use super::sanity::{plain_label, MIN_SPREAD_PREMIUM};
 use super::schema::*;
 
 /// `key = value` must be finite and in [low, high).
-fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
+pub(super) fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::Result<(), String> {
     if value.is_finite() && value >= low && value < high {
         Ok(())
     } else {
@@ -109,11 +111,11 @@ pub fn validate_finite(case: &CaseFile) -> std::result::Result<(), String> {
     super::sanity::check_case(case)?;
     validate_case_and_market(case)?;
     validate_window(case)?;
-    validate_target(case)?;
-    validate_debt(case)?;
-    validate_components(case)?;
-    validate_conversion(case)?;
-    validate_premiums(case)?;
+    capital::validate_target(case)?;
+    capital::validate_debt(case)?;
+    capital::validate_components(case)?;
+    capital::validate_conversion(case)?;
+    capital::validate_premiums(case)?;
     validate_uncertainty(case)?;
     validate_peers(case)
 }
@@ -257,88 +259,6 @@ fn validate_rolling_and_flags(
     Ok(())
 }
 
-/// `[target]`: exactly one ratio (unless a source gives it), and the tax rate.
-fn validate_target(case: &CaseFile) -> std::result::Result<(), String> {
-    let target = &case.target;
-    validate_structure(case)?;
-    match (target.debt_to_equity, target.debt_to_capital) {
-        (None, None) if target.source != TargetSource::Explicit => {}
-        (Some(_), Some(_)) => {
-            return Err(
-                "target.debt_to_equity and target.debt_to_capital are both given; keep one".into(),
-            )
-        }
-        (None, None) => {
-            return Err("[target] needs debt_to_equity or debt_to_capital".into());
-        }
-        (Some(de), None) => {
-            if !(de.is_finite() && de >= 0.0) {
-                return Err(format!(
-                    "target.debt_to_equity = {de} is negative or not a number"
-                ));
-            }
-        }
-        (None, Some(dc)) => rate("target.debt_to_capital", dc, 0.0, 1.0)?,
-    }
-    rate("target.tax_rate", target.tax_rate, 0.0, 1.0)?;
-    Ok(())
-}
-
-/// `[conversion]`: inflation rates the Fisher relation can divide by.
-fn validate_conversion(case: &CaseFile) -> std::result::Result<(), String> {
-    if let Some(conversion) = &case.conversion {
-        for (key, value) in [
-            ("conversion.inflation_case", conversion.inflation_case),
-            ("conversion.inflation_output", conversion.inflation_output),
-        ] {
-            if !(value.is_finite() && value > -1.0) {
-                return Err(format!(
-                    "{key} = {value} is at or below -100% (or not a number); the Fisher relation \
-                     divides by 1 + inflation, which must be positive"
-                ));
-            }
-            rate(key, value, -1.0, 10.0)?;
-        }
-        if conversion.currency.trim().is_empty() {
-            return Err("conversion.currency is empty".into());
-        }
-        // One currency has one expected inflation: "converting" EUR to EUR at two inflations
-        // would print two different nominal EUR rates for the same cash flows.
-        let same =
-            conversion.currency.trim().to_lowercase() == case.case.currency.trim().to_lowercase();
-        if same && conversion.inflation_case != conversion.inflation_output {
-            return Err(format!(
-                "conversion.currency = \"{}\" is the case's own currency (case.currency), yet \
-                 conversion.inflation_case = {} differs from conversion.inflation_output = {}; one \
-                 currency has one expected inflation: name the other currency, or leave out \
-                 [conversion]",
-                conversion.currency, conversion.inflation_case, conversion.inflation_output
-            ));
-        }
-    }
-    Ok(())
-}
-
-/// `[premiums]`: each premium and the country exposure in range.
-fn validate_premiums(case: &CaseFile) -> std::result::Result<(), String> {
-    for (key, value) in [
-        ("premiums.size", case.premiums.size),
-        ("premiums.country", case.premiums.country),
-        ("premiums.company_specific", case.premiums.company_specific),
-    ] {
-        rate(key, value, -0.5, 1.0)?;
-    }
-    // Below 5 is hurdle's bound, not a published one: an exposure five times the average
-    // firm's is beyond any case we know of, and the bound catches a percentage typed as a number.
-    rate(
-        "premiums.country_exposure",
-        case.premiums.country_exposure,
-        0.0,
-        5.0,
-    )?;
-    Ok(())
-}
-
 /// `[uncertainty]`: enough draws for percentiles, and ranges that are ranges.
 fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
     let u = &case.uncertainty;
@@ -439,175 +359,6 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
     }
     if case.peers.iter().all(|p| p.exclude.is_some()) {
         return Err("every [[peer]] has `exclude` set: no peer is left to aggregate".into());
-    }
-    Ok(())
-}
-
-/// `[preferred]` and `[leases]`: weights in [0, 1) that leave room for equity and debt, and a cost
-/// for preferred equity that has a weight.
-fn validate_components(case: &CaseFile) -> std::result::Result<(), String> {
-    let (preferred, leases) = (&case.preferred, &case.leases);
-    rate("preferred.weight", preferred.weight, 0.0, 1.0)?;
-    rate("leases.weight", leases.weight, 0.0, 1.0)?;
-    let other = preferred.weight + leases.weight;
-    if other >= 1.0 {
-        return Err(format!(
-            "preferred.weight + leases.weight = {other} leaves no room for equity and debt; the \
-             two must sum to less than 1"
-        ));
-    }
-    match preferred.cost {
-        Some(cost) => rate("preferred.cost", cost, 0.0, 1.0)?,
-        None if preferred.weight > 0.0 => {
-            return Err(format!(
-                "preferred.cost is missing: preferred equity with preferred.weight = {} needs its \
-                 own cost (e.g. its dividend / price)",
-                preferred.weight
-            ))
-        }
-        None => {}
-    }
-    if let Some(cost) = leases.cost_pre_tax {
-        rate("leases.cost_pre_tax", cost, 0.0, 1.0)?;
-    }
-    Ok(())
-}
-
-/// `[leverage]` aggregation and cash keys, and the keys of the target sources.
-fn validate_structure(case: &CaseFile) -> std::result::Result<(), String> {
-    let leverage = &case.leverage;
-    rate("leverage.trim_fraction", leverage.trim_fraction, 0.0, 0.5)?;
-    if leverage.operations_beta && leverage.debt_measure == DebtMeasure::Net {
-        return Err(
-            "leverage.operations_beta = true with leverage.debt_measure = \"net\" would \
-                    count cash twice; use one of them"
-                .into(),
-        );
-    }
-    let target = &case.target;
-    if target.source == TargetSource::Subject {
-        match target.subject_equity_value {
-            Some(e) if e.is_finite() && e > 0.0 => {}
-            other => {
-                return Err(format!(
-                    "target.subject_equity_value = {} must be given and positive when \
-                     target.source = \"subject\"",
-                    other.map_or("(missing)".to_string(), |e| e.to_string())
-                ))
-            }
-        }
-        for (key, value) in [
-            ("target.subject_debt", target.subject_debt),
-            ("target.subject_cash", target.subject_cash),
-        ] {
-            if let Some(v) = value {
-                if !(v.is_finite() && v >= 0.0) {
-                    return Err(format!("{key} = {v} is negative"));
-                }
-            }
-        }
-        if target.subject_debt.is_none() {
-            return Err("target.subject_debt is required when target.source = \"subject\"".into());
-        }
-    }
-    for (i, peer) in case.peers.iter().enumerate() {
-        let net = DebtMeasure::Net.debt(peer.debt, peer.cash);
-        if leverage.debt_measure == DebtMeasure::Net && net <= -peer.equity_value {
-            return Err(format!(
-                "peer.{i} (peer \"{}\"): net debt {net} (debt − cash) is at or below minus its \
-                 equity_value {}, a net D/E at or below −1 that no leverage formula can unlever",
-                peer.name, peer.equity_value
-            ));
-        }
-        if leverage.operations_beta && peer.cash >= peer.equity_value + peer.debt {
-            return Err(format!(
-                "peer.{i}.cash = {} (peer \"{}\") is not below equity_value + debt = {}, so the \
-                 beta of the operations βU / (1 − cash / (equity + debt)) is undefined",
-                peer.cash,
-                peer.name,
-                peer.equity_value + peer.debt
-            ));
-        }
-    }
-    Ok(())
-}
-
-/// The `[debt]` keys each cost-of-debt source needs, and the leverage keys that go with them.
-fn validate_debt(case: &CaseFile) -> std::result::Result<(), String> {
-    let debt = &case.debt;
-    let need = |key: &str, present: bool| {
-        if present {
-            Ok(())
-        } else {
-            Err(format!(
-                "debt.{key} is required when debt.source = \"{}\"",
-                match debt.source {
-                    DebtSource::Given => "given",
-                    DebtSource::Rating => "rating",
-                    DebtSource::Coverage => "coverage",
-                }
-            ))
-        }
-    };
-    if let Some(kd) = debt.cost_pre_tax {
-        rate("debt.cost_pre_tax", kd, 0.0, 1.0)?;
-    }
-    match debt.source {
-        DebtSource::Given => need("cost_pre_tax", debt.cost_pre_tax.is_some())?,
-        DebtSource::Rating => {
-            need("rating", debt.rating.is_some())?;
-            need("rating_table", debt.rating_table.is_some())?;
-        }
-        DebtSource::Coverage => {
-            need("ebit", debt.ebit.is_some())?;
-            need("interest_expense", debt.interest_expense.is_some())?;
-            need("coverage_table", debt.coverage_table.is_some())?;
-            let (ebit, interest) = (
-                debt.ebit.unwrap_or(0.0),
-                debt.interest_expense.unwrap_or(0.0),
-            );
-            if !(interest.is_finite() && interest > 0.0) {
-                return Err(format!(
-                    "debt.interest_expense = {interest} must be positive to compute interest \
-                     coverage (EBIT / interest expense)"
-                ));
-            }
-            if !ebit.is_finite() || ebit < 0.0 {
-                return Err(format!(
-                    "debt.ebit = {ebit} gives a negative interest coverage {} (EBIT / interest \
-                     expense); a synthetic rating from coverage is not meaningful for a loss, so \
-                     give the cost of debt (debt.source = \"given\") or a rating",
-                    ebit / interest
-                ));
-            }
-            // An interest expense so small that the ratio overflows (a value in the wrong
-            // units, or a denormal number) gives no rating either.
-            if !(ebit / interest).is_finite() {
-                let show = crate::error::compact;
-                return Err(format!(
-                    "debt.ebit = {} over debt.interest_expense = {} gives an interest coverage \
-                     of {}: the interest expense is too small for a ratio; check its units",
-                    show(ebit),
-                    show(interest),
-                    show(ebit / interest)
-                ));
-            }
-        }
-    }
-    let leverage = &case.leverage;
-    if leverage.debt_beta_source == DebtBetaSource::Given {
-        rate("leverage.debt_beta", leverage.debt_beta, -1.0, 3.0)?;
-    } else if leverage.debt_beta != 0.0 {
-        return Err(format!(
-            "leverage.debt_beta = {} is given but leverage.debt_beta_source = {}; set \
-             leverage.debt_beta_source = \"given\" for it to be used",
-            leverage.debt_beta,
-            if leverage.debt_beta_source == DebtBetaSource::None {
-                "\"none\" (riskless debt)"
-            } else {
-                "\"credit-spread\""
-            }
-        ));
     }
     Ok(())
 }

@@ -113,21 +113,22 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
         basis_points(b.difference)
     ));
     out.push_str(&notes(b));
-    if let Some(note) = hurdle::audit::bridge::dates_note(&b.from, &b.to) {
-        out.push_str(&format!("note: {note}\n"));
-    }
-    if let Some(note) = hurdle::audit::bridge::currency_note(&b.from, &b.to) {
-        out.push_str(&format!("note: {note}\n"));
-    }
-    for side in [&b.from, &b.to] {
-        for note in hurdle::audit::bridge::claim_notes(side) {
-            out.push_str(&format!("note: {note}\n"));
-        }
-    }
+    out.push_str(&side_notes(b));
     if let [Some(from), Some(to)] = facts {
         out.push_str(&case_notes(b, from, to));
     }
     out
+}
+
+/// The library's notes on the two sides: their dates, their currencies, and each claim's
+/// figures that fail the plausibility checks.
+fn side_notes(b: &Bridge) -> String {
+    use hurdle::audit::bridge::{claim_notes, currency_note, dates_note};
+    let pair = dates_note(&b.from, &b.to)
+        .into_iter()
+        .chain(currency_note(&b.from, &b.to));
+    let claims = [&b.from, &b.to].into_iter().flat_map(claim_notes);
+    pair.chain(claims).map(|n| format!("note: {n}\n")).collect()
 }
 
 /// Notes for two cases: the peers in one aggregate and not the other (they move the beta line

@@ -62,25 +62,7 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
         .filter(|(_, &p)| !p)
         .map(|(f, _)| f)
         .collect();
-    let cautions_at = sections
-        .iter()
-        .rposition(|(_, text, _)| text.to_lowercase().contains("caution"));
-    if !unplaced.is_empty() {
-        let body: String = unplaced.iter().map(|f| figure(f)).collect();
-        let id = free_id(&sections, "s-charts");
-        let charts = (
-            id.clone(),
-            "Charts".to_string(),
-            format!("<h2 id=\"{id}\">Charts</h2><div class=\"gallery\">{body}</div>"),
-        );
-        sections.insert(cautions_at.unwrap_or(sections.len()), charts);
-    }
-    // The standard cautions, listed in the contents like any section, when the memo has none.
-    if cautions_at.is_none() {
-        let id = free_id(&sections, "s-cautions");
-        let html = CAUTIONS.replacen("s-cautions", &id, 1);
-        sections.push((id, "Cautions".to_string(), html));
-    }
+    gather_charts_and_cautions(&mut sections, &unplaced);
     let mut body = String::new();
     body.push_str(&format!(
         "<header class=\"cover\">{cover}{}</header>",
@@ -103,6 +85,29 @@ pub fn page(memo: &str, figures: &[Figure]) -> String {
          </head>\n<body>\n<main>\n{body}\n</main>\n</body>\n</html>\n",
         markdown::escape(&title)
     )
+}
+
+/// Adds the section of charts the memo does not link (before its cautions), and the standard
+/// cautions, listed in the contents like any section, when the memo has none of its own.
+fn gather_charts_and_cautions(sections: &mut Vec<(String, String, String)>, unplaced: &[&Figure]) {
+    let cautions_at = sections
+        .iter()
+        .rposition(|(_, text, _)| text.to_lowercase().contains("caution"));
+    if !unplaced.is_empty() {
+        let body: String = unplaced.iter().map(|f| figure(f)).collect();
+        let id = free_id(sections, "s-charts");
+        let charts = (
+            id.clone(),
+            "Charts".to_string(),
+            format!("<h2 id=\"{id}\">Charts</h2><div class=\"gallery\">{body}</div>"),
+        );
+        sections.insert(cautions_at.unwrap_or(sections.len()), charts);
+    }
+    if cautions_at.is_none() {
+        let id = free_id(sections, "s-cautions");
+        let html = CAUTIONS.replacen("s-cautions", &id, 1);
+        sections.push((id, "Cautions".to_string(), html));
+    }
 }
 
 /// `id`, or `id-2`, `id-3`… when a section of the memo has it already (a template's own

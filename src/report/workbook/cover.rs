@@ -60,15 +60,12 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
     let v = book.v;
     let mut sheet = Sheet::new("Cover")?;
     let s = &book.styles;
-    let (title, subtitle, label, text, mono) = (
+    let (title, label, text, mono) = (
         s.title.clone(),
-        s.subtitle.clone(),
         s.label.clone(),
         s.text.clone(),
         s.mono.clone(),
     );
-    // Long sentences wrap inside column B, on screen and on paper.
-    let wrapped = text.clone().set_text_wrap();
     book.text(&mut sheet, (0, 0), &v.case.title, &title)?;
     let intro = format!(
         "Cost-of-capital workbook written by {} {}. The chain from the returns to the WACC is made \
@@ -118,27 +115,38 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
     row = headline(book, &mut sheet, row + 1)?;
     row = notes(book, &mut sheet, row + 1)?;
     row = files(book, &mut sheet, row + 1)?;
-    book.text(&mut sheet, (row + 1, 0), "Sheets", &subtitle)?;
-    row += 2;
-    for (name, what) in GUIDE {
-        book.text(&mut sheet, (row, 0), name, &label)?;
-        book.text(&mut sheet, (row, 1), what, &wrapped)?;
-        row += 1;
-    }
-    row = legend(book, &mut sheet, row + 1)?;
-    book.text(&mut sheet, (row + 1, 0), "Cautions", &subtitle)?;
-    row += 2;
-    for caution in CAUTIONS {
-        book.text(&mut sheet, (row, 0), "•", &text)?;
-        book.text(&mut sheet, (row, 1), caution, &wrapped)?;
-        row += 1;
-    }
+    guide_and_cautions(book, &mut sheet, row)?;
     sheet.ws.set_column_width(0, 28).map_err(xlsx_error)?;
     sheet.ws.set_column_width(1, 60).map_err(xlsx_error)?;
     for col in 2..8 {
         sheet.ws.set_column_width(col, 16).map_err(xlsx_error)?;
     }
     Ok(sheet)
+}
+
+/// The guide to the sheets, the legend of the cell colours and the general cautions, from
+/// `row` down.
+fn guide_and_cautions(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<()> {
+    let s = &book.styles;
+    let (subtitle, label, text) = (s.subtitle.clone(), s.label.clone(), s.text.clone());
+    // Long sentences wrap inside column B, on screen and on paper.
+    let wrapped = text.clone().set_text_wrap();
+    book.text(sheet, (row + 1, 0), "Sheets", &subtitle)?;
+    let mut row = row + 2;
+    for (name, what) in GUIDE {
+        book.text(sheet, (row, 0), name, &label)?;
+        book.text(sheet, (row, 1), what, &wrapped)?;
+        row += 1;
+    }
+    row = legend(book, sheet, row + 1)?;
+    book.text(sheet, (row + 1, 0), "Cautions", &subtitle)?;
+    row += 2;
+    for caution in CAUTIONS {
+        book.text(sheet, (row, 0), "•", &text)?;
+        book.text(sheet, (row, 1), caution, &wrapped)?;
+        row += 1;
+    }
+    Ok(())
 }
 
 /// The run's own notes, as `result.json` and the memo give them, the figures to check first: a
