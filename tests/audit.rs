@@ -1479,7 +1479,8 @@ fn a_claim_in_another_currency_is_noted() {
 // claim's premiums of 0.6, a 0.6% typed as a percentage, passed without a word). Premiums of
 // 60% are above the 15% the case's check uses for a premium (README, "Sanity rules"; a
 // judgement, common practice puts premiums well under it), and the WACC its components then
-// give, 48.6% (compare prints it), is above the check's 30%; the adviser's Kd (6.2%) is below
+// give is above the check's 30%: Ke = 0.04 + 1.10·0.06 + 0.6 = 0.706, and at D/E 0.5 the
+// weights are 2/3 and 1/3, so WACC = (2/3)·0.706 + (1/3)·0.062·(1 − 0.25) = 0.48617 (48.62%); the adviser's Kd (6.2%) is below
 // the claim's Ke, so no other check fires. The notes name the claim, in `compare` and in the
 // run's notes through [reconcile]; the case's own side gets none.
 #[test]

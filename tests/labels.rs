@@ -424,6 +424,27 @@ fn implausible_figures_and_a_window_beyond_the_data_are_noted() {
     );
     assert!(notes.contains(&expected), "{notes}");
     assert_eq!(index["last_date"], "2026-09-30");
+    // An index that stops weeks before the window's end (the demo's index cut after
+    // 2026-09-02) still gives the last month a return, on a price 28 days old (2026-09-02 to
+    // 2026-09-30, calendar arithmetic): noted, with the days (found by review: no note).
+    let stale = tempfile::tempdir().unwrap();
+    let case_dir = stale.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let index = case_dir.join("data/index.csv");
+    let text = std::fs::read_to_string(&index).unwrap();
+    let kept: Vec<&str> = (text.lines().enumerate())
+        .filter(|(i, l)| *i == 0 || l[..10] <= *"2026-09-02")
+        .map(|(_, l)| l)
+        .collect();
+    std::fs::write(&index, kept.join("\n") + "\n").unwrap();
+    let result = common::run_case_with(&case_dir.join("case.toml"), &stale.path().join("out"), &[]);
+    assert!(
+        result["notes"].to_string().contains(
+            "The index (data/index.csv) ends on 2026-09-02, 28 days before the window's end 2026-09-30"
+        ),
+        "{}",
+        result["notes"]
+    );
     // Weekly on Fridays to Friday 2026-10-02: the index's last price (Wednesday 2026-09-30) lies
     // inside the last week, after the Friday before (the sampling rule, README "Sampling"), so
     // every period has an index return and no coverage note is due (found by review: the note
@@ -481,15 +502,20 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
         flat.contains("no source or reason for the company-specific premium (premiums.company_specific_justification)"),
         "{flat}"
     );
-    let flagged: Vec<String> = (result["peers"].as_array().unwrap().iter())
+    let mut flagged: Vec<String> = (result["peers"].as_array().unwrap().iter())
         .filter(|p| !p["flags"].as_array().unwrap().is_empty() && p["excluded_reason"].is_null())
-        .map(|p| format!("{} (low_r_squared)", p["name"].as_str().unwrap()))
+        .map(|p| p["name"].as_str().unwrap().to_string())
         .collect();
+    flagged.sort();
     assert!(!flagged.is_empty());
+    assert_eq!(
+        result["cautions"]["flagged_in_aggregate"],
+        serde_json::json!(flagged)
+    );
     assert!(
         flat.contains(&format!(
             "**Flagged peers in the aggregate.** {}",
-            flagged.join("; ")
+            flagged.join(", ")
         )),
         "{flat}"
     );
@@ -500,7 +526,7 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
     // The header names the command line's overrides (the receipt records them, README
     // "result.json"; the memo said so only in section 12).
     assert!(
-        memo.contains("| Overrides | `premiums.company_specific=0.02`, `beta.flag_r_squared_floor=0.15`, `target.source=subject` (set on the command line, not in the case file) |"),
+        memo.contains("| Overrides | premiums.company_specific=0.02; beta.flag_r_squared_floor=0.15; target.source=subject (set on the command line, not in the case file) |"),
         "{memo}"
     );
     // The subject's target leaves the grid's columns to the risk-free rate (README,
@@ -588,6 +614,18 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
     .find(|r| r["case_choice"] == true)
     .unwrap();
     assert_eq!(own["window"], "60 weeks (about 1.2y)", "{own}");
+    // Two years of months is the usual minimum, not short (found by review: 24 months from
+    // 2024-09-30 span 730 days, 1.9986 years of 365.25 days, and were noted).
+    let two_years = tempfile::tempdir().unwrap();
+    let two = run_demo(
+        two_years.path(),
+        &["beta.lookback=24", "beta.min_observations=20"],
+    );
+    assert!(
+        !two["notes"].to_string().contains("spans"),
+        "{}",
+        two["notes"]
+    );
     assert!(
         result["notes"].to_string().contains(
             "The return window, 60 weekly returns from 2025-08-06 to 2026-09-30, spans 1.15 years"
@@ -595,4 +633,75 @@ fn the_memo_names_what_a_reviewer_would_ask_about() {
         "{}",
         result["notes"]
     );
+}
+
+// A user's free text is shown as written, never as Markdown: a justification holding an image
+// and a link, a claim label with a link, and an override with a backtick put no image, link or
+// code into the self-contained report (found by review: names were checked, free text was not).
+// The report is read for any `src=` or `href=` that leaves the page.
+#[test]
+fn free_text_in_the_memo_opens_no_link_or_image() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    copy_demo_case(&case_dir);
+    let claimed = case_dir.join("claimed.toml");
+    let text = std::fs::read_to_string(&claimed).unwrap();
+    let edited = text.replace(
+        "label = \"Adviser's build-up (fictional)\"",
+        "label = \"Adviser [see](http://example.invalid/c)\"",
+    );
+    assert_ne!(edited, text);
+    std::fs::write(&claimed, edited).unwrap();
+    let out = dir.path().join("out");
+    let justification =
+        "debt.justification=see ![x](http://example.invalid/a.png) and [site](http://example.invalid)";
+    common::run_case_with(&case_dir.join("case.toml"), &out, &[justification]);
+    let report = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        !report.contains("example.invalid/a.png\""),
+        "an image was linked"
+    );
+    assert!(!report.contains("href=\"http"), "a link left the page");
+    assert!(!report.contains("src=\"http"), "an image was fetched");
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(
+        memo.contains(
+            r"see !\[x\](http://example.invalid/a.png) and \[site\](http://example.invalid)"
+        ),
+        "{memo}"
+    );
+    assert!(
+        report.contains("see ![x](http://example.invalid/a.png)"),
+        "the text as written"
+    );
+}
+
+// A rolling window as long as the estimation window (README: `rolling_window` at most the
+// window's periods) leaves each peer one window; the memo says so rather than blaming too few
+// observations (found by review), and with the coverage rating under the subject's own
+// structure it does not speak of "another structure".
+#[test]
+fn the_memo_says_why_a_peer_has_no_rolling_line() {
+    let dir = tempfile::tempdir().unwrap();
+    run_demo(dir.path(), &["beta.rolling_window=60"]);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert_eq!(
+        memo.matches(
+            "one rolling window only: beta.rolling_window = 60 periods fills the 60-period window"
+        )
+        .count(),
+        8,
+        "{memo}"
+    );
+    let subject = tempfile::tempdir().unwrap();
+    run_demo(
+        subject.path(),
+        &["target.source=subject", "debt.source=coverage"],
+    );
+    let memo = std::fs::read_to_string(subject.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains("The coverage is the\nsubject's as it stands."),
+        "{memo}"
+    );
+    assert!(!memo.contains("at another structure"), "{memo}");
 }

@@ -406,3 +406,61 @@ fn excluded_peers_put_back_give_the_runs_without_their_exclusion() {
     let memo = std::fs::read_to_string(dir.path().join("both/memo.md")).unwrap();
     assert!(memo.contains("**Excluded peers put back.**"), "{memo}");
 }
+
+// A peer set the valuation refuses gets its row without a WACC and with the valuation's
+// reason (found by review: the put-back row skipped the debt-beta checks and showed a WACC no
+// run gives). Under Harris–Pringle with a given subject debt beta of 0.93, the four peers
+// with a debt beta of 0 put back together lower the aggregate unlevered beta below 0.93, which
+// the case refuses (README, "Sanity rules": a subject's debt beta above the asset beta).
+#[test]
+fn a_peer_set_the_valuation_refuses_has_no_put_back_wacc() {
+    let dir = tempfile::tempdir().unwrap();
+    copy_demo_case(&dir.path().join("case"));
+    let case = dir.path().join("case/case.toml");
+    let mut sets: Vec<String> = [
+        "leverage.formula=harris-pringle",
+        "leverage.debt_beta_source=given",
+        "leverage.debt_beta=0.93",
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect();
+    for i in [2, 4, 5, 7] {
+        sets.push(format!("peer.{i}.debt_beta=0"));
+        sets.push(format!("peer.{i}.exclude=low"));
+    }
+    let mut arguments = vec!["--no-figures".to_string()];
+    for set in &sets {
+        arguments.extend(["--set".to_string(), set.clone()]);
+    }
+    let arguments: Vec<&str> = arguments.iter().map(String::as_str).collect();
+    let result = run(&case, &dir.path().join("out"), &arguments);
+    let rows = result["uncertainty"]["put_back"].as_array().unwrap();
+    let all = rows.last().unwrap();
+    assert_eq!(all["peer"], "all 4 excluded peers");
+    assert!(all["wacc"].is_null(), "{all}");
+    assert!(
+        all["reason"]
+            .as_str()
+            .unwrap()
+            .contains("is above the aggregate unlevered beta"),
+        "{all}"
+    );
+    // The same peers aggregated in a run of their own: refused with that reason.
+    let mut rerun = vec!["run", case.to_str().unwrap(), "--no-figures", "--out"];
+    let out = dir.path().join("rerun");
+    rerun.push(out.to_str().unwrap());
+    let kept: Vec<String> = sets
+        .iter()
+        .filter(|s| !s.contains("exclude"))
+        .map(|s| s.to_string())
+        .collect();
+    for set in &kept {
+        rerun.extend(["--set", set.as_str()]);
+    }
+    let output = hurdle(&rerun);
+    assert_eq!(output.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&output.stderr).contains("is above the aggregate unlevered beta")
+    );
+}

@@ -385,9 +385,10 @@ pub fn currency_note(from: &Side, to: &Side) -> Option<String> {
     (a.trim().to_lowercase() != b.trim().to_lowercase()).then(|| {
         format!(
             "{} is in {a} and {} in {b}: each rate carries its own currency's expected \
-             inflation, so part of the gap is the currencies', not the inputs' judgement; put \
-             both sides in one currency first (a case's [conversion] does it for a case) before \
-             reading the steps.",
+             inflation, so part of the gap is the currencies', not the inputs' judgement; the \
+             bridge compares the two build-ups as given, so put them in one currency first (a \
+             claim's rates carried by the Fisher relation, or a case whose own inputs are in the \
+             claim's currency) before reading the steps as judgement.",
             from.label, to.label
         )
     })

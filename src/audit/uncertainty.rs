@@ -343,6 +343,14 @@ fn peer_set_interval(
     })
 }
 
+/// Why the valuation refuses a peer set, in its own words without the case file's name.
+fn refusal(case: &Case, error: chain::ChainError) -> String {
+    match chain_error(case, error) {
+        Error::Case { message, .. } => message,
+        other => other.to_string(),
+    }
+}
+
 /// The WACC with each excluded peer put back, and with all of them when there are two or more,
 /// at the point estimates: the reviewer's question of what an exclusion is worth. A peer the
 /// valuation refuses once put back (its debt beta above its equity beta, say) gets its row with
@@ -367,13 +375,11 @@ fn put_back(
         for &i in &set {
             with[i].included = true;
         }
-        let (wacc, reason) = match chain::wacc_only(base, &with) {
-            Ok(wacc) => (Some(wacc), None),
-            // The valuation's own words, without the case file's name.
-            Err(e) => match chain_error(case, e) {
-                Error::Case { message, .. } => (None, Some(message)),
-                other => (None, Some(other.to_string())),
-            },
+        // The whole chain with its checks, as a run of the case with the peer aggregated would
+        // compute it: a debt beta the peer set put back would refuse gives the reason.
+        let (wacc, reason) = match chain::chain(base, &with, chain::Checks::Enforce) {
+            Ok(chain) => (Some(chain.outcome().wacc), None),
+            Err(e) => (None, Some(refusal(case, e))),
         };
         let change = wacc.map(|w| w - point);
         rows.push(LeaveOneOut {
@@ -402,8 +408,13 @@ fn leave_one_out(
         }
         let mut without = peers.to_vec();
         without[i].included = false;
-        let (wacc, reason) = match chain::wacc_only(base, &without) {
-            Ok(wacc) => (Some(wacc), None),
+        // With the chain's checks, as a run of the case without the peer: a subject's debt beta
+        // above the smaller aggregate is that row's reason, not a WACC the case would refuse.
+        let (wacc, reason) = match chain::chain(base, &without, chain::Checks::Enforce) {
+            Ok(chain) => (Some(chain.outcome().wacc), None),
+            Err(
+                e @ (chain::ChainError::PeerDebtBeta(..) | chain::ChainError::SubjectDebtBeta(..)),
+            ) => (None, Some(refusal(case, e))),
             Err(chain::ChainError::NoPeerIncluded) => (None, None),
             // A cross-sectional Vasicek prior from the one peer left (the case has two): that
             // row has no WACC, as a peer-set draw of one repeated peer has none.

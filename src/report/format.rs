@@ -72,6 +72,23 @@ pub fn table_cell(text: String) -> String {
     text.replace('|', "\\|")
 }
 
+/// A user's free text (a justification, the peer selection, a claim's label, an override) as
+/// Markdown that shows it as written: a backslash before each character that would open code,
+/// a link or an image (`` ` ``, `[`, `]`; an image's `!` opens nothing without its bracket) and
+/// before a backslash, so `![x](http://…)` in a
+/// justification is text in the memo and loads nothing in the report (CommonMark 0.31,
+/// "Backslash escapes").
+pub fn plain_text(text: String) -> String {
+    let mut out = String::with_capacity(text.len());
+    for c in text.chars() {
+        if matches!(c, '\\' | '`' | '[' | ']') {
+            out.push('\\');
+        }
+        out.push(c);
+    }
+    out
+}
+
 /// A sensitivity axis's value as the chart and the workbook show it: a rate, premium, tax rate
 /// or weight in percent with every digit it has (0.0417 → `4.17%`), any other key's value
 /// (a D/E, a beta) as a plain number.

@@ -232,7 +232,7 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
     notes.extend(crate::case::sanity::short_window_note(
         (window.start(), window.end()),
         window.period_ends().len(),
-        &crate::case::label(&settings.beta.frequency),
+        settings.beta.frequency,
     ));
     notes.extend(crate::case::sanity::window_end_note(
         &settings.beta,
@@ -287,22 +287,15 @@ fn failure_message(
     }
 }
 
-/// The notes a reviewer should see about one peer's data: periods dropped, a rolling beta that
-/// moved by more than its error, and stale prices.
 /// Why a missing price costs two returns: said once, in the first note that needs it.
 const TWO_RETURNS: &str = " A return needs a price at both ends of its period: a price missing \
                            inside the window costs two returns, one missing before the data \
                            start or after they end one each.";
 
-fn data_notes(
-    name: &str,
-    estimated: &SecurityEstimate,
-    spec: &EstimationSpec,
-    explained: bool,
-) -> Vec<String> {
-    let mut notes = Vec::new();
+/// The periods a peer lost, by reason, when it lost any.
+fn dropped_note(name: &str, estimated: &SecurityEstimate, explained: bool) -> Option<String> {
     let d = estimated.dropped;
-    if d.total > 0 {
+    (d.total > 0).then(|| {
         // Dimson and Scholes–Williams also drop a period whose lagged or led index return is
         // missing; named only then, so the reasons add up to the total.
         let shifted = match d.shifted_market_missing {
@@ -321,7 +314,7 @@ fn data_notes(
             0 => missing.to_string(),
             n => format!("{missing}, {n} of them for a stale price"),
         };
-        notes.push(format!(
+        format!(
             "{name}: {} of {} periods dropped (peer price missing {}, index price missing {}, \
              risk-free missing {}{shifted}).{why}",
             d.total,
@@ -329,8 +322,22 @@ fn data_notes(
             of_which(d.asset_missing, d.asset_stale),
             of_which(d.market_missing, d.market_stale),
             d.risk_free_missing
-        ));
-    }
+        )
+    })
+}
+
+/// The notes a reviewer should see about one peer's data: periods dropped, a rolling beta that
+/// moved by more than its error, and stale prices.
+fn data_notes(
+    name: &str,
+    estimated: &SecurityEstimate,
+    spec: &EstimationSpec,
+    explained: bool,
+) -> Vec<String> {
+    let mut notes: Vec<String> = dropped_note(name, estimated, explained)
+        .into_iter()
+        .collect();
+    let d = estimated.dropped;
     // Beyond the two-sided 5% point of t at the smaller window's degrees of freedom.
     let rolling = &estimated.rolling;
     let shift = crate::beta::rolling::first_to_last_z(rolling)

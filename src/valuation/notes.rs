@@ -328,6 +328,10 @@ pub(super) fn cautions(peers: &[PeerResult], cost: &CostOfCapital) -> Cautions {
         betas_near_zero: names(&|p| p.estimate.beta_ci_low <= 0.0),
         turned_positive_by_adjustment: names(&|p| p.estimate.beta < 0.0 && p.beta_used > 0.0),
         every_peer_flagged: match !flagged.is_empty() && flagged.len() == aggregated.len() {
+            true => flagged.clone(),
+            false => Vec::new(),
+        },
+        flagged_in_aggregate: match flagged.len() < aggregated.len() {
             true => flagged,
             false => Vec::new(),
         },

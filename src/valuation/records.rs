@@ -219,6 +219,9 @@ pub struct Cautions {
     pub turned_positive_by_adjustment: Vec<String>,
     /// Every aggregated peer, when each raises a diagnostic flag; empty otherwise.
     pub every_peer_flagged: Vec<String>,
+    /// The aggregated peers that raise a diagnostic flag, when some but not all do (all of
+    /// them are `every_peer_flagged`); empty otherwise.
+    pub flagged_in_aggregate: Vec<String>,
 }
 
 /// Everything after the peer regressions: aggregation, relevering, CAPM, cost of debt, WACC.

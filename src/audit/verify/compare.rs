@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 2] = [
+const ADDED_IN: [(&str, &[&str]); 3] = [
     (
         "0.3.0",
         &[
@@ -54,6 +54,14 @@ const ADDED_IN: [(&str, &[&str]); 2] = [
             "cautions",
             "uncertainty.point_outside_interval",
             "securities",
+        ],
+    ),
+    (
+        "0.6.0",
+        &[
+            "uncertainty.put_back",
+            "reconciliation.to.currency",
+            "cautions.flagged_in_aggregate",
         ],
     ),
 ];

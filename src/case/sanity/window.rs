@@ -15,14 +15,24 @@ pub fn index_coverage_note(
     counted: &str,
 ) -> Option<String> {
     let (start, end) = (window.start(), window.end());
-    // The last period takes the last price after the sample point before it, so an index whose
-    // last price falls on the Friday before a Sunday month end still covers the window.
-    (index.first_date > start || index.last_date <= window.last_period_opens()).then(|| {
-        format!(
+    // The last period takes the last price after the sample point before it: an index whose
+    // last price falls on the Friday before a Sunday month end covers the window, one that
+    // stops weeks before the end still has a return there, on a stale price.
+    let gap = (end - index.last_date).num_days();
+    if index.first_date > start || index.last_date <= window.last_period_opens() {
+        return Some(format!(
             "The index ({}) has prices from {} to {}, less than the window's {start} to {end}: \
              periods outside them have no index return, so every {each}'s are dropped there \
              (counted in {counted}).",
             index.path, index.first_date, index.last_date
+        ));
+    }
+    (gap > STALE_END_DAYS).then(|| {
+        format!(
+            "The index ({}) ends on {}, {gap} days before the window's end {end}: the last \
+             period's index return ends on that price, older than the {each} prices it is set \
+             against (beta.max_stale_days drops such a period).",
+            index.path, index.last_date
         )
     })
 }
@@ -37,10 +47,14 @@ const SHORT_WINDOW_YEARS: f64 = 2.0;
 pub fn short_window_note(
     (start, end): (chrono::NaiveDate, chrono::NaiveDate),
     periods: usize,
-    period: &str,
+    frequency: crate::market::sampling::Frequency,
 ) -> Option<String> {
+    let period = crate::case::label(&frequency);
     let years = (end - start).num_days() as f64 / 365.25;
-    (years < SHORT_WINDOW_YEARS).then(|| {
+    // Counted in periods, so that two years of months (24) or of weeks (104) is not short,
+    // whatever calendar days they span.
+    let counted = periods as f64 / frequency.periods_per_year();
+    (counted < SHORT_WINDOW_YEARS - 1e-9).then(|| {
         format!(
             "The return window, {periods} {period} returns from {start} to {end}, spans {} \
              years: less than the two to five years betas are usually estimated over (common \

@@ -190,13 +190,16 @@ fn case_cautions(v: &crate::valuation::Valuation) -> Vec<String> {
     let names = |list: &[String]| list.join(", ");
     let mut out = Vec::new();
     if let Some([low, high]) = c.leverage_beyond_peers {
+        let ratio = |x: f64| crate::error::rounded(x, 3);
+        let peers = match v.cost.beta.peers_included {
+            1 => format!("the one peer's {}", ratio(low)),
+            _ => format!("{} to {}", ratio(low), ratio(high)),
+        };
         out.push(format!(
             "Leverage beyond the peers': the target D/E of {} is above every aggregated peer's \
-             ({} to {}); the relevered beta extrapolates the formula beyond the leverage the \
+             ({peers}); the relevered beta extrapolates the formula beyond the leverage the \
              betas were measured at.",
-            crate::error::rounded(v.cost.target.debt_to_equity, 3),
-            crate::error::rounded(low, 3),
-            crate::error::rounded(high, 3)
+            ratio(v.cost.target.debt_to_equity),
         ));
     }
     if !c.betas_near_zero.is_empty() {
@@ -211,6 +214,13 @@ fn case_cautions(v: &crate::valuation::Valuation) -> Vec<String> {
                     names(&c.turned_positive_by_adjustment)
                 ),
             }
+        ));
+    }
+    if !c.flagged_in_aggregate.is_empty() {
+        out.push(format!(
+            "Flagged peers in the aggregate: {} raise a diagnostic flag (the Betas sheet's \
+             Flags column) and are aggregated all the same.",
+            names(&c.flagged_in_aggregate)
         ));
     }
     if !c.every_peer_flagged.is_empty() {

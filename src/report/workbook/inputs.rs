@@ -224,10 +224,17 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
     .copied()
     .collect::<Vec<_>>()
     .join(" ");
+    // The key that sets the ratio: the one the case gives (a debt-to-capital is converted),
+    // or none for the subject's structure (its debt and equity) or the peers' median.
+    let key = match v.cost.target.given {
+        "debt_to_capital" => "target.debt_to_capital (as D/E = r / (1 − r))",
+        "subject_current" => "target.source = \"subject\" (its debt and equity keys)",
+        _ => "target.debt_to_equity",
+    };
     spec(
         "Target debt-to-equity (D/E)",
         "TargetDebtToEquity",
-        "target.debt_to_equity",
+        key,
         "/target/debt_to_equity",
     )
     .format(Fmt::Ratio)

@@ -163,12 +163,12 @@ impl<'v> Book<'v> {
         }
     }
 
-    /// A `result.json` number, read from the serialised valuation.
     /// Whether `result.json` holds null at `pointer` (a figure that has no value in this run).
     pub fn is_null(&self, pointer: &str) -> bool {
         self.json.pointer(pointer).is_some_and(Value::is_null)
     }
 
+    /// A `result.json` number, read from the serialised valuation.
     pub fn figure(&self, pointer: &str) -> Result<f64> {
         self.json
             .pointer(pointer)
