@@ -1131,7 +1131,7 @@ fn one_rolling_window_a_peer_draws_no_stability_chart() {
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(!memo.contains("stability.svg") && !report.contains("stability.svg"));
     assert_eq!(
-        memo.matches("fewer than two rolling windows with enough observations")
+        memo.matches("one rolling window only: beta.rolling_window = 60 periods fills")
             .count(),
         8,
         "each of the demo's eight peers says why"
