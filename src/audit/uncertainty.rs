@@ -343,6 +343,23 @@ fn peer_set_interval(
     })
 }
 
+/// One row of the influence tables: `wacc` (or the reason there is none) against the case's
+/// `point`, influential beyond `threshold`.
+fn influence_row(
+    peer: String,
+    (wacc, reason): (Option<f64>, Option<String>),
+    (point, threshold): (f64, f64),
+) -> LeaveOneOut {
+    let change = wacc.map(|w| w - point);
+    LeaveOneOut {
+        peer,
+        wacc,
+        change_bp: change.map(|c| c * 1e4),
+        influential: change.is_some_and(|c| c.abs() > threshold),
+        reason,
+    }
+}
+
 /// Why the valuation refuses a peer set, in its own words without the case file's name.
 fn refusal(case: &Case, error: chain::ChainError) -> String {
     match chain_error(case, error) {
@@ -381,14 +398,7 @@ fn put_back(
             Ok(chain) => (Some(chain.outcome().wacc), None),
             Err(e) => (None, Some(refusal(case, e))),
         };
-        let change = wacc.map(|w| w - point);
-        rows.push(LeaveOneOut {
-            peer,
-            wacc,
-            change_bp: change.map(|c| c * 1e4),
-            influential: change.is_some_and(|c| c.abs() > threshold),
-            reason,
-        });
+        rows.push(influence_row(peer, (wacc, reason), (point, threshold)));
     }
     Ok(rows)
 }
@@ -428,14 +438,11 @@ fn leave_one_out(
             ),
             Err(e) => return Err(chain_error(case, e)),
         };
-        let change = wacc.map(|w| w - point);
-        rows.push(LeaveOneOut {
-            peer: spec.name.clone(),
-            wacc,
-            change_bp: change.map(|c| c * 1e4),
-            influential: change.is_some_and(|c| c.abs() > threshold),
-            reason,
-        });
+        rows.push(influence_row(
+            spec.name.clone(),
+            (wacc, reason),
+            (point, threshold),
+        ));
     }
     Ok(rows)
 }

@@ -128,7 +128,13 @@ fn check_yield_switch(path: &Path, file: &DataFile) -> Result<()> {
         dates[i - 1],
         crate::error::rounded((values[i] - values[i - 1]).abs() * 100.0, 2)
     );
-    Err(match file.places.get(i) {
+    Err(at_value(path, file, i, message))
+}
+
+/// An error at value `i` of `file`: its cell in a wide table, or its line in a file of its own
+/// (value i on line i + 2).
+fn at_value(path: &Path, file: &DataFile, i: usize, message: String) -> Error {
+    match file.places.get(i) {
         Some(place) => Error::DataFile {
             file: path.to_path_buf(),
             message: format!("{place}: {message}"),
@@ -138,7 +144,7 @@ fn check_yield_switch(path: &Path, file: &DataFile) -> Result<()> {
             line: i + 2,
             message,
         },
-    })
+    }
 }
 
 /// A move by more than [`JUMP_FACTOR`] between consecutive rows, unless its date is accepted.
@@ -181,17 +187,7 @@ pub(crate) fn check_jumps(
             dates[i - 1],
             dates[i]
         );
-        return Err(match file.places.get(i) {
-            Some(place) => Error::DataFile {
-                file: path.to_path_buf(),
-                message: format!("{place}: {message}"),
-            },
-            None => Error::DataRow {
-                file: path.to_path_buf(),
-                line: i + 2,
-                message,
-            },
-        });
+        return Err(at_value(path, file, i, message));
     }
     Ok(())
 }
