@@ -47,8 +47,9 @@ pub fn number(v: &serde_json::Value, path: &str) -> f64 {
 }
 
 /// Runs tests/reference/check_regressions.py (numpy, scipy and the textbook formulas) on a
-/// run's output folder; asserts that it ran and found no mismatch, and returns its report.
-/// `label` names the configuration in a failure message.
+/// run's output folder; asserts that it ran, rebuilt every return from the case's own files (a
+/// part it reports NOT RECOMPUTED would fall back on hurdle's returns.csv) and found no
+/// mismatch, and returns its report. `label` names the configuration in a failure message.
 #[allow(dead_code)]
 pub fn reference_check(out: &Path, label: &str) -> String {
     let script = concat!(
@@ -65,6 +66,10 @@ pub fn reference_check(out: &Path, label: &str) -> String {
         output.status.success() && stdout.contains(" 0 failed"),
         "{label}: reference check failed (install numpy and scipy: python3 -m pip install numpy scipy)\n{stdout}\n{}",
         String::from_utf8_lossy(&output.stderr)
+    );
+    assert!(
+        !stdout.contains("NOT RECOMPUTED"),
+        "{label}: the reference check used hurdle's own returns for a part\n{stdout}"
     );
     stdout
 }

@@ -3,9 +3,14 @@
 
 Usage: check_uncertainty.py OUTPUT_DIR
 
-Reads OUTPUT_DIR/returns.csv and OUTPUT_DIR/result.json of a `hurdle run` of a case with OLS
-betas, classical standard errors, Hamada unlevering, median aggregation, an explicit target and a
-given cost of debt (asserted below), and recomputes from the returns alone:
+Reads OUTPUT_DIR/result.json of a `hurdle run` of a case with OLS betas, classical standard
+errors, Hamada unlevering at gross debt, median aggregation, an explicit target and a given cost of
+debt (asserted below), finds the case file it ran (with the recorded SHA-256) and takes every rate,
+premium, target, tax rate, peer figure and exclusion from that case and its recorded overrides,
+with README's defaults, through check_regressions.py (`load_case`, `setting`, `peer_spec`), never
+from hurdle's echo; rebuilds the returns from the case's own price and yield files
+(check_regressions.py's `rebuild_returns`, which also checks them against returns.csv); then
+recomputes:
 
 1. The correlation of the peers' beta errors: each peer's OLS beta is a'y with
    a' = [(X'X)^-1 X']_beta (numpy's inverse: this is the reference, not the solver); its influence
@@ -25,13 +30,22 @@ import json
 import sys
 from collections import defaultdict
 
+import os
+
 import numpy as np
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+import check_regressions as case_file  # noqa: E402  (the case as written, the returns rebuilt)
 
 failures = []
 checks = 0
 
 
 def check(label, ours, reference, tolerance=1e-9):
+    """Relative 1e-9 (the project's bar: the same closed forms in double precision, whose honest
+    differences are rounding near 1e-13), with an absolute floor of 1e-15 so that a reference of
+    exactly 0 (an off-diagonal correlation of peers with no period in common) accepts rounding
+    residue of that size."""
     global checks
     checks += 1
     if not abs(ours - reference) <= tolerance * max(abs(reference), 1e-300) + 1e-15:
@@ -52,26 +66,30 @@ def check_quantiles(label, hurdle_interval, draws, hurdle_draws):
 
 def main(out_dir):
     result = json.load(open(f"{out_dir}/result.json"))
-    settings = result["settings"]
-    assert settings["beta"]["method"] == "ols" and settings["beta"]["std_errors"] == "classical"
-    assert settings["leverage"]["formula"] == "hamada" and settings["leverage"]["aggregation"] == "median"
-    assert settings["leverage"].get("debt_measure", "gross") == "gross"
-    assert settings["target"].get("source", "explicit") == "explicit"
-    assert settings["debt"].get("source", "given") == "given"
-    assert settings["premiums"].get("country", 0) == 0
+    case_path = case_file.load_case(out_dir, result, None)
+    setting = case_file.setting
+    assert setting("beta", "method") == "ols" and setting("beta", "std_errors") == "classical"
+    assert setting("leverage", "formula") == "hamada" and setting("leverage", "aggregation") == "median"
+    assert setting("leverage", "debt_measure") == "gross" and not setting("leverage", "operations_beta")
+    assert setting("leverage", "debt_beta_source") == "none"
+    assert setting("target", "source") == "explicit" and setting("debt", "source") == "given"
+    assert setting("premiums", "country") == 0 and not setting("beta", "exclude_flags")
+    assert setting("beta", "adjustment") in ("blume", "none")
     u = result["uncertainty"]
     assert u["beta_errors"] == "correlated"
     assert not u.get("equity_risk_premium_range") and not u.get("risk_free_rate_range")
 
+    rebuilt, _, _, _ = case_file.rebuild_returns(case_path, result)
+    failures.extend(case_file.failures)
     rows = defaultdict(list)
-    with open(f"{out_dir}/returns.csv", newline="") as f:
-        for row in csv.DictReader(f):
-            rows[row["peer"]].append(row)
+    for row in rebuilt:
+        rows[row["peer"]].append(row)
     names = [p["name"] for p in result["peers"]]
+    assert names == [p["name"] for p in case_file.CASE["peer"]], "peers in the case's order"
     betas, ses, influence = [], [], []
     for name in names:
         data = rows[name]
-        rf = np.array([float(r["risk_free"] or 0) for r in data])
+        rf = np.array([float(r.get("risk_free") or 0) for r in data])
         y = np.array([float(r["asset_return"]) for r in data]) - rf
         x = np.array([float(r["market_return"]) for r in data]) - rf
         X = np.column_stack([np.ones_like(x), x])
@@ -94,17 +112,18 @@ def main(out_dir):
             check(f"correlation {i},{j}", u["beta_error_correlation"][i][j], R[i, j])
     betas, ses = np.array(betas), np.array(ses)
 
-    peers = result["peers"]
-    de = np.array([p["debt"] / p["equity_value"] for p in peers])
-    tax = np.array([p["tax_rate"] for p in peers])
-    included = np.array([p["excluded_reason"] is None for p in peers])
-    weight = settings["beta"].get("blume_weight", 0.67) if settings["beta"]["adjustment"] == "blume" else None
-    assert settings["beta"]["adjustment"] in ("blume", "none")
-    market = settings["market"]
-    t = settings["target"]["tax_rate"]
-    target = settings["target"]["debt_to_equity"]
-    kd = settings["debt"]["cost_pre_tax"]
-    premiums = settings["premiums"].get("size", 0) + settings["premiums"].get("company_specific", 0)
+    specs = [case_file.peer_spec(name) for name in names]
+    de = np.array([p["debt"] / p["equity_value"] for p in specs])
+    tax = np.array([p["tax_rate"] for p in specs])
+    # README "[[peer]]", exclude: a peer with a stated reason is shown but not aggregated (the
+    # case lists no exclude_flags, asserted above).
+    included = np.array([p["exclude"] is None for p in specs])
+    weight = setting("beta", "blume_weight") if setting("beta", "adjustment") == "blume" else None
+    rf_rate, erp = setting("market", "risk_free_rate"), setting("market", "equity_risk_premium")
+    t = setting("target", "tax_rate")
+    target = setting("target", "debt_to_equity")
+    kd = setting("debt", "cost_pre_tax")
+    premiums = setting("premiums", "size") + setting("premiums", "company_specific")
     we, wd = 1 / (1 + target), target / (1 + target)
 
     def wacc(raw, members):
@@ -112,7 +131,7 @@ def main(out_dir):
         used = raw if weight is None else weight * raw + (1 - weight)
         unlevered = used / (1 + (1 - tax[members]) * de[members])
         relevered = np.median(unlevered, axis=-1) * (1 + (1 - t) * target)
-        ke = market["risk_free_rate"] + relevered * market["equity_risk_premium"] + premiums
+        ke = rf_rate + relevered * erp + premiums
         return we * ke + wd * kd * (1 - t)
 
     members = np.flatnonzero(included)
