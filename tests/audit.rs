@@ -667,7 +667,7 @@ fn a_new_run_takes_away_the_verification_of_the_receipt_it_replaces() {
 
 // A run into a folder holding another valuation's receipt (a case rolled forward into last
 // quarter's folder) says which receipt it replaced; a rerun of the same valuation says
-// nothing. The demo's WACC is 7.38% (README, The demo case).
+// nothing.
 #[test]
 fn a_run_says_when_it_replaces_another_valuation() {
     let (dir, case_dir) = demo_copy();
@@ -688,6 +688,11 @@ fn a_run_says_when_it_replaces_another_valuation() {
         text(&output)
     };
     run(&[]);
+    // The WACC the message must name is the receipt's own (result.json, whose figures
+    // check_regressions.py recomputes), at two decimals as a percentage.
+    let receipt: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("result.json")).unwrap()).unwrap();
+    let wacc = format!("{:.2}%", receipt["wacc"].as_f64().unwrap() * 100.0);
     assert!(!run(&[]).contains("replaced the receipt"));
     // The same case run from its own folder, the path typed otherwise: the same valuation.
     let here = std::process::Command::new(env!("CARGO_BIN_EXE_hurdle"))
@@ -703,10 +708,10 @@ fn a_run_says_when_it_replaces_another_valuation() {
     );
     let moved = run(&["case.valuation_date=2026-06-30"]);
     assert!(
-        moved.contains(
+        moved.contains(&format!(
             "replaced the receipt of another valuation: ./case.toml, valuation date 2026-09-30, \
-             WACC 7.38%"
-        ),
+             WACC {wacc}"
+        )),
         "{moved}"
     );
     // Another case file of the same title and date (a variant kept beside the case) is
@@ -1522,8 +1527,9 @@ fn a_claimed_build_up_gets_the_plausibility_checks() {
 // Two cases: each side's date, window, peers and unlevered beta are printed under it, the
 // peers aggregated on one side only are named, and a cost of debt built as rf + spread is
 // said to carry part of a risk-free change (found by review of a quarter's roll-forward).
-// The demo's figures (README, The demo case): valuation date 2026-09-30, monthly returns over
-// five years, eight peers, unlevered beta 0.784 (0.7842…, result.json), target D/E 0.40.
+// The demo case states valuation date 2026-09-30, monthly returns over five years, eight
+// peers and target D/E 0.40; its unlevered beta is `hurdle run`'s (whose figures
+// check_regressions.py recomputes), at three decimals.
 #[test]
 fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
     let (_dir, case_dir) = demo_copy();
@@ -1544,11 +1550,15 @@ fn compare_of_two_cases_shows_their_dates_peers_and_debt() {
     let output = hurdle(&["compare", a.to_str().unwrap(), b.to_str().unwrap()]);
     let report = text(&output);
     assert!(output.status.success(), "{report}");
+    let unlevered = number(
+        &run_case(&a, &case_dir.join("a-run"), &[]),
+        "beta.unlevered",
+    );
     assert!(
-        report.contains(
+        report.contains(&format!(
             "     valuation date 2026-09-30, monthly returns 2021-09-30 to 2026-09-30, 8 peers \
-             aggregated, unlevered beta 0.784, target D/E 0.400\n"
-        ),
+             aggregated, unlevered beta {unlevered:.3}, target D/E 0.400\n"
+        )),
         "{report}"
     );
     assert!(report.contains(", 7 peers aggregated, "), "{report}");
@@ -2380,7 +2390,13 @@ fn implied_reads_the_claimed_wacc_from_a_claim_file() {
     ]));
     assert_eq!(exact_line(&by_components, ""), exact_line(&by_wacc, ""));
     // A case given as the claim states no WACC: hurdle computes it (found by review: it was
-    // said to be "as it states"). The demo's WACC is 7.378%, 7.38% in README (The demo case).
+    // said to be "as it states"): the WACC of `hurdle run` on it, whose figures
+    // check_regressions.py recomputes, at three decimals.
+    let computed = run_case(&case, &dir.path().join("case-run"), &[]);
+    let computed = format!(
+        "WACC {:.3}% as hurdle computes the case",
+        number(&computed, "wacc") * 100.0
+    );
     let by_case = text(&hurdle(&[
         "implied",
         case.to_str().unwrap(),
@@ -2389,10 +2405,7 @@ fn implied_reads_the_claimed_wacc_from_a_claim_file() {
         "--solve",
         "erp",
     ]));
-    assert!(
-        by_case.contains("WACC 7.378% as hurdle computes the case"),
-        "{by_case}"
-    );
+    assert!(by_case.contains(&computed), "{computed}\n{by_case}");
 }
 
 // Found by review of an auditor's use: a receipt that lacks a hash blamed the input file, a

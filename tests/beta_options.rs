@@ -106,8 +106,9 @@ fn every_market_coefficient_is_reported() {
         assert!((sum - peer["beta"].as_f64().unwrap()).abs() < 1e-12);
     }
     let sw = run_with(dir.path(), &["beta.method=scholes-williams"]);
-    let rho = sw["peers"][0]["market_autocorrelation"].as_f64().unwrap();
-    assert!((-1.0..=1.0).contains(&rho));
+    // The index's first-order autocorrelation and the three slopes, recomputed by numpy
+    // (corrcoef) and scipy (linregress) from the case's own files.
+    reference_check(dir.path(), "scholes-williams coefficients");
     assert_eq!(
         sw["peers"][0]["market_coefficients"]
             .as_array()
@@ -422,6 +423,23 @@ fn rolling_betas_follow_the_case_estimator_in_every_window() {
     }
 }
 
+// Quarterly sampling (each quarter's last price, the yield at the start of each quarter turned
+// into a quarterly rate) rebuilt from the case's files and refitted by numpy and scipy.
+#[test]
+fn quarterly_returns_and_betas_match_the_reference() {
+    let dir = tempfile::tempdir().unwrap();
+    run_with(
+        dir.path(),
+        &[
+            "beta.frequency=quarterly",
+            "beta.lookback=20",
+            "beta.min_observations=12",
+        ],
+    );
+    let report = reference_check(dir.path(), "quarterly");
+    assert!(report.contains("quarterly simple returns"), "{report}");
+}
+
 // --compare-frequencies: one row per peer, a column per frequency, over the case's own calendar
 // window; the daily column must equal a separate daily run over that window (same figures by
 // construction of the comparison, checked through the command line end to end).
@@ -442,6 +460,8 @@ fn compare_frequencies_prints_every_peer_at_every_frequency() {
             "beta.min_observations=36",
         ],
     );
+    // The daily run itself, rebuilt from the price files and refitted by numpy and scipy.
+    reference_check(dir.path(), "daily");
     for peer in daily["peers"].as_array().unwrap() {
         let name = peer["name"].as_str().unwrap();
         let row = table.lines().find(|l| l.starts_with(name)).unwrap();

@@ -470,6 +470,9 @@ fn check_sensitivity(run: &Run) {
     assert_eq!(fills.len(), cells.len());
     for i in 0..cells.len() {
         for j in 0..cells.len() {
+            // Cells within 1e-12 of each other count as equal: two grid cells of the same WACC
+            // reached by different inputs may differ by a few ulps (about 1e-17 here) and be
+            // shaded either way; 1e-12 is far below the 0.01% the map prints.
             if cells[i] > cells[j] + 1e-12 {
                 assert!(
                     fills[i] <= fills[j],
@@ -593,11 +596,10 @@ fn check_reconciliation(run: &Run) {
         to,
         x.tolerance(),
     );
-    close(
-        "this case's WACC is the result's",
+    assert_eq!(
         from,
         f(&run.result["wacc"]),
-        1e-15,
+        "this case's WACC is the result's"
     );
 }
 
@@ -1448,7 +1450,7 @@ fn peers_named_without_latin_letters_get_charts_by_their_place() {
         "--set",
         "peer.1.name=\"Ωμέγα Δέλτα\"",
         "--set",
-        "peer.2.name=\"東京精密機械\"",
+        "peer.2.name=\"霧港測器計装\"",
     ]);
     let files = run.files();
     let regressions: Vec<&String> = files

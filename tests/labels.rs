@@ -206,7 +206,7 @@ fn old_case_keys_and_option_values_are_refused_with_their_new_names() {
 
 // Blume's form w·β + (1 − w) (Blume 1971, J. Finance 26(1)) with w = 0.5, written out here from
 // each peer's raw beta; the reference script recomputes it (and everything after it) with the
-// weight it reads from result.json's settings.
+// weight it reads from case.toml and the recorded --set overrides.
 #[test]
 fn a_non_default_blume_weight_is_applied() {
     let dir = tempfile::tempdir().unwrap();

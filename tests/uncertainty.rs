@@ -104,8 +104,8 @@ fn specification_rows_equal_separate_set_runs() {
 
 // The specification range's note restates what the rows show beside the intervals: where the
 // case's own row falls among the others and how many lie outside the 90% estimation interval.
-// Recounted here from result.json's rows and percentiles (the note's two-decimal percentages).
-// The demo's own row is the lowest of the nine, two others above the interval's top.
+// Recounted here from result.json's rows and percentiles (the note's two-decimal percentages):
+// the rank, the count and the number outside come from the rows, not from an earlier output.
 #[test]
 fn the_specification_note_places_the_case_among_its_rows() {
     let dir = tempfile::tempdir().unwrap();
@@ -127,17 +127,28 @@ fn the_specification_note_places_the_case_among_its_rows() {
         number(&base, "uncertainty.p95"),
     );
     let outside = others.iter().filter(|&&w| w < p05 || w > p95).count();
-    assert!(others.iter().all(|&w| w > own) && outside == 2, "{rows:?}");
     let low = others.iter().copied().fold(f64::INFINITY, f64::min);
     let high = others.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let which = match (own < low, own > high) {
+        (true, _) => Some("lowest"),
+        (_, true) => Some("highest"),
+        _ => None,
+    };
+    // A guard, not a figure: the demo must take both parts of the note (its own row at an end
+    // of the range, and some rows outside the interval), or this test checks less than it says.
+    assert!(which.is_some() && outside > 0, "{rows:?}");
     let pct = |x: f64| format!("{:.2}%", x * 100.0);
     let expected = format!(
-        "Specification range: the case's own frequency and window give {}, the lowest WACC of \
-         the 9 rows (the others {} to {}); 2 of the other 8 lie outside the 90% interval \
-         of the first Monte Carlo ({} to {})",
+        "Specification range: the case's own frequency and window give {}, the {} WACC of \
+         the {} rows (the others {} to {}); {outside} of the other {} {} outside the 90% \
+         interval of the first Monte Carlo ({} to {})",
         pct(own),
+        which.unwrap(),
+        others.len() + 1,
         pct(low),
         pct(high),
+        others.len(),
+        if outside == 1 { "lies" } else { "lie" },
         pct(p05),
         pct(p95)
     );
@@ -209,7 +220,11 @@ fn a_rolling_beta_that_moved_beyond_its_error_is_noted() {
             assert!(!notes.contains(&prefix), "{peer} z {z}: {notes}");
         }
     }
-    assert_eq!(noted, 1, "the demo has one such peer: {notes}");
+    // A guard that both branches above ran (a peer noted and a peer not), not a figure.
+    assert!(
+        noted >= 1 && noted < by_peer.len(),
+        "the demo must have peers on both sides: {notes}"
+    );
 }
 
 // A case that writes its rolling window (README's default written out: half the 60-period

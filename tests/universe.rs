@@ -124,9 +124,9 @@ fn write_case(dir: &Path, peers: &[(usize, &str)]) -> PathBuf {
 
 // The promise: a security's numbers equal those of a case file with that security as a
 // peer (same window, method, settings). Both go through the same estimate layer, so the figures
-// are the same doubles; the only slack allowed is 2 ulps (4.4e-16 relative), because serde_json's
-// default float parser (without its `float_roundtrip` feature) may read result.json's shortest
-// decimal one ulp off. Any divergence of the pipelines is far larger.
+// are the same doubles, compared bit for bit: securities.csv and result.json write each double as
+// its shortest round-trip decimal, and polars' CSV reader and serde_json (built with
+// `float_roundtrip`) read it back exactly.
 // Checked under three configurations: daily OLS with Hamada; weekly Dimson with HC1 errors, the
 // Blume adjustment and Harris–Pringle; and daily Scholes–Williams on log returns with
 // Newey–West errors, a stated Vasicek prior (a prior from the cross-section differs by design:
@@ -207,8 +207,9 @@ fn each_security_equals_the_case_that_lists_it_as_a_peer() {
             ] {
                 let expected = common::number(peer, case_key);
                 let got = number(&row, column);
-                assert!(
-                    (got - expected).abs() <= 4.5e-16 * expected.abs(),
+                assert_eq!(
+                    got.to_bits(),
+                    expected.to_bits(),
                     "configuration {k}, {id}: {column}: universe {got}, case {expected}"
                 );
             }
@@ -1931,7 +1932,10 @@ fn operations_betas_under_net_debt_count_cash_once() {
         if text_of(&n, "operations_beta").is_empty() {
             continue;
         }
-        // Figures as written to the CSV (17 significant digits); a few ulps of tolerance.
+        // Figures as written to the CSV (read back exactly). 1e-14 relative: the formulas here
+        // order their handful of operations otherwise than hurdle does, each rounding about
+        // 1e-16, so the two agree to a few ulps; 1e-14 (about 45 ulps) is loose for that and
+        // still ten orders below a wrong formula's error.
         let close = |a: f64, b: f64| (a - b).abs() <= 1e-14 * b.abs().max(1.0);
         assert!(close(
             number(&n, "operations_beta"),
@@ -2193,11 +2197,12 @@ fn a_peer_set_across_industries_names_the_tie_and_its_share() {
     let set = &result["peer_set"];
     let value = |i: usize| unlevered[i].parse::<f64>().unwrap();
     let median = (value(a) + value(b)) / 2.0;
-    // 1e-12 relative: the CSV writes each double to its shortest round-trip text, so the
-    // parsed values are the run's own; only the mean's rounding may differ.
+    // 4.5e-16 relative (2 ulps): the CSV writes each double to its shortest round-trip text,
+    // so the parsed values are the run's own; only the mean of the two middle values may round
+    // otherwise ((a + b)/2 against a + (b − a)/2), by an ulp.
     let got = set["figures"]["unlevered_beta"].as_f64().unwrap();
     assert!(
-        (got - median).abs() <= 1e-12 * median.abs(),
+        (got - median).abs() <= 4.5e-16 * median.abs(),
         "{got} {median}"
     );
     assert_eq!(set["home_industry"], "Industry A");

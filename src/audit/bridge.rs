@@ -564,6 +564,8 @@ mod tests {
             ..a
         };
         let values = shapley_values(&a, &b);
+        // 1e-16: each value is a difference of WACCs near 0.07 (ulp 1.4e-17), averaged over the
+        // orders, so symmetric or dummy players agree with each other or with 0 to a few ulps.
         assert!((values[0] - values[1]).abs() < 1e-16);
         assert!(values[2..].iter().all(|v| v.abs() < 1e-16), "{values:?}");
         // Additive game: each value is the group's own effect, wE·0.01 (textbook: Shapley

@@ -266,6 +266,8 @@ def main(out_dir, artifacts):
         check("no script in the page", probe["scripts"] == 0, f"{probe['scripts']} scripts")
         check("every chart inlines a figures/ file",
               sorted(os.path.basename(c["file"]) for c in charts) == figure_files, "files differ")
+        # More than 40 characters: longer than any chart's bare title, so a description that only
+        # repeats the title fails; tests/figures.rs checks what each description says.
         for c in charts:
             check(f"{c['file']} has a title and a description", c["title"].strip() and len(c["desc"]) > 40, c["title"])
         check_slopes(charts, result)
@@ -284,6 +286,8 @@ def main(out_dir, artifacts):
                          {"width": text_width, "height": 1000, "deviceScaleFactor": 1, "mobile": False}, session=session)
             widths = json.loads(browser.send("Runtime.evaluate", {"expression": OVERFLOW, "returnByValue": True},
                                              session=session)["result"]["value"])
+            # One pixel of slack: scrollWidth and clientWidth are integers rounded from fractional
+            # layout widths, so a table that fits exactly can report one pixel more.
             wide = [w for w in widths if w[0] > w[1] + 1]
             check(f"{paper}: every table fits the text width ({text_width} px)", not wide, str(wide))
         browser.send("Emulation.setEmulatedMedia", {"media": ""}, session=session)
@@ -296,6 +300,9 @@ def main(out_dir, artifacts):
             with open(path, "wb") as f:
                 f.write(base64.b64decode(pdf["data"]))
             pages, last, before = last_page_text(path)
+            # The demo's report (a memo of a dozen sections, its tables and every chart) runs to
+            # well over three pages on either paper; three or fewer means the print stylesheet
+            # hid content.
             check(f"{paper}: PDF has several pages", pages > 3, f"{pages} pages")
             check(f"{paper}: the cautions are on the last page",
                   "Cautions" in last and "Not advice" in last and "Statistical error" in last, last[:400])

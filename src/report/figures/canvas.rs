@@ -339,8 +339,8 @@ mod tests {
         }
         // Names without spaces (written without them, as in Japanese) and a difference inside
         // a long word: the character that differs is shown, and the labels differ without
-        // resorting to their places (found by review: "東京精…密機械工… #1").
-        let kanji = ["東京精密機械工業第一製作所", "東京精密機械工業第二製作所"];
+        // resorting to their places (found by review: "霧港測…器計装工… #1").
+        let kanji = ["霧港測器計装工業第一製作所", "霧港測器計装工業第二製作所"];
         let drawn = distinct_middle(&kanji, 12);
         assert_ne!(drawn[0], drawn[1]);
         assert!(

@@ -347,7 +347,7 @@ mod tests {
             "figures/regression-10.svg"
         );
         assert_eq!(
-            regression_file_name(10, "東京精密機械"),
+            regression_file_name(10, "霧港測器計装"),
             "figures/regression-11.svg"
         );
         assert_eq!(
