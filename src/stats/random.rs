@@ -74,13 +74,39 @@ impl Rng {
 mod tests {
     use super::*;
 
-    // Reference outputs of the authors' C code (xoshiro256starstar.c) are not at hand, so check
-    // the published SplitMix64 value instead: from state 0 its first output is
-    // 0xE220A8397B1DCDAF (value recalled from memory of the reference implementation).
+    // SplitMix64 (Steele, Lea and Flood 2014; Vigna's splitmix64.c) from state 0: its first
+    // three outputs as the rand_xoshiro crate's and other ports' tests list them.
     #[test]
-    fn splitmix_matches_reference_first_output() {
+    fn splitmix_matches_reference_outputs() {
         let mut x = 0;
         assert_eq!(splitmix64(&mut x), 0xE220_A839_7B1D_CDAF);
+        assert_eq!(splitmix64(&mut x), 0x6E78_9E6A_A1B9_65F4);
+        assert_eq!(splitmix64(&mut x), 0x06C4_5D18_8009_454F);
+    }
+
+    // xoshiro256** from the state {1, 2, 3, 4}: the first ten outputs of the authors' reference
+    // code (xoshiro256starstar.c), as the rand_xoshiro crate's `reference` test records them.
+    #[test]
+    fn xoshiro_matches_the_reference_outputs() {
+        let mut rng = Rng {
+            state: [1, 2, 3, 4],
+            spare_normal: None,
+        };
+        let expected: [u64; 10] = [
+            11520,
+            0,
+            1509978240,
+            1215971899390074240,
+            1216172134540287360,
+            607988272756665600,
+            16172922978634559625,
+            8476171486693032832,
+            10595114339597558777,
+            2904607092377533576,
+        ];
+        for e in expected {
+            assert_eq!(rng.next_u64(), e);
+        }
     }
 
     // Moments of the normal variates: mean 0, variance 1; with 200 000 draws the standard error
