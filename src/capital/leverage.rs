@@ -114,19 +114,25 @@ impl Formula {
     pub fn debt_beta(self, debt: DebtTerms) -> f64 {
         match self {
             Formula::Hamada => 0.0,
-            _ => debt.debt_beta,
+            Formula::HarrisPringle | Formula::MilesEzzell | Formula::Conine => debt.debt_beta,
         }
     }
 
-    /// Whether the formula needs the cost of debt.
+    /// Whether the formula needs the cost of debt: Miles–Ezzell's tax factor holds it.
     pub fn uses_cost_of_debt(self) -> bool {
-        self == Formula::MilesEzzell
+        match self {
+            Formula::MilesEzzell => true,
+            Formula::Hamada | Formula::HarrisPringle | Formula::Conine => false,
+        }
     }
 
     /// Whether the formula needs the tax rate: all but Harris–Pringle, whose D/E has no tax
     /// factor.
     pub fn uses_tax_rate(self) -> bool {
-        self != Formula::HarrisPringle
+        match self {
+            Formula::HarrisPringle => false,
+            Formula::Hamada | Formula::MilesEzzell | Formula::Conine => true,
+        }
     }
 
     /// The name and source printed in the memo.

@@ -17,7 +17,7 @@ use hurdle::io::tables::{header_key, PriceTable, NAME_THE_DATE_COLUMN, NAME_THE_
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
-    /// The price table: .csv, .parquet, .xlsx, .xlsm, .xls or .ods.
+    /// The price table: .csv, .txt, .parquet, .xlsx, .xlsm, .xls or .ods.
     pub table: PathBuf,
     /// The column holding the market index; every other column becomes a peer.
     #[arg(long, value_name = "COLUMN")]

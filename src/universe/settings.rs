@@ -270,12 +270,18 @@ pub fn validate(universe: &UniverseFile) -> std::result::Result<(), String> {
                 .into(),
         );
     }
-    if leverage.formula == Formula::MilesEzzell {
-        return Err(
-            "leverage.formula = \"miles-ezzell\" needs each firm's cost of debt, which a universe \
-             does not take; use \"hamada\", \"harris-pringle\" or \"conine\""
-                .into(),
-        );
+    if leverage.formula.uses_cost_of_debt() {
+        let mut usable: Vec<String> = (Formula::ALL.iter())
+            .filter(|f| !f.uses_cost_of_debt())
+            .map(|f| format!("\"{}\"", crate::case::label(f)))
+            .collect();
+        let last = usable.pop().unwrap_or_default();
+        return Err(format!(
+            "leverage.formula = \"{}\" needs each firm's cost of debt, which a universe does \
+             not take; use {} or {last}",
+            crate::case::label(&leverage.formula),
+            usable.join(", ")
+        ));
     }
     let needs_cash =
         leverage.operations_beta || leverage.debt_measure == crate::case::DebtMeasure::Net;

@@ -174,7 +174,12 @@ fn return_and_beta_settings(r: &UniverseResult) -> String {
             fixed(prior.mean, 3),
             fixed(prior.variance, 4)
         ),
-        _ => "Adjustment: none; βU is unlevered from the raw beta.".to_string(),
+        (crate::beta::Adjustment::Vasicek, None) => {
+            "Adjustment: Vasicek, but no security was estimated to give it a prior.".to_string()
+        }
+        (crate::beta::Adjustment::None, _) => {
+            "Adjustment: none; βU is unlevered from the raw beta.".to_string()
+        }
     };
     let debt = match s.leverage.debt_beta_source {
         crate::capital::leverage::DebtBetaSource::Given => format!(
