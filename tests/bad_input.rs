@@ -300,6 +300,27 @@ fn zero_variance_market_returns() {
     assert_mentions(&stderr, &["zero variance", "data/index.csv"]);
 }
 
+// An index that grows by one fixed rate has one return in every period, so zero variance; as
+// computed, 1000·1.005ⁿ gives returns that differ in their last bits (4e-16 apart), which must
+// not pass for variation (found by review: such an index gave a beta of −7e13 and a WACC of
+// −2.6e12 with exit 0). Every row of a month gets that month's price, 1000·1.005^(months since
+// 2000), so the demo's monthly returns are all 0.5%.
+#[test]
+fn an_index_growing_at_one_fixed_rate_has_zero_variance() {
+    let case = CaseCopy::new();
+    case.edit_lines("data/index.csv", |lines| {
+        for line in lines.iter_mut().skip(1) {
+            let date = line.split(',').next().unwrap().to_string();
+            let (year, month): (i32, i32) =
+                (date[..4].parse().unwrap(), date[5..7].parse().unwrap());
+            let months = (year - 2000) * 12 + month;
+            *line = format!("{date},{}", 1000.0 * 1.005_f64.powi(months));
+        }
+    });
+    let stderr = case.fail(&[]);
+    assert_mentions(&stderr, &["zero variance", "data/index.csv", "all 0.005"]);
+}
+
 #[test]
 fn tax_rate_outside_unit_interval() {
     let case = CaseCopy::new();

@@ -401,18 +401,25 @@ pub struct AlignedReturns {
     pub market_shifted: Vec<ShiftedMarket>,
 }
 
+/// Whether period returns are all the same to the rounding of computing them: a return
+/// p₁/p₀ − 1 (or its logarithm) is rounded to within a few ulps of 1 + r, so returns within
+/// 16 ε·(1 + |r|) of the first are the same (a price that never moves, or one that grows by one
+/// fixed rate, 100·1.005ⁿ, whose returns differ by 4e-16). `false` without returns.
+pub fn constant_up_to_rounding(returns: &[f64]) -> bool {
+    returns.first().is_some_and(|&first| {
+        let rounding = 16.0 * f64::EPSILON * (1.0 + first.abs());
+        returns.iter().all(|&r| (r - first).abs() <= rounding)
+    })
+}
+
 impl AlignedReturns {
     /// Whether the asset's returns (before any risk-free rate) are all the same, to the
     /// rounding of computing them: a price that never moves over the aligned periods, or one
     /// that grows by one fixed rate (found by review: 20·1.001ⁿ was estimated, its beta
-    /// −2e-16 entering its industry), whose beta of 0 and undefined R² carry no information.
-    /// A return p₁/p₀ − 1 (or its logarithm) is rounded to within a few ulps of 1 + r, so
-    /// returns within 16 ε·(1 + |r|) of the first are the same. `false` without returns.
+    /// −2e-16 entering its industry), whose beta of 0 and undefined R² carry no information
+    /// ([`constant_up_to_rounding`]).
     pub fn asset_is_constant(&self) -> bool {
-        self.asset.first().is_some_and(|&first| {
-            let rounding = 16.0 * f64::EPSILON * (1.0 + first.abs());
-            self.asset.iter().all(|&r| (r - first).abs() <= rounding)
-        })
+        constant_up_to_rounding(&self.asset)
     }
 
     /// Asset returns less the risk-free rate (or the raw returns, borrowed, when there is none).

@@ -231,12 +231,12 @@ pub fn check_index_returns(
             index.last_date
         ));
     }
-    if present.iter().all(|&r| r == present[0]) {
+    if crate::market::sampling::constant_up_to_rounding(&present) {
         return fail(format!(
-            "the index's {} returns in the window are all {}: an index with zero variance \
-             measures no beta",
+            "the index's {} returns in the window are all {} (to the rounding of computing \
+             them): an index with zero variance measures no beta",
             present.len(),
-            show(present[0])
+            show((present[0] * 1e12).round() / 1e12)
         ));
     }
     Ok(())
