@@ -16,6 +16,15 @@ use crate::stats::least_squares::{
 
 use super::{finish, BetaEstimate, MarketCoefficient};
 
+/// The least 1 + 2ρ the estimator divides by: below it (an index autocorrelation ρ under
+/// −0.4) the beta is not computed. As ρ nears −1/2 the divisor vanishes and the beta grows
+/// without bound (found by review: ρ = −0.5014 gave a beta of 68.6 with a p-value of 2e-4, and
+/// ρ = −0.5015 a beta of −19). Non-synchronous trading, which the method corrects, makes an
+/// index's returns positively autocorrelated (Lo and MacKinlay 1990, J. Econometrics 45, from
+/// memory), so an index this strongly negatively autocorrelated is outside what the method is
+/// for: the sample, or a rolling window, is refused, not corrected.
+pub const MIN_DIVISOR: f64 = 0.2;
+
 /// The Scholes–Williams beta on the sample where the previous and the next market returns are
 /// known (`shifted` must hold offsets −1 and +1). ρ is the Pearson correlation of m(t) and
 /// m(t − 1) over that sample.
@@ -65,6 +74,17 @@ pub fn scholes_williams_beta(
         .collect();
     let rho = correlation(market, lag);
     let scale = 1.0 + 2.0 * rho;
+    if !(scale >= MIN_DIVISOR) {
+        return Err(Error::Regression(format!(
+            "the index's first-order autocorrelation over these {n} returns is {}, so the \
+             Scholes-Williams divisor 1 + 2ρ is {}, below {MIN_DIVISOR}: the beta divides the \
+             slopes by it and would be unbounded (an index return that moves against its own \
+             last one this strongly is not the non-synchronous trading the method corrects); \
+             use beta.method = \"dimson\"",
+            crate::error::rounded(rho, 3),
+            crate::error::rounded(scale, 3)
+        )));
+    }
     let beta_weights: Vec<f64> = (0..n)
         .map(|t| (weights[0][t] + weights[1][t] + weights[2][t]) / scale)
         .collect();
@@ -114,4 +134,35 @@ fn correlation(x: &[f64], y: &[f64]) -> f64 {
     let sxx: f64 = x.iter().map(|a| (a - mx) * (a - mx)).sum();
     let syy: f64 = y.iter().map(|b| (b - my) * (b - my)).sum();
     sxy / (sxx * syy).sqrt()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // An index that alternates up and down (ρ about −0.97, so 1 + 2ρ about −0.9) is refused,
+    // the divisor and the bound named.
+    #[test]
+    fn a_strongly_negatively_autocorrelated_index_is_refused() {
+        let n = 40;
+        let all: Vec<f64> = (0..n + 2)
+            .map(|t| if t % 2 == 0 { 0.04 } else { -0.03 } + 0.001 * (t % 3) as f64)
+            .collect();
+        let market = all[1..=n].to_vec();
+        let asset: Vec<f64> = market.iter().map(|m| 1.1 * m + 0.002).collect();
+        let shifted = vec![
+            ShiftedMarket {
+                offset: -1,
+                returns: all[0..n].to_vec(),
+            },
+            ShiftedMarket {
+                offset: 1,
+                returns: all[2..n + 2].to_vec(),
+            },
+        ];
+        let refused = scholes_williams_beta(&asset, &market, &shifted, StdErrors::Classical, 0);
+        let message = refused.unwrap_err().to_string();
+        assert!(message.contains("divisor 1 + 2ρ is -0.9"), "{message}");
+        assert!(message.contains("below 0.2"), "{message}");
+    }
 }

@@ -251,6 +251,11 @@ impl Moments {
             |a: usize, b: usize| self.second(a, b) - self.second(0, a) * self.second(0, b) / n;
         let rho = centred(current, lag) / (centred(current, current) * centred(lag, lag)).sqrt();
         let scale = 1.0 + 2.0 * rho;
+        // A window whose divisor is below the estimator's bound is skipped, as the whole
+        // sample would be refused (`scholes_williams::MIN_DIVISOR`).
+        if !(scale >= crate::beta::scholes_williams::MIN_DIVISOR) {
+            return None;
+        }
         let mut g = vec![0.0; k];
         let mut beta = 0.0;
         for column in [lag, current, lead] {
