@@ -1230,6 +1230,23 @@ fn case_files() -> Vec<Bad> {
             ["case.toml", "risk_free_rate"]
         ),
         bad!(
+            "Vasicek prior mean beyond any industry's beta",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "beta.adjustment=vasicek",
+                "--set",
+                "beta.vasicek_prior_mean=1e10",
+                "--set",
+                "beta.vasicek_prior_variance=0.1"
+            ],
+            ["beta.vasicek_prior_mean", "10000000000", "[-1, 5)"]
+        ),
+        bad!(
             "rate as text",
             |s| {
                 let (_, rate) = case_key(s, "risk_free_rate");

@@ -77,9 +77,10 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
     }
     match (beta.vasicek_prior_mean, beta.vasicek_prior_variance) {
         (Some(m), Some(v)) => {
-            if !m.is_finite() {
-                return Err(format!("beta.vasicek_prior_mean = {m} is not a number"));
-            }
+            // The prior is a mean of equity betas; hurdle's bound [−1, 5) holds any industry's
+            // (common practice: industry betas lie roughly between 0.3 and 2) and refuses a typo
+            // (found by review: 1e10 ran to a WACC of 1.4e8).
+            rate("beta.vasicek_prior_mean", m, -1.0, 5.0)?;
             if !(v.is_finite() && v > 0.0) {
                 return Err(format!(
                     "beta.vasicek_prior_variance = {v} must be a positive number"
