@@ -231,6 +231,21 @@ fn bad_estimator_options_are_named() {
             "a quarter of the window's 8 periods (2)",
         ],
     );
+    // Scholes–Williams's lead drops the window's last period: a 9-period window leaves 8
+    // returns, and its 2 shifted columns reach 8/4 = 2 (found by review: it passed validation
+    // and every peer then failed).
+    rejects(
+        &[
+            "beta.lookback=9",
+            "beta.min_observations=3",
+            "beta.method=scholes-williams",
+        ],
+        &[
+            "2 shifted columns",
+            "a quarter of the window's 8 usable periods (9 less the last 1",
+            "(2)",
+        ],
+    );
     rejects(
         &["peer.0.exclude=\"  \""],
         &["peer.0.exclude", "Brenvale Fluid Systems"],

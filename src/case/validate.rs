@@ -34,8 +34,11 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
     let (lags, leads) = beta.market_lags_and_leads();
     // Each shifted market column costs a coefficient and an end period. N/4 is hurdle's own
     // bound, not a published rule: it leaves more than four observations for each shifted column,
-    // so the slopes and their standard errors are not fitted to a handful of points.
-    if 4 * (lags + leads) >= lookback {
+    // so the slopes and their standard errors are not fitted to a handful of points. Leads never
+    // pass the window's end, so its last `leads` periods give no return: N is at most
+    // lookback − leads (the estimator applies the same bound to the N it has).
+    let usable = lookback.saturating_sub(leads);
+    if 4 * (lags + leads) >= usable {
         // Scholes–Williams always takes one lag and one lead; only Dimson's are keys to lower.
         let columns = match beta.method {
             BetaMethod::ScholesWilliams => "beta.method = \"scholes-williams\" uses one lagged \
@@ -43,10 +46,17 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
                 .to_string(),
             _ => format!("beta.dimson_lags + beta.dimson_leads = {}", lags + leads),
         };
-        let quarter = f64::from(lookback) / 4.0;
+        let quarter = f64::from(usable) / 4.0;
+        let periods = match leads {
+            0 => format!("{lookback} periods"),
+            _ => format!(
+                "{usable} usable periods ({lookback} less the last {leads}, which a lead \
+                 would take past the window's end)"
+            ),
+        };
         return Err(format!(
-            "{columns} is at least a quarter of the window's {lookback} periods ({quarter}): \
-             too many shifted market columns; lengthen the window"
+            "{columns} is at least a quarter of the window's {periods} ({quarter}): too many \
+             shifted market columns; lengthen the window"
         ));
     }
     if beta.method == BetaMethod::Dimson && lags + leads == 0 {
