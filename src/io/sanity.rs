@@ -16,6 +16,9 @@ pub enum ValueKind {
     Yield,
 }
 
+/// The least and the greatest price read: see [`ValueKind::broken_rule`].
+pub const PRICE_RANGE: (f64, f64) = (1e-100, 1e100);
+
 impl ValueKind {
     /// The rule `value` breaks, in words, or `None` when it lies in the kind's range: one rule
     /// for price and yield files, wide tables and panels.
@@ -26,6 +29,12 @@ impl ValueKind {
                 ValueKind::Yield => "a yield must be a finite number",
             }),
             ValueKind::Price if value <= 0.0 => Some("a price must be positive"),
+            // hurdle's bound: the ratio of any two prices in it is a finite number, so no return
+            // overflows (found by review: a move from 7e-201 to 7e199, accepted as a jump, made
+            // an infinite return and a message that named no file); every traded price lies in it.
+            ValueKind::Price if !(PRICE_RANGE.0..=PRICE_RANGE.1).contains(&value) => {
+                Some("a price must lie between 1e-100 and 1e100")
+            }
             ValueKind::Yield if value <= -1.0 => Some("a yield must be above -1 (−100%)"),
             _ => None,
         }
