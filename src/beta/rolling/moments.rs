@@ -19,6 +19,21 @@ use nalgebra::{DMatrix, DVector};
 
 use crate::stats::least_squares::StdErrors;
 
+/// A window's answer from the moment sums.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) enum WindowFit {
+    /// The beta and its standard error.
+    Estimate(f64, f64),
+    /// No estimate (too few observations, a divisor below its bound).
+    Skip,
+    /// The sums cannot be trusted for this window: its design is nearly collinear, or its
+    /// residual sum of squares, a difference of two sums, is below 1e-8 of the returns' own
+    /// sum of squares, where the subtraction has lost more than half the digits (found by
+    /// review: a window fitting to 1e-10 reported a standard error of exactly 0). The caller
+    /// refits the window's rows by QR.
+    Refit,
+}
+
 /// How a window's beta is read from its coefficients.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub(crate) enum Combination {
@@ -167,26 +182,28 @@ impl Moments {
     }
 
     /// The window's beta and its standard error of the kind asked (`newey_west_lags` for
-    /// Newey–West, at most the `max_lag` given to [`Moments::new`]), or `None` when the window's
-    /// design is (nearly) collinear or leaves no degree of freedom.
+    /// Newey–West, at most the `max_lag` given to [`Moments::new`]); [`WindowFit::Refit`] when
+    /// the sums cannot give it to working precision, [`WindowFit::Skip`] when the window has no
+    /// estimate.
     pub(crate) fn beta(
         &self,
         combination: Combination,
         kind: StdErrors,
         newey_west_lags: usize,
-    ) -> Option<(f64, f64)> {
+    ) -> WindowFit {
         let k = self.dimension - 1;
-        let n = self.count() as f64;
         if self.count() <= k {
-            return None;
+            return WindowFit::Skip;
         }
         let xtx = DMatrix::from_fn(k, k, |i, j| self.second(i, j));
         let scale: Vec<f64> = (0..k).map(|i| xtx[(i, i)].sqrt()).collect();
         if scale.iter().any(|s| !(s.is_finite() && *s > 0.0)) {
-            return None;
+            return WindowFit::Refit;
         }
         let equilibrated = DMatrix::from_fn(k, k, |i, j| xtx[(i, j)] / (scale[i] * scale[j]));
-        let factor = equilibrated.cholesky()?;
+        let Some(factor) = equilibrated.cholesky() else {
+            return WindowFit::Refit;
+        };
         let diagonal = factor.l_dirty().diagonal();
         let (smallest, largest) = diagonal
             .iter()
@@ -194,8 +211,23 @@ impl Moments {
                 (lo.min(*d), hi.max(*d))
             });
         if smallest < 1e-6 * largest {
-            return None;
+            return WindowFit::Refit;
         }
+        self.solved(combination, kind, newey_west_lags, &xtx, &scale, &factor)
+    }
+
+    /// [`Moments::beta`] once the window's design has a well-conditioned factor.
+    fn solved(
+        &self,
+        combination: Combination,
+        kind: StdErrors,
+        newey_west_lags: usize,
+        xtx: &DMatrix<f64>,
+        scale: &[f64],
+        factor: &nalgebra::Cholesky<f64, nalgebra::Dyn>,
+    ) -> WindowFit {
+        let k = self.dimension - 1;
+        let n = self.count() as f64;
         // Solves XᵀX·v = r through the equilibrated factor.
         let solve = |r: &[f64]| -> Vec<f64> {
             let scaled = DVector::from_fn(k, |i, _| r[i] / scale[i]);
@@ -204,8 +236,10 @@ impl Moments {
         };
         let xty: Vec<f64> = (0..k).map(|i| self.second(i, k)).collect();
         let b = solve(&xty);
-        let ssr =
-            (self.second(k, k) - b.iter().zip(&xty).map(|(c, v)| c * v).sum::<f64>()).max(0.0);
+        let ssr = self.second(k, k) - b.iter().zip(&xty).map(|(c, v)| c * v).sum::<f64>();
+        if !(ssr >= 1e-8 * self.second(k, k)) {
+            return WindowFit::Refit;
+        }
         let (beta, g) = match combination {
             Combination::SumOfSlopes => {
                 let mut c = vec![1.0; k];
@@ -213,7 +247,10 @@ impl Moments {
                 (b[1..].iter().sum::<f64>(), solve(&c))
             }
             Combination::ScholesWilliams { lag, current, lead } => {
-                self.scholes_williams(lag, current, lead)?
+                match self.scholes_williams(lag, current, lead) {
+                    Some(fit) => fit,
+                    None => return WindowFit::Skip,
+                }
             }
         };
         let variance = match kind {
@@ -237,8 +274,10 @@ impl Moments {
                 meat
             }
         };
-        (beta.is_finite() && variance.is_finite() && variance >= 0.0)
-            .then(|| (beta, variance.sqrt()))
+        match beta.is_finite() && variance.is_finite() && variance >= 0.0 {
+            true => WindowFit::Estimate(beta, variance.sqrt()),
+            false => WindowFit::Skip,
+        }
     }
 
     /// The Scholes–Williams beta and its weights g on (1, m₋₁, m₀, m₊₁): the estimator is
