@@ -204,26 +204,38 @@ fn missing_price_file() {
     assert_mentions(&stderr, &["data/peers/dunmere_missing.csv"]);
 }
 
-// A window just long enough for the case's check (2 shifted columns, 4·2 < 9 periods) but whose
-// peer keeps 8 returns: Scholes–Williams always takes one lag and one lead, so the message may
-// not send the user to Dimson's keys, which change nothing here (found by review).
+// A window just long enough for the case's check (2 shifted columns, 4·2 below the 9 periods a
+// 10-period window keeps after its lead) but whose peer keeps fewer returns (a month of prices
+// missing drops the returns into and out of it): Scholes–Williams always takes one lag and one
+// lead, so the message may not send the user to Dimson's keys, which change nothing here (found
+// by review). A 9-period window is refused by the case's own check, also without Dimson's keys.
 #[test]
 fn a_short_scholes_williams_window_names_no_dimson_key() {
     let case = CaseCopy::new();
-    let stderr = case.fail(&[
-        "--set",
-        "beta.method=scholes-williams",
-        "--set",
-        "beta.lookback=9",
-        "--set",
-        "beta.min_observations=3",
-        "--set",
-        "beta.rolling_window=3",
-    ]);
+    case.edit_lines(PEER_FILE, |lines| {
+        lines.retain(|l| !l.starts_with("2026-05"))
+    });
+    let sets = |lookback: &str| {
+        [
+            "--set",
+            "beta.method=scholes-williams",
+            "--set",
+            &format!("beta.lookback={lookback}"),
+            "--set",
+            "beta.min_observations=3",
+            "--set",
+            "beta.rolling_window=3",
+        ]
+        .map(String::from)
+    };
+    let stderr = case.fail(&sets("10").each_ref().map(String::as_str));
     assert_mentions(
         &stderr,
         &["N/4", "Scholes–Williams always uses one lag and one lead"],
     );
+    assert!(!stderr.contains("dimson"), "{stderr}");
+    let stderr = case.fail(&sets("9").each_ref().map(String::as_str));
+    assert_mentions(&stderr, &["8 usable periods", "lengthen the window"]);
     assert!(!stderr.contains("dimson"), "{stderr}");
 }
 
