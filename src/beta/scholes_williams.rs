@@ -74,7 +74,7 @@ pub fn scholes_williams_beta(
         .collect();
     let rho = correlation(market, lag);
     let scale = 1.0 + 2.0 * rho;
-    if !(scale >= MIN_DIVISOR) {
+    if scale.is_nan() || scale < MIN_DIVISOR {
         return Err(Error::Regression(format!(
             "the index's first-order autocorrelation over these {n} returns is {}, so the \
              Scholes-Williams divisor 1 + 2ρ is {}, below {MIN_DIVISOR}: the beta divides the \

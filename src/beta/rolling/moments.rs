@@ -237,7 +237,7 @@ impl Moments {
         let xty: Vec<f64> = (0..k).map(|i| self.second(i, k)).collect();
         let b = solve(&xty);
         let ssr = self.second(k, k) - b.iter().zip(&xty).map(|(c, v)| c * v).sum::<f64>();
-        if !(ssr >= 1e-8 * self.second(k, k)) {
+        if ssr.is_nan() || ssr < 1e-8 * self.second(k, k) {
             return WindowFit::Refit;
         }
         let (beta, g) = match combination {
@@ -292,7 +292,7 @@ impl Moments {
         let scale = 1.0 + 2.0 * rho;
         // A window whose divisor is below the estimator's bound is skipped, as the whole
         // sample would be refused (`scholes_williams::MIN_DIVISOR`).
-        if !(scale >= crate::beta::scholes_williams::MIN_DIVISOR) {
+        if scale.is_nan() || scale < crate::beta::scholes_williams::MIN_DIVISOR {
             return None;
         }
         let mut g = vec![0.0; k];
