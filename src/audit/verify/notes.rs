@@ -98,7 +98,22 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 6] = [
+const KNOWN_CHANGES: [KnownChange; 7] = [
+    KnownChange {
+        version: "0.7.0",
+        kind: "case",
+        paths: &["uncertainty.peer_set"],
+        explain: |_, _| {
+            Some(
+                "hurdle 0.7.0 resamples the peers' estimates for the peer-set interval without \
+                 drawing their betas again: the spread between the peers' estimates already \
+                 holds each one's estimation error, which an earlier version counted twice, so \
+                 its interval was wider (README, Changelog, \"Findings of a numerical, a \
+                 test-suite and a statistician's review\")"
+                    .to_string(),
+            )
+        },
+    },
     KnownChange {
         version: "0.6.0",
         kind: "case",
