@@ -491,6 +491,61 @@ fn a_folder_without_an_earlier_receipt_keeps_files_named_like_outputs() {
     }
 }
 
+// A file an earlier run's receipt marks as an output but this run reads (its template, here
+// kept as `report.html`) is kept, and not listed as removed (found by review: "removed …" was
+// printed for files that stayed).
+#[test]
+fn a_kept_input_is_not_listed_as_removed() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    let first = run_into(&sandbox, &out, &[]);
+    assert!(first.status.success(), "{}", stderr(&first));
+    let template = out.join("report.html");
+    fs::copy(
+        concat!(env!("CARGO_MANIFEST_DIR"), "/templates/memo.md.j2"),
+        &template,
+    )
+    .unwrap();
+    let second = run_into(
+        &sandbox,
+        &out,
+        &["--no-figures", "--template", template.to_str().unwrap()],
+    );
+    assert!(second.status.success(), "{}", stderr(&second));
+    let listed = String::from_utf8_lossy(&second.stdout);
+    assert!(template.is_file(), "{listed}");
+    assert!(!listed.contains("report.html"), "{listed}");
+    assert!(
+        listed.contains("removed") && listed.contains("betas.svg"),
+        "{listed}"
+    );
+}
+
+// An input reached under an output's name by another path is the input: a hard link of a
+// price file named `peers.csv` in the output folder is refused like the file itself (on Unix,
+// by device and inode; found by review: through a bind mount of the data folder such a file
+// was overwritten), and the price file is left as it was.
+#[cfg(unix)]
+#[test]
+fn an_input_reached_by_another_path_is_not_overwritten() {
+    let sandbox = Sandbox::new();
+    let out = sandbox.root.path().join("out");
+    fs::create_dir_all(&out).unwrap();
+    let prices = sandbox.path("data/peers/brenvale.csv");
+    let before = fs::read(&prices).unwrap();
+    fs::hard_link(&prices, out.join("peers.csv")).unwrap();
+    let run = run_into(&sandbox, &out, &["--no-figures"]);
+    assert_eq!(run.status.code(), Some(2), "{}", stderr(&run));
+    let message = stderr(&run);
+    assert!(
+        message.contains("writing peers.csv there would overwrite")
+            && message.contains("which this run reads"),
+        "{message}"
+    );
+    assert_eq!(fs::read(&prices).unwrap(), before);
+    assert!(!out.join("result.json").exists());
+}
+
 // A placeholder where a number or a date belongs (as `hurdle init` writes them) is filled by a
 // `--set` of that key (README: "A `--set` that gives the key a value counts as filled"): the
 // run then equals the demo's with the figures written in (same inputs, same bits). Left

@@ -50,9 +50,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
     let stale = report::stale_run_outputs(&out, &names, earlier.as_ref());
-    for name in &stale {
-        stage.retire(name);
-    }
+    let stale: Vec<String> = stale
+        .into_iter()
+        .filter(|name| stage.retire(name))
+        .collect();
     let written = stage.commit(&names)?;
     print!("{}", summary(&valuation));
     for path in written {

@@ -58,9 +58,10 @@ pub fn write_outputs_replacing(
     let stale: Vec<String> = (optional.iter().map(|name| name.to_string()))
         .filter(|name| earlier && !names.contains(name) && dir.join(name).is_file())
         .collect();
-    for name in &stale {
-        stage.retire(name);
-    }
+    let stale: Vec<String> = stale
+        .into_iter()
+        .filter(|name| stage.retire(name))
+        .collect();
     Ok((stage.commit(&names)?, stale))
 }
 
@@ -120,8 +121,8 @@ type Flush = Option<JoinHandle<std::io::Result<()>>>;
 /// One group of output files on its way into `dir`.
 pub struct Stage {
     dir: PathBuf,
-    /// The files the run reads, canonical, with their roles.
-    inputs: Vec<(PathBuf, String)>,
+    /// The files the run reads, canonical, with their identities ([`file_id`]) and roles.
+    inputs: Vec<(PathBuf, Option<FileId>, String)>,
     /// Folders created for the outputs (outermost first), removed again on failure.
     created: Vec<PathBuf>,
     staging: Option<tempfile::TempDir>,
@@ -144,7 +145,9 @@ impl Stage {
         }
         let inputs = reads
             .iter()
-            .filter_map(|(path, role)| Some((fs::canonicalize(path).ok()?, role.clone())))
+            .filter_map(|(path, role)| {
+                Some((fs::canonicalize(path).ok()?, file_id(path), role.clone()))
+            })
             .collect();
         let created = create_missing(dir)?;
         let lock = lock_folder(dir).inspect_err(|_| {
@@ -176,12 +179,17 @@ impl Stage {
             .path()
     }
 
-    /// The role of the file at `canonical` when this run reads it.
-    fn input_role(&self, canonical: &Path) -> Option<&String> {
+    /// The role of the file at `path` when this run reads it: the same canonical path, or the
+    /// same file reached by another path (a bind mount, a hard link; found by review: an output
+    /// folder that reached the data folder through a bind mount had a price file named
+    /// `peers.csv` overwritten).
+    fn input_role(&self, path: &Path) -> Option<&String> {
+        let canonical = fs::canonicalize(path).ok()?;
+        let id = file_id(path);
         self.inputs
             .iter()
-            .find(|(input, _)| input == canonical)
-            .map(|(_, role)| role)
+            .find(|(input, input_id, _)| *input == canonical || (id.is_some() && *input_id == id))
+            .map(|(_, _, role)| role)
     }
 
     /// Refuses a target that is an input or a folder.
@@ -190,7 +198,7 @@ impl Stage {
         let Ok(canonical) = fs::canonicalize(&target) else {
             return Ok(()); // Nothing there yet, so nothing to overwrite.
         };
-        if let Some(role) = self.input_role(&canonical) {
+        if let Some(role) = self.input_role(&target) {
             return Err(refusal(
                 &self.dir,
                 format!(
@@ -244,13 +252,14 @@ impl Stage {
 
     /// Marks a file of an earlier group in the folder, which this group does not write, to be
     /// taken away with the commit: set aside with the replaced files, so that a failed commit
-    /// puts it back. A file this run reads is never taken away.
-    pub fn retire(&mut self, name: &str) {
-        let reads_it = fs::canonicalize(self.dir.join(name))
-            .is_ok_and(|canonical| self.input_role(&canonical).is_some());
+    /// puts it back. A file this run reads is never taken away; returns whether the file is
+    /// to be taken away, so that only those are reported as removed.
+    pub fn retire(&mut self, name: &str) -> bool {
+        let reads_it = self.input_role(&self.dir.join(name)).is_some();
         if !reads_it {
             self.retired.push(name.to_string());
         }
+        !reads_it
     }
 
     /// Waits for every flush, then moves the files named in `names` (each added) into place, in
@@ -397,7 +406,10 @@ fn lock_folder(dir: &Path) -> Result<Option<fs::File>> {
     }
 }
 
-/// A temporary folder beside `dir` (inside it when its parent is not writable).
+/// A temporary folder beside `dir`, or inside it when its parent is not writable or a file
+/// cannot be moved from beside it into it (a mount point, a container's volume, a symbolic link
+/// to another disk; found by review: every run into a mounted folder failed with "Invalid
+/// cross-device link").
 fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
     let parent = dir
         .parent()
@@ -408,10 +420,41 @@ fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
         b.prefix(".hurdle-staging-");
         b
     };
-    builder()
-        .tempdir_in(parent)
+    let beside = || {
+        let staging = builder().tempdir_in(parent)?;
+        moves_into(staging.path(), dir)?;
+        Ok::<_, std::io::Error>(staging)
+    };
+    beside()
         .or_else(|_| builder().tempdir_in(dir))
         .map_err(io_error(dir, "cannot create a temporary folder beside"))
+}
+
+/// Whether an entry of `staging` can be moved into `dir` (not across file systems or mounts,
+/// which a bind mount of the same file system also refuses): an empty folder is moved there and
+/// removed again.
+fn moves_into(staging: &Path, dir: &Path) -> std::io::Result<()> {
+    let probe = staging.join("probe");
+    fs::create_dir(&probe)?;
+    let name = staging.file_name().unwrap_or_default().to_string_lossy();
+    let there = dir.join(format!("{name}-probe"));
+    fs::rename(&probe, &there)?;
+    fs::remove_dir(&there)
+}
+
+/// A file's identity: its device and inode on Unix, so that one file reached by two paths is
+/// known as one; `None` elsewhere (the canonical path alone then decides).
+type FileId = (u64, u64);
+
+#[cfg(unix)]
+fn file_id(path: &Path) -> Option<FileId> {
+    use std::os::unix::fs::MetadataExt;
+    fs::metadata(path).ok().map(|m| (m.dev(), m.ino()))
+}
+
+#[cfg(not(unix))]
+fn file_id(_: &Path) -> Option<FileId> {
+    None
 }
 
 /// Removes the replaced files kept in `staging/previous`, side by side: freeing a file's blocks
