@@ -107,6 +107,31 @@ const SMALL_TABLE: &[&[&str]] = &[
 // peer column whose values all lie between -1 and 1 (naming it and the option), writes the same
 // warning beside the peer in the case, and still exits 0: a low-priced security's prices can lie
 // below 1 as well, so refusing would leave such a table no way through init.
+// The starting case is created as the run's outputs are, readable by others less the umask
+// (found by review: it was written 0600, from a temporary file's mode), and init leaves no
+// temporary folder beside it.
+#[cfg(unix)]
+#[test]
+fn the_starting_case_is_readable_as_outputs_are() {
+    use std::os::unix::fs::PermissionsExt;
+    let folder = Folder::new();
+    let table = folder.path("prices.csv");
+    fs::copy(Path::new(WIDE_DIR).join("data/prices.csv"), &table).unwrap();
+    folder.init_ok(&table, &["--index", INDEX_COLUMN]);
+    let case_mode = fs::metadata(folder.path("case.toml")).unwrap().permissions().mode();
+    // A file the test creates gets 0666 less the same umask: the case must match it.
+    let plain = folder.path("plain.txt");
+    fs::write(&plain, "x").unwrap();
+    let plain_mode = fs::metadata(&plain).unwrap().permissions().mode();
+    assert_eq!(case_mode & 0o777, plain_mode & 0o777);
+    let left: Vec<String> = fs::read_dir(folder.path("."))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.starts_with('.'))
+        .collect();
+    assert!(left.is_empty(), "{left:?}");
+}
+
 #[test]
 fn init_names_its_choices_and_warns_of_a_yield_column_among_the_peers() {
     let folder = Folder::new();

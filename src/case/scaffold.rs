@@ -543,39 +543,6 @@ pub fn relative_path(from: &Path, to: &Path) -> PathBuf {
     path
 }
 
-/// Writes `text` to `path`, never over an existing file (the check and the write are one step).
-pub fn write_new(path: &Path, text: &str) -> Result<()> {
-    use std::io::Write;
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let io_error = |action: &'static str| {
-        move |source| Error::Io {
-            path: path.to_path_buf(),
-            action,
-            source,
-        }
-    };
-    if path.exists() {
-        return Err(Error::Io {
-            path: path.to_path_buf(),
-            action: "exists already; init never overwrites a file (name another one to write)",
-            source: std::io::Error::from(std::io::ErrorKind::AlreadyExists),
-        });
-    }
-    std::fs::create_dir_all(dir).map_err(io_error("cannot create the folder of"))?;
-    let mut temporary = tempfile::NamedTempFile::new_in(dir)
-        .map_err(io_error("cannot create a temporary file beside"))?;
-    temporary
-        .write_all(text.as_bytes())
-        .map_err(io_error("cannot write"))?;
-    temporary.persist_noclobber(path).map_err(|e| {
-        io_error("cannot create (it may exist already; init never overwrites)")(e.error)
-    })?;
-    Ok(())
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;

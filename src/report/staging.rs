@@ -338,6 +338,62 @@ fn refusal(dir: &Path, message: String) -> Error {
     }
 }
 
+/// Writes `text` to `path`, never over an existing file (the check and the write are one step:
+/// `hurdle init`'s starting case). The file is written in a temporary folder beside it, which a
+/// forced exit removes ([`abandon`]); a stop asked for before the file is in place writes
+/// nothing; the file is created for everyone to read, less the user's umask, as the run's
+/// outputs are (found by review: init went on after Ctrl-C, could leave its temporary file, and
+/// wrote the case readable by its owner alone).
+pub fn write_new(path: &Path, text: &str) -> Result<()> {
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    if path.exists() {
+        return Err(Error::Io {
+            path: path.to_path_buf(),
+            action: "exists already; init never overwrites a file (name another one to write)",
+            source: std::io::Error::from(std::io::ErrorKind::AlreadyExists),
+        });
+    }
+    fs::create_dir_all(dir).map_err(io_error(path, "cannot create the folder of"))?;
+    let staging = tempfile::Builder::new()
+        .prefix(".hurdle-staging-")
+        .tempdir_in(dir)
+        .map_err(io_error(path, "cannot create a temporary folder beside"))?;
+    if let Ok(mut folders) = STAGING.lock() {
+        folders.push(staging.path().to_path_buf());
+    }
+    let written = write_then_persist(staging.path(), path, text);
+    if let Ok(mut folders) = STAGING.lock() {
+        folders.retain(|f| f != staging.path());
+    }
+    written
+}
+
+fn write_then_persist(staging: &Path, path: &Path, text: &str) -> Result<()> {
+    let mut builder = tempfile::Builder::new();
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        builder.permissions(fs::Permissions::from_mode(0o666));
+    }
+    let mut temporary = builder
+        .tempfile_in(staging)
+        .map_err(io_error(path, "cannot create a temporary file beside"))?;
+    temporary
+        .write_all(text.as_bytes())
+        .map_err(io_error(path, "cannot write"))?;
+    crate::progress::check_stop()?;
+    temporary.persist_noclobber(path).map_err(|e| {
+        io_error(
+            path,
+            "cannot create (it may exist already; init never overwrites)",
+        )(e.error)
+    })?;
+    Ok(())
+}
+
 /// Removes every temporary folder in use; for the binary's forced exit on a second Ctrl-C.
 /// Returns false while files are being moved into place, when the exit must wait.
 pub fn abandon() -> bool {
