@@ -118,7 +118,10 @@ fn the_starting_case_is_readable_as_outputs_are() {
     let table = folder.path("prices.csv");
     fs::copy(Path::new(WIDE_DIR).join("data/prices.csv"), &table).unwrap();
     folder.init_ok(&table, &["--index", INDEX_COLUMN]);
-    let case_mode = fs::metadata(folder.path("case.toml")).unwrap().permissions().mode();
+    let case_mode = fs::metadata(folder.path("case.toml"))
+        .unwrap()
+        .permissions()
+        .mode();
     // A file the test creates gets 0666 less the same umask: the case must match it.
     let plain = folder.path("plain.txt");
     fs::write(&plain, "x").unwrap();

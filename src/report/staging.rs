@@ -543,8 +543,17 @@ fn move_into_place(
     fs::create_dir(&previous).map_err(io_error(&previous, "cannot create"))?;
     let mut moved: Vec<PathBuf> = Vec::new();
     let mut kept: Vec<(PathBuf, PathBuf)> = Vec::new();
+    // Folders made inside `dir` for the outputs (`figures/`), outermost first, removed again
+    // when the moves are undone (found by review: a failed commit left an empty `figures/`).
+    let mut made: Vec<PathBuf> = Vec::new();
     let mut step = |name: &str, retiring: bool| -> Result<()> {
         let target = dir.join(name);
+        let mut missing: Vec<PathBuf> = (target.ancestors().skip(1))
+            .take_while(|folder| *folder != dir && !folder.exists())
+            .map(Path::to_path_buf)
+            .collect();
+        missing.reverse();
+        made.extend(missing);
         for folder in [target.parent(), previous.join(name).parent()]
             .into_iter()
             .flatten()
@@ -574,6 +583,9 @@ fn move_into_place(
             for (backup, target) in &kept {
                 let _ = fs::rename(backup, target);
             }
+            for folder in made.iter().rev() {
+                let _ = fs::remove_dir(folder);
+            }
             return Err(error);
         }
     }
@@ -598,6 +610,26 @@ mod tests {
             .collect();
         names.sort();
         names
+    }
+
+    // A commit that fails part way puts back what it moved and removes the folders it made
+    // for the outputs: the folder is as it was (found by review: an empty `figures/` stayed).
+    #[test]
+    fn a_failed_commit_removes_the_folders_it_made() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("out");
+        fs::create_dir(&out).unwrap();
+        fs::write(out.join("b.txt"), b"old b").unwrap();
+        let stage = Stage::begin(&out, &[]).unwrap();
+        stage.add("figures/a.svg", b"new a").unwrap();
+        stage.add("b.txt", b"new b").unwrap();
+        stage.add("c.txt", b"new c").unwrap();
+        fs::remove_file(stage.staging().join("c.txt")).unwrap();
+        let names = ["figures/a.svg", "b.txt", "c.txt"].map(String::from);
+        assert!(stage.commit(&names).is_err());
+        assert_eq!(listing(&out), vec!["b.txt"]);
+        assert_eq!(fs::read(out.join("b.txt")).unwrap(), b"old b");
+        assert_eq!(listing(root.path()), vec!["out"]);
     }
 
     // Two runs writing one folder at once: the second is refused while the first holds it, and
