@@ -280,18 +280,6 @@ pub fn first_to_last_z(points: &[RollingPoint]) -> Option<f64> {
     (spread > 0.0).then(|| (last.beta - first.beta) / spread)
 }
 
-/// The two-sided 5% critical value for [`first_to_last_z`]: Student's t at 97.5% with the
-/// smaller of the two windows' residual degrees of freedom, the conservative choice for a
-/// difference of two estimates with unequal variances (Welch's test with min(ν₁, ν₂) degrees
-/// of freedom instead of the Welch–Satterthwaite approximation, a common textbook rule; from
-/// memory). Short windows have heavy tails: at 1 degree of freedom it is 12.71, not the normal
-/// 1.96. `None` with fewer than two windows.
-pub fn first_to_last_critical(points: &[RollingPoint]) -> Option<f64> {
-    let (first, last) = (points.first()?, points.last()?);
-    let df = first.degrees_of_freedom.min(last.degrees_of_freedom);
-    (points.len() >= 2 && df > 0).then(|| crate::stats::student_t_quantile(0.975, df as f64))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -566,26 +554,5 @@ mod tests {
         assert!((first_to_last_z(&falling).unwrap() + 2.680536).abs() < 1e-6);
         assert!(first_to_last_z(&points[..1]).is_none());
         assert!(first_to_last_z(&[point(1.0, 0.0), point(1.0, 0.0)]).is_none());
-    }
-
-    // The critical value is t(0.975, min df): with 28 and 10 residual degrees of freedom it is
-    // t(0.975, 10) = 2.228 (printed t tables, e.g. NIST/SEMATECH e-Handbook 1.3.6.7.2); one
-    // window gives none. 5e-4: the table's three decimals.
-    #[test]
-    fn first_to_last_critical_is_t_at_the_smaller_degrees_of_freedom() {
-        let point = |degrees_of_freedom: usize| RollingPoint {
-            window_end: month_ends(1)[0],
-            beta: 1.0,
-            std_error: 0.1,
-            observations: degrees_of_freedom + 2,
-            band_low: 0.0,
-            band_high: 0.0,
-            degrees_of_freedom,
-        };
-        let critical = first_to_last_critical(&[point(28), point(20), point(10)]).unwrap();
-        assert!((critical - 2.228).abs() < 5e-4, "{critical}");
-        let one = first_to_last_critical(&[point(1), point(40)]).unwrap();
-        assert!((one - 12.706).abs() < 5e-4, "{one}");
-        assert!(first_to_last_critical(&[point(28)]).is_none());
     }
 }

@@ -98,7 +98,28 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 7] = [
+const KNOWN_CHANGES: [KnownChange; 8] = [
+    KnownChange {
+        version: "0.7.0",
+        kind: "case",
+        paths: &["notes"],
+        explain: |receipt, rerun| {
+            let shift = |v: &Value| {
+                (v["notes"].as_array().into_iter().flatten()).any(|n| {
+                    n.as_str()
+                        .is_some_and(|n| n.contains("the rolling beta moved from"))
+                })
+            };
+            (shift(receipt) || shift(rerun)).then(|| {
+                "hurdle 0.7.0 adjusts the peers' first-to-last rolling-beta tests for testing \
+                 them together (Holm's step-down method) and gives their p-values, where an \
+                 earlier version tested each peer at 5% on its own: such notes are worded \
+                 otherwise and fewer (README, Changelog, \"Findings of a numerical, a \
+                 test-suite and a statistician's review\")"
+                    .to_string()
+            })
+        },
+    },
     KnownChange {
         version: "0.7.0",
         kind: "case",
