@@ -6,13 +6,30 @@ use std::process::ExitCode;
 
 use clap::Parser;
 
+/// Exits with 130 and the interrupted message, removing any temporary output folder, unless
+/// files are being moved into place (then the run finishes the moves and stops itself).
+fn leave_if_not_moving() {
+    if hurdle::report::staging::abandon() {
+        eprintln!("{}", hurdle::Error::Interrupted);
+        std::process::exit(130);
+    }
+}
+
 fn main() -> ExitCode {
     // Ctrl-C asks the work to stop at its next step, and nothing is written after it; a second
     // Ctrl-C exits at once (removing any temporary output folder) unless files are being moved.
+    // Work blocked in a read (a named pipe, a hung network mount) never reaches its next step,
+    // so a first stop also starts a watch that leaves as a second would after a few seconds
+    // (found by review: one SIGTERM, a scheduler's stop, left such a run waiting).
     let _ = ctrlc::set_handler(|| {
-        if hurdle::progress::request_stop() && hurdle::report::staging::abandon() {
-            std::process::exit(130);
+        if hurdle::progress::request_stop() {
+            leave_if_not_moving();
+            return;
         }
+        let _ = std::thread::Builder::new().spawn(|| loop {
+            std::thread::sleep(std::time::Duration::from_secs(3));
+            leave_if_not_moving();
+        });
     });
     // A closed pipe (`hurdle betas CASE | head`) ends the output as it ends any filter's:
     // quietly, with the status a SIGPIPE gives (128 + 13), not with a panic.

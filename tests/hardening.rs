@@ -284,6 +284,55 @@ fn stopped_by_signal_leaves_no_output(signal: &str) {
     assert_eq!(tree_hashes(root), before);
 }
 
+// A run blocked reading an input (a named pipe nobody writes, as a hung network mount would
+// block it) stops on one SIGTERM within a few seconds, exit 130 with the message, and writes
+// nothing (found by review: it waited for a second signal, and then said nothing).
+#[cfg(unix)]
+#[test]
+fn one_sigterm_stops_a_run_blocked_in_a_read() {
+    let sandbox = Sandbox::new();
+    let fifo = sandbox.path("data/index.fifo");
+    let made = Command::new("mkfifo").arg(&fifo).status().unwrap();
+    assert!(made.success());
+    let out = sandbox.root.path().join("out");
+    let child = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["run", sandbox.path("case.toml").to_str().unwrap(), "--out"])
+        .arg(&out)
+        .args(["--set", "market.index.prices=\"data/index.fifo\""])
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(700));
+    let sent = Command::new("kill")
+        .args(["-TERM", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(sent.success());
+    // Not a measure of speed: a run that waits for a second signal would wait for ever, so
+    // after 30 s (ten times the watch's 3 s) the test sends it and fails.
+    let mut child = child;
+    let mut waited = 0;
+    while child.try_wait().unwrap().is_none() && waited < 300 {
+        std::thread::sleep(std::time::Duration::from_millis(100));
+        waited += 1;
+    }
+    let needed_a_second = child.try_wait().unwrap().is_none();
+    if needed_a_second {
+        let _ = Command::new("kill")
+            .args(["-INT", &child.id().to_string()])
+            .status();
+    }
+    let output = child.wait_with_output().unwrap();
+    assert!(!needed_a_second, "one SIGTERM did not stop the run");
+    assert_eq!(output.status.code(), Some(130), "{}", stderr(&output));
+    assert!(
+        stderr(&output).contains("interrupted"),
+        "{}",
+        stderr(&output)
+    );
+    assert!(!out.exists());
+}
+
 // Work longer than a second shows a bar only on a terminal: here stderr is a pipe, so a run of
 // about three seconds (the long work of `ctrl_c_leaves_no_output`) must print nothing there.
 #[test]
