@@ -23,6 +23,10 @@ use crate::error::{Error, Result};
 
 /// Temporary folders in use, removed by [`abandon`] on a forced exit.
 static STAGING: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+/// The output folders stages in progress created (outermost first), which a forced exit
+/// removes when they are empty (found by review: a second Ctrl-C left a new, empty output
+/// folder).
+static CREATED: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
 /// Set while files are being moved into place, when a forced exit must wait.
 static MOVING: AtomicBool = AtomicBool::new(false);
 
@@ -155,6 +159,9 @@ impl Stage {
                 let _ = fs::remove_dir(made);
             }
         })?;
+        if let Ok(mut folders) = CREATED.lock() {
+            folders.extend(created.iter().cloned());
+        }
         let mut stage = Stage {
             dir: dir.to_path_buf(),
             inputs,
@@ -281,6 +288,7 @@ impl Stage {
                 }
             }
         }
+        forget_created(&self.created);
         self.created.clear(); // They hold the outputs now.
         Ok(moved)
     }
@@ -320,6 +328,14 @@ impl Drop for Stage {
         for folder in self.created.iter().rev() {
             let _ = fs::remove_dir(folder);
         }
+        forget_created(&self.created);
+    }
+}
+
+/// Takes `folders` off the list a forced exit removes.
+fn forget_created(folders: &[PathBuf]) {
+    if let Ok(mut created) = CREATED.lock() {
+        created.retain(|f| !folders.contains(f));
     }
 }
 
@@ -394,7 +410,8 @@ fn write_then_persist(staging: &Path, path: &Path, text: &str) -> Result<()> {
     Ok(())
 }
 
-/// Removes every temporary folder in use; for the binary's forced exit on a second Ctrl-C.
+/// Removes every temporary folder in use, and the output folders a stage in progress created
+/// when they are empty; for the binary's forced exit on a second Ctrl-C.
 /// Returns false while files are being moved into place, when the exit must wait.
 pub fn abandon() -> bool {
     if MOVING.load(Ordering::SeqCst) {
@@ -403,6 +420,11 @@ pub fn abandon() -> bool {
     if let Ok(folders) = STAGING.lock() {
         for folder in folders.iter() {
             let _ = fs::remove_dir_all(folder);
+        }
+    }
+    if let Ok(folders) = CREATED.lock() {
+        for folder in folders.iter().rev() {
+            let _ = fs::remove_dir(folder);
         }
     }
     true
