@@ -202,6 +202,22 @@ impl Stage {
     /// Refuses a target that is an input or a folder.
     pub fn check_target(&self, name: &str) -> Result<()> {
         let target = self.dir.join(name);
+        // A file standing where a folder of the outputs goes (`figures`) is refused before
+        // anything is written, as a folder where a file goes is (found by review: the run
+        // failed only while moving its files).
+        let blocked = (target.ancestors().skip(1))
+            .take_while(|folder| *folder != self.dir)
+            .find(|folder| folder.exists() && !folder.is_dir());
+        if let Some(file) = blocked {
+            return Err(refusal(
+                &self.dir,
+                format!(
+                    "{} is a file; hurdle writes {name} into a folder of that name and never \
+                     replaces a file it did not write",
+                    file.display()
+                ),
+            ));
+        }
         let Ok(canonical) = fs::canonicalize(&target) else {
             return Ok(()); // Nothing there yet, so nothing to overwrite.
         };
@@ -632,6 +648,27 @@ mod tests {
             .collect();
         names.sort();
         names
+    }
+
+    // A file where the outputs need a folder is refused before anything is staged, naming it.
+    #[test]
+    fn a_file_where_a_folder_goes_is_refused() {
+        let root = tempfile::tempdir().unwrap();
+        let out = root.path().join("out");
+        fs::create_dir(&out).unwrap();
+        fs::write(out.join("figures"), b"a note of the user's").unwrap();
+        let stage = Stage::begin(&out, &[]).unwrap();
+        let refused = stage
+            .add("figures/a.svg", b"new a")
+            .unwrap_err()
+            .to_string();
+        assert!(refused.contains("figures is a file"), "{refused}");
+        drop(stage);
+        assert_eq!(
+            fs::read(out.join("figures")).unwrap(),
+            b"a note of the user's"
+        );
+        assert_eq!(listing(&out), vec!["figures"]);
     }
 
     // A commit that fails part way puts back what it moved and removes the folders it made
