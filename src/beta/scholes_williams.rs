@@ -73,18 +73,7 @@ pub fn scholes_williams_beta(
         .map(|w| w.iter().zip(asset).map(|(a, r)| a * r).sum())
         .collect();
     let rho = correlation(market, lag);
-    let scale = 1.0 + 2.0 * rho;
-    if scale.is_nan() || scale < MIN_DIVISOR {
-        return Err(Error::Regression(format!(
-            "the index's first-order autocorrelation over these {n} returns is {}, so the \
-             Scholes-Williams divisor 1 + 2ρ is {}, below {MIN_DIVISOR}: the beta divides the \
-             slopes by it and would be unbounded (an index return that moves against its own \
-             last one this strongly is not the non-synchronous trading the method corrects); \
-             use beta.method = \"dimson\"",
-            crate::error::rounded(rho, 3),
-            crate::error::rounded(scale, 3)
-        )));
-    }
+    let scale = divisor(rho, n)?;
     let beta_weights: Vec<f64> = (0..n)
         .map(|t| (weights[0][t] + weights[1][t] + weights[2][t]) / scale)
         .collect();
@@ -124,6 +113,23 @@ pub fn scholes_williams_beta(
     estimate.market_autocorrelation = Some(rho);
     estimate.beta_influence = (0..n).map(|t| a[(1, t)] * fit.residuals[t]).collect();
     Ok(estimate)
+}
+
+/// The divisor 1 + 2ρ, refused below [`MIN_DIVISOR`] with ρ and the divisor named.
+fn divisor(rho: f64, n: usize) -> Result<f64> {
+    let scale = 1.0 + 2.0 * rho;
+    if scale.is_nan() || scale < MIN_DIVISOR {
+        return Err(Error::Regression(format!(
+            "the index's first-order autocorrelation over these {n} returns is {}, so the \
+             Scholes-Williams divisor 1 + 2ρ is {}, below {MIN_DIVISOR}: the beta divides the \
+             slopes by it and would be unbounded (an index return that moves against its own \
+             last one this strongly is not the non-synchronous trading the method corrects); \
+             use beta.method = \"dimson\"",
+            crate::error::rounded(rho, 3),
+            crate::error::rounded(scale, 3)
+        )));
+    }
+    Ok(scale)
 }
 
 /// Pearson correlation of two equally long series.

@@ -14,7 +14,7 @@ use std::path::{Path, PathBuf};
 use hurdle::case::scaffold::{relative_path, starting_case, StartOptions, StartingCase};
 use hurdle::error::{compact, one_line};
 use hurdle::io::tables::{header_key, PriceTable, NAME_THE_DATE_COLUMN, NAME_THE_SHEET};
-use hurdle::report::staging::write_new;
+use hurdle::report::new_file::write_new;
 
 #[derive(Debug, clap::Args)]
 pub struct Args {

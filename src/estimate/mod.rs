@@ -306,9 +306,7 @@ pub fn estimate_security(
     }
     let market_excess = aligned.market_excess();
     // Raw returns too: with a risk-free series, a flat index would leave only the rate's own
-    // variation in the excess returns and the regression would measure nothing. Constant to
-    // the rounding of computing a return (found by review: an index of 100·1.005ⁿ, its returns
-    // 4e-16 apart, gave a beta of −7e13).
+    // variation in the excess returns. To rounding (found by review: 100·1.005ⁿ gave −7e13).
     let constant = crate::market::sampling::constant_up_to_rounding;
     if constant(&aligned.market) || constant(&market_excess) {
         return Err(EstimateError::FlatIndex { periods: n });

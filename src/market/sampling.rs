@@ -401,10 +401,8 @@ pub struct AlignedReturns {
     pub market_shifted: Vec<ShiftedMarket>,
 }
 
-/// Whether period returns are all the same to the rounding of computing them: a return
-/// p₁/p₀ − 1 (or its logarithm) is rounded to within a few ulps of 1 + r, so returns within
-/// 16 ε·(1 + |r|) of the first are the same (a price that never moves, or one that grows by one
-/// fixed rate, 100·1.005ⁿ, whose returns differ by 4e-16). `false` without returns.
+/// Whether returns are all the same to the rounding of computing them (within 16 ε·(1 + |r|) of
+/// the first: p₁/p₀ − 1 is rounded to a few ulps of 1 + r; 100·1.005ⁿ's returns differ by 4e-16).
 pub fn constant_up_to_rounding(returns: &[f64]) -> bool {
     returns.first().is_some_and(|&first| {
         let rounding = 16.0 * f64::EPSILON * (1.0 + first.abs());
@@ -413,11 +411,8 @@ pub fn constant_up_to_rounding(returns: &[f64]) -> bool {
 }
 
 impl AlignedReturns {
-    /// Whether the asset's returns (before any risk-free rate) are all the same, to the
-    /// rounding of computing them: a price that never moves over the aligned periods, or one
-    /// that grows by one fixed rate (found by review: 20·1.001ⁿ was estimated, its beta
-    /// −2e-16 entering its industry), whose beta of 0 and undefined R² carry no information
-    /// ([`constant_up_to_rounding`]).
+    /// Whether the asset's returns (before any risk-free rate) are all the same to rounding
+    /// ([`constant_up_to_rounding`]; found by review: 20·1.001ⁿ was estimated, its beta −2e-16).
     pub fn asset_is_constant(&self) -> bool {
         constant_up_to_rounding(&self.asset)
     }

@@ -9,6 +9,7 @@ pub mod figures;
 pub mod format;
 pub mod json;
 pub mod memo;
+pub mod new_file;
 pub mod rolling;
 pub mod staging;
 pub mod universe;

@@ -172,9 +172,7 @@ impl Stage {
             _lock: lock,
         };
         let staging = staging_folder(dir)?;
-        if let Ok(mut folders) = STAGING.lock() {
-            folders.push(staging.path().to_path_buf());
-        }
+        register_temporary(staging.path());
         stage.staging = Some(staging);
         Ok(stage)
     }
@@ -337,9 +335,7 @@ impl Drop for Stage {
         if let Some(staging) = self.staging.take() {
             let path = staging.path().to_path_buf();
             drop(staging);
-            if let Ok(mut folders) = STAGING.lock() {
-                folders.retain(|f| *f != path);
-            }
+            forget_temporary(&path);
         }
         for folder in self.created.iter().rev() {
             let _ = fs::remove_dir(folder);
@@ -370,60 +366,18 @@ fn refusal(dir: &Path, message: String) -> Error {
     }
 }
 
-/// Writes `text` to `path`, never over an existing file (the check and the write are one step:
-/// `hurdle init`'s starting case). The file is written in a temporary folder beside it, which a
-/// forced exit removes ([`abandon`]); a stop asked for before the file is in place writes
-/// nothing; the file is created for everyone to read, less the user's umask, as the run's
-/// outputs are (found by review: init went on after Ctrl-C, could leave its temporary file, and
-/// wrote the case readable by its owner alone).
-pub fn write_new(path: &Path, text: &str) -> Result<()> {
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    if path.exists() {
-        return Err(Error::Io {
-            path: path.to_path_buf(),
-            action: "exists already; init never overwrites a file (name another one to write)",
-            source: std::io::Error::from(std::io::ErrorKind::AlreadyExists),
-        });
-    }
-    fs::create_dir_all(dir).map_err(io_error(path, "cannot create the folder of"))?;
-    let staging = tempfile::Builder::new()
-        .prefix(".hurdle-staging-")
-        .tempdir_in(dir)
-        .map_err(io_error(path, "cannot create a temporary folder beside"))?;
+/// Adds `folder` to the temporary folders a forced exit removes ([`abandon`]).
+pub(crate) fn register_temporary(folder: &Path) {
     if let Ok(mut folders) = STAGING.lock() {
-        folders.push(staging.path().to_path_buf());
+        folders.push(folder.to_path_buf());
     }
-    let written = write_then_persist(staging.path(), path, text);
-    if let Ok(mut folders) = STAGING.lock() {
-        folders.retain(|f| f != staging.path());
-    }
-    written
 }
 
-fn write_then_persist(staging: &Path, path: &Path, text: &str) -> Result<()> {
-    let mut builder = tempfile::Builder::new();
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        builder.permissions(fs::Permissions::from_mode(0o666));
+/// Takes `folder` off the temporary folders a forced exit removes.
+pub(crate) fn forget_temporary(folder: &Path) {
+    if let Ok(mut folders) = STAGING.lock() {
+        folders.retain(|f| f != folder);
     }
-    let mut temporary = builder
-        .tempfile_in(staging)
-        .map_err(io_error(path, "cannot create a temporary file beside"))?;
-    temporary
-        .write_all(text.as_bytes())
-        .map_err(io_error(path, "cannot write"))?;
-    crate::progress::check_stop()?;
-    temporary.persist_noclobber(path).map_err(|e| {
-        io_error(
-            path,
-            "cannot create (it may exist already; init never overwrites)",
-        )(e.error)
-    })?;
-    Ok(())
 }
 
 /// Removes every temporary folder in use, and the output folders a stage in progress created
