@@ -83,7 +83,6 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
              nothing (`hurdle run` notes the settings a case gives but does not use)\n"
         ));
     }
-    print!("{out}");
     let path = args
         .csv
         .clone()
@@ -91,7 +90,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let (dir, name) = super::split_file_path("--csv", &path)?;
     let file = (name, hurdle::report::csv::grid_csv(&table));
     let reads = hurdle::case::files_read(&inputs.case);
+    // The table is printed once its file is written, as `run` prints its summary: a failed
+    // write prints only its error (found by review: the table came first, then the error).
     hurdle::report::staging::write_outputs(&dir, &[file], &reads)?;
+    print!("{out}");
     println!("  wrote {}", path.display());
     Ok(())
 }

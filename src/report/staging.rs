@@ -246,12 +246,19 @@ impl Stage {
     pub fn add(&self, name: &str, bytes: &[u8]) -> Result<()> {
         self.check_target(name)?;
         let path = self.staging().join(name);
+        // Errors name the output file, not the temporary folder that no longer exists when the
+        // message is read (found by review: a full disk named `.hurdle-staging-…/report.html`).
+        let target = self.dir.join(name);
+        let staging_error = |source| Error::Io {
+            path: target.clone(),
+            action: "cannot write (while staging it beside the output folder)",
+            source,
+        };
         if let Some(folder) = path.parent() {
-            fs::create_dir_all(folder).map_err(io_error(folder, "cannot create"))?;
+            fs::create_dir_all(folder).map_err(staging_error)?;
         }
-        let mut file = fs::File::create(&path).map_err(io_error(&path, "cannot create"))?;
-        file.write_all(bytes)
-            .map_err(io_error(&path, "cannot write"))?;
+        let mut file = fs::File::create(&path).map_err(staging_error)?;
+        file.write_all(bytes).map_err(staging_error)?;
         // The flush waits on the disk, not on a core: a thread of its own, so twenty files
         // cost about one disk round trip and the caller goes on rendering. Without a thread
         // to be had, it flushes here.
@@ -439,6 +446,12 @@ fn create_missing(dir: &Path) -> Result<Vec<PathBuf>> {
 /// some files of each. A second run is refused while the first holds it. Where a folder cannot
 /// be opened or locked (another platform, a file system without locks), runs go unlocked.
 fn lock_folder(dir: &Path) -> Result<Option<fs::File>> {
+    // A bare file name's folder is the current one (found by review: `grid --csv grid.csv`
+    // ran unlocked).
+    let dir = match dir.as_os_str().is_empty() {
+        true => Path::new("."),
+        false => dir,
+    };
     let Ok(folder) = fs::File::open(dir) else {
         return Ok(None);
     };
