@@ -6,22 +6,14 @@ use std::fs;
 use std::io::Write;
 use std::path::Path;
 
-use super::staging::{forget_temporary, register_temporary};
+use super::staging::{forget_temporary, io_error, register_temporary};
 use crate::error::{Error, Result};
 
-fn io_error<'a>(path: &'a Path, action: &'static str) -> impl FnOnce(std::io::Error) -> Error + 'a {
-    move |source| Error::Io {
-        path: path.to_path_buf(),
-        action,
-        source,
-    }
-}
-
 /// Writes `text` to `path`, never over an existing file (the check and the write are one step:
-/// `hurdle init`'s starting case). The file is written in a temporary folder beside it, which a
-/// forced exit removes ([`super::staging::abandon`]); a stop asked for before the file is in place writes
-/// nothing; the file is created for everyone to read, less the user's umask, as the run's
-/// outputs are (found by review: init went on after Ctrl-C, could leave its temporary file, and
+/// `hurdle init`'s starting case). The file is written in a temporary folder beside it, which
+/// a forced exit removes ([`super::staging::abandon`]); a stop asked for before the file is in
+/// place writes nothing; the file is created for everyone to read, less the user's umask, as
+/// the run's outputs are (found by review: init went on after Ctrl-C, could leave its temporary file, and
 /// wrote the case readable by its owner alone).
 pub fn write_new(path: &Path, text: &str) -> Result<()> {
     let dir = path

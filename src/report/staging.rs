@@ -407,7 +407,11 @@ pub fn abandon() -> bool {
     true
 }
 
-fn io_error<'a>(path: &'a Path, action: &'static str) -> impl FnOnce(std::io::Error) -> Error + 'a {
+/// An I/O failure at `path` while doing `action`, as an [`Error::Io`].
+pub(crate) fn io_error<'a>(
+    path: &'a Path,
+    action: &'static str,
+) -> impl FnOnce(std::io::Error) -> Error + 'a {
     move |source| Error::Io {
         path: path.to_path_buf(),
         action,
