@@ -6,7 +6,7 @@ use std::fs;
 use std::io::Write;
 use std::path::Path;
 
-use super::staging::{forget_temporary, io_error, register_temporary};
+use super::staging::{forget_temporary, hold, io_error, register_temporary};
 use crate::error::{Error, Result};
 
 /// Writes `text` to `path`, never over an existing file (the check and the write are one step:
@@ -33,6 +33,7 @@ pub fn write_new(path: &Path, text: &str) -> Result<()> {
         .tempdir_in(dir)
         .map_err(io_error(path, "cannot create a temporary folder beside"))?;
     register_temporary(staging.path());
+    let _in_use = hold(staging.path());
     let written = write_then_persist(staging.path(), path, text);
     forget_temporary(staging.path());
     written
