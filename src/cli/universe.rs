@@ -15,7 +15,7 @@ use std::time::{Duration, Instant};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 
 use hurdle::report::format::{fixed, percent};
-use hurdle::report::universe::{estimated_count, nonzero_counts, write_outputs};
+use hurdle::report::universe::{estimated_count, excluded_by_flag, nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
 use hurdle::universe::{evaluate, load_inputs, securities_count, UniverseResult};
 
@@ -139,11 +139,12 @@ fn summary(r: &UniverseResult) -> String {
             r.window.window_end
         ),
         format!(
-            "  {}: {}, {} excluded by beta.exclude_flags, \
+            "  {}: {}, {} excluded by beta.exclude_flags{}, \
              {} not estimated{}",
             securities_count(c.securities),
             estimated_count(c.estimated, c.estimated_without_industry),
             c.excluded,
+            excluded_by_flag(c),
             c.not_estimated_total,
             if not.is_empty() {
                 String::new()

@@ -243,6 +243,32 @@ fn trimmed_mean_in(values: &[f64], fraction: f64, sorted: &mut Vec<f64>) -> (f64
     (kept.iter().sum::<f64>() / kept.len() as f64, cut)
 }
 
+/// The distribution-free confidence interval for a median at `level` (0.95 for 95%): the order
+/// statistics X(r) and X(n − r + 1) of the sorted values, r the largest with
+/// P(B ≤ r − 1) ≤ (1 − level) / 2 for B ~ Binomial(n, ½), so that the interval covers the
+/// population median with probability at least `level` whatever the values' distribution
+/// (Conover, *Practical Nonparametric Statistics*, 3rd ed., 1999, section 3.2; the interval
+/// `scipy.stats.quantile_test(...).confidence_interval` gives for p = ½). `None` when no pair of
+/// order statistics reaches `level` (fewer than six values at 95%).
+pub fn median_interval(sorted: &[f64], level: f64) -> Option<[f64; 2]> {
+    use statrs::distribution::{Binomial, DiscreteCDF};
+    let n = sorted.len();
+    let binomial = Binomial::new(0.5, n as u64).ok()?;
+    let tail = (1.0 - level) / 2.0;
+    // The smallest k with P(B ≤ k) ≥ tail (the binomial's tail quantile), by bisection.
+    let (mut low, mut high) = (0_u64, n as u64);
+    while low < high {
+        let middle = low + (high - low) / 2;
+        match binomial.cdf(middle) >= tail {
+            true => high = middle,
+            false => low = middle + 1,
+        }
+    }
+    // X(k) in 1-based order; the upper bound mirrors it (Binomial(n, ½) is symmetric).
+    let lower = (low as usize).checked_sub(1)?;
+    Some([sorted[lower], sorted[n - 1 - lower]])
+}
+
 /// Location and spread of a set of values.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Dispersion {
@@ -328,6 +354,51 @@ mod tests {
         let exact = (std::f64::consts::PI * 0.475).tan();
         // 1e-12 relative: the Newton polish leaves only CDF rounding.
         assert!((student_t_quantile(0.975, 1.0) / exact - 1.0).abs() < 1e-12);
+    }
+
+    // The median's interval against scipy 1.17.1: `stats.quantile_test(np.arange(n), q=0,
+    // p=0.5).confidence_interval(level)` on 0, 1, …, n − 1, so each bound is the 0-based index
+    // of the order statistic scipy picks (NaN, here `None`, where none reaches the level).
+    // Exact: both sides pick an order statistic, so any difference is a whole index.
+    #[test]
+    fn median_interval_matches_scipy() {
+        let at_95: [(usize, Option<(usize, usize)>); 19] = [
+            (5, None),
+            (6, Some((0, 5))),
+            (8, Some((0, 7))),
+            (9, Some((1, 7))),
+            (12, Some((2, 9))),
+            (17, Some((4, 12))),
+            (20, Some((5, 14))),
+            (25, Some((7, 17))),
+            (31, Some((9, 21))),
+            (37, Some((12, 24))),
+            (40, Some((13, 26))),
+            (50, Some((17, 32))),
+            (99, Some((39, 59))),
+            (100, Some((39, 60))),
+            (250, Some((109, 140))),
+            (1000, Some((468, 531))),
+            (2520, Some((1210, 1309))),
+            (5000, Some((2430, 2569))),
+            (1, None),
+        ];
+        let others = [
+            (0.9, 10, (1, 8)),
+            (0.9, 57, (21, 35)),
+            (0.9, 300, (135, 164)),
+            (0.99, 10, (0, 9)),
+            (0.99, 20, (3, 16)),
+            (0.99, 300, (127, 172)),
+        ];
+        let cases = (at_95.iter().map(|&(n, i)| (0.95, n, i)))
+            .chain(others.iter().map(|&(level, n, i)| (level, n, Some(i))));
+        for (level, n, expected) in cases {
+            let values: Vec<f64> = (0..n).map(|i| i as f64).collect();
+            let got = median_interval(&values, level).map(|[a, b]| (a as usize, b as usize));
+            assert_eq!(got, expected, "n = {n}, level {level}");
+        }
+        assert_eq!(median_interval(&[], 0.95), None);
     }
 
     // The same quantiles to full precision, from scipy.stats.t.ppf (scipy 1.x, printed with

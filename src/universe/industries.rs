@@ -26,6 +26,13 @@ pub struct Summary {
     pub trimmed_each_end: usize,
     /// Weighted by equity value, over the securities that have one (`None` if none has).
     pub market_cap_weighted_mean: Option<f64>,
+    /// Weighted by the value of what the beta measures (`None` for levered betas, or if no
+    /// security has the weight): equity plus debt for unlevered betas (a portfolio of the
+    /// firms' assets), equity plus debt less cash for the betas of the operations.
+    pub value_weighted_mean: Option<f64>,
+    /// The median's distribution-free 95% confidence interval ([`stats::median_interval`]);
+    /// `None` for fewer than six values.
+    pub median_interval: Option<[f64; 2]>,
 }
 
 impl Summary {
@@ -65,6 +72,9 @@ pub struct IndustryResult {
     /// The shrunk betas (Blume or Vasicek), when `beta.adjustment` asks for them.
     pub shrunk: Option<Summary>,
     pub median_debt_to_equity: Option<f64>,
+    /// Σ debt / Σ equity value over the same securities as the median D/E (the D/E of the
+    /// industry as one portfolio; computed as their D/E weighted by equity value).
+    pub aggregate_debt_to_equity: Option<f64>,
     /// Unlevered betas under `leverage.formula`.
     pub unlevered: Option<Summary>,
     /// The betas of the operations, βU / (1 − cash / (equity + debt)).
@@ -101,29 +111,36 @@ pub(super) fn industry_row(
     let aggregated: Vec<&SecurityResult> =
         members.iter().copied().filter(|s| s.aggregated()).collect();
     let trim = leverage.trim_fraction;
-    let summary = |figure: &dyn Fn(&SecurityResult) -> Option<f64>| {
-        // Market-cap weights need an equity value: the weighted mean covers those that have one.
-        let (values, weighted): (Vec<f64>, Vec<(f64, f64)>) = aggregated
-            .iter()
-            .filter_map(|s| figure(s).map(|v| (v, s.equity_value.map(|e| (v, e)))))
-            .fold(
-                (Vec::new(), Vec::new()),
-                |(mut values, mut weighted), (v, w)| {
-                    values.push(v);
-                    weighted.extend(w);
-                    (values, weighted)
-                },
-            );
-        summarise(&values, &weighted, trim)
+    // Each figure with its equity value (market-cap weights) and, where the figure is of a
+    // firm's assets or operations, the value of those (value weights).
+    let summary = |figure: &dyn Fn(&SecurityResult) -> Option<f64>,
+                   value: &dyn Fn(&SecurityResult) -> Option<f64>| {
+        let mut values = Vec::new();
+        let mut by_equity = Vec::new();
+        let mut by_value = Vec::new();
+        for s in &aggregated {
+            if let Some(v) = figure(s) {
+                values.push(v);
+                by_equity.extend(s.equity_value.map(|e| (v, e)));
+                by_value.extend(value(s).map(|w| (v, w)));
+            }
+        }
+        summarise(&values, (&by_equity, &by_value), trim)
     };
-    let unlevered = summary(&|s| s.unlevered_beta);
-    let operations = summary(&|s| s.operations_beta);
+    let none = |_: &SecurityResult| None;
+    let firm_value = |s: &SecurityResult| Some(s.equity_value? + s.debt?);
+    let operations_value = |s: &SecurityResult| Some(firm_value(s)? * s.operating_share?);
+    let unlevered = summary(&|s| s.unlevered_beta, &firm_value);
+    let operations = summary(&|s| s.operations_beta, &operations_value);
     let chosen = if leverage.operations_beta {
         &operations
     } else {
         &unlevered
     };
     let ratios: Vec<f64> = aggregated.iter().filter_map(|s| s.debt_to_equity).collect();
+    let (weighted_ratios, equity): (Vec<f64>, Vec<f64>) = (aggregated.iter())
+        .filter_map(|s| Some((s.debt_to_equity?, s.equity_value?)))
+        .unzip();
     let mut not_estimated = BTreeMap::new();
     for reason in NotEstimated::ALL {
         let n = members
@@ -161,31 +178,47 @@ pub(super) fn industry_row(
         excluded_total: excluded_members.len(),
         flagged,
         flagged_total: aggregated.iter().filter(|s| !s.flags.is_empty()).count(),
-        levered: summary(&|s| s.estimate.as_ref().map(|e| e.beta)),
+        levered: summary(&|s| s.estimate.as_ref().map(|e| e.beta), &none),
         shrunk: if adjusted {
-            summary(&|s| s.shrunk_beta)
+            summary(&|s| s.shrunk_beta, &none)
         } else {
             None
         },
         median_debt_to_equity: (!ratios.is_empty()).then(|| stats::dispersion(&ratios).median),
+        aggregate_debt_to_equity: (!equity.is_empty())
+            .then(|| stats::weighted_mean(&weighted_ratios, &equity)),
         unlevered_beta: chosen.as_ref().and_then(|s| s.select(leverage.aggregation)),
         unlevered,
         operations,
     }
 }
 
-/// Dispersion and locations of `values`; the market-cap-weighted mean over `weighted`
-/// (value, equity value) pairs. `None` for no values.
-fn summarise(values: &[f64], weighted: &[(f64, f64)], trim: f64) -> Option<Summary> {
+/// A figure and its weight.
+type Weighted = (f64, f64);
+
+/// Dispersion and locations of `values`; the market-cap-weighted mean over the (value, equity
+/// value) pairs and the value-weighted mean over the (value, weight) pairs. `None` for no values.
+fn summarise(
+    values: &[f64],
+    (by_equity, by_value): (&[Weighted], &[Weighted]),
+    trim: f64,
+) -> Option<Summary> {
     if values.is_empty() {
         return None;
     }
     let (trimmed_mean, trimmed_each_end) = stats::trimmed_mean(values, trim);
-    let (v, w): (Vec<f64>, Vec<f64>) = weighted.iter().copied().unzip();
+    let weighted = |pairs: &[(f64, f64)]| {
+        let (v, w): (Vec<f64>, Vec<f64>) = pairs.iter().copied().unzip();
+        (!w.is_empty()).then(|| stats::weighted_mean(&v, &w))
+    };
+    let mut sorted = values.to_vec();
+    sorted.sort_by(f64::total_cmp);
     Some(Summary {
         dispersion: stats::dispersion(values),
         trimmed_mean,
         trimmed_each_end,
-        market_cap_weighted_mean: (!w.is_empty()).then(|| stats::weighted_mean(&v, &w)),
+        market_cap_weighted_mean: weighted(by_equity),
+        value_weighted_mean: weighted(by_value),
+        median_interval: stats::median_interval(&sorted, 0.95),
     })
 }

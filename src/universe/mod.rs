@@ -204,6 +204,8 @@ pub struct Counts {
     pub not_estimated_total: usize,
     /// Estimated but excluded by `beta.exclude_flags`.
     pub excluded: usize,
+    /// Of those, the securities carrying each listed flag (a security can carry several).
+    pub excluded_by_flag: std::collections::BTreeMap<&'static str, usize>,
     /// Securities lacking a figure, by figure (a security can lack several).
     pub missing: std::collections::BTreeMap<&'static str, usize>,
     /// Securities with an unlevered beta.

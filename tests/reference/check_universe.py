@@ -25,8 +25,10 @@ any of hurdle's code:
     beta_U(gross D/E) / (1 - cash / (equity + debt)) under either debt measure (a net-debt
     beta_U has already netted the cash against the debt);
   - per industry: counts, numpy.median / mean / percentile (linear, numpy's default) / min / max /
-    std (ddof = 1), numpy.average weighted by market value, scipy.stats.trim_mean
-    (leverage.trim_fraction, default 0.1), median D/E, and the aggregate the universe file picks.
+    std (ddof = 1), numpy.average weighted by market value and (unlevered and operations betas)
+    by firm value and value of operations, scipy.stats.trim_mean (leverage.trim_fraction,
+    default 0.1), the median's 95% interval (scipy.stats.quantile_test), median and aggregate
+    D/E, and the aggregate the universe file picks.
 Settings it does not implement (another estimator, standard errors or adjustment, a risk-free
 series, a staleness limit, a leverage formula other than Hamada, debt betas, exclusion flags,
 rolling betas) are reported as NOT IMPLEMENTED and fail the check, never silently passed.
@@ -257,6 +259,12 @@ def securities(config, folder):
             cash = number(a[attrs["cash_column"]]) if "cash_column" in attrs else None
             tax = number(a[attrs.get("tax_rate_column", "tax_rate")])
             row["equity"] = equity
+            # Value weights (README, industries.csv): equity plus gross debt for the unlevered
+            # betas, less cash for the betas of the operations.
+            if equity is not None and debt is not None:
+                row["firm_value"] = equity + debt
+                if cash is not None:
+                    row["operations_value"] = equity + debt - cash
             if equity is not None and debt is not None and (cash is not None or not net):
                 row["debt_to_equity"] = ((debt - cash) if net else debt) / equity
             # No leverage formula holds for a D/E above 10 or a net D/E at or below -1: no
@@ -285,7 +293,7 @@ def securities(config, folder):
     return result
 
 
-def summary(values, weights, prefix, trim):
+def summary(values, weights, prefix, trim, value_weights=None):
     out = {f"{prefix}_count": len(values)}
     if not values:
         return out
@@ -304,6 +312,14 @@ def summary(values, weights, prefix, trim):
     if weights:
         wv, ww = zip(*weights)
         out[f"market_cap_weighted_{prefix}"] = np.average(wv, weights=ww)
+    if value_weights:
+        wv, ww = zip(*value_weights)
+        out[f"value_weighted_{prefix}"] = np.average(wv, weights=ww)
+    # The median's distribution-free 95% interval by order statistics (Conover 1999, 3.2):
+    # scipy.stats.quantile_test's; NaN (an empty cell) below six values.
+    ci = stats.quantile_test(v, q=float(np.median(v)), p=0.5).confidence_interval(0.95)
+    out[f"median_{prefix}_ci_low"] = None if np.isnan(ci.low) else ci.low
+    out[f"median_{prefix}_ci_high"] = None if np.isnan(ci.high) else ci.high
     return out
 
 
@@ -324,15 +340,22 @@ def industries(config, rows):
                    "flagged": sum(1 for r in estimated if r["flags"])}
         for flag in ("too_few_observations", "low_r_squared", "zero_returns"):
             figures[f"flagged_{flag}"] = sum(1 for r in estimated if flag in r["flags"])
-        for key, prefix in (("beta", "beta"), ("unlevered_beta", "unlevered_beta"),
-                            ("operations_beta", "operations_beta")):
+        for key, prefix, value in (("beta", "beta", None),
+                                   ("unlevered_beta", "unlevered_beta", "firm_value"),
+                                   ("operations_beta", "operations_beta", "operations_value")):
             have = [r for r in estimated if key in r]
             figures.update(summary([r[key] for r in have],
                                    [(r[key], r["equity"]) for r in have if r.get("equity")],
-                                   prefix, leverage.get("trim_fraction", 0.1)))
+                                   prefix, leverage.get("trim_fraction", 0.1),
+                                   value and [(r[key], r[value]) for r in have if value in r]))
         ratios = [r["debt_to_equity"] for r in estimated if "debt_to_equity" in r]
         if ratios:
             figures["median_debt_to_equity"] = np.median(ratios)
+            # The industry as one portfolio: sum of debt (net of cash under net debt) over sum
+            # of equity values, over the same securities.
+            debt = sum(r["debt_to_equity"] * r["equity"] for r in estimated if "debt_to_equity" in r)
+            equity = sum(r["equity"] for r in estimated if "debt_to_equity" in r)
+            figures["aggregate_debt_to_equity"] = debt / equity
         stem = "operations_beta" if leverage.get("operations_beta") else "unlevered_beta"
         pick = {"median": "median", "mean": "mean", "trimmed-mean": "trimmed_mean",
                 "market-cap-weighted": "market_cap_weighted"}[leverage.get("aggregation", "median")]

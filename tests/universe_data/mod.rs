@@ -1,5 +1,5 @@
 //! A small seeded universe for the `hurdle universe` tests, written into a temporary folder:
-//! twelve invented securities in four industries over about 440 weekdays with market-wide
+//! twenty invented securities in five industries over about 440 weekdays with market-wide
 //! holidays, scattered missing days, a late listing, a thin trader that can still be estimated,
 //! one too thin to estimate, a security without attributes, attributes with missing fields and
 //! a row for a security the panel does not hold. The same prices are written as a long CSV (rows
@@ -39,7 +39,7 @@ struct Spec {
     listed_from: f64,
 }
 
-const SECURITIES: [Spec; 12] = [
+const SECURITIES: [Spec; 20] = [
     spec("S01", Some("Industry A"), 0.8, 0.98, 0.0),
     spec("S02", Some("Industry A"), 1.1, 0.98, 0.0),
     spec("S03", Some("Industry A"), 0.9, 0.98, 0.0),
@@ -52,6 +52,16 @@ const SECURITIES: [Spec; 12] = [
     spec("S10", Some("Industry D"), 1.0, 0.4, 0.0),
     spec("S11", Some("Industry D"), 1.0, 0.08, 0.0),
     spec("S12", None, 1.0, 0.98, 0.0),
+    // Eight more in one industry, so that its medians have a 95% interval (six values at least)
+    // whose order statistics differ from a 90% interval's (they coincide for six or seven).
+    spec("S13", Some("Industry E"), 0.7, 0.98, 0.0),
+    spec("S14", Some("Industry E"), 0.85, 0.98, 0.0),
+    spec("S15", Some("Industry E"), 1.0, 0.98, 0.0),
+    spec("S16", Some("Industry E"), 1.15, 0.98, 0.0),
+    spec("S17", Some("Industry E"), 1.3, 0.98, 0.0),
+    spec("S18", Some("Industry E"), 1.45, 0.98, 0.0),
+    spec("S19", Some("Industry E"), 0.95, 0.98, 0.0),
+    spec("S20", Some("Industry E"), 1.05, 0.98, 0.0),
 ];
 
 const fn spec(

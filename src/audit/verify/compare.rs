@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 3] = [
+const ADDED_IN: [(&str, &[&str]); 4] = [
     (
         "0.3.0",
         &[
@@ -62,6 +62,26 @@ const ADDED_IN: [(&str, &[&str]); 3] = [
             "uncertainty.put_back",
             "reconciliation.to.currency",
             "cautions.flagged_in_aggregate",
+        ],
+    ),
+    (
+        "0.8.0",
+        &[
+            "counts.excluded_by_flag",
+            "industries[].aggregate_debt_to_equity",
+            "industries[].levered.median_interval",
+            "industries[].shrunk.median_interval",
+            "industries[].unlevered.median_interval",
+            "industries[].operations.median_interval",
+            "industries[].unlevered.value_weighted_mean",
+            "industries[].operations.value_weighted_mean",
+            "peer_set.figures.aggregate_debt_to_equity",
+            "peer_set.figures.levered.median_interval",
+            "peer_set.figures.shrunk.median_interval",
+            "peer_set.figures.unlevered.median_interval",
+            "peer_set.figures.operations.median_interval",
+            "peer_set.figures.unlevered.value_weighted_mean",
+            "peer_set.figures.operations.value_weighted_mean",
         ],
     ),
 ];

@@ -71,6 +71,16 @@ pub fn nonzero_counts(counts: &std::collections::BTreeMap<&'static str, usize>) 
         .join(", ")
 }
 
+/// " (by flag: low_r_squared 10, too_few_observations 4)" after the count of securities excluded
+/// by `beta.exclude_flags`, or nothing when none is (found by review: the summaries said how
+/// many were excluded but not why). A security carrying two listed flags counts under both.
+pub fn excluded_by_flag(counts: &crate::universe::Counts) -> String {
+    match nonzero_counts(&counts.excluded_by_flag) {
+        flags if flags.is_empty() => flags,
+        flags => format!(" (by flag: {flags})"),
+    }
+}
+
 /// "297 estimated and aggregated", or, when some of them have no industry and so enter no
 /// industry's figures, "297 estimated and not excluded (2 of them in no industry, …)".
 pub fn estimated_count(estimated: usize, without_industry: usize) -> String {
@@ -322,7 +332,7 @@ fn capital_columns(t: &mut Table, rows: &[SecurityResult]) {
 fn summary_columns(
     t: &mut Table,
     rows: &[IndustryResult],
-    stem: &str,
+    (stem, value_weighted): (&str, bool),
     pick: fn(&IndustryResult) -> Option<&Summary>,
 ) {
     let d = |f: fn(&Summary) -> f64| rows.iter().map(move |r| pick(r).map(f));
@@ -332,12 +342,27 @@ fn summary_columns(
             .map(|r| Some(pick(r).map_or(0, |s| s.dispersion.count))),
     );
     t.number(&format!("median_{stem}"), d(|s| s.dispersion.median));
+    // The median's distribution-free 95% interval: empty below six values.
+    for (end, side) in [("low", 0), ("high", 1)] {
+        t.number(
+            &format!("median_{stem}_ci_{end}"),
+            rows.iter()
+                .map(move |r| pick(r).and_then(|s| s.median_interval.map(|i| i[side]))),
+        );
+    }
     t.number(&format!("mean_{stem}"), d(|s| s.dispersion.mean));
     t.number(
         &format!("market_cap_weighted_{stem}"),
         rows.iter()
             .map(|r| pick(r).and_then(|s| s.market_cap_weighted_mean)),
     );
+    if value_weighted {
+        t.number(
+            &format!("value_weighted_{stem}"),
+            rows.iter()
+                .map(|r| pick(r).and_then(|s| s.value_weighted_mean)),
+        );
+    }
     t.number(&format!("trimmed_mean_{stem}"), d(|s| s.trimmed_mean));
     t.number(
         &format!("lower_quartile_{stem}"),
@@ -389,16 +414,24 @@ fn industries_frame(rows: &[IndustryResult], adjusted: bool) -> Result<DataFrame
                 .map(|r| r.not_estimated.get(reason.name()).copied()),
         );
     }
-    summary_columns(&mut t, rows, "beta", |r| r.levered.as_ref());
+    summary_columns(&mut t, rows, ("beta", false), |r| r.levered.as_ref());
     if adjusted {
-        summary_columns(&mut t, rows, "shrunk_beta", |r| r.shrunk.as_ref());
+        summary_columns(&mut t, rows, ("shrunk_beta", false), |r| r.shrunk.as_ref());
     }
     t.number(
         "median_debt_to_equity",
         rows.iter().map(|r| r.median_debt_to_equity),
     );
-    summary_columns(&mut t, rows, "unlevered_beta", |r| r.unlevered.as_ref());
-    summary_columns(&mut t, rows, "operations_beta", |r| r.operations.as_ref());
+    t.number(
+        "aggregate_debt_to_equity",
+        rows.iter().map(|r| r.aggregate_debt_to_equity),
+    );
+    summary_columns(&mut t, rows, ("unlevered_beta", true), |r| {
+        r.unlevered.as_ref()
+    });
+    summary_columns(&mut t, rows, ("operations_beta", true), |r| {
+        r.operations.as_ref()
+    });
     t.number("unlevered_beta", rows.iter().map(|r| r.unlevered_beta));
     t.finish()
 }

@@ -4,7 +4,7 @@
 
 use std::fmt::Write as _;
 
-use super::{estimated_count, nonzero_counts};
+use super::{estimated_count, excluded_by_flag, nonzero_counts};
 use crate::report::format::{fixed, label};
 use crate::universe::industries::IndustryResult;
 use crate::universe::UniverseResult;
@@ -147,6 +147,39 @@ fn placed(r: &UniverseResult, p: &crate::universe::peer_set::PeerSetResult) -> S
     }
 }
 
+/// What the betas were measured against and from which files, in words: the index by name and
+/// file, the risk-free series, the panel and its layout, the attributes and the column that
+/// groups the industries (found by review: the summary named none of them, only "the index").
+/// The files' SHA-256 are in `result.json`.
+fn inputs(r: &UniverseResult) -> String {
+    let f = &r.files;
+    let a = &r.settings.attributes;
+    let risk_free = match &f.risk_free {
+        Some(series) => format!("risk-free series {}", code(&series.path)),
+        None => "no risk-free series".to_string(),
+    };
+    format!(
+        "Inputs: index {} ({}, {} to {}); {risk_free}; prices {} ({} layout, {} securities); \
+         attributes {} ({} rows), industries from its column {}. Each file's SHA-256 is in \
+         result.json.",
+        code(&r.settings.market.index.name),
+        code(&f.index.path),
+        f.index.first_date,
+        f.index.last_date,
+        code(&f.panel.path),
+        label(&f.panel.layout),
+        f.panel.securities,
+        code(&f.attributes.path),
+        f.attributes.rows,
+        code(&a.industry_column),
+    )
+}
+
+/// Text in backticks, so that Markdown shows a name or path as written.
+fn code(text: &str) -> String {
+    format!("`{}`", text.replace('`', "'"))
+}
+
 /// The settings that shape the betas beyond the estimator, in words: the returns, the
 /// adjustment (the table's levered β is the raw one, βU is unlevered from the adjusted one) and
 /// the debt betas.
@@ -275,6 +308,7 @@ pub(super) fn summary(r: &UniverseResult) -> String {
             " of the unlevered betas"
         },
     );
+    let _ = writeln!(out, "{}\n", inputs(r));
     let _ = writeln!(out, "{}\n", return_and_beta_settings(r));
     let _ = writeln!(out, "{}\n", flags_and_overrides(r));
     let c = &r.counts;
@@ -285,12 +319,13 @@ pub(super) fn summary(r: &UniverseResult) -> String {
     let _ = writeln!(
         out,
         "{} with prices; {}, {} excluded by \
-         beta.exclude_flags, {} not estimated{why_not}; {} with an unlevered beta. \"Estimated\" \
-         counts the securities that enter an industry's figures; \"Flagged\" those of them that \
-         carry a flag (securities.csv names each).\n",
+         beta.exclude_flags{}, {} not estimated{why_not}; {} with an unlevered beta (the \
+         excluded included). \"Estimated\" counts the securities that enter an industry's \
+         figures; \"Flagged\" those of them that carry a flag (securities.csv names each).\n",
         crate::universe::securities_count(c.securities),
         estimated_count(c.estimated, c.estimated_without_industry),
         c.excluded,
+        excluded_by_flag(c),
         c.not_estimated_total,
         c.unlevered
     );
@@ -313,16 +348,57 @@ pub(super) fn summary(r: &UniverseResult) -> String {
              aggregate that needs it, never filled in): {missing}."
         );
     }
-    out.push_str(CAUTIONS);
+    out.push_str(&cautions(r));
     out
 }
 
-const CAUTIONS: &str = "\n## Cautions\n\n\
-- A discount rate is a judgement; these tables inform it and do not replace it.\n\
+/// The cautions every table carries, then those its settings call for.
+fn cautions(r: &UniverseResult) -> String {
+    let s = &r.settings;
+    let mut out = String::from(
+        "\n## Cautions\n\n\
+- A discount rate is a judgement; these tables inform it and do not replace it. Check every \
+  figure before relying on it.\n\
 - Every beta is an estimate with sampling error: securities.csv gives each one's standard \
-  error and 95% confidence interval. An industry figure resting on few securities is fragile; \
-  the counts say how many each rests on.\n\
+  error and 95% confidence interval, and industries.csv each median's distribution-free 95% \
+  interval (`median_*_ci_low`, `median_*_ci_high`; empty below six securities). An industry \
+  figure resting on few securities is fragile; the counts say how many each rests on.\n\
+- Industry figures move with the return frequency, the window and the estimator: daily \
+  returns of thinly or late-traded securities bias their betas toward zero, which weekly or \
+  monthly returns and the Dimson or Scholes–Williams estimators (beta.method) guard against.\n\
+- The panel holds the securities the file holds: firms delisted, merged or failed within the \
+  window are in it only if the file includes them, and a panel of today's listed firms leans \
+  toward survivors.\n\
 - Prices, attributes and industry labels are used as supplied; hurdle does not check them \
   against any other source. A security's industry is the label in the attributes file.\n\
 - Unlevering assumes the formula's view of debt and taxes (see the formula's source); market \
-  values of equity and book or market debt are whatever the attributes file holds.\n";
+  values of equity and book or market debt are whatever the attributes file holds. Each firm \
+  is unlevered at the one D/E the attributes give, while its beta reflects its leverage over \
+  the whole window.\n\
+- The median of the unlevered betas relevered at the median D/E is not the median levered \
+  beta: a median of ratios is not a ratio of medians, and each column rests on its own \
+  securities (the `*_count` columns).\n",
+    );
+    let excludes = |flag| s.beta.exclude_flags.contains(&flag);
+    if excludes(crate::beta::diagnostics::PeerFlag::LowRSquared) {
+        out.push_str(
+            "- Leaving out securities with a low R² selects on the beta itself (for a given \
+             residual risk a low R² goes with a beta near zero), so the industry figures lean \
+             away from low betas.\n",
+        );
+    }
+    match s.beta.adjustment {
+        crate::beta::Adjustment::Vasicek => out.push_str(
+            "- Vasicek's prior is taken from every security estimated, across industries, so \
+             it pulls each industry toward the market-wide mean, the more so the noisier its \
+             betas.\n",
+        ),
+        crate::beta::Adjustment::Blume => out.push_str(
+            "- Blume's adjustment pulls each levered beta toward 1 before it is unlevered, so \
+             the unlevered betas move toward 1 / (1 + (1 − t) D/E), not toward an average \
+             unlevered beta.\n",
+        ),
+        crate::beta::Adjustment::None => {}
+    }
+    out
+}
