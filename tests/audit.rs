@@ -2554,3 +2554,93 @@ fn compare_names_the_settings_and_files_behind_a_gap() {
         "{report}"
     );
 }
+
+// A grid cell and an `implied` step are checked as `hurdle run --set` checks the same values
+// (found by review: a cell gave a WACC for a risk-free rate the run refuses). Every yield of the
+// demo's series raised by 0.13 puts its median near 0.157: with the case's rate at 0.1567 the
+// run succeeds, while a rate of 0.01 is refused (the median more than 10 times the rate: a file
+// of percentages read as decimals, README "Sanity rules"). The grid leaves that row's cells
+// empty with the run's own message, a row the run accepts equals the run, and `implied` over
+// the rate never answers a refused rate.
+#[test]
+fn grid_cells_and_implied_steps_refuse_what_the_run_refuses() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let yields = case_dir.join("data/risk_free.csv");
+    let raised: String = std::fs::read_to_string(&yields)
+        .unwrap()
+        .lines()
+        .enumerate()
+        .map(|(i, line)| match (i, line.split_once(',')) {
+            (0, _) | (_, None) => format!("{line}\n"),
+            (_, Some((date, value))) => {
+                format!("{date},{:.5}\n", value.parse::<f64>().unwrap() + 0.13)
+            }
+        })
+        .collect();
+    std::fs::write(&yields, raised).unwrap();
+    let rate = ["--set", "market.risk_free_rate=0.1567"];
+    let csv = dir.path().join("grid.csv");
+    let mut arguments = vec![
+        "grid",
+        case.to_str().unwrap(),
+        "--rows",
+        "market.risk_free_rate=0.01..0.03:0.01",
+        "--cols",
+        "target.debt_to_equity=0..0.5:0.5",
+        "--csv",
+        csv.to_str().unwrap(),
+    ];
+    arguments.extend(rate);
+    let output = hurdle(&arguments);
+    assert!(output.status.success(), "{}", text(&output));
+    let refused_run = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        dir.path().join("refused").to_str().unwrap(),
+        "--set",
+        "market.risk_free_rate=0.01",
+    ]);
+    assert_eq!(refused_run.status.code(), Some(2), "{}", text(&refused_run));
+    let message = "is more than 10 times market.risk_free_rate = 0.01";
+    assert!(
+        text(&refused_run).contains(message),
+        "{}",
+        text(&refused_run)
+    );
+    assert!(text(&output).contains(message), "{}", text(&output));
+    let table = std::fs::read_to_string(&csv).unwrap();
+    let rows: Vec<Vec<&str>> = table.lines().map(|l| l.split(',').collect()).collect();
+    assert_eq!(rows[1][1..], ["", ""], "the 0.01 row is empty: {table}");
+    let rerun = run_case(
+        &case,
+        &dir.path().join("cell"),
+        &[
+            "--set",
+            "market.risk_free_rate=0.02",
+            "--set",
+            "target.debt_to_equity=0.5",
+        ],
+    );
+    assert_eq!(rows[2][2].parse::<f64>().unwrap(), number(&rerun, "wacc"));
+    // A claim only rates the run refuses would reach (about 1.2 points below the WACC at 2%,
+    // the WACC moving about one for one with the rate): implied finds no value, and says
+    // which rates the case refuses.
+    let claim = format!("{}", number(&rerun, "wacc") - 0.012);
+    let mut arguments = vec![
+        "implied",
+        case.to_str().unwrap(),
+        "--solve",
+        "risk_free",
+        "--wacc",
+        &claim,
+    ];
+    arguments.extend(rate);
+    let implied = hurdle(&arguments);
+    let said = text(&implied);
+    assert!(
+        said.contains("no value of market.risk_free_rate") && said.contains("the case refuses"),
+        "{said}"
+    );
+}

@@ -14,7 +14,7 @@ use crate::case::{TargetSource, Variants};
 use crate::error::{Error, Result};
 pub use crate::valuation::analyses::{Axis, Grid, RefusedCell};
 use crate::valuation::{
-    cost_of_capital, estimates_for, CostOfCapital, Inputs, PeerEstimates, Valuation,
+    cost_of_capital, estimate_peers, CostOfCapital, Inputs, PeerEstimates, Valuation,
 };
 
 /// The figure `metric` names.
@@ -175,6 +175,7 @@ pub fn grid(
         variants: &variants,
         own: &own,
         axes: [rows, columns],
+        estimated: std::cell::RefCell::new(Vec::new()),
     };
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
@@ -237,9 +238,31 @@ struct Shared<'a> {
     /// The case's own resolved settings, to recognise its cell.
     own: &'a toml::Value,
     axes: [&'a Axis; 2],
+    /// The estimates made for cells whose keys move a beta, one per distinct estimation (the
+    /// cells are computed one after the other).
+    estimated: std::cell::RefCell<Vec<PeerEstimates>>,
 }
 
 impl Shared<'_> {
+    /// The cost of capital of a cell's case. A key that cannot move a beta (rates, premiums,
+    /// structure) reuses the run's estimates; one that does is estimated once per distinct
+    /// estimation and kept for the grid's other cells with the same one (found by review: a
+    /// 7 × 7 grid over `beta.min_observations` estimated each row's peers seven times).
+    fn cost(&self, case: &crate::case::Case) -> Result<CostOfCapital> {
+        if self.estimates.fit(case) {
+            return cost_of_capital(case, self.inputs, self.estimates);
+        }
+        let mut known = self.estimated.borrow_mut();
+        let at = match known.iter().position(|estimates| estimates.fit(case)) {
+            Some(at) => at,
+            None => {
+                known.push(estimate_peers(case, self.inputs)?);
+                known.len() - 1
+            }
+        };
+        cost_of_capital(case, self.inputs, &known[at])
+    }
+
     /// The cell of `assignments`: `Ok(Ok((figure, whether it is the case's own, looked at
     /// only when `find_own`)))`,
     /// `Ok(Err(why the valuation refuses those values))`, or an error of the whole grid (an
@@ -268,10 +291,7 @@ impl Shared<'_> {
         }
         let own_case =
             find_own && toml::Value::try_from(&case.settings).ok().as_ref() == Some(self.own);
-        // A key that cannot move a beta (rates, premiums, structure) reuses the estimates.
-        let computed = estimates_for(&case, self.inputs, self.estimates)
-            .and_then(|estimates| cost_of_capital(&case, self.inputs, &estimates));
-        let cell = match computed {
+        let cell = match self.cost(&case) {
             Ok(cost) => read(metric, &cost),
             Err(error) => return Ok(Err(error)),
         };

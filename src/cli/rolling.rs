@@ -1,6 +1,6 @@
 //! `hurdle rolling CASE.toml [--out DIR] [--set KEY=VALUE]...`
 //!
-//! Computes the valuation and writes `rolling.csv` (peer, window_end, beta, std_error,
+//! Estimates the peers (no target, cost of capital or spread table) and writes `rolling.csv` (peer, window_end, beta, std_error,
 //! observations) to DIR (default: `output/` beside the case file), never over an input; prints
 //! each peer's range and trend of the rolling beta. Window length and step:
 //! `beta.rolling_window`, `beta.rolling_step`.

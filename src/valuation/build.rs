@@ -65,8 +65,8 @@ pub fn value_with(
     })
 }
 
-/// The cost of capital of `case` alone (no records of the peers): what a grid cell or an
-/// `implied` step reads.
+/// The cost of capital of `case` alone (the peers' figures are read into it, but no memo notes,
+/// charts' data or analyses are built): what a grid cell or an `implied` step reads.
 pub fn cost_of_capital(
     case: &Case,
     inputs: &Inputs,
@@ -127,6 +127,7 @@ fn run_chain(
     estimates: &PeerEstimates,
     checks: Checks,
 ) -> Result<(Chain, Vec<Option<String>>)> {
+    super::sanity::check_rate_against_yields(case, inputs)?;
     let settings = &case.settings;
     let exclusions = exclusions(settings, estimates);
     let peers = chain_peers(settings, estimates, &exclusions);

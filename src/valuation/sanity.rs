@@ -79,20 +79,32 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
     if let Some(yields) = &inputs.risk_free {
         // The more specific finding first: a switch of units partway also moves the median.
         check_yield_switch(&inputs.case.resolve(&yields.path), yields)?;
-        let median = crate::stats::dispersion(&yields.series.values).median;
-        let rate = settings.market.risk_free_rate;
-        if median > YIELD_RATIO * rate.abs().max(0.01) {
-            return Err(Error::DataFile {
-                file: inputs.case.resolve(&yields.path),
-                message: format!(
-                    "the median yield {} is more than {YIELD_RATIO} times \
-                     market.risk_free_rate = {}: the file looks like percentages (0.5 for \
-                     0.5%); yields are decimals (0.005)",
-                    show(median),
-                    show(rate)
-                ),
-            });
-        }
+    }
+    check_rate_against_yields(&inputs.case, inputs)
+}
+
+/// Refuses a risk-free series whose median is more than [`YIELD_RATIO`] times `case`'s
+/// `market.risk_free_rate` (percentages read as decimals). Checked when the inputs are loaded
+/// and again for every what-if (a grid cell, an `implied` step), whose rate may differ from the
+/// case's: found by review, a grid cell and an implied step gave a figure for a rate that
+/// `hurdle run --set` refuses.
+pub fn check_rate_against_yields(case: &Case, inputs: &Inputs) -> Result<()> {
+    let Some(yields) = &inputs.risk_free else {
+        return Ok(());
+    };
+    let median = crate::stats::dispersion(&yields.series.values).median;
+    let rate = case.settings.market.risk_free_rate;
+    if median > YIELD_RATIO * rate.abs().max(0.01) {
+        return Err(Error::DataFile {
+            file: inputs.case.resolve(&yields.path),
+            message: format!(
+                "the median yield {} is more than {YIELD_RATIO} times \
+                 market.risk_free_rate = {}: the file looks like percentages (0.5 for 0.5%); \
+                 yields are decimals (0.005)",
+                show(median),
+                show(rate)
+            ),
+        });
     }
     Ok(())
 }
