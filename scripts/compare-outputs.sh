@@ -47,7 +47,8 @@ combos=(
   "conversion.currency=USD conversion.inflation_case=0.02 conversion.inflation_output=0.035"
   "uncertainty.equity_risk_premium=[0.045,0.065] uncertainty.risk_free_rate=[0.03,0.045]"
 )
-# The file's text with the run's timestamp replaced; a workbook as what a reader sees of each
+# The file's text with the run's timestamp and hurdle's version replaced (a release that changes
+# no figure still changes its number: `hurdle 0.7.0`, `"version": "0.7.0"`); a workbook as what a reader sees of each
 # cell (value or formula, number format, font, fill, note), read back with openpyxl.
 normalised() {
   if [[ $1 == *.xlsx ]]; then
@@ -64,7 +65,8 @@ for sheet in book.worksheets:
                   c.font.color.rgb, c.fill.fgColor.rgb, c.comment and c.comment.text)' "$1"
   else
     cat "$1"
-  fi | sed -E 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z?/TIMESTAMP/g'
+  fi | sed -E -e 's/[0-9]{4}-[0-9]{2}-[0-9]{2}T[0-9:]{8}Z?/TIMESTAMP/g' \
+    -e 's/(hurdle |"version": ")[0-9]+\.[0-9]+\.[0-9]+/\1VERSION/g'
 }
 status=0
 for combo in "${combos[@]}"; do

@@ -20,13 +20,14 @@ pub mod waterfall;
 use crate::error::{Error, Result};
 use crate::valuation::{estimate_peers, value_with, Inputs, Valuation};
 
-/// The valuation with every analysis the memo shows.
+/// The valuation with every analysis the memo shows: the valuation of the case alone, then its
+/// analyses, which read it, and the whole record built from both (nothing patched in later).
 pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     // The peers are estimated once; the grid and the Monte Carlo reuse the estimates.
     let estimates = estimate_peers(&inputs.case, inputs)?;
-    let mut valuation = value_with(&inputs.case, inputs, &estimates, generated_at)?;
+    let base = value_with(&inputs.case, inputs, &estimates, generated_at)?;
     let sensitivity = &inputs.case.settings.sensitivity;
-    let (rows, columns) = grid::default_axes(&valuation);
+    let (rows, columns) = grid::default_axes(&base);
     let rows = match &sensitivity.rows {
         Some(spec) => grid::parse_axis("sensitivity.rows", spec)?,
         None => rows,
@@ -38,7 +39,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     // The grid, the specification range and the Monte Carlo only read the estimates and the case,
     // so they run side by side (two cores halve the wall time); their errors are reported in this
     // fixed order, whichever finished first.
-    let point = valuation.cost.wacc;
+    let point = base.cost.wacc;
     let specifications = || {
         if inputs.case.settings.uncertainty.specification_range {
             specification::range(inputs, &estimates, point)
@@ -50,28 +51,35 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         || grid::grid(inputs, &estimates, &rows, &columns, sensitivity.metric),
         || uncertainty::simulate(&inputs.case, inputs, &estimates, point, specifications),
     );
-    valuation.sensitivity = Some(sensitivity?);
-    let uncertainty = uncertainty?;
-    valuation.notes.extend(specification::note(&uncertainty));
-    valuation.uncertainty = Some(uncertainty);
-    if let Some(reconcile) = &inputs.case.settings.reconcile {
-        let path = inputs.case.resolve(&reconcile.claimed);
-        let claimed = bridge::read_side(&path, &reconcile.claimed)?;
-        let ours = bridge::Side::from_valuation("this case", &valuation);
-        // The case's date speaks for its side in the note only; the bridge's record of the
-        // side keeps no date (a case's is in the receipt already).
-        let dated = bridge::Side {
-            as_of: Some(valuation.case.valuation_date.to_string()),
-            currency: Some(valuation.case.currency.clone()),
-            ..ours.clone()
-        };
-        valuation.notes.extend(bridge::dates_note(&dated, &claimed));
-        valuation
-            .notes
-            .extend(bridge::currency_note(&dated, &claimed));
-        valuation.notes.extend(bridge::claim_notes(&claimed));
-        valuation.reconciliation = Some(bridge::bridge(&ours, &claimed));
-    }
+    let (sensitivity, uncertainty) = (sensitivity?, uncertainty?);
+    let mut notes = base.notes.clone();
+    notes.extend(specification::note(&uncertainty));
+    let reconciliation = match &inputs.case.settings.reconcile {
+        Some(reconcile) => {
+            let path = inputs.case.resolve(&reconcile.claimed);
+            let claimed = bridge::read_side(&path, &reconcile.claimed)?;
+            let ours = bridge::Side::from_valuation("this case", &base);
+            // The case's date speaks for its side in the note only; the bridge's record of the
+            // side keeps no date (a case's is in the receipt already).
+            let dated = bridge::Side {
+                as_of: Some(base.case.valuation_date.to_string()),
+                currency: Some(base.case.currency.clone()),
+                ..ours.clone()
+            };
+            notes.extend(bridge::dates_note(&dated, &claimed));
+            notes.extend(bridge::currency_note(&dated, &claimed));
+            notes.extend(bridge::claim_notes(&claimed));
+            Some(bridge::bridge(&ours, &claimed))
+        }
+        None => None,
+    };
+    let valuation = Valuation {
+        sensitivity: Some(sensitivity),
+        uncertainty: Some(uncertainty),
+        reconciliation,
+        notes,
+        ..base
+    };
     crate::valuation::sanity::check_finite_figures(&valuation)?;
     Ok(valuation)
 }

@@ -58,7 +58,7 @@ pub(crate) fn dimson_fit(
         &design,
         &combination,
         &offsets,
-        kind,
+        (kind, newey_west_lags),
         influence,
     ))
 }

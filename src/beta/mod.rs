@@ -144,18 +144,13 @@ pub fn estimate_with_influence(
         )));
     }
     let (kind, l) = (settings.std_errors, lags.unwrap_or(0));
-    let mut estimate = match settings.method {
+    Ok(match settings.method {
         BetaMethod::Ols => ols_fit(asset, market, kind, l, influence)?,
         BetaMethod::Dimson => dimson::dimson_fit(asset, market, shifted, kind, l, influence)?,
         BetaMethod::ScholesWilliams => {
-            scholes_williams::scholes_williams_beta(asset, market, shifted, kind, l)?
+            scholes_williams::scholes_williams_fit(asset, market, shifted, (kind, l), influence)?
         }
-    };
-    if !influence {
-        estimate.beta_influence = Vec::new();
-    }
-    estimate.newey_west_lags = lags;
-    Ok(estimate)
+    })
 }
 
 /// A [`BetaEstimate`] whose beta is the linear combination `combination · coefficients` of a
@@ -168,7 +163,7 @@ pub(crate) fn from_fit(
     design: &DMatrix<f64>,
     combination: &[f64],
     offsets: &[i32],
-    kind: StdErrors,
+    (kind, newey_west_lags): (StdErrors, usize),
     influence: bool,
 ) -> BetaEstimate {
     let c = DMatrix::from_column_slice(combination.len(), 1, combination);
@@ -200,31 +195,49 @@ pub(crate) fn from_fit(
             std_error: fit.std_errors[i + 1],
         })
         .collect();
-    let mut estimate = finish(
+    finish(
         method,
         fit,
-        (fit.coefficients[0], fit.std_errors[0]),
-        (beta, beta_std_error),
-        alpha_beta_covariance,
-        kind,
-        market_coefficients,
-    );
-    estimate.beta_influence = influence;
-    estimate
+        Parts {
+            alpha: (fit.coefficients[0], fit.std_errors[0]),
+            beta: (beta, beta_std_error),
+            alpha_beta_covariance,
+            errors: (kind, newey_west_lags),
+            market_coefficients,
+            market_autocorrelation: None,
+            beta_influence: influence,
+        },
+    )
+}
+
+/// What an estimator computed beside its fit, for [`finish`] to build the estimate whole.
+pub(crate) struct Parts {
+    /// Estimate and standard error.
+    pub alpha: (f64, f64),
+    pub beta: (f64, f64),
+    pub alpha_beta_covariance: f64,
+    /// The standard errors and the Newey–West lags they used (recorded only for Newey–West).
+    pub errors: (StdErrors, usize),
+    pub market_coefficients: Vec<MarketCoefficient>,
+    /// ρ of Scholes–Williams; `None` for the other estimators.
+    pub market_autocorrelation: Option<f64>,
+    /// Empty when not asked for.
+    pub beta_influence: Vec<f64>,
 }
 
 /// Fills the t, p and 95% CI of alpha and beta from their estimates and standard errors, with
 /// Student t on the fit's degrees of freedom (the CI and p follow the chosen standard errors),
 /// and the diagnostics of the fit's residuals.
-pub(crate) fn finish(
-    method: BetaMethod,
-    fit: &OlsFit,
-    (alpha, alpha_std_error): (f64, f64),
-    (beta, beta_std_error): (f64, f64),
-    alpha_beta_covariance: f64,
-    kind: StdErrors,
-    market_coefficients: Vec<MarketCoefficient>,
-) -> BetaEstimate {
+pub(crate) fn finish(method: BetaMethod, fit: &OlsFit, parts: Parts) -> BetaEstimate {
+    let Parts {
+        alpha: (alpha, alpha_std_error),
+        beta: (beta, beta_std_error),
+        alpha_beta_covariance,
+        errors: (kind, lags),
+        market_coefficients,
+        market_autocorrelation,
+        beta_influence,
+    } = parts;
     let df = fit.degrees_of_freedom as f64;
     let large_studentised_residual_rows: Vec<usize> = fit
         .studentised_residuals()
@@ -254,14 +267,14 @@ pub(crate) fn finish(
         adjusted_r_squared: fit.adjusted_r_squared,
         residual_std_error: fit.residual_std_error,
         std_errors: kind,
-        newey_west_lags: None,
+        newey_west_lags: (kind == StdErrors::NeweyWest).then_some(lags),
         market_coefficients,
-        market_autocorrelation: None,
+        market_autocorrelation,
         durbin_watson: fit.durbin_watson(),
         large_studentised_residuals: large_studentised_residual_rows.len(),
         large_studentised_residual_rows,
         alpha_beta_covariance,
-        beta_influence: Vec::new(),
+        beta_influence,
     }
 }
 
@@ -315,7 +328,7 @@ fn ols_fit(
         &design,
         &[0.0, 1.0],
         &[0],
-        kind,
+        (kind, newey_west_lags),
         influence,
     ))
 }

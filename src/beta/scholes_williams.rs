@@ -14,7 +14,7 @@ use crate::stats::least_squares::{
     design_with_intercept, linear_estimator_covariance, ols, StdErrors,
 };
 
-use super::{finish, BetaEstimate, MarketCoefficient};
+use super::{finish, BetaEstimate, MarketCoefficient, Parts};
 
 /// The least 1 + 2ρ the estimator divides by: below it (an index autocorrelation ρ under
 /// −0.4) the beta is not computed. As ρ nears −1/2 the divisor vanishes and the beta grows
@@ -44,6 +44,17 @@ pub fn scholes_williams_beta(
     shifted: &[ShiftedMarket],
     kind: StdErrors,
     newey_west_lags: usize,
+) -> Result<BetaEstimate> {
+    scholes_williams_fit(asset, market, shifted, (kind, newey_west_lags), true)
+}
+
+/// [`scholes_williams_beta`], the influence terms only when `influence`.
+pub(crate) fn scholes_williams_fit(
+    asset: &[f64],
+    market: &[f64],
+    shifted: &[ShiftedMarket],
+    (kind, newey_west_lags): (StdErrors, usize),
+    influence: bool,
 ) -> Result<BetaEstimate> {
     let column = |offset: i32| {
         shifted
@@ -101,18 +112,23 @@ pub fn scholes_williams_beta(
             std_error: se(i + 2),
         })
         .collect();
-    let mut estimate = finish(
+    let beta_influence = match influence {
+        true => (0..n).map(|t| a[(1, t)] * fit.residuals[t]).collect(),
+        false => Vec::new(),
+    };
+    Ok(finish(
         BetaMethod::ScholesWilliams,
         &fit,
-        (alpha, se(0)),
-        (beta, se(1)),
-        cov[(0, 1)],
-        kind,
-        market_coefficients,
-    );
-    estimate.market_autocorrelation = Some(rho);
-    estimate.beta_influence = (0..n).map(|t| a[(1, t)] * fit.residuals[t]).collect();
-    Ok(estimate)
+        Parts {
+            alpha: (alpha, se(0)),
+            beta: (beta, se(1)),
+            alpha_beta_covariance: cov[(0, 1)],
+            errors: (kind, newey_west_lags),
+            market_coefficients,
+            market_autocorrelation: Some(rho),
+            beta_influence,
+        },
+    ))
 }
 
 /// The divisor 1 + 2ρ, refused below [`MIN_DIVISOR`] with ρ and the divisor named.
