@@ -2376,3 +2376,46 @@ fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
     let s17 = security_row(&securities, "S17");
     assert!(number(&s17, "operations_beta") > 2.0 * number(&s17, "unlevered_beta"));
 }
+
+// Market values saved as a spreadsheet in a German or French locale shows them, a point between
+// the thousands (`1.500` for 1,500), beside values under a thousand without one (`750`): read as
+// written, the large ones are a thousandth of their value. The run goes on (three decimals
+// beside whole figures can be meant) but the summary's notes say what the points may be.
+#[test]
+fn thousands_separators_in_the_attributes_are_noted() {
+    let setup = Setup::new();
+    let attributes = setup.dir().join("attributes.csv");
+    let text = fs::read_to_string(&attributes).unwrap();
+    let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
+    let at = header.iter().position(|c| *c == "market_cap").unwrap();
+    let mut separated = 0;
+    let edited: String = text
+        .lines()
+        .map(|line| {
+            let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
+            if let Ok(value) = cells[at].parse::<u64>() {
+                if value >= 1000 {
+                    cells[at] = format!("{}.{:03}", value / 1000, value % 1000);
+                    separated += 1;
+                }
+            }
+            cells.join(",") + "\n"
+        })
+        .collect();
+    assert!(separated >= 2, "{edited}");
+    fs::write(&attributes, edited).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains(
+            "every figure of `market_cap` in attributes.csv written with a point has exactly \
+             three digits after it (1.000, 1.250) while others have none (500)"
+        ),
+        "{summary}"
+    );
+    // The unedited file gives no such note.
+    let setup = Setup::new();
+    let plain = setup.succeeds("out", &[]);
+    let summary = fs::read_to_string(plain.join("summary.md")).unwrap();
+    assert!(!summary.contains("thousands separators"), "{summary}");
+}

@@ -56,6 +56,20 @@ pub struct AttributesFile {
 pub struct Attributes {
     pub file: AttributesFile,
     records: Vec<AttributeRecord>,
+    /// The figure columns whose points look like thousands separators ([`thousands_points`]).
+    pub thousands_points: Vec<ThousandsPoints>,
+}
+
+/// A column of figures whose every point is followed by exactly three digits beside figures
+/// without a point: written by a spreadsheet that separates thousands with a point (66.471 for
+/// 66,471), its figures of a thousand and more are read as a thousandth of their value while
+/// the smaller ones are read as they are.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ThousandsPoints {
+    pub column: String,
+    /// Up to two figures with a point, and one without, as written.
+    pub with_point: Vec<String>,
+    pub without_point: String,
 }
 
 impl Attributes {
@@ -125,6 +139,13 @@ pub fn read_attributes(
         source.file_error(format!("not a readable table: {message}"))
     })?;
     let records = records(&source, &frame, whole_header, columns)?;
+    let figures = [Some(&columns.equity_value), Some(&columns.debt), columns.cash.as_ref()];
+    let thousands_points = (figures.into_iter().flatten())
+        .filter_map(|name| {
+            let cells = frame.column(name).ok()?.str().ok()?;
+            thousands_points(name, cells.iter().flatten().map(str::trim))
+        })
+        .collect();
     let mut order: Vec<usize> = (0..records.len()).collect();
     order.sort_by(|&a, &b| records[a].security.cmp(&records[b].security));
     if let Some(w) = order
@@ -151,6 +172,49 @@ pub fn read_attributes(
             rows: records.len(),
         },
         records,
+        thousands_points,
+    })
+}
+
+/// Whether the texts of column `name` look like [`ThousandsPoints`]: at least two hold one point
+/// with one to three digits before it (the first not 0) and exactly three after, no text holds
+/// a point any other way, and at least one holds none (a figure under a thousand, which a
+/// separator leaves alone). Data in units whose every figure has three decimals and none is
+/// whole do not qualify; those with whole figures beside them may, which is why this is a note
+/// and not a refusal.
+pub fn thousands_points<'a>(
+    name: &str,
+    texts: impl Iterator<Item = &'a str>,
+) -> Option<ThousandsPoints> {
+    let grouped = |t: &str| {
+        t.split_once('.').is_some_and(|(head, tail)| {
+            (1..=3).contains(&head.len())
+                && !head.starts_with('0')
+                && head.bytes().all(|b| b.is_ascii_digit())
+                && tail.len() == 3
+                && tail.bytes().all(|b| b.is_ascii_digit())
+        })
+    };
+    let (mut with_point, mut count, mut without_point) = (Vec::new(), 0, None);
+    for text in texts.filter(|t| !t.is_empty()) {
+        match text.contains('.') {
+            true if grouped(text) => {
+                count += 1;
+                if with_point.len() < 2 {
+                    with_point.push(text.to_string());
+                }
+            }
+            true => return None,
+            false => {
+                without_point.get_or_insert_with(|| text.to_string());
+            }
+        }
+    }
+    let without_point = without_point?;
+    (count >= 2).then(|| ThousandsPoints {
+        column: name.to_string(),
+        with_point,
+        without_point,
     })
 }
 
@@ -376,4 +440,35 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
             Ok(value)
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Worked by hand: 66.471 and 9.402 are grouped figures (one to three digits, a point, three
+    // digits) and 512 has no point, so the column qualifies; 0.512 (a leading zero), 12.5 (one
+    // decimal) or 1.2345 (four) are decimals, and a column without a figure free of points
+    // (every one scaled alike, so no ratio or weight moves) does not qualify.
+    #[test]
+    fn thousands_points_needs_grouped_points_beside_whole_figures() {
+        let found = thousands_points("cap", ["66.471", "512", "9.402", "1.250"].into_iter());
+        assert_eq!(
+            found,
+            Some(ThousandsPoints {
+                column: "cap".into(),
+                with_point: vec!["66.471".into(), "9.402".into()],
+                without_point: "512".into(),
+            })
+        );
+        for texts in [
+            &["66.471", "512"][..],
+            &["66.471", "9.402", "12.5", "512"],
+            &["66.471", "9.402", "0.512", "512"],
+            &["66.471", "9.402", "1.2345", "512"],
+            &["66.471", "9.402", "6.664"],
+        ] {
+            assert_eq!(thousands_points("cap", texts.iter().copied()), None, "{texts:?}");
+        }
+    }
 }

@@ -43,6 +43,7 @@ pub(super) fn counts_and_notes(
         ))
         .collect();
     notes.splice(0..0, index_coverage_note(&inputs.index, window));
+    notes.extend(thousands_notes(inputs));
     notes.extend(strays_note(inputs, &strays));
     notes.extend(named_notes(securities));
     notes.extend(cash_heavy_note(securities));
@@ -92,6 +93,30 @@ fn counts(securities: &[SecurityResult], strays: usize) -> Counts {
         unlevered: count(&|s| s.unlevered_beta.is_some()),
         attributes_not_in_panel: strays,
     }
+}
+
+/// The attributes' figure columns whose points look like thousands separators (found by review:
+/// figures saved as a spreadsheet in a German or French locale shows them, `66.471` for 66,471,
+/// were read as 66.471 beside unseparated figures under a thousand, with no word said).
+fn thousands_notes(inputs: &UniverseInputs) -> Vec<String> {
+    let attributes = &inputs.attributes;
+    (attributes.thousands_points.iter())
+        .map(|t| {
+            format!(
+                "every figure of `{}` in {} written with a point has exactly three digits after \
+                 it ({}) while others have none ({}): if the point separates thousands ({} for \
+                 {}), those figures are read as a thousandth of their value and the D/E and \
+                 weights built on them are wrong; write figures without thousands separators, a \
+                 point only before decimals",
+                t.column,
+                attributes.file.path,
+                t.with_point.join(", "),
+                t.without_point,
+                t.with_point[0],
+                t.with_point[0].replace('.', ",")
+            )
+        })
+        .collect()
 }
 
 /// The attribute rows whose security the panel does not hold, by id.

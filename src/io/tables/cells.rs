@@ -168,13 +168,19 @@ fn is_time_of_day(time: &str) -> bool {
 /// A serial date of the 1900 date system: day 1 is 1900-01-01 and day 61 is 1900-03-01 (the
 /// system counts a 29 February 1900 that never was, so serials from 61 on count from
 /// 1899-12-30). Serials before 61 and beyond 9999-12-31 are refused: no price table reaches
-/// there, and a number that small in a date column is more likely a misplaced price.
+/// there, and a number that small in a date column is more likely a misplaced price. The
+/// serial is taken to the nearest millisecond before its day is read, as calamine reads a
+/// date-formatted cell and a spreadsheet shows one (found by review: 45293 less 1e-9, which a
+/// spreadsheet shows as 45293 and as 2024-01-02, was read as 2024-01-01 in a cell formatted as
+/// a number while the same value formatted as a date gave 2024-01-02).
 pub fn serial_to_date(serial: f64) -> Option<NaiveDate> {
+    const MS_PER_DAY: f64 = 86_400_000.0;
     if !(61.0..LAST_SERIAL + 1.0).contains(&serial) {
         return None;
     }
     let epoch = NaiveDate::from_ymd_opt(1899, 12, 30).expect("valid date");
-    epoch.checked_add_days(Days::new(serial.floor() as u64))
+    let days = ((serial * MS_PER_DAY).round() / MS_PER_DAY).floor();
+    epoch.checked_add_days(Days::new(days as u64))
 }
 
 /// Where a table's cells sit in its file, for messages.
@@ -298,6 +304,11 @@ mod tests {
         assert_eq!(serial_to_date(61.0), Some(day(1900, 3, 1)));
         assert_eq!(serial_to_date(36_526.0), Some(day(2000, 1, 1)));
         assert_eq!(serial_to_date(45_565.75), Some(day(2024, 9, 30)));
+        // To the nearest millisecond first, as calamine 0.38's `ExcelDateTime::as_datetime`
+        // reads a date cell: a serial a nanosecond short of midnight is the next day, and one
+        // 23:59:59.9 into a day (a tenth of a second short, 1.16e-6) is still that day.
+        assert_eq!(serial_to_date(45_293.0 - 1e-9), Some(day(2024, 1, 2)));
+        assert_eq!(serial_to_date(45_293.0 - 0.1 / 86_400.0), Some(day(2024, 1, 1)));
         assert_eq!(serial_to_date(LAST_SERIAL), Some(day(9999, 12, 31)));
         assert_eq!(serial_to_date(60.0), None);
         assert_eq!(serial_to_date(LAST_SERIAL + 1.0), None);
