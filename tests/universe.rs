@@ -692,6 +692,13 @@ fn replace_line(path: &Path, line: usize, with: &str) -> String {
     old
 }
 
+/// The cells of line `line` (1-based, header = 1) of the attributes file.
+fn attributes_row(dir: &Path, line: usize) -> Vec<String> {
+    let text = fs::read_to_string(dir.join("attributes.csv")).unwrap();
+    let row = text.lines().nth(line - 1).unwrap();
+    row.split(',').map(str::to_string).collect()
+}
+
 fn panel_line(dir: &Path, line: usize) -> Vec<String> {
     let text = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
     text.lines()
@@ -988,16 +995,9 @@ fn an_id_or_an_industry_with_a_line_break_is_refused() {
     );
     refused(
         |dir| {
-            let path = dir.join("attributes.csv");
-            let line = fs::read_to_string(&path)
-                .unwrap()
-                .lines()
-                .nth(2)
-                .unwrap()
-                .to_string();
-            let cells: Vec<&str> = line.split(',').collect();
+            let cells = attributes_row(dir, 3);
             replace_line(
-                &path,
+                &dir.join("attributes.csv"),
                 3,
                 &format!("{},\"Industry\nA\",{}", cells[0], cells[2..].join(",")),
             );
@@ -2418,4 +2418,59 @@ fn thousands_separators_in_the_attributes_are_noted() {
     let plain = setup.succeeds("out", &[]);
     let summary = fs::read_to_string(plain.join("summary.md")).unwrap();
     assert!(!summary.contains("thousands separators"), "{summary}");
+}
+
+// What a spreadsheet export puts in a universe's files, each refused with the advice that fits
+// it (found by review): a placeholder for a missing attribute is cleared, not its row deleted;
+// a byte of a Latin-1 file is named by line and byte; a file saved as UTF-16 ("Unicode text")
+// is named as such (its first bytes FF FE are UTF-16's byte-order mark, Unicode 15.0, section
+// 23.8); the header repeated inside a long panel is named as a repeated header.
+#[test]
+fn spreadsheet_exports_are_refused_with_the_advice_that_fits() {
+    refused(
+        |dir| {
+            let mut cells = attributes_row(dir, 3);
+            cells[4] = "#N/A".into();
+            replace_line(&dir.join("attributes.csv"), 3, &cells.join(","));
+        },
+        &[],
+        &[
+            "attributes.csv, line 3: `debt` = \"#N/A\" is not a number",
+            "clear the cell",
+        ],
+    );
+    refused(
+        |dir| {
+            // Line 3 is S02's, which begins `S02,Industry A,Sector `: its `o` is byte 20.
+            let path = dir.join("attributes.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let line = text.lines().nth(2).unwrap();
+            assert!(line.starts_with("S02,Industry A,Sector "), "{line}");
+            let at = text.find(line).unwrap() + "S02,Industry A,Sect".len();
+            let mut bytes = text.into_bytes();
+            bytes[at] = 0xE9; // é in Latin-1, not a UTF-8 byte on its own
+            fs::write(&path, bytes).unwrap();
+        },
+        &[],
+        &["attributes.csv, line 3: byte 20 (0xE9) is not UTF-8 text"],
+    );
+    refused(
+        |dir| {
+            let path = dir.join("prices-long.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let mut bytes = vec![0xFF, 0xFE];
+            bytes.extend(text.encode_utf16().flat_map(u16::to_le_bytes));
+            fs::write(&path, bytes).unwrap();
+        },
+        &[],
+        &["prices-long.csv: the file is text saved as UTF-16"],
+    );
+    refused_with_panel_line(
+        40,
+        |_| "date,security,close".to_string(),
+        &[
+            "prices-long.csv, line 40: `close` = \"close\"",
+            "the header row is repeated here",
+        ],
+    );
 }

@@ -20,6 +20,19 @@ pub enum ValueKind {
 pub const PRICE_RANGE: (f64, f64) = (1e-100, 1e100);
 
 impl ValueKind {
+    /// What to do for a day without a value of this kind, for a message about a placeholder
+    /// such as `#N/A` or `n/a` in its place.
+    pub fn missing_advice(self) -> &'static str {
+        match self {
+            ValueKind::Price => {
+                "delete the row of a day without a price (a missing day is skipped, never filled)"
+            }
+            ValueKind::Yield => {
+                "delete the row of a day without a yield (a missing day is skipped, never filled)"
+            }
+        }
+    }
+
     /// The rule `value` breaks, in words, or `None` when it lies in the kind's range: one rule
     /// for price and yield files, wide tables and panels.
     pub fn broken_rule(self, value: f64) -> Option<&'static str> {
@@ -434,8 +447,22 @@ pub fn binary_kind(bytes: &[u8]) -> Option<&'static str> {
     }
 }
 
+/// The first byte of `bytes` that is not UTF-8 text, as (its line from 0, the message naming
+/// its byte within the line): for readers whose parser says only "invalid utf-8" (found by
+/// review: a panel or attributes file saved in Latin-1 was named by neither line nor byte).
+pub(crate) fn first_non_utf8(bytes: &[u8]) -> Option<(usize, String)> {
+    let at = std::str::from_utf8(bytes).err()?.valid_up_to();
+    let before = &bytes[..at];
+    let line = before.iter().filter(|&&b| b == b'\n').count();
+    let start = before
+        .iter()
+        .rposition(|&b| b == b'\n')
+        .map_or(0, |i| i + 1);
+    Some((line, not_utf8(at - start + 1, bytes[at])))
+}
+
 /// The message for a byte that is not UTF-8 text, at its 1-based column in its line.
-fn not_utf8(column: usize, byte: u8) -> String {
+pub(crate) fn not_utf8(column: usize, byte: u8) -> String {
     format!("byte {column} (0x{byte:02X}) is not UTF-8 text; save the file as UTF-8 (plain text)")
 }
 

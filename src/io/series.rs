@@ -295,7 +295,7 @@ fn parse_row(
     let value: f64 = value_cell.parse().map_err(|_| {
         format!(
             "`{value_column}` = \"{value_cell}\" is not a number: {}",
-            number_problem(value_cell)
+            number_problem(value_cell, kind.missing_advice())
         )
     })?;
     match kind.broken_rule(value) {
@@ -341,19 +341,25 @@ pub(crate) fn date_hint(cell: &str, date_column: &str) -> &'static str {
 pub(crate) const GENERIC_DATE_HINT: &str = "write dates year first, YYYY-MM-DD (2023-03-31)";
 
 /// What to write instead of a price, yield or attribute cell that is not a number.
-pub(crate) fn number_problem(cell: &str) -> &'static str {
+pub(crate) fn number_problem(cell: &str, missing: &str) -> String {
     let cell = cell.trim();
-    if cell.starts_with('#') || cell.is_empty() || cell == "-" {
-        "a spreadsheet error or empty cell; delete the row of a day without a price (a missing \
-         day is skipped, never filled)"
+    let placeholder = [
+        "n/a", "na", "n.a.", "null", "none", "missing", "—", "–", "-",
+    ];
+    let digits_apart = |separator: char| {
+        cell.split(separator).count() > 1
+            && (cell.split(separator)).all(|part| part.chars().any(|c| c.is_ascii_digit()))
+    };
+    if cell.starts_with('#') || cell.is_empty() || placeholder.contains(&&*cell.to_lowercase()) {
+        format!("a spreadsheet error or a placeholder for a missing value; {missing}")
     } else if cell.ends_with('%') {
-        "write the number without a % sign (a yield or rate as a decimal, 0.0325 for 3.25%)"
-    } else if cell.contains(',') {
-        "write the number with a decimal point and no thousands separator (1043.83)"
+        "write the number without a % sign (a yield or rate as a decimal, 0.0325 for 3.25%)".into()
+    } else if cell.contains(',') || digits_apart(' ') || digits_apart('\'') {
+        "write the number with a decimal point and no thousands separator (1043.83)".into()
     } else if cell.starts_with(['$', '€', '£', '¥']) {
-        "write the number without a currency sign"
+        "write the number without a currency sign".into()
     } else {
-        "write the number alone, with a decimal point"
+        "write the number alone, with a decimal point".into()
     }
 }
 

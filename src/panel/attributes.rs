@@ -115,6 +115,9 @@ pub fn read_attributes(
     let frame = match format {
         TableFormat::Csv => {
             let header = super::header::header(&source, &bytes)?;
+            if let Some((line, message)) = crate::io::sanity::first_non_utf8(&bytes) {
+                return Err(source.row_error(line.saturating_sub(1), message));
+            }
             super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
             let fewest = crate::io::sanity::fewest_fields(&header);
@@ -139,7 +142,11 @@ pub fn read_attributes(
         source.file_error(format!("not a readable table: {message}"))
     })?;
     let records = records(&source, &frame, whole_header, columns)?;
-    let figures = [Some(&columns.equity_value), Some(&columns.debt), columns.cash.as_ref()];
+    let figures = [
+        Some(&columns.equity_value),
+        Some(&columns.debt),
+        columns.cash.as_ref(),
+    ];
     let thousands_points = (figures.into_iter().flatten())
         .filter_map(|name| {
             let cells = frame.column(name).ok()?.str().ok()?;
@@ -405,7 +412,12 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
                                 k,
                                 format!(
                                     "`{name}` = \"{text}\" is not a number: {}",
-                                    crate::io::series::number_problem(text)
+                                    crate::io::series::number_problem(
+                                        text,
+                                        "clear the cell: a figure left empty is flagged \
+                                         (missing_…) and the security kept out of every \
+                                         aggregate that needs it, never filled in"
+                                    )
                                 ),
                             )
                         }),
@@ -468,7 +480,11 @@ mod tests {
             &["66.471", "9.402", "1.2345", "512"],
             &["66.471", "9.402", "6.664"],
         ] {
-            assert_eq!(thousands_points("cap", texts.iter().copied()), None, "{texts:?}");
+            assert_eq!(
+                thousands_points("cap", texts.iter().copied()),
+                None,
+                "{texts:?}"
+            );
         }
     }
 }

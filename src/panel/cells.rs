@@ -20,8 +20,16 @@ pub(crate) enum DateCells<'a> {
 /// case's price-file advice in a long panel; in a wide one, a spreadsheet error or dash is a
 /// day without a price (left empty), a formatted number gets the same advice, and a word
 /// suggests the file is long.
-pub(crate) fn number_hint(cell: &str, columns: &PanelColumns) -> String {
-    let placeholder = cell.starts_with('#') || cell.trim_matches('-').is_empty();
+pub(crate) fn number_hint(cell: &str, column: &str, columns: &PanelColumns) -> String {
+    // The header again in the middle of the file (two exports pasted together; found by review:
+    // named as a price that is not a number, with a wide file's advice to read it as long).
+    if cell == column {
+        return ": the header row is repeated here; remove the repeated header".into();
+    }
+    let words = ["n/a", "na", "n.a.", "null", "none", "missing"];
+    let placeholder = cell.starts_with('#')
+        || cell.trim_matches(['-', '—', '–']).is_empty()
+        || words.contains(&&*cell.to_lowercase());
     // A number as a spreadsheet formats it: a separator, a % or currency sign.
     let formatted = cell.contains([',', '%']) || cell.starts_with(['$', '€', '£', '¥']);
     match columns.layout {
@@ -33,7 +41,13 @@ pub(crate) fn number_hint(cell: &str, columns: &PanelColumns) -> String {
              security, set panel.layout = \"long\")",
             columns.date_column
         ),
-        _ => format!(": {}", crate::io::series::number_problem(cell)),
+        _ => format!(
+            ": {}",
+            crate::io::series::number_problem(
+                cell,
+                crate::io::sanity::ValueKind::Price.missing_advice()
+            )
+        ),
     }
 }
 

@@ -389,6 +389,10 @@ fn diagnose(
     columns: &PanelColumns,
     error: &PolarsError,
 ) -> Error {
+    if let Some((line, message)) = crate::io::sanity::first_non_utf8(block) {
+        let row = (first_row + line).saturating_sub(usize::from(has_header));
+        return source.row_error(row, message);
+    }
     let expected = plan.header.len();
     if let Some((record, message)) = first_bad_record(block, expected, None) {
         let row = (first_row + record).saturating_sub(usize::from(has_header));
@@ -437,7 +441,7 @@ fn diagnose(
                     );
                 }
                 if !trimmed.is_empty() && trimmed.parse::<f64>().is_err() {
-                    let hint = super::cells::number_hint(trimmed, columns);
+                    let hint = super::cells::number_hint(trimmed, name, columns);
                     return source.row_error(
                         first_row + k,
                         format!("`{name}` = \"{cell}\" is not a number{hint}"),

@@ -13,6 +13,14 @@ use crate::error::{Error, Result};
 /// a row of text, so that a repeated or empty name is seen as it is (read as a header, polars
 /// would rename it).
 pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
+    // A workbook or text saved as UTF-16 given as CSV is named as what it is (found by review:
+    // a UTF-16 panel was reported as lines ending in CR alone).
+    if let Some(kind) = crate::io::sanity::binary_kind(block) {
+        return Err(source.file_error(format!(
+            "the file is {kind}, not CSV text: save it as CSV (comma-separated, UTF-8), or as \
+             Parquet with the .parquet extension"
+        )));
+    }
     // The first record alone (its end: the first line end outside quotes), so that a later
     // line's field count is not the header's concern.
     let mut in_quotes = false;
@@ -21,6 +29,13 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
         b == b'\n' && !in_quotes
     });
     let block = &block[..end.map_or(block.len(), |end| end + 1)];
+    if let Some((_, message)) = crate::io::sanity::first_non_utf8(block) {
+        return Err(Error::DataRow {
+            file: source.file.clone(),
+            line: 1,
+            message,
+        });
+    }
     if let Some((line, column)) = crate::io::sanity::first_lone_carriage_return(block) {
         return Err(Error::DataRow {
             file: source.file.clone(),

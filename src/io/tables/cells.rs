@@ -308,7 +308,10 @@ mod tests {
         // reads a date cell: a serial a nanosecond short of midnight is the next day, and one
         // 23:59:59.9 into a day (a tenth of a second short, 1.16e-6) is still that day.
         assert_eq!(serial_to_date(45_293.0 - 1e-9), Some(day(2024, 1, 2)));
-        assert_eq!(serial_to_date(45_293.0 - 0.1 / 86_400.0), Some(day(2024, 1, 1)));
+        assert_eq!(
+            serial_to_date(45_293.0 - 0.1 / 86_400.0),
+            Some(day(2024, 1, 1))
+        );
         assert_eq!(serial_to_date(LAST_SERIAL), Some(day(9999, 12, 31)));
         assert_eq!(serial_to_date(60.0), None);
         assert_eq!(serial_to_date(LAST_SERIAL + 1.0), None);
