@@ -2474,3 +2474,77 @@ fn spreadsheet_exports_are_refused_with_the_advice_that_fits() {
         ],
     );
 }
+
+// The index as a column of a `[sources]` wide table, as a case may name it (README, "[sources.NAME]"):
+// the same prices give byte-identical tables, the summary names the table and its column, the
+// receipt verifies, and the table is an input no output may replace (found by review: the key
+// was refused as unknown).
+#[test]
+fn the_index_can_be_a_column_of_a_sources_table() {
+    let setup = Setup::new();
+    let plain = setup.succeeds("plain", &[]);
+    let dir = setup.dir();
+    let index = fs::read_to_string(dir.join("index.csv")).unwrap();
+    // A second column, as a wide table holds several series.
+    let table: String = index
+        .lines()
+        .enumerate()
+        .map(|(i, line)| match i {
+            0 => "date,Other,Market index\n".to_string(),
+            _ => {
+                let (date, price) = line.split_once(',').unwrap();
+                format!("{date},1,{price}\n")
+            }
+        })
+        .collect();
+    fs::write(dir.join("market.csv"), table).unwrap();
+    let universe = fs::read_to_string(dir.join("universe.toml")).unwrap();
+    let sourced = universe.replacen(
+        "[market.index]\nprices = \"index.csv\"\n",
+        "[sources.market]\nfile = \"market.csv\"\n\n[market.index]\nsource = \"market\"\ncolumn = \"Market index\"\n",
+        1,
+    );
+    assert_ne!(sourced, universe);
+    fs::write(dir.join("universe.toml"), sourced).unwrap();
+    let out = setup.succeeds("sourced", &[]);
+    for name in ["securities.csv", "industries.csv"] {
+        assert_eq!(
+            fs::read(plain.join(name)).unwrap(),
+            fs::read(out.join(name)).unwrap(),
+            "{name}"
+        );
+    }
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("(`market.csv`, column `Market index`,"),
+        "{summary}"
+    );
+    let verified = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["verify", out.join("result.json").to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(
+        verified.status.success(),
+        "{}",
+        String::from_utf8_lossy(&verified.stdout)
+    );
+    // The table named as an output (securities.csv) in the output folder: refused, naming it.
+    let renamed = fs::read_to_string(dir.join("universe.toml"))
+        .unwrap()
+        .replacen("file = \"market.csv\"", "file = \"securities.csv\"", 1);
+    fs::rename(dir.join("market.csv"), dir.join("securities.csv")).unwrap();
+    fs::write(dir.join("universe.toml"), renamed).unwrap();
+    let into_inputs = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args([
+            "universe",
+            dir.join("universe.toml").to_str().unwrap(),
+            "--out",
+        ])
+        .arg(&dir)
+        .arg("--quiet")
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&into_inputs.stderr);
+    assert_eq!(into_inputs.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("sources.market.file"), "{stderr}");
+}

@@ -147,9 +147,9 @@ fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<
                 return Err(format!(
                     "{key}.source = \"{source}\" is not a table under [sources]; {}",
                     if known.is_empty() {
-                        "the case has no [sources.NAME] tables".to_string()
+                        "the file declares no [sources.NAME] table".to_string()
                     } else {
-                        format!("the case has {}", known.join(", "))
+                        format!("the file declares {}", known.join(", "))
                     }
                 ));
             }

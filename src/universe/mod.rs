@@ -51,35 +51,68 @@ pub struct UniverseInputs {
     pub early: EarlyEstimates,
 }
 
+/// The index or the risk-free series: a file of its own (`prices` or `yields` with its value
+/// column), or a column of a `[sources]` table (`source` and `column`), as a case reads it.
+fn read_market_series(
+    universe: &Universe,
+    role: &str,
+    (file, value_column): (&str, &str),
+    (source, column, date_column): (&Option<String>, &Option<String>, &str),
+    kind: ValueKind,
+) -> Result<DataFile> {
+    match (source, column) {
+        (Some(source), Some(column)) => {
+            let table = &universe.settings.sources[source];
+            crate::io::tables::PriceTable::read(
+                &table.file,
+                &universe.resolve(&table.file),
+                table.sheet.as_deref(),
+                table.date_column.as_deref(),
+            )?
+            .series(role, column, kind)
+        }
+        _ => read_series_file(
+            role,
+            file,
+            &universe.resolve(file),
+            date_column,
+            value_column,
+            kind,
+        ),
+    }
+}
+
 /// Reads every table the universe file names, resolving paths against its folder. The
 /// securities of a panel grouped by security are estimated while it is read (kept in
 /// `early`, which [`evaluate`] uses where they hold).
 pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
     let settings = &universe.settings;
     let index_spec = &settings.market.index;
-    let index = read_series_file(
+    let index = read_market_series(
+        &universe,
         "index",
-        &index_spec.prices,
-        &universe.resolve(&index_spec.prices),
-        &index_spec.date_column,
-        &index_spec.price_column,
+        (&index_spec.prices, &index_spec.price_column),
+        (
+            &index_spec.source,
+            &index_spec.column,
+            &index_spec.date_column,
+        ),
         ValueKind::Price,
     )?;
     // One bad index price would move every beta: refused as a case refuses it, naming the
     // line, unless `market.index.accept_jumps` accepts the date.
     crate::valuation::sanity::check_jumps(
-        &universe.resolve(&index_spec.prices),
+        &universe.resolve(&index.path),
         "market.index",
         &index,
         &index_spec.accept_jumps,
     )?;
     let risk_free = match &settings.market.risk_free_series {
-        Some(spec) => Some(read_series_file(
+        Some(spec) => Some(read_market_series(
+            &universe,
             "risk_free",
-            &spec.yields,
-            &universe.resolve(&spec.yields),
-            &spec.date_column,
-            &spec.yield_column,
+            (&spec.yields, &spec.yield_column),
+            (&spec.source, &spec.column, &spec.date_column),
             ValueKind::Yield,
         )?),
         None => None,

@@ -25,6 +25,10 @@ use crate::panel::{PanelColumns, PanelLayout, TableFormat};
 #[serde(deny_unknown_fields)]
 pub struct UniverseFile {
     pub universe: UniverseInfo,
+    /// Wide price tables the index or the risk-free series may name by `source` and `column`,
+    /// as in a case (found by review: a case's `[market.index]` written that way was refused).
+    #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
+    pub sources: case::sources::Sources,
     pub market: UniverseMarket,
     #[serde(default)]
     pub beta: BetaSettings,
@@ -189,18 +193,25 @@ impl Universe {
         let s = &self.settings;
         let mut files = vec![
             (self.path.clone(), "the universe file".to_string()),
-            (
-                self.resolve(&s.market.index.prices),
-                "market.index.prices".into(),
-            ),
             (self.resolve(&s.panel.prices), "panel.prices".into()),
             (self.resolve(&s.attributes.file), "attributes.file".into()),
         ];
-        if let Some(series) = &s.market.risk_free_series {
+        if !s.market.index.prices.is_empty() {
             files.push((
-                self.resolve(&series.yields),
-                "market.risk_free_series.yields".into(),
+                self.resolve(&s.market.index.prices),
+                "market.index.prices".into(),
             ));
+        }
+        if let Some(series) = s.market.risk_free_series.as_ref() {
+            if !series.yields.is_empty() {
+                files.push((
+                    self.resolve(&series.yields),
+                    "market.risk_free_series.yields".into(),
+                ));
+            }
+        }
+        for (name, table) in &s.sources {
+            files.push((self.resolve(&table.file), format!("sources.{name}.file")));
         }
         files
     }
@@ -363,6 +374,7 @@ fn validate_shared(universe: &UniverseFile) -> std::result::Result<(), String> {
 fn stand_in_case(universe: &UniverseFile) -> case::CaseFile {
     let mut stand_in: case::CaseFile = toml::from_str(STAND_IN).expect("the stand-in case parses");
     stand_in.case.valuation_date = universe.universe.valuation_date;
+    stand_in.sources = universe.sources.clone();
     stand_in.market.index = universe.market.index.clone();
     stand_in.market.risk_free_series = universe.market.risk_free_series.clone();
     stand_in.beta = universe.beta.clone();

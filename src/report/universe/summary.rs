@@ -154,8 +154,13 @@ fn placed(r: &UniverseResult, p: &crate::universe::peer_set::PeerSetResult) -> S
 fn inputs(r: &UniverseResult) -> String {
     let f = &r.files;
     let a = &r.settings.attributes;
+    // A file of its own, or a wide table's column (`market.csv`, column `Index`).
+    let place = |file: &crate::io::series::DataFile| match file.places.is_empty() {
+        true => code(&file.path),
+        false => format!("{}, column {}", code(&file.path), code(&file.column)),
+    };
     let risk_free = match &f.risk_free {
-        Some(series) => format!("risk-free series {}", code(&series.path)),
+        Some(series) => format!("risk-free series {}", place(series)),
         None => "no risk-free series".to_string(),
     };
     format!(
@@ -163,7 +168,7 @@ fn inputs(r: &UniverseResult) -> String {
          attributes {} ({} rows), industries from its column {}. Each file's SHA-256 is in \
          result.json.",
         code(&r.settings.market.index.name),
-        code(&f.index.path),
+        place(&f.index),
         f.index.first_date,
         f.index.last_date,
         code(&f.panel.path),
