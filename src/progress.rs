@@ -18,6 +18,13 @@ use crate::error::{Error, Result};
 
 /// Set once a stop has been requested; never cleared (one process runs one command).
 static STOP: AtomicBool = AtomicBool::new(false);
+/// Set by a command run with `--quiet`: no bar is shown, terminal or not.
+static QUIET: AtomicBool = AtomicBool::new(false);
+
+/// No bar from now on (`hurdle universe --quiet`: standard error carries errors only).
+pub fn set_quiet() {
+    QUIET.store(true, Ordering::SeqCst);
+}
 
 /// Every shown bar, one line each: the analyses run side by side (the grid, the two Monte Carlo
 /// intervals), and bars drawn on their own would overwrite each other's line.
@@ -60,8 +67,19 @@ pub struct Progress {
 impl Progress {
     /// Work of `total` steps, described by `label` (e.g. "Monte Carlo draws").
     pub fn new(label: &str, total: u64) -> Progress {
+        Progress::styled(label, total, "{msg} {wide_bar} {pos}/{len} ({eta})")
+    }
+
+    /// Reading `total` bytes (a panel of a whole market, which takes seconds): the bytes read,
+    /// the rate and the time left.
+    pub fn of_bytes(label: &str, total: u64) -> Progress {
+        let template = "{msg} {wide_bar} {bytes}/{total_bytes}  {bytes_per_sec}  about {eta} left";
+        Progress::styled(label, total, template)
+    }
+
+    fn styled(label: &str, total: u64, template: &str) -> Progress {
         let bar = ProgressBar::with_draw_target(Some(total), ProgressDrawTarget::hidden());
-        if let Ok(style) = ProgressStyle::with_template("{msg} {wide_bar} {pos}/{len} ({eta})") {
+        if let Ok(style) = ProgressStyle::with_template(template) {
             bar.set_style(style);
         }
         bar.set_message(label.to_string());
@@ -69,14 +87,19 @@ impl Progress {
             bar,
             started: Instant::now(),
             shown: false,
-            terminal: std::io::stderr().is_terminal(),
+            terminal: std::io::stderr().is_terminal() && !QUIET.load(Ordering::SeqCst),
         }
     }
 
     /// Counts one step; `Err(Interrupted)` when a stop has been requested.
     pub fn step(&mut self) -> Result<()> {
+        self.advance(1)
+    }
+
+    /// Counts `n` steps (bytes, rows); `Err(Interrupted)` when a stop has been requested.
+    pub fn advance(&mut self, n: u64) -> Result<()> {
         check_stop()?;
-        self.bar.inc(1);
+        self.bar.inc(n);
         // Reading the clock on every step costs nanoseconds against microseconds of work.
         if self.terminal && !self.shown && self.started.elapsed() >= SHOW_AFTER {
             self.bar = shown_bars().add(self.bar.clone());

@@ -4,7 +4,8 @@
 //! unlevers each with its own capital structure and aggregates by industry; writes
 //! `securities.csv`/`.parquet`, `industries.csv`/`.parquet`, `summary.md` and `result.json`
 //! (and `rolling.csv`/`.parquet` with `universe.rolling = true`) to DIR (default: `output/`
-//! beside the universe file), each atomically. On a terminal, a progress bar shows once the run
+//! beside the universe file), each atomically. On a terminal, progress bars show for reading
+//! the panel (drawn by the library's `progress`) and for estimating what is left, each once it
 //! has taken about a second; with `--quiet`, or when stderr is not a terminal, stderr carries
 //! errors only. The closing summary goes to stdout.
 
@@ -38,7 +39,6 @@ pub struct Args {
 const QUIET_START: Duration = Duration::from_secs(1);
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
-    let started = Instant::now();
     let universe = read_universe(&args.universe, &args.overrides)?;
     let out = args.out.clone().unwrap_or_else(|| {
         args.universe
@@ -47,17 +47,20 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
             .unwrap_or_else(|| PathBuf::from("output"))
     });
     let show = !args.quiet && std::io::stderr().is_terminal();
-    let reading = Display::new(show, started, ProgressBar::new_spinner());
-    reading
-        .bar
-        .set_message(format!("reading {}", universe.settings.panel.prices));
-    if show {
-        reading.bar.enable_steady_tick(Duration::from_millis(120));
+    if args.quiet {
+        hurdle::progress::set_quiet();
     }
     let reads = universe.files_read();
+    // Reading the panel shows its own bar (bytes or rows read, the rate, the time left), with
+    // the securities of a file grouped by security estimated as they come.
     let inputs = load_inputs(universe)?;
-    reading.bar.finish_and_clear();
-    let estimating = Display::new(show, started, ProgressBar::new(inputs.panel.len() as u64));
+    // The securities left after reading: a bar of its own once that work lasts a second (those
+    // estimated while reading are counted at once, and the rate and time left start after them).
+    let estimating = Display::new(
+        show,
+        Instant::now(),
+        ProgressBar::new(inputs.panel.len() as u64),
+    );
     estimating.bar.set_style(
         ProgressStyle::with_template("{bar:30} {pos}/{len} securities  {rate}  about {eta} left")
             .expect("a valid template")
@@ -116,9 +119,14 @@ impl Display {
         Display { bar }
     }
 
-    /// Counts `n` more securities (from any thread).
+    /// Counts `n` more securities (from any thread). The first count holds those estimated
+    /// while the panel was read, so the rate and the time left start after it.
     fn advance(&self, n: usize) {
+        let first = self.bar.position() == 0;
         self.bar.inc(n as u64);
+        if first {
+            self.bar.reset_eta();
+        }
     }
 }
 

@@ -29,9 +29,17 @@ pub(super) fn scan_blocks(
         })?;
         let mut first = true;
         let mut outcome = Ok(());
+        let total = std::fs::metadata(&source.file).map_or(0, |m| m.len());
+        let name = source
+            .file
+            .file_name()
+            .unwrap_or_default()
+            .to_string_lossy();
+        let mut progress = crate::progress::Progress::of_bytes(&format!("reading {name}"), total);
         for (block, quoted) in blocks_in.iter() {
             // A stop request (Ctrl-C) ends the reading between two blocks.
-            outcome = crate::progress::check_stop().and_then(|()| each(&block, first, quoted));
+            outcome =
+                (progress.advance(block.len() as u64)).and_then(|()| each(&block, first, quoted));
             first = false;
             if outcome.is_err() {
                 break;

@@ -35,11 +35,19 @@ pub(super) fn read(
     let mut rows = Rows::default();
     rows.runs.watching = hook.is_some() && columns.layout == PanelLayout::Long;
     let names = column_names(source, columns)?;
+    let file = open(source)?;
+    let total = decode(source, || ParquetReader::new(file).num_rows()).unwrap_or(0);
     if columns.layout == PanelLayout::Long {
         // Room for every row at once, so the columns never grow by copying.
-        let file = open(source)?;
-        rows.reserve(decode(source, || ParquetReader::new(file).num_rows()).unwrap_or(0));
+        rows.reserve(total);
     }
+    let name = source
+        .file
+        .file_name()
+        .unwrap_or_default()
+        .to_string_lossy();
+    let mut progress =
+        crate::progress::Progress::new(&format!("reading {name}, rows"), total as u64);
     let wide: Vec<(String, u32)> = match columns.layout {
         PanelLayout::Long => Vec::new(),
         PanelLayout::Wide => {
@@ -61,6 +69,7 @@ pub(super) fn read(
         })?;
         // A closed channel means the pusher stopped at a bad row; its error is returned below.
         let decoded = for_each_slice(source, &names, |frame, first_row| {
+            progress.advance(frame.height() as u64)?;
             frames
                 .send((frame, first_row))
                 .map_err(|_| source.file_error("stopped".into()))
