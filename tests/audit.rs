@@ -2026,24 +2026,38 @@ fn implied_refuses_inputs_the_case_does_not_take_as_given() {
         "{}",
         text(&output)
     );
-    let output = hurdle(&[
-        "implied",
-        &case,
-        "--wacc",
-        "0.09",
-        "--solve",
-        "beta",
+}
+
+// Solving for the relevered beta when the country premium is scaled by beta (CRP·βL, README
+// "[premiums]"): the premium moves with the beta solved for (found by review: such a case was
+// refused). The answer, put into the textbook WACC wE·(rf + β·ERP + size + β·CRP) +
+// wD·Kd·(1 − t) with the base run's other figures, gives the claim; 1e-10 as above.
+#[test]
+fn implied_beta_moves_a_beta_scaled_country_premium() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let case = case.to_str().unwrap();
+    let sets = [
         "--set",
         "premiums.country=0.02",
         "--set",
         "premiums.country_method=beta-scaled",
-    ]);
-    assert_eq!(output.status.code(), Some(2), "{}", text(&output));
-    assert!(
-        text(&output).contains("premiums.country_method"),
-        "{}",
-        text(&output)
-    );
+    ];
+    let base = run_case(Path::new(case), &dir.path().join("base"), &sets);
+    let mut arguments = vec!["implied", case, "--wacc", "0.09", "--solve", "beta"];
+    arguments.extend(sets);
+    let output = hurdle(&arguments);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let beta = exact_beta(&report);
+    let tax = number(&base, "target.tax_rate");
+    let wacc = number(&base, "weights.equity")
+        * (number(&base, "risk_free_rate")
+            + beta * number(&base, "equity_risk_premium")
+            + number(&base, "premiums.size")
+            + beta * 0.02)
+        + number(&base, "weights.debt") * number(&base, "cost_of_debt_pre_tax") * (1.0 - tax);
+    assert!((wacc - 0.09).abs() < 1e-10, "beta {beta} gives {wacc}");
 }
 
 // Solving for the relevered beta of a case with preferred equity and leases: the answer, put

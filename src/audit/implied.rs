@@ -267,10 +267,18 @@ pub fn implied(
         (low, high)
     };
     let build_up = Side::from_valuation("base", base).build_up;
+    // A country premium scaled by beta moves with the beta solved for (found by review: such a
+    // case was refused); the other premiums stay as the case has them.
+    let premiums = crate::case::specs::capital(settings, None).premiums;
+    let scaled = settings.premiums.country_method == CountryMethod::BetaScaled;
     let wacc_at = |x: f64| -> Result<f64> {
         if target == Target::Beta {
             return Ok(super::bridge::BuildUp {
                 beta: x,
+                premiums: match scaled {
+                    true => premiums.total_applied(x),
+                    false => build_up.premiums,
+                },
                 ..build_up
             }
             .wacc());
@@ -383,15 +391,6 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
                  be solved for; set target.source = \"explicit\"",
                 crate::case::label(&settings.target.source)
             ),
-        });
-    }
-    // The build-up holds the premiums fixed; a country premium scaled by beta moves with it.
-    if target == Target::Beta && settings.premiums.country_method == CountryMethod::BetaScaled {
-        return Err(Error::Case {
-            file: inputs.case.path.clone(),
-            message: "premiums.country_method = \"beta-scaled\" scales the country premium by the \
-                      beta being solved for; solve for another input"
-                .into(),
         });
     }
     Ok(())
