@@ -2548,3 +2548,37 @@ fn the_index_can_be_a_column_of_a_sources_table() {
     assert_eq!(into_inputs.status.code(), Some(2), "{stderr}");
     assert!(stderr.contains("sources.market.file"), "{stderr}");
 }
+
+// A security whose prices stop months before the valuation date (delisted, suspended, or a file
+// not brought up to date) is estimated on what it has but named in the notes, the case's rule
+// for a peer's file (no price in the window's last period, more than 7 days before its end);
+// securities.csv gives each security's first and last price dates as the panel holds them.
+#[test]
+fn a_security_whose_prices_stop_early_is_noted() {
+    let setup = Setup::new();
+    let path = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    let kept: String = text
+        .lines()
+        .filter(|line| !(line.contains(",S04,") && line[..10] > *"2026-06-30"))
+        .map(|line| format!("{line}\n"))
+        .collect();
+    let s04: Vec<&str> = kept
+        .lines()
+        .filter(|line| line.contains(",S04,"))
+        .map(|line| &line[..10])
+        .collect();
+    let (first, last) = (s04.iter().min().unwrap(), s04.iter().max().unwrap());
+    fs::write(&path, &kept).unwrap();
+    let out = setup.succeeds("out", &[]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("1 security estimated has no price in the window's last 7 days")
+            && summary.contains("the valuation date: S04"),
+        "{summary}"
+    );
+    let securities = read_table(&out.join("securities.csv"));
+    let row = security_row(&securities, "S04");
+    assert_eq!(text_of(&row, "first_price_date"), *first);
+    assert_eq!(text_of(&row, "last_price_date"), *last);
+}

@@ -423,7 +423,7 @@ fn rows(
             let id = &panel.securities()[i];
             let row = security_row(
                 id,
-                panel.series(i).values.len(),
+                panel.series(i),
                 &estimate,
                 adjusted.as_ref(),
                 inputs.attributes.get(id),

@@ -47,6 +47,7 @@ pub(super) fn counts_and_notes(
     notes.extend(strays_note(inputs, &strays));
     notes.extend(named_notes(securities));
     notes.extend(cash_heavy_note(securities));
+    notes.extend(ended_early_note(securities, window));
     notes.extend(no_industry_note(securities));
     notes.extend(placeholder_industries_note(securities));
     notes.extend(label_twins_note(securities));
@@ -376,6 +377,40 @@ fn named_notes(securities: &[SecurityResult]) -> Vec<String> {
             )
         })
         .collect()
+}
+
+/// The securities estimated whose prices end before the window's last period and more than
+/// `STALE_END_DAYS` before its end (the case's rules for a peer's file,
+/// `case::sanity::file_end_notes`; a daily window's last day missed is not noted): delisted, suspended or merged, or a file
+/// not brought up to date; their betas describe an earlier part of the window than the others'
+/// and their attributes may describe a firm that no longer trades (found by review: five
+/// securities that stopped 15 months before the valuation date were aggregated at their
+/// attributes' market values, flagged only for too few observations).
+fn ended_early_note(
+    securities: &[SecurityResult],
+    window: &crate::estimate::Window,
+) -> Option<String> {
+    let (opens, end) = (window.last_period_opens(), window.end());
+    let days = crate::case::sanity::window::STALE_END_DAYS;
+    let ended = ids_where(securities, |s| {
+        s.estimate.is_some()
+            && s.price_dates
+                .is_some_and(|(_, last)| last <= opens && (end - last).num_days() > days)
+    });
+    let (has, their, describe) = match ended.len() {
+        1 => ("has", "its", "its beta describes"),
+        _ => ("have", "their", "their betas describe"),
+    };
+    (!ended.is_empty()).then(|| {
+        format!(
+            "{} estimated {has} no price in the window's last {days} days (to {end}; \
+             last_price_date in securities.csv): delisted, suspended or merged, or {their} \
+             prices not brought up to date; {describe} an earlier part of the window and \
+             {their} attributes may not describe a firm that trades at the valuation date: {}",
+            securities_count(ended.len()),
+            first_ids(&ended)
+        )
+    })
 }
 
 /// Below this share of the firm's value in its operations (cash above half of equity plus

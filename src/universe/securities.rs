@@ -15,6 +15,7 @@ use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
 use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
 use crate::case::sanity::MAX_DEBT_TO_EQUITY;
 use crate::case::LeverageSettings;
+use crate::io::series::SeriesView;
 use crate::market::sampling::DroppedPeriods;
 use crate::panel::attributes::AttributeRecord;
 
@@ -61,6 +62,9 @@ pub struct SecurityResult {
     pub industry: Option<String>,
     /// Prices the panel holds for the security.
     pub prices: usize,
+    /// The dates of its first and last price in the panel (`None` for a security without one).
+    #[serde(skip)]
+    pub price_dates: Option<(chrono::NaiveDate, chrono::NaiveDate)>,
     pub periods_in_window: usize,
     /// The usable returns in the window (also for a security not estimated, when counted).
     pub observations: Option<usize>,
@@ -130,7 +134,7 @@ pub fn exclusion(excluding_flags: &[PeerFlag]) -> Option<String> {
 /// was estimated) and its attributes.
 pub fn security_row(
     security: &str,
-    prices: usize,
+    series: SeriesView<'_>,
     estimated: &SecurityEstimate,
     adjusted: Option<&AdjustedBeta>,
     attributes: Option<&AttributeRecord>,
@@ -174,7 +178,12 @@ pub fn security_row(
     SecurityResult {
         security: security.to_string(),
         industry: attributes.and_then(|a| a.industry.clone()),
-        prices,
+        prices: series.values.len(),
+        price_dates: series
+            .dates
+            .first()
+            .zip(series.dates.last())
+            .map(|(a, b)| (*a, *b)),
         periods_in_window: settings.periods_in_window,
         observations: estimated.observations,
         periods_dropped: estimated.periods_dropped,

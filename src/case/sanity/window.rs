@@ -101,7 +101,7 @@ pub fn window_end_note(
 
 /// More calendar days than a long holiday weekend leaves between a file's last price and the
 /// window's end: hurdle's choice for noting a file that was not brought up to date.
-const STALE_END_DAYS: i64 = 7;
+pub const STALE_END_DAYS: i64 = 7;
 
 /// Files whose dates stop short of the window's last period, or run far past the valuation
 /// date: the marks of a case rolled forward with a file left behind or a date left unmoved.

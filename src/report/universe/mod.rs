@@ -230,6 +230,15 @@ fn sample_columns(t: &mut Table, rows: &[SecurityResult]) {
     t.text("security", rows.iter().map(|r| Some(r.security.clone())));
     t.text("industry", rows.iter().map(|r| r.industry.clone()));
     t.count("prices", rows.iter().map(|r| Some(r.prices)));
+    for (name, end) in [("first_price_date", 0), ("last_price_date", 1)] {
+        t.text(
+            name,
+            rows.iter().map(move |r| {
+                r.price_dates
+                    .map(|dates| [dates.0, dates.1][end].to_string())
+            }),
+        );
+    }
     t.count(
         "periods_in_window",
         rows.iter().map(|r| Some(r.periods_in_window)),
