@@ -212,7 +212,7 @@ fn shared(
     if !peers.iter().any(|p| p.included) {
         return Err(ChainError::NoPeerIncluded);
     }
-    let kd = debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+    let kd = debt::pre_tax_cost_of_debt(&spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
     let terms = &mut buffers.terms;
     terms.clear();
@@ -278,7 +278,7 @@ fn peer_median_debt_to_equity(peers: &[PeerCapital], buffers: &mut Buffers) -> f
 fn common(spec: &CapitalSpec<'_>, peers: &[PeerCapital]) -> Result<Common, ChainError> {
     let mut buffers = Buffers::default();
     let shared = shared(spec, peers, &mut buffers)?;
-    let cost_of_debt = debt::cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+    let cost_of_debt = debt::cost_of_debt(&spec.debt, spec.debt_table, spec.risk_free_rate)
         .map_err(ChainError::CostOfDebt)?;
     let peer_median_debt_to_equity = peer_median_debt_to_equity(peers, &mut buffers);
     Ok(Common {
@@ -587,24 +587,15 @@ mod tests {
     use super::*;
     use crate::beta::Adjustment;
     use crate::capital::cost::CountryMethod;
-    use crate::capital::debt::{DebtSettings, DebtSource};
+    use crate::capital::debt::DebtSpec;
     use crate::capital::leverage::DebtMeasure;
     use crate::stats::Aggregation;
 
-    fn debt() -> DebtSettings {
-        DebtSettings {
-            source: DebtSource::Given,
-            cost_pre_tax: Some(0.06),
-            rating: None,
-            rating_table: None,
-            ebit: None,
-            interest_expense: None,
-            coverage_table: None,
-            justification: String::new(),
-        }
+    fn debt() -> DebtSpec<'static> {
+        DebtSpec::Given(0.06)
     }
 
-    fn spec(debt: &DebtSettings) -> CapitalSpec<'_> {
+    fn spec(debt: &DebtSpec<'static>) -> CapitalSpec<'static> {
         CapitalSpec {
             adjustment: Adjustment::Blume,
             blume_weight: 0.67,
@@ -629,7 +620,7 @@ mod tests {
             },
             preferred: Component::default(),
             leases: Component::default(),
-            debt,
+            debt: *debt,
             debt_table: None,
         }
     }

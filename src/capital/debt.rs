@@ -80,26 +80,26 @@ pub struct CostOfDebtRecord {
 /// Adding a rating spread to the risk-free rate, and rating a firm synthetically from its
 /// interest coverage, are common practice in valuation textbooks.
 pub fn cost_of_debt(
-    debt: &DebtSettings,
+    debt: &DebtSpec<'_>,
     table: Option<&SpreadTable>,
     risk_free: f64,
 ) -> std::result::Result<CostOfDebtRecord, String> {
     Ok(match spread_row(debt, table)? {
-        None => CostOfDebtRecord {
-            source: debt.source,
+        Err(given) => CostOfDebtRecord {
+            source: debt.source(),
             interest_coverage: None,
             table: None,
             row: None,
             risk_free_rate: None,
-            pre_tax: pre_tax_given(debt)?,
+            pre_tax: given,
         },
-        Some((row, coverage)) => CostOfDebtRecord {
+        Ok((row, coverage)) => CostOfDebtRecord {
             interest_coverage: coverage,
             table: table.cloned(),
             row: Some(row.clone()),
             risk_free_rate: Some(risk_free),
             pre_tax: risk_free + row.spread,
-            source: debt.source,
+            source: debt.source(),
         },
     })
 }
@@ -107,75 +107,69 @@ pub fn cost_of_debt(
 /// The figure of [`cost_of_debt`] alone, by the same lookup and sum, without copying the table
 /// into a record: what each Monte Carlo draw needs.
 pub fn pre_tax_cost_of_debt(
-    debt: &DebtSettings,
+    debt: &DebtSpec<'_>,
     table: Option<&SpreadTable>,
     risk_free: f64,
 ) -> std::result::Result<f64, String> {
     Ok(match spread_row(debt, table)? {
-        None => pre_tax_given(debt)?,
-        Some((row, _)) => risk_free + row.spread,
+        Err(given) => given,
+        Ok((row, _)) => risk_free + row.spread,
     })
 }
 
-/// The given yield (source `given`; a case validates it to be there, so the error speaks to
-/// another caller of the layer).
-fn pre_tax_given(debt: &DebtSettings) -> std::result::Result<f64, String> {
-    debt.cost_pre_tax
-        .ok_or_else(|| "debt.source = \"given\" needs debt.cost_pre_tax".to_string())
+/// The table row the source reads, with the interest coverage it was found by; the yield
+/// itself (`Err`) for a given one. A source that reads a table is handed it (the caller reads
+/// the table the source names; a missing one is a message, not a panic).
+fn spread_row<'a>(
+    debt: &DebtSpec<'_>,
+    table: Option<&'a SpreadTable>,
+) -> std::result::Result<std::result::Result<(&'a SpreadRow, Option<f64>), f64>, String> {
+    let table = || table.ok_or_else(|| format!("{} needs its spread table", label(debt)));
+    Ok(match debt {
+        DebtSpec::Given(yield_) => Err(*yield_),
+        DebtSpec::Rating(rating) => Ok((rating_row(table()?, rating)?, None)),
+        DebtSpec::Coverage {
+            ebit,
+            interest_expense,
+        } => {
+            let coverage = ebit / interest_expense;
+            Ok((coverage_row(table()?, coverage)?, Some(coverage)))
+        }
+    })
 }
 
-/// The table row the source reads, with the interest coverage it was found by; `None` for a
-/// given yield.
-fn spread_row<'a>(
-    debt: &DebtSettings,
-    table: Option<&'a SpreadTable>,
-) -> std::result::Result<Option<(&'a SpreadRow, Option<f64>)>, String> {
-    match debt.source {
-        DebtSource::Given => Ok(None),
-        DebtSource::Rating => {
-            let table = table.expect("a rating table is read for source = rating");
-            let rating = debt.rating.as_deref().expect("validated");
-            Ok(Some((rating_row(table, rating)?, None)))
-        }
-        DebtSource::Coverage => {
-            let table = table.expect("a coverage table is read for source = coverage");
-            let coverage =
-                debt.ebit.expect("validated") / debt.interest_expense.expect("validated");
-            Ok(Some((coverage_row(table, coverage)?, Some(coverage))))
-        }
+/// The source as the case names it, for messages.
+fn label(debt: &DebtSpec<'_>) -> &'static str {
+    match debt.source() {
+        DebtSource::Given => "debt.source = \"given\"",
+        DebtSource::Rating => "debt.source = \"rating\"",
+        DebtSource::Coverage => "debt.source = \"coverage\"",
     }
 }
 
-/// `[debt]`: the subject's cost of debt.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct DebtSettings {
-    /// Where the pre-tax cost of debt comes from (default: given).
-    #[serde(default)]
-    pub source: DebtSource,
-    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity; required when the
-    /// source is `given`.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub cost_pre_tax: Option<f64>,
-    /// The subject's credit rating, looked up in `rating_table` (source `rating`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub rating: Option<String>,
-    /// CSV or TOML table of `rating, spread` (source `rating`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub rating_table: Option<String>,
-    /// Earnings before interest and taxes (source `coverage`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub ebit: Option<f64>,
-    /// Interest expense, same unit as `ebit` (source `coverage`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub interest_expense: Option<f64>,
-    /// CSV or TOML table of `min_coverage, rating, spread` (source `coverage`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub coverage_table: Option<String>,
-    /// Where the cost of debt or its rating comes from, printed in the memo (a case's words;
-    /// no computation reads it).
-    #[serde(default, skip_serializing_if = "String::is_empty")]
-    pub justification: String,
+/// Where the subject's pre-tax cost of debt comes from, with what that source needs: this
+/// layer's own spec, which a case's `[debt]` section is read into (`case::specs::capital`), so
+/// nothing here depends on the case file's shape.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum DebtSpec<'a> {
+    /// A given yield, e.g. a yield to maturity.
+    Given(f64),
+    /// rf + the spread of this rating in the rating table.
+    Rating(&'a str),
+    /// rf + the spread of the synthetic rating from EBIT / interest expense in the coverage
+    /// table.
+    Coverage { ebit: f64, interest_expense: f64 },
+}
+
+impl DebtSpec<'_> {
+    /// The source, as the case file and the result name it.
+    pub fn source(&self) -> DebtSource {
+        match self {
+            DebtSpec::Given(_) => DebtSource::Given,
+            DebtSpec::Rating(_) => DebtSource::Rating,
+            DebtSpec::Coverage { .. } => DebtSource::Coverage,
+        }
+    }
 }
 
 /// `debt.source`: where the pre-tax cost of debt comes from.
@@ -251,15 +245,9 @@ mod tests {
     #[test]
     fn cost_of_debt_from_coverage_is_rf_plus_spread() {
         let table = coverage_table();
-        let settings = DebtSettings {
-            source: DebtSource::Coverage,
-            cost_pre_tax: None,
-            rating: None,
-            rating_table: None,
-            ebit: Some(120.0),
-            interest_expense: Some(40.0),
-            coverage_table: Some("coverage.csv".into()),
-            justification: String::new(),
+        let settings = DebtSpec::Coverage {
+            ebit: 120.0,
+            interest_expense: 40.0,
         };
         let record = cost_of_debt(&settings, Some(&table), 0.038).unwrap();
         assert_eq!(record.interest_coverage, Some(3.0));

@@ -4,7 +4,7 @@
 //! test can build them directly.
 
 use super::cost::CountryMethod;
-use super::debt::{DebtSettings, SpreadTable};
+use super::debt::{DebtSpec, SpreadTable};
 use super::leverage::{DebtBetaSource, DebtMeasure, Formula};
 use crate::beta::Adjustment;
 use crate::stats::Aggregation;
@@ -35,7 +35,7 @@ pub struct CapitalSpec<'a> {
     pub premiums: PremiumSpec,
     pub preferred: Component,
     pub leases: Component,
-    pub debt: &'a DebtSettings,
+    pub debt: DebtSpec<'a>,
     /// The spread table the cost-of-debt source needs, already read.
     pub debt_table: Option<&'a SpreadTable>,
 }

@@ -18,7 +18,7 @@ pub use super::lookback::{Lookback, SpanUnit};
 pub use crate::beta::diagnostics::PeerFlag;
 pub use crate::beta::spec::{Adjustment, BetaMethod};
 pub use crate::capital::cost::{CountryMethod, TaxRateBasis};
-pub use crate::capital::debt::{DebtSettings, DebtSource};
+pub use crate::capital::debt::DebtSource;
 pub use crate::capital::leverage::{DebtBetaSource, DebtMeasure, Formula};
 pub use crate::market::sampling::{Frequency, ReturnType, SampleWeekday};
 pub use crate::stats::least_squares::StdErrors;
@@ -514,4 +514,36 @@ impl<'de> Deserialize<'de> for CaseDate {
             .map(CaseDate)
             .map_err(|_| D::Error::custom(format!("expected a date YYYY-MM-DD, found `{text}`")))
     }
+}
+
+/// `[debt]`: the subject's cost of debt.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DebtSettings {
+    /// Where the pre-tax cost of debt comes from (default: given).
+    #[serde(default)]
+    pub source: DebtSource,
+    /// Pre-tax cost of debt (annual, decimal), e.g. a yield to maturity; required when the
+    /// source is `given`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cost_pre_tax: Option<f64>,
+    /// The subject's credit rating, looked up in `rating_table` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating: Option<String>,
+    /// CSV or TOML table of `rating, spread` (source `rating`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rating_table: Option<String>,
+    /// Earnings before interest and taxes (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ebit: Option<f64>,
+    /// Interest expense, same unit as `ebit` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub interest_expense: Option<f64>,
+    /// CSV or TOML table of `min_coverage, rating, spread` (source `coverage`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub coverage_table: Option<String>,
+    /// Where the cost of debt or its rating comes from, printed in the memo (a case's words;
+    /// no computation reads it).
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub justification: String,
 }

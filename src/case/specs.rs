@@ -6,7 +6,7 @@
 use crate::beta::diagnostics::FlagRule;
 use crate::beta::EstimatorSpec;
 use crate::capital::chain::{CapitalSpec, Component, PeerCapital, PremiumSpec, TargetSpec};
-use crate::capital::debt::SpreadTable;
+use crate::capital::debt::{DebtSource, DebtSpec, SpreadTable};
 use crate::estimate::{EstimationSpec, RollingSpec};
 
 use super::schema::{BetaSettings, CaseFile, PeerSpec};
@@ -91,7 +91,7 @@ pub fn capital<'a>(settings: &'a CaseFile, debt_table: Option<&'a SpreadTable>) 
             weight: settings.leases.weight,
             cost: settings.leases.cost_pre_tax,
         },
-        debt: &settings.debt,
+        debt: debt_spec(&settings.debt),
         debt_table,
     }
 }
@@ -113,5 +113,20 @@ pub fn peer_capital(
         own_debt_beta: peer.debt_beta,
         own_cost_of_debt: peer.cost_of_debt,
         included,
+    }
+}
+
+/// The `[debt]` section as the capital layer's [`DebtSpec`]: what its source needs, which
+/// `validate` has required (a given yield, a rating, EBIT and interest expense).
+fn debt_spec(debt: &super::DebtSettings) -> DebtSpec<'_> {
+    match debt.source {
+        DebtSource::Given => DebtSpec::Given(debt.cost_pre_tax.expect("validate() requires it")),
+        DebtSource::Rating => {
+            DebtSpec::Rating(debt.rating.as_deref().expect("validate() requires it"))
+        }
+        DebtSource::Coverage => DebtSpec::Coverage {
+            ebit: debt.ebit.expect("validate() requires it"),
+            interest_expense: debt.interest_expense.expect("validate() requires it"),
+        },
     }
 }

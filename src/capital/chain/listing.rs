@@ -32,9 +32,9 @@ pub fn unlevered_only(
     let adjusted = buffers.adjusted;
     // The subject's cost of debt when the spec can give it: a given yield, or a spread table the
     // caller read because an unlevered beta needs it ([`unlevering_needs_subject_cost_of_debt`]).
-    let kd = match spec.debt.source == debt::DebtSource::Given || spec.debt_table.is_some() {
+    let kd = match matches!(spec.debt, debt::DebtSpec::Given(_)) || spec.debt_table.is_some() {
         true => Some(
-            debt::pre_tax_cost_of_debt(spec.debt, spec.debt_table, spec.risk_free_rate)
+            debt::pre_tax_cost_of_debt(&spec.debt, spec.debt_table, spec.risk_free_rate)
                 .map_err(ChainError::CostOfDebt)?,
         ),
         false => None,
