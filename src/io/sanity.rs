@@ -124,6 +124,17 @@ pub fn column_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &st
              written: remove the spaces from the file"
         );
     }
+    if let Some(other) = names
+        .iter()
+        .find(|n| **n != name && same_text(n.trim(), name.trim()))
+    {
+        return format!(
+            "; the header's \"{}\" is the same text with its accented letters encoded another \
+             way (Unicode normalisation: é as one character, or as e and an accent): names are \
+             matched byte for byte, so write them alike in both files",
+            other.trim()
+        );
+    }
     match names
         .iter()
         .find(|n| **n != name && n.trim().eq_ignore_ascii_case(name.trim()))
@@ -135,6 +146,14 @@ pub fn column_name_hint<'a>(header: impl IntoIterator<Item = &'a str>, name: &st
         ),
         None => String::new(),
     }
+}
+
+/// Whether two texts differ only in Unicode normalisation (the canonical composition, NFC, of
+/// Unicode Standard Annex #15): an accented letter as one character or as a letter and a
+/// combining accent, which look alike but compare unequal.
+pub fn same_text(a: &str, b: &str) -> bool {
+    use unicode_normalization::UnicodeNormalization;
+    a != b && a.nfc().eq(b.nfc())
 }
 
 /// One record of a CSV file as RFC 4180 splits it: a quote opens a quoted field only as the
@@ -583,6 +602,15 @@ pub fn is_one_line(text: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Unicode Standard Annex #15: U+00E9 (é) and U+0065 U+0301 (e and a combining acute) have
+    // the same canonical composition; equal texts, or letters that differ, are not twins.
+    #[test]
+    fn same_text_sees_through_normalisation_only() {
+        assert!(same_text("Soci\u{e9}t\u{e9}", "Socie\u{301}te\u{301}"));
+        assert!(!same_text("Soci\u{e9}t\u{e9}", "Soci\u{e9}t\u{e9}"));
+        assert!(!same_text("Societe", "Soci\u{e9}t\u{e9}"));
+    }
 
     // 2.2861·100 is 228.60999999999999 in binary (Python's repr of 2.2861*100 shows it); the
     // message writes the percentage the user typed, 228.61 (found by review).

@@ -156,18 +156,27 @@ fn no_industry_note(securities: &[SecurityResult]) -> Option<String> {
 /// for attribute ids without prices that a panel id matches but for case (an export that
 /// changed capitals), else nothing.
 fn case_twins(strays: &[&str], panel: &[String]) -> String {
-    let lower: std::collections::HashMap<String, &str> = panel
-        .iter()
-        .map(|id| (id.to_lowercase(), id.as_str()))
+    use unicode_normalization::UnicodeNormalization;
+    // Capitals aside and accented letters composed (NFC, Unicode Standard Annex #15): é as one
+    // character or as e and a combining accent (found by review: such twins were not named).
+    let key = |id: &str| id.nfc().collect::<String>().to_lowercase();
+    let lower: std::collections::HashMap<String, &str> =
+        panel.iter().map(|id| (key(id), id.as_str())).collect();
+    let twins: Vec<(&str, &str)> = (strays.iter())
+        .filter_map(|s| Some((*lower.get(&key(s))?, *s)))
         .collect();
-    let pairs: Vec<String> = (strays.iter())
-        .filter_map(|s| Some(format!("{} for {s}", lower.get(&s.to_lowercase())?)))
-        .collect();
+    let pairs: Vec<String> = twins.iter().map(|(p, s)| format!("{p} for {s}")).collect();
+    let capitals = |(p, s): &(&str, &str)| p.to_lowercase() == s.to_lowercase();
+    let how = match (twins.iter().all(capitals), twins.iter().any(capitals)) {
+        (true, _) => "in capitals",
+        (false, false) => "in how accented letters are encoded",
+        (false, true) => "in capitals or in how accented letters are encoded",
+    };
     match pairs.len() {
         0 => String::new(),
         n => format!(
-            ". The panel holds {} differing only in capitals ({}): ids are matched exactly, so \
-             write them alike in both files",
+            ". The panel holds {} differing only {how} ({}): ids are matched exactly, so write \
+             them alike in both files",
             if n == 1 { "an id" } else { "ids" },
             first_ids(&pairs.iter().map(String::as_str).collect::<Vec<_>>())
         ),
@@ -502,7 +511,7 @@ fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
 
 #[cfg(test)]
 mod tests {
-    use super::first_ids;
+    use super::{case_twins, first_ids};
 
     // Three ids read as three: one holding a comma or a quote is quoted (Rust's escaping).
     #[test]
@@ -514,5 +523,26 @@ mod tests {
         let many: Vec<String> = (0..12).map(|i| format!("S{i}")).collect();
         let many: Vec<&str> = many.iter().map(String::as_str).collect();
         assert!(first_ids(&many).ends_with("S9, …"));
+    }
+
+    // An attribute id that a panel id matches but for capitals, or but for how its accented
+    // letters are encoded (U+00E9, or e and U+0301: one text under Unicode's canonical
+    // composition, Annex #15), is named beside its twin with the difference that separates them.
+    #[test]
+    fn twins_are_named_with_what_separates_them() {
+        let panel = ["S02".to_string(), "Soci\u{e9}t\u{e9}".to_string()];
+        let capitals = case_twins(&["s02"], &panel);
+        assert!(
+            capitals.contains("only in capitals (S02 for s02)"),
+            "{capitals}"
+        );
+        let encoded = case_twins(&["Socie\u{301}te\u{301}"], &panel);
+        assert!(
+            encoded.contains("only in how accented letters are encoded (Soci\u{e9}t\u{e9} for"),
+            "{encoded}"
+        );
+        let both = case_twins(&["s02", "Socie\u{301}te\u{301}"], &panel);
+        assert!(both.contains("in capitals or in how accented"), "{both}");
+        assert_eq!(case_twins(&["S03"], &panel), "");
     }
 }

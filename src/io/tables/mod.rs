@@ -244,11 +244,15 @@ impl PriceTable {
             .map_err(|m| format!("{}{m}", self.place.sheet_prefix()))?;
         found.ok_or_else(|| {
             format!(
-                "{}no column named `{column}`; the header has: {}",
+                "{}no column named `{column}`; the header has: {}{}",
                 self.place.sheet_prefix(),
                 quoted_list(
                     std::iter::once(&self.date_column).chain(&self.columns),
                     self.columns.len() + 1
+                ),
+                crate::io::sanity::column_name_hint(
+                    self.columns.iter().map(String::as_str),
+                    column
                 )
             )
         })
