@@ -692,7 +692,7 @@ fn a_series_with_both_a_file_and_a_source_is_refused() {
     let copy = WideCopy::new();
     copy.edit("case.toml", "[sources.prices]", "[sources.table]");
     let stderr = copy.fail("case.toml");
-    assert!(stderr.contains("market.index.source = \"prices\" is not a table under [sources]; the case has \"table\""), "{stderr}");
+    assert!(stderr.contains("market.index.source = \"prices\" is not a table under [sources]; the file declares \"table\""), "{stderr}");
 }
 
 fn init(args: &[&str]) -> Output {
