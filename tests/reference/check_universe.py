@@ -317,10 +317,25 @@ def summary(values, weights, prefix, trim, value_weights=None):
         out[f"value_weighted_{prefix}"] = np.average(wv, weights=ww)
     # The median's distribution-free 95% interval by order statistics (Conover 1999, 3.2):
     # scipy.stats.quantile_test's; NaN (an empty cell) below six values.
-    ci = stats.quantile_test(v, q=float(np.median(v)), p=0.5).confidence_interval(0.95)
-    out[f"median_{prefix}_ci_low"] = None if np.isnan(ci.low) else ci.low
-    out[f"median_{prefix}_ci_high"] = None if np.isnan(ci.high) else ci.high
+    low, high = median_interval(v)
+    out[f"median_{prefix}_ci_low"] = None if np.isnan(low) else low
+    out[f"median_{prefix}_ci_high"] = None if np.isnan(high) else high
     return out
+
+
+def median_interval(v):
+    """The 95% interval scipy.stats.quantile_test gives for the median (scipy 1.12 and later);
+    with an older scipy, the same order statistics from scipy.stats.binom as that function
+    picks them (its two-sided branch: low index binom.ppf(0.025) - 1, high index
+    binom.isf(0.025), NaN outside the sample)."""
+    if hasattr(stats, "quantile_test"):
+        ci = stats.quantile_test(v, q=float(np.median(v)), p=0.5).confidence_interval(0.95)
+        return ci.low, ci.high
+    x, n = np.sort(v), len(v)
+    binom = stats.binom(n, 0.5)
+    low_index, high_index = int(binom.ppf(0.025)) - 1, int(binom.isf(0.025))
+    return (x[low_index] if low_index >= 0 else np.nan,
+            x[high_index] if high_index < n else np.nan)
 
 
 def industries(config, rows):
