@@ -2377,6 +2377,13 @@ fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
     }
     let s17 = security_row(&securities, "S17");
     assert!(number(&s17, "operations_beta") > 2.0 * number(&s17, "unlevered_beta"));
+    // Under net debt the unlevered beta has netted the cash: the note speaks of it alone.
+    let net = setup.succeeds("net", &["leverage.debt_measure=net"]);
+    let summary = fs::read_to_string(net.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("so its unlevered beta, net of that cash, rests largely on taking"),
+        "{summary}"
+    );
 }
 
 // Market values saved as a spreadsheet in a German or French locale shows them, a point between

@@ -175,7 +175,9 @@ pub fn grid(
         variants: &variants,
         own: &own,
         axes: [rows, columns],
-        estimated: std::cell::RefCell::new(Vec::new()),
+        estimated: std::cell::RefCell::new(std::collections::VecDeque::new()),
+        made: std::cell::Cell::new(0),
+        reused: std::cell::Cell::new(false),
     };
     for r in 0..rows.values.len() {
         let mut line = Vec::with_capacity(columns.values.len());
@@ -238,29 +240,48 @@ struct Shared<'a> {
     /// The case's own resolved settings, to recognise its cell.
     own: &'a toml::Value,
     axes: [&'a Axis; 2],
-    /// The estimates made for cells whose keys move a beta, one per distinct estimation (the
-    /// cells are computed one after the other).
-    estimated: std::cell::RefCell<Vec<PeerEstimates>>,
+    /// The latest estimates made for cells whose keys move a beta, one per distinct estimation,
+    /// at most one row's worth ([`Shared::cost`]; the cells are computed one after the other).
+    estimated: std::cell::RefCell<std::collections::VecDeque<PeerEstimates>>,
+    /// Estimations made for cells, and whether a cell has reused one.
+    made: std::cell::Cell<usize>,
+    reused: std::cell::Cell<bool>,
 }
 
 impl Shared<'_> {
     /// The cost of capital of a cell's case. A key that cannot move a beta (rates, premiums,
     /// structure) reuses the run's estimates; one that does is estimated once per distinct
     /// estimation and kept for the grid's other cells with the same one (found by review: a
-    /// 7 × 7 grid over `beta.min_observations` estimated each row's peers seven times).
+    /// 7 × 7 grid over `beta.min_observations` estimated each row's peers seven times). Only the
+    /// latest row's worth is kept (as many as the grid has columns): the cells run row by row,
+    /// so that is all a column axis that moves a beta can reuse, and when both axes move one no
+    /// two cells share an estimation at all (found by review: keeping every one took 6 GB for a
+    /// 101 × 101 grid of daily betas).
     fn cost(&self, case: &crate::case::Case) -> Result<CostOfCapital> {
         if self.estimates.fit(case) {
             return cost_of_capital(case, self.inputs, self.estimates);
         }
+        // Every cell reads the case's files (`same_data`, checked by `cell`), so the
+        // estimation spec alone tells estimates apart.
+        let spec = crate::case::specs::estimation(&case.settings);
         let mut known = self.estimated.borrow_mut();
-        let at = match known.iter().position(|estimates| estimates.fit(case)) {
-            Some(at) => at,
-            None => {
-                known.push(estimate_peers(case, self.inputs)?);
-                known.len() - 1
+        if let Some(estimates) = known.iter().find(|estimates| estimates.spec == spec) {
+            self.reused.set(true);
+            return cost_of_capital(case, self.inputs, estimates);
+        }
+        let estimates = estimate_peers(case, self.inputs)?;
+        let cost = cost_of_capital(case, self.inputs, &estimates);
+        // Kept while a row's worth of cells may still reuse it: not once a whole row and more
+        // has gone by without a reuse (both axes move the estimation).
+        let columns = self.axes[1].values.len().max(1);
+        self.made.set(self.made.get() + 1);
+        if self.reused.get() || self.made.get() <= columns + 1 {
+            if known.len() == columns {
+                known.pop_front();
             }
-        };
-        cost_of_capital(case, self.inputs, &known[at])
+            known.push_back(estimates);
+        }
+        cost
     }
 
     /// The cell of `assignments`: `Ok(Ok((figure, whether it is the case's own, looked at

@@ -450,8 +450,10 @@ fn refuse_binary(file: &Path, bytes: &[u8]) -> Result<()> {
 
 /// What a file given where CSV text belongs is, by its first bytes (the formats' published
 /// signatures): an Excel workbook (.xlsx is a ZIP archive, "PK\x03\x04"; .xls an OLE compound
-/// file, D0 CF 11 E0), a Parquet file ("PAR1"), or text saved as UTF-16 (a byte-order mark
-/// FF FE or FE FF, as "Unicode text" exports write).
+/// file, D0 CF 11 E0), a Parquet file ("PAR1"), text saved as UTF-32 (byte-order mark
+/// FF FE 00 00 or 00 00 FE FF) or as UTF-16 (a byte-order mark FF FE or FE FF, as "Unicode
+/// text" exports write, or none, the first two characters then each a letter and a zero byte;
+/// Unicode 15.0, section 23.8).
 pub fn binary_kind(bytes: &[u8]) -> Option<&'static str> {
     if bytes.starts_with(b"PK\x03\x04") {
         Some("a workbook or another ZIP archive (.xlsx, .ods)")
@@ -459,8 +461,18 @@ pub fn binary_kind(bytes: &[u8]) -> Option<&'static str> {
         Some("an old Excel workbook (.xls)")
     } else if bytes.starts_with(b"PAR1") {
         Some("a Parquet file")
+    } else if bytes.starts_with(&[0xFF, 0xFE, 0, 0]) || bytes.starts_with(&[0, 0, 0xFE, 0xFF]) {
+        Some("text saved as UTF-32")
     } else if bytes.starts_with(&[0xFF, 0xFE]) || bytes.starts_with(&[0xFE, 0xFF]) {
         Some("text saved as UTF-16 (\"Unicode text\")")
+    } else if let [a, b, c, d, ..] = bytes {
+        // Without a byte-order mark, ASCII text in UTF-16 has a zero byte beside every letter
+        // (found by review: read as a header of one field holding zero bytes); CSV text never
+        // holds a zero byte.
+        let little = *a != 0 && *b == 0 && *c != 0 && *d == 0;
+        let big = *a == 0 && *b != 0 && *c == 0 && *d != 0;
+        (little || big)
+            .then_some("text saved as UTF-16 (\"Unicode text\", without a byte-order mark)")
     } else {
         None
     }
@@ -605,6 +617,22 @@ mod tests {
 
     // Unicode Standard Annex #15: U+00E9 (é) and U+0065 U+0301 (e and a combining acute) have
     // the same canonical composition; equal texts, or letters that differ, are not twins.
+    // Byte-order marks as Unicode 15.0, section 23.8, lists them (UTF-32 LE FF FE 00 00 before
+    // UTF-16 LE FF FE, which it begins with), and "date" in UTF-16 without a mark: 64 00 61 00
+    // (little-endian) or 00 64 00 61 (big-endian). Plain CSV text is none of them.
+    #[test]
+    fn text_in_other_encodings_is_named() {
+        let kind = |bytes: &[u8]| binary_kind(bytes).unwrap_or("");
+        assert_eq!(
+            kind(&[0xFF, 0xFE, 0, 0, 0x64, 0, 0, 0]),
+            "text saved as UTF-32"
+        );
+        assert!(kind(&[0xFF, 0xFE, 0x64, 0]).contains("UTF-16"));
+        assert!(kind(&[0x64, 0, 0x61, 0]).contains("UTF-16"));
+        assert!(kind(&[0, 0x64, 0, 0x61]).contains("UTF-16"));
+        assert_eq!(binary_kind(b"date,price\n"), None);
+    }
+
     #[test]
     fn same_text_sees_through_normalisation_only() {
         assert!(same_text("Soci\u{e9}t\u{e9}", "Socie\u{301}te\u{301}"));

@@ -28,7 +28,8 @@ pub struct Summary {
     pub market_cap_weighted_mean: Option<f64>,
     /// Weighted by the value of what the beta measures (`None` for levered betas, or if no
     /// security has the weight): equity plus debt for unlevered betas (a portfolio of the
-    /// firms' assets), equity plus debt less cash for the betas of the operations.
+    /// firms' assets; less cash under net debt, whose unlevered beta has netted it), equity plus
+    /// debt less cash for the betas of the operations.
     pub value_weighted_mean: Option<f64>,
     /// The median's distribution-free 95% confidence interval ([`stats::median_interval`]);
     /// `None` for fewer than six values.
@@ -128,9 +129,16 @@ pub(super) fn industry_row(
         summarise(&values, (&by_equity, &by_value), trim)
     };
     let none = |_: &SecurityResult| None;
+    // What an unlevered beta is the beta of: equity plus debt, or, under net debt, equity plus
+    // debt less cash (the cash already netted; found by review: weighted by equity plus debt
+    // the cash counted twice).
     let firm_value = |s: &SecurityResult| Some(s.equity_value? + s.debt?);
+    let unlevered_value = |s: &SecurityResult| match leverage.debt_measure {
+        crate::capital::leverage::DebtMeasure::Gross => firm_value(s),
+        crate::capital::leverage::DebtMeasure::Net => Some(firm_value(s)? - s.cash?),
+    };
     let operations_value = |s: &SecurityResult| Some(firm_value(s)? * s.operating_share?);
-    let unlevered = summary(&|s| s.unlevered_beta, &firm_value);
+    let unlevered = summary(&|s| s.unlevered_beta, &unlevered_value);
     let operations = summary(&|s| s.operations_beta, &operations_value);
     let chosen = if leverage.operations_beta {
         &operations

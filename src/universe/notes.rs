@@ -46,7 +46,9 @@ pub(super) fn counts_and_notes(
     notes.extend(thousands_notes(inputs));
     notes.extend(strays_note(inputs, &strays));
     notes.extend(named_notes(securities));
-    notes.extend(cash_heavy_note(securities));
+    let net = inputs.universe.settings.leverage.debt_measure
+        == crate::capital::leverage::DebtMeasure::Net;
+    notes.extend(cash_heavy_note(securities, net));
     notes.extend(ended_early_note(securities, window));
     notes.extend(no_industry_note(securities));
     notes.extend(placeholder_industries_note(securities));
@@ -166,11 +168,16 @@ fn case_twins(strays: &[&str], panel: &[String]) -> String {
         .filter_map(|s| Some((*lower.get(&key(s))?, *s)))
         .collect();
     let pairs: Vec<String> = twins.iter().map(|(p, s)| format!("{p} for {s}")).collect();
-    let capitals = |(p, s): &(&str, &str)| p.to_lowercase() == s.to_lowercase();
-    let how = match (twins.iter().all(capitals), twins.iter().any(capitals)) {
-        (true, _) => "in capitals",
-        (false, false) => "in how accented letters are encoded",
-        (false, true) => "in capitals or in how accented letters are encoded",
+    // Each pair differs in capitals alone, in encoding alone, or in both (found by review: a
+    // pair differing in both was said to differ in encoding only).
+    let capitals_only = |(p, s): &(&str, &str)| p.to_lowercase() == s.to_lowercase();
+    let encoding_only = |(p, s): &(&str, &str)| p.nfc().eq(s.nfc());
+    let how = if twins.iter().all(capitals_only) {
+        "in capitals"
+    } else if twins.iter().all(encoding_only) {
+        "in how accented letters are encoded"
+    } else {
+        "in capitals, in how accented letters are encoded, or in both"
     };
     match pairs.len() {
         0 => String::new(),
@@ -436,7 +443,7 @@ const HEAVY_CASH_SHARE: f64 = 0.5;
 /// The aggregated securities whose cash is more than half their equity plus debt, by id (found
 /// by review: a firm with cash at 77% of its value had a beta of the operations of 4.2 and
 /// moved its industry's mean with no word said).
-fn cash_heavy_note(securities: &[SecurityResult]) -> Option<String> {
+fn cash_heavy_note(securities: &[SecurityResult], net: bool) -> Option<String> {
     let heavy = ids_where(securities, |s| {
         s.aggregated()
             && s.operating_share
@@ -447,12 +454,22 @@ fn cash_heavy_note(securities: &[SecurityResult]) -> Option<String> {
         1 => ("holds", "its", "is", "beta", "beta", "rests"),
         _ => ("hold", "their", "are", "betas", "betas", "rest"),
     };
+    // Under net debt the unlevered beta has netted the cash already (found by review: the
+    // note compared it with the beta of the operations, which it may equal).
+    let what = match net {
+        false => format!(
+            "{its} {beta} of the operations {is} more than twice {its} unlevered {betas} and \
+             {rests} on taking that cash at a beta of zero"
+        ),
+        true => format!(
+            "{its} unlevered {betas}, net of that cash, {rests} largely on taking the cash at a \
+             beta of zero (operating_share in securities.csv)"
+        ),
+    };
     (!heavy.is_empty()).then(|| {
         format!(
-            "{} {holds} cash of more than half {its} equity plus debt, so {its} {beta} of the \
-             operations {is} more than twice {its} unlevered {betas} and {rests} on taking \
-             that cash at a beta of zero (an industry's median is less moved by such figures \
-             than its means): {}",
+            "{} {holds} cash of more than half {its} equity plus debt, so {what} (an industry's \
+             median is less moved by such figures than its means): {}",
             securities_count(heavy.len()),
             first_ids(&heavy)
         )
@@ -547,8 +564,10 @@ mod tests {
             encoded.contains("only in how accented letters are encoded (Soci\u{e9}t\u{e9} for"),
             "{encoded}"
         );
-        let both = case_twins(&["s02", "Socie\u{301}te\u{301}"], &panel);
-        assert!(both.contains("in capitals or in how accented"), "{both}");
+        let mixed = case_twins(&["s02", "Socie\u{301}te\u{301}"], &panel);
+        assert!(mixed.contains("in capitals, in how accented"), "{mixed}");
+        let both = case_twins(&["socie\u{301}te\u{301}"], &panel);
+        assert!(both.contains("in capitals, in how accented"), "{both}");
         assert_eq!(case_twins(&["S03"], &panel), "");
     }
 }

@@ -99,8 +99,8 @@ pub fn check_rate_against_yields(case: &Case, inputs: &Inputs) -> Result<()> {
             file: inputs.case.resolve(&yields.path),
             message: format!(
                 "the median yield {} is more than {YIELD_RATIO} times \
-                 market.risk_free_rate = {}: the file looks like percentages (0.5 for 0.5%); \
-                 yields are decimals (0.005)",
+                 market.risk_free_rate = {}: either the file holds percentages (0.5 for 0.5%; \
+                 yields are decimals, 0.005) or the rate is far below the series",
                 show(median),
                 show(rate)
             ),

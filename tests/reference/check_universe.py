@@ -265,6 +265,11 @@ def securities(config, folder):
                 row["firm_value"] = equity + debt
                 if cash is not None:
                     row["operations_value"] = equity + debt - cash
+                # Under net debt the unlevered beta is of equity plus debt less cash.
+                if net:
+                    row.pop("firm_value")
+                    if cash is not None:
+                        row["firm_value"] = equity + debt - cash
             if equity is not None and debt is not None and (cash is not None or not net):
                 row["debt_to_equity"] = ((debt - cash) if net else debt) / equity
             # No leverage formula holds for a D/E above 10 or a net D/E at or below -1: no

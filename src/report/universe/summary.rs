@@ -393,17 +393,18 @@ fn cautions(r: &UniverseResult) -> String {
         );
     }
     match s.beta.adjustment {
-        crate::beta::Adjustment::Vasicek => out.push_str(
+        // A stated prior is the user's; only one taken from the cross-section pools industries.
+        crate::beta::Adjustment::Vasicek if s.beta.vasicek_prior_mean.is_none() => out.push_str(
             "- Vasicek's prior is taken from every security estimated, across industries, so \
              it pulls each industry toward the market-wide mean, the more so the noisier its \
              betas.\n",
         ),
         crate::beta::Adjustment::Blume => out.push_str(
             "- Blume's adjustment pulls each levered beta toward 1 before it is unlevered, so \
-             the unlevered betas move toward 1 / (1 + (1 − t) D/E), not toward an average \
-             unlevered beta.\n",
+             each unlevered beta moves toward what a levered beta of 1 unlevers to at that \
+             firm's D/E, not toward an average unlevered beta.\n",
         ),
-        crate::beta::Adjustment::None => {}
+        _ => {}
     }
     out
 }
