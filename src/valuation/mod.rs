@@ -41,6 +41,9 @@ pub struct Inputs {
     pub debt_table: Option<SpreadTable>,
     /// What reading the case's wide tables saw but does not act on (a hidden sheet, a filter).
     pub table_notes: Vec<String>,
+    /// The risk-free series' median yield, which every what-if's rate is checked against
+    /// (`sanity::check_rate_against_yields`): computed once, not for each grid cell.
+    pub risk_free_median: Option<f64>,
 }
 
 /// Reads every data file a case names, resolving paths against the case file's folder.
@@ -92,10 +95,13 @@ fn load(case: Case, with_debt_table: bool) -> Result<Inputs> {
             )?)
         }
     };
+    let risk_free_median =
+        (risk_free.as_ref()).map(|yields| crate::stats::dispersion(&yields.series.values).median);
     let inputs = Inputs {
         case,
         index,
         risk_free,
+        risk_free_median,
         peers,
         debt_table,
         table_notes,

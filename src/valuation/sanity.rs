@@ -89,10 +89,9 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
 /// case's: found by review, a grid cell and an implied step gave a figure for a rate that
 /// `hurdle run --set` refuses.
 pub fn check_rate_against_yields(case: &Case, inputs: &Inputs) -> Result<()> {
-    let Some(yields) = &inputs.risk_free else {
+    let (Some(yields), Some(median)) = (&inputs.risk_free, inputs.risk_free_median) else {
         return Ok(());
     };
-    let median = crate::stats::dispersion(&yields.series.values).median;
     let rate = case.settings.market.risk_free_rate;
     if median > YIELD_RATIO * rate.abs().max(0.01) {
         return Err(Error::DataFile {
