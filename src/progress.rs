@@ -77,6 +77,12 @@ impl Progress {
         Progress::styled(label, total, template)
     }
 
+    /// Reading `total` rows (a Parquet panel): the rows read, the rate and the time left.
+    pub fn of_rows(label: &str, total: u64) -> Progress {
+        let template = "{msg} {wide_bar} {pos}/{len} rows  {per_sec}  about {eta} left";
+        Progress::styled(label, total, template)
+    }
+
     fn styled(label: &str, total: u64, template: &str) -> Progress {
         let bar = ProgressBar::with_draw_target(Some(total), ProgressDrawTarget::hidden());
         if let Ok(style) = ProgressStyle::with_template(template) {

@@ -2433,7 +2433,8 @@ fn thousands_separators_in_the_attributes_are_noted() {
 // it (found by review): a placeholder for a missing attribute is cleared, not its row deleted;
 // a byte of a Latin-1 file is named by line and byte; a file saved as UTF-16 ("Unicode text")
 // is named as such (its first bytes FF FE are UTF-16's byte-order mark, Unicode 15.0, section
-// 23.8); the header repeated inside a long panel is named as a repeated header.
+// 23.8); the header repeated inside a long panel or the attributes is named as a repeated
+// header.
 #[test]
 fn spreadsheet_exports_are_refused_with_the_advice_that_fits() {
     refused(
@@ -2473,6 +2474,17 @@ fn spreadsheet_exports_are_refused_with_the_advice_that_fits() {
         },
         &[],
         &["prices-long.csv: the file is text saved as UTF-16"],
+    );
+    refused(
+        |dir| {
+            let header = attributes_row(dir, 1).join(",");
+            replace_line(&dir.join("attributes.csv"), 4, &header);
+        },
+        &[],
+        &[
+            "attributes.csv, line 4: `market_cap` = \"market_cap\"",
+            "the header row is repeated here",
+        ],
     );
     refused_with_panel_line(
         40,

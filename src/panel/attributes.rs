@@ -404,6 +404,14 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
             .map(
                 |(k, cell)| match cell.map(str::trim).filter(|c| !c.is_empty()) {
                     None => Ok((None, None)),
+                    // The header again inside the file (two exports pasted together).
+                    Some(text) if text == name => Err(source.row_error(
+                        k,
+                        format!(
+                            "`{name}` = \"{text}\": the header row is repeated here; remove the \
+                             repeated header"
+                        ),
+                    )),
                     Some(text) => text
                         .parse::<f64>()
                         .map(|v| (Some(v), Some(text.to_string())))

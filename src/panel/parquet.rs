@@ -46,8 +46,7 @@ pub(super) fn read(
         .file_name()
         .unwrap_or_default()
         .to_string_lossy();
-    let mut progress =
-        crate::progress::Progress::new(&format!("reading {name}, rows"), total as u64);
+    let mut progress = crate::progress::Progress::of_rows(&format!("reading {name}"), total as u64);
     let wide: Vec<(String, u32)> = match columns.layout {
         PanelLayout::Long => Vec::new(),
         PanelLayout::Wide => {
