@@ -692,6 +692,32 @@ fn replace_line(path: &Path, line: usize, with: &str) -> String {
     old
 }
 
+/// Rewrites the attributes file's `column` in every data row for which `edit` (the row's cells,
+/// and the position of a column by name) gives a new value; returns how many it rewrote.
+fn edit_attributes(
+    dir: &Path,
+    column: &str,
+    edit: impl Fn(&[String], &dyn Fn(&str) -> usize) -> Option<String>,
+) -> usize {
+    let path = dir.join("attributes.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    let header: Vec<String> = attributes_row(dir, 1);
+    let at = |name: &str| header.iter().position(|c| c == name).unwrap();
+    let mut edited = 0;
+    let rows: String = (text.lines().enumerate())
+        .map(|(i, line)| {
+            let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
+            if let Some(value) = (i > 0).then(|| edit(&cells, &at)).flatten() {
+                cells[at(column)] = value;
+                edited += 1;
+            }
+            cells.join(",") + "\n"
+        })
+        .collect();
+    fs::write(&path, rows).unwrap();
+    edited
+}
+
 /// The cells of line `line` (1-based, header = 1) of the attributes file.
 fn attributes_row(dir: &Path, line: usize) -> Vec<String> {
     let text = fs::read_to_string(dir.join("attributes.csv")).unwrap();
@@ -1767,21 +1793,10 @@ fn exclusion_counts_follow_the_listed_flags() {
 #[test]
 fn an_industry_of_one_has_no_standard_deviation() {
     let setup = Setup::new();
-    let attributes = setup.dir().join("attributes.csv");
-    let text = fs::read_to_string(&attributes).unwrap();
-    let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
-    let at = header.iter().position(|c| *c == "industry").unwrap();
-    let edited: String = text
-        .lines()
-        .map(|line| {
-            let mut cells: Vec<&str> = line.split(',').collect();
-            if cells[0] == "S01" {
-                cells[at] = "Solo";
-            }
-            cells.join(",") + "\n"
-        })
-        .collect();
-    fs::write(&attributes, edited).unwrap();
+    let edited = edit_attributes(&setup.dir(), "industry", |cells, _| {
+        (cells[0] == "S01").then(|| "Solo".to_string())
+    });
+    assert_eq!(edited, 1);
     let out = setup.succeeds("out", &[]);
     let industries = read_table(&out.join("industries.csv"));
     let mask = industries
@@ -2320,24 +2335,12 @@ fn a_line_break_inside_quotes_moves_the_lines_named_after_it() {
 #[test]
 fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
     let setup = Setup::new();
-    let attributes = setup.dir().join("attributes.csv");
-    let text = fs::read_to_string(&attributes).unwrap();
-    let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
-    let at = |name: &str| header.iter().position(|c| *c == name).unwrap();
     // S17's cash becomes three quarters of its equity plus debt.
-    let edited: String = text
-        .lines()
-        .map(|line| {
-            let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
-            if cells[0] == "S17" {
-                let value: f64 = cells[at("market_cap")].parse::<f64>().unwrap()
-                    + cells[at("debt")].parse::<f64>().unwrap();
-                cells[at("cash")] = format!("{}", 0.75 * value);
-            }
-            cells.join(",") + "\n"
-        })
-        .collect();
-    fs::write(&attributes, edited).unwrap();
+    let edited = edit_attributes(&setup.dir(), "cash", |cells, at| {
+        let figure = |name: &str| cells[at(name)].parse::<f64>().unwrap();
+        (cells[0] == "S17").then(|| format!("{}", 0.75 * (figure("market_cap") + figure("debt"))))
+    });
+    assert_eq!(edited, 1);
     let sets = [
         "beta.exclude_flags=[\"low_r_squared\"]",
         "beta.flag_r_squared_floor=0.3",
@@ -2386,33 +2389,18 @@ fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
     );
 }
 
-// Market values saved as a spreadsheet in a German or French locale shows them, a point between
+// Market values saved as a spreadsheet shows them where a point separates thousands, a point between
 // the thousands (`1.500` for 1,500), beside values under a thousand without one (`750`): read as
 // written, the large ones are a thousandth of their value. The run goes on (three decimals
 // beside whole figures can be meant) but the summary's notes say what the points may be.
 #[test]
 fn thousands_separators_in_the_attributes_are_noted() {
     let setup = Setup::new();
-    let attributes = setup.dir().join("attributes.csv");
-    let text = fs::read_to_string(&attributes).unwrap();
-    let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
-    let at = header.iter().position(|c| *c == "market_cap").unwrap();
-    let mut separated = 0;
-    let edited: String = text
-        .lines()
-        .map(|line| {
-            let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
-            if let Ok(value) = cells[at].parse::<u64>() {
-                if value >= 1000 {
-                    cells[at] = format!("{}.{:03}", value / 1000, value % 1000);
-                    separated += 1;
-                }
-            }
-            cells.join(",") + "\n"
-        })
-        .collect();
-    assert!(separated >= 2, "{edited}");
-    fs::write(&attributes, edited).unwrap();
+    let separated = edit_attributes(&setup.dir(), "market_cap", |cells, at| {
+        let value = cells[at("market_cap")].parse::<u64>().ok()?;
+        (value >= 1000).then(|| format!("{}.{:03}", value / 1000, value % 1000))
+    });
+    assert!(separated >= 2, "{separated} figures separated");
     let out = setup.succeeds("out", &[]);
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
     assert!(

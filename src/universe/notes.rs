@@ -99,7 +99,7 @@ fn counts(securities: &[SecurityResult], strays: usize) -> Counts {
 }
 
 /// The attributes' figure columns whose points look like thousands separators (found by review:
-/// figures saved as a spreadsheet in a German or French locale shows them, `66.471` for 66,471,
+/// figures saved as a spreadsheet shows them where a point separates thousands, `66.471` for 66,471,
 /// were read as 66.471 beside unseparated figures under a thousand, with no word said).
 fn thousands_notes(inputs: &UniverseInputs) -> Vec<String> {
     let attributes = &inputs.attributes;
