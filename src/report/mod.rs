@@ -8,6 +8,7 @@ pub mod csv;
 pub mod figures;
 pub mod format;
 pub mod json;
+pub mod leftovers;
 pub mod memo;
 pub mod new_file;
 pub mod rolling;

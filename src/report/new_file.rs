@@ -6,7 +6,8 @@ use std::fs;
 use std::io::Write;
 use std::path::Path;
 
-use super::staging::{forget_temporary, hold, io_error, register_temporary};
+use super::leftovers::hold;
+use super::staging::{forget_temporary, io_error, register_temporary};
 use crate::error::{Error, Result};
 
 /// Writes `text` to `path`, never over an existing file (the check and the write are one step:

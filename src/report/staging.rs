@@ -130,7 +130,7 @@ pub struct Stage {
     /// Folders created for the outputs (outermost first), removed again on failure.
     created: Vec<PathBuf>,
     staging: Option<tempfile::TempDir>,
-    /// The temporary folder, held locked while it is in use (see [`hold`]).
+    /// The temporary folder, held locked while it is in use (see [`super::leftovers::hold`]).
     _staging_lock: Option<fs::File>,
     /// Each staged file's flush.
     flushes: Mutex<Vec<(PathBuf, Flush)>>,
@@ -174,10 +174,10 @@ impl Stage {
             retired: Vec::new(),
             _lock: lock,
         };
-        remove_abandoned(dir);
+        super::leftovers::remove_abandoned(dir);
         let staging = staging_folder(dir)?;
         register_temporary(staging.path());
-        stage._staging_lock = hold(staging.path());
+        stage._staging_lock = super::leftovers::hold(staging.path());
         stage.staging = Some(staging);
         Ok(stage)
     }
@@ -500,49 +500,6 @@ fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
         .map_err(io_error(dir, "cannot create a temporary folder beside"))
 }
 
-/// A temporary folder opened and locked for as long as the returned file lives (an advisory
-/// lock, released when the process ends however it ends), so that a later run can tell a folder
-/// in use from one a killed run left ([`remove_abandoned`]). `None` where folders cannot be
-/// locked.
-pub(crate) fn hold(folder: &Path) -> Option<fs::File> {
-    let file = fs::File::open(folder).ok()?;
-    file.try_lock().ok()?;
-    Some(file)
-}
-
-/// How long a temporary folder must have been left untouched before a later run removes it:
-/// a run in progress locks its folder at once ([`hold`]), but a folder made a moment ago may not
-/// be locked yet.
-const ABANDONED_AFTER: std::time::Duration = std::time::Duration::from_secs(60);
-
-/// Removes the temporary folders (`.hurdle-staging-*`) beside `dir` and inside it that a run
-/// killed outright left behind (found by review: a run killed by SIGKILL or a power cut left
-/// its temporary folder for good): a folder is removed only when nobody holds its lock and it
-/// has not changed for [`ABANDONED_AFTER`]. Called with `dir` locked, so no other run is
-/// writing into `dir`; a folder that cannot be read, locked or removed is left as it is.
-fn remove_abandoned(dir: &Path) {
-    let parent = dir
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    for folder in [parent, dir] {
-        let Ok(entries) = fs::read_dir(folder) else {
-            continue;
-        };
-        for entry in entries.flatten() {
-            let name = entry.file_name();
-            let ours = name.to_string_lossy().starts_with(".hurdle-staging-");
-            let is_folder = entry.file_type().is_ok_and(|t| t.is_dir());
-            let untouched = (entry.metadata().and_then(|m| m.modified()).ok())
-                .and_then(|changed| changed.elapsed().ok())
-                .is_some_and(|age| age >= ABANDONED_AFTER);
-            if ours && is_folder && untouched && hold(&entry.path()).is_some() {
-                let _ = fs::remove_dir_all(entry.path());
-            }
-        }
-    }
-}
-
 /// Whether an entry of `staging` can be moved into `dir` (not across file systems or mounts,
 /// which a bind mount of the same file system also refuses): an empty folder is moved there and
 /// removed again.
@@ -680,13 +637,14 @@ mod tests {
             let folder = root.path().join(name);
             fs::create_dir(&folder).unwrap();
             fs::write(folder.join("memo.md"), b"half a run").unwrap();
-            let old = std::time::SystemTime::now() - 2 * ABANDONED_AFTER;
+            let old = std::time::SystemTime::now() - 2 * super::super::leftovers::ABANDONED_AFTER;
             fs::File::open(&folder).unwrap().set_modified(old).unwrap();
             folder
         };
         let left = aged(".hurdle-staging-left");
         let in_use = aged(".hurdle-staging-in-use");
-        let held = hold(&in_use).expect("a folder can be locked on this file system");
+        let held = super::super::leftovers::hold(&in_use)
+            .expect("a folder can be locked on this file system");
         let users = aged("hurdle-staging-of-the-user");
         let fresh = root.path().join(".hurdle-staging-fresh");
         fs::create_dir(&fresh).unwrap();
