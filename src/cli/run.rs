@@ -46,7 +46,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .out
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
-    let earlier = report::staging::earlier_receipt(&out);
+    let earlier = report::earlier::earlier_receipt(&out);
     let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
     let stale = report::stale_run_outputs(&out, &names, earlier.as_ref());
@@ -88,7 +88,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
 /// Whether an earlier receipt in the output folder is of another valuation: a universe's, or a
 /// case of another title, valuation date or case file name (the folders the path was typed
 /// from do not count: the same case is run from its own folder and from above it).
-fn another_valuation(e: &report::staging::EarlierReceipt, v: &Valuation) -> bool {
+fn another_valuation(e: &report::earlier::EarlierReceipt, v: &Valuation) -> bool {
     let name = |path: &str| std::path::Path::new(path).file_name().map(|n| n.to_owned());
     e.universe
         || e.valuation_date != v.case.valuation_date.to_string()

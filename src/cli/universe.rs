@@ -73,7 +73,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     );
     let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
     estimating.bar.finish_and_clear();
-    let earlier = hurdle::report::staging::earlier_receipt(&out);
+    let earlier = hurdle::report::earlier::earlier_receipt(&out);
     let (written, stale) = write_outputs(&out, &result, &reads)?;
     print!("{}", summary(&result));
     for path in written {

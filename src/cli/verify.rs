@@ -41,7 +41,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
              or `hurdle universe` wrote"
         ),
     };
-    if let Some(kind) = hurdle::io::sanity::binary_kind(&bytes) {
+    if let Some(kind) = hurdle::io::encoding::binary_kind(&bytes) {
         return Err(not_a_receipt(kind));
     }
     let text = String::from_utf8(bytes).map_err(|_| not_a_receipt("not UTF-8 text"))?;

@@ -115,7 +115,7 @@ pub fn read_attributes(
     let frame = match format {
         TableFormat::Csv => {
             let header = super::header::header(&source, &bytes)?;
-            if let Some((line, message)) = crate::io::sanity::first_non_utf8(&bytes) {
+            if let Some((line, message)) = crate::io::encoding::first_non_utf8(&bytes) {
                 return Err(source.row_error(line.saturating_sub(1), message));
             }
             super::header::check_repeated_names(&source, &header, &used)?;
@@ -153,22 +153,7 @@ pub fn read_attributes(
             thousands_points(name, cells.iter().flatten().map(str::trim))
         })
         .collect();
-    let mut order: Vec<usize> = (0..records.len()).collect();
-    order.sort_by(|&a, &b| records[a].security.cmp(&records[b].security));
-    if let Some(w) = order
-        .windows(2)
-        .find(|w| records[w[0]].security == records[w[1]].security)
-    {
-        let (first, second) = (w[0].min(w[1]), w[0].max(w[1]));
-        return Err(source.row_error(
-            second,
-            format!(
-                "security {} is listed again (first at {}); each security may have one row",
-                records[second].security,
-                source.place(first)
-            ),
-        ));
-    }
+    check_listed_once(&source, &records)?;
     let mut records = records;
     records.sort_by(|a, b| a.security.cmp(&b.security));
     Ok(Attributes {
@@ -223,6 +208,26 @@ pub fn thousands_points<'a>(
         with_point,
         without_point,
     })
+}
+
+/// Refuses a security listed twice, naming both rows.
+fn check_listed_once(source: &Source, records: &[AttributeRecord]) -> Result<()> {
+    let mut order: Vec<usize> = (0..records.len()).collect();
+    order.sort_by(|&a, &b| records[a].security.cmp(&records[b].security));
+    match (order.windows(2)).find(|w| records[w[0]].security == records[w[1]].security) {
+        Some(w) => {
+            let (first, second) = (w[0].min(w[1]), w[0].max(w[1]));
+            Err(source.row_error(
+                second,
+                format!(
+                    "security {} is listed again (first at {}); each security may have one row",
+                    records[second].security,
+                    source.place(first)
+                ),
+            ))
+        }
+        None => Ok(()),
+    }
 }
 
 /// The columns of a Parquet attributes file that `used` names, after checking that hurdle reads

@@ -389,7 +389,7 @@ fn diagnose(
     columns: &PanelColumns,
     error: &PolarsError,
 ) -> Error {
-    if let Some((line, message)) = crate::io::sanity::first_non_utf8(block) {
+    if let Some((line, message)) = crate::io::encoding::first_non_utf8(block) {
         let row = (first_row + line).saturating_sub(usize::from(has_header));
         return source.row_error(row, message);
     }

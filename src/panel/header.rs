@@ -15,7 +15,7 @@ use crate::error::{Error, Result};
 pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     // A workbook or text saved as UTF-16 given as CSV is named as what it is (found by review:
     // a UTF-16 panel was reported as lines ending in CR alone).
-    if let Some(kind) = crate::io::sanity::binary_kind(block) {
+    if let Some(kind) = crate::io::encoding::binary_kind(block) {
         return Err(source.file_error(format!(
             "the file is {kind}, not CSV text: save it as CSV (comma-separated, UTF-8), or as \
              Parquet with the .parquet extension"
@@ -29,7 +29,7 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
         b == b'\n' && !in_quotes
     });
     let block = &block[..end.map_or(block.len(), |end| end + 1)];
-    if let Some((_, message)) = crate::io::sanity::first_non_utf8(block) {
+    if let Some((_, message)) = crate::io::encoding::first_non_utf8(block) {
         return Err(Error::DataRow {
             file: source.file.clone(),
             line: 1,

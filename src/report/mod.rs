@@ -5,10 +5,10 @@
 //! the run reads.
 
 pub mod csv;
+pub mod earlier;
 pub mod figures;
 pub mod format;
 pub mod json;
-pub mod leftovers;
 pub mod memo;
 pub mod new_file;
 pub mod rolling;
@@ -77,11 +77,11 @@ pub fn render_run(
 /// the case, a bridge no longer asked for) and the report (a run with `figures` off). Left there,
 /// they would sit beside the new memo as if they belonged to it; and `hurdle verify --out`'s
 /// status of the receipt this run replaces. Only in a folder that holds an earlier run's
-/// receipt (`earlier_run`, from [`staging::earlier_receipt`]). Sorted.
+/// receipt (`earlier_run`, from [`earlier::earlier_receipt`]). Sorted.
 pub fn stale_run_outputs(
     dir: &Path,
     written: &[String],
-    earlier: Option<&staging::EarlierReceipt>,
+    earlier: Option<&earlier::EarlierReceipt>,
 ) -> Vec<String> {
     let Some(earlier) = earlier else {
         return Vec::new();

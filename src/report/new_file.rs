@@ -6,7 +6,7 @@ use std::fs;
 use std::io::Write;
 use std::path::Path;
 
-use super::leftovers::hold;
+use super::earlier::hold;
 use super::staging::{forget_temporary, io_error, register_temporary};
 use crate::error::{Error, Result};
 

@@ -58,7 +58,7 @@ pub fn write_outputs_replacing(
         stage.add(name, bytes)?;
     }
     let names: Vec<String> = files.iter().map(|(name, _)| name.clone()).collect();
-    let earlier = holds_an_earlier_run(dir);
+    let earlier = super::earlier::holds_an_earlier_run(dir);
     let stale: Vec<String> = (optional.iter().map(|name| name.to_string()))
         .filter(|name| earlier && !names.contains(name) && dir.join(name).is_file())
         .collect();
@@ -67,56 +67,6 @@ pub fn write_outputs_replacing(
         .filter(|name| stage.retire(name))
         .collect();
     Ok((stage.commit(&names)?, stale))
-}
-
-/// What the receipt an earlier run left in a folder records of its case: enough to say, when a
-/// new run replaces it, that it was another valuation (a case rolled forward into last
-/// quarter's folder, or another case's run into this one).
-#[derive(Debug, Clone, PartialEq)]
-pub struct EarlierReceipt {
-    /// A universe's receipt (`kind = "universe"`), whose file is `case_file` here.
-    pub universe: bool,
-    pub case_file: String,
-    pub title: String,
-    pub valuation_date: String,
-    pub wacc: Option<f64>,
-}
-
-/// The earlier run's receipt in `dir`, when there is one (a universe's too, whose case fields
-/// are empty): read once for both uses, the notice and [`super::stale_run_outputs`].
-pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
-    let bytes = fs::read(dir.join("result.json")).ok()?;
-    let receipt: serde_json::Value = serde_json::from_slice(&bytes).ok()?;
-    if receipt["tool"]["name"] != env!("CARGO_PKG_NAME") {
-        return None;
-    }
-    Some(EarlierReceipt {
-        universe: receipt["kind"] == "universe",
-        case_file: (receipt["case"]["file"].as_str())
-            .or(receipt["universe"]["file"].as_str())
-            .unwrap_or_default()
-            .to_string(),
-        title: receipt["case"]["title"]
-            .as_str()
-            .unwrap_or_default()
-            .to_string(),
-        valuation_date: (receipt["case"]["valuation_date"].as_str())
-            .unwrap_or_default()
-            .to_string(),
-        wacc: receipt["wacc"].as_f64(),
-    })
-}
-
-/// Whether `dir` holds the receipt of an earlier hurdle run (a `result.json` whose `tool.name`
-/// is hurdle): only then are files there named as hurdle names its optional outputs taken to be
-/// that run's, and taken away when a run does not write them again. A folder of the user's own
-/// with a `report.html` in it keeps it.
-pub fn holds_an_earlier_run(dir: &Path) -> bool {
-    let Ok(bytes) = fs::read(dir.join("result.json")) else {
-        return false;
-    };
-    serde_json::from_slice::<serde_json::Value>(&bytes)
-        .is_ok_and(|receipt| receipt["tool"]["name"] == env!("CARGO_PKG_NAME"))
 }
 
 /// A staged file's flush, on a thread of its own (`None`: flushed when it was written).
@@ -130,7 +80,7 @@ pub struct Stage {
     /// Folders created for the outputs (outermost first), removed again on failure.
     created: Vec<PathBuf>,
     staging: Option<tempfile::TempDir>,
-    /// The temporary folder, held locked while it is in use (see [`super::leftovers::hold`]).
+    /// The temporary folder, held locked while it is in use (see [`super::earlier::hold`]).
     _staging_lock: Option<fs::File>,
     /// Each staged file's flush.
     flushes: Mutex<Vec<(PathBuf, Flush)>>,
@@ -174,10 +124,10 @@ impl Stage {
             retired: Vec::new(),
             _lock: lock,
         };
-        super::leftovers::remove_abandoned(dir);
+        super::earlier::remove_abandoned(dir);
         let staging = staging_folder(dir)?;
         register_temporary(staging.path());
-        stage._staging_lock = super::leftovers::hold(staging.path());
+        stage._staging_lock = super::earlier::hold(staging.path());
         stage.staging = Some(staging);
         Ok(stage)
     }
@@ -637,13 +587,13 @@ mod tests {
             let folder = root.path().join(name);
             fs::create_dir(&folder).unwrap();
             fs::write(folder.join("memo.md"), b"half a run").unwrap();
-            let old = std::time::SystemTime::now() - 2 * super::super::leftovers::ABANDONED_AFTER;
+            let old = std::time::SystemTime::now() - 2 * super::super::earlier::ABANDONED_AFTER;
             fs::File::open(&folder).unwrap().set_modified(old).unwrap();
             folder
         };
         let left = aged(".hurdle-staging-left");
         let in_use = aged(".hurdle-staging-in-use");
-        let held = super::super::leftovers::hold(&in_use)
+        let held = super::super::earlier::hold(&in_use)
             .expect("a folder can be locked on this file system");
         let users = aged("hurdle-staging-of-the-user");
         let fresh = root.path().join(".hurdle-staging-fresh");

@@ -111,44 +111,19 @@ pub(super) fn industry_row(
 ) -> IndustryResult {
     let aggregated: Vec<&SecurityResult> =
         members.iter().copied().filter(|s| s.aggregated()).collect();
-    let trim = leverage.trim_fraction;
-    // Each figure with its equity value (market-cap weights) and, where the figure is of a
-    // firm's assets or operations, the value of those (value weights).
     let summary = |figure: &dyn Fn(&SecurityResult) -> Option<f64>,
                    value: &dyn Fn(&SecurityResult) -> Option<f64>| {
-        let mut values = Vec::new();
-        let mut by_equity = Vec::new();
-        let mut by_value = Vec::new();
-        for s in &aggregated {
-            if let Some(v) = figure(s) {
-                values.push(v);
-                by_equity.extend(s.equity_value.map(|e| (v, e)));
-                by_value.extend(value(s).map(|w| (v, w)));
-            }
-        }
-        summarise(&values, (&by_equity, &by_value), trim)
+        figure_summary(&aggregated, (figure, value), leverage.trim_fraction)
     };
     let none = |_: &SecurityResult| None;
-    // What an unlevered beta is the beta of: equity plus debt, or, under net debt, equity plus
-    // debt less cash (the cash already netted; found by review: weighted by equity plus debt
-    // the cash counted twice).
-    let firm_value = |s: &SecurityResult| Some(s.equity_value? + s.debt?);
-    let unlevered_value = |s: &SecurityResult| match leverage.debt_measure {
-        crate::capital::leverage::DebtMeasure::Gross => firm_value(s),
-        crate::capital::leverage::DebtMeasure::Net => Some(firm_value(s)? - s.cash?),
-    };
-    let operations_value = |s: &SecurityResult| Some(firm_value(s)? * s.operating_share?);
-    let unlevered = summary(&|s| s.unlevered_beta, &unlevered_value);
+    let unlevered = summary(&|s| s.unlevered_beta, &|s| unlevered_value(s, leverage));
     let operations = summary(&|s| s.operations_beta, &operations_value);
     let chosen = if leverage.operations_beta {
         &operations
     } else {
         &unlevered
     };
-    let ratios: Vec<f64> = aggregated.iter().filter_map(|s| s.debt_to_equity).collect();
-    let (weighted_ratios, equity): (Vec<f64>, Vec<f64>) = (aggregated.iter())
-        .filter_map(|s| Some((s.debt_to_equity?, s.equity_value?)))
-        .unzip();
+    let (median_debt_to_equity, aggregate_debt_to_equity) = debt_to_equity(&aggregated);
     let mut not_estimated = BTreeMap::new();
     for reason in NotEstimated::ALL {
         let n = members
@@ -192,17 +167,74 @@ pub(super) fn industry_row(
         } else {
             None
         },
-        median_debt_to_equity: (!ratios.is_empty()).then(|| stats::dispersion(&ratios).median),
-        aggregate_debt_to_equity: (!equity.is_empty())
-            .then(|| stats::weighted_mean(&weighted_ratios, &equity)),
+        median_debt_to_equity,
+        aggregate_debt_to_equity,
         unlevered_beta: chosen.as_ref().and_then(|s| s.select(leverage.aggregation)),
         unlevered,
         operations,
     }
 }
 
+/// The summary of one figure over the aggregated securities: each value with its equity value
+/// (market-cap weights) and, where the figure is of a firm's assets or operations, the value of
+/// those (value weights).
+fn figure_summary(
+    aggregated: &[&SecurityResult],
+    (figure, value): (Figure<'_>, Figure<'_>),
+    trim: f64,
+) -> Option<Summary> {
+    let mut values = Vec::new();
+    let mut by_equity = Vec::new();
+    let mut by_value = Vec::new();
+    for s in aggregated {
+        if let Some(v) = figure(s) {
+            values.push(v);
+            by_equity.extend(s.equity_value.map(|e| (v, e)));
+            by_value.extend(value(s).map(|w| (v, w)));
+        }
+    }
+    summarise(&values, (&by_equity, &by_value), trim)
+}
+
+/// Equity plus debt: the value a gross-debt unlevered beta is the beta of.
+fn firm_value(s: &SecurityResult) -> Option<f64> {
+    Some(s.equity_value? + s.debt?)
+}
+
+/// What an unlevered beta is the beta of: equity plus debt, or, under net debt, equity plus
+/// debt less cash (the cash already netted; found by review: weighted by equity plus debt the
+/// cash counted twice).
+fn unlevered_value(s: &SecurityResult, leverage: &LeverageSettings) -> Option<f64> {
+    match leverage.debt_measure {
+        crate::capital::leverage::DebtMeasure::Gross => firm_value(s),
+        crate::capital::leverage::DebtMeasure::Net => Some(firm_value(s)? - s.cash?),
+    }
+}
+
+/// The value of the operations, equity plus debt less cash: what a beta of the operations is
+/// the beta of.
+fn operations_value(s: &SecurityResult) -> Option<f64> {
+    Some(firm_value(s)? * s.operating_share?)
+}
+
+/// The median D/E of the aggregated securities that have one, and their D/E as one portfolio
+/// (Σ debt / Σ equity value, as their D/E weighted by equity value).
+fn debt_to_equity(aggregated: &[&SecurityResult]) -> (Option<f64>, Option<f64>) {
+    let ratios: Vec<f64> = aggregated.iter().filter_map(|s| s.debt_to_equity).collect();
+    let (weighted, equity): (Vec<f64>, Vec<f64>) = (aggregated.iter())
+        .filter_map(|s| Some((s.debt_to_equity?, s.equity_value?)))
+        .unzip();
+    (
+        (!ratios.is_empty()).then(|| stats::dispersion(&ratios).median),
+        (!equity.is_empty()).then(|| stats::weighted_mean(&weighted, &equity)),
+    )
+}
+
 /// A figure and its weight.
 type Weighted = (f64, f64);
+
+/// One figure of a security (a beta, a weight), when it has it.
+type Figure<'a> = &'a dyn Fn(&SecurityResult) -> Option<f64>;
 
 /// Dispersion and locations of `values`; the market-cap-weighted mean over the (value, equity
 /// value) pairs and the value-weighted mean over the (value, weight) pairs. `None` for no values.

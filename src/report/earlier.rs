@@ -1,0 +1,103 @@
+//! What earlier runs left in an output folder. A finished run's receipt: what it records of its
+//! case ([`earlier_receipt`]), so that a run replacing it can say it was another valuation, and
+//! whether it is hurdle's ([`holds_an_earlier_run`]), before its optional files are taken away.
+//! The temporary folders (`.hurdle-staging-*`) a run killed outright leaves behind: each run
+//! locks its own ([`hold`]), and a later run removes those nobody holds that have not changed
+//! for a minute ([`remove_abandoned`]). Kept apart from [`super::staging`], which calls these
+//! when a stage begins; `hurdle init`'s [`super::new_file`] locks its folder the same way.
+
+use std::fs;
+use std::path::Path;
+
+/// What the receipt an earlier run left in a folder records of its case: enough to say, when a
+/// new run replaces it, that it was another valuation (a case rolled forward into last
+/// quarter's folder, or another case's run into this one).
+#[derive(Debug, Clone, PartialEq)]
+pub struct EarlierReceipt {
+    /// A universe's receipt (`kind = "universe"`), whose file is `case_file` here.
+    pub universe: bool,
+    pub case_file: String,
+    pub title: String,
+    pub valuation_date: String,
+    pub wacc: Option<f64>,
+}
+
+/// The earlier run's receipt in `dir`, when there is one (a universe's too, whose case fields
+/// are empty): read once for both uses, the notice and [`super::stale_run_outputs`].
+pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
+    let bytes = fs::read(dir.join("result.json")).ok()?;
+    let receipt: serde_json::Value = serde_json::from_slice(&bytes).ok()?;
+    if receipt["tool"]["name"] != env!("CARGO_PKG_NAME") {
+        return None;
+    }
+    Some(EarlierReceipt {
+        universe: receipt["kind"] == "universe",
+        case_file: (receipt["case"]["file"].as_str())
+            .or(receipt["universe"]["file"].as_str())
+            .unwrap_or_default()
+            .to_string(),
+        title: receipt["case"]["title"]
+            .as_str()
+            .unwrap_or_default()
+            .to_string(),
+        valuation_date: (receipt["case"]["valuation_date"].as_str())
+            .unwrap_or_default()
+            .to_string(),
+        wacc: receipt["wacc"].as_f64(),
+    })
+}
+
+/// Whether `dir` holds the receipt of an earlier hurdle run (a `result.json` whose `tool.name`
+/// is hurdle): only then are files there named as hurdle names its optional outputs taken to be
+/// that run's, and taken away when a run does not write them again. A folder of the user's own
+/// with a `report.html` in it keeps it.
+pub fn holds_an_earlier_run(dir: &Path) -> bool {
+    let Ok(bytes) = fs::read(dir.join("result.json")) else {
+        return false;
+    };
+    serde_json::from_slice::<serde_json::Value>(&bytes)
+        .is_ok_and(|receipt| receipt["tool"]["name"] == env!("CARGO_PKG_NAME"))
+}
+
+/// A temporary folder opened and locked for as long as the returned file lives (an advisory
+/// lock, released when the process ends however it ends), so that a later run can tell a folder
+/// in use from one a killed run left ([`remove_abandoned`]). `None` where folders cannot be
+/// locked.
+pub(crate) fn hold(folder: &Path) -> Option<fs::File> {
+    let file = fs::File::open(folder).ok()?;
+    file.try_lock().ok()?;
+    Some(file)
+}
+
+/// How long a temporary folder must have been left untouched before a later run removes it:
+/// a run in progress locks its folder at once ([`hold`]), but a folder made a moment ago may not
+/// be locked yet.
+pub(crate) const ABANDONED_AFTER: std::time::Duration = std::time::Duration::from_secs(60);
+
+/// Removes the temporary folders (`.hurdle-staging-*`) beside `dir` and inside it that a run
+/// killed outright left behind (found by review: a run killed by SIGKILL or a power cut left
+/// its temporary folder for good): a folder is removed only when nobody holds its lock and it
+/// has not changed for [`ABANDONED_AFTER`]. Called with `dir` locked, so no other run is
+/// writing into `dir`; a folder that cannot be read, locked or removed is left as it is.
+pub(crate) fn remove_abandoned(dir: &Path) {
+    let parent = dir
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    for folder in [parent, dir] {
+        let Ok(entries) = fs::read_dir(folder) else {
+            continue;
+        };
+        for entry in entries.flatten() {
+            let name = entry.file_name();
+            let ours = name.to_string_lossy().starts_with(".hurdle-staging-");
+            let is_folder = entry.file_type().is_ok_and(|t| t.is_dir());
+            let untouched = (entry.metadata().and_then(|m| m.modified()).ok())
+                .and_then(|changed| changed.elapsed().ok())
+                .is_some_and(|age| age >= ABANDONED_AFTER);
+            if ours && is_folder && untouched && hold(&entry.path()).is_some() {
+                let _ = fs::remove_dir_all(entry.path());
+            }
+        }
+    }
+}
