@@ -30,6 +30,22 @@ fn demo_copy() -> (tempfile::TempDir, PathBuf) {
     (dir, case_dir)
 }
 
+/// `hurdle grid CASE --rows ROWS --cols COLUMNS --csv CSV` with `extra` arguments.
+fn grid_to_csv(case: &Path, [rows, columns]: [&str; 2], csv: &Path, extra: &[&str]) -> Output {
+    let mut arguments = vec![
+        "grid",
+        case.to_str().unwrap(),
+        "--rows",
+        rows,
+        "--cols",
+        columns,
+        "--csv",
+        csv.to_str().unwrap(),
+    ];
+    arguments.extend(extra);
+    hurdle(&arguments)
+}
+
 fn run_case(case: &Path, out: &Path, extra: &[&str]) -> serde_json::Value {
     let mut args = vec![
         "run",
@@ -1896,18 +1912,15 @@ fn grid_cells_the_case_refuses_are_left_empty_with_the_reason() {
     assert!(memo.contains("(0.026, 0), (0.026, 0.2)"), "{memo}");
     // `hurdle grid` over the same values: n/a on the terminal with the reason, empty in the CSV.
     let csv = dir.path().join("grid.csv");
-    let mut arguments = vec![
-        "grid",
-        case.to_str().unwrap(),
-        "--rows",
-        "market.equity_risk_premium=0.026..0.036:0.005",
-        "--cols",
-        "target.debt_to_equity=0..0.4:0.2",
-        "--csv",
-        csv.to_str().unwrap(),
-    ];
-    arguments.extend(settings);
-    let output = hurdle(&arguments);
+    let output = grid_to_csv(
+        &case,
+        [
+            "market.equity_risk_premium=0.026..0.036:0.005",
+            "target.debt_to_equity=0..0.4:0.2",
+        ],
+        &csv,
+        &settings,
+    );
     assert!(output.status.success(), "{}", text(&output));
     assert!(
         text(&output).contains(&format!(
@@ -2595,18 +2608,15 @@ fn grid_cells_and_implied_steps_refuse_what_the_run_refuses() {
     std::fs::write(&yields, raised).unwrap();
     let rate = ["--set", "market.risk_free_rate=0.1567"];
     let csv = dir.path().join("grid.csv");
-    let mut arguments = vec![
-        "grid",
-        case.to_str().unwrap(),
-        "--rows",
-        "market.risk_free_rate=0.01..0.03:0.01",
-        "--cols",
-        "target.debt_to_equity=0..0.5:0.5",
-        "--csv",
-        csv.to_str().unwrap(),
-    ];
-    arguments.extend(rate);
-    let output = hurdle(&arguments);
+    let output = grid_to_csv(
+        &case,
+        [
+            "market.risk_free_rate=0.01..0.03:0.01",
+            "target.debt_to_equity=0..0.5:0.5",
+        ],
+        &csv,
+        &rate,
+    );
     assert!(output.status.success(), "{}", text(&output));
     let refused_run = hurdle(&[
         "run",
