@@ -53,6 +53,7 @@ pub(super) fn counts_and_notes(
     notes.extend(no_industry_note(securities));
     notes.extend(placeholder_industries_note(securities));
     notes.extend(label_twins_note(securities));
+    notes.extend(encoded_twins_note(inputs.panel.securities()));
     let counts = counts(securities, strays.len());
     let method = inputs.universe.settings.beta.method;
     notes.extend(flagged_notes(
@@ -499,6 +500,36 @@ pub(crate) fn first_ids(ids: &[&str]) -> String {
     format!("{}{more}", shown.join(", "))
 }
 
+/// A note on panel ids that differ only in how their accented letters are encoded (é as one
+/// character or as e and a combining accent; Unicode's canonical composition, NFC, makes them
+/// one text): ids are matched exactly, so each is a security of its own (found by review: two
+/// such ids were listed as two securities with no word said). Only ids beyond ASCII can differ
+/// so.
+fn encoded_twins_note(ids: &[String]) -> Option<String> {
+    use unicode_normalization::UnicodeNormalization;
+    let mut by_text: BTreeMap<String, Vec<&str>> = BTreeMap::new();
+    for id in ids.iter().filter(|id| !id.is_ascii()) {
+        by_text.entry(id.nfc().collect()).or_default().push(id);
+    }
+    let twins: Vec<String> = (by_text.values())
+        .filter(|group| group.len() > 1)
+        .map(|group| {
+            group
+                .iter()
+                .map(|id| format!("{id:?}"))
+                .collect::<Vec<_>>()
+                .join(" and ")
+        })
+        .collect();
+    (!twins.is_empty()).then(|| {
+        format!(
+            "Panel ids that differ only in how accented letters are encoded are separate \
+             securities, as ids are matched exactly: {}; write each id one way in every file.",
+            twins.join("; ")
+        )
+    })
+}
+
 /// A note on industry labels that differ only in capitals or surrounding spaces ("Alpha Works"
 /// and "alpha works"): labels are used as written, so each is an industry of its own, which
 /// is seldom meant (found by review: split silently, while ids that differ so are noted).
@@ -511,10 +542,9 @@ fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
     labels.dedup();
     let mut by_key: BTreeMap<String, Vec<&str>> = BTreeMap::new();
     for label in labels {
-        by_key
-            .entry(label.trim().to_lowercase())
-            .or_default()
-            .push(label);
+        use unicode_normalization::UnicodeNormalization;
+        let key: String = label.trim().nfc().collect();
+        by_key.entry(key.to_lowercase()).or_default().push(label);
     }
     let twins: Vec<String> = (by_key.values())
         .filter(|group| group.len() > 1)
@@ -525,8 +555,9 @@ fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
         .collect();
     (!twins.is_empty()).then(|| {
         format!(
-            "Industry labels that differ only in capitals or spaces are separate industries, as \
-             labels are used as written: {}; write one label for one industry.",
+            "Industry labels that differ only in capitals, spaces or how accented letters are \
+             encoded are separate industries, as labels are used as written: {}; write one label \
+             for one industry.",
             twins.join("; ")
         )
     })
@@ -534,7 +565,7 @@ fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
 
 #[cfg(test)]
 mod tests {
-    use super::{case_twins, first_ids};
+    use super::{case_twins, encoded_twins_note, first_ids};
 
     // Three ids read as three: one holding a comma or a quote is quoted (Rust's escaping).
     #[test]
@@ -569,5 +600,22 @@ mod tests {
         let both = case_twins(&["socie\u{301}te\u{301}"], &panel);
         assert!(both.contains("in capitals, in how accented"), "{both}");
         assert_eq!(case_twins(&["S03"], &panel), "");
+    }
+
+    // Two ids that are one text under NFC (U+00E9, or e and U+0301) are named together; ASCII
+    // ids and ids that merely share letters are not.
+    #[test]
+    fn panel_ids_differing_only_in_encoding_are_named() {
+        let ids: Vec<String> = ["Soci\u{e9}t\u{e9}", "Socie\u{301}te\u{301}", "S01", "s01"]
+            .iter()
+            .map(|s| s.to_string())
+            .collect();
+        let note = encoded_twins_note(&ids).unwrap();
+        assert!(
+            // Rust's Debug quoting shows the combining accent as its escape.
+            note.contains("\"Soci\u{e9}t\u{e9}\" and \"Socie\\u{301}te\\u{301}\""),
+            "{note}"
+        );
+        assert_eq!(encoded_twins_note(&ids[2..]), None);
     }
 }
