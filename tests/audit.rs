@@ -1035,6 +1035,21 @@ fn exact_beta(report: &str) -> f64 {
         .unwrap_or_else(|_| panic!("no beta in `exact: {line}`"))
 }
 
+/// The demo run with `sets` (its result) and the relevered beta `hurdle implied --solve beta`
+/// finds for the claimed WACC `claim` under the same settings.
+fn implied_beta(sets: &[&str], claim: &str) -> (serde_json::Value, f64) {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let base = run_case(&case, &dir.path().join("base"), sets);
+    let case = case.to_str().unwrap();
+    let mut arguments = vec!["implied", case, "--wacc", claim, "--solve", "beta"];
+    arguments.extend(sets);
+    let output = hurdle(&arguments);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    (base, exact_beta(&report))
+}
+
 /// What follows `exact: {prefix}` in the output of `hurdle implied`.
 fn exact_line<'a>(report: &'a str, prefix: &str) -> &'a str {
     report
@@ -2047,22 +2062,15 @@ fn implied_refuses_inputs_the_case_does_not_take_as_given() {
 // wD·Kd·(1 − t) with the base run's other figures, gives the claim; 1e-10 as above.
 #[test]
 fn implied_beta_moves_a_beta_scaled_country_premium() {
-    let (dir, case_dir) = demo_copy();
-    let case = case_dir.join("case.toml");
-    let case = case.to_str().unwrap();
-    let sets = [
-        "--set",
-        "premiums.country=0.02",
-        "--set",
-        "premiums.country_method=beta-scaled",
-    ];
-    let base = run_case(Path::new(case), &dir.path().join("base"), &sets);
-    let mut arguments = vec!["implied", case, "--wacc", "0.09", "--solve", "beta"];
-    arguments.extend(sets);
-    let output = hurdle(&arguments);
-    let report = text(&output);
-    assert_eq!(output.status.code(), Some(0), "{report}");
-    let beta = exact_beta(&report);
+    let (base, beta) = implied_beta(
+        &[
+            "--set",
+            "premiums.country=0.02",
+            "--set",
+            "premiums.country_method=beta-scaled",
+        ],
+        "0.09",
+    );
     let tax = number(&base, "target.tax_rate");
     let wacc = number(&base, "weights.equity")
         * (number(&base, "risk_free_rate")
@@ -2078,26 +2086,19 @@ fn implied_beta_moves_a_beta_scaled_country_premium() {
 // wP·Kp + wL·KL·(1 − t), the base run's other figures), gives the claim. 1e-10 as above.
 #[test]
 fn implied_beta_counts_preferred_equity_and_leases() {
-    let (dir, case_dir) = demo_copy();
-    let case = case_dir.join("case.toml");
-    let case = case.to_str().unwrap();
-    let sets = [
-        "--set",
-        "preferred.weight=0.05",
-        "--set",
-        "preferred.cost=0.07",
-        "--set",
-        "leases.weight=0.05",
-        "--set",
-        "leases.cost_pre_tax=0.06",
-    ];
-    let base = run_case(Path::new(case), &dir.path().join("base"), &sets);
-    let mut arguments = vec!["implied", case, "--wacc", "0.091", "--solve", "beta"];
-    arguments.extend(sets);
-    let output = hurdle(&arguments);
-    let report = text(&output);
-    assert_eq!(output.status.code(), Some(0), "{report}");
-    let beta = exact_beta(&report);
+    let (base, beta) = implied_beta(
+        &[
+            "--set",
+            "preferred.weight=0.05",
+            "--set",
+            "preferred.cost=0.07",
+            "--set",
+            "leases.weight=0.05",
+            "--set",
+            "leases.cost_pre_tax=0.06",
+        ],
+        "0.091",
+    );
     let tax = number(&base, "target.tax_rate");
     let wacc = number(&base, "weights.equity")
         * (number(&base, "risk_free_rate")

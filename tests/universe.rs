@@ -2389,9 +2389,9 @@ fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
     );
 }
 
-// Market values saved as a spreadsheet shows them where a point separates thousands, a point between
-// the thousands (`1.500` for 1,500), beside values under a thousand without one (`750`): read as
-// written, the large ones are a thousandth of their value. The run goes on (three decimals
+// Market values saved as a spreadsheet shows them where a point separates thousands (`1.500`
+// for 1,500), beside values under a thousand without one (`750`): read as written, the large
+// ones are a thousandth of their value. The run goes on (three decimals
 // beside whole figures can be meant) but the summary's notes say what the points may be.
 #[test]
 fn thousands_separators_in_the_attributes_are_noted() {
