@@ -398,6 +398,34 @@ fn a_long_file_grouped_by_security_gives_the_same_tables_as_any_order() {
     assert_same_tables(&out, &shuffled, &tables, "with rolling betas");
 }
 
+// Dates written with a time of day, as exports stamp a close (ISO 8601: `T16:30:00Z`, a space
+// and `16:30`, an offset), are read by their date, as a price file of its own reads them: the
+// tables are byte for byte those of the plain dates (the date as written is the trading day).
+#[test]
+fn a_long_panel_with_date_times_gives_the_tables_of_its_dates() {
+    let setup = Setup::new();
+    let text = fs::read_to_string(setup.dir().join("prices-long.csv")).unwrap();
+    let stamps = ["T16:30:00Z", " 16:30", "T23:00:00-05:00"];
+    let body: String = text
+        .lines()
+        .skip(1)
+        .enumerate()
+        .map(|(k, line)| {
+            let (date, rest) = line.split_once(',').unwrap();
+            format!("{date}{},{rest}\n", stamps[k % stamps.len()])
+        })
+        .collect();
+    fs::write(
+        setup.dir().join("stamped.csv"),
+        format!("date,security,close\n{body}"),
+    )
+    .unwrap();
+    let plain = setup.succeeds("plain", &[]);
+    let stamped = setup.succeeds("stamped", &["panel.prices=stamped.csv"]);
+    let tables = ["securities.csv", "industries.csv"];
+    assert_same_tables(&stamped, &plain, &tables, "dates with a time of day");
+}
+
 /// Asserts that the files `names` are byte-identical in two output folders (`why` says which
 /// runs they are, for the message).
 fn assert_same_tables(a: &Path, b: &Path, names: &[&str], why: &str) {

@@ -272,12 +272,20 @@ impl Source {
     }
 }
 
-/// Parses an ISO 8601 calendar date `YYYY-MM-DD` (surrounding spaces allowed).
+/// Parses an ISO 8601 calendar date `YYYY-MM-DD` (surrounding spaces allowed), or a date-time
+/// read by its date as a price file's cell is (`2024-09-30T16:30Z`, `2024-09-30 16:30:00`: the
+/// time and zone are checked for their form and ignored, the date as written is the trading day).
 pub(crate) fn parse_iso_date(text: &str) -> Option<NaiveDate> {
     let bytes = text.as_bytes();
     if bytes.len() != 10 {
         let trimmed = text.trim();
-        return (trimmed.len() == 10).then(|| parse_iso_date(trimmed))?;
+        return match trimmed.len() {
+            10 => parse_iso_date(trimmed),
+            11.. => {
+                parse_iso_date(trimmed.get(..10)?).and(crate::io::tables::iso_date_time(trimmed))
+            }
+            _ => None,
+        };
     }
     let digits = |range: std::ops::Range<usize>| {
         bytes[range].iter().try_fold(0_u32, |value, &b| {
@@ -428,7 +436,19 @@ mod tests {
     fn iso_dates_parse_and_impossible_ones_do_not() {
         assert_eq!(parse_iso_date("2024-02-29"), Some(date("2024-02-29")));
         assert_eq!(parse_iso_date(" 2026-09-30 "), Some(date("2026-09-30")));
+        // ISO 8601 date-times by their date, as a price file of its own reads them.
+        for time in [
+            "2026-09-30T16:30Z",
+            "2026-09-30 16:30:05",
+            "2026-09-30T23:00:00-05:00",
+        ] {
+            assert_eq!(parse_iso_date(time), Some(date("2026-09-30")), "{time}");
+        }
         for bad in [
+            "2023-02-29T16:30",
+            "2026-09-30T25:00",
+            "2026-9-30T16:30:00",
+            "2026-09-30 noon",
             "2023-02-29",
             "2026-13-01",
             "2026/09/30",
