@@ -77,7 +77,7 @@ pub fn generate_wide(seed: u64) -> Vec<(String, Vec<u8>)> {
 }
 
 /// The `date,value` rows of a generated per-file CSV, by date, as text.
-fn cells(text: &str) -> BTreeMap<NaiveDate, String> {
+pub(crate) fn cells(text: &str) -> BTreeMap<NaiveDate, String> {
     text.lines()
         .skip(1)
         .filter_map(|line| line.split_once(','))

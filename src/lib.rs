@@ -12,7 +12,8 @@
 //! panel estimated, unlevered and tabulated by industry) → [`audit`] (sensitivity, Monte Carlo,
 //! verify, implied, bridge) → [`report`] (memo, JSON, CSV, workbook, charts, HTML report, number
 //! formatting). Wide price tables (CSV, Parquet, workbooks) are read in [`io::tables`] and named
-//! in a case's `[sources]`. [`demo`] and [`demo_wide`] generate the invented demo case. No module
+//! in a case's `[sources]`. [`demo`] and [`demo_wide`] generate the invented demo case, [`demo_market`] an invented
+//! market around its peers for `hurdle universe`. No module
 //! imports one to its right.
 
 pub mod audit;
@@ -20,6 +21,7 @@ pub mod beta;
 pub mod capital;
 pub mod case;
 pub mod demo;
+pub mod demo_market;
 pub mod demo_wide;
 pub mod error;
 pub mod estimate;

@@ -1,16 +1,19 @@
 //! `hurdle-demo-data [CASE_DIR]`: writes the invented demo case (default `cases/quillmarsh`)
 //! from the seeded generator in `hurdle::demo`, and the same case in wide-table form (one price
-//! table, CSV and workbook) beside it in `CASE_DIR-wide`, and prints the true betas it used.
+//! table, CSV and workbook) beside it in `CASE_DIR-wide`, an invented market around its peers
+//! for `hurdle universe` in `CASE_DIR-market` (`hurdle::demo_market`), and prints the true betas
+//! it used.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
 
 use hurdle::demo::{generate, PEERS, SEED};
+use hurdle::demo_market::generate_market;
 use hurdle::demo_wide::generate_wide;
 use hurdle::report::format::fixed;
 
 const USAGE: &str = "usage: hurdle-demo-data [CASE_DIR]  (default cases/quillmarsh; also writes \
-CASE_DIR-wide)";
+CASE_DIR-wide and CASE_DIR-market)";
 
 fn main() -> ExitCode {
     let mut args = std::env::args_os().skip(1);
@@ -38,12 +41,20 @@ fn main() -> ExitCode {
     let mut wide_dir = dir.clone().into_os_string();
     wide_dir.push("-wide");
     let wide_dir = PathBuf::from(wide_dir);
+    let mut market_dir = dir.clone().into_os_string();
+    market_dir.push("-market");
+    let market_dir = PathBuf::from(market_dir);
     // Each folder's files as one group, through the writer every command uses.
     let per_file: Vec<(String, Vec<u8>)> = generate(SEED)
         .into_iter()
         .map(|(relative, text)| (relative, text.into_bytes()))
         .collect();
-    for (folder, files) in [(&dir, per_file), (&wide_dir, generate_wide(SEED))] {
+    let groups = [
+        (&dir, per_file),
+        (&wide_dir, generate_wide(SEED)),
+        (&market_dir, generate_market(SEED)),
+    ];
+    for (folder, files) in groups {
         if let Err(error) = hurdle::report::staging::write_outputs(folder, &files, &[]) {
             eprintln!("error: {error}");
             return ExitCode::from(2);
@@ -51,6 +62,11 @@ fn main() -> ExitCode {
     }
     println!("wrote the demo case to {} (seed {SEED})", dir.display());
     println!("wrote it in wide-table form to {}", wide_dir.display());
+    println!(
+        "wrote an invented market around its peers to {} (hurdle universe {})",
+        market_dir.display(),
+        market_dir.join("universe.toml").display()
+    );
     println!("{:<24} {:>10} {:>11}", "peer", "true βL", "true βU");
     for peer in &PEERS {
         println!(
