@@ -26,6 +26,9 @@ pub struct Summary {
     pub trimmed_each_end: usize,
     /// Weighted by equity value, over the securities that have one (`None` if none has).
     pub market_cap_weighted_mean: Option<f64>,
+    /// How many securities the market-cap-weighted mean rests on: those with an equity value
+    /// (fewer than the count of values when some levered betas lack one).
+    pub market_cap_weighted_count: usize,
     /// Weighted by the value of what the beta measures (`None` for levered betas, or if no
     /// security has the weight): equity plus debt for unlevered betas (a portfolio of the
     /// firms' assets; less cash under net debt, whose unlevered beta has netted it), equity plus
@@ -76,6 +79,9 @@ pub struct IndustryResult {
     /// Σ debt / Σ equity value over the same securities as the median D/E (the D/E of the
     /// industry as one portfolio; computed as their D/E weighted by equity value).
     pub aggregate_debt_to_equity: Option<f64>,
+    /// The median tax rate of the aggregated securities that have one: with the median D/E, the
+    /// structure at which an industry's unlevered beta relevers to a levered beta typical of it.
+    pub median_tax_rate: Option<f64>,
     /// Unlevered betas under `leverage.formula`.
     pub unlevered: Option<Summary>,
     /// The betas of the operations, βU / (1 − cash / (equity + debt)).
@@ -169,6 +175,7 @@ pub(super) fn industry_row(
         },
         median_debt_to_equity,
         aggregate_debt_to_equity,
+        median_tax_rate: median(aggregated.iter().filter_map(|s| s.tax_rate)),
         unlevered_beta: chosen.as_ref().and_then(|s| s.select(leverage.aggregation)),
         unlevered,
         operations,
@@ -220,14 +227,19 @@ fn operations_value(s: &SecurityResult) -> Option<f64> {
 /// The median D/E of the aggregated securities that have one, and their D/E as one portfolio
 /// (Σ debt / Σ equity value, as their D/E weighted by equity value).
 fn debt_to_equity(aggregated: &[&SecurityResult]) -> (Option<f64>, Option<f64>) {
-    let ratios: Vec<f64> = aggregated.iter().filter_map(|s| s.debt_to_equity).collect();
     let (weighted, equity): (Vec<f64>, Vec<f64>) = (aggregated.iter())
         .filter_map(|s| Some((s.debt_to_equity?, s.equity_value?)))
         .unzip();
     (
-        (!ratios.is_empty()).then(|| stats::dispersion(&ratios).median),
+        median(aggregated.iter().filter_map(|s| s.debt_to_equity)),
         (!equity.is_empty()).then(|| stats::weighted_mean(&weighted, &equity)),
     )
+}
+
+/// The median of `values` (`None` for none), as every industry median is taken.
+fn median(values: impl Iterator<Item = f64>) -> Option<f64> {
+    let values: Vec<f64> = values.collect();
+    (!values.is_empty()).then(|| stats::dispersion(&values).median)
 }
 
 /// A figure and its weight.
@@ -258,6 +270,7 @@ fn summarise(
         trimmed_mean,
         trimmed_each_end,
         market_cap_weighted_mean: weighted(by_equity),
+        market_cap_weighted_count: by_equity.len(),
         value_weighted_mean: weighted(by_value),
         median_interval: stats::median_interval(&sorted, 0.95),
     })

@@ -259,6 +259,8 @@ def securities(config, folder):
             cash = number(a[attrs["cash_column"]]) if "cash_column" in attrs else None
             tax = number(a[attrs.get("tax_rate_column", "tax_rate")])
             row["equity"] = equity
+            if tax is not None:
+                row["tax_rate"] = tax
             # Value weights (README, industries.csv): equity plus gross debt for the unlevered
             # betas, less cash for the betas of the operations.
             if equity is not None and debt is not None:
@@ -314,6 +316,8 @@ def summary(values, weights, prefix, trim, value_weights=None):
         f"std_dev_{prefix}": np.std(v, ddof=1) if len(v) > 1 else None,
         f"trimmed_mean_{prefix}": stats.trim_mean(v, trim),
     })
+    # README, industries.csv: the market-cap-weighted mean rests on the values with an equity value.
+    out[f"market_cap_weighted_{prefix}_count"] = len(weights)
     if weights:
         wv, ww = zip(*weights)
         out[f"market_cap_weighted_{prefix}"] = np.average(wv, weights=ww)
@@ -371,6 +375,9 @@ def industries(config, rows):
         ratios = [r["debt_to_equity"] for r in estimated if "debt_to_equity" in r]
         if ratios:
             figures["median_debt_to_equity"] = np.median(ratios)
+        taxes = [r["tax_rate"] for r in estimated if "tax_rate" in r]
+        if taxes:
+            figures["median_tax_rate"] = np.median(taxes)
             # The industry as one portfolio: sum of debt (net of cash under net debt) over sum
             # of equity values, over the same securities.
             debt = sum(r["debt_to_equity"] * r["equity"] for r in estimated if "debt_to_equity" in r)

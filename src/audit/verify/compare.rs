@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 4] = [
+const ADDED_IN: [(&str, &[&str]); 5] = [
     (
         "0.3.0",
         &[
@@ -82,6 +82,21 @@ const ADDED_IN: [(&str, &[&str]); 4] = [
             "peer_set.figures.operations.median_interval",
             "peer_set.figures.unlevered.value_weighted_mean",
             "peer_set.figures.operations.value_weighted_mean",
+        ],
+    ),
+    (
+        "0.9.0",
+        &[
+            "industries[].median_tax_rate",
+            "industries[].levered.market_cap_weighted_count",
+            "industries[].shrunk.market_cap_weighted_count",
+            "industries[].unlevered.market_cap_weighted_count",
+            "industries[].operations.market_cap_weighted_count",
+            "peer_set.figures.median_tax_rate",
+            "peer_set.figures.levered.market_cap_weighted_count",
+            "peer_set.figures.shrunk.market_cap_weighted_count",
+            "peer_set.figures.unlevered.market_cap_weighted_count",
+            "peer_set.figures.operations.market_cap_weighted_count",
         ],
     ),
 ];

@@ -365,6 +365,11 @@ fn summary_columns(
         rows.iter()
             .map(|r| pick(r).and_then(|s| s.market_cap_weighted_mean)),
     );
+    t.count(
+        &format!("market_cap_weighted_{stem}_count"),
+        rows.iter()
+            .map(|r| Some(pick(r).map_or(0, |s| s.market_cap_weighted_count))),
+    );
     if value_weighted {
         t.number(
             &format!("value_weighted_{stem}"),
@@ -435,6 +440,7 @@ fn industries_frame(rows: &[IndustryResult], adjusted: bool) -> Result<DataFrame
         "aggregate_debt_to_equity",
         rows.iter().map(|r| r.aggregate_debt_to_equity),
     );
+    t.number("median_tax_rate", rows.iter().map(|r| r.median_tax_rate));
     summary_columns(&mut t, rows, ("unlevered_beta", true), |r| {
         r.unlevered.as_ref()
     });
