@@ -711,6 +711,52 @@ fn refused(edit: impl FnOnce(&Path), sets: &[&str], expected: &[&str]) {
     assert!(!setup.out("out").exists(), "an output folder was written");
 }
 
+// An attributes table that matches no panel id leaves every security without an industry: the
+// run is refused naming both files' ids (found by review: it ended with exit 0 and an empty
+// industry table). Ids that match but for capitals, or for the leading zeros a column of ids
+// stored as numbers loses, are named as such; a table of a header alone says it has no rows.
+#[test]
+fn attributes_that_match_no_panel_id_are_refused() {
+    refused(
+        |dir| {
+            edit_attributes(dir, "security", |cells, at| {
+                Some(cells[at("security")].to_lowercase())
+            });
+        },
+        &[],
+        &[
+            "attributes.csv: none of its 20 security ids (s01, s02,",
+            "is a security of the panel prices-long.csv (S01, S02,",
+            "differing only in capitals (S01 for s01,",
+            "the ids are read from the column `security`",
+        ],
+    );
+    refused(
+        |dir| {
+            edit_attributes(dir, "security", |cells, at| {
+                Some(cells[at("security")].replace('S', "0001"))
+            });
+            let panel = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+            fs::write(dir.join("prices-long.csv"), panel.replace(",S", ",1")).unwrap();
+        },
+        &[],
+        &[
+            "none of its 20 security ids (000101, 000102,",
+            "differing only in leading zeros (101 for 000101, 102 for 000102,",
+            "store ids as text",
+        ],
+    );
+    refused(
+        |dir| {
+            let text = fs::read_to_string(dir.join("attributes.csv")).unwrap();
+            let header = text.lines().next().unwrap().to_string();
+            fs::write(dir.join("attributes.csv"), header + "\n").unwrap();
+        },
+        &[],
+        &["attributes.csv: holds no rows below its header"],
+    );
+}
+
 /// Replaces line `line` (1-based, header = 1) of a file.
 fn replace_line(path: &Path, line: usize, with: &str) -> String {
     let text = fs::read_to_string(path).unwrap();

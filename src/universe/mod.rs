@@ -353,6 +353,7 @@ pub fn evaluate(
         rolling,
     );
     check_overlap(inputs, &estimation)?;
+    check_attributes_match(inputs)?;
     let panel = &inputs.panel;
     let estimates = estimate_all(panel, &estimation, early, progress)?;
     let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
@@ -458,6 +459,39 @@ fn check_overlap(inputs: &UniverseInputs, estimation: &Estimation) -> Result<()>
             window.start(),
             window.end()
         ),
+    })
+}
+
+/// An attributes table none of whose ids is a panel security (or with no rows at all) leaves
+/// every security without an industry: an input error, not an empty industry table (found by
+/// review: such a run ended with exit 0 and a header-only industries.csv). The message names
+/// both files' first ids and, where they match but for capitals, accents' encoding or leading
+/// zeros, says so.
+fn check_attributes_match(inputs: &UniverseInputs) -> Result<()> {
+    let (attributes, panel) = (&inputs.attributes, inputs.panel.securities());
+    if panel.iter().any(|id| attributes.get(id).is_some()) {
+        return Ok(());
+    }
+    let ids: Vec<&str> = (attributes.records().iter())
+        .map(|r| r.security.as_str())
+        .collect();
+    let message = match ids.len() {
+        0 => "holds no rows below its header: a security enters an industry through its row \
+              (industry, equity value, debt, tax rate)"
+            .to_string(),
+        n => format!(
+            "none of its {n} security ids ({}) is a security of the panel {} ({}){}; the ids \
+             are read from the column `{}`",
+            notes::first_ids(&ids),
+            inputs.panel.file.path,
+            notes::first_ids(&panel.iter().map(String::as_str).collect::<Vec<_>>()),
+            notes::case_twins(&ids, panel),
+            inputs.universe.settings.attributes.security_column
+        ),
+    };
+    Err(Error::DataFile {
+        file: inputs.universe.resolve(&attributes.file.path),
+        message,
     })
 }
 

@@ -155,40 +155,59 @@ fn no_industry_note(securities: &[SecurityResult]) -> Option<String> {
     })
 }
 
-/// ". The panel's SEC0100 differs from sec0100 only in capitals: ids are matched exactly"
-/// for attribute ids without prices that a panel id matches but for case (an export that
-/// changed capitals), else nothing.
-fn case_twins(strays: &[&str], panel: &[String]) -> String {
+/// ". The panel holds an id differing only in capitals (SEC0100 for sec0100): ids are matched
+/// exactly, …" for attribute ids without prices that a panel id matches but for capitals, for
+/// how accented letters are encoded, or for leading zeros (an export that changed capitals, or a
+/// column of ids stored as numbers), else nothing.
+pub(super) fn case_twins(strays: &[&str], panel: &[String]) -> String {
     use unicode_normalization::UnicodeNormalization;
-    // Capitals aside and accented letters composed (NFC, Unicode Standard Annex #15): é as one
-    // character or as e and a combining accent (found by review: such twins were not named).
-    let key = |id: &str| id.nfc().collect::<String>().to_lowercase();
+    // Leading zeros aside (a column of ids stored as numbers loses them: 000101 becomes 101;
+    // found by review), capitals aside and accented letters composed (NFC, Unicode Standard
+    // Annex #15): é as one character or as e and a combining accent.
+    let unpadded = |id: &str| id.trim_start_matches('0').to_string();
+    let key = |id: &str| unpadded(id).nfc().collect::<String>().to_lowercase();
     let lower: std::collections::HashMap<String, &str> =
         panel.iter().map(|id| (key(id), id.as_str())).collect();
     let twins: Vec<(&str, &str)> = (strays.iter())
         .filter_map(|s| Some((*lower.get(&key(s))?, *s)))
         .collect();
-    let pairs: Vec<String> = twins.iter().map(|(p, s)| format!("{p} for {s}")).collect();
-    // Each pair differs in capitals alone, in encoding alone, or in both (found by review: a
-    // pair differing in both was said to differ in encoding only).
-    let capitals_only = |(p, s): &(&str, &str)| p.to_lowercase() == s.to_lowercase();
-    let encoding_only = |(p, s): &(&str, &str)| p.nfc().eq(s.nfc());
-    let how = if twins.iter().all(capitals_only) {
-        "in capitals"
-    } else if twins.iter().all(encoding_only) {
-        "in how accented letters are encoded"
-    } else {
-        "in capitals, in how accented letters are encoded, or in both"
-    };
-    match pairs.len() {
-        0 => String::new(),
-        n => format!(
-            ". The panel holds {} differing only {how} ({}): ids are matched exactly, so write \
-             them alike in both files",
-            if n == 1 { "an id" } else { "ids" },
-            first_ids(&pairs.iter().map(String::as_str).collect::<Vec<_>>())
-        ),
+    if twins.is_empty() {
+        return String::new();
     }
+    let pairs: Vec<String> = twins.iter().map(|(p, s)| format!("{p} for {s}")).collect();
+    // What separates each pair, over all pairs (found by review: a pair differing in capitals
+    // and in encoding was said to differ in encoding only).
+    let differs = |test: &dyn Fn(&str, &str) -> bool| {
+        (twins.iter()).any(|(p, s)| test(&unpadded(p), &unpadded(s)))
+    };
+    let leading = |id: &str| id.len() - id.trim_start_matches('0').len();
+    let zeros = (twins.iter()).any(|(p, s)| leading(p) != leading(s));
+    let kinds: Vec<&str> = [
+        (differs(&|p, s| !p.nfc().eq(s.nfc())), "in capitals"),
+        (
+            differs(&|p, s| p.to_lowercase() != s.to_lowercase()),
+            "in how accented letters are encoded",
+        ),
+        (zeros, "in leading zeros"),
+    ]
+    .into_iter()
+    .filter_map(|(found, kind)| found.then_some(kind))
+    .collect();
+    let how = match kinds.as_slice() {
+        [one] => one.to_string(),
+        [first, second] => format!("{first}, {second}, or in both"),
+        _ => format!("{}, or in several", kinds.join(", ")),
+    };
+    let zeros_advice = match zeros {
+        true => " (a column of ids stored as numbers loses its leading zeros: store ids as text)",
+        false => "",
+    };
+    format!(
+        ". The panel holds {} differing only {how} ({}): ids are matched exactly, so write them \
+         alike in both files{zeros_advice}",
+        if pairs.len() == 1 { "an id" } else { "ids" },
+        first_ids(&pairs.iter().map(String::as_str).collect::<Vec<_>>())
+    )
 }
 
 /// The notes on securities that are aggregated although they carry a flag (none is listed in
@@ -600,6 +619,19 @@ mod tests {
         let both = case_twins(&["socie\u{301}te\u{301}"], &panel);
         assert!(both.contains("in capitals, in how accented"), "{both}");
         assert_eq!(case_twins(&["S03"], &panel), "");
+        // A column of ids stored as numbers loses its leading zeros: 000101 read as 101.
+        let panel = ["101".to_string(), "S02".to_string()];
+        let zeros = case_twins(&["000101"], &panel);
+        assert!(
+            zeros.contains("only in leading zeros (101 for 000101)")
+                && zeros.contains("store ids as text"),
+            "{zeros}"
+        );
+        let several = case_twins(&["000101", "s02"], &panel);
+        assert!(
+            several.contains("only in capitals, in leading zeros, or in both"),
+            "{several}"
+        );
     }
 
     // Two ids that are one text under NFC (U+00E9, or e and U+0301) are named together; ASCII
