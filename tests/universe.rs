@@ -833,7 +833,31 @@ fn a_duplicate_date_and_security_is_refused_naming_both_lines() {
             fs::write(dir.join("prices-long.csv"), text).unwrap();
         },
         &[],
-        &["prices-long.csv", "duplicate row", "lines 7 and"],
+        &[
+            "prices-long.csv",
+            "duplicate row",
+            "lines 7 and",
+            "the same price",
+            "twice: delete one of the rows",
+        ],
+    );
+    // Two prices for one day are both shown, in file order (found by review: the lines were
+    // named without the prices that differ).
+    refused(
+        |dir| {
+            let mut cells = panel_line(dir, 7);
+            cells[2] = "12345.5".to_string();
+            let mut text = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+            text.push_str(&(cells.join(",") + "\n"));
+            fs::write(dir.join("prices-long.csv"), &text).unwrap();
+        },
+        &[],
+        &[
+            "duplicate row",
+            "lines 7 and",
+            ": prices ",
+            " and 12345.5);",
+        ],
     );
 }
 

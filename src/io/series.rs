@@ -326,6 +326,23 @@ pub(crate) fn date_hint(cell: &str, date_column: &str) -> &'static str {
         "the header row is repeated here: delete this line"
     } else if digits(cell) && cell.len() == 5 {
         "a spreadsheet's serial day number: format the date column as yyyy-mm-dd before saving"
+    } else if parts.len() == 3
+        && parts.iter().all(|p| digits(p))
+        && parts[0].len() == 4
+        && parts[1..].iter().all(|p| p.len() <= 2)
+    {
+        // Year first but no such day (found by review: 2024-02-30 was told to write dates
+        // year first), or year first with slashes or points.
+        match (cell.as_bytes()[4], cell.len()) {
+            (b'-', 10) => {
+                "no such day: the month runs from 01 to 12 and the day within its month \
+                 (29 February only in a leap year)"
+            }
+            (b'-', _) => {
+                "write the month and the day with two digits each, YYYY-MM-DD (2023-03-31)"
+            }
+            _ => "write the date with hyphens, YYYY-MM-DD (2023-03-31)",
+        }
     } else if parts.len() == 3 && parts.iter().all(|p| digits(p)) && parts[0].len() <= 2 {
         "a day-first or month-first date: write dates year first (2023-03-31), for example by \
          formatting the date column as yyyy-mm-dd before saving"
@@ -430,6 +447,17 @@ mod tests {
     }
 
     // A blank line is a row without a date, named at its own line, after any fault above it.
+    #[test]
+    fn year_first_dates_that_do_not_read_get_their_own_advice() {
+        // The Gregorian calendar: 2023 is not a leap year, no month has 30 February.
+        for cell in ["2023-02-29", "2024-02-30", "2024-13-01"] {
+            assert!(date_hint(cell, "date").starts_with("no such day"), "{cell}");
+        }
+        assert!(date_hint("2024/01/31", "date").contains("with hyphens"));
+        assert!(date_hint("2024-1-31", "date").contains("two digits each"));
+        assert!(date_hint("31/01/2024", "date").contains("day-first or month-first"));
+    }
+
     #[test]
     fn a_blank_line_is_named_where_it_is() {
         let text = b"date,price\n2026-01-01,1\n\n2026-01-02,2\n";

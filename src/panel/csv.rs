@@ -473,9 +473,11 @@ pub(super) fn duplicate_error(
     };
     let message = match columns.layout {
         PanelLayout::Long => format!(
-            "duplicate row for security {} on {} (lines {lines}); each (date, security) pair \
-             may appear once",
-            duplicate.security, duplicate.date
+            "duplicate row for security {} on {} (lines {lines}: {}); each (date, security) \
+             pair may appear once",
+            duplicate.security,
+            duplicate.date,
+            duplicate.prices_text()
         ),
         PanelLayout::Wide => format!(
             "the date {} appears on more than one row (lines {lines}); a wide panel has one row \

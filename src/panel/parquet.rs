@@ -374,9 +374,11 @@ pub(super) fn duplicate_error(
     let rows = found.join(" and ");
     source.file_error(match columns.layout {
         PanelLayout::Long => format!(
-            "duplicate row for security {} on {} (rows {rows}); each (date, security) pair may \
-             appear once",
-            duplicate.security, duplicate.date
+            "duplicate row for security {} on {} (rows {rows}: {}); each (date, security) \
+             pair may appear once",
+            duplicate.security,
+            duplicate.date,
+            duplicate.prices_text()
         ),
         PanelLayout::Wide => format!(
             "the date {} appears on more than one row (rows {rows}); a wide panel has one row \

@@ -88,6 +88,19 @@ impl Default for Order {
 pub(crate) struct Duplicate {
     pub security: String,
     pub date: NaiveDate,
+    /// The two prices, in file order.
+    pub prices: [f64; 2],
+}
+
+impl Duplicate {
+    /// The two prices in words, for a message: "prices 12.5 and 12.75", or "the same price
+    /// 12.5 twice: delete one of the rows".
+    pub(crate) fn prices_text(&self) -> String {
+        match self.prices {
+            [a, b] if a == b => format!("the same price {a} twice: delete one of the rows"),
+            [a, b] => format!("prices {a} and {b}"),
+        }
+    }
 }
 
 /// The rows grouped by security: what [`Panel`] holds.
@@ -187,10 +200,11 @@ impl Rows {
                 let (d, p) = (&mut dates[rows.clone()], &mut prices[rows]);
                 if !d.windows(2).all(|w| w[0] < w[1]) {
                     sort_by_date(d, p, &mut scratch);
-                    if let Some(w) = d.windows(2).find(|w| w[0] == w[1]) {
+                    if let Some(k) = d.windows(2).position(|w| w[0] == w[1]) {
                         return Err(Duplicate {
                             security: names[id as usize].clone(),
-                            date: w[0],
+                            date: d[k],
+                            prices: [p[k], p[k + 1]],
                         });
                     }
                 }
