@@ -519,3 +519,43 @@ fn date_times_in_a_price_file_are_read_by_their_date() {
     assert_eq!(stamped["peers"][1]["beta"], plain["peers"][1]["beta"]);
     assert_eq!(stamped["files"][3]["rows"], plain["files"][3]["rows"]);
 }
+
+// Empty lines after the last row of a price, yield or spread-table file (a blank line, a
+// spreadsheet's row of commas, a line of spaces) are no rows: the run's figures are those of the
+// plain files (found by review: one extra line end stopped the run). README, "Price files".
+#[test]
+fn empty_lines_after_the_last_row_leave_every_figure_alone() {
+    let sandbox = common::Sandbox::new();
+    let plain_out = sandbox.root.path().join("plain");
+    let sets = ["debt.source=rating"];
+    let plain = common::run_case_with(&sandbox.path("case.toml"), &plain_out, &sets);
+    for (file, tail) in [
+        ("data/index.csv", "\n\n"),
+        ("data/risk_free.csv", ",\n"),
+        ("data/peers/brenvale.csv", "\r\n , \r\n"),
+        ("data/rating_spreads_invented.csv", ",\n"),
+    ] {
+        let text = sandbox.read(file);
+        sandbox.write(file, text + tail);
+    }
+    let padded_out = sandbox.root.path().join("padded");
+    let padded = common::run_case_with(&sandbox.path("case.toml"), &padded_out, &sets);
+    for figure in [
+        "wacc",
+        "cost_of_debt_pre_tax",
+        "beta.unlevered",
+        "peers.0.beta",
+    ] {
+        let at = |v: &serde_json::Value| {
+            figure
+                .split('.')
+                .fold(v, |v, key| match key.parse::<usize>() {
+                    Ok(i) => &v[i],
+                    Err(_) => &v[key],
+                })
+                .as_f64()
+                .unwrap()
+        };
+        assert_eq!(at(&padded), at(&plain), "{figure}");
+    }
+}

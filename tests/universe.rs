@@ -426,6 +426,27 @@ fn a_long_panel_with_date_times_gives_the_tables_of_its_dates() {
     assert_same_tables(&stamped, &plain, &tables, "dates with a time of day");
 }
 
+// Empty lines after the last row (a blank line, a spreadsheet's rows of commas, CRLF or not)
+// are no rows in the panel, the attributes and the index: the tables are byte for byte those of
+// the plain files (found by review: one extra line end stopped the run).
+#[test]
+fn empty_lines_after_the_last_row_are_no_rows() {
+    let setup = Setup::new();
+    let plain = setup.succeeds("plain", &[]);
+    for (file, tail) in [
+        ("prices-long.csv", "\n,,\n"),
+        ("attributes.csv", ",,,,,,\r\n\r\n"),
+        ("index.csv", "\n\n"),
+    ] {
+        let path = setup.dir().join(file);
+        let text = fs::read_to_string(&path).unwrap();
+        fs::write(&path, text + tail).unwrap();
+    }
+    let padded = setup.succeeds("padded", &[]);
+    let tables = ["securities.csv", "industries.csv"];
+    assert_same_tables(&padded, &plain, &tables, "empty lines after the last row");
+}
+
 /// Asserts that the files `names` are byte-identical in two output folders (`why` says which
 /// runs they are, for the message).
 fn assert_same_tables(a: &Path, b: &Path, names: &[&str], why: &str) {

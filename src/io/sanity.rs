@@ -322,6 +322,12 @@ pub fn first_bad_record(
 /// spread tables.
 pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> String {
     let shown: String = text.trim().chars().take(80).collect();
+    if shown.is_empty() {
+        // Found by review: a line of spaces was shown as an empty pair of backticks.
+        return format!(
+            "the line holds only white space, no fields (the header has {expected}): delete it"
+        );
+    }
     if fields < expected {
         return format!(
             "`{shown}` has {fields} fields but the header has {expected}; a row needs a field \
@@ -334,6 +340,23 @@ pub fn extra_fields_message(fields: usize, expected: usize, text: &str) -> Strin
          point and no thousands separator (43.7678, not 43,7678), and text holding a comma must \
          be quoted"
     )
+}
+
+/// `bytes` without the empty records at its end: blank lines and lines of nothing but commas
+/// and white space, which spreadsheets and some writers leave after the last row (found by
+/// review: one extra line end after the last row stopped a run). The last record keeps its line
+/// end; a file of nothing else becomes empty. Such lines between rows are still refused where
+/// they stand (`check_csv_shape`, the panel's and attributes' cell checks): a gap inside a table
+/// may be a file pasted together.
+pub fn without_trailing_empty_records(bytes: &[u8]) -> &[u8] {
+    let filler = |b: &u8| matches!(b, b'\n' | b'\r' | b',' | b' ' | b'\t');
+    let Some(last) = bytes.iter().rposition(|b| !filler(b)) else {
+        return &bytes[..0];
+    };
+    match memchr::memchr(b'\n', &bytes[last..]) {
+        Some(k) => &bytes[..last + k + 1],
+        None => bytes,
+    }
 }
 
 /// The shape of a CSV file before the reader sees it: UTF-8 text on every line, a comma as the
@@ -603,6 +626,12 @@ mod tests {
             "{message}"
         );
         assert_eq!(bad(b"a,b,c\n1,2,3,4\n").0, 1);
+        let (line, message) = bad(b"a,b,c\n1,2,3\n   \n");
+        assert_eq!(line, 2);
+        assert!(
+            message.starts_with("the line holds only white space"),
+            "{message}"
+        );
         // A byte-order mark before a quoted first name is no quote inside a field.
         assert_eq!(
             first_bad_record(b"\xEF\xBB\xBF\"a\",b,c\n1,2,3\n", 3, Some(3)),
@@ -676,6 +705,20 @@ mod tests {
 
     // A blank line is found by its line and first byte (after a BOM, in a CRLF file, after a
     // quoted line break); the end of the file after its last line break is not one.
+    #[test]
+    fn trailing_empty_records_are_cut_and_inner_ones_kept() {
+        let cut = |text: &[u8]| String::from_utf8(without_trailing_empty_records(text).to_vec());
+        assert_eq!(cut(b"a,b\n1,2\n\n\n").unwrap(), "a,b\n1,2\n");
+        assert_eq!(
+            cut(b"a,b\r\n1,2\r\n,\r\n , \r\n").unwrap(),
+            "a,b\r\n1,2\r\n"
+        );
+        assert_eq!(cut(b"a,b,c\n1,,\n,,\n").unwrap(), "a,b,c\n1,,\n");
+        assert_eq!(cut(b"a,b\n\n1,2").unwrap(), "a,b\n\n1,2");
+        assert_eq!(cut(b"a,b\n1,\"x\"\n\n").unwrap(), "a,b\n1,\"x\"\n");
+        assert_eq!(cut(b"\n,\n").unwrap(), "");
+    }
+
     #[test]
     fn csv_shape_finds_the_first_blank_line() {
         assert_eq!(shape(b"date,price\n2026-01-01,1.5\n"), "ok");

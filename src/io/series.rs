@@ -191,6 +191,8 @@ pub fn parse_series(
         file: file.to_path_buf(),
         message,
     };
+    // Empty lines after the last row are no rows (the file's hash is of every byte).
+    let bytes = super::sanity::without_trailing_empty_records(bytes);
     let blank = super::sanity::check_csv_shape(file, bytes, false)?;
     // The reader skips blank lines; polars, and people, see a row with empty cells there.
     let blank_row = |blank: super::sanity::BlankLine| Error::DataRow {
@@ -466,8 +468,13 @@ mod tests {
             error.contains("line 3") && error.contains("`date` = \"\""),
             "{error}"
         );
-        let trailing = parsed(b"date,price\n2026-01-01,1\n\n").unwrap_err();
-        assert!(trailing.contains("line 3"), "{trailing}");
+        // Empty lines after the last row, as some writers and spreadsheets leave them, are none.
+        for trailing in [
+            &b"date,price\n2026-01-01,1\n\n"[..],
+            b"date,price\n2026-01-01,1\n,\n,\n",
+        ] {
+            assert_eq!(parsed(trailing).unwrap().values, [1.0]);
+        }
         let earlier = parsed(b"date,price\n2026-01-01,x\n\n").unwrap_err();
         assert!(
             earlier.contains("line 2") && earlier.contains("\"x\""),

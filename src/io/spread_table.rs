@@ -137,9 +137,13 @@ fn parse_toml_table(text: &str, path: &Path) -> Result<Vec<SpreadRow>> {
 /// return alone is refused. Line by line (a spread table's cells hold no line breaks), so each
 /// row keeps its line whatever comments and blank lines come before it; the csv crate splits
 /// each line's cells (quoted cells, a trailing carriage return). Blank lines and lines starting
-/// with `#` are skipped.
+/// with `#` are skipped, and so are lines of nothing but commas after the last row.
 fn csv_records(text: &str, path: &Path) -> Result<Vec<(usize, csv::StringRecord)>> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    // Lines of nothing but commas after the last row are no rows (cut at a line end, so the
+    // text stays UTF-8).
+    let kept = super::sanity::without_trailing_empty_records(text.as_bytes()).len();
+    let text = &text[..kept];
     if let Some((line, column)) = super::sanity::first_lone_carriage_return(text.as_bytes()) {
         return Err(Error::DataRow {
             file: path.to_path_buf(),

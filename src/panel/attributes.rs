@@ -114,21 +114,23 @@ pub fn read_attributes(
     let mut whole_header = None;
     let frame = match format {
         TableFormat::Csv => {
-            let header = super::header::header(&source, &bytes)?;
-            if let Some((line, message)) = crate::io::encoding::first_non_utf8(&bytes) {
+            // Empty lines after the last row are no rows (the hash below is of every byte).
+            let bytes = crate::io::sanity::without_trailing_empty_records(&bytes);
+            let header = super::header::header(&source, bytes)?;
+            if let Some((line, message)) = crate::io::encoding::first_non_utf8(bytes) {
                 return Err(source.row_error(line.saturating_sub(1), message));
             }
             super::header::check_repeated_names(&source, &header, &used)?;
             let expected = header.len();
             let fewest = crate::io::sanity::fewest_fields(&header);
-            if let Some((record, message)) = first_bad_record(&bytes, expected, Some(fewest)) {
+            if let Some((record, message)) = first_bad_record(bytes, expected, Some(fewest)) {
                 return Err(source.row_error(record.saturating_sub(1), message));
             }
             CsvReadOptions::default()
                 .with_has_header(true)
                 // All text, so each number is parsed (and reported) here.
                 .with_infer_schema_length(Some(0))
-                .into_reader_with_file_handle(Cursor::new(&bytes[..]))
+                .into_reader_with_file_handle(Cursor::new(bytes))
                 .finish()
         }
         TableFormat::Parquet => {
