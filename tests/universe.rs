@@ -1386,6 +1386,45 @@ fn parquet_columns_of_types_hurdle_does_not_read_are_named() {
         assert_eq!(number(&row, "debt_to_equity"), debt / equity, "{id}");
         assert_eq!(number(&row, "tax_rate"), tax, "{id}");
     }
+    // A column of nothing but empty cells, typed as null by its writer, is all missing, as the
+    // same column in CSV is (found by review: it was refused as "null").
+    let out = setup.succeeds(
+        "blank",
+        &[
+            file,
+            "attributes.equity_value_column=market_cap_float",
+            "attributes.cash_column=cash_blank",
+        ],
+    );
+    let securities = read_table(&out.join("securities.csv"));
+    let row = security_row(&securities, "S01");
+    let missing = row.column("missing").unwrap().str().unwrap().get(0);
+    assert!(missing.unwrap_or("").contains("cash"), "{missing:?}");
+}
+
+// A wide Parquet panel's column without a single price, typed as text by a writer that saw no
+// value in it (polars' CSV reader does so), holds no security, as the same column in a CSV
+// panel does: the tables are those of the panel without it (found by review: it was refused
+// as "numbers stored as text").
+#[test]
+fn an_empty_wide_parquet_column_holds_no_security() {
+    let setup = Setup::new();
+    let wide = ["panel.prices=prices-wide.parquet", "panel.layout=wide"];
+    let plain = setup.succeeds("plain", &wide);
+    let path = setup.dir().join("prices-wide.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+        .finish()
+        .unwrap();
+    let empty = Column::full_null("S98".into(), frame.height(), &DataType::String);
+    frame.with_column(empty).unwrap();
+    ParquetWriter::new(fs::File::create(setup.dir().join("with-empty.parquet")).unwrap())
+        .finish(&mut frame)
+        .unwrap();
+    let out = setup.succeeds(
+        "with-empty",
+        &["panel.prices=with-empty.parquet", "panel.layout=wide"],
+    );
+    assert_same_tables(&out, &plain, &["securities.csv", "industries.csv"], "S98");
 }
 
 #[test]

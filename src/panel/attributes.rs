@@ -349,7 +349,7 @@ fn text(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
 /// [`text`] before the labels are checked.
 fn text_cells(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
     let name = column.name().to_string();
-    if !super::parquet::is_text_like(column.dtype()) {
+    if !super::parquet::is_text_like(column.dtype()) && !column.dtype().is_null() {
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not text labels",
             column.dtype()
@@ -439,7 +439,9 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
                 },
             )
             .collect::<Result<_>>()?
-    } else if column.dtype().is_primitive_numeric() {
+    } else if column.dtype().is_primitive_numeric() || column.dtype().is_null() {
+        // A column of nothing but empty cells, which a writer may type as null, is all missing,
+        // as the same column in CSV is (found by review: it was refused as "null").
         let cast = column
             .cast(&DataType::Float64)
             .map_err(|e| source.file_error(format!("column `{name}`: {e}")))?;

@@ -296,6 +296,12 @@ fn typed(
         DataType::String => is_text_like(column.dtype()),
         _ => column.dtype().is_primitive_numeric(),
     };
+    // A column of nothing but empty cells (typed as null, or as text by a writer that saw no
+    // value) is all gaps, as the same column in CSV is (found by review: it was refused as
+    // "numbers stored as text").
+    if !fits && column.null_count() == column.len() {
+        return Ok(Column::full_null(name.into(), column.len(), dtype));
+    }
     if !fits {
         // Text cells that all read as numbers (or none at all): a price column a writer typed
         // as text, as polars infers one whose first rows are empty (a late listing).
