@@ -18,7 +18,7 @@ use indicatif::{ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 use hurdle::report::format::{fixed, percent};
 use hurdle::report::universe::{estimated_count, excluded_by_flag, nonzero_counts, write_outputs};
 use hurdle::universe::settings::read_universe;
-use hurdle::universe::{evaluate, load_inputs, securities_count, UniverseResult};
+use hurdle::universe::{evaluate, first_ids, load_inputs, securities_count, UniverseResult};
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -178,8 +178,17 @@ fn summary(r: &UniverseResult) -> String {
     ];
     if let Some(p) = &r.peer_set {
         let shown = |x: Option<f64>| x.map_or("–".to_string(), |x| fixed(x, 3));
+        // Those listed but left out, by name (found by review: the line did not say).
+        let left_out = match p.left_out.as_slice() {
+            [] => String::new(),
+            ids => format!(
+                " ({} not estimated or excluded: {})",
+                ids.len(),
+                first_ids(&ids.iter().map(String::as_str).collect::<Vec<_>>())
+            ),
+        };
         lines.push(format!(
-            "  peer set: {} listed, {} {}; {} {}{}",
+            "  peer set: {} listed{left_out}, {} {}; {} {}{}",
             p.securities.len(),
             match r.settings.leverage.operations_beta {
                 true => "beta of the operations",

@@ -82,7 +82,7 @@ pub(super) fn read(
             let plan = plan.as_ref().expect("set by the first block");
             let frame = match parse(block, plan, first, quoted) {
                 Ok(frame) => frame,
-                Err(e) => trimmed_prices(block, plan, first, columns)
+                Err(e) => trimmed_prices(block, plan, first)
                     .ok_or_else(|| diagnose(source, block, first, next_row, plan, columns, &e))?,
             };
             check_unnamed(source, &plan.unnamed, &frame, next_row)?;
@@ -408,19 +408,21 @@ fn read_as_text(block: &[u8], plan: &Plan, has_header: bool) -> PolarsResult<Dat
 /// figures and a price file's cells are (found by review: a trailing space was refused and a
 /// leading one read). `None` when anything else is wrong (a cell that is no number once
 /// trimmed, a record of the wrong length, text that is not UTF-8), which [`diagnose`] names.
-fn trimmed_prices(
-    block: &[u8],
-    plan: &Plan,
-    has_header: bool,
-    columns: &PanelColumns,
-) -> Option<DataFrame> {
+fn trimmed_prices(block: &[u8], plan: &Plan, has_header: bool) -> Option<DataFrame> {
     if crate::io::encoding::first_non_utf8(block).is_some()
         || first_bad_record(block, plan.header.len(), None).is_some()
     {
         return None;
     }
     let mut frame = read_as_text(block, plan, has_header).ok()?;
-    for name in price_columns(plan, columns) {
+    // Every column the plan reads as numbers: the prices, and a wide panel's columns the header
+    // leaves unnamed (which must stay empty, `check_unnamed`).
+    let numeric: Vec<String> = (plan.schema.iter())
+        .filter(|(_, dtype)| dtype.is_float())
+        .map(|(name, _)| name.to_string())
+        .collect();
+    for name in &numeric {
+        let name = name.as_str();
         let cells = frame.column(name).ok()?.str().ok()?.clone();
         let prices: Float64Chunked = cells
             .iter()

@@ -16,6 +16,8 @@ pub mod peer_set;
 pub mod securities;
 pub mod settings;
 
+pub use notes::first_ids;
+
 use std::sync::Mutex;
 
 use chrono::NaiveDate;

@@ -345,14 +345,6 @@ pub(super) fn summary(r: &UniverseResult) -> String {
     for note in &r.notes {
         let _ = writeln!(out, "- {note}");
     }
-    let missing = nonzero_counts(&c.missing);
-    if !missing.is_empty() {
-        let _ = writeln!(
-            out,
-            "- Securities lacking a figure (flagged in securities.csv, left out of every \
-             aggregate that needs it, never filled in): {missing}."
-        );
-    }
     out.push_str(&cautions(r));
     out
 }
