@@ -1428,6 +1428,18 @@ fn parquet_columns_of_types_hurdle_does_not_read_are_named() {
     let row = security_row(&securities, "S01");
     let missing = row.column("missing").unwrap().str().unwrap().get(0);
     assert!(missing.unwrap_or("").contains("cash"), "{missing:?}");
+    // A 32-bit float is read by its shortest decimal, as written: S02's 750.1 (the double
+    // nearest the decimal, which Rust's parser and polars' CSV writer agree on), not the
+    // 750.0999755859375 the 32-bit value is exactly.
+    let out = setup.succeeds(
+        "f32",
+        &[file, "attributes.equity_value_column=market_cap_f32"],
+    );
+    let securities = read_table(&out.join("securities.csv"));
+    assert_eq!(
+        number(&security_row(&securities, "S02"), "equity_value"),
+        750.1
+    );
 }
 
 // A wide Parquet panel's column without a single price, typed as text by a writer that saw no

@@ -351,7 +351,8 @@ fn text_cells(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
     let name = column.name().to_string();
     if !super::parquet::is_text_like(column.dtype()) && !column.dtype().is_null() {
         return Err(source.file_error(format!(
-            "column `{name}` holds {}, not text labels",
+            "column `{name}` holds {}, not text labels: store it as text (ids may also be \
+             integers) when writing the Parquet file",
             column.dtype()
         )));
     }
@@ -442,14 +443,24 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
     } else if column.dtype().is_primitive_numeric() || column.dtype().is_null() {
         // A column of nothing but empty cells, which a writer may type as null, is all missing,
         // as the same column in CSV is (found by review: it was refused as "null").
-        let cast = column
-            .cast(&DataType::Float64)
-            .map_err(|e| source.file_error(format!("column `{name}`: {e}")))?;
-        cast.f64()
-            .expect("cast")
-            .iter()
-            .map(|v| (v, None))
-            .collect()
+        // A 32-bit float is read by its shortest decimal (600.1, not the 600.0999755859375 its
+        // exact value is; found by review), as the figure was written.
+        let shortest = |v: f32| v.to_string().parse::<f64>().unwrap_or(f64::from(v));
+        match column.dtype() {
+            DataType::Float32 => (column.f32().expect("a 32-bit float column").iter())
+                .map(|v| (v.map(shortest), None))
+                .collect(),
+            _ => {
+                let cast = column
+                    .cast(&DataType::Float64)
+                    .map_err(|e| source.file_error(format!("column `{name}`: {e}")))?;
+                cast.f64()
+                    .expect("cast")
+                    .iter()
+                    .map(|v| (v, None))
+                    .collect()
+            }
+        }
     } else {
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not numbers",

@@ -324,6 +324,12 @@ fn typed(
             }
             PanelLayout::Long => " (a Parquet panel stores its prices as numbers, not as text)",
         };
+        let hint = match dtype {
+            DataType::String => {
+                ": store the ids as text (or integers) when writing the Parquet file"
+            }
+            _ => hint,
+        };
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not {}{hint}",
             column.dtype(),
