@@ -91,12 +91,15 @@ fn read_blocks(
         let at_end = read < wanted;
         // One scan for quotes serves both the cut and the parse (a superset of the block).
         let quoted = memchr::memchr(b'"', &buffer).is_some();
-        let end = if at_end {
-            // Empty lines after the last row are no rows (the hash above is of every byte).
-            crate::io::sanity::without_trailing_empty_records(&buffer).len()
-        } else {
-            last_record_end_in(&buffer, quoted).unwrap_or(0)
+        // Empty lines after the last row are no rows (the hash above is of every byte): a
+        // block's own trailing empty lines wait in the carry for the next block, which either
+        // brings more rows (the lines were between rows, and are refused there) or ends the file
+        // (found by review: empty lines across a block's end were refused).
+        let whole = match at_end {
+            true => &buffer[..],
+            false => &buffer[..last_record_end_in(&buffer, quoted).unwrap_or(0)],
         };
+        let end = crate::io::sanity::without_trailing_empty_records(whole).len();
         carry.clear();
         carry.extend_from_slice(&buffer[end..]);
         buffer.truncate(end);

@@ -159,45 +159,50 @@ fn missing_note(securities: &[SecurityResult]) -> Option<String> {
     })
 }
 
-/// How far above or below its industry's median equity value a security's may lie before its
-/// units are in doubt: a factor of 100,000. A market's largest firms are rarely more than a
-/// few thousand times its industry's typical one, while an equity value given in units among
+/// How far apart the equity values of one industry's securities may lie before their units are
+/// in doubt: a factor of 100,000. A market's largest firms are rarely more than a few thousand
+/// times its industry's smallest listed ones, while an equity value given in units among
 /// figures in millions is a million times too large (a judgement; a case asks about peers
 /// 10,000 apart, a peer set being narrower than an industry).
 const UNITS_FACTOR: f64 = 1e5;
 
-/// The securities whose equity value lies more than [`UNITS_FACTOR`] from its industry's
-/// median: most often a figure in other units, which the market-cap weights and its D/E read
-/// as given (found by review: such a security carried its industry's weighted mean alone).
+/// The industries whose equity values span more than [`UNITS_FACTOR`], with their smallest and
+/// largest securities: most often figures in other units, which the market-cap weights and the
+/// D/E read as given (found by review: one given in units among figures in millions carried its
+/// industry's weighted mean alone; measured against the median instead, half an industry in
+/// other units named the wrong securities).
 fn units_note(securities: &[SecurityResult]) -> Option<String> {
-    let mut by_industry: BTreeMap<&str, Vec<f64>> = BTreeMap::new();
+    let mut by_industry: BTreeMap<&str, (&SecurityResult, &SecurityResult)> = BTreeMap::new();
     for s in securities {
-        if let (Some(industry), Some(equity)) = (&s.industry, s.equity_value) {
-            by_industry.entry(industry).or_default().push(equity);
+        let (Some(industry), Some(equity)) = (&s.industry, s.equity_value) else {
+            continue;
+        };
+        let ends = by_industry.entry(industry).or_insert((s, s));
+        if equity < ends.0.equity_value.unwrap_or(f64::INFINITY) {
+            ends.0 = s;
+        }
+        if equity > ends.1.equity_value.unwrap_or(0.0) {
+            ends.1 = s;
         }
     }
-    let medians: BTreeMap<&str, f64> = (by_industry.into_iter())
-        .filter(|(_, values)| values.len() >= 3)
-        .map(|(industry, values)| (industry, crate::stats::dispersion(&values).median))
+    let wide: Vec<String> = (by_industry.iter())
+        .filter_map(|(industry, (least, most))| {
+            let (low, high) = (least.equity_value?, most.equity_value?);
+            (high > UNITS_FACTOR * low).then(|| {
+                format!(
+                    "{industry} ({} {low} to {} {high})",
+                    first_ids(&[&least.security]),
+                    first_ids(&[&most.security])
+                )
+            })
+        })
         .collect();
-    let far = ids_where(securities, |s| {
-        let median = s.industry.as_deref().and_then(|i| medians.get(i));
-        match (median, s.equity_value) {
-            (Some(&m), Some(e)) => e > UNITS_FACTOR * m || e * UNITS_FACTOR < m,
-            _ => false,
-        }
-    });
-    (!far.is_empty()).then(|| {
+    (!wide.is_empty()).then(|| {
         format!(
-            "Check: {} an equity value more than 100,000 times above or below {} industry's \
-             median: are the attributes all in the same units (millions, say)? The \
-             market-cap weights and each D/E read them as given: {}",
-            match far.len() {
-                1 => "1 security has".to_string(),
-                n => format!("{n} securities have"),
-            },
-            if far.len() == 1 { "its" } else { "their" },
-            first_ids(&far)
+            "Check: equity values more than 100,000 times apart within an industry: are the \
+             attributes all in the same units (millions, say)? The market-cap weights and each \
+             D/E read them as given: {}",
+            wide.join("; ")
         )
     })
 }

@@ -375,14 +375,14 @@ def industries(config, rows):
         ratios = [r["debt_to_equity"] for r in estimated if "debt_to_equity" in r]
         if ratios:
             figures["median_debt_to_equity"] = np.median(ratios)
-        taxes = [r["tax_rate"] for r in estimated if "tax_rate" in r]
-        if taxes:
-            figures["median_tax_rate"] = np.median(taxes)
             # The industry as one portfolio: sum of debt (net of cash under net debt) over sum
             # of equity values, over the same securities.
             debt = sum(r["debt_to_equity"] * r["equity"] for r in estimated if "debt_to_equity" in r)
             equity = sum(r["equity"] for r in estimated if "debt_to_equity" in r)
             figures["aggregate_debt_to_equity"] = debt / equity
+        taxes = [r["tax_rate"] for r in estimated if "tax_rate" in r]
+        if taxes:
+            figures["median_tax_rate"] = np.median(taxes)
         stem = "operations_beta" if leverage.get("operations_beta") else "unlevered_beta"
         pick = {"median": "median", "mean": "mean", "trimmed-mean": "trimmed_mean",
                 "market-cap-weighted": "market_cap_weighted"}[leverage.get("aggregation", "median")]
