@@ -754,7 +754,7 @@ fn attributes_that_match_no_panel_id_are_refused() {
         &[],
         &[
             "attributes.csv: none of its 20 security ids (s01, s02,",
-            "is a security of the panel prices-long.csv (S01, S02,",
+            "/u/prices-long.csv (S01, S02,",
             "differing only in capitals (S01 for s01,",
             "the ids are read from the column `security`",
         ],

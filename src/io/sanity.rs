@@ -703,8 +703,8 @@ mod tests {
         );
     }
 
-    // A blank line is found by its line and first byte (after a BOM, in a CRLF file, after a
-    // quoted line break); the end of the file after its last line break is not one.
+    // Empty lines after the last row (blank, or only commas and white space, LF or CRLF) are
+    // cut, the last row keeping its line end; those between rows, and a quoted field, stay.
     #[test]
     fn trailing_empty_records_are_cut_and_inner_ones_kept() {
         let cut = |text: &[u8]| String::from_utf8(without_trailing_empty_records(text).to_vec());
@@ -719,6 +719,8 @@ mod tests {
         assert_eq!(cut(b"\n,\n").unwrap(), "");
     }
 
+    // A blank line is found by its line and first byte (after a BOM, in a CRLF file, after a
+    // quoted line break); the end of the file after its last line break is not one.
     #[test]
     fn csv_shape_finds_the_first_blank_line() {
         assert_eq!(shape(b"date,price\n2026-01-01,1.5\n"), "ok");

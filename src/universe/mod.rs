@@ -485,7 +485,7 @@ fn check_attributes_match(inputs: &UniverseInputs) -> Result<()> {
             "none of its {n} security ids ({}) is a security of the panel {} ({}){}; the ids \
              are read from the column `{}`",
             notes::first_ids(&ids),
-            inputs.panel.file.path,
+            inputs.universe.resolve(&inputs.panel.file.path).display(),
             notes::first_ids(&panel.iter().map(String::as_str).collect::<Vec<_>>()),
             notes::case_twins(&ids, panel),
             inputs.universe.settings.attributes.security_column

@@ -98,7 +98,28 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 8] = [
+const KNOWN_CHANGES: [KnownChange; 9] = [
+    KnownChange {
+        version: "0.9.0",
+        kind: "universe",
+        paths: &["industries", "securities", "peer_set"],
+        explain: |receipt, _| {
+            let path = receipt["files"]["attributes"]["path"]
+                .as_str()
+                .unwrap_or("");
+            let parquet = [".parquet", ".pq"]
+                .iter()
+                .any(|e| path.to_ascii_lowercase().ends_with(e));
+            parquet.then(|| {
+                "hurdle 0.9.0 reads a Parquet attributes figure stored as a 32-bit float by its \
+                 shortest decimal (600.1, where an earlier version read the float's exact value, \
+                 600.0999755859375): with such columns the D/E, unlevered betas and weighted \
+                 means move in about the ninth significant digit (README, Changelog, \"A demo \
+                 market, and the universe's inputs as exports write them\")"
+                    .to_string()
+            })
+        },
+    },
     KnownChange {
         version: "0.7.0",
         kind: "case",
@@ -293,6 +314,24 @@ mod tests {
             recomputed: json!(2),
             absent_from: None,
         }
+    }
+
+    // 0.9.0's reading of 32-bit floats is named for a universe receipt of an earlier version
+    // whose attributes file is Parquet and whose security figures differ; not for CSV
+    // attributes, a receipt of 0.9.0 or differences elsewhere.
+    #[test]
+    fn the_32_bit_float_change_is_named_for_parquet_attributes() {
+        let receipt = |path: &str| json!({"files": {"attributes": {"path": path}}});
+        let moved = mismatch("securities.debt_to_equity");
+        let found = |versions, path: &str, m: &Mismatch| {
+            known_changes("universe", versions, &[m], (&receipt(path), &json!({})))
+        };
+        let named = found(("0.8.0", "0.9.0"), "data/attributes.PARQUET", &moved);
+        assert_eq!(named.len(), 1);
+        assert!(named[0].starts_with("hurdle 0.9.0 reads a Parquet attributes figure"));
+        assert!(found(("0.8.0", "0.9.0"), "data/attributes.csv", &moved).is_empty());
+        assert!(found(("0.9.0", "0.9.0"), "a.parquet", &moved).is_empty());
+        assert!(found(("0.8.0", "0.9.0"), "a.pq", &mismatch("window.start")).is_empty());
     }
 
     // The change 0.4.0 made (README, Changelog, "Loose ends of the reviews") is named for a
