@@ -133,76 +133,72 @@ pub fn generate_market(seed: u64) -> Vec<(String, Vec<u8>)> {
         .collect();
     let mut attributes = String::from("security,industry,sector,market_cap,debt,cash,tax_rate\n");
     for peer in &PEERS {
+        // The case's own figures, as the case file holds them.
         writeln!(
             attributes,
-            "{},{PEER_INDUSTRY},Industrials,{:.2},{:.2},{:.2},{:.2}",
+            "{},{PEER_INDUSTRY},Industrials,{},{},{},{}",
             peer.name, peer.equity_value, peer.debt, peer.cash, peer.tax_rate
         )
         .expect("String write");
     }
     let mut rng = Rng::seeded(seed ^ 0x6d61_726b_6574);
-    let draw = |rng: &mut Rng, (low, high): (f64, f64)| low + (high - low) * rng.uniform();
     let mut k = 0;
     for industry in &INDUSTRIES {
         for _ in 0..industry.securities {
             k += 1;
-            let id = format!("DM-{k:03}");
-            let equity = (10.0_f64.powf(draw(&mut rng, (2.3, 3.9))) * 100.0).round() / 100.0;
-            let debt_to_equity = draw(&mut rng, industry.debt_to_equity);
-            let debt = (equity * debt_to_equity * 100.0).round() / 100.0;
-            let cash_share = match k {
-                CASH_HEAVY => 0.7,
-                _ => draw(&mut rng, industry.cash_share),
-            };
-            let cash = (equity * cash_share * 100.0).round() / 100.0;
-            let tax_rate = (draw(&mut rng, industry.tax_rate) * 100.0).round() / 100.0;
-            let equity_beta = Formula::Hamada.relever(
-                draw(&mut rng, industry.asset_beta),
-                CapitalStructure {
-                    debt_to_equity: debt / equity,
-                    tax_rate,
-                },
-            );
-            let model = Model {
-                equity_beta,
-                daily_alpha: draw(&mut rng, (-0.00003, 0.00003)),
-                daily_vol: draw(&mut rng, industry.daily_vol),
-                starting_price: draw(&mut rng, (5.0, 150.0)),
-                listed_from: (k == LATE_LISTING).then(|| day(2024, 11, 4)),
-                last_trade: (k == STOPS_EARLY).then(|| day(2026, 4, 30)),
-            };
-            prices.push((id.clone(), model.prices(&index, &yields, &mut rng)));
-            let tax = match k {
-                NO_TAX_RATE => String::new(),
-                _ => format!("{tax_rate:.2}"),
-            };
-            writeln!(
-                attributes,
-                "{id},{},{},{equity:.2},{debt:.2},{cash:.2},{tax}",
-                industry.label, industry.sector
-            )
-            .expect("String write");
+            let (id, row, model) = invented_security(k, industry, &mut rng);
+            prices.push((id, model.prices(&index, &yields, &mut rng)));
+            attributes.push_str(&row);
         }
     }
+    let file = |path: &str, text: String| (path.to_string(), text.into_bytes());
     vec![
-        (
-            "universe.toml".to_string(),
-            UNIVERSE_TOML.as_bytes().to_vec(),
-        ),
-        (
-            "data/panel.csv".to_string(),
-            panel(&index, &prices).into_bytes(),
-        ),
-        ("data/attributes.csv".to_string(), attributes.into_bytes()),
-        (
-            "data/index.csv".to_string(),
-            case["data/index.csv"].clone().into_bytes(),
-        ),
-        (
-            "data/risk_free.csv".to_string(),
-            case["data/risk_free.csv"].clone().into_bytes(),
-        ),
+        file("universe.toml", universe_toml(&case["case.toml"])),
+        file("data/panel.csv", panel(&index, &prices)),
+        file("data/attributes.csv", attributes),
+        file("data/index.csv", case["data/index.csv"].clone()),
+        file("data/risk_free.csv", case["data/risk_free.csv"].clone()),
     ]
+}
+
+/// The `k`-th invented security of `industry`: its id, its attributes row and its price model
+/// (the model's shocks are drawn afterwards, from the same generator).
+fn invented_security(k: usize, industry: &Industry, rng: &mut Rng) -> (String, String, Model) {
+    let mut draw = |(low, high): (f64, f64)| low + (high - low) * rng.uniform();
+    let id = format!("DM-{k:03}");
+    let equity = (10.0_f64.powf(draw((2.3, 3.9))) * 100.0).round() / 100.0;
+    let debt_to_equity = draw(industry.debt_to_equity);
+    let debt = (equity * debt_to_equity * 100.0).round() / 100.0;
+    let cash_share = match k {
+        CASH_HEAVY => 0.7,
+        _ => draw(industry.cash_share),
+    };
+    let cash = (equity * cash_share * 100.0).round() / 100.0;
+    let tax_rate = (draw(industry.tax_rate) * 100.0).round() / 100.0;
+    let equity_beta = Formula::Hamada.relever(
+        draw(industry.asset_beta),
+        CapitalStructure {
+            debt_to_equity: debt / equity,
+            tax_rate,
+        },
+    );
+    let model = Model {
+        equity_beta,
+        daily_alpha: draw((-0.00003, 0.00003)),
+        daily_vol: draw(industry.daily_vol),
+        starting_price: draw((5.0, 150.0)),
+        listed_from: (k == LATE_LISTING).then(|| day(2024, 11, 4)),
+        last_trade: (k == STOPS_EARLY).then(|| day(2026, 4, 30)),
+    };
+    let tax = match k {
+        NO_TAX_RATE => String::new(),
+        _ => format!("{tax_rate:.2}"),
+    };
+    let row = format!(
+        "{id},{},{},{equity:.2},{debt:.2},{cash:.2},{tax}\n",
+        industry.label, industry.sector
+    );
+    (id, row, model)
 }
 
 /// One invented security's price model.
@@ -272,7 +268,27 @@ fn day(year: i32, month: u32, day: u32) -> NaiveDate {
     NaiveDate::from_ymd_opt(year, month, day).expect("valid date")
 }
 
-const UNIVERSE_TOML: &str = r#"# Demo market: an invented scenario. Every security, figure and price here is fictional,
+/// The universe file: the case's index and risk-free series, its `[beta]` and `[leverage]`
+/// sections as the case file writes them (so each peer's figures are the case's), its peers as
+/// the peer set.
+fn universe_toml(case: &str) -> String {
+    // A section of the case file: its header line to the line before the next header.
+    let section = |header: &str| -> String {
+        let start = case
+            .find(&format!("\n{header}\n"))
+            .expect("the demo case has it")
+            + 1;
+        let end = case[start + 1..]
+            .find("\n[")
+            .map_or(case.len(), |e| start + 2 + e);
+        case[start..end].trim_end().to_string()
+    };
+    let peers: String = PEERS
+        .iter()
+        .map(|p| format!("    \"{}\",\n", p.name))
+        .collect();
+    format!(
+        r#"# Demo market: an invented scenario. Every security, figure and price here is fictional,
 # generated by `hurdle-demo-data` (src/demo_market.rs) from a seeded one-factor model against
 # the demo case's index. Not market data. `hurdle universe universe.toml` writes the industry
 # table to output/; the case's eight peers are listed as universe.peer_set, so summary.md sets
@@ -282,15 +298,7 @@ const UNIVERSE_TOML: &str = r#"# Demo market: an invented scenario. Every securi
 title = "Demo market (invented): industry betas beside the Quillmarsh peer set"
 valuation_date = 2026-09-30
 peer_set = [
-    "Brenvale Fluid Systems",
-    "Corrowick Valves",
-    "Dunmere Hydraulics",
-    "Estwold Flow Controls",
-    "Fenhallow Seals",
-    "Glimmerby Pumpworks",
-    "Hollinsedge Industrial",
-    "Ivelbrook Instruments",
-]
+{peers}]
 
 [market.index]
 name = "Demo broad market index (fictional)"
@@ -300,16 +308,9 @@ prices = "data/index.csv"
 yields = "data/risk_free.csv"
 
 # The demo case's own settings, so each peer's figures are the case's.
-[beta]
-frequency = "monthly"
-lookback = 60
-min_observations = 36
-method = "ols"
-adjustment = "blume"
+{}
 
-[leverage]
-formula = "hamada"
-aggregation = "median"
+{}
 
 [panel]
 prices = "data/panel.csv"
@@ -326,4 +327,8 @@ equity_value_column = "market_cap"
 debt_column = "debt"
 cash_column = "cash"
 tax_rate_column = "tax_rate"
-"#;
+"#,
+        section("[beta]"),
+        section("[leverage]")
+    )
+}
