@@ -916,6 +916,24 @@ fn a_duplicate_date_and_security_is_refused_naming_both_lines() {
             " and 12345.5);",
         ],
     );
+    // Two times of one day are one date, said so; a price with spaces around it does not stop
+    // the second pass that finds the lines.
+    refused(
+        |dir| {
+            let mut cells = panel_line(dir, 7);
+            cells[0] = format!("{}T16:30:00", cells[0]);
+            cells[2] = " 12345.5 ".to_string();
+            let mut text = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+            text.push_str(&(cells.join(",") + "\n"));
+            fs::write(dir.join("prices-long.csv"), &text).unwrap();
+        },
+        &[],
+        &[
+            "T16:30:00: dates are read without their time of day; keep one price a day",
+            "lines 7 and",
+            " and 12345.5);",
+        ],
+    );
 }
 
 // A file exported with another separator (semicolons where the decimal mark is a comma, or

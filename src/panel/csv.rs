@@ -80,11 +80,8 @@ pub(super) fn read(
                 plan = Some(made);
             }
             let plan = plan.as_ref().expect("set by the first block");
-            let frame = match parse(block, plan, first, quoted) {
-                Ok(frame) => frame,
-                Err(e) => trimmed_prices(block, plan, first)
-                    .ok_or_else(|| diagnose(source, block, first, next_row, plan, columns, &e))?,
-            };
+            let frame = parse_or_trimmed(block, plan, first, quoted)
+                .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
             check_unnamed(source, &plan.unnamed, &frame, next_row)?;
             let height = frame.height();
             if columns.layout == PanelLayout::Wide {
@@ -324,6 +321,17 @@ fn parse_plain(block: &[u8], plan: &Plan) -> Option<DataFrame> {
     Some(whole)
 }
 
+/// [`parse`], or when polars refuses the block, [`trimmed_prices`]; polars' error otherwise.
+fn parse_or_trimmed(
+    block: &[u8],
+    plan: &Plan,
+    has_header: bool,
+    quoted: bool,
+) -> PolarsResult<DataFrame> {
+    parse(block, plan, has_header, quoted)
+        .or_else(|e| trimmed_prices(block, plan, has_header).ok_or(e))
+}
+
 /// Parses one block through polars' CSV reader.
 fn read_block(
     block: &[u8],
@@ -503,18 +511,29 @@ pub(super) fn duplicate_error(
     columns: &PanelColumns,
     duplicate: &Duplicate,
 ) -> Error {
-    let lines = match find_rows(source, columns, duplicate) {
-        Ok(rows) => rows
-            .iter()
-            .map(|r| (r + 2).to_string())
-            .collect::<Vec<_>>()
-            .join(" and "),
+    let rows = match find_rows(source, columns, duplicate) {
+        Ok(rows) => rows,
         Err(e) => return e,
+    };
+    let lines = (rows.iter())
+        .map(|(r, _)| (r + 2).to_string())
+        .collect::<Vec<_>>()
+        .join(" and ");
+    // Two times of one day are one date (found by review: intraday rows were called duplicates
+    // without saying why).
+    let written: Vec<&str> = rows.iter().map(|(_, d)| d.as_str()).collect();
+    let times = match written.windows(2).any(|w| w[0] != w[1]) {
+        true => format!(
+            " (written {}: dates are read without their time of day; keep one price a day, the \
+             close)",
+            written.join(" and ")
+        ),
+        false => String::new(),
     };
     let message = match columns.layout {
         PanelLayout::Long => format!(
-            "duplicate row for security {} on {} (lines {lines}: {}); each (date, security) \
-             pair may appear once",
+            "duplicate row for security {} on {}{times} (lines {lines}: {}); each (date, \
+             security) pair may appear once",
             duplicate.security,
             duplicate.date,
             duplicate.prices_text()
@@ -529,8 +548,13 @@ pub(super) fn duplicate_error(
     source.file_error(message)
 }
 
-/// The data rows (0-based) holding `duplicate` (long) or its date (wide).
-fn find_rows(source: &Source, columns: &PanelColumns, duplicate: &Duplicate) -> Result<Vec<usize>> {
+/// The data rows (0-based) holding `duplicate` (long) or its date (wide), each with its date as
+/// written.
+fn find_rows(
+    source: &Source,
+    columns: &PanelColumns,
+    duplicate: &Duplicate,
+) -> Result<Vec<(usize, String)>> {
     let mut found = Vec::new();
     let mut next_row = 0;
     let mut scratch = Rows::default();
@@ -548,8 +572,8 @@ fn find_rows(source: &Source, columns: &PanelColumns, duplicate: &Duplicate) -> 
                 )?);
             }
             let plan = plan.as_ref().expect("set by the first block");
-            let frame =
-                parse(block, plan, first, quoted).map_err(|e| source.file_error(e.to_string()))?;
+            let frame = parse_or_trimmed(block, plan, first, quoted)
+                .map_err(|e| source.file_error(e.to_string()))?;
             let text = |name: &str| {
                 frame
                     .column(name)
@@ -567,7 +591,7 @@ fn find_rows(source: &Source, columns: &PanelColumns, duplicate: &Duplicate) -> 
                     .as_ref()
                     .is_none_or(|s| s.get(k).map(str::trim) == Some(duplicate.security.as_str()));
                 if same_date && same_security {
-                    found.push(next_row + k);
+                    found.push((next_row + k, date.unwrap_or_default().trim().to_string()));
                 }
             }
             next_row += frame.height();
