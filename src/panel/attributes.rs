@@ -445,10 +445,9 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
         // as the same column in CSV is (found by review: it was refused as "null").
         // A 32-bit float is read by its shortest decimal (600.1, not the 600.0999755859375 its
         // exact value is; found by review), as the figure was written.
-        let shortest = |v: f32| v.to_string().parse::<f64>().unwrap_or(f64::from(v));
         match column.dtype() {
             DataType::Float32 => (column.f32().expect("a 32-bit float column").iter())
-                .map(|v| (v.map(shortest), None))
+                .map(|v| (v.map(super::f32_as_written), None))
                 .collect(),
             _ => {
                 let cast = column

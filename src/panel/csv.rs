@@ -129,13 +129,18 @@ fn push_frames(
 }
 
 /// The header's names made unique for the parsing schema: an empty name (a column the header
-/// does not name) gets a placeholder no header name can equal.
+/// does not name), and a name given again to a column the layout does not read (the columns it
+/// reads are refused when named twice, `header::check_repeated_names`), get a placeholder no
+/// header name can equal (found by review: `x,x` beside a long panel's columns stopped the run
+/// with the reader's schema error).
 fn schema_names(header: &[String]) -> Vec<String> {
+    let mut seen = std::collections::HashSet::new();
     header
         .iter()
         .enumerate()
         .map(|(i, name)| match name.is_empty() {
             true => format!("\u{0}unnamed column {}", i + 1),
+            false if !seen.insert(name.as_str()) => format!("\u{0}repeated column {}", i + 1),
             false => name.clone(),
         })
         .collect()

@@ -343,6 +343,13 @@ fn plain_time_of_day(text: &[u8]) -> bool {
     }
 }
 
+/// A 32-bit float as the decimal it was written from: its shortest decimal (600.1, where the
+/// float's exact value is 600.0999755859375), so a figure stored as a 32-bit float reads as the
+/// same figure in CSV does (found by review).
+pub(crate) fn f32_as_written(value: f32) -> f64 {
+    value.to_string().parse().unwrap_or(f64::from(value))
+}
+
 /// Lower-case hexadecimal of a digest.
 pub(crate) fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()

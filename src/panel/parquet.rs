@@ -297,9 +297,14 @@ fn typed(
         _ => column.dtype().is_primitive_numeric(),
     };
     // A column of nothing but empty cells (typed as null, or as text by a writer that saw no
-    // value) is all gaps, as the same column in CSV is (found by review: it was refused as
-    // "numbers stored as text").
-    if !fits && column.null_count() == column.len() {
+    // value: nulls or empty strings) is all gaps, as the same column in CSV is (found by
+    // review: it was refused as "numbers stored as text").
+    let blank = |c: &Column| {
+        c.null_count() == c.len()
+            || c.str()
+                .is_ok_and(|cells| cells.iter().flatten().all(|t| t.trim().is_empty()))
+    };
+    if !fits && blank(column) {
         return Ok(Column::full_null(name.into(), column.len(), dtype));
     }
     if !fits {
@@ -339,6 +344,13 @@ fn typed(
                 "prices"
             }
         )));
+    }
+    if dtype == &DataType::Float64 && column.dtype() == &DataType::Float32 {
+        // Prices stored as 32-bit floats, read as the decimals written (as attributes are).
+        let prices: Float64Chunked = (column.f32().expect("a 32-bit float column").iter())
+            .map(|v| v.map(super::f32_as_written))
+            .collect();
+        return Ok(prices.with_name(name.into()).into_column());
     }
     column
         .cast(dtype)

@@ -631,7 +631,13 @@ fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
     let mut by_key: BTreeMap<String, Vec<&str>> = BTreeMap::new();
     for label in labels {
         use unicode_normalization::UnicodeNormalization;
-        let key: String = label.trim().nfc().collect();
+        // Runs of white space (a no-break space too) as one space (found by review: labels
+        // differing inside in spaces were not named, though the note says so).
+        let spaced: Vec<&str> = label
+            .split(char::is_whitespace)
+            .filter(|w| !w.is_empty())
+            .collect();
+        let key: String = spaced.join(" ").nfc().collect();
         by_key.entry(key.to_lowercase()).or_default().push(label);
     }
     let twins: Vec<String> = (by_key.values())

@@ -104,18 +104,19 @@ const KNOWN_CHANGES: [KnownChange; 9] = [
         kind: "universe",
         paths: &["industries", "securities", "peer_set"],
         explain: |receipt, _| {
-            let path = receipt["files"]["attributes"]["path"]
-                .as_str()
-                .unwrap_or("");
-            let parquet = [".parquet", ".pq"]
-                .iter()
-                .any(|e| path.to_ascii_lowercase().ends_with(e));
-            parquet.then(|| {
-                "hurdle 0.9.0 reads a Parquet attributes figure stored as a 32-bit float by its \
-                 shortest decimal (600.1, where an earlier version read the float's exact value, \
-                 600.0999755859375): with such columns the D/E, unlevered betas and weighted \
-                 means move in about the ninth significant digit (README, Changelog, \"A demo \
-                 market, and the universe's inputs as exports write them\")"
+            let parquet = |file: &str| {
+                let path = receipt["files"][file]["path"].as_str().unwrap_or("");
+                [".parquet", ".pq"]
+                    .iter()
+                    .any(|e| path.to_ascii_lowercase().ends_with(e))
+            };
+            (parquet("attributes") || parquet("panel")).then(|| {
+                "hurdle 0.9.0 reads a Parquet price or attributes figure stored as a 32-bit \
+                 float by its shortest decimal (600.1, where an earlier version read the float's \
+                 exact value, 600.0999755859375): with such columns the betas, D/E, unlevered \
+                 betas and weighted means move from about the seventh significant digit \
+                 (README, Changelog, \"A demo market, and the universe's inputs as exports \
+                 write them\")"
                     .to_string()
             })
         },
@@ -317,18 +318,18 @@ mod tests {
     }
 
     // 0.9.0's reading of 32-bit floats is named for a universe receipt of an earlier version
-    // whose attributes file is Parquet and whose security figures differ; not for CSV
-    // attributes, a receipt of 0.9.0 or differences elsewhere.
+    // whose attributes file (or panel) is Parquet and whose security figures differ; not for
+    // CSV files, a receipt of 0.9.0 or differences elsewhere.
     #[test]
     fn the_32_bit_float_change_is_named_for_parquet_attributes() {
-        let receipt = |path: &str| json!({"files": {"attributes": {"path": path}}});
+        let receipt = |path: &str| json!({"files": {"attributes": {"path": path}, "panel": {"path": "p.csv"}}});
         let moved = mismatch("securities.debt_to_equity");
         let found = |versions, path: &str, m: &Mismatch| {
             known_changes("universe", versions, &[m], (&receipt(path), &json!({})))
         };
         let named = found(("0.8.0", "0.9.0"), "data/attributes.PARQUET", &moved);
         assert_eq!(named.len(), 1);
-        assert!(named[0].starts_with("hurdle 0.9.0 reads a Parquet attributes figure"));
+        assert!(named[0].starts_with("hurdle 0.9.0 reads a Parquet price or attributes figure"));
         assert!(found(("0.8.0", "0.9.0"), "data/attributes.csv", &moved).is_empty());
         assert!(found(("0.9.0", "0.9.0"), "a.parquet", &moved).is_empty());
         assert!(found(("0.8.0", "0.9.0"), "a.pq", &mismatch("window.start")).is_empty());
