@@ -93,6 +93,10 @@ pub enum Error {
     /// A regression could not be solved (rank-deficient design, too few observations).
     #[error("regression: {0}")]
     Regression(String),
+    /// An estimator's settings that the observations cannot carry, in figures; a case or a
+    /// universe adds the setting to change (`case::wording::estimator_problem`).
+    #[error("regression: {0}")]
+    Estimator(EstimatorProblem),
     /// A chart could not be drawn (`name` is its file name).
     #[error("figure {name}: {message}")]
     Figure { name: String, message: String },
@@ -372,5 +376,73 @@ mod tests {
             super::one_line("`close` = \"12\n3\"\tend\u{7f}é"),
             "`close` = \"12\\n3\"\\tend\\u{7f}é"
         );
+    }
+}
+
+/// An estimator's settings that the observations cannot carry, in figures. The estimators do
+/// not know what their callers call the settings (a case's and a universe's `[beta]` keys), so
+/// the problem states itself here and the caller adds the setting to change
+/// (`case::wording::estimator_problem`), as it words the layers' other errors.
+#[derive(Debug, Clone, PartialEq)]
+pub enum EstimatorProblem {
+    /// Newey–West lags at least N/4; `given` when the caller set them, else the rule chose them.
+    NeweyWestLags {
+        lags: usize,
+        observations: usize,
+        given: bool,
+    },
+    /// Lagged and led index columns (Dimson, or Scholes–Williams' one lag and one lead) at
+    /// least N/4.
+    ShiftedColumns {
+        columns: usize,
+        observations: usize,
+        scholes_williams: bool,
+    },
+    /// Scholes–Williams' divisor 1 + 2ρ below its `floor`.
+    ScholesWilliamsDivisor {
+        rho: f64,
+        divisor: f64,
+        floor: f64,
+        observations: usize,
+    },
+}
+
+impl std::fmt::Display for EstimatorProblem {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let quarter = |n: usize| n as f64 / 4.0;
+        match *self {
+            EstimatorProblem::NeweyWestLags {
+                lags, observations, ..
+            } => write!(
+                f,
+                "Newey–West lags {lags} are at least N/4 = {} for N = {observations} observations",
+                quarter(observations)
+            ),
+            EstimatorProblem::ShiftedColumns {
+                columns,
+                observations,
+                ..
+            } => write!(
+                f,
+                "{columns} lagged and led index columns are at least N/4 = {} for N = \
+                 {observations} observations",
+                quarter(observations)
+            ),
+            EstimatorProblem::ScholesWilliamsDivisor {
+                rho,
+                divisor,
+                floor,
+                observations,
+            } => write!(
+                f,
+                "the index's first-order autocorrelation over these {observations} returns is \
+                 {}, so the Scholes-Williams divisor 1 + 2ρ is {}, below {floor}: the beta \
+                 divides the slopes by it and would be unbounded (an index return that moves \
+                 against its own last one this strongly is not the non-synchronous trading the \
+                 method corrects)",
+                rounded(rho, 3),
+                rounded(divisor, 3)
+            ),
+        }
     }
 }

@@ -15,7 +15,7 @@ pub mod vasicek;
 use nalgebra::DMatrix;
 use serde::Serialize;
 
-use crate::error::{Error, Result};
+use crate::error::{Error, EstimatorProblem, Result};
 use crate::market::sampling::ShiftedMarket;
 use crate::stats;
 use crate::stats::least_squares::{
@@ -113,35 +113,19 @@ pub fn estimate_with_influence(
     let lags = newey_west_lags(settings, n);
     if let Some(l) = lags {
         if 4 * l >= n {
-            // Given, the lags are the user's to lower; by the rule, the window is too short.
-            let remedy = match settings.newey_west_lags {
-                Some(_) => "lower beta.newey_west_lags".to_string(),
-                None => format!(
-                    "the Newey–West (1994) rule floor(4·(N/100)^(2/9)) chose {l}; give \
-                     beta.newey_west_lags a smaller value or lengthen the window"
-                ),
-            };
-            return Err(Error::Regression(format!(
-                "Newey–West lags {l} are at least N/4 = {} for N = {n} observations; {remedy}",
-                n as f64 / 4.0
-            )));
+            return Err(Error::Estimator(EstimatorProblem::NeweyWestLags {
+                lags: l,
+                observations: n,
+                given: settings.newey_west_lags.is_some(),
+            }));
         }
     }
     if settings.method != BetaMethod::Ols && 4 * shifted.len() >= n {
-        // Scholes–Williams always takes one lag and one lead: only more observations help.
-        let remedy = match settings.method {
-            BetaMethod::ScholesWilliams => {
-                "Scholes–Williams always uses one lag and one lead: lengthen the window, or \
-                 supply the missing prices"
-            }
-            _ => "lower beta.dimson_lags / beta.dimson_leads, or lengthen the window",
-        };
-        return Err(Error::Regression(format!(
-            "{} lagged and led index columns are at least N/4 = {} for N = {n} observations; \
-             {remedy}",
-            shifted.len(),
-            n as f64 / 4.0
-        )));
+        return Err(Error::Estimator(EstimatorProblem::ShiftedColumns {
+            columns: shifted.len(),
+            observations: n,
+            scholes_williams: settings.method == BetaMethod::ScholesWilliams,
+        }));
     }
     let (kind, l) = (settings.std_errors, lags.unwrap_or(0));
     Ok(match settings.method {
@@ -423,7 +407,7 @@ pub fn adjust_all(
     stated_prior: Option<(f64, f64)>,
     raw: &[(f64, f64)],
     included: &[bool],
-) -> std::result::Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), String> {
+) -> std::result::Result<(Vec<AdjustedBeta>, Option<vasicek::Prior>), vasicek::PriorUnavailable> {
     let mut adjusted = Vec::with_capacity(raw.len());
     let prior = adjust_all_into(
         adjustment,
@@ -445,7 +429,7 @@ pub fn adjust_all_into(
     raw: &[(f64, f64)],
     included: &[bool],
     adjusted: &mut Vec<AdjustedBeta>,
-) -> std::result::Result<Option<vasicek::Prior>, String> {
+) -> std::result::Result<Option<vasicek::Prior>, vasicek::PriorUnavailable> {
     adjusted.clear();
     if adjustment != Adjustment::Vasicek {
         adjusted.extend(raw.iter().map(|&(beta, _)| {
@@ -471,13 +455,8 @@ pub fn adjust_all_into(
                 .filter(|(_, &inside)| inside)
                 .map(|(&(beta, _), _)| beta)
                 .collect();
-            vasicek::cross_sectional_prior(&betas).ok_or_else(|| {
-                format!(
-                    "beta.adjustment = \"vasicek\" needs at least two included peers with \
-                     different betas for a cross-sectional prior ({} included); state \
-                     beta.vasicek_prior_mean and beta.vasicek_prior_variance instead",
-                    betas.len()
-                )
+            vasicek::cross_sectional_prior(&betas).ok_or(vasicek::PriorUnavailable {
+                included: betas.len(),
             })?
         }
     };

@@ -135,15 +135,14 @@ pub(crate) fn scholes_williams_fit(
 fn divisor(rho: f64, n: usize) -> Result<f64> {
     let scale = 1.0 + 2.0 * rho;
     if scale.is_nan() || scale < MIN_DIVISOR {
-        return Err(Error::Regression(format!(
-            "the index's first-order autocorrelation over these {n} returns is {}, so the \
-             Scholes-Williams divisor 1 + 2ρ is {}, below {MIN_DIVISOR}: the beta divides the \
-             slopes by it and would be unbounded (an index return that moves against its own \
-             last one this strongly is not the non-synchronous trading the method corrects); \
-             use beta.method = \"dimson\"",
-            crate::error::rounded(rho, 3),
-            crate::error::rounded(scale, 3)
-        )));
+        return Err(Error::Estimator(
+            crate::error::EstimatorProblem::ScholesWilliamsDivisor {
+                rho,
+                divisor: scale,
+                floor: MIN_DIVISOR,
+                observations: n,
+            },
+        ));
     }
     Ok(scale)
 }

@@ -54,6 +54,14 @@ pub fn shrink(beta: f64, std_error: f64, prior: &Prior) -> Shrunk {
     }
 }
 
+/// A cross-sectional prior needs at least two included betas that differ: `included` were
+/// given. The caller, which knows what it calls the betas (peers, securities) and the settings,
+/// words it (`case::wording::prior_unavailable`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct PriorUnavailable {
+    pub included: usize,
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

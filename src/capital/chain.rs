@@ -125,11 +125,11 @@ impl Chain {
 #[derive(Debug, Clone, PartialEq)]
 pub enum ChainError {
     /// The adjustment could not be applied (a Vasicek prior from too few peers).
-    Adjustment(String),
+    Adjustment(crate::beta::vasicek::PriorUnavailable),
     /// Every peer is excluded: nothing is left to aggregate.
     NoPeerIncluded,
     /// The cost-of-debt source failed (a rating or coverage not in the table).
-    CostOfDebt(String),
+    CostOfDebt(debt::DebtProblem),
     /// The target D/E works out negative or not a number.
     Target(f64),
     /// A peer's debt beta is above its equity beta (peer position, debt beta, beta used).

@@ -10,22 +10,41 @@ use serde::{Deserialize, Serialize};
 
 pub use crate::io::spread_table::{SpreadRow, SpreadTable};
 
+/// Why a cost of debt could not be read from its table, in figures: the caller words it with
+/// its own names for the settings (`case::wording::debt_problem`).
+#[derive(Debug, Clone, PartialEq)]
+pub enum DebtProblem {
+    /// The source reads a spread table the caller did not hand over.
+    NoTable(DebtSource),
+    /// A listing that needs no cost of debt did not read the table a debt beta needs.
+    TableNotRead,
+    /// The rating is not a row of the table (path as written; its ratings in order).
+    RatingNotInTable {
+        rating: String,
+        table: String,
+        ratings: Vec<String>,
+    },
+    /// The interest coverage is below the table's lowest threshold.
+    CoverageBelowTable {
+        coverage: f64,
+        lowest: f64,
+        table: String,
+    },
+}
+
 /// The row of `rating` in a rating → spread table.
 pub fn rating_row<'a>(
     table: &'a SpreadTable,
     rating: &str,
-) -> std::result::Result<&'a SpreadRow, String> {
+) -> std::result::Result<&'a SpreadRow, DebtProblem> {
     table
         .rows
         .iter()
         .find(|r| r.rating == rating)
-        .ok_or_else(|| {
-            let known: Vec<&str> = table.rows.iter().map(|r| r.rating.as_str()).collect();
-            format!(
-                "debt.rating = \"{rating}\" is not in the table {} (ratings: {})",
-                table.path,
-                known.join(", ")
-            )
+        .ok_or_else(|| DebtProblem::RatingNotInTable {
+            rating: rating.to_string(),
+            table: table.path.clone(),
+            ratings: table.rows.iter().map(|r| r.rating.clone()).collect(),
         })
 }
 
@@ -44,19 +63,19 @@ fn reaches(coverage: f64, low: f64) -> bool {
 /// The row of a coverage → rating → spread table that `coverage` falls in: the last row whose
 /// `min_coverage` is at or below it (thresholds are inclusive lower bounds; the top row is
 /// open-ended). A coverage below the lowest threshold is not covered by the table.
-pub fn coverage_row(table: &SpreadTable, coverage: f64) -> std::result::Result<&SpreadRow, String> {
+pub fn coverage_row(
+    table: &SpreadTable,
+    coverage: f64,
+) -> std::result::Result<&SpreadRow, DebtProblem> {
     table
         .rows
         .iter()
         .rev()
         .find(|r| r.min_coverage.is_some_and(|low| reaches(coverage, low)))
-        .ok_or_else(|| {
-            format!(
-                "interest coverage {coverage} (debt.ebit / debt.interest_expense) is below the \
-                 lowest min_coverage {} in the table {}",
-                table.rows[0].min_coverage.unwrap_or(f64::NAN),
-                table.path
-            )
+        .ok_or_else(|| DebtProblem::CoverageBelowTable {
+            coverage,
+            lowest: table.rows[0].min_coverage.unwrap_or(f64::NAN),
+            table: table.path.clone(),
         })
 }
 
@@ -83,7 +102,7 @@ pub fn cost_of_debt(
     debt: &DebtSpec<'_>,
     table: Option<&SpreadTable>,
     risk_free: f64,
-) -> std::result::Result<CostOfDebtRecord, String> {
+) -> std::result::Result<CostOfDebtRecord, DebtProblem> {
     Ok(match spread_row(debt, table)? {
         Err(given) => CostOfDebtRecord {
             source: debt.source(),
@@ -110,7 +129,7 @@ pub fn pre_tax_cost_of_debt(
     debt: &DebtSpec<'_>,
     table: Option<&SpreadTable>,
     risk_free: f64,
-) -> std::result::Result<f64, String> {
+) -> std::result::Result<f64, DebtProblem> {
     Ok(match spread_row(debt, table)? {
         Err(given) => given,
         Ok((row, _)) => risk_free + row.spread,
@@ -123,8 +142,8 @@ pub fn pre_tax_cost_of_debt(
 fn spread_row<'a>(
     debt: &DebtSpec<'_>,
     table: Option<&'a SpreadTable>,
-) -> std::result::Result<std::result::Result<(&'a SpreadRow, Option<f64>), f64>, String> {
-    let table = || table.ok_or_else(|| format!("{} needs its spread table", label(debt)));
+) -> std::result::Result<std::result::Result<(&'a SpreadRow, Option<f64>), f64>, DebtProblem> {
+    let table = || table.ok_or(DebtProblem::NoTable(debt.source()));
     Ok(match debt {
         DebtSpec::Given(yield_) => Err(*yield_),
         DebtSpec::Rating(rating) => Ok((rating_row(table()?, rating)?, None)),
@@ -136,15 +155,6 @@ fn spread_row<'a>(
             Ok((coverage_row(table()?, coverage)?, Some(coverage)))
         }
     })
-}
-
-/// The source as the case names it, for messages.
-fn label(debt: &DebtSpec<'_>) -> &'static str {
-    match debt.source() {
-        DebtSource::Given => "debt.source = \"given\"",
-        DebtSource::Rating => "debt.source = \"rating\"",
-        DebtSource::Coverage => "debt.source = \"coverage\"",
-    }
 }
 
 /// Where the subject's pre-tax cost of debt comes from, with what that source needs: this
@@ -223,10 +233,16 @@ mod tests {
         assert_eq!(coverage_row(&table, 8.5).unwrap().rating, "AAA");
         assert_eq!(coverage_row(&table, 0.0).unwrap().rating, "C");
         let below = coverage_row(&table, -0.25).unwrap_err();
-        assert!(
-            below.contains("-0.25") && below.contains("coverage.csv"),
-            "{below}"
-        );
+        let DebtProblem::CoverageBelowTable {
+            coverage,
+            lowest,
+            table,
+        } = below
+        else {
+            panic!("{below:?}");
+        };
+        assert_eq!((coverage, lowest), (-0.25, 0.0));
+        assert!(table.ends_with("coverage.csv"), "{table}");
     }
 
     #[test]
@@ -234,10 +250,14 @@ mod tests {
         let table = coverage_table();
         assert_eq!(rating_row(&table, "B").unwrap().spread, 0.05);
         let missing = rating_row(&table, "BB+").unwrap_err();
-        assert!(
-            missing.contains("\"BB+\"") && missing.contains("BBB"),
-            "{missing}"
-        );
+        let DebtProblem::RatingNotInTable {
+            rating, ratings, ..
+        } = missing
+        else {
+            panic!("{missing:?}");
+        };
+        assert_eq!(rating, "BB+");
+        assert_eq!(ratings, ["C", "B", "BBB", "AAA"]);
     }
 
     // rf 3.8% + BBB spread 2% = 5.8%; EBIT 120 / interest 40 = coverage 3.0, exactly on the

@@ -18,6 +18,7 @@ pub mod schema;
 pub mod sources;
 pub mod specs;
 pub mod validate;
+pub mod wording;
 
 use std::path::{Path, PathBuf};
 

@@ -243,8 +243,11 @@ pub enum EstimateError {
     },
     /// The index's returns do not vary over the periods shared with the security.
     FlatIndex { periods: usize },
-    /// The estimator refused the data (rank, too many shifted columns, …).
+    /// The estimator refused the data (rank, …).
     Estimator(String),
+    /// The estimator's settings that the observations cannot carry (too many lags, …): the
+    /// caller words it with the setting to change.
+    Settings(crate::error::EstimatorProblem),
 }
 
 /// Samples a price series onto the window's grid: period returns and which of them are stale.
@@ -319,7 +322,10 @@ pub fn estimate_security(
         &aligned.market_shifted,
         spec.case_extras,
     )
-    .map_err(|e| EstimateError::Estimator(e.to_string()))?;
+    .map_err(|e| match e {
+        crate::error::Error::Estimator(problem) => EstimateError::Settings(problem),
+        other => EstimateError::Estimator(other.to_string()),
+    })?;
     let periods_in_window = window.period_ends().len();
     let rolling_points = rolling::rolling_betas(
         window.period_ends(),

@@ -253,6 +253,18 @@ impl Estimation {
                 outcome: Err((NotEstimated::EstimatorFailed, message)),
                 rolling: Vec::new(),
             },
+            (Err(EstimateError::Settings(problem)), _) => SecurityEstimate {
+                periods_dropped: None,
+                observations: None,
+                outcome: Err((
+                    NotEstimated::EstimatorFailed,
+                    format!(
+                        "regression: {}",
+                        crate::case::wording::estimator_problem(&problem)
+                    ),
+                )),
+                rolling: Vec::new(),
+            },
         }
     }
 

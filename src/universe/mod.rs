@@ -520,9 +520,9 @@ fn adjust(
     let stated = beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance);
     let (adjusted, prior) =
         beta::adjust_all(beta.adjustment, beta.blume_weight, stated, &raw, &included).map_err(
-            |message| Error::Estimation {
+            |problem| Error::Estimation {
                 peer: "(all securities)".into(),
-                message: message.replace("peers", "securities"),
+                message: crate::case::wording::prior_unavailable(problem, "securities"),
             },
         )?;
     let mut adjusted = adjusted.into_iter();

@@ -183,7 +183,9 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
         message,
     };
     match error {
-        ChainError::Adjustment(message) => all_peers(message),
+        ChainError::Adjustment(problem) => {
+            all_peers(crate::case::wording::prior_unavailable(problem, "peers"))
+        }
         ChainError::NoPeerIncluded => all_peers(format!(
             "every peer is excluded (beta.exclude_flags = {:?} or `exclude`): no peer is left to \
              aggregate",
@@ -194,7 +196,7 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
                 .map(|f| f.name().to_string())
                 .collect::<Vec<_>>()
         )),
-        ChainError::CostOfDebt(message) => case_error(message),
+        ChainError::CostOfDebt(problem) => case_error(crate::case::wording::debt_problem(&problem)),
         ChainError::Target(target_de) => case_error(format!(
             "target.source = {}: the target debt-to-equity works out at {target_de}, below 0 \
              (net debt under leverage.debt_measure = {} is negative); a target structure needs \

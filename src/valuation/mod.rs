@@ -292,6 +292,12 @@ fn failure_message(
             index.path
         ),
         EstimateError::Estimator(message) => message.clone(),
+        EstimateError::Settings(problem) => {
+            format!(
+                "regression: {}",
+                crate::case::wording::estimator_problem(problem)
+            )
+        }
     }
 }
 

@@ -92,7 +92,7 @@ fn listed_peer_terms(
             Ok(terms_with(spec, peer, debt_beta, own_cost_of_debt))
         }
         _ => Err(ChainError::CostOfDebt(
-            "the cost-of-debt spread table was not read".into(),
+            super::super::debt::DebtProblem::TableNotRead,
         )),
     }
 }
