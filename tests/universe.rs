@@ -1691,51 +1691,57 @@ fn a_panel_in_the_other_layout_is_named() {
     rename_close(&setup.dir());
     let stderr = String::from_utf8_lossy(&setup.universe("out", &[]).stderr).to_string();
     assert!(!stderr.contains("looks like a wide file"), "{stderr}");
-    // A long Parquet file with its prices stored as text is told so, not sent to the layout it
-    // already has.
+    // Prices stored as text in Parquet read as the numbers they hold, as a CSV panel's text
+    // does: a long file's price column, and a wide file's column of one security (as polars
+    // infers a late listing's column whose first cells are empty) give the tables of the numeric
+    // files (found by review: they were refused, with the advice to cast them).
     let setup = Setup::new();
+    for (file, column) in [
+        ("prices-long.parquet", "close"),
+        ("prices-wide.parquet", "S04"),
+    ] {
+        let path = setup.dir().join(file);
+        let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+            .finish()
+            .unwrap();
+        frame
+            .apply(column, |c| c.cast(&DataType::String).unwrap())
+            .unwrap();
+        write_parquet(&setup.dir().join(format!("text-{file}")), &mut frame);
+    }
+    let long = ["panel.prices=text-prices-long.parquet"];
+    assert_same_runs(
+        &setup,
+        &long,
+        &["panel.prices=prices-long.parquet"],
+        "long text",
+    );
+    let wide = ["panel.prices=text-prices-wide.parquet", "panel.layout=wide"];
+    let numeric = ["panel.prices=prices-wide.parquet", "panel.layout=wide"];
+    assert_same_runs(&setup, &wide, &numeric, "wide text");
+    // Text that is not a number is refused naming the column, and a long file is not sent to
+    // the layout it already has.
     let path = setup.dir().join("prices-long.parquet");
     let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
         .finish()
         .unwrap();
+    let text: Vec<String> = (frame.column("close").unwrap().f64().unwrap().iter())
+        .enumerate()
+        .map(|(k, p)| match k {
+            3 => "n/a".to_string(),
+            _ => p.unwrap().to_string(),
+        })
+        .collect();
     frame
-        .apply("close", |c| c.cast(&DataType::String).unwrap())
+        .with_column(Column::new("close".into(), text))
         .unwrap();
-    ParquetWriter::new(fs::File::create(&path).unwrap())
-        .finish(&mut frame)
-        .unwrap();
-    let output = setup.universe("out", &["panel.prices=prices-long.parquet"]);
+    write_parquet(&setup.dir().join("bad-text.parquet"), &mut frame);
+    let output = setup.universe("bad-text", &["panel.prices=bad-text.parquet"]);
     let stderr = String::from_utf8_lossy(&output.stderr).to_string();
     assert_eq!(output.status.code(), Some(2), "{stderr}");
     assert!(
-        stderr.contains("prices-long.parquet: column `close` holds str, not prices")
+        stderr.contains("bad-text.parquet: column `close` holds str, not prices")
             && stderr.contains("stores its prices as numbers")
-            && !stderr.contains("panel.layout"),
-        "{stderr}"
-    );
-    // So is a wide Parquet file with one security's prices stored as text (as polars infers a
-    // late listing's column whose first cells are empty), instead of being sent to the long
-    // layout (found by review).
-    let setup = Setup::new();
-    let path = setup.dir().join("prices-wide.parquet");
-    let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
-        .finish()
-        .unwrap();
-    frame
-        .apply("S04", |c| c.cast(&DataType::String).unwrap())
-        .unwrap();
-    ParquetWriter::new(fs::File::create(&path).unwrap())
-        .finish(&mut frame)
-        .unwrap();
-    let output = setup.universe(
-        "out",
-        &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
-    );
-    let stderr = String::from_utf8_lossy(&output.stderr).to_string();
-    assert_eq!(output.status.code(), Some(2), "{stderr}");
-    assert!(
-        stderr.contains("column `S04` holds str, not prices")
-            && stderr.contains("numbers stored as text")
             && !stderr.contains("panel.layout"),
         "{stderr}"
     );

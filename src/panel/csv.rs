@@ -436,16 +436,7 @@ fn trimmed_prices(block: &[u8], plan: &Plan, has_header: bool) -> Option<DataFra
         .collect();
     for name in &numeric {
         let name = name.as_str();
-        let cells = frame.column(name).ok()?.str().ok()?.clone();
-        let prices: Float64Chunked = cells
-            .iter()
-            .map(|cell| match cell.map(str::trim) {
-                None | Some("") => Some(None),
-                Some(text) => text.parse::<f64>().ok().map(Some),
-            })
-            .collect::<Option<Vec<Option<f64>>>>()?
-            .into_iter()
-            .collect();
+        let prices = super::numbers_in_text(frame.column(name).ok()?)?;
         frame
             .with_column(prices.with_name(name.into()).into_column())
             .ok()?;

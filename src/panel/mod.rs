@@ -350,6 +350,20 @@ pub(crate) fn f32_as_written(value: f32) -> f64 {
     value.to_string().parse().unwrap_or(f64::from(value))
 }
 
+/// A text column's cells as numbers (without surrounding white space; an empty cell `None`),
+/// or `None` when the column is not text or a cell is not a number.
+pub(crate) fn numbers_in_text(
+    column: &polars::prelude::Column,
+) -> Option<polars::prelude::Float64Chunked> {
+    (column.str().ok()?.iter())
+        .map(|cell| match cell.map(str::trim) {
+            None | Some("") => Some(None),
+            Some(text) => text.parse::<f64>().ok().map(Some),
+        })
+        .collect::<Option<Vec<Option<f64>>>>()
+        .map(|values| values.into_iter().collect())
+}
+
 /// Lower-case hexadecimal of a digest.
 pub(crate) fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()

@@ -307,22 +307,18 @@ fn typed(
     if !fits && blank(column) {
         return Ok(Column::full_null(name.into(), column.len(), dtype));
     }
+    // Prices stored as text that all read as numbers (an empty cell a gap): a price column a
+    // writer typed as text, as polars infers one whose first rows are empty (a late listing),
+    // read as the same column in CSV is (found by review: it was refused, and a CSV panel
+    // parses the same text).
+    if !fits && dtype == &DataType::Float64 {
+        if let Some(prices) = super::numbers_in_text(column) {
+            return Ok(prices.with_name(name.into()).into_column());
+        }
+    }
     if !fits {
-        // Text cells that all read as numbers (or none at all): a price column a writer typed
-        // as text, as polars infers one whose first rows are empty (a late listing).
-        let numbers_as_text = column.str().is_ok_and(|cells| {
-            cells
-                .iter()
-                .flatten()
-                .take(1000)
-                .all(|c| c.trim().parse::<f64>().is_ok())
-        });
         let hint = match layout {
             _ if dtype != &DataType::Float64 || !column.dtype().is_string() => "",
-            PanelLayout::Wide if numbers_as_text => {
-                " (its cells are numbers stored as text: write the column as numbers, for \
-                 example cast to Float64, before saving the Parquet file)"
-            }
             PanelLayout::Wide => {
                 " (a wide panel holds only prices beside the date column; if this file has one \
                  row per date and security, set panel.layout = \"long\")"
