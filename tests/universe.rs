@@ -1026,6 +1026,40 @@ fn a_duplicate_date_and_security_is_refused_naming_both_lines() {
     );
 }
 
+// A Parquet panel's date-times two hours apart on one day are one date, and the message says
+// so, as for a CSV panel.
+#[test]
+fn a_parquet_duplicate_at_two_times_of_one_day_says_so() {
+    let setup = Setup::new();
+    let path = setup.dir().join("prices-long.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+        .finish()
+        .unwrap();
+    let stamp = DataType::Datetime(TimeUnit::Milliseconds, None);
+    frame.apply("date", |c| c.cast(&stamp).unwrap()).unwrap();
+    let mut later = frame.slice(3, 1);
+    later
+        .apply("date", |c| {
+            let ms = c.cast(&DataType::Int64).unwrap();
+            (ms.as_materialized_series() + 7_200_000)
+                .cast(&stamp)
+                .unwrap()
+                .into_column()
+        })
+        .unwrap();
+    frame.vstack_mut(&later).unwrap();
+    write_parquet(&setup.dir().join("stamped.parquet"), &mut frame);
+    let output = setup.universe("out", &["panel.prices=stamped.parquet"]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("duplicate row for security")
+            && stderr.contains(" 02:00:00: dates are read without their time of day")
+            && stderr.contains("(rows 4 and "),
+        "{stderr}"
+    );
+}
+
 // A file exported with another separator (semicolons where the decimal mark is a comma, or
 // tabs) is named as such, not as a file without the configured columns: the rule a case's
 // price files follow.

@@ -515,17 +515,8 @@ pub(super) fn duplicate_error(
         .map(|(r, _)| (r + 2).to_string())
         .collect::<Vec<_>>()
         .join(" and ");
-    // Two times of one day are one date (found by review: intraday rows were called duplicates
-    // without saying why).
     let written: Vec<&str> = rows.iter().map(|(_, d)| d.as_str()).collect();
-    let times = match written.windows(2).any(|w| w[0] != w[1]) {
-        true => format!(
-            " (written {}: dates are read without their time of day; keep one price a day, the \
-             close)",
-            written.join(" and ")
-        ),
-        false => String::new(),
-    };
+    let times = super::times_of_one_day(&written);
     let message = match columns.layout {
         PanelLayout::Long => format!(
             "duplicate row for security {} on {}{times} (lines {lines}: {}); each (date, \

@@ -364,6 +364,20 @@ pub(crate) fn numbers_in_text(
         .map(|values| values.into_iter().collect())
 }
 
+/// " (written 2024-01-31T10:00 and 2024-01-31T16:00: dates are read without their time of
+/// day; …)" when a duplicate's rows write its date differently, else nothing: two times of one
+/// day are one date (found by review: intraday rows were called duplicates without saying why).
+pub(crate) fn times_of_one_day(written: &[&str]) -> String {
+    match written.windows(2).any(|w| w[0] != w[1]) {
+        true => format!(
+            " (written {}: dates are read without their time of day; keep one price a day, the \
+             close)",
+            written.join(" and ")
+        ),
+        false => String::new(),
+    }
+}
+
 /// Lower-case hexadecimal of a digest.
 pub(crate) fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()

@@ -364,8 +364,13 @@ pub(super) fn duplicate_error(
         PanelLayout::Long => vec![columns.date_column.clone(), columns.security_column.clone()],
         PanelLayout::Wide => vec![columns.date_column.clone()],
     };
+    let mut written = Vec::new();
     let scan = for_each_slice(source, &names, |frame, first_row| {
         let frame = &frame;
+        // The dates as the file holds them (a date-time with its time), for the message.
+        let raw = frame
+            .column(&columns.date_column)
+            .map_err(|e| source.file_error(e.to_string()))?;
         let dates = date_column(source, frame, &columns.date_column)?;
         let dates = block_dates(&cells(&dates), first_row, source, &columns.date_column)?;
         let securities = match columns.layout {
@@ -384,6 +389,8 @@ pub(super) fn duplicate_error(
             });
             if *date == duplicate.date && same_security {
                 found.push((first_row + k + 1).to_string());
+                let value = raw.get(k).map(|v| v.str_value().to_string());
+                written.push(value.unwrap_or_default());
             }
         }
         Ok(())
@@ -392,10 +399,12 @@ pub(super) fn duplicate_error(
         return e;
     }
     let rows = found.join(" and ");
+    let written: Vec<&str> = written.iter().map(|w| w.trim()).collect();
+    let times = super::times_of_one_day(&written);
     source.file_error(match columns.layout {
         PanelLayout::Long => format!(
-            "duplicate row for security {} on {} (rows {rows}: {}); each (date, security) \
-             pair may appear once",
+            "duplicate row for security {} on {}{times} (rows {rows}: {}); each (date, \
+             security) pair may appear once",
             duplicate.security,
             duplicate.date,
             duplicate.prices_text()
