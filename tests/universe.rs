@@ -1753,8 +1753,8 @@ fn a_panel_in_the_other_layout_is_named() {
     let wide = ["panel.prices=text-prices-wide.parquet", "panel.layout=wide"];
     let numeric = ["panel.prices=prices-wide.parquet", "panel.layout=wide"];
     assert_same_runs(&setup, &wide, &numeric, "wide text");
-    // Text that is not a number is refused naming the column, and a long file is not sent to
-    // the layout it already has.
+    // Text that is not a number is refused naming its row and what to write, and a long file is
+    // not sent to the layout it already has.
     let path = setup.dir().join("prices-long.parquet");
     let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
         .finish()
@@ -1774,8 +1774,8 @@ fn a_panel_in_the_other_layout_is_named() {
     let stderr = String::from_utf8_lossy(&output.stderr).to_string();
     assert_eq!(output.status.code(), Some(2), "{stderr}");
     assert!(
-        stderr.contains("bad-text.parquet: column `close` holds str, not prices")
-            && stderr.contains("stores its prices as numbers")
+        stderr.contains("bad-text.parquet: row 4: `close` = \"n/a\" is not a number")
+            && stderr.contains("placeholder for a missing value")
             && !stderr.contains("panel.layout"),
         "{stderr}"
     );

@@ -103,14 +103,14 @@ fn push_frame(
                 frame,
                 &columns.security_column,
                 &DataType::String,
-                PanelLayout::Long,
+                (columns, first_row),
             )?;
             let price = typed(
                 source,
                 frame,
                 &columns.price_column,
                 &DataType::Float64,
-                PanelLayout::Long,
+                (columns, first_row),
             )?;
             push_long(
                 rows,
@@ -126,7 +126,10 @@ fn push_frame(
             let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
             let prices = wide
                 .iter()
-                .map(|(name, _)| typed(source, frame, name, &DataType::Float64, PanelLayout::Wide))
+                .map(|(name, _)| {
+                    let at = (columns, first_row);
+                    typed(source, frame, name, &DataType::Float64, at)
+                })
                 .collect::<Result<Vec<_>>>()?;
             let securities: Vec<_> = wide
                 .iter()
@@ -287,8 +290,9 @@ fn typed(
     frame: &DataFrame,
     name: &str,
     dtype: &DataType,
-    layout: PanelLayout,
+    (columns, first_row): (&PanelColumns, usize),
 ) -> Result<Column> {
+    let layout = columns.layout;
     let column = frame
         .column(name)
         .map_err(|e| source.file_error(e.to_string()))?;
@@ -314,6 +318,13 @@ fn typed(
     if !fits && dtype == &DataType::Float64 {
         if let Some(prices) = super::numbers_in_text(column) {
             return Ok(prices.with_name(name.into()).into_column());
+        }
+        if let Some((k, cell)) = stray_text(column) {
+            let hint = super::cells::number_hint(cell.trim(), name, columns);
+            return Err(source.row_error(
+                first_row + k,
+                format!("`{name}` = \"{cell}\" is not a number{hint}"),
+            ));
         }
     }
     if !fits {
@@ -353,6 +364,19 @@ fn typed(
         .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
 }
 
+/// In a text column of prices that mostly hold numbers, the first cell that is not one (its
+/// position and text); `None` when no cell is a number (a column of another kind, which the
+/// layout's message names whole).
+fn stray_text(column: &Column) -> Option<(usize, &str)> {
+    let cells = column.str().ok()?;
+    let number = |t: &str| t.trim().parse::<f64>().is_ok();
+    cells.iter().flatten().any(number).then_some(())?;
+    (cells.iter().enumerate()).find_map(|(k, c)| {
+        c.filter(|t| !t.trim().is_empty() && !number(t))
+            .map(|t| (k, t))
+    })
+}
+
 /// The error for a repeated (date, security): a second pass finds the rows that hold it.
 pub(super) fn duplicate_error(
     source: &Source,
@@ -379,7 +403,7 @@ pub(super) fn duplicate_error(
                 frame,
                 &columns.security_column,
                 &DataType::String,
-                PanelLayout::Long,
+                (columns, first_row),
             )?),
             PanelLayout::Wide => None,
         };
