@@ -1060,6 +1060,52 @@ fn a_parquet_duplicate_at_two_times_of_one_day_says_so() {
     );
 }
 
+// A wide panel's date at two times of one day is said to be one date, without the advice to
+// read the file as long; a wide Parquet column of nothing but placeholders names its first
+// cell, as a CSV panel does (found by review: it was sent to the long layout).
+#[test]
+fn wide_panels_name_times_of_one_day_and_placeholder_columns() {
+    refused(
+        |dir| {
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+            let (date, rest) = lines[5].split_once(',').unwrap();
+            let (date, rest) = (date.to_string(), rest.to_string());
+            lines[5] = format!("{date}T10:00,{rest}");
+            lines.insert(6, format!("{date}T16:30,{rest}"));
+            fs::write(&path, lines.join("\n") + "\n").unwrap();
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &[
+            "T10:00 and ",
+            "T16:30: dates are read without their time of day",
+            "(lines 6 and 7); a wide panel has one row per date",
+        ],
+    );
+    let setup = Setup::new();
+    let path = setup.dir().join("prices-wide.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&path).unwrap())
+        .finish()
+        .unwrap();
+    frame
+        .with_column(Column::new("S97".into(), vec!["#N/A"; frame.height()]))
+        .unwrap();
+    write_parquet(&path, &mut frame);
+    let output = setup.universe(
+        "out",
+        &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
+    );
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("row 1: `S97` = \"#N/A\" is not a number")
+            && stderr.contains("leave the cell empty")
+            && !stderr.contains("panel.layout"),
+        "{stderr}"
+    );
+}
+
 // A file exported with another separator (semicolons where the decimal mark is a comma, or
 // tabs) is named as such, not as a file without the configured columns: the rule a case's
 // price files follow.

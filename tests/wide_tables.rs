@@ -248,6 +248,28 @@ fn parquet_tables_are_read() {
     check_table(&table, "parquet");
 }
 
+// Prices stored as 32-bit floats read as the decimals written (10.1, not 10.100000381469727),
+// as a universe's Parquet panel reads them, so a case and a universe reading one file agree
+// (found by review). Every price here has at most six significant digits, which a 32-bit
+// float keeps (IEEE 754 binary32, FLT_DIG = 6).
+#[test]
+fn parquet_32_bit_prices_read_as_their_decimals() {
+    use polars::prelude::*;
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("single.parquet");
+    let dates = Series::new("date".into(), [19_000_i32, 19_001, 19_002])
+        .cast(&DataType::Date)
+        .unwrap();
+    let prices = Series::new("Alder".into(), [10.1_f32, 11.3, 1043.83]);
+    let mut frame = DataFrame::new_infer_height(vec![dates.into(), prices.into()]).unwrap();
+    ParquetWriter::new(fs::File::create(&path).unwrap())
+        .finish(&mut frame)
+        .unwrap();
+    let table = PriceTable::read("single.parquet", &path, None, None).unwrap();
+    let file = table.series("peer", "Alder", ValueKind::Price).unwrap();
+    assert_eq!(file.series.values, [10.1, 11.3, 1043.83]);
+}
+
 /// A copy of the wide demo in `<tmp>/case`, and its output folder `<tmp>/out`.
 struct WideCopy {
     root: tempfile::TempDir,

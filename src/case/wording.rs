@@ -111,10 +111,12 @@ mod tests {
             "3 lagged and led index columns are at least N/4 = 2.5 for N = 10 observations; \
              lower beta.dimson_lags / beta.dimson_leads, or lengthen the window"
         );
-        assert!(estimator_problem(&shifted(true)).ends_with(
-            "observations; Scholes–Williams always uses one lag and one lead: lengthen the \
-             window, or supply the missing prices"
-        ));
+        assert_eq!(
+            estimator_problem(&shifted(true)),
+            "3 lagged and led index columns are at least N/4 = 2.5 for N = 10 observations; \
+             Scholes–Williams always uses one lag and one lead: lengthen the window, or supply \
+             the missing prices"
+        );
         let divisor = EstimatorProblem::ScholesWilliamsDivisor {
             rho: -0.45,
             divisor: 0.1,

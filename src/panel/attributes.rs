@@ -447,7 +447,7 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
         // exact value is; found by review), as the figure was written.
         match column.dtype() {
             DataType::Float32 => (column.f32().expect("a 32-bit float column").iter())
-                .map(|v| (v.map(super::f32_as_written), None))
+                .map(|v| (v.map(crate::io::parquet_types::f32_as_written), None))
                 .collect(),
             _ => {
                 let cast = column

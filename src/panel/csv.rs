@@ -525,12 +525,7 @@ pub(super) fn duplicate_error(
             duplicate.date,
             duplicate.prices_text()
         ),
-        PanelLayout::Wide => format!(
-            "the date {} appears on more than one row (lines {lines}); a wide panel has one row \
-             per date (if this file has one row per date and security, set panel.layout = \
-             \"long\")",
-            duplicate.date
-        ),
+        PanelLayout::Wide => super::wide_duplicate_message(duplicate, &times, &lines, "lines"),
     };
     source.file_error(message)
 }

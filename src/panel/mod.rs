@@ -343,13 +343,6 @@ fn plain_time_of_day(text: &[u8]) -> bool {
     }
 }
 
-/// A 32-bit float as the decimal it was written from: its shortest decimal (600.1, where the
-/// float's exact value is 600.0999755859375), so a figure stored as a 32-bit float reads as the
-/// same figure in CSV does (found by review).
-pub(crate) fn f32_as_written(value: f32) -> f64 {
-    value.to_string().parse().unwrap_or(f64::from(value))
-}
-
 /// A text column's cells as numbers (without surrounding white space; an empty cell `None`),
 /// or `None` when the column is not text or a cell is not a number.
 pub(crate) fn numbers_in_text(
@@ -376,6 +369,25 @@ pub(crate) fn times_of_one_day(written: &[&str]) -> String {
         ),
         false => String::new(),
     }
+}
+
+/// A wide panel's date on two rows: written at two times of one day (`times`, from
+/// [`times_of_one_day`]), a day of intraday rows; else, most often, a long file read as wide.
+pub(crate) fn wide_duplicate_message(
+    duplicate: &Duplicate,
+    times: &str,
+    places: &str,
+    unit: &str,
+) -> String {
+    let advice = match times.is_empty() {
+        true => " (if this file has one row per date and security, set panel.layout = \"long\")",
+        false => "",
+    };
+    format!(
+        "the date {}{times} appears on more than one row ({unit} {places}); a wide panel has one \
+         row per date{advice}",
+        duplicate.date
+    )
 }
 
 /// Lower-case hexadecimal of a digest.

@@ -355,7 +355,7 @@ fn typed(
     if dtype == &DataType::Float64 && column.dtype() == &DataType::Float32 {
         // Prices stored as 32-bit floats, read as the decimals written (as attributes are).
         let prices: Float64Chunked = (column.f32().expect("a 32-bit float column").iter())
-            .map(|v| v.map(super::f32_as_written))
+            .map(|v| v.map(crate::io::parquet_types::f32_as_written))
             .collect();
         return Ok(prices.with_name(name.into()).into_column());
     }
@@ -364,13 +364,12 @@ fn typed(
         .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
 }
 
-/// In a text column of prices that mostly hold numbers, the first cell that is not one (its
-/// position and text); `None` when no cell is a number (a column of another kind, which the
-/// layout's message names whole).
+/// In a text column of prices, the first cell that is not a number (its position and text),
+/// which the message names with the advice a CSV panel's cell gets (a placeholder, a formatted
+/// number, or in a wide panel a column of another kind: the layout); `None` for another type.
 fn stray_text(column: &Column) -> Option<(usize, &str)> {
     let cells = column.str().ok()?;
     let number = |t: &str| t.trim().parse::<f64>().is_ok();
-    cells.iter().flatten().any(number).then_some(())?;
     (cells.iter().enumerate()).find_map(|(k, c)| {
         c.filter(|t| !t.trim().is_empty() && !number(t))
             .map(|t| (k, t))
@@ -433,11 +432,6 @@ pub(super) fn duplicate_error(
             duplicate.date,
             duplicate.prices_text()
         ),
-        PanelLayout::Wide => format!(
-            "the date {} appears on more than one row (rows {rows}); a wide panel has one row \
-             per date (if this file has one row per date and security, set panel.layout = \
-             \"long\")",
-            duplicate.date
-        ),
+        PanelLayout::Wide => super::wide_duplicate_message(duplicate, &times, &rows, "rows"),
     })
 }

@@ -98,19 +98,39 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 9] = [
-    KnownChange {
-        version: "0.9.0",
-        kind: "universe",
-        paths: &["industries", "securities", "peer_set"],
-        explain: |receipt, _| {
-            let parquet = |file: &str| {
-                let path = receipt["files"][file]["path"].as_str().unwrap_or("");
-                [".parquet", ".pq"]
-                    .iter()
-                    .any(|e| path.to_ascii_lowercase().ends_with(e))
-            };
-            (parquet("attributes") || parquet("panel")).then(|| {
+const KNOWN_CHANGES: [KnownChange; 10] =
+    [
+        KnownChange {
+            version: "0.9.0",
+            kind: "case",
+            paths: &[
+                "peers",
+                "beta",
+                "cost_of_equity",
+                "wacc",
+                "uncertainty",
+                "sensitivity",
+                "sampling",
+            ],
+            explain: |receipt, _| {
+                let files = receipt["files"].as_array().into_iter().flatten();
+                files.clone().any(parquet_file).then(|| {
+                    "hurdle 0.9.0 reads a Parquet price table's 32-bit floats by their shortest \
+                 decimal (600.1, where an earlier version read the float's exact value, \
+                 600.0999755859375): with such columns the betas and every figure built on them \
+                 move from about the seventh significant digit (README, Changelog, \"A demo \
+                 market, and the universe's inputs as exports write them\")"
+                        .to_string()
+                })
+            },
+        },
+        KnownChange {
+            version: "0.9.0",
+            kind: "universe",
+            paths: &["industries", "securities", "peer_set"],
+            explain: |receipt, _| {
+                let files = ["attributes", "panel", "index", "risk_free"];
+                files.iter().any(|f| parquet_file(&receipt["files"][f])).then(|| {
                 "hurdle 0.9.0 reads a Parquet price or attributes figure stored as a 32-bit \
                  float by its shortest decimal (600.1, where an earlier version read the float's \
                  exact value, 600.0999755859375): with such columns the betas, D/E, unlevered \
@@ -119,35 +139,35 @@ const KNOWN_CHANGES: [KnownChange; 9] = [
                  write them\")"
                     .to_string()
             })
+            },
         },
-    },
-    KnownChange {
-        version: "0.7.0",
-        kind: "case",
-        paths: &["notes"],
-        explain: |receipt, rerun| {
-            let shift = |v: &Value| {
-                (v["notes"].as_array().into_iter().flatten()).any(|n| {
-                    n.as_str()
-                        .is_some_and(|n| n.contains("the rolling beta moved from"))
-                })
-            };
-            (shift(receipt) || shift(rerun)).then(|| {
-                "hurdle 0.7.0 adjusts the peers' first-to-last rolling-beta tests for testing \
+        KnownChange {
+            version: "0.7.0",
+            kind: "case",
+            paths: &["notes"],
+            explain: |receipt, rerun| {
+                let shift = |v: &Value| {
+                    (v["notes"].as_array().into_iter().flatten()).any(|n| {
+                        n.as_str()
+                            .is_some_and(|n| n.contains("the rolling beta moved from"))
+                    })
+                };
+                (shift(receipt) || shift(rerun)).then(|| {
+                    "hurdle 0.7.0 adjusts the peers' first-to-last rolling-beta tests for testing \
                  them together (Holm's step-down method) and gives their p-values, where an \
                  earlier version tested each peer at 5% on its own: such notes are worded \
                  otherwise and fewer (README, Changelog, \"Findings of a numerical, a \
                  test-suite and a statistician's review\")"
-                    .to_string()
-            })
+                        .to_string()
+                })
+            },
         },
-    },
-    KnownChange {
-        version: "0.7.0",
-        kind: "case",
-        paths: &["uncertainty.peer_set"],
-        explain: |_, _| {
-            Some(
+        KnownChange {
+            version: "0.7.0",
+            kind: "case",
+            paths: &["uncertainty.peer_set"],
+            explain: |_, _| {
+                Some(
                 "hurdle 0.7.0 resamples the peers' estimates for the peer-set interval without \
                  drawing their betas again: the spread between the peers' estimates already \
                  holds each one's estimation error, which an earlier version counted twice, so \
@@ -155,36 +175,36 @@ const KNOWN_CHANGES: [KnownChange; 9] = [
                  test-suite and a statistician's review\")"
                     .to_string(),
             )
+            },
         },
-    },
-    KnownChange {
-        version: "0.6.0",
-        kind: "case",
-        paths: &["uncertainty.specifications"],
-        explain: |_, rerun| {
-            let rows = rerun["uncertainty"]["specifications"].as_array();
-            let own = (rows.into_iter().flatten())
-                .find(|r| r["case_choice"] == true)
-                .and_then(|r| r["window"].as_str())
-                .filter(|w| w.contains(" (about "));
-            own.map(|window| {
-                format!(
+        KnownChange {
+            version: "0.6.0",
+            kind: "case",
+            paths: &["uncertainty.specifications"],
+            explain: |_, rerun| {
+                let rows = rerun["uncertainty"]["specifications"].as_array();
+                let own = (rows.into_iter().flatten())
+                    .find(|r| r["case_choice"] == true)
+                    .and_then(|r| r["window"].as_str())
+                    .filter(|w| w.contains(" (about "));
+                own.map(|window| {
+                    format!(
                     "hurdle 0.6.0 writes the specification range's row for the case's own window \
                      with its unit and years (\"{window}\"), where an earlier version wrote the \
                      count alone (README, Changelog, \"Findings of a practitioner's, a \
                      spreadsheet user's and a chart reader's reviews\")"
                 )
-            })
+                })
+            },
         },
-    },
-    KnownChange {
-        version: "0.6.0",
-        kind: "case",
-        paths: &["uncertainty.histogram"],
-        // Only a histogram at the new floor: wider bins are computed as before.
-        explain: |_, rerun| {
-            let width = rerun["uncertainty"]["histogram"]["bin_width"].as_f64();
-            width
+        KnownChange {
+            version: "0.6.0",
+            kind: "case",
+            paths: &["uncertainty.histogram"],
+            // Only a histogram at the new floor: wider bins are computed as before.
+            explain: |_, rerun| {
+                let width = rerun["uncertainty"]["histogram"]["bin_width"].as_f64();
+                width
                 .is_some_and(|w| w <= crate::audit::histogram::MIN_BIN_WIDTH)
                 .then(|| {
                     "hurdle 0.6.0 draws the Monte Carlo histogram with bins of at least 0.01 bp, \
@@ -193,91 +213,97 @@ const KNOWN_CHANGES: [KnownChange; 9] = [
                      spreadsheet user's and a chart reader's reviews\")"
                         .to_string()
                 })
+            },
         },
-    },
-    KnownChange {
-        version: "0.6.0",
-        kind: "case",
-        paths: &["beta.unlevered_dispersion.std_dev"],
-        explain: |_, rerun| {
-            rerun["beta"]["unlevered_dispersion"]["std_dev"]
-                .is_null()
-                .then(|| ONE_VALUE_SPREAD.to_string())
+        KnownChange {
+            version: "0.6.0",
+            kind: "case",
+            paths: &["beta.unlevered_dispersion.std_dev"],
+            explain: |_, rerun| {
+                rerun["beta"]["unlevered_dispersion"]["std_dev"]
+                    .is_null()
+                    .then(|| ONE_VALUE_SPREAD.to_string())
+            },
         },
-    },
-    KnownChange {
-        version: "0.6.0",
-        kind: "universe",
-        paths: &["industries"],
-        explain: |_, rerun| {
-            let singles = (rerun["industries"].as_array().into_iter().flatten())
-                .flat_map(|i| [&i["levered"], &i["shrunk"], &i["unlevered"]])
-                .any(|s| s["dispersion"]["count"] == 1);
-            singles.then(|| ONE_VALUE_SPREAD.to_string())
+        KnownChange {
+            version: "0.6.0",
+            kind: "universe",
+            paths: &["industries"],
+            explain: |_, rerun| {
+                let singles = (rerun["industries"].as_array().into_iter().flatten())
+                    .flat_map(|i| [&i["levered"], &i["shrunk"], &i["unlevered"]])
+                    .any(|s| s["dispersion"]["count"] == 1);
+                singles.then(|| ONE_VALUE_SPREAD.to_string())
+            },
         },
-    },
-    KnownChange {
-        version: "0.2.0",
-        kind: "case",
-        paths: &["cost_of_debt"],
-        // Only a coverage on its row's threshold (found by review: named for any coverage).
-        explain: |receipt, rerun| {
-            let cost = &rerun["cost_of_debt"];
-            let on_threshold = (cost["interest_coverage"].as_f64())
-                .zip(cost["row"]["min_coverage"].as_f64())
-                .is_some_and(|(coverage, low)| coverage <= low);
-            (receipt["cost_of_debt"]["source"] == "coverage" && on_threshold).then(|| {
-                "hurdle 0.2.0 gives an interest coverage equal to a coverage table's threshold \
+        KnownChange {
+            version: "0.2.0",
+            kind: "case",
+            paths: &["cost_of_debt"],
+            // Only a coverage on its row's threshold (found by review: named for any coverage).
+            explain: |receipt, rerun| {
+                let cost = &rerun["cost_of_debt"];
+                let on_threshold = (cost["interest_coverage"].as_f64())
+                    .zip(cost["row"]["min_coverage"].as_f64())
+                    .is_some_and(|(coverage, low)| coverage <= low);
+                (receipt["cost_of_debt"]["source"] == "coverage" && on_threshold).then(|| {
+                    "hurdle 0.2.0 gives an interest coverage equal to a coverage table's threshold \
                  that threshold's row (its double lies an ulp below the threshold, and an \
                  earlier version gave it the next worse rating and spread): a coverage on a \
                  threshold moves the cost of debt and the WACC (README, Changelog, \"Reviews \
                  of an auditor's, a reviewer's and a practitioner's use\")"
-                    .to_string()
-            })
+                        .to_string()
+                })
+            },
         },
-    },
-    KnownChange {
-        version: "0.4.0",
-        kind: "universe",
-        paths: &["counts", "industries", "notes", "securities"],
-        explain: |receipt, rerun| {
-            let leverage = &receipt["settings"]["leverage"];
-            let formula = match leverage["formula"].as_str() {
-                Some("harris-pringle") => "Harris–Pringle",
-                Some("conine") => "Conine",
-                _ => return None,
-            };
-            let applies = leverage["debt_beta_source"] == "none";
-            // The securities it concerns: those unlevered now from a negative beta (the raw
-            // or the adjusted one, whichever is unlevered; unlevering keeps the sign), none of
-            // which an earlier version unlevered (found by review: named by the raw beta, and
-            // also when no security was negative).
-            let negative: Vec<&str> = (rerun["securities"].as_array().into_iter().flatten())
-                .filter(|s| s["unlevered_beta"].as_f64().is_some_and(|b| b < 0.0))
-                .filter_map(|s| s["security"].as_str())
-                .collect();
-            (applies && !negative.is_empty()).then(|| {
-                let which = format!(
-                    "; here {} securit{} unlevered from a negative beta: {}",
-                    negative.len(),
-                    if negative.len() == 1 {
-                        "y is"
-                    } else {
-                        "ies are"
-                    },
-                    crate::universe::notes::first_ids(&negative)
-                );
-                format!(
-                    "hurdle 0.4.0 unlevers a negative equity beta under {formula} without a \
+        KnownChange {
+            version: "0.4.0",
+            kind: "universe",
+            paths: &["counts", "industries", "notes", "securities"],
+            explain: |receipt, rerun| {
+                let leverage = &receipt["settings"]["leverage"];
+                let formula = match leverage["formula"].as_str() {
+                    Some("harris-pringle") => "Harris–Pringle",
+                    Some("conine") => "Conine",
+                    _ => return None,
+                };
+                let applies = leverage["debt_beta_source"] == "none";
+                // The securities it concerns: those unlevered now from a negative beta (the raw
+                // or the adjusted one, whichever is unlevered; unlevering keeps the sign), none of
+                // which an earlier version unlevered (found by review: named by the raw beta, and
+                // also when no security was negative).
+                let negative: Vec<&str> = (rerun["securities"].as_array().into_iter().flatten())
+                    .filter(|s| s["unlevered_beta"].as_f64().is_some_and(|b| b < 0.0))
+                    .filter_map(|s| s["security"].as_str())
+                    .collect();
+                (applies && !negative.is_empty()).then(|| {
+                    let which = format!(
+                        "; here {} securit{} unlevered from a negative beta: {}",
+                        negative.len(),
+                        if negative.len() == 1 {
+                            "y is"
+                        } else {
+                            "ies are"
+                        },
+                        crate::universe::notes::first_ids(&negative)
+                    );
+                    format!(
+                        "hurdle 0.4.0 unlevers a negative equity beta under {formula} without a \
                      given debt beta, as a case does, where an earlier version left such a \
                      security out of its industry under a note that blamed a given debt beta: \
                      its industry's counts and figures move (README, Changelog, \"Loose ends \
                      of the reviews\"){which}"
-                )
-            })
+                    )
+                })
+            },
         },
-    },
-];
+    ];
+
+/// Whether a receipt's file entry names a Parquet file (by its extension).
+fn parquet_file(file: &Value) -> bool {
+    let path = file["path"].as_str().unwrap_or("").to_ascii_lowercase();
+    path.ends_with(".parquet") || path.ends_with(".pq")
+}
 
 /// The changes of figures ([`KNOWN_CHANGES`]) that a version later than the receipt's
 /// (`versions`: the receipt's, this one's), and no later than this one, made under the
@@ -333,6 +359,24 @@ mod tests {
         assert!(found(("0.8.0", "0.9.0"), "data/attributes.csv", &moved).is_empty());
         assert!(found(("0.9.0", "0.9.0"), "a.parquet", &moved).is_empty());
         assert!(found(("0.8.0", "0.9.0"), "a.pq", &mismatch("window.start")).is_empty());
+        // A case receipt reading a Parquet table, whose peers' figures moved.
+        let case = |path: &str| json!({"files": [{"role": "index", "path": path}]});
+        let beta = mismatch("peers.beta");
+        let named = known_changes(
+            "case",
+            ("0.8.0", "0.9.0"),
+            &[&beta],
+            (&case("t.parquet"), &json!({})),
+        );
+        assert_eq!(named.len(), 1);
+        assert!(named[0].starts_with("hurdle 0.9.0 reads a Parquet price table's 32-bit floats"));
+        let csv = known_changes(
+            "case",
+            ("0.8.0", "0.9.0"),
+            &[&beta],
+            (&case("t.csv"), &json!({})),
+        );
+        assert!(csv.is_empty());
     }
 
     // The change 0.4.0 made (README, Changelog, "Loose ends of the reviews") is named for a

@@ -164,6 +164,16 @@ pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
 /// else (dates, datetimes, text) as text, which the cell rules read.
 fn parquet_cells(column: &Column) -> PolarsResult<Vec<Cell>> {
     let dtype = column.dtype();
+    if dtype == &DataType::Float32 {
+        // By its shortest decimal, as a panel's and attributes' 32-bit floats are read.
+        return Ok((column.f32()?.iter())
+            .map(|v| {
+                v.map_or(Cell::Empty, |v| {
+                    Cell::Number(crate::io::parquet_types::f32_as_written(v))
+                })
+            })
+            .collect());
+    }
     if dtype.is_primitive_numeric() {
         let numbers = column.cast(&DataType::Float64)?;
         return Ok(numbers
