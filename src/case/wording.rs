@@ -36,6 +36,12 @@ pub fn estimator_problem(problem: &EstimatorProblem) -> String {
     format!("{problem}; {remedy}")
 }
 
+/// Why a security is not estimated when its estimator refused its settings: the message an
+/// estimator's error carries (`regression: …`) with the setting to change.
+pub fn estimator_failure(problem: &EstimatorProblem) -> String {
+    format!("regression: {}", estimator_problem(problem))
+}
+
 /// A cross-sectional Vasicek prior that `noun` (peers, securities) cannot give.
 pub fn prior_unavailable(problem: PriorUnavailable, noun: &str) -> String {
     format!(

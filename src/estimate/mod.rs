@@ -250,6 +250,17 @@ pub enum EstimateError {
     Settings(crate::error::EstimatorProblem),
 }
 
+impl From<crate::error::Error> for EstimateError {
+    /// An estimator's refusal: its settings' problem kept in figures for the caller to word,
+    /// anything else as its message.
+    fn from(error: crate::error::Error) -> Self {
+        match error {
+            crate::error::Error::Estimator(problem) => EstimateError::Settings(problem),
+            other => EstimateError::Estimator(other.to_string()),
+        }
+    }
+}
+
 /// Samples a price series onto the window's grid: period returns and which of them are stale.
 fn sample_returns(
     spec: &EstimationSpec,
@@ -322,10 +333,7 @@ pub fn estimate_security(
         &aligned.market_shifted,
         spec.case_extras,
     )
-    .map_err(|e| match e {
-        crate::error::Error::Estimator(problem) => EstimateError::Settings(problem),
-        other => EstimateError::Estimator(other.to_string()),
-    })?;
+    .map_err(EstimateError::from)?;
     let periods_in_window = window.period_ends().len();
     let rolling_points = rolling::rolling_betas(
         window.period_ends(),

@@ -146,15 +146,23 @@ pub fn read_series_file(
     })
 }
 
-/// A record longer than the header is refused: the shape check reads a quote anywhere as
-/// opening a field, while the csv crate reads a quote inside a field as text, so a decimal comma
-/// after a stray quote reaches the reader.
+/// A line of nothing but white space is refused as such, and a record longer than the header:
+/// the shape check reads a quote anywhere as opening a field, while the csv crate reads a quote
+/// inside a field as text, so a decimal comma after a stray quote reaches the reader.
 fn check_record_length(
     file: &Path,
     line: usize,
     record: &csv::StringRecord,
     fields: usize,
 ) -> Result<()> {
+    if record.len() == 1 && record[0].trim().is_empty() {
+        // Found by review: such a line was reported as an empty date.
+        return Err(Error::DataRow {
+            file: file.to_path_buf(),
+            line,
+            message: "the line holds only white space, no fields: delete it".into(),
+        });
+    }
     if record.len() <= fields {
         return Ok(());
     }
@@ -222,14 +230,6 @@ pub fn parse_series(
             return Err(blank_row(blank));
         }
         let line = start.line() as usize;
-        if record.len() == 1 && record[0].trim().is_empty() {
-            // Found by review: such a line was reported as an empty date.
-            return Err(Error::DataRow {
-                file: file.to_path_buf(),
-                line,
-                message: "the line holds only white space, no fields: delete it".into(),
-            });
-        }
         check_record_length(file, line, &record, header.len())?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();
         let (date, value) = parse_row(

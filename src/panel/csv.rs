@@ -516,18 +516,13 @@ pub(super) fn duplicate_error(
         .collect::<Vec<_>>()
         .join(" and ");
     let written: Vec<&str> = rows.iter().map(|(_, d)| d.as_str()).collect();
-    let times = super::times_of_one_day(&written);
-    let message = match columns.layout {
-        PanelLayout::Long => format!(
-            "duplicate row for security {} on {}{times} (lines {lines}: {}); each (date, \
-             security) pair may appear once",
-            duplicate.security,
-            duplicate.date,
-            duplicate.prices_text()
-        ),
-        PanelLayout::Wide => super::wide_duplicate_message(duplicate, &times, &lines, "lines"),
-    };
-    source.file_error(message)
+    let at = (lines.as_str(), "lines");
+    source.file_error(super::duplicate_message(
+        columns.layout,
+        duplicate,
+        &written,
+        at,
+    ))
 }
 
 /// The data rows (0-based) holding `duplicate` (long) or its date (wide), each with its date as

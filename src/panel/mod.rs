@@ -357,37 +357,48 @@ pub(crate) fn numbers_in_text(
         .map(|values| values.into_iter().collect())
 }
 
-/// " (written 2024-01-31T10:00 and 2024-01-31T16:00: dates are read without their time of
-/// day; …)" when a duplicate's rows write its date differently, else nothing: two times of one
-/// day are one date (found by review: intraday rows were called duplicates without saying why).
-pub(crate) fn times_of_one_day(written: &[&str]) -> String {
-    match written.windows(2).any(|w| w[0] != w[1]) {
+/// The message for a repeated (date, security) of a long panel, or a repeated date of a wide
+/// one, found at `places` (`unit`: lines or rows) with its date `written` as each row has it.
+/// Two times of one day are one date, which the message says (found by review: intraday rows
+/// were called duplicates without saying why); a wide file's repeated date is otherwise most
+/// often a long file read as wide.
+pub(crate) fn duplicate_message(
+    layout: PanelLayout,
+    duplicate: &Duplicate,
+    written: &[&str],
+    (places, unit): (&str, &str),
+) -> String {
+    let times = match written.windows(2).any(|w| w[0] != w[1]) {
         true => format!(
             " (written {}: dates are read without their time of day; keep one price a day, the \
              close)",
             written.join(" and ")
         ),
         false => String::new(),
-    }
-}
-
-/// A wide panel's date on two rows: written at two times of one day (`times`, from
-/// [`times_of_one_day`]), a day of intraday rows; else, most often, a long file read as wide.
-pub(crate) fn wide_duplicate_message(
-    duplicate: &Duplicate,
-    times: &str,
-    places: &str,
-    unit: &str,
-) -> String {
-    let advice = match times.is_empty() {
-        true => " (if this file has one row per date and security, set panel.layout = \"long\")",
-        false => "",
     };
-    format!(
-        "the date {}{times} appears on more than one row ({unit} {places}); a wide panel has one \
-         row per date{advice}",
-        duplicate.date
-    )
+    match layout {
+        PanelLayout::Long => format!(
+            "duplicate row for security {} on {}{times} ({unit} {places}: {}); each (date, \
+             security) pair may appear once",
+            duplicate.security,
+            duplicate.date,
+            duplicate.prices_text()
+        ),
+        PanelLayout::Wide => {
+            let advice = match times.is_empty() {
+                true => {
+                    " (if this file has one row per date and security, set panel.layout = \
+                     \"long\")"
+                }
+                false => "",
+            };
+            format!(
+                "the date {}{times} appears on more than one row ({unit} {places}); a wide panel \
+                 has one row per date{advice}",
+                duplicate.date
+            )
+        }
+    }
 }
 
 /// Lower-case hexadecimal of a digest.

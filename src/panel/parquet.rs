@@ -423,15 +423,11 @@ pub(super) fn duplicate_error(
     }
     let rows = found.join(" and ");
     let written: Vec<&str> = written.iter().map(|w| w.trim()).collect();
-    let times = super::times_of_one_day(&written);
-    source.file_error(match columns.layout {
-        PanelLayout::Long => format!(
-            "duplicate row for security {} on {}{times} (rows {rows}: {}); each (date, \
-             security) pair may appear once",
-            duplicate.security,
-            duplicate.date,
-            duplicate.prices_text()
-        ),
-        PanelLayout::Wide => super::wide_duplicate_message(duplicate, &times, &rows, "rows"),
-    })
+    let at = (rows.as_str(), "rows");
+    source.file_error(super::duplicate_message(
+        columns.layout,
+        duplicate,
+        &written,
+        at,
+    ))
 }

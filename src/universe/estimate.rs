@@ -247,24 +247,10 @@ impl Estimation {
                 )),
                 rolling: Vec::new(),
             },
-            (Err(EstimateError::Estimator(message)), _) => SecurityEstimate {
-                periods_dropped: None,
-                observations: None,
-                outcome: Err((NotEstimated::EstimatorFailed, message)),
-                rolling: Vec::new(),
-            },
-            (Err(EstimateError::Settings(problem)), _) => SecurityEstimate {
-                periods_dropped: None,
-                observations: None,
-                outcome: Err((
-                    NotEstimated::EstimatorFailed,
-                    format!(
-                        "regression: {}",
-                        crate::case::wording::estimator_problem(&problem)
-                    ),
-                )),
-                rolling: Vec::new(),
-            },
+            (Err(EstimateError::Estimator(message)), _) => estimator_failed(message),
+            (Err(EstimateError::Settings(problem)), _) => {
+                estimator_failed(crate::case::wording::estimator_failure(&problem))
+            }
         }
     }
 
@@ -360,4 +346,14 @@ pub struct WindowRecord {
     pub window_end: NaiveDate,
     pub excess_returns: bool,
     pub sampling_rule: &'static str,
+}
+
+/// A security the estimator refused, with why.
+fn estimator_failed(message: String) -> SecurityEstimate {
+    SecurityEstimate {
+        periods_dropped: None,
+        observations: None,
+        outcome: Err((NotEstimated::EstimatorFailed, message)),
+        rolling: Vec::new(),
+    }
 }

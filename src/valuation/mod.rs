@@ -292,12 +292,7 @@ fn failure_message(
             index.path
         ),
         EstimateError::Estimator(message) => message.clone(),
-        EstimateError::Settings(problem) => {
-            format!(
-                "regression: {}",
-                crate::case::wording::estimator_problem(problem)
-            )
-        }
+        EstimateError::Settings(problem) => crate::case::wording::estimator_failure(problem),
     }
 }
 
