@@ -2,8 +2,9 @@
 //!
 //! Estimates every security of the panel the universe file names as a case estimates a peer,
 //! unlevers each with its own capital structure and aggregates by industry; writes
-//! `securities.csv`/`.parquet`, `industries.csv`/`.parquet`, `summary.md` and `result.json`
-//! (and `rolling.csv`/`.parquet` with `universe.rolling = true`) to DIR (default: `output/`
+//! `securities.csv`/`.parquet`, `industries.csv`/`.parquet`, `figures/industries.svg`,
+//! `summary.md` and `result.json` (and `rolling.csv`/`.parquet` with `universe.rolling = true`)
+//! to DIR (default: `output/`
 //! beside the universe file), each atomically. On a terminal, progress bars show for reading
 //! the panel (drawn by the library's `progress`) and for estimating what is left, each once it
 //! has taken about a second; with `--quiet`, or when stderr is not a terminal, stderr carries

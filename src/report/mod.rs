@@ -107,6 +107,7 @@ pub fn stale_run_outputs(
             name == REPORT
                 || figures::is_chart_name(name)
                 || universe::OUTPUTS.contains(&name.as_str())
+                || universe::chart::is_chart_name(name)
         })
         .filter(|name| !written.contains(name) && dir.join(name).is_file())
         .collect();

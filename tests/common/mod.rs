@@ -1,6 +1,8 @@
 //! Helpers shared by the integration tests. Each test binary compiles this module and uses a
 //! subset of it, so every item carries `allow(dead_code)` for the binaries that do not.
 
+pub mod svg;
+
 use std::fs;
 use std::path::Path;
 use std::process::{Command, Output};

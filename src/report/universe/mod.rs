@@ -1,6 +1,7 @@
 //! The outputs of `hurdle universe`: `securities.csv`/`.parquet` (one row per security),
-//! `industries.csv`/`.parquet` (one row per industry), `summary.md` (the industry table for
-//! people, the settings and the cautions), `result.json` (the receipt) and, when asked for,
+//! `industries.csv`/`.parquet` (one row per industry), `figures/industries.svg` (the industry
+//! table as a chart, [`chart`]), `summary.md` (the industry table for people, the chart, the
+//! settings and the cautions), `result.json` (the receipt) and, when asked for,
 //! `rolling.csv`/`.parquet`.
 //!
 //! Each table is built once as a polars frame from the [`UniverseResult`] and written in both
@@ -13,6 +14,7 @@ use std::path::{Path, PathBuf};
 use polars::prelude::*;
 use rayon::prelude::*;
 
+pub mod chart;
 mod summary;
 use crate::error::{Error, Result};
 use crate::universe::industries::{IndustryResult, Summary};
@@ -54,6 +56,20 @@ pub fn write_outputs(
     // say REPRODUCED beside a receipt it never saw (found by review).
     if super::verifies_the_receipt_in(dir) {
         optional.extend(super::VERIFICATION.iter().map(|n| n.to_string()));
+    }
+    // An earlier run's chart parts this run may not draw again (fewer industries, fewer parts).
+    if let Ok(entries) = std::fs::read_dir(dir.join(super::figures::FOLDER)) {
+        optional.extend(
+            (entries.flatten())
+                .map(|e| {
+                    format!(
+                        "{}/{}",
+                        super::figures::FOLDER,
+                        e.file_name().to_string_lossy()
+                    )
+                })
+                .filter(|name| chart::is_chart_name(name)),
+        );
     }
     optional.sort();
     optional.dedup();
@@ -130,7 +146,13 @@ pub fn render(result: &UniverseResult) -> Result<Vec<(String, Vec<u8>)>> {
         })
         .collect::<Result<_>>()?;
     files.extend(tables);
-    files.push(("summary.md".into(), summary(result).into_bytes()));
+    let charts = chart::draw(result)?;
+    files.push(("summary.md".into(), summary(result, &charts).into_bytes()));
+    files.extend(
+        charts
+            .into_iter()
+            .map(|c| (c.file_name, c.svg.into_bytes())),
+    );
     let json =
         serde_json::to_vec_pretty(result).map_err(|e| frame_error(format!("result.json: {e}")))?;
     files.push(("result.json".into(), json));

@@ -282,7 +282,7 @@ fn flags_and_overrides(r: &UniverseResult) -> String {
 }
 
 /// `summary.md`: what was run, the industry table, the counts and the cautions.
-pub(super) fn summary(r: &UniverseResult) -> String {
+pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> String {
     let s = &r.settings;
     let mut out = String::new();
     let title = if r.universe.title.is_empty() {
@@ -335,6 +335,7 @@ pub(super) fn summary(r: &UniverseResult) -> String {
         c.unlevered
     );
     industry_table(&mut out, r);
+    chart_links(&mut out, charts);
     peer_set_section(&mut out, r);
     // A heading of their own, so that with a peer set the notes do not read as about the set
     // (found by review).
@@ -347,6 +348,25 @@ pub(super) fn summary(r: &UniverseResult) -> String {
     }
     out.push_str(&cautions(r));
     out
+}
+
+/// The chart of the industry table, each part as an image (the SVG files beside it).
+fn chart_links(out: &mut String, charts: &[super::chart::Chart]) {
+    if charts.is_empty() {
+        return;
+    }
+    let _ = writeln!(
+        out,
+        "\nThe same table drawn ({}): each industry's median with its 95% interval, its \
+         quartiles and its median levered β.\n",
+        match charts.len() {
+            1 => "`figures/industries.svg`".to_string(),
+            n => format!("`figures/industries.svg` and {} more parts", n - 1),
+        }
+    );
+    for c in charts {
+        let _ = writeln!(out, "![{}]({})\n", c.title, c.file_name);
+    }
 }
 
 /// The cautions every table carries, then those its settings call for.
