@@ -341,6 +341,53 @@ fn price_files() -> Vec<Bad> {
             ["run", "{case}", "--out", "{out}"],
             [PEER, "line 2", "`{row}`", "3 fields"]
         ),
+        // Found by review: with the header ending in a comma, a decimal comma's digits fell
+        // into the unnamed column and the price was read as its whole part, without a word.
+        bad!(
+            "decimal commas under a header ending in a comma",
+            |s| {
+                s.map_lines(PEER, |n, l| match n {
+                    1 => format!("{l},"),
+                    _ => l.replace('.', ","),
+                })
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [
+                PEER,
+                "line 2",
+                "column 3 has no name in the header",
+                "a number written with a decimal comma"
+            ]
+        ),
+        // Found by review: the advice on decimal commas fitted no cell of such rows.
+        bad!(
+            "rows ending in a comma the header lacks",
+            |s| s.map_lines(PEER, |n, l| match n {
+                1 => l.into(),
+                _ => format!("{l},"),
+            }),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                PEER,
+                "line 2",
+                "ends in a comma (an empty last field) the header lacks",
+                "end the header with a comma too"
+            ]
+        ),
+        bad!(
+            "a spreadsheet's separator line above the header",
+            |s| s.map_lines(PEER, |n, l| match n {
+                1 => format!("sep=,\n{l}"),
+                _ => l.into(),
+            }),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                PEER,
+                "no column named `date`",
+                "`sep=…`",
+                "delete that line"
+            ]
+        ),
         bad!(
             "ragged row",
             |s| {

@@ -217,6 +217,10 @@ pub fn parse_series(
         Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);
+    // Columns the header leaves unnamed, which must stay empty (`unnamed_value_message`).
+    let unnamed: Vec<usize> = (0..header.len())
+        .filter(|&i| header[i].trim().is_empty())
+        .collect();
     let rows = bytes.iter().filter(|&&b| b == b'\n').count();
     let mut dates = Vec::with_capacity(rows);
     let mut values = Vec::with_capacity(rows);
@@ -232,6 +236,14 @@ pub fn parse_series(
         let line = start.line() as usize;
         check_record_length(file, line, &record, header.len())?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();
+        if let Some(&at) = unnamed.iter().find(|&&at| !cell(at).is_empty()) {
+            let left = at.checked_sub(1).map(|l| (&header[l], cell(l)));
+            return Err(Error::DataRow {
+                file: file.to_path_buf(),
+                line,
+                message: super::sanity::unnamed_value_message(at + 1, cell(at), left),
+            });
+        }
         let (date, value) = parse_row(
             cell(date_at),
             cell(value_at),

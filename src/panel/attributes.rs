@@ -112,6 +112,7 @@ pub fn read_attributes(
     ];
     used.extend(columns.cash.as_deref());
     let mut whole_header = None;
+    let mut csv_header = None;
     let frame = match format {
         TableFormat::Csv => {
             // Empty lines after the last row are no rows (the hash below is of every byte).
@@ -126,6 +127,7 @@ pub fn read_attributes(
             if let Some((record, message)) = first_bad_record(bytes, expected, Some(fewest)) {
                 return Err(source.row_error(record.saturating_sub(1), message));
             }
+            csv_header = Some(header);
             CsvReadOptions::default()
                 .with_has_header(true)
                 // All text, so each number is parsed (and reported) here.
@@ -143,6 +145,9 @@ pub fn read_attributes(
         let message = crate::error::reader_message(&e);
         source.file_error(format!("not a readable table: {message}"))
     })?;
+    if let Some(header) = &csv_header {
+        check_unnamed(&source, header, &frame)?;
+    }
     let records = records(&source, &frame, whole_header, columns)?;
     let figures = [
         Some(&columns.equity_value),
@@ -168,6 +173,36 @@ pub fn read_attributes(
         records,
         thousands_points,
     })
+}
+
+/// A CSV attributes column the header leaves unnamed may not hold a value (found by review: a
+/// decimal comma, `0,25` under a header ending `tax_rate,`, was read as a tax rate of 0 with
+/// the 25 left unread); `frame` holds every column as text, in the header's order.
+fn check_unnamed(source: &Source, header: &[String], frame: &DataFrame) -> Result<()> {
+    let columns = frame.columns();
+    for (i, _) in header
+        .iter()
+        .enumerate()
+        .filter(|(_, name)| name.is_empty())
+    {
+        let Some(cells) = columns.get(i).map(super::checks::cell_texts) else {
+            continue;
+        };
+        if let Some((k, value)) =
+            (cells.iter().enumerate()).find_map(|(k, v)| Some((k, v.as_ref()?)))
+        {
+            let left = (i.checked_sub(1)).and_then(|l| {
+                let cell = super::checks::cell_texts(columns.get(l)?).get(k)?.clone()?;
+                Some((header[l].clone(), cell))
+            });
+            let left = left.as_ref().map(|(n, c)| (n.as_str(), c.as_str()));
+            return Err(source.row_error(
+                k,
+                crate::io::sanity::unnamed_value_message(i + 1, value, left),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// Whether the texts of column `name` look like [`ThousandsPoints`]: at least two hold one point

@@ -68,41 +68,65 @@ pub(super) fn check_wide_fields(
     check_records(source, block, (has_header, first_row), header)
 }
 
-/// A wide panel's column that the header does not name may not hold a price: whose would it
-/// be? (A trailing comma on every line gives such a column, empty, and is accepted.)
+/// A column that the header does not name may not hold a value: whose price would it be, and
+/// who would read it? (A trailing comma on every line gives such a column, empty, and is
+/// accepted.) The columns are a wide panel's (read as numbers) or a long panel's (read as text
+/// only for this check).
 pub(super) fn check_unnamed(
     source: &Source,
-    unnamed: &[(usize, String)],
+    plan: &super::csv::Plan,
     frame: &DataFrame,
     first_row: usize,
 ) -> Result<()> {
-    for (number, name) in unnamed {
-        let Ok(cells) = frame.column(name).and_then(|c| c.f64().cloned()) else {
+    for (number, name) in &plan.unnamed {
+        let Some(cells) = frame.column(name).ok().map(cell_texts) else {
             continue;
         };
-        let first = cells
-            .iter()
-            .enumerate()
-            .find_map(|(k, v)| v.map(|v| (k, v)));
-        if let Some((k, value)) = first {
-            return Err(unnamed_error(
-                source,
-                *number,
-                first_row + k,
-                &value.to_string(),
-            ));
+        if let Some((k, value)) =
+            (cells.iter().enumerate()).find_map(|(k, v)| Some((k, v.as_ref()?)))
+        {
+            let left = left_cell(plan, frame, *number, k);
+            let left = left.as_ref().map(|(n, c)| (n.as_str(), c.as_str()));
+            return Err(unnamed_error(source, (*number, first_row + k), value, left));
         }
     }
     Ok(())
 }
 
-/// The error for a value in a column the header leaves unnamed.
-pub(super) fn unnamed_error(source: &Source, number: usize, row: usize, value: &str) -> Error {
+/// A column's cells as text, an empty or white-space cell as `None`.
+pub(super) fn cell_texts(column: &Column) -> Vec<Option<String>> {
+    match (column.f64(), column.str()) {
+        (Ok(numbers), _) => numbers.iter().map(|v| v.map(|v| v.to_string())).collect(),
+        (_, Ok(texts)) => (texts.iter())
+            .map(|t| t.map(str::trim).filter(|t| !t.is_empty()).map(String::from))
+            .collect(),
+        _ => Vec::new(),
+    }
+}
+
+/// The header's name of the column before column `number` (from 1) and its cell on row `k`
+/// of `frame`, when the frame holds that column.
+pub(super) fn left_cell(
+    plan: &super::csv::Plan,
+    frame: &DataFrame,
+    number: usize,
+    k: usize,
+) -> Option<(String, String)> {
+    let left = number.checked_sub(2)?;
+    let name = plan.schema.get_at_index(left)?.0;
+    let cell = cell_texts(frame.column(name).ok()?).get(k)?.clone()?;
+    Some((plan.header[left].clone(), cell))
+}
+
+/// The error for a value in a column the header leaves unnamed, at (`number`, `row`).
+pub(super) fn unnamed_error(
+    source: &Source,
+    (number, row): (usize, usize),
+    value: &str,
+    left: Option<(&str, &str)>,
+) -> Error {
     source.row_error(
         row,
-        format!(
-            "column {number} has no name in the header but holds \"{value}\": a wide panel's \
-             columns are named by security"
-        ),
+        crate::io::sanity::unnamed_value_message(number, value, left),
     )
 }

@@ -36,15 +36,15 @@ const BLOCK_BYTES: usize = 4 << 20;
 const BLOCK_ROWS: usize = 2048;
 
 /// How the blocks of one file are parsed, fixed by its header.
-struct Plan {
-    header: Vec<String>,
-    schema: SchemaRef,
+pub(super) struct Plan {
+    pub(super) header: Vec<String>,
+    pub(super) schema: SchemaRef,
     projection: Arc<Vec<usize>>,
     /// Wide layout: each security column's name and dictionary id.
     wide: Vec<(String, u32)>,
-    /// Wide layout: the columns the header leaves unnamed, by number (from 1) and schema name;
-    /// read only to check that they hold nothing.
-    unnamed: Vec<(usize, String)>,
+    /// The columns the header leaves unnamed, by number (from 1) and schema name; read only to
+    /// check that they hold nothing (a long panel's as text).
+    pub(super) unnamed: Vec<(usize, String)>,
 }
 
 /// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes. Securities
@@ -82,7 +82,7 @@ pub(super) fn read(
             let plan = plan.as_ref().expect("set by the first block");
             let frame = parse_or_trimmed(block, plan, first, quoted)
                 .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
-            check_unnamed(source, &plan.unnamed, &frame, next_row)?;
+            check_unnamed(source, plan, &frame, next_row)?;
             let height = frame.height();
             if columns.layout == PanelLayout::Wide {
                 let rows = (next_row, height);
@@ -191,6 +191,9 @@ fn plan_for(
             let price = position(&columns.price_column, "panel.price_column")?;
             dtypes[price] = DataType::Float64;
             let mut projection = vec![date, security, price];
+            // A column the header does not name is read, as text, only to check that it is
+            // empty (found by review: a decimal comma's digits sat there unread).
+            projection.extend((0..header.len()).filter(|&i| header[i].is_empty()));
             projection.sort_unstable();
             (projection, Vec::new())
         }
@@ -219,7 +222,7 @@ fn plan_for(
         .zip(dtypes)
         .map(|(name, dtype)| Field::new(name.as_str().into(), dtype))
         .collect::<Schema>();
-    let unnamed = unnamed_columns(&header, columns.layout);
+    let unnamed = unnamed_columns(&header);
     Ok(Plan {
         header,
         schema: Arc::new(schema),
@@ -229,11 +232,8 @@ fn plan_for(
     })
 }
 
-/// A wide header's columns without a name, by number (from 1) and schema name.
-fn unnamed_columns(header: &[String], layout: PanelLayout) -> Vec<(usize, String)> {
-    if layout == PanelLayout::Long {
-        return Vec::new();
-    }
+/// A header's columns without a name, by number (from 1) and schema name.
+fn unnamed_columns(header: &[String]) -> Vec<(usize, String)> {
     let names = schema_names(header).into_iter().enumerate();
     names
         .filter(|(i, _)| header[*i].is_empty())
@@ -466,15 +466,14 @@ fn diagnose(
     }
     if let Ok(text) = read_as_text(block, plan, has_header) {
         for (number, name) in &plan.unnamed {
-            let Ok(cells) = text.column(name).and_then(|c| c.str().cloned()) else {
+            let Some(cells) = text.column(name).ok().map(super::checks::cell_texts) else {
                 continue;
             };
-            let first = cells
-                .iter()
-                .enumerate()
-                .find_map(|(k, c)| c.filter(|c| !c.trim().is_empty()).map(|c| (k, c)));
+            let first = (cells.iter().enumerate()).find_map(|(k, c)| Some((k, c.as_ref()?)));
             if let Some((k, cell)) = first {
-                return unnamed_error(source, *number, first_row + k, cell);
+                let left = super::checks::left_cell(plan, &text, *number, k);
+                let left = left.as_ref().map(|(n, c)| (n.as_str(), c.as_str()));
+                return unnamed_error(source, (*number, first_row + k), cell, left);
             }
         }
         for name in price_columns(plan, columns) {

@@ -407,8 +407,22 @@ fn check_header(raw: &RawTable) -> std::result::Result<(), String> {
     for (j, name) in raw.header.iter().enumerate() {
         if name.is_empty() {
             if let Some(i) = raw.columns[j].iter().position(|c| !c.is_empty()) {
+                // A CSV's decimal comma splits a price in two (`42,0000`): said when the cells
+                // read so (found by review).
+                let plain = |c: &Cell| match c {
+                    Cell::Text(text) => Some(text.trim().to_string()),
+                    Cell::Number(x) if x.fract() == 0.0 && x.abs() < 1e15 => Some(format!("{x}")),
+                    _ => None,
+                };
+                let comma = (j.checked_sub(1))
+                    .and_then(|l| {
+                        let (left, here) = (plain(&raw.columns[l][i])?, plain(&raw.columns[j][i])?);
+                        crate::io::sanity::decimal_comma_hint(&raw.header[l], &left, &here)
+                    })
+                    .unwrap_or_default();
                 return Err(format!(
-                    "{} has no header, but {} below it holds {}; name the column",
+                    "{} has no header, but {} below it holds {}{comma}; name the column, or \
+                     leave it empty",
                     place.header_cell(j),
                     place.cell(i, j),
                     raw.columns[j][i].shown()
