@@ -2892,6 +2892,23 @@ fn thousands_separators_in_the_attributes_are_noted() {
         ),
         "{summary}"
     );
+    // Every equity value separated (none under a thousand) beside debt without points: each
+    // is scaled alike, but the D/E divides one column by the other (found by review).
+    let setup = Setup::new();
+    let separated = edit_attributes(&setup.dir(), "market_cap", |cells, at| {
+        let value = cells[at("market_cap")].parse::<u64>().ok()? + 1000;
+        Some(format!("{}.{:03}", value / 1000, value % 1000))
+    });
+    assert!(separated >= 2, "{separated} figures separated");
+    let out = setup.succeeds("out", &[]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains(
+            "every figure of `market_cap` in attributes.csv has a point with exactly three \
+             digits after it"
+        ) && summary.contains("while no figure of `debt` has one"),
+        "{summary}"
+    );
     // The unedited file gives no such note.
     let setup = Setup::new();
     let plain = setup.succeeds("out", &[]);

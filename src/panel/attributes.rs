@@ -70,6 +70,10 @@ pub struct ThousandsPoints {
     /// Up to two figures with a point, and one without, as written.
     pub with_point: Vec<String>,
     pub without_point: String,
+    /// The other figure column `without_point` is from, when every figure of `column` has a
+    /// point while that column has none: each is then scaled alike within its column, but the
+    /// D/E divides one by the other.
+    pub beside: Option<String>,
 }
 
 impl Attributes {
@@ -154,10 +158,17 @@ pub fn read_attributes(
         Some(&columns.debt),
         columns.cash.as_ref(),
     ];
-    let thousands_points = (figures.into_iter().flatten())
+    let texts: Vec<(&str, Vec<&str>)> = (figures.into_iter().flatten())
         .filter_map(|name| {
             let cells = frame.column(name).ok()?.str().ok()?;
-            thousands_points(name, cells.iter().flatten().map(str::trim))
+            let texts = cells.iter().flatten().map(str::trim);
+            Some((name.as_str(), texts.filter(|t| !t.is_empty()).collect()))
+        })
+        .collect();
+    let thousands_points = (texts.iter())
+        .filter_map(|(name, cells)| {
+            (thousands_points(name, cells.iter().copied()))
+                .or_else(|| points_against_whole(name, cells, &texts))
         })
         .collect();
     check_listed_once(&source, &records)?;
@@ -215,6 +226,45 @@ pub fn thousands_points<'a>(
     name: &str,
     texts: impl Iterator<Item = &'a str>,
 ) -> Option<ThousandsPoints> {
+    let (with_point, count, without_point) = grouped_points(texts)?;
+    let without_point = without_point?;
+    (count >= 2).then(|| ThousandsPoints {
+        column: name.to_string(),
+        with_point,
+        without_point,
+        beside: None,
+    })
+}
+
+/// A figure column all of whose figures (two at least) have a point as a thousands separator
+/// would put one, beside another figure column none of whose figures has a point (found by
+/// review: market values written `24.000` beside debt written `600` were read as 24 and 600,
+/// a D/E a thousand times too high, with no word but the D/E limit's).
+fn points_against_whole(
+    name: &str,
+    cells: &[&str],
+    columns: &[(&str, Vec<&str>)],
+) -> Option<ThousandsPoints> {
+    let (with_point, count, without_point) = grouped_points(cells.iter().copied())?;
+    if count < 2 || without_point.is_some() {
+        return None;
+    }
+    let (other, whole) = (columns.iter()).find(|(other, figures)| {
+        other != &name && !figures.is_empty() && figures.iter().all(|f| !f.contains('.'))
+    })?;
+    Some(ThousandsPoints {
+        column: name.to_string(),
+        with_point,
+        without_point: whole[0].to_string(),
+        beside: Some(other.to_string()),
+    })
+}
+
+/// Up to two figures with a point placed as a thousands separator would place it, how many
+/// there are, and a figure without a point; `None` when a figure holds a point another way.
+fn grouped_points<'a>(
+    texts: impl Iterator<Item = &'a str>,
+) -> Option<(Vec<String>, usize, Option<String>)> {
     let grouped = |t: &str| {
         t.split_once('.').is_some_and(|(head, tail)| {
             (1..=3).contains(&head.len())
@@ -239,12 +289,7 @@ pub fn thousands_points<'a>(
             }
         }
     }
-    let without_point = without_point?;
-    (count >= 2).then(|| ThousandsPoints {
-        column: name.to_string(),
-        with_point,
-        without_point,
-    })
+    Some((with_point, count, without_point))
 }
 
 /// Refuses a security listed twice, naming both rows.
@@ -533,6 +578,7 @@ mod tests {
                 column: "cap".into(),
                 with_point: vec!["66.471".into(), "9.402".into()],
                 without_point: "512".into(),
+                beside: None,
             })
         );
         for texts in [
@@ -548,5 +594,28 @@ mod tests {
                 "{texts:?}"
             );
         }
+    }
+
+    // Worked by hand: every equity value grouped (24.000, 11.500) beside debt without points
+    // (600) qualifies against the debt column; beside debt with a decimal point (600.5) no
+    // column is known to be whole, and one grouped figure alone is not a pattern.
+    #[test]
+    fn grouped_figures_beside_a_whole_column_are_found() {
+        let cap = vec!["24.000", "11.500"];
+        let columns = vec![("cap", cap.clone()), ("debt", vec!["600", "0"])];
+        assert_eq!(
+            points_against_whole("cap", &cap, &columns),
+            Some(ThousandsPoints {
+                column: "cap".into(),
+                with_point: vec!["24.000".into(), "11.500".into()],
+                without_point: "600".into(),
+                beside: Some("debt".into()),
+            })
+        );
+        let columns = vec![("cap", cap.clone()), ("debt", vec!["600.5", "0"])];
+        assert_eq!(points_against_whole("cap", &cap, &columns), None);
+        let one = vec!["24.000"];
+        let columns = vec![("cap", one.clone()), ("debt", vec!["600"])];
+        assert_eq!(points_against_whole("cap", &one, &columns), None);
     }
 }

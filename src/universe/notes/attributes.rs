@@ -15,16 +15,24 @@ pub(super) fn thousands_notes(inputs: &UniverseInputs) -> Vec<String> {
     let attributes = &inputs.attributes;
     (attributes.thousands_points.iter())
         .map(|t| {
+            let (which, others) = match &t.beside {
+                None => (
+                    "written with a point has exactly three digits after it",
+                    format!("others have none ({})", t.without_point),
+                ),
+                Some(other) => (
+                    "has a point with exactly three digits after it",
+                    format!("no figure of `{other}` has one ({})", t.without_point),
+                ),
+            };
             format!(
-                "every figure of `{}` in {} written with a point has exactly three digits after \
-                 it ({}) while others have none ({}): if the point separates thousands ({} for \
-                 {}), those figures are read as a thousandth of their value and the D/E and \
-                 weights built on them are wrong; write figures without thousands separators, a \
-                 point only before decimals",
+                "every figure of `{}` in {} {which} ({}) while {others}: if the point separates \
+                 thousands ({} for {}), those figures are read as a thousandth of their value \
+                 and the D/E and weights built on them are wrong; write figures without \
+                 thousands separators, a point only before decimals",
                 t.column,
                 attributes.file.path,
                 t.with_point.join(", "),
-                t.without_point,
                 t.with_point[0],
                 t.with_point[0].replace('.', ",")
             )
