@@ -2877,14 +2877,19 @@ fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
 // beside whole figures can be meant) but the summary's notes say what the points may be.
 #[test]
 fn thousands_separators_in_the_attributes_are_noted() {
-    let setup = Setup::new();
-    let separated = edit_attributes(&setup.dir(), "market_cap", |cells, at| {
-        let value = cells[at("market_cap")].parse::<u64>().ok()?;
-        (value >= 1000).then(|| format!("{}.{:03}", value / 1000, value % 1000))
-    });
-    assert!(separated >= 2, "{separated} figures separated");
-    let out = setup.succeeds("out", &[]);
-    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    // `market_cap` written with a point where a thousands separator goes, from the value
+    // `shift` (0 or 1000) gives it; the summary's text.
+    let summary_with_points = |shift: u64| {
+        let setup = Setup::new();
+        let separated = edit_attributes(&setup.dir(), "market_cap", |cells, at| {
+            let value = cells[at("market_cap")].parse::<u64>().ok()? + shift;
+            (value >= 1000).then(|| format!("{}.{:03}", value / 1000, value % 1000))
+        });
+        assert!(separated >= 2, "{separated} figures separated");
+        let out = setup.succeeds("out", &[]);
+        fs::read_to_string(out.join("summary.md")).unwrap()
+    };
+    let summary = summary_with_points(0);
     assert!(
         summary.contains(
             "every figure of `market_cap` in attributes.csv written with a point has exactly \
@@ -2894,14 +2899,7 @@ fn thousands_separators_in_the_attributes_are_noted() {
     );
     // Every equity value separated (none under a thousand) beside debt without points: each
     // is scaled alike, but the D/E divides one column by the other (found by review).
-    let setup = Setup::new();
-    let separated = edit_attributes(&setup.dir(), "market_cap", |cells, at| {
-        let value = cells[at("market_cap")].parse::<u64>().ok()? + 1000;
-        Some(format!("{}.{:03}", value / 1000, value % 1000))
-    });
-    assert!(separated >= 2, "{separated} figures separated");
-    let out = setup.succeeds("out", &[]);
-    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    let summary = summary_with_points(1000);
     assert!(
         summary.contains(
             "every figure of `market_cap` in attributes.csv has a point with exactly three \
