@@ -2922,6 +2922,21 @@ fn thousands_separators_in_the_attributes_are_noted() {
 // header.
 #[test]
 fn spreadsheet_exports_are_refused_with_the_advice_that_fits() {
+    // A European export: quoted names separated by semicolons (it was taken for a quoting slip).
+    refused(
+        |dir| {
+            replace_line(
+                &dir.join("prices-long.csv"),
+                1,
+                "\"date\";\"security\";\"close\"",
+            );
+        },
+        &[],
+        &[
+            "prices-long.csv, line 1",
+            "is separated by semicolons, not commas",
+        ],
+    );
     refused(
         |dir| {
             let mut cells = attributes_row(dir, 3);

@@ -377,6 +377,40 @@ fn a_decimal_comma_in_a_wide_csv_is_named_by_line() {
     assert!(stderr.contains("fields but the header has"), "{stderr}");
 }
 
+// A wide CSV table saved as UTF-16 is named as such, after its file name alone (found by review:
+// an empty slot read `prices.csv: : the file is …`); a decimal comma under a header ending in a
+// comma (its digits in the unnamed column) says so.
+#[test]
+fn a_utf16_table_and_a_decimal_comma_under_an_unnamed_column_are_named() {
+    let copy = WideCopy::new();
+    let path = copy.path("data/prices.csv");
+    let csv = fs::read_to_string(&path).unwrap();
+    let utf16: Vec<u8> = [0xFF, 0xFE]
+        .into_iter()
+        .chain(csv.encode_utf16().flat_map(u16::to_le_bytes))
+        .collect();
+    fs::write(&path, utf16).unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(
+        stderr.contains("prices.csv: the file is text saved as UTF-16"),
+        "{stderr}"
+    );
+    let copy = WideCopy::new();
+    let path = copy.path("data/prices.csv");
+    let mut lines: Vec<String> = csv.lines().map(String::from).collect();
+    lines[0].push(',');
+    // The last column's price, 26.0000 say, written 26,0000.
+    let last = lines[9].rfind('.').unwrap();
+    lines[9].replace_range(last..=last, ",");
+    fs::write(&path, lines.join("\n") + "\n").unwrap();
+    let stderr = copy.fail("case.toml");
+    assert!(stderr.contains("line 10"), "{stderr}");
+    assert!(
+        stderr.contains("a number written with a decimal comma"),
+        "{stderr}"
+    );
+}
+
 // A row cut short in a wide CSV table would read its last peers' prices as gaps (an empty cell
 // is a gap): it is refused naming its line, not accepted with two peers missing a day (found by
 // review).

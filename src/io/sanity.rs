@@ -334,7 +334,17 @@ pub fn first_bad_record(
         r.quoting.is_some() || r.fields > expected || short
     })?;
     let text = record_text(bytes, &found);
+    // Quoted fields separated by semicolons or tabs (`"date";"security"`): another separator,
+    // not a quoting slip (found by review).
+    let separator = [("\";", "semicolons"), ("\"\t", "tabs")]
+        .into_iter()
+        .find(|(pair, _)| text.contains(pair));
     let message = match found.quoting {
+        Some(Quoting::AfterClosingQuote) if separator.is_some() => format!(
+            "`{text}` is separated by {}, not commas: hurdle reads comma-separated files with \
+             a decimal point; save the file comma-separated",
+            separator.map_or("", |(_, which)| which)
+        ),
         Some(Quoting::AfterClosingQuote) => format!(
             "`{text}` has text after a quoted field's closing quote; a quote inside quoted text \
              is written twice (\"\"), and a field holding a comma is quoted whole, its quote \

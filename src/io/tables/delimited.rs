@@ -26,6 +26,8 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
                 // A title line above the table has fewer fields than the header below it.
                 return Err(title_line(bytes).unwrap_or(format!("line {line}: {message}")));
             }
+            // The caller names the file (found by review: an empty name left `: :`).
+            Err(crate::error::Error::DataFile { message, .. }) => return Err(message),
             Err(e) => return Err(e.to_string()),
         }
     }
