@@ -79,25 +79,43 @@ fn parts(out: &Path) -> Vec<String> {
     names
 }
 
-/// The row labels of a part, top to bottom, each as its full text (the tooltip of a shortened
-/// one), with its pixel row.
+/// The row labels of a part, top to bottom, each as its full text (a label of two lines
+/// joined; a cut one's tooltip), with its pixel row (the middle of its lines).
 fn labels(svg: &[Element]) -> Vec<(String, f64)> {
-    let mut rows: Vec<(String, f64)> = in_group(svg, "y-axis")
+    // Labels are set right of their text; the dividers' words left.
+    let mut lines: Vec<&Element> = in_group(svg, "y-axis")
         .into_iter()
-        // Labels are set right of their text; the dividers' words left.
         .filter(|e| e.tag == "text" && e.attributes["text-anchor"] == "end")
-        .map(|e| {
-            let full = e.tooltip.clone().unwrap_or_else(|| e.text.clone());
-            (full, e.number("y"))
-        })
         .collect();
-    rows.sort_by(|a, b| a.1.total_cmp(&b.1));
-    rows
+    lines.sort_by(|a, b| a.number("y").total_cmp(&b.number("y")));
+    // A label's two lines are 16 px apart; two rows' lines at least 18 (34 px rows).
+    let mut rows: Vec<(Vec<&Element>, f64)> = Vec::new();
+    for line in lines {
+        let y = line.number("y");
+        match rows.last_mut() {
+            Some((group, last)) if y - *last <= 17.0 => {
+                group.push(line);
+                *last = y;
+            }
+            _ => rows.push((vec![line], y)),
+        }
+    }
+    rows.into_iter()
+        .map(|(group, _)| {
+            let full = (group[0].tooltip.clone()).unwrap_or_else(|| {
+                let texts: Vec<&str> = group.iter().map(|e| e.text.as_str()).collect();
+                texts.join(" ")
+            });
+            let middle = group.iter().map(|e| e.number("y")).sum::<f64>() / group.len() as f64;
+            (full, middle)
+        })
+        .collect()
 }
 
-/// Checks every mark of every row of the chart in `out` against `industries.csv`: the rows are
-/// the table's industries from the highest `unlevered_beta` down (those without one last), each
-/// labelled with its `unlevered_beta_count`.
+/// Checks every mark of every row of the chart in `out` against `industries.csv`: each part
+/// opens with the peer set (when the universe lists one), then the table's industries from the
+/// highest `unlevered_beta` down (those without one last), each labelled with how many of its
+/// securities the unlevered betas rest on.
 fn check_chart(out: &Path) {
     let table = table(out);
     let mut expected: Vec<&HashMap<String, String>> = table.iter().collect();
@@ -108,14 +126,17 @@ fn check_chart(out: &Path) {
             .then(a["industry"].cmp(&b["industry"]))
     });
     let peer_set = peer_set_row(out);
-    if let Some(row) = &peer_set {
-        expected.insert(0, row);
-    }
+    // The ring is the median of the betas unlevered: the adjusted ones when there are any.
+    let adjusted = table.iter().any(|r| r.contains_key("median_shrunk_beta"));
+    let ring_column = if adjusted {
+        "median_shrunk_beta"
+    } else {
+        "median_beta"
+    };
     let mut k = 0;
     for part in parts(out) {
         let svg = parse(&fs::read_to_string(out.join("figures").join(&part)).unwrap());
         let x = Axis::read(&svg, "x-axis", "x");
-        let rows = labels(&svg);
         let dots = in_group(&svg, "median");
         let rings = in_group(&svg, "levered-median");
         let bands = in_group(&svg, "quartiles");
@@ -123,16 +144,26 @@ fn check_chart(out: &Path) {
             .map(|e| e.points())
             .filter(|p| p.len() == 2 && p[0].1 == p[1].1)
             .collect();
-        // Marks by their pixel row: a row's marks sit on its label's line (±1 px).
+        // Marks by their pixel row: a row's marks sit on its label's middle (±1 px).
         let on_row = |y: f64, cy: f64| (y - cy).abs() <= 1.0;
-        for (label, y) in &rows {
-            let row = expected[k];
-            k += 1;
+        for (i, (label, y)) in labels(&svg).iter().enumerate() {
+            let row = match (&peer_set, i) {
+                (Some(set), 0) => set,
+                _ => {
+                    k += 1;
+                    expected[k - 1]
+                }
+            };
             let count = row
                 .get("unlevered_beta_count")
                 .map_or("0".to_string(), |c| c.clone());
-            assert_eq!(label, &format!("{} ({count})", row["industry"]), "{part}");
             let name = &row["industry"];
+            let securities = &row["securities"];
+            assert_eq!(
+                label,
+                &format!("{name} ({count} of {securities})"),
+                "{part}"
+            );
             let dot = dots.iter().find(|d| on_row(*y, d.number("cy")));
             match number(row, "median_unlevered_beta") {
                 Some(median) => {
@@ -142,7 +173,7 @@ fn check_chart(out: &Path) {
                 None => assert!(dot.is_none(), "{name}: a median drawn without one"),
             }
             let ring = rings.iter().find(|r| on_row(*y, r.number("cy")));
-            if let Some(levered) = number(row, "median_beta") {
+            if let Some(levered) = number(row, ring_column) {
                 let ring = ring.unwrap_or_else(|| panic!("{name}: no levered median"));
                 close(name, x.value(ring.number("cx")), levered, x.tolerance());
             }
@@ -150,14 +181,19 @@ fn check_chart(out: &Path) {
                 let middle = b.number("y") + b.number("height") / 2.0;
                 on_row(*y, middle)
             });
-            if let (Some(low), Some(high)) = (
+            // Quartiles are drawn from four betas (chart.rs's BAND_FROM).
+            let banded = count.parse::<usize>().unwrap() >= 4;
+            match (
                 number(row, "lower_quartile_unlevered_beta"),
                 number(row, "upper_quartile_unlevered_beta"),
             ) {
-                let band = band.unwrap_or_else(|| panic!("{name}: no quartile band"));
-                close(name, x.value(band.number("x")), low, x.tolerance());
-                let right = band.number("x") + band.number("width");
-                close(name, x.value(right), high, x.tolerance());
+                (Some(low), Some(high)) if banded => {
+                    let band = band.unwrap_or_else(|| panic!("{name}: no quartile band"));
+                    close(name, x.value(band.number("x")), low, x.tolerance());
+                    let right = band.number("x") + band.number("width");
+                    close(name, x.value(right), high, x.tolerance());
+                }
+                _ => assert!(band.is_none(), "{name}: a band drawn under four betas"),
             }
             let whisker = whiskers.iter().find(|w| on_row(*y, w[0].1));
             match (
@@ -173,11 +209,7 @@ fn check_chart(out: &Path) {
             }
         }
     }
-    assert_eq!(
-        k,
-        table.len() + usize::from(peer_set.is_some()),
-        "every industry is drawn once"
-    );
+    assert_eq!(k, table.len(), "every industry is drawn once");
 }
 
 /// The listed peer set's figures from `result.json` under industries.csv's column names (the
@@ -206,7 +238,12 @@ fn peer_set_row(out: &Path) -> Option<HashMap<String, String>> {
         "median_unlevered_beta_ci_high",
         &unlevered["median_interval"][1],
     );
+    put("securities", &figures["securities"]);
     put("median_beta", &figures["levered"]["dispersion"]["median"]);
+    put(
+        "median_shrunk_beta",
+        &figures["shrunk"]["dispersion"]["median"],
+    );
     put("unlevered_beta", &figures["unlevered_beta"]);
     Some(row)
 }
@@ -233,7 +270,8 @@ fn the_chart_draws_the_industry_table() {
         summary.contains("](figures/industries.svg)"),
         "summary.md shows the chart"
     );
-    // The mean as the industry figure: its marker is drawn, and the rows follow it.
+    // The mean as the industry figure: its marker is drawn, and the rows follow it (the test
+    // universe lists no peer set, so the triangles run in the rows' order).
     let mean = root.path().join("mean");
     run_universe(&dir, &mean, &["leverage.aggregation=mean"]);
     check_chart(&mean);
@@ -286,10 +324,10 @@ fn many_industries_are_drawn_in_parts_and_fewer_take_the_extra_parts_away() {
     run_universe(&dir, &out, &[]);
     let many = parts(&out);
     check_chart(&out);
-    // The industries and the peer set's row, 24 rows a part (chart.rs's ROWS_PER_PART).
-    let rows = table(&out).len() + 1;
-    assert!(rows > 24, "{rows}");
-    assert_eq!(many.len(), rows.div_ceil(24), "{many:?}");
+    // 24 rows a part (chart.rs's ROWS_PER_PART), the peer set's row opening each.
+    let industries = table(&out).len();
+    assert!(industries > 23, "{industries}");
+    assert_eq!(many.len(), industries.div_ceil(23), "{many:?}");
     // The original labels again: one part, and the earlier run's later parts are gone.
     fs::write(&path, original).unwrap();
     run_universe(&dir, &out, &[]);

@@ -7,6 +7,12 @@
 //! from the highest figure a case would relever down, the listed peer set on top, industries
 //! without an unlevered beta last.
 //!
+//! A median resting on fewer than six betas (no interval) is drawn lighter and one on fewer
+//! than four has no band, so a small industry does not look the most precise; the ring is the
+//! median of the levered betas that were unlevered (adjusted, when an adjustment is set); a
+//! value beyond the axis's limits is drawn at its edge with its value; a long label takes two
+//! lines and keeps its count; every part opens with the peer set, for comparison.
+//!
 //! Drawn from the [`UniverseResult`]'s industry rows, the figures `industries.csv` writes;
 //! nothing here computes a figure. The drawing parts are the case charts' own
 //! ([`crate::report::figures`]).
@@ -14,12 +20,13 @@
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
+use crate::beta::Adjustment;
 use crate::error::Result;
 use crate::report::figures::axes::{extent, plot_layer, Axes, Scale};
-use crate::report::figures::canvas::{distinct_middle, Canvas};
-use crate::report::figures::frame::{fit, triangle, Layout, Mark};
+use crate::report::figures::canvas::Canvas;
+use crate::report::figures::frame::{triangle, Layout, Mark, CHAR_EM};
 use crate::report::figures::style::{self, ACCENT, BAND, INK, MUTED, NEUTRAL, PRIMARY, RULE};
-use crate::report::format::{fixed, label};
+use crate::report::format::fixed;
 use crate::stats::Aggregation;
 use crate::universe::industries::{IndustryResult, Summary};
 use crate::universe::UniverseResult;
@@ -30,13 +37,24 @@ pub const CHART: &str = "figures/industries.svg";
 const PART_PREFIX: &str = "figures/industries-";
 
 const WIDTH: u32 = 760;
-/// Pixels per row.
-const ROW: f64 = 30.0;
-/// The most rows one part holds: 24 rows of 30 px with the title, legend, axis and caption
-/// bands make a chart of about 1,000 px, which prints on a page at the width's scale.
+/// Pixels per row: room for a label of two lines.
+const ROW: f64 = 34.0;
+/// The most rows one part holds: 24 rows of 34 px with the title, legend, axis and caption
+/// bands make a chart of about 1,100 px, which prints on a page at the width's scale. A table
+/// of more rows is cut into parts of about equal length, each opening with the peer set.
 const ROWS_PER_PART: usize = 24;
 /// Width of the band of industry labels.
-const NAMES: u32 = 240;
+const NAMES: u32 = 300;
+/// Fewer drawn betas than this give no interval (`stats::median_interval`): their median is
+/// drawn lighter, as less certain.
+const INTERVAL_FROM: usize = 6;
+/// Fewer drawn betas than this give no quartile band (quartiles of two or three values say
+/// little).
+const BAND_FROM: usize = 4;
+/// The β axis spans the marks but no more than this: an industry far outside (a shell company's
+/// beta of the operations at 40, say) would squeeze every other row into a few pixels. A mark
+/// beyond is drawn at the edge, with its value.
+const AXIS_LIMITS: (f64, f64) = (-1.0, 4.0);
 
 /// One drawn part.
 #[derive(Debug, Clone)]
@@ -74,13 +92,28 @@ struct Row<'a> {
 
 /// What the chart draws of a universe's settings.
 #[derive(Clone, Copy)]
-struct Drawn {
+pub(super) struct Drawn {
     /// The betas of the operations (cash taken out) rather than the unlevered betas.
-    operations: bool,
-    aggregation: Aggregation,
+    pub(super) operations: bool,
+    pub(super) aggregation: Aggregation,
+    /// The adjustment applied before unlevering, if any: the ring is then the median of the
+    /// adjusted levered betas, the ones unlevered.
+    adjustment: Option<&'static str>,
 }
 
 impl Drawn {
+    pub(super) fn of(result: &UniverseResult) -> Drawn {
+        Drawn {
+            operations: result.settings.leverage.operations_beta,
+            aggregation: result.settings.leverage.aggregation,
+            adjustment: match result.settings.beta.adjustment {
+                Adjustment::None => None,
+                Adjustment::Blume => Some("Blume"),
+                Adjustment::Vasicek => Some("Vasicek"),
+            },
+        }
+    }
+
     fn summary<'a>(&self, industry: &'a IndustryResult) -> Option<&'a Summary> {
         match self.operations {
             true => industry.operations.as_ref(),
@@ -88,11 +121,42 @@ impl Drawn {
         }
     }
 
+    /// How many betas the drawn figures of `industry` rest on.
+    fn count(&self, industry: &IndustryResult) -> usize {
+        self.summary(industry).map_or(0, |s| s.dispersion.count)
+    }
+
+    /// The median levered beta the ring draws: of the adjusted betas when an adjustment is set
+    /// (the betas that were unlevered), else of the raw ones.
+    fn levered_median(&self, industry: &IndustryResult) -> Option<f64> {
+        let levered = match self.adjustment {
+            Some(_) => industry.shrunk.as_ref(),
+            None => industry.levered.as_ref(),
+        };
+        levered.map(|l| l.dispersion.median)
+    }
+
     /// The drawn betas in words, plural.
-    fn betas(&self) -> &'static str {
+    pub(super) fn betas(&self) -> &'static str {
         match self.operations {
             true => "betas of the operations",
             false => "unlevered betas",
+        }
+    }
+
+    /// The drawn beta's short name.
+    fn short(&self) -> &'static str {
+        match self.operations {
+            true => "β of the operations",
+            false => "βU",
+        }
+    }
+
+    /// The ring's words.
+    fn ring(&self) -> String {
+        match self.adjustment {
+            Some(name) => format!("median levered β, {name}-adjusted"),
+            None => "median levered β".to_string(),
         }
     }
 
@@ -105,56 +169,45 @@ impl Drawn {
     }
 }
 
-/// Every part of the chart, or none when no row of the industry table has a label to draw
-/// (a universe whose securities all lack an industry).
+/// Every part of the chart, or none when the table has no industry (a universe whose
+/// securities all lack an industry label).
 pub fn draw(result: &UniverseResult) -> Result<Vec<Chart>> {
-    let drawn = Drawn {
-        operations: result.settings.leverage.operations_beta,
-        aggregation: result.settings.leverage.aggregation,
-    };
-    let order = ordered(result);
-    if order.is_empty() {
+    if result.industries.is_empty() {
         return Ok(Vec::new());
     }
-    // The β axis spans every row's marks, so all parts share one scale; 1 (the index) always.
-    let marks = order.iter().flat_map(|(i, _)| row_values(i, drawn));
+    let drawn = Drawn::of(result);
+    let industries = ordered(result);
+    let peer_set = result.peer_set.as_ref().map(|p| &p.figures);
+    // The β axis spans every row's marks, within AXIS_LIMITS, so all parts share one scale;
+    // 1 (the index) always.
+    let rows = industries.iter().copied().chain(peer_set);
+    let marks = rows.flat_map(|i| row_values(i, drawn));
     let (low, high) = extent(marks.chain([1.0]));
-    let scale = Scale::plain(low, high, 0.05, 8);
-    let labels: Vec<String> = order.iter().map(|(i, p)| row_label(i, *p, drawn)).collect();
-    let parts: Vec<&[(&IndustryResult, bool)]> = order.chunks(ROWS_PER_PART).collect();
-    let count = parts.len();
-    let all: Vec<&str> = labels.iter().map(String::as_str).collect();
-    (parts.iter().enumerate())
-        .map(|(k, part)| {
-            let first = k * ROWS_PER_PART;
-            draw_part(
-                result,
-                (part, first, &all),
-                (k, count),
-                (scale.clone(), drawn),
-            )
+    let scale = Scale::plain(low.max(AXIS_LIMITS.0), high.min(AXIS_LIMITS.1), 0.05, 8);
+    // Parts of about equal length, each opening with the peer set.
+    let room = ROWS_PER_PART - usize::from(peer_set.is_some());
+    let count = industries.len().div_ceil(room);
+    let per_part = industries.len().div_ceil(count);
+    (industries.chunks(per_part).enumerate())
+        .map(|(k, chunk)| {
+            let part: Vec<(&IndustryResult, bool)> = (peer_set.map(|p| (p, true)))
+                .into_iter()
+                .chain(chunk.iter().map(|&i| (i, false)))
+                .collect();
+            draw_part(result, &part, (k, count), (scale.clone(), drawn))
         })
         .collect()
 }
 
-/// The rows in drawing order, each with whether it is the peer set: the peer set, then the
-/// industries with a figure to relever from the highest down (ties by label), then those
-/// without one, by label.
-fn ordered(result: &UniverseResult) -> Vec<(&IndustryResult, bool)> {
-    let mut with: Vec<&IndustryResult> = (result.industries.iter())
-        .filter(|i| i.unlevered_beta.is_some())
-        .collect();
-    with.sort_by(|a, b| {
-        let figure = |i: &IndustryResult| i.unlevered_beta.unwrap_or(f64::NEG_INFINITY);
-        figure(b)
-            .total_cmp(&figure(a))
-            .then_with(|| a.industry.cmp(&b.industry))
+/// The industries in drawing order: those with a figure to relever from the highest down (ties
+/// by label), then those without one, by label.
+fn ordered(result: &UniverseResult) -> Vec<&IndustryResult> {
+    let figure = |i: &IndustryResult| i.unlevered_beta.unwrap_or(f64::NEG_INFINITY);
+    let mut industries: Vec<&IndustryResult> = result.industries.iter().collect();
+    industries.sort_by(|a, b| {
+        (figure(b).total_cmp(&figure(a))).then_with(|| a.industry.cmp(&b.industry))
     });
-    let without = (result.industries.iter()).filter(|i| i.unlevered_beta.is_none());
-    (result.peer_set.iter().map(|p| (&p.figures, true)))
-        .chain(with.into_iter().map(|i| (i, false)))
-        .chain(without.map(|i| (i, false)))
-        .collect()
+    industries
 }
 
 /// Every value a row draws (none for a row with no estimate).
@@ -162,30 +215,36 @@ fn row_values(industry: &IndustryResult, drawn: Drawn) -> Vec<f64> {
     let mut values = Vec::new();
     if let Some(s) = drawn.summary(industry) {
         let d = &s.dispersion;
-        values.extend([d.lower_quartile, d.median, d.upper_quartile]);
+        values.push(d.median);
+        if d.count >= BAND_FROM {
+            values.extend([d.lower_quartile, d.upper_quartile]);
+        }
         values.extend(s.median_interval.iter().flatten());
     }
     values.extend(industry.unlevered_beta);
-    values.extend(industry.levered.as_ref().map(|l| l.dispersion.median));
+    values.extend(drawn.levered_median(industry));
     values.retain(|v| v.is_finite());
     values
 }
 
-/// A row's label in full: the industry (or "peer set") and, in brackets, how many securities
-/// its drawn betas rest on.
+/// A row's label in full: the industry (or "Listed peer set") and, in brackets, how many of its
+/// securities the drawn betas rest on.
 fn row_label(industry: &IndustryResult, peer_set: bool, drawn: Drawn) -> String {
-    let count = drawn.summary(industry).map_or(0, |s| s.dispersion.count);
-    match peer_set {
-        true => format!("Listed peer set ({count})"),
-        false => format!("{} ({count})", industry.industry),
-    }
+    let name = match peer_set {
+        true => "Listed peer set",
+        false => industry.industry.as_str(),
+    };
+    format!(
+        "{name} ({} of {})",
+        drawn.count(industry),
+        industry.securities
+    )
 }
 
-/// Part `k` of `count`: its rows, the first of them the chart's row `first`, among all the
-/// chart's labels.
+/// Part `k` of `count`, of the rows `part` (the peer set first when there is one).
 fn draw_part(
     result: &UniverseResult,
-    (part, first, all): (&[(&IndustryResult, bool)], usize, &[&str]),
+    part: &[(&IndustryResult, bool)],
     (k, count): (usize, usize),
     (scale, drawn): (Scale, Drawn),
 ) -> Result<Chart> {
@@ -194,7 +253,7 @@ fn draw_part(
         x: scale,
         y: Scale::bare(bottom, -0.4),
         x_title: format!(
-            "Beta, {} or levered (the index = 1)",
+            "Beta: {}, or levered (the index = 1)",
             match drawn.operations {
                 true => "of the operations",
                 false => "unlevered",
@@ -214,15 +273,19 @@ fn draw_part(
     if count > 1 {
         title.push_str(&format!(" (part {} of {count})", k + 1));
         caption.push_str(&format!(
-            " Part {} of {count}: the rows {}, on the same β axis.",
+            " Part {} of {count}: the rows {}, on the same β axis{}.",
             k + 1,
             match k + 1 == count {
                 true => "continue from the part before",
                 false => "continue in the next part",
+            },
+            match result.peer_set.is_some() {
+                true => ", the peer set repeated at the top",
+                false => "",
             }
         ));
     }
-    let legend = legend(drawn);
+    let legend = legend(&rows, drawn);
     let plot = ((-bottom) * ROW) as u32 + 60;
     let layout = Layout::new(WIDTH, plot, &title, &legend, &caption);
     let file_name = match k {
@@ -232,10 +295,12 @@ fn draw_part(
     let mut canvas = Canvas::new(&file_name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    let names = &all[first..first + part.len()];
-    draw_names(&mut canvas, &layout, &axes, (&rows, first, all), &dividers)?;
+    let labels: Vec<String> = (rows.iter())
+        .map(|r| row_label(r.industry, r.peer_set, drawn))
+        .collect();
+    draw_names(&mut canvas, &layout, &axes, (&rows, &labels), &dividers)?;
     draw_marks(&mut canvas, &layout, &axes, &rows, drawn)?;
-    let description = format!("{caption} {}", data_summary(&rows, names, drawn));
+    let description = format!("{caption} {}", data_summary(&rows, &labels, drawn));
     let id = match k {
         0 => "industries".to_string(),
         k => format!("industries-{}", k + 1),
@@ -253,19 +318,23 @@ struct Divider {
     note: &'static str,
 }
 
-/// The rows of a part with their positions, the dividers (below the peer set; above the first
+const HIGHEST_FIRST: &str = "Industries, highest first";
+const NO_FIGURE: &str = "No figure to relever (levered median only)";
+
+/// The rows of a part with their positions, the dividers (below the peer set, above the first
 /// industry without a figure) and the axis bottom.
 fn rows<'a>(part: &[(&'a IndustryResult, bool)]) -> (Vec<Row<'a>>, Vec<Divider>, f64) {
     let mut rows = Vec::with_capacity(part.len());
     let mut dividers = Vec::new();
     let mut y = 0.0;
+    // The previous row: whether it was the peer set, and whether it had a figure.
     let mut previous: Option<(bool, bool)> = None;
     for &(industry, peer_set) in part {
         let figure = industry.unlevered_beta.is_some();
-        let note = match previous {
-            Some((true, _)) => Some("Industries, highest first"),
-            Some((false, true)) if !figure => Some("No figure to relever (levered median only)"),
-            None if !peer_set && !figure => Some("No figure to relever (levered median only)"),
+        let note = match (previous, peer_set, figure) {
+            (_, true, _) => None,
+            (Some((true, _)), false, true) => Some(HIGHEST_FIRST),
+            (Some((true, _)) | Some((false, true)) | None, false, false) => Some(NO_FIGURE),
             _ => None,
         };
         if let Some(note) = note {
@@ -283,20 +352,39 @@ fn rows<'a>(part: &[(&'a IndustryResult, bool)]) -> (Vec<Row<'a>>, Vec<Divider>,
     (rows, dividers, y - 0.6)
 }
 
-/// The legend: the band, the interval, the two medians and, when the industry figure is not
-/// the median, its marker.
-fn legend(drawn: Drawn) -> Vec<(Mark, String)> {
-    let short = match drawn.operations {
-        true => "β of the operations",
-        false => "βU",
-    };
-    let mut items = vec![
-        (Mark::Swatch(BAND), format!("{short}, interquartile range")),
-        (Mark::Interval(PRIMARY), "median's 95% CI".to_string()),
-        (Mark::Dot(PRIMARY), format!("median {short}")),
-        (Mark::Ring(MUTED), "median levered β".to_string()),
-    ];
-    if drawn.aggregation != Aggregation::Median {
+/// The legend: the marks this part draws.
+fn legend(rows: &[Row], drawn: Drawn) -> Vec<(Mark, String)> {
+    let counts: Vec<usize> = rows.iter().map(|r| drawn.count(r.industry)).collect();
+    let short = drawn.short();
+    let mut items = Vec::new();
+    if counts.iter().any(|&n| n >= BAND_FROM) {
+        items.push((Mark::Swatch(BAND), format!("{short}, interquartile range")));
+    }
+    if (rows.iter()).any(|r| {
+        drawn
+            .summary(r.industry)
+            .is_some_and(|s| s.median_interval.is_some())
+    }) {
+        items.push((Mark::Interval(PRIMARY), "median's 95% CI".to_string()));
+    }
+    if counts.iter().any(|&n| n >= INTERVAL_FROM) {
+        items.push((Mark::Dot(PRIMARY), format!("median {short}")));
+    }
+    if counts.iter().any(|&n| (1..INTERVAL_FROM).contains(&n)) {
+        items.push((
+            Mark::Dot(NEUTRAL),
+            format!("median {short} of under six, no CI"),
+        ));
+    }
+    if rows
+        .iter()
+        .any(|r| drawn.levered_median(r.industry).is_some())
+    {
+        items.push((Mark::Ring(MUTED), drawn.ring()));
+    }
+    if drawn.aggregation != Aggregation::Median
+        && rows.iter().any(|r| r.industry.unlevered_beta.is_some())
+    {
         items.push((
             Mark::Triangle(INK),
             format!("{} {short}, relevered by a case", drawn.aggregation.noun()),
@@ -305,16 +393,88 @@ fn legend(drawn: Drawn) -> Vec<(Mark, String)> {
     items
 }
 
-/// The industry labels left of the plot, shortened to the band (the whole label is the
-/// tooltip), and the dividers with their words.
+/// The width of `text` at the label size in units of the average character (0.6 em, see
+/// `frame::CHAR_EM`): East Asian wide characters count about 1.7 (a full em), capitals 1.2.
+fn label_units(text: &str) -> f64 {
+    text.chars()
+        .map(|c| match c {
+            '\u{1100}'..='\u{115F}'
+            | '\u{2E80}'..='\u{A4CF}'
+            | '\u{AC00}'..='\u{D7A3}'
+            | '\u{F900}'..='\u{FAFF}'
+            | '\u{FE30}'..='\u{FE4F}'
+            | '\u{FF00}'..='\u{FF60}'
+            | '\u{FFE0}'..='\u{FFE6}'
+            | '\u{20000}'..='\u{3FFFD}' => 1.7,
+            c if c.is_uppercase() => 1.2,
+            _ => 1.0,
+        })
+        .sum()
+}
+
+/// A label set in at most two lines of `width` units ([`label_units`]), broken between words;
+/// the count in brackets is never broken or cut, and ends the last line. What does not fit is
+/// cut at the end of the last line (a word longer than a line is cut too). The second element
+/// says whether anything was cut.
+fn label_lines(label: &str, width: f64) -> (Vec<String>, bool) {
+    let (name, count) = match label.rsplit_once(" (") {
+        Some((name, count)) => (name, format!("({count}")),
+        None => (label, String::new()),
+    };
+    let fits = |line: &str| label_units(line) <= width;
+    let tokens = name.split_whitespace().map(str::to_string);
+    let mut lines: Vec<String> = Vec::new();
+    for token in tokens.chain((!count.is_empty()).then(|| count.clone())) {
+        match lines.last_mut() {
+            Some(line) if fits(&format!("{line} {token}")) => {
+                line.push(' ');
+                line.push_str(&token);
+            }
+            _ => lines.push(token),
+        }
+    }
+    if lines.len() <= 2 && lines.iter().all(|l| fits(l)) {
+        return (lines, false);
+    }
+    // Cut: the first line as it is (shortened if one word overruns it), the rest on the
+    // second, shortened, with the count after it.
+    let shorten = |text: &str, tail: &str| {
+        let mut kept: String = text.to_string();
+        while !kept.is_empty() && !fits(&format!("{}…{tail}", kept.trim_end())) {
+            kept.pop();
+        }
+        format!("{}…{tail}", kept.trim_end())
+    };
+    let first = match fits(&lines[0]) || lines[0] == count {
+        true => lines[0].clone(),
+        false => shorten(&lines[0], ""),
+    };
+    let rest = lines[1..].join(" ");
+    let rest = rest
+        .strip_suffix(count.as_str())
+        .unwrap_or(&rest)
+        .trim_end();
+    let tail = match count.is_empty() {
+        true => String::new(),
+        false => format!(" {count}"),
+    };
+    let second = match fits(&format!("{rest}{tail}")) {
+        true => format!("{rest}{tail}"),
+        false => shorten(rest, &tail),
+    };
+    (vec![first, second], true)
+}
+
+/// The industry labels left of the plot, in one or two lines (the whole label is the tooltip
+/// of one cut short), and the dividers with their words.
 fn draw_names(
     canvas: &mut Canvas,
     layout: &Layout,
     axes: &Axes,
-    (rows, first, all): (&[Row], usize, &[&str]),
+    (rows, labels): (&[Row], &[String]),
     dividers: &[Divider],
 ) -> Result<()> {
-    let mut labels: Vec<(String, String)> = Vec::new();
+    let mut cut: Vec<(String, String)> = Vec::new();
     canvas.layer("y-axis", |root| {
         let (_, plot_area, _) = layout.split(root);
         let chart = axes.chart(&plot_area)?;
@@ -322,15 +482,19 @@ fn draw_names(
         let set = style::bold(style::LABEL, &ACCENT).pos(Pos::new(HPos::Right, VPos::Center));
         let (left, _) = chart.backend_coord(&(axes.x.range.start, 0.0));
         let x = left - 12;
-        // Shortened among every row's label, so two never read alike in any part.
-        let width = fit(f64::from(x - style::MARGIN), style::LABEL);
-        let shown = distinct_middle(all, width);
-        for (i, row) in rows.iter().enumerate() {
+        // In units of the average character, less a bold label's extra 4%.
+        let width = f64::from(x - style::MARGIN) / (style::LABEL * CHAR_EM) / 1.04;
+        for (row, label) in rows.iter().zip(labels) {
             let (_, y) = chart.backend_coord(&(axes.x.range.start, row.y));
-            let text = &shown[first + i];
             let style = if row.peer_set { &set } else { &plain };
-            root.draw_text(text, style, (x, y))?;
-            labels.push((text.clone(), all[first + i].to_string()));
+            let (lines, shortened) = label_lines(label, width);
+            let first = y - 8 * (lines.len() as i32 - 1);
+            for (i, line) in lines.iter().enumerate() {
+                root.draw_text(line, style, (x, first + 16 * i as i32))?;
+            }
+            if shortened {
+                cut.push((lines[0].clone(), label.clone()));
+            }
         }
         let (right, _) = chart.backend_coord(&(axes.x.range.end, 0.0));
         let note = style::bold(style::SMALL, &MUTED).pos(Pos::new(HPos::Left, VPos::Top));
@@ -344,13 +508,19 @@ fn draw_names(
         }
         Ok(())
     })?;
-    for (shown, full) in &labels {
+    for (shown, full) in &cut {
         canvas.tooltip(shown, full);
     }
     Ok(())
 }
 
-/// The reference line at 1 and each row's band, interval and markers.
+/// `value` kept inside the axis (a mark beyond it is drawn at its edge).
+fn inside(axes: &Axes, value: f64) -> f64 {
+    value.clamp(axes.x.range.start, axes.x.range.end)
+}
+
+/// The reference line at 1 and each row's band, interval and markers; a value beyond the axis
+/// at its edge, with the value written beside it.
 fn draw_marks(
     canvas: &mut Canvas,
     layout: &Layout,
@@ -370,10 +540,16 @@ fn draw_marks(
         .filter_map(|r| drawn.summary(r.industry).map(|s| (r.y, s)))
         .collect();
     plot_layer(canvas, layout, axes, "quartiles", |chart| {
-        chart.draw_series(summaries.iter().map(|(y, s)| {
+        let banded = summaries
+            .iter()
+            .filter(|(_, s)| s.dispersion.count >= BAND_FROM);
+        chart.draw_series(banded.map(|(y, s)| {
             let d = &s.dispersion;
             Rectangle::new(
-                [(d.lower_quartile, y + 0.22), (d.upper_quartile, y - 0.22)],
+                [
+                    (inside(axes, d.lower_quartile), y + 0.22),
+                    (inside(axes, d.upper_quartile), y - 0.22),
+                ],
                 BAND.filled(),
             )
         }))?;
@@ -385,6 +561,7 @@ fn draw_marks(
             let Some([low, high]) = s.median_interval else {
                 continue;
             };
+            let (low, high) = (inside(axes, low), inside(axes, high));
             chart.draw_series(std::iter::once(PathElement::new(
                 vec![(low, *y), (high, *y)],
                 stroke,
@@ -399,28 +576,74 @@ fn draw_marks(
     plot_layer(canvas, layout, axes, "levered-median", |chart| {
         let ring = MUTED.stroke_width(2);
         chart.draw_series(rows.iter().filter_map(|r| {
-            let median = r.industry.levered.as_ref()?.dispersion.median;
-            Some(Circle::new((median, r.y), 6, ring))
+            let median = drawn.levered_median(r.industry)?;
+            Some(Circle::new((inside(axes, median), r.y), 6, ring))
         }))?;
         Ok(())
     })?;
     plot_layer(canvas, layout, axes, "median", |chart| {
-        let dot = PRIMARY.filled();
-        chart.draw_series(
-            (summaries.iter()).map(|(y, s)| Circle::new((s.dispersion.median, *y), 5, dot)),
-        )?;
+        chart.draw_series(summaries.iter().map(|(y, s)| {
+            let colour = match s.dispersion.count >= INTERVAL_FROM {
+                true => PRIMARY,
+                false => NEUTRAL,
+            };
+            Circle::new((inside(axes, s.dispersion.median), *y), 5, colour.filled())
+        }))?;
         Ok(())
     })?;
     if drawn.aggregation != Aggregation::Median {
         plot_layer(canvas, layout, axes, "industry-figure", |chart| {
             chart.draw_series(rows.iter().filter_map(|r| {
                 let figure = r.industry.unlevered_beta?;
-                Some(EmptyElement::at((figure, r.y)) + triangle(INK))
+                Some(EmptyElement::at((inside(axes, figure), r.y)) + triangle(INK))
             }))?;
             Ok(())
         })?;
     }
-    Ok(())
+    beyond_the_axis(canvas, layout, axes, rows, drawn)
+}
+
+/// Each row's marks that lie beyond the axis, written at its edge as their values (the lowest
+/// at the left edge, the highest at the right).
+fn beyond_the_axis(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    rows: &[Row],
+    drawn: Drawn,
+) -> Result<()> {
+    let (start, end) = (axes.x.range.start, axes.x.range.end);
+    let outside: Vec<(f64, Option<f64>, Option<f64>)> = (rows.iter())
+        .map(|r| {
+            let values = row_values(r.industry, drawn);
+            let low = values
+                .iter()
+                .copied()
+                .filter(|&v| v < start)
+                .reduce(f64::min);
+            let high = values.iter().copied().filter(|&v| v > end).reduce(f64::max);
+            (r.y, low, high)
+        })
+        .filter(|(_, low, high)| low.is_some() || high.is_some())
+        .collect();
+    if outside.is_empty() {
+        return Ok(());
+    }
+    plot_layer(canvas, layout, axes, "beyond-axis", |chart| {
+        let left = style::text(style::SMALL, &INK).pos(Pos::new(HPos::Left, VPos::Bottom));
+        let right = style::text(style::SMALL, &INK).pos(Pos::new(HPos::Right, VPos::Bottom));
+        for (y, low, high) in &outside {
+            if let Some(low) = low {
+                let text = format!("◂ {}", fixed(*low, 2).replace('-', "\u{2212}"));
+                chart.draw_series(std::iter::once(Text::new(text, (start, y + 0.45), &left)))?;
+            }
+            if let Some(high) = high {
+                let text = format!("{} ▸", fixed(*high, 2).replace('-', "\u{2212}"));
+                chart.draw_series(std::iter::once(Text::new(text, (end, y + 0.45), &right)))?;
+            }
+        }
+        Ok(())
+    })
 }
 
 /// The chart's caption: what each mark is and which columns of `industries.csv` it draws.
@@ -430,39 +653,43 @@ fn caption(result: &UniverseResult, drawn: Drawn) -> String {
     let figure = match drawn.aggregation {
         Aggregation::Median => "the median, the figure a case would relever".to_string(),
         other => format!(
-            "the {} (triangle), the figure a case would relever",
+            "the {} (triangle; leverage.aggregation), the figure a case would relever",
             other.noun()
         ),
     };
+    let (ring, ring_column) = match drawn.adjustment {
+        Some(name) => (
+            format!("the median of the {name}-adjusted levered betas, the ones unlevered"),
+            "median_shrunk_beta",
+        ),
+        None => ("the median levered β".to_string(), "median_beta"),
+    };
     format!(
-        "For each industry, the median of its securities' {betas} (dot) with the median's \
-         distribution-free 95% confidence interval (whisker; none under six securities), the \
-         interquartile range of those betas (band) and the median levered β (ring); in \
-         brackets, how many securities the {betas} rest on. Unlevered by {}; the industry \
-         figure is {figure}, and the rows run from the highest figure down{}. The grey line \
-         marks β = 1, the index. Figures: industries.csv (median_{stem}, median_{stem}_ci_low, \
-         median_{stem}_ci_high, lower_quartile_{stem}, upper_quartile_{stem}, {stem}_count, \
-         median_beta, unlevered_beta{}).",
+        "For each industry, the median of its securities' {betas} (dot; lighter when fewer than \
+         six, which give no interval) with the median's distribution-free confidence interval \
+         of at least 95% (whisker), the interquartile range of those betas (band, from four) \
+         and {ring} (ring); in brackets, how many of the industry's securities the {betas} rest \
+         on. Unlevered by {}; the industry figure is {figure}, and the rows run from the \
+         highest figure down{}. The grey line marks β = 1, the index; a value beyond the axis \
+         is drawn at its edge and written there. Figures: industries.csv (median_{stem}, \
+         median_{stem}_ci_low, median_{stem}_ci_high, lower_quartile_{stem}, \
+         upper_quartile_{stem}, {stem}_count, securities, {ring_column}, unlevered_beta).",
         result.formula_source,
         match result.peer_set.is_some() {
-            true => ", after the listed peer set (its figures by the same rules; summary.md)",
+            true => ", after the listed peer set (its figures by the same rules)",
             false => "",
         },
-        match drawn.aggregation {
-            Aggregation::Median => String::new(),
-            other => format!("; {} of leverage.aggregation", label(&other)),
-        }
     )
 }
 
 /// Every drawn row in words, for the SVG's description (a screen reader's table).
-fn data_summary(rows: &[Row], names: &[&str], drawn: Drawn) -> String {
-    (rows.iter().zip(names))
+fn data_summary(rows: &[Row], labels: &[String], drawn: Drawn) -> String {
+    (rows.iter().zip(labels))
         .map(|(r, name)| {
-            let levered = (r.industry.levered.as_ref())
-                .map_or("none".to_string(), |l| fixed(l.dispersion.median, 3));
+            let levered =
+                (drawn.levered_median(r.industry)).map_or("none".to_string(), |v| fixed(v, 3));
             let Some(s) = drawn.summary(r.industry) else {
-                return format!("{name}: no {}; median levered β {levered}.", drawn.betas());
+                return format!("{name}: no {}; {} {levered}.", drawn.betas(), drawn.ring());
             };
             let d = &s.dispersion;
             let interval = s.median_interval.map_or(String::new(), |[low, high]| {
@@ -473,11 +700,12 @@ fn data_summary(rows: &[Row], names: &[&str], drawn: Drawn) -> String {
                 .unlevered_beta
                 .map_or("none".to_string(), |v| fixed(v, 3));
             format!(
-                "{name}: median {}{interval}, quartiles {} to {}, median levered β {levered}, \
-                 industry figure {figure}.",
+                "{name}: median {}{interval}, quartiles {} to {}, {} {levered}, industry figure \
+                 {figure}.",
                 fixed(d.median, 3),
                 fixed(d.lower_quartile, 3),
                 fixed(d.upper_quartile, 3),
+                drawn.ring(),
             )
         })
         .collect::<Vec<_>>()
@@ -487,6 +715,34 @@ fn data_summary(rows: &[Row], names: &[&str], drawn: Drawn) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Worked by hand at a width of 20 units (an average character 1, a capital 1.2, a CJK
+    // character 1.7): the count always ends the last line; a third line's words are cut.
+    #[test]
+    fn labels_take_two_lines_and_keep_their_count() {
+        let (lines, cut) = label_lines("Pumps and flow control (14 of 14)", 20.0);
+        assert_eq!(lines, ["Pumps and flow", "control (14 of 14)"]);
+        assert!(!cut);
+        // A name that fits one line but not with its count: the count takes the second.
+        let (lines, cut) = label_lines("Water and power utilities (7 of 7)", 26.0);
+        assert_eq!(lines, ["Water and power utilities", "(7 of 7)"]);
+        assert!(!cut);
+        let (lines, cut) = label_lines(
+            "Diversified financials consumer finance western europe (3 of 9)",
+            20.0,
+        );
+        assert_eq!(lines.len(), 2);
+        assert!(lines[1].ends_with("… (3 of 9)"), "{lines:?}");
+        assert!(cut);
+        assert!(lines.iter().all(|l| label_units(l) <= 20.0), "{lines:?}");
+        // Twelve CJK characters are 20.4 units: one is cut.
+        let (lines, cut) = label_lines("電子部品電子部品電子部品 (2 of 2)", 20.0);
+        assert!(
+            cut && lines.iter().all(|l| label_units(l) <= 20.0),
+            "{lines:?}"
+        );
+        assert_eq!(label_units("AB"), 2.4);
+    }
 
     #[test]
     fn chart_names_are_the_parts_a_run_writes() {

@@ -335,7 +335,7 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
         c.unlevered
     );
     industry_table(&mut out, r);
-    chart_links(&mut out, charts);
+    chart_links(&mut out, r, charts);
     peer_set_section(&mut out, r);
     // A heading of their own, so that with a peer set the notes do not read as about the set
     // (found by review).
@@ -350,18 +350,31 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
     out
 }
 
-/// The chart of the industry table, each part as an image (the SVG files beside it).
-fn chart_links(out: &mut String, charts: &[super::chart::Chart]) {
-    if charts.is_empty() {
+/// The chart of the industry table, each part as an image (the SVG files beside it), with what
+/// it draws in words that follow the settings.
+fn chart_links(out: &mut String, r: &UniverseResult, charts: &[super::chart::Chart]) {
+    let Some(first) = charts.first() else {
         return;
-    }
+    };
+    let drawn = super::chart::Drawn::of(r);
+    let parts = match charts.len() {
+        1 => format!("`{}`", first.file_name),
+        2 => format!("`{}` and one more part", first.file_name),
+        n => format!("`{}` and {} more parts", first.file_name, n - 1),
+    };
+    let figure = match drawn.aggregation {
+        crate::stats::Aggregation::Median => String::new(),
+        other => format!(", the industry's {} (triangle)", other.noun()),
+    };
     let _ = writeln!(
         out,
-        "\nThe same table drawn ({}): each industry's median with its 95% interval, its \
-         quartiles and its median levered β.\n",
-        match charts.len() {
-            1 => "`figures/industries.svg`".to_string(),
-            n => format!("`figures/industries.svg` and {} more parts", n - 1),
+        "\nThe industries drawn ({parts}): for each, the median of its {} with its 95% \
+         interval, their quartiles{figure} and the median levered β that was unlevered; the \
+         table's βU columns are of the unlevered betas{}.\n",
+        drawn.betas(),
+        match drawn.operations {
+            true => ", the chart's of the betas of the operations",
+            false => "",
         }
     );
     for c in charts {
