@@ -174,6 +174,29 @@ fn check_record_length(
     })
 }
 
+/// A record's cell in a column the header leaves unnamed (`unnamed`, by position) must be empty
+/// (`sanity::unnamed_value_message`).
+fn check_unnamed_cells(
+    file: &Path,
+    line: usize,
+    (record, header): (&csv::StringRecord, &csv::StringRecord),
+    unnamed: &[usize],
+) -> Result<()> {
+    let cell = |at: usize| record.get(at).unwrap_or("").trim();
+    match unnamed.iter().find(|&&at| !cell(at).is_empty()) {
+        Some(&at) => Err(Error::DataRow {
+            file: file.to_path_buf(),
+            line,
+            message: super::sanity::unnamed_value_message(
+                at + 1,
+                cell(at),
+                at.checked_sub(1).map(|l| (&header[l], cell(l))),
+            ),
+        }),
+        None => Ok(()),
+    }
+}
+
 /// "No column named `name`", with the header's names and a name that differs only by spaces.
 fn missing_column(header: &csv::StringRecord, name: &str) -> String {
     let names: Vec<&str> = header.iter().collect();
@@ -235,15 +258,8 @@ pub fn parse_series(
         }
         let line = start.line() as usize;
         check_record_length(file, line, &record, header.len())?;
+        check_unnamed_cells(file, line, (&record, &header), &unnamed)?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();
-        if let Some(&at) = unnamed.iter().find(|&&at| !cell(at).is_empty()) {
-            let left = at.checked_sub(1).map(|l| (&header[l], cell(l)));
-            return Err(Error::DataRow {
-                file: file.to_path_buf(),
-                line,
-                message: super::sanity::unnamed_value_message(at + 1, cell(at), left),
-            });
-        }
         let (date, value) = parse_row(
             cell(date_at),
             cell(value_at),

@@ -153,24 +153,7 @@ pub fn read_attributes(
         check_unnamed(&source, header, &frame)?;
     }
     let records = records(&source, &frame, whole_header, columns)?;
-    let figures = [
-        Some(&columns.equity_value),
-        Some(&columns.debt),
-        columns.cash.as_ref(),
-    ];
-    let texts: Vec<(&str, Vec<&str>)> = (figures.into_iter().flatten())
-        .filter_map(|name| {
-            let cells = frame.column(name).ok()?.str().ok()?;
-            let texts = cells.iter().flatten().map(str::trim);
-            Some((name.as_str(), texts.filter(|t| !t.is_empty()).collect()))
-        })
-        .collect();
-    let thousands_points = (texts.iter())
-        .filter_map(|(name, cells)| {
-            (thousands_points(name, cells.iter().copied()))
-                .or_else(|| points_against_whole(name, cells, &texts))
-        })
-        .collect();
+    let thousands_points = thousands_points_in(&frame, columns);
     check_listed_once(&source, &records)?;
     let mut records = records;
     records.sort_by(|a, b| a.security.cmp(&b.security));
@@ -184,6 +167,29 @@ pub fn read_attributes(
         records,
         thousands_points,
     })
+}
+
+/// The figure columns (equity value, debt, cash) of a CSV table read as text whose points look
+/// like thousands separators ([`thousands_points`], [`points_against_whole`]).
+fn thousands_points_in(frame: &DataFrame, columns: &AttributeColumns) -> Vec<ThousandsPoints> {
+    let figures = [
+        Some(&columns.equity_value),
+        Some(&columns.debt),
+        columns.cash.as_ref(),
+    ];
+    let texts: Vec<(&str, Vec<&str>)> = (figures.into_iter().flatten())
+        .filter_map(|name| {
+            let cells = frame.column(name).ok()?.str().ok()?;
+            let texts = cells.iter().flatten().map(str::trim);
+            Some((name.as_str(), texts.filter(|t| !t.is_empty()).collect()))
+        })
+        .collect();
+    (texts.iter())
+        .filter_map(|(name, cells)| {
+            (thousands_points(name, cells.iter().copied()))
+                .or_else(|| points_against_whole(name, cells, &texts))
+        })
+        .collect()
 }
 
 /// A CSV attributes column the header leaves unnamed may not hold a value (found by review: a
