@@ -639,6 +639,27 @@ fn price_files() -> Vec<Bad> {
             ["run", "{case}", "--out", "{out}"],
             ["peer.1.prices", PEER, "data/index.csv"]
         ),
+        // Found by review: another peer's prices times a constant (a listing at a fixed
+        // rate, pence for pounds) gave that peer's beta twice, without a word.
+        bad!(
+            "peer file is another peer's rescaled",
+            |s| {
+                copy(s, "data/peers/brenvale.csv", PEER);
+                s.map_lines(PEER, |n, l| match (n, l.split_once(',')) {
+                    (1, _) | (_, None) => l.into(),
+                    (_, Some((date, price))) => {
+                        format!("{date},{:.4}", price.parse::<f64>().unwrap() * 1.37)
+                    }
+                })
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [
+                PEER,
+                "peer.0's prices",
+                "times 1.37",
+                "the same firm counted twice"
+            ]
+        ),
         bad!(
             "peer file is the index file",
             |s| s.edit_case(PEER, INDEX),
@@ -934,6 +955,23 @@ fn spread_tables() -> Vec<Bad> {
                 "debt.source=rating"
             ],
             [RATING, "no `rating` column", "separated by semicolons"]
+        ),
+        // Found by review: a table in basis points was advised to read 45 as 0.45.
+        bad!(
+            "spreads in basis points",
+            |s| {
+                let line = line_starting(s, RATING, "AAA,");
+                s.set_line(RATING, line, "AAA,45")
+            },
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating"
+            ],
+            [RATING, "spread = 45", "0.0045 for 45 basis points"]
         ),
         // A decimal comma splits the spread in two cells; it used to be read as a spread of 0.
         bad!(
@@ -1340,6 +1378,30 @@ fn case_files() -> Vec<Bad> {
             |s| set_case_key(s, "equity_risk_premium", "+inf"),
             ["run", "{case}", "--out", "{out}"],
             ["{line}", "market.equity_risk_premium", "+inf"]
+        ),
+        // Found by review: a premium in basis points was advised to be 5.17, itself out of
+        // range.
+        bad!(
+            "premium in basis points",
+            |s| set_case_key(s, "equity_risk_premium", "517"),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "market.equity_risk_premium = 517",
+                "0.0517 for 517 basis points, 5.17%"
+            ]
+        ),
+        // Found by review: an inflation typed as a percentage (2 for 2%) was within the old
+        // bound of 1,000% and turned the converted WACC to −63% without a word.
+        bad!(
+            "inflation as a percentage",
+            |s| {
+                s.edit_case(
+                "[market]",
+                "[conversion]\ncurrency = \"USD\"\ninflation_case = 2\ninflation_output = 0.025\n\n[market]"
+            )
+            },
+            ["run", "{case}", "--out", "{out}"],
+            ["conversion.inflation_case = 2", "0.02 for 2%"]
         ),
         bad!(
             "overflowing number",

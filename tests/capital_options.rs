@@ -425,6 +425,34 @@ fn the_memo_shows_the_fisher_conversion_to_an_output_currency() {
     assert!(memo.contains(&hurdle::report::format::percent(converted, 2)));
 }
 
+// An inflation of the wrong size (0.2 for 2%) runs, but its notes say so: the rate itself, and
+// the converted and real WACC not above zero, which Fisher's relation gives when inflation
+// exceeds the nominal rate: (1 + 0.0738)·(1.025)/(1.2) − 1 < 0 and 1.0738/1.2 − 1 < 0.
+#[test]
+fn an_implausible_inflation_and_a_converted_wacc_below_zero_are_noted() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "conversion.currency=USD",
+            "conversion.inflation_case=0.2",
+            "conversion.inflation_output=0.025",
+        ],
+    );
+    let c = &result["currency_conversion"];
+    assert!(number(c, "wacc") < 0.0 && number(c, "wacc_real") < 0.0);
+    let notes: Vec<&str> = (result["notes"].as_array().unwrap().iter())
+        .map(|n| n.as_str().unwrap())
+        .collect();
+    for expected in [
+        "Check: the expected inflation of 20.00% in EUR (conversion)",
+        "Check: the WACC in USD is",
+        "Check: the real WACC is",
+    ] {
+        assert!(notes.iter().any(|n| n.starts_with(expected)), "{notes:?}");
+    }
+}
+
 #[test]
 fn inflation_at_or_below_minus_100_percent_is_refused() {
     let message = fails(&[

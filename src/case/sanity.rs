@@ -36,6 +36,10 @@ pub const MAX_DEBT_TO_EQUITY: f64 = 10.0;
 pub const USUAL_MAX_RISK_FREE: f64 = 0.20;
 pub const USUAL_MAX_PREMIUM: f64 = 0.15;
 pub const USUAL_MAX_COST: f64 = 0.30;
+/// An expected inflation rate (`[conversion]`): well below the 26% a year that compounds to
+/// 100% over three years, IAS 29's indicator of hyperinflation (paragraph 3(e), from memory),
+/// so the note comes before a currency is hyperinflationary.
+pub const USUAL_MAX_INFLATION: f64 = 0.15;
 /// Lowest equity risk premium when the debt beta is read from the credit spread,
 /// (Kd − rf) / ERP: below 10 bp a spread of a few points reads as a debt beta in the tens or
 /// more, which says nothing about debt, and a premium near zero makes the ratio overflow.

@@ -13,12 +13,22 @@ pub(super) fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::R
         Ok(())
     } else {
         // A rate typed as a percentage is the likeliest reason for a value of 1 or more.
-        let hint = if value >= 1.0 && high <= 1.0 {
+        // Rounded to 12 decimals so that 5.8 reads 0.058, not 0.057999999999999996.
+        let decimal = |scale: f64| crate::error::compact((value / scale * 1e12).round() / 1e12);
+        let hint = if value >= 1.0 && high <= 1.0 && value / 100.0 < high {
             format!(
                 "; rates are decimals ({} for {}%)",
-                // Rounded to 12 decimals so that 5.8 reads 0.058, not 0.057999999999999996.
-                crate::error::compact((value / 100.0 * 1e12).round() / 1e12),
+                decimal(100.0),
                 crate::error::compact(value)
+            )
+        } else if value >= 1.0 && high <= 1.0 {
+            // Out of range even as a percentage: basis points (found by review: 517 was
+            // advised to be 5.17, itself out of range).
+            format!(
+                "; rates are decimals ({} for {} basis points, {}%)",
+                decimal(10_000.0),
+                crate::error::compact(value),
+                decimal(100.0),
             )
         } else {
             String::new()

@@ -245,18 +245,26 @@ fn parse_csv_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<Spread
 }
 
 /// A spread in (−0.5, 1); one written in percent (1.15 for 1.15%), the usual slip, gets the
-/// decimals hint.
+/// decimals hint, and one of 20 or more the basis points hint (a spread of 20% or more is no
+/// rating's; found by review: a table in basis points was advised to read 45 as 0.45).
 fn check_spread(spread: f64) -> std::result::Result<(), String> {
     if spread.is_finite() && spread > -0.5 && spread < 1.0 {
         return Ok(());
     }
-    let hint = match (1.0..100.0).contains(&spread) {
-        true => format!(
+    let decimal = |scale: f64| crate::error::compact((spread / scale * 1e12).round() / 1e12);
+    let hint = match spread {
+        s if (1.0..20.0).contains(&s) => format!(
             ": spreads are decimals over the risk-free rate ({} for {}%)",
-            crate::error::compact(spread / 100.0),
+            decimal(100.0),
             crate::error::compact(spread)
         ),
-        false => String::new(),
+        s if (20.0..10_000.0).contains(&s) => format!(
+            ": spreads are decimals over the risk-free rate ({} for {} basis points, {}%)",
+            decimal(10_000.0),
+            crate::error::compact(spread),
+            decimal(100.0)
+        ),
+        _ => String::new(),
     };
     Err(format!("spread = {spread} is outside (-0.5, 1){hint}"))
 }

@@ -29,6 +29,11 @@ pub fn value_with(
     let cost = cost_record(settings, &chain, &peers);
     let cautions = super::notes::cautions(&peers, &cost);
     notes.extend(plausibility_notes(&cost));
+    notes.extend(
+        cost.currency_conversion
+            .iter()
+            .flat_map(super::notes::conversion_notes),
+    );
     notes.extend(peers.iter().filter_map(net_cash_note));
     let mut files = vec![inputs.index.clone()];
     files.extend(inputs.risk_free.iter().cloned());

@@ -160,6 +160,39 @@ pub(super) fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
     })
 }
 
+/// "Check:" notes on a currency conversion (found by review: an inflation typed as a percentage
+/// of the wrong size, 0.2 for 2%, printed a converted WACC of −8% without a word): an expected
+/// inflation above [`crate::case::sanity::USUAL_MAX_INFLATION`], and a converted or real WACC not
+/// above zero.
+pub(super) fn conversion_notes(c: &super::records::CurrencyConversion) -> Vec<String> {
+    use crate::case::sanity::USUAL_MAX_INFLATION;
+    let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
+    let mut notes = Vec::new();
+    for (currency, inflation) in [(&c.from, c.inflation_from), (&c.to, c.inflation_to)] {
+        if inflation > USUAL_MAX_INFLATION {
+            notes.push(format!(
+                "Check: the expected inflation of {} in {currency} (conversion), far above what \
+                 it usually is; rates are decimals (0.02 is 2%), and the converted rates move \
+                 with it almost one for one.",
+                percent(inflation)
+            ));
+        }
+    }
+    for (what, rate) in [
+        (format!("the WACC in {}", c.to), c.wacc),
+        ("the real WACC".to_string(), c.wacc_real),
+    ] {
+        if rate <= 0.0 {
+            notes.push(format!(
+                "Check: {what} is {}, not above zero: check the conversion's inflation rates \
+                 (rates are decimals, 0.02 is 2%).",
+                percent(rate)
+            ));
+        }
+    }
+    notes
+}
+
 /// The figures the plausibility checks read: a case's, or a claimed build-up's (which a bank or
 /// adviser typed, as open to a percentage typed for a decimal as a case).
 #[derive(Debug, Clone, Copy, PartialEq)]

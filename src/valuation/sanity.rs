@@ -75,12 +75,64 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
                 ),
             });
         }
+        // A copy rescaled (another listing at a fixed rate, pence for pounds): the same returns,
+        // so one firm counted twice (found by review).
+        let scaled = (inputs.peers[..i].iter().enumerate())
+            .find_map(|(j, other)| Some((j, proportional(&other.series, &file.series)?)));
+        if let Some((j, (factor, shared))) = scaled {
+            return Err(Error::Case {
+                file: inputs.case.path.clone(),
+                message: format!(
+                    "{} (peer \"{}\") holds peer.{j}'s prices ({}, peer \"{}\") times {} on \
+                     every one of the {shared} dates both have: the same returns, so the same \
+                     firm counted twice; a peer's series must be the peer's own (another \
+                     listing of one firm, in another currency or unit, is one peer)",
+                    named(&key, file),
+                    peer.name,
+                    named(&format!("peer.{j}"), &inputs.peers[j]),
+                    settings.peers[j].name,
+                    significant(factor)
+                ),
+            });
+        }
     }
     if let Some(yields) = &inputs.risk_free {
         // The more specific finding first: a switch of units partway also moves the median.
         check_yield_switch(&inputs.case.resolve(&yields.path), yields)?;
     }
     check_rate_against_yields(&inputs.case, inputs)
+}
+
+/// Whether `b`'s prices are `a`'s times one factor on every date both have (at least 20 dates,
+/// and at least half of each series): the factor and the count of shared dates. The factor may
+/// move by 1e-4 of itself between dates: prices rounded to four decimals (at a price of 1 or
+/// more) move it by at most 1e-4, while two firms' returns differ by far more on some day in
+/// twenty.
+fn proportional(
+    a: &crate::io::series::Series,
+    b: &crate::io::series::Series,
+) -> Option<(f64, usize)> {
+    let (mut i, mut j) = (0, 0);
+    let mut ratios = Vec::new();
+    while i < a.dates.len() && j < b.dates.len() {
+        match a.dates[i].cmp(&b.dates[j]) {
+            std::cmp::Ordering::Less => i += 1,
+            std::cmp::Ordering::Greater => j += 1,
+            std::cmp::Ordering::Equal => {
+                ratios.push(b.values[j] / a.values[i]);
+                i += 1;
+                j += 1;
+            }
+        }
+    }
+    let shared = ratios.len();
+    if shared < 20 || 2 * shared < a.dates.len() || 2 * shared < b.dates.len() {
+        return None;
+    }
+    let factor = ratios[0];
+    // Exact copies are named by the check before this one.
+    (factor != 1.0 && ratios.iter().all(|r| (r / factor - 1.0).abs() <= 1e-4))
+        .then_some((factor, shared))
 }
 
 /// Refuses a risk-free series whose median is more than [`YIELD_RATIO`] times `case`'s

@@ -45,7 +45,11 @@ pub(super) fn validate_conversion(case: &CaseFile) -> std::result::Result<(), St
                      divides by 1 + inflation, which must be positive"
                 ));
             }
-            rate(key, value, -1.0, 10.0)?;
+            // Below 100% a year is hurdle's bound, not a published one: it catches a
+            // percentage typed for a decimal (2 for 2%), which turned a WACC of 7% into one of
+            // −63% without a word (found by review); a currency inflating by 100% a year or
+            // more is no place for a nominal discount rate built this way.
+            rate(key, value, -1.0, 1.0)?;
         }
         if conversion.currency.trim().is_empty() {
             return Err("conversion.currency is empty".into());
