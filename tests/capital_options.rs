@@ -453,6 +453,28 @@ fn an_implausible_inflation_and_a_converted_wacc_below_zero_are_noted() {
     }
 }
 
+// EBIT in thousands beside interest in millions: 210000 / 48 = 4375 and 210 / 48000 = 0.004375
+// (by hand), each beyond the note's bounds (500 and 1/50); the case's own 4.375 gives none.
+#[test]
+fn a_coverage_of_mixed_units_is_noted() {
+    let note = |sets: &[&str]| {
+        let dir = tempfile::tempdir().unwrap();
+        let mut all = vec!["debt.source=coverage"];
+        all.extend_from_slice(sets);
+        let result = run_demo(dir.path(), &all);
+        (result["notes"].as_array().unwrap().iter())
+            .filter_map(|n| n.as_str())
+            .find(|n| n.starts_with("Check: the interest coverage"))
+            .map(String::from)
+    };
+    let high = note(&["debt.ebit=210000"]).expect("a note");
+    assert!(high.contains("is 4375 (210000 / 48), far above"), "{high}");
+    let low = note(&["debt.interest_expense=48000"]).expect("a note");
+    // Written to four decimals (`case::sanity::significant`).
+    assert!(low.contains("is 0.0044 (210 / 48000), far below"), "{low}");
+    assert_eq!(note(&[]), None);
+}
+
 #[test]
 fn inflation_at_or_below_minus_100_percent_is_refused() {
     let message = fails(&[

@@ -30,6 +30,7 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
             }
         ));
     }
+    notes.extend(coverage_note(settings));
     if settings.target.source != TargetSource::Explicit
         && (settings.target.debt_to_equity.is_some() || settings.target.debt_to_capital.is_some())
     {
@@ -157,6 +158,32 @@ pub(super) fn plausibility_notes(cost: &CostOfCapital) -> Vec<String> {
         cost_of_equity: cost.cost_of_equity,
         tax_rate: cost.target.tax_rate,
         wacc: cost.wacc,
+    })
+}
+
+/// A "Check:" note on an interest coverage (`debt.source = "coverage"`) so high or so low that
+/// EBIT and the interest expense are likelier in different units (thousands and millions) than
+/// the firm's (found by review: a coverage of 4,375 took the top class without a word). The
+/// bounds, 500 and 1/50, are hurdle's judgement: far beyond any coverage table's top and bottom
+/// classes, and a factor of 1,000 moves a usual coverage of 2 to 20 across one of them.
+fn coverage_note(settings: &CaseFile) -> Option<String> {
+    let (Some(ebit), Some(interest)) = (settings.debt.ebit, settings.debt.interest_expense) else {
+        return None;
+    };
+    let coverage = ebit / interest;
+    (settings.debt.source == DebtSource::Coverage
+        && coverage.is_finite()
+        && (coverage > 500.0 || (0.0..0.02).contains(&coverage)))
+    .then(|| {
+        format!(
+            "Check: the interest coverage debt.ebit / debt.interest_expense is {} ({} / {}), \
+             far {} any rating's: check that both figures are in the same units (thousands or \
+             millions).",
+            crate::case::sanity::significant(coverage),
+            crate::error::compact(ebit),
+            crate::error::compact(interest),
+            if coverage > 500.0 { "above" } else { "below" }
+        )
     })
 }
 
