@@ -7,12 +7,14 @@
 //! handling" section; the text checks (TOML values with their lines) are in [`text`]. The rules on
 //! data files are in `io::sanity`, those on estimates and results in `valuation::sanity`.
 
+pub mod prices;
 pub mod text;
 pub mod window;
 
 use super::{CaseDate, CaseFile, DebtSource, TargetSource};
 use crate::error::compact as show;
 
+pub use prices::price_pattern_notes;
 pub use text::{case_or_universe, check_case_text, check_claimed_text, empty_or_csv};
 pub use window::{
     file_end_notes, index_coverage_note, short_window_note, unused_beta_notes, window_end_note,

@@ -258,6 +258,11 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         window.period_ends(),
         (valuation_date, settings.beta.max_stale_days),
     ));
+    let index_file = [("The index", &inputs.index)];
+    notes.extend(crate::case::sanity::price_pattern_notes(
+        &[&index_file[..], &peer_files].concat(),
+        (window.start(), window.end()),
+    ));
     notes
 }
 

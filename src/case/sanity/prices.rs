@@ -1,0 +1,153 @@
+//! Notes on patterns in a price file that pass every rule yet bend a beta without a word (found
+//! by review): a move between two rows by exactly a usual split ratio (2, 3, 3/2 or 4, or their
+//! inverses: an unadjusted split inside the factor-of-3 bound), and prices that stay unchanged
+//! for the last month and more of the window (a series carried forward after trading stopped,
+//! whose zero returns pull the beta toward zero). Notes, not errors: either can be real.
+
+use chrono::NaiveDate;
+
+use crate::io::series::DataFile;
+
+/// The ratios of the usual splits and reverse splits, as the later price over the earlier, each
+/// with how close a move must come to it, as a share of it: on a split's day the unadjusted
+/// price also moves by the day's return (a few percent), while a genuine move of about −50%,
+/// −67%, −75% or +100% between two rows is rare; a move of −33% less so, so 3-for-2 is held
+/// closer (hurdle's judgement).
+const SPLIT_RATIOS: [(f64, f64); 8] = [
+    (0.5, 0.05),
+    (1.0 / 3.0, 0.05),
+    (0.25, 0.05),
+    (2.0, 0.05),
+    (3.0, 0.05),
+    (4.0, 0.05),
+    (2.0 / 3.0, 0.02),
+    (1.5, 0.02),
+];
+
+/// Unchanged prices spanning more than this many calendar days at the window's end are noted: a
+/// month with no trade at all is rare for a listed firm.
+const FLAT_END_DAYS: i64 = 31;
+
+/// The notes for each `(name, file)`: split-like moves whose later row falls in `window`, and
+/// an unchanged run of prices reaching the file's last row inside the window.
+pub fn price_pattern_notes(
+    files: &[(&str, &DataFile)],
+    window: (NaiveDate, NaiveDate),
+) -> Vec<String> {
+    let mut notes = Vec::new();
+    for (name, file) in files {
+        notes.extend(split_note(name, file, window));
+        notes.extend(flat_end_note(name, file, window));
+    }
+    notes
+}
+
+/// The first move between two rows of `file` inside `window` by a usual split ratio.
+fn split_note(name: &str, file: &DataFile, (start, end): (NaiveDate, NaiveDate)) -> Option<String> {
+    let (dates, prices) = (&file.series.dates, &file.series.values);
+    let (i, ratio) = (1..prices.len())
+        .filter(|&i| dates[i] > start && dates[i] <= end)
+        .map(|i| (i, prices[i] / prices[i - 1]))
+        .find(|(_, ratio)| {
+            (SPLIT_RATIOS.iter()).any(|(split, within)| (ratio / split - 1.0).abs() <= *within)
+        })?;
+    let show = crate::error::compact;
+    Some(format!(
+        "{name}: its price ({}) moves from {} on {} to {} on {}, a factor of {}, as a split or \
+         reverse split moves an unadjusted price: betas need prices adjusted for splits (a \
+         real move of that size is rare; hurdle uses prices as given).",
+        file.path,
+        show(prices[i - 1]),
+        dates[i - 1],
+        show(prices[i]),
+        dates[i],
+        crate::case::sanity::significant(ratio)
+    ))
+}
+
+/// The run of unchanged prices that ends `file`, when it spans more than [`FLAT_END_DAYS`] and
+/// ends inside `window`.
+fn flat_end_note(
+    name: &str,
+    file: &DataFile,
+    (start, end): (NaiveDate, NaiveDate),
+) -> Option<String> {
+    let (dates, prices) = (&file.series.dates, &file.series.values);
+    let last = *prices.last()?;
+    let first = prices.iter().rposition(|&p| p != last).map_or(0, |k| k + 1);
+    let (from, to) = (dates[first].max(start), *dates.last()?);
+    let days = (to - from).num_days();
+    let rows = dates[first..].iter().filter(|d| **d >= from).count();
+    (to > start && to <= end + chrono::Duration::days(31) && days > FLAT_END_DAYS && rows >= 3)
+        .then(|| {
+            format!(
+                "{name}: its price ({}) stays at {} from {from} to {to} ({rows} rows, {days} \
+                 days), to the file's end: prices carried forward after trading stopped? Their \
+                 returns of zero pull the beta toward zero; end the file where trading ended.",
+                file.path,
+                crate::error::compact(last)
+            )
+        })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::io::series::Series;
+
+    fn file(prices: &[f64], step_days: i64) -> DataFile {
+        let first = NaiveDate::from_ymd_opt(2024, 1, 1).unwrap();
+        let dates: Vec<NaiveDate> = (0..prices.len())
+            .map(|k| first + chrono::Duration::days(step_days * k as i64))
+            .collect();
+        DataFile {
+            role: "peer:P".into(),
+            path: "p.csv".into(),
+            sha256: String::new(),
+            rows: prices.len(),
+            first_date: dates[0],
+            last_date: *dates.last().unwrap(),
+            sheet: None,
+            column: "price".into(),
+            series: Series {
+                dates,
+                values: prices.to_vec(),
+            },
+            places: Vec::new(),
+        }
+    }
+
+    fn window() -> (NaiveDate, NaiveDate) {
+        (
+            NaiveDate::from_ymd_opt(2023, 12, 1).unwrap(),
+            NaiveDate::from_ymd_opt(2025, 12, 31).unwrap(),
+        )
+    }
+
+    // Worked by hand: 84.20 → 42.10 is a factor of 0.5 exactly (a 2-for-1 split); 84.20 → 45
+    // is 0.534, 6.9% from one half, beyond its 5% tolerance.
+    #[test]
+    fn a_move_by_a_split_ratio_is_noted() {
+        let notes = price_pattern_notes(&[("P", &file(&[80.0, 84.2, 42.1, 43.0], 7))], window());
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(notes[0].contains("from 84.2 on 2024-01-08 to 42.1 on 2024-01-15, a factor of 0.5"));
+        let notes = price_pattern_notes(&[("P", &file(&[80.0, 84.2, 45.0, 43.0], 7))], window());
+        assert!(notes.is_empty(), "{notes:?}");
+    }
+
+    // Monthly steps of 30 days: four equal prices at the end span 90 days (noted); two span 30
+    // (not); a file whose prices never stop moving gives no note.
+    #[test]
+    fn unchanged_prices_at_the_end_are_noted() {
+        let notes = price_pattern_notes(
+            &[("P", &file(&[10.0, 11.0, 12.0, 12.0, 12.0, 12.0], 30))],
+            window(),
+        );
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(notes[0].contains("stays at 12 from 2024-03-01 to 2024-05-30 (4 rows, 90 days)"));
+        let two = file(&[10.0, 11.0, 12.0, 12.0], 30);
+        assert!(price_pattern_notes(&[("P", &two)], window()).is_empty());
+        let moving = file(&[10.0, 11.0, 12.0, 13.0], 30);
+        assert!(price_pattern_notes(&[("P", &moving)], window()).is_empty());
+    }
+}
