@@ -451,6 +451,53 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     );
 }
 
+// An index file holding gross returns (1 + r) instead of levels (found by review): every peer's
+// R² collapses and their betas' intervals reach zero, which result.json's `cautions` record; the
+// terminal's summary says so too, not only the memo.
+#[test]
+fn the_terminal_names_the_runs_cautions() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let path = case_dir.join("data/index.csv");
+    let text = std::fs::read_to_string(&path).unwrap();
+    let rows: Vec<(&str, f64)> = (text.lines().skip(1))
+        .map(|l| l.split_once(',').unwrap())
+        .map(|(d, v)| (d, v.parse().unwrap()))
+        .collect();
+    let gross: String = (rows.windows(2))
+        .map(|w| format!("{},{:.6}\n", w[1].0, w[1].1 / w[0].1))
+        .collect();
+    std::fs::write(&path, format!("date,price\n{gross}")).unwrap();
+    let out = dir.path().join("out");
+    let case = case_dir.join("case.toml");
+    let ran = common::hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(ran.status.success(), "{ran:?}");
+    let stdout = String::from_utf8_lossy(&ran.stdout);
+    let result: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
+    assert_eq!(
+        result["cautions"]["every_peer_flagged"]
+            .as_array()
+            .unwrap()
+            .len(),
+        8
+    );
+    assert!(
+        stdout.contains("  caution: Every aggregated peer is flagged ("),
+        "{stdout}"
+    );
+    assert!(
+        stdout.contains("  caution: Betas near or below zero: "),
+        "{stdout}"
+    );
+}
+
 /// Keeps a CSV file's header and its rows dated on or before `last` (ISO dates compare as text).
 fn cut_after(path: &Path, last: &str) {
     let text = std::fs::read_to_string(path).unwrap();

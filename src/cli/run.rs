@@ -176,6 +176,9 @@ fn summary(v: &Valuation) -> String {
             ),
         );
     }
+    for caution in hurdle::report::cautions::case_cautions(v, "peers.csv's flags column") {
+        lines.push(format!("  caution: {caution}"));
+    }
     for note in &v.notes {
         lines.push(format!("  note: {note}"));
     }

@@ -4,6 +4,7 @@
 //! moved into place), so a failure leaves no output at all and no output ever replaces a file
 //! the run reads.
 
+pub mod cautions;
 pub mod csv;
 pub mod earlier;
 pub mod figures;

@@ -161,7 +161,7 @@ fn notes(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
     );
     book.text(sheet, (row, 0), "Notes on this run", &subtitle)?;
     let mut row = row + 1;
-    let cautions = case_cautions(v);
+    let cautions = crate::report::cautions::case_cautions(v, "the Betas sheet's Flags column");
     if v.notes.is_empty() && cautions.is_empty() {
         book.text(sheet, (row, 1), "None.", &text)?;
         return Ok(row + 1);
@@ -181,56 +181,6 @@ fn notes(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         row += 1;
     }
     Ok(row)
-}
-
-/// The run's own cautions (`result.json` `cautions`), in the memo's words, shortened: what the
-/// memo's cautions section says of this case beyond the general cautions.
-fn case_cautions(v: &crate::valuation::Valuation) -> Vec<String> {
-    let c = &v.cautions;
-    let names = |list: &[String]| list.join(", ");
-    let mut out = Vec::new();
-    if let Some([low, high]) = c.leverage_beyond_peers {
-        let ratio = |x: f64| crate::error::rounded(x, 3);
-        let peers = match v.cost.beta.peers_included {
-            1 => format!("the one peer's {}", ratio(low)),
-            _ => format!("{} to {}", ratio(low), ratio(high)),
-        };
-        out.push(format!(
-            "Leverage beyond the peers': the target D/E of {} is above every aggregated peer's \
-             ({peers}); the relevered beta extrapolates the formula beyond the leverage the \
-             betas were measured at.",
-            ratio(v.cost.target.debt_to_equity),
-        ));
-    }
-    if !c.betas_near_zero.is_empty() {
-        out.push(format!(
-            "Betas near or below zero: {}: the raw beta's 95% interval reaches zero or lies \
-             below it, yet it enters the aggregate{}.",
-            names(&c.betas_near_zero),
-            match c.turned_positive_by_adjustment.is_empty() {
-                true => String::new(),
-                false => format!(
-                    ", and the adjustment turns the negative raw beta of {} positive",
-                    names(&c.turned_positive_by_adjustment)
-                ),
-            }
-        ));
-    }
-    if !c.flagged_in_aggregate.is_empty() {
-        out.push(format!(
-            "Flagged peers in the aggregate: {} raise a diagnostic flag (the Betas sheet's \
-             Flags column) and are aggregated all the same.",
-            names(&c.flagged_in_aggregate)
-        ));
-    }
-    if !c.every_peer_flagged.is_empty() {
-        out.push(format!(
-            "Every aggregated peer is flagged ({}): the aggregate rests only on betas the \
-             diagnostics question.",
-            names(&c.every_peer_flagged)
-        ));
-    }
-    out
 }
 
 /// The headline figures, as formulas over the named results.
