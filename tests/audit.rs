@@ -951,29 +951,69 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
     );
 }
 
-// A receipt written by another version of hurdle still reproduces when every file and figure
-// agrees: the version is named, not compared as a figure.
-#[test]
-fn a_receipt_of_another_version_reproduces_and_names_it() {
+/// The demo case run in a copy, its receipt marked as written by `version` and edited by
+/// `edit`: the copy's folder, the case folder and the receipt's path.
+fn receipt_of_version(
+    version: &str,
+    edit: impl FnOnce(&mut serde_json::Value),
+) -> (tempfile::TempDir, std::path::PathBuf, std::path::PathBuf) {
     let (dir, case_dir) = demo_copy();
     let out = dir.path().join("out");
     run_case(&case_dir.join("case.toml"), &out, &[]);
     let receipt = out.join("result.json");
     let mut recorded: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
-    recorded["tool"]["version"] = "0.0.1".into();
+    recorded["tool"]["version"] = version.into();
+    edit(&mut recorded);
+    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    (dir, case_dir, receipt)
+}
+
+// A receipt written by another version of hurdle still reproduces when every file and figure
+// agrees: the version is named, not compared as a figure.
+#[test]
+fn a_receipt_of_another_version_reproduces_and_names_it() {
     // An older version may also have written one note fewer (a note is a sentence for the
     // reader; its counts are compared where they are kept as figures).
-    let notes = recorded["notes"].as_array_mut().unwrap();
-    assert!(!notes.is_empty());
-    notes.pop();
-    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    let (_dir, _case_dir, receipt) = receipt_of_version("0.0.1", |recorded| {
+        let notes = recorded["notes"].as_array_mut().unwrap();
+        assert!(!notes.is_empty());
+        notes.pop();
+    });
     let verify = hurdle(&["verify", receipt.to_str().unwrap()]);
     let report = text(&verify);
     assert_eq!(verify.status.code(), Some(0), "{report}");
     assert!(report.contains("written by hurdle 0.0.1"), "{report}");
     assert!(report.contains("notes: only in the rerun: "), "{report}");
     assert!(report.contains("; 1 note on one side only"), "{report}");
+}
+
+// An input an earlier version read and this one refuses (a value under an unnamed column, since
+// 0.10.0) stops the rerun with the input's error, which says the receipt's version read it
+// (found by review: the error alone read as if the receipt could never have been written).
+#[test]
+fn an_input_this_version_refuses_names_the_receipts_version() {
+    let (_dir, case_dir, receipt) = receipt_of_version("0.0.1", |_| {});
+    let peer = case_dir.join("data/peers/brenvale.csv");
+    let prices = std::fs::read_to_string(&peer).unwrap();
+    let edited: String = (prices.lines().enumerate())
+        .map(|(i, l)| match i {
+            0 => format!("{l},\n"),
+            _ => format!("{l},x\n"),
+        })
+        .collect();
+    std::fs::write(&peer, edited).unwrap();
+    let verify = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(2), "{report}");
+    assert!(
+        report.contains("column 3 has no name in the header"),
+        "{report}"
+    );
+    assert!(
+        report.contains("(the receipt was written by hurdle 0.0.1, which read this input;"),
+        "{report}"
+    );
 }
 
 // verify checks the hash of every file the receipt records: the spread table the cost of debt

@@ -660,6 +660,28 @@ fn price_files() -> Vec<Bad> {
                 "the same firm counted twice"
             ]
         ),
+        // Found by review: a plain copy with rows left out escaped both checks.
+        bad!(
+            "peer file is another peer's with rows left out",
+            |s| {
+                copy(s, "data/peers/brenvale.csv", PEER);
+                keep_lines(s, PEER, |n| n % 7 != 3)
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "peer.0's prices", "the same firm counted twice"]
+        ),
+        // Found by review: after CRLF line ends the line named was one short.
+        bad!(
+            "a bad price in a file with CRLF line ends",
+            |s| {
+                s.map_lines(PEER, |n, l| match n {
+                    n if n == LINE => format!("{LINE_DATE},abc\r"),
+                    _ => format!("{l}\r"),
+                })
+            },
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "line 848", "\"abc\""]
+        ),
         bad!(
             "peer file is the index file",
             |s| s.edit_case(PEER, INDEX),

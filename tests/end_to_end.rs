@@ -178,6 +178,35 @@ fn betas_command_prints_the_same_estimates_as_run() {
     assert!(String::from_utf8_lossy(&table.stdout).contains("Glimmerby Pumpworks"));
 }
 
+// pandas' `to_csv` writes its row index as an unnamed first column (`,date,price`): read as
+// 0.9.0 read it (found by review, when values under unnamed columns began to be refused), since
+// a first column holds no part of a number a decimal comma split.
+#[test]
+fn a_price_file_with_pandas_row_index_reads_as_without_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let path = case_dir.join("data/peers/brenvale.csv");
+    let text = std::fs::read_to_string(&path).unwrap();
+    let indexed: String = (text.lines().enumerate())
+        .map(|(i, l)| match i {
+            0 => format!(",{l}\n"),
+            i => format!("{},{l}\n", i - 1),
+        })
+        .collect();
+    std::fs::write(&path, indexed).unwrap();
+    let case = case_dir.join("case.toml");
+    let output = hurdle(&["betas", case.to_str().unwrap(), "--format", "json"]);
+    assert!(output.status.success(), "{output:?}");
+    let plain = hurdle(&["betas", DEMO_CASE, "--format", "json"]);
+    let (a, b): (serde_json::Value, serde_json::Value) = (
+        serde_json::from_slice(&output.stdout).unwrap(),
+        serde_json::from_slice(&plain.stdout).unwrap(),
+    );
+    assert!(a[0]["beta"].as_f64().is_some(), "{a}");
+    assert_eq!(a, b);
+}
+
 /// numpy and scipy recompute every regression and every later step from returns.csv
 /// (tests/reference/check_regressions.py). `.ci/run` installs both; without them this fails.
 #[test]

@@ -308,6 +308,42 @@ impl Verification {
 /// A file given as a receipt that is plainly something else: a case file or a claimed build-up
 /// (TOML tables and keys), or a CSV table (commas on its first line); named as such, with what
 /// to give instead.
+/// A rerun's refusal of an input file, with the versions when the receipt's is another: an
+/// earlier version may have read a file this one refuses (found by review: a 0.9.0 receipt
+/// whose price file holds a value under an unnamed column stopped with the input's error
+/// alone, as if the receipt could never have been written).
+pub(super) fn refused_since(error: Error, recorded: &Value) -> Error {
+    let version = recorded.pointer("/tool/version").and_then(Value::as_str);
+    let this = env!("CARGO_PKG_VERSION");
+    let Some(version) = version.filter(|v| *v != this) else {
+        return error;
+    };
+    let why = format!(
+        " (the receipt was written by hurdle {version}, which read this input; {this} refuses \
+         it, and README's Changelog says why)"
+    );
+    match error {
+        Error::DataRow {
+            file,
+            line,
+            message,
+        } => Error::DataRow {
+            file,
+            line,
+            message: message + &why,
+        },
+        Error::DataFile { file, message } => Error::DataFile {
+            file,
+            message: message + &why,
+        },
+        Error::Case { file, message } => Error::Case {
+            file,
+            message: message + &why,
+        },
+        other => other,
+    }
+}
+
 fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
     let first = (text.lines().map(str::trim))
         .find(|l| !l.is_empty() && !l.starts_with('#'))
@@ -380,7 +416,7 @@ pub fn verify(
     let case = read_case(&case_file, &overrides)?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
     let files_read = crate::case::files_read(&case);
-    let inputs = load_inputs(case)?;
+    let inputs = load_inputs(case).map_err(|e| refused_since(e, &recorded))?;
     let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
 

@@ -240,8 +240,10 @@ pub fn parse_series(
         Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);
-    // Columns the header leaves unnamed, which must stay empty (`unnamed_value_message`).
-    let unnamed: Vec<usize> = (0..header.len())
+    // Columns the header leaves unnamed, which must stay empty (`unnamed_value_message`); not a
+    // first one, where pandas writes its row index (`,date,price`), which holds no part of a
+    // number split by a decimal comma.
+    let unnamed: Vec<usize> = (1..header.len())
         .filter(|&i| header[i].trim().is_empty())
         .collect();
     let rows = bytes.iter().filter(|&&b| b == b'\n').count();
@@ -249,6 +251,10 @@ pub fn parse_series(
     let mut values = Vec::with_capacity(rows);
     let mut record = csv::StringRecord::new();
     let mut previous_line = 0;
+    // Lines are counted from the records' byte offsets: the csv crate's own line count runs one
+    // short after CRLF line ends (found by review), and a message must name the line an editor
+    // shows. `(byte, line)`: where the count has reached.
+    let mut counted = (0, 1);
     while reader.read_record(&mut record).map_err(unreadable)? {
         // read_record sets every record's position; the reader's own is the fallback.
         let start = record.position().unwrap_or(reader.position()).clone();
@@ -256,7 +262,16 @@ pub fn parse_series(
         if let Some(blank) = blank.filter(|b| start.byte() as usize >= b.byte) {
             return Err(blank_row(blank));
         }
-        let line = start.line() as usize;
+        // After a CRLF the reader's offset is the LF's, which ends the line before.
+        let mut at = (start.byte() as usize).min(bytes.len());
+        if bytes.get(at) == Some(&b'\n') {
+            at += 1;
+        }
+        counted = (
+            at,
+            counted.1 + memchr::memchr_iter(b'\n', &bytes[counted.0..at]).count(),
+        );
+        let line = counted.1;
         check_record_length(file, line, &record, header.len())?;
         check_unnamed_cells(file, line, (&record, &header), &unnamed)?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();

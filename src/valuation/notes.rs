@@ -173,18 +173,18 @@ fn coverage_note(settings: &CaseFile) -> Option<String> {
     let coverage = ebit / interest;
     (settings.debt.source == DebtSource::Coverage
         && coverage.is_finite()
-        && (coverage > 500.0 || (0.0..0.02).contains(&coverage)))
-    .then(|| {
-        format!(
-            "Check: the interest coverage debt.ebit / debt.interest_expense is {} ({} / {}), \
+        && (coverage > 500.0 || (coverage > 0.0 && coverage < 0.02)))
+        .then(|| {
+            format!(
+                "Check: the interest coverage debt.ebit / debt.interest_expense is {} ({} / {}), \
              far {} any rating's: check that both figures are in the same units (thousands or \
              millions).",
-            crate::case::sanity::significant(coverage),
-            crate::error::compact(ebit),
-            crate::error::compact(interest),
-            if coverage > 500.0 { "above" } else { "below" }
-        )
-    })
+                crate::case::sanity::significant(coverage),
+                crate::error::compact(ebit),
+                crate::error::compact(interest),
+                if coverage > 500.0 { "above" } else { "below" }
+            )
+        })
 }
 
 /// "Check:" notes on a currency conversion (found by review: an inflation typed as a percentage

@@ -83,15 +83,18 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
             return Err(Error::Case {
                 file: inputs.case.path.clone(),
                 message: format!(
-                    "{} (peer \"{}\") holds peer.{j}'s prices ({}, peer \"{}\") times {} on \
-                     every one of the {shared} dates both have: the same returns, so the same \
-                     firm counted twice; a peer's series must be the peer's own (another \
-                     listing of one firm, in another currency or unit, is one peer)",
+                    "{} (peer \"{}\") holds peer.{j}'s prices ({}, peer \"{}\"){} on every \
+                     one of the {shared} dates both have: the same returns, so the same firm \
+                     counted twice; a peer's series must be the peer's own (another listing of \
+                     one firm, in another currency or unit, is one peer)",
                     named(&key, file),
                     peer.name,
                     named(&format!("peer.{j}"), &inputs.peers[j]),
                     settings.peers[j].name,
-                    significant(factor)
+                    match (factor - 1.0).abs() <= 1e-4 {
+                        true => String::new(),
+                        false => format!(" times {}", significant(factor)),
+                    }
                 ),
             });
         }
@@ -103,8 +106,8 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
     check_rate_against_yields(&inputs.case, inputs)
 }
 
-/// Whether `b`'s prices are `a`'s times one factor on every date both have (at least 20 dates,
-/// and at least half of each series): the factor and the count of shared dates. The factor may
+/// Whether `b`'s prices are `a`'s times one factor (1 included) on every date both have (at
+/// least 20 dates, and at least half of each series): the factor and the count of shared dates. The factor may
 /// move by 1e-4 of itself between dates: prices rounded to four decimals (at a price of 1 or
 /// more) move it by at most 1e-4, while two firms' returns differ by far more on some day in
 /// twenty.
@@ -130,9 +133,8 @@ fn proportional(
         return None;
     }
     let factor = ratios[0];
-    // Exact copies are named by the check before this one.
-    (factor != 1.0 && ratios.iter().all(|r| (r / factor - 1.0).abs() <= 1e-4))
-        .then_some((factor, shared))
+    // A factor of 1 too: a copy with rows left out (a whole copy is named by the check before).
+    (ratios.iter().all(|r| (r / factor - 1.0).abs() <= 1e-4)).then_some((factor, shared))
 }
 
 /// Refuses a risk-free series whose median is more than [`YIELD_RATIO`] times `case`'s

@@ -9,7 +9,9 @@
 //!
 //! A median resting on fewer than six betas (no interval) is drawn lighter and one on fewer
 //! than four has no band, so a small industry does not look the most precise; the ring is the
-//! median of the levered betas that were unlevered (adjusted, when an adjustment is set); a
+//! median levered beta of the industry's estimated securities, the adjusted betas when an
+//! adjustment is set (those unlevered; the median may rest on more securities than the
+//! unlevered figures, which need a D/E); a
 //! value beyond the axis's limits is drawn at its edge with its value; a long label takes two
 //! lines and keeps its count; every part opens with the peer set, for comparison.
 //!
@@ -97,7 +99,7 @@ pub(super) struct Drawn {
     pub(super) operations: bool,
     pub(super) aggregation: Aggregation,
     /// The adjustment applied before unlevering, if any: the ring is then the median of the
-    /// adjusted levered betas, the ones unlevered.
+    /// adjusted levered betas (those unlevered), over every estimated security of the industry.
     adjustment: Option<&'static str>,
 }
 
@@ -659,10 +661,16 @@ fn caption(result: &UniverseResult, drawn: Drawn) -> String {
     };
     let (ring, ring_column) = match drawn.adjustment {
         Some(name) => (
-            format!("the median of the {name}-adjusted levered betas, the ones unlevered"),
+            format!(
+                "the median of the {name}-adjusted levered betas (the betas unlevered) of all its \
+                 estimated securities"
+            ),
             "median_shrunk_beta",
         ),
-        None => ("the median levered β".to_string(), "median_beta"),
+        None => (
+            "the median levered β of all its estimated securities".to_string(),
+            "median_beta",
+        ),
     };
     format!(
         "For each industry, the median of its securities' {betas} (dot; lighter when fewer than \

@@ -369,7 +369,7 @@ fn chart_links(out: &mut String, r: &UniverseResult, charts: &[super::chart::Cha
     let _ = writeln!(
         out,
         "\nThe industries drawn ({parts}): for each, the median of its {} with its 95% \
-         interval, their quartiles{figure} and the median levered β that was unlevered; the \
+         interval, their quartiles{figure} and the median levered β of its estimated securities; the \
          table's βU columns are of the unlevered betas{}.\n",
         drawn.betas(),
         match drawn.operations {
