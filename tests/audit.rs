@@ -917,9 +917,9 @@ fn verify_matches_reordered_or_dropped_peers_by_name() {
          equity_value = 900.0\ndebt = 100.0\ntax_rate = 0.25\n"
     );
     let fenhallow = std::fs::read_to_string(case_dir.join("data/peers/fenhallow.csv")).unwrap();
-    // Another peer's prices shifted by a constant factor (the same returns, so the same beta),
-    // so that the new peer is no copy of an existing file.
-    let shifted = common::scaled_prices(&fenhallow, 2.0);
+    // Another peer's prices scaled and varied (`common::varied_prices`), so that the new peer is
+    // no copy of an existing file.
+    let shifted = common::varied_prices(&fenhallow, 2.0, 1);
     std::fs::write(case_dir.join("data/peers/fenhallow_copy.csv"), shifted).unwrap();
     std::fs::write(&case, added).unwrap();
     let report = text(&hurdle(&["verify", receipt.to_str().unwrap()]));

@@ -622,7 +622,7 @@ const REASON: &str = "Invented: a pending merger distorts its prices since 2025;
                       judgement.";
 
 /// The demo case copied into `root/case` with 22 more invented peers (30 in all), each on a
-/// demo peer's prices scaled (a file of its own; the same returns), two of them `NORTH` and
+/// demo peer's prices scaled and varied (a file of its own, `common::varied_prices`), two of them `NORTH` and
 /// `EUROPE`, two `CLASS_A` and `CLASS_B`, the last excluded by hand for `REASON`; and the
 /// claim labelled `CLAIM`.
 fn thirty_peer_case(root: &Path) -> std::path::PathBuf {
@@ -643,7 +643,7 @@ fn thirty_peer_case(root: &Path) -> std::path::PathBuf {
         let text = std::fs::read_to_string(case.join(source)).unwrap();
         let file = format!("data/peers/added-{k:02}.csv");
         let factor = 1.0 + 0.5 * (k + 1) as f64;
-        std::fs::write(case.join(&file), common::scaled_prices(&text, factor)).unwrap();
+        std::fs::write(case.join(&file), common::varied_prices(&text, factor, k)).unwrap();
         toml.push_str(&format!(
             "\n[[peer]]\nname = \"{name}\"\nprices = \"{file}\"\nequity_value = 1000.0\n\
              debt = 300.0\ncash = 50.0\ntax_rate = 0.25\n"

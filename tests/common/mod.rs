@@ -101,6 +101,25 @@ pub fn scaled_prices(text: &str, factor: f64) -> String {
         .collect()
 }
 
+/// A `date,price` file's text with every price multiplied by `factor` and by a small
+/// deterministic jitter of up to ±1% that `seed` varies: a peer of its own, whose returns are
+/// near the source's but not the same (a scaled copy with the same returns is refused as one
+/// firm counted twice, since 0.10.0).
+#[allow(dead_code)]
+pub fn varied_prices(text: &str, factor: f64, seed: usize) -> String {
+    text.lines()
+        .enumerate()
+        .map(|(i, line)| match (i, line.split_once(',')) {
+            (0, _) | (_, None) => format!("{line}\n"),
+            (_, Some((date, price))) => {
+                let jitter = 1.0 + 0.001 * (((i * 37 + seed * 11) % 21) as f64 - 10.0);
+                let price = price.parse::<f64>().unwrap() * factor * jitter;
+                format!("{date},{price:.6}\n")
+            }
+        })
+        .collect()
+}
+
 /// Copies the demo case folder into `to`, without any previous run's `output/`.
 #[allow(dead_code)]
 pub fn copy_demo_case(to: &Path) {
