@@ -251,10 +251,11 @@ pub fn parse_series(
     let mut values = Vec::with_capacity(rows);
     let mut record = csv::StringRecord::new();
     let mut previous_line = 0;
-    // Lines are counted from the records' byte offsets: the csv crate's own line count runs one
-    // short after CRLF line ends (found by review), and a message must name the line an editor
-    // shows. `(byte, line)`: where the count has reached.
+    // In a file with CRLF line ends lines are counted from the records' byte offsets: the csv
+    // crate's own line count runs one short there (found by review), and a message must name the
+    // line an editor shows. `(byte, line)`: where the count has reached.
     let mut counted = (0, 1);
+    let crlf = memchr::memchr(b'\r', bytes).is_some();
     while reader.read_record(&mut record).map_err(unreadable)? {
         // read_record sets every record's position; the reader's own is the fallback.
         let start = record.position().unwrap_or(reader.position()).clone();
@@ -262,16 +263,19 @@ pub fn parse_series(
         if let Some(blank) = blank.filter(|b| start.byte() as usize >= b.byte) {
             return Err(blank_row(blank));
         }
-        // After a CRLF the reader's offset is the LF's, which ends the line before.
-        let mut at = (start.byte() as usize).min(bytes.len());
-        if bytes.get(at) == Some(&b'\n') {
-            at += 1;
-        }
-        counted = (
-            at,
-            counted.1 + memchr::memchr_iter(b'\n', &bytes[counted.0..at]).count(),
-        );
-        let line = counted.1;
+        let line = match crlf {
+            false => start.line() as usize,
+            true => {
+                // After a CRLF the reader's offset is the LF's, which ends the line before.
+                let mut at = (start.byte() as usize).min(bytes.len());
+                if bytes.get(at) == Some(&b'\n') {
+                    at += 1;
+                }
+                let more = memchr::memchr_iter(b'\n', &bytes[counted.0..at]).count();
+                counted = (at, counted.1 + more);
+                counted.1
+            }
+        };
         check_record_length(file, line, &record, header.len())?;
         check_unnamed_cells(file, line, (&record, &header), &unnamed)?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();

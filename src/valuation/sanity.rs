@@ -107,34 +107,35 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
 }
 
 /// Whether `b`'s prices are `a`'s times one factor (1 included) on every date both have (at
-/// least 20 dates, and at least half of each series): the factor and the count of shared dates. The factor may
-/// move by 1e-4 of itself between dates: prices rounded to four decimals (at a price of 1 or
-/// more) move it by at most 1e-4, while two firms' returns differ by far more on some day in
-/// twenty.
+/// least 20 dates, and at least half of each series): the factor and the count of shared
+/// dates. The factor may move by 1e-4 of itself between dates: prices rounded to four decimals
+/// (at a price of 1 or more) move it by at most 1e-4, while two firms' returns differ by far
+/// more on some day in twenty.
 fn proportional(
     a: &crate::io::series::Series,
     b: &crate::io::series::Series,
 ) -> Option<(f64, usize)> {
     let (mut i, mut j) = (0, 0);
-    let mut ratios = Vec::new();
+    let (mut factor, mut shared) = (None, 0);
     while i < a.dates.len() && j < b.dates.len() {
         match a.dates[i].cmp(&b.dates[j]) {
             std::cmp::Ordering::Less => i += 1,
             std::cmp::Ordering::Greater => j += 1,
             std::cmp::Ordering::Equal => {
-                ratios.push(b.values[j] / a.values[i]);
+                let ratio = b.values[j] / a.values[i];
+                let first = *factor.get_or_insert(ratio);
+                // Two firms' prices part at once, so most pairs stop at their second date.
+                if (ratio / first - 1.0).abs() > 1e-4 {
+                    return None;
+                }
+                shared += 1;
                 i += 1;
                 j += 1;
             }
         }
     }
-    let shared = ratios.len();
-    if shared < 20 || 2 * shared < a.dates.len() || 2 * shared < b.dates.len() {
-        return None;
-    }
-    let factor = ratios[0];
-    // A factor of 1 too: a copy with rows left out (a whole copy is named by the check before).
-    (ratios.iter().all(|r| (r / factor - 1.0).abs() <= 1e-4)).then_some((factor, shared))
+    let enough = shared >= 20 && 2 * shared >= a.dates.len() && 2 * shared >= b.dates.len();
+    factor.filter(|_| enough).map(|f| (f, shared))
 }
 
 /// Refuses a risk-free series whose median is more than [`YIELD_RATIO`] times `case`'s

@@ -48,6 +48,8 @@ fn split_note(name: &str, file: &DataFile, (start, end): (NaiveDate, NaiveDate))
     let (i, ratio) = (1..prices.len())
         .filter(|&i| dates[i] > start && dates[i] <= end)
         .map(|i| (i, prices[i] / prices[i - 1]))
+        // Most moves are far inside every ratio's reach: one comparison sets them aside.
+        .filter(|(_, ratio)| !(0.7..1.4).contains(ratio))
         .find(|(_, ratio)| {
             (SPLIT_RATIOS.iter()).any(|(split, within)| (ratio / split - 1.0).abs() <= *within)
         })?;
