@@ -2646,6 +2646,58 @@ fn a_decimal_comma_under_a_header_ending_in_a_comma_is_refused() {
     assert_same_tables(&plain, &indexed, &["securities.csv", "industries.csv"], why);
 }
 
+// Patterns that pass every rule yet bend a beta, noted as a case notes them for a peer (found
+// by review): a 2-for-1 split left in one security's prices (halved from a date on) and the
+// last price carried forward for the window's last two months in another's. The plain file
+// gives neither note, and the tables of the other securities do not change.
+#[test]
+fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
+    let setup = Setup::new();
+    let plain = setup.succeeds("plain", &[]);
+    let path = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&path).unwrap();
+    let last_s04 = (text.lines().skip(1))
+        .filter(|l| l.contains(",S04,") && l[..10] < *"2026-08-01")
+        .max_by_key(|l| l[..10].to_string())
+        .map(|l| l.rsplit(',').next().unwrap().to_string())
+        .unwrap();
+    let edited: String = (text.lines().enumerate())
+        .map(|(i, l)| {
+            let cells: Vec<&str> = l.split(',').collect();
+            match (i, cells.as_slice()) {
+                (i, [date, "S03", price]) if i > 0 && *date >= "2026-03-02" => {
+                    format!("{date},S03,{}\n", price.parse::<f64>().unwrap() / 2.0)
+                }
+                (i, [date, "S04", _]) if i > 0 && *date >= "2026-08-01" => {
+                    format!("{date},S04,{last_s04}\n")
+                }
+                _ => format!("{l}\n"),
+            }
+        })
+        .collect();
+    fs::write(&path, edited).unwrap();
+    let noted = setup.succeeds("noted", &[]);
+    let notes = |out: &Path| fs::read_to_string(out.join("summary.md")).unwrap();
+    let (before, after) = (notes(&plain), notes(&noted));
+    for (text, id) in [
+        (
+            "1 security with a price moving between two rows in the window by a usual split's",
+            "S03",
+        ),
+        (
+            "1 security with prices unchanged for more than a month",
+            "S04",
+        ),
+    ] {
+        assert!(!before.contains(text), "{before}");
+        let line = after
+            .lines()
+            .find(|l| l.contains(text))
+            .unwrap_or_else(|| panic!("{after}"));
+        assert!(line.ends_with(&format!(": {id}")), "{line}");
+    }
+}
+
 // A listed peer set is aggregated by the industry table's own rules: listing exactly an
 // industry's securities gives that industry's figures, and the industry's median lies at the
 // middle of its own members (mid-rank percentile of a median: 50%, ties counted half, a

@@ -363,6 +363,7 @@ pub fn evaluate(
         leverage: &settings.leverage,
         cash_column: settings.attributes.cash_column.is_some(),
         periods_in_window: estimation.window().period_ends().len(),
+        window: (estimation.window().start(), estimation.window().end()),
     };
     let (securities, rolling) = rows(inputs, (estimates, adjusted), &row_settings);
     let adjusted_betas = settings.beta.adjustment != Adjustment::None;

@@ -3,6 +3,7 @@
 //! than the window. Apart from `mod.rs`, which computes the figures these describe.
 
 mod attributes;
+mod prices;
 
 use std::collections::BTreeMap;
 
@@ -52,6 +53,7 @@ pub(super) fn counts_and_notes(
         == crate::capital::leverage::DebtMeasure::Net;
     notes.extend(attributes::cash_heavy_note(securities, net));
     notes.extend(ended_early_note(securities, window));
+    notes.extend(prices::pattern_notes(securities));
     notes.extend(attributes::missing_note(securities));
     notes.extend(attributes::units_note(securities));
     notes.extend(no_industry_note(securities));

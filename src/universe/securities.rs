@@ -65,6 +65,13 @@ pub struct SecurityResult {
     /// The dates of its first and last price in the panel (`None` for a security without one).
     #[serde(skip)]
     pub price_dates: Option<(chrono::NaiveDate, chrono::NaiveDate)>,
+    /// Patterns in its prices a note names (`case::sanity::prices`): the date of the first move
+    /// in the window by a usual split ratio, and the run of unchanged prices ending them.
+    #[serde(skip)]
+    pub price_patterns: (
+        Option<chrono::NaiveDate>,
+        Option<crate::case::sanity::prices::FlatEnd>,
+    ),
     pub periods_in_window: usize,
     /// The usable returns in the window (also for a security not estimated, when counted).
     pub observations: Option<usize>,
@@ -120,6 +127,8 @@ pub struct RowSettings<'a> {
     /// Whether the attributes name a cash column (otherwise cash is not a missing figure).
     pub cash_column: bool,
     pub periods_in_window: usize,
+    /// The return window's start and end.
+    pub window: (chrono::NaiveDate, chrono::NaiveDate),
 }
 
 /// Why an estimated security is left out of the aggregates, from its excluding flags.
@@ -184,6 +193,14 @@ pub fn security_row(
             .first()
             .zip(series.dates.last())
             .map(|(a, b)| (*a, *b)),
+        price_patterns: {
+            use crate::case::sanity::prices::{flat_end, split_move};
+            let view = (series.dates, series.values);
+            (
+                split_move(view, settings.window).map(|i| series.dates[i]),
+                flat_end(view, settings.window),
+            )
+        },
         periods_in_window: settings.periods_in_window,
         observations: estimated.observations,
         periods_dropped: estimated.periods_dropped,

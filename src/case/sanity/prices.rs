@@ -42,17 +42,56 @@ pub fn price_pattern_notes(
     notes
 }
 
-/// The first move between two rows of `file` inside `window` by a usual split ratio.
-fn split_note(name: &str, file: &DataFile, (start, end): (NaiveDate, NaiveDate)) -> Option<String> {
-    let (dates, prices) = (&file.series.dates, &file.series.values);
-    let (i, ratio) = (1..prices.len())
-        .filter(|&i| dates[i] > start && dates[i] <= end)
-        .map(|i| (i, prices[i] / prices[i - 1]))
+/// Where the prices `(dates, values)` move between two rows by a usual split ratio, the later
+/// row in `(start, end]`: the later row's index.
+pub fn split_move(
+    (dates, values): (&[NaiveDate], &[f64]),
+    (start, end): (NaiveDate, NaiveDate),
+) -> Option<usize> {
+    let from = dates.partition_point(|&d| d <= start).max(1);
+    let to = dates.partition_point(|&d| d <= end);
+    (from..to).find(|&i| {
+        let ratio = values[i] / values[i - 1];
         // Most moves are far inside every ratio's reach: one comparison sets them aside.
-        .filter(|(_, ratio)| !(0.7..1.4).contains(ratio))
-        .find(|(_, ratio)| {
-            (SPLIT_RATIOS.iter()).any(|(split, within)| (ratio / split - 1.0).abs() <= *within)
-        })?;
+        !(0.7..1.4).contains(&ratio)
+            && (SPLIT_RATIOS.iter()).any(|(split, within)| (ratio / split - 1.0).abs() <= *within)
+    })
+}
+
+/// The run of unchanged prices that ends a series, counted from the window's start.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FlatEnd {
+    pub from: NaiveDate,
+    pub to: NaiveDate,
+    pub rows: usize,
+    pub days: i64,
+}
+
+/// The run of unchanged prices that ends `(dates, values)`, when it spans more than
+/// [`FLAT_END_DAYS`] inside the window `(start, end)` (its last price at most a month past the
+/// end) with three rows at least.
+pub fn flat_end(
+    (dates, values): (&[NaiveDate], &[f64]),
+    (start, end): (NaiveDate, NaiveDate),
+) -> Option<FlatEnd> {
+    let last = *values.last()?;
+    let first = values.iter().rposition(|&p| p != last).map_or(0, |k| k + 1);
+    let (from, to) = (dates[first].max(start), *dates.last()?);
+    let days = (to - from).num_days();
+    let rows = dates[first..].iter().filter(|d| **d >= from).count();
+    let inside = to > start && to <= end + chrono::Duration::days(31);
+    (inside && days > FLAT_END_DAYS && rows >= 3).then_some(FlatEnd {
+        from,
+        to,
+        rows,
+        days,
+    })
+}
+
+/// The note on a move of `file` by a usual split ratio.
+fn split_note(name: &str, file: &DataFile, window: (NaiveDate, NaiveDate)) -> Option<String> {
+    let (dates, prices) = (&file.series.dates, &file.series.values);
+    let i = split_move((dates, prices), window)?;
     let show = crate::error::compact;
     Some(format!(
         "{name}: its price ({}) moves from {} on {} to {} on {}, a factor of {}, as a split or \
@@ -63,33 +102,26 @@ fn split_note(name: &str, file: &DataFile, (start, end): (NaiveDate, NaiveDate))
         dates[i - 1],
         show(prices[i]),
         dates[i],
-        crate::case::sanity::significant(ratio)
+        crate::case::sanity::significant(prices[i] / prices[i - 1])
     ))
 }
 
-/// The run of unchanged prices that ends `file`, when it spans more than [`FLAT_END_DAYS`] and
-/// ends inside `window`.
-fn flat_end_note(
-    name: &str,
-    file: &DataFile,
-    (start, end): (NaiveDate, NaiveDate),
-) -> Option<String> {
-    let (dates, prices) = (&file.series.dates, &file.series.values);
-    let last = *prices.last()?;
-    let first = prices.iter().rposition(|&p| p != last).map_or(0, |k| k + 1);
-    let (from, to) = (dates[first].max(start), *dates.last()?);
-    let days = (to - from).num_days();
-    let rows = dates[first..].iter().filter(|d| **d >= from).count();
-    (to > start && to <= end + chrono::Duration::days(31) && days > FLAT_END_DAYS && rows >= 3)
-        .then(|| {
-            format!(
-                "{name}: its price ({}) stays at {} from {from} to {to} ({rows} rows, {days} \
-                 days), to the file's end: prices carried forward after trading stopped? Their \
-                 returns of zero pull the beta toward zero; end the file where trading ended.",
-                file.path,
-                crate::error::compact(last)
-            )
-        })
+/// The note on the run of unchanged prices that ends `file`.
+fn flat_end_note(name: &str, file: &DataFile, window: (NaiveDate, NaiveDate)) -> Option<String> {
+    let series = (&file.series.dates[..], &file.series.values[..]);
+    let FlatEnd {
+        from,
+        to,
+        rows,
+        days,
+    } = flat_end(series, window)?;
+    Some(format!(
+        "{name}: its price ({}) stays at {} from {from} to {to} ({rows} rows, {days} days), to \
+         the file's end: prices carried forward after trading stopped? Their returns of zero \
+         pull the beta toward zero; end the file where trading ended.",
+        file.path,
+        crate::error::compact(*file.series.values.last().expect("a flat run has a price"))
+    ))
 }
 
 #[cfg(test)]
