@@ -480,6 +480,37 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     );
 }
 
+// An index of weekly prices (Fridays alone) set against daily peer prices (found by review):
+// under monthly returns each month's index price is up to six days older than the peers', and
+// the note says the index's cadence. Calendar fact: consecutive Fridays are 7 days apart, so
+// the median gap is 7.
+#[test]
+fn a_weekly_index_under_daily_peers_is_noted() {
+    let has = |notes: &[String], text: &str| notes.iter().any(|n| n.contains(text));
+    let text = "The index (data/index.csv) has a price only every";
+    assert!(!has(&notes_of_run(|_| {}, &[]), text));
+    let weekly = notes_of_run(
+        |dir| {
+            let path = dir.join("data/index.csv");
+            let prices = std::fs::read_to_string(&path).unwrap();
+            let fridays: String = (prices.lines().enumerate())
+                .filter(|(i, l)| {
+                    use chrono::Datelike;
+                    let date = chrono::NaiveDate::parse_from_str(&l[..10], "%Y-%m-%d");
+                    *i == 0 || date.is_ok_and(|d| d.weekday() == chrono::Weekday::Fri)
+                })
+                .map(|(_, l)| format!("{l}\n"))
+                .collect();
+            std::fs::write(&path, fridays).unwrap();
+        },
+        &[],
+    );
+    assert!(
+        has(&weekly, &format!("{text} 7 days in the window")),
+        "{weekly:?}"
+    );
+}
+
 // An index file holding gross returns (1 + r) instead of levels (found by review): every peer's
 // R² collapses and their betas' intervals reach zero, which result.json's `cautions` record; the
 // terminal's summary says so too, not only the memo.

@@ -46,6 +46,10 @@ pub(super) fn counts_and_notes(
         ))
         .collect();
     notes.splice(0..0, index_coverage_note(&inputs.index, window));
+    notes.extend(crate::case::sanity::index_cadence_note(
+        &inputs.index,
+        window,
+    ));
     notes.extend(attributes::thousands_notes(inputs));
     notes.extend(strays_note(inputs, &strays));
     notes.extend(named_notes(securities));

@@ -237,6 +237,10 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         "peer",
         "periods_dropped.market_missing",
     ));
+    notes.extend(crate::case::sanity::index_cadence_note(
+        &inputs.index,
+        window,
+    ));
     notes.extend(crate::case::sanity::short_window_note(
         (window.start(), window.end()),
         window.period_ends().len(),

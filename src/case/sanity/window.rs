@@ -37,6 +37,36 @@ pub fn index_coverage_note(
     })
 }
 
+/// A note when the index's prices inside the window come further apart than a market's trading
+/// days (found by review: a weekly index under monthly returns set each month's last Friday
+/// against the securities' month-end prices, moving every beta, without a word): the median
+/// gap between its dates above 3 calendar days (a weekend and a holiday).
+pub fn index_cadence_note(
+    index: &crate::io::series::DataFile,
+    window: &crate::estimate::Window,
+) -> Option<String> {
+    let dates = &index.series.dates;
+    let from = dates.partition_point(|&d| d < window.start());
+    let to = dates.partition_point(|&d| d <= window.end());
+    let mut gaps: Vec<i64> = (dates[from..to].windows(2))
+        .map(|w| (w[1] - w[0]).num_days())
+        .collect();
+    if gaps.len() < 2 {
+        return None;
+    }
+    let middle = gaps.len() / 2;
+    let gap = *gaps.select_nth_unstable(middle).1;
+    (gap > 3).then(|| {
+        format!(
+            "The index ({}) has a price only every {gap} days in the window (the median gap \
+             between its dates): a period's index price may then be days older than the \
+             prices set against it, which misaligns the returns (and under daily returns \
+             leaves most days without one); give the index's price for every trading day.",
+            index.path
+        )
+    })
+}
+
 /// A return window shorter than this many years is noted (common practice estimates betas over
 /// two to five years: less rests on one phase of the market).
 const SHORT_WINDOW_YEARS: f64 = 2.0;
