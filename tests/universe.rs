@@ -2698,6 +2698,43 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     }
 }
 
+// Whole-file slips in the attributes (found by a review of a market's plausible mistakes):
+// every tax rate 0 (blanks filled with zeros) and equity values a thousand times too large
+// against debt (thousands beside millions), which move every unlevered beta. The test
+// universe's own median D/E is well above 1/100 and its tax rates are not all 0.
+#[test]
+fn attributes_of_the_wrong_units_or_zeroed_taxes_are_noted() {
+    let summary = |edit: &dyn Fn(&Path)| {
+        let setup = Setup::new();
+        edit(&setup.dir());
+        let out = setup.succeeds("out", &[]);
+        fs::read_to_string(out.join("summary.md")).unwrap()
+    };
+    let plain = summary(&|_| {});
+    assert!(!plain.contains("Check: every tax rate"), "{plain}");
+    assert!(!plain.contains("Check: the median D/E of the"), "{plain}");
+    let zeroed = summary(&|dir| {
+        edit_attributes(dir, "tax_rate", |cells, at| {
+            (!cells[at("tax_rate")].is_empty()).then(|| "0".to_string())
+        });
+    });
+    assert!(
+        zeroed.contains("Check: every tax rate in attributes.csv is 0 ("),
+        "{zeroed}"
+    );
+    let thousands = summary(&|dir| {
+        edit_attributes(dir, "market_cap", |cells, at| {
+            let value = cells[at("market_cap")].parse::<f64>().ok()?;
+            Some(format!("{}", value * 1000.0))
+        });
+    });
+    assert!(
+        thousands.contains("Check: the median D/E of the ")
+            && thousands.contains("equity values in attributes.csv in smaller units than debt"),
+        "{thousands}"
+    );
+}
+
 // A listed peer set is aggregated by the industry table's own rules: listing exactly an
 // industry's securities gives that industry's figures, and the industry's median lies at the
 // middle of its own members (mid-rank percentile of a median: 50%, ties counted half, a

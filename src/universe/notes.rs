@@ -60,6 +60,10 @@ pub(super) fn counts_and_notes(
     notes.extend(prices::pattern_notes(securities));
     notes.extend(attributes::missing_note(securities));
     notes.extend(attributes::units_note(securities));
+    notes.extend(attributes::whole_file_notes(
+        securities,
+        &inputs.attributes.file.path,
+    ));
     notes.extend(no_industry_note(securities));
     notes.extend(placeholder_industries_note(securities));
     notes.extend(label_twins_note(securities));

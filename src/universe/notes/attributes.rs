@@ -68,6 +68,43 @@ const UNITS_FACTOR: f64 = 1e5;
 
 /// The industries whose equity values span more than [`UNITS_FACTOR`], with their smallest and
 /// largest securities: most often figures in other units, which the market-cap weights and the
+/// "Check:" notes on the attributes as a whole (found by a review of a market's plausible
+/// mistakes): every tax rate given 0 (blanks filled with zeros: each firm is unlevered without
+/// a tax shield, when a blank would have flagged it), and a median D/E below 1/100 over the
+/// securities with debt (equity values in thousands beside debt in millions, every D/E a
+/// thousandth of its value). Both bounds are hurdle's judgement: a whole market of firms
+/// without tax, or whose median firm's debt is under 1% of its equity, is rare.
+pub(super) fn whole_file_notes(securities: &[SecurityResult], file: &str) -> Vec<String> {
+    let mut notes = Vec::new();
+    let taxes: Vec<f64> = securities.iter().filter_map(|s| s.tax_rate).collect();
+    if taxes.len() >= 2 && taxes.iter().all(|&t| t == 0.0) {
+        notes.push(format!(
+            "Check: every tax rate in {file} is 0 ({} securities): blanks filled with zeros? \
+             Each firm is then unlevered without a tax shield; leave a rate unknown blank (the \
+             security is flagged missing_tax_rate and kept out of the figures that need it).",
+            taxes.len()
+        ));
+    }
+    let mut ratios: Vec<f64> = (securities.iter())
+        .filter(|s| s.debt.is_some_and(|d| d > 0.0))
+        .filter_map(|s| s.debt_to_equity)
+        .collect();
+    if ratios.len() >= 5 {
+        let middle = ratios.len() / 2;
+        let median = *ratios.select_nth_unstable_by(middle, f64::total_cmp).1;
+        if median < 0.01 {
+            notes.push(format!(
+                "Check: the median D/E of the {} securities with debt is {}: equity values in \
+                 {file} in smaller units than debt (thousands beside millions)? Every D/E, and \
+                 so every unlevered beta, reads them as given.",
+                ratios.len(),
+                crate::case::sanity::significant(median)
+            ));
+        }
+    }
+    notes
+}
+
 /// D/E read as given (found by review: one given in units among figures in millions carried its
 /// industry's weighted mean alone; measured against the median instead, half an industry in
 /// other units named the wrong securities).
