@@ -2698,6 +2698,41 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     }
 }
 
+// A second listing (one security's prices times 1.5 under another id, with its own attributes
+// row): the same returns, one firm counted twice in its industry (found by review). The note
+// names the pair and the factor; the plain universe has no such pair.
+#[test]
+fn a_second_listing_with_the_same_returns_is_noted() {
+    let setup = Setup::new();
+    let plain = setup.succeeds("plain", &[]);
+    let summary = |out: &Path| fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(!summary(&plain).contains("with the same returns"));
+    let prices = setup.dir().join("prices-long.csv");
+    let text = fs::read_to_string(&prices).unwrap();
+    let copies: String = (text.lines())
+        .filter_map(|l| {
+            let (date, rest) = l.split_once(',')?;
+            let price = rest.strip_prefix("S01,")?.parse::<f64>().ok()?;
+            Some(format!("{date},S01B,{}\n", price * 1.5))
+        })
+        .collect();
+    fs::write(&prices, text + &copies).unwrap();
+    let attributes = setup.dir().join("attributes.csv");
+    let text = fs::read_to_string(&attributes).unwrap();
+    let row = text
+        .lines()
+        .find(|l| l.starts_with("S01,"))
+        .unwrap()
+        .replacen("S01,", "S01B,", 1);
+    fs::write(&attributes, format!("{text}{row}\n")).unwrap();
+    let noted = summary(&setup.succeeds("noted", &[]));
+    assert!(
+        noted.contains("Check: 1 pair of securities with the same returns")
+            && noted.contains(": S01 and S01B (× 1.5)"),
+        "{noted}"
+    );
+}
+
 // Whole-file slips in the attributes (found by a review of a market's plausible mistakes):
 // every tax rate 0 (blanks filled with zeros) and equity values a thousand times too large
 // against debt (thousands beside millions), which move every unlevered beta. The test

@@ -58,6 +58,7 @@ pub(super) fn counts_and_notes(
     notes.extend(attributes::cash_heavy_note(securities, net));
     notes.extend(ended_early_note(securities, window));
     notes.extend(prices::pattern_notes(securities));
+    notes.extend(prices::same_returns_note(panel));
     notes.extend(attributes::missing_note(securities));
     notes.extend(attributes::units_note(securities));
     notes.extend(attributes::whole_file_notes(

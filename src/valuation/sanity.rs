@@ -7,6 +7,7 @@ use chrono::NaiveDate;
 use std::path::Path;
 
 use super::{Inputs, Valuation};
+use crate::case::sanity::prices::proportional;
 use crate::case::sanity::significant;
 use crate::case::sanity::{
     implausible_move, text, JUMP_FACTOR, MAX_DEBT_TO_EQUITY, MAX_R_SQUARED, MAX_TOLERANCE,
@@ -77,8 +78,11 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
         }
         // A copy rescaled (another listing at a fixed rate, pence for pounds): the same returns,
         // so one firm counted twice (found by review).
-        let scaled = (inputs.peers[..i].iter().enumerate())
-            .find_map(|(j, other)| Some((j, proportional(&other.series, &file.series)?)));
+        let scaled = (inputs.peers[..i].iter().enumerate()).find_map(|(j, other)| {
+            let (a, b) = (&other.series, &file.series);
+            let found = proportional((&a.dates, &a.values), (&b.dates, &b.values))?;
+            Some((j, found))
+        });
         if let Some((j, (factor, shared))) = scaled {
             return Err(Error::Case {
                 file: inputs.case.path.clone(),
@@ -104,38 +108,6 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
         check_yield_switch(&inputs.case.resolve(&yields.path), yields)?;
     }
     check_rate_against_yields(&inputs.case, inputs)
-}
-
-/// Whether `b`'s prices are `a`'s times one factor (1 included) on every date both have (at
-/// least 20 dates, and at least half of each series): the factor and the count of shared
-/// dates. The factor may move by 1e-4 of itself between dates: prices rounded to four decimals
-/// (at a price of 1 or more) move it by at most 1e-4, while two firms' returns differ by far
-/// more on some day in twenty.
-fn proportional(
-    a: &crate::io::series::Series,
-    b: &crate::io::series::Series,
-) -> Option<(f64, usize)> {
-    let (mut i, mut j) = (0, 0);
-    let (mut factor, mut shared) = (None, 0);
-    while i < a.dates.len() && j < b.dates.len() {
-        match a.dates[i].cmp(&b.dates[j]) {
-            std::cmp::Ordering::Less => i += 1,
-            std::cmp::Ordering::Greater => j += 1,
-            std::cmp::Ordering::Equal => {
-                let ratio = b.values[j] / a.values[i];
-                let first = *factor.get_or_insert(ratio);
-                // Two firms' prices part at once, so most pairs stop at their second date.
-                if (ratio / first - 1.0).abs() > 1e-4 {
-                    return None;
-                }
-                shared += 1;
-                i += 1;
-                j += 1;
-            }
-        }
-    }
-    let enough = shared >= 20 && 2 * shared >= a.dates.len() && 2 * shared >= b.dates.len();
-    factor.filter(|_| enough).map(|f| (f, shared))
 }
 
 /// Refuses a risk-free series whose median is more than [`YIELD_RATIO`] times `case`'s

@@ -88,6 +88,38 @@ pub fn flat_end(
     })
 }
 
+/// Whether `b`'s prices are `a`'s times one factor (1 included) on every date both have (at
+/// least 20 dates, and at least half of each series): the factor and the count of shared
+/// dates. The factor may move by 1e-4 of itself between dates: prices rounded to four decimals
+/// (at a price of 1 or more) move it by at most 1e-4, while two firms' returns differ by far
+/// more on some day in twenty.
+pub fn proportional(
+    (a_dates, a_values): (&[NaiveDate], &[f64]),
+    (b_dates, b_values): (&[NaiveDate], &[f64]),
+) -> Option<(f64, usize)> {
+    let (mut i, mut j) = (0, 0);
+    let (mut factor, mut shared) = (None, 0);
+    while i < a_dates.len() && j < b_dates.len() {
+        match a_dates[i].cmp(&b_dates[j]) {
+            std::cmp::Ordering::Less => i += 1,
+            std::cmp::Ordering::Greater => j += 1,
+            std::cmp::Ordering::Equal => {
+                let ratio = b_values[j] / a_values[i];
+                let first = *factor.get_or_insert(ratio);
+                // Two firms' prices part at once, so most pairs stop at their second date.
+                if (ratio / first - 1.0).abs() > 1e-4 {
+                    return None;
+                }
+                shared += 1;
+                i += 1;
+                j += 1;
+            }
+        }
+    }
+    let enough = shared >= 20 && 2 * shared >= a_dates.len() && 2 * shared >= b_dates.len();
+    factor.filter(|_| enough).map(|f| (f, shared))
+}
+
 /// The note on a move of `file` by a usual split ratio.
 fn split_note(name: &str, file: &DataFile, window: (NaiveDate, NaiveDate)) -> Option<String> {
     let (dates, prices) = (&file.series.dates, &file.series.values);

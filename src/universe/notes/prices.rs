@@ -2,11 +2,86 @@
 //! case notes them for a peer (`case::sanity::prices`): a move between two rows in the window
 //! by a usual split ratio (an unadjusted split inside the factor-of-3 bound), and prices
 //! unchanged for more than a month to their end in the window (carried forward after trading
-//! stopped).
+//! stopped); and two securities with the same returns (one's prices another's, or their
+//! multiple, on every date both have: a second listing or share class, one firm counted twice).
 
 use super::{first_ids, ids_where};
 use crate::universe::securities::SecurityResult;
 use crate::universe::securities_count;
+
+/// Moves of more than this share between two rows make a security's fingerprint: a copy at
+/// another scale, rounded to four decimals, moves by the same shares on the same dates.
+const BIG_MOVE: f64 = 0.03;
+/// How many such moves a fingerprint holds, and the fewest that make one (fewer would group
+/// securities that barely move, which the check of whole series would then tell apart one
+/// pair at a time).
+const FINGERPRINT_MOVES: (usize, usize) = (16, 4);
+
+/// Pairs of securities in `panel` with the same returns: one's prices another's, or their
+/// multiple by one factor, on every date both have (`case::sanity::prices::proportional`, the
+/// case's rule for two peers). Candidates are found by the dates and directions of their first
+/// big moves, so the whole series are compared only within a group of equal fingerprints.
+pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
+    use rayon::prelude::*;
+    use std::collections::HashMap;
+    // Side by side: a market of thousands of securities scans each until its moves are found.
+    let fingerprints: Vec<Vec<(chrono::NaiveDate, bool)>> = (0..panel.len())
+        .into_par_iter()
+        .map(|i| {
+            let s = panel.series(i);
+            (1..s.values.len())
+                .map(|k| (s.dates[k], s.values[k] / s.values[k - 1] - 1.0))
+                .filter(|(_, r)| r.abs() > BIG_MOVE)
+                .map(|(d, r)| (d, r > 0.0))
+                .take(FINGERPRINT_MOVES.0)
+                .collect()
+        })
+        .collect();
+    let mut groups: HashMap<&[(chrono::NaiveDate, bool)], Vec<usize>> = HashMap::new();
+    for (i, moves) in fingerprints.iter().enumerate() {
+        if moves.len() >= FINGERPRINT_MOVES.1 {
+            groups.entry(moves).or_default().push(i);
+        }
+    }
+    let ids = panel.securities();
+    let mut pairs: Vec<String> = Vec::new();
+    for members in groups.values().filter(|m| m.len() > 1) {
+        for (k, &a) in members.iter().enumerate() {
+            for &b in &members[k + 1..] {
+                let (x, y) = (panel.series(a), panel.series(b));
+                let Some((factor, _)) = crate::case::sanity::prices::proportional(
+                    (x.dates, x.values),
+                    (y.dates, y.values),
+                ) else {
+                    continue;
+                };
+                pairs.push(match (factor - 1.0).abs() <= 1e-4 {
+                    true => format!("{} and {}", ids[a], ids[b]),
+                    false => format!(
+                        "{} and {} (× {})",
+                        ids[a],
+                        ids[b],
+                        crate::case::sanity::significant(factor)
+                    ),
+                });
+            }
+        }
+    }
+    pairs.sort();
+    let shown: Vec<&str> = pairs.iter().map(String::as_str).collect();
+    (!pairs.is_empty()).then(|| {
+        format!(
+            "Check: {} of securities with the same returns, one's prices the other's (or their \
+             multiple) on every date both have: a second listing, another share class or a \
+             copied file, one firm counted twice in its industry's figures: {}",
+            match pairs.len() {
+                1 => "1 pair".to_string(),
+                n => format!("{n} pairs"),
+            },
+            first_ids(&shown)
+        )
+    })
+}
 
 /// The two notes, each naming the securities it finds.
 pub(super) fn pattern_notes(securities: &[SecurityResult]) -> Vec<String> {
