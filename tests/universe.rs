@@ -2648,8 +2648,8 @@ fn a_decimal_comma_under_a_header_ending_in_a_comma_is_refused() {
 
 // Patterns that pass every rule yet bend a beta, noted as a case notes them for a peer (found
 // by review): a 2-for-1 split left in one security's prices (halved from a date on) and the
-// last price carried forward for the window's last two months in another's. The plain file
-// gives neither note, and the tables of the other securities do not change.
+// last price carried forward for the window's last two months in another's, and a third priced
+// weekly (Fridays alone) in the daily panel. The plain file gives none of these notes.
 #[test]
 fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     let setup = Setup::new();
@@ -2676,9 +2676,36 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
         })
         .collect();
     fs::write(&path, edited).unwrap();
+    // And S05 priced on Fridays alone (weekly prices in a daily panel).
+    let text = fs::read_to_string(&path).unwrap();
+    let fridays: String = (text.lines().enumerate())
+        .filter(|(i, l)| {
+            use chrono::Datelike;
+            let date = chrono::NaiveDate::parse_from_str(&l[..10], "%Y-%m-%d");
+            *i == 0 || !l.contains(",S05,") || date.unwrap().weekday() == chrono::Weekday::Fri
+        })
+        .map(|(_, l)| format!("{l}\n"))
+        .collect();
+    fs::write(&path, fridays).unwrap();
     let noted = setup.succeeds("noted", &[]);
     let notes = |out: &Path| fs::read_to_string(out.join("summary.md")).unwrap();
     let (before, after) = (notes(&plain), notes(&noted));
+    let sparse = "with one price every four calendar days or more on average";
+    let sparse_ids = |text: &str| {
+        let line = text.lines().find(|l| l.contains(sparse)).unwrap_or("");
+        line.rsplit(": ").next().unwrap_or("").to_string()
+    };
+    assert!(!sparse_ids(&before).contains("S05"), "{before}");
+    // The test universe's window, 2025-01-02 to 2026-09-30, is under two years: noted as a
+    // case notes it (636 days, 1.74 years: calendar arithmetic).
+    assert!(
+        before.contains("daily returns from ") && before.contains(" spans 1.74 years"),
+        "{before}"
+    );
+    assert!(
+        sparse_ids(&after).split(", ").any(|id| id == "S05"),
+        "{after}"
+    );
     for (text, id) in [
         (
             "1 security with a price moving between two rows in the window by a usual split's",

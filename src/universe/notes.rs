@@ -50,6 +50,13 @@ pub(super) fn counts_and_notes(
         &inputs.index,
         window,
     ));
+    // As a case notes it (found by review: `--set beta.frequency=daily` over a lookback of 60
+    // made a window of 60 days without a word).
+    notes.extend(crate::case::sanity::short_window_note(
+        (window.start(), window.end()),
+        window.period_ends().len(),
+        universe.settings.beta.frequency,
+    ));
     notes.extend(attributes::thousands_notes(inputs));
     notes.extend(strays_note(inputs, &strays));
     notes.extend(named_notes(securities));

@@ -86,6 +86,14 @@ pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
 /// The two notes, each naming the securities it finds.
 pub(super) fn pattern_notes(securities: &[SecurityResult]) -> Vec<String> {
     let split = ids_where(securities, |s| s.price_patterns.0.is_some());
+    // One price every four calendar days or more on average over its span: weekly prices in a
+    // panel of daily ones, or a security that trades about once a week (found by review: the
+    // only words were "listed late, delisted early, or thinly traded").
+    let sparse = ids_where(securities, |s| {
+        s.price_dates.is_some_and(|(first, last)| {
+            s.prices >= 3 && (last - first).num_days() as f64 >= 4.0 * (s.prices - 1) as f64
+        })
+    });
     let flat = ids_where(securities, |s| s.price_patterns.1.is_some());
     let mut notes = Vec::new();
     if !split.is_empty() {
@@ -96,6 +104,16 @@ pub(super) fn pattern_notes(securities: &[SecurityResult]) -> Vec<String> {
              that size is rare): {}",
             securities_count(split.len()),
             first_ids(&split)
+        ));
+    }
+    if !sparse.is_empty() {
+        notes.push(format!(
+            "{} with one price every four calendar days or more on average: weekly prices in a \
+             panel of daily ones, or a security that seldom trades? A period's price may then be \
+             days older than the index's, which misaligns its returns (beta.max_stale_days drops \
+             such periods): {}",
+            securities_count(sparse.len()),
+            first_ids(&sparse)
         ));
     }
     if !flat.is_empty() {
