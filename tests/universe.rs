@@ -2725,6 +2725,48 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     }
 }
 
+// An index and a panel of month-end prices alike (found by review: both were noted as coming
+// too far apart, the index as misaligned, though every price shares its dates): no cadence
+// note.
+#[test]
+fn month_end_prices_throughout_are_not_noted_as_sparse() {
+    let sets = ["beta.frequency=monthly", "beta.min_observations=12"];
+    let notes_of = |setup: &Setup| {
+        let out = setup.succeeds("out", &sets);
+        fs::read_to_string(out.join("summary.md")).unwrap()
+    };
+    let cadence = ["has a price every", "four calendar days or more"];
+    // Daily files: the index is not noted (the test universe's thinnest trader, priced about
+    // once a week, is, as a security that seldom trades).
+    let daily = notes_of(&Setup::new());
+    assert!(!daily.contains(cadence[0]), "{daily}");
+    let setup = Setup::new();
+    for name in ["index.csv", "prices-long.csv"] {
+        let path = setup.dir().join(name);
+        let text = fs::read_to_string(&path).unwrap();
+        let mut lines: Vec<&str> = text.lines().collect();
+        let header = lines.remove(0);
+        // The last row of each (month, security): ISO dates sort as text.
+        let mut last: std::collections::BTreeMap<(String, String), &str> = Default::default();
+        for line in &lines {
+            let cells: Vec<&str> = line.split(',').collect();
+            let id = if cells.len() == 3 { cells[1] } else { "" };
+            let key = (line[..7].to_string(), id.to_string());
+            let keep = last.get(&key).is_none_or(|l| l[..10] < line[..10]);
+            if keep {
+                last.insert(key, line);
+            }
+        }
+        let kept: String = std::iter::once(header)
+            .chain(last.into_values())
+            .map(|l| format!("{l}\n"))
+            .collect();
+        fs::write(&path, kept).unwrap();
+    }
+    let monthly = notes_of(&setup);
+    assert!(!cadence.iter().any(|c| monthly.contains(c)), "{monthly}");
+}
+
 // A second listing (one security's prices times 1.5 under another id, with its own attributes
 // row): the same returns, one firm counted twice in its industry (found by review). The note
 // names the pair and the factor; the plain universe has no such pair.
@@ -2754,7 +2796,7 @@ fn a_second_listing_with_the_same_returns_is_noted() {
     fs::write(&attributes, format!("{text}{row}\n")).unwrap();
     let noted = summary(&setup.succeeds("noted", &[]));
     assert!(
-        noted.contains("Check: 1 pair of securities with the same returns")
+        noted.contains("Check: 1 group of securities with the same returns")
             && noted.contains(": S01 and S01B (× 1.5)"),
         "{noted}"
     );
@@ -2766,15 +2808,33 @@ fn a_second_listing_with_the_same_returns_is_noted() {
 // universe's own median D/E is well above 1/100 and its tax rates are not all 0.
 #[test]
 fn attributes_of_the_wrong_units_or_zeroed_taxes_are_noted() {
-    let summary = |edit: &dyn Fn(&Path)| {
+    let summary_with = |edit: &dyn Fn(&Path), sets: &[&str]| {
         let setup = Setup::new();
         edit(&setup.dir());
-        let out = setup.succeeds("out", &[]);
+        let out = setup.succeeds("out", sets);
         fs::read_to_string(out.join("summary.md")).unwrap()
     };
+    let summary = |edit: &dyn Fn(&Path)| summary_with(edit, &[]);
     let plain = summary(&|_| {});
+    // Cash above debt under net debt: D/Es below zero, units right (found by review).
+    let cash_rich = summary_with(
+        &|dir| {
+            edit_attributes(dir, "cash", |cells, at| {
+                let debt = cells[at("debt")].parse::<f64>().ok()?;
+                Some(format!("{}", debt * 1.5))
+            });
+        },
+        &["leverage.debt_measure=net"],
+    );
+    assert!(
+        !cash_rich.contains("Check: the median gross D/E of the"),
+        "{cash_rich}"
+    );
     assert!(!plain.contains("Check: every tax rate"), "{plain}");
-    assert!(!plain.contains("Check: the median D/E of the"), "{plain}");
+    assert!(
+        !plain.contains("Check: the median gross D/E of the"),
+        "{plain}"
+    );
     let zeroed = summary(&|dir| {
         edit_attributes(dir, "tax_rate", |cells, at| {
             (!cells[at("tax_rate")].is_empty()).then(|| "0".to_string())
@@ -2791,7 +2851,7 @@ fn attributes_of_the_wrong_units_or_zeroed_taxes_are_noted() {
         });
     });
     assert!(
-        thousands.contains("Check: the median D/E of the ")
+        thousands.contains("Check: the median gross D/E of the ")
             && thousands.contains("equity values in attributes.csv in smaller units than debt"),
         "{thousands}"
     );

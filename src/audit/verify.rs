@@ -305,9 +305,6 @@ impl Verification {
     }
 }
 
-/// A file given as a receipt that is plainly something else: a case file or a claimed build-up
-/// (TOML tables and keys), or a CSV table (commas on its first line); named as such, with what
-/// to give instead.
 /// A rerun's refusal of an input file, with the versions when the receipt's is another: an
 /// earlier version may have read a file this one refuses (found by review: a 0.9.0 receipt
 /// whose price file holds a value under an unnamed column stopped with the input's error
@@ -344,6 +341,9 @@ pub(super) fn refused_since(error: Error, recorded: &Value) -> Error {
     }
 }
 
+/// A file given as a receipt that is plainly something else: a case file or a claimed build-up
+/// (TOML tables and keys), or a CSV table (commas on its first line); named as such, with what
+/// to give instead.
 fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
     let first = (text.lines().map(str::trim))
         .find(|l| !l.is_empty() && !l.starts_with('#'))

@@ -49,6 +49,7 @@ pub(super) fn counts_and_notes(
     notes.extend(crate::case::sanity::index_cadence_note(
         &inputs.index,
         window,
+        (prices::panel_gap(securities), "median security"),
     ));
     // As a case notes it (found by review: `--set beta.frequency=daily` over a lookback of 60
     // made a window of 60 days without a word).

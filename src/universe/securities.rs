@@ -68,10 +68,7 @@ pub struct SecurityResult {
     /// Patterns in its prices a note names (`case::sanity::prices`): the date of the first move
     /// in the window by a usual split ratio, and the run of unchanged prices ending them.
     #[serde(skip)]
-    pub price_patterns: (
-        Option<chrono::NaiveDate>,
-        Option<crate::case::sanity::prices::FlatEnd>,
-    ),
+    pub price_patterns: crate::case::sanity::prices::PricePatterns,
     pub periods_in_window: usize,
     /// The usable returns in the window (also for a security not estimated, when counted).
     pub observations: Option<usize>,
@@ -193,14 +190,10 @@ pub fn security_row(
             .first()
             .zip(series.dates.last())
             .map(|(a, b)| (*a, *b)),
-        price_patterns: {
-            use crate::case::sanity::prices::{flat_end, split_move};
-            let view = (series.dates, series.values);
-            (
-                split_move(view, settings.window).map(|i| series.dates[i]),
-                flat_end(view, settings.window),
-            )
-        },
+        price_patterns: crate::case::sanity::prices::PricePatterns::of(
+            (series.dates, series.values),
+            settings.window,
+        ),
         periods_in_window: settings.periods_in_window,
         observations: estimated.observations,
         periods_dropped: estimated.periods_dropped,

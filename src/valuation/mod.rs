@@ -237,9 +237,16 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         "peer",
         "periods_dropped.market_missing",
     ));
+    let bounds = (window.start(), window.end());
+    let mut gaps: Vec<f64> = (inputs.peers.iter())
+        .filter_map(|p| crate::case::sanity::prices::mean_gap(&p.series.dates, bounds))
+        .collect();
+    gaps.sort_by(f64::total_cmp);
+    let median_peer = gaps.get(gaps.len() / 2).copied();
     notes.extend(crate::case::sanity::index_cadence_note(
         &inputs.index,
         window,
+        (median_peer, "median peer"),
     ));
     notes.extend(crate::case::sanity::short_window_note(
         (window.start(), window.end()),

@@ -58,6 +58,38 @@ pub fn split_move(
     })
 }
 
+/// The patterns a note names in one security's prices, found once.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct PricePatterns {
+    /// The date of the first move in the window by a usual split ratio.
+    pub split: Option<NaiveDate>,
+    /// The run of unchanged prices ending them.
+    pub flat_end: Option<FlatEnd>,
+    /// Calendar days per price inside the window, on average ([`mean_gap`]).
+    pub gap: Option<f64>,
+}
+
+impl PricePatterns {
+    pub fn of(series: (&[NaiveDate], &[f64]), window: (NaiveDate, NaiveDate)) -> PricePatterns {
+        PricePatterns {
+            split: split_move(series, window).map(|i| series.0[i]),
+            flat_end: flat_end(series, window),
+            gap: mean_gap(series.0, window),
+        }
+    }
+}
+
+/// The calendar days between the first and last of `dates` inside `[start, end]`, per interval
+/// between them (about 1.45 for a market's trading days, 7 for weekly prices, 30.4 for
+/// month-ends); `None` with fewer than three dates there.
+pub fn mean_gap(dates: &[NaiveDate], (start, end): (NaiveDate, NaiveDate)) -> Option<f64> {
+    let from = dates.partition_point(|&d| d < start);
+    let to = dates.partition_point(|&d| d <= end);
+    let inside = dates.get(from..to).filter(|d| d.len() >= 3)?;
+    let span = (inside[inside.len() - 1] - inside[0]).num_days() as f64;
+    Some(span / (inside.len() - 1) as f64)
+}
+
 /// The run of unchanged prices that ends a series, counted from the window's start.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct FlatEnd {
@@ -76,7 +108,7 @@ pub fn flat_end(
 ) -> Option<FlatEnd> {
     let last = *values.last()?;
     let first = values.iter().rposition(|&p| p != last).map_or(0, |k| k + 1);
-    let (from, to) = (dates[first].max(start), *dates.last()?);
+    let (from, to) = (dates.get(first)?.max(&start).to_owned(), *dates.last()?);
     let days = (to - from).num_days();
     let rows = dates[first..].iter().filter(|d| **d >= from).count();
     let inside = to > start && to <= end + chrono::Duration::days(31);

@@ -38,31 +38,29 @@ pub fn index_coverage_note(
 }
 
 /// A note when the index's prices inside the window come further apart than a market's trading
-/// days (found by review: a weekly index under monthly returns set each month's last Friday
-/// against the securities' month-end prices, moving every beta, without a word): the median
-/// gap between its dates above 3 calendar days (a weekend and a holiday).
+/// days and than the prices set against them (found by review: a weekly index under monthly
+/// returns set each month's last Friday against the securities' month-end prices, moving every
+/// beta, without a word): more than 3 calendar days per price on average (weekends and
+/// holidays make about 1.45) and more than 1.5 times `others`, the calendar days per price of
+/// the peers' or securities' median one (an index of month-ends beside month-end prices is not
+/// noted).
 pub fn index_cadence_note(
     index: &crate::io::series::DataFile,
     window: &crate::estimate::Window,
+    (others, whose): (Option<f64>, &str),
 ) -> Option<String> {
-    let dates = &index.series.dates;
-    let from = dates.partition_point(|&d| d < window.start());
-    let to = dates.partition_point(|&d| d <= window.end());
-    let mut gaps: Vec<i64> = (dates[from..to].windows(2))
-        .map(|w| (w[1] - w[0]).num_days())
-        .collect();
-    if gaps.len() < 2 {
-        return None;
-    }
-    let middle = gaps.len() / 2;
-    let gap = *gaps.select_nth_unstable(middle).1;
-    (gap > 3).then(|| {
+    let bounds = (window.start(), window.end());
+    let gap = super::prices::mean_gap(&index.series.dates, bounds)?;
+    let others = others.unwrap_or(1.0);
+    (gap > 3.0 && gap > 1.5 * others).then(|| {
         format!(
-            "The index ({}) has a price only every {gap} days in the window (the median gap \
-             between its dates): a period's index price may then be days older than the \
+            "The index ({}) has a price every {} calendar days in the window on average, the \
+             {whose} one every {}: a period's index price may then be days older than the \
              prices set against it, which misaligns the returns (and under daily returns \
              leaves most days without one); give the index's price for every trading day.",
-            index.path
+            index.path,
+            crate::error::rounded(gap, 1),
+            crate::error::rounded(others, 1)
         )
     })
 }

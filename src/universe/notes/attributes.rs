@@ -66,11 +66,9 @@ pub(super) fn missing_note(securities: &[SecurityResult]) -> Option<String> {
 /// 10,000 apart, a peer set being narrower than an industry).
 const UNITS_FACTOR: f64 = 1e5;
 
-/// The industries whose equity values span more than [`UNITS_FACTOR`], with their smallest and
-/// largest securities: most often figures in other units, which the market-cap weights and the
 /// "Check:" notes on the attributes as a whole (found by a review of a market's plausible
 /// mistakes): every tax rate given 0 (blanks filled with zeros: each firm is unlevered without
-/// a tax shield, when a blank would have flagged it), and a median D/E below 1/100 over the
+/// a tax shield, when a blank would have flagged it), and a median gross D/E below 1/100 over the
 /// securities with debt (equity values in thousands beside debt in millions, every D/E a
 /// thousandth of its value). Both bounds are hurdle's judgement: a whole market of firms
 /// without tax, or whose median firm's debt is under 1% of its equity, is rare.
@@ -85,16 +83,17 @@ pub(super) fn whole_file_notes(securities: &[SecurityResult], file: &str) -> Vec
             taxes.len()
         ));
     }
+    // Gross debt over equity, whatever `leverage.debt_measure`: net of cash, a cash-rich market's
+    // D/E is below zero with its units right (found by review).
     let mut ratios: Vec<f64> = (securities.iter())
-        .filter(|s| s.debt.is_some_and(|d| d > 0.0))
-        .filter_map(|s| s.debt_to_equity)
+        .filter_map(|s| Some(s.debt.filter(|&d| d > 0.0)? / s.equity_value?))
         .collect();
     if ratios.len() >= 5 {
         let middle = ratios.len() / 2;
         let median = *ratios.select_nth_unstable_by(middle, f64::total_cmp).1;
         if median < 0.01 {
             notes.push(format!(
-                "Check: the median D/E of the {} securities with debt is {}: equity values in \
+                "Check: the median gross D/E of the {} securities with debt is {}: equity values in \
                  {file} in smaller units than debt (thousands beside millions)? Every D/E, and \
                  so every unlevered beta, reads them as given.",
                 ratios.len(),
@@ -105,6 +104,8 @@ pub(super) fn whole_file_notes(securities: &[SecurityResult], file: &str) -> Vec
     notes
 }
 
+/// The industries whose equity values span more than [`UNITS_FACTOR`], with their smallest and
+/// largest securities: most often figures in other units, which the market-cap weights and the
 /// D/E read as given (found by review: one given in units among figures in millions carried its
 /// industry's weighted mean alone; measured against the median instead, half an industry in
 /// other units named the wrong securities).

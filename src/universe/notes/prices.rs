@@ -43,58 +43,89 @@ pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
             groups.entry(moves).or_default().push(i);
         }
     }
-    let ids = panel.securities();
-    let mut pairs: Vec<String> = Vec::new();
+    // Within a group, each security joins the first cluster whose first member its prices
+    // follow (the relation is transitive), so a group of n copies costs n comparisons, not n².
+    let mut clusters: Vec<Vec<(usize, f64)>> = Vec::new();
     for members in groups.values().filter(|m| m.len() > 1) {
-        for (k, &a) in members.iter().enumerate() {
-            for &b in &members[k + 1..] {
-                let (x, y) = (panel.series(a), panel.series(b));
-                let Some((factor, _)) = crate::case::sanity::prices::proportional(
+        let start = clusters.len();
+        for &b in members {
+            let y = panel.series(b);
+            let joined = (clusters[start..].iter_mut()).find_map(|cluster| {
+                let x = panel.series(cluster[0].0);
+                let (factor, _) = crate::case::sanity::prices::proportional(
                     (x.dates, x.values),
                     (y.dates, y.values),
-                ) else {
-                    continue;
-                };
-                pairs.push(match (factor - 1.0).abs() <= 1e-4 {
-                    true => format!("{} and {}", ids[a], ids[b]),
-                    false => format!(
-                        "{} and {} (× {})",
-                        ids[a],
-                        ids[b],
-                        crate::case::sanity::significant(factor)
-                    ),
-                });
+                )?;
+                Some((cluster, factor))
+            });
+            match joined {
+                Some((cluster, factor)) => cluster.push((b, factor)),
+                None => clusters.push(vec![(b, 1.0)]),
             }
         }
     }
-    pairs.sort();
-    let shown: Vec<&str> = pairs.iter().map(String::as_str).collect();
-    (!pairs.is_empty()).then(|| {
+    clusters.retain(|c| c.len() > 1);
+    let ids = panel.securities();
+    let mut shown: Vec<String> = (clusters.iter())
+        .map(|cluster| {
+            let (first, others) = (cluster[0].0, &cluster[1..]);
+            let other = |(id, factor): &(usize, f64)| match (factor - 1.0).abs() <= 1e-4 {
+                true => ids[*id].clone(),
+                false => format!(
+                    "{} (× {})",
+                    ids[*id],
+                    crate::case::sanity::significant(*factor)
+                ),
+            };
+            match others.len() {
+                1 => format!("{} and {}", ids[first], other(&others[0])),
+                n => format!(
+                    "{} and {n} others ({} and more)",
+                    ids[first],
+                    other(&others[0])
+                ),
+            }
+        })
+        .collect();
+    shown.sort();
+    let shown: Vec<&str> = shown.iter().map(String::as_str).collect();
+    (!clusters.is_empty()).then(|| {
         format!(
             "Check: {} of securities with the same returns, one's prices the other's (or their \
              multiple) on every date both have: a second listing, another share class or a \
              copied file, one firm counted twice in its industry's figures: {}",
-            match pairs.len() {
-                1 => "1 pair".to_string(),
-                n => format!("{n} pairs"),
+            match clusters.len() {
+                1 => "1 group".to_string(),
+                n => format!("{n} groups"),
             },
             first_ids(&shown)
         )
     })
 }
 
-/// The two notes, each naming the securities it finds.
+/// The median of the securities' calendar days per price in the window: the panel's own
+/// cadence (about 1.45 for daily prices, 30.4 for month-ends).
+pub(super) fn panel_gap(securities: &[SecurityResult]) -> Option<f64> {
+    let mut gaps: Vec<f64> = securities
+        .iter()
+        .filter_map(|s| s.price_patterns.gap)
+        .collect();
+    let middle = gaps.len() / 2;
+    (!gaps.is_empty()).then(|| *gaps.select_nth_unstable_by(middle, f64::total_cmp).1)
+}
+
+/// The notes, each naming the securities it finds.
 pub(super) fn pattern_notes(securities: &[SecurityResult]) -> Vec<String> {
-    let split = ids_where(securities, |s| s.price_patterns.0.is_some());
-    // One price every four calendar days or more on average over its span: weekly prices in a
-    // panel of daily ones, or a security that trades about once a week (found by review: the
-    // only words were "listed late, delisted early, or thinly traded").
+    let split = ids_where(securities, |s| s.price_patterns.split.is_some());
+    // Four calendar days or more per price in the window, and 2.5 times the panel's own
+    // cadence: weekly prices in a panel of daily ones, or a security that trades about once a
+    // week (found by review: the only words were "listed late, delisted early, or thinly
+    // traded"); a panel of month-ends, all alike, gives none.
+    let typical = panel_gap(securities).unwrap_or(f64::INFINITY);
     let sparse = ids_where(securities, |s| {
-        s.price_dates.is_some_and(|(first, last)| {
-            s.prices >= 3 && (last - first).num_days() as f64 >= 4.0 * (s.prices - 1) as f64
-        })
+        (s.price_patterns.gap).is_some_and(|g| g >= 4.0 && g >= 2.5 * typical)
     });
-    let flat = ids_where(securities, |s| s.price_patterns.1.is_some());
+    let flat = ids_where(securities, |s| s.price_patterns.flat_end.is_some());
     let mut notes = Vec::new();
     if !split.is_empty() {
         notes.push(format!(
@@ -108,11 +139,13 @@ pub(super) fn pattern_notes(securities: &[SecurityResult]) -> Vec<String> {
     }
     if !sparse.is_empty() {
         notes.push(format!(
-            "{} with one price every four calendar days or more on average: weekly prices in a \
-             panel of daily ones, or a security that seldom trades? A period's price may then be \
-             days older than the index's, which misaligns its returns (beta.max_stale_days drops \
+            "{} with one price every four calendar days or more in the window, on average, \
+             while the panel's median security has one every {} days: weekly prices among \
+             daily ones, or a security that seldom trades? A period's price may then be days \
+             older than the index's, which misaligns its returns (beta.max_stale_days drops \
              such periods): {}",
             securities_count(sparse.len()),
+            crate::error::rounded(typical, 1),
             first_ids(&sparse)
         ));
     }
