@@ -2690,7 +2690,7 @@ fn an_unadjusted_split_and_prices_carried_forward_are_noted() {
     let noted = setup.succeeds("noted", &[]);
     let notes = |out: &Path| fs::read_to_string(out.join("summary.md")).unwrap();
     let (before, after) = (notes(&plain), notes(&noted));
-    let sparse = "with one price every four calendar days or more on average";
+    let sparse = "with one price every four calendar days or more in the window";
     let sparse_ids = |text: &str| {
         let line = text.lines().find(|l| l.contains(sparse)).unwrap_or("");
         line.rsplit(": ").next().unwrap_or("").to_string()
