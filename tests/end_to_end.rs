@@ -178,11 +178,11 @@ fn betas_command_prints_the_same_estimates_as_run() {
     assert!(String::from_utf8_lossy(&table.stdout).contains("Glimmerby Pumpworks"));
 }
 
-// pandas' `to_csv` writes its row index as an unnamed first column (`,date,price`): read as
+// A dataframe library writes its row index as an unnamed first column (`,date,price`): read as
 // 0.9.0 read it (found by review, when values under unnamed columns began to be refused), since
 // a first column holds no part of a number a decimal comma split.
 #[test]
-fn a_price_file_with_pandas_row_index_reads_as_without_it() {
+fn a_price_file_with_a_row_index_column_reads_as_without_it() {
     let dir = tempfile::tempdir().unwrap();
     let case_dir = dir.path().join("case");
     common::copy_demo_case(&case_dir);

@@ -2627,7 +2627,7 @@ fn a_decimal_comma_under_a_header_ending_in_a_comma_is_refused() {
         &["securities.csv", "industries.csv"],
         why,
     );
-    // pandas' `to_csv` writes its row index as an unnamed first column: read as 0.9.0 read it
+    // A dataframe library writes its row index as an unnamed first column: read as 0.9.0 read it
     // (found by review), since a first column holds no part of a number a decimal comma split.
     let setup = Setup::new();
     for name in ["prices-long.csv", "attributes.csv"] {
@@ -2642,7 +2642,7 @@ fn a_decimal_comma_under_a_header_ending_in_a_comma_is_refused() {
         fs::write(&path, indexed).unwrap();
     }
     let indexed = setup.succeeds("indexed", &[]);
-    let why = "pandas' row index as a first column";
+    let why = "a dataframe's row index as a first column";
     assert_same_tables(&plain, &indexed, &["securities.csv", "industries.csv"], why);
 }
 

@@ -241,8 +241,8 @@ pub fn parse_series(
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);
     // Columns the header leaves unnamed, which must stay empty (`unnamed_value_message`); not a
-    // first one, where pandas writes its row index (`,date,price`), which holds no part of a
-    // number split by a decimal comma.
+    // first one, where dataframe libraries write their row index (`,date,price`), which holds
+    // no part of a number split by a decimal comma.
     let unnamed: Vec<usize> = (1..header.len())
         .filter(|&i| header[i].trim().is_empty())
         .collect();

@@ -197,7 +197,8 @@ fn thousands_points_in(frame: &DataFrame, columns: &AttributeColumns) -> Vec<Tho
 /// the 25 left unread); `frame` holds every column as text, in the header's order.
 fn check_unnamed(source: &Source, header: &[String], frame: &DataFrame) -> Result<()> {
     let columns = frame.columns();
-    // A first column is where pandas writes its row index, and holds no part of a split number.
+    // A first column is where dataframe libraries write their row index, and holds no part of
+    // a split number.
     let unnamed = |(i, name): &(usize, &String)| *i > 0 && super::csv::unnamed(name);
     for (i, _) in header.iter().enumerate().filter(unnamed) {
         let Some(cells) = columns.get(i).map(super::checks::cell_texts) else {

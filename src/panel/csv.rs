@@ -247,7 +247,8 @@ pub(super) fn unnamed(name: &str) -> bool {
 
 /// A header's columns without a name that must stay empty, by number (from 1) and schema name:
 /// all but a first column, which holds no part of a number split by a decimal comma and is
-/// where pandas writes its row index (`,date,price`; found by review: 0.9.0 read such files).
+/// where dataframe libraries write their row index (`,date,price`; found by review: 0.9.0 read
+/// such files).
 fn unnamed_columns(header: &[String]) -> Vec<(usize, String)> {
     let names = schema_names(header).into_iter().enumerate();
     names
