@@ -23,7 +23,7 @@ use serde_json::Value;
 use crate::case::read_case;
 use crate::error::{Error, Result};
 use crate::valuation::load_inputs;
-use checks::{check_kind, check_schema};
+use checks::{check_kind, check_schema, refused_since};
 pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
 use files::file_checks;
@@ -302,42 +302,6 @@ impl Verification {
             n => out.push_str(&format!("; {n} notes on one side only")),
         }
         out
-    }
-}
-
-/// A rerun's refusal of an input file, with the versions when the receipt's is another: an
-/// earlier version may have read a file this one refuses (found by review: a 0.9.0 receipt
-/// whose price file holds a value under an unnamed column stopped with the input's error
-/// alone, as if the receipt could never have been written).
-pub(super) fn refused_since(error: Error, recorded: &Value) -> Error {
-    let version = recorded.pointer("/tool/version").and_then(Value::as_str);
-    let this = env!("CARGO_PKG_VERSION");
-    let Some(version) = version.filter(|v| *v != this) else {
-        return error;
-    };
-    let why = format!(
-        " (the receipt was written by hurdle {version}, which read this input; {this} refuses \
-         it, and README's Changelog says why)"
-    );
-    match error {
-        Error::DataRow {
-            file,
-            line,
-            message,
-        } => Error::DataRow {
-            file,
-            line,
-            message: message + &why,
-        },
-        Error::DataFile { file, message } => Error::DataFile {
-            file,
-            message: message + &why,
-        },
-        Error::Case { file, message } => Error::Case {
-            file,
-            message: message + &why,
-        },
-        other => other,
     }
 }
 

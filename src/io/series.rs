@@ -174,6 +174,41 @@ fn check_record_length(
     })
 }
 
+/// The line a record starts on, as an editor counts it: the csv crate's count, or, in a file
+/// with CRLF line ends, the line feeds before the record's first byte (the crate's count runs
+/// one short there; found by review).
+struct LineCounter<'a> {
+    bytes: &'a [u8],
+    crlf: bool,
+    /// `(byte, line)`: where the count has reached.
+    counted: (usize, usize),
+}
+
+impl<'a> LineCounter<'a> {
+    fn new(bytes: &'a [u8]) -> LineCounter<'a> {
+        LineCounter {
+            bytes,
+            crlf: memchr::memchr(b'\r', bytes).is_some(),
+            counted: (0, 1),
+        }
+    }
+
+    /// The line of the record starting at `start` (records come in order).
+    fn line(&mut self, start: &csv::Position) -> usize {
+        if !self.crlf {
+            return start.line() as usize;
+        }
+        // After a CRLF the reader's offset is the LF's, which ends the line before.
+        let mut at = (start.byte() as usize).min(self.bytes.len());
+        if self.bytes.get(at) == Some(&b'\n') {
+            at += 1;
+        }
+        let more = memchr::memchr_iter(b'\n', &self.bytes[self.counted.0..at]).count();
+        self.counted = (at, self.counted.1 + more);
+        self.counted.1
+    }
+}
+
 /// A record's cell in a column the header leaves unnamed (`unnamed`, by position) must be empty
 /// (`sanity::unnamed_value_message`).
 fn check_unnamed_cells(
@@ -251,11 +286,7 @@ pub fn parse_series(
     let mut values = Vec::with_capacity(rows);
     let mut record = csv::StringRecord::new();
     let mut previous_line = 0;
-    // In a file with CRLF line ends lines are counted from the records' byte offsets: the csv
-    // crate's own line count runs one short there (found by review), and a message must name the
-    // line an editor shows. `(byte, line)`: where the count has reached.
-    let mut counted = (0, 1);
-    let crlf = memchr::memchr(b'\r', bytes).is_some();
+    let mut lines = LineCounter::new(bytes);
     while reader.read_record(&mut record).map_err(unreadable)? {
         // read_record sets every record's position; the reader's own is the fallback.
         let start = record.position().unwrap_or(reader.position()).clone();
@@ -263,19 +294,7 @@ pub fn parse_series(
         if let Some(blank) = blank.filter(|b| start.byte() as usize >= b.byte) {
             return Err(blank_row(blank));
         }
-        let line = match crlf {
-            false => start.line() as usize,
-            true => {
-                // After a CRLF the reader's offset is the LF's, which ends the line before.
-                let mut at = (start.byte() as usize).min(bytes.len());
-                if bytes.get(at) == Some(&b'\n') {
-                    at += 1;
-                }
-                let more = memchr::memchr_iter(b'\n', &bytes[counted.0..at]).count();
-                counted = (at, counted.1 + more);
-                counted.1
-            }
-        };
+        let line = lines.line(&start);
         check_record_length(file, line, &record, header.len())?;
         check_unnamed_cells(file, line, (&record, &header), &unnamed)?;
         let cell = |at: usize| record.get(at).unwrap_or("").trim();

@@ -41,7 +41,7 @@ pub(super) struct Plan {
     pub(super) schema: SchemaRef,
     projection: Arc<Vec<usize>>,
     /// Wide layout: each security column's name and dictionary id.
-    wide: Vec<(String, u32)>,
+    wide: WideIds,
     /// The columns the header leaves unnamed, by number (from 1) and schema name; read only to
     /// check that they hold nothing (a long panel's as text).
     pub(super) unnamed: Vec<(usize, String)>,
@@ -201,28 +201,7 @@ fn plan_for(
             projection.sort_unstable();
             (projection, Vec::new())
         }
-        PanelLayout::Wide => {
-            if let Some(hint) = layout_hint(&header, columns, PanelLayout::Long) {
-                return Err(source.file_error(format!("read as a wide panel, but {hint}")));
-            }
-            // A column the header does not name is read, as text (so a message quotes it as
-            // written), only to check that it is empty.
-            let named = (header.iter().enumerate()).filter(|&(i, n)| i != date && !unnamed(n));
-            for (_, dtype) in
-                (dtypes.iter_mut().enumerate()).filter(|&(i, _)| i != date && !unnamed(&header[i]))
-            {
-                *dtype = DataType::Float64;
-            }
-            let wide = wide_ids(named, &mut rows.dictionary)
-                .map_err(|message| source.file_error(message))?;
-            if wide.is_empty() {
-                return Err(source.file_error(format!(
-                    "has only the date column `{}`: a wide panel needs one column per security",
-                    columns.date_column
-                )));
-            }
-            ((0..header.len()).collect(), wide)
-        }
+        PanelLayout::Wide => wide_plan(source, columns, (&header, date), (&mut dtypes, rows))?,
     };
     let schema = schema_names(&header)
         .iter()
@@ -237,6 +216,38 @@ fn plan_for(
         wide,
         unnamed,
     })
+}
+
+/// Each security column's name and dictionary id.
+type WideIds = Vec<(String, u32)>;
+
+/// A wide header's projection (every column) and securities (each named column but the
+/// date's, read as numbers; a column the header does not name is read, as text so that a
+/// message quotes it as written, only to check that it is empty).
+fn wide_plan(
+    source: &Source,
+    columns: &PanelColumns,
+    (header, date): (&[String], usize),
+    (dtypes, rows): (&mut [DataType], &mut Rows),
+) -> Result<(Vec<usize>, WideIds)> {
+    if let Some(hint) = layout_hint(header, columns, PanelLayout::Long) {
+        return Err(source.file_error(format!("read as a wide panel, but {hint}")));
+    }
+    let named = (header.iter().enumerate()).filter(|&(i, n)| i != date && !unnamed(n));
+    for (_, dtype) in
+        (dtypes.iter_mut().enumerate()).filter(|&(i, _)| i != date && !unnamed(&header[i]))
+    {
+        *dtype = DataType::Float64;
+    }
+    let wide =
+        wide_ids(named, &mut rows.dictionary).map_err(|message| source.file_error(message))?;
+    if wide.is_empty() {
+        return Err(source.file_error(format!(
+            "has only the date column `{}`: a wide panel needs one column per security",
+            columns.date_column
+        )));
+    }
+    Ok(((0..header.len()).collect(), wide))
 }
 
 /// Whether a header's name leaves its column unnamed: empty, or white space alone (found by

@@ -38,76 +38,90 @@ pub fn check_inputs(inputs: &Inputs) -> Result<()> {
             file,
             &peer.accept_jumps,
         )?;
-        let same_as = |other: &DataFile| other.series == file.series;
-        // A series of a wide table is named by its column, a file of its own by its path.
-        let named = |key: &str, f: &DataFile| match f.places.is_empty() {
-            true => format!("{key}.prices = \"{}\"", f.path),
-            false => format!("{key}.column = \"{}\" of {}", f.column, f.path),
-        };
-        let duplicate = if same_as(&inputs.index) {
-            Some(format!(
-                "the index's ({})",
-                named("market.index", &inputs.index)
-            ))
-        } else if let Some(yields) = inputs.risk_free.as_ref().filter(|y| same_as(y)) {
-            // The risk-free yields taken for a peer (a wide table's yield column left among
-            // the peers): its "beta" would be that of a yield.
-            Some(format!(
-                "the risk-free series' ({})",
-                named("market.risk_free_series", yields)
-            ))
-        } else {
-            inputs.peers[..i].iter().position(same_as).map(|j| {
-                format!(
-                    "peer.{j}'s ({}, peer \"{}\")",
-                    named(&format!("peer.{j}"), &inputs.peers[j]),
-                    settings.peers[j].name
-                )
-            })
-        };
-        if let Some(other) = duplicate {
-            return Err(Error::Case {
-                file: inputs.case.path.clone(),
-                message: format!(
-                    "{} (peer \"{}\") holds the same dates and prices as {other}: a peer's \
-                     series must be the peer's own",
-                    named(&key, file),
-                    peer.name
-                ),
-            });
-        }
-        // A copy rescaled (another listing at a fixed rate, pence for pounds): the same returns,
-        // so one firm counted twice (found by review).
-        let scaled = (inputs.peers[..i].iter().enumerate()).find_map(|(j, other)| {
-            let (a, b) = (&other.series, &file.series);
-            let found = proportional((&a.dates, &a.values), (&b.dates, &b.values))?;
-            Some((j, found))
-        });
-        if let Some((j, (factor, shared))) = scaled {
-            return Err(Error::Case {
-                file: inputs.case.path.clone(),
-                message: format!(
-                    "{} (peer \"{}\") holds peer.{j}'s prices ({}, peer \"{}\"){} on every \
-                     one of the {shared} dates both have: the same returns, so the same firm \
-                     counted twice; a peer's series must be the peer's own (another listing of \
-                     one firm, in another currency or unit, is one peer)",
-                    named(&key, file),
-                    peer.name,
-                    named(&format!("peer.{j}"), &inputs.peers[j]),
-                    settings.peers[j].name,
-                    match (factor - 1.0).abs() <= 1e-4 {
-                        true => String::new(),
-                        false => format!(" times {}", significant(factor)),
-                    }
-                ),
-            });
-        }
+        check_copied_peer(inputs, i)?;
     }
     if let Some(yields) = &inputs.risk_free {
         // The more specific finding first: a switch of units partway also moves the median.
         check_yield_switch(&inputs.case.resolve(&yields.path), yields)?;
     }
     check_rate_against_yields(&inputs.case, inputs)
+}
+
+/// Refuses peer `i` when its series is the index's, the risk-free series', or an earlier
+/// peer's, or an earlier peer's times one factor on every date both have (a copy rescaled: a
+/// listing at a fixed rate, pence for pounds; found by review), naming both files.
+fn check_copied_peer(inputs: &Inputs, i: usize) -> Result<()> {
+    let settings = &inputs.case.settings;
+    let (peer, file) = (&settings.peers[i], &inputs.peers[i]);
+    let key = format!("peer.{i}");
+    let same_as = |other: &DataFile| other.series == file.series;
+    let duplicate = if same_as(&inputs.index) {
+        Some(format!(
+            "the index's ({})",
+            named("market.index", &inputs.index)
+        ))
+    } else if let Some(yields) = inputs.risk_free.as_ref().filter(|y| same_as(y)) {
+        // The risk-free yields taken for a peer (a wide table's yield column left among
+        // the peers): its "beta" would be that of a yield.
+        Some(format!(
+            "the risk-free series' ({})",
+            named("market.risk_free_series", yields)
+        ))
+    } else {
+        inputs.peers[..i].iter().position(same_as).map(|j| {
+            format!(
+                "peer.{j}'s ({}, peer \"{}\")",
+                named(&format!("peer.{j}"), &inputs.peers[j]),
+                settings.peers[j].name
+            )
+        })
+    };
+    if let Some(other) = duplicate {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: format!(
+                "{} (peer \"{}\") holds the same dates and prices as {other}: a peer's \
+                 series must be the peer's own",
+                named(&key, file),
+                peer.name
+            ),
+        });
+    }
+    // A copy rescaled (another listing at a fixed rate, pence for pounds): the same returns,
+    // so one firm counted twice (found by review).
+    let scaled = (inputs.peers[..i].iter().enumerate()).find_map(|(j, other)| {
+        let (a, b) = (&other.series, &file.series);
+        let found = proportional((&a.dates, &a.values), (&b.dates, &b.values))?;
+        Some((j, found))
+    });
+    if let Some((j, (factor, shared))) = scaled {
+        return Err(Error::Case {
+            file: inputs.case.path.clone(),
+            message: format!(
+                "{} (peer \"{}\") holds peer.{j}'s prices ({}, peer \"{}\"){} on every \
+                 one of the {shared} dates both have: the same returns, so the same firm \
+                 counted twice; a peer's series must be the peer's own (another listing of \
+                 one firm, in another currency or unit, is one peer)",
+                named(&key, file),
+                peer.name,
+                named(&format!("peer.{j}"), &inputs.peers[j]),
+                settings.peers[j].name,
+                match (factor - 1.0).abs() <= 1e-4 {
+                    true => String::new(),
+                    false => format!(" times {}", significant(factor)),
+                }
+            ),
+        });
+    }
+    Ok(())
+}
+
+/// A series in a message: a wide table's by its column, a file of its own by its path.
+fn named(key: &str, f: &DataFile) -> String {
+    match f.places.is_empty() {
+        true => format!("{key}.prices = \"{}\"", f.path),
+        false => format!("{key}.column = \"{}\" of {}", f.column, f.path),
+    }
 }
 
 /// Refuses a risk-free series whose median is more than [`YIELD_RATIO`] times `case`'s

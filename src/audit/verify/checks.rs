@@ -1,9 +1,11 @@
 //! The checks of a receipt's shape before it is rerun: its `kind` against the section naming
-//! the file it reruns, and its schema version against this hurdle's. Apart from `verify.rs`,
-//! which reruns and compares.
+//! the file it reruns, and its schema version against this hurdle's; and a rerun's refusal of
+//! an input worded with the receipt's version. Apart from `verify.rs`, which reruns and
+//! compares.
 
 use serde_json::Value;
 
+use crate::error::Error;
 use crate::valuation::SCHEMA_VERSION;
 
 /// A receipt's `kind` against the section naming the file it reruns: one this hurdle writes
@@ -69,4 +71,40 @@ fn older_schema(version: u64, written_by: &str) -> String {
          Verify it with the version that wrote it ({written_by}), or rename the keys in its case \
          file and rerun to write a new receipt"
     )
+}
+
+/// A rerun's refusal of an input file, with the versions when the receipt's is another: an
+/// earlier version may have read a file this one refuses (found by review: a 0.9.0 receipt
+/// whose price file holds a value under an unnamed column stopped with the input's error
+/// alone, as if the receipt could never have been written).
+pub(super) fn refused_since(error: Error, recorded: &Value) -> Error {
+    let version = recorded.pointer("/tool/version").and_then(Value::as_str);
+    let this = env!("CARGO_PKG_VERSION");
+    let Some(version) = version.filter(|v| *v != this) else {
+        return error;
+    };
+    let why = format!(
+        " (the receipt was written by hurdle {version}, which read this input; {this} refuses \
+         it, and README's Changelog says why)"
+    );
+    match error {
+        Error::DataRow {
+            file,
+            line,
+            message,
+        } => Error::DataRow {
+            file,
+            line,
+            message: message + &why,
+        },
+        Error::DataFile { file, message } => Error::DataFile {
+            file,
+            message: message + &why,
+        },
+        Error::Case { file, message } => Error::Case {
+            file,
+            message: message + &why,
+        },
+        other => other,
+    }
 }

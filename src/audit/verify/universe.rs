@@ -46,7 +46,7 @@ pub fn verify_universe(
     let universe = read_universe(&file, &overrides)?;
     let files_read = universe.files_read();
     let unchanged = Some(universe.sha256.as_str()) == text("/universe/sha256");
-    let inputs = load_inputs(universe).map_err(|e| super::refused_since(e, recorded))?;
+    let inputs = load_inputs(universe).map_err(|e| super::checks::refused_since(e, recorded))?;
     let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
     let run = Rerun {
