@@ -209,6 +209,15 @@ impl<'a> LineCounter<'a> {
     }
 }
 
+/// The columns the header leaves unnamed, which must stay empty (`unnamed_value_message`); not
+/// a first one, where dataframe libraries write their row index (`,date,price`), which holds no
+/// part of a number split by a decimal comma.
+fn unnamed_columns(header: &csv::StringRecord) -> Vec<usize> {
+    (1..header.len())
+        .filter(|&i| header[i].trim().is_empty())
+        .collect()
+}
+
 /// A record's cell in a column the header leaves unnamed (`unnamed`, by position) must be empty
 /// (`sanity::unnamed_value_message`).
 fn check_unnamed_cells(
@@ -275,12 +284,7 @@ pub fn parse_series(
         Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);
-    // Columns the header leaves unnamed, which must stay empty (`unnamed_value_message`); not a
-    // first one, where dataframe libraries write their row index (`,date,price`), which holds
-    // no part of a number split by a decimal comma.
-    let unnamed: Vec<usize> = (1..header.len())
-        .filter(|&i| header[i].trim().is_empty())
-        .collect();
+    let unnamed = unnamed_columns(&header);
     let rows = bytes.iter().filter(|&&b| b == b'\n').count();
     let mut dates = Vec::with_capacity(rows);
     let mut values = Vec::with_capacity(rows);

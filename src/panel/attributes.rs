@@ -199,7 +199,7 @@ fn check_unnamed(source: &Source, header: &[String], frame: &DataFrame) -> Resul
     let columns = frame.columns();
     // A first column is where dataframe libraries write their row index, and holds no part of
     // a split number.
-    let unnamed = |(i, name): &(usize, &String)| *i > 0 && super::csv::unnamed(name);
+    let unnamed = |(i, name): &(usize, &String)| *i > 0 && super::checks::unnamed(name);
     for (i, _) in header.iter().enumerate().filter(unnamed) {
         let Some(cells) = columns.get(i).map(super::checks::cell_texts) else {
             continue;

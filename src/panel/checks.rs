@@ -130,3 +130,21 @@ pub(super) fn unnamed_error(
         crate::io::sanity::unnamed_value_message(number, value, left),
     )
 }
+
+/// Whether a header's name leaves its column unnamed: empty, or white space alone (found by
+/// review: `close, ` escaped the check).
+pub(super) fn unnamed(name: &str) -> bool {
+    name.trim().is_empty()
+}
+
+/// A header's columns without a name that must stay empty, by number (from 1) and schema name:
+/// all but a first column, which holds no part of a number split by a decimal comma and is
+/// where dataframe libraries write their row index (`,date,price`; found by review: 0.9.0 read
+/// such files).
+pub(super) fn unnamed_columns(header: &[String]) -> Vec<(usize, String)> {
+    let names = super::csv::schema_names(header).into_iter().enumerate();
+    names
+        .filter(|(i, _)| *i > 0 && unnamed(&header[*i]))
+        .map(|(i, name)| (i + 1, name))
+        .collect()
+}

@@ -18,7 +18,8 @@ use polars::prelude::*;
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::checks::{
-    check_records, check_unnamed, check_wide_fields, has_empty_cells, spaced_quote, unnamed_error,
+    check_records, check_unnamed, check_wide_fields, has_empty_cells, spaced_quote, unnamed,
+    unnamed_columns, unnamed_error,
 };
 use super::header::{check_repeated_names, header};
 use super::{
@@ -133,7 +134,7 @@ fn push_frames(
 /// reads are refused when named twice, `header::check_repeated_names`), get a placeholder no
 /// header name can equal (found by review: `x,x` beside a long panel's columns stopped the run
 /// with the reader's schema error).
-fn schema_names(header: &[String]) -> Vec<String> {
+pub(super) fn schema_names(header: &[String]) -> Vec<String> {
     let mut seen = std::collections::HashSet::new();
     header
         .iter()
@@ -248,24 +249,6 @@ fn wide_plan(
         )));
     }
     Ok(((0..header.len()).collect(), wide))
-}
-
-/// Whether a header's name leaves its column unnamed: empty, or white space alone (found by
-/// review: `close, ` escaped the check).
-pub(super) fn unnamed(name: &str) -> bool {
-    name.trim().is_empty()
-}
-
-/// A header's columns without a name that must stay empty, by number (from 1) and schema name:
-/// all but a first column, which holds no part of a number split by a decimal comma and is
-/// where dataframe libraries write their row index (`,date,price`; found by review: 0.9.0 read
-/// such files).
-fn unnamed_columns(header: &[String]) -> Vec<(usize, String)> {
-    let names = schema_names(header).into_iter().enumerate();
-    names
-        .filter(|(i, _)| *i > 0 && unnamed(&header[*i]))
-        .map(|(i, name)| (i + 1, name))
-        .collect()
 }
 
 /// The first names of a long header, for messages.
