@@ -6,6 +6,7 @@
 //! is missing; nothing is guessed. Unlevering uses the security's own D/E and tax rate with the
 //! formula of `[leverage]`, exactly as a case unlevers a peer.
 
+use crate::case::sanity::prices::PricePatterns;
 use serde::Serialize;
 
 use super::estimate::{NotEstimated, SecurityEstimate};
@@ -68,7 +69,7 @@ pub struct SecurityResult {
     /// Patterns in its prices a note names (`case::sanity::prices`): the date of the first move
     /// in the window by a usual split ratio, and the run of unchanged prices ending them.
     #[serde(skip)]
-    pub price_patterns: crate::case::sanity::prices::PricePatterns,
+    pub price_patterns: PricePatterns,
     pub periods_in_window: usize,
     /// The usable returns in the window (also for a security not estimated, when counted).
     pub observations: Option<usize>,
@@ -190,10 +191,7 @@ pub fn security_row(
             .first()
             .zip(series.dates.last())
             .map(|(a, b)| (*a, *b)),
-        price_patterns: crate::case::sanity::prices::PricePatterns::of(
-            (series.dates, series.values),
-            settings.window,
-        ),
+        price_patterns: PricePatterns::of((series.dates, series.values), settings.window),
         periods_in_window: settings.periods_in_window,
         observations: estimated.observations,
         periods_dropped: estimated.periods_dropped,
