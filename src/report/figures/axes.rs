@@ -12,7 +12,7 @@ use plotters::prelude::*;
 
 use super::canvas::{Area, Canvas, Drawn};
 use super::frame::Layout;
-use super::style::{self, INK, MUTED, RULE};
+use super::style::{self, INK, MUTED, NEUTRAL, RULE};
 use crate::error::Result;
 use crate::report::format;
 
@@ -323,6 +323,42 @@ pub fn plot_layer(
         let (_, plot_area, _) = layout.split(root);
         let mut chart = axes.chart(&plot_area)?;
         draw(&mut chart)
+    })
+}
+
+/// The grey vertical line at `x` across the whole plot, in its own layer `reference` (β = 1,
+/// the index, on the betas charts).
+pub fn reference_line(canvas: &mut Canvas, layout: &Layout, axes: &Axes, x: f64) -> Result<()> {
+    let (top, last) = (axes.y.range.end, axes.y.range.start);
+    plot_layer(canvas, layout, axes, "reference", |chart| {
+        chart.draw_series(std::iter::once(PathElement::new(
+            vec![(x, last), (x, top)],
+            NEUTRAL.stroke_width(1),
+        )))?;
+        Ok(())
+    })
+}
+
+/// Horizontal intervals `(low, high, y)` with end caps, in `colour`, in the layer `intervals`.
+pub fn interval_layer(
+    canvas: &mut Canvas,
+    layout: &Layout,
+    axes: &Axes,
+    intervals: &[(f64, f64, f64)],
+    colour: RGBColor,
+) -> Result<()> {
+    plot_layer(canvas, layout, axes, "intervals", |chart| {
+        let stroke = colour.stroke_width(2);
+        for &(low, high, y) in intervals {
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(low, y), (high, y)],
+                stroke,
+            )))?;
+            let cap =
+                |x: f64| EmptyElement::at((x, y)) + PathElement::new(vec![(0, -5), (0, 5)], stroke);
+            chart.draw_series([cap(low), cap(high)])?;
+        }
+        Ok(())
     })
 }
 

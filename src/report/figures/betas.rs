@@ -9,10 +9,10 @@ use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
-use super::axes::{plot_layer, Axes, Scale};
+use super::axes::{interval_layer, plot_layer, reference_line, Axes, Scale};
 use super::canvas::{distinct_middle, shorten, shorten_middle, wrap, Canvas};
 use super::frame::{fit, square, triangle, Layout, Mark};
-use super::style::{self, ACCENT, INK, MUTED, NEUTRAL, PRIMARY, RULE};
+use super::style::{self, ACCENT, INK, MUTED, PRIMARY, RULE};
 use super::{Figure, Kind};
 use crate::case::Adjustment;
 use crate::error::Result;
@@ -324,13 +324,7 @@ fn marks(
     (aggregate, cash): (f64, bool),
 ) -> Result<()> {
     let (top, last) = (axes.y.range.end, axes.y.range.start);
-    plot_layer(canvas, layout, axes, "reference", |chart| {
-        chart.draw_series(std::iter::once(PathElement::new(
-            vec![(1.0, last), (1.0, top)],
-            NEUTRAL.stroke_width(1),
-        )))?;
-        Ok(())
-    })?;
+    reference_line(canvas, layout, axes, 1.0)?;
     // The aggregate's line runs beside the peers it aggregates: none in a part that holds only
     // peers left out of it (a large set's last part).
     if rows.iter().any(|r| r.peer.excluded_reason.is_none()) {
@@ -345,21 +339,16 @@ fn marks(
             Ok(())
         })?;
     }
-    plot_layer(canvas, layout, axes, "intervals", |chart| {
-        let stroke = PRIMARY.stroke_width(2);
-        for row in rows {
-            let e = &row.peer.estimate;
-            chart.draw_series(std::iter::once(PathElement::new(
-                vec![(e.beta_ci_low, row.y), (e.beta_ci_high, row.y)],
-                stroke,
-            )))?;
-            let cap = |x: f64| {
-                EmptyElement::at((x, row.y)) + PathElement::new(vec![(0, -5), (0, 5)], stroke)
-            };
-            chart.draw_series([cap(e.beta_ci_low), cap(e.beta_ci_high)])?;
-        }
-        Ok(())
-    })?;
+    let intervals: Vec<(f64, f64, f64)> = (rows.iter())
+        .map(|r| {
+            (
+                r.peer.estimate.beta_ci_low,
+                r.peer.estimate.beta_ci_high,
+                r.y,
+            )
+        })
+        .collect();
+    interval_layer(canvas, layout, axes, &intervals, PRIMARY)?;
     plot_layer(canvas, layout, axes, "raw-beta", |chart| {
         let dot = PRIMARY.filled();
         chart.draw_series(

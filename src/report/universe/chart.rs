@@ -24,7 +24,9 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use crate::beta::Adjustment;
 use crate::error::Result;
-use crate::report::figures::axes::{extent, plot_layer, Axes, Scale};
+use crate::report::figures::axes::{
+    extent, interval_layer, plot_layer, reference_line, Axes, Scale,
+};
 use crate::report::figures::canvas::Canvas;
 use crate::report::figures::frame::{triangle, Layout, CHAR_EM};
 use crate::report::figures::style::{self, ACCENT, BAND, INK, MUTED, NEUTRAL, PRIMARY, RULE};
@@ -420,14 +422,7 @@ fn draw_marks(
     rows: &[Row],
     drawn: Drawn,
 ) -> Result<()> {
-    let (top, last) = (axes.y.range.end, axes.y.range.start);
-    plot_layer(canvas, layout, axes, "reference", |chart| {
-        chart.draw_series(std::iter::once(PathElement::new(
-            vec![(1.0, last), (1.0, top)],
-            NEUTRAL.stroke_width(1),
-        )))?;
-        Ok(())
-    })?;
+    reference_line(canvas, layout, axes, 1.0)?;
     let summaries: Vec<(f64, &Summary)> = (rows.iter())
         .filter_map(|r| drawn.summary(r.industry).map(|s| (r.y, s)))
         .collect();
@@ -447,24 +442,13 @@ fn draw_marks(
         }))?;
         Ok(())
     })?;
-    plot_layer(canvas, layout, axes, "intervals", |chart| {
-        let stroke = PRIMARY.stroke_width(2);
-        for (y, s) in &summaries {
-            let Some([low, high]) = s.median_interval else {
-                continue;
-            };
-            let (low, high) = (inside(axes, low), inside(axes, high));
-            chart.draw_series(std::iter::once(PathElement::new(
-                vec![(low, *y), (high, *y)],
-                stroke,
-            )))?;
-            let cap = |x: f64| {
-                EmptyElement::at((x, *y)) + PathElement::new(vec![(0, -5), (0, 5)], stroke)
-            };
-            chart.draw_series([cap(low), cap(high)])?;
-        }
-        Ok(())
-    })?;
+    let intervals: Vec<(f64, f64, f64)> = (summaries.iter())
+        .filter_map(|(y, s)| {
+            let [low, high] = s.median_interval?;
+            Some((inside(axes, low), inside(axes, high), *y))
+        })
+        .collect();
+    interval_layer(canvas, layout, axes, &intervals, PRIMARY)?;
     plot_layer(canvas, layout, axes, "levered-median", |chart| {
         let ring = MUTED.stroke_width(2);
         chart.draw_series(rows.iter().filter_map(|r| {
