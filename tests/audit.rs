@@ -2709,3 +2709,61 @@ fn grid_cells_and_implied_steps_refuse_what_the_run_refuses() {
         "{said}"
     );
 }
+
+// 0.11.0 began to write each peer's lagged-response regression and its threshold (README,
+// Changelog, "Prices that react late"): a receipt of 0.10.0 lacks them and still reproduces,
+// listing them as added. Where the rerun raises the new flag (daily returns over 750 days flag
+// Hollinsedge Industrial: its slope on the previous day's index return is positive with p below
+// 0.05), the flags and the caution that names flagged peers move: verify fails on them and
+// names the change on a `known change:` line with the peer, and no beta or rate differs.
+#[test]
+fn a_receipt_of_0_10_0_verifies_and_names_the_lagged_response_flag() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let as_older = |receipt: &mut serde_json::Value| {
+        receipt["tool"]["version"] = serde_json::json!("0.10.0");
+        for peer in receipt["peers"].as_array_mut().unwrap() {
+            let peer = peer.as_object_mut().unwrap();
+            peer.remove("lag_response");
+            let flags = peer["flags"].as_array_mut().unwrap();
+            flags.retain(|f| f != "lagged_response");
+        }
+        (receipt["settings"]["beta"].as_object_mut().unwrap()).remove("flag_lag_p_value");
+    };
+    let out = dir.path().join("monthly");
+    let mut receipt = run_case(&case, &out, &[]);
+    as_older(&mut receipt);
+    let older = out.join("older.json");
+    std::fs::write(&older, serde_json::to_vec_pretty(&receipt).unwrap()).unwrap();
+    let verified = hurdle(&["verify", older.to_str().unwrap()]);
+    let report = text(&verified);
+    assert_eq!(verified.status.code(), Some(0), "{report}");
+    // Eight peers' lag_response and the threshold.
+    assert!(report.contains("9 figures that hurdle"), "{report}");
+    assert!(!report.contains("known change"), "{report}");
+    let out = dir.path().join("daily");
+    let daily = [
+        "--set",
+        "beta.frequency=daily",
+        "--set",
+        "beta.lookback=750",
+    ];
+    let mut receipt = run_case(&case, &out, &daily);
+    let flagged = &receipt["peers"][6];
+    assert_eq!(flagged["name"], "Hollinsedge Industrial");
+    assert_eq!(flagged["flags"], serde_json::json!(["lagged_response"]));
+    as_older(&mut receipt);
+    receipt["cautions"]["flagged_in_aggregate"] = serde_json::json!([]);
+    let older = out.join("older.json");
+    std::fs::write(&older, serde_json::to_vec_pretty(&receipt).unwrap()).unwrap();
+    let verified = hurdle(&["verify", older.to_str().unwrap()]);
+    let report = text(&verified);
+    assert_eq!(verified.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains("known change: hurdle 0.11.0 flags lagged_response")
+            && report.contains("here Hollinsedge Industrial"),
+        "{report}"
+    );
+    assert!(report.contains("peers[6].flags"), "{report}");
+    assert!(!report.contains("MISMATCH wacc"), "{report}");
+}

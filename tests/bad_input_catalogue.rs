@@ -2211,6 +2211,23 @@ fn overrides() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "--set lagged-response threshold above 1",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "beta.flag_lag_p_value=5"
+            ],
+            [
+                "case.toml",
+                "after applying --set beta.flag_lag_p_value=5",
+                "beta.flag_lag_p_value = 5 is outside [0, 1]"
+            ]
+        ),
+        bad!(
             "--set without =",
             nothing,
             ["run", "{case}", "--out", "{out}", "--set", "beta.lookback"],

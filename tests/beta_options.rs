@@ -672,3 +672,79 @@ fn an_inert_daily_staleness_limit_is_noted() {
     );
     assert_eq!(stale("2").0, 0);
 }
+
+// A peer whose price takes in the index's moves a month late: its daily price is built from the
+// demo index's, 0.3 of today's level and 0.8 of the level 21 trading days earlier (with a
+// seeded 1% jitter), so its monthly returns load on the index's previous-month return. The
+// flag lagged_response is raised and named in a note with the summed (Dimson) beta; numpy and
+// scipy refit the regression on the current and previous-period index returns from returns
+// rebuilt from the price files (check_regressions.py) and recompute the slope, its SE, t,
+// p-value and the flag, also under HC1 and Newey–West errors; the rule can exclude the peer, a
+// threshold of 0 never flags, and under Dimson there is no such check (the method takes the
+// lag in).
+#[test]
+fn prices_that_react_a_period_late_are_flagged_lagged_response() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    let index = std::fs::read_to_string(case_dir.join("data/index.csv")).unwrap();
+    let rows: Vec<(&str, f64)> = (index.lines().skip(1))
+        .filter_map(|l| l.split_once(','))
+        .map(|(d, p)| (d, p.parse::<f64>().unwrap()))
+        .collect();
+    let mut text = String::from("date,price\n");
+    for (i, (date, level)) in rows.iter().enumerate() {
+        let earlier = rows[i.saturating_sub(21)].1;
+        let jitter = 1.0 + 0.01 * (((i * 37) % 21) as f64 - 10.0) / 10.0;
+        let price = 40.0 * (level / 1000.0).powf(0.3) * (earlier / 1000.0).powf(0.8) * jitter;
+        text.push_str(&format!("{date},{price:.4}\n"));
+    }
+    std::fs::write(case_dir.join("data/peers/corrowick.csv"), text).unwrap();
+    let case = case_dir.join("case.toml");
+    let run =
+        |name: &str, sets: &[&str]| common::run_case_with(&case, &dir.path().join(name), sets);
+    let result = run("out", &[]);
+    let peer = &result["peers"][1];
+    assert_eq!(peer["name"], "Corrowick Valves");
+    let flags = peer["flags"].to_string();
+    assert!(flags.contains("lagged_response"), "{flags}");
+    let lag = &peer["lag_response"];
+    // The construction's loading on the earlier level (0.8) shows as a large, clearly
+    // significant slope; the exact figures are numpy's, in the reference check below.
+    assert!(lag["slope"].as_f64().unwrap() > 0.3, "{lag}");
+    assert!(lag["p_value"].as_f64().unwrap() < 0.001, "{lag}");
+    assert!(
+        result["notes"].to_string().contains(
+            "Corrowick Valves: its returns follow the index's return of the period before"
+        ),
+        "{}",
+        result["notes"]
+    );
+    reference_check(&dir.path().join("out"), "lagged response");
+    // The terminal's caution names the one flagged peer in the singular, as the memo does.
+    let case_arg = case.to_str().unwrap();
+    let out = dir.path().join("terminal");
+    let printed = common::hurdle(&["run", case_arg, "--out", out.to_str().unwrap()]);
+    let printed = String::from_utf8_lossy(&printed.stdout).to_string()
+        + &String::from_utf8_lossy(&printed.stderr);
+    assert!(
+        printed.contains("Corrowick Valves raises a diagnostic flag (peers.csv's flags column) and is aggregated"),
+        "{printed}"
+    );
+    for errors in ["hc1", "newey-west"] {
+        let name = format!("out-{errors}");
+        run(&name, &[&format!("beta.std_errors={errors}")]);
+        reference_check(&dir.path().join(name), "lagged response, robust errors");
+    }
+    let result = run("excluded", &["beta.exclude_flags=[\"lagged_response\"]"]);
+    assert_eq!(result["beta"]["peers_included"], 7);
+    let result = run("never", &["beta.flag_lag_p_value=0"]);
+    assert!(!result["peers"][1]["flags"]
+        .to_string()
+        .contains("lagged_response"));
+    let result = run("dimson", &["beta.method=dimson"]);
+    assert!(result["peers"][1]["lag_response"].is_null());
+    assert!(!result["peers"][1]["flags"]
+        .to_string()
+        .contains("lagged_response"));
+}

@@ -189,6 +189,7 @@ const SETTINGS: &[Setting] = &[
     ),
     ("beta", "flag_r_squared_floor", &["0", "0.3", "1"]),
     ("beta", "flag_observations_share", &["0", "0.95", "1"]),
+    ("beta", "flag_lag_p_value", &["0", "0.05", "1"]),
     (
         "beta",
         "exclude_flags",
@@ -196,6 +197,7 @@ const SETTINGS: &[Setting] = &[
             "[]",
             "[\"low_r_squared\"]",
             "[\"too_few_observations\", \"stale_prices\"]",
+            "[\"lagged_response\"]",
         ],
     ),
     ("beta", "rolling_window", &["3", "12", "59"]),

@@ -213,6 +213,25 @@ fn each_security_equals_the_case_that_lists_it_as_a_peer() {
                     "configuration {k}, {id}: {column}: universe {got}, case {expected}"
                 );
             }
+            // The regression on the previous period's index return: OLS only (configuration
+            // 0), absent on both sides under Dimson and Scholes–Williams.
+            for (field, column) in [
+                ("slope", "lag_slope"),
+                ("std_error", "lag_slope_std_error"),
+                ("t_stat", "lag_slope_t_stat"),
+                ("p_value", "lag_slope_p_value"),
+                ("summed_beta", "lag_summed_beta"),
+            ] {
+                let cell = row
+                    .column(column)
+                    .unwrap()
+                    .cast(&DataType::Float64)
+                    .unwrap();
+                let got = cell.f64().unwrap().get(0).map(f64::to_bits);
+                let expected = peer["lag_response"][field].as_f64().map(f64::to_bits);
+                assert_eq!(got, expected, "configuration {k}, {id}: {column}");
+                assert_eq!(got.is_some(), k == 0, "configuration {k}, {id}: {column}");
+            }
             assert_eq!(
                 number(&row, "periods_dropped"),
                 common::number(peer, "periods_dropped.total"),
@@ -255,6 +274,9 @@ fn industry_table_agrees_with_numpy_and_scipy() {
             "beta.weekday=friday",
             "leverage.debt_measure=net",
         ][..],
+        // Every positive slope on the previous day's index return flagged lagged_response,
+        // so that the flag's counts are recomputed over several securities.
+        &["beta.flag_lag_p_value=1"][..],
     ]
     .iter()
     .enumerate()

@@ -378,6 +378,11 @@ const BETA_KEYS: &[(&str, &str, &str)] = &[
         "",
     ),
     (
+        "flag_lag_p_value",
+        "flag a peer whose returns follow the index's previous-period return",
+        "",
+    ),
+    (
         "exclude_flags",
         "flags that leave a peer out of the aggregate",
         "",

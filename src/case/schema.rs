@@ -190,6 +190,9 @@ pub struct BetaSettings {
     pub flag_stale_share: f64,
     /// Flag `zero_returns` when more than this share of a peer's returns are exactly zero.
     pub flag_zero_return_share: f64,
+    /// Flag `lagged_response` when an OLS beta's slope on the index's previous-period return
+    /// is positive with a two-sided p-value below this (0 never flags).
+    pub flag_lag_p_value: f64,
     /// Peers raising any of these flags are left out of the aggregation (still shown).
     pub exclude_flags: Vec<PeerFlag>,
     /// Return periods per rolling window; absent means half the window's periods.
@@ -273,6 +276,7 @@ impl Default for BetaSettings {
             flag_stale_share: 0.1,
             // hurdle's choice: a fifth of the returns unchanged is far above a traded share's.
             flag_zero_return_share: 0.2,
+            flag_lag_p_value: 0.05,
             exclude_flags: Vec::new(),
             rolling_window: None,
             rolling_step: 1,

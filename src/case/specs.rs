@@ -43,6 +43,7 @@ pub fn estimation(settings: &CaseFile) -> EstimationSpec {
             r_squared_floor: beta.flag_r_squared_floor,
             stale_share: beta.flag_stale_share,
             zero_return_share: beta.flag_zero_return_share,
+            lag_p_value: beta.flag_lag_p_value,
             exclude: beta.exclude_flags.clone(),
         },
         case_extras: true,

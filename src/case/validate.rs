@@ -272,6 +272,7 @@ fn validate_rolling_and_flags(
         ("beta.flag_r_squared_floor", beta.flag_r_squared_floor),
         ("beta.flag_stale_share", beta.flag_stale_share),
         ("beta.flag_zero_return_share", beta.flag_zero_return_share),
+        ("beta.flag_lag_p_value", beta.flag_lag_p_value),
     ] {
         if !(value.is_finite() && (0.0..=1.0).contains(&value)) {
             return Err(format!("{key} = {value} is outside [0, 1]"));

@@ -8,7 +8,7 @@
 
 use chrono::NaiveDate;
 
-use crate::beta::diagnostics::{FlagRule, PeerFlag};
+use crate::beta::diagnostics::{FlagRule, LagResponse, PeerFlag};
 use crate::beta::fitted_line::{self, FittedLine};
 use crate::beta::rolling::{self, RollingPoint, Stability};
 use crate::beta::{self, BetaEstimate, EstimatorSpec};
@@ -16,6 +16,7 @@ use crate::io::series::SeriesView;
 use crate::market::sampling::{
     self, AlignedReturns, DroppedPeriods, Frequency, PeriodGrid, ReturnType, SampleWeekday,
 };
+use crate::stats::least_squares::{design_with_intercept, ols, with_std_errors};
 
 /// Everything that decides an estimate, and nothing else: two equal specs on the same prices give
 /// the same estimate, which is how a what-if knows it may reuse the estimates it has.
@@ -162,6 +163,11 @@ pub struct SecurityEstimate {
     /// The share of the returns used that are exactly zero (the same price at both ends of
     /// the period): flagged `zero_returns` above the rule's threshold.
     pub zero_return_share: f64,
+    /// The slope on the index's previous-period return beside the current one (OLS only;
+    /// `None` under Dimson or Scholes–Williams, which take it in, or when the periods with a
+    /// previous index return are too few): flagged `lagged_response` when positive and
+    /// significant.
+    pub lag_response: Option<LagResponse>,
     pub flags: Vec<PeerFlag>,
     /// The flags that the spec's exclusion rule names: the security stays out of aggregates.
     pub excluding_flags: Vec<PeerFlag>,
@@ -282,6 +288,52 @@ fn flag_shares(aligned: &sampling::AlignedReturns, periods_in_window: usize) -> 
     (stale, zero)
 }
 
+/// The OLS regression on the index's current and previous-period returns ([`LagResponse`]),
+/// for an OLS estimate. Its own alignment asks for the previous period's index return, so the
+/// window's first period (whose previous one lies before the window) and any period after a
+/// missing index return drop out, as they would from a Dimson estimate with one lag.
+fn lag_response(
+    spec: &EstimationSpec,
+    window: &Window,
+    market: &MarketReturns,
+    asset_returns: &[Option<f64>],
+) -> Option<LagResponse> {
+    if spec.estimator.method != beta::BetaMethod::Ols {
+        return None;
+    }
+    let aligned = sampling::align_with_shifts(
+        &window.all_period_ends,
+        asset_returns,
+        &market.returns,
+        market.risk_free.as_deref(),
+        &[-1],
+        window.first,
+    );
+    let (asset, current) = (aligned.asset_excess(), aligned.market_excess());
+    let previous = &aligned.market_shifted[0].returns;
+    let n = asset.len();
+    // Dimson's own rule (beta::estimate_with): at least four observations per shifted column
+    // beyond it, and Newey–West lags under a quarter of the observations.
+    let lags = beta::newey_west_lags(&spec.estimator, n);
+    if n <= 4 || lags.is_some_and(|l| 4 * l >= n) {
+        return None;
+    }
+    let design = design_with_intercept(&[&current, previous.as_slice()]);
+    let fit = ols(&design, &asset, true).ok()?;
+    let fit = with_std_errors(fit, &design, spec.estimator.std_errors, lags.unwrap_or(0));
+    let response = LagResponse {
+        slope: fit.coefficients[2],
+        std_error: fit.std_errors[2],
+        t_stat: fit.t_stats[2],
+        p_value: fit.p_values[2],
+        summed_beta: fit.coefficients[1] + fit.coefficients[2],
+        observations: n,
+    };
+    // An exact fit leaves no error to test against: no statistic rather than an infinite t.
+    let finite = [response.std_error, response.t_stat, response.p_value];
+    (finite.iter().all(|v| v.is_finite()) && response.std_error > 0.0).then_some(response)
+}
+
 /// The fitted line and its band over the range of the index returns the regression saw.
 fn line_over(estimate: &beta::BetaEstimate, market_excess: &[f64]) -> FittedLine {
     let (x_min, x_max) = market_excess
@@ -356,7 +408,10 @@ pub fn estimate_security(
     };
     let shares = flag_shares(&aligned, periods_in_window);
     let (stale_share, zero_return_share) = shares;
-    let flags = spec.flags.flags(&estimate, periods_in_window, shares);
+    let lag_response = lag_response(spec, window, market, &asset_returns);
+    let flags = spec
+        .flags
+        .flags(&estimate, periods_in_window, shares, lag_response.as_ref());
     let excluding_flags = spec.flags.excluding(&flags);
     let stability = rolling::stability(&rolling_points, spec.rolling.window)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;
@@ -366,6 +421,7 @@ pub fn estimate_security(
         estimate,
         stale_share,
         zero_return_share,
+        lag_response,
         flags,
         excluding_flags,
         rolling: rolling_points,

@@ -38,9 +38,14 @@ pub fn case_cautions(v: &Valuation, flags_column: &str) -> Vec<String> {
         ));
     }
     if !c.flagged_in_aggregate.is_empty() {
+        // One peer in the singular, as the memo's caution words it.
+        let (raise, are) = match c.flagged_in_aggregate.len() {
+            1 => ("raises", "is"),
+            _ => ("raise", "are"),
+        };
         out.push(format!(
-            "Flagged peers in the aggregate: {} raise a diagnostic flag ({flags_column}) and \
-             are aggregated all the same.",
+            "Flagged peers in the aggregate: {} {raise} a diagnostic flag ({flags_column}) and \
+             {are} aggregated all the same.",
             names(&c.flagged_in_aggregate)
         ));
     }

@@ -5,6 +5,7 @@ use std::fmt::Write as _;
 
 use super::format::Full;
 use super::Render;
+use crate::beta::diagnostics::LagResponse;
 use crate::error::Result;
 use crate::valuation::Valuation;
 
@@ -14,7 +15,7 @@ pub struct PeersCsv;
 /// Long form: one row per peer and return period.
 pub struct ReturnsCsv;
 
-const PEER_COLUMNS: [&str; 30] = [
+const PEER_COLUMNS: [&str; 35] = [
     "name",
     "prices_file",
     "observations",
@@ -45,6 +46,11 @@ const PEER_COLUMNS: [&str; 30] = [
     "operations_beta",
     "stale_share",
     "zero_return_share",
+    "lag_slope",
+    "lag_slope_std_error",
+    "lag_slope_t_stat",
+    "lag_slope_p_value",
+    "lag_summed_beta",
 ];
 
 impl Render for PeersCsv {
@@ -57,6 +63,11 @@ impl Render for PeersCsv {
         out.push('\n');
         for p in &valuation.peers {
             let e = &p.estimate;
+            let lag = |f: fn(&LagResponse) -> f64| {
+                p.lag_response
+                    .map(|l| Full(f(&l)).to_string())
+                    .unwrap_or_default()
+            };
             let cells = [
                 field(&p.name),
                 field(&p.prices_file),
@@ -98,6 +109,11 @@ impl Render for PeersCsv {
                 Full(p.operations_beta).to_string(),
                 Full(p.stale_share).to_string(),
                 Full(p.zero_return_share).to_string(),
+                lag(|l| l.slope),
+                lag(|l| l.std_error),
+                lag(|l| l.t_stat),
+                lag(|l| l.p_value),
+                lag(|l| l.summed_beta),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');

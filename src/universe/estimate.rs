@@ -12,7 +12,7 @@
 use chrono::NaiveDate;
 use serde::Serialize;
 
-use crate::beta::diagnostics::PeerFlag;
+use crate::beta::diagnostics::{LagResponse, PeerFlag};
 use crate::beta::rolling::{RollingPoint, Stability};
 use crate::beta::BetaEstimate;
 use crate::case::sanity::{implausible_move, significant, JUMP_FACTOR};
@@ -78,6 +78,8 @@ pub struct Estimated {
     pub periods_in_window: usize,
     pub stale_share: f64,
     pub zero_return_share: f64,
+    /// The slope on the index's previous-period return (OLS only).
+    pub lag_response: Option<LagResponse>,
     pub flags: Vec<PeerFlag>,
     /// The flags `beta.exclude_flags` names: the security stays out of the aggregates.
     pub excluding_flags: Vec<PeerFlag>,
@@ -221,6 +223,7 @@ impl Estimation {
                     periods_in_window: e.periods_in_window,
                     stale_share: e.stale_share,
                     zero_return_share: e.zero_return_share,
+                    lag_response: e.lag_response,
                     flags: e.flags,
                     excluding_flags: e.excluding_flags,
                     stability: e.stability.filter(|_| self.rolling),

@@ -539,11 +539,12 @@ fn adjust(
 }
 
 /// The flags a security can raise, in the order outputs list them.
-pub const FLAGS: [PeerFlag; 4] = [
+pub const FLAGS: [PeerFlag; 5] = [
     PeerFlag::TooFewObservations,
     PeerFlag::LowRSquared,
     PeerFlag::StalePrices,
     PeerFlag::ZeroReturns,
+    PeerFlag::LaggedResponse,
 ];
 
 /// "1 security", "2 securities": a count of securities for a note or a summary line.

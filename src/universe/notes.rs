@@ -246,7 +246,8 @@ fn flagged_notes(
     let thin = ids_where(securities, |s| {
         s.aggregated()
             && (s.flags.contains(&PeerFlag::ZeroReturns)
-                || s.flags.contains(&PeerFlag::StalePrices))
+                || s.flags.contains(&PeerFlag::StalePrices)
+                || s.flags.contains(&PeerFlag::LaggedResponse))
     });
     if !thin.is_empty() {
         let remedy = match method {
@@ -258,10 +259,10 @@ fn flagged_notes(
             _ => "",
         };
         notes.push(format!(
-            "{} estimated and not excluded {} thinly (zero_returns or stale_prices): \
-             {}{remedy}.",
+            "{} estimated and not excluded {} signs of thin or late trading (zero_returns, \
+             stale_prices or lagged_response): {}{remedy}.",
             securities_count(thin.len()),
-            if thin.len() == 1 { "trades" } else { "trade" },
+            if thin.len() == 1 { "shows" } else { "show" },
             first_ids(&thin)
         ));
     }

@@ -10,7 +10,7 @@ use crate::case::sanity::prices::PricePatterns;
 use serde::Serialize;
 
 use super::estimate::{NotEstimated, SecurityEstimate};
-use crate::beta::diagnostics::PeerFlag;
+use crate::beta::diagnostics::{LagResponse, PeerFlag};
 use crate::beta::rolling::Stability;
 use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
 use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
@@ -84,6 +84,8 @@ pub struct SecurityResult {
     pub flags: Vec<PeerFlag>,
     pub stale_share: Option<f64>,
     pub zero_return_share: Option<f64>,
+    /// The slope on the index's previous-period return beside the current one (OLS only).
+    pub lag_response: Option<LagResponse>,
     /// Why the security is left out of the aggregates (`beta.exclude_flags`), or `None`.
     pub excluded_reason: Option<String>,
     /// The flags that exclude it: those it raises that `beta.exclude_flags` lists.
@@ -152,7 +154,7 @@ pub fn security_row(
             Ok(e) => (
                 Some(e.estimate.clone()),
                 e.flags.clone(),
-                Some((e.stale_share, e.zero_return_share)),
+                Some((e.stale_share, e.zero_return_share, e.lag_response)),
                 e.excluding_flags.clone(),
                 e.stability.clone(),
                 None,
@@ -201,6 +203,7 @@ pub fn security_row(
         flags,
         stale_share: shares.map(|s| s.0),
         zero_return_share: shares.map(|s| s.1),
+        lag_response: shares.and_then(|s| s.2),
         excluded_reason,
         excluding_flags,
         shrunk_beta: adjusted.and_then(|a| a.shrunk),

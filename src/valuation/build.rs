@@ -328,6 +328,7 @@ pub fn peer_results(
                 vasicek: adjusted.vasicek,
                 stale_share: estimated.stale_share,
                 zero_return_share: estimated.zero_return_share,
+                lag_response: estimated.lag_response,
                 flags: estimated.flags.clone(),
                 stability: estimated.stability.clone(),
                 fitted_line: estimated.fitted_line.clone(),

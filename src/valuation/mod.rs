@@ -371,10 +371,6 @@ fn rolling_shift_notes(names: &[&str], peers: &[SecurityEstimate]) -> Vec<String
         .collect();
     let adjusted = crate::stats::holm_adjusted(&raw);
     let m = tests.len();
-    let p_text = |p: f64| match p < 0.001 {
-        true => "< 0.001".to_string(),
-        false => format!("= {}", crate::error::rounded(p, 3)),
-    };
     (tests.iter().zip(raw.iter().zip(&adjusted)))
         .filter(|(_, (_, &adjusted))| adjusted < 0.05)
         .map(|(&(i, z, df), (&p, &adjusted))| {
@@ -438,7 +434,52 @@ fn data_notes(
     {
         notes.push(zero_returns_note(name, estimated.zero_return_share, spec));
     }
+    if let Some(lag) = estimated
+        .lag_response
+        .filter(|_| (estimated.flags).contains(&crate::beta::diagnostics::PeerFlag::LaggedResponse))
+    {
+        notes.push(lagged_response_note(
+            name,
+            &lag,
+            estimated.estimate.beta,
+            spec,
+        ));
+    }
     notes
+}
+
+/// A p-value as a note writes it: `= 0.012`, or `< 0.001`.
+fn p_text(p: f64) -> String {
+    match p < 0.001 {
+        true => "< 0.001".to_string(),
+        false => format!("= {}", crate::error::rounded(p, 3)),
+    }
+}
+
+/// A peer whose returns follow the index's previous-period return: its price takes in the
+/// market's news a period late, so the OLS slope on the same period's index return alone is
+/// biased toward zero (Dimson 1979; Scholes and Williams 1977).
+fn lagged_response_note(
+    name: &str,
+    lag: &crate::beta::diagnostics::LagResponse,
+    beta: f64,
+    spec: &EstimationSpec,
+) -> String {
+    let show = |x: f64| crate::error::rounded(x, 2);
+    format!(
+        "{name}: its returns follow the index's return of the period before (slope {}, t = {}, \
+         p {}; flagged lagged_response below beta.flag_lag_p_value = {}): a price that takes in \
+         the market's news late, as thin or non-synchronous trading makes it, biases an OLS \
+         beta toward zero (Dimson 1979); with one lag the summed beta is {} against the OLS \
+         beta's {}; consider beta.method = \"dimson\" or \"scholes-williams\", or a longer \
+         frequency.",
+        show(lag.slope),
+        show(lag.t_stat),
+        p_text(lag.p_value),
+        crate::error::compact(spec.flags.lag_p_value),
+        show(lag.summed_beta),
+        show(beta),
+    )
 }
 
 /// A peer many of whose returns are exactly zero: prices repeated from one period to the next,

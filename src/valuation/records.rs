@@ -8,6 +8,7 @@ use chrono::NaiveDate;
 use serde::Serialize;
 
 use super::analyses::{Bridge, Grid, Uncertainty};
+use crate::beta::diagnostics::LagResponse;
 use crate::beta::{self, rolling, BetaEstimate};
 use crate::capital::chain::{FormulaOutcome, OtherComponents, Weights};
 use crate::capital::debt::CostOfDebtRecord;
@@ -105,6 +106,9 @@ pub struct PeerResult {
     pub stale_share: f64,
     /// Share of the returns used that are exactly zero (flag `zero_returns`).
     pub zero_return_share: f64,
+    /// The slope on the index's previous-period return beside the current one (flag
+    /// `lagged_response`; `null` unless the beta is OLS).
+    pub lag_response: Option<LagResponse>,
     /// Diagnostic warnings (see README, "Diagnostics").
     pub flags: Vec<PeerFlag>,
     /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).

@@ -18,6 +18,10 @@ spread its rating or coverage table gives. Then:
     to a relative 1e-12, and the window and dropped periods with result.json; and regresses on its
     own returns (a part it cannot rebuild, a wide table in Parquet, .xls or .ods, is reported as
     NOT RECOMPUTED and returns.csv is used for it: said in the output, never silent);
+  - under OLS, refits each peer's return on the index's current and previous-period returns
+    (Dimson 1979 with one lag) over the rebuilt periods whose previous index return is in the
+    window, for the lag slope, its standard error (classical, HC1 or Newey-West, by `sandwich`),
+    t, scipy's p-value and the flag lagged_response;
   - refits every peer's market-model regression with numpy's least squares and
     scipy.stats.linregress, and recomputes Blume's shrinkage (with the case's beta.blume_weight),
     Hamada unlevering, the beta of the operations, the median, relevering, the CAPM cost of equity
@@ -90,7 +94,7 @@ DEFAULTS = {
              "vasicek_prior_mean": None, "vasicek_prior_variance": None, "weekday": "wednesday",
              "returns": "simple", "max_stale_days": None, "window_start": None, "window_end": None,
              "flag_observations_share": 0.8, "flag_r_squared_floor": 0.05,
-             "flag_stale_share": 0.1, "flag_zero_return_share": 0.2, "exclude_flags": [], "rolling_window": None,
+             "flag_stale_share": 0.1, "flag_zero_return_share": 0.2, "flag_lag_p_value": 0.05, "exclude_flags": [], "rolling_window": None,
              "rolling_step": 1, "rolling_min_observations": None},
     "leverage": {"formula": "hamada", "aggregation": "median", "trim_fraction": 0.1,
                  "operations_beta": False, "debt_measure": "gross", "debt_beta_source": "none",
@@ -533,6 +537,11 @@ def rebuild_returns(case_path, result):
                 column = f"market_lag_{-offset}" if offset < 0 else f"market_lead_{offset}"
                 row[column] = market_excess[j]
             rows.append(row)
+            # README "Diagnostics": the lagged-response regression needs the previous period's
+            # index return too, so the window's first period drops out of it.
+            if method == "ols" and market_excess[k - 1] is not None:
+                own = asset[k][0] - (rf[k] if excess else 0.0)
+                LAGGED.setdefault(name, []).append((own, market_excess[k], market_excess[k - 1]))
         drops[name] = dropped
     grid = [points[k].isoformat() for k in range(lags + 1, last + 1)]
     return rows, drops, window_periods, grid
@@ -786,6 +795,50 @@ def check_unlevered(name, peer, used, result):
     check(f"{name} unlevered ({formula})", peer["unlevered_beta"], (used + bd * s * de) / (1 + s * de))
 
 
+def check_lag_response(name, peer):
+    """README "Diagnostics": under OLS, the peer's return on [1, m(t), m(t - 1)] (Dimson 1979,
+    one lag) by numpy least squares, the lag slope's standard error by `sandwich` (the case's
+    kind), its t and scipy's two-sided p-value on N - 3 degrees of freedom; none under another
+    estimator. Returns whether lagged_response is expected: a positive slope with p below
+    beta.flag_lag_p_value."""
+    global checks
+    if setting("beta", "method") != "ols":
+        check_equal(f"{name} lag_response (OLS only)", peer["lag_response"], None)
+        return False
+    if "periods" not in WINDOW:
+        not_recomputed.append(f"{name} lag_response: the returns were not rebuilt, so the "
+                              f"previous periods' index returns are not known here")
+        return "lagged_response" in peer["flags"]
+    rows = LAGGED.get(name, [])
+    n = len(rows)
+    kind = setting("beta", "std_errors")
+    lags = newey_west_lags(n) if kind == "newey-west" else 0
+    if n <= 4 or (kind == "newey-west" and 4 * lags >= n):
+        check_equal(f"{name} lag_response (too few periods)", peer["lag_response"], None)
+        return False
+    y = np.array([r[0] for r in rows])
+    design = np.column_stack([np.ones(n), [r[1] for r in rows], [r[2] for r in rows]])
+    coef, _, _, _ = np.linalg.lstsq(design, y, rcond=None)
+    residuals = y - design @ coef
+    cov = sandwich(np.linalg.inv(design.T @ design) @ design.T, residuals, 3, kind, lags)
+    se = np.sqrt(cov[2, 2])
+    t = coef[2] / se
+    p = 2 * stats.t.sf(abs(t), n - 3)
+    got = peer["lag_response"]
+    flag = coef[2] > 0 and p < setting("beta", "flag_lag_p_value")
+    if got is None:
+        checks += 1
+        failures.append(f"{name} lag_response: none in result.json, numpy fits {n} periods")
+        return flag
+    check_equal(f"{name} lag_response observations", got.get("observations"), n)
+    check(f"{name} lag slope (numpy)", got.get("slope"), coef[2])
+    check(f"{name} lag slope SE ({kind})", got.get("std_error"), se)
+    check(f"{name} lag slope t", got.get("t_stat"), t)
+    check(f"{name} lag slope p-value (scipy t)", got.get("p_value"), p, floor=0.0)
+    check(f"{name} summed beta, one lag (numpy)", got.get("summed_beta"), coef[1] + coef[2])
+    return flag
+
+
 def shifted_columns(data):
     shifted = {}
     for key in data[0]:
@@ -842,6 +895,8 @@ def check_diagnostics(name, peer, data, asset, market, result):
     check(f"{name} zero_return_share", peer["zero_return_share"], zero_share)
     if zero_share > setting("beta", "flag_zero_return_share"):
         expected.append("zero_returns")
+    if check_lag_response(name, peer):
+        expected.append("lagged_response")
     checks += 1
     if peer["flags"] != expected:
         failures.append(f"{name} flags: hurdle {peer['flags']} vs reference {expected}")
@@ -975,6 +1030,7 @@ def check_histogram(result):
 
 
 ROWS = {}
+LAGGED = {}  # per peer, under OLS: (asset, index, previous index) excess returns, rebuilt
 WINDOW = {}  # the rebuilt window: its period count and ends, each peer's dropped periods by reason
 INCLUDED = {}  # peer name -> aggregated, by the case's exclude and exclude_flags
 RATES = {}  # rf, ERP and the pre-tax Kd as the case states them

@@ -15,11 +15,15 @@ any of hurdle's code:
     the index's return for the period;
   - each security's OLS market model with scipy.stats.linregress (slope, intercept, their
     standard errors, R^2, the two-sided p-value) and the 95% interval with scipy.stats.t.ppf;
-    Durbin-Watson from numpy; the flags too_few_observations (N below
-    beta.flag_observations_share, default 0.8, of the window's periods), low_r_squared (R^2
-    below beta.flag_r_squared_floor, default 0.05) and zero_returns (more than
-    beta.flag_zero_return_share, default 0.2, of the returns used exactly zero), compared with
-    securities.csv's flags;
+    Durbin-Watson from numpy; the regression on the index's current and previous-period returns
+    (Dimson 1979 with one lag) by numpy least squares, its lag slope's classical standard error
+    s^2 (X'X)^-1 and scipy's two-sided Student t p-value on N - 3 degrees of freedom, over the
+    periods whose previous index return is in the window; the flags too_few_observations (N
+    below beta.flag_observations_share, default 0.8, of the window's periods), low_r_squared
+    (R^2 below beta.flag_r_squared_floor, default 0.05), zero_returns (more than
+    beta.flag_zero_return_share, default 0.2, of the returns used exactly zero) and
+    lagged_response (a positive lag slope with p below beta.flag_lag_p_value, default 0.05),
+    compared with securities.csv's flags;
   - Hamada (1972) unlevering beta_U = beta / (1 + (1 - t) D/E) with gross or net debt (none for
     a D/E above 10 or at or below -1), and the beta of the operations
     beta_U(gross D/E) / (1 - cash / (equity + debt)) under either debt measure (a net-debt
@@ -213,6 +217,27 @@ def regression(asset, market):
     }
 
 
+def lagged(asset, market):
+    """README "Diagnostics": r(t) on [1, m(t), m(t - 1)] over the periods with all three
+    (the window's first period has no previous index return inside the window); numpy least
+    squares, classical covariance s^2 (X'X)^-1 (numpy's inv: the reference, not the solver)."""
+    rows = [(asset[j], market[j], market[j - 1]) for j in range(1, len(asset))
+            if asset[j] is not None and market[j] is not None and market[j - 1] is not None]
+    n = len(rows)
+    if n <= 4:
+        return {}
+    y = np.array([r[0] for r in rows])
+    design = np.column_stack([np.ones(n), [r[1] for r in rows], [r[2] for r in rows]])
+    coef, _, _, _ = np.linalg.lstsq(design, y, rcond=None)
+    residuals = y - design @ coef
+    covariance = np.linalg.inv(design.T @ design) * (residuals @ residuals / (n - 3))
+    se = float(np.sqrt(covariance[2, 2]))
+    t = coef[2] / se
+    return {"lag_slope": coef[2], "lag_slope_std_error": se, "lag_slope_t_stat": t,
+            "lag_slope_p_value": 2 * stats.t.sf(abs(t), n - 3),
+            "lag_summed_beta": coef[1] + coef[2]}
+
+
 def number(text):
     return float(text) if text not in ("", None) else None
 
@@ -296,6 +321,10 @@ def securities(config, folder):
             row["zero_return_share"] = sum(1 for a, _ in pairs if a == 0.0) / len(pairs)
             if row["zero_return_share"] > beta.get("flag_zero_return_share", 0.2):
                 row["flags"].add("zero_returns")
+            row.update(lagged(asset, market))
+            if (row.get("lag_slope", 0.0) > 0.0
+                    and row["lag_slope_p_value"] < beta.get("flag_lag_p_value", 0.05)):
+                row["flags"].add("lagged_response")
         result[security] = row
     return result
 
@@ -362,7 +391,7 @@ def industries(config, rows):
                    # README, industries.csv: the estimated (and, exclude_flags being empty,
                    # aggregated) securities carrying any flag, and each flag recomputed above.
                    "flagged": sum(1 for r in estimated if r["flags"])}
-        for flag in ("too_few_observations", "low_r_squared", "zero_returns"):
+        for flag in ("too_few_observations", "low_r_squared", "zero_returns", "lagged_response"):
             figures[f"flagged_{flag}"] = sum(1 for r in estimated if flag in r["flags"])
         for key, prefix, value in (("beta", "beta", None),
                                    ("unlevered_beta", "unlevered_beta", "firm_value"),
@@ -434,7 +463,8 @@ def main():
         got = listed[security]
         for key in ("observations", "beta", "beta_std_error", "alpha", "alpha_std_error",
                     "r_squared", "beta_ci_low", "beta_ci_high", "durbin_watson",
-                    "debt_to_equity", "unlevered_beta", "operations_beta", "zero_return_share"):
+                    "debt_to_equity", "unlevered_beta", "operations_beta", "zero_return_share",
+                    "lag_slope", "lag_slope_std_error", "lag_slope_t_stat", "lag_summed_beta"):
             check.same(f"{security} {key}", row.get(key), number(got[key]))
         # p-values relative only, without the floor (p-values of 1e-20 and below occur here and
         # would otherwise always pass). statrs and scipy agree far inside 1e-9 relative even in
@@ -442,6 +472,8 @@ def main():
         # rounding times the density-to-tail ratio (about |t|), about 1e-13 here (measured: at
         # most 4e-13 relative, at p = 7e-21).
         check.same(f"{security} beta_p_value", row.get("beta_p_value"), number(got["beta_p_value"]), floor=0.0)
+        check.same(f"{security} lag_slope_p_value", row.get("lag_slope_p_value"),
+                   number(got["lag_slope_p_value"]), floor=0.0)
         if "beta" in row:
             # The flags this check recomputes, and no other flag (staleness and exclusions are
             # not implemented here and refused above).

@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 5] = [
+const ADDED_IN: [(&str, &[&str]); 6] = [
     (
         "0.3.0",
         &[
@@ -97,6 +97,19 @@ const ADDED_IN: [(&str, &[&str]); 5] = [
             "peer_set.figures.shrunk.market_cap_weighted_count",
             "peer_set.figures.unlevered.market_cap_weighted_count",
             "peer_set.figures.operations.market_cap_weighted_count",
+        ],
+    ),
+    (
+        "0.11.0",
+        &[
+            "peers[].lag_response",
+            "settings.beta.flag_lag_p_value",
+            "industries[].excluded.lagged_response",
+            "industries[].flagged.lagged_response",
+            "counts.flagged.lagged_response",
+            "counts.excluded_by_flag.lagged_response",
+            "peer_set.figures.excluded.lagged_response",
+            "peer_set.figures.flagged.lagged_response",
         ],
     ),
 ];

@@ -98,8 +98,34 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 10] =
+const KNOWN_CHANGES: [KnownChange; 12] =
     [
+        KnownChange {
+            version: "0.11.0",
+            kind: "case",
+            paths: &["peers", "cautions"],
+            explain: |_, rerun| {
+                let peers = rerun["peers"].as_array().into_iter().flatten();
+                let late: Vec<&str> = peers
+                    .filter(|p| {
+                        (p["flags"].as_array().into_iter().flatten()).any(|f| f == LAGGED_RESPONSE)
+                    })
+                    .filter_map(|p| p["name"].as_str())
+                    .collect();
+                (!late.is_empty()).then(|| lagged_response_change(&late))
+            },
+        },
+        KnownChange {
+            version: "0.11.0",
+            kind: "universe",
+            paths: &["counts", "industries", "peer_set"],
+            explain: |_, rerun| {
+                let flagged = rerun["counts"]["flagged"][LAGGED_RESPONSE].as_u64();
+                flagged
+                    .is_some_and(|n| n > 0)
+                    .then(|| lagged_response_change(&[]))
+            },
+        },
         KnownChange {
             version: "0.9.0",
             kind: "case",
@@ -299,6 +325,25 @@ const KNOWN_CHANGES: [KnownChange; 10] =
         },
     ];
 
+/// The flag 0.11.0 added, as outputs name it.
+const LAGGED_RESPONSE: &str = "lagged_response";
+
+/// 0.11.0's flag in words, naming the case's peers it raises (none named for a universe,
+/// whose counts say how many).
+fn lagged_response_change(peers: &[&str]) -> String {
+    let which = match peers {
+        [] => String::new(),
+        names => format!("; here {}", crate::universe::notes::first_ids(names)),
+    };
+    format!(
+        "hurdle 0.11.0 flags lagged_response on an OLS beta whose returns follow the index's \
+         return of the period before (beta.flag_lag_p_value), which an earlier version did not \
+         test: the flags, the counts of flagged securities and the cautions that name flagged \
+         peers move; no beta or rate does unless beta.exclude_flags lists the flag (README, \
+         Changelog, \"Prices that react late\"){which}"
+    )
+}
+
 /// Whether a receipt's file entry names a Parquet file (by its extension).
 fn parquet_file(file: &Value) -> bool {
     let path = file["path"].as_str().unwrap_or("").to_ascii_lowercase();
@@ -434,6 +479,23 @@ mod tests {
             ),
             0
         );
+    }
+
+    // 0.11.0's lagged_response flag: named for a universe receipt of 0.10.0 whose counts
+    // differ when the rerun flags securities by it, not when it flags none, nor for a
+    // receipt of 0.11.0.
+    #[test]
+    fn the_lagged_response_flag_is_named_where_the_rerun_raises_it() {
+        let counts = mismatch("counts.flagged_total");
+        let rerun = |n: u64| json!({"counts": {"flagged": {"lagged_response": n}}});
+        let found = |versions, rerun: &Value| {
+            known_changes("universe", versions, &[&counts], (&json!({}), rerun))
+        };
+        let named = found(("0.10.0", "0.11.0"), &rerun(3));
+        assert_eq!(named.len(), 1);
+        assert!(named[0].starts_with("hurdle 0.11.0 flags lagged_response"));
+        assert!(found(("0.10.0", "0.11.0"), &rerun(0)).is_empty());
+        assert!(found(("0.11.0", "0.11.0"), &rerun(3)).is_empty());
     }
 
     // 0.6.0's null spread of one value: named for an earlier case receipt whose aggregate's

@@ -16,6 +16,7 @@ use rayon::prelude::*;
 
 pub mod chart;
 mod summary;
+use crate::beta::diagnostics::LagResponse;
 use crate::error::{Error, Result};
 use crate::universe::industries::{IndustryResult, Summary};
 use crate::universe::securities::SecurityResult;
@@ -328,6 +329,12 @@ fn capital_columns(t: &mut Table, rows: &[SecurityResult]) {
         "zero_return_share",
         rows.iter().map(|r| r.zero_return_share),
     );
+    let lag = |f: fn(&LagResponse) -> f64| rows.iter().map(move |r| r.lag_response.map(|l| f(&l)));
+    t.number("lag_slope", lag(|l| l.slope));
+    t.number("lag_slope_std_error", lag(|l| l.std_error));
+    t.number("lag_slope_t_stat", lag(|l| l.t_stat));
+    t.number("lag_slope_p_value", lag(|l| l.p_value));
+    t.number("lag_summed_beta", lag(|l| l.summed_beta));
     t.text(
         "flags",
         rows.iter()

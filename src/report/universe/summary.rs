@@ -259,6 +259,16 @@ fn flags_and_overrides(r: &UniverseResult) -> String {
                  repeated prices still show in zero_return_share and zero_returns."
             .into(),
     };
+    let lag = match b.method {
+        crate::beta::BetaMethod::Ols => format!(
+            ", lagged_response for a positive slope on the index's return of the period before \
+             with a two-sided p-value below {} (the regression on the index's current and \
+             previous-period returns, Dimson 1979 with one lag: lag_slope and its statistics in \
+             securities.csv)",
+            crate::error::compact(b.flag_lag_p_value)
+        ),
+        _ => String::new(),
+    };
     let overrides = match r.universe.overrides.as_slice() {
         [] => String::new(),
         list => {
@@ -273,7 +283,7 @@ fn flags_and_overrides(r: &UniverseResult) -> String {
         "Flags: too_few_observations below {} of the window's periods with a return (a \
          security below beta.min_observations returns is not estimated, counted under the same \
          name), low_r_squared below an R² of {}, stale_prices above {} of periods stale, \
-         zero_returns above {} of returns exactly zero; {rule}. {stale}{overrides}",
+         zero_returns above {} of returns exactly zero{lag}; {rule}. {stale}{overrides}",
         pct(b.flag_observations_share),
         crate::error::compact(b.flag_r_squared_floor),
         pct(b.flag_stale_share),
