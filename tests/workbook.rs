@@ -304,7 +304,9 @@ fn the_workbook_carries_the_runs_notes_and_flags() {
                   head = [c.value for c in betas[1]]\n\
                   col = head.index('Flags')\n\
                   flags = {r[0].value: r[col].value for r in betas.iter_rows(min_row=2) if r[col].value}\n\
-                  print(json.dumps({'notes': notes, 'flags': flags}))";
+                  lag = head.index(\"Slope on the previous period's index return\")\n\
+                  slopes = {r[0].value: [r[lag].value, r[lag + 1].value] for r in betas.iter_rows(min_row=2) if r[col].value}\n\
+                  print(json.dumps({'notes': notes, 'flags': flags, 'slopes': slopes}))";
     let read = openpyxl_json(script, &out.join("workbook.xlsx"));
     let result: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
@@ -350,10 +352,12 @@ fn the_workbook_carries_the_runs_notes_and_flags() {
         } else {
             flags.join(", ")
         };
-        assert_eq!(
-            read["flags"][peer["name"].as_str().unwrap()],
-            shown.as_str()
-        );
+        let name = peer["name"].as_str().unwrap();
+        assert_eq!(read["flags"][name], shown.as_str());
+        // The previous-period slope and its p-value (OLS): result.json's doubles, as written.
+        let lag = &peer["lag_response"];
+        assert_eq!(read["slopes"][name][0], lag["slope"], "{name}");
+        assert_eq!(read["slopes"][name][1], lag["p_value"], "{name}");
     }
 }
 

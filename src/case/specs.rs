@@ -47,6 +47,7 @@ pub fn estimation(settings: &CaseFile) -> EstimationSpec {
             exclude: beta.exclude_flags.clone(),
         },
         case_extras: true,
+        lag_response: true,
         rolling: RollingSpec {
             window,
             step: beta.rolling_step,

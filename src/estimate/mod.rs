@@ -40,6 +40,11 @@ pub struct EstimationSpec {
     /// beta (the case's joint Monte Carlo) and the fitted line with its band (its charts). A
     /// whole-market table turns them off (the line is then empty); no statistic changes.
     pub case_extras: bool,
+    /// Whether an OLS estimate carries its regression on the previous period's index return
+    /// ([`LagResponse`], the `lagged_response` flag): outputs show it, so a case and a universe
+    /// compute it; a what-if that reads only the WACC skips it unless the exclusion rule lists
+    /// the flag (it can then move the aggregate).
+    pub lag_response: bool,
 }
 
 /// Rolling betas: periods per window, periods between window ends, fewest observations.
@@ -298,7 +303,7 @@ fn lag_response(
     market: &MarketReturns,
     asset_returns: &[Option<f64>],
 ) -> Option<LagResponse> {
-    if spec.estimator.method != beta::BetaMethod::Ols {
+    if spec.estimator.method != beta::BetaMethod::Ols || !spec.lag_response {
         return None;
     }
     let aligned = sampling::align_with_shifts(

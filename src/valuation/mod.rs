@@ -143,13 +143,16 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
 
 /// As [`estimate_peers`], with only what the WACC needs: for a what-if that reads nothing else
 /// (the specification range). No rolling betas (the windows would cost more than the
-/// regression itself), no influence terms and no fitted line; every statistic the chain reads
-/// is the same.
+/// regression itself), no influence terms and no fitted line, and no regression on the previous
+/// period's index return unless `beta.exclude_flags` lists its flag; every statistic the chain
+/// reads is the same.
 pub fn estimate_peers_for_wacc(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
     let mut spec = specs::estimation(&case.settings);
     // A zero-length window computes no rolling betas (see `beta::rolling::rolling_betas`).
     spec.rolling.window = 0;
     spec.case_extras = false;
+    let lagged = crate::beta::diagnostics::PeerFlag::LaggedResponse;
+    spec.lag_response = spec.flags.exclude.contains(&lagged);
     estimate_peers_under(case, inputs, spec)
 }
 

@@ -145,6 +145,12 @@ fn columns(method: BetaMethod, offsets: &[i32], per: &str) -> (Columns, Cols, Ve
         adj_r2: c.add("Adjusted R²"),
         resid_se: c.add(format!("Residual SE (per {per})")),
         rho,
+        lag: (method == BetaMethod::Ols).then(|| {
+            (
+                c.add("Slope on the previous period's index return"),
+                c.add("p-value (previous-period slope)"),
+            )
+        }),
     };
     (c, cols, slopes)
 }
@@ -175,6 +181,9 @@ struct Cols {
     adj_r2: u16,
     resid_se: u16,
     rho: Option<u16>,
+    /// OLS only: the slope on the previous period's index return and its p-value (the
+    /// `lagged_response` flag's regression), as hurdle's figures.
+    lag: Option<(u16, u16)>,
 }
 
 /// The formats of the sheet, cloned once.
@@ -258,6 +267,7 @@ fn peer_row(
     peer.put(book, sheet, cols.df, &df, "degrees_of_freedom", &f.count)?;
     coefficients(book, sheet, returns, &peer, slopes)?;
     fit(book, sheet, &peer)?;
+    lag_response(book, sheet, &peer)?;
     std_errors(book, sheet, &peer)?;
     tests(book, sheet, &peer)
 }
@@ -383,6 +393,23 @@ fn tests(book: &mut Book, sheet: &mut Sheet, peer: &PeerRow) -> Result<()> {
     peer.put(book, sheet, cols.ci_low, &low, "beta_ci_low", &f.beta)?;
     let high = format!("={b}+{quantile}*{se}");
     peer.put(book, sheet, cols.ci_high, &high, "beta_ci_high", &f.beta)
+}
+
+/// The slope on the previous period's index return and its p-value (OLS), as hurdle's figures:
+/// the regression runs over its own periods (those whose previous index return is in the
+/// window), which the Returns sheet's rows do not lay out. Empty where there is none.
+fn lag_response(book: &mut Book, sheet: &mut Sheet, peer: &PeerRow) -> Result<()> {
+    let (Some((slope_col, p_col)), Some(lag)) = (peer.cols.lag, book.v.peers[peer.i].lag_response)
+    else {
+        return Ok(());
+    };
+    let why = "the regression of the peer's return on the index's current and previous-period \
+               returns (Dimson 1979 with one lag; README, \"Prices that react late\") runs over \
+               the periods whose previous index return is in the window, which this sheet's \
+               rows do not lay out; the flag lagged_response reads it.";
+    let at = |col| (peer.row, col);
+    book.computed(sheet, at(slope_col), lag.slope, why, &peer.formats.beta)?;
+    book.computed(sheet, at(p_col), lag.p_value, why, &peer.formats.p_value)
 }
 
 /// SE(β) and SE(α): formulas for classical OLS (and Dimson's α), hurdle's figures otherwise.
