@@ -107,4 +107,7 @@ pub struct LagResponse {
     pub summed_beta: f64,
     /// The periods the regression used.
     pub observations: usize,
+    /// The Newey–West lags of its standard errors: the estimate's own (`null` unless the
+    /// standard errors are Newey–West).
+    pub newey_west_lags: Option<usize>,
 }

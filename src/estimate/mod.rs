@@ -16,7 +16,7 @@ use crate::io::series::SeriesView;
 use crate::market::sampling::{
     self, AlignedReturns, DroppedPeriods, Frequency, PeriodGrid, ReturnType, SampleWeekday,
 };
-use crate::stats::least_squares::{design_with_intercept, ols, with_std_errors};
+use crate::stats::least_squares::{design_with_intercept, ols_without_leverages, with_std_errors};
 
 /// Everything that decides an estimate, and nothing else: two equal specs on the same prices give
 /// the same estimate, which is how a what-if knows it may reuse the estimates it has.
@@ -122,6 +122,9 @@ pub struct MarketReturns {
     returns: Vec<Option<f64>>,
     stale: Vec<bool>,
     risk_free: Option<Vec<Option<f64>>>,
+    /// The index's excess return per grid period (its return without a risk-free series);
+    /// `None` where the return or the rate is missing.
+    excess: Vec<Option<f64>>,
 }
 
 impl MarketReturns {
@@ -139,10 +142,17 @@ impl MarketReturns {
                 spec.returns,
             )
         });
+        let excess = match &risk_free {
+            Some(rates) => (returns.iter().zip(rates))
+                .map(|(m, f)| m.zip(*f).map(|(m, f)| m - f))
+                .collect(),
+            None => returns.clone(),
+        };
         MarketReturns {
             returns,
             stale,
             risk_free,
+            excess,
         }
     }
 
@@ -294,38 +304,53 @@ fn flag_shares(aligned: &sampling::AlignedReturns, periods_in_window: usize) -> 
 }
 
 /// The OLS regression on the index's current and previous-period returns ([`LagResponse`]),
-/// for an OLS estimate. Its own alignment asks for the previous period's index return, so the
-/// window's first period (whose previous one lies before the window) and any period after a
-/// missing index return drop out, as they would from a Dimson estimate with one lag.
+/// for an OLS estimate, over the periods of `aligned` (the estimate's own) whose previous
+/// period's index excess return is known: the window's first period (whose previous one lies
+/// before the window) and any period after a missing index return or rate drop out. (A Dimson
+/// estimate with one lag widens its grid by a period and keeps the first, so its beta can
+/// differ from this regression's summed slopes.) `asset` and `current` are `aligned`'s excess
+/// returns; `newey_west_lags` the estimate's.
 fn lag_response(
     spec: &EstimationSpec,
     window: &Window,
     market: &MarketReturns,
-    asset_returns: &[Option<f64>],
+    aligned: &AlignedReturns,
+    (asset, current): (&[f64], &[f64]),
+    newey_west_lags: Option<usize>,
 ) -> Option<LagResponse> {
     if spec.estimator.method != beta::BetaMethod::Ols || !spec.lag_response {
         return None;
     }
-    let aligned = sampling::align_with_shifts(
-        &window.all_period_ends,
-        asset_returns,
-        &market.returns,
-        market.risk_free.as_deref(),
-        &[-1],
-        window.first,
+    let capacity = asset.len();
+    let (mut y, mut x, mut previous) = (
+        Vec::with_capacity(capacity),
+        Vec::with_capacity(capacity),
+        Vec::with_capacity(capacity),
     );
-    let (asset, current) = (aligned.asset_excess(), aligned.market_excess());
-    let previous = &aligned.market_shifted[0].returns;
-    let n = asset.len();
+    // The aligned periods are a subsequence of the grid's: one pass finds each one's place.
+    let grid = &window.all_period_ends;
+    let mut at = window.first;
+    for (i, end) in aligned.period_ends.iter().enumerate() {
+        while grid[at] != *end {
+            at += 1;
+        }
+        if let Some(before) = at.checked_sub(1).and_then(|j| market.excess[j]) {
+            y.push(asset[i]);
+            x.push(current[i]);
+            previous.push(before);
+        }
+    }
+    let n = y.len();
     // Dimson's own rule (beta::estimate_with): at least four observations per shifted column
-    // beyond it, and Newey–West lags under a quarter of the observations.
-    let lags = beta::newey_west_lags(&spec.estimator, n);
-    if n <= 4 || lags.is_some_and(|l| 4 * l >= n) {
+    // beyond it, and Newey–West lags under a quarter of the observations. The lags are the
+    // estimate's (found by review: the rule on one period fewer could give one lag less).
+    if n <= 4 || newey_west_lags.is_some_and(|l| 4 * l >= n) {
         return None;
     }
-    let design = design_with_intercept(&[&current, previous.as_slice()]);
-    let fit = ols(&design, &asset, true).ok()?;
-    let fit = with_std_errors(fit, &design, spec.estimator.std_errors, lags.unwrap_or(0));
+    let design = design_with_intercept(&[&x, &previous]);
+    let fit = ols_without_leverages(&design, &y, true).ok()?;
+    let kind = spec.estimator.std_errors;
+    let fit = with_std_errors(fit, &design, kind, newey_west_lags.unwrap_or(0));
     let response = LagResponse {
         slope: fit.coefficients[2],
         std_error: fit.std_errors[2],
@@ -333,6 +358,7 @@ fn lag_response(
         p_value: fit.p_values[2],
         summed_beta: fit.coefficients[1] + fit.coefficients[2],
         observations: n,
+        newey_west_lags,
     };
     // An exact fit leaves no error to test against: no statistic rather than an infinite t.
     let finite = [response.std_error, response.t_stat, response.p_value];
@@ -413,7 +439,14 @@ pub fn estimate_security(
     };
     let shares = flag_shares(&aligned, periods_in_window);
     let (stale_share, zero_return_share) = shares;
-    let lag_response = lag_response(spec, window, market, &asset_returns);
+    let lag_response = lag_response(
+        spec,
+        window,
+        market,
+        &aligned,
+        (&asset_excess, &market_excess),
+        estimate.newey_west_lags,
+    );
     let flags = spec
         .flags
         .flags(&estimate, periods_in_window, shares, lag_response.as_ref());

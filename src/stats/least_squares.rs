@@ -117,6 +117,26 @@ fn r_squared(response: &[f64], ssr: f64, df: usize, has_intercept: bool) -> (f64
 /// Fits y on the columns of `design`. `has_intercept` says whether one column is a constant,
 /// which decides the R² definition (centred or not).
 pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Result<OlsFit> {
+    fit(design, response, has_intercept, true)
+}
+
+/// [`ols`] without the leverages (`leverages` is empty, so no studentised residuals): the thin
+/// Q factor is never formed, and Qᵀy comes from the Householder reflections alone. For a fit
+/// read only for its coefficients and their standard errors (classical or sandwich).
+pub fn ols_without_leverages(
+    design: &DMatrix<f64>,
+    response: &[f64],
+    has_intercept: bool,
+) -> Result<OlsFit> {
+    fit(design, response, has_intercept, false)
+}
+
+fn fit(
+    design: &DMatrix<f64>,
+    response: &[f64],
+    has_intercept: bool,
+    with_leverages: bool,
+) -> Result<OlsFit> {
     let (n, k) = design.shape();
     let norms = column_norms(design, response.len())?;
     let mut scaled = design.clone();
@@ -133,15 +153,10 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
             "regressor column {j} is a linear combination of the others (rank-deficient design)"
         )));
     }
-    let q = qr.q();
-    // Each row's sum of squares, added column by column from zero as nalgebra's `norm_squared`
-    // of the row adds them (the same figures), over the columns' contiguous storage.
-    let mut leverages = vec![0.0; n];
-    for column in q.as_slice().chunks_exact(n) {
-        for (h, v) in leverages.iter_mut().zip(column) {
-            *h += v * v;
-        }
-    }
+    let leverages = match with_leverages {
+        true => leverages(&qr.q(), n),
+        false => Vec::new(),
+    };
     let mut qty = y.clone();
     qr.q_tr_mul(&mut qty);
     let qty = qty.rows(0, k).into_owned();
@@ -189,6 +204,19 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
         bread,
         leverages,
     })
+}
+
+/// The diagonal of the hat matrix: each row's sum of squares of the thin Q factor, added
+/// column by column from zero as nalgebra's `norm_squared` of the row adds them (the same
+/// figures), over the columns' contiguous storage.
+fn leverages(q: &DMatrix<f64>, n: usize) -> Vec<f64> {
+    let mut leverages = vec![0.0; n];
+    for column in q.as_slice().chunks_exact(n) {
+        for (h, v) in leverages.iter_mut().zip(column) {
+            *h += v * v;
+        }
+    }
+    leverages
 }
 
 /// Which estimator of the coefficient covariance (and so of standard errors, t, p and CIs).

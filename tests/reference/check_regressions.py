@@ -812,7 +812,8 @@ def check_lag_response(name, peer):
     rows = LAGGED.get(name, [])
     n = len(rows)
     kind = setting("beta", "std_errors")
-    lags = newey_west_lags(n) if kind == "newey-west" else 0
+    # README: the Newey-West lags are the peer's own (its estimate's N, not this regression's).
+    lags = newey_west_lags(peer["observations"]) if kind == "newey-west" else 0
     if n <= 4 or (kind == "newey-west" and 4 * lags >= n):
         check_equal(f"{name} lag_response (too few periods)", peer["lag_response"], None)
         return False
@@ -831,6 +832,8 @@ def check_lag_response(name, peer):
         failures.append(f"{name} lag_response: none in result.json, numpy fits {n} periods")
         return flag
     check_equal(f"{name} lag_response observations", got.get("observations"), n)
+    check_equal(f"{name} lag_response Newey-West lags", got.get("newey_west_lags"),
+                lags if kind == "newey-west" else None)
     check(f"{name} lag slope (numpy)", got.get("slope"), coef[2])
     check(f"{name} lag slope SE ({kind})", got.get("std_error"), se)
     check(f"{name} lag slope t", got.get("t_stat"), t)
