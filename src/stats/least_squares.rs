@@ -329,6 +329,21 @@ pub fn design_with_intercept(columns: &[&[f64]]) -> DMatrix<f64> {
 mod tests {
     use super::*;
 
+    // The fit without leverages is the same computation less the Q factor: every other figure
+    // equal bit for bit (the same operations in the same order), the leverages empty.
+    #[test]
+    fn a_fit_without_leverages_differs_only_in_them() {
+        let x = [0.3, -1.2, 0.8, 2.1, -0.4, 1.5, -2.2, 0.1];
+        let lag = [0.5, 0.3, -1.2, 0.8, 2.1, -0.4, 1.5, -2.2];
+        let y = [0.9, -1.5, 1.1, 2.9, -0.2, 1.4, -2.8, 0.6];
+        let design = design_with_intercept(&[&x, &lag]);
+        let full = ols(&design, &y, true).unwrap();
+        let lean = ols_without_leverages(&design, &y, true).unwrap();
+        assert_eq!(full.leverages.len(), 8);
+        assert!(lean.leverages.is_empty());
+        assert_eq!(OlsFit { leverages: Vec::new(), ..full }, lean);
+    }
+
     // Textbook fact: a perfectly collinear design has no unique least-squares solution.
     #[test]
     fn collinear_columns_are_rejected() {
