@@ -299,6 +299,16 @@ fn industry_table_agrees_with_numpy_and_scipy() {
             "configuration {k}: reference check failed (python3 -m pip install numpy scipy)\n{report}\n{}",
             String::from_utf8_lossy(&checked.stderr)
         );
+        // With every positive slope flagged, the note on lagged_response says that half the
+        // securities of a panel without late prices would be flagged by chance.
+        if k == 3 {
+            let result = fs::read_to_string(out.join("result.json")).unwrap();
+            assert!(
+                result.contains("carry lagged_response")
+                    && result.contains("are flagged so about 50% of the time"),
+                "{result}"
+            );
+        }
         // Industry E has eight securities, enough for a 95% interval of its medians, so the
         // script's interval check compares numbers there, not two empty cells.
         let table = read_table(&out.join("industries.csv"));

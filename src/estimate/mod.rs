@@ -16,7 +16,7 @@ use crate::io::series::SeriesView;
 use crate::market::sampling::{
     self, AlignedReturns, DroppedPeriods, Frequency, PeriodGrid, ReturnType, SampleWeekday,
 };
-use crate::stats::least_squares::{design_with_intercept, ols_without_leverages, with_std_errors};
+use crate::stats::least_squares::one_slope;
 
 /// Everything that decides an estimate, and nothing else: two equal specs on the same prices give
 /// the same estimate, which is how a what-if knows it may reuse the estimates it has.
@@ -321,42 +321,49 @@ fn lag_response(
     if spec.estimator.method != beta::BetaMethod::Ols || !spec.lag_response {
         return None;
     }
+    // The rows kept, written in place (three pushes a row kept the lengths in memory).
     let capacity = asset.len();
     let (mut y, mut x, mut previous) = (
-        Vec::with_capacity(capacity),
-        Vec::with_capacity(capacity),
-        Vec::with_capacity(capacity),
+        vec![0.0; capacity],
+        vec![0.0; capacity],
+        vec![0.0; capacity],
     );
-    // The aligned periods are a subsequence of the grid's: one pass finds each one's place.
-    let grid = &window.all_period_ends;
-    let mut at = window.first;
-    for (i, end) in aligned.period_ends.iter().enumerate() {
-        while grid[at] != *end {
-            at += 1;
-        }
-        if let Some(before) = at.checked_sub(1).and_then(|j| market.excess[j]) {
-            y.push(asset[i]);
-            x.push(current[i]);
-            previous.push(before);
+    let mut n = 0;
+    // The aligned periods are a subsequence of the grid's: one pass over both finds each
+    // one's place, carrying the index excess return of the grid period before it (none before
+    // the grid's first period).
+    let mut grid = window.all_period_ends.iter().zip(&market.excess);
+    let mut last: Option<f64> = None;
+    let rows = (aligned.period_ends.iter()).zip(asset.iter().zip(current));
+    for (end, (&a, &m)) in rows {
+        for (period, &excess) in grid.by_ref() {
+            let before = std::mem::replace(&mut last, excess);
+            if period == end {
+                if let Some(before) = before {
+                    (y[n], x[n], previous[n]) = (a, m, before);
+                    n += 1;
+                }
+                break;
+            }
         }
     }
-    let n = y.len();
+    for column in [&mut y, &mut x, &mut previous] {
+        column.truncate(n);
+    }
     // Dimson's own rule (beta::estimate_with): at least four observations per shifted column
     // beyond it, and Newey–West lags under a quarter of the observations. The lags are the
     // estimate's (found by review: the rule on one period fewer could give one lag less).
     if n <= 4 || newey_west_lags.is_some_and(|l| 4 * l >= n) {
         return None;
     }
-    let design = design_with_intercept(&[&x, &previous]);
-    let fit = ols_without_leverages(&design, &y, true).ok()?;
-    let kind = spec.estimator.std_errors;
-    let fit = with_std_errors(fit, &design, kind, newey_west_lags.unwrap_or(0));
+    let errors = (spec.estimator.std_errors, newey_west_lags.unwrap_or(0));
+    let fit = one_slope(&[&x, &previous], &y, 1, errors).ok()?;
     let response = LagResponse {
-        slope: fit.coefficients[2],
-        std_error: fit.std_errors[2],
-        t_stat: fit.t_stats[2],
-        p_value: fit.p_values[2],
-        summed_beta: fit.coefficients[1] + fit.coefficients[2],
+        slope: fit.estimate,
+        std_error: fit.std_error,
+        t_stat: fit.t_stat,
+        p_value: fit.p_value,
+        summed_beta: fit.slopes[0] + fit.estimate,
         observations: n,
         newey_west_lags,
     };

@@ -84,6 +84,8 @@ pub(super) fn counts_and_notes(
         (&counts.flagged, counts.flagged_total),
         method,
     ));
+    let threshold = inputs.universe.settings.beta.flag_lag_p_value;
+    notes.extend(prices::late_response_note(securities, threshold));
     notes.extend(industry_notes(industries));
     (counts, notes)
 }
@@ -246,8 +248,7 @@ fn flagged_notes(
     let thin = ids_where(securities, |s| {
         s.aggregated()
             && (s.flags.contains(&PeerFlag::ZeroReturns)
-                || s.flags.contains(&PeerFlag::StalePrices)
-                || s.flags.contains(&PeerFlag::LaggedResponse))
+                || s.flags.contains(&PeerFlag::StalePrices))
     });
     if !thin.is_empty() {
         let remedy = match method {
@@ -259,10 +260,10 @@ fn flagged_notes(
             _ => "",
         };
         notes.push(format!(
-            "{} estimated and not excluded {} signs of thin or late trading (zero_returns, \
-             stale_prices or lagged_response): {}{remedy}.",
+            "{} estimated and not excluded {} thinly (zero_returns or stale_prices): \
+             {}{remedy}.",
             securities_count(thin.len()),
-            if thin.len() == 1 { "shows" } else { "show" },
+            if thin.len() == 1 { "trades" } else { "trade" },
             first_ids(&thin)
         ));
     }
