@@ -382,6 +382,26 @@ fn line_over(estimate: &beta::BetaEstimate, market_excess: &[f64]) -> FittedLine
     fitted_line::fitted_line(estimate, x_min, x_max)
 }
 
+/// Whether the index's returns over the aligned periods are all the same, raw or in excess of
+/// the rate: with a risk-free series, a flat index would leave only the rate's own variation in
+/// the excess returns. To rounding (found by review: 100·1.005ⁿ gave −7e13).
+fn flat_index(raw: &[f64], excess: &[f64]) -> bool {
+    let constant = crate::market::sampling::constant_up_to_rounding;
+    constant(raw) || constant(excess)
+}
+
+/// The rolling betas' spec: the estimator's method and standard errors, the spec's windows.
+fn rolling_spec(spec: &EstimationSpec) -> rolling::RollingSpec {
+    rolling::RollingSpec {
+        method: spec.estimator.method,
+        std_errors: spec.estimator.std_errors,
+        newey_west_lags: spec.estimator.newey_west_lags.map(|l| l as usize),
+        window: spec.rolling.window as usize,
+        step: spec.rolling.step as usize,
+        min_observations: spec.rolling.min_observations as usize,
+    }
+}
+
 /// Estimates one security against the index returns of `market`.
 pub fn estimate_security(
     spec: &EstimationSpec,
@@ -409,10 +429,7 @@ pub fn estimate_security(
         });
     }
     let market_excess = aligned.market_excess();
-    // Raw returns too: with a risk-free series, a flat index would leave only the rate's own
-    // variation in the excess returns. To rounding (found by review: 100·1.005ⁿ gave −7e13).
-    let constant = crate::market::sampling::constant_up_to_rounding;
-    if constant(&aligned.market) || constant(&market_excess) {
+    if flat_index(&aligned.market, &market_excess) {
         return Err(EstimateError::FlatIndex { periods: n });
     }
     let asset_excess = aligned.asset_excess();
@@ -431,21 +448,13 @@ pub fn estimate_security(
         &asset_excess,
         &market_excess,
         &aligned.market_shifted,
-        &rolling::RollingSpec {
-            method: spec.estimator.method,
-            std_errors: spec.estimator.std_errors,
-            newey_west_lags: spec.estimator.newey_west_lags.map(|l| l as usize),
-            window: spec.rolling.window as usize,
-            step: spec.rolling.step as usize,
-            min_observations: spec.rolling.min_observations as usize,
-        },
+        &rolling_spec(spec),
     );
     let fitted_line = match spec.case_extras {
         true => line_over(&estimate, &market_excess),
         false => FittedLine::default(),
     };
     let shares = flag_shares(&aligned, periods_in_window);
-    let (stale_share, zero_return_share) = shares;
     let lag_response = lag_response(
         spec,
         window,
@@ -464,8 +473,8 @@ pub fn estimate_security(
         periods_in_window,
         dropped: aligned.dropped,
         estimate,
-        stale_share,
-        zero_return_share,
+        stale_share: shares.0,
+        zero_return_share: shares.1,
         lag_response,
         flags,
         excluding_flags,

@@ -368,19 +368,7 @@ pub fn one_slope(
         .collect();
     let variance = match kind {
         StdErrors::Classical => bread_row[j] * r[(k, k)] * r[(k, k)] / df as f64,
-        _ => {
-            // The slope as a linear estimator wᵀy, wₜ = Σᵢ (X̃ᵀX̃)⁻¹ⱼᵢ·x̃ₜᵢ (its weights in the fit
-            // with the intercept), with the residuals eₜ = ỹₜ − Σᵢ bᵢ·x̃ₜᵢ.
-            let weights = DMatrix::from_fn(1, n, |_, t| {
-                (0..k).map(|i| bread_row[i] * x[i][t]).sum::<f64>()
-            });
-            let residuals: Vec<f64> = (0..n)
-                .map(|t| y[0][t] - (0..k).map(|i| slopes[i] * x[i][t]).sum::<f64>())
-                .collect();
-            let parameters = k + 1;
-            linear_estimator_covariance(&weights, &residuals, parameters, kind, newey_west_lags)
-                [(0, 0)]
-        }
+        _ => sandwich_variance((x, &y[0]), (&bread_row, &slopes), kind, newey_west_lags),
     };
     let std_error = variance.sqrt();
     let t_stat = slopes[j] / std_error;
@@ -392,6 +380,26 @@ pub fn one_slope(
         slopes,
         observations: n,
     })
+}
+
+/// The sandwich variance of one slope of a centred fit ([`one_slope`]): the slope as a linear
+/// estimator wᵀy, wₜ = Σᵢ (X̃ᵀX̃)⁻¹ⱼᵢ·x̃ₜᵢ (its weights in the fit with the intercept, from the
+/// slope's row of (X̃ᵀX̃)⁻¹), with the residuals eₜ = ỹₜ − Σᵢ bᵢ·x̃ₜᵢ, through
+/// [`linear_estimator_covariance`] with the intercept counted among the parameters.
+fn sandwich_variance(
+    (x, y): (&[Vec<f64>], &[f64]),
+    (bread_row, slopes): (&[f64], &[f64]),
+    kind: StdErrors,
+    newey_west_lags: usize,
+) -> f64 {
+    let (n, k) = (y.len(), x.len());
+    let weights = DMatrix::from_fn(1, n, |_, t| {
+        (0..k).map(|i| bread_row[i] * x[i][t]).sum::<f64>()
+    });
+    let residuals: Vec<f64> = (0..n)
+        .map(|t| y[t] - (0..k).map(|i| slopes[i] * x[i][t]).sum::<f64>())
+        .collect();
+    linear_estimator_covariance(&weights, &residuals, k + 1, kind, newey_west_lags)[(0, 0)]
 }
 
 /// One slope of a fit ([`one_slope`]), with every slope's estimate.

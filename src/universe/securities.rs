@@ -168,7 +168,6 @@ pub fn security_row(
                 Some((*reason, detail.clone())),
             ),
         };
-    let excluded_reason = exclusion(&excluding_flags);
     let beta_used = adjusted.map(|a| a.used);
     let missing = missing(attributes, settings.cash_column);
     let figure = |f: fn(&AttributeRecord) -> Option<f64>| attributes.and_then(f);
@@ -204,7 +203,7 @@ pub fn security_row(
         stale_share: shares.map(|s| s.0),
         zero_return_share: shares.map(|s| s.1),
         lag_response: shares.and_then(|s| s.2),
-        excluded_reason,
+        excluded_reason: exclusion(&excluding_flags),
         excluding_flags,
         shrunk_beta: adjusted.and_then(|a| a.shrunk),
         vasicek: adjusted.and_then(|a| a.vasicek),

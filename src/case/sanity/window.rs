@@ -246,31 +246,7 @@ pub fn unused_beta_notes(beta: &crate::case::BetaSettings) -> Vec<String> {
             }
         ));
     }
-    // The late-response check runs under OLS only (found by review: its threshold and an
-    // exclusion by its flag passed without a word under Dimson).
-    let lagged = crate::beta::diagnostics::PeerFlag::LaggedResponse;
-    if beta.method != BetaMethod::Ols {
-        let method = match beta.method {
-            BetaMethod::Dimson => "Dimson",
-            _ => "Scholes–Williams",
-        };
-        let mut unused = Vec::new();
-        if beta.flag_lag_p_value != default.flag_lag_p_value {
-            unused.push(format!("beta.flag_lag_p_value = {}", beta.flag_lag_p_value));
-        }
-        if beta.exclude_flags.contains(&lagged) {
-            unused.push("\"lagged_response\" in beta.exclude_flags".to_string());
-        }
-        if !unused.is_empty() {
-            notes.push(format!(
-                "{} {} not used: the check of a price that reacts a period late runs under OLS \
-                 only, and the method is {method} (beta.method), which takes the index's \
-                 previous-period return in.",
-                unused.join(" and "),
-                if unused.len() == 1 { "is" } else { "are" }
-            ));
-        }
-    }
+    notes.extend(unused_lag_note(beta));
     let adjustment = match beta.adjustment {
         Adjustment::None => "none",
         Adjustment::Blume => "Blume",
@@ -309,4 +285,33 @@ pub fn unused_beta_notes(beta: &crate::case::BetaSettings) -> Vec<String> {
         ));
     }
     notes
+}
+
+/// The late-response check's settings under another estimator than OLS, which never reads them
+/// (found by review: its threshold and an exclusion by its flag passed without a word under
+/// Dimson).
+fn unused_lag_note(beta: &crate::case::BetaSettings) -> Option<String> {
+    use crate::beta::BetaMethod;
+    let method = match beta.method {
+        BetaMethod::Ols => return None,
+        BetaMethod::Dimson => "Dimson",
+        BetaMethod::ScholesWilliams => "Scholes–Williams",
+    };
+    let lagged = crate::beta::diagnostics::PeerFlag::LaggedResponse;
+    let mut unused = Vec::new();
+    if beta.flag_lag_p_value != crate::case::BetaSettings::default().flag_lag_p_value {
+        unused.push(format!("beta.flag_lag_p_value = {}", beta.flag_lag_p_value));
+    }
+    if beta.exclude_flags.contains(&lagged) {
+        unused.push("\"lagged_response\" in beta.exclude_flags".to_string());
+    }
+    (!unused.is_empty()).then(|| {
+        format!(
+            "{} {} not used: the check of a price that reacts a period late runs under OLS only, \
+             and the method is {method} (beta.method), which takes the index's previous-period \
+             return in.",
+            unused.join(" and "),
+            if unused.len() == 1 { "is" } else { "are" }
+        )
+    })
 }
