@@ -321,14 +321,12 @@ fn lag_response(
     if spec.estimator.method != beta::BetaMethod::Ols || !spec.lag_response {
         return None;
     }
-    // The rows kept, written in place (three pushes a row kept the lengths in memory).
     let capacity = asset.len();
     let (mut y, mut x, mut previous) = (
-        vec![0.0; capacity],
-        vec![0.0; capacity],
-        vec![0.0; capacity],
+        Vec::with_capacity(capacity),
+        Vec::with_capacity(capacity),
+        Vec::with_capacity(capacity),
     );
-    let mut n = 0;
     // The aligned periods are a subsequence of the grid's: one pass over both finds each
     // one's place, carrying the index excess return of the grid period before it (none before
     // the grid's first period).
@@ -340,16 +338,15 @@ fn lag_response(
             let before = std::mem::replace(&mut last, excess);
             if period == end {
                 if let Some(before) = before {
-                    (y[n], x[n], previous[n]) = (a, m, before);
-                    n += 1;
+                    y.push(a);
+                    x.push(m);
+                    previous.push(before);
                 }
                 break;
             }
         }
     }
-    for column in [&mut y, &mut x, &mut previous] {
-        column.truncate(n);
-    }
+    let n = y.len();
     // Dimson's own rule (beta::estimate_with): at least four observations per shifted column
     // beyond it, and Newey–West lags under a quarter of the observations. The lags are the
     // estimate's (found by review: the rule on one period fewer could give one lag less).
