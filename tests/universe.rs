@@ -160,6 +160,18 @@ fn each_security_equals_the_case_that_lists_it_as_a_peer() {
     for (k, sets) in configurations.iter().enumerate() {
         let out = setup.succeeds(&format!("out{k}"), sets);
         let securities = read_table(&out.join("securities.csv"));
+        // 0.11.0's columns last, so that none an earlier version wrote moves (README).
+        let names: Vec<&str> = (securities.get_column_names().iter())
+            .map(|n| n.as_str())
+            .collect();
+        let lag = [
+            "lag_slope",
+            "lag_slope_std_error",
+            "lag_slope_t_stat",
+            "lag_slope_p_value",
+            "lag_summed_beta",
+        ];
+        assert_eq!(names[names.len() - 5..], lag, "{names:?}");
         let case_out = setup.out(&format!("case{k}"));
         let mut args = vec![
             "run".to_string(),

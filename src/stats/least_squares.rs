@@ -322,10 +322,14 @@ pub fn one_slope(
         })
         .collect();
     let (x, y) = centred.split_at(k);
-    let norms: Vec<f64> = (x.iter())
-        .map(|c| c.iter().map(|v| v * v).sum::<f64>().sqrt())
-        .collect();
-    if let Some(bad) = norms.iter().position(|&s| !(s.is_finite() && s > 0.0)) {
+    let norm = |c: &[f64]| c.iter().map(|v| v * v).sum::<f64>().sqrt();
+    let norms: Vec<f64> = x.iter().map(|c| norm(c)).collect();
+    // A column constant to rounding centres to noise, which equilibration would scale up to a
+    // full column: judged against its uncentred norm, as `ols` judges the same column beside
+    // the intercept (found by review: a constant 0.1 gave a slope with SE 1.7e12).
+    let rounding = (n.max(k + 1) as f64) * f64::EPSILON;
+    let constant = |j: usize| !(norms[j].is_finite() && norms[j] > rounding * norm(columns[j]));
+    if let Some(bad) = (0..k).find(|&j| constant(j)) {
         return Err(Error::Regression(format!(
             "regressor column {} is constant or not finite",
             bad + 1
@@ -352,6 +356,12 @@ pub fn one_slope(
             "regressor column {} is a linear combination of the others (rank-deficient design)",
             bad + 1
         )));
+    }
+    // No residual error to test against (found by review: an exact fit gave t = 3.9e15).
+    if r[(k, k)].abs() <= rounding * norm(&y[0]) {
+        return Err(Error::Regression(
+            "the response is fitted exactly: no residual error is left to test against".into(),
+        ));
     }
     let singular = || Error::Regression("the triangular factor is singular".into());
     let factor = r.view((0, 0), (k, k)).into_owned();
@@ -463,6 +473,18 @@ mod tests {
         let twice: Vec<f64> = x.iter().map(|v| 2.0 * v).collect();
         let err = one_slope(&[&x, &twice], &y, 1, (StdErrors::Classical, 0)).unwrap_err();
         assert!(err.to_string().contains("linear combination"), "{err}");
+        // Constant to rounding (0.1 + 0.2 − 0.2 is 0.10000000000000003): numpy's lstsq gives the
+        // design [1, x, 0.1…] rank 2 (found by review); `ols` refuses it as well.
+        let constant: Vec<f64> = (0..8)
+            .map(|t| if t % 2 == 0 { 0.1 } else { 0.1 + 0.2 - 0.2 })
+            .collect();
+        let err = one_slope(&[&x, &constant], &y, 1, (StdErrors::Classical, 0)).unwrap_err();
+        assert!(err.to_string().contains("constant"), "{err}");
+        assert!(ols(&design_with_intercept(&[&x, &constant]), &y, true).is_err());
+        // An exact fit leaves no error: refused rather than a t of 1e15.
+        let exact: Vec<f64> = (0..8).map(|t| 0.5 * x[t] + 0.5 * lag[t] + 1e-4).collect();
+        let err = one_slope(&[&x, &lag], &exact, 1, (StdErrors::Classical, 0)).unwrap_err();
+        assert!(err.to_string().contains("fitted exactly"), "{err}");
     }
 
     // Textbook fact: a perfectly collinear design has no unique least-squares solution.

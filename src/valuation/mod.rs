@@ -524,7 +524,7 @@ fn lagged_response_note(
          {}, p {}; flagged lagged_response below beta.flag_lag_p_value = {}{holm}): a price \
          that takes in the market's news late, as thin or non-synchronous trading makes it, \
          biases an OLS beta toward zero (Dimson 1979); with one lag the summed beta over the \
-         same periods less the first is {} against the OLS beta's {}; consider beta.method = \
+         periods with a previous index return is {} against the OLS beta's {}; consider beta.method = \
          \"dimson\" or \"scholes-williams\", or a longer frequency.",
         show(lag.slope),
         show(lag.t_stat),

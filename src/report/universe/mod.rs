@@ -242,7 +242,19 @@ fn securities_frame(rows: &[SecurityResult], rolling: bool) -> Result<DataFrame>
         t.number("rolling_beta_max", s(|s| s.max));
         t.number("rolling_beta_trend_per_year", s(|s| s.trend_per_year));
     }
+    lag_columns(&mut t, rows);
     t.finish()
+}
+
+/// The regression on the index's previous-period return (OLS), last: added in 0.11.0, after
+/// every column an earlier version wrote, so none of those moves.
+fn lag_columns(t: &mut Table, rows: &[SecurityResult]) {
+    let lag = |f: fn(&LagResponse) -> f64| rows.iter().map(move |r| r.lag_response.map(|l| f(&l)));
+    t.number("lag_slope", lag(|l| l.slope));
+    t.number("lag_slope_std_error", lag(|l| l.std_error));
+    t.number("lag_slope_t_stat", lag(|l| l.t_stat));
+    t.number("lag_slope_p_value", lag(|l| l.p_value));
+    t.number("lag_summed_beta", lag(|l| l.summed_beta));
 }
 
 /// The security, its industry and its sample: periods, observations, what was dropped and why.
@@ -329,12 +341,6 @@ fn capital_columns(t: &mut Table, rows: &[SecurityResult]) {
         "zero_return_share",
         rows.iter().map(|r| r.zero_return_share),
     );
-    let lag = |f: fn(&LagResponse) -> f64| rows.iter().map(move |r| r.lag_response.map(|l| f(&l)));
-    t.number("lag_slope", lag(|l| l.slope));
-    t.number("lag_slope_std_error", lag(|l| l.std_error));
-    t.number("lag_slope_t_stat", lag(|l| l.t_stat));
-    t.number("lag_slope_p_value", lag(|l| l.p_value));
-    t.number("lag_summed_beta", lag(|l| l.summed_beta));
     t.text(
         "flags",
         rows.iter()

@@ -171,19 +171,20 @@ pub(super) fn late_response_note(securities: &[SecurityResult], threshold: f64) 
     let late = ids_where(securities, |s| {
         s.aggregated() && s.flags.contains(&PeerFlag::LaggedResponse)
     });
+    // Flagged and tested among the same securities, the aggregated ones (found by review: an
+    // exclusion by another flag pulled the share below the chance rate).
     let tested = securities
         .iter()
-        .filter(|s| s.lag_response.is_some())
+        .filter(|s| s.aggregated() && s.lag_response.is_some())
         .count();
     if late.is_empty() || tested == 0 {
         return None;
     }
     let share = |n: usize| crate::error::rounded(100.0 * n as f64 / tested as f64, 1);
-    // Half the threshold in percent, without trailing zeros (2.5, 50).
-    let chance = crate::error::rounded(50.0 * threshold, 2);
-    let chance = chance.trim_end_matches('0').trim_end_matches('.');
+    // Half the threshold in percent, to six decimals without trailing zeros (2.5, 50, 0.0005).
+    let chance = crate::error::compact((50.0 * threshold * 1e6).round() / 1e6);
     Some(format!(
-        "{} estimated and not excluded {} lagged_response, {}% of the {tested} securities \
+        "{} estimated and not excluded {} lagged_response, {}% of the {tested} such securities \
          tested: returns that move with the index's return of the period before, with a \
          p-value below beta.flag_lag_p_value = {}. Securities whose prices do not react late \
          are flagged so about {}% of the time (half the threshold: only a positive slope \
