@@ -314,27 +314,9 @@ pub fn one_slope(
             k + 1
         )));
     }
-    let mean = |c: &[f64]| c.iter().sum::<f64>() / n as f64;
-    let centred: Vec<Vec<f64>> = (columns.iter().copied().chain([response]))
-        .map(|c| {
-            let m = mean(c);
-            c.iter().map(|v| v - m).collect()
-        })
-        .collect();
+    let (centred, norms) = centred_columns(columns, response)?;
     let (x, y) = centred.split_at(k);
-    let norm = |c: &[f64]| c.iter().map(|v| v * v).sum::<f64>().sqrt();
-    let norms: Vec<f64> = x.iter().map(|c| norm(c)).collect();
-    // A column constant to rounding centres to noise, which equilibration would scale up to a
-    // full column: judged against its uncentred norm, as `ols` judges the same column beside
-    // the intercept (found by review: a constant 0.1 gave a slope with SE 1.7e12).
     let rounding = (n.max(k + 1) as f64) * f64::EPSILON;
-    let constant = |j: usize| !(norms[j].is_finite() && norms[j] > rounding * norm(columns[j]));
-    if let Some(bad) = (0..k).find(|&j| constant(j)) {
-        return Err(Error::Regression(format!(
-            "regressor column {} is constant or not finite",
-            bad + 1
-        )));
-    }
     let mut data = Vec::with_capacity(n * (k + 1));
     for (c, s) in x.iter().zip(&norms) {
         data.extend(c.iter().map(|v| v / s));
@@ -358,7 +340,7 @@ pub fn one_slope(
         )));
     }
     // No residual error to test against (found by review: an exact fit gave t = 3.9e15).
-    if r[(k, k)].abs() <= rounding * norm(&y[0]) {
+    if r[(k, k)].abs() <= rounding * euclidean(&y[0]) {
         return Err(Error::Regression(
             "the response is fitted exactly: no residual error is left to test against".into(),
         ));
@@ -390,6 +372,38 @@ pub fn one_slope(
         slopes,
         observations: n,
     })
+}
+
+/// The columns and the response less their means (the response last), with the centred
+/// columns' norms. A column constant to rounding centres to noise, which equilibration would
+/// scale up to a full column: it is refused when its centred norm is within rounding of its
+/// uncentred one, as `ols` judges the same column beside the intercept (found by review: a
+/// constant 0.1 gave a slope with SE 1.7e12).
+fn centred_columns(columns: &[&[f64]], response: &[f64]) -> Result<(Vec<Vec<f64>>, Vec<f64>)> {
+    let (n, k) = (response.len(), columns.len());
+    let mean = |c: &[f64]| c.iter().sum::<f64>() / n as f64;
+    let centred: Vec<Vec<f64>> = (columns.iter().copied().chain([response]))
+        .map(|c| {
+            let m = mean(c);
+            c.iter().map(|v| v - m).collect()
+        })
+        .collect();
+    let norms: Vec<f64> = centred[..k].iter().map(|c| euclidean(c)).collect();
+    let rounding = (n.max(k + 1) as f64) * f64::EPSILON;
+    let constant =
+        |j: usize| !(norms[j].is_finite() && norms[j] > rounding * euclidean(columns[j]));
+    match (0..k).find(|&j| constant(j)) {
+        Some(bad) => Err(Error::Regression(format!(
+            "regressor column {} is constant or not finite",
+            bad + 1
+        ))),
+        None => Ok((centred, norms)),
+    }
+}
+
+/// The Euclidean norm of a slice.
+fn euclidean(values: &[f64]) -> f64 {
+    values.iter().map(|v| v * v).sum::<f64>().sqrt()
 }
 
 /// The sandwich variance of one slope of a centred fit ([`one_slope`]): the slope as a linear
