@@ -159,7 +159,10 @@ pub fn rolling_betas(
 }
 
 /// One window's beta and standard error by the full estimator (QR), for a window whose moment
-/// sums have lost their precision ([`WindowFit::Refit`]); `None` when the estimator refuses it.
+/// sums have lost their precision ([`WindowFit::Refit`]); `None` when the estimator refuses it,
+/// or when the window's index returns are all the same to rounding, which the full window's
+/// estimate refuses as a flat index before it fits (found by review: such a window, nearly
+/// collinear with the intercept, passed the QR's rank rule with a beta of order 1e13).
 fn refit(
     spec: &RollingSpec,
     lags: usize,
@@ -168,6 +171,9 @@ fn refit(
     market: &[f64],
     shifted: &[ShiftedMarket],
 ) -> Option<(f64, f64)> {
+    if crate::market::sampling::constant_up_to_rounding(&market[first..end]) {
+        return None;
+    }
     let count = |sign: i32| shifted.iter().filter(|s| s.offset.signum() == sign).count() as u32;
     let settings = crate::beta::EstimatorSpec {
         method: spec.method,
@@ -374,6 +380,25 @@ mod tests {
             exact += usize::from(end >= 84);
         }
         assert!(exact >= 30, "windows wholly in the exact part: {exact}");
+    }
+
+    // An index that grows by one fixed rate in the later windows (its returns differ only by
+    // the rounding of p₁/p₀ − 1) gives those windows no slope to estimate: they are skipped,
+    // as a flat index over the whole window is refused, not given a beta of order 1e12 (found
+    // by review). The window that holds the one different return is estimated.
+    #[test]
+    fn windows_whose_index_is_flat_to_rounding_are_skipped() {
+        let n = 60;
+        let ends = month_ends(n);
+        let prices: Vec<f64> = (0..=n).map(|t| 100.0 * 1.0004_f64.powi(t as i32)).collect();
+        let mut market: Vec<f64> = prices.windows(2).map(|w| w[1] / w[0] - 1.0).collect();
+        market[0] = 0.01;
+        let mut rng = Rng::seeded(5);
+        let asset: Vec<f64> = (0..n).map(|_| 0.01 + 0.05 * rng.normal()).collect();
+        let points = rolling_betas(&ends, &ends, &asset, &market, &[], &ols_spec(20, 1, 10));
+        assert!(points.iter().all(|p| p.beta.abs() < 1e3), "{points:?}");
+        assert_eq!(points.len(), 1, "{points:?}");
+        assert_eq!(points[0].window_end, ends[19]);
     }
 
     /// The market column at an offset.
