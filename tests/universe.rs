@@ -359,13 +359,29 @@ fn long_wide_csv_and_parquet_give_identical_outputs() {
     let (header, rest) = wide.split_once('\n').unwrap();
     let spaced = format!("{}\n{rest}", header.replace(',', ", "));
     fs::write(setup.dir().join("prices-wide-spaced.csv"), spaced).unwrap();
-    let forms: [&[&str]; 6] = [
+    // The wide Parquet once more with a dataframe library's row index beside the dates
+    // (`__index_level_0__`, numbered from 0): no security.
+    let wide = setup.dir().join("prices-wide.parquet");
+    let mut frame = ParquetReader::new(fs::File::open(&wide).unwrap())
+        .finish()
+        .unwrap();
+    let rows: Vec<i64> = (0..frame.height() as i64).collect();
+    frame
+        .with_column(Column::new("__index_level_0__".into(), rows))
+        .unwrap();
+    let indexed = fs::File::create(setup.dir().join("prices-wide-indexed.parquet")).unwrap();
+    ParquetWriter::new(indexed).finish(&mut frame).unwrap();
+    let forms: [&[&str]; 7] = [
         &[],
         &["panel.prices=prices-long.parquet"],
         &["panel.prices=prices-wide.csv", "panel.layout=wide"],
         &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
         &["panel.prices=prices-categorical.parquet"],
         &["panel.prices=prices-wide-spaced.csv", "panel.layout=wide"],
+        &[
+            "panel.prices=prices-wide-indexed.parquet",
+            "panel.layout=wide",
+        ],
     ];
     let outs: Vec<PathBuf> = forms
         .iter()

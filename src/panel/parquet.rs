@@ -51,7 +51,7 @@ pub(super) fn read(
         PanelLayout::Long => Vec::new(),
         PanelLayout::Wide => {
             let named = names.iter().enumerate();
-            let named = named.filter(|(_, n)| **n != columns.date_column);
+            let named = named.filter(|(_, n)| **n != columns.date_column && !is_row_index(n));
             wide_ids(named, &mut rows.dictionary).map_err(|message| source.file_error(message))?
         }
     };
@@ -83,6 +83,17 @@ pub(super) fn read(
         };
         Ok((rows, sha256?))
     })
+}
+
+/// Whether a Parquet column is a dataframe library's row index written beside the data
+/// (`__index_level_0__`, the name such a library gives an index without a name; from memory),
+/// not a security: a wide panel reads it as no security, as a CSV panel reads an unnamed first
+/// column (found by review: its row numbers, 0 first, were refused as prices).
+fn is_row_index(name: &str) -> bool {
+    let level = name
+        .strip_prefix("__index_level_")
+        .and_then(|r| r.strip_suffix("__"));
+    level.is_some_and(|d| !d.is_empty() && d.bytes().all(|b| b.is_ascii_digit()))
 }
 
 /// Moves one decoded slice into `rows`.
