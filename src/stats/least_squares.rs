@@ -126,13 +126,7 @@ pub fn ols(design: &DMatrix<f64>, response: &[f64], has_intercept: bool) -> Resu
     let y = DVector::from_column_slice(response);
     let qr = scaled.qr();
     let r = qr.r();
-    let largest = r.diagonal().iter().fold(0.0_f64, |m, d| m.max(d.abs()));
-    let tolerance = (n.max(k) as f64) * f64::EPSILON * largest;
-    if let Some(j) = r.diagonal().iter().position(|d| d.abs() <= tolerance) {
-        return Err(Error::Regression(format!(
-            "regressor column {j} is a linear combination of the others (rank-deficient design)"
-        )));
-    }
+    rank_check(r.diagonal().as_slice(), n, 0)?;
     let leverages = leverages(&qr.q(), n);
     let mut qty = y.clone();
     qr.q_tr_mul(&mut qty);
@@ -323,22 +317,7 @@ pub fn one_slope(
     }
     data.extend_from_slice(&y[0]);
     let r = DMatrix::from_vec(n, k + 1, data).qr().r();
-    let diagonal = r.diagonal();
-    let largest = diagonal
-        .rows(0, k)
-        .iter()
-        .fold(0.0_f64, |m, d| m.max(d.abs()));
-    let tolerance = (n.max(k) as f64) * f64::EPSILON * largest;
-    if let Some(bad) = diagonal
-        .rows(0, k)
-        .iter()
-        .position(|d| d.abs() <= tolerance)
-    {
-        return Err(Error::Regression(format!(
-            "regressor column {} is a linear combination of the others (rank-deficient design)",
-            bad + 1
-        )));
-    }
+    rank_check(&r.diagonal().as_slice()[..k], n, 1)?;
     // No residual error to test against (found by review: an exact fit gave t = 3.9e15).
     if r[(k, k)].abs() <= rounding * euclidean(&y[0]) {
         return Err(Error::Regression(
@@ -372,6 +351,22 @@ pub fn one_slope(
         slopes,
         observations: n,
     })
+}
+
+/// The rank rule numpy's `lstsq` applies by default: a diagonal entry of R at or below
+/// max(n, k)·ε·max|Rᵢᵢ| means its column is (numerically) a combination of the others. Columns
+/// are named from `first` (0 when the intercept is column 0, 1 when it was centred away).
+fn rank_check(diagonal: &[f64], n: usize, first: usize) -> Result<()> {
+    let k = diagonal.len();
+    let largest = diagonal.iter().fold(0.0_f64, |m, d| m.max(d.abs()));
+    let tolerance = (n.max(k) as f64) * f64::EPSILON * largest;
+    match diagonal.iter().position(|d| d.abs() <= tolerance) {
+        Some(j) => Err(Error::Regression(format!(
+            "regressor column {} is a linear combination of the others (rank-deficient design)",
+            j + first
+        ))),
+        None => Ok(()),
+    }
 }
 
 /// The columns and the response less their means (the response last), with the centred
