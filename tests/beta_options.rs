@@ -797,8 +797,13 @@ fn a_late_response_check_that_cannot_be_fitted_is_named() {
         .iter()
         .all(|p| p["observations"] == 25 && p["lag_response"].is_null()));
     let notes = result["notes"].to_string();
+    // Every peer named, in the case's order.
+    let names: Vec<&str> = peers.iter().map(|p| p["name"].as_str().unwrap()).collect();
     assert!(
-        notes.contains("Ivelbrook Instruments: the regression on the index's current and previous-period returns could not be fitted"),
+        notes.contains(&format!(
+            "{}: the regression on the index's current and previous-period returns could not be fitted",
+            names.join(", ")
+        )),
         "{notes}"
     );
     assert!(

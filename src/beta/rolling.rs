@@ -384,7 +384,7 @@ mod tests {
 
     // An index that grows by one fixed rate in the later windows (its returns differ only by
     // the rounding of p₁/p₀ − 1) gives those windows no slope to estimate: they are skipped,
-    // as a flat index over the whole window is refused, not given a beta of order 1e12 (found
+    // as a flat index over the whole window is refused, not given a beta of order 1e13 (found
     // by review). The window that holds the one different return is estimated.
     #[test]
     fn windows_whose_index_is_flat_to_rounding_are_skipped() {

@@ -103,7 +103,13 @@ const KNOWN_CHANGES: [KnownChange; 12] =
         KnownChange {
             version: "0.11.0",
             kind: "case",
-            paths: &["peers", "cautions"],
+            // Only the figures the flag moves (found by review: an edited standard error was
+            // put down to it).
+            paths: &[
+                "peers[].flags",
+                "cautions.flagged_in_aggregate",
+                "cautions.every_peer_flagged",
+            ],
             explain: |_, rerun| {
                 let peers = rerun["peers"].as_array().into_iter().flatten();
                 let late: Vec<&str> = peers
@@ -118,7 +124,11 @@ const KNOWN_CHANGES: [KnownChange; 12] =
         KnownChange {
             version: "0.11.0",
             kind: "universe",
-            paths: &["counts", "industries", "peer_set"],
+            paths: &[
+                "counts.flagged",
+                "industries[].flagged",
+                "peer_set.figures.flagged",
+            ],
             explain: |_, rerun| {
                 let flagged = rerun["counts"]["flagged"][LAGGED_RESPONSE].as_u64();
                 flagged
@@ -367,7 +377,12 @@ pub(super) fn known_changes(
             was.is_some() && was < made && made <= now
         })
         .filter(|change| {
-            (differences.iter()).any(|m| change.paths.iter().any(|p| m.path.starts_with(p)))
+            // Paths with their list positions left out (`peers[].flags`), so a change can name
+            // a figure of every entry.
+            (differences.iter()).any(|m| {
+                let path = compare::without_positions(&m.path);
+                change.paths.iter().any(|p| path.starts_with(p))
+            })
         })
         .filter_map(|change| (change.explain)(receipt, rerun))
         .collect()
@@ -496,6 +511,20 @@ mod tests {
         assert!(named[0].starts_with("hurdle 0.11.0 flags lagged_response"));
         assert!(found(("0.10.0", "0.11.0"), &rerun(0)).is_empty());
         assert!(found(("0.11.0", "0.11.0"), &rerun(3)).is_empty());
+        let elsewhere = mismatch("industries[4].levered.median");
+        let versions = ("0.10.0", "0.11.0");
+        let receipt = json!({});
+        assert!(
+            known_changes("universe", versions, &[&elsewhere], (&receipt, &rerun(3))).is_empty()
+        );
+        // A case: named for a peer's flags that moved, not for any other figure of the peers
+        // (found by review: an edited standard error was put down to the flag).
+        let flagged = json!({"peers": [{"name": "P", "flags": ["lagged_response"]}]});
+        let case =
+            |path: &str| known_changes("case", versions, &[&mismatch(path)], (&receipt, &flagged));
+        assert_eq!(case("peers[0].flags").len(), 1);
+        assert_eq!(case("cautions.flagged_in_aggregate").len(), 1);
+        assert!(case("peers[2].beta_std_error").is_empty());
     }
 
     // 0.6.0's null spread of one value: named for an earlier case receipt whose aggregate's
