@@ -71,16 +71,20 @@ pub struct RollingSpec {
 }
 
 /// Rolling betas of `asset` on `market` (and the lagged and led market columns `shifted` that
-/// Dimson and Scholes–Williams use, as `sampling::align_with_shifts` builds them) observed at
+/// Dimson and Scholes–Williams use, as `sampling::align_with_shifts` builds them; `market_raw`
+/// is the index's own returns before any risk-free rate, the same periods) observed at
 /// `observed` (ascending dates, a subset of `period_ends`, the grid's return period ends).
 /// Windows with fewer than `spec.min_observations` observations, or too few for the estimator
 /// (as the full-window estimate requires: more than the coefficients, Newey–West lags and
-/// shifted columns each below N/4), are skipped.
+/// shifted columns each below N/4), are skipped, and so are windows whose index returns, raw
+/// or in excess of the rate, are all the same to rounding, as the full window's estimate
+/// refuses a flat index (a flat index under a moving rate leaves the rate's variation alone).
 pub fn rolling_betas(
     period_ends: &[NaiveDate],
     observed: &[NaiveDate],
     asset: &[f64],
     market: &[f64],
+    market_raw: &[f64],
     shifted: &[ShiftedMarket],
     spec: &RollingSpec,
 ) -> Vec<RollingPoint> {
@@ -127,6 +131,11 @@ pub fn rolling_betas(
         let n = sums.count();
         let lags = lags_for(n);
         if n < spec.min_observations.max(3) || 4 * lags >= n || 4 * shifted.len() >= n {
+            continue;
+        }
+        // Found by review: only the excess returns were checked, and only when the moment sums
+        // had lost their precision, so a flat index under a moving rate was fitted to the rate.
+        if crate::market::sampling::constant_up_to_rounding(&market_raw[sums.first()..sums.end()]) {
             continue;
         }
         let fit = match sums.beta(combination, spec.std_errors, lags) {
@@ -328,7 +337,15 @@ mod tests {
             .iter()
             .map(|m| 1.2 * m + 0.05 * rng.normal())
             .collect();
-        let points = rolling_betas(&ends, &observed, &asset, &market, &[], &ols_spec(12, 2, 10));
+        let points = rolling_betas(
+            &ends,
+            &observed,
+            &asset,
+            &market,
+            &market,
+            &[],
+            &ols_spec(12, 2, 10),
+        );
         assert!(!points.is_empty());
         for p in &points {
             let end = ends.iter().position(|d| *d == p.window_end).unwrap();
@@ -368,7 +385,15 @@ mod tests {
                 1.2 * market[t] + noise * rng.normal()
             })
             .collect();
-        let points = rolling_betas(&ends, &ends, &asset, &market, &[], &ols_spec(24, 1, 20));
+        let points = rolling_betas(
+            &ends,
+            &ends,
+            &asset,
+            &market,
+            &market,
+            &[],
+            &ols_spec(24, 1, 20),
+        );
         let mut exact = 0;
         for p in &points {
             let end = ends.iter().position(|d| *d == p.window_end).unwrap();
@@ -395,10 +420,50 @@ mod tests {
         market[0] = 0.01;
         let mut rng = Rng::seeded(5);
         let asset: Vec<f64> = (0..n).map(|_| 0.01 + 0.05 * rng.normal()).collect();
-        let points = rolling_betas(&ends, &ends, &asset, &market, &[], &ols_spec(20, 1, 10));
+        let points = rolling_betas(
+            &ends,
+            &ends,
+            &asset,
+            &market,
+            &market,
+            &[],
+            &ols_spec(20, 1, 10),
+        );
         assert!(points.iter().all(|p| p.beta.abs() < 1e3), "{points:?}");
         assert_eq!(points.len(), 1, "{points:?}");
         assert_eq!(points[0].window_end, ends[19]);
+    }
+
+    // An index whose own returns are the same in the first 30 periods while the risk-free rate
+    // moves: its excess returns there vary with the rate alone, so an estimate of those windows
+    // would be the asset's slope on the rate. They are skipped, as the full window refuses a
+    // flat index raw or in excess (found by review: only the excess returns were checked, and
+    // only on a refit). Windows reaching into the moving part are estimated.
+    #[test]
+    fn windows_whose_raw_index_is_flat_are_skipped_under_a_moving_rate() {
+        let n = 60;
+        let ends = month_ends(n);
+        let mut rng = Rng::seeded(9);
+        let raw: Vec<f64> = (0..n)
+            .map(|t| {
+                if t < 30 {
+                    0.004
+                } else {
+                    0.01 + 0.04 * rng.normal()
+                }
+            })
+            .collect();
+        let rate: Vec<f64> = (0..n).map(|t| 0.002 + 0.0005 * (t as f64).sin()).collect();
+        let excess: Vec<f64> = raw.iter().zip(&rate).map(|(m, r)| m - r).collect();
+        let asset: Vec<f64> = (0..n).map(|_| 0.01 + 0.05 * rng.normal()).collect();
+        let spec = ols_spec(20, 1, 10);
+        let points = rolling_betas(&ends, &ends, &asset, &excess, &raw, &[], &spec);
+        // Windows end at periods 19..=59; those ending at 29 or before lie in the flat part.
+        assert_eq!(points.len(), 30, "{points:?}");
+        assert!(points.iter().all(|p| p.window_end > ends[29]), "{points:?}");
+        // Without the raw returns the flat windows would be fitted to the rate's variation.
+        let unguarded = rolling_betas(&ends, &ends, &asset, &excess, &excess, &[], &spec);
+        assert_eq!(unguarded.len(), 41);
     }
 
     /// The market column at an offset.
@@ -482,7 +547,8 @@ mod tests {
                     dimson_lags: 1,
                     dimson_leads: 0,
                 };
-                let points = rolling_betas(&ends, &observed, &asset, &market, shifted, &spec);
+                let points =
+                    rolling_betas(&ends, &observed, &asset, &market, &market, shifted, &spec);
                 assert_eq!(
                     points.len(),
                     (periods - 36) / 5 + 1,

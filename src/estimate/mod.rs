@@ -444,6 +444,7 @@ pub fn estimate_security(
         &aligned.period_ends,
         &asset_excess,
         &market_excess,
+        &aligned.market,
         &aligned.market_shifted,
         &rolling_spec(spec),
     );
