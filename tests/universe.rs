@@ -289,6 +289,19 @@ fn industry_table_agrees_with_numpy_and_scipy() {
         // Every positive slope on the previous day's index return flagged lagged_response,
         // so that the flag's counts are recomputed over several securities.
         &["beta.flag_lag_p_value=1"][..],
+        // Excess returns over a yield series with gaps (periods without a rate dropped), and
+        // each kind of standard error, for the market model and the late-response check.
+        &[
+            "market.risk_free_series.yields=yields.csv",
+            "beta.std_errors=hc1",
+        ][..],
+        &[
+            "market.risk_free_series.yields=yields.csv",
+            "beta.std_errors=newey-west",
+            "beta.returns=log",
+            "beta.frequency=weekly",
+        ][..],
+        &["beta.std_errors=newey-west", "beta.newey_west_lags=3"][..],
     ]
     .iter()
     .enumerate()

@@ -13,12 +13,20 @@ any of hurdle's code:
     before the last; each sample is the last price dated after the previous point and on or
     before its own; a return (simple, or log with beta.returns = "log") needs both samples, and
     the index's return for the period;
-  - each security's OLS market model with scipy.stats.linregress (slope, intercept, their
-    standard errors, R^2, the two-sided p-value) and the 95% interval with scipy.stats.t.ppf;
-    Durbin-Watson from numpy; the regression on the index's current and previous-period returns
-    (Dimson 1979 with one lag) by numpy least squares, its lag slope's classical standard error
-    s^2 (X'X)^-1 and scipy's two-sided Student t p-value on N - 3 degrees of freedom, over the
-    periods whose previous index return is in the window; the flags too_few_observations (N
+  - with a risk-free series (README "Risk-free conversion by frequency", "Excess returns"): the
+    yield sampled by the same rule at each period's start, (1 + y)^(1/P) - 1 for simple returns
+    or ln(1 + y)/P for log returns (P = 252, 52, 12, 4), subtracted from both returns;
+  - each security's OLS market model with scipy.stats.linregress (slope, intercept, R^2) and
+    numpy least squares, its standard errors of the kind beta.std_errors names (README
+    "Standard errors"): classical s^2 (X'X)^-1; HC1, White's sandwich times n/(n - k) (White
+    1980, MacKinnon and White 1985); Newey-West (1987) with Bartlett weights 1 - l/(L + 1) over
+    the observations in order, no small-sample factor, L = beta.newey_west_lags or
+    floor(4 (N/100)^(2/9)) (Newey and West 1994); the two-sided p-value and the 95% interval
+    from scipy's Student t on N - 2 degrees of freedom; Durbin-Watson from numpy; the
+    regression on the index's current and previous-period returns (Dimson 1979 with one lag)
+    by numpy least squares with the same kind of standard errors (Newey-West with the market
+    model's own L), its lag slope's p-value on N - 3 degrees of freedom, over the periods whose
+    previous index return (and its rate) is in the window; the flags too_few_observations (N
     below beta.flag_observations_share, default 0.8, of the window's periods), low_r_squared
     (R^2 below beta.flag_r_squared_floor, default 0.05), zero_returns (more than
     beta.flag_zero_return_share, default 0.2, of the returns used exactly zero) and
@@ -33,9 +41,10 @@ any of hurdle's code:
     by firm value and value of operations, scipy.stats.trim_mean (leverage.trim_fraction,
     default 0.1), the median's 95% interval (scipy.stats.quantile_test), median and aggregate
     D/E, and the aggregate the universe file picks.
-Settings it does not implement (another estimator, standard errors or adjustment, a risk-free
-series, a staleness limit, a leverage formula other than Hamada, debt betas, exclusion flags,
-rolling betas) are reported as NOT IMPLEMENTED and fail the check, never silently passed.
+Settings it does not implement (another estimator or adjustment, a risk-free series from a
+wide table, a staleness limit, a leverage formula other than Hamada, debt betas, exclusion
+flags, rolling betas) are reported as NOT IMPLEMENTED and fail the check, never silently
+passed.
 Compares every figure with hurdle's securities.csv and industries.csv, prints
 "<n> checks, <m> failed" and exits non-zero on any failure. Tolerance: 1e-9 relative -- the
 issue's agreement bound; hurdle's QR and scipy's sums of squares differ by rounding only (about
@@ -66,7 +75,7 @@ WEEKDAYS = {"monday": 0, "tuesday": 1, "wednesday": 2, "thursday": 3, "friday": 
 # reported as NOT IMPLEMENTED and fails the run (README "Universe file reference" for the keys).
 IMPLEMENTED = {
     ("beta", "method"): ("ols",),
-    ("beta", "std_errors"): ("classical",),
+    ("beta", "std_errors"): ("classical", "hc1", "newey-west"),
     ("beta", "adjustment"): ("none",),
     ("beta", "exclude_flags"): ([],),
     ("beta", "max_stale_days"): (None,),
@@ -101,8 +110,9 @@ def not_implemented(config):
         table = config.get(section, {})
         if key in table and table[key] not in allowed:
             out.append(f"{section}.{key} = {table[key]!r}")
-    if "risk_free_series" in config.get("market", {}):
-        out.append("market.risk_free_series (excess returns)")
+    risk_free = config.get("market", {}).get("risk_free_series")
+    if risk_free is not None and not str(risk_free.get("yields", "")).endswith((".csv", ".txt")):
+        out.append("market.risk_free_series other than a CSV file of yields")
     if config.get("panel", {}).get("layout", "long") != "long" or not config["panel"]["prices"].endswith((".csv", ".txt")):
         out.append("a panel other than a long CSV")
     if not config["attributes"]["file"].endswith((".csv", ".txt")):
@@ -198,40 +208,73 @@ def returns(values, kind="simple"):
             for a, b in zip(values[:-1], values[1:])]
 
 
-def regression(asset, market):
+def newey_west_rule(n):
+    """README "[beta]" newey_west_lags: floor(4 (N/100)^(2/9)) (Newey and West 1994)."""
+    return math.floor(4.0 * (n / 100.0) ** (2.0 / 9.0))
+
+
+def covariance(design, residuals, kind, lags):
+    """The coefficients' covariance of the kind README "Standard errors" names, from the
+    textbook sandwich forms (numpy's inv of X'X: the reference, not the solver): classical
+    s^2 (X'X)^-1; HC1 (X'X)^-1 X' diag(e^2) X (X'X)^-1 n/(n - k); Newey-West
+    (X'X)^-1 S (X'X)^-1 with S = sum e_t^2 x_t x_t' + sum_l (1 - l/(L + 1))
+    sum_t e_t e_(t-l) (x_t x_(t-l)' + x_(t-l) x_t'), t over the observations in order."""
+    n, k = design.shape
+    bread = np.linalg.inv(design.T @ design)
+    if kind == "classical":
+        return bread * (residuals @ residuals / (n - k))
+    scores = design * residuals[:, None]
+    meat = scores.T @ scores
+    if kind == "hc1":
+        return bread @ meat @ bread * (n / (n - k))
+    for lag in range(1, lags + 1):
+        cross = scores[lag:].T @ scores[:-lag]
+        meat = meat + (1.0 - lag / (lags + 1.0)) * (cross + cross.T)
+    return bread @ meat @ bread
+
+
+def regression(asset, market, kind, lags_setting):
+    """The market model: coefficients and R^2 by scipy.stats.linregress (with numpy least
+    squares for the residuals), standard errors of `kind`."""
     fit = stats.linregress(market, asset)
     n = len(asset)
+    design = np.column_stack([np.ones(n), market])
     residuals = np.asarray(asset) - (fit.intercept + fit.slope * np.asarray(market))
+    lags = (lags_setting if lags_setting is not None else newey_west_rule(n)) \
+        if kind == "newey-west" else None
+    v = covariance(design, residuals, kind, lags or 0)
+    se_alpha, se_beta = float(np.sqrt(v[0, 0])), float(np.sqrt(v[1, 1]))
     t = stats.t.ppf(0.975, n - 2)
     return {
         "observations": n,
         "beta": fit.slope,
-        "beta_std_error": fit.stderr,
+        "beta_std_error": se_beta,
         "alpha": fit.intercept,
-        "alpha_std_error": fit.intercept_stderr,
+        "alpha_std_error": se_alpha,
         "r_squared": fit.rvalue ** 2,
-        "beta_p_value": fit.pvalue,
-        "beta_ci_low": fit.slope - t * fit.stderr,
-        "beta_ci_high": fit.slope + t * fit.stderr,
+        "beta_p_value": 2 * stats.t.sf(abs(fit.slope / se_beta), n - 2),
+        "beta_ci_low": fit.slope - t * se_beta,
+        "beta_ci_high": fit.slope + t * se_beta,
         "durbin_watson": float(np.sum(np.diff(residuals) ** 2) / np.sum(residuals ** 2)),
+        "newey_west_lags": lags,
     }
 
 
-def lagged(asset, market):
+def lagged(asset, market, kind, lags):
     """README "Diagnostics": r(t) on [1, m(t), m(t - 1)] over the periods with all three
     (the window's first period has no previous index return inside the window); numpy least
-    squares, classical covariance s^2 (X'X)^-1 (numpy's inv: the reference, not the solver)."""
+    squares, the covariance of `kind` (Newey-West with the market model's lags `lags`)."""
     rows = [(asset[j], market[j], market[j - 1]) for j in range(1, len(asset))
             if asset[j] is not None and market[j] is not None and market[j - 1] is not None]
     n = len(rows)
-    if n <= 4:
+    if n <= 4 or (lags is not None and 4 * lags >= n):
         return {}
     y = np.array([r[0] for r in rows])
     design = np.column_stack([np.ones(n), [r[1] for r in rows], [r[2] for r in rows]])
     coef, _, _, _ = np.linalg.lstsq(design, y, rcond=None)
     residuals = y - design @ coef
-    covariance = np.linalg.inv(design.T @ design) * (residuals @ residuals / (n - 3))
-    se = float(np.sqrt(covariance[2, 2]))
+    covariance_matrix = covariance(design, residuals, kind, lags or 0)
+    se = float(np.sqrt(covariance_matrix[2, 2]))
     t = coef[2] / se
     return {"lag_slope": coef[2], "lag_slope_std_error": se, "lag_slope_t_stat": t,
             "lag_slope_p_value": 2 * stats.t.sf(abs(t), n - 3),
@@ -242,13 +285,40 @@ def number(text):
     return float(text) if text not in ("", None) else None
 
 
+PERIODS_PER_YEAR = {"daily": 252, "weekly": 52, "monthly": 12, "quarterly": 4}
+
+
+def risk_free(config, folder, before, points, kind):
+    """Each period's rate from the yield sampled at its start (README "Excess returns"), or
+    None for every period without a risk-free series."""
+    series = config.get("market", {}).get("risk_free_series")
+    if series is None:
+        return None
+    yields = read_series(folder + "/" + series["yields"], series.get("date_column", "date"),
+                         series.get("yield_column", "yield"))
+    per_year = PERIODS_PER_YEAR[config["beta"].get("frequency", "monthly")]
+    if kind == "simple":
+        convert = lambda y: (1.0 + y) ** (1.0 / per_year) - 1.0
+    else:
+        convert = lambda y: math.log(1.0 + y) / per_year
+    return [None if y is None else convert(y) for y in samples(yields, before, points)[:-1]]
+
+
+def excess(values, rates):
+    if rates is None:
+        return values
+    return [None if v is None or r is None else v - r for v, r in zip(values, rates)]
+
+
 def securities(config, folder):
     beta, panel, attrs = config["beta"], config["panel"], config["attributes"]
     valuation_date = config["universe"]["valuation_date"]
     index = read_series(folder + "/" + config["market"]["index"]["prices"], "date", "price")
     before, points = sample_points(beta, valuation_date)
     kind = beta.get("returns", "simple")
-    market = returns(samples(index, before, points), kind)
+    rates = risk_free(config, folder, before, points, kind)
+    market = excess(returns(samples(index, before, points), kind), rates)
+    errors = beta.get("std_errors", "classical")
     periods = len(points) - 1
     by_security = {}
     with open(folder + "/" + panel["prices"], newline="") as handle:
@@ -263,15 +333,19 @@ def securities(config, folder):
     result = {}
     for security, series in by_security.items():
         series.sort()
-        asset = returns(samples(series, before, points), kind)
+        raw = returns(samples(series, before, points), kind)
+        asset = excess(raw, rates)
         pairs = [(a, m) for a, m in zip(asset, market) if a is not None and m is not None]
+        # The zero-return share counts the security's own returns, before the rate.
+        used_raw = [r for r, a, m in zip(raw, asset, market) if a is not None and m is not None]
         row = {"industry": None}
         # A move beyond a factor of 3 between two rows, the later after the first sample point
         # and up to the last, leaves the security unestimated (an unadjusted split, a bad price).
         jump = any(points[0] < d <= points[-1] and not (1 / 3 <= p / q <= 3)
                    for (_, q), (d, p) in zip(series, series[1:]))
         if len(pairs) >= beta.get("min_observations", 36) and not jump:
-            row.update(regression([a for a, _ in pairs], [m for _, m in pairs]))
+            row.update(regression([a for a, _ in pairs], [m for _, m in pairs], errors,
+                                  beta.get("newey_west_lags")))
         elif not jump:
             # Too few usable returns: not estimated, but the count is reported (a price jump
             # stops the security before its returns are counted).
@@ -318,10 +392,10 @@ def securities(config, folder):
                 row["flags"].add("low_r_squared")
             # zero_returns when more than flag_zero_return_share (default 0.2) of the returns
             # used are exactly zero.
-            row["zero_return_share"] = sum(1 for a, _ in pairs if a == 0.0) / len(pairs)
+            row["zero_return_share"] = sum(1 for r in used_raw if r == 0.0) / len(pairs)
             if row["zero_return_share"] > beta.get("flag_zero_return_share", 0.2):
                 row["flags"].add("zero_returns")
-            row.update(lagged(asset, market))
+            row.update(lagged(asset, market, errors, row["newey_west_lags"]))
             if (row.get("lag_slope", 0.0) > 0.0
                     and row["lag_slope_p_value"] < beta.get("flag_lag_p_value", 0.05)):
                 row["flags"].add("lagged_response")
@@ -474,6 +548,8 @@ def main():
         check.same(f"{security} beta_p_value", row.get("beta_p_value"), number(got["beta_p_value"]), floor=0.0)
         check.same(f"{security} lag_slope_p_value", row.get("lag_slope_p_value"),
                    number(got["lag_slope_p_value"]), floor=0.0)
+        check.equal(f"{security} newey_west_lags", row.get("newey_west_lags"),
+                    None if got["newey_west_lags"] == "" else int(got["newey_west_lags"]))
         if "beta" in row:
             # The flags this check recomputes, and no other flag (staleness and exclusions are
             # not implemented here and refused above).

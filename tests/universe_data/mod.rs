@@ -143,6 +143,7 @@ pub fn generate(dir: &Path, seed: u64) -> Universe {
     universe.write_parquet();
     universe.write_peer_files();
     write_attributes(dir);
+    write_yields(dir, &universe.dates);
     fs::write(dir.join("universe.toml"), UNIVERSE_TOML).unwrap();
     universe
 }
@@ -235,6 +236,21 @@ impl Universe {
             fs::write(self.dir.join(format!("peers/{id}.csv")), text).unwrap();
         }
     }
+}
+
+/// `yields.csv`: an invented annual risk-free yield on each trading day but every 23rd (from
+/// the sixth), whose periods then have no rate. A formula, not the generator, so that the
+/// prices stay those of every earlier version of this universe.
+fn write_yields(dir: &Path, dates: &[NaiveDate]) {
+    let mut text = String::from("date,yield\n");
+    for (k, d) in dates.iter().enumerate() {
+        if k % 23 != 5 {
+            let t = k as f64;
+            let y = 0.025 + 0.01 * (t / 40.0).sin() + 0.002 * (t / 7.0).cos();
+            let _ = writeln!(text, "{d},{y:.6}");
+        }
+    }
+    fs::write(dir.join("yields.csv"), text).unwrap();
 }
 
 /// Security `i`'s market value of equity, debt, cash and tax rate (before the gaps below).
