@@ -489,28 +489,74 @@ fn a_weekly_index_under_daily_peers_is_noted() {
     let has = |notes: &[String], text: &str| notes.iter().any(|n| n.contains(text));
     let text = "The index (data/index.csv) has a price every";
     assert!(!has(&notes_of_run(|_| {}, &[]), text));
-    let weekly = notes_of_run(
-        |dir| {
-            let path = dir.join("data/index.csv");
-            let prices = std::fs::read_to_string(&path).unwrap();
-            let fridays: String = (prices.lines().enumerate())
-                .filter(|(i, l)| {
-                    use chrono::Datelike;
-                    let date = chrono::NaiveDate::parse_from_str(&l[..10], "%Y-%m-%d");
-                    *i == 0 || date.is_ok_and(|d| d.weekday() == chrono::Weekday::Fri)
-                })
-                .map(|(_, l)| format!("{l}\n"))
-                .collect();
-            std::fs::write(&path, fridays).unwrap();
-        },
-        &[],
-    );
+    let weekly = notes_of_run(|dir| fridays_only(&dir.join("data/index.csv")), &[]);
     // Fridays are 7 days apart (a holiday Friday makes the mean a little more); the peers'
     // trading days about 1.4 (five of every seven days, and holidays).
     assert!(
         has(&weekly, &format!("{text} 7.")) && has(&weekly, "the median peer one every 1.4"),
         "{weekly:?}"
     );
+}
+
+/// Keeps the header and the rows of `path` dated on a Friday.
+fn fridays_only(path: &Path) {
+    use chrono::Datelike;
+    let prices = std::fs::read_to_string(path).unwrap();
+    let fridays: String = (prices.lines().enumerate())
+        .filter(|(i, l)| {
+            let date = chrono::NaiveDate::parse_from_str(&l[..10], "%Y-%m-%d");
+            *i == 0 || date.is_ok_and(|d| d.weekday() == chrono::Weekday::Fri)
+        })
+        .map(|(_, l)| format!("{l}\n"))
+        .collect();
+    std::fs::write(path, fridays).unwrap();
+}
+
+// A peer given weekly prices (Fridays alone) in a case of daily ones (found by review): under
+// monthly returns its month-end price is up to six days older than the index's, and a note
+// names the peer with its cadence beside the index's; under daily returns no day has a return,
+// and the refusal says why beside "peer price missing". Calendar fact: consecutive Fridays are
+// 7 days apart, and five trading days a week with holidays make about 1.4 calendar days each.
+#[test]
+fn a_peer_of_weekly_prices_is_noted_and_its_refusal_says_why() {
+    let has = |notes: &[String], text: &str| notes.iter().any(|n| n.contains(text));
+    let text = "Calendar days per price in the window on average, against 1.4 for the index";
+    assert!(!has(&notes_of_run(|_| {}, &[]), "Calendar days per price"));
+    let weekly = |dir: &Path| fridays_only(&dir.join("data/peers/ivelbrook.csv"));
+    let notes = notes_of_run(weekly, &[]);
+    assert!(
+        has(&notes, text)
+            && has(
+                &notes,
+                "Ivelbrook Instruments (data/peers/ivelbrook.csv) every 7."
+            )
+            && !has(&notes, "Brenvale"),
+        "{notes:?}"
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = dir.path().join("case");
+    common::copy_demo_case(&case_dir);
+    weekly(&case_dir);
+    let out = dir.path().join("out");
+    let refused = hurdle(&[
+        "run",
+        case_dir.join("case.toml").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--set",
+        "beta.frequency=daily",
+        "--set",
+        "beta.lookback=500",
+    ]);
+    let stderr = String::from_utf8_lossy(&refused.stderr);
+    assert_eq!(refused.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("peer \"Ivelbrook Instruments\": 0 usable returns")
+            && stderr.contains("Its prices in the window come every 7.")
+            && stderr.contains("the index's every 1.4"),
+        "{stderr}"
+    );
+    assert!(!out.exists());
 }
 
 // An index file holding gross returns (1 + r) instead of levels (found by review): every peer's

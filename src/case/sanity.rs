@@ -17,8 +17,8 @@ use crate::error::compact as show;
 pub use prices::price_pattern_notes;
 pub use text::{case_or_universe, check_case_text, check_claimed_text, empty_or_csv};
 pub use window::{
-    file_end_notes, index_cadence_note, index_coverage_note, short_window_note, unused_beta_notes,
-    window_end_note, window_note,
+    file_end_notes, index_cadence_note, index_coverage_note, peer_cadence_note, short_window_note,
+    unused_beta_notes, window_end_note, window_note,
 };
 
 /// Most Monte Carlo draws: about five seconds on one core. On the demo case the median's own

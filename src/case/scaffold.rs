@@ -339,7 +339,7 @@ const BETA_KEYS: &[(&str, &str, &str)] = &[
     ("adjustment", "none, blume or vasicek", ""),
     (
         "blume_weight",
-        "blume: shrunk β = w·raw + (1 − w); 0.67 rounds Blume's (1971) slope",
+        "blume: shrunk β = w·raw + (1 − w); 0.67 is near Blume's (1971) slope 0.677",
         "",
     ),
     ("std_errors", "classical, hc1 or newey-west", ""),

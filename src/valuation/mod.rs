@@ -267,6 +267,11 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         .zip(&inputs.peers)
         .map(|(peer, file)| (peer.name.as_str(), file))
         .collect();
+    notes.extend(crate::case::sanity::peer_cadence_note(
+        &peer_files,
+        &inputs.index,
+        window,
+    ));
     notes.extend(crate::case::sanity::file_end_notes(
         &inputs.index,
         inputs.risk_free.as_ref(),
@@ -291,22 +296,24 @@ fn failure_message(
     index: &DataFile,
 ) -> String {
     match failure {
-        EstimateError::TooFewReturns { usable, dropped: d } => format!(
-            "{usable} usable returns in the window of {} periods from {} to {} (dropped {}: \
+        EstimateError::TooFewReturns { usable, dropped: d } => {
+            format!(
+                "{usable} usable returns in the window of {} periods from {} to {} (dropped {}: \
              peer price missing {}, index price missing {}, risk-free missing {}); \
              beta.min_observations = {}. Prices in {} run from {} to {}.",
-            window.period_ends().len(),
-            window.start(),
-            window.end(),
-            d.total,
-            d.asset_missing,
-            d.market_missing,
-            d.risk_free_missing,
-            spec.min_observations,
-            file.path,
-            file.first_date,
-            file.last_date
-        ),
+                window.period_ends().len(),
+                window.start(),
+                window.end(),
+                d.total,
+                d.asset_missing,
+                d.market_missing,
+                d.risk_free_missing,
+                spec.min_observations,
+                file.path,
+                file.first_date,
+                file.last_date
+            ) + &sparse_prices_hint(file, index, window)
+        }
         EstimateError::FlatIndex { periods } => format!(
             "the market index returns ({}) have zero variance over the {periods} periods aligned \
              with this peer, so no beta can be estimated",
@@ -314,6 +321,25 @@ fn failure_message(
         ),
         EstimateError::Estimator(message) => message.clone(),
         EstimateError::Settings(problem) => crate::case::wording::estimator_failure(problem),
+    }
+}
+
+/// Why a peer lost its returns when its prices come further apart than the index's (the rule
+/// of `case::sanity::peer_cadence_note`), or nothing (found by review: a peer of weekly
+/// prices in a daily case was refused with "peer price missing" alone).
+fn sparse_prices_hint(file: &DataFile, index: &DataFile, window: &Window) -> String {
+    let bounds = (window.start(), window.end());
+    let mean_gap = |f: &DataFile| crate::case::sanity::prices::mean_gap(&f.series.dates, bounds);
+    let index_gap = mean_gap(index).unwrap_or(1.0);
+    match mean_gap(file) {
+        Some(gap) if gap > 3.0 && gap > 1.5 * index_gap => format!(
+            " Its prices in the window come every {} calendar days on average, the index's \
+             every {}: give the peer's price for every trading day, or choose beta.frequency \
+             to match its prices.",
+            crate::error::rounded(gap, 1),
+            crate::error::rounded(index_gap, 1)
+        ),
+        _ => String::new(),
     }
 }
 

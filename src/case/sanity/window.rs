@@ -65,6 +65,46 @@ pub fn index_cadence_note(
     })
 }
 
+/// A note naming the peers whose prices inside the window come further apart than a market's
+/// trading days and than the index's, by the rule of [`index_cadence_note`] turned round: more
+/// than 3 calendar days per price on average and more than 1.5 times the index's (found by
+/// review: a peer given weekly prices in a case of daily ones was left to the reader to guess
+/// from its missing returns; the universe says so in its own note). Weekly prices beside a
+/// daily index, or a share that seldom trades: either way a period's price may be days older
+/// than the index's.
+pub fn peer_cadence_note(
+    peers: &[(&str, &crate::io::series::DataFile)],
+    index: &crate::io::series::DataFile,
+    window: &crate::estimate::Window,
+) -> Option<String> {
+    let bounds = (window.start(), window.end());
+    let index_gap = super::prices::mean_gap(&index.series.dates, bounds).unwrap_or(1.0);
+    let sparse: Vec<String> = (peers.iter())
+        .filter_map(|(name, file)| {
+            let gap = super::prices::mean_gap(&file.series.dates, bounds)?;
+            (gap > 3.0 && gap > 1.5 * index_gap).then(|| {
+                format!(
+                    "{name} ({}) every {}",
+                    file.path,
+                    crate::error::rounded(gap, 1)
+                )
+            })
+        })
+        .collect();
+    (!sparse.is_empty()).then(|| {
+        format!(
+            "Calendar days per price in the window on average, against {} for the index: {}. \
+             Weekly or monthly prices among the index's daily ones, or a share that seldom \
+             trades? A period's price may then be days older than the index's, which \
+             misaligns the returns (under daily returns most days have none; \
+             beta.max_stale_days drops stale periods); give prices for every trading day, or \
+             choose beta.frequency to match.",
+            crate::error::rounded(index_gap, 1),
+            sparse.join("; ")
+        )
+    })
+}
+
 /// A return window shorter than this many years is noted (common practice estimates betas over
 /// two to five years: less rests on one phase of the market).
 const SHORT_WINDOW_YEARS: f64 = 2.0;
