@@ -1,5 +1,16 @@
 //! The `hurdle` binary: argument parsing and printing around the library.
 
+/// Writes one line to standard error, as `eprintln!` does, but without panicking when standard
+/// error cannot be written (found by review: `2>/dev/full` or a closed pipe turned an error's
+/// exit 2, or a success with a note, into a panic's 101): the exit status still says what
+/// happened.
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr().lock(), $($arg)*);
+    }};
+}
+
 mod cli;
 
 use std::process::ExitCode;
@@ -10,7 +21,7 @@ use clap::Parser;
 /// files are being moved into place (then the run finishes the moves and stops itself).
 fn leave_if_not_moving() {
     if hurdle::report::staging::abandon() {
-        eprintln!("{}", hurdle::Error::Interrupted);
+        say!("{}", hurdle::Error::Interrupted);
         std::process::exit(130);
     }
 }
@@ -45,7 +56,7 @@ fn main() -> ExitCode {
         // Any other failure to print (a full disk, `> /dev/full`) is an error of the
         // destination, reported as one: exit 2, not a panic's 101.
         if let Some(reason) = message.strip_prefix("failed printing to stdout: ") {
-            eprintln!("error: cannot write to standard output: {reason}");
+            say!("error: cannot write to standard output: {reason}");
             std::process::exit(2);
         }
         // A corrupt Parquet file that polars' decoder panics on is reported as an error by the
@@ -59,20 +70,20 @@ fn main() -> ExitCode {
     match cli::run(parsed) {
         Ok(code) => code,
         Err(error @ hurdle::Error::Interrupted) => {
-            eprintln!("{error}");
+            say!("{error}");
             ExitCode::from(130)
         }
         // One placeholder per line: an `init` case lists dozens.
         Err(hurdle::Error::Placeholders { file, items }) => {
             let heading = hurdle::error::placeholders_heading(items.len());
-            eprintln!("error: {}: {}", file.display(), heading.trim_end());
+            say!("error: {}: {}", file.display(), heading.trim_end());
             for item in &items {
-                eprintln!("  {}", hurdle::error::one_line(item));
+                say!("  {}", hurdle::error::one_line(item));
             }
             ExitCode::from(2)
         }
         Err(error) => {
-            eprintln!(
+            say!(
                 "error: {}",
                 hurdle::error::one_line(&cli::render_error(&error))
             );

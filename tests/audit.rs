@@ -135,6 +135,8 @@ fn verify_reproduces_an_untouched_receipt_and_catches_an_edited_price() {
         status_dir.to_str().unwrap(),
     ]);
     assert_eq!(written.status.code(), Some(1));
+    let wrote = format!("  wrote {}", status_dir.join("verification.md").display());
+    assert!(text(&written).contains(&wrote), "{}", text(&written));
     let status = std::fs::read_to_string(status_dir.join("verification.md")).unwrap();
     assert!(status.contains("**NOT REPRODUCED**"), "{status}");
     assert!(
@@ -396,6 +398,28 @@ fn the_default_grid_stays_inside_the_accepted_debt_to_equity() {
     assert_eq!(grid["rows"]["values"][2].as_f64(), Some(erp));
     assert_eq!(grid["base_cell"], serde_json::json!([2, 2]));
     assert_eq!(grid["cells"][2][2], result["wacc"]);
+    // Debt betas from the credit spread need an ERP of at least 0.001 (README, [leverage]): an
+    // ERP of 0.008 is accepted, and the grid's row a point below it (−0.002) is left off, not
+    // the run refused (found by review: `run` failed on a row the user never asked for).
+    let result = run_case(
+        &case_dir.join("case.toml"),
+        &dir.path().join("spread"),
+        &[
+            "--set",
+            "market.equity_risk_premium=0.008",
+            "--set",
+            "leverage.formula=conine",
+            "--set",
+            "leverage.debt_beta_source=credit-spread",
+            "--set",
+            "debt.cost_pre_tax=0.0277",
+        ],
+    );
+    let rows: Vec<f64> = (result["sensitivity"]["rows"]["values"].as_array().unwrap())
+        .iter()
+        .map(|v| v.as_f64().unwrap())
+        .collect();
+    assert_eq!(rows, [0.003, 0.008, 0.013, 0.018]);
 }
 
 // A receipt records its case path as it was typed (`case.toml`, relative to the folder the run
@@ -1440,6 +1464,14 @@ fn bridge_steps_and_shapley_values_sum_to_the_gap() {
         dir.path().to_str().unwrap(),
     ]);
     assert!(output.status.success(), "{}", text(&output));
+    // It says where the file went, as every command that writes does (found by review).
+    let wrote = format!("  wrote {}", dir.path().join("bridge.csv").display());
+    assert!(text(&output).contains(&wrote), "{}", text(&output));
+    // A folder that cannot take the file stops the command before the bridge is printed, so a
+    // script capturing the output gets the error alone (found by review: 15 lines, then it).
+    let refused = hurdle(&["compare", &case, &claimed, "--out", &claimed]);
+    assert_eq!(refused.status.code(), Some(2));
+    assert!(refused.stdout.is_empty(), "{}", text(&refused));
     let csv = std::fs::read_to_string(dir.path().join("bridge.csv")).unwrap();
     let header: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
     let at = header.iter().position(|h| *h == "contribution").unwrap();
@@ -1853,6 +1885,28 @@ fn grid_cells_equal_single_runs() {
         csv.to_str().unwrap(),
     ]);
     assert!(output.status.success(), "{}", text(&output));
+    // A --csv onto the case file is refused by the file's name, not as an output folder
+    // (found by review: "output folder : writing case.toml there would overwrite …").
+    let onto_case = hurdle(&[
+        "grid",
+        case.to_str().unwrap(),
+        "--rows",
+        "market.equity_risk_premium=0.04..0.07:0.015",
+        "--cols",
+        "target.debt_to_equity=0..1:0.5",
+        "--csv",
+        case.to_str().unwrap(),
+    ]);
+    assert_eq!(onto_case.status.code(), Some(2));
+    let said = format!(
+        "--csv {}: writing case.toml there would overwrite",
+        case.display()
+    );
+    assert!(
+        text(&onto_case).contains(&said) && text(&onto_case).contains("choose another file"),
+        "{}",
+        text(&onto_case)
+    );
     let table = std::fs::read_to_string(&csv).unwrap();
     let rows: Vec<Vec<&str>> = table.lines().map(|l| l.split(',').collect()).collect();
     assert_eq!(rows[0][1..], ["0", "0.5", "1"]);

@@ -384,6 +384,52 @@ fn a_full_standard_output_is_an_error_not_a_panic() {
     );
 }
 
+// Standard error on a full device: an error still exits 2 (its message lost), and a success
+// whose note cannot be printed still exits 0, not a panic's 101 (found by review).
+#[test]
+fn a_full_standard_error_keeps_the_exit_status() {
+    let Ok(full) = std::fs::OpenOptions::new().write(true).open("/dev/full") else {
+        return; // Not Linux: there is no always-full device to write to.
+    };
+    let output = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["run", "no-such-case.toml"])
+        .stderr(full)
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+}
+
+// Two --set of one value, the same key or a peer by index and by name: the later is used (a
+// grid cell is reproduced by adding its values after the grid's own), and stderr says which
+// replaced which (found by review: it happened without a word). Different keys say nothing.
+#[test]
+fn a_value_set_twice_is_said() {
+    let twice = |a: &str, b: &str| hurdle(&["betas", common::DEMO_CASE, "--set", a, "--set", b]);
+    let output = twice("peer.0.debt=100", "peer.Brenvale Fluid Systems.debt=900");
+    assert!(output.status.success(), "{}", stderr(&output));
+    assert!(
+        stderr(&output).contains(
+            "note: --set peer.Brenvale Fluid Systems.debt=900 replaces --set peer.0.debt=100, \
+             which sets the same value; the later is used"
+        ),
+        "{}",
+        stderr(&output)
+    );
+    // The later value is the one used: the listing equals the one with it alone.
+    let alone = hurdle(&[
+        "betas",
+        common::DEMO_CASE,
+        "--set",
+        "peer.Brenvale Fluid Systems.debt=900",
+    ]);
+    assert_eq!(output.stdout, alone.stdout);
+    let output = twice("beta.lookback=48", " beta . lookback =36");
+    assert!(stderr(&output).contains("replaces --set beta.lookback=48"));
+    let output = twice("peer.0.debt=100", "peer.1.debt=900");
+    assert!(output.status.success(), "{}", stderr(&output));
+    assert!(!stderr(&output).contains("note:"), "{}", stderr(&output));
+}
+
 // A beta listing computes no cost of capital, so a fault in the spread table that only the cost
 // of debt reads stops `run` and leaves `betas` and `rolling` alone. Once an unlevered beta reads
 // the subject's cost of debt (Miles–Ezzell discounts the tax shield at it, and a credit-spread

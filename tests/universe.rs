@@ -2310,6 +2310,13 @@ fn a_window_given_twice_is_refused_or_noted_as_in_a_case() {
         &[],
         &["beta.window_start and line", "beta.lookback both set"],
     );
+    // A value only a --set gives is blamed on the --set, as a case's checks do (found by
+    // review: "universe.toml: beta.flag_r_squared_floor = 2 …" pointed at the file).
+    refused(
+        |_| {},
+        &["beta.flag_r_squared_floor=2"],
+        &["universe.toml: after applying --set beta.flag_r_squared_floor=2: "],
+    );
     let setup = Setup::new();
     let plain = setup.succeeds("plain", &[]);
     let noted = setup.succeeds("noted", &["beta.lookback=300"]);

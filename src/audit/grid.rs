@@ -90,9 +90,11 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
 /// a D/E at most the case's limit, a debt-to-capital at most 0.9, with the case's own ratio
 /// added when that cap cuts the span). A target taken from the peers
 /// or the subject has no ratio to vary, so the columns are then the risk-free rate ±1 point.
-/// A rate's step the case would refuse (an ERP of 0.995 + 0.01) is left off its axis, so a case
-/// the valuation accepts always has its grid.
-pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
+/// A step the case would refuse (an ERP of 0.995 + 0.01, or below the 0.001 a credit-spread
+/// debt beta needs) is left off its axis, so a case the valuation accepts always has its grid
+/// (found by review: a case with an ERP of 0.008 and credit-spread debt betas was refused by
+/// `run` for the grid's row at −0.002, which the user never asked for).
+pub fn default_axes(valuation: &Valuation, variants: &Variants) -> (Axis, Axis) {
     // The steps are rounded to 12 decimals (0.0567, not 0.056700000000000004); the case's own
     // value is kept exactly, so its cell is the case itself.
     let round = |v: f64| (v * 1e12).round() / 1e12;
@@ -147,7 +149,15 @@ pub fn default_axes(valuation: &Valuation) -> (Axis, Axis) {
         ),
         _ => around("market.risk_free_rate", valuation.cost.risk_free_rate),
     };
-    (rows, columns)
+    (accepted(rows, variants), accepted(columns, variants))
+}
+
+/// The axis without the values the case refuses on their own (its checks across keys).
+fn accepted(mut axis: Axis, variants: &Variants) -> Axis {
+    let key = axis.key.clone();
+    axis.values
+        .retain(|value| variants.with(&[format!("{key}={value}")]).is_ok());
+    axis
 }
 
 /// Computes the grid over `rows × columns`.

@@ -27,7 +27,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let estimates = estimate_peers(&inputs.case, inputs)?;
     let base = value_with(&inputs.case, inputs, &estimates, generated_at)?;
     let sensitivity = &inputs.case.settings.sensitivity;
-    let (rows, columns) = grid::default_axes(&base);
+    let (rows, columns) = grid::default_axes(&base, &crate::case::Variants::new(&inputs.case)?);
     let rows = match &sensitivity.rows {
         Some(spec) => grid::parse_axis("sensitivity.rows", spec)?,
         None => rows,

@@ -4,6 +4,15 @@
 //! for `hurdle universe` in `CASE_DIR-market` (`hurdle::demo_market`), and prints the true betas
 //! it used.
 
+/// Writes one line to standard error without panicking when it cannot be written: the exit
+/// status still says what happened.
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr().lock(), $($arg)*);
+    }};
+}
+
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -32,7 +41,7 @@ fn main() -> ExitCode {
                 ExitCode::SUCCESS
             }
             false => {
-                eprintln!("error: {USAGE}");
+                say!("error: {USAGE}");
                 ExitCode::from(2)
             }
         };
@@ -56,7 +65,7 @@ fn main() -> ExitCode {
     ];
     for (folder, files) in groups {
         if let Err(error) = hurdle::report::staging::write_outputs(folder, &files, &[]) {
-            eprintln!("error: {error}");
+            say!("error: {error}");
             return ExitCode::from(2);
         }
     }

@@ -169,6 +169,30 @@ pub fn same_value(table: &toml::Table, a: &str, b: &str) -> bool {
         && !holds(&marked, MARKS[1])
 }
 
+/// Each `--set` that sets a value an earlier one already set in `table` (by position: the
+/// later, and the latest earlier one it replaces): the same key, or one key spelled two ways
+/// (a peer by index and by name). The later wins, as it always has (a grid cell is reproduced
+/// by adding its values after the grid's own `--set`s); the caller says so (found by review:
+/// it happened without a word). The two target ratios, which replace each other by design,
+/// are left to the case's own refusal of both.
+pub fn repeated(table: &toml::Table, overrides: &[String]) -> Vec<(usize, usize)> {
+    let key = |assignment: &str| -> String {
+        let key = assignment.split_once('=').map_or(assignment, |(k, _)| k);
+        key.split('.').map(str::trim).collect::<Vec<_>>().join(".")
+    };
+    let keys: Vec<String> = overrides.iter().map(|a| key(a)).collect();
+    let ratio = |k: &str| k == "target.debt_to_equity" || k == "target.debt_to_capital";
+    let same = |a: &str, b: &str| a == b || (!(ratio(a) && ratio(b)) && same_value(table, a, b));
+    (1..keys.len())
+        .filter_map(|later| {
+            (0..later)
+                .rev()
+                .find(|&earlier| same(&keys[earlier], &keys[later]))
+                .map(|earlier| (earlier, later))
+        })
+        .collect()
+}
+
 /// Whether `text` is a string anywhere in `value`.
 fn holds(table: &toml::Table, text: &str) -> bool {
     fn within(value: &toml::Value, text: &str) -> bool {

@@ -24,10 +24,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let (from, from_facts) = read_side_with_facts(&args.from, &args.from.display().to_string())?;
     let (to, to_facts) = read_side_with_facts(&args.to, &args.to.display().to_string())?;
     let result = bridge(&from, &to);
-    print!(
-        "{}",
-        render(&result, [from_facts.as_ref(), to_facts.as_ref()])
-    );
+    // The file is written before the bridge is printed, as `verify` and `grid` do: an output
+    // folder that cannot take it stops the command with its error alone (found by review: the
+    // bridge was printed, then the error came).
+    let mut wrote = None;
     if let Some(dir) = &args.out {
         let mut reads = Vec::new();
         for side in [&args.from, &args.to] {
@@ -42,6 +42,14 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
             hurdle::report::csv::bridge_csv(&result),
         );
         hurdle::report::staging::write_outputs(dir, &[file], &reads)?;
+        wrote = Some(dir.join("bridge.csv"));
+    }
+    print!(
+        "{}",
+        render(&result, [from_facts.as_ref(), to_facts.as_ref()])
+    );
+    if let Some(path) = wrote {
+        println!("  wrote {}", path.display());
     }
     Ok(())
 }

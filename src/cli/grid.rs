@@ -25,7 +25,7 @@ pub struct Args {
     /// The figure in the cells: wacc or cost_of_equity.
     #[arg(long, default_value = "wacc")]
     pub metric: Metric,
-    /// Where to write the CSV.
+    /// Where to write the CSV (default: output/grid.csv beside the case).
     #[arg(long, value_name = "FILE")]
     pub csv: Option<PathBuf>,
 }
@@ -92,7 +92,17 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let reads = hurdle::case::files_read(&inputs.case);
     // The table is printed once its file is written, as `run` prints its summary: a failed
     // write prints only its error (found by review: the table came first, then the error).
-    hurdle::report::staging::write_outputs(&dir, &[file], &reads)?;
+    // The folder's refusals are worded for `--out`; here the user named a file (found by
+    // review: "output folder : writing case.toml there would overwrite case.toml").
+    hurdle::report::staging::write_outputs(&dir, &[file], &reads).map_err(|error| match error {
+        hurdle::Error::Argument { option, message } if option.starts_with("output folder") => {
+            hurdle::Error::Argument {
+                option: format!("--csv {}", path.display()),
+                message: message.replace("choose another output folder", "choose another file"),
+            }
+        }
+        other => other,
+    })?;
     print!("{out}");
     println!("  wrote {}", path.display());
     Ok(())

@@ -45,12 +45,15 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
             .join("case.toml")
     });
     if out.exists() {
+        // A folder is not the case file's name (found by review: a folder was told "init
+        // never overwrites a file").
+        let what = match out.is_dir() {
+            true => "is a folder; --out names the case file to write, such as DIR/case.toml",
+            false => "exists already; init never overwrites a file, so give another --out",
+        };
         return Err(hurdle::Error::Argument {
             option: "--out".into(),
-            message: format!(
-                "{} exists already; init never overwrites a file, so give another --out",
-                out.display()
-            ),
+            message: format!("{} {what}", out.display()),
         });
     }
     let case_dir = out.parent().unwrap_or(Path::new(""));
@@ -108,13 +111,13 @@ fn report(args: &Args, out: &Path, table: &PriceTable, started: &StartingCase) {
         hurdle::case::placeholders::MARK
     );
     for note in &table.notes {
-        eprintln!("note: {}: {}", args.table.display(), one_line(note));
+        say!("note: {}: {}", args.table.display(), one_line(note));
     }
     for peer in &started.peers {
         let Some((low, high)) = peer.rate_like else {
             continue;
         };
-        eprintln!(
+        say!(
             "warning: {}: column {} became a peer, but every value in it lies between -1 and 1 \
              ({} to {}), as yields do and prices seldom do; if it holds the risk-free yields, \
              delete {} and run init again with --risk-free {}",

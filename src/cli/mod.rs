@@ -95,21 +95,45 @@ impl CaseArgs {
 
     /// Reads the case, applies overrides and reads its data files.
     pub fn inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
-        let case = hurdle::case::read_case(&self.case, &self.overrides)?;
-        hurdle::valuation::load_inputs(case)
+        hurdle::valuation::load_inputs(self.read_case()?)
     }
 
     /// Reads the case, its price files and, only when an unlevered beta reads the subject's cost of
     /// debt from it, the spread table: what a beta listing needs.
     pub fn listing_inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
-        let case = hurdle::case::read_case(&self.case, &self.overrides)?;
-        hurdle::valuation::load_listing_inputs(case)
+        hurdle::valuation::load_listing_inputs(self.read_case()?)
     }
 
     /// Reads the case and its price files only (no spread table): what estimating needs.
     pub fn price_inputs(&self) -> hurdle::Result<hurdle::valuation::Inputs> {
-        let case = hurdle::case::read_case(&self.case, &self.overrides)?;
-        hurdle::valuation::load_price_inputs(case)
+        hurdle::valuation::load_price_inputs(self.read_case()?)
+    }
+
+    /// The case with the command line's overrides, a value set twice said on stderr.
+    fn read_case(&self) -> hurdle::Result<hurdle::case::Case> {
+        note_repeated_sets(&self.case, &self.overrides);
+        hurdle::case::read_case(&self.case, &self.overrides)
+    }
+}
+
+/// Says on stderr which `--set` replaces an earlier one of the same value (the same key, or a
+/// peer by index and by name): the later wins, as the receipt's recorded order reapplies it.
+/// A file that cannot be read or parsed is left to the reader's own message.
+pub fn note_repeated_sets(file: &std::path::Path, overrides: &[String]) {
+    if overrides.len() < 2 {
+        return;
+    }
+    let Some(table) =
+        (std::fs::read_to_string(file).ok()).and_then(|text| text.parse::<toml::Table>().ok())
+    else {
+        return;
+    };
+    for (earlier, later) in hurdle::case::overrides::repeated(&table, overrides) {
+        say!(
+            "note: --set {} replaces --set {}, which sets the same value; the later is used",
+            overrides[later],
+            overrides[earlier]
+        );
     }
 }
 
@@ -137,7 +161,11 @@ pub fn split_file_path(option: &str, path: &std::path::Path) -> hurdle::Result<(
                 message: "names no file (it ends in a folder); give a file name such as grid.csv"
                     .into(),
             })?;
-    let dir = path.parent().unwrap_or(std::path::Path::new(""));
+    // A bare file name's folder is the working one, named so in messages (not "").
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(std::path::Path::new("."));
     Ok((dir.to_path_buf(), name.to_string()))
 }
 

@@ -4,7 +4,7 @@
 //! `workbook.xlsx` (formulas that recompute the chain), the charts `figures/*.svg` and
 //! `report.html` to DIR (default: `output/` beside the case file),
 //! each atomically and only after all of them rendered; prints a short summary. `--no-figures`
-//! writes the text outputs only (no charts, no report). Charts and a report an earlier run left
+//! writes the text outputs and the workbook only (no charts, no report). Charts and a report an earlier run left
 //! in DIR that this run does not write are taken away with the same commit, and listed.
 
 use std::path::PathBuf;
@@ -25,7 +25,7 @@ pub struct Args {
     /// Memo template to use instead of the shipped one (minijinja syntax).
     #[arg(long, value_name = "FILE")]
     pub template: Option<PathBuf>,
-    /// Write the text outputs only: no figures/*.svg and no report.html.
+    /// Write the text outputs and the workbook only: no figures/*.svg and no report.html.
     #[arg(long)]
     pub no_figures: bool,
 }

@@ -40,6 +40,7 @@ pub struct Args {
 const QUIET_START: Duration = Duration::from_secs(1);
 
 pub fn run(args: &Args) -> hurdle::Result<()> {
+    super::note_repeated_sets(&args.universe, &args.overrides);
     let universe = read_universe(&args.universe, &args.overrides)?;
     let out = args.out.clone().unwrap_or_else(|| {
         args.universe

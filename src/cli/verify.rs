@@ -62,6 +62,13 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         hurdle::report::staging::write_outputs(dir, &files, &reads)?;
     }
     print!("{}", render(&report));
+    // As the other commands that write files say where (found by review: compare and verify
+    // did not).
+    if let Some(dir) = &args.out {
+        for name in ["verification.json", "verification.md"] {
+            println!("  wrote {}", dir.join(name).display());
+        }
+    }
     Ok(if report.reproduced {
         ExitCode::SUCCESS
     } else {

@@ -107,10 +107,25 @@ fn type_message(message: &str) -> Option<String> {
         };
         return Some(format!("{value} {why}"));
     }
-    let shown = found
-        .split_once(' ')
-        .map_or(found, |(_, v)| v)
-        .trim_matches('`');
+    // serde names what it found by kind and value ("floating point `1.5`", "boolean `true`",
+    // "string \"x\""), a TOML date or table as "map" and a list as "sequence" (found by review:
+    // the kind was cut at its first space, leaving "point `1.5" and "map").
+    let tick = |v: &str| v.trim_matches('`').to_string();
+    let shown = if let Some(v) =
+        (found.strip_prefix("floating point ")).or_else(|| found.strip_prefix("integer "))
+    {
+        format!("the number {}", tick(v))
+    } else if let Some(v) = found.strip_prefix("boolean ") {
+        tick(v)
+    } else if let Some(v) = found.strip_prefix("string ") {
+        v.to_string()
+    } else {
+        match found {
+            "map" => "a date or a table".to_string(),
+            "sequence" => "a list".to_string(),
+            other => tick(other),
+        }
+    };
     let what = match expected {
         "a sequence" => "a list, written in brackets: [\"2023-03-31\"] or [\"low_r_squared\"]",
         "a string" => "text, written in quotes (\"…\")",
@@ -152,6 +167,12 @@ fn key_message(message: &str) -> Option<String> {
             "debt" => "`debt` is missing here: a peer's debt (`debt = …` in its [[peer]] \
                        table) or the case's [debt] table (README, Case file reference)"
                 .to_string(),
+            // A claim's keys that share a case table's name (found by review: a claim
+            // without its beta was told "the table [beta] is missing").
+            both @ ("beta" | "premiums") => format!(
+                "`{both}` is missing here: the key `{both} = …` of a claim's [claimed] table, \
+                 or the table [{both}] of a case (README, Case file reference)"
+            ),
             table if TABLES.contains(&table) => {
                 format!("the table [{table}] is missing (README, Case file reference)")
             }
@@ -321,6 +342,28 @@ mod tests {
                 "",
                 "true is not what this key takes: it takes text",
             ),
+            // serde's words for a decimal, a TOML date (a "map" to serde) and a list given to
+            // a key of another type (found by review: "point `1.5" and "map").
+            (
+                "invalid type: floating point `1.5`, expected a string",
+                "",
+                "the number 1.5 is not what this key takes: it takes text",
+            ),
+            (
+                "invalid type: map, expected a boolean",
+                "",
+                "a date or a table is not what this key takes: it takes true or false",
+            ),
+            (
+                "invalid type: sequence, expected f64",
+                "",
+                "a list is not what this key takes: it takes a number",
+            ),
+            (
+                "invalid type: string \"x\", expected a boolean",
+                "",
+                "\"x\" is not what this key takes: it takes true or false",
+            ),
             (
                 "unknown field `lookbak`, expected one of `frequency`, `lookback`",
                 "",
@@ -343,6 +386,11 @@ mod tests {
                 "the key `tax_rate` is missing here",
             ),
             ("missing field `case`", "", "the table [case] is missing"),
+            (
+                "missing field `beta`",
+                "",
+                "the key `beta = …` of a claim's [claimed] table, or the table [beta]",
+            ),
             ("missing field `peer`", "", "no [[peer]] table"),
         ];
         for (message, line, expected) in cases {

@@ -32,7 +32,10 @@ pub fn write_new(path: &Path, text: &str) -> Result<()> {
     let staging = tempfile::Builder::new()
         .prefix(".hurdle-staging-")
         .tempdir_in(dir)
-        .map_err(io_error(path, "cannot create a temporary folder beside"))?;
+        .map_err(io_error(
+            path,
+            "cannot be written: no temporary file could be made in its folder",
+        ))?;
     register_temporary(staging.path());
     let _in_use = hold(staging.path());
     let written = write_then_persist(staging.path(), path, text);

@@ -447,7 +447,12 @@ fn staging_folder(dir: &Path) -> Result<tempfile::TempDir> {
     };
     beside()
         .or_else(|_| builder().tempdir_in(dir))
-        .map_err(io_error(dir, "cannot create a temporary folder beside"))
+        // Found by review: "cannot create a temporary folder beside" named no place.
+        .map_err(io_error(
+            dir,
+            "cannot be written: no temporary folder for the outputs could be made beside it or \
+             inside it",
+        ))
 }
 
 /// Whether an entry of `staging` can be moved into `dir` (not across file systems or mounts,

@@ -51,7 +51,7 @@ impl TableFormat {
                 file: path.to_path_buf(),
                 message: format!(
                     "cannot tell the table's format from the extension `.{extension}`; price \
-                     tables are .csv, .parquet, .xlsx, .xlsm, .xls or .ods"
+                     tables are .csv or .txt, .parquet or .pq, .xlsx, .xlsm, .xls or .ods"
                 ),
             }),
         }
