@@ -1100,3 +1100,212 @@ fn a_case_reading_a_hidden_sheet_notes_it() {
     let memo = fs::read_to_string(out.join("memo.md")).unwrap();
     assert!(memo.contains("sheet \"Prices\" is hidden"), "{memo}");
 }
+
+/// `hurdle init TABLE --index Index` into a fresh folder: the output.
+fn init_table(dir: &Path, name: &str, bytes: &[u8]) -> Output {
+    let table = dir.join(name);
+    fs::write(&table, bytes).unwrap();
+    let out = dir.join(format!("{name}.toml"));
+    hurdle(&[
+        "init",
+        table.to_str().unwrap(),
+        "--index",
+        "Index",
+        "--out",
+        out.to_str().unwrap(),
+    ])
+}
+
+/// Twenty rows of `date,Index,Peer A` from 2024-01-01 (weekdays), as a spreadsheet exports.
+fn small_table_rows() -> Vec<String> {
+    let mut day = day(2024, 1, 1);
+    let mut rows = Vec::new();
+    while rows.len() < 20 {
+        use chrono::Datelike;
+        if day.weekday().number_from_monday() <= 5 {
+            let k = rows.len() as f64;
+            rows.push(format!("{day},{:.2},{:.2}", 100.0 + k, 10.0 + 0.3 * k));
+        }
+        day = day.succ_opt().unwrap();
+    }
+    rows
+}
+
+// Wide tables as spreadsheet programs export them (found by review): lines ending in a carriage
+// return alone are named as such (not a panic's exit 101); a header cell wrapped onto a second
+// line inside quotes does not shift the line a later message names; a `sep=,` line above the
+// header is named as a spreadsheet's separator note; a dataframe's unnamed row-index column is
+// left out, as price files leave it; a latest row pasted above an ascending table is itself
+// named out of order.
+#[test]
+fn spreadsheet_exports_of_a_wide_table_are_read_or_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let rows = small_table_rows();
+    let stderr = |output: &Output| String::from_utf8_lossy(&output.stderr).to_string();
+    let with_header = |header: &str, rows: &[String], end: &str| -> String {
+        std::iter::once(header.to_string())
+            .chain(rows.iter().cloned())
+            .collect::<Vec<_>>()
+            .join(end)
+            + end
+    };
+    let cr = init_table(
+        dir.path(),
+        "cr.csv",
+        with_header("date,Index,Peer A", &rows, "\r").as_bytes(),
+    );
+    assert_eq!(cr.status.code(), Some(2), "{}", stderr(&cr));
+    assert!(
+        stderr(&cr).contains("the file's lines end with CR alone"),
+        "{}",
+        stderr(&cr)
+    );
+    // The header's last name wrapped onto a second line: the 12th data row is on line 14.
+    let mut bad = rows.clone();
+    bad[11] = bad[11].rsplit_once(',').unwrap().0.to_string() + ",#N/A";
+    let wrapped = init_table(
+        dir.path(),
+        "wrapped.csv",
+        with_header("date,Index,\"Peer\nA\"", &bad, "\n").as_bytes(),
+    );
+    assert_eq!(wrapped.status.code(), Some(2), "{}", stderr(&wrapped));
+    assert!(
+        stderr(&wrapped).contains("line 14, column `Peer\\nA`"),
+        "{}",
+        stderr(&wrapped)
+    );
+    let sep = init_table(
+        dir.path(),
+        "sep.csv",
+        with_header("sep=,\ndate,Index,Peer A", &rows, "\n").as_bytes(),
+    );
+    assert_eq!(sep.status.code(), Some(2), "{}", stderr(&sep));
+    assert!(
+        stderr(&sep).contains("line 1: `sep=,` is a spreadsheet's note of the separator"),
+        "{}",
+        stderr(&sep)
+    );
+    let indexed: Vec<String> = (rows.iter().enumerate())
+        .map(|(i, r)| format!("{i},{r}"))
+        .collect();
+    let index = init_table(
+        dir.path(),
+        "indexed.csv",
+        with_header(",date,Index,Peer A", &indexed, "\n").as_bytes(),
+    );
+    assert!(index.status.success(), "{}", stderr(&index));
+    assert!(ok(&index).contains("1 peer(s)"), "{}", ok(&index));
+    // 2024-01-26 (the last row) pasted above the rest: line 2 is named, not line 3.
+    let mut order = rows.clone();
+    let latest = order.pop().unwrap();
+    order.insert(0, latest);
+    let moved = init_table(
+        dir.path(),
+        "order.csv",
+        with_header("date,Index,Peer A", &order, "\n").as_bytes(),
+    );
+    assert_eq!(moved.status.code(), Some(2), "{}", stderr(&moved));
+    assert!(
+        stderr(&moved).contains("line 2, column `date`: date 2024-01-26 is out of the order of the rows below it, which run ascending"),
+        "{}",
+        stderr(&moved)
+    );
+}
+
+/// A minimal OpenDocument spreadsheet (mimetype, manifest, content) whose sheet "Prices" holds
+/// `rows` of (date serial, index, peer) under a header, with the null date `null_date`.
+fn ods_with_serial_dates(null_date: &str, rows: &[(f64, f64, f64)]) -> Vec<u8> {
+    use std::io::Write;
+    let cell = |v: f64| {
+        format!(
+            "<table:table-cell office:value-type=\"float\" office:value=\"{v}\"><text:p>{v}</text:p></table:table-cell>"
+        )
+    };
+    let text = |t: &str| {
+        format!("<table:table-cell office:value-type=\"string\"><text:p>{t}</text:p></table:table-cell>")
+    };
+    let mut body = format!(
+        "<table:table-row>{}{}{}</table:table-row>",
+        text("date"),
+        text("Index"),
+        text("Peer A")
+    );
+    for (d, i, p) in rows {
+        body.push_str(&format!(
+            "<table:table-row>{}{}{}</table:table-row>",
+            cell(*d),
+            cell(*i),
+            cell(*p)
+        ));
+    }
+    let content = format!(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\
+         <office:document-content xmlns:office=\"urn:oasis:names:tc:opendocument:xmlns:office:1.0\" \
+         xmlns:table=\"urn:oasis:names:tc:opendocument:xmlns:table:1.0\" \
+         xmlns:text=\"urn:oasis:names:tc:opendocument:xmlns:text:1.0\" office:version=\"1.2\">\
+         <office:body><office:spreadsheet><table:calculation-settings>\
+         <table:null-date table:date-value=\"{null_date}\"/></table:calculation-settings>\
+         <table:table table:name=\"Prices\">{body}</table:table></office:spreadsheet></office:body>\
+         </office:document-content>"
+    );
+    let manifest = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\
+        <manifest:manifest xmlns:manifest=\"urn:oasis:names:tc:opendocument:xmlns:manifest:1.0\">\
+        <manifest:file-entry manifest:full-path=\"/\" manifest:media-type=\"application/vnd.oasis.opendocument.spreadsheet\"/>\
+        </manifest:manifest>";
+    let mut zip = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    let stored =
+        zip::write::SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+    for (name, data) in [
+        ("mimetype", "application/vnd.oasis.opendocument.spreadsheet"),
+        ("META-INF/manifest.xml", manifest),
+        ("content.xml", content.as_str()),
+    ] {
+        zip.start_file(name, stored).unwrap();
+        zip.write_all(data.as_bytes()).unwrap();
+    }
+    zip.finish().unwrap().into_inner()
+}
+
+// An OpenDocument workbook in the 1904 date system (its null date 1904-01-01, as a workbook
+// converted from one in that system keeps) reads its serial dates from 1904: serial 43831 is
+// 2020-01-01 from 1899-12-30 and 2024-01-02 from 1904-01-01 (Python: date(1899,12,30) +
+// timedelta(43831), date(1904,1,1) + timedelta(43831)). Found by review: they were read 1,462
+// days early. Another null date is refused by name.
+#[test]
+fn an_opendocument_workbook_in_the_1904_system_reads_its_dates_from_1904() {
+    let dir = tempfile::tempdir().unwrap();
+    let rows: Vec<(f64, f64, f64)> = (0..20)
+        .map(|k| (43831.0 + k as f64, 100.0 + k as f64, 10.0 + 0.3 * k as f64))
+        .collect();
+    let usual = init_table(
+        dir.path(),
+        "usual.ods",
+        &ods_with_serial_dates("1899-12-30", &rows),
+    );
+    assert!(
+        ok(&usual).contains("(20 dates, 2020-01-01 to 2020-01-20)"),
+        "{}",
+        ok(&usual)
+    );
+    let mac = init_table(
+        dir.path(),
+        "mac.ods",
+        &ods_with_serial_dates("1904-01-01", &rows),
+    );
+    assert!(
+        ok(&mac).contains("(20 dates, 2024-01-02 to 2024-01-21)"),
+        "{}",
+        ok(&mac)
+    );
+    let old = init_table(
+        dir.path(),
+        "old.ods",
+        &ods_with_serial_dates("1900-01-01", &rows),
+    );
+    assert_eq!(old.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&old.stderr).contains("counts its dates from 1900-01-01"),
+        "{}",
+        String::from_utf8_lossy(&old.stderr)
+    );
+}

@@ -9,7 +9,8 @@ use crate::error::{compact as show, Error, Result};
 
 mod hints;
 pub use hints::{
-    column_name_hint, decimal_comma_hint, extra_fields_message, unnamed_value_message,
+    column_name_hint, decimal_comma_hint, extra_fields_message, separator_line,
+    unnamed_value_message,
 };
 
 /// What the numbers in a file are, which decides the range they must lie in.

@@ -21,6 +21,15 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
              Parquet with the .parquet extension"
         )));
     }
+    // A spreadsheet's note of the separator above the header (found by review: an attributes
+    // file's was reported as rows with more fields than the header).
+    if let Some(message) = crate::io::sanity::separator_line(block) {
+        return Err(Error::DataRow {
+            file: source.file.clone(),
+            line: 1,
+            message,
+        });
+    }
     // The first record alone (its end: the first line end outside quotes), so that a later
     // line's field count is not the header's concern.
     let mut in_quotes = false;

@@ -35,6 +35,21 @@ pub fn decimal_comma_hint(name: &str, cell: &str, value: &str) -> Option<String>
     })
 }
 
+/// The message for a file whose first line is a spreadsheet's note of its separator (`sep=,`),
+/// which some spreadsheets write above the header; `None` otherwise.
+pub fn separator_line(bytes: &[u8]) -> Option<String> {
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    let end = memchr::memchr2(b'\n', b'\r', bytes).unwrap_or(bytes.len());
+    let first = String::from_utf8_lossy(&bytes[..end]);
+    let first = first.trim().trim_matches('"');
+    first.starts_with("sep=").then(|| {
+        format!(
+            "`{first}` is a spreadsheet's note of the separator, not the header: delete that \
+             line"
+        )
+    })
+}
+
 /// The part of a "no column named `name`" message that names a header column equal to `name`
 /// but for white space around it (`" security"`), which is otherwise hard to see in the list
 /// of names, or but for capitals (`Date` for `date`); empty when there is none. Column names

@@ -193,6 +193,10 @@ pub struct Place {
     pub first_column: usize,
     /// The header's names, for the column part of a CSV or Parquet reference.
     pub header: Vec<String>,
+    /// The 1-based line each data row starts on, when rows and lines part (a CSV record whose
+    /// quoted field holds a line break: found by review, every later line was named one
+    /// early); empty when data row `r` is on `first_row + r`.
+    pub lines: Vec<usize>,
 }
 
 /// The kind of file a [`Place`] refers to.
@@ -204,6 +208,11 @@ pub enum PlaceKind {
 }
 
 impl Place {
+    /// The line or row number of data row `row`.
+    fn at(&self, row: usize) -> usize {
+        self.lines.get(row).copied().unwrap_or(self.first_row + row)
+    }
+
     /// The cell of data row `row` in header column `column`: `sheet "Prices", cell C17`,
     /// `line 17, column `X``, `row 16, column `X``.
     pub fn cell(&self, row: usize, column: usize) -> String {
@@ -212,10 +221,10 @@ impl Place {
             PlaceKind::Sheet(sheet) => format!(
                 "sheet \"{sheet}\", cell {}{}",
                 column_letters(self.first_column + column),
-                self.first_row + row
+                self.at(row)
             ),
-            PlaceKind::Csv => format!("line {}, column `{name}`", self.first_row + row),
-            PlaceKind::Parquet => format!("row {}, column `{name}`", self.first_row + row),
+            PlaceKind::Csv => format!("line {}, column `{name}`", self.at(row)),
+            PlaceKind::Parquet => format!("row {}, column `{name}`", self.at(row)),
         }
     }
 
@@ -242,8 +251,8 @@ impl Place {
     /// `line 17` of a CSV file.
     pub fn row(&self, row: usize) -> String {
         match self.kind {
-            PlaceKind::Csv => format!("line {}", self.first_row + row),
-            _ => format!("row {}", self.first_row + row),
+            PlaceKind::Csv => format!("line {}", self.at(row)),
+            _ => format!("row {}", self.at(row)),
         }
     }
 
@@ -259,7 +268,7 @@ impl Place {
     /// The cells of column `column` from data row `first` to data row `last`: `D2 to D40` of a
     /// sheet, `lines 2 to 40` of a CSV file, `rows 1 to 39` of a Parquet file.
     pub fn span(&self, column: usize, first: usize, last: usize) -> String {
-        let (a, b) = (self.first_row + first, self.first_row + last);
+        let (a, b) = (self.at(first), self.at(last));
         match self.kind {
             PlaceKind::Sheet(_) => {
                 let letters = column_letters(self.first_column + column);

@@ -15,6 +15,11 @@ use crate::io::parquet_types::unreadable_column;
 
 /// Reads CSV bytes: the first line is the header.
 pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
+    // A spreadsheet's note of the separator above the header, named as such, as price files,
+    // panels and spread tables name it (found by review: it was called a title).
+    if let Some(message) = crate::io::sanity::separator_line(bytes) {
+        return Err(format!("line 1: {message}"));
+    }
     // The shape first, as for a price file of its own: text that is not UTF-8, a row with more
     // fields than the header (a decimal comma) or fewer (a row cut short, whose last columns
     // would read as gaps) and lines ending in a carriage return alone are
@@ -41,9 +46,23 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
     if frame.height() == 0 {
         return Err("is empty: a price table needs a header row and rows of prices".into());
     }
+    // A dataframe's row index written as an unnamed first column (`,date,A,B` over `0,…`,
+    // `1,…`) is no security and is left out, as price files and wide panels leave it (found by
+    // review: a wide table refused it). Only whole numbers below it count as an index.
+    let index_column = frame.columns().first().is_some_and(|first| {
+        let text = first.str().ok();
+        text.is_some_and(|t| {
+            t.get(0).is_none_or(|h| h.trim().is_empty())
+                && frame.width() > 1
+                && t.iter().skip(1).all(|v| {
+                    v.is_some_and(|v| !v.is_empty() && v.trim().bytes().all(|b| b.is_ascii_digit()))
+                })
+        })
+    });
+    let kept = &frame.columns()[usize::from(index_column)..];
     let mut header = Vec::with_capacity(frame.width());
     let mut columns = Vec::with_capacity(frame.width());
-    for column in frame.columns() {
+    for column in kept {
         let text = column
             .str()
             .map_err(|e| format!("not a readable CSV file: {e}"))?;
@@ -64,12 +83,37 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
             first_row: 2,
             first_column: 0,
             header: header.clone(),
+            lines: record_lines(bytes),
         },
         header,
         columns,
         date_system_1904: false,
         notes: Vec::new(),
     })
+}
+
+/// The 1-based line each data record starts on, when a quoted field holds a line break (so
+/// records and lines part); empty otherwise (record `r` is on line `r + 2`). Records end at a
+/// line feed outside quotes, as polars reads them; a blank line is a record of its own.
+fn record_lines(bytes: &[u8]) -> Vec<usize> {
+    if memchr::memchr(b'"', bytes).is_none() {
+        return Vec::new();
+    }
+    let (mut line, mut quoted, mut starts) = (1, false, Vec::new());
+    for &b in bytes {
+        match b {
+            b'"' => quoted = !quoted,
+            b'\n' => {
+                line += 1;
+                if !quoted {
+                    starts.push(line);
+                }
+            }
+            _ => {}
+        }
+    }
+    // The first start is where the header's record ends: data record 0 begins there.
+    starts
 }
 
 /// The message for a title written on the first lines, above the header, when the lines
@@ -96,6 +140,12 @@ fn title_line(bytes: &[u8]) -> Option<String> {
         lines.push((line, record.iter().map(|f| f.trim().to_string()).collect()));
     }
     let (&(first, ref header), below) = lines.split_first()?;
+    // Lines that do not follow one another (a file whose lines end in a carriage return alone
+    // is one line by line feeds): no title to name, the shape check's message stands (found by
+    // review: the subtraction below wrapped and panicked).
+    if below.iter().any(|(line, _)| *line <= first) {
+        return None;
+    }
     let width = lines.iter().map(|(_, fields)| fields.len()).max()?;
     let height = lines.last().map_or(0, |(line, _)| line - first);
     let mut columns = vec![vec![Cell::Empty; height]; width];
@@ -111,6 +161,7 @@ fn title_line(bytes: &[u8]) -> Option<String> {
         first_row: first + 1,
         first_column: 0,
         header: header.clone(),
+        lines: Vec::new(),
     };
     super::header::title_above(&RawTable {
         sheet: None,
@@ -154,6 +205,7 @@ pub(crate) fn read_parquet(bytes: &[u8]) -> Result<RawTable, String> {
             first_row: 1,
             first_column: 0,
             header: header.clone(),
+            lines: Vec::new(),
         },
         header,
         columns,

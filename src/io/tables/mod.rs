@@ -444,14 +444,23 @@ fn check_header(raw: &RawTable) -> std::result::Result<(), String> {
 }
 
 /// The dates run strictly one way (ascending, or descending as many exports are), with no
-/// repeat; the first break is reported with both of its rows.
+/// repeat; the first break is reported with both of its rows. The way is the one most
+/// neighbouring rows take (found by review: it was taken from the first two rows, so a latest
+/// row pasted on top of an ascending table blamed the correct row below it); a break between
+/// the first two rows names the first row as out of place.
 fn check_order(
     dates: &[NaiveDate],
     rows: &[usize],
     place: &Place,
     date_index: usize,
 ) -> std::result::Result<(), String> {
-    let descending = dates.len() > 1 && dates[1] < dates[0];
+    let falling = dates.windows(2).filter(|w| w[1] < w[0]).count();
+    let descending = 2 * falling > dates.len().saturating_sub(1);
+    let way = if descending {
+        "descending"
+    } else {
+        "ascending"
+    };
     for k in 1..dates.len() {
         let (before, here) = (dates[k - 1], dates[k]);
         let this = place.cell(rows[k], date_index);
@@ -459,6 +468,13 @@ fn check_order(
         if here == before {
             return Err(format!(
                 "{this}: duplicate date {here} (also in {that}); each date may appear once"
+            ));
+        }
+        if (here < before) != descending && k == 1 && dates.len() > 2 {
+            return Err(format!(
+                "{that}: date {before} is out of the order of the rows below it, which run \
+                 {way} from {here} ({this}); rows must run in ascending (or descending) date \
+                 order throughout — the table is never re-sorted silently"
             ));
         }
         if (here < before) != descending {

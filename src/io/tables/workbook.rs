@@ -51,10 +51,13 @@ pub(crate) fn read_sheet(
         "ods" => load::<Ods<_>>(bytes, sheet, &extension),
         _ => load::<Xlsx<_>>(bytes, sheet, &extension),
     });
-    let (name, range, system_1904, notes) = match loaded {
+    let (name, range, mut system_1904, notes) = match loaded {
         Ok(loaded) => loaded?,
         Err(reason) => return Err(format!("is a damaged .{extension} workbook: {reason}")),
     };
+    if extension == "ods" {
+        system_1904 = ods_null_date(bytes)?;
+    }
     let mut table = from_range(name, range)?;
     table.date_system_1904 = system_1904;
     table.notes = notes;
@@ -85,6 +88,7 @@ impl<RS: Read + Seek> Book<RS> for Xls<RS> {
 }
 
 impl<RS: Read + Seek> Book<RS> for Ods<RS> {
+    /// Read from the package by [`ods_null_date`]: calamine does not say.
     fn system_1904(&self) -> bool {
         false
     }
@@ -129,6 +133,47 @@ impl<RS: Read + Seek> Book<RS> for Xlsx<RS> {
         let each = cells.iter().map(|c| (c.get_position(), c.get_value()));
         check_span(name, each)?;
         Ok(Range::from_sparse(cells))
+    }
+}
+
+/// Whether an OpenDocument workbook counts its date serials from 1904-01-01: its
+/// `table:null-date` (OpenDocument 1.2, part 1, 9.4.2, from memory), which a workbook converted
+/// from one in the 1904 system keeps (found by review: such a workbook's serial dates were read
+/// 1,462 days early, without a word). Absent, or 1899-12-30, is the usual system. Another null
+/// date (1900-01-01, an old option) is refused, since serials would be read days off. The
+/// setting sits in `content.xml` before the first sheet, so only that much is read.
+fn ods_null_date(bytes: &[u8]) -> Result<bool, String> {
+    let damaged = |e: &dyn std::fmt::Display| format!("is a damaged .ods workbook: {e}");
+    let mut package = zip::ZipArchive::new(Cursor::new(bytes)).map_err(|e| damaged(&e))?;
+    let mut content = package.by_name("content.xml").map_err(|e| damaged(&e))?;
+    let (mut seen, mut chunk) = (Vec::new(), vec![0u8; 1 << 16]);
+    let setting = loop {
+        let read = content.read(&mut chunk).map_err(|e| damaged(&e))?;
+        seen.extend_from_slice(&chunk[..read]);
+        let text = String::from_utf8_lossy(&seen);
+        if let Some(at) = text.find("<table:null-date") {
+            let element = &text[at..];
+            if let Some(end) = element.find('>') {
+                let value = element[..end]
+                    .split("table:date-value=\"")
+                    .nth(1)
+                    .and_then(|v| v.split('"').next())
+                    .map(|v| v.get(..10).unwrap_or(v).to_string());
+                break value;
+            }
+        }
+        if read == 0 || text.contains("<table:table ") {
+            break None;
+        }
+    };
+    match setting.as_deref() {
+        None | Some("1899-12-30") => Ok(false),
+        Some("1904-01-01") => Ok(true),
+        Some(other) => Err(format!(
+            "counts its dates from {other} (its null date, a setting of the workbook), which \
+             hurdle does not read: set the workbook's null date to 1899-12-30 (the usual), or \
+             save the table as .xlsx or CSV"
+        )),
     }
 }
 
@@ -353,6 +398,7 @@ fn from_range(sheet: String, range: Range<Data>) -> Result<RawTable, String> {
             first_row: start_row as usize + header_at + 2,
             first_column: start_column as usize,
             header: header.clone(),
+            lines: Vec::new(),
         },
         header,
         columns,
