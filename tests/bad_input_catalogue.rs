@@ -965,6 +965,39 @@ fn spread_tables() -> Vec<Bad> {
             ],
             [RATING, "{line}", "abc"]
         ),
+        // Found by review: both were "line 1: not UTF-8 text" alone.
+        bad!(
+            "spread table saved as UTF-16",
+            |s| {
+                let wide: Vec<u8> = [0xFF, 0xFE]
+                    .into_iter()
+                    .chain(s.read(RATING).encode_utf16().flat_map(u16::to_le_bytes))
+                    .collect();
+                s.write(RATING, wide);
+            },
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating"
+            ],
+            [RATING, "UTF-16", "not CSV text"]
+        ),
+        bad!(
+            "spread table that is a workbook",
+            |s| s.write(RATING, b"PK\x03\x04 the rest of a workbook's package"),
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating"
+            ],
+            [RATING, "a workbook", "not CSV text"]
+        ),
         bad!(
             "spread table separated by semicolons",
             |s| { s.map_lines(RATING, |_, l| l.replace(',', ";")) },

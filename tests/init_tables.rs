@@ -324,8 +324,8 @@ fn a_first_column_of_numbers_points_to_the_column_of_dates() {
     let stderr = folder.init_fails(&csv, &["--index", "Index"]);
     assert!(
         stderr.contains(
-            "index_first.csv: line 4, column `Index`: date 1900-04-10 breaks the order of the \
-             dates above it (1900-04-08 in line 3, column `Index`)"
+            "index_first.csv: line 2, column `Index`: date 1900-04-09 is out of the order of \
+             the rows below it, which run ascending from 1900-04-08 (line 3, column `Index`)"
         ),
         "{stderr}"
     );

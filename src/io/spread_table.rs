@@ -56,6 +56,13 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
         file: path.to_path_buf(),
         message,
     };
+    // A workbook or "Unicode text" given as the table is named as what it is, as price files
+    // and panels name it (found by review: "line 1: not UTF-8 text" alone).
+    if let Some(kind) = crate::io::encoding::binary_kind(&bytes) {
+        return Err(file_error(format!(
+            "the file is {kind}, not CSV text: save the table as CSV (comma-separated, UTF-8)"
+        )));
+    }
     let text = String::from_utf8(bytes).map_err(|e| {
         let valid = &e.as_bytes()[..e.utf8_error().valid_up_to()];
         let line = valid.iter().filter(|&&b| b == b'\n').count() + 1;

@@ -254,6 +254,9 @@ where
     if extension != "ods" {
         if let Ok(formulas) = workbook.worksheet_formula(&name) {
             check_formulas(&name, &formulas, &range)?;
+            if extension != "xls" && recalculates_on_load(bytes) {
+                check_placeholder_results(&name, &formulas, &range)?;
+            }
         }
     }
     let mut notes = Vec::new();
@@ -317,6 +320,64 @@ fn check_formulas(name: &str, formulas: &Range<String>, range: &Range<Data>) -> 
             formula.trim_start_matches('=')
         )),
         None => Ok(()),
+    }
+}
+
+/// Whether an `.xlsx` workbook asks to be recalculated when opened (`fullCalcOnLoad` on its
+/// `calcPr`, ECMA-376 Part 1, 18.2.2, from memory): what a library that writes formulas without
+/// calculating them sets, storing a placeholder result (0) for each.
+fn recalculates_on_load(bytes: &[u8]) -> bool {
+    let Ok(mut package) = zip::ZipArchive::new(Cursor::new(bytes)) else {
+        return false;
+    };
+    let Ok(mut part) = package.by_name("xl/workbook.xml") else {
+        return false;
+    };
+    let mut text = String::new();
+    if part.read_to_string(&mut text).is_err() {
+        return false;
+    }
+    text.find("<calcPr").is_some_and(|at| {
+        let element = &text[at..];
+        let element = &element[..element.find('>').unwrap_or(element.len())];
+        element.contains("fullCalcOnLoad=\"1\"") || element.contains("fullCalcOnLoad=\"true\"")
+    })
+}
+
+/// Refuses formulas whose saved results are all 0 in a workbook that asks to be recalculated
+/// when opened: placeholders its writer stored without calculating, not results (found by
+/// review: a yield column of such formulas was read as rates of 0 without a word). A price of
+/// 0 is refused anyway; this names the cause.
+fn check_placeholder_results(
+    name: &str,
+    formulas: &Range<String>,
+    range: &Range<Data>,
+) -> Result<(), String> {
+    let (first_row, first_column) = formulas.start().unwrap_or((0, 0));
+    let with_results: Vec<(usize, usize, &String, Option<&Data>)> = formulas
+        .cells()
+        .filter(|(_, _, formula)| !formula.is_empty())
+        .map(|(row, column, formula)| {
+            let at = (first_row + row as u32, first_column + column as u32);
+            (row, column, formula, range.get_value(at))
+        })
+        .collect();
+    let zero = |value: Option<&Data>| match value {
+        Some(Data::Float(v)) => *v == 0.0,
+        Some(Data::Int(v)) => *v == 0,
+        _ => false,
+    };
+    match with_results.first() {
+        Some(&(row, column, formula, _)) if with_results.iter().all(|c| zero(c.3)) => Err(format!(
+            "sheet \"{name}\", cell {}{} holds the formula `={}` whose saved result, 0 as for \
+             every formula of the sheet, is a placeholder: the workbook asks to be recalculated \
+             when opened (its writer did not calculate it); open it in its spreadsheet \
+             program, let it calculate, and save it again",
+            super::cells::column_letters(first_column as usize + column),
+            first_row as usize + row + 1,
+            formula.trim_start_matches('=')
+        )),
+        _ => Ok(()),
     }
 }
 
