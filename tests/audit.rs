@@ -773,6 +773,22 @@ fn a_run_says_when_it_replaces_another_valuation() {
         "{}",
         text(&output)
     );
+    // A result.json of another tool's is replaced, and the run says so (found by review: it
+    // was replaced without a word).
+    let foreign = dir.path().join("foreign");
+    std::fs::create_dir_all(&foreign).unwrap();
+    std::fs::write(foreign.join("result.json"), r#"{"mine": true}"#).unwrap();
+    let output = hurdle(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        foreign.to_str().unwrap(),
+    ]);
+    assert!(
+        text(&output).contains("replaced a result.json that was no hurdle receipt"),
+        "{}",
+        text(&output)
+    );
     // A universe's receipt in the folder: named as such, and its tables taken away with it (they
     // would sit beside the case's receipt as if it had written them); a file of the user's own
     // stays.

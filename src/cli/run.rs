@@ -47,6 +47,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         .clone()
         .unwrap_or_else(|| args.case.default_output_dir());
     let earlier = report::earlier::earlier_receipt(&out);
+    let foreign = report::earlier::holds_a_foreign_result(&out);
     let mut stage = report::staging::Stage::begin(&out, &reads)?;
     let names = report::render_run(&valuation, memo, !args.no_figures, &stage)?;
     let stale = report::stale_run_outputs(&out, &names, earlier.as_ref());
@@ -74,6 +75,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
                     .unwrap_or_default()
             ),
         }
+    }
+    if foreign {
+        println!("  replaced a result.json that was no hurdle receipt");
     }
     for name in &stale {
         let why = match report::VERIFICATION.contains(&name.as_str()) {

@@ -76,6 +76,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let result = evaluate(&inputs, &super::timestamp(), &|n| estimating.advance(n))?;
     estimating.bar.finish_and_clear();
     let earlier = hurdle::report::earlier::earlier_receipt(&out);
+    let foreign = hurdle::report::earlier::holds_a_foreign_result(&out);
     let (written, stale) = write_outputs(&out, &result, &reads)?;
     print!("{}", summary(&result));
     for path in written {
@@ -87,6 +88,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
              taken away",
             e.case_file, e.valuation_date
         );
+    }
+    if foreign {
+        println!("  replaced a result.json that was no hurdle receipt");
     }
     for name in &stale {
         let why = match hurdle::report::VERIFICATION.contains(&name.as_str()) {

@@ -59,6 +59,13 @@ pub fn holds_an_earlier_run(dir: &Path) -> bool {
         .is_ok_and(|receipt| receipt["tool"]["name"] == env!("CARGO_PKG_NAME"))
 }
 
+/// Whether `dir` holds a `result.json` that is no hurdle receipt (another tool's file, or one
+/// cut short): a run replaces it, and says so (found by review: it was replaced without a
+/// word, while another run's receipt was named).
+pub fn holds_a_foreign_result(dir: &Path) -> bool {
+    dir.join("result.json").is_file() && !holds_an_earlier_run(dir)
+}
+
 /// A temporary folder opened and locked for as long as the returned file lives (an advisory
 /// lock, released when the process ends however it ends), so that a later run can tell a folder
 /// in use from one a killed run left ([`remove_abandoned`]). `None` where folders cannot be
