@@ -66,7 +66,21 @@ fn main() -> ExitCode {
         }
         default_hook(info);
     }));
-    let parsed = cli::Cli::parse();
+    // Help, the version and argument errors printed as clap prints them, but a failure to print
+    // is the destination's error (found by review: `--help > /dev/full` exited 0): exit 2, or
+    // 141 for a closed pipe, as any other output.
+    let parsed = match cli::Cli::try_parse() {
+        Ok(parsed) => parsed,
+        Err(error) => {
+            if let Err(failure) = error.print() {
+                std::process::exit(match failure.kind() {
+                    std::io::ErrorKind::BrokenPipe => 141,
+                    _ => 2,
+                });
+            }
+            std::process::exit(error.exit_code());
+        }
+    };
     match cli::run(parsed) {
         Ok(code) => code,
         Err(error @ hurdle::Error::Interrupted) => {

@@ -384,6 +384,21 @@ fn a_full_standard_output_is_an_error_not_a_panic() {
     );
 }
 
+// Help printed to a full device fails as any other output does, exit 2 (found by review: 0).
+#[test]
+fn help_on_a_full_standard_output_is_an_error() {
+    let Ok(full) = std::fs::OpenOptions::new().write(true).open("/dev/full") else {
+        return; // Not Linux: there is no always-full device to write to.
+    };
+    let output = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .arg("--help")
+        .stdout(full)
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    assert!(hurdle(&["--help"]).status.success());
+}
+
 // Standard error on a full device: an error still exits 2 (its message lost), and a success
 // whose note cannot be printed still exits 0, not a panic's 101 (found by review).
 #[test]
