@@ -2317,6 +2317,18 @@ fn a_window_given_twice_is_refused_or_noted_as_in_a_case() {
         &["beta.flag_r_squared_floor=2"],
         &["universe.toml: after applying --set beta.flag_r_squared_floor=2: "],
     );
+    // The file's own value stays the file's, whatever other --set is given (found by review:
+    // every --set was blamed).
+    refused(
+        |dir| {
+            let path = dir.join("universe.toml");
+            let text = fs::read_to_string(&path).unwrap();
+            let text = text.replacen("[beta]\n", "[beta]\nflag_r_squared_floor = 2\n", 1);
+            fs::write(&path, text).unwrap();
+        },
+        &["beta.min_observations=100"],
+        &["universe.toml: beta.flag_r_squared_floor = 2"],
+    );
     let setup = Setup::new();
     let plain = setup.succeeds("plain", &[]);
     let noted = setup.succeeds("noted", &["beta.lookback=300"]);

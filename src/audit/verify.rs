@@ -48,7 +48,10 @@ for a comparison by eye";
 /// formula's source and its written form, the distribution of the draws), where that value is
 /// compared; and the run's `notes`, sentences for the reader whose counts the receipt records
 /// as figures (`periods_dropped` and its reasons, the flags), also when a version adds or
-/// drops a note. A later version may
+/// drops a note; and a `reason`, the words for why a figure beside it could not be computed
+/// (a specification, a peer left out or put back, a grid cell), whose figure (null or a
+/// number) is compared on its own (found by review: 0.12.0's longer words for a peer of too
+/// few returns failed a 0.11.0 receipt). A later version may
 /// word them better; a receipt written before still reproduces, with the differences listed as
 /// wording. Any change of the setting itself still fails the verification through its value.
 pub const WORDING_KEYS: &[&str] = &[
@@ -62,6 +65,7 @@ pub const WORDING_KEYS: &[&str] = &[
     "beta_distribution",
     "notes",
     "label",
+    "reason",
 ];
 
 /// What sentences that differ mean when this very version wrote the receipt from the same

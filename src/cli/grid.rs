@@ -94,8 +94,15 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     // write prints only its error (found by review: the table came first, then the error).
     // The folder's refusals are worded for `--out`; here the user named a file (found by
     // review: "output folder : writing case.toml there would overwrite case.toml").
+    // Only the refusals of the file itself, and only when the user named it (found by review:
+    // a refusal of the default folder was put down to a --csv never given).
+    let name = file.0.clone();
     hurdle::report::staging::write_outputs(&dir, &[file], &reads).map_err(|error| match error {
-        hurdle::Error::Argument { option, message } if option.starts_with("output folder") => {
+        hurdle::Error::Argument { option, message }
+            if args.csv.is_some()
+                && option.starts_with("output folder")
+                && message.contains(&name) =>
+        {
             hurdle::Error::Argument {
                 option: format!("--csv {}", path.display()),
                 message: message.replace("choose another output folder", "choose another file"),

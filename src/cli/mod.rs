@@ -120,7 +120,9 @@ impl CaseArgs {
 /// peer by index and by name): the later wins, as the receipt's recorded order reapplies it.
 /// A file that cannot be read or parsed is left to the reader's own message.
 pub fn note_repeated_sets(file: &std::path::Path, overrides: &[String]) {
-    if overrides.len() < 2 {
+    // Only a regular file is read ahead: a pipe or a FIFO gives its text once, to the reader
+    // (found by review: a case piped in with two --set read as empty, a FIFO hung).
+    if overrides.len() < 2 || !file.is_file() {
         return;
     }
     let Some(table) =

@@ -259,16 +259,9 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
             }
         })?;
     }
-    // A value a `--set` gave is blamed on the `--set`, not on the file (found by review), as
-    // a case's checks do.
-    validate(&settings).map_err(|message| match overrides.is_empty() {
-        true => file_error(message),
-        false => Error::AfterOverrides {
-            file: path.to_path_buf(),
-            overrides: overrides.to_vec(),
-            message,
-        },
-    })?;
+    // A value a `--set` gave is blamed on that `--set`, a value of the file's own on the file
+    // (found by review, twice), as a case's checks do.
+    validate(&settings).map_err(|message| case::blamed(path, overrides, message))?;
     Ok(Universe {
         settings,
         path: path.to_path_buf(),

@@ -271,6 +271,7 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         &peer_files,
         &inputs.index,
         window,
+        settings.beta.frequency,
     ));
     notes.extend(crate::case::sanity::file_end_notes(
         &inputs.index,
@@ -312,7 +313,7 @@ fn failure_message(
                 file.path,
                 file.first_date,
                 file.last_date
-            ) + &sparse_prices_hint(file, index, window)
+            ) + &sparse_prices_hint(file, index, window, spec.frequency)
         }
         EstimateError::FlatIndex { periods } => format!(
             "the market index returns ({}) have zero variance over the {periods} periods aligned \
@@ -327,14 +328,16 @@ fn failure_message(
 /// Why a peer lost its returns when its prices come further apart than the index's (the rule
 /// of `case::sanity::peer_cadence_note`), or nothing (found by review: a peer of weekly
 /// prices in a daily case was refused with "peer price missing" alone).
-fn sparse_prices_hint(file: &DataFile, index: &DataFile, window: &Window) -> String {
-    let bounds = (window.start(), window.end());
-    let mean_gap = |f: &DataFile| crate::case::sanity::prices::mean_gap(&f.series.dates, bounds);
-    let index_gap = mean_gap(index).unwrap_or(1.0);
-    match mean_gap(file) {
-        Some(gap) if gap > 3.0 && gap > 1.5 * index_gap => format!(
-            " Its prices in the window come every {} calendar days on average, the index's \
-             every {}: give the peer's price for every trading day, or choose beta.frequency \
+fn sparse_prices_hint(
+    file: &DataFile,
+    index: &DataFile,
+    window: &Window,
+    frequency: crate::market::sampling::Frequency,
+) -> String {
+    match crate::case::sanity::window::sparse_peer(file, index, window, frequency) {
+        Some((gap, index_gap)) => format!(
+            " Its prices in the window come every {} calendar days (the median gap), the \
+             index's every {} on average: give the peer's price for every trading day, or choose beta.frequency \
              to match its prices.",
             crate::error::rounded(gap, 1),
             crate::error::rounded(index_gap, 1)

@@ -98,8 +98,26 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 12] =
+const KNOWN_CHANGES: [KnownChange; 13] =
     [
+        // Found by review: a receipt of 0.11.0 whose index was flat for a stretch failed on
+        // its peers' stability with nothing pointing to the change.
+        KnownChange {
+            version: "0.12.0",
+            kind: "case",
+            paths: &["peers[].stability"],
+            explain: |_, _| {
+                Some(
+                    "hurdle 0.12.0 skips a rolling window whose index returns are the same to \
+                     rounding before the risk-free rate, as the full window is refused; an \
+                     earlier version fitted such a window (to the rate's variation, or to \
+                     rounding), so a peer's rolling stability figures move where the index was \
+                     flat for a window's length (README, Changelog, \"Inputs as analysts export \
+                     them\")"
+                        .to_string(),
+                )
+            },
+        },
         KnownChange {
             version: "0.11.0",
             kind: "case",
@@ -494,6 +512,22 @@ mod tests {
             ),
             0
         );
+    }
+
+    // 0.12.0's skipped flat rolling windows: named for a case receipt of 0.11.0 whose peers'
+    // stability differs, not for another figure, nor for a receipt of 0.12.0.
+    #[test]
+    fn skipped_flat_rolling_windows_are_named_on_a_peers_stability() {
+        let stability = mismatch("peers[2].stability.min");
+        let beta = mismatch("peers[2].beta");
+        let empty = json!({});
+        let found =
+            |versions, m: &Mismatch| known_changes("case", versions, &[m], (&empty, &empty));
+        let named = found(("0.11.0", "0.12.0"), &stability);
+        assert_eq!(named.len(), 1);
+        assert!(named[0].starts_with("hurdle 0.12.0 skips a rolling window"));
+        assert!(found(("0.11.0", "0.12.0"), &beta).is_empty());
+        assert!(found(("0.12.0", "0.12.0"), &stability).is_empty());
     }
 
     // 0.11.0's lagged_response flag: named for a universe receipt of 0.10.0 whose counts

@@ -90,6 +90,37 @@ pub fn mean_gap(dates: &[NaiveDate], (start, end): (NaiveDate, NaiveDate)) -> Op
     Some(span / (inside.len() - 1) as f64)
 }
 
+/// The median of the calendar days between consecutive `dates` inside `[start, end]` (1 for
+/// a market's trading days, 7 for weekly prices, about 30 for month-ends), which a late first
+/// price or a long gap does not move; `None` with fewer than three dates there.
+pub fn median_gap(dates: &[NaiveDate], (start, end): (NaiveDate, NaiveDate)) -> Option<f64> {
+    let from = dates.partition_point(|&d| d < start);
+    let to = dates.partition_point(|&d| d <= end);
+    let inside = dates.get(from..to).filter(|d| d.len() >= 3)?;
+    let mut gaps: Vec<i64> = inside
+        .windows(2)
+        .map(|w| (w[1] - w[0]).num_days())
+        .collect();
+    let middle = gaps.len() / 2;
+    let (_, median, _) = gaps.select_nth_unstable(middle);
+    Some(*median as f64)
+}
+
+/// The median of the calendar days by which the last of `dates` on or before each sample point
+/// precedes it, over the points from the first date on (0 for prices on the sample points,
+/// about 3 for Friday prices at month-ends); `None` when no point has a date before it.
+pub fn median_staleness(dates: &[NaiveDate], points: &[NaiveDate]) -> Option<f64> {
+    let mut days: Vec<i64> = (points.iter())
+        .filter_map(|&point| {
+            let at = dates.partition_point(|&d| d <= point);
+            at.checked_sub(1)
+                .map(|last| (point - dates[last]).num_days())
+        })
+        .collect();
+    let middle = days.len() / 2;
+    (!days.is_empty()).then(|| *days.select_nth_unstable(middle).1 as f64)
+}
+
 /// The run of unchanged prices that ends a series, counted from the window's start.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct FlatEnd {

@@ -76,24 +76,25 @@ pub fn peer_cadence_note(
     peers: &[(&str, &crate::io::series::DataFile)],
     index: &crate::io::series::DataFile,
     window: &crate::estimate::Window,
+    frequency: crate::market::sampling::Frequency,
 ) -> Option<String> {
-    let bounds = (window.start(), window.end());
-    let index_gap = super::prices::mean_gap(&index.series.dates, bounds).unwrap_or(1.0);
+    let mut index_gap = None;
     let sparse: Vec<String> = (peers.iter())
         .filter_map(|(name, file)| {
-            let gap = super::prices::mean_gap(&file.series.dates, bounds)?;
-            (gap > 3.0 && gap > 1.5 * index_gap).then(|| {
-                format!(
-                    "{name} ({}) every {}",
-                    file.path,
-                    crate::error::rounded(gap, 1)
-                )
-            })
+            let (gap, of_index) = sparse_peer(file, index, window, frequency)?;
+            index_gap = Some(of_index);
+            Some(format!(
+                "{name} ({}) every {}",
+                file.path,
+                crate::error::rounded(gap, 1)
+            ))
         })
         .collect();
+    let index_gap = index_gap?;
     (!sparse.is_empty()).then(|| {
         format!(
-            "Calendar days per price in the window on average, against {} for the index: {}. \
+            "Calendar days between a peer's prices in the window (the median gap), against {} \
+             on average for the index: {}. \
              Weekly or monthly prices among the index's daily ones, or a share that seldom \
              trades? A period's price may then be days older than the index's, which \
              misaligns the returns (under daily returns most days have none; \
@@ -103,6 +104,31 @@ pub fn peer_cadence_note(
             sparse.join("; ")
         )
     })
+}
+
+/// A peer's calendar days per price in the window and the index's, when the peer's are sparse
+/// for the returns asked of it: the median gap between its consecutive prices (so that a late
+/// listing or a long suspension does not count) above 3 days and above 1.5 times the index's
+/// mean gap, and either above 1.5 times the calendar days of one return period of `frequency`
+/// or, at the median sample point, more than 2 days old (Friday prices at month-ends). Found by
+/// review: month-end prices under monthly returns, sampled in full, were noted, and a daily
+/// peer with a long suspension was said to have a price every 3.1 days.
+pub fn sparse_peer(
+    file: &crate::io::series::DataFile,
+    index: &crate::io::series::DataFile,
+    window: &crate::estimate::Window,
+    frequency: crate::market::sampling::Frequency,
+) -> Option<(f64, f64)> {
+    let bounds = (window.start(), window.end());
+    let index_gap = super::prices::mean_gap(&index.series.dates, bounds).unwrap_or(1.0);
+    let gap = super::prices::median_gap(&file.series.dates, bounds)?;
+    let period = 365.25 / frequency.periods_per_year();
+    let stale = || {
+        super::prices::median_staleness(&file.series.dates, window.period_ends())
+            .is_some_and(|days| days > 2.0)
+    };
+    (gap > 3.0 && gap > 1.5 * index_gap && (gap > 1.5 * period || stale()))
+        .then_some((gap, index_gap))
 }
 
 /// A return window shorter than this many years is noted (common practice estimates betas over

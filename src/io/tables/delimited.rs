@@ -48,17 +48,20 @@ pub(crate) fn read_csv(bytes: &[u8]) -> Result<RawTable, String> {
     }
     // A dataframe's row index written as an unnamed first column (`,date,A,B` over `0,…`,
     // `1,…`) is no security and is left out, as price files and wide panels leave it (found by
-    // review: a wide table refused it). Only whole numbers below it count as an index.
-    let index_column = frame.columns().first().is_some_and(|first| {
-        let text = first.str().ok();
-        text.is_some_and(|t| {
-            t.get(0).is_none_or(|h| h.trim().is_empty())
-                && frame.width() > 1
-                && t.iter().skip(1).all(|v| {
-                    v.is_some_and(|v| !v.is_empty() && v.trim().bytes().all(|b| b.is_ascii_digit()))
-                })
-        })
-    });
+    // review: a wide table refused it). Only the counts 0, 1, 2, … (or 1, 2, 3, …) make an
+    // index: serial dates under a blank header are named as an unnamed column, as before.
+    let index_column = frame.width() > 1
+        && frame.columns().first().is_some_and(|first| {
+            first.str().ok().is_some_and(|t| {
+                let counts: Vec<Option<u64>> = (t.iter().skip(1))
+                    .map(|v| v.and_then(|v| v.trim().parse().ok()))
+                    .collect();
+                let from = counts.first().copied().flatten();
+                t.get(0).is_none_or(|h| h.trim().is_empty())
+                    && matches!(from, Some(0 | 1))
+                    && (counts.iter().enumerate()).all(|(i, c)| *c == from.map(|f| f + i as u64))
+            })
+        });
     let kept = &frame.columns()[usize::from(index_column)..];
     let mut header = Vec::with_capacity(frame.width());
     let mut columns = Vec::with_capacity(frame.width());

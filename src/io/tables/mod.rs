@@ -454,8 +454,11 @@ fn check_order(
     place: &Place,
     date_index: usize,
 ) -> std::result::Result<(), String> {
+    // Equal neighbours (a repeated date) take no side (found by review: they counted as
+    // rising, so a short descending table with a repeat was called ascending).
     let falling = dates.windows(2).filter(|w| w[1] < w[0]).count();
-    let descending = 2 * falling > dates.len().saturating_sub(1);
+    let rising = dates.windows(2).filter(|w| w[1] > w[0]).count();
+    let descending = falling > rising;
     let way = if descending {
         "descending"
     } else {

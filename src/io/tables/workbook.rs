@@ -154,12 +154,8 @@ fn ods_null_date(bytes: &[u8]) -> Result<bool, String> {
         if let Some(at) = text.find("<table:null-date") {
             let element = &text[at..];
             if let Some(end) = element.find('>') {
-                let value = element[..end]
-                    .split("table:date-value=\"")
-                    .nth(1)
-                    .and_then(|v| v.split('"').next())
+                break attribute(&element[..end], "table:date-value")
                     .map(|v| v.get(..10).unwrap_or(v).to_string());
-                break value;
             }
         }
         if read == 0 || text.contains("<table:table ") {
@@ -175,6 +171,23 @@ fn ods_null_date(bytes: &[u8]) -> Result<bool, String> {
              save the table as .xlsx or CSV"
         )),
     }
+}
+
+/// The value of the XML attribute `name` in an element's text, quoted either way, with white
+/// space allowed around its `=` (found by review: single quotes were missed).
+fn attribute<'a>(element: &'a str, name: &str) -> Option<&'a str> {
+    let mut rest = element;
+    while let Some(at) = rest.find(name) {
+        let after = rest[at + name.len()..].trim_start();
+        if let Some(value) = after.strip_prefix('=') {
+            let value = value.trim_start();
+            let quote = value.chars().next().filter(|c| *c == '"' || *c == '\'')?;
+            let value = &value[1..];
+            return value.find(quote).map(|end| &value[..end]);
+        }
+        rest = &rest[at + name.len()..];
+    }
+    None
 }
 
 /// Refuses cells whose rectangle spans more than [`MAX_SHEET_CELLS`], naming the cells that
@@ -369,10 +382,12 @@ fn check_placeholder_results(
     };
     match with_results.first() {
         Some(&(row, column, formula, _)) if with_results.iter().all(|c| zero(c.3)) => Err(format!(
-            "sheet \"{name}\", cell {}{} holds the formula `={}` whose saved result, 0 as for \
-             every formula of the sheet, is a placeholder: the workbook asks to be recalculated \
-             when opened (its writer did not calculate it); open it in its spreadsheet \
-             program, let it calculate, and save it again",
+            "sheet \"{name}\", cell {}{} holds the formula `={}` whose saved result is 0, as \
+             for every formula of the sheet, in a workbook that asks to be recalculated when \
+             opened: a placeholder, as libraries that write formulas without calculating them \
+             store it, which hurdle cannot tell from a result; open the workbook in its \
+             spreadsheet program, let it calculate, and save it again (results that are truly \
+             0 can be saved as values)",
             super::cells::column_letters(first_column as usize + column),
             first_row as usize + row + 1,
             formula.trim_start_matches('=')
