@@ -790,3 +790,26 @@ fn empty_lines_after_the_last_row_leave_every_figure_alone() {
         assert_eq!(at(&padded), at(&plain), "{figure}");
     }
 }
+
+// Newey–West lags of 12 need windows of more than 48 observations (the lags below a quarter of
+// them, README "[beta]"); the demo's rolling windows hold 30 (half its 60-period window), so the
+// memo says why there is no rolling line, not "fewer than two rolling windows with enough
+// observations" (found by review: that pointed at the observations).
+#[test]
+fn no_rolling_window_under_long_newey_west_lags_says_why() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    common::run_case_with(
+        Path::new(DEMO_CASE),
+        &out,
+        &["beta.std_errors=newey-west", "beta.newey_west_lags=12"],
+    );
+    let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    assert!(
+        memo.contains(
+            "no rolling window: beta.newey_west_lags = 12 needs more than 48 observations in a \
+             window (the lags below a quarter of them), and a rolling window of 30 periods"
+        ),
+        "{memo}"
+    );
+}

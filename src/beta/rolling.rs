@@ -70,24 +70,43 @@ pub struct RollingSpec {
     pub min_observations: usize,
 }
 
-/// Rolling betas of `asset` on `market` (and the lagged and led market columns `shifted` that
-/// Dimson and Scholes–Williams use, as `sampling::align_with_shifts` builds them; `market_raw`
-/// is the index's own returns before any risk-free rate, the same periods) observed at
-/// `observed` (ascending dates, a subset of `period_ends`, the grid's return period ends).
-/// Windows with fewer than `spec.min_observations` observations, or too few for the estimator
-/// (as the full-window estimate requires: more than the coefficients, Newey–West lags and
-/// shifted columns each below N/4), are skipped, and so are windows whose index returns, raw
-/// or in excess of the rate, are all the same to rounding, as the full window's estimate
-/// refuses a flat index (a flat index under a moving rate leaves the rate's variation alone).
+/// The returns one security's rolling betas rest on, all over the same aligned periods.
+#[derive(Debug, Clone, Copy)]
+pub struct RollingSeries<'a> {
+    /// The security's returns, in excess of the rate when there is one.
+    pub asset: &'a [f64],
+    /// The index's returns, in excess of the rate when there is one.
+    pub market: &'a [f64],
+    /// The security's and the index's own returns, before any rate.
+    pub asset_raw: &'a [f64],
+    pub market_raw: &'a [f64],
+    /// The lagged and led market columns Dimson and Scholes–Williams use, as
+    /// `sampling::align_with_shifts` builds them.
+    pub shifted: &'a [ShiftedMarket],
+}
+
+/// Rolling betas of `series.asset` on `series.market` observed at `observed` (ascending dates,
+/// a subset of `period_ends`, the grid's return period ends). Windows with fewer than
+/// `spec.min_observations` observations, or too few for the estimator (as the full-window
+/// estimate requires: more than the coefficients, Newey–West lags and shifted columns each
+/// below N/4), are skipped, and so are windows whose index returns, raw or in excess of the
+/// rate, or whose security's own returns are all the same to rounding, as the full window's
+/// estimate refuses a flat index or a flat security (a flat index under a moving rate leaves
+/// the rate's variation alone; a security whose price never moves in a window, carried back
+/// before a listing or through a suspension, got a beta of 0 with a standard error of 0).
 pub fn rolling_betas(
     period_ends: &[NaiveDate],
     observed: &[NaiveDate],
-    asset: &[f64],
-    market: &[f64],
-    market_raw: &[f64],
-    shifted: &[ShiftedMarket],
+    series: RollingSeries<'_>,
     spec: &RollingSpec,
 ) -> Vec<RollingPoint> {
+    let RollingSeries {
+        asset,
+        market,
+        asset_raw,
+        market_raw,
+        shifted,
+    } = series;
     let n_all = asset.len();
     let window = spec.window;
     if n_all == 0 || window == 0 || window > period_ends.len() {
@@ -134,8 +153,11 @@ pub fn rolling_betas(
             continue;
         }
         // Found by review: only the excess returns were checked, and only when the moment sums
-        // had lost their precision, so a flat index under a moving rate was fitted to the rate.
-        if crate::market::sampling::constant_up_to_rounding(&market_raw[sums.first()..sums.end()]) {
+        // had lost their precision, so a flat index under a moving rate was fitted to the rate;
+        // and a security flat in the window got a beta of 0 with a standard error of 0.
+        let flat = crate::market::sampling::constant_up_to_rounding;
+        let inside = sums.first()..sums.end();
+        if flat(&market_raw[inside.clone()]) || flat(&asset_raw[inside]) {
             continue;
         }
         let fit = match sums.beta(combination, spec.std_errors, lags) {
@@ -313,6 +335,21 @@ mod tests {
         }
     }
 
+    /// The series of a security and an index without a risk-free rate: raw and excess alike.
+    fn plain<'a>(
+        asset: &'a [f64],
+        market: &'a [f64],
+        shifted: &'a [ShiftedMarket],
+    ) -> RollingSeries<'a> {
+        RollingSeries {
+            asset,
+            market,
+            asset_raw: asset,
+            market_raw: market,
+            shifted,
+        }
+    }
+
     fn month_ends(n: usize) -> Vec<NaiveDate> {
         let mut d = NaiveDate::from_ymd_opt(2020, 1, 31).unwrap();
         let mut out = Vec::new();
@@ -340,10 +377,7 @@ mod tests {
         let points = rolling_betas(
             &ends,
             &observed,
-            &asset,
-            &market,
-            &market,
-            &[],
+            plain(&asset, &market, &[]),
             &ols_spec(12, 2, 10),
         );
         assert!(!points.is_empty());
@@ -388,10 +422,7 @@ mod tests {
         let points = rolling_betas(
             &ends,
             &ends,
-            &asset,
-            &market,
-            &market,
-            &[],
+            plain(&asset, &market, &[]),
             &ols_spec(24, 1, 20),
         );
         let mut exact = 0;
@@ -423,10 +454,7 @@ mod tests {
         let points = rolling_betas(
             &ends,
             &ends,
-            &asset,
-            &market,
-            &market,
-            &[],
+            plain(&asset, &market, &[]),
             &ols_spec(20, 1, 10),
         );
         assert!(points.iter().all(|p| p.beta.abs() < 1e3), "{points:?}");
@@ -457,13 +485,48 @@ mod tests {
         let excess: Vec<f64> = raw.iter().zip(&rate).map(|(m, r)| m - r).collect();
         let asset: Vec<f64> = (0..n).map(|_| 0.01 + 0.05 * rng.normal()).collect();
         let spec = ols_spec(20, 1, 10);
-        let points = rolling_betas(&ends, &ends, &asset, &excess, &raw, &[], &spec);
+        let points = rolling_betas(
+            &ends,
+            &ends,
+            RollingSeries {
+                market_raw: &raw,
+                ..plain(&asset, &excess, &[])
+            },
+            &spec,
+        );
         // Windows end at periods 19..=59; those ending at 29 or before lie in the flat part.
         assert_eq!(points.len(), 30, "{points:?}");
         assert!(points.iter().all(|p| p.window_end > ends[29]), "{points:?}");
         // Without the raw returns the flat windows would be fitted to the rate's variation.
-        let unguarded = rolling_betas(&ends, &ends, &asset, &excess, &excess, &[], &spec);
+        let unguarded = rolling_betas(&ends, &ends, plain(&asset, &excess, &[]), &spec);
         assert_eq!(unguarded.len(), 41);
+    }
+
+    // A security whose price does not move in the first 30 periods (carried back before its
+    // listing, or through a suspension): those windows' returns are all 0, which the full
+    // window refuses as a flat security, so they are skipped, not given a beta of 0 with a
+    // standard error of 0 (found by review: a stability note was built on that error).
+    #[test]
+    fn windows_whose_security_is_flat_are_skipped() {
+        let n = 60;
+        let ends = month_ends(n);
+        let mut rng = Rng::seeded(13);
+        let market: Vec<f64> = (0..n).map(|_| 0.01 + 0.04 * rng.normal()).collect();
+        let asset: Vec<f64> = (0..n)
+            .map(|t| match t < 30 {
+                true => 0.0,
+                false => 1.1 * market[t] + 0.03 * rng.normal(),
+            })
+            .collect();
+        let points = rolling_betas(
+            &ends,
+            &ends,
+            plain(&asset, &market, &[]),
+            &ols_spec(20, 1, 10),
+        );
+        // Windows end at periods 19..=59; those ending at 29 or before hold only the flat part.
+        assert_eq!(points.len(), 30, "{points:?}");
+        assert!(points.iter().all(|p| p.std_error > 0.0), "{points:?}");
     }
 
     /// The market column at an offset.
@@ -548,7 +611,7 @@ mod tests {
                     dimson_leads: 0,
                 };
                 let points =
-                    rolling_betas(&ends, &observed, &asset, &market, &market, shifted, &spec);
+                    rolling_betas(&ends, &observed, plain(&asset, &market, shifted), &spec);
                 assert_eq!(
                     points.len(),
                     (periods - 36) / 5 + 1,

@@ -560,7 +560,10 @@ fn formula_outcome(
 /// Debt cannot be riskier than the equity it ranks ahead of: a debt beta above a peer's equity
 /// beta (or above the aggregate asset beta the subject is relevered from) is an input error. A
 /// peer whose D/E is 0 (no debt, gross) is unlevered to its own equity beta whatever the debt
-/// beta, which then describes no debt, so it is not held against the peer.
+/// beta, which then describes no debt, so it is not held against the peer. A debt beta of 0 is
+/// riskless debt, the model of `debt_beta_source = "none"`, which is not checked either (found
+/// by review: a negative equity beta was refused under a given debt beta of 0 and accepted
+/// under "none", the same model written two ways).
 fn check_debt_betas(
     spec: &CapitalSpec<'_>,
     common: &Common,
@@ -571,12 +574,13 @@ fn check_debt_betas(
         return Ok(());
     }
     for (i, (terms, adjusted)) in common.peers.iter().zip(&common.adjusted).enumerate() {
-        if terms.debt_to_equity != 0.0 && terms.debt_beta > adjusted.used {
+        if terms.debt_to_equity != 0.0 && terms.debt_beta != 0.0 && terms.debt_beta > adjusted.used
+        {
             return Err(ChainError::PeerDebtBeta(i, terms.debt_beta, adjusted.used));
         }
     }
     let subject_debt_beta = common.shared.subject_debt.debt_beta;
-    if subject_debt_beta > unlevered {
+    if subject_debt_beta != 0.0 && subject_debt_beta > unlevered {
         return Err(ChainError::SubjectDebtBeta(subject_debt_beta, unlevered));
     }
     Ok(())
@@ -660,6 +664,48 @@ mod tests {
         assert!((wacc - 0.079_719_480_519).abs() < 1e-12, "{wacc}");
         let full = chain(&spec(&debt), &peers, Checks::Enforce).unwrap();
         assert_eq!(full.outcome().wacc.to_bits(), wacc.to_bits());
+    }
+
+    // Riskless debt (a debt beta of 0) is one model whether written `debt_beta_source = "none"`
+    // or a given debt beta of 0: peers of negative equity beta are unlevered under both alike
+    // (Harris–Pringle with βD = 0 is βU = βL / (1 + D/E)), where the given 0 was refused as
+    // "above the equity beta" (found by review). A positive debt beta above them is refused.
+    #[test]
+    fn riskless_debt_is_one_model_however_it_is_written() {
+        let debt = debt();
+        let peers = [
+            peer(-0.65, 50.0, true),
+            peer(-1.51, 20.0, true),
+            peer(-0.32, 30.0, true),
+        ];
+        let harris_pringle = |source, debt_beta| CapitalSpec {
+            adjustment: Adjustment::None,
+            formula: Formula::HarrisPringle,
+            debt_beta_source: source,
+            debt_beta,
+            ..spec(&debt)
+        };
+        let none = chain(
+            &harris_pringle(DebtBetaSource::None, 0.0),
+            &peers,
+            Checks::Enforce,
+        );
+        let given = chain(
+            &harris_pringle(DebtBetaSource::Given, 0.0),
+            &peers,
+            Checks::Enforce,
+        );
+        let (none, given) = (none.unwrap(), given.unwrap());
+        assert_eq!(
+            none.outcome().wacc.to_bits(),
+            given.outcome().wacc.to_bits()
+        );
+        let positive = chain(
+            &harris_pringle(DebtBetaSource::Given, 0.1),
+            &peers,
+            Checks::Enforce,
+        );
+        assert!(matches!(positive, Err(ChainError::PeerDebtBeta(..))));
     }
 
     // One rule for the beta of the operations in the point estimate and in a draw (found by

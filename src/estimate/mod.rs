@@ -442,10 +442,13 @@ pub fn estimate_security(
     let rolling_points = rolling::rolling_betas(
         window.period_ends(),
         &aligned.period_ends,
-        &asset_excess,
-        &market_excess,
-        &aligned.market,
-        &aligned.market_shifted,
+        rolling::RollingSeries {
+            asset: &asset_excess,
+            market: &market_excess,
+            asset_raw: &aligned.asset,
+            market_raw: &aligned.market,
+            shifted: &aligned.market_shifted,
+        },
         &rolling_spec(spec),
     );
     let fitted_line = match spec.case_extras {

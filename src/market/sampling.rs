@@ -401,13 +401,23 @@ pub struct AlignedReturns {
     pub market_shifted: Vec<ShiftedMarket>,
 }
 
-/// Whether returns are all the same to the rounding of computing them (within 16 ε·(1 + |r|) of
-/// the first: p₁/p₀ − 1 is rounded to a few ulps of 1 + r; 100·1.005ⁿ's returns differ by 4e-16).
+/// Whether returns are all the same to the rounding of computing them from prices written to
+/// 15 significant digits: all within 64 ε·(1 + |r|) of one another, about 1.4e-14 for returns
+/// of a few percent (p₁/p₀ − 1 is rounded to a few ulps of 1 + r, so 100·1.005ⁿ's returns
+/// differ by 4e-16; prices of 500 and 500.000000000001, one unit in their 15th digit apart,
+/// give returns of ±2e-15). Measured across the whole spread, not from the first return (found
+/// by review: returns of −2e-15, 0 and +2e-15 were flat or not by which came first, and an
+/// index flat at 15 digits got a beta of 2e11).
 pub fn constant_up_to_rounding(returns: &[f64]) -> bool {
-    returns.first().is_some_and(|&first| {
-        let rounding = 16.0 * f64::EPSILON * (1.0 + first.abs());
-        returns.iter().all(|&r| (r - first).abs() <= rounding)
-    })
+    let Some(&first) = returns.first() else {
+        return false;
+    };
+    // Most series differ at their second return: one comparison sets them aside.
+    if returns.get(1).is_some_and(|&r| (r - first).abs() > 1e-12) {
+        return false;
+    }
+    let (low, high) = (returns.iter()).fold((first, first), |(l, h), &r| (l.min(r), h.max(r)));
+    high - low <= 64.0 * f64::EPSILON * (1.0 + low.abs().max(high.abs()))
 }
 
 impl AlignedReturns {
@@ -600,6 +610,31 @@ impl AlignedReturns {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Prices flat at 15 significant digits (500 or 500.000000000001, each one unit in the 15th
+    // digit apart) give returns of −2e-15, 0 and +2e-15 in any order: constant whichever comes
+    // first (found by review: a first return of −2e-15 made +2e-15 count as a move). A move of
+    // one unit in the 12th digit (2e-12) is not rounding.
+    #[test]
+    fn prices_flat_at_fifteen_digits_are_constant_in_any_order() {
+        let prices = |ks: &[u8]| -> Vec<f64> {
+            (ks.iter())
+                .map(|&k| format!("{}", 500.0 + f64::from(k) * 1e-12).parse().unwrap())
+                .collect()
+        };
+        let returns =
+            |p: Vec<f64>| -> Vec<f64> { p.windows(2).map(|w| w[1] / w[0] - 1.0).collect() };
+        for ks in [[1, 0, 1, 1, 0], [0, 1, 0, 0, 1], [1, 1, 0, 1, 0]] {
+            let r = returns(prices(&ks));
+            assert!(
+                r.iter().any(|&x| x < 0.0) && r.iter().any(|&x| x > 0.0),
+                "{r:?}"
+            );
+            assert!(constant_up_to_rounding(&r), "{r:?}");
+        }
+        let moved = returns(vec![500.0, 500.0, 500.000000001, 500.000000001]);
+        assert!(!constant_up_to_rounding(&moved), "{moved:?}");
+    }
 
     // A price growing by one fixed rate gives returns equal to that rate up to the rounding
     // of p₁/p₀ − 1 (IEEE 754: each operation within half an ulp), so they are constant; a

@@ -166,6 +166,11 @@ impl Estimation {
         &self.window
     }
 
+    /// The index's return in each period of the window (`None` where a price is missing).
+    pub fn index_window_returns(&self) -> &[Option<f64>] {
+        self.market.window_returns(&self.window)
+    }
+
     /// Why a security is not estimated at all, from its prices alone: an implausible move in
     /// the window, or the index's prices on every date both have.
     fn refused_before_estimating(&self, prices: SeriesView<'_>) -> Option<(NotEstimated, String)> {

@@ -133,6 +133,19 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         risk_free.as_ref().map(|f| f.series.view()),
         rolling,
     );
+    // A flat index is refused before the panel's seconds of reading, naming the index file,
+    // as a case refuses it (found by review: every security was left unestimated, and under
+    // Vasicek the prior was blamed).
+    let present: Vec<f64> = (estimation.index_window_returns().iter())
+        .flatten()
+        .copied()
+        .collect();
+    if let Some(message) = crate::valuation::sanity::flat_index_message(&present) {
+        return Err(Error::DataFile {
+            file: universe.resolve(&index.path),
+            message,
+        });
+    }
     let (panel, found) = read_panel_estimating(&universe, &estimation)?;
     let listed = &universe.settings.universe.peer_set;
     peer_set::check(listed, panel.securities()).map_err(|message| Error::Case {

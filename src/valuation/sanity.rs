@@ -283,15 +283,24 @@ pub fn check_index_returns(
             index.last_date
         ));
     }
-    if crate::market::sampling::constant_up_to_rounding(&present) {
-        return fail(format!(
+    match flat_index_message(&present) {
+        Some(message) => fail(message),
+        None => Ok(()),
+    }
+}
+
+/// Why an index whose returns in the window (`present`, the ones it has) are all the same to
+/// rounding measures no beta; `None` when they vary. A case's and a universe's words.
+pub fn flat_index_message(present: &[f64]) -> Option<String> {
+    crate::market::sampling::constant_up_to_rounding(present).then(|| {
+        format!(
             "the index's {} returns in the window are all {} (to the rounding of computing \
              them): an index with zero variance measures no beta",
             present.len(),
-            show((present[0] * 1e12).round() / 1e12)
-        ));
-    }
-    Ok(())
+            // Rounded to 12 decimals, and 0 rather than −0.
+            show((present[0] * 1e12).round() / 1e12 + 0.0)
+        )
+    })
 }
 
 /// One peer's estimate: its own returns must vary, its prices must not be the index's on every

@@ -108,12 +108,13 @@ const KNOWN_CHANGES: [KnownChange; 13] =
             paths: &["peers[].stability"],
             explain: |_, _| {
                 Some(
-                    "hurdle 0.12.0 skips a rolling window whose index returns are the same to \
-                     rounding before the risk-free rate, as the full window is refused; an \
-                     earlier version fitted such a window (to the rate's variation, or to \
-                     rounding), so a peer's rolling stability figures move where the index was \
-                     flat for a window's length (README, Changelog, \"Inputs as analysts export \
-                     them\")"
+                    "hurdle 0.12.0 skips a rolling window whose index returns (before the \
+                     risk-free rate) or whose peer's own returns are the same to rounding, as \
+                     the full window is refused; an earlier version fitted such a window (to \
+                     the rate's variation, or to rounding, or a beta of 0 with a standard error \
+                     of 0), so a peer's rolling stability figures move where the index or the \
+                     peer was flat for a window's length (README, Changelog, \"Inputs as \
+                     analysts export them\")"
                         .to_string(),
                 )
             },
