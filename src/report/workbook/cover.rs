@@ -249,13 +249,16 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         book.text(sheet, (r, 0), name, &label)?;
         book.formula(sheet, (r, 1), formula, Expect::Json(pointer.into()), format)?;
         // The run's own figure beside the live one, and whether an edit has moved it: an
-        // edited workbook no longer shows the run's figures, and says so here.
+        // edited workbook no longer shows the run's figures, and says so here. 1e-9 relative:
+        // a spreadsheet's LINEST differs from hurdle's QR by about 1e-12 on an ill-conditioned
+        // Dimson design (condition number 1e6, found by review: an unedited workbook read
+        // EDITED), while an edit of any input moves a figure far more.
         let as_run = book.figure(pointer)?;
         let fixed = book.styles.computed(format);
         book.number(sheet, (r, 2), as_run, &fixed)?;
         let (live, kept) = (sheet.abs(r, 1), sheet.abs(r, 2));
         let state =
-            format!("=IF(ABS({live}-{kept})>1E-12*MAX(1,ABS({kept})),\"{EDITED}\",\"{AS_RUN}\")");
+            format!("=IF(ABS({live}-{kept})>1E-9*MAX(1,ABS({kept})),\"{EDITED}\",\"{AS_RUN}\")");
         let text = book.styles.text.clone();
         book.formula(sheet, (r, 3), &state, Expect::Text(AS_RUN), &text)?;
         r += 1;
