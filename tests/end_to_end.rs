@@ -808,7 +808,8 @@ fn no_rolling_window_under_long_newey_west_lags_says_why() {
     assert!(
         memo.contains(
             "no rolling window: beta.newey_west_lags = 12 needs more than 48 observations in a \
-             window (the lags below a quarter of them), and a rolling window of 30 periods"
+             window (the lags below a quarter of them), and a rolling window of 30 periods \
+             (beta.rolling_window) holds no more."
         ),
         "{memo}"
     );

@@ -906,6 +906,50 @@ fn refused(edit: impl FnOnce(&Path), sets: &[&str], expected: &[&str]) {
     assert!(!setup.out("out").exists(), "an output folder was written");
 }
 
+// A flat index (every price the same) is refused naming its file before the panel is read, as a
+// case refuses it; an index with a single return in the window is not called flat: each
+// security then has too few observations, as before (found by review: one return was "all the
+// same", and a flat index left every security unestimated, under Vasicek blaming the prior).
+#[test]
+fn a_flat_index_is_refused_by_its_file_and_a_short_one_is_not_called_flat() {
+    let rewrite = |dir: &Path, keep: &dyn Fn(usize, &str) -> Option<String>| {
+        let path = dir.join("index.csv");
+        let text = fs::read_to_string(&path).unwrap();
+        let lines: Vec<String> = (text.lines().enumerate())
+            .filter_map(|(i, l)| {
+                if i == 0 {
+                    Some(l.to_string())
+                } else {
+                    keep(i, l)
+                }
+            })
+            .collect();
+        fs::write(&path, lines.join("\n") + "\n").unwrap();
+    };
+    refused(
+        |dir| rewrite(dir, &|_, l| Some(format!("{},500", &l[..10]))),
+        &[],
+        &[
+            "index.csv: the index's",
+            "returns in the window are all 0",
+            "zero variance",
+        ],
+    );
+    let setup = Setup::new();
+    let rows = fs::read_to_string(setup.dir().join("index.csv"))
+        .unwrap()
+        .lines()
+        .count()
+        - 1;
+    // The first rows (before the window) and the last two: one return in the window.
+    rewrite(&setup.dir(), &|i, l| {
+        (i < 5 || i + 1 >= rows).then(|| l.to_string())
+    });
+    let output = setup.universe("short", &[]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(!stderr.contains("zero variance"), "{stderr}");
+}
+
 // An attributes table that matches no panel id leaves every security without an industry: the
 // run is refused naming both files' ids (found by review: it ended with exit 0 and an empty
 // industry table). Ids that match but for capitals, or for the leading zeros a column of ids

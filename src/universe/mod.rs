@@ -140,7 +140,12 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         .flatten()
         .copied()
         .collect();
-    if let Some(message) = crate::valuation::sanity::flat_index_message(&present) {
+    // Too few returns are each security's too_few_observations, as before; only enough of
+    // them can be called flat (found by review: one return was "all the same").
+    let enough = present.len() >= settings.beta.min_observations as usize;
+    if let Some(message) =
+        (crate::valuation::sanity::flat_index_message(&present)).filter(|_| enough)
+    {
         return Err(Error::DataFile {
             file: universe.resolve(&index.path),
             message,

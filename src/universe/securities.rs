@@ -308,10 +308,13 @@ fn unlever(
         _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
         // The case's rule (capital::chain::check_debt_betas), for the formulas that take a debt
         // beta, when a debt beta is given, and a D/E that lets the debt beta count: without a
-        // given debt beta (riskless debt) a negative equity beta is unlevered as Hamada would.
+        // given debt beta (riskless debt), or with a debt beta of 0, the same model, a negative
+        // equity beta is unlevered as Hamada would (found by review: the case changed, this
+        // copy did not).
         _ if leverage.formula != Formula::Hamada
             && leverage.debt_beta_source != DebtBetaSource::None
             && de != 0.0
+            && debt_beta != 0.0
             && beta_used.is_some_and(|b| debt_beta > b) =>
         {
             Some(DEBT_BETA_ABOVE_EQUITY_BETA)
@@ -486,6 +489,23 @@ mod tests {
         );
         assert_eq!(u.issue, None);
         // 1e-17: one division of a number near 0.06 (ulp about 7e-18).
+        assert!((u.unlevered.unwrap() + 0.04).abs() < 1e-17);
+        // A given debt beta of 0 is the same riskless debt, unlevered alike (found by review:
+        // the case's rule changed, this copy still refused it).
+        let given = LeverageSettings {
+            debt_beta_source: DebtBetaSource::Given,
+            ..leverage
+        };
+        let u = unlever(
+            Some(-0.06),
+            Some(100.0),
+            Some(50.0),
+            None,
+            Some(0.3),
+            &given,
+            0.0,
+        );
+        assert_eq!(u.issue, None);
         assert!((u.unlevered.unwrap() + 0.04).abs() < 1e-17);
     }
 

@@ -179,7 +179,12 @@ fn attribute<'a>(element: &'a str, name: &str) -> Option<&'a str> {
     let mut rest = element;
     while let Some(at) = rest.find(name) {
         let after = rest[at + name.len()..].trim_start();
-        if let Some(value) = after.strip_prefix('=') {
+        // The whole name, not the end of another (`xtable:date-value`; found by review).
+        let whole = rest[..at]
+            .chars()
+            .next_back()
+            .is_none_or(char::is_whitespace);
+        if let Some(value) = after.strip_prefix('=').filter(|_| whole) {
             let value = value.trim_start();
             let quote = value.chars().next().filter(|c| *c == '"' || *c == '\'')?;
             let value = &value[1..];
@@ -520,6 +525,19 @@ fn cell(value: &Data) -> Cell {
 
 #[cfg(test)]
 mod tests {
+    // XML attributes as the ODS null date may be written (XML 1.0, 3.1: either quote, white
+    // space around `=`); a longer name ending in the same text is another attribute (found by
+    // review: `xtable:date-value` was read as `table:date-value`).
+    #[test]
+    fn an_attribute_is_read_by_its_whole_name_either_quote() {
+        let element =
+            "<table:null-date xtable:date-value=\"1904-01-01\" table:date-value = '1899-12-30'";
+        assert_eq!(attribute(element, "table:date-value"), Some("1899-12-30"));
+        assert_eq!(attribute("<a b=\"1\"", "b"), Some("1"));
+        assert_eq!(attribute("<a xb=\"1\"", "b"), None);
+        assert_eq!(attribute("<a b=1", "b"), None);
+    }
+
     use super::*;
 
     // A filter's range as calamine reports it: `_xlnm._FilterDatabase` with a quoted sheet name
