@@ -358,7 +358,8 @@ fn recalculates_on_load(bytes: &[u8]) -> bool {
     text.find("<calcPr").is_some_and(|at| {
         let element = &text[at..];
         let element = &element[..element.find('>').unwrap_or(element.len())];
-        element.contains("fullCalcOnLoad=\"1\"") || element.contains("fullCalcOnLoad=\"true\"")
+        // Either quote, white space around `=` (found by review: only `="1"` was seen).
+        matches!(attribute(element, "fullCalcOnLoad"), Some("1" | "true"))
     })
 }
 
@@ -528,6 +529,31 @@ mod tests {
     // XML attributes as the ODS null date may be written (XML 1.0, 3.1: either quote, white
     // space around `=`); a longer name ending in the same text is another attribute (found by
     // review: `xtable:date-value` was read as `table:date-value`).
+    // `fullCalcOnLoad` on the package's `calcPr`, written with either quote and spaces around
+    // `=` (found by review: only `="1"` was seen); 0 or absent asks for no recalculation.
+    #[test]
+    fn recalculation_on_load_is_read_however_the_attribute_is_quoted() {
+        use std::io::Write;
+        let package = |calc: &str| {
+            let mut zip = zip::ZipWriter::new(Cursor::new(Vec::new()));
+            zip.start_file("xl/workbook.xml", zip::write::SimpleFileOptions::default())
+                .unwrap();
+            let xml = format!("<workbook><sheets/><calcPr calcId=\"124519\" {calc}/></workbook>");
+            zip.write_all(xml.as_bytes()).unwrap();
+            zip.finish().unwrap().into_inner()
+        };
+        for calc in [
+            "fullCalcOnLoad=\"1\"",
+            "fullCalcOnLoad='1'",
+            "fullCalcOnLoad = \"true\"",
+        ] {
+            assert!(recalculates_on_load(&package(calc)), "{calc}");
+        }
+        for calc in ["fullCalcOnLoad=\"0\"", ""] {
+            assert!(!recalculates_on_load(&package(calc)), "{calc}");
+        }
+    }
+
     #[test]
     fn an_attribute_is_read_by_its_whole_name_either_quote() {
         let element =

@@ -249,7 +249,8 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         book.text(sheet, (r, 0), name, &label)?;
         book.formula(sheet, (r, 1), formula, Expect::Json(pointer.into()), format)?;
         // The run's own figure beside the live one, and whether an edit has moved it: an
-        // edited workbook no longer shows the run's figures, and says so here. 1e-9 relative:
+        // edited workbook no longer shows the run's figures, and says so here. 1e-9 relative (1e-9
+        // absolute for a figure below 1, such as a rate):
         // a spreadsheet's LINEST differs from hurdle's QR by about 1e-12 on an ill-conditioned
         // Dimson design (condition number 1e6, found by review: an unedited workbook read
         // EDITED), while an edit of any input moves a figure far more.
