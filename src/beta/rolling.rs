@@ -85,6 +85,18 @@ pub struct RollingSeries<'a> {
     pub shifted: &'a [ShiftedMarket],
 }
 
+impl RollingSeries<'_> {
+    /// Whether the index's or the security's own returns over the observations `inside` are
+    /// all the same to rounding (found by review: only the excess returns were checked, and
+    /// only when the moment sums had lost their precision, so a flat index under a moving rate
+    /// was fitted to the rate; and a security flat in the window got a beta of 0 with a
+    /// standard error of 0).
+    fn flat_in(&self, inside: std::ops::Range<usize>) -> bool {
+        let flat = crate::market::sampling::constant_up_to_rounding;
+        flat(&self.market_raw[inside.clone()]) || flat(&self.asset_raw[inside])
+    }
+}
+
 /// Rolling betas of `series.asset` on `series.market` observed at `observed` (ascending dates,
 /// a subset of `period_ends`, the grid's return period ends). Windows with fewer than
 /// `spec.min_observations` observations, or too few for the estimator (as the full-window
@@ -100,13 +112,7 @@ pub fn rolling_betas(
     series: RollingSeries<'_>,
     spec: &RollingSpec,
 ) -> Vec<RollingPoint> {
-    let RollingSeries {
-        asset,
-        market,
-        asset_raw,
-        market_raw,
-        shifted,
-    } = series;
+    let (asset, market, shifted) = (series.asset, series.market, series.shifted);
     let n_all = asset.len();
     let window = spec.window;
     if n_all == 0 || window == 0 || window > period_ends.len() {
@@ -152,25 +158,13 @@ pub fn rolling_betas(
         if n < spec.min_observations.max(3) || 4 * lags >= n || 4 * shifted.len() >= n {
             continue;
         }
-        // Found by review: only the excess returns were checked, and only when the moment sums
-        // had lost their precision, so a flat index under a moving rate was fitted to the rate;
-        // and a security flat in the window got a beta of 0 with a standard error of 0.
-        let flat = crate::market::sampling::constant_up_to_rounding;
-        let inside = sums.first()..sums.end();
-        if flat(&market_raw[inside.clone()]) || flat(&asset_raw[inside]) {
+        if series.flat_in(sums.first()..sums.end()) {
             continue;
         }
         let fit = match sums.beta(combination, spec.std_errors, lags) {
             WindowFit::Estimate(beta, std_error) => Some((beta, std_error)),
             WindowFit::Skip => None,
-            WindowFit::Refit => refit(
-                spec,
-                lags,
-                (sums.first(), sums.end()),
-                asset,
-                market,
-                shifted,
-            ),
+            WindowFit::Refit => refit(spec, lags, (sums.first(), sums.end()), &series),
         };
         if let Some((beta, std_error)) = fit {
             let df = n - regressors.len() - 1;
@@ -198,10 +192,9 @@ fn refit(
     spec: &RollingSpec,
     lags: usize,
     (first, end): (usize, usize),
-    asset: &[f64],
-    market: &[f64],
-    shifted: &[ShiftedMarket],
+    series: &RollingSeries<'_>,
 ) -> Option<(f64, f64)> {
+    let (asset, market, shifted) = (series.asset, series.market, series.shifted);
     if crate::market::sampling::constant_up_to_rounding(&market[first..end]) {
         return None;
     }

@@ -30,6 +30,24 @@ pub struct Args {
     pub csv: Option<PathBuf>,
 }
 
+/// A refusal of the output folder in `--csv`'s words, when the user named the file and the
+/// refusal is of the file itself (found by review: "output folder : writing case.toml there
+/// would overwrite case.toml"; and a refusal of the default folder put down to a --csv never
+/// given). `name` is the file's name.
+fn csv_refusal(error: hurdle::Error, csv: Option<&std::path::Path>, name: &str) -> hurdle::Error {
+    match (error, csv) {
+        (hurdle::Error::Argument { option, message }, Some(path))
+            if option.starts_with("output folder") && message.contains(name) =>
+        {
+            hurdle::Error::Argument {
+                option: format!("--csv {}", path.display()),
+                message: message.replace("choose another output folder", "choose another file"),
+            }
+        }
+        (other, _) => other,
+    }
+}
+
 pub fn run(args: &Args) -> hurdle::Result<()> {
     let rows = parse_axis("--rows", &args.rows)?;
     let columns = parse_axis("--cols", &args.cols)?;
@@ -92,24 +110,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     let reads = hurdle::case::files_read(&inputs.case);
     // The table is printed once its file is written, as `run` prints its summary: a failed
     // write prints only its error (found by review: the table came first, then the error).
-    // The folder's refusals are worded for `--out`; here the user named a file (found by
-    // review: "output folder : writing case.toml there would overwrite case.toml").
-    // Only the refusals of the file itself, and only when the user named it (found by review:
-    // a refusal of the default folder was put down to a --csv never given).
     let name = file.0.clone();
-    hurdle::report::staging::write_outputs(&dir, &[file], &reads).map_err(|error| match error {
-        hurdle::Error::Argument { option, message }
-            if args.csv.is_some()
-                && option.starts_with("output folder")
-                && message.contains(&name) =>
-        {
-            hurdle::Error::Argument {
-                option: format!("--csv {}", path.display()),
-                message: message.replace("choose another output folder", "choose another file"),
-            }
-        }
-        other => other,
-    })?;
+    hurdle::report::staging::write_outputs(&dir, &[file], &reads)
+        .map_err(|error| csv_refusal(error, args.csv.as_deref(), &name))?;
     print!("{out}");
     println!("  wrote {}", path.display());
     Ok(())

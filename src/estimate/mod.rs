@@ -387,6 +387,28 @@ fn flat_index(raw: &[f64], excess: &[f64]) -> bool {
     constant(raw) || constant(excess)
 }
 
+/// The rolling betas over `aligned`'s periods, of the excess returns `(asset, market)`.
+fn rolling_points(
+    spec: &EstimationSpec,
+    window: &Window,
+    aligned: &AlignedReturns,
+    (asset, market): (&[f64], &[f64]),
+) -> Vec<rolling::RollingPoint> {
+    let series = rolling::RollingSeries {
+        asset,
+        market,
+        asset_raw: &aligned.asset,
+        market_raw: &aligned.market,
+        shifted: &aligned.market_shifted,
+    };
+    rolling::rolling_betas(
+        window.period_ends(),
+        &aligned.period_ends,
+        series,
+        &rolling_spec(spec),
+    )
+}
+
 /// The rolling betas' spec: the estimator's method and standard errors, the spec's windows.
 fn rolling_spec(spec: &EstimationSpec) -> rolling::RollingSpec {
     rolling::RollingSpec {
@@ -439,18 +461,7 @@ pub fn estimate_security(
     )
     .map_err(EstimateError::from)?;
     let periods_in_window = window.period_ends().len();
-    let rolling_points = rolling::rolling_betas(
-        window.period_ends(),
-        &aligned.period_ends,
-        rolling::RollingSeries {
-            asset: &asset_excess,
-            market: &market_excess,
-            asset_raw: &aligned.asset,
-            market_raw: &aligned.market,
-            shifted: &aligned.market_shifted,
-        },
-        &rolling_spec(spec),
-    );
+    let rolling_points = rolling_points(spec, window, &aligned, (&asset_excess, &market_excess));
     let fitted_line = match spec.case_extras {
         true => line_over(&estimate, &market_excess),
         false => FittedLine::default(),

@@ -12,6 +12,15 @@ use crate::error::{Error, Result};
 /// The header's column names as the file writes them, through polars: the first line read as
 /// a row of text, so that a repeated or empty name is seen as it is (read as a header, polars
 /// would rename it).
+/// An error at line `line` of the file (the header's lines, before any data row).
+fn line_error(source: &Source, line: usize, message: String) -> Error {
+    Error::DataRow {
+        file: source.file.clone(),
+        line,
+        message,
+    }
+}
+
 pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     // A workbook or text saved as UTF-16 given as CSV is named as what it is (found by review:
     // a UTF-16 panel was reported as lines ending in CR alone).
@@ -24,11 +33,7 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     // A spreadsheet's note of the separator above the header (found by review: an attributes
     // file's was reported as rows with more fields than the header).
     if let Some(message) = crate::io::sanity::separator_line(block) {
-        return Err(Error::DataRow {
-            file: source.file.clone(),
-            line: 1,
-            message,
-        });
+        return Err(line_error(source, 1, message));
     }
     // The first record alone (its end: the first line end outside quotes), so that a later
     // line's field count is not the header's concern.
@@ -39,18 +44,11 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     });
     let block = &block[..end.map_or(block.len(), |end| end + 1)];
     if let Some((_, message)) = crate::io::encoding::first_non_utf8(block) {
-        return Err(Error::DataRow {
-            file: source.file.clone(),
-            line: 1,
-            message,
-        });
+        return Err(line_error(source, 1, message));
     }
     if let Some((line, column)) = crate::io::sanity::first_lone_carriage_return(block) {
-        return Err(Error::DataRow {
-            file: source.file.clone(),
-            line,
-            message: crate::io::sanity::lone_carriage_return(column),
-        });
+        let message = crate::io::sanity::lone_carriage_return(column);
+        return Err(line_error(source, line, message));
     }
     // A header whose quotes no reader takes as meant is named at its line, before polars
     // gives its own message (found by review).

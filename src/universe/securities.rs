@@ -308,9 +308,8 @@ fn unlever(
         _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
         // The case's rule (capital::chain::check_debt_betas), for the formulas that take a debt
         // beta, when a debt beta is given, and a D/E that lets the debt beta count: without a
-        // given debt beta (riskless debt), or with a debt beta of 0, the same model, a negative
-        // equity beta is unlevered as Hamada would (found by review: the case changed, this
-        // copy did not).
+        // given debt beta, or with a given 0 (riskless debt alike; found by review), a negative
+        // equity beta is unlevered as Hamada would.
         _ if leverage.formula != Formula::Hamada
             && leverage.debt_beta_source != DebtBetaSource::None
             && de != 0.0

@@ -267,12 +267,10 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         .zip(&inputs.peers)
         .map(|(peer, file)| (peer.name.as_str(), file))
         .collect();
-    notes.extend(crate::case::sanity::peer_cadence_note(
-        &peer_files,
-        &inputs.index,
-        window,
-        settings.beta.frequency,
-    ));
+    let frequency = settings.beta.frequency;
+    let cadence =
+        crate::case::sanity::peer_cadence_note(&peer_files, &inputs.index, window, frequency);
+    notes.extend(cadence);
     notes.extend(crate::case::sanity::file_end_notes(
         &inputs.index,
         inputs.risk_free.as_ref(),
@@ -313,7 +311,12 @@ fn failure_message(
                 file.path,
                 file.first_date,
                 file.last_date
-            ) + &sparse_prices_hint(file, index, window, spec.frequency)
+            ) + &crate::case::sanity::window::sparse_prices_hint(
+                file,
+                index,
+                window,
+                spec.frequency,
+            )
         }
         EstimateError::FlatIndex { periods } => format!(
             "the market index returns ({}) have zero variance over the {periods} periods aligned \
@@ -322,27 +325,6 @@ fn failure_message(
         ),
         EstimateError::Estimator(message) => message.clone(),
         EstimateError::Settings(problem) => crate::case::wording::estimator_failure(problem),
-    }
-}
-
-/// Why a peer lost its returns when its prices come further apart than the index's (the rule
-/// of `case::sanity::peer_cadence_note`), or nothing (found by review: a peer of weekly
-/// prices in a daily case was refused with "peer price missing" alone).
-fn sparse_prices_hint(
-    file: &DataFile,
-    index: &DataFile,
-    window: &Window,
-    frequency: crate::market::sampling::Frequency,
-) -> String {
-    match crate::case::sanity::window::sparse_peer(file, index, window, frequency) {
-        Some((gap, index_gap)) => format!(
-            " Its prices in the window come every {} calendar days (the median gap), the \
-             index's every {} on average: give the peer's price for every trading day, or choose beta.frequency \
-             to match its prices.",
-            crate::error::rounded(gap, 1),
-            crate::error::rounded(index_gap, 1)
-        ),
-        _ => String::new(),
     }
 }
 

@@ -131,6 +131,27 @@ pub fn sparse_peer(
         .then_some((gap, index_gap))
 }
 
+/// Why a peer lost its returns when its prices are sparse ([`sparse_peer`]), to follow the
+/// refusal's counts, or nothing (found by review: a peer of weekly prices in a daily case was
+/// refused with "peer price missing" alone).
+pub fn sparse_prices_hint(
+    file: &crate::io::series::DataFile,
+    index: &crate::io::series::DataFile,
+    window: &crate::estimate::Window,
+    frequency: crate::market::sampling::Frequency,
+) -> String {
+    match sparse_peer(file, index, window, frequency) {
+        Some((gap, index_gap)) => format!(
+            " Its prices in the window come every {} calendar days (the median gap), the \
+             index's every {} on average: give the peer's price for every trading day, or \
+             choose beta.frequency to match its prices.",
+            crate::error::rounded(gap, 1),
+            crate::error::rounded(index_gap, 1)
+        ),
+        None => String::new(),
+    }
+}
+
 /// A return window shorter than this many years is noted (common practice estimates betas over
 /// two to five years: less rests on one phase of the market).
 const SHORT_WINDOW_YEARS: f64 = 2.0;

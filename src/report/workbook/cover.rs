@@ -248,12 +248,9 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
     for (name, formula, pointer, format) in rows {
         book.text(sheet, (r, 0), name, &label)?;
         book.formula(sheet, (r, 1), formula, Expect::Json(pointer.into()), format)?;
-        // The run's own figure beside the live one, and whether an edit has moved it: an
-        // edited workbook no longer shows the run's figures, and says so here. 1e-9 relative (1e-9
-        // absolute for a figure below 1, such as a rate):
-        // a spreadsheet's LINEST differs from hurdle's QR by about 1e-12 on an ill-conditioned
-        // Dimson design (condition number 1e6, found by review: an unedited workbook read
-        // EDITED), while an edit of any input moves a figure far more.
+        // The run's own figure beside the live one, and whether an edit moved it by more than
+        // 1e-9 of it (1e-9 below 1): LINEST misses hurdle's QR by 1e-12 on an ill-conditioned
+        // Dimson design (found by review: an unedited workbook read EDITED).
         let as_run = book.figure(pointer)?;
         let fixed = book.styles.computed(format);
         book.number(sheet, (r, 2), as_run, &fixed)?;
