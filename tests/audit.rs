@@ -775,15 +775,23 @@ fn a_run_says_when_it_replaces_another_valuation() {
     );
     // A result.json of another tool's is replaced, and the run says so (found by review: it
     // was replaced without a word).
-    let foreign = dir.path().join("foreign");
-    std::fs::create_dir_all(&foreign).unwrap();
-    std::fs::write(foreign.join("result.json"), r#"{"mine": true}"#).unwrap();
-    let output = hurdle(&[
-        "run",
-        case.to_str().unwrap(),
-        "--out",
-        foreign.to_str().unwrap(),
-    ]);
+    // A run into a folder `name` whose result.json holds `receipt` (and `others`).
+    let run_over = |name: &str, receipt: &str, others: &[&str]| {
+        let folder = dir.path().join(name);
+        std::fs::create_dir_all(&folder).unwrap();
+        std::fs::write(folder.join("result.json"), receipt).unwrap();
+        for other in others {
+            std::fs::write(folder.join(other), "an earlier file").unwrap();
+        }
+        let output = hurdle(&[
+            "run",
+            case.to_str().unwrap(),
+            "--out",
+            folder.to_str().unwrap(),
+        ]);
+        (folder, output)
+    };
+    let (_, output) = run_over("foreign", r#"{"mine": true}"#, &[]);
     assert!(
         text(&output).contains("replaced a result.json that was no hurdle receipt"),
         "{}",
@@ -792,27 +800,16 @@ fn a_run_says_when_it_replaces_another_valuation() {
     // A universe's receipt in the folder: named as such, and its tables taken away with it (they
     // would sit beside the case's receipt as if it had written them); a file of the user's own
     // stays.
-    let fresh = dir.path().join("fresh");
-    std::fs::create_dir_all(&fresh).unwrap();
-    std::fs::write(
-        fresh.join("result.json"),
+    let (fresh, output) = run_over(
+        "fresh",
         r#"{"tool": {"name": "hurdle"}, "kind": "universe", "universe": {"file": "market.toml"}}"#,
-    )
-    .unwrap();
-    for name in [
-        "securities.csv",
-        "industries.parquet",
-        "summary.md",
-        "my-notes.md",
-    ] {
-        std::fs::write(fresh.join(name), "an earlier file").unwrap();
-    }
-    let output = hurdle(&[
-        "run",
-        case.to_str().unwrap(),
-        "--out",
-        fresh.to_str().unwrap(),
-    ]);
+        &[
+            "securities.csv",
+            "industries.parquet",
+            "summary.md",
+            "my-notes.md",
+        ],
+    );
     assert!(
         text(&output).contains("replaced the receipt of a universe run (market.toml)"),
         "{}",

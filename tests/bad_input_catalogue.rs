@@ -417,13 +417,7 @@ fn price_files() -> Vec<Bad> {
         ),
         bad!(
             "UTF-16 file",
-            |s| {
-                let wide: Vec<u8> = [0xFF, 0xFE]
-                    .into_iter()
-                    .chain(s.read(PEER).encode_utf16().flat_map(u16::to_le_bytes))
-                    .collect();
-                s.write(PEER, wide);
-            },
+            |s| s.write(PEER, utf16(&s.read(PEER))),
             ["run", "{case}", "--out", "{out}"],
             [PEER, "UTF-16", "not CSV text", "UTF-8"]
         ),
@@ -918,6 +912,14 @@ fn yield_files() -> Vec<Bad> {
     ]
 }
 
+/// `text` as a spreadsheet's "Unicode text" saves it: UTF-16 LE with a byte-order mark.
+fn utf16(text: &str) -> Vec<u8> {
+    [0xFF, 0xFE]
+        .into_iter()
+        .chain(text.encode_utf16().flat_map(u16::to_le_bytes))
+        .collect()
+}
+
 fn spread_tables() -> Vec<Bad> {
     vec![
         bad!(
@@ -968,13 +970,7 @@ fn spread_tables() -> Vec<Bad> {
         // Found by review: both were "line 1: not UTF-8 text" alone.
         bad!(
             "spread table saved as UTF-16",
-            |s| {
-                let wide: Vec<u8> = [0xFF, 0xFE]
-                    .into_iter()
-                    .chain(s.read(RATING).encode_utf16().flat_map(u16::to_le_bytes))
-                    .collect();
-                s.write(RATING, wide);
-            },
+            |s| s.write(RATING, utf16(&s.read(RATING))),
             [
                 "run",
                 "{case}",

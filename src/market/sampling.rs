@@ -404,14 +404,11 @@ pub struct AlignedReturns {
 /// Whether returns all lie within 64 ε·(1 + |r|) of one another, the rounding of prices written to
 /// 15 digits (found by review: measured from the first return, ±2e-15 got a beta of 2e11).
 pub fn constant_up_to_rounding(returns: &[f64]) -> bool {
-    let limit = |l: f64, h: f64| 64.0 * f64::EPSILON * (1.0 + l.abs().max(h.abs()));
     let widen = |(l, h): (f64, f64), &r: &f64| {
-        Some((l.min(r), h.max(r))).filter(|&(l, h)| h - l <= limit(l, h))
+        let (l, h) = (l.min(r), h.max(r));
+        (h - l <= 64.0 * f64::EPSILON * (1.0 + l.abs().max(h.abs()))).then_some((l, h))
     };
-    // Stops at the first return that widens the spread past the limit (most series: the second).
-    returns
-        .first()
-        .is_some_and(|&first| returns.iter().try_fold((first, first), widen).is_some())
+    matches!(returns.first(), Some(&f) if returns.iter().try_fold((f, f), widen).is_some())
 }
 
 impl AlignedReturns {

@@ -477,35 +477,26 @@ mod tests {
             ..LeverageSettings::default()
         };
         assert_eq!(leverage.debt_beta_source, DebtBetaSource::None);
-        let u = unlever(
-            Some(-0.06),
-            Some(100.0),
-            Some(50.0),
-            None,
-            Some(0.3),
-            &leverage,
-            0.0,
-        );
-        assert_eq!(u.issue, None);
-        // 1e-17: one division of a number near 0.06 (ulp about 7e-18).
-        assert!((u.unlevered.unwrap() + 0.04).abs() < 1e-17);
         // A given debt beta of 0 is the same riskless debt, unlevered alike (found by review:
         // the case's rule changed, this copy still refused it).
         let given = LeverageSettings {
             debt_beta_source: DebtBetaSource::Given,
             ..leverage
         };
-        let u = unlever(
-            Some(-0.06),
-            Some(100.0),
-            Some(50.0),
-            None,
-            Some(0.3),
-            &given,
-            0.0,
-        );
-        assert_eq!(u.issue, None);
-        assert!((u.unlevered.unwrap() + 0.04).abs() < 1e-17);
+        for settings in [&leverage, &given] {
+            let u = unlever(
+                Some(-0.06),
+                Some(100.0),
+                Some(50.0),
+                None,
+                Some(0.3),
+                settings,
+                0.0,
+            );
+            assert_eq!(u.issue, None);
+            // 1e-17: one division of a number near 0.06 (ulp about 7e-18).
+            assert!((u.unlevered.unwrap() + 0.04).abs() < 1e-17);
+        }
     }
 
     // Harris and Pringle (1985): βU = (βL + βD·D/E) / (1 + D/E), no tax term, so a missing tax
