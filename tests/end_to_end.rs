@@ -619,7 +619,7 @@ fn the_terminal_names_the_runs_cautions() {
         "{stdout}"
     );
     assert!(
-        stdout.contains("  caution: Betas near or below zero: "),
+        stdout.contains("  caution: Betas not clearly above zero: "),
         "{stdout}"
     );
 }

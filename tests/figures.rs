@@ -1188,6 +1188,10 @@ fn nearly_constant_draws_are_all_counted_in_a_readable_bin() {
         .unwrap();
     let width = title.text["Draws per ".len()..].trim_end_matches(" bin");
     assert!(!width.contains("0 bp"), "{width}");
+    // The memo states the prior variance the case gives, not its rounding to 0.0000 (found by
+    // review).
+    let memo = std::fs::read_to_string(run.dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains("prior variance\n1e-12 (stated)"), "{memo}");
     // 1e-15: the width printed in percent with as many decimals as it needs, read back.
     close(
         "bin width",

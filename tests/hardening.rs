@@ -188,6 +188,40 @@ fn an_accepted_jump_is_used() {
     assert_eq!(peers[0]["beta"], before[0]["beta"]);
 }
 
+// An accepted jump so large that the return's square overflows a double (IEEE 754: the largest
+// finite double is about 1.8e308, so a return above about 1.3e154 squares to infinity) leaves
+// the fit's statistics non-finite: the refusal names the return, its period and the peer's file
+// (found by review: it said only "beta_std_error = NaN").
+#[test]
+fn an_accepted_jump_beyond_squaring_names_the_return_and_the_file() {
+    let sandbox = Sandbox::new();
+    let file = "data/peers/corrowick.csv";
+    let text = sandbox.read(file);
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    // Every price from line 848 (2023-03-31) on is multiplied by 1e90 and every one before it
+    // by 1e-90, all inside the 1e-100..1e100 bounds: one return of about 1e180.
+    for (i, line) in lines.iter_mut().enumerate().skip(1) {
+        let (date, price) = line.split_once(',').unwrap();
+        let factor = if i + 1 >= 848 { 1e90 } else { 1e-90 };
+        *line = format!("{date},{}", price.parse::<f64>().unwrap() * factor);
+    }
+    sandbox.write(file, &(lines.join("\n") + "\n"));
+    sandbox.edit_case(
+        "prices = \"data/peers/corrowick.csv\"",
+        "prices = \"data/peers/corrowick.csv\"\naccept_jumps = [2023-03-31]",
+    );
+    let case = sandbox.path("case.toml");
+    let refused = hurdle(&["betas", case.to_str().unwrap()]);
+    assert_eq!(refused.status.code(), Some(2), "{}", stderr(&refused));
+    let message = stderr(&refused);
+    for part in [
+        "for the period ending 2023-03-31 is too large to square",
+        "check the prices in data/peers/corrowick.csv",
+    ] {
+        assert!(message.contains(part), "{message}");
+    }
+}
+
 // A second run into the same folder replaces every output, leaves no temporary folder, and a
 // failed run afterwards leaves the first outputs as they were.
 #[test]

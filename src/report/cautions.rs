@@ -25,7 +25,7 @@ pub fn case_cautions(v: &Valuation, flags_column: &str) -> Vec<String> {
     }
     if !c.betas_near_zero.is_empty() {
         out.push(format!(
-            "Betas near or below zero: {}: the raw beta's 95% interval reaches zero or lies \
+            "Betas not clearly above zero: {}: the raw beta's 95% interval reaches zero or lies \
              below it, yet it enters the aggregate{}.",
             names(&c.betas_near_zero),
             match c.turned_positive_by_adjustment.is_empty() {

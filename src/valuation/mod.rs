@@ -183,7 +183,7 @@ fn estimate_peers_under(
         let index = inputs.index.series.view();
         let same = estimate::same_prices_as_index(file.series.view(), index, bounds);
         let copy = estimated.copies_index() || same.is_some();
-        match sanity::check_peer_fit(&estimated, (&inputs.index.path, same)) {
+        match sanity::check_peer_fit(&estimated, (&inputs.index.path, same), &file.path) {
             // A copy of the index the case already leaves out is listed, not refused: its
             // figures are finite, and it enters no aggregate.
             Err(message) if copy && peer.exclude.is_some() => {

@@ -309,6 +309,7 @@ pub fn flat_index_message(present: &[f64]) -> Option<String> {
 pub fn check_peer_fit(
     estimated: &SecurityEstimate,
     (index_path, same_prices): (&str, Option<usize>),
+    peer_path: &str,
 ) -> std::result::Result<(), String> {
     if let Some(reason) = estimated.constant_price() {
         return Err(reason);
@@ -335,10 +336,23 @@ pub fn check_peer_fit(
         ("beta_p_value", estimate.beta_p_value),
         ("r_squared", estimate.r_squared),
     ];
-    match figures.iter().find(|(_, v)| !v.is_finite()) {
-        Some((name, value)) => Err(format!("the regression gives {name} = {}", show(*value))),
-        None => Ok(()),
+    let Some((name, value)) = figures.iter().find(|(_, v)| !v.is_finite()) else {
+        return Ok(());
+    };
+    let mut message = format!("the regression gives {name} = {}", show(*value));
+    // A return whose square overflows a double (|r| above about 1e154) is what makes a figure
+    // of finite prices non-finite: name the largest, so the price to check is found.
+    let returns = &estimated.returns;
+    let largest = (returns.asset.iter().zip(&returns.period_ends))
+        .max_by(|a, b| a.0.abs().total_cmp(&b.0.abs()));
+    if let Some((r, date)) = largest.filter(|(r, _)| (r.abs() * r.abs()).is_infinite()) {
+        message.push_str(&format!(
+            ": its return of {} for the period ending {date} is too large to square in double \
+             precision; check the prices in {peer_path} up to that date",
+            show(*r)
+        ));
     }
+    Err(message)
 }
 
 /// No output may hold a non-finite number: the last guard, called on every result before it
