@@ -54,6 +54,37 @@ pub struct Stability {
     pub trend_per_year: f64,
 }
 
+/// Why a security has no line of rolling betas (fewer than two windows), so a reader is told
+/// the cause rather than left to work it out from the settings.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum NoStability {
+    /// The rolling window spans the whole estimation window: one window, no line over time.
+    OneWindow,
+    /// Newey–West lags stated in the settings need more than four times as many observations
+    /// in a window (the lags below N/4) than a window has periods.
+    NeweyWestLags,
+    /// Fewer than two windows with enough observations whose returns vary.
+    TooFewWindows,
+}
+
+impl NoStability {
+    /// The cause for a security without a line, whose estimation window has `periods` periods.
+    pub fn of(spec: &RollingSpec, periods: usize) -> NoStability {
+        let stated_lags = match spec.std_errors {
+            StdErrors::NeweyWest => spec.newey_west_lags,
+            _ => None,
+        };
+        if spec.window >= periods {
+            NoStability::OneWindow
+        } else if stated_lags.is_some_and(|lags| 4 * lags >= spec.window) {
+            NoStability::NeweyWestLags
+        } else {
+            NoStability::TooFewWindows
+        }
+    }
+}
+
 /// How the rolling windows are laid and estimated.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct RollingSpec {

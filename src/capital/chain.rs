@@ -31,8 +31,24 @@ pub struct PeerTerms {
     /// The peer's own cost of debt, else the subject's; `None` only in a listing
     /// ([`unlevered_only`]) whose spread table was not read because no step needed it.
     pub cost_of_debt: Option<f64>,
+    /// Whether the unlevered beta reads that cost of debt, and whose it is.
+    pub cost_of_debt_used: CostOfDebtUse,
     /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
     pub operating_share: f64,
+}
+
+/// Whether a peer's unlevered beta reads a cost of debt (Miles–Ezzell's discount rate of the tax
+/// shield, or the credit spread that gives a debt beta to a formula that takes one), and whose.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CostOfDebtUse {
+    /// The peer's own `cost_of_debt`.
+    Own,
+    /// The subject's cost of debt, the peer having none of its own.
+    Subject,
+    /// Not read: the formula does not discount at it, and the debt beta is given, the peer's
+    /// own, none, or one the formula ignores (Hamada).
+    NotUsed,
 }
 
 /// The four capital components' figures: weights, or each one's share of the WACC.
@@ -398,10 +414,22 @@ fn terms_with(
     debt_beta: f64,
     cost_of_debt: Option<f64>,
 ) -> PeerTerms {
+    let reads_spread = spec.debt_beta_source == DebtBetaSource::CreditSpread
+        && peer.own_debt_beta.is_none()
+        && spec.formula != Formula::Hamada;
+    let cost_of_debt_used = match (
+        spec.formula.uses_cost_of_debt() || reads_spread,
+        peer.own_cost_of_debt,
+    ) {
+        (false, _) => CostOfDebtUse::NotUsed,
+        (true, Some(_)) => CostOfDebtUse::Own,
+        (true, None) => CostOfDebtUse::Subject,
+    };
     PeerTerms {
         debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
         debt_beta,
         cost_of_debt,
+        cost_of_debt_used,
         operating_share: 1.0 - peer.cash / (peer.equity_value + peer.debt),
     }
 }

@@ -189,6 +189,8 @@ pub struct SecurityEstimate {
     pub rolling: Vec<RollingPoint>,
     /// Range and trend of the rolling betas (`None` with fewer than two windows).
     pub stability: Option<Stability>,
+    /// Why there is no `stability` (`None` when there is one).
+    pub no_stability: Option<rolling::NoStability>,
     /// The fitted line α + β·x over the index returns used, with its 95% band.
     pub fitted_line: FittedLine,
     /// The aligned returns the estimate was made from.
@@ -481,6 +483,8 @@ pub fn estimate_security(
     let excluding_flags = spec.flags.excluding(&flags);
     let stability = rolling::stability(&rolling_points, spec.rolling.window)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;
+    let no_stability = (stability.is_none())
+        .then(|| rolling::NoStability::of(&rolling_spec(spec), periods_in_window));
     Ok(SecurityEstimate {
         periods_in_window,
         dropped: aligned.dropped,
@@ -492,6 +496,7 @@ pub fn estimate_security(
         excluding_flags,
         rolling: rolling_points,
         stability,
+        no_stability,
         fitted_line,
         returns: aligned,
     })

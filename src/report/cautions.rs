@@ -56,5 +56,31 @@ pub fn case_cautions(v: &Valuation, flags_column: &str) -> Vec<String> {
             names(&c.every_peer_flagged)
         ));
     }
+    if c.few_peers {
+        let n = v.cost.beta.peers_included;
+        out.push(format!(
+            "Few peers: the aggregate rests on {n} peer{}, so one firm's beta error or \
+             circumstances can move it a long way.",
+            if n == 1 { "" } else { "s" }
+        ));
+    }
+    if let Some(u) = v.uncertainty.as_ref().filter(|u| u.point_outside_interval) {
+        out.push(format!(
+            "Point estimate outside its interval: the WACC of {} lies outside the \
+             estimation-error interval {} to {}.",
+            super::format::percent(v.cost.wacc, 2),
+            super::format::percent(u.p05, 2),
+            super::format::percent(u.p95, 2)
+        ));
+    }
+    if !c.unstated_inputs.is_empty() {
+        let inputs: Vec<String> = (c.unstated_inputs.iter())
+            .map(|u| format!("{} ({})", u.input, u.key))
+            .collect();
+        out.push(format!(
+            "Inputs without a stated basis: the case gives no source or reason for {}.",
+            inputs.join(", ")
+        ));
+    }
     out
 }

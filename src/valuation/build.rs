@@ -27,7 +27,7 @@ pub fn value_with(
     notes.extend(target_note(settings, &chain));
     let peers = peer_results(settings, inputs, estimates, &unlevered(&chain), exclusions);
     let cost = cost_record(settings, &chain, &peers);
-    let cautions = super::notes::cautions(&peers, &cost);
+    let cautions = super::notes::cautions(settings, &peers, &cost);
     notes.extend(plausibility_notes(&cost));
     notes.extend(
         cost.currency_conversion
@@ -322,6 +322,7 @@ pub fn peer_results(
                 unlevered_beta: figures.unlevered[i],
                 debt_beta: terms.debt_beta,
                 cost_of_debt: terms.cost_of_debt,
+                cost_of_debt_used: terms.cost_of_debt_used,
                 operating_share: terms.operating_share,
                 operations_beta: figures.operations[i],
                 excluded_reason,
@@ -331,6 +332,7 @@ pub fn peer_results(
                 lag_response: estimated.lag_response,
                 flags: estimated.flags.clone(),
                 stability: estimated.stability.clone(),
+                stability_missing: estimated.no_stability,
                 fitted_line: estimated.fitted_line.clone(),
             }
         })
@@ -345,6 +347,8 @@ fn sampling_record(estimates: &PeerEstimates) -> SamplingRecord {
         periods_per_year: spec.frequency.periods_per_year(),
         lookback: spec.lookback,
         min_observations: spec.min_observations,
+        rolling_window: spec.rolling.window,
+        rolling_min_observations: spec.rolling.min_observations,
         window_start: estimates.window_start,
         window_end: estimates.window_end,
         return_type: match spec.returns {

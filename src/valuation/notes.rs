@@ -7,7 +7,7 @@ use crate::capital::cost::CountryMethod;
 use crate::capital::leverage::Formula;
 use crate::case::{CaseFile, DebtBetaSource, DebtSource, TargetSource};
 
-use super::records::{Cautions, CostOfCapital, PeerResult};
+use super::records::{Cautions, CostOfCapital, PeerResult, UnstatedInput};
 
 /// Notes on the capital side: excluded peers and keys the case gives but does not use.
 pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) -> Vec<String> {
@@ -361,9 +361,73 @@ pub(super) fn net_cash_note(peer: &PeerResult) -> Option<String> {
     })
 }
 
+/// Fewer aggregated peers than this raise the `few_peers` caution.
+pub const FEW_PEERS: usize = 5;
+
+/// The inputs `settings` gives no source or reason for. A target taken from the peers' median
+/// or the subject's current structure states its own basis; a premium that adds nothing to
+/// the cost of equity (zero, or a country premium at an exposure of zero) needs none.
+fn unstated_inputs(settings: &CaseFile, cost: &CostOfCapital) -> Vec<UnstatedInput> {
+    let p = &cost.premiums;
+    let target_stated = matches!(
+        settings.target.source,
+        TargetSource::PeerMedian | TargetSource::Subject
+    ) || !settings.target.justification.is_empty();
+    [
+        (
+            settings.market.risk_free_rate_justification.is_empty(),
+            "the risk-free rate",
+            "market.risk_free_rate_justification",
+        ),
+        (
+            settings.market.equity_risk_premium_justification.is_empty(),
+            "the equity risk premium",
+            "market.equity_risk_premium_justification",
+        ),
+        (
+            !target_stated,
+            "the target structure",
+            "target.justification",
+        ),
+        (
+            settings.debt.justification.is_empty(),
+            "the cost of debt",
+            "debt.justification",
+        ),
+        (
+            settings.case.peer_selection.is_empty(),
+            "the choice of peers",
+            "case.peer_selection",
+        ),
+        (
+            p.size != 0.0 && p.size_justification.is_empty(),
+            "the size premium",
+            "premiums.size_justification",
+        ),
+        (
+            p.country_applied != 0.0 && p.country_justification.is_empty(),
+            "the country risk premium",
+            "premiums.country_justification",
+        ),
+        (
+            p.company_specific != 0.0 && p.company_specific_justification.is_empty(),
+            "the company-specific premium",
+            "premiums.company_specific_justification",
+        ),
+    ]
+    .into_iter()
+    .filter(|(missing, _, _)| *missing)
+    .map(|(_, input, key)| UnstatedInput { input, key })
+    .collect()
+}
+
 /// The facts behind the memo's conditional cautions (see [`Cautions`]), over the peers that
 /// enter the aggregate.
-pub(super) fn cautions(peers: &[PeerResult], cost: &CostOfCapital) -> Cautions {
+pub(super) fn cautions(
+    settings: &CaseFile,
+    peers: &[PeerResult],
+    cost: &CostOfCapital,
+) -> Cautions {
     let aggregated: Vec<&PeerResult> = peers
         .iter()
         .filter(|p| p.excluded_reason.is_none())
@@ -395,5 +459,7 @@ pub(super) fn cautions(peers: &[PeerResult], cost: &CostOfCapital) -> Cautions {
             true => flagged,
             false => Vec::new(),
         },
+        few_peers: aggregated.len() < FEW_PEERS,
+        unstated_inputs: unstated_inputs(settings, cost),
     }
 }

@@ -48,6 +48,12 @@ pub struct SamplingRecord {
     /// Return periods in the window.
     pub lookback: u32,
     pub min_observations: u32,
+    /// Return periods per rolling window, as resolved (`beta.rolling_window`, else half the
+    /// window's periods, at least 3).
+    pub rolling_window: u32,
+    /// Fewest observations in a rolling window, as resolved (`beta.rolling_min_observations`,
+    /// else 80% of the rolling window rounded up, at least 3).
+    pub rolling_min_observations: u32,
     /// The first sample point (the base price of the first return).
     #[serde(serialize_with = "iso_date")]
     pub window_start: NaiveDate,
@@ -93,6 +99,9 @@ pub struct PeerResult {
     /// (the table is then not read, so a fault in it cannot stop the listing).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub cost_of_debt: Option<f64>,
+    /// Whether the unlevered beta reads `cost_of_debt`: `own`, `subject` (the peer has none of
+    /// its own) or `not-used`.
+    pub cost_of_debt_used: crate::capital::chain::CostOfDebtUse,
     /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
     pub operating_share: f64,
     /// The beta of the operations, `unlevered_beta / operating_share` (cash at beta zero);
@@ -113,6 +122,10 @@ pub struct PeerResult {
     pub flags: Vec<PeerFlag>,
     /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
     pub stability: Option<rolling::Stability>,
+    /// Why there is no `stability`: `one-window` (the rolling window spans the estimation
+    /// window), `newey-west-lags` (stated lags need more observations than a window has) or
+    /// `too-few-windows`; `null` when there is a stability record.
+    pub stability_missing: Option<rolling::NoStability>,
     /// The fitted line α + β·x over the index returns used, with its 95% band (for the chart).
     pub fitted_line: beta::fitted_line::FittedLine,
 }
@@ -226,6 +239,18 @@ pub struct Cautions {
     /// The aggregated peers that raise a diagnostic flag, when some but not all do (all of
     /// them are `every_peer_flagged`); empty otherwise.
     pub flagged_in_aggregate: Vec<String>,
+    /// Whether the aggregate rests on fewer than five peers (`FEW_PEERS`): one firm's beta
+    /// error can move it a long way, and the peer-set bootstrap draws few distinct sets.
+    pub few_peers: bool,
+    /// The inputs the case gives no source or reason for, in the memo's order.
+    pub unstated_inputs: Vec<UnstatedInput>,
+}
+
+/// An input without a stated basis: what it is, and the case key that would hold its source.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct UnstatedInput {
+    pub input: &'static str,
+    pub key: &'static str,
 }
 
 /// Everything after the peer regressions: aggregation, relevering, CAPM, cost of debt, WACC.

@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 6] = [
+const ADDED_IN: [(&str, &[&str]); 7] = [
     (
         "0.3.0",
         &[
@@ -110,6 +110,17 @@ const ADDED_IN: [(&str, &[&str]); 6] = [
             "counts.excluded_by_flag.lagged_response",
             "peer_set.figures.excluded.lagged_response",
             "peer_set.figures.flagged.lagged_response",
+        ],
+    ),
+    (
+        "0.13.0",
+        &[
+            "sampling.rolling_window",
+            "sampling.rolling_min_observations",
+            "peers[].cost_of_debt_used",
+            "peers[].stability_missing",
+            "cautions.few_peers",
+            "cautions.unstated_inputs",
         ],
     ),
 ];

@@ -142,17 +142,7 @@ fn part_words(
     (first, last): (usize, usize),
 ) -> (String, String) {
     let peers = &valuation.peers;
-    // The periods of a rolling window as the peers' records give them, else as the case sets
-    // them (a peer has a record with two windows or more).
-    let window = (peers.iter().find_map(|p| p.stability.as_ref()))
-        .map(|st| st.window_periods)
-        .unwrap_or_else(|| {
-            valuation
-                .settings
-                .beta
-                .rolling(valuation.sampling.lookback)
-                .0
-        });
+    let window = valuation.sampling.rolling_window;
     let mut title = format!(
         "Rolling {} betas through the window",
         super::method_name(valuation.estimator.method)
