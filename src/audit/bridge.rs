@@ -19,7 +19,7 @@ use crate::case::read_case;
 use crate::error::{Error, Result};
 use crate::io::series::sha256_hex;
 pub use crate::valuation::analyses::{Bridge, BuildUp, Group, Side, Step};
-use crate::valuation::{load_inputs, value};
+use crate::valuation::{load_inputs, value, Valuation};
 
 /// `[claimed]`: a build-up handed over by someone else.
 #[derive(Debug, Clone, Deserialize)]
@@ -374,6 +374,32 @@ fn claimed_debt_to_equity(claimed: &Claimed) -> std::result::Result<f64, String>
     }
 }
 
+/// The notes on a claim set beside a case's valuation `base`: their dates, their currencies
+/// (a case's being its valuation date and `case.currency`), and the claim's figures that fail
+/// the plausibility checks. `run`'s `[reconcile]` and `implied --claim` both say them.
+pub fn notes_beside_case(base: &Valuation, claimed: &Side) -> Vec<String> {
+    // The case's date speaks for its side in the note only; the bridge's record of the side
+    // keeps no date (a case's is in the receipt already).
+    let dated = Side {
+        as_of: Some(base.case.valuation_date.to_string()),
+        currency: Some(base.case.currency.clone()),
+        ..Side::from_valuation("this case", base)
+    };
+    let pair = dates_note(&dated, claimed)
+        .into_iter()
+        .chain(currency_note(&dated, claimed));
+    pair.chain(claim_notes(claimed)).collect()
+}
+
+/// The name of `side` in a note on the pair (`from`, `to`): its label, or its file when the
+/// two carry one title (a case and its rolled-forward self).
+fn name_in_pair(from: &Side, to: &Side, side: &Side) -> String {
+    match from.label == to.label && !side.source.is_empty() {
+        true => side.source.clone(),
+        false => side.label.clone(),
+    }
+}
+
 /// A note when the two sides' rates are in different currencies (each side's `currency`, a
 /// case's being its `case.currency`): a nominal rate carries its currency's expected inflation
 /// (Fisher 1930), so part of the gap is the currencies', which no input group of the bridge
@@ -389,7 +415,8 @@ pub fn currency_note(from: &Side, to: &Side) -> Option<String> {
              bridge compares the two build-ups as given, so put them in one currency first (a \
              claim's rates carried by the Fisher relation, or a case whose own inputs are in the \
              claim's currency) before reading the steps as judgement.",
-            from.label, to.label
+            name_in_pair(from, to, from),
+            name_in_pair(from, to, to)
         )
     })
 }
@@ -400,11 +427,7 @@ pub fn dates_note(from: &Side, to: &Side) -> Option<String> {
     let (Some(a), Some(b)) = (&from.as_of, &to.as_of) else {
         return None;
     };
-    // Two cases of one title (a case and its rolled-forward self) are told apart by file.
-    let name = |side: &Side| match from.label == to.label && !side.source.is_empty() {
-        true => side.source.clone(),
-        false => side.label.clone(),
-    };
+    let name = |side: &Side| name_in_pair(from, to, side);
     (a != b).then(|| {
         format!(
             "{} is as of {a} and {} as of {b}: rates, premiums and prices move between the two \

@@ -10,7 +10,7 @@
 
 use super::case_error;
 use crate::case::Metric;
-use crate::case::{TargetSource, Variants};
+use crate::case::{Case, TargetSource, Variants};
 use crate::error::{Error, Result};
 pub use crate::valuation::analyses::{Axis, Grid, RefusedCell};
 use crate::valuation::{
@@ -158,6 +158,31 @@ fn accepted(mut axis: Axis, variants: &Variants) -> Axis {
     axis.values
         .retain(|value| variants.with(&[format!("{key}={value}")]).is_ok());
     axis
+}
+
+/// Each `--set` of `case` whose value an axis replaces in every cell, with that axis's key: the
+/// same key, one key spelled two ways (a peer by index and by name), or the other target ratio
+/// (a cell's ratio replaces it). A grid over a key is a what-if over its values, so the `--set`
+/// of it counts for nothing, and the caller says so (found by review: it was dropped without a
+/// word).
+pub fn replaced_overrides(case: &Case, axis_keys: [&str; 2]) -> Result<Vec<(String, String)>> {
+    let variants = Variants::new(case)?;
+    let key = |assignment: &str| -> String {
+        let key = assignment.split_once('=').map_or(assignment, |(k, _)| k);
+        key.split('.').map(str::trim).collect::<Vec<_>>().join(".")
+    };
+    let ratio = |k: &str| k == "target.debt_to_equity" || k == "target.debt_to_capital";
+    let replaces = |axis: &str, set: &str| {
+        axis == set
+            || (ratio(axis) && ratio(set))
+            || crate::case::overrides::same_value(variants.own(), axis, set)
+    };
+    Ok((case.overrides.iter())
+        .filter_map(|set| {
+            let axis = axis_keys.iter().find(|axis| replaces(axis, &key(set)))?;
+            Some((set.clone(), axis.to_string()))
+        })
+        .collect())
 }
 
 /// Computes the grid over `rows × columns`.

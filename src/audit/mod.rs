@@ -58,17 +58,8 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         Some(reconcile) => {
             let path = inputs.case.resolve(&reconcile.claimed);
             let claimed = bridge::read_side(&path, &reconcile.claimed)?;
+            notes.extend(bridge::notes_beside_case(&base, &claimed));
             let ours = bridge::Side::from_valuation("this case", &base);
-            // The case's date speaks for its side in the note only; the bridge's record of the
-            // side keeps no date (a case's is in the receipt already).
-            let dated = bridge::Side {
-                as_of: Some(base.case.valuation_date.to_string()),
-                currency: Some(base.case.currency.clone()),
-                ..ours.clone()
-            };
-            notes.extend(bridge::dates_note(&dated, &claimed));
-            notes.extend(bridge::currency_note(&dated, &claimed));
-            notes.extend(bridge::claim_notes(&claimed));
             Some(bridge::bridge(&ours, &claimed))
         }
         None => None,

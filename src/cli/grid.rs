@@ -55,6 +55,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     // The peers are estimated once; cells re-estimate only when an axis changes estimation.
     let estimates = hurdle::valuation::estimate_peers(&inputs.case, &inputs)?;
     let table = grid(&inputs, &estimates, &rows, &columns, args.metric)?;
+    let axes = [rows.key.as_str(), columns.key.as_str()];
+    for (set, axis) in hurdle::audit::grid::replaced_overrides(&inputs.case, axes)? {
+        say!("note: --set {set} is replaced in every cell by the grid's values of {axis}");
+    }
     let mut out = format!("{:>14}", "");
     for c in &table.columns.values {
         out.push_str(&format!(" {c:>9}"));
