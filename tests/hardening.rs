@@ -930,3 +930,51 @@ fn a_set_that_a_grid_axis_replaces_is_noted() {
         ]
     );
 }
+
+// A refusal is put down to what gave the value: a --set that names a peer by position or by
+// name when the message words it as "peer.0 (peer …): debt = …", --set values that a whole-case
+// problem names, and the file when its own value is refused beside an unrelated --set (found by
+// review: the first two were blamed on the file, and a Vasicek prior without peers on a peer
+// named "(all peers)").
+#[test]
+fn a_refusal_is_blamed_on_the_set_or_the_file_that_gave_the_value() {
+    let sandbox = Sandbox::new();
+    let case = sandbox.path("case.toml");
+    let refused = |sets: &[&str]| -> String {
+        let mut args = vec!["betas", case.to_str().unwrap()];
+        for set in sets {
+            args.extend(["--set", set]);
+        }
+        let output = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+            .args(&args)
+            .output()
+            .unwrap();
+        assert_eq!(output.status.code(), Some(2), "{sets:?}");
+        stderr(&output)
+    };
+    let by_position = refused(&["peer.0.debt=1e12"]);
+    assert!(
+        by_position.contains("case.toml: after applying --set peer.0.debt=1e12: peer.0 (peer"),
+        "{by_position}"
+    );
+    let by_name = refused(&["peer.Brenvale Fluid Systems.cash=1e300"]);
+    assert!(
+        by_name
+            .contains("after applying --set peer.Brenvale Fluid Systems.cash=1e300: peer.0.cash"),
+        "{by_name}"
+    );
+    let mut excluded = vec!["beta.adjustment=\"vasicek\"".to_string()];
+    excluded.extend((1..8).map(|i| format!("peer.{i}.exclude=\"a test\"")));
+    let excluded: Vec<&str> = excluded.iter().map(String::as_str).collect();
+    let prior = refused(&excluded);
+    assert!(
+        prior.contains("after applying --set beta.adjustment=\"vasicek\": beta.adjustment"),
+        "{prior}"
+    );
+    assert!(!prior.contains("(all peers)"), "{prior}");
+    // The file's own negative equity value, beside a --set of another key.
+    sandbox.edit_case("equity_value = 2400", "equity_value = -5");
+    let own = refused(&["market.equity_risk_premium=0.06"]);
+    assert!(own.contains("case.toml: peer.0.equity_value"), "{own}");
+    assert!(!own.contains("after applying"), "{own}");
+}

@@ -179,19 +179,15 @@ fn no_peer_left(case: &Case, exclusions: &[Option<String>]) -> Error {
 /// A chain failure as the error a user sees, naming the key, the peer or the case.
 pub fn chain_error(case: &Case, error: ChainError) -> Error {
     let settings = &case.settings;
-    let case_error = |message: String| Error::Case {
-        file: case.path.clone(),
-        message,
-    };
-    let all_peers = |message: String| Error::Estimation {
-        peer: "(all peers)".into(),
-        message,
-    };
+    // A problem of the whole case, blamed on the --set values it names when there are any
+    // (found by review: a refusal of values given by --set was put down to the file, and one
+    // of every peer to a peer named "(all peers)").
+    let case_error = |message: String| crate::case::blamed(&case.path, &case.overrides, message);
     match error {
         ChainError::Adjustment(problem) => {
-            all_peers(crate::case::wording::prior_unavailable(problem, "peers"))
+            case_error(crate::case::wording::prior_unavailable(problem, "peers"))
         }
-        ChainError::NoPeerIncluded => all_peers(format!(
+        ChainError::NoPeerIncluded => case_error(format!(
             "every peer is excluded (beta.exclude_flags = {:?} or `exclude`): no peer is left to \
              aggregate",
             settings
