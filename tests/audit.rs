@@ -1728,10 +1728,25 @@ fn a_claim_of_another_date_is_noted() {
         case.to_str().unwrap(),
         claim.to_str().unwrap(),
     ]));
-    assert!(
-        report.contains("WACC 9.283% from its components (stated 9.350%) as of 2026-06-30"),
-        "{report}"
+    // The claim's own components (claimed.toml): Ke = rf + β·ERP + premiums (CAPM) and
+    // WACC = (Ke + D/E·Kd·(1 − t)) / (1 + D/E), the textbook weights E/V = 1/(1 + D/E) and
+    // D/V = (D/E)/(1 + D/E); with its figures (0.040 + 1.10·0.060 + 0.010 = 0.116,
+    // (0.116 + 0.5·0.062·0.75)/1.5 = 0.0928333…) 9.283% to three decimals of a percent.
+    let claimed: toml::Table = toml::from_str(&text_of_claim).unwrap();
+    let c = |key: &str| claimed["claimed"][key].as_float().unwrap();
+    let ke = c("risk_free_rate") + c("beta") * c("equity_risk_premium") + c("premiums");
+    let de = c("debt_to_equity");
+    let wacc = (ke + de * c("cost_of_debt_pre_tax") * (1.0 - c("tax_rate"))) / (1.0 + de);
+    let expected = format!(
+        "WACC {:.3}% from its components (stated {:.3}%) as of 2026-06-30",
+        100.0 * wacc,
+        100.0 * c("wacc")
     );
+    assert_eq!(
+        expected,
+        "WACC 9.283% from its components (stated 9.350%) as of 2026-06-30"
+    );
+    assert!(report.contains(&expected), "{report}");
     assert!(
         report.contains("is as of 2026-09-30 and Adviser's build-up (fictional) as of 2026-06-30"),
         "{report}"

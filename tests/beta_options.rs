@@ -60,6 +60,17 @@ fn numpy_and_scipy_agree_with_every_estimator() {
         "beta.std_errors=newey-west",
         "beta.newey_west_lags=5",
     ]));
+    // An explicit 0 lags is the case's choice, not "absent": the reference check must take it
+    // as stated rather than fall back on the Newey–West (1994) rule.
+    configurations.push(owned(&[
+        "beta.std_errors=newey-west",
+        "beta.newey_west_lags=0",
+    ]));
+    configurations.push(owned(&[
+        "beta.method=scholes-williams",
+        "beta.std_errors=newey-west",
+        "beta.newey_west_lags=0",
+    ]));
     configurations.push(owned(&["beta.adjustment=vasicek"]));
     configurations.push(owned(&[
         "beta.flag_r_squared_floor=0.15",
@@ -257,41 +268,35 @@ fn bad_estimator_options_are_named() {
 // the periods between them (2024-09-30 to 2026-09-30: 24 month-end returns).
 #[test]
 fn lookback_spans_and_dates_resolve_by_the_calendar() {
-    let dir = tempfile::tempdir().unwrap();
-    let monthly = run_with(dir.path(), &["beta.lookback=\"5y\""]);
+    // Each run has its own folder and the numpy/scipy reference check (which rebuilds the
+    // window's sample points from the calendar and every return from the case's files) after
+    // it, so no run's output is overwritten before it is checked.
+    let run_and_check = |settings: &[&str]| {
+        let dir = tempfile::tempdir().unwrap();
+        let result = run_with(dir.path(), settings);
+        reference_check(dir.path(), &format!("lookback {settings:?}"));
+        result
+    };
+    let monthly = run_and_check(&["beta.lookback=\"5y\""]);
     assert_eq!(monthly["sampling"]["lookback"], 60);
     assert_eq!(monthly["sampling"]["window_start"], "2021-09-30");
     // A valuation date inside a month: the window ends at the last month-end before it
     // (2026-08-31), and five years back from that sample point is again 60 month-end returns.
-    let mid_month = run_with(
-        dir.path(),
-        &["beta.lookback=\"5y\"", "case.valuation_date=2026-09-15"],
-    );
+    let mid_month = run_and_check(&["beta.lookback=\"5y\"", "case.valuation_date=2026-09-15"]);
     assert_eq!(mid_month["sampling"]["lookback"], 60);
     assert_eq!(mid_month["sampling"]["window_start"], "2021-08-31");
-    let weekly = run_with(
-        dir.path(),
-        &["beta.frequency=weekly", "beta.lookback=\"104w\""],
-    );
+    let weekly = run_and_check(&["beta.frequency=weekly", "beta.lookback=\"104w\""]);
     assert_eq!(weekly["sampling"]["lookback"], 104);
     assert_eq!(weekly["sampling"]["weekday"], "wednesday");
-    let dated = run_with(
-        dir.path(),
-        &["beta.window_start=2024-09-30", "beta.min_observations=12"],
-    );
+    let dated = run_and_check(&["beta.window_start=2024-09-30", "beta.min_observations=12"]);
     assert_eq!(dated["sampling"]["lookback"], 24);
-    // Each of these passes the numpy/scipy check as well (weekly and log returns).
-    let logs = run_with(
-        dir.path(),
-        &[
-            "beta.frequency=weekly",
-            "beta.returns=log",
-            "beta.max_stale_days=3",
-        ],
-    );
+    // Weekly log returns with a staleness limit.
+    let logs = run_and_check(&[
+        "beta.frequency=weekly",
+        "beta.returns=log",
+        "beta.max_stale_days=3",
+    ]);
     assert_eq!(logs["sampling"]["return_type"], "log");
-    let report = reference_check(dir.path(), "beta options");
-    assert!(report.contains(" 0 failed"), "{report}");
 }
 
 // The flag-based rule: with an R² floor of 0.15, peers below it are flagged and excluded with
@@ -456,36 +461,14 @@ fn quarterly_returns_and_betas_match_the_reference() {
 }
 
 // --compare-frequencies: one row per peer, a column per frequency, over the case's own calendar
-// window; the daily column must equal a separate daily run over that window (same figures by
-// construction of the comparison, checked through the command line end to end).
+// window; every column (daily, weekly, monthly, quarterly) must equal a separate `hurdle run`
+// with `--set beta.frequency=…` over that window, each run itself rebuilt from the price files
+// and refitted by numpy and scipy (check_regressions.py).
 #[test]
 fn compare_frequencies_prints_every_peer_at_every_frequency() {
     let output = hurdle(&["betas", DEMO_CASE, "--compare-frequencies"]);
     assert!(output.status.success());
     let table = String::from_utf8_lossy(&output.stdout).to_string();
-    for header in ["daily", "weekly", "monthly", "quarterly"] {
-        assert!(table.contains(header), "{table}");
-    }
-    let dir = tempfile::tempdir().unwrap();
-    let daily = run_with(
-        dir.path(),
-        &[
-            "beta.frequency=daily",
-            "beta.window_start=2021-09-30",
-            "beta.min_observations=36",
-        ],
-    );
-    // The daily run itself, rebuilt from the price files and refitted by numpy and scipy.
-    reference_check(dir.path(), "daily");
-    for peer in daily["peers"].as_array().unwrap() {
-        let name = peer["name"].as_str().unwrap();
-        let row = table.lines().find(|l| l.starts_with(name)).unwrap();
-        let beta = hurdle::report::format::fixed(peer["beta"].as_f64().unwrap(), 3);
-        let first_cell = row[name.len()..].split_whitespace().next().unwrap();
-        assert_eq!(first_cell, beta, "{row}");
-    }
-    // The same comparison as JSON: each daily estimate is the daily run's, to the last bit
-    // (the same regression over the same window).
     let output = hurdle(&[
         "betas",
         DEMO_CASE,
@@ -495,18 +478,91 @@ fn compare_frequencies_prints_every_peer_at_every_frequency() {
     ]);
     assert!(output.status.success());
     let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let (start, end) = (
+        json["window_start"].as_str().unwrap(),
+        json["window_end"].as_str().unwrap(),
+    );
+    // The demo's five years of month-ends ending 2026-09-30 (README, `beta.lookback`).
+    assert_eq!((start, end), ("2021-09-30", "2026-09-30"));
+    assert!(
+        table.contains(&format!("window {start} to {end} at every frequency")),
+        "{table}"
+    );
     let frequencies = json["frequencies"].as_array().unwrap();
-    assert_eq!(frequencies.len(), 4);
-    assert_eq!(frequencies[0]["frequency"], "daily");
-    for (listed, peer) in frequencies[0]["peers"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .zip(daily["peers"].as_array().unwrap())
-    {
-        assert_eq!(listed["name"], peer["name"]);
-        assert_eq!(listed["estimate"]["beta"], peer["beta"]);
-        assert_eq!(listed["estimate"]["beta_std_error"], peer["beta_std_error"]);
+    let names = ["daily", "weekly", "monthly", "quarterly"];
+    assert_eq!(frequencies.len(), names.len());
+    let header = table.lines().next().unwrap();
+    let columns: Vec<&str> = header.split("β (SE) N").collect();
+    for (i, frequency) in names.iter().enumerate() {
+        assert!(columns[i].trim_end().ends_with(frequency), "{header}");
+        assert_eq!(frequencies[i]["frequency"], *frequency);
+        assert!(frequencies[i]["reason"].is_null(), "{frequency}");
+        // The separate run over the same calendar window. beta.min_observations only decides
+        // whether a run is refused (the comparison scales it by the periods); 3 is README's
+        // floor, so no frequency's run is refused for it and the figures are the same.
+        let dir = tempfile::tempdir().unwrap();
+        let run = run_with(
+            dir.path(),
+            &[
+                format!("beta.frequency={frequency}"),
+                format!("beta.window_start={start}"),
+                format!("beta.window_end={end}"),
+                "beta.min_observations=3".to_string(),
+            ],
+        );
+        reference_check(dir.path(), frequency);
+        let listed = frequencies[i]["peers"].as_array().unwrap();
+        let peers = run["peers"].as_array().unwrap();
+        assert_eq!(listed.len(), peers.len(), "{frequency}");
+        for (listed, peer) in listed.iter().zip(peers) {
+            let name = peer["name"].as_str().unwrap();
+            assert_eq!(listed["name"], peer["name"]);
+            // The same regression on the same returns: the same doubles, to the last bit.
+            for key in ["beta", "beta_std_error", "observations"] {
+                assert_eq!(
+                    listed["estimate"][key], peer[key],
+                    "{frequency} {name} {key}"
+                );
+            }
+            // The printed cell: "β (SE) N", β and SE to 3 decimals. Rounded here with Rust's
+            // own formatting (exact on the binary value); within 1e-6 of a tie hurdle rounds
+            // its 15-digit decimal half away from zero (README), so there only the distance
+            // to the printed figure is held to half a unit of the last decimal.
+            let row = table
+                .lines()
+                .find(|l| l.starts_with(name))
+                .unwrap_or_else(|| panic!("{table}"));
+            let cells: Vec<&str> = row[name.len()..].split_whitespace().collect();
+            assert_eq!(cells.len(), 3 * names.len(), "{row}");
+            let (beta_text, se_text, n_text) = (
+                cells[3 * i],
+                cells[3 * i + 1]
+                    .trim_start_matches('(')
+                    .trim_end_matches(')'),
+                cells[3 * i + 2],
+            );
+            for (text, value) in [
+                (beta_text, peer["beta"].as_f64().unwrap()),
+                (se_text, peer["beta_std_error"].as_f64().unwrap()),
+            ] {
+                let thousandths = (value * 1000.0).abs();
+                if (thousandths.fract() - 0.5).abs() > 1e-6 {
+                    assert_eq!(text, format!("{value:.3}"), "{frequency} {row}");
+                } else {
+                    let printed: f64 = text.parse().unwrap();
+                    // + 1e-12: the rounding of parsing and subtracting numbers near 1.
+                    assert!(
+                        (printed - value).abs() <= 0.0005 + 1e-12,
+                        "{frequency} {row}"
+                    );
+                }
+            }
+            assert_eq!(
+                n_text,
+                peer["observations"].to_string(),
+                "{frequency} {row}"
+            );
+        }
     }
 }
 

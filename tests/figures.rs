@@ -18,6 +18,34 @@ mod common;
 use common::svg::{close, in_group, parse, tick_value, unescape, Axis, Element};
 use common::{hurdle, DEMO_CASE};
 
+/// Student's t quantile t(0.975, df) from scipy (`scipy.stats.t.ppf(0.975, df)`), not from
+/// statrs, on which hurdle's own quantile is built: one python3 call tabulates df = 1 … 20 000
+/// (the demo's daily window has about 1 300 returns), and the table is kept for the run.
+fn scipy_t975(df: u64) -> f64 {
+    static TABLE: std::sync::OnceLock<Vec<f64>> = std::sync::OnceLock::new();
+    let table = TABLE.get_or_init(|| {
+        let output = std::process::Command::new("python3")
+            .args([
+                "-c",
+                "import json, numpy as np; from scipy import stats; \
+                 print(json.dumps([float(v) for v in stats.t.ppf(0.975, np.arange(1, 20001))]))",
+            ])
+            .output()
+            .expect("python3 with scipy must be installed (python3 -m pip install numpy scipy)");
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+        serde_json::from_slice(&output.stdout).unwrap()
+    });
+    assert!(
+        (1..=20_000).contains(&df),
+        "df {df} outside the scipy table"
+    );
+    table[df as usize - 1]
+}
+
 struct Run {
     dir: tempfile::TempDir,
     result: serde_json::Value,
@@ -130,10 +158,8 @@ fn check_regressions(run: &Run) {
             close(name, y.value(py), alpha + beta * at, y.tolerance());
         }
         // The mean-response band, textbook form: ŷ ± t(0.975, df)·√(Var α + 2x·Cov + x²·Var β),
-        // t from statrs' Student t (an independent implementation of the quantile).
-        use statrs::distribution::{ContinuousCDF, StudentsT};
-        let df = f(&peer["degrees_of_freedom"]);
-        let t = StudentsT::new(0.0, 1.0, df).unwrap().inverse_cdf(0.975);
+        // t from scipy (`scipy_t975`), not from the statrs library hurdle's quantile rests on.
+        let t = scipy_t975(peer["degrees_of_freedom"].as_u64().unwrap());
         let (sa, sb, cov) = (
             f(&peer["alpha_std_error"]),
             f(&peer["beta_std_error"]),
@@ -248,19 +274,15 @@ fn check_stability(run: &Run, extra: &[&str]) {
         // The estimator's coefficient count, from the whole-window regression: N − df.
         let coefficients =
             peer["observations"].as_u64().unwrap() - peer["degrees_of_freedom"].as_u64().unwrap();
-        // (β, half-width): t(0.975, N − k)·SE, t from statrs' Student t (an implementation
-        // independent of hurdle's own quantile).
-        use statrs::distribution::{ContinuousCDF, StudentsT};
+        // (β, half-width): t(0.975, N − k)·SE, t from scipy (`scipy_t975`), not from the
+        // statrs library hurdle's own quantile rests on.
         let rows: Vec<(f64, f64)> = csv
             .lines()
             .filter(|l| l.starts_with(&format!("{name},")))
             .map(|l| {
                 let c: Vec<&str> = l.split(',').collect();
                 let (se, n): (f64, u64) = (c[3].parse().unwrap(), c[4].parse().unwrap());
-                let t = StudentsT::new(0.0, 1.0, (n - coefficients) as f64)
-                    .unwrap()
-                    .inverse_cdf(0.975);
-                (c[2].parse().unwrap(), t * se)
+                (c[2].parse().unwrap(), scipy_t975(n - coefficients) * se)
             })
             .collect();
         let line = in_group(&svg, &format!("rolling-beta {panel}"))[0].points();

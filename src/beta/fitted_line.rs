@@ -75,35 +75,46 @@ pub fn fitted_line(estimate: &BetaEstimate, x_min: f64, x_max: f64) -> FittedLin
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::stats::least_squares::{design_with_intercept, ols};
 
-    // The textbook mean-response interval written the other way: Var(ŷ(x₀)) = s²·x₀ᵀ(XᵀX)⁻¹x₀
-    // with x₀ = (1, x). Here it comes from the QR fit's own covariance matrix (least_squares.rs)
-    // and must equal the band built from α's and β's SEs and their covariance. The hand-worked
-    // example of least_squares.rs: x = 1..5, y = 2,4,5,4,5, s² = 0.8, Sxx = 10, x̄ = 3, so
-    // Var(ŷ(3)) = s²/n = 0.16 at the mean, the band's narrowest point.
+    // The textbook mean-response interval in closed form (e.g. Weisberg 2005, Applied Linear
+    // Regression, 3rd ed.; any regression text): Var(ŷ(x)) = s²·(1/n + (x − x̄)²/Sxx), written
+    // out here by hand on the hand-worked example of least_squares.rs, not taken from the fit:
+    // x = 1..5, y = 2,4,5,4,5; x̄ = 3, ȳ = 4, Sxx = 10, Sxy = 6, so β = 0.6, α = 2.2, the
+    // residuals −0.8, 0.6, 1.0, −0.6, −0.2, SSE = 2.4 and s² = 2.4/3 = 0.8. The program builds
+    // the band the other way, from α's and β's variances and their covariance.
     #[test]
     fn band_is_the_mean_response_interval() {
         let x = [1.0, 2.0, 3.0, 4.0, 5.0];
         let y = [2.0, 4.0, 5.0, 4.0, 5.0];
         let estimate = super::super::ols_beta(&y, &x).unwrap();
-        let fit = ols(&design_with_intercept(&[&x]), &y, true).unwrap();
         let line = fitted_line(&estimate, 1.0, 5.0);
         assert_eq!(line.points.len(), POINTS);
         assert_eq!((line.points[0].x, line.points[POINTS - 1].x), (1.0, 5.0));
-        // t(0.975, 3) = 3.182446305 (any t table); 1e-8: the table's nine decimals.
-        assert!((line.t_critical - 3.182446305).abs() < 1e-8);
+        // scipy.stats.t.ppf(0.975, 3) = 3.1824463052837078 (scipy 1.17.1, run by hand; the
+        // printed t tables' 3.182). 4e-15: a few units in the last place of a number near 3
+        // (one ulp is 4.4e-16), the rounding two careful evaluations of one quantile differ by.
+        let t_scipy = 3.1824463052837078;
+        assert!(
+            (line.t_critical - t_scipy).abs() < 4e-15,
+            "{}",
+            line.t_critical
+        );
+        let (n, x_bar, sxx, s2) = (5.0, 3.0, 10.0, 0.8);
         for p in &line.points {
-            let x0 = nalgebra::DVector::from_column_slice(&[1.0, p.x]);
-            let variance = (x0.transpose() * &fit.covariance * &x0)[(0, 0)];
-            let half = line.t_critical * variance.sqrt();
-            // 1e-13: two evaluations of one quadratic form on numbers of order 1.
+            let variance = s2 * (1.0 / n + (p.x - x_bar) * (p.x - x_bar) / sxx);
+            let half = t_scipy * variance.sqrt();
+            // 1e-13: the program's variance is Var α̂ + 2x·Cov + x²·Var β̂ = 0.88 − 0.48x + 0.08x²,
+            // terms up to 2.4 that cancel to as little as 0.16, each from a QR fit good to a few
+            // ulps; with t's own 4e-15 the half-width carries well under 1e-14 of rounding.
             assert!((p.high - p.fitted - half).abs() < 1e-13, "{p:?}");
+            assert!((p.fitted - p.low - half).abs() < 1e-13, "{p:?}");
             assert!((p.fitted - (2.2 + 0.6 * p.x)).abs() < 1e-13);
         }
+        // The band is narrowest at x̄ = 3, the 13th of the 25 points (1 + 12·4/24), where
+        // Var(ŷ) = s²/n = 0.16.
         let middle = &line.points[(POINTS - 1) / 2];
         assert!((middle.x - 3.0).abs() < 1e-15);
-        let at_mean = line.t_critical * 0.16_f64.sqrt();
+        let at_mean = t_scipy * 0.16_f64.sqrt();
         assert!((middle.high - middle.fitted - at_mean).abs() < 1e-13);
     }
 }

@@ -161,8 +161,10 @@ fn correlation(x: &[f64], y: &[f64]) -> f64 {
 mod tests {
     use super::*;
 
-    // An index that alternates up and down (ρ about −0.97, so 1 + 2ρ about −0.9) is refused,
-    // the divisor and the bound named.
+    // An index that alternates up and down is refused, the autocorrelation, the divisor and the
+    // bound named. numpy (np.corrcoef of the 40 index returns with the 40 before them, run by
+    // hand) gives ρ = −0.999725728197424, so 1 + 2ρ = −0.999451456394848; to the three
+    // decimals the message prints (neither near a rounding tie) −1.000 and −0.999.
     #[test]
     fn a_strongly_negatively_autocorrelated_index_is_refused() {
         let n = 40;
@@ -183,7 +185,9 @@ mod tests {
         ];
         let refused = scholes_williams_beta(&asset, &market, &shifted, StdErrors::Classical, 0);
         let message = refused.unwrap_err().to_string();
-        assert!(message.contains("divisor 1 + 2ρ is -0.9"), "{message}");
-        assert!(message.contains("below 0.2"), "{message}");
+        let expected = "the index's first-order autocorrelation over these 40 returns is \
+                        -1.000, so the Scholes-Williams divisor 1 + 2ρ is -0.999, below 0.2: \
+                        the beta divides the slopes by it and would be unbounded";
+        assert!(message.contains(expected), "{message}");
     }
 }

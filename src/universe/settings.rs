@@ -431,7 +431,46 @@ file = "attributes.parquet"
     fn defaults_match_the_case_file_and_readme() {
         let universe = parse(MINIMAL);
         assert!(validate(&universe).is_ok());
-        assert_eq!(universe.beta, BetaSettings::default());
+        // README "Case file reference", `[beta]` (which a universe file shares, "Industry betas
+        // from a whole market"): each default as README's table writes it, not the program's
+        // own `BetaSettings::default()`, which would compare the code with itself.
+        let beta = &universe.beta;
+        assert_eq!(beta.frequency, crate::market::sampling::Frequency::Monthly);
+        assert_eq!(beta.lookback, crate::case::lookback::Lookback::Periods(60));
+        assert_eq!(beta.min_observations, 36);
+        assert_eq!(beta.method, crate::beta::BetaMethod::Ols);
+        assert_eq!(beta.adjustment, crate::beta::Adjustment::None);
+        assert_eq!(beta.blume_weight, 0.67);
+        assert_eq!(
+            beta.std_errors,
+            crate::stats::least_squares::StdErrors::Classical
+        );
+        assert_eq!(beta.newey_west_lags, None); // "rule"
+        assert_eq!(beta.dimson_lags, 1);
+        assert_eq!(beta.dimson_leads, 0);
+        assert_eq!(beta.vasicek_prior_mean, None); // "cross-section"
+        assert_eq!(beta.vasicek_prior_variance, None); // "cross-section"
+        assert_eq!(
+            beta.weekday,
+            crate::market::sampling::SampleWeekday::Wednesday
+        );
+        assert_eq!(beta.returns, crate::market::sampling::ReturnType::Simple);
+        assert_eq!(beta.max_stale_days, None); // "none"
+        assert_eq!(beta.window_start, None); // "none"
+        assert_eq!(beta.window_end, None); // "case.valuation_date" (here universe's)
+        assert_eq!(beta.flag_observations_share, 0.8);
+        assert_eq!(beta.flag_r_squared_floor, 0.05);
+        assert_eq!(beta.flag_stale_share, 0.1);
+        assert_eq!(beta.flag_zero_return_share, 0.2);
+        assert_eq!(beta.flag_lag_p_value, 0.05);
+        assert!(beta.exclude_flags.is_empty()); // "[]"
+        assert_eq!(beta.rolling_window, None); // "half the window"
+        assert_eq!(beta.rolling_step, 1);
+        // "80% of rolling_window, rounded up":
+        assert_eq!(beta.rolling_min_observations, None);
+        // The two derived defaults, on README's 60-period window: half of it, and 80% of that
+        // rounded up (24).
+        assert_eq!(beta.rolling(60), (30, 24));
         assert_eq!(universe.panel.layout, PanelLayout::Long);
         assert_eq!(universe.panel.price_column, "price");
         assert_eq!(universe.attributes.industry_column, "industry");

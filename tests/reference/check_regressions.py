@@ -638,8 +638,12 @@ def reference_beta(method, kind, lags, asset, market, shifted):
 
 
 def newey_west_lags(n):
-    """The case's lags, else Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9))."""
-    return setting("beta", "newey_west_lags") or int(np.floor(4 * (n / 100) ** (2 / 9)))
+    """The case's lags, else Newey and West (1994), Rev. Econ. Studies 61(4): floor(4 (N/100)^(2/9)).
+    A stated 0 is the case's (the plain White/HC0-type sum, no lagged terms), not the rule."""
+    stated = setting("beta", "newey_west_lags")
+    if stated is not None:
+        return stated
+    return int(np.floor(4 * (n / 100) ** (2 / 9)))
 
 
 def check_fitted_line(name, peer, market):
@@ -717,14 +721,23 @@ def check_estimator(name, peer, data, asset, market, result):
         rho = np.corrcoef(market, lag)[0, 1]
         check(f"{name} market autocorrelation (numpy)", peer["market_autocorrelation"], rho)
         beta = sum(slopes) / (1 + 2 * rho)
-        for c, b in zip(peer["market_coefficients"], slopes):
-            check(f"{name} SW slope {c['offset']}", c["estimate"], b)
         # SE as README states: Var(a'r) with a = sum of slope weights / (1 + 2 rho), from the
         # residuals of r on [1, m_-1, m_0, m_+1].
         design = np.column_stack([np.ones(n), lag, market, lead])
         coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
         residuals = asset - design @ coef
-        w = sum((x - x.mean()) / ((x - x.mean()) ** 2).sum() for x in (lag, market, lead)) / (1 + 2 * rho)
+        # Each simple-regression slope b_j = w_j'r with w_j = (m_j - mean m_j) / S_jj (textbook
+        # least squares), so its standard error is the same sandwich (the case's kind) applied to
+        # w_j with the residuals of r on [1, m_-1, m_0, m_+1], 4 parameters: the construction
+        # hurdle's doc comment gives for beta, applied to each slope.
+        slope_weights = [(x - x.mean()) / ((x - x.mean()) ** 2).sum() for x in (lag, market, lead)]
+        slope_cov = sandwich(np.vstack(slope_weights), residuals, 4, kind, lags)
+        coefficients = peer["market_coefficients"]
+        check_equal(f"{name} SW market coefficients' offsets", [c["offset"] for c in coefficients], [-1, 0, 1])
+        for i, (c, b) in enumerate(zip(coefficients, slopes)):
+            check(f"{name} SW slope {c['offset']} (scipy linregress)", c["estimate"], b)
+            check(f"{name} SW slope {c['offset']} SE ({kind})", c["std_error"], np.sqrt(slope_cov[i, i]))
+        w = sum(slope_weights) / (1 + 2 * rho)
         a = np.vstack([1 / n - market.mean() * w, w])
         cov = sandwich(a, residuals, 4, kind, lags)
         alpha = asset.mean() - beta * market.mean()
@@ -763,20 +776,12 @@ def blume(raw, weight):
     return weight * raw + (1 - weight)
 
 
-def check_unlevered(name, peer, used, result):
-    """D/E (gross or net of cash) and the unlevered beta by the case's formula: Hamada (1972);
-    Harris-Pringle (1985), Miles-Ezzell (1985) and Conine (1980) solved for the asset beta."""
-    spec = peer_spec(name)
-    de = spec["debt"] / spec["equity_value"]
-    if setting("leverage", "debt_measure") == "net":
-        de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
-    check(f"{name} D/E", peer["debt_to_equity"], de)
-    check(f"{name} tax rate (the case's)", peer["tax_rate"], spec["tax_rate"])
-    # The peer's own pre-tax Kd, else the subject's (README "[[peer]]", cost_of_debt).
+def peer_debt_terms(spec):
+    """A peer's pre-tax Kd and debt beta, from the case: the peer's own pre-tax Kd, else the
+    subject's (README "[[peer]]", cost_of_debt); README "[leverage]", debt_beta_source: none;
+    given (the peer's own, else leverage.debt_beta); credit-spread (the peer's own, else the CAPM
+    solved for debt priced at Kd: (Kd - rf) / ERP)."""
     kd = spec["cost_of_debt"] if spec["cost_of_debt"] is not None else RATES["kd"]
-    check(f"{name} cost of debt", peer["cost_of_debt"], kd)
-    # README "[leverage]", debt_beta_source: none; given (the peer's own, else leverage.debt_beta);
-    # credit-spread (the peer's own, else the CAPM solved for debt priced at Kd: (Kd - rf) / ERP).
     source = setting("leverage", "debt_beta_source")
     if source == "none":
         bd = 0.0
@@ -786,7 +791,39 @@ def check_unlevered(name, peer, used, result):
         bd = setting("leverage", "debt_beta")
     else:
         bd = (kd - RATES["rf"]) / RATES["erp"]
-    check(f"{name} debt beta ({source})", peer["debt_beta"], bd)
+    return kd, bd
+
+
+def unlever(formula, levered, de, t, kd, bd):
+    """The asset beta from an equity beta: Hamada (1972, J. Finance 27(2)) beta_L / (1 + (1 - t) D/E),
+    riskless debt (no debt beta); Harris-Pringle (1985, J. Financial Research 8(3)), Miles-Ezzell
+    (1985, J. Finance 40(5)) and Conine (1980, J. Finance 35(4)) solved for beta_U from
+    beta_L = beta_U + (beta_U - beta_D) s D/E, s by tax_factor."""
+    if formula == "hamada":
+        return levered / (1 + (1 - t) * de)
+    s = tax_factor(formula, t, kd)
+    return (levered + bd * s * de) / (1 + s * de)
+
+
+def relever(formula, unlevered, de, t, kd, bd):
+    """beta_L = beta_U + (beta_U - beta_D) s D/E, the debt beta 0 under Hamada (riskless debt)."""
+    if formula == "hamada":
+        bd = 0.0
+    return unlevered + (unlevered - bd) * tax_factor(formula, t, kd) * de
+
+
+def check_unlevered(name, peer, used, result):
+    """D/E (gross or net of cash) and the unlevered beta by the case's formula: Hamada (1972);
+    Harris-Pringle (1985), Miles-Ezzell (1985) and Conine (1980) solved for the asset beta."""
+    spec = peer_spec(name)
+    de = spec["debt"] / spec["equity_value"]
+    if setting("leverage", "debt_measure") == "net":
+        de = (spec["debt"] - spec["cash"]) / spec["equity_value"]
+    check(f"{name} D/E", peer["debt_to_equity"], de)
+    check(f"{name} tax rate (the case's)", peer["tax_rate"], spec["tax_rate"])
+    kd, bd = peer_debt_terms(spec)
+    check(f"{name} cost of debt", peer["cost_of_debt"], kd)
+    check(f"{name} debt beta ({setting('leverage', 'debt_beta_source')})", peer["debt_beta"], bd)
     formula = setting("leverage", "formula")
     if formula == "hamada":
         check(f"{name} Hamada unlevered", peer["unlevered_beta"], used / (1 + (1 - spec["tax_rate"]) * de))
@@ -945,6 +982,68 @@ def check_shifts_are_the_market_series(name, data, shifted, result):
     assert compared > 0, "no shifted market value could be compared"
 
 
+def flat_to_rounding(values):
+    """README (0.12.0 notes): returns count as flat when they all lie within
+    64 eps (1 + |r|) of one another, eps the double's machine epsilon."""
+    if not values:
+        return False
+    low, high = min(values), max(values)
+    return high - low <= 64 * np.finfo(float).eps * (1 + max(abs(low), abs(high)))
+
+
+def check_rolling_schedule(windows, periods, result):
+    """README "Rolling beta" and "[beta]": every (peer, window end) rolling.csv should hold, laid
+    out here on the rebuilt grid and compared as a set with the file's rows. Windows of
+    rolling_window periods (default half the window's periods, at least 3) end at every
+    rolling_step-th period end counted from the first full window; a window is skipped when it
+    holds fewer than rolling_min_observations observations (default ceil(4/5 of the window), at
+    least 3), or too few for the estimator (more observations than coefficients, Newey-West lags
+    and the shifted index columns each below N/4), or when the index's returns, raw or in excess
+    of the rate, or the peer's own raw returns in it are flat to rounding (`flat_to_rounding`)."""
+    global checks
+    length = setting("beta", "rolling_window")
+    if length is None:
+        length = max(3, WINDOW["periods"] // 2)
+    least = setting("beta", "rolling_min_observations")
+    if least is None:
+        least = max(3, math.ceil(length * 4 / 5))
+    least = max(least, 3)
+    step = setting("beta", "rolling_step")
+    method, kind = setting("beta", "method"), setting("beta", "std_errors")
+    shifts = {"ols": 0, "scholes-williams": 2,
+              "dimson": setting("beta", "dimson_lags") + setting("beta", "dimson_leads")}[method]
+    coefficients = 4 if method == "scholes-williams" else 2 + shifts
+    expected = set()
+    for peer in result["peers"]:
+        name = peer["name"]
+        if peer["stability"]:
+            check_equal(f"{name} rolling window length (README's rule)", peer["stability"]["window_periods"], length)
+        rows = ROWS.get(name, [])
+        for end in range(length - 1, len(periods), step):
+            inside = set(periods[end - length + 1: end + 1])
+            used = [r for r in rows if r["period_end"] in inside]
+            n = len(used)
+            lags = newey_west_lags(n) if kind == "newey-west" else 0
+            if n < least or n <= coefficients or 4 * lags >= n or 4 * shifts >= n:
+                continue
+            asset_raw = [float(r["asset_return"]) for r in used]
+            market_raw = [float(r["market_return"]) for r in used]
+            market_excess = [m - float(r.get("risk_free") or 0.0) for m, r in zip(market_raw, used)]
+            if flat_to_rounding(asset_raw) or flat_to_rounding(market_raw) or flat_to_rounding(market_excess):
+                continue
+            expected.add((name, periods[end]))
+    written = [(w["peer"], w["window_end"]) for w in windows]
+    checks += 1
+    if len(written) != len(set(written)):
+        failures.append(f"rolling.csv lists a window twice: {len(written)} rows, {len(set(written))} distinct")
+    checks += 1
+    if set(written) != expected:
+        missing, extra = sorted(expected - set(written)), sorted(set(written) - expected)
+        failures.append(f"rolling.csv windows: {len(missing)} expected but not written {missing[:5]}, "
+                        f"{len(extra)} written but not expected {extra[:5]}")
+    check_equal("rolling windows expected (a check that an empty grid would pass is no check)", len(expected) > 0, True)
+
+
 def check_rolling(out_dir, result):
     """rolling.csv (written by `hurdle rolling`), when present: every window refitted from
     scratch on the returns.csv rows inside it (the window's `window_periods` grid periods ending
@@ -967,6 +1066,11 @@ def check_rolling(out_dir, result):
     position = {p: i for i, p in enumerate(periods)}
     method, kind = setting("beta", "method"), setting("beta", "std_errors")
     step = setting("beta", "rolling_step")
+    if WINDOW:
+        check_rolling_schedule(windows, periods, result)
+    else:
+        not_recomputed.append("rolling.csv's set of windows: the returns were not rebuilt, so the "
+                              "grid the windows are laid on is not known here")
     for w in windows:
         peer = next(p for p in result["peers"] if p["name"] == w["peer"])
         length = peer["stability"]["window_periods"]
@@ -1232,6 +1336,7 @@ def main(out_dir, given_case=None):
         "credit-spread": (kd_pre - rf) / erp,
     }[setting("leverage", "debt_beta_source")]
     check("subject debt beta", result["subject_debt_beta"], bd)
+    subject_bd = bd
     if formula == "hamada":
         bd = 0.0
     s = tax_factor(formula, t, kd_pre)
@@ -1257,6 +1362,49 @@ def main(out_dir, given_case=None):
     kl = (kd_pre if lease_cost is None else lease_cost) * (1 - t)
     kp = setting("preferred", "cost") if wp > 0 else 0.0
     check("WACC", result["wacc"], we * ke + wd * kd + wp * kp + wl * kl)
+
+    # README "Risky debt": result.json's leverage_comparison holds the same case under all four
+    # formulas. Every row is rebuilt here from the case's peers and target (not from the row in
+    # use): each peer unlevered by `unlever` at its D/E (the case's debt measure) and, for the
+    # beta of the operations, at gross D/E over the operating share; the case's aggregation over
+    # the included peers; relevered at the target by `relever`; then CAPM and the WACC as above.
+    def country_premium(beta_l):
+        return {"flat": crp, "exposure": setting("premiums", "country_exposure") * crp,
+                "beta-scaled": beta_l * crp}[setting("premiums", "country_method")]
+
+    rows = {row["formula"]: row for row in result["leverage_comparison"]}
+    compared = ["hamada", "harris-pringle", "miles-ezzell", "conine"]
+    check_equal("leverage comparison: the four formulas, in README's order",
+                [row["formula"] for row in result["leverage_comparison"]], compared)
+    check_equal("leverage comparison: the formula in use",
+                [row["formula"] for row in result["leverage_comparison"] if row["in_use"]], [formula])
+    for f in compared:
+        row = rows.get(f)
+        if row is None:
+            continue
+        peer_u, peer_ops = [], []
+        for peer in result["peers"]:
+            spec = specs[peer["name"]]
+            kd_peer, bd_peer = peer_debt_terms(spec)
+            gross = spec["debt"] / spec["equity_value"]
+            own = (spec["debt"] - spec["cash"]) / spec["equity_value"] if net else gross
+            peer_u.append(unlever(f, peer["beta_used"], own, spec["tax_rate"], kd_peer, bd_peer))
+            operating = 1 - spec["cash"] / (spec["equity_value"] + spec["debt"])
+            peer_ops.append(unlever(f, peer["beta_used"], gross, spec["tax_rate"], kd_peer, bd_peer) / operating)
+        check_equal(f"{f} comparison: one unlevered beta per peer", len(row["peer_unlevered_betas"]), len(peer_u))
+        check_equal(f"{f} comparison: one beta of the operations per peer", len(row["peer_operations_betas"]), len(peer_ops))
+        for peer, listed, ref in zip(result["peers"], row["peer_unlevered_betas"], peer_u):
+            check(f"{f} comparison: {peer['name']} unlevered", listed, ref)
+        for peer, listed, ref in zip(result["peers"], row["peer_operations_betas"], peer_ops):
+            check(f"{f} comparison: {peer['name']} beta of the operations", listed, ref)
+        chosen = peer_ops if setting("leverage", "operations_beta") else peer_u
+        agg = locations_of(np.array([v for peer, v in zip(result["peers"], chosen) if INCLUDED[peer["name"]]]))[how]
+        check(f"{f} comparison: {how} unlevered beta", row["unlevered"], agg)
+        beta_l = relever(f, agg, de, t, kd_pre, subject_bd)
+        check(f"{f} comparison: relevered beta", row["relevered"], beta_l)
+        ke_f = rf + beta_l * erp + size + country_premium(beta_l) + specific
+        check(f"{f} comparison: cost of equity (CAPM)", row["cost_of_equity"], ke_f)
+        check(f"{f} comparison: WACC", row["wacc"], we * ke_f + wd * kd + wp * kp + wl * kl)
 
     check_rolling(out_dir, result)
     check_histogram(result)

@@ -145,6 +145,15 @@ def main(out_dir):
 
     members = np.flatnonzero(included)
     check("point WACC", result["wacc"], float(wacc(betas[members], members)))
+    # README, result.json schema: one leave_one_out row per aggregated peer (the excluded ones
+    # are put back instead); the rows' peers must be exactly the case's included peers, each
+    # once, so that a missing or an empty list cannot pass the loop below unchecked.
+    global checks
+    listed = [row["peer"] for row in u["leave_one_out"]]
+    expected_peers = sorted(names[i] for i in members)
+    checks += 1
+    if sorted(listed) != expected_peers:
+        failures.append(f"leave_one_out peers: hurdle {sorted(listed)} vs the case's included peers {expected_peers}")
     for row in u["leave_one_out"]:
         i = names.index(row["peer"])
         rest = members[members != i]

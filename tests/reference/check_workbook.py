@@ -204,6 +204,16 @@ def check_analyses(sheet, result, label):
             report(agree(values[1], u["peer_set"][key]),
                    f"{label}: Analyses {name} (peer set): {values[1]} vs uncertainty.peer_set.{key}")
             checked += 2
+        # One leave-one-out row per aggregated peer (README, result.json schema: the excluded
+        # peers are put back instead), each once: the peers whose excluded_reason is null. The
+        # loop below then covers every such peer, and an empty list does not pass unchecked.
+        included = sorted(p["name"] for p in result["peers"] if p["excluded_reason"] is None)
+        listed = sorted(entry["peer"] for entry in u["leave_one_out"])
+        report(listed == included, f"{label}: leave_one_out peers {listed} vs the included peers {included}")
+        report(len(included) == result["beta"]["peers_included"],
+               f"{label}: {len(included)} peers without an exclusion vs beta.peers_included "
+               f"{result['beta']['peers_included']}")
+        checked += 2
         for entry in u["leave_one_out"]:
             if entry["wacc"] is not None:
                 got = rows.get(entry["peer"], [None])[0]
