@@ -391,11 +391,209 @@ fn negative_resolved_target_structure() {
 #[test]
 fn lookbacks_beyond_any_history_are_refused() {
     let case = CaseCopy::new();
+    // The demo case's returns are monthly: two centuries are 2400 of them (README: at most
+    // 200 years).
     let stderr = case.fail(&["--set", "beta.lookback=4000000"]);
-    assert_mentions(&stderr, &["beta.lookback", "at most 100000"]);
+    assert_mentions(&stderr, &["beta.lookback", "at most 2400 monthly periods"]);
     assert_number(&stderr, "4000000");
     let stderr = case.fail(&["--set", "beta.lookback=\"300000y\""]);
     assert_mentions(&stderr, &["beta.lookback", "300000y"]);
+}
+
+impl CaseCopy {
+    /// `hurdle betas <case.toml> <extra...>`: the case read and estimated, nothing written.
+    fn betas(&self, extra: &[&str]) -> Output {
+        Command::new(env!("CARGO_BIN_EXE_hurdle"))
+            .arg("betas")
+            .arg(self.case_file())
+            .args(extra)
+            .current_dir(self.root.path())
+            .output()
+            .expect("run hurdle")
+    }
+
+    /// As [`CaseCopy::fail`], with the exit code every refused input gives (README, Error
+    /// handling: 2) and the message on one line.
+    fn refuse(&self, extra: &[&str]) -> String {
+        let output = self.run(extra);
+        let stderr = String::from_utf8_lossy(&output.stderr).into_owned();
+        assert_eq!(output.status.code(), Some(2), "{stderr}");
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        assert_eq!(stderr.trim_end().lines().count(), 1, "{stderr}");
+        for name in OUTPUT_FILES {
+            assert!(!self.out_dir().join(name).exists(), "{name} was written");
+        }
+        stderr
+    }
+}
+
+// Found by review: a lookback given as a count was held to 100 000 periods only, so
+// `beta.lookback = 100000` of monthly returns reached back to the year -6307 (quarterly, -22974)
+// while the span "201y" was refused; README states "at most 100 000 periods or 200 years". A
+// count is now held to the periods the span "200y" holds, named with the frequency and the
+// years it would reach back: 12 × 200 months, 4 × 200 quarters; at weekly returns the run of
+// "200y" itself is the reference for the bound (10435 weeks from 2026-09-30, a Wednesday).
+#[test]
+fn a_lookback_count_is_held_to_two_centuries_as_a_span_is() {
+    let case = CaseCopy::new();
+    let stderr = case.refuse(&["--set", "beta.lookback=100000"]);
+    assert_mentions(
+        &stderr,
+        &[
+            "beta.lookback = 100000 monthly return periods reach back about 8333 years",
+            "at most 200 years: at most 2400 monthly periods, or a span such as \"200y\"",
+        ],
+    );
+    assert!(!stderr.contains("-6307"), "{stderr}");
+    let stderr = case.refuse(&[
+        "--set",
+        "beta.lookback=100000",
+        "--set",
+        "beta.frequency=quarterly",
+    ]);
+    assert_mentions(
+        &stderr,
+        &[
+            "beta.lookback = 100000 quarterly return periods reach back about 25000 years",
+            "at most 800 quarterly periods",
+        ],
+    );
+    // One period past the bound is refused; the bound itself is a window as long as "200y".
+    let stderr = case.refuse(&["--set", "beta.lookback=2401"]);
+    assert_mentions(&stderr, &["2401 monthly", "about 200.1 years"]);
+    let weekly = ["--set", "beta.frequency=weekly"];
+    let stderr = case.refuse(&[&weekly[..], &["--set", "beta.lookback=10436"]].concat());
+    assert_mentions(
+        &stderr,
+        &[
+            "10436 weekly",
+            "just over 200 years",
+            "at most 10435 weekly periods",
+        ],
+    );
+    let span = case.betas(&[&weekly[..], &["--set", "beta.lookback=\"200y\""]].concat());
+    let count = case.betas(&[&weekly[..], &["--set", "beta.lookback=10435"]].concat());
+    for output in [&span, &count] {
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+    }
+    // The same window: each peer's line (its N of returns) reads alike.
+    assert_eq!(
+        String::from_utf8_lossy(&span.stdout),
+        String::from_utf8_lossy(&count.stdout)
+    );
+}
+
+// Found by review: `uncertainty.seed` out of range was named by an internal type and without
+// its key: 9223372036854775808 (above the largest whole number TOML holds, 2^63 - 1) gave
+// "u64 value was too large" with no key or line; 99999999999999999999 gave "`… as i128 is out of
+// range … (a count: at least 0, and not in the billions)", with a stray backtick and a false
+// range (4294967296 is accepted); the same by --set was told to drop quotes nobody wrote. Each
+// now names uncertainty.seed, the value, and the range 0 to 9223372036854775807 in words.
+#[test]
+fn a_seed_out_of_range_is_named_with_its_key_and_range() {
+    const RANGE: &str = "a whole number from 0 to 9223372036854775807";
+    let seed_line = |case: &CaseCopy| {
+        let at = case
+            .case_text()
+            .lines()
+            .position(|l| l.starts_with("seed = "));
+        format!("line {}", at.unwrap() + 1)
+    };
+    for (seed, which) in [
+        ("9223372036854775808", "is above 9223372036854775807"),
+        ("18446744073709551616", "is above 9223372036854775807"),
+        ("99999999999999999999", "is above 9223372036854775807"),
+        ("-1", "is below 0"),
+    ] {
+        let case = CaseCopy::new();
+        case.edit_case("seed = 1\n", &format!("seed = {seed}\n"));
+        let stderr = case.refuse(&[]);
+        assert_mentions(
+            &stderr,
+            &[
+                "case.toml",
+                &seed_line(&case),
+                &format!("uncertainty.seed = {seed} {which}"),
+                RANGE,
+            ],
+        );
+        for internal in ["u64", "i128", "`", "billions"] {
+            assert!(!stderr.contains(internal), "{internal}: {stderr}");
+        }
+    }
+    let case = CaseCopy::new();
+    for (seed, which) in [
+        ("99999999999999999999", "is above 9223372036854775807"),
+        ("9223372036854775808", "is above 9223372036854775807"),
+        ("-1", "is below 0"),
+    ] {
+        let set = format!("uncertainty.seed={seed}");
+        let stderr = case.refuse(&["--set", &set]);
+        assert_mentions(&stderr, &[&set, &format!(": {seed} {which}"), RANGE]);
+        for wrong in ["without quotes", "u64", "i128", "billions"] {
+            assert!(!stderr.contains(wrong), "{wrong}: {stderr}");
+        }
+    }
+    // The largest seed, and one in the billions, are taken.
+    for seed in ["9223372036854775807", "4294967296"] {
+        let output = case.betas(&["--set", &format!("uncertainty.seed={seed}")]);
+        assert!(
+            output.status.success(),
+            "{seed}: {}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+    }
+}
+
+// Found by review: a peer named `Corrowick <b>Valves</b> & Co` put the HTML tags into
+// memo.md's tables, for any Markdown viewer to render. Such a `<` is refused in a name, title or
+// label as backticks and square brackets are (they open code and links), naming the key, the
+// value and why; an ampersand, which opens nothing, is kept. CommonMark reads `<` followed by a letter, `/`, `!` or `?` as the start of raw HTML or an
+// autolink (CommonMark spec, "Raw HTML" and "Autolinks"); a `<` before a space or a digit, and
+// a `>`, open nothing, so an exclusion reason "R² < 0.1" is kept.
+#[test]
+fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
+    let case = CaseCopy::new();
+    let named = "Corrowick <b>Valves</b> & Co";
+    let stderr = case.refuse(&["--set", &format!("peer.1.name=\"{named}\"")]);
+    assert_mentions(
+        &stderr,
+        &[
+            &format!("peer.1.name = \"{named}\" holds `<b`"),
+            "opens an HTML tag or a link in the memo's Markdown",
+        ],
+    );
+    // In the file, the file is named.
+    let in_file = CaseCopy::new();
+    in_file.edit_case(
+        "name = \"Corrowick Valves\"",
+        "name = \"Corrowick Valves </x>\"",
+    );
+    let stderr = in_file.refuse(&[]);
+    assert_mentions(
+        &stderr,
+        &[
+            "case.toml",
+            "peer.1.name = \"Corrowick Valves </x>\" holds `</`",
+        ],
+    );
+    let stderr = case.refuse(&["--set", "case.title=\"Draft <!-- 2 -->\""]);
+    assert_mentions(&stderr, &["case.title = \"Draft <!-- 2 -->\" holds `<!`"]);
+    for kept in [
+        "peer.1.name=\"Corrowick Valves & Co\"",
+        "peer.1.exclude=\"R² < 0.1 over the window, D/E > 2\"",
+    ] {
+        let output = case.betas(&["--set", kept]);
+        assert!(
+            output.status.success(),
+            "{kept}: {}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+    }
 }
 
 #[test]

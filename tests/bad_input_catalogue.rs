@@ -1529,6 +1529,34 @@ fn case_files() -> Vec<Bad> {
             ["{line}", "target.subject_equity_value", "inf"]
         ),
         bad!(
+            "negative subject debt under an explicit target",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "target.subject_debt=-1"
+            ],
+            [
+                "after applying --set target.subject_debt=-1",
+                "target.subject_debt = -1 is negative"
+            ]
+        ),
+        bad!(
+            "zero subject equity under an explicit target",
+            |s| s.edit_case(
+                "subject_equity_value = 1500.0",
+                "subject_equity_value = 0.0"
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "case.toml",
+                "target.subject_equity_value = 0 must be positive"
+            ]
+        ),
+        bad!(
             "NaN in a peer",
             |s| s.edit_case("debt = 520.0", "debt = -nan"),
             ["run", "{case}", "--out", "{out}"],
@@ -1730,7 +1758,7 @@ fn case_files() -> Vec<Bad> {
             "lookback beyond any history",
             |s| s.edit_case("lookback = 60", "lookback = 4000000"),
             ["run", "{case}", "--out", "{out}"],
-            ["beta.lookback", "4000000", "100000"]
+            ["beta.lookback", "4000000", "at most 2400 monthly periods"]
         ),
         bad!(
             "window_start with lookback",

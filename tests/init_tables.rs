@@ -550,3 +550,81 @@ fn a_yield_cell_is_a_missing_yield_and_a_csv_cell_names_its_column_once() {
         "{stderr}"
     );
 }
+
+// Found by review: init left the spreadsheet-formula mark off a header (`=Brenvale Co` named
+// "Brenvale Co") before numbering names that read alike, so beside a column `Brenvale Co` the
+// peer "Brenvale Co" read the column `=Brenvale Co` and "Brenvale Co (2)" read `Brenvale Co`,
+// and the console listed the names alone. A header that is already a plain name keeps it; a
+// cleaned name that reads like another column's header is numbered; init's list says which
+// column each renamed peer reads, a wrapped header with its line break written `\n`.
+#[test]
+fn no_peer_is_named_after_a_column_it_does_not_read() {
+    let folder = Folder::new();
+    let csv = folder.write(
+        "wide.csv",
+        "Date,Idx,RF,=Brenvale Co,-Corrowick,Brenvale Co,Estwold\n\
+         2024-01-31,100,0.031,20,30,40,50\n\
+         2024-02-29,101,0.032,21,31,41,51\n\
+         2024-03-28,102,0.033,22,32,42,52\n",
+    );
+    let (stdout, _) = folder.init_ok(&csv, &["--index", "Idx", "--risk-free", "RF"]);
+    assert!(
+        stdout.contains(
+            "  peers: `Brenvale Co (2)` (column `=Brenvale Co`), `Corrowick` (column \
+             `-Corrowick`), `Brenvale Co`, `Estwold`\n"
+        ),
+        "{stdout}"
+    );
+    let written = fs::read_to_string(folder.path("case.toml")).unwrap();
+    let case: toml::Table = toml::from_str(&written).unwrap();
+    let pairs: Vec<(String, String)> = (case["peer"].as_array().unwrap().iter())
+        .map(|p| {
+            let field = |key: &str| p[key].as_str().unwrap().to_string();
+            (field("name"), field("column"))
+        })
+        .collect();
+    let expected = [
+        ("Brenvale Co (2)", "=Brenvale Co"),
+        ("Corrowick", "-Corrowick"),
+        ("Brenvale Co", "Brenvale Co"),
+        ("Estwold", "Estwold"),
+    ];
+    assert_eq!(pairs, expected.map(|(n, c)| (n.to_string(), c.to_string())));
+    // The rule itself: no name is the header of a column other than the peer's own.
+    let headers = [
+        "Date",
+        "Idx",
+        "RF",
+        "=Brenvale Co",
+        "-Corrowick",
+        "Brenvale Co",
+        "Estwold",
+    ];
+    for (name, column) in &pairs {
+        assert!(
+            !headers
+                .iter()
+                .any(|h| h != column && h.eq_ignore_ascii_case(name)),
+            "{name} reads {column}"
+        );
+    }
+
+    // A wrapped header beside the same words on one line: the one-line header keeps its name.
+    let folder = Folder::new();
+    let csv = folder.write(
+        "alike.csv",
+        "date,Index,\"A\nB\",A B\n2024-01-31,100,10,20\n2024-02-29,101,11,21\n",
+    );
+    let (stdout, _) = folder.init_ok(&csv, &["--index", "Index"]);
+    assert!(
+        stdout.contains("  peers: `A B (2)` (column `A\\nB`), `A B`\n"),
+        "{stdout}"
+    );
+    let written = fs::read_to_string(folder.path("case.toml")).unwrap();
+    let case: toml::Table = toml::from_str(&written).unwrap();
+    let peers = case["peer"].as_array().unwrap();
+    assert_eq!(peers[0]["name"].as_str(), Some("A B (2)"));
+    assert_eq!(peers[0]["column"].as_str(), Some("A\nB"));
+    assert_eq!(peers[1]["name"].as_str(), Some("A B"));
+    assert_eq!(peers[1]["column"].as_str(), Some("A B"));
+}

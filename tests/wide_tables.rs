@@ -758,8 +758,9 @@ fn init(args: &[&str]) -> Output {
 }
 
 // Two headers that read alike on one line (a wrapped "A" line break "B" and "A B") give two
-// peers whose names must differ (case validation refuses a repeated name): the later is
-// numbered, each `column` keeps its header as written, and the written case parses.
+// peers whose names must differ (case validation refuses a repeated name): the header that is
+// already a plain name keeps it, the cleaned one is numbered (so no peer carries the name of a
+// column it does not read), each `column` keeps its header as written, and the case parses.
 #[test]
 fn init_names_peers_apart_when_their_headers_read_alike() {
     let dir = tempfile::tempdir().unwrap();
@@ -788,11 +789,11 @@ fn init_names_peers_apart_when_their_headers_read_alike() {
     let field = |i: usize, key: &str| peers[i][key].as_str().unwrap().to_string();
     assert_eq!(
         (field(0, "name"), field(0, "column")),
-        ("A B".into(), "A\nB".into())
+        ("A B (2)".into(), "A\nB".into())
     );
     assert_eq!(
         (field(1, "name"), field(1, "column")),
-        ("A B (2)".into(), "A B".into())
+        ("A B".into(), "A B".into())
     );
 }
 

@@ -6,6 +6,13 @@ use std::fmt;
 use chrono::NaiveDate;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
+use crate::market::sampling::{self, Frequency, SampleWeekday};
+
+/// hurdle's bound on how far a window reaches back, as a span (`"200y"`) or as a count of
+/// periods: two centuries of history is more than any price file holds, and it keeps the date
+/// arithmetic inside the calendar.
+pub const MOST_YEARS: u32 = 200;
+
 /// `beta.lookback`: a count of return periods or a calendar span (`5y`, `18m`, `104w`, `250d`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Lookback {
@@ -60,13 +67,12 @@ impl Lookback {
         if count == 0 {
             return Err(bad());
         }
-        // hurdle's bound: two centuries of history is more than any price file holds, and it
-        // keeps the date arithmetic inside the calendar.
+        // [`MOST_YEARS`] in each unit.
         let most = match unit {
-            SpanUnit::Years => 200,
-            SpanUnit::Months => 2_400,
-            SpanUnit::Weeks => 10_400,
-            SpanUnit::Days => 73_000,
+            SpanUnit::Years => MOST_YEARS,
+            SpanUnit::Months => 12 * MOST_YEARS,
+            SpanUnit::Weeks => 52 * MOST_YEARS,
+            SpanUnit::Days => 365 * MOST_YEARS,
         };
         if count > most {
             return Err(format!(
@@ -94,6 +100,55 @@ impl Lookback {
             SpanUnit::Days => end - chrono::Days::new(u64::from(count)),
         })
     }
+}
+
+/// The years `periods` return periods of `frequency` span, about: a month is a twelfth of a
+/// year, a week 7 of the Gregorian year's 365.2425 days, a weekday (a daily period) 7/5 of a day.
+pub fn years_of_periods(periods: u32, frequency: Frequency) -> f64 {
+    const DAYS_A_YEAR: f64 = 365.2425;
+    let n = f64::from(periods);
+    match frequency {
+        Frequency::Daily => n * 7.0 / 5.0 / DAYS_A_YEAR,
+        Frequency::Weekly => n * 7.0 / DAYS_A_YEAR,
+        Frequency::Monthly => n / 12.0,
+        Frequency::Quarterly => n / 4.0,
+    }
+}
+
+/// `Some(most)` when `periods` return periods of `frequency`, ending at the last sample point
+/// on or before `end`, reach back further than [`MOST_YEARS`]: `most` is as many as the span
+/// `"200y"` holds there, so that a count is held to the same two centuries as a span (found by
+/// review: `lookback = 100000` of monthly returns reached back to the year -6307). A monthly or
+/// quarterly bound is exact; a weekly or daily one (10 435 and 52 177 back from 2026-09-30)
+/// depends on the weekdays of the span, so it is counted on the calendar, only for a count near
+/// it.
+pub fn beyond_most_years(
+    periods: u32,
+    frequency: Frequency,
+    weekday: SampleWeekday,
+    end: NaiveDate,
+) -> Option<u32> {
+    // Fewer than any two centuries hold, at these frequencies.
+    let surely_inside = match frequency {
+        Frequency::Daily => 52_000,
+        Frequency::Weekly => 10_400,
+        Frequency::Monthly => 12 * MOST_YEARS,
+        Frequency::Quarterly => 4 * MOST_YEARS,
+    };
+    if periods <= surely_inside {
+        return None;
+    }
+    let most = match frequency {
+        Frequency::Monthly | Frequency::Quarterly => surely_inside,
+        Frequency::Daily | Frequency::Weekly => {
+            let last = sampling::last_point_on_or_before(frequency, weekday, end);
+            match last.checked_sub_months(chrono::Months::new(12 * MOST_YEARS)) {
+                Some(start) => sampling::periods_between(frequency, weekday, start, end),
+                None => surely_inside,
+            }
+        }
+    };
+    (periods > most).then_some(most)
 }
 
 impl Serialize for Lookback {

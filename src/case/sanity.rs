@@ -15,7 +15,7 @@ use super::{CaseDate, CaseFile, DebtSource, TargetSource};
 use crate::error::compact as show;
 
 pub use prices::price_pattern_notes;
-pub use text::{case_or_universe, check_case_text, check_claimed_text, empty_or_csv};
+pub use text::{case_or_universe, check_claimed_text, empty_or_csv};
 pub use window::{
     file_end_notes, index_cadence_note, index_coverage_note, peer_cadence_note, short_window_note,
     unused_beta_notes, window_end_note, window_note,
@@ -70,6 +70,74 @@ pub const YIELD_RATIO: f64 = 10.0;
 pub const YEARS: (i32, i32) = (1800, 2199);
 /// Largest relative tolerance of `verify`: looser, it stops being a reproduction check.
 pub const MAX_TOLERANCE: f64 = 1e-6;
+
+/// The largest Monte Carlo seed: the largest whole number a TOML file holds, as the case is
+/// written back as TOML (a what-if, the receipt's settings) and must read the same again.
+pub const MAX_SEED: u64 = i64::MAX as u64;
+
+/// The checks on a case file's text before it is parsed ([`text::check_case_text`]), and its
+/// `uncertainty.seed` in range, named with its key and line: the parser names a seed beyond
+/// 64 bits or below 0 by its line only, and one between [`MAX_SEED`] and 2^64 not at all (found
+/// by review: "u64 value was too large").
+pub fn check_case_text(text: &str) -> std::result::Result<(), String> {
+    text::check_case_text(text)?;
+    seed_in_text(text)
+}
+
+/// `uncertainty.seed` as written, refused with its line when it is a whole number outside 0 to
+/// [`MAX_SEED`]; any other value (text, a decimal) is left to the typed parser.
+fn seed_in_text(text: &str) -> std::result::Result<(), String> {
+    use toml::de::{DeTable, DeValue};
+    let Ok(document) = DeTable::parse(text) else {
+        return Ok(()); // The parser names a syntax error with its line.
+    };
+    fn entry<'t, 'i>(table: &'t DeTable<'i>, key: &str) -> Option<&'t toml::Spanned<DeValue<'i>>> {
+        (table.iter())
+            .find(|(k, _)| k.get_ref().as_ref() == key)
+            .map(|(_, v)| v)
+    }
+    let Some(uncertainty) = entry(document.get_ref(), "uncertainty") else {
+        return Ok(());
+    };
+    let DeValue::Table(uncertainty) = uncertainty.get_ref() else {
+        return Ok(());
+    };
+    let Some(seed) = entry(uncertainty, "seed") else {
+        return Ok(());
+    };
+    let DeValue::Integer(whole) = seed.get_ref() else {
+        return Ok(());
+    };
+    let value = i128::from_str_radix(whole.as_str(), whole.radix());
+    if value
+        .as_ref()
+        .is_ok_and(|&v| (0..=i128::from(MAX_SEED)).contains(&v))
+    {
+        return Ok(());
+    }
+    let line = text.as_bytes()[..seed.span().start.min(text.len())]
+        .iter()
+        .filter(|&&b| b == b'\n')
+        .count()
+        + 1;
+    let negative = whole.as_str().starts_with('-');
+    Err(format!(
+        "line {line}: {}",
+        seed_out_of_range(&whole.to_string(), negative)
+    ))
+}
+
+/// The refusal of `uncertainty.seed = value` outside 0 to [`MAX_SEED`], in words.
+pub(crate) fn seed_out_of_range(value: &str, negative: bool) -> String {
+    let which = match negative {
+        true => "below 0".to_string(),
+        false => format!("above {MAX_SEED}"),
+    };
+    format!(
+        "uncertainty.seed = {value} is {which}: a seed is a whole number from 0 to {MAX_SEED}, \
+         the largest a case file holds (the same seed always gives the same draws)"
+    )
+}
 
 /// Every number of a case (after overrides) finite. Called first by `case::validate`, so a
 /// non-finite value is named before any arithmetic.
@@ -303,6 +371,10 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
 /// backtick or a square bracket, which open code spans, links and images in the memo's Markdown:
 /// a peer named `[x](http://…)` would put a link, or an image loaded from elsewhere, into the
 /// self-contained report, and a bracket in a chart's title breaks the image line that places it.
+/// Nor a `<` that opens raw HTML or an autolink there (followed by a letter, `/`, `!` or `?`, as
+/// CommonMark reads a tag, a comment or a link; found by review: a peer named `Corrowick
+/// <b>Valves</b>` put the tags into memo.md's tables, for any Markdown viewer to render). A `<`
+/// before a space or a digit ("R² < 0.1") and a `>` open nothing and are kept.
 pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), String> {
     if !crate::io::sanity::is_one_line(text) {
         return Err(format!(
@@ -310,12 +382,27 @@ pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), Stri
              and labels are one line of text"
         ));
     }
-    match text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
-        None => Ok(()),
-        Some(mark) => Err(format!(
+    if let Some(mark) = text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
+        return Err(format!(
             "{key} = \"{text}\" holds `{mark}`, which opens code or a link in the memo's and the \
              report's Markdown (a name could then draw a link or lose its chart); write it \
              without backticks and square brackets, with parentheses for instance"
+        ));
+    }
+    let opens_tag =
+        |(a, b): (char, char)| a == '<' && (b.is_ascii_alphabetic() || "/!?".contains(b));
+    let chars: Vec<char> = text.chars().collect();
+    match chars
+        .windows(2)
+        .map(|w| (w[0], w[1]))
+        .find(|&pair| opens_tag(pair))
+    {
+        None => Ok(()),
+        Some((_, next)) => Err(format!(
+            "{key} = \"{text}\" holds `<{next}`, which opens an HTML tag or a link in the memo's \
+             Markdown (a name holding <b>…</b> would change how a Markdown viewer shows the \
+             memo); write it without the angle bracket, with parentheses or words (\"below\") \
+             instead"
         )),
     }
 }

@@ -18,7 +18,7 @@ use crate::case::placeholders::placeholder;
 use crate::case::{BetaSettings, LeverageSettings, Premiums, UncertaintySettings};
 use crate::error::{compact, Error, Result};
 use crate::io::series::ValueKind;
-use crate::io::tables::{PriceTable, TableFormat};
+use crate::io::tables::{header_key, PriceTable, TableFormat};
 
 /// What `hurdle init` was asked for.
 #[derive(Debug, Clone)]
@@ -48,9 +48,13 @@ fn display_name(header: &str) -> String {
     // A name a spreadsheet would read as a formula in a CSV output is refused by the case, so
     // the characters that start one are left off the name (`column` keeps the header).
     let kept = name.trim_start_matches(['=', '+', '-', '@', ' ']);
-    // Backticks and square brackets open code and links in the memo's Markdown, which the case
-    // refuses in a name: a bracket becomes a parenthesis, a backtick an apostrophe.
-    let kept = kept.replace('[', "(").replace(']', ")").replace('`', "'");
+    // Backticks, square and angle brackets open code, links and HTML in the memo's Markdown,
+    // which the case refuses in a name: a bracket becomes a parenthesis, a backtick an
+    // apostrophe.
+    let kept = kept
+        .replace(['[', '<'], "(")
+        .replace([']', '>'], ")")
+        .replace('`', "'");
     match kept.is_empty() {
         true => "peer".to_string(),
         false => kept,
@@ -73,7 +77,8 @@ pub struct StartingCase {
 /// A peer made of a column of the table.
 #[derive(Debug, Clone)]
 pub struct StartedPeer {
-    /// The peer's name in the case: the header on one line, numbered when two read alike.
+    /// The peer's name in the case: the header on one line, numbered when it would read like
+    /// another column's header or another peer's name ([`peer_names`]).
     pub name: String,
     /// The column's header, as the table writes it.
     pub column: String,
@@ -183,34 +188,70 @@ fn column_values(
     Ok(file.series.values)
 }
 
-/// A peer for each of `columns`, each read as its prices; of two headers that read alike on one
-/// line (`A\nB` and `A B`), the later is numbered (`A B (2)`), so the case runs as written.
+/// A peer for each of `columns`, each read as its prices and named by [`peer_names`].
 fn started_peers(table: &PriceTable, columns: &[&String]) -> Result<Vec<StartedPeer>> {
     const ADVICE: &str = "; init makes every column other than the index (and the risk-free \
                           yields) a peer: correct the cell, or remove the column from the table";
-    let mut peers: Vec<StartedPeer> = Vec::with_capacity(columns.len());
+    let mut rate_like = Vec::with_capacity(columns.len());
     for column in columns {
         let values = column_values(table, column, ValueKind::Price, ADVICE)?;
-        let plain = display_name(column);
-        let mut name = plain.clone();
-        let mut n = 1;
-        // Alike also when capitals are ignored, as the case compares names.
-        while peers
-            .iter()
-            .any(|p| p.name.to_lowercase() == name.to_lowercase())
-        {
-            n += 1;
-            name = format!("{plain} ({n})");
-        }
         let low = values.iter().copied().fold(f64::INFINITY, f64::min);
         let high = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        peers.push(StartedPeer {
+        rate_like.push((low > -1.0 && high < 1.0).then_some((low, high)));
+    }
+    let headers: Vec<&str> = std::iter::once(&table.date_column)
+        .chain(&table.columns)
+        .map(String::as_str)
+        .collect();
+    let wanted: Vec<&str> = columns.iter().map(|c| c.as_str()).collect();
+    let names = peer_names(&headers, &wanted);
+    Ok((columns.iter().zip(names).zip(rate_like))
+        .map(|((column, name), rate_like)| StartedPeer {
             name,
             column: column.to_string(),
-            rate_like: (low > -1.0 && high < 1.0).then_some((low, high)),
-        });
+            rate_like,
+        })
+        .collect())
+}
+
+/// The peers' names for the columns `columns` of a table whose headers (the date column's
+/// among them) are `headers`. A header that is already a plain name ([`display_name`] leaves it
+/// as it is) keeps it. Any other column's name is its [`display_name`], numbered (`A B (2)`)
+/// when it reads like the header of another column or the name of another peer (capitals
+/// aside, and each run of white space one space, as headers and names are matched), so that no
+/// peer is named after a column it does not read (found by review: the column `=Alder` was named
+/// "Alder" beside a column `Alder`, which became "Alder (2)"). Names never repeat, also when
+/// capitals are ignored, as the case requires.
+fn peer_names(headers: &[&str], columns: &[&str]) -> Vec<String> {
+    let fold = |text: &str| header_key(text).to_lowercase();
+    let plain: Vec<String> = columns.iter().map(|c| display_name(c)).collect();
+    let mut names: Vec<Option<String>> = vec![None; columns.len()];
+    let mut taken: Vec<String> = Vec::with_capacity(columns.len());
+    // A header taken as it is first, so that a cleaned name never takes it from its column.
+    for (j, column) in columns.iter().enumerate() {
+        if plain[j] == *column && !taken.contains(&fold(column)) {
+            taken.push(fold(column));
+            names[j] = Some(plain[j].clone());
+        }
     }
-    Ok(peers)
+    for (j, column) in columns.iter().enumerate() {
+        if names[j].is_some() {
+            continue;
+        }
+        let clashes = |name: &str| {
+            let folded = fold(name);
+            taken.contains(&folded) || (headers.iter()).any(|h| h != column && fold(h) == folded)
+        };
+        let mut name = plain[j].clone();
+        let mut n = 1;
+        while clashes(&name) {
+            n += 1;
+            name = format!("{} ({n})", plain[j]);
+        }
+        taken.push(fold(&name));
+        names[j] = Some(name);
+    }
+    names.into_iter().flatten().collect()
 }
 
 fn header(table: &PriceTable, options: &StartOptions) -> String {
@@ -564,6 +605,7 @@ mod tests {
         assert_eq!(display_name("=-"), "peer");
         // Markdown's code and link marks (refused in a case's name) become plain punctuation.
         assert_eq!(display_name("Alder [A] `B`"), "Alder (A) 'B'");
+        assert_eq!(display_name("Alder <b>B</b>"), "Alder (b)B(/b)");
         let table = peer_table(&StartedPeer {
             name: display_name("Alder\nTree"),
             column: "Alder\nTree".into(),
@@ -574,6 +616,61 @@ mod tests {
             table.contains("column = \"\"\"\nAlder\nTree\"\"\"\n"),
             "{table}"
         );
+    }
+
+    // No peer is named after a column it does not read (found by review: `=Brenvale Co` was
+    // named "Brenvale Co" beside the column `Brenvale Co`, named "Brenvale Co (2)"): a header
+    // that is a plain name keeps it, a cleaned one is numbered past every other column's header
+    // and every other peer's name, capitals and runs of white space aside.
+    #[test]
+    fn a_cleaned_name_never_takes_another_columns_header() {
+        let headers = [
+            "Date",
+            "Idx",
+            "=Brenvale Co",
+            "-Corrowick",
+            "Brenvale Co",
+            "=idx",
+            "Estwold",
+        ];
+        let names = peer_names(&headers, &headers[2..]);
+        assert_eq!(
+            names,
+            [
+                "Brenvale Co (2)",
+                "Corrowick",
+                "Brenvale Co",
+                "idx (2)",
+                "Estwold"
+            ]
+        );
+        // A numbered name that is itself a header is numbered on; a wrapped header reads like
+        // the one-line header beside it, which keeps its name; two headers alike but for
+        // capitals are numbered apart.
+        let headers = [
+            "date",
+            "=Alder",
+            "Alder",
+            "Alder (2)",
+            "A\nB",
+            "A B",
+            "ABC",
+            "abc",
+        ];
+        assert_eq!(
+            peer_names(&headers, &headers[1..]),
+            [
+                "Alder (3)",
+                "Alder",
+                "Alder (2)",
+                "A B (2)",
+                "A B",
+                "ABC",
+                "abc (2)"
+            ]
+        );
+        // The date column's header is another column's too.
+        assert_eq!(peer_names(&["Date", "=date"], &["=date"]), ["date (2)"]);
     }
 
     // Every key a default settings table serialises has a line (and so a comment) in the

@@ -4,6 +4,7 @@
 
 mod capital;
 
+use super::lookback::{beyond_most_years, years_of_periods, MOST_YEARS};
 use super::sanity::{plain_label, MIN_SPREAD_PREMIUM};
 use super::schema::*;
 
@@ -122,6 +123,12 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
 /// Range checks a type cannot express, section by section. The message names the key and the
 /// offending value.
 pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
+    // Before the check that writes the case as TOML, which cannot hold a larger seed (a case's
+    // text is checked for it with its line; this is for settings made otherwise).
+    let seed = case.uncertainty.seed;
+    if seed > super::sanity::MAX_SEED {
+        return Err(super::sanity::seed_out_of_range(&seed.to_string(), false));
+    }
     super::sanity::check_finite(case)?;
     validate_finite(case)
 }
@@ -206,13 +213,7 @@ fn validate_window(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     if let Lookback::Periods(n) = beta.lookback {
-        // hurdle's bound: 100 000 periods is four centuries of daily data, more than any price
-        // file holds, and it keeps the window's date arithmetic inside the calendar.
-        if n > 100_000 {
-            return Err(format!(
-                "beta.lookback = {n} periods is more than any price history holds; at most 100000"
-            ));
-        }
+        lookback_count_within_bound(beta, n, valuation_date)?;
     }
     if let (Some(start), end) = (beta.window_start, beta.window_end_date(valuation_date)) {
         if start.0 >= end {
@@ -245,6 +246,32 @@ fn validate_window(case: &CaseFile) -> std::result::Result<(), String> {
     }
     validate_beta_options(beta, lookback)?;
     validate_rolling_and_flags(beta, lookback)
+}
+
+/// A count of periods held to the two centuries a span is held to ([`MOST_YEARS`]), more than
+/// any price history holds; the window's date arithmetic stays inside the calendar. Checked
+/// whether or not `beta.window_start` sets the window instead, as the span's bound is.
+fn lookback_count_within_bound(
+    beta: &BetaSettings,
+    n: u32,
+    valuation_date: chrono::NaiveDate,
+) -> std::result::Result<(), String> {
+    let end = beta.window_end_date(valuation_date);
+    let Some(most) = beyond_most_years(n, beta.frequency, beta.weekday, end) else {
+        return Ok(());
+    };
+    let years = years_of_periods(n, beta.frequency);
+    let span = match years {
+        y if y >= 1000.0 => format!("about {y:.0} years"),
+        y if y < MOST_YEARS as f64 + 0.05 => format!("just over {MOST_YEARS} years"),
+        y => format!("about {y:.1} years"),
+    };
+    let frequency = super::label(&beta.frequency);
+    Err(format!(
+        "beta.lookback = {n} {frequency} return periods reach back {span}, more than any price \
+         history holds; a window reaches back at most {MOST_YEARS} years: at most {most} \
+         {frequency} periods, or a span such as \"{MOST_YEARS}y\""
+    ))
 }
 
 /// The rolling windows against the window's `lookback` periods, and the flag thresholds.

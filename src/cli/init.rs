@@ -102,7 +102,18 @@ fn report(args: &Args, out: &Path, table: &PriceTable, started: &StartingCase) {
         shown(&table.date_column),
         shown(&started.index)
     );
-    let peers: Vec<String> = started.peers.iter().map(|p| shown(&p.name)).collect();
+    // A peer named otherwise than its header says which column it reads (found by review:
+    // peers named "Alder" and "Alder (2)" read the columns `=Alder` and `Alder`, unsaid).
+    let peers: Vec<String> = (started.peers.iter())
+        .map(|p| match p.name == p.column {
+            true => shown(&p.name),
+            false => format!(
+                "{} (column {})",
+                shown(&p.name),
+                header_as_written(&p.column)
+            ),
+        })
+        .collect();
     println!("  peers: {}", peers.join(", "));
     println!(
         "  {} placeholders (\"{}: …>\") are figures only you can supply: fill each in before \
@@ -129,6 +140,20 @@ fn report(args: &Args, out: &Path, table: &PriceTable, started: &StartingCase) {
             shell_word(&header_key(&peer.column))
         );
     }
+}
+
+/// A header in backticks as the table writes it, on one line: a line break, a tab, a no-break
+/// space or another such character is written as its escape (`\n`, `\u{a0}`), so that two
+/// headers that read alike once spaced alike (`A\nB` and `A B`) are told apart.
+fn header_as_written(header: &str) -> String {
+    let mut text = String::with_capacity(header.len());
+    for c in header.chars() {
+        match c.is_control() || (c.is_whitespace() && c != ' ') {
+            true => text.extend(c.escape_default()),
+            false => text.push(c),
+        }
+    }
+    format!("`{text}`")
 }
 
 /// `text` as one shell word: quoted unless it is letters, digits and `-_.` only.

@@ -11,6 +11,15 @@ pub(super) fn plain_message(message: &str, line: Option<&str>) -> String {
     if let Some(plain) = type_message(message).or_else(|| key_message(message)) {
         return plain;
     }
+    // The parser's word for a whole number beyond even 128 bits.
+    if message == "integer number overflowed" {
+        return format!(
+            "the whole number is too large: hurdle's files hold whole numbers from {} to {}, \
+             and each key takes a smaller range (README, Case file reference)",
+            i64::MIN,
+            i64::MAX
+        );
+    }
     match line.and_then(line_hint) {
         Some(hint) => format!("{hint} ({message})"),
         None if message == "duplicate key" => {
@@ -73,13 +82,22 @@ fn type_message(message: &str) -> Option<String> {
         .strip_prefix("invalid type: ")
         .or_else(|| message.strip_prefix("invalid value: "))?;
     let (found, expected) = rest.split_once(", expected ")?;
-    let whole = matches!(expected, "u32" | "u64" | "usize" | "i64");
+    let range = whole_range(expected);
+    let whole = range.is_some();
     let number = whole || expected == "f64";
     if let Some(text) = found
         .strip_prefix("string \"")
         .and_then(|t| t.strip_suffix('"'))
         .filter(|_| number)
     {
+        // A whole number too large for the TOML reader reaches here as text (a `--set` of one
+        // is kept as the text it cannot read): it is out of range, not in quotes (found by
+        // review: `--set uncertainty.seed=99999999999999999999` was told to drop quotes).
+        if let Some(((low, high), wide)) = range.zip(whole_number(text)) {
+            if wide < low || wide > high {
+                return Some(out_of_range(text.trim(), (low, high)));
+            }
+        }
         let advice = if text.trim_end().ends_with('%') {
             "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
         } else if text.contains(',') {
@@ -93,19 +111,22 @@ fn type_message(message: &str) -> Option<String> {
         };
         return Some(format!("\"{text}\" is not a number: {advice}"));
     }
-    if whole {
-        let value = found
-            .trim_start_matches("floating point ")
-            .trim_start_matches("integer ")
-            .trim_matches('`');
-        let why = if found.starts_with("floating point") {
-            "is not a whole number: this key takes a whole number"
-        } else if found.starts_with("integer") {
-            "is out of range for this key (a count: at least 0, and not in the billions)"
-        } else {
-            "is not a number: this key takes a whole number"
+    if let Some(range) = range {
+        // serde writes the value between backticks, a wide one followed by the type it was read
+        // as ("integer `99999999999999999999` as i128"; found by review: a backtick and the type
+        // name were left in the message).
+        let value = match found {
+            "map" => "a date or a table",
+            "sequence" => "a list",
+            _ => found.split('`').nth(1).unwrap_or(found),
         };
-        return Some(format!("{value} {why}"));
+        return Some(if found.starts_with("floating point") {
+            format!("{value} is not a whole number: this key takes a whole number")
+        } else if found.starts_with("integer") {
+            out_of_range(value, range)
+        } else {
+            format!("{value} is not a number: this key takes a whole number")
+        });
     }
     // serde names what it found by kind and value ("floating point `1.5`", "boolean `true`",
     // "string \"x\""), a TOML date or table as "map" and a list as "sequence" (found by review:
@@ -138,6 +159,45 @@ fn type_message(message: &str) -> Option<String> {
     Some(format!(
         "{shown} is not what this key takes: it takes {what}"
     ))
+}
+
+/// The whole numbers a key of serde's type `expected` holds, or `None` for a key that takes
+/// something else. A 64-bit count stops at the largest whole number a TOML file holds, since
+/// the case is written back as TOML (as `result.json`'s settings and a what-if are).
+fn whole_range(expected: &str) -> Option<(i128, i128)> {
+    match expected {
+        "u32" => Some((0, u32::MAX.into())),
+        "u64" | "usize" => Some((0, i64::MAX.into())),
+        "i64" => Some((i64::MIN.into(), i64::MAX.into())),
+        _ => None,
+    }
+}
+
+/// `text` as a whole number when it is written as one (digits, a sign before them at most):
+/// beyond 128 bits it is taken as the largest such number, which is out of every range.
+fn whole_number(text: &str) -> Option<i128> {
+    let text = text.trim();
+    let digits = text.strip_prefix(['-', '+']).unwrap_or(text);
+    if digits.is_empty() || !digits.bytes().all(|b| b.is_ascii_digit()) {
+        return None;
+    }
+    Some(text.parse().unwrap_or(match text.starts_with('-') {
+        true => i128::MIN,
+        false => i128::MAX,
+    }))
+}
+
+/// "`value` is out of range for this key: it takes a whole number from `low` to `high`".
+fn out_of_range(value: &str, (low, high): (i128, i128)) -> String {
+    let which = match whole_number(value) {
+        Some(n) if n < low => format!("below {low}, "),
+        Some(n) if n > high => format!("above {high}, "),
+        _ => String::new(),
+    };
+    format!(
+        "{value} is {which}out of range for this key: it takes a whole number from {low} to \
+         {high}"
+    )
 }
 
 /// serde's "unknown field", "unknown variant" and "missing field": the key or value named,
@@ -330,7 +390,44 @@ mod tests {
             (
                 "invalid value: integer `5000000000`, expected u32",
                 "",
-                "5000000000 is out of range",
+                "5000000000 is above 4294967295, out of range for this key: it takes a whole \
+                 number from 0 to 4294967295",
+            ),
+            // A number wider than 64 bits, named without serde's backtick or its type name
+            // (found by review: "99999999999999999999` as i128 is out of range").
+            (
+                "invalid value: integer `99999999999999999999` as i128, expected u64",
+                "seed = 99999999999999999999",
+                "99999999999999999999 is above 9223372036854775807, out of range for this key: \
+                 it takes a whole number from 0 to 9223372036854775807",
+            ),
+            (
+                "invalid value: integer `-1`, expected u64",
+                "",
+                "-1 is below 0, out of range",
+            ),
+            // A `--set` of a number too wide for the reader is kept as text: out of range, not
+            // "written in quotes"; a number that fits, in quotes, is told to lose them.
+            (
+                "invalid type: string \"99999999999999999999\", expected u64",
+                "seed = \"99999999999999999999\"",
+                "99999999999999999999 is above 9223372036854775807, out of range",
+            ),
+            (
+                "invalid type: string \"4294967296\", expected u32",
+                "",
+                "4294967296 is above 4294967295",
+            ),
+            (
+                "invalid type: string \"7\", expected u64",
+                "",
+                "\"7\" is not a number: a number is written without quotes",
+            ),
+            (
+                "integer number overflowed",
+                "seed = 1000000000000000000000000000000000000000000",
+                "the whole number is too large: hurdle's files hold whole numbers from \
+                 -9223372036854775808 to 9223372036854775807",
             ),
             (
                 "invalid type: string \"2023-03-31\", expected a sequence",

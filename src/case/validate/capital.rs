@@ -133,26 +133,35 @@ pub(super) fn validate_structure(case: &CaseFile) -> std::result::Result<(), Str
         );
     }
     let target = &case.target;
-    if target.source == TargetSource::Subject {
-        match target.subject_equity_value {
-            Some(e) if e.is_finite() && e > 0.0 => {}
-            other => {
-                return Err(format!(
-                    "target.subject_equity_value = {} must be given and positive when \
-                     target.source = \"subject\"",
-                    other.map_or("(missing)".to_string(), |e| e.to_string())
-                ))
+    // The subject's figures are checked whenever given: an explicit target without a basis is
+    // set beside the subject's own D/E in a note (found by review: a negative subject_debt
+    // printed "the subject's own, -0.001").
+    for (key, value) in [
+        ("target.subject_debt", target.subject_debt),
+        ("target.subject_cash", target.subject_cash),
+    ] {
+        if let Some(v) = value {
+            if !(v.is_finite() && v >= 0.0) {
+                return Err(format!("{key} = {v} is negative"));
             }
         }
-        for (key, value) in [
-            ("target.subject_debt", target.subject_debt),
-            ("target.subject_cash", target.subject_cash),
-        ] {
-            if let Some(v) = value {
-                if !(v.is_finite() && v >= 0.0) {
-                    return Err(format!("{key} = {v} is negative"));
-                }
-            }
+    }
+    if let Some(e) = target
+        .subject_equity_value
+        .filter(|e| !(e.is_finite() && *e > 0.0))
+    {
+        return Err(format!(
+            "target.subject_equity_value = {e} must be positive: the subject's equity value \
+             at market"
+        ));
+    }
+    if target.source == TargetSource::Subject {
+        if target.subject_equity_value.is_none() {
+            return Err(
+                "target.subject_equity_value = (missing) must be given and positive \
+                        when target.source = \"subject\""
+                    .into(),
+            );
         }
         if target.subject_debt.is_none() {
             return Err("target.subject_debt is required when target.source = \"subject\"".into());
