@@ -3487,3 +3487,28 @@ fn a_security_whose_prices_stop_early_is_noted() {
     assert_eq!(text_of(&row, "first_price_date"), *first);
     assert_eq!(text_of(&row, "last_price_date"), *last);
 }
+
+// An industry label is written as the attributes give it; in summary.md's Markdown a `<` that
+// would open a tag, and brackets that would open a link, are backslash-escaped (CommonMark 0.31,
+// "Backslash escapes"), so a Markdown viewer shows the label as written (found by review: a
+// label `<i>…</i>` went into the table as raw HTML). securities.csv keeps the label unchanged.
+#[test]
+fn an_industry_label_with_markup_is_text_in_the_summary() {
+    let setup = Setup::new();
+    let edited = edit_attributes(&setup.dir(), "industry", |cells, at| {
+        (cells[at("industry")] == "Industry A").then(|| "<i>Industry</i> [A](x)".to_string())
+    });
+    assert!(edited > 0);
+    let out = setup.succeeds("markup", &[]);
+    let summary = fs::read_to_string(out.join("summary.md")).unwrap();
+    assert!(
+        summary.contains("| \\<i>Industry\\</i> \\[A\\](x) | "),
+        "{summary}"
+    );
+    assert!(!summary.contains("<i>Industry</i>"), "{summary}");
+    let securities = fs::read_to_string(out.join("securities.csv")).unwrap();
+    assert!(
+        securities.contains(",<i>Industry</i> [A](x),"),
+        "{securities}"
+    );
+}

@@ -72,16 +72,16 @@ pub fn table_cell(text: String) -> String {
     text.replace('|', "\\|")
 }
 
-/// A user's free text (a justification, the peer selection, a claim's label, an override) as
-/// Markdown that shows it as written: a backslash before each character that would open code,
-/// a link or an image (`` ` ``, `[`, `]`; an image's `!` opens nothing without its bracket) and
-/// before a backslash, so `![x](http://…)` in a
-/// justification is text in the memo and loads nothing in the report (CommonMark 0.31,
-/// "Backslash escapes").
+/// A user's free text (a justification, the peer selection, a claim's label, an override, a
+/// universe's industry label or security id) as Markdown that shows it as written: a backslash
+/// before each character that would open code, a link, an image or raw HTML (`` ` ``, `[`, `]`,
+/// `<`; an image's `!` opens nothing without its bracket) and before a backslash, so
+/// `![x](http://…)` or `<b>` in a justification is text in the memo and loads or formats
+/// nothing in the report (CommonMark 0.31, "Backslash escapes").
 pub fn plain_text(text: String) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
-        if matches!(c, '\\' | '`' | '[' | ']') {
+        if matches!(c, '\\' | '`' | '[' | ']' | '<') {
             out.push('\\');
         }
         out.push(c);

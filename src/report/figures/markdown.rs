@@ -251,7 +251,7 @@ pub fn inline(text: &str) -> String {
     while let Some(c) = rest.chars().next() {
         if let Some(after) = rest.strip_prefix('\\') {
             match after.chars().next() {
-                Some(next) if "\\`*_|[]()#!-".contains(next) => {
+                Some(next) if "\\`*_|[]()#!-<>".contains(next) => {
                     escape_char(&mut out, next);
                     rest = &after[next.len_utf8()..];
                 }
@@ -349,6 +349,17 @@ fn escape_char(out: &mut String, c: char) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // CommonMark 0.31, "Backslash escapes": any ASCII punctuation after a backslash is the
+    // character itself, so an escaped `<b>` in a justification is text, not a tag.
+    #[test]
+    fn an_escaped_angle_bracket_is_text() {
+        assert_eq!(inline("R² \\<b\\> and \\<i>"), "R² &lt;b&gt; and &lt;i&gt;");
+        assert_eq!(
+            crate::report::format::plain_text("a <b>x</b> [y]".into()),
+            "a \\<b>x\\</b> \\[y\\]"
+        );
+    }
 
     // GFM §4.10, example 200 (from memory): an escaped pipe in a table cell is the cell's own
     // `|`, inside a code span too.

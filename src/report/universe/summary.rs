@@ -5,7 +5,7 @@
 use std::fmt::Write as _;
 
 use super::{estimated_count, excluded_by_flag, nonzero_counts};
-use crate::report::format::{fixed, label};
+use crate::report::format::{fixed, label, plain_text, table_cell};
 use crate::universe::industries::IndustryResult;
 use crate::universe::UniverseResult;
 
@@ -63,7 +63,7 @@ fn table_row(out: &mut String, i: &IndustryResult) {
     let _ = writeln!(
         *out,
         "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-        i.industry.replace('|', "\\|"),
+        table_cell(plain_text(i.industry.clone())),
         i.securities,
         i.estimated,
         i.excluded_total,
@@ -84,7 +84,7 @@ fn peer_set_section(out: &mut String, r: &UniverseResult) {
     let Some(p) = &r.peer_set else { return };
     let _ = writeln!(out, "\n## The listed peer set\n");
     let mut industries: Vec<String> = (p.industries.iter())
-        .map(|(label, n)| format!("{label} {n}"))
+        .map(|(label, n)| format!("{} {n}", plain_text(label.clone())))
         .collect();
     if p.without_industry > 0 {
         industries.push(format!("{} in no industry", p.without_industry));
@@ -94,14 +94,14 @@ fn peer_set_section(out: &mut String, r: &UniverseResult) {
     };
     let left_out = match p.left_out.as_slice() {
         [] => String::new(),
-        list => format!(" ({} not: {})", list.len(), ids(list)),
+        list => format!(" ({} not: {})", list.len(), plain_text(ids(list))),
     };
     let _ = writeln!(
         out,
         "{} listed in universe.peer_set: {}; {} of them estimated and not excluded{left_out}. \
          Their industries: {}.\n",
         crate::universe::securities_count(p.securities.len()),
-        ids(&p.securities),
+        plain_text(ids(&p.securities)),
         p.figures.estimated,
         industries.join(", ")
     );
@@ -121,7 +121,7 @@ fn placed(r: &UniverseResult, p: &crate::universe::peer_set::PeerSetResult) -> S
         [] => String::new(),
         others => format!(
             " (as many of the set carry {}; the first label in byte order is taken)",
-            others.join(", ")
+            plain_text(others.join(", "))
         ),
     };
     match (
@@ -129,17 +129,20 @@ fn placed(r: &UniverseResult, p: &crate::universe::peer_set::PeerSetResult) -> S
         p.figures.unlevered_beta,
         p.share_of_home_below,
     ) {
-        (Some(home), Some(own), Some(share)) => format!(
-            "The set's {what} ({}) is {}; its home industry, {home}{tie}, has {}, and {} of \
+        (Some(home), Some(own), Some(share)) => {
+            let home = plain_text(home.clone());
+            format!(
+                "The set's {what} ({}) is {}; its home industry, {home}{tie}, has {}, and {} of \
              {home}'s {} figures lie below the set's (ties count half): a set drawn from its \
              industry's middle lies near 50%, one at either end says its peers are not typical \
              of their industry.",
-            label(&leverage.aggregation),
-            fixed(own, 3),
-            shown(p.home_unlevered_beta),
-            crate::report::format::percent(share, 0),
-            p.home_count
-        ),
+                label(&leverage.aggregation),
+                fixed(own, 3),
+                shown(p.home_unlevered_beta),
+                crate::report::format::percent(share, 0),
+                p.home_count
+            )
+        }
         (None, _, _) => "No listed security has an industry label, so there is no industry to \
                          set the peer set beside."
             .into(),
@@ -353,8 +356,10 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
         out.push_str("\n## Notes\n");
     }
     out.push('\n');
+    // A note names securities and labels as the files give them: a `<` there would open raw
+    // HTML in a Markdown viewer, so it is escaped (the notes' own backticks are kept).
     for note in &r.notes {
-        let _ = writeln!(out, "- {note}");
+        let _ = writeln!(out, "- {}", note.replace('<', "\\<"));
     }
     out.push_str(&cautions(r));
     out
