@@ -552,9 +552,10 @@ fn a_seed_out_of_range_is_named_with_its_key_and_range() {
 // Found by review: a peer named `Corrowick <b>Valves</b> & Co` put the HTML tags into
 // memo.md's tables, for any Markdown viewer to render. Such a `<` is refused in a name, title or
 // label as backticks and square brackets are (they open code and links), naming the key, the
-// value and why; an ampersand, which opens nothing, is kept. CommonMark reads `<` followed by a letter, `/`, `!` or `?` as the start of raw HTML or an
-// autolink (CommonMark spec, "Raw HTML" and "Autolinks"); a `<` before a space or a digit, and
-// a `>`, open nothing, so an exclusion reason "R² < 0.1" is kept.
+// value and why; an ampersand, which opens nothing, is kept. CommonMark's raw HTML and its
+// autolinks, web and e-mail addresses alike, run from a `<` to a later `>` (CommonMark spec
+// 0.31, "Raw HTML" and "Autolinks", from memory), so a `<` without a `>` after it opens nothing
+// and an exclusion reason "R² < 0.1, D/E > 2" is kept.
 #[test]
 fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
     let case = CaseCopy::new();
@@ -563,8 +564,8 @@ fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
     assert_mentions(
         &stderr,
         &[
-            &format!("peer.1.name = \"{named}\" holds `<b`"),
-            "opens an HTML tag or a link in the memo's Markdown",
+            &format!("peer.1.name = \"{named}\" holds `<b>`"),
+            "a Markdown viewer can read as an HTML tag or a link in the memo",
         ],
     );
     // In the file, the file is named.
@@ -578,13 +579,20 @@ fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
         &stderr,
         &[
             "case.toml",
-            "peer.1.name = \"Corrowick Valves </x>\" holds `</`",
+            "peer.1.name = \"Corrowick Valves </x>\" holds `</x>`",
         ],
     );
     let stderr = case.refuse(&["--set", "case.title=\"Draft <!-- 2 -->\""]);
-    assert_mentions(&stderr, &["case.title = \"Draft <!-- 2 -->\" holds `<!`"]);
+    assert_mentions(
+        &stderr,
+        &["case.title = \"Draft <!-- 2 -->\" holds `<!-- 2 -->`"],
+    );
+    // An e-mail autolink, which begins with a digit.
+    let stderr = case.refuse(&["--set", "peer.0.name=\"Alder <1@mail.example>\""]);
+    assert_mentions(&stderr, &["holds `<1@mail.example>`"]);
     for kept in [
         "peer.1.name=\"Corrowick Valves & Co\"",
+        "peer.1.name=\"A<B Holdings\"",
         "peer.1.exclude=\"R² < 0.1 over the window, D/E > 2\"",
     ] {
         let output = case.betas(&["--set", kept]);

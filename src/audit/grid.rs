@@ -167,19 +167,24 @@ fn accepted(mut axis: Axis, variants: &Variants) -> Axis {
 /// word).
 pub fn replaced_overrides(case: &Case, axis_keys: [&str; 2]) -> Result<Vec<(String, String)>> {
     let variants = Variants::new(case)?;
-    let key = |assignment: &str| -> String {
+    // The key as written, for the override parser (a peer's name may hold ". "), and with the
+    // spaces around its segments dropped, for comparing with an axis's key.
+    let written = |assignment: &str| -> String {
         let key = assignment.split_once('=').map_or(assignment, |(k, _)| k);
-        key.split('.').map(str::trim).collect::<Vec<_>>().join(".")
+        key.trim().to_string()
     };
+    let trimmed = |key: &str| key.split('.').map(str::trim).collect::<Vec<_>>().join(".");
     let ratio = |k: &str| k == "target.debt_to_equity" || k == "target.debt_to_capital";
     let replaces = |axis: &str, set: &str| {
-        axis == set
-            || (ratio(axis) && ratio(set))
+        axis == trimmed(set)
+            || (ratio(axis) && ratio(&trimmed(set)))
             || crate::case::overrides::same_value(variants.own(), axis, set)
     };
     Ok((case.overrides.iter())
         .filter_map(|set| {
-            let axis = axis_keys.iter().find(|axis| replaces(axis, &key(set)))?;
+            let axis = axis_keys
+                .iter()
+                .find(|axis| replaces(axis, &written(set)))?;
             Some((set.clone(), axis.to_string()))
         })
         .collect())

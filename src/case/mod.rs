@@ -267,8 +267,7 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         })?;
     placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
-    validate(&settings)
-        .map_err(|message| blamed_in_case(path, &text, &settings, overrides, message))?;
+    validate(&settings).map_err(|message| blamed_in_case(path, &text, overrides, message))?;
     Ok(Case {
         settings,
         path: path.to_path_buf(),
@@ -280,9 +279,24 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
 /// A check's refusal of a case or universe file: blamed on the overrides whose keys the message
 /// names (a value an override gave), else on the file (a value of its own).
 pub fn blamed(path: &Path, overrides: &[String], message: String) -> Error {
-    let key = |o: &String| o.split('=').next().unwrap_or("").trim().to_string();
+    // The key as the parser reads it (spaces around each segment dropped), found in the
+    // message as a whole key: `peer.1.debt` is not named by `peer.1.debt_beta`.
+    let key = |o: &String| -> String {
+        let key = o.split_once('=').map_or(o.as_str(), |(k, _)| k);
+        key.split('.').map(str::trim).collect::<Vec<_>>().join(".")
+    };
+    let part_of_key = |c: char| c.is_alphanumeric() || c == '_' || c == '.';
+    let names = |key: &str| {
+        !key.is_empty()
+            && message.match_indices(key).any(|(at, _)| {
+                let before = message[..at].chars().next_back();
+                let after = message[at + key.len()..].chars().next();
+                !before.is_some_and(part_of_key)
+                    && !after.is_some_and(|c| c.is_alphanumeric() || c == '_')
+            })
+    };
     let given: Vec<String> = (overrides.iter())
-        .filter(|o| !key(o).is_empty() && message.contains(&key(o)))
+        .filter(|o| names(&key(o)))
         .cloned()
         .collect();
     match given.is_empty() {
@@ -298,55 +312,32 @@ pub fn blamed(path: &Path, overrides: &[String], message: String) -> Error {
     }
 }
 
-/// [`blamed`] for a case file's own checks, which can also tell a file's value from one a `--set`
-/// gave when the message names neither key (found by review: `peer.0.debt=1e12` was put down
-/// to the file, whose message reads "peer.0 (peer …): debt = …", and a peer set by name never
-/// matched). An override is blamed when the message names its key, or names its peer by
-/// position and its field; else the file alone is checked: its own refusal in the same words
-/// is the file's, and otherwise the refusal is put down to every override.
-fn blamed_in_case(
-    path: &Path,
-    text: &str,
-    settings: &CaseFile,
-    overrides: &[String],
-    message: String,
-) -> Error {
-    if overrides.is_empty() {
-        return blamed(path, overrides, message);
-    }
-    let key = |o: &String| -> String {
-        let key = o.split_once('=').map_or(o.as_str(), |(k, _)| k);
-        key.split('.').map(str::trim).collect::<Vec<_>>().join(".")
+/// [`blamed`] for a case file's own checks, which can tell a file's value from one a `--set`
+/// gave whatever the message's words (found by review: `peer.0.debt=1e12` was put down to the
+/// file, whose message reads "peer.0 (peer …): debt = …", and a peer set by name never
+/// matched): each `--set` without which the case passes, or is refused in other words, gave a
+/// value the refusal is about. A `--set` without which the file cannot be read at all (one
+/// that fills a placeholder) proves nothing either way. With none found, the message's keys
+/// decide, as [`blamed`] does.
+fn blamed_in_case(path: &Path, text: &str, overrides: &[String], message: String) -> Error {
+    let gave = |i: usize| {
+        let others: Vec<String> = (overrides.iter().enumerate())
+            .filter(|&(j, _)| j != i)
+            .map(|(_, o)| o.clone())
+            .collect();
+        parse_case(path, text, &others).is_ok_and(|s| validate(&s).err().as_ref() != Some(&message))
     };
-    // `peer.<index or name>.<field>` as the position the messages name and the field.
-    let peer_field = |k: &str| -> Option<(usize, String)> {
-        let rest = k.strip_prefix("peer.")?;
-        let (peer, field) = rest.rsplit_once('.')?;
-        let index = (peer.parse::<usize>().ok())
-            .or_else(|| settings.peers.iter().position(|p| p.name == peer))?;
-        Some((index, field.to_string()))
-    };
-    let names = |o: &String| {
-        let k = key(o);
-        !k.is_empty()
-            && (message.contains(&k)
-                || peer_field(&k).is_some_and(|(i, field)| {
-                    message.contains(&format!("peer.{i} ")) && message.contains(&field)
-                        || message.contains(&format!("peer.{i}.{field}"))
-                }))
-    };
-    let mut given: Vec<String> = overrides.iter().filter(|o| names(o)).cloned().collect();
-    if given.is_empty() {
-        let own = parse_case(path, text, &[]).ok().map(|s| validate(&s));
-        if matches!(own, Some(Err(ref m)) if *m == message) {
-            return blamed(path, &[], message);
-        }
-        given = overrides.to_vec();
-    }
-    Error::AfterOverrides {
-        file: path.to_path_buf(),
-        overrides: given,
-        message,
+    let given: Vec<String> = (0..overrides.len())
+        .filter(|&i| gave(i))
+        .map(|i| overrides[i].clone())
+        .collect();
+    match given.is_empty() {
+        true => blamed(path, overrides, message),
+        false => Error::AfterOverrides {
+            file: path.to_path_buf(),
+            overrides: given,
+            message,
+        },
     }
 }
 

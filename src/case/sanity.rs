@@ -371,10 +371,9 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
 /// backtick or a square bracket, which open code spans, links and images in the memo's Markdown:
 /// a peer named `[x](http://…)` would put a link, or an image loaded from elsewhere, into the
 /// self-contained report, and a bracket in a chart's title breaks the image line that places it.
-/// Nor a `<` that opens raw HTML or an autolink there (followed by a letter, `/`, `!` or `?`, as
-/// CommonMark reads a tag, a comment or a link; found by review: a peer named `Corrowick
-/// <b>Valves</b>` put the tags into memo.md's tables, for any Markdown viewer to render). A `<`
-/// before a space or a digit ("R² < 0.1") and a `>` open nothing and are kept.
+/// Nor a `<` with a `>` after it, which can open raw HTML or an autolink there ([`angle_bracketed`];
+/// found by review: a peer named `Corrowick <b>Valves</b>` put the tags into memo.md's tables,
+/// for any Markdown viewer to render).
 pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), String> {
     if !crate::io::sanity::is_one_line(text) {
         return Err(format!(
@@ -389,22 +388,30 @@ pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), Stri
              without backticks and square brackets, with parentheses for instance"
         ));
     }
-    let opens_tag =
-        |(a, b): (char, char)| a == '<' && (b.is_ascii_alphabetic() || "/!?".contains(b));
-    let chars: Vec<char> = text.chars().collect();
-    match chars
-        .windows(2)
-        .map(|w| (w[0], w[1]))
-        .find(|&pair| opens_tag(pair))
-    {
+    match angle_bracketed(text) {
         None => Ok(()),
-        Some((_, next)) => Err(format!(
-            "{key} = \"{text}\" holds `<{next}`, which opens an HTML tag or a link in the memo's \
-             Markdown (a name holding <b>…</b> would change how a Markdown viewer shows the \
-             memo); write it without the angle bracket, with parentheses or words (\"below\") \
-             instead"
+        Some(span) => Err(format!(
+            "{key} = \"{text}\" holds `{span}`, which a Markdown viewer can read as an HTML tag \
+             or a link in the memo (a name holding <b>…</b> changes how the memo shows); write it \
+             without the angle brackets, with parentheses for instance"
         )),
     }
+}
+
+/// The first `<…>` in `text` that can open raw HTML or an autolink: CommonMark's tags, comments
+/// and autolinks (a web or e-mail address) all run from a `<` followed by a character other
+/// than white space to a later `>`, so "R² < 0.1, D/E > 2" and "A<B Holdings" open nothing.
+pub(crate) fn angle_bracketed(text: &str) -> Option<&str> {
+    let opens = |(at, _): &(usize, char)| {
+        text[at + 1..]
+            .chars()
+            .next()
+            .is_some_and(|c| !c.is_whitespace())
+            && text[at + 1..].contains('>')
+    };
+    let (start, _) = text.char_indices().filter(|&(_, c)| c == '<').find(opens)?;
+    let end = start + text[start..].find('>')?;
+    Some(&text[start..=end])
 }
 
 /// A peer's name must be told apart from the others by a reader and by an override that names

@@ -48,13 +48,14 @@ fn display_name(header: &str) -> String {
     // A name a spreadsheet would read as a formula in a CSV output is refused by the case, so
     // the characters that start one are left off the name (`column` keeps the header).
     let kept = name.trim_start_matches(['=', '+', '-', '@', ' ']);
-    // Backticks, square and angle brackets open code, links and HTML in the memo's Markdown,
-    // which the case refuses in a name: a bracket becomes a parenthesis, a backtick an
-    // apostrophe.
-    let kept = kept
-        .replace(['[', '<'], "(")
-        .replace([']', '>'], ")")
-        .replace('`', "'");
+    // Backticks, square brackets and a `<…>` pair open code, links and HTML in the memo's
+    // Markdown, which the case refuses in a name: a bracket becomes a parenthesis (a `<` only
+    // when a `>` follows it, as the case refuses), a backtick an apostrophe.
+    let mut kept = kept.replace('[', "(").replace(']', ")").replace('`', "'");
+    while let Some(span) = super::sanity::angle_bracketed(&kept) {
+        let inner = span[1..span.len() - 1].to_string();
+        kept = kept.replacen(span, &format!("({inner})"), 1);
+    }
     match kept.is_empty() {
         true => "peer".to_string(),
         false => kept,
@@ -606,6 +607,10 @@ mod tests {
         // Markdown's code and link marks (refused in a case's name) become plain punctuation.
         assert_eq!(display_name("Alder [A] `B`"), "Alder (A) 'B'");
         assert_eq!(display_name("Alder <b>B</b>"), "Alder (b)B(/b)");
+        // A `<` without a `>` after it, and a lone `>`, open nothing and are kept.
+        assert_eq!(display_name("R<1 & A>B"), "R(1 & A)B");
+        assert_eq!(display_name("A<B Holdings"), "A<B Holdings");
+        assert_eq!(display_name("D/E > 2"), "D/E > 2");
         let table = peer_table(&StartedPeer {
             name: display_name("Alder\nTree"),
             column: "Alder\nTree".into(),

@@ -191,8 +191,11 @@ fn push_chunk(
     ids: &<StringType as PolarsDataType>::Array,
     prices: &[f64],
 ) -> bool {
-    // Prices first, in one pass the compiler can vectorise; then they are copied whole.
-    if ids.len() != prices.len() || !prices.iter().all(|&p| p.is_finite() && p > 0.0) {
+    // Prices first, in one pass the compiler can vectorise; then they are copied whole. A price
+    // outside the plausible range goes to the checked path, which refuses it with its row as a
+    // wide panel does (found by review: a subnormal price passed here and bent the beta).
+    let (low, high) = crate::io::sanity::PRICE_RANGE;
+    if ids.len() != prices.len() || !prices.iter().all(|&p| (low..=high).contains(&p)) {
         return false;
     }
     // A repeated id is found by comparing its 16-byte view with the previous row's: an id of up

@@ -457,7 +457,11 @@ pub(crate) fn check_price(
     what: impl FnOnce() -> String,
 ) -> std::result::Result<(), String> {
     match ValueKind::Price.broken_rule(price) {
-        Some(rule) => Err(format!("{} = {price}: {rule}", what())),
+        Some(rule) => Err(format!(
+            "{} = {}: {rule}",
+            what(),
+            crate::error::compact(price)
+        )),
         None => Ok(()),
     }
 }

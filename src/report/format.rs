@@ -74,14 +74,38 @@ pub fn table_cell(text: String) -> String {
 
 /// A user's free text (a justification, the peer selection, a claim's label, an override, a
 /// universe's industry label or security id) as Markdown that shows it as written: a backslash
-/// before each character that would open code, a link, an image or raw HTML (`` ` ``, `[`, `]`,
-/// `<`; an image's `!` opens nothing without its bracket) and before a backslash, so
+/// before each character that would open code, a link, an image, raw HTML or emphasis (`` ` ``,
+/// `[`, `]`, `<`, `*`; an underscore inside a word, as in a key, opens nothing, and an image's
+/// `!` nothing without its bracket) and before a backslash, so
 /// `![x](http://…)` or `<b>` in a justification is text in the memo and loads or formats
 /// nothing in the report (CommonMark 0.31, "Backslash escapes").
 pub fn plain_text(text: String) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
-        if matches!(c, '\\' | '`' | '[' | ']' | '<') {
+        if matches!(c, '\\' | '`' | '[' | ']' | '<' | '*') {
+            out.push('\\');
+        }
+        out.push(c);
+    }
+    out
+}
+
+/// A run's note as Markdown that shows it as written: outside its own code spans (the notes
+/// quote keys and values between backticks), a backslash before each character that would open
+/// a link, an image, raw HTML or emphasis (`[`, `]`, `<`, `*`; an underscore inside a word, as in
+/// the keys a note names, opens nothing) and before a backslash or a lone backtick, as
+/// [`plain_text`] does for free text; a note names files, labels and values as the inputs give
+/// them.
+pub fn prose(text: String) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut in_code = false;
+    for (at, c) in text.char_indices() {
+        // A backtick without a partner after it opens no code span (CommonMark), so it does not
+        // stop the escaping of what follows; it is escaped itself.
+        let opens = c == '`' && !in_code && text[at + 1..].contains('`');
+        if c == '`' && (in_code || opens) {
+            in_code = !in_code;
+        } else if !in_code && matches!(c, '\\' | '[' | ']' | '<' | '*' | '`') {
             out.push('\\');
         }
         out.push(c);

@@ -208,23 +208,28 @@ fn sort_into(values: &[f64], sorted: &mut Vec<f64>) {
 /// the mean as it is.
 pub fn weighted_mean(values: &[f64], weights: &[f64]) -> f64 {
     assert_eq!(values.len(), weights.len(), "one weight per value");
-    let mean = |scale: f64| {
+    let sums = |scale: f64| {
         let total: f64 = weights.iter().map(|w| w / scale).sum();
         let sum: f64 = values
             .iter()
             .zip(weights)
             .map(|(v, w)| v * (w / scale))
             .sum();
-        sum / total
+        (sum, total)
     };
-    let plain = mean(1.0);
-    if plain.is_finite() {
-        return plain;
+    // Both sums finite, not only their ratio: a finite sum over an overflowed total is 0
+    // (found by review: two market values of 1e308 made every weighted mean 0).
+    let (sum, total) = sums(1.0);
+    if sum.is_finite() && total.is_finite() {
+        return sum / total;
     }
     let largest = weights.iter().fold(0.0_f64, |m, w| m.max(w.abs()));
     match largest.is_finite() && largest > 0.0 {
-        true => mean(largest),
-        false => plain,
+        true => {
+            let (sum, total) = sums(largest);
+            sum / total
+        }
+        false => sum / total,
     }
 }
 
@@ -506,6 +511,10 @@ mod tests {
         // Equal weights whose sum overflows f64 (1e308 + 1e308): the plain mean of 1 and 3 by
         // hand, 2, exactly (each weight is 1 relative to the largest).
         assert_eq!(weighted_mean(&[1.0, 3.0], &[1e308, 1e308]), 2.0);
+        // Values below 1, whose weighted sum (0.5·1e308 twice) stays finite while the total
+        // of the weights overflows: the mean is 0.5 by hand, not 1e308 / inf = 0 (found by
+        // review).
+        assert_eq!(weighted_mean(&[0.5, 0.5], &[1e308, 1e308]), 0.5);
     }
 
     // Trimmed mean by hand, 10 values 1..=9 and 100, α = 0.1: cut ⌊1.0⌋ = 1 from each end,

@@ -376,7 +376,7 @@ pub fn evaluate(
     check_attributes_match(inputs)?;
     let panel = &inputs.panel;
     let estimates = estimate_all(panel, &estimation, early, progress)?;
-    let (adjusted, vasicek_prior) = adjust(settings, &estimates)?;
+    let (adjusted, vasicek_prior) = adjust(&inputs.universe, &estimates)?;
     let row_settings = RowSettings {
         leverage: &settings.leverage,
         cash_column: settings.attributes.cash_column.is_some(),
@@ -520,9 +520,10 @@ fn check_attributes_match(inputs: &UniverseInputs) -> Result<()> {
 /// those not excluded, the whole universe, unless stated): one entry per security, `None` for
 /// those not estimated.
 fn adjust(
-    settings: &UniverseFile,
+    universe: &Universe,
     estimates: &[SecurityEstimate],
 ) -> Result<(Vec<Option<AdjustedBeta>>, Option<vasicek::Prior>)> {
+    let settings = &universe.settings;
     let estimated: Vec<&estimate::Estimated> = estimates
         .iter()
         .filter_map(|e| e.outcome.as_ref().ok())
@@ -539,9 +540,11 @@ fn adjust(
     let stated = beta.vasicek_prior_mean.zip(beta.vasicek_prior_variance);
     let (adjusted, prior) =
         beta::adjust_all(beta.adjustment, beta.blume_weight, stated, &raw, &included).map_err(
-            |problem| Error::Estimation {
-                peer: "(all securities)".into(),
-                message: crate::case::wording::prior_unavailable(problem, "securities"),
+            // The universe's setting, blamed on the --set that gave it (found by review: it
+            // was put down to a security named "(all securities)").
+            |problem| {
+                let message = crate::case::wording::prior_unavailable(problem, "securities");
+                crate::case::blamed(&universe.path, &universe.overrides, message)
             },
         )?;
     let mut adjusted = adjusted.into_iter();

@@ -281,6 +281,15 @@ fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
         .filter(|i| i.estimated > 0 && i.estimated < FEW_SECURITIES)
         .map(|i| format!("{} ({})", i.industry, i.estimated))
         .collect();
+    // Enough securities estimated, but too few of them with the figures to unlever (a tax
+    // rate, debt and equity value): the unlevered figures rest on those few (found by review:
+    // an industry's unlevered beta rested on one security of seven without a word).
+    let unlevered_count =
+        |i: &IndustryResult| i.unlevered.as_ref().map_or(0, |u| u.dispersion.count);
+    let few_unlevered: Vec<String> = (industries.iter())
+        .filter(|i| i.estimated >= FEW_SECURITIES && unlevered_count(i) < FEW_SECURITIES)
+        .map(|i| format!("{} ({} of {})", i.industry, unlevered_count(i), i.estimated))
+        .collect();
     let mostly: Vec<String> = (industries.iter())
         .filter(|i| i.estimated > 0 && 2 * i.flagged_total > i.estimated)
         .map(|i| format!("{} ({} of {})", i.industry, i.flagged_total, i.estimated))
@@ -315,6 +324,19 @@ fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
                 "their figures say little about those industries"
             },
             list(few)
+        ));
+    }
+    if !few_unlevered.is_empty() {
+        notes.push(format!(
+            "{} unlevered figures rest on fewer than {FEW_SECURITIES} securities, the other \
+             securities estimated lacking a figure to unlever them (securities.csv's \
+             `missing`); those with an unlevered beta, of those estimated: {}.",
+            if few_unlevered.len() == 1 {
+                "1 industry's".to_string()
+            } else {
+                format!("{} industries'", few_unlevered.len())
+            },
+            list(few_unlevered)
         ));
     }
     if !mostly.is_empty() {

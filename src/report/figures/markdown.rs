@@ -359,6 +359,15 @@ mod tests {
             crate::report::format::plain_text("a <b>x</b> [y]".into()),
             "a \\<b>x\\</b> \\[y\\]"
         );
+        // A note: its own code spans kept whole, a lone backtick escaped (it opens nothing, and
+        // must not stop the escaping after it), and the escapes read back as the text.
+        let note = "`beta.x = [1]` for [a](b) *c* d`e <i>";
+        let escaped = crate::report::format::prose(note.into());
+        assert_eq!(escaped, "`beta.x = [1]` for \\[a\\](b) \\*c\\* d\\`e \\<i>");
+        assert_eq!(
+            inline(&escaped),
+            "<code>beta.x = [1]</code> for [a](b) *c* d`e &lt;i&gt;"
+        );
     }
 
     // GFM §4.10, example 200 (from memory): an escaped pipe in a table cell is the cell's own

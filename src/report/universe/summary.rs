@@ -356,10 +356,11 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
         out.push_str("\n## Notes\n");
     }
     out.push('\n');
-    // A note names securities and labels as the files give them: a `<` there would open raw
-    // HTML in a Markdown viewer, so it is escaped (the notes' own backticks are kept).
+    // A note names securities and labels as the files give them: a bracket or a `<` there
+    // would open a link or raw HTML in a Markdown viewer, so each is escaped outside the notes'
+    // own code spans (found by review).
     for note in &r.notes {
-        let _ = writeln!(out, "- {}", note.replace('<', "\\<"));
+        let _ = writeln!(out, "- {}", crate::report::format::prose(note.clone()));
     }
     out.push_str(&cautions(r));
     out
