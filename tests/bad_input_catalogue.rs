@@ -1761,6 +1761,40 @@ fn case_files() -> Vec<Bad> {
             ["beta.lookback", "4000000", "at most 2400 monthly periods"]
         ),
         bad!(
+            "lookback beyond 32 bits",
+            |s| edit_at(s, "case.toml", "lookback = 60", "lookback = 5000000000"),
+            ["run", "{case}", "--out", "{out}"],
+            ["{line}", "beta.lookback = 5000000000", "at most 200 years"]
+        ),
+        bad!(
+            "a debt wider than 64 bits",
+            |s| edit_at(
+                s,
+                "case.toml",
+                "debt = 520.0",
+                "debt = 99999999999999999999"
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "{line}",
+                "99999999999999999999 has more digits",
+                "decimal point"
+            ]
+        ),
+        bad!(
+            "a backtick in a peer name",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "peer.1.name=\"Corrowick `V`\""
+            ],
+            ["peer.1.name", "holds a backtick"]
+        ),
+        bad!(
             "window_start with lookback",
             |s| edit_at(
                 s,

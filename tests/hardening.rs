@@ -188,10 +188,11 @@ fn an_accepted_jump_is_used() {
     assert_eq!(peers[0]["beta"], before[0]["beta"]);
 }
 
-// An accepted jump so large that the return's square overflows a double (IEEE 754: the largest
-// finite double is about 1.8e308, so a return above about 1.3e154 squares to infinity) leaves
-// the fit's statistics non-finite: the refusal names the return, its period and the peer's file
-// (found by review: it said only "beta_std_error = NaN").
+// An accepted jump so large that the fit's sums of squares overflow a double (IEEE 754: the
+// largest finite double is about 1.8e308, so a return above about 1.3e154 squares to infinity;
+// hurdle refuses returns above 1e150) would leave the fit's statistics non-finite: the refusal
+// names the return, its period and the peer's file (found by review: it said only
+// "beta_std_error = NaN").
 #[test]
 fn an_accepted_jump_beyond_squaring_names_the_return_and_the_file() {
     let sandbox = Sandbox::new();
@@ -215,7 +216,7 @@ fn an_accepted_jump_beyond_squaring_names_the_return_and_the_file() {
     assert_eq!(refused.status.code(), Some(2), "{}", stderr(&refused));
     let message = stderr(&refused);
     for part in [
-        "for the period ending 2023-03-31 is too large to square",
+        "for the period ending 2023-03-31 is too large for a regression to square and sum",
         "check the prices in data/peers/corrowick.csv",
     ] {
         assert!(message.contains(part), "{message}");

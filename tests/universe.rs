@@ -3562,3 +3562,61 @@ fn an_industry_whose_unlevered_figures_rest_on_few_securities_is_noted() {
     assert_eq!(number(&e, "estimated"), 8.0);
     assert_eq!(number(&e, "unlevered_beta_count"), 1.0);
 }
+
+// A security the estimator cannot fit under the settings (Newey–West lags must stay below a
+// quarter of the observations, as README says, so 30 lags need more than 120 returns) is named
+// in the notes as each other reason for no estimate is, not only counted (found by review).
+#[test]
+fn a_security_the_estimator_cannot_fit_is_named() {
+    let setup = Setup::new();
+    let output = setup.universe(
+        "nw",
+        &[
+            "beta.min_observations=20",
+            "beta.std_errors=\"newey-west\"",
+            "beta.newey_west_lags=30",
+        ],
+    );
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let securities = read_table(&setup.out("nw").join("securities.csv"));
+    let reasons = securities.column("not_estimated").unwrap().str().unwrap();
+    let ids = securities.column("security").unwrap().str().unwrap();
+    let failed: Vec<&str> = (reasons.iter().zip(ids.iter()))
+        .filter(|(r, _)| *r == Some("estimator_failed"))
+        .filter_map(|(_, id)| id)
+        .collect();
+    assert!(
+        !failed.is_empty(),
+        "the settings should leave a thin security unfitted"
+    );
+    let summary = fs::read_to_string(setup.out("nw").join("summary.md")).unwrap();
+    let note = (summary.lines())
+        .find(|l| l.contains("(estimator_failed)"))
+        .unwrap_or_else(|| panic!("{summary}"));
+    for id in failed {
+        assert!(note.contains(id), "{note}");
+    }
+}
+
+// With `universe.rolling`, the receipt records the rolling window and its minimum as resolved
+// (README: half the window's periods, at least 3, and 80% of it rounded up): the test panel's
+// 454 daily periods give 227 and ⌈181.6⌉ = 182. Without it both are null (found by review: they
+// were recorded nowhere).
+#[test]
+fn the_universe_records_its_resolved_rolling_window() {
+    let setup = Setup::new();
+    let read = |out: &Path| -> serde_json::Value {
+        serde_json::from_slice(&fs::read(out.join("result.json")).unwrap()).unwrap()
+    };
+    let rolling = read(&setup.succeeds("rolling", &["universe.rolling=true"]));
+    assert_eq!(rolling["window"]["periods"], 454);
+    assert_eq!(rolling["window"]["rolling_window"], 227);
+    assert_eq!(rolling["window"]["rolling_min_observations"], 182);
+    let plain = read(&setup.succeeds("plain", &[]));
+    assert!(plain["window"]["rolling_window"].is_null());
+    assert!(plain["window"]["rolling_min_observations"].is_null());
+}

@@ -376,8 +376,9 @@ fn claimed_debt_to_equity(claimed: &Claimed) -> std::result::Result<f64, String>
 
 /// The notes on a claim set beside a case's valuation `base`: their dates, their currencies
 /// (a case's being its valuation date and `case.currency`), and the claim's figures that fail
-/// the plausibility checks. `run`'s `[reconcile]` and `implied --claim` both say them.
-pub fn notes_beside_case(base: &Valuation, claimed: &Side) -> Vec<String> {
+/// the plausibility checks. `run`'s `[reconcile]` says them beside its bridge, and `implied
+/// --claim` (`solving`) beside the value it solves for.
+pub fn notes_beside_case(base: &Valuation, claimed: &Side, solving: bool) -> Vec<String> {
     // The case's date speaks for its side in the note only; the bridge's record of the side
     // keeps no date (a case's is in the receipt already).
     let dated = Side {
@@ -385,9 +386,17 @@ pub fn notes_beside_case(base: &Valuation, claimed: &Side) -> Vec<String> {
         currency: Some(base.case.currency.clone()),
         ..Side::from_valuation("this case", base)
     };
-    let pair = dates_note(&dated, claimed)
-        .into_iter()
-        .chain(currency_note(&dated, claimed));
+    let currency = match solving {
+        true => currency_note_then(
+            &dated,
+            claimed,
+            "a value solved for absorbs that part too, so put the claim in the case's currency \
+             first (its rates carried by the Fisher relation) before reading the value as \
+             judgement",
+        ),
+        false => currency_note(&dated, claimed),
+    };
+    let pair = dates_note(&dated, claimed).into_iter().chain(currency);
     pair.chain(claim_notes(claimed)).collect()
 }
 
@@ -405,16 +414,25 @@ fn name_in_pair(from: &Side, to: &Side, side: &Side) -> String {
 /// (Fisher 1930), so part of the gap is the currencies', which no input group of the bridge
 /// names. `None` when either side does not say.
 pub fn currency_note(from: &Side, to: &Side) -> Option<String> {
+    currency_note_then(
+        from,
+        to,
+        "the bridge compares the two build-ups as given, so put them in one currency first (a \
+         claim's rates carried by the Fisher relation, or a case whose own inputs are in the \
+         claim's currency) before reading the steps as judgement",
+    )
+}
+
+/// [`currency_note`] with `remedy` after the reason: what the reader does about it.
+fn currency_note_then(from: &Side, to: &Side, remedy: &str) -> Option<String> {
     let (Some(a), Some(b)) = (&from.currency, &to.currency) else {
         return None;
     };
     (a.trim().to_lowercase() != b.trim().to_lowercase()).then(|| {
         format!(
             "{} is in {a} and {} in {b}: each rate carries its own currency's expected \
-             inflation, so part of the gap is the currencies', not the inputs' judgement; the \
-             bridge compares the two build-ups as given, so put them in one currency first (a \
-             claim's rates carried by the Fisher relation, or a case whose own inputs are in the \
-             claim's currency) before reading the steps as judgement.",
+             inflation, so part of the gap is the currencies', not the inputs' judgement; \
+             {remedy}.",
             name_in_pair(from, to, from),
             name_in_pair(from, to, to)
         )

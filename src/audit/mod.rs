@@ -58,7 +58,7 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
         Some(reconcile) => {
             let path = inputs.case.resolve(&reconcile.claimed);
             let claimed = bridge::read_side(&path, &reconcile.claimed)?;
-            notes.extend(bridge::notes_beside_case(&base, &claimed));
+            notes.extend(bridge::notes_beside_case(&base, &claimed, false));
             let ours = bridge::Side::from_valuation("this case", &base);
             Some(bridge::bridge(&ours, &claimed))
         }

@@ -684,6 +684,18 @@ mod tests {
             found.mismatches[0].difference(),
             "; difference 1.0000e-1 (+10.0000% of the recorded figure)"
         );
+        // A share four decimals would round to 0: 1e-9 of 1.2 is 8.33e-8 % (by hand).
+        let tiny = Mismatch {
+            recorded: serde_json::json!(1.2),
+            recomputed: serde_json::json!(1.2 + 1e-9),
+            ..found.mismatches[0].clone()
+        };
+        assert!(
+            tiny.difference()
+                .ends_with("(+8.33e-8% of the recorded figure)"),
+            "{}",
+            tiny.difference()
+        );
         // In the same order the lists are compared by position, as before.
         let same = compare(&recorded, &recorded.clone(), 0.0);
         assert!(same.mismatches.is_empty());

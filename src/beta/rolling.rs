@@ -59,7 +59,8 @@ pub struct Stability {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum NoStability {
-    /// The rolling window spans the whole estimation window: one window, no line over time.
+    /// The windows laid through the estimation window are fewer than two (the rolling window
+    /// spans it, or the step between window ends leaves room for one only): no line over time.
     OneWindow,
     /// Newey–West lags stated in the settings need more than four times as many observations
     /// in a window (the lags below N/4) than a window has periods.
@@ -75,7 +76,12 @@ impl NoStability {
             StdErrors::NeweyWest => spec.newey_west_lags,
             _ => None,
         };
-        if spec.window >= periods {
+        // Window ends at periods window − 1, window − 1 + step, … up to the last period.
+        let laid = match periods.checked_sub(spec.window) {
+            Some(room) => room / spec.step.max(1) + 1,
+            None => 0,
+        };
+        if laid < 2 {
             NoStability::OneWindow
         } else if stated_lags.is_some_and(|lags| 4 * lags >= spec.window) {
             NoStability::NeweyWestLags

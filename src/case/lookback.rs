@@ -165,7 +165,15 @@ impl<'de> Deserialize<'de> for Lookback {
         use serde::de::Error as _;
         match toml::Value::deserialize(deserializer)? {
             toml::Value::Integer(n) => u32::try_from(n).map(Lookback::Periods).map_err(|_| {
-                D::Error::custom(format!("beta.lookback = {n} is not a positive count"))
+                // Too large is not "not positive" (found by review).
+                D::Error::custom(match n < 0 {
+                    true => format!("beta.lookback = {n} is not a positive count"),
+                    false => format!(
+                        "beta.lookback = {n} periods reach back far more than any price history \
+                         holds; a window reaches back at most 200 years (2400 monthly periods, or \
+                         a span such as \"200y\")"
+                    ),
+                })
             }),
             toml::Value::String(s) => Lookback::parse_span(&s).map_err(D::Error::custom),
             other => Err(D::Error::custom(format!(

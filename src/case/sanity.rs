@@ -382,8 +382,13 @@ pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), Stri
         ));
     }
     if let Some(mark) = text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
+        // A backtick cannot be quoted between backticks (found by review: "holds ```").
+        let mark = match mark {
+            '`' => "a backtick".to_string(),
+            other => format!("`{other}`"),
+        };
         return Err(format!(
-            "{key} = \"{text}\" holds `{mark}`, which opens code or a link in the memo's and the \
+            "{key} = \"{text}\" holds {mark}, which opens code or a link in the memo's and the \
              report's Markdown (a name could then draw a link or lose its chart); write it \
              without backticks and square brackets, with parentheses for instance"
         ));

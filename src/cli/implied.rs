@@ -102,7 +102,7 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
     // for can name (found by review: `compare` said so and `implied` did not).
     for note in claim
         .iter()
-        .flat_map(|c| hurdle::audit::bridge::notes_beside_case(&base, c))
+        .flat_map(|c| hurdle::audit::bridge::notes_beside_case(&base, c, true))
     {
         println!("note: {note}");
     }

@@ -15,7 +15,8 @@ pub(super) fn plain_message(message: &str, line: Option<&str>) -> String {
     if message == "integer number overflowed" {
         return format!(
             "the whole number is too large: hurdle's files hold whole numbers from {} to {}, \
-             and each key takes a smaller range (README, Case file reference)",
+             and each key that takes a count a smaller range (README, Case file reference); a \
+             number with decimals is written with a decimal point or an exponent (1e42)",
             i64::MIN,
             i64::MAX
         );
@@ -98,6 +99,11 @@ fn type_message(message: &str) -> Option<String> {
                 return Some(out_of_range(text.trim(), (low, high)));
             }
         }
+        // A number key given a whole number too wide for the reader: not in quotes, too many
+        // digits (found by review).
+        if expected == "f64" && whole_number(text).is_some() {
+            return Some(too_wide_for_a_number(text.trim()));
+        }
         let advice = if text.trim_end().ends_with('%') {
             "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
         } else if text.contains(',') {
@@ -132,6 +138,12 @@ fn type_message(message: &str) -> Option<String> {
     // "string \"x\""), a TOML date or table as "map" and a list as "sequence" (found by review:
     // the kind was cut at its first space, leaving "point `1.5" and "map").
     let tick = |v: &str| v.trim_matches('`').to_string();
+    // A whole number read as 128 bits ("integer `…` as i128") given to a number key.
+    if let Some(v) = (found.strip_prefix("integer `")).and_then(|v| v.strip_suffix("` as i128")) {
+        if expected == "f64" {
+            return Some(too_wide_for_a_number(v));
+        }
+    }
     let shown = if let Some(v) =
         (found.strip_prefix("floating point ")).or_else(|| found.strip_prefix("integer "))
     {
@@ -161,6 +173,15 @@ fn type_message(message: &str) -> Option<String> {
     ))
 }
 
+/// A whole number written with more digits than a file's whole numbers hold, given to a key
+/// that takes a number with decimals: it reads when written with a decimal point or an exponent.
+fn too_wide_for_a_number(value: &str) -> String {
+    format!(
+        "{value} has more digits than a whole number in the file can hold; write it with a \
+         decimal point ({value}.0) or an exponent (as 2.5e20)"
+    )
+}
+
 /// The whole numbers a key of serde's type `expected` holds, or `None` for a key that takes
 /// something else. A 64-bit count stops at the largest whole number a TOML file holds, since
 /// the case is written back as TOML (as `result.json`'s settings and a what-if are).
@@ -187,17 +208,26 @@ fn whole_number(text: &str) -> Option<i128> {
     }))
 }
 
-/// "`value` is out of range for this key: it takes a whole number from `low` to `high`".
+/// "`value` is out of range for this key", with the bounds of the type that holds it. A
+/// 32-bit count's own range is narrower (a window's periods, draws, lags), so it is referred to
+/// README rather than given as 0 to 4294967295 (found by review: that read as the key's range);
+/// the 64-bit seed's range is the type's.
 fn out_of_range(value: &str, (low, high): (i128, i128)) -> String {
     let which = match whole_number(value) {
         Some(n) if n < low => format!("below {low}, "),
         Some(n) if n > high => format!("above {high}, "),
         _ => String::new(),
     };
-    format!(
-        "{value} is {which}out of range for this key: it takes a whole number from {low} to \
-         {high}"
-    )
+    match high == i128::from(u32::MAX) {
+        true => format!(
+            "{value} is {which}beyond any value this key takes (README's Case file reference \
+             gives its range)"
+        ),
+        false => format!(
+            "{value} is {which}out of range for this key: it takes a whole number from {low} to \
+             {high}"
+        ),
+    }
 }
 
 /// serde's "unknown field", "unknown variant" and "missing field": the key or value named,
@@ -390,8 +420,8 @@ mod tests {
             (
                 "invalid value: integer `5000000000`, expected u32",
                 "",
-                "5000000000 is above 4294967295, out of range for this key: it takes a whole \
-                 number from 0 to 4294967295",
+                "5000000000 is above 4294967295, beyond any value this key takes (README's Case \
+                 file reference gives its range)",
             ),
             // A number wider than 64 bits, named without serde's backtick or its type name
             // (found by review: "99999999999999999999` as i128 is out of range").
@@ -405,6 +435,20 @@ mod tests {
                 "invalid value: integer `-1`, expected u64",
                 "",
                 "-1 is below 0, out of range",
+            ),
+            // A number key given a whole number wider than 64 bits, in the file and by `--set`
+            // (kept as text): too many digits, with the forms that read (found by review: a
+            // stray backtick, and "written without quotes").
+            (
+                "invalid type: integer `99999999999999999999` as i128, expected f64",
+                "debt = 99999999999999999999",
+                "99999999999999999999 has more digits than a whole number in the file can hold; \
+                 write it with a decimal point (99999999999999999999.0) or an exponent",
+            ),
+            (
+                "invalid type: string \"99999999999999999999\", expected f64",
+                "",
+                "99999999999999999999 has more digits than a whole number",
             ),
             // A `--set` of a number too wide for the reader is kept as text: out of range, not
             // "written in quotes"; a number that fits, in quotes, is told to lose them.

@@ -77,9 +77,14 @@ pub fn case_cautions(v: &Valuation, flags_column: &str) -> Vec<String> {
         let inputs: Vec<String> = (c.unstated_inputs.iter())
             .map(|u| format!("{} ({})", u.input, u.key))
             .collect();
+        // "a, b and c", as the memo words the list.
+        let listed = match inputs.split_last() {
+            Some((last, [])) => last.clone(),
+            Some((last, rest)) => format!("{} and {last}", rest.join(", ")),
+            None => String::new(),
+        };
         out.push(format!(
-            "Inputs without a stated basis: the case gives no source or reason for {}.",
-            inputs.join(", ")
+            "Inputs without a stated basis: the case gives no source or reason for {listed}."
         ));
     }
     out

@@ -287,6 +287,8 @@ impl Estimation {
             window_end: self.window.end(),
             excess_returns: self.market.excess(),
             sampling_rule: sampling::rule_text(self.spec.frequency),
+            rolling_window: self.rolling.then_some(self.spec.rolling.window),
+            rolling_min_observations: self.rolling.then_some(self.spec.rolling.min_observations),
         }
     }
 }
@@ -354,6 +356,11 @@ pub struct WindowRecord {
     pub window_end: NaiveDate,
     pub excess_returns: bool,
     pub sampling_rule: &'static str,
+    /// Return periods per rolling window, as resolved (`beta.rolling_window`, else half the
+    /// window's periods, at least 3); `null` without `universe.rolling`.
+    pub rolling_window: Option<u32>,
+    /// Fewest observations in a rolling window, as resolved; `null` without `universe.rolling`.
+    pub rolling_min_observations: Option<u32>,
 }
 
 /// A security the estimator refused, with why.

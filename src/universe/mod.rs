@@ -153,10 +153,9 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
     }
     let (panel, found) = read_panel_estimating(&universe, &estimation)?;
     let listed = &universe.settings.universe.peer_set;
-    peer_set::check(listed, panel.securities()).map_err(|message| Error::Case {
-        file: universe.path.clone(),
-        message,
-    })?;
+    // A peer set given by --set is blamed on it (found by review: on the file).
+    peer_set::check(listed, panel.securities())
+        .map_err(|message| crate::case::blamed(&universe.path, &universe.overrides, message))?;
     Ok(UniverseInputs {
         early: EarlyEstimates::new(spec, rolling, found),
         universe,

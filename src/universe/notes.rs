@@ -425,6 +425,13 @@ fn named_notes(securities: &[SecurityResult]) -> Vec<String> {
             "returns the index explains with R² above 0.999, or the index's prices on every \
              date both have (the index itself or a fund tracking it)",
         ),
+        // Named too (found by review: counted only); securities.csv's
+        // `not_estimated_detail` says why for each.
+        not_estimated_as(
+            NotEstimated::EstimatorFailed,
+            "returns the estimator could not fit under the settings (securities.csv's \
+             not_estimated_detail says why)",
+        ),
     ];
     for (issue, what) in securities::UNLEVERING_ISSUES {
         let ids = ids_where(securities, |s| s.unlevering_issue == Some(issue));

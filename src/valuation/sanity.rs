@@ -328,6 +328,22 @@ pub fn check_peer_fit(
             show(estimate.r_squared)
         ));
     }
+    // A return beyond MAX_RETURN leaves the sums of squares a fit takes near or past the
+    // largest double (IEEE 754: about 1.8e308), so its statistics are lost or infinite: name the
+    // largest, so the price to check is found (found by review: two returns of 9.5e153 gave an
+    // infinite Durbin–Watson and a message naming no file).
+    let returns = &estimated.returns;
+    let largest = (returns.asset.iter().zip(&returns.period_ends))
+        .max_by(|a, b| a.0.abs().total_cmp(&b.0.abs()));
+    if let Some((r, date)) = largest.filter(|(r, _)| r.abs() > MAX_RETURN) {
+        return Err(format!(
+            "its return of {} for the period ending {date} is too large for a regression to \
+             square and sum in double precision (above {}); check the prices in {peer_path} up \
+             to that date",
+            show(*r),
+            show(MAX_RETURN)
+        ));
+    }
     let figures = [
         ("alpha", estimate.alpha),
         ("beta", estimate.beta),
@@ -335,25 +351,18 @@ pub fn check_peer_fit(
         ("beta_t_stat", estimate.beta_t_stat),
         ("beta_p_value", estimate.beta_p_value),
         ("r_squared", estimate.r_squared),
+        ("residual_std_error", estimate.residual_std_error),
+        ("durbin_watson", estimate.durbin_watson),
     ];
-    let Some((name, value)) = figures.iter().find(|(_, v)| !v.is_finite()) else {
-        return Ok(());
-    };
-    let mut message = format!("the regression gives {name} = {}", show(*value));
-    // A return whose square overflows a double (|r| above about 1e154) is what makes a figure
-    // of finite prices non-finite: name the largest, so the price to check is found.
-    let returns = &estimated.returns;
-    let largest = (returns.asset.iter().zip(&returns.period_ends))
-        .max_by(|a, b| a.0.abs().total_cmp(&b.0.abs()));
-    if let Some((r, date)) = largest.filter(|(r, _)| (r.abs() * r.abs()).is_infinite()) {
-        message.push_str(&format!(
-            ": its return of {} for the period ending {date} is too large to square in double \
-             precision; check the prices in {peer_path} up to that date",
-            show(*r)
-        ));
+    match figures.iter().find(|(_, v)| !v.is_finite()) {
+        Some((name, value)) => Err(format!("the regression gives {name} = {}", show(*value))),
+        None => Ok(()),
     }
-    Err(message)
 }
+
+/// The largest return a fit takes: its square, 1e300, summed over even a hundred million
+/// periods stays finite.
+const MAX_RETURN: f64 = 1e150;
 
 /// No output may hold a non-finite number: the last guard, called on every result before it
 /// is rendered (by `valuation::value` and `audit::evaluate`).

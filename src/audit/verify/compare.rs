@@ -121,6 +121,8 @@ const ADDED_IN: [(&str, &[&str]); 7] = [
             "peers[].stability_missing",
             "cautions.few_peers",
             "cautions.unstated_inputs",
+            "window.rolling_window",
+            "window.rolling_min_observations",
         ],
     ),
 ];

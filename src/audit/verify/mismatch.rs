@@ -114,10 +114,16 @@ impl Mismatch {
             // A recorded figure so small (a subnormal) that the share overflows is given
             // without it (found by review: "+inf%").
             (Some(a), Some(b)) if ((b - a) / a.abs()).is_finite() => {
+                let share = (b - a) / a.abs() * 100.0;
+                // A share that four decimals would show as 0.0000% is given in exponent form
+                // (found by review: a real mismatch read "-0.0000% of the recorded figure").
+                let share = match share.abs() >= 5e-5 {
+                    true => format!("{share:+.4}"),
+                    false => format!("{share:+.2e}"),
+                };
                 format!(
-                    "; difference {:.4e} ({:+.4}% of the recorded figure)",
-                    b - a,
-                    (b - a) / a.abs() * 100.0
+                    "; difference {:.4e} ({share}% of the recorded figure)",
+                    b - a
                 )
             }
             (Some(a), Some(b)) => format!("; difference {:.4e}", b - a),
