@@ -979,3 +979,50 @@ fn a_refusal_is_blamed_on_the_set_or_the_file_that_gave_the_value() {
     assert!(own.contains("case.toml: peer.0.equity_value"), "{own}");
     assert!(!own.contains("after applying"), "{own}");
 }
+
+// The short-window note (under two years, common practice) says what sets the window's length
+// as the case gives it: a count of periods, a span, or a first date (found by review: a span
+// was told about a lookback counted in periods).
+#[test]
+fn the_short_window_note_names_how_the_window_is_given() {
+    let cases = [
+        (
+            vec!["beta.lookback=18"],
+            "a lookback counted in periods keeps its count",
+        ),
+        (
+            vec!["beta.lookback=\"18m\""],
+            "a longer span in beta.lookback (\"5y\") widens it",
+        ),
+        (
+            vec!["beta.window_start=2025-03-31"],
+            "beta.window_start sets its first date",
+        ),
+    ];
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("out");
+    for (sets, remedy) in cases {
+        let mut args = vec!["run", common::DEMO_CASE, "--no-figures", "--out"];
+        args.extend([out.to_str().unwrap(), "--set", "beta.min_observations=12"]);
+        for set in &sets {
+            args.extend(["--set", set]);
+        }
+        let output = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+            .args(&args)
+            .output()
+            .unwrap();
+        assert!(output.status.success(), "{sets:?}: {}", stderr(&output));
+        let all = format!(
+            "{}{}",
+            String::from_utf8_lossy(&output.stdout),
+            stderr(&output)
+        );
+        let note = (all.lines())
+            .find(|l| l.contains("spans 1.50 years"))
+            .unwrap_or_else(|| panic!("{sets:?}: {all}"));
+        assert!(
+            note.contains(&format!("phase of the market; {remedy}")),
+            "{note}"
+        );
+    }
+}

@@ -56,7 +56,7 @@ pub(super) fn counts_and_notes(
     notes.extend(crate::case::sanity::short_window_note(
         (window.start(), window.end()),
         window.period_ends().len(),
-        universe.settings.beta.frequency,
+        &universe.settings.beta,
     ));
     notes.extend(attributes::thousands_notes(inputs));
     notes.extend(strays_note(inputs, &strays));

@@ -256,7 +256,7 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
     notes.extend(crate::case::sanity::short_window_note(
         (window.start(), window.end()),
         window.period_ends().len(),
-        settings.beta.frequency,
+        &settings.beta,
     ));
     notes.extend(crate::case::sanity::window_end_note(
         &settings.beta,

@@ -162,9 +162,20 @@ const SHORT_WINDOW_YEARS: f64 = 2.0;
 pub fn short_window_note(
     (start, end): (chrono::NaiveDate, chrono::NaiveDate),
     periods: usize,
-    frequency: crate::market::sampling::Frequency,
+    beta: &crate::case::BetaSettings,
 ) -> Option<String> {
+    let frequency = beta.frequency;
     let period = crate::case::label(&frequency);
+    // What sets the window's length, in the words of how the settings give it (found by
+    // review: a span such as "18m" was told about a lookback counted in periods).
+    let remedy = match (&beta.window_start, &beta.lookback) {
+        (Some(_), _) => "beta.window_start sets its first date",
+        (None, crate::case::Lookback::Periods(_)) => {
+            "a lookback counted in periods keeps its count when the frequency changes \
+             (beta.lookback)"
+        }
+        (None, _) => "a longer span in beta.lookback (\"5y\") widens it",
+    };
     let years = (end - start).num_days() as f64 / 365.25;
     // Counted in periods, so that two years of months (24) or of weeks (104) is not short,
     // whatever calendar days they span.
@@ -173,8 +184,7 @@ pub fn short_window_note(
         format!(
             "The return window, {periods} {period} returns from {start} to {end}, spans {} \
              years: less than the two to five years betas are usually estimated over (common \
-             practice), so it rests on one phase of the market; a lookback counted in periods \
-             keeps its count when the frequency changes (beta.lookback).",
+             practice), so it rests on one phase of the market; {remedy}.",
             crate::error::rounded(years, 2)
         )
     })

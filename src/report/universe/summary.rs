@@ -436,7 +436,7 @@ fn cautions(r: &UniverseResult) -> String {
     match s.beta.adjustment {
         // A stated prior is the user's; only one taken from the cross-section pools industries.
         crate::beta::Adjustment::Vasicek if s.beta.vasicek_prior_mean.is_none() => out.push_str(
-            "- Vasicek's prior is taken from every security estimated, across industries, so \
+            "- Vasicek's prior is taken from every security estimated and not excluded, across industries, so \
              it pulls each industry toward the market-wide mean, the more so the noisier its \
              betas.\n",
         ),
