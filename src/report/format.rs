@@ -81,8 +81,8 @@ pub fn table_cell(text: String) -> String {
 /// nothing in the report (CommonMark 0.31, "Backslash escapes").
 pub fn plain_text(text: String) -> String {
     let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        if matches!(c, '\\' | '`' | '[' | ']' | '<' | '*') {
+    for (at, c) in text.char_indices() {
+        if matches!(c, '\\' | '`' | '[' | ']' | '*') || (c == '<' && opens_tag(&text, at)) {
             out.push('\\');
         }
         out.push(c);
@@ -90,13 +90,25 @@ pub fn plain_text(text: String) -> String {
     out
 }
 
+/// Whether the `<` at byte `at` of `text` can open raw HTML or an autolink: CommonMark's all run
+/// from a `<` followed by a character other than white space to a later `>` (the case's own
+/// rule for names, `case::sanity::angle_bracketed`), so "p < 0.001" is left as it reads.
+fn opens_tag(text: &str, at: usize) -> bool {
+    let rest = &text[at + 1..];
+    rest.chars().next().is_some_and(|c| !c.is_whitespace()) && rest.contains('>')
+}
+
 /// A run's note as Markdown that shows it as written: outside its own code spans (the notes
 /// quote keys and values between backticks), a backslash before each character that would open
-/// a link, an image, raw HTML or emphasis (`[`, `]`, `<`, `*`; an underscore inside a word, as in
-/// the keys a note names, opens nothing) and before a backslash or a lone backtick, as
+/// a link, an image, raw HTML or emphasis (`[` and `]` in a note that holds `](` or `][`, `<`,
+/// `*`; an underscore inside a word, as in the keys a note names, opens nothing) and before a
+/// backslash or a lone backtick, as
 /// [`plain_text`] does for free text; a note names files, labels and values as the inputs give
 /// them.
 pub fn prose(text: String) -> String {
+    // A bracket opens a link only before `(` or `[` (a one-line note holds no reference
+    // definition), so a note that names `peers[]` or `[target]` is left as it reads.
+    let links = text.contains("](") || text.contains("][");
     let mut out = String::with_capacity(text.len());
     let mut in_code = false;
     for (at, c) in text.char_indices() {
@@ -105,7 +117,11 @@ pub fn prose(text: String) -> String {
         let opens = c == '`' && !in_code && text[at + 1..].contains('`');
         if c == '`' && (in_code || opens) {
             in_code = !in_code;
-        } else if !in_code && matches!(c, '\\' | '[' | ']' | '<' | '*' | '`') {
+        } else if !in_code
+            && (matches!(c, '\\' | '*' | '`')
+                || (c == '<' && opens_tag(&text, at))
+                || (links && matches!(c, '[' | ']')))
+        {
             out.push('\\');
         }
         out.push(c);

@@ -368,6 +368,9 @@ mod tests {
             inline(&escaped),
             "<code>beta.x = [1]</code> for [a](b) *c* d`e &lt;i&gt;"
         );
+        // Brackets that open no link are left as they read.
+        let plain = "peers[].stability and the keys of [target], p < 0.001";
+        assert_eq!(crate::report::format::prose(plain.into()), plain);
     }
 
     // GFM §4.10, example 200 (from memory): an escaped pipe in a table cell is the cell's own
