@@ -552,10 +552,11 @@ fn a_seed_out_of_range_is_named_with_its_key_and_range() {
 // Found by review: a peer named `Corrowick <b>Valves</b> & Co` put the HTML tags into
 // memo.md's tables, for any Markdown viewer to render. Such a `<` is refused in a name, title or
 // label as backticks and square brackets are (they open code and links), naming the key, the
-// value and why; an ampersand, which opens nothing, is kept. CommonMark's raw HTML and its
-// autolinks, web and e-mail addresses alike, run from a `<` to a later `>` (CommonMark spec
-// 0.31, "Raw HTML" and "Autolinks", from memory), so a `<` without a `>` after it opens nothing
-// and an exclusion reason "R² < 0.1, D/E > 2" is kept.
+// value and why; an ampersand, which opens nothing, is kept. In CommonMark (spec 0.31, "Raw
+// HTML" and "Autolinks", from memory) a tag, comment or web address begins with a letter, `/`,
+// `!` or `?` after the `<`, and an e-mail address holds an `@` and no space before the `>`; a
+// `<` without a `>` after it opens nothing, so "R² < 0.1, D/E > 2", "R² <0.05 and D/E >10" and
+// "a <-> b" are kept.
 #[test]
 fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
     let case = CaseCopy::new();
@@ -593,6 +594,8 @@ fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
     for kept in [
         "peer.1.name=\"Corrowick Valves & Co\"",
         "peer.1.name=\"A<B Holdings\"",
+        "peer.1.name=\"P<5 & Q>3\"",
+        "peer.1.exclude=\"R² <0.05 and D/E >10, a <-> b\"",
         "peer.1.exclude=\"R² < 0.1 over the window, D/E > 2\"",
     ] {
         let output = case.betas(&["--set", kept]);

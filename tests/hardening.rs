@@ -973,11 +973,50 @@ fn a_refusal_is_blamed_on_the_set_or_the_file_that_gave_the_value() {
         "{prior}"
     );
     assert!(!prior.contains("(all peers)"), "{prior}");
-    // The file's own negative equity value, beside a --set of another key.
+    // A value set twice by --set, and a peer set by name and then renamed: each --set that
+    // gave it is named, the rename is not (found by review: both were put down to the file).
+    let twice = refused(&["peer.0.debt=1e12", "peer.0.debt=1e12"]);
+    assert!(
+        twice.contains("after applying --set peer.0.debt=1e12, --set peer.0.debt=1e12: peer.0"),
+        "{twice}"
+    );
+    let renamed = refused(&[
+        "peer.Brenvale Fluid Systems.debt=1e12",
+        "peer.0.name=\"Alder\"",
+    ]);
+    assert!(
+        renamed.contains("after applying --set peer.Brenvale Fluid Systems.debt=1e12: peer.0"),
+        "{renamed}"
+    );
+    // A subject whose net debt a --set of its cash makes negative: the figures are named, and
+    // the --set values that gave them blamed.
+    let output = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["run", case.to_str().unwrap(), "--no-figures", "--out"])
+        .arg(sandbox.root.path().join("out"))
+        .args([
+            "--set",
+            "target.source=\"subject\"",
+            "--set",
+            "leverage.debt_measure=\"net\"",
+        ])
+        .args(["--set", "target.subject_cash=5000"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let subject = stderr(&output);
+    assert!(
+        subject.contains("--set target.subject_cash=5000: target.source = subject")
+            && subject.contains("target.subject_cash = 5000, target.subject_equity_value = 1500"),
+        "{subject}"
+    );
+    // The file's own negative equity value, beside a --set of another key, or one that only
+    // renames the peer (which rewords the message): the file is blamed.
     sandbox.edit_case("equity_value = 2400", "equity_value = -5");
-    let own = refused(&["market.equity_risk_premium=0.06"]);
-    assert!(own.contains("case.toml: peer.0.equity_value"), "{own}");
-    assert!(!own.contains("after applying"), "{own}");
+    for other in ["market.equity_risk_premium=0.06", "peer.0.name=\"Alder\""] {
+        let own = refused(&[other]);
+        assert!(own.contains("case.toml: peer.0.equity_value"), "{own}");
+        assert!(!own.contains("after applying"), "{own}");
+    }
 }
 
 // The short-window note (under two years, common practice) says what sets the window's length

@@ -267,7 +267,8 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         })?;
     placeholders::reject(path, &text, overrides)?;
     let settings = parse_case(path, &text, overrides)?;
-    validate(&settings).map_err(|message| blamed_in_case(path, &text, overrides, message))?;
+    validate(&settings)
+        .map_err(|message| blamed_in_case(path, &text, &settings, overrides, message))?;
     Ok(Case {
         settings,
         path: path.to_path_buf(),
@@ -315,24 +316,57 @@ pub fn blamed(path: &Path, overrides: &[String], message: String) -> Error {
 /// [`blamed`] for a case file's own checks, which can tell a file's value from one a `--set`
 /// gave whatever the message's words (found by review: `peer.0.debt=1e12` was put down to the
 /// file, whose message reads "peer.0 (peer …): debt = …", and a peer set by name never
-/// matched): each `--set` without which the case passes, or is refused in other words, gave a
-/// value the refusal is about. A `--set` without which the file cannot be read at all (one
-/// that fills a placeholder) proves nothing either way. With none found, the message's keys
-/// decide, as [`blamed`] does.
-fn blamed_in_case(path: &Path, text: &str, overrides: &[String], message: String) -> Error {
-    let gave = |i: usize| {
+/// matched). A `--set` is blamed when the case passes without it, or when the message names its
+/// key, or its peer's position and its field (a peer set by name taken to its position); a
+/// refusal in other words without it proves nothing (it may only reword the file's own fault),
+/// nor does a `--set` without which the file cannot be read (one that fills a placeholder).
+fn blamed_in_case(
+    path: &Path,
+    text: &str,
+    settings: &CaseFile,
+    overrides: &[String],
+    message: String,
+) -> Error {
+    let passes_without = |i: usize| {
         let others: Vec<String> = (overrides.iter().enumerate())
             .filter(|&(j, _)| j != i)
             .map(|(_, o)| o.clone())
             .collect();
-        parse_case(path, text, &others).is_ok_and(|s| validate(&s).err().as_ref() != Some(&message))
+        parse_case(path, text, &others).is_ok_and(|s| validate(&s).is_ok())
+    };
+    let key = |o: &str| -> String {
+        let key = o.split_once('=').map_or(o, |(k, _)| k);
+        key.split('.').map(str::trim).collect::<Vec<_>>().join(".")
+    };
+    // `peer.<index or name>.<field>` as the position the messages name and the field; a name
+    // may hold ". ", so it is the text between `peer.` and the last dot, as written.
+    let peer_field = |o: &str| -> Option<(usize, String)> {
+        let written = o.split_once('=').map_or(o, |(k, _)| k).trim();
+        let (peer, field) = written.strip_prefix("peer.")?.rsplit_once('.')?;
+        let (peer, field) = (peer.trim(), field.trim());
+        let index = (peer.parse::<usize>().ok())
+            .or_else(|| settings.peers.iter().position(|p| p.name == peer))?;
+        Some((index, field.to_string()))
+    };
+    let whole = |word: &str| {
+        message.match_indices(word).any(|(at, _)| {
+            let after = message[at + word.len()..].chars().next();
+            !after.is_some_and(|c| c.is_alphanumeric() || c == '_')
+        })
+    };
+    let names = |o: &String| {
+        whole(&key(o))
+            || peer_field(o).is_some_and(|(i, field)| {
+                whole(&format!("peer.{i}.{field}"))
+                    || (message.contains(&format!("peer.{i} (")) && whole(&field))
+            })
     };
     let given: Vec<String> = (0..overrides.len())
-        .filter(|&i| gave(i))
+        .filter(|&i| names(&overrides[i]) || passes_without(i))
         .map(|i| overrides[i].clone())
         .collect();
     match given.is_empty() {
-        true => blamed(path, overrides, message),
+        true => blamed(path, &[], message),
         false => Error::AfterOverrides {
             file: path.to_path_buf(),
             overrides: given,

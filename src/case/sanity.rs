@@ -403,20 +403,23 @@ pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), Stri
     }
 }
 
-/// The first `<…>` in `text` that can open raw HTML or an autolink: CommonMark's tags, comments
-/// and autolinks (a web or e-mail address) all run from a `<` followed by a character other
-/// than white space to a later `>`, so "R² < 0.1, D/E > 2" and "A<B Holdings" open nothing.
+/// The first `<…>` in `text` that can open raw HTML or an autolink (CommonMark 0.31, "Raw HTML"
+/// and "Autolinks", from memory): a tag, a comment or a declaration, and a web address, begin
+/// with a letter, `/`, `!` or `?` after the `<`; an e-mail address holds an `@` and no white
+/// space before the `>`. So "R² < 0.1, D/E > 2", "R² <0.05 and D/E >10", "a <-> b" and "A<B
+/// Holdings" open nothing.
 pub(crate) fn angle_bracketed(text: &str) -> Option<&str> {
-    let opens = |(at, _): &(usize, char)| {
-        text[at + 1..]
-            .chars()
-            .next()
-            .is_some_and(|c| !c.is_whitespace())
-            && text[at + 1..].contains('>')
-    };
-    let (start, _) = text.char_indices().filter(|&(_, c)| c == '<').find(opens)?;
-    let end = start + text[start..].find('>')?;
-    Some(&text[start..=end])
+    text.char_indices()
+        .filter(|&(_, c)| c == '<')
+        .filter_map(|(start, _)| {
+            let end = start + text[start..].find('>')?;
+            let span = &text[start..=end];
+            let next = span[1..].chars().next()?;
+            let tag = next.is_ascii_alphabetic() || "/!?".contains(next);
+            let address = span.contains('@') && !span.contains(char::is_whitespace);
+            (tag || address).then_some(span)
+        })
+        .next()
 }
 
 /// A peer's name must be told apart from the others by a reader and by an override that names

@@ -608,7 +608,8 @@ mod tests {
         assert_eq!(display_name("Alder [A] `B`"), "Alder (A) 'B'");
         assert_eq!(display_name("Alder <b>B</b>"), "Alder (b)B(/b)");
         // A `<` without a `>` after it, and a lone `>`, open nothing and are kept.
-        assert_eq!(display_name("R<1 & A>B"), "R(1 & A)B");
+        assert_eq!(display_name("R<1 & A>B"), "R<1 & A>B");
+        assert_eq!(display_name("Q<x@y.example>"), "Q(x@y.example)");
         assert_eq!(display_name("A<B Holdings"), "A<B Holdings");
         assert_eq!(display_name("D/E > 2"), "D/E > 2");
         let table = peer_table(&StartedPeer {

@@ -101,7 +101,8 @@ fn type_message(message: &str) -> Option<String> {
         }
         // A number key given a whole number too wide for the reader: not in quotes, too many
         // digits (found by review).
-        if expected == "f64" && whole_number(text).is_some() {
+        let wide = |n: i128| n < i128::from(i64::MIN) || n > i128::from(i64::MAX);
+        if expected == "f64" && whole_number(text).is_some_and(wide) {
             return Some(too_wide_for_a_number(text.trim()));
         }
         let advice = if text.trim_end().ends_with('%') {
@@ -209,9 +210,9 @@ fn whole_number(text: &str) -> Option<i128> {
 }
 
 /// "`value` is out of range for this key", with the bounds of the type that holds it. A
-/// 32-bit count's own range is narrower (a window's periods, draws, lags), so it is referred to
-/// README rather than given as 0 to 4294967295 (found by review: that read as the key's range);
-/// the 64-bit seed's range is the type's.
+/// 32-bit count's own range is narrower (a window's periods, draws, lags), so its type's bounds
+/// are not given as the key's (found by review: 0 to 4294967295 read as the key's range); the
+/// 64-bit seed's range is the type's.
 fn out_of_range(value: &str, (low, high): (i128, i128)) -> String {
     let which = match whole_number(value) {
         Some(n) if n < low => format!("below {low}, "),
@@ -219,10 +220,7 @@ fn out_of_range(value: &str, (low, high): (i128, i128)) -> String {
         _ => String::new(),
     };
     match high == i128::from(u32::MAX) {
-        true => format!(
-            "{value} is {which}beyond any value this key takes (README's Case file reference \
-             gives its range)"
-        ),
+        true => format!("{value} is {which}beyond any value this key takes"),
         false => format!(
             "{value} is {which}out of range for this key: it takes a whole number from {low} to \
              {high}"
@@ -420,8 +418,7 @@ mod tests {
             (
                 "invalid value: integer `5000000000`, expected u32",
                 "",
-                "5000000000 is above 4294967295, beyond any value this key takes (README's Case \
-                 file reference gives its range)",
+                "5000000000 is above 4294967295, beyond any value this key takes",
             ),
             // A number wider than 64 bits, named without serde's backtick or its type name
             // (found by review: "99999999999999999999` as i128 is out of range").
@@ -449,6 +446,13 @@ mod tests {
                 "invalid type: string \"99999999999999999999\", expected f64",
                 "",
                 "99999999999999999999 has more digits than a whole number",
+            ),
+            // A whole number that fits, in quotes (a placeholder filled inside its quotes): the
+            // quotes are the fault (found by review: it was told it had too many digits).
+            (
+                "invalid type: string \"600\", expected f64",
+                "debt = \"600\"",
+                "\"600\" is not a number: a number is written without quotes",
             ),
             // A `--set` of a number too wide for the reader is kept as text: out of range, not
             // "written in quotes"; a number that fits, in quotes, is told to lose them.

@@ -90,12 +90,14 @@ pub fn plain_text(text: String) -> String {
     out
 }
 
-/// Whether the `<` at byte `at` of `text` can open raw HTML or an autolink: CommonMark's all run
-/// from a `<` followed by a character other than white space to a later `>` (the case's own
-/// rule for names, `case::sanity::angle_bracketed`), so "p < 0.001" is left as it reads.
+/// Whether the `<` at byte `at` of `text` can open raw HTML or an autolink, by the case's own
+/// rule for names ([`crate::case::sanity::angle_bracketed`]), so "p < 0.001" is left as it
+/// reads.
 fn opens_tag(text: &str, at: usize) -> bool {
-    let rest = &text[at + 1..];
-    rest.chars().next().is_some_and(|c| !c.is_whitespace()) && rest.contains('>')
+    crate::case::sanity::angle_bracketed(&text[at..]).is_some_and(|span| {
+        // The span found must begin at this `<`, not at a later one.
+        std::ptr::eq(span.as_ptr(), text[at..].as_ptr())
+    })
 }
 
 /// A run's note as Markdown that shows it as written: outside its own code spans (the notes

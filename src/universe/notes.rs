@@ -86,7 +86,8 @@ pub(super) fn counts_and_notes(
     ));
     let threshold = inputs.universe.settings.beta.flag_lag_p_value;
     notes.extend(prices::late_response_note(securities, threshold));
-    notes.extend(industry_notes(industries));
+    let operations = inputs.universe.settings.leverage.operations_beta;
+    notes.extend(industry_notes(industries, operations));
     (counts, notes)
 }
 
@@ -272,7 +273,7 @@ fn flagged_notes(
 
 /// The notes on industries whose figures are fragile: resting on fewer than
 /// [`FEW_SECURITIES`] securities, or mostly on flagged ones.
-fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
+fn industry_notes(industries: &[IndustryResult], operations: bool) -> Vec<String> {
     let list = |rows: Vec<String>| {
         let more = if rows.len() > 10 { ", …" } else { "" };
         format!("{}{more}", rows[..rows.len().min(10)].join(", "))
@@ -281,11 +282,18 @@ fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
         .filter(|i| i.estimated > 0 && i.estimated < FEW_SECURITIES)
         .map(|i| format!("{} ({})", i.industry, i.estimated))
         .collect();
-    // Enough securities estimated, but too few of them with the figures to unlever (a tax
-    // rate, debt and equity value): the unlevered figures rest on those few (found by review:
-    // an industry's unlevered beta rested on one security of seven without a word).
-    let unlevered_count =
-        |i: &IndustryResult| i.unlevered.as_ref().map_or(0, |u| u.dispersion.count);
+    // Enough securities estimated, but too few of them with an unlevered beta (or a beta of the
+    // operations, when the industry's figure is of those): the figure rests on those few
+    // (found by review: an industry's unlevered beta rested on one security of seven without a
+    // word).
+    let unlevered_count = |i: &IndustryResult| {
+        let summary = if operations {
+            &i.operations
+        } else {
+            &i.unlevered
+        };
+        summary.as_ref().map_or(0, |u| u.dispersion.count)
+    };
     let few_unlevered: Vec<String> = (industries.iter())
         .filter(|i| i.estimated >= FEW_SECURITIES && unlevered_count(i) < FEW_SECURITIES)
         .map(|i| format!("{} ({} of {})", i.industry, unlevered_count(i), i.estimated))
@@ -329,12 +337,18 @@ fn industry_notes(industries: &[IndustryResult]) -> Vec<String> {
     if !few_unlevered.is_empty() {
         notes.push(format!(
             "{} unlevered figures rest on fewer than {FEW_SECURITIES} securities, the other \
-             securities estimated lacking a figure to unlever them (securities.csv's \
-             `missing`); those with an unlevered beta, of those estimated: {}.",
+             securities estimated having no {} (a figure missing, securities.csv's `missing`, \
+             or an unlevering issue, its `unlevering_issue`); those with one, of those \
+             estimated: {}.",
             if few_unlevered.len() == 1 {
                 "1 industry's".to_string()
             } else {
                 format!("{} industries'", few_unlevered.len())
+            },
+            if operations {
+                "beta of the operations"
+            } else {
+                "unlevered beta"
             },
             list(few_unlevered)
         ));

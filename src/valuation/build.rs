@@ -198,13 +198,30 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
                 .collect::<Vec<_>>()
         )),
         ChainError::CostOfDebt(problem) => case_error(crate::case::wording::debt_problem(&problem)),
-        ChainError::Target(target_de) => case_error(format!(
-            "target.source = {}: the target debt-to-equity works out at {target_de}, below 0 \
-             (net debt under leverage.debt_measure = {} is negative); a target structure needs \
-             D/E >= 0",
-            crate::case::label(&settings.target.source),
-            crate::case::label(&settings.leverage.debt_measure)
-        )),
+        ChainError::Target(target_de) => {
+            // The subject's figures named with their keys, so a --set of one is blamed on it
+            // (found by review: the refusal was put down to the file).
+            let t = &settings.target;
+            let figure = |key: &str, value: Option<f64>| {
+                value.map(|v| format!(", target.{key} = {}", crate::error::compact(v)))
+            };
+            let figures: String = [
+                figure("subject_debt", t.subject_debt),
+                figure("subject_cash", t.subject_cash),
+                figure("subject_equity_value", t.subject_equity_value),
+            ]
+            .into_iter()
+            .flatten()
+            .collect();
+            case_error(format!(
+                "target.source = {}: the target debt-to-equity works out at {}, below 0 (net \
+                 debt under leverage.debt_measure = {} is negative{figures}); a target \
+                 structure needs D/E >= 0",
+                crate::case::label(&settings.target.source),
+                crate::error::rounded(target_de, 3),
+                crate::case::label(&settings.leverage.debt_measure)
+            ))
+        }
         ChainError::PeerDebtBeta(i, debt_beta, beta_used) => Error::Estimation {
             peer: settings.peers[i].name.clone(),
             message: peer_debt_beta_message(debt_beta, beta_used),
