@@ -24,20 +24,11 @@ use common::{hurdle, DEMO_CASE};
 fn scipy_t975(df: u64) -> f64 {
     static TABLE: std::sync::OnceLock<Vec<f64>> = std::sync::OnceLock::new();
     let table = TABLE.get_or_init(|| {
-        let output = std::process::Command::new("python3")
-            .args([
-                "-c",
-                "import json, numpy as np; from scipy import stats; \
-                 print(json.dumps([float(v) for v in stats.t.ppf(0.975, np.arange(1, 20001))]))",
-            ])
-            .output()
-            .expect("python3 with scipy must be installed (python3 -m pip install numpy scipy)");
-        assert!(
-            output.status.success(),
-            "{}",
-            String::from_utf8_lossy(&output.stderr)
-        );
-        serde_json::from_slice(&output.stdout).unwrap()
+        common::python_json(
+            "import json, numpy as np; from scipy import stats; \
+             print(json.dumps([float(v) for v in stats.t.ppf(0.975, np.arange(1, 20001))]))",
+            &[],
+        )
     });
     assert!(
         (1..=20_000).contains(&df),

@@ -47,22 +47,12 @@ fn python(script: &str, arguments: &[&str]) {
 /// (`2 * scipy.stats.t.sf(abs(z), df)`) in one python3 call; the z values go as JSON, whose
 /// shortest round-trip decimals give python the same doubles.
 fn scipy_two_sided_p(pairs: &[(f64, usize)]) -> Vec<f64> {
-    let output = Command::new("python3")
-        .args([
-            "-c",
-            "import json, sys; from scipy import stats; \
-             print(json.dumps([float(2 * stats.t.sf(abs(z), df)) \
-             for z, df in json.loads(sys.argv[1])]))",
-            &serde_json::to_string(pairs).unwrap(),
-        ])
-        .output()
-        .expect("python3 with scipy must be installed (python3 -m pip install numpy scipy)");
-    assert!(
-        output.status.success(),
-        "{}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    serde_json::from_slice(&output.stdout).unwrap()
+    common::python_json(
+        "import json, sys; from scipy import stats; \
+         print(json.dumps([float(2 * stats.t.sf(abs(z), df)) \
+         for z, df in json.loads(sys.argv[1])]))",
+        &[&serde_json::to_string(pairs).unwrap()],
+    )
 }
 
 // numpy refits every peer from returns.csv and recomputes the beta-error correlation (1e-9), the

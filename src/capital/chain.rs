@@ -9,7 +9,9 @@
 
 use serde::Serialize;
 
-pub use super::spec::{CapitalSpec, Component, PeerCapital, PremiumSpec, TargetSpec};
+pub use super::spec::{
+    CapitalSpec, Component, CostOfDebtUse, PeerCapital, PremiumSpec, TargetSpec,
+};
 
 use super::cost;
 use super::debt::{self, CostOfDebtRecord};
@@ -35,20 +37,6 @@ pub struct PeerTerms {
     pub cost_of_debt_used: CostOfDebtUse,
     /// 1 − cash / (equity + debt), gross debt: the share of the firm's value in its operations.
     pub operating_share: f64,
-}
-
-/// Whether a peer's unlevered beta reads a cost of debt (Miles–Ezzell's discount rate of the tax
-/// shield, or the credit spread that gives a debt beta to a formula that takes one), and whose.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum CostOfDebtUse {
-    /// The peer's own `cost_of_debt`.
-    Own,
-    /// The subject's cost of debt, the peer having none of its own.
-    Subject,
-    /// Not read: the formula does not discount at it, and the debt beta is given, the peer's
-    /// own, none, or one the formula ignores (Hamada).
-    NotUsed,
 }
 
 /// The four capital components' figures: weights, or each one's share of the WACC.

@@ -109,3 +109,17 @@ pub struct PeerCapital {
     /// Whether the peer enters the aggregates (excluded peers are still shown).
     pub included: bool,
 }
+
+/// Whether a peer's unlevered beta reads a cost of debt (Miles–Ezzell's discount rate of the tax
+/// shield, or the credit spread that gives a debt beta to a formula that takes one), and whose.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CostOfDebtUse {
+    /// The peer's own `cost_of_debt`.
+    Own,
+    /// The subject's cost of debt, the peer having none of its own.
+    Subject,
+    /// Not read: the formula does not discount at it, and the debt beta is given, the peer's
+    /// own, none, or one the formula ignores (Hamada).
+    NotUsed,
+}

@@ -91,32 +91,7 @@ fn type_message(message: &str) -> Option<String> {
         .and_then(|t| t.strip_suffix('"'))
         .filter(|_| number)
     {
-        // A whole number too large for the TOML reader reaches here as text (a `--set` of one
-        // is kept as the text it cannot read): it is out of range, not in quotes (found by
-        // review: `--set uncertainty.seed=99999999999999999999` was told to drop quotes).
-        if let Some(((low, high), wide)) = range.zip(whole_number(text)) {
-            if wide < low || wide > high {
-                return Some(out_of_range(text.trim(), (low, high)));
-            }
-        }
-        // A number key given a whole number too wide for the reader: not in quotes, too many
-        // digits (found by review).
-        let wide = |n: i128| n < i128::from(i64::MIN) || n > i128::from(i64::MAX);
-        if expected == "f64" && whole_number(text).is_some_and(wide) {
-            return Some(too_wide_for_a_number(text.trim()));
-        }
-        let advice = if text.trim_end().ends_with('%') {
-            "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
-        } else if text.contains(',') {
-            "numbers take a decimal point and no thousands separator (2400.0, 0.0267)"
-        } else if text.trim().parse::<f64>().is_ok() {
-            "a number is written without quotes (0.0324, not \"0.0324\")"
-        } else if whole {
-            "this key takes a whole number"
-        } else {
-            "this key takes a number; a rate as a decimal (0.055 for 5.5%)"
-        };
-        return Some(format!("\"{text}\" is not a number: {advice}"));
+        return Some(text_for_a_number(text, expected, range));
     }
     if let Some(range) = range {
         // serde writes the value between backticks, a wide one followed by the type it was read
@@ -172,6 +147,37 @@ fn type_message(message: &str) -> Option<String> {
     Some(format!(
         "{shown} is not what this key takes: it takes {what}"
     ))
+}
+
+/// Text given to a key of serde's type `expected` that takes a number (`range` for a whole
+/// number), in words.
+fn text_for_a_number(text: &str, expected: &str, range: Option<(i128, i128)>) -> String {
+    // A whole number too large for the TOML reader reaches here as text (a `--set` of one is
+    // kept as the text it cannot read): it is out of range, not in quotes (found by review:
+    // `--set uncertainty.seed=99999999999999999999` was told to drop quotes).
+    if let Some(((low, high), wide)) = range.zip(whole_number(text)) {
+        if wide < low || wide > high {
+            return out_of_range(text.trim(), (low, high));
+        }
+    }
+    // A number key given a whole number too wide for the reader: not in quotes, too many
+    // digits (found by review).
+    let wide = |n: i128| n < i128::from(i64::MIN) || n > i128::from(i64::MAX);
+    if expected == "f64" && whole_number(text).is_some_and(wide) {
+        return too_wide_for_a_number(text.trim());
+    }
+    let advice = if text.trim_end().ends_with('%') {
+        "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
+    } else if text.contains(',') {
+        "numbers take a decimal point and no thousands separator (2400.0, 0.0267)"
+    } else if text.trim().parse::<f64>().is_ok() {
+        "a number is written without quotes (0.0324, not \"0.0324\")"
+    } else if range.is_some() {
+        "this key takes a whole number"
+    } else {
+        "this key takes a number; a rate as a decimal (0.055 for 5.5%)"
+    };
+    format!("\"{text}\" is not a number: {advice}")
 }
 
 /// A whole number written with more digits than a file's whole numbers hold, given to a key

@@ -73,19 +73,20 @@ pub fn case_cautions(v: &Valuation, flags_column: &str) -> Vec<String> {
             super::format::percent(u.p95, 2)
         ));
     }
-    if !c.unstated_inputs.is_empty() {
-        let inputs: Vec<String> = (c.unstated_inputs.iter())
-            .map(|u| format!("{} ({})", u.input, u.key))
-            .collect();
-        // "a, b and c", as the memo words the list.
-        let listed = match inputs.split_last() {
-            Some((last, [])) => last.clone(),
-            Some((last, rest)) => format!("{} and {last}", rest.join(", ")),
-            None => String::new(),
-        };
-        out.push(format!(
-            "Inputs without a stated basis: the case gives no source or reason for {listed}."
-        ));
-    }
+    out.extend(unstated_caution(&c.unstated_inputs));
     out
+}
+
+/// The inputs without a stated basis, listed "a, b and c" as the memo words them.
+fn unstated_caution(unstated: &[crate::valuation::UnstatedInput]) -> Option<String> {
+    let inputs: Vec<String> = (unstated.iter())
+        .map(|u| format!("{} ({})", u.input, u.key))
+        .collect();
+    let listed = match inputs.split_last()? {
+        (last, []) => last.clone(),
+        (last, rest) => format!("{} and {last}", rest.join(", ")),
+    };
+    Some(format!(
+        "Inputs without a stated basis: the case gives no source or reason for {listed}."
+    ))
 }

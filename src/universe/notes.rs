@@ -282,22 +282,6 @@ fn industry_notes(industries: &[IndustryResult], operations: bool) -> Vec<String
         .filter(|i| i.estimated > 0 && i.estimated < FEW_SECURITIES)
         .map(|i| format!("{} ({})", i.industry, i.estimated))
         .collect();
-    // Enough securities estimated, but too few of them with an unlevered beta (or a beta of the
-    // operations, when the industry's figure is of those): the figure rests on those few
-    // (found by review: an industry's unlevered beta rested on one security of seven without a
-    // word).
-    let unlevered_count = |i: &IndustryResult| {
-        let summary = if operations {
-            &i.operations
-        } else {
-            &i.unlevered
-        };
-        summary.as_ref().map_or(0, |u| u.dispersion.count)
-    };
-    let few_unlevered: Vec<String> = (industries.iter())
-        .filter(|i| i.estimated >= FEW_SECURITIES && unlevered_count(i) < FEW_SECURITIES)
-        .map(|i| format!("{} ({} of {})", i.industry, unlevered_count(i), i.estimated))
-        .collect();
     let mostly: Vec<String> = (industries.iter())
         .filter(|i| i.estimated > 0 && 2 * i.flagged_total > i.estimated)
         .map(|i| format!("{} ({} of {})", i.industry, i.flagged_total, i.estimated))
@@ -334,25 +318,7 @@ fn industry_notes(industries: &[IndustryResult], operations: bool) -> Vec<String
             list(few)
         ));
     }
-    if !few_unlevered.is_empty() {
-        notes.push(format!(
-            "{} unlevered figures rest on fewer than {FEW_SECURITIES} securities, the other \
-             securities estimated having no {} (a figure missing, securities.csv's `missing`, \
-             or an unlevering issue, its `unlevering_issue`); those with one, of those \
-             estimated: {}.",
-            if few_unlevered.len() == 1 {
-                "1 industry's".to_string()
-            } else {
-                format!("{} industries'", few_unlevered.len())
-            },
-            if operations {
-                "beta of the operations"
-            } else {
-                "unlevered beta"
-            },
-            list(few_unlevered)
-        ));
-    }
+    notes.extend(few_unlevered_note(industries, operations, &list));
     if !mostly.is_empty() {
         notes.push(format!(
             "{} {} on securities more than half of which carry a flag (flagged of aggregated): \
@@ -367,6 +333,49 @@ fn industry_notes(industries: &[IndustryResult], operations: bool) -> Vec<String
         ));
     }
     notes
+}
+
+/// The note on industries with enough securities estimated but fewer than [`FEW_SECURITIES`]
+/// with an unlevered beta (or a beta of the operations, when the industry's figure is of
+/// those): the figure rests on those few (found by review: an industry's unlevered beta rested
+/// on one security of seven without a word). `list` shortens a long list as the other notes do.
+fn few_unlevered_note(
+    industries: &[IndustryResult],
+    operations: bool,
+    list: &dyn Fn(Vec<String>) -> String,
+) -> Option<String> {
+    let unlevered_count = |i: &IndustryResult| {
+        let summary = if operations {
+            &i.operations
+        } else {
+            &i.unlevered
+        };
+        summary.as_ref().map_or(0, |u| u.dispersion.count)
+    };
+    let few_unlevered: Vec<String> = (industries.iter())
+        .filter(|i| i.estimated >= FEW_SECURITIES && unlevered_count(i) < FEW_SECURITIES)
+        .map(|i| format!("{} ({} of {})", i.industry, unlevered_count(i), i.estimated))
+        .collect();
+    if few_unlevered.is_empty() {
+        return None;
+    }
+    Some(format!(
+        "{} unlevered figures rest on fewer than {FEW_SECURITIES} securities, the other \
+             securities estimated having no {} (a figure missing, securities.csv's `missing`, \
+             or an unlevering issue, its `unlevering_issue`); those with one, of those \
+             estimated: {}.",
+        if few_unlevered.len() == 1 {
+            "1 industry's".to_string()
+        } else {
+            format!("{} industries'", few_unlevered.len())
+        },
+        if operations {
+            "beta of the operations"
+        } else {
+            "unlevered beta"
+        },
+        list(few_unlevered)
+    ))
 }
 
 /// [`crate::case::sanity::index_coverage_note`], in a universe's words.

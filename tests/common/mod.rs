@@ -273,3 +273,21 @@ pub fn quiet_guarded_panics() {
         }));
     });
 }
+
+/// Runs `python3 -c script args…` (numpy and scipy installed, as README's test command does)
+/// and reads the JSON it prints: reference values from the general-purpose libraries.
+#[allow(dead_code)]
+pub fn python_json<T: serde::de::DeserializeOwned>(script: &str, args: &[&str]) -> T {
+    let output = Command::new("python3")
+        .arg("-c")
+        .arg(script)
+        .args(args)
+        .output()
+        .expect("python3 with scipy must be installed (python3 -m pip install numpy scipy)");
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    serde_json::from_slice(&output.stdout).unwrap()
+}
