@@ -1065,3 +1065,40 @@ fn the_short_window_note_names_how_the_window_is_given() {
         );
     }
 }
+
+// The same bound on the index's returns: an accepted index jump whose return is beyond 1e150
+// (IEEE 754 sums of squares overflow near 1.8e308) is refused naming the index's file (found
+// by review: the refusal named no file, "regressor column 1 is all zeros or not finite").
+#[test]
+fn an_index_return_beyond_squaring_is_refused_by_its_file() {
+    let sandbox = Sandbox::new();
+    let file = "data/index.csv";
+    let text = sandbox.read(file);
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    // Every price from line 848 (2023-03-31) on multiplied by 1e90 and every one before by
+    // 1e-90, inside the 1e-100..1e100 bounds: one monthly return of about 1e180.
+    for (i, line) in lines.iter_mut().enumerate().skip(1) {
+        let (date, price) = line.split_once(',').unwrap();
+        let factor = if i + 1 >= 848 { 1e90 } else { 1e-90 };
+        *line = format!("{date},{}", price.parse::<f64>().unwrap() * factor);
+    }
+    assert!(lines[847].starts_with("2023-03-31,"), "{}", lines[847]);
+    sandbox.write(file, &(lines.join("\n") + "\n"));
+    sandbox.edit_case(
+        "prices = \"data/index.csv\"",
+        "prices = \"data/index.csv\"\naccept_jumps = [2023-03-31]",
+    );
+    let case = sandbox.path("case.toml");
+    let refused = Command::new(env!("CARGO_BIN_EXE_hurdle"))
+        .args(["betas", case.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert_eq!(refused.status.code(), Some(2), "{}", stderr(&refused));
+    let message = stderr(&refused);
+    for part in [
+        "data/index.csv",
+        "is too large for a regression to square and sum",
+    ] {
+        assert!(message.contains(part), "{message}");
+    }
+}

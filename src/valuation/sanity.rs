@@ -261,6 +261,21 @@ pub fn check_index_returns(
         })
     };
     let present: Vec<f64> = returns.iter().flatten().copied().collect();
+    // As a peer's (`check_peer_fit`), named by the index's file (found by review: an accepted
+    // index jump left "regressor column 1 is all zeros or not finite").
+    let largest = present
+        .iter()
+        .copied()
+        .max_by(|a, b| a.abs().total_cmp(&b.abs()));
+    if let Some(r) = largest.filter(|r| r.abs() > MAX_RETURN) {
+        return fail(format!(
+            "its return of {} in the window is too large for a regression to square and sum in \
+             double precision (above {}); check the prices around a jump accepted with \
+             market.index.accept_jumps",
+            show(r),
+            show(MAX_RETURN)
+        ));
+    }
     if present.len() < min_observations as usize {
         // Prices around the whole window but too few returns: too sparse for the frequency.
         let what_to_do = match index.first_date <= start && index.last_date >= end {
