@@ -197,16 +197,7 @@ fn an_accepted_jump_is_used() {
 fn an_accepted_jump_beyond_squaring_names_the_return_and_the_file() {
     let sandbox = Sandbox::new();
     let file = "data/peers/corrowick.csv";
-    let text = sandbox.read(file);
-    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
-    // Every price from line 848 (2023-03-31) on is multiplied by 1e90 and every one before it
-    // by 1e-90, all inside the 1e-100..1e100 bounds: one return of about 1e180.
-    for (i, line) in lines.iter_mut().enumerate().skip(1) {
-        let (date, price) = line.split_once(',').unwrap();
-        let factor = if i + 1 >= 848 { 1e90 } else { 1e-90 };
-        *line = format!("{date},{}", price.parse::<f64>().unwrap() * factor);
-    }
-    sandbox.write(file, &(lines.join("\n") + "\n"));
+    scale_around_2023_03_31(&sandbox, file);
     sandbox.edit_case(
         "prices = \"data/peers/corrowick.csv\"",
         "prices = \"data/peers/corrowick.csv\"\naccept_jumps = [2023-03-31]",
@@ -1073,17 +1064,7 @@ fn the_short_window_note_names_how_the_window_is_given() {
 fn an_index_return_beyond_squaring_is_refused_by_its_file() {
     let sandbox = Sandbox::new();
     let file = "data/index.csv";
-    let text = sandbox.read(file);
-    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
-    // Every price from line 848 (2023-03-31) on multiplied by 1e90 and every one before by
-    // 1e-90, inside the 1e-100..1e100 bounds: one monthly return of about 1e180.
-    for (i, line) in lines.iter_mut().enumerate().skip(1) {
-        let (date, price) = line.split_once(',').unwrap();
-        let factor = if i + 1 >= 848 { 1e90 } else { 1e-90 };
-        *line = format!("{date},{}", price.parse::<f64>().unwrap() * factor);
-    }
-    assert!(lines[847].starts_with("2023-03-31,"), "{}", lines[847]);
-    sandbox.write(file, &(lines.join("\n") + "\n"));
+    scale_around_2023_03_31(&sandbox, file);
     sandbox.edit_case(
         "prices = \"data/index.csv\"",
         "prices = \"data/index.csv\"\naccept_jumps = [2023-03-31]",
@@ -1101,4 +1082,19 @@ fn an_index_return_beyond_squaring_is_refused_by_its_file() {
     ] {
         assert!(message.contains(part), "{message}");
     }
+}
+
+/// Multiplies every price of a demo price file from line 848 (2023-03-31) on by 1e90 and every
+/// one before it by 1e-90, all inside the 1e-100..1e100 bounds: one monthly return of about
+/// 1e180 at 2023-03-31.
+fn scale_around_2023_03_31(sandbox: &Sandbox, file: &str) {
+    let text = sandbox.read(file);
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    assert!(lines[847].starts_with("2023-03-31,"), "{}", lines[847]);
+    for (i, line) in lines.iter_mut().enumerate().skip(1) {
+        let (date, price) = line.split_once(',').unwrap();
+        let factor = if i + 1 >= 848 { 1e90 } else { 1e-90 };
+        *line = format!("{date},{}", price.parse::<f64>().unwrap() * factor);
+    }
+    sandbox.write(file, &(lines.join("\n") + "\n"));
 }

@@ -402,17 +402,7 @@ fn terms_with(
     debt_beta: f64,
     cost_of_debt: Option<f64>,
 ) -> PeerTerms {
-    let reads_spread = spec.debt_beta_source == DebtBetaSource::CreditSpread
-        && peer.own_debt_beta.is_none()
-        && spec.formula != Formula::Hamada;
-    let cost_of_debt_used = match (
-        spec.formula.uses_cost_of_debt() || reads_spread,
-        peer.own_cost_of_debt,
-    ) {
-        (false, _) => CostOfDebtUse::NotUsed,
-        (true, Some(_)) => CostOfDebtUse::Own,
-        (true, None) => CostOfDebtUse::Subject,
-    };
+    let cost_of_debt_used = CostOfDebtUse::of(spec, peer);
     PeerTerms {
         debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
         debt_beta,

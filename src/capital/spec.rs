@@ -123,3 +123,21 @@ pub enum CostOfDebtUse {
     /// own, none, or one the formula ignores (Hamada).
     NotUsed,
 }
+
+impl CostOfDebtUse {
+    /// Whether `peer`'s unlevered beta under `spec` reads a cost of debt, and whose.
+    pub fn of(spec: &CapitalSpec<'_>, peer: &PeerCapital) -> CostOfDebtUse {
+        use super::leverage::{DebtBetaSource, Formula};
+        let reads_spread = spec.debt_beta_source == DebtBetaSource::CreditSpread
+            && peer.own_debt_beta.is_none()
+            && spec.formula != Formula::Hamada;
+        match (
+            spec.formula.uses_cost_of_debt() || reads_spread,
+            peer.own_cost_of_debt,
+        ) {
+            (false, _) => CostOfDebtUse::NotUsed,
+            (true, Some(_)) => CostOfDebtUse::Own,
+            (true, None) => CostOfDebtUse::Subject,
+        }
+    }
+}
