@@ -607,6 +607,103 @@ fn angle_brackets_that_open_a_tag_in_a_name_are_refused() {
     }
 }
 
+// Found by review: a direction override (U+202E) reorders a name on screen without being seen,
+// U+2028 splits a line where editors and Python's `splitlines` do, a Unicode noncharacter
+// (U+FFFE) made every chart unreadable XML (XML 1.0 §2.2 leaves it out of `Char`, from memory),
+// and white space around a title or subject turns a memo's line into a code block. Each is
+// refused naming the key and the character's code point.
+#[test]
+fn unseen_characters_and_white_space_around_labels_are_refused() {
+    let case = CaseCopy::new();
+    for (set, expected) in [
+        (
+            "peer.1.name=\"Corrowick \\u202EsevlaV\"",
+            "peer.1.name = \"Corrowick \\u{202e}sevlaV\" holds U+202E",
+        ),
+        (
+            "case.subject=\"Quillmarsh\\u2028Pumps\"",
+            "case.subject = \"Quillmarsh\\u{2028}Pumps\" holds U+2028",
+        ),
+        (
+            "market.index.name=\"Index \\uFFFE\"",
+            "market.index.name = \"Index \\u{fffe}\" holds U+FFFE",
+        ),
+        (
+            "case.title=\"    # Draft\"",
+            "case.title = \"    # Draft\" has white space around it",
+        ),
+    ] {
+        let stderr = case.refuse(&["--set", set]);
+        assert_mentions(&stderr, &[expected]);
+    }
+    // A zero-width joiner, which joins an emoji sequence, is kept.
+    let output = case.betas(&["--set", "peer.1.name=\"Corrowick \\u200D Valves\""]);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+}
+
+// Found by review: a peer whose periods were all dropped for stale prices was refused with
+// "peer price missing 60" and nothing about staleness. Here every other month's prices stop on
+// the 19th, so each month-end sample of those months and of the months after is older than 5
+// days (README, "beta.max_stale_days"): the message counts them as stale.
+#[test]
+fn periods_dropped_for_stale_prices_are_named_as_stale() {
+    let case = CaseCopy::new();
+    let file = case.case_dir().join("data/peers/dunmere.csv");
+    let text = fs::read_to_string(&file).unwrap();
+    let kept: Vec<&str> = (text.lines().enumerate())
+        .filter(|(i, line)| {
+            // Line 1 is the header; a date's month is bytes 5..7 and its day bytes 8..10.
+            *i == 0 || {
+                let (month, day): (u32, u32) =
+                    (line[5..7].parse().unwrap(), line[8..10].parse().unwrap());
+                month % 2 == 1 || day < 20
+            }
+        })
+        .map(|(_, line)| line)
+        .collect();
+    fs::write(&file, kept.join("\n") + "\n").unwrap();
+    let stderr = case.refuse(&[
+        "--set",
+        "beta.max_stale_days=5",
+        "--set",
+        "beta.min_observations=40",
+    ]);
+    assert_mentions(
+        &stderr,
+        &[
+            "peer \"Dunmere Hydraulics\"",
+            "dropped 60: peer price missing 60, 60 of them for a price older than \
+             beta.max_stale_days",
+            "a period can count under several",
+        ],
+    );
+}
+
+// Found by review: a window ended by beta.window_end before the index's first price was said
+// to be set by case.valuation_date, and the message told the user to move that.
+#[test]
+fn a_window_outside_the_index_names_the_key_that_ends_it() {
+    let case = CaseCopy::new();
+    let stderr = case.refuse(&["--set", "beta.window_end=2019-01-01"]);
+    assert_mentions(
+        &stderr,
+        &[
+            "data/index.csv",
+            "(2013-12-31 to 2018-12-31, set by beta.window_end and",
+            "move beta.window_end",
+        ],
+    );
+    let stderr = case.refuse(&["--set", "case.valuation_date=2019-01-01"]);
+    assert_mentions(
+        &stderr,
+        &["set by case.valuation_date and", "move case.valuation_date"],
+    );
+}
+
 #[test]
 fn credit_spread_debt_betas_need_a_positive_premium() {
     let case = CaseCopy::new();

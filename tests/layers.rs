@@ -4,7 +4,8 @@
 
 use std::path::Path;
 
-/// The layers in pipeline order; `error` and `demo` sit beside them.
+/// The layers in pipeline order; `error` and `progress` sit beside them; `demo*`, `bin/` and
+/// `cli/` are not checked.
 const LAYERS: [&str; 12] = [
     "io",
     "panel",

@@ -68,6 +68,17 @@ fn whose_cost_of_debt_each_peer_is_unlevered_with_is_recorded_and_printed() {
         "{memo}"
     );
     assert!(memo.contains("4.63% (subject's)"), "{memo}");
+    // peers.csv's last column says the same (found by review: its `cost_of_debt` alone
+    // suggested every peer's was used).
+    let csv = std::fs::read_to_string(out.join("peers.csv")).unwrap();
+    let mut lines = csv.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    assert_eq!(header.last(), Some(&"cost_of_debt_used"));
+    let used: Vec<&str> = lines.map(|l| l.rsplit(',').next().unwrap()).collect();
+    let recorded: Vec<&str> = (peers.iter())
+        .map(|p| p["cost_of_debt_used"].as_str().unwrap())
+        .collect();
+    assert_eq!(used, recorded);
 }
 
 // README: the rolling window is `beta.rolling_window`, else half the window's periods and at
@@ -119,6 +130,49 @@ fn the_rolling_window_and_why_there_is_no_line_come_from_the_result() {
     let peers = one["peers"].as_array().unwrap();
     assert!(peers.iter().all(|p| p["stability_missing"] == "one-window"));
     assert!(memo(&dir.path().join("one")).contains("one rolling window only"));
+
+    // Windows too short for the estimator (found by review: recorded as too few windows). The
+    // Newey–West (1994) lag rule, floor(4 (T/100)^(2/9)) (from memory), gives 2 lags at T = 8
+    // and at T = 9 (4 · 0.0800^(2/9) = 2.28, 4 · 0.0900^(2/9) = 2.34); the lags must stay
+    // below T/4, so 8-period windows are too short and 9-period windows are fitted. Dimson's one
+    // lagged index column likewise needs more than 4 observations, which 3 periods lack.
+    let nw = |window: &str| {
+        let out = dir.path().join(format!("nw-{window}"));
+        let result = run_case_with(
+            Path::new(DEMO_CASE),
+            &out,
+            &[
+                "beta.std_errors=newey-west",
+                &format!("beta.rolling_window={window}"),
+            ],
+        );
+        (result, out)
+    };
+    let (short, out) = nw("8");
+    for p in short["peers"].as_array().unwrap() {
+        assert_eq!(
+            p["stability_missing"], "short-for-estimator",
+            "{}",
+            p["name"]
+        );
+    }
+    assert!(memo(&out).contains("is too short for the estimator"));
+    let (fitted, _) = nw("9");
+    for p in fitted["peers"].as_array().unwrap() {
+        assert_eq!(p["stability"]["window_periods"], 9, "{}", p["name"]);
+    }
+    let dimson = run_case_with(
+        Path::new(DEMO_CASE),
+        &dir.path().join("dimson"),
+        &["beta.method=dimson", "beta.rolling_window=3"],
+    );
+    for p in dimson["peers"].as_array().unwrap() {
+        assert_eq!(
+            p["stability_missing"], "short-for-estimator",
+            "{}",
+            p["name"]
+        );
+    }
 }
 
 // hurdle's threshold (README, cautions): an aggregate of fewer than five peers is cautioned in

@@ -4,7 +4,9 @@
 //! sensitivity grid, its Monte Carlo interval and, when the case names one, the bridge to a
 //! claimed build-up, all stored in the one [`Valuation`]. The other modules answer a reviewer's
 //! questions: does the receipt reproduce ([`verify`]), which input value gives a claimed WACC
-//! ([`implied`]), what explains the gap between two WACCs ([`bridge`]).
+//! ([`implied`]), what explains the gap between two WACCs ([`bridge`]); [`grid`],
+//! [`uncertainty`], [`specification`] and [`frequency_comparison`] hold the analyses a run
+//! stores, [`histogram`] and [`waterfall`] what their charts draw.
 
 pub mod bridge;
 pub mod frequency_comparison;

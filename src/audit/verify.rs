@@ -38,10 +38,11 @@ pub const DEFAULT_TOLERANCE: f64 = 1e-12;
 
 /// What a verification leaves out, and why: the derived outputs are drawn from the figures of
 /// `result.json`, which are compared one by one.
-pub const NOT_COMPARED: &str = "memo.md, figures/*.svg, report.html, peers.csv, workbook.xlsx \
-and returns.csv are not compared: they are drawn from the figures of result.json, which are \
-(the returns from the price files, whose hashes are); a rerun with hurdle run writes them anew \
-for a comparison by eye";
+pub const NOT_COMPARED: &str = "memo.md, figures/*.svg, report.html, peers.csv, workbook.xlsx, \
+returns.csv and rolling.csv are not compared: they are drawn from the figures of result.json, \
+which are (the returns and rolling betas from the price files, whose hashes are, under the \
+settings result.json records); a rerun with hurdle run writes them anew for a comparison by \
+eye";
 
 /// Keys whose text only puts into words a setting that the receipt also records as a value of
 /// its own (the method, the standard errors, the frequency, the risk-free convention, the
@@ -211,13 +212,25 @@ impl Verification {
         // Files whose bytes changed while every figure matches: the data the run reads are,
         // for every figure, the receipt's (line ends rewritten, a workbook saved again); the
         // verdict stays, since the receipt's hashes are not met, but says so.
-        let same_data = match self.changed_inputs() > 0 && self.mismatches.is_empty() {
-            true => {
+        // A file whose rows or dates moved (listed with it) changed its data outside what the
+        // figures read, such as rows past the window's end (found by review: the verdict put
+        // an extended file down to rewritten line ends).
+        let moved = self.files.iter().any(|f| !f.changes.is_empty());
+        let same_data = match (
+            self.changed_inputs() > 0 && self.mismatches.is_empty(),
+            moved,
+        ) {
+            (true, false) => {
                 "; every figure matches, so the changed files' bytes differ but the data read \
                  from them give the receipt's figures (line ends rewritten or a workbook saved \
                  again do this): compare the files to settle it"
             }
-            false => "",
+            (true, true) => {
+                "; every figure matches, so what changed in the files (their rows or dates, \
+                 listed with each) lies outside the data the figures read, such as rows past \
+                 the window's end: compare the files to settle it"
+            }
+            (false, _) => "",
         };
         format!(
             "{}: {changed}{} figures compared, {} mismatched (relative tolerance {}){}{same_data}",

@@ -1,7 +1,7 @@
 //! Beta estimators: from aligned returns to a raw equity beta with its statistics.
 //!
-//! Each estimator is a function over return slices; [`estimate`] dispatches on a
-//! [`BetaMethod`] (the layer's own type, which a case's `beta.method` is read into). Adjustments (Blume, Vasicek) shrink the raw estimate afterwards, so `beta` in
+//! Each estimator is a function over return slices; [`estimate_with_influence`] (behind
+//! [`estimate_with`]) dispatches on a [`BetaMethod`] (the layer's own type, which a case's `beta.method` is read into). Adjustments (Blume, Vasicek) shrink the raw estimate afterwards, so `beta` in
 //! every output is always the estimator's own figure and `shrunk_beta` the adjusted one.
 
 pub mod diagnostics;

@@ -67,14 +67,27 @@ pub enum NoStability {
     NeweyWestLags,
     /// Fewer than two windows with enough observations whose returns vary.
     TooFewWindows,
+    /// A window, even with an observation in every period, is too short for the estimator:
+    /// the Newey–West lags of the lag rule, or the shifted index columns of Dimson or
+    /// Scholes–Williams, must stay below a quarter of its observations (found by review: such
+    /// a case was told its windows had too few observations).
+    ShortForEstimator,
 }
 
 impl NoStability {
-    /// The cause for a security without a line, whose estimation window has `periods` periods.
-    pub fn of(spec: &RollingSpec, periods: usize) -> NoStability {
+    /// The cause for a security without a line, whose estimation window has `periods` periods
+    /// and whose estimator uses `shifted` lagged and led index columns.
+    pub fn of(spec: &RollingSpec, periods: usize, shifted: usize) -> NoStability {
         let stated_lags = match spec.std_errors {
             StdErrors::NeweyWest => spec.newey_west_lags,
             _ => None,
+        };
+        // The most observations a window holds, and the lags the rule gives them; the rule's
+        // lags grow with N more slowly than N/4, so a full window is the estimator's best case.
+        let full = spec.window;
+        let lags = match spec.std_errors {
+            StdErrors::NeweyWest => stated_lags.unwrap_or_else(|| newey_west_default_lags(full)),
+            _ => 0,
         };
         // Window ends at periods window − 1, window − 1 + step, … up to the last period.
         let laid = match periods.checked_sub(spec.window) {
@@ -85,6 +98,8 @@ impl NoStability {
             NoStability::OneWindow
         } else if stated_lags.is_some_and(|lags| 4 * lags >= spec.window) {
             NoStability::NeweyWestLags
+        } else if 4 * lags >= full || 4 * shifted >= full {
+            NoStability::ShortForEstimator
         } else {
             NoStability::TooFewWindows
         }

@@ -374,11 +374,24 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
 /// Nor a `<` with a `>` after it, which can open raw HTML or an autolink there ([`angle_bracketed`];
 /// found by review: a peer named `Corrowick <b>Valves</b>` put the tags into memo.md's tables,
 /// for any Markdown viewer to render).
+///
+/// Nor a character that changes how the text around it shows without being seen (a direction
+/// override such as U+202E, which a reader cannot see but which reorders a name; a line or
+/// paragraph separator, U+2028 and U+2029, which editors and Python's `splitlines` break lines
+/// at) or that a chart cannot hold (a Unicode noncharacter such as U+FFFE, which XML refuses;
+/// found by review).
 pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), String> {
     if !crate::io::sanity::is_one_line(text) {
         return Err(format!(
             "{key} = {text:?} holds a line break or another control character: names, titles \
              and labels are one line of text"
+        ));
+    }
+    if let Some(c) = text.chars().find(|&c| unseen_or_unwritable(c)) {
+        return Err(format!(
+            "{key} = {text:?} holds U+{:04X}, a character that reorders or breaks the text around \
+             it without being seen (or that XML cannot hold); write the name without it",
+            c as u32
         ));
     }
     if let Some(mark) = text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
@@ -401,6 +414,30 @@ pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), Stri
              without the angle brackets, with parentheses for instance"
         )),
     }
+}
+
+/// A title, subject, currency or index name must not have white space around it: one at the
+/// start of a memo's line would turn it into a code block or carry into a heading (found by
+/// review). A peer's name has its own rule ([`distinct_name`]).
+pub(crate) fn trimmed_label(key: &str, text: &str) -> std::result::Result<(), String> {
+    if text.trim() != text {
+        return Err(format!(
+            "{key} = \"{text}\" has white space around it, which the memo would carry into its \
+             headings and tables; remove it"
+        ));
+    }
+    Ok(())
+}
+
+/// A direction mark or override, a line or paragraph separator, or a Unicode noncharacter
+/// (Unicode 15, §23.2 "Layout Controls" for U+061C, U+200E–U+200F, U+202A–U+202E and
+/// U+2066–U+2069; §23.7 "Noncharacters" for U+FDD0–U+FDEF and the last two code points of each
+/// plane; from memory).
+fn unseen_or_unwritable(c: char) -> bool {
+    matches!(c,
+        '\u{061c}' | '\u{200e}' | '\u{200f}' | '\u{2028}' | '\u{2029}'
+        | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{fdd0}'..='\u{fdef}')
+        || (c as u32 & 0xfffe) == 0xfffe
 }
 
 /// The first `<…>` in `text` that can open raw HTML or an autolink (CommonMark 0.31, "Raw HTML"

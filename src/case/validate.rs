@@ -65,9 +65,10 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
                  would take past the window's end)"
             ),
         };
+        // The quarter named as what it is (found by review: a bare "(1)" after the periods).
         return Err(format!(
-            "{columns} is at least a quarter of the window's {periods} ({quarter}): too many \
-             shifted market columns; lengthen the window"
+            "{columns} is at least a quarter of the window's {periods} (a quarter is \
+             {quarter}): too many shifted market columns; lengthen the window"
         ));
     }
     if beta.method == BetaMethod::Dimson && lags + leads == 0 {
@@ -91,7 +92,7 @@ fn validate_beta_options(beta: &BetaSettings, lookback: u32) -> std::result::Res
         if 4 * l >= lookback {
             return Err(format!(
                 "beta.newey_west_lags = {l} is at least a quarter of the window's {lookback} \
-                 periods ({})",
+                 periods (a quarter is {})",
                 f64::from(lookback) / 4.0
             ));
         }
@@ -165,6 +166,7 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
         .map(|c| ("conversion.currency", &c.currency));
     for (key, text) in labels.into_iter().chain(conversion) {
         plain_label(key, text)?;
+        super::sanity::trimmed_label(key, text)?;
     }
     super::sources::validate(case)?;
     rate(

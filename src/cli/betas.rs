@@ -175,9 +175,14 @@ fn table(case: &Case, estimates: &PeerEstimates, peers: &[PeerResult]) -> String
             flags_cell(p),
         ));
     }
+    // The estimator and the kind of standard error, as the frequency comparison's footer
+    // names them (found by review: a listing under Scholes–Williams with Newey–West errors did
+    // not say which SE it showed).
     out.push_str(&format!(
-        "beta* = beta used: the {}; frequency {}, window {} to {}\n",
+        "beta* = beta used: the {}; method {}, std errors {}; frequency {}, window {} to {}\n",
         super::shrinkage(&case.settings.beta),
+        label(&estimates.spec.estimator.method),
+        label(&estimates.spec.estimator.std_errors),
         label(&estimates.spec.frequency),
         estimates.window_start,
         estimates.window_end

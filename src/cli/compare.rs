@@ -46,7 +46,11 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     }
     print!(
         "{}",
-        render(&result, [from_facts.as_ref(), to_facts.as_ref()])
+        render(
+            &result,
+            [from_facts.as_ref(), to_facts.as_ref()],
+            wrote.is_some()
+        )
     );
     if let Some(path) = wrote {
         println!("  wrote {}", path.display());
@@ -54,7 +58,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     Ok(())
 }
 
-fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
+fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
     // A claim whose stated WACC its components do not give: both figures, named.
     let wacc = |side: &hurdle::audit::bridge::Side| match side.stated_wacc {
         Some(stated) if (stated - side.wacc).abs() >= 5e-6 => format!(
@@ -120,7 +124,7 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> String {
         basis_points(b.difference),
         basis_points(b.difference)
     ));
-    out.push_str(&notes(b));
+    out.push_str(&notes(b, csv));
     out.push_str(&side_notes(b));
     if let [Some(from), Some(to)] = facts {
         out.push_str(&case_notes(b, from, to));
@@ -201,7 +205,7 @@ fn case_notes(b: &Bridge, from: &CaseFacts, to: &CaseFacts) -> String {
 
 /// The notes under the bridge table: each side's unexplained part, the preferred and lease
 /// terms the weights step moves, the rounding of the steps, and what the beta line carries.
-fn notes(b: &Bridge) -> String {
+fn notes(b: &Bridge, csv: bool) -> String {
     let mut out = String::new();
     // Half a basis point: what the printed figures can show.
     let visible = |gap: &f64| gap.abs() >= 5e-5;
@@ -237,10 +241,15 @@ fn notes(b: &Bridge) -> String {
             other(to)
         ));
     }
-    out.push_str(
+    // Only a bridge written with `--out` has a bridge.csv to point to (found by review).
+    out.push_str(&format!(
         "note: steps and Shapley values are shown to the basis point and may not add to the \
-         total by a basis point; bridge.csv holds them in full\n",
-    );
+         total by a basis point; {}\n",
+        match csv {
+            true => "bridge.csv holds them in full",
+            false => "`--out DIR` writes them in full to bridge.csv",
+        }
+    ));
     // Only when the D/E differs (found by review: said of two cases of one D/E).
     // (Also when preferred equity on one side makes the weights' products differ by rounding.)
     let (a, b) = (

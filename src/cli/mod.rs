@@ -29,7 +29,7 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Estimate the peers' betas and the WACC, and write memo.md, result.json, peers.csv,
-    /// returns.csv, workbook.xlsx, the charts (figures/*.svg) and report.html.
+    /// returns.csv, rolling.csv, workbook.xlsx, the charts (figures/*.svg) and report.html.
     Run(run::Args),
     /// Print the peers' beta estimates only.
     Betas(betas::Args),

@@ -54,11 +54,35 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
                 fixed(s.max, 3),
                 fixed(s.trend_per_year, 3)
             ),
-            None => println!("{name}: fewer than two rolling windows"),
+            None => println!("{name}: {}", no_line(estimated.no_stability)),
         }
     }
     for path in written {
         println!("  wrote {}", path.display());
     }
     Ok(())
+}
+
+/// Why a peer has no line of rolling betas, as `result.json`'s `stability_missing` records it
+/// (found by review: every peer was said to have fewer than two windows, whatever the cause).
+fn no_line(cause: Option<hurdle::beta::rolling::NoStability>) -> &'static str {
+    use hurdle::beta::rolling::NoStability;
+    match cause {
+        Some(NoStability::OneWindow) => {
+            "one rolling window only (beta.rolling_window and beta.rolling_step leave room for \
+             one in the estimation window), so no line over time"
+        }
+        Some(NoStability::NeweyWestLags) => {
+            "no rolling window: beta.newey_west_lags needs more than four times as many \
+             observations as a window of beta.rolling_window periods holds"
+        }
+        Some(NoStability::ShortForEstimator) => {
+            "no rolling window: a window of beta.rolling_window periods is too short for the \
+             estimator (its shifted index columns and Newey–West lags must each stay below a \
+             quarter of a window's observations)"
+        }
+        Some(NoStability::TooFewWindows) | None => {
+            "fewer than two rolling windows with enough observations"
+        }
+    }
 }

@@ -483,8 +483,10 @@ pub fn estimate_security(
     let excluding_flags = spec.flags.excluding(&flags);
     let stability = rolling::stability(&rolling_points, spec.rolling.window)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;
-    let no_stability = (stability.is_none())
-        .then(|| rolling::NoStability::of(&rolling_spec(spec), periods_in_window));
+    let no_stability = (stability.is_none()).then(|| {
+        let shifted = aligned.market_shifted.len();
+        rolling::NoStability::of(&rolling_spec(spec), periods_in_window, shifted)
+    });
     Ok(SecurityEstimate {
         periods_in_window,
         dropped: aligned.dropped,

@@ -336,6 +336,7 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         let line = i + 1;
         let start = line_start;
         line_start += raw.len() + 1;
+        let crlf = raw.ends_with(b"\r");
         let raw = raw.strip_suffix(b"\r").unwrap_or(raw);
         if valid_up_to < start + raw.len() {
             let message = super::encoding::not_utf8(valid_up_to - start + 1, bytes[valid_up_to]);
@@ -349,7 +350,10 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
             match b {
                 b'"' => in_quotes = !in_quotes,
                 b',' if !in_quotes => fields += 1,
-                b'\r' if !in_quotes => return Err(row_error(line, lone_carriage_return(at + 1))),
+                b'\r' if !in_quotes => {
+                    let stray = crlf && at + 1 == raw.len();
+                    return Err(row_error(line, lone_carriage_return(at + 1, stray)));
+                }
                 _ => {}
             }
         }
@@ -406,25 +410,37 @@ fn refuse_binary(file: &Path, bytes: &[u8]) -> Result<()> {
 /// The message for a carriage return that does not end a line, at its 1-based byte in the line:
 /// lines ended by CR alone (classic Mac OS), which every other reader here takes as one line.
 /// The first carriage return in `bytes` followed by something other than a line feed, as
-/// (line, byte within the line), both counted from 1: where a file whose lines end in CR alone
-/// is named. A CR that ends the bytes (a last line without its LF) is not one.
-pub fn first_lone_carriage_return(bytes: &[u8]) -> Option<(usize, usize)> {
+/// (line, byte within the line), both counted from 1, and whether it stands just before a CRLF
+/// (a line ended by CR CR LF): where a file whose lines end in CR alone is named. A CR that
+/// ends the bytes (a last line without its LF) is not one.
+pub fn first_lone_carriage_return(bytes: &[u8]) -> Option<(usize, usize, bool)> {
     let lone = |i: usize| bytes[i] == b'\r' && bytes.get(i + 1).is_some_and(|&b| b != b'\n');
     let at = (0..bytes.len()).find(|&i| lone(i))?;
+    let stray = bytes[at + 1..].starts_with(b"\r\n");
     let before = &bytes[..at];
     let line_start = before
         .iter()
         .rposition(|&b| b == b'\n')
         .map_or(0, |i| i + 1);
     let line = before.iter().filter(|&&b| b == b'\n').count() + 1;
-    Some((line, at - line_start + 1))
+    Some((line, at - line_start + 1, stray))
 }
 
-pub fn lone_carriage_return(column: usize) -> String {
-    format!(
-        "byte {column} is a carriage return inside the line: the file's lines end with CR alone; \
-         save it with LF or CRLF line ends"
-    )
+/// The message for a carriage return inside a line at byte `column`; `stray` when it stands
+/// just before the line's own CRLF (found by review: a file of CR CR LF line ends, as a CRLF
+/// file converted once more gives, was said to end its lines with CR alone).
+pub fn lone_carriage_return(column: usize, stray: bool) -> String {
+    match stray {
+        true => format!(
+            "byte {column} is a second carriage return before the line's CRLF (the line ends \
+             with CR CR LF, as a file with CRLF line ends converted once more gives); save it \
+             with LF or CRLF line ends"
+        ),
+        false => format!(
+            "byte {column} is a carriage return inside the line: the file's lines end with CR \
+             alone; save it with LF or CRLF line ends"
+        ),
+    }
 }
 
 /// A line with nothing on it (or only a carriage return) inside a CSV file's rows.
@@ -583,9 +599,18 @@ mod tests {
     fn a_lone_carriage_return_is_found_at_its_line_and_byte() {
         assert_eq!(
             first_lone_carriage_return(b"date,price\r2024"),
-            Some((1, 11))
+            Some((1, 11, false))
         );
-        assert_eq!(first_lone_carriage_return(b"a\r\nbc\rd"), Some((2, 3)));
+        assert_eq!(
+            first_lone_carriage_return(b"a\r\nbc\rd"),
+            Some((2, 3, false))
+        );
+        // CR CR LF: the first CR is the stray one, before the line's CRLF.
+        assert_eq!(
+            first_lone_carriage_return(b"date,price\r\r\n1,2\r\r\n"),
+            Some((1, 11, true))
+        );
+        assert!(lone_carriage_return(11, true).contains("CR CR LF"));
         assert_eq!(first_lone_carriage_return(b"a\r\nb\r"), None);
         assert_eq!(first_lone_carriage_return(b"a\nb"), None);
     }

@@ -151,11 +151,12 @@ fn csv_records(text: &str, path: &Path) -> Result<Vec<(usize, csv::StringRecord)
     // text stays UTF-8).
     let kept = super::sanity::without_trailing_empty_records(text.as_bytes()).len();
     let text = &text[..kept];
-    if let Some((line, column)) = super::sanity::first_lone_carriage_return(text.as_bytes()) {
+    if let Some((line, column, stray)) = super::sanity::first_lone_carriage_return(text.as_bytes())
+    {
         return Err(Error::DataRow {
             file: path.to_path_buf(),
             line,
-            message: super::sanity::lone_carriage_return(column),
+            message: super::sanity::lone_carriage_return(column, stray),
         });
     }
     let lines = text

@@ -46,8 +46,8 @@ pub(super) fn header(source: &Source, block: &[u8]) -> Result<Vec<String>> {
     if let Some((_, message)) = crate::io::encoding::first_non_utf8(block) {
         return Err(line_error(source, 1, message));
     }
-    if let Some((line, column)) = crate::io::sanity::first_lone_carriage_return(block) {
-        let message = crate::io::sanity::lone_carriage_return(column);
+    if let Some((line, column, stray)) = crate::io::sanity::first_lone_carriage_return(block) {
+        let message = crate::io::sanity::lone_carriage_return(column, stray);
         return Err(line_error(source, line, message));
     }
     // A header whose quotes no reader takes as meant is named at its line, before polars

@@ -15,7 +15,7 @@ pub struct PeersCsv;
 /// Long form: one row per peer and return period.
 pub struct ReturnsCsv;
 
-const PEER_COLUMNS: [&str; 35] = [
+const PEER_COLUMNS: [&str; 36] = [
     "name",
     "prices_file",
     "observations",
@@ -51,6 +51,7 @@ const PEER_COLUMNS: [&str; 35] = [
     "lag_slope_t_stat",
     "lag_slope_p_value",
     "lag_summed_beta",
+    "cost_of_debt_used",
 ];
 
 impl Render for PeersCsv {
@@ -114,6 +115,9 @@ impl Render for PeersCsv {
                 lag(|l| l.t_stat),
                 lag(|l| l.p_value),
                 lag(|l| l.summed_beta),
+                // Whether `cost_of_debt` went into the unlevered beta, and whose it is (found by
+                // review: the column alone suggested every peer's was used).
+                crate::report::format::label(&p.cost_of_debt_used),
             ];
             out.push_str(&cells.join(","));
             out.push('\n');

@@ -67,22 +67,50 @@ pub fn exact_percent(rate: f64) -> String {
 }
 
 /// Text for a Markdown table cell: a `|` in it (a peer's name, a file's path) escaped, so that
-/// it does not split the row.
+/// it does not split the row; one [`plain_text`] has escaped already is left as it is.
 pub fn table_cell(text: String) -> String {
-    text.replace('|', "\\|")
+    let mut out = String::with_capacity(text.len());
+    let mut escaped = false;
+    for c in text.chars() {
+        if c == '|' && !escaped {
+            out.push('\\');
+        }
+        escaped = c == '\\' && !escaped;
+        out.push(c);
+    }
+    out
 }
 
 /// A user's free text (a justification, the peer selection, a claim's label, an override, a
-/// universe's industry label or security id) as Markdown that shows it as written: a backslash
-/// before each character that would open code, a link, an image, raw HTML or emphasis (`` ` ``,
-/// `[`, `]`, `<`, `*`; an underscore inside a word, as in a key, opens nothing, and an image's
-/// `!` nothing without its bracket) and before a backslash, so
-/// `![x](http://…)` or `<b>` in a justification is text in the memo and loads or formats
-/// nothing in the report (CommonMark 0.31, "Backslash escapes").
+/// name, a universe's industry label or security id) as Markdown that shows it as written, in a
+/// table cell too: a backslash before each character that would open code, a link, an image,
+/// raw HTML, emphasis, a strikethrough or a character reference, or end a table cell (`` ` ``,
+/// `[`, `]`, `<`, `*`, `~`, `|`, and `_` and `&` where [`opens_mark`] says they would; an
+/// image's `!` opens nothing without its bracket) and before a backslash, so `![x](http://…)`,
+/// `<b>` or `_draft_` in a justification is text in the memo and loads or formats nothing in the
+/// report (CommonMark 0.31, "Backslash escapes"; GFM "Tables"). Every `<` is escaped, not only
+/// one that closes: two names joined in a sentence could otherwise make one tag, and a `<!--`
+/// or `<script` opening a line hides the rest of the memo from a viewer (found by review).
+/// Where the text begins a line or a list item (a peer's name in the stability list, a title
+/// in the heading), a first character that would open a block (`#`, `>`, `-`, `+`, `=`, or the
+/// `.` or `)` after leading digits) and a closing run of `#` after a space are escaped too, so
+/// "# 2 Holdings" or "Case #" show as written.
 pub fn plain_text(text: String) -> String {
     let mut out = String::with_capacity(text.len());
+    let digits = text.len() - text.trim_start_matches(|c: char| c.is_ascii_digit()).len();
+    let closing = text.trim_end_matches('#');
+    let closing = match closing.ends_with([' ', '\t']) || closing.is_empty() {
+        true => closing.len(),
+        false => text.len(),
+    };
     for (at, c) in text.char_indices() {
-        if matches!(c, '\\' | '`' | '[' | ']' | '*') || (c == '<' && opens_tag(&text, at)) {
+        let opens_block = (at == 0 && matches!(c, '#' | '>' | '-' | '+' | '='))
+            || (at == digits && digits > 0 && matches!(c, '.' | ')'))
+            || at == closing;
+        if matches!(c, '\\' | '`' | '[' | ']' | '*' | '<' | '|')
+            || opens_mark(&text, at, c)
+            || opens_block
+        {
             out.push('\\');
         }
         out.push(c);
@@ -90,21 +118,68 @@ pub fn plain_text(text: String) -> String {
     out
 }
 
-/// Whether the `<` at byte `at` of `text` can open raw HTML or an autolink, by the case's own
-/// rule for names ([`crate::case::sanity::angle_bracketed`]), so "p < 0.001" is left as it
-/// reads.
-fn opens_tag(text: &str, at: usize) -> bool {
-    crate::case::sanity::angle_bracketed(&text[at..]).is_some_and(|span| {
-        // The span found must begin at this `<`, not at a later one.
-        std::ptr::eq(span.as_ptr(), text[at..].as_ptr())
-    })
+/// Text as a Markdown code span that holds it whole (a file's path, a column's header, an
+/// override): between backticks, or, when the text holds backticks, between runs of one more
+/// backtick than its longest run, a space inside each (CommonMark 0.31, "Code spans"), so a
+/// path with a backtick in it does not end its span early (found by review).
+pub fn code_span(text: String) -> String {
+    let longest = text.split(|c| c != '`').map(str::len).max().unwrap_or(0);
+    match longest {
+        0 => format!("`{text}`"),
+        n => {
+            let fence = "`".repeat(n + 1);
+            format!("{fence} {text} {fence}")
+        }
+    }
+}
+
+/// Whether `c` at byte `at` of `text` opens emphasis, a strikethrough or a character reference
+/// in CommonMark with GitHub's strikethrough (from memory of CommonMark 0.31, "Emphasis and
+/// strong emphasis" and "Entity and numeric character references", and the GFM
+/// "Strikethrough" extension): an underscore at a word's edge (one between two letters or
+/// digits, as in a key, neither opens nor closes), any tilde, and an ampersand that begins
+/// `&name;`, `&#digits;` or `&#xhex;` (`R&D` and `A & B` read as written).
+fn opens_mark(text: &str, at: usize, c: char) -> bool {
+    match c {
+        '_' => {
+            let before = text[..at].chars().next_back();
+            let after = text[at + 1..].chars().next();
+            !(before.is_some_and(char::is_alphanumeric) && after.is_some_and(char::is_alphanumeric))
+        }
+        '~' => true,
+        '&' => is_character_reference(&text[at + 1..]),
+        _ => false,
+    }
+}
+
+/// Whether `after`, the text after an `&`, completes a character reference: a name of letters and
+/// digits beginning with a letter, `#` and 1–7 digits, or `#x` and 1–6 hexadecimal digits, then
+/// `;` (any name, not only HTML's: escaping one more `&` shows the same text).
+fn is_character_reference(after: &str) -> bool {
+    let Some((body, _)) = after.split_once(';') else {
+        return false;
+    };
+    let all = |text: &str, range: std::ops::RangeInclusive<usize>, digit: fn(&char) -> bool| {
+        range.contains(&text.len()) && text.chars().all(|c| digit(&c))
+    };
+    match body.strip_prefix('#') {
+        Some(number) => match number.strip_prefix(['x', 'X']) {
+            Some(hex) => all(hex, 1..=6, char::is_ascii_hexdigit),
+            None => all(number, 1..=7, char::is_ascii_digit),
+        },
+        None => {
+            body.starts_with(|c: char| c.is_ascii_alphabetic())
+                && all(body, 1..=32, char::is_ascii_alphanumeric)
+        }
+    }
 }
 
 /// A run's note as Markdown that shows it as written: outside its own code spans (the notes
 /// quote keys and values between backticks), a backslash before each character that would open
-/// a link, an image, raw HTML or emphasis (`[` and `]` in a note that holds `](` or `][`, `<`,
-/// `*`; an underscore inside a word, as in the keys a note names, opens nothing) and before a
-/// backslash or a lone backtick, as
+/// a link, an image, raw HTML, emphasis, a strikethrough or a character reference (`[` and `]` in
+/// a note that holds `](` or `][`, every `<` as in [`plain_text`], `*`, `~`, and `_` and `&`
+/// where [`opens_mark`] says so)
+/// and before a backslash or a lone backtick, as
 /// [`plain_text`] does for free text; a note names files, labels and values as the inputs give
 /// them.
 pub fn prose(text: String) -> String {
@@ -120,8 +195,8 @@ pub fn prose(text: String) -> String {
         if c == '`' && (in_code || opens) {
             in_code = !in_code;
         } else if !in_code
-            && (matches!(c, '\\' | '*' | '`')
-                || (c == '<' && opens_tag(&text, at))
+            && (matches!(c, '\\' | '*' | '`' | '<')
+                || opens_mark(&text, at, c)
                 || (links && matches!(c, '[' | ']')))
         {
             out.push('\\');

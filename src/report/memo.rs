@@ -104,6 +104,7 @@ impl Render for Memo {
         env.add_filter("axis", format::axis_value);
         env.add_filter("plain", format::plain_text);
         env.add_filter("prose", format::prose);
+        env.add_filter("code", format::code_span);
         env.add_template_owned(self.name.clone(), self.source.clone())
             .map_err(|e| self.template_error(&e))?;
         let template = env

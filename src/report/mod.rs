@@ -35,8 +35,8 @@ pub trait Render: Sync {
 }
 
 /// Renders every file `hurdle run` writes into `stage` and returns their names in the order
-/// they are listed: `memo.md`, `result.json`, `peers.csv`, `returns.csv`, `workbook.xlsx`, and
-/// with `figures` the charts and `report.html`. Two strands run side by side: the tables and the
+/// they are listed: `memo.md`, `result.json`, `peers.csv`, `returns.csv`, `rolling.csv`,
+/// `workbook.xlsx`, and with `figures` the charts and `report.html`. Two strands run side by side: the tables and the
 /// workbook; and the charts, then the memo that links them, then the report that converts that
 /// memo (rendered once) and inlines the charts. Each file goes to the stage as soon as it is
 /// rendered, so its flush to disk overlaps the rendering of the others.
@@ -47,10 +47,11 @@ pub fn render_run(
     stage: &staging::Stage,
 ) -> Result<Vec<String>> {
     use rayon::prelude::*;
-    let tables: [&dyn Render; 4] = [
+    let tables: [&dyn Render; 5] = [
         &json::Json,
         &csv::PeersCsv,
         &csv::ReturnsCsv,
+        &rolling::RollingCsv,
         &workbook::Workbook,
     ];
     let (visual, tables) = rayon::join(
@@ -128,6 +129,7 @@ pub fn case_run_outputs_in(dir: &Path) -> Vec<String> {
         "memo.md",
         "peers.csv",
         "returns.csv",
+        "rolling.csv",
         "workbook.xlsx",
         REPORT,
     ]

@@ -1,5 +1,7 @@
-//! `rolling.csv`: each peer's rolling OLS beta, one row per peer and window end, written by
-//! `hurdle rolling`. Numbers in full (shortest round-trip form), like the other CSV files.
+//! `rolling.csv`: each peer's rolling beta under the case's estimator and standard errors, one
+//! row per peer and window end, written by `hurdle run` (from the run's result, so it always
+//! matches the receipt beside it) and by `hurdle rolling`. Numbers in full (shortest round-trip
+//! form), like the other CSV files.
 
 use std::fmt::Write as _;
 

@@ -1,4 +1,6 @@
-//! Distribution functions and summary statistics shared by the estimators.
+//! Distribution functions and summary statistics shared by the estimators, the capital chain
+//! (the aggregations, `location_in`), the valuation's notes (Holm's adjustment) and the
+//! universe's industry table (dispersion, weighted and trimmed means).
 //!
 //! Student t comes from statrs. Its quantile is polished with Newton steps on statrs' CDF,
 //! which is computed from the regularised incomplete beta function, so confidence intervals

@@ -296,16 +296,29 @@ fn failure_message(
 ) -> String {
     match failure {
         EstimateError::TooFewReturns { usable, dropped: d } => {
+            // The stale prices among the missing ones, and the shifted index returns, named
+            // (found by review: periods dropped for a stale price read as missing prices).
+            let stale = |n: usize| match n {
+                0 => String::new(),
+                n => format!(", {n} of them for a price older than beta.max_stale_days"),
+            };
+            let shifted = match d.shifted_market_missing {
+                0 => String::new(),
+                n => format!(", a lagged or led index return missing {n}"),
+            };
             format!(
                 "{usable} usable returns in the window of {} periods from {} to {} (dropped {}: \
-             peer price missing {}, index price missing {}, risk-free missing {}); \
-             beta.min_observations = {}. Prices in {} run from {} to {}.",
+             peer price missing {}{}, index price missing {}{}, risk-free missing {}{shifted}; \
+             a period can count under several); beta.min_observations = {}. Prices in {} run \
+             from {} to {}.",
                 window.period_ends().len(),
                 window.start(),
                 window.end(),
                 d.total,
                 d.asset_missing,
+                stale(d.asset_stale),
                 d.market_missing,
+                stale(d.market_stale),
                 d.risk_free_missing,
                 spec.min_observations,
                 file.path,

@@ -123,8 +123,9 @@ pub struct PeerResult {
     /// Range and trend of the rolling OLS beta (`null` with fewer than two windows).
     pub stability: Option<rolling::Stability>,
     /// Why there is no `stability`: `one-window` (fewer than two windows laid through the
-    /// estimation window), `newey-west-lags` (stated lags need more observations than a window has) or
-    /// `too-few-windows`; `null` when there is a stability record.
+    /// estimation window), `newey-west-lags` (stated lags need more observations than a window has),
+    /// `short-for-estimator` (the lag rule's lags or the shifted index columns need more than a
+    /// window holds) or `too-few-windows`; `null` when there is a stability record.
     pub stability_missing: Option<rolling::NoStability>,
     /// The fitted line α + β·x over the index returns used, with its 95% band (for the chart).
     pub fitted_line: beta::fitted_line::FittedLine,

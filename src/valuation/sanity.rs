@@ -277,20 +277,30 @@ pub fn check_index_returns(
         ));
     }
     if present.len() < min_observations as usize {
+        // The keys that set the window's ends, as the case gives them (found by review: a
+        // window set by beta.window_end was put down to the valuation date).
+        let beta = &case.settings.beta;
+        let end_key = match beta.window_end {
+            Some(_) => "beta.window_end",
+            None => "case.valuation_date",
+        };
+        let start_key = match beta.window_start {
+            Some(_) => "beta.window_start",
+            None => "the window's length (beta.lookback)",
+        };
         // Prices around the whole window but too few returns: too sparse for the frequency.
         let what_to_do = match index.first_date <= start && index.last_date >= end {
-            true => {
-                "the prices cover the window but too sparsely for these returns: a lower \
+            true => "the prices cover the window but too sparsely for these returns: a lower \
                      beta.frequency fits them"
-            }
-            false => {
-                "move case.valuation_date, or shorten beta.lookback (or beta.window_start), \
-                      so that the window lies inside them"
-            }
+                .to_string(),
+            false => format!(
+                "move {end_key}, or shorten beta.lookback (or move beta.window_start), so that \
+                 the window lies inside them"
+            ),
         };
         return fail(format!(
-            "{} of the window's {} periods ({start} to {end}, set by case.valuation_date and the \
-             window's length) have an index return, fewer than beta.min_observations = \
+            "{} of the window's {} periods ({start} to {end}, set by {end_key} and \
+             {start_key}) have an index return, fewer than beta.min_observations = \
              {min_observations}; its prices run from {} to {}: {what_to_do}",
             present.len(),
             returns.len(),

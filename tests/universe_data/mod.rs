@@ -1,5 +1,5 @@
 //! A small seeded universe for the `hurdle universe` tests, written into a temporary folder:
-//! twenty invented securities in five industries over about 440 weekdays with market-wide
+//! twenty invented securities in five industries over 470 weekdays with market-wide
 //! holidays, scattered missing days, a late listing, a thin trader that can still be estimated,
 //! one too thin to estimate, a security without attributes, attributes with missing fields and
 //! a row for a security the panel does not hold. The same prices are written as a long CSV (rows

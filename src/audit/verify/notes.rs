@@ -98,8 +98,26 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 13] =
+const KNOWN_CHANGES: [KnownChange; 14] =
     [
+        // Found by review: a case whose rolling windows were too short for Dimson's or
+        // Scholes–Williams' shifted columns, or for the Newey–West lag rule, was told its
+        // windows had too few observations.
+        KnownChange {
+            version: "0.14.0",
+            kind: "case",
+            paths: &["peers[].stability_missing"],
+            explain: |_, _| {
+                Some(
+                    "hurdle 0.14.0 records `short-for-estimator` where a rolling window, even \
+                     with an observation in every period, is too short for the estimator (its \
+                     shifted index columns or the Newey–West lag rule's lags must stay below a \
+                     quarter of its observations); 0.13.0 recorded `too-few-windows` (README, \
+                     Changelog)"
+                        .to_string(),
+                )
+            },
+        },
         // Found by review: a receipt of 0.11.0 whose index was flat for a stretch failed on
         // its peers' stability with nothing pointing to the change.
         KnownChange {

@@ -117,11 +117,16 @@ impl Canvas {
     }
 }
 
-/// Escapes text for XML content and attribute values.
+/// Escapes text for XML content and attribute values; a character XML 1.0 does not allow (a C0
+/// control other than tab and line ends, U+FFFE, U+FFFF; XML 1.0 §2.2 "Characters") is written
+/// as U+FFFD, so a universe's industry label holding one cannot make a chart unreadable (found
+/// by review: U+FFFE in a name made every chart fail to parse).
 pub fn escape(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
         match c {
+            '\t' | '\n' | '\r' => out.push(c),
+            '\u{0}'..='\u{1f}' | '\u{fffe}' | '\u{ffff}' => out.push('\u{fffd}'),
             '<' => out.push_str("&lt;"),
             '>' => out.push_str("&gt;"),
             '&' => out.push_str("&amp;"),

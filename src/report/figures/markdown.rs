@@ -121,9 +121,26 @@ pub fn anchor(text: &str) -> String {
     id.trim_end_matches('-').to_string()
 }
 
-/// The text without Markdown marks.
+/// The text without Markdown marks: bold and code marks dropped, an escaped character kept as
+/// itself (`A\\B \#` reads `A\B #`).
 fn plain(text: &str) -> String {
-    text.replace("**", "").replace(['`', '\\'], "")
+    let text = text.replace("**", "");
+    let mut out = String::with_capacity(text.len());
+    let mut chars = text.chars();
+    while let Some(c) = chars.next() {
+        match c {
+            '`' => {}
+            '\\' => match chars.clone().next() {
+                Some(next) if next.is_ascii_punctuation() => {
+                    out.push(next);
+                    chars.next();
+                }
+                _ => out.push(c),
+            },
+            other => out.push(other),
+        }
+    }
+    out
 }
 
 fn list(lines: &[&str]) -> String {
@@ -217,10 +234,16 @@ fn cells(line: &str) -> Vec<String> {
     let mut chars = inner.chars().peekable();
     while let Some(c) = chars.next() {
         match c {
-            '\\' if chars.peek() == Some(&'|') => {
-                current.push('|');
-                chars.next();
-            }
+            // An escaped pipe is the cell's; any other escape is kept whole for the cell's
+            // inline text, so `\\|` is an escaped backslash before an escaped pipe.
+            '\\' => match chars.next() {
+                Some('|') => current.push('|'),
+                Some(next) => {
+                    current.push('\\');
+                    current.push(next);
+                }
+                None => current.push('\\'),
+            },
             '|' => out.push(std::mem::take(&mut current).trim().to_string()),
             other => current.push(other),
         }
@@ -237,7 +260,7 @@ fn images_only(text: &str) -> Option<Vec<(String, String)>> {
         let after = rest.strip_prefix("![")?;
         let (alt, after) = after.split_once("](")?;
         let (path, after) = after.split_once(')')?;
-        images.push((alt.to_string(), path.trim().to_string()));
+        images.push((plain(alt), path.trim().to_string()));
         rest = after.trim_start();
     }
     (!images.is_empty()).then_some(images)
@@ -251,7 +274,8 @@ pub fn inline(text: &str) -> String {
     while let Some(c) = rest.chars().next() {
         if let Some(after) = rest.strip_prefix('\\') {
             match after.chars().next() {
-                Some(next) if "\\`*_|[]()#!-<>".contains(next) => {
+                // Any ASCII punctuation may be escaped (CommonMark 0.31, "Backslash escapes").
+                Some(next) if next.is_ascii_punctuation() => {
                     escape_char(&mut out, next);
                     rest = &after[next.len_utf8()..];
                 }
@@ -260,8 +284,10 @@ pub fn inline(text: &str) -> String {
                     rest = after;
                 }
             }
-        } else if let Some(after) = rest.strip_prefix('`') {
-            match after.split_once('`') {
+        } else if rest.starts_with('`') {
+            let fence = rest.len() - rest.trim_start_matches('`').len();
+            let after = &rest[fence..];
+            match code_span_end(after, fence) {
                 Some((code, tail)) => {
                     out.push_str("<code>");
                     escape_into(&mut out, code);
@@ -269,7 +295,7 @@ pub fn inline(text: &str) -> String {
                     rest = tail;
                 }
                 None => {
-                    out.push('`');
+                    out.push_str(&rest[..fence]);
                     rest = after;
                 }
             }
@@ -299,6 +325,26 @@ pub fn inline(text: &str) -> String {
         out.push_str("</strong>");
     }
     out
+}
+
+/// The code of a span opened by `fence` backticks, and what follows its closing run of as many
+/// backticks (CommonMark 0.31, "Code spans": a longer or shorter run is part of the code; one
+/// space inside each end is stripped when both are there and the code is not all spaces).
+fn code_span_end(text: &str, fence: usize) -> Option<(&str, &str)> {
+    let mut from = 0;
+    while let Some(start) = text[from..].find('`').map(|at| from + at) {
+        let run = text[start..].len() - text[start..].trim_start_matches('`').len();
+        if run == fence {
+            let code = &text[..start];
+            let code = match code.len() > 2 && code.starts_with(' ') && code.ends_with(' ') {
+                true if code.trim() != "" => &code[1..code.len() - 1],
+                _ => code,
+            };
+            return Some((code, &text[start + run..]));
+        }
+        from = start + run;
+    }
+    None
 }
 
 /// `[text](url)` or `![alt](url)` at the start of `text`: its HTML and what follows.
@@ -368,9 +414,69 @@ mod tests {
             inline(&escaped),
             "<code>beta.x = [1]</code> for [a](b) *c* d`e &lt;i&gt;"
         );
-        // Brackets that open no link are left as they read.
+        // Brackets that open no link are left as they read; every `<` is escaped (two names
+        // joined could make one tag), and reads back as itself.
         let plain = "peers[].stability and the keys of [target], p < 0.001";
-        assert_eq!(crate::report::format::prose(plain.into()), plain);
+        let escaped = crate::report::format::prose(plain.into());
+        assert_eq!(escaped, plain.replace('<', "\\<"));
+        assert_eq!(inline(&escaped), escape(plain));
+    }
+
+    // CommonMark 0.31, "Emphasis and strong emphasis" (an underscore between two letters
+    // opens nothing) and "Entity and numeric character references", GFM "Strikethrough" (from
+    // memory): the marks a name or a note could hold are escaped, the rest left as written, and
+    // the converter reads every escape back as the character.
+    #[test]
+    fn underscores_tildes_and_references_are_escaped_where_they_would_mark() {
+        use crate::report::format::{plain_text, prose};
+        let cases = [
+            ("_Draft_ of cost_pre_tax", "\\_Draft\\_ of cost_pre_tax"),
+            ("~~old~~ ~5%", "\\~\\~old\\~\\~ \\~5%"),
+            (
+                "R&D &amp; A & B &#38; &#x26; &x",
+                "R&D \\&amp; A & B \\&#38; \\&#x26; &x",
+            ),
+            ("a__b snake_case", "a\\_\\_b snake_case"),
+        ];
+        for (text, escaped) in cases {
+            assert_eq!(plain_text(text.into()), escaped, "{text}");
+            assert_eq!(prose(text.into()), escaped, "{text}");
+            let html = inline(escaped);
+            assert_eq!(html, escape(text), "{text}");
+        }
+        // What would open a block where the text begins a line or a list item (CommonMark
+        // 0.31, "ATX headings", "Block quotes", "List items", "Setext headings", from memory).
+        for (text, escaped) in [
+            ("# 2 Holdings", "\\# 2 Holdings"),
+            ("Case #", "Case \\#"),
+            ("Case ##", "Case \\##"),
+            ("Case#", "Case#"),
+            ("> X", "\\> X"),
+            ("- X", "\\- X"),
+            ("+ X", "\\+ X"),
+            ("== X", "\\== X"),
+            ("1. First", "1\\. First"),
+            ("12) Twelve", "12\\) Twelve"),
+            ("3M Partners", "3M Partners"),
+        ] {
+            assert_eq!(plain_text(text.into()), escaped, "{text}");
+            assert_eq!(inline(escaped), escape(text), "{text}");
+        }
+        // A code span around text that holds backticks (CommonMark 0.31, "Code spans",
+        // examples 329 and 330 from memory: ``` `` foo ` bar `` ``` is `foo ` bar`).
+        for text in ["data/ind`ex.csv", "a``b", "`x`", "plain.csv"] {
+            let span = crate::report::format::code_span(text.into());
+            assert_eq!(
+                inline(&span),
+                format!("<code>{}</code>", escape(text)),
+                "{span}"
+            );
+        }
+        assert_eq!(inline("`` foo ` bar ``"), "<code>foo ` bar</code>");
+        assert_eq!(inline("`a` and ``b``"), "<code>a</code> and <code>b</code>");
+        assert_eq!(inline("an ``unclosed` span"), "an ``unclosed` span");
+        // Inside a note's own code span nothing is escaped.
+        assert_eq!(prose("`_x_ ~y~`".into()), "`_x_ ~y~`");
     }
 
     // GFM §4.10, example 200 (from memory): an escaped pipe in a table cell is the cell's own
@@ -382,6 +488,15 @@ mod tests {
             panic!("a table: {b:?}")
         };
         assert!(html.contains("<td><code>a|b.csv</code></td>"), "{html}");
+        // A name `a\|b` as `plain_text` writes it: an escaped backslash, then an escaped pipe
+        // (GFM §4.10 and CommonMark "Backslash escapes": the cell holds `a\\|b`, shown `a\|b`).
+        let name = crate::report::format::plain_text("a\\|b".into());
+        assert_eq!(name, "a\\\\\\|b");
+        let b = blocks(&format!("| Peer | N |\n|---|---:|\n| {name} | 1 |\n"));
+        let Block::Html(html) = &b[0] else {
+            panic!("a table: {b:?}")
+        };
+        assert!(html.contains("<td>a\\|b</td><td class"), "{html}");
     }
 
     // An interval and an ISO date are kept on one line; a name or a hash may wrap.

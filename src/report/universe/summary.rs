@@ -183,9 +183,9 @@ fn inputs(r: &UniverseResult) -> String {
     )
 }
 
-/// Text in backticks, so that Markdown shows a name or path as written.
+/// Text as a code span, so that Markdown shows a name, path or override as written.
 fn code(text: &str) -> String {
-    format!("`{}`", text.replace('`', "'"))
+    crate::report::format::code_span(text.to_string())
 }
 
 /// The settings that shape the betas beyond the estimator, in words: the returns, the
@@ -275,7 +275,7 @@ fn flags_and_overrides(r: &UniverseResult) -> String {
     let overrides = match r.universe.overrides.as_slice() {
         [] => String::new(),
         list => {
-            let shown: Vec<String> = list.iter().map(|o| format!("`{o}`")).collect();
+            let shown: Vec<String> = list.iter().map(|o| code(o)).collect();
             format!(
                 " Overrides applied to the universe file: {} (result.json records them).",
                 shown.join(", ")
