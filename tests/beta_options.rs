@@ -361,6 +361,29 @@ fn rolling_betas_match_a_fresh_fit_of_every_window() {
     );
     assert_eq!(csv, from_run);
     assert!(csv.starts_with("peer,window_end,beta,std_error,observations\n"));
+    // Into the run's folder: the same settings say nothing more; other settings are noted, as
+    // the file no longer follows the receipt beside it.
+    let into_run = |window: &str| {
+        let output = hurdle(&[
+            "rolling",
+            DEMO_CASE,
+            "--out",
+            dir.path().to_str().unwrap(),
+            "--set",
+            window,
+            "--set",
+            "beta.rolling_step=3",
+        ]);
+        assert!(output.status.success());
+        String::from_utf8_lossy(&output.stdout).into_owned()
+    };
+    assert!(!into_run("beta.rolling_window=24").contains("note:"));
+    assert!(into_run("beta.rolling_window=12")
+        .contains("rolling.csv now follows this command's case, --set values and price files"));
+    run_with(
+        dir.path(),
+        &["beta.rolling_window=24", "beta.rolling_step=3"],
+    );
     // 60 periods, windows of 24 ending every 3rd period from the 24th: 24, 27, …, 60 → 13.
     let brenvale = csv.lines().filter(|l| l.starts_with("Brenvale")).count();
     assert_eq!(brenvale, 13);

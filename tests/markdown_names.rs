@@ -16,7 +16,7 @@ mod common;
 use common::{hurdle, DEMO_CASE};
 
 /// The demo's own values of the keys the hostile run sets, so both memos list as many overrides.
-const DEMO: [&str; 9] = [
+const DEMO: [&str; 11] = [
     "peer.0.name=\"Brenvale Fluid Systems\"",
     "peer.1.name=\"Corrowick Valves\"",
     "peer.2.name=\"Dunmere Hydraulics\"",
@@ -25,20 +25,41 @@ const DEMO: [&str; 9] = [
     "case.title=\"Quillmarsh Pumps: cost of capital for a fair-value measurement (demo)\"",
     "case.subject=\"Quillmarsh Pumps (fictional)\"",
     "market.index.name=\"Demo broad market index (fictional)\"",
+    "case.peer_selection=\"Illustrative: listed makers of industrial pumps, valves and seals with \
+     at least three years of prices (invented demo peers).\"",
+    "market.risk_free_rate_justification=\"Illustrative: the last value of the demo's invented \
+     yield series, at the valuation date.\"",
     // Every peer listed as influential, so the sentence that joins their names is written.
     "uncertainty.influence_threshold=0.000001",
 ];
 
-/// The texts the hostile run gives those keys, in the same order.
-const HOSTILE: [&str; 8] = [
-    "*Brenvale* _Fluid_ ~~Systems~~ A|B",
-    "# 1. Corrowick <img src=x onerror=alert(1) title=",
-    "z> R&amp;D \\ Dunmere",
-    "1. Estwold",
-    "12) Fenhallow &#60;b&#62; a\\|b",
-    "Case *draft* #",
-    "<!-- hidden",
-    "> Index_ <script src=x.js",
+/// The texts the hostile run gives those keys, in the same order, and how each must read in
+/// the rendered memo and report: as written, or for free text over several lines, on one line
+/// (a line of its own could open a heading or a list; found by review), without the white space
+/// around it.
+const HOSTILE: [(&str, &str); 10] = [
+    (
+        "*Brenvale* _Fluid_ ~~Systems~~ A|B",
+        "*Brenvale* _Fluid_ ~~Systems~~ A|B",
+    ),
+    (
+        "# 1. Corrowick <img src=x onerror=alert(1) title=",
+        "# 1. Corrowick <img src=x onerror=alert(1) title=",
+    ),
+    ("z> R&amp;D \\ Dunmere", "z> R&amp;D \\ Dunmere"),
+    ("1. Estwold", "1. Estwold"),
+    (
+        "12) Fenhallow &#60;b&#62; a\\|b",
+        "12) Fenhallow &#60;b&#62; a\\|b",
+    ),
+    ("    Case *draft* #", "Case *draft* #"),
+    ("<!-- hidden", "<!-- hidden"),
+    ("> Index_ <script src=x.js", "> Index_ <script src=x.js"),
+    (
+        "Peers:\n# Injected heading\n\n- item *x* Foo&amp",
+        "Peers: # Injected heading - item *x* Foo&amp",
+    ),
+    ("x\n# H | y\n    code", "x # H | y code"),
 ];
 
 fn run(out: &std::path::Path, sets: &[String]) {
@@ -66,15 +87,17 @@ fn names_with_markdown_marks_read_as_written_in_the_memo_the_report_and_the_char
         .zip(HOSTILE.iter().map(Some).chain([None]))
         .map(|(demo, text)| match text {
             // TOML's basic string: a backslash doubled.
-            Some(text) => {
+            Some((text, _)) => {
                 let key = demo.split_once('=').unwrap().0;
-                format!("{key}=\"{}\"", text.replace('\\', "\\\\"))
+                let toml = text.replace('\\', "\\\\").replace('\n', "\\n");
+                format!("{key}=\"{toml}\"")
             }
             None => demo.to_string(),
         })
         .collect();
     run(&hostile, &hostile_sets);
-    let names = serde_json::to_string(&HOSTILE).unwrap();
+    let shown: Vec<&str> = HOSTILE.iter().map(|(_, shown)| *shown).collect();
+    let names = serde_json::to_string(&shown).unwrap();
     let found: serde_json::Value = common::python_json(
         include_str!("reference/check_markdown.py"),
         &[base.to_str().unwrap(), hostile.to_str().unwrap(), &names],

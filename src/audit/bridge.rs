@@ -285,6 +285,9 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         }
         crate::case::sanity::plain_label("claimed.currency", currency).map_err(fail)?;
     }
+    // The label is a line of the memo's and compare's text (found by review: a label holding
+    // a line break put a heading into the memo).
+    crate::case::sanity::visible_one_line("claimed.label", &claimed.label).map_err(fail)?;
     let debt_to_equity = claimed_debt_to_equity(&claimed).map_err(fail)?;
     if !(0.0..1.0).contains(&claimed.tax_rate) {
         return Err(fail(format!(

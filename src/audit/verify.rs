@@ -222,8 +222,9 @@ impl Verification {
         ) {
             (true, false) => {
                 "; every figure matches, so the changed files' bytes differ but the data read \
-                 from them give the receipt's figures (line ends rewritten or a workbook saved \
-                 again do this): compare the files to settle it"
+                 from them give the receipt's figures (line ends rewritten, a workbook saved \
+                 again, or a value before the window changed, do this): compare the files to \
+                 settle it"
             }
             (true, true) => {
                 "; every figure matches, so what changed in the files (their rows or dates, \
@@ -333,15 +334,21 @@ fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
     if first.starts_with('{') || first.is_empty() || serde_json::from_str::<Value>(text).is_ok() {
         return Ok(());
     }
-    let toml = text.lines().any(|l| {
+    // TOML by its parser, Markdown by a heading or a table row opening it (found by review: a
+    // summary.md holding " = " was called TOML).
+    let opening = text.trim_start();
+    let markdown = opening.starts_with("# ") || opening.starts_with('|');
+    let looks_like_toml = text.lines().any(|l| {
         let l = l.trim();
         l.starts_with('[') && l.ends_with(']') || l.contains(" = ")
     });
-    let what = match (toml, first.contains(',')) {
-        (true, _) => "a TOML file (a case, universe or claimed build-up file?)",
-        (false, true) => "a CSV table, not JSON",
+    let toml = toml::from_str::<toml::Table>(text).is_ok() || (looks_like_toml && !markdown);
+    let what = match (toml, markdown, first.contains(',')) {
+        (true, _, _) => "a TOML file (a case, universe or claimed build-up file?)",
+        (false, true, _) => "a Markdown file (memo.md, summary.md or verification.md?)",
+        (false, false, true) => "a CSV table, not JSON",
         // Anything else is left to the JSON parser, whose message gives the line.
-        (false, false) => return Ok(()),
+        (false, false, false) => return Ok(()),
     };
     Err(format!(
         "{what}, not a receipt: verify reads the result.json that `hurdle run` or `hurdle \
@@ -454,8 +461,9 @@ pub(super) fn settle(
     let sentences_are_figures =
         found.settle_wording(inputs_unchanged && recorded_version == current);
     let case = run.kind == "case";
-    if case {
-        found.mismatches.sort_by_key(|m| m.rank());
+    match case {
+        true => found.mismatches.sort_by_key(|m| m.rank()),
+        false => found.mismatches.sort_by_key(|m| m.universe_rank()),
     }
     let known_changes = found.known_changes(run.kind, &recorded_version, (recorded, recomputed));
     let (receipt_path, receipt_sha256) = run.receipt;
@@ -610,6 +618,24 @@ pub(super) fn locate_case(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Found by review: a universe's summary.md, whose settings line holds " = ", was called a
+    // TOML file. A case (TOML), a summary (Markdown) and a table (CSV) are each named.
+    #[test]
+    fn a_file_given_instead_of_a_receipt_is_named_by_its_kind() {
+        let case = "[case]\ntitle = \"A\"\n";
+        assert!(not_a_receipt(case).unwrap_err().starts_with("a TOML file"));
+        let broken_case = "[case]\ntitle = \n";
+        assert!(not_a_receipt(broken_case)
+            .unwrap_err()
+            .starts_with("a TOML file"));
+        let summary = "# Industry betas\n\nReturn window with beta.lookback = 1y.\n";
+        assert!(not_a_receipt(summary)
+            .unwrap_err()
+            .starts_with("a Markdown file"));
+        let table = "peer,beta\nA,1.0\n";
+        assert!(not_a_receipt(table).unwrap_err().starts_with("a CSV table"));
+    }
 
     #[test]
     fn numbers_agree_relatively() {

@@ -375,25 +375,14 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
 /// found by review: a peer named `Corrowick <b>Valves</b>` put the tags into memo.md's tables,
 /// for any Markdown viewer to render).
 ///
-/// Nor a character that changes how the text around it shows without being seen (a direction
-/// override such as U+202E, which a reader cannot see but which reorders a name; a line or
-/// paragraph separator, U+2028 and U+2029, which editors and Python's `splitlines` break lines
-/// at) or that a chart cannot hold (a Unicode noncharacter such as U+FFFE, which XML refuses;
-/// found by review).
+/// Nor a character that changes how the text around it shows without being seen (an explicit
+/// direction embedding, override or isolate, U+202A–U+202E and U+2066–U+2069: U+202E reorders
+/// a name unseen; the marks U+200E, U+200F and U+061C of right-to-left text are kept), a line or
+/// paragraph separator (U+2028, U+2029, at which editors and Python's `splitlines` break a
+/// line), or a Unicode noncharacter (U+FFFE and U+FFFF, which XML refuses, made every chart
+/// unreadable; the others are not for interchange either; found by review).
 pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), String> {
-    if !crate::io::sanity::is_one_line(text) {
-        return Err(format!(
-            "{key} = {text:?} holds a line break or another control character: names, titles \
-             and labels are one line of text"
-        ));
-    }
-    if let Some(c) = text.chars().find(|&c| unseen_or_unwritable(c)) {
-        return Err(format!(
-            "{key} = {text:?} holds U+{:04X}, a character that reorders or breaks the text around \
-             it without being seen (or that XML cannot hold); write the name without it",
-            c as u32
-        ));
-    }
+    visible_one_line(key, text)?;
     if let Some(mark) = text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
         // A backtick cannot be quoted between backticks (found by review: "holds ```").
         let mark = match mark {
@@ -416,27 +405,40 @@ pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), Stri
     }
 }
 
-/// A title, subject, currency or index name must not have white space around it: one at the
-/// start of a memo's line would turn it into a code block or carry into a heading (found by
-/// review). A peer's name has its own rule ([`distinct_name`]).
-pub(crate) fn trimmed_label(key: &str, text: &str) -> std::result::Result<(), String> {
-    if text.trim() != text {
+/// A label shown on one line (a claim's label too, which may hold any other character): no
+/// line break or other control character, and none of the characters [`unseen_or_unwritable`]
+/// names.
+pub(crate) fn visible_one_line(key: &str, text: &str) -> std::result::Result<(), String> {
+    if !crate::io::sanity::is_one_line(text) {
         return Err(format!(
-            "{key} = \"{text}\" has white space around it, which the memo would carry into its \
-             headings and tables; remove it"
+            "{key} = {text:?} holds a line break or another control character: names, titles \
+             and labels are one line of text"
+        ));
+    }
+    if let Some(c) = text.chars().find(|&c| unseen_or_unwritable(c)) {
+        let what = match c {
+            '\u{2028}' | '\u{2029}' => "a line or paragraph separator, which breaks the line",
+            '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' => {
+                "a direction control, which reorders the text around it without being seen"
+            }
+            _ => "a Unicode noncharacter, which is not for interchange (XML cannot hold U+FFFE)",
+        };
+        return Err(format!(
+            "{key} = {text:?} holds U+{:04X}, {what}; write it without that character",
+            c as u32
         ));
     }
     Ok(())
 }
 
-/// A direction mark or override, a line or paragraph separator, or a Unicode noncharacter
-/// (Unicode 15, §23.2 "Layout Controls" for U+061C, U+200E–U+200F, U+202A–U+202E and
-/// U+2066–U+2069; §23.7 "Noncharacters" for U+FDD0–U+FDEF and the last two code points of each
-/// plane; from memory).
+/// An explicit direction embedding, override or isolate, a line or paragraph separator, or a
+/// Unicode noncharacter (Unicode 15, §23.2 "Layout Controls" for U+202A–U+202E and
+/// U+2066–U+2069, §5.8 for U+2028 and U+2029, §23.7 "Noncharacters" for U+FDD0–U+FDEF and the
+/// last two code points of each plane; from memory).
 fn unseen_or_unwritable(c: char) -> bool {
     matches!(c,
-        '\u{061c}' | '\u{200e}' | '\u{200f}' | '\u{2028}' | '\u{2029}'
-        | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{fdd0}'..='\u{fdef}')
+        '\u{2028}' | '\u{2029}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}'
+        | '\u{fdd0}'..='\u{fdef}')
         || (c as u32 & 0xfffe) == 0xfffe
 }
 

@@ -166,7 +166,6 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
         .map(|c| ("conversion.currency", &c.currency));
     for (key, text) in labels.into_iter().chain(conversion) {
         plain_label(key, text)?;
-        super::sanity::trimmed_label(key, text)?;
     }
     super::sources::validate(case)?;
     rate(

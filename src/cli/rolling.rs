@@ -42,6 +42,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         report::rolling::rolling_csv(&names, &rolling),
     );
     let reads = hurdle::case::files_read(&inputs.case);
+    let earlier = report::earlier::earlier_receipt(&out);
     let written = report::staging::write_outputs(&out, &[file], &reads)?;
     for (name, estimated) in names.iter().zip(&estimates.peers) {
         match &estimated.stability {
@@ -54,19 +55,54 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
                 fixed(s.max, 3),
                 fixed(s.trend_per_year, 3)
             ),
-            None => println!("{name}: {}", no_line(estimated.no_stability)),
+            None => println!(
+                "{name}: {}",
+                no_line(estimated.no_stability, &estimates.spec.estimator)
+            ),
         }
     }
     for path in written {
         println!("  wrote {}", path.display());
+    }
+    if let Some(receipt) = earlier {
+        // `hurdle run` writes rolling.csv with its receipt; this file now follows other
+        // settings, another case or other prices than the receipt beside it (found by review).
+        let prices = std::iter::once(&inputs.index)
+            .chain(inputs.risk_free.as_ref())
+            .chain(&inputs.peers);
+        let same = !receipt.universe
+            && receipt.case_sha256 == inputs.case.sha256
+            && receipt.overrides == inputs.case.overrides
+            && prices
+                .into_iter()
+                .all(|f| receipt.file_hashes.contains(&f.sha256));
+        if !same {
+            println!(
+                "  note: the result.json in {} is {}; rolling.csv now follows this command's \
+                 case, --set values and price files, not that receipt's (hurdle run writes its \
+                 own)",
+                out.display(),
+                match receipt.universe {
+                    true => "a universe's receipt".to_string(),
+                    false => format!("the receipt of {}", receipt.case_file),
+                }
+            );
+        }
     }
     Ok(())
 }
 
 /// Why a peer has no line of rolling betas, as `result.json`'s `stability_missing` records it
 /// (found by review: every peer was said to have fewer than two windows, whatever the cause).
-fn no_line(cause: Option<hurdle::beta::rolling::NoStability>) -> &'static str {
+fn no_line(
+    cause: Option<hurdle::beta::rolling::NoStability>,
+    estimator: &hurdle::beta::spec::EstimatorSpec,
+) -> &'static str {
     use hurdle::beta::rolling::NoStability;
+    use hurdle::beta::BetaMethod;
+    use hurdle::stats::least_squares::StdErrors;
+    let shifted = estimator.method != BetaMethod::Ols;
+    let lags = estimator.std_errors == StdErrors::NeweyWest;
     match cause {
         Some(NoStability::OneWindow) => {
             "one rolling window only (beta.rolling_window and beta.rolling_step leave room for \
@@ -76,11 +112,24 @@ fn no_line(cause: Option<hurdle::beta::rolling::NoStability>) -> &'static str {
             "no rolling window: beta.newey_west_lags needs more than four times as many \
              observations as a window of beta.rolling_window periods holds"
         }
-        Some(NoStability::ShortForEstimator) => {
-            "no rolling window: a window of beta.rolling_window periods is too short for the \
-             estimator (its shifted index columns and Newey–West lags must each stay below a \
-             quarter of a window's observations)"
-        }
+        // Only the constraint the settings impose (found by review: both were named).
+        Some(NoStability::ShortForEstimator) => match (shifted, lags) {
+            (true, true) => {
+                "no rolling window: a window of beta.rolling_window periods is too short for \
+                 the estimator (its shifted index columns and its Newey–West lags must each \
+                 stay below a quarter of a window's observations)"
+            }
+            (true, false) => {
+                "no rolling window: a window of beta.rolling_window periods is too short for \
+                 the estimator (its shifted index columns, beta.method, must stay below a \
+                 quarter of a window's observations)"
+            }
+            (false, _) => {
+                "no rolling window: a window of beta.rolling_window periods is too short for \
+                 the estimator (the Newey–West lag rule's lags must stay below a quarter of a \
+                 window's observations)"
+            }
+        },
         Some(NoStability::TooFewWindows) | None => {
             "fewer than two rolling windows with enough observations"
         }

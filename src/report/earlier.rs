@@ -16,6 +16,12 @@ use std::path::Path;
 pub struct EarlierReceipt {
     /// A universe's receipt (`kind = "universe"`), whose file is `case_file` here.
     pub universe: bool,
+    /// The case file's SHA-256 and the `--set` overrides the run applied (empty for a
+    /// universe's receipt).
+    pub case_sha256: String,
+    pub overrides: Vec<String>,
+    /// The SHA-256 of every input file a case's receipt lists (empty for a universe's).
+    pub file_hashes: Vec<String>,
     pub case_file: String,
     pub title: String,
     pub valuation_date: String,
@@ -32,6 +38,19 @@ pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
     }
     Some(EarlierReceipt {
         universe: receipt["kind"] == "universe",
+        case_sha256: (receipt["case"]["sha256"].as_str())
+            .unwrap_or_default()
+            .to_string(),
+        overrides: (receipt["case"]["overrides"].as_array())
+            .map(|list| {
+                (list.iter())
+                    .filter_map(|o| o.as_str().map(str::to_string))
+                    .collect()
+            })
+            .unwrap_or_default(),
+        file_hashes: (receipt["files"].as_array().into_iter().flatten())
+            .filter_map(|f| f["sha256"].as_str().map(str::to_string))
+            .collect(),
         case_file: (receipt["case"]["file"].as_str())
             .or(receipt["universe"]["file"].as_str())
             .unwrap_or_default()

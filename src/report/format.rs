@@ -67,7 +67,10 @@ pub fn exact_percent(rate: f64) -> String {
 }
 
 /// Text for a Markdown table cell: a `|` in it (a peer's name, a file's path) escaped, so that
-/// it does not split the row; one [`plain_text`] has escaped already is left as it is.
+/// it does not split the row; one [`plain_text`] has escaped already is left as it is. (A code
+/// span holding a backslash before a pipe, a path `a\|b.csv`, cannot be written in a GFM table
+/// cell: the table reads `\\` as one escaped character, so `\\\|` would end the cell; it shows
+/// `a|b.csv`, the row kept whole.)
 pub fn table_cell(text: String) -> String {
     let mut out = String::with_capacity(text.len());
     let mut escaped = false;
@@ -93,29 +96,66 @@ pub fn table_cell(text: String) -> String {
 /// or `<script` opening a line hides the rest of the memo from a viewer (found by review).
 /// Where the text begins a line or a list item (a peer's name in the stability list, a title
 /// in the heading), a first character that would open a block (`#`, `>`, `-`, `+`, `=`, or the
-/// `.` or `)` after leading digits) and a closing run of `#` after a space are escaped too, so
-/// "# 2 Holdings" or "Case #" show as written.
+/// `.` or `)` after leading digits) and a closing run of `#` after a space are escaped too
+/// ([`opens_block`]), so "# 2 Holdings" or "Case #" show as written. White space around the
+/// text, which no reader sees but which would make an indented code block at a line's start,
+/// is left out, and a line break inside it (a justification written over several lines) is
+/// written as a space: a line of its own could open any block (found by review).
 pub fn plain_text(text: String) -> String {
+    let text = one_line(&text);
     let mut out = String::with_capacity(text.len());
-    let digits = text.len() - text.trim_start_matches(|c: char| c.is_ascii_digit()).len();
-    let closing = text.trim_end_matches('#');
-    let closing = match closing.ends_with([' ', '\t']) || closing.is_empty() {
-        true => closing.len(),
-        false => text.len(),
-    };
+    let block = BlockStart::of(&text);
     for (at, c) in text.char_indices() {
-        let opens_block = (at == 0 && matches!(c, '#' | '>' | '-' | '+' | '='))
-            || (at == digits && digits > 0 && matches!(c, '.' | ')'))
-            || at == closing;
         if matches!(c, '\\' | '`' | '[' | ']' | '*' | '<' | '|')
             || opens_mark(&text, at, c)
-            || opens_block
+            || block.opens_at(at, c)
         {
             out.push('\\');
         }
         out.push(c);
     }
     out
+}
+
+/// `text` on one line without white space around it: each line break (LF, CR, NEL, U+2028,
+/// U+2029) and the white space beside it as one space.
+fn one_line(text: &str) -> String {
+    let breaks = ['\n', '\r', '\u{85}', '\u{2028}', '\u{2029}'];
+    match text.contains(breaks) {
+        false => text.trim().to_string(),
+        true => (text.split(breaks))
+            .map(str::trim)
+            .filter(|line| !line.is_empty())
+            .collect::<Vec<_>>()
+            .join(" "),
+    }
+}
+
+/// Where a text that begins a line would open a block (CommonMark 0.31, "ATX headings", "Block
+/// quotes", "List items", "Setext headings", "Thematic breaks", from memory): its first
+/// character when that is `#`, `>`, `-`, `+` or `=`, the `.` or `)` after leading digits, and
+/// the first `#` of a closing run after a space.
+struct BlockStart {
+    digits: usize,
+    closing: usize,
+}
+
+impl BlockStart {
+    fn of(text: &str) -> BlockStart {
+        let digits = text.len() - text.trim_start_matches(|c: char| c.is_ascii_digit()).len();
+        let closing = text.trim_end_matches('#');
+        let closing = match closing.ends_with([' ', '\t']) || closing.is_empty() {
+            true => closing.len(),
+            false => text.len(),
+        };
+        BlockStart { digits, closing }
+    }
+
+    fn opens_at(&self, at: usize, c: char) -> bool {
+        (at == 0 && matches!(c, '#' | '>' | '-' | '+' | '='))
+            || (at == self.digits && self.digits > 0 && matches!(c, '.' | ')'))
+            || at == self.closing
+    }
 }
 
 /// Text as a Markdown code span that holds it whole (a file's path, a column's header, an
@@ -154,10 +194,14 @@ fn opens_mark(text: &str, at: usize, c: char) -> bool {
 
 /// Whether `after`, the text after an `&`, completes a character reference: a name of letters and
 /// digits beginning with a letter, `#` and 1–7 digits, or `#x` and 1–6 hexadecimal digits, then
-/// `;` (any name, not only HTML's: escaping one more `&` shows the same text).
+/// `;` (any name, not only HTML's: escaping one more `&` shows the same text); or could complete
+/// one with the text a template writes after it (`Foo&amp` before "; ", found by review): such
+/// a name or number that runs to the end of the text.
 fn is_character_reference(after: &str) -> bool {
-    let Some((body, _)) = after.split_once(';') else {
-        return false;
+    let body = match after.split_once(';') {
+        Some((body, _)) => body,
+        None if !after.contains(|c: char| !c.is_ascii_alphanumeric() && c != '#') => after,
+        None => return false,
     };
     let all = |text: &str, range: std::ops::RangeInclusive<usize>, digit: fn(&char) -> bool| {
         range.contains(&text.len()) && text.chars().all(|c| digit(&c))
@@ -186,6 +230,11 @@ pub fn prose(text: String) -> String {
     // A bracket opens a link only before `(` or `[` (a one-line note holds no reference
     // definition), so a note that names `peers[]` or `[target]` is left as it reads.
     let links = text.contains("](") || text.contains("][");
+    // A note that begins with a peer's name opens a list item (`- {{ note | prose }}`): its
+    // first characters are escaped as a name's would be (found by review: "1. Brenvale: the
+    // rolling beta moved…" made a list inside the list).
+    let text = one_line(&text);
+    let block = BlockStart::of(&text);
     let mut out = String::with_capacity(text.len());
     let mut in_code = false;
     for (at, c) in text.char_indices() {
@@ -197,6 +246,7 @@ pub fn prose(text: String) -> String {
         } else if !in_code
             && (matches!(c, '\\' | '*' | '`' | '<')
                 || opens_mark(&text, at, c)
+                || block.opens_at(at, c)
                 || (links && matches!(c, '[' | ']')))
         {
             out.push('\\');

@@ -315,6 +315,15 @@ fn security_figures<S: serde::Serializer>(
         beta_std_error: Option<f64>,
         unlevered_beta: Option<f64>,
         not_estimated: Option<&'static str>,
+        // The attributes the unlevering read and the flags, so `verify` names the security
+        // whose figures moved (found by review: a changed cash figure showed only as moved
+        // industry statistics). Since 0.14.0.
+        equity_value: Option<f64>,
+        debt: Option<f64>,
+        cash: Option<f64>,
+        tax_rate: Option<f64>,
+        flags: Vec<&'static str>,
+        excluded_reason: Option<&'a str>,
     }
     serializer.collect_seq(securities.iter().map(|s| Figures {
         security: &s.security,
@@ -324,6 +333,12 @@ fn security_figures<S: serde::Serializer>(
         beta_std_error: s.estimate.as_ref().map(|e| e.beta_std_error),
         unlevered_beta: s.unlevered_beta,
         not_estimated: s.not_estimated.map(NotEstimated::name),
+        equity_value: s.equity_value,
+        debt: s.debt,
+        cash: s.cash,
+        tax_rate: s.tax_rate,
+        flags: s.flags.iter().map(|f| f.name()).collect(),
+        excluded_reason: s.excluded_reason.as_deref(),
     }))
 }
 

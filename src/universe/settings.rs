@@ -273,7 +273,6 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
 /// Range checks a type cannot express; the message names the key and the value.
 pub fn validate(universe: &UniverseFile) -> std::result::Result<(), String> {
     crate::case::sanity::plain_label("universe.title", &universe.universe.title)?;
-    crate::case::sanity::trimmed_label("universe.title", &universe.universe.title)?;
     validate_shared(universe)?;
     let leverage = &universe.leverage;
     if leverage.debt_beta_source == DebtBetaSource::CreditSpread {

@@ -304,12 +304,12 @@ fn failure_message(
             };
             let shifted = match d.shifted_market_missing {
                 0 => String::new(),
-                n => format!(", a lagged or led index return missing {n}"),
+                n => format!(", lagged or led index return missing {n}"),
             };
             format!(
                 "{usable} usable returns in the window of {} periods from {} to {} (dropped {}: \
              peer price missing {}{}, index price missing {}{}, risk-free missing {}{shifted}; \
-             a period can count under several); beta.min_observations = {}. Prices in {} run \
+             a period can count under several reasons); beta.min_observations = {}. Prices in {} run \
              from {} to {}.",
                 window.period_ends().len(),
                 window.start(),

@@ -294,8 +294,11 @@ pub fn check_index_returns(
                      beta.frequency fits them"
                 .to_string(),
             false => format!(
-                "move {end_key}, or shorten beta.lookback (or move beta.window_start), so that \
-                 the window lies inside them"
+                "move {end_key}, or {}, so that the window lies inside them",
+                match beta.window_start {
+                    Some(_) => "move beta.window_start",
+                    None => "shorten beta.lookback",
+                }
             ),
         };
         return fail(format!(
@@ -507,5 +510,6 @@ pub fn check_tolerance(text: &str) -> std::result::Result<f64, String> {
             show(value)
         ));
     }
-    Ok(value)
+    // `-0` is 0 (found by review: printed as "relative tolerance -0").
+    Ok(value.abs())
 }

@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 7] = [
+const ADDED_IN: [(&str, &[&str]); 8] = [
     (
         "0.3.0",
         &[
@@ -123,6 +123,17 @@ const ADDED_IN: [(&str, &[&str]); 7] = [
             "cautions.unstated_inputs",
             "window.rolling_window",
             "window.rolling_min_observations",
+        ],
+    ),
+    (
+        "0.14.0",
+        &[
+            "securities[].equity_value",
+            "securities[].debt",
+            "securities[].cash",
+            "securities[].tax_rate",
+            "securities[].flags",
+            "securities[].excluded_reason",
         ],
     ),
 ];

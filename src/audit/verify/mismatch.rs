@@ -58,6 +58,19 @@ impl Mismatch {
         }
     }
 
+    /// A universe receipt's order: the settings and overrides first, then the securities'
+    /// own figures (what moved), then the industry table and counts they feed (found by
+    /// review: a changed lookback was listed after every industry and security line).
+    pub fn universe_rank(&self) -> u8 {
+        if self.path.starts_with("settings.") || self.path.starts_with("universe.overrides") {
+            0
+        } else if self.path.starts_with("securities") {
+            1
+        } else {
+            2
+        }
+    }
+
     /// Whether the figure is drawn only for a chart ([`CHART_FIGURES`]).
     pub fn is_chart_figure(&self) -> bool {
         CHART_FIGURES.iter().any(|part| self.path.contains(part))

@@ -107,15 +107,24 @@ const KNOWN_CHANGES: [KnownChange; 14] =
             version: "0.14.0",
             kind: "case",
             paths: &["peers[].stability_missing"],
-            explain: |_, _| {
-                Some(
+            // Only where a peer's cause went from the one to the other (found by review: the
+            // line was claimed for any edited cause).
+            explain: |receipt, rerun| {
+                let causes = |v: &Value| {
+                    (v["peers"].as_array().into_iter().flatten())
+                        .map(|p| p["stability_missing"].clone())
+                        .collect::<Vec<_>>()
+                };
+                let moved = (causes(receipt).iter().zip(&causes(rerun)))
+                    .any(|(was, now)| was == "too-few-windows" && now == "short-for-estimator");
+                moved.then(|| {
                     "hurdle 0.14.0 records `short-for-estimator` where a rolling window, even \
                      with an observation in every period, is too short for the estimator (its \
                      shifted index columns or the Newey–West lag rule's lags must stay below a \
                      quarter of its observations); 0.13.0 recorded `too-few-windows` (README, \
                      Changelog)"
-                        .to_string(),
-                )
+                        .to_string()
+                })
             },
         },
         // Found by review: a receipt of 0.11.0 whose index was flat for a stretch failed on

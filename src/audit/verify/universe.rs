@@ -3,9 +3,10 @@
 //! recorded JSON (settings, window, counts, notes, the whole industry table) is compared with the
 //! rerun's, numbers within the tolerance, as [`super::verify`] (the parent module) does for a case.
 //!
-//! The per-security rows are in `securities.csv`, not in the receipt; they enter the comparison
-//! through the industry table's counts and statistics, which any change to a security's beta,
-//! D/E or flags moves.
+//! The receipt's `securities[]` records each security's id, industry, observations, beta,
+//! standard error, unlevered beta and reason not estimated (since 0.4.0); the other per-security
+//! columns of `securities.csv` (D/E, flags, the beta of the operations) enter the comparison
+//! through the industry table's counts and statistics, which a change to them moves.
 
 use std::path::Path;
 
@@ -85,9 +86,11 @@ fn file_checks(recorded: &Value, rerun: &UniverseResult) -> Vec<FileCheck> {
         .iter()
         .filter_map(|(role, now)| {
             let file = &recorded["files"][role];
-            let was = file["sha256"].as_str().map(|sha256| {
-                let path = file["path"].as_str().unwrap_or("").to_string();
-                (path, sha256.to_string())
+            // A file the receipt names without its hash (a null or missing `sha256`) is
+            // unrecorded, as an empty hash is, not new (found by review).
+            let was = file["path"].as_str().map(|path| {
+                let sha256 = file["sha256"].as_str().unwrap_or_default();
+                (path.to_string(), sha256.to_string())
             });
             let now = now.clone();
             let mut check = (was.is_some() || now.is_some())

@@ -434,7 +434,7 @@ mod tests {
             ("~~old~~ ~5%", "\\~\\~old\\~\\~ \\~5%"),
             (
                 "R&D &amp; A & B &#38; &#x26; &x",
-                "R&D \\&amp; A & B \\&#38; \\&#x26; &x",
+                "R&D \\&amp; A & B \\&#38; \\&#x26; \\&x",
             ),
             ("a__b snake_case", "a\\_\\_b snake_case"),
         ];
@@ -475,6 +475,18 @@ mod tests {
         assert_eq!(inline("`` foo ` bar ``"), "<code>foo ` bar</code>");
         assert_eq!(inline("`a` and ``b``"), "<code>a</code> and <code>b</code>");
         assert_eq!(inline("an ``unclosed` span"), "an ``unclosed` span");
+        // A note that opens a list item with a peer's name escapes its block opener as the
+        // name would (found by review); a reference a template's next text could complete is
+        // escaped at the text's end.
+        assert_eq!(
+            prose("1. Brenvale: the rolling beta moved".into()),
+            "1\\. Brenvale: the rolling beta moved"
+        );
+        assert_eq!(prose("# Brenvale".into()), "\\# Brenvale");
+        assert_eq!(plain_text("Foo&amp".into()), "Foo\\&amp");
+        assert_eq!(plain_text("R&D Holdings".into()), "R&D Holdings");
+        // Lines and surrounding white space: one line, no indentation to make a code block.
+        assert_eq!(plain_text("  x\n# H\r\n\n- y  ".into()), "x # H - y");
         // Inside a note's own code span nothing is escaped.
         assert_eq!(prose("`_x_ ~y~`".into()), "`_x_ ~y~`");
     }
@@ -497,6 +509,19 @@ mod tests {
             panic!("a table: {b:?}")
         };
         assert!(html.contains("<td>a\\|b</td><td class"), "{html}");
+        // A path holding `\|` in a code span keeps its row whole (its backslash cannot be shown
+        // in a GFM table; see `table_cell`).
+        let path = crate::report::format::table_cell(crate::report::format::code_span(
+            "data/a\\|b.csv".into(),
+        ));
+        let b = blocks(&format!("| File | N |\n|---|---:|\n| {path} | 1 |\n"));
+        let Block::Html(html) = &b[0] else {
+            panic!("a table: {b:?}")
+        };
+        assert!(
+            html.contains("<td><code>data/a|b.csv</code></td><td class"),
+            "{html}"
+        );
     }
 
     // An interval and an ISO date are kept on one line; a name or a hash may wrap.

@@ -298,10 +298,12 @@ fn flags_and_overrides(r: &UniverseResult) -> String {
 pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> String {
     let s = &r.settings;
     let mut out = String::new();
+    // The user's title shown as written (found by review: `*draft*` was emphasised and a
+    // closing ` #` dropped).
     let title = if r.universe.title.is_empty() {
-        "Industry betas"
+        "Industry betas".to_string()
     } else {
-        &r.universe.title
+        plain_text(r.universe.title.clone())
     };
     let _ = writeln!(out, "# {title}\n");
     let _ = writeln!(
@@ -394,7 +396,7 @@ fn chart_links(out: &mut String, r: &UniverseResult, charts: &[super::chart::Cha
         }
     );
     for c in charts {
-        let _ = writeln!(out, "![{}]({})\n", c.title, c.file_name);
+        let _ = writeln!(out, "![{}]({})\n", plain_text(c.title.clone()), c.file_name);
     }
 }
 
