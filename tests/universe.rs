@@ -1502,6 +1502,54 @@ fn an_id_or_an_industry_with_a_line_break_is_refused() {
     );
 }
 
+// OWASP's advice on CSV injection (from memory): a cell beginning with `=`, `+`, `-` or `@` is
+// read by a spreadsheet as a formula. A panel's id or an attributes row's industry so written
+// would reach securities.csv and industries.csv as it came (found by review: `=1+1`), so it is
+// refused naming the line and the value; a placeholder label of dashes alone stays.
+#[test]
+fn an_id_or_an_industry_a_spreadsheet_would_run_is_refused() {
+    refused(
+        |dir| {
+            let cells = panel_line(dir, 9);
+            replace_line(
+                &dir.join("prices-long.csv"),
+                9,
+                &format!("{},=2+3,{}", cells[0], cells[2]),
+            );
+        },
+        &[],
+        &[
+            "prices-long.csv, line 9: `security` = \"=2+3\" begins with `=`",
+            "would run it as a formula",
+        ],
+    );
+    refused(
+        |dir| {
+            let cells = attributes_row(dir, 3);
+            replace_line(
+                &dir.join("attributes.csv"),
+                3,
+                &format!("{},@SUM(1),{}", cells[0], cells[2..].join(",")),
+            );
+        },
+        &[],
+        &["attributes.csv, line 3: `industry` = \"@SUM(1)\" begins with `@`"],
+    );
+    let setup = Setup::new();
+    let cells = attributes_row(&setup.dir(), 3);
+    replace_line(
+        &setup.dir().join("attributes.csv"),
+        3,
+        &format!("{},--,{}", cells[0], cells[2..].join(",")),
+    );
+    let output = setup.universe("out", &[]);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+}
+
 #[test]
 fn an_unparseable_date_is_refused() {
     refused(

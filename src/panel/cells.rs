@@ -215,7 +215,11 @@ fn push_chunk(
             // sees it: any Unicode white space, a no-break space too.
             let padded = |c: Option<char>| c.is_none_or(char::is_whitespace);
             let (first, last) = (security.chars().next(), security.chars().next_back());
-            if padded(first) || padded(last) || !crate::io::sanity::is_one_line(security) {
+            // An id a spreadsheet would read as a formula goes to the checked path, which
+            // names it.
+            let formula = matches!(first, Some('=' | '+' | '@' | '-'));
+            if padded(first) || padded(last) || formula || !crate::io::sanity::is_one_line(security)
+            {
                 return false;
             }
             let id = rows.dictionary.id(security);

@@ -408,19 +408,40 @@ pub(crate) fn hex(bytes: &[u8]) -> String {
 
 /// An id or a label must be one line of text: a line break or another control character (a
 /// quoted cell may hold one) is refused, as it would split the summary's table and match no
-/// other file's id. `what` names the column (or says where the label stands).
+/// other file's id. Nor may it begin as a spreadsheet formula ([`opens_a_formula`]): opened in
+/// a spreadsheet, securities.csv or industries.csv would run it (found by review: an industry
+/// `=1+1` was written as it came). `what` names the column (or says where the label stands).
 pub(crate) fn check_label(
     label: &str,
     what: impl FnOnce() -> String,
 ) -> std::result::Result<(), String> {
-    if crate::io::sanity::is_one_line(label) {
-        return Ok(());
+    if !crate::io::sanity::is_one_line(label) {
+        return Err(format!(
+            "{} = \"{label}\" holds a line break or another control character: ids and labels \
+             are one line of text",
+            what()
+        ));
     }
-    Err(format!(
-        "{} = \"{label}\" holds a line break or another control character: ids and labels are \
-         one line of text",
-        what()
-    ))
+    match opens_a_formula(label) {
+        false => Ok(()),
+        true => Err(format!(
+            "{} = \"{label}\" begins with `{}`: a spreadsheet opening securities.csv or \
+             industries.csv would run it as a formula; write it otherwise in the file",
+            what(),
+            label.chars().next().unwrap_or_default()
+        )),
+    }
+}
+
+/// Whether a cell would be read as a formula by a spreadsheet: it begins with `=`, `+` or `@`,
+/// or with `-` and is not dashes alone (the characters OWASP's advice on CSV injection names; a
+/// placeholder label `-` or `--` stays, and is noted as a placeholder).
+pub(crate) fn opens_a_formula(text: &str) -> bool {
+    match text.chars().next() {
+        Some('=' | '+' | '@') => true,
+        Some('-') => !text.chars().all(|c| c == '-'),
+        _ => false,
+    }
 }
 
 /// A wide panel's security columns as (column name, dictionary id): the id is the name without
