@@ -629,10 +629,42 @@ fn unseen_characters_in_labels_are_refused() {
             "market.index.name=\"Index \\uFFFE\"",
             "market.index.name = \"Index \\u{fffe}\" holds U+FFFE",
         ),
+        // Found by review of the CSV outputs: a price file whose path a spreadsheet runs as a
+        // formula (peers.csv lists it), a zero-width space making two names look alike, two
+        // names that differ only in how an accent is encoded (NFC makes them one; Unicode's
+        // canonical composition, from memory), and a name too long for a workbook cell (32,767
+        // characters, Excel's specification limits, from memory) failed late or passed.
+        (
+            "peer.1.prices=\"=1+1\"",
+            "peer.1.prices (peer \"Corrowick Valves\") = \"=1+1\" begins with `=`",
+        ),
+        (
+            "peer.1.name=\"Brenvale Fluid Systems\\u200B\"",
+            "holds U+200B, an invisible character",
+        ),
     ] {
         let stderr = case.refuse(&["--set", set]);
         assert_mentions(&stderr, &[expected]);
     }
+    let stderr = case.refuse(&[
+        "--set",
+        "peer.0.name=\"\\u00e9cole\"",
+        "--set",
+        "peer.1.name=\"e\\u0301cole\"",
+    ]);
+    assert_mentions(
+        &stderr,
+        &[
+            "repeats peer.0.name",
+            "accented letters are encoded otherwise",
+        ],
+    );
+    let long = format!("peer.1.name=\"{}\"", "A".repeat(1001));
+    let stderr = case.refuse(&["--set", &long]);
+    assert_mentions(
+        &stderr,
+        &["peer.1.name is 1001 characters long", "at most 1000"],
+    );
     for kept in [
         "peer.1.name=\"Corrowick \\u200D Valves\"",
         "peer.1.name=\"Corrowick \\u05D0\\u200F\"",

@@ -383,6 +383,15 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
 /// unreadable; the others are not for interchange either; found by review).
 pub(crate) fn plain_label(key: &str, text: &str) -> std::result::Result<(), String> {
     visible_one_line(key, text)?;
+    // A workbook cell holds 32,767 characters (found by review: a longer name failed only when
+    // the workbook was written, naming no peer); a name has no use for a thousand.
+    let length = text.chars().count();
+    if length > MAX_LABEL_CHARACTERS {
+        return Err(format!(
+            "{key} is {length} characters long; names, titles and labels are at most \
+             {MAX_LABEL_CHARACTERS}"
+        ));
+    }
     if let Some(mark) = text.chars().find(|c| matches!(c, '`' | '[' | ']')) {
         // A backtick cannot be quoted between backticks (found by review: "holds ```").
         let mark = match mark {
@@ -421,6 +430,10 @@ pub(crate) fn visible_one_line(key: &str, text: &str) -> std::result::Result<(),
             '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' => {
                 "a direction control, which reorders the text around it without being seen"
             }
+            '\u{200b}' | '\u{2060}' | '\u{feff}' | '\u{ad}' => {
+                "an invisible character (a zero-width space, word joiner, byte-order mark or soft \
+                 hyphen), which makes two names look alike"
+            }
             _ => "a Unicode noncharacter, which is not for interchange (XML cannot hold U+FFFE)",
         };
         return Err(format!(
@@ -431,16 +444,22 @@ pub(crate) fn visible_one_line(key: &str, text: &str) -> std::result::Result<(),
     Ok(())
 }
 
-/// An explicit direction embedding, override or isolate, a line or paragraph separator, or a
-/// Unicode noncharacter (Unicode 15, §23.2 "Layout Controls" for U+202A–U+202E and
-/// U+2066–U+2069, §5.8 for U+2028 and U+2029, §23.7 "Noncharacters" for U+FDD0–U+FDEF and the
-/// last two code points of each plane; from memory).
+/// An explicit direction embedding, override or isolate, a line or paragraph separator, an
+/// invisible character that is no part of a script's writing (zero-width space U+200B, word
+/// joiner U+2060, byte-order mark U+FEFF, soft hyphen U+00AD; the joiners U+200C and U+200D,
+/// which Persian and emoji need, are kept), or a Unicode noncharacter (Unicode 15, §23.2 "Layout
+/// Controls" for U+202A–U+202E and U+2066–U+2069, §5.8 for U+2028 and U+2029, §23.7
+/// "Noncharacters" for U+FDD0–U+FDEF and the last two code points of each plane; from
+/// memory).
 fn unseen_or_unwritable(c: char) -> bool {
     matches!(c,
         '\u{2028}' | '\u{2029}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}'
-        | '\u{fdd0}'..='\u{fdef}')
+        | '\u{fdd0}'..='\u{fdef}' | '\u{200b}' | '\u{2060}' | '\u{feff}' | '\u{ad}')
         || (c as u32 & 0xfffe) == 0xfffe
 }
+
+/// The longest name, title or label, in characters.
+const MAX_LABEL_CHARACTERS: usize = 1000;
 
 /// The first `<…>` in `text` that can open raw HTML or an autolink (CommonMark 0.31, "Raw HTML"
 /// and "Autolinks", from memory): a tag, a comment or a declaration, and a web address, begin
@@ -476,14 +495,16 @@ pub(crate) fn distinct_name<'a>(
              no override naming the peer (`peer.NAME.…`) can match; remove it"
         ));
     }
-    let folded = name.to_lowercase();
-    match earlier
-        .enumerate()
-        .find(|(_, e)| e.to_lowercase() == folded)
-    {
+    // Capitals aside, and accented letters however they are encoded (é as one character or as
+    // e and a combining accent, which read the same; Unicode's canonical composition, NFC;
+    // found by review).
+    use unicode_normalization::UnicodeNormalization;
+    let fold = |text: &str| text.nfc().collect::<String>().to_lowercase();
+    let folded = fold(name);
+    match earlier.enumerate().find(|(_, e)| fold(e) == folded) {
         Some((j, other)) => Err(format!(
             "peer.{i}.name = \"{name}\" repeats peer.{j}.name (\"{other}\"); peer names must be \
-             unique, also when capitals are ignored"
+             unique, also when capitals are ignored and accented letters are encoded otherwise"
         )),
         None => Ok(()),
     }
@@ -494,16 +515,31 @@ pub(crate) fn distinct_name<'a>(
 /// characters OWASP's advice on CSV injection names): opened in a spreadsheet, peers.csv or
 /// returns.csv would run it.
 pub(crate) fn not_a_formula(key: &str, text: &str) -> std::result::Result<(), String> {
-    match text
-        .chars()
-        .next()
-        .filter(|c| matches!(c, '=' | '+' | '-' | '@'))
-    {
+    match formula_start(text) {
         None => Ok(()),
         Some(first) => Err(format!(
             "{key} = \"{text}\" begins with `{first}`: a spreadsheet opening peers.csv or \
              returns.csv would run it as a formula; begin it otherwise (a peer's column in a \
              wide table is chosen by `column`, not by its name)"
+        )),
+    }
+}
+
+/// The first character of `text` when it makes a spreadsheet read the cell as a formula.
+fn formula_start(text: &str) -> Option<char> {
+    (text.chars().next()).filter(|c| matches!(c, '=' | '+' | '-' | '@'))
+}
+
+/// A price file's path as the case writes it, which `peers.csv` lists in `prices_file`, may
+/// not begin as a spreadsheet formula either (found by review: a file named `=1+1` ran as one
+/// when peers.csv was opened); `./` before it keeps the file.
+pub(crate) fn path_not_a_formula(key: &str, path: &str) -> std::result::Result<(), String> {
+    match formula_start(path) {
+        None => Ok(()),
+        Some(first) => Err(format!(
+            "{key} = \"{path}\" begins with `{first}`: peers.csv lists each peer's price file, \
+             and a spreadsheet opening it would run this path as a formula; write it as \
+             \"./{path}\" or rename the file"
         )),
     }
 }

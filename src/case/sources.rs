@@ -105,6 +105,7 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         if table.file.trim().is_empty() {
             return Err(format!("sources.{name}.file is empty"));
         }
+        super::sanity::path_not_a_formula(&format!("sources.{name}.file"), &table.file)?;
         for (field, value) in [("sheet", &table.sheet), ("date_column", &table.date_column)] {
             if value.as_deref().is_some_and(|v| v.trim().is_empty()) {
                 return Err(format!(

@@ -372,6 +372,7 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
             plain_label(&key("exclude"), reason)?;
             super::sanity::not_a_formula(&format!("peer.{i}.exclude"), reason)?;
         }
+        super::sanity::path_not_a_formula(&key("prices"), &peer.prices)?;
         let earlier = case.peers[..i].iter().map(|p| p.name.as_str());
         super::sanity::distinct_name(i, &peer.name, earlier)?;
         if !(peer.equity_value.is_finite() && peer.equity_value > 0.0) {

@@ -172,9 +172,12 @@ impl Render for ReturnsCsv {
     }
 }
 
-/// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180).
+/// Quotes a text field when it holds a comma, a quote or a line break (RFC 4180), or a
+/// semicolon, which a spreadsheet set to read `;`-separated files (where the decimal mark is a
+/// comma) would split the row at (found by review: a name `Alpha; Beta` and the flags
+/// `a;b` moved every later column).
 pub(crate) fn field(text: &str) -> String {
-    if text.contains([',', '"', '\n', '\r']) {
+    if text.contains([',', '"', '\n', '\r', ';']) {
         format!("\"{}\"", text.replace('"', "\"\""))
     } else {
         text.to_string()
@@ -262,6 +265,11 @@ mod tests {
         assert_eq!(field("Plain"), "Plain");
         assert_eq!(field("A, B"), "\"A, B\"");
         assert_eq!(field("say \"x\""), "\"say \"\"x\"\"\"");
+        // A semicolon too, which RFC 4180 allows inside quotes like any character.
+        assert_eq!(
+            field("too_few_observations;low_r_squared"),
+            "\"too_few_observations;low_r_squared\""
+        );
     }
 
     // Each form reads back to the same double (Rust's own parser, which follows IEEE 754

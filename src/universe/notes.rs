@@ -521,14 +521,23 @@ fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bo
 /// quote is quoted, so the list reads as the ids it holds (found by review: `SEC,0031` read as
 /// two ids).
 pub fn first_ids(ids: &[&str]) -> String {
-    let more = if ids.len() > 10 { ", …" } else { "" };
-    let shown: Vec<String> = (ids[..ids.len().min(10)].iter())
-        .map(|id| match id.contains([',', '"']) {
-            true => format!("{id:?}"),
-            false => id.to_string(),
-        })
-        .collect();
-    format!("{}{more}", shown.join(", "))
+    let shown: Vec<String> = ids.iter().map(|id| shown_id(id)).collect();
+    first_of(&shown)
+}
+
+/// An id as a note shows it: quoted when it holds a comma or a quote, which would blur a list.
+pub fn shown_id(id: &str) -> String {
+    match id.contains([',', '"']) {
+        true => format!("{id:?}"),
+        false => id.to_string(),
+    }
+}
+
+/// The first ten of `texts` (already shown as a note shows them), with "…" after them when
+/// there are more.
+pub fn first_of(texts: &[String]) -> String {
+    let more = if texts.len() > 10 { ", …" } else { "" };
+    format!("{}{more}", texts[..texts.len().min(10)].join(", "))
 }
 
 /// A note on panel ids that differ only in how their accented letters are encoded (é as one

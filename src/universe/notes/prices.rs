@@ -70,26 +70,28 @@ pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
     let mut shown: Vec<String> = (clusters.iter())
         .map(|cluster| {
             let (first, others) = (cluster[0].0, &cluster[1..]);
-            let other = |(id, factor): &(usize, f64)| match (factor - 1.0).abs() <= 1e-4 {
-                true => ids[*id].clone(),
+            // Each id quoted on its own when it needs it, not the composed group (found by
+            // review: a group was quoted whole, its ids' quotes escaped).
+            let id = |k: usize| super::shown_id(&ids[k]);
+            let other = |(k, factor): &(usize, f64)| match (factor - 1.0).abs() <= 1e-4 {
+                true => id(*k),
                 false => format!(
                     "{} (× {})",
-                    ids[*id],
+                    id(*k),
                     crate::case::sanity::significant(*factor)
                 ),
             };
             match others.len() {
-                1 => format!("{} and {}", ids[first], other(&others[0])),
+                1 => format!("{} and {}", id(first), other(&others[0])),
                 n => format!(
                     "{} and {n} others ({} and more)",
-                    ids[first],
+                    id(first),
                     other(&others[0])
                 ),
             }
         })
         .collect();
     shown.sort();
-    let shown: Vec<&str> = shown.iter().map(String::as_str).collect();
     (!clusters.is_empty()).then(|| {
         format!(
             "Check: {} of securities with the same returns, one's prices the other's (or their \
@@ -99,7 +101,7 @@ pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
                 1 => "1 group".to_string(),
                 n => format!("{n} groups"),
             },
-            first_ids(&shown)
+            super::first_of(&shown)
         )
     })
 }
