@@ -657,7 +657,16 @@ fn unseen_characters_in_labels_are_refused() {
         &[
             "repeats peer.0.name",
             "accented letters are encoded otherwise",
+            // Each written out, as the two look the same.
+            "\"\\u{e9}cole\"",
+            "\"e\\u{301}cole\"",
         ],
+    );
+    let long = format!("premiums.size_justification=\"{}\"", "A".repeat(30_001));
+    let stderr = case.refuse(&["--set", &long]);
+    assert_mentions(
+        &stderr,
+        &["premiums.size_justification is 30001 characters long"],
     );
     let long = format!("peer.1.name=\"{}\"", "A".repeat(1001));
     let stderr = case.refuse(&["--set", &long]);

@@ -1535,6 +1535,20 @@ fn an_id_or_an_industry_a_spreadsheet_would_run_is_refused() {
         &[],
         &["attributes.csv, line 3: `industry` = \"@SUM(1)\" begins with `@`"],
     );
+    // A wide header's name, also after the space a header may put after its comma (found by
+    // review: ` =1+1` passed, as the id is the name trimmed).
+    refused(
+        |dir| {
+            let path = dir.join("prices-wide.csv");
+            let text = fs::read_to_string(&path).unwrap();
+            let (header, rest) = text.split_once('\n').unwrap();
+            let (date, first) = header.split_once(',').unwrap();
+            let (_, others) = first.split_once(',').unwrap();
+            fs::write(&path, format!("{date}, =1+1,{others}\n{rest}")).unwrap();
+        },
+        &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+        &["the header's column name = \"=1+1\" begins with `=`"],
+    );
     let setup = Setup::new();
     let cells = attributes_row(&setup.dir(), 3);
     replace_line(

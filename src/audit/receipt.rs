@@ -1,4 +1,5 @@
-//! Reading a receipt's JSON strictly: an object that names one key twice is refused. JSON
+//! Reading a receipt's JSON strictly (and naming a file given instead that is plainly a case,
+//! a Markdown file or a table): an object that names one key twice is refused. JSON
 //! readers disagree on such an object (serde_json keeps the last value, a person reading the
 //! file sees the first), so a receipt edited that way could verify while showing another
 //! figure. Numbers are read exactly as `serde_json::Value` reads them (the same visitor calls).
@@ -80,9 +81,73 @@ pub fn parse(text: &str) -> serde_json::Result<Value> {
     serde_json::from_str::<Strict>(text).map(|strict| strict.0)
 }
 
+/// A file given as a receipt that is plainly something else: a case file or a claimed build-up
+/// (TOML tables and keys), or a CSV table (commas on its first line); named as such, with what
+/// to give instead.
+pub(crate) fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
+    let first = (text.lines().map(str::trim))
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    // JSON of any shape is left to the receipt's own checks ("has no schema_version").
+    if first.starts_with('{') || first.is_empty() || serde_json::from_str::<Value>(text).is_ok() {
+        return Ok(());
+    }
+    // TOML by its parser, Markdown by a heading or a table row opening it (found by review: a
+    // summary.md holding " = " was called TOML).
+    // A TOML table header (`[case]`, `[[peer]]`) marks a case even when the file opens with a
+    // `# ` comment, as the demo's does, and does not parse (found by review).
+    let table_header = text.lines().any(|l| {
+        let l = l.trim();
+        let name = l.trim_start_matches('[').trim_end_matches(']');
+        l.starts_with('[')
+            && l.ends_with(']')
+            && !name.is_empty()
+            && name
+                .chars()
+                .all(|c| c.is_ascii_alphanumeric() || "_.-\"".contains(c))
+    });
+    let opening = text.trim_start();
+    let markdown = !table_header && (opening.starts_with("# ") || opening.starts_with('|'));
+    let looks_like_toml = table_header || text.lines().any(|l| l.contains(" = "));
+    let toml = toml::from_str::<toml::Table>(text).is_ok() || (looks_like_toml && !markdown);
+    let what = match (toml, markdown, first.contains(',')) {
+        (true, _, _) => "a TOML file (a case, universe or claimed build-up file?)",
+        (false, true, _) => "a Markdown file (memo.md, summary.md or verification.md?)",
+        (false, false, true) => "a CSV table, not JSON",
+        // Anything else is left to the JSON parser, whose message gives the line.
+        (false, false, false) => return Ok(()),
+    };
+    Err(format!(
+        "{what}, not a receipt: verify reads the result.json that `hurdle run` or `hurdle \
+         universe` wrote (output/result.json beside the case), and finds the case from it"
+    ))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Found by review: a universe's summary.md, whose settings line holds " = ", was called a
+    // TOML file. A case (TOML), a summary (Markdown) and a table (CSV) are each named.
+    #[test]
+    fn a_file_given_instead_of_a_receipt_is_named_by_its_kind() {
+        let case = "[case]\ntitle = \"A\"\n";
+        assert!(not_a_receipt(case).unwrap_err().starts_with("a TOML file"));
+        let broken_case = "[case]\ntitle = \n";
+        assert!(not_a_receipt(broken_case)
+            .unwrap_err()
+            .starts_with("a TOML file"));
+        let commented = "# A case\n[case]\ntitle = \"x\n";
+        assert!(not_a_receipt(commented)
+            .unwrap_err()
+            .starts_with("a TOML file"));
+        let summary = "# Industry betas\n\nReturn window with beta.lookback = 1y.\n";
+        assert!(not_a_receipt(summary)
+            .unwrap_err()
+            .starts_with("a Markdown file"));
+        let table = "peer,beta\nA,1.0\n";
+        assert!(not_a_receipt(table).unwrap_err().starts_with("a CSV table"));
+    }
 
     // The same value serde_json's own reader gives (RFC 8259 text, worked by hand), and a
     // repeated key refused with its name.

@@ -323,45 +323,12 @@ impl Verification {
     }
 }
 
-/// A file given as a receipt that is plainly something else: a case file or a claimed build-up
-/// (TOML tables and keys), or a CSV table (commas on its first line); named as such, with what
-/// to give instead.
-fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
-    let first = (text.lines().map(str::trim))
-        .find(|l| !l.is_empty() && !l.starts_with('#'))
-        .unwrap_or("");
-    // JSON of any shape is left to the receipt's own checks ("has no schema_version").
-    if first.starts_with('{') || first.is_empty() || serde_json::from_str::<Value>(text).is_ok() {
-        return Ok(());
-    }
-    // TOML by its parser, Markdown by a heading or a table row opening it (found by review: a
-    // summary.md holding " = " was called TOML).
-    let opening = text.trim_start();
-    let markdown = opening.starts_with("# ") || opening.starts_with('|');
-    let looks_like_toml = text.lines().any(|l| {
-        let l = l.trim();
-        l.starts_with('[') && l.ends_with(']') || l.contains(" = ")
-    });
-    let toml = toml::from_str::<toml::Table>(text).is_ok() || (looks_like_toml && !markdown);
-    let what = match (toml, markdown, first.contains(',')) {
-        (true, _, _) => "a TOML file (a case, universe or claimed build-up file?)",
-        (false, true, _) => "a Markdown file (memo.md, summary.md or verification.md?)",
-        (false, false, true) => "a CSV table, not JSON",
-        // Anything else is left to the JSON parser, whose message gives the line.
-        (false, false, false) => return Ok(()),
-    };
-    Err(format!(
-        "{what}, not a receipt: verify reads the result.json that `hurdle run` or `hurdle \
-         universe` wrote (output/result.json beside the case), and finds the case from it"
-    ))
-}
-
 /// The receipt's JSON: a byte-order mark before it dropped (some editors write one), a case or
 /// table given instead named ([`not_a_receipt`]), and a key named twice in an object refused
 /// (readers disagree on which value counts).
 fn parse_receipt(receipt: &str) -> std::result::Result<Value, String> {
     let receipt = receipt.strip_prefix('\u{feff}').unwrap_or(receipt);
-    not_a_receipt(receipt)?;
+    super::receipt::not_a_receipt(receipt)?;
     super::receipt::parse(receipt).map_err(|e| match e.is_data() {
         true => {
             format!("{e}: a receipt names each key once, so that every reader sees the same figure")
@@ -618,24 +585,6 @@ pub(super) fn locate_case(
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    // Found by review: a universe's summary.md, whose settings line holds " = ", was called a
-    // TOML file. A case (TOML), a summary (Markdown) and a table (CSV) are each named.
-    #[test]
-    fn a_file_given_instead_of_a_receipt_is_named_by_its_kind() {
-        let case = "[case]\ntitle = \"A\"\n";
-        assert!(not_a_receipt(case).unwrap_err().starts_with("a TOML file"));
-        let broken_case = "[case]\ntitle = \n";
-        assert!(not_a_receipt(broken_case)
-            .unwrap_err()
-            .starts_with("a TOML file"));
-        let summary = "# Industry betas\n\nReturn window with beta.lookback = 1y.\n";
-        assert!(not_a_receipt(summary)
-            .unwrap_err()
-            .starts_with("a Markdown file"));
-        let table = "peer,beta\nA,1.0\n";
-        assert!(not_a_receipt(table).unwrap_err().starts_with("a CSV table"));
-    }
 
     #[test]
     fn numbers_agree_relatively() {

@@ -430,9 +430,9 @@ pub(crate) fn visible_one_line(key: &str, text: &str) -> std::result::Result<(),
             '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' => {
                 "a direction control, which reorders the text around it without being seen"
             }
-            '\u{200b}' | '\u{2060}' | '\u{feff}' | '\u{ad}' => {
-                "an invisible character (a zero-width space, word joiner, byte-order mark or soft \
-                 hyphen), which makes two names look alike"
+            '\u{200b}' | '\u{2060}' | '\u{feff}' => {
+                "an invisible character (a zero-width space, word joiner or byte-order mark), \
+                 which makes two names look alike"
             }
             _ => "a Unicode noncharacter, which is not for interchange (XML cannot hold U+FFFE)",
         };
@@ -446,15 +446,15 @@ pub(crate) fn visible_one_line(key: &str, text: &str) -> std::result::Result<(),
 
 /// An explicit direction embedding, override or isolate, a line or paragraph separator, an
 /// invisible character that is no part of a script's writing (zero-width space U+200B, word
-/// joiner U+2060, byte-order mark U+FEFF, soft hyphen U+00AD; the joiners U+200C and U+200D,
-/// which Persian and emoji need, are kept), or a Unicode noncharacter (Unicode 15, §23.2 "Layout
+/// joiner U+2060, byte-order mark U+FEFF; the joiners U+200C and U+200D, which Persian and emoji
+/// need, and the soft hyphen U+00AD of names copied from web pages, are kept), or a Unicode noncharacter (Unicode 15, §23.2 "Layout
 /// Controls" for U+202A–U+202E and U+2066–U+2069, §5.8 for U+2028 and U+2029, §23.7
 /// "Noncharacters" for U+FDD0–U+FDEF and the last two code points of each plane; from
 /// memory).
 fn unseen_or_unwritable(c: char) -> bool {
     matches!(c,
         '\u{2028}' | '\u{2029}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}'
-        | '\u{fdd0}'..='\u{fdef}' | '\u{200b}' | '\u{2060}' | '\u{feff}' | '\u{ad}')
+        | '\u{fdd0}'..='\u{fdef}' | '\u{200b}' | '\u{2060}' | '\u{feff}')
         || (c as u32 & 0xfffe) == 0xfffe
 }
 
@@ -502,12 +502,32 @@ pub(crate) fn distinct_name<'a>(
     let fold = |text: &str| text.nfc().collect::<String>().to_lowercase();
     let folded = fold(name);
     match earlier.enumerate().find(|(_, e)| fold(e) == folded) {
+        // Two names that differ in their encoding alone look the same: each is written out
+        // (found by review: the message showed two identical strings).
+        Some((j, other)) if other.to_lowercase() != name.to_lowercase() => Err(format!(
+            "peer.{i}.name = \"{}\" repeats peer.{j}.name (\"{}\") with an accented letter \
+             encoded otherwise (as one character or as a letter and a combining accent); peer \
+             names must be unique, also when capitals are ignored and accented letters are \
+             encoded otherwise",
+            spelled_out(name),
+            spelled_out(other)
+        )),
         Some((j, other)) => Err(format!(
             "peer.{i}.name = \"{name}\" repeats peer.{j}.name (\"{other}\"); peer names must be \
              unique, also when capitals are ignored and accented letters are encoded otherwise"
         )),
         None => Ok(()),
     }
+}
+
+/// `text` with every character beyond ASCII written as its code point (`e\u{301}cole`).
+fn spelled_out(text: &str) -> String {
+    (text.chars())
+        .map(|c| match c.is_ascii() {
+            true => c.to_string(),
+            false => c.escape_unicode().to_string(),
+        })
+        .collect()
 }
 
 /// A text the CSV outputs write (a peer's name, its exclusion reason) may not begin with a

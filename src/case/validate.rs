@@ -149,6 +149,49 @@ pub fn validate_finite(case: &CaseFile) -> std::result::Result<(), String> {
     validate_peers(case)
 }
 
+/// The free text a case gives (the peer selection, the justifications), which the memo and the
+/// workbook show, within what a workbook cell holds (32,767 characters, Excel's specification
+/// limits, from memory; found by review: a longer one failed only when the workbook was
+/// written, naming no key).
+fn free_text_lengths(case: &CaseFile) -> std::result::Result<(), String> {
+    const MOST: usize = 30_000;
+    let texts = [
+        ("case.peer_selection", &case.case.peer_selection),
+        (
+            "market.risk_free_rate_justification",
+            &case.market.risk_free_rate_justification,
+        ),
+        (
+            "market.equity_risk_premium_justification",
+            &case.market.equity_risk_premium_justification,
+        ),
+        ("target.justification", &case.target.justification),
+        ("debt.justification", &case.debt.justification),
+        (
+            "premiums.size_justification",
+            &case.premiums.size_justification,
+        ),
+        (
+            "premiums.country_justification",
+            &case.premiums.country_justification,
+        ),
+        (
+            "premiums.company_specific_justification",
+            &case.premiums.company_specific_justification,
+        ),
+    ];
+    for (key, text) in texts {
+        let length = text.chars().count();
+        if length > MOST {
+            return Err(format!(
+                "{key} is {length} characters long; a justification or selection is at most \
+                 {MOST} (a workbook cell holds 32,767)"
+            ));
+        }
+    }
+    Ok(())
+}
+
 /// `[case]` and the rates of `[market]`.
 fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> {
     if case.case.title.trim().is_empty() {
@@ -167,6 +210,7 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
     for (key, text) in labels.into_iter().chain(conversion) {
         plain_label(key, text)?;
     }
+    free_text_lengths(case)?;
     super::sources::validate(case)?;
     rate(
         "market.risk_free_rate",

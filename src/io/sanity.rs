@@ -317,14 +317,7 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let bom = whole - bytes.len();
     let mut blank = None;
-    if bytes.iter().all(u8::is_ascii_whitespace) {
-        return Err(Error::DataFile {
-            file: file.to_path_buf(),
-            message: "the file is empty: a header row (date,price) and one row per date are \
-                      expected"
-                .into(),
-        });
-    }
+    refuse_empty(file, bytes)?;
     // Checked for the whole file at once, then named at its line; the lines before it are
     // checked first, as if line by line.
     let valid_up_to = std::str::from_utf8(bytes).map_or_else(|e| e.valid_up_to(), |_| bytes.len());
@@ -390,6 +383,19 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         }
     }
     Ok(blank)
+}
+
+/// A file of white space alone, named as empty.
+fn refuse_empty(file: &Path, bytes: &[u8]) -> Result<()> {
+    match bytes.iter().all(u8::is_ascii_whitespace) {
+        true => Err(Error::DataFile {
+            file: file.to_path_buf(),
+            message: "the file is empty: a header row (date,price) and one row per date are \
+                      expected"
+                .into(),
+        }),
+        false => Ok(()),
+    }
 }
 
 /// A workbook, Parquet or UTF-16 file given where CSV text belongs, named as what it is.

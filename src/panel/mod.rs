@@ -455,7 +455,9 @@ pub(crate) fn wide_ids<'a>(
     let mut ids: Vec<(String, u32)> = Vec::new();
     let mut seen: std::collections::HashMap<u32, usize> = std::collections::HashMap::new();
     for (column, name) in names {
-        check_label(name, || "the header's column name".to_string())?;
+        // The id as read (trimmed) is what the check must see (found by review: ` =1+1` in a
+        // header passed and reached securities.csv as `=1+1`).
+        check_label(name.trim(), || "the header's column name".to_string())?;
         let id = dictionary.id(name.trim());
         if let Some(first) = seen.insert(id, column) {
             return Err(format!(

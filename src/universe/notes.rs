@@ -3,7 +3,11 @@
 //! than the window. Apart from `mod.rs`, which computes the figures these describe.
 
 mod attributes;
+mod lists;
 mod prices;
+
+use lists::ids_where;
+pub use lists::{first_ids, first_of, shown_id};
 
 use std::collections::BTreeMap;
 
@@ -508,38 +512,6 @@ fn ended_early_note(
     })
 }
 
-/// The ids of the securities `pick` picks, in the rows' order.
-fn ids_where(securities: &[SecurityResult], pick: impl Fn(&SecurityResult) -> bool) -> Vec<&str> {
-    securities
-        .iter()
-        .filter(|s| pick(s))
-        .map(|s| s.security.as_str())
-        .collect()
-}
-
-/// The first ten ids of a note's list, then "…" if there are more; an id holding a comma or a
-/// quote is quoted, so the list reads as the ids it holds (found by review: `SEC,0031` read as
-/// two ids).
-pub fn first_ids(ids: &[&str]) -> String {
-    let shown: Vec<String> = ids.iter().map(|id| shown_id(id)).collect();
-    first_of(&shown)
-}
-
-/// An id as a note shows it: quoted when it holds a comma or a quote, which would blur a list.
-pub fn shown_id(id: &str) -> String {
-    match id.contains([',', '"']) {
-        true => format!("{id:?}"),
-        false => id.to_string(),
-    }
-}
-
-/// The first ten of `texts` (already shown as a note shows them), with "…" after them when
-/// there are more.
-pub fn first_of(texts: &[String]) -> String {
-    let more = if texts.len() > 10 { ", …" } else { "" };
-    format!("{}{more}", texts[..texts.len().min(10)].join(", "))
-}
-
 /// A note on panel ids that differ only in how their accented letters are encoded (é as one
 /// character or as e and a combining accent; Unicode's canonical composition, NFC, makes them
 /// one text): ids are matched exactly, so each is a security of its own (found by review: two
@@ -613,12 +585,13 @@ fn label_twins_note(securities: &[SecurityResult]) -> Option<String> {
 mod tests {
     use super::{case_twins, encoded_twins_note, first_ids};
 
-    // Three ids read as three: one holding a comma or a quote is quoted (Rust's escaping).
+    // Three ids read as three: one holding a comma or a quote is quoted, between typographic
+    // quotes, so nothing in it is escaped.
     #[test]
     fn ids_holding_a_comma_or_a_quote_are_quoted() {
         assert_eq!(
             first_ids(&["SEC\"0032", "SEC,0031", "SEC0013"]),
-            r#""SEC\"0032", "SEC,0031", SEC0013"#
+            "“SEC\"0032”, “SEC,0031”, SEC0013"
         );
         let many: Vec<String> = (0..12).map(|i| format!("S{i}")).collect();
         let many: Vec<&str> = many.iter().map(String::as_str).collect();

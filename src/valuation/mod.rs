@@ -24,9 +24,7 @@ use crate::beta::diagnostics::LagResponse;
 use crate::capital::debt::SpreadTable;
 use crate::case::{specs, Case, DebtSource};
 use crate::error::{Error, Result};
-use crate::estimate::{
-    self, EstimateError, EstimationSpec, MarketReturns, SecurityEstimate, Window,
-};
+use crate::estimate::{self, EstimationSpec, MarketReturns, SecurityEstimate, Window};
 use crate::io::series::DataFile;
 use crate::io::spread_table::read_spread_table;
 
@@ -178,7 +176,7 @@ fn estimate_peers_under(
         let estimated = estimate::estimate_security(&spec, &window, &market, file.series.view())
             .map_err(|failure| Error::Estimation {
                 peer: peer.name.clone(),
-                message: failure_message(&failure, &spec, &window, file, &inputs.index),
+                message: notes::failure_message(&failure, &spec, &window, file, &inputs.index),
             })?;
         let index = inputs.index.series.view();
         let same = estimate::same_prices_as_index(file.series.view(), index, bounds);
@@ -284,61 +282,6 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
         (window.start(), window.end()),
     ));
     notes
-}
-
-/// Why a peer could not be estimated, with the file and the window.
-fn failure_message(
-    failure: &EstimateError,
-    spec: &EstimationSpec,
-    window: &Window,
-    file: &DataFile,
-    index: &DataFile,
-) -> String {
-    match failure {
-        EstimateError::TooFewReturns { usable, dropped: d } => {
-            // The stale prices among the missing ones, and the shifted index returns, named
-            // (found by review: periods dropped for a stale price read as missing prices).
-            let stale = |n: usize| match n {
-                0 => String::new(),
-                n => format!(", {n} of them for a price older than beta.max_stale_days"),
-            };
-            let shifted = match d.shifted_market_missing {
-                0 => String::new(),
-                n => format!(", lagged or led index return missing {n}"),
-            };
-            format!(
-                "{usable} usable returns in the window of {} periods from {} to {} (dropped {}: \
-             peer price missing {}{}, index price missing {}{}, risk-free missing {}{shifted}; \
-             a period can count under several reasons); beta.min_observations = {}. Prices in {} run \
-             from {} to {}.",
-                window.period_ends().len(),
-                window.start(),
-                window.end(),
-                d.total,
-                d.asset_missing,
-                stale(d.asset_stale),
-                d.market_missing,
-                stale(d.market_stale),
-                d.risk_free_missing,
-                spec.min_observations,
-                file.path,
-                file.first_date,
-                file.last_date
-            ) + &crate::case::sanity::window::sparse_prices_hint(
-                file,
-                index,
-                window,
-                spec.frequency,
-            )
-        }
-        EstimateError::FlatIndex { periods } => format!(
-            "the market index returns ({}) have zero variance over the {periods} periods aligned \
-             with this peer, so no beta can be estimated",
-            index.path
-        ),
-        EstimateError::Estimator(message) => message.clone(),
-        EstimateError::Settings(problem) => crate::case::wording::estimator_failure(problem),
-    }
 }
 
 /// Why a missing price costs two returns: said once, in the first note that needs it.

@@ -463,3 +463,58 @@ pub(super) fn cautions(
         unstated_inputs: unstated_inputs(settings, cost),
     }
 }
+/// Why a peer could not be estimated, with the file and the window.
+pub(super) fn failure_message(
+    failure: &crate::estimate::EstimateError,
+    spec: &crate::estimate::EstimationSpec,
+    window: &crate::estimate::Window,
+    file: &crate::io::series::DataFile,
+    index: &crate::io::series::DataFile,
+) -> String {
+    use crate::estimate::EstimateError;
+    match failure {
+        EstimateError::TooFewReturns { usable, dropped: d } => {
+            // The stale prices among the missing ones, and the shifted index returns, named
+            // (found by review: periods dropped for a stale price read as missing prices).
+            let stale = |n: usize| match n {
+                0 => String::new(),
+                n => format!(", {n} of them for a price older than beta.max_stale_days"),
+            };
+            let shifted = match d.shifted_market_missing {
+                0 => String::new(),
+                n => format!(", lagged or led index return missing {n}"),
+            };
+            format!(
+                "{usable} usable returns in the window of {} periods from {} to {} (dropped {}: \
+             peer price missing {}{}, index price missing {}{}, risk-free missing {}{shifted}; \
+             a period can count under several reasons); beta.min_observations = {}. Prices in {} run \
+             from {} to {}.",
+                window.period_ends().len(),
+                window.start(),
+                window.end(),
+                d.total,
+                d.asset_missing,
+                stale(d.asset_stale),
+                d.market_missing,
+                stale(d.market_stale),
+                d.risk_free_missing,
+                spec.min_observations,
+                file.path,
+                file.first_date,
+                file.last_date
+            ) + &crate::case::sanity::window::sparse_prices_hint(
+                file,
+                index,
+                window,
+                spec.frequency,
+            )
+        }
+        EstimateError::FlatIndex { periods } => format!(
+            "the market index returns ({}) have zero variance over the {periods} periods aligned \
+             with this peer, so no beta can be estimated",
+            index.path
+        ),
+        EstimateError::Estimator(message) => message.clone(),
+        EstimateError::Settings(problem) => crate::case::wording::estimator_failure(problem),
+    }
+}

@@ -4,9 +4,10 @@
 //! rerun's, numbers within the tolerance, as [`super::verify`] (the parent module) does for a case.
 //!
 //! The receipt's `securities[]` records each security's id, industry, observations, beta,
-//! standard error, unlevered beta and reason not estimated (since 0.4.0); the other per-security
-//! columns of `securities.csv` (D/E, flags, the beta of the operations) enter the comparison
-//! through the industry table's counts and statistics, which a change to them moves.
+//! standard error, unlevered beta and reason not estimated (since 0.4.0), and its equity value,
+//! debt, cash, tax rate, flags and exclusion (since 0.14.0), each compared by security; the
+//! other columns of `securities.csv` enter the comparison through the industry table's counts
+//! and statistics, which a change to them moves.
 
 use std::path::Path;
 

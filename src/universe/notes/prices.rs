@@ -22,6 +22,31 @@ const FINGERPRINT_MOVES: (usize, usize) = (16, 4);
 /// multiple by one factor, on every date both have (`case::sanity::prices::proportional`, the
 /// case's rule for two peers). Candidates are found by the dates and directions of their first
 /// big moves, so the whole series are compared only within a group of equal fingerprints.
+/// A group of securities with the same returns in words: its first id and the next one, with
+/// the factor between their prices when it is not 1. Each id is quoted on its own when it needs
+/// it, not the composed group (found by review: a group was quoted whole, its ids' quotes
+/// escaped).
+fn group_text(ids: &[String], cluster: &[(usize, f64)]) -> String {
+    let (first, others) = (cluster[0].0, &cluster[1..]);
+    let id = |k: usize| super::shown_id(&ids[k]);
+    let other = |(k, factor): &(usize, f64)| match (factor - 1.0).abs() <= 1e-4 {
+        true => id(*k),
+        false => format!(
+            "{} (× {})",
+            id(*k),
+            crate::case::sanity::significant(*factor)
+        ),
+    };
+    match others.len() {
+        1 => format!("{} and {}", id(first), other(&others[0])),
+        n => format!(
+            "{} and {n} others ({} and more)",
+            id(first),
+            other(&others[0])
+        ),
+    }
+}
+
 pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
     use rayon::prelude::*;
     use std::collections::HashMap;
@@ -68,28 +93,7 @@ pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
     clusters.retain(|c| c.len() > 1);
     let ids = panel.securities();
     let mut shown: Vec<String> = (clusters.iter())
-        .map(|cluster| {
-            let (first, others) = (cluster[0].0, &cluster[1..]);
-            // Each id quoted on its own when it needs it, not the composed group (found by
-            // review: a group was quoted whole, its ids' quotes escaped).
-            let id = |k: usize| super::shown_id(&ids[k]);
-            let other = |(k, factor): &(usize, f64)| match (factor - 1.0).abs() <= 1e-4 {
-                true => id(*k),
-                false => format!(
-                    "{} (× {})",
-                    id(*k),
-                    crate::case::sanity::significant(*factor)
-                ),
-            };
-            match others.len() {
-                1 => format!("{} and {}", id(first), other(&others[0])),
-                n => format!(
-                    "{} and {n} others ({} and more)",
-                    id(first),
-                    other(&others[0])
-                ),
-            }
-        })
+        .map(|cluster| group_text(ids, cluster))
         .collect();
     shown.sort();
     (!clusters.is_empty()).then(|| {
