@@ -662,6 +662,33 @@ fn unseen_characters_in_labels_are_refused() {
             "\"e\\u{301}cole\"",
         ],
     );
+    // A soft hyphen (shown only at a line break) and the Kelvin sign (which reads as K) make
+    // names that read alike too: each written out.
+    let stderr = case.refuse(&["--set", "peer.1.name=\"Bren\\u00advale Fluid Systems\""]);
+    assert_mentions(
+        &stderr,
+        &[
+            "\"Bren\\u{ad}vale Fluid Systems\" repeats peer.0.name",
+            "written out",
+        ],
+    );
+    let stderr = case.refuse(&[
+        "--set",
+        "peer.0.name=\"\\u212A Corp\"",
+        "--set",
+        "peer.1.name=\"K Corp\"",
+    ]);
+    assert_mentions(&stderr, &["\"\\u{212a} Corp\"", "written out"]);
+    // 15,001 emoji are 30,002 UTF-16 units, as a workbook cell counts them.
+    let long = format!(
+        "premiums.size_justification=\"{}\"",
+        "\u{1F600}".repeat(15_001)
+    );
+    let stderr = case.refuse(&["--set", &long]);
+    assert_mentions(
+        &stderr,
+        &["premiums.size_justification is 30002 characters long"],
+    );
     let long = format!("premiums.size_justification=\"{}\"", "A".repeat(30_001));
     let stderr = case.refuse(&["--set", &long]);
     assert_mentions(

@@ -96,17 +96,13 @@ pub(crate) fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
     // summary.md holding " = " was called TOML).
     // A TOML table header (`[case]`, `[[peer]]`) marks a case even when the file opens with a
     // `# ` comment, as the demo's does, and does not parse (found by review).
-    let table_header = text.lines().any(|l| {
-        let l = l.trim();
-        let name = l.trim_start_matches('[').trim_end_matches(']');
-        l.starts_with('[')
-            && l.ends_with(']')
-            && !name.is_empty()
-            && name
-                .chars()
-                .all(|c| c.is_ascii_alphanumeric() || "_.-\"".contains(c))
-    });
+    let table_header = text.lines().any(is_table_header);
     let opening = text.trim_start();
+    if opening.starts_with("<!DOCTYPE") || opening.starts_with("<html") {
+        return Err(format!(
+            "an HTML page (report.html?), not a receipt: {GIVE_INSTEAD}"
+        ));
+    }
     let markdown = !table_header && (opening.starts_with("# ") || opening.starts_with('|'));
     let looks_like_toml = table_header || text.lines().any(|l| l.contains(" = "));
     let toml = toml::from_str::<toml::Table>(text).is_ok() || (looks_like_toml && !markdown);
@@ -117,10 +113,30 @@ pub(crate) fn not_a_receipt(text: &str) -> std::result::Result<(), String> {
         // Anything else is left to the JSON parser, whose message gives the line.
         (false, false, false) => return Ok(()),
     };
-    Err(format!(
-        "{what}, not a receipt: verify reads the result.json that `hurdle run` or `hurdle \
-         universe` wrote (output/result.json beside the case), and finds the case from it"
-    ))
+    Err(format!("{what}, not a receipt: {GIVE_INSTEAD}"))
+}
+
+/// What to give `verify` instead of a file that is no receipt.
+const GIVE_INSTEAD: &str = "verify reads the result.json that `hurdle run` or `hurdle universe` \
+wrote (output/result.json beside the case), and finds the case from it";
+
+/// Whether a line is a TOML table header: `[name]` or `[[name]]`, its name of letters, digits,
+/// `_`, `-`, `.`, spaces and quoted keys, then nothing or a comment (`[ case ]`,
+/// `[sources."wide prices"]`, `[beta]   # as in a case`; found by review).
+fn is_table_header(line: &str) -> bool {
+    let line = line.trim();
+    let Some(close) = line.rfind(']') else {
+        return false;
+    };
+    let after = line[close + 1..].trim_start();
+    let name = line[..=close]
+        .trim_start_matches('[')
+        .trim_end_matches(']')
+        .trim();
+    line.starts_with('[')
+        && (after.is_empty() || after.starts_with('#'))
+        && !name.is_empty()
+        && (name.chars()).all(|c| c.is_ascii_alphanumeric() || "_.-\" '".contains(c))
 }
 
 #[cfg(test)]
@@ -137,10 +153,24 @@ mod tests {
         assert!(not_a_receipt(broken_case)
             .unwrap_err()
             .starts_with("a TOML file"));
-        let commented = "# A case\n[case]\ntitle = \"x\n";
-        assert!(not_a_receipt(commented)
-            .unwrap_err()
-            .starts_with("a TOML file"));
+        for commented in [
+            "# A case\n[case]\ntitle = \"x\n",
+            "# A case\n[case]  # the case\ntitle = \"x\n",
+            "# A case\n[ case ]\ntitle = \"x\n",
+            "# A case\n[[ peer ]]\nname = \"x\n",
+            "# A case\n[sources.\"wide prices\"]\nfile = \"x\n",
+        ] {
+            assert!(
+                not_a_receipt(commented)
+                    .unwrap_err()
+                    .starts_with("a TOML file"),
+                "{commented}"
+            );
+        }
+        let page = "<!DOCTYPE html>\n<html lang=\"en\"><p>a = b</p></html>\n";
+        assert!(not_a_receipt(page).unwrap_err().starts_with("an HTML page"));
+        // A memo's table row of an interval is no header.
+        assert!(!is_table_header("[1.364, 1.562]"));
         let summary = "# Industry betas\n\nReturn window with beta.lookback = 1y.\n";
         assert!(not_a_receipt(summary)
             .unwrap_err()

@@ -498,17 +498,24 @@ pub(crate) fn distinct_name<'a>(
     // Capitals aside, and accented letters however they are encoded (é as one character or as
     // e and a combining accent, which read the same; Unicode's canonical composition, NFC;
     // found by review).
+    // A soft hyphen, which shows only where a line breaks, is left out too (found by review:
+    // `Bren\u{ad}vale` beside `Brenvale` gave two rows that read alike).
     use unicode_normalization::UnicodeNormalization;
-    let fold = |text: &str| text.nfc().collect::<String>().to_lowercase();
+    let fold = |text: &str| {
+        (text.nfc().filter(|&c| c != '\u{ad}'))
+            .collect::<String>()
+            .to_lowercase()
+    };
     let folded = fold(name);
     match earlier.enumerate().find(|(_, e)| fold(e) == folded) {
-        // Two names that differ in their encoding alone look the same: each is written out
-        // (found by review: the message showed two identical strings).
-        Some((j, other)) if other.to_lowercase() != name.to_lowercase() => Err(format!(
-            "peer.{i}.name = \"{}\" repeats peer.{j}.name (\"{}\") with an accented letter \
-             encoded otherwise (as one character or as a letter and a combining accent); peer \
-             names must be unique, also when capitals are ignored and accented letters are \
-             encoded otherwise",
+        // Two names that differ beyond ASCII capitals look the same: each is written out
+        // (found by review: the message showed two identical strings, also for the Kelvin sign
+        // and K).
+        Some((j, other)) if !other.eq_ignore_ascii_case(name) => Err(format!(
+            "peer.{i}.name = \"{}\" repeats peer.{j}.name (\"{}\"), written out here: they \
+             read alike (a letter encoded otherwise, as one character or as a letter and a \
+             combining accent, a capital, a soft hyphen); peer names must be unique, also when \
+             capitals are ignored and accented letters are encoded otherwise",
             spelled_out(name),
             spelled_out(other)
         )),

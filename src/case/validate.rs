@@ -181,7 +181,8 @@ fn free_text_lengths(case: &CaseFile) -> std::result::Result<(), String> {
         ),
     ];
     for (key, text) in texts {
-        let length = text.chars().count();
+        // In UTF-16 units, as a workbook cell counts them (an emoji is two; found by review).
+        let length = text.encode_utf16().count();
         if length > MOST {
             return Err(format!(
                 "{key} is {length} characters long; a justification or selection is at most \

@@ -188,7 +188,8 @@ fn peer_row(
     j: usize,
 ) -> Result<()> {
     let ws = &mut sheet.ws;
-    ws.write_string(row, 0, name).map_err(xlsx_error)?;
+    ws.write_string(row, 0, super::within_a_cell(name).as_ref())
+        .map_err(xlsx_error)?;
     ws.write_datetime(row, 1, super::excel_date(returns.period_ends[j])?)
         .map_err(xlsx_error)?;
     ws.write_number(row, 2, returns.asset[j])

@@ -27,9 +27,12 @@ pub fn first_ids(ids: &[&str]) -> String {
 /// would blur a list; the id itself as written, with no escapes (found by review: `Q"1,x`
 /// showed as `"Q\"1,x"`).
 pub fn shown_id(id: &str) -> String {
-    match id.contains([',', '"']) {
-        true => format!("“{id}”"),
-        false => id.to_string(),
+    match (id.contains([',', '"']), id.contains(['“', '”'])) {
+        (false, _) => id.to_string(),
+        (true, false) => format!("“{id}”"),
+        // An id holding typographic quotes itself is written with escapes, so the list still
+        // reads as the ids it holds (found by review).
+        (true, true) => format!("{id:?}"),
     }
 }
 

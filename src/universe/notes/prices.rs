@@ -18,10 +18,6 @@ const BIG_MOVE: f64 = 0.03;
 /// pair at a time).
 const FINGERPRINT_MOVES: (usize, usize) = (16, 4);
 
-/// Pairs of securities in `panel` with the same returns: one's prices another's, or their
-/// multiple by one factor, on every date both have (`case::sanity::prices::proportional`, the
-/// case's rule for two peers). Candidates are found by the dates and directions of their first
-/// big moves, so the whole series are compared only within a group of equal fingerprints.
 /// A group of securities with the same returns in words: its first id and the next one, with
 /// the factor between their prices when it is not 1. Each id is quoted on its own when it needs
 /// it, not the composed group (found by review: a group was quoted whole, its ids' quotes
@@ -47,6 +43,10 @@ fn group_text(ids: &[String], cluster: &[(usize, f64)]) -> String {
     }
 }
 
+/// Pairs of securities in `panel` with the same returns: one's prices another's, or their
+/// multiple by one factor, on every date both have (`case::sanity::prices::proportional`, the
+/// case's rule for two peers). Candidates are found by the dates and directions of their first
+/// big moves, so the whole series are compared only within a group of equal fingerprints.
 pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
     use rayon::prelude::*;
     use std::collections::HashMap;
