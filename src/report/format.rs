@@ -97,7 +97,7 @@ pub fn table_cell(text: String) -> String {
 /// Where the text begins a line or a list item (a peer's name in the stability list, a title
 /// in the heading), a first character that would open a block (`#`, `>`, `-`, `+`, `=`, or the
 /// `.` or `)` after leading digits) and a closing run of `#` after a space are escaped too
-/// ([`opens_block`]), so "# 2 Holdings" or "Case #" show as written. White space around the
+/// ([`BlockStart`]), so "# 2 Holdings" or "Case #" show as written. White space around the
 /// text, which no reader sees but which would make an indented code block at a line's start,
 /// is left out, and a line break inside it (a justification written over several lines) is
 /// written as a space: a line of its own could open any block (found by review).
