@@ -240,8 +240,50 @@ pub fn one_line(text: &str) -> String {
             line.push(c);
         }
     }
-    line
+    shorten_long_numbers(&line)
 }
+
+/// `text` with each number written out to more than [`LONG_NUMBER`] digits, of which a run of
+/// at least 16 zeros, in exponent form (`1e308`, `1e-300`): how Rust writes a very large or
+/// very small f64, which a message showed as 300 digits (found by review). A number read as
+/// text keeps its digits otherwise, and the value shown is the same number.
+pub fn shorten_long_numbers(text: &str) -> String {
+    let bytes = text.as_bytes();
+    let mut out = String::with_capacity(text.len());
+    let (mut copied, mut i) = (0, 0);
+    while i < bytes.len() {
+        if !bytes[i].is_ascii_digit() || (i > 0 && bytes[i - 1].is_ascii_digit()) {
+            i += 1;
+            continue;
+        }
+        let mut end = i;
+        while end < bytes.len() && bytes[end].is_ascii_digit() {
+            end += 1;
+        }
+        if end + 1 < bytes.len() && bytes[end] == b'.' && bytes[end + 1].is_ascii_digit() {
+            end += 1;
+            while end < bytes.len() && bytes[end].is_ascii_digit() {
+                end += 1;
+            }
+        }
+        let number = &text[i..end];
+        let digits = number.bytes().filter(u8::is_ascii_digit).count();
+        let zeros = "0".repeat(16);
+        if digits > LONG_NUMBER && number.replace('.', "").contains(&zeros) {
+            if let Ok(value) = number.parse::<f64>() {
+                out.push_str(&text[copied..i]);
+                out.push_str(&format!("{value:e}"));
+                copied = end;
+            }
+        }
+        i = end;
+    }
+    out.push_str(&text[copied..]);
+    out
+}
+
+/// More digits than this make a number long for [`shorten_long_numbers`].
+const LONG_NUMBER: usize = 24;
 
 /// A TOML parse or type error of `source` as one line: `line L, column C (`the line`): what is
 /// wrong`, instead of the parser's multi-line drawing of the line with a caret. The line is
@@ -315,6 +357,20 @@ pub fn toml_error_in_table<T: serde::de::DeserializeOwned>(
 
 #[cfg(test)]
 mod tests {
+    // Rust's `Display` of an f64 never uses an exponent (std's fmt documentation): 1e308 is a 1
+    // and 308 zeros, 1e-300 a point, 299 zeros and a 1; `{:e}` writes them back as typed.
+    #[test]
+    fn very_large_and_very_small_numbers_read_in_exponent_form() {
+        let shown = |x: f64| super::one_line(&format!("debt = {x} is outside (0, 1e15)"));
+        assert_eq!(shown(1e308), "debt = 1e308 is outside (0, 1e15)");
+        assert_eq!(shown(-1e-300), "debt = -1e-300 is outside (0, 1e15)");
+        assert_eq!(shown(2.5e-40), "debt = 2.5e-40 is outside (0, 1e15)");
+        // Ordinary figures, and long digit strings without a run of zeros (an id), stay.
+        assert_eq!(shown(0.0325), "debt = 0.0325 is outside (0, 1e15)");
+        let id = "security 123456789012345678901234567890 at line 3";
+        assert_eq!(super::shorten_long_numbers(id), id);
+    }
+
     // The position follows the TOML 1.0 grammar's own error: an unknown key on line 3, column 1;
     // a value of the wrong type on line 2, at its first character.
     #[test]

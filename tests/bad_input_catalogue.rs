@@ -242,6 +242,13 @@ fn keep_lines(s: &Sandbox, relative: &str, keep: fn(usize) -> bool) {
 
 fn price_files() -> Vec<Bad> {
     vec![
+        // Found by review: the message quoted the rest of the file, 35 kB, as the cell.
+        bad!(
+            "a quote never closed",
+            |s| s.set_line(PEER, LINE, &format!("{LINE_DATE},\"45.1")),
+            ["run", "{case}", "--out", "{out}"],
+            [PEER, "line 848", "is never closed"]
+        ),
         bad!(
             "missing price file",
             |s| s.edit_case("data/peers/dunmere.csv", "data/peers/gone.csv"),
@@ -922,6 +929,36 @@ fn utf16(text: &str) -> Vec<u8> {
 
 fn spread_tables() -> Vec<Bad> {
     vec![
+        // Found by review: a row without its rating was shown as a blank cell.
+        bad!(
+            "coverage row without a rating",
+            |s| edit_at(s, COVERAGE, "4.20,BBB,0.0184", "4.20,,0.0184"),
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=coverage"
+            ],
+            [COVERAGE, "{line}", "the rating is empty"]
+        ),
+        // Found by review: the message read as if the case file itself were broken.
+        bad!(
+            "the case file given as the rating table",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "debt.source=rating",
+                "--set",
+                "debt.rating_table=case.toml"
+            ],
+            ["case.toml", "read as the spread table of debt.rating_table"]
+        ),
         bad!(
             "rating table missing",
             |s| s.edit_case(RATING, "data/gone_spreads.csv"),
@@ -1322,6 +1359,36 @@ fn spread_tables() -> Vec<Bad> {
 
 fn case_files() -> Vec<Bad> {
     vec![
+        // Found by review: an empty currency was shown as an empty cell in the memo.
+        bad!(
+            "empty currency",
+            |s| set_case_key(s, "currency", "\"\""),
+            ["run", "{case}", "--out", "{out}"],
+            ["case.toml", "case.currency is empty"]
+        ),
+        // Found by review: the TOML reader kept the first two values of three unsaid.
+        bad!(
+            "a range of three values",
+            |s| edit_at(
+                s,
+                "case.toml",
+                "[uncertainty]\n",
+                "[uncertainty]\nequity_risk_premium = [0.04, 0.05, 0.06]\n"
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "case.toml",
+                "{next}",
+                "a range is two numbers [low, high]; found a list of 3"
+            ]
+        ),
+        // Found by review: "the table [claimed] is missing" for the key of [reconcile].
+        bad!(
+            "[reconcile] without its claim",
+            |s| s.edit_case("claimed = \"claimed.toml\"", ""),
+            ["run", "{case}", "--out", "{out}"],
+            ["case.toml", "`claimed` is missing here", "[reconcile]"]
+        ),
         bad!(
             "TOML syntax error",
             |s| edit_at(s, "case.toml", "currency = \"EUR\"", "currency = \"EUR"),
@@ -2261,6 +2328,67 @@ fn claimed_files() -> Vec<Bad> {
 
 fn overrides() -> Vec<Bad> {
     vec![
+        // Found by review: 1e308 over 1e-300 wrote "inf" into the memo's note.
+        bad!(
+            "--set subject structure beyond any D/E",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "target.subject_debt=1e308",
+                "--set",
+                "target.subject_equity_value=1e-300"
+            ],
+            ["target.subject_debt = 1e308", "above 10"]
+        ),
+        // Found by review: the memo said "a change larger than inf bp".
+        bad!(
+            "--set influence threshold beyond 1",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "uncertainty.influence_threshold=1e308"
+            ],
+            ["uncertainty.influence_threshold = 1e308", "at most 1"]
+        ),
+        // Found by review: a date before the years a case may hold was accepted here.
+        bad!(
+            "--set accepted jump before 1800",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "market.index.accept_jumps=[1700-01-03]"
+            ],
+            [
+                "market.index.accept_jumps = 1700-01-03",
+                "outside the years 1800 to 2199"
+            ]
+        ),
+        // Found by review: the value was written out to 309 digits, with "inf" basis points.
+        bad!(
+            "--set rate of 1e308",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "market.equity_risk_premium=1e308"
+            ],
+            ["market.equity_risk_premium = 1e308 is outside [-0.5, 1)"]
+        ),
         // Found by review: a value out of range is blamed on the --set that gave it.
         bad!(
             "--set rate in percent",

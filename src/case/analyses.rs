@@ -27,10 +27,10 @@ pub struct UncertaintySettings {
     pub draws: u32,
     pub seed: u64,
     /// Draw the equity risk premium uniformly from `[low, high]` as well.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(skip_serializing_if = "Option::is_none", deserialize_with = "range")]
     pub equity_risk_premium: Option<[f64; 2]>,
     /// Draw the risk-free rate uniformly from `[low, high]` as well.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(skip_serializing_if = "Option::is_none", deserialize_with = "range")]
     pub risk_free_rate: Option<[f64; 2]>,
     /// Whether the peers' beta errors are drawn jointly, correlated as their residuals are
     /// (`"correlated"`), or each on its own (`"independent"`).
@@ -40,6 +40,23 @@ pub struct UncertaintySettings {
     pub influence_threshold: f64,
     /// The WACC under the usual alternative frequencies and windows, beside the case's own.
     pub specification_range: bool,
+}
+
+/// A range `[low, high]` of exactly two numbers. The TOML reader fills a two-element array from
+/// the first two of a longer list without a word (found by review: `[0.04, 0.05, 0.06]` became
+/// `[0.04, 0.05]` in the case file, while `--set` refused it), so the list is read whole and
+/// its length checked.
+fn range<'de, D: serde::Deserializer<'de>>(
+    deserializer: D,
+) -> std::result::Result<Option<[f64; 2]>, D::Error> {
+    let values = Vec::<f64>::deserialize(deserializer)?;
+    match values[..] {
+        [low, high] => Ok(Some([low, high])),
+        _ => Err(serde::de::Error::custom(format!(
+            "a range is two numbers [low, high]; found a list of {}",
+            values.len()
+        ))),
+    }
 }
 
 /// `uncertainty.beta_errors`: how the Monte Carlo draws the peers' betas.

@@ -11,7 +11,7 @@ pub mod prices;
 pub mod text;
 pub mod window;
 
-use super::{CaseDate, CaseFile, DebtSource, TargetSource};
+use super::{CaseDate, CaseFile, DebtSource};
 use crate::error::compact as show;
 
 pub use prices::price_pattern_notes;
@@ -233,11 +233,24 @@ fn check_paths(case: &CaseFile) -> std::result::Result<(), String> {
 fn check_dates(case: &CaseFile) -> std::result::Result<(), String> {
     use chrono::Datelike;
     let beta = &case.beta;
-    let dates = [
-        ("case.valuation_date", Some(case.case.valuation_date)),
-        ("beta.window_start", beta.window_start),
-        ("beta.window_end", beta.window_end),
+    let mut dates: Vec<(String, Option<CaseDate>)> = vec![
+        ("case.valuation_date".into(), Some(case.case.valuation_date)),
+        ("beta.window_start".into(), beta.window_start),
+        ("beta.window_end".into(), beta.window_end),
     ];
+    // The dates of accepted jumps too (found by review: 1700-01-03 passed).
+    let jumps = |key: String, list: &[CaseDate]| {
+        list.iter()
+            .map(move |&date| (key.clone(), Some(date)))
+            .collect::<Vec<_>>()
+    };
+    dates.extend(jumps(
+        "market.index.accept_jumps".into(),
+        &case.market.index.accept_jumps,
+    ));
+    for (i, peer) in case.peers.iter().enumerate() {
+        dates.extend(jumps(format!("peer.{i}.accept_jumps"), &peer.accept_jumps));
+    }
     for (key, date) in dates {
         if let Some(CaseDate(date)) = date {
             if !(YEARS.0..=YEARS.1).contains(&date.year()) {
@@ -320,8 +333,9 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     let measure = case.leverage.debt_measure;
-    if let (TargetSource::Subject, Some(equity), Some(debt)) = (
-        target.source,
+    // Whatever the target's source: with another source the subject's D/E is set beside the
+    // target in a note (found by review: 1e308 over 1e-300 wrote "inf" into the memo).
+    if let (Some(equity), Some(debt)) = (
         target.subject_equity_value.filter(|&e| e > 0.0),
         target.subject_debt,
     ) {

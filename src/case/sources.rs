@@ -119,6 +119,22 @@ pub fn validate(case: &CaseFile) -> std::result::Result<(), String> {
         .try_for_each(|keys| check_reference(keys, &case.sources))
 }
 
+/// The `[sources]` tables no series names, which are neither read nor hashed: the run notes
+/// them (found by review: an unused table, even one naming a missing file, passed unseen).
+pub fn unused_source_notes(case: &CaseFile) -> Vec<String> {
+    let keys = series_keys(case);
+    (case.sources.iter())
+        .filter(|(name, _)| !keys.iter().any(|k| k.source == Some(name.as_str())))
+        .map(|(name, table)| {
+            format!(
+                "sources.{name} is not used: no series names it (source = \"{name}\"), so its \
+                 file, {}, is neither read nor hashed.",
+                table.file
+            )
+        })
+        .collect()
+}
+
 /// One series reference: its own file, or a source and a column, and not a mix.
 fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<(), String> {
     let key = &keys.key;

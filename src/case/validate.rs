@@ -22,9 +22,10 @@ pub(super) fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::R
                 decimal(100.0),
                 crate::error::compact(value)
             )
-        } else if value >= 1.0 && high <= 1.0 {
+        } else if value >= 1.0 && high <= 1.0 && value / 10_000.0 < high {
             // Out of range even as a percentage: basis points (found by review: 517 was
-            // advised to be 5.17, itself out of range).
+            // advised to be 5.17, itself out of range); not for a value beyond those too
+            // (1e308 read "inf for 1e308 basis points").
             format!(
                 "; rates are decimals ({} for {} basis points, {}%)",
                 decimal(10_000.0),
@@ -198,6 +199,12 @@ fn validate_case_and_market(case: &CaseFile) -> std::result::Result<(), String> 
     if case.case.title.trim().is_empty() {
         return Err("case.title is empty".into());
     }
+    // Found by review: accepted, and shown as an empty cell in the memo's inputs.
+    if case.case.currency.trim().is_empty() {
+        return Err(
+            "case.currency is empty: name the currency the case's rates are in (EUR, say)".into(),
+        );
+    }
     let labels = [
         ("case.title", &case.case.title),
         ("case.subject", &case.case.subject),
@@ -357,9 +364,12 @@ fn validate_rolling_and_flags(
 /// `[uncertainty]`: enough draws for percentiles, and ranges that are ranges.
 fn validate_uncertainty(case: &CaseFile) -> std::result::Result<(), String> {
     let u = &case.uncertainty;
-    if !(u.influence_threshold.is_finite() && u.influence_threshold > 0.0) {
+    // At most 1, a move of 100 percentage points (found by review: 1e308 wrote "inf bp" into
+    // the memo).
+    if !(u.influence_threshold > 0.0 && u.influence_threshold <= 1.0) {
         return Err(format!(
-            "uncertainty.influence_threshold = {} must be a positive decimal (0.0025 is 25 bp)",
+            "uncertainty.influence_threshold = {} must be a positive decimal at most 1 (0.0025 \
+             is 25 bp)",
             u.influence_threshold
         ));
     }

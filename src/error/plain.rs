@@ -267,6 +267,12 @@ fn key_message(message: &str) -> Option<String> {
                 "`{both}` is missing here: the key `{both} = …` of a claim's [claimed] table, \
                  or the table [{both}] of a case (README, Case file reference)"
             ),
+            // [reconcile]'s key names a claim file, whose own table is [claimed] (found by
+            // review: an empty [reconcile] was told the table was missing).
+            "claimed" => "`claimed` is missing here: the key `claimed = \"claim.toml\"` of \
+                          [reconcile] (the claimed build-up's file), or the table [claimed] of \
+                          a claim file (README, Case file reference)"
+                .to_string(),
             table if TABLES.contains(&table) => {
                 format!("the table [{table}] is missing (README, Case file reference)")
             }

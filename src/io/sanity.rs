@@ -324,6 +324,7 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
     let mut header_fields = None;
     let mut fewest = 0;
     let (mut fields, mut in_quotes, mut record_line) = (1, false, 1);
+    let mut opens_a_field = false;
     let mut line_start = 0;
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
         let line = i + 1;
@@ -341,7 +342,13 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         // Quotes and commas are single bytes that UTF-8 never uses inside another character.
         for (at, &b) in raw.iter().enumerate() {
             match b {
-                b'"' => in_quotes = !in_quotes,
+                b'"' => {
+                    in_quotes = !in_quotes;
+                    // A quote that opens a field (RFC 4180), not one inside a field's text.
+                    if in_quotes {
+                        opens_a_field = at == 0 || raw[at - 1] == b',';
+                    }
+                }
                 b',' if !in_quotes => fields += 1,
                 b'\r' if !in_quotes => {
                     let stray = crlf && at + 1 == raw.len();
@@ -381,6 +388,28 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
             }
             Some(_) => {}
         }
+    }
+    if in_quotes && opens_a_field {
+        // The rest of the file would read as one cell (found by review: its message quoted
+        // 35 kB of the file as the cell's value).
+        let opened = String::from_utf8_lossy(
+            bytes
+                .split(|&b| b == b'\n')
+                .nth(record_line - 1)
+                .unwrap_or_default(),
+        );
+        return Err(row_error(
+            record_line,
+            format!(
+                "a quote opened on this line (`{}`) is never closed, so every line after it \
+                 would read as part of one cell: close the quote or remove it",
+                opened
+                    .trim_end_matches('\r')
+                    .chars()
+                    .take(80)
+                    .collect::<String>()
+            ),
+        ));
     }
     Ok(blank)
 }

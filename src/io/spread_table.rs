@@ -74,7 +74,7 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
     {
-        parse_toml_table(&text, path)?
+        parse_toml_table(&text, path, coverage)?
     } else {
         parse_csv_table(&text, path, coverage)?
     };
@@ -88,6 +88,13 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
             message,
         };
         check_spread(row.spread).map_err(row_error)?;
+        // Found by review: an empty rating was accepted, shown as a blank cell in the memo
+        // and matched by `debt.rating = ""`.
+        if row.rating.trim().is_empty() {
+            return Err(row_error(
+                "the rating is empty: each row names its rating (BBB, say)".into(),
+            ));
+        }
         if coverage {
             let Some(low) = row.min_coverage else {
                 return Err(row_error("min_coverage is missing".into()));
@@ -122,10 +129,16 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
 }
 
 /// A TOML spread table's rows, each with the line where its table (or inline table) starts.
-fn parse_toml_table(text: &str, path: &Path) -> Result<Vec<SpreadRow>> {
+/// Its errors name the key that gave the file (found by review: a case file given as the table
+/// read as if the case itself were broken).
+fn parse_toml_table(text: &str, path: &Path, coverage: bool) -> Result<Vec<SpreadRow>> {
     let table: TomlTable = toml::from_str(text).map_err(|e| Error::DataFile {
         file: path.to_path_buf(),
-        message: crate::error::toml_error(&e, text),
+        message: format!(
+            "read as the spread table of debt.{}_table: {}",
+            if coverage { "coverage" } else { "rating" },
+            crate::error::toml_error(&e, text)
+        ),
     })?;
     Ok(table
         .row

@@ -389,7 +389,7 @@ const STAND_IN: &str = r#"
 [case]
 title = "universe"
 valuation_date = 2026-09-30
-currency = ""
+currency = "none"
 [market]
 risk_free_rate = 0.0
 equity_risk_premium = 0.05

@@ -232,6 +232,7 @@ fn window_notes(case: &Case, inputs: &Inputs, window: &Window) -> Vec<String> {
     let mut notes: Vec<String> = crate::case::sanity::window_note(&settings.beta)
         .into_iter()
         .chain(crate::case::sanity::unused_beta_notes(&settings.beta))
+        .chain(crate::case::sources::unused_source_notes(settings))
         .chain(inputs.table_notes.iter().cloned())
         .collect();
     notes.extend(crate::case::sanity::index_coverage_note(

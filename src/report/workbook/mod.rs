@@ -302,19 +302,33 @@ impl<'v> Book<'v> {
         (row, col): (u32, u16),
         date: chrono::NaiveDate,
     ) -> Result<()> {
-        sheet
-            .ws
-            .write_datetime_with_format(row, col, &excel_date(date)?, &self.styles.date)
-            .map_err(xlsx_error)?;
-        Ok(())
+        write_date(&mut sheet.ws, (row, col), date, Some(&self.styles.date))
     }
 }
 
-/// A calendar date as the spreadsheet's date-time.
-pub(crate) fn excel_date(date: chrono::NaiveDate) -> Result<ExcelDateTime> {
+/// A calendar date as a date cell (with `format`, else the column's), or as its ISO text
+/// before 1900 or after 9999, which a spreadsheet's dates do not reach (found by review: a
+/// price file dated 1850, before the window, stopped the run at the workbook).
+pub(crate) fn write_date(
+    ws: &mut Worksheet,
+    (row, col): (u32, u16),
+    date: chrono::NaiveDate,
+    format: Option<&rust_xlsxwriter::Format>,
+) -> Result<()> {
     use chrono::Datelike;
-    ExcelDateTime::from_ymd(date.year() as u16, date.month() as u8, date.day() as u8)
-        .map_err(xlsx_error)
+    if !(1900..=9999).contains(&date.year()) {
+        let text = date.format("%Y-%m-%d").to_string();
+        ws.write_string(row, col, text).map_err(xlsx_error)?;
+        return Ok(());
+    }
+    let cell = ExcelDateTime::from_ymd(date.year() as u16, date.month() as u8, date.day() as u8)
+        .map_err(xlsx_error)?;
+    match format {
+        Some(format) => ws.write_datetime_with_format(row, col, &cell, format),
+        None => ws.write_datetime(row, col, &cell),
+    }
+    .map_err(xlsx_error)?;
+    Ok(())
 }
 
 /// Lays the valuation out and returns the file's bytes with the map of its formula cells.

@@ -190,8 +190,7 @@ fn peer_row(
     let ws = &mut sheet.ws;
     ws.write_string(row, 0, super::within_a_cell(name).as_ref())
         .map_err(xlsx_error)?;
-    ws.write_datetime(row, 1, super::excel_date(returns.period_ends[j])?)
-        .map_err(xlsx_error)?;
+    super::write_date(ws, (row, 1), returns.period_ends[j], None)?;
     ws.write_number(row, 2, returns.asset[j])
         .map_err(xlsx_error)?;
     ws.write_number(row, 3, returns.market[j])
