@@ -798,3 +798,122 @@ fn one_aggregated_peer_is_said_to_add_no_peer_set_uncertainty() {
     );
     assert!(memo.contains("| Peer | NW lags | Slopes on the index (offset: β) | Aggregation |"));
 }
+
+// Value additivity (Modigliani and Miller 1958, AER 48(3); textbook): E·βE + D·βD =
+// (E + D − C)·β_ops + C·β_cash. Under net debt with a debt beta, the unlevered beta (Harris–
+// Pringle) is (E·βE + (D − C)·βD)/(E + D − C): the cash netted at the debt's beta; the beta of
+// the operations, cash at a beta of zero, is (E·βE + D·βD)/(E + D − C). Both closed forms on
+// result.json's own inputs, to 1e-12 relative (a few divisions' rounding). The run says which
+// (found by review: README said the net-debt beta took cash at a beta of zero).
+#[test]
+fn net_debt_with_debt_betas_nets_cash_at_the_debt_beta_and_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "leverage.debt_measure=net",
+            "peer.Ivelbrook Instruments.cash=600",
+            "leverage.formula=harris-pringle",
+            "leverage.debt_beta_source=credit-spread",
+        ],
+    );
+    let peer = (result["peers"].as_array().unwrap().iter())
+        .find(|p| p["name"] == "Ivelbrook Instruments")
+        .unwrap();
+    let (e, d, c) = (
+        number(peer, "equity_value"),
+        number(peer, "debt"),
+        number(peer, "cash"),
+    );
+    let (beta, debt_beta) = (number(peer, "beta_used"), number(peer, "debt_beta"));
+    assert!(debt_beta > 0.0 && c > d, "a net-cash peer with a debt beta");
+    let net = (e * beta + (d - c) * debt_beta) / (e + d - c);
+    let operations = (e * beta + d * debt_beta) / (e + d - c);
+    let unlevered = number(peer, "unlevered_beta");
+    assert!(
+        (unlevered - net).abs() <= 1e-12 * net.abs(),
+        "{unlevered} vs {net}"
+    );
+    let drawn = number(peer, "operations_beta");
+    assert!(
+        (drawn - operations).abs() <= 1e-12 * operations,
+        "{drawn} vs {operations}"
+    );
+    let notes = result["notes"].to_string();
+    assert!(
+        notes.contains("netted against its debt as negative debt at the debt's beta"),
+        "{notes}"
+    );
+}
+
+// Debt ranks ahead of the equity on the same assets (common practice): a negative given debt
+// beta is questioned, not refused (found by review: accepted without a word).
+#[test]
+fn a_negative_given_debt_beta_is_questioned() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "leverage.formula=conine",
+            "leverage.debt_beta_source=given",
+            "leverage.debt_beta=-0.5",
+        ],
+    );
+    let notes = result["notes"].to_string();
+    assert!(
+        notes.contains("Check: leverage.debt_beta is -0.5, below 0"),
+        "{notes}"
+    );
+}
+
+// A peer-median target below zero names the peers' median, not the subject's figures, which
+// a peer-median target does not read (found by review).
+#[test]
+fn a_negative_peer_median_target_is_put_down_to_the_peers() {
+    let mut sets = vec!["leverage.debt_measure=net", "target.source=peer-median"];
+    let cash: Vec<String> = (0..5).map(|i| format!("peer.{i}.cash=900")).collect();
+    sets.extend(cash.iter().map(String::as_str));
+    let message = fails(&sets);
+    assert!(
+        message.contains("the median D/E of the peers aggregated, with debt net of cash")
+            && !message.contains("target.subject_debt"),
+        "{message}"
+    );
+}
+
+// Under a peer-median target with net debt, a resample of the peers whose median net D/E is
+// below zero gives no WACC, as the case would refuse that peer set; the run goes on and counts
+// the draws that gave one (found by review: one such draw refused the whole valuation). The
+// case's own target is the median of its peers' net D/E (textbook median, on result.json's
+// inputs: exact, the same division).
+#[test]
+fn a_peer_set_draw_the_case_would_refuse_is_left_out_not_fatal() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "leverage.debt_measure=net",
+            "target.source=peer-median",
+            "peer.Brenvale Fluid Systems.cash=2000",
+        ],
+    );
+    let mut ratios: Vec<f64> = (result["peers"].as_array().unwrap().iter())
+        .map(|p| (number(p, "debt") - number(p, "cash")) / number(p, "equity_value"))
+        .collect();
+    ratios.sort_by(f64::total_cmp);
+    let median = 0.5 * (ratios[3] + ratios[4]);
+    assert!(
+        (number(&result, "target.debt_to_equity") - median).abs() <= 1e-15,
+        "the target is the median net D/E"
+    );
+    let (drawn, gave) = (
+        number(&result, "uncertainty.draws"),
+        number(&result, "uncertainty.peer_set.draws"),
+    );
+    assert!(gave < drawn && gave > 0.5 * drawn, "{gave} of {drawn}");
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains(&format!("{gave} of them gave a WACC")),
+        "{memo}"
+    );
+}

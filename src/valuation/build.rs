@@ -198,10 +198,34 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
                 .collect::<Vec<_>>()
         )),
         ChainError::CostOfDebt(problem) => case_error(crate::case::wording::debt_problem(&problem)),
-        ChainError::Target(target_de) => {
-            // The subject's figures named with their keys, so a --set of one is blamed on it
-            // (found by review: the refusal was put down to the file).
-            let t = &settings.target;
+        ChainError::Target(target_de) => case_error(target_message(settings, target_de)),
+        ChainError::PeerDebtBeta(i, debt_beta, beta_used) => Error::Estimation {
+            peer: settings.peers[i].name.clone(),
+            message: peer_debt_beta_message(debt_beta, beta_used),
+        },
+        ChainError::SubjectDebtBeta(debt_beta, unlevered) => {
+            case_error(subject_debt_beta_message(settings, debt_beta, unlevered))
+        }
+    }
+}
+
+/// Why a target D/E below 0 is refused, in the terms of its source: the subject's own figures
+/// with their keys (so a --set of one is blamed on it), or the peers' median (found by review:
+/// a negative peer median was put down to the subject's figures, which it does not use).
+fn target_message(settings: &crate::case::CaseFile, target_de: f64) -> String {
+    let t = &settings.target;
+    let source = crate::case::label(&t.source);
+    let measure = crate::case::label(&settings.leverage.debt_measure);
+    let shown = crate::error::rounded(target_de, 3);
+    let needs = "a target structure needs D/E >= 0";
+    match t.source {
+        crate::case::TargetSource::PeerMedian => format!(
+            "target.source = {source}: the median D/E of the peers aggregated, with debt net of \
+             cash (leverage.debt_measure = {measure}), is {shown}, below 0: at least half of \
+             them hold more cash than debt; {needs} (use leverage.debt_measure = \"gross\" or an \
+             explicit target)"
+        ),
+        _ => {
             let figure = |key: &str, value: Option<f64>| {
                 value.map(|v| format!(", target.{key} = {}", crate::error::compact(v)))
             };
@@ -213,21 +237,11 @@ pub fn chain_error(case: &Case, error: ChainError) -> Error {
             .into_iter()
             .flatten()
             .collect();
-            case_error(format!(
-                "target.source = {}: the target debt-to-equity works out at {}, below 0 (net \
-                 debt under leverage.debt_measure = {} is negative{figures}); a target \
-                 structure needs D/E >= 0",
-                crate::case::label(&settings.target.source),
-                crate::error::rounded(target_de, 3),
-                crate::case::label(&settings.leverage.debt_measure)
-            ))
-        }
-        ChainError::PeerDebtBeta(i, debt_beta, beta_used) => Error::Estimation {
-            peer: settings.peers[i].name.clone(),
-            message: peer_debt_beta_message(debt_beta, beta_used),
-        },
-        ChainError::SubjectDebtBeta(debt_beta, unlevered) => {
-            case_error(subject_debt_beta_message(settings, debt_beta, unlevered))
+            format!(
+                "target.source = {source}: the target debt-to-equity works out at {shown}, below \
+                 0 (net debt under leverage.debt_measure = {measure} is negative{figures}); \
+                 {needs}"
+            )
         }
     }
 }

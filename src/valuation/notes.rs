@@ -74,6 +74,7 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
              market-cap weights read them as given."
         ));
     }
+    notes.extend(net_debt_beta_note(settings));
     if settings.leverage.formula == Formula::Hamada
         && settings.leverage.debt_beta_source != DebtBetaSource::None
     {
@@ -83,6 +84,57 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
                 .to_string(),
         );
     }
+    notes
+}
+
+/// Net debt under a formula that takes a debt beta, with debt betas that may differ from 0: the
+/// cash netted against the debt then carries the debt's beta, not a beta of zero (found by
+/// review: README and the code's comments said zero). A given debt beta below 0 is a "Check:"
+/// note: debt ranks ahead of the equity on the same assets.
+fn net_debt_beta_note(settings: &CaseFile) -> Vec<String> {
+    let leverage = &settings.leverage;
+    let takes_debt_beta = leverage.formula != Formula::Hamada;
+    let mut notes = Vec::new();
+    let given = leverage.debt_beta_source == DebtBetaSource::Given;
+    let risky = match leverage.debt_beta_source {
+        DebtBetaSource::None => false,
+        DebtBetaSource::Given => {
+            leverage.debt_beta != 0.0 || settings.peers.iter().any(|p| p.debt_beta.is_some())
+        }
+        DebtBetaSource::CreditSpread => true,
+    };
+    if takes_debt_beta
+        && risky
+        && leverage.debt_measure == crate::capital::leverage::DebtMeasure::Net
+    {
+        notes.push(
+            "leverage.debt_measure = \"net\" with debt betas: each peer's cash is netted \
+             against its debt as negative debt at the debt's beta, not at a beta of zero, so \
+             its unlevered beta is that of the operations only if its cash is as risky as its \
+             debt; the betas of the operations (cash at a beta of zero, from gross debt) are \
+             beside them."
+                .to_string(),
+        );
+    }
+    // The case's own under "given"; a peer's own wins under either source that reads one.
+    let used = takes_debt_beta && leverage.debt_beta_source != DebtBetaSource::None;
+    let case_level =
+        (used && given).then(|| ("leverage.debt_beta".to_string(), leverage.debt_beta));
+    let own = (settings.peers.iter()).filter(|_| used).filter_map(|p| {
+        p.debt_beta
+            .map(|b| (format!("the debt beta of {}", p.name), b))
+    });
+    let negative = case_level
+        .into_iter()
+        .chain(own)
+        .filter(|(_, beta)| *beta < 0.0);
+    notes.extend(negative.map(|(what, beta)| {
+        format!(
+            "Check: {what} is {}, below 0: debt ranks ahead of the equity on the same assets and \
+             rarely moves against the market; check the figure.",
+            crate::error::compact(beta)
+        )
+    }));
     notes
 }
 

@@ -19,8 +19,8 @@ recomputes:
    unrelated regressions sandwich, Zellner 1962). Agreement to 1e-9: the same closed form in
    double precision on the same numbers.
 2. The leave-one-out WACCs, by the textbook Blume, Hamada, median, CAPM and WACC formulas. 1e-9.
-3. Both Monte Carlo intervals, by numpy's own random generator and its own draws (joint normal
-   betas; for the peer-set interval, the peers' estimates resampled with replacement, Efron's
+3. Both Monte Carlo intervals, by numpy's own random generator and its own draws (betas from
+   Student's t with each peer's N - 2 degrees of freedom, correlated through a joint normal; for the peer-set interval, the peers' estimates resampled with replacement, Efron's
    bootstrap over peers, without drawing the betas again): hurdle's 5th, 50th and
    95th percentiles must sit at those probabilities of numpy's distribution, within five standard
    errors of the two samples' binomial noise, 5 * sqrt(p(1 - p)(1/n_hurdle + 1/n_numpy)).
@@ -95,7 +95,7 @@ def main(out_dir):
         rows[row["peer"]].append(row)
     names = [p["name"] for p in result["peers"]]
     assert names == [p["name"] for p in case_file.CASE["peer"]], "peers in the case's order"
-    betas, ses, influence = [], [], []
+    betas, ses, influence, dfs = [], [], [], []
     for name in names:
         data = rows[name]
         rf = np.array([float(r.get("risk_free") or 0) for r in data])
@@ -107,6 +107,7 @@ def main(out_dir):
         e = y - X @ coef
         s2 = e @ e / (len(y) - 2)
         betas.append(coef[1])
+        dfs.append(len(y) - 2)
         ses.append(np.sqrt(s2 * (A[1] @ A[1])))
         influence.append(({r["period_end"]: k for k, r in enumerate(data)}, A[1] * e))
     n = len(names)
@@ -162,7 +163,11 @@ def main(out_dir):
     rng = np.random.default_rng(20261202)
     draws = 40000
     cov = np.diag(ses) @ R @ np.diag(ses)
-    joint = rng.multivariate_normal(betas, cov, size=draws)
+    # README, Monte Carlo: each beta from Student's t with its own N - 2 degrees of freedom,
+    # correlated through the normal part: beta + (L z)_i * sqrt(nu_i / w_i), w_i chi-square.
+    normal = rng.multivariate_normal(np.zeros(n), cov, size=draws)
+    dfs = np.array(dfs, dtype=float)
+    joint = betas + normal * np.sqrt(dfs / rng.chisquare(dfs, size=(draws, n)))
     check_quantiles("estimation-error interval", u, wacc(joint[:, members], members), u["draws"])
     # The peer-set interval: the aggregated peers' estimates resampled with replacement, the
     # betas not drawn again (their spread across peers already holds each one's error).

@@ -98,8 +98,33 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 14] =
+const KNOWN_CHANGES: [KnownChange; 15] =
     [
+        // Found by review: normal draws made the estimation-error interval too narrow for
+        // short windows.
+        KnownChange {
+            version: "0.15.0",
+            kind: "case",
+            paths: &[
+                "uncertainty.mean",
+                "uncertainty.p05",
+                "uncertainty.p25",
+                "uncertainty.p50",
+                "uncertainty.p75",
+                "uncertainty.p95",
+                "uncertainty.histogram",
+                "uncertainty.point_outside_interval",
+            ],
+            explain: |_, _| {
+                Some(
+                    "hurdle 0.15.0 draws each peer's beta from Student's t with its own degrees \
+                     of freedom, the distribution of its confidence interval, where an earlier \
+                     version drew it from the normal: the estimation-error interval is a little \
+                     wider, most for short windows (README, Changelog)"
+                        .to_string(),
+                )
+            },
+        },
         // Found by review: a case whose rolling windows were too short for Dimson's or
         // Scholes–Williams' shifted columns, or for the Newey–West lag rule, was told its
         // windows had too few observations.

@@ -13,8 +13,9 @@ fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
 
 /// One peer's beta of the operations, always from the unlevered beta at gross debt
 /// (`unlevered` is the peer's unlevered beta under the spec's debt measure): under net debt the
-/// unlevered beta has already netted the cash (at a beta of zero) against the debt, and
-/// dividing it by the operating share as well would count the cash twice. The one rule for the
+/// unlevered beta has already netted the cash against the debt (as negative debt, at the
+/// debt's beta, zero only for riskless debt), and dividing it by the operating share as well
+/// would count the cash twice. The one rule for the
 /// point estimate ([`operations_betas`]) and every draw (`wacc_with`).
 pub(super) fn peer_operations_beta(
     spec: &CapitalSpec<'_>,
