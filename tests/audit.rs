@@ -1790,8 +1790,8 @@ fn compare_names_the_preferred_and_lease_terms_the_weights_step_moves() {
     assert!(output.status.success(), "{report}");
     assert!(
         report.contains("note: the weights step also moves preferred equity and leases")
-            && report.contains("from preferred 0.0% at 0.00%, leases 10.0% at 4.63% pre-tax")
-            && report.contains("to preferred 0.0% at 0.00%, leases 10.0% at 5.00% pre-tax"),
+            && report.contains("from no preferred, leases 10.0% at 4.63% pre-tax")
+            && report.contains("to no preferred, leases 10.0% at 5.00% pre-tax"),
         "{report}"
     );
 }
@@ -2857,4 +2857,110 @@ fn a_receipt_of_0_10_0_verifies_and_names_the_lagged_response_flag() {
         "{report}"
     );
     assert!(!report.contains("MISMATCH wacc"), "{report}");
+}
+
+// A claim's stated WACC beyond its components is a row of the terminal's bridge, as of
+// bridge.csv, so the total is the gap between the two stated WACCs (found by review: it was the
+// components' gap, 0 bp between two claims that differ only in what they state). The claims'
+// own figures: 9.35% and 9.00% stated, so −35 bp.
+#[test]
+fn the_compare_total_is_the_gap_between_the_stated_waccs() {
+    let (_dir, case_dir) = demo_copy();
+    let claim = std::fs::read_to_string(case_dir.join("claimed.toml")).unwrap();
+    assert!(
+        claim.contains("wacc = 0.0935"),
+        "the demo claim states 9.35%"
+    );
+    std::fs::write(
+        case_dir.join("other.toml"),
+        claim.replacen("wacc = 0.0935", "wacc = 0.0900", 1),
+    )
+    .unwrap();
+    let output = hurdle(&[
+        "compare",
+        case_dir.join("claimed.toml").to_str().unwrap(),
+        case_dir.join("other.toml").to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert_eq!(report.matches("stated, unexplained").count(), 2, "{report}");
+    let total = report.lines().find(|l| l.starts_with("total")).unwrap();
+    assert!(total.trim_end().ends_with("-35 bp     -35 bp"), "{total}");
+    assert!(report.contains("so it depends on their order"), "{report}");
+}
+
+/// `hurdle implied CASE --wacc CLAIM --solve TARGET`, which must succeed; its output.
+fn solved(case: &Path, claim: &str, target: &str) -> String {
+    let output = hurdle(&[
+        "implied",
+        case.to_str().unwrap(),
+        "--wacc",
+        claim,
+        "--solve",
+        target,
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    report
+}
+
+// `implied` on the target D/E: the run's caution on a target above every aggregated peer's D/E
+// applies to a solved one too (found by review: 6.1 against peers of 0.1 to 0.7 passed
+// unremarked). The highest peer D/E is read from the case's own result.json.
+#[test]
+fn a_solved_target_beyond_the_peers_leverage_is_cautioned() {
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let out = case_dir.join("out");
+    let result = common::run_case_with(&case, &out, &[]);
+    let highest = (result["peers"].as_array().unwrap().iter())
+        .filter(|p| p["excluded_reason"].is_null())
+        .map(|p| p["debt_to_equity"].as_f64().unwrap())
+        .fold(f64::NEG_INFINITY, f64::max);
+    let report = solved(&case, "0.072", "debt_to_equity");
+    assert!(
+        report.contains(&format!(
+            "a target D/E above every aggregated peer's (the highest is {highest:.3})"
+        )),
+        "{report}"
+    );
+}
+
+// Leases without a cost of their own take the cost of debt (README, `[leases]`): solving for
+// the cost of debt moves theirs too, and the answer says so (found by review).
+#[test]
+fn solving_the_cost_of_debt_names_the_lease_cost_that_follows_it() {
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let text_of_case = std::fs::read_to_string(&case).unwrap();
+    std::fs::write(&case, format!("{text_of_case}\n[leases]\nweight = 0.1\n")).unwrap();
+    let report = solved(&case, "0.075", "cost_of_debt");
+    assert!(
+        report.contains(
+            "the leases' cost, which is the cost of debt (no leases.cost_pre_tax), moves with it"
+        ),
+        "{report}"
+    );
+}
+
+// An override the receipt records that no longer applies is named as the receipt's, not as a
+// `--set` the user typed (found by review).
+#[test]
+fn a_receipts_own_override_that_fails_is_named_as_the_receipts() {
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let out = case_dir.join("output");
+    common::run_case_with(&case, &out, &[]);
+    let receipt = out.join("result.json");
+    let mut recorded: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
+    recorded["case"]["overrides"] = serde_json::json!(["market.nonsense=0.06"]);
+    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    let output = hurdle(&["verify", receipt.to_str().unwrap()]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(2), "{report}");
+    assert!(
+        report.contains("the receipt records") && !report.contains("--set"),
+        "{report}"
+    );
 }

@@ -75,9 +75,28 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
         )));
     }
     let count = steps as usize + 1;
-    // Rounded to 12 decimals so that 0.04 + 3 × 0.005 is written 0.055, as a user would type it.
+    // Rounded to 15 significant digits of the axis's largest value, so that 0.04 + 3 × 0.005 is
+    // written 0.055 and −0.01 + 2 × 0.005 is 0, as a user would type them; a value typed with
+    // more decimals than 12 keeps them, and a value of 1e297 does not overflow (found by review:
+    // rounding to 12 decimals by multiplying by 1e12 made it infinite and 1e-13 steps 0).
+    // The value is taken to a whole number m of units 10^(e − 14), e the largest value's decimal
+    // exponent (|m| < 10^15, exact in an f64), and read back from the decimal text `me(e − 14)`,
+    // which Rust's parser rounds correctly.
+    let exponent = low.abs().max(high.abs()).log10().floor().max(-330.0) as i32 - 14;
     let values = (0..count)
-        .map(|i| ((low + i as f64 * step) * 1e12).round() / 1e12)
+        .map(|i| match i {
+            0 => low,
+            _ => {
+                let value = low + i as f64 * step;
+                let units = (value / 10f64.powi(exponent)).round();
+                // + 0.0: a rounded −0 is written 0.
+                format!("{units}e{exponent}")
+                    .parse::<f64>()
+                    .ok()
+                    .filter(|v| v.is_finite())
+                    .map_or(value, |rounded| rounded + 0.0)
+            }
+        })
         .collect();
     Ok(Axis {
         key: key.trim().to_string(),
@@ -378,6 +397,18 @@ mod tests {
         assert_eq!(axis.assignment(3), "market.equity_risk_premium=0.055");
         let single = parse_axis("--cols", "target.debt_to_equity=0.5..0.5:0.1").unwrap();
         assert_eq!(single.values, vec![0.5]);
+        // Decimal steps as typed, through 0 without a sign (−0.01 + 2 × 0.005 is −1.7e-18 in
+        // binary floating point); values beyond 1e296 and below 1e-12 kept, not made infinite
+        // or 0 (found by review).
+        let through_zero = parse_axis("--rows", "k=-0.01..0.01:0.005").unwrap();
+        assert_eq!(through_zero.values, vec![-0.01, -0.005, 0.0, 0.005, 0.01]);
+        assert!(through_zero.values[2].is_sign_positive());
+        let huge = parse_axis("--rows", "k=1e297..3e297:1e297").unwrap();
+        assert_eq!(huge.values, vec![1e297, 2e297, 3e297]);
+        let tiny = parse_axis("--rows", "k=0..4e-13:1e-13").unwrap();
+        assert_eq!(tiny.values, vec![0.0, 1e-13, 2e-13, 3e-13, 4e-13]);
+        let typed = parse_axis("--rows", "k=0.2500000000004..0.2500000000004:1").unwrap();
+        assert_eq!(typed.values, vec![0.2500000000004]);
     }
 
     #[test]

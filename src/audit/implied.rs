@@ -103,6 +103,9 @@ pub struct Implied {
     pub achieved_wacc: Option<f64>,
     /// How many scan intervals cross the claim (more than one: several values fit).
     pub crossings: usize,
+    /// The value found in each crossing interval after the first (ascending): the other values
+    /// that reproduce the claim.
+    pub other_values: Vec<f64>,
     /// The lowest and highest WACC seen over the scan (over the values the case accepts).
     pub wacc_min: f64,
     pub wacc_max: f64,
@@ -122,6 +125,12 @@ pub struct Implied {
     /// a solved risk-free rate should stay below.
     pub base_risk_free_rate: f64,
     pub base_cost_of_debt: Option<f64>,
+    /// The highest D/E of the peers the case aggregates, which a solved target D/E above it
+    /// extrapolates the formula beyond, as the run's caution says of a case's target.
+    pub peers_highest_debt_to_equity: f64,
+    /// Whether the case's leases, weighted, take their cost from the pre-tax cost of debt (no
+    /// `leases.cost_pre_tax`), so a solved cost of debt moves the leases' cost with it.
+    pub lease_cost_is_cost_of_debt: bool,
     /// For the relevered beta: the aggregate unlevered beta that relevers to the value found at
     /// the case's target structure, with the case's own aggregate beside it
     /// ([`UnleveredEquivalent`]); `None` for every other target or when nothing was found.
@@ -180,7 +189,24 @@ impl Implied {
             Target::RiskFree => USUAL_MAX_RISK_FREE,
             Target::CostOfDebt => USUAL_MAX_COST,
             Target::Beta => 3.0,
-            Target::DebtToEquity => return None,
+            // The run's caution on a case's target above every aggregated peer's D/E (found by
+            // review: a solved D/E of 6.1 against peers of 0.1 to 0.7 went without it).
+            Target::DebtToEquity => {
+                let high = self.peers_highest_debt_to_equity;
+                // A case that gives its target as debt to capital is solved in it.
+                let de = match self.key.as_str() {
+                    "target.debt_to_capital" => value / (1.0 - value),
+                    _ => value,
+                };
+                return (de > high).then(|| {
+                    format!(
+                        "a target D/E above every aggregated peer's (the highest is {}): the \
+                         relevered beta extrapolates the formula beyond the leverage the betas \
+                         were measured at",
+                        crate::error::rounded(high, 3)
+                    )
+                });
+            }
         };
         let what = match self.target {
             Target::Erp => "an equity risk premium",
@@ -302,6 +328,7 @@ pub fn implied(
         value,
         achieved_wacc,
         crossings: scan.crossings,
+        other_values: scan.others,
         wacc_min: scan.wacc_min,
         wacc_max: scan.wacc_max,
         refused: scan.refused,
@@ -312,6 +339,14 @@ pub fn implied(
         base_risk_free_rate: base.cost.risk_free_rate,
         base_cost_of_debt: (inputs.case.settings.debt.source == crate::case::DebtSource::Given)
             .then_some(base.cost.cost_of_debt_pre_tax),
+        lease_cost_is_cost_of_debt: {
+            let leases = &inputs.case.settings.leases;
+            leases.weight > 0.0 && leases.cost_pre_tax.is_none()
+        },
+        peers_highest_debt_to_equity: (base.peers.iter())
+            .filter(|p| p.excluded_reason.is_none())
+            .map(|p| p.debt_to_equity)
+            .fold(f64::NEG_INFINITY, f64::max),
         unlevered_equivalent: value
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
@@ -475,6 +510,8 @@ fn accepted_edge(
 /// highest WACC seen, and the values the case refused.
 struct Scan {
     value: Option<f64>,
+    /// The roots of the other crossing intervals, ascending.
+    others: Vec<f64>,
     crossings: usize,
     wacc_min: f64,
     wacc_max: f64,
@@ -526,20 +563,39 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
     let first = (0..last)
         .find(|&j| crossing(j))
         .and_then(|j| points[j].1.map(|gap| (j, gap)));
-    let value = match first {
+    let root = |j: usize, gap: f64| match gap {
         // The claim is the WACC at a scan value itself; bisecting from a zero gap would walk
         // away from it.
-        Some((j, 0.0)) => Some(points[j].0),
-        Some((j, gap)) => Some(bisect(
-            wacc_at,
-            (points[j].0, gap),
-            points[j + 1].0,
-            claimed,
-        )?),
-        None => None,
+        0.0 => Ok(points[j].0),
+        _ => bisect(wacc_at, (points[j].0, gap), points[j + 1].0, claimed),
     };
+    let (value, crossings) = match first {
+        Some((j, gap)) => (Some(root(j, gap)?), crossings),
+        // No crossing, but the WACC at a scan value (a range's end, say) within REPRODUCED of
+        // the claim: that value reproduces it (found by review: a claim 4e-12 beyond the
+        // WACC at D/E = 0 was reported out of reach while the range printed contained it).
+        None => {
+            // The points are in ascending order: the lowest such value, as for crossings.
+            let close: Vec<f64> = (points.iter())
+                .filter(|(_, gap)| gap.is_some_and(|g| g.abs() <= REPRODUCED))
+                .map(|&(x, _)| x)
+                .collect();
+            (close.first().copied(), close.len())
+        }
+    };
+    // Every other crossing's root, so a reader sees each value that fits (found by review: only
+    // the lowest was given, the case's own value lying nearer another).
+    let mut others = Vec::new();
+    if first.is_some() {
+        for j in (0..last).filter(|&j| crossing(j)).skip(1) {
+            if let Some(gap) = points[j].1 {
+                others.push(root(j, gap)?);
+            }
+        }
+    }
     Ok(Scan {
         value,
+        others,
         crossings,
         wacc_min,
         wacc_max,
@@ -597,6 +653,33 @@ mod tests {
         // Every value refused: the first refusal is the error.
         let message = solve(&wacc_at, 0.0, 0.2, 0.1).err().unwrap().to_string();
         assert_eq!(message, "regression: refused at 0");
+    }
+
+    // A cubic WACC = 0.05 + (x − 0.21)(x − 0.52)(x − 0.83) has the claim 0.05 at its three roots
+    // (algebra; none is a scan value i/64): the lowest is the answer and the other two are
+    // listed, each to a few ulps (bisection ends on adjacent doubles). Found by review: only
+    // the lowest was given.
+    #[test]
+    fn every_value_that_fits_is_given() {
+        let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + (x - 0.21) * (x - 0.52) * (x - 0.83)) };
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.05).unwrap();
+        assert_eq!(scan.crossings, 3);
+        assert!((scan.value.unwrap() - 0.21).abs() < 1e-15);
+        assert_eq!(scan.others.len(), 2);
+        assert!((scan.others[0] - 0.52).abs() < 1e-15 && (scan.others[1] - 0.83).abs() < 1e-15);
+    }
+
+    // A claim within REPRODUCED of the WACC at the range's end, just outside the range of WACCs,
+    // is reproduced by that end (found by review: a claim 4e-12 beyond the WACC at D/E = 0 was
+    // reported out of reach). The line 0.05 + 0.5·x on [0, 1]: at x = 0 the WACC is 0.05.
+    #[test]
+    fn a_claim_within_the_tolerance_of_an_end_is_met_there() {
+        let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + 0.5 * x) };
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.05 - 4e-12).unwrap();
+        assert_eq!((scan.value, scan.crossings), (Some(0.0), 1));
+        // Beyond the tolerance it is not.
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.05 - 1e-9).unwrap();
+        assert_eq!((scan.value, scan.crossings), (None, 0));
     }
 
     // A claim that is the WACC at a scan value (x = 32/64 = 0.5 of the 65 values over [0, 1])

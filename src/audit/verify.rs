@@ -368,7 +368,8 @@ pub fn verify(
             .map(str::to_string)
     };
     let (case_file, overrides) = rerun_source(receipt_path, &recorded, "case", case_path)?;
-    let case = read_case(&case_file, &overrides)?;
+    let case =
+        read_case(&case_file, &overrides).map_err(|e| recorded_overrides(receipt_path, e))?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
     let files_read = crate::case::files_read(&case);
     let inputs = load_inputs(case).map_err(|e| refused_since(e, &recorded))?;
@@ -470,6 +471,35 @@ fn headline(found: &Comparison) -> Vec<(String, bool)> {
             )
         })
         .collect()
+}
+
+/// A failure of the overrides a receipt records, named as the receipt's, not as a `--set` the
+/// user gave (found by review: an edited `case.overrides` read as the user's own `--set`).
+pub(super) fn recorded_overrides(receipt: &Path, error: Error) -> Error {
+    match error {
+        Error::Override {
+            assignment,
+            message,
+        } => Error::DataFile {
+            file: receipt.to_path_buf(),
+            message: format!(
+                "the override {assignment} the receipt records does not apply: {message}"
+            ),
+        },
+        Error::AfterOverrides {
+            file,
+            overrides,
+            message,
+        } => Error::DataFile {
+            file: receipt.to_path_buf(),
+            message: format!(
+                "{} with the overrides the receipt records ({}): {message}",
+                file.display(),
+                overrides.join(", ")
+            ),
+        },
+        other => other,
+    }
 }
 
 /// The input file a receipt's `section` (`case` or `universe`) names, found as

@@ -99,6 +99,23 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
         "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
         "input group", "from", "to", "WACC after", "step", "Shapley"
     ));
+    // A claim's stated WACC beyond its components, first for the starting side and last for
+    // the other, as bridge.csv lists them, so the total is the gap between the stated WACCs
+    // (found by review: the total was the components' gap alone).
+    let unexplained = |out: &mut String, wacc_after: f64, gap: f64| {
+        out.push_str(&format!(
+            "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
+            "stated, unexplained",
+            "",
+            "",
+            percent(wacc_after, 3),
+            basis_points(gap),
+            basis_points(gap)
+        ));
+    };
+    if let Some(gap) = b.unexplained_from.filter(|g| *g != 0.0) {
+        unexplained(&mut out, b.from.wacc, -gap);
+    }
     for s in &b.steps {
         let shown = |x: f64| match s.group {
             Group::Beta => fixed(x, 3),
@@ -115,15 +132,26 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
             basis_points(s.shapley)
         ));
     }
+    if let Some(gap) = b.unexplained.filter(|g| *g != 0.0) {
+        unexplained(&mut out, b.to.stated_wacc.unwrap_or(b.to.wacc), gap);
+    }
     out.push_str(&format!(
         "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
         "total",
         "",
         "",
         "",
-        basis_points(b.difference),
-        basis_points(b.difference)
+        basis_points(b.stated_difference()),
+        basis_points(b.stated_difference())
     ));
+    // The steps are taken one after another in the order listed, so each depends on the ones
+    // before it; the Shapley value averages a group's step over every order (found by review:
+    // the two columns stood side by side unexplained).
+    out.push_str(
+        "note: each step takes one group from the other side after the groups above it, so it \
+         depends on their order; the Shapley value is the group's step averaged over every \
+         order\n",
+    );
     out.push_str(&notes(b, csv));
     out.push_str(&side_notes(b));
     if let [Some(from), Some(to)] = facts {
@@ -223,13 +251,21 @@ fn notes(b: &Bridge, csv: bool) -> String {
         }
     }
     // Preferred equity and leases move with the weights group, their costs included.
+    // A component of weight 0 is "none": its cost is then no input (found by review: a side
+    // without leases read "leases 0.0% at 0.00% pre-tax").
     let other = |u: &hurdle::audit::bridge::BuildUp| {
+        let part = |name: &str, weight: f64, cost: f64, taxed: &str| match weight == 0.0 {
+            true => format!("no {name}"),
+            false => format!(
+                "{name} {} at {}{taxed}",
+                percent(weight, 1),
+                percent(cost, 2)
+            ),
+        };
         format!(
-            "preferred {} at {}, leases {} at {} pre-tax",
-            percent(u.preferred_weight, 1),
-            percent(u.preferred_cost, 2),
-            percent(u.lease_weight, 1),
-            percent(u.lease_cost_pre_tax, 2)
+            "{}, {}",
+            part("preferred", u.preferred_weight, u.preferred_cost, ""),
+            part("leases", u.lease_weight, u.lease_cost_pre_tax, " pre-tax")
         )
     };
     let (from, to) = (&b.from.build_up, &b.to.build_up);

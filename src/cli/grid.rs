@@ -101,8 +101,9 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     };
     for key in table.unmoved_axes() {
         out.push_str(&format!(
-            "note: the {figure} does not move along {key}: under the case's settings it changes \
-             nothing (`hurdle run` notes the settings a case gives but does not use)\n"
+            "note: the {figure} does not move along {key} over the values tried: a setting the \
+             case does not use (`hurdle run` notes those), or one that does not reach the \
+             figure over this range (a peer's figures away from the median, say)\n"
         ));
     }
     let path = args

@@ -193,13 +193,20 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
             };
             let mut note = format!("exact: {value}");
             if r.crossings > 1 {
-                note.push_str(&format!("; {} values fit, the lowest shown", r.crossings));
+                note.push_str(&format!(
+                    "; {} values fit, the lowest shown{}",
+                    r.crossings,
+                    others_text(r)
+                ));
             }
             if let Some(caution) = r.caution() {
                 note.push_str(&format!("; caution: {caution}"));
             }
             if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
                 note.push_str("; the cost of debt, rf plus the table's spread, moves with it");
+            }
+            if r.target == Target::CostOfDebt && r.lease_cost_is_cost_of_debt {
+                note.push_str("; the leases' cost, the cost of debt's, moves with it");
             }
             if let Some(u) = &r.unlevered_equivalent {
                 note.push_str(&format!("; {}", unlevered_line(u)));
@@ -297,8 +304,9 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     }
     if r.crossings > 1 {
         println!(
-            "  note: {} intervals of the range cross the claim; this is the lowest value",
-            r.crossings
+            "  note: {} intervals of the range cross the claim; this is the lowest value{}",
+            r.crossings,
+            others_text(r)
         );
     }
     if let Some(caution) = r.caution() {
@@ -306,6 +314,29 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     }
     if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
         println!("  note: the cost of debt, rf plus the table's spread, moves with the rate");
+    }
+    // Found by review: the leases' cost moved unsaid.
+    if r.target == Target::CostOfDebt && r.lease_cost_is_cost_of_debt {
+        println!(
+            "  note: the leases' cost, which is the cost of debt (no leases.cost_pre_tax), moves \
+             with it"
+        );
+    }
+}
+
+/// The other values that reproduce the claim, as `; the others: …`, or nothing when the search
+/// has none to give (values at the WACC within the tolerance, not crossings).
+fn others_text(r: &hurdle::audit::implied::Implied) -> String {
+    let show = shown(r);
+    match r.other_values.is_empty() {
+        true => String::new(),
+        false => format!(
+            "; the others: {}",
+            (r.other_values.iter())
+                .map(|&x| show(x))
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
     }
 }
 

@@ -56,9 +56,9 @@ impl Grid {
     }
 
     /// The keys of the axes along which no computed figure changes (each axis with at least
-    /// two values, and at least two computed cells to compare along it): under the case's
-    /// settings such a key changes nothing, for instance Newey–West lags with classical
-    /// standard errors.
+    /// two values, and at least two computed cells to compare along it): a key the case does not
+    /// use (Newey–West lags with classical standard errors), or one that does not reach the
+    /// figure over the values tried (a peer's debt away from the median).
     pub fn unmoved_axes(&self) -> Vec<&str> {
         let along_rows = (0..self.columns.values.len())
             .map(|c| self.cells.iter().map(move |row| row[c]).collect::<Vec<_>>());
@@ -134,7 +134,9 @@ pub struct Uncertainty {
 /// aggregated) and draws their betas from their joint sampling distribution.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PeerSetInterval {
-    /// Draws that gave a WACC (a resample whose betas admit no Vasicek prior is skipped).
+    /// Draws that gave a WACC: under a peer-median target, a resample whose peers' median D/E
+    /// is below 0 (net debt) gives none; a resample of one repeated peer under a cross-sectional
+    /// Vasicek prior counts at its limit, the unadjusted betas.
     pub draws: u32,
     pub mean: f64,
     pub p05: f64,
@@ -440,6 +442,15 @@ pub struct Bridge {
     pub unexplained_from: Option<f64>,
     /// The bridge as waterfall bars, by Shapley value (see `audit::waterfall`).
     pub waterfall: Vec<WaterfallBar>,
+}
+
+impl Bridge {
+    /// The gap between the two WACCs as stated (a claim's `wacc`, else its components'), which
+    /// the unexplained parts and the steps add up to, as in `bridge.csv`.
+    pub fn stated_difference(&self) -> f64 {
+        let stated = |side: &Side| side.stated_wacc.unwrap_or(side.wacc);
+        stated(&self.to) - stated(&self.from)
+    }
 }
 
 /// Bin edges (one more than the counts) and counts of the values in each bin.

@@ -45,7 +45,8 @@ pub fn verify_universe(
     }
     let text = |pointer: &str| recorded.pointer(pointer).and_then(Value::as_str);
     let (file, overrides) = rerun_source(receipt_path, recorded, "universe", universe_path)?;
-    let universe = read_universe(&file, &overrides)?;
+    let universe =
+        read_universe(&file, &overrides).map_err(|e| super::recorded_overrides(receipt_path, e))?;
     let files_read = universe.files_read();
     let unchanged = Some(universe.sha256.as_str()) == text("/universe/sha256");
     let inputs = load_inputs(universe).map_err(|e| super::checks::refused_since(e, recorded))?;
