@@ -368,7 +368,11 @@ fn the_memo_words_agree_with_the_figures() {
     let dir = tempfile::tempdir().unwrap();
     let result = run_demo(dir.path(), &["--set", "leverage.operations_beta=true"]);
     let svg = std::fs::read_to_string(dir.path().join("figures/betas.svg")).unwrap();
-    assert!(svg.contains("included betas of the operations, βU = "));
+    // Named β_ops, and the square the β of the operations, not the unlevered β (found by
+    // review: the caption called the square both and the aggregate βU).
+    assert!(svg.contains("included betas of the operations, β_ops = "));
+    assert!(svg.contains("the β of the operations (cash at a beta of zero)"));
+    assert!(!svg.contains("trimmed-mean") && svg.contains("Beta, equity or of the operations"));
     let first = &result["peers"][0];
     let operations = format!("operations {:.3}", number(first, "operations_beta"));
     assert!(svg.contains(&operations), "betas.svg lacks `{operations}`");

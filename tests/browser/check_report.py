@@ -16,7 +16,10 @@ checks:
     to screen pixels through the SVG's current transform; the tolerance is what one SVG pixel of
     rounding at each end point can do to the slope (plotters draws on whole pixels);
   - printed to PDF on A4 and on Letter paper, the cautions are on the last page (pdftotext), and
-    with print styles at either paper's text width no table is wider than the page;
+    with print styles at either paper's text width no table is wider than the page and two
+    charts of a gallery (the regressions) fit one page's text height with their margins;
+  - on a 400 px screen every chart is drawn at least 500 px wide (the page scrolls sideways
+    there), so its 11 px legend reads at 8 px or more, not half its size;
 
 and saves a full-page screenshot and both PDFs in ARTIFACT_DIR (kept as CI artifacts, never in
 the repository). Prints one line per failure and a closing "N passed, M failed" line; exits 1 on
@@ -166,6 +169,19 @@ PROBE = r"""
 })()
 """
 
+# The rendered width of every chart, and the height of every chart in a two-chart gallery.
+CHART_SIZES = r"""
+JSON.stringify({
+  widths: [...document.querySelectorAll('figure.chart svg')].map(s => s.getBoundingClientRect().width),
+  gallery: [...document.querySelectorAll('.gallery.two figure.chart')].map(f => {
+    const style = getComputedStyle(f);
+    return f.getBoundingClientRect().height + parseFloat(style.marginTop) + parseFloat(style.marginBottom);
+  })
+})
+"""
+# The report's print margins top and bottom (15 mm and 16 mm, report.rs).
+VERTICAL_MARGINS_MM = 31.0
+
 # With print styles at the paper's text width: the widest table against its container.
 OVERFLOW = r"""
 JSON.stringify([...document.querySelectorAll('table')].map(t =>
@@ -290,7 +306,19 @@ def main(out_dir, artifacts):
             # layout widths, so a table that fits exactly can report one pixel more.
             wide = [w for w in widths if w[0] > w[1] + 1]
             check(f"{paper}: every table fits the text width ({text_width} px)", not wide, str(wide))
+            sizes = json.loads(browser.send("Runtime.evaluate", {"expression": CHART_SIZES, "returnByValue": True},
+                                            session=session)["result"]["value"])
+            text_height = (height * 25.4 - VERTICAL_MARGINS_MM) / 25.4 * 96
+            tallest = max(sizes["gallery"], default=0.0)
+            check(f"{paper}: two gallery charts share a page ({tallest:.0f} px each, page {text_height:.0f} px)",
+                  2 * tallest <= text_height, str(sizes["gallery"][:4]))
         browser.send("Emulation.setEmulatedMedia", {"media": ""}, session=session)
+        browser.send("Emulation.setDeviceMetricsOverride",
+                     {"width": 400, "height": 900, "deviceScaleFactor": 1, "mobile": False}, session=session)
+        narrow = json.loads(browser.send("Runtime.evaluate", {"expression": CHART_SIZES, "returnByValue": True},
+                                         session=session)["result"]["value"])["widths"]
+        check("400 px screen: every chart at least 500 px wide", min(narrow, default=0) >= 500,
+              str(sorted(narrow)[:4]))
         browser.send("Emulation.clearDeviceMetricsOverride", session=session)
         for paper, (width, height) in PAPERS.items():
             pdf = browser.send("Page.printToPDF", {

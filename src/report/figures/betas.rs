@@ -16,7 +16,7 @@ use super::style::{self, ACCENT, INK, MUTED, PRIMARY, RULE};
 use super::{Figure, Kind};
 use crate::case::Adjustment;
 use crate::error::Result;
-use crate::report::format::{fixed, label};
+use crate::report::format::fixed;
 use crate::valuation::{PeerResult, Valuation};
 
 const WIDTH: u32 = 720;
@@ -24,8 +24,19 @@ const WIDTH: u32 = 720;
 const ROW: f64 = 40.0;
 /// Row units of an excluded peer (its reason takes a second line).
 const EXCLUDED_ROW: f64 = 1.5;
-/// Width of the band of peer names.
-const NAMES: u32 = 210;
+/// The least and the most width of the band of peer names: it widens with the longest name
+/// between them (found by review: at 210 pixels, ordinary names of 24 characters were cut
+/// while the plot had room to spare; the bridge chart's label band does the same).
+const NAMES: (u32, u32) = (210, 330);
+
+/// The band of peer names for `names` (every peer's, so all parts share it): the longest
+/// name's estimated width (frame.rs) with the gap to the plot and the margin, within
+/// [`NAMES`].
+fn names_band(names: &[&str]) -> u32 {
+    let longest = names.iter().map(|n| n.chars().count()).max().unwrap_or(0);
+    let text = (longest as f64 * style::LABEL * super::frame::CHAR_EM).ceil() as u32;
+    (text + 12 + style::MARGIN as u32).clamp(NAMES.0, NAMES.1)
+}
 /// The most row units (a peer 1, an excluded one [`EXCLUDED_ROW`], the divider half a unit) one
 /// chart holds: a longer list goes on in `betas-2.svg`, … so each part prints on a page at a
 /// legible size (the print styles cap a chart at 240 mm: with the title, legend, axis and caption
@@ -127,6 +138,7 @@ fn draw_part(
     (k, count): (usize, usize),
     left_out: &str,
 ) -> Result<Figure> {
+    let all: Vec<&str> = valuation.peers.iter().map(|p| p.name.as_str()).collect();
     let (rows, divider, bottom) = rows(peers);
     let cash = valuation.cost.beta.uses_operations_beta;
     // The β axis spans every peer's marks, so all parts share one scale.
@@ -143,9 +155,14 @@ fn draw_part(
     let axes = Axes {
         x: Scale::plain(low.min(aggregate), high.max(aggregate), 0.05, 8),
         y: Scale::bare(bottom, -0.35),
-        x_title: "Beta, equity or unlevered (the index = 1)".to_string(),
+        // Found by review: under the betas of the operations the title still said "unlevered".
+        x_title: match valuation.cost.beta.uses_operations_beta {
+            true => "Beta, equity or of the operations (the index = 1)",
+            false => "Beta, equity or unlevered (the index = 1)",
+        }
+        .to_string(),
         y_title: String::new(),
-        left: NAMES,
+        left: names_band(&all),
         bottom: 50,
         y_ticks: false,
     };
@@ -174,7 +191,6 @@ fn draw_part(
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &legend))?;
     axes.draw(&mut canvas, &layout)?;
-    let all: Vec<&str> = valuation.peers.iter().map(|p| p.name.as_str()).collect();
     names(&mut canvas, &layout, &axes, (&rows, &all), divider)?;
     marks(
         &mut canvas,
@@ -425,17 +441,20 @@ fn caption(valuation: &Valuation, line_here: bool, left_out: &str) -> String {
     let summary = &valuation.cost.beta;
     format!(
         "For each peer: the raw β (dot) with its 95% confidence interval ({} standard errors, \
-         Student t), the β used ({}; triangle) and the unlevered β by {} (square{}). {} the {} \
-         of the {} included {}, βU = {}, relevered to {} at the \
+         Student t), the β used ({}; triangle) and {} (square). {} the {} \
+         of the {} included {}, {} = {}, relevered to {} at the \
          target D/E of {}. {}The grey line marks β = 1, the index. Figures: result.json peers[] \
          (beta, beta_ci_low, beta_ci_high, beta_used, {}) and beta.unlevered.",
         super::std_errors_name(valuation.estimator.std_errors),
         used_label(valuation),
-        summary.formula_source,
-        if summary.uses_operations_beta {
-            "; the beta of the operations, cash at beta zero"
-        } else {
-            ""
+        // Found by review: the square was called both the unlevered β and the β of the
+        // operations, and the aggregate βU under the operations.
+        match summary.uses_operations_beta {
+            true => format!(
+                "the β of the operations (cash at a beta of zero), from the unlevered β by {}",
+                summary.formula_source
+            ),
+            false => format!("the unlevered β by {}", summary.formula_source),
         },
         match line_here {
             true => "The dashed line is",
@@ -443,13 +462,17 @@ fn caption(valuation: &Valuation, line_here: bool, left_out: &str) -> String {
                 "The peers here are all left out; the dashed line, drawn beside the \
                       included peers, is",
         },
-        label(&summary.aggregation),
+        summary.aggregation.noun(),
         summary.peers_included,
         match (summary.uses_operations_beta, summary.peers_included == 1) {
             (true, false) => "betas of the operations",
             (true, true) => "beta of the operations",
             (false, false) => "unlevered betas",
             (false, true) => "unlevered beta",
+        },
+        match summary.uses_operations_beta {
+            true => "β_ops",
+            false => "βU",
         },
         fixed(summary.unlevered, 3),
         fixed(summary.relevered, 3),

@@ -166,12 +166,18 @@ fn figure(figure: &Figure) -> String {
     )
 }
 
-/// The page's styles: screen first, then print (A4 and Letter alike: no fixed page size).
+/// The page's styles: screen first, then print (A4 and Letter alike: no fixed page size). Found
+/// by review and checked in Chromium by tests/browser/check_report.py: a chart keeps at least
+/// 34rem on a narrow screen and scrolls sideways (at 400 px its text was 5 px high); the page
+/// widens to 80rem, so a gallery's two columns draw regression charts near their own size; a
+/// code span (a file's path in a table) breaks only where it would overflow, not down to one
+/// character a line; in print a gallery's charts take 70% of the text width, so two regression
+/// charts share a page, and the paragraph after a table stays with it.
 const STYLE: &str = r#":root { --ink: #1F2933; --muted: #52606D; --rule: #DDE2E8; --primary: #1F4E85; --accent: #B05A00; --wash: #F4F6F9; }
 * { box-sizing: border-box; }
 html { font-family: system-ui, -apple-system, 'Segoe UI', 'Helvetica Neue', Arial, 'Liberation Sans', sans-serif; color: var(--ink); background: #FFFFFF; font-size: 15px; line-height: 1.5; }
 body { margin: 0; }
-main { max-width: 68rem; margin: 0 auto; padding: 2rem 1.5rem 4rem; }
+main { max-width: 80rem; margin: 0 auto; padding: 2rem 1.5rem 4rem; }
 h1 { font-size: 1.75rem; line-height: 1.25; margin: 0 0 1rem; color: var(--primary); }
 h2 { font-size: 1.3rem; margin: 2.5rem 0 0.75rem; padding-bottom: 0.3rem; border-bottom: 2px solid var(--rule); }
 h2.contents { font-size: 1rem; border: 0; margin: 1.5rem 0 0.25rem; color: var(--muted); text-transform: uppercase; letter-spacing: 0.05em; }
@@ -179,7 +185,7 @@ h3 { font-size: 1.05rem; margin: 1.5rem 0 0.5rem; }
 p, ul { margin: 0.6rem 0; max-width: 52rem; }
 li { margin: 0.2rem 0; }
 a { color: var(--primary); }
-code { font-family: ui-monospace, 'SFMono-Regular', Menlo, Consolas, 'Liberation Mono', monospace; font-size: 0.85em; background: var(--wash); padding: 0.05em 0.3em; border-radius: 3px; overflow-wrap: anywhere; }
+code { font-family: ui-monospace, 'SFMono-Regular', Menlo, Consolas, 'Liberation Mono', monospace; font-size: 0.85em; background: var(--wash); padding: 0.05em 0.3em; border-radius: 3px; overflow-wrap: break-word; }
 nav ol { columns: 2; margin: 0; padding-left: 0; list-style: none; max-width: 52rem; }
 .table { overflow-x: auto; margin: 0.8rem 0 1.2rem; }
 table { border-collapse: collapse; font-size: 0.87rem; font-variant-numeric: tabular-nums; }
@@ -190,8 +196,8 @@ td.keep { white-space: nowrap; }
 tbody tr:nth-child(even) td { background: #FAFBFC; }
 .gallery { margin: 1rem 0 1.5rem; }
 .gallery.two { display: grid; grid-template-columns: repeat(auto-fit, minmax(min(30rem, 100%), 1fr)); gap: 1rem; }
-figure.chart { margin: 0 0 1rem; }
-figure.chart svg { display: block; width: 100%; height: auto; max-width: 760px; border: 1px solid var(--rule); border-radius: 4px; }
+figure.chart { margin: 0 0 1rem; overflow-x: auto; }
+figure.chart svg { display: block; width: 100%; height: auto; min-width: 34rem; max-width: 760px; border: 1px solid var(--rule); border-radius: 4px; }
 section.cautions { border-top: 3px solid var(--accent); margin-top: 2.5rem; }
 section.cautions h2 { border: 0; }
 @media print {
@@ -203,7 +209,10 @@ section.cautions h2 { border: 0; }
   h3 { break-after: avoid; }
   section { break-before: page; }
   section:first-of-type { break-before: auto; }
-  .gallery.two figure.chart svg { max-width: 86%; margin: 0 auto; }
+  .gallery.two figure.chart svg { width: 70%; max-width: 70%; margin: 0 auto; }
+  figure.chart { overflow: visible; }
+  figure.chart svg { min-width: 0; }
+  .table + p { break-before: avoid; }
   nav { break-inside: avoid; }
   .table { overflow: visible; }
   table { font-size: 7.5pt; width: 100%; }

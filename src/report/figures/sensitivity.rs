@@ -95,23 +95,30 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
     // The first row on top: y category i (from the bottom) is row rows − 1 − i.
     let mut row_names = value_labels(&grid.rows);
     row_names.reverse();
+    let fit = Fit::of(grid);
     let axes = Axes {
-        x: Scale::categories(value_labels(&grid.columns)),
+        x: Scale::categories(fit.column_labels(value_labels(&grid.columns))),
         y: Scale::categories(row_names),
         x_title: key_title(&grid.columns.key),
         y_title: key_title(&grid.rows.key),
-        left: 92,
+        left: LEFT,
         bottom: 50,
         y_ticks: true,
     };
     let title = format!("{metric} sensitivity: the case's figure as two inputs vary");
-    let caption = caption(valuation, grid, metric);
+    let mut caption = caption(valuation, grid, metric);
+    if fit.value_px.is_none() {
+        caption.push_str(
+            " The cells are too narrow to print their figures: the memo's sensitivity table \
+             gives each.",
+        );
+    }
     let layout = Layout::new(WIDTH, CELL_HEIGHT * rows as u32 + 70, &title, &[], &caption);
     let name = super::SENSITIVITY.to_string();
     let mut canvas = Canvas::new(&name, WIDTH, layout.height());
     canvas.layer("frame", |root| layout.frame(root, &[]))?;
     axes.draw(&mut canvas, &layout)?;
-    plot(&mut canvas, &layout, &axes, grid, &shade)?;
+    plot(&mut canvas, (&layout, &axes), grid, &shade, fit.value_px)?;
     let description = format!("{caption} {}", data_summary(grid));
     Ok(Figure {
         kind: Kind::Sensitivity,
@@ -123,13 +130,64 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
     })
 }
 
-/// The shaded cells, their printed values and the outline of the case's own cell.
+/// What a dense grid leaves room for (found by review: a 21 × 21 grid printed its figures over
+/// each other and ran its column labels together): the size of the figures in the cells, from
+/// [`style::LABEL`] down to [`SMALLEST_VALUE`], or none when even that overruns a cell, and
+/// every how many columns a label is written.
+struct Fit {
+    value_px: Option<f64>,
+    label_every: usize,
+}
+
+/// The smallest size the cells' figures are printed at.
+const SMALLEST_VALUE: f64 = 9.0;
+/// The y labels' band.
+const LEFT: u32 = 92;
+
+impl Fit {
+    fn of(grid: &Grid) -> Fit {
+        let columns = grid.columns.values.len().max(1);
+        let cell = f64::from(super::axes::plot_width(WIDTH, LEFT)) / columns as f64;
+        // Room each side of a figure or a label, in pixels.
+        let room = cell - 6.0;
+        let widest = |texts: &[String]| texts.iter().map(|t| t.chars().count()).max().unwrap_or(1);
+        let figures: Vec<String> = (grid.cells.iter().flatten())
+            .map(|v| v.map_or_else(|| "n/a".to_string(), |v| percent(v, 2)))
+            .collect();
+        let chars = widest(&figures) as f64;
+        let value_px = [style::LABEL, 13.0, 12.0, 11.0, 10.0, SMALLEST_VALUE]
+            .into_iter()
+            .find(|px| chars * px * super::frame::CHAR_EM <= room);
+        let label =
+            widest(&value_labels(&grid.columns)) as f64 * style::TICK * super::frame::CHAR_EM;
+        let label_every = ((label + 6.0) / cell).ceil().max(1.0) as usize;
+        Fit {
+            value_px,
+            label_every,
+        }
+    }
+
+    /// The column labels, every `label_every`-th written from the first and the others empty.
+    fn column_labels(&self, labels: Vec<String>) -> Vec<String> {
+        labels
+            .into_iter()
+            .enumerate()
+            .map(|(i, label)| match i % self.label_every {
+                0 => label,
+                _ => String::new(),
+            })
+            .collect()
+    }
+}
+
+/// The shaded cells, their printed values (at `value_px`, none without it) and the outline of
+/// the case's own cell.
 fn plot(
     canvas: &mut Canvas,
-    layout: &Layout,
-    axes: &Axes,
+    (layout, axes): (&Layout, &Axes),
     grid: &Grid,
     shade: &dyn Fn(Option<f64>) -> RGBColor,
+    value_px: Option<f64>,
 ) -> Result<()> {
     let rows = grid.rows.values.len();
     let cell = |r: usize, c: usize| {
@@ -151,29 +209,31 @@ fn plot(
         )?;
         Ok(())
     })?;
-    plot_layer(canvas, layout, axes, "values", |chart| {
-        chart.draw_series(cells().map(|(r, c, v)| {
-            let background = shade(v);
-            let colour = if style::needs_light_text(&background) {
-                PAPER
-            } else {
-                INK
-            };
-            let bold = grid.base_cell == Some([r, c]);
-            let font = if bold {
-                style::bold(style::LABEL, &colour)
-            } else {
-                style::text(style::LABEL, &colour)
-            };
-            let [(x0, y0), _] = cell(r, c);
-            Text::new(
-                v.map_or_else(|| "n/a".to_string(), |v| percent(v, 2)),
-                (x0 + 0.5, y0 + 0.5),
-                font.pos(Pos::new(HPos::Center, VPos::Center)),
-            )
-        }))?;
-        Ok(())
-    })?;
+    if let Some(px) = value_px {
+        plot_layer(canvas, layout, axes, "values", |chart| {
+            chart.draw_series(cells().map(|(r, c, v)| {
+                let background = shade(v);
+                let colour = if style::needs_light_text(&background) {
+                    PAPER
+                } else {
+                    INK
+                };
+                let bold = grid.base_cell == Some([r, c]);
+                let font = if bold {
+                    style::bold(px, &colour)
+                } else {
+                    style::text(px, &colour)
+                };
+                let [(x0, y0), _] = cell(r, c);
+                Text::new(
+                    v.map_or_else(|| "n/a".to_string(), |v| percent(v, 2)),
+                    (x0 + 0.5, y0 + 0.5),
+                    font.pos(Pos::new(HPos::Center, VPos::Center)),
+                )
+            }))?;
+            Ok(())
+        })?;
+    }
     if let Some([r, c]) = grid.base_cell {
         plot_layer(canvas, layout, axes, "base-cell", |chart| {
             let [(x0, y0), (x1, y1)] = cell(r, c);

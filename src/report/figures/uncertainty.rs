@@ -95,26 +95,44 @@ pub fn draw(u: &Uncertainty) -> Result<Figure> {
 /// The bars, the percentile lines and the point estimate, each line labelled.
 fn plot(canvas: &mut Canvas, layout: &Layout, axes: &Axes, u: &Uncertainty) -> Result<()> {
     let h = &u.histogram;
+    // A bin of a few draws is drawn at least LEAST_BAR of the axis high, about 3 pixels, and
+    // only bars of several times that get the white hairline, which would cover a shorter one
+    // (found by review: bins of one to eight draws in the tails were 0 or 1 pixel high and
+    // hidden under their outline, so the spread looked narrower than the counts say).
+    let least = LEAST_BAR * axes.y.range.end;
+    let height = |count: u32| match count {
+        0 => 0.0,
+        _ => f64::from(count).max(least),
+    };
     plot_layer(canvas, layout, axes, "bars", |chart| {
         chart.draw_series(h.counts.iter().enumerate().map(|(i, &count)| {
             Rectangle::new(
-                [(h.edges[i], 0.0), (h.edges[i + 1], f64::from(count))],
+                [(h.edges[i], 0.0), (h.edges[i + 1], height(count))],
                 BARS.filled(),
             )
         }))?;
         // White hairlines between neighbouring bars.
-        chart.draw_series(h.counts.iter().enumerate().filter(|(_, &c)| c > 0).map(
-            |(i, &count)| {
-                Rectangle::new(
-                    [(h.edges[i], 0.0), (h.edges[i + 1], f64::from(count))],
-                    PAPER.stroke_width(1),
-                )
-            },
-        ))?;
+        let outlined = |count: u32| f64::from(count) >= 3.0 * least;
+        chart.draw_series(
+            h.counts
+                .iter()
+                .enumerate()
+                .filter(|(_, &c)| outlined(c))
+                .map(|(i, &count)| {
+                    Rectangle::new(
+                        [(h.edges[i], 0.0), (h.edges[i + 1], f64::from(count))],
+                        PAPER.stroke_width(1),
+                    )
+                }),
+        )?;
         Ok(())
     })?;
     lines(canvas, layout, axes, u)
 }
+
+/// The least height of a bar holding a draw, as a share of the y axis: about 3 pixels of the
+/// plot's height.
+const LEAST_BAR: f64 = 0.012;
 
 /// The heights of the label rows, top down, as shares of the y axis: the bars reach 1/1.45 of
 /// it (about 0.69), so the lowest row's text clears the tallest bar by some 8 px.
