@@ -269,8 +269,14 @@ pub fn shorten_long_numbers(text: &str) -> String {
         let number = &text[i..end];
         let digits = number.bytes().filter(u8::is_ascii_digit).count();
         let zeros = "0".repeat(16);
+        // Only digits exactly as Rust writes that f64 (with serde's ".0" after a whole one):
+        // text quoted from a file keeps its own digits (found by review).
+        let as_written = |value: f64| {
+            let plain = format!("{value}");
+            number == plain || number == format!("{plain}.0")
+        };
         if digits > LONG_NUMBER && number.replace('.', "").contains(&zeros) {
-            if let Ok(value) = number.parse::<f64>() {
+            if let Some(value) = number.parse::<f64>().ok().filter(|&v| as_written(v)) {
                 out.push_str(&text[copied..i]);
                 out.push_str(&format!("{value:e}"));
                 copied = end;
@@ -369,6 +375,15 @@ mod tests {
         assert_eq!(shown(0.0325), "debt = 0.0325 is outside (0, 1e15)");
         let id = "security 123456789012345678901234567890 at line 3";
         assert_eq!(super::shorten_long_numbers(id), id);
+        // Digits quoted from a file that are not how Rust writes their value stay as written.
+        let cell = "\"12.5 ref 20000000000000000000000000007\" is not a number";
+        assert_eq!(super::shorten_long_numbers(cell), cell);
+        // serde writes a whole float with ".0".
+        let serde = format!("{}.0 is not a whole number", 1e30);
+        assert_eq!(
+            super::shorten_long_numbers(&serde),
+            "1e30 is not a whole number"
+        );
     }
 
     // The position follows the TOML 1.0 grammar's own error: an unknown key on line 3, column 1;

@@ -2328,7 +2328,7 @@ fn claimed_files() -> Vec<Bad> {
 
 fn overrides() -> Vec<Bad> {
     vec![
-        // Found by review: 1e308 over 1e-300 wrote "inf" into the memo's note.
+        // Found by review: the ratio was written "D/E = inf".
         bad!(
             "--set subject structure beyond any D/E",
             nothing,
@@ -2338,11 +2338,16 @@ fn overrides() -> Vec<Bad> {
                 "--out",
                 "{out}",
                 "--set",
+                "target.source=subject",
+                "--set",
                 "target.subject_debt=1e308",
                 "--set",
                 "target.subject_equity_value=1e-300"
             ],
-            ["target.subject_debt = 1e308", "above 10"]
+            [
+                "target.subject_debt = 1e308",
+                "gives a D/E too large to compute, above 10"
+            ]
         ),
         // Found by review: the memo said "a change larger than inf bp".
         bad!(

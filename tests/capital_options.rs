@@ -913,7 +913,26 @@ fn a_peer_set_draw_the_case_would_refuse_is_left_out_not_fatal() {
     assert!(gave < drawn && gave > 0.5 * drawn, "{gave} of {drawn}");
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
     assert!(
-        memo.contains(&format!("{gave} of them gave a WACC")),
+        memo.contains(&format!("{gave} of the {drawn} draws gave a WACC")),
         "{memo}"
     );
+}
+
+// Under an explicit target the subject's own figures are only set beside it in a note: a
+// ratio too large to compute is left out of the note, not written "inf", and the case runs
+// (found by review: "inf" in the memo; then a refusal of figures the case does not use).
+#[test]
+fn a_subject_structure_beyond_any_number_is_left_out_of_the_target_note() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "target.justification=\"\"",
+            "target.subject_debt=1e308",
+            "target.subject_equity_value=1e-300",
+        ],
+    );
+    let notes = result["notes"].to_string();
+    assert!(notes.contains("has no stated basis"), "{notes}");
+    assert!(!notes.contains("subject's own"), "{notes}");
 }

@@ -1411,6 +1411,38 @@ fn a_dense_sensitivity_grid_keeps_its_text_apart() {
         in_group(&svg, "values").is_empty() == caption.contains("too narrow to print"),
         "{caption}"
     );
+    // Thirteen columns: the figures are printed smaller than the 14 px of a 5 × 5 grid, each
+    // inside its cell.
+    let run = Run::new(&[
+        "--set",
+        "sensitivity.columns=\"target.debt_to_equity=0..1.2:0.1\"",
+    ]);
+    let svg = run.svg("sensitivity.svg");
+    let cell_width = in_group(&svg, "cells")[0].number("width");
+    let values = in_group(&svg, "values");
+    assert_eq!(values.len(), 5 * 13, "every figure printed");
+    for value in values {
+        assert!(value.number("font-size") < 14.0, "a smaller size");
+        let (left, right) = text_extent(value).unwrap();
+        assert!(
+            right - left <= cell_width,
+            "\"{}\" overruns its cell",
+            value.text
+        );
+    }
+    // Twenty-one columns from 0.05: the case's own column (D/E 0.40, the eighth) keeps its
+    // label among the thinned ones.
+    let run = Run::new(&[
+        "--set",
+        "sensitivity.columns=\"target.debt_to_equity=0.05..1.05:0.05\"",
+    ]);
+    let svg = run.svg("sensitivity.svg");
+    assert!(
+        in_group(&svg, "x-axis")
+            .iter()
+            .any(|e| e.tag == "text" && e.text == "0.40"),
+        "the case's column is labelled"
+    );
 }
 
 // A peer name of 26 characters, ordinary for a listed firm, is written whole in the betas chart

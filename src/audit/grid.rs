@@ -407,8 +407,15 @@ mod tests {
         assert_eq!(huge.values, vec![1e297, 2e297, 3e297]);
         let tiny = parse_axis("--rows", "k=0..4e-13:1e-13").unwrap();
         assert_eq!(tiny.values, vec![0.0, 1e-13, 2e-13, 3e-13, 4e-13]);
-        let typed = parse_axis("--rows", "k=0.2500000000004..0.2500000000004:1").unwrap();
-        assert_eq!(typed.values, vec![0.2500000000004]);
+        let typed = parse_axis(
+            "--rows",
+            "k=0.2500000000004..0.2500000000104:0.000000000005",
+        )
+        .unwrap();
+        assert_eq!(
+            typed.values,
+            vec![0.2500000000004, 0.2500000000054, 0.2500000000104]
+        );
     }
 
     #[test]

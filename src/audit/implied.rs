@@ -106,6 +106,9 @@ pub struct Implied {
     /// The value found in each crossing interval after the first (ascending): the other values
     /// that reproduce the claim.
     pub other_values: Vec<f64>,
+    /// Whether every value searched that the case accepts gives the claim: the input does not
+    /// move the WACC under the case's settings (`value` is then the case's own).
+    pub does_not_move: bool,
     /// The lowest and highest WACC seen over the scan (over the values the case accepts).
     pub wacc_min: f64,
     pub wacc_max: f64,
@@ -181,7 +184,7 @@ impl Implied {
     /// ranks ahead of equity), or a risk-free rate above the case's given cost of debt.
     /// `None` when nothing stands out.
     pub fn caution(&self) -> Option<String> {
-        let value = self.value?;
+        let value = self.value.filter(|_| !self.does_not_move)?;
         let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
         use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
         let too_high = match self.target {
@@ -309,14 +312,25 @@ pub fn implied(
             }
             .wacc());
         }
-        let case = with_overrides(&inputs.case, &[format!("{key}={x}")])?;
+        // In exponent form beyond 1e15, as a grid cell (a whole number of 300 digits is no
+        // TOML number).
+        let case = with_overrides(
+            &inputs.case,
+            &[format!("{key}={}", crate::error::compact(x))],
+        )?;
         let estimates = estimates_for(&case, inputs, estimates)?;
         Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
     };
     let scan = solve(&wacc_at, low, high, claimed)?;
-    let value = scan
-        .value
-        .map(|x| case_value_if_it_meets(x, base_value, &wacc_at, claimed));
+    let value = match scan.flat {
+        // Any value fits: the case's own, when the case gives the claim itself.
+        true if wacc_at(base_value).is_ok_and(|w| (w - claimed).abs() <= REPRODUCED) => {
+            Some(base_value)
+        }
+        _ => scan
+            .value
+            .map(|x| case_value_if_it_meets(x, base_value, &wacc_at, claimed)),
+    };
     let achieved_wacc = value.map(wacc_at).transpose()?;
     Ok(Implied {
         target,
@@ -329,6 +343,7 @@ pub fn implied(
         achieved_wacc,
         crossings: scan.crossings,
         other_values: scan.others,
+        does_not_move: scan.flat,
         wacc_min: scan.wacc_min,
         wacc_max: scan.wacc_max,
         refused: scan.refused,
@@ -512,6 +527,8 @@ struct Scan {
     value: Option<f64>,
     /// The roots of the other crossing intervals, ascending.
     others: Vec<f64>,
+    /// Whether every value the case accepts gives the claim within [`REPRODUCED`].
+    flat: bool,
     crossings: usize,
     wacc_min: f64,
     wacc_max: f64,
@@ -569,33 +586,41 @@ fn solve(wacc_at: &dyn Fn(f64) -> Result<f64>, low: f64, high: f64, claimed: f64
         0.0 => Ok(points[j].0),
         _ => bisect(wacc_at, (points[j].0, gap), points[j + 1].0, claimed),
     };
+    // The WACC at every accepted value within REPRODUCED of the claim: the input does not move
+    // it (found by review: 65 "intervals" were said to cross for a cost of debt at D/E = 0).
+    let accepted: Vec<f64> = points.iter().filter_map(|(_, gap)| *gap).collect();
+    let flat = accepted.iter().all(|g| g.abs() <= REPRODUCED);
     let (value, crossings) = match first {
+        // Any value fits; the case's own is given (`case_value_if_it_meets`).
+        _ if flat => (points.iter().find(|(_, g)| g.is_some()).map(|&(x, _)| x), 1),
         Some((j, gap)) => (Some(root(j, gap)?), crossings),
         // No crossing, but the WACC at a scan value (a range's end, say) within REPRODUCED of
         // the claim: that value reproduces it (found by review: a claim 4e-12 beyond the
         // WACC at D/E = 0 was reported out of reach while the range printed contained it).
         None => {
+            let close = (points.iter()).find(|(_, gap)| gap.is_some_and(|g| g.abs() <= REPRODUCED));
             // The points are in ascending order: the lowest such value, as for crossings.
-            let close: Vec<f64> = (points.iter())
-                .filter(|(_, gap)| gap.is_some_and(|g| g.abs() <= REPRODUCED))
-                .map(|&(x, _)| x)
-                .collect();
-            (close.first().copied(), close.len())
+            (close.map(|&(x, _)| x), usize::from(close.is_some()))
         }
     };
-    // Every other crossing's root, so a reader sees each value that fits (found by review: only
-    // the lowest was given, the case's own value lying nearer another).
+    // Every other crossing's root that reproduces the claim (not a jump across it), so a
+    // reader sees each value that fits (found by review: only the lowest was given, the case's
+    // own value lying nearer another).
     let mut others = Vec::new();
-    if first.is_some() {
+    if first.is_some() && !flat {
         for j in (0..last).filter(|&j| crossing(j)).skip(1) {
             if let Some(gap) = points[j].1 {
-                others.push(root(j, gap)?);
+                let x = root(j, gap)?;
+                if wacc_at(x).is_ok_and(|w| (w - claimed).abs() <= REPRODUCED) {
+                    others.push(x);
+                }
             }
         }
     }
     Ok(Scan {
         value,
         others,
+        flat,
         crossings,
         wacc_min,
         wacc_max,
@@ -672,6 +697,19 @@ mod tests {
     // A claim within REPRODUCED of the WACC at the range's end, just outside the range of WACCs,
     // is reproduced by that end (found by review: a claim 4e-12 beyond the WACC at D/E = 0 was
     // reported out of reach). The line 0.05 + 0.5·x on [0, 1]: at x = 0 the WACC is 0.05.
+    #[test]
+    fn an_input_that_moves_nothing_is_said_to() {
+        // A WACC of 0.05 whatever x: every value gives the claim; no crossing is counted and
+        // no other value listed (found by review: 65 "intervals" and 63 others).
+        let wacc_at = |_: f64| -> Result<f64> { Ok(0.05) };
+        let scan = solve(&wacc_at, 0.0, 1.0, 0.05).unwrap();
+        assert!(scan.flat && scan.others.is_empty());
+        assert_eq!((scan.value, scan.crossings), (Some(0.0), 1));
+        // A cubic: not flat.
+        let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + (x - 0.21) * (x - 0.52) * (x - 0.83)) };
+        assert!(!solve(&wacc_at, 0.0, 1.0, 0.05).unwrap().flat);
+    }
+
     #[test]
     fn a_claim_within_the_tolerance_of_an_end_is_met_there() {
         let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + 0.5 * x) };

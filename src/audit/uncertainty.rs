@@ -72,11 +72,13 @@ pub fn simulate(
         seed: u.seed,
         beta_distribution: match u.beta_errors {
             BetaErrors::Correlated => {
-                "Student t(beta, beta_std_error, degrees of freedom) for each peer, joint \
-                 through the correlation of the peers' beta errors from their residuals"
+                "Student's t around the estimate, scaled by its standard error, with the \
+                 degrees of freedom of its confidence interval; correlated across peers as \
+                 their residuals are"
             }
             BetaErrors::Independent => {
-                "Student t(beta, beta_std_error, degrees of freedom) for each peer, independent"
+                "Student's t around the estimate, scaled by its standard error, with the \
+                 degrees of freedom of its confidence interval; independent across peers"
             }
         },
         equity_risk_premium_range: u.equity_risk_premium,
@@ -458,7 +460,14 @@ fn leave_one_out(
             Err(chain::ChainError::NoPeerIncluded) => (None, None),
             // The peers left with a median net D/E below 0, under a peer-median target: that
             // row's reason (found by review: it refused the whole run).
-            Err(e @ chain::ChainError::Target(_)) => (None, Some(refusal(case, e))),
+            Err(chain::ChainError::Target(target)) => (
+                None,
+                Some(format!(
+                    "without this peer the median net D/E of the peers left is {}, below 0: no \
+                     target structure",
+                    crate::error::rounded(target, 3)
+                )),
+            ),
             // A cross-sectional Vasicek prior from the one peer left (the case has two): that
             // row has no WACC, as a peer-set draw of one repeated peer has none.
             Err(chain::ChainError::Adjustment(_)) => (

@@ -372,8 +372,12 @@ pub fn verify(
         read_case(&case_file, &overrides).map_err(|e| recorded_overrides(receipt_path, e))?;
     let case_unchanged = Some(&case.sha256) == text("/case/sha256").as_ref();
     let files_read = crate::case::files_read(&case);
-    let inputs = load_inputs(case).map_err(|e| refused_since(e, &recorded))?;
-    let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))?;
+    // Every failure under the receipt's overrides is named as theirs (found by review: a
+    // refusal of the rerun still read "after applying --set").
+    let as_recorded = |e| recorded_overrides(receipt_path, e);
+    let inputs = load_inputs(case).map_err(|e| refused_since(as_recorded(e), &recorded))?;
+    let rerun = super::evaluate(&inputs, recorded["generated_at"].as_str().unwrap_or(""))
+        .map_err(as_recorded)?;
     let recomputed = serde_json::to_value(&rerun).expect("a valuation always serialises");
 
     let files = file_checks(&recorded, &rerun);

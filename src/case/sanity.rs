@@ -11,7 +11,7 @@ pub mod prices;
 pub mod text;
 pub mod window;
 
-use super::{CaseDate, CaseFile, DebtSource};
+use super::{CaseDate, CaseFile, DebtSource, TargetSource};
 use crate::error::compact as show;
 
 pub use prices::price_pattern_notes;
@@ -222,10 +222,19 @@ fn check_paths(case: &CaseFile) -> std::result::Result<(), String> {
     }
     match paths.iter().find(|(_, path)| path.trim().is_empty()) {
         // A key left out reads as empty too (a series may name a `source` instead of a file).
-        Some((key, _)) => Err(format!(
-            "{key} = \"\" (missing or empty): give the path of the file (or, for a series, a \
-             source and column)"
-        )),
+        // Only a series may name a source (found by review: the advice was given for
+        // reconcile.claimed and the spread tables too).
+        Some((key, _)) => {
+            let series = !key.starts_with("debt.") && !key.starts_with("reconcile.");
+            Err(format!(
+                "{key} = \"\" (missing or empty): give the path of the file{}",
+                if series {
+                    " (or a source and column)"
+                } else {
+                    ""
+                }
+            ))
+        }
         None => Ok(()),
     }
 }
@@ -307,10 +316,14 @@ fn check_counts(case: &CaseFile) -> std::result::Result<(), String> {
 /// below its equity plus debt.
 fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
     let too_high = |what: String, de: f64| {
-        let de = significant(de);
+        // A ratio too large for a number is said so, not written "inf" (found by review).
+        let de = match de.is_finite() {
+            true => format!("D/E = {}", significant(de)),
+            false => "a D/E too large to compute".to_string(),
+        };
         format!(
-            "{what} gives D/E = {de}, above {MAX_DEBT_TO_EQUITY} (debt over 10/11 of capital): \
-             no leverage formula holds there; check the figures and their units"
+            "{what} gives {de}, above {MAX_DEBT_TO_EQUITY} (debt over 10/11 of capital): no \
+             leverage formula holds there; check the figures and their units"
         )
     };
     let target = &case.target;
@@ -333,9 +346,12 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
         }
     }
     let measure = case.leverage.debt_measure;
-    // Whatever the target's source: with another source the subject's D/E is set beside the
-    // target in a note (found by review: 1e308 over 1e-300 wrote "inf" into the memo).
-    if let (Some(equity), Some(debt)) = (
+    // Only when the target is the subject's own: under another source the subject's figures
+    // describe it beside the target and relever nothing (a review found a refusal of them
+    // there harsh; the note that sets them beside the target leaves out a ratio too large to
+    // compute).
+    if let (TargetSource::Subject, Some(equity), Some(debt)) = (
+        target.source,
         target.subject_equity_value.filter(|&e| e > 0.0),
         target.subject_debt,
     ) {

@@ -192,6 +192,11 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
                 format!("{} bp", signed(fixed((value - r.base_value) * 1e4, 1)))
             };
             let mut note = format!("exact: {value}");
+            if r.does_not_move {
+                note.push_str(
+                    "; every value searched gives the claim: the input does not move the WACC here",
+                );
+            }
             if r.crossings > 1 {
                 note.push_str(&format!(
                     "; {} values fit, the lowest shown{}",
@@ -301,6 +306,14 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     }
     if let Some(u) = &r.unlevered_equivalent {
         println!("  {}", unlevered_line(u));
+    }
+    // Found by review: an input that moves nothing was said to cross the claim 65 times.
+    if r.does_not_move {
+        println!(
+            "  note: every value searched gives this WACC: {} does not move it under the case's \
+             settings (the case's own value is shown)",
+            r.key
+        );
     }
     if r.crossings > 1 {
         println!(

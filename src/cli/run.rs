@@ -113,13 +113,18 @@ fn intervals(v: &Valuation) -> String {
     let peer_set = match v.cost.beta.peers_included {
         1 => "; with one aggregated peer, resampling the peer set adds nothing".to_string(),
         n => format!(
-            ", {} to {} with the peer set resampled{}",
+            ", {} to {} with the peer set resampled{}{}",
             percent(u.peer_set.p05, 2),
             percent(u.peer_set.p95, 2),
             if n == 2 {
                 " (only three distinct sets)"
             } else {
                 ""
+            },
+            // Found by review: the headline hid that many resamples gave no WACC.
+            match u.peer_set.draws < u.draws {
+                true => format!(" ({} of {} draws gave a WACC)", u.peer_set.draws, u.draws),
+                false => String::new(),
             }
         ),
     };

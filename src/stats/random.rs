@@ -82,7 +82,8 @@ impl Rng {
     /// shape a + 1 times u^(1/a), their own boost.
     fn gamma(&mut self, shape: f64) -> f64 {
         if shape < 1.0 {
-            let u = self.uniform();
+            // In (0, 1]: a draw of exactly 0 would make the variate 0 and a t draw infinite.
+            let u = 1.0 - self.uniform();
             return self.gamma(shape + 1.0) * u.powf(1.0 / shape);
         }
         let d = shape - 1.0 / 3.0;

@@ -17,9 +17,10 @@ pub struct Axis {
 }
 
 impl Axis {
-    /// The `--set` assignment of value `i`.
+    /// The `--set` assignment of value `i`, in exponent form beyond 1e15 and below 1e-6 (found
+    /// by review: 1e297 written out as a 298-digit whole number, which the case reader refuses).
     pub fn assignment(&self, i: usize) -> String {
-        format!("{}={}", self.key, self.values[i])
+        format!("{}={}", self.key, crate::error::compact(self.values[i]))
     }
 }
 

@@ -219,12 +219,19 @@ fn target_message(settings: &crate::case::CaseFile, target_de: f64) -> String {
     let shown = crate::error::rounded(target_de, 3);
     let needs = "a target structure needs D/E >= 0";
     match t.source {
-        crate::case::TargetSource::PeerMedian => format!(
-            "target.source = {source}: the median D/E of the peers aggregated, with debt net of \
-             cash (leverage.debt_measure = {measure}), is {shown}, below 0: at least half of \
-             them hold more cash than debt; {needs} (use leverage.debt_measure = \"gross\" or an \
-             explicit target)"
-        ),
+        crate::case::TargetSource::PeerMedian => {
+            let net_cash: Vec<&str> = (settings.peers.iter())
+                .filter(|p| p.cash > p.debt)
+                .map(|p| p.name.as_str())
+                .collect();
+            format!(
+                "target.source = {source}: the median D/E of the peers aggregated, with debt net \
+                 of cash (leverage.debt_measure = {measure}), is {shown}, below 0: at least half \
+                 of them hold more cash than debt ({}); {needs} (use leverage.debt_measure = \
+                 \"gross\" or an explicit target)",
+                net_cash.join(", ")
+            )
+        }
         _ => {
             let figure = |key: &str, value: Option<f64>| {
                 value.map(|v| format!(", target.{key} = {}", crate::error::compact(v)))

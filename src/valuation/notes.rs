@@ -99,7 +99,8 @@ fn net_debt_beta_note(settings: &CaseFile) -> Vec<String> {
     let risky = match leverage.debt_beta_source {
         DebtBetaSource::None => false,
         DebtBetaSource::Given => {
-            leverage.debt_beta != 0.0 || settings.peers.iter().any(|p| p.debt_beta.is_some())
+            leverage.debt_beta != 0.0
+                || (settings.peers.iter()).any(|p| p.debt_beta.is_some_and(|b| b != 0.0))
         }
         DebtBetaSource::CreditSpread => true,
     };
@@ -146,9 +147,14 @@ pub(super) fn target_note(settings: &CaseFile, chain: &Chain) -> Option<String> 
         return None;
     }
     let ratio = |x: f64| crate::error::rounded(x, 3);
-    let own = settings
-        .subject_debt_to_equity()
-        .map(|de| format!(" and the subject's own, {}", ratio(de)))
+    // A ratio too large to compute is left out, one beyond a million written in exponent form
+    // (found by review: 1e308 over 1e-300 wrote "inf" into the memo).
+    let own = (settings.subject_debt_to_equity())
+        .filter(|de| de.is_finite())
+        .map(|de| match de.abs() < 1e6 {
+            true => format!(" and the subject's own, {}", ratio(de)),
+            false => format!(" and the subject's own, {}", crate::error::compact(de)),
+        })
         .unwrap_or_default();
     Some(format!(
         "The target D/E of {} has no stated basis (target.justification): the aggregated peers' \

@@ -49,8 +49,11 @@ pub fn verify_universe(
         read_universe(&file, &overrides).map_err(|e| super::recorded_overrides(receipt_path, e))?;
     let files_read = universe.files_read();
     let unchanged = Some(universe.sha256.as_str()) == text("/universe/sha256");
-    let inputs = load_inputs(universe).map_err(|e| super::checks::refused_since(e, recorded))?;
-    let rerun = evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {})?;
+    let as_recorded = |e| super::recorded_overrides(receipt_path, e);
+    let inputs = load_inputs(universe)
+        .map_err(|e| super::checks::refused_since(as_recorded(e), recorded))?;
+    let rerun =
+        evaluate(&inputs, text("/generated_at").unwrap_or(""), &|_| {}).map_err(as_recorded)?;
     let recomputed = serde_json::to_value(&rerun).expect("a universe result always serialises");
     let run = Rerun {
         kind: "universe",

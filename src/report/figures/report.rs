@@ -167,8 +167,9 @@ fn figure(figure: &Figure) -> String {
 }
 
 /// The page's styles: screen first, then print (A4 and Letter alike: no fixed page size). Found
-/// by review and checked in Chromium by tests/browser/check_report.py: a chart keeps at least
-/// 34rem on a narrow screen and scrolls sideways (at 400 px its text was 5 px high); the page
+/// by review and checked in Chromium by tests/browser/check_report.py: on a screen narrower than
+/// 40rem a chart keeps at least 34rem and scrolls sideways (at 400 px its text was 5 px high;
+/// wider screens keep the gallery's columns, which may be narrower than 34rem); the page
 /// widens to 80rem, so a gallery's two columns draw regression charts near their own size; a
 /// code span (a file's path in a table) breaks only where it would overflow, not down to one
 /// character a line; in print a gallery's charts take 70% of the text width, so two regression
@@ -197,7 +198,8 @@ tbody tr:nth-child(even) td { background: #FAFBFC; }
 .gallery { margin: 1rem 0 1.5rem; }
 .gallery.two { display: grid; grid-template-columns: repeat(auto-fit, minmax(min(30rem, 100%), 1fr)); gap: 1rem; }
 figure.chart { margin: 0 0 1rem; overflow-x: auto; }
-figure.chart svg { display: block; width: 100%; height: auto; min-width: 34rem; max-width: 760px; border: 1px solid var(--rule); border-radius: 4px; }
+figure.chart svg { display: block; width: 100%; height: auto; max-width: 760px; border: 1px solid var(--rule); border-radius: 4px; }
+@media (max-width: 40rem) { figure.chart svg { min-width: 34rem; } }
 section.cautions { border-top: 3px solid var(--accent); margin-top: 2.5rem; }
 section.cautions h2 { border: 0; }
 @media print {

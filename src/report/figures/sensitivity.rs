@@ -137,6 +137,8 @@ pub fn draw(valuation: &Valuation, grid: &Grid) -> Result<Figure> {
 struct Fit {
     value_px: Option<f64>,
     label_every: usize,
+    /// The case's own column, always labelled.
+    base_column: Option<usize>,
 }
 
 /// The smallest size the cells' figures are printed at.
@@ -164,17 +166,24 @@ impl Fit {
         Fit {
             value_px,
             label_every,
+            base_column: grid.base_cell.map(|[_, c]| c),
         }
     }
 
-    /// The column labels, every `label_every`-th written from the first and the others empty.
+    /// The column labels: the case's own column's, and every `label_every`-th from the first
+    /// that keeps that far from it; the others empty (found by review: the case's column could
+    /// fall between the labels written).
     fn column_labels(&self, labels: Vec<String>) -> Vec<String> {
+        let k = self.label_every;
+        let base = self.base_column;
+        let kept =
+            |i: usize| base == Some(i) || (i % k == 0 && base.is_none_or(|b| i.abs_diff(b) >= k));
         labels
             .into_iter()
             .enumerate()
-            .map(|(i, label)| match i % self.label_every {
-                0 => label,
-                _ => String::new(),
+            .map(|(i, label)| match kept(i) {
+                true => label,
+                false => String::new(),
             })
             .collect()
     }
