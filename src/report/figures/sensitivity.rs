@@ -176,8 +176,9 @@ impl Fit {
     fn column_labels(&self, labels: Vec<String>) -> Vec<String> {
         let k = self.label_every;
         let base = self.base_column;
-        let kept =
-            |i: usize| base == Some(i) || (i % k == 0 && base.is_none_or(|b| i.abs_diff(b) >= k));
+        let kept = |i: usize| {
+            base == Some(i) || (i.is_multiple_of(k) && base.is_none_or(|b| i.abs_diff(b) >= k))
+        };
         labels
             .into_iter()
             .enumerate()
