@@ -375,7 +375,7 @@ size = 0.010                  # illustrative
 country = 0.0
 company_specific = 0.0
 country_method = "flat"       # or "exposure" (with country_exposure) or "beta-scaled"
-size_justification = "Illustrative: the subject is smaller than every peer (invented demo figure)."
+size_justification = "Illustrative: an invented premium that exercises the premium line; the demo subject is mid-sized among its peers, so a real case would need its own ground."
 
 [uncertainty]
 draws = 10000

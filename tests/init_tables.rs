@@ -628,3 +628,88 @@ fn no_peer_is_named_after_a_column_it_does_not_read() {
     assert_eq!(peers[1]["name"].as_str(), Some("A B"));
     assert_eq!(peers[1]["column"].as_str(), Some("A B"));
 }
+
+// Found by review: init wrote names `run` refuses (README, `[[peer]]` name: no direction
+// controls or invisible characters, at most 1,000 characters, unique when capitals, the
+// encoding of accented letters and soft hyphens are set aside). Each header here breaks one
+// rule; the names init writes keep them all, by the README's rules checked here (NFC from the
+// unicode-normalization crate).
+#[test]
+fn init_writes_names_the_case_accepts() {
+    use unicode_normalization::UnicodeNormalization;
+    let folder = Folder::new();
+    let long = "x".repeat(1200);
+    let headers = [
+        "Brenvale\u{202e}Flow",
+        "Soft\u{ad}hyphen",
+        "Softhyphen",
+        "Cafe\u{301}",
+        "Caf\u{e9}",
+        "Zero\u{200b}Width",
+        long.as_str(),
+    ];
+    let mut text = format!("date,Idx,{}\n", headers.join(","));
+    for (i, day) in ["2024-01-31", "2024-02-29", "2024-03-28"]
+        .iter()
+        .enumerate()
+    {
+        let prices: Vec<String> = (0..headers.len())
+            .map(|j| format!("{}", 10 + i + j))
+            .collect();
+        text.push_str(&format!("{day},{},{}\n", 100 + i, prices.join(",")));
+    }
+    let csv = folder.write("wide.csv", &text);
+    folder.init_ok(&csv, &["--index", "Idx"]);
+    let written = fs::read_to_string(folder.path("case.toml")).unwrap();
+    let case: toml::Table = toml::from_str(&written).unwrap();
+    let names: Vec<String> = (case["peer"].as_array().unwrap().iter())
+        .map(|p| p["name"].as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(names.len(), headers.len());
+    let unseen = ['\u{202e}', '\u{200b}', '\u{feff}', '\u{2060}'];
+    for name in &names {
+        assert!(!name.contains(unseen), "{name:?}");
+        assert!(
+            name.chars().count() <= 1000,
+            "{} characters",
+            name.chars().count()
+        );
+    }
+    let fold = |n: &str| {
+        n.nfc()
+            .filter(|&c| c != '\u{ad}')
+            .collect::<String>()
+            .to_lowercase()
+    };
+    for (i, a) in names.iter().enumerate() {
+        for b in &names[..i] {
+            assert_ne!(fold(a), fold(b), "{a:?} and {b:?} read alike");
+        }
+    }
+}
+
+// A workbook's cells are never split at a comma: a number under an empty header cell beside
+// another number is named without the CSV's decimal-comma explanation (found by review); the
+// same cells in a CSV file keep it.
+#[test]
+fn a_workbook_column_without_a_header_is_not_put_down_to_a_decimal_comma() {
+    let folder = Folder::new();
+    let rows: &[&[&str]] = &[
+        &["date", "Index", "Alder", ""],
+        &["2024-01-31", "100", "120", "26"],
+        &["2024-02-29", "101", "121", "27"],
+    ];
+    let mut book = rust_xlsxwriter::Workbook::new();
+    sheet_rows(book.add_worksheet().set_name("Prices").unwrap(), rows);
+    let workbook = folder.path("unnamed.xlsx");
+    book.save(&workbook).unwrap();
+    let stderr = folder.init_fails(&workbook, &["--index", "Index"]);
+    assert!(
+        stderr.contains("has no header") && !stderr.contains("decimal comma"),
+        "{stderr}"
+    );
+    let text: String = rows.iter().map(|r| r.join(",") + "\n").collect();
+    let csv = folder.write("unnamed.csv", &text);
+    let stderr = folder.init_fails(&csv, &["--index", "Index"]);
+    assert!(stderr.contains("decimal comma"), "{stderr}");
+}

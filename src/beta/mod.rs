@@ -334,12 +334,21 @@ pub fn describe(settings: &EstimatorSpec, subject: &str) -> EstimatorRecord {
             "ordinary least squares of the {subject}'s return on the index's return, the market \
              model of Sharpe (1963, Management Science 9(2))"
         ),
-        BetaMethod::Dimson => format!(
-            "Dimson (1979, J. Financial Economics 7(2)) aggregated coefficients: OLS of the \
-             {subject}'s return on the index's return of the same period, {} earlier and {} \
-             later period(s); beta is the sum of the slopes, its SE from their covariance matrix",
-            settings.dimson_lags, settings.dimson_leads
-        ),
+        BetaMethod::Dimson => {
+            // In words (found by review: "1 earlier and 0 later period(s)").
+            let periods = |n: u32, which: &str| match n {
+                0 => format!("no {which} period"),
+                1 => format!("one {which} period"),
+                n => format!("{n} {which} periods"),
+            };
+            format!(
+                "Dimson (1979, J. Financial Economics 7(2)) aggregated coefficients: OLS of the \
+                 {subject}'s return on the index's return of the same period, {} and {}; beta \
+                 is the sum of the slopes, its SE from their covariance matrix",
+                periods(settings.dimson_lags, "earlier"),
+                periods(settings.dimson_leads, "later")
+            )
+        }
         BetaMethod::ScholesWilliams => "Scholes and Williams (1977, J. Financial Economics \
                                         5(3)): (b(-1) + b(0) + b(+1)) / (1 + 2ρ) from simple \
                                         regressions on the previous, same and next period's \

@@ -481,7 +481,7 @@ pub(crate) fn visible_one_line(key: &str, text: &str) -> std::result::Result<(),
 /// Controls" for U+202A–U+202E and U+2066–U+2069, §5.8 for U+2028 and U+2029, §23.7
 /// "Noncharacters" for U+FDD0–U+FDEF and the last two code points of each plane; from
 /// memory).
-fn unseen_or_unwritable(c: char) -> bool {
+pub(crate) fn unseen_or_unwritable(c: char) -> bool {
     matches!(c,
         '\u{2028}' | '\u{2029}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}'
         | '\u{fdd0}'..='\u{fdef}' | '\u{200b}' | '\u{2060}' | '\u{feff}')
@@ -489,7 +489,7 @@ fn unseen_or_unwritable(c: char) -> bool {
 }
 
 /// The longest name, title or label, in characters.
-const MAX_LABEL_CHARACTERS: usize = 1000;
+pub(crate) const MAX_LABEL_CHARACTERS: usize = 1000;
 
 /// The first `<…>` in `text` that can open raw HTML or an autolink (CommonMark 0.31, "Raw HTML"
 /// and "Autolinks", from memory): a tag, a comment or a declaration, and a web address, begin
@@ -530,12 +530,7 @@ pub(crate) fn distinct_name<'a>(
     // found by review).
     // A soft hyphen, which shows only where a line breaks, is left out too (found by review:
     // `Bren\u{ad}vale` beside `Brenvale` gave two rows that read alike).
-    use unicode_normalization::UnicodeNormalization;
-    let fold = |text: &str| {
-        (text.nfc().filter(|&c| c != '\u{ad}'))
-            .collect::<String>()
-            .to_lowercase()
-    };
+    let fold = name_fold;
     let folded = fold(name);
     match earlier.enumerate().find(|(_, e)| fold(e) == folded) {
         // Two names that differ beyond ASCII capitals look the same: each is written out
@@ -555,6 +550,16 @@ pub(crate) fn distinct_name<'a>(
         )),
         None => Ok(()),
     }
+}
+
+/// A peer name as two names are compared: capitals aside, accented letters however they are
+/// encoded (NFC), soft hyphens left out ([`distinct_name`]; `hurdle init` numbers names that
+/// fold alike).
+pub(crate) fn name_fold(text: &str) -> String {
+    use unicode_normalization::UnicodeNormalization;
+    (text.nfc().filter(|&c| c != '\u{ad}'))
+        .collect::<String>()
+        .to_lowercase()
 }
 
 /// `text` with every character beyond ASCII written as its code point (`e\u{301}cole`).

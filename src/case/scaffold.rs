@@ -56,6 +56,17 @@ fn display_name(header: &str) -> String {
         let inner = span[1..span.len() - 1].to_string();
         kept = kept.replacen(span, &format!("({inner})"), 1);
     }
+    // What the case refuses in a name, left off it too (found by review: `init` wrote names
+    // `run` then refused): direction controls, invisible characters and noncharacters dropped,
+    // a name past the case's limit cut with an ellipsis.
+    let kept: String = (kept.chars())
+        .filter(|&c| !super::sanity::unseen_or_unwritable(c))
+        .collect();
+    let most = super::sanity::MAX_LABEL_CHARACTERS;
+    let kept = match kept.chars().count() > most {
+        true => kept.chars().take(most - 1).chain(['…']).collect(),
+        false => kept.trim().to_string(),
+    };
     match kept.is_empty() {
         true => "peer".to_string(),
         false => kept,
@@ -224,7 +235,8 @@ fn started_peers(table: &PriceTable, columns: &[&String]) -> Result<Vec<StartedP
 /// "Alder" beside a column `Alder`, which became "Alder (2)"). Names never repeat, also when
 /// capitals are ignored, as the case requires.
 fn peer_names(headers: &[&str], columns: &[&str]) -> Vec<String> {
-    let fold = |text: &str| header_key(text).to_lowercase();
+    // As the case compares peer names (capitals, accents' encoding, soft hyphens aside).
+    let fold = |text: &str| super::sanity::name_fold(&header_key(text));
     let plain: Vec<String> = columns.iter().map(|c| display_name(c)).collect();
     let mut names: Vec<Option<String>> = vec![None; columns.len()];
     let mut taken: Vec<String> = Vec::with_capacity(columns.len());

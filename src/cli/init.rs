@@ -58,7 +58,13 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     }
     let case_dir = out.parent().unwrap_or(Path::new(""));
     let written = relative_path(case_dir, &args.table);
-    let written = written.to_string_lossy().replace('\\', "/");
+    // Forward slashes where the backslash separates folders (Windows), so the case reads on any
+    // system; elsewhere a backslash is a character of the file's name and stays (found by
+    // review: `peer\prices.xlsx` was written as the folder `peer`).
+    let written = match std::path::MAIN_SEPARATOR {
+        '\\' => written.to_string_lossy().replace('\\', "/"),
+        _ => written.to_string_lossy().into_owned(),
+    };
     let table = PriceTable::read(
         &written,
         &args.table,

@@ -14,8 +14,13 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
     let mut notes = Vec::new();
     for (peer, reason) in settings.peers.iter().zip(exclusions) {
         if let Some(reason) = reason {
+            // A sentence, ended as one (found by review: "… aggregation: pending merger").
+            let stop = match reason.trim_end().ends_with(['.', '!', '?']) {
+                true => "",
+                false => ".",
+            };
             notes.push(format!(
-                "{} is estimated and shown but left out of the aggregation: {reason}",
+                "{} is estimated and shown but left out of the aggregation: {reason}{stop}",
                 peer.name
             ));
         }
@@ -75,6 +80,7 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
         ));
     }
     notes.extend(net_debt_beta_note(settings));
+    notes.extend(size_premium_note(settings));
     if settings.leverage.formula == Formula::Hamada
         && settings.leverage.debt_beta_source != DebtBetaSource::None
     {
@@ -85,6 +91,32 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
         );
     }
     notes
+}
+
+/// A size premium for a subject that is not smaller than every peer: the premium's usual
+/// ground is a subject smaller than the firms its beta comes from (found by review: the demo's
+/// justification said "smaller than every peer" while its equity value was above four of
+/// them). Equity values are compared as given, in the units the case shares.
+fn size_premium_note(settings: &CaseFile) -> Option<String> {
+    let subject = settings.target.subject_equity_value?;
+    let peers: Vec<f64> = settings.peers.iter().map(|p| p.equity_value).collect();
+    let below = peers.iter().filter(|&&e| e < subject).count();
+    (settings.premiums.size > 0.0 && below > 0).then(|| {
+        let (least, most) = peers
+            .iter()
+            .fold((f64::INFINITY, 0.0_f64), |(l, m), &e| (l.min(e), m.max(e)));
+        format!(
+            "Check: a size premium of {}% is added, but the subject's equity value \
+             (target.subject_equity_value = {}) is above that of {below} of the {} peers ({} to \
+             {}): a size premium usually rests on the subject being smaller than the firms its \
+             beta comes from; say why it applies (premiums.size_justification).",
+            crate::error::rounded(settings.premiums.size * 100.0, 2),
+            crate::error::compact(subject),
+            peers.len(),
+            crate::error::compact(least),
+            crate::error::compact(most)
+        )
+    })
 }
 
 /// Net debt under a formula that takes a debt beta, with debt betas that may differ from 0: the

@@ -408,13 +408,15 @@ fn check_header(raw: &RawTable) -> std::result::Result<(), String> {
         if name.is_empty() {
             if let Some(i) = raw.columns[j].iter().position(|c| !c.is_empty()) {
                 // A CSV's decimal comma splits a price in two (`42,0000`): said when the cells
-                // read so (found by review).
+                // read so (found by review), in a CSV file only; a workbook's or Parquet file's
+                // cells are never split at a comma (found by review: a workbook was told so).
+                let csv = matches!(place.kind, cells::PlaceKind::Csv);
                 let plain = |c: &Cell| match c {
                     Cell::Text(text) => Some(text.trim().to_string()),
                     Cell::Number(x) if x.fract() == 0.0 && x.abs() < 1e15 => Some(format!("{x}")),
                     _ => None,
                 };
-                let comma = (j.checked_sub(1))
+                let comma = (j.checked_sub(1).filter(|_| csv))
                     .and_then(|l| {
                         let (left, here) = (plain(&raw.columns[l][i])?, plain(&raw.columns[j][i])?);
                         crate::io::sanity::decimal_comma_hint(&raw.header[l], &left, &here)

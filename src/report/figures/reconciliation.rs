@@ -249,7 +249,7 @@ fn caption(bridge: &Bridge, axis_start: f64, cut: bool, lowest: f64) -> String {
     };
     format!(
         "From this case's WACC ({}) to \"{}\" ({}): each bar moves the WACC by one input group's \
-         Shapley value, its share of the {} gap averaged over every order of replacing the \
+         Shapley value, its share of the {} gap between the WACCs the two sides' components give, averaged over every order of replacing the \
          groups, so the picture does not depend on the order drawn. {residue}{axis}Figures: \
          result.json reconciliation.waterfall (start, end, change; from steps[].shapley, unexplained).",
         percent(bridge.from.stated_wacc.unwrap_or(bridge.from.wacc), 2),
