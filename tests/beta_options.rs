@@ -884,3 +884,59 @@ fn a_late_response_check_that_cannot_be_fitted_is_named() {
         "{notes}"
     );
 }
+
+// Rolling windows of 12 monthly periods need 12 returns each (`rolling_min_observations`): a
+// peer missing a month in a window has no beta there. The demo's 60-period window lays
+// (60 − 12)/1 + 1 = 49 windows (README, `rolling_step`); which of them a peer fills is counted
+// here from the month ends its returns stand on in returns.csv (a window is the 12 month ends
+// up to its end, counted back from the valuation date, 2026-09-30). The record and the memo
+// give the count of both, so a skipped window is no longer hidden (found by review).
+#[test]
+fn skipped_rolling_windows_are_counted() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_with(
+        dir.path(),
+        &["beta.rolling_window=12", "beta.rolling_min_observations=12"],
+    );
+    let ends: Vec<chrono::NaiveDate> = (0..60)
+        .map(|k| {
+            let month =
+                chrono::NaiveDate::from_ymd_opt(2026, 10, 1).unwrap() - chrono::Months::new(k);
+            month.pred_opt().unwrap()
+        })
+        .rev()
+        .collect();
+    let returns = std::fs::read_to_string(dir.path().join("returns.csv")).unwrap();
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    let mut skipped_somewhere = false;
+    for peer in result["peers"].as_array().unwrap() {
+        let name = peer["name"].as_str().unwrap();
+        let have: std::collections::HashSet<String> = (returns.lines())
+            .filter(|l| l.starts_with(&format!("{name},")))
+            .map(|l| l.split(',').nth(1).unwrap().to_string())
+            .collect();
+        let full = (11..60)
+            .filter(|&e| {
+                ends[e - 11..=e]
+                    .iter()
+                    .all(|d| have.contains(&d.to_string()))
+            })
+            .count();
+        let stability = &peer["stability"];
+        assert_eq!(stability["windows_laid"].as_u64(), Some(49), "{name}");
+        assert_eq!(stability["windows"].as_u64(), Some(full as u64), "{name}");
+        if full < 49 {
+            skipped_somewhere = true;
+            assert!(
+                memo.contains(&format!(
+                    "{name}: {full} of the 49 windows (the others skipped)"
+                )),
+                "{name}"
+            );
+        }
+    }
+    assert!(
+        skipped_somewhere,
+        "the demo has a peer with a missing month"
+    );
+}

@@ -44,7 +44,14 @@ pub struct RollingPoint {
 /// Range and trend of a peer's rolling betas.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Stability {
+    /// The windows with a beta.
     pub windows: usize,
+    /// The windows laid through the estimation window, one ending every `step` periods from
+    /// the first full one: `windows` and those skipped (too few observations for the settings
+    /// or the estimator, an index or a security that does not move in it, a Scholes–Williams
+    /// index autocorrelation below −0.4). Found by review: the memo said every window was in
+    /// rolling.csv while some were skipped unsaid.
+    pub windows_laid: usize,
     pub window_periods: u32,
     pub min: f64,
     pub max: f64,
@@ -318,8 +325,22 @@ fn design_columns(
     }
 }
 
-/// Range and trend of rolling betas; `None` with fewer than two windows.
-pub fn stability(points: &[RollingPoint], window_periods: u32) -> Result<Option<Stability>> {
+/// The windows [`rolling_betas`] lays through an estimation window of `periods` periods: one
+/// ending at every `step`-th period from the first full window.
+pub fn windows_laid(periods: usize, spec: &RollingSpec) -> usize {
+    match spec.window > 0 && periods >= spec.window {
+        true => (periods - spec.window) / spec.step.max(1) + 1,
+        false => 0,
+    }
+}
+
+/// Range and trend of rolling betas, of `windows_laid` windows laid; `None` with fewer than two
+/// windows.
+pub fn stability(
+    points: &[RollingPoint],
+    window_periods: u32,
+    windows_laid: usize,
+) -> Result<Option<Stability>> {
     if points.len() < 2 {
         return Ok(None);
     }
@@ -337,6 +358,7 @@ pub fn stability(points: &[RollingPoint], window_periods: u32) -> Result<Option<
     };
     Ok(Some(Stability {
         windows: points.len(),
+        windows_laid,
         window_periods,
         min: betas.iter().copied().fold(f64::INFINITY, f64::min),
         max: betas.iter().copied().fold(f64::NEG_INFINITY, f64::max),
@@ -719,17 +741,17 @@ mod tests {
                 degrees_of_freedom: 10,
             })
             .collect();
-        let s = stability(&points, 12).unwrap().unwrap();
+        let s = stability(&points, 12, points.len()).unwrap().unwrap();
         assert_eq!((s.min, s.max, s.windows), (1.0, 1.4, 5));
         // 0.1 per month is about 1.2 per year (months of unequal length: within 5%).
         assert!((s.trend_per_year - 1.2).abs() < 0.06, "{s:?}");
         // Two windows: the line through both points (algebra). 2020-01-31 to 2020-02-29 is 29
         // days, so the trend is 0.1 / (29 / 365.25) per year; one rounding step apart at most.
-        let s = stability(&points[..2], 12).unwrap().unwrap();
+        let s = stability(&points[..2], 12, 2).unwrap().unwrap();
         assert_eq!((s.windows, s.first, s.last), (2, 1.0, 1.1));
         let expected = (1.1 - 1.0) / (29.0 / 365.25);
         assert!((s.trend_per_year - expected).abs() < 1e-14, "{s:?}");
-        assert!(stability(&points[..1], 12).unwrap().is_none());
+        assert!(stability(&points[..1], 12, 1).unwrap().is_none());
     }
 
     // The first-to-last z by the two-sample formula (Paternoster et al. 1998), worked by hand:

@@ -47,10 +47,17 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     for (name, estimated) in names.iter().zip(&estimates.peers) {
         match &estimated.stability {
             Some(s) => println!(
-                "{}: {} windows of {} periods, beta {} to {}, trend {} per year",
+                "{}: {} windows of {} periods{}, beta {} to {}, trend {} per year",
                 name,
                 s.windows,
                 s.window_periods,
+                match s.windows < s.windows_laid {
+                    true => format!(
+                        " ({} of {} laid; the others skipped)",
+                        s.windows, s.windows_laid
+                    ),
+                    false => String::new(),
+                },
                 fixed(s.min, 3),
                 fixed(s.max, 3),
                 fixed(s.trend_per_year, 3)

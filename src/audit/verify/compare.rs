@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 8] = [
+const ADDED_IN: [(&str, &[&str]); 9] = [
     (
         "0.3.0",
         &[
@@ -136,6 +136,7 @@ const ADDED_IN: [(&str, &[&str]); 8] = [
             "securities[].excluded_reason",
         ],
     ),
+    ("0.15.0", &["peers[].stability.windows_laid"]),
 ];
 
 /// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.

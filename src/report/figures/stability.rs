@@ -476,9 +476,10 @@ fn data_summary(peers: &[crate::valuation::PeerResult]) -> String {
         .iter()
         .map(|p| match &p.stability {
             Some(s) => format!(
-                "{}: {} windows, rolling β from {} to {}, first {}, last {}.",
+                "{}: {} of {} windows, rolling β from {} to {}, first {}, last {}.",
                 p.name,
                 s.windows,
+                s.windows_laid,
                 fixed(s.min, 3),
                 fixed(s.max, 3),
                 fixed(s.first, 3),
