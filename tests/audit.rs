@@ -2965,3 +2965,52 @@ fn a_receipts_own_override_that_fails_is_named_as_the_receipts() {
         "{report}"
     );
 }
+
+// A headline rate that differs by less than the three decimals a rate is shown with is shown
+// with enough decimals to see the difference, and verification.md says what the receipt is of
+// (its title, valuation date and WACC, from the case file), not only a path (found by review:
+// "recorded 7.378%, recomputed 7.378%, 0.0 bp").
+#[test]
+fn a_small_headline_gap_is_shown_and_the_page_names_its_valuation() {
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let out = case_dir.join("output");
+    let result = common::run_case_with(&case, &out, &[]);
+    let receipt = out.join("result.json");
+    let mut recorded: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
+    let wacc = recorded["wacc"].as_f64().unwrap();
+    recorded["wacc"] = serde_json::json!(wacc * (1.0 + 5e-7));
+    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    let pages = case_dir.join("check");
+    let output = hurdle(&[
+        "verify",
+        receipt.to_str().unwrap(),
+        "--tolerance",
+        "1e-7",
+        "--out",
+        pages.to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(1), "{report}");
+    let line = report.lines().find(|l| l.contains("WACC DIFFERS")).unwrap();
+    let shown: Vec<&str> = line.split('%').collect();
+    let (was, now) = (
+        shown[0].rsplit(' ').next().unwrap(),
+        shown[1].rsplit(' ').next().unwrap(),
+    );
+    assert_ne!(was, now, "{line}");
+    let page = std::fs::read_to_string(pages.join("verification.md")).unwrap();
+    let case_text: toml::Table = toml::from_str(&std::fs::read_to_string(&case).unwrap()).unwrap();
+    let title = case_text["case"]["title"].as_str().unwrap();
+    let date = case_text["case"]["valuation_date"].to_string();
+    let second = page.lines().nth(2).unwrap();
+    assert!(
+        second.contains(title) && second.contains(&format!("valuation date {date}")),
+        "{second}"
+    );
+    assert!(second.contains(&format!(
+        "WACC {:.3}% as recorded",
+        number(&result, "wacc") * 100.0 * (1.0 + 5e-7)
+    )));
+}

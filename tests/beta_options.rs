@@ -925,6 +925,20 @@ fn skipped_rolling_windows_are_counted() {
         let stability = &peer["stability"];
         assert_eq!(stability["windows_laid"].as_u64(), Some(49), "{name}");
         assert_eq!(stability["windows"].as_u64(), Some(full as u64), "{name}");
+        // The skipped ones are the laid windows' ends a peer's returns do not fill.
+        let skipped: Vec<String> = (11..60)
+            .filter(|&e| {
+                !ends[e - 11..=e]
+                    .iter()
+                    .all(|d| have.contains(&d.to_string()))
+            })
+            .map(|e| ends[e].to_string())
+            .collect();
+        let recorded: Vec<String> = (stability["skipped_window_ends"].as_array().unwrap())
+            .iter()
+            .map(|d| d.as_str().unwrap().to_string())
+            .collect();
+        assert_eq!(recorded, skipped, "{name}");
         if full < 49 {
             skipped_somewhere = true;
             assert!(

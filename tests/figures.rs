@@ -1459,3 +1459,45 @@ fn ordinary_long_peer_names_are_written_whole_in_the_betas_chart() {
     );
     check_text_fits("betas.svg", &svg);
 }
+
+// A peer's rolling line breaks where windows were skipped: one drawn piece (a line, or a dot
+// for a window alone) per run of windows between skipped ones, the runs counted here from
+// result.json's window ends (rolling.csv) and skipped ends (found by review: the line and band
+// ran straight across 13 skipped windows).
+#[test]
+fn the_stability_chart_breaks_its_line_at_skipped_windows() {
+    let run = Run::new(&[
+        "--set",
+        "beta.rolling_window=12",
+        "--set",
+        "beta.rolling_min_observations=12",
+    ]);
+    let rolling = std::fs::read_to_string(run.dir.path().join("rolling.csv")).unwrap();
+    let svg = run.svg("stability.svg");
+    let mut broken = 0;
+    for (i, peer) in run.result["peers"].as_array().unwrap().iter().enumerate() {
+        let name = peer["name"].as_str().unwrap();
+        let ends: Vec<String> = (rolling.lines())
+            .filter(|l| l.starts_with(&format!("{name},")))
+            .map(|l| l.split(',').nth(1).unwrap().to_string())
+            .collect();
+        let skipped: Vec<&str> = (peer["stability"]["skipped_window_ends"].as_array().unwrap())
+            .iter()
+            .map(|d| d.as_str().unwrap())
+            .collect();
+        let breaks = (ends.windows(2))
+            .filter(|w| {
+                skipped
+                    .iter()
+                    .any(|s| w[0].as_str() < *s && *s < w[1].as_str())
+            })
+            .count();
+        let pieces = in_group(&svg, &format!("rolling-beta panel-{}", i + 1))
+            .into_iter()
+            .filter(|e| e.tag == "polyline" || e.tag == "circle")
+            .count();
+        assert_eq!(pieces, breaks + 1, "{name}");
+        broken += usize::from(breaks > 0);
+    }
+    assert!(broken > 0, "a peer with a skipped window inside its line");
+}

@@ -3682,3 +3682,39 @@ fn the_universe_records_its_resolved_rolling_window() {
     assert!(plain["window"]["rolling_window"].is_null());
     assert!(plain["window"]["rolling_min_observations"].is_null());
 }
+
+// The closing summary says how many listed securities the peer set's unlevered beta rests on
+// when fewer than listed: one estimated but without an unlevered beta (a missing attribute)
+// beside two with one, read from securities.csv (found by review: "3 listed, unlevered beta
+// 0.584" for a figure of two).
+#[test]
+fn the_peer_set_line_counts_the_securities_behind_its_figure() {
+    let setup = Setup::new();
+    let out = setup.succeeds("plain", &[]);
+    let table = read_table(&out.join("securities.csv"));
+    let ids = table.column("security").unwrap().str().unwrap().clone();
+    let betas = table.column("beta").unwrap().f64().unwrap().clone();
+    let unlevered = table
+        .column("unlevered_beta")
+        .unwrap()
+        .f64()
+        .unwrap()
+        .clone();
+    let pick = |with: bool| {
+        (0..table.height())
+            .filter(|&i| betas.get(i).is_some() && unlevered.get(i).is_some() == with)
+            .map(|i| ids.get(i).unwrap().to_string())
+            .collect::<Vec<_>>()
+    };
+    let (with, without) = (pick(true), pick(false));
+    assert!(
+        !without.is_empty(),
+        "the generated market has a security without one"
+    );
+    let listed = [&with[..2], &without[..1]].concat();
+    let output = setup.universe("listed", &[&format!("universe.peer_set={listed:?}")]);
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    assert!(output.status.success(), "{stdout}");
+    assert!(stdout.contains("peer set: 3 listed"), "{stdout}");
+    assert!(stdout.contains("(from 2 of them)"), "{stdout}");
+}

@@ -100,6 +100,10 @@ them; neither is a figure";
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Verification {
     pub receipt: String,
+    /// What the receipt is of, as it records it: its title, valuation date and (a case's)
+    /// WACC, so a reader who did not run the command can match the page to a memo (found by
+    /// review: the page named only a relative path).
+    pub of: String,
     /// The SHA-256 of the receipt's bytes: ties this verification to the receipt it checked
     /// (a later run writes another `result.json` under the same name).
     pub receipt_sha256: String,
@@ -262,8 +266,21 @@ impl Verification {
                     figure.and_then(|m| Some((m.recorded.as_f64()?, m.recomputed.as_f64()?)));
                 match values {
                     Some((was, now)) => {
-                        let pct = |x: f64| crate::error::rounded(x * 100.0, 3);
-                        let bp = crate::error::rounded((now - was) * 1e4, 1);
+                        // Enough decimals to tell the two rates apart, up to 12 (found by
+                        // review: a gap under a tolerance narrowed to 1e-7 read "7.378%,
+                        // 7.378%, 0.0 bp"), and a gap below 0.05 bp in exponent form.
+                        let decimals = (3..=12)
+                            .find(|&d| {
+                                crate::error::rounded(was * 100.0, d)
+                                    != crate::error::rounded(now * 100.0, d)
+                            })
+                            .unwrap_or(3);
+                        let pct = |x: f64| crate::error::rounded(x * 100.0, decimals);
+                        let gap = (now - was) * 1e4;
+                        let bp = match gap.abs() < 0.05 {
+                            true => format!("{gap:.1e}"),
+                            false => crate::error::rounded(gap, 1),
+                        };
                         let sign = if now > was { "+" } else { "" };
                         format!(
                             "{name} DIFFERS (recorded {}%, recomputed {}%, {sign}{bp} bp)",
@@ -271,7 +288,22 @@ impl Verification {
                             pct(now)
                         )
                     }
-                    None => format!("{name} DIFFERS"),
+                    // A rate the receipt lacks, with the rerun's (found by review: "DIFFERS"
+                    // alone).
+                    None => match figure.and_then(|m| m.recomputed.as_f64()) {
+                        Some(now)
+                            if figure.is_some_and(|m| {
+                                m.absent_from == Some(mismatch::Absent::Receipt)
+                                    || m.recorded.is_null()
+                            }) =>
+                        {
+                            format!(
+                                "{name} DIFFERS (absent from the receipt; recomputed {}%)",
+                                crate::error::rounded(now * 100.0, 3)
+                            )
+                        }
+                        _ => format!("{name} DIFFERS"),
+                    },
                 }
             })
             .collect::<Vec<_>>()
@@ -439,7 +471,27 @@ pub(super) fn settle(
     }
     let known_changes = found.known_changes(run.kind, &recorded_version, (recorded, recomputed));
     let (receipt_path, receipt_sha256) = run.receipt;
+    let of = {
+        let title = text(&format!("/{}/title", run.kind)).unwrap_or("(untitled)");
+        let date = (text(&format!("/{}/valuation_date", run.kind)))
+            .map(|d| format!(", valuation date {d}"))
+            .unwrap_or_default();
+        let wacc = (recorded.get("wacc").and_then(Value::as_f64))
+            .map(|w| {
+                format!(
+                    ", WACC {}% as recorded",
+                    crate::error::rounded(w * 100.0, 3)
+                )
+            })
+            .unwrap_or_default();
+        let place = std::fs::canonicalize(receipt_path).unwrap_or(receipt_path.to_path_buf());
+        format!(
+            "\"{title}\"{date}{wacc}; the receipt at {}",
+            place.display()
+        )
+    };
     Verification {
+        of,
         receipt: receipt_path.display().to_string(),
         receipt_sha256,
         kind: run.kind,

@@ -52,6 +52,10 @@ pub struct Stability {
     /// index autocorrelation below −0.4). Found by review: the memo said every window was in
     /// rolling.csv while some were skipped unsaid.
     pub windows_laid: usize,
+    /// The ends of the windows laid but skipped, ascending (empty when none was), so a reader
+    /// and the chart see where the line has no beta.
+    #[serde(serialize_with = "crate::io::series::iso_dates")]
+    pub skipped_window_ends: Vec<NaiveDate>,
     pub window_periods: u32,
     pub min: f64,
     pub max: f64,
@@ -325,21 +329,24 @@ fn design_columns(
     }
 }
 
-/// The windows [`rolling_betas`] lays through an estimation window of `periods` periods: one
-/// ending at every `step`-th period from the first full window.
-pub fn windows_laid(periods: usize, spec: &RollingSpec) -> usize {
-    match spec.window > 0 && periods >= spec.window {
-        true => (periods - spec.window) / spec.step.max(1) + 1,
-        false => 0,
+/// The ends of the windows [`rolling_betas`] lays through the estimation window whose period
+/// ends are `period_ends`: one ending at every `step`-th period from the first full window.
+pub fn laid_window_ends(period_ends: &[NaiveDate], spec: &RollingSpec) -> Vec<NaiveDate> {
+    match spec.window > 0 && period_ends.len() >= spec.window {
+        true => (spec.window - 1..period_ends.len())
+            .step_by(spec.step.max(1))
+            .map(|i| period_ends[i])
+            .collect(),
+        false => Vec::new(),
     }
 }
 
-/// Range and trend of rolling betas, of `windows_laid` windows laid; `None` with fewer than two
-/// windows.
+/// Range and trend of rolling betas, of the windows ending at `laid` (ascending; those
+/// without a point are the skipped ones); `None` with fewer than two windows.
 pub fn stability(
     points: &[RollingPoint],
     window_periods: u32,
-    windows_laid: usize,
+    laid: &[NaiveDate],
 ) -> Result<Option<Stability>> {
     if points.len() < 2 {
         return Ok(None);
@@ -356,9 +363,17 @@ pub fn stability(
         ([t1, t2], [b1, b2]) => (b2 - b1) / (t2 - t1),
         _ => ols(&design_with_intercept(&[&years]), &betas, true)?.coefficients[1],
     };
+    let mut fitted = points.iter().map(|p| p.window_end).peekable();
+    let skipped_window_ends = (laid.iter().copied())
+        .filter(|&end| {
+            while fitted.next_if(|&f| f < end).is_some() {}
+            fitted.next_if_eq(&end).is_none()
+        })
+        .collect();
     Ok(Some(Stability {
         windows: points.len(),
-        windows_laid,
+        windows_laid: laid.len(),
+        skipped_window_ends,
         window_periods,
         min: betas.iter().copied().fold(f64::INFINITY, f64::min),
         max: betas.iter().copied().fold(f64::NEG_INFINITY, f64::max),
@@ -741,17 +756,25 @@ mod tests {
                 degrees_of_freedom: 10,
             })
             .collect();
-        let s = stability(&points, 12, points.len()).unwrap().unwrap();
+        let ends: Vec<NaiveDate> = points.iter().map(|p| p.window_end).collect();
+        let s = stability(&points, 12, &ends).unwrap().unwrap();
+        assert!(s.skipped_window_ends.is_empty() && s.windows_laid == points.len());
+        // A window laid between the first two, without a point, is a skipped one.
+        let between = ends[0] + chrono::Days::new(1);
+        let laid = [&ends[..1], &[between], &ends[1..]].concat();
+        let with_gap = stability(&points, 12, &laid).unwrap().unwrap();
+        assert_eq!(with_gap.skipped_window_ends, vec![between]);
+        assert_eq!(with_gap.windows_laid, points.len() + 1);
         assert_eq!((s.min, s.max, s.windows), (1.0, 1.4, 5));
         // 0.1 per month is about 1.2 per year (months of unequal length: within 5%).
         assert!((s.trend_per_year - 1.2).abs() < 0.06, "{s:?}");
         // Two windows: the line through both points (algebra). 2020-01-31 to 2020-02-29 is 29
         // days, so the trend is 0.1 / (29 / 365.25) per year; one rounding step apart at most.
-        let s = stability(&points[..2], 12, 2).unwrap().unwrap();
+        let s = stability(&points[..2], 12, &ends[..2]).unwrap().unwrap();
         assert_eq!((s.windows, s.first, s.last), (2, 1.0, 1.1));
         let expected = (1.1 - 1.0) / (29.0 / 365.25);
         assert!((s.trend_per_year - expected).abs() < 1e-14, "{s:?}");
-        assert!(stability(&points[..1], 12, 1).unwrap().is_none());
+        assert!(stability(&points[..1], 12, &ends[..1]).unwrap().is_none());
     }
 
     // The first-to-last z by the two-sample formula (Paternoster et al. 1998), worked by hand:

@@ -141,8 +141,8 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
         "",
         "",
         "",
-        basis_points(b.stated_difference()),
-        basis_points(b.stated_difference())
+        basis_points(b.stated_difference),
+        basis_points(b.stated_difference)
     ));
     // The steps are taken one after another in the order listed, so each depends on the ones
     // before it; the Shapley value averages a group's step over every order (found by review:

@@ -193,10 +193,21 @@ fn summary(r: &UniverseResult) -> String {
                 first_ids(&ids.iter().map(String::as_str).collect::<Vec<_>>())
             ),
         };
+        // How many securities the figure rests on, when fewer than listed (found by review: a
+        // set of three, one without a tax rate, read "3 listed, unlevered beta 0.584").
+        let operations = r.settings.leverage.operations_beta;
+        let summary = match operations {
+            true => p.figures.operations.as_ref(),
+            false => p.figures.unlevered.as_ref(),
+        };
+        let behind = match summary.map(|s| s.dispersion.count) {
+            Some(n) if n != p.securities.len() => format!(" (from {n} of them)"),
+            _ => String::new(),
+        };
         lines.push(format!(
-            "  peer set: {} listed{left_out}, {} {}; {} {}{}",
+            "  peer set: {} listed{left_out}, {} {}{behind}; {} {}{}",
             p.securities.len(),
-            match r.settings.leverage.operations_beta {
+            match operations {
                 true => "beta of the operations",
                 false => "unlevered beta",
             },

@@ -481,8 +481,8 @@ pub fn estimate_security(
         .flags
         .flags(&estimate, periods_in_window, shares, lag_response.as_ref());
     let excluding_flags = spec.flags.excluding(&flags);
-    let laid = rolling::windows_laid(periods_in_window, &rolling_spec(spec));
-    let stability = rolling::stability(&rolling_points, spec.rolling.window, laid)
+    let laid = rolling::laid_window_ends(window.period_ends(), &rolling_spec(spec));
+    let stability = rolling::stability(&rolling_points, spec.rolling.window, &laid)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;
     let no_stability = (stability.is_none()).then(|| {
         let shifted = aligned.market_shifted.len();

@@ -76,6 +76,14 @@ pub fn iso_date<S: serde::Serializer>(
     serializer.collect_str(&date.format("%Y-%m-%d"))
 }
 
+/// Serialises dates as a list of ISO 8601 texts, for `#[serde(serialize_with)]`.
+pub fn iso_dates<S: serde::Serializer>(
+    dates: &[NaiveDate],
+    serializer: S,
+) -> std::result::Result<S::Ok, S::Error> {
+    serializer.collect_seq(dates.iter().map(|d| d.format("%Y-%m-%d").to_string()))
+}
+
 /// Lower-case hexadecimal SHA-256 of some bytes.
 pub fn sha256_hex(bytes: &[u8]) -> String {
     Sha256::digest(bytes)

@@ -88,6 +88,7 @@ pub fn markdown(r: &Verification) -> String {
     let w = &mut out;
     // Writing to a String cannot fail; the results are ignored below for that reason.
     let _ = writeln!(w, "# Verification of `{}`\n", r.receipt);
+    let _ = writeln!(w, "{}.\n", crate::report::format::prose(r.of.clone()));
     let verdict = r.verdict();
     let (word, rest) = verdict.split_once(": ").unwrap_or((&verdict, ""));
     let _ = writeln!(w, "**{word}**: {rest}.\n");

@@ -443,15 +443,11 @@ pub struct Bridge {
     pub unexplained_from: Option<f64>,
     /// The bridge as waterfall bars, by Shapley value (see `audit::waterfall`).
     pub waterfall: Vec<WaterfallBar>,
-}
-
-impl Bridge {
     /// The gap between the two WACCs as stated (a claim's `wacc`, else its components'), which
-    /// the unexplained parts and the steps add up to, as in `bridge.csv`.
-    pub fn stated_difference(&self) -> f64 {
-        let stated = |side: &Side| side.stated_wacc.unwrap_or(side.wacc);
-        stated(&self.to) - stated(&self.from)
-    }
+    /// the unexplained parts and the steps add up to, as in `bridge.csv` and the memo's table
+    /// (added in 0.15.0; found by review: the terminal's and the memo's totals were the
+    /// components' gap).
+    pub stated_difference: f64,
 }
 
 /// Bin edges (one more than the counts) and counts of the values in each bin.

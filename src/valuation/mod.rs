@@ -316,9 +316,17 @@ fn dropped_note(name: &str, estimated: &SecurityEstimate, explained: bool) -> Op
             0 => missing.to_string(),
             n => format!("{missing}, {n} of them for a stale price"),
         };
+        // A period missing from several files counts under each (found by review: "1 of 60
+        // periods dropped (peer price missing 1, index price missing 1, risk-free missing 1)").
+        let reasons =
+            d.asset_missing + d.market_missing + d.risk_free_missing + d.shifted_market_missing;
+        let overlap = match reasons > d.total {
+            true => "; a period can count under several reasons",
+            false => "",
+        };
         format!(
             "{name}: {} of {} periods dropped (peer price missing {}, index price missing {}, \
-             risk-free missing {}{shifted}).{why}",
+             risk-free missing {}{shifted}{overlap}).{why}",
             d.total,
             estimated.periods_in_window,
             of_which(d.asset_missing, d.asset_stale),

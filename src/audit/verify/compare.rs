@@ -136,7 +136,14 @@ const ADDED_IN: [(&str, &[&str]); 9] = [
             "securities[].excluded_reason",
         ],
     ),
-    ("0.15.0", &["peers[].stability.windows_laid"]),
+    (
+        "0.15.0",
+        &[
+            "peers[].stability.windows_laid",
+            "peers[].stability.skipped_window_ends",
+            "reconciliation.stated_difference",
+        ],
+    ),
 ];
 
 /// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.

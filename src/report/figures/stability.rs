@@ -22,6 +22,7 @@ use crate::beta::rolling::RollingPoint;
 use crate::error::Result;
 use crate::report::format::fixed;
 use crate::valuation::Valuation;
+use chrono::NaiveDate;
 use time_axis::year;
 
 const WIDTH: u32 = 720;
@@ -229,7 +230,8 @@ fn draw_part(
     let panels = peers.iter().zip(&valuation.rolling).enumerate();
     for (i, (peer, points)) in panels.take(last).skip(first) {
         grid.frame(&mut canvas, i, &peer.name, points.len())?;
-        grid.data(&mut canvas, i, peer.estimate.beta, points)?;
+        let skipped = (peer.stability.as_ref()).map_or(&[][..], |s| &s.skipped_window_ends[..]);
+        grid.data(&mut canvas, i, peer.estimate.beta, &runs(points, skipped))?;
     }
     let description = format!("{caption} {}", data_summary(&peers[first..last]));
     let id = match k {
@@ -351,17 +353,21 @@ impl Panels<'_> {
         })
     }
 
-    /// Panel `i`'s band, whole-window beta and rolling betas.
+    /// Panel `i`'s band, whole-window beta and rolling betas, each run of windows without a
+    /// skipped one between them drawn apart.
     fn data(
         &self,
         canvas: &mut Canvas,
         i: usize,
         beta: f64,
-        points: &[RollingPoint],
+        runs: &[&[RollingPoint]],
     ) -> Result<()> {
         // One window is a point, not a line over time: the panel says so instead (`frame`).
-        let points = if points.len() >= 2 { points } else { &[] };
-        self.layer(canvas, i, "band", &|_, chart| draw_band(chart, points))?;
+        let windows: usize = runs.iter().map(|r| r.len()).sum();
+        let runs = if windows >= 2 { runs } else { &[] };
+        self.layer(canvas, i, "band", &|_, chart| {
+            runs.iter().try_for_each(|run| draw_band(chart, run))
+        })?;
         let (x0, x1) = (self.axes[i].x.range.start, self.axes[i].x.range.end);
         self.layer(canvas, i, "full-window-beta", &|_, chart| {
             chart.draw_series(std::iter::once(DashedPathElement::new(
@@ -373,19 +379,44 @@ impl Panels<'_> {
             Ok(())
         })?;
         self.layer(canvas, i, "rolling-beta", &|_, chart| {
-            if points.is_empty() {
-                return Ok(());
+            for run in runs {
+                // A window alone between skipped ones is a dot: a line needs two.
+                if let [only] = run {
+                    chart.draw_series(std::iter::once(Circle::new(
+                        (year(only.window_end), only.beta),
+                        2,
+                        PRIMARY.filled(),
+                    )))?;
+                    continue;
+                }
+                chart.draw_series(std::iter::once(PathElement::new(
+                    run.iter()
+                        .map(|p| (year(p.window_end), p.beta))
+                        .collect::<Vec<_>>(),
+                    PRIMARY.stroke_width(2),
+                )))?;
             }
-            chart.draw_series(std::iter::once(PathElement::new(
-                points
-                    .iter()
-                    .map(|p| (year(p.window_end), p.beta))
-                    .collect::<Vec<_>>(),
-                PRIMARY.stroke_width(2),
-            )))?;
             Ok(())
         })
     }
+}
+
+/// `points` cut where a skipped window's end lies between two of them (found by review: the
+/// line and band were drawn straight across 13 skipped windows, hiding the gap).
+fn runs<'a>(points: &'a [RollingPoint], skipped: &[NaiveDate]) -> Vec<&'a [RollingPoint]> {
+    let mut runs = Vec::new();
+    let mut start = 0;
+    for k in 1..points.len() {
+        let (before, after) = (points[k - 1].window_end, points[k].window_end);
+        if skipped.iter().any(|&s| before < s && s < after) {
+            runs.push(&points[start..k]);
+            start = k;
+        }
+    }
+    if start < points.len() {
+        runs.push(&points[start..]);
+    }
+    runs
 }
 
 fn draw_band(chart: &mut Chart, points: &[RollingPoint]) -> Drawn {
