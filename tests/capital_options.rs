@@ -961,7 +961,7 @@ fn a_size_premium_for_a_subject_larger_than_some_peers_is_questioned() {
     let notes = result["notes"].to_string();
     assert!(
         notes.contains(&format!(
-            "is above that of {below} of the {} peers",
+            "is above that of {below} of the {} peers aggregated",
             peers.len()
         )),
         "{notes}"
@@ -969,5 +969,15 @@ fn a_size_premium_for_a_subject_larger_than_some_peers_is_questioned() {
     // Without the premium, no such note.
     let dir = tempfile::tempdir().unwrap();
     let result = run_demo(dir.path(), &["premiums.size=0"]);
+    assert!(!result["notes"].to_string().contains("a size premium of"));
+    // With the smaller peers left out of the aggregate, the subject is smaller than every peer
+    // its beta comes from: no note (found by review: excluded peers were counted).
+    let smaller: Vec<String> = (result["peers"].as_array().unwrap().iter())
+        .filter(|p| number(p, "equity_value") < subject)
+        .map(|p| format!("peer.{}.exclude=\"smaller\"", p["name"].as_str().unwrap()))
+        .collect();
+    let sets: Vec<&str> = smaller.iter().map(String::as_str).collect();
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &sets);
     assert!(!result["notes"].to_string().contains("a size premium of"));
 }

@@ -274,7 +274,7 @@ impl Verification {
                                 crate::error::rounded(was * 100.0, d)
                                     != crate::error::rounded(now * 100.0, d)
                             })
-                            .unwrap_or(3);
+                            .unwrap_or(12);
                         let pct = |x: f64| crate::error::rounded(x * 100.0, decimals);
                         let gap = (now - was) * 1e4;
                         let bp = match gap.abs() < 0.05 {
@@ -290,20 +290,33 @@ impl Verification {
                     }
                     // A rate the receipt lacks, with the rerun's (found by review: "DIFFERS"
                     // alone).
-                    None => match figure.and_then(|m| m.recomputed.as_f64()) {
-                        Some(now)
-                            if figure.is_some_and(|m| {
-                                m.absent_from == Some(mismatch::Absent::Receipt)
-                                    || m.recorded.is_null()
-                            }) =>
-                        {
-                            format!(
-                                "{name} DIFFERS (absent from the receipt; recomputed {}%)",
-                                crate::error::rounded(now * 100.0, 3)
-                            )
+                    None => {
+                        let rate = |v: &Value| {
+                            v.as_f64()
+                                .map(|x| format!("{}%", crate::error::rounded(x * 100.0, 3)))
+                        };
+                        let absent = |side| figure.is_some_and(|m| m.absent_from == Some(side));
+                        match figure {
+                            Some(m) => match (rate(&m.recorded), rate(&m.recomputed)) {
+                                (None, Some(now)) => format!(
+                                    "{name} DIFFERS ({} the receipt; recomputed {now})",
+                                    match absent(mismatch::Absent::Receipt) {
+                                        true => "absent from",
+                                        false => "not a rate in",
+                                    }
+                                ),
+                                (Some(was), None) => format!(
+                                    "{name} DIFFERS (recorded {was}; {} by the rerun)",
+                                    match absent(mismatch::Absent::Rerun) {
+                                        true => "not written",
+                                        false => "no rate given",
+                                    }
+                                ),
+                                _ => format!("{name} DIFFERS"),
+                            },
+                            None => format!("{name} DIFFERS"),
                         }
-                        _ => format!("{name} DIFFERS"),
-                    },
+                    }
                 }
             })
             .collect::<Vec<_>>()
@@ -472,7 +485,10 @@ pub(super) fn settle(
     let known_changes = found.known_changes(run.kind, &recorded_version, (recorded, recomputed));
     let (receipt_path, receipt_sha256) = run.receipt;
     let of = {
-        let title = text(&format!("/{}/title", run.kind)).unwrap_or("(untitled)");
+        let title = match text(&format!("/{}/title", run.kind)) {
+            Some(title) => format!("\"{title}\""),
+            None => "a receipt without a title".to_string(),
+        };
         let date = (text(&format!("/{}/valuation_date", run.kind)))
             .map(|d| format!(", valuation date {d}"))
             .unwrap_or_default();
@@ -485,10 +501,7 @@ pub(super) fn settle(
             })
             .unwrap_or_default();
         let place = std::fs::canonicalize(receipt_path).unwrap_or(receipt_path.to_path_buf());
-        format!(
-            "\"{title}\"{date}{wacc}; the receipt at {}",
-            place.display()
-        )
+        format!("{title}{date}{wacc}; the receipt at {}", place.display())
     };
     Verification {
         of,

@@ -40,7 +40,13 @@ fn quoted(text: &str) -> String {
 /// spreadsheet header) becomes one line, its runs of whitespace one space; the `column` key keeps
 /// the header as it is.
 fn display_name(header: &str) -> String {
-    let name = header
+    // What the case refuses in a name is left off it first, so a formula's first character
+    // behind an invisible one is seen below (found by review: `init` wrote names `run` then
+    // refused): direction controls, invisible characters and noncharacters.
+    let visible: String = (header.chars())
+        .filter(|&c| !super::sanity::unseen_or_unwritable(c))
+        .collect();
+    let name = visible
         .split(|c: char| c.is_whitespace() || c.is_control())
         .filter(|part| !part.is_empty())
         .collect::<Vec<_>>()
@@ -56,16 +62,16 @@ fn display_name(header: &str) -> String {
         let inner = span[1..span.len() - 1].to_string();
         kept = kept.replacen(span, &format!("({inner})"), 1);
     }
-    // What the case refuses in a name, left off it too (found by review: `init` wrote names
-    // `run` then refused): direction controls, invisible characters and noncharacters dropped,
-    // a name past the case's limit cut with an ellipsis.
-    let kept: String = (kept.chars())
-        .filter(|&c| !super::sanity::unseen_or_unwritable(c))
-        .collect();
-    let most = super::sanity::MAX_LABEL_CHARACTERS;
-    let kept = match kept.chars().count() > most {
-        true => kept.chars().take(most - 1).chain(['…']).collect(),
-        false => kept.trim().to_string(),
+    // A name past the case's limit is cut with an ellipsis, leaving room for the number
+    // `peer_names` may add (` (9999)`).
+    let kept = kept.trim();
+    let most = super::sanity::MAX_LABEL_CHARACTERS - 8;
+    let kept: String = match kept.chars().count() > most {
+        true => {
+            let cut: String = kept.chars().take(most - 1).collect();
+            cut.trim_end().chars().chain(['…']).collect()
+        }
+        false => kept.to_string(),
     };
     match kept.is_empty() {
         true => "peer".to_string(),

@@ -20,8 +20,9 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
                 false => ".",
             };
             notes.push(format!(
-                "{} is estimated and shown but left out of the aggregation: {reason}{stop}",
-                peer.name
+                "{} is estimated and shown but left out of the aggregation: {}{stop}",
+                peer.name,
+                reason.trim_end()
             ));
         }
     }
@@ -80,7 +81,7 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
         ));
     }
     notes.extend(net_debt_beta_note(settings));
-    notes.extend(size_premium_note(settings));
+    notes.extend(size_premium_note(settings, exclusions));
     if settings.leverage.formula == Formula::Hamada
         && settings.leverage.debt_beta_source != DebtBetaSource::None
     {
@@ -97,9 +98,14 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
 /// ground is a subject smaller than the firms its beta comes from (found by review: the demo's
 /// justification said "smaller than every peer" while its equity value was above four of
 /// them). Equity values are compared as given, in the units the case shares.
-fn size_premium_note(settings: &CaseFile) -> Option<String> {
+fn size_premium_note(settings: &CaseFile, exclusions: &[Option<String>]) -> Option<String> {
     let subject = settings.target.subject_equity_value?;
-    let peers: Vec<f64> = settings.peers.iter().map(|p| p.equity_value).collect();
+    // The peers aggregated: the firms the beta comes from (found by review: excluded ones
+    // were counted).
+    let peers: Vec<f64> = (settings.peers.iter().zip(exclusions))
+        .filter(|(_, excluded)| excluded.is_none())
+        .map(|(p, _)| p.equity_value)
+        .collect();
     let below = peers.iter().filter(|&&e| e < subject).count();
     (settings.premiums.size > 0.0 && below > 0).then(|| {
         let (least, most) = peers
@@ -107,9 +113,10 @@ fn size_premium_note(settings: &CaseFile) -> Option<String> {
             .fold((f64::INFINITY, 0.0_f64), |(l, m), &e| (l.min(e), m.max(e)));
         format!(
             "Check: a size premium of {}% is added, but the subject's equity value \
-             (target.subject_equity_value = {}) is above that of {below} of the {} peers ({} to \
-             {}): a size premium usually rests on the subject being smaller than the firms its \
-             beta comes from; say why it applies (premiums.size_justification).",
+             (target.subject_equity_value = {}) is above that of {below} of the {} peers \
+             aggregated ({} to {}): a size premium usually rests on the subject being smaller \
+             than the firms its beta comes from; say why it applies \
+             (premiums.size_justification).",
             crate::error::rounded(settings.premiums.size * 100.0, 2),
             crate::error::compact(subject),
             peers.len(),

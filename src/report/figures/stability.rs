@@ -366,7 +366,18 @@ impl Panels<'_> {
         let windows: usize = runs.iter().map(|r| r.len()).sum();
         let runs = if windows >= 2 { runs } else { &[] };
         self.layer(canvas, i, "band", &|_, chart| {
-            runs.iter().try_for_each(|run| draw_band(chart, run))
+            runs.iter().try_for_each(|run| match run {
+                // A window alone: its interval as a bar (a band of one point has no width).
+                [only] => {
+                    let x = year(only.window_end);
+                    chart.draw_series(std::iter::once(PathElement::new(
+                        vec![(x, only.band_low), (x, only.band_high)],
+                        BAND.stroke_width(6),
+                    )))?;
+                    Ok(())
+                }
+                _ => draw_band(chart, run),
+            })
         })?;
         let (x0, x1) = (self.axes[i].x.range.start, self.axes[i].x.range.end);
         self.layer(canvas, i, "full-window-beta", &|_, chart| {
@@ -473,6 +484,18 @@ fn widest(valuation: &Valuation) -> String {
 }
 
 fn caption(valuation: &Valuation, window: u32, step: u32, shared: bool) -> String {
+    // Said when a line has a gap (found by review: breaks and lone dots went unexplained).
+    let skipped = (valuation.peers.iter())
+        .filter_map(|p| p.stability.as_ref())
+        .any(|s| !s.skipped_window_ends.is_empty());
+    let gaps = match skipped {
+        true => {
+            " A line breaks where windows were skipped (too few returns, or an index or a peer \
+             that does not move in them; peers[].stability.skipped_window_ends); a window alone \
+             between skipped ones is a dot, its interval a bar."
+        }
+        false => "",
+    };
     let scale = match shared {
         true => "all panels share one β scale".to_string(),
         false => format!(
@@ -488,7 +511,7 @@ fn caption(valuation: &Valuation, window: u32, step: u32, shared: bool) -> Strin
          interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
          the window's last {period}, marked at the ends of months, quarters, half-years or years \
          (every 2, 5, 10 or more years on a long span), each tick labelled with the month or year \
-         it ends, as finely as the labels fit; {scale}. Figures: the rolling \
+         it ends, as finely as the labels fit; {scale}.{gaps} Figures: the rolling \
          betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",
         super::method_name(valuation.estimator.method),
