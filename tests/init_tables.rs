@@ -629,6 +629,21 @@ fn no_peer_is_named_after_a_column_it_does_not_read() {
     assert_eq!(peers[1]["column"].as_str(), Some("A B"));
 }
 
+/// A wide CSV of an index column `Idx` and one column per header, over three month ends.
+fn three_rows(headers: &[&str]) -> String {
+    let mut text = format!("date,Idx,{}\n", headers.join(","));
+    for (i, day) in ["2024-01-31", "2024-02-29", "2024-03-28"]
+        .iter()
+        .enumerate()
+    {
+        let prices: Vec<String> = (0..headers.len())
+            .map(|j| format!("{}", 10 + i + j))
+            .collect();
+        text.push_str(&format!("{day},{},{}\n", 100 + i, prices.join(",")));
+    }
+    text
+}
+
 // Found by review: init wrote names `run` refuses (README, `[[peer]]` name: no direction
 // controls or invisible characters, at most 1,000 characters, unique when capitals, the
 // encoding of accented letters and soft hyphens are set aside). Each header here breaks one
@@ -648,17 +663,7 @@ fn init_writes_names_the_case_accepts() {
         "Zero\u{200b}Width",
         long.as_str(),
     ];
-    let mut text = format!("date,Idx,{}\n", headers.join(","));
-    for (i, day) in ["2024-01-31", "2024-02-29", "2024-03-28"]
-        .iter()
-        .enumerate()
-    {
-        let prices: Vec<String> = (0..headers.len())
-            .map(|j| format!("{}", 10 + i + j))
-            .collect();
-        text.push_str(&format!("{day},{},{}\n", 100 + i, prices.join(",")));
-    }
-    let csv = folder.write("wide.csv", &text);
+    let csv = folder.write("wide.csv", &three_rows(&headers));
     folder.init_ok(&csv, &["--index", "Idx"]);
     let written = fs::read_to_string(folder.path("case.toml")).unwrap();
     let case: toml::Table = toml::from_str(&written).unwrap();
@@ -730,17 +735,7 @@ fn a_case_init_wrote_passes_the_cases_name_checks() {
         long_a.as_str(),
         long_b.as_str(),
     ];
-    let mut text = format!("date,Idx,{}\n", headers.join(","));
-    for (i, day) in ["2024-01-31", "2024-02-29", "2024-03-28"]
-        .iter()
-        .enumerate()
-    {
-        let prices: Vec<String> = (0..headers.len())
-            .map(|j| format!("{}", 10 + i + j))
-            .collect();
-        text.push_str(&format!("{day},{},{}\n", 100 + i, prices.join(",")));
-    }
-    let csv = folder.write("wide.csv", &text);
+    let csv = folder.write("wide.csv", &three_rows(&headers));
     folder.init_ok(&csv, &["--index", "Idx"]);
     let case = folder.path("case.toml");
     let filled: Vec<String> = (fs::read_to_string(&case).unwrap().lines())
