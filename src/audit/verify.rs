@@ -11,6 +11,7 @@
 mod checks;
 mod compare;
 mod files;
+mod headline;
 mod mismatch;
 mod notes;
 mod universe;
@@ -23,7 +24,7 @@ use serde_json::Value;
 use crate::case::read_case;
 use crate::error::{Error, Result};
 use crate::valuation::load_inputs;
-use checks::{check_kind, check_schema, refused_since};
+use checks::{check_kind, check_schema, recorded_overrides, refused_since};
 pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
 use files::file_checks;
@@ -251,78 +252,6 @@ impl Verification {
         )
     }
 
-    /// The headline figures in words: `WACC reproduced; cost of equity DIFFERS; …`.
-    pub fn headline_summary(&self) -> String {
-        self.headline
-            .iter()
-            .map(|(key, same)| {
-                let name = key.replace('_', " ").replace("wacc", "WACC");
-                if *same {
-                    return format!("{name} reproduced");
-                }
-                // The two rates and their gap in basis points, as a reviewer reads a rate.
-                let figure = self.mismatches.iter().find(|m| m.path == *key);
-                let values =
-                    figure.and_then(|m| Some((m.recorded.as_f64()?, m.recomputed.as_f64()?)));
-                match values {
-                    Some((was, now)) => {
-                        // Enough decimals to tell the two rates apart, up to 12 (found by
-                        // review: a gap under a tolerance narrowed to 1e-7 read "7.378%,
-                        // 7.378%, 0.0 bp"), and a gap below 0.05 bp in exponent form.
-                        let decimals = (3..=12)
-                            .find(|&d| {
-                                crate::error::rounded(was * 100.0, d)
-                                    != crate::error::rounded(now * 100.0, d)
-                            })
-                            .unwrap_or(12);
-                        let pct = |x: f64| crate::error::rounded(x * 100.0, decimals);
-                        let gap = (now - was) * 1e4;
-                        let bp = match gap.abs() < 0.05 {
-                            true => format!("{gap:.1e}"),
-                            false => crate::error::rounded(gap, 1),
-                        };
-                        let sign = if now > was { "+" } else { "" };
-                        format!(
-                            "{name} DIFFERS (recorded {}%, recomputed {}%, {sign}{bp} bp)",
-                            pct(was),
-                            pct(now)
-                        )
-                    }
-                    // A rate the receipt lacks, with the rerun's (found by review: "DIFFERS"
-                    // alone).
-                    None => {
-                        let rate = |v: &Value| {
-                            v.as_f64()
-                                .map(|x| format!("{}%", crate::error::rounded(x * 100.0, 3)))
-                        };
-                        let absent = |side| figure.is_some_and(|m| m.absent_from == Some(side));
-                        match figure {
-                            Some(m) => match (rate(&m.recorded), rate(&m.recomputed)) {
-                                (None, Some(now)) => format!(
-                                    "{name} DIFFERS ({} the receipt; recomputed {now})",
-                                    match absent(mismatch::Absent::Receipt) {
-                                        true => "absent from",
-                                        false => "not a rate in",
-                                    }
-                                ),
-                                (Some(was), None) => format!(
-                                    "{name} DIFFERS (recorded {was}; {} by the rerun)",
-                                    match absent(mismatch::Absent::Rerun) {
-                                        true => "not written",
-                                        false => "no rate given",
-                                    }
-                                ),
-                                _ => format!("{name} DIFFERS"),
-                            },
-                            None => format!("{name} DIFFERS"),
-                        }
-                    }
-                }
-            })
-            .collect::<Vec<_>>()
-            .join("; ")
-    }
-
     /// What the wording differences mean: another version's words, or, with changed inputs,
     /// the figures the notes quote, which moved with them. (From this very version and the
     /// same inputs they are mismatches: [`Verification::edited_sentences`].)
@@ -540,35 +469,6 @@ fn headline(found: &Comparison) -> Vec<(String, bool)> {
             )
         })
         .collect()
-}
-
-/// A failure of the overrides a receipt records, named as the receipt's, not as a `--set` the
-/// user gave (found by review: an edited `case.overrides` read as the user's own `--set`).
-pub(super) fn recorded_overrides(receipt: &Path, error: Error) -> Error {
-    match error {
-        Error::Override {
-            assignment,
-            message,
-        } => Error::DataFile {
-            file: receipt.to_path_buf(),
-            message: format!(
-                "the override {assignment} the receipt records does not apply: {message}"
-            ),
-        },
-        Error::AfterOverrides {
-            file,
-            overrides,
-            message,
-        } => Error::DataFile {
-            file: receipt.to_path_buf(),
-            message: format!(
-                "{} with the overrides the receipt records ({}): {message}",
-                file.display(),
-                overrides.join(", ")
-            ),
-        },
-        other => other,
-    }
 }
 
 /// The input file a receipt's `section` (`case` or `universe`) names, found as

@@ -95,6 +95,20 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
             ));
         }
     }
+    out.push_str(&bridge_table(b));
+    out.push_str(&notes(b, csv));
+    out.push_str(&side_notes(b));
+    if let [Some(from), Some(to)] = facts {
+        out.push_str(&case_notes(b, from, to));
+    }
+    out
+}
+
+/// The bridge as the terminal's table: a row per input group, a claim's stated WACC beyond its
+/// components before and after them, the total of the stated WACCs' gap, and the note on the
+/// steps' order.
+fn bridge_table(b: &Bridge) -> String {
+    let mut out = String::new();
     out.push_str(&format!(
         "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
         "input group", "from", "to", "WACC after", "step", "Shapley"
@@ -152,11 +166,6 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
          depends on their order; the Shapley value is the group's step averaged over every \
          order\n",
     );
-    out.push_str(&notes(b, csv));
-    out.push_str(&side_notes(b));
-    if let [Some(from), Some(to)] = facts {
-        out.push_str(&case_notes(b, from, to));
-    }
     out
 }
 

@@ -136,6 +136,48 @@ impl Display {
     }
 }
 
+/// The closing summary's line on a listed peer set: how many are listed and left out, its
+/// figure and how many securities it rests on, and its place in its home industry.
+fn peer_set_line(r: &UniverseResult, p: &hurdle::universe::peer_set::PeerSetResult) -> String {
+    let shown = |x: Option<f64>| x.map_or("–".to_string(), |x| fixed(x, 3));
+    // Those listed but left out, by name (found by review: the line did not say).
+    let left_out = match p.left_out.as_slice() {
+        [] => String::new(),
+        ids => format!(
+            " ({} not estimated or excluded: {})",
+            ids.len(),
+            first_ids(&ids.iter().map(String::as_str).collect::<Vec<_>>())
+        ),
+    };
+    // How many securities the figure rests on, when fewer than listed (found by review: a
+    // set of three, one without a tax rate, read "3 listed, unlevered beta 0.584").
+    let operations = r.settings.leverage.operations_beta;
+    let summary = match operations {
+        true => p.figures.operations.as_ref(),
+        false => p.figures.unlevered.as_ref(),
+    };
+    let behind = match summary.map(|s| s.dispersion.count) {
+        Some(n) if n != p.securities.len() => format!(" (from {n} of them)"),
+        _ => String::new(),
+    };
+    format!(
+        "  peer set: {} listed{left_out}, {} {}{behind}; {} {}{}",
+        p.securities.len(),
+        match operations {
+            true => "beta of the operations",
+            false => "unlevered beta",
+        },
+        shown(p.figures.unlevered_beta),
+        p.home_industry.as_deref().unwrap_or("no industry"),
+        shown(p.home_unlevered_beta),
+        p.share_of_home_below.map_or(String::new(), |share| format!(
+            " ({} of its {} figures below the set's)",
+            percent(share, 0),
+            p.home_count
+        ))
+    )
+}
+
 fn summary(r: &UniverseResult) -> String {
     let c = &r.counts;
     let not = nonzero_counts(&c.not_estimated);
@@ -182,45 +224,7 @@ fn summary(r: &UniverseResult) -> String {
             }
         ),
     ];
-    if let Some(p) = &r.peer_set {
-        let shown = |x: Option<f64>| x.map_or("–".to_string(), |x| fixed(x, 3));
-        // Those listed but left out, by name (found by review: the line did not say).
-        let left_out = match p.left_out.as_slice() {
-            [] => String::new(),
-            ids => format!(
-                " ({} not estimated or excluded: {})",
-                ids.len(),
-                first_ids(&ids.iter().map(String::as_str).collect::<Vec<_>>())
-            ),
-        };
-        // How many securities the figure rests on, when fewer than listed (found by review: a
-        // set of three, one without a tax rate, read "3 listed, unlevered beta 0.584").
-        let operations = r.settings.leverage.operations_beta;
-        let summary = match operations {
-            true => p.figures.operations.as_ref(),
-            false => p.figures.unlevered.as_ref(),
-        };
-        let behind = match summary.map(|s| s.dispersion.count) {
-            Some(n) if n != p.securities.len() => format!(" (from {n} of them)"),
-            _ => String::new(),
-        };
-        lines.push(format!(
-            "  peer set: {} listed{left_out}, {} {}{behind}; {} {}{}",
-            p.securities.len(),
-            match operations {
-                true => "beta of the operations",
-                false => "unlevered beta",
-            },
-            shown(p.figures.unlevered_beta),
-            p.home_industry.as_deref().unwrap_or("no industry"),
-            shown(p.home_unlevered_beta),
-            p.share_of_home_below.map_or(String::new(), |share| format!(
-                " ({} of its {} figures below the set's)",
-                percent(share, 0),
-                p.home_count
-            ))
-        ));
-    }
+    lines.extend(r.peer_set.as_ref().map(|p| peer_set_line(r, p)));
     for note in &r.notes {
         lines.push(format!("  note: {note}"));
     }

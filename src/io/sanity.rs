@@ -324,7 +324,6 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
     let mut header_fields = None;
     let mut fewest = 0;
     let (mut fields, mut in_quotes, mut record_line) = (1, false, 1);
-    let mut opens_a_field = false;
     let mut line_start = 0;
     for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
         let line = i + 1;
@@ -342,13 +341,7 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
         // Quotes and commas are single bytes that UTF-8 never uses inside another character.
         for (at, &b) in raw.iter().enumerate() {
             match b {
-                b'"' => {
-                    in_quotes = !in_quotes;
-                    // A quote that opens a field (RFC 4180), not one inside a field's text.
-                    if in_quotes {
-                        opens_a_field = at == 0 || raw[at - 1] == b',';
-                    }
-                }
+                b'"' => in_quotes = !in_quotes,
                 b',' if !in_quotes => fields += 1,
                 b'\r' if !in_quotes => {
                     let stray = crlf && at + 1 == raw.len();
@@ -389,29 +382,44 @@ pub fn check_csv_shape(file: &Path, bytes: &[u8], short_rows: bool) -> Result<Op
             Some(_) => {}
         }
     }
-    if in_quotes && opens_a_field {
-        // The rest of the file would read as one cell (found by review: its message quoted
-        // 35 kB of the file as the cell's value).
-        let opened = String::from_utf8_lossy(
-            bytes
-                .split(|&b| b == b'\n')
-                .nth(record_line - 1)
-                .unwrap_or_default(),
-        );
-        return Err(row_error(
-            record_line,
-            format!(
-                "a quote opened on this line (`{}`) is never closed, so every line after it \
-                 would read as part of one cell: close the quote or remove it",
-                opened
-                    .trim_end_matches('\r')
-                    .chars()
-                    .take(80)
-                    .collect::<String>()
-            ),
-        ));
+    match never_closed(bytes, record_line, in_quotes) {
+        Some(message) => Err(row_error(record_line, message)),
+        None => Ok(blank),
     }
-    Ok(blank)
+}
+
+/// The message for a quote left open (`open`) at the end of `bytes`, from the record starting on
+/// line `line` (from 1), when the quote that stayed open opens a field (RFC 4180; a quote inside a
+/// field's text is the shape check's to name): the rest of the file would read as one cell
+/// (found by review: its message quoted 35 kB of the file as the cell's value).
+fn never_closed(bytes: &[u8], line: usize, open: bool) -> Option<String> {
+    if !open {
+        return None;
+    }
+    let start: usize = (bytes.split(|&b| b == b'\n').take(line - 1))
+        .map(|l| l.len() + 1)
+        .sum();
+    let (mut open, mut opens_a_field) = (false, false);
+    for (at, &b) in bytes.iter().enumerate().skip(start) {
+        if b == b'"' {
+            open = !open;
+            opens_a_field = open && (at == start || matches!(bytes[at - 1], b',' | b'\n'));
+        }
+    }
+    let opened = bytes[start.min(bytes.len())..]
+        .split(|&b| b == b'\n')
+        .next()?;
+    let shown: String = (String::from_utf8_lossy(opened)
+        .trim_end_matches('\r')
+        .chars())
+    .take(80)
+    .collect();
+    (open && opens_a_field).then(|| {
+        format!(
+            "a quote opened on this line (`{shown}`) is never closed, so every line after it \
+             would read as part of one cell: close the quote or remove it"
+        )
+    })
 }
 
 /// A file of white space alone, named as empty.

@@ -87,14 +87,7 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
             line: row.line,
             message,
         };
-        check_spread(row.spread).map_err(row_error)?;
-        // Found by review: an empty rating was accepted, shown as a blank cell in the memo
-        // and matched by `debt.rating = ""`.
-        if row.rating.trim().is_empty() {
-            return Err(row_error(
-                "the rating is empty: each row names its rating (BBB, say)".into(),
-            ));
-        }
+        check_row(row).map_err(row_error)?;
         if coverage {
             let Some(low) = row.min_coverage else {
                 return Err(row_error("min_coverage is missing".into()));
@@ -126,6 +119,16 @@ pub fn read_spread_table(written: &str, path: &Path, coverage: bool) -> Result<S
         row_count: rows.len(),
         rows,
     })
+}
+
+/// A row's spread in range and its rating named (found by review: an empty rating was accepted,
+/// shown as a blank cell in the memo and matched by `debt.rating = ""`).
+fn check_row(row: &SpreadRow) -> std::result::Result<(), String> {
+    check_spread(row.spread)?;
+    match row.rating.trim().is_empty() {
+        true => Err("the rating is empty: each row names its rating (BBB, say)".into()),
+        false => Ok(()),
+    }
 }
 
 /// A TOML spread table's rows, each with the line where its table (or inline table) starts.

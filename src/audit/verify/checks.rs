@@ -108,3 +108,32 @@ pub(super) fn refused_since(error: Error, recorded: &Value) -> Error {
         other => other,
     }
 }
+
+/// A failure of the overrides a receipt records, named as the receipt's, not as a `--set` the
+/// user gave (found by review: an edited `case.overrides` read as the user's own `--set`).
+pub(crate) fn recorded_overrides(receipt: &std::path::Path, error: Error) -> Error {
+    match error {
+        Error::Override {
+            assignment,
+            message,
+        } => Error::DataFile {
+            file: receipt.to_path_buf(),
+            message: format!(
+                "the override {assignment} the receipt records does not apply: {message}"
+            ),
+        },
+        Error::AfterOverrides {
+            file,
+            overrides,
+            message,
+        } => Error::DataFile {
+            file: receipt.to_path_buf(),
+            message: format!(
+                "{} with the overrides the receipt records ({}): {message}",
+                file.display(),
+                overrides.join(", ")
+            ),
+        },
+        other => other,
+    }
+}

@@ -155,12 +155,7 @@ fn draw_part(
     let axes = Axes {
         x: Scale::plain(low.min(aggregate), high.max(aggregate), 0.05, 8),
         y: Scale::bare(bottom, -0.35),
-        // Found by review: under the betas of the operations the title still said "unlevered".
-        x_title: match valuation.cost.beta.uses_operations_beta {
-            true => "Beta, equity or of the operations (the index = 1)",
-            false => "Beta, equity or unlevered (the index = 1)",
-        }
-        .to_string(),
+        x_title: x_title(cash),
         y_title: String::new(),
         left: names_band(&all),
         bottom: 50,
@@ -216,6 +211,16 @@ fn draw_part(
         caption,
         peer: None,
     })
+}
+
+/// The β axis's title, naming the betas of the operations when they are drawn (found by review:
+/// under them the title still said "unlevered").
+fn x_title(operations: bool) -> String {
+    match operations {
+        true => "Beta, equity or of the operations (the index = 1)",
+        false => "Beta, equity or unlevered (the index = 1)",
+    }
+    .to_string()
 }
 
 /// The chart's legend: the three marks and the aggregate's line, with its statistic and value.
