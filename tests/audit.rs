@@ -2944,19 +2944,28 @@ fn solving_the_cost_of_debt_names_the_lease_cost_that_follows_it() {
     );
 }
 
+/// The demo copied and run into `case/output`, its receipt then edited by `edit`: the folder,
+/// the case folder, the receipt's path and the run's result as written.
+fn edited_demo_receipt(
+    edit: impl FnOnce(&mut serde_json::Value),
+) -> (tempfile::TempDir, PathBuf, PathBuf, serde_json::Value) {
+    let (dir, case_dir) = demo_copy();
+    let out = case_dir.join("output");
+    let result = common::run_case_with(&case_dir.join("case.toml"), &out, &[]);
+    let receipt = out.join("result.json");
+    let mut recorded = result.clone();
+    edit(&mut recorded);
+    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    (dir, case_dir, receipt, result)
+}
+
 // An override the receipt records that no longer applies is named as the receipt's, not as a
 // `--set` the user typed (found by review).
 #[test]
 fn a_receipts_own_override_that_fails_is_named_as_the_receipts() {
-    let (_dir, case_dir) = demo_copy();
-    let case = case_dir.join("case.toml");
-    let out = case_dir.join("output");
-    common::run_case_with(&case, &out, &[]);
-    let receipt = out.join("result.json");
-    let mut recorded: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
-    recorded["case"]["overrides"] = serde_json::json!(["market.nonsense=0.06"]);
-    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
+    let (_dir, _, receipt, _) = edited_demo_receipt(|recorded| {
+        recorded["case"]["overrides"] = serde_json::json!(["market.nonsense=0.06"]);
+    });
     let output = hurdle(&["verify", receipt.to_str().unwrap()]);
     let report = text(&output);
     assert_eq!(output.status.code(), Some(2), "{report}");
@@ -2972,16 +2981,11 @@ fn a_receipts_own_override_that_fails_is_named_as_the_receipts() {
 // "recorded 7.378%, recomputed 7.378%, 0.0 bp").
 #[test]
 fn a_small_headline_gap_is_shown_and_the_page_names_its_valuation() {
-    let (_dir, case_dir) = demo_copy();
+    let (_dir, case_dir, receipt, result) = edited_demo_receipt(|recorded| {
+        let wacc = recorded["wacc"].as_f64().unwrap();
+        recorded["wacc"] = serde_json::json!(wacc * (1.0 + 5e-7));
+    });
     let case = case_dir.join("case.toml");
-    let out = case_dir.join("output");
-    let result = common::run_case_with(&case, &out, &[]);
-    let receipt = out.join("result.json");
-    let mut recorded: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
-    let wacc = recorded["wacc"].as_f64().unwrap();
-    recorded["wacc"] = serde_json::json!(wacc * (1.0 + 5e-7));
-    std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
     let pages = case_dir.join("check");
     let output = hurdle(&[
         "verify",
