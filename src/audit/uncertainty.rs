@@ -8,8 +8,9 @@
 //! Association 57(298)). Each estimator is linear in the returns, β̂ᵢ = Σₜ aᵢₜ·rᵢₜ, so
 //! Cov(β̂ᵢ, β̂ⱼ) is estimated by the sandwich Σₜ (aᵢₜeᵢₜ)(aⱼₜeⱼₜ) over the periods both peers
 //! share (eᵢₜ the residuals). Its correlations, scaled by each peer's reported standard error,
-//! give the covariance the betas are drawn from: a draw is β̂ + L·z, L the Cholesky factor, z
-//! standard normal. Each draw optionally draws the ERP and the risk-free rate uniformly from
+//! give the covariance the betas are drawn from: a draw is β̂ᵢ + (L·z)ᵢ·√(νᵢ/wᵢ), L the
+//! Cholesky factor, z standard normal and wᵢ a chi-square of the peer's νᵢ degrees of freedom, so
+//! each beta follows Student's t as its confidence interval does. Each draw optionally draws the ERP and the risk-free rate uniformly from
 //! given ranges and reruns adjustment, unlevering, aggregation, relevering, cost of debt, CAPM and
 //! WACC through [`chain::wacc_only`], the case's own formula. The draws are seeded, so the same
 //! case gives the same percentiles everywhere.
