@@ -289,6 +289,10 @@ fn industry_table_agrees_with_numpy_and_scipy() {
         // Every positive slope on the previous day's index return flagged lagged_response,
         // so that the flag's counts are recomputed over several securities.
         &["beta.flag_lag_p_value=1"][..],
+        // The adjustments: Blume's fixed weight, and Vasicek's with the prior taken from the
+        // whole universe's cross-section (README), which the script recomputes.
+        &["beta.adjustment=blume"][..],
+        &["beta.adjustment=vasicek"][..],
         // Excess returns over a yield series with gaps (periods without a rate dropped), and
         // each kind of standard error, for the market model and the late-response check.
         &[

@@ -46,6 +46,7 @@ from collections import defaultdict
 import numpy as np
 from scipy import stats
 
+import least_squares  # QR, never an inverse of X'X
 from set_values import set_path
 
 TOLERANCE = 1e-9
@@ -589,7 +590,7 @@ def sandwich(weights, residuals, parameters, kind, lags):
     published formulas: classical s^2 A A' with s^2 = e'e/(n-k); HC1 (White 1980, Econometrica
     48(4); MacKinnon and White 1985) n/(n-k) A diag(e^2) A'; Newey-West (1987, Econometrica
     55(3)) A S A' with S_ts = e_t e_s (1 - |t-s|/(L+1)) for |t-s| <= L, no small-sample factor.
-    For OLS, A = (X'X)^-1 X' (numpy's inv here: this is the reference, not the solver)."""
+    For OLS, A = (X'X)^-1 X' (least_squares.weights: R^-1 Q' from numpy's QR)."""
     n = len(residuals)
     if kind == "classical":
         return weights @ weights.T * (residuals @ residuals / (n - parameters))
@@ -617,7 +618,7 @@ def reference_beta(method, kind, lags, asset, market, shifted):
         assert rank == design.shape[1]
         residuals = asset - design @ coef
         k = design.shape[1]
-        cov = sandwich(np.linalg.inv(design.T @ design) @ design.T, residuals, k, kind, lags)
+        cov = sandwich(least_squares.weights(design), residuals, k, kind, lags)
         ones = np.r_[0.0, np.ones(k - 1)]
         return dict(beta=coef[1:].sum(), se=np.sqrt(ones @ cov @ ones), alpha=coef[0],
                     alpha_se=np.sqrt(cov[0, 0]), cov_ab=cov[0, 1:].sum(), df=n - k,
@@ -700,7 +701,7 @@ def check_estimator(name, peer, data, asset, market, result):
         assert rank == design.shape[1]
         residuals = asset - design @ coef
         k = design.shape[1]
-        weights = np.linalg.inv(design.T @ design) @ design.T
+        weights = least_squares.weights(design)
         cov = sandwich(weights, residuals, k, kind, lags)
         ones = np.r_[0.0, np.ones(k - 1)]
         beta, se = coef[1:].sum(), np.sqrt(ones @ cov @ ones)
@@ -858,7 +859,7 @@ def check_lag_response(name, peer):
     design = np.column_stack([np.ones(n), [r[1] for r in rows], [r[2] for r in rows]])
     coef, _, _, _ = np.linalg.lstsq(design, y, rcond=None)
     residuals = y - design @ coef
-    cov = sandwich(np.linalg.inv(design.T @ design) @ design.T, residuals, 3, kind, lags)
+    cov = sandwich(least_squares.weights(design), residuals, 3, kind, lags)
     se = np.sqrt(cov[2, 2])
     t = coef[2] / se
     p = 2 * stats.t.sf(abs(t), n - 3)
@@ -904,7 +905,7 @@ def check_diagnostics(name, peer, data, asset, market, result):
     coef, _, _, _ = np.linalg.lstsq(design, asset, rcond=None)
     e = asset - design @ coef
     check(f"{name} Durbin-Watson", peer["durbin_watson"], np.sum(np.diff(e) ** 2) / (e @ e))
-    hat = np.einsum("ij,jk,ik->i", design, np.linalg.inv(design.T @ design), design)
+    hat = least_squares.leverages(design)
     s = np.sqrt(e @ e / (n - design.shape[1]))
     studentised = e / (s * np.sqrt(1 - hat))
     check(f"{name} |studentised| > 3", peer["large_studentised_residuals"], int(np.sum(np.abs(studentised) > 3)))
@@ -1052,6 +1053,10 @@ def check_rolling(out_dir, result):
     N unless the case fixes them; slope and SE to 1e-9 relative."""
     path = f"{out_dir}/rolling.csv"
     if not os.path.exists(path):
+        # README: `hurdle run` and `hurdle rolling` write rolling.csv beside any peer's
+        # stability record; a folder without it may only hold peers without one.
+        check_equal("rolling.csv written for the peers' stability records",
+                    [p["name"] for p in result["peers"] if p["stability"]], [])
         return
     with open(path, newline="") as f:
         windows = list(csv.DictReader(f))
@@ -1099,14 +1104,25 @@ def check_rolling(out_dir, result):
             fit = stats.linregress(x, y)
             check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
             check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
-    betas = defaultdict(list)
+    points = defaultdict(list)
     for w in windows:
-        betas[w["peer"]].append(float(w["beta"]))
+        points[w["peer"]].append((dt.date.fromisoformat(w["window_end"]), float(w["beta"])))
     for peer in result["peers"]:
-        if peer["stability"]:
-            check_equal(f"{peer['name']} rolling windows", peer["stability"]["windows"], len(betas[peer["name"]]))
-            check(f"{peer['name']} rolling min", peer["stability"]["min"], min(betas[peer["name"]]))
-            check(f"{peer['name']} rolling max", peer["stability"]["max"], max(betas[peer["name"]]))
+        s, name = peer["stability"], peer["name"]
+        if not s:
+            continue
+        ends, betas = zip(*sorted(points[name]))
+        check_equal(f"{name} rolling windows", s["windows"], len(betas))
+        check(f"{name} rolling min", s["min"], min(betas))
+        check(f"{name} rolling max", s["max"], max(betas))
+        check(f"{name} rolling first (earliest window)", s["first"], betas[0])
+        check(f"{name} rolling last (latest window)", s["last"], betas[-1])
+        # README, `stability.trend_per_year`: the least-squares slope per year of 365.25 days of
+        # the rolling betas on their windows' ends (with two windows, the line through them,
+        # which linregress also gives); scipy's linregress on the refitted betas above.
+        years = np.array([(end - ends[0]).days for end in ends]) / 365.25
+        check(f"{name} rolling trend per year (scipy.stats.linregress)", s["trend_per_year"],
+              stats.linregress(years, betas).slope)
 
 
 def check_histogram(result):
@@ -1114,6 +1130,9 @@ def check_histogram(result):
     bin width, and each stored percentile lies in a bin whose cumulative count brackets it (the
     empirical distribution function, counted from the histogram alone)."""
     u = result.get("uncertainty")
+    # README, result.json: every run records its Monte Carlo (`uncertainty`); a receipt
+    # without one would skip the checks below unseen.
+    check_equal("result.json has an uncertainty section", bool(u), True)
     if not u:
         return
     h = u["histogram"]
@@ -1204,7 +1223,7 @@ def main(out_dir, given_case=None):
         assert rank == 2
         residuals = asset - design @ coef
         s2 = residuals @ residuals / (n - 2)
-        cov = s2 * np.linalg.inv(design.T @ design)
+        cov = s2 * least_squares.bread(design)
         check(f"{name} alpha (numpy)", peer["alpha"], coef[0])
         check(f"{name} beta (numpy)", peer["beta"], coef[1])
         check(f"{name} alpha SE (numpy)", peer["alpha_std_error"], np.sqrt(cov[0, 0]))

@@ -13,7 +13,8 @@ from hurdle's echo; rebuilds the returns from the case's own price and yield fil
 recomputes:
 
 1. The correlation of the peers' beta errors: each peer's OLS beta is a'y with
-   a' = [(X'X)^-1 X']_beta (numpy's inverse: this is the reference, not the solver); its influence
+   a' = [R^-1 Q']_beta from numpy's QR of the design X = QR (the rows of (X'X)^-1 X', without
+   forming X'X); its influence
    terms are a_t e_t; the correlation of two peers' errors is the sum of u_it u_jt over the
    periods both have, over the square roots of each peer's own sum of squares (the seemingly
    unrelated regressions sandwich, Zellner 1962). Agreement to 1e-9: the same closed form in
@@ -34,6 +35,7 @@ from collections import defaultdict
 import os
 
 import numpy as np
+import scipy.linalg
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import check_regressions as case_file  # noqa: E402  (the case as written, the returns rebuilt)
@@ -86,7 +88,6 @@ def main(out_dir):
     assert setting("beta", "adjustment") in ("blume", "none")
     u = result["uncertainty"]
     assert u["beta_errors"] == "correlated"
-    assert not u.get("equity_risk_premium_range") and not u.get("risk_free_rate_range")
 
     rebuilt, _, _, _ = case_file.rebuild_returns(case_path, result)
     failures.extend(case_file.failures)
@@ -102,7 +103,8 @@ def main(out_dir):
         y = np.array([float(r["asset_return"]) for r in data]) - rf
         x = np.array([float(r["market_return"]) for r in data]) - rf
         X = np.column_stack([np.ones_like(x), x])
-        A = np.linalg.inv(X.T @ X) @ X.T
+        Q, Rx = np.linalg.qr(X)
+        A = scipy.linalg.solve_triangular(Rx, Q.T)
         coef = A @ y
         e = y - X @ coef
         s2 = e @ e / (len(y) - 2)
@@ -136,12 +138,13 @@ def main(out_dir):
     premiums = setting("premiums", "size") + setting("premiums", "company_specific")
     we, wd = 1 / (1 + target), target / (1 + target)
 
-    def wacc(raw, members):
-        """Textbook chain on raw betas (rows of draws) over the peers in `members` (columns)."""
+    def wacc(raw, members, rf=rf_rate, erp=erp):
+        """Textbook chain on raw betas (rows of draws) over the peers in `members` (columns),
+        at one risk-free rate and ERP or one of each per draw."""
         used = raw if weight is None else weight * raw + (1 - weight)
         unlevered = used / (1 + (1 - tax[members]) * de[members])
         relevered = np.median(unlevered, axis=-1) * (1 + (1 - t) * target)
-        ke = rf_rate + relevered * erp + premiums
+        ke = rf + relevered * erp + premiums
         return we * ke + wd * kd * (1 - t)
 
     members = np.flatnonzero(included)
@@ -161,18 +164,31 @@ def main(out_dir):
         check(f"leave out {row['peer']}", row["wacc"], float(wacc(betas[rest], rest)))
 
     rng = np.random.default_rng(20261202)
-    draws = 40000
+    # At least as many draws as hurdle's, so that a run with many draws (the short-window test,
+    # where Student's t and the normal clearly part) is judged at its own precision.
+    draws = max(40000, u["draws"])
     cov = np.diag(ses) @ R @ np.diag(ses)
     # README, Monte Carlo: each beta from Student's t with its own N - 2 degrees of freedom,
     # correlated through the normal part: beta + (L z)_i * sqrt(nu_i / w_i), w_i chi-square.
     normal = rng.multivariate_normal(np.zeros(n), cov, size=draws)
     dfs = np.array(dfs, dtype=float)
     joint = betas + normal * np.sqrt(dfs / rng.chisquare(dfs, size=(draws, n)))
-    check_quantiles("estimation-error interval", u, wacc(joint[:, members], members), u["draws"])
+    # README "[uncertainty]": with `equity_risk_premium` or `risk_free_rate` ranges, each draw
+    # also takes the ERP or the rate uniformly from its range (the given cost of debt stays).
+    ranges = case_file.CASE.get("uncertainty", {})
+    drawn = {}
+    for key, value in (("erp", erp), ("rf", rf_rate)):
+        span = ranges.get({"erp": "equity_risk_premium", "rf": "risk_free_rate"}[key])
+        drawn[key] = value if span is None else rng.uniform(span[0], span[1], size=draws)
+    for key in ("equity_risk_premium", "risk_free_rate"):
+        checks += 1
+        if u[f"{key}_range"] != ranges.get(key):
+            failures.append(f"{key}_range: hurdle {u[f'{key}_range']} vs the case's {ranges.get(key)}")
+    check_quantiles("estimation-error interval", u, wacc(joint[:, members], members, **drawn), u["draws"])
     # The peer-set interval: the aggregated peers' estimates resampled with replacement, the
     # betas not drawn again (their spread across peers already holds each one's error).
     picks = members[rng.integers(0, len(members), size=(draws, len(members)))]
-    boot = np.array([wacc(betas[picks[k]], picks[k]) for k in range(draws)])
+    boot = wacc(betas[picks], picks)
     check_quantiles("peer-set interval", u["peer_set"], boot, u["peer_set"]["draws"])
 
     print(f"{checks} checks, {len(failures)} failed")

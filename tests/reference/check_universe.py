@@ -62,6 +62,7 @@ import tomllib
 import numpy as np
 from scipy import stats
 
+import least_squares  # QR, never an inverse of X'X
 from set_values import set_path
 
 # Relative: both sides are double-precision evaluations of the same closed forms on the same
@@ -76,7 +77,7 @@ WEEKDAYS = {"monday": 0, "tuesday": 1, "wednesday": 2, "thursday": 3, "friday": 
 IMPLEMENTED = {
     ("beta", "method"): ("ols",),
     ("beta", "std_errors"): ("classical", "hc1", "newey-west"),
-    ("beta", "adjustment"): ("none",),
+    ("beta", "adjustment"): ("none", "blume", "vasicek"),
     ("beta", "exclude_flags"): ([],),
     ("beta", "max_stale_days"): (None,),
     ("beta", "returns"): ("simple", "log"),
@@ -215,12 +216,12 @@ def newey_west_rule(n):
 
 def covariance(design, residuals, kind, lags):
     """The coefficients' covariance of the kind README "Standard errors" names, from the
-    textbook sandwich forms (numpy's inv of X'X: the reference, not the solver): classical
+    textbook sandwich forms ((X'X)^-1 from numpy's QR, least_squares.bread): classical
     s^2 (X'X)^-1; HC1 (X'X)^-1 X' diag(e^2) X (X'X)^-1 n/(n - k); Newey-West
     (X'X)^-1 S (X'X)^-1 with S = sum e_t^2 x_t x_t' + sum_l (1 - l/(L + 1))
     sum_t e_t e_(t-l) (x_t x_(t-l)' + x_(t-l) x_t'), t over the observations in order."""
     n, k = design.shape
-    bread = np.linalg.inv(design.T @ design)
+    bread = least_squares.bread(design)
     if kind == "classical":
         return bread * (residuals @ residuals / (n - k))
     scores = design * residuals[:, None]
@@ -245,7 +246,18 @@ def regression(asset, market, kind, lags_setting):
     v = covariance(design, residuals, kind, lags or 0)
     se_alpha, se_beta = float(np.sqrt(v[0, 0])), float(np.sqrt(v[1, 1]))
     t = stats.t.ppf(0.975, n - 2)
+    # README "Diagnostics per peer": the residual standard error on n - 2 degrees of freedom,
+    # adjusted R^2 = 1 - (1 - R^2)(n - 1)/(n - 2), and the count of internally studentised
+    # residuals e_i / (s·sqrt(1 - h_i)) above 3 in absolute value (h_i from the QR factor).
+    s = float(np.sqrt(residuals @ residuals / (n - 2)))
+    studentised = residuals / (s * np.sqrt(1.0 - least_squares.leverages(design)))
     return {
+        "alpha_t_stat": fit.intercept / se_alpha,
+        "alpha_p_value": 2 * stats.t.sf(abs(fit.intercept / se_alpha), n - 2),
+        "beta_t_stat": fit.slope / se_beta,
+        "adjusted_r_squared": 1.0 - (1.0 - fit.rvalue ** 2) * (n - 1) / (n - 2),
+        "residual_std_error": s,
+        "large_studentised_residuals": int(np.sum(np.abs(studentised) > 3.0)),
         "observations": n,
         "beta": fit.slope,
         "beta_std_error": se_beta,
@@ -373,14 +385,7 @@ def securities(config, folder):
                         row["firm_value"] = equity + debt - cash
             if equity is not None and debt is not None and (cash is not None or not net):
                 row["debt_to_equity"] = ((debt - cash) if net else debt) / equity
-            # No leverage formula holds for a D/E above 10 or a net D/E at or below -1: no
-            # unlevered beta (the limits a case puts on a peer; README, securities.csv).
-            de = row.get("debt_to_equity")
-            if "beta" in row and de is not None and -1.0 < de <= 10.0 and tax is not None:
-                row["unlevered_beta"] = row["beta"] / (1.0 + (1.0 - tax) * row["debt_to_equity"])
-                if cash is not None:
-                    gross = row["beta"] / (1.0 + (1.0 - tax) * debt / equity)
-                    row["operations_beta"] = gross / (1.0 - cash / (equity + debt))
+            row["_structure"] = (equity, debt, cash, tax)
         if "beta" in row:
             # README "[beta]": flag too_few_observations when N is below flag_observations_share
             # (default 0.8) of the window's periods, low_r_squared when R^2 is below
@@ -400,7 +405,41 @@ def securities(config, folder):
                     and row["lag_slope_p_value"] < beta.get("flag_lag_p_value", 0.05)):
                 row["flags"].add("lagged_response")
         result[security] = row
+    adjust(result, beta)
+    for row in result.values():
+        equity, debt, cash, tax = row.pop("_structure", (None, None, None, None))
+        # No leverage formula holds for a D/E above 10 or a net D/E at or below -1: no
+        # unlevered beta (the limits a case puts on a peer; README, securities.csv). Hamada on
+        # the beta used (README, securities.csv: the adjusted beta is the one unlevered).
+        de = row.get("debt_to_equity")
+        if "beta" in row and de is not None and -1.0 < de <= 10.0 and tax is not None:
+            row["unlevered_beta"] = row["beta_used"] / (1.0 + (1.0 - tax) * de)
+            if cash is not None:
+                gross = row["beta_used"] / (1.0 + (1.0 - tax) * debt / equity)
+                row["operations_beta"] = gross / (1.0 - cash / (equity + debt))
     return result
+
+
+def adjust(rows, beta):
+    """README "Vasicek shrinkage" and "Blume": the beta used of each estimated security.
+    Blume: w·beta + (1 - w) with w = blume_weight (default 0.67). Vasicek: w·beta + (1 - w)·prior
+    mean with w = prior variance / (prior variance + SE^2); the prior as stated, else (README,
+    "Industry betas from a whole market") the mean and the sample variance (n - 1) of the raw
+    betas of every estimated security (none is excluded here: exclude_flags is refused above)."""
+    estimated = [r for r in rows.values() if "beta" in r]
+    adjustment = beta.get("adjustment", "none")
+    if adjustment == "vasicek":
+        raw = np.array([r["beta"] for r in estimated])
+        mean = beta.get("vasicek_prior_mean", float(np.mean(raw)))
+        variance = beta.get("vasicek_prior_variance", float(np.var(raw, ddof=1)))
+    for r in estimated:
+        if adjustment == "blume":
+            w = beta.get("blume_weight", 0.67)
+            r["shrunk_beta"] = w * r["beta"] + (1 - w)
+        elif adjustment == "vasicek":
+            w = variance / (variance + r["beta_std_error"] ** 2)
+            r["shrunk_beta"] = w * r["beta"] + (1 - w) * mean
+        r["beta_used"] = r.get("shrunk_beta", r["beta"])
 
 
 def summary(values, weights, prefix, trim, value_weights=None):
@@ -538,7 +577,9 @@ def main():
         for key in ("observations", "beta", "beta_std_error", "alpha", "alpha_std_error",
                     "r_squared", "beta_ci_low", "beta_ci_high", "durbin_watson",
                     "debt_to_equity", "unlevered_beta", "operations_beta", "zero_return_share",
-                    "lag_slope", "lag_slope_std_error", "lag_slope_t_stat", "lag_summed_beta"):
+                    "lag_slope", "lag_slope_std_error", "lag_slope_t_stat", "lag_summed_beta",
+                    "alpha_t_stat", "beta_t_stat", "adjusted_r_squared", "residual_std_error",
+                    "large_studentised_residuals", "shrunk_beta", "beta_used"):
             check.same(f"{security} {key}", row.get(key), number(got[key]))
         # p-values relative only, without the floor (p-values of 1e-20 and below occur here and
         # would otherwise always pass). statrs and scipy agree far inside 1e-9 relative even in
@@ -546,6 +587,7 @@ def main():
         # rounding times the density-to-tail ratio (about |t|), about 1e-13 here (measured: at
         # most 4e-13 relative, at p = 7e-21).
         check.same(f"{security} beta_p_value", row.get("beta_p_value"), number(got["beta_p_value"]), floor=0.0)
+        check.same(f"{security} alpha_p_value", row.get("alpha_p_value"), number(got["alpha_p_value"]), floor=0.0)
         check.same(f"{security} lag_slope_p_value", row.get("lag_slope_p_value"),
                    number(got["lag_slope_p_value"]), floor=0.0)
         check.equal(f"{security} newey_west_lags", row.get("newey_west_lags"),

@@ -13,8 +13,9 @@ Checks, each counted as passed or failed:
   2. the cached values hurdle wrote equal the figure map's expected values to 1e-9 relative: a
      result.json field (times the map's scale), or, for the excess returns that result.json does
      not hold, the number the map itself carries (hurdle's own figure, the one returns.csv lists;
-     this script does not read returns.csv, so those cells are checked against hurdle's figure,
-     not an independent one: tests/reference/check_regressions.py rebuilds returns.csv);
+     the formulas' typed-in inputs, the returns, are compared with returns.csv, which
+     tests/reference/check_regressions.py rebuilds from the case's price files for each
+     configuration: check_returns_sheet);
   3. LibreOffice's recomputed values equal them to 1e-9 relative;
   4. a copy whose cached WACC is deliberately wrong is caught by check 2, and LibreOffice's
      recalculation replaces the wrong figure (proof that it recalculated);
@@ -41,6 +42,8 @@ run with --set market.equity_risk_premium=... --set target.debt_to_equity=... (o
 tampered copies are made for runs with a what-if). All files go through one LibreOffice start.
 """
 
+import csv
+import datetime
 import json
 import os
 import re
@@ -234,6 +237,40 @@ def check_analyses(sheet, result, label):
     print(f"  compared {checked} Analyses values with result.json")
 
 
+RETURNS_COLUMNS = {"Peer return": "asset_return", "Index return": "market_return",
+                   "Risk-free (per period)": "risk_free"}
+
+
+def check_returns_sheet(sheet, run_dir, label):
+    """The Returns sheet's typed-in returns (the inputs of its excess-return formulas, which the
+    figure map can only check against hurdle's own numbers) against returns.csv, which
+    check_regressions.py rebuilds from the case's price files for every configuration of this
+    test: the same rows, peer by peer and period by period, each return equal to the last bit
+    (both are the shortest decimal of the same double, and openpyxl reads it back exactly)."""
+    with open(os.path.join(run_dir, "returns.csv"), newline="") as f:
+        listed = {(r["peer"], r["period_end"]): r for r in csv.DictReader(f)}
+    rows = sheet.iter_rows(values_only=True)
+    header = list(next(rows))
+    columns = {header.index(h): key for h, key in RETURNS_COLUMNS.items() if h in header}
+    report(len(columns) >= 2, f"{label}: Returns sheet header {header} lacks the return columns")
+    seen, wrong = set(), []
+    for row in rows:
+        if row[0] is None:
+            continue
+        end = row[1].date() if isinstance(row[1], datetime.datetime) else row[1]
+        key = (row[0], end.isoformat() if hasattr(end, "isoformat") else str(end))
+        seen.add(key)
+        reference = listed.get(key)
+        for index, field in columns.items():
+            want = None if reference is None or reference.get(field) in (None, "") else float(reference[field])
+            if reference is not None and row[index] != want:
+                wrong.append((key, field, row[index], want))
+    report(not wrong, f"{label}: {len(wrong)} Returns-sheet cells differ from returns.csv: {wrong[:3]}")
+    report(seen == set(listed), f"{label}: Returns sheet has {len(seen)} rows, returns.csv {len(listed)}; "
+           f"only in the sheet {sorted(seen - set(listed))[:3]}, only in returns.csv {sorted(set(listed) - seen)[:3]}")
+    print(f"  compared {len(seen)} Returns-sheet rows with returns.csv")
+
+
 def check_run(run, work, outdir_of):
     """Prepares one run's files for LibreOffice; returns a function that checks the results."""
     label = run["label"]
@@ -304,6 +341,7 @@ def check_run(run, work, outdir_of):
                 report(words in header, f"{label}: Unlevering!{column}1 = {header!r} heads "
                        f"peers[].{field}")
         check_analyses(cached(original)["Analyses"], result, label)
+        check_returns_sheet(cached(original)["Returns"], run["dir"], label)
         if not whatif:
             return
         # 4. A wrong cached WACC: caught among the cached values, repaired by the recalculation.

@@ -339,8 +339,8 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
     let _ = writeln!(
         out,
         "{} with prices; {}, {} excluded by \
-         beta.exclude_flags{}, {} not estimated{why_not}; {} with an unlevered beta (the \
-         excluded included). \"Estimated\" counts the securities that enter an industry's \
+         beta.exclude_flags{}, {} not estimated{why_not}; {} with an unlevered beta (those \
+         excluded by flag among them). \"Estimated\" counts the securities that enter an industry's \
          figures; \"Flagged\" those of them that carry a flag (securities.csv names each).\n",
         crate::universe::securities_count(c.securities),
         estimated_count(c.estimated, c.estimated_without_industry),
