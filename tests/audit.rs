@@ -3044,3 +3044,37 @@ fn the_memos_bridge_totals_the_gap_between_the_stated_waccs() {
         "{memo}"
     );
 }
+
+// A receipt whose WACC was edited to 1e308 is verified without `inf`: the rate, whose percent
+// would overflow, and the gap are written as decimals in exponent form (found by review:
+// "recorded inf%, recomputed 7.378%, -inf bp").
+#[test]
+fn a_receipts_rate_too_large_for_percent_is_written_as_a_decimal() {
+    let (dir, _, receipt, _) = edited_demo_receipt(|recorded| {
+        recorded["wacc"] = serde_json::json!(1e308);
+    });
+    let out = dir.path().join("checked");
+    let output = hurdle(&[
+        "verify",
+        receipt.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(1), "{report}");
+    let markdown = std::fs::read_to_string(out.join("verification.md")).unwrap();
+    for written in [&report, &markdown] {
+        assert!(
+            written.contains("WACC DIFFERS (recorded 1e308 as a decimal, recomputed 7.378%, -1e308 as a decimal)"),
+            "{written}"
+        );
+        assert!(
+            !written.contains("inf%") && !written.contains("inf bp"),
+            "{written}"
+        );
+    }
+    assert!(
+        markdown.contains("WACC 1e308 as a decimal as recorded"),
+        "{markdown}"
+    );
+}

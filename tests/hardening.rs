@@ -664,6 +664,39 @@ fn a_folder_without_an_earlier_receipt_keeps_files_named_like_outputs() {
     }
 }
 
+// A template that computes a figure that is not finite, or asks a number filter for more
+// decimals than a double fills, is refused naming its line (exit 2, nothing written); before,
+// `inf` reached memo.md and report.html, and 4294967296 decimals panicked (found by review).
+#[test]
+fn template_figures_that_are_not_finite_are_refused() {
+    let sandbox = Sandbox::new();
+    let template = sandbox.root.path().join("t.j2");
+    for (text, expected) in [
+        ("{{ 1e306 | bp }}", "computes inf, not a finite figure"),
+        (
+            "{{ v.wacc | pct }}\n{{ ((1 + v.wacc) ** 10000) | pct }}",
+            "computes inf",
+        ),
+        ("{{ v.wacc * 1e308 * 100 }}", "computes inf"),
+        (
+            "{{ v.wacc | num(4294967296) }}",
+            "4294967296 decimals asked of a number filter",
+        ),
+    ] {
+        fs::write(&template, text).unwrap();
+        let out = sandbox.root.path().join("out");
+        let run = run_into(&sandbox, &out, &["--template", template.to_str().unwrap()]);
+        let message = stderr(&run);
+        assert_eq!(run.status.code(), Some(2), "{text}: {message}");
+        let line = if text.contains("\n") { 2 } else { 1 };
+        assert!(
+            message.contains(&format!("t.j2, line {line}")) && message.contains(expected),
+            "{text}: {message}"
+        );
+        assert!(!out.join("memo.md").exists(), "{text}");
+    }
+}
+
 // A file an earlier run's receipt marks as an output but this run reads (its template, here
 // kept as `report.html`) is kept, and not listed as removed (found by review: "removed …" was
 // printed for files that stayed).

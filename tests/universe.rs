@@ -1751,6 +1751,44 @@ fn a_corrupt_parquet_panel_is_refused_naming_the_file() {
 // read in a type hurdle does not read is named with its type, and a column not read does not
 // matter. The attributes read are the universe's own figures, so the tables must match the run
 // with the CSV attributes.
+// A panel's Parquet date or date-time beyond the calendar's years is named by its row and
+// stored value (before, a date-time became an empty date and a day count read as a date that
+// was "not ISO 8601"; found by review).
+#[test]
+fn parquet_panel_dates_beyond_the_calendar_are_named() {
+    let setup = Setup::new();
+    let days = Series::new("date".into(), [20_000_i32, i32::MAX])
+        .cast(&DataType::Date)
+        .unwrap();
+    let times = Series::new("date".into(), [20_000_i64 * 86_400_000, i64::MAX])
+        .cast(&DataType::Datetime(TimeUnit::Milliseconds, None))
+        .unwrap();
+    for (k, (dates, stored)) in [
+        (days, "2147483647 days"),
+        (times, "9223372036854775807 milliseconds"),
+    ]
+    .into_iter()
+    .enumerate()
+    {
+        let name = format!("far{k}.parquet");
+        let security = Series::new("security".into(), ["S01", "S01"]);
+        let close = Series::new("close".into(), [10.0, 11.0]);
+        let mut frame =
+            DataFrame::new_infer_height(vec![dates.into(), security.into(), close.into()]).unwrap();
+        write_parquet(&setup.dir().join(&name), &mut frame);
+        let output = setup.universe("far", &[&format!("panel.prices={name}")]);
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr.contains(&format!(
+                "{name}: row 2: `date` holds {stored} from 1970-01-01, a date beyond the \
+                 calendar's years"
+            )),
+            "{stderr}"
+        );
+    }
+}
+
 #[test]
 fn parquet_columns_of_types_hurdle_does_not_read_are_named() {
     let setup = Setup::new();

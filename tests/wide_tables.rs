@@ -751,6 +751,57 @@ fn a_series_with_both_a_file_and_a_source_is_refused() {
     assert!(stderr.contains("market.index.source = \"prices\" is not a table under [sources]; the file declares \"table\""), "{stderr}");
 }
 
+// A Parquet date or date-time beyond the calendar's years (a day count of i32::MAX, a
+// date-time of i64::MAX microseconds: a placeholder or another unit) is named by its row and
+// stored value, exit 2; polars 0.55 panicked writing such a date as text (found by review).
+#[test]
+fn parquet_dates_beyond_the_calendar_are_named() {
+    use polars::prelude::*;
+    let dir = tempfile::tempdir().unwrap();
+    let days = Series::new("date".into(), [19_000_i32, i32::MAX, 19_002])
+        .cast(&DataType::Date)
+        .unwrap();
+    let times = Series::new(
+        "date".into(),
+        [
+            19_000_i64 * 86_400_000_000,
+            19_001 * 86_400_000_000,
+            i64::MAX,
+        ],
+    )
+    .cast(&DataType::Datetime(TimeUnit::Microseconds, None))
+    .unwrap();
+    for (dates, row, stored) in [
+        (
+            days,
+            "row 2",
+            "2147483647 days from 1970-01-01, beyond the calendar",
+        ),
+        (
+            times,
+            "row 3",
+            "9223372036854775807 microseconds from 1970-01-01, beyond the calendar",
+        ),
+    ] {
+        let path = dir.path().join("far.parquet");
+        let index = Series::new("Index".into(), [100.0, 101.0, 102.0]);
+        let peer = Series::new("Alder".into(), [10.0, 11.0, 12.0]);
+        let mut frame =
+            DataFrame::new_infer_height(vec![dates.into(), index.into(), peer.into()]).unwrap();
+        ParquetWriter::new(fs::File::create(&path).unwrap())
+            .finish(&mut frame)
+            .unwrap();
+        let output = init(&[path.to_str().unwrap(), "--index", "Index"]);
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr.contains(&format!("far.parquet: {row}, column `date`"))
+                && stderr.contains(&format!("\"{stored}\" is not a date")),
+            "{stderr}"
+        );
+    }
+}
+
 fn init(args: &[&str]) -> Output {
     let mut all = vec!["init"];
     all.extend(args);

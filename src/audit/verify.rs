@@ -422,12 +422,7 @@ pub(super) fn settle(
             .map(|d| format!(", valuation date {d}"))
             .unwrap_or_default();
         let wacc = (recorded.get("wacc").and_then(Value::as_f64))
-            .map(|w| {
-                format!(
-                    ", WACC {}% as recorded",
-                    crate::error::rounded(w * 100.0, 3)
-                )
-            })
+            .map(|w| format!(", WACC {} as recorded", headline::percent(w, 3)))
             .unwrap_or_default();
         let place = std::fs::canonicalize(receipt_path).unwrap_or(receipt_path.to_path_buf());
         format!("{title}{date}{wacc}; the receipt at {}", place.display())

@@ -98,9 +98,17 @@ pub(crate) fn block_dates(
         DateCells::Days(days) => {
             for (k, cell) in days.iter().enumerate() {
                 let day = cell.ok_or_else(|| bad(k, None))?;
-                out.push(
-                    NaiveDate::from_epoch_days(day).ok_or_else(|| bad(k, Some(day.to_string())))?,
-                );
+                out.push(NaiveDate::from_epoch_days(day).ok_or_else(|| {
+                    source.row_error(
+                        first_row + k,
+                        format!(
+                            "`{column}` {}",
+                            crate::io::parquet_types::beyond_calendar(&format!(
+                                "{day} days from 1970-01-01"
+                            ))
+                        ),
+                    )
+                })?);
             }
         }
     }

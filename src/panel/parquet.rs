@@ -105,7 +105,7 @@ fn push_frame(
     source: &Source,
     columns: &PanelColumns,
 ) -> Result<()> {
-    let dates = date_column(source, frame, &columns.date_column)?;
+    let dates = date_column(source, frame, &columns.date_column, first_row)?;
     let dates = cells(&dates);
     match columns.layout {
         PanelLayout::Long => {
@@ -267,15 +267,30 @@ fn hash_file(source: &Source) -> Result<String> {
 }
 
 /// The date column as days (a date or date-time column) or text (a string column).
-fn date_column(source: &Source, frame: &DataFrame, name: &str) -> Result<Column> {
+fn date_column(source: &Source, frame: &DataFrame, name: &str, first_row: usize) -> Result<Column> {
     let column = frame
         .column(name)
         .map_err(|e| source.file_error(e.to_string()))?;
     match column.dtype() {
         DataType::Date | DataType::String => Ok(column.clone()),
-        DataType::Datetime(_, _) => column
-            .cast(&DataType::Date)
-            .map_err(|e| source.file_error(format!("column `{name}`: {e}"))),
+        DataType::Datetime(_, _) => {
+            let dates = crate::io::parquet_types::calendar_dates(column)
+                .map_err(|e| source.file_error(format!("column `{name}`: {e}")))?;
+            if let Some((k, stored)) = (dates.into_iter().enumerate())
+                .find_map(|(k, d)| d.and_then(Result::err).map(|stored| (k, stored)))
+            {
+                return Err(source.row_error(
+                    first_row + k,
+                    format!(
+                        "`{name}` {}",
+                        crate::io::parquet_types::beyond_calendar(&stored)
+                    ),
+                ));
+            }
+            column
+                .cast(&DataType::Date)
+                .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
+        }
         other => Err(source.file_error(format!(
             "column `{name}` holds {other}, not dates (a date, or text YYYY-MM-DD)"
         ))),
@@ -405,7 +420,7 @@ pub(super) fn duplicate_error(
         let raw = frame
             .column(&columns.date_column)
             .map_err(|e| source.file_error(e.to_string()))?;
-        let dates = date_column(source, frame, &columns.date_column)?;
+        let dates = date_column(source, frame, &columns.date_column, first_row)?;
         let dates = block_dates(&cells(&dates), first_row, source, &columns.date_column)?;
         let securities = match columns.layout {
             PanelLayout::Long => Some(typed(

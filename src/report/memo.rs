@@ -74,16 +74,65 @@ impl Memo {
     }
 }
 
-fn pct(value: f64, decimals: Option<usize>) -> String {
-    format::percent(value, decimals.unwrap_or(2))
+/// A figure a template writes, refused when it is not finite: the outputs never hold `inf` or
+/// `NaN` (found by review: a template could compute one, `{{ v.wacc * 1e308 * 100 }}`).
+fn finite(value: f64) -> std::result::Result<f64, minijinja::Error> {
+    match value.is_finite() {
+        true => Ok(value),
+        false => Err(minijinja::Error::new(
+            minijinja::ErrorKind::InvalidOperation,
+            format!("the template computes {value}, not a finite figure, which a memo cannot hold"),
+        )),
+    }
 }
 
-fn bp(value: f64) -> String {
-    format::basis_points(value)
+/// Decimals a number filter takes: up to 17, the most a double's digits can fill (a larger
+/// count overflowed the formatting; found by review).
+fn decimals(given: Option<usize>, default: usize) -> std::result::Result<usize, minijinja::Error> {
+    match given.unwrap_or(default) {
+        d if d <= 17 => Ok(d),
+        d => Err(minijinja::Error::new(
+            minijinja::ErrorKind::InvalidOperation,
+            format!("{d} decimals asked of a number filter; at most 17"),
+        )),
+    }
 }
 
-fn num(value: f64, decimals: Option<usize>) -> String {
-    format::fixed(value, decimals.unwrap_or(3))
+type Filtered = std::result::Result<String, minijinja::Error>;
+
+fn pct(value: f64, places: Option<usize>) -> Filtered {
+    finite(value * 100.0)?;
+    Ok(format::percent(finite(value)?, decimals(places, 2)?))
+}
+
+fn bp(value: f64) -> Filtered {
+    finite(value * 1e4)?;
+    Ok(format::basis_points(finite(value)?))
+}
+
+fn num(value: f64, places: Option<usize>) -> Filtered {
+    Ok(format::fixed(finite(value)?, decimals(places, 3)?))
+}
+
+fn exact(value: f64) -> Filtered {
+    Ok(format::exact(finite(value)?))
+}
+
+fn exact_pct(value: f64) -> Filtered {
+    finite(value * 100.0)?;
+    Ok(format::exact_percent(finite(value)?))
+}
+
+/// minijinja's own output of a value, refusing a number that is not finite.
+fn finite_output(
+    out: &mut minijinja::Output,
+    state: &mut minijinja::State,
+    value: &Value,
+) -> std::result::Result<(), minijinja::Error> {
+    if let Ok(number) = f64::try_from(value.clone()) {
+        finite(number)?;
+    }
+    minijinja::escape_formatter(out, state, value)
 }
 
 impl Render for Memo {
@@ -94,11 +143,12 @@ impl Render for Memo {
     fn render(&self, valuation: &Valuation) -> Result<Vec<u8>> {
         let mut env = Environment::new();
         env.set_undefined_behavior(UndefinedBehavior::Strict);
+        env.set_formatter(finite_output);
         env.add_filter("pct", pct);
         env.add_filter("bp", bp);
         env.add_filter("num", num);
-        env.add_filter("exact", format::exact);
-        env.add_filter("exact_pct", format::exact_percent);
+        env.add_filter("exact", exact);
+        env.add_filter("exact_pct", exact_pct);
         env.add_filter("cell", format::table_cell);
         env.add_filter("group", format::group_title);
         env.add_filter("axis", format::axis_value);

@@ -30,15 +30,17 @@ impl Verification {
                                     != crate::error::rounded(now * 100.0, d)
                             })
                             .unwrap_or(12);
-                        let pct = |x: f64| crate::error::rounded(x * 100.0, decimals);
+                        let pct = |x: f64| percent(x, decimals);
                         let gap = (now - was) * 1e4;
-                        let bp = match gap.abs() < 0.05 {
-                            true => format!("{gap:.1e}"),
-                            false => crate::error::rounded(gap, 1),
+                        let bp = match gap.abs() {
+                            g if g < 0.05 => format!("{gap:.1e} bp"),
+                            g if g < 1e15 => format!("{} bp", crate::error::rounded(gap, 1)),
+                            // A receipt edited to 1e308 (found by review: "-inf bp").
+                            _ => format!("{} as a decimal", crate::error::compact(now - was)),
                         };
                         let sign = if now > was { "+" } else { "" };
                         format!(
-                            "{name} DIFFERS (recorded {}%, recomputed {}%, {sign}{bp} bp)",
+                            "{name} DIFFERS (recorded {}, recomputed {}, {sign}{bp})",
                             pct(was),
                             pct(now)
                         )
@@ -46,10 +48,7 @@ impl Verification {
                     // A rate the receipt lacks, with the rerun's (found by review: "DIFFERS"
                     // alone).
                     None => {
-                        let rate = |v: &Value| {
-                            v.as_f64()
-                                .map(|x| format!("{}%", crate::error::rounded(x * 100.0, 3)))
-                        };
+                        let rate = |v: &Value| v.as_f64().map(|x| percent(x, 3));
                         let absent = |side| figure.is_some_and(|m| m.absent_from == Some(side));
                         match figure {
                             Some(m) => match (rate(&m.recorded), rate(&m.recomputed)) {
@@ -76,5 +75,15 @@ impl Verification {
             })
             .collect::<Vec<_>>()
             .join("; ")
+    }
+}
+
+/// A recorded or recomputed rate in percent with `decimals`, or, when it is too large to write
+/// so (a receipt edited to 1e308, whose percent overflows), the decimal itself in exponent form
+/// (found by review: "inf%").
+pub(crate) fn percent(rate: f64, decimals: usize) -> String {
+    match (rate * 100.0).abs() < 1e15 {
+        true => format!("{}%", crate::error::rounded(rate * 100.0, decimals)),
+        false => format!("{} as a decimal", crate::error::compact(rate)),
     }
 }

@@ -246,12 +246,20 @@ fn parquet_cells(column: &Column) -> PolarsResult<Vec<Cell>> {
             .map(|v| v.map_or(Cell::Empty, Cell::Bool))
             .collect());
     }
-    // A date-time (naive, or in UTC: the only zone the schema check lets through) is read by
-    // its date.
-    let column = match dtype {
-        DataType::Datetime(..) => &column.cast(&DataType::Date)?,
-        _ => column,
-    };
+    // A date (or a date-time, naive or in UTC: the only zone the schema check lets through, by
+    // its date) as ISO text, which the table's date parsing reads; one beyond the calendar as
+    // text that says so (the date check then names its cell).
+    if matches!(dtype, DataType::Date | DataType::Datetime(..)) {
+        return Ok(
+            (crate::io::parquet_types::calendar_dates(column)?.into_iter())
+                .map(|d| match d {
+                    None => Cell::Empty,
+                    Some(Ok(date)) => Cell::Text(date.format("%Y-%m-%d").to_string()),
+                    Some(Err(stored)) => Cell::Text(format!("{stored}, beyond the calendar")),
+                })
+                .collect(),
+        );
+    }
     let text = column.cast(&DataType::String)?;
     Ok(text
         .str()?
