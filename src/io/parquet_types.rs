@@ -112,6 +112,51 @@ pub fn f32_as_written(value: f32) -> f64 {
     }
 }
 
+/// The dates of a Parquet date or date-time column (a date-time by its date, in the zone it is
+/// stored in), each `Err` holding the stored value in words when it lies beyond the dates the
+/// calendar holds (found by review: polars 0.55 panicked writing such a date as text, and a
+/// date-time beyond them became an empty cell).
+pub fn calendar_dates(
+    column: &polars::prelude::Column,
+) -> polars::prelude::PolarsResult<Vec<Option<Result<chrono::NaiveDate, String>>>> {
+    use chrono::NaiveDate;
+    use polars::prelude::{DataType, TimeUnit};
+    match column.dtype() {
+        DataType::Datetime(unit, _) => {
+            let (per_day, unit): (i64, &str) = match unit {
+                TimeUnit::Nanoseconds => (86_400_000_000_000, "nanoseconds"),
+                TimeUnit::Microseconds => (86_400_000_000, "microseconds"),
+                TimeUnit::Milliseconds => (86_400_000, "milliseconds"),
+            };
+            Ok((column.datetime()?.physical().iter())
+                .map(|v| {
+                    v.map(|v| {
+                        i32::try_from(v.div_euclid(per_day))
+                            .ok()
+                            .and_then(NaiveDate::from_epoch_days)
+                            .ok_or_else(|| format!("{v} {unit} from 1970-01-01"))
+                    })
+                })
+                .collect())
+        }
+        _ => Ok((column.date()?.physical().iter())
+            .map(|d| {
+                d.map(|d| {
+                    NaiveDate::from_epoch_days(d).ok_or_else(|| format!("{d} days from 1970-01-01"))
+                })
+            })
+            .collect()),
+    }
+}
+
+/// Words for a stored date or date-time beyond the calendar's dates (`calendar_dates`' `Err`).
+pub fn beyond_calendar(stored: &str) -> String {
+    format!(
+        "holds {stored}, a date beyond the calendar's years (−262143 to 262142): a column of \
+         another unit or a placeholder value?"
+    )
+}
+
 #[cfg(test)]
 mod tests {
     // IEEE 754 binary32 keeps every decimal of up to six significant digits (FLT_DIG = 6):
@@ -193,49 +238,4 @@ mod tests {
             |m| m.contains("`zoned` is stored as a date-time with the time zone Asia/Tokyo")
         ));
     }
-}
-
-/// The dates of a Parquet date or date-time column (a date-time by its date, in the zone it is
-/// stored in), each `Err` holding the stored value in words when it lies beyond the dates the
-/// calendar holds (found by review: polars 0.55 panicked writing such a date as text, and a
-/// date-time beyond them became an empty cell).
-pub fn calendar_dates(
-    column: &polars::prelude::Column,
-) -> polars::prelude::PolarsResult<Vec<Option<Result<chrono::NaiveDate, String>>>> {
-    use chrono::NaiveDate;
-    use polars::prelude::{DataType, TimeUnit};
-    match column.dtype() {
-        DataType::Datetime(unit, _) => {
-            let (per_day, unit): (i64, &str) = match unit {
-                TimeUnit::Nanoseconds => (86_400_000_000_000, "nanoseconds"),
-                TimeUnit::Microseconds => (86_400_000_000, "microseconds"),
-                TimeUnit::Milliseconds => (86_400_000, "milliseconds"),
-            };
-            Ok((column.datetime()?.physical().iter())
-                .map(|v| {
-                    v.map(|v| {
-                        i32::try_from(v.div_euclid(per_day))
-                            .ok()
-                            .and_then(NaiveDate::from_epoch_days)
-                            .ok_or_else(|| format!("{v} {unit} from 1970-01-01"))
-                    })
-                })
-                .collect())
-        }
-        _ => Ok((column.date()?.physical().iter())
-            .map(|d| {
-                d.map(|d| {
-                    NaiveDate::from_epoch_days(d).ok_or_else(|| format!("{d} days from 1970-01-01"))
-                })
-            })
-            .collect()),
-    }
-}
-
-/// Words for a stored date or date-time beyond the calendar's dates (`calendar_dates`' `Err`).
-pub fn beyond_calendar(stored: &str) -> String {
-    format!(
-        "holds {stored}, a date beyond the calendar's years (−262143 to 262142): a column of \
-         another unit or a placeholder value?"
-    )
 }
