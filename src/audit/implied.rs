@@ -155,6 +155,9 @@ pub struct UnleveredEquivalent {
     pub case_unlevered: f64,
     /// The unlevered beta that relevers to the solved beta.
     pub unlevered: f64,
+    /// Whether the case relevers the betas of the operations (`leverage.operations_beta`), so
+    /// that both figures are of the operations.
+    pub operations: bool,
 }
 
 impl UnleveredEquivalent {
@@ -176,6 +179,7 @@ impl UnleveredEquivalent {
             tax_rate: structure.tax_rate,
             case_unlevered: cost.beta.unlevered,
             unlevered: formula.unlever_with(relevered, structure, debt),
+            operations: cost.beta.uses_operations_beta,
         }
     }
 }

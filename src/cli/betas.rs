@@ -3,6 +3,7 @@
 //! Prints each peer's beta estimate and its statistics; writes no file.
 
 use hurdle::audit::frequency_comparison::FrequencyRun;
+use hurdle::capital::leverage::DebtBetaSource;
 use hurdle::case::Case;
 use hurdle::report::format::{fixed, label};
 use hurdle::valuation::{PeerEstimates, PeerResult};
@@ -186,6 +187,28 @@ fn table(case: &Case, estimates: &PeerEstimates, peers: &[PeerResult]) -> String
         label(&estimates.spec.frequency),
         estimates.window_start,
         estimates.window_end
+    ));
+    // How D/E and the unlevered beta were formed (found by review: a net D/E and a
+    // Miles–Ezzell beta with credit-spread debt betas were shown without a word).
+    let leverage = &case.settings.leverage;
+    let debt_beta = match leverage.debt_beta_source {
+        DebtBetaSource::None => "debt beta 0".to_string(),
+        DebtBetaSource::Given => format!(
+            "debt beta {} (a peer's own where given)",
+            hurdle::error::compact(leverage.debt_beta)
+        ),
+        DebtBetaSource::CreditSpread => {
+            "debt betas from the credit spread, (Kd − rf) / ERP".to_string()
+        }
+    };
+    out.push_str(&format!(
+        "D/E = {} debt / equity value; unlevered by {}, {debt_beta}{}\n",
+        label(&leverage.debt_measure),
+        label(&leverage.formula),
+        match leverage.operations_beta {
+            true => " (the aggregate takes the betas of the operations, not shown here)",
+            false => "",
+        }
     ));
     out
 }

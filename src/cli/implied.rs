@@ -286,9 +286,15 @@ fn shown(r: &hurdle::audit::implied::Implied) -> impl Fn(f64) -> String + '_ {
 /// A solved relevered beta as the unlevered beta it implies, beside the case's aggregate, at
 /// the structure it is relevered to: a reader compares it with the peers' unlevered betas.
 fn unlevered_line(u: &hurdle::audit::implied::UnleveredEquivalent) -> String {
+    // The case relevers the betas of the operations when it aggregates them (found by review:
+    // they were called unlevered betas).
+    let kind = match u.operations {
+        true => "a beta of the operations",
+        false => "an unlevered beta",
+    };
     format!(
-        "at the case's target D/E {} and tax rate {} ({} formula): an unlevered beta of {}, \
-         against the case's aggregate {}",
+        "at the case's target D/E {} and tax rate {} ({} formula): {kind} of {}, against the \
+         case's aggregate {}",
         fixed(u.debt_to_equity, 4),
         percent(u.tax_rate, 2),
         hurdle::case::label(&u.formula),
