@@ -16,7 +16,8 @@ use hurdle::audit::verify::{
 pub struct Args {
     /// The result.json to verify.
     pub receipt: PathBuf,
-    /// Where the case file is, when not at the path the receipt records.
+    /// Where the case file (or, for a universe's receipt, the universe file) is, when not beside
+    /// the receipt's folder nor at the path the receipt records.
     #[arg(long, value_name = "CASE.toml")]
     pub case: Option<PathBuf>,
     /// Relative tolerance for numbers, in [0, 1e-6] (0: bit for bit).

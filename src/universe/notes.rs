@@ -171,7 +171,18 @@ pub(super) fn case_twins(strays: &[&str], panel: &[String]) -> String {
     // found by review), capitals aside and accented letters composed (NFC, Unicode Standard
     // Annex #15): é as one character or as e and a combining accent.
     let unpadded = |id: &str| id.trim_start_matches('0').to_string();
-    let key = |id: &str| unpadded(id).nfc().collect::<String>().to_lowercase();
+    // Runs of white space as one space too (a spreadsheet's no-break space, or two spaces for
+    // one; found by review: "KX 203" with a no-break space was listed beside the panel's
+    // "KX 203" with no word of the difference).
+    let key = |id: &str| {
+        (unpadded(id)
+            .split_whitespace()
+            .collect::<Vec<_>>()
+            .join(" "))
+        .nfc()
+        .collect::<String>()
+        .to_lowercase()
+    };
     let lower: std::collections::HashMap<String, &str> =
         panel.iter().map(|id| (key(id), id.as_str())).collect();
     let twins: Vec<(&str, &str)> = (strays.iter())
@@ -180,7 +191,9 @@ pub(super) fn case_twins(strays: &[&str], panel: &[String]) -> String {
     if twins.is_empty() {
         return String::new();
     }
-    let pairs: Vec<String> = twins.iter().map(|(p, s)| format!("{p} for {s}")).collect();
+    let pairs: Vec<String> = (twins.iter())
+        .map(|(p, s)| format!("{p} for {s}"))
+        .collect();
     // What separates each pair, over all pairs (found by review: a pair differing in capitals
     // and in encoding was said to differ in encoding only).
     let differs = |test: &dyn Fn(&str, &str) -> bool| {
@@ -188,10 +201,21 @@ pub(super) fn case_twins(strays: &[&str], panel: &[String]) -> String {
     };
     let leading = |id: &str| id.len() - id.trim_start_matches('0').len();
     let zeros = (twins.iter()).any(|(p, s)| leading(p) != leading(s));
+    let fold = |id: &str| id.split_whitespace().collect::<Vec<_>>().join(" ");
+    let spaces = |p: &str, s: &str| {
+        !(p.chars().filter(|c| c.is_whitespace())).eq(s.chars().filter(|c| c.is_whitespace()))
+    };
     let kinds: Vec<&str> = [
-        (differs(&|p, s| !p.nfc().eq(s.nfc())), "in capitals"),
         (
-            differs(&|p, s| p.to_lowercase() != s.to_lowercase()),
+            differs(&spaces),
+            "in spaces (shown <U+…> where not a plain space)",
+        ),
+        (
+            differs(&|p, s| !fold(p).nfc().eq(fold(s).nfc())),
+            "in capitals",
+        ),
+        (
+            differs(&|p, s| fold(p).to_lowercase() != fold(s).to_lowercase()),
             "in how accented letters are encoded",
         ),
         (zeros, "in leading zeros"),

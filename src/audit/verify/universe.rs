@@ -19,10 +19,12 @@ use crate::universe::settings::read_universe;
 use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
 
 /// What a universe verification leaves out, and why.
-pub const NOT_COMPARED: &str = "securities.csv, industries.csv, rolling.csv, their Parquet \
-copies, summary.md and figures/industries*.svg are not compared file by file: they are written \
-from the same estimates as the receipt's counts, industry table and (from version 0.4.0) each \
-security's figures, which are compared where the receipt holds them";
+pub const NOT_COMPARED: &str = "securities.csv, industries.csv, their Parquet copies, \
+summary.md and figures/industries*.svg are not compared file by file: they are written from the \
+same estimates as the receipt's counts, industry table and (from version 0.4.0) each security's \
+figures, which are compared where the receipt holds them; rolling.csv and rolling.parquet are \
+not verified at all: the receipt holds no rolling beta, and those are regressions of their own, \
+resting only on the input files, whose hashes are compared";
 
 /// Verifies a parsed universe receipt found at `receipt_path`; `universe_path` overrides where
 /// the universe file is looked for.

@@ -310,7 +310,7 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
         out,
         "Valuation date {}. Return window {} to {} ({} {} periods, at least {} usable returns \
          per security). Estimator: {}; standard errors: {}. Unlevering: {}, with each firm's own \
-         D/E ({} debt) and tax rate. Industry unlevered beta: the {}{}.\n",
+         D/E ({} debt){}. Industry unlevered beta: the {}{}.\n",
         r.universe.valuation_date,
         r.window.window_start,
         r.window.window_end,
@@ -321,7 +321,12 @@ pub(super) fn summary(r: &UniverseResult, charts: &[super::chart::Chart]) -> Str
         r.estimator.std_errors_description,
         r.formula_source,
         label(&s.leverage.debt_measure),
-        label(&s.leverage.aggregation),
+        // Harris–Pringle has no tax term (found by review: "and tax rate" said otherwise).
+        match s.leverage.formula.uses_tax_rate() {
+            true => " and tax rate",
+            false => ", no tax rate (the formula has none)",
+        },
+        aggregation_words(s.leverage.aggregation, s.leverage.trim_fraction),
         if s.leverage.operations_beta {
             " of the betas of the operations (cash at a beta of zero)"
         } else {
@@ -450,4 +455,16 @@ fn cautions(r: &UniverseResult) -> String {
         _ => {}
     }
     out
+}
+
+/// The industry statistic in words: its noun (found by review: the setting's own token, "the
+/// market-cap-weighted of"), with a trimmed mean's share cut from each end.
+fn aggregation_words(aggregation: crate::stats::Aggregation, trim: f64) -> String {
+    match aggregation {
+        crate::stats::Aggregation::TrimmedMean => format!(
+            "trimmed mean ({} cut from each end, rounded down to whole securities)",
+            crate::report::format::exact_percent(trim)
+        ),
+        other => other.noun().to_string(),
+    }
 }

@@ -25,8 +25,15 @@ pub fn first_ids(ids: &[&str]) -> String {
 
 /// An id as a note shows it: between typographic quotes when it holds a comma or a quote, which
 /// would blur a list; the id itself as written, with no escapes (found by review: `Q"1,x`
-/// showed as `"Q\"1,x"`).
+/// showed as `"Q\"1,x"`), except white space other than a plain space, shown by its code point
+/// (`KX<U+00A0>203`), so that two ids that print alike can be told apart (found by review).
 pub fn shown_id(id: &str) -> String {
+    let id = &(id.chars())
+        .map(|c| match c.is_whitespace() && c != ' ' {
+            true => format!("<U+{:04X}>", u32::from(c)),
+            false => c.to_string(),
+        })
+        .collect::<String>();
     match (id.contains([',', '"']), id.contains(['“', '”'])) {
         (false, _) => id.to_string(),
         (true, false) => format!("“{id}”"),

@@ -100,7 +100,8 @@ pub(super) fn same_returns_note(panel: &crate::panel::Panel) -> Option<String> {
         format!(
             "Check: {} of securities with the same returns, one's prices the other's (or their \
              multiple) on every date both have: a second listing, another share class or a \
-             copied file, one firm counted twice in its industry's figures: {}",
+             copied file, which counts one firm twice wherever both enter the same industry's \
+             figures: {}",
             match clusters.len() {
                 1 => "1 group".to_string(),
                 n => format!("{n} groups"),
