@@ -2482,6 +2482,17 @@ fn a_window_given_twice_is_refused_or_noted_as_in_a_case() {
         &["beta.flag_r_squared_floor=2"],
         &["universe.toml: after applying --set beta.flag_r_squared_floor=2: "],
     );
+    // So is a --set without which the file passes, though the message names the file's own
+    // key (found by review: quarterly returns over the file's window, fewer than its
+    // min_observations, were put down to the file's window).
+    refused(
+        |_| {},
+        &["beta.frequency=quarterly", "beta.flag_r_squared_floor=0.1"],
+        &[
+            "universe.toml: after applying --set beta.frequency=quarterly: beta.window_start = \
+             2025-01-02 gives",
+        ],
+    );
     // The file's own value stays the file's, whatever other --set is given (found by review:
     // every --set was blamed).
     refused(
