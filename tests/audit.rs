@@ -3078,3 +3078,56 @@ fn a_receipts_rate_too_large_for_percent_is_written_as_a_decimal() {
         "{markdown}"
     );
 }
+
+// A whole-number key's axis beyond 1e15 is set as a whole number (found by review: a seed of
+// 5e16 was written in exponent form, read as a number with decimals, and every cell refused as
+// "not a whole number"); a step too small for its span to count says so, not "inf points".
+#[test]
+fn grid_axes_of_large_whole_numbers_and_tiny_steps() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let csv = dir.path().join("grid.csv");
+    let output = grid_to_csv(
+        &case,
+        [
+            "uncertainty.seed=0..1e17:5e16",
+            "market.risk_free_rate=0.02..0.03:0.01",
+        ],
+        &csv,
+        &[],
+    );
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert!(
+        !report.contains("n/a") && !report.contains("whole number"),
+        "{report}"
+    );
+    // The seed does not reach the point estimate: each row holds the same two WACCs.
+    let rows: Vec<String> = std::fs::read_to_string(&csv)
+        .unwrap()
+        .lines()
+        .skip(1)
+        .map(|l| l.split_once(',').unwrap().1.to_string())
+        .collect();
+    assert_eq!(rows.len(), 3, "{rows:?}");
+    assert!(
+        rows.iter().all(|r| r == &rows[0] && !r.contains(",,")),
+        "{rows:?}"
+    );
+    let output = grid_to_csv(
+        &case,
+        [
+            "market.equity_risk_premium=0.04..0.06:5e-324",
+            "market.risk_free_rate=0.02..0.03:0.01",
+        ],
+        &csv,
+        &[],
+    );
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(2), "{report}");
+    assert!(
+        report.contains("more points than a number holds; at most 101 per axis")
+            && !report.contains("inf"),
+        "{report}"
+    );
+}

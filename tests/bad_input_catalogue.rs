@@ -689,6 +689,20 @@ fn price_files() -> Vec<Bad> {
             ["run", "{case}", "--out", "{out}"],
             ["peer.1.prices", "data/index.csv", "same dates and prices"]
         ),
+        // The risk-free series is named by its own key, `yields` (found by review: it was
+        // named `market.risk_free_series.prices`, a key that does not exist).
+        bad!(
+            "peer file is the risk-free file",
+            |s| s.edit_case(
+                "prices = \"data/peers/corrowick.csv\"",
+                "prices = \"data/risk_free.csv\"\nprice_column = \"yield\""
+            ),
+            ["run", "{case}", "--out", "{out}"],
+            [
+                "peer.1.prices = \"data/risk_free.csv\"",
+                "the risk-free series' (market.risk_free_series.yields = \"data/risk_free.csv\")"
+            ]
+        ),
         bad!(
             "peer file is the index with rows left out",
             |s| {

@@ -69,10 +69,13 @@ pub fn parse_axis(origin: &str, spec: &str) -> Result<Axis> {
     let steps = ((high - low) / step + 1e-9).floor();
     // NaN cannot arise (both bounds and the step are finite), so `>=` also refuses infinity.
     if steps >= MAX_POINTS as f64 {
-        return Err(fail(format!(
-            "{} points; at most {MAX_POINTS} per axis",
-            crate::error::compact(steps + 1.0)
-        )));
+        // A step too small for the span to count in a double (5e-324 over 0.02) has more
+        // points than can be written (found by review: "inf points").
+        let count = match (steps + 1.0).is_finite() {
+            true => format!("{} points", crate::error::compact(steps + 1.0)),
+            false => "more points than a number holds".to_string(),
+        };
+        return Err(fail(format!("{count}; at most {MAX_POINTS} per axis")));
     }
     let count = steps as usize + 1;
     // Rounded to 15 significant digits of the axis's largest value, so that 0.04 + 3 × 0.005 is

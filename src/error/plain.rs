@@ -170,8 +170,26 @@ fn text_for_a_number(text: &str, expected: &str, range: Option<(i128, i128)>) ->
         "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
     } else if text.contains(',') {
         "numbers take a decimal point and no thousands separator (2400.0, 0.0267)"
-    } else if text.trim().parse::<f64>().is_ok() {
-        "a number is written without quotes (0.0324, not \"0.0324\")"
+    } else if let Some(advice) = text.trim().parse::<f64>().ok().map(|value| {
+        // Rust reads what TOML does not (found by review: `--set x=.5`, where no quotes were
+        // typed, was told to drop its quotes).
+        let t = text.trim();
+        if !value.is_finite() {
+            match t.chars().any(|c| c.is_ascii_digit()) {
+                true => "beyond the largest number a file holds (about 1.8e308)",
+                false => "NaN and infinity are refused",
+            }
+        } else if t.starts_with('.')
+            || t.starts_with("-.")
+            || t.starts_with("+.")
+            || t.ends_with('.')
+        {
+            "write a digit on both sides of the decimal point (0.5, 5.0)"
+        } else {
+            "a number is written without quotes (0.0324, not \"0.0324\")"
+        }
+    }) {
+        advice
     } else if range.is_some() {
         "this key takes a whole number"
     } else {

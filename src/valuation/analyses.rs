@@ -18,9 +18,15 @@ pub struct Axis {
 
 impl Axis {
     /// The `--set` assignment of value `i`, in exponent form beyond 1e15 and below 1e-6 (found
-    /// by review: 1e297 written out as a 298-digit whole number, which the case reader refuses).
+    /// by review: 1e297 written out as a 298-digit whole number, which the case reader refuses),
+    /// except a whole number a whole-number key can take (below 2⁶³), written out (found by
+    /// review: a seed of 5e16 read as a number with decimals, "not a whole number").
     pub fn assignment(&self, i: usize) -> String {
-        format!("{}={}", self.key, crate::error::compact(self.values[i]))
+        let value = self.values[i];
+        match value.fract() == 0.0 && value.abs() < 9.2e18 {
+            true => format!("{}={}", self.key, value as i64),
+            false => format!("{}={}", self.key, crate::error::compact(value)),
+        }
     }
 }
 

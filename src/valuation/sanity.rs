@@ -65,7 +65,7 @@ fn check_copied_peer(inputs: &Inputs, i: usize) -> Result<()> {
         // the peers): its "beta" would be that of a yield.
         Some(format!(
             "the risk-free series' ({})",
-            named("market.risk_free_series", yields)
+            named_as("market.risk_free_series", "yields", yields)
         ))
     } else {
         inputs.peers[..i].iter().position(same_as).map(|j| {
@@ -118,8 +118,14 @@ fn check_copied_peer(inputs: &Inputs, i: usize) -> Result<()> {
 
 /// A series in a message: a wide table's by its column, a file of its own by its path.
 fn named(key: &str, f: &DataFile) -> String {
+    named_as(key, "prices", f)
+}
+
+/// [`named`] for a key whose file is given under `field` (the risk-free series' `yields`;
+/// found by review: it was named `.prices`, a key that does not exist).
+fn named_as(key: &str, field: &str, f: &DataFile) -> String {
     match f.places.is_empty() {
-        true => format!("{key}.prices = \"{}\"", f.path),
+        true => format!("{key}.{field} = \"{}\"", f.path),
         false => format!("{key}.column = \"{}\" of {}", f.column, f.path),
     }
 }
