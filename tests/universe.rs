@@ -1017,6 +1017,43 @@ fn attributes_that_match_no_panel_id_are_refused() {
     );
 }
 
+// An id or an industry label holding a direction control (U+202E reverses the rest of the line
+// it is shown on), an invisible character or a separator is refused naming its line, as a
+// case's names are (found by review: it reached summary.md, industries.csv and the chart).
+#[test]
+fn ids_and_labels_that_change_how_text_shows_are_refused() {
+    refused(
+        |dir| {
+            edit_attributes(dir, "industry", |cells, at| {
+                (cells[at("security")] == "S03")
+                    .then(|| format!("\u{202e}{}", cells[at("industry")]))
+            });
+        },
+        &[],
+        &[
+            "attributes.csv, line ",
+            "`industry` = \"\\u{202e}",
+            "holds U+202E",
+        ],
+    );
+    refused(
+        |dir| {
+            let panel = fs::read_to_string(dir.join("prices-long.csv")).unwrap();
+            fs::write(
+                dir.join("prices-long.csv"),
+                panel.replace(",S05,", ",S\u{200b}05,"),
+            )
+            .unwrap();
+        },
+        &[],
+        &[
+            "prices-long.csv, line ",
+            "`security` = \"S\\u{200b}05\"",
+            "holds U+200B",
+        ],
+    );
+}
+
 // The securities lacking a figure are named by figure (found by review: the counts named
 // none), and an industry whose equity values lie 100,000 times apart is questioned, with its
 // smallest and largest securities, as holding figures in other units (found by review: one

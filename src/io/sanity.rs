@@ -576,6 +576,20 @@ pub fn is_one_line(text: &str) -> bool {
     !text.chars().any(char::is_control)
 }
 
+/// An explicit direction embedding, override or isolate, a line or paragraph separator, an
+/// invisible character that is no part of a script's writing (zero-width space U+200B, word
+/// joiner U+2060, byte-order mark U+FEFF; the joiners U+200C and U+200D, which Persian and emoji
+/// need, and the soft hyphen U+00AD of names copied from web pages, are kept), or a Unicode noncharacter (Unicode 15, §23.2 "Layout
+/// Controls" for U+202A–U+202E and U+2066–U+2069, §5.8 for U+2028 and U+2029, §23.7
+/// "Noncharacters" for U+FDD0–U+FDEF and the last two code points of each plane; from
+/// memory).
+pub(crate) fn unseen_or_unwritable(c: char) -> bool {
+    matches!(c,
+        '\u{2028}' | '\u{2029}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}'
+        | '\u{fdd0}'..='\u{fdef}' | '\u{200b}' | '\u{2060}' | '\u{feff}')
+        || (c as u32 & 0xfffe) == 0xfffe
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

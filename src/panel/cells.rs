@@ -226,7 +226,13 @@ fn push_chunk(
             // An id a spreadsheet would read as a formula goes to the checked path, which
             // names it.
             let formula = matches!(first, Some('=' | '+' | '@' | '-'));
-            if padded(first) || padded(last) || formula || !crate::io::sanity::is_one_line(security)
+            if padded(first)
+                || padded(last)
+                || formula
+                || !crate::io::sanity::is_one_line(security)
+                || security
+                    .chars()
+                    .any(crate::io::sanity::unseen_or_unwritable)
             {
                 return false;
             }

@@ -422,6 +422,20 @@ pub(crate) fn check_label(
             what()
         ));
     }
+    // As a case's names (found by review: U+202E in an industry label reversed the rest of a
+    // summary.md line).
+    if let Some(c) = label
+        .chars()
+        .find(|&c| crate::io::sanity::unseen_or_unwritable(c))
+    {
+        return Err(format!(
+            "{} = {label:?} holds U+{:04X}, a direction control, separator, invisible character \
+             or noncharacter, which changes how the text shows without being seen or cannot be \
+             written; write it without that character",
+            what(),
+            u32::from(c)
+        ));
+    }
     match opens_a_formula(label) {
         false => Ok(()),
         true => Err(format!(

@@ -69,9 +69,13 @@ pub(super) fn capital_notes(settings: &CaseFile, exclusions: &[Option<String>]) 
     let (least, most) = equity.fold((f64::INFINITY, 0.0_f64), |(l, m), e| (l.min(e), m.max(e)));
     if most > 10_000.0 * least {
         notes.push(format!(
-            "Check: the peers' equity values run from {least} to {most}, a factor of more than \
+            "Check: the peers' equity values run from {} to {}, a factor of more than \
              10,000: are they all in the same units (millions, say)? Each D/E and the \
-             market-cap weights read them as given."
+             market-cap weights read them as given.",
+            // In exponent form beyond 1e15 and below 1e-6 (found by review: 5e-324 was written
+            // with 324 digits).
+            crate::error::compact(least),
+            crate::error::compact(most)
         ));
     }
     notes.extend(net_debt_beta_note(settings));

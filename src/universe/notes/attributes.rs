@@ -128,9 +128,11 @@ pub(super) fn units_note(securities: &[SecurityResult]) -> Option<String> {
             let (low, high) = (least.equity_value?, most.equity_value?);
             (high > UNITS_FACTOR * low).then(|| {
                 format!(
-                    "{industry} ({} {low} to {} {high})",
+                    "{industry} ({} {} to {} {})",
                     first_ids(&[&least.security]),
-                    first_ids(&[&most.security])
+                    crate::error::compact(low),
+                    first_ids(&[&most.security]),
+                    crate::error::compact(high)
                 )
             })
         })
