@@ -2354,14 +2354,60 @@ fn overrides() -> Vec<Bad> {
                 "--set",
                 "target.source=subject",
                 "--set",
-                "target.subject_debt=1e308",
+                "target.subject_debt=1e100",
                 "--set",
-                "target.subject_equity_value=1e-300"
+                "target.subject_equity_value=1e-100"
             ],
             [
-                "target.subject_debt = 1e308",
-                "gives a D/E too large to compute, above 10"
+                "target.subject_debt = 1e100",
+                "gives D/E = 1.000e200, above 10"
             ]
+        ),
+        // Found by review: amounts near the largest double were accepted and overflowed in the
+        // workbook's recalculation (#NUM!).
+        bad!(
+            "--set a peer's equity value beyond any amount",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "peer.0.equity_value=1.7e308"
+            ],
+            [
+                "--set peer.0.equity_value=1.7e308",
+                "peer.0.equity_value (peer \"Brenvale Fluid Systems\") = 1.7e308 lies outside \
+                 1e-100 to 1e100"
+            ]
+        ),
+        // Found by review: `.5` and `1e400`, typed without quotes, were told to drop them.
+        bad!(
+            "--set a number without a digit before its point",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "market.equity_risk_premium=.5"
+            ],
+            ["\".5\" is not a number: write a digit on both sides of the decimal point"]
+        ),
+        bad!(
+            "--set a number beyond a double",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "market.equity_risk_premium=1e400"
+            ],
+            ["\"1e400\" is not a number: beyond the largest number a file holds"]
         ),
         // Found by review: the memo said "a change larger than inf bp".
         bad!(

@@ -133,6 +133,16 @@ pub(super) fn validate_structure(case: &CaseFile) -> std::result::Result<(), Str
         );
     }
     let target = &case.target;
+    let amounts = [
+        ("target.subject_equity_value", target.subject_equity_value),
+        ("target.subject_debt", target.subject_debt),
+        ("target.subject_cash", target.subject_cash),
+    ];
+    for (key, value) in amounts {
+        if let Some(v) = value {
+            super::amount_within_bounds(key, v)?;
+        }
+    }
     // The subject's figures are checked whenever given: an explicit target without a basis is
     // set beside the subject's own D/E in a note (found by review: a negative subject_debt
     // printed "the subject's own, -0.001").
