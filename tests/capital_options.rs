@@ -926,22 +926,24 @@ fn a_peer_set_draw_the_case_would_refuse_is_left_out_not_fatal() {
 }
 
 // Under an explicit target the subject's own figures are only set beside it in a note: a
-// ratio too large to compute is left out of the note, not written "inf", and the case runs
-// (found by review: "inf" in the memo; then a refusal of figures the case does not use).
+// ratio beyond a million is written in exponent form, not "inf", and the case runs (found by
+// review: "inf" in the memo; then a refusal of figures the case does not use). Since 0.16.0
+// the amounts lie within 1e-100 to 1e100, so the largest ratio is 1e200.
 #[test]
-fn a_subject_structure_beyond_any_number_is_left_out_of_the_target_note() {
+fn a_subject_structure_beyond_any_usual_number_is_written_in_exponent_form() {
     let dir = tempfile::tempdir().unwrap();
     let result = run_demo(
         dir.path(),
         &[
             "target.justification=\"\"",
-            "target.subject_debt=1e308",
-            "target.subject_equity_value=1e-300",
+            "target.subject_debt=1e100",
+            "target.subject_equity_value=1e-100",
         ],
     );
     let notes = result["notes"].to_string();
     assert!(notes.contains("has no stated basis"), "{notes}");
-    assert!(!notes.contains("subject's own"), "{notes}");
+    assert!(notes.contains("the subject's own, 1e200;"), "{notes}");
+    assert!(!notes.contains("inf"), "{notes}");
 }
 
 // A size premium's usual ground is a subject smaller than the firms its beta comes from

@@ -271,6 +271,25 @@ impl Implied {
         self.achieved_wacc
             .is_some_and(|wacc| (wacc - self.claimed_wacc).abs() <= REPRODUCED)
     }
+
+    /// The value found less the case's own: in basis points for a rate or premium, as a plain
+    /// difference for a beta or a D/E (found by review: the command line computed it).
+    pub fn change(&self) -> Option<Change> {
+        let delta = self.value? - self.base_value;
+        Some(
+            match self.key.contains("beta") || self.key.contains("debt_to_") {
+                true => Change::Ratio(delta),
+                false => Change::BasisPoints(delta * 1e4),
+            },
+        )
+    }
+}
+
+/// An implied value's change from the case's, in the unit a reviewer reads it in.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Change {
+    BasisPoints(f64),
+    Ratio(f64),
 }
 
 /// Solves for `target` so that the WACC equals `claimed`.

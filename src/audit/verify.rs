@@ -1,10 +1,12 @@
 //! Verification of a receipt: rerun the case a `result.json` names and compare every figure.
 //!
-//! The case file is read from the path the receipt records (or one the reviewer gives), with
-//! the receipt's overrides; every input file's SHA-256 is compared with the recorded one; the
-//! full run is repeated and every leaf of the recorded JSON is compared with the rerun's, numbers
-//! within a relative tolerance and everything else exactly. Only `generated_at`, `case.file`
-//! (the path the case was found at) and `tool.version` (which the report names) are skipped. A sentence that describes a setting in words
+//! The case file is looked for beside the receipt's folder, then in it, then at the path the
+//! receipt records (or read where the reviewer gives it), and read with the receipt's
+//! overrides; every input file's SHA-256 is compared with the recorded one; the full run is
+//! repeated and every leaf of the recorded JSON is compared with the rerun's, numbers within a
+//! relative tolerance and everything else exactly. `generated_at`, `case.file` and
+//! `universe.file` (the paths the inputs were found at), `tool.version` (which the report names)
+//! and `cost_of_debt.row.line` are skipped (`compare.rs`). A sentence that describes a setting in words
 //! ([`WORDING_KEYS`]) and reads differently is listed apart: a later version may word it better,
 //! and the setting it describes is compared as a value of its own.
 

@@ -3,8 +3,8 @@
 //! An observed equity beta carries the firm's financial risk. To compare peers, each beta is
 //! unlevered to an asset beta with its own debt-to-equity and tax rate, the asset betas are
 //! aggregated, and the aggregate is relevered at the subject's target structure. Each formula
-//! is a variant of [`Formula`] with its source; add a formula by adding a variant and its two
-//! arms (and its identities to the tests below).
+//! is a variant of [`Formula`] with its source; DEVELOPERS.md's "Adding a method" lists every
+//! place a new formula reaches (its arms here, the workbook, the memo, the reference checks).
 
 use serde::{Deserialize, Serialize};
 

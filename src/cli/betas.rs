@@ -1,4 +1,4 @@
-//! `hurdle betas CASE.toml [--format table|json] [--set KEY=VALUE]...`
+//! `hurdle betas CASE.toml [--format table|json] [--compare-frequencies] [--set KEY=VALUE]...`
 //!
 //! Prints each peer's beta estimate and its statistics; writes no file.
 

@@ -297,11 +297,7 @@ fn notes(b: &Bridge, csv: bool) -> String {
     ));
     // Only when the D/E differs (found by review: said of two cases of one D/E).
     // (Also when preferred equity on one side makes the weights' products differ by rounding.)
-    let (a, b) = (
-        from.debt_weight * to.equity_weight,
-        to.debt_weight * from.equity_weight,
-    );
-    if (a - b).abs() > 1e-12 * a.abs().max(b.abs()) {
+    if b.structures_differ() {
         out.push_str(
             "note: each group is the figure the build-up carries: the beta is the relevered \
              beta, so a different D/E moves the beta line as well as the weights line (the \

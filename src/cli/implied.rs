@@ -9,7 +9,7 @@
 
 use std::process::ExitCode;
 
-use hurdle::audit::implied::{implied, Target};
+use hurdle::audit::implied::{implied, Change, Target};
 use hurdle::report::format::{fixed, percent};
 
 use super::CaseArgs;
@@ -186,10 +186,10 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
                 true => text,
                 false => format!("+{text}"),
             };
-            let change = if r.key.contains("beta") || r.key.contains("debt_to_") {
-                signed(fixed(value - r.base_value, 4))
-            } else {
-                format!("{} bp", signed(fixed((value - r.base_value) * 1e4, 1)))
+            let change = match r.change() {
+                Some(Change::Ratio(d)) => signed(fixed(d, 4)),
+                Some(Change::BasisPoints(bp)) => format!("{} bp", signed(fixed(bp, 1))),
+                None => String::new(),
             };
             let mut note = format!("exact: {value}");
             if r.does_not_move {

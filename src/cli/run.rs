@@ -1,7 +1,7 @@
 //! `hurdle run CASE.toml [--out DIR] [--template FILE] [--no-figures] [--set KEY=VALUE]...`
 //!
 //! Computes the valuation and writes `memo.md`, `result.json`, `peers.csv`, `returns.csv`,
-//! `workbook.xlsx` (formulas that recompute the chain), the charts `figures/*.svg` and
+//! `rolling.csv`, `workbook.xlsx` (formulas that recompute the chain), the charts `figures/*.svg` and
 //! `report.html` to DIR (default: `output/` beside the case file),
 //! each atomically and only after all of them rendered; prints a short summary. `--no-figures`
 //! writes the text outputs and the workbook only (no charts, no report). Charts and a report an earlier run left

@@ -456,6 +456,20 @@ pub struct Bridge {
     pub stated_difference: f64,
 }
 
+impl Bridge {
+    /// Whether the two sides' structures differ (their D/E, read from the weights' cross
+    /// products, to 1e-12 relative: preferred equity on one side may leave rounding): the beta
+    /// line then carries a relevering as well as the weights line.
+    pub fn structures_differ(&self) -> bool {
+        let (from, to) = (&self.from.build_up, &self.to.build_up);
+        let (a, b) = (
+            from.debt_weight * to.equity_weight,
+            to.debt_weight * from.equity_weight,
+        );
+        (a - b).abs() > 1e-12 * a.abs().max(b.abs())
+    }
+}
+
 /// Bin edges (one more than the counts) and counts of the values in each bin.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Histogram {

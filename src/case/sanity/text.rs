@@ -1,10 +1,9 @@
-//! Text-level sanity checks: the shape of a CSV file, and the values of a TOML file with their
-//! lines.
+//! Text-level sanity checks of a TOML or JSON file's values with their lines (a CSV file's shape
+//! is `io::sanity::check_csv_shape`'s).
 //!
-//! They run on the bytes before (or beside) the typed parsers, because only the text still knows
-//! where a value was written: a ragged row, a semicolon separator or a byte that is not UTF-8 is
-//! reported with its line instead of the CSV reader's internal advice, and NaN in a case or a
-//! claimed build-up is named with its key and line, even in a key the case does not use.
+//! They run on the text before (or beside) the typed parsers, because only the text still knows
+//! where a value was written: NaN or infinity in a case, a universe file or a claimed build-up
+//! is named with its key and line, even in a key the case does not use.
 
 use std::borrow::Cow;
 
