@@ -438,6 +438,53 @@ fn the_memo_shows_the_fisher_conversion_to_an_output_currency() {
     assert!(memo.contains(&hurdle::report::format::percent(converted, 2)));
 }
 
+// A subject borrowing in the output currency: each component carried by Fisher (1930) on its
+// own and weighted again, the tax shield on the carried interest (the textbook WACC
+// E/V·Ke + D/V·Kd(1 − t) + P/V·Kp + L/V·KL(1 − t) with every rate converted), recomputed here
+// from result.json's own inputs and weights; and the gap to the WACC carried whole is
+// (wD + wL)·t·((1 + π_out)/(1 + π_case) − 1), worked by hand from the two expressions.
+#[test]
+fn the_wacc_of_a_subject_borrowing_in_the_output_currency() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(
+        dir.path(),
+        &[
+            "conversion.currency=USD",
+            "conversion.inflation_case=0.02",
+            "conversion.inflation_output=0.08",
+            "preferred.weight=0.05",
+            "preferred.cost=0.09",
+            "leases.weight=0.1",
+            "leases.cost_pre_tax=0.06",
+        ],
+    );
+    let c = &result["currency_conversion"];
+    let x = 1.08 / 1.02;
+    let carried = |r: f64| (1.0 + r) * x - 1.0;
+    let t = number(&result, "target.tax_rate");
+    let w = |k: &str| number(&result, &format!("weights.{k}"));
+    let kd = carried(number(&result, "cost_of_debt_pre_tax"));
+    assert!((number(c, "cost_of_debt_pre_tax") - kd).abs() < 1e-15);
+    let expected = w("equity") * carried(number(&result, "cost_of_equity"))
+        + w("debt") * kd * (1.0 - t)
+        + w("preferred") * carried(0.09)
+        + w("leases") * carried(0.06) * (1.0 - t);
+    // 1e-15: a dozen products and sums of numbers below 1, each rounded once.
+    let borrowing = number(c, "wacc_borrowing_locally");
+    assert!(
+        (borrowing - expected).abs() < 1e-15,
+        "{borrowing} {expected}"
+    );
+    let gap = (w("debt") + w("leases")) * t * (x - 1.0);
+    assert!((number(c, "wacc") - borrowing - gap).abs() < 1e-15);
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(memo.contains(&format!(
+        "**{}** here, against {}",
+        hurdle::report::format::percent(borrowing, 2),
+        hurdle::report::format::percent(number(c, "wacc"), 2)
+    )));
+}
+
 // An inflation of the wrong size (0.2 for 2%) runs, but its notes say so: the rate itself, and
 // the converted and real WACC not above zero, which Fisher's relation gives when inflation
 // exceeds the nominal rate: (1 + 0.0738)·(1.025)/(1.2) − 1 < 0 and 1.0738/1.2 − 1 < 0.

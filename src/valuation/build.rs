@@ -478,13 +478,7 @@ fn cost_record(settings: &CaseFile, chain: &Chain, peers: &[PeerResult]) -> Cost
             preferred: weights.preferred * other.preferred_cost,
             leases: weights.leases * other.lease_cost_after_tax,
         },
-        currency_conversion: settings.conversion.as_ref().map(|c| {
-            convert_results(
-                c,
-                &settings.case.currency,
-                chosen.cost_of_equity,
-                chosen.wacc,
-            )
-        }),
+        currency_conversion: (settings.conversion.as_ref())
+            .map(|c| convert_results(c, settings, chain)),
     }
 }

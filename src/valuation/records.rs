@@ -308,23 +308,44 @@ pub struct CurrencyConversion {
     /// Real (the same in both currencies): (1 + r)/(1 + π_from) − 1.
     pub cost_of_equity_real: f64,
     pub wacc_real: f64,
+    /// The pre-tax cost of debt carried to the output currency by the same relation (added in
+    /// 0.16.0).
+    pub cost_of_debt_pre_tax: f64,
+    /// The WACC of a subject that borrows and deducts interest in the output currency: each
+    /// component carried on its own (the cost of equity, the pre-tax costs of debt, preferred
+    /// equity and leases), the tax shield taken on the carried nominal interest, and weighted
+    /// again; it is lower than `wacc` by (w_debt + w_leases)·t·((1 + π_to)/(1 + π_from) − 1)
+    /// (added in 0.16.0; found by review: the memo gave the formula without the figure).
+    pub wacc_borrowing_locally: f64,
 }
 
+/// The results carried into the output currency; `chain` is the case's own.
 pub(super) fn convert_results(
     conversion: &crate::case::ConversionSettings,
-    case_currency: &str,
-    cost_of_equity: f64,
-    wacc: f64,
+    settings: &crate::case::CaseFile,
+    chain: &crate::capital::chain::Chain,
 ) -> CurrencyConversion {
+    use crate::capital::currency::{convert_nominal, nominal_to_real};
     let (from, to) = (conversion.inflation_case, conversion.inflation_output);
+    let chosen = chain.outcome();
+    let carried = |rate: f64| convert_nominal(rate, from, to);
+    let (w, other, tax) = (&chain.weights, &chain.other, settings.target.tax_rate);
+    let cost_of_equity = carried(chosen.cost_of_equity);
+    let cost_of_debt_pre_tax = carried(chain.cost_of_debt.pre_tax);
+    let wacc_borrowing_locally = w.equity * cost_of_equity
+        + w.debt * cost_of_debt_pre_tax * (1.0 - tax)
+        + w.preferred * carried(other.preferred_cost)
+        + w.leases * carried(other.lease_cost_pre_tax) * (1.0 - tax);
     CurrencyConversion {
-        from: case_currency.to_string(),
+        from: settings.case.currency.clone(),
         to: conversion.currency.clone(),
         inflation_from: from,
         inflation_to: to,
-        cost_of_equity: crate::capital::currency::convert_nominal(cost_of_equity, from, to),
-        wacc: crate::capital::currency::convert_nominal(wacc, from, to),
-        cost_of_equity_real: crate::capital::currency::nominal_to_real(cost_of_equity, from),
-        wacc_real: crate::capital::currency::nominal_to_real(wacc, from),
+        cost_of_equity,
+        wacc: carried(chosen.wacc),
+        cost_of_equity_real: nominal_to_real(chosen.cost_of_equity, from),
+        wacc_real: nominal_to_real(chosen.wacc, from),
+        cost_of_debt_pre_tax,
+        wacc_borrowing_locally,
     }
 }

@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 9] = [
+const ADDED_IN: [(&str, &[&str]); 10] = [
     (
         "0.3.0",
         &[
@@ -142,6 +142,13 @@ const ADDED_IN: [(&str, &[&str]); 9] = [
             "peers[].stability.windows_laid",
             "peers[].stability.skipped_window_ends",
             "reconciliation.stated_difference",
+        ],
+    ),
+    (
+        "0.16.0",
+        &[
+            "currency_conversion.cost_of_debt_pre_tax",
+            "currency_conversion.wacc_borrowing_locally",
         ],
     ),
 ];

@@ -137,6 +137,16 @@ const CONVERSION: &[Row] = &[
      "/currency_conversion/cost_of_equity_real", Fmt::Percent, "", None),
     ("WACC, real", "=(1+Wacc)/(1+InflationCase)-1", "/currency_conversion/wacc_real", Fmt::Percent,
      "", None),
+    ("Pre-tax cost of debt, output currency",
+     "=(1+CostOfDebtPreTax)*(1+InflationOutput)/(1+InflationCase)-1",
+     "/currency_conversion/cost_of_debt_pre_tax", Fmt::Percent, "", Some("CostOfDebtOutputCurrency")),
+    ("WACC, borrowing in the output currency",
+     "=EquityWeight*CostOfEquityOutputCurrency+DebtWeight*CostOfDebtOutputCurrency*(1-TargetTaxRate)\
+      +PreferredWeight*((1+PreferredCost)*(1+InflationOutput)/(1+InflationCase)-1)\
+      +LeaseWeight*((1+LeaseCostPreTax)*(1+InflationOutput)/(1+InflationCase)-1)*(1-TargetTaxRate)",
+     "/currency_conversion/wacc_borrowing_locally", Fmt::Percent,
+     "Each component carried on its own and weighted again, the tax shield taken on the carried \
+      interest: for a subject that borrows in the output currency.", None),
 ];
 
 pub(crate) fn sheet(
