@@ -406,6 +406,9 @@ pub struct PreferredSettings {
     /// Cost of preferred equity (annual, decimal), e.g. dividend / price; not tax-deductible.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub cost: Option<f64>,
+    /// Where the weight and the cost come from, printed in the memo (since 0.16.0).
+    #[serde(skip_serializing_if = "String::is_empty")]
+    pub justification: String,
 }
 
 /// `[leases]`: lease liabilities as a debt-like capital component.
@@ -418,6 +421,9 @@ pub struct LeaseSettings {
     /// pre-tax cost of debt when absent. Deductible at the target tax rate.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub cost_pre_tax: Option<f64>,
+    /// Where the weight and the cost come from, printed in the memo (since 0.16.0).
+    #[serde(skip_serializing_if = "String::is_empty")]
+    pub justification: String,
 }
 
 /// `[conversion]`: the output currency and the expected inflation of both currencies.
@@ -430,6 +436,9 @@ pub struct ConversionSettings {
     pub inflation_case: f64,
     /// Expected annual inflation of the output currency.
     pub inflation_output: f64,
+    /// Where the two expected inflation rates come from, printed in the memo (since 0.16.0).
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub justification: String,
 }
 
 /// One `[[peer]]` table: a comparable listed firm.

@@ -156,6 +156,7 @@ pub fn validate_finite(case: &CaseFile) -> std::result::Result<(), String> {
 /// written, naming no key).
 fn free_text_lengths(case: &CaseFile) -> std::result::Result<(), String> {
     const MOST: usize = 30_000;
+    static EMPTY: String = String::new();
     let texts = [
         ("case.peer_selection", &case.case.peer_selection),
         (
@@ -179,6 +180,12 @@ fn free_text_lengths(case: &CaseFile) -> std::result::Result<(), String> {
         (
             "premiums.company_specific_justification",
             &case.premiums.company_specific_justification,
+        ),
+        ("preferred.justification", &case.preferred.justification),
+        ("leases.justification", &case.leases.justification),
+        (
+            "conversion.justification",
+            case.conversion.as_ref().map_or(&EMPTY, |c| &c.justification),
         ),
     ];
     for (key, text) in texts {

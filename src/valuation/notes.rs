@@ -436,6 +436,23 @@ fn unstated_inputs(settings: &CaseFile, cost: &CostOfCapital) -> Vec<UnstatedInp
             "the company-specific premium",
             "premiums.company_specific_justification",
         ),
+        // Since 0.16.0 (found by review: an emerging-market case's inflation rates moved its
+        // WACC by six points with no basis asked).
+        (
+            settings.preferred.weight > 0.0 && settings.preferred.justification.is_empty(),
+            "the preferred equity's weight and cost",
+            "preferred.justification",
+        ),
+        (
+            settings.leases.weight > 0.0 && settings.leases.justification.is_empty(),
+            "the lease liabilities' weight and cost",
+            "leases.justification",
+        ),
+        (
+            (settings.conversion.as_ref()).is_some_and(|c| c.justification.is_empty()),
+            "the expected inflation of the currency conversion",
+            "conversion.justification",
+        ),
     ]
     .into_iter()
     .filter(|(missing, _, _)| *missing)
