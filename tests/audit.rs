@@ -3131,3 +3131,64 @@ fn grid_axes_of_large_whole_numbers_and_tiny_steps() {
         "{report}"
     );
 }
+
+// 0.16.0 asks for a stated basis of preferred equity, leases and a conversion's inflation, and
+// writes the converted cost of debt and the WACC of a subject borrowing in the output currency:
+// a 0.15.0 receipt of a case with all three lacks the new keys (listed as added, not failing)
+// and lists fewer unstated inputs, which fails on `cautions.unstated_inputs` with the change
+// named on a `known change:` line; no rate differs.
+#[test]
+fn a_receipt_of_0_15_0_names_the_inputs_now_asked_for_a_basis() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let sets = [
+        "--set",
+        "preferred.weight=0.05",
+        "--set",
+        "preferred.cost=0.09",
+        "--set",
+        "leases.weight=0.1",
+        "--set",
+        "conversion.currency=USD",
+        "--set",
+        "conversion.inflation_case=0.02",
+        "--set",
+        "conversion.inflation_output=0.03",
+    ];
+    let out = dir.path().join("out");
+    let mut receipt = run_case(&case, &out, &sets);
+    receipt["tool"]["version"] = serde_json::json!("0.15.0");
+    let conversion = receipt["currency_conversion"].as_object_mut().unwrap();
+    conversion.remove("cost_of_debt_pre_tax");
+    conversion.remove("wacc_borrowing_locally");
+    let unstated = receipt["cautions"]["unstated_inputs"]
+        .as_array_mut()
+        .unwrap();
+    let before = unstated.len();
+    unstated.retain(|u| {
+        let key = u["key"].as_str().unwrap();
+        !["preferred.", "leases.", "conversion."]
+            .iter()
+            .any(|k| key.starts_with(k))
+    });
+    assert_eq!(before - unstated.len(), 3, "{unstated:?}");
+    let older = out.join("older.json");
+    std::fs::write(&older, serde_json::to_vec_pretty(&receipt).unwrap()).unwrap();
+    let verified = hurdle(&["verify", older.to_str().unwrap()]);
+    let report = text(&verified);
+    assert_eq!(verified.status.code(), Some(1), "{report}");
+    assert!(
+        report.contains(
+            "known change: hurdle 0.16.0 also asks for a stated basis of preferred equity"
+        ),
+        "{report}"
+    );
+    assert!(report.contains("cautions.unstated_inputs"), "{report}");
+    assert!(
+        report.contains("currency_conversion.wacc_borrowing_locally"),
+        "{report}"
+    );
+    for headline in ["WACC reproduced", "cost of equity reproduced"] {
+        assert!(report.contains(headline), "{report}");
+    }
+}

@@ -185,7 +185,9 @@ fn free_text_lengths(case: &CaseFile) -> std::result::Result<(), String> {
         ("leases.justification", &case.leases.justification),
         (
             "conversion.justification",
-            case.conversion.as_ref().map_or(&EMPTY, |c| &c.justification),
+            case.conversion
+                .as_ref()
+                .map_or(&EMPTY, |c| &c.justification),
         ),
     ];
     for (key, text) in texts {

@@ -98,8 +98,27 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 15] =
+const KNOWN_CHANGES: [KnownChange; 16] =
     [
+        // Found by review: an emerging-market case's inflation rates, and its preferred equity
+        // and leases, moved its WACC with no basis asked.
+        KnownChange {
+            version: "0.16.0",
+            kind: "case",
+            paths: &["cautions.unstated_inputs"],
+            explain: |receipt, _| {
+                let s = &receipt["settings"];
+                let weighted = |k: &str| s[k]["weight"].as_f64().is_some_and(|w| w > 0.0);
+                let converted = s["conversion"].is_object();
+                (weighted("preferred") || weighted("leases") || converted).then(|| {
+                    "hurdle 0.16.0 also asks for a stated basis of preferred equity, lease \
+                     liabilities and a currency conversion's expected inflation (their \
+                     `justification` keys): without one they join the inputs without a stated \
+                     basis (README, Changelog)"
+                        .to_string()
+                })
+            },
+        },
         // Found by review: normal draws made the estimation-error interval too narrow for
         // short windows.
         KnownChange {
