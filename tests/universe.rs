@@ -1798,13 +1798,6 @@ fn a_corrupt_parquet_panel_is_refused_naming_the_file() {
     assert!(!setup.out("out").exists(), "an output folder was written");
 }
 
-// Database exports store amounts as decimals; hurdle's polars build reads no decimal (its
-// decoder panicked on one) and no 8-bit integer. The fixture, written by polars for Python
-// (tests/data/parquet/make_fixtures.py), holds the equity value as a decimal and as a double and
-// the tax rate as a double and as an 8-bit percent, beside an unused decimal column: a column
-// read in a type hurdle does not read is named with its type, and a column not read does not
-// matter. The attributes read are the universe's own figures, so the tables must match the run
-// with the CSV attributes.
 // A panel's Parquet date or date-time beyond the calendar's years is named by its row and
 // stored value (before, a date-time became an empty date and a day count read as a date that
 // was "not ISO 8601"; found by review).
@@ -1843,6 +1836,13 @@ fn parquet_panel_dates_beyond_the_calendar_are_named() {
     }
 }
 
+// Database exports store amounts as decimals; hurdle's polars build reads no decimal (its
+// decoder panicked on one) and no 8-bit integer. The fixture, written by polars for Python
+// (tests/data/parquet/make_fixtures.py), holds the equity value as a decimal and as a double and
+// the tax rate as a double and as an 8-bit percent, beside an unused decimal column: a column
+// read in a type hurdle does not read is named with its type, and a column not read does not
+// matter. The attributes read are the universe's own figures, so the tables must match the run
+// with the CSV attributes.
 #[test]
 fn parquet_columns_of_types_hurdle_does_not_read_are_named() {
     let setup = Setup::new();

@@ -106,6 +106,13 @@ const CONFIGURATIONS: [(&str, &[&str]); 5] = [
             "preferred.cost=0.07",
             "leases.weight=0.04",
             "leases.cost_pre_tax=0.06",
+            // The WACC of a subject borrowing in the output currency carries preferred equity
+            // and leases too: their terms are recalculated only with weights above 0 (found by
+            // review). An output inflation below the case's, so that rate lies above the WACC
+            // carried whole.
+            "conversion.currency=CHF",
+            "conversion.inflation_case=0.03",
+            "conversion.inflation_output=0.01",
         ],
     ),
     (

@@ -436,10 +436,12 @@ fn capital_sections() -> String {
          company_specific_justification = \"\"\n\n\
          [preferred]\n\
          weight = 0.0  # preferred equity's share of total capital\n\
-         # cost = 0.07  # its cost, required when weight > 0\n\n\
+         # cost = 0.07  # its cost, required when weight > 0\n\
+         justification = \"\"  # where the weight and the cost come from, printed in the memo\n\n\
          [leases]\n\
          weight = 0.0  # lease liabilities' share of total capital\n\
-         # cost_pre_tax = 0.05  # absent: the pre-tax cost of debt\n\n\
+         # cost_pre_tax = 0.05  # absent: the pre-tax cost of debt\n\
+         justification = \"\"\n\n\
          [sensitivity]\n\
          metric = \"wacc\"  # wacc or cost_of_equity\n\
          # rows = \"market.equity_risk_premium=0.045..0.065:0.005\"  # absent: ERP ± 1 point\n\

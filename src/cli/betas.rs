@@ -192,6 +192,10 @@ fn table(case: &Case, estimates: &PeerEstimates, peers: &[PeerResult]) -> String
     // Miles–Ezzell beta with credit-spread debt betas were shown without a word).
     let leverage = &case.settings.leverage;
     let debt_beta = match leverage.debt_beta_source {
+        // Hamada takes no debt beta whatever the source (found by review).
+        _ if leverage.formula == hurdle::capital::leverage::Formula::Hamada => {
+            "no debt beta (Hamada: riskless debt)".to_string()
+        }
         DebtBetaSource::None => "debt beta 0".to_string(),
         DebtBetaSource::Given => format!(
             "debt beta {} (a peer's own where given)",

@@ -179,14 +179,15 @@ fn summary(v: &Valuation) -> String {
     // The memo's headline carries the converted rate; so does the terminal (found by review).
     if let Some(c) = &v.cost.currency_conversion {
         lines.push(format!(
-            "  in {}: WACC {}, cost of equity {} (Fisher relation, inflation {} in {} against {}); \
-             {} for a subject borrowing in {}",
+            "  in {}: WACC {}, cost of equity {} (Fisher relation, inflation {} in {} against {} in \
+             {}); {} for a subject borrowing in {}",
             c.to,
             percent(c.wacc, 2),
             percent(c.cost_of_equity, 2),
             percent(c.inflation_to, 2),
             c.to,
             percent(c.inflation_from, 2),
+            c.from,
             percent(c.wacc_borrowing_locally, 2),
             c.to
         ));

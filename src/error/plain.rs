@@ -183,8 +183,17 @@ fn text_for_a_number(text: &str, expected: &str, range: Option<(i128, i128)>) ->
             || t.starts_with("-.")
             || t.starts_with("+.")
             || t.ends_with('.')
+            || t.contains(".e")
+            || t.contains(".E")
         {
-            "write a digit on both sides of the decimal point (0.5, 5.0)"
+            "write a digit on both sides of the decimal point (0.5, 5.0, 1.0e-2)"
+        } else if (t.trim_start_matches(['-', '+']).as_bytes())
+            .starts_with(b"0")
+            .then(|| t.trim_start_matches(['-', '+']).as_bytes().get(1))
+            .flatten()
+            .is_some_and(u8::is_ascii_digit)
+        {
+            "write it without a leading zero (5, 0.5)"
         } else {
             "a number is written without quotes (0.0324, not \"0.0324\")"
         }

@@ -86,14 +86,14 @@ fn finite(value: f64) -> std::result::Result<f64, minijinja::Error> {
     }
 }
 
-/// Decimals a number filter takes: up to 17, the most a double's digits can fill (a larger
-/// count overflowed the formatting; found by review).
+/// Decimals a number filter takes: up to 40, hurdle's bound (a count of 4294967296 overflowed
+/// the formatting; found by review), which leaves a figure of 1e-20 twenty significant digits.
 fn decimals(given: Option<usize>, default: usize) -> std::result::Result<usize, minijinja::Error> {
     match given.unwrap_or(default) {
-        d if d <= 17 => Ok(d),
+        d if d <= 40 => Ok(d),
         d => Err(minijinja::Error::new(
             minijinja::ErrorKind::InvalidOperation,
-            format!("{d} decimals asked of a number filter; at most 17"),
+            format!("{d} decimals asked of a number filter; at most 40"),
         )),
     }
 }

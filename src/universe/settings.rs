@@ -261,46 +261,50 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
     }
     // A value a `--set` gave is blamed on that `--set`, a value of the file's own on the file
     // (found by review, twice), as a case's checks do.
-    // So is a `--set` without which the file passes, though the message names another key
-    // (found by review: `--set beta.frequency=weekly` was refused as the file's lookback).
-    validate(&settings).map_err(|message| {
-        let needed: Vec<String> = (0..overrides.len())
-            .filter(|&i| {
-                let others: Vec<String> = (overrides.iter().enumerate())
-                    .filter(|&(j, _)| j != i)
-                    .map(|(_, o)| o.clone())
-                    .collect();
-                parsed_with(&text, &others).is_some_and(|s| validate(&s).is_ok())
-            })
-            .map(|i| overrides[i].clone())
-            .collect();
-        match case::blamed(path, overrides, message) {
-            Error::AfterOverrides {
-                file,
-                overrides: named,
-                message,
-            } => Error::AfterOverrides {
-                file,
-                overrides: (overrides.iter())
-                    .filter(|o| named.contains(o) || needed.contains(o))
-                    .cloned()
-                    .collect(),
-                message,
-            },
-            Error::Case { file, message } if !needed.is_empty() => Error::AfterOverrides {
-                file,
-                overrides: needed,
-                message,
-            },
-            other => other,
-        }
-    })?;
+    validate(&settings).map_err(|message| blamed(path, &text, overrides, message))?;
     Ok(Universe {
         settings,
         path: path.to_path_buf(),
         sha256,
         overrides: overrides.to_vec(),
     })
+}
+
+/// The refusal of a universe file with its overrides laid over it, blamed as a case's is: on
+/// the `--set` whose key the message names, and on one without which the file passes, though
+/// the message names another key (found by review: `--set beta.frequency=weekly` was refused
+/// as the file's lookback); else on the file.
+fn blamed(path: &Path, text: &str, overrides: &[String], message: String) -> Error {
+    let needed: Vec<String> = (0..overrides.len())
+        .filter(|&i| {
+            let others: Vec<String> = (overrides.iter().enumerate())
+                .filter(|&(j, _)| j != i)
+                .map(|(_, o)| o.clone())
+                .collect();
+            parsed_with(text, &others).is_some_and(|s| validate(&s).is_ok())
+        })
+        .map(|i| overrides[i].clone())
+        .collect();
+    match case::blamed(path, overrides, message) {
+        Error::AfterOverrides {
+            file,
+            overrides: named,
+            message,
+        } => Error::AfterOverrides {
+            file,
+            overrides: (overrides.iter())
+                .filter(|o| named.contains(o) || needed.contains(o))
+                .cloned()
+                .collect(),
+            message,
+        },
+        Error::Case { file, message } if !needed.is_empty() => Error::AfterOverrides {
+            file,
+            overrides: needed,
+            message,
+        },
+        other => other,
+    }
 }
 
 /// The universe file's text with `overrides` laid over it, when they apply and it parses.

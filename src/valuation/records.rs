@@ -314,7 +314,8 @@ pub struct CurrencyConversion {
     /// The WACC of a subject that borrows and deducts interest in the output currency: each
     /// component carried on its own (the cost of equity, the pre-tax costs of debt, preferred
     /// equity and leases), the tax shield taken on the carried nominal interest, and weighted
-    /// again; it is lower than `wacc` by (w_debt + w_leases)·t·((1 + π_to)/(1 + π_from) − 1)
+    /// again; it differs from `wacc` by −(w_debt + w_leases)·t·((1 + π_to)/(1 + π_from) − 1),
+    /// lower when the output currency's inflation is the higher
     /// (added in 0.16.0; found by review: the memo gave the formula without the figure).
     pub wacc_borrowing_locally: f64,
 }

@@ -22,9 +22,15 @@ use crate::universe::{evaluate, load_inputs, UniverseResult, SCHEMA_VERSION};
 pub const NOT_COMPARED: &str = "securities.csv, industries.csv, their Parquet copies, \
 summary.md and figures/industries*.svg are not compared file by file: they are written from the \
 same estimates as the receipt's counts, industry table and (from version 0.4.0) each security's \
-figures, which are compared where the receipt holds them; rolling.csv and rolling.parquet are \
-not verified at all: the receipt holds no rolling beta, and those are regressions of their own, \
-resting only on the input files, whose hashes are compared";
+figures, which are compared where the receipt holds them";
+
+/// [`NOT_COMPARED`] for a receipt whose run wrote rolling betas (`universe.rolling = true`).
+pub const NOT_COMPARED_WITH_ROLLING: &str = "securities.csv, industries.csv, their Parquet \
+copies, summary.md and figures/industries*.svg are not compared file by file: they are written \
+from the same estimates as the receipt's counts, industry table and (from version 0.4.0) each \
+security's figures, which are compared where the receipt holds them; rolling.csv and \
+rolling.parquet are not verified at all: the receipt holds no rolling beta, and those are \
+regressions of their own, resting only on the input files, whose hashes are compared";
 
 /// Verifies a parsed universe receipt found at `receipt_path`; `universe_path` overrides where
 /// the universe file is looked for.
@@ -65,7 +71,10 @@ pub fn verify_universe(
         unchanged,
         files: file_checks(recorded, &rerun),
         files_read,
-        not_compared: NOT_COMPARED,
+        not_compared: match recorded["settings"]["universe"]["rolling"].as_bool() {
+            Some(true) => NOT_COMPARED_WITH_ROLLING,
+            _ => NOT_COMPARED,
+        },
     };
     Ok(settle(
         run,
