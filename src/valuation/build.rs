@@ -406,6 +406,26 @@ fn sampling_record(estimates: &PeerEstimates) -> SamplingRecord {
     }
 }
 
+/// The target structure: which ratio was given, both ratios, and the peers' median beside it.
+fn target_record(settings: &CaseFile, chain: &Chain) -> TargetRecord {
+    TargetRecord {
+        given: match settings.target.source {
+            TargetSource::PeerMedian => "peer_median",
+            TargetSource::Subject => "subject_current",
+            TargetSource::Explicit if settings.target.debt_to_equity.is_some() => "debt_to_equity",
+            TargetSource::Explicit => "debt_to_capital",
+        },
+        debt_to_equity: chain.target_debt_to_equity,
+        debt_to_capital: crate::capital::cost::weights_from_debt_to_equity(
+            chain.target_debt_to_equity,
+        )
+        .1,
+        tax_rate: settings.target.tax_rate,
+        tax_rate_basis: settings.target.tax_rate_basis,
+        peer_median_debt_to_equity: chain.peer_median_debt_to_equity,
+    }
+}
+
 /// The cost-of-capital records from the chain: aggregation, target, premiums, WACC.
 fn cost_record(settings: &CaseFile, chain: &Chain, peers: &[PeerResult]) -> CostOfCapital {
     let chosen = chain.outcome();
@@ -431,23 +451,7 @@ fn cost_record(settings: &CaseFile, chain: &Chain, peers: &[PeerResult]) -> Cost
             vasicek_prior: chain.vasicek_prior,
             peers_included: peers.iter().filter(|p| p.excluded_reason.is_none()).count(),
         },
-        target: TargetRecord {
-            given: match settings.target.source {
-                TargetSource::PeerMedian => "peer_median",
-                TargetSource::Subject => "subject_current",
-                TargetSource::Explicit if settings.target.debt_to_equity.is_some() => {
-                    "debt_to_equity"
-                }
-                TargetSource::Explicit => "debt_to_capital",
-            },
-            debt_to_equity: chain.target_debt_to_equity,
-            debt_to_capital: crate::capital::cost::weights_from_debt_to_equity(
-                chain.target_debt_to_equity,
-            )
-            .1,
-            tax_rate: settings.target.tax_rate,
-            tax_rate_basis: settings.target.tax_rate_basis,
-        },
+        target: target_record(settings, chain),
         weights: weights.clone(),
         other_capital_costs: other.clone(),
         risk_free_rate: market.risk_free_rate,

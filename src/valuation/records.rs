@@ -170,6 +170,9 @@ pub struct TargetRecord {
     pub tax_rate: f64,
     /// Marginal or effective: the basis of `tax_rate`, used for relevering and the shield.
     pub tax_rate_basis: crate::capital::cost::TaxRateBasis,
+    /// The aggregated peers' median D/E (by `leverage.debt_measure`), which a reviewer sets a
+    /// target beside (a market participant's structure; added in 0.16.0).
+    pub peer_median_debt_to_equity: f64,
 }
 
 #[derive(Debug, Clone, Serialize)]

@@ -149,6 +149,7 @@ const ADDED_IN: [(&str, &[&str]); 10] = [
         &[
             "currency_conversion.cost_of_debt_pre_tax",
             "currency_conversion.wacc_borrowing_locally",
+            "target.peer_median_debt_to_equity",
         ],
     ),
 ];
