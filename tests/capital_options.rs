@@ -479,7 +479,7 @@ fn the_wacc_of_a_subject_borrowing_in_the_output_currency() {
     assert!((number(c, "wacc") - borrowing - gap).abs() < 1e-15);
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
     assert!(memo.contains(&format!(
-        "**{}** here, against {}",
+        "(lower here, as USD's inflation is the higher): **{}**, against {}",
         hurdle::report::format::percent(borrowing, 2),
         hurdle::report::format::percent(number(c, "wacc"), 2)
     )));

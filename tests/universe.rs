@@ -952,6 +952,14 @@ fn a_flat_index_is_refused_by_its_file_and_a_short_one_is_not_called_flat() {
     let output = setup.universe("short", &[]);
     let stderr = String::from_utf8_lossy(&output.stderr);
     assert!(!stderr.contains("zero variance"), "{stderr}");
+    // Refused naming the index, as a case refuses it: no security could pass (found by review:
+    // such a run ended with exit 0 and every security unestimated).
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("index.csv: 1 of the window's")
+            && stderr.contains("fewer than beta.min_observations = 40, so no security could pass"),
+        "{stderr}"
+    );
 }
 
 // An attributes table that matches no panel id leaves every security without an industry: the
