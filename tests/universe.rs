@@ -428,6 +428,26 @@ fn long_wide_csv_and_parquet_give_identical_outputs() {
         csv.equals_missing(&parquet),
         "industries.csv and .parquet differ"
     );
+    // The Parquet securities table stores its date columns as dates, the same days as the
+    // CSV's ISO text (found by review: they were text, for every reader to parse again).
+    let csv = read_table(&outs[0].join("securities.csv"));
+    let parquet = ParquetReader::new(fs::File::open(outs[0].join("securities.parquet")).unwrap())
+        .finish()
+        .unwrap();
+    for name in ["first_price_date", "last_price_date"] {
+        let stored = parquet.column(name).unwrap();
+        assert_eq!(stored.dtype(), &DataType::Date, "{name}");
+        let as_text = stored.cast(&DataType::String).unwrap();
+        let written = csv.column(name).unwrap();
+        assert_eq!(written.dtype(), &DataType::String, "{name}");
+        assert!(
+            as_text
+                .as_materialized_series()
+                .equals_missing(written.as_materialized_series()),
+            "{name}"
+        );
+        assert!(stored.null_count() < stored.len(), "{name}");
+    }
 }
 
 // A long file grouped by security has each security estimated while later rows are read; the

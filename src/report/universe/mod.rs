@@ -175,7 +175,37 @@ fn csv_bytes(frame: &mut DataFrame) -> Result<Vec<u8>> {
     Ok(bytes)
 }
 
+/// A table as Parquet, its date columns (`first_price_date`, `last_price_date`, `window_end`:
+/// ISO text in the CSV) stored as dates, so that a reader gets the type the CSV cannot carry
+/// (found by review: they were text).
 fn parquet_bytes(frame: &mut DataFrame) -> Result<Vec<u8>> {
+    let dates: Vec<String> = (frame.get_column_names().into_iter())
+        .filter(|name| name.ends_with("_date") || name.as_str() == "window_end")
+        .map(|name| name.to_string())
+        .collect();
+    for name in dates {
+        let column = frame
+            .column(&name)
+            .map_err(|e| frame_error(e.to_string()))?;
+        if column.dtype() == &DataType::String {
+            // Days since 1970-01-01 read by chrono and cast from integers (polars 0.55's cast
+            // from text to dates prints a deprecation warning on stderr).
+            let epoch = chrono::NaiveDate::from_ymd_opt(1970, 1, 1).expect("a valid date");
+            let days: Vec<Option<i32>> = (column.str().map_err(|e| frame_error(e.to_string()))?)
+                .iter()
+                .map(|text| {
+                    let date = chrono::NaiveDate::parse_from_str(text?, "%Y-%m-%d").ok()?;
+                    i32::try_from((date - epoch).num_days()).ok()
+                })
+                .collect();
+            let as_dates = Column::new(name.as_str().into(), days)
+                .cast(&DataType::Date)
+                .map_err(|e| frame_error(format!("{name}: {e}")))?;
+            frame
+                .with_column(as_dates)
+                .map_err(|e| frame_error(e.to_string()))?;
+        }
+    }
     let mut bytes = Cursor::new(Vec::new());
     ParquetWriter::new(&mut bytes)
         .finish(frame)
