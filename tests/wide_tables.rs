@@ -1442,3 +1442,56 @@ fn formulas_saved_with_placeholder_results_are_named() {
         ok(&calculated)
     );
 }
+
+// A cell stored as a number whose text the workbook reader cannot take (`0x10`, written into
+// the sheet's XML of a workbook rust_xlsxwriter made) is placed by the cell read before it and
+// explained, exit 2 (found by review: "Parse float error" named no cell).
+#[test]
+fn an_xlsx_number_cell_the_reader_cannot_take_is_placed() {
+    use std::io::{Read, Write};
+    let dir = tempfile::tempdir().unwrap();
+    let written = dir.path().join("written.xlsx");
+    let mut book = rust_xlsxwriter::Workbook::new();
+    let sheet = book.add_worksheet().set_name("Prices").unwrap();
+    for (col, header) in ["date", "Index", "Alder"].iter().enumerate() {
+        sheet.write_string(0, col as u16, *header).unwrap();
+    }
+    for row in 1..6u32 {
+        sheet
+            .write_string(row, 0, format!("2024-01-{:02}", row + 1))
+            .unwrap();
+        sheet.write_number(row, 1, 100.0 + f64::from(row)).unwrap();
+        sheet.write_number(row, 2, 40.0 + f64::from(row)).unwrap();
+    }
+    book.save(&written).unwrap();
+    // C4 holds 43; its value becomes the text 0x10, typed as a number (`t="n"`: without the
+    // attribute calamine reads the cell as text, which the table check names by its cell).
+    let mut archive = zip::ZipArchive::new(fs::File::open(&written).unwrap()).unwrap();
+    let mut out = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    for i in 0..archive.len() {
+        let mut entry = archive.by_index(i).unwrap();
+        let name = entry.name().unwrap().to_string();
+        let mut data = String::new();
+        entry.read_to_string(&mut data).unwrap();
+        if name == "xl/worksheets/sheet1.xml" {
+            assert!(data.contains("<c r=\"C4\"><v>43</v></c>"), "{data}");
+            data = data.replace(
+                "<c r=\"C4\"><v>43</v></c>",
+                "<c r=\"C4\" t=\"n\"><v>0x10</v></c>",
+            );
+        }
+        out.start_file(name, zip::write::SimpleFileOptions::default())
+            .unwrap();
+        out.write_all(data.as_bytes()).unwrap();
+    }
+    let patched = dir.path().join("patched.xlsx");
+    fs::write(&patched, out.finish().unwrap().into_inner()).unwrap();
+    let output = init(&[patched.to_str().unwrap(), "--index", "Index"]);
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("patched.xlsx: sheet \"Prices\" cannot be read at the first cell after B4 that holds a value")
+            && stderr.contains("retype it, or save the sheet as CSV"),
+        "{stderr}"
+    );
+}

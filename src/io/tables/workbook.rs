@@ -124,7 +124,29 @@ impl<RS: Read + Seek> Book<RS> for Xlsx<RS> {
         let unreadable = |e: calamine::XlsxError| format!("sheet \"{name}\" cannot be read: {e}");
         let mut reader = self.worksheet_cells_reader(name).map_err(unreadable)?;
         let mut cells = Vec::new();
-        while let Some(cell) = reader.next_cell().map_err(unreadable)? {
+        // The cell read last, to place a cell the reader cannot take (found by review: "Parse
+        // float error" named no cell); cells come row by row.
+        let mut last: Option<(u32, u32)> = None;
+        let unreadable_after = |e: calamine::XlsxError, last: Option<(u32, u32)>| {
+            let place = match last {
+                Some((row, column)) => format!(
+                    "the first cell after {}{} that holds a value",
+                    super::cells::column_letters(column as usize),
+                    row + 1
+                ),
+                None => "its first cell that holds a value".to_string(),
+            };
+            let advice = match e {
+                calamine::XlsxError::ParseFloat(_) | calamine::XlsxError::ParseInt(_) => {
+                    " (a cell stored as a number holding text the reader cannot take as one, \
+                     such as 0x10 or a number with spaces: retype it, or save the sheet as CSV)"
+                }
+                _ => "",
+            };
+            format!("sheet \"{name}\" cannot be read at {place}: {e}{advice}")
+        };
+        while let Some(cell) = reader.next_cell().map_err(|e| unreadable_after(e, last))? {
+            last = Some(cell.get_position());
             if !matches!(cell.get_value(), DataRef::Empty) {
                 let value = Data::from(cell.get_value().clone());
                 cells.push(calamine::Cell::new(cell.get_position(), value));
