@@ -414,8 +414,14 @@ fn cautions(r: &UniverseResult) -> String {
   figure before relying on it.\n\
 - Every beta is an estimate with sampling error: securities.csv gives each one's standard \
   error and 95% confidence interval, and industries.csv each median's distribution-free 95% \
-  interval (`median_*_ci_low`, `median_*_ci_high`; empty below six securities). An industry \
+  interval (`median_*_ci_low`, `median_*_ci_high`; empty below six values). An industry \
   figure resting on few securities is fragile; the counts say how many each rests on.\n\
+- The median's interval is the order-statistic one (Conover, Practical Nonparametric \
+  Statistics, section 3.2), which assumes the betas are independent draws. Betas estimated \
+  over one window against one index share their industry's shocks, so their errors move \
+  together and the interval is then too narrow. With fewer than about fifteen values its \
+  order statistics reach the extremes (the minimum and maximum from six to eight), so it covers \
+  more than 95% and its width is not comparable across industries of different sizes.\n\
 - Industry figures move with the return frequency, the window and the estimator: daily \
   returns of thinly or late-traded securities bias their betas toward zero, which weekly or \
   monthly returns and the Dimson or Scholes–Williams estimators (beta.method) guard against.\n\
@@ -445,7 +451,12 @@ fn cautions(r: &UniverseResult) -> String {
         crate::beta::Adjustment::Vasicek if s.beta.vasicek_prior_mean.is_none() => out.push_str(
             "- Vasicek's prior is taken from every security estimated and not excluded, across industries, so \
              it pulls each industry toward the market-wide mean, the more so the noisier its \
-             betas.\n",
+             betas. Its variance is the sample variance of the estimated betas, which holds \
+             their sampling error too (its expectation is the true betas' variance plus the \
+             mean SE²), so it shrinks less than an empirical-Bayes prior would. Shrinkage does \
+             not correct a thin trader's beta biased toward zero, whose small standard error \
+             leaves it nearly where it is, and such betas enter the prior unless their flag is \
+             listed in beta.exclude_flags.\n",
         ),
         crate::beta::Adjustment::Blume => out.push_str(
             "- Blume's adjustment pulls each levered beta toward 1 before it is unlevered, so \
@@ -453,6 +464,28 @@ fn cautions(r: &UniverseResult) -> String {
              firm's D/E, not toward an average unlevered beta.\n",
         ),
         _ => {}
+    }
+    // Found by review: figures shown without the caveats a statistician would add.
+    match s.leverage.aggregation {
+        crate::stats::Aggregation::TrimmedMean => out.push_str(
+            "- The trimmed mean cuts a whole number of values from each end: an industry with \
+             fewer securities than one over leverage.trim_fraction has none cut, and its \
+             trimmed mean is its mean (result.json's `trimmed_each_end` gives each industry's \
+             count).\n",
+        ),
+        crate::stats::Aggregation::MarketCapWeighted => out.push_str(
+            "- A market-cap-weighted mean can rest on one or two large firms, flagged or not: \
+             compare it with the industry's median before relying on it.\n",
+        ),
+        _ => {}
+    }
+    if s.universe.rolling {
+        out.push_str(
+            "- The rolling betas' range and trend carry no test: successive windows share all \
+             but one period's returns, so the trend's own regression t-statistic would be far \
+             too large, and a range wider than a full-window interval is what sampling error \
+             alone gives over many overlapping windows.\n",
+        );
     }
     out
 }

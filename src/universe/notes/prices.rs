@@ -190,20 +190,27 @@ pub(super) fn late_response_note(securities: &[SecurityResult], threshold: f64) 
     let share = |n: usize| crate::error::rounded(100.0 * n as f64 / tested as f64, 1);
     // Half the threshold in percent, to six decimals without trailing zeros (2.5, 50, 0.0005).
     let chance = crate::error::compact((50.0 * threshold * 1e6).round() / 1e6);
+    // How often chance alone flags as many, the securities taken as independent (found by
+    // review: 3 of 47 at 2.5% read as a finding; chance gives 3 or more 11% of the time).
+    let by_chance =
+        crate::stats::binomial_at_least(late.len() as u64, tested as u64, threshold / 2.0);
     Some(format!(
         "{} estimated and not excluded {} lagged_response, {}% of the {tested} such securities \
          tested: returns that move with the index's return of the period before, with a \
          p-value below beta.flag_lag_p_value = {}. Securities whose prices do not react late \
          are flagged so about {}% of the time (half the threshold: only a positive slope \
-         counts), so only a share well above that points to late trading in the panel, and any \
-         one security's flag may be chance: {}; the lag_slope columns of securities.csv give \
-         each one's slope and p-value, and beta.method = \"dimson\" or \"scholes-williams\" \
-         takes the previous period's index return in.",
+         counts), and chance alone flags {} or more of {tested} with probability {} (binomial, \
+         the securities taken as independent), so only a share well above that points to late \
+         trading in the panel, and any one security's flag may be chance: {}; the lag_slope \
+         columns of securities.csv give each one's slope and p-value, and beta.method = \
+         \"dimson\" or \"scholes-williams\" takes the previous period's index return in.",
         securities_count(late.len()),
         if late.len() == 1 { "carries" } else { "carry" },
         share(late.len()),
         crate::error::compact(threshold),
         chance,
+        late.len(),
+        crate::error::rounded(by_chance, 3),
         first_ids(&late)
     ))
 }
