@@ -47,7 +47,13 @@ pub(crate) fn sheet(book: &mut Book) -> Result<Sheet> {
 
 /// A table title with a note on where its figures come from.
 fn title(book: &Book, sheet: &mut Sheet, row: u32, text: &str, why: &str) -> Result<()> {
-    book.text(sheet, (row, 0), text, &book.styles.subtitle.clone())?;
+    // With a currency conversion, every analysis is in the case's currency (found by review:
+    // nothing said so beside the converted headline).
+    let text = match &book.v.cost.currency_conversion {
+        Some(_) => format!("{text} (in {})", book.v.case.currency),
+        None => text.to_string(),
+    };
+    book.text(sheet, (row, 0), &text, &book.styles.subtitle.clone())?;
     let note = Note::new(format!("Computed by hurdle: {why}"))
         .set_author("hurdle")
         .add_author_prefix(false);

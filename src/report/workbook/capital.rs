@@ -437,12 +437,14 @@ fn vasicek_prior(
         "=SUMPRODUCT(--({included}=1),({raw}-{m})^2)/(COUNTIF({included},1)-1)",
         m = absolute(row, 2)
     );
+    // Four decimals, as the memo gives it (found by review: 0.066 for 0.0665).
+    let four = book.styles.p_value.clone();
     book.formula(
         sheet,
         (row + 1, 2),
         &variance,
         Expect::Json("/beta/vasicek_prior/variance".into()),
-        &beta,
+        &four,
     )?;
     names.push(("VasicekPriorMean".into(), format!("={}", sheet.abs(row, 2))));
     names.push((

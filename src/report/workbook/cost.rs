@@ -63,6 +63,9 @@ const AGGREGATION: &[Row] = &[
 #[rustfmt::skip]
 const RELEVERING: &[Row] = &[
     ("Target D/E", "=TargetDebtToEquity", "/target/debt_to_equity", Fmt::Beta, "", None),
+    ("Aggregated peers' median D/E", "{peer_median_de}", "/target/peer_median_debt_to_equity",
+     Fmt::Beta, "Beside the target: the structure a market participant would hold, read from \
+     the peers (the memo's section 5).", None),
     ("Target D/(D + E)", "=TargetDebtToEquity/(1+TargetDebtToEquity)", "/target/debt_to_capital",
      Fmt::Percent, "", None),
     ("Target tax rate", "=TargetTaxRate", "/target/tax_rate", Fmt::Percent, "", None),
@@ -146,7 +149,8 @@ const CONVERSION: &[Row] = &[
       +LeaseWeight*((1+LeaseCostPreTax)*(1+InflationOutput)/(1+InflationCase)-1)*(1-TargetTaxRate)",
      "/currency_conversion/wacc_borrowing_locally", Fmt::Percent,
      "Each component carried on its own and weighted again, the tax shield taken on the carried \
-      interest: for a subject that borrows in the output currency.", None),
+      interest: for a subject that borrows in the output currency.",
+     Some("WaccBorrowingOutputCurrency")),
 ];
 
 pub(crate) fn sheet(
@@ -247,6 +251,10 @@ fn case_words(v: &crate::valuation::Valuation, p: &PeerRanges) -> Vec<(&'static 
             crate::report::format::label(&beta.aggregation),
         ),
         ("relevered", relevered.into()),
+        (
+            "peer_median_de",
+            super::capital::peer_median_debt_to_equity(v),
+        ),
         ("expression", beta.formula_expression.into()),
         ("citation", beta.formula_source.into()),
         (

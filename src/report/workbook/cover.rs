@@ -190,8 +190,14 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
     book.text(sheet, (row, 0), "Headline figures", &subtitle)?;
     let header = book.styles.header.clone();
     let currency = &book.v.case.currency;
+    // The live column holds figures in both currencies when the case converts (found by review:
+    // it was headed with the case's currency alone); each row's label names its currency.
+    let live = match &book.v.cost.currency_conversion {
+        Some(_) => "Live (formulas)".to_string(),
+        None => format!("Live ({currency}; formulas)"),
+    };
     for (col, text) in [
-        (1, format!("Live ({currency}; formulas)")),
+        (1, live),
         (2, "As run (values)".to_string()),
         (3, "State".to_string()),
     ] {
@@ -204,12 +210,28 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         .as_ref()
         .map(|c| c.to.clone());
     let wacc_out = converted.as_ref().map(|to| format!("WACC ({to})"));
+    let wacc_borrowing = converted
+        .as_ref()
+        .map(|to| format!("WACC ({to}), subject borrowing in {to}"));
+    let wacc_case = match &converted {
+        Some(_) => format!("WACC ({currency})"),
+        None => "WACC".to_string(),
+    };
+    let equity_case = match &converted {
+        Some(_) => format!("Cost of equity ({currency})"),
+        None => "Cost of equity".to_string(),
+    };
     let equity_out = converted
         .as_ref()
         .map(|to| format!("Cost of equity ({to})"));
     let mut rows = vec![
-        ("WACC", "=Wacc", "/wacc", &pct),
-        ("Cost of equity", "=CostOfEquity", "/cost_of_equity", &pct),
+        (wacc_case.as_str(), "=Wacc", "/wacc", &pct),
+        (
+            equity_case.as_str(),
+            "=CostOfEquity",
+            "/cost_of_equity",
+            &pct,
+        ),
         (
             "After-tax cost of debt",
             "=CostOfDebtAfterTax",
@@ -224,7 +246,7 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
             &beta,
         ),
     ];
-    if let (Some(wacc), Some(equity)) = (&wacc_out, &equity_out) {
+    if let (Some(wacc), Some(borrowing), Some(equity)) = (&wacc_out, &wacc_borrowing, &equity_out) {
         rows.insert(
             1,
             (
@@ -235,7 +257,16 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
             ),
         );
         rows.insert(
-            3,
+            2,
+            (
+                borrowing.as_str(),
+                "=WaccBorrowingOutputCurrency",
+                "/currency_conversion/wacc_borrowing_locally",
+                &pct,
+            ),
+        );
+        rows.insert(
+            4,
             (
                 equity.as_str(),
                 "=CostOfEquityOutputCurrency",

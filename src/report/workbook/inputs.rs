@@ -311,8 +311,23 @@ fn debt(v: &Valuation) -> Vec<Spec> {
     specs
 }
 
+/// A row's note, followed by the basis the case states for it, when it states one (found by
+/// review: the memo printed the bases of preferred equity, leases and the inflation rates, the
+/// workbook none).
+fn with_basis(note: &str, basis: &str) -> String {
+    match (note.is_empty(), basis.trim().is_empty()) {
+        (_, true) => note.to_string(),
+        (true, false) => basis.to_string(),
+        (false, false) => format!("{note} Basis: {basis}"),
+    }
+}
+
 /// Preferred equity, leases and the trim fraction.
 fn components(v: &Valuation) -> Vec<Spec> {
+    let (preferred, leases) = (
+        v.settings.preferred.justification.as_str(),
+        v.settings.leases.justification.as_str(),
+    );
     let mut specs = vec![
         spec(
             "Preferred equity weight",
@@ -320,7 +335,7 @@ fn components(v: &Valuation) -> Vec<Spec> {
             "preferred.weight",
             "/weights/preferred",
         )
-        .note("Share of total capital."),
+        .note(with_basis("Share of total capital.", preferred)),
         spec(
             "Cost of preferred equity",
             "PreferredCost",
@@ -334,7 +349,7 @@ fn components(v: &Valuation) -> Vec<Spec> {
             "leases.weight",
             "/weights/leases",
         )
-        .note("Share of total capital."),
+        .note(with_basis("Share of total capital.", leases)),
     ];
     let lease = spec(
         "Pre-tax cost of leases",
@@ -401,19 +416,26 @@ fn optional(v: &Valuation) -> Vec<Spec> {
             .format(Fmt::Beta),
         );
     }
-    if v.cost.currency_conversion.is_some() {
-        specs.push(spec(
-            "Expected inflation, case currency",
-            "InflationCase",
-            "conversion.inflation_case",
-            "/currency_conversion/inflation_from",
-        ));
-        specs.push(spec(
-            "Expected inflation, output currency",
-            "InflationOutput",
-            "conversion.inflation_output",
-            "/currency_conversion/inflation_to",
-        ));
+    if let Some(conversion) = &v.settings.conversion {
+        let basis = conversion.justification.as_str();
+        specs.push(
+            spec(
+                "Expected inflation, case currency",
+                "InflationCase",
+                "conversion.inflation_case",
+                "/currency_conversion/inflation_from",
+            )
+            .note(with_basis("", basis)),
+        );
+        specs.push(
+            spec(
+                "Expected inflation, output currency",
+                "InflationOutput",
+                "conversion.inflation_output",
+                "/currency_conversion/inflation_to",
+            )
+            .note(with_basis("", basis)),
+        );
     }
     specs
 }
