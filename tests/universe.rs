@@ -3220,8 +3220,24 @@ fn a_listed_peer_set_is_set_beside_its_industry() {
     assert_eq!(set["home_industry"], "Industry B");
     assert_eq!(set["home_unlevered_beta"], industry["unlevered_beta"]);
     assert_eq!(set["share_of_home_below"], 0.5);
+    // The set is the whole industry: its m figures are all n of the industry's, so the share
+    // can only be 50% (m/(2n) = ½ at both ends; the median's own property, worked by hand).
+    let n = industry["unlevered"]["dispersion"]["count"]
+        .as_u64()
+        .unwrap();
+    assert_eq!(set["home_members"].as_u64().unwrap(), n);
+    assert_eq!(
+        set["share_of_home_below_range"],
+        serde_json::json!([0.5, 0.5])
+    );
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
     assert!(summary.contains("## The listed peer set"), "{summary}");
+    assert!(
+        summary.contains(&format!(
+            "The set's own {n} figures are all of them, so the share can only be 50%."
+        )),
+        "{summary}"
+    );
     assert!(summary.contains("| peer set | "), "{summary}");
     assert!(summary.contains("50% of Industry B's"), "{summary}");
     let verified = Command::new(env!("CARGO_BIN_EXE_hurdle"))
@@ -3311,6 +3327,10 @@ fn a_peer_set_across_industries_names_the_tie_and_its_share() {
     let equal = home.iter().filter(|&&v| v == got).count() as f64;
     let share = (below + equal / 2.0) / home.len() as f64;
     assert_eq!(set["share_of_home_below"].as_f64().unwrap(), share);
+    // One of the set's figures is Industry B's, so the home figures do not hold all of the
+    // set's: no bound on the share is given.
+    assert_eq!(set["home_members"].as_u64().unwrap(), 1);
+    assert!(set["share_of_home_below_range"].is_null(), "{set}");
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();
     assert!(
         summary.contains(&format!(

@@ -42,6 +42,14 @@ pub struct PeerSetResult {
     pub share_of_home_below: Option<f64>,
     /// How many home-industry figures that share is over.
     pub home_count: usize,
+    /// How many of those figures are the set's own members' (added in 0.16.0).
+    pub home_members: usize,
+    /// Under the median, when every figure of the set is one of its home industry's, the least
+    /// and most `share_of_home_below` can be: half of the set's m figures lie below its median
+    /// and half above (ties counted half), so the share lies within m/(2n) and 1 − m/(2n)
+    /// whatever the set (found by review: "one at either end" could never show); `None`
+    /// otherwise (added in 0.16.0).
+    pub share_of_home_below_range: Option<[f64; 2]>,
 }
 
 /// Refuses a listed id the panel does not hold, or one listed twice; the message names it.
@@ -93,10 +101,27 @@ pub fn peer_set(
         true => s.operations_beta,
         false => s.unlevered_beta,
     };
+    let in_home =
+        |s: &&SecurityResult| s.aggregated() && s.industry.is_some() && s.industry == home;
     let home_figures: Vec<f64> = (securities.iter())
-        .filter(|s| s.aggregated() && s.industry.is_some() && s.industry == home)
+        .filter(in_home)
         .filter_map(figure)
         .collect();
+    let home_members = (members.iter())
+        .copied()
+        .filter(in_home)
+        .filter(|s| figure(s).is_some())
+        .count();
+    // The bound holds when every figure of the set is one of the home industry's.
+    let set_figures = (members.iter())
+        .filter(|s| s.aggregated() && figure(s).is_some())
+        .count();
+    let n = home_figures.len() as f64;
+    let range = (leverage.aggregation == crate::stats::Aggregation::Median
+        && n > 0.0
+        && set_figures == home_members)
+        .then(|| home_members as f64 / (2.0 * n))
+        .map(|least| [least, 1.0 - least]);
     let share = figures
         .unlevered_beta
         .filter(|_| !home_figures.is_empty())
@@ -117,7 +142,9 @@ pub fn peer_set(
         tied_with,
         home_unlevered_beta: home_row.and_then(|i| i.unlevered_beta),
         home_industry: home,
+        share_of_home_below_range: range.filter(|_| share.is_some()),
         share_of_home_below: share,
         home_count: home_figures.len(),
+        home_members,
     })
 }

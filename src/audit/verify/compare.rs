@@ -150,6 +150,8 @@ const ADDED_IN: [(&str, &[&str]); 10] = [
             "currency_conversion.cost_of_debt_pre_tax",
             "currency_conversion.wacc_borrowing_locally",
             "target.peer_median_debt_to_equity",
+            "peer_set.home_members",
+            "peer_set.share_of_home_below_range",
         ],
     ),
 ];

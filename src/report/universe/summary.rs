@@ -131,11 +131,28 @@ fn placed(r: &UniverseResult, p: &crate::universe::peer_set::PeerSetResult) -> S
     ) {
         (Some(home), Some(own), Some(share)) => {
             let home = plain_text(home.clone());
+            // The share's reach when the set's own figures are among the home industry's
+            // (found by review: "either end" could not show).
+            let reach = match p.share_of_home_below_range {
+                Some([low, high]) if low == high => format!(
+                    " The set's own {} figures are all of them, so the share can only be {}.",
+                    p.home_members,
+                    crate::report::format::percent(low, 0)
+                ),
+                Some([low, high]) => format!(
+                    " The set's own {} figures are among them, so the share can only lie \
+                     between {} and {}: read it against that range, not against 0% and 100%.",
+                    p.home_members,
+                    crate::report::format::percent(low, 0),
+                    crate::report::format::percent(high, 0)
+                ),
+                None => String::new(),
+            };
             format!(
                 "The set's {what} ({}) is {}; its home industry, {home}{tie}, has {}, and {} of \
              {home}'s {} figures lie below the set's (ties count half): a set drawn from its \
-             industry's middle lies near 50%, one at either end says its peers are not typical \
-             of their industry.",
+             industry's middle lies near 50%, one near either end of what the share can reach \
+             says its peers are not typical of their industry.{reach}",
                 label(&leverage.aggregation),
                 fixed(own, 3),
                 shown(p.home_unlevered_beta),
