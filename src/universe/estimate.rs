@@ -372,3 +372,34 @@ fn estimator_failed(message: String) -> SecurityEstimate {
         rolling: Vec::new(),
     }
 }
+
+/// Why the universe cannot be estimated over this index, naming it, as a case refuses it: too
+/// few index returns in the window for any security to pass (found by review: quarterly returns
+/// over a short index ran with none of 48 securities estimated, exit 0), or returns all the same
+/// (found by review: every security was left unestimated, and under Vasicek the prior was
+/// blamed); only enough returns can be called flat (found by review: one was "all the same").
+pub(super) fn index_refusal(
+    estimation: &Estimation,
+    least: u32,
+    index: &crate::io::series::DataFile,
+) -> Option<String> {
+    let returns = estimation.index_window_returns();
+    let present: Vec<f64> = returns.iter().flatten().copied().collect();
+    if present.len() < least as usize {
+        let window = estimation.window();
+        return Some(format!(
+            "{} of the window's {} periods ({} to {}) have an index return, fewer than \
+             beta.min_observations = {least}, so no security could pass; its prices run from {} \
+             to {}: move universe.valuation_date, or shorten the window (beta.lookback or \
+             beta.window_start), so that it lies inside them, or take a lower beta.frequency \
+             for prices too sparse for these returns",
+            present.len(),
+            returns.len(),
+            window.start(),
+            window.end(),
+            index.first_date,
+            index.last_date
+        ));
+    }
+    crate::valuation::sanity::flat_index_message(&present)
+}

@@ -133,38 +133,10 @@ pub fn load_inputs(universe: Universe) -> Result<UniverseInputs> {
         risk_free.as_ref().map(|f| f.series.view()),
         rolling,
     );
-    // A flat index is refused before the panel's seconds of reading, naming the index file,
-    // as a case refuses it (found by review: every security was left unestimated, and under
-    // Vasicek the prior was blamed).
-    let present: Vec<f64> = (estimation.index_window_returns().iter())
-        .flatten()
-        .copied()
-        .collect();
-    // Too few returns leave no security able to pass: refused naming the index, as a case
-    // refuses it (found by review: quarterly returns over a short index ran with none of 48
-    // securities estimated, exit 0); only enough of them can be called flat (found by review:
-    // one return was "all the same").
-    let least = settings.beta.min_observations;
-    if present.len() < least as usize {
-        let window = estimation.window();
-        return Err(Error::DataFile {
-            file: universe.resolve(&index.path),
-            message: format!(
-                "{} of the window's {} periods ({} to {}) have an index return, fewer than \
-                 beta.min_observations = {least}, so no security could pass; its prices run \
-                 from {} to {}: move universe.valuation_date, or shorten the window \
-                 (beta.lookback or beta.window_start), so that it lies inside them, or take a \
-                 lower beta.frequency for prices too sparse for these returns",
-                present.len(),
-                estimation.index_window_returns().len(),
-                window.start(),
-                window.end(),
-                index.first_date,
-                index.last_date
-            ),
-        });
-    }
-    if let Some(message) = crate::valuation::sanity::flat_index_message(&present) {
+    // A short or flat index is refused before the panel's seconds of reading, naming it.
+    if let Some(message) =
+        estimate::index_refusal(&estimation, settings.beta.min_observations, &index)
+    {
         return Err(Error::DataFile {
             file: universe.resolve(&index.path),
             message,

@@ -482,7 +482,14 @@ fn cautions(r: &UniverseResult) -> String {
         ),
         _ => {}
     }
-    // Found by review: figures shown without the caveats a statistician would add.
+    out.push_str(&statistical_cautions(s));
+    out
+}
+
+/// The cautions the aggregation and the rolling betas call for (found by review: figures shown
+/// without the caveats a statistician would add).
+fn statistical_cautions(s: &crate::universe::settings::UniverseFile) -> String {
+    let mut out = String::new();
     match s.leverage.aggregation {
         crate::stats::Aggregation::TrimmedMean => out.push_str(
             "- The trimmed mean cuts a whole number of values from each end: an industry with \

@@ -203,81 +203,11 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
     ] {
         book.text(sheet, (row, col), &text, &header)?;
     }
-    let converted = book
-        .v
-        .cost
-        .currency_conversion
-        .as_ref()
-        .map(|c| c.to.clone());
-    let wacc_out = converted.as_ref().map(|to| format!("WACC ({to})"));
-    let wacc_borrowing = converted
-        .as_ref()
-        .map(|to| format!("WACC ({to}), subject borrowing in {to}"));
-    let wacc_case = match &converted {
-        Some(_) => format!("WACC ({currency})"),
-        None => "WACC".to_string(),
-    };
-    let equity_case = match &converted {
-        Some(_) => format!("Cost of equity ({currency})"),
-        None => "Cost of equity".to_string(),
-    };
-    let equity_out = converted
-        .as_ref()
-        .map(|to| format!("Cost of equity ({to})"));
-    let mut rows = vec![
-        (wacc_case.as_str(), "=Wacc", "/wacc", &pct),
-        (
-            equity_case.as_str(),
-            "=CostOfEquity",
-            "/cost_of_equity",
-            &pct,
-        ),
-        (
-            "After-tax cost of debt",
-            "=CostOfDebtAfterTax",
-            "/cost_of_debt_after_tax",
-            &pct,
-        ),
-        ("Relevered beta", "=ReleveredBeta", "/beta/relevered", &beta),
-        (
-            "Aggregate unlevered beta",
-            "=UnleveredBeta",
-            "/beta/unlevered",
-            &beta,
-        ),
-    ];
-    if let (Some(wacc), Some(borrowing), Some(equity)) = (&wacc_out, &wacc_borrowing, &equity_out) {
-        rows.insert(
-            1,
-            (
-                wacc.as_str(),
-                "=WaccOutputCurrency",
-                "/currency_conversion/wacc",
-                &pct,
-            ),
-        );
-        rows.insert(
-            2,
-            (
-                borrowing.as_str(),
-                "=WaccBorrowingOutputCurrency",
-                "/currency_conversion/wacc_borrowing_locally",
-                &pct,
-            ),
-        );
-        rows.insert(
-            4,
-            (
-                equity.as_str(),
-                "=CostOfEquityOutputCurrency",
-                "/currency_conversion/cost_of_equity",
-                &pct,
-            ),
-        );
-    }
+    let rows = headline_rows(book.v);
     let mut r = row + 1;
-    for (name, formula, pointer, format) in rows {
-        book.text(sheet, (r, 0), name, &label)?;
+    for (name, formula, pointer, percent) in rows {
+        let format = if percent { &pct } else { &beta };
+        book.text(sheet, (r, 0), &name, &label)?;
         book.formula(sheet, (r, 1), formula, Expect::Json(pointer.into()), format)?;
         // The run's own figure beside the live one, and whether an edit moved it by more than
         // 1e-9 of it (1e-9 below 1): LINEST misses hurdle's QR by 1e-12 on an ill-conditioned
@@ -293,6 +223,78 @@ fn headline(book: &mut Book, sheet: &mut Sheet, row: u32) -> Result<u32> {
         r += 1;
     }
     Ok(r)
+}
+
+/// The Cover's headline rows: label, formula, `result.json` field, and whether a rate (else a
+/// beta). With a currency conversion each rate names its currency, and the output currency's
+/// WACC, the WACC of a subject borrowing in it and its cost of equity join them (found by review:
+/// the live column was headed with the case's currency alone, and the borrowing rate missing).
+fn headline_rows(
+    v: &crate::valuation::Valuation,
+) -> Vec<(String, &'static str, &'static str, bool)> {
+    let currency = &v.case.currency;
+    let converted = v.cost.currency_conversion.as_ref().map(|c| c.to.as_str());
+    let in_case = |what: &str| match converted {
+        Some(_) => format!("{what} ({currency})"),
+        None => what.to_string(),
+    };
+    let mut rows = vec![
+        (in_case("WACC"), "=Wacc", "/wacc", true),
+        (
+            in_case("Cost of equity"),
+            "=CostOfEquity",
+            "/cost_of_equity",
+            true,
+        ),
+        (
+            "After-tax cost of debt".to_string(),
+            "=CostOfDebtAfterTax",
+            "/cost_of_debt_after_tax",
+            true,
+        ),
+        (
+            "Relevered beta".to_string(),
+            "=ReleveredBeta",
+            "/beta/relevered",
+            false,
+        ),
+        (
+            "Aggregate unlevered beta".to_string(),
+            "=UnleveredBeta",
+            "/beta/unlevered",
+            false,
+        ),
+    ];
+    if let Some(to) = converted {
+        rows.insert(
+            1,
+            (
+                format!("WACC ({to})"),
+                "=WaccOutputCurrency",
+                "/currency_conversion/wacc",
+                true,
+            ),
+        );
+        rows.insert(
+            2,
+            (
+                format!("WACC ({to}), subject borrowing in {to}"),
+                "=WaccBorrowingOutputCurrency",
+                "/currency_conversion/wacc_borrowing_locally",
+                true,
+            ),
+        );
+        rows.insert(
+            4,
+            (
+                format!("Cost of equity ({to})"),
+                "=CostOfEquityOutputCurrency",
+                "/currency_conversion/cost_of_equity",
+                true,
+            ),
+        );
+    }
+    rows
 }
 
 /// The headline's state of a figure the workbook still computes as the run did.

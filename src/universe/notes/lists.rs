@@ -1,5 +1,6 @@
 //! How the universe's notes list securities: the ids a rule picks, the first ten of them, each
-//! quoted when it holds a comma or a quote.
+//! quoted when it holds a comma or a quote, and the panel's ids that an attribute id matches but
+//! for capitals, accents' encoding, spaces or leading zeros.
 
 use crate::universe::securities::SecurityResult;
 
@@ -48,4 +49,83 @@ pub fn shown_id(id: &str) -> String {
 pub fn first_of(texts: &[String]) -> String {
     let more = if texts.len() > 10 { ", …" } else { "" };
     format!("{}{more}", texts[..texts.len().min(10)].join(", "))
+}
+
+/// ". The panel holds an id differing only in capitals (SEC0100 for sec0100): ids are matched
+/// exactly, …" for attribute ids without prices that a panel id matches but for capitals, for
+/// how accented letters are encoded, or for leading zeros (an export that changed capitals, or a
+/// column of ids stored as numbers), else nothing.
+pub fn case_twins(strays: &[&str], panel: &[String]) -> String {
+    use unicode_normalization::UnicodeNormalization;
+    // Leading zeros aside (a column of ids stored as numbers loses them: 000101 becomes 101;
+    // found by review), capitals aside and accented letters composed (NFC, Unicode Standard
+    // Annex #15): é as one character or as e and a combining accent.
+    let unpadded = |id: &str| id.trim_start_matches('0').to_string();
+    // Runs of white space as one space too (a spreadsheet's no-break space, or two spaces for
+    // one; found by review: "KX 203" with a no-break space was listed beside the panel's
+    // "KX 203" with no word of the difference).
+    let key = |id: &str| {
+        (unpadded(id)
+            .split_whitespace()
+            .collect::<Vec<_>>()
+            .join(" "))
+        .nfc()
+        .collect::<String>()
+        .to_lowercase()
+    };
+    let lower: std::collections::HashMap<String, &str> =
+        panel.iter().map(|id| (key(id), id.as_str())).collect();
+    let twins: Vec<(&str, &str)> = (strays.iter())
+        .filter_map(|s| Some((*lower.get(&key(s))?, *s)))
+        .collect();
+    if twins.is_empty() {
+        return String::new();
+    }
+    let pairs: Vec<String> = (twins.iter())
+        .map(|(p, s)| format!("{p} for {s}"))
+        .collect();
+    // What separates each pair, over all pairs (found by review: a pair differing in capitals
+    // and in encoding was said to differ in encoding only).
+    let differs = |test: &dyn Fn(&str, &str) -> bool| {
+        (twins.iter()).any(|(p, s)| test(&unpadded(p), &unpadded(s)))
+    };
+    let leading = |id: &str| id.len() - id.trim_start_matches('0').len();
+    let zeros = (twins.iter()).any(|(p, s)| leading(p) != leading(s));
+    let fold = |id: &str| id.split_whitespace().collect::<Vec<_>>().join(" ");
+    let spaces = |p: &str, s: &str| {
+        !(p.chars().filter(|c| c.is_whitespace())).eq(s.chars().filter(|c| c.is_whitespace()))
+    };
+    let kinds: Vec<&str> = [
+        (
+            differs(&spaces),
+            "in spaces (shown <U+…> where not a plain space)",
+        ),
+        (
+            differs(&|p, s| !fold(p).nfc().eq(fold(s).nfc())),
+            "in capitals",
+        ),
+        (
+            differs(&|p, s| fold(p).to_lowercase() != fold(s).to_lowercase()),
+            "in how accented letters are encoded",
+        ),
+        (zeros, "in leading zeros"),
+    ]
+    .into_iter()
+    .filter_map(|(found, kind)| found.then_some(kind))
+    .collect();
+    let how = match kinds.as_slice() {
+        [one] => one.to_string(),
+        [first, second] => format!("{first}, {second}, or in both"),
+        _ => format!("{}, or in several", kinds.join(", ")),
+    };
+    let zeros_advice = match zeros {
+        true => " (a column of ids stored as numbers loses its leading zeros: store ids as text)",
+        false => "",
+    };
+    format!(
+        ". The panel holds {} differing only {how} ({}): ids are matched exactly, so write them \
+         alike in both files{zeros_advice}",
+        if pairs.len() == 1 { "an id" } else { "ids" },
+        first_ids(&pairs.iter().map(String::as_str).collect::<Vec<_>>())
+    )
 }
