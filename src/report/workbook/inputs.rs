@@ -31,6 +31,8 @@ enum Fmt {
     Percent,
     Beta,
     Ratio,
+    /// A balance-sheet amount (equity value, debt, cash), in the case's unit.
+    Amount,
 }
 
 /// One row of the sheet.
@@ -129,7 +131,7 @@ pub(crate) fn sheet(book: &mut Book, names: &mut Vec<(String, String)>) -> Resul
 fn rates(v: &Valuation) -> Vec<Spec> {
     let premiums = &v.settings.premiums;
     let method = crate::report::format::label(&premiums.country_method);
-    vec![
+    let mut specs = vec![
         spec(
             "Risk-free rate",
             "RiskFreeRate",
@@ -179,7 +181,10 @@ fn rates(v: &Valuation) -> Vec<Spec> {
         )
         .bp()
         .note(&premiums.company_specific_justification),
-        target_debt_to_equity(v),
+    ];
+    specs.extend(subject_structure(v));
+    specs.push(target_debt_to_equity(v));
+    specs.push(
         spec(
             "Target tax rate",
             "TargetTaxRate",
@@ -190,7 +195,43 @@ fn rates(v: &Valuation) -> Vec<Spec> {
             "The {} rate (target.tax_rate_basis).",
             crate::report::format::label(&v.cost.target.tax_rate_basis)
         )),
-    ]
+    );
+    specs
+}
+
+/// The subject's equity value, debt and (under net debt, when given) cash, as inputs, when the
+/// target is its own structure: the target D/E is then a formula over them (found by review: a
+/// typed number whose inputs no cell held).
+fn subject_structure(v: &Valuation) -> Vec<Spec> {
+    if v.cost.target.given != "subject_current" {
+        return Vec::new();
+    }
+    let amount = |label, name, key, pointer| spec(label, name, key, pointer).format(Fmt::Amount);
+    let mut specs = vec![
+        amount(
+            "Subject's equity value",
+            "SubjectEquityValue",
+            "target.subject_equity_value",
+            "/settings/target/subject_equity_value",
+        ),
+        amount(
+            "Subject's debt",
+            "SubjectDebt",
+            "target.subject_debt",
+            "/settings/target/subject_debt",
+        ),
+    ];
+    if v.cost.beta.debt_measure == crate::capital::leverage::DebtMeasure::Net
+        && v.settings.target.subject_cash.is_some()
+    {
+        specs.push(amount(
+            "Subject's cash",
+            "SubjectCash",
+            "target.subject_cash",
+            "/settings/target/subject_cash",
+        ));
+    }
+    specs
 }
 
 /// The target D/E row: an input, or the peers' median as a formula over their D/E cells when
@@ -203,7 +244,11 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
              debt or cash there moves it, and so does a change to a peer's Aggregated flag, as it \
              moves the beta's statistic."
         }
-        "subject_current" => "The subject's own current D/E (target.source = \"subject\").",
+        "subject_current" => {
+            "The subject's own current D/E (target.source = \"subject\"), a formula over its \
+             amounts above (debt net of cash under net debt, over equity value): a change to \
+             them moves it."
+        }
         "debt_to_capital" => "From target.debt_to_capital, D/E = r / (1 − r).",
         _ => "",
     };
@@ -228,7 +273,7 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
     // or none for the subject's structure (its debt and equity) or the peers' median.
     let key = match v.cost.target.given {
         "debt_to_capital" => "target.debt_to_capital (as D/E = r / (1 − r))",
-        "subject_current" => "target.source = \"subject\" (its debt and equity keys)",
+        "subject_current" => "target.source = \"subject\" (the subject's amounts above)",
         _ => "target.debt_to_equity",
     };
     spec(
@@ -240,6 +285,13 @@ fn target_debt_to_equity(v: &Valuation) -> Spec {
     .format(Fmt::Ratio)
     .kind(match v.cost.target.given {
         "peer_median" => Kind::Formula(super::capital::peer_median_debt_to_equity(v)),
+        "subject_current" => Kind::Formula(
+            match subject_structure(v).len() {
+                3 => "=(SubjectDebt-SubjectCash)/SubjectEquityValue",
+                _ => "=SubjectDebt/SubjectEquityValue",
+            }
+            .into(),
+        ),
         _ => Kind::Input,
     })
     .note(target_note)
@@ -447,6 +499,7 @@ fn write_row(book: &mut Book, sheet: &mut Sheet, row: u32, spec: &Spec) -> Resul
         Fmt::Percent => (s.percent.clone(), s.percent_input.clone()),
         Fmt::Beta => (s.beta.clone(), s.beta_input.clone()),
         Fmt::Ratio => (s.ratio.clone(), s.ratio_input.clone()),
+        Fmt::Amount => (s.amount_input.clone(), s.amount_input.clone()),
     };
     let (label, text, mono, bp) = (
         s.label.clone(),
