@@ -180,10 +180,11 @@ pub(super) fn late_response_note(securities: &[SecurityResult], threshold: f64) 
     });
     // Flagged and tested among the same securities, the aggregated ones (found by review: an
     // exclusion by another flag pulled the share below the chance rate).
-    let tested = securities
-        .iter()
-        .filter(|s| s.aggregated() && s.lag_response.is_some())
-        .count();
+    let tested_p: Vec<f64> = (securities.iter())
+        .filter(|s| s.aggregated())
+        .filter_map(|s| s.lag_response.as_ref().map(|l| l.p_value))
+        .collect();
+    let tested = tested_p.len();
     if late.is_empty() || tested == 0 {
         return None;
     }
@@ -194,14 +195,20 @@ pub(super) fn late_response_note(securities: &[SecurityResult], threshold: f64) 
     // review: 3 of 47 at 2.5% read as a finding; chance gives 3 or more 11% of the time).
     let by_chance =
         crate::stats::binomial_at_least(late.len() as u64, tested as u64, threshold / 2.0);
+    // The smallest p-value after Holm's adjustment for the securities tested together (Holm
+    // 1979), which a flag resting on its own p-value alone does not have (found by review).
+    let holm = crate::stats::holm_adjusted(&tested_p)
+        .into_iter()
+        .fold(f64::INFINITY, f64::min);
     Some(format!(
         "{} estimated and not excluded {} lagged_response, {}% of the {tested} such securities \
          tested: returns that move with the index's return of the period before, with a \
          p-value below beta.flag_lag_p_value = {}. Securities whose prices do not react late \
          are flagged so about {}% of the time (half the threshold: only a positive slope \
          counts), and chance alone flags {} or more of {tested} with probability {} (binomial, \
-         the securities taken as independent), so only a share well above that points to late \
-         trading in the panel, and any one security's flag may be chance: {}; the lag_slope \
+         the securities taken as independent; the smallest p-value after Holm's adjustment for \
+         the {tested} tested is {}), so only a share well above that points to late trading in \
+         the panel, and any one security's flag may be chance: {}; the lag_slope \
          columns of securities.csv give each one's slope and p-value, and beta.method = \
          \"dimson\" or \"scholes-williams\" takes the previous period's index return in.",
         securities_count(late.len()),
@@ -211,6 +218,7 @@ pub(super) fn late_response_note(securities: &[SecurityResult], threshold: f64) 
         chance,
         late.len(),
         crate::error::rounded(by_chance, 3),
+        crate::error::rounded(holm, 3),
         first_ids(&late)
     ))
 }
