@@ -337,6 +337,45 @@ fn industry_table_agrees_with_numpy_and_scipy() {
                     && result.contains("are flagged so about 50% of the time"),
                 "{result}"
             );
+            // The note's chance of as many flags, P(X ≥ k) for X ~ Binomial(n, ½) from scipy
+            // (`binom.sf(k - 1, n, 0.5)`), and the smallest p-value after Holm's adjustment,
+            // min(1, n · the smallest p) by Holm's (1979) first step, from securities.csv's
+            // own p-values; both to the note's three decimals.
+            let securities = read_table(&out.join("securities.csv"));
+            let column = |name: &str| securities.column(name).unwrap().clone();
+            let (p, flags, excluded) = (
+                column("lag_slope_p_value"),
+                column("flags"),
+                column("excluded_reason"),
+            );
+            let (p, flags, excluded) = (
+                p.f64().unwrap(),
+                flags.str().unwrap(),
+                excluded.str().unwrap(),
+            );
+            let tested: Vec<(f64, bool)> = (0..securities.height())
+                .filter(|&i| excluded.get(i).is_none())
+                .filter_map(|i| {
+                    let flagged = flags.get(i).is_some_and(|f| f.contains("lagged_response"));
+                    p.get(i).map(|p| (p, flagged))
+                })
+                .collect();
+            let (n, k) = (tested.len(), tested.iter().filter(|t| t.1).count());
+            let chance: f64 = common::python_json(
+                "import sys; from scipy import stats; \
+                 print(float(stats.binom.sf(int(sys.argv[1]) - 1, int(sys.argv[2]), 0.5)))",
+                &[&k.to_string(), &n.to_string()],
+            );
+            let smallest = tested.iter().map(|t| t.0).fold(f64::INFINITY, f64::min);
+            let holm = (n as f64 * smallest).min(1.0);
+            assert!(
+                result.contains(&format!(
+                    "chance alone flags {k} or more of {n} with probability {chance:.3}"
+                )) && result.contains(&format!(
+                    "the smallest p-value after Holm's adjustment for the {n} tested is {holm:.3}"
+                )),
+                "{result}"
+            );
         }
         // Industry E has eight securities, enough for a 95% interval of its medians, so the
         // script's interval check compares numbers there, not two empty cells.
