@@ -277,6 +277,15 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
     })
 }
 
+/// `overrides` without the `i`-th: what the file gives without that one `--set`, for telling
+/// whether the refusal is that override's.
+pub(crate) fn all_but(overrides: &[String], i: usize) -> Vec<String> {
+    (overrides.iter().enumerate())
+        .filter(|&(j, _)| j != i)
+        .map(|(_, o)| o.clone())
+        .collect()
+}
+
 /// A check's refusal of a case or universe file: blamed on the overrides whose keys the message
 /// names (a value an override gave), else on the file (a value of its own).
 pub fn blamed(path: &Path, overrides: &[String], message: String) -> Error {
@@ -328,11 +337,7 @@ fn blamed_in_case(
     message: String,
 ) -> Error {
     let passes_without = |i: usize| {
-        let others: Vec<String> = (overrides.iter().enumerate())
-            .filter(|&(j, _)| j != i)
-            .map(|(_, o)| o.clone())
-            .collect();
-        parse_case(path, text, &others).is_ok_and(|s| validate(&s).is_ok())
+        parse_case(path, text, &all_but(overrides, i)).is_ok_and(|s| validate(&s).is_ok())
     };
     let key = |o: &str| -> String {
         let key = o.split_once('=').map_or(o, |(k, _)| k);

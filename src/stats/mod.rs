@@ -277,13 +277,13 @@ pub fn median_interval(sorted: &[f64], level: f64) -> Option<[f64; 2]> {
 }
 
 /// P(X ≥ k) for X ~ Binomial(n, p): how often chance alone gives `k` or more successes in `n`
-/// independent trials (statrs's binomial survival function, P(X > k − 1)); 1 for k = 0.
+/// independent trials (statrs's binomial survival function, P(X > k − 1)); 1 for k = 0, and for a
+/// `p` outside [0, 1] (which the settings' validation refuses), so that no note can hold NaN.
 pub fn binomial_at_least(k: u64, n: u64, p: f64) -> f64 {
     use statrs::distribution::{Binomial, DiscreteCDF};
     match (k, Binomial::new(p, n)) {
-        (0, _) => 1.0,
+        (0, _) | (_, Err(_)) => 1.0,
         (_, Ok(binomial)) => binomial.sf(k - 1),
-        (_, Err(_)) => f64::NAN,
     }
 }
 

@@ -277,11 +277,7 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
 fn blamed(path: &Path, text: &str, overrides: &[String], message: String) -> Error {
     let needed: Vec<String> = (0..overrides.len())
         .filter(|&i| {
-            let others: Vec<String> = (overrides.iter().enumerate())
-                .filter(|&(j, _)| j != i)
-                .map(|(_, o)| o.clone())
-                .collect();
-            parsed_with(text, &others).is_some_and(|s| validate(&s).is_ok())
+            parsed_with(text, &case::all_but(overrides, i)).is_some_and(|s| validate(&s).is_ok())
         })
         .map(|i| overrides[i].clone())
         .collect();
