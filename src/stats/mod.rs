@@ -235,6 +235,23 @@ pub fn weighted_mean(values: &[f64], weights: &[f64]) -> f64 {
     }
 }
 
+/// (Σ wᵢ)² / Σ wᵢ²: the number of equal weights that would give a weighted mean the same
+/// variance as these (Kish's effective sample size, Survey Sampling, 1965, section 11.7; from
+/// memory). Between 1 (one weight holds everything) and the count (all equal). The weights are
+/// taken relative to the largest first, which leaves the ratio as it is and keeps market values
+/// near f64's limit from overflowing. `None` for no positive weight.
+pub fn effective_count(weights: &[f64]) -> Option<f64> {
+    let largest = weights.iter().fold(0.0_f64, |m, w| m.max(w.abs()));
+    if !(largest.is_finite() && largest > 0.0) {
+        return None;
+    }
+    let (sum, squares) = weights.iter().fold((0.0, 0.0), |(s, q), w| {
+        let w = w / largest;
+        (s + w, q + w * w)
+    });
+    Some(sum * sum / squares)
+}
+
 /// Mean after removing ⌊n·α⌋ of the sorted values from each end, and that count: the trimmed
 /// mean of Tukey (1962, Ann. Math. Statistics 33(1)), with the cut rounded down as in
 /// `scipy.stats.trim_mean`. α in [0, 0.5).
@@ -535,6 +552,21 @@ mod tests {
         // One value: no spread to estimate (numpy.std(ddof=1) of one value is nan with a
         // warning), so none, not 0.
         assert_eq!(dispersion(&[0.8]).std_dev, None);
+    }
+
+    // Kish's effective sample size by hand, (Σw)²/Σw²: four equal weights are worth 4; one
+    // weight among zeros 1; weights 3 and 1 give 16/10. Two market values near f64's limit,
+    // whose squares overflow, are still worth 2. Exact in binary but for 1.6: the weights
+    // divided by the largest (1/3) and the sums of them round, a few units in the last place.
+    #[test]
+    fn effective_count_by_hand() {
+        assert_eq!(effective_count(&[5.0; 4]), Some(4.0));
+        assert_eq!(effective_count(&[7.0, 0.0, 0.0]), Some(1.0));
+        let kish = effective_count(&[3.0, 1.0]).unwrap();
+        assert!((kish - 1.6).abs() < 4.0 * f64::EPSILON * 1.6, "{kish}");
+        assert_eq!(effective_count(&[1e308, 1e308]), Some(2.0));
+        assert_eq!(effective_count(&[]), None);
+        assert_eq!(effective_count(&[0.0, 0.0]), None);
     }
 
     // Weighted mean by hand: values 1, 2, 4 with weights 1, 1, 2: (1 + 2 + 8) / 4 = 2.75.

@@ -29,6 +29,9 @@ pub struct Summary {
     /// How many securities the market-cap-weighted mean rests on: those with an equity value
     /// (fewer than the count of values when some levered betas lack one).
     pub market_cap_weighted_count: usize,
+    /// How many equal weights the market-cap weights are worth ([`stats::effective_count`]):
+    /// near 1 when one firm's value dominates, near the count when the values are alike.
+    pub market_cap_weighted_effective_count: Option<f64>,
     /// Weighted by the value of what the beta measures (`None` for levered betas, or if no
     /// security has the weight): equity plus debt for unlevered betas (a portfolio of the
     /// firms' assets; less cash under net debt, whose unlevered beta has netted it), equity plus
@@ -271,6 +274,9 @@ fn summarise(
         trimmed_each_end,
         market_cap_weighted_mean: weighted(by_equity),
         market_cap_weighted_count: by_equity.len(),
+        market_cap_weighted_effective_count: stats::effective_count(
+            &by_equity.iter().map(|&(_, w)| w).collect::<Vec<f64>>(),
+        ),
         value_weighted_mean: weighted(by_value),
         median_interval: stats::median_interval(&sorted, 0.95),
     })

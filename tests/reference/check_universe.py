@@ -463,6 +463,9 @@ def summary(values, weights, prefix, trim, value_weights=None):
     if weights:
         wv, ww = zip(*weights)
         out[f"market_cap_weighted_{prefix}"] = np.average(wv, weights=ww)
+        # Kish's effective sample size (Survey Sampling, 1965; from memory): (sum w)^2 / sum w^2.
+        w = np.asarray(ww, dtype=float)
+        out[f"market_cap_weighted_{prefix}_effective_count"] = w.sum() ** 2 / (w ** 2).sum()
     if value_weights:
         wv, ww = zip(*value_weights)
         out[f"value_weighted_{prefix}"] = np.average(wv, weights=ww)

@@ -27,7 +27,7 @@ pub(crate) struct Comparison {
 /// The keys each version began to write, as paths with list positions left out
 /// (`peers[].zero_return_share`): a receipt of an earlier version lacks them without having
 /// lost anything. Only keys listed here can be excused; any other absent key is a mismatch.
-const ADDED_IN: [(&str, &[&str]); 10] = [
+const ADDED_IN: [(&str, &[&str]); 11] = [
     (
         "0.3.0",
         &[
@@ -152,6 +152,19 @@ const ADDED_IN: [(&str, &[&str]); 10] = [
             "target.peer_median_debt_to_equity",
             "peer_set.home_members",
             "peer_set.share_of_home_below_range",
+        ],
+    ),
+    (
+        "0.17.0",
+        &[
+            "industries[].levered.market_cap_weighted_effective_count",
+            "industries[].shrunk.market_cap_weighted_effective_count",
+            "industries[].unlevered.market_cap_weighted_effective_count",
+            "industries[].operations.market_cap_weighted_effective_count",
+            "peer_set.figures.levered.market_cap_weighted_effective_count",
+            "peer_set.figures.shrunk.market_cap_weighted_effective_count",
+            "peer_set.figures.unlevered.market_cap_weighted_effective_count",
+            "peer_set.figures.operations.market_cap_weighted_effective_count",
         ],
     ),
 ];

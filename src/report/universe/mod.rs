@@ -435,6 +435,11 @@ fn summary_columns(
         rows.iter()
             .map(|r| Some(pick(r).map_or(0, |s| s.market_cap_weighted_count))),
     );
+    t.number(
+        &format!("market_cap_weighted_{stem}_effective_count"),
+        rows.iter()
+            .map(|r| pick(r).and_then(|s| s.market_cap_weighted_effective_count)),
+    );
     if value_weighted {
         t.number(
             &format!("value_weighted_{stem}"),

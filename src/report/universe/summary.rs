@@ -499,7 +499,11 @@ fn statistical_cautions(s: &crate::universe::settings::UniverseFile) -> String {
         ),
         crate::stats::Aggregation::MarketCapWeighted => out.push_str(
             "- A market-cap-weighted mean can rest on one or two large firms, flagged or not: \
-             compare it with the industry's median before relying on it.\n",
+             industries.csv's `market_cap_weighted_*_effective_count` says how many equal \
+             weights an industry's market values are worth (Kish's effective sample size, \
+             (Σw)²/Σw²; near 1 when one firm dominates), and the mean is then about as \
+             fragile as a mean of that many betas. Compare it with the industry's median \
+             before relying on it.\n",
         ),
         _ => {}
     }
