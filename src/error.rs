@@ -45,15 +45,23 @@ pub enum Error {
     /// A receipt's input file (the case or universe file it records) is at none of the places
     /// tried; a front end says how to give its place.
     #[error(
-        "{}: the {section} file it names is not at {}",
+        "{}: the {section} file it names is not at {}{}",
         receipt.display(),
-        tried.iter().map(|p| p.display().to_string()).collect::<Vec<_>>().join(" nor at ")
+        tried.iter().map(|p| p.display().to_string()).collect::<Vec<_>>().join(" nor at "),
+        match above {
+            0 => String::new(),
+            n => format!(
+                " nor at its recorded path from any of the {n} folders above the receipt's"
+            ),
+        }
     )]
     InputNotFound {
         receipt: PathBuf,
         /// `case` or `universe`.
         section: String,
         tried: Vec<PathBuf>,
+        /// How many folders above the receipt's were tried with the recorded path besides.
+        above: usize,
     },
     /// Two files could be the one a receipt reruns: the one beside the receipt changed since
     /// the receipt, while the recorded path finds an unchanged copy; a front end says how to

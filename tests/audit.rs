@@ -454,6 +454,57 @@ fn verify_from_another_folder_reruns_the_receipts_own_case() {
     assert!(!report.contains("other/case.toml"), "{report}");
 }
 
+// A project's layout: the case under `cases/q/`, run from the project's root into
+// `reviews/q/`. The receipt records `cases/q/case.toml` from the root, and neither the folder
+// beside the receipt's nor its own holds the case; verified from anywhere else, the recorded
+// path is tried from the folders above the receipt and finds it (found by review). A case
+// nowhere to be found names the places tried, in one line.
+#[test]
+fn verify_from_elsewhere_finds_a_case_recorded_from_a_folder_above_the_receipt() {
+    let dir = tempfile::tempdir().unwrap();
+    let root = dir.path().join("project");
+    copy_demo_case(&root.join("cases/q"));
+    let binary = env!("CARGO_BIN_EXE_hurdle");
+    let run = std::process::Command::new(binary)
+        .current_dir(&root)
+        .args(["run", "cases/q/case.toml", "--out", "reviews/q"])
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", text(&run));
+    let receipt = root.join("reviews/q/result.json");
+    let verify = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .arg("verify")
+        .arg(&receipt)
+        .output()
+        .unwrap();
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(0), "{report}");
+    assert!(
+        report.contains("(case ") && report.contains("project/cases/q/case.toml)"),
+        "{report}"
+    );
+
+    std::fs::rename(
+        root.join("cases/q/case.toml"),
+        root.join("cases/q/moved.toml"),
+    )
+    .unwrap();
+    let verify = std::process::Command::new(binary)
+        .current_dir(dir.path())
+        .arg("verify")
+        .arg(&receipt)
+        .output()
+        .unwrap();
+    let report = text(&verify);
+    assert_eq!(verify.status.code(), Some(2), "{report}");
+    assert!(
+        report.contains("nor at cases/q/case.toml nor at its recorded path from any of the"),
+        "{report}"
+    );
+    assert!(report.contains("give its place with --case"), "{report}");
+}
+
 // A copied bundle (case, data and output) whose data were then edited, verified from the
 // folder of the original: the receipt records `case.toml` relative to where the run started,
 // which finds the original's case (the same bytes, so the same hash); verify must rerun the

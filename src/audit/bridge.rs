@@ -250,7 +250,6 @@ fn case_side(path: &Path, written: &str) -> Result<(Side, Option<CaseFacts>)> {
     side.source = written.to_string();
     side.as_of = Some(valuation.case.valuation_date.to_string());
     side.currency = Some(valuation.case.currency.clone());
-    side.sha256 = valuation.case.sha256.clone();
     Ok((side, Some(CaseFacts::of(&valuation))))
 }
 

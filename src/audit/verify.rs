@@ -538,6 +538,20 @@ pub(super) fn locate_case(
     }
     let in_bundle = candidates.len();
     candidates.push(recorded.clone());
+    // The recorded path was typed from the working folder of the run, which is often a folder
+    // above the output folder (`hurdle run cases/x/case.toml --out reviews/x` from a project's
+    // root): the recorded path is tried from each folder above the receipt too (found by
+    // review: `verify` from elsewhere could not find such a case).
+    let named = candidates.len();
+    if recorded.is_relative() {
+        let output_dir = receipt_path.parent().unwrap_or(Path::new(""));
+        for folder in output_dir.ancestors().skip(1) {
+            let path = folder.join(&recorded);
+            if !candidates.contains(&path) {
+                candidates.push(path);
+            }
+        }
+    }
     let read = |path: &PathBuf| std::fs::read(path).ok();
     let same_bytes = |path: &PathBuf| {
         let bytes = read(path);
@@ -561,7 +575,8 @@ pub(super) fn locate_case(
         .ok_or_else(|| Error::InputNotFound {
             receipt: receipt_path.clone(),
             section: section.to_string(),
-            tried: candidates.clone(),
+            tried: candidates[..named].to_vec(),
+            above: candidates.len() - named,
         })?;
     let absolute = |p: &Path| std::path::absolute(p).unwrap_or(p.to_path_buf());
     let edited_in_bundle = (candidates[..in_bundle].iter())

@@ -358,7 +358,8 @@ impl Group {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Side {
     pub label: String,
-    /// The file it came from, as given, and its SHA-256 (empty for the case being run).
+    /// The file it came from, as given, and its SHA-256 (for a computed case, its case file,
+    /// as `case.file` and `case.sha256` record it; empty before 0.17.0 for the case being run).
     pub source: String,
     pub sha256: String,
     pub build_up: BuildUp,
@@ -400,8 +401,8 @@ impl Side {
         };
         Side {
             label: label.to_string(),
-            source: String::new(),
-            sha256: String::new(),
+            source: valuation.case.file.clone(),
+            sha256: valuation.case.sha256.clone(),
             wacc: build_up.wacc(),
             stated_wacc: Some(c.wacc),
             build_up,

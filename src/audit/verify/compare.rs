@@ -258,13 +258,15 @@ pub(crate) fn compare(recorded: &Value, recomputed: &Value, tolerance: f64) -> C
     found
 }
 
-/// When it ran, where the case was found from and which version wrote it are not figures
-/// (the hashes are compared, and the report names both versions when they differ); nor is
+/// When it ran, where the case was found from (also as the bridge's starting side records it)
+/// and which version wrote it are not figures (the hashes are compared, and the report names
+/// both versions when they differ); nor is
 /// the line a spread table's row sits on (the table's hash and the row's rating and spread
 /// are compared; a TOML table's row once recorded its position there, now its line).
-const PLACES: [&str; 5] = [
+const PLACES: [&str; 6] = [
     "generated_at",
     "case.file",
+    "reconciliation.from.source",
     "universe.file",
     "tool.version",
     "cost_of_debt.row.line",
