@@ -164,6 +164,17 @@ pub fn compact(value: f64) -> String {
     }
 }
 
+/// The example a message gives of a rate written as a decimal, from the figure typed: `0.089
+/// for 8.9%` for a typed 8.9 (or `8.9%`), the rate read as percent; a general example for a
+/// figure that cannot be a percent rate (found by review: a typed 8.9 was told `0.091 for 9.1%`).
+pub fn decimal_example(typed: f64) -> String {
+    match typed.is_finite() && (1.0..=100.0).contains(&typed.abs()) {
+        // Rounded to 12 decimals, so 8.9 / 100 shows as 0.089, not 0.08900000000000001.
+        true => format!("{} for {typed}%", (typed / 100.0 * 1e12).round() / 1e12),
+        false => "0.091 for 9.1%".to_string(),
+    }
+}
+
 /// `value` to `decimals` places as Excel shows a cell (its display works on 15 significant
 /// digits; from memory, not checked here), so the memo, the charts, the terminal and the run's
 /// notes agree with the workbook's cells to the last digit shown: the value first taken to 15

@@ -1296,11 +1296,91 @@ fn implied_beta_names_the_unlevered_beta_it_implies() {
         .split("against the case's aggregate ")
         .nth(1)
         .unwrap();
-    let case_aggregate: f64 = case_aggregate.trim().parse().unwrap();
+    // The rest of its line (the held inputs follow on the next).
+    let case_aggregate: f64 = case_aggregate
+        .lines()
+        .next()
+        .unwrap()
+        .trim()
+        .parse()
+        .unwrap();
     assert!(
         (case_aggregate - number(&hp_base, "beta.unlevered")).abs() < 0.6e-4,
         "{report}"
     );
+}
+
+// What a solved value rests on (found by review). Against the demo's claimed build-up: the
+// claim's own ERP (6.0%, claimed.toml) beside the case's value that gives its stated WACC; the
+// claim's components' WACC by the textbook formula, E/V = 1/1.5: (2/3)·(4% + 1.10·6% + 1%) +
+// (1/3)·6.2%·(1 − 25%) = 9.2833%, 6.7 bp below its stated 9.35%; the held inputs as the run
+// records them. A debt-to-capital answer is also given as D/E = (D/V)/(1 − D/V), to the
+// four decimals shown, and its caution names the peers' highest in both units.
+#[test]
+fn implied_names_the_inputs_held_and_the_claims_own_value() {
+    let case = "cases/quillmarsh/case.toml";
+    let out = tempfile::tempdir().unwrap();
+    let run = run_case(Path::new(case), out.path(), &[]);
+    let output = hurdle(&[
+        "implied",
+        case,
+        "--claim",
+        "cases/quillmarsh/claimed.toml",
+        "--solve",
+        "erp",
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert!(
+        report.contains("note: the claim's own components give 9.283%, 6.7 bp below its stated"),
+        "{report}"
+    );
+    assert!(
+        report.contains("the claim itself states market.equity_risk_premium = 6.000%"),
+        "{report}"
+    );
+    let after = |report: &str, prefix: &str| -> String {
+        (report.lines().find_map(|l| l.strip_prefix(prefix)))
+            .unwrap_or_else(|| panic!("no `{prefix}` in {report}"))
+            .to_string()
+    };
+    let pct = |x: &serde_json::Value| format!("{:.3}%", x.as_f64().unwrap() * 100.0);
+    let held = after(&report, "  held at the case's values: ");
+    for expected in [
+        format!("risk-free rate {}", pct(&run["risk_free_rate"])),
+        format!(
+            "relevered beta {:.4}",
+            run["beta"]["relevered"].as_f64().unwrap()
+        ),
+        format!("pre-tax cost of debt {}", pct(&run["cost_of_debt_pre_tax"])),
+        format!("tax rate {}", pct(&run["target"]["tax_rate"])),
+    ] {
+        assert!(held.contains(&expected), "{expected} not in {held}");
+    }
+    assert!(
+        !held.contains("ERP"),
+        "the input solved for is not held: {held}"
+    );
+
+    let output = hurdle(&[
+        "implied",
+        case,
+        "--wacc",
+        "0.072",
+        "--solve",
+        "debt_to_equity",
+        "--set",
+        "target.debt_to_capital=0.3",
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    let exact: f64 = exact_line(&report, "target.debt_to_capital=")
+        .parse()
+        .unwrap();
+    let shown: f64 = after(&report, "  as D/E: ").parse().unwrap();
+    // Shown to four decimals: within half a unit of the fourth.
+    assert!((shown - exact / (1.0 - exact)).abs() <= 0.5e-4, "{report}");
+    assert!(report.contains(" as debt to capital): "), "{report}");
 }
 
 // `--solve all` lists every input with the value that reproduces the claim alone; each case

@@ -366,7 +366,9 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
 fn claimed_debt_to_equity(claimed: &Claimed) -> std::result::Result<f64, String> {
     match (claimed.debt_to_equity, claimed.debt_to_capital) {
         (Some(de), None) if de >= 0.0 => Ok(de),
-        (None, Some(dc)) if (0.0..1.0).contains(&dc) => Ok(dc / (1.0 - dc)),
+        (None, Some(dc)) if (0.0..1.0).contains(&dc) => {
+            Ok(crate::capital::cost::debt_to_equity_from_capital(dc))
+        }
         (Some(_), Some(_)) => {
             Err("[claimed] gives both debt_to_equity and debt_to_capital; keep one".into())
         }

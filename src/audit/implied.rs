@@ -67,6 +67,27 @@ impl Target {
         Target::DebtToEquity,
     ];
 
+    /// The value of this input a claimed build-up states, in the unit the case is solved in
+    /// (`by_capital`: a structure as debt to capital, D/(D+E)); `None` for the size premium,
+    /// which a build-up holds only within its premiums' total, and for a structure without
+    /// equity.
+    pub fn in_build_up(self, b: &super::bridge::BuildUp, by_capital: bool) -> Option<f64> {
+        match self {
+            Target::RiskFree => Some(b.risk_free_rate),
+            Target::Erp => Some(b.equity_risk_premium),
+            Target::Beta => Some(b.beta),
+            Target::CostOfDebt => Some(b.cost_of_debt_pre_tax),
+            Target::SizePremium => None,
+            Target::DebtToEquity if by_capital => {
+                let capital = b.debt_weight + b.equity_weight;
+                (capital > 0.0).then(|| b.debt_weight / capital)
+            }
+            Target::DebtToEquity => {
+                (b.equity_weight > 0.0).then(|| b.debt_weight / b.equity_weight)
+            }
+        }
+    }
+
     /// The range searched unless the user gives one. These bounds are hurdle's choice, not a
     /// published convention: each is wide enough to hold any value a practitioner would defend
     /// (an ERP up to 20%, a beta up to 5, …) so that a claim is not missed, and narrow enough that
@@ -81,6 +102,69 @@ impl Target {
             Target::SizePremium => (-0.05, 0.20),
         }
     }
+}
+
+/// One input a solve holds at the case's value, as a reader lists them beside the answer.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Held {
+    pub label: &'static str,
+    pub value: f64,
+    /// A rate, shown in percent; else a beta or a ratio.
+    pub rate: bool,
+}
+
+/// The case's inputs that stay at its values while `solved` moves (all of them for `None`, the
+/// starting point of `--solve all`), in a build-up's order (found by review: a reviewer could
+/// not file the answer without rerunning the case to learn what was held). Solving the
+/// structure relevers the beta, so the aggregate unlevered beta is the one held then; solving
+/// the size premium holds the other premiums.
+pub fn held_inputs(inputs: &Inputs, base: &Valuation, solved: Option<Target>) -> Vec<Held> {
+    let (c, p) = (&base.cost, &base.cost.premiums);
+    let held = |label, value, rate| Held { label, value, rate };
+    let beta = match solved {
+        Some(Target::DebtToEquity) => held("unlevered beta", c.beta.unlevered, false),
+        _ => held("relevered beta", c.beta.relevered, false),
+    };
+    let structure = match inputs.case.settings.target.debt_to_capital.is_some() {
+        true => held("debt to capital", c.target.debt_to_capital, false),
+        false => held("target D/E", c.target.debt_to_equity, false),
+    };
+    // Solving the size premium holds the others, each named when the case has it.
+    let premiums = match solved {
+        Some(Target::SizePremium) => [
+            held("country premium as applied", p.country_applied, true),
+            held("company-specific premium", p.company_specific, true),
+        ]
+        .into_iter()
+        .filter(|h| h.value != 0.0)
+        .map(|h| (None, h))
+        .collect(),
+        _ => vec![(
+            Some(Target::SizePremium),
+            held("premiums in total", p.total, true),
+        )],
+    };
+    let mut list = vec![
+        (
+            Some(Target::RiskFree),
+            held("risk-free rate", c.risk_free_rate, true),
+        ),
+        (Some(Target::Erp), held("ERP", c.equity_risk_premium, true)),
+        (Some(Target::Beta), beta),
+    ];
+    list.extend(premiums);
+    list.extend([
+        (
+            Some(Target::CostOfDebt),
+            held("pre-tax cost of debt", c.cost_of_debt_pre_tax, true),
+        ),
+        (Some(Target::DebtToEquity), structure),
+        (None, held("tax rate", c.target.tax_rate, true)),
+    ]);
+    (list.into_iter())
+        .filter(|(t, _)| t.is_none() || *t != solved)
+        .map(|(_, h)| h)
+        .collect()
 }
 
 /// How close the WACC at a solution must come to the claim for the claim to count as
@@ -205,14 +289,28 @@ impl Implied {
                 let high = self.peers_highest_debt_to_equity;
                 // A case that gives its target as debt to capital is solved in it.
                 let de = match self.key.as_str() {
-                    "target.debt_to_capital" => value / (1.0 - value),
+                    "target.debt_to_capital" => {
+                        crate::capital::cost::debt_to_equity_from_capital(value)
+                    }
                     _ => value,
+                };
+                // In the unit solved as well (found by review: a debt to capital of 0.433 read
+                // against a D/E of 0.709 looked below it).
+                let also = match self.key.as_str() {
+                    "target.debt_to_capital" => format!(
+                        ", {} as debt to capital",
+                        crate::error::rounded(
+                            crate::capital::cost::debt_to_capital_from_equity(high),
+                            3
+                        )
+                    ),
+                    _ => String::new(),
                 };
                 return (de > high).then(|| {
                     format!(
-                        "a target D/E above every aggregated peer's (the highest is {}): the \
-                         relevered beta extrapolates the formula beyond the leverage the betas \
-                         were measured at",
+                        "a target D/E above every aggregated peer's (the highest is {}{also}): \
+                         the relevered beta extrapolates the formula beyond the leverage the \
+                         betas were measured at",
                         crate::error::rounded(high, 3)
                     )
                 });
@@ -317,7 +415,8 @@ pub fn implied(
     )?;
     // A debt-to-capital case is solved in debt-to-capital, over the same D/E range mapped.
     let (low, high) = if by_capital {
-        (low / (1.0 + low), high / (1.0 + high))
+        let dc = crate::capital::cost::debt_to_capital_from_equity;
+        (dc(low), dc(high))
     } else {
         (low, high)
     };

@@ -27,6 +27,16 @@ pub fn weights_from_debt_to_equity(debt_to_equity: f64) -> (f64, f64) {
     (equity, debt_to_equity * equity)
 }
 
+/// A debt-to-equity ratio from a debt-to-capital ratio: D/E = (D/(D+E)) / (1 − D/(D+E)).
+pub fn debt_to_equity_from_capital(debt_to_capital: f64) -> f64 {
+    debt_to_capital / (1.0 - debt_to_capital)
+}
+
+/// A debt-to-capital ratio from a debt-to-equity ratio: D/(D+E) = (D/E) / (1 + D/E).
+pub fn debt_to_capital_from_equity(debt_to_equity: f64) -> f64 {
+    debt_to_equity / (1.0 + debt_to_equity)
+}
+
 /// The terms of a WACC: each capital component's weight and cost (after tax where deductible).
 /// Preferred equity and leases are 0 when a case has none.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]

@@ -58,7 +58,7 @@ impl CaseFile {
         match target.source {
             TargetSource::Explicit => Some(match (target.debt_to_equity, target.debt_to_capital) {
                 (Some(de), _) => de,
-                (None, Some(dc)) => dc / (1.0 - dc),
+                (None, Some(dc)) => crate::capital::cost::debt_to_equity_from_capital(dc),
                 (None, None) => unreachable!("validate() requires one target ratio"),
             }),
             TargetSource::PeerMedian => None,

@@ -339,7 +339,7 @@ fn check_structure(case: &CaseFile) -> std::result::Result<(), String> {
         .debt_to_capital
         .filter(|&dc| (0.0..1.0).contains(&dc))
     {
-        let de = dc / (1.0 - dc);
+        let de = crate::capital::cost::debt_to_equity_from_capital(dc);
         if de > MAX_DEBT_TO_EQUITY {
             return Err(too_high(
                 format!("target.debt_to_capital = {}", show(dc)),

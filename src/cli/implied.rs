@@ -86,6 +86,21 @@ fn claimed_wacc(args: &Args) -> hurdle::Result<(f64, Option<hurdle::audit::bridg
                 path.display(),
                 percent(wacc, 3)
             );
+            // Found by review: a claim whose components give another WACC than it states was
+            // solved for its stated one without a word.
+            if let Some(stated) = side.stated_wacc.filter(|_| !side.computed) {
+                let gap_bp = (side.wacc - stated) * 1e4;
+                if gap_bp.abs() >= 0.05 {
+                    println!(
+                        "note: the claim's own components give {}, {} bp {} its stated WACC; the \
+                         value solved for reproduces the stated {}",
+                        percent(side.wacc, 3),
+                        fixed(gap_bp.abs(), 1),
+                        if gap_bp > 0.0 { "above" } else { "below" },
+                        percent(stated, 3)
+                    );
+                }
+            }
             Ok((wacc, Some(side)))
         }
         (None, Some(wacc)) => Ok((wacc, None)),
@@ -132,7 +147,45 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
             other => other,
         }
     })?;
-    Ok(print_answer(&r, args.range))
+    let status = print_answer(&r, args.range);
+    print_held(
+        &hurdle::audit::implied::held_inputs(&inputs, &base, Some(target)),
+        "  held at the case's values",
+    );
+    if let Some(side) = claim.as_ref().filter(|c| !c.computed) {
+        print_claims_own(&r, side);
+    }
+    Ok(status)
+}
+
+/// The inputs a solve held, on one line: what the answer rests on besides the claim.
+fn print_held(held: &[hurdle::audit::implied::Held], opening: &str) {
+    let list: Vec<String> = (held.iter())
+        .map(|h| match h.rate {
+            true => format!("{} {}", h.label, percent(h.value, 3)),
+            false => format!("{} {}", h.label, fixed(h.value, 4)),
+        })
+        .collect();
+    println!("{opening}: {}", list.join(", "));
+}
+
+/// The claim's own value of the input solved for, beside the value the case needs: the answer
+/// is the case's input that gives the claim's WACC, not the input the claim used (found by
+/// review: an ERP of 7.26% read as the bank's, which stated 5.50%).
+fn print_claims_own(r: &hurdle::audit::implied::Implied, side: &hurdle::audit::bridge::Side) {
+    let by_capital = r.key == "target.debt_to_capital";
+    let own = match r.target.in_build_up(&side.build_up, by_capital) {
+        Some(value) => format!("{} = {}", r.key, shown(r)(value)),
+        None => format!(
+            "premiums of {} in total",
+            percent(side.build_up.premiums, 3)
+        ),
+    };
+    println!(
+        "  the claim itself states {own}: the value above is the case's input that gives the \
+         claim's WACC with the case's other inputs, not the claim's; `hurdle compare` sets the \
+         two build-ups side by side, input by input"
+    );
 }
 
 /// `--solve all`: each input solved for alone over its default range, one row each.
@@ -147,6 +200,10 @@ fn print_all(
          values:",
         percent(claimed, 3),
         percent(base.cost.wacc, 3)
+    );
+    print_held(
+        &hurdle::audit::implied::held_inputs(inputs, base, None),
+        "the case's values",
     );
     println!(
         "{:<26} {:>10} {:>12} {:>12}  note",
@@ -411,6 +468,13 @@ fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) 
                 show(value),
                 percent(achieved, 6)
             );
+            // Found by review: a debt-to-capital answer was read against the peers' D/E.
+            if r.key == "target.debt_to_capital" {
+                println!(
+                    "  as D/E: {}",
+                    fixed(hurdle::capital::cost::debt_to_equity_from_capital(value), 4)
+                );
+            }
             print_exact(r, value);
             refusals();
             ExitCode::SUCCESS

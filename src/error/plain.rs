@@ -166,8 +166,12 @@ fn text_for_a_number(text: &str, expected: &str, range: Option<(i128, i128)>) ->
     if expected == "f64" && whole_number(text).is_some_and(wide) {
         return too_wide_for_a_number(text.trim());
     }
-    let advice = if text.trim_end().ends_with('%') {
-        "write a rate as a decimal, without the % sign (0.032 for 3.2%)"
+    let percent = text.trim().strip_suffix('%').map(str::trim);
+    let advice = if let Some(figure) = percent {
+        let example = (figure.parse::<f64>().ok()).map_or("0.032 for 3.2%".to_string(), |x| {
+            crate::error::decimal_example(x)
+        });
+        &format!("write a rate as a decimal, without the % sign ({example})")
     } else if text.contains(',') {
         "numbers take a decimal point and no thousands separator (2400.0, 0.0267)"
     } else if let Some(advice) = text.trim().parse::<f64>().ok().map(|value| {

@@ -458,7 +458,11 @@ fn accepted_range(key: &str) -> (f64, f64, bool) {
     match key {
         "debt.cost_pre_tax" => (0.0, 1.0, false),
         "target.debt_to_equity" => (0.0, MAX_DEBT_TO_EQUITY, true),
-        "target.debt_to_capital" => (0.0, MAX_DEBT_TO_EQUITY / (1.0 + MAX_DEBT_TO_EQUITY), true),
+        "target.debt_to_capital" => (
+            0.0,
+            crate::capital::cost::debt_to_capital_from_equity(MAX_DEBT_TO_EQUITY),
+            true,
+        ),
         "relevered beta" => (-5.0, 10.0, true),
         _ => (-0.5, 1.0, false),
     }
@@ -496,8 +500,9 @@ pub fn check_rate_argument(text: &str) -> std::result::Result<f64, String> {
     }
     if !(-0.5..1.0).contains(&value) {
         return Err(format!(
-            "{} is outside [-0.5, 1): rates are decimals (0.091 for 9.1%)",
-            show(value)
+            "{} is outside [-0.5, 1): rates are decimals ({})",
+            show(value),
+            crate::error::decimal_example(value)
         ));
     }
     Ok(value)

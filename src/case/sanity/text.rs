@@ -364,7 +364,7 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
         (
             "claimed.debt_to_capital",
             0.0,
-            most_de / (1.0 + most_de),
+            crate::capital::cost::debt_to_capital_from_equity(most_de),
             true,
         ),
     ];
