@@ -69,8 +69,14 @@ pub fn place(wanted: &[Wanted], rows: usize, bounds: (i32, i32)) -> Vec<Place> {
             .flat_map(|row| [label.side, label.side.other()].map(|side| Place { row, side }))
             .collect();
         let fits = |p: &Place| inside(label, p, bounds) && clear(label, p, &placed);
+        let beside_another = |p: &Place| beside_another(label, p, &placed);
+        let crossed = |p: &Place| crossed(label, p, &placed);
+        // A label beside another's line misleads a reader more than one a dashed line runs
+        // through: it is avoided first.
         let chosen = (candidates.iter())
-            .find(|p| fits(p) && !crossed(label, p, &placed))
+            .find(|p| fits(p) && !crossed(p) && !beside_another(p))
+            .or_else(|| candidates.iter().find(|p| fits(p) && !beside_another(p)))
+            .or_else(|| candidates.iter().find(|p| fits(p) && !crossed(p)))
             .or_else(|| candidates.iter().find(|p| fits(p)))
             .copied()
             .unwrap_or(Place {
@@ -93,6 +99,17 @@ fn clear(label: Wanted, place: &Place, placed: &[(Wanted, Place)]) -> bool {
     placed.iter().all(|(other, at)| {
         let (a, b) = extent(other.x, other.width, at.side);
         at.row != place.row || to + GAP <= a || b + GAP <= from
+    })
+}
+
+/// Whether another line ends right under this label, on its row, or stands between the label
+/// and its own line: the label then reads as that line's (found by review: with the point
+/// estimate 8 px left of the median, "median 7.40%" ended above the point estimate's line).
+fn beside_another(label: Wanted, place: &Place, placed: &[(Wanted, Place)]) -> bool {
+    let (from, to) = extent(label.x, label.width, place.side);
+    let (from, to) = (from.min(label.x), to.max(label.x));
+    (placed.iter()).any(|(other, at)| {
+        at.row == place.row && other.x != label.x && (from..=to).contains(&other.x)
     })
 }
 
@@ -151,7 +168,42 @@ mod tests {
         }
     }
 
-    // Room for every label where the chart wants it: nothing moves.
+    // The demo's chart (found by review): the 5th and 95th percentiles at 264 and 503 px, the
+    // point estimate at 376 and the median 8 px right of it, at 384. No label may stand where a
+    // line other than its own ends right under it or between it and its own line (each line
+    // rises to its label's row), so none reads as another's.
+    #[test]
+    fn no_label_stands_beside_another_line_on_its_row() {
+        let wanted = [
+            (264, 60, 0, Side::Left),
+            (503, 66, 0, Side::Right),
+            (376, 132, 0, Side::Right),
+            (384, 79, 1, Side::Right),
+        ]
+        .map(|(x, width, row, side)| Wanted {
+            x,
+            width,
+            row,
+            side,
+        });
+        let places = place(&wanted, 4, (86, 696));
+        for (w, p) in wanted.iter().zip(&places) {
+            let (from, to) = extent(w.x, w.width, p.side);
+            let (from, to) = (from.min(w.x), to.max(w.x));
+            for (other, q) in wanted.iter().zip(&places) {
+                let beside = q.row == p.row && other.x != w.x && (from..=to).contains(&other.x);
+                assert!(
+                    !beside,
+                    "{w:?} at {p:?} beside the line at {}: {places:?}",
+                    other.x
+                );
+            }
+        }
+    }
+
+    // Room for every label where the chart wants it: nothing moves. (The point estimate stood
+    // at 375 px before 0.17.0, its label then ending 3 px right of the 95th percentile's line,
+    // at 509: a label beside another's line, which now moves; 340 leaves room.)
     #[test]
     fn labels_with_room_stay_where_the_chart_puts_them() {
         let wanted = [
@@ -168,7 +220,7 @@ mod tests {
                 side: Side::Right,
             },
             Wanted {
-                x: 375,
+                x: 340,
                 width: 132,
                 row: 0,
                 side: Side::Right,
