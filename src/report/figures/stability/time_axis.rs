@@ -1,7 +1,11 @@
-//! The time axis of the rolling-beta panels: ticks at the ends of months, quarters, half-years
-//! or years, each labelled with the month ("2025-06") or the year ("2025") it ends, as many as
-//! the panel's width holds with no two labels touching.
+//! The time axis of the rolling-beta panels: ticks at the ends of months, quarters or
+//! half-years, each labelled with the month it ends ("2025-06"), or at the starts of years,
+//! labelled with the year they begin ("2025" on 1 January 2025), as many as the panel's width
+//! holds with no two labels touching.
 //!
+//! A year's tick stands where the year begins, as a reader takes a year on a time axis (found
+//! by review: a tick "2022" on 31 December 2022 placed every move of a beta a year early to
+//! the eye, and the last year of a window ending in September had no tick).
 //! Ticks stand where the windows end: a monthly window ends on the last day of its month, so
 //! the tick labelled "2025-06" stands on the window ending in June 2025 (a tick at a month's
 //! start stood beside the month before's window, which read a month off on a short span).
@@ -56,8 +60,8 @@ pub fn ticks(first: f64, last: f64, pixels_per_year: f64) -> Vec<(f64, String)> 
 }
 
 /// The ends of every `months`-th month (months, quarters, half-years: those ending a calendar
-/// quarter or half) or, from 12 on, the ends of every `months / 12`-th year, inside
-/// `[first, last]`, labelled by the month or the year they end.
+/// quarter or half), labelled by the month they end, or, from 12 on, the starts of every
+/// `months / 12`-th year, labelled by the year they begin, inside `[first, last]`.
 fn period_ends(first: f64, last: f64, months: u32) -> Vec<(f64, String)> {
     let (from, to) = (first.floor() as i32, last.ceil() as i32);
     let ends: Vec<NaiveDate> = match months {
@@ -67,7 +71,7 @@ fn period_ends(first: f64, last: f64, months: u32) -> Vec<(f64, String)> {
             .collect(),
         m => (from..=to)
             .filter(|y| y.rem_euclid((m / 12) as i32) == 0)
-            .filter_map(|y| month_end(y, 12))
+            .filter_map(|y| NaiveDate::from_ymd_opt(y, 1, 1))
             .collect(),
     };
     let format = if months < 12 { "%Y-%m" } else { "%Y" };
@@ -100,8 +104,8 @@ mod tests {
             .collect()
     }
 
-    // The ends of months, quarters and years from the calendar: 30 June, 31 December, 29
-    // February in a leap year.
+    // The ends of months and quarters from the calendar: 30 June, 31 December, 29 February in
+    // a leap year; a year's tick on its first day.
     #[test]
     fn ticks_stand_on_the_last_day_of_their_month() {
         assert_eq!(month_end(2024, 2), NaiveDate::from_ymd_opt(2024, 2, 29));
@@ -116,6 +120,9 @@ mod tests {
             drawn,
             ["2026-04", "2026-05", "2026-06", "2026-07", "2026-08", "2026-09"]
         );
+        let years = super::ticks(at(2021, 9, 30), at(2026, 9, 30), 40.0);
+        assert_eq!(years[0], (at(2022, 1, 1), "2022".to_string()));
+        assert_eq!(years.last(), Some(&(at(2026, 1, 1), "2026".to_string())));
     }
 
     // A label "2024-06" is 7 characters of 11 px at 0.6 em: 46.2 px, so neighbours need 49.2 px
@@ -130,7 +137,8 @@ mod tests {
             labels(first, last, 102.0),
             ["2024-06", "2024-12", "2025-06", "2025-12", "2026-06"]
         );
-        assert_eq!(labels(first, last, 80.0), ["2024", "2025"]);
+        // Years begin on 1 January (before 0.17.0 they stood on 31 December, "2024", "2025").
+        assert_eq!(labels(first, last, 80.0), ["2025", "2026"]);
         let (first, last) = (at(2026, 1, 7), at(2026, 6, 3));
         assert_eq!(labels(first, last, 600.0), ["2026-03"]);
         assert_eq!(
