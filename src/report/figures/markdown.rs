@@ -143,19 +143,38 @@ fn plain(text: &str) -> String {
     out
 }
 
+/// A list, with one level of items nested under an item (an indented `- `, as the memo's
+/// "Figures to check" lists them; found by review: they ran together in one item). A line
+/// indented without a marker continues the item (or nested item) before it.
 fn list(lines: &[&str]) -> String {
-    let mut items: Vec<String> = Vec::new();
+    let mut items: Vec<(String, Vec<String>)> = Vec::new();
     for line in lines {
+        let nested = line.starts_with(' ') && is_item(line.trim_start());
         if is_item(line) {
-            items.push(line[2..].trim().to_string());
-        } else if let Some(last) = items.last_mut() {
-            last.push(' ');
-            last.push_str(line.trim());
+            items.push((line[2..].trim().to_string(), Vec::new()));
+        } else if let Some((text, inner)) = items.last_mut() {
+            let continued = match (nested, inner.last_mut()) {
+                (true, _) => {
+                    inner.push(line.trim_start()[2..].trim().to_string());
+                    continue;
+                }
+                (false, Some(last)) => last,
+                (false, None) => text,
+            };
+            continued.push(' ');
+            continued.push_str(line.trim());
         }
     }
-    let body: String = items
-        .iter()
-        .map(|item| format!("<li>{}</li>", inline(item)))
+    let item = |text: &str| format!("<li>{}</li>", inline(text));
+    let body: String = (items.iter())
+        .map(|(text, inner)| match inner.is_empty() {
+            true => item(text),
+            false => format!(
+                "<li>{}<ul>{}</ul></li>",
+                inline(text),
+                inner.iter().map(|t| item(t)).collect::<String>()
+            ),
+        })
         .collect();
     format!("<ul>{body}</ul>")
 }
@@ -547,6 +566,22 @@ mod tests {
     // The constructs of CommonMark 0.31 / GFM tables that the memo uses, with the HTML those
     // specifications give for them (GFM §4.10 tables: alignment from the delimiter row; escaped
     // pipes inside cells).
+    // A nested list as CommonMark renders it (spec 0.30, "List items", from memory): the
+    // indented items in a list of their own inside the item above, a continuation line joined
+    // to the nested item it follows.
+    #[test]
+    fn nested_items_keep_their_own_list() {
+        let b = blocks("- Figures to check:\n  - one\n    more\n  - two\n- last");
+        assert_eq!(
+            b,
+            [Block::Html(
+                "<ul><li>Figures to check:<ul><li>one more</li><li>two</li></ul></li>\
+                 <li>last</li></ul>"
+                    .into()
+            )]
+        );
+    }
+
     #[test]
     fn converts_the_memo_subset() {
         let md = "# Title\n\nSome **bold** and `a<b` text\ncontinued.\n\n- one\n  more\n- two\n\n\
