@@ -129,7 +129,9 @@ pub fn draw(bridge: &Bridge) -> Result<Figure> {
         };
         [(start, y + 0.15), (bar.end, y + 0.85)]
     };
-    let title = "Bridge to the claimed WACC, input group by input group".to_string();
+    // The bars are the Shapley values, not the table's steps (found by review: the two read
+    // as one under the same labels).
+    let title = "Bridge to the claimed WACC: each input group's Shapley value".to_string();
     let caption = caption(bridge, axes.x.range.start, cut, low);
     let legend = vec![
         (Mark::Swatch(ACCENT), "raises the WACC".to_string()),

@@ -65,13 +65,17 @@ pub fn draw(valuation: &Valuation, (index, drawn_name): (usize, &str)) -> Result
     let name = super::regression_file_name(index, &peer.name);
     let title = format!("{}: regression on the index", peer.name);
     let caption = caption(valuation, peer, index);
+    // Under Dimson or Scholes–Williams the line draws the summed β, which is not the fit to
+    // these same-period points (found by review: it was called the fitted line).
+    let line_label = match peer.estimate.method {
+        BetaMethod::Ols => "fitted line α + β·x",
+        BetaMethod::Dimson => "α + β·x, β the Dimson sum",
+        BetaMethod::ScholesWilliams => "α + β·x, β of Scholes–Williams",
+    };
     let mut legend = vec![
         (Mark::Dot(PRIMARY), format!("period used (N = {})", x.len())),
-        (Mark::Line(ACCENT), "fitted line α + β·x".to_string()),
-        (
-            Mark::Swatch(BAND),
-            "95% band of the fitted line".to_string(),
-        ),
+        (Mark::Line(ACCENT), line_label.to_string()),
+        (Mark::Swatch(BAND), "95% band of the line".to_string()),
     ];
     // Always listed, so every peer's chart has the same legend and plot height.
     legend.push((

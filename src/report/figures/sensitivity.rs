@@ -285,11 +285,24 @@ fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {
             )
         ),
     };
+    // The memo's caution, where the chart is seen alone (found by review: a heat map of WACC
+    // falling with debt went without it).
+    let debt_axis = match [&grid.rows.key, &grid.columns.key]
+        .iter()
+        .any(|k| k.contains("debt_to"))
+    {
+        true => {
+            "Along the debt axis the pre-tax cost of debt stays as the case sets it and does \
+             not rise with leverage, so cells with more debt show a lower WACC than lenders \
+             repricing the debt would give. "
+        }
+        false => "",
+    };
     format!(
         "{metric} when {} (rows) and {} (columns) take the values shown, everything else as in \
          the case; each cell is a full rerun, as a run of the case with those two values would compute it. Darker \
-         cells are higher. {own}{refused}Figures: result.json sensitivity (rows, columns, \
-         cells, base_cell{}).",
+         cells are higher. {debt_axis}{own}{refused}Figures: result.json sensitivity (rows, \
+         columns, cells, base_cell{}).",
         grid.rows.key,
         grid.columns.key,
         if grid.refused.is_empty() {

@@ -509,10 +509,11 @@ fn caption(valuation: &Valuation, window: u32, step: u32, shared: bool) -> Strin
         "Each panel: the peer's rolling β ({} estimator with {} standard errors, as for the \
          whole window) over windows of {} {period}s ending every {}, with each window's 95% \
          interval β ± t(0.975, N − k)·SE as the band; the dashed line is the peer's β over the whole window. The x axis is \
-         the window's last {period}, marked at the ends of months, quarters, half-years or years \
-         (every 2, 5, 10 or more years on a long span), each tick labelled with the month or year \
-         it ends, as finely as the labels fit; {scale}.{gaps} Figures: the rolling \
-         betas (hurdle rolling writes every window to rolling.csv) and result.json peers[].beta \
+         the window's last {period}, marked at the ends of months, quarters or half-years, each \
+         tick labelled with the month it ends, or at the starts of years (every 2, 5, 10 or more \
+         years on a long span), each labelled with the year it begins, as finely as the labels \
+         fit; {scale}.{gaps} Figures: the rolling \
+         betas (hurdle run and hurdle rolling write every window to rolling.csv) and result.json peers[].beta \
          and peers[].stability.",
         super::method_name(valuation.estimator.method),
         super::std_errors_name(valuation.estimator.std_errors),
