@@ -230,7 +230,7 @@ pub(crate) fn finish(method: BetaMethod, fit: &OlsFit, parts: Parts) -> BetaEsti
         .filter(|(_, r)| r.abs() > 3.0)
         .map(|(row, _)| row)
         .collect();
-    let t = stats::student_t_quantile(0.975, df);
+    let (beta_ci_low, beta_ci_high) = stats::interval_95(beta, beta_std_error, df);
     let alpha_t_stat = alpha / alpha_std_error;
     let beta_t_stat = beta / beta_std_error;
     BetaEstimate {
@@ -245,8 +245,8 @@ pub(crate) fn finish(method: BetaMethod, fit: &OlsFit, parts: Parts) -> BetaEsti
         beta_std_error,
         beta_t_stat,
         beta_p_value: stats::student_t_two_sided_p(beta_t_stat, df),
-        beta_ci_low: beta - t * beta_std_error,
-        beta_ci_high: beta + t * beta_std_error,
+        beta_ci_low,
+        beta_ci_high,
         r_squared: fit.r_squared,
         adjusted_r_squared: fit.adjusted_r_squared,
         residual_std_error: fit.residual_std_error,

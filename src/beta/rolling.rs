@@ -231,14 +231,14 @@ pub fn rolling_betas(
         };
         if let Some((beta, std_error)) = fit {
             let df = n - regressors.len() - 1;
-            let half = crate::stats::student_t_quantile(0.975, df as f64) * std_error;
+            let (band_low, band_high) = crate::stats::interval_95(beta, std_error, df as f64);
             points.push(RollingPoint {
                 window_end: end,
                 beta,
                 std_error,
                 observations: n,
-                band_low: beta - half,
-                band_high: beta + half,
+                band_low,
+                band_high,
                 degrees_of_freedom: df,
             });
         }

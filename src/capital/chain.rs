@@ -404,11 +404,16 @@ fn terms_with(
 ) -> PeerTerms {
     let cost_of_debt_used = CostOfDebtUse::of(spec, peer);
     PeerTerms {
-        debt_to_equity: spec.debt_measure.debt(peer.debt, peer.cash) / peer.equity_value,
+        debt_to_equity: leverage::firm_debt_to_equity(
+            spec.debt_measure,
+            peer.equity_value,
+            peer.debt,
+            peer.cash,
+        ),
         debt_beta,
         cost_of_debt,
         cost_of_debt_used,
-        operating_share: 1.0 - peer.cash / (peer.equity_value + peer.debt),
+        operating_share: leverage::operating_share(peer.equity_value, peer.debt, peer.cash),
     }
 }
 
@@ -580,8 +585,12 @@ fn check_debt_betas(
         return Ok(());
     }
     for (i, (terms, adjusted)) in common.peers.iter().zip(&common.adjusted).enumerate() {
-        if terms.debt_to_equity != 0.0 && terms.debt_beta != 0.0 && terms.debt_beta > adjusted.used
-        {
+        if leverage::debt_beta_above_equity_beta(
+            (formula, spec.debt_beta_source),
+            terms.debt_to_equity,
+            terms.debt_beta,
+            adjusted.used,
+        ) {
             return Err(ChainError::PeerDebtBeta(i, terms.debt_beta, adjusted.used));
         }
     }

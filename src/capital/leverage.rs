@@ -190,6 +190,46 @@ impl DebtMeasure {
     }
 }
 
+/// A firm's D/E under `measure`: its debt (less its cash, for net debt) over its equity value.
+/// The one rule for a case's peers and a universe's securities.
+pub fn firm_debt_to_equity(measure: DebtMeasure, equity: f64, debt: f64, cash: f64) -> f64 {
+    measure.debt(debt, cash) / equity
+}
+
+/// The share of a firm's value (equity plus gross debt) that is its operations: 1 − cash /
+/// (equity + debt).
+pub fn operating_share(equity: f64, debt: f64, cash: f64) -> f64 {
+    1.0 - cash / (equity + debt)
+}
+
+/// The beta of the operations, βU / (1 − cash / (equity + debt)), from the unlevered beta at
+/// gross debt: the firm's value is its operations plus its cash, and the unlevered beta their
+/// value-weighted mix; with cash at a beta of zero, dividing by the operations' share leaves
+/// their beta. (Under net debt the unlevered beta has already netted the cash against the
+/// debt, and dividing it by the share as well would count the cash twice: the caller unlevers
+/// at gross debt for this.)
+pub fn operations_beta(gross_unlevered: f64, operating_share: f64) -> f64 {
+    gross_unlevered / operating_share
+}
+
+/// Whether a firm's debt beta is above its equity beta, which the formula would have to take
+/// as an input error: debt cannot be riskier than the equity it ranks ahead of. Not under
+/// Hamada (no debt beta), riskless debt (`None`, or a debt beta of 0, the same model written
+/// two ways), or a D/E of 0 (no debt for the debt beta to describe). The one rule for a case's
+/// peers (which it refuses) and a universe's securities (left without an unlevered beta).
+pub fn debt_beta_above_equity_beta(
+    (formula, source): (Formula, DebtBetaSource),
+    debt_to_equity: f64,
+    debt_beta: f64,
+    equity_beta: f64,
+) -> bool {
+    formula != Formula::Hamada
+        && source != DebtBetaSource::None
+        && debt_to_equity != 0.0
+        && debt_beta != 0.0
+        && debt_beta > equity_beta
+}
+
 /// `leverage.debt_beta_source`: how the beta of debt is set.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]

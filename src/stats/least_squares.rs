@@ -61,15 +61,6 @@ impl OlsFit {
     }
 }
 
-impl OlsFit {
-    /// The two-sided confidence interval of coefficient `j` at `level` (e.g. 0.95).
-    pub fn confidence_interval(&self, j: usize, level: f64) -> (f64, f64) {
-        let t = stats::student_t_quantile(0.5 + level / 2.0, self.degrees_of_freedom as f64);
-        let half = t * self.std_errors[j];
-        (self.coefficients[j] - half, self.coefficients[j] + half)
-    }
-}
-
 /// Checks the shapes and returns each regressor column's norm (the equilibration scale): as
 /// many responses as rows, a degree of freedom left, no column all zeros or not finite.
 fn column_norms(design: &DMatrix<f64>, responses: usize) -> Result<Vec<f64>> {

@@ -16,6 +16,14 @@ pub mod random;
 use serde::{Deserialize, Serialize};
 use statrs::distribution::{Continuous, ContinuousCDF, StudentsT};
 
+/// The 95% confidence interval estimate ± t(0.975, df)·SE, the textbook interval of a
+/// regression coefficient: the one place a beta's interval is computed (a whole window's and
+/// each rolling window's).
+pub fn interval_95(estimate: f64, std_error: f64, degrees_of_freedom: f64) -> (f64, f64) {
+    let half = student_t_quantile(0.975, degrees_of_freedom) * std_error;
+    (estimate - half, estimate + half)
+}
+
 /// Quantile of Student's t with `df` degrees of freedom at probability `p` in (0, 1).
 ///
 /// Remembered per thread for the last few (p, df) pairs: a universe of thousands of securities

@@ -13,7 +13,10 @@ use super::estimate::{NotEstimated, SecurityEstimate};
 use crate::beta::diagnostics::{LagResponse, PeerFlag};
 use crate::beta::rolling::Stability;
 use crate::beta::{vasicek, AdjustedBeta, BetaEstimate};
-use crate::capital::leverage::{CapitalStructure, DebtBetaSource, DebtMeasure, DebtTerms, Formula};
+use crate::capital::leverage::{
+    self, debt_beta_above_equity_beta, firm_debt_to_equity, CapitalStructure, DebtBetaSource,
+    DebtMeasure, DebtTerms,
+};
 use crate::case::sanity::MAX_DEBT_TO_EQUITY;
 use crate::case::LeverageSettings;
 use crate::io::series::SeriesView;
@@ -296,8 +299,12 @@ fn unlever(
     debt_beta: f64,
 ) -> Unlevering {
     let debt_to_equity = match (leverage.debt_measure, equity, debt, cash) {
-        (DebtMeasure::Gross, Some(e), Some(d), _) => Some(d / e),
-        (DebtMeasure::Net, Some(e), Some(d), Some(c)) => Some((d - c) / e),
+        (DebtMeasure::Gross, Some(e), Some(d), _) => {
+            Some(firm_debt_to_equity(DebtMeasure::Gross, e, d, 0.0))
+        }
+        (DebtMeasure::Net, Some(e), Some(d), Some(c)) => {
+            Some(firm_debt_to_equity(DebtMeasure::Net, e, d, c))
+        }
         _ => None,
     };
     // A net D/E at or below −1, or a D/E above the case's limit (debt over 10/11 of capital,
@@ -310,11 +317,14 @@ fn unlever(
         // beta, when a debt beta is given, and a D/E that lets the debt beta count: without a
         // given debt beta, or with a given 0 (riskless debt alike; found by review), a negative
         // equity beta is unlevered as Hamada would.
-        _ if leverage.formula != Formula::Hamada
-            && leverage.debt_beta_source != DebtBetaSource::None
-            && de != 0.0
-            && debt_beta != 0.0
-            && beta_used.is_some_and(|b| debt_beta > b) =>
+        _ if beta_used.is_some_and(|b| {
+            debt_beta_above_equity_beta(
+                (leverage.formula, leverage.debt_beta_source),
+                de,
+                debt_beta,
+                b,
+            )
+        }) =>
         {
             Some(DEBT_BETA_ABOVE_EQUITY_BETA)
         }
@@ -338,7 +348,7 @@ fn unlever(
     };
     let unlevered = debt_to_equity.and_then(unlever_at);
     let operating_share = match (equity, debt, cash) {
-        (Some(e), Some(d), Some(c)) => Some(1.0 - c / (e + d)),
+        (Some(e), Some(d), Some(c)) => Some(leverage::operating_share(e, d, c)),
         _ => None,
     };
     // Cash at or above the firm's value leaves no operations to take a beta of.
@@ -352,11 +362,13 @@ fn unlever(
     // count the cash twice.
     let gross_unlevered = match (leverage.debt_measure, equity, debt) {
         (DebtMeasure::Gross, ..) => unlevered,
-        (DebtMeasure::Net, Some(e), Some(d)) => unlever_at(d / e),
+        (DebtMeasure::Net, Some(e), Some(d)) => {
+            unlever_at(firm_debt_to_equity(DebtMeasure::Gross, e, d, 0.0))
+        }
         (DebtMeasure::Net, ..) => None,
     };
     let operations = match (gross_unlevered, operating_share) {
-        (Some(u), Some(s)) if s > 0.0 => Some(u / s),
+        (Some(u), Some(s)) if s > 0.0 => Some(leverage::operations_beta(u, s)),
         _ => None,
     };
     Unlevering {
@@ -371,6 +383,7 @@ fn unlever(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::capital::leverage::Formula;
 
     /// `unlever` of a beta of 1.2 at a tax rate of 30%.
     fn at(

@@ -329,6 +329,7 @@ pub(super) fn convert_results(
     settings: &crate::case::CaseFile,
     chain: &crate::capital::chain::Chain,
 ) -> CurrencyConversion {
+    use crate::capital::cost::{after_tax_cost_of_debt, wacc, WaccTerms};
     use crate::capital::currency::{convert_nominal, nominal_to_real};
     let (from, to) = (conversion.inflation_case, conversion.inflation_output);
     let chosen = chain.outcome();
@@ -336,10 +337,17 @@ pub(super) fn convert_results(
     let (w, other, tax) = (&chain.weights, &chain.other, settings.target.tax_rate);
     let cost_of_equity = carried(chosen.cost_of_equity);
     let cost_of_debt_pre_tax = carried(chain.cost_of_debt.pre_tax);
-    let wacc_borrowing_locally = w.equity * cost_of_equity
-        + w.debt * cost_of_debt_pre_tax * (1.0 - tax)
-        + w.preferred * carried(other.preferred_cost)
-        + w.leases * carried(other.lease_cost_pre_tax) * (1.0 - tax);
+    // The one WACC formula, over the carried costs (found by review: it was written out here).
+    let wacc_borrowing_locally = wacc(&WaccTerms {
+        equity_weight: w.equity,
+        cost_of_equity,
+        debt_weight: w.debt,
+        cost_of_debt_after_tax: after_tax_cost_of_debt(cost_of_debt_pre_tax, tax),
+        preferred_weight: w.preferred,
+        preferred_cost: carried(other.preferred_cost),
+        lease_weight: w.leases,
+        lease_cost_after_tax: after_tax_cost_of_debt(carried(other.lease_cost_pre_tax), tax),
+    });
     CurrencyConversion {
         from: settings.case.currency.clone(),
         to: conversion.currency.clone(),

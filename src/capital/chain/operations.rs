@@ -4,13 +4,6 @@
 
 use super::{unlever, AdjustedBeta, CapitalSpec, DebtMeasure, Formula, PeerCapital, PeerTerms};
 
-/// The beta of the operations, βU / (1 − cash / (equity + debt)): the firm's value is its
-/// operations plus its cash, and the unlevered beta their value-weighted mix; with cash at a beta
-/// of zero, dividing by the operations' share of the value leaves their beta. Uses gross debt.
-fn operations_beta(unlevered: f64, terms: &PeerTerms) -> f64 {
-    unlevered / terms.operating_share
-}
-
 /// One peer's beta of the operations, always from the unlevered beta at gross debt
 /// (`unlevered` is the peer's unlevered beta under the spec's debt measure): under net debt the
 /// unlevered beta has already netted the cash against the debt (as negative debt, at the
@@ -27,13 +20,18 @@ pub(super) fn peer_operations_beta(
         DebtMeasure::Gross => unlevered,
         DebtMeasure::Net => {
             let gross_terms = PeerTerms {
-                debt_to_equity: peer.debt / peer.equity_value,
+                debt_to_equity: super::leverage::firm_debt_to_equity(
+                    DebtMeasure::Gross,
+                    peer.equity_value,
+                    peer.debt,
+                    peer.cash,
+                ),
                 ..*terms
             };
             unlever(formula, peer, adjusted, &gross_terms)
         }
     };
-    operations_beta(gross, terms)
+    super::leverage::operations_beta(gross, terms.operating_share)
 }
 
 /// [`peer_operations_beta`] for every peer.
