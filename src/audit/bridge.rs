@@ -322,6 +322,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         computed: false,
         as_of: claimed.as_of.map(|d| d.to_string()),
         currency: claimed.currency,
+        debt_to_capital: claimed.debt_to_capital,
     };
     Ok((side, None))
 }
@@ -353,8 +354,32 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
                 crate::error::rounded(w * 100.0, 2)
             )
         });
+    // Found by review: a bank's "D/V 30%" beside 10% preferred means 30% of all capital, which
+    // the claim's key reads as 30% of debt plus common equity.
+    let other = b.preferred_weight + b.lease_weight;
+    let of_capital = (side.debt_to_capital.filter(|_| other > 0.0)).map(|dc| {
+        // D/E when debt is dc of all capital: E = 1 − dc − other.
+        let equity = 1.0 - dc - other;
+        let instead = match equity > 0.0 {
+            true => format!(
+                "write debt_to_equity = {} instead",
+                crate::error::rounded(dc / equity, 4)
+            ),
+            false => "that leaves no common equity".to_string(),
+        };
+        format!(
+            "Check: debt_to_capital = {} is read as debt over debt and common equity, D/(D + E), \
+             so with preferred equity and leases at {}% of capital, debt is {}% of all capital; \
+             if the claim means {}% of all capital, {instead}.",
+            crate::error::compact(dc),
+            crate::error::rounded(other * 100.0, 1),
+            crate::error::rounded(b.debt_weight * 100.0, 1),
+            crate::error::rounded(dc * 100.0, 1),
+        )
+    });
     (crate::valuation::plausibility(&figures).into_iter())
         .chain(stated)
+        .chain(of_capital)
         .map(|note| {
             let rest = note.strip_prefix("Check: ").unwrap_or(&note);
             format!("Check: in the claimed build-up \"{}\", {rest}", side.label)
@@ -551,6 +576,7 @@ mod tests {
             computed: false,
             as_of: None,
             currency: None,
+            debt_to_capital: None,
         }
     }
 

@@ -283,38 +283,7 @@ impl Implied {
             Target::RiskFree => USUAL_MAX_RISK_FREE,
             Target::CostOfDebt => USUAL_MAX_COST,
             Target::Beta => 3.0,
-            // The run's caution on a case's target above every aggregated peer's D/E (found by
-            // review: a solved D/E of 6.1 against peers of 0.1 to 0.7 went without it).
-            Target::DebtToEquity => {
-                let high = self.peers_highest_debt_to_equity;
-                // A case that gives its target as debt to capital is solved in it.
-                let de = match self.key.as_str() {
-                    "target.debt_to_capital" => {
-                        crate::capital::cost::debt_to_equity_from_capital(value)
-                    }
-                    _ => value,
-                };
-                // In the unit solved as well (found by review: a debt to capital of 0.433 read
-                // against a D/E of 0.709 looked below it).
-                let also = match self.key.as_str() {
-                    "target.debt_to_capital" => format!(
-                        ", {} as debt to capital",
-                        crate::error::rounded(
-                            crate::capital::cost::debt_to_capital_from_equity(high),
-                            3
-                        )
-                    ),
-                    _ => String::new(),
-                };
-                return (de > high).then(|| {
-                    format!(
-                        "a target D/E above every aggregated peer's (the highest is {}{also}): \
-                         the relevered beta extrapolates the formula beyond the leverage the \
-                         betas were measured at",
-                        crate::error::rounded(high, 3)
-                    )
-                });
-            }
+            Target::DebtToEquity => return self.structure_caution(value),
         };
         let what = match self.target {
             Target::Erp => "an equity risk premium",
@@ -363,6 +332,35 @@ impl Implied {
         }
     }
 
+    /// The caution on a solved target above every aggregated peer's D/E, as the run gives it
+    /// for a case's target (found by review: a solved D/E of 6.1 against peers of 0.1 to 0.7
+    /// went without it).
+    fn structure_caution(&self, value: f64) -> Option<String> {
+        let high = self.peers_highest_debt_to_equity;
+        // A case that gives its target as debt to capital is solved in it.
+        let de = match self.key.as_str() {
+            "target.debt_to_capital" => crate::capital::cost::debt_to_equity_from_capital(value),
+            _ => value,
+        };
+        // In the unit solved as well (found by review: a debt to capital of 0.433 read
+        // against a D/E of 0.709 looked below it).
+        let also = match self.key.as_str() {
+            "target.debt_to_capital" => format!(
+                ", {} as debt to capital",
+                crate::error::rounded(crate::capital::cost::debt_to_capital_from_equity(high), 3)
+            ),
+            _ => String::new(),
+        };
+        (de > high).then(|| {
+            format!(
+                "a target D/E above every aggregated peer's (the highest is {}{also}): \
+                 the relevered beta extrapolates the formula beyond the leverage the \
+                 betas were measured at",
+                crate::error::rounded(high, 3)
+            )
+        })
+    }
+
     /// Whether the solution's WACC equals the claim (within [`REPRODUCED`]); `false` when no
     /// value was found or the WACC jumps across the claim at the value found.
     pub fn reproduces(&self) -> bool {
@@ -404,22 +402,7 @@ pub fn implied(
     let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = key_and_base_value(target, by_capital, base);
-    crate::valuation::sanity::check_search_range(
-        if by_capital {
-            "target.debt_to_equity"
-        } else {
-            key
-        },
-        low,
-        high,
-    )?;
-    // A debt-to-capital case is solved in debt-to-capital, over the same D/E range mapped.
-    let (low, high) = if by_capital {
-        let dc = crate::capital::cost::debt_to_capital_from_equity;
-        (dc(low), dc(high))
-    } else {
-        (low, high)
-    };
+    let (low, high) = in_key_units((low, high), key, by_capital)?;
     let build_up = Side::from_valuation("base", base).build_up;
     // A country premium scaled by beta moves with the beta solved for (found by review: such a
     // case was refused); the other premiums stay as the case has them.
@@ -471,6 +454,22 @@ pub fn implied(
         unlevered_equivalent: value
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
+    })
+}
+
+/// The search range checked against what the key accepts and, for a debt-to-capital case,
+/// which is solved in debt-to-capital, the D/E range mapped to it.
+fn in_key_units((low, high): (f64, f64), key: &str, by_capital: bool) -> Result<(f64, f64)> {
+    let checked = if by_capital {
+        "target.debt_to_equity"
+    } else {
+        key
+    };
+    crate::valuation::sanity::check_search_range(checked, low, high)?;
+    let dc = crate::capital::cost::debt_to_capital_from_equity;
+    Ok(match by_capital {
+        true => (dc(low), dc(high)),
+        false => (low, high),
     })
 }
 

@@ -12,7 +12,7 @@
 //! Cholesky factor, z standard normal and wᵢ a chi-square of the peer's νᵢ degrees of freedom, so
 //! each beta follows Student's t as its confidence interval does. Each draw optionally draws the ERP and the risk-free rate uniformly from
 //! given ranges and reruns adjustment, unlevering, aggregation, relevering, cost of debt, CAPM and
-//! WACC through [`chain::wacc_only`], the case's own formula. The draws are seeded, so the same
+//! WACC through [`chain::wacc_with`], the case's own formula. The draws are seeded, so the same
 //! case gives the same percentiles everywhere.
 //!
 //! What these intervals leave out: the choice of index, window, frequency and method (see

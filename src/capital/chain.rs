@@ -4,7 +4,8 @@
 //! for the memo's comparison.
 //!
 //! The one path for these steps: the case pipeline, the sensitivity grid, `implied`, the bridge
-//! and each Monte Carlo draw ([`wacc_only`], which computes just the case's formula) all come
+//! and each Monte Carlo draw ([`wacc_with`], which computes just the case's formula in buffers
+//! the draws reuse; [`wacc_only`] is the same without them) all come
 //! through the functions below, so a figure has one formula wherever it appears.
 
 use serde::Serialize;
@@ -474,7 +475,7 @@ fn included_values(peers: &[PeerCapital], values: &[f64]) -> (Vec<f64>, Vec<f64>
 
 /// The dispersion and every location statistic of one figure per peer over the included peers:
 /// how the unlevered betas are aggregated (the peer-median target D/E is
-/// [`peer_median_debt_to_equity`], the same median by `stats::quantile_sorted`).
+/// [`peer_median_debt_to_equity`], the same median by `stats::location_in`).
 fn aggregate(
     peers: &[PeerCapital],
     values: &[f64],

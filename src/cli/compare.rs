@@ -108,56 +108,70 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
 /// components before and after them, the total of the stated WACCs' gap, and the note on the
 /// steps' order.
 fn bridge_table(b: &Bridge) -> String {
-    let mut out = String::new();
-    out.push_str(&format!(
-        "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
-        "input group", "from", "to", "WACC after", "step", "Shapley"
-    ));
+    let mut rows: Vec<[String; 6]> =
+        vec![["input group", "from", "to", "WACC after", "step", "Shapley"].map(str::to_string)];
     // A claim's stated WACC beyond its components, first for the starting side and last for
     // the other, as bridge.csv lists them, so the total is the gap between the stated WACCs
     // (found by review: the total was the components' gap alone).
-    let unexplained = |out: &mut String, wacc_after: f64, gap: f64| {
-        out.push_str(&format!(
-            "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
-            "stated, unexplained",
-            "",
-            "",
-            percent(wacc_after, 3),
-            basis_points(gap),
-            basis_points(gap)
-        ));
+    let unexplained = |wacc_after: f64, gap: f64| {
+        let name = "stated, unexplained".to_string();
+        let (after, gap) = (percent(wacc_after, 3), basis_points(gap));
+        [name, String::new(), String::new(), after, gap.clone(), gap]
     };
     if let Some(gap) = b.unexplained_from.filter(|g| *g != 0.0) {
-        unexplained(&mut out, b.from.wacc, -gap);
+        rows.push(unexplained(b.from.wacc, -gap));
     }
     for s in &b.steps {
-        let shown = |x: f64| match s.group {
-            Group::Beta => fixed(x, 3),
-            Group::Weights => format!("E {}", percent(x, 1)),
-            _ => percent(x, 2),
+        let shown = |side: &hurdle::audit::bridge::Side| {
+            let (u, x) = (&side.build_up, s.group.figure(&side.build_up));
+            match s.group {
+                Group::Beta => fixed(x, 3),
+                Group::Weights => hurdle::report::format::capital_weights(
+                    u.equity_weight,
+                    u.debt_weight,
+                    u.preferred_weight,
+                    u.lease_weight,
+                ),
+                _ => percent(x, 2),
+            }
         };
-        out.push_str(&format!(
-            "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
-            hurdle::report::format::label(&s.group),
-            shown(s.group.figure(&b.from.build_up)),
-            shown(s.group.figure(&b.to.build_up)),
+        rows.push([
+            hurdle::report::format::label(&s.group).to_string(),
+            shown(&b.from),
+            shown(&b.to),
             percent(s.wacc_after, 3),
             basis_points(s.contribution),
-            basis_points(s.shapley)
-        ));
+            basis_points(s.shapley),
+        ]);
     }
     if let Some(gap) = b.unexplained.filter(|g| *g != 0.0) {
-        unexplained(&mut out, b.to.stated_wacc.unwrap_or(b.to.wacc), gap);
+        rows.push(unexplained(b.to.stated_wacc.unwrap_or(b.to.wacc), gap));
     }
-    out.push_str(&format!(
-        "{:<22} {:>10} {:>10} {:>12} {:>10} {:>10}\n",
-        "total",
-        "",
-        "",
-        "",
-        basis_points(b.stated_difference),
-        basis_points(b.stated_difference)
-    ));
+    let total = basis_points(b.stated_difference);
+    rows.push([
+        "total".into(),
+        String::new(),
+        String::new(),
+        String::new(),
+        total.clone(),
+        total,
+    ]);
+    // The sides' columns as wide as their widest cell (the weights list each component).
+    let width = |column: usize| {
+        (rows.iter())
+            .map(|r| r[column].chars().count())
+            .max()
+            .unwrap_or(0)
+            .max(10)
+    };
+    let (from, to) = (width(1), width(2));
+    let mut out = String::new();
+    for r in &rows {
+        out.push_str(&format!(
+            "{:<22} {:>from$} {:>to$} {:>12} {:>10} {:>10}\n",
+            r[0], r[1], r[2], r[3], r[4], r[5]
+        ));
+    }
     // The steps are taken one after another in the order listed, so each depends on the ones
     // before it; the Shapley value averages a group's step over every order (found by review:
     // the two columns stood side by side unexplained).

@@ -1,4 +1,5 @@
-//! The command line: parse arguments, call the library, print. Nothing here computes a figure.
+//! The command line: parse arguments, call the library, print. Nothing here computes a figure
+//! (the few decisions left here, which notes to print, are wording, not figures).
 //!
 //! One file per subcommand, each opening with its usage; add a command by adding a file and an
 //! arm in [`Command`] and [`run`].

@@ -276,6 +276,19 @@ pub fn group_title(key: String) -> String {
         .map_or(key, |g| g.title().to_string())
 }
 
+/// A build-up's capital weights as the bridge shows them: equity and debt, then preferred
+/// equity and leases when the side holds them (`E 64.3% · D 21.4% · P 14.3%`; found by review:
+/// the equity weight alone hid a change of the preferred weight).
+pub fn capital_weights(equity: f64, debt: f64, preferred: f64, leases: f64) -> String {
+    let mut out = format!("E {} · D {}", percent(equity, 1), percent(debt, 1));
+    for (letter, weight) in [("P", preferred), ("L", leases)] {
+        if weight > 0.0 {
+            out.push_str(&format!(" · {letter} {}", percent(weight, 1)));
+        }
+    }
+    out
+}
+
 /// A number with a fixed number of decimals; `-0.000` is written `0.000`.
 pub fn fixed(value: f64, decimals: usize) -> String {
     rounded(value, decimals)

@@ -1,7 +1,8 @@
 //! `memo.md`: the reviewer's memo, rendered by minijinja from a template.
 //!
 //! The template sees the [`Valuation`] as `v` and the charts of the run as `figures` (see
-//! [`crate::report::figures::Index`]), and may only format them: the filters `pct`, `bp` and `num` call
+//! [`crate::report::figures::Index`]), and may only format them: its filters (`pct`, `bp`,
+//! `num`, `exact`, `exact_pct`, `cell`, `group`, `axis`, `plain`, `prose`, `code`) call
 //! [`crate::report::format`], and undefined names are errors (strict mode), so a typo in a
 //! user's template fails loudly instead of printing an empty cell.
 
@@ -76,6 +77,24 @@ impl Memo {
 
 /// A figure a template writes, refused when it is not finite: the outputs never hold `inf` or
 /// `NaN` (found by review: a template could compute one, `{{ v.wacc * 1e308 * 100 }}`).
+/// A bridge side's build-up (`b.from.build_up`) as its capital weights
+/// ([`format::capital_weights`]); a weight the build-up does not write is 0.
+fn weights(build_up: Value) -> Filtered {
+    let weight = |key: &str| -> std::result::Result<f64, minijinja::Error> {
+        let value = build_up.get_attr(key)?;
+        match value.is_undefined() || value.is_none() {
+            true => Ok(0.0),
+            false => finite(f64::try_from(value)?),
+        }
+    };
+    Ok(format::capital_weights(
+        weight("equity_weight")?,
+        weight("debt_weight")?,
+        weight("preferred_weight")?,
+        weight("lease_weight")?,
+    ))
+}
+
 fn finite(value: f64) -> std::result::Result<f64, minijinja::Error> {
     match value.is_finite() {
         true => Ok(value),
@@ -155,6 +174,7 @@ impl Render for Memo {
         env.add_filter("plain", format::plain_text);
         env.add_filter("prose", format::prose);
         env.add_filter("code", format::code_span);
+        env.add_filter("weights", weights);
         env.add_template_owned(self.name.clone(), self.source.clone())
             .map_err(|e| self.template_error(&e))?;
         let template = env

@@ -4,7 +4,9 @@
 //! Each row is built whole once every estimate is known (a Vasicek prior needs the whole
 //! cross-section). A figure that needs a missing attribute is left empty and the row says what
 //! is missing; nothing is guessed. Unlevering uses the security's own D/E and tax rate with the
-//! formula of `[leverage]`, exactly as a case unlevers a peer.
+//! formula of `[leverage]`, through the rules a case's chain uses for a peer
+//! (`capital::leverage`: the D/E under the debt measure, the operating share, the beta of the
+//! operations and the debt beta held against the equity beta).
 
 use crate::case::sanity::prices::PricePatterns;
 use serde::Serialize;
@@ -288,6 +290,37 @@ pub const UNLEVERING_ISSUES: [(&str, &str); 4] = [
     ),
 ];
 
+/// Why a security's beta cannot be unlevered at `de`, if it cannot. A net D/E at or below −1,
+/// or a D/E above the case's limit (debt over 10/11 of capital, where equity is an option on
+/// distressed assets): no leverage formula holds there, and the case refuses such a peer.
+fn unlevering_issue(
+    de: f64,
+    beta_used: Option<f64>,
+    leverage: &LeverageSettings,
+    debt_beta: f64,
+) -> Option<&'static str> {
+    match de {
+        _ if de <= -1.0 => Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY),
+        _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
+        // The case's rule (capital::chain::check_debt_betas), for the formulas that take a debt
+        // beta, when a debt beta is given, and a D/E that lets the debt beta count: without a
+        // given debt beta, or with a given 0 (riskless debt alike; found by review), a negative
+        // equity beta is unlevered as Hamada would.
+        _ if beta_used.is_some_and(|b| {
+            debt_beta_above_equity_beta(
+                (leverage.formula, leverage.debt_beta_source),
+                de,
+                debt_beta,
+                b,
+            )
+        }) =>
+        {
+            Some(DEBT_BETA_ABOVE_EQUITY_BETA)
+        }
+        _ => None,
+    }
+}
+
 /// D/E, the unlevered beta and the beta of the operations, as a case computes them for a peer.
 fn unlever(
     beta_used: Option<f64>,
@@ -307,29 +340,7 @@ fn unlever(
         }
         _ => None,
     };
-    // A net D/E at or below −1, or a D/E above the case's limit (debt over 10/11 of capital,
-    // where equity is an option on distressed assets), cannot be unlevered: no leverage formula
-    // holds there, and the case refuses such a peer.
-    let issue = debt_to_equity.and_then(|de| match de {
-        _ if de <= -1.0 => Some(NET_DEBT_AT_OR_BELOW_MINUS_EQUITY),
-        _ if de > MAX_DEBT_TO_EQUITY => Some(DEBT_TO_EQUITY_ABOVE_LIMIT),
-        // The case's rule (capital::chain::check_debt_betas), for the formulas that take a debt
-        // beta, when a debt beta is given, and a D/E that lets the debt beta count: without a
-        // given debt beta, or with a given 0 (riskless debt alike; found by review), a negative
-        // equity beta is unlevered as Hamada would.
-        _ if beta_used.is_some_and(|b| {
-            debt_beta_above_equity_beta(
-                (leverage.formula, leverage.debt_beta_source),
-                de,
-                debt_beta,
-                b,
-            )
-        }) =>
-        {
-            Some(DEBT_BETA_ABOVE_EQUITY_BETA)
-        }
-        _ => None,
-    });
+    let issue = debt_to_equity.and_then(|de| unlevering_issue(de, beta_used, leverage, debt_beta));
     // Harris–Pringle has no tax term: a missing tax rate does not stop it (the 0 is never read).
     let tax = tax.or((!leverage.formula.uses_tax_rate()).then_some(0.0));
     let unlever_at = |debt_to_equity: f64| match (beta_used, tax, issue) {

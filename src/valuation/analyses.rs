@@ -379,6 +379,10 @@ pub struct Side {
     /// then), a case's `case.currency` for the notes only.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub currency: Option<String>,
+    /// A claim's `debt_to_capital` as it gives it, read as D/(D + E) (its notes say so when
+    /// the claim also holds preferred equity or leases, where "of capital" reads two ways).
+    #[serde(skip)]
+    pub debt_to_capital: Option<f64>,
 }
 
 impl Side {
@@ -409,6 +413,7 @@ impl Side {
             computed: true,
             as_of: None,
             currency: None,
+            debt_to_capital: None,
         }
     }
 }
