@@ -504,7 +504,7 @@ pub fn bridge(from: &Side, to: &Side) -> Bridge {
     }
     let unexplained = to.stated_wacc.map(|stated| stated - to.wacc);
     let unexplained_from = from.stated_wacc.map(|stated| stated - from.wacc);
-    let stated = |side: &Side| side.stated_wacc.unwrap_or(side.wacc);
+    let stated = Side::headline_wacc;
     Bridge {
         from: from.clone(),
         to: to.clone(),

@@ -34,7 +34,7 @@ pub fn waterfall(
         end: level,
         change: None,
     };
-    let first = from.stated_wacc.unwrap_or(from.wacc);
+    let first = from.headline_wacc();
     let mut bars = vec![total(from.label.clone(), first)];
     if let Some(residue) = unexplained_from.filter(|r| *r != 0.0) {
         bars.push(step(UNEXPLAINED.into(), BarKind::Residue, first, -residue));
@@ -48,7 +48,7 @@ pub fn waterfall(
     if let Some(residue) = unexplained {
         bars.push(step(UNEXPLAINED.into(), BarKind::Residue, to.wacc, residue));
     }
-    bars.push(total(to.label.clone(), to.stated_wacc.unwrap_or(to.wacc)));
+    bars.push(total(to.label.clone(), to.headline_wacc()));
     bars
 }
 

@@ -60,13 +60,13 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
 
 fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
     // A claim whose stated WACC its components do not give: both figures, named.
-    let wacc = |side: &hurdle::audit::bridge::Side| match side.stated_wacc {
-        Some(stated) if (stated - side.wacc).abs() >= 5e-6 => format!(
+    let wacc = |side: &hurdle::audit::bridge::Side| match side.stated_gap() {
+        Some(_) => format!(
             "WACC {} from its components (stated {})",
             percent(side.wacc, 3),
-            percent(stated, 3)
+            percent(side.headline_wacc(), 3)
         ),
-        _ => format!("WACC {}", percent(side.wacc, 3)),
+        None => format!("WACC {}", percent(side.wacc, 3)),
     };
     let mut out = String::new();
     for ((word, side), facts) in [("from", &b.from), ("  to", &b.to)].into_iter().zip(facts) {
@@ -145,7 +145,7 @@ fn bridge_table(b: &Bridge) -> String {
         ]);
     }
     if let Some(gap) = b.unexplained.filter(|g| *g != 0.0) {
-        rows.push(unexplained(b.to.stated_wacc.unwrap_or(b.to.wacc), gap));
+        rows.push(unexplained(b.to.headline_wacc(), gap));
     }
     let total = basis_points(b.stated_difference);
     rows.push([

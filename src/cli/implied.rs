@@ -74,7 +74,7 @@ fn claimed_wacc(args: &Args) -> hurdle::Result<(f64, Option<hurdle::audit::bridg
     match (&args.claim, args.wacc) {
         (Some(path), _) => {
             let side = hurdle::audit::bridge::read_side(path, &path.display().to_string())?;
-            let wacc = side.stated_wacc.unwrap_or(side.wacc);
+            let wacc = side.headline_wacc();
             let whose = match (side.computed, side.stated_wacc) {
                 (true, _) => "as hurdle computes the case",
                 (false, Some(_)) => "as it states",
@@ -88,18 +88,15 @@ fn claimed_wacc(args: &Args) -> hurdle::Result<(f64, Option<hurdle::audit::bridg
             );
             // Found by review: a claim whose components give another WACC than it states was
             // solved for its stated one without a word.
-            if let Some(stated) = side.stated_wacc.filter(|_| !side.computed) {
-                let gap_bp = (side.wacc - stated) * 1e4;
-                if gap_bp.abs() >= 0.05 {
-                    println!(
-                        "note: the claim's own components give {}, {} bp {} its stated WACC; the \
-                         value solved for reproduces the stated {}",
-                        percent(side.wacc, 3),
-                        fixed(gap_bp.abs(), 1),
-                        if gap_bp > 0.0 { "above" } else { "below" },
-                        percent(stated, 3)
-                    );
-                }
+            if let Some(gap) = side.stated_gap() {
+                println!(
+                    "note: the claim's own components give {}, {} bp {} its stated WACC; the \
+                     value solved for reproduces the stated {}",
+                    percent(side.wacc, 3),
+                    fixed(gap.abs() * 1e4, 1),
+                    if gap < 0.0 { "above" } else { "below" },
+                    percent(side.headline_wacc(), 3)
+                );
             }
             Ok((wacc, Some(side)))
         }

@@ -217,7 +217,7 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
             out,
             "unexplained at the start (the starting claim's stated WACC less its components'),,,\
              {},{},{},{}",
-            Full(bridge.from.stated_wacc.unwrap_or(bridge.from.wacc)),
+            Full(bridge.from.headline_wacc()),
             Full(bridge.from.wacc),
             Full(-gap),
             Full(-gap)
@@ -245,7 +245,7 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
             out,
             "unexplained (the claim's stated WACC less its components'),,,{},{},{},{}",
             Full(bridge.to.wacc),
-            Full(bridge.to.stated_wacc.unwrap_or(bridge.to.wacc)),
+            Full(bridge.to.headline_wacc()),
             Full(gap),
             Full(gap)
         )

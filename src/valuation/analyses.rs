@@ -386,6 +386,19 @@ pub struct Side {
 }
 
 impl Side {
+    /// The WACC the side stands for: the one it states, else its components'.
+    pub fn headline_wacc(&self) -> f64 {
+        self.stated_wacc.unwrap_or(self.wacc)
+    }
+
+    /// The stated WACC less the components' when a claim states one that differs from them by
+    /// what a rate to three decimals of a percent shows (half a tenth of a basis point, 5e-6);
+    /// `None` otherwise, and for a computed case, whose stated WACC is its own.
+    pub fn stated_gap(&self) -> Option<f64> {
+        let gap = self.stated_wacc.filter(|_| !self.computed)? - self.wacc;
+        (gap.abs() >= 5e-6).then_some(gap)
+    }
+
     /// The build-up of a computed valuation.
     pub fn from_valuation(label: &str, valuation: &Valuation) -> Side {
         let c = &valuation.cost;

@@ -254,9 +254,9 @@ fn caption(bridge: &Bridge, axis_start: f64, cut: bool, lowest: f64) -> String {
          Shapley value, its share of the {} gap between the WACCs the two sides' components give, averaged over every order of replacing the \
          groups, so the picture does not depend on the order drawn. {residue}{axis}Figures: \
          result.json reconciliation.waterfall (start, end, change; from steps[].shapley, unexplained).",
-        percent(bridge.from.stated_wacc.unwrap_or(bridge.from.wacc), 2),
+        percent(bridge.from.headline_wacc(), 2),
         bridge.to.label,
-        percent(bridge.to.stated_wacc.unwrap_or(bridge.to.wacc), 2),
+        percent(bridge.to.headline_wacc(), 2),
         basis_points(bridge.difference),
     )
 }
