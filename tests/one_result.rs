@@ -209,6 +209,44 @@ fn few_peers_are_cautioned_wherever_cautions_are_printed() {
     }
 }
 
+// Riskless debt beside a cost of debt above the risk-free rate (the demo: no debt beta, a given
+// 4.63% against a yield of about 2.7%) is recorded in the result and the memo says it from
+// there; a given cost of debt below the rate, or a debt beta from the spread, records false
+// and the memo's sentence goes (the caution's condition as README states it).
+#[test]
+fn riskless_debt_above_the_rate_is_recorded_and_cautioned_from_the_result() {
+    let dir = tempfile::tempdir().unwrap();
+    let sentence = "although the subject's cost of debt";
+    for (sets, expected) in [
+        (vec![], true),
+        (vec!["debt.cost_pre_tax=0.02"], false),
+        (vec!["leverage.debt_beta_source=\"credit-spread\""], false),
+    ] {
+        let out = dir
+            .path()
+            .join(format!("out{}", sets.len() + usize::from(expected)));
+        let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+        for set in &sets {
+            args.extend(["--set", set]);
+        }
+        let output = hurdle(&args);
+        assert!(output.status.success(), "{output:?}");
+        let result: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(out.join("result.json")).unwrap()).unwrap();
+        let (kd, rf) = (
+            result["cost_of_debt_pre_tax"].as_f64().unwrap(),
+            result["risk_free_rate"].as_f64().unwrap(),
+        );
+        let riskless = result["settings"]["leverage"]["debt_beta_source"] == "none";
+        assert_eq!(riskless && kd > rf, expected, "{sets:?}: {kd} {rf}");
+        assert_eq!(
+            result["cautions"]["riskless_debt_above_risk_free"],
+            expected
+        );
+        assert_eq!(memo(&out).contains(sentence), expected, "{sets:?}");
+    }
+}
+
 // An input without a stated basis is listed by the library. A country premium that enters the
 // cost of equity at an exposure of 0 adds nothing (exposure·CRP, README), so it needs no basis;
 // at an exposure of 0.5 it does. The demo states every other basis.

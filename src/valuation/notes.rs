@@ -500,8 +500,12 @@ pub(super) fn cautions(
         },
         few_peers: aggregated.len() < FEW_PEERS,
         unstated_inputs: unstated_inputs(settings, cost),
+        riskless_debt_above_risk_free: settings.leverage.debt_beta_source
+            == crate::capital::leverage::DebtBetaSource::None
+            && cost.cost_of_debt_pre_tax > cost.risk_free_rate,
     }
 }
+
 /// Why a peer could not be estimated, with the file and the window.
 pub(super) fn failure_message(
     failure: &crate::estimate::EstimateError,

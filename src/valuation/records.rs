@@ -248,6 +248,10 @@ pub struct Cautions {
     pub few_peers: bool,
     /// The inputs the case gives no source or reason for, in the memo's order.
     pub unstated_inputs: Vec<UnstatedInput>,
+    /// Whether debt is taken as riskless (`leverage.debt_beta_source = "none"`) while the
+    /// subject's pre-tax cost of debt lies above the risk-free rate: risky debt would bear
+    /// some of the firms' risk (added in 0.17.0; the memo decided it itself before).
+    pub riskless_debt_above_risk_free: bool,
 }
 
 /// An input without a stated basis: what it is, and the case key that would hold its source.
