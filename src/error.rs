@@ -51,7 +51,8 @@ pub enum Error {
         match above {
             0 => String::new(),
             n => format!(
-                " nor at its recorded path from any of the {n} folders above the receipt's"
+                " nor, with the recorded SHA-256, at its recorded path from any of the {n} \
+                 folders above the receipt's folder"
             ),
         }
     )]

@@ -490,8 +490,18 @@ fn verify_from_elsewhere_finds_a_case_recorded_from_a_folder_above_the_receipt()
         root.join("cases/q/moved.toml"),
     )
     .unwrap();
+    // A stranger of that name in a folder farther up (another case, edited) is not taken for
+    // the receipt's: up there only the recorded SHA-256 counts (found by review).
+    let stranger = dir.path().join("cases/q");
+    copy_demo_case(&stranger);
+    let edited = std::fs::read_to_string(stranger.join("case.toml"))
+        .unwrap()
+        .replace("seed = 1", "seed = 2");
+    std::fs::write(stranger.join("case.toml"), edited).unwrap();
+    let elsewhere = dir.path().join("elsewhere");
+    std::fs::create_dir(&elsewhere).unwrap();
     let verify = std::process::Command::new(binary)
-        .current_dir(dir.path())
+        .current_dir(&elsewhere)
         .arg("verify")
         .arg(&receipt)
         .output()
@@ -499,7 +509,10 @@ fn verify_from_elsewhere_finds_a_case_recorded_from_a_folder_above_the_receipt()
     let report = text(&verify);
     assert_eq!(verify.status.code(), Some(2), "{report}");
     assert!(
-        report.contains("nor at cases/q/case.toml nor at its recorded path from any of the"),
+        report.contains(
+            "nor at cases/q/case.toml nor, with the recorded SHA-256, at its recorded path from \
+             any of the"
+        ),
         "{report}"
     );
     assert!(report.contains("give its place with --case"), "{report}");

@@ -516,7 +516,9 @@ pub(super) struct RecordedFile<'a> {
 /// `hurdle run` puts `output/` by default), in the receipt's own folder, or at the recorded
 /// path (relative to the working folder). The first with the recorded SHA-256 wins; when none
 /// has it, the first with the receipt's title (the receipt's own case, edited); else the first
-/// that exists, whose changed hash the verification then reports. A bundle's own case that
+/// that exists, whose changed hash the verification then reports. A relative recorded path is
+/// also tried from each folder above the receipt's, where only the recorded SHA-256 counts (a
+/// file of that name far up the tree is otherwise a stranger's). A bundle's own case that
 /// carries the receipt's title but changed, while a farther place holds the unchanged bytes,
 /// could be either: that is refused, naming both, for the caller to choose. `section` is the
 /// receipt's section that records the file (`case` or `universe`).
@@ -568,9 +570,12 @@ pub(super) fn locate_case(
         file.title.is_some() && title.as_deref() == file.title
     };
     let existing: Vec<&PathBuf> = candidates.iter().filter(|p| p.is_file()).collect();
+    // Found by review: a folder far above held an unrelated `case.toml`, taken as the
+    // receipt's edited case.
+    let near: Vec<&PathBuf> = candidates[..named].iter().filter(|p| p.is_file()).collect();
     let found = (existing.iter().find(|p| same_bytes(p)))
-        .or_else(|| existing.iter().find(|p| titled(p)))
-        .or_else(|| existing.first())
+        .or_else(|| near.iter().find(|p| titled(p)))
+        .or_else(|| near.first())
         .map(|p| (*p).clone())
         .ok_or_else(|| Error::InputNotFound {
             receipt: receipt_path.clone(),
