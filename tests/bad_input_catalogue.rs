@@ -2143,6 +2143,21 @@ fn claim(s: &Sandbox, line: &str, with: &str) {
 
 fn claimed_files() -> Vec<Bad> {
     vec![
+        // Found by review: a one-page claim of a WACC and a beta was told of one missing key
+        // per run, under the case file's section of README.
+        bad!(
+            "claimed build-up without most components",
+            |s| {
+                claim(s, "risk_free_rate = 0.040", "");
+                edit_at(s, "bad_claim.toml", "tax_rate = 0.25", "");
+            },
+            ["compare", "{case}", "{dir}/bad_claim.toml"],
+            [
+                "bad_claim.toml",
+                "[claimed] lacks risk_free_rate, tax_rate:",
+                "README, Claimed build-up files"
+            ]
+        ),
         bad!(
             "claimed beta NaN",
             |s| claim(s, "beta = 1.10", "beta = nan"),
