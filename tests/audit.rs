@@ -1394,6 +1394,67 @@ fn implied_names_the_inputs_held_and_the_claims_own_value() {
     // Shown to four decimals: within half a unit of the fourth.
     assert!((shown - exact / (1.0 - exact)).abs() <= 0.5e-4, "{report}");
     assert!(report.contains(" as debt to capital): "), "{report}");
+
+    // An input that moves with the one solved for is not listed as held (found by review).
+    // A cost of debt from the rating table is rf plus the rating's spread, so between the case
+    // and the answer it moves by as much as the rate (both shown to three decimals of a
+    // percent: within a unit of the last, 1e-5); a beta-scaled country premium is βL·CRP, so at
+    // the beta found the premiums total size + β·CRP (1% + β·2%; the same rounding).
+    let percent_at =
+        |text: &str| -> f64 { text.trim_end_matches('%').parse::<f64>().unwrap() / 100.0 };
+    let moved = |report: &str, label: &str| -> (f64, f64) {
+        let line = after(report, "  moved with it, at the answer: ");
+        let part = line
+            .split(", ")
+            .find(|p| p.starts_with(label))
+            .unwrap_or_else(|| panic!("{label} in {line}"));
+        let (from, to) = part[label.len() + 1..].split_once(" → ").unwrap();
+        (percent_at(from), percent_at(to))
+    };
+    let sets = ["--set", "debt.source=\"rating\""];
+    let output = hurdle(&[
+        "implied",
+        case,
+        "--wacc",
+        "0.08",
+        "--solve",
+        "risk_free",
+        sets[0],
+        sets[1],
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    let rated = run_case(Path::new(case), &out.path().join("rated"), &sets);
+    let rate: f64 = exact_line(&report, "market.risk_free_rate=")
+        .parse()
+        .unwrap();
+    let (from, to) = moved(&report, "pre-tax cost of debt");
+    let moved_by = rate - rated["risk_free_rate"].as_f64().unwrap();
+    assert!(((to - from) - moved_by).abs() < 1e-5, "{report}");
+    assert!(
+        !after(&report, "  held at the case's values: ").contains("cost of debt"),
+        "{report}"
+    );
+
+    let output = hurdle(&[
+        "implied",
+        case,
+        "--wacc",
+        "0.08",
+        "--solve",
+        "beta",
+        "--set",
+        "premiums.country=0.02",
+        "--set",
+        "premiums.country_method=\"beta-scaled\"",
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    let (_, to) = moved(&report, "premiums in total");
+    assert!(
+        (to - (0.01 + exact_beta(&report) * 0.02)).abs() < 1e-5,
+        "{report}"
+    );
 }
 
 // `--solve all` lists every input with the value that reproduces the claim alone; each case

@@ -104,62 +104,134 @@ impl Target {
     }
 }
 
-/// One input a solve holds at the case's value, as a reader lists them beside the answer.
-#[derive(Debug, Clone, Copy, PartialEq)]
+/// One input besides the one solved for, as a reader lists them beside the answer: its
+/// value in the case and, when it moved with the input solved for, its value at the answer.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Held {
     pub label: &'static str,
     pub value: f64,
     /// A rate, shown in percent; else a beta or a ratio.
     pub rate: bool,
+    /// Its value at the answer, when that differs from the case's (a cost of debt from a spread
+    /// table moves with the risk-free rate, a beta-scaled country premium with the beta, the
+    /// betas with an ERP that sets the debt betas from the credit spread).
+    pub moved_to: Option<f64>,
 }
 
-/// The case's inputs that stay at its values while `solved` moves (all of them for `None`, the
-/// starting point of `--solve all`), in a build-up's order (found by review: a reviewer could
-/// not file the answer without rerunning the case to learn what was held). Solving the
-/// structure relevers the beta, so the aggregate unlevered beta is the one held then; solving
-/// the size premium holds the other premiums.
+/// The figures a solve's inputs are read from, at the case's values or at an answer.
+#[derive(Debug, Clone, Copy)]
+struct Figures {
+    wacc: f64,
+    risk_free_rate: f64,
+    equity_risk_premium: f64,
+    relevered: f64,
+    unlevered: f64,
+    premiums: f64,
+    country_applied: f64,
+    company_specific: f64,
+    cost_of_debt: f64,
+    debt_to_equity: f64,
+    debt_to_capital: f64,
+    tax_rate: f64,
+}
+
+impl Figures {
+    fn of(c: &crate::valuation::CostOfCapital) -> Figures {
+        Figures {
+            wacc: c.wacc,
+            risk_free_rate: c.risk_free_rate,
+            equity_risk_premium: c.equity_risk_premium,
+            relevered: c.beta.relevered,
+            unlevered: c.beta.unlevered,
+            premiums: c.premiums.total,
+            country_applied: c.premiums.country_applied,
+            company_specific: c.premiums.company_specific,
+            cost_of_debt: c.cost_of_debt_pre_tax,
+            debt_to_equity: c.target.debt_to_equity,
+            debt_to_capital: c.target.debt_to_capital,
+            tax_rate: c.target.tax_rate,
+        }
+    }
+}
+
+/// The case's inputs besides the one solved for (all of them for `None`, the starting point of
+/// `--solve all`), in a build-up's order, at the case's values (found by review: a reviewer
+/// could not file the answer without rerunning the case to learn what was held).
 pub fn held_inputs(inputs: &Inputs, base: &Valuation, solved: Option<Target>) -> Vec<Held> {
-    let (c, p) = (&base.cost, &base.cost.premiums);
-    let held = |label, value, rate| Held { label, value, rate };
-    let beta = match solved {
-        Some(Target::DebtToEquity) => held("unlevered beta", c.beta.unlevered, false),
-        _ => held("relevered beta", c.beta.relevered, false),
-    };
-    let structure = match inputs.case.settings.target.debt_to_capital.is_some() {
-        true => held("debt to capital", c.target.debt_to_capital, false),
-        false => held("target D/E", c.target.debt_to_equity, false),
-    };
-    // Solving the size premium holds the others, each named when the case has it.
-    let premiums = match solved {
-        Some(Target::SizePremium) => [
-            held("country premium as applied", p.country_applied, true),
-            held("company-specific premium", p.company_specific, true),
-        ]
-        .into_iter()
-        .filter(|h| h.value != 0.0)
-        .map(|h| (None, h))
-        .collect(),
-        _ => vec![(
-            Some(Target::SizePremium),
-            held("premiums in total", p.total, true),
-        )],
-    };
+    held_between(inputs, &Figures::of(&base.cost), None, solved)
+}
+
+/// [`held_inputs`], each with its value at the answer `at` when it moved there. Solving the
+/// structure relevers the beta, so the aggregate unlevered beta is listed then; solving the
+/// size premium lists the other premiums.
+fn held_between(
+    inputs: &Inputs,
+    base: &Figures,
+    at: Option<&Figures>,
+    solved: Option<Target>,
+) -> Vec<Held> {
+    let by_capital = inputs.case.settings.target.debt_to_capital.is_some();
+    let entry =
+        |target: Option<Target>, label: &'static str, rate: bool, pick: fn(&Figures) -> f64| {
+            let moved_to = at.map(pick).filter(|&x| x != pick(base));
+            (
+                target,
+                Held {
+                    label,
+                    value: pick(base),
+                    rate,
+                    moved_to,
+                },
+            )
+        };
     let mut list = vec![
-        (
-            Some(Target::RiskFree),
-            held("risk-free rate", c.risk_free_rate, true),
-        ),
-        (Some(Target::Erp), held("ERP", c.equity_risk_premium, true)),
-        (Some(Target::Beta), beta),
+        entry(Some(Target::RiskFree), "risk-free rate", true, |f| {
+            f.risk_free_rate
+        }),
+        entry(Some(Target::Erp), "ERP", true, |f| f.equity_risk_premium),
+        entry(Some(Target::Beta), "relevered beta", false, |f| f.relevered),
     ];
-    list.extend(premiums);
-    list.extend([
-        (
-            Some(Target::CostOfDebt),
-            held("pre-tax cost of debt", c.cost_of_debt_pre_tax, true),
+    // The structure relevers the beta: the aggregate unlevered beta is what stays.
+    if solved == Some(Target::DebtToEquity) {
+        list.push(entry(None, "unlevered beta", false, |f| f.unlevered));
+    }
+    // Solving the size premium holds the others, each named when the case has it.
+    match solved {
+        Some(Target::SizePremium) => list.extend(
+            [
+                entry(None, "country premium as applied", true, |f| {
+                    f.country_applied
+                }),
+                entry(None, "company-specific premium", true, |f| {
+                    f.company_specific
+                }),
+            ]
+            .into_iter()
+            .filter(|(_, h)| h.value != 0.0),
         ),
-        (Some(Target::DebtToEquity), structure),
-        (None, held("tax rate", c.target.tax_rate, true)),
+        _ => list.push(entry(
+            Some(Target::SizePremium),
+            "premiums in total",
+            true,
+            |f| f.premiums,
+        )),
+    }
+    list.extend([
+        entry(
+            Some(Target::CostOfDebt),
+            "pre-tax cost of debt",
+            true,
+            |f| f.cost_of_debt,
+        ),
+        match by_capital {
+            true => entry(Some(Target::DebtToEquity), "debt to capital", false, |f| {
+                f.debt_to_capital
+            }),
+            false => entry(Some(Target::DebtToEquity), "target D/E", false, |f| {
+                f.debt_to_equity
+            }),
+        },
+        entry(None, "tax rate", true, |f| f.tax_rate),
     ]);
     (list.into_iter())
         .filter(|(t, _)| t.is_none() || *t != solved)
@@ -225,6 +297,8 @@ pub struct Implied {
     /// the case's target structure, with the case's own aggregate beside it
     /// ([`UnleveredEquivalent`]); `None` for every other target or when nothing was found.
     pub unlevered_equivalent: Option<UnleveredEquivalent>,
+    /// The case's other inputs, each with its value at the answer when it moved there.
+    pub held: Vec<Held>,
 }
 
 /// A solved relevered beta taken back to the asset beta it implies: the case's formula run
@@ -408,26 +482,37 @@ pub fn implied(
     // case was refused); the other premiums stay as the case has them.
     let premiums = crate::case::specs::capital(settings, None).premiums;
     let scaled = settings.premiums.country_method == CountryMethod::BetaScaled;
-    let wacc_at = |x: f64| -> Result<f64> {
+    let figures = Figures::of(&base.cost);
+    let figures_at = |x: f64| -> Result<Figures> {
         if target == Target::Beta {
-            return Ok(super::bridge::BuildUp {
+            let premiums = match scaled {
+                true => premiums.total_applied(x),
+                false => build_up.premiums,
+            };
+            let wacc = super::bridge::BuildUp {
                 beta: x,
-                premiums: match scaled {
-                    true => premiums.total_applied(x),
-                    false => build_up.premiums,
-                },
+                premiums,
                 ..build_up
             }
-            .wacc());
+            .wacc();
+            return Ok(Figures {
+                wacc,
+                relevered: x,
+                premiums,
+                ..figures
+            });
         }
         // In exponent form beyond 1e15 (300 digits are no TOML number).
         let case = with_overrides(&inputs.case, &[format!("{key}={}", compact(x))])?;
         let estimates = estimates_for(&case, inputs, estimates)?;
-        Ok(cost_of_capital(&case, inputs, &estimates)?.wacc)
+        Ok(Figures::of(&cost_of_capital(&case, inputs, &estimates)?))
     };
+    let wacc_at = |x: f64| figures_at(x).map(|f| f.wacc);
     let scan = solve(&wacc_at, low, high, claimed)?;
     let value = chosen_value(&scan, base_value, &wacc_at, claimed);
-    let achieved_wacc = value.map(wacc_at).transpose()?;
+    let at_answer = value.map(figures_at).transpose()?;
+    let achieved_wacc = at_answer.map(|f| f.wacc);
+    let held = held_between(inputs, &figures, at_answer.as_ref(), Some(target));
     Ok(Implied {
         target,
         key: key.to_string(),
@@ -454,6 +539,7 @@ pub fn implied(
         unlevered_equivalent: value
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
+        held,
     })
 }
 

@@ -9,7 +9,7 @@
 
 use std::process::ExitCode;
 
-use hurdle::audit::implied::{implied, Change, Target};
+use hurdle::audit::implied::{implied, Change, Held, Target};
 use hurdle::report::format::{fixed, percent};
 
 use super::CaseArgs;
@@ -145,25 +145,37 @@ pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
         }
     })?;
     let status = print_answer(&r, args.range);
-    print_held(
-        &hurdle::audit::implied::held_inputs(&inputs, &base, Some(target)),
-        "  held at the case's values",
-    );
+    print_held(&r.held, "  held at the case's values", r.reproduces());
     if let Some(side) = claim.as_ref().filter(|c| !c.computed) {
         print_claims_own(&r, side);
     }
     Ok(status)
 }
 
-/// The inputs a solve held, on one line: what the answer rests on besides the claim.
-fn print_held(held: &[hurdle::audit::implied::Held], opening: &str) {
-    let list: Vec<String> = (held.iter())
-        .map(|h| match h.rate {
-            true => format!("{} {}", h.label, percent(h.value, 3)),
-            false => format!("{} {}", h.label, fixed(h.value, 4)),
-        })
+/// The inputs a solve held, on one line, and on another those that moved with the input solved
+/// for, from the case's value to the answer's (with `answered`): what the answer rests on
+/// besides the claim (found by review: a cost of debt from a spread table was listed as held
+/// while it moved with the risk-free rate).
+fn print_held(held: &[Held], opening: &str, answered: bool) {
+    let show = |h: &Held, x: f64| match h.rate {
+        true => percent(x, 3),
+        false => fixed(x, 4),
+    };
+    let (moved, stayed): (Vec<&Held>, Vec<&Held>) =
+        (held.iter()).partition(|h| answered && h.moved_to.is_some());
+    let list: Vec<String> = (stayed.iter())
+        .map(|h| format!("{} {}", h.label, show(h, h.value)))
         .collect();
     println!("{opening}: {}", list.join(", "));
+    if !moved.is_empty() {
+        let list: Vec<String> = (moved.iter())
+            .map(|h| {
+                let to = h.moved_to.unwrap_or(h.value);
+                format!("{} {} → {}", h.label, show(h, h.value), show(h, to))
+            })
+            .collect();
+        println!("  moved with it, at the answer: {}", list.join(", "));
+    }
 }
 
 /// The claim's own value of the input solved for, beside the value the case needs: the answer
@@ -178,10 +190,17 @@ fn print_claims_own(r: &hurdle::audit::implied::Implied, side: &hurdle::audit::b
             percent(side.build_up.premiums, 3)
         ),
     };
+    // Found by review: with no answer, "the value above" named nothing.
+    let answer = match r.reproduces() {
+        true => {
+            "the value above is the case's input that gives the claim's WACC with the case's \
+             other inputs, not the claim's"
+        }
+        false => "no value of the case's input gives the claim's WACC with the case's other inputs",
+    };
     println!(
-        "  the claim itself states {own}: the value above is the case's input that gives the \
-         claim's WACC with the case's other inputs, not the claim's; `hurdle compare` sets the \
-         two build-ups side by side, input by input"
+        "  the claim itself states {own}: {answer}; `hurdle compare` sets the two build-ups side \
+         by side, input by input"
     );
 }
 
@@ -201,6 +220,7 @@ fn print_all(
     print_held(
         &hurdle::audit::implied::held_inputs(inputs, base, None),
         "the case's values",
+        false,
     );
     println!(
         "{:<26} {:>10} {:>12} {:>12}  note",
@@ -246,6 +266,12 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
                 None => String::new(),
             };
             let mut note = format!("exact: {value}");
+            if r.key == "target.debt_to_capital" {
+                note.push_str(&format!(
+                    "; as D/E {}",
+                    fixed(hurdle::capital::cost::debt_to_equity_from_capital(value), 4)
+                ));
+            }
             if r.does_not_move {
                 note.push_str(
                     "; every value searched gives the claim: the input does not move the WACC here",
