@@ -169,9 +169,13 @@ pub fn compact(value: f64) -> String {
 /// for 8.9%` for a typed 8.9 (or `8.9%`), the rate read as percent; a general example for a
 /// figure that cannot be a percent rate (found by review: a typed 8.9 was told `0.091 for 9.1%`).
 pub fn decimal_example(typed: f64) -> String {
-    match typed.is_finite() && (1.0..=100.0).contains(&typed.abs()) {
+    match typed.is_finite() && typed != 0.0 && typed.abs() <= 100.0 {
         // Rounded to 12 decimals, so 8.9 / 100 shows as 0.089, not 0.08900000000000001.
-        true => format!("{} for {typed}%", (typed / 100.0 * 1e12).round() / 1e12),
+        true => format!(
+            "{} for {}%",
+            compact((typed / 100.0 * 1e12).round() / 1e12),
+            compact(typed)
+        ),
         false => "0.091 for 9.1%".to_string(),
     }
 }
@@ -383,6 +387,17 @@ pub fn toml_error_in_table<T: serde::de::DeserializeOwned>(
 
 #[cfg(test)]
 mod tests {
+
+    // The hint from the figure typed, as percent: 8.9 → 0.089 (not 0.08900000000000001),
+    // 0.5% → 0.005; a figure no percent rate is gets the general example (worked by hand).
+    #[test]
+    fn a_rate_typed_as_percent_is_shown_as_its_decimal() {
+        assert_eq!(super::decimal_example(8.9), "0.089 for 8.9%");
+        assert_eq!(super::decimal_example(0.5), "0.005 for 0.5%");
+        assert_eq!(super::decimal_example(5.8), "0.058 for 5.8%");
+        assert_eq!(super::decimal_example(250.0), "0.091 for 9.1%");
+        assert_eq!(super::decimal_example(0.0), "0.091 for 9.1%");
+    }
     // Rust's `Display` of an f64 never uses an exponent (std's fmt documentation): 1e308 is a 1
     // and 308 zeros, 1e-300 a point, 299 zeros and a 1; `{:e}` writes them back as typed.
     #[test]

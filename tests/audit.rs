@@ -12,7 +12,7 @@ use hurdle::valuation::{estimate_peers, load_inputs, value};
 
 mod common;
 
-use common::{copy_demo_case, hurdle, number, DEMO_DIR};
+use common::{copy_demo_case, hurdle, number, DEMO_CASE, DEMO_DIR};
 
 fn text(output: &Output) -> String {
     format!(
@@ -1454,6 +1454,43 @@ fn implied_names_the_inputs_held_and_the_claims_own_value() {
     assert!(
         (to - (0.01 + exact_beta(&report) * 0.02)).abs() < 1e-5,
         "{report}"
+    );
+}
+
+// A bank's "D/V 30%" beside 10% preferred equity (found by review): the claim's
+// debt_to_capital is D/(D + E), so debt is 0.9 × 30% = 27.0% of all capital, and the other
+// reading, 30% of all capital, is D/E = 0.3 / (1 − 0.3 − 0.1) = 0.5 (worked by hand). No debt
+// reads alike both ways, and gets no note.
+#[test]
+fn a_claims_debt_to_capital_beside_preferred_equity_says_how_it_is_read() {
+    let dir = tempfile::tempdir().unwrap();
+    let claim = |dc: f64| {
+        let path = dir.path().join(format!("claim{dc}.toml"));
+        let text = format!(
+            "[claimed]\nlabel = \"Bank\"\nwacc = 0.08\nrisk_free_rate = 0.03\n\
+             equity_risk_premium = 0.055\nbeta = 1.2\npremiums = 0.015\n\
+             cost_of_debt_pre_tax = 0.055\ntax_rate = 0.25\ndebt_to_capital = {dc}\n\
+             preferred_weight = 0.1\npreferred_cost = 0.07\n"
+        );
+        std::fs::write(&path, text).unwrap();
+        path.to_str().unwrap().to_string()
+    };
+    let output = hurdle(&["compare", DEMO_CASE, &claim(0.3)]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert!(
+        report.contains(
+            "debt_to_capital = 0.3 is read as debt over debt and common equity, D/(D + E), so \
+             with preferred equity at 10.0% of capital, debt is 27.0% of all capital; if the \
+             claim means 30.0% of all capital, write debt_to_equity = 0.5000 instead."
+        ),
+        "{report}"
+    );
+    let output = hurdle(&["compare", DEMO_CASE, &claim(0.0)]);
+    assert!(
+        !text(&output).contains("is read as debt over debt"),
+        "{}",
+        text(&output)
     );
 }
 

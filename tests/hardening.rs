@@ -682,6 +682,11 @@ fn template_figures_that_are_not_finite_are_refused() {
             "{{ v.wacc | num(4294967296) }}",
             "4294967296 decimals asked of a number filter",
         ),
+        // Found by review: `weights` of anything but a build-up printed zero weights.
+        (
+            "{{ v.wacc | weights }}",
+            "`weights` takes a bridge side's build_up, which has `equity_weight`",
+        ),
     ] {
         fs::write(&template, text).unwrap();
         let out = sandbox.root.path().join("out");

@@ -358,20 +358,32 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
     // Found by review: a bank's "D/V 30%" beside 10% preferred means 30% of all capital, which
     // the claim's key reads as 30% of debt plus common equity.
     let other = b.preferred_weight + b.lease_weight;
-    let of_capital = (side.debt_to_capital.filter(|_| other > 0.0)).map(|dc| {
+    // No debt reads alike both ways.
+    let of_capital = (side.debt_to_capital.filter(|&dc| other > 0.0 && dc > 0.0)).map(|dc| {
+        let components = match (b.preferred_weight > 0.0, b.lease_weight > 0.0) {
+            (true, true) => "preferred equity and leases",
+            (true, false) => "preferred equity",
+            _ => "leases",
+        };
         // D/E when debt is dc of all capital: E = 1 − dc − other.
         let equity = 1.0 - dc - other;
+        let de = dc / equity;
+        let limit = crate::case::sanity::MAX_DEBT_TO_EQUITY;
         let instead = match equity > 0.0 {
-            true => format!(
+            true if de <= limit => format!(
                 "write debt_to_equity = {} instead",
-                crate::error::rounded(dc / equity, 4)
+                crate::error::rounded(de, 4)
+            ),
+            true => format!(
+                "its D/E would be {}, beyond the {limit} a build-up accepts",
+                crate::error::rounded(de, 4)
             ),
             false => "that leaves no common equity".to_string(),
         };
         format!(
             "Check: debt_to_capital = {} is read as debt over debt and common equity, D/(D + E), \
-             so with preferred equity and leases at {}% of capital, debt is {}% of all capital; \
-             if the claim means {}% of all capital, {instead}.",
+             so with {components} at {}% of capital, debt is {}% of all capital; if the claim \
+             means {}% of all capital, {instead}.",
             crate::error::compact(dc),
             crate::error::rounded(other * 100.0, 1),
             crate::error::rounded(b.debt_weight * 100.0, 1),

@@ -18,9 +18,8 @@ pub(super) fn rate(key: &str, value: f64, low: f64, high: f64) -> std::result::R
         let decimal = |scale: f64| crate::error::compact((value / scale * 1e12).round() / 1e12);
         let hint = if value >= 1.0 && high <= 1.0 && value / 100.0 < high {
             format!(
-                "; rates are decimals ({} for {}%)",
-                decimal(100.0),
-                crate::error::compact(value)
+                "; rates are decimals ({})",
+                crate::error::decimal_example(value)
             )
         } else if value >= 1.0 && high <= 1.0 && value / 10_000.0 < high {
             // Out of range even as a percentage: basis points (found by review: 517 was

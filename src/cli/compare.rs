@@ -168,7 +168,7 @@ fn bridge_table(b: &Bridge) -> String {
     let mut out = String::new();
     for r in &rows {
         out.push_str(&format!(
-            "{:<22} {:>from$} {:>to$} {:>12} {:>10} {:>10}\n",
+            "{:<22} {:>from$}  {:>to$} {:>12} {:>10} {:>10}\n",
             r[0], r[1], r[2], r[3], r[4], r[5]
         ));
     }

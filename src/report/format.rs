@@ -342,6 +342,21 @@ pub use crate::error::{compact, rounded};
 mod tests {
     use super::*;
 
+    // The bridge's weights by hand: one decimal of a percent each, preferred equity and leases
+    // only when held (0.6429 → 64.3%, 0.15714 → 15.7%).
+    #[test]
+    fn capital_weights_list_the_components_held() {
+        assert_eq!(
+            capital_weights(0.6429, 0.2, 0.15714, 0.0),
+            "E 64.3% · D 20.0% · P 15.7%"
+        );
+        assert_eq!(capital_weights(0.75, 0.25, 0.0, 0.0), "E 75.0% · D 25.0%");
+        assert_eq!(
+            capital_weights(0.6, 0.3, 0.0, 0.1),
+            "E 60.0% · D 30.0% · L 10.0%"
+        );
+    }
+
     #[test]
     fn a_setting_in_percent_keeps_every_digit_it_has() {
         // Decimal arithmetic by hand: moving the point two places is exact.

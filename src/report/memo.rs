@@ -2,7 +2,7 @@
 //!
 //! The template sees the [`Valuation`] as `v` and the charts of the run as `figures` (see
 //! [`crate::report::figures::Index`]), and may only format them: its filters (`pct`, `bp`,
-//! `num`, `exact`, `exact_pct`, `cell`, `group`, `axis`, `plain`, `prose`, `code`) call
+//! `num`, `exact`, `exact_pct`, `cell`, `group`, `axis`, `plain`, `prose`, `code`, `weights`) call
 //! [`crate::report::format`], and undefined names are errors (strict mode), so a typo in a
 //! user's template fails loudly instead of printing an empty cell.
 
@@ -75,26 +75,33 @@ impl Memo {
     }
 }
 
-/// A figure a template writes, refused when it is not finite: the outputs never hold `inf` or
-/// `NaN` (found by review: a template could compute one, `{{ v.wacc * 1e308 * 100 }}`).
 /// A bridge side's build-up (`b.from.build_up`) as its capital weights
-/// ([`format::capital_weights`]); a weight the build-up does not write is 0.
+/// ([`format::capital_weights`]). Its equity and debt weights must be there (anything else
+/// given is an error, as strict mode makes an undefined name; found by review: `v.wacc |
+/// weights` printed zero weights); preferred equity and leases, which a build-up writes only
+/// when it holds them, are 0 when absent.
 fn weights(build_up: Value) -> Filtered {
-    let weight = |key: &str| -> std::result::Result<f64, minijinja::Error> {
-        let value = build_up.get_attr(key)?;
-        match value.is_undefined() || value.is_none() {
-            true => Ok(0.0),
-            false => finite(f64::try_from(value)?),
+    let weight = |key: &str, required: bool| -> std::result::Result<f64, minijinja::Error> {
+        let value = build_up.get_attr(key).unwrap_or(Value::UNDEFINED);
+        match (value.is_undefined() || value.is_none(), required) {
+            (true, false) => Ok(0.0),
+            (true, true) => Err(minijinja::Error::new(
+                minijinja::ErrorKind::InvalidOperation,
+                format!("`weights` takes a bridge side's build_up, which has `{key}`"),
+            )),
+            (false, _) => finite(f64::try_from(value)?),
         }
     };
     Ok(format::capital_weights(
-        weight("equity_weight")?,
-        weight("debt_weight")?,
-        weight("preferred_weight")?,
-        weight("lease_weight")?,
+        weight("equity_weight", true)?,
+        weight("debt_weight", true)?,
+        weight("preferred_weight", false)?,
+        weight("lease_weight", false)?,
     ))
 }
 
+/// A figure a template writes, refused when it is not finite: the outputs never hold `inf` or
+/// `NaN` (found by review: a template could compute one, `{{ v.wacc * 1e308 * 100 }}`).
 fn finite(value: f64) -> std::result::Result<f64, minijinja::Error> {
     match value.is_finite() {
         true => Ok(value),

@@ -491,10 +491,20 @@ pub fn check_search_range(key: &str, low: f64, high: f64) -> Result<()> {
 /// A claimed WACC (or any rate given on the command line) must be a finite decimal in
 /// [−0.5, 1); 9.1 is taken for a percentage.
 pub fn check_rate_argument(text: &str) -> std::result::Result<f64, String> {
-    let value: f64 = text
-        .trim()
-        .parse()
-        .map_err(|_| format!("`{text}` is not a number"))?;
+    let value: f64 = text.trim().parse().map_err(|_| {
+        // `8.9%` typed (found by review: it had no hint).
+        let percent = text
+            .trim()
+            .strip_suffix('%')
+            .and_then(|t| t.trim().parse::<f64>().ok());
+        match percent {
+            Some(typed) => format!(
+                "`{text}` is not a number: rates are decimals, without the % sign ({})",
+                crate::error::decimal_example(typed)
+            ),
+            None => format!("`{text}` is not a number"),
+        }
+    })?;
     if !value.is_finite() {
         return Err(format!("{value} is not a finite number"));
     }

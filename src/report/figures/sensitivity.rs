@@ -287,9 +287,12 @@ fn caption(valuation: &Valuation, grid: &Grid, metric: &str) -> String {
     };
     // The memo's caution, where the chart is seen alone (found by review: a heat map of WACC
     // falling with debt went without it).
-    let debt_axis = match [&grid.rows.key, &grid.columns.key]
-        .iter()
-        .any(|k| k.contains("debt_to"))
+    // The WACC's: a cost of equity rises with debt whatever the cost of debt (found by review:
+    // a cost-of-equity map was told of "a lower WACC").
+    let debt_axis = match grid.metric == Metric::Wacc
+        && [&grid.rows.key, &grid.columns.key]
+            .iter()
+            .any(|k| k.contains("debt_to"))
     {
         true => {
             "Along the debt axis the pre-tax cost of debt stays as the case sets it and does \

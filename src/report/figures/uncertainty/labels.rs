@@ -187,18 +187,32 @@ mod tests {
             side,
         });
         let places = place(&wanted, 4, (86, 696));
-        for (w, p) in wanted.iter().zip(&places) {
-            let (from, to) = extent(w.x, w.width, p.side);
-            let (from, to) = (from.min(w.x), to.max(w.x));
-            for (other, q) in wanted.iter().zip(&places) {
-                let beside = q.row == p.row && other.x != w.x && (from..=to).contains(&other.x);
-                assert!(
-                    !beside,
-                    "{w:?} at {p:?} beside the line at {}: {places:?}",
-                    other.x
-                );
-            }
+        let all: Vec<(Wanted, Place)> =
+            wanted.iter().copied().zip(places.iter().copied()).collect();
+        for (w, p) in &all {
+            assert!(!beside_another(*w, p, &all), "{w:?} at {p:?}: {places:?}");
         }
+        // Before 0.17.0 the median's label stood left of its line, ending over the point
+        // estimate's line 8 px away, on its row: the rule sees that placing.
+        let before = [
+            (all[0].0, all[0].1),
+            (all[1].0, all[1].1),
+            (
+                all[2].0,
+                Place {
+                    row: 1,
+                    side: Side::Right,
+                },
+            ),
+        ];
+        assert!(beside_another(
+            wanted[3],
+            &Place {
+                row: 1,
+                side: Side::Left
+            },
+            &before
+        ));
     }
 
     // Room for every label where the chart wants it: nothing moves. (The point estimate stood
