@@ -21,6 +21,9 @@ use crate::io::series::sha256_hex;
 pub use crate::valuation::analyses::{Bridge, BuildUp, Group, Side, Step};
 use crate::valuation::{load_inputs, value, Valuation};
 
+mod case_notes;
+pub use case_notes::case_notes;
+
 /// `[claimed]`: a build-up handed over by someone else.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]

@@ -99,7 +99,9 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
     out.push_str(&notes(b, csv));
     out.push_str(&side_notes(b));
     if let [Some(from), Some(to)] = facts {
-        out.push_str(&case_notes(b, from, to));
+        for note in hurdle::audit::bridge::case_notes(b, from, to) {
+            out.push_str(&format!("note: {note}\n"));
+        }
     }
     out
 }
@@ -192,66 +194,6 @@ fn side_notes(b: &Bridge) -> String {
         .chain(currency_note(&b.from, &b.to));
     let claims = [&b.from, &b.to].into_iter().flat_map(claim_notes);
     pair.chain(claims).map(|n| format!("note: {n}\n")).collect()
-}
-
-/// Notes for two cases: the peers in one aggregate and not the other (they move the beta line
-/// through the unlevered beta), and a cost of debt built on the risk-free rate (a change in the
-/// rate then moves the cost of debt line too).
-fn case_notes(b: &Bridge, from: &CaseFacts, to: &CaseFacts) -> String {
-    let mut out = String::new();
-    let only = |a: &CaseFacts, other: &CaseFacts| -> Vec<String> {
-        (a.peers_included.iter())
-            .filter(|p| !other.peers_included.contains(p))
-            .cloned()
-            .collect()
-    };
-    let (gone, new) = (only(from, to), only(to, from));
-    if !gone.is_empty() || !new.is_empty() {
-        let list = |names: &[String]| match names.is_empty() {
-            true => "none".to_string(),
-            false => names.join(", "),
-        };
-        out.push_str(&format!(
-            "note: the peer sets differ: aggregated only in {}: {}; only in {}: {} (each moves \
-             the beta line through the unlevered beta, with the window and the data)\n",
-            b.from.source,
-            list(&gone),
-            b.to.source,
-            list(&new)
-        ));
-    }
-    let (settings, files) = from.differences(to);
-    if !settings.is_empty() {
-        out.push_str(&format!(
-            "note: the case settings that differ ({} → {}): {}\n",
-            b.from.source,
-            b.to.source,
-            settings.join("; ")
-        ));
-    }
-    let (tables, data): (Vec<String>, Vec<String>) =
-        files.into_iter().partition(|role| role == "spread table");
-    if !data.is_empty() {
-        out.push_str(&format!(
-            "note: data read for the same role whose bytes differ between the sides: {} (the \
-             returns, and so the betas, may differ with them)\n",
-            data.join(", ")
-        ));
-    }
-    if !tables.is_empty() {
-        out.push_str(
-            "note: the spread tables' bytes differ between the sides (the cost of debt may \
-             differ with them)\n",
-        );
-    }
-    let rates_differ = b.from.build_up.risk_free_rate != b.to.build_up.risk_free_rate;
-    if rates_differ && (from.debt_on_risk_free || to.debt_on_risk_free) {
-        out.push_str(
-            "note: a pre-tax cost of debt here is the risk-free rate plus a spread, so part of \
-             the cost of debt line is the change in the risk-free rate\n",
-        );
-    }
-    out
 }
 
 /// The notes under the bridge table: each side's unexplained part, the preferred and lease

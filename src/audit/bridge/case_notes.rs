@@ -1,0 +1,67 @@
+//! The notes on two cases bridged: what differs between them besides the figures the bridge
+//! moves (their peer sets, settings and data), so a reader of `compare` knows what else the
+//! lines carry.
+
+use super::{Bridge, CaseFacts};
+
+/// Notes for two cases: the peers in one aggregate and not the other (they move the beta line
+/// through the unlevered beta), and a cost of debt built on the risk-free rate (a change in the
+/// rate then moves the cost of debt line too).
+pub fn case_notes(b: &Bridge, from: &CaseFacts, to: &CaseFacts) -> Vec<String> {
+    let mut out = Vec::new();
+    let only = |a: &CaseFacts, other: &CaseFacts| -> Vec<String> {
+        (a.peers_included.iter())
+            .filter(|p| !other.peers_included.contains(p))
+            .cloned()
+            .collect()
+    };
+    let (gone, new) = (only(from, to), only(to, from));
+    if !gone.is_empty() || !new.is_empty() {
+        let list = |names: &[String]| match names.is_empty() {
+            true => "none".to_string(),
+            false => names.join(", "),
+        };
+        out.push(format!(
+            "the peer sets differ: aggregated only in {}: {}; only in {}: {} (each moves \
+             the beta line through the unlevered beta, with the window and the data)",
+            b.from.source,
+            list(&gone),
+            b.to.source,
+            list(&new)
+        ));
+    }
+    let (settings, files) = from.differences(to);
+    if !settings.is_empty() {
+        out.push(format!(
+            "the case settings that differ ({} → {}): {}",
+            b.from.source,
+            b.to.source,
+            settings.join("; ")
+        ));
+    }
+    let (tables, data): (Vec<String>, Vec<String>) =
+        files.into_iter().partition(|role| role == "spread table");
+    if !data.is_empty() {
+        out.push(format!(
+            "data read for the same role whose bytes differ between the sides: {} (the \
+             returns, and so the betas, may differ with them)",
+            data.join(", ")
+        ));
+    }
+    if !tables.is_empty() {
+        out.push(
+            "the spread tables' bytes differ between the sides (the cost of debt may \
+             differ with them)"
+                .to_string(),
+        );
+    }
+    let rates_differ = b.from.build_up.risk_free_rate != b.to.build_up.risk_free_rate;
+    if rates_differ && (from.debt_on_risk_free || to.debt_on_risk_free) {
+        out.push(
+            "a pre-tax cost of debt here is the risk-free rate plus a spread, so part of \
+             the cost of debt line is the change in the risk-free rate"
+                .to_string(),
+        );
+    }
+    out
+}
