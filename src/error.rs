@@ -51,8 +51,8 @@ pub enum Error {
         match above {
             0 => String::new(),
             n => format!(
-                " nor, with the recorded SHA-256, at its recorded path from any of the {n} \
-                 folders above the receipt's folder"
+                " nor, with the recorded SHA-256, at its recorded path from the receipt's folder \
+                 or any folder above it ({n} places)"
             ),
         }
     )]
@@ -169,6 +169,17 @@ pub fn compact(value: f64) -> String {
 /// for 8.9%` for a typed 8.9 (or `8.9%`), the rate read as percent; a general example for a
 /// figure that cannot be a percent rate (found by review: a typed 8.9 was told `0.091 for 9.1%`).
 pub fn decimal_example(typed: f64) -> String {
+    decimal_example_in(typed, (f64::NEG_INFINITY, f64::INFINITY))
+}
+
+/// [`decimal_example`] for a key that accepts `[low, high)`: the general example when the
+/// figure typed, read as percent, is out of that range too (found by review: `--wacc 100` was
+/// told `1 for 100%`, itself refused).
+pub fn decimal_example_in(typed: f64, (low, high): (f64, f64)) -> String {
+    let decimal = typed / 100.0;
+    if !(low..high).contains(&decimal) {
+        return "0.091 for 9.1%".to_string();
+    }
     match typed.is_finite() && typed != 0.0 && typed.abs() <= 100.0 {
         // Rounded to 12 decimals, so 8.9 / 100 shows as 0.089, not 0.08900000000000001.
         true => format!(
@@ -397,6 +408,15 @@ mod tests {
         assert_eq!(super::decimal_example(5.8), "0.058 for 5.8%");
         assert_eq!(super::decimal_example(250.0), "0.091 for 9.1%");
         assert_eq!(super::decimal_example(0.0), "0.091 for 9.1%");
+        // A key that takes [-0.5, 1): 100 read as percent is 1, refused too.
+        assert_eq!(
+            super::decimal_example_in(100.0, (-0.5, 1.0)),
+            "0.091 for 9.1%"
+        );
+        assert_eq!(
+            super::decimal_example_in(8.9, (-0.5, 1.0)),
+            "0.089 for 8.9%"
+        );
     }
     // Rust's `Display` of an f64 never uses an exponent (std's fmt documentation): 1e308 is a 1
     // and 308 zeros, 1e-300 a point, 299 zeros and a 1; `{:e}` writes them back as typed.

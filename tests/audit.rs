@@ -511,7 +511,7 @@ fn verify_from_elsewhere_finds_a_case_recorded_from_a_folder_above_the_receipt()
     assert!(
         report.contains(
             "nor at cases/q/case.toml nor, with the recorded SHA-256, at its recorded path from \
-             any of the"
+             the receipt's folder or any folder above it"
         ),
         "{report}"
     );
@@ -1454,6 +1454,36 @@ fn implied_names_the_inputs_held_and_the_claims_own_value() {
     assert!(
         (to - (0.01 + exact_beta(&report) * 0.02)).abs() < 1e-5,
         "{report}"
+    );
+
+    // Leases without a cost of their own take the cost of debt (README, [leases]), so they
+    // move with it; preferred equity's weight and cost are held, and listed.
+    let output = hurdle(&[
+        "implied",
+        case,
+        "--wacc",
+        "0.07",
+        "--solve",
+        "risk_free",
+        "--set",
+        "debt.source=\"rating\"",
+        "--set",
+        "preferred.weight=0.1",
+        "--set",
+        "preferred.cost=0.07",
+        "--set",
+        "leases.weight=0.2",
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    assert_eq!(
+        moved(&report, "pre-tax cost of leases"),
+        moved(&report, "pre-tax cost of debt")
+    );
+    let held = after(&report, "  held at the case's values: ");
+    assert!(
+        held.contains("preferred weight 10.000%, cost of preferred equity 7.000%"),
+        "{held}"
     );
 }
 

@@ -1373,6 +1373,14 @@ fn spread_tables() -> Vec<Bad> {
 
 fn case_files() -> Vec<Bad> {
     vec![
+        // Found by review: a value ending in a character of several bytes, unquoted, panicked
+        // in the hint for a rate typed with a % sign (a byte cut inside the `€`).
+        bad!(
+            "case currency unquoted, a symbol of three bytes",
+            |s| s.edit_case("currency = \"EUR\"", "currency = €"),
+            ["run", "{case}", "--out", "{out}"],
+            ["case.toml", "line 8", "currency = €", "must be quoted"]
+        ),
         // Found by review: an empty currency was shown as an empty cell in the memo.
         bad!(
             "empty currency",

@@ -133,6 +133,10 @@ struct Figures {
     debt_to_equity: f64,
     debt_to_capital: f64,
     tax_rate: f64,
+    preferred_weight: f64,
+    preferred_cost: f64,
+    lease_weight: f64,
+    lease_cost: f64,
 }
 
 impl Figures {
@@ -150,6 +154,10 @@ impl Figures {
             debt_to_equity: c.target.debt_to_equity,
             debt_to_capital: c.target.debt_to_capital,
             tax_rate: c.target.tax_rate,
+            preferred_weight: c.weights.preferred,
+            preferred_cost: c.other_capital_costs.preferred_cost,
+            lease_weight: c.weights.leases,
+            lease_cost: c.other_capital_costs.lease_cost_pre_tax,
         }
     }
 }
@@ -189,11 +197,20 @@ fn held_between(
             f.risk_free_rate
         }),
         entry(Some(Target::Erp), "ERP", true, |f| f.equity_risk_premium),
-        entry(Some(Target::Beta), "relevered beta", false, |f| f.relevered),
     ];
-    // The structure relevers the beta: the aggregate unlevered beta is what stays.
-    if solved == Some(Target::DebtToEquity) {
-        list.push(entry(None, "unlevered beta", false, |f| f.unlevered));
+    // The structure relevers the beta: the aggregate unlevered beta is what stays, and the
+    // relevered beta is listed only where it moved to, at an answer (found by review: with no
+    // answer it was listed as held).
+    match solved {
+        Some(Target::DebtToEquity) => {
+            if at.is_some() {
+                list.push(entry(None, "relevered beta", false, |f| f.relevered));
+            }
+            list.push(entry(None, "unlevered beta", false, |f| f.unlevered));
+        }
+        _ => list.push(entry(Some(Target::Beta), "relevered beta", false, |f| {
+            f.relevered
+        })),
     }
     // Solving the size premium holds the others, each named when the case has it.
     match solved {
@@ -233,6 +250,22 @@ fn held_between(
         },
         entry(None, "tax rate", true, |f| f.tax_rate),
     ]);
+    // Preferred equity and leases, when the case holds them (found by review: 30% of capital
+    // was on neither line; a lease cost taken from the cost of debt moves with it).
+    if base.preferred_weight > 0.0 {
+        list.push(entry(None, "preferred weight", true, |f| {
+            f.preferred_weight
+        }));
+        list.push(entry(None, "cost of preferred equity", true, |f| {
+            f.preferred_cost
+        }));
+    }
+    if base.lease_weight > 0.0 {
+        list.push(entry(None, "lease weight", true, |f| f.lease_weight));
+        list.push(entry(None, "pre-tax cost of leases", true, |f| {
+            f.lease_cost
+        }));
+    }
     (list.into_iter())
         .filter(|(t, _)| t.is_none() || *t != solved)
         .map(|(_, h)| h)

@@ -517,8 +517,8 @@ pub(super) struct RecordedFile<'a> {
 /// path (relative to the working folder). The first with the recorded SHA-256 wins; when none
 /// has it, the first with the receipt's title (the receipt's own case, edited); else the first
 /// that exists, whose changed hash the verification then reports. A relative recorded path is
-/// also tried from each folder above the receipt's, where only the recorded SHA-256 counts (a
-/// file of that name far up the tree is otherwise a stranger's). A bundle's own case that
+/// also tried from the receipt's folder and each folder above it, where only the recorded
+/// SHA-256 counts (a file of that name far up the tree is otherwise a stranger's). A bundle's own case that
 /// carries the receipt's title but changed, while a farther place holds the unchanged bytes,
 /// could be either: that is refused, naming both, for the caller to choose. `section` is the
 /// receipt's section that records the file (`case` or `universe`).
@@ -545,12 +545,18 @@ pub(super) fn locate_case(
     // root): the recorded path is tried from each folder above the receipt too (found by
     // review: `verify` from elsewhere could not find such a case).
     let named = candidates.len();
+    // The receipt's own folder too (a run into its working folder, `--out .`), and the folders
+    // of its resolved path, so a receipt reached through a symbolic link finds its case (found
+    // by review).
     if recorded.is_relative() {
-        let output_dir = receipt_path.parent().unwrap_or(Path::new(""));
-        for folder in output_dir.ancestors().skip(1) {
-            let path = folder.join(&recorded);
-            if !candidates.contains(&path) {
-                candidates.push(path);
+        let output_dir = receipt_path.parent().unwrap_or(Path::new("")).to_path_buf();
+        let resolved = std::fs::canonicalize(&output_dir).ok();
+        for folder in std::iter::once(&output_dir).chain(&resolved) {
+            for folder in folder.ancestors() {
+                let path = folder.join(&recorded);
+                if !candidates.contains(&path) {
+                    candidates.push(path);
+                }
             }
         }
     }

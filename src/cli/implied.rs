@@ -161,17 +161,28 @@ fn print_held(held: &[Held], opening: &str, answered: bool) {
         true => percent(x, 3),
         false => fixed(x, 4),
     };
+    // What moved is listed apart, at an answer; without one it is not held either.
     let (moved, stayed): (Vec<&Held>, Vec<&Held>) =
-        (held.iter()).partition(|h| answered && h.moved_to.is_some());
+        (held.iter()).partition(|h| h.moved_to.is_some());
     let list: Vec<String> = (stayed.iter())
         .map(|h| format!("{} {}", h.label, show(h, h.value)))
         .collect();
     println!("{opening}: {}", list.join(", "));
-    if !moved.is_empty() {
+    if answered && !moved.is_empty() {
         let list: Vec<String> = (moved.iter())
             .map(|h| {
                 let to = h.moved_to.unwrap_or(h.value);
-                format!("{} {} → {}", h.label, show(h, h.value), show(h, to))
+                // More decimals when the usual ones print the two alike (found by review: a
+                // beta that moved by 2e-6 read 1.0138 → 1.0138).
+                let (scale, unit, shown) = match h.rate {
+                    true => (100.0, "%", 3),
+                    false => (1.0, "", 4),
+                };
+                let (from, to) = (shown..=12)
+                    .map(|d| (fixed(h.value * scale, d), fixed(to * scale, d)))
+                    .find(|(a, b)| a != b)
+                    .unwrap_or_else(|| (fixed(h.value * scale, 12), fixed(to * scale, 12)));
+                format!("{} {from}{unit} → {to}{unit}", h.label)
             })
             .collect();
         println!("  moved with it, at the answer: {}", list.join(", "));

@@ -55,14 +55,16 @@ fn line_hint(line: &str) -> Option<String> {
         return Some("the key has no value".to_string());
     }
     let digits = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
-    if let Ok(typed) = value[..value.len().saturating_sub(1)].trim().parse::<f64>() {
-        if value.ends_with('%') {
-            // The figure typed, as a decimal (found by review: `3.2%` was shown 0.0267).
-            return Some(format!(
-                "{value} is not a number: write a rate as a decimal, without the % sign ({})",
-                crate::error::decimal_example(typed)
-            ));
-        }
+    // The figure typed, as a decimal (found by review: `3.2%` was shown 0.0267). The sign is
+    // taken off as a character: a byte cut once split a `€` and panicked (found by review).
+    if let Some(typed) = value
+        .strip_suffix('%')
+        .and_then(|t| t.trim().parse::<f64>().ok())
+    {
+        return Some(format!(
+            "{value} is not a number: write a rate as a decimal, without the % sign ({})",
+            crate::error::decimal_example(typed)
+        ));
     }
     let date_parts: Vec<&str> = value.split(['/', '.']).collect();
     if date_parts.len() == 3 && date_parts.iter().all(|p| digits(p)) {

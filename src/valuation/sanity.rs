@@ -500,7 +500,7 @@ pub fn check_rate_argument(text: &str) -> std::result::Result<f64, String> {
         match percent {
             Some(typed) => format!(
                 "`{text}` is not a number: rates are decimals, without the % sign ({})",
-                crate::error::decimal_example(typed)
+                crate::error::decimal_example_in(typed, (-0.5, 1.0))
             ),
             None => format!("`{text}` is not a number"),
         }
@@ -512,7 +512,7 @@ pub fn check_rate_argument(text: &str) -> std::result::Result<f64, String> {
         return Err(format!(
             "{} is outside [-0.5, 1): rates are decimals ({})",
             show(value),
-            crate::error::decimal_example(value)
+            crate::error::decimal_example_in(value, (-0.5, 1.0))
         ));
     }
     Ok(value)
