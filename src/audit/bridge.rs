@@ -421,7 +421,7 @@ fn missing_components(table: &toml::Table) -> std::result::Result<(), String> {
         [] => Ok(()),
         keys => Err(format!(
             "[claimed] lacks {}: a bridge needs every component of the build-up (README, Claimed \
-             build-up files); for a WACC alone, `hurdle implied --wacc` takes it",
+             build-up files); a WACC alone is given to `hurdle implied` as a number instead",
             keys.join(", ")
         )),
     }
