@@ -67,6 +67,9 @@ fn is_input_location(path: &str) -> bool {
     let allowed = [
         ".case.file",
         ".case.sha256",
+        // The bridge's starting side records the case file it ran (since 0.17.0).
+        ".reconciliation.from.source",
+        ".reconciliation.from.sha256",
         ".generated_at",
         ".settings.sources.",
         ".settings.market.index.prices",
