@@ -77,12 +77,10 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         let prices = std::iter::once(&inputs.index)
             .chain(inputs.risk_free.as_ref())
             .chain(&inputs.peers);
-        let same = !receipt.universe
-            && receipt.case_sha256 == inputs.case.sha256
-            && receipt.overrides == inputs.case.overrides
-            && prices
-                .into_iter()
-                .all(|f| receipt.file_hashes.contains(&f.sha256));
+        let same = receipt.of_the_same_inputs(
+            (&inputs.case.sha256, &inputs.case.overrides),
+            prices.map(|f| f.sha256.as_str()),
+        );
         if !same {
             println!(
                 "  note: the result.json in {} is {}; rolling.csv now follows this command's \

@@ -60,7 +60,7 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
     for path in written {
         println!("  wrote {}", path.display());
     }
-    if let Some(e) = earlier.filter(|e| another_valuation(e, &valuation)) {
+    if let Some(e) = earlier.filter(|e| e.of_another_valuation(&valuation.case)) {
         match e.universe {
             true => println!(
                 "  replaced the receipt of a universe run ({}); its tables are taken away",
@@ -87,17 +87,6 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         println!("  removed {} ({why})", out.join(name).display());
     }
     Ok(())
-}
-
-/// Whether an earlier receipt in the output folder is of another valuation: a universe's, or a
-/// case of another title, valuation date or case file name (the folders the path was typed
-/// from do not count: the same case is run from its own folder and from above it).
-fn another_valuation(e: &report::earlier::EarlierReceipt, v: &Valuation) -> bool {
-    let name = |path: &str| std::path::Path::new(path).file_name().map(|n| n.to_owned());
-    e.universe
-        || e.valuation_date != v.case.valuation_date.to_string()
-        || e.title != v.case.title
-        || name(&e.case_file) != name(&v.case.file)
 }
 
 /// The headline's intervals: the betas' estimation error, and the peer set resampled (nothing

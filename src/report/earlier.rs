@@ -28,6 +28,33 @@ pub struct EarlierReceipt {
     pub wacc: Option<f64>,
 }
 
+impl EarlierReceipt {
+    /// Whether this receipt is of another valuation than the case `now` ran: a universe's, or
+    /// a case of another title, valuation date or case file name (the folders the path was
+    /// typed from do not count: the same case is run from its own folder and from above it).
+    pub fn of_another_valuation(&self, now: &crate::valuation::records::CaseRecord) -> bool {
+        let name = |path: &str| Path::new(path).file_name().map(|n| n.to_owned());
+        self.universe
+            || self.valuation_date != now.valuation_date.to_string()
+            || self.title != now.title
+            || name(&self.case_file) != name(&now.file)
+    }
+
+    /// Whether this receipt was written from the same case file, `--set` overrides and price
+    /// files (`prices`, their SHA-256) as a command now reading them: else the outputs beside
+    /// it no longer follow it.
+    pub fn of_the_same_inputs<'a>(
+        &self,
+        (case_sha256, overrides): (&str, &[String]),
+        prices: impl IntoIterator<Item = &'a str>,
+    ) -> bool {
+        !self.universe
+            && self.case_sha256 == case_sha256
+            && self.overrides == overrides
+            && (prices.into_iter()).all(|hash| self.file_hashes.iter().any(|h| h == hash))
+    }
+}
+
 /// The earlier run's receipt in `dir`, when there is one (a universe's too, whose case fields
 /// are empty): read once for both uses, the notice and [`super::stale_run_outputs`].
 pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
