@@ -317,6 +317,16 @@ fn a_title_above_the_table_is_named_with_the_row_its_header_starts_on() {
 #[test]
 fn a_first_column_of_numbers_points_to_the_column_of_dates() {
     let folder = Folder::new();
+    // A sheet named for a CSV table: init's own option is named, not the case's key (found
+    // by review: "drop `sheet`").
+    let plain = folder.write("plain.csv", "date,Index,Alder\n2024-01-31,100,10\n");
+    let stderr = folder.init_fails(&plain, &["--index", "Index", "--sheet", "Prices"]);
+    assert!(
+        stderr.contains(
+            "plain.csv: --sheet \"Prices\" is given, but a CSV file has no sheets; drop --sheet"
+        ),
+        "{stderr}"
+    );
     let csv = folder.write(
         "index_first.csv",
         "Index,date,Alder\n100,2024-01-31,10\n99,2024-02-29,11\n101,2024-03-28,12\n",

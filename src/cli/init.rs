@@ -186,7 +186,10 @@ fn in_init_terms(error: hurdle::Error) -> hurdle::Error {
                     "name the one with the prices with --sheet",
                     1,
                 )
-                .replacen(NAME_THE_DATE_COLUMN, "--date-column names another", 1),
+                .replacen(NAME_THE_DATE_COLUMN, "--date-column names another", 1)
+                // Found by review: `init table.csv --sheet X` was told to drop `sheet`.
+                .replacen(hurdle::io::tables::SHEET_GIVEN, "--sheet ", 1)
+                .replacen(hurdle::io::tables::DROP_THE_SHEET, "drop --sheet", 1),
         },
         other => other,
     }

@@ -26,6 +26,11 @@ pub use cells::{column_letters, Cell, Place, PlaceKind};
 pub use header::{header_key, NAME_THE_DATE_COLUMN};
 pub use workbook::NAME_THE_SHEET;
 
+/// The case's words for a sheet named where none can be (a command with its own option for it,
+/// `init --sheet`, puts its option in their place).
+pub const SHEET_GIVEN: &str = "`sheet` = ";
+pub const DROP_THE_SHEET: &str = "drop `sheet`";
+
 /// The file formats a wide table may come in, told apart by the file's extension.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum TableFormat {
@@ -125,7 +130,7 @@ impl PriceTable {
         };
         if sheet.is_some() && format != TableFormat::Workbook {
             return Err(fail(format!(
-                "`sheet` = \"{}\" is given, but a {} file has no sheets; drop `sheet`",
+                "{SHEET_GIVEN}\"{}\" is given, but a {} file has no sheets; {DROP_THE_SHEET}",
                 sheet.unwrap_or_default(),
                 if format == TableFormat::Csv {
                     "CSV"
