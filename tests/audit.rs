@@ -1524,6 +1524,42 @@ fn a_claims_debt_to_capital_beside_preferred_equity_says_how_it_is_read() {
     );
 }
 
+// A beta-scaled country premium sits in the bridge's premiums line at the case's own beta
+// (βL × CRP: 2% times the relevered beta result.json records), which the note says, so a
+// reader does not take the beta line for the whole effect of the beta (found by review).
+#[test]
+fn compare_says_a_beta_scaled_country_premium_stays_in_the_premiums_line() {
+    let (dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let edited = std::fs::read_to_string(&case).unwrap();
+    let edited = edited
+        .replace(
+            "country = 0.0",
+            "country = 0.02\ncountry_justification = \"a test\"",
+        )
+        .replacen(
+            "country_method = \"flat\"",
+            "country_method = \"beta-scaled\"",
+            1,
+        );
+    std::fs::write(&case, edited).unwrap();
+    let run = run_case(&case, &dir.path().join("out"), &[]);
+    let beta = run["beta"]["relevered"].as_f64().unwrap();
+    let output = hurdle(&[
+        "compare",
+        case.to_str().unwrap(),
+        case_dir.join("claimed.toml").to_str().unwrap(),
+    ]);
+    let report = text(&output);
+    assert!(output.status.success(), "{report}");
+    let expected = format!(
+        "βL × CRP = {:.2}% at βL {:.3}: the bridge carries it in the premiums line",
+        2.0 * beta,
+        beta
+    );
+    assert!(report.contains(&expected), "{expected} not in {report}");
+}
+
 // `--solve all` lists every input with the value that reproduces the claim alone; each case
 // key's value, set back in, gives the claim (1e-10, as above), and the beta's equals what
 // `--solve beta` finds (the same search, so the same double). A claim no input reaches within

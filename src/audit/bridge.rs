@@ -22,7 +22,7 @@ pub use crate::valuation::analyses::{Bridge, BuildUp, Group, Side, Step};
 use crate::valuation::{load_inputs, value, Valuation};
 
 mod case_notes;
-pub use case_notes::case_notes;
+pub use case_notes::{case_notes, scaled_premium_notes};
 
 /// `[claimed]`: a build-up handed over by someone else.
 #[derive(Debug, Clone, Deserialize)]
@@ -166,6 +166,8 @@ pub struct CaseFacts {
     pub settings: serde_json::Value,
     /// Each data file's role and SHA-256.
     pub files: Vec<(String, String)>,
+    /// A country premium scaled by the relevered beta, as applied, and that beta.
+    pub beta_scaled_country: Option<(f64, f64)>,
 }
 
 impl CaseFacts {
@@ -237,6 +239,10 @@ impl CaseFacts {
                         .map(|t| ("spread table".to_string(), t.sha256.clone())),
                 )
                 .collect(),
+            beta_scaled_country: (cost.premiums.country_method
+                == crate::capital::cost::CountryMethod::BetaScaled
+                && cost.premiums.country_applied != 0.0)
+                .then_some((cost.premiums.country_applied, cost.beta.relevered)),
         }
     }
 }

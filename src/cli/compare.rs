@@ -98,6 +98,9 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
     out.push_str(&bridge_table(b));
     out.push_str(&notes(b, csv));
     out.push_str(&side_notes(b));
+    for note in hurdle::audit::bridge::scaled_premium_notes(b, facts) {
+        out.push_str(&format!("note: {note}\n"));
+    }
     if let [Some(from), Some(to)] = facts {
         for note in hurdle::audit::bridge::case_notes(b, from, to) {
             out.push_str(&format!("note: {note}\n"));

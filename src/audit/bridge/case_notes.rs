@@ -4,6 +4,27 @@
 
 use super::{Bridge, CaseFacts};
 
+/// A case side whose country premium is scaled by its relevered beta: the bridge carries the
+/// premium, at that side's beta, in the premiums line, so the beta line does not move it
+/// (found by review: `compare` and `implied` split it differently, unsaid).
+pub fn scaled_premium_notes(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> Vec<String> {
+    let sides = [&b.from, &b.to];
+    (sides.iter().zip(facts))
+        .filter_map(|(side, facts)| {
+            let (applied, beta) = facts?.beta_scaled_country?;
+            Some(format!(
+                "the premiums of \"{}\" include a country premium scaled by its relevered beta, \
+                 βL × CRP = {}% at βL {}: the bridge carries it in the premiums line, so the beta \
+                 line does not move it (`hurdle implied`, solving for the beta, moves it with the \
+                 beta)",
+                side.label,
+                crate::error::rounded(applied * 100.0, 2),
+                crate::error::rounded(beta, 3),
+            ))
+        })
+        .collect()
+}
+
 /// Notes for two cases: the peers in one aggregate and not the other (they move the beta line
 /// through the unlevered beta), and a cost of debt built on the risk-free rate (a change in the
 /// rate then moves the cost of debt line too).
