@@ -1560,6 +1560,24 @@ fn compare_says_a_beta_scaled_country_premium_stays_in_the_premiums_line() {
     assert!(report.contains(&expected), "{expected} not in {report}");
 }
 
+// The beta line between sides of different D/E carries leverage: the note takes each side's
+// relevered beta back to an asset beta by Hamada at its own structure (the demo's claim: 1.10
+// at D/E 0.5 and 25% tax is 1.10 / 1.375 = 0.800; the case's relevered beta over 1 + 0.75 ×
+// 0.4, from result.json; worked by hand).
+#[test]
+fn compare_gives_each_sides_asset_beta_when_the_structures_differ() {
+    let out = tempfile::tempdir().unwrap();
+    let run = run_case(Path::new(DEMO_CASE), out.path(), &[]);
+    let case_asset = run["beta"]["relevered"].as_f64().unwrap() / (1.0 + 0.75 * 0.4);
+    let claim = DEMO_CASE.replace("case.toml", "claimed.toml");
+    let report = text(&hurdle(&["compare", DEMO_CASE, &claim]));
+    let expected = format!(
+        "they are {case_asset:.3} and {:.3}, which is what the beta line",
+        1.10 / 1.375
+    );
+    assert!(report.contains(&expected), "{expected} not in {report}");
+}
+
 // `--solve all` lists every input with the value that reproduces the claim alone; each case
 // key's value, set back in, gives the claim (1e-10, as above), and the beta's equals what
 // `--solve beta` finds (the same search, so the same double). A claim no input reaches within

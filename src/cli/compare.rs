@@ -257,11 +257,21 @@ fn notes(b: &Bridge, csv: bool) -> String {
     // Only when the D/E differs (found by review: said of two cases of one D/E).
     // (Also when preferred equity on one side makes the weights' products differ by rounding.)
     if b.structures_differ() {
-        out.push_str(
+        let asset = match (b.from.asset_beta(), b.to.asset_beta()) {
+            (Some(from), Some(to)) => format!(
+                "; taken back to asset betas at each side's own D/E and tax rate (Hamada, \
+                 riskless debt) they are {} and {}, which is what the beta line holds besides \
+                 leverage",
+                fixed(from, 3),
+                fixed(to, 3)
+            ),
+            _ => String::new(),
+        };
+        out.push_str(&format!(
             "note: each group is the figure the build-up carries: the beta is the relevered \
              beta, so a different D/E moves the beta line as well as the weights line (the \
-             weights step does not relever it)\n",
-        );
+             weights step does not relever it){asset}\n",
+        ));
     }
     out
 }

@@ -399,6 +399,28 @@ impl Side {
         (gap.abs() >= 5e-6).then_some(gap)
     }
 
+    /// The side's relevered beta taken back to an asset beta at its own D/E and tax rate by
+    /// Hamada's formula, βL / (1 + (1 − t)·D/E), riskless debt: the part of the bridge's beta line
+    /// that is not leverage, comparable across sides of different D/E (found by review: a beta
+    /// line of +47 bp between asset betas of 0.784 and 0.786 was all leverage, unsaid). `None`
+    /// without equity.
+    pub fn asset_beta(&self) -> Option<f64> {
+        let b = &self.build_up;
+        (b.equity_weight > 0.0).then(|| {
+            crate::capital::leverage::Formula::Hamada.unlever_with(
+                b.beta,
+                crate::capital::leverage::CapitalStructure {
+                    debt_to_equity: b.debt_weight / b.equity_weight,
+                    tax_rate: b.tax_rate,
+                },
+                crate::capital::leverage::DebtTerms {
+                    debt_beta: 0.0,
+                    cost_of_debt: 0.0,
+                },
+            )
+        })
+    }
+
     /// The build-up of a computed valuation.
     pub fn from_valuation(label: &str, valuation: &Valuation) -> Side {
         let c = &valuation.cost;
