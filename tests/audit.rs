@@ -1578,6 +1578,34 @@ fn compare_gives_each_sides_asset_beta_when_the_structures_differ() {
     assert!(report.contains(&expected), "{expected} not in {report}");
 }
 
+// A claim's stated cost of equity is checked against its components by CAPM, rf + β·ERP +
+// premiums: 3% + 1.2 × 5.5% + 1.5% = 11.10% (worked by hand) against a stated 12%, 90 bp; one
+// that agrees gets no note (found by review: a one-pager's Ke could not be written down).
+#[test]
+fn a_claims_stated_cost_of_equity_is_checked_against_its_components() {
+    let dir = tempfile::tempdir().unwrap();
+    let claim = |ke: f64| {
+        let path = dir.path().join(format!("ke{ke}.toml"));
+        let text = format!(
+            "[claimed]\nwacc = 0.089\ncost_of_equity = {ke}\nrisk_free_rate = 0.03\n\
+             equity_risk_premium = 0.055\nbeta = 1.2\npremiums = 0.015\n\
+             cost_of_debt_pre_tax = 0.055\ntax_rate = 0.25\ndebt_to_equity = 0.4\n"
+        );
+        std::fs::write(&path, text).unwrap();
+        path.to_str().unwrap().to_string()
+    };
+    let report = text(&hurdle(&["compare", DEMO_CASE, &claim(0.12)]));
+    assert!(
+        report.contains(
+            "the stated cost of equity, 12.00%, is not what rf + β·ERP + premiums give, 11.10%: \
+             90 bp"
+        ),
+        "{report}"
+    );
+    let report = text(&hurdle(&["compare", DEMO_CASE, &claim(0.111)]));
+    assert!(!report.contains("the stated cost of equity"), "{report}");
+}
+
 // `--solve all` lists every input with the value that reproduces the claim alone; each case
 // key's value, set back in, gives the claim (1e-10, as above), and the beta's equals what
 // `--solve beta` finds (the same search, so the same double). A claim no input reaches within

@@ -383,6 +383,10 @@ pub struct Side {
     /// the claim also holds preferred equity or leases, where "of capital" reads two ways).
     #[serde(skip)]
     pub debt_to_capital: Option<f64>,
+    /// The cost of equity a claim states beside its components, when it states one (since
+    /// 0.17.0): recorded, and noted when the components give another; the bridge uses them.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub stated_cost_of_equity: Option<f64>,
 }
 
 impl Side {
@@ -449,6 +453,7 @@ impl Side {
             as_of: None,
             currency: None,
             debt_to_capital: None,
+            stated_cost_of_equity: None,
         }
     }
 }

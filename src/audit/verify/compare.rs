@@ -166,6 +166,7 @@ const ADDED_IN: [(&str, &[&str]); 11] = [
             "peer_set.figures.unlevered.market_cap_weighted_effective_count",
             "peer_set.figures.operations.market_cap_weighted_effective_count",
             "cautions.riskless_debt_above_risk_free",
+            "reconciliation.to.stated_cost_of_equity",
         ],
     ),
 ];

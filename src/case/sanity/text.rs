@@ -348,8 +348,9 @@ pub fn check_claimed_text(text: &str) -> std::result::Result<(), String> {
         return Err(message);
     }
     let most_de = super::MAX_DEBT_TO_EQUITY;
-    let bounds: [(&str, f64, f64, bool); 13] = [
+    let bounds: [(&str, f64, f64, bool); 14] = [
         ("claimed.risk_free_rate", -0.5, 1.0, false),
+        ("claimed.cost_of_equity", -0.5, 1.0, false),
         ("claimed.preferred_weight", 0.0, 1.0, false),
         ("claimed.lease_weight", 0.0, 1.0, false),
         ("claimed.preferred_cost", 0.0, 1.0, false),
