@@ -262,10 +262,13 @@ pub fn read_side(path: &Path, written: &str) -> Result<Side> {
 /// A case file as a side: run, and its build-up, date and facts taken from the valuation.
 fn case_side(path: &Path, written: &str) -> Result<(Side, Option<CaseFacts>)> {
     let valuation = value(&load_inputs(read_case(path, &[])?)?, "")?;
-    let mut side = Side::from_valuation(&valuation.case.title, &valuation);
-    side.source = written.to_string();
-    side.as_of = Some(valuation.case.valuation_date.to_string());
-    side.currency = Some(valuation.case.currency.clone());
+    // Built whole: the file as the user wrote it, the case's date and currency.
+    let side = Side {
+        source: written.to_string(),
+        as_of: Some(valuation.case.valuation_date.to_string()),
+        currency: Some(valuation.case.currency.clone()),
+        ..Side::from_valuation(&valuation.case.title, &valuation)
+    };
     Ok((side, Some(CaseFacts::of(&valuation))))
 }
 

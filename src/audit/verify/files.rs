@@ -30,6 +30,11 @@ pub struct FileCheck {
 }
 
 impl FileCheck {
+    /// The check with what changed in a changed file (its rows, dates, sheet and column).
+    pub fn with_changes(self, changes: Vec<String>) -> FileCheck {
+        FileCheck { changes, ..self }
+    }
+
     /// The check of one role from what the receipt records and what the rerun read, each a
     /// (path, SHA-256) when present.
     pub fn new(
@@ -116,9 +121,9 @@ pub struct FileGroup<'a> {
 impl FileGroup<'_> {
     /// The group's state in words, as [`FileCheck::describe`] gives one check's.
     pub fn describe(&self) -> String {
-        let mut check = self.check.clone();
-        check.changes = self.changes.clone();
-        check.describe()
+        (self.check.clone())
+            .with_changes(self.changes.clone())
+            .describe()
     }
 }
 
@@ -277,15 +282,14 @@ pub(super) fn file_checks(recorded: &Value, rerun: &crate::valuation::Valuation)
             // A missing hash is kept empty: the check says the receipt has none.
             let sha256 = f["sha256"].as_str().unwrap_or("").to_string();
             let path = f["path"].as_str().or(f["source"].as_str()).unwrap_or("");
-            let mut check =
-                FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role));
-            if let Some(file) = (check.status == "changed")
+            let check = FileCheck::new(role.clone(), Some((path.to_string(), sha256)), now(role));
+            let changed = (check.status == "changed")
                 .then(|| rerun.files.iter().find(|d| d.role == *role))
-                .flatten()
-            {
-                check.changes = changes(f, file);
+                .flatten();
+            match changed {
+                Some(file) => check.with_changes(changes(f, file)),
+                None => check,
             }
-            check
         })
         .collect();
     // Files the case reads now that the receipt does not have (a peer added since), unless

@@ -109,12 +109,12 @@ fn file_checks(recorded: &Value, rerun: &UniverseResult) -> Vec<FileCheck> {
                 (path.to_string(), sha256.to_string())
             });
             let now = now.clone();
-            let mut check = (was.is_some() || now.is_some())
+            let check = (was.is_some() || now.is_some())
                 .then(|| FileCheck::new(role.to_string(), was, now))?;
-            if check.status == "changed" {
-                check.changes = changes(file, &files_now[role]);
-            }
-            Some(check)
+            Some(match check.status == "changed" {
+                true => check.with_changes(changes(file, &files_now[role])),
+                false => check,
+            })
         })
         .collect()
 }
