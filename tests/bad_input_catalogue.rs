@@ -2110,7 +2110,11 @@ fn case_files() -> Vec<Bad> {
             "reconcile file missing",
             |s| s.edit_case("claimed = \"claimed.toml\"", "claimed = \"gone.toml\""),
             ["run", "{case}", "--out", "{out}"],
-            ["gone.toml", "No such file"]
+            [
+                "gone.toml",
+                "the claimed build-up that the case's reconcile.claimed names",
+                "No such file"
+            ]
         ),
         bad!(
             "empty exclusion reason",

@@ -59,7 +59,17 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
     let reconciliation = match &inputs.case.settings.reconcile {
         Some(reconcile) => {
             let path = inputs.case.resolve(&reconcile.claimed);
-            let claimed = bridge::read_side(&path, &reconcile.claimed)?;
+            // Named as the case's claim (found by review: a bundle without its claim said only
+            // "cannot read").
+            let claimed = bridge::read_side(&path, &reconcile.claimed).map_err(|e| match e {
+                Error::Io { path, source, .. } => Error::Io {
+                    path,
+                    action: "cannot read the claimed build-up that the case's reconcile.claimed \
+                             names",
+                    source,
+                },
+                other => other,
+            })?;
             notes.extend(bridge::notes_beside_case(&base, &claimed, false));
             let ours = bridge::Side::from_valuation("this case", &base);
             Some(bridge::bridge(&ours, &claimed))

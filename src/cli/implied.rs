@@ -521,14 +521,26 @@ fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) 
                 }
                 _ => String::new(),
             };
+            // A WACC the input does not move (found by review: "runs from 3.614% to 3.614%",
+            // with a zero ERP and the beta solved for).
+            let runs = match r.wacc_max - r.wacc_min <= 1e-12 * r.wacc_max.abs() {
+                true => format!(
+                    "the WACC there is {} throughout: {} does not move it under the case's \
+                     settings",
+                    percent(r.wacc_min, 3),
+                    r.key
+                ),
+                false => format!(
+                    "the WACC there runs from {} to {}",
+                    percent(r.wacc_min, 3),
+                    percent(r.wacc_max, 3)
+                ),
+            };
             println!(
-                "no value of {} in [{}, {}]{given} reproduces it: the WACC there runs from {} to \
-                 {}",
+                "no value of {} in [{}, {}]{given} reproduces it: {runs}",
                 r.key,
                 show(r.range.0),
                 show(r.range.1),
-                percent(r.wacc_min, 3),
-                percent(r.wacc_max, 3)
             );
             refusals();
             ExitCode::from(1)
