@@ -1572,10 +1572,22 @@ fn compare_gives_each_sides_asset_beta_when_the_structures_differ() {
     let claim = DEMO_CASE.replace("case.toml", "claimed.toml");
     let report = text(&hurdle(&["compare", DEMO_CASE, &claim]));
     let expected = format!(
-        "they are {case_asset:.3} and {:.3}, which is what the beta line",
+        "the relevered betas are {case_asset:.3} and {:.3}, which is what the beta line",
         1.10 / 1.375
     );
     assert!(report.contains(&expected), "{expected} not in {report}");
+    // A case that unlevers otherwise (Harris–Pringle) gets no Hamada figures beside its own
+    // (found by review: 0.794 beside the case's 0.737).
+    let (_dir, case_dir) = demo_copy();
+    let case = case_dir.join("case.toml");
+    let edited = std::fs::read_to_string(&case).unwrap().replacen(
+        "formula = \"hamada\"",
+        "formula = \"harris-pringle\"",
+        1,
+    );
+    std::fs::write(&case, edited).unwrap();
+    let report = text(&hurdle(&["compare", case.to_str().unwrap(), &claim]));
+    assert!(!report.contains("taken back to asset betas"), "{report}");
 }
 
 // A claim's stated cost of equity is checked against its components by CAPM, rf + β·ERP +
@@ -1597,13 +1609,22 @@ fn a_claims_stated_cost_of_equity_is_checked_against_its_components() {
     let report = text(&hurdle(&["compare", DEMO_CASE, &claim(0.12)]));
     assert!(
         report.contains(
-            "the stated cost of equity, 12.00%, is not what rf + β·ERP + premiums give, 11.10%: \
-             90 bp"
+            "the stated cost of equity, 12.000%, is not what rf + β·ERP + premiums give, \
+             11.100%: 90.0 bp"
         ),
         "{report}"
     );
     let report = text(&hurdle(&["compare", DEMO_CASE, &claim(0.111)]));
     assert!(!report.contains("the stated cost of equity"), "{report}");
+    // At the threshold, half a basis point as shown (a tenth of one), either side alike.
+    for (ke, noted) in [(0.11105, true), (0.11095, true), (0.11104, false)] {
+        let report = text(&hurdle(&["compare", DEMO_CASE, &claim(ke)]));
+        assert_eq!(
+            report.contains("the stated cost of equity"),
+            noted,
+            "{ke}: {report}"
+        );
+    }
 }
 
 // `--solve all` lists every input with the value that reproduces the claim alone; each case

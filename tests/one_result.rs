@@ -209,6 +209,22 @@ fn few_peers_are_cautioned_wherever_cautions_are_printed() {
     }
 }
 
+// README's caution on charts stands among the memo's cautions when charts are drawn, and not
+// when `--no-figures` draws none (README, "Cautions").
+#[test]
+fn the_memo_cautions_on_charts_only_when_it_has_them() {
+    let dir = tempfile::tempdir().unwrap();
+    for (extra, drawn) in [(None, true), (Some("--no-figures"), false)] {
+        let out = dir.path().join(format!("out{drawn}"));
+        let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
+        args.extend(extra);
+        let output = hurdle(&args);
+        assert!(output.status.success(), "{output:?}");
+        let caution = "- **Charts.** The charts draw the same estimates as the tables";
+        assert_eq!(memo(&out).contains(caution), drawn);
+    }
+}
+
 // Riskless debt beside a cost of debt above the risk-free rate (the demo: no debt beta, a given
 // 4.63% against a yield of about 2.7%) is recorded in the result and the memo says it from
 // there; a given cost of debt below the rate, or a debt beta from the spread, records false

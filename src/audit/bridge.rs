@@ -23,7 +23,7 @@ use crate::valuation::{load_inputs, value, Valuation};
 
 mod case_notes;
 mod claim_notes;
-pub use case_notes::{case_notes, scaled_premium_notes};
+pub use case_notes::{asset_beta_note, case_notes, scaled_premium_notes};
 pub use claim_notes::claim_notes;
 
 /// `[claimed]`: a build-up handed over by someone else.

@@ -311,6 +311,14 @@ impl Implied {
             .is_some_and(|wacc| (wacc - self.claimed_wacc).abs() <= REPRODUCED)
     }
 
+    /// Whether the WACC over the range searched is flat to the three decimals of a percent a
+    /// reader is shown (a spread under 5e-6): the input barely moves it under the case's
+    /// settings (an ERP of about 0 with the beta solved for, a beta of about 0 with the ERP;
+    /// found by review: "runs from 3.614% to 3.614%").
+    pub fn wacc_flat(&self) -> bool {
+        self.wacc_max - self.wacc_min < 5e-6
+    }
+
     /// The value found less the case's own: in basis points for a rate or premium, as a plain
     /// difference for a beta or a D/E (found by review: the command line computed it).
     pub fn change(&self) -> Option<Change> {

@@ -62,8 +62,13 @@ pub fn evaluate(inputs: &Inputs, generated_at: &str) -> Result<Valuation> {
             // Named as the case's claim (found by review: a bundle without its claim said only
             // "cannot read").
             let claimed = bridge::read_side(&path, &reconcile.claimed).map_err(|e| match e {
-                Error::Io { path, source, .. } => Error::Io {
-                    path,
+                // The claim file itself, not a file a claimed case reads.
+                Error::Io {
+                    path: failed,
+                    source,
+                    ..
+                } if failed == path => Error::Io {
+                    path: failed,
                     action: "cannot read the claimed build-up that the case's reconcile.claimed \
                              names",
                     source,

@@ -98,7 +98,10 @@ fn render(b: &Bridge, facts: [Option<&CaseFacts>; 2], csv: bool) -> String {
     out.push_str(&bridge_table(b));
     out.push_str(&notes(b, csv));
     out.push_str(&side_notes(b));
-    for note in hurdle::audit::bridge::scaled_premium_notes(b, facts) {
+    let library = hurdle::audit::bridge::scaled_premium_notes(b, facts)
+        .into_iter()
+        .chain(hurdle::audit::bridge::asset_beta_note(b, facts));
+    for note in library {
         out.push_str(&format!("note: {note}\n"));
     }
     if let [Some(from), Some(to)] = facts {
@@ -257,21 +260,11 @@ fn notes(b: &Bridge, csv: bool) -> String {
     // Only when the D/E differs (found by review: said of two cases of one D/E).
     // (Also when preferred equity on one side makes the weights' products differ by rounding.)
     if b.structures_differ() {
-        let asset = match (b.from.asset_beta(), b.to.asset_beta()) {
-            (Some(from), Some(to)) => format!(
-                "; taken back to asset betas at each side's own D/E and tax rate (Hamada, \
-                 riskless debt) they are {} and {}, which is what the beta line holds besides \
-                 leverage",
-                fixed(from, 3),
-                fixed(to, 3)
-            ),
-            _ => String::new(),
-        };
-        out.push_str(&format!(
+        out.push_str(
             "note: each group is the figure the build-up carries: the beta is the relevered \
              beta, so a different D/E moves the beta line as well as the weights line (the \
-             weights step does not relever it){asset}\n",
-        ));
+             weights step does not relever it)\n",
+        );
     }
     out
 }

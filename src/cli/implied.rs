@@ -317,13 +317,21 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
         (None, _) => (
             "n/a".into(),
             String::new(),
-            format!(
-                "none in {} to {} (WACC {} to {})",
-                show(r.range.0),
-                show(r.range.1),
-                percent(r.wacc_min, 3),
-                percent(r.wacc_max, 3)
-            ),
+            match r.wacc_flat() {
+                true => format!(
+                    "none in {} to {}: the WACC is {} throughout, the input does not move it",
+                    show(r.range.0),
+                    show(r.range.1),
+                    percent(r.wacc_min, 3)
+                ),
+                false => format!(
+                    "none in {} to {} (WACC {} to {})",
+                    show(r.range.0),
+                    show(r.range.1),
+                    percent(r.wacc_min, 3),
+                    percent(r.wacc_max, 3)
+                ),
+            },
         ),
     };
     let note = match refusal_text(r) {
@@ -523,10 +531,10 @@ fn print_answer(r: &hurdle::audit::implied::Implied, range: Option<(f64, f64)>) 
             };
             // A WACC the input does not move (found by review: "runs from 3.614% to 3.614%",
             // with a zero ERP and the beta solved for).
-            let runs = match r.wacc_max - r.wacc_min <= 1e-12 * r.wacc_max.abs() {
+            let runs = match r.wacc_flat() {
                 true => format!(
                     "the WACC there is {} throughout: {} does not move it under the case's \
-                     settings",
+                     settings, to the decimals shown",
                     percent(r.wacc_min, 3),
                     r.key
                 ),

@@ -4,6 +4,30 @@
 
 use super::{Bridge, CaseFacts};
 
+/// Each side's relevered beta taken back to an asset beta by Hamada at its own D/E and tax
+/// rate, when the structures or the tax rates differ (the beta line then carries leverage) and
+/// every case side unlevers by Hamada with riskless debt, so the figures are the ones the case
+/// itself would give (found by review: under Harris–Pringle the note's 0.794 contradicted the
+/// case's own 0.737). `None` otherwise.
+pub fn asset_beta_note(b: &Bridge, facts: [Option<&CaseFacts>; 2]) -> Option<String> {
+    let taxes_differ = b.from.build_up.tax_rate != b.to.build_up.tax_rate;
+    let hamada = |f: &CaseFacts| {
+        let leverage = &f.settings["leverage"];
+        leverage["formula"] == "hamada" && leverage["debt_beta_source"] == "none"
+    };
+    if !(b.structures_differ() || taxes_differ) || !facts.iter().flatten().all(|f| hamada(f)) {
+        return None;
+    }
+    let (from, to) = (b.from.asset_beta()?, b.to.asset_beta()?);
+    Some(format!(
+        "taken back to asset betas at each side's own D/E and tax rate (Hamada, riskless debt) \
+         the relevered betas are {} and {}, which is what the beta line holds besides leverage \
+         and tax",
+        crate::error::rounded(from, 3),
+        crate::error::rounded(to, 3)
+    ))
+}
+
 /// A case side whose country premium is scaled by its relevered beta: the bridge carries the
 /// premium, at that side's beta, in the premiums line, so the beta line does not move it
 /// (found by review: `compare` and `implied` split it differently, unsaid).

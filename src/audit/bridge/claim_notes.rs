@@ -69,16 +69,19 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
     });
     // A stated cost of equity its own components do not give, to half a basis point (found by
     // review: a one-pager's Ke of 12% beside rf + β·ERP + premiums of 11.1%).
+    // The gap in basis points to one decimal, as shown, decides (found by review: a gap of
+    // −0.5 bp was noted and +0.5 bp not).
     let components = b.cost_of_equity();
     let equity = (side.stated_cost_of_equity)
-        .filter(|&ke| (ke - components).abs() >= 0.5e-4)
-        .map(|ke| {
+        .map(|ke| (ke, ((ke - components) * 1e5).round() / 10.0))
+        .filter(|&(_, gap_bp)| gap_bp.abs() >= 0.5)
+        .map(|(ke, gap_bp)| {
             format!(
                 "Check: the stated cost of equity, {}%, is not what rf + β·ERP + premiums give, \
-                 {}%: {} bp its components do not explain (the bridge uses the components).",
-                crate::error::rounded(ke * 100.0, 2),
-                crate::error::rounded(components * 100.0, 2),
-                crate::error::rounded((ke - components) * 1e4, 0),
+                 {}%: {} bp its components do not explain.",
+                crate::error::rounded(ke * 100.0, 3),
+                crate::error::rounded(components * 100.0, 3),
+                crate::error::rounded(gap_bp, 1),
             )
         });
     (crate::valuation::plausibility(&figures).into_iter())
