@@ -403,18 +403,13 @@ fn terms_with(
     debt_beta: f64,
     cost_of_debt: Option<f64>,
 ) -> PeerTerms {
-    let cost_of_debt_used = CostOfDebtUse::of(spec, peer);
+    let (e, d, c) = (peer.equity_value, peer.debt, peer.cash);
     PeerTerms {
-        debt_to_equity: leverage::firm_debt_to_equity(
-            spec.debt_measure,
-            peer.equity_value,
-            peer.debt,
-            peer.cash,
-        ),
+        debt_to_equity: leverage::firm_debt_to_equity(spec.debt_measure, e, d, c),
         debt_beta,
         cost_of_debt,
-        cost_of_debt_used,
-        operating_share: leverage::operating_share(peer.equity_value, peer.debt, peer.cash),
+        cost_of_debt_used: CostOfDebtUse::of(spec, peer),
+        operating_share: leverage::operating_share(e, d, c),
     }
 }
 

@@ -276,37 +276,7 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
                 Some(Change::BasisPoints(bp)) => format!("{} bp", signed(fixed(bp, 1))),
                 None => String::new(),
             };
-            let mut note = format!("exact: {value}");
-            if r.key == "target.debt_to_capital" {
-                note.push_str(&format!(
-                    "; as D/E {}",
-                    fixed(hurdle::capital::cost::debt_to_equity_from_capital(value), 4)
-                ));
-            }
-            if r.does_not_move {
-                note.push_str(
-                    "; every value searched gives the claim: the input does not move the WACC here",
-                );
-            }
-            if r.crossings > 1 {
-                note.push_str(&format!(
-                    "; {} values fit, the lowest shown{}",
-                    r.crossings,
-                    others_text(r)
-                ));
-            }
-            if let Some(caution) = r.caution() {
-                note.push_str(&format!("; caution: {caution}"));
-            }
-            if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
-                note.push_str("; the cost of debt, rf plus the table's spread, moves with it");
-            }
-            if r.target == Target::CostOfDebt && r.lease_cost_is_cost_of_debt {
-                note.push_str("; the leases' cost, the cost of debt's, moves with it");
-            }
-            if let Some(u) = &r.unlevered_equivalent {
-                note.push_str(&format!("; {}", unlevered_line(u)));
-            }
+            let note = solved_note(r, value);
             (show(value), change, note)
         }
         (Some(value), false) => (
@@ -343,6 +313,43 @@ fn solved_row(r: &hurdle::audit::implied::Implied) -> String {
         r.key,
         show(r.base_value)
     )
+}
+
+/// The note of a solved row of `--solve all`: the exact value, its D/E for a debt-to-capital
+/// case, and the notes and cautions the single answer prints.
+fn solved_note(r: &hurdle::audit::implied::Implied, value: f64) -> String {
+    let mut note = format!("exact: {value}");
+    if r.key == "target.debt_to_capital" {
+        note.push_str(&format!(
+            "; as D/E {}",
+            fixed(hurdle::capital::cost::debt_to_equity_from_capital(value), 4)
+        ));
+    }
+    if r.does_not_move {
+        note.push_str(
+            "; every value searched gives the claim: the input does not move the WACC here",
+        );
+    }
+    if r.crossings > 1 {
+        note.push_str(&format!(
+            "; {} values fit, the lowest shown{}",
+            r.crossings,
+            others_text(r)
+        ));
+    }
+    if let Some(caution) = r.caution() {
+        note.push_str(&format!("; caution: {caution}"));
+    }
+    if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
+        note.push_str("; the cost of debt, rf plus the table's spread, moves with it");
+    }
+    if r.target == Target::CostOfDebt && r.lease_cost_is_cost_of_debt {
+        note.push_str("; the leases' cost, the cost of debt's, moves with it");
+    }
+    if let Some(u) = &r.unlevered_equivalent {
+        note.push_str(&format!("; {}", unlevered_line(u)));
+    }
+    note
 }
 
 /// A row of `--solve all` for an input the case cannot be solved for, saying why.

@@ -31,11 +31,28 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
                 crate::error::rounded(w * 100.0, 2)
             )
         });
+    let of_capital = debt_to_capital_note(side);
+    let equity = cost_of_equity_note(side);
+    (crate::valuation::plausibility(&figures).into_iter())
+        .chain(stated)
+        .chain(equity)
+        .chain(of_capital)
+        .map(|note| {
+            let rest = note.strip_prefix("Check: ").unwrap_or(&note);
+            format!("Check: in the claimed build-up \"{}\", {rest}", side.label)
+        })
+        .collect()
+}
+
+/// How a claim's `debt_to_capital` is read beside preferred equity or leases, when both are
+/// there: D/(D + E), with the `debt_to_equity` of the other reading.
+fn debt_to_capital_note(side: &Side) -> Option<String> {
+    let b = &side.build_up;
     // Found by review: a bank's "D/V 30%" beside 10% preferred means 30% of all capital, which
     // the claim's key reads as 30% of debt plus common equity.
     let other = b.preferred_weight + b.lease_weight;
     // No debt reads alike both ways.
-    let of_capital = (side.debt_to_capital.filter(|&dc| other > 0.0 && dc > 0.0)).map(|dc| {
+    (side.debt_to_capital.filter(|&dc| other > 0.0 && dc > 0.0)).map(|dc| {
         let components = match (b.preferred_weight > 0.0, b.lease_weight > 0.0) {
             (true, true) => "preferred equity and leases",
             (true, false) => "preferred equity",
@@ -66,13 +83,18 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
             crate::error::rounded(b.debt_weight * 100.0, 1),
             crate::error::rounded(dc * 100.0, 1),
         )
-    });
+    })
+}
+
+/// A stated cost of equity its components do not give, to a tenth of a basis point.
+fn cost_of_equity_note(side: &Side) -> Option<String> {
+    let b = &side.build_up;
     // A stated cost of equity its own components do not give, to half a basis point (found by
     // review: a one-pager's Ke of 12% beside rf + β·ERP + premiums of 11.1%).
     // The gap in basis points to one decimal, as shown, decides (found by review: a gap of
     // −0.5 bp was noted and +0.5 bp not).
     let components = b.cost_of_equity();
-    let equity = (side.stated_cost_of_equity)
+    (side.stated_cost_of_equity)
         .map(|ke| (ke, ((ke - components) * 1e5).round() / 10.0))
         .filter(|&(_, gap_bp)| gap_bp.abs() >= 0.5)
         .map(|(ke, gap_bp)| {
@@ -83,14 +105,5 @@ pub fn claim_notes(side: &Side) -> Vec<String> {
                 crate::error::rounded(components * 100.0, 3),
                 crate::error::rounded(gap_bp, 1),
             )
-        });
-    (crate::valuation::plausibility(&figures).into_iter())
-        .chain(stated)
-        .chain(equity)
-        .chain(of_capital)
-        .map(|note| {
-            let rest = note.strip_prefix("Check: ").unwrap_or(&note);
-            format!("Check: in the claimed build-up \"{}\", {rest}", side.label)
         })
-        .collect()
 }

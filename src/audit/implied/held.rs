@@ -94,95 +94,87 @@ pub(super) fn held_between(
     solved: Option<Target>,
 ) -> Vec<Held> {
     let by_capital = inputs.case.settings.target.debt_to_capital.is_some();
-    let entry =
-        |target: Option<Target>, label: &'static str, rate: bool, pick: fn(&Figures) -> f64| {
-            let moved_to = at.map(pick).filter(|&x| x != pick(base));
-            (
-                target,
-                Held {
-                    label,
-                    value: pick(base),
-                    rate,
-                    moved_to,
-                },
-            )
-        };
-    let mut list = vec![
-        entry(Some(Target::RiskFree), "risk-free rate", true, |f| {
+    (listed(base, solved, at.is_some(), by_capital).into_iter())
+        .filter(|(target, ..)| target.is_none() || *target != solved)
+        .map(|(_, label, rate, pick)| Held {
+            label,
+            value: pick(base),
+            rate,
+            moved_to: at.map(pick).filter(|&x| x != pick(base)),
+        })
+        .collect()
+}
+
+/// One input as listed: the target that moves it when solved for (`None`: none does), its
+/// label, whether it is a rate, and where [`Figures`] holds it.
+type Listed = (Option<Target>, &'static str, bool, fn(&Figures) -> f64);
+
+/// The inputs [`held_between`] lists, in a build-up's order, before the one solved for is left
+/// out; `answered`: whether there is an answer to read moved figures at.
+fn listed(base: &Figures, solved: Option<Target>, answered: bool, by_capital: bool) -> Vec<Listed> {
+    let mut list: Vec<Listed> = vec![
+        (Some(Target::RiskFree), "risk-free rate", true, |f| {
             f.risk_free_rate
         }),
-        entry(Some(Target::Erp), "ERP", true, |f| f.equity_risk_premium),
+        (Some(Target::Erp), "ERP", true, |f| f.equity_risk_premium),
     ];
     // The structure relevers the beta: the aggregate unlevered beta is what stays, and the
     // relevered beta is listed only where it moved to, at an answer (found by review: with no
     // answer it was listed as held).
     match solved {
         Some(Target::DebtToEquity) => {
-            if at.is_some() {
-                list.push(entry(None, "relevered beta", false, |f| f.relevered));
+            if answered {
+                list.push((None, "relevered beta", false, |f| f.relevered));
             }
-            list.push(entry(None, "unlevered beta", false, |f| f.unlevered));
+            list.push((None, "unlevered beta", false, |f| f.unlevered));
         }
-        _ => list.push(entry(Some(Target::Beta), "relevered beta", false, |f| {
-            f.relevered
-        })),
+        _ => list.push((Some(Target::Beta), "relevered beta", false, |f| f.relevered)),
     }
     // Solving the size premium holds the others, each named when the case has it.
     match solved {
         Some(Target::SizePremium) => list.extend(
             [
-                entry(None, "country premium as applied", true, |f| {
-                    f.country_applied
-                }),
-                entry(None, "company-specific premium", true, |f| {
+                (
+                    None,
+                    "country premium as applied",
+                    true,
+                    (|f| f.country_applied) as fn(&Figures) -> f64,
+                ),
+                (None, "company-specific premium", true, |f| {
                     f.company_specific
                 }),
             ]
             .into_iter()
-            .filter(|(_, h)| h.value != 0.0),
+            .filter(|(.., pick)| pick(base) != 0.0),
         ),
-        _ => list.push(entry(
-            Some(Target::SizePremium),
-            "premiums in total",
-            true,
-            |f| f.premiums,
-        )),
+        _ => list.push((Some(Target::SizePremium), "premiums in total", true, |f| {
+            f.premiums
+        })),
     }
-    list.extend([
-        entry(
-            Some(Target::CostOfDebt),
-            "pre-tax cost of debt",
-            true,
-            |f| f.cost_of_debt,
-        ),
-        match by_capital {
-            true => entry(Some(Target::DebtToEquity), "debt to capital", false, |f| {
-                f.debt_to_capital
-            }),
-            false => entry(Some(Target::DebtToEquity), "target D/E", false, |f| {
-                f.debt_to_equity
-            }),
-        },
-        entry(None, "tax rate", true, |f| f.tax_rate),
-    ]);
+    list.push((
+        Some(Target::CostOfDebt),
+        "pre-tax cost of debt",
+        true,
+        |f| f.cost_of_debt,
+    ));
+    list.push(match by_capital {
+        true => (Some(Target::DebtToEquity), "debt to capital", false, |f| {
+            f.debt_to_capital
+        }),
+        false => (Some(Target::DebtToEquity), "target D/E", false, |f| {
+            f.debt_to_equity
+        }),
+    });
+    list.push((None, "tax rate", true, |f| f.tax_rate));
     // Preferred equity and leases, when the case holds them (found by review: 30% of capital
     // was on neither line; a lease cost taken from the cost of debt moves with it).
     if base.preferred_weight > 0.0 {
-        list.push(entry(None, "preferred weight", true, |f| {
-            f.preferred_weight
-        }));
-        list.push(entry(None, "cost of preferred equity", true, |f| {
-            f.preferred_cost
-        }));
+        list.push((None, "preferred weight", true, |f| f.preferred_weight));
+        list.push((None, "cost of preferred equity", true, |f| f.preferred_cost));
     }
     if base.lease_weight > 0.0 {
-        list.push(entry(None, "lease weight", true, |f| f.lease_weight));
-        list.push(entry(None, "pre-tax cost of leases", true, |f| {
-            f.lease_cost
-        }));
+        list.push((None, "lease weight", true, |f| f.lease_weight));
+        list.push((None, "pre-tax cost of leases", true, |f| f.lease_cost));
     }
-    (list.into_iter())
-        .filter(|(t, _)| t.is_none() || *t != solved)
-        .map(|(_, h)| h)
-        .collect()
+    list
 }

@@ -41,14 +41,11 @@ pub(super) fn locate_case(
     }
     let in_bundle = candidates.len();
     candidates.push(recorded.clone());
-    // The recorded path was typed from the working folder of the run, which is often a folder
-    // above the output folder (`hurdle run cases/x/case.toml --out reviews/x` from a project's
-    // root): the recorded path is tried from each folder above the receipt too (found by
-    // review: `verify` from elsewhere could not find such a case).
+    // The recorded path was typed from the run's working folder, often one above the output
+    // folder (`hurdle run cases/x/case.toml --out reviews/x` from a project's root) or the
+    // output folder itself (`--out .`): it is tried from the receipt's folder and each one
+    // above it, also along its resolved path (a symbolic link; found by review).
     let named = candidates.len();
-    // The receipt's own folder too (a run into its working folder, `--out .`), and the folders
-    // of its resolved path, so a receipt reached through a symbolic link finds its case (found
-    // by review).
     if recorded.is_relative() {
         let output_dir = receipt_path.parent().unwrap_or(Path::new("")).to_path_buf();
         let resolved = std::fs::canonicalize(&output_dir).ok();
