@@ -12,7 +12,7 @@ use hurdle::valuation::{estimate_peers, load_inputs, value};
 
 mod common;
 
-use common::{copy_demo_case, hurdle, number, DEMO_CASE, DEMO_DIR};
+use common::{copy_demo_case, hurdle, number, Sandbox, DEMO_CASE, DEMO_DIR};
 
 fn text(output: &Output) -> String {
     format!(
@@ -1487,6 +1487,18 @@ fn implied_names_the_inputs_held_and_the_claims_own_value() {
     );
 }
 
+/// A claimed build-up written to `dir/name`: an invented bank's components (rf 3%, ERP 5.5%,
+/// β 1.2, premiums 1.5%, pre-tax Kd 5.5%, tax 25%) and the lines `rest` adds; its path.
+fn bank_claim(dir: &Path, name: &str, rest: &str) -> String {
+    let path = dir.join(name);
+    let text = format!(
+        "[claimed]\nlabel = \"Bank\"\nrisk_free_rate = 0.03\nequity_risk_premium = 0.055\n\
+         beta = 1.2\npremiums = 0.015\ncost_of_debt_pre_tax = 0.055\ntax_rate = 0.25\n{rest}\n"
+    );
+    std::fs::write(&path, text).unwrap();
+    path.to_str().unwrap().to_string()
+}
+
 // A bank's "D/V 30%" beside 10% preferred equity (found by review): the claim's
 // debt_to_capital is D/(D + E), so debt is 0.9 × 30% = 27.0% of all capital, and the other
 // reading, 30% of all capital, is D/E = 0.3 / (1 − 0.3 − 0.1) = 0.5 (worked by hand). No debt
@@ -1495,15 +1507,10 @@ fn implied_names_the_inputs_held_and_the_claims_own_value() {
 fn a_claims_debt_to_capital_beside_preferred_equity_says_how_it_is_read() {
     let dir = tempfile::tempdir().unwrap();
     let claim = |dc: f64| {
-        let path = dir.path().join(format!("claim{dc}.toml"));
-        let text = format!(
-            "[claimed]\nlabel = \"Bank\"\nwacc = 0.08\nrisk_free_rate = 0.03\n\
-             equity_risk_premium = 0.055\nbeta = 1.2\npremiums = 0.015\n\
-             cost_of_debt_pre_tax = 0.055\ntax_rate = 0.25\ndebt_to_capital = {dc}\n\
-             preferred_weight = 0.1\npreferred_cost = 0.07\n"
+        let rest = format!(
+            "wacc = 0.08\ndebt_to_capital = {dc}\npreferred_weight = 0.1\npreferred_cost = 0.07"
         );
-        std::fs::write(&path, text).unwrap();
-        path.to_str().unwrap().to_string()
+        bank_claim(dir.path(), &format!("claim{dc}.toml"), &rest)
     };
     let output = hurdle(&["compare", DEMO_CASE, &claim(0.3)]);
     let report = text(&output);
@@ -1529,26 +1536,22 @@ fn a_claims_debt_to_capital_beside_preferred_equity_says_how_it_is_read() {
 // reader does not take the beta line for the whole effect of the beta (found by review).
 #[test]
 fn compare_says_a_beta_scaled_country_premium_stays_in_the_premiums_line() {
-    let (dir, case_dir) = demo_copy();
-    let case = case_dir.join("case.toml");
-    let edited = std::fs::read_to_string(&case).unwrap();
-    let edited = edited
-        .replace(
-            "country = 0.0",
-            "country = 0.02\ncountry_justification = \"a test\"",
-        )
-        .replacen(
-            "country_method = \"flat\"",
-            "country_method = \"beta-scaled\"",
-            1,
-        );
-    std::fs::write(&case, edited).unwrap();
-    let run = run_case(&case, &dir.path().join("out"), &[]);
+    let s = Sandbox::new();
+    s.edit_case(
+        "country = 0.0",
+        "country = 0.02\ncountry_justification = \"a test\"",
+    );
+    s.edit_case(
+        "country_method = \"flat\"",
+        "country_method = \"beta-scaled\"",
+    );
+    let case = s.path("case.toml");
+    let run = run_case(&case, &s.root.path().join("out"), &[]);
     let beta = run["beta"]["relevered"].as_f64().unwrap();
     let output = hurdle(&[
         "compare",
         case.to_str().unwrap(),
-        case_dir.join("claimed.toml").to_str().unwrap(),
+        s.path("claimed.toml").to_str().unwrap(),
     ]);
     let report = text(&output);
     assert!(output.status.success(), "{report}");
@@ -1578,14 +1581,9 @@ fn compare_gives_each_sides_asset_beta_when_the_structures_differ() {
     assert!(report.contains(&expected), "{expected} not in {report}");
     // A case that unlevers otherwise (Harris–Pringle) gets no Hamada figures beside its own
     // (found by review: 0.794 beside the case's 0.737).
-    let (_dir, case_dir) = demo_copy();
-    let case = case_dir.join("case.toml");
-    let edited = std::fs::read_to_string(&case).unwrap().replacen(
-        "formula = \"hamada\"",
-        "formula = \"harris-pringle\"",
-        1,
-    );
-    std::fs::write(&case, edited).unwrap();
+    let s = Sandbox::new();
+    s.edit_case("formula = \"hamada\"", "formula = \"harris-pringle\"");
+    let case = s.path("case.toml");
     let report = text(&hurdle(&["compare", case.to_str().unwrap(), &claim]));
     assert!(!report.contains("taken back to asset betas"), "{report}");
 }
@@ -1597,14 +1595,8 @@ fn compare_gives_each_sides_asset_beta_when_the_structures_differ() {
 fn a_claims_stated_cost_of_equity_is_checked_against_its_components() {
     let dir = tempfile::tempdir().unwrap();
     let claim = |ke: f64| {
-        let path = dir.path().join(format!("ke{ke}.toml"));
-        let text = format!(
-            "[claimed]\nwacc = 0.089\ncost_of_equity = {ke}\nrisk_free_rate = 0.03\n\
-             equity_risk_premium = 0.055\nbeta = 1.2\npremiums = 0.015\n\
-             cost_of_debt_pre_tax = 0.055\ntax_rate = 0.25\ndebt_to_equity = 0.4\n"
-        );
-        std::fs::write(&path, text).unwrap();
-        path.to_str().unwrap().to_string()
+        let rest = format!("wacc = 0.089\ncost_of_equity = {ke}\ndebt_to_equity = 0.4");
+        bank_claim(dir.path(), &format!("ke{ke}.toml"), &rest)
     };
     let report = text(&hurdle(&["compare", DEMO_CASE, &claim(0.12)]));
     assert!(
