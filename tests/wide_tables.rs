@@ -13,12 +13,22 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
 use chrono::NaiveDate;
+use hurdle::case::sources::SOURCE_KEYS;
 use hurdle::demo_wide::{INDEX_COLUMN, RISK_FREE_COLUMN};
 use hurdle::io::series::ValueKind;
-use hurdle::io::tables::PriceTable;
+use hurdle::io::tables::{PriceTable, TableRequest};
 use serde_json::Value;
 
 mod common;
+
+/// A case source's request for `sheet` (the date column the first).
+fn request(sheet: Option<&str>) -> TableRequest<'_> {
+    TableRequest {
+        sheet,
+        date_column: None,
+        words: &SOURCE_KEYS,
+    }
+}
 
 use common::{copy_wide_case, hurdle, DEMO_CASE, WIDE_DIR};
 
@@ -215,7 +225,7 @@ fn check_table(table: &PriceTable, label: &str) {
 fn every_cell_form_of_a_workbook_is_read() {
     for name in ["mixed.xlsx", "mixed.ods", "mixed.xls"] {
         let path = Path::new(FIXTURES).join(name);
-        let table = PriceTable::read(name, &path, Some("Prices"), None).unwrap();
+        let table = PriceTable::read(name, &path, request(Some("Prices"))).unwrap();
         assert_eq!(table.sheet.as_deref(), Some("Prices"));
         check_table(&table, name);
         let bytes = fs::read(&path).unwrap();
@@ -247,7 +257,7 @@ fn parquet_tables_are_read() {
             .unwrap();
     let file = fs::File::create(&path).unwrap();
     ParquetWriter::new(file).finish(&mut frame).unwrap();
-    let table = PriceTable::read("prices.parquet", &path, None, None).unwrap();
+    let table = PriceTable::read("prices.parquet", &path, request(None)).unwrap();
     check_table(&table, "parquet");
 }
 
@@ -268,7 +278,7 @@ fn parquet_32_bit_prices_read_as_their_decimals() {
     ParquetWriter::new(fs::File::create(&path).unwrap())
         .finish(&mut frame)
         .unwrap();
-    let table = PriceTable::read("single.parquet", &path, None, None).unwrap();
+    let table = PriceTable::read("single.parquet", &path, request(None)).unwrap();
     let file = table.series("peer", "Alder", ValueKind::Price).unwrap();
     assert_eq!(file.series.values, [10.1, 11.3, 1043.83]);
 }

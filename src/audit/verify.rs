@@ -315,6 +315,27 @@ fn parse_receipt(receipt: &str) -> std::result::Result<Value, String> {
     })
 }
 
+/// Reads the receipt at `path` as text; a workbook or other binary file, or text that is not
+/// UTF-8, given as the receipt is named as what it is.
+pub fn read_receipt(path: &Path) -> Result<String> {
+    let bytes = std::fs::read(path).map_err(|source| Error::Io {
+        path: path.to_path_buf(),
+        action: "cannot read the receipt",
+        source,
+    })?;
+    let not_a_receipt = |what: &str| Error::DataFile {
+        file: path.to_path_buf(),
+        message: format!(
+            "the file is {what}, not a receipt: verify reads the result.json that `hurdle run` \
+             or `hurdle universe` wrote"
+        ),
+    };
+    if let Some(kind) = crate::io::encoding::binary_kind(&bytes) {
+        return Err(not_a_receipt(kind));
+    }
+    String::from_utf8(bytes).map_err(|_| not_a_receipt("not UTF-8 text"))
+}
+
 /// Verifies `receipt` (the text of a `result.json` at `receipt_path`). `case_path` overrides
 /// where the case file is looked for.
 pub fn verify(

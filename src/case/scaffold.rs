@@ -495,6 +495,18 @@ fn peer_table(peer: &StartedPeer) -> String {
     )
 }
 
+/// `table` as a case file in the folder `case_dir` writes it: relative to that folder, with
+/// forward slashes where the backslash separates folders (Windows), so the case reads on any
+/// system; elsewhere a backslash is a character of the file's name and stays (found by review:
+/// `peer\prices.xlsx` was written as the folder `peer`).
+pub fn written_path(case_dir: &Path, table: &Path) -> String {
+    let relative = relative_path(case_dir, table);
+    match std::path::MAIN_SEPARATOR {
+        '\\' => relative.to_string_lossy().replace('\\', "/"),
+        _ => relative.to_string_lossy().into_owned(),
+    }
+}
+
 /// `to` (a file) relative to the folder `from`, as a case file writes it; both are made
 /// absolute first. Falls back to the absolute path when they share no root.
 pub fn relative_path(from: &Path, to: &Path) -> PathBuf {

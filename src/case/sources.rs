@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 use crate::case::{Case, CaseFile};
 use crate::error::{Error, Result};
 use crate::io::series::{read_series_file, DataFile, ValueKind};
-use crate::io::tables::PriceTable;
+use crate::io::tables::{ChoiceWords, PriceTable, TableRequest};
 
 /// `[sources.NAME]`: a wide price table (a date column and one column per security).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -28,6 +28,25 @@ pub struct TableSource {
     /// The header of the date column; default the first column.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub date_column: Option<String>,
+}
+
+/// How a table's messages name a source's `sheet` and `date_column` keys.
+pub const SOURCE_KEYS: ChoiceWords = ChoiceWords {
+    name_the_sheet: "(`sheet` in the case's source)",
+    name_the_date_column: "`date_column` in the case's source names another",
+    sheet_given: "`sheet` = ",
+    drop_the_sheet: "drop `sheet`",
+};
+
+impl TableSource {
+    /// What the source asks of its table, in the source's own keys.
+    pub fn request(&self) -> TableRequest<'_> {
+        TableRequest {
+            sheet: self.sheet.as_deref(),
+            date_column: self.date_column.as_deref(),
+            words: &SOURCE_KEYS,
+        }
+    }
 }
 
 /// The case table holding every named source.
@@ -213,12 +232,7 @@ pub fn read_series(case: &Case) -> Result<SeriesRead> {
     for source in keys.iter().filter_map(|k| k.column.and(k.source)) {
         if !tables.contains_key(source) {
             let spec = &settings.sources[source];
-            let table = PriceTable::read(
-                &spec.file,
-                &case.resolve(&spec.file),
-                spec.sheet.as_deref(),
-                spec.date_column.as_deref(),
-            )?;
+            let table = PriceTable::read(&spec.file, &case.resolve(&spec.file), spec.request())?;
             tables.insert(source, table);
         }
     }

@@ -46,6 +46,7 @@ pub fn estimation(settings: &CaseFile) -> EstimationSpec {
             lag_p_value: beta.flag_lag_p_value,
             exclude: beta.exclude_flags.clone(),
         },
+        rolling_betas: true,
         case_extras: true,
         lag_response: true,
         rolling: RollingSpec {

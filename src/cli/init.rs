@@ -11,9 +11,9 @@
 
 use std::path::{Path, PathBuf};
 
-use hurdle::case::scaffold::{relative_path, starting_case, StartOptions, StartingCase};
+use hurdle::case::scaffold::{starting_case, written_path, StartOptions, StartingCase};
 use hurdle::error::{compact, one_line};
-use hurdle::io::tables::{header_key, PriceTable, NAME_THE_DATE_COLUMN, NAME_THE_SHEET};
+use hurdle::io::tables::{header_key, ChoiceWords, PriceTable, TableRequest};
 use hurdle::report::new_file::write_new;
 
 #[derive(Debug, clap::Args)]
@@ -57,21 +57,13 @@ pub fn run(args: &Args) -> hurdle::Result<()> {
         });
     }
     let case_dir = out.parent().unwrap_or(Path::new(""));
-    let written = relative_path(case_dir, &args.table);
-    // Forward slashes where the backslash separates folders (Windows), so the case reads on any
-    // system; elsewhere a backslash is a character of the file's name and stays (found by
-    // review: `peer\prices.xlsx` was written as the folder `peer`).
-    let written = match std::path::MAIN_SEPARATOR {
-        '\\' => written.to_string_lossy().replace('\\', "/"),
-        _ => written.to_string_lossy().into_owned(),
+    let written = written_path(case_dir, &args.table);
+    let request = TableRequest {
+        sheet: args.sheet.as_deref(),
+        date_column: args.date_column.as_deref(),
+        words: &OPTIONS,
     };
-    let table = PriceTable::read(
-        &written,
-        &args.table,
-        args.sheet.as_deref(),
-        args.date_column.as_deref(),
-    )
-    .map_err(in_init_terms)?;
+    let table = PriceTable::read(&written, &args.table, request)?;
     let started = starting_case(
         &table,
         &StartOptions {
@@ -174,23 +166,11 @@ fn shell_word(text: &str) -> String {
     }
 }
 
-/// A table's error in init's words: the options that name a sheet or the date column replace
-/// the case's keys in the library's advice.
-fn in_init_terms(error: hurdle::Error) -> hurdle::Error {
-    match error {
-        hurdle::Error::DataFile { file, message } => hurdle::Error::DataFile {
-            file,
-            message: message
-                .replacen(
-                    NAME_THE_SHEET,
-                    "name the one with the prices with --sheet",
-                    1,
-                )
-                .replacen(NAME_THE_DATE_COLUMN, "--date-column names another", 1)
-                // Found by review: `init table.csv --sheet X` was told to drop `sheet`.
-                .replacen(hurdle::io::tables::SHEET_GIVEN, "--sheet ", 1)
-                .replacen(hurdle::io::tables::DROP_THE_SHEET, "drop --sheet", 1),
-        },
-        other => other,
-    }
-}
+/// A table's advice in init's options, not a case's keys (found by review: `init table.csv
+/// --sheet X` was told to drop `sheet`).
+const OPTIONS: ChoiceWords = ChoiceWords {
+    name_the_sheet: "with --sheet",
+    name_the_date_column: "--date-column names another",
+    sheet_given: "--sheet ",
+    drop_the_sheet: "drop --sheet",
+};

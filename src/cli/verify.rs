@@ -9,7 +9,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use hurdle::audit::verify::{
-    by_file, verify, Verification, DEFAULT_TOLERANCE, SAME_VERSION_WORDING_NOTE,
+    by_file, read_receipt, verify, Verification, DEFAULT_TOLERANCE, SAME_VERSION_WORDING_NOTE,
 };
 
 #[derive(Debug, clap::Args)]
@@ -29,23 +29,7 @@ pub struct Args {
 }
 
 pub fn run(args: &Args) -> hurdle::Result<ExitCode> {
-    let bytes = std::fs::read(&args.receipt).map_err(|source| hurdle::Error::Io {
-        path: args.receipt.clone(),
-        action: "cannot read the receipt",
-        source,
-    })?;
-    // A workbook or other binary file given as the receipt is named as what it is.
-    let not_a_receipt = |what: &str| hurdle::Error::DataFile {
-        file: args.receipt.clone(),
-        message: format!(
-            "the file is {what}, not a receipt: verify reads the result.json that `hurdle run` \
-             or `hurdle universe` wrote"
-        ),
-    };
-    if let Some(kind) = hurdle::io::encoding::binary_kind(&bytes) {
-        return Err(not_a_receipt(kind));
-    }
-    let text = String::from_utf8(bytes).map_err(|_| not_a_receipt("not UTF-8 text"))?;
+    let text = read_receipt(&args.receipt)?;
     let report = verify(&args.receipt, &text, args.case.as_deref(), args.tolerance)?;
     // The status files are written before the verdict is printed: an output folder that
     // cannot take them stops the command with its error alone (found by review: the verdict

@@ -36,6 +36,10 @@ pub struct EstimationSpec {
     pub estimator: EstimatorSpec,
     pub flags: FlagRule,
     pub rolling: RollingSpec,
+    /// Whether each estimate carries its rolling betas (and so their range and trend): a case
+    /// and `universe.rolling` ask for them; a what-if that reads only the WACC does not (the
+    /// windows would cost more than the regression itself).
+    pub rolling_betas: bool,
     /// Whether each estimate carries what only a case uses: every return's influence on the
     /// beta (the case's joint Monte Carlo) and the fitted line with its band (its charts). A
     /// whole-market table turns them off (the line is then empty); no statistic changes.
@@ -432,16 +436,19 @@ pub fn estimate_security(
 ) -> Result<SecurityEstimate, EstimateError> {
     let (asset_returns, asset_stale) = sample_returns(spec, window, prices);
     let first = window.first;
-    let mut aligned = sampling::align_with_shifts(
+    let stale = sampling::StalePeriods {
+        asset: &asset_stale,
+        market: &market.stale,
+    };
+    let aligned = sampling::align_with_shifts(
         &window.all_period_ends,
         &asset_returns,
         &market.returns,
         market.risk_free.as_deref(),
+        stale,
         &window.offsets,
         first,
     );
-    aligned.dropped.asset_stale = asset_stale[first..].iter().filter(|&&s| s).count();
-    aligned.dropped.market_stale = market.stale[first..].iter().filter(|&&s| s).count();
     let n = aligned.asset.len();
     if n < spec.min_observations as usize {
         return Err(EstimateError::TooFewReturns {
@@ -463,7 +470,10 @@ pub fn estimate_security(
     )
     .map_err(EstimateError::from)?;
     let periods_in_window = window.period_ends().len();
-    let rolling_points = rolling_points(spec, window, &aligned, (&asset_excess, &market_excess));
+    let rolling_points = match spec.rolling_betas {
+        true => rolling_points(spec, window, &aligned, (&asset_excess, &market_excess)),
+        false => Vec::new(),
+    };
     let fitted_line = match spec.case_extras {
         true => line_over(&estimate, &market_excess),
         false => FittedLine::default(),
@@ -484,7 +494,7 @@ pub fn estimate_security(
     let laid = rolling::laid_window_ends(window.period_ends(), &rolling_spec(spec));
     let stability = rolling::stability(&rolling_points, spec.rolling.window, &laid)
         .map_err(|e| EstimateError::Estimator(e.to_string()))?;
-    let no_stability = (stability.is_none()).then(|| {
+    let no_stability = (spec.rolling_betas && stability.is_none()).then(|| {
         let shifted = aligned.market_shifted.len();
         rolling::NoStability::of(&rolling_spec(spec), periods_in_window, shifted)
     });

@@ -444,28 +444,56 @@ pub fn align(
     market: &[Option<f64>],
     risk_free: Option<&[Option<f64>]>,
 ) -> AlignedReturns {
-    align_with_shifts(period_ends, asset, market, risk_free, &[], 0)
+    let stale = StalePeriods::default();
+    align_with_shifts(period_ends, asset, market, risk_free, stale, &[], 0)
+}
+
+/// Which periods of the asset's and the market's sampled returns had a price older than the
+/// staleness limit at either end (as [`sampled_returns`] marks them); empty when none are known.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct StalePeriods<'a> {
+    pub asset: &'a [bool],
+    pub market: &'a [bool],
+}
+
+impl StalePeriods<'_> {
+    /// The stale periods from index `first` on, of the asset and of the market.
+    fn counts_from(&self, first: usize) -> (usize, usize) {
+        let count = |marks: &[bool]| {
+            marks
+                .get(first..)
+                .map_or(0, |m| m.iter().filter(|&&s| s).count())
+        };
+        (count(self.asset), count(self.market))
+    }
 }
 
 /// As [`align`], over the periods from index `first` on, additionally requiring the market's
 /// excess return at each of `offsets` (−l a lag, +l a lead) relative to the period. The slices
 /// may start before `first` so that the first window periods have their lags; a shift outside
-/// the slices (a lead after the window end) counts as missing.
+/// the slices (a lead after the window end) counts as missing. The stale periods of `stale`
+/// from `first` on are counted in the dropped periods.
 pub fn align_with_shifts(
     period_ends: &[NaiveDate],
     asset: &[Option<f64>],
     market: &[Option<f64>],
     risk_free: Option<&[Option<f64>]>,
+    stale: StalePeriods<'_>,
     offsets: &[i32],
     first: usize,
 ) -> AlignedReturns {
     let capacity = period_ends.len().saturating_sub(first);
+    let (asset_stale, market_stale) = stale.counts_from(first);
     let mut aligned = AlignedReturns {
         period_ends: Vec::with_capacity(capacity),
         asset: Vec::with_capacity(capacity),
         market: Vec::with_capacity(capacity),
         risk_free: risk_free.map(|_| Vec::with_capacity(capacity)),
-        dropped: DroppedPeriods::default(),
+        dropped: DroppedPeriods {
+            asset_stale,
+            market_stale,
+            ..DroppedPeriods::default()
+        },
         market_shifted: offsets
             .iter()
             .map(|&offset| ShiftedMarket {
@@ -787,14 +815,15 @@ mod tests {
             .collect();
         let asset = [Some(0.5), Some(0.1), Some(0.2), Some(0.3)];
         let market = [Some(0.01), Some(0.02), None, Some(0.04)];
-        let lagged = align_with_shifts(&ends, &asset, &market, None, &[-1], 1);
+        let none = StalePeriods::default();
+        let lagged = align_with_shifts(&ends, &asset, &market, None, none, &[-1], 1);
         // Period 1: lag = 0.01. Period 2: market missing. Period 3: its lag (period 2) missing.
         assert_eq!(lagged.period_ends, vec![ends[1]]);
         assert_eq!(lagged.market_shifted[0].returns, vec![0.01]);
         assert_eq!(lagged.dropped.total, 2);
         assert_eq!(lagged.dropped.market_missing, 1);
         assert_eq!(lagged.dropped.shifted_market_missing, 1);
-        let led = align_with_shifts(&ends, &asset, &market, None, &[1], 0);
+        let led = align_with_shifts(&ends, &asset, &market, None, none, &[1], 0);
         // Period 0 leads to 0.02; period 1's lead (period 2) is missing; period 2's lead exists
         // but its own market value does not; period 3 has no later period.
         assert_eq!(led.period_ends, vec![ends[0]]);

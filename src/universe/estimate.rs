@@ -125,24 +125,21 @@ pub struct Estimation {
     spec: EstimationSpec,
     window: Window,
     market: MarketReturns,
-    rolling: bool,
     /// The index's prices inside the window, to tell a copy of them.
     index: Series,
 }
 
 impl Estimation {
     /// Builds the window of `spec` and samples the index (and the risk-free series) once.
-    /// Without `rolling` the spec's rolling window is set to 0, which computes no windows; the
-    /// case's extras (influence terms, fitted line) are always off.
+    /// Rolling betas are computed only with `rolling`; the case's extras (influence terms,
+    /// fitted line) are always off.
     pub fn new(
         mut spec: EstimationSpec,
         index: SeriesView<'_>,
         risk_free: Option<SeriesView<'_>>,
         rolling: bool,
     ) -> Estimation {
-        if !rolling {
-            spec.rolling.window = 0;
-        }
+        spec.rolling_betas = rolling;
         // Influence terms and the fitted line serve a case's Monte Carlo and charts only.
         spec.case_extras = false;
         let window = Window::new(&spec);
@@ -157,7 +154,6 @@ impl Estimation {
             spec,
             window,
             market,
-            rolling,
             index,
         }
     }
@@ -231,7 +227,7 @@ impl Estimation {
                     lag_response: e.lag_response,
                     flags: e.flags,
                     excluding_flags: e.excluding_flags,
-                    stability: e.stability.filter(|_| self.rolling),
+                    stability: e.stability,
                 }),
                 rolling: e.rolling,
             },
@@ -287,8 +283,11 @@ impl Estimation {
             window_end: self.window.end(),
             excess_returns: self.market.excess(),
             sampling_rule: sampling::rule_text(self.spec.frequency),
-            rolling_window: self.rolling.then_some(self.spec.rolling.window),
-            rolling_min_observations: self.rolling.then_some(self.spec.rolling.min_observations),
+            rolling_window: self.spec.rolling_betas.then_some(self.spec.rolling.window),
+            rolling_min_observations: self
+                .spec
+                .rolling_betas
+                .then_some(self.spec.rolling.min_observations),
         }
     }
 }

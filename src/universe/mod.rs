@@ -68,8 +68,7 @@ fn read_market_series(
             crate::io::tables::PriceTable::read(
                 &table.file,
                 &universe.resolve(&table.file),
-                table.sheet.as_deref(),
-                table.date_column.as_deref(),
+                table.request(),
             )?
             .series(role, column, kind)
         }

@@ -147,8 +147,7 @@ pub fn estimate_peers(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
 /// reads is the same.
 pub fn estimate_peers_for_wacc(case: &Case, inputs: &Inputs) -> Result<PeerEstimates> {
     let mut spec = specs::estimation(&case.settings);
-    // A zero-length window computes no rolling betas (see `beta::rolling::rolling_betas`).
-    spec.rolling.window = 0;
+    spec.rolling_betas = false;
     spec.case_extras = false;
     let lagged = crate::beta::diagnostics::PeerFlag::LaggedResponse;
     spec.lag_response = spec.flags.exclude.contains(&lagged);

@@ -9,11 +9,7 @@
 //! right instead of advice that does not fit.
 
 use super::cells::Cell;
-use super::RawTable;
-
-/// How a case asks for another date column than the first; a front end that takes it otherwise
-/// (an option) replaces it in the message.
-pub const NAME_THE_DATE_COLUMN: &str = "`date_column` in the case's source names another";
+use super::{ChoiceWords, RawTable};
 
 /// How many rows below the header are searched for the header a title pushed down.
 pub(crate) const TITLE_SEARCH_ROWS: usize = 20;
@@ -111,7 +107,11 @@ fn label(cell: &Cell) -> Option<&str> {
 /// it holds and which of the columns `others` do (date cells or ISO dates in most of their
 /// filled cells). `None` when the first column holds dates (the error is its own cells'), or
 /// numbers while no other column holds dates (serial dates, most likely).
-pub(crate) fn date_column_hint(raw: &RawTable, others: &[usize]) -> Option<String> {
+pub(crate) fn date_column_hint(
+    raw: &RawTable,
+    others: &[usize],
+    words: &ChoiceWords,
+) -> Option<String> {
     // (filled cells, date cells or ISO dates, numbers) of column j.
     let counts = |j: usize| {
         let filled = raw.columns[j].iter().filter(|c| !c.is_empty());
@@ -149,9 +149,8 @@ pub(crate) fn date_column_hint(raw: &RawTable, others: &[usize]) -> Option<Strin
         false => format!("the dates appear to be in {}", quoted(holding.into_iter())),
     };
     Some(format!(
-        "the first column, `{}`, is taken as the dates unless {NAME_THE_DATE_COLUMN} ({holds}); \
-         {found}",
-        raw.header[0]
+        "the first column, `{}`, is taken as the dates unless {} ({holds}); {found}",
+        raw.header[0], words.name_the_date_column
     ))
 }
 

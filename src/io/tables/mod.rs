@@ -23,13 +23,33 @@ use crate::io::sanity::percent_yield;
 use crate::io::series::{sha256_hex, DataFile, Series, ValueKind};
 
 pub use cells::{column_letters, Cell, Place, PlaceKind};
-pub use header::{header_key, NAME_THE_DATE_COLUMN};
-pub use workbook::NAME_THE_SHEET;
+pub use header::header_key;
 
-/// The case's words for a sheet named where none can be (a command with its own option for it,
-/// `init --sheet`, puts its option in their place).
-pub const SHEET_GIVEN: &str = "`sheet` = ";
-pub const DROP_THE_SHEET: &str = "drop `sheet`";
+/// How a table's messages name the two choices a reader of the table makes, in the terms of
+/// whoever asked for the table (a case file's keys, a command's options): this layer knows
+/// neither.
+#[derive(Debug, Clone, Copy)]
+pub struct ChoiceWords {
+    /// How to name a workbook's sheet, after "name the one with the prices" (as in "(`sheet`
+    /// in the case's source)").
+    pub name_the_sheet: &'static str,
+    /// Advice when the first column holds no dates, as in "`date_column` in the case's source
+    /// names another".
+    pub name_the_date_column: &'static str,
+    /// A sheet given for a file without sheets, before its quoted name (as in "`sheet` = ").
+    pub sheet_given: &'static str,
+    /// Advice for that case, as in "drop `sheet`".
+    pub drop_the_sheet: &'static str,
+}
+
+/// What the caller asks of a table: the sheet (optional when a workbook has one), the date
+/// column's header (default: the first column), and the words its messages use for them.
+#[derive(Debug, Clone, Copy)]
+pub struct TableRequest<'a> {
+    pub sheet: Option<&'a str>,
+    pub date_column: Option<&'a str>,
+    pub words: &'a ChoiceWords,
+}
 
 /// The file formats a wide table may come in, told apart by the file's extension.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -109,15 +129,10 @@ pub struct PriceTable {
 }
 
 impl PriceTable {
-    /// Reads a wide table. `written` is the path as given; `resolved` is where it is. `sheet`
-    /// picks a workbook's sheet (optional when it has only one); `date_column` names the date
-    /// column (default: the header's first column).
-    pub fn read(
-        written: &str,
-        resolved: &Path,
-        sheet: Option<&str>,
-        date_column: Option<&str>,
-    ) -> Result<PriceTable> {
+    /// Reads a wide table. `written` is the path as given; `resolved` is where it is; `request`
+    /// picks the sheet and the date column.
+    pub fn read(written: &str, resolved: &Path, request: TableRequest<'_>) -> Result<PriceTable> {
+        let (sheet, words) = (request.sheet, request.words);
         let format = TableFormat::of(resolved)?;
         let bytes = std::fs::read(resolved).map_err(|source| Error::Io {
             path: resolved.to_path_buf(),
@@ -130,26 +145,31 @@ impl PriceTable {
         };
         if sheet.is_some() && format != TableFormat::Workbook {
             return Err(fail(format!(
-                "{SHEET_GIVEN}\"{}\" is given, but a {} file has no sheets; {DROP_THE_SHEET}",
+                "{}\"{}\" is given, but a {} file has no sheets; {}",
+                words.sheet_given,
                 sheet.unwrap_or_default(),
                 if format == TableFormat::Csv {
                     "CSV"
                 } else {
                     "Parquet"
-                }
+                },
+                words.drop_the_sheet
             )));
         }
         let raw = match format {
             TableFormat::Csv => delimited::read_csv(&bytes).map_err(fail)?,
             TableFormat::Parquet => delimited::read_parquet(&bytes).map_err(fail)?,
-            TableFormat::Workbook => workbook::read_sheet(resolved, &bytes, sheet).map_err(fail)?,
+            TableFormat::Workbook => {
+                workbook::read_sheet(resolved, &bytes, sheet, words).map_err(fail)?
+            }
         };
-        let mut table = arrange(raw, date_column).map_err(fail)?;
-        table.path = written.to_string();
-        table.resolved = resolved.to_path_buf();
-        table.sha256 = sha256_hex(&bytes);
-        table.format = format;
-        Ok(table)
+        let origin = Origin {
+            path: written.to_string(),
+            resolved: resolved.to_path_buf(),
+            sha256: sha256_hex(&bytes),
+            format,
+        };
+        arrange(raw, request, origin).map_err(fail)
     }
 
     /// The dates of the table, ascending.
@@ -273,7 +293,20 @@ fn quoted_list<'a>(names: impl Iterator<Item = &'a String>, count: usize) -> Str
 
 /// Picks the date column, parses its dates, drops blank rows and puts the rows in ascending
 /// date order (a table sorted newest first is reversed, never re-sorted otherwise).
-fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<PriceTable, String> {
+/// Where a table came from, as [`PriceTable`] records it.
+struct Origin {
+    path: String,
+    resolved: PathBuf,
+    sha256: String,
+    format: TableFormat,
+}
+
+fn arrange(
+    raw: RawTable,
+    request: TableRequest<'_>,
+    origin: Origin,
+) -> std::result::Result<PriceTable, String> {
+    let date_column = request.date_column;
     // A refused header may be a title written above the table: then that is the message.
     let (date_index, others) =
         columns_of(&raw, date_column).map_err(|m| header::title_above(&raw).unwrap_or(m))?;
@@ -282,7 +315,7 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
     let hint = |message: String| {
         let hint = date_column
             .is_none()
-            .then(|| header::date_column_hint(&raw, &others));
+            .then(|| header::date_column_hint(&raw, &others, request.words));
         match hint.flatten() {
             Some(hint) => format!("{message}; {hint}"),
             None => message,
@@ -308,10 +341,10 @@ fn arrange(raw: RawTable, date_column: Option<&str>) -> std::result::Result<Pric
         cells.iter_mut().for_each(|c| c.reverse());
     }
     Ok(PriceTable {
-        path: String::new(),
-        resolved: PathBuf::new(),
-        sha256: String::new(),
-        format: TableFormat::Csv,
+        path: origin.path,
+        resolved: origin.resolved,
+        sha256: origin.sha256,
+        format: origin.format,
         sheet: raw.sheet,
         date_column: date_name,
         columns: others.iter().map(|&j| raw.header[j].clone()).collect(),

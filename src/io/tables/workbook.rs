@@ -13,7 +13,7 @@ use std::path::Path;
 use calamine::{open_workbook_from_rs, Data, DataRef, Ods, Range, Reader, SheetVisible, Xls, Xlsx};
 
 use super::cells::{Cell, Place, PlaceKind};
-use super::RawTable;
+use super::{ChoiceWords, RawTable};
 
 /// The last date serial a workbook holds (9999-12-31 in the 1900 date system; ECMA-376 Part 1,
 /// §18.17.4.1, from memory).
@@ -26,9 +26,6 @@ const MAX_SERIAL: f64 = 2_958_465.999_999;
 const MAX_SHEET_CELLS: u64 = 25_000_000;
 
 /// The first bytes of a ZIP package (`.xlsx`, `.xlsm`, `.ods`).
-/// What a workbook of several sheets asks for, in a case's terms (a front end that takes the
-/// sheet otherwise replaces it).
-pub const NAME_THE_SHEET: &str = "name the one with the prices (`sheet` in the case's source)";
 const ZIP_MAGIC: &[u8] = b"PK\x03\x04";
 /// The first bytes of an OLE compound file (`.xls`, and an encrypted `.xlsx`).
 const OLE_MAGIC: &[u8] = &[0xD0, 0xCF, 0x11, 0xE0, 0xA1, 0xB1, 0x1A, 0xE1];
@@ -38,6 +35,7 @@ pub(crate) fn read_sheet(
     path: &Path,
     bytes: &[u8],
     sheet: Option<&str>,
+    words: &ChoiceWords,
 ) -> Result<RawTable, String> {
     let extension = path
         .extension()
@@ -47,21 +45,19 @@ pub(crate) fn read_sheet(
     // calamine panics on some damaged files (an offset past the end of an .xls stream, found
     // by corrupting single bytes of a fixture): the guard makes that a damaged-workbook error.
     let loaded = crate::io::guard::decoding(|| match extension.as_str() {
-        "xls" => load::<Xls<_>>(bytes, sheet, &extension),
-        "ods" => load::<Ods<_>>(bytes, sheet, &extension),
-        _ => load::<Xlsx<_>>(bytes, sheet, &extension),
+        "xls" => load::<Xls<_>>(bytes, (sheet, words), &extension),
+        "ods" => load::<Ods<_>>(bytes, (sheet, words), &extension),
+        _ => load::<Xlsx<_>>(bytes, (sheet, words), &extension),
     });
-    let (name, range, mut system_1904, notes) = match loaded {
+    let (name, range, system_1904, notes) = match loaded {
         Ok(loaded) => loaded?,
         Err(reason) => return Err(format!("is a damaged .{extension} workbook: {reason}")),
     };
-    if extension == "ods" {
-        system_1904 = ods_null_date(bytes)?;
-    }
-    let mut table = from_range(name, range)?;
-    table.date_system_1904 = system_1904;
-    table.notes = notes;
-    Ok(table)
+    let date_system_1904 = match extension.as_str() {
+        "ods" => ods_null_date(bytes)?,
+        _ => system_1904,
+    };
+    from_range(name, range, date_system_1904, notes)
 }
 
 /// What hurdle asks of each kind of workbook beyond calamine's `Reader`: its date system, and a
@@ -276,7 +272,11 @@ fn check_span<'a>(
 type Loaded = (String, Range<Data>, bool, Vec<String>);
 
 /// Opens the workbook with reader `R`, picks the sheet and returns its name and cells.
-fn load<'a, R>(bytes: &'a [u8], sheet: Option<&str>, extension: &str) -> Result<Loaded, String>
+fn load<'a, R>(
+    bytes: &'a [u8],
+    (sheet, words): (Option<&str>, &ChoiceWords),
+    extension: &str,
+) -> Result<Loaded, String>
 where
     R: Book<Cursor<&'a [u8]>>,
     R::Error: std::fmt::Display,
@@ -284,7 +284,7 @@ where
     let mut workbook: R = open_workbook_from_rs(Cursor::new(bytes))
         .map_err(|e: R::Error| open_error(bytes, extension, &e.to_string()))?;
     let sheets = workbook.sheets_metadata().to_vec();
-    let name = pick_sheet(&sheets, sheet)?;
+    let name = pick_sheet(&sheets, sheet, words)?;
     let range = workbook.sheet_cells(&name)?;
     // A formula the workbook was saved without calculating has no stored value, and would read
     // as an empty cell, a missing price: refused instead. (Formulas that cannot be read are left
@@ -315,7 +315,11 @@ where
 
 /// The sheet named `wanted`, or the only one; the messages list every sheet, a hidden one
 /// marked so.
-fn pick_sheet(sheets: &[calamine::Sheet], wanted: Option<&str>) -> Result<String, String> {
+fn pick_sheet(
+    sheets: &[calamine::Sheet],
+    wanted: Option<&str>,
+    words: &ChoiceWords,
+) -> Result<String, String> {
     let listed = || {
         sheets
             .iter()
@@ -336,8 +340,9 @@ fn pick_sheet(sheets: &[calamine::Sheet], wanted: Option<&str>) -> Result<String
         },
         None if sheets.len() == 1 => Ok(sheets[0].name.clone()),
         None => Err(format!(
-            "has {} sheets; {NAME_THE_SHEET}: {}",
+            "has {} sheets; name the one with the prices {}: {}",
             sheets.len(),
+            words.name_the_sheet,
             listed()
         )),
     }
@@ -478,7 +483,12 @@ fn open_error(bytes: &[u8], extension: &str, detail: &str) -> String {
 }
 
 /// The header (first non-empty row) and the cells below it.
-fn from_range(sheet: String, range: Range<Data>) -> Result<RawTable, String> {
+fn from_range(
+    sheet: String,
+    range: Range<Data>,
+    date_system_1904: bool,
+    notes: Vec<String>,
+) -> Result<RawTable, String> {
     let Some((start_row, start_column)) = range.start() else {
         return Err(format!("sheet \"{sheet}\" is empty"));
     };
@@ -506,8 +516,8 @@ fn from_range(sheet: String, range: Range<Data>) -> Result<RawTable, String> {
         },
         header,
         columns,
-        date_system_1904: false,
-        notes: Vec::new(),
+        date_system_1904,
+        notes,
     })
 }
 
