@@ -462,7 +462,19 @@ fn the_wacc_of_a_subject_borrowing_in_the_output_currency() {
     let x = 1.08 / 1.02;
     let carried = |r: f64| (1.0 + r) * x - 1.0;
     let t = number(&result, "target.tax_rate");
-    let w = |k: &str| number(&result, &format!("weights.{k}"));
+    // The weights worked by hand (README, [preferred] and [leases]: shares of the whole
+    // capital): 5% preferred and 10% leases leave 85%, split at the demo's target D/E of 0.4.
+    let w = |k: &str| match k {
+        "equity" => 0.85 / 1.4,
+        "debt" => 0.85 * 0.4 / 1.4,
+        "preferred" => 0.05,
+        _ => 0.10,
+    };
+    for k in ["equity", "debt", "preferred", "leases"] {
+        // 1e-15: one division of numbers below 1.
+        let recorded = number(&result, &format!("weights.{k}"));
+        assert!((recorded - w(k)).abs() < 1e-15, "{k}: {recorded}");
+    }
     let kd = carried(number(&result, "cost_of_debt_pre_tax"));
     assert!((number(c, "cost_of_debt_pre_tax") - kd).abs() < 1e-15);
     let expected = w("equity") * carried(number(&result, "cost_of_equity"))
@@ -478,11 +490,13 @@ fn the_wacc_of_a_subject_borrowing_in_the_output_currency() {
     let gap = (w("debt") + w("leases")) * t * (x - 1.0);
     assert!((number(c, "wacc") - borrowing - gap).abs() < 1e-15);
     let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    // Two decimals of a percent, formatted here rather than by the memo's own formatter.
     assert!(memo.contains(&format!(
-        "(lower here, as USD's inflation is the higher): **{}**, against {}",
-        hurdle::report::format::percent(borrowing, 2),
-        hurdle::report::format::percent(number(c, "wacc"), 2)
+        "(lower here, as USD's inflation is the higher): **{:.2}%**, against {:.2}%",
+        borrowing * 100.0,
+        number(c, "wacc") * 100.0
     )));
+    reference_check(dir.path(), "conversion with preferred equity and leases");
 }
 
 // An inflation of the wrong size (0.2 for 2%) runs, but its notes say so: the rate itself, and

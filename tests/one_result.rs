@@ -233,14 +233,14 @@ fn the_memo_cautions_on_charts_only_when_it_has_them() {
 fn riskless_debt_above_the_rate_is_recorded_and_cautioned_from_the_result() {
     let dir = tempfile::tempdir().unwrap();
     let sentence = "although the subject's cost of debt";
-    for (sets, expected) in [
+    let configurations = [
         (vec![], true),
         (vec!["debt.cost_pre_tax=0.02"], false),
         (vec!["leverage.debt_beta_source=\"credit-spread\""], false),
-    ] {
-        let out = dir
-            .path()
-            .join(format!("out{}", sets.len() + usize::from(expected)));
+    ];
+    // A folder each, so that no run reads the memo another left.
+    for (k, (sets, expected)) in configurations.into_iter().enumerate() {
+        let out = dir.path().join(format!("out{k}"));
         let mut args = vec!["run", DEMO_CASE, "--out", out.to_str().unwrap()];
         for set in &sets {
             args.extend(["--set", set]);

@@ -1071,6 +1071,7 @@ def check_rolling(out_dir, result):
     position = {p: i for i, p in enumerate(periods)}
     method, kind = setting("beta", "method"), setting("beta", "std_errors")
     step = setting("beta", "rolling_step")
+    points = defaultdict(list)
     if WINDOW:
         check_rolling_schedule(windows, periods, result)
     else:
@@ -1099,14 +1100,13 @@ def check_rolling(out_dir, result):
         lags = newey_west_lags(len(rows)) if kind == "newey-west" else 0
         ref = reference_beta(method, kind, lags, y, x, shifted_columns(rows))
         check(f"{label} beta ({method})", float(w["beta"]), ref["beta"])
+        # The range and trend below are checked on these refitted betas, not rolling.csv's.
+        points[w["peer"]].append((dt.date.fromisoformat(w["window_end"]), ref["beta"]))
         check(f"{label} SE ({kind})", float(w["std_error"]), ref["se"])
         if method == "ols" and kind == "classical":
             fit = stats.linregress(x, y)
             check(f"{label} beta (scipy)", float(w["beta"]), fit.slope)
             check(f"{label} SE (scipy)", float(w["std_error"]), fit.stderr)
-    points = defaultdict(list)
-    for w in windows:
-        points[w["peer"]].append((dt.date.fromisoformat(w["window_end"]), float(w["beta"])))
     for peer in result["peers"]:
         s, name = peer["stability"], peer["name"]
         if not s:

@@ -241,18 +241,38 @@ RETURNS_COLUMNS = {"Peer return": "asset_return", "Index return": "market_return
                    "Risk-free (per period)": "risk_free"}
 
 
+def returns_columns(listed_fields):
+    """The Returns sheet's typed-in columns for the fields returns.csv has: the peer's and the
+    index's returns, the rate when there is one, and each shifted index excess return of Dimson or
+    Scholes-Williams (`market_lag_l` as "Index excess return, t-l", or "Index return, t-l"
+    without a rate; `market_lead_l` as "t+l")."""
+    wanted = {h: key for h, key in RETURNS_COLUMNS.items() if key in listed_fields}
+    shifted = "Index excess return" if "risk_free" in listed_fields else "Index return"
+    for field in listed_fields:
+        for prefix, sign in (("market_lag_", "-"), ("market_lead_", "+")):
+            if field.startswith(prefix):
+                wanted[f"{shifted}, t{sign}{field[len(prefix):]}"] = field
+    return wanted
+
+
 def check_returns_sheet(sheet, run_dir, label):
     """The Returns sheet's typed-in returns (the inputs of its excess-return formulas, which the
-    figure map can only check against hurdle's own numbers) against returns.csv, which
+    figure map can only check against hurdle's own numbers; under Dimson or Scholes-Williams
+    also the shifted index excess returns) against returns.csv, which
     check_regressions.py rebuilds from the case's price files for every configuration of this
     test: the same rows, peer by peer and period by period, each return equal to the last bit
     (both are the shortest decimal of the same double, and openpyxl reads it back exactly)."""
     with open(os.path.join(run_dir, "returns.csv"), newline="") as f:
-        listed = {(r["peer"], r["period_end"]): r for r in csv.DictReader(f)}
+        reader = csv.DictReader(f)
+        listed = {(r["peer"], r["period_end"]): r for r in reader}
+        wanted = returns_columns(reader.fieldnames)
     rows = sheet.iter_rows(values_only=True)
     header = list(next(rows))
-    columns = {header.index(h): key for h, key in RETURNS_COLUMNS.items() if h in header}
-    report(len(columns) >= 2, f"{label}: Returns sheet header {header} lacks the return columns")
+    # Every column returns.csv has must be in the sheet: a renamed header fails here rather than
+    # leaving its column unchecked.
+    missing = [h for h in wanted if h not in header]
+    report(not missing, f"{label}: Returns sheet header {header} lacks {missing}")
+    columns = {header.index(h): key for h, key in wanted.items() if h in header}
     seen, wrong = set(), []
     for row in rows:
         if row[0] is None:
