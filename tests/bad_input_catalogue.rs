@@ -2984,6 +2984,49 @@ fn command_arguments() -> Vec<Bad> {
             ["verify", "{dir}/r.json"],
             ["r.json", "schema_version 99"]
         ),
+        // Edited shapes, each named by its key and value (found by review: a number for the
+        // kind became a mismatch with exit 1, "2" was said to be missing, "banana" passed as
+        // another version, and `files[0] = 5` printed a line naming no file).
+        bad!(
+            "verify: receipt's kind a number",
+            |s| s.write(
+                "r.json",
+                "{\"schema_version\": 2, \"kind\": 3, \"case\": {}}"
+            ),
+            ["verify", "{dir}/r.json"],
+            ["r.json", "kind = 3 is not text"]
+        ),
+        bad!(
+            "verify: receipt's schema version as text",
+            |s| s.write("r.json", "{\"schema_version\": \"2\", \"case\": {}}"),
+            ["verify", "{dir}/r.json"],
+            ["r.json", "schema_version = \"2\" is not a whole number"]
+        ),
+        bad!(
+            "verify: receipt's tool version not a version",
+            |s| {
+                s.write(
+                "r.json",
+                "{\"schema_version\": 2, \"tool\": {\"name\": \"hurdle\", \"version\": \"banana\"}}"
+            )
+            },
+            ["verify", "{dir}/r.json"],
+            ["r.json", "tool.version = \"banana\" is no version"]
+        ),
+        bad!(
+            "verify: receipt's file entry a number",
+            |s| {
+                s.write(
+                "r.json",
+                format!(
+                    "{{\"schema_version\": {}, \"files\": [5], \"case\": {{\"file\": \"case.toml\"}}}}",
+                    hurdle::valuation::records::SCHEMA_VERSION
+                )
+            )
+            },
+            ["verify", "{dir}/r.json"],
+            ["r.json", "files[0] = 5 is no file entry"]
+        ),
         bad!(
             "verify: receipt's case missing",
             |s| s.write(
@@ -3183,6 +3226,22 @@ fn command_arguments() -> Vec<Bad> {
             ],
             ["rating_spreads_invented.csv", "debt.rating_table"]
         ),
+        // Found by review: `out/grid/` wrote the file `out/grid`.
+        bad!(
+            "grid: --csv ending in a folder separator",
+            nothing,
+            [
+                "grid",
+                "{case}",
+                "--rows",
+                "market.equity_risk_premium=0.04..0.07:0.01",
+                "--cols",
+                "target.debt_to_equity=0..1:0.5",
+                "--csv",
+                "{out}/grid/"
+            ],
+            ["--csv", "grid/", "names no file"]
+        ),
         bad!(
             "grid: zero step",
             nothing,
@@ -3302,6 +3361,34 @@ fn command_arguments() -> Vec<Bad> {
                 "{out}/g.csv"
             ],
             ["grid cell", "target.debt_to_equity=20", "above 10"]
+        ),
+        // Found by review: read with replacement characters, the label reached the memo.
+        bad!(
+            "compare: a claimed build-up in Latin-1",
+            |s| {
+                let claim = s.read("claimed.toml").replacen("[claimed]\n", "", 1);
+                let mut bytes = b"[claimed]\nlabel = \"Adv\xe9r\"\n".to_vec();
+                bytes.extend(
+                    claim
+                        .lines()
+                        .filter(|l| !l.starts_with("label"))
+                        .flat_map(|l| l.bytes().chain(std::iter::once(b'\n'))),
+                );
+                s.write("claimed.toml", bytes);
+            },
+            ["compare", "{case}", "{dir}/claimed.toml"],
+            ["claimed.toml", "line 2", "byte 13 (0xE9) is not UTF-8 text"]
+        ),
+        bad!(
+            "compare: a claimed build-up saved as UTF-16",
+            |s| {
+                let claim = s.read("claimed.toml");
+                let mut bytes = vec![0xFF, 0xFE];
+                bytes.extend(claim.encode_utf16().flat_map(u16::to_le_bytes));
+                s.write("claimed.toml", bytes);
+            },
+            ["compare", "{case}", "{dir}/claimed.toml"],
+            ["claimed.toml", "text saved as UTF-16", "not TOML text"]
         ),
         bad!(
             "compare: side missing",

@@ -283,6 +283,16 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         action: "cannot read",
         source,
     })?;
+    // Refused as a case file is, not read with replacement characters (found by review: a
+    // Latin-1 label reached the memo as "Adv�r"; a binary file was called a CSV table).
+    if let Some(kind) = crate::io::encoding::binary_kind(&bytes) {
+        return Err(fail(format!(
+            "the file is {kind}, not TOML text: save the claimed build-up as UTF-8 text"
+        )));
+    }
+    if let Some((line, message)) = crate::io::encoding::first_non_utf8(&bytes) {
+        return Err(fail(format!("line {}: {message}", line + 1)));
+    }
     let text = String::from_utf8_lossy(&bytes);
     crate::case::sanity::empty_or_csv(&text).map_err(fail)?;
     let table: toml::Table =

@@ -27,7 +27,7 @@ use serde_json::Value;
 use crate::case::read_case;
 use crate::error::{Error, Result};
 use crate::valuation::load_inputs;
-use checks::{check_kind, check_schema, recorded_overrides, refused_since};
+use checks::{check_file_entries, check_kind, check_schema, recorded_overrides, refused_since};
 pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
 use files::file_checks;
@@ -360,6 +360,7 @@ pub fn verify(
         );
     }
     check_schema(&recorded).map_err(fail)?;
+    check_file_entries(&recorded).map_err(fail)?;
     let text = |pointer: &str| {
         recorded
             .pointer(pointer)

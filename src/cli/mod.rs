@@ -156,14 +156,19 @@ pub fn shrinkage(beta: &hurdle::case::BetaSettings) -> String {
 
 /// The folder and the file name of an output file given on the command line as `option`.
 pub fn split_file_path(option: &str, path: &std::path::Path) -> hurdle::Result<(PathBuf, String)> {
-    let name =
-        path.file_name()
-            .and_then(|n| n.to_str())
-            .ok_or_else(|| hurdle::Error::Argument {
-                option: format!("{option} {}", path.display()),
-                message: "names no file (it ends in a folder); give a file name such as grid.csv"
-                    .into(),
-            })?;
+    // `out/grid/` names a folder, though its last component reads as a name (found by review:
+    // it wrote the file `out/grid`).
+    let ends_in_separator =
+        (path.as_os_str().to_string_lossy()).ends_with(|c| c == '/' || std::path::is_separator(c));
+    let name = path
+        .file_name()
+        .and_then(|n| n.to_str())
+        .filter(|_| !ends_in_separator)
+        .ok_or_else(|| hurdle::Error::Argument {
+            option: format!("{option} {}", path.display()),
+            message: "names no file (it ends in a folder); give a file name such as grid.csv"
+                .into(),
+        })?;
     // A bare file name's folder is the working one, named so in messages (not "").
     let dir = path
         .parent()

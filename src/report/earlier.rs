@@ -26,9 +26,27 @@ pub struct EarlierReceipt {
     pub title: String,
     pub valuation_date: String,
     pub wacc: Option<f64>,
+    /// The peers' names in the case's order (empty for a universe's receipt), which name the
+    /// regression charts that run drew.
+    pub peers: Vec<String>,
 }
 
 impl EarlierReceipt {
+    /// Whether `name` (under `figures/`) is a case chart this receipt's run drew: a chart named
+    /// as a run names them, and a regression chart only under the name of one of its peers in
+    /// its place (found by review: a user's `regression-09-mine.svg` was taken for a run's).
+    /// A universe's run draws none.
+    pub fn drew_case_chart(&self, name: &str) -> bool {
+        if self.universe || !super::figures::is_chart_name(name) {
+            return false;
+        }
+        match name.starts_with(super::figures::REGRESSION_PREFIX) {
+            true => (self.peers.iter().enumerate())
+                .any(|(i, peer)| super::figures::regression_file_name(i, peer) == name),
+            false => true,
+        }
+    }
+
     /// Whether this receipt is of another valuation than the case `now` ran: a universe's, or
     /// a case of another title, valuation date or case file name (the folders the path was
     /// typed from do not count: the same case is run from its own folder and from above it).
@@ -90,6 +108,9 @@ pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
             .unwrap_or_default()
             .to_string(),
         wacc: receipt["wacc"].as_f64(),
+        peers: (receipt["peers"].as_array().into_iter().flatten())
+            .filter_map(|p| p["name"].as_str().map(str::to_string))
+            .collect(),
     })
 }
 

@@ -107,7 +107,7 @@ pub fn stale_run_outputs(
         .into_iter()
         .filter(|name| {
             name == REPORT
-                || figures::is_chart_name(name)
+                || earlier.drew_case_chart(name)
                 || universe::OUTPUTS.contains(&name.as_str())
                 || universe::chart::is_chart_name(name)
         })
@@ -122,9 +122,10 @@ pub fn stale_run_outputs(
 }
 
 /// The files a case's run writes that are not a universe's, as they stand in `dir`: what a
-/// universe run takes away when the receipt it replaces is a case's (the memo, the tables, the
-/// workbook, the report, the charts and `hurdle verify --out`'s status of that receipt).
-pub fn case_run_outputs_in(dir: &Path) -> Vec<String> {
+/// universe run takes away when the receipt it replaces is `earlier`, a case's (the memo, the
+/// tables, the workbook, the report, the charts that run drew and `hurdle verify --out`'s
+/// status of that receipt).
+pub fn case_run_outputs_in(dir: &Path, earlier: &earlier::EarlierReceipt) -> Vec<String> {
     let mut names: Vec<String> = [
         "memo.md",
         "peers.csv",
@@ -140,7 +141,7 @@ pub fn case_run_outputs_in(dir: &Path) -> Vec<String> {
         names.extend(
             (entries.flatten())
                 .map(|e| format!("{}/{}", figures::FOLDER, e.file_name().to_string_lossy()))
-                .filter(|name| figures::is_chart_name(name)),
+                .filter(|name| earlier.drew_case_chart(name)),
         );
     }
     if verifies_the_receipt_in(dir) {

@@ -193,6 +193,18 @@ impl Stage {
                 ),
             ));
         }
+        // A named pipe, a device or a socket would be replaced by a plain file (found by review:
+        // `--csv /dev/null` run as root replaced the device).
+        if fs::metadata(&canonical).is_ok_and(|m| !m.is_file()) {
+            return Err(refusal(
+                &self.dir,
+                format!(
+                    "{} is not a regular file (a named pipe, a device or a socket); hurdle writes \
+                     a file of that name and never replaces anything else",
+                    target.display()
+                ),
+            ));
+        }
         Ok(())
     }
 

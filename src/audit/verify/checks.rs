@@ -17,6 +17,15 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
         recorded["case"].is_object(),
         recorded["universe"].is_object(),
     );
+    // Found by review: a number for the kind became a mismatch, exit 1.
+    if !(recorded["kind"].is_string() || recorded["kind"].is_null()) {
+        return Err(format!(
+            "kind = {} is not text (\"case\" or \"universe\"): it was edited; restore it or \
+             verify the receipt the run wrote",
+            recorded["kind"]
+        ));
+    }
+    check_tool_version(recorded)?;
     let kind = recorded["kind"].as_str();
     if let Some(other) = kind.filter(|k| !["case", "universe"].contains(k)) {
         return Err(format!(
@@ -39,11 +48,66 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
     Ok(())
 }
 
+/// The version that wrote the receipt, `tool.version`: three whole numbers as hurdle writes
+/// them, else an edit (found by review: "banana" let a deleted note pass as another version's
+/// wording). Absent, it is the unknown version the comparison already treats strictly.
+fn check_tool_version(recorded: &Value) -> std::result::Result<(), String> {
+    let written = &recorded["tool"]["version"];
+    let well_formed = written.as_str().is_some_and(|v| {
+        let parts: Vec<&str> = v.split('.').collect();
+        parts.len() == 3
+            && (parts.iter()).all(|p| !p.is_empty() && p.bytes().all(|b| b.is_ascii_digit()))
+    });
+    match written.is_null() || well_formed {
+        true => Ok(()),
+        false => Err(format!(
+            "tool.version = {written} is no version hurdle writes (three whole numbers, such as \
+             {}): it was edited; restore it or verify the receipt the run wrote",
+            env!("CARGO_PKG_VERSION")
+        )),
+    }
+}
+
+/// A receipt's `schema_version`, `None` when it has none; one that is not a whole number was
+/// edited (found by review: "2" was said to be missing).
+pub(super) fn schema_version(recorded: &Value) -> std::result::Result<Option<u64>, String> {
+    match &recorded["schema_version"] {
+        Value::Null => Ok(None),
+        field => field.as_u64().map(Some).ok_or_else(|| {
+            format!(
+                "schema_version = {field} is not a whole number: it was edited; restore it or \
+                 verify the receipt the run wrote"
+            )
+        }),
+    }
+}
+
+/// A case receipt's list of input files: each entry an object naming its role and path as
+/// text, else an edit named by its place (found by review: `files[0] = 5` printed a check
+/// naming no file).
+pub(super) fn check_file_entries(recorded: &Value) -> std::result::Result<(), String> {
+    let Some(list) = recorded["files"].as_array() else {
+        return Ok(());
+    };
+    for (i, entry) in list.iter().enumerate() {
+        if !(entry["role"].is_string() && entry["path"].is_string()) {
+            let shown = match entry.to_string() {
+                text if text.chars().count() > 80 => "an entry".to_string(),
+                text => text,
+            };
+            return Err(format!(
+                "files[{i}] = {shown} is no file entry (an object with its `role`, `path` and \
+                 `sha256` as text): it was edited; restore it or verify the receipt the run wrote"
+            ));
+        }
+    }
+    Ok(())
+}
+
 /// A case receipt's schema version: this hurdle's, else refused with what to do.
 pub(super) fn check_schema(recorded: &Value) -> std::result::Result<(), String> {
-    let version = recorded["schema_version"]
-        .as_u64()
-        .ok_or("has no schema_version; is it a hurdle result.json?")?;
+    let version =
+        schema_version(recorded)?.ok_or("has no schema_version; is it a hurdle result.json?")?;
     if version > u64::from(SCHEMA_VERSION) {
         return Err(format!(
             "schema_version {version} is newer than this hurdle reads ({SCHEMA_VERSION}); verify with the version that wrote it ({})",

@@ -44,7 +44,7 @@ pub fn verify_universe(
         file: receipt_path.to_path_buf(),
         message,
     };
-    let version = recorded["schema_version"].as_u64().unwrap_or(0);
+    let version = (super::checks::schema_version(recorded).map_err(fail)?).unwrap_or(0);
     if version > u64::from(SCHEMA_VERSION) {
         return Err(fail(format!(
             "universe schema_version {version} is newer than this hurdle reads \

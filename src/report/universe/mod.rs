@@ -50,8 +50,8 @@ pub fn write_outputs(
     // A case's outputs go too when the receipt replaced is a case's: they would sit beside the
     // universe's receipt as if it had written them.
     let mut optional: Vec<String> = OPTIONAL_OUTPUTS.iter().map(|n| n.to_string()).collect();
-    if super::earlier::earlier_receipt(dir).is_some_and(|e| !e.universe) {
-        optional.extend(super::case_run_outputs_in(dir));
+    if let Some(earlier) = super::earlier::earlier_receipt(dir).filter(|e| !e.universe) {
+        optional.extend(super::case_run_outputs_in(dir, &earlier));
     }
     // `hurdle verify --out`'s status of the receipt this run replaces, which would otherwise
     // say REPRODUCED beside a receipt it never saw (found by review).
