@@ -1191,6 +1191,30 @@ fn implied_beta(sets: &[&str], claim: &str) -> (serde_json::Value, f64) {
     (base, exact_beta(&report))
 }
 
+// A case whose own ERP lies above the default range is searched over a range widened to hold
+// it (README, Implied inputs): under CAPM with riskless debt the WACC is linear in the ERP,
+// WACC = wE·(rf + β·ERP + premiums) + wD·Kd·(1 − t) (textbook; β does not depend on the ERP
+// under Hamada), so the answer is ERP₀ + (claim − WACC₀)/(wE·β). 1e-12: a bisection ending
+// on adjacent doubles of a slope near 0.7 (found by review: "no value in [0%, 20%]").
+#[test]
+fn a_case_value_beyond_the_default_range_is_searched_around() {
+    let out = tempfile::tempdir().unwrap();
+    let sets = ["--set", "market.equity_risk_premium=0.25"];
+    let run = run_case(Path::new(DEMO_CASE), out.path(), &sets);
+    let output = hurdle(&[
+        "implied", DEMO_CASE, "--wacc", "0.20", "--solve", "erp", sets[0], sets[1],
+    ]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let found: f64 = exact_line(&report, "market.equity_risk_premium=")
+        .parse()
+        .unwrap();
+    let slope = number(&run, "weights.equity") * number(&run, "beta.relevered");
+    let expected = 0.25 + (0.20 - number(&run, "wacc")) / slope;
+    assert!((found - expected).abs() < 1e-12, "{found} {expected}");
+    assert!(found > 0.20, "beyond the default range's end: {found}");
+}
+
 /// What follows `exact: {prefix}` in the output of `hurdle implied`.
 fn exact_line<'a>(report: &'a str, prefix: &str) -> &'a str {
     report

@@ -2353,6 +2353,17 @@ fn claimed_files() -> Vec<Bad> {
             ["gone_claim.toml", "No such file"]
         ),
         bad!(
+            "claimed as_of outside the years a case holds",
+            |s| edit_at(
+                s,
+                "claimed.toml",
+                "[claimed]\n",
+                "[claimed]\nas_of = 9999-12-31\n"
+            ),
+            ["compare", "{case}", "{dir}/claimed.toml"],
+            ["claimed.toml", "claimed.as_of = 9999-12-31", "1800 to 2199"]
+        ),
+        bad!(
             "reconciled claim with NaN",
             |s| edit_at(s, "claimed.toml", "beta = 1.10", "beta = nan"),
             ["run", "{case}", "--out", "{out}"],

@@ -1992,6 +1992,14 @@ fn bad_attribute_values_are_refused() {
         (3, "-100", "`market_cap` = -100 must be positive"),
         (6, "1.2", "`tax_rate` = 1.2 is outside [0, 1)"),
         (5, "-1", "`cash` = -1 must not be negative"),
+        // A case's bounds on an amount (found by review: 1e308 wrote an operating share of
+        // -6.67e304 into securities.csv).
+        (
+            3,
+            "1e308",
+            "`market_cap` = 1e308 lies outside 1e-100 to 1e100",
+        ),
+        (4, "5e-324", "`debt` = 5e-324 lies outside 1e-100 to 1e100"),
     ] {
         refused(
             |dir| {

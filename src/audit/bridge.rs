@@ -314,6 +314,16 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         }
         crate::case::sanity::plain_label("claimed.currency", currency).map_err(fail)?;
     }
+    // A date a case could not hold is an error in the claim (found by review: 0001-01-01 and
+    // 9999-12-31 were accepted).
+    if let Some(crate::case::CaseDate(date)) = claimed.as_of {
+        let (first, last) = crate::case::sanity::YEARS;
+        if !(first..=last).contains(&chrono::Datelike::year(&date)) {
+            return Err(fail(format!(
+                "claimed.as_of = {date} is outside the years {first} to {last}"
+            )));
+        }
+    }
     // The label is a line of the memo's and compare's text (found by review: a label holding
     // a line break put a heading into the memo).
     crate::case::sanity::visible_one_line("claimed.label", &claimed.label).map_err(fail)?;

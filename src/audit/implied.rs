@@ -353,6 +353,10 @@ pub fn implied(
     let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = key_and_base_value(target, by_capital, base);
+    let (low, high) = match range {
+        Some(_) => (low, high),
+        None => holding_case_value((low, high), key, by_capital, base_value),
+    };
     let (low, high) = in_key_units((low, high), key, by_capital)?;
     let build_up = Side::from_valuation("base", base).build_up;
     // A country premium scaled by beta moves with the beta solved for (found by review: such a
@@ -429,6 +433,36 @@ fn in_key_units((low, high): (f64, f64), key: &str, by_capital: bool) -> Result<
         true => (dc(low), dc(high)),
         false => (low, high),
     })
+}
+
+/// The default range widened to hold the case's own value `base` (in the key's units; a
+/// debt-to-capital case's is turned into D/E, the range's unit), reaching as far again beyond
+/// it as the range reached on its other side, within what the key accepts (found by review: a
+/// case at an ERP of 25% was told that no ERP in [0%, 20%] meets a claim near its own WACC).
+fn holding_case_value(
+    (low, high): (f64, f64),
+    key: &str,
+    by_capital: bool,
+    base: f64,
+) -> (f64, f64) {
+    let (key, base) = match by_capital {
+        true => (
+            "target.debt_to_equity",
+            crate::capital::cost::debt_to_equity_from_capital(base),
+        ),
+        false => (key, base),
+    };
+    let (least, most, most_included) = crate::valuation::sanity::accepted_range(key);
+    let most = match most_included {
+        true => most,
+        false => most.next_down(),
+    };
+    match base {
+        b if !b.is_finite() => (low, high),
+        b if b > high => (low, (b + (b - low)).min(most)),
+        b if b < low => ((b - (high - b)).max(least), high),
+        _ => (low, high),
+    }
 }
 
 /// The range to search: the given one, else the target's default. Every default range passes,

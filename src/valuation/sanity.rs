@@ -454,7 +454,7 @@ pub fn check_axes(rows_key: &str, columns_key: &str, case: &toml::Table) -> Resu
 /// `(least, most, most_included)`. Rates are decimals in [−0.5, 1) and a pre-tax cost of debt
 /// in [0, 1), as the case's validation takes them; a D/E up to [`MAX_DEBT_TO_EQUITY`]; the
 /// relevered beta in [−5, 10].
-fn accepted_range(key: &str) -> (f64, f64, bool) {
+pub fn accepted_range(key: &str) -> (f64, f64, bool) {
     match key {
         "debt.cost_pre_tax" => (0.0, 1.0, false),
         "target.debt_to_equity" => (0.0, MAX_DEBT_TO_EQUITY, true),
