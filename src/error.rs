@@ -82,6 +82,23 @@ pub enum Error {
         beside: PathBuf,
         recorded: PathBuf,
     },
+    /// The file a receipt would rerun is the receipt itself (recorded so, or given so); a front
+    /// end says how to give the right one.
+    #[error(
+        "{}: {}: verify reruns the {section} file the receipt was written from",
+        receipt.display(),
+        match given {
+            true => format!("the {section} file given is the receipt itself"),
+            false => format!("the receipt names itself as its {section} file ({section}.file)"),
+        }
+    )]
+    ReceiptAsInput {
+        receipt: PathBuf,
+        /// `case` or `universe`.
+        section: String,
+        /// Whether the command line gave it (else the receipt records it).
+        given: bool,
+    },
     /// A command-line option or a value outside the override syntax is malformed.
     #[error("{option}: {message}")]
     Argument { option: String, message: String },

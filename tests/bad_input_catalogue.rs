@@ -3039,6 +3039,22 @@ fn command_arguments() -> Vec<Bad> {
             ["r.json", "files[0] = 5 is no file entry"]
         ),
         bad!(
+            "verify: the receipt given as its own case",
+            |s| s.write(
+                "r.json",
+                format!(
+                    "{{\"schema_version\": {}, \"case\": {{\"file\": \"case.toml\"}}}}",
+                    hurdle::valuation::records::SCHEMA_VERSION
+                )
+            ),
+            ["verify", "{dir}/r.json", "--case", "{dir}/r.json"],
+            [
+                "r.json",
+                "the case file given is the receipt itself",
+                "give that file with --case"
+            ]
+        ),
+        bad!(
             "verify: receipt's case missing",
             |s| s.write(
                 "r.json",
@@ -3139,7 +3155,7 @@ fn command_arguments() -> Vec<Bad> {
             [
                 "peer.0.debt",
                 "peer.Brenvale Fluid Systems.debt",
-                "the same key on both axes"
+                "two keys for one setting on both axes"
             ]
         ),
         // An ERP of 1 (100%) is outside the case's [−0.5, 1): a range reaching it is refused

@@ -451,7 +451,7 @@ fn a_value_set_twice_is_said() {
     assert!(
         stderr(&output).contains(
             "note: --set peer.Brenvale Fluid Systems.debt=900 replaces --set peer.0.debt=100, \
-             which sets the same value; the later is used"
+             which sets the same key; the later is used"
         ),
         "{}",
         stderr(&output)

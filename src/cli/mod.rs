@@ -70,6 +70,7 @@ pub fn render_error(error: &hurdle::Error) -> String {
         ),
         Error::InputNotFound { .. } => format!("{error}; give its place with --case"),
         Error::AmbiguousInput { .. } => format!("{error} with --case"),
+        Error::ReceiptAsInput { .. } => format!("{error}; give that file with --case"),
         other => other.to_string(),
     }
 }
@@ -133,7 +134,7 @@ pub fn note_repeated_sets(file: &std::path::Path, overrides: &[String]) {
     };
     for (earlier, later) in hurdle::case::overrides::repeated(&table, overrides) {
         say!(
-            "note: --set {} replaces --set {}, which sets the same value; the later is used",
+            "note: --set {} replaces --set {}, which sets the same key; the later is used",
             overrides[later],
             overrides[earlier]
         );

@@ -108,7 +108,19 @@ fn type_message(message: &str) -> Option<String> {
             _ => found.split('`').nth(1).unwrap_or(found),
         };
         return Some(if found.starts_with("floating point") {
-            format!("{value} is not a whole number: this key takes a whole number")
+            // `100.0` is a whole number written as a decimal (found by review: "100.0 is not a
+            // whole number").
+            match value.parse::<f64>() {
+                Ok(x) if x.is_finite() && x.fract() == 0.0 => format!(
+                    "{value} is written as a decimal: this key takes a whole number, written \
+                     without a decimal point{}",
+                    match x.abs() < 1e15 {
+                        true => format!(" ({x:.0})"),
+                        false => String::new(),
+                    }
+                ),
+                _ => format!("{value} is not a whole number: this key takes a whole number"),
+            }
         } else if found.starts_with("integer") {
             out_of_range(value, range)
         } else {
@@ -462,6 +474,12 @@ mod tests {
                 "invalid type: floating point `36.5`, expected u32",
                 "",
                 "36.5 is not a whole number",
+            ),
+            (
+                "invalid type: floating point `100.0`, expected u32",
+                "",
+                "100.0 is written as a decimal: this key takes a whole number, written without \
+                 a decimal point (100)",
             ),
             (
                 "invalid value: integer `5000000000`, expected u32",

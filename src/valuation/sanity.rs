@@ -440,11 +440,20 @@ pub fn check_finite_figures(valuation: &Valuation) -> Result<()> {
 pub fn check_axes(rows_key: &str, columns_key: &str, case: &toml::Table) -> Result<()> {
     // Also two spellings of one key (a peer by index and by name).
     if rows_key == columns_key || crate::case::overrides::same_value(case, rows_key, columns_key) {
+        // Found by review: D/E against debt to capital was called "the same key".
+        let what = match rows_key == columns_key {
+            true => "the same key on both axes",
+            false => {
+                "two keys for one setting on both axes (a peer by index and by name, or the \
+                      target's D/E and its debt to capital)"
+            }
+        };
         return Err(Error::Argument {
             option: format!("grid axes {rows_key} and {columns_key}"),
-            message: "the same key on both axes: the column value would replace the row value in \
-                      every cell; give two different keys"
-                .into(),
+            message: format!(
+                "{what}: the column value would replace the row value in every cell; give two \
+                 different settings"
+            ),
         });
     }
     Ok(())
