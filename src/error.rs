@@ -102,6 +102,14 @@ pub enum Error {
     /// A command-line option or a value outside the override syntax is malformed.
     #[error("{option}: {message}")]
     Argument { option: String, message: String },
+    /// A series file has no column of the name asked for: `column` is that name, so that the
+    /// layer that asked can name the key that gave it.
+    #[error("{}: {message}", file.display())]
+    MissingColumn {
+        file: PathBuf,
+        column: String,
+        message: String,
+    },
     /// A data file is malformed as a whole (missing column, not CSV, no rows).
     #[error("{}: {message}", file.display())]
     DataFile { file: PathBuf, message: String },

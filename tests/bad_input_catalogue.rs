@@ -395,6 +395,24 @@ fn price_files() -> Vec<Bad> {
                 "delete that line"
             ]
         ),
+        // Found by review: the file was named, not the key that asked for the column.
+        bad!(
+            "the index's price column not in its file",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "market.index.price_column=close"
+            ],
+            [
+                "index.csv",
+                "no column named `close`",
+                "asked for by market.index.price_column"
+            ]
+        ),
         bad!(
             "ragged row",
             |s| {

@@ -251,7 +251,8 @@ pub fn read_series(case: &Case) -> Result<SeriesRead> {
                 keys.date_column,
                 keys.value_column,
                 keys.kind,
-            ),
+            )
+            .map_err(|e| name_the_column_key(e, &keys.key, (keys.value_key, keys.value_column))),
         })
         .collect();
     let mut files = files.into_iter().collect::<Result<Vec<_>>>()?.into_iter();
@@ -282,6 +283,34 @@ fn name_the_key(error: Error, key: &str) -> Error {
             file,
             message: format!("{message} (asked for by {key}.column)"),
         },
+        other => other,
+    }
+}
+
+/// Adds the key that named a missing column of a series' own file to its message: `section`'s
+/// `value_key` when the column is `value_column`, else its `date_column` (found by review:
+/// `--set market.index.price_column=close` was told only that the file lacks it).
+pub fn name_the_column_key(
+    error: Error,
+    section: &str,
+    (value_key, value_column): (&str, &str),
+) -> Error {
+    match error {
+        Error::MissingColumn {
+            file,
+            column,
+            message,
+        } => {
+            let key = match column == value_column {
+                true => value_key,
+                false => "date_column",
+            };
+            Error::MissingColumn {
+                file,
+                message: format!("{message} (asked for by {section}.{key})"),
+                column,
+            }
+        }
         other => other,
     }
 }

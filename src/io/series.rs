@@ -288,7 +288,11 @@ pub fn parse_series(
     let header = reader.headers().map_err(unreadable)?.clone();
     let column = |name: &str| match super::sanity::unique_column(&header, name) {
         Ok(Some(at)) => Ok(at),
-        Ok(None) => Err(file_error(missing_column(&header, name))),
+        Ok(None) => Err(Error::MissingColumn {
+            file: file.to_path_buf(),
+            column: name.to_string(),
+            message: missing_column(&header, name),
+        }),
         Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);

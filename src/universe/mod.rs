@@ -72,14 +72,23 @@ fn read_market_series(
             )?
             .series(role, column, kind)
         }
-        _ => read_series_file(
-            role,
-            file,
-            &universe.resolve(file),
-            date_column,
-            value_column,
-            kind,
-        ),
+        _ => {
+            let (section, value_key) = match kind {
+                ValueKind::Price => ("market.index", "price_column"),
+                ValueKind::Yield => ("market.risk_free_series", "yield_column"),
+            };
+            read_series_file(
+                role,
+                file,
+                &universe.resolve(file),
+                date_column,
+                value_column,
+                kind,
+            )
+            .map_err(|e| {
+                crate::case::sources::name_the_column_key(e, section, (value_key, value_column))
+            })
+        }
     }
 }
 

@@ -165,6 +165,15 @@ pub(super) fn refused_since(error: Error, recorded: &Value) -> Error {
             file,
             message: message + &why,
         },
+        Error::MissingColumn {
+            file,
+            column,
+            message,
+        } => Error::MissingColumn {
+            file,
+            column,
+            message: message + &why,
+        },
         Error::Case { file, message } => Error::Case {
             file,
             message: message + &why,
