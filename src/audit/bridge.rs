@@ -283,17 +283,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         action: "cannot read",
         source,
     })?;
-    // Refused as a case file is, not read with replacement characters (found by review: a
-    // Latin-1 label reached the memo as "Adv�r"; a binary file was called a CSV table).
-    if let Some(kind) = crate::io::encoding::binary_kind(&bytes) {
-        return Err(fail(format!(
-            "the file is {kind}, not TOML text: save the claimed build-up as UTF-8 text"
-        )));
-    }
-    if let Some((line, message)) = crate::io::encoding::first_non_utf8(&bytes) {
-        return Err(fail(format!("line {}: {message}", line + 1)));
-    }
-    let text = String::from_utf8_lossy(&bytes);
+    let text = toml_text(&bytes).map_err(fail)?;
     crate::case::sanity::empty_or_csv(&text).map_err(fail)?;
     let table: toml::Table =
         toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
@@ -306,27 +296,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
     let claimed = toml::from_str::<ClaimedFile>(&text)
         .map_err(|e| fail(crate::error::toml_error(&e, &text)))?
         .claimed;
-    if let Some(currency) = &claimed.currency {
-        if currency.trim().is_empty() {
-            return Err(fail(
-                "claimed.currency is empty; leave it out or name the currency".into(),
-            ));
-        }
-        crate::case::sanity::plain_label("claimed.currency", currency).map_err(fail)?;
-    }
-    // A date a case could not hold is an error in the claim (found by review: 0001-01-01 and
-    // 9999-12-31 were accepted).
-    if let Some(crate::case::CaseDate(date)) = claimed.as_of {
-        let (first, last) = crate::case::sanity::YEARS;
-        if !(first..=last).contains(&chrono::Datelike::year(&date)) {
-            return Err(fail(format!(
-                "claimed.as_of = {date} is outside the years {first} to {last}"
-            )));
-        }
-    }
-    // The label is a line of the memo's and compare's text (found by review: a label holding
-    // a line break put a heading into the memo).
-    crate::case::sanity::visible_one_line("claimed.label", &claimed.label).map_err(fail)?;
+    check_claim_words(&claimed).map_err(fail)?;
     let debt_to_equity = claimed_debt_to_equity(&claimed).map_err(fail)?;
     if !(0.0..1.0).contains(&claimed.tax_rate) {
         return Err(fail(format!(
@@ -366,6 +336,42 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         stated_cost_of_equity: claimed.cost_of_equity,
     };
     Ok((side, None))
+}
+
+/// A case or claim file's bytes as text: refused as a case file is, not read with replacement
+/// characters (found by review: a Latin-1 label reached the memo as "Adv�r"; a binary file was
+/// called a CSV table).
+fn toml_text(bytes: &[u8]) -> std::result::Result<std::borrow::Cow<'_, str>, String> {
+    if let Some(kind) = crate::io::encoding::binary_kind(bytes) {
+        return Err(format!(
+            "the file is {kind}, not TOML text: save the claimed build-up as UTF-8 text"
+        ));
+    }
+    if let Some((line, message)) = crate::io::encoding::first_non_utf8(bytes) {
+        return Err(format!("line {}: {message}", line + 1));
+    }
+    Ok(String::from_utf8_lossy(bytes))
+}
+
+/// A claim's currency, date and label as a case's are held: a currency named plainly, a date
+/// in the years a case may hold (found by review: 0001-01-01 and 9999-12-31 were accepted), a
+/// label on one visible line (a label holding a line break put a heading into the memo).
+fn check_claim_words(claimed: &Claimed) -> std::result::Result<(), String> {
+    if let Some(currency) = &claimed.currency {
+        if currency.trim().is_empty() {
+            return Err("claimed.currency is empty; leave it out or name the currency".into());
+        }
+        crate::case::sanity::plain_label("claimed.currency", currency)?;
+    }
+    if let Some(crate::case::CaseDate(date)) = claimed.as_of {
+        let (first, last) = crate::case::sanity::YEARS;
+        if !(first..=last).contains(&chrono::Datelike::year(&date)) {
+            return Err(format!(
+                "claimed.as_of = {date} is outside the years {first} to {last}"
+            ));
+        }
+    }
+    crate::case::sanity::visible_one_line("claimed.label", &claimed.label)
 }
 
 /// Every component a claimed build-up lacks, named at once (found by review: a one-page claim

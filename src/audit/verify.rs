@@ -1,12 +1,14 @@
 //! Verification of a receipt: rerun the case a `result.json` names and compare every figure.
 //!
 //! The case file is looked for beside the receipt's folder, then in it, then at the path the
-//! receipt records (or read where the reviewer gives it), and read with the receipt's
-//! overrides; every input file's SHA-256 is compared with the recorded one; the full run is
-//! repeated and every leaf of the recorded JSON is compared with the rerun's, numbers within a
-//! relative tolerance and everything else exactly. `generated_at`, `case.file` and
-//! `universe.file` (the paths the inputs were found at), `tool.version` (which the report names)
-//! and `cost_of_debt.row.line` are skipped (`compare.rs`). A sentence that describes a setting in words
+//! receipt records, then at that path from the receipt's folder and each folder above it, by
+//! SHA-256 only there (`locate.rs`; or read where the reviewer gives it), and read with the
+//! receipt's overrides; every input file's SHA-256 is compared with the recorded one; the full
+//! run is repeated and every leaf of the recorded JSON is compared with the rerun's, numbers
+//! within a relative tolerance and everything else exactly. `generated_at`, `case.file`,
+//! `universe.file` and `reconciliation.from.source` (the paths the inputs were found at),
+//! `tool.version` (which the report names) and `cost_of_debt.row.line` are skipped
+//! (`compare.rs`). A sentence that describes a setting in words
 //! ([`WORDING_KEYS`]) and reads differently is listed apart: a later version may word it better,
 //! and the setting it describes is compared as a value of its own.
 

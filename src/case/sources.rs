@@ -19,8 +19,8 @@ use crate::io::tables::{ChoiceWords, PriceTable, TableRequest};
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct TableSource {
-    /// Path of the table (`.csv`, `.parquet`, `.xlsx`, `.xlsm`, `.xls`, `.ods`), relative to the
-    /// case file's folder.
+    /// Path of the table (`.csv`, `.txt`, `.parquet`, `.pq`, `.xlsx`, `.xlsm`, `.xls`, `.ods`),
+    /// relative to the case file's folder.
     pub file: String,
     /// The workbook sheet holding the table; may be left out when the workbook has one sheet.
     #[serde(default, skip_serializing_if = "Option::is_none")]

@@ -18,7 +18,7 @@ use hurdle::report::new_file::write_new;
 
 #[derive(Debug, clap::Args)]
 pub struct Args {
-    /// The price table: .csv, .txt, .parquet, .xlsx, .xlsm, .xls or .ods.
+    /// The price table: .csv, .txt, .parquet, .pq, .xlsx, .xlsm, .xls or .ods.
     pub table: PathBuf,
     /// The column holding the market index; every other column becomes a peer.
     #[arg(long, value_name = "COLUMN")]

@@ -83,6 +83,22 @@ fn line_hint(line: &str) -> Option<String> {
 }
 
 /// serde's "invalid type" and "invalid value" messages: what the key takes, in words.
+/// A decimal where a whole number belongs; `100.0` is one written as a decimal (found by
+/// review: "100.0 is not a whole number").
+fn not_whole(value: &str) -> String {
+    match value.parse::<f64>() {
+        Ok(x) if x.is_finite() && x.fract() == 0.0 => format!(
+            "{value} is written as a decimal: this key takes a whole number, written without a \
+             decimal point{}",
+            match x.abs() < 1e15 {
+                true => format!(" ({x:.0})"),
+                false => String::new(),
+            }
+        ),
+        _ => format!("{value} is not a whole number: this key takes a whole number"),
+    }
+}
+
 fn type_message(message: &str) -> Option<String> {
     let rest = message
         .strip_prefix("invalid type: ")
@@ -108,19 +124,7 @@ fn type_message(message: &str) -> Option<String> {
             _ => found.split('`').nth(1).unwrap_or(found),
         };
         return Some(if found.starts_with("floating point") {
-            // `100.0` is a whole number written as a decimal (found by review: "100.0 is not a
-            // whole number").
-            match value.parse::<f64>() {
-                Ok(x) if x.is_finite() && x.fract() == 0.0 => format!(
-                    "{value} is written as a decimal: this key takes a whole number, written \
-                     without a decimal point{}",
-                    match x.abs() < 1e15 {
-                        true => format!(" ({x:.0})"),
-                        false => String::new(),
-                    }
-                ),
-                _ => format!("{value} is not a whole number: this key takes a whole number"),
-            }
+            not_whole(value)
         } else if found.starts_with("integer") {
             out_of_range(value, range)
         } else {

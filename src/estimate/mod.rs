@@ -427,6 +427,60 @@ fn rolling_spec(spec: &EstimationSpec) -> rolling::RollingSpec {
     }
 }
 
+/// The security's sampled returns aligned with the index's (and the rate's) over the window,
+/// with the periods dropped and why.
+fn aligned_returns(
+    spec: &EstimationSpec,
+    window: &Window,
+    market: &MarketReturns,
+    prices: SeriesView<'_>,
+) -> AlignedReturns {
+    let (asset_returns, asset_stale) = sample_returns(spec, window, prices);
+    let stale = sampling::StalePeriods {
+        asset: &asset_stale,
+        market: &market.stale,
+    };
+    sampling::align_with_shifts(
+        &window.all_period_ends,
+        &asset_returns,
+        &market.returns,
+        market.risk_free.as_deref(),
+        stale,
+        &window.offsets,
+        window.first,
+    )
+}
+
+/// A security's rolling betas, their range and trend, and why there is none.
+type RollingPart = (
+    Vec<rolling::RollingPoint>,
+    Option<rolling::Stability>,
+    Option<rolling::NoStability>,
+);
+
+/// The rolling betas over the aligned excess returns, their range and trend, and why there is
+/// none when there is none; nothing when the spec asks for no rolling betas.
+fn rolling_part(
+    spec: &EstimationSpec,
+    window: &Window,
+    aligned: &AlignedReturns,
+    excess: (&[f64], &[f64]),
+) -> Result<RollingPart, EstimateError> {
+    if !spec.rolling_betas {
+        return Ok((Vec::new(), None, None));
+    }
+    let points = rolling_points(spec, window, aligned, excess);
+    let laid = rolling::laid_window_ends(window.period_ends(), &rolling_spec(spec));
+    let stability = rolling::stability(&points, spec.rolling.window, &laid)
+        .map_err(|e| EstimateError::Estimator(e.to_string()))?;
+    let no_stability = stability.is_none().then(|| {
+        let periods = window.period_ends().len();
+        let shifted = aligned.market_shifted.len();
+        rolling::NoStability::of(&rolling_spec(spec), periods, shifted)
+    });
+    Ok((points, stability, no_stability))
+}
+
 /// Estimates one security against the index returns of `market`.
 pub fn estimate_security(
     spec: &EstimationSpec,
@@ -434,21 +488,7 @@ pub fn estimate_security(
     market: &MarketReturns,
     prices: SeriesView<'_>,
 ) -> Result<SecurityEstimate, EstimateError> {
-    let (asset_returns, asset_stale) = sample_returns(spec, window, prices);
-    let first = window.first;
-    let stale = sampling::StalePeriods {
-        asset: &asset_stale,
-        market: &market.stale,
-    };
-    let aligned = sampling::align_with_shifts(
-        &window.all_period_ends,
-        &asset_returns,
-        &market.returns,
-        market.risk_free.as_deref(),
-        stale,
-        &window.offsets,
-        first,
-    );
+    let aligned = aligned_returns(spec, window, market, prices);
     let n = aligned.asset.len();
     if n < spec.min_observations as usize {
         return Err(EstimateError::TooFewReturns {
@@ -470,10 +510,8 @@ pub fn estimate_security(
     )
     .map_err(EstimateError::from)?;
     let periods_in_window = window.period_ends().len();
-    let rolling_points = match spec.rolling_betas {
-        true => rolling_points(spec, window, &aligned, (&asset_excess, &market_excess)),
-        false => Vec::new(),
-    };
+    let (rolling_points, stability, no_stability) =
+        rolling_part(spec, window, &aligned, (&asset_excess, &market_excess))?;
     let fitted_line = match spec.case_extras {
         true => line_over(&estimate, &market_excess),
         false => FittedLine::default(),
@@ -491,13 +529,6 @@ pub fn estimate_security(
         .flags
         .flags(&estimate, periods_in_window, shares, lag_response.as_ref());
     let excluding_flags = spec.flags.excluding(&flags);
-    let laid = rolling::laid_window_ends(window.period_ends(), &rolling_spec(spec));
-    let stability = rolling::stability(&rolling_points, spec.rolling.window, &laid)
-        .map_err(|e| EstimateError::Estimator(e.to_string()))?;
-    let no_stability = (spec.rolling_betas && stability.is_none()).then(|| {
-        let shifted = aligned.market_shifted.len();
-        rolling::NoStability::of(&rolling_spec(spec), periods_in_window, shifted)
-    });
     Ok(SecurityEstimate {
         periods_in_window,
         dropped: aligned.dropped,

@@ -250,13 +250,17 @@ fn check_unnamed_cells(
 }
 
 /// "No column named `name`", with the header's names and a name that differs only by spaces.
-fn missing_column(header: &csv::StringRecord, name: &str) -> String {
+fn missing_column(file: &Path, header: &csv::StringRecord, name: &str) -> Error {
     let names: Vec<&str> = header.iter().collect();
     let hint = super::sanity::column_name_hint(names.iter().copied(), name);
-    format!(
-        "no column named `{name}`; the header has: {}{hint}",
-        names.join(", ")
-    )
+    Error::MissingColumn {
+        file: file.to_path_buf(),
+        column: name.to_string(),
+        message: format!(
+            "no column named `{name}`; the header has: {}{hint}",
+            names.join(", ")
+        ),
+    }
 }
 
 /// Parses CSV bytes into a validated series; `file` is only used in messages. The shape is
@@ -288,11 +292,7 @@ pub fn parse_series(
     let header = reader.headers().map_err(unreadable)?.clone();
     let column = |name: &str| match super::sanity::unique_column(&header, name) {
         Ok(Some(at)) => Ok(at),
-        Ok(None) => Err(Error::MissingColumn {
-            file: file.to_path_buf(),
-            column: name.to_string(),
-            message: missing_column(&header, name),
-        }),
+        Ok(None) => Err(missing_column(file, &header, name)),
         Err(message) => Err(file_error(message)),
     };
     let (date_at, value_at) = (column(date_column)?, column(value_column)?);
