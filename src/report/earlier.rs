@@ -175,3 +175,71 @@ pub(crate) fn remove_abandoned(dir: &Path) {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::valuation::records::CaseRecord;
+
+    fn receipt() -> EarlierReceipt {
+        EarlierReceipt {
+            universe: false,
+            case_sha256: "c0".into(),
+            overrides: vec!["market.equity_risk_premium=0.05".into()],
+            file_hashes: vec!["a1".into(), "b2".into()],
+            case_file: "deals/q3/case.toml".into(),
+            title: "Q3".into(),
+            valuation_date: "2026-09-30".into(),
+            wacc: Some(0.07),
+            peers: vec!["Alder Pumps".into(), "Ωμέγα".into()],
+        }
+    }
+
+    // A regression chart counts as the run's only under one of its peers' names in its place
+    // (README, `figures/*.svg`); the run's fixed and numbered charts count; a universe's run
+    // drew no case chart.
+    #[test]
+    fn a_chart_counts_as_the_earlier_runs_only_under_its_own_names() {
+        let earlier = receipt();
+        assert!(earlier.drew_case_chart("figures/regression-01-alder-pumps.svg"));
+        assert!(earlier.drew_case_chart("figures/regression-02.svg"));
+        assert!(!earlier.drew_case_chart("figures/regression-02-alder-pumps.svg"));
+        assert!(!earlier.drew_case_chart("figures/regression-09-mine.svg"));
+        assert!(earlier.drew_case_chart("figures/betas.svg"));
+        assert!(earlier.drew_case_chart("figures/betas-2.svg"));
+        assert!(!earlier.drew_case_chart("figures/my-chart.svg"));
+        let universe = EarlierReceipt {
+            universe: true,
+            ..receipt()
+        };
+        assert!(!universe.drew_case_chart("figures/betas.svg"));
+    }
+
+    // The same valuation is told by title, date and the case file's name, not the folders it
+    // was typed from; the same inputs by the case's hash, the overrides and every price file's
+    // hash among the receipt's.
+    #[test]
+    fn another_valuation_and_the_same_inputs_are_told_apart() {
+        let earlier = receipt();
+        let now = CaseRecord {
+            file: "case.toml".into(),
+            sha256: "c0".into(),
+            overrides: Vec::new(),
+            title: "Q3".into(),
+            subject: String::new(),
+            valuation_date: chrono::NaiveDate::from_ymd_opt(2026, 9, 30).unwrap(),
+            currency: "EUR".into(),
+        };
+        assert!(!earlier.of_another_valuation(&now));
+        let retitled = CaseRecord {
+            title: "Q4".into(),
+            ..now.clone()
+        };
+        assert!(earlier.of_another_valuation(&retitled));
+        let overrides = earlier.overrides.clone();
+        assert!(earlier.of_the_same_inputs(("c0", &overrides), ["b2", "a1"]));
+        assert!(!earlier.of_the_same_inputs(("c0", &overrides), ["a1", "z9"]));
+        assert!(!earlier.of_the_same_inputs(("c1", &overrides), ["a1"]));
+        assert!(!earlier.of_the_same_inputs(("c0", &[]), ["a1"]));
+    }
+}
