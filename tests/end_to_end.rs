@@ -861,11 +861,13 @@ fn no_rolling_window_under_long_newey_west_lags_says_why() {
         &["beta.std_errors=newey-west", "beta.newey_west_lags=12"],
     );
     let memo = std::fs::read_to_string(out.join("memo.md")).unwrap();
+    // The template states the rule (lags below N/4: 12 lags need N > 48) without computing the
+    // threshold, which no output does.
     assert!(
         memo.contains(
-            "no rolling window: beta.newey_west_lags = 12 needs more than 48 observations in a \
-             window (the lags below a quarter of them), and a rolling window of 30 periods \
-             (beta.rolling_window) holds no more."
+            "no rolling window: beta.newey_west_lags = 12 needs more than four times 12 \
+             observations in a window (the lags below a quarter of them), and a rolling window of \
+             30 periods (beta.rolling_window) holds no more."
         ),
         "{memo}"
     );
