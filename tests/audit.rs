@@ -1213,6 +1213,31 @@ fn a_case_value_beyond_the_default_range_is_searched_around() {
     let expected = 0.25 + (0.20 - number(&run, "wacc")) / slope;
     assert!((found - expected).abs() < 1e-12, "{found} {expected}");
     assert!(found > 0.20, "beyond the default range's end: {found}");
+
+    // Below the range: a case at a risk-free rate of −3% (the default range starts at −2%), a
+    // claim 0.3% below its WACC. With a given cost of debt the WACC moves with the rate by the
+    // equity weight alone (textbook CAPM and WACC), so rf = −3% + (claim − WACC₀)/wE.
+    let sets = ["--set", "market.risk_free_rate=-0.03"];
+    let run = run_case(Path::new(DEMO_CASE), &out.path().join("low"), &sets);
+    let claim = number(&run, "wacc") - 0.003;
+    let output = hurdle(&[
+        "implied",
+        DEMO_CASE,
+        "--wacc",
+        &claim.to_string(),
+        "--solve",
+        "risk_free",
+        sets[0],
+        sets[1],
+    ]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let found: f64 = exact_line(&report, "market.risk_free_rate=")
+        .parse()
+        .unwrap();
+    let expected = -0.03 - 0.003 / number(&run, "weights.equity");
+    assert!((found - expected).abs() < 1e-12, "{found} {expected}");
+    assert!(found < -0.02, "beyond the default range's start: {found}");
 }
 
 /// What follows `exact: {prefix}` in the output of `hurdle implied`.

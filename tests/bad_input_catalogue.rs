@@ -414,6 +414,39 @@ fn price_files() -> Vec<Bad> {
             ]
         ),
         bad!(
+            "a peer's price column not in its file",
+            nothing,
+            [
+                "run",
+                "{case}",
+                "--out",
+                "{out}",
+                "--set",
+                "peer.0.price_column=px"
+            ],
+            [
+                "brenvale.csv",
+                "no column named `px`",
+                "asked for by peer.0.price_column (peer \"Brenvale Fluid Systems\")"
+            ]
+        ),
+        bad!(
+            "verify: a receipt naming itself as its case",
+            |s| s.write(
+                "r.json",
+                format!(
+                    "{{\"schema_version\": {}, \"case\": {{\"file\": \"r.json\"}}}}",
+                    hurdle::valuation::records::SCHEMA_VERSION
+                )
+            ),
+            ["verify", "{dir}/r.json"],
+            [
+                "r.json",
+                "the receipt names itself as its case file (case.file)",
+                "give that file with --case"
+            ]
+        ),
+        bad!(
             "ragged row",
             |s| {
                 let row = format!("{},1200", line_text(s, PEER, LINE));
@@ -3018,12 +3051,27 @@ fn command_arguments() -> Vec<Bad> {
         // another version, and `files[0] = 5` printed a line naming no file).
         bad!(
             "verify: receipt's kind a number",
-            |s| s.write(
+            |s| {
+                s.write(
                 "r.json",
-                "{\"schema_version\": 2, \"kind\": 3, \"case\": {}}"
-            ),
+                "{\"schema_version\": 2, \"tool\": {\"name\": \"hurdle\"}, \"kind\": 3, \"case\": {}}"
+            )
+            },
             ["verify", "{dir}/r.json"],
             ["r.json", "kind = 3 is not text"]
+        ),
+        // Another program's JSON is not called edited (found by review).
+        bad!(
+            "verify: another program's JSON with a version of its own",
+            |s| s.write(
+                "r.json",
+                "{\"tool\": {\"name\": \"other\", \"version\": \"1.2\"}, \"kind\": 1}"
+            ),
+            ["verify", "{dir}/r.json"],
+            [
+                "r.json",
+                "has no schema_version; is it a hurdle result.json?"
+            ]
         ),
         bad!(
             "verify: receipt's schema version as text",

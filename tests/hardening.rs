@@ -710,6 +710,21 @@ fn a_named_pipe_at_an_output_path_is_refused() {
     use std::os::unix::fs::FileTypeExt;
     assert!(fs::metadata(&pipe).unwrap().file_type().is_fifo());
     assert!(!out.join("result.json").exists());
+
+    // A symbolic link there, even to a pipe, is the link replaced, never what it points to
+    // (found by review: the check first looked through the link).
+    fs::remove_file(&pipe).unwrap();
+    let elsewhere = sandbox.root.path().join("pipe");
+    assert!(Command::new("mkfifo")
+        .arg(&elsewhere)
+        .status()
+        .unwrap()
+        .success());
+    std::os::unix::fs::symlink(&elsewhere, &pipe).unwrap();
+    let run = run_into(&sandbox, &out, &["--no-figures"]);
+    assert!(run.status.success(), "{}", stderr(&run));
+    assert!(fs::symlink_metadata(&pipe).unwrap().is_file());
+    assert!(fs::metadata(&elsewhere).unwrap().file_type().is_fifo());
 }
 
 // A template that computes a figure that is not finite, or asks a number filter for more

@@ -969,6 +969,20 @@ fn refused(edit: impl FnOnce(&Path), sets: &[&str], expected: &[&str]) {
     assert!(!setup.out("out").exists(), "an output folder was written");
 }
 
+// The index's own file without the column asked for names the key that asked, as a case does
+// (found by review: the file alone was named).
+#[test]
+fn an_index_file_without_its_column_names_the_key() {
+    refused(
+        |_| {},
+        &["market.index.price_column=px"],
+        &[
+            "no column named `px`",
+            "asked for by market.index.price_column",
+        ],
+    );
+}
+
 // A flat index (every price the same) is refused naming its file before the panel is read, as a
 // case refuses it; an index with a single return in the window is not called flat: each
 // security then has too few observations, as before (found by review: one return was "all the
@@ -2000,6 +2014,7 @@ fn bad_attribute_values_are_refused() {
             "`market_cap` = 1e308 lies outside 1e-100 to 1e100",
         ),
         (4, "5e-324", "`debt` = 5e-324 lies outside 1e-100 to 1e100"),
+        (5, "1e-120", "`cash` = 1e-120 lies outside 1e-100 to 1e100"),
     ] {
         refused(
             |dir| {

@@ -601,7 +601,9 @@ fn a_column_that_is_not_there_lists_the_columns() {
             "{stderr}"
         );
         assert!(
-            stderr.contains("peer.1 (peer \"Corrowick Valves\").column"),
+            // The key, then whose it is, as every peer key is named (found by review: the
+            // label stood inside the key, `peer.1 (peer "…").column`).
+            stderr.contains("asked for by peer.1.column (peer \"Corrowick Valves\")"),
             "{stderr}"
         );
     }

@@ -283,7 +283,7 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
         action: "cannot read",
         source,
     })?;
-    let text = toml_text(&bytes).map_err(fail)?;
+    let text = crate::case::sanity::toml_text(&bytes).map_err(fail)?;
     crate::case::sanity::empty_or_csv(&text).map_err(fail)?;
     let table: toml::Table =
         toml::from_str(&text).map_err(|e| fail(crate::error::toml_error(&e, &text)))?;
@@ -338,21 +338,6 @@ pub fn read_side_with_facts(path: &Path, written: &str) -> Result<(Side, Option<
     Ok((side, None))
 }
 
-/// A case or claim file's bytes as text: refused as a case file is, not read with replacement
-/// characters (found by review: a Latin-1 label reached the memo as "Adv�r"; a binary file was
-/// called a CSV table).
-fn toml_text(bytes: &[u8]) -> std::result::Result<std::borrow::Cow<'_, str>, String> {
-    if let Some(kind) = crate::io::encoding::binary_kind(bytes) {
-        return Err(format!(
-            "the file is {kind}, not TOML text: save the claimed build-up as UTF-8 text"
-        ));
-    }
-    if let Some((line, message)) = crate::io::encoding::first_non_utf8(bytes) {
-        return Err(format!("line {}: {message}", line + 1));
-    }
-    Ok(String::from_utf8_lossy(bytes))
-}
-
 /// A claim's currency, date and label as a case's are held: a currency named plainly, a date
 /// in the years a case may hold (found by review: 0001-01-01 and 9999-12-31 were accepted), a
 /// label on one visible line (a label holding a line break put a heading into the memo).
@@ -363,13 +348,8 @@ fn check_claim_words(claimed: &Claimed) -> std::result::Result<(), String> {
         }
         crate::case::sanity::plain_label("claimed.currency", currency)?;
     }
-    if let Some(crate::case::CaseDate(date)) = claimed.as_of {
-        let (first, last) = crate::case::sanity::YEARS;
-        if !(first..=last).contains(&chrono::Datelike::year(&date)) {
-            return Err(format!(
-                "claimed.as_of = {date} is outside the years {first} to {last}"
-            ));
-        }
+    if let Some(date) = claimed.as_of {
+        crate::case::sanity::date_in_years("claimed.as_of", date)?;
     }
     crate::case::sanity::visible_one_line("claimed.label", &claimed.label)
 }

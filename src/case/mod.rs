@@ -251,13 +251,10 @@ pub fn read_case(path: &Path, overrides: &[String]) -> Result<Case> {
         source,
     })?;
     let sha256 = crate::io::series::sha256_hex(&bytes);
-    let text = String::from_utf8(bytes).map_err(|e| {
-        let valid = &e.as_bytes()[..e.utf8_error().valid_up_to()];
-        let line = valid.iter().filter(|&&b| b == b'\n').count() + 1;
-        Error::Case {
-            file: path.to_path_buf(),
-            message: format!("line {line}: not UTF-8 text; save the case file as UTF-8"),
-        }
+    // Read as a claimed build-up is (`compare` takes either), with the byte named.
+    let text = sanity::toml_text(&bytes).map_err(|message| Error::Case {
+        file: path.to_path_buf(),
+        message,
     })?;
     (sanity::case_or_universe(&text, false))
         .and_then(|()| sanity::check_case_text(&text))

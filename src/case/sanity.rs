@@ -17,7 +17,7 @@ use crate::error::compact as show;
 
 pub(crate) use names::distinct_name;
 pub use prices::price_pattern_notes;
-pub use text::{case_or_universe, check_claimed_text, empty_or_csv};
+pub use text::{case_or_universe, check_claimed_text, empty_or_csv, toml_text};
 pub use window::{
     file_end_notes, index_cadence_note, index_coverage_note, peer_cadence_note, short_window_note,
     unused_beta_notes, window_end_note, window_note,
@@ -242,7 +242,6 @@ fn check_paths(case: &CaseFile) -> std::result::Result<(), String> {
 }
 
 fn check_dates(case: &CaseFile) -> std::result::Result<(), String> {
-    use chrono::Datelike;
     let beta = &case.beta;
     let mut dates: Vec<(String, Option<CaseDate>)> = vec![
         ("case.valuation_date".into(), Some(case.case.valuation_date)),
@@ -263,16 +262,22 @@ fn check_dates(case: &CaseFile) -> std::result::Result<(), String> {
         dates.extend(jumps(format!("peer.{i}.accept_jumps"), &peer.accept_jumps));
     }
     for (key, date) in dates {
-        if let Some(CaseDate(date)) = date {
-            if !(YEARS.0..=YEARS.1).contains(&date.year()) {
-                return Err(format!(
-                    "{key} = {date} is outside the years {} to {}",
-                    YEARS.0, YEARS.1
-                ));
-            }
+        if let Some(date) = date {
+            date_in_years(&key, date)?;
         }
     }
     Ok(())
+}
+
+/// A date given under `key` must lie in [`YEARS`] (a case's dates, a claim's `as_of`).
+pub fn date_in_years(key: &str, CaseDate(date): CaseDate) -> std::result::Result<(), String> {
+    match (YEARS.0..=YEARS.1).contains(&chrono::Datelike::year(&date)) {
+        true => Ok(()),
+        false => Err(format!(
+            "{key} = {date} is outside the years {} to {}",
+            YEARS.0, YEARS.1
+        )),
+    }
 }
 
 fn check_counts(case: &CaseFile) -> std::result::Result<(), String> {

@@ -56,6 +56,8 @@ pub type Sources = BTreeMap<String, TableSource>;
 struct SeriesKeys<'a> {
     /// The case key of the reference, for messages (`market.index`, `peer.2`).
     key: String,
+    /// Who the key is, after it in messages (` (peer "Alder")`; empty for the market's series).
+    label: String,
     /// The receipt's role (`index`, `risk_free`, `peer:<name>`).
     role: String,
     kind: ValueKind,
@@ -71,11 +73,24 @@ struct SeriesKeys<'a> {
     column: Option<&'a str>,
 }
 
+impl SeriesKeys<'_> {
+    /// The key of `leaf` under this reference, with who it is (`peer.0.column (peer "Alder")`).
+    fn key_of(&self, leaf: &str) -> String {
+        format!("{}.{leaf}{}", self.key, self.label)
+    }
+
+    /// The own file's value key and the column it names.
+    fn value_columns(&self) -> (&'static str, &str) {
+        (self.value_key, self.value_column)
+    }
+}
+
 /// Every series reference of a case: the index, the risk-free series when present, the peers.
 fn series_keys(case: &CaseFile) -> Vec<SeriesKeys<'_>> {
     let index = &case.market.index;
     let mut keys = vec![SeriesKeys {
         key: "market.index".into(),
+        label: String::new(),
         role: "index".into(),
         kind: ValueKind::Price,
         file_key: "prices",
@@ -90,6 +105,7 @@ fn series_keys(case: &CaseFile) -> Vec<SeriesKeys<'_>> {
     if let Some(rf) = &case.market.risk_free_series {
         keys.push(SeriesKeys {
             key: "market.risk_free_series".into(),
+            label: String::new(),
             role: "risk_free".into(),
             kind: ValueKind::Yield,
             file_key: "yields",
@@ -103,7 +119,8 @@ fn series_keys(case: &CaseFile) -> Vec<SeriesKeys<'_>> {
         });
     }
     keys.extend(case.peers.iter().enumerate().map(|(i, peer)| SeriesKeys {
-        key: format!("peer.{i} (peer \"{}\")", peer.name),
+        key: format!("peer.{i}"),
+        label: format!(" (peer \"{}\")", peer.name),
         role: format!("peer:{}", peer.name),
         kind: ValueKind::Price,
         file_key: "prices",
@@ -156,7 +173,8 @@ pub fn unused_source_notes(case: &CaseFile) -> Vec<String> {
 
 /// One series reference: its own file, or a source and a column, and not a mix.
 fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<(), String> {
-    let key = &keys.key;
+    let key = format!("{}{}", keys.key, keys.label);
+    let sub = |leaf: &str| keys.key_of(leaf);
     let has_file = !keys.file.trim().is_empty();
     match (has_file, keys.source) {
         (true, Some(source)) => Err(format!(
@@ -171,8 +189,9 @@ fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<
         )),
         (true, None) => match keys.column {
             Some(column) => Err(format!(
-                "{key}.column = \"{column}\" applies to a [sources] table; a file of its own \
+                "{} = \"{column}\" applies to a [sources] table; a file of its own \
                  names its column with `{}`",
+                sub("column"),
                 keys.value_key
             )),
             None => Ok(()),
@@ -181,7 +200,8 @@ fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<
             if !sources.contains_key(source) {
                 let known: Vec<String> = sources.keys().map(|k| format!("\"{k}\"")).collect();
                 return Err(format!(
-                    "{key}.source = \"{source}\" is not a table under [sources]; {}",
+                    "{} = \"{source}\" is not a table under [sources]; {}",
+                    sub("source"),
                     if known.is_empty() {
                         "the file declares no [sources.NAME] table".to_string()
                     } else {
@@ -193,8 +213,9 @@ fn check_reference(keys: &SeriesKeys, sources: &Sources) -> std::result::Result<
                 Some(column) if !column.trim().is_empty() => {}
                 _ => {
                     return Err(format!(
-                        "{key}.column is missing or empty: name the column of sources.{source} \
-                         that holds this series"
+                        "{} is missing or empty: name the column of sources.{source} that \
+                         holds this series",
+                        sub("column")
                     ))
                 }
             }
@@ -243,7 +264,7 @@ pub fn read_series(case: &Case) -> Result<SeriesRead> {
         .map(|keys| match (keys.source, keys.column) {
             (Some(source), Some(column)) => tables[source]
                 .series(&keys.role, column, keys.kind)
-                .map_err(|e| name_the_key(e, &keys.key)),
+                .map_err(|e| name_the_key(e, &keys.key_of("column"))),
             _ => read_series_file(
                 &keys.role,
                 keys.file,
@@ -252,7 +273,7 @@ pub fn read_series(case: &Case) -> Result<SeriesRead> {
                 keys.value_column,
                 keys.kind,
             )
-            .map_err(|e| name_the_column_key(e, &keys.key, (keys.value_key, keys.value_column))),
+            .map_err(|e| name_the_column_key(e, (&keys.key, &keys.label), keys.value_columns())),
         })
         .collect();
     let mut files = files.into_iter().collect::<Result<Vec<_>>>()?.into_iter();
@@ -281,18 +302,19 @@ fn name_the_key(error: Error, key: &str) -> Error {
     match error {
         Error::DataFile { file, message } => Error::DataFile {
             file,
-            message: format!("{message} (asked for by {key}.column)"),
+            message: format!("{message} (asked for by {key})"),
         },
         other => other,
     }
 }
 
 /// Adds the key that named a missing column of a series' own file to its message: `section`'s
-/// `value_key` when the column is `value_column`, else its `date_column` (found by review:
-/// `--set market.index.price_column=close` was told only that the file lacks it).
+/// `value_key` when the column is `value_column`, else its `date_column`, followed by `label`
+/// (` (peer "Alder")`) (found by review: `--set market.index.price_column=close` was told only
+/// that the file lacks it).
 pub fn name_the_column_key(
     error: Error,
-    section: &str,
+    (section, label): (&str, &str),
     (value_key, value_column): (&str, &str),
 ) -> Error {
     match error {
@@ -307,7 +329,7 @@ pub fn name_the_column_key(
             };
             Error::MissingColumn {
                 file,
-                message: format!("{message} (asked for by {section}.{key})"),
+                message: format!("{message} (asked for by {section}.{key}{label})"),
                 column,
             }
         }

@@ -489,11 +489,11 @@ fn validate_peers(case: &CaseFile) -> std::result::Result<(), String> {
 /// spreadsheet's recalculation of the workbook (found by review: 1.7e308 gave #NUM! in 19 cells
 /// of a run the case accepted), and no currency unit makes a firm's figures so large or small.
 pub(crate) fn amount_within_bounds(key: &str, value: f64) -> std::result::Result<(), String> {
-    let (low, high) = crate::io::sanity::PRICE_RANGE;
-    match value == 0.0 || (low..=high).contains(&value.abs()) {
-        true => Ok(()),
-        false => Err(format!(
-            "{key} = {} lies outside 1e-100 to 1e100, the range of an amount in any unit",
+    use crate::io::sanity::{amount_out_of_range, AMOUNT_OUT_OF_RANGE};
+    match amount_out_of_range(value) {
+        false => Ok(()),
+        true => Err(format!(
+            "{key} = {} {AMOUNT_OUT_OF_RANGE}",
             crate::error::compact(value)
         )),
     }

@@ -157,10 +157,13 @@ pub fn shrinkage(beta: &hurdle::case::BetaSettings) -> String {
 
 /// The folder and the file name of an output file given on the command line as `option`.
 pub fn split_file_path(option: &str, path: &std::path::Path) -> hurdle::Result<(PathBuf, String)> {
-    // `out/grid/` names a folder, though its last component reads as a name (found by review:
-    // it wrote the file `out/grid`).
-    let ends_in_separator =
-        (path.as_os_str().to_string_lossy()).ends_with(|c| c == '/' || std::path::is_separator(c));
+    // `out/grid/` and `out/grid/.` name a folder, though a file name is read from them (found
+    // by review: they wrote the file `out/grid`).
+    let written = path.as_os_str().to_string_lossy();
+    let ends_in_separator = written.ends_with(std::path::is_separator)
+        || written
+            .strip_suffix('.')
+            .is_some_and(|rest| rest.is_empty() || rest.ends_with(std::path::is_separator));
     let name = path
         .file_name()
         .and_then(|n| n.to_str())

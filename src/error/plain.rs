@@ -83,10 +83,15 @@ fn line_hint(line: &str) -> Option<String> {
 }
 
 /// serde's "invalid type" and "invalid value" messages: what the key takes, in words.
-/// A decimal where a whole number belongs; `100.0` is one written as a decimal (found by
-/// review: "100.0 is not a whole number").
-fn not_whole(value: &str) -> String {
+/// A decimal where a whole number in `range` belongs; `100.0` is one written as a decimal (found
+/// by review: "100.0 is not a whole number"), unless the whole number is out of the range too,
+/// which is then said (found by review: `-3.0` was told to write `-3`, then refused).
+fn not_whole(value: &str, (low, high): (i128, i128)) -> String {
     match value.parse::<f64>() {
+        Ok(x) if x.is_finite() && x.fract() == 0.0 && !(low as f64..=high as f64).contains(&x) => {
+            // `as` saturates beyond 128 bits, which is out of every range all the same.
+            out_of_range_of(value, Some(x as i128), (low, high))
+        }
         Ok(x) if x.is_finite() && x.fract() == 0.0 => format!(
             "{value} is written as a decimal: this key takes a whole number, written without a \
              decimal point{}",
@@ -124,7 +129,7 @@ fn type_message(message: &str) -> Option<String> {
             _ => found.split('`').nth(1).unwrap_or(found),
         };
         return Some(if found.starts_with("floating point") {
-            not_whole(value)
+            not_whole(value, range)
         } else if found.starts_with("integer") {
             out_of_range(value, range)
         } else {
@@ -271,8 +276,13 @@ fn whole_number(text: &str) -> Option<i128> {
 /// 32-bit count's own range is narrower (a window's periods, draws, lags), so its type's bounds
 /// are not given as the key's (found by review: 0 to 4294967295 read as the key's range); the
 /// 64-bit seed's range is the type's.
-fn out_of_range(value: &str, (low, high): (i128, i128)) -> String {
-    let which = match whole_number(value) {
+fn out_of_range(value: &str, range: (i128, i128)) -> String {
+    out_of_range_of(value, whole_number(value), range)
+}
+
+/// [`out_of_range`] for `value` read as the whole number `number`.
+fn out_of_range_of(value: &str, number: Option<i128>, (low, high): (i128, i128)) -> String {
+    let which = match number {
         Some(n) if n < low => format!("below {low}, "),
         Some(n) if n > high => format!("above {high}, "),
         _ => String::new(),
@@ -484,6 +494,13 @@ mod tests {
                 "",
                 "100.0 is written as a decimal: this key takes a whole number, written without \
                  a decimal point (100)",
+            ),
+            // A whole number out of range is said to be so, not to be written without its
+            // point (found by review).
+            (
+                "invalid type: floating point `-3.0`, expected u32",
+                "",
+                "-3.0 is below 0, beyond any value this key takes",
             ),
             (
                 "invalid value: integer `5000000000`, expected u32",

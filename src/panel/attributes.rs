@@ -466,13 +466,10 @@ enum Rule {
 
 impl Rule {
     fn check(self, value: f64) -> std::result::Result<(), &'static str> {
-        // An amount's bounds as a case's (`case::validate::amount_within_bounds`): near the
-        // largest double, sums and products overflow (found by review: an equity value of 1e308
-        // wrote an operating share of -6.67e304).
-        let (low, high) = crate::io::sanity::PRICE_RANGE;
+        // An amount's bounds are a case's.
         let amount = matches!(self, Rule::Positive | Rule::NonNegative);
-        if amount && value.is_finite() && value > 0.0 && !(low..=high).contains(&value) {
-            return Err("lies outside 1e-100 to 1e100, the range of an amount in any unit");
+        if amount && value.is_finite() && crate::io::sanity::amount_out_of_range(value) {
+            return Err(crate::io::sanity::AMOUNT_OUT_OF_RANGE);
         }
         let fine = value.is_finite()
             && match self {

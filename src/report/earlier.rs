@@ -29,7 +29,13 @@ pub struct EarlierReceipt {
     /// The peers' names in the case's order (empty for a universe's receipt), which name the
     /// regression charts that run drew.
     pub peers: Vec<String>,
+    /// The version that wrote the receipt (`tool.version`; empty when it has none).
+    pub version: String,
 }
+
+/// The version before which regression charts were named otherwise (`regression-NN-.svg` for
+/// a name without Latin letters, accented names spelt another way).
+const CHART_NAMES_SETTLED: [u64; 3] = [0, 6, 0];
 
 impl EarlierReceipt {
     /// Whether `name` (under `figures/`) is a case chart this receipt's run drew: a chart named
@@ -40,10 +46,29 @@ impl EarlierReceipt {
         if self.universe || !super::figures::is_chart_name(name) {
             return false;
         }
-        match name.starts_with(super::figures::REGRESSION_PREFIX) {
-            true => (self.peers.iter().enumerate())
-                .any(|(i, peer)| super::figures::regression_file_name(i, peer) == name),
-            false => true,
+        if !name.starts_with(super::figures::REGRESSION_PREFIX) {
+            return true;
+        }
+        let named = |(i, peer): (usize, &String)| super::figures::regression_file_name(i, peer);
+        if self.peers.iter().enumerate().map(named).any(|n| n == name) {
+            return true;
+        }
+        // An older version's names: any place the receipt's peers fill (found by review: the
+        // check by today's names left a 0.5.0 run's `regression-01-.svg` beside the new memo).
+        let place = (name[super::figures::REGRESSION_PREFIX.len()..].get(..2))
+            .and_then(|digits| digits.parse::<usize>().ok());
+        self.written_before(CHART_NAMES_SETTLED)
+            && place.is_some_and(|n| (1..=self.peers.len()).contains(&n))
+    }
+
+    /// Whether the receipt's version is before `version` (or unknown).
+    fn written_before(&self, version: [u64; 3]) -> bool {
+        let parts: Option<Vec<u64>> = (self.version.split(['.', '-', '+']).take(3))
+            .map(|p| p.parse().ok())
+            .collect();
+        match parts {
+            Some(parts) if parts.len() == 3 => parts.as_slice() < version.as_slice(),
+            _ => true,
         }
     }
 
@@ -111,6 +136,9 @@ pub fn earlier_receipt(dir: &Path) -> Option<EarlierReceipt> {
         peers: (receipt["peers"].as_array().into_iter().flatten())
             .filter_map(|p| p["name"].as_str().map(str::to_string))
             .collect(),
+        version: (receipt["tool"]["version"].as_str())
+            .unwrap_or_default()
+            .to_string(),
     })
 }
 
@@ -192,6 +220,7 @@ mod tests {
             valuation_date: "2026-09-30".into(),
             wacc: Some(0.07),
             peers: vec!["Alder Pumps".into(), "Ωμέγα".into()],
+            version: "0.18.0".into(),
         }
     }
 
@@ -213,6 +242,15 @@ mod tests {
             ..receipt()
         };
         assert!(!universe.drew_case_chart("figures/betas.svg"));
+        // A 0.5.0 run named a Greek peer's chart `regression-02-.svg`: any place its peers fill
+        // counts, none beyond them.
+        let older = EarlierReceipt {
+            version: "0.5.0".into(),
+            ..receipt()
+        };
+        assert!(older.drew_case_chart("figures/regression-02-.svg"));
+        assert!(!older.drew_case_chart("figures/regression-03-alder-pumps.svg"));
+        assert!(!earlier.drew_case_chart("figures/regression-02-.svg"));
     }
 
     // The same valuation is told by title, date and the case file's name, not the folders it

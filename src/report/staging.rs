@@ -194,8 +194,10 @@ impl Stage {
             ));
         }
         // A named pipe, a device or a socket would be replaced by a plain file (found by review:
-        // `--csv /dev/null` run as root replaced the device).
-        if fs::metadata(&canonical).is_ok_and(|m| !m.is_file()) {
+        // `--csv /dev/null` run as root replaced the device). A symbolic link is replaced itself,
+        // never what it points to, so a link stays replaceable whatever it points to.
+        let kind = fs::symlink_metadata(&target).map(|m| m.file_type());
+        if kind.is_ok_and(|k| !k.is_file() && !k.is_symlink()) {
             return Err(refusal(
                 &self.dir,
                 format!(

@@ -86,7 +86,11 @@ fn read_market_series(
                 kind,
             )
             .map_err(|e| {
-                crate::case::sources::name_the_column_key(e, section, (value_key, value_column))
+                crate::case::sources::name_the_column_key(
+                    e,
+                    (section, ""),
+                    (value_key, value_column),
+                )
             })
         }
     }

@@ -229,12 +229,8 @@ pub fn read_universe(path: &Path, overrides: &[String]) -> Result<Universe> {
         file: path.to_path_buf(),
         message,
     };
-    let text = String::from_utf8(bytes).map_err(|e| {
-        file_error(format!(
-            "not UTF-8 text (byte {})",
-            e.utf8_error().valid_up_to()
-        ))
-    })?;
+    // As a case file is read: a byte that is not UTF-8 named with its line.
+    let text = crate::case::sanity::toml_text(&bytes).map_err(file_error)?;
     // The case's checks on the text: NaN or infinity in any key, and a window given twice
     // (`window_start` and `lookback` both written), each named with its line.
     crate::case::sanity::case_or_universe(&text, true).map_err(file_error)?;

@@ -260,6 +260,22 @@ fn json_given(text: &str) -> String {
     }
 }
 
+/// A case, universe or claim file's bytes as text: a binary or UTF-16 file named as what it is,
+/// a byte that is not UTF-8 named with its line and place, not read with replacement characters
+/// (found by review: a Latin-1 label of a claim reached the memo as "Adv�r", a binary claim was
+/// called a CSV table).
+pub fn toml_text(bytes: &[u8]) -> std::result::Result<std::borrow::Cow<'_, str>, String> {
+    if let Some(kind) = crate::io::encoding::binary_kind(bytes) {
+        return Err(format!(
+            "the file is {kind}, not TOML text: save it as UTF-8 text"
+        ));
+    }
+    if let Some((line, message)) = crate::io::encoding::first_non_utf8(bytes) {
+        return Err(format!("line {}: {message}", line + 1));
+    }
+    Ok(String::from_utf8_lossy(bytes))
+}
+
 /// An empty file, a JSON document (a receipt), or a CSV table (a header of comma-separated
 /// names and no `key = value` line), given where a case or a claimed build-up belongs.
 pub fn empty_or_csv(text: &str) -> std::result::Result<(), String> {
