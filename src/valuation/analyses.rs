@@ -107,7 +107,9 @@ pub struct Uncertainty {
     pub equity_risk_premium_range: Option<[f64; 2]>,
     pub risk_free_rate_range: Option<[f64; 2]>,
     pub point_estimate: f64,
-    pub mean: f64,
+    /// `None` when an aggregated peer's beta has 2 or fewer degrees of freedom: its draws have
+    /// no finite variance, so their mean does not settle.
+    pub mean: Option<f64>,
     pub p05: f64,
     pub p25: f64,
     pub p50: f64,

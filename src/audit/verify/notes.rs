@@ -98,8 +98,52 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
-const KNOWN_CHANGES: [KnownChange; 16] =
+const KNOWN_CHANGES: [KnownChange; 18] =
     [
+        // Found by review: a mean of draws without a finite variance moved from −16% to 11%
+        // with the seed.
+        KnownChange {
+            version: "0.18.0",
+            kind: "case",
+            paths: &["uncertainty.mean"],
+            explain: |_, rerun| {
+                rerun["uncertainty"]["mean"].is_null().then(|| {
+                    "hurdle 0.18.0 gives no mean of the estimation-error draws when an aggregated \
+                     peer's beta has 2 or fewer degrees of freedom: its Student's t draws then \
+                     have no finite variance, and their mean does not settle (README, Changelog)"
+                        .to_string()
+                })
+            },
+        },
+        // Found by review: the fallback factor V·Λ^½ depended on the eigenvectors' signs.
+        KnownChange {
+            version: "0.18.0",
+            kind: "case",
+            paths: &[
+                "uncertainty.mean",
+                "uncertainty.p05",
+                "uncertainty.p25",
+                "uncertainty.p50",
+                "uncertainty.p75",
+                "uncertainty.p95",
+                "uncertainty.histogram",
+                "uncertainty.point_outside_interval",
+            ],
+            explain: |receipt, _| {
+                let peers = receipt["peers"].as_array().map_or(0, Vec::len);
+                let fewest = (receipt["peers"].as_array().into_iter().flatten())
+                    .filter_map(|p| p["observations"].as_u64())
+                    .min()
+                    .unwrap_or(u64::MAX);
+                (fewest as usize <= peers).then(|| {
+                    "hurdle 0.18.0 factors a beta-error covariance that is not positive definite \
+                     (fewer returns than peers, or two peers with the same residuals) by its \
+                     symmetric square root, which does not depend on the signs an eigen-solver \
+                     gives: the estimation-error draws of such a case move (README, Changelog)"
+                        .to_string()
+                })
+            },
+        },
         // Found by review: an emerging-market case's inflation rates, and its preferred equity
         // and leases, moved its WACC with no basis asked.
         KnownChange {
@@ -491,6 +535,25 @@ mod tests {
             recomputed: json!(2),
             absent_from: None,
         }
+    }
+
+    // 0.18.0's two changes to the estimation-error draws: the missing mean only where the rerun
+    // gives none; the symmetric root only for a receipt with no more returns than peers.
+    #[test]
+    fn the_draws_changes_of_0_18_are_named_where_they_apply() {
+        let moved = mismatch("uncertainty.mean");
+        let versions = ("0.17.0", "0.18.0");
+        let peers = |n: u64| json!({"peers": [{"observations": n}, {"observations": 60}]});
+        let named = |receipt: &Value, rerun: &Value| {
+            known_changes("case", versions, &[&moved], (receipt, rerun))
+        };
+        let null_mean = json!({"uncertainty": {"mean": null}});
+        let both = named(&peers(2), &null_mean);
+        assert_eq!(both.len(), 2, "{both:?}");
+        assert!(both[0].starts_with("hurdle 0.18.0 gives no mean"));
+        assert!(both[1].starts_with("hurdle 0.18.0 factors a beta-error covariance"));
+        let none = named(&peers(60), &json!({"uncertainty": {"mean": 0.07}}));
+        assert!(none.is_empty(), "{none:?}");
     }
 
     // 0.9.0's reading of 32-bit floats is named for a universe receipt of an earlier version

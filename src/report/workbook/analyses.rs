@@ -240,16 +240,25 @@ fn monte_carlo(
     let mut r = row + 2;
     let p = &u.peer_set;
     for (name, x, y) in [
-        ("Point estimate", u.point_estimate, u.point_estimate),
+        ("Point estimate", Some(u.point_estimate), u.point_estimate),
         ("Mean", u.mean, p.mean),
-        ("5th percentile", u.p05, p.p05),
-        ("25th percentile", u.p25, p.p25),
-        ("Median", u.p50, p.p50),
-        ("75th percentile", u.p75, p.p75),
-        ("95th percentile", u.p95, p.p95),
+        ("5th percentile", Some(u.p05), p.p05),
+        ("25th percentile", Some(u.p25), p.p25),
+        ("Median", Some(u.p50), p.p50),
+        ("75th percentile", Some(u.p75), p.p75),
+        ("95th percentile", Some(u.p95), p.p95),
     ] {
         book.text(sheet, (r, 0), name, &label)?;
-        value(book, sheet, (r, 1), x, &pct)?;
+        match x {
+            Some(x) => value(book, sheet, (r, 1), x, &pct)?,
+            // The draws' mean when a peer's beta has no finite variance (see the result).
+            None => book.text(
+                sheet,
+                (r, 1),
+                "n/a (no finite variance)",
+                &book.styles.text.clone(),
+            )?,
+        }
         value(book, sheet, (r, 2), y, &pct)?;
         r += 1;
     }
