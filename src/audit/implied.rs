@@ -353,11 +353,14 @@ pub fn implied(
     let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = key_and_base_value(target, by_capital, base);
-    let (low, high) = match range {
+    let (widened_low, widened_high) = match range {
         Some(_) => (low, high),
         None => holding_case_value((low, high), key, by_capital, base_value),
     };
-    let (low, high) = in_key_units((low, high), key, by_capital)?;
+    // A widened default range keeps the default's spacing: more intervals, not wider ones
+    // (found by review: widening to twice the span made the scan twice as coarse).
+    let intervals = scan_intervals((high - low, widened_high - widened_low));
+    let (low, high) = in_key_units((widened_low, widened_high), key, by_capital)?;
     let build_up = Side::from_valuation("base", base).build_up;
     // A country premium scaled by beta moves with the beta solved for (found by review: such a
     // case was refused); the other premiums stay as the case has them.
@@ -384,7 +387,7 @@ pub fn implied(
         Ok(Figures::of(&cost_of_capital(&case, inputs, &estimates)?))
     };
     let wacc_at = |x: f64| figures_at(x).map(|f| f.wacc);
-    let scan = solve(&wacc_at, low, high, claimed)?;
+    let scan = solve(&wacc_at, (low, high), intervals, claimed)?;
     let value = chosen_value(&scan, base_value, &wacc_at, claimed);
     let at_answer = value.map(figures_at).transpose()?;
     let achieved_wacc = at_answer.map(|f| f.wacc);
@@ -464,6 +467,22 @@ fn holding_case_value(
         _ => (low, high),
     }
 }
+
+/// Intervals of the scan: 64 over a range as given or a default one, and as many more as keep
+/// the default's spacing over a default range widened to hold the case's value (`spans`: the
+/// default's and the widened one's), at most [`MOST_INTERVALS`].
+fn scan_intervals((default_span, span): (f64, f64)) -> usize {
+    let widened = (INTERVALS as f64 * span / default_span).ceil();
+    match widened.is_finite() && widened > INTERVALS as f64 {
+        true => (widened as usize).min(MOST_INTERVALS),
+        false => INTERVALS,
+    }
+}
+
+/// The scan's intervals over a range (65 values).
+const INTERVALS: usize = 64;
+/// The most intervals a widened default range is scanned in.
+const MOST_INTERVALS: usize = 256;
 
 /// The range to search: the given one, else the target's default. Every default range passes,
 /// so a failing range is the user's; the command line names it.
@@ -585,6 +604,16 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
 mod tests {
     use super::*;
 
+    // The default's spacing kept over a widened range (arithmetic): 0–20% widened to 0–50% is
+    // 2.5 spans, 160 intervals; an unwidened or a given range 64; never above 256.
+    #[test]
+    fn a_widened_range_keeps_the_default_spacing() {
+        assert_eq!(scan_intervals((0.20, 0.50)), 160);
+        assert_eq!(scan_intervals((0.20, 0.20)), 64);
+        assert_eq!(scan_intervals((0.20, 0.10)), 64);
+        assert_eq!(scan_intervals((0.20, 20.0)), 256);
+    }
+
     // A line WACC = 0.05 + 0.5·x, refused below x = 0.3: the claim 0.25 has the root x = 0.4
     // (algebra). The scan over [0, 1] has 65 values i/64, of which those below 0.3 (i ≤ 19,
     // 20 values) are refused; bisection ends on adjacent doubles, so the root is met to a few
@@ -598,7 +627,7 @@ mod tests {
                 Ok(0.05 + 0.5 * x)
             }
         };
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.25).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.25).unwrap();
         assert!((scan.value.unwrap() - 0.4).abs() < 1e-15);
         assert_eq!(scan.crossings, 1);
         assert_eq!(scan.refused, 20);
@@ -611,13 +640,16 @@ mod tests {
         assert!((scan.wacc_max - 0.55).abs() < 1e-15);
         // A claim met between the edge and the first accepted scan value, 20/64 = 0.3125: at
         // x = 0.305 (WACC 0.2025), which no scan value brackets.
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.2025).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.2025).unwrap();
         assert!((scan.value.unwrap() - 0.305).abs() < 1e-15);
         // A claim only a refused value could meet is not found, and the scan says what it saw.
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.10).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.10).unwrap();
         assert_eq!((scan.value, scan.crossings), (None, 0));
         // Every value refused: the first refusal is the error.
-        let message = solve(&wacc_at, 0.0, 0.2, 0.1).err().unwrap().to_string();
+        let message = solve(&wacc_at, (0.0, 0.2), INTERVALS, 0.1)
+            .err()
+            .unwrap()
+            .to_string();
         assert_eq!(message, "regression: refused at 0");
     }
 
@@ -628,7 +660,7 @@ mod tests {
     #[test]
     fn every_value_that_fits_is_given() {
         let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + (x - 0.21) * (x - 0.52) * (x - 0.83)) };
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.05).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.05).unwrap();
         assert_eq!(scan.crossings, 3);
         assert!((scan.value.unwrap() - 0.21).abs() < 1e-15);
         assert_eq!(scan.others.len(), 2);
@@ -643,21 +675,21 @@ mod tests {
         // A WACC of 0.05 whatever x: every value gives the claim; no crossing is counted and
         // no other value listed (found by review: 65 "intervals" and 63 others).
         let wacc_at = |_: f64| -> Result<f64> { Ok(0.05) };
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.05).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.05).unwrap();
         assert!(scan.flat && scan.others.is_empty());
         assert_eq!((scan.value, scan.crossings), (Some(0.0), 1));
         // A cubic: not flat.
         let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + (x - 0.21) * (x - 0.52) * (x - 0.83)) };
-        assert!(!solve(&wacc_at, 0.0, 1.0, 0.05).unwrap().flat);
+        assert!(!solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.05).unwrap().flat);
     }
 
     #[test]
     fn a_claim_within_the_tolerance_of_an_end_is_met_there() {
         let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + 0.5 * x) };
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.05 - 4e-12).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.05 - 4e-12).unwrap();
         assert_eq!((scan.value, scan.crossings), (Some(0.0), 1));
         // Beyond the tolerance it is not.
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.05 - 1e-9).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.05 - 1e-9).unwrap();
         assert_eq!((scan.value, scan.crossings), (None, 0));
     }
 
@@ -667,7 +699,7 @@ mod tests {
     fn a_claim_met_at_a_scan_value_is_that_value() {
         let wacc_at = |x: f64| -> Result<f64> { Ok(0.05 + 0.5 * x) };
         let claimed = wacc_at(0.5).unwrap();
-        let scan = solve(&wacc_at, 0.0, 1.0, claimed).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, claimed).unwrap();
         assert_eq!(scan.value, Some(0.5));
         assert_eq!(scan.crossings, 1);
     }
@@ -678,7 +710,7 @@ mod tests {
     #[test]
     fn a_jump_across_the_claim_is_not_a_reproduction() {
         let wacc_at = |x: f64| -> Result<f64> { Ok(if x < 0.4 { 0.25 } else { 0.5 }) };
-        let scan = solve(&wacc_at, 0.0, 1.0, 0.3).unwrap();
+        let scan = solve(&wacc_at, (0.0, 1.0), INTERVALS, 0.3).unwrap();
         let value = scan.value.unwrap();
         // Bisection closes on the step to adjacent doubles.
         assert!((value - 0.4).abs() < 1e-15, "{value}");

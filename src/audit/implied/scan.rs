@@ -1,4 +1,5 @@
-//! The scan behind `implied`: the WACC at 65 values across the range, the values the case
+//! The scan behind `implied`: the WACC at evenly spaced values across the range (65, more
+//! over a widened default range), the values the case
 //! refuses left out (with the edge of the refusals found by bisection), every interval that
 //! crosses the claim narrowed by bisection to adjacent doubles, and the cases of no crossing
 //! (a claim met at a value searched, an input that does not move the WACC).
@@ -103,13 +104,12 @@ pub(super) struct Scan {
 /// is not searched. Every value refused returns the first error.
 pub(super) fn solve(
     wacc_at: &dyn Fn(f64) -> Result<f64>,
-    low: f64,
-    high: f64,
+    (low, high): (f64, f64),
+    intervals: usize,
     claimed: f64,
 ) -> Result<Scan> {
-    const INTERVALS: usize = 64;
-    let xs: Vec<f64> = (0..=INTERVALS)
-        .map(|i| low + (high - low) * i as f64 / INTERVALS as f64)
+    let xs: Vec<f64> = (0..=intervals)
+        .map(|i| low + (high - low) * i as f64 / intervals as f64)
         .collect();
     let mut gaps: Vec<Option<f64>> = Vec::with_capacity(xs.len());
     let mut refusals: Vec<(usize, Error)> = Vec::new();
