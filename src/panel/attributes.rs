@@ -468,7 +468,10 @@ impl Rule {
     fn check(self, value: f64) -> std::result::Result<(), &'static str> {
         // An amount's bounds are a case's.
         let amount = matches!(self, Rule::Positive | Rule::NonNegative);
-        if amount && value.is_finite() && crate::io::sanity::amount_out_of_range(value) {
+        // A negative one is refused for its sign below (found by review: -1e200 was called
+        // out of range, then -5 negative).
+        let positive = value.is_finite() && value > 0.0;
+        if amount && positive && crate::io::sanity::amount_out_of_range(value) {
             return Err(crate::io::sanity::AMOUNT_OUT_OF_RANGE);
         }
         let fine = value.is_finite()

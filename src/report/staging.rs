@@ -184,6 +184,13 @@ impl Stage {
                 ),
             ));
         }
+        // A symbolic link is replaced itself, never what it points to (a file, a folder, a
+        // pipe), so what it points to does not matter here (found by review: a link to a
+        // folder was refused as the folder).
+        let kind = fs::symlink_metadata(&target).map(|m| m.file_type());
+        if kind.as_ref().is_ok_and(|k| k.is_symlink()) {
+            return Ok(());
+        }
         if canonical.is_dir() {
             return Err(refusal(
                 &self.dir,
@@ -194,10 +201,8 @@ impl Stage {
             ));
         }
         // A named pipe, a device or a socket would be replaced by a plain file (found by review:
-        // `--csv /dev/null` run as root replaced the device). A symbolic link is replaced itself,
-        // never what it points to, so a link stays replaceable whatever it points to.
-        let kind = fs::symlink_metadata(&target).map(|m| m.file_type());
-        if kind.is_ok_and(|k| !k.is_file() && !k.is_symlink()) {
+        // `--csv /dev/null` run as root replaced the device).
+        if kind.is_ok_and(|k| !k.is_file()) {
             return Err(refusal(
                 &self.dir,
                 format!(

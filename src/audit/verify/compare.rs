@@ -173,7 +173,10 @@ const ADDED_IN: [(&str, &[&str]); 11] = [
 
 /// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.
 pub(super) fn version(text: &str) -> Option<Vec<u64>> {
-    text.split('.').map(|part| part.parse().ok()).collect()
+    // A pre-release or build suffix (`0.18.0-rc.1`) is read as its version, as the shape check
+    // accepts it (found by review: such a receipt got no known changes).
+    let core = text.split(['-', '+']).next().unwrap_or_default();
+    core.split('.').map(|part| part.parse().ok()).collect()
 }
 
 /// A path with its list positions left out: `peers[3].beta` → `peers[].beta`.

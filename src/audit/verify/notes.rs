@@ -129,17 +129,21 @@ const KNOWN_CHANGES: [KnownChange; 18] =
                 "uncertainty.histogram",
                 "uncertainty.point_outside_interval",
             ],
+            // The sandwich covariance has rank at most a peer's degrees of freedom (residuals
+            // orthogonal to the regressors), so it is singular when they are fewer than the
+            // peers (found by review: 9 returns, 8 peers took the fallback).
             explain: |receipt, _| {
                 let peers = receipt["peers"].as_array().map_or(0, Vec::len);
                 let fewest = (receipt["peers"].as_array().into_iter().flatten())
-                    .filter_map(|p| p["observations"].as_u64())
+                    .filter_map(|p| p["degrees_of_freedom"].as_u64())
                     .min()
                     .unwrap_or(u64::MAX);
-                (fewest as usize <= peers).then(|| {
+                ((fewest as usize) < peers).then(|| {
                     "hurdle 0.18.0 factors a beta-error covariance that is not positive definite \
-                     (fewer returns than peers, or two peers with the same residuals) by its \
-                     symmetric square root, which does not depend on the signs an eigen-solver \
-                     gives: the estimation-error draws of such a case move (README, Changelog)"
+                     (peers with fewer degrees of freedom than there are peers, or two with the \
+                     same residuals) by its symmetric square root, which does not depend on the \
+                     signs an eigen-solver gives: the estimation-error draws of such a case move \
+                     (README, Changelog)"
                         .to_string()
                 })
             },
@@ -543,12 +547,13 @@ mod tests {
     fn the_draws_changes_of_0_18_are_named_where_they_apply() {
         let moved = mismatch("uncertainty.mean");
         let versions = ("0.17.0", "0.18.0");
-        let peers = |n: u64| json!({"peers": [{"observations": n}, {"observations": 60}]});
+        let peers =
+            |n: u64| json!({"peers": [{"degrees_of_freedom": n}, {"degrees_of_freedom": 60}]});
         let named = |receipt: &Value, rerun: &Value| {
             known_changes("case", versions, &[&moved], (receipt, rerun))
         };
         let null_mean = json!({"uncertainty": {"mean": null}});
-        let both = named(&peers(2), &null_mean);
+        let both = named(&peers(1), &null_mean);
         assert_eq!(both.len(), 2, "{both:?}");
         assert!(both[0].starts_with("hurdle 0.18.0 gives no mean"));
         assert!(both[1].starts_with("hurdle 0.18.0 factors a beta-error covariance"));
