@@ -725,6 +725,15 @@ fn a_named_pipe_at_an_output_path_is_refused() {
     assert!(run.status.success(), "{}", stderr(&run));
     assert!(fs::symlink_metadata(&pipe).unwrap().is_file());
     assert!(fs::metadata(&elsewhere).unwrap().file_type().is_fifo());
+    // A link to a folder likewise (found by review: it was refused as the folder).
+    fs::remove_file(&pipe).unwrap();
+    let folder = sandbox.root.path().join("folder");
+    fs::create_dir_all(&folder).unwrap();
+    std::os::unix::fs::symlink(&folder, &pipe).unwrap();
+    let run = run_into(&sandbox, &out, &["--no-figures"]);
+    assert!(run.status.success(), "{}", stderr(&run));
+    assert!(fs::symlink_metadata(&pipe).unwrap().is_file());
+    assert!(folder.is_dir() && fs::read_dir(&folder).unwrap().next().is_none());
 }
 
 // A template that computes a figure that is not finite, or asks a number filter for more

@@ -2015,6 +2015,8 @@ fn bad_attribute_values_are_refused() {
         ),
         (4, "5e-324", "`debt` = 5e-324 lies outside 1e-100 to 1e100"),
         (5, "1e-120", "`cash` = 1e-120 lies outside 1e-100 to 1e100"),
+        // Its sign first, as a case does (found by review: it was called out of range).
+        (4, "-1e200", "`debt` = -1e200 must not be negative"),
     ] {
         refused(
             |dir| {
