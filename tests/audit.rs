@@ -1191,6 +1191,59 @@ fn implied_beta(sets: &[&str], claim: &str) -> (serde_json::Value, f64) {
     (base, exact_beta(&report))
 }
 
+// A solved beta whose unlevered equivalent lies outside the aggregated peers' unlevered betas
+// is cautioned: βU = βL / (1 + (1 − t)·D/E) (Hamada 1972, the demo's formula), against the
+// lowest and highest of result.json's aggregated peers. A solved structure under a given cost
+// of debt says that cost stays fixed; under a rating table's cost (which moves) it does not.
+// (Found by review: an unlevered 1.195 against peers of 0.678 to 0.904 went without a word.)
+#[test]
+fn an_implied_beta_beyond_the_peers_and_a_fixed_cost_of_debt_are_said() {
+    let out = tempfile::tempdir().unwrap();
+    let run = run_case(Path::new(DEMO_CASE), out.path(), &[]);
+    let claim = format!("{DEMO_DIR}/claimed.toml");
+    let output = hurdle(&["implied", DEMO_CASE, "--claim", &claim, "--solve", "beta"]);
+    let report = text(&output);
+    assert_eq!(output.status.code(), Some(0), "{report}");
+    let tax = number(&run, "target.tax_rate");
+    let unlevered =
+        exact_beta(&report) / (1.0 + (1.0 - tax) * number(&run, "target.debt_to_equity"));
+    let aggregated: Vec<f64> = (run["peers"].as_array().unwrap().iter())
+        .filter(|p| p["excluded_reason"].is_null())
+        .map(|p| p["unlevered_beta"].as_f64().unwrap())
+        .collect();
+    let low = aggregated.iter().copied().fold(f64::INFINITY, f64::min);
+    let high = aggregated.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    assert!(
+        unlevered > high,
+        "the demo's claim needs a beta above the peers': {unlevered}"
+    );
+    assert!(
+        report.contains(&format!(
+            "outside the aggregated peers' ({} to {})",
+            hurdle::error::rounded(low, 3),
+            hurdle::error::rounded(high, 3)
+        )),
+        "{report}"
+    );
+    let solve = |sets: &[&str]| {
+        let mut args = vec![
+            "implied",
+            DEMO_CASE,
+            "--wacc",
+            "0.07",
+            "--solve",
+            "debt_to_equity",
+        ];
+        args.extend_from_slice(sets);
+        text(&hurdle(&args))
+    };
+    // 4.63%: the demo case's `debt.cost_pre_tax = 0.0463`, its input.
+    let fixed = "the pre-tax cost of debt stays at the case's given 4.63% at this structure";
+    assert!(solve(&[]).contains(fixed));
+    let rated = solve(&["--set", "debt.source=\"rating\""]);
+    assert!(!rated.contains("stays at the case's given"), "{rated}");
+}
+
 // A case whose own ERP lies above the default range is searched over a range widened to hold
 // it (README, Implied inputs): under CAPM with riskless debt the WACC is linear in the ERP,
 // WACC = wE·(rf + β·ERP + premiums) + wD·Kd·(1 − t) (textbook; β does not depend on the ERP

@@ -159,6 +159,10 @@ pub struct Implied {
     /// The highest D/E of the peers the case aggregates, which a solved target D/E above it
     /// extrapolates the formula beyond, as the run's caution says of a case's target.
     pub peers_highest_debt_to_equity: f64,
+    /// The lowest and the highest unlevered beta (of the operations, when the case aggregates
+    /// those) among the peers the case aggregates: a solved beta whose unlevered equivalent
+    /// lies outside is none of these peers'.
+    pub peers_unlevered_range: (f64, f64),
     /// Whether the case's leases, weighted, take their cost from the pre-tax cost of debt (no
     /// `leases.cost_pre_tax`), so a solved cost of debt moves the leases' cost with it.
     pub lease_cost_is_cost_of_debt: bool,
@@ -249,6 +253,8 @@ impl Implied {
             ))
         } else if value > too_high {
             Some(format!("{what} far above what such a figure usually is"))
+        } else if let Some(caution) = self.beta_outside_peers() {
+            Some(caution)
         } else if self.target == Target::CostOfDebt && value < self.base_risk_free_rate {
             Some(format!(
                 "a pre-tax cost of debt below the case's risk-free rate ({}): no lender takes \
@@ -273,6 +279,44 @@ impl Implied {
         } else {
             None
         }
+    }
+
+    /// For a solved structure under a given cost of debt: that cost stays as the case gives it
+    /// at the structure found (found by review: only the memo said so of a leverage what-if).
+    pub fn fixed_cost_of_debt(&self) -> Option<String> {
+        let kd = self.base_cost_of_debt?;
+        let moved = self.value.is_some_and(|v| v != self.base_value);
+        (self.target == Target::DebtToEquity && moved).then(|| {
+            format!(
+                "the pre-tax cost of debt stays at the case's given {}% at this structure, though \
+                 lenders ask more of a more indebted firm (debt.source = \"coverage\" or \
+                 \"rating\" prices it by the structure's coverage or rating)",
+                crate::error::rounded(kd * 100.0, 2)
+            )
+        })
+    }
+
+    /// The caution on a solved beta whose unlevered equivalent lies outside every aggregated
+    /// peer's (found by review: an unlevered 1.195 against peers of 0.678 to 0.904 went
+    /// without one, while a D/E beyond the peers' had one).
+    fn beta_outside_peers(&self) -> Option<String> {
+        let equivalent = self.unlevered_equivalent.as_ref()?;
+        let (low, high) = self.peers_unlevered_range;
+        let unlevered = equivalent.unlevered;
+        let what = match equivalent.operations {
+            true => "a beta of the operations",
+            false => "an unlevered beta",
+        };
+        let r = |x: f64| crate::error::rounded(x, 3);
+        (low.is_finite() && !(low..=high).contains(&unlevered)).then(|| {
+            format!(
+                "{what} of {} outside the aggregated peers' ({} to {}): the claimed WACC \
+                 needs a beta none of these peers has",
+                r(unlevered),
+                r(low),
+                r(high)
+            )
+        })
     }
 
     /// The caution on a solved target above every aggregated peer's D/E, as the run gives it
@@ -415,6 +459,7 @@ pub fn implied(
         base_cost_of_debt: given_cost_of_debt(base, settings),
         lease_cost_is_cost_of_debt: lease_cost_is_cost_of_debt(settings),
         peers_highest_debt_to_equity: highest_peer_debt_to_equity(base),
+        peers_unlevered_range: peers_unlevered_range(base),
         unlevered_equivalent: value
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
@@ -529,6 +574,21 @@ fn given_cost_of_debt(base: &Valuation, settings: &crate::case::CaseFile) -> Opt
 /// Whether the case's leases, weighted, take their cost from the cost of debt.
 fn lease_cost_is_cost_of_debt(settings: &crate::case::CaseFile) -> bool {
     settings.leases.weight > 0.0 && settings.leases.cost_pre_tax.is_none()
+}
+
+/// The lowest and highest unlevered beta (of the operations, when the case aggregates those)
+/// among the peers the case aggregates.
+fn peers_unlevered_range(base: &Valuation) -> (f64, f64) {
+    let operations = base.cost.beta.uses_operations_beta;
+    (base.peers.iter())
+        .filter(|p| p.excluded_reason.is_none())
+        .map(|p| match operations {
+            true => p.operations_beta,
+            false => p.unlevered_beta,
+        })
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(low, high), b| {
+            (low.min(b), high.max(b))
+        })
 }
 
 /// The highest D/E among the peers the case aggregates.

@@ -91,7 +91,7 @@ fn claimed_wacc(args: &Args) -> hurdle::Result<(f64, Option<hurdle::audit::bridg
             if let Some(gap) = side.stated_gap() {
                 println!(
                     "note: the claim's own components give {}, {} bp {} its stated WACC; the \
-                     value solved for reproduces the stated {}",
+                     solve aims at the stated {}",
                     percent(side.wacc, 3),
                     fixed(gap.abs() * 1e4, 1),
                     if gap < 0.0 { "above" } else { "below" },
@@ -340,6 +340,9 @@ fn solved_note(r: &hurdle::audit::implied::Implied, value: f64) -> String {
     if let Some(caution) = r.caution() {
         note.push_str(&format!("; caution: {caution}"));
     }
+    if let Some(fixed) = r.fixed_cost_of_debt() {
+        note.push_str(&format!("; {fixed}"));
+    }
     if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
         note.push_str("; the cost of debt, rf plus the table's spread, moves with it");
     }
@@ -436,6 +439,9 @@ fn print_exact(r: &hurdle::audit::implied::Implied, value: f64) {
     }
     if let Some(caution) = r.caution() {
         println!("  caution: {caution}; the claim may rest on other inputs than this one");
+    }
+    if let Some(fixed) = r.fixed_cost_of_debt() {
+        println!("  note: {fixed}");
     }
     if r.target == Target::RiskFree && r.base_cost_of_debt.is_none() {
         println!("  note: the cost of debt, rf plus the table's spread, moves with the rate");

@@ -23,6 +23,16 @@ pub fn case_cautions(v: &Valuation, flags_column: &str) -> Vec<String> {
             ratio(v.cost.target.debt_to_equity),
         ));
     }
+    // Found by review: recorded as a caution, said only in the memo's unlevering section.
+    if c.riskless_debt_above_risk_free {
+        out.push(format!(
+            "Riskless debt at a cost above the risk-free rate: the debt betas are 0 while the \
+             subject's cost of debt ({}) lies above the risk-free rate ({}); the debt's risk is \
+             given to the equity in unlevering and relevering.",
+            super::format::percent(v.cost.cost_of_debt_pre_tax, 2),
+            super::format::percent(v.cost.risk_free_rate, 2)
+        ));
+    }
     if !c.betas_near_zero.is_empty() {
         out.push(format!(
             "Betas not clearly above zero: {}: the raw beta's 95% interval reaches zero or lies \

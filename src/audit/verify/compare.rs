@@ -628,6 +628,9 @@ mod tests {
         );
         assert_eq!(version("0.10.2"), Some(vec![0, 10, 2]));
         assert_eq!(version("0.3"), Some(vec![0, 3]));
-        assert!(version("0.3.0-dev").is_none() && version("").is_none());
+        // A pre-release or build suffix is read by its numbers, as the shape check accepts it.
+        assert_eq!(version("0.3.0-dev"), Some(vec![0, 3, 0]));
+        assert_eq!(version("0.18.0+local"), Some(vec![0, 18, 0]));
+        assert!(version("").is_none() && version("banana").is_none());
     }
 }
