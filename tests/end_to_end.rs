@@ -872,3 +872,26 @@ fn no_rolling_window_under_long_newey_west_lags_says_why() {
         "{memo}"
     );
 }
+
+// A premium of 0 without a stated basis is not applied, which the memo's table of bases says
+// instead of asking for a basis (found by review: "(none given: …)" read as a missing input);
+// a premium applied without one still asks (README, [premiums]: a premium that adds nothing
+// needs no basis).
+#[test]
+fn a_premium_not_applied_needs_no_basis_in_the_memo() {
+    let dir = tempfile::tempdir().unwrap();
+    let result = run_demo(dir.path(), &["--set", "premiums.company_specific=0.01"]);
+    assert_eq!(result["premiums"]["country"].as_f64(), Some(0.0));
+    assert_eq!(result["premiums"]["country_justification"], "");
+    let memo = std::fs::read_to_string(dir.path().join("memo.md")).unwrap();
+    assert!(
+        memo.contains("| Country risk premium | not applied (0%) |"),
+        "{memo}"
+    );
+    assert!(
+        memo.contains(
+            "| Company-specific premium | (none given: premiums.company_specific_justification) |"
+        ),
+        "{memo}"
+    );
+}
