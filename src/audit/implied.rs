@@ -14,6 +14,8 @@
 
 use serde::Serialize;
 
+mod cautions;
+mod range;
 mod scan;
 
 use super::bridge::Side;
@@ -21,6 +23,7 @@ use crate::capital::leverage::{CapitalStructure, DebtTerms, Formula};
 use crate::case::{with_overrides, CountryMethod, TargetSource};
 use crate::error::{compact, Error, Result};
 use crate::valuation::{cost_of_capital, estimates_for, Inputs, PeerEstimates, Valuation};
+use range::{in_key_units, plan_intervals, search_range};
 use scan::{solve, Scan};
 
 mod held;
@@ -216,138 +219,6 @@ impl UnleveredEquivalent {
 }
 
 impl Implied {
-    /// Why the value found, though it reproduces the claim, is hard to defend: a negative
-    /// premium, rate or beta, a figure far above the usual (the bounds the run's notes use), a
-    /// pre-tax cost of debt below the risk-free rate or above the case's cost of equity (debt
-    /// ranks ahead of equity), or a risk-free rate above the case's given cost of debt.
-    /// `None` when nothing stands out.
-    pub fn caution(&self) -> Option<String> {
-        let value = self.value.filter(|_| !self.does_not_move)?;
-        let percent = |x: f64| format!("{}%", crate::error::rounded(x * 100.0, 2));
-        use crate::case::sanity::{USUAL_MAX_COST, USUAL_MAX_PREMIUM, USUAL_MAX_RISK_FREE};
-        let too_high = match self.target {
-            Target::Erp | Target::SizePremium => USUAL_MAX_PREMIUM,
-            Target::RiskFree => USUAL_MAX_RISK_FREE,
-            Target::CostOfDebt => USUAL_MAX_COST,
-            Target::Beta => 3.0,
-            Target::DebtToEquity => return self.structure_caution(value),
-        };
-        let what = match self.target {
-            Target::Erp => "an equity risk premium",
-            Target::SizePremium => "a size premium",
-            Target::RiskFree => "a risk-free rate",
-            Target::CostOfDebt => "a pre-tax cost of debt",
-            Target::Beta => "a relevered beta",
-            Target::DebtToEquity => unreachable!("returned above"),
-        };
-        if value < 0.0 && self.target == Target::RiskFree {
-            // Negative yields have been quoted on some currencies' government bonds.
-            Some(
-                "a risk-free rate below zero: some markets have quoted such yields; check that \
-                 the claim's currency and date had one"
-                    .into(),
-            )
-        } else if value < 0.0 {
-            Some(format!(
-                "{what} below zero: the claim implies an input no market gives"
-            ))
-        } else if value > too_high {
-            Some(format!("{what} far above what such a figure usually is"))
-        } else if let Some(caution) = self.beta_outside_peers() {
-            Some(caution)
-        } else if self.target == Target::CostOfDebt && value < self.base_risk_free_rate {
-            Some(format!(
-                "a pre-tax cost of debt below the case's risk-free rate ({}): no lender takes \
-                 less than the riskless rate",
-                percent(self.base_risk_free_rate)
-            ))
-        } else if let Some(kd) = self
-            .base_cost_of_debt
-            .filter(|kd| self.target == Target::RiskFree && value > *kd)
-        {
-            Some(format!(
-                "a risk-free rate above the case's pre-tax cost of debt ({}): the debt would pay \
-                 less than the riskless rate",
-                percent(kd)
-            ))
-        } else if self.target == Target::CostOfDebt && value > self.base_cost_of_equity {
-            Some(format!(
-                "a pre-tax cost of debt above the case's cost of equity ({}): debt ranks ahead \
-                 of equity and should cost less",
-                percent(self.base_cost_of_equity)
-            ))
-        } else {
-            None
-        }
-    }
-
-    /// For a solved structure under a given cost of debt: that cost stays as the case gives it
-    /// at the structure found (found by review: only the memo said so of a leverage what-if).
-    pub fn fixed_cost_of_debt(&self) -> Option<String> {
-        let kd = self.base_cost_of_debt?;
-        let moved = self.value.is_some_and(|v| v != self.base_value);
-        (self.target == Target::DebtToEquity && moved).then(|| {
-            format!(
-                "the pre-tax cost of debt stays at the case's given {}% at this structure, though \
-                 lenders ask more of a more indebted firm (debt.source = \"coverage\" or \
-                 \"rating\" prices it by the structure's coverage or rating)",
-                crate::error::rounded(kd * 100.0, 2)
-            )
-        })
-    }
-
-    /// The caution on a solved beta whose unlevered equivalent lies outside every aggregated
-    /// peer's (found by review: an unlevered 1.195 against peers of 0.678 to 0.904 went
-    /// without one, while a D/E beyond the peers' had one).
-    fn beta_outside_peers(&self) -> Option<String> {
-        let equivalent = self.unlevered_equivalent.as_ref()?;
-        let (low, high) = self.peers_unlevered_range;
-        let unlevered = equivalent.unlevered;
-        let what = match equivalent.operations {
-            true => "a beta of the operations",
-            false => "an unlevered beta",
-        };
-        let r = |x: f64| crate::error::rounded(x, 3);
-        (low.is_finite() && !(low..=high).contains(&unlevered)).then(|| {
-            format!(
-                "{what} of {} outside the aggregated peers' ({} to {}): the claimed WACC \
-                 needs a beta none of these peers has",
-                r(unlevered),
-                r(low),
-                r(high)
-            )
-        })
-    }
-
-    /// The caution on a solved target above every aggregated peer's D/E, as the run gives it
-    /// for a case's target (found by review: a solved D/E of 6.1 against peers of 0.1 to 0.7
-    /// went without it).
-    fn structure_caution(&self, value: f64) -> Option<String> {
-        let high = self.peers_highest_debt_to_equity;
-        // A case that gives its target as debt to capital is solved in it.
-        let de = match self.key.as_str() {
-            "target.debt_to_capital" => crate::capital::cost::debt_to_equity_from_capital(value),
-            _ => value,
-        };
-        // In the unit solved as well (found by review: a debt to capital of 0.433 read
-        // against a D/E of 0.709 looked below it).
-        let also = match self.key.as_str() {
-            "target.debt_to_capital" => format!(
-                ", {} as debt to capital",
-                crate::error::rounded(crate::capital::cost::debt_to_capital_from_equity(high), 3)
-            ),
-            _ => String::new(),
-        };
-        (de > high).then(|| {
-            format!(
-                "a target D/E above every aggregated peer's (the highest is {}{also}): \
-                 the relevered beta extrapolates the formula beyond the leverage the \
-                 betas were measured at",
-                crate::error::rounded(high, 3)
-            )
-        })
-    }
-
     /// Whether the solution's WACC equals the claim (within [`REPRODUCED`]); `false` when no
     /// value was found or the WACC jumps across the claim at the value found.
     pub fn reproduces(&self) -> bool {
@@ -397,14 +268,9 @@ pub fn implied(
     let settings = &inputs.case.settings;
     let by_capital = target == Target::DebtToEquity && settings.target.debt_to_equity.is_none();
     let (key, base_value) = key_and_base_value(target, by_capital, base);
-    let (widened_low, widened_high) = match range {
-        Some(_) => (low, high),
-        None => holding_case_value((low, high), key, by_capital, base_value),
-    };
-    // A widened default range keeps the default's spacing: more intervals, not wider ones
-    // (found by review: widening to twice the span made the scan twice as coarse).
-    let intervals = scan_intervals((high - low, widened_high - widened_low));
-    let (low, high) = in_key_units((widened_low, widened_high), key, by_capital)?;
+    let (widened, intervals) =
+        plan_intervals((low, high), range.is_some(), key, by_capital, base_value);
+    let (low, high) = in_key_units(widened, key, by_capital)?;
     let build_up = Side::from_valuation("base", base).build_up;
     // A country premium scaled by beta moves with the beta solved for (found by review: such a
     // case was refused); the other premiums stay as the case has them.
@@ -464,85 +330,6 @@ pub fn implied(
             .filter(|_| target == Target::Beta)
             .map(|beta| UnleveredEquivalent::of(base, beta)),
         held,
-    })
-}
-
-/// The search range checked against what the key accepts and, for a debt-to-capital case,
-/// which is solved in debt-to-capital, the D/E range mapped to it.
-fn in_key_units((low, high): (f64, f64), key: &str, by_capital: bool) -> Result<(f64, f64)> {
-    let checked = if by_capital {
-        "target.debt_to_equity"
-    } else {
-        key
-    };
-    crate::valuation::sanity::check_search_range(checked, low, high)?;
-    let dc = crate::capital::cost::debt_to_capital_from_equity;
-    Ok(match by_capital {
-        true => (dc(low), dc(high)),
-        false => (low, high),
-    })
-}
-
-/// The default range widened to hold the case's own value `base` (in the key's units; a
-/// debt-to-capital case's is turned into D/E, the range's unit), reaching as far again beyond
-/// it as the range reached on its other side, within what the key accepts (found by review: a
-/// case at an ERP of 25% was told that no ERP in [0%, 20%] meets a claim near its own WACC).
-fn holding_case_value(
-    (low, high): (f64, f64),
-    key: &str,
-    by_capital: bool,
-    base: f64,
-) -> (f64, f64) {
-    let (key, base) = match by_capital {
-        true => (
-            "target.debt_to_equity",
-            crate::capital::cost::debt_to_equity_from_capital(base),
-        ),
-        false => (key, base),
-    };
-    let (least, most, most_included) = crate::valuation::sanity::accepted_range(key);
-    let most = match most_included {
-        true => most,
-        false => most.next_down(),
-    };
-    match base {
-        b if !b.is_finite() => (low, high),
-        b if b > high => (low, (b + (b - low)).min(most)),
-        b if b < low => ((b - (high - b)).max(least), high),
-        _ => (low, high),
-    }
-}
-
-/// Intervals of the scan: 64 over a range as given or a default one, and as many more as keep
-/// the default's spacing over a default range widened to hold the case's value (`spans`: the
-/// default's and the widened one's), at most [`MOST_INTERVALS`].
-fn scan_intervals((default_span, span): (f64, f64)) -> usize {
-    let widened = (INTERVALS as f64 * span / default_span).ceil();
-    match widened.is_finite() && widened > INTERVALS as f64 {
-        true => (widened as usize).min(MOST_INTERVALS),
-        false => INTERVALS,
-    }
-}
-
-/// The scan's intervals over a range (65 values).
-const INTERVALS: usize = 64;
-/// The most intervals a widened default range is scanned in.
-const MOST_INTERVALS: usize = 256;
-
-/// The range to search: the given one, else the target's default. Every default range passes,
-/// so a failing range is the user's; the command line names it.
-fn search_range(range: Option<(f64, f64)>, target: Target) -> Result<(f64, f64)> {
-    let (low, high) = range.unwrap_or_else(|| target.default_range());
-    if low.is_finite() && high.is_finite() && low < high {
-        return Ok((low, high));
-    }
-    Err(Error::Argument {
-        option: format!(
-            "search range {}..{}",
-            crate::error::compact(low),
-            crate::error::compact(high)
-        ),
-        message: "the range must be LOW..HIGH with finite LOW < HIGH".into(),
     })
 }
 
@@ -662,17 +449,8 @@ fn refuse_unsolvable(inputs: &Inputs, target: Target) -> Result<()> {
 
 #[cfg(test)]
 mod tests {
+    use super::range::INTERVALS;
     use super::*;
-
-    // The default's spacing kept over a widened range (arithmetic): 0–20% widened to 0–50% is
-    // 2.5 spans, 160 intervals; an unwidened or a given range 64; never above 256.
-    #[test]
-    fn a_widened_range_keeps_the_default_spacing() {
-        assert_eq!(scan_intervals((0.20, 0.50)), 160);
-        assert_eq!(scan_intervals((0.20, 0.20)), 64);
-        assert_eq!(scan_intervals((0.20, 0.10)), 64);
-        assert_eq!(scan_intervals((0.20, 20.0)), 256);
-    }
 
     // A line WACC = 0.05 + 0.5·x, refused below x = 0.3: the claim 0.25 has the root x = 0.4
     // (algebra). The scan over [0, 1] has 65 values i/64, of which those below 0.3 (i ≤ 19,

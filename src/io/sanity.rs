@@ -7,7 +7,9 @@ use std::path::Path;
 
 use crate::error::{compact as show, Error, Result};
 
+mod bounds;
 mod hints;
+pub use bounds::{amount_out_of_range, AMOUNT_OUT_OF_RANGE, PRICE_RANGE};
 pub use hints::{
     column_name_hint, decimal_comma_hint, extra_fields_message, separator_line,
     unnamed_value_message,
@@ -20,23 +22,6 @@ pub enum ValueKind {
     Price,
     /// An annualised yield in decimals: finite and above −100%.
     Yield,
-}
-
-/// The least and the greatest price read: see [`ValueKind::broken_rule`].
-pub const PRICE_RANGE: (f64, f64) = (1e-100, 1e100);
-
-/// Why a balance-sheet amount (equity value, debt, cash; a case's or a universe's attribute)
-/// is refused when it is neither 0 nor within [`PRICE_RANGE`] in size: sums and products of
-/// amounts near the largest double overflow (found by review: 1.7e308 gave #NUM! in a
-/// workbook's recalculation; 1e308 an operating share of -6.67e304), and no currency unit makes
-/// a firm's figures so large or small.
-pub const AMOUNT_OUT_OF_RANGE: &str =
-    "lies outside 1e-100 to 1e100, the range of an amount in any unit";
-
-/// Whether `value` is an amount [`AMOUNT_OUT_OF_RANGE`] refuses.
-pub fn amount_out_of_range(value: f64) -> bool {
-    let (low, high) = PRICE_RANGE;
-    value != 0.0 && !(low..=high).contains(&value.abs())
 }
 
 impl ValueKind {

@@ -98,6 +98,18 @@ const ONE_VALUE_SPREAD: &str = "hurdle 0.6.0 writes the standard deviation of a 
     spread measured to be nil) (README, Changelog, \"Findings of a practitioner's, a spreadsheet \
     user's and a chart reader's reviews\")";
 
+/// The figures of the estimation-error draws, which a change of how they are drawn moves.
+const ESTIMATION_ERROR_DRAWS: [&str; 8] = [
+    "uncertainty.mean",
+    "uncertainty.p05",
+    "uncertainty.p25",
+    "uncertainty.p50",
+    "uncertainty.p75",
+    "uncertainty.p95",
+    "uncertainty.histogram",
+    "uncertainty.point_outside_interval",
+];
+
 const KNOWN_CHANGES: [KnownChange; 18] =
     [
         // Found by review: a mean of draws without a finite variance moved from −16% to 11%
@@ -119,16 +131,7 @@ const KNOWN_CHANGES: [KnownChange; 18] =
         KnownChange {
             version: "0.18.0",
             kind: "case",
-            paths: &[
-                "uncertainty.mean",
-                "uncertainty.p05",
-                "uncertainty.p25",
-                "uncertainty.p50",
-                "uncertainty.p75",
-                "uncertainty.p95",
-                "uncertainty.histogram",
-                "uncertainty.point_outside_interval",
-            ],
+            paths: &ESTIMATION_ERROR_DRAWS,
             // The sandwich covariance has rank at most a peer's degrees of freedom (residuals
             // orthogonal to the regressors), so it is singular when they are fewer than the
             // peers (found by review: 9 returns, 8 peers took the fallback).
@@ -172,16 +175,7 @@ const KNOWN_CHANGES: [KnownChange; 18] =
         KnownChange {
             version: "0.15.0",
             kind: "case",
-            paths: &[
-                "uncertainty.mean",
-                "uncertainty.p05",
-                "uncertainty.p25",
-                "uncertainty.p50",
-                "uncertainty.p75",
-                "uncertainty.p95",
-                "uncertainty.histogram",
-                "uncertainty.point_outside_interval",
-            ],
+            paths: &ESTIMATION_ERROR_DRAWS,
             explain: |_, _| {
                 Some(
                     "hurdle 0.15.0 draws each peer's beta from Student's t with its own degrees \
