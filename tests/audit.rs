@@ -270,7 +270,7 @@ fn verify_lists_reworded_descriptions_without_failing_and_still_catches_a_change
         "{report}"
     );
     // Written by an earlier version, it is that version's wording.
-    result["tool"]["version"] = "0.0.1".into();
+    common::relabel(&mut result, "0.0.1");
     std::fs::write(&receipt, serde_json::to_string(&result).unwrap()).unwrap();
     let (output, report) = verify_into(&receipt, &status_dir);
     assert_eq!(output.status.code(), Some(0), "{report}");
@@ -896,7 +896,7 @@ fn a_receipt_of_an_earlier_version_verifies_without_the_figures_added_since() {
     let (dir, case_dir) = demo_copy();
     let out = dir.path().join("out");
     let mut receipt = run_case(&case_dir.join("case.toml"), &out, &[]);
-    receipt["tool"]["version"] = serde_json::json!("0.2.0");
+    common::relabel(&mut receipt, "0.2.0");
     for peer in receipt["peers"].as_array_mut().unwrap() {
         peer.as_object_mut().unwrap().remove("zero_return_share");
     }
@@ -906,11 +906,18 @@ fn a_receipt_of_an_earlier_version_verifies_without_the_figures_added_since() {
     let verified = hurdle(&["verify", older.to_str().unwrap()]);
     let report = text(&verified);
     assert_eq!(verified.status.code(), Some(0), "{report}");
+    // Every figure a later version began to write is taken out of the relabelled receipt
+    // (a 0.2.0 receipt lacks them all), so the note lists the two 0.3.0 added among them.
     assert!(
         report.contains(&format!(
-            "9 figures that hurdle {} writes and the receipt, written by hurdle 0.2.0, does not have",
+            "figures that hurdle {} writes and the receipt, written by hurdle 0.2.0, does not have",
             env!("CARGO_PKG_VERSION")
         )),
+        "{report}"
+    );
+    assert!(
+        report.contains("peers[].zero_return_share (8 entries)")
+            && report.contains("settings.beta.flag_zero_return_share"),
         "{report}"
     );
     receipt.as_object_mut().unwrap().remove("wacc");
@@ -1064,7 +1071,7 @@ fn receipt_of_version(
     let receipt = out.join("result.json");
     let mut recorded: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(&receipt).unwrap()).unwrap();
-    recorded["tool"]["version"] = version.into();
+    common::relabel(&mut recorded, version);
     edit(&mut recorded);
     std::fs::write(&receipt, serde_json::to_string_pretty(&recorded).unwrap()).unwrap();
     (dir, case_dir, receipt)
@@ -3303,7 +3310,7 @@ fn a_receipt_of_0_10_0_verifies_and_names_the_lagged_response_flag() {
     let (dir, case_dir) = demo_copy();
     let case = case_dir.join("case.toml");
     let as_older = |receipt: &mut serde_json::Value| {
-        receipt["tool"]["version"] = serde_json::json!("0.10.0");
+        common::relabel(receipt, "0.10.0");
         for peer in receipt["peers"].as_array_mut().unwrap() {
             let peer = peer.as_object_mut().unwrap();
             peer.remove("lag_response");
@@ -3323,8 +3330,12 @@ fn a_receipt_of_0_10_0_verifies_and_names_the_lagged_response_flag() {
     let verified = hurdle(&["verify", older.to_str().unwrap()]);
     let report = text(&verified);
     assert_eq!(verified.status.code(), Some(0), "{report}");
-    // Eight peers' lag_response and the threshold.
-    assert!(report.contains("9 figures that hurdle"), "{report}");
+    // Eight peers' lag_response and the threshold, among the figures added since 0.10.0.
+    assert!(
+        report.contains("peers[].lag_response (8 entries)")
+            && report.contains("settings.beta.flag_lag_p_value"),
+        "{report}"
+    );
     assert!(!report.contains("known change"), "{report}");
     let out = dir.path().join("daily");
     let daily = [
@@ -3656,7 +3667,7 @@ fn a_receipt_of_0_15_0_names_the_inputs_now_asked_for_a_basis() {
     ];
     let out = dir.path().join("out");
     let mut receipt = run_case(&case, &out, &sets);
-    receipt["tool"]["version"] = serde_json::json!("0.15.0");
+    common::relabel(&mut receipt, "0.15.0");
     let conversion = receipt["currency_conversion"].as_object_mut().unwrap();
     conversion.remove("cost_of_debt_pre_tax");
     conversion.remove("wacc_borrowing_locally");

@@ -3090,6 +3090,22 @@ fn command_arguments() -> Vec<Bad> {
             ["verify", "{dir}/r.json"],
             ["r.json", "tool.version = \"banana\" is no version"]
         ),
+        // A key its claimed version never wrote (ADDED_IN: 0.17.0 began to write it).
+        bad!(
+            "verify: receipt's version older than a key it holds",
+            |s| {
+                s.write(
+                "r.json",
+                "{\"schema_version\": 2, \"tool\": {\"name\": \"hurdle\", \"version\": \"0.16.0\"}, \"cautions\": {\"riskless_debt_above_risk_free\": true}}"
+            )
+            },
+            ["verify", "{dir}/r.json"],
+            [
+                "r.json",
+                "tool.version = \"0.16.0\"",
+                "`cautions.riskless_debt_above_risk_free`, which hurdle first wrote in 0.17.0"
+            ]
+        ),
         bad!(
             "verify: receipt's file entry a number",
             |s| {

@@ -2372,7 +2372,7 @@ fn a_universe_receipt_of_0_3_0_verifies_without_the_counts_added_since() {
         fs::write(&older, serde_json::to_vec_pretty(receipt).unwrap()).unwrap();
         common::hurdle(&["verify", older.to_str().unwrap()])
     };
-    receipt["tool"]["version"] = serde_json::json!("0.3.0");
+    common::relabel(&mut receipt, "0.3.0");
     let verified = verify(&receipt);
     let report = String::from_utf8_lossy(&verified.stdout);
     assert_eq!(verified.status.code(), Some(0), "{report}");

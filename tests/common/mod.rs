@@ -39,6 +39,45 @@ pub fn run_case_with(case: &Path, out: &Path, sets: &[&str]) -> serde_json::Valu
     serde_json::from_slice(&fs::read(out.join("result.json")).unwrap()).unwrap()
 }
 
+/// A receipt of this version made to read as one `version` wrote: `tool.version` set and every
+/// key a later version began to write taken out (`hurdle::audit::verify::keys_added_after`),
+/// as that version's receipt lacks them (verify refuses a receipt holding a key its version
+/// never wrote).
+#[allow(dead_code)]
+pub fn relabel(receipt: &mut serde_json::Value, version: &str) {
+    receipt["tool"]["version"] = version.into();
+    for key in hurdle::audit::verify::keys_added_after(version) {
+        remove_path(receipt, &key.split('.').collect::<Vec<_>>());
+    }
+}
+
+/// Removes the key at `path` (`peers[]` a segment for every entry of the list `peers`).
+#[allow(dead_code)]
+fn remove_path(value: &mut serde_json::Value, path: &[&str]) {
+    let Some((first, rest)) = path.split_first() else {
+        return;
+    };
+    let (name, each) = match first.strip_suffix("[]") {
+        Some(name) => (name, true),
+        None => (*first, false),
+    };
+    let Some(object) = value.as_object_mut() else {
+        return;
+    };
+    if rest.is_empty() && !each {
+        object.remove(name);
+        return;
+    }
+    let Some(child) = object.get_mut(name) else {
+        return;
+    };
+    match (each, child.as_array_mut()) {
+        (true, Some(items)) if rest.is_empty() => items.clear(),
+        (true, Some(items)) => items.iter_mut().for_each(|item| remove_path(item, rest)),
+        _ => remove_path(child, rest),
+    }
+}
+
 /// A number in a JSON value by its dotted path (`weights.equity`).
 #[allow(dead_code)]
 pub fn number(v: &serde_json::Value, path: &str) -> f64 {

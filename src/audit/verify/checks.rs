@@ -29,6 +29,14 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
     }
     if hurdles {
         check_tool_version(recorded)?;
+        let written = recorded["tool"]["version"].as_str().unwrap_or_default();
+        if let Some((key, added)) = super::compare::key_after_version(recorded, written) {
+            return Err(format!(
+                "tool.version = \"{written}\", but the receipt holds `{key}`, which hurdle first \
+                 wrote in {added}: its version was edited; restore it or verify the receipt the \
+                 run wrote"
+            ));
+        }
     }
     let kind = recorded["kind"].as_str();
     if let Some(other) = kind.filter(|k| !["case", "universe"].contains(k)) {

@@ -171,6 +171,61 @@ const ADDED_IN: [(&str, &[&str]); 11] = [
     ),
 ];
 
+/// The first key of `recorded` that a version later than `recorded_version` began to write
+/// ([`ADDED_IN`]), with that version: a receipt of that version cannot hold it, so the version
+/// was edited (found by review: a receipt relabelled as an older version passed a deleted note
+/// off as that version's wording). `None` when the version is unknown or the keys fit it.
+pub(super) fn key_after_version(
+    recorded: &Value,
+    recorded_version: &str,
+) -> Option<(String, &'static str)> {
+    let was = version(recorded_version)?;
+    let mut paths = Vec::new();
+    every_path(recorded, String::new(), &mut paths);
+    ADDED_IN
+        .iter()
+        .filter(|(added, _)| version(added).is_some_and(|added| added > was))
+        .find_map(|(added, keys)| {
+            (paths.iter())
+                .find(|p| keys.contains(&p.as_str()))
+                .map(|p| (p.clone(), *added))
+        })
+}
+
+/// The keys (paths with list positions left out) that versions after `recorded_version`
+/// began to write: what a receipt of that version cannot hold.
+pub fn keys_added_after(recorded_version: &str) -> Vec<&'static str> {
+    let Some(was) = version(recorded_version) else {
+        return Vec::new();
+    };
+    (ADDED_IN.iter())
+        .filter(|(added, _)| version(added).is_some_and(|added| added > was))
+        .flat_map(|(_, keys)| keys.iter().copied())
+        .collect()
+}
+
+/// Every path of `value` (objects' and lists' own paths too), list positions left out.
+fn every_path(value: &Value, at: String, out: &mut Vec<String>) {
+    match value {
+        Value::Object(map) => {
+            for (key, child) in map {
+                let path = match at.is_empty() {
+                    true => key.clone(),
+                    false => format!("{at}.{key}"),
+                };
+                out.push(path.clone());
+                every_path(child, path, out);
+            }
+        }
+        Value::Array(items) => {
+            for item in items {
+                every_path(item, format!("{at}[]"), out);
+            }
+        }
+        _ => {}
+    }
+}
+
 /// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.
 pub(super) fn version(text: &str) -> Option<Vec<u64>> {
     // A pre-release or build suffix (`0.18.0-rc.1`) is read as its version, as the shape check
