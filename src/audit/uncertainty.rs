@@ -174,11 +174,8 @@ fn mean_settles(
     let beta = &settings.beta;
     let cross_section_prior =
         beta.adjustment == crate::beta::Adjustment::Vasicek && beta.vasicek_prior_mean.is_none();
-    if heavy == 0 {
-        return true;
-    }
-    if cross_section_prior {
-        return false;
+    if heavy == 0 || cross_section_prior {
+        return heavy == 0;
     }
     match settings.leverage.aggregation {
         Aggregation::Median => 2 * heavy < aggregated,

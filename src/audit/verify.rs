@@ -31,7 +31,7 @@ use crate::error::{Error, Result};
 use crate::valuation::load_inputs;
 use checks::{check_file_entries, check_kind, check_schema, recorded_overrides, refused_since};
 pub(super) use compare::{compare, Comparison};
-pub use compare::{keys_added_after, numbers_agree};
+pub use compare::{keys_added_after, numbers_agree, version as version_numbers};
 use files::file_checks;
 pub(crate) use files::roles_in_words;
 pub use files::{by_file, FileCheck, FileGroup};

@@ -63,13 +63,8 @@ impl EarlierReceipt {
 
     /// Whether the receipt's version is before `version` (or unknown).
     fn written_before(&self, version: [u64; 3]) -> bool {
-        let parts: Option<Vec<u64>> = (self.version.split(['.', '-', '+']).take(3))
-            .map(|p| p.parse().ok())
-            .collect();
-        match parts {
-            Some(parts) if parts.len() == 3 => parts.as_slice() < version.as_slice(),
-            _ => true,
-        }
+        crate::audit::verify::version_numbers(&self.version)
+            .is_none_or(|parts| parts.as_slice() < version.as_slice())
     }
 
     /// Whether this receipt is of another valuation than the case `now` ran: a universe's, or

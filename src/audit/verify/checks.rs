@@ -19,15 +19,14 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
     );
     // Found by review: a number for the kind became a mismatch, exit 1. Only in hurdle's own
     // receipt: another program's JSON is asked whether it is one (by its schema version).
-    let hurdles = recorded["tool"]["name"] == env!("CARGO_PKG_NAME");
-    if hurdles && !(recorded["kind"].is_string() || recorded["kind"].is_null()) {
-        return Err(format!(
-            "kind = {} is not text (\"case\" or \"universe\"): it was edited; restore it or \
-             verify the receipt the run wrote",
-            recorded["kind"]
-        ));
-    }
-    if hurdles {
+    if recorded["tool"]["name"] == env!("CARGO_PKG_NAME") {
+        if !(recorded["kind"].is_string() || recorded["kind"].is_null()) {
+            return Err(format!(
+                "kind = {} is not text (\"case\" or \"universe\"): it was edited; restore it or \
+                 verify the receipt the run wrote",
+                recorded["kind"]
+            ));
+        }
         check_tool_version(recorded)?;
         let written = recorded["tool"]["version"].as_str().unwrap_or_default();
         if let Some((key, added)) = super::compare::key_after_version(recorded, written) {
@@ -66,12 +65,9 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
 /// version the comparison already treats strictly.
 fn check_tool_version(recorded: &Value) -> std::result::Result<(), String> {
     let written = &recorded["tool"]["version"];
-    let well_formed = written.as_str().is_some_and(|v| {
-        let core = v.split(['-', '+']).next().unwrap_or_default();
-        let parts: Vec<&str> = core.split('.').collect();
-        parts.len() == 3
-            && (parts.iter()).all(|p| !p.is_empty() && p.bytes().all(|b| b.is_ascii_digit()))
-    });
+    let well_formed = (written.as_str())
+        .and_then(super::compare::version)
+        .is_some_and(|parts| parts.len() == 3);
     match written.is_null() || well_formed {
         true => Ok(()),
         false => Err(format!(

@@ -226,8 +226,9 @@ fn every_path(value: &Value, at: String, out: &mut Vec<String>) {
     }
 }
 
-/// A version as numbers (`0.3.0` → [0, 3, 0]); `None` for anything else.
-pub(super) fn version(text: &str) -> Option<Vec<u64>> {
+/// A version as numbers (`0.3.0` → [0, 3, 0], `0.18.0-rc.1` → [0, 18, 0]); `None` for anything
+/// else. The one reading of a version: verify's checks and notes, and an earlier run's receipt.
+pub fn version(text: &str) -> Option<Vec<u64>> {
     // A pre-release or build suffix (`0.18.0-rc.1`) is read as its version, as the shape check
     // accepts it (found by review: such a receipt got no known changes).
     let core = text.split(['-', '+']).next().unwrap_or_default();
