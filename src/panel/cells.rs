@@ -219,21 +219,7 @@ fn push_chunk(
             previous_id
         } else {
             let security = ids.value(i);
-            // Padding as `str::trim` (the checked path's, the attributes' and a wide header's)
-            // sees it: any Unicode white space, a no-break space too.
-            let padded = |c: Option<char>| c.is_none_or(char::is_whitespace);
-            let (first, last) = (security.chars().next(), security.chars().next_back());
-            // An id a spreadsheet would read as a formula goes to the checked path, which
-            // names it.
-            let formula = matches!(first, Some('=' | '+' | '@' | '-'));
-            if padded(first)
-                || padded(last)
-                || formula
-                || !crate::io::sanity::is_one_line(security)
-                || security
-                    .chars()
-                    .any(crate::io::sanity::unseen_or_unwritable)
-            {
+            if id_needs_checking(security) {
                 return false;
             }
             let id = rows.dictionary.id(security);
@@ -246,6 +232,41 @@ fn push_chunk(
     }
     rows.prices.extend_from_slice(prices);
     true
+}
+
+/// Whether an id must go to the checked path, which trims or names it: empty, padded as
+/// `str::trim` (the checked path's, the attributes' and a wide header's) sees it (any Unicode
+/// white space, a no-break space too), read by a spreadsheet as a formula, more than one line,
+/// or holding a character no one would see or a file cannot hold.
+pub(crate) fn id_needs_checking(security: &str) -> bool {
+    let padded = |c: Option<char>| c.is_none_or(char::is_whitespace);
+    let (first, last) = (security.chars().next(), security.chars().next_back());
+    let formula = matches!(first, Some('=' | '+' | '@' | '-'));
+    padded(first)
+        || padded(last)
+        || formula
+        || !crate::io::sanity::is_one_line(security)
+        || security
+            .chars()
+            .any(crate::io::sanity::unseen_or_unwritable)
+}
+
+/// The 16-byte key [`DateCache::date_of_view`] takes for a text of at most 12 bytes, laid out
+/// as polars lays out an inline string view: the length, then the bytes, zero-padded.
+pub(crate) fn date_view_key(text: &str) -> u128 {
+    // Built from whole words: a copy of a text of varying length into an array, read back at
+    // once, stalled the store buffer (a fifth of the plain reader's time).
+    let bytes = text.as_bytes();
+    if let Some((head, tail)) = bytes.split_first_chunk::<8>() {
+        if let Ok(&tail) = <&[u8; 2]>::try_from(tail) {
+            let (head, tail) = (u64::from_le_bytes(*head), u16::from_le_bytes(tail));
+            return 10 | u128::from(head) << 32 | u128::from(tail) << 96;
+        }
+    }
+    let bytes = bytes.iter().enumerate();
+    bytes.fold(text.len() as u128, |key, (i, &b)| {
+        key | u128::from(b) << (32 + 8 * i)
+    })
 }
 
 /// The longest string polars keeps inside its 16-byte view.

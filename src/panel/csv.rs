@@ -1,12 +1,14 @@
-//! CSV panels, read block by block through polars' CSV reader.
+//! CSV panels, read block by block: a long panel's plain blocks by [`super::plain`], every
+//! other block through polars' CSV reader.
 //!
 //! The file is read in blocks of whole records (a few megabytes each, cut at a line end outside
-//! quotes) and each block is parsed by polars with a fixed schema: dates and ids as text, prices
-//! as doubles. Three stages overlap — one thread reads and hashes the bytes ([`super::blocks`]), polars parses a
-//! block on its own threads, another thread moves the parsed cells into the panel's columns —
-//! so memory holds a few blocks beside the prices already kept. When polars refuses a block,
-//! the block is read again as text to find the cell and line to name; a duplicate row is located
-//! by a second pass over the file, so the fast path carries no row numbers.
+//! quotes). A plain block of a long panel is read straight into rows; any other is parsed by
+//! polars with a fixed schema: dates and ids as text, prices as doubles. Three stages overlap —
+//! one thread reads and hashes the bytes ([`super::blocks`]), a block is parsed on the cores,
+//! another thread moves the parsed rows into the panel's columns — so memory holds a few blocks
+//! beside the prices already kept. When polars refuses a block, it is read again as text
+//! ([`super::refused`]) to find the cell and line to name; a duplicate row is located by a
+//! second pass over the file, so the fast path carries no row numbers.
 
 use std::io::Cursor;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -19,14 +21,15 @@ use super::blocks::{line_count, scan_blocks, split_at_line_ends};
 use super::cells::{block_dates, push_long, push_wide, DateCells};
 use super::checks::{
     check_records, check_unnamed, check_wide_fields, has_empty_cells, spaced_quote, unnamed,
-    unnamed_columns, unnamed_error,
+    unnamed_columns,
 };
 use super::header::{check_repeated_names, header};
+use super::plain::{LongFields, LongRows};
+use super::refused::{diagnose, trimmed_prices};
 use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
 use crate::error::{Error, Result};
-use crate::io::sanity::first_bad_record;
 
 /// Bytes per block: large enough that polars' per-call setup is negligible, small enough to
 /// stay in cache between the stages (measured best among 4, 16 and 64 MiB on the benchmark).
@@ -42,10 +45,13 @@ pub(super) struct Plan {
     pub(super) schema: SchemaRef,
     projection: Arc<Vec<usize>>,
     /// Wide layout: each security column's name and dictionary id.
-    wide: WideIds,
+    pub(super) wide: WideIds,
     /// The columns the header leaves unnamed, by number (from 1) and schema name; read only to
     /// check that they hold nothing (a long panel's as text).
     pub(super) unnamed: Vec<(usize, String)>,
+    /// A long panel's read fields, for [`plain_block`]; `None` for a wide panel, and for a
+    /// long one with unnamed columns (which polars' reader reads to check them).
+    long: Option<LongFields>,
 }
 
 /// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes. Securities
@@ -56,7 +62,7 @@ pub(super) fn read(
     hook: Option<SecurityHook<'_>>,
 ) -> Result<(Rows, String)> {
     std::thread::scope(|scope| {
-        let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
+        let (frames, frames_in) = sync_channel::<(Parsed, usize)>(1);
         let mut frames_in = Some(frames_in);
         let mut pusher = None;
         let mut plan: Option<Plan> = None;
@@ -81,6 +87,14 @@ pub(super) fn read(
                 plan = Some(made);
             }
             let plan = plan.as_ref().expect("set by the first block");
+            if let Some(pieces) = plain_block(block, first, quoted, plan) {
+                let height = pieces.iter().map(LongRows::len).sum::<usize>();
+                frames
+                    .send((Parsed::Plain(pieces), next_row))
+                    .map_err(|_| source.file_error("stopped".into()))?;
+                next_row += height;
+                return Ok(());
+            }
             let frame = parse_or_trimmed(block, plan, first, quoted)
                 .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
             check_unnamed(source, plan, &frame, next_row)?;
@@ -97,7 +111,7 @@ pub(super) fn read(
             }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             frames
-                .send((frame, next_row))
+                .send((Parsed::Frame(frame), next_row))
                 .map_err(|_| source.file_error("stopped".into()))?;
             next_row += height;
             Ok(())
@@ -113,17 +127,28 @@ pub(super) fn read(
     })
 }
 
+/// A block as parsed: by polars' reader, or by [`plain::long_piece`] in pieces.
+enum Parsed {
+    Frame(DataFrame),
+    Plain(Vec<LongRows>),
+}
+
 /// The pusher stage: moves each parsed block into `rows`, in file order.
 fn push_frames(
     mut rows: Rows,
-    frames: Receiver<(DataFrame, usize)>,
+    frames: Receiver<(Parsed, usize)>,
     wide: &[(String, u32)],
     source: &Source,
     columns: &PanelColumns,
     hook: Option<SecurityHook<'_>>,
 ) -> Result<Rows> {
-    for (frame, first_row) in frames {
-        push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
+    for (parsed, first_row) in frames {
+        match parsed {
+            Parsed::Frame(frame) => {
+                push_frame(&mut rows, &frame, wide, first_row, source, columns)?
+            }
+            Parsed::Plain(pieces) => pieces.iter().for_each(|piece| piece.push_into(&mut rows)),
+        }
         rows.hand_out(hook);
     }
     Ok(rows)
@@ -186,6 +211,7 @@ fn plan_for(
     check_repeated_names(source, &header, &read)?;
     let date = position(&columns.date_column, "panel.date_column")?;
     let mut dtypes = vec![DataType::String; header.len()];
+    let mut long = None;
     let (projection, wide) = match columns.layout {
         PanelLayout::Long => {
             let security = position(&columns.security_column, "panel.security_column")?;
@@ -200,6 +226,12 @@ fn plan_for(
                     .map(|(number, _)| number - 1),
             );
             projection.sort_unstable();
+            long = unnamed_columns(&header).is_empty().then_some(LongFields {
+                date,
+                security,
+                price,
+                width: header.len(),
+            });
             (projection, Vec::new())
         }
         PanelLayout::Wide => wide_plan(source, columns, (&header, date), (&mut dtypes, rows))?,
@@ -216,6 +248,7 @@ fn plan_for(
         projection: Arc::new(projection),
         wide,
         unnamed,
+        long,
     })
 }
 
@@ -305,35 +338,56 @@ fn parse_plain(block: &[u8], plan: &Plan) -> Option<DataFrame> {
         .ok()?;
         (frame.height() == lines).then_some(frame)
     };
-    // One piece per core, none under 64 kB (a thread's start would outweigh its share).
+    let mut frames = on_cores(block, piece)?.into_iter();
+    let mut whole = frames.next()?;
+    for frame in frames {
+        whole.vstack_mut_owned(frame).ok()?;
+    }
+    Some(whole)
+}
+
+/// A quote-free block of records cut at line ends into one piece per core (none under 64 kB:
+/// a thread's start would outweigh its share), each read by `read` on its own thread; `None`
+/// when any piece is.
+fn on_cores<T: Send>(block: &[u8], read: impl Fn(&[u8]) -> Option<T> + Sync) -> Option<Vec<T>> {
     let parts = rayon::current_num_threads()
         .min(block.len() / (64 << 10))
         .max(1);
     let pieces = split_at_line_ends(block, parts);
-    let frames: Vec<Option<DataFrame>> = std::thread::scope(|scope| {
-        // A piece whose thread the system will not start is parsed here, after the first.
+    let read = &read;
+    std::thread::scope(|scope| {
+        // A piece whose thread the system will not start is read here, after the first.
         let others: Vec<_> = pieces[1..]
             .iter()
             .map(|&bytes| {
                 let thread = std::thread::Builder::new();
                 thread
-                    .spawn_scoped(scope, move || piece(bytes))
+                    .spawn_scoped(scope, move || read(bytes))
                     .map_err(|_| bytes)
             })
             .collect();
-        let first = piece(pieces[0]);
+        let first = read(pieces[0]);
         let rest = others.into_iter().map(|other| match other {
             Ok(thread) => thread.join().unwrap_or(None),
-            Err(bytes) => piece(bytes),
+            Err(bytes) => read(bytes),
         });
         std::iter::once(first).chain(rest).collect()
-    });
-    let mut frames = frames.into_iter();
-    let mut whole = frames.next()??;
-    for frame in frames {
-        whole.vstack_mut_owned(frame?).ok()?;
+    })
+}
+
+/// A quote-free block of a long panel without unnamed columns read by [`plain::long_piece`]
+/// on the cores (the first block without its header line); `None` when a piece is not plain,
+/// and the block then goes through [`parse_or_trimmed`] and the checked path as before.
+fn plain_block(block: &[u8], has_header: bool, quoted: bool, plan: &Plan) -> Option<Vec<LongRows>> {
+    let fields = plan.long.filter(|_| !quoted)?;
+    let body = match has_header {
+        true => &block[memchr::memchr(b'\n', block)? + 1..],
+        false => block,
+    };
+    match body.is_empty() {
+        true => None,
+        false => on_cores(body, |piece| super::plain::long_piece(piece, fields)),
     }
-    Some(whole)
 }
 
 /// [`parse`], or when polars refuses the block, [`trimmed_prices`]; polars' error otherwise.
@@ -402,112 +456,6 @@ fn push_frame(
             push_wide(rows, &dates, &securities, first_row, source)
         }
     }
-}
-
-/// The price columns: a long panel's one, or every security column of a wide one.
-fn price_columns<'a>(plan: &'a Plan, columns: &'a PanelColumns) -> Vec<&'a str> {
-    match columns.layout {
-        PanelLayout::Long => vec![columns.price_column.as_str()],
-        PanelLayout::Wide => plan.wide.iter().map(|(n, _)| n.as_str()).collect(),
-    }
-}
-
-/// The block with every column as text (for what polars refused as a number).
-fn read_as_text(block: &[u8], plan: &Plan, has_header: bool) -> PolarsResult<DataFrame> {
-    let text_schema: Schema = schema_names(&plan.header)
-        .iter()
-        .map(|name| Field::new(name.as_str().into(), DataType::String))
-        .collect();
-    CsvReadOptions::default()
-        .with_has_header(has_header)
-        .with_schema(Some(Arc::new(text_schema)))
-        .into_reader_with_file_handle(Cursor::new(block))
-        .finish()
-}
-
-/// A block polars refused, read again when its only flaw is white space around prices
-/// (`89.0677 ` or a tab before a price; polars reads a leading space but not a trailing one):
-/// every price cell is read without its surrounding white space, as dates, ids, attribute
-/// figures and a price file's cells are (found by review: a trailing space was refused and a
-/// leading one read). `None` when anything else is wrong (a cell that is no number once
-/// trimmed, a record of the wrong length, text that is not UTF-8), which [`diagnose`] names.
-fn trimmed_prices(block: &[u8], plan: &Plan, has_header: bool) -> Option<DataFrame> {
-    if crate::io::encoding::first_non_utf8(block).is_some()
-        || first_bad_record(block, plan.header.len(), None).is_some()
-    {
-        return None;
-    }
-    let mut frame = read_as_text(block, plan, has_header).ok()?;
-    // Every column the plan reads as numbers: the prices, and a wide panel's columns the header
-    // leaves unnamed (which must stay empty, `check_unnamed`).
-    let numeric: Vec<String> = (plan.schema.iter())
-        .filter(|(_, dtype)| dtype.is_float())
-        .map(|(name, _)| name.to_string())
-        .collect();
-    for name in &numeric {
-        let name = name.as_str();
-        let prices = super::numbers_in_text(frame.column(name).ok()?)?;
-        frame
-            .with_column(prices.with_name(name.into()).into_column())
-            .ok()?;
-    }
-    Some(frame)
-}
-
-/// Names the cell polars could not parse: the block is read again as text and the first price
-/// that is not a number is reported with its line; failing that, polars' own message.
-fn diagnose(
-    source: &Source,
-    block: &[u8],
-    has_header: bool,
-    first_row: usize,
-    plan: &Plan,
-    columns: &PanelColumns,
-    error: &PolarsError,
-) -> Error {
-    if let Some((line, message)) = crate::io::encoding::first_non_utf8(block) {
-        let row = (first_row + line).saturating_sub(usize::from(has_header));
-        return source.row_error(row, message);
-    }
-    let expected = plan.header.len();
-    if let Some((record, message)) = first_bad_record(block, expected, None) {
-        let row = (first_row + record).saturating_sub(usize::from(has_header));
-        return source.row_error(row, message);
-    }
-    if let Ok(text) = read_as_text(block, plan, has_header) {
-        for (number, name) in &plan.unnamed {
-            let Some(cells) = text.column(name).ok().map(super::checks::cell_texts) else {
-                continue;
-            };
-            let first = (cells.iter().enumerate()).find_map(|(k, c)| Some((k, c.as_ref()?)));
-            if let Some((k, cell)) = first {
-                let left = super::checks::left_cell(plan, &text, *number, k);
-                let left = left.as_ref().map(|(n, c)| (n.as_str(), c.as_str()));
-                return unnamed_error(source, (*number, first_row + k), cell, left);
-            }
-        }
-        for name in price_columns(plan, columns) {
-            let Ok(cells) = text.column(name).and_then(|c| c.str().cloned()) else {
-                continue;
-            };
-            for (k, cell) in cells.iter().enumerate() {
-                let Some(cell) = cell else { continue };
-                let trimmed = cell.trim();
-                if !trimmed.is_empty() && trimmed.parse::<f64>().is_err() {
-                    let hint = super::cells::number_hint(trimmed, name, columns);
-                    return source.row_error(
-                        first_row + k,
-                        format!("`{name}` = \"{cell}\" is not a number{hint}"),
-                    );
-                }
-            }
-        }
-    }
-    source.file_error(format!(
-        "cannot be read as CSV in the rows from {}: {}",
-        source.place(first_row),
-        crate::error::reader_message(error)
-    ))
 }
 
 /// The error for a repeated (date, security): a second pass finds the lines that hold it.

@@ -17,6 +17,8 @@ mod checks;
 mod csv;
 mod header;
 mod parquet;
+mod plain;
+mod refused;
 mod rows;
 mod runs;
 

@@ -126,7 +126,8 @@ pub fn render(result: &UniverseResult) -> Result<Vec<(String, Vec<u8>)>> {
         tables.push(("rolling", rolling_frame(result)?));
     }
     // Each table's CSV and Parquet are serialised side by side (a frame's clone shares its
-    // columns); the files keep this order.
+    // columns), and beside them the charts, the summary and the receipt; the files keep this
+    // order.
     let jobs: Vec<(String, DataFrame, bool)> = tables
         .into_iter()
         .flat_map(|(stem, frame)| {
@@ -136,27 +137,33 @@ pub fn render(result: &UniverseResult) -> Result<Vec<(String, Vec<u8>)>> {
             ]
         })
         .collect();
-    let tables: Vec<(String, Vec<u8>)> = jobs
-        .into_par_iter()
-        .map(|(name, mut frame, parquet)| {
-            let bytes = match parquet {
-                true => parquet_bytes(&mut frame)?,
-                false => csv_bytes(&mut frame)?,
-            };
-            Ok((name, bytes))
-        })
-        .collect::<Result<_>>()?;
-    files.extend(tables);
-    let charts = chart::draw(result)?;
-    files.push(("summary.md".into(), summary(result, &charts).into_bytes()));
-    files.extend(
-        charts
-            .into_iter()
-            .map(|c| (c.file_name, c.svg.into_bytes())),
-    );
-    let json =
-        serde_json::to_vec_pretty(result).map_err(|e| frame_error(format!("result.json: {e}")))?;
-    files.push(("result.json".into(), json));
+    let tables = || {
+        jobs.into_par_iter()
+            .map(|(name, mut frame, parquet)| {
+                let bytes = match parquet {
+                    true => parquet_bytes(&mut frame)?,
+                    false => csv_bytes(&mut frame)?,
+                };
+                Ok((name, bytes))
+            })
+            .collect::<Result<Vec<(String, Vec<u8>)>>>()
+    };
+    let others = || -> Result<Vec<(String, Vec<u8>)>> {
+        let charts = chart::draw(result)?;
+        let mut files = vec![("summary.md".into(), summary(result, &charts).into_bytes())];
+        files.extend(
+            charts
+                .into_iter()
+                .map(|c| (c.file_name, c.svg.into_bytes())),
+        );
+        let json = serde_json::to_vec_pretty(result)
+            .map_err(|e| frame_error(format!("result.json: {e}")))?;
+        files.push(("result.json".into(), json));
+        Ok(files)
+    };
+    let (tables, others) = rayon::join(tables, others);
+    files.extend(tables?);
+    files.extend(others?);
     Ok(files)
 }
 
