@@ -68,46 +68,54 @@ const EXACT_POWERS: [f64; 23] = [
 // Clinger's fast path gives prices from 10^-22 to 2^53, all within the plausible range.
 const _: () = assert!(PRICE_RANGE.0 <= 1e-22 && PRICE_RANGE.1 >= 9_007_199_254_740_992.0);
 
-/// A price cell as the reader would parse it, when it is plain decimal digits with at most one
-/// point between digits (`89.0677`, `12`) and its value lies within [`PRICE_RANGE`]; `None`
-/// for anything else (a sign, an exponent, white space, a separator, a price out of range),
-/// which the checked path reads or names. Both ways round correctly, as polars' reader does
-/// (fast-float2), so all give the same double: digits that make an integer of at most 2^53
-/// over a power of ten up to 10^22 are one exact division, which IEEE 754 rounds correctly
-/// (Clinger's fast path, W. D. Clinger, "How to read floating point numbers accurately", PLDI
-/// 1990); longer ones go through `str::parse`. On the fast path only a zero is out of range
-/// (the assertion above), so nothing waits on the division.
-fn plain_price(cell: &str) -> Option<f64> {
-    let bytes = cell.as_bytes();
-    let (mut mantissa, mut point) = (0_u64, None);
+/// The price cell at the start of `bytes` as the reader would parse it, and where it ends: its
+/// digits and point are read up to the first other byte, which must then end the field. The
+/// price is `None` unless the cell is plain decimal digits with at most one point between
+/// digits (`89.0677`, `12`) and its value lies within [`PRICE_RANGE`]: anything else (a sign,
+/// an exponent, white space, a separator, a price out of range) is left to the checked path,
+/// which reads or names it. Both ways round correctly, as polars' reader does (fast-float2),
+/// so all give the same double: digits that make an integer of at most 2^53 over a power of
+/// ten up to 10^22 are one exact division, which IEEE 754 rounds correctly (Clinger's fast
+/// path, W. D. Clinger, "How to read floating point numbers accurately", PLDI 1990); longer
+/// ones go through `str::parse`. On the fast path only a zero is out of range (the assertion
+/// above), so nothing waits on the division.
+fn plain_price(bytes: &[u8]) -> (Option<f64>, usize) {
+    let (mut mantissa, mut point, mut end) = (0_u64, None, bytes.len());
     for (i, &b) in bytes.iter().enumerate() {
         match b {
             b'0'..=b'9' => mantissa = mantissa.wrapping_mul(10).wrapping_add(u64::from(b - b'0')),
-            b'.' if point.is_none() && i > 0 => point = Some(i),
-            _ => return None,
+            b'.' if point.is_none() => point = Some(i),
+            _ => {
+                end = i;
+                break;
+            }
         }
     }
-    let (digits, fraction) = match point {
-        None => (bytes.len(), 0),
-        Some(at) if at + 1 == bytes.len() => return None,
-        Some(at) => (bytes.len() - 1, bytes.len() - at - 1),
+    let fraction = match point {
+        None => 0,
+        Some(at) if at == 0 || at + 1 == end => return (None, end),
+        Some(at) => end - at - 1,
     };
+    let digits = end - usize::from(point.is_some());
     if digits == 0 {
-        return None;
+        return (None, end);
     }
-    match digits <= 19 && mantissa <= 1 << 53 && fraction < EXACT_POWERS.len() {
+    let price = match digits <= 19 && mantissa <= 1 << 53 && fraction < EXACT_POWERS.len() {
         // Through i64 (exact: at most 2^53), one conversion instruction where u64 takes four.
         true => (mantissa > 0).then(|| mantissa as i64 as f64 / EXACT_POWERS[fraction]),
         false => {
             let (low, high) = PRICE_RANGE;
-            cell.parse().ok().filter(|p| (low..=high).contains(p))
+            let cell = std::str::from_utf8(&bytes[..end]).ok();
+            cell.and_then(|c| c.parse().ok())
+                .filter(|p| (low..=high).contains(p))
         }
-    }
+    };
+    (price, end)
 }
 
 /// Reads one quote-free piece of whole records (no header); `None` when any record is not
 /// plain (see the module's opening comment).
-pub(super) fn long_piece<'a>(piece: &'a [u8], fields: LongFields) -> Option<LongRows> {
+pub(super) fn long_piece(piece: &[u8], fields: LongFields) -> Option<LongRows> {
     let text = std::str::from_utf8(piece).ok()?;
     if memchr::memchr2(b'\r', b'"', piece).is_some() {
         return None;
@@ -118,43 +126,14 @@ pub(super) fn long_piece<'a>(piece: &'a [u8], fields: LongFields) -> Option<Long
         dates: DateCache::default(),
         local: HashMap::new(),
         previous: None,
-        cells: [""; 3],
     };
     let lines = memchr::memchr_iter(b'\n', piece).count() + 1;
     reader.rows.ids.reserve(lines);
     reader.rows.dates.reserve(lines);
     reader.rows.prices.reserve(lines);
-    // The field ends (commas and line ends) found eight bytes at a time ([`bytes_in`]): a field
-    // is a few bytes, too short for a vectorised search to pay for its setup (`str::split` on
-    // each line took a quarter of this reader's time, a loop over the bytes a sixth).
-    let (mut field, mut start) = (0, 0);
-    let mut ends = |i: usize, reader: &mut PieceReader<'a>| -> Option<()> {
-        reader.cell(field, &text[start..i]);
-        start = i + 1;
-        match piece[i] {
-            b'\n' => (reader.record(field)?, field = 0).1,
-            _ => field += 1,
-        }
-        Some(())
-    };
-    let mut words = piece.chunks_exact(8);
-    for (k, word) in (&mut words).enumerate() {
-        let word = u64::from_le_bytes(word.try_into().ok()?);
-        let mut marks = bytes_in(word, b',') | bytes_in(word, b'\n');
-        while marks != 0 {
-            ends(8 * k + marks.trailing_zeros() as usize / 8, &mut reader)?;
-            marks &= marks - 1;
-        }
-    }
-    let rest = piece.len() - words.remainder().len();
-    for (i, &b) in words.remainder().iter().enumerate() {
-        if b == b',' || b == b'\n' {
-            ends(rest + i, &mut reader)?;
-        }
-    }
-    if start < piece.len() {
-        reader.cell(field, &text[start..]);
-        reader.record(field)?;
+    let mut at = 0;
+    while at < piece.len() {
+        at = reader.record(text, at)?;
     }
     Some(reader.rows)
 }
@@ -168,30 +147,72 @@ struct PieceReader<'a> {
     local: HashMap<&'a str, u32>,
     /// The previous row's id and number (rows grouped by security repeat it).
     previous: Option<(&'a str, u32)>,
-    /// The current record's date, id and price cells.
-    cells: [&'a str; 3],
+}
+
+/// Whether a field ending at `i` ends as it must: a comma after a field before the last, the
+/// line's end (or the piece's) after the last.
+fn ends_field(bytes: &[u8], i: usize, last: bool) -> bool {
+    match bytes.get(i) {
+        Some(b',') => !last,
+        Some(b'\n') | None => last,
+        Some(_) => false,
+    }
+}
+
+/// Where the field starting at `at` ends: the next comma or line end (or the piece's end).
+fn field_end(bytes: &[u8], at: usize) -> usize {
+    memchr::memchr2(b',', b'\n', &bytes[at..]).map_or(bytes.len(), |k| at + k)
 }
 
 impl<'a> PieceReader<'a> {
-    /// Keeps field number `field` of a record when it is one of the three read.
-    fn cell(&mut self, field: usize, cell: &'a str) {
-        let f = self.fields;
-        if field == f.date {
-            self.cells[0] = cell;
-        } else if field == f.security {
-            self.cells[1] = cell;
-        } else if field == f.price {
-            self.cells[2] = cell;
+    /// Reads the record starting at `at`, field by field, each found where it most often ends
+    /// before it is searched for: an ISO date ten bytes on (such a date holds no comma, and any
+    /// other text there fails as a date), the previous row's id again (it was found whole), a
+    /// price where its digits stop (read while they are found). Returns where the next record
+    /// starts; `None` when the record is not plain. One pass over each byte or two: searching
+    /// for every comma first, then reading the cells, cost twice the instructions.
+    fn record(&mut self, text: &'a str, mut at: usize) -> Option<usize> {
+        let (bytes, f) = (text.as_bytes(), self.fields);
+        let (mut date, mut security, mut price) = ("", "", None);
+        for field in 0..f.width {
+            let last = field + 1 == f.width;
+            let end = if field == f.price {
+                let (value, end) = plain_price(&bytes[at..]);
+                price = value;
+                at + end
+            } else if field == f.date && at + 10 <= bytes.len() && ends_field(bytes, at + 10, last)
+            {
+                at + 10
+            } else if field == f.security {
+                match self.previous {
+                    Some((name, _))
+                        if bytes[at..].starts_with(name.as_bytes())
+                            && ends_field(bytes, at + name.len(), last) =>
+                    {
+                        at + name.len()
+                    }
+                    _ => field_end(bytes, at),
+                }
+            } else {
+                field_end(bytes, at)
+            };
+            if !ends_field(bytes, end, last) {
+                return None;
+            }
+            if field == f.date {
+                date = text.get(at..end)?;
+            } else if field == f.security {
+                security = text.get(at..end)?;
+            }
+            at = end + 1;
         }
+        self.push(date, security, price?)?;
+        Some(at)
     }
 
-    /// Ends a record whose last field was number `last` (from 0), its cells kept by
-    /// [`Self::cell`]; `None` when it is not plain.
-    fn record(&mut self, last: usize) -> Option<()> {
-        if last + 1 != self.fields.width {
-            return None;
-        }
-        let [date, security, price] = self.cells;
+    /// Adds one record's row; `None` when its date or id is not one the frame path takes as it
+    /// is.
+    fn push(&mut self, date: &'a str, security: &'a str, price: f64) -> Option<()> {
         let date = match date.len() <= 12 {
             true => (self.dates).date_of_view(date_view_key(date), || date)?,
             false => super::parse_iso_date(date)?,
@@ -215,23 +236,11 @@ impl<'a> PieceReader<'a> {
                 id
             }
         };
-        let price = plain_price(price)?;
         self.rows.ids.push(id);
         self.rows.dates.push(date);
         self.rows.prices.push(price);
         Some(())
     }
-}
-
-/// The high bit of each byte of `word` (little-endian) that equals `byte`, and no other: the
-/// exact zero-byte test of the word XOR the byte repeated (a byte's low seven bits plus 0x7F
-/// carry into its high bit unless all are zero, and no carry crosses into the next byte;
-/// Hacker's Delight, section 6-1, from memory), which the byte after a match cannot fool as the
-/// shorter test's borrow can.
-fn bytes_in(word: u64, byte: u8) -> u64 {
-    const LOW: u64 = 0x7f7f_7f7f_7f7f_7f7f;
-    let x = word ^ (u64::from(byte) * 0x0101_0101_0101_0101);
-    !(((x & LOW) + LOW) | x | LOW)
 }
 
 #[cfg(test)]
@@ -347,24 +356,50 @@ mod tests {
         }
     }
 
-    // Every byte value in every place of a word, against a comparison byte by byte.
+    // A field is looked for where it most often ends (`PieceReader::record`): the same rows
+    // whatever the columns' order, when an id extends the previous one, when a date is not ten
+    // bytes long and when the last record has no line end.
     #[test]
-    fn commas_and_line_ends_are_found_in_every_place_of_a_word() {
-        for byte in [b',', b'\n'] {
-            for place in 0..8 {
-                for value in 0..=255_u8 {
-                    for filler in [0_u8, byte, byte + 1, byte ^ 0x80, 0xff] {
-                        let mut word = [filler; 8];
-                        word[place] = value;
-                        let expected = (word.iter().enumerate())
-                            .filter(|(_, &b)| b == byte)
-                            .fold(0_u64, |m, (i, _)| m | 0x80 << (8 * i));
-                        let found = bytes_in(u64::from_le_bytes(word), byte);
-                        assert_eq!(found, expected, "{word:?}");
-                    }
-                }
-            }
-        }
+    fn fields_are_found_wherever_they_end() {
+        let rows = [
+            ("2024-03-01", "S1", "10.5"),
+            ("2024-03-04", "S1", "10.25"),
+            ("2024-03-04", "S12", "7"),
+            ("2024-03-05", "S12", "7.125"),
+            ("2024-03-05", "S1", "10"),
+            ("2024-03-06 ", "S1", "10.5"),
+            ("2024-03-07T16:30", "S1", "11.5"),
+            ("2024-03-08", "S", "3.5"),
+        ];
+        let first: String = rows
+            .iter()
+            .map(|(d, s, p)| format!("{d},X,{s},{p}\n"))
+            .collect();
+        let read = long_piece(first.as_bytes(), FIELDS).expect("plain");
+        let (dates, ids, prices) = by_polars(&first);
+        let names: Vec<&str> = read
+            .ids
+            .iter()
+            .map(|&i| read.names[i as usize].as_str())
+            .collect();
+        assert_eq!(names, ids);
+        assert_eq!(read.prices, prices);
+        assert_eq!(read.dates[5].to_string(), dates[5].trim());
+        assert_eq!(read.dates[6].to_string(), "2024-03-07");
+        // The price first, the date last, an unread column between, no final line end.
+        let fields = LongFields {
+            date: 3,
+            security: 1,
+            price: 0,
+            width: 4,
+        };
+        let other: Vec<String> = rows
+            .iter()
+            .map(|(d, s, p)| format!("{p},{s},Y,{d}"))
+            .collect();
+        let again = long_piece(other.join("\n").as_bytes(), fields).expect("plain");
+        assert_eq!((again.ids, again.names), (read.ids, read.names));
+        assert_eq!((again.dates, again.prices), (read.dates, read.prices));
     }
 
     // Whatever the checked path must read or name is left to it (module comment).
@@ -393,6 +428,12 @@ mod tests {
             "2024-03-01,X,S1,0\n",
             "2024-03-01,X,S1,1,000\n",
             "2024-03-01,X,S1,0.000\n",
+            "2024-03-01,X,S1,10.5.5\n",
+            "2024-03-01,X,S1,10..5\n",
+            "2024-03-01,X,S1,.\n",
+            "2024-03-01x,X,S1,10.5\n",
+            "2024-03-01,X,S1,10.5\n\n",
+            "2024-03-01,X,S1,10.5é\n",
         ] {
             let piece = format!("{good}{bad}");
             assert!(long_piece(piece.as_bytes(), FIELDS).is_none(), "{bad:?}");
