@@ -9,6 +9,10 @@
 use std::fs;
 use std::path::Path;
 
+use head::receipt_head;
+
+mod head;
+
 /// What the receipt an earlier run left in a folder records of its case: enough to say, when a
 /// new run replaces it, that it was another valuation (a case rolled forward into last
 /// quarter's folder, or another case's run into this one).
@@ -146,35 +150,6 @@ pub fn holds_an_earlier_run(dir: &Path) -> bool {
         return false;
     };
     receipt_head(&bytes).is_some_and(|receipt| receipt["tool"]["name"] == env!("CARGO_PKG_NAME"))
-}
-
-/// The members of a receipt read here, as a JSON object: the others (a universe receipt's
-/// thousands of securities) are skipped unbuilt, which took a serial 15–20 ms off each read of
-/// the benchmark universe's 2 MB receipt. What the skipping reader refuses (a member given
-/// twice, which it will not choose between; a document that is no object) is read whole as
-/// before, so the answer is the same either way.
-fn receipt_head(bytes: &[u8]) -> Option<serde_json::Value> {
-    #[derive(serde::Deserialize, serde::Serialize)]
-    struct Head {
-        #[serde(default)]
-        tool: serde_json::Value,
-        #[serde(default)]
-        kind: serde_json::Value,
-        #[serde(default)]
-        case: serde_json::Value,
-        #[serde(default)]
-        universe: serde_json::Value,
-        #[serde(default)]
-        files: serde_json::Value,
-        #[serde(default)]
-        wacc: serde_json::Value,
-        #[serde(default)]
-        peers: serde_json::Value,
-    }
-    match serde_json::from_slice::<Head>(bytes) {
-        Ok(head) => serde_json::to_value(head).ok(),
-        Err(_) => serde_json::from_slice(bytes).ok(),
-    }
 }
 
 /// Whether `dir` holds a `result.json` that is no hurdle receipt (another tool's file, or one
