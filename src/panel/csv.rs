@@ -62,8 +62,8 @@ pub(super) fn read(
     hook: Option<SecurityHook<'_>>,
 ) -> Result<(Rows, String)> {
     std::thread::scope(|scope| {
-        let (frames, frames_in) = sync_channel::<(Parsed, usize)>(1);
-        let mut frames_in = Some(frames_in);
+        let (parsed, parsed_in) = sync_channel::<(Parsed, usize)>(1);
+        let mut parsed_in = Some(parsed_in);
         let mut pusher = None;
         let mut plan: Option<Plan> = None;
         let mut next_row = 0;
@@ -80,16 +80,16 @@ pub(super) fn read(
                 let made = plan_for(source, columns, header(source, block)?, &mut rows)?;
                 let line: usize = made.header.iter().map(|n| n.len() + 1).sum();
                 block_bytes.store(BLOCK_BYTES.max(BLOCK_ROWS * line), Ordering::Relaxed);
-                let (receiver, wide) = (frames_in.take().expect("once"), made.wide.clone());
+                let (receiver, wide) = (parsed_in.take().expect("once"), made.wide.clone());
                 pusher = Some(source.spawn(scope, move || {
-                    push_frames(rows, receiver, &wide, source, columns, hook)
+                    push_blocks(rows, receiver, &wide, source, columns, hook)
                 })?);
                 plan = Some(made);
             }
             let plan = plan.as_ref().expect("set by the first block");
             if let Some(pieces) = plain_block(block, first, quoted, plan) {
                 let height = pieces.iter().map(LongRows::len).sum::<usize>();
-                frames
+                parsed
                     .send((Parsed::Plain(pieces), next_row))
                     .map_err(|_| source.file_error("stopped".into()))?;
                 next_row += height;
@@ -110,13 +110,13 @@ pub(super) fn read(
                 check_records(source, block, (first, next_row), &plan.header)?;
             }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
-            frames
+            parsed
                 .send((Parsed::Frame(frame), next_row))
                 .map_err(|_| source.file_error("stopped".into()))?;
             next_row += height;
             Ok(())
         });
-        drop(frames);
+        drop(parsed);
         let pushed = pusher.map(|p| p.join().expect("the row pusher does not panic"));
         match (scanned, pushed) {
             // The pusher's error concerns rows before any block the parser refused.
@@ -127,22 +127,22 @@ pub(super) fn read(
     })
 }
 
-/// A block as parsed: by polars' reader, or by [`plain::long_piece`] in pieces.
+/// A block as parsed: by polars' reader, or by [`super::plain::long_piece`] in pieces.
 enum Parsed {
     Frame(DataFrame),
     Plain(Vec<LongRows>),
 }
 
 /// The pusher stage: moves each parsed block into `rows`, in file order.
-fn push_frames(
+fn push_blocks(
     mut rows: Rows,
-    frames: Receiver<(Parsed, usize)>,
+    blocks: Receiver<(Parsed, usize)>,
     wide: &[(String, u32)],
     source: &Source,
     columns: &PanelColumns,
     hook: Option<SecurityHook<'_>>,
 ) -> Result<Rows> {
-    for (parsed, first_row) in frames {
+    for (parsed, first_row) in blocks {
         match parsed {
             Parsed::Frame(frame) => {
                 push_frame(&mut rows, &frame, wide, first_row, source, columns)?
@@ -296,11 +296,11 @@ fn shortened(names: &[String]) -> String {
 /// Parses one block with the plan's schema. A block without a double quote (`quoted` false)
 /// cannot have a quoted field, so polars is told there is no quote character: its splitter then
 /// skips the quote tracking (about 15% of the parse on the benchmark), and every cell reads the
-/// same. Such a block after the header goes through [`parse_plain`]; anything it does not take
+/// same. Such a block after the header goes through [`parse_unquoted`]; anything it does not take
 /// (and the header's block, and quoted blocks) through polars' CSV reader.
 fn parse(block: &[u8], plan: &Plan, has_header: bool, quoted: bool) -> PolarsResult<DataFrame> {
     if !has_header && !quoted {
-        if let Some(frame) = parse_plain(block, plan) {
+        if let Some(frame) = parse_unquoted(block, plan) {
             return Ok(frame);
         }
     }
@@ -315,7 +315,7 @@ fn parse(block: &[u8], plan: &Plan, has_header: bool, quoted: bool) -> PolarsRes
 /// into 32 chunks (a wide panel's 5,000 column builders each). `None` (the reader then parses
 /// the block, and reports what it refuses) when a piece is not UTF-8, does not parse, or parses
 /// to another number of rows than it has lines (an empty line, a short record).
-fn parse_plain(block: &[u8], plan: &Plan) -> Option<DataFrame> {
+fn parse_unquoted(block: &[u8], plan: &Plan) -> Option<DataFrame> {
     let parse_options = CsvParseOptions::default().with_quote_char(None);
     let piece = |bytes: &[u8]| -> Option<DataFrame> {
         if !_csv_read_internal::validate_utf8(bytes) {
@@ -375,7 +375,7 @@ fn on_cores<T: Send>(block: &[u8], read: impl Fn(&[u8]) -> Option<T> + Sync) -> 
     })
 }
 
-/// A quote-free block of a long panel without unnamed columns read by [`plain::long_piece`]
+/// A quote-free block of a long panel without unnamed columns read by [`super::plain::long_piece`]
 /// on the cores (the first block without its header line); `None` when a piece is not plain,
 /// and the block then goes through [`parse_or_trimmed`] and the checked path as before.
 fn plain_block(block: &[u8], has_header: bool, quoted: bool, plan: &Plan) -> Option<Vec<LongRows>> {
@@ -573,13 +573,14 @@ mod tests {
             "2026-01-02,A,\n2026-01-05,,2\n",
             many.as_str(),
         ] {
-            let direct = parse_plain(block.as_bytes(), &plan).expect("taken by the direct parse");
+            let direct =
+                parse_unquoted(block.as_bytes(), &plan).expect("taken by the direct parse");
             let reader = read_block(block.as_bytes(), &plan, false, false).unwrap();
             assert!(direct.equals_missing(&reader), "{block:?}");
         }
         // Odd blocks (an empty line, a short record, a long one, text for a price, bytes that
         // are not UTF-8, which the direct parse declines): the same answer as the reader's.
-        assert!(parse_plain(b"2026-01-02,\xff,1\n", &plan).is_none());
+        assert!(parse_unquoted(b"2026-01-02,\xff,1\n", &plan).is_none());
         for block in [
             &b"2026-01-02,A,1.5\n\n2026-01-05,B,2\n"[..],
             b"2026-01-02,A\n2026-01-05,B,2\n",

@@ -155,6 +155,7 @@ impl Rows {
     /// Rows of one id after a row of that id ([`Self::push_id_and_date`] with `id` again for
     /// each date, in a few passes over the run instead of one call a row).
     pub fn extend_same_id(&mut self, id: u32, dates: &[NaiveDate]) {
+        debug_assert!(matches!(self.order.last, Some((last, _)) if last == id));
         let (Some(&last), Some((_, previous))) = (dates.last(), self.order.last) else {
             return;
         };
