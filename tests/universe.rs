@@ -3412,9 +3412,9 @@ fn a_peer_set_across_industries_names_the_tie_and_its_share() {
 // A panel whose writer quotes every id and header name and starts with a UTF-8 byte-order
 // mark is the same panel (RFC 4180: quotes at a field's start delimit it; the mark is no
 // character of the first name): byte-identical tables to the plain file's (found by review:
-// the mark before a quoted first name was refused as a quote inside a field). The plain file
-// goes through hurdle's reader of plain blocks, the quoted one through polars' CSV reader, so
-// this also checks the first against the second (polars as the reference).
+// the mark before a quoted first name was refused as a quote inside a field). The plain file's
+// blocks go to polars' chunk parser without quote tracking, the quoted one's through polars'
+// CSV reader with it.
 #[test]
 fn a_panel_with_every_id_quoted_and_a_byte_order_mark_reads_the_same() {
     let setup = Setup::new();

@@ -238,7 +238,7 @@ fn push_chunk(
 /// `str::trim` (the checked path's, the attributes' and a wide header's) sees it (any Unicode
 /// white space, a no-break space too), read by a spreadsheet as a formula, more than one line,
 /// or holding a character no one would see or a file cannot hold.
-pub(super) fn id_needs_checking(security: &str) -> bool {
+fn id_needs_checking(security: &str) -> bool {
     let padded = |c: Option<char>| c.is_none_or(char::is_whitespace);
     let (first, last) = (security.chars().next(), security.chars().next_back());
     let formula = matches!(first, Some('=' | '+' | '@' | '-'));
@@ -249,27 +249,6 @@ pub(super) fn id_needs_checking(security: &str) -> bool {
         || security
             .chars()
             .any(crate::io::sanity::unseen_or_unwritable)
-}
-
-/// The 16-byte key [`DateCache::date_of_view`] takes for a text of at most 12 bytes (a longer
-/// one has no inline view: the caller parses it instead), laid out as polars lays out an
-/// inline string view: the length, then the bytes, zero-padded.
-pub(super) fn date_view_key(text: &str) -> u128 {
-    debug_assert!(text.len() <= 12, "no inline view for {} bytes", text.len());
-    // Built from whole words: a copy of a text of varying length into an array, read back at
-    // once, stalled the store buffer (a fifth of the plain reader's samples in a profile,
-    // though no clock could tell the two apart).
-    let bytes = text.as_bytes();
-    if let Some((head, tail)) = bytes.split_first_chunk::<8>() {
-        if let Ok(&tail) = <&[u8; 2]>::try_from(tail) {
-            let (head, tail) = (u64::from_le_bytes(*head), u16::from_le_bytes(tail));
-            return 10 | u128::from(head) << 32 | u128::from(tail) << 96;
-        }
-    }
-    let bytes = bytes.iter().enumerate();
-    bytes.fold(text.len() as u128, |key, (i, &b)| {
-        key | u128::from(b) << (32 + 8 * i)
-    })
 }
 
 /// The longest string polars keeps inside its 16-byte view.

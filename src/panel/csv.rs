@@ -1,12 +1,11 @@
-//! CSV panels, read block by block: a long panel's plain blocks by [`super::plain`], every
-//! other block through polars' CSV reader.
+//! CSV panels, read block by block through polars' CSV reader.
 //!
 //! The file is read in blocks of whole records (a few megabytes each, cut at a line end outside
-//! quotes). A plain block of a long panel is read straight into rows; any other is parsed by
-//! polars with a fixed schema: dates and ids as text, prices as doubles. Three stages overlap —
-//! one thread reads and hashes the bytes ([`super::blocks`]), a block is parsed on the cores,
-//! another thread moves the parsed rows into the panel's columns — so memory holds a few blocks
-//! beside the prices already kept. When polars refuses a block, it is read again as text
+//! quotes) and each block is parsed by polars with a fixed schema: dates and ids as text, prices
+//! as doubles. Three stages overlap — one thread reads and hashes the bytes
+//! ([`super::blocks`]), polars parses a block on the cores, another thread moves the parsed
+//! cells into the panel's columns — so memory holds a few blocks beside the prices already
+//! kept. When polars refuses a block, it is read again as text
 //! ([`super::refused`]) to find the cell and line to name; a duplicate row is located by a
 //! second pass over the file, so the fast path carries no row numbers.
 
@@ -24,7 +23,6 @@ use super::checks::{
     unnamed_columns,
 };
 use super::header::{check_repeated_names, header};
-use super::plain::{LongFields, LongRows};
 use super::refused::{diagnose, trimmed_prices};
 use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
@@ -49,9 +47,6 @@ pub(super) struct Plan {
     /// The columns the header leaves unnamed, by number (from 1) and schema name; read only to
     /// check that they hold nothing (a long panel's as text).
     pub(super) unnamed: Vec<(usize, String)>,
-    /// A long panel's read fields, for [`plain_block`]; `None` for a wide panel, and for a
-    /// long one with unnamed columns (which polars' reader reads to check them).
-    long: Option<LongFields>,
 }
 
 /// Reads a CSV panel into rows; returns them with the SHA-256 of the file's bytes. Securities
@@ -62,7 +57,7 @@ pub(super) fn read(
     hook: Option<SecurityHook<'_>>,
 ) -> Result<(Rows, String)> {
     std::thread::scope(|scope| {
-        let (parsed, parsed_in) = sync_channel::<(Parsed, usize)>(1);
+        let (parsed, parsed_in) = sync_channel::<(DataFrame, usize)>(1);
         let mut parsed_in = Some(parsed_in);
         let mut pusher = None;
         let mut plan: Option<Plan> = None;
@@ -87,14 +82,6 @@ pub(super) fn read(
                 plan = Some(made);
             }
             let plan = plan.as_ref().expect("set by the first block");
-            if let Some(pieces) = plain_block(block, first, quoted, plan) {
-                let height = pieces.iter().map(LongRows::len).sum::<usize>();
-                parsed
-                    .send((Parsed::Plain(pieces), next_row))
-                    .map_err(|_| source.file_error("stopped".into()))?;
-                next_row += height;
-                return Ok(());
-            }
             let frame = parse_or_trimmed(block, plan, first, quoted)
                 .map_err(|e| diagnose(source, block, first, next_row, plan, columns, &e))?;
             check_unnamed(source, plan, &frame, next_row)?;
@@ -111,7 +98,7 @@ pub(super) fn read(
             }
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             parsed
-                .send((Parsed::Frame(frame), next_row))
+                .send((frame, next_row))
                 .map_err(|_| source.file_error("stopped".into()))?;
             next_row += height;
             Ok(())
@@ -127,28 +114,17 @@ pub(super) fn read(
     })
 }
 
-/// A block as parsed: by polars' reader, or by [`super::plain::long_piece`] in pieces.
-enum Parsed {
-    Frame(DataFrame),
-    Plain(Vec<LongRows>),
-}
-
 /// The pusher stage: moves each parsed block into `rows`, in file order.
 fn push_blocks(
     mut rows: Rows,
-    blocks: Receiver<(Parsed, usize)>,
+    blocks: Receiver<(DataFrame, usize)>,
     wide: &[(String, u32)],
     source: &Source,
     columns: &PanelColumns,
     hook: Option<SecurityHook<'_>>,
 ) -> Result<Rows> {
-    for (parsed, first_row) in blocks {
-        match parsed {
-            Parsed::Frame(frame) => {
-                push_frame(&mut rows, &frame, wide, first_row, source, columns)?
-            }
-            Parsed::Plain(pieces) => pieces.iter().for_each(|piece| piece.push_into(&mut rows)),
-        }
+    for (frame, first_row) in blocks {
+        push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
         rows.hand_out(hook);
     }
     Ok(rows)
@@ -211,7 +187,6 @@ fn plan_for(
     check_repeated_names(source, &header, &read)?;
     let date = position(&columns.date_column, "panel.date_column")?;
     let mut dtypes = vec![DataType::String; header.len()];
-    let mut long = None;
     let (projection, wide) = match columns.layout {
         PanelLayout::Long => {
             let security = position(&columns.security_column, "panel.security_column")?;
@@ -226,12 +201,6 @@ fn plan_for(
                     .map(|(number, _)| number - 1),
             );
             projection.sort_unstable();
-            long = unnamed_columns(&header).is_empty().then_some(LongFields {
-                date,
-                security,
-                price,
-                width: header.len(),
-            });
             (projection, Vec::new())
         }
         PanelLayout::Wide => wide_plan(source, columns, (&header, date), (&mut dtypes, rows))?,
@@ -248,7 +217,6 @@ fn plan_for(
         projection: Arc::new(projection),
         wide,
         unnamed,
-        long,
     })
 }
 
@@ -373,21 +341,6 @@ fn on_cores<T: Send>(block: &[u8], read: impl Fn(&[u8]) -> Option<T> + Sync) -> 
         });
         std::iter::once(first).chain(rest).collect()
     })
-}
-
-/// A quote-free block of a long panel without unnamed columns read by [`super::plain::long_piece`]
-/// on the cores (the first block without its header line); `None` when a piece is not plain,
-/// and the block then goes through [`parse_or_trimmed`] and the checked path as before.
-fn plain_block(block: &[u8], has_header: bool, quoted: bool, plan: &Plan) -> Option<Vec<LongRows>> {
-    let fields = plan.long.filter(|_| !quoted)?;
-    let body = match has_header {
-        true => &block[memchr::memchr(b'\n', block)? + 1..],
-        false => block,
-    };
-    match body.is_empty() {
-        true => None,
-        false => on_cores(body, |piece| super::plain::long_piece(piece, fields)),
-    }
 }
 
 /// [`parse`], or when polars refuses the block, [`trimmed_prices`]; polars' error otherwise.

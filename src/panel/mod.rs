@@ -17,7 +17,6 @@ mod checks;
 mod csv;
 mod header;
 mod parquet;
-mod plain;
 mod refused;
 mod rows;
 mod runs;

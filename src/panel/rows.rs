@@ -152,20 +152,6 @@ impl Rows {
         self.dates.push(date);
     }
 
-    /// Rows of one id after a row of that id ([`Self::push_id_and_date`] with `id` again for
-    /// each date, in a few passes over the run instead of one call a row).
-    pub fn extend_same_id(&mut self, id: u32, dates: &[NaiveDate]) {
-        debug_assert!(matches!(self.order.last, Some((last, _)) if last == id));
-        let (Some(&last), Some((_, previous))) = (dates.last(), self.order.last) else {
-            return;
-        };
-        let order = &mut self.order;
-        order.ascending &= dates[0] > previous && dates.windows(2).all(|w| w[1] > w[0]);
-        order.last = Some((id, last));
-        self.ids.extend(std::iter::repeat_n(id, dates.len()));
-        self.dates.extend_from_slice(dates);
-    }
-
     /// Groups the rows by security id in byte order with a counting sort (O(rows)), then sorts
     /// each security's rows by date where the file did not already. A date repeated within a
     /// security is returned as the first [`Duplicate`].
