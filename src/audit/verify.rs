@@ -20,6 +20,7 @@ mod locate;
 mod mismatch;
 mod notes;
 mod universe;
+mod versions;
 
 use std::path::{Path, PathBuf};
 
@@ -30,13 +31,14 @@ use crate::case::read_case;
 use crate::error::{Error, Result};
 use crate::valuation::load_inputs;
 use checks::{check_file_entries, check_kind, check_schema, recorded_overrides, refused_since};
+pub use compare::numbers_agree;
 pub(super) use compare::{compare, Comparison};
-pub use compare::{keys_added_after, numbers_agree, version as version_numbers};
 use files::file_checks;
 pub(crate) use files::roles_in_words;
 pub use files::{by_file, FileCheck, FileGroup};
 use locate::{locate_case, RecordedFile};
 pub use mismatch::{shown, Absent, Mismatch};
+pub use versions::{keys_added_after, version as version_numbers};
 
 /// Relative tolerance for numbers. Reruns on one build are bit-identical; 1e-12 leaves room for
 /// another platform's `powf` and `ln` (used in the risk-free conversion), which may differ in

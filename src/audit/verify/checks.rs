@@ -29,7 +29,7 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
         }
         check_tool_version(recorded)?;
         let written = recorded["tool"]["version"].as_str().unwrap_or_default();
-        if let Some((key, added)) = super::compare::key_after_version(recorded, written) {
+        if let Some((key, added)) = super::versions::key_after_version(recorded, written) {
             return Err(format!(
                 "tool.version = \"{written}\", but the receipt holds `{key}`, which hurdle first \
                  wrote in {added}: its version was edited; restore it or verify the receipt the \
@@ -66,7 +66,7 @@ pub(super) fn check_kind(recorded: &Value) -> std::result::Result<(), String> {
 fn check_tool_version(recorded: &Value) -> std::result::Result<(), String> {
     let written = &recorded["tool"]["version"];
     let well_formed = (written.as_str())
-        .and_then(super::compare::version)
+        .and_then(super::versions::version)
         .is_some_and(|parts| parts.len() == 3);
     match written.is_null() || well_formed {
         true => Ok(()),

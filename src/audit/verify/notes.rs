@@ -4,7 +4,7 @@
 
 use serde_json::Value;
 
-use super::{compare, Mismatch, Verification};
+use super::{versions, Mismatch, Verification};
 
 impl Verification {
     /// The figures this version adds, in words (empty when there are none): not in the
@@ -17,7 +17,7 @@ impl Verification {
         // review: a list cut after eight entries hid the additions that mattered).
         let mut groups: Vec<(String, usize)> = Vec::new();
         for entry in &self.added_by_this_version {
-            let key = compare::without_positions(entry.split(" (").next().unwrap_or(entry));
+            let key = versions::without_positions(entry.split(" (").next().unwrap_or(entry));
             match groups.iter_mut().find(|(k, _)| *k == key) {
                 Some((_, n)) => *n += 1,
                 None => groups.push((key, 1)),
@@ -61,8 +61,8 @@ impl Verification {
                 "written by a version of hurdle the receipt does not name, verified with {current}"
             );
         }
-        let newer = compare::version(recorded)
-            .zip(compare::version(current))
+        let newer = versions::version(recorded)
+            .zip(versions::version(current))
             .is_some_and(|(r, c)| r > c);
         match newer {
             true => format!(
@@ -501,18 +501,18 @@ pub(super) fn known_changes(
     differences: &[&Mismatch],
     (receipt, rerun): (&Value, &Value),
 ) -> Vec<String> {
-    let (was, now) = (compare::version(recorded), compare::version(current));
+    let (was, now) = (versions::version(recorded), versions::version(current));
     (KNOWN_CHANGES.iter())
         .filter(|change| change.kind == kind)
         .filter(|change| {
-            let made = compare::version(change.version);
+            let made = versions::version(change.version);
             was.is_some() && was < made && made <= now
         })
         .filter(|change| {
             // Paths with their list positions left out (`peers[].flags`), so a change can name
             // a figure of every entry.
             (differences.iter()).any(|m| {
-                let path = compare::without_positions(&m.path);
+                let path = versions::without_positions(&m.path);
                 change.paths.iter().any(|p| path.starts_with(p))
             })
         })
