@@ -236,3 +236,22 @@ pub(super) fn without_positions(path: &str) -> String {
     }
     out
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn positions_are_left_out_of_paths() {
+        assert_eq!(
+            without_positions("industries[12].excluded.zero_returns"),
+            "industries[].excluded.zero_returns"
+        );
+        assert_eq!(version("0.10.2"), Some(vec![0, 10, 2]));
+        assert_eq!(version("0.3"), Some(vec![0, 3]));
+        // A pre-release or build suffix is read by its numbers, as the shape check accepts it.
+        assert_eq!(version("0.3.0-dev"), Some(vec![0, 3, 0]));
+        assert_eq!(version("0.18.0+local"), Some(vec![0, 18, 0]));
+        assert!(version("").is_none() && version("banana").is_none());
+    }
+}
