@@ -97,6 +97,11 @@ impl Progress {
         }
     }
 
+    /// Describes the work anew (e.g. with a count the bar's own total does not hold).
+    pub fn relabel(&self, label: String) {
+        self.bar.set_message(label);
+    }
+
     /// Counts one step; `Err(Interrupted)` when a stop has been requested.
     pub fn step(&mut self) -> Result<()> {
         self.advance(1)

@@ -2520,6 +2520,25 @@ fn exclusion_counts_follow_the_listed_flags() {
         stale_total > 0,
         "no security was flagged stale: the test checks nothing"
     );
+    // Two flags are joined by a semicolon, which the file quotes as a case's CSV does (a
+    // spreadsheet reading `;`-separated files would split the row there; RFC 4180 quotes any
+    // character): every semicolon of securities.csv lies inside quotes.
+    let text = fs::read_to_string(out.join("securities.csv")).unwrap();
+    let (mut inside, mut quoted) = (false, 0);
+    for c in text.chars() {
+        match c {
+            '"' => inside = !inside,
+            ';' => {
+                assert!(inside, "a bare semicolon in securities.csv");
+                quoted += 1;
+            }
+            _ => {}
+        }
+    }
+    assert!(
+        quoted > 0,
+        "no security with two flags: the check checks nothing"
+    );
     // The summary says so: the flagged count by flag, and the industries resting mostly on
     // flagged securities.
     let summary = fs::read_to_string(out.join("summary.md")).unwrap();

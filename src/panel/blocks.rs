@@ -15,10 +15,11 @@ use crate::error::{Error, Result};
 
 /// Calls `each(block, is_first, has_quote)` on consecutive blocks of whole records, read (and
 /// hashed) by a second thread while `each` works, and returns the SHA-256 of every byte read.
-/// `has_quote` is false only when the block holds no double quote.
+/// `has_quote` is false only when the block holds no double quote. The progress bar shows the
+/// bytes read and, when given, how many securities the caller has `finished`.
 pub(super) fn scan_blocks(
     source: &Source,
-    block_bytes: &AtomicUsize,
+    (block_bytes, finished): (&AtomicUsize, Option<&AtomicUsize>),
     mut each: impl FnMut(&[u8], bool, bool) -> Result<()>,
 ) -> Result<String> {
     std::thread::scope(|scope| {
@@ -37,6 +38,9 @@ pub(super) fn scan_blocks(
             .to_string_lossy();
         let mut progress = crate::progress::Progress::of_bytes(&format!("reading {name}"), total);
         for (block, quoted) in blocks_in.iter() {
+            if let Some(finished) = finished {
+                progress.relabel(super::reading_label(&name, finished));
+            }
             // A stop request (Ctrl-C) ends the reading between two blocks.
             outcome =
                 (progress.advance(block.len() as u64)).and_then(|()| each(&block, first, quoted));

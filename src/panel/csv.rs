@@ -63,7 +63,8 @@ pub(super) fn read(
         let mut plan: Option<Plan> = None;
         let mut next_row = 0;
         let block_bytes = AtomicUsize::new(BLOCK_BYTES);
-        let scanned = scan_blocks(source, &block_bytes, |block, first, quoted| {
+        let finished = hook.map(|h| h.finished);
+        let scanned = scan_blocks(source, (&block_bytes, finished), |block, first, quoted| {
             if first {
                 let mut rows = Rows::default();
                 rows.runs.watching = hook.is_some() && columns.layout == PanelLayout::Long;
@@ -448,7 +449,7 @@ fn find_rows(
     let mut plan: Option<Plan> = None;
     scan_blocks(
         source,
-        &AtomicUsize::new(BLOCK_BYTES),
+        (&AtomicUsize::new(BLOCK_BYTES), None),
         |block, first, quoted| {
             if first {
                 plan = Some(plan_for(

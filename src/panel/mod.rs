@@ -402,6 +402,16 @@ pub(crate) fn duplicate_message(
     }
 }
 
+/// The reading bar's label while securities are handed out: the file and how many of them the
+/// caller has finished so far (their total is known only once the file is read).
+fn reading_label(file: &str, finished: &std::sync::atomic::AtomicUsize) -> String {
+    match finished.load(std::sync::atomic::Ordering::Relaxed) {
+        0 => format!("reading {file}"),
+        1 => format!("reading {file} (1 security estimated)"),
+        n => format!("reading {file} ({n} securities estimated)"),
+    }
+}
+
 /// Lower-case hexadecimal of a digest.
 pub(crate) fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()

@@ -68,6 +68,9 @@ pub(super) fn read(
         })?;
         // A closed channel means the pusher stopped at a bad row; its error is returned below.
         let decoded = for_each_slice(source, &names, |frame, first_row| {
+            if let Some(hook) = hook {
+                progress.relabel(super::reading_label(&name, hook.finished));
+            }
             progress.advance(frame.height() as u64)?;
             frames
                 .send((frame, first_row))

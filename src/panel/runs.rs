@@ -11,13 +11,25 @@
 //! The same runs count each security's rows when the panel is grouped ([`count_rows`]).
 
 use std::ops::Range;
+use std::sync::atomic::AtomicUsize;
 
 use crate::io::series::SeriesView;
 
-/// Called, while the file is read, with the securities whose rows a block completed: each id
-/// with all its rows, ascending in date. It runs on the thread that moves the cells, so it
-/// should hand heavy work on (one batch per block keeps such hand-offs few).
-pub type SecurityHook<'a> = &'a (dyn Fn(&[(&str, SeriesView<'_>)]) + Sync);
+/// What takes a batch of complete securities.
+pub type TakeSecurities<'a> = &'a (dyn Fn(&[(&str, SeriesView<'_>)]) + Sync);
+
+/// Where securities go while the file is read.
+#[derive(Clone, Copy)]
+pub struct SecurityHook<'a> {
+    /// Called with the securities whose rows a block completed: each id with all its rows,
+    /// ascending in date. It runs on the thread that moves the cells, so it should hand heavy
+    /// work on (one batch per block keeps such hand-offs few).
+    pub take: TakeSecurities<'a>,
+    /// How many of them the caller has finished with (estimated, in a universe): the reading's
+    /// progress bar shows it beside the bytes or rows read, since the number of securities in
+    /// a long file is only known once it has been read.
+    pub finished: &'a AtomicUsize,
+}
 
 /// The runs of one security's rows that ended while the file was grouped and rising, not yet
 /// handed out.
@@ -70,7 +82,7 @@ impl Runs {
                 (names[*id as usize].as_str(), series)
             })
             .collect();
-        hook(&batch);
+        (hook.take)(&batch);
         self.finished.clear();
     }
 }
@@ -141,6 +153,11 @@ mod tests {
                 handed.push((security.to_string(), series.values.to_vec()));
             }
         };
+        let finished = std::sync::atomic::AtomicUsize::new(0);
+        let hook = SecurityHook {
+            take: &hook,
+            finished: &finished,
+        };
         let mut rows = Rows::default();
         rows.runs.watching = true;
         for (k, &(security, day)) in order.iter().enumerate() {
@@ -148,7 +165,7 @@ mod tests {
             let date = NaiveDate::from_ymd_opt(2026, 1, day).unwrap();
             rows.push(id, date, k as f64 + 1.0);
             // Hand-outs after every row, as after every block.
-            rows.hand_out(Some(&hook));
+            rows.hand_out(Some(hook));
         }
         let grouped = rows.group().unwrap();
         (handed.into_inner().unwrap(), grouped.whole_runs)

@@ -184,6 +184,51 @@ pub(crate) fn field(text: &str) -> String {
     }
 }
 
+/// CSV text another writer made (polars', which quotes a field only for a comma, a quote or a
+/// line break) with [`field`]'s rule added: each unquoted field that holds a semicolon is put
+/// in quotes, so a table of the universe reads as a case's CSV does (found by review: the
+/// flags `too_few_observations;low_r_squared` were left bare in `securities.csv`). A field the
+/// writer left unquoted holds no quote, so none needs doubling; quoted fields, numbers and
+/// line ends are copied as they are.
+pub(crate) fn quote_semicolons(text: Vec<u8>) -> Vec<u8> {
+    if !text.contains(&b';') {
+        return text;
+    }
+    let mut out = Vec::with_capacity(text.len() + 256);
+    let mut at = 0;
+    while at < text.len() {
+        // `at` starts a field: a quoted one runs to its closing quote (a doubled quote inside
+        // it opens and closes again), a bare one to the next comma or line end.
+        let end = match text[at] {
+            b'"' => {
+                let mut end = at + 1;
+                while let Some(p) = memchr::memchr(b'"', &text[end..]) {
+                    end += p + 1;
+                    if text.get(end) != Some(&b'"') {
+                        break;
+                    }
+                    end += 1;
+                }
+                end.min(text.len())
+            }
+            _ => memchr::memchr3(b',', b'\n', b'\r', &text[at..]).map_or(text.len(), |p| at + p),
+        };
+        let cell = &text[at..end];
+        match cell.first() != Some(&b'"') && cell.contains(&b';') {
+            true => {
+                out.push(b'"');
+                out.extend_from_slice(cell);
+                out.push(b'"');
+            }
+            false => out.extend_from_slice(cell),
+        }
+        // The comma or line end after the field.
+        out.extend_from_slice(&text[end..(end + 1).min(text.len())]);
+        at = end + 1;
+    }
+    out
+}
+
 /// A sensitivity grid as CSV: the row key's values down the first column, the column key's
 /// values across the header; a cell the valuation refuses is empty (its reason is in
 /// result.json's `sensitivity.refused`, or printed by `hurdle grid`).
@@ -256,8 +301,9 @@ pub fn bridge_csv(bridge: &crate::audit::bridge::Bridge) -> Vec<u8> {
 
 #[cfg(test)]
 mod tests {
-    use super::field;
+    use super::{field, quote_semicolons};
     use crate::report::format::Full;
+    use polars::prelude::*;
 
     // RFC 4180, section 2: fields with commas or quotes are quoted, quotes doubled.
     #[test]
@@ -270,6 +316,56 @@ mod tests {
             field("too_few_observations;low_r_squared"),
             "\"too_few_observations;low_r_squared\""
         );
+    }
+
+    // polars' own CSV writer and reader as the reference: a table polars wrote, with the
+    // semicolons quoted, reads back through polars to the same cells, and each text field is
+    // written as `field` writes it (quoted for a semicolon, a comma, a quote or a line break).
+    #[test]
+    fn semicolons_are_quoted_in_a_table_polars_wrote() {
+        let texts = [
+            "plain",
+            "too_few_observations;low_r_squared",
+            "A, B; C",
+            "say \"x\"; then",
+            "line\nbreak;",
+            ";",
+            "",
+        ];
+        let mut frame = df!(
+            "security" => texts,
+            "beta" => [1.25, -0.5, 3e-14, 0.0, 2.0, 7.0, 1.0],
+            "flags" => texts.iter().rev().copied().collect::<Vec<_>>(),
+        )
+        .unwrap();
+        let mut written = Vec::new();
+        CsvWriter::new(&mut written).finish(&mut frame).unwrap();
+        let quoted = quote_semicolons(written.clone());
+        let read = CsvReadOptions::default()
+            .with_has_header(true)
+            .into_reader_with_file_handle(std::io::Cursor::new(quoted.clone()))
+            .finish()
+            .unwrap();
+        for name in ["security", "flags"] {
+            let cells: Vec<String> = (read.column(name).unwrap().str().unwrap())
+                .iter()
+                .map(|c| c.unwrap_or("").to_string())
+                .collect();
+            let original: Vec<String> = (frame.column(name).unwrap().str().unwrap())
+                .iter()
+                .map(|c| c.unwrap_or("").to_string())
+                .collect();
+            assert_eq!(cells, original, "{name}");
+        }
+        assert_eq!(read.column("beta").unwrap(), frame.column("beta").unwrap());
+        let text = String::from_utf8(quoted).unwrap();
+        for t in texts.iter().filter(|t| t.contains(';')) {
+            assert!(text.contains(&field(t)), "{t} in {text}");
+        }
+        // Nothing else moves: without the semicolons, the text is polars' own.
+        let strip = |b: &[u8]| -> Vec<u8> { b.iter().copied().filter(|&c| c != b'"').collect() };
+        assert_eq!(strip(text.as_bytes()), strip(&written));
+        assert_eq!(quote_semicolons(b"a,b\n1,2\n".to_vec()), b"a,b\n1,2\n");
     }
 
     // Each form reads back to the same double (Rust's own parser, which follows IEEE 754

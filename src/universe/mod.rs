@@ -18,6 +18,7 @@ pub mod settings;
 
 pub use notes::first_ids;
 
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Mutex;
 
 use chrono::NaiveDate;
@@ -30,7 +31,7 @@ use crate::beta::{self, vasicek, AdjustedBeta, Adjustment};
 use crate::error::{Error, Result};
 use crate::io::series::{iso_date, read_series_file, DataFile, SeriesView, ValueKind};
 use crate::panel::attributes::{read_attributes, Attributes, AttributesFile};
-use crate::panel::{read_panel_handing_out, Panel, PanelFile};
+use crate::panel::{read_panel_handing_out, Panel, PanelFile, SecurityHook};
 use estimate::{
     EarlyEstimate, EarlyEstimates, Estimation, NotEstimated, SecurityEstimate, WindowRecord,
 };
@@ -176,12 +177,13 @@ fn read_panel_estimating(
     estimation: &Estimation,
 ) -> Result<(Panel, Vec<EarlyEstimate>)> {
     let found = Mutex::new(Vec::new());
+    let finished = AtomicUsize::new(0);
     // A file grouped by security hands each security over as soon as its rows are complete:
     // they are estimated on rayon's threads, one task per block, while polars parses the later
     // rows.
     let panel = rayon::in_place_scope(|scope| {
-        let found = &found;
-        let hook = move |batch: &[(&str, SeriesView<'_>)]| {
+        let (found, finished) = (&found, &finished);
+        let take = move |batch: &[(&str, SeriesView<'_>)]| {
             let owned: Vec<(String, Vec<NaiveDate>, Vec<f64>)> = batch
                 .iter()
                 .map(|(security, series)| {
@@ -200,6 +202,7 @@ fn read_panel_estimating(
                         (security, prices.len(), estimation.security(series))
                     })
                     .collect();
+                finished.fetch_add(estimated.len(), Ordering::Relaxed);
                 let mut found = found.lock().unwrap_or_else(|e| e.into_inner());
                 found.extend(estimated);
             });
@@ -208,7 +211,10 @@ fn read_panel_estimating(
             &universe.settings.panel.prices,
             &universe.resolve(&universe.settings.panel.prices),
             &universe.settings.panel.columns(),
-            Some(&hook),
+            Some(SecurityHook {
+                take: &take,
+                finished,
+            }),
         )
     })?;
     Ok((panel, found.into_inner().unwrap_or_else(|e| e.into_inner())))

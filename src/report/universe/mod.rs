@@ -179,7 +179,7 @@ fn csv_bytes(frame: &mut DataFrame) -> Result<Vec<u8>> {
     CsvWriter::new(&mut bytes)
         .finish(frame)
         .map_err(|e| frame_error(format!("cannot write a CSV table: {e}")))?;
-    Ok(bytes)
+    Ok(crate::report::csv::quote_semicolons(bytes))
 }
 
 /// A table as Parquet, its date columns (`first_price_date`, `last_price_date`, `window_end`:
