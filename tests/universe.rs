@@ -665,6 +665,25 @@ fn blank_text_columns_repeated_unread_names_and_spaced_labels() {
     );
 }
 
+// An industry label holding a comma is quoted where a note lists industries, as an id is
+// (found by review: `Alpha, Inc-like (1), Gamma (2)` read as three industries).
+#[test]
+fn a_label_with_a_comma_is_quoted_in_the_notes() {
+    let setup = Setup::new();
+    let renamed = edit_attributes(&setup.dir(), "industry", |cells, at| {
+        (cells[at("security")] == "S02").then(|| "\"Alpha, Inc-like\"".to_string())
+    });
+    assert_eq!(renamed, 1, "S02 in the attributes");
+    let output = setup.universe("out", &[]);
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    assert!(output.status.success(), "{stdout}");
+    assert!(
+        stdout.contains("on fewer than 3 securities estimated and aggregated")
+            && stdout.contains("“Alpha, Inc-like” (1)"),
+        "{stdout}"
+    );
+}
+
 /// Runs the universe twice, with `first` and `second` overrides, and asserts that their
 /// securities and industry tables are byte-identical.
 fn assert_same_runs(setup: &Setup, first: &[&str], second: &[&str], why: &str) {
@@ -1460,6 +1479,53 @@ fn a_non_positive_price_is_refused() {
         &[],
         &["prices-long.csv, line 5", "-1.5", "must be positive"],
     );
+}
+
+// A price beyond a double's range is quoted as the file writes it, not as the infinity or zero
+// polars reads it as (found by review: `1e400` was reported as `inf`), in a long file and in
+// a wide one (IEEE 754 binary64: the largest finite double is about 1.8e308, the least
+// subnormal about 4.9e-324).
+#[test]
+fn a_price_beyond_a_double_is_quoted_as_written() {
+    for (text, rule) in [
+        ("1e400", "must be a finite number"),
+        ("1e-400", "must be positive"),
+    ] {
+        refused(
+            |dir| {
+                let cells = panel_line(dir, 5);
+                let line = format!("{},{},{text}", cells[0], cells[1]);
+                replace_line(&dir.join("prices-long.csv"), 5, &line);
+            },
+            &[],
+            &[
+                "prices-long.csv, line 5",
+                &format!(" = {text}: a price {rule}"),
+            ],
+        );
+        refused(
+            |dir| {
+                let path = dir.join("prices-wide.csv");
+                let wide = fs::read_to_string(&path).unwrap();
+                let cells: Vec<String> = wide
+                    .lines()
+                    .nth(6)
+                    .unwrap()
+                    .split(',')
+                    .map(String::from)
+                    .collect();
+                let at = cells.iter().skip(1).position(|c| !c.is_empty()).unwrap() + 1;
+                let mut edited = cells.clone();
+                edited[at] = text.to_string();
+                replace_line(&path, 7, &edited.join(","));
+            },
+            &["panel.prices=prices-wide.csv", "panel.layout=wide"],
+            &[
+                "prices-wide.csv, line 7",
+                &format!(" = {text}: a price {rule}"),
+            ],
+        );
+    }
 }
 
 #[test]

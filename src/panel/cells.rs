@@ -115,13 +115,35 @@ pub(crate) fn block_dates(
     Ok(out)
 }
 
+/// A price cell that breaks the price rule, as a CSV file writes it: polars reads `1e400` as
+/// infinity and `1e-400` as zero, which a message must not quote in their place (found by
+/// review). A Parquet file's doubles have no text; their messages quote the double.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct WrittenPrice {
+    /// The price column (a wide panel's security column).
+    pub column: String,
+    /// The row within its block.
+    pub row: usize,
+    pub text: String,
+}
+
+/// The first row of a block in its file, with the bad price cells of the block as written.
+pub(crate) type BlockStart<'a> = (usize, &'a [WrittenPrice]);
+
+/// How `column`'s price in row `k` of a block is written, when the block's text was kept for it.
+fn written<'a>(cells: &'a [WrittenPrice], column: &str, k: usize) -> Option<&'a str> {
+    (cells.iter())
+        .find(|w| w.row == k && w.column == column)
+        .map(|w| w.text.as_str())
+}
+
 /// Adds a long block's rows: every row needs a date, a security id and a positive price.
 pub(crate) fn push_long(
     rows: &mut Rows,
     dates: &DateCells<'_>,
     securities: &StringChunked,
     prices: &Float64Chunked,
-    first_row: usize,
+    start: BlockStart<'_>,
     source: &Source,
     columns: &PanelColumns,
 ) -> Result<()> {
@@ -146,7 +168,7 @@ pub(crate) fn push_long(
     }
     // Rows pushed twice could end a run twice: no more hand-outs.
     rows.runs.stop();
-    push_long_checked(rows, dates, securities, prices, first_row, source, columns)
+    push_long_checked(rows, dates, securities, prices, start, source, columns)
 }
 
 /// Pushes a block's rows; `false` at the first bad date, bad price or id that is empty, padded
@@ -324,7 +346,7 @@ fn push_long_checked(
     dates: &DateCells<'_>,
     securities: &StringChunked,
     prices: &Float64Chunked,
-    first_row: usize,
+    (first_row, written_prices): BlockStart<'_>,
     source: &Source,
     columns: &PanelColumns,
 ) -> Result<()> {
@@ -353,7 +375,8 @@ fn push_long_checked(
                 ),
             )
         })?;
-        check_price(price, || {
+        let as_written = written(written_prices, price_column, k);
+        check_price((price, as_written), || {
             format!("`{price_column}` for {security} on {date}")
         })
         .map_err(|message| source.row_error(first_row + k, message))?;
@@ -369,13 +392,14 @@ pub(crate) fn push_wide(
     rows: &mut Rows,
     dates: &[NaiveDate],
     securities: &[(u32, &Float64Chunked, &str)],
-    first_row: usize,
+    (first_row, written_prices): BlockStart<'_>,
     source: &Source,
 ) -> Result<()> {
     for &(id, cells, name) in securities {
         for (k, cell) in cells.iter().enumerate() {
             if let Some(price) = cell {
-                check_price(price, || format!("`{name}` on {}", dates[k]))
+                let as_written = written(written_prices, name, k);
+                check_price((price, as_written), || format!("`{name}` on {}", dates[k]))
                     .map_err(|message| source.row_error(first_row + k, message))?;
                 rows.push(id, dates[k], price);
             }

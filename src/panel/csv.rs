@@ -17,13 +17,13 @@ use std::sync::Arc;
 use polars::prelude::*;
 
 use super::blocks::{line_count, scan_blocks, split_at_line_ends};
-use super::cells::{block_dates, push_long, push_wide, DateCells};
+use super::cells::{block_dates, push_long, push_wide, BlockStart, DateCells, WrittenPrice};
 use super::checks::{
     check_records, check_unnamed, check_wide_fields, has_empty_cells, spaced_quote, unnamed,
     unnamed_columns,
 };
 use super::header::{check_repeated_names, header};
-use super::refused::{diagnose, trimmed_prices};
+use super::refused::{diagnose, trimmed_prices, written_prices};
 use super::{
     layout_hint, wide_ids, Duplicate, PanelColumns, PanelLayout, Rows, SecurityHook, Source,
 };
@@ -57,7 +57,7 @@ pub(super) fn read(
     hook: Option<SecurityHook<'_>>,
 ) -> Result<(Rows, String)> {
     std::thread::scope(|scope| {
-        let (parsed, parsed_in) = sync_channel::<(DataFrame, usize)>(1);
+        let (parsed, parsed_in) = sync_channel::<Parsed>(1);
         let mut parsed_in = Some(parsed_in);
         let mut pusher = None;
         let mut plan: Option<Plan> = None;
@@ -97,9 +97,10 @@ pub(super) fn read(
                 // this rare path only.
                 check_records(source, block, (first, next_row), &plan.header)?;
             }
+            let written = written_prices(block, first, plan, columns, &frame);
             // A closed channel means the pusher stopped at a bad row; its error is returned below.
             parsed
-                .send((frame, next_row))
+                .send((frame, next_row, written))
                 .map_err(|_| source.file_error("stopped".into()))?;
             next_row += height;
             Ok(())
@@ -115,17 +116,27 @@ pub(super) fn read(
     })
 }
 
+/// A parsed block, its first row, and its bad price cells as written.
+type Parsed = (DataFrame, usize, Vec<WrittenPrice>);
+
 /// The pusher stage: moves each parsed block into `rows`, in file order.
 fn push_blocks(
     mut rows: Rows,
-    blocks: Receiver<(DataFrame, usize)>,
+    blocks: Receiver<Parsed>,
     wide: &[(String, u32)],
     source: &Source,
     columns: &PanelColumns,
     hook: Option<SecurityHook<'_>>,
 ) -> Result<Rows> {
-    for (frame, first_row) in blocks {
-        push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
+    for (frame, first_row, written) in blocks {
+        push_frame(
+            &mut rows,
+            &frame,
+            wide,
+            (first_row, &written),
+            source,
+            columns,
+        )?;
         rows.hand_out(hook);
     }
     Ok(rows)
@@ -380,7 +391,7 @@ fn push_frame(
     rows: &mut Rows,
     frame: &DataFrame,
     wide: &[(String, u32)],
-    first_row: usize,
+    start: BlockStart<'_>,
     source: &Source,
     columns: &PanelColumns,
 ) -> Result<()> {
@@ -397,17 +408,17 @@ fn push_frame(
             &dates,
             column(&columns.security_column)?.str().map_err(typed)?,
             column(&columns.price_column)?.f64().map_err(typed)?,
-            first_row,
+            start,
             source,
             columns,
         ),
         PanelLayout::Wide => {
-            let dates = block_dates(&dates, first_row, source, &columns.date_column)?;
+            let dates = block_dates(&dates, start.0, source, &columns.date_column)?;
             let securities = wide
                 .iter()
                 .map(|(name, id)| Ok((*id, column(name)?.f64().map_err(typed)?, name.as_str())))
                 .collect::<Result<Vec<_>>>()?;
-            push_wide(rows, &dates, &securities, first_row, source)
+            push_wide(rows, &dates, &securities, start, source)
         }
     }
 }

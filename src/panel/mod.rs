@@ -499,19 +499,25 @@ pub(crate) fn wide_ids<'a>(
 }
 
 /// A price must be a finite positive number; `what` names the column (and the security) and
-/// is only called for a bad price.
+/// is only called for a bad price, which the message quotes as written when its text is given
+/// (a CSV cell), else as read (a Parquet double).
 pub(crate) fn check_price(
-    price: f64,
+    (price, written): (f64, Option<&str>),
     what: impl FnOnce() -> String,
 ) -> std::result::Result<(), String> {
     match ValueKind::Price.broken_rule(price) {
         Some(rule) => Err(format!(
             "{} = {}: {rule}",
             what(),
-            crate::error::compact(price)
+            written.map_or_else(|| crate::error::compact(price), str::to_string)
         )),
         None => Ok(()),
     }
+}
+
+/// Whether a price read breaks the price rule (see [`check_price`]).
+pub(crate) fn bad_price(price: f64) -> bool {
+    ValueKind::Price.broken_rule(price).is_some()
 }
 
 /// What a header with `names` looks like, for a message about a layout that does not fit:

@@ -131,7 +131,7 @@ fn push_frame(
                 &dates,
                 security.str().expect("cast to text"),
                 price.f64().expect("cast to doubles"),
-                first_row,
+                (first_row, &[]),
                 source,
                 columns,
             )
@@ -150,7 +150,7 @@ fn push_frame(
                 .zip(&prices)
                 .map(|((name, id), c)| (*id, c.f64().expect("cast"), name.as_str()))
                 .collect();
-            push_wide(rows, &dates, &securities, first_row, source)
+            push_wide(rows, &dates, &securities, (first_row, &[]), source)
         }
     }
 }

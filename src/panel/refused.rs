@@ -7,6 +7,7 @@ use std::sync::Arc;
 
 use polars::prelude::*;
 
+use super::cells::WrittenPrice;
 use super::checks::unnamed_error;
 use super::csv::{schema_names, Plan};
 use super::{PanelColumns, PanelLayout, Source};
@@ -61,6 +62,54 @@ pub(super) fn trimmed_prices(block: &[u8], plan: &Plan, has_header: bool) -> Opt
             .ok()?;
     }
     Some(frame)
+}
+
+/// The price cells of a parsed block that break the price rule, each column's first, as the
+/// file writes them: the block is read again as text only when there is one (rare: the run then
+/// stops at the first), so that the message quotes `1e400` rather than the infinity polars read.
+pub(super) fn written_prices(
+    block: &[u8],
+    has_header: bool,
+    plan: &Plan,
+    columns: &PanelColumns,
+    frame: &DataFrame,
+) -> Vec<WrittenPrice> {
+    let first_bad = |name: &str| -> Option<usize> {
+        let prices = frame.column(name).ok()?.f64().ok()?;
+        let mut offset = 0;
+        for chunk in prices.downcast_iter() {
+            let values = chunk.values().as_slice();
+            let found = match chunk.validity() {
+                None => values.iter().position(|&p| super::bad_price(p)),
+                Some(valid) => (values.iter().zip(valid.iter()))
+                    .position(|(&p, valid)| valid && super::bad_price(p)),
+            };
+            if let Some(k) = found {
+                return Some(offset + k);
+            }
+            offset += values.len();
+        }
+        None
+    };
+    let bad: Vec<(&str, usize)> = (price_columns(plan, columns).into_iter())
+        .filter_map(|name| Some((name, first_bad(name)?)))
+        .collect();
+    if bad.is_empty() {
+        return Vec::new();
+    }
+    let Ok(text) = read_as_text(block, plan, has_header) else {
+        return Vec::new();
+    };
+    (bad.into_iter())
+        .filter_map(|(name, row)| {
+            let cell = text.column(name).ok()?.str().ok()?.get(row)?;
+            Some(WrittenPrice {
+                column: name.to_string(),
+                row,
+                text: cell.trim().to_string(),
+            })
+        })
+        .collect()
 }
 
 /// Names the cell polars could not parse: the block is read again as text and the first price

@@ -229,16 +229,25 @@ fn industry_notes(industries: &[IndustryResult], operations: bool) -> Vec<String
     };
     let few: Vec<String> = (industries.iter())
         .filter(|i| i.estimated > 0 && i.estimated < FEW_SECURITIES)
-        .map(|i| format!("{} ({})", i.industry, i.estimated))
+        .map(|i| format!("{} ({})", shown_id(&i.industry), i.estimated))
         .collect();
     let mostly: Vec<String> = (industries.iter())
         .filter(|i| i.estimated > 0 && 2 * i.flagged_total > i.estimated)
-        .map(|i| format!("{} ({} of {})", i.industry, i.flagged_total, i.estimated))
+        .map(|i| {
+            let industry = shown_id(&i.industry);
+            format!("{industry} ({} of {})", i.flagged_total, i.estimated)
+        })
         .collect();
     let mut notes = Vec::new();
     let none: Vec<String> = (industries.iter())
         .filter(|i| i.estimated == 0)
-        .map(|i| format!("{} ({})", i.industry, securities_count(i.securities)))
+        .map(|i| {
+            format!(
+                "{} ({})",
+                shown_id(&i.industry),
+                securities_count(i.securities)
+            )
+        })
         .collect();
     if !none.is_empty() {
         notes.push(format!(
@@ -303,7 +312,10 @@ fn few_unlevered_note(
     };
     let few_unlevered: Vec<String> = (industries.iter())
         .filter(|i| i.estimated >= FEW_SECURITIES && unlevered_count(i) < FEW_SECURITIES)
-        .map(|i| format!("{} ({} of {})", i.industry, unlevered_count(i), i.estimated))
+        .map(|i| {
+            let industry = shown_id(&i.industry);
+            format!("{industry} ({} of {})", unlevered_count(i), i.estimated)
+        })
         .collect();
     if few_unlevered.is_empty() {
         return None;

@@ -24,8 +24,9 @@ pub fn first_ids(ids: &[&str]) -> String {
     first_of(&shown)
 }
 
-/// An id as a note shows it: between typographic quotes when it holds a comma or a quote, which
-/// would blur a list; the id itself as written, with no escapes (found by review: `Q"1,x`
+/// An id (or an industry label) as a note shows it: between typographic quotes when it holds a
+/// comma or a quote, which would blur a list (found by review: `Alpha, Inc-like (1), Gamma (2)`
+/// read as three industries); the id itself as written, with no escapes (found by review: `Q"1,x`
 /// showed as `"Q\"1,x"`), except white space other than a plain space, shown by its code point
 /// (`KX<U+00A0>203`), so that two ids that print alike can be told apart (found by review).
 pub fn shown_id(id: &str) -> String {
