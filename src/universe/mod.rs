@@ -184,12 +184,8 @@ fn read_panel_estimating(
     let panel = rayon::in_place_scope(|scope| {
         let (found, finished) = (&found, &finished);
         let take = move |batch: &[(&str, SeriesView<'_>)]| {
-            let owned: Vec<(String, Vec<NaiveDate>, Vec<f64>)> = batch
-                .iter()
-                .map(|(security, series)| {
-                    let (dates, prices) = (series.dates.to_vec(), series.values.to_vec());
-                    (security.to_string(), dates, prices)
-                })
+            let owned: Vec<(String, Vec<NaiveDate>, Vec<f64>)> = (batch.iter())
+                .map(|(id, s)| (id.to_string(), s.dates.to_vec(), s.values.to_vec()))
                 .collect();
             scope.spawn(move |_| {
                 let estimated: Vec<_> = owned
