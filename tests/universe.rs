@@ -409,6 +409,19 @@ fn long_wide_csv_and_parquet_give_identical_outputs() {
     assert!(frame.column("security").unwrap().dtype().is_categorical());
     let categorical = fs::File::create(setup.dir().join("prices-categorical.parquet")).unwrap();
     ParquetWriter::new(categorical).finish(&mut frame).unwrap();
+    // And with its dates as categories too (ISO text stored by code): read as their text (found
+    // by review: refused).
+    frame
+        .apply("date", |c| {
+            let text = c.cast(&DataType::String).unwrap();
+            text.cast(&categories).unwrap()
+        })
+        .unwrap();
+    assert!(frame.column("date").unwrap().dtype().is_categorical());
+    let path = setup.dir().join("prices-categorical-dates.parquet");
+    ParquetWriter::new(fs::File::create(path).unwrap())
+        .finish(&mut frame)
+        .unwrap();
     // The wide CSV once more with a space after each comma of its header (`date, S01, S02`):
     // the ids are those of the long file, read without surrounding spaces as its ids are.
     let wide = fs::read_to_string(setup.dir().join("prices-wide.csv")).unwrap();
@@ -427,9 +440,10 @@ fn long_wide_csv_and_parquet_give_identical_outputs() {
         .unwrap();
     let indexed = fs::File::create(setup.dir().join("prices-wide-indexed.parquet")).unwrap();
     ParquetWriter::new(indexed).finish(&mut frame).unwrap();
-    let forms: [&[&str]; 7] = [
+    let forms: [&[&str]; 8] = [
         &[],
         &["panel.prices=prices-long.parquet"],
+        &["panel.prices=prices-categorical-dates.parquet"],
         &["panel.prices=prices-wide.csv", "panel.layout=wide"],
         &["panel.prices=prices-wide.parquet", "panel.layout=wide"],
         &["panel.prices=prices-categorical.parquet"],
@@ -663,6 +677,60 @@ fn blank_text_columns_repeated_unread_names_and_spaced_labels() {
             && stdout.contains("\"Industry  A\" and \"Industry A\""),
         "{stdout}"
     );
+}
+
+// A wide Parquet panel's column without a name is no security, as in a CSV panel (found by
+// review: its prices were read as a security whose id was empty): empty, it is skipped (the
+// tables equal those without it); holding a price, it is refused naming the column and the
+// row; first, before the dates, it is a row index and skipped.
+#[test]
+fn a_wide_parquet_column_without_a_name_is_no_security() {
+    let setup = Setup::new();
+    let path = setup.dir().join("prices-wide.parquet");
+    let frame = ParquetReader::new(fs::File::open(&path).unwrap())
+        .finish()
+        .unwrap();
+    let height = frame.height();
+    let with = |name: &str, column: Column, first: bool| {
+        let mut columns: Vec<Column> = frame.columns().to_vec();
+        match first {
+            true => columns.insert(0, column),
+            false => columns.push(column),
+        }
+        let mut edited = DataFrame::new(height, columns).unwrap();
+        write_parquet(&setup.dir().join(name), &mut edited);
+    };
+    with(
+        "empty.parquet",
+        Column::full_null("".into(), height, &DataType::Float64),
+        false,
+    );
+    let prices: Vec<f64> = (0..height).map(|k| 50.0 + k as f64).collect();
+    with(
+        "priced.parquet",
+        Column::new(" ".into(), prices.clone()),
+        false,
+    );
+    with("index.parquet", Column::new("".into(), prices), true);
+    let wide = ["panel.prices=prices-wide.parquet", "panel.layout=wide"];
+    for name in ["empty.parquet", "index.parquet"] {
+        let set = format!("panel.prices={name}");
+        assert_same_runs(&setup, &[set.as_str(), "panel.layout=wide"], &wide, name);
+    }
+    let output = setup.universe(
+        "priced",
+        &["panel.prices=priced.parquet", "panel.layout=wide"],
+    );
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    let column = frame.width() + 1;
+    assert!(
+        stderr.contains(&format!(
+            "priced.parquet: row 1: column {column} has no name but holds \"50\""
+        )),
+        "{stderr}"
+    );
+    assert!(!setup.out("priced").exists());
 }
 
 // An industry label holding a comma is quoted where a note lists industries, as an id is

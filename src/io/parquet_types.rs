@@ -5,7 +5,7 @@
 //! Database exports often store amounts as decimals, so each Parquet reader checks the columns
 //! it is about to decode against the file's schema first and names the column and its type.
 
-use polars::prelude::{ArrowDataType, ArrowSchema};
+use polars::prelude::{ArrowDataType, ArrowSchema, DataType};
 
 /// The first of `names` whose Parquet type hurdle does not read, as a message naming it and
 /// saying what to store instead; names not in `schema` are left to the caller.
@@ -18,9 +18,26 @@ pub fn unreadable_column<'a>(
         let kind = unreadable_kind(&field.dtype)?;
         Some(format!(
             "column `{name}` is stored as {kind}, which hurdle does not read from Parquet; store \
-             text as strings, numbers as 32- or 64-bit floats or integers, and dates as dates"
+             text as strings, numbers as 32- or 64-bit floats or integers, and dates as 32-bit \
+             dates (days since 1970) or as text YYYY-MM-DD"
         ))
     })
+}
+
+/// A column's type in words, for a message saying what a column holds instead of what it
+/// should (found by review: polars' own names, `cat`, `f64`, `bool`, read as jargon).
+pub fn type_in_words(dtype: &DataType) -> String {
+    match dtype {
+        DataType::String => "text".into(),
+        DataType::Boolean => "true/false values".into(),
+        DataType::Float32 | DataType::Float64 => "numbers with a fraction (floats)".into(),
+        d if d.is_integer() => "whole numbers (integers)".into(),
+        d if d.is_categorical() || d.is_enum() => "categories (text stored by code)".into(),
+        DataType::Date => "dates".into(),
+        DataType::Datetime(_, _) => "date-times".into(),
+        DataType::Null => "nothing (every cell empty)".into(),
+        other => format!("values of type {other}"),
+    }
 }
 
 /// How a type hurdle does not read is described, or `None` for a type it reads.
@@ -56,7 +73,7 @@ fn unreadable_kind(dtype: &ArrowDataType) -> Option<String> {
         T::Int16 | T::UInt16 => "a 16-bit integer".to_string(),
         T::Int128 | T::UInt128 => "a 128-bit integer".to_string(),
         T::Float16 => "a 16-bit float".to_string(),
-        T::Date64 => "a 64-bit date".to_string(),
+        T::Date64 => "a 64-bit date (milliseconds since 1970)".to_string(),
         // Its calendar date depends on the zone's rules (a close stamped at local midnight in
         // Tokyo falls on the previous day in UTC), which hurdle's polars build does not carry:
         // taking the UTC date would shift such a series by a day without a word.
@@ -200,7 +217,8 @@ mod tests {
             Some(
                 "column `market_cap` is stored as a decimal (precision 20, scale 4), which \
                  hurdle does not read from Parquet; store text as strings, numbers as 32- or \
-                 64-bit floats or integers, and dates as dates"
+                 64-bit floats or integers, and dates as 32-bit dates (days since 1970) or as \
+                 text YYYY-MM-DD"
                     .to_string()
             )
         );

@@ -437,8 +437,9 @@ fn text_cells(source: &Source, column: &Column) -> Result<Vec<Option<String>>> {
     if !super::parquet::is_text_like(column.dtype()) && !column.dtype().is_null() {
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not text labels: store it as text (ids may also be \
-             integers) when writing the Parquet file",
-            column.dtype()
+             integers; a column of whole-number codes with an empty cell is often written as \
+             floats: write it as text or integers) when writing the Parquet file",
+            crate::io::parquet_types::type_in_words(column.dtype())
         )));
     }
     let cast = column
@@ -555,8 +556,9 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
         }
     } else {
         return Err(source.file_error(format!(
-            "column `{name}` holds {}, not numbers",
-            column.dtype()
+            "column `{name}` holds {}, not numbers: store the figures as numbers when writing \
+             the Parquet file",
+            crate::io::parquet_types::type_in_words(column.dtype())
         )));
     };
     values
@@ -569,7 +571,9 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
                     source.row_error(k, format!("`{name}` = {shown} {why}"))
                 })?;
             }
-            Ok(value)
+            // `-0` is zero: written signed, it would reach the tables and the receipt as -0.0
+            // (found by review).
+            Ok(value.map(|v| if v == 0.0 { 0.0 } else { v }))
         })
         .collect()
 }
@@ -606,6 +610,23 @@ mod tests {
                 None,
                 "{texts:?}"
             );
+        }
+    }
+
+    // IEEE 754: -0 compares equal to 0 but prints as -0; an attribute written `-0` (as text, or
+    // as a double) is read as 0, so the tables and the receipt show no signed zero.
+    #[test]
+    fn a_signed_zero_is_read_as_zero() {
+        let source = Source {
+            file: "attributes.csv".into(),
+            format: crate::panel::TableFormat::Csv,
+        };
+        let text = Column::new("debt".into(), ["-0", "5", ""]);
+        let doubles = Column::new("debt".into(), [Some(-0.0), Some(5.0), None]);
+        for column in [text, doubles] {
+            let read = numbers(&source, &column, Rule::NonNegative).unwrap();
+            assert_eq!(read, vec![Some(0.0), Some(5.0), None]);
+            assert!(read[0].unwrap().is_sign_positive(), "{:?}", column.dtype());
         }
     }
 

@@ -47,20 +47,33 @@ pub(super) fn read(
         .unwrap_or_default()
         .to_string_lossy();
     let mut progress = crate::progress::Progress::of_rows(&format!("reading {name}"), total as u64);
+    // A column without a name is no security: the first is a row index, as in a CSV panel;
+    // any other must hold nothing (found by review: its prices were read as a security whose
+    // id was empty).
+    let unnamed: Vec<(usize, String)> = match columns.layout {
+        PanelLayout::Long => Vec::new(),
+        PanelLayout::Wide => (names.iter().enumerate())
+            .filter(|(i, n)| *i > 0 && super::checks::unnamed(n))
+            .map(|(i, n)| (i + 1, n.clone()))
+            .collect(),
+    };
     let wide: Vec<(String, u32)> = match columns.layout {
         PanelLayout::Long => Vec::new(),
         PanelLayout::Wide => {
             let named = names.iter().enumerate();
-            let named = named.filter(|(_, n)| **n != columns.date_column && !is_row_index(n));
+            let named = named.filter(|(_, n)| {
+                **n != columns.date_column && !is_row_index(n) && !super::checks::unnamed(n)
+            });
             wide_ids(named, &mut rows.dictionary).map_err(|message| source.file_error(message))?
         }
     };
     std::thread::scope(|scope| {
         let hasher = source.spawn(scope, || hash_file(source))?;
         let (frames, frames_in) = sync_channel::<(DataFrame, usize)>(1);
-        let wide = &wide;
+        let (wide, unnamed) = (&wide, &unnamed);
         let pusher = source.spawn(scope, move || {
             for (frame, first_row) in frames_in {
+                check_unnamed(source, &frame, unnamed, first_row)?;
                 push_frame(&mut rows, &frame, wide, first_row, source, columns)?;
                 rows.hand_out(hook);
             }
@@ -97,6 +110,42 @@ fn is_row_index(name: &str) -> bool {
         .strip_prefix("__index_level_")
         .and_then(|r| r.strip_suffix("__"));
     level.is_some_and(|d| !d.is_empty() && d.bytes().all(|b| b.is_ascii_digit()))
+}
+
+/// A value in a wide panel's column without a name (`unnamed`: each column's number from 1
+/// and name) is an error naming its row and column: it would be read by no one.
+fn check_unnamed(
+    source: &Source,
+    frame: &DataFrame,
+    unnamed: &[(usize, String)],
+    first_row: usize,
+) -> Result<()> {
+    for (number, name) in unnamed {
+        let Ok(column) = frame.column(name) else {
+            continue;
+        };
+        // Doubles and text as a CSV cell would show them; any other type as polars writes it.
+        let cells = match column.dtype() {
+            DataType::Float64 | DataType::String => super::checks::cell_texts(column),
+            _ => super::checks::cell_texts(
+                &(column.cast(&DataType::String))
+                    .map_err(|e| source.file_error(format!("column {number}: {e}")))?,
+            ),
+        };
+        if let Some((k, value)) =
+            (cells.iter().enumerate()).find_map(|(k, v)| Some((k, v.as_ref()?)))
+        {
+            return Err(source.row_error(
+                first_row + k,
+                format!(
+                    "column {number} has no name but holds \"{value}\": a value in a column \
+                     without a name is read by no one; name the column after its security, or \
+                     drop it"
+                ),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// Moves one decoded slice into `rows`.
@@ -276,6 +325,11 @@ fn date_column(source: &Source, frame: &DataFrame, name: &str, first_row: usize)
         .map_err(|e| source.file_error(e.to_string()))?;
     match column.dtype() {
         DataType::Date | DataType::String => Ok(column.clone()),
+        // Dates written as categories (text stored by code): read as their text (found by
+        // review: refused).
+        d if d.is_categorical() || d.is_enum() => column
+            .cast(&DataType::String)
+            .map_err(|e| source.file_error(format!("column `{name}`: {e}"))),
         DataType::Datetime(_, _) => {
             let dates = crate::io::parquet_types::calendar_dates(column)
                 .map_err(|e| source.file_error(format!("column `{name}`: {e}")))?;
@@ -295,7 +349,8 @@ fn date_column(source: &Source, frame: &DataFrame, name: &str, first_row: usize)
                 .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
         }
         other => Err(source.file_error(format!(
-            "column `{name}` holds {other}, not dates (a date, or text YYYY-MM-DD)"
+            "column `{name}` holds {}, not dates: store it as dates or as text YYYY-MM-DD",
+            crate::io::parquet_types::type_in_words(other)
         ))),
     }
 }
@@ -369,11 +424,18 @@ fn typed(
             DataType::String => {
                 ": store the ids as text (or integers) when writing the Parquet file"
             }
+            _ if hint.is_empty() => match layout {
+                PanelLayout::Wide => {
+                    ": a wide panel holds only the date column and one column of prices per \
+                     security; drop this column when writing the Parquet file"
+                }
+                PanelLayout::Long => ": store the prices as numbers when writing the Parquet file",
+            },
             _ => hint,
         };
         return Err(source.file_error(format!(
             "column `{name}` holds {}, not {}{hint}",
-            column.dtype(),
+            crate::io::parquet_types::type_in_words(column.dtype()),
             if dtype == &DataType::String {
                 "security ids"
             } else {
