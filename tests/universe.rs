@@ -3674,6 +3674,10 @@ fn summaries_name_the_exclusions_inputs_and_heavy_cash() {
         "industries from its column `industry`",
         "Leaving out securities with a low R² selects on the beta itself",
         "Blume's adjustment pulls each levered beta toward 1 before it is unlevered",
+        // The chart's ring under an adjustment is the adjusted betas' median, not the table's
+        // raw Median β (found by review: the sentence called both "the median levered β").
+        "the median of its estimated securities' Blume-adjusted levered betas (ring; the \
+         table's Median β is of the raw estimates)",
         "1 security holds cash of more than half its equity plus debt",
         // S11 trades on 8% of days: fewer returns than beta.min_observations = 40.
         "and so no estimate (too_few_observations): S11",

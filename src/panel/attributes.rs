@@ -571,9 +571,8 @@ fn numbers(source: &Source, column: &Column, rule: Rule) -> Result<Vec<Option<f6
                     source.row_error(k, format!("`{name}` = {shown} {why}"))
                 })?;
             }
-            // `-0` is zero: written signed, it would reach the tables and the receipt as -0.0
-            // (found by review).
-            Ok(value.map(|v| if v == 0.0 { 0.0 } else { v }))
+            // `-0` + 0 is 0 (IEEE 754), any other figure itself: no -0.0 in the outputs (review).
+            Ok(value.map(|v| v + 0.0))
         })
         .collect()
 }

@@ -412,36 +412,7 @@ fn typed(
         }
     }
     if !fits {
-        let hint = match layout {
-            _ if dtype != &DataType::Float64 || !column.dtype().is_string() => "",
-            PanelLayout::Wide => {
-                " (a wide panel holds only prices beside the date column; if this file has one \
-                 row per date and security, set panel.layout = \"long\")"
-            }
-            PanelLayout::Long => " (a Parquet panel stores its prices as numbers, not as text)",
-        };
-        let hint = match dtype {
-            DataType::String => {
-                ": store the ids as text (or integers) when writing the Parquet file"
-            }
-            _ if hint.is_empty() => match layout {
-                PanelLayout::Wide => {
-                    ": a wide panel holds only the date column and one column of prices per \
-                     security; drop this column when writing the Parquet file"
-                }
-                PanelLayout::Long => ": store the prices as numbers when writing the Parquet file",
-            },
-            _ => hint,
-        };
-        return Err(source.file_error(format!(
-            "column `{name}` holds {}, not {}{hint}",
-            crate::io::parquet_types::type_in_words(column.dtype()),
-            if dtype == &DataType::String {
-                "security ids"
-            } else {
-                "prices"
-            }
-        )));
+        return Err(source.file_error(not_of_type(name, column.dtype(), dtype, layout)));
     }
     if dtype == &DataType::Float64 && column.dtype() == &DataType::Float32 {
         // Prices stored as 32-bit floats, read as the decimals written (as attributes are).
@@ -453,6 +424,37 @@ fn typed(
     column
         .cast(dtype)
         .map_err(|e| source.file_error(format!("column `{name}`: {e}")))
+}
+
+/// The refusal of column `name`, which holds `held` where ids (`wanted` text) or prices are
+/// read, with what to store instead.
+fn not_of_type(name: &str, held: &DataType, wanted: &DataType, layout: PanelLayout) -> String {
+    let (what, hint) = match (wanted, layout) {
+        (DataType::String, _) => (
+            "security ids",
+            ": store the ids as text (or integers) when writing the Parquet file",
+        ),
+        (_, PanelLayout::Wide) if held.is_string() => (
+            "prices",
+            " (a wide panel holds only prices beside the date column; if this file has one row \
+             per date and security, set panel.layout = \"long\")",
+        ),
+        (_, PanelLayout::Long) if held.is_string() => (
+            "prices",
+            " (a Parquet panel stores its prices as numbers, not as text)",
+        ),
+        (_, PanelLayout::Wide) => (
+            "prices",
+            ": a wide panel holds only the date column and one column of prices per security; \
+             drop this column when writing the Parquet file",
+        ),
+        (_, PanelLayout::Long) => (
+            "prices",
+            ": store the prices as numbers when writing the Parquet file",
+        ),
+    };
+    let held = crate::io::parquet_types::type_in_words(held);
+    format!("column `{name}` holds {held}, not {what}{hint}")
 }
 
 /// In a text column of prices, the first cell that is not a number (its position and text),

@@ -133,6 +133,19 @@ impl Drawn {
         self.summary(industry).map_or(0, |s| s.dispersion.count)
     }
 
+    /// The ring in words, for summary.md's sentence under the table: of the adjusted betas when
+    /// an adjustment is set, which the table's raw median is not (found by review: the sentence
+    /// called both "the median levered β").
+    pub(super) fn ring_words(&self) -> String {
+        match self.adjustment {
+            None => "the median levered β of its estimated securities (ring)".into(),
+            Some(name) => format!(
+                "the median of its estimated securities' {name}-adjusted levered betas (ring; \
+                 the table's Median β is of the raw estimates)"
+            ),
+        }
+    }
+
     /// The median levered beta the ring draws: of the adjusted betas when an adjustment is set
     /// (the betas that were unlevered), else of the raw ones.
     fn levered_median(&self, industry: &IndustryResult) -> Option<f64> {
@@ -217,19 +230,12 @@ fn ordered(result: &UniverseResult) -> Vec<&IndustryResult> {
     industries
 }
 
-/// Every value a row draws (none for a row with no estimate).
+/// Every value a row draws (none for a row with no estimate), and its industry figure.
 fn row_values(industry: &IndustryResult, drawn: Drawn) -> Vec<f64> {
-    let mut values = Vec::new();
-    if let Some(s) = drawn.summary(industry) {
-        let d = &s.dispersion;
-        values.push(d.median);
-        if d.count >= BAND_FROM {
-            values.extend([d.lower_quartile, d.upper_quartile]);
-        }
-        values.extend(s.median_interval.iter().flatten());
-    }
+    let marks = row_marks(industry, drawn);
+    let mut values: Vec<f64> = marks.points.iter().map(|(_, v)| *v).collect();
+    values.extend(marks.ranges.iter().flat_map(|(_, ends)| *ends));
     values.extend(industry.unlevered_beta);
-    values.extend(drawn.levered_median(industry));
     values.retain(|v| v.is_finite());
     values
 }
@@ -479,8 +485,56 @@ fn draw_marks(
     beyond_the_axis(canvas, layout, axes, rows, drawn)
 }
 
-/// Each row's marks that lie beyond the axis, written at its edge as their values (the lowest
-/// at the left edge, the highest at the right).
+/// A row's marks, for the values written at an edge: each point mark by its symbol (● the
+/// median, ○ the levered median, ▲ the industry figure when drawn), each range by its name
+/// (the whisker, the band) and ends.
+struct RowMarks {
+    points: Vec<(&'static str, f64)>,
+    ranges: Vec<(&'static str, [f64; 2])>,
+}
+
+fn row_marks(industry: &IndustryResult, drawn: Drawn) -> RowMarks {
+    let summary = drawn.summary(industry);
+    let mut points: Vec<(&'static str, f64)> = Vec::new();
+    points.extend(summary.map(|s| ("●", s.dispersion.median)));
+    points.extend(drawn.levered_median(industry).map(|m| ("○", m)));
+    if drawn.aggregation != Aggregation::Median {
+        points.extend(industry.unlevered_beta.map(|f| ("▲", f)));
+    }
+    let mut ranges = Vec::new();
+    if let Some(s) = summary {
+        ranges.extend(s.median_interval.map(|i| ("whisker", i)));
+        if s.dispersion.count >= BAND_FROM {
+            let d = &s.dispersion;
+            ranges.push(("band", [d.lower_quartile, d.upper_quartile]));
+        }
+    }
+    RowMarks { points, ranges }
+}
+
+/// What an edge writes of a row's marks beyond it (`past` says whether a value lies beyond;
+/// `left` picks the edge): each point mark's symbol and value, then each range's name and its
+/// end beyond the edge; `None` when no mark lies beyond (found by review: only the farthest
+/// value was written, beside marks it did not belong to).
+fn edge_text(marks: &RowMarks, past: impl Fn(f64) -> bool, left: bool) -> Option<String> {
+    let shown = |v: f64| fixed(v, 2).replace('-', "\u{2212}");
+    let mut items: Vec<String> = (marks.points.iter())
+        .filter(|(_, v)| v.is_finite() && past(*v))
+        .map(|(symbol, v)| format!("{symbol} {}", shown(*v)))
+        .collect();
+    items.extend(marks.ranges.iter().filter_map(|(name, [low, high])| {
+        let end = if left { *low } else { *high };
+        (end.is_finite() && past(end)).then(|| format!("{name} {}", shown(end)))
+    }));
+    match (items.is_empty(), left) {
+        (true, _) => None,
+        (false, true) => Some(format!("◂ {}", items.join(" · "))),
+        (false, false) => Some(format!("{} ▸", items.join(" · "))),
+    }
+}
+
+/// Each row's marks that lie beyond the axis, written at its edge with their values
+/// ([`edge_text`]).
 fn beyond_the_axis(
     canvas: &mut Canvas,
     layout: &Layout,
@@ -489,15 +543,11 @@ fn beyond_the_axis(
     drawn: Drawn,
 ) -> Result<()> {
     let (start, end) = (axes.x.range.start, axes.x.range.end);
-    let outside: Vec<(f64, Option<f64>, Option<f64>)> = (rows.iter())
+    let outside: Vec<(f64, Option<String>, Option<String>)> = (rows.iter())
         .map(|r| {
-            let values = row_values(r.industry, drawn);
-            let low = values
-                .iter()
-                .copied()
-                .filter(|&v| v < start)
-                .reduce(f64::min);
-            let high = values.iter().copied().filter(|&v| v > end).reduce(f64::max);
+            let marks = row_marks(r.industry, drawn);
+            let low = edge_text(&marks, |v| v < start, true);
+            let high = edge_text(&marks, |v| v > end, false);
             (r.y, low, high)
         })
         .filter(|(_, low, high)| low.is_some() || high.is_some())
@@ -509,12 +559,12 @@ fn beyond_the_axis(
         let left = style::text(style::SMALL, &INK).pos(Pos::new(HPos::Left, VPos::Bottom));
         let right = style::text(style::SMALL, &INK).pos(Pos::new(HPos::Right, VPos::Bottom));
         for (y, low, high) in &outside {
-            if let Some(low) = low {
-                let text = format!("◂ {}", fixed(*low, 2).replace('-', "\u{2212}"));
+            if let Some(text) = low {
+                let text = text.clone();
                 chart.draw_series(std::iter::once(Text::new(text, (start, y + 0.45), &left)))?;
             }
-            if let Some(high) = high {
-                let text = format!("{} ▸", fixed(*high, 2).replace('-', "\u{2212}"));
+            if let Some(text) = high {
+                let text = text.clone();
                 chart.draw_series(std::iter::once(Text::new(text, (end, y + 0.45), &right)))?;
             }
         }
@@ -525,6 +575,30 @@ fn beyond_the_axis(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // By hand, the chart's own rule on a row whose median (−1.269) and interval's low end
+    // (−3.010) both lie left of an axis starting at −1: each is written with its own symbol or
+    // name, the ring (−0.5, inside) is not, nothing is written at the right edge.
+    #[test]
+    fn each_mark_beyond_an_edge_is_written_with_its_value() {
+        let marks = RowMarks {
+            points: vec![("●", -1.269), ("○", -0.5), ("▲", -1.269)],
+            ranges: vec![("whisker", [-3.010, 0.2]), ("band", [-1.8, -0.9])],
+        };
+        assert_eq!(
+            edge_text(&marks, |v| v < -1.0, true).as_deref(),
+            Some("◂ ● \u{2212}1.27 · ▲ \u{2212}1.27 · whisker \u{2212}3.01 · band \u{2212}1.80")
+        );
+        assert_eq!(edge_text(&marks, |v| v > 4.0, false), None);
+        let high = RowMarks {
+            points: vec![("●", 6.265), ("○", 7.071)],
+            ranges: vec![],
+        };
+        assert_eq!(
+            edge_text(&high, |v| v > 4.0, false).as_deref(),
+            Some("● 6.27 · ○ 7.07 ▸")
+        );
+    }
 
     #[test]
     fn chart_names_are_the_parts_a_run_writes() {

@@ -409,9 +409,10 @@ fn chart_links(out: &mut String, r: &UniverseResult, charts: &[super::chart::Cha
     let _ = writeln!(
         out,
         "\nThe industries drawn ({parts}): for each, the median of its {} with its 95% \
-         interval, their quartiles{figure} and the median levered β of its estimated securities; the \
-         table's βU columns are of the unlevered betas{}.\n",
+         interval, their quartiles{figure} and {}; the table's βU columns are of the unlevered \
+         betas{}; a mark beyond the axis is drawn at its edge, its value written there.\n",
         drawn.betas(),
+        drawn.ring_words(),
         match drawn.operations {
             true => ", the chart's of the betas of the operations",
             false => "",

@@ -152,8 +152,9 @@ pub(super) fn caption(result: &UniverseResult, drawn: Drawn) -> String {
          of at least 95% (whisker), the interquartile range of those betas (band, from four) \
          and {ring} (ring); in brackets, how many of the industry's securities the {betas} rest \
          on. Unlevered by {}; the industry figure is {figure}, and the rows run from the \
-         highest figure down{}. The grey line marks β = 1, the index; a value beyond the axis \
-         is drawn at its edge and written there. Figures: industries.csv (median_{stem}, \
+         highest figure down{}. The grey line marks β = 1, the index; a mark beyond the axis \
+         is drawn at its edge and its value written there, after its symbol (● the median, ○ \
+         the ring, ▲ the triangle) or its name (whisker, band). Figures: industries.csv (median_{stem}, \
          median_{stem}_ci_low, median_{stem}_ci_high, lower_quartile_{stem}, \
          upper_quartile_{stem}, {stem}_count, securities, {ring_column}, unlevered_beta).",
         result.formula_source,
